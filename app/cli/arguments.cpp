@@ -1,0 +1,87 @@
+#include "arguments.hpp"
+
+#include <charconv>
+#include <cmath>
+
+#include "moderato/error.hpp"
+
+namespace moderato::cli {
+
+Arguments::Arguments(const std::vector<std::string>& args, const std::set<std::string>& flags,
+                     const std::set<std::string>& valued) {
+    for (std::size_t i = 0; i < args.size(); ++i) {
+        const std::string& a = args[i];
+        if (a.rfind("--", 0) != 0 || a == "--") {
+            positional.push_back(a);
+            continue;
+        }
+        std::string name = a.substr(2), value;
+        bool inline_value = false;
+        if (auto eq = name.find('='); eq != std::string::npos) {
+            value = name.substr(eq + 1);
+            name = name.substr(0, eq);
+            inline_value = true;
+        }
+        if (flags.count(name)) {
+            if (inline_value) throw InputError("option --" + name + " takes no value");
+            values_[name].push_back("");
+        } else if (valued.count(name)) {
+            if (!inline_value) {
+                if (i + 1 >= args.size()) throw InputError("option --" + name + " needs a value");
+                value = args[++i];
+            }
+            values_[name].push_back(value);
+        } else {
+            throw InputError("unknown option --" + name + "; see moderato-cli --help");
+        }
+    }
+}
+
+std::optional<std::string> Arguments::get(const std::string& name) const {
+    auto it = values_.find(name);
+    if (it == values_.end()) return std::nullopt;
+    return it->second.back();
+}
+
+std::vector<std::string> Arguments::all(const std::string& name) const {
+    auto it = values_.find(name);
+    return it == values_.end() ? std::vector<std::string>{} : it->second;
+}
+
+std::string Arguments::required(const std::string& name) const {
+    auto v = get(name);
+    if (!v || v->empty()) throw InputError("option --" + name + " is required");
+    return *v;
+}
+
+std::vector<std::string> split_list(const std::string& text, const std::string& option) {
+    std::vector<std::string> out;
+    std::size_t start = 0;
+    while (true) {
+        const std::size_t comma = text.find(',', start);
+        std::string part = text.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+        if (part.empty()) throw InputError("option --" + option + " has an empty name in '" + text + "'");
+        out.push_back(part);
+        if (comma == std::string::npos) break;
+        start = comma + 1;
+    }
+    return out;
+}
+
+double parse_double(const std::string& text, const std::string& option) {
+    double v = 0;
+    auto [p, ec] = std::from_chars(text.data(), text.data() + text.size(), v);
+    if (ec != std::errc() || p != text.data() + text.size() || !std::isfinite(v))
+        throw InputError("option --" + option + " needs a number, got '" + text + "'");
+    return v;
+}
+
+long long parse_integer(const std::string& text, const std::string& option) {
+    long long v = 0;
+    auto [p, ec] = std::from_chars(text.data(), text.data() + text.size(), v);
+    if (ec != std::errc() || p != text.data() + text.size())
+        throw InputError("option --" + option + " needs a whole number, got '" + text + "'");
+    return v;
+}
+
+}  // namespace moderato::cli

@@ -1,0 +1,13 @@
+// The subcommands of moderato-cli. Each returns the process exit code and
+// throws moderato::InputError for bad input (exit code 2).
+#pragma once
+
+#include <string>
+#include <vector>
+
+namespace moderato::cli {
+
+int run_fit(const std::vector<std::string>& args);
+int run_describe(const std::vector<std::string>& args);
+
+}  // namespace moderato::cli

@@ -1,0 +1,87 @@
+// moderato-cli: the headless face of Moderato. Every number the workbench
+// shows can be reproduced here; tests and scripts call it.
+#include <cstring>
+#include <exception>
+#include <iostream>
+#include <string>
+#include <vector>
+
+#include "commands.hpp"
+#include "moderato/csv.hpp"
+#include "moderato/error.hpp"
+
+namespace {
+
+const char* kHelp = R"(moderato-cli — moderated effects in regression, without a window
+
+Usage:
+  moderato-cli fit --data FILE --outcome COL --predictors A,B [options]
+  moderato-cli describe --data FILE [import options]
+  moderato-cli --help | --version
+
+fit: estimates a linear or logistic model with product (interaction) terms.
+  --data FILE              CSV/TSV file (delimiter sniffed)
+  --outcome COL            the column to explain
+  --predictors A,B,...     main-effect columns (categorical columns are dummy-coded)
+  --interaction A,B[,C]    product term; repeatable; lower-order terms are added
+  --poly COL=DEGREE        COL, COL^2, ..., COL^DEGREE
+  --no-intercept           fit without an intercept
+  --family linear|logistic (default linear)
+  --se classical|hc0|hc1|hc2|hc3|hc4|cluster   (default classical)
+  --cluster COL            cluster-robust standard errors (CR1) by COL
+  --weights COL            weighted least squares (positive weights)
+  --level 0.95             confidence level of the intervals
+  --reference COL=LEVEL    reference level of a categorical column; repeatable
+  --centre COL[=mean|median|VALUE]   centre a column before fitting; repeatable
+  --standardise A,B        standardise columns (mean 0, SD 1)
+  --log A,B / --log1p A,B  replace columns by log(x) / log(1 + x)
+  --test TERM,TERM         joint Wald test of these terms (write products as A*B); repeatable
+  --format json|text       output (default text)
+
+Import options (fit and describe):
+  --delimiter comma|semicolon|tab|pipe   force the delimiter
+  --no-header              the first row holds data; columns are named V1, V2, ...
+  --missing TOKENS         extra missing-value tokens (always: empty, NA, NaN, .)
+  --decimal-comma          numbers are written 3,14
+  --categorical A,B        treat these columns as categorical
+  --numeric A,B            insist these columns are numeric
+  --threads N              threads for reading and fitting (default: all cores)
+
+Exit codes: 0 success; 2 bad input or usage (the message names the problem); 1 internal error.
+)";
+
+}  // namespace
+
+int main(int argc, char** argv) {
+    std::vector<std::string> args(argv + 1, argv + argc);
+    try {
+        if (args.empty() || args[0] == "--help" || args[0] == "-h" || args[0] == "help") {
+            std::cout << kHelp;
+            return args.empty() ? 2 : 0;
+        }
+        if (args[0] == "--version") {
+            std::cout << "moderato-cli " << MODERATO_VERSION << "\n";
+            return 0;
+        }
+        const std::string command = args[0];
+        const std::vector<std::string> rest(args.begin() + 1, args.end());
+        for (const auto& a : rest)
+            if (a == "--help" || a == "-h") {
+                std::cout << kHelp;
+                return 0;
+            }
+        if (command == "fit") return moderato::cli::run_fit(rest);
+        if (command == "describe") return moderato::cli::run_describe(rest);
+        std::cerr << "moderato-cli: unknown command '" << command << "'; commands are fit and describe (see --help)\n";
+        return 2;
+    } catch (const moderato::InputError& e) {
+        std::cerr << "moderato-cli: " << e.what() << "\n";
+        return 2;
+    } catch (const std::bad_alloc&) {
+        std::cerr << "moderato-cli: out of memory\n";
+        return 1;
+    } catch (const std::exception& e) {
+        std::cerr << "moderato-cli: internal error: " << e.what() << "\n";
+        return 1;
+    }
+}

@@ -1,0 +1,168 @@
+#include "model_options.hpp"
+
+#include <algorithm>
+#include <cstdio>
+
+#include "moderato/derive.hpp"
+#include "moderato/error.hpp"
+
+namespace moderato::cli {
+
+namespace {
+
+std::string fmt(double v) {
+    char buf[40];
+    std::snprintf(buf, sizeof buf, "%.6g", v);
+    return buf;
+}
+
+std::pair<std::string, std::string> split_pair(const std::string& text, const std::string& option) {
+    const auto eq = text.find('=');
+    if (eq == std::string::npos || eq == 0 || eq + 1 == text.size())
+        throw InputError("option --" + option + " needs COLUMN=VALUE, got '" + text + "'");
+    return {text.substr(0, eq), text.substr(eq + 1)};
+}
+
+// Replace every "*" with the product sign used in term labels.
+std::string product_sign(std::string s) {
+    std::string out;
+    for (char c : s) {
+        if (c == '*') out += "×";
+        else out += c;
+    }
+    return out;
+}
+
+}  // namespace
+
+std::set<std::string> import_flags() { return {"no-header", "decimal-comma"}; }
+std::set<std::string> import_valued() { return {"data", "delimiter", "missing", "categorical", "numeric", "threads"}; }
+std::set<std::string> model_flags() {
+    auto s = import_flags();
+    s.insert("no-intercept");
+    return s;
+}
+std::set<std::string> model_valued() {
+    auto s = import_valued();
+    for (const char* o : {"outcome", "predictors", "interaction", "poly", "family", "se", "cluster", "weights",
+                          "level", "reference", "centre", "standardise", "log", "log1p", "test", "format"})
+        s.insert(o);
+    return s;
+}
+
+std::string output_format(const Arguments& args) {
+    const std::string f = args.get("format").value_or("text");
+    if (f != "json" && f != "text") throw InputError("option --format must be json or text, got '" + f + "'");
+    return f;
+}
+
+Table load_table(const Arguments& args) {
+    CsvOptions o;
+    if (auto d = args.get("delimiter")) {
+        if (*d == "comma" || *d == ",") o.delimiter = ',';
+        else if (*d == "semicolon" || *d == ";") o.delimiter = ';';
+        else if (*d == "tab" || *d == "\\t" || *d == "\t") o.delimiter = '\t';
+        else if (*d == "pipe" || *d == "|") o.delimiter = '|';
+        else throw InputError("option --delimiter must be comma, semicolon, tab or pipe, got '" + *d + "'");
+    }
+    o.header = !args.has("no-header");
+    o.decimal_comma = args.has("decimal-comma");
+    for (const auto& list : args.all("missing"))
+        for (const auto& t : split_list(list, "missing")) o.missing_tokens.push_back(t);
+    for (const auto& list : args.all("categorical"))
+        for (const auto& c : split_list(list, "categorical")) o.column_kinds[c] = ColumnKind::Categorical;
+    for (const auto& list : args.all("numeric"))
+        for (const auto& c : split_list(list, "numeric")) o.column_kinds[c] = ColumnKind::Numeric;
+    if (auto t = args.get("threads")) {
+        const long long n = parse_integer(*t, "threads");
+        if (n < 1 || n > 256) throw InputError("option --threads must be between 1 and 256");
+        o.threads = static_cast<unsigned>(n);
+    }
+    return read_csv(args.required("data"), o);
+}
+
+LoadedModel load_model(const Arguments& args) {
+    LoadedModel m;
+    m.table = load_table(args);
+    Table& t = m.table;
+
+    // Column transforms, applied in place (the file is never touched).
+    auto replace = [&](Column c, const std::string& name) {
+        c.name = name;
+        *t.find(name) = std::move(c);
+    };
+    for (const auto& item : args.all("centre")) {
+        std::string col = item, how = "mean";
+        if (auto eq = item.find('='); eq != std::string::npos) {
+            col = item.substr(0, eq);
+            how = item.substr(eq + 1);
+        }
+        const Column& c = t.at(col);
+        CentreAt at = CentreAt::Mean;
+        double value = 0;
+        if (how == "median") at = CentreAt::Median;
+        else if (how != "mean") {
+            at = CentreAt::Value;
+            value = parse_double(how, "centre");
+        }
+        const double used = centre_value(c, at, value);
+        replace(centre(c, at, value, col), col);
+        m.notes.push_back(col + " is centred at " + (at == CentreAt::Mean ? "its mean " : at == CentreAt::Median ? "its median " : "") + fmt(used));
+    }
+    for (const auto& list : args.all("standardise"))
+        for (const auto& col : split_list(list, "standardise")) {
+            replace(standardise(t.at(col), col), col);
+            m.notes.push_back(col + " is standardised (mean 0, SD 1)");
+        }
+    for (const auto& list : args.all("log"))
+        for (const auto& col : split_list(list, "log")) {
+            replace(log_column(t.at(col), t, col), col);
+            m.notes.push_back(col + " is replaced by its natural logarithm");
+        }
+    for (const auto& list : args.all("log1p"))
+        for (const auto& col : split_list(list, "log1p")) {
+            replace(log1p_column(t.at(col), t, col), col);
+            m.notes.push_back(col + " is replaced by log(1 + " + col + ")");
+        }
+
+    ModelSpec& s = m.spec;
+    s.outcome = args.required("outcome");
+    if (auto p = args.get("predictors")) s.predictors = split_list(*p, "predictors");
+    for (const auto& i : args.all("interaction")) s.interactions.push_back(split_list(i, "interaction"));
+    for (const auto& item : args.all("poly")) {
+        auto [col, deg] = split_pair(item, "poly");
+        s.polynomial[col] = static_cast<int>(parse_integer(deg, "poly"));
+    }
+    if (s.predictors.empty() && s.interactions.empty() && s.polynomial.empty())
+        throw InputError("no predictors: give --predictors, --interaction or --poly");
+    s.intercept = !args.has("no-intercept");
+    if (auto f = args.get("family")) s.family = parse_family(*f);
+    if (auto c = args.get("cluster")) s.cluster = *c;
+    if (auto w = args.get("weights")) s.weights = *w;
+    if (auto se = args.get("se")) {
+        s.se = parse_se_kind(*se);
+        if (!s.cluster.empty() && s.se != SeKind::Cluster)
+            throw InputError("--se " + *se + " and --cluster " + s.cluster +
+                             " ask for two kinds of standard error; choose one");
+    } else if (!s.cluster.empty()) {
+        s.se = SeKind::Cluster;
+    }
+    if (auto l = args.get("level")) {
+        s.level = parse_double(*l, "level");
+        if (!(s.level > 0 && s.level < 1))
+            throw InputError("option --level must be between 0 and 1 (e.g. 0.95), got '" + *l + "'");
+    }
+    for (const auto& item : args.all("reference")) {
+        auto [col, level] = split_pair(item, "reference");
+        s.reference_levels[col] = level;
+    }
+    for (const auto& list : args.all("test")) {
+        std::vector<std::string> terms;
+        for (const auto& term : split_list(list, "test")) terms.push_back(product_sign(term));
+        s.wald_tests.push_back(terms);
+    }
+    if (auto th = args.get("threads")) s.threads = static_cast<unsigned>(parse_integer(*th, "threads"));
+    return m;
+}
+
+}  // namespace moderato::cli

@@ -1,0 +1,40 @@
+// The options shared by every subcommand that reads data and specifies a
+// model (fit now, probe later): import settings, roles, family, SE kind.
+#pragma once
+
+#include <set>
+#include <string>
+#include <vector>
+
+#include "arguments.hpp"
+#include "moderato/csv.hpp"
+#include "moderato/model.hpp"
+#include "moderato/table.hpp"
+
+namespace moderato::cli {
+
+std::set<std::string> import_flags();
+std::set<std::string> import_valued();
+std::set<std::string> model_flags();
+std::set<std::string> model_valued();
+
+// Reads --data with the import options (--delimiter, --no-header, --missing,
+// --decimal-comma, --categorical, --numeric, --threads).
+Table load_table(const Arguments& args);
+
+struct LoadedModel {
+    Table table;
+    ModelSpec spec;
+    std::vector<std::string> notes;   // what the column transforms did
+};
+
+// load_table, then the transforms (--centre, --standardise, --log, --log1p)
+// and the specification (--outcome, --predictors, --interaction, --poly,
+// --no-intercept, --family, --se, --cluster, --weights, --level, --reference,
+// --test).
+LoadedModel load_model(const Arguments& args);
+
+// "json" (default "text" when absent); usage error otherwise.
+std::string output_format(const Arguments& args);
+
+}  // namespace moderato::cli

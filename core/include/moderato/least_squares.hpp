@@ -1,0 +1,43 @@
+// Weighted least squares by Householder QR with column pivoting.
+//
+// The design is scaled to unit column norms, reduced to the triangular factor
+// R of [X | y] (one Householder QR in 80-bit long double for small problems;
+// for large ones a tall-skinny QR over fixed row blocks in double, blocks on
+// all threads, merged in long double), and the rank is decided by a pivoted
+// QR of that small factor. Columns beyond the numerical rank are reported as
+// aliased, never silently dropped; the kept columns are solved in long double.
+#pragma once
+
+#include <Eigen/Dense>
+#include <vector>
+
+namespace moderato {
+
+struct LeastSquaresResult {
+    int rank = 0;
+    std::vector<int> kept;          // estimable columns, ascending
+    std::vector<int> aliased;       // columns that are linear combinations of earlier ones
+    Eigen::VectorXd coef;           // p entries; NaN for aliased columns
+    // k x k factor A with (X_K' W X_K)^{-1} = A A' (K: kept columns). The rows
+    // of X_K A give leverages and scores without forming X'X.
+    Eigen::MatrixXd inverse_factor;
+    Eigen::VectorXd residuals;      // y - X b (unweighted)
+    double rss = 0;                 // sum of w e^2
+    bool extended_precision = false;
+};
+
+struct LeastSquaresOptions {
+    unsigned threads = 0;            // 0: all hardware threads
+    // Relative size of a pivot in R (of the unit-norm-scaled design) below
+    // which a column counts as aliased.
+    double rank_tolerance = 1e-13;
+    // Problems with n * (p + 1)^2 at most this use one long double QR.
+    double extended_budget = 2e7;
+};
+
+// weights: empty for OLS, else positive weights (WLS).
+LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
+                                 const Eigen::VectorXd& weights = {},
+                                 const LeastSquaresOptions& options = {});
+
+}  // namespace moderato

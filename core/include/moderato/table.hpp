@@ -1,0 +1,63 @@
+// Columnar, typed table with a missing mask.
+//
+// Numeric columns store doubles; a missing cell is a quiet NaN (every NaN in
+// a numeric column means "missing"). Categorical columns store one int32 code
+// per row into `levels`; a missing cell has code -1.
+#pragma once
+
+#include <cstddef>
+#include <cstdint>
+#include <limits>
+#include <optional>
+#include <string>
+#include <vector>
+
+namespace moderato {
+
+enum class ColumnKind { Numeric, Categorical };
+
+inline constexpr std::int32_t kMissingCode = -1;
+
+inline double missing_value() { return std::numeric_limits<double>::quiet_NaN(); }
+
+struct Column {
+    std::string name;
+    ColumnKind kind = ColumnKind::Numeric;
+    std::vector<double> numbers;        // Numeric: one per row, NaN = missing
+    std::vector<std::int32_t> codes;    // Categorical: one per row, -1 = missing
+    std::vector<std::string> levels;    // Categorical: code -> text
+
+    // Where a column was inferred categorical because of text, the first such
+    // cell (1-based physical line of the file, its text) for error messages.
+    std::size_t first_text_line = 0;
+    std::string first_text;
+
+    std::size_t size() const { return kind == ColumnKind::Numeric ? numbers.size() : codes.size(); }
+    bool is_missing(std::size_t row) const {
+        return kind == ColumnKind::Numeric ? numbers[row] != numbers[row] : codes[row] < 0;
+    }
+    std::size_t missing_count() const;
+};
+
+class Table {
+public:
+    std::vector<Column> columns;
+    // 1-based physical line in the source file where each data row starts
+    // (empty when the table was not read from a file).
+    std::vector<std::size_t> row_lines;
+    std::string source;  // file name the table came from, for messages
+
+    std::size_t rows() const { return columns.empty() ? 0 : columns.front().size(); }
+    std::size_t cols() const { return columns.size(); }
+
+    // nullptr when absent.
+    const Column* find(const std::string& name) const;
+    Column* find(const std::string& name);
+    // Throws InputError naming the column and listing the available ones.
+    const Column& at(const std::string& name) const;
+
+    // Human-readable location of a data row: "line 17" (or "row 17").
+    std::string row_location(std::size_t row) const;
+};
+
+}  // namespace moderato

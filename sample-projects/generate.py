@@ -1,0 +1,111 @@
+#!/usr/bin/env python3
+"""Regenerates the invented demo datasets of the sample projects.
+
+Every scenario is made up; the numbers come from a seeded generator (Python's
+standard library only), so running this again writes byte-identical files:
+
+    python3 sample-projects/generate.py
+"""
+import csv
+import math
+import os
+import random
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+
+
+def write(folder, name, header, rows):
+    path = os.path.join(HERE, folder)
+    os.makedirs(path, exist_ok=True)
+    tmp = os.path.join(path, name + ".tmp")
+    with open(tmp, "w", newline="") as f:
+        w = csv.writer(f, lineterminator="\n")
+        w.writerow(header)
+        w.writerows(rows)
+    os.replace(tmp, os.path.join(path, name))
+
+
+def coffee_discount(rng):
+    """A coffee roaster's weekly spend per customer by discount depth (%) and
+    loyalty membership; members respond less to deeper discounts, so the lines
+    cross inside the observed range. Customers are nested in 36 shops."""
+    rows = []
+    shops = [rng.gauss(0, 1.5) for _ in range(36)]
+    for i in range(900):
+        shop = rng.randrange(36)
+        member = 1 if rng.random() < 0.42 else 0
+        discount = round(rng.uniform(0, 30), 1)
+        tenure = round(rng.uniform(1, 60))
+        spend = (14.0 + 0.55 * discount + 6.5 * member - 0.38 * discount * member
+                 + 0.05 * tenure + shops[shop] + rng.gauss(0, 2.5 + 0.08 * discount))
+        rows.append([f"{spend:.2f}", f"{discount:.1f}", member, tenure, f"shop{shop + 1:02d}"])
+    write("coffee-discount", "spend.csv",
+          ["weekly_spend", "discount_pct", "loyalty_member", "tenure_months", "shop"], rows)
+
+
+def orchard_nitrogen(rng):
+    """Apple orchard plots: yield (t/ha) by nitrogen dose (kg/ha) and soil
+    moisture (%); nitrogen pays off more on moister soil."""
+    rows = []
+    for i in range(480):
+        nitrogen = round(rng.uniform(0, 160), 0)
+        moisture = round(rng.uniform(12, 38), 1)
+        slope = round(rng.uniform(0, 12), 1)
+        yld = (18 + 0.02 * nitrogen + 0.35 * moisture + 0.0021 * nitrogen * moisture
+               - 0.15 * slope + rng.gauss(0, 2.2))
+        rows.append([f"{yld:.2f}", f"{nitrogen:.0f}", f"{moisture:.1f}", f"{slope:.1f}"])
+    write("orchard-nitrogen", "plots.csv", ["yield_t_ha", "nitrogen_kg_ha", "soil_moisture_pct", "slope_pct"], rows)
+
+
+def volunteer_onboarding(rng):
+    """Volunteer hours in the first quarter by onboarding format (in person /
+    online) and whether a mentor was assigned: a 2 x 2 design."""
+    rows = []
+    for i in range(640):
+        fmt = rng.choice(["in person", "online"])
+        mentor = rng.choice(["mentor", "no mentor"])
+        age = rng.randint(18, 74)
+        base = 38 if fmt == "in person" else 29
+        lift = 4 if fmt == "in person" else 11
+        hours = base + (lift if mentor == "mentor" else 0) + 0.05 * (age - 40) + rng.gauss(0, 9)
+        rows.append([f"{max(hours, 0):.1f}", fmt, mentor, age])
+    write("volunteer-onboarding", "volunteers.csv", ["hours_q1", "onboarding", "mentoring", "age"], rows)
+
+
+def helpdesk_staffing(rng):
+    """Ticket resolution time (hours) by staffing level (agents on shift) and
+    shift (day / evening / night): extra staff help most at night."""
+    rows = []
+    effect = {"day": -0.35, "evening": -0.6, "night": -1.1}
+    base = {"day": 9.0, "evening": 11.0, "night": 16.0}
+    for i in range(1200):
+        shift = rng.choices(["day", "evening", "night"], weights=[5, 3, 2])[0]
+        staff = rng.randint(3, 14)
+        weekday = rng.choice(["Mon", "Tue", "Wed", "Thu", "Fri", "Sat", "Sun"])
+        t = base[shift] + effect[shift] * staff + (1.5 if weekday in ("Sat", "Sun") else 0) + rng.gauss(0, 2.0)
+        rows.append([f"{max(t, 0.2):.2f}", staff, shift, weekday])
+    write("helpdesk-staffing", "tickets.csv", ["resolution_hours", "agents_on_shift", "shift", "weekday"], rows)
+
+
+def trial_conversion(rng):
+    """Whether a software trial converts to a paid plan (0/1) by number of
+    guided-setup sessions and company size (log employees)."""
+    rows = []
+    for i in range(2000):
+        sessions = rng.randint(0, 6)
+        employees = int(math.exp(rng.uniform(math.log(3), math.log(2000))))
+        size = math.log(employees)
+        eta = -2.6 + 0.25 * sessions + 0.12 * size + 0.09 * sessions * size
+        p = 1 / (1 + math.exp(-eta))
+        rows.append([1 if rng.random() < p else 0, sessions, employees, rng.choice(["EU", "NA", "APAC"])])
+    write("trial-conversion", "trials.csv", ["converted", "setup_sessions", "employees", "region"], rows)
+
+
+def main():
+    for seed, scenario in enumerate([coffee_discount, orchard_nitrogen, volunteer_onboarding,
+                                     helpdesk_staffing, trial_conversion], start=20261):
+        scenario(random.Random(seed))
+
+
+if __name__ == "__main__":
+    main()
