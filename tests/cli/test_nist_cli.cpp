@@ -1,0 +1,82 @@
+// Accuracy on the NIST StRD linear least-squares datasets through the
+// moderato-cli process and its JSON output. Check values: NIST StRD certified
+// values (../shared/reference/nist-strd/*.json, read at run time).
+#include <gtest/gtest.h>
+
+#include <array>
+#include <cstdio>
+#include <memory>
+#include <nlohmann/json.hpp>
+#include <string>
+
+#include "common/nist.hpp"
+
+using namespace moderato::test;
+
+namespace {
+
+std::string run_stdout(const std::string& command, int& status) {
+    std::string out;
+    FILE* pipe = popen(command.c_str(), "r");
+    if (!pipe) {
+        status = -1;
+        return out;
+    }
+    std::array<char, 65536> buf{};
+    std::size_t got;
+    while ((got = std::fread(buf.data(), 1, buf.size(), pipe)) > 0) out.append(buf.data(), got);
+    status = pclose(pipe);
+    return out;
+}
+
+std::string shell_quote(const std::string& s) {
+    std::string q = "'";
+    for (char c : s) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
+    return q + "'";
+}
+
+}  // namespace
+
+TEST(NistStrdCli, JsonOutputMeetsCertifiedDigits) {
+    if (!nist_available()) GTEST_SKIP() << nist_skip_message();
+    std::printf("\nNIST StRD through moderato-cli fit --format json: minimum LRE\n");
+    std::printf("%-9s %7s %7s %7s %7s %9s\n", "dataset", "coef", "SE", "res.SD", "R²", "required");
+    for (const auto& name : nist_datasets()) {
+        const NistCase c = load_nist(name);
+        std::string cmd = std::string(MODERATO_CLI) + " fit --format json --data " + shell_quote(c.csv.string()) +
+                          " --outcome y";
+        if (!c.intercept) cmd += " --no-intercept";
+        if (c.degree < 0) {
+            std::string list;
+            for (const auto& p : c.predictors) list += (list.empty() ? "" : ",") + p;
+            cmd += " --predictors " + list;
+        } else {
+            cmd += " --poly x=" + std::to_string(c.degree);
+        }
+        int status = 0;
+        const std::string out = run_stdout(cmd + " 2>/dev/null", status);
+        ASSERT_EQ(status, 0) << cmd;
+        const auto j = nlohmann::json::parse(out);
+        double coef = 15, se = 15;
+        ASSERT_EQ(j.at("coefficients").size(), c.coefficients.size()) << name;
+        for (std::size_t k = 0; k < c.coefficients.size(); ++k) {
+            const std::string term = nist_term(c, k);
+            bool found = false;
+            for (const auto& row : j.at("coefficients"))
+                if (row.at("term") == term) {
+                    found = true;
+                    coef = std::min(coef, lre(row.at("estimate").get<double>(), c.coefficients[k]));
+                    se = std::min(se, lre(row.at("std_error").get<double>(), c.standard_errors[k]));
+                }
+            EXPECT_TRUE(found) << name << " " << term;
+        }
+        const double sd = lre(j.at("residual_sd").get<double>(), c.residual_sd);
+        const double r2 = lre(j.at("r_squared").get<double>(), c.r_squared);
+        const double need = nist_required_lre(name);
+        std::printf("%-9s %7.2f %7.2f %7.2f %7.2f %9.0f\n", name.c_str(), coef, se, sd, r2, need);
+        EXPECT_GE(coef, need) << name;
+        EXPECT_GE(se, need) << name;
+        EXPECT_GE(sd, need) << name;
+        EXPECT_GE(r2, need) << name;
+    }
+}
