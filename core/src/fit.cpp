@@ -58,10 +58,9 @@ struct LogisticFit {
 
 // Newton-Raphson (IRLS) with step halving. Each step solves the weighted least
 // squares problem by QR, so X'VX is never formed.
-LogisticFit fit_logistic(const Design& d, const Eigen::MatrixXd& X, int max_iterations, unsigned threads) {
+LogisticFit fit_logistic(const Design& d, const Eigen::MatrixXd& X, int max_iterations,
+                         const LeastSquaresOptions& lso) {
     const Eigen::Index n = X.rows(), p = X.cols();
-    LeastSquaresOptions lso;
-    lso.threads = threads;
     const Eigen::VectorXd zero = Eigen::VectorXd::Zero(n);
     LogisticFit f;
     f.beta = Eigen::VectorXd::Zero(p);
@@ -225,12 +224,13 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
     f.notes = d.notes;
     f.n_clusters = d.n_clusters;
 
+    LeastSquaresOptions lso;
+    lso.threads = threads;
+    lso.extended_budget = options.extended_budget;
     LeastSquaresResult ls;
     Eigen::VectorXd score(n), leverage_weight;
     std::optional<detail::SeparationFinding> separation;
     if (!logistic) {
-        LeastSquaresOptions lso;
-        lso.threads = threads;
         ls = least_squares(d.X, d.y, d.weights, lso);
         f.beta = ls.coef;
         f.residuals = ls.residuals;
@@ -238,7 +238,7 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
         for (Eigen::Index i = 0; i < n; ++i) score[i] = weight(d, i) * ls.residuals[i];
         if (d.weights.size()) leverage_weight = d.weights;
     } else {
-        auto lf = fit_logistic(d, d.X, options.max_iterations, threads);
+        auto lf = fit_logistic(d, d.X, options.max_iterations, lso);
         ls = lf.factor;
         f.beta = lf.beta;
         f.fitted = lf.mu;
@@ -273,10 +273,8 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
 
     f.df_inference = logistic ? kInf : (spec.se == SeKind::Cluster ? d.n_clusters - 1.0 : f.df_residual);
     f.critical_value = dist::t_quantile(0.5 + spec.level / 2.0, f.df_inference);
-    const auto vif = variance_inflation(d, kept, logistic ? least_squares(d.X, Eigen::VectorXd::Zero(n), d.weights,
-                                                                          LeastSquaresOptions{threads, 1e-13, 2e7})
-                                                                .inverse_factor
-                                                          : A);
+    const auto vif = variance_inflation(
+        d, kept, logistic ? least_squares(d.X, Eigen::VectorXd::Zero(n), d.weights, lso).inverse_factor : A);
     for (Eigen::Index j = 0; j < p; ++j) {
         Coefficient c;
         c.term = d.columns[static_cast<std::size_t>(j)].label;
@@ -358,8 +356,6 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
         Eigen::MatrixXd Xr(n, static_cast<Eigen::Index>(reduced_cols.size()));
         for (std::size_t c = 0; c < reduced_cols.size(); ++c) Xr.col(static_cast<Eigen::Index>(c)) = d.X.col(reduced_cols[c]);
         if (!logistic) {
-            LeastSquaresOptions lso;
-            lso.threads = threads;
             const auto red = least_squares(Xr, d.y, d.weights, lso);
             cmp.r_squared_reduced = 1.0 - red.rss / f.tss;
             cmp.r_squared_change = f.r_squared - cmp.r_squared_reduced;
@@ -370,7 +366,7 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
         } else {
             Design dr = d;
             dr.X = Xr;
-            auto red = fit_logistic(dr, Xr, options.max_iterations, threads);
+            auto red = fit_logistic(dr, Xr, options.max_iterations, lso);
             cmp.df1 = static_cast<double>(kept.size() - red.factor.kept.size());
             cmp.lr_statistic = 2.0 * (f.log_likelihood - red.loglik);
             cmp.lr_p_value = dist::upper_p_chi2(cmp.lr_statistic, cmp.df1);

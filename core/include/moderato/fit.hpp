@@ -84,6 +84,9 @@ struct FitResult {
 struct FitOptions {
     bool compare_without_products = true;
     int max_iterations = 100;      // logistic
+    // Problems with n * (p + 1)^2 up to this are solved in long double
+    // (see least_squares.hpp); 0 forces the blocked double-precision path.
+    double extended_budget = 2e7;
 };
 
 // Builds the design and fits it. Throws InputError for bad specifications.
