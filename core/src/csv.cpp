@@ -425,6 +425,7 @@ bool Reader::pass(std::vector<char>& text_columns, Table& out) {
                 }
                 for (const std::size_t j : turned) {  // only missing cells so far
                     FinalColumn& fc = cols_[j];
+                    fc.codes.reserve(std::max(fc.numbers.capacity(), fc.numbers.size()));
                     fc.codes.assign(fc.numbers.size(), kMissingCode);
                     std::vector<double>().swap(fc.numbers);
                     fc.mode = Mode::Text;

@@ -148,6 +148,13 @@ private:
     Signal general_cell(std::size_t j, const char*& p, std::size_t& line);
     Signal handle_value(std::size_t j, std::string_view raw, bool quoted, bool in_scratch, std::size_t cell_line);
     void skip_field(const char*& p, std::size_t& line);
+    Signal check_utf8(std::size_t j, std::string_view raw, std::size_t cell_line) {
+        const char* bad = find_invalid_utf8(raw.data(), raw.data() + raw.size());
+        if (!bad) return Signal::Ok;
+        return fail(cell_line + count_newlines(raw.data(), bad),
+                    ", " + column_label(s_.names, j) + ": invalid UTF-8 (byte " +
+                        hex_byte(static_cast<unsigned char>(*bad)) + "); save the file as UTF-8 and read it again");
+    }
     Signal fail(std::size_t line, std::string rest) {
         out_.error.set = true;
         out_.error.line = line;
@@ -286,37 +293,34 @@ PieceParser::Signal PieceParser::handle_value(std::size_t j, std::string_view ra
         col.numbers.push_back(v);
         return Signal::Ok;
     }
-    if (const char* bad = find_invalid_utf8(raw.data(), raw.data() + raw.size()))
-        return fail(cell_line + count_newlines(raw.data(), bad),
-                    ", " + column_label(s_.names, j) + ": invalid UTF-8 (byte " +
-                        hex_byte(static_cast<unsigned char>(*bad)) +
-                        "); save the file as UTF-8 and read it again");
+    if (col.mode == Mode::NumberInferred) {  // re-read this piece with the column as text
+        restart_column_ = j;
+        return Signal::Restart;
+    }
     if (col.mode == Mode::NumberForced) {
+        if (const Signal bad = check_utf8(j, raw, cell_line); bad != Signal::Ok) return bad;
         const std::string text = excerpt(trimmed);
         return fail(cell_line, ", " + column_label(s_.names, j) + ": '" + text +
                                    "' is not a number, but the column is set to numeric; correct the cell, add '" +
                                    text + "' to the missing tokens, or read the column as categorical");
     }
-    if (col.mode == Mode::NumberInferred) {
-        restart_column_ = j;
-        return Signal::Restart;
+    // Text column. A level seen before was checked when first seen.
+    std::string_view level = quoted ? raw : trimmed;
+    TextChunk& tc = col.text;
+    std::int32_t code;
+    if (const auto it = tc.index.find(level); it != tc.index.end()) {
+        code = it->second;
+    } else {
+        if (const Signal bad = check_utf8(j, raw, cell_line); bad != Signal::Ok) return bad;
+        if (in_scratch) level = tc.owned.emplace_back(level);
+        code = static_cast<std::int32_t>(tc.levels.size());
+        tc.levels.push_back(level);
+        tc.index.emplace(level, code);
     }
-    // Text column.
     if (col.first_text_line == npos && !parse_number(trimmed, s_.decimal_comma, v)) {
         col.first_text_line = cell_line;
         col.first_text.assign(trimmed);
     }
-    std::string_view level = quoted ? raw : trimmed;
-    TextChunk& tc = col.text;
-    const auto it = tc.index.find(level);
-    if (it != tc.index.end()) {
-        tc.codes.push_back(it->second);
-        return Signal::Ok;
-    }
-    if (in_scratch) level = tc.owned.emplace_back(level);
-    const auto code = static_cast<std::int32_t>(tc.levels.size());
-    tc.levels.push_back(level);
-    tc.index.emplace(level, code);
     tc.codes.push_back(code);
     return Signal::Ok;
 }

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <charconv>
 #include <cmath>
+#include <limits>
 #include <map>
 #include <set>
 
@@ -18,6 +19,33 @@ using detail::quoted;
 int Design::column_index(const std::string& label) const {
     for (std::size_t j = 0; j < columns.size(); ++j)
         if (columns[j].label == label) return static_cast<int>(j);
+    return -1;
+}
+
+double Design::percentile(const std::string& column, double p) const {
+    int j = -1;
+    for (std::size_t k = 0; k < columns.size(); ++k)
+        if (columns[k].atoms.size() == 1 && columns[k].atoms[0] == Atom{column, "", 1}) j = static_cast<int>(k);
+    if (j < 0 || X.rows() == 0) return std::numeric_limits<double>::quiet_NaN();
+    std::vector<double> sorted(X.col(j).data(), X.col(j).data() + X.rows());
+    std::sort(sorted.begin(), sorted.end());
+    const double pos = std::clamp(p, 0.0, 100.0) / 100.0 * static_cast<double>(sorted.size() - 1);
+    const auto lo = static_cast<std::size_t>(std::floor(pos));
+    const std::size_t hi = std::min(lo + 1, sorted.size() - 1);
+    return sorted[lo] + (pos - static_cast<double>(lo)) * (sorted[hi] - sorted[lo]);
+}
+
+const CategoricalInfo* Design::categorical(const std::string& column) const {
+    for (const auto& c : categoricals)
+        if (c.column == column) return &c;
+    return nullptr;
+}
+
+int Design::level_index(const std::string& column, const std::string& level) const {
+    const CategoricalInfo* c = categorical(column);
+    if (!c) return -1;
+    for (std::size_t i = 0; i < c->levels.size(); ++i)
+        if (c->levels[i] == level) return static_cast<int>(i);
     return -1;
 }
 
@@ -423,6 +451,27 @@ Design build_design(const Table& table, const ModelSpec& spec) {
     if (n <= p)
         throw InputError("too few rows: " + std::to_string(n) + " complete rows for " + std::to_string(p) +
                          " coefficients; the model needs more rows than coefficients");
+
+    for (const auto& t : d.terms)
+        for (const auto& f : t.factors) {
+            const Column& c = table.at(f.first);
+            if (c.kind != ColumnKind::Numeric || d.summaries.count(f.first)) continue;
+            NumericSummary s;
+            s.min = std::numeric_limits<double>::infinity();
+            s.max = -s.min;
+            long double sum = 0;
+            for (auto r : rows) {
+                const double v = c.numbers[r];
+                sum += v;
+                s.min = std::min(s.min, v);
+                s.max = std::max(s.max, v);
+            }
+            s.mean = static_cast<double>(sum / static_cast<long double>(n));
+            long double ss = 0;
+            for (auto r : rows) ss += (c.numbers[r] - s.mean) * (c.numbers[r] - s.mean);
+            s.sd = n > 1 ? std::sqrt(static_cast<double>(ss / static_cast<long double>(n - 1))) : 0.0;
+            d.summaries.emplace(f.first, s);
+        }
 
     if (!added_notes.empty())
         d.notes.push_back("lower-order terms added: " + join(added_notes, ", "));

@@ -120,16 +120,17 @@ LogisticFit fit_logistic(const Design& d, const Eigen::MatrixXd& X, int max_iter
             break;
         }
     }
-    for (Eigen::Index j = 0; j < p; ++j)
-        if (!std::binary_search(kept.begin(), kept.end(), static_cast<int>(j))) f.beta[j] = kNaN;
     f.mu.resize(n);
     Eigen::VectorXd v(n);
     for (Eigen::Index i = 0; i < n; ++i) {
         f.mu[i] = expit(eta[i]);
         v[i] = weight(d, i) * f.mu[i] * (1 - f.mu[i]);
     }
+    // The covariance factor at the final estimate decides which columns are
+    // estimable (under separation the weights can collapse the rank).
     f.factor = least_squares(X, zero, v, lso);
-    f.factor.kept = kept;
+    for (Eigen::Index j = 0; j < p; ++j)
+        if (!std::binary_search(f.factor.kept.begin(), f.factor.kept.end(), static_cast<int>(j))) f.beta[j] = kNaN;
     f.loglik = ll;
     return f;
 }
@@ -333,6 +334,12 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
         std::vector<std::string> labels;
         for (int j : tested) labels.push_back(d.columns[static_cast<std::size_t>(j)].label);
         WaldTest overall = wald_on_columns(f, tested, labels);
+        if (!logistic && spec.se == SeKind::Classical) {
+            // The classical F from sums of squares: exact where the Wald form
+            // would invert an ill-conditioned covariance block.
+            overall.statistic = ((f.tss - f.rss) / overall.df1) / (f.rss / f.df_residual);
+            overall.p_value = dist::upper_p_f(overall.statistic, overall.df1, overall.df2);
+        }
         if (!logistic) {
             f.f_statistic = overall.statistic;
             f.f_df1 = overall.df1;
@@ -364,9 +371,7 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
             cmp.f_statistic = ((red.rss - f.rss) / cmp.df1) / (f.rss / f.df_residual);
             cmp.p_value = dist::upper_p_f(cmp.f_statistic, cmp.df1, cmp.df2);
         } else {
-            Design dr = d;
-            dr.X = Xr;
-            auto red = fit_logistic(dr, Xr, options.max_iterations, lso);
+            auto red = fit_logistic(d, Xr, options.max_iterations, lso);
             cmp.df1 = static_cast<double>(kept.size() - red.factor.kept.size());
             cmp.lr_statistic = 2.0 * (f.log_likelihood - red.loglik);
             cmp.lr_p_value = dist::upper_p_chi2(cmp.lr_statistic, cmp.df1);

@@ -5,6 +5,7 @@
 
 #include <Eigen/Dense>
 #include <cstddef>
+#include <map>
 #include <string>
 #include <vector>
 
@@ -47,6 +48,10 @@ struct CategoricalInfo {
     std::string reference;
 };
 
+struct NumericSummary {
+    double mean = 0, sd = 0, min = 0, max = 0;
+};
+
 struct Design {
     Eigen::MatrixXd X;          // n x p
     Eigen::VectorXd y;          // n
@@ -63,11 +68,19 @@ struct Design {
     std::vector<Exclusion> exclusions;
     std::vector<std::string> notes;
     std::string outcome;
+    // Numeric columns of the model's terms over the used rows.
+    std::map<std::string, NumericSummary> summaries;
 
     std::size_t n() const { return static_cast<std::size_t>(X.rows()); }
     std::size_t p() const { return static_cast<std::size_t>(X.cols()); }
     // Index of the design column with this label, or -1.
     int column_index(const std::string& label) const;
+    // The p-th percentile (0..100; linear interpolation between order
+    // statistics) of a numeric column over the used rows; NaN if absent.
+    double percentile(const std::string& column, double p) const;
+    // Index of `level` among a categorical column's levels (reference = 0), or -1.
+    int level_index(const std::string& column, const std::string& level) const;
+    const CategoricalInfo* categorical(const std::string& column) const;
     // Design columns of product terms (two or more distinct columns; powers of
     // one column are not products).
     std::vector<int> product_columns() const;
