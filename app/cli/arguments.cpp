@@ -8,7 +8,7 @@
 namespace moderato::cli {
 
 Arguments::Arguments(const std::vector<std::string>& args, const std::set<std::string>& flags,
-                     const std::set<std::string>& valued) {
+                     const std::set<std::string>& valued, const std::set<std::string>& repeatable) {
     for (std::size_t i = 0; i < args.size(); ++i) {
         const std::string& a = args[i];
         if (a.rfind("--", 0) != 0 || a == "--") {
@@ -24,12 +24,16 @@ Arguments::Arguments(const std::vector<std::string>& args, const std::set<std::s
         }
         if (flags.count(name)) {
             if (inline_value) throw InputError("option --" + name + " takes no value");
+            if (values_.count(name)) throw InputError("option --" + name + " is given twice");
             values_[name].push_back("");
         } else if (valued.count(name)) {
             if (!inline_value) {
                 if (i + 1 >= args.size()) throw InputError("option --" + name + " needs a value");
                 value = args[++i];
             }
+            if (values_.count(name) && !repeatable.count(name))
+                throw InputError("option --" + name + " is given twice ('" + values_[name].front() + "' and '" + value +
+                                 "'); give it once");
             values_[name].push_back(value);
         } else {
             throw InputError("unknown option --" + name + "; see moderato-cli --help");
@@ -76,11 +80,12 @@ double parse_double(const std::string& text, const std::string& option) {
     return v;
 }
 
-long long parse_integer(const std::string& text, const std::string& option) {
+long long parse_integer(const std::string& text, const std::string& option, long long lo, long long hi) {
     long long v = 0;
     auto [p, ec] = std::from_chars(text.data(), text.data() + text.size(), v);
-    if (ec != std::errc() || p != text.data() + text.size())
-        throw InputError("option --" + option + " needs a whole number, got '" + text + "'");
+    if (ec != std::errc() || p != text.data() + text.size() || v < lo || v > hi)
+        throw InputError("option --" + option + " needs a whole number from " + std::to_string(lo) + " to " +
+                         std::to_string(hi) + ", got '" + text + "'");
     return v;
 }
 

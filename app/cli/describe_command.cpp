@@ -14,7 +14,7 @@ namespace moderato::cli {
 int run_describe(const std::vector<std::string>& args) {
     auto valued = import_valued();
     valued.insert("format");
-    const Arguments a(args, import_flags(), valued);
+    const Arguments a(args, import_flags(), valued, repeatable_options());
     if (!a.positional.empty()) throw InputError("unexpected argument '" + a.positional.front() + "'");
     const std::string format = output_format(a);
     const Table t = load_table(a);

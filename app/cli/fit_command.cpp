@@ -10,7 +10,7 @@
 namespace moderato::cli {
 
 int run_fit(const std::vector<std::string>& args) {
-    const Arguments a(args, model_flags(), model_valued());
+    const Arguments a(args, model_flags(), model_valued(), repeatable_options());
     if (!a.positional.empty()) throw InputError("unexpected argument '" + a.positional.front() + "'");
     const std::string format = output_format(a);
     LoadedModel m = load_model(a);

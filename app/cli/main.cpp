@@ -55,9 +55,13 @@ Exit codes: 0 success; 2 bad input or usage (the message names the problem); 1 i
 int main(int argc, char** argv) {
     std::vector<std::string> args(argv + 1, argv + argc);
     try {
-        if (args.empty() || args[0] == "--help" || args[0] == "-h" || args[0] == "help") {
+        if (args.empty()) {
+            std::cerr << "moderato-cli: no command given; commands are fit and describe (see --help)\n";
+            return 2;
+        }
+        if (args[0] == "--help" || args[0] == "-h" || args[0] == "help") {
             std::cout << kHelp;
-            return args.empty() ? 2 : 0;
+            return 0;
         }
         if (args[0] == "--version") {
             std::cout << "moderato-cli " << MODERATO_VERSION << "\n";

@@ -1,6 +1,7 @@
 #include "model_options.hpp"
 
 #include <algorithm>
+#include <cctype>
 #include <cstdio>
 
 #include "moderato/derive.hpp"
@@ -16,10 +17,11 @@ std::string fmt(double v) {
     return buf;
 }
 
-std::pair<std::string, std::string> split_pair(const std::string& text, const std::string& option) {
+std::pair<std::string, std::string> split_pair(const std::string& text, const std::string& option,
+                                               const std::string& what) {
     const auto eq = text.find('=');
     if (eq == std::string::npos || eq == 0 || eq + 1 == text.size())
-        throw InputError("option --" + option + " needs COLUMN=VALUE, got '" + text + "'");
+        throw InputError("option --" + option + " needs COLUMN=" + what + ", got '" + text + "'");
     return {text.substr(0, eq), text.substr(eq + 1)};
 }
 
@@ -34,6 +36,11 @@ std::string product_sign(std::string s) {
 }
 
 }  // namespace
+
+std::set<std::string> repeatable_options() {
+    return {"missing", "categorical", "numeric", "interaction", "poly", "reference", "centre", "standardise", "log",
+            "log1p", "test"};
+}
 
 std::set<std::string> import_flags() { return {"no-header", "decimal-comma"}; }
 std::set<std::string> import_valued() { return {"data", "delimiter", "missing", "categorical", "numeric", "threads"}; }
@@ -73,11 +80,7 @@ Table load_table(const Arguments& args) {
         for (const auto& c : split_list(list, "categorical")) o.column_kinds[c] = ColumnKind::Categorical;
     for (const auto& list : args.all("numeric"))
         for (const auto& c : split_list(list, "numeric")) o.column_kinds[c] = ColumnKind::Numeric;
-    if (auto t = args.get("threads")) {
-        const long long n = parse_integer(*t, "threads");
-        if (n < 1 || n > 256) throw InputError("option --threads must be between 1 and 256");
-        o.threads = static_cast<unsigned>(n);
-    }
+    if (auto t = args.get("threads")) o.threads = static_cast<unsigned>(parse_integer(*t, "threads", 1, 256));
     return read_csv(args.required("data"), o);
 }
 
@@ -130,8 +133,8 @@ LoadedModel load_model(const Arguments& args) {
     if (auto p = args.get("predictors")) s.predictors = split_list(*p, "predictors");
     for (const auto& i : args.all("interaction")) s.interactions.push_back(split_list(i, "interaction"));
     for (const auto& item : args.all("poly")) {
-        auto [col, deg] = split_pair(item, "poly");
-        s.polynomial[col] = static_cast<int>(parse_integer(deg, "poly"));
+        auto [col, deg] = split_pair(item, "poly", "DEGREE");
+        s.polynomial[col] = static_cast<int>(parse_integer(deg, "poly", 1, 12));
     }
     if (s.predictors.empty() && s.interactions.empty() && s.polynomial.empty())
         throw InputError("no predictors: give --predictors, --interaction or --poly");
@@ -139,10 +142,12 @@ LoadedModel load_model(const Arguments& args) {
     if (auto f = args.get("family")) s.family = parse_family(*f);
     if (auto c = args.get("cluster")) s.cluster = *c;
     if (auto w = args.get("weights")) s.weights = *w;
-    if (auto se = args.get("se")) {
-        s.se = parse_se_kind(*se);
+    if (auto se_text = args.get("se")) {
+        std::string se = *se_text;
+        for (char& c : se) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+        s.se = parse_se_kind(se);
         if (!s.cluster.empty() && s.se != SeKind::Cluster)
-            throw InputError("--se " + *se + " and --cluster " + s.cluster +
+            throw InputError("--se " + se + " and --cluster " + s.cluster +
                              " ask for two kinds of standard error; choose one");
     } else if (!s.cluster.empty()) {
         s.se = SeKind::Cluster;
@@ -153,7 +158,7 @@ LoadedModel load_model(const Arguments& args) {
             throw InputError("option --level must be between 0 and 1 (e.g. 0.95), got '" + *l + "'");
     }
     for (const auto& item : args.all("reference")) {
-        auto [col, level] = split_pair(item, "reference");
+        auto [col, level] = split_pair(item, "reference", "LEVEL");
         s.reference_levels[col] = level;
     }
     for (const auto& list : args.all("test")) {
@@ -161,7 +166,7 @@ LoadedModel load_model(const Arguments& args) {
         for (const auto& term : split_list(list, "test")) terms.push_back(product_sign(term));
         s.wald_tests.push_back(terms);
     }
-    if (auto th = args.get("threads")) s.threads = static_cast<unsigned>(parse_integer(*th, "threads"));
+    if (auto th = args.get("threads")) s.threads = static_cast<unsigned>(parse_integer(*th, "threads", 1, 256));
     return m;
 }
 

@@ -17,6 +17,7 @@ std::set<std::string> import_flags();
 std::set<std::string> import_valued();
 std::set<std::string> model_flags();
 std::set<std::string> model_valued();
+std::set<std::string> repeatable_options();
 
 // Reads --data with the import options (--delimiter, --no-header, --missing,
 // --decimal-comma, --categorical, --numeric, --threads).

@@ -143,6 +143,46 @@ std::vector<std::vector<std::pair<std::string, int>>> sub_terms(
     return out;
 }
 
+// The column for a role, or an error that names the role.
+const Column& column_for(const Table& table, const std::string& name, const std::string& role) {
+    if (const Column* c = table.find(name)) return *c;
+    std::vector<std::string> names;
+    for (const auto& c : table.columns) names.push_back(c.name);
+    throw InputError(role + " column " + quoted(name) + " not found" +
+                     (table.source.empty() ? std::string() : " in " + table.source) + "; columns are: " +
+                     join(names, ", "));
+}
+
+// A hint when text looks like a number written with a decimal comma.
+std::string decimal_comma_hint(const std::string& text) {
+    bool digit = false, comma = false;
+    for (std::size_t i = 0; i < text.size(); ++i) {
+        const char c = text[i];
+        if (c >= '0' && c <= '9') digit = true;
+        else if (c == ',' && !comma && digit) comma = true;
+        else if (!(c == '-' && i == 0)) return {};
+    }
+    return comma && text.back() != ',' ? "; if the file writes decimals with a comma, read it with the decimal-comma option"
+                                       : std::string();
+}
+
+std::string not_numeric(const Table& table, const std::string& role, const Column& c, const std::string& advice) {
+    return role + " " + quoted(c.name) + " is not numeric: line " + std::to_string(c.first_text_line) +
+           (table.source.empty() ? "" : " of " + table.source) + " holds " + quoted(c.first_text) + "; " + advice +
+           decimal_comma_hint(c.first_text);
+}
+
+// A column read as categorical only because a few cells hold text, while
+// most of its values are numbers, is almost always a data-entry slip.
+bool mostly_numbers(const Column& c) {
+    if (c.kind != ColumnKind::Categorical || c.kind_forced || c.first_text_line == 0) return false;
+    std::size_t numeric = 0;
+    double v;
+    for (const auto& l : c.levels)
+        if (parse_number(l, v)) ++numeric;
+    return numeric * 2 > c.levels.size() && c.levels.size() > 2;
+}
+
 std::string where(const Table& table, std::size_t row) {
     std::string s = table.row_location(row);
     if (!table.source.empty()) s += " of " + table.source;
@@ -172,18 +212,18 @@ Design build_design(const Table& table, const ModelSpec& spec) {
     if (spec.outcome.empty()) throw InputError("no outcome given; choose the column to explain");
     if (!(spec.level > 0 && spec.level < 1))
         throw InputError("confidence level " + fmt_num(spec.level) + " is not between 0 and 1 (e.g. 0.95)");
-    const Column& outcome = table.at(spec.outcome);
+    const Column& outcome = column_for(table, spec.outcome, "outcome");
 
     // 1. Terms, with the lower-order terms of every product.
     TermBuilder tb;
     for (const auto& name : spec.predictors) {
         if (name == spec.outcome)
             throw InputError("column " + quoted(name) + " is the outcome and cannot also be a predictor");
-        table.at(name);
+        column_for(table, name, "predictor");
         tb.add({{name, 1}}, false);
     }
     for (const auto& [name, degree] : spec.polynomial) {
-        table.at(name);
+        column_for(table, name, "polynomial");
         if (degree < 1 || degree > 12)
             throw InputError("polynomial degree of " + quoted(name) + " must be between 1 and 12, got " +
                              std::to_string(degree));
@@ -193,12 +233,14 @@ Design build_design(const Table& table, const ModelSpec& spec) {
     for (const auto& inter : spec.interactions) {
         if (inter.size() < 2 || inter.size() > 3)
             throw InputError("an interaction needs 2 or 3 columns, got " + std::to_string(inter.size()) + " (" +
-                             join(inter, ", ") + ")");
+                             join(inter, ", ") + ")" +
+                             (inter.size() == 1 ? "; a single column is a main effect: list it among the predictors"
+                                                : std::string()));
         std::vector<std::pair<std::string, int>> factors;
         for (const auto& name : inter) {
             if (name == spec.outcome)
                 throw InputError("column " + quoted(name) + " is the outcome and cannot also be a predictor");
-            table.at(name);
+            column_for(table, name, "interaction");
             auto it = std::find_if(factors.begin(), factors.end(), [&](auto& f) { return f.first == name; });
             if (it == factors.end()) factors.emplace_back(name, 1);
             else ++it->second;
@@ -221,10 +263,16 @@ Design build_design(const Table& table, const ModelSpec& spec) {
 
     // 2. Which rows are complete.
     if (outcome.kind != ColumnKind::Numeric)
-        throw InputError("outcome " + quoted(spec.outcome) + " is not numeric: line " +
-                         std::to_string(outcome.first_text_line) +
-                         (table.source.empty() ? "" : " of " + table.source) + " holds " +
-                         quoted(outcome.first_text) + "; choose a numeric column or fix that cell");
+        throw InputError(not_numeric(table, "outcome", outcome, "choose a numeric column or fix that cell"));
+    for (const auto& t : tb.terms)
+        for (const auto& f : t.factors) {
+            const Column& c = table.at(f.first);
+            if (mostly_numbers(c))
+                throw InputError(not_numeric(table, "predictor", c,
+                                             "fix that cell, add " + quoted(c.first_text) +
+                                                 " to the missing-value tokens, or declare " + quoted(c.name) +
+                                                 " categorical to dummy-code it"));
+        }
     std::vector<std::string> used{spec.outcome};
     auto use = [&](const std::string& name) {
         if (std::find(used.begin(), used.end(), name) == used.end()) used.push_back(name);
@@ -234,18 +282,16 @@ Design build_design(const Table& table, const ModelSpec& spec) {
     const Column* weights = nullptr;
     const Column* cluster = nullptr;
     if (!spec.weights.empty()) {
-        weights = &table.at(spec.weights);
+        weights = &column_for(table, spec.weights, "weights");
         if (weights->kind != ColumnKind::Numeric)
-            throw InputError("weights " + quoted(spec.weights) + " is not numeric: line " +
-                             std::to_string(weights->first_text_line) +
-                             (table.source.empty() ? "" : " of " + table.source) + " holds " +
-                             quoted(weights->first_text));
+            throw InputError(not_numeric(table, "weights", *weights,
+                                         "choose a numeric weights column or fix that cell"));
         use(spec.weights);
     }
     if (spec.se == SeKind::Cluster && spec.cluster.empty())
         throw InputError("cluster-robust standard errors need a cluster column; name one with --cluster");
     if (!spec.cluster.empty()) {
-        cluster = &table.at(spec.cluster);
+        cluster = &column_for(table, spec.cluster, "cluster");
         use(spec.cluster);
     }
 
@@ -302,24 +348,25 @@ Design build_design(const Table& table, const ModelSpec& spec) {
             if (levels.size() < 2)
                 throw InputError("predictor " + quoted(f.first) + " is constant (every used row holds " +
                                  quoted(levels.front()) + "); it has no contrast to estimate");
-            std::vector<int> code_to_level(c.levels.size(), -1);
-            for (std::size_t i = 0; i < c.levels.size(); ++i) {
-                auto it = std::find(levels.begin(), levels.end(), c.levels[i]);
-                if (it != levels.end()) code_to_level[i] = static_cast<int>(it - levels.begin());
-            }
             // reference first, the others in sorted order
             std::vector<std::string> ordered{ref};
             for (const auto& l : levels)
                 if (l != ref) ordered.push_back(l);
+            std::vector<int> code_to_level(c.levels.size(), -1);
+            for (std::size_t i = 0; i < c.levels.size(); ++i) {
+                auto it = std::find(ordered.begin(), ordered.end(), c.levels[i]);
+                if (it != ordered.end()) code_to_level[i] = static_cast<int>(it - ordered.begin());
+            }
             d.categoricals.push_back({f.first, ordered, ref});
             cat_map[f.first] = {ordered, code_to_level};
         }
     for (const auto& [col, lvl] : spec.reference_levels)
         if (!cat_map.count(col)) {
-            const Column& c = table.at(col);
+            const Column& c = column_for(table, col, "reference-level");
             if (c.kind != ColumnKind::Categorical)
                 throw InputError("reference level given for " + quoted(col) +
                                  ", which is numeric; declare it categorical to dummy-code it");
+            throw InputError("reference level given for " + quoted(col) + ", which is not in the model");
         }
 
     // 4. Design columns: the intercept, then each term expanded over the
@@ -402,7 +449,7 @@ Design build_design(const Table& table, const ModelSpec& spec) {
             const double w = weights->numbers[rows[i]];
             if (!(w > 0))
                 throw InputError("weights " + quoted(spec.weights) + " must be positive: " + where(table, rows[i]) +
-                                 " holds " + fmt_num(w));
+                                 " holds " + fmt_num(w) + "; fix that row or choose another weights column");
             d.weights[static_cast<Eigen::Index>(i)] = w;
         }
     }
@@ -448,9 +495,13 @@ Design build_design(const Table& table, const ModelSpec& spec) {
                                  fmt_num(col[0]) +
                                  "); it cannot be estimated alongside the intercept — drop it or use --no-intercept");
         }
-    if (n <= p)
-        throw InputError("too few rows: " + std::to_string(n) + " complete rows for " + std::to_string(p) +
-                         " coefficients; the model needs more rows than coefficients");
+    if (n <= p) {
+        std::vector<std::string> labels;
+        for (const auto& c : d.columns) labels.push_back(c.label);
+        throw InputError("too few rows: " + (table.source.empty() ? std::string() : table.source + " has ") +
+                         std::to_string(n) + " complete rows for " + std::to_string(p) + " coefficients (" +
+                         join(labels, ", ") + "); the model needs more rows than coefficients — add rows or drop terms");
+    }
 
     for (const auto& t : d.terms)
         for (const auto& f : t.factors) {

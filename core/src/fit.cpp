@@ -189,19 +189,49 @@ int FitResult::index_of(const std::string& term) const {
     return -1;
 }
 
+namespace {
+// "z×x" and "x×z" name the same product.
+std::string canonical(const std::string& label) {
+    std::vector<std::string> parts;
+    const std::string sep = "×";
+    std::size_t start = 0;
+    while (true) {
+        const auto at = label.find(sep, start);
+        parts.push_back(label.substr(start, at == std::string::npos ? std::string::npos : at - start));
+        if (at == std::string::npos) break;
+        start = at + sep.size();
+    }
+    std::sort(parts.begin(), parts.end());
+    return join(parts, sep);
+}
+}  // namespace
+
 WaldTest wald_test(const FitResult& fit, const std::vector<std::string>& terms) {
     if (terms.empty()) throw InputError("a Wald test needs at least one term");
     std::vector<int> cols;
+    auto add = [&](int j, const std::string& name) {
+        if (fit.coefficients[static_cast<std::size_t>(j)].aliased)
+            throw InputError("term " + quoted(name) + " is aliased (not estimable) and cannot be tested");
+        if (std::find(cols.begin(), cols.end(), j) == cols.end()) cols.push_back(j);
+    };
     for (const auto& t : terms) {
-        const int j = fit.index_of(t);
-        if (j < 0) {
+        const std::string key = canonical(t);
+        bool found = false;
+        for (std::size_t j = 0; j < fit.coefficients.size() && !found; ++j)
+            if (canonical(fit.coefficients[j].term) == key) {
+                add(static_cast<int>(j), t);
+                found = true;
+            }
+        for (const auto& [label, columns] : fit.terms)
+            if (!found && canonical(label) == key) {
+                for (int j : columns) add(j, t);
+                found = true;
+            }
+        if (!found) {
             std::vector<std::string> names;
             for (const auto& c : fit.coefficients) names.push_back(c.term);
             throw InputError("term " + quoted(t) + " is not in the model; terms are: " + join(names, ", "));
         }
-        if (fit.coefficients[static_cast<std::size_t>(j)].aliased)
-            throw InputError("term " + quoted(t) + " is aliased (not estimable) and cannot be tested");
-        if (std::find(cols.begin(), cols.end(), j) == cols.end()) cols.push_back(j);
     }
     return wald_on_columns(fit, cols, terms);
 }
@@ -224,6 +254,7 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
     f.exclusions = d.exclusions;
     f.notes = d.notes;
     f.n_clusters = d.n_clusters;
+    for (const auto& t : d.terms) f.terms.emplace_back(t.label, t.columns);
 
     LeastSquaresOptions lso;
     lso.threads = threads;

@@ -132,7 +132,8 @@ TEST(Design, ErrorsNameTheColumnAndLine) {
         build_design(t, s);
         FAIL() << "negative weight accepted";
     } catch (const InputError& e) {
-        EXPECT_STREQ(e.what(), "weights 'w' must be positive: line 3 of test.csv holds -2");
+        EXPECT_STREQ(e.what(), "weights 'w' must be positive: line 3 of test.csv holds -2; fix that row or choose another "
+                               "weights column");
     }
     s.weights.clear();
     s.outcome = "b";

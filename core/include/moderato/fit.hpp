@@ -78,6 +78,9 @@ struct FitResult {
     Eigen::VectorXd fitted;        // linear predictor scale (probabilities for logistic)
     Eigen::VectorXd residuals;     // y - fitted (response residuals)
 
+    // Model terms before dummy expansion ("x×region") and their columns.
+    std::vector<std::pair<std::string, std::vector<int>>> terms;
+
     int index_of(const std::string& term) const;  // -1 if absent
 };
 
@@ -95,7 +98,9 @@ FitResult fit_model(const Table& table, const ModelSpec& spec, const FitOptions&
 FitResult fit_design(const Design& design, const ModelSpec& spec, const FitOptions& options = {});
 
 // Joint Wald test that the named coefficients are all zero, with the fit's
-// covariance. InputError for an unknown or aliased term.
+// covariance. A name is a coefficient label or a term label (all of a
+// categorical term's columns), with the factors of a product in any order.
+// InputError for an unknown or aliased term.
 WaldTest wald_test(const FitResult& fit, const std::vector<std::string>& terms);
 
 }  // namespace moderato

@@ -31,6 +31,7 @@ struct Column {
     // cell (1-based physical line of the file, its text) for error messages.
     std::size_t first_text_line = 0;
     std::string first_text;
+    bool kind_forced = false;           // the kind was set by the user, not inferred
 
     std::size_t size() const { return kind == ColumnKind::Numeric ? numbers.size() : codes.size(); }
     bool is_missing(std::size_t row) const {

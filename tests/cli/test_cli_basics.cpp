@@ -1,0 +1,234 @@
+// Positive checks of the moderato-cli process: --version, --help, and
+// `fit --format json|text` on small invented data in tests/data/ok/ whose
+// answers are known independently:
+//   exact_interaction.csv  12 rows with y = 1 + 2x + 3z − 0.5·x·z exactly
+//                          (closed form: exact data, so OLS reproduces the
+//                          coefficients and R² = 1);
+//   exact_interaction_missing.csv  the same 12 rows plus one row missing x
+//                          and one row missing z (so 2 rows are excluded);
+//   categorical.csv        y = 1 + 2x + 5·[g=b] − 3·[g=c] exactly;
+//   collinear.csv          y = 1 + 2x + 3z exactly, with z2 = 2z;
+//   slope_five_fourteenths.csv  x = 0,1,3 (twice), y = 0,0,1 (twice):
+//                          slope Sxy/Sxx = (5/3)/(14/3) = 5/14, intercept
+//                          ȳ − slope·x̄ = 1/3 − (5/14)(4/3) = −1/7 (closed form).
+// The JSON contract (names, 17 significant digits, term labels) is the one in
+// ../shared/design/ARCHITECTURE.md, "The headless CLI".
+#include <gtest/gtest.h>
+
+#include <cctype>
+#include <cmath>
+#include <filesystem>
+#include <nlohmann/json.hpp>
+#include <string>
+#include <vector>
+
+#include "cli_runner.hpp"
+
+namespace {
+
+using moderato::test::RunOptions;
+using moderato::test::RunResult;
+using moderato::test::run_cli;
+using nlohmann::json;
+
+constexpr double kExact = 1e-9;  // tolerance for closed-form values on exact data
+
+RunResult run_in_data(const std::vector<std::string>& args) {
+    RunOptions o;
+    o.cwd = MODERATO_TEST_DATA_DIR;
+    return run_cli(args, o);
+}
+
+// Runs `fit --format json` and parses stdout; fails the test on a non-zero exit.
+json fit_json(std::vector<std::string> args) {
+    args.insert(args.begin(), "fit");
+    args.push_back("--format");
+    args.push_back("json");
+    const RunResult r = run_in_data(args);
+    EXPECT_TRUE(r.exited && r.exit_code == 0) << r.describe();
+    EXPECT_EQ(r.err, "");
+    try {
+        return json::parse(r.out);
+    } catch (const std::exception& e) {
+        ADD_FAILURE() << "stdout is not JSON: " << e.what() << "\n" << r.out;
+        return json::object();
+    }
+}
+
+std::vector<std::string> terms_of(const json& j) {
+    std::vector<std::string> t;
+    for (const auto& c : j.at("coefficients")) t.push_back(c.at("term").get<std::string>());
+    return t;
+}
+
+double estimate_of(const json& j, const std::string& term) {
+    for (const auto& c : j.at("coefficients"))
+        if (c.at("term") == term) return c.at("estimate").get<double>();
+    ADD_FAILURE() << "no term " << term << " in " << j.at("coefficients").dump();
+    return NAN;
+}
+
+// Significant digits of a JSON number as written: digits of the mantissa
+// without sign, leading zeros and the exponent.
+int significant_digits(std::string number) {
+    if (auto e = number.find_first_of("eE"); e != std::string::npos) number.resize(e);
+    std::string digits;
+    for (char c : number)
+        if (std::isdigit(static_cast<unsigned char>(c))) digits += c;
+    const auto first = digits.find_first_not_of('0');
+    return first == std::string::npos ? 0 : static_cast<int>(digits.size() - first);
+}
+
+// The raw text of the "estimate" written for `term` in the JSON output
+// (the writer puts "estimate" right after "term" in each coefficient).
+std::string raw_estimate(const std::string& out, const std::string& term) {
+    const std::string key = "\"term\": \"" + term + "\"";
+    const auto at = out.find(key);
+    if (at == std::string::npos) return "";
+    const auto est = out.find("\"estimate\":", at);
+    if (est == std::string::npos) return "";
+    const auto b = out.find_first_not_of(" \n", est + 11);
+    if (b == std::string::npos) return "";
+    const auto e = out.find_first_of(",\n}", b);
+    return out.substr(b, e == std::string::npos ? std::string::npos : e - b);
+}
+
+TEST(CliBasics, VersionPrintsNameAndProjectVersion) {
+    const RunResult r = run_cli({"--version"});
+    ASSERT_TRUE(r.exited) << r.describe();
+    EXPECT_EQ(r.exit_code, 0);
+    // MODERATO_VERSION is the project(VERSION ...) of the top CMakeLists.txt.
+    EXPECT_EQ(r.out, std::string("moderato-cli ") + MODERATO_VERSION + "\n");
+    EXPECT_EQ(r.err, "");
+}
+
+TEST(CliBasics, HelpExitsZeroAndDescribesFit) {
+    const RunResult r = run_cli({"--help"});
+    ASSERT_TRUE(r.exited) << r.describe();
+    EXPECT_EQ(r.exit_code, 0);
+    EXPECT_NE(r.out.find("fit"), std::string::npos);
+    EXPECT_NE(r.out.find("--outcome"), std::string::npos);
+    EXPECT_EQ(r.err, "");
+}
+
+TEST(CliBasics, FitJsonHasEveryContractKeyAndExactCoefficients) {
+    const json j = fit_json({"--data", "ok/exact_interaction.csv", "--outcome", "y", "--interaction", "x,z"});
+    ASSERT_TRUE(j.is_object());
+    for (const char* key : {"n", "n_excluded", "family", "se_type", "coefficients", "covariance", "aliased",
+                            "df_residual", "r_squared", "adj_r_squared", "residual_sd", "f_statistic", "f_p_value",
+                            "log_likelihood", "aic", "bic"})
+        EXPECT_TRUE(j.contains(key)) << "missing key " << key;
+    ASSERT_TRUE(j.contains("coefficients"));
+    for (const auto& c : j.at("coefficients"))
+        for (const char* key : {"term", "estimate", "std_error", "statistic", "p_value", "ci_lower", "ci_upper"})
+            EXPECT_TRUE(c.contains(key)) << "coefficient lacks " << key << ": " << c.dump();
+
+    // Term labels (ARCHITECTURE.md): intercept, columns, product with U+00D7.
+    EXPECT_EQ(terms_of(j), (std::vector<std::string>{"intercept", "x", "z", "x\u00D7z"}));
+    // Closed form: exact data y = 1 + 2x + 3z − 0.5xz.
+    EXPECT_NEAR(estimate_of(j, "intercept"), 1.0, kExact);
+    EXPECT_NEAR(estimate_of(j, "x"), 2.0, kExact);
+    EXPECT_NEAR(estimate_of(j, "z"), 3.0, kExact);
+    EXPECT_NEAR(estimate_of(j, "x\u00D7z"), -0.5, kExact);
+    EXPECT_EQ(j.at("n"), 12);          // 12 rows in the file
+    EXPECT_EQ(j.at("n_excluded"), 0);  // none missing
+    EXPECT_EQ(j.at("df_residual"), 8);  // n − p = 12 − 4
+    EXPECT_EQ(j.at("family"), "linear");
+    EXPECT_EQ(j.at("se_type"), "classical");
+    EXPECT_NEAR(j.at("r_squared").get<double>(), 1.0, kExact);  // exact fit
+    EXPECT_TRUE(j.at("aliased").is_array() && j.at("aliased").empty());
+    // Covariance: p × p, same order as the coefficients, symmetric.
+    const auto& v = j.at("covariance");
+    ASSERT_EQ(v.size(), 4u);
+    for (std::size_t a = 0; a < 4; ++a) {
+        ASSERT_EQ(v[a].size(), 4u);
+        for (std::size_t b = 0; b < 4; ++b) EXPECT_EQ(v[a][b], v[b][a]);
+    }
+}
+
+TEST(CliBasics, FitJsonWritesSeventeenSignificantDigits) {
+    const RunResult r = run_in_data({"fit", "--format", "json", "--data", "ok/slope_five_fourteenths.csv",
+                                     "--outcome", "y", "--predictors", "x"});
+    ASSERT_TRUE(r.exited && r.exit_code == 0) << r.describe();
+    const json j = json::parse(r.out);
+    // Closed form: slope 5/14, intercept −1/7 (see the top of this file).
+    EXPECT_NEAR(estimate_of(j, "x"), 5.0 / 14.0, kExact);
+    EXPECT_NEAR(estimate_of(j, "intercept"), -1.0 / 7.0, kExact);
+    // Neither value is a short decimal, so all 17 significant digits are written.
+    const std::string slope = raw_estimate(r.out, "x");
+    const std::string intercept = raw_estimate(r.out, "intercept");
+    EXPECT_EQ(significant_digits(slope), 17) << "raw text: " << slope;
+    EXPECT_EQ(significant_digits(intercept), 17) << "raw text: " << intercept;
+}
+
+TEST(CliBasics, FitTextNamesEveryTerm) {
+    const RunResult r = run_in_data({"fit", "--format", "text", "--data", "ok/exact_interaction.csv", "--outcome",
+                                     "y", "--interaction", "x,z"});
+    ASSERT_TRUE(r.exited && r.exit_code == 0) << r.describe();
+    EXPECT_EQ(r.err, "");
+    for (const char* term : {"intercept", "x\u00D7z"}) EXPECT_NE(r.out.find(term), std::string::npos) << term;
+    // x and z alone: as a term at the start of a table line.
+    EXPECT_NE(r.out.find("\nx "), std::string::npos) << r.out;
+    EXPECT_NE(r.out.find("\nz "), std::string::npos) << r.out;
+}
+
+TEST(CliBasics, MissingCellsAreCountedAsExcludedRows) {
+    // The file: the 12 exact rows, plus one row with x = NA and one with z empty.
+    const json j = fit_json({"--data", "ok/exact_interaction_missing.csv", "--outcome", "y", "--interaction", "x,z"});
+    ASSERT_TRUE(j.is_object() && j.contains("n"));
+    EXPECT_EQ(j.at("n"), 12);
+    EXPECT_EQ(j.at("n_excluded"), 2);
+    // The excluded rows do not pull the fit off the exact plane (closed form).
+    EXPECT_NEAR(estimate_of(j, "x\u00D7z"), -0.5, kExact);
+}
+
+TEST(CliBasics, CategoricalPredictorUsesFirstSortedLevelAsReference) {
+    // The file lists levels in the order b, a, c; the reference is the first sorted: a.
+    const json j = fit_json({"--data", "ok/categorical.csv", "--outcome", "y", "--predictors", "x,g"});
+    ASSERT_TRUE(j.is_object() && j.contains("coefficients"));
+    EXPECT_EQ(terms_of(j), (std::vector<std::string>{"intercept", "x", "g=b", "g=c"}));
+    // Closed form: y = 1 + 2x + 5[g=b] − 3[g=c].
+    EXPECT_NEAR(estimate_of(j, "intercept"), 1.0, kExact);
+    EXPECT_NEAR(estimate_of(j, "x"), 2.0, kExact);
+    EXPECT_NEAR(estimate_of(j, "g=b"), 5.0, kExact);
+    EXPECT_NEAR(estimate_of(j, "g=c"), -3.0, kExact);
+}
+
+TEST(CliBasics, ReferenceOptionChangesTheReferenceLevel) {
+    const json j =
+        fit_json({"--data", "ok/categorical.csv", "--outcome", "y", "--predictors", "x,g", "--reference", "g=c"});
+    ASSERT_TRUE(j.is_object() && j.contains("coefficients"));
+    EXPECT_EQ(terms_of(j), (std::vector<std::string>{"intercept", "x", "g=a", "g=b"}));
+    // Closed form: the same plane written with reference c:
+    // y = −2 + 2x + 3[g=a] + 8[g=b].
+    EXPECT_NEAR(estimate_of(j, "intercept"), -2.0, kExact);
+    EXPECT_NEAR(estimate_of(j, "x"), 2.0, kExact);
+    EXPECT_NEAR(estimate_of(j, "g=a"), 3.0, kExact);
+    EXPECT_NEAR(estimate_of(j, "g=b"), 8.0, kExact);
+}
+
+TEST(CliBasics, CollinearColumnIsReportedAsAliasedNotDropped) {
+    const json j = fit_json({"--data", "ok/collinear.csv", "--outcome", "y", "--predictors", "x,z,z2"});
+    ASSERT_TRUE(j.is_object() && j.contains("coefficients"));
+    // z2 = 2z exactly. Common practice (R's lm with pivoting): the later of two
+    // collinear columns is the aliased one; it stays listed, with no estimate.
+    EXPECT_EQ(j.at("aliased"), json::array({"z2"}));
+    EXPECT_EQ(terms_of(j), (std::vector<std::string>{"intercept", "x", "z", "z2"}));
+    for (const auto& c : j.at("coefficients"))
+        if (c.at("term") == "z2") {
+            EXPECT_TRUE(c.at("estimate").is_null()) << c.dump();
+            EXPECT_TRUE(c.at("std_error").is_null()) << c.dump();
+        }
+    // Closed form: exact data y = 1 + 2x + 3z.
+    EXPECT_NEAR(estimate_of(j, "intercept"), 1.0, kExact);
+    EXPECT_NEAR(estimate_of(j, "x"), 2.0, kExact);
+    EXPECT_NEAR(estimate_of(j, "z"), 3.0, kExact);
+    EXPECT_EQ(j.at("df_residual"), 9);  // 12 rows − rank 3
+    // The user is told, not only the JSON reader.
+    bool warned = false;
+    for (const auto& w : j.value("warnings", json::array()))
+        warned = warned || w.get<std::string>().find("z2") != std::string::npos;
+    EXPECT_TRUE(warned) << j.value("warnings", json::array()).dump();
+}
+
+}  // namespace
