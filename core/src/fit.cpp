@@ -38,6 +38,12 @@ double logistic_loglik(const Design& d, const Eigen::VectorXd& eta) {
     return static_cast<double>(ll);
 }
 
+Eigen::MatrixXd columns_of(const Eigen::MatrixXd& X, const std::vector<int>& cols) {
+    Eigen::MatrixXd out(X.rows(), static_cast<Eigen::Index>(cols.size()));
+    for (std::size_t c = 0; c < cols.size(); ++c) out.col(static_cast<Eigen::Index>(c)) = X.col(cols[c]);
+    return out;
+}
+
 // Full p x p covariance from the kept block (NaN rows/columns for aliased).
 Eigen::MatrixXd expand(const Eigen::MatrixXd& Vk, const std::vector<int>& kept, Eigen::Index p) {
     Eigen::MatrixXd V = Eigen::MatrixXd::Constant(p, p, kNaN);
@@ -391,18 +397,28 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
             if (std::find(products.begin(), products.end(), static_cast<int>(j)) == products.end())
                 reduced_cols.push_back(static_cast<int>(j));
         for (int j : products_kept) cmp.dropped_terms.push_back(d.columns[static_cast<std::size_t>(j)].label);
-        Eigen::MatrixXd Xr(n, static_cast<Eigen::Index>(reduced_cols.size()));
-        for (std::size_t c = 0; c < reduced_cols.size(); ++c) Xr.col(static_cast<Eigen::Index>(c)) = d.X.col(reduced_cols[c]);
         if (!logistic) {
-            const auto red = least_squares(Xr, d.y, d.weights, lso);
-            cmp.r_squared_reduced = 1.0 - red.rss / f.tss;
-            cmp.r_squared_change = f.r_squared - cmp.r_squared_reduced;
-            cmp.df1 = static_cast<double>(red.kept.size() < kept.size() ? kept.size() - red.kept.size() : 0);
+            // With full rank and the product columns last, the extra sum of
+            // squares is read off the factorisation already made (sequential
+            // sums of squares); otherwise refit without the products.
+            const bool trailing = ls.aliased.empty() && products.front() == static_cast<int>(reduced_cols.size()) &&
+                                  products.back() == static_cast<int>(p - 1);
+            double extra_ss = 0;
+            if (trailing) {
+                for (int j : products) extra_ss += ls.qty[j] * ls.qty[j];
+                cmp.df1 = static_cast<double>(products.size());
+            } else {
+                const auto red = least_squares(columns_of(d.X, reduced_cols), d.y, d.weights, lso);
+                extra_ss = red.rss - f.rss;
+                cmp.df1 = static_cast<double>(red.kept.size() < kept.size() ? kept.size() - red.kept.size() : 0);
+            }
+            cmp.r_squared_change = extra_ss / f.tss;
+            cmp.r_squared_reduced = f.r_squared - cmp.r_squared_change;
             cmp.df2 = f.df_residual;
-            cmp.f_statistic = ((red.rss - f.rss) / cmp.df1) / (f.rss / f.df_residual);
+            cmp.f_statistic = (extra_ss / cmp.df1) / (f.rss / f.df_residual);
             cmp.p_value = dist::upper_p_f(cmp.f_statistic, cmp.df1, cmp.df2);
         } else {
-            auto red = fit_logistic(d, Xr, options.max_iterations, lso);
+            auto red = fit_logistic(d, columns_of(d.X, reduced_cols), options.max_iterations, lso);
             cmp.df1 = static_cast<double>(kept.size() - red.factor.kept.size());
             cmp.lr_statistic = 2.0 * (f.log_likelihood - red.loglik);
             cmp.lr_p_value = dist::upper_p_chi2(cmp.lr_statistic, cmp.df1);

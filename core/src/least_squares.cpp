@@ -93,6 +93,8 @@ LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd
         Raug = padded;
     }
 
+    out.qty = Raug.col(p).head(p).cast<double>();
+
     // 2. Numerical rank from a pivoted QR of the small factor.
     MatL Rx = Raug.topLeftCorner(p, p);
     Eigen::ColPivHouseholderQR<MatL> piv(Rx);

@@ -54,7 +54,7 @@ void parallel_for(std::size_t count, unsigned threads, Fn&& fn) {
 // reduce(block, result) in block order.
 template <class Result, class Map, class Reduce>
 void map_reduce_ordered(std::size_t count, unsigned threads, Map&& map, Reduce&& reduce) {
-    const std::size_t wave = std::max<std::size_t>(2 * resolve_threads(threads), 1);
+    const std::size_t wave = std::max<std::size_t>(8 * resolve_threads(threads), 1);
     std::vector<std::optional<Result>> results;
     for (std::size_t start = 0; start < count; start += wave) {
         const std::size_t len = std::min(wave, count - start);

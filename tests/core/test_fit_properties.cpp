@@ -258,3 +258,27 @@ TEST(FitProperties, FewClustersWarn) {
     ASSERT_FALSE(f.warnings.empty());
     EXPECT_EQ(f.warnings[0], "only 25 clusters: cluster-robust standard errors are unreliable with fewer than 30");
 }
+
+// Closed form (definition of the R²-change test): F = ((RSS_r - RSS_f) / q) /
+// (RSS_f / df_f) from two separate fits; checked both where the product
+// columns come last (read off the factorisation) and where a cubic term
+// follows them (refit).
+TEST(FitProperties, RSquaredChangeTestMatchesTwoSeparateFits) {
+    const Sim s = simulate(350, 21);
+    const Table t = table_of(s);
+    for (int degree : {1, 3}) {
+        ModelSpec full = base_spec();
+        full.polynomial["z"] = degree;
+        ModelSpec reduced;
+        reduced.outcome = "y";
+        reduced.predictors = {"z", "x", "g"};
+        reduced.polynomial["z"] = degree;
+        const FitResult a = fit_model(t, full);
+        const FitResult b = fit_model(t, reduced);
+        ASSERT_TRUE(a.comparison.has_value());
+        const double F = ((b.rss - a.rss) / 1.0) / (a.rss / a.df_residual);
+        EXPECT_LT(rel(a.comparison->f_statistic, F), 1e-9) << "degree " << degree;
+        EXPECT_LT(rel(a.comparison->r_squared_reduced, b.r_squared), 1e-12) << "degree " << degree;
+        EXPECT_EQ(a.comparison->df1, 1.0);
+    }
+}

@@ -23,6 +23,10 @@ struct LeastSquaresResult {
     Eigen::MatrixXd inverse_factor;
     Eigen::VectorXd residuals;      // y - X b (unweighted)
     double rss = 0;                 // sum of w e^2
+    // Q'y of the unpivoted factorisation of [X | y] in design column order:
+    // qty[j]^2 is the drop in RSS from adding column j after columns 0..j-1
+    // (sequential sums of squares), valid while the design has full rank.
+    Eigen::VectorXd qty;
     bool extended_precision = false;
 };
 
