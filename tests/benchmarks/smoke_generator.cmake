@@ -1,0 +1,33 @@
+# Smoke test of make_bench_table: two runs with the same seed and size give
+# identical files, a header plus the rows asked for, 12 fields a line.
+# Invoked by ctest as: cmake -DGENERATOR=... -DWORK_DIR=... -P smoke_generator.cmake
+file(REMOVE_RECURSE "${WORK_DIR}")
+file(MAKE_DIRECTORY "${WORK_DIR}")
+foreach(name a b)
+  execute_process(COMMAND "${GENERATOR}" --rows 1000 --out "${WORK_DIR}/${name}.csv"
+                  RESULT_VARIABLE rc)
+  if(NOT rc EQUAL 0)
+    message(FATAL_ERROR "make_bench_table exited with ${rc}")
+  endif()
+endforeach()
+execute_process(COMMAND ${CMAKE_COMMAND} -E compare_files "${WORK_DIR}/a.csv" "${WORK_DIR}/b.csv"
+                RESULT_VARIABLE same)
+if(NOT same EQUAL 0)
+  message(FATAL_ERROR "two runs with the same seed wrote different files")
+endif()
+file(STRINGS "${WORK_DIR}/a.csv" lines)
+list(LENGTH lines count)
+if(NOT count EQUAL 1001)
+  message(FATAL_ERROR "expected 1001 lines (header + 1000 rows), found ${count}")
+endif()
+list(GET lines 0 header)
+if(NOT header STREQUAL "y,x1,x2,x3,treated,c1,c2,c3,c4,c5,cluster_id,region")
+  message(FATAL_ERROR "unexpected header: ${header}")
+endif()
+foreach(line IN LISTS lines)
+  string(REGEX MATCHALL "," commas "${line}")
+  list(LENGTH commas n)
+  if(NOT n EQUAL 11)
+    message(FATAL_ERROR "line with ${n} commas (expected 11): ${line}")
+  endif()
+endforeach()
