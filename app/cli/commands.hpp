@@ -9,5 +9,7 @@ namespace moderato::cli {
 
 int run_fit(const std::vector<std::string>& args);
 int run_describe(const std::vector<std::string>& args);
+int run_probe(const std::vector<std::string>& args);
+int run_power(const std::vector<std::string>& args);
 
 }  // namespace moderato::cli

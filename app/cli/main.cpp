@@ -76,7 +76,10 @@ int main(int argc, char** argv) {
             }
         if (command == "fit") return moderato::cli::run_fit(rest);
         if (command == "describe") return moderato::cli::run_describe(rest);
-        std::cerr << "moderato-cli: unknown command '" << command << "'; commands are fit and describe (see --help)\n";
+        if (command == "probe") return moderato::cli::run_probe(rest);
+        if (command == "power") return moderato::cli::run_power(rest);
+        std::cerr << "moderato-cli: unknown command '" << command
+                  << "'; commands are fit, probe, power and describe (see --help)\n";
         return 2;
     } catch (const moderato::InputError& e) {
         std::cerr << "moderato-cli: " << e.what() << "\n";

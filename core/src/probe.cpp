@@ -243,6 +243,18 @@ EffectFunction effect_function(const Design& d, const FitResult& fit, const std:
     return EffectFunction(linear_form(d, moderator, focal, values), fit.beta, fit.covariance);
 }
 
+Eigen::VectorXd design_row(const Design& d, const std::map<std::string, double>& values) {
+    return linear_form(d, "", "", values).front();
+}
+
+std::map<std::string, double> typical_values(const Design& d, const std::map<std::string, double>& overrides) {
+    std::map<std::string, double> values;
+    for (const auto& [col, s] : d.summaries) values[col] = s.mean;
+    for (const auto& c : d.categoricals) values[c.column] = 0;
+    for (const auto& [col, v] : overrides) values[col] = v;
+    return values;
+}
+
 EffectFunction contrast_function(const Design& d, const FitResult& fit, const std::string& column, double from,
                                  double to, const std::string& free, std::map<std::string, double> values) {
     values[column] = from;
@@ -353,9 +365,7 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     r.focal_range = {fs.min, fs.max};
 
     // Everything else held at its mean (numeric) or reference level.
-    std::map<std::string, double> values;
-    for (const auto& [col, s] : d.summaries) values[col] = s.mean;
-    for (const auto& c : d.categoricals) values[c.column] = 0;
+    std::map<std::string, double> values = typical_values(d);
     if (!std::isnan(spec.focal_value)) values[spec.focal] = spec.focal_value;
     if (!spec.second_moderator.empty()) {
         if (!std::isnan(spec.second_value)) values[spec.second_moderator] = spec.second_value;

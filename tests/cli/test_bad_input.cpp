@@ -329,7 +329,7 @@ const std::vector<BadCase> kCases = {
     {"unknown_subcommand",
      {"frobnicate", "--data", "ok/exact_interaction.csv"},
      "ok/exact_interaction.csv",
-     "moderato-cli: unknown command 'frobnicate'; commands are fit and describe (see --help)"},
+     "moderato-cli: unknown command 'frobnicate'; commands are fit, probe, power and describe (see --help)"},
     {"no_command",  // PROPOSED: today the help text goes to stdout with exit 2 and stderr stays empty
      {},
      "",

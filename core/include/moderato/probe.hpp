@@ -109,6 +109,15 @@ ProbeResult probe(const Design& design, const FitResult& fit, const ProbeSpec& s
 EffectFunction effect_function(const Design& design, const FitResult& fit, const std::string& focal,
                                const std::string& moderator, const std::map<std::string, double>& values);
 
+// The design row x(values) with prediction x' b: every column evaluated at
+// `values` (numeric columns: value; categorical columns: level index,
+// reference = 0; absent columns count as 0).
+Eigen::VectorXd design_row(const Design& design, const std::map<std::string, double>& values);
+
+// `values` with every numeric model column at its mean over the used rows and
+// every categorical one at its reference level, then `overrides` applied.
+std::map<std::string, double> typical_values(const Design& design, const std::map<std::string, double>& overrides = {});
+
 // The difference in predicted outcome between two values of `column` (for a
 // categorical column, level indices; reference = 0) as a function of the
 // numeric column `free`, others held at `values`. For two groups this is the
