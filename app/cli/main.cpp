@@ -16,6 +16,8 @@ const char* kHelp = R"(moderato-cli — moderated effects in regression, without
 
 Usage:
   moderato-cli fit --data FILE --outcome COL --predictors A,B [options]
+  moderato-cli probe [fit options] --focal A --moderator B [probe options]
+  moderato-cli power --predictors K --f2 X (--n N | --power P) [power options]
   moderato-cli describe --data FILE [import options]
   moderato-cli --help | --version
 
@@ -38,7 +40,22 @@ fit: estimates a linear or logistic model with product (interaction) terms.
   --test TERM,TERM         joint Wald test of these terms (write products as A*B); repeatable
   --format json|text       output (default text)
 
-Import options (fit and describe):
+probe: conditional effects of the focal predictor across the moderator, the
+region of significance (Johnson–Neyman), the simultaneous band and crossover points.
+  --focal A                the predictor whose effect is probed
+  --moderator B            the column it depends on
+  --at v1,v2,...           moderator values (default: mean - SD, mean, mean + SD; 0 and 1 for a 0/1 moderator)
+  --at-percentiles 10,50,90   moderator values at these percentiles of the data
+  --second-moderator W[=VALUE]   hold a second moderator at VALUE (default its mean)
+  --focal-at VALUE         where a squared focal predictor's effect is taken (default its mean)
+  --scale link|response    logistic models: log-odds (link) or probability (response) scale
+  --average sample|values  response scale: average over the rows (default) or at the means
+
+power: sample size and power for detecting interaction terms (Cohen's f², noncentral F).
+  --predictors K --tested U --alpha A --f2 X (or --r2-full A --r2-reduced B)
+  --n N (power) | --power P (smallest n) | --n N --power P --detectable (smallest f²)
+
+Import options (fit, probe and describe):
   --delimiter comma|semicolon|tab|pipe   force the delimiter
   --no-header              the first row holds data; columns are named V1, V2, ...
   --missing TOKENS         extra missing-value tokens (always: empty, NA, NaN, .)
@@ -56,7 +73,7 @@ int main(int argc, char** argv) {
     std::vector<std::string> args(argv + 1, argv + argc);
     try {
         if (args.empty()) {
-            std::cerr << "moderato-cli: no command given; commands are fit and describe (see --help)\n";
+            std::cerr << "moderato-cli: no command given; commands are fit, probe, power and describe (see --help)\n";
             return 2;
         }
         if (args[0] == "--help" || args[0] == "-h" || args[0] == "help") {

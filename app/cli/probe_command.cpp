@@ -1,10 +1,88 @@
+#include <cmath>
+#include <iostream>
+
 #include "commands.hpp"
+#include "model_options.hpp"
 #include "moderato/error.hpp"
+#include "moderato/fit.hpp"
+#include "moderato/json_writer.hpp"
+#include "moderato/probe.hpp"
+#include "moderato/probe_report.hpp"
+#include "moderato/response_scale.hpp"
 
 namespace moderato::cli {
 
-int run_probe(const std::vector<std::string>&) {
-    throw InputError("probing is being built and is not available in this version");
+// Conditional effects of the focal predictor across the moderator, regions of
+// significance, the simultaneous band and crossover points.
+int run_probe(const std::vector<std::string>& args) {
+    auto valued = model_valued();
+    for (const char* o : {"focal", "moderator", "at", "at-percentiles", "second-moderator", "focal-at", "scale",
+                          "average", "bootstrap", "seed"})
+        valued.insert(o);
+    const Arguments a(args, model_flags(), valued, repeatable_options());
+    if (!a.positional.empty()) throw InputError("unexpected argument '" + a.positional.front() + "'");
+    const std::string format = output_format(a);
+    LoadedModel m = load_model(a);
+    const Design design = build_design(m.table, m.spec);
+    FitResult fit = fit_design(design, m.spec);
+
+    ProbeSpec ps;
+    ps.focal = a.required("focal");
+    ps.moderator = a.required("moderator");
+    if (a.has("at") && a.has("at-percentiles"))
+        throw InputError("give either --at or --at-percentiles, not both");
+    if (auto at = a.get("at"))
+        for (const auto& v : split_list(*at, "at")) ps.at.push_back(parse_double(v, "at"));
+    if (auto pct = a.get("at-percentiles")) {
+        if (!design.summaries.count(ps.moderator))
+            throw InputError("--at-percentiles needs a numeric moderator; '" + ps.moderator + "' is categorical");
+        for (const auto& v : split_list(*pct, "at-percentiles")) {
+            const double p = parse_double(v, "at-percentiles");
+            if (p < 0 || p > 100) throw InputError("option --at-percentiles takes percentiles from 0 to 100, got '" + v + "'");
+            ps.at.push_back(design.percentile(ps.moderator, p));
+        }
+    }
+    if (auto sm = a.get("second-moderator")) {
+        std::string col = *sm;
+        if (auto eq = sm->find('='); eq != std::string::npos) {
+            col = sm->substr(0, eq);
+            ps.second_value = parse_double(sm->substr(eq + 1), "second-moderator");
+        }
+        ps.second_moderator = col;
+    }
+    if (auto fa = a.get("focal-at")) ps.focal_value = parse_double(*fa, "focal-at");
+    const std::string scale = a.get("scale").value_or("link");
+    if (scale != "link" && scale != "response")
+        throw InputError("option --scale must be link or response, got '" + scale + "'");
+    const std::string average = a.get("average").value_or("sample");
+    if (average != "sample" && average != "values")
+        throw InputError("option --average must be sample or values, got '" + average + "'");
+    if (scale == "response" && m.spec.family != Family::Logistic)
+        throw InputError("--scale response applies to logistic models (--family logistic); a linear model's effects "
+                         "are already on the outcome's scale");
+    if (a.has("bootstrap") || a.has("seed"))
+        throw InputError("--bootstrap is not available in this version of moderato-cli probe");
+
+    const ProbeResult r =
+        scale == "response"
+            ? probe_response(design, fit, ps, average == "sample" ? Averaging::Sample : Averaging::AtValues)
+            : probe(design, fit, ps);
+    if (format == "json") {
+        JsonWriter w;
+        w.begin_object();
+        w.field("moderato_version", MODERATO_VERSION);
+        w.field("data", a.required("data"));
+        w.field("outcome", m.spec.outcome);
+        w.field("family", to_string(fit.family));
+        w.field("se_type", to_string(fit.se));
+        w.field("n", fit.n);
+        write_probe_fields(w, r);
+        w.end_object();
+        std::cout << w.str();
+    } else {
+        std::cout << probe_to_text(r, fit);
+    }
+    return 0;
 }
 
 }  // namespace moderato::cli

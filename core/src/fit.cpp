@@ -438,7 +438,10 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
     if (logistic && !f.converged && !separation)
         f.warnings.push_back("the logistic fit did not converge in " + std::to_string(f.iterations) +
                              " iterations; the estimates are not reliable");
-    if (separation) f.warnings.push_back(separation->message);
+    if (separation) {
+        f.separation = true;
+        f.warnings.push_back(separation->message);
+    }
     if (!logistic && spec.se != SeKind::Classical && spec.se != SeKind::Cluster) {
         // leverage of 1 makes HC2-HC4 undefined
         for (const auto& c : f.coefficients)

@@ -285,6 +285,43 @@ bool in_model(const Design& d, const std::string& c) {
     return false;
 }
 
+}  // namespace
+
+// The usual cautions, worded for this result.
+void refresh_cautions(ProbeResult& r, const FitResult& fit) {
+    r.cautions.clear();
+    r.cautions.push_back("These are associations in observational data, not causal effects, unless the focal "
+                         "predictor was randomised.");
+    bool beyond = false;
+    for (const auto& e : r.effects) beyond |= e.beyond_data;
+    for (bool b : r.jn_beyond_data) beyond |= b;
+    if (beyond)
+        r.cautions.push_back("Some moderator values or boundaries lie beyond the observed range of " + r.moderator +
+                             " (" + detail::fmt_short(r.observed_range.first) + " to " + detail::fmt_short(r.observed_range.second) +
+                             "): there the results are extrapolations.");
+    if (r.johnson_neyman)
+        r.cautions.push_back("The region of significance tests many moderator values, each at the " +
+                             fmt_num(100 * (1 - fit.level)) + "% level" +
+                             (r.simultaneous ? "; the simultaneous band (critical value " +
+                                                   detail::fmt_short(r.simultaneous->critical_value) +
+                                                   ") keeps the chance of any false region at " +
+                                                   fmt_num(100 * (1 - fit.level)) + "%."
+                                             : "."));
+    if (fit.n < 200)
+        r.cautions.push_back("With " + std::to_string(fit.n) +
+                             " observations, interaction estimates and regions of significance are unstable.");
+    if (fit.family == Family::Logistic && r.scale == "link")
+        r.cautions.push_back("On the log-odds scale a product coefficient is not the interaction on the probability "
+                             "scale; use the probability scale to describe effects on P(" + r.outcome + " = 1).");
+    if (r.scale == "response")
+        r.cautions.push_back("On the probability scale an effect depends on the values of every other predictor; "
+                             "these effects are " +
+                             std::string(r.averaging == "sample" ? "averaged over the observed rows."
+                                                                 : "at the means and reference levels."));
+}
+
+namespace {
+
 EffectPoint point_at(const EffectFunction& f, double m, const FitResult& fit) {
     EffectPoint e;
     e.moderator_value = m;
@@ -305,6 +342,7 @@ Crossover crossover_of(const EffectFunction& gap, const FitResult& fit, std::pai
     Crossover c;
     c.groups = std::move(groups);
     const auto& a = gap.effect_coefficients();
+    if (gap.degree() <= 1) c.gap_regions = significance_regions(gap, fit.critical_value);
     if (gap.degree() != 1 || a[1] == 0 || std::isnan(a[1])) {
         c.ci_kind = "none";
         c.form = "ordinal";
@@ -314,6 +352,7 @@ Crossover crossover_of(const EffectFunction& gap, const FitResult& fit, std::pai
     c.within_observed_range = c.focal_value >= focal_range.first && c.focal_value <= focal_range.second;
     c.form = c.within_observed_range ? "disordinal" : "ordinal";
     const auto sig = significance_regions(gap, fit.critical_value);
+    c.gap_regions = sig;
     // Fieller set = complement of the significant regions.
     if (sig.significant.empty()) {
         c.ci_kind = "whole line";
@@ -339,6 +378,12 @@ Crossover crossover_of(const EffectFunction& gap, const FitResult& fit, std::pai
 }  // namespace
 
 ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) {
+    if (fit.family == Family::Logistic && (!fit.converged || fit.separation))
+        throw InputError(std::string("the logistic fit ") +
+                         (fit.separation ? "shows separation" : "did not converge in " + std::to_string(fit.iterations) +
+                                                                    " iterations") +
+                         ", so its estimates and effects are not reliable and are not probed; " +
+                         (fit.warnings.empty() ? std::string("simplify the model") : fit.warnings.back()));
     if (!in_model(d, spec.focal))
         throw InputError("focal predictor " + quoted(spec.focal) + " is not in the model");
     if (d.categorical(spec.focal))
@@ -356,6 +401,7 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
         throw InputError("second moderator " + quoted(spec.second_moderator) + " is not in the model");
 
     ProbeResult r;
+    r.outcome = d.outcome;
     r.focal = spec.focal;
     r.moderator = spec.moderator;
     r.level = fit.level;
@@ -391,6 +437,7 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
                                                     spec.moderator + "=" + cat->levels[a] + " vs " + spec.moderator +
                                                         "=" + cat->levels[b]));
             }
+        refresh_cautions(r, fit);
         return r;
     }
 
@@ -400,27 +447,63 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     r.moderator_sd = ms.sd;
     const EffectFunction f = effect_function(d, fit, spec.focal, spec.moderator, values);
     r.effect_function = f;
+    const int mj = d.column_index(spec.moderator);
+    const bool binary =
+        mj >= 0 && ((d.X.col(mj).array() == 0.0) || (d.X.col(mj).array() == 1.0)).all();
     std::vector<double> at = spec.at;
-    if (at.empty()) at = {ms.mean - ms.sd, ms.mean, ms.mean + ms.sd};
+    if (at.empty()) at = binary ? std::vector<double>{0.0, 1.0} : std::vector<double>{ms.mean - ms.sd, ms.mean, ms.mean + ms.sd};
     for (double m : at) {
         EffectPoint e = point_at(f, m, fit);
         e.beyond_data = m < ms.min || m > ms.max;
         r.effects.push_back(e);
     }
-    r.johnson_neyman = significance_regions(f, fit.critical_value, ms.min, ms.max);
-    for (double b : r.johnson_neyman->boundaries) r.jn_beyond_data.push_back(b < ms.min || b > ms.max);
-    const double dof = static_cast<double>(f.degree() + 1);
-    const double band_q = std::sqrt(dof * dist::f_quantile(fit.level, dof, fit.df_inference));
-    r.simultaneous = significance_regions(f, band_q, ms.min, ms.max);
+    if (binary) {
+        r.notes.push_back(spec.moderator + " takes only the values 0 and 1: the effects at 0 and 1 are the whole "
+                          "story, so no region of significance over " + spec.moderator + " is reported");
+    } else {
+        r.johnson_neyman = significance_regions(f, fit.critical_value, ms.min, ms.max);
+        for (double b : r.johnson_neyman->boundaries) r.jn_beyond_data.push_back(b < ms.min || b > ms.max);
+        const double dof = static_cast<double>(f.degree() + 1);
+        const double band_q = std::sqrt(dof * dist::f_quantile(fit.level, dof, fit.df_inference));
+        r.simultaneous = significance_regions(f, band_q, ms.min, ms.max);
+    }
 
     // Lines at different moderator values meet where the moderator's own
     // effect, as a function of the focal predictor, is zero.
     const EffectFunction gap(linear_form(d, spec.focal, spec.moderator, values), fit.beta, fit.covariance);
-    const bool binary = ms.min == 0 && ms.max == 1;
     r.crossovers.push_back(crossover_of(gap, fit, r.focal_range,
                                         binary ? spec.moderator + "=0 vs " + spec.moderator + "=1"
                                                : "lines at any two values of " + spec.moderator));
+    refresh_cautions(r, fit);
     return r;
+}
+
+SurfaceGrid surface_grid(const Design& d, const FitResult& fit, const std::string& x, const std::string& z, int nx,
+                         int nz, const std::map<std::string, double>& held) {
+    for (const auto& c : {x, z})
+        if (!d.summaries.count(c)) throw InputError("surface: " + quoted(c) + " is not a numeric column of the model");
+    if (nx < 2 || nz < 2 || nx > 1000 || nz > 1000) throw InputError("surface grid sizes must be between 2 and 1000");
+    SurfaceGrid g;
+    g.x = x;
+    g.z = z;
+    const auto& sx = d.summaries.at(x);
+    const auto& sz = d.summaries.at(z);
+    for (int i = 0; i < nx; ++i) g.x_values.push_back(sx.min + (sx.max - sx.min) * i / (nx - 1));
+    for (int k = 0; k < nz; ++k) g.z_values.push_back(sz.min + (sz.max - sz.min) * k / (nz - 1));
+    g.predicted.resize(nz, nx);
+    g.std_error.resize(nz, nx);
+    auto values = typical_values(d, held);
+    const Eigen::VectorXd b = fit.beta.unaryExpr([](double v) { return std::isnan(v) ? 0.0 : v; });
+    const Eigen::MatrixXd V = fit.covariance.unaryExpr([](double v) { return std::isnan(v) ? 0.0 : v; });
+    for (int k = 0; k < nz; ++k)
+        for (int i = 0; i < nx; ++i) {
+            values[x] = g.x_values[static_cast<std::size_t>(i)];
+            values[z] = g.z_values[static_cast<std::size_t>(k)];
+            const Eigen::VectorXd row = design_row(d, values);
+            g.predicted(k, i) = row.dot(b);
+            g.std_error(k, i) = std::sqrt(row.dot(V * row));
+        }
+    return g;
 }
 
 }  // namespace moderato

@@ -107,10 +107,8 @@ void check_request(const Design& d, const FitResult& fit, const ScaleRequest& r)
         throw InputError("the probability scale applies to logistic models; this is a linear model");
     if (main_column(d, r.focal) < 0)
         throw InputError("focal predictor " + quoted(r.focal) + " is not a numeric main effect of the model");
-    if (!r.moderator.empty() && main_column(d, r.moderator) < 0)
-        throw InputError("moderator " + quoted(r.moderator) +
-                         " is not a numeric main effect of the model; on the probability scale use a numeric "
-                         "(or 0/1) moderator");
+    if (!r.moderator.empty() && main_column(d, r.moderator) < 0 && !d.categorical(r.moderator))
+        throw InputError("moderator " + quoted(r.moderator) + " is not in the model");
 }
 
 }  // namespace
@@ -188,7 +186,8 @@ SignificanceRegions probability_regions(const Design& d, const FitResult& fit, c
 
 InteractionEffect probability_interaction(const Design& d, const FitResult& fit, const ScaleRequest& request) {
     check_request(d, fit, request);
-    if (request.moderator.empty()) throw InputError("the interaction effect needs a moderator");
+    if (request.moderator.empty() || main_column(d, request.moderator) < 0)
+        throw InputError("the interaction effect on the probability scale needs a numeric (or 0/1) moderator");
     const Profile pr = profile(d, request);
     const bool fb = is_binary(d, request.focal), mb = is_binary(d, request.moderator);
     const std::string& F = request.focal;
@@ -259,6 +258,44 @@ InteractionEffect probability_interaction(const Design& d, const FitResult& fit,
     out.std_error = delta_se(grad, fit.covariance);
     fill_test(out.estimate, out.std_error, fit, out.statistic, out.p_value, out.ci_lower, out.ci_upper);
     return out;
+}
+
+ProbeResult probe_response(const Design& d, const FitResult& fit, const ProbeSpec& spec, Averaging averaging) {
+    ProbeResult r = probe(d, fit, spec);  // validation, defaults, crossovers
+    ScaleRequest req;
+    req.focal = spec.focal;
+    req.moderator = spec.moderator;
+    req.averaging = averaging;
+    if (!spec.second_moderator.empty())
+        req.values[spec.second_moderator] =
+            std::isnan(spec.second_value) ? d.summaries.at(spec.second_moderator).mean : spec.second_value;
+    if (!std::isnan(spec.focal_value) && averaging == Averaging::AtValues) req.values[spec.focal] = spec.focal_value;
+    r.scale = "response";
+    r.averaging = averaging == Averaging::Sample ? "sample" : "values";
+    for (auto& e : r.effects) {
+        EffectPoint p = probability_effect(d, fit, req, e.moderator_value);
+        p.level = e.level;
+        p.beyond_data = e.beyond_data;
+        e = p;
+    }
+    r.simultaneous.reset();
+    r.effect_function = EffectFunction();
+    if (!r.categorical_moderator) {
+        const double lo = r.observed_range.first, hi = r.observed_range.second, pad = 0.25 * (hi - lo);
+        r.johnson_neyman = probability_regions(d, fit, req, fit.critical_value, lo - pad, hi + pad);
+        r.jn_beyond_data.clear();
+        for (double b : r.johnson_neyman->boundaries) r.jn_beyond_data.push_back(b < lo || b > hi);
+        r.interaction_effect = probability_interaction(d, fit, req);
+    }
+    r.notes.push_back(std::string("effects on P(") + d.outcome + " = 1), " +
+                      (averaging == Averaging::Sample ? "averaged over the observations"
+                                                      : "at the covariates' means and reference levels") +
+                      "; " + (is_binary(d, spec.focal) ? "discrete change of " + spec.focal + " from 0 to 1"
+                                                          : "derivative with respect to " + spec.focal));
+    r.notes.push_back("no simultaneous band on the probability scale (the effect is not linear in the coefficients)");
+    r.notes.push_back("crossover points are where the log-odds lines cross, which is where the probability curves cross");
+    refresh_cautions(r, fit);
+    return r;
 }
 
 }  // namespace moderato

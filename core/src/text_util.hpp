@@ -13,6 +13,13 @@ inline std::string fmt_num(double v) {
     return buf;
 }
 
+// Four significant digits, for prose.
+inline std::string fmt_short(double v) {
+    char buf[40];
+    std::snprintf(buf, sizeof buf, "%.4g", v);
+    return buf;
+}
+
 inline std::string join(const std::vector<std::string>& parts, const std::string& sep) {
     std::string out;
     for (std::size_t i = 0; i < parts.size(); ++i) {

@@ -330,10 +330,10 @@ const std::vector<BadCase> kCases = {
      {"frobnicate", "--data", "ok/exact_interaction.csv"},
      "ok/exact_interaction.csv",
      "moderato-cli: unknown command 'frobnicate'; commands are fit, probe, power and describe (see --help)"},
-    {"no_command",  // PROPOSED: today the help text goes to stdout with exit 2 and stderr stays empty
+    {"no_command",
      {},
      "",
-     "moderato-cli: no command given; commands are fit and describe (see --help)"},
+     "moderato-cli: no command given; commands are fit, probe, power and describe (see --help)"},
     {"missing_data_file",
      {"fit", "--data", "bad/no_such_file.csv", "--outcome", "y", "--predictors", "x"},
      "bad/no_such_file.csv",  // must still not exist afterwards

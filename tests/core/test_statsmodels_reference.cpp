@@ -43,8 +43,13 @@ fs::path fixture_dir() {
 std::vector<fs::path> cases(const fs::path& dir) {
     std::vector<fs::path> out;
     if (!fs::exists(dir)) return out;
-    for (const auto& e : fs::directory_iterator(dir))
-        if (e.path().extension() == ".json" && e.path().filename() != "index.json") out.push_back(e.path());
+    // The fixtures of make_statsmodels_reference.py: JSON files with a model
+    // specification and covariances (other scripts share the folder).
+    for (const auto& e : fs::directory_iterator(dir)) {
+        if (e.path().extension() != ".json") continue;
+        const json j = json::parse(std::ifstream(e.path()));
+        if (j.is_object() && j.contains("spec") && j.contains("covariances")) out.push_back(e.path());
+    }
     std::sort(out.begin(), out.end());
     return out;
 }

@@ -68,6 +68,7 @@ struct FitResult {
     double lr_statistic = 0, lr_df = 0, lr_p_value = 0;
     int iterations = 0;
     bool converged = true;
+    bool separation = false;       // (quasi-)complete separation detected
 
     std::optional<NestedComparison> comparison;
     std::vector<WaldTest> wald_tests;

@@ -81,10 +81,33 @@ struct Crossover {
     bool within_observed_range = false;
     std::string form;                         // "disordinal" (crossing inside the data) or "ordinal"
     std::string groups;                       // which lines: "g=0 vs g=1", "z at 1.2 vs 3.4"
+    // Where the two groups' predictions differ (the Johnson–Neyman technique
+    // applied to the group gap over the focal predictor).
+    SignificanceRegions gap_regions;
+};
+
+// Predicted outcome (link scale) over a grid of two numeric predictors, the
+// others held at `values`; for the Surface plot.
+struct SurfaceGrid {
+    std::string x, z;
+    std::vector<double> x_values, z_values;
+    Eigen::MatrixXd predicted;                // z_values.size() x x_values.size()
+    Eigen::MatrixXd std_error;
+};
+SurfaceGrid surface_grid(const Design& design, const FitResult& fit, const std::string& x, const std::string& z,
+                         int nx = 41, int nz = 41, const std::map<std::string, double>& values = {});
+
+// An interaction effect on the probability scale (see response_scale.hpp).
+struct InteractionEffect {
+    std::string kind;   // "cross-partial derivative", "difference in slopes", "double difference"
+    double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
 };
 
 struct ProbeResult {
-    std::string focal, moderator;
+    std::string outcome, focal, moderator;
+    std::string scale = "link";                             // "link" or "response" (probability)
+    std::string averaging;                                  // response scale: "sample" or "values"
+    std::optional<InteractionEffect> interaction_effect;    // response scale
     bool categorical_moderator = false;
     double level = 0.95, df = 0, critical_t = 0;
     std::pair<double, double> observed_range{0, 0};        // moderator, used rows
@@ -96,12 +119,17 @@ struct ProbeResult {
     std::optional<SignificanceRegions> simultaneous;
     std::vector<Crossover> crossovers;
     std::vector<std::string> notes;
+    std::vector<std::string> cautions;                      // what a reader must not overlook
     EffectFunction effect_function;                         // for plots and the slider
 };
 
 // InputError for: a focal column not in any product term, a moderator not in
 // the model, a categorical focal predictor, unknown columns.
 ProbeResult probe(const Design& design, const FitResult& fit, const ProbeSpec& spec);
+
+// Rewrites the result's cautions for what it now holds (scale, ranges,
+// band); call after changing a result.
+void refresh_cautions(ProbeResult& result, const FitResult& fit);
 
 // The effect function of `focal` in a fitted design with the moderator free
 // and every other column held at `values` (column -> value; categorical

@@ -36,16 +36,19 @@ EffectPoint probability_effect(const Design& d, const FitResult& fit, const Scal
 SignificanceRegions probability_regions(const Design& d, const FitResult& fit, const ScaleRequest& request,
                                         double critical_value, double lo, double hi, int grid = 240);
 
-struct InteractionEffect {
-    std::string kind;   // "cross-partial derivative", "difference in slopes", "double difference"
-    double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
-};
-
 // The interaction effect on the probability scale (Ai & Norton 2003):
 // d2P/dF dM (both continuous), the change of dP/dM between F = 0 and 1 (one
 // binary), or P11 - P10 - P01 + P00 (both binary). Delta-method SE from a
 // Richardson-extrapolated numerical Jacobian.
 InteractionEffect probability_interaction(const Design& d, const FitResult& fit, const ScaleRequest& request);
+
+// The probe of a logistic fit on the probability scale: effects at the
+// moderator values of `spec` (or its defaults), the region of significance
+// by a scan over the observed range widened by a quarter on each side, the
+// crossover points (where probability lines cross is where the log-odds
+// lines cross, so they come from the link scale), and the interaction effect.
+// No simultaneous band: the effect is not linear in the coefficients.
+ProbeResult probe_response(const Design& d, const FitResult& fit, const ProbeSpec& spec, Averaging averaging);
 
 // Whether a numeric model column takes only the values 0 and 1 in the data.
 bool is_binary(const Design& d, const std::string& column);

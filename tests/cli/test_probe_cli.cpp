@@ -1,0 +1,111 @@
+// moderato-cli probe: the JSON contract, agreement with `fit`, and the
+// refusals. Expected numbers come from closed forms (the effect at moderator
+// 0 is the focal coefficient; b_x + m b_xz at m) applied to `fit`'s output.
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <nlohmann/json.hpp>
+
+#include "cli/cli_runner.hpp"
+
+using moderato::test::run_cli;
+using nlohmann::json;
+
+namespace {
+
+const std::string kData = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects/coffee-discount/spend.csv";
+const std::string kOrchard = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects/orchard-nitrogen/plots.csv";
+
+json run_json(const std::vector<std::string>& args) {
+    auto r = run_cli(args);
+    EXPECT_TRUE(r.exited && r.exit_code == 0) << r.describe();
+    return json::parse(r.out);
+}
+
+double coefficient(const json& fit, const std::string& term) {
+    for (const auto& c : fit.at("coefficients"))
+        if (c.at("term") == term) return c.at("estimate").get<double>();
+    ADD_FAILURE() << "no term " << term;
+    return NAN;
+}
+
+}  // namespace
+
+TEST(ProbeCli, JsonHasTheContractFieldsAndAgreesWithFit) {
+    const std::vector<std::string> model{"--data", kOrchard, "--outcome", "yield_t_ha", "--interaction",
+                                         "nitrogen_kg_ha,soil_moisture_pct", "--se", "hc3", "--format", "json"};
+    std::vector<std::string> fit_args{"fit"}, probe_args{"probe", "--focal", "nitrogen_kg_ha", "--moderator",
+                                                         "soil_moisture_pct", "--at", "0,20"};
+    fit_args.insert(fit_args.end(), model.begin(), model.end());
+    probe_args.insert(probe_args.end(), model.begin(), model.end());
+    const json fit = run_json(fit_args), probe = run_json(probe_args);
+    for (const char* key : {"focal", "moderator", "scale", "level", "df", "critical_t", "conditional_effects",
+                            "johnson_neyman", "simultaneous_band", "crossover"})
+        EXPECT_TRUE(probe.contains(key)) << key;
+    for (const char* key : {"moderator_value", "effect", "std_error", "statistic", "p_value", "ci_lower", "ci_upper"})
+        EXPECT_TRUE(probe.at("conditional_effects").at(0).contains(key)) << key;
+    for (const char* key : {"boundaries", "significant_regions", "observed_range"})
+        EXPECT_TRUE(probe.at("johnson_neyman").contains(key)) << key;
+    for (const char* key : {"critical_value", "boundaries", "significant_regions"})
+        EXPECT_TRUE(probe.at("simultaneous_band").contains(key)) << key;
+    for (const char* key : {"focal_value", "ci_lower", "ci_upper", "ci_kind", "within_observed_range", "form"})
+        EXPECT_TRUE(probe.at("crossover").contains(key)) << key;
+    const double bx = coefficient(fit, "nitrogen_kg_ha"), bxz = coefficient(fit, "nitrogen_kg_ha×soil_moisture_pct");
+    const auto& effects = probe.at("conditional_effects");
+    EXPECT_NEAR(effects.at(0).at("effect").get<double>(), bx, 1e-15);  // closed form: effect(0) = b_x
+    EXPECT_NEAR(effects.at(1).at("effect").get<double>(), bx + 20 * bxz, 1e-14);
+    EXPECT_TRUE(effects.at(0).at("beyond_data").get<bool>());  // moisture 0 lies below the observed 12
+    EXPECT_FALSE(effects.at(1).at("beyond_data").get<bool>());
+    // crossover x* = -b_z / b_xz (closed form)
+    EXPECT_NEAR(probe.at("crossover").at("focal_value").get<double>(),
+                -coefficient(fit, "soil_moisture_pct") / bxz, 1e-9);
+    // an unbounded region is written with null
+    bool has_null = false;
+    for (const auto& r : probe.at("johnson_neyman").at("significant_regions"))
+        has_null |= r.at(0).is_null() || r.at(1).is_null();
+    EXPECT_TRUE(has_null);
+}
+
+TEST(ProbeCli, PercentilesAndTextOutput) {
+    auto r = run_cli({"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction",
+                      "discount_pct,tenure_months", "--focal", "discount_pct", "--moderator", "tenure_months",
+                      "--at-percentiles", "10,50,90"});
+    ASSERT_TRUE(r.exited && r.exit_code == 0) << r.describe();
+    EXPECT_NE(r.out.find("Region of significance"), std::string::npos);
+    EXPECT_NE(r.out.find("Cautions:"), std::string::npos);
+    EXPECT_NE(r.out.find("not causal"), std::string::npos);
+}
+
+struct Refusal {
+    std::vector<std::string> args;
+    std::string message;
+};
+
+TEST(ProbeCli, RefusalsAreExplained) {
+    const std::string sep = std::string(MODERATO_TEST_DATA_DIR) + "/bad/logistic_separated.csv";
+    const std::vector<Refusal> cases{
+        {{"probe", "--data", kData, "--outcome", "weekly_spend", "--predictors", "discount_pct,tenure_months",
+          "--interaction", "discount_pct,loyalty_member", "--focal", "tenure_months", "--moderator", "loyalty_member"},
+         "moderato-cli: focal predictor 'tenure_months' and moderator 'loyalty_member' share no product term, so "
+         "the effect of 'tenure_months' does not depend on 'loyalty_member'; add --interaction "
+         "tenure_months,loyalty_member"},
+        {{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,loyalty_member",
+          "--focal", "discount_pct", "--moderator", "shop"},
+         "moderato-cli: moderator 'shop' is not in the model"},
+        {{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,loyalty_member",
+          "--focal", "discount_pct", "--moderator", "loyalty_member", "--scale", "response"},
+         "moderato-cli: --scale response applies to logistic models (--family logistic); a linear model's effects "
+         "are already on the outcome's scale"},
+        {{"probe", "--data", sep, "--outcome", "y", "--interaction", "x,z", "--family", "logistic", "--focal", "x",
+          "--moderator", "z"},
+         ""},  // message checked by prefix below
+    };
+    for (const auto& c : cases) {
+        auto r = run_cli(c.args);
+        EXPECT_TRUE(r.exited) << r.describe();
+        EXPECT_EQ(r.exit_code, 2) << r.describe();
+        EXPECT_TRUE(r.out.empty());
+        if (!c.message.empty()) EXPECT_EQ(r.err, c.message + "\n");
+        else EXPECT_EQ(r.err.rfind("moderato-cli: the logistic fit shows separation, so its estimates", 0), 0u) << r.err;
+    }
+}
