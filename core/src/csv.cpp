@@ -178,6 +178,12 @@ public:
             const std::size_t got = src_.read(start_, sample.data(), kSniffBytes);
             sample.resize(got);
             delim_ = sniff_delimiter(sample, got < kSniffBytes, opt_.decimal_comma);
+            const std::string_view first_line(sample.data(), std::min(sample.find('\n'), sample.size()));
+            if (opt_.decimal_comma && first_line.find(';') == std::string_view::npos &&
+                first_line.find('\t') == std::string_view::npos &&
+                sniff_delimiter(sample, got < kSniffBytes, false) == ',')
+                fail("the file looks comma-separated, but with decimal commas the delimiter cannot be ','; read it "
+                     "without the decimal-comma option, or save it with ';' or tab as the delimiter");
         }
         std::vector<char> text_columns;
         for (;;) {
@@ -254,7 +260,7 @@ void Reader::take_header(const RecordParse& r, std::size_t header_line, const st
     for (const auto& [name, kind] : opt_.column_kinds) {
         (void)kind;
         if (std::find(names_.begin(), names_.end(), name) == names_.end())
-            fail("column_kinds names '" + name + "', which is not a column of this file; columns are: " +
+            fail("column '" + name + "' has a type override but is not a column of this file; columns are: " +
                  join_names(names_));
     }
     modes_.assign(ncols, Mode::NumberInferred);
@@ -529,6 +535,7 @@ bool Reader::pass(std::vector<char>& text_columns, Table& out) {
         FinalColumn& fc = cols_[j];
         Column& c = out.columns[j];
         c.name = names_[j];
+        c.kind_forced = opt_.column_kinds.count(names_[j]) > 0;
         if (fc.mode == Mode::Text) {
             c.kind = ColumnKind::Categorical;
             c.codes = std::move(fc.codes);

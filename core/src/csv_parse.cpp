@@ -149,6 +149,11 @@ private:
     Signal handle_value(std::size_t j, std::string_view raw, bool quoted, bool in_scratch, std::size_t cell_line);
     void skip_field(const char*& p, std::size_t& line);
     Signal check_utf8(std::size_t j, std::string_view raw, std::size_t cell_line) {
+        if (const void* nul = std::memchr(raw.data(), 0, raw.size()))
+            return fail(cell_line + count_newlines(raw.data(), static_cast<const char*>(nul)),
+                        ", " + column_label(s_.names, j) +
+                            ": a NUL byte (0x00), which text files do not contain; save the data as CSV text (UTF-8) "
+                            "and read it again");
         const char* bad = find_invalid_utf8(raw.data(), raw.data() + raw.size());
         if (!bad) return Signal::Ok;
         return fail(cell_line + count_newlines(raw.data(), bad),

@@ -341,6 +341,7 @@ Crossover crossover_of(const EffectFunction& gap, const FitResult& fit, std::pai
                        std::string groups) {
     Crossover c;
     c.groups = std::move(groups);
+    c.gap = gap;
     const auto& a = gap.effect_coefficients();
     if (gap.degree() <= 1) c.gap_regions = significance_regions(gap, fit.critical_value);
     if (gap.degree() != 1 || a[1] == 0 || std::isnan(a[1])) {

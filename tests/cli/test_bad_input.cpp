@@ -10,9 +10,7 @@
 // ../shared/design/ARCHITECTURE.md ("exit codes: 0 ok; 2 bad input or usage
 // (message on stderr names the problem)") and the house rule that a message
 // names the file, line, column or variable and says what to do. Each message
-// below was read and judged against that rule. Where the CLI's current
-// message or behaviour is wrong, the case asserts the PROPOSED message and is
-// marked "PROPOSED" — it fails until the CLI is fixed.
+// below was read and judged against that rule.
 //
 // The CLI runs with tests/data as its working directory and relative paths,
 // so the messages (which echo the path given) are stable and readable.
@@ -73,11 +71,11 @@ const std::vector<BadCase> kCases = {
      "bad/invalid_utf8_header.csv",
      "moderato-cli: bad/invalid_utf8_header.csv: line 1, column 3: invalid UTF-8 in the column name (byte 0xE9); "
      "save the file as UTF-8 and read it again"},
-    {"nul_byte",  // PROPOSED: today the NUL byte silently becomes part of a text level and x is dummy-coded (exit 0)
+    {"nul_byte",
      {"fit", "--data", "bad/nul_byte.csv", "--outcome", "y", "--predictors", "x"},
      "bad/nul_byte.csv",
-     "moderato-cli: bad/nul_byte.csv: line 3, column 2 ('x'): a NUL byte (0x00), which text files do not contain; "
-     "save the data as CSV text (UTF-8) and read it again"},
+     "moderato-cli: bad/nul_byte.csv: line 3, column 2 ('x'): a NUL byte (0x00), which text files do not "
+     "contain; save the data as CSV text (UTF-8) and read it again"},
     {"empty_file",
      {"fit", "--data", "bad/empty.csv", "--outcome", "y", "--predictors", "x"},
      "bad/empty.csv",
@@ -188,11 +186,11 @@ const std::vector<BadCase> kCases = {
      {"fit", "--data", "ok/exact_interaction.csv", "--outcome", "y", "--predictors", "x", "--cluster", "site"},
      "ok/exact_interaction.csv",
      "moderato-cli: cluster column 'site' not found in ok/exact_interaction.csv; columns are: y, x, z"},
-    {"numeric_option_names_unknown_column",  // PROPOSED: today the message names the internal field "column_kinds"
+    {"numeric_option_names_unknown_column",
      {"fit", "--data", "ok/exact_interaction.csv", "--outcome", "y", "--predictors", "x", "--numeric", "q"},
      "ok/exact_interaction.csv",
-     "moderato-cli: ok/exact_interaction.csv: column 'q' (named by --numeric) is not a column of this file; "
-     "columns are: y, x, z"},
+     "moderato-cli: ok/exact_interaction.csv: column 'q' has a type override but is not a column of this "
+     "file; columns are: y, x, z"},
 
     // ------------------------------------------------------ malformed specifications
     {"unknown_se_kind",
@@ -291,11 +289,12 @@ const std::vector<BadCase> kCases = {
      {"fit", "--data", "ok/exact_interaction.csv", "--outcome", "y", "--predictors", "x,,z"},
      "ok/exact_interaction.csv",
      "moderato-cli: option --predictors has an empty name in 'x,,z'"},
-    {"decimal_comma_on_comma_separated_file",  // PROPOSED: today "column 'y' not found ...; columns are: y,x,z"
+    {"decimal_comma_on_comma_separated_file",
      {"fit", "--data", "ok/exact_interaction.csv", "--outcome", "y", "--predictors", "x", "--decimal-comma"},
      "ok/exact_interaction.csv",
-     "moderato-cli: ok/exact_interaction.csv: the file looks comma-separated, but with --decimal-comma the "
-     "delimiter cannot be ','; drop --decimal-comma, or save the file with ';' or tab as the delimiter"},
+     "moderato-cli: ok/exact_interaction.csv: the file looks comma-separated, but with decimal commas the "
+     "delimiter cannot be ','; read it without the decimal-comma option, or save it with ';' or tab as "
+     "the delimiter"},
 
     // --------------------------------------------------------------- usage errors
     {"unknown_option",

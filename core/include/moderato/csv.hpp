@@ -25,7 +25,12 @@ namespace moderato {
 //   trimmed cell for unquoted cells and the exact content for quoted ones;
 // - a number is what std::from_chars reads in full, optionally after one '+',
 //   and finite ("inf" and "nan" are text unless listed as missing tokens);
-//   with decimal_comma the one decimal separator is ',' and '.' makes text.
+//   with decimal_comma the one decimal separator is ',' and '.' makes text;
+// - levels of a categorical column are coded in order of first appearance;
+//   a column whose first text comes after numbers were already stored for it
+//   is read once more from the start, so its levels keep the original text.
+// Messages name the file as given (path or `name`); Table::row_lines is
+// filled for files and for text alike.
 struct CsvOptions {
     char delimiter = 0;                 // 0: sniff among ',', ';', '\t'
     bool header = true;                 // first record holds the column names

@@ -36,6 +36,9 @@ public:
     EffectFunction(std::vector<Eigen::VectorXd> g, const Eigen::VectorXd& beta, const Eigen::MatrixXd& cov);
 
     int degree() const { return static_cast<int>(g_.size()) - 1; }
+    // The g_k vectors: they depend on the held values only, not on the data,
+    // so a refit (e.g. a bootstrap replicate) reuses them with its own b and V.
+    const std::vector<Eigen::VectorXd>& basis() const { return g_; }
     Eigen::VectorXd gradient(double m) const;     // g(m)
     double effect(double m) const;
     double variance(double m) const;
@@ -84,6 +87,7 @@ struct Crossover {
     // Where the two groups' predictions differ (the Johnson–Neyman technique
     // applied to the group gap over the focal predictor).
     SignificanceRegions gap_regions;
+    EffectFunction gap;                       // the group gap over the focal predictor
 };
 
 // Predicted outcome (link scale) over a grid of two numeric predictors, the
