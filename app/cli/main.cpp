@@ -50,6 +50,8 @@ region of significance (Johnson–Neyman), the simultaneous band and crossover p
   --focal-at VALUE         where a squared focal predictor's effect is taken (default its mean)
   --scale link|response    logistic models: log-odds (link) or probability (response) scale
   --average sample|values  response scale: average over the rows (default) or at the means
+  --bootstrap N [--seed S] case (or cluster) bootstrap: percentile and BCa intervals for the
+                           effects, boundaries and crossover point (N >= 100; same numbers on any core count)
 
 power: sample size and power for detecting interaction terms (Cohen's f², noncentral F).
   --predictors K --tested U --alpha A --f2 X (or --r2-full A --r2-reduced B)

@@ -1,4 +1,6 @@
 #include <cmath>
+#include <cstdint>
+#include <optional>
 #include <iostream>
 
 #include "commands.hpp"
@@ -7,6 +9,7 @@
 #include "moderato/fit.hpp"
 #include "moderato/json_writer.hpp"
 #include "moderato/probe.hpp"
+#include "moderato/probe_bootstrap.hpp"
 #include "moderato/probe_report.hpp"
 #include "moderato/response_scale.hpp"
 
@@ -60,13 +63,23 @@ int run_probe(const std::vector<std::string>& args) {
     if (scale == "response" && m.spec.family != Family::Logistic)
         throw InputError("--scale response applies to logistic models (--family logistic); a linear model's effects "
                          "are already on the outcome's scale");
-    if (a.has("bootstrap") || a.has("seed"))
-        throw InputError("--bootstrap is not available in this version of moderato-cli probe");
+    std::optional<BootstrapOptions> boot;
+    if (auto n = a.get("bootstrap")) {
+        boot.emplace();
+        boot->replicates = static_cast<int>(parse_integer(*n, "bootstrap", 100, 1000000));
+        boot->seed = static_cast<std::uint64_t>(parse_integer(a.get("seed").value_or("1"), "seed", 0, INT64_MAX));
+        boot->threads = m.spec.threads;
+        boot->level = m.spec.level;
+    } else if (a.has("seed")) {
+        throw InputError("option --seed goes with --bootstrap N");
+    }
 
     const ProbeResult r =
         scale == "response"
             ? probe_response(design, fit, ps, average == "sample" ? Averaging::Sample : Averaging::AtValues)
             : probe(design, fit, ps);
+    std::optional<ProbeBootstrap> pb;
+    if (boot) pb = bootstrap_probe(design, m.spec, ps, r, *boot);
     if (format == "json") {
         JsonWriter w;
         w.begin_object();
@@ -77,10 +90,14 @@ int run_probe(const std::vector<std::string>& args) {
         w.field("se_type", to_string(fit.se));
         w.field("n", fit.n);
         write_probe_fields(w, r);
+        w.key("bootstrap");
+        if (pb) write_probe_bootstrap(w, *pb);
+        else w.null();
         w.end_object();
         std::cout << w.str();
     } else {
         std::cout << probe_to_text(r, fit);
+        if (pb) std::cout << probe_bootstrap_to_text(*pb);
     }
     return 0;
 }

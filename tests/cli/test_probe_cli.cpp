@@ -109,3 +109,33 @@ TEST(ProbeCli, RefusalsAreExplained) {
         else EXPECT_EQ(r.err.rfind("moderato-cli: the logistic fit shows separation, so its estimates", 0), 0u) << r.err;
     }
 }
+
+// Common practice for resampling code: one random stream per replicate makes
+// the intervals identical whatever the thread count.
+TEST(ProbeCli, BootstrapIsTheSameOnOneOrTwoThreads) {
+    std::vector<std::string> args{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction",
+                                  "discount_pct,loyalty_member", "--focal", "discount_pct", "--moderator",
+                                  "loyalty_member", "--bootstrap", "200", "--seed", "11", "--format", "json"};
+    auto one = args, two = args;
+    one.insert(one.end(), {"--threads", "1"});
+    two.insert(two.end(), {"--threads", "2"});
+    const json a = run_json(one), b = run_json(two);
+    ASSERT_TRUE(a.at("bootstrap").is_object());
+    EXPECT_EQ(a.at("bootstrap").at("statistics"), b.at("bootstrap").at("statistics"));
+    EXPECT_EQ(a.at("bootstrap").at("completed").get<int>(), 200);
+    // the effect at loyalty_member = 0 equals the discount_pct coefficient (closed form), bootstrapped around it
+    const auto& first = a.at("bootstrap").at("statistics").at(0);
+    EXPECT_LT(first.at("percentile_lower").get<double>(), first.at("estimate").get<double>());
+    EXPECT_GT(first.at("percentile_upper").get<double>(), first.at("estimate").get<double>());
+}
+
+TEST(ProbeCli, BootstrapRefusesTooFewRows) {
+    auto r = run_cli({"probe", "--data", std::string(MODERATO_TEST_DATA_DIR) + "/bad/too_few_rows_for_bootstrap.csv",
+                      "--outcome", "y", "--interaction", "x,z", "--focal", "x", "--moderator", "z", "--bootstrap",
+                      "200"});
+    EXPECT_TRUE(r.exited && r.exit_code == 2) << r.describe();
+    EXPECT_EQ(r.err,
+              "moderato-cli: too few rows for the bootstrap: n = 9 rows for p = 4 coefficients; resampling needs at "
+              "least 10 rows and at least twice as many rows as coefficients (here 10) — add rows or drop terms\n");
+    EXPECT_TRUE(r.out.empty());
+}
