@@ -1,7 +1,6 @@
 #include "moderato/bootstrap.hpp"
 
 #include <algorithm>
-#include <boost/math/distributions/normal.hpp>
 #include <cmath>
 #include <map>
 #include <random>
@@ -52,11 +51,6 @@ std::uint64_t uniform_below(std::mt19937_64& g, std::uint64_t n) {
     }
 }
 
-double normal_cdf(double x) {
-    if (std::isnan(x)) return kNaN;
-    if (std::isinf(x)) return x > 0 ? 1.0 : 0.0;
-    return boost::math::cdf(boost::math::normal_distribution<double>(), x);
-}
 
 // ---- replicate designs -----------------------------------------------------
 
@@ -322,7 +316,7 @@ BootstrapInterval bootstrap_interval(const std::vector<double>& values, double e
         const double z = dist::normal_quantile(q);
         const double denom = 1.0 - acceleration * (z0 + z);
         if (!(denom > 0)) return kNaN;
-        return normal_cdf(z0 + (z0 + z) / denom);
+        return dist::normal_cdf(z0 + (z0 + z) / denom);
     };
     const double a1 = adjusted(tail), a2 = adjusted(1.0 - tail);
     if (std::isnan(a1) || std::isnan(a2)) return out;

@@ -8,6 +8,7 @@
 #include "moderato/distributions.hpp"
 #include "moderato/error.hpp"
 #include "moderato/probe.hpp"
+#include "logistic_math.hpp"
 #include "text_util.hpp"
 
 namespace moderato {
@@ -20,7 +21,7 @@ namespace {
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
-double expit(double x) { return x >= 0 ? 1.0 / (1.0 + std::exp(-x)) : std::exp(x) / (1.0 + std::exp(x)); }
+using detail::expit;
 
 bool in_model(const Design& d, const std::string& column) {
     for (const auto& t : d.terms)
@@ -113,19 +114,8 @@ Combination combine(const FitResult& fit, const Design& d, const Eigen::VectorXd
     return c;
 }
 
-struct Inference {
-    double estimate, std_error, statistic, p_value, ci_lower, ci_upper;
-};
-
 Inference infer(const Combination& c, const FitResult& fit) {
-    Inference r{};
-    r.estimate = c.estimate;
-    r.std_error = c.variance >= 0 ? std::sqrt(c.variance) : kNaN;
-    r.statistic = r.estimate / r.std_error;
-    r.p_value = std::isnan(r.statistic) ? kNaN : dist::two_sided_p_t(r.statistic, fit.df_inference);
-    r.ci_lower = r.estimate - fit.critical_value * r.std_error;
-    r.ci_upper = r.estimate + fit.critical_value * r.std_error;
-    return r;
+    return moderato::infer(c.estimate, c.variance >= 0 ? std::sqrt(c.variance) : kNaN, fit);
 }
 
 template <class T>

@@ -20,6 +20,12 @@ double normal_quantile(double p) {
     return bm::quantile(bm::normal_distribution<double>(), p);
 }
 
+double normal_cdf(double x) {
+    if (unusable(x)) return kNaN;
+    if (std::isinf(x)) return x > 0 ? 1.0 : 0.0;
+    return bm::cdf(bm::normal_distribution<double>(), x);
+}
+
 double t_quantile(double p, double df) {
     if (unusable(p) || unusable(df) || p <= 0 || p >= 1 || df <= 0) return kNaN;
     if (std::isinf(df)) return normal_quantile(p);

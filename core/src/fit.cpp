@@ -6,6 +6,7 @@
 #include <numbers>
 
 #include "covariance.hpp"
+#include "logistic_math.hpp"
 #include "moderato/distributions.hpp"
 #include "moderato/error.hpp"
 #include "moderato/least_squares.hpp"
@@ -24,9 +25,8 @@ namespace {
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 constexpr double kInf = std::numeric_limits<double>::infinity();
 
-// log(1 + exp(x)) without overflow.
-double log1pexp(double x) { return x > 0 ? x + std::log1p(std::exp(-x)) : std::log1p(std::exp(x)); }
-double expit(double x) { return x >= 0 ? 1.0 / (1.0 + std::exp(-x)) : std::exp(x) / (1.0 + std::exp(x)); }
+using detail::expit;
+using detail::log1pexp;
 
 double weight(const Design& d, Eigen::Index i) { return d.weights.size() ? d.weights[i] : 1.0; }
 
@@ -188,6 +188,17 @@ WaldTest wald_on_columns(const FitResult& fit, const std::vector<int>& cols, std
 }
 
 }  // namespace
+
+Inference infer(double estimate, double std_error, const FitResult& fit) {
+    Inference r;
+    r.estimate = estimate;
+    r.std_error = std_error;
+    r.statistic = estimate / std_error;
+    r.p_value = std::isnan(r.statistic) ? kNaN : dist::two_sided_p_t(r.statistic, fit.df_inference);
+    r.ci_lower = estimate - fit.critical_value * std_error;
+    r.ci_upper = estimate + fit.critical_value * std_error;
+    return r;
+}
 
 int FitResult::index_of(const std::string& term) const {
     for (std::size_t j = 0; j < coefficients.size(); ++j)

@@ -323,15 +323,7 @@ void refresh_cautions(ProbeResult& r, const FitResult& fit) {
 namespace {
 
 EffectPoint point_at(const EffectFunction& f, double m, const FitResult& fit) {
-    EffectPoint e;
-    e.moderator_value = m;
-    e.effect = f.effect(m);
-    e.std_error = std::sqrt(f.variance(m));
-    e.statistic = e.effect / e.std_error;
-    e.p_value = dist::two_sided_p_t(e.statistic, fit.df_inference);
-    e.ci_lower = e.effect - fit.critical_value * e.std_error;
-    e.ci_upper = e.effect + fit.critical_value * e.std_error;
-    return e;
+    return effect_point(m, infer(f.effect(m), std::sqrt(f.variance(m)), fit));
 }
 
 // The crossover of two simple-regression lines whose gap, as a function of the
@@ -377,6 +369,18 @@ Crossover crossover_of(const EffectFunction& gap, const FitResult& fit, std::pai
 }
 
 }  // namespace
+
+EffectPoint effect_point(double moderator_value, const Inference& i) {
+    EffectPoint e;
+    e.moderator_value = moderator_value;
+    e.effect = i.estimate;
+    e.std_error = i.std_error;
+    e.statistic = i.statistic;
+    e.p_value = i.p_value;
+    e.ci_lower = i.ci_lower;
+    e.ci_upper = i.ci_upper;
+    return e;
+}
 
 ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) {
     if (fit.family == Family::Logistic && (!fit.converged || fit.separation))

@@ -8,6 +8,7 @@
 
 #include "moderato/distributions.hpp"
 #include "moderato/error.hpp"
+#include "logistic_math.hpp"
 #include "text_util.hpp"
 
 namespace moderato {
@@ -18,7 +19,7 @@ namespace {
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
-double expit(double x) { return x >= 0 ? 1.0 / (1.0 + std::exp(-x)) : std::exp(x) / (1.0 + std::exp(x)); }
+using detail::expit;
 double phi(double p) { return p * (1 - p); }               // dP/deta
 double phi_prime(double p) { return p * (1 - p) * (1 - 2 * p); }  // d2P/deta2
 
@@ -85,13 +86,6 @@ double delta_se(const Eigen::VectorXd& grad, const Eigen::MatrixXd& cov) {
     return std::sqrt(grad.dot(V * grad));
 }
 
-void fill_test(double estimate, double se, const FitResult& fit, double& stat, double& p, double& lo, double& hi) {
-    stat = estimate / se;
-    p = dist::two_sided_p_t(stat, fit.df_inference);
-    lo = estimate - fit.critical_value * se;
-    hi = estimate + fit.critical_value * se;
-}
-
 struct Profile {
     std::map<std::string, double> overrides;
     Eigen::Index rows;
@@ -144,12 +138,7 @@ EffectPoint probability_effect(const Design& d, const FitResult& fit, const Scal
                 G.transpose() * p.unaryExpr(&phi)) /
                rows;
     }
-    EffectPoint e;
-    e.moderator_value = m;
-    e.effect = me;
-    e.std_error = delta_se(grad, fit.covariance);
-    fill_test(e.effect, e.std_error, fit, e.statistic, e.p_value, e.ci_lower, e.ci_upper);
-    return e;
+    return effect_point(m, infer(me, delta_se(grad, fit.covariance), fit));
 }
 
 SignificanceRegions probability_regions(const Design& d, const FitResult& fit, const ScaleRequest& request,
@@ -255,8 +244,12 @@ InteractionEffect probability_interaction(const Design& d, const FitResult& fit,
         };
         grad[j] = (4 * D(h / 2) - D(h)) / 3;
     }
-    out.std_error = delta_se(grad, fit.covariance);
-    fill_test(out.estimate, out.std_error, fit, out.statistic, out.p_value, out.ci_lower, out.ci_upper);
+    const Inference i = infer(out.estimate, delta_se(grad, fit.covariance), fit);
+    out.std_error = i.std_error;
+    out.statistic = i.statistic;
+    out.p_value = i.p_value;
+    out.ci_lower = i.ci_lower;
+    out.ci_upper = i.ci_upper;
     return out;
 }
 

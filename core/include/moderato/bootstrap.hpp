@@ -33,7 +33,7 @@
 #include <utility>
 #include <vector>
 
-#include "moderato/csv.hpp"      // moderato::Cancelled
+#include "moderato/error.hpp"    // moderato::Cancelled
 #include "moderato/design.hpp"
 #include "moderato/fit.hpp"
 #include "moderato/model.hpp"

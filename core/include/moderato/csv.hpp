@@ -11,6 +11,7 @@
 #include <string>
 #include <vector>
 
+#include "moderato/error.hpp"
 #include "moderato/table.hpp"
 
 namespace moderato {
@@ -72,8 +73,5 @@ Table read_csv_text_tuned(const std::string& text, const std::string& name,
                           const CsvTuning& tuning);
 }  // namespace detail
 
-struct Cancelled : std::exception {
-    const char* what() const noexcept override { return "cancelled"; }
-};
 
 }  // namespace moderato

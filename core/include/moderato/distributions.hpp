@@ -5,6 +5,7 @@
 namespace moderato::dist {
 
 double normal_quantile(double p);
+double normal_cdf(double x);
 double t_quantile(double p, double df);              // df = inf: normal
 double f_quantile(double p, double df1, double df2); // df2 = inf: chi2(df1)/df1
 double chi2_quantile(double p, double df);

@@ -13,4 +13,9 @@ public:
     explicit InputError(const std::string& message) : std::runtime_error(message) {}
 };
 
+// Long work (reading, bootstrap) stopped because the caller asked it to.
+struct Cancelled : std::exception {
+    const char* what() const noexcept override { return "cancelled"; }
+};
+
 }  // namespace moderato

@@ -93,6 +93,14 @@ struct FitOptions {
     double extended_budget = 2e7;
 };
 
+// One estimated number with its standard error, tested against zero with
+// the fit's reference distribution (t with df_inference, or z) and given a
+// confidence interval at the fit's level.
+struct Inference {
+    double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
+};
+Inference infer(double estimate, double std_error, const FitResult& fit);
+
 // Builds the design and fits it. Throws InputError for bad specifications.
 FitResult fit_model(const Table& table, const ModelSpec& spec, const FitOptions& options = {});
 // Fits a design already built.

@@ -135,6 +135,8 @@ ProbeResult probe(const Design& design, const FitResult& fit, const ProbeSpec& s
 // band); call after changing a result.
 void refresh_cautions(ProbeResult& result, const FitResult& fit);
 
+EffectPoint effect_point(double moderator_value, const Inference& inference);
+
 // The effect function of `focal` in a fitted design with the moderator free
 // and every other column held at `values` (column -> value; categorical
 // columns -> level index; absent numeric columns at their means).
