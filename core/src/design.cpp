@@ -22,10 +22,14 @@ int Design::column_index(const std::string& label) const {
     return -1;
 }
 
-double Design::percentile(const std::string& column, double p) const {
-    int j = -1;
+int Design::main_column(const std::string& column) const {
     for (std::size_t k = 0; k < columns.size(); ++k)
-        if (columns[k].atoms.size() == 1 && columns[k].atoms[0] == Atom{column, "", 1}) j = static_cast<int>(k);
+        if (columns[k].atoms.size() == 1 && columns[k].atoms[0] == Atom{column, "", 1}) return static_cast<int>(k);
+    return -1;
+}
+
+double Design::percentile(const std::string& column, double p) const {
+    const int j = main_column(column);
     if (j < 0 || X.rows() == 0) return std::numeric_limits<double>::quiet_NaN();
     std::vector<double> sorted(X.col(j).data(), X.col(j).data() + X.rows());
     std::sort(sorted.begin(), sorted.end());

@@ -23,12 +23,7 @@ using detail::expit;
 double phi(double p) { return p * (1 - p); }               // dP/deta
 double phi_prime(double p) { return p * (1 - p) * (1 - 2 * p); }  // d2P/deta2
 
-// The main-effect design column of a numeric model column, or -1.
-int main_column(const Design& d, const std::string& column) {
-    for (std::size_t j = 0; j < d.columns.size(); ++j)
-        if (d.columns[j].atoms.size() == 1 && d.columns[j].atoms[0] == Atom{column, "", 1}) return static_cast<int>(j);
-    return -1;
-}
+int main_column(const Design& d, const std::string& column) { return d.main_column(column); }
 
 int dummy_column(const Design& d, const std::string& column, const std::string& level) {
     for (std::size_t j = 0; j < d.columns.size(); ++j)

@@ -78,6 +78,8 @@ struct Design {
     // The p-th percentile (0..100; linear interpolation between order
     // statistics) of a numeric column over the used rows; NaN if absent.
     double percentile(const std::string& column, double p) const;
+    // The design column holding a numeric column's main effect, or -1.
+    int main_column(const std::string& column) const;
     // Index of `level` among a categorical column's levels (reference = 0), or -1.
     int level_index(const std::string& column, const std::string& level) const;
     const CategoricalInfo* categorical(const std::string& column) const;
