@@ -50,6 +50,8 @@ region of significance (Johnson–Neyman), the simultaneous band and crossover p
   --focal-at VALUE         where a squared focal predictor's effect is taken (default its mean)
   --scale link|response    logistic models: log-odds (link) or probability (response) scale
   --average sample|values  response scale: average over the rows (default) or at the means
+  --surface K              also write predictions on a K x K grid over both (numeric) predictors
+  (a categorical focal predictor with a categorical moderator gives the cell table instead)
   --bootstrap N [--seed S] case (or cluster) bootstrap: percentile and BCa intervals for the
                            effects, boundaries and crossover point (N >= 100; same numbers on any core count)
 

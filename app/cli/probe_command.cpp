@@ -5,6 +5,8 @@
 
 #include "commands.hpp"
 #include "model_options.hpp"
+#include "moderato/cells.hpp"
+#include "moderato/cells_report.hpp"
 #include "moderato/error.hpp"
 #include "moderato/fit.hpp"
 #include "moderato/json_writer.hpp"
@@ -20,7 +22,7 @@ namespace moderato::cli {
 int run_probe(const std::vector<std::string>& args) {
     auto valued = model_valued();
     for (const char* o : {"focal", "moderator", "at", "at-percentiles", "second-moderator", "focal-at", "scale",
-                          "average", "bootstrap", "seed"})
+                          "average", "bootstrap", "seed", "surface"})
         valued.insert(o);
     const Arguments a(args, model_flags(), valued, repeatable_options());
     if (!a.positional.empty()) throw InputError("unexpected argument '" + a.positional.front() + "'");
@@ -32,6 +34,31 @@ int run_probe(const std::vector<std::string>& args) {
     ProbeSpec ps;
     ps.focal = a.required("focal");
     ps.moderator = a.required("moderator");
+
+    // Two categorical predictors: the cell table answers the question.
+    if (design.categorical(ps.focal) && design.categorical(ps.moderator)) {
+        for (const char* o : {"at", "at-percentiles", "second-moderator", "focal-at", "bootstrap", "surface"})
+            if (a.has(o))
+                throw InputError(std::string("option --") + o +
+                                 " does not apply when both the focal predictor and the moderator are categorical");
+        const CellTable t = cell_table(design, fit, ps.focal, ps.moderator);
+        if (format == "json") {
+            JsonWriter w;
+            w.begin_object();
+            w.field("moderato_version", MODERATO_VERSION);
+            w.field("data", a.required("data"));
+            w.field("outcome", m.spec.outcome);
+            w.field("family", to_string(fit.family));
+            w.field("n", fit.n);
+            w.key("cell_table");
+            write_cell_table(w, t);
+            w.end_object();
+            std::cout << w.str();
+        } else {
+            std::cout << cell_table_to_text(t);
+        }
+        return 0;
+    }
     if (a.has("at") && a.has("at-percentiles"))
         throw InputError("give either --at or --at-percentiles, not both");
     if (auto at = a.get("at"))
@@ -80,6 +107,11 @@ int run_probe(const std::vector<std::string>& args) {
             : probe(design, fit, ps);
     std::optional<ProbeBootstrap> pb;
     if (boot) pb = bootstrap_probe(design, m.spec, ps, r, *boot);
+    std::optional<SurfaceGrid> surface;
+    if (auto sz = a.get("surface")) {
+        const int k = static_cast<int>(parse_integer(*sz, "surface", 2, 401));
+        surface = surface_grid(design, fit, ps.focal, ps.moderator, k, k);
+    }
     if (format == "json") {
         JsonWriter w;
         w.begin_object();
@@ -93,6 +125,10 @@ int run_probe(const std::vector<std::string>& args) {
         w.key("bootstrap");
         if (pb) write_probe_bootstrap(w, *pb);
         else w.null();
+        if (surface) {
+            w.key("surface");
+            write_surface(w, *surface);
+        }
         w.end_object();
         std::cout << w.str();
     } else {

@@ -139,3 +139,42 @@ TEST(ProbeCli, BootstrapRefusesTooFewRows) {
               "least 10 rows and at least twice as many rows as coefficients (here 10) — add rows or drop terms\n");
     EXPECT_TRUE(r.out.empty());
 }
+
+// Closed form: in the saturated 2 x 2 model each cell's prediction is its
+// observed mean and the difference in differences is the product coefficient.
+TEST(ProbeCli, TwoCategoricalPredictorsGiveTheCellTable) {
+    const std::string data = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects/volunteer-onboarding/volunteers.csv";
+    const std::vector<std::string> model{"--data", data, "--outcome", "hours_q1", "--interaction",
+                                         "onboarding,mentoring", "--format", "json"};
+    std::vector<std::string> fit_args{"fit"}, probe_args{"probe", "--focal", "onboarding", "--moderator", "mentoring"};
+    fit_args.insert(fit_args.end(), model.begin(), model.end());
+    probe_args.insert(probe_args.end(), model.begin(), model.end());
+    const json fit = run_json(fit_args), probe = run_json(probe_args);
+    const auto& t = probe.at("cell_table");
+    ASSERT_EQ(t.at("cells").size(), 4u);
+    for (const auto& c : t.at("cells"))
+        EXPECT_NEAR(c.at("estimate").get<double>(), c.at("observed_mean").get<double>(), 1e-10);
+    ASSERT_EQ(t.at("interaction_contrasts").size(), 1u);
+    EXPECT_NEAR(t.at("interaction_contrasts").at(0).at("estimate").get<double>(),
+                coefficient(fit, "onboarding=online×mentoring=no mentor"), 1e-10);
+}
+
+// Closed form: the surface is b0 + b_x x + b_z z + b_xz x z at each grid point.
+TEST(ProbeCli, SurfaceGridIsThePredictionOverBothPredictors) {
+    const std::vector<std::string> model{"--data", kOrchard, "--outcome", "yield_t_ha", "--interaction",
+                                         "nitrogen_kg_ha,soil_moisture_pct", "--format", "json"};
+    std::vector<std::string> fit_args{"fit"}, probe_args{"probe", "--focal", "nitrogen_kg_ha", "--moderator",
+                                                         "soil_moisture_pct", "--surface", "5"};
+    fit_args.insert(fit_args.end(), model.begin(), model.end());
+    probe_args.insert(probe_args.end(), model.begin(), model.end());
+    const json fit = run_json(fit_args), probe = run_json(probe_args);
+    const auto& s = probe.at("surface");
+    const double b0 = coefficient(fit, "intercept"), bx = coefficient(fit, "nitrogen_kg_ha"),
+                 bz = coefficient(fit, "soil_moisture_pct"), bxz = coefficient(fit, "nitrogen_kg_ha×soil_moisture_pct");
+    ASSERT_EQ(s.at("x_values").size(), 5u);
+    for (std::size_t k = 0; k < 5; ++k)
+        for (std::size_t i = 0; i < 5; ++i) {
+            const double x = s.at("x_values").at(i), z = s.at("z_values").at(k);
+            EXPECT_NEAR(s.at("predicted").at(k).at(i).get<double>(), b0 + bx * x + bz * z + bxz * x * z, 1e-9);
+        }
+}

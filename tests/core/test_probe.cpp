@@ -230,3 +230,21 @@ TEST(Probe, BadRequestsAreExplained) {
     }
     EXPECT_THROW(probe(d, f, spec_of("x", "w")), InputError);
 }
+
+// Closed form: with x, x^2 and x×z, the effect of x at x0 and z is
+// b_x + 2 b_xx x0 + b_xz z.
+TEST(Probe, SquaredFocalIsEvaluatedAtTheChosenFocalValue) {
+    const Table t = simulate(400, 6, 0.1);
+    ModelSpec s;
+    s.outcome = "y";
+    s.interactions = {{"x", "z"}};
+    s.polynomial["x"] = 2;
+    const Design d = build_design(t, s);
+    const FitResult f = fit_design(d, s);
+    ProbeSpec ps = spec_of("x", "z");
+    ps.focal_value = 1.5;
+    ps.at = {4.0};
+    const ProbeResult r = probe(d, f, ps);
+    const double expected = f.beta[f.index_of("x")] + 2 * f.beta[f.index_of("x^2")] * 1.5 + f.beta[f.index_of("x×z")] * 4.0;
+    EXPECT_NEAR(r.effects[0].effect, expected, 1e-12);
+}
