@@ -248,7 +248,9 @@ private:
 // Runs fn(i) for i in [0, count) in waves, reporting progress after each.
 template <class Fn>
 void in_waves(int count, unsigned threads, int& done, int total, const BootstrapOptions& options, Fn&& fn) {
-    const int wave = std::max(16, 8 * static_cast<int>(threads));
+    // Large waves keep both cores busy (the join at the end of a wave idles one
+    // core for up to a fit); progress still comes every few dozen fits.
+    const int wave = std::max(64, 32 * static_cast<int>(threads));
     for (int start = 0; start < count; start += wave) {
         const int len = std::min(wave, count - start);
         detail::parallel_for(static_cast<std::size_t>(len), threads,
