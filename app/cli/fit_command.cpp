@@ -17,11 +17,7 @@ int run_fit(const std::vector<std::string>& args) {
     FitResult fit = fit_model(m.table, m.spec);
     fit.notes.insert(fit.notes.begin(), m.notes.begin(), m.notes.end());
     if (format == "json") {
-        JsonWriter w;
-        w.begin_object();
-        w.field("moderato_version", MODERATO_VERSION);
-        w.field("data", a.required("data"));
-        w.field("outcome", m.spec.outcome);
+        JsonWriter w = begin_output(a, m.spec);
         write_fit_fields(w, fit);
         w.end_object();
         std::cout << w.str();

@@ -57,6 +57,15 @@ std::set<std::string> model_valued() {
     return s;
 }
 
+JsonWriter begin_output(const Arguments& args, const ModelSpec& spec) {
+    JsonWriter w;
+    w.begin_object();
+    w.field("moderato_version", MODERATO_VERSION);
+    w.field("data", args.required("data"));
+    w.field("outcome", spec.outcome);
+    return w;
+}
+
 std::string output_format(const Arguments& args) {
     const std::string f = args.get("format").value_or("text");
     if (f != "json" && f != "text") throw InputError("option --format must be json or text, got '" + f + "'");

@@ -8,6 +8,7 @@
 
 #include "arguments.hpp"
 #include "moderato/csv.hpp"
+#include "moderato/json_writer.hpp"
 #include "moderato/model.hpp"
 #include "moderato/table.hpp"
 
@@ -34,6 +35,10 @@ struct LoadedModel {
 // --no-intercept, --family, --se, --cluster, --weights, --level, --reference,
 // --test).
 LoadedModel load_model(const Arguments& args);
+
+// Opens a JSON document with what every model-based output starts with:
+// the program version, the data file and the outcome.
+JsonWriter begin_output(const Arguments& args, const ModelSpec& spec);
 
 // "json" (default "text" when absent); usage error otherwise.
 std::string output_format(const Arguments& args);

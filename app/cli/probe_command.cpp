@@ -43,11 +43,7 @@ int run_probe(const std::vector<std::string>& args) {
                                  " does not apply when both the focal predictor and the moderator are categorical");
         const CellTable t = cell_table(design, fit, ps.focal, ps.moderator);
         if (format == "json") {
-            JsonWriter w;
-            w.begin_object();
-            w.field("moderato_version", MODERATO_VERSION);
-            w.field("data", a.required("data"));
-            w.field("outcome", m.spec.outcome);
+            JsonWriter w = begin_output(a, m.spec);
             w.field("family", to_string(fit.family));
             w.field("n", fit.n);
             w.key("cell_table");
@@ -113,11 +109,7 @@ int run_probe(const std::vector<std::string>& args) {
         surface = surface_grid(design, fit, ps.focal, ps.moderator, k, k);
     }
     if (format == "json") {
-        JsonWriter w;
-        w.begin_object();
-        w.field("moderato_version", MODERATO_VERSION);
-        w.field("data", a.required("data"));
-        w.field("outcome", m.spec.outcome);
+        JsonWriter w = begin_output(a, m.spec);
         w.field("family", to_string(fit.family));
         w.field("se_type", to_string(fit.se));
         w.field("n", fit.n);

@@ -20,14 +20,19 @@ struct Scores {
     double coef = 15, se = 15, sd = 15, r2 = 15;
 };
 
-Scores score_core(const NistCase& c) {
-    const Table t = read_csv(c.csv.string());
+// The NIST model as a specification: y on the predictors, or on x, x^2, ... x^d.
+ModelSpec nist_spec(const NistCase& c) {
     ModelSpec s;
     s.outcome = "y";
     s.intercept = c.intercept;
     if (c.degree < 0) s.predictors = c.predictors;
     else s.polynomial["x"] = c.degree;
-    const FitResult f = fit_model(t, s);
+    return s;
+}
+
+Scores score_core(const NistCase& c) {
+    const Table t = read_csv(c.csv.string());
+    const FitResult f = fit_model(t, nist_spec(c));
     Scores sc;
     EXPECT_EQ(f.coefficients.size(), c.coefficients.size()) << c.name;
     EXPECT_TRUE(f.aliased.empty()) << c.name << ": no NIST design is rank deficient";
@@ -68,13 +73,7 @@ TEST(NistStrd, BlockedDoublePathOnModerateProblems) {
     if (!nist_available()) GTEST_SKIP() << nist_skip_message();
     for (const std::string name : {"Norris", "NoInt1", "NoInt2", "Longley"}) {
         const NistCase c = load_nist(name);
-        const Table t = read_csv(c.csv.string());
-        ModelSpec s;
-        s.outcome = "y";
-        s.intercept = c.intercept;
-        if (c.degree < 0) s.predictors = c.predictors;
-        else s.polynomial["x"] = c.degree;
-        const Design d = build_design(t, s);
+        const Design d = build_design(read_csv(c.csv.string()), nist_spec(c));
         LeastSquaresOptions o;
         o.extended_budget = 0;  // force the double-precision blocked path
         const auto ls = least_squares(d.X, d.y, {}, o);
