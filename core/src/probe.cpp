@@ -420,8 +420,31 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     if (!std::isnan(spec.focal_value)) values[spec.focal] = spec.focal_value;
     if (!spec.second_moderator.empty()) {
         if (!std::isnan(spec.second_value)) values[spec.second_moderator] = spec.second_value;
-        r.notes.push_back(spec.second_moderator + " held at " + fmt_num(values[spec.second_moderator]));
+        r.notes.push_back(spec.second_moderator + " held at " + detail::fmt_short(values[spec.second_moderator]));
     }
+    // Say where every other column the effect depends on is held.
+    for (const auto& t : d.terms) {
+        if (t.factors.size() < 2) continue;
+        bool has_focal = false;
+        for (const auto& f : t.factors) has_focal |= f.first == spec.focal;
+        if (!has_focal) continue;
+        for (const auto& f : t.factors) {
+            const std::string& c = f.first;
+            if (c == spec.focal || c == spec.moderator || c == spec.second_moderator) continue;
+            const std::string note =
+                c + " also changes the effect of " + spec.focal + "; it is held at " +
+                (d.categorical(c) ? "its reference level '" + d.categorical(c)->reference + "'"
+                                  : "its mean " + detail::fmt_short(values[c]));
+            if (std::find(r.notes.begin(), r.notes.end(), note) == r.notes.end()) r.notes.push_back(note);
+        }
+    }
+    for (const auto& t : d.terms)
+        if (t.factors.size() == 1 && t.factors[0].first == spec.focal && t.factors[0].second > 1) {
+            r.notes.push_back("with " + t.label + " in the model the effect of " + spec.focal + " depends on " +
+                              spec.focal + " itself; it is taken at " + spec.focal + " = " +
+                              detail::fmt_short(values[spec.focal]));
+            break;
+        }
 
     const CategoricalInfo* cat = d.categorical(spec.moderator);
     r.categorical_moderator = cat != nullptr;

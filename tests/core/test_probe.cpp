@@ -3,6 +3,7 @@
 // form) or from a brute-force scan of the t statistic; data are seeded random.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <random>
 
@@ -247,4 +248,18 @@ TEST(Probe, SquaredFocalIsEvaluatedAtTheChosenFocalValue) {
     const ProbeResult r = probe(d, f, ps);
     const double expected = f.beta[f.index_of("x")] + 2 * f.beta[f.index_of("x^2")] * 1.5 + f.beta[f.index_of("x×z")] * 4.0;
     EXPECT_NEAR(r.effects[0].effect, expected, 1e-12);
+}
+
+// Common practice: a reader must be told where every other column that
+// changes the effect is held (here g, whose mean is exactly 0.5 by design).
+TEST(Probe, NotesSayWhereOtherModeratorsAreHeld) {
+    const Table t = simulate(100, 7, 0.1);
+    ModelSpec s;
+    s.outcome = "y";
+    s.interactions = {{"x", "z", "g"}};
+    const Design d = build_design(t, s);
+    const FitResult f = fit_design(d, s);
+    const ProbeResult r = probe(d, f, spec_of("x", "z"));
+    EXPECT_NE(std::find(r.notes.begin(), r.notes.end(), "g also changes the effect of x; it is held at its mean 0.5"),
+              r.notes.end());
 }
