@@ -55,6 +55,9 @@ int run_probe(const std::vector<std::string>& args) {
         }
         return 0;
     }
+    if (design.categorical(ps.moderator) && (a.has("at") || a.has("at-percentiles")))
+        throw InputError("--at and --at-percentiles need a numeric moderator; '" + ps.moderator +
+                         "' is categorical, and its effects are given at every level");
     if (a.has("at") && a.has("at-percentiles"))
         throw InputError("give either --at or --at-percentiles, not both");
     if (auto at = a.get("at"))

@@ -92,6 +92,10 @@ TEST(ProbeCli, RefusalsAreExplained) {
         {{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,loyalty_member",
           "--focal", "discount_pct", "--moderator", "shop"},
          "moderato-cli: moderator 'shop' is not in the model"},
+        {{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,shop", "--focal",
+          "discount_pct", "--moderator", "shop", "--at", "1,2"},
+         "moderato-cli: --at and --at-percentiles need a numeric moderator; 'shop' is categorical, and its effects "
+         "are given at every level"},
         {{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,loyalty_member",
           "--focal", "discount_pct", "--moderator", "loyalty_member", "--scale", "response"},
          "moderato-cli: --scale response applies to logistic models (--family logistic); a linear model's effects "
