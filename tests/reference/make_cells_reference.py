@@ -51,7 +51,6 @@ import math
 import os
 import subprocess
 import sys
-import tempfile
 
 import numpy as np
 import pandas as pd
@@ -60,6 +59,8 @@ import scipy.special
 import scipy.stats
 import statsmodels
 import statsmodels.api as sm
+
+from reference_io import atomic_write, write_csv_roundtrip
 
 BASE_SEED = 20240918
 COMMAND = "/usr/bin/python3 tests/reference/make_cells_reference.py --out DIR"
@@ -386,34 +387,6 @@ CASES = [("cells_2x3", sim_cells_2x3, fit_cells_2x3),
 
 # --------------------------------------------------------------------------
 # output
-
-
-def atomic_write(path, text):
-    d = os.path.dirname(path)
-    fd, tmp = tempfile.mkstemp(dir=d, prefix=".tmp-", suffix=os.path.basename(path))
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as f:
-            f.write(text)
-        os.chmod(tmp, 0o644)
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
-
-
-def write_csv_roundtrip(df, path):
-    text = df.to_csv(index=False, float_format=lambda v: repr(float(v)), lineterminator="\n")
-    atomic_write(path, text)
-    back = pd.read_csv(path, float_precision="round_trip")
-    for c in df.columns:
-        a, b = df[c].to_numpy(), back[c].to_numpy()
-        if a.dtype.kind == "f":
-            assert np.array_equal(a, b.astype(float)), f"{path}: column {c} does not round-trip"
-        else:
-            assert [str(v) for v in a] == [str(v) for v in b], f"{path}: column {c} does not round-trip"
-            back[c] = back[c].astype(str)
-    return back
 
 
 def all_finite(obj, where):

@@ -51,7 +51,6 @@ import math
 import os
 import subprocess
 import sys
-import tempfile
 
 import numpy as np
 import pandas as pd
@@ -59,6 +58,8 @@ import scipy
 import scipy.stats
 import statsmodels
 import statsmodels.api as sm
+
+from reference_io import atomic_write, write_csv_roundtrip
 
 BASE_SEED = 20240917
 COMMAND = "/usr/bin/python3 tests/reference/make_statsmodels_reference.py --out DIR"
@@ -877,40 +878,6 @@ CASES = [
 
 # --------------------------------------------------------------------------
 # output
-
-
-def atomic_write(path, text):
-    d = os.path.dirname(path)
-    fd, tmp = tempfile.mkstemp(dir=d, prefix=".tmp-", suffix=os.path.basename(path))
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as f:
-            f.write(text)
-        os.chmod(tmp, 0o644)
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
-
-
-def write_csv_roundtrip(df, path):
-    # shortest round-trip representation of each double (Python repr): the
-    # same doubles as '%.17g' without its noise digits (317.6, not 317.60000000000002)
-    text = df.to_csv(index=False, float_format=lambda v: repr(float(v)), lineterminator="\n")
-    atomic_write(path, text)
-    back = pd.read_csv(path, float_precision="round_trip")
-    assert list(back.columns) == list(df.columns)
-    for c in df.columns:
-        a, b = df[c].to_numpy(), back[c].to_numpy()
-        if a.dtype.kind == "f" or b.dtype.kind == "f":
-            assert np.array_equal(a.astype(float), b.astype(float)), f"{path}: column {c} does not round-trip"
-        else:
-            assert [str(v) for v in a] == [str(v) for v in b], f"{path}: column {c} does not round-trip"
-    # fit on what a reader of the CSV sees
-    for c in df.columns:
-        if df[c].dtype.kind == "O":
-            back[c] = back[c].astype(str)
-    return back
 
 
 def all_finite(obj, where="fixture"):

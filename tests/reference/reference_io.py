@@ -1,0 +1,42 @@
+"""Output helpers shared by the reference scripts: files are written
+atomically, and a CSV is checked to read back as exactly the doubles that
+were fitted."""
+import os
+import tempfile
+
+import numpy as np
+import pandas as pd
+
+
+def atomic_write(path, text):
+    d = os.path.dirname(path)
+    fd, tmp = tempfile.mkstemp(dir=d, prefix=".tmp-", suffix=os.path.basename(path))
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as f:
+            f.write(text)
+        os.chmod(tmp, 0o644)
+        os.replace(tmp, path)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise
+
+
+def write_csv_roundtrip(df, path):
+    # shortest round-trip representation of each double (Python repr): the
+    # same doubles as '%.17g' without its noise digits (317.6, not 317.60000000000002)
+    text = df.to_csv(index=False, float_format=lambda v: repr(float(v)), lineterminator="\n")
+    atomic_write(path, text)
+    back = pd.read_csv(path, float_precision="round_trip")
+    assert list(back.columns) == list(df.columns)
+    for c in df.columns:
+        a, b = df[c].to_numpy(), back[c].to_numpy()
+        if a.dtype.kind == "f" or b.dtype.kind == "f":
+            assert np.array_equal(a.astype(float), b.astype(float)), f"{path}: column {c} does not round-trip"
+        else:
+            assert [str(v) for v in a] == [str(v) for v in b], f"{path}: column {c} does not round-trip"
+    # fit on what a reader of the CSV sees
+    for c in df.columns:
+        if df[c].dtype.kind == "O":
+            back[c] = back[c].astype(str)
+    return back
