@@ -22,6 +22,7 @@
 #include <string>
 #include <vector>
 
+#include "cli_json.hpp"
 #include "cli_runner.hpp"
 
 namespace {
@@ -44,15 +45,7 @@ json fit_json(std::vector<std::string> args) {
     args.insert(args.begin(), "fit");
     args.push_back("--format");
     args.push_back("json");
-    const RunResult r = run_in_data(args);
-    EXPECT_TRUE(r.exited && r.exit_code == 0) << r.describe();
-    EXPECT_EQ(r.err, "");
-    try {
-        return json::parse(r.out);
-    } catch (const std::exception& e) {
-        ADD_FAILURE() << "stdout is not JSON: " << e.what() << "\n" << r.out;
-        return json::object();
-    }
+    return moderato::test::json_output(run_in_data(args));
 }
 
 std::vector<std::string> terms_of(const json& j) {

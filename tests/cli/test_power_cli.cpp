@@ -13,6 +13,7 @@
 #include <string>
 #include <vector>
 
+#include "cli_json.hpp"
 #include "cli_runner.hpp"
 #include "moderato/power.hpp"
 
@@ -26,15 +27,7 @@ json power_json(std::vector<std::string> args) {
     args.insert(args.begin(), "power");
     args.push_back("--format");
     args.push_back("json");
-    const RunResult r = run_cli(args);
-    EXPECT_TRUE(r.exited && r.exit_code == 0) << r.describe();
-    EXPECT_EQ(r.err, "");
-    try {
-        return json::parse(r.out);
-    } catch (const std::exception& e) {
-        ADD_FAILURE() << "stdout is not JSON: " << e.what() << "\n" << r.out;
-        return json::object();
-    }
+    return moderato::test::json_output(run_cli(args));
 }
 
 // The first case of `section` in the scipy fixture for which `pick` is true.

@@ -6,6 +6,7 @@
 #include <cmath>
 #include <nlohmann/json.hpp>
 
+#include "cli/cli_json.hpp"
 #include "cli/cli_runner.hpp"
 
 using moderato::test::run_cli;
@@ -17,9 +18,7 @@ const std::string kData = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-p
 const std::string kOrchard = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects/orchard-nitrogen/plots.csv";
 
 json run_json(const std::vector<std::string>& args) {
-    auto r = run_cli(args);
-    EXPECT_TRUE(r.exited && r.exit_code == 0) << r.describe();
-    return json::parse(r.out);
+    return moderato::test::json_output(run_cli(args));
 }
 
 double coefficient(const json& fit, const std::string& term) {
