@@ -161,9 +161,7 @@ double EffectFunction::variance(double m) const {
     return s;
 }
 
-SignificanceRegions significance_regions(const EffectFunction& f, double q, double scan_lo, double scan_hi) {
-    (void)scan_lo;
-    (void)scan_hi;
+SignificanceRegions significance_regions(const EffectFunction& f, double q) {
     const auto& a = f.effect_coefficients();
     const auto& v = f.variance_coefficients();
     const double q2 = q * q;
@@ -335,7 +333,7 @@ Crossover crossover_of(const EffectFunction& gap, const FitResult& fit, std::pai
     c.groups = std::move(groups);
     c.gap = gap;
     const auto& a = gap.effect_coefficients();
-    if (gap.degree() <= 1) c.gap_regions = significance_regions(gap, fit.critical_value);
+    c.gap_regions = significance_regions(gap, fit.critical_value);
     if (gap.degree() != 1 || a[1] == 0 || std::isnan(a[1])) {
         c.ci_kind = "none";
         c.form = "ordinal";
@@ -344,8 +342,7 @@ Crossover crossover_of(const EffectFunction& gap, const FitResult& fit, std::pai
     c.focal_value = -a[0] / a[1];
     c.within_observed_range = c.focal_value >= focal_range.first && c.focal_value <= focal_range.second;
     c.form = c.within_observed_range ? "disordinal" : "ordinal";
-    const auto sig = significance_regions(gap, fit.critical_value);
-    c.gap_regions = sig;
+    const SignificanceRegions& sig = c.gap_regions;
     // Fieller set = complement of the significant regions.
     if (sig.significant.empty()) {
         c.ci_kind = "whole line";
@@ -489,11 +486,11 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
         r.notes.push_back(spec.moderator + " takes only the values 0 and 1: the effects at 0 and 1 are the whole "
                           "story, so no region of significance over " + spec.moderator + " is reported");
     } else {
-        r.johnson_neyman = significance_regions(f, fit.critical_value, ms.min, ms.max);
+        r.johnson_neyman = significance_regions(f, fit.critical_value);
         for (double b : r.johnson_neyman->boundaries) r.jn_beyond_data.push_back(b < ms.min || b > ms.max);
         const double dof = static_cast<double>(f.degree() + 1);
         const double band_q = std::sqrt(dof * dist::f_quantile(fit.level, dof, fit.df_inference));
-        r.simultaneous = significance_regions(f, band_q, ms.min, ms.max);
+        r.simultaneous = significance_regions(f, band_q);
     }
 
     // Lines at different moderator values meet where the moderator's own

@@ -113,8 +113,8 @@ void BM_ProbeFrame(benchmark::State& state) {
     const double band_q = std::sqrt(dof * moderato::dist::f_quantile(m.fit.level, dof, m.fit.df_inference));
     std::vector<double> effect(kFrameEffects), se(kFrameEffects);
     for (auto _ : state) {
-        auto jn = moderato::significance_regions(f, m.fit.critical_value, ms.min, ms.max);
-        auto band = moderato::significance_regions(f, band_q, ms.min, ms.max);
+        auto jn = moderato::significance_regions(f, m.fit.critical_value);
+        auto band = moderato::significance_regions(f, band_q);
         benchmark::DoNotOptimize(jn);
         benchmark::DoNotOptimize(band);
         for (int k = 0; k < kFrameEffects; ++k) {
@@ -128,9 +128,9 @@ void BM_ProbeFrame(benchmark::State& state) {
     }
     // What the frame found (the same every iteration): region boundaries.
     state.counters["jn_bounds"] =
-        static_cast<double>(moderato::significance_regions(f, m.fit.critical_value, ms.min, ms.max).boundaries.size());
+        static_cast<double>(moderato::significance_regions(f, m.fit.critical_value).boundaries.size());
     state.counters["band_bounds"] =
-        static_cast<double>(moderato::significance_regions(f, band_q, ms.min, ms.max).boundaries.size());
+        static_cast<double>(moderato::significance_regions(f, band_q).boundaries.size());
 }
 
 void BM_ProbeEffectFunction(benchmark::State& state) {

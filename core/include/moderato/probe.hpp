@@ -62,10 +62,9 @@ struct SignificanceRegions {
 };
 
 // Exact for effects linear in m (roots of a quadratic, every case); for
-// higher degrees, a fine scan over [scan_lo, scan_hi] refined by a bracketing
-// root finder.
-SignificanceRegions significance_regions(const EffectFunction& f, double critical_value, double scan_lo = 0,
-                                         double scan_hi = 0);
+// higher degrees, the real roots of the polynomial effect^2 - q^2 var (from
+// its companion matrix) polished by a bracketing root finder.
+SignificanceRegions significance_regions(const EffectFunction& f, double critical_value);
 
 struct ProbeSpec {
     std::string focal;
