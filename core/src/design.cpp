@@ -28,6 +28,11 @@ int Design::main_column(const std::string& column) const {
     return -1;
 }
 
+bool Design::is_binary(const std::string& column) const {
+    const int j = main_column(column);
+    return j >= 0 && ((X.col(j).array() == 0.0) || (X.col(j).array() == 1.0)).all();
+}
+
 double Design::percentile(const std::string& column, double p) const {
     const int j = main_column(column);
     if (j < 0 || X.rows() == 0) return std::numeric_limits<double>::quiet_NaN();

@@ -472,9 +472,7 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     r.moderator_sd = ms.sd;
     const EffectFunction f = effect_function(d, fit, spec.focal, spec.moderator, values);
     r.effect_function = f;
-    const int mj = d.column_index(spec.moderator);
-    const bool binary =
-        mj >= 0 && ((d.X.col(mj).array() == 0.0) || (d.X.col(mj).array() == 1.0)).all();
+    const bool binary = d.is_binary(spec.moderator);
     std::vector<double> at = spec.at;
     if (at.empty()) at = binary ? std::vector<double>{0.0, 1.0} : std::vector<double>{ms.mean - ms.sd, ms.mean, ms.mean + ms.sd};
     for (double m : at) {

@@ -102,12 +102,6 @@ void check_request(const Design& d, const FitResult& fit, const ScaleRequest& r)
 
 }  // namespace
 
-bool is_binary(const Design& d, const std::string& column) {
-    const int j = main_column(d, column);
-    if (j < 0) return false;
-    return ((d.X.col(j).array() == 0.0) || (d.X.col(j).array() == 1.0)).all();
-}
-
 EffectPoint probability_effect(const Design& d, const FitResult& fit, const ScaleRequest& request, double m) {
     check_request(d, fit, request);
     Profile pr = profile(d, request);
@@ -116,7 +110,7 @@ EffectPoint probability_effect(const Design& d, const FitResult& fit, const Scal
     const double rows = static_cast<double>(pr.rows);
     double me = 0;
     Eigen::VectorXd grad = Eigen::VectorXd::Zero(b.size());
-    if (is_binary(d, request.focal)) {  // discrete change from 0 to 1
+    if (d.is_binary(request.focal)) {  // discrete change from 0 to 1
         auto o1 = pr.overrides, o0 = pr.overrides;
         o1[request.focal] = 1;
         o0[request.focal] = 0;
@@ -173,7 +167,7 @@ InteractionEffect probability_interaction(const Design& d, const FitResult& fit,
     if (request.moderator.empty() || main_column(d, request.moderator) < 0)
         throw InputError("the interaction effect on the probability scale needs a numeric (or 0/1) moderator");
     const Profile pr = profile(d, request);
-    const bool fb = is_binary(d, request.focal), mb = is_binary(d, request.moderator);
+    const bool fb = d.is_binary(request.focal), mb = d.is_binary(request.moderator);
     const std::string& F = request.focal;
     const std::string& M = request.moderator;
     const double rows = static_cast<double>(pr.rows);
@@ -278,7 +272,7 @@ ProbeResult probe_response(const Design& d, const FitResult& fit, const ProbeSpe
     r.notes.push_back(std::string("effects on P(") + d.outcome + " = 1), " +
                       (averaging == Averaging::Sample ? "averaged over the observations"
                                                       : "at the covariates' means and reference levels") +
-                      "; " + (is_binary(d, spec.focal) ? "discrete change of " + spec.focal + " from 0 to 1"
+                      "; " + (d.is_binary(spec.focal) ? "discrete change of " + spec.focal + " from 0 to 1"
                                                           : "derivative with respect to " + spec.focal));
     r.notes.push_back("no simultaneous band on the probability scale (the effect is not linear in the coefficients)");
     r.notes.push_back("crossover points are where the log-odds lines cross, which is where the probability curves cross");

@@ -80,6 +80,8 @@ struct Design {
     double percentile(const std::string& column, double p) const;
     // The design column holding a numeric column's main effect, or -1.
     int main_column(const std::string& column) const;
+    // Whether a numeric model column takes only the values 0 and 1 here.
+    bool is_binary(const std::string& column) const;
     // Index of `level` among a categorical column's levels (reference = 0), or -1.
     int level_index(const std::string& column, const std::string& level) const;
     const CategoricalInfo* categorical(const std::string& column) const;

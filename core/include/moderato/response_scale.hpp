@@ -50,7 +50,4 @@ InteractionEffect probability_interaction(const Design& d, const FitResult& fit,
 // No simultaneous band: the effect is not linear in the coefficients.
 ProbeResult probe_response(const Design& d, const FitResult& fit, const ProbeSpec& spec, Averaging averaging);
 
-// Whether a numeric model column takes only the values 0 and 1 in the data.
-bool is_binary(const Design& d, const std::string& column);
-
 }  // namespace moderato
