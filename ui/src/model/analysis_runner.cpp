@@ -1,0 +1,128 @@
+#include "model/analysis_runner.hpp"
+
+#include <QCoreApplication>
+#include <QFutureWatcher>
+#include <QPointer>
+#include <QThread>
+#include <QtConcurrent/QtConcurrentRun>
+
+#include "model/project_document.hpp"
+#include "moderato/error.hpp"
+
+namespace moderato::ui {
+
+namespace {
+
+struct Outcome {
+    std::shared_ptr<const AnalysisRun> run;
+    QString error;
+};
+
+// Fits (or only re-probes a cached fit) and turns every failure into a message.
+Outcome compute(const Analysis& a, std::shared_ptr<const Table> table, std::shared_ptr<const AnalysisRun> cached) {
+    Outcome out;
+    try {
+        if (cached) {
+            auto run = std::make_shared<AnalysisRun>(*cached);
+            probe_analysis(*run, a);
+            out.run = run;
+        } else {
+            out.run = std::make_shared<const AnalysisRun>(run_analysis(table, a));
+        }
+    } catch (const InputError& e) {
+        out.error = QString::fromStdString(e.what());
+    } catch (const std::exception& e) {
+        out.error = QCoreApplication::translate("AnalysisRunner", "Internal error: %1").arg(QString::fromUtf8(e.what()));
+    }
+    return out;
+}
+
+}  // namespace
+
+AnalysisRunner::AnalysisRunner(ProjectDocument* doc, QObject* parent) : QObject(parent), doc_(doc) {
+    connect(doc_, &ProjectDocument::analysisChanged, this, &AnalysisRunner::refresh);
+    connect(doc_, &ProjectDocument::projectReset, this, [this] {
+        waitForIdle();
+        entries_.clear();
+        for (const auto& a : doc_->project().analyses) refresh(QString::fromStdString(a.id));
+    });
+}
+
+std::shared_ptr<const AnalysisRun> AnalysisRunner::result(const QString& id) const {
+    const auto it = entries_.find(id);
+    return it == entries_.end() ? nullptr : it->second.run;
+}
+
+QString AnalysisRunner::error(const QString& id) const {
+    const auto it = entries_.find(id);
+    return it == entries_.end() ? QString() : it->second.error;
+}
+
+bool AnalysisRunner::busy(const QString& id) const {
+    const auto it = entries_.find(id);
+    return it != entries_.end() && it->second.running > 0;
+}
+
+void AnalysisRunner::refresh(const QString& id) {
+    const Analysis* found = doc_->analysis(id);
+    if (!found) {
+        entries_.erase(id);
+        Q_EMIT resultChanged(id);
+        return;
+    }
+    const Analysis a = *found;
+    auto table = doc_->table(a.dataset);
+    Entry& e = entries_[id];
+    if (e.valid && e.table == table && same_probe(e.settings, a)) {
+        e.settings = a;  // only view settings changed
+        return;
+    }
+    std::shared_ptr<const AnalysisRun> cached;
+    if (e.valid && e.table == table && same_model(e.settings, a) && e.run) cached = e.run;
+    const int generation = ++e.generation;
+    const double cells = table ? static_cast<double>(table->rows()) * static_cast<double>(table->cols()) : 0.0;
+    if (cached || cells < threshold_) {
+        const Outcome o = compute(a, table, cached);
+        finish(id, generation, a, table, o.run, o.error);
+        return;
+    }
+    ++e.running;
+    if (e.running == 1) Q_EMIT busyChanged(id, true);
+    auto* watcher = new QFutureWatcher<Outcome>(this);
+    connect(watcher, &QFutureWatcher<Outcome>::finished, this, [this, watcher, id, generation, a, table] {
+        const Outcome o = watcher->result();
+        watcher->deleteLater();
+        auto it = entries_.find(id);
+        if (it == entries_.end()) return;
+        if (--it->second.running == 0) Q_EMIT busyChanged(id, false);
+        finish(id, generation, a, table, o.run, o.error);
+    });
+    watcher->setFuture(QtConcurrent::run([a, table] { return compute(a, table, nullptr); }));
+}
+
+void AnalysisRunner::finish(const QString& id, int generation, const Analysis& a, std::shared_ptr<const Table> table,
+                            std::shared_ptr<const AnalysisRun> run, const QString& error) {
+    auto it = entries_.find(id);
+    if (it == entries_.end() || it->second.generation != generation) return;  // a newer request is on its way
+    Entry& e = it->second;
+    e.settings = a;
+    e.table = std::move(table);
+    e.run = std::move(run);
+    e.error = error;
+    e.valid = true;
+    Q_EMIT resultChanged(id);
+}
+
+void AnalysisRunner::waitForIdle() {
+    auto anyRunning = [this] {
+        for (const auto& [id, e] : entries_)
+            if (e.running > 0) return true;
+        return false;
+    };
+    while (anyRunning()) {
+        QCoreApplication::processEvents(QEventLoop::AllEvents, 20);
+        QThread::msleep(2);
+    }
+}
+
+}  // namespace moderato::ui

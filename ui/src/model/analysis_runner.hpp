@@ -1,0 +1,59 @@
+// Keeps each analysis's computed run up to date with its settings. Small
+// data are fitted on the UI thread (a fit takes milliseconds); big data are
+// fitted in a worker thread and the newest request wins. A change that
+// touches only the probe reuses the cached design and fit.
+#pragma once
+
+#include <QObject>
+#include <QString>
+#include <map>
+#include <memory>
+
+#include "moderato/analysis_run.hpp"
+
+namespace moderato::ui {
+
+class ProjectDocument;
+
+class AnalysisRunner : public QObject {
+    Q_OBJECT
+public:
+    explicit AnalysisRunner(ProjectDocument* doc, QObject* parent = nullptr);
+
+    // The latest run of an analysis (nullptr when none or failed).
+    std::shared_ptr<const AnalysisRun> result(const QString& id) const;
+    // Why the latest run failed (empty when it did not).
+    QString error(const QString& id) const;
+    bool busy(const QString& id) const;
+
+    // Rows times design columns above which fitting moves off the UI thread.
+    void setBackgroundThreshold(double cells) { threshold_ = cells; }
+
+    // Recomputes now (or starts the worker) if the settings changed since the last run.
+    void refresh(const QString& id);
+    // Blocks until no worker is running (tests, shutdown).
+    void waitForIdle();
+
+Q_SIGNALS:
+    void resultChanged(const QString& id);   // result() or error() changed
+    void busyChanged(const QString& id, bool busy);
+
+private:
+    struct Entry {
+        Analysis settings;                       // what the current result was computed from
+        std::shared_ptr<const Table> table;      // ... and on which table
+        std::shared_ptr<const AnalysisRun> run;
+        QString error;
+        bool valid = false;                      // settings/table describe a finished computation
+        int generation = 0;                      // newest request
+        int running = 0;                         // workers in flight
+    };
+    void finish(const QString& id, int generation, const Analysis& a, std::shared_ptr<const Table> table,
+                std::shared_ptr<const AnalysisRun> run, const QString& error);
+
+    ProjectDocument* doc_;
+    std::map<QString, Entry> entries_;
+    double threshold_ = 2e6;
+};
+
+}  // namespace moderato::ui

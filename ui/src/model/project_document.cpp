@@ -1,0 +1,197 @@
+#include "model/project_document.hpp"
+
+#include <QFileInfo>
+#include <set>
+
+#include "model/project_commands.hpp"
+#include "moderato/analysis_run.hpp"
+#include "moderato/error.hpp"
+#include "moderato/file_util.hpp"
+
+namespace moderato::ui {
+
+namespace {
+
+const int kAnalysisMergeId = 1;
+
+std::string stem_id(const QString& path) {
+    QString stem = QFileInfo(path).completeBaseName().toLower();
+    QString out;
+    for (const QChar c : stem) out += (c.isLetterOrNumber() ? c : QChar('-'));
+    return out.isEmpty() ? std::string("data") : out.toStdString();
+}
+
+bool zero_one(const Column& c) {
+    if (c.kind != ColumnKind::Numeric) return false;
+    for (const double v : c.numbers)
+        if (v == v && v != 0 && v != 1) return false;
+    return true;
+}
+
+}  // namespace
+
+ProjectDocument::ProjectDocument(QObject* parent) : QObject(parent) {}
+
+const Analysis* ProjectDocument::analysis(const QString& id) const { return project_.analysis(id.toStdString()); }
+
+QString ProjectDocument::displayName() const {
+    return path_.isEmpty() ? tr("Untitled project") : QFileInfo(path_).fileName();
+}
+
+std::shared_ptr<const Table> ProjectDocument::table(const std::string& id) const {
+    const auto it = tables_.find(id);
+    return it == tables_.end() ? nullptr : it->second;
+}
+
+std::shared_ptr<const Table> ProjectDocument::baseTable(const std::string& id) const {
+    const auto it = base_.find(id);
+    return it == base_.end() ? nullptr : it->second;
+}
+
+QString ProjectDocument::tableError(const std::string& id) const {
+    const auto it = tableErrors_.find(id);
+    return it == tableErrors_.end() ? QString() : QString::fromStdString(it->second);
+}
+
+QString ProjectDocument::dataPath(const std::string& id) const {
+    const auto abs = absolutePaths_.find(id);
+    if (abs != absolutePaths_.end()) return QString::fromStdString(abs->second);
+    const DataSource* s = project_.dataset(id);
+    if (!s) return {};
+    return QString::fromStdString(resolve_data_path(*s, path_.toStdString()));
+}
+
+void ProjectDocument::adopt(LoadedProject loaded) {
+    project_ = std::move(loaded.project);
+    path_ = QString::fromStdString(loaded.path);
+    base_ = std::move(loaded.base);
+    tables_ = std::move(loaded.tables);
+    tableErrors_ = std::move(loaded.table_errors);
+    absolutePaths_.clear();
+    for (const auto& d : project_.datasets) absolutePaths_[d.id] = resolve_data_path(d, loaded.path);
+    undo_.clear();
+    Q_EMIT filePathChanged(path_);
+    Q_EMIT projectReset();
+}
+
+void ProjectDocument::clear() {
+    project_ = Project{};
+    path_.clear();
+    base_.clear();
+    tables_.clear();
+    tableErrors_.clear();
+    absolutePaths_.clear();
+    undo_.clear();
+    Q_EMIT filePathChanged(path_);
+    Q_EMIT projectReset();
+}
+
+void ProjectDocument::rebuildTable(const std::string& id) {
+    const auto base = baseTable(id);
+    tableErrors_.erase(id);
+    if (!base) {
+        tables_.erase(id);
+        return;
+    }
+    try {
+        tables_[id] = std::make_shared<const Table>(apply_recipes(*base, project_.recipes_for(id)));
+    } catch (const InputError& e) {
+        tables_[id] = base;
+        tableErrors_[id] = e.what();
+    }
+}
+
+std::string ProjectDocument::addDataset(const QString& dataPath, const CsvOptions& import,
+                                        std::shared_ptr<const Table> table) {
+    Project after = project_;
+    DataSource s;
+    s.id = after.unique_id(stem_id(dataPath));
+    s.path = QFileInfo(dataPath).absoluteFilePath().toStdString();
+    s.import = import;
+    after.datasets.push_back(s);
+    base_[s.id] = table;
+    absolutePaths_[s.id] = s.path;
+    QString text = tr("Add dataset %1").arg(QFileInfo(dataPath).fileName());
+    if (after.analyses.empty() && table) {
+        Analysis a = guess_analysis(*table, s.id, after.unique_id("analysis"));
+        after.analyses.push_back(a);
+    }
+    setProject(after, text);
+    return s.id;
+}
+
+void ProjectDocument::setAnalysis(const Analysis& after, const QString& description, const QString& mergeKey) {
+    Project next = project_;
+    Analysis* slot = next.analysis(after.id);
+    if (!slot || *slot == after) return;
+    *slot = after;
+    undo_.push(new ProjectStateCommand(this, project_, next, description, mergeKey.isEmpty() ? -1 : kAnalysisMergeId,
+                                       mergeKey));
+}
+
+void ProjectDocument::setProject(const Project& after, const QString& description) {
+    undo_.push(new ProjectStateCommand(this, project_, after, description));
+}
+
+void ProjectDocument::applyState(const Project& p) {
+    const Project before = std::move(project_);
+    project_ = p;
+    bool structure = before.datasets.size() != p.datasets.size() || before.analyses.size() != p.analyses.size() ||
+                     !(before.figures == p.figures);
+    for (std::size_t i = 0; !structure && i < p.datasets.size(); ++i)
+        structure = before.datasets[i].id != p.datasets[i].id;
+    for (std::size_t i = 0; !structure && i < p.analyses.size(); ++i)
+        structure = before.analyses[i].id != p.analyses[i].id || before.analyses[i].name != p.analyses[i].name;
+    // Derived columns: rebuild the tables whose recipes changed.
+    std::set<std::string> changedData;
+    for (const auto& d : p.datasets) {
+        if (!tables_.count(d.id) || before.recipes_for(d.id) != p.recipes_for(d.id)) {
+            rebuildTable(d.id);
+            changedData.insert(d.id);
+        }
+    }
+    if (structure) Q_EMIT structureChanged();
+    for (const auto& id : changedData) Q_EMIT datasetChanged(QString::fromStdString(id));
+    for (const auto& a : p.analyses) {
+        const Analysis* old = before.analysis(a.id);
+        if (!old || !(*old == a) || changedData.count(a.dataset)) Q_EMIT analysisChanged(QString::fromStdString(a.id));
+    }
+}
+
+void ProjectDocument::saveAs(const QString& path) {
+    const std::string target = QFileInfo(path).absoluteFilePath().toStdString();
+    Project out = project_;
+    for (auto& d : out.datasets) {
+        const std::string file = dataPath(d.id).toStdString();
+        d.sha256 = sha256_file(file);
+        d.path = relative_data_path(file, target);
+    }
+    write_project_file(out, target);
+    // Only paths and hashes changed: not an edit, so no undo step.
+    for (auto& d : out.datasets) absolutePaths_[d.id] = resolve_data_path(d, target);
+    project_.datasets = out.datasets;
+    path_ = QString::fromStdString(target);
+    undo_.setClean();
+    Q_EMIT filePathChanged(path_);
+}
+
+Analysis guess_analysis(const Table& t, const std::string& datasetId, const std::string& id) {
+    Analysis a;
+    a.id = id;
+    a.dataset = datasetId;
+    std::vector<std::string> numeric, grouping;
+    for (const auto& c : t.columns) {
+        if (c.kind == ColumnKind::Categorical || zero_one(c)) grouping.push_back(c.name);
+        if (c.kind == ColumnKind::Numeric && !zero_one(c)) numeric.push_back(c.name);
+    }
+    if (!numeric.empty()) a.roles.outcome = numeric[0];
+    if (numeric.size() >= 2) a.roles.focal = numeric[1];
+    if (!grouping.empty())
+        a.roles.moderator = grouping[0];
+    else if (numeric.size() >= 3)
+        a.roles.moderator = numeric[2];
+    a.name = a.roles.focal.empty() ? std::string("analysis") : a.roles.focal + " × " + a.roles.moderator;
+    return a;
+}
+
+}  // namespace moderato::ui

@@ -1,0 +1,83 @@
+// The open project as the workbench holds it: the core Project, the loaded
+// tables, the file path and the undo stack. Every edit goes through an undo
+// command (model/project_commands.hpp); widgets never change the project
+// directly. Signals tell views what changed.
+#pragma once
+
+#include <QObject>
+#include <QString>
+#include <QStringList>
+#include <QUndoStack>
+#include <map>
+#include <memory>
+
+#include "moderato/project.hpp"
+#include "moderato/project_loader.hpp"
+#include "moderato/table.hpp"
+
+namespace moderato::ui {
+
+class ProjectDocument : public QObject {
+    Q_OBJECT
+public:
+    explicit ProjectDocument(QObject* parent = nullptr);
+
+    const Project& project() const { return project_; }
+    const Analysis* analysis(const QString& id) const;
+    QString filePath() const { return path_; }      // empty: not saved yet
+    QString displayName() const;                     // file name or "Untitled project"
+    QUndoStack* undoStack() { return &undo_; }
+    bool isModified() const { return !undo_.isClean(); }
+
+    // A dataset's table with its derived columns (nullptr when not loaded).
+    std::shared_ptr<const Table> table(const std::string& datasetId) const;
+    std::shared_ptr<const Table> baseTable(const std::string& datasetId) const;
+    // Why the dataset's derived columns could not be computed (empty: fine).
+    QString tableError(const std::string& datasetId) const;
+    // Absolute path of a dataset's data file.
+    QString dataPath(const std::string& datasetId) const;
+
+    // Replaces everything with a loaded project (clears undo history).
+    void adopt(LoadedProject loaded);
+    void clear();  // a new, empty project
+
+    // Adds a dataset read from `dataPath` (undoable); returns its id. When the
+    // project is empty, also adds a first analysis with guessed roles.
+    std::string addDataset(const QString& dataPath, const CsvOptions& import, std::shared_ptr<const Table> table);
+
+    // Edits (each one undo step). `mergeKey` non-empty: consecutive edits with
+    // the same key merge into one step (typing, dragging).
+    void setAnalysis(const Analysis& after, const QString& description, const QString& mergeKey = {});
+    void setProject(const Project& after, const QString& description);
+
+    // Saves to `path` (atomically), recording each data file's SHA-256 and
+    // its path relative to the project. InputError when writing fails.
+    void saveAs(const QString& path);
+
+    // Applies a state (used by undo commands only).
+    void applyState(const Project& p);
+
+Q_SIGNALS:
+    void projectReset();                     // a different project is open
+    void structureChanged();                 // datasets, analyses or figures added/removed/renamed
+    void analysisChanged(const QString& id); // any setting of one analysis
+    void datasetChanged(const QString& id);  // derived columns of a dataset
+    void filePathChanged(const QString& path);
+
+private:
+    void rebuildTable(const std::string& datasetId);
+
+    Project project_;
+    QString path_;
+    QUndoStack undo_;
+    std::map<std::string, std::shared_ptr<const Table>> base_, tables_;
+    std::map<std::string, std::string> tableErrors_;
+    std::map<std::string, std::string> absolutePaths_;  // dataset id -> absolute data path (unsaved projects)
+};
+
+// Guessed roles for a new analysis on a table: the first numeric column as
+// Outcome, then a numeric Focal predictor and a Moderator (a grouping column
+// when there is one). Empty roles when the table has too few columns.
+Analysis guess_analysis(const Table& table, const std::string& datasetId, const std::string& id);
+
+}  // namespace moderato::ui

@@ -1,0 +1,60 @@
+// The page of one analysis: a section switcher (Specify · Estimates · Probe ·
+// Checks) over the sections, a status line (fitting…, errors) and the
+// analysis's latest run handed to every section.
+#pragma once
+
+#include <QWidget>
+
+#include "sections/analysis_section.hpp"
+
+class QButtonGroup;
+class QLabel;
+class QStackedWidget;
+
+namespace moderato::ui {
+
+class AnalysisRunner;
+class ProjectDocument;
+class SpecifySection;
+class EstimatesSection;
+class ProbeSection;
+class ChecksSection;
+
+class AnalysisPage : public QWidget {
+    Q_OBJECT
+public:
+    enum Section { Specify = 0, Estimates = 1, Probe = 2, Checks = 3 };
+
+    AnalysisPage(ProjectDocument* doc, AnalysisRunner* runner, QWidget* parent = nullptr);
+    void showAnalysis(const QString& id);
+    QString analysisId() const { return id_; }
+    void showSection(Section s);
+    Section currentSection() const;
+    AnalysisSection* section(Section s) const;
+    SpecifySection* specify() const { return specify_; }
+    EstimatesSection* estimates() const { return estimates_; }
+    ProbeSection* probe() const { return probe_; }
+    ChecksSection* checks() const { return checks_; }
+    // The figures of the section on screen.
+    QList<FigureSource*> currentFigures() const;
+
+Q_SIGNALS:
+    void sectionChanged(int section);
+
+private:
+    void refreshFromRunner(const QString& id);
+
+    ProjectDocument* doc_;
+    AnalysisRunner* runner_;
+    QString id_;
+    QLabel* title_;
+    QLabel* status_;
+    QButtonGroup* switcher_;
+    QStackedWidget* stack_;
+    SpecifySection* specify_;
+    EstimatesSection* estimates_;
+    ProbeSection* probe_;
+    ChecksSection* checks_;
+};
+
+}  // namespace moderato::ui

@@ -1,0 +1,39 @@
+#include "shell/figure_caption.hpp"
+
+#include <QLocale>
+
+namespace moderato::ui {
+
+QString seDescription(const Analysis& a, const AnalysisRun& run) {
+    switch (a.se) {
+    case SeKind::Classical: return a.family == Family::Logistic ? QStringLiteral("model-based") : QStringLiteral("classical");
+    case SeKind::HC0: return QStringLiteral("HC0");
+    case SeKind::HC1: return QStringLiteral("HC1");
+    case SeKind::HC2: return QStringLiteral("HC2");
+    case SeKind::HC3: return QStringLiteral("HC3");
+    case SeKind::HC4: return QStringLiteral("HC4");
+    case SeKind::Cluster:
+        return QStringLiteral("cluster-robust (%1, %2 clusters)")
+            .arg(QString::fromStdString(a.roles.clusters))
+            .arg(run.fit.n_clusters);
+    }
+    return {};
+}
+
+QString figureCaption(const Analysis& a, const AnalysisRun& run) {
+    const QString family = a.family == Family::Logistic ? QStringLiteral("Logistic") : QStringLiteral("Linear");
+    QString terms = QString::fromStdString(a.roles.focal) + QStringLiteral(" × ") + QString::fromStdString(a.roles.moderator);
+    if (!a.roles.second_moderator.empty()) terms += QStringLiteral(" × ") + QString::fromStdString(a.roles.second_moderator);
+    QString text = QStringLiteral("%1 model of %2 on %3").arg(family, QString::fromStdString(a.roles.outcome), terms);
+    if (!a.roles.controls.empty())
+        text += a.roles.controls.size() == 1 ? QStringLiteral(" (+1 control)")
+                                              : QStringLiteral(" (+%1 controls)").arg(a.roles.controls.size());
+    if (!a.roles.weights.empty()) text += QStringLiteral(", weighted by %1").arg(QString::fromStdString(a.roles.weights));
+    text += QStringLiteral(" · %1 SEs · %2% intervals · n = %3")
+                .arg(seDescription(a, run))
+                .arg(QLocale::c().toString(100.0 * a.level, 'g', 4))
+                .arg(QLocale(QLocale::English).toString(static_cast<qulonglong>(run.fit.n)));
+    return text;
+}
+
+}  // namespace moderato::ui
