@@ -7,6 +7,8 @@ standard library only), so running this again writes byte-identical files:
     python3 sample-projects/generate.py
 """
 import csv
+import hashlib
+import json
 import math
 import os
 import random
@@ -101,10 +103,67 @@ def trial_conversion(rng):
     write("trial-conversion", "trials.csv", ["converted", "setup_sessions", "employees", "region"], rows)
 
 
+def analysis(id_, name, dataset, outcome, focal, moderator, controls=(), family="linear", se="classical",
+             scale="link", pinned=()):
+    return {
+        "id": id_, "name": name, "dataset": dataset,
+        "roles": {"outcome": outcome, "focal": focal, "moderator": moderator, "second_moderator": "",
+                  "controls": list(controls), "weights": "", "clusters": ""},
+        "family": family, "se": se, "level": 0.95, "centring": "none",
+        "probe": {"current": None, "pinned": list(pinned), "second_value": None, "scale": scale,
+                  "averaging": "sample", "simultaneous_band": False, "show_points": True},
+        "figure": {"preset": "memo", "width_in": 6.5, "height_in": 4.0, "dpi": 300, "font_family": "DejaVu Sans",
+                   "font_pt": 9, "greyscale": False, "caption": True},
+    }
+
+
+def write_project(folder, data_name, dataset_id, analyses, missing=("", "NA", "NaN", ".")):
+    """A ready project file beside the data: one dataset, its analyses, a figure each."""
+    path = os.path.join(HERE, folder)
+    with open(os.path.join(path, data_name), "rb") as f:
+        digest = hashlib.sha256(f.read()).hexdigest()
+    doc = {
+        "schema_version": 1,
+        "program": "Moderato (sample-projects/generate.py)",
+        "datasets": [{"id": dataset_id, "path": data_name, "sha256": digest,
+                      "import": {"delimiter": ",", "header": True, "missing_tokens": list(missing),
+                                 "decimal_comma": False, "column_kinds": {}}}],
+        "derived_columns": [],
+        "analyses": analyses,
+        "figures": [{"id": "fig-" + a["id"], "name": a["name"] + ": Lines plot", "analysis": a["id"], "plot": "lines"}
+                    for a in analyses],
+    }
+    tmp = os.path.join(path, folder + ".moderato.tmp")
+    with open(tmp, "w") as f:
+        f.write(json.dumps(doc, indent=2, ensure_ascii=False) + "\n")
+    os.replace(tmp, os.path.join(path, folder + ".moderato"))
+
+
+def write_projects():
+    write_project("coffee-discount", "spend.csv", "spend", [
+        analysis("discount-loyalty", "discount × loyalty", "spend", "weekly_spend", "discount_pct", "loyalty_member",
+                 controls=["tenure_months"], se="hc3")])
+    write_project("orchard-nitrogen", "plots.csv", "plots", [
+        analysis("nitrogen-moisture", "nitrogen × soil moisture", "plots", "yield_t_ha", "nitrogen_kg_ha",
+                 "soil_moisture_pct", controls=["slope_pct"], se="hc3")])
+    write_project("volunteer-onboarding", "volunteers.csv", "volunteers", [
+        analysis("onboarding-mentoring", "onboarding × mentoring", "volunteers", "hours_q1", "onboarding",
+                 "mentoring", controls=["age"])])
+    write_project("helpdesk-staffing", "tickets.csv", "tickets", [
+        analysis("staffing-shift", "agents × shift", "tickets", "resolution_hours", "agents_on_shift", "shift",
+                 controls=["weekday"], se="hc3")])
+    # "NA" is a region here (North America), so it is not a missing-value token.
+    write_project("trial-conversion", "trials.csv", "trials", [
+        analysis("sessions-size", "setup sessions × company size", "trials", "converted", "setup_sessions",
+                 "employees", controls=["region"], family="logistic", scale="response")],
+                  missing=("", "NaN", "."))
+
+
 def main():
     for seed, scenario in enumerate([coffee_discount, orchard_nitrogen, volunteer_onboarding,
                                      helpdesk_staffing, trial_conversion], start=20261):
         scenario(random.Random(seed))
+    write_projects()
 
 
 if __name__ == "__main__":

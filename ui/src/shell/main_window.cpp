@@ -36,6 +36,9 @@
 #include "shell/project_sidebar.hpp"
 #include "shell/table_clipboard.hpp"
 
+// The resources live in a static library: register them once (outside any namespace).
+static void initResources() { Q_INIT_RESOURCE(moderato); }
+
 namespace moderato::ui {
 
 namespace {
@@ -86,6 +89,7 @@ MainWindow::MainWindow(QWidget* parent)
     : QMainWindow(parent), doc_(new ProjectDocument(this)), runner_(new AnalysisRunner(doc_, this)),
       sidebar_(new ProjectSidebar(doc_, this)), pages_(new QStackedWidget(this)), welcome_(new QLabel(this)),
       datasetPage_(new DatasetPage(doc_, this)), analysisPage_(new AnalysisPage(doc_, runner_, this)) {
+    initResources();
     setObjectName(QStringLiteral("moderato-main-window"));
     setWindowIcon(QIcon(QStringLiteral(":/moderato/moderato.svg")));
     setAcceptDrops(true);
