@@ -31,6 +31,7 @@
 #include "model/project_document.hpp"
 #include "moderato/error.hpp"
 #include "moderato/project_loader.hpp"
+#include "sections/checks_section.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/figure_caption.hpp"
 #include "shell/project_sidebar.hpp"
@@ -119,6 +120,11 @@ MainWindow::MainWindow(QWidget* parent)
                 analysisPage_->showSection(checks ? AnalysisPage::Checks : AnalysisPage::Probe);
             }
     });
+    connect(analysisPage_->checks(), &ChecksSection::rowsSelected, this,
+            [this](const QString& datasetId, const std::vector<std::size_t>& rows) {
+                showDataset(datasetId);
+                datasetPage_->selectRows(rows);
+            });
     connect(doc_, &ProjectDocument::filePathChanged, this, &MainWindow::updateTitle);
     connect(doc_->undoStack(), &QUndoStack::cleanChanged, this, &MainWindow::updateTitle);
     connect(doc_, &ProjectDocument::structureChanged, this, [this] {

@@ -1,0 +1,18 @@
+// House styling of a QCustomPlot: white background, ink axes and text, thin
+// Estuary grid, the UI font; shared by every plot so figures look alike.
+#pragma once
+
+#include <QFont>
+#include <QString>
+
+class QCustomPlot;
+class QCPAxis;
+
+namespace moderato::ui {
+
+// Applies the house look to the plot's axes, grid, legend and background.
+void stylePlot(QCustomPlot* plot, const QFont& font = QFont());
+// Axis title with the variable name (and unit when known: "discount_pct (%)").
+void setAxisTitle(QCPAxis* axis, const QString& title);
+
+}  // namespace moderato::ui
