@@ -432,7 +432,7 @@ void MainWindow::exportFigure() {
     const auto run = runner_->result(id);
     const Analysis* a = doc_->analysis(id);
     const QString caption = a && run ? figureCaption(*a, *run) : QString();
-    FigureExportDialog dialog(figures.front(), doc_, id, caption, this);
+    FigureExportDialog dialog(figures, doc_, id, caption, this);
     dialog.exec();
 }
 

@@ -1,0 +1,370 @@
+#include "export/figure_exporter.hpp"
+
+#include <qcustomplot.h>
+
+#include <QBuffer>
+#include <QClipboard>
+#include <QDir>
+#include <QFileInfo>
+#include <QFontMetricsF>
+#include <QGuiApplication>
+#include <QMetaProperty>
+#include <QPageLayout>
+#include <QPageSize>
+#include <QPdfWriter>
+#include <QPointer>
+#include <QRegularExpression>
+#include <QSaveFile>
+#include <QSvgGenerator>
+#include <cmath>
+#include <vector>
+
+#include "plots/figure_source.hpp"
+#include "style/estuary.hpp"
+
+namespace moderato::ui {
+
+QString figureFormatSuffix(FigureFormat format) {
+    switch (format) {
+    case FigureFormat::Png: return QStringLiteral("png");
+    case FigureFormat::Svg: return QStringLiteral("svg");
+    case FigureFormat::Pdf: return QStringLiteral("pdf");
+    }
+    return {};
+}
+
+std::optional<FigureFormat> figureFormatForPath(const QString& path) {
+    const QString suffix = QFileInfo(path).suffix().toLower();
+    for (FigureFormat f : {FigureFormat::Png, FigureFormat::Svg, FigureFormat::Pdf})
+        if (suffix == figureFormatSuffix(f)) return f;
+    return std::nullopt;
+}
+
+const QList<FigurePreset>& figurePresets() {
+    // LOOK.md, "Figures for memos".
+    static const QList<FigurePreset> presets{
+        {"memo", QObject::tr("Memo (6.5 × 4 in)"), 6.5, 4.0},
+        {"single-column", QObject::tr("Single column (3.5 × 2.6 in)"), 3.5, 2.6},
+        {"two-column", QObject::tr("Two column (7 × 4.3 in)"), 7.0, 4.3},
+        {"slide", QObject::tr("Slide (10 × 5.63 in)"), 10.0, 5.63},
+    };
+    return presets;
+}
+
+const FigurePreset* findFigurePreset(const std::string& key) {
+    for (const FigurePreset& p : figurePresets())
+        if (p.key == key) return &p;
+    return nullptr;
+}
+
+namespace {
+
+constexpr double kMinInches = 0.5, kMaxInches = 40.0;
+constexpr int kMinDpi = 36, kMaxDpi = 2400;
+constexpr double kMaxPixels = 200e6;  // 800 MB of ARGB: beyond that, refuse instead of failing to allocate
+
+// The resolution QFontMetrics assumes for a font without a paint device.
+// QCustomPlot measures text that way while laying out, so every figure is
+// laid out in units of 1/L inch and drawn on a device of L dots per inch:
+// text is measured and drawn alike, and a 9 pt font is 9 pt on the page.
+int layoutDpi() {
+    const QImage probe(1, 1, QImage::Format_ARGB32);  // a fresh image carries the default resolution
+    return std::max(1, probe.logicalDpiY());
+}
+
+QFont exportFont(const QFont& original, const FigureSettings& s, double factor) {
+    QFont f = original;
+    if (!s.font_family.empty()) f.setFamilies({QString::fromStdString(s.font_family)});
+    f.setPointSizeF(s.font_pt * factor);
+    return f;
+}
+
+QColor grey(const QColor& c) { return c.isValid() ? estuary::toGrey(c) : c; }
+
+QPen greyPen(QPen p) {
+    QBrush b = p.brush();
+    b.setColor(grey(b.color()));
+    p.setBrush(b);
+    return p;
+}
+
+QBrush greyBrush(QBrush b) {
+    if (b.style() == Qt::NoBrush) return b;
+    if (const QGradient* g = b.gradient()) {
+        QGradient copy = *g;
+        QGradientStops stops = copy.stops();
+        for (auto& stop : stops) stop.second = grey(stop.second);
+        copy.setStops(stops);
+        QBrush out(copy);
+        out.setTransform(b.transform());
+        return out;
+    }
+    b.setColor(grey(b.color()));
+    return b;
+}
+
+// Applies the figure's font and greyscale to a live plot for one export and
+// restores every value it changed (and the source's colours) when destroyed.
+class ExportState {
+public:
+    ExportState(FigureSource* source, QCustomPlot* plot, const FigureSettings& s)
+        : source_(source), plot_(plot), greyscale_(s.greyscale) {
+        if (greyscale_) source_->setGreyscale(true);
+        // Everything QCustomPlot draws is a layerable owned by the plot; its
+        // pens, brushes, colours and fonts are properties. All values are read
+        // before any is written: some setters pass theirs on (a legend's font
+        // goes to its items).
+        std::vector<QVariant> changed;
+        for (QCPLayerable* layerable : plot->findChildren<QCPLayerable*>()) {
+            const QMetaObject* mo = layerable->metaObject();
+            const bool title = qobject_cast<QCPTextElement*>(layerable) != nullptr;
+            for (int i = 0; i < mo->propertyCount(); ++i) {
+                const QMetaProperty prop = mo->property(i);
+                if (!prop.isReadable() || !prop.isWritable()) continue;
+                const int type = prop.metaType().id();
+                const QVariant value = prop.read(layerable);
+                QVariant next;
+                if (type == QMetaType::QFont) {
+                    next = exportFont(value.value<QFont>(), s, title ? 1.2 : 1.0);
+                } else if (!greyscale_) {
+                    continue;
+                } else if (type == QMetaType::QPen) {
+                    next = greyPen(value.value<QPen>());
+                } else if (type == QMetaType::QBrush) {
+                    next = greyBrush(value.value<QBrush>());
+                } else if (type == QMetaType::QColor) {
+                    next = grey(value.value<QColor>());
+                } else if (type == qMetaTypeId<QCPScatterStyle>()) {
+                    QCPScatterStyle style = value.value<QCPScatterStyle>();
+                    style.setPen(greyPen(style.pen()));
+                    style.setBrush(greyBrush(style.brush()));
+                    next = QVariant::fromValue(style);
+                } else if (type == qMetaTypeId<QCPColorGradient>()) {
+                    QCPColorGradient gradient = value.value<QCPColorGradient>();
+                    QMap<double, QColor> stops = gradient.colorStops();
+                    for (auto it = stops.begin(); it != stops.end(); ++it) it.value() = grey(it.value());
+                    gradient.setColorStops(stops);
+                    next = QVariant::fromValue(gradient);
+                } else {
+                    continue;
+                }
+                saved_.push_back({layerable, prop, value});
+                changed.push_back(next);
+            }
+        }
+        for (std::size_t i = 0; i < saved_.size(); ++i) saved_[i].property.write(saved_[i].object, changed[i]);
+    }
+
+    ~ExportState() {
+        // In the order recorded: a legend's font and colour pass to its items,
+        // so the legend comes back first and each item's own value after it.
+        for (const Saved& s : saved_)
+            if (s.object) s.property.write(s.object, s.value);
+        if (greyscale_) source_->setGreyscale(false);
+        plot_->replot();  // lays the plot out again at its own size
+    }
+
+    ExportState(const ExportState&) = delete;
+    ExportState& operator=(const ExportState&) = delete;
+
+private:
+    struct Saved {
+        QPointer<QObject> object;
+        QMetaProperty property;
+        QVariant value;
+    };
+    FigureSource* source_;
+    QCustomPlot* plot_;
+    bool greyscale_;
+    std::vector<Saved> saved_;
+};
+
+// Draws the plot and the caption under it into `logical` (units of 1/L inch).
+// The caption is drawn by the painter below the plot rather than added to the
+// plot's layout, so long captions wrap and the live layout is never touched.
+void paintFigure(QCPPainter& painter, QCustomPlot* plot, QSize logical, const FigureSettings& s, const QString& caption) {
+    painter.setMode(QCPPainter::pmNoCaching);
+    painter.setMode(QCPPainter::pmNonCosmetic);
+    painter.fillRect(QRect(QPoint(0, 0), logical), Qt::white);
+    QFont captionFont = exportFont(QFont(), s, 1.0);
+    captionFont.setPointSizeF(std::max(6.0, s.font_pt - 1.0));
+    captionFont.setItalic(true);
+    int captionHeight = 0;
+    QRectF textRect;
+    const int flags = Qt::AlignHCenter | Qt::AlignTop | Qt::TextWordWrap;
+    if (!caption.isEmpty()) {
+        const QFontMetricsF fm(captionFont);
+        const double margin = std::ceil(fm.height() * 0.6);
+        const QRectF bounds = fm.boundingRect(QRectF(0, 0, std::max(1.0, logical.width() - 2 * margin), 1e6), flags, caption);
+        captionHeight = static_cast<int>(std::ceil(bounds.height() + 1.5 * margin));
+        captionHeight = std::min(captionHeight, logical.height() / 2);
+        textRect = QRectF(margin, logical.height() - captionHeight + 0.5 * margin, logical.width() - 2 * margin,
+                          captionHeight - 0.5 * margin);
+    }
+    plot->toPainter(&painter, logical.width(), std::max(1, logical.height() - captionHeight));
+    if (!caption.isEmpty()) {
+        painter.save();
+        painter.setFont(captionFont);
+        painter.setPen(s.greyscale ? estuary::toGrey(estuary::ink) : estuary::ink);
+        painter.drawText(textRect, flags, caption);
+        painter.restore();
+    }
+}
+
+}  // namespace
+
+QString validateFigureSettings(const FigureSettings& s) {
+    if (!(s.width_in >= kMinInches && s.width_in <= kMaxInches) || !(s.height_in >= kMinInches && s.height_in <= kMaxInches))
+        return QObject::tr("the size %1 × %2 in is outside %3–%4 in")
+            .arg(s.width_in)
+            .arg(s.height_in)
+            .arg(kMinInches)
+            .arg(kMaxInches);
+    if (s.dpi < kMinDpi || s.dpi > kMaxDpi)
+        return QObject::tr("the resolution %1 DPI is outside %2–%3 DPI").arg(s.dpi).arg(kMinDpi).arg(kMaxDpi);
+    const QSize px = FigureExporter::pixelSize(s);
+    if (double(px.width()) * px.height() > kMaxPixels)
+        return QObject::tr("%1 × %2 pixels is too large an image; lower the DPI or the size").arg(px.width()).arg(px.height());
+    if (!(s.font_pt >= 4 && s.font_pt <= 48)) return QObject::tr("the font size %1 pt is outside 4–48 pt").arg(s.font_pt);
+    return {};
+}
+
+FigureExporter::FigureExporter(FigureSource* source, const FigureSettings& settings, const QString& caption)
+    : source_(source), settings_(settings), caption_(settings.caption ? caption.trimmed() : QString()) {}
+
+QSize FigureExporter::pixelSize(const FigureSettings& s) {
+    return {static_cast<int>(std::lround(s.width_in * s.dpi)), static_cast<int>(std::lround(s.height_in * s.dpi))};
+}
+
+QImage FigureExporter::renderImage() const {
+    const QSize px = pixelSize(settings_);
+    QImage image(px, QImage::Format_ARGB32_Premultiplied);
+    if (image.isNull()) return image;
+    image.fill(Qt::white);
+    QCustomPlot* plot = source_->figurePlot();
+    {
+        ExportState state(source_, plot, settings_);
+        const double L = layoutDpi();
+        const double scale = settings_.dpi / L;  // the image keeps its default resolution (L) while painting
+        const QSize logical(std::max(1, static_cast<int>(std::lround(px.width() / scale))),
+                            std::max(1, static_cast<int>(std::lround(px.height() / scale))));
+        QCPPainter painter(&image);
+        painter.scale(scale, scale);
+        paintFigure(painter, plot, logical, settings_, caption_);
+        painter.end();
+    }
+    // Greyscale: the series are grey already; converting the pixels makes sure
+    // nothing coloured remains (and writes an 8-bit grey PNG).
+    image = image.convertToFormat(settings_.greyscale ? QImage::Format_Grayscale8 : QImage::Format_RGB32);
+    const int dotsPerMeter = static_cast<int>(std::lround(settings_.dpi / 0.0254));
+    image.setDotsPerMeterX(dotsPerMeter);
+    image.setDotsPerMeterY(dotsPerMeter);
+    return image;
+}
+
+QByteArray FigureExporter::renderSvg() const {
+    const int L = layoutDpi();
+    const QSize logical(static_cast<int>(std::lround(settings_.width_in * L)),
+                        static_cast<int>(std::lround(settings_.height_in * L)));
+    QBuffer buffer;
+    buffer.open(QIODevice::WriteOnly);
+    QSvgGenerator generator;
+    generator.setOutputDevice(&buffer);
+    generator.setResolution(L);
+    generator.setSize(logical);
+    generator.setViewBox(QRect(QPoint(0, 0), logical));
+    generator.setTitle(source_->figureName());
+    generator.setDescription(caption_.isEmpty() ? QObject::tr("Made with Moderato") : caption_);
+    QCustomPlot* plot = source_->figurePlot();
+    {
+        ExportState state(source_, plot, settings_);
+        QCPPainter painter;
+        if (!painter.begin(&generator)) return {};
+        painter.setMode(QCPPainter::pmVectorized);
+        paintFigure(painter, plot, logical, settings_, caption_);
+        painter.end();
+    }
+    // The generator states the size from whole units of 1/L inch; state the
+    // figure's exact size instead (the view box scales the drawing to it).
+    QString svg = QString::fromUtf8(buffer.data());
+    static const QRegularExpression size(QStringLiteral("<svg width=\"[^\"]*\" height=\"[^\"]*\""));
+    svg.replace(size, QStringLiteral("<svg width=\"%1mm\" height=\"%2mm\"")
+                          .arg(QString::number(settings_.width_in * 25.4, 'g', 10),
+                               QString::number(settings_.height_in * 25.4, 'g', 10)));
+    return svg.toUtf8();
+}
+
+QByteArray FigureExporter::renderPdf() const {
+    QBuffer buffer;
+    buffer.open(QIODevice::WriteOnly);
+    QCustomPlot* plot = source_->figurePlot();
+    {
+        QPdfWriter writer(&buffer);
+        writer.setResolution(layoutDpi());
+        writer.setCreator(QStringLiteral("Moderato"));
+        writer.setTitle(source_->figureName());
+        QPageLayout layout(QPageSize(QSizeF(settings_.width_in, settings_.height_in), QPageSize::Inch, QString(),
+                                     QPageSize::ExactMatch),
+                           QPageLayout::Portrait, QMarginsF(0, 0, 0, 0), QPageLayout::Point);
+        layout.setMode(QPageLayout::FullPageMode);
+        writer.setPageLayout(layout);
+        ExportState state(source_, plot, settings_);
+        QCPPainter painter;
+        if (!painter.begin(&writer)) return {};
+        painter.setMode(QCPPainter::pmVectorized);
+        paintFigure(painter, plot, QSize(writer.width(), writer.height()), settings_, caption_);
+        painter.end();
+    }
+    return buffer.data();
+}
+
+QByteArray FigureExporter::render(FigureFormat format) const {
+    switch (format) {
+    case FigureFormat::Png: {
+        const QImage image = renderImage();
+        if (image.isNull()) return {};
+        QBuffer buffer;
+        buffer.open(QIODevice::WriteOnly);
+        if (!image.save(&buffer, "PNG")) return {};
+        return buffer.data();
+    }
+    case FigureFormat::Svg: return renderSvg();
+    case FigureFormat::Pdf: return renderPdf();
+    }
+    return {};
+}
+
+bool FigureExporter::save(const QString& path, FigureFormat format, QString* error) const {
+    const QString shown = QDir::toNativeSeparators(QFileInfo(path).absoluteFilePath());
+    auto fail = [&](const QString& why) {
+        if (error) *error = QObject::tr("Could not write the figure to “%1”: %2.").arg(shown, why);
+        return false;
+    };
+    if (const QString bad = validateFigureSettings(settings_); !bad.isEmpty()) return fail(bad);
+    const QByteArray data = render(format);
+    if (data.isEmpty()) return fail(QObject::tr("the %1 could not be drawn").arg(figureFormatSuffix(format).toUpper()));
+    // QSaveFile writes a temporary file in the same folder and renames it over
+    // the target on commit; it removes the temporary file when anything fails.
+    QSaveFile file(path);
+    if (!file.open(QIODevice::WriteOnly)) return fail(file.errorString());
+    if (file.write(data) != data.size()) {
+        const QString why = file.errorString();
+        file.cancelWriting();
+        return fail(why);
+    }
+    if (!file.commit()) return fail(file.errorString());
+    return true;
+}
+
+void FigureExporter::copyToClipboard() const {
+    QImage image = renderImage();
+    if (image.format() != QImage::Format_RGB32) {
+        const int dpmX = image.dotsPerMeterX(), dpmY = image.dotsPerMeterY();
+        image = image.convertToFormat(QImage::Format_RGB32);
+        image.setDotsPerMeterX(dpmX);
+        image.setDotsPerMeterY(dpmY);
+    }
+    QGuiApplication::clipboard()->setImage(image);
+}
+
+}  // namespace moderato::ui
