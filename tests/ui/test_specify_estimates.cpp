@@ -425,6 +425,28 @@ TEST(SpecifyEstimates, LogisticSampleOffersOnlyItsStandardErrorsAndTestsWithZ) {
     // The same fit directly through core (fit_model on the same data).
     expectTableEqualsFit(o.estimates()->coefficients(), fit_model(*o.table(), model_spec(o.analysis())));
     EXPECT_TRUE(o.estimates()->fitLabel()->text().contains(QStringLiteral("McFadden")));
+
+    // Linear with HC3, then back to logistic: HC3 does not exist there, so the
+    // switch brings HC0 along, in one undo step.
+    QTest::keyClick(s->familyBox(), Qt::Key_Up);
+    ASSERT_EQ(o.analysis().family, Family::Linear);
+    const int hc3 = s->seBox()->findData(static_cast<int>(SeKind::HC3));
+    EXPECT_TRUE(items->item(hc3)->isEnabled());
+    s->seBox()->setCurrentIndex(hc3);
+    Q_EMIT s->seBox()->activated(hc3);
+    ASSERT_EQ(o.analysis().se, SeKind::HC3);
+    const int steps = o.undo()->count();
+    QTest::keyClick(s->familyBox(), Qt::Key_Down);
+    EXPECT_EQ(o.analysis().family, Family::Logistic);
+    EXPECT_EQ(o.analysis().se, SeKind::HC0);
+    EXPECT_EQ(o.undo()->count(), steps + 1);
+    EXPECT_TRUE(s->message().contains(QStringLiteral("HC0"))) << s->message().toStdString();
+    o.undo()->undo();
+    EXPECT_EQ(o.analysis().family, Family::Linear);
+    EXPECT_EQ(o.analysis().se, SeKind::HC3);
+    o.undo()->undo();
+    o.undo()->undo();
+    ASSERT_TRUE(o.waitForRun());
     EXPECT_TRUE(o.estimates()->comparisonLabel()->text().contains(QStringLiteral("Likelihood-ratio test")));
 }
 

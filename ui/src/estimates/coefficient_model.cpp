@@ -93,6 +93,8 @@ QVariant CoefficientModel::data(const QModelIndex& index, int role) const {
 QVariant CoefficientModel::headerData(int section, Qt::Orientation o, int role) const {
     if (o != Qt::Horizontal) return {};
     const QString pct = levelPercent(level_);
+    if (role == Qt::TextAlignmentRole)
+        return QVariant((section == Term ? Qt::AlignLeft : Qt::AlignRight) | Qt::AlignVCenter);
     if (role == Qt::DisplayRole) {
         switch (section) {
         case Term: return tr("Term");

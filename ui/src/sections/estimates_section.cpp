@@ -12,6 +12,7 @@
 #include <QTableView>
 #include <QToolButton>
 #include <QVBoxLayout>
+#include <algorithm>
 #include <cmath>
 
 #include "estimates/coefficient_model.hpp"
@@ -50,11 +51,12 @@ QString seFromText(const std::string& text, Family f) {
     }
 }
 
-// "F(2, 145) = 12.31, p < 0.001" or "χ²(2) = 24.62, p < 0.001".
+// "F(2, 145) = 12.31, p &lt; 0.001" or "χ²(2) = 24.62, p = 0.012" (rich text).
 QString testText(double statistic, double df1, double df2, double chiSquare, double p) {
-    if (std::isinf(df2))
-        return QStringLiteral("\u03c7\u00b2(%1) = %2, %3").arg(df1).arg(formatFixed(chiSquare, 2), pClause(p));
-    return QStringLiteral("F(%1, %2) = %3, %4").arg(df1).arg(df2).arg(formatFixed(statistic, 2), pClause(p));
+    const QString text = std::isinf(df2)
+                             ? QStringLiteral("\u03c7\u00b2(%1) = %2, %3").arg(df1).arg(formatFixed(chiSquare, 2), pClause(p))
+                             : QStringLiteral("F(%1, %2) = %3, %4").arg(df1).arg(df2).arg(formatFixed(statistic, 2), pClause(p));
+    return text.toHtmlEscaped();
 }
 
 QString row(const QString& label, const QString& value) {
@@ -143,11 +145,11 @@ EstimatesSection::EstimatesSection(ProjectDocument* doc, QWidget* parent)
     table_->setAlternatingRowColors(true);
     table_->setWordWrap(false);
     table_->setSelectionBehavior(QAbstractItemView::SelectItems);
-    table_->setHorizontalScrollBarPolicy(Qt::ScrollBarAsNeeded);
     table_->setVerticalScrollBarPolicy(Qt::ScrollBarAlwaysOff);
+    table_->setHorizontalScrollBarPolicy(Qt::ScrollBarAlwaysOff);
     table_->horizontalHeader()->setStretchLastSection(false);
-    table_->horizontalHeader()->setDefaultAlignment(Qt::AlignRight | Qt::AlignVCenter);
-    v->addWidget(table_);
+    table_->verticalHeader()->setDefaultSectionSize(fontMetrics().height() + 10);
+    v->addWidget(table_, 0, Qt::AlignLeft);
 
     fit_->setObjectName(QStringLiteral("estimates-fit"));
     v->addWidget(sectionHeading(tr("Fit"), body));
@@ -183,14 +185,18 @@ bool EstimatesSection::showingCentred() const {
 QString EstimatesSection::tableText() const { return modelAsTsv(model_); }
 
 void EstimatesSection::fitTableHeight() {
+    // The table as large as its content (the section scrolls, not the table),
+    // so the numbers sit next to their terms.
     table_->resizeColumnsToContents();
-    const QHeaderView* hh = table_->horizontalHeader();
-    // The term column takes what is left; numbers keep their width.
-    table_->horizontalHeader()->setSectionResizeMode(CoefficientModel::Term, QHeaderView::Stretch);
+    QHeaderView* hh = table_->horizontalHeader();
+    const int gap = fontMetrics().horizontalAdvance(QStringLiteral("00"));
+    for (int c = 0; c < model_->columnCount(); ++c) hh->resizeSection(c, hh->sectionSize(c) + gap);
+    hh->resizeSection(CoefficientModel::Term, std::max(hh->sectionSize(CoefficientModel::Term), 12 * gap));
+    int width = 2 * table_->frameWidth();
+    for (int c = 0; c < model_->columnCount(); ++c) width += hh->sectionSize(c);
     int height = hh->sizeHint().height() + 2 * table_->frameWidth();
     for (int r = 0; r < model_->rowCount(); ++r) height += table_->rowHeight(r);
-    if (table_->horizontalScrollBar()->isVisible()) height += table_->horizontalScrollBar()->sizeHint().height();
-    table_->setFixedHeight(height + 2);
+    table_->setFixedSize(width + 2, height + 2);
 }
 
 void EstimatesSection::refresh() {

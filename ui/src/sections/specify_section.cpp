@@ -3,7 +3,7 @@
 #include <QComboBox>
 #include <QDoubleSpinBox>
 #include <QFileInfo>
-#include <QGridLayout>
+#include <QFormLayout>
 #include <QHBoxLayout>
 #include <QHeaderView>
 #include <QLabel>
@@ -77,9 +77,9 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
     columnView_->setShowGrid(false);
     columnView_->setAlternatingRowColors(true);
     columnView_->setWordWrap(false);
-    columnView_->horizontalHeader()->setSectionResizeMode(ColumnListModel::Name, QHeaderView::Stretch);
-    for (int c = ColumnListModel::Kind; c < ColumnListModel::ColumnCount; ++c)
+    for (int c = ColumnListModel::Name; c < ColumnListModel::InRole; ++c)
         columnView_->horizontalHeader()->setSectionResizeMode(c, QHeaderView::ResizeToContents);
+    columnView_->horizontalHeader()->setSectionResizeMode(ColumnListModel::InRole, QHeaderView::Stretch);
     columnView_->setContextMenuPolicy(Qt::CustomContextMenu);
     connect(columnView_, &QWidget::customContextMenuRequested, this, &SpecifySection::showColumnMenu);
     leftLayout->addWidget(columnView_, 1);
@@ -91,6 +91,7 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
     auto* scroll = new QScrollArea(splitter);
     scroll->setWidgetResizable(true);
     scroll->setFrameShape(QFrame::NoFrame);
+    scroll->setHorizontalScrollBarPolicy(Qt::ScrollBarAlwaysOff);
     auto* right = new QWidget(scroll);
     scroll->setWidget(right);
     auto* r = new QVBoxLayout(right);
@@ -115,8 +116,9 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
 
     r->addSpacing(4);
     r->addWidget(sectionHeading(tr("Model"), right));
-    auto* grid = new QGridLayout;
-    grid->setHorizontalSpacing(10);
+    auto* form = new QFormLayout;
+    form->setFieldGrowthPolicy(QFormLayout::FieldsStayAtSizeHint);
+    form->setLabelAlignment(Qt::AlignLeft);
     family_->setObjectName(QStringLiteral("specify-family"));
     family_->addItem(tr("linear (numeric outcome)"), static_cast<int>(Family::Linear));
     family_->addItem(tr("logistic (0/1 outcome)"), static_cast<int>(Family::Logistic));
@@ -132,18 +134,13 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
     level_->setKeyboardTracking(false);
     level_->setToolTip(tr("Confidence level of the intervals (0.80 to 0.999)."));
     centring_->setObjectName(QStringLiteral("specify-centring"));
-    centring_->addItem(tr("none: columns as they are"), QStringLiteral("none"));
-    centring_->addItem(tr("mean: centre focal and moderator at their means"), QStringLiteral("mean"));
-    grid->addWidget(new QLabel(tr("Family"), right), 0, 0);
-    grid->addWidget(family_, 0, 1);
-    grid->addWidget(new QLabel(tr("Standard errors"), right), 0, 2);
-    grid->addWidget(se_, 0, 3);
-    grid->addWidget(new QLabel(tr("Confidence level"), right), 1, 0);
-    grid->addWidget(level_, 1, 1);
-    grid->addWidget(new QLabel(tr("Centring"), right), 1, 2);
-    grid->addWidget(centring_, 1, 3);
-    grid->setColumnStretch(4, 1);
-    r->addLayout(grid);
+    centring_->addItem(tr("none (columns as they are)"), QStringLiteral("none"));
+    centring_->addItem(tr("mean (focal and moderator centred)"), QStringLiteral("mean"));
+    form->addRow(tr("Family"), family_);
+    form->addRow(tr("Standard errors"), se_);
+    form->addRow(tr("Confidence level"), level_);
+    form->addRow(tr("Centring"), centring_);
+    r->addLayout(form);
     centringHint_ = mutedLabel(right);
     centringHint_->setText(tr("Centring at the mean subtracts the mean from the numeric focal predictor and "
                               "moderator. It changes the meaning of the lower-order coefficients (each becomes the "
@@ -188,9 +185,9 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
 
     splitter->addWidget(left);
     splitter->addWidget(scroll);
-    splitter->setStretchFactor(0, 2);
-    splitter->setStretchFactor(1, 3);
-    splitter->setSizes({320, 560});
+    splitter->setStretchFactor(0, 0);
+    splitter->setStretchFactor(1, 1);
+    splitter->setSizes({330, 700});
 
     connect(family_, &QComboBox::activated, this, [this](int index) {
         if (const Analysis* a = current())

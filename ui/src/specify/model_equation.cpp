@@ -257,10 +257,10 @@ ModelEquation modelEquation(const Analysis& a, const Table* table, const Analysi
             continue;
         }
         const Rendered r = renderTerm(coefs[i], a, table, run);
-        // Keep each term on one line; the equation may wrap between terms.
+        // Keep each term on one line (no breaking spaces inside); the equation wraps between terms.
         QString html = r.html;
         html.replace(QLatin1Char(' '), QStringLiteral("&nbsp;"));
-        htmlTerms << QStringLiteral("<span style=\"white-space:nowrap\"><i>%1</i>\u00b7%2</span>").arg(b, html);
+        htmlTerms << QStringLiteral("<i>%1</i>\u00b7%2").arg(b, html);
         plainTerms << b + QStringLiteral("\u00b7") + r.plain;
     }
     eq.plain = lhsPlain + QStringLiteral(" = ") + plainTerms.join(QStringLiteral(" + "));
@@ -284,7 +284,9 @@ ModelEquation modelEquation(const Analysis& a, const Table* table, const Analysi
         for (const std::string& c : {a.roles.focal, a.roles.moderator, a.roles.second_moderator})
             if (isCentred(a, table, c)) centred << plain(c);
         if (!centred.isEmpty())
-            legend << tr("%1 enter as distances from their means over the rows used.").arg(centred.join(tr(" and ")));
+            legend << (centred.size() == 1 ? tr("%1 enters as its distance from its mean over the rows used.")
+                                           : tr("%1 enter as distances from their means over the rows used."))
+                          .arg(centred.join(tr(" and ")));
     }
     eq.legend = legend.join(QLatin1Char(' '));
     eq.reading = interactionReading(a, table, run, coefs);
