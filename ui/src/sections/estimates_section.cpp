@@ -1,18 +1,326 @@
-// Placeholder until the section is built (issue #4, in progress).
 #include "sections/estimates_section.hpp"
 
+#include <QApplication>
+#include <QButtonGroup>
+#include <QClipboard>
+#include <QHBoxLayout>
+#include <QHeaderView>
 #include <QLabel>
+#include <QRadioButton>
+#include <QScrollArea>
+#include <QScrollBar>
+#include <QTableView>
+#include <QToolButton>
 #include <QVBoxLayout>
+#include <algorithm>
+#include <cmath>
+
+#include "estimates/coefficient_model.hpp"
+#include "estimates/number_format.hpp"
+#include "model/project_document.hpp"
+#include "shell/table_clipboard.hpp"
+#include "specify/model_equation.hpp"
+#include "specify/role_edit.hpp"
+#include "specify/section_widgets.hpp"
+#include "style/estuary.hpp"
 
 namespace moderato::ui {
 
-EstimatesSection::EstimatesSection(ProjectDocument* doc, QWidget* parent) : AnalysisSection(doc, parent), label_(new QLabel(this)) {
-    auto* layout = new QVBoxLayout(this);
-    layout->addWidget(label_);
+namespace {
+
+QString h(const std::string& s) { return QString::fromStdString(s).toHtmlEscaped(); }
+
+QLabel* wrapped(QWidget* parent, bool rich = true) {
+    auto* l = new QLabel(parent);
+    l->setWordWrap(true);
+    l->setTextFormat(rich ? Qt::RichText : Qt::PlainText);
+    l->setTextInteractionFlags(Qt::TextSelectableByMouse);
+    return l;
 }
 
-void EstimatesSection::showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun>, const QString& error) {
-    label_->setText(error.isEmpty() ? id : error);
+QString seLabel(SeKind s, Family f) {
+    if (s == SeKind::Classical && f == Family::Logistic) return EstimatesSection::tr("classical (model-based)");
+    return seKindName(s);
+}
+
+QString seFromText(const std::string& text, Family f) {
+    try {
+        return seLabel(parse_se_kind(text), f);
+    } catch (...) {
+        return QString::fromStdString(text);
+    }
+}
+
+// "F(2, 145) = 12.31, p &lt; 0.001" or "χ²(2) = 24.62, p = 0.012" (rich text).
+QString testText(double statistic, double df1, double df2, double chiSquare, double p) {
+    const QString text = std::isinf(df2)
+                             ? QStringLiteral("\u03c7\u00b2(%1) = %2, %3").arg(df1).arg(formatFixed(chiSquare, 2), pClause(p))
+                             : QStringLiteral("F(%1, %2) = %3, %4").arg(df1).arg(df2).arg(formatFixed(statistic, 2), pClause(p));
+    return text.toHtmlEscaped();
+}
+
+QString row(const QString& label, const QString& value) {
+    return QStringLiteral("<tr><td style=\"padding-right:14px\">%1</td><td>%2</td></tr>").arg(label, value);
+}
+
+// Coefficient labels of the centred fit: the columns' own names with the
+// centre subtracted, e.g. "(nitrogen_kg_ha − 112.4)×(soil_moisture_pct − 30.12)".
+QStringList centredLabels(const AnalysisRun& run) {
+    QStringList out;
+    for (const auto& c : run.fit.coefficients) {
+        QStringList parts;
+        for (const std::string& factor : labelFactors(c.term)) {
+            const std::string col = factorColumn(factor);
+            const auto it = run.centres.find(col);
+            if (it == run.centres.end() || factor != col) {
+                parts << QString::fromStdString(factor);
+                continue;
+            }
+            parts << QStringLiteral("(%1 \u2212 %2)").arg(QString::fromStdString(col), formatNumber(it->second));
+        }
+        out << parts.join(QStringLiteral("\u00d7"));
+    }
+    return out;
+}
+
+}  // namespace
+
+EstimatesSection::EstimatesSection(ProjectDocument* doc, QWidget* parent)
+    : AnalysisSection(doc, parent), header_(wrapped(this)), copy_(new QToolButton(this)), toggle_(new QWidget(this)),
+      asIs_(new QRadioButton(tr("columns as they are"), toggle_)),
+      centred_(new QRadioButton(tr("centred at the mean"), toggle_)), toggleText_(wrapped(toggle_, false)),
+      table_(new QTableView(this)), model_(new CoefficientModel(this)), fit_(wrapped(this)),
+      comparisonTitle_(sectionHeading(tr("With and without the interaction"), this)), comparison_(wrapped(this)),
+      warnings_(wrapped(this)), notes_(wrapped(this)), errorBanner_(wrapped(this, false)) {
+    auto* outer = new QVBoxLayout(this);
+    outer->setContentsMargins(0, 4, 0, 0);
+    auto* scroll = new QScrollArea(this);
+    scroll->setWidgetResizable(true);
+    scroll->setFrameShape(QFrame::NoFrame);
+    outer->addWidget(scroll);
+    auto* body = new QWidget(scroll);
+    scroll->setWidget(body);
+    auto* v = new QVBoxLayout(body);
+    v->setContentsMargins(6, 0, 6, 6);
+    v->setSpacing(6);
+    for (QWidget* w : std::initializer_list<QWidget*>{header_, copy_, toggle_, table_, fit_, comparisonTitle_,
+                                                      comparison_, warnings_, notes_, errorBanner_})
+        w->setParent(body);
+
+    errorBanner_->setObjectName(QStringLiteral("estimates-error"));
+    errorBanner_->setStyleSheet(bannerStyle(estuary::series(1)));
+    errorBanner_->hide();
+    v->addWidget(errorBanner_);
+
+    auto* top = new QHBoxLayout;
+    header_->setObjectName(QStringLiteral("estimates-header"));
+    top->addWidget(header_, 1);
+    copy_->setObjectName(QStringLiteral("estimates-copy"));
+    copy_->setText(tr("Copy table"));
+    copy_->setToolTip(tr("Copy the coefficient table as tab-separated text, with every digit"));
+    top->addWidget(copy_, 0, Qt::AlignTop);
+    v->addLayout(top);
+
+    toggle_->setObjectName(QStringLiteral("estimates-centring"));
+    auto* t = new QVBoxLayout(toggle_);
+    t->setContentsMargins(0, 0, 0, 0);
+    auto* buttons = new QHBoxLayout;
+    buttons->addWidget(new QLabel(tr("Show the coefficients with"), toggle_));
+    buttons->addWidget(asIs_);
+    buttons->addWidget(centred_);
+    buttons->addStretch(1);
+    t->addLayout(buttons);
+    t->addWidget(toggleText_);
+    auto* group = new QButtonGroup(toggle_);
+    group->addButton(asIs_);
+    group->addButton(centred_);
+    asIs_->setChecked(true);
+    connect(asIs_, &QRadioButton::toggled, this, [this] { refresh(); });
+    v->addWidget(toggle_);
+
+    table_->setObjectName(QStringLiteral("estimates-table"));
+    table_->setModel(model_);
+    table_->setItemDelegate(new CoefficientDelegate(table_));
+    table_->verticalHeader()->hide();
+    table_->setAlternatingRowColors(true);
+    table_->setWordWrap(false);
+    table_->setSelectionBehavior(QAbstractItemView::SelectItems);
+    table_->setVerticalScrollBarPolicy(Qt::ScrollBarAlwaysOff);
+    table_->setHorizontalScrollBarPolicy(Qt::ScrollBarAlwaysOff);
+    table_->horizontalHeader()->setStretchLastSection(false);
+    table_->verticalHeader()->setDefaultSectionSize(fontMetrics().height() + 10);
+    v->addWidget(table_, 0, Qt::AlignLeft);
+
+    fit_->setObjectName(QStringLiteral("estimates-fit"));
+    v->addWidget(sectionHeading(tr("Fit"), body));
+    v->addWidget(fit_);
+    comparison_->setObjectName(QStringLiteral("estimates-comparison"));
+    v->addWidget(comparisonTitle_);
+    v->addWidget(comparison_);
+    warnings_->setObjectName(QStringLiteral("estimates-warnings"));
+    warnings_->setStyleSheet(bannerStyle(estuary::series(4)));
+    v->addWidget(warnings_);
+    notes_->setObjectName(QStringLiteral("estimates-notes"));
+    QPalette p = notes_->palette();
+    p.setColor(QPalette::WindowText, p.color(QPalette::Disabled, QPalette::WindowText));
+    notes_->setPalette(p);
+    v->addWidget(notes_);
+    v->addStretch(1);
+
+    connect(copy_, &QToolButton::clicked, this, [this] { QApplication::clipboard()->setText(tableText()); });
+    refresh();
+}
+
+void EstimatesSection::showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun> run, const QString& error) {
+    id_ = id;
+    run_ = std::move(run);
+    error_ = error;
+    refresh();
+}
+
+bool EstimatesSection::showingCentred() const {
+    return run_ && run_->centred_fit && toggle_->isVisibleTo(this) && centred_->isChecked();
+}
+
+QString EstimatesSection::tableText() const { return modelAsTsv(model_); }
+
+void EstimatesSection::fitTableHeight() {
+    // The table as large as its content (the section scrolls, not the table),
+    // so the numbers sit next to their terms.
+    table_->resizeColumnsToContents();
+    QHeaderView* hh = table_->horizontalHeader();
+    const int gap = fontMetrics().horizontalAdvance(QStringLiteral("00"));
+    for (int c = 0; c < model_->columnCount(); ++c) hh->resizeSection(c, hh->sectionSize(c) + gap);
+    hh->resizeSection(CoefficientModel::Term, std::max(hh->sectionSize(CoefficientModel::Term), 12 * gap));
+    int width = 2 * table_->frameWidth();
+    for (int c = 0; c < model_->columnCount(); ++c) width += hh->sectionSize(c);
+    int height = hh->sizeHint().height() + 2 * table_->frameWidth();
+    for (int r = 0; r < model_->rowCount(); ++r) height += table_->rowHeight(r);
+    table_->setFixedSize(width + 2, height + 2);
+}
+
+void EstimatesSection::refresh() {
+    const Analysis* a = id_.isEmpty() ? nullptr : doc_->analysis(id_);
+    errorBanner_->setText(tr("The model could not be fitted: %1").arg(error_));
+    errorBanner_->setVisible(!error_.isEmpty());
+    if (!run_ || !a) {
+        model_->clear();
+        header_->setText(error_.isEmpty() ? tr("No estimates yet.") : tr("No estimates: the model could not be fitted."));
+        for (QWidget* w : std::initializer_list<QWidget*>{toggle_, fit_, comparisonTitle_, comparison_, warnings_, notes_})
+            w->hide();
+        copy_->setEnabled(false);
+        fitTableHeight();
+        return;
+    }
+    const AnalysisRun& run = *run_;
+    const FitResult& main = run.fit;
+    const bool logistic = main.family == Family::Logistic;
+    const bool canCentre = run.centred_fit.has_value() && a->centring == "mean";
+    toggle_->setVisible(canCentre);
+    const bool centred = canCentre && centred_->isChecked();
+    const FitResult& shown = centred ? *run.centred_fit : main;
+    model_->setFit(&shown, centred ? centredLabels(run) : QStringList());
+    fitTableHeight();
+    copy_->setEnabled(true);
+
+    // What the table is: the model, SE kind, level, reference distribution.
+    QString se = seLabel(main.se, main.family);
+    if (main.se == SeKind::Cluster) se += tr(" (%1 clusters)").arg(main.n_clusters);
+    const QString dist = logistic ? tr("z (standard normal)") : tr("t on %1 df").arg(main.df_inference);
+    header_->setText(tr("<b>Coefficients</b> of %1 &nbsp;·&nbsp; %2 model%3 &nbsp;·&nbsp; %4 standard errors "
+                        "&nbsp;·&nbsp; %5 confidence intervals &nbsp;·&nbsp; %6")
+                         .arg(h(a->roles.outcome), familyName(main.family),
+                              logistic ? tr(" (log-odds)") : QString(), se.toHtmlEscaped(), levelPercent(main.level),
+                              dist));
+
+    if (canCentre) {
+        QStringList at;
+        for (const auto& [col, centre] : run.centres)
+            at << tr("%1 at %2").arg(QString::fromStdString(col), formatNumber(centre));
+        toggleText_->setText(
+            tr("Centred: %1. Centring changes the intercept and the lower-order coefficients (each main effect "
+               "becomes the effect where the other centred columns are at their means); it does not change the "
+               "product coefficient, the fit or the conditional effects.")
+                .arg(at.join(QStringLiteral(", "))));
+    }
+
+    // Fit statistics.
+    QString rows;
+    rows += row(QStringLiteral("n"), main.n_excluded ? tr("%1 (%2 rows excluded)").arg(main.n).arg(main.n_excluded)
+                                                     : QString::number(main.n));
+    if (!logistic) {
+        rows += row(QStringLiteral("R\u00b2"), formatFixed(main.r_squared, 4));
+        rows += row(tr("Adjusted R\u00b2"), formatFixed(main.adj_r_squared, 4));
+        rows += row(tr("Residual SD"), formatNumber(main.residual_sd));
+        if (main.f_df1 > 0)
+            rows += row(tr("All terms but the intercept"),
+                        testText(main.f_statistic, main.f_df1, main.f_df2, main.f_statistic * main.f_df1,
+                                 main.f_p_value) +
+                            tr(" (%1 covariance)").arg(seLabel(main.se, main.family)));
+    } else {
+        rows += row(tr("Deviance"), tr("%1 (null model %2)").arg(formatNumber(main.deviance, 6),
+                                                                  formatNumber(main.null_deviance, 6)));
+        rows += row(tr("McFadden R\u00b2"), formatFixed(main.mcfadden_r2, 4));
+        if (main.lr_df > 0)
+            rows += row(tr("All terms but the intercept"),
+                        tr("likelihood ratio %1")
+                            .arg(testText(0, main.lr_df, INFINITY, main.lr_statistic, main.lr_p_value)));
+        rows += row(tr("Iterations"), main.converged ? tr("%1 (converged)").arg(main.iterations)
+                                                     : tr("%1 (did not converge)").arg(main.iterations));
+    }
+    rows += row(tr("Log-likelihood"), formatNumber(main.log_likelihood, 6));
+    rows += row(QStringLiteral("AIC"), formatNumber(main.aic, 6));
+    rows += row(QStringLiteral("BIC"), formatNumber(main.bic, 6));
+    fit_->setText(QStringLiteral("<table>%1</table>").arg(rows));
+    fit_->show();
+
+    // The model with and without its product terms.
+    comparisonTitle_->show();
+    comparison_->show();
+    if (main.comparison) {
+        const NestedComparison& c = *main.comparison;
+        QStringList dropped;
+        for (const auto& t : c.dropped_terms) dropped << h(t);
+        const QString terms = dropped.join(QStringLiteral(", "));
+        QString text;
+        if (!logistic) {
+            text = tr("Without %1: R\u00b2 = %2; with: %3 (change %4).<br>"
+                      "R\u00b2-change test (classical, from the sums of squares): %5.")
+                       .arg(terms, formatFixed(c.r_squared_reduced, 4), formatFixed(main.r_squared, 4),
+                            formatFixed(c.r_squared_change, 4),
+                            testText(c.f_statistic, c.df1, c.df2, c.f_statistic * c.df1, c.p_value));
+        } else {
+            text = tr("Without %1.<br>Likelihood-ratio test: %2.")
+                       .arg(terms, testText(0, c.df1, INFINITY, c.lr_statistic, c.lr_p_value));
+        }
+        text += tr("<br>Wald test of the same terms with the %1 covariance: %2.")
+                    .arg(seFromText(c.wald.covariance, main.family).toHtmlEscaped(),
+                         testText(c.wald.statistic, c.wald.df1, c.wald.df2, c.wald.chi_square, c.wald.p_value));
+        comparison_->setText(text);
+    } else {
+        comparison_->setText(tr("The model has no product terms that could be estimated, so there is nothing to compare."));
+    }
+
+    // Warnings (always worth reading) and notes.
+    QStringList warn;
+    for (const auto& w : main.warnings) warn << QStringLiteral("\u2022 ") + h(w);
+    warnings_->setText(tr("<b>Warnings</b><br>") + warn.join(QStringLiteral("<br>")));
+    warnings_->setVisible(!warn.isEmpty());
+
+    QStringList notes;
+    for (const auto& n : main.notes) notes << h(n);
+    QStringList highVif;
+    for (const auto& c : shown.coefficients)
+        if (!c.aliased && std::isfinite(c.vif) && c.vif > 10)
+            highVif << QStringLiteral("%1 (%2)").arg(h(c.term), formatFixed(c.vif, 1));
+    if (!highVif.isEmpty())
+        notes << tr("VIF above 10: %1. A product term is correlated with its own components; that inflates their "
+                    "VIFs without harming the product coefficient, and centring lowers them without changing the fit.")
+                     .arg(highVif.join(QStringLiteral(", ")));
+    notes << tr("These coefficients describe associations in these data, not causal effects, unless the focal "
+                "predictor was randomised.");
+    notes_->setText(notes.join(QStringLiteral("<br>")));
+    notes_->show();
 }
 
 }  // namespace moderato::ui
