@@ -1,4 +1,6 @@
 // Column summaries for the dataset view (see column_summary.hpp for the rules).
+// Quantiles come from selection (std::nth_element), not a full sort, so a
+// million-value column is summarised in a few linear passes.
 #include "moderato/column_summary.hpp"
 
 #include <algorithm>
@@ -53,23 +55,34 @@ double sd_of(const std::vector<double>& v, double mean) {
 
 }  // namespace
 
-double quantile_sorted(const std::vector<double>& sorted, double p) {
-    if (sorted.empty()) return kNaN;
-    const double h = static_cast<double>(sorted.size() - 1) * std::clamp(p, 0.0, 1.0);
-    const auto lo = static_cast<std::size_t>(std::floor(h));
-    if (lo + 1 >= sorted.size()) return sorted.back();
-    const double frac = h - static_cast<double>(lo);
-    // numpy's _lerp: a + (b - a) t, and b - (b - a)(1 - t) for t >= 0.5 (exact at both ends).
-    const double a = sorted[lo], b = sorted[lo + 1], diff = b - a;
-    return frac >= 0.5 ? b - diff * (1.0 - frac) : a + diff * frac;
+namespace {
+
+// Linear interpolation between order statistics a = x(lo) and b = x(lo + 1)
+// as numpy's _lerp does it: a + (b - a) t, and b - (b - a)(1 - t) for
+// t >= 0.5 (exact at both ends).
+double lerp(double a, double b, double t) {
+    const double diff = b - a;
+    return t >= 0.5 ? b - diff * (1.0 - t) : a + diff * t;
 }
 
-Histogram auto_histogram(const std::vector<double>& sorted, std::size_t max_bins) {
+// Quantile p of `v` (any order; partially reordered) by selection instead of
+// a full sort: the same order statistics, in linear time.
+double select_quantile(std::vector<double>& v, double p) {
+    const double h = static_cast<double>(v.size() - 1) * std::clamp(p, 0.0, 1.0);
+    const auto lo = static_cast<std::size_t>(std::floor(h));
+    const auto mid = v.begin() + static_cast<std::ptrdiff_t>(lo);
+    std::nth_element(v.begin(), mid, v.end());
+    if (lo + 1 >= v.size()) return *mid;
+    const double next = *std::min_element(mid + 1, v.end());
+    return lerp(*mid, next, h - static_cast<double>(lo));
+}
+
+// The histogram of `v` (any order) once its range and IQR are known.
+Histogram histogram_of(const std::vector<double>& v, double first, double last, double iqr, std::size_t max_bins) {
     Histogram h;
-    if (sorted.empty()) return h;
+    if (v.empty()) return h;
     max_bins = std::max<std::size_t>(max_bins, 1);
-    double first = sorted.front(), last = sorted.back();
-    const double n = static_cast<double>(sorted.size());
+    const double n = static_cast<double>(v.size());
     std::size_t bins = 1;
     if (first == last) {
         first -= 0.5;
@@ -77,11 +90,11 @@ Histogram auto_histogram(const std::vector<double>& sorted, std::size_t max_bins
     } else {
         const double range = last - first;
         const double sturges = range / (std::log2(n) + 1.0);
-        const double iqr = quantile_sorted(sorted, 0.75) - quantile_sorted(sorted, 0.25);
         const double fd = 2.0 * iqr * std::pow(n, -1.0 / 3.0);
         const double width = fd > 0.0 ? std::min(fd, sturges) : sturges;
         const double wanted = std::ceil(range / width);
-        bins = wanted >= static_cast<double>(max_bins) ? max_bins : std::max<std::size_t>(1, static_cast<std::size_t>(wanted));
+        bins = wanted >= static_cast<double>(max_bins) ? max_bins
+                                                      : std::max<std::size_t>(1, static_cast<std::size_t>(wanted));
     }
     // numpy.linspace(first, last, bins + 1): start + k * step, the last edge exactly `last`.
     const double step = (last - first) / static_cast<double>(bins);
@@ -90,11 +103,11 @@ Histogram auto_histogram(const std::vector<double>& sorted, std::size_t max_bins
     h.edges[bins] = last;
     h.counts.assign(bins, 0);
     const double denom = last - first;
-    for (const double x : sorted) {
+    const auto nb = static_cast<std::ptrdiff_t>(bins);
+    for (const double x : v) {
         // numpy.histogram's uniform-bin path: index from the scaled value,
         // then corrected against the edges themselves.
         auto k = static_cast<std::ptrdiff_t>((x - first) / denom * static_cast<double>(bins));
-        const auto nb = static_cast<std::ptrdiff_t>(bins);
         if (k >= nb) k = nb - 1;
         if (k < 0) k = 0;
         if (x < h.edges[static_cast<std::size_t>(k)] && k > 0) --k;
@@ -102,6 +115,22 @@ Histogram auto_histogram(const std::vector<double>& sorted, std::size_t max_bins
         ++h.counts[static_cast<std::size_t>(k)];
     }
     return h;
+}
+
+}  // namespace
+
+double quantile_sorted(const std::vector<double>& sorted, double p) {
+    if (sorted.empty()) return kNaN;
+    const double h = static_cast<double>(sorted.size() - 1) * std::clamp(p, 0.0, 1.0);
+    const auto lo = static_cast<std::size_t>(std::floor(h));
+    if (lo + 1 >= sorted.size()) return sorted.back();
+    return lerp(sorted[lo], sorted[lo + 1], h - static_cast<double>(lo));
+}
+
+Histogram auto_histogram(const std::vector<double>& sorted, std::size_t max_bins) {
+    if (sorted.empty()) return {};
+    const double iqr = quantile_sorted(sorted, 0.75) - quantile_sorted(sorted, 0.25);
+    return histogram_of(sorted, sorted.front(), sorted.back(), iqr, max_bins);
 }
 
 ColumnSummary summarise_column(const Column& column, std::size_t max_bins) {
@@ -127,15 +156,16 @@ ColumnSummary summarise_column(const Column& column, std::size_t max_bins) {
     s.n = v.size();
     s.missing = s.rows - s.n;
     if (v.empty()) return s;
-    std::sort(v.begin(), v.end());
     s.mean = mean_of(v);
     if (v.size() >= 2) s.sd = sd_of(v, s.mean);
-    s.min = v.front();
-    s.max = v.back();
-    s.q1 = quantile_sorted(v, 0.25);
-    s.median = quantile_sorted(v, 0.5);
-    s.q3 = quantile_sorted(v, 0.75);
-    s.histogram = auto_histogram(v, max_bins);
+    const auto [lo, hi] = std::minmax_element(v.begin(), v.end());
+    s.min = *lo;
+    s.max = *hi;
+    // Quantiles by selection (each partially reorders v; the order statistics are unchanged).
+    s.median = select_quantile(v, 0.5);
+    s.q1 = select_quantile(v, 0.25);
+    s.q3 = select_quantile(v, 0.75);
+    s.histogram = histogram_of(v, s.min, s.max, s.q3 - s.q1, max_bins);
     return s;
 }
 

@@ -60,6 +60,14 @@ QString kindName(ColumnKind k) {
     return k == ColumnKind::Numeric ? ImportDialog::tr("numeric") : ImportDialog::tr("categorical");
 }
 
+// Why "automatic" chose categorical: the first text cell and its line.
+QString kindTip(const Column& c) {
+    if (c.kind != ColumnKind::Categorical || !c.first_text_line) return {};
+    return ImportDialog::tr("Read as categorical because of “%1” on line %2")
+        .arg(QString::fromStdString(c.first_text))
+        .arg(c.first_text_line);
+}
+
 }  // namespace
 
 ImportDialog::ImportDialog(const QString& path, QWidget* parent) : QDialog(parent), path_(path) {
@@ -355,16 +363,22 @@ void ImportDialog::refreshPreview() {
 void ImportDialog::rebuildKinds(const Table& base) {
     std::vector<std::string> names;
     for (const auto& c : base.columns) names.push_back(c.name);
+    if (names == previewNames_ && kindsList_->rowCount() == static_cast<int>(names.size())) {
+        // Same columns: keep the combo boxes (and the keyboard focus), update what "automatic" found.
+        for (int r = 0; r < kindsList_->rowCount(); ++r)
+            if (auto* combo = qobject_cast<QComboBox*>(kindsList_->cellWidget(r, 1))) {
+                const Column& c = base.columns[static_cast<std::size_t>(r)];
+                combo->setItemText(0, tr("automatic (%1)").arg(kindName(c.kind)));
+                if (auto* item = kindsList_->item(r, 0)) item->setToolTip(kindTip(c));
+            }
+        return;
+    }
     previewNames_ = names;
     kindsList_->setRowCount(static_cast<int>(names.size()));
     for (int r = 0; r < static_cast<int>(names.size()); ++r) {
         const Column& c = base.columns[static_cast<std::size_t>(r)];
         auto* item = new QTableWidgetItem(QString::fromStdString(c.name));
-        item->setToolTip(c.kind == ColumnKind::Categorical && c.first_text_line
-                             ? tr("Read as categorical because of “%1” on line %2")
-                                   .arg(QString::fromStdString(c.first_text))
-                                   .arg(c.first_text_line)
-                             : QString());
+        item->setToolTip(kindTip(c));
         kindsList_->setItem(r, 0, item);
         auto* combo = new QComboBox(kindsList_);
         combo->setObjectName(QStringLiteral("import-kind-") + QString::fromStdString(c.name));
