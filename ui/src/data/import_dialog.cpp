@@ -228,7 +228,8 @@ void ImportDialog::buildUi() {
     connect(decimal_, &QComboBox::currentIndexChanged, this, &ImportDialog::schedulePreview);
     connect(missing_, &QListWidget::itemChanged, this, &ImportDialog::schedulePreview);
     connect(addMissing_, &QPushButton::clicked, this, [this] {
-        auto* item = new QListWidgetItem(QStringLiteral("-99"), missing_);
+        // Starts empty (the same as the empty-cell token, so the preview does not change until typed in).
+        auto* item = new QListWidgetItem(QString(), missing_);
         item->setFlags(item->flags() | Qt::ItemIsEditable);
         missing_->setCurrentItem(item);
         missing_->editItem(item);
