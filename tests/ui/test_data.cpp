@@ -211,6 +211,18 @@ TEST(ImportDialog, SemicolonFileWithDecimalCommasPreviewsNumbers) {
     click(child<QCheckBox>(&dlg, "import-header"));  // back on
     ASSERT_TRUE(test::waitUntil([&] { return dlg.previewTable() && dlg.previewTable()->rows() == 4; }));
 
+    // A new token typed into the list: "north" cells become missing.
+    click(child<QPushButton>(&dlg, "import-missing-add"));
+    auto* editor = missing->findChild<QLineEdit*>();
+    ASSERT_NE(editor, nullptr);
+    QTest::keyClicks(editor, QStringLiteral("north"));
+    QTest::keyClick(editor, Qt::Key_Return);
+    ASSERT_TRUE(test::waitUntil([&] {
+        return dlg.previewTable() && cell(model, 0, 3, TableModel::MissingRole).toBool();
+    })) << dlg.message().toStdString();
+    EXPECT_EQ(missing->count(), 4);
+    EXPECT_EQ(cell(model, 2, 3).toString(), QStringLiteral("south"));
+
     // Load reads the whole file with these options and closes the dialog.
     click(child<QPushButton>(&dlg, "import-load"));
     ASSERT_TRUE(test::waitUntil([&] { return dlg.result() == QDialog::Accepted; }, 20000))
@@ -221,6 +233,8 @@ TEST(ImportDialog, SemicolonFileWithDecimalCommasPreviewsNumbers) {
     EXPECT_TRUE(dlg.options().decimal_comma);
     EXPECT_EQ(dlg.options().column_kinds.at("discount_pct"), ColumnKind::Categorical);
     EXPECT_EQ(dlg.table()->at("region").kind, ColumnKind::Categorical);
+    EXPECT_EQ(dlg.table()->at("region").levels, std::vector<std::string>{"south"});  // "north" is missing now
+    EXPECT_EQ(dlg.table()->at("region").missing_count(), 3u);                      // 2 north + 1 empty
     EXPECT_EQ(fileHash(path), hash);  // the file was only read
 }
 
