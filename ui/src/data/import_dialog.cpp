@@ -1,29 +1,486 @@
-// Placeholder until the import dialog is built (issue #4, in progress): reads with default options.
 #include "data/import_dialog.hpp"
 
+#include <QCheckBox>
+#include <QComboBox>
 #include <QDialogButtonBox>
+#include <QFileInfo>
+#include <QFormLayout>
+#include <QGroupBox>
+#include <QHBoxLayout>
+#include <QHeaderView>
 #include <QLabel>
-#include <QMessageBox>
+#include <QLineEdit>
+#include <QListWidget>
+#include <QLocale>
+#include <QProgressBar>
+#include <QPushButton>
+#include <QSplitter>
+#include <QStyledItemDelegate>
+#include <QTableView>
+#include <QTableWidget>
+#include <QTimer>
 #include <QVBoxLayout>
+#include <QtConcurrent/QtConcurrentRun>
+#include <atomic>
 
+#include "data/csv_head.hpp"
+#include "data/table_model.hpp"
 #include "moderato/error.hpp"
+#include "style/estuary.hpp"
 
 namespace moderato::ui {
 
-ImportDialog::ImportDialog(const QString& path, QWidget* parent) : QDialog(parent), path_(path) {
-    auto* layout = new QVBoxLayout(this);
-    layout->addWidget(new QLabel(path, this));
-    auto* buttons = new QDialogButtonBox(QDialogButtonBox::Ok | QDialogButtonBox::Cancel, this);
-    layout->addWidget(buttons);
-    connect(buttons, &QDialogButtonBox::rejected, this, &QDialog::reject);
-    connect(buttons, &QDialogButtonBox::accepted, this, [this] {
-        try {
-            table_ = std::make_shared<const Table>(read_csv(path_.toStdString(), options_));
-            accept();
-        } catch (const InputError& e) {
-            QMessageBox::warning(this, tr("Import"), QString::fromStdString(e.what()));
+struct ImportDialog::LoadState {
+    std::atomic<std::size_t> done{0}, total{0};
+    std::atomic<bool> stop{false};
+};
+
+namespace {
+
+enum DelimiterChoice { Automatic, Comma, Semicolon, Tab, Other };
+
+// Shows the empty token as "(empty cell)" in the missing-token list; the
+// item's text itself stays empty so editing it edits the real token.
+class TokenDelegate : public QStyledItemDelegate {
+public:
+    using QStyledItemDelegate::QStyledItemDelegate;
+
+protected:
+    void initStyleOption(QStyleOptionViewItem* option, const QModelIndex& index) const override {
+        QStyledItemDelegate::initStyleOption(option, index);
+        if (index.data(Qt::EditRole).toString().isEmpty()) {
+            option->text = ImportDialog::tr("(empty cell)");
+            option->font.setItalic(true);
+            option->palette.setColor(QPalette::Text, estuary::notSignificant);
         }
+    }
+};
+
+QString kindName(ColumnKind k) {
+    return k == ColumnKind::Numeric ? ImportDialog::tr("numeric") : ImportDialog::tr("categorical");
+}
+
+// Why "automatic" chose categorical: the first text cell and its line.
+QString kindTip(const Column& c) {
+    if (c.kind != ColumnKind::Categorical || !c.first_text_line) return {};
+    return ImportDialog::tr("Read as categorical because of “%1” on line %2")
+        .arg(QString::fromStdString(c.first_text))
+        .arg(c.first_text_line);
+}
+
+}  // namespace
+
+ImportDialog::ImportDialog(const QString& path, QWidget* parent) : QDialog(parent), path_(path) {
+    setObjectName(QStringLiteral("import-dialog"));
+    setWindowTitle(tr("Import %1").arg(QFileInfo(path).fileName()));
+    buildUi();
+    connect(&watcher_, &QFutureWatcher<LoadResult>::finished, this, &ImportDialog::loadFinished);
+    refreshPreview();
+}
+
+ImportDialog::~ImportDialog() {
+    if (load_) {
+        load_->stop = true;
+        watcher_.waitForFinished();
+    }
+}
+
+void ImportDialog::buildUi() {
+    auto* layout = new QVBoxLayout(this);
+
+    const QFileInfo info(path_);
+    auto* file = new QLabel(this);
+    file->setObjectName(QStringLiteral("import-file"));
+    file->setTextFormat(Qt::RichText);
+    file->setText(tr("<b>%1</b> &nbsp;·&nbsp; %2 &nbsp;·&nbsp; %3")
+                      .arg(info.fileName().toHtmlEscaped(), info.absolutePath().toHtmlEscaped(),
+                           QLocale().formattedDataSize(info.size())));
+    file->setTextInteractionFlags(Qt::TextSelectableByMouse);
+    layout->addWidget(file);
+
+    // ---- reading options
+    auto* top = new QHBoxLayout;
+    auto* reading = new QGroupBox(tr("Reading"), this);
+    auto* form = new QFormLayout(reading);
+    delimiter_ = new QComboBox(reading);
+    delimiter_->setObjectName(QStringLiteral("import-delimiter"));
+    delimiter_->addItem(tr("Detect"), int(Automatic));
+    delimiter_->addItem(tr("Comma  ,"), int(Comma));
+    delimiter_->addItem(tr("Semicolon  ;"), int(Semicolon));
+    delimiter_->addItem(tr("Tab"), int(Tab));
+    delimiter_->addItem(tr("Other character"), int(Other));
+    otherDelimiter_ = new QLineEdit(reading);
+    otherDelimiter_->setObjectName(QStringLiteral("import-delimiter-other"));
+    otherDelimiter_->setMaxLength(1);
+    otherDelimiter_->setFixedWidth(otherDelimiter_->fontMetrics().horizontalAdvance(QStringLiteral("MMM")) + 12);
+    otherDelimiter_->setEnabled(false);
+    otherDelimiter_->setPlaceholderText(QStringLiteral("|"));
+    auto* delimRow = new QHBoxLayout;
+    delimRow->addWidget(delimiter_, 1);
+    delimRow->addWidget(otherDelimiter_);
+    form->addRow(tr("Delimiter"), delimRow);
+    header_ = new QCheckBox(tr("The first row holds the column names"), reading);
+    header_->setObjectName(QStringLiteral("import-header"));
+    header_->setChecked(true);
+    form->addRow(tr("Header"), header_);
+    decimal_ = new QComboBox(reading);
+    decimal_->setObjectName(QStringLiteral("import-decimal"));
+    decimal_->addItem(tr("Point  (3.14)"), false);
+    decimal_->addItem(tr("Comma  (3,14)"), true);
+    form->addRow(tr("Decimal mark"), decimal_);
+    top->addWidget(reading, 3);
+
+    auto* missingBox = new QGroupBox(tr("Missing values"), this);
+    auto* missingLayout = new QHBoxLayout(missingBox);
+    missing_ = new QListWidget(missingBox);
+    missing_->setObjectName(QStringLiteral("import-missing"));
+    missing_->setItemDelegate(new TokenDelegate(missing_));
+    missing_->setToolTip(tr("Cells equal to one of these (after trimming spaces) are missing. Double-click to edit."));
+    for (const auto& t : CsvOptions{}.missing_tokens) {
+        auto* item = new QListWidgetItem(QString::fromStdString(t), missing_);
+        item->setFlags(item->flags() | Qt::ItemIsEditable);
+    }
+    missing_->setMaximumHeight(missing_->sizeHintForRow(0) * 5 + 2 * missing_->frameWidth() + 4);
+    auto* missingButtons = new QVBoxLayout;
+    addMissing_ = new QPushButton(tr("Add"), missingBox);
+    addMissing_->setObjectName(QStringLiteral("import-missing-add"));
+    removeMissing_ = new QPushButton(tr("Remove"), missingBox);
+    removeMissing_->setObjectName(QStringLiteral("import-missing-remove"));
+    missingButtons->addWidget(addMissing_);
+    missingButtons->addWidget(removeMissing_);
+    missingButtons->addStretch(1);
+    missingLayout->addWidget(missing_, 1);
+    missingLayout->addLayout(missingButtons);
+    top->addWidget(missingBox, 2);
+    layout->addLayout(top);
+
+    // ---- preview and column types
+    auto* split = new QSplitter(Qt::Horizontal, this);
+    preview_ = new QTableView(split);
+    preview_->setObjectName(QStringLiteral("import-preview"));
+    previewModel_ = new TableModel(preview_);
+    preview_->setModel(previewModel_);
+    preview_->setEditTriggers(QAbstractItemView::NoEditTriggers);
+    preview_->verticalHeader()->setSectionResizeMode(QHeaderView::Fixed);
+    preview_->verticalHeader()->setDefaultSectionSize(preview_->fontMetrics().height() + 6);
+    preview_->verticalHeader()->setToolTip(tr("Line numbers of the file"));
+    preview_->setAlternatingRowColors(true);
+    kindsList_ = new QTableWidget(0, 2, split);
+    kindsList_->setObjectName(QStringLiteral("import-column-types"));
+    kindsList_->setHorizontalHeaderLabels({tr("Column"), tr("Read as")});
+    kindsList_->verticalHeader()->hide();
+    kindsList_->horizontalHeader()->setSectionResizeMode(0, QHeaderView::Stretch);
+    kindsList_->horizontalHeader()->setSectionResizeMode(1, QHeaderView::ResizeToContents);
+    kindsList_->setEditTriggers(QAbstractItemView::NoEditTriggers);
+    kindsList_->setSelectionMode(QAbstractItemView::NoSelection);
+    split->addWidget(preview_);
+    split->addWidget(kindsList_);
+    split->setStretchFactor(0, 3);
+    split->setStretchFactor(1, 1);
+    split->setSizes({600, 300});
+    layout->addWidget(split, 1);
+
+    message_ = new QLabel(this);
+    message_->setObjectName(QStringLiteral("import-message"));
+    message_->setWordWrap(true);
+    message_->setTextInteractionFlags(Qt::TextSelectableByMouse);
+    message_->setMinimumHeight(message_->fontMetrics().lineSpacing() * 2);
+    layout->addWidget(message_);
+
+    progress_ = new QProgressBar(this);
+    progress_->setObjectName(QStringLiteral("import-progress"));
+    progress_->setRange(0, 1000);
+    progress_->setFormat(tr("Reading… %p%"));
+    progress_->setVisible(false);
+    layout->addWidget(progress_);
+
+    buttons_ = new QDialogButtonBox(this);
+    loadButton_ = buttons_->addButton(tr("Load"), QDialogButtonBox::AcceptRole);
+    loadButton_->setObjectName(QStringLiteral("import-load"));
+    loadButton_->setDefault(true);
+    cancelButton_ = buttons_->addButton(QDialogButtonBox::Cancel);
+    cancelButton_->setObjectName(QStringLiteral("import-cancel"));
+    layout->addWidget(buttons_);
+    connect(buttons_, &QDialogButtonBox::accepted, this, &ImportDialog::startLoad);
+    connect(buttons_, &QDialogButtonBox::rejected, this, &ImportDialog::reject);
+
+    previewTimer_ = new QTimer(this);
+    previewTimer_->setSingleShot(true);
+    previewTimer_->setInterval(0);
+    connect(previewTimer_, &QTimer::timeout, this, &ImportDialog::refreshPreview);
+    progressTimer_ = new QTimer(this);
+    progressTimer_->setInterval(50);
+    connect(progressTimer_, &QTimer::timeout, this, [this] {
+        if (!load_) return;
+        const std::size_t total = load_->total.load();
+        progress_->setValue(total ? static_cast<int>(1000.0 * static_cast<double>(load_->done.load()) /
+                                                     static_cast<double>(total))
+                                  : 0);
     });
+
+    connect(delimiter_, &QComboBox::currentIndexChanged, this, [this] {
+        otherDelimiter_->setEnabled(delimiter_->currentData().toInt() == Other);
+        if (otherDelimiter_->isEnabled()) otherDelimiter_->setFocus();
+        schedulePreview();
+    });
+    connect(otherDelimiter_, &QLineEdit::textChanged, this, &ImportDialog::schedulePreview);
+    connect(header_, &QCheckBox::toggled, this, &ImportDialog::schedulePreview);
+    connect(decimal_, &QComboBox::currentIndexChanged, this, &ImportDialog::schedulePreview);
+    connect(missing_, &QListWidget::itemChanged, this, &ImportDialog::schedulePreview);
+    connect(addMissing_, &QPushButton::clicked, this, [this] {
+        // Starts empty (the same as the empty-cell token, so the preview does not change until typed in).
+        auto* item = new QListWidgetItem(QString(), missing_);
+        item->setFlags(item->flags() | Qt::ItemIsEditable);
+        missing_->setCurrentItem(item);
+        missing_->editItem(item);
+        schedulePreview();
+    });
+    connect(removeMissing_, &QPushButton::clicked, this, [this] {
+        delete missing_->currentItem();
+        schedulePreview();
+    });
+    resize(920, 640);
+}
+
+void ImportDialog::schedulePreview() { previewTimer_->start(); }
+
+void ImportDialog::setMessage(const QString& text, bool error) {
+    messageIsError_ = error;
+    message_->setText(text);
+    QPalette pal = message_->palette();
+    pal.setColor(QPalette::WindowText, error ? estuary::series(1) : palette().color(QPalette::WindowText));
+    message_->setPalette(pal);
+}
+
+QString ImportDialog::message() const { return message_->text(); }
+
+const Table* ImportDialog::previewTable() const { return previewModel_->table(); }
+
+bool ImportDialog::isLoading() const { return loading_; }
+
+bool ImportDialog::baseOptions(CsvOptions& o, QString& why) const {
+    o = CsvOptions{};
+    switch (delimiter_->currentData().toInt()) {
+        case Comma: o.delimiter = ','; break;
+        case Semicolon: o.delimiter = ';'; break;
+        case Tab: o.delimiter = '\t'; break;
+        case Other: {
+            const QString t = otherDelimiter_->text();
+            if (t.isEmpty()) {
+                why = tr("Type the delimiter character in the box beside “Other character”.");
+                return false;
+            }
+            if (t.at(0).unicode() > 126 || t.at(0).unicode() < 32) {
+                why = tr("The delimiter must be one plain ASCII character (“%1” is not).").arg(t);
+                return false;
+            }
+            o.delimiter = static_cast<char>(t.at(0).unicode());
+            break;
+        }
+        default: o.delimiter = 0;
+    }
+    o.header = header_->isChecked();
+    o.decimal_comma = decimal_->currentData().toBool();
+    o.missing_tokens.clear();
+    for (int i = 0; i < missing_->count(); ++i) o.missing_tokens.push_back(missing_->item(i)->text().toStdString());
+    return true;
+}
+
+CsvOptions ImportDialog::currentOptions() const {
+    CsvOptions o;
+    QString why;
+    if (!baseOptions(o, why)) return o;
+    for (const auto& name : previewNames_) {
+        const auto it = kinds_.find(name);
+        if (it != kinds_.end()) o.column_kinds[name] = it->second;
+    }
+    return o;
+}
+
+void ImportDialog::refreshPreview() {
+    previewTimer_->stop();
+    if (isLoading()) return;
+    CsvOptions base;
+    QString why;
+    if (!baseOptions(base, why)) {
+        previewModel_->setTable(nullptr);
+        setMessage(why, true);
+        loadButton_->setEnabled(false);
+        return;
+    }
+    base.threads = 1;
+    const std::string file = path_.toStdString();
+    const CsvHead head = readCsvHead(file, kPreviewRecords, base.delimiter);
+    if (!head.error.empty()) {
+        previewModel_->setTable(nullptr);
+        setMessage(QString::fromStdString(head.error), true);
+        loadButton_->setEnabled(false);
+        return;
+    }
+    const std::string name = QFileInfo(path_).fileName().toStdString();
+    std::shared_ptr<const Table> shown;
+    try {
+        // First without the type overrides: the columns and what they hold.
+        auto plain = std::make_shared<const Table>(read_csv_text(head.text, name, base));
+        rebuildKinds(*plain);
+        CsvOptions withKinds = currentOptions();
+        withKinds.threads = 1;
+        shown = withKinds.column_kinds.empty() ? plain
+                                               : std::make_shared<const Table>(read_csv_text(head.text, name, withKinds));
+    } catch (const InputError& e) {
+        previewModel_->setTable(nullptr);
+        QString text = QString::fromStdString(e.what());
+        if (head.truncated)
+            text += tr(" (The preview stopped after %1 without finding the end of this record.)")
+                        .arg(QLocale().formattedDataSize(static_cast<qint64>(head.text.size())));
+        setMessage(text, true);
+        loadButton_->setEnabled(true);  // the whole file may still be read (and report the same)
+        return;
+    } catch (const std::exception& e) {
+        previewModel_->setTable(nullptr);
+        setMessage(tr("The preview failed: %1").arg(QString::fromUtf8(e.what())), true);
+        return;
+    }
+    previewModel_->setTable(shown);
+    preview_->resizeColumnsToContents();
+    for (int c = 0; c < previewModel_->columnCount(); ++c)
+        preview_->setColumnWidth(c, std::min(preview_->columnWidth(c), 220));
+    loadButton_->setEnabled(true);
+    const std::size_t rows = shown->rows();
+    QString text;
+    const auto plural = [](std::size_t n, const QString& one, const QString& many) {
+        return QLocale().toString(static_cast<qulonglong>(n)) + QLatin1Char(' ') + (n == 1 ? one : many);
+    };
+    if (head.wholeFile)
+        text = tr("The whole file: %1").arg(plural(rows, tr("data row"), tr("data rows")));
+    else
+        text = tr("Preview of the first %1; Load reads the whole file").arg(plural(rows, tr("data row"), tr("data rows")));
+    text += QStringLiteral(" · ") + plural(shown->cols(), tr("column"), tr("columns"));
+    if (!shown->row_lines.empty())
+        text += tr(" · row numbers are line numbers of the file");
+    setMessage(text + QLatin1Char('.'), false);
+}
+
+void ImportDialog::rebuildKinds(const Table& base) {
+    std::vector<std::string> names;
+    for (const auto& c : base.columns) names.push_back(c.name);
+    if (names == previewNames_ && kindsList_->rowCount() == static_cast<int>(names.size())) {
+        // Same columns: keep the combo boxes (and the keyboard focus), update what "automatic" found.
+        for (int r = 0; r < kindsList_->rowCount(); ++r)
+            if (auto* combo = qobject_cast<QComboBox*>(kindsList_->cellWidget(r, 1))) {
+                const Column& c = base.columns[static_cast<std::size_t>(r)];
+                combo->setItemText(0, tr("automatic (%1)").arg(kindName(c.kind)));
+                if (auto* item = kindsList_->item(r, 0)) item->setToolTip(kindTip(c));
+            }
+        return;
+    }
+    previewNames_ = names;
+    kindsList_->setRowCount(static_cast<int>(names.size()));
+    for (int r = 0; r < static_cast<int>(names.size()); ++r) {
+        const Column& c = base.columns[static_cast<std::size_t>(r)];
+        auto* item = new QTableWidgetItem(QString::fromStdString(c.name));
+        item->setToolTip(kindTip(c));
+        kindsList_->setItem(r, 0, item);
+        auto* combo = new QComboBox(kindsList_);
+        combo->setObjectName(QStringLiteral("import-kind-") + QString::fromStdString(c.name));
+        combo->addItem(tr("automatic (%1)").arg(kindName(c.kind)), -1);
+        combo->addItem(tr("numeric"), int(ColumnKind::Numeric));
+        combo->addItem(tr("categorical"), int(ColumnKind::Categorical));
+        const auto it = kinds_.find(c.name);
+        if (it != kinds_.end()) combo->setCurrentIndex(combo->findData(int(it->second)));
+        const std::string name = c.name;
+        connect(combo, &QComboBox::currentIndexChanged, this, [this, combo, name] {
+            const int k = combo->currentData().toInt();
+            if (k < 0)
+                kinds_.erase(name);
+            else
+                kinds_[name] = static_cast<ColumnKind>(k);
+            schedulePreview();
+        });
+        kindsList_->setCellWidget(r, 1, combo);
+    }
+}
+
+void ImportDialog::startLoad() {
+    if (isLoading()) return;
+    CsvOptions base;
+    QString why;
+    if (!baseOptions(base, why)) {
+        setMessage(why, true);
+        return;
+    }
+    loadingOptions_ = currentOptions();
+    load_ = std::make_shared<LoadState>();
+    auto state = load_;
+    const std::string file = path_.toStdString();
+    const CsvOptions o = loadingOptions_;
+    setLoading(true);
+    setMessage(tr("Reading %1…").arg(QFileInfo(path_).fileName()), false);
+    watcher_.setFuture(QtConcurrent::run([state, file, o]() {
+        LoadResult r;
+        CsvProgress progress;
+        progress.callback = [state](std::size_t done, std::size_t total) {
+            state->done = done;
+            state->total = total;
+            return !state->stop.load();
+        };
+        try {
+            r.table = std::make_shared<const Table>(read_csv(file, o, progress));
+        } catch (const Cancelled&) {
+            r.cancelled = true;
+        } catch (const InputError& e) {
+            r.error = QString::fromStdString(e.what());
+        } catch (const std::bad_alloc&) {
+            r.error = tr("There is not enough memory to read this file.");
+        } catch (const std::exception& e) {
+            r.error = tr("Internal error while reading: %1").arg(QString::fromUtf8(e.what()));
+        }
+        if (state->stop.load()) {  // asked to stop: keep nothing, even if reading had just finished
+            r.table.reset();
+            r.cancelled = true;
+        }
+        return r;
+    }));
+}
+
+void ImportDialog::setLoading(bool on) {
+    loading_ = on;
+    for (QWidget* w : std::initializer_list<QWidget*>{delimiter_, otherDelimiter_, header_, decimal_, missing_,
+                                                      addMissing_, removeMissing_, kindsList_, loadButton_})
+        w->setEnabled(!on);
+    if (!on) otherDelimiter_->setEnabled(delimiter_->currentData().toInt() == Other);
+    progress_->setValue(0);
+    progress_->setVisible(on);
+    if (on)
+        progressTimer_->start();
+    else
+        progressTimer_->stop();
+}
+
+void ImportDialog::loadFinished() {
+    const LoadResult r = watcher_.result();
+    setLoading(false);
+    if (r.cancelled) {
+        setMessage(tr("Loading was cancelled; nothing was read. Change the options or press Load again."), false);
+        return;
+    }
+    if (!r.error.isEmpty() || !r.table) {
+        setMessage(r.error.isEmpty() ? tr("The file could not be read.") : r.error, true);
+        return;
+    }
+    table_ = r.table;
+    options_ = loadingOptions_;
+    options_.threads = 0;
+    accept();
+}
+
+void ImportDialog::reject() {
+    if (isLoading()) {
+        load_->stop = true;
+        setMessage(tr("Cancelling…"), false);
+        return;
+    }
+    QDialog::reject();
 }
 
 }  // namespace moderato::ui

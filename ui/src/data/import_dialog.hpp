@@ -1,28 +1,121 @@
 // Importing a delimited text file: options with a live preview, then the
 // full load in a worker thread with progress and Cancel.
+//
+// The preview reads only the file's first records (core read_csv_text on
+// them) and is read again after every change of an option; a parse error is
+// shown in the dialog, never in a message box. Load reads the whole file in
+// a worker (QtConcurrent) while a progress bar runs; Cancel stops it and
+// keeps the dialog open. The user's file is only ever read.
 #pragma once
 
 #include <QDialog>
+#include <QFutureWatcher>
+#include <map>
 #include <memory>
+#include <string>
 
 #include "moderato/csv.hpp"
 #include "moderato/table.hpp"
 
+class QCheckBox;
+class QComboBox;
+class QDialogButtonBox;
+class QLabel;
+class QLineEdit;
+class QListWidget;
+class QProgressBar;
+class QPushButton;
+class QTableView;
+class QTableWidget;
+class QTimer;
+
 namespace moderato::ui {
+
+class TableModel;
 
 class ImportDialog : public QDialog {
     Q_OBJECT
 public:
+    // Records read for the preview (the header and about 200 data rows).
+    static constexpr std::size_t kPreviewRecords = 201;
+
     explicit ImportDialog(const QString& path, QWidget* parent = nullptr);
+    ~ImportDialog() override;
+
     QString path() const { return path_; }
-    CsvOptions options() const { return options_; }
+    // The options the table was read with (after Load), else the current ones.
+    CsvOptions options() const { return table_ ? options_ : currentOptions(); }
     // The whole table, read when the dialog was accepted.
     std::shared_ptr<const Table> table() const { return table_; }
 
+    // The options as the widgets set them now.
+    CsvOptions currentOptions() const;
+    // The table of the preview (nullptr when the preview could not be read).
+    const Table* previewTable() const;
+    TableModel* previewModel() const { return previewModel_; }
+    // The text under the preview: what the preview shows, or the error.
+    QString message() const;
+    bool messageIsError() const { return messageIsError_; }
+    bool isLoading() const;
+
+public Q_SLOTS:
+    // Reads the preview again now (option changes call it on the next turn
+    // of the event loop).
+    void refreshPreview();
+    // Loads the whole file in a worker; the dialog is accepted when it succeeds.
+    void startLoad();
+    // Stops a load in progress (the dialog stays open); closes the dialog otherwise.
+    void reject() override;
+
 private:
+    struct LoadState;
+    struct LoadResult {
+        std::shared_ptr<const Table> table;
+        QString error;
+        bool cancelled = false;
+    };
+
+    void buildUi();
+    void schedulePreview();
+    void setMessage(const QString& text, bool error);
+    void rebuildKinds(const Table& base);
+    void loadFinished();
+    void setLoading(bool on);
+    // The options without the per-column overrides; false (with a message in
+    // `why`) when the widgets do not give a usable delimiter.
+    bool baseOptions(CsvOptions& out, QString& why) const;
+
     QString path_;
     CsvOptions options_;
     std::shared_ptr<const Table> table_;
+
+    // Per-column type chosen by the user (by column name; absent = automatic).
+    std::map<std::string, ColumnKind> kinds_;
+    std::vector<std::string> previewNames_;
+
+    QComboBox* delimiter_ = nullptr;
+    QLineEdit* otherDelimiter_ = nullptr;
+    QCheckBox* header_ = nullptr;
+    QComboBox* decimal_ = nullptr;
+    QListWidget* missing_ = nullptr;
+    QPushButton* addMissing_ = nullptr;
+    QPushButton* removeMissing_ = nullptr;
+    QTableView* preview_ = nullptr;
+    TableModel* previewModel_ = nullptr;
+    QTableWidget* kindsList_ = nullptr;
+    QLabel* message_ = nullptr;
+    QProgressBar* progress_ = nullptr;
+    QDialogButtonBox* buttons_ = nullptr;
+    QPushButton* loadButton_ = nullptr;
+    QPushButton* cancelButton_ = nullptr;
+    QTimer* previewTimer_ = nullptr;
+    QTimer* progressTimer_ = nullptr;
+    bool messageIsError_ = false;
+    bool loading_ = false;
+
+    std::shared_ptr<LoadState> load_;
+    QFutureWatcher<LoadResult> watcher_;
+    CsvOptions loadingOptions_;
 };
 
 }  // namespace moderato::ui
