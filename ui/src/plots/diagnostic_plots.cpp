@@ -96,6 +96,11 @@ QString DiagnosticPlot::figureKey() const {
 void DiagnosticPlot::setDiagnostics(std::shared_ptr<const Diagnostics> d) {
     d_ = std::move(d);
     highlighted_.clear();
+    // The coordinates once per diagnostics (the quantile plot sorts every row).
+    cx_.clear();
+    cy_.clear();
+    cobs_.clear();
+    if (d_) coordinates(cx_, cy_, cobs_);
     redraw();
 }
 
@@ -155,9 +160,9 @@ void DiagnosticPlot::redraw() {
     std::vector<char> flagged(d.n, 0);
     for (const auto& r : d.flagged) flagged[r.observation] = 1;
 
-    std::vector<double> x, y;
-    std::vector<std::size_t> obs;
-    coordinates(x, y, obs);
+    const std::vector<double>& x = cx_;
+    const std::vector<double>& y = cy_;
+    const std::vector<std::size_t>& obs = cobs_;
     xs_.assign(d.n, NAN);
     ys_.assign(d.n, NAN);
     for (std::size_t k = 0; k < obs.size(); ++k) {

@@ -204,7 +204,10 @@ void SurfacePlot::redraw() {
         const bool many = pointsX_.size() > 2000;
         pts->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle,
                                              QPen(QColor(255, 255, 255, many ? 90 : 150), 0.8),
-                                             QBrush(estuary::withAlpha(estuary::ink, many ? 0.3 : 0.5)), 4));
+                                             QBrush(estuary::withAlpha(greyscale_ ? estuary::toGrey(estuary::ink)
+                                                                                  : estuary::ink,
+                                                                       many ? 0.3 : 0.5)),
+                                             4));
         pts->removeFromLegend();
         QVector<double> xs, zs;
         for (std::size_t i : thinScatter(pointsX_, pointsZ_)) {

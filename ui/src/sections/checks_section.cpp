@@ -9,6 +9,7 @@
 #include <QTableView>
 #include <QVBoxLayout>
 #include <algorithm>
+#include <cmath>
 
 #include "model/project_document.hpp"
 #include "plots/diagnostic_plots.hpp"
@@ -80,8 +81,27 @@ ChecksSection::ChecksSection(ProjectDocument* doc, QWidget* parent)
 
 QList<FigureSource*> ChecksSection::figures() { return {residuals_, quantiles_, influence_}; }
 
+namespace {
+// Whether two runs have the same rows, design and estimates: then their
+// diagnostics are the same (they do not depend on the SE kind or the probe).
+bool sameFit(const AnalysisRun& a, const AnalysisRun& b) {
+    auto same = [](const Eigen::VectorXd& u, const Eigen::VectorXd& v) {
+        return u.size() == v.size() &&
+               std::equal(u.data(), u.data() + u.size(), v.data(),
+                          [](double x, double y) { return x == y || (std::isnan(x) && std::isnan(y)); });
+    };
+    return a.table == b.table && a.fit.family == b.fit.family && a.design.rows == b.design.rows &&
+           a.design.X.cols() == b.design.X.cols() && same(a.design.weights, b.design.weights) &&
+           same(a.fit.beta, b.fit.beta) && same(a.fit.fitted, b.fit.fitted);
+}
+}  // namespace
+
 void ChecksSection::showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun> run, const QString& error) {
     if (id == id_ && run == run_ && error == error_ && !dirty_ && (diag_ || !run)) return;
+    if (id == id_ && run && run_ && diag_ && !dirty_ && sameFit(*run, *run_)) {
+        run_ = std::move(run);  // a probe-only change: the checks stand
+        return;
+    }
     id_ = id;
     run_ = std::move(run);
     error_ = error;
