@@ -398,6 +398,25 @@ void checkFlaggedList(const QString& name, bool clickAndShow) {
     EXPECT_TRUE(expected.count(rows.front()));
     // The main window showed the dataset.
     EXPECT_EQ(w.datasetPage()->datasetId(), QString::fromStdString(d.analysis.dataset));
+
+    // Clicking a flagged point in a plot selects its row in the list.
+    w.showAnalysis(w.analysisPage()->analysisId());
+    w.analysisPage()->showSection(AnalysisPage::Checks);
+    ASSERT_TRUE(test::waitUntil([&] { return checks->isVisible(); }));
+    DiagnosticPlot* plot = checks->influencePlot();
+    QCustomPlot* cp = plot->figurePlot();
+    cp->replot();
+    ASSERT_FALSE(plot->drawnFlagged().empty());
+    const std::size_t target = plot->drawnFlagged().back();
+    const auto point = plot->flaggedGraph()->data()->at(plot->flaggedGraph()->dataCount() - 1);
+    const QPoint at(static_cast<int>(std::lround(cp->xAxis->coordToPixel(point->key))),
+                    static_cast<int>(std::lround(cp->yAxis->coordToPixel(point->value))));
+    view->clearSelection();
+    QTest::mouseClick(cp, Qt::LeftButton, {}, at);
+    const QModelIndexList sel = view->selectionModel()->selectedRows();
+    ASSERT_EQ(sel.size(), 1);
+    const std::size_t clickedLine = m->index(sel.front().row(), FlaggedRowsModel::Line).data().toULongLong();
+    EXPECT_EQ(lineToRow.at(clickedLine), d.design.rows[target]);
 }
 
 }  // namespace
