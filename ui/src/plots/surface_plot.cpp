@@ -1,19 +1,270 @@
-// Placeholder until the Surface plot is built (issue #4, in progress).
 #include "plots/surface_plot.hpp"
 
 #include <QVBoxLayout>
 #include <qcustomplot.h>
 
+#include "moderato/error.hpp"
+#include "plots/plot_style.hpp"
+#include "plots/scatter_thinning.hpp"
+#include "style/estuary.hpp"
+
 namespace moderato::ui {
 
+namespace {
+
+// Cells beyond the data keep a trace of their colour over the "beyond" fill.
+constexpr unsigned char kBeyondAlpha = 60;
+
+void styleScaleAxis(QCPAxis* axis, const QFont& font) {
+    QPen pen(estuary::ink);
+    axis->setBasePen(pen);
+    axis->setTickPen(pen);
+    axis->setSubTickPen(pen);
+    axis->setTickLabelColor(estuary::ink);
+    axis->setLabelColor(estuary::ink);
+    axis->setTickLabelFont(font);
+    axis->setLabelFont(font);
+}
+
+}  // namespace
+
+QCPColorGradient SurfacePlot::ramp(bool greyscale) {
+    QCPColorGradient g;
+    g.clearColorStops();
+    if (greyscale) {
+        g.setColorStopAt(0.0, QColor(0xF7, 0xF7, 0xF7));
+        g.setColorStopAt(0.55, estuary::toGrey(estuary::series(0)));
+        g.setColorStopAt(1.0, estuary::toGrey(estuary::ink));
+    } else {
+        // near-white -> series 1 (#1F6F8B) -> ink (#1F2A44): one hue, light to dark
+        g.setColorStopAt(0.0, QColor(0xF5, 0xF9, 0xFA));
+        g.setColorStopAt(0.55, estuary::series(0));
+        g.setColorStopAt(1.0, estuary::ink);
+    }
+    g.setColorInterpolation(QCPColorGradient::ciRGB);
+    g.setLevelCount(256);
+    g.setPeriodic(false);
+    return g;
+}
+
 SurfacePlot::SurfacePlot(QWidget* parent) : QWidget(parent), plot_(new QCustomPlot(this)) {
+    setObjectName(QStringLiteral("surface-plot"));
     auto* layout = new QVBoxLayout(this);
     layout->setContentsMargins(0, 0, 0, 0);
     layout->addWidget(plot_);
+    stylePlot(plot_, font());
+    plot_->axisRect()->setBackground(QBrush(estuary::beyond));
+    plot_->xAxis->grid()->setVisible(false);
+    plot_->yAxis->grid()->setVisible(false);
+    plot_->xAxis2->setVisible(true);
+    plot_->yAxis2->setVisible(true);
+    plot_->xAxis2->setTickLabels(false);
+    plot_->yAxis2->setTickLabels(false);
+    connect(plot_->xAxis, qOverload<const QCPRange&>(&QCPAxis::rangeChanged), plot_->xAxis2,
+            qOverload<const QCPRange&>(&QCPAxis::setRange));
+    connect(plot_->yAxis, qOverload<const QCPRange&>(&QCPAxis::rangeChanged), plot_->yAxis2,
+            qOverload<const QCPRange&>(&QCPAxis::setRange));
+    for (QCPAxis* a : {plot_->xAxis2, plot_->yAxis2}) {
+        a->setBasePen(QPen(estuary::ink));
+        a->setTickPen(QPen(estuary::ink));
+        a->setSubTickPen(QPen(estuary::ink));
+    }
+
+    plot_->plotLayout()->insertRow(0);
+    title_ = new QCPTextElement(plot_, QString(), font());
+    title_->setTextColor(estuary::ink);
+    plot_->plotLayout()->addElement(0, 0, title_);
+    scale_ = new QCPColorScale(plot_);
+    scale_->setType(QCPAxis::atRight);
+    scale_->setBarWidth(12);
+    styleScaleAxis(scale_->axis(), font());
+    plot_->plotLayout()->addElement(1, 1, scale_);
+    auto* group = new QCPMarginGroup(plot_);
+    plot_->axisRect()->setMarginGroup(QCP::msBottom | QCP::msTop, group);
+    scale_->setMarginGroup(QCP::msBottom | QCP::msTop, group);
+    scale_->setVisible(false);
+    // The legend (edge of the data, beyond the data) in a row under the plot.
+    auto* legendRow = new QCPLayoutGrid;
+    plot_->plotLayout()->addElement(2, 0, legendRow);
+    legendRow->addElement(0, 0, plot_->legend);
+    legendRow->setMargins(QMargins(0, 0, 0, 4));
+    plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
+    plot_->legend->setBorderPen(Qt::NoPen);
+    plot_->legend->setVisible(false);
+    plot_->plotLayout()->setRowStretchFactor(2, 0.001);
 }
 
-void SurfacePlot::setRun(const Analysis&, const AnalysisRun&) {}
-void SurfacePlot::clear() {}
-void SurfacePlot::setGreyscale(bool) {}
+QString SurfacePlot::subtitle() const {
+    if (!grid_) return {};
+    QString what;
+    if (probability_)
+        what = tr("Predicted probability that %1 = 1 (inverse logit of the log-odds)").arg(outcome_);
+    else if (logistic_)
+        what = tr("Predicted log-odds that %1 = 1").arg(outcome_);
+    else
+        what = tr("Predicted %1").arg(outcome_);
+    return what + tr("; other predictors at their means or reference levels");
+}
+
+void SurfacePlot::setRun(const Analysis& analysis, const AnalysisRun& run) {
+    if (!run.surface) {
+        clear();
+        return;
+    }
+    grid_ = *run.surface;
+    logistic_ = run.fit.family == Family::Logistic;
+    probability_ = logistic_ && analysis.probe.scale == "response";
+    values_ = probability_ ? surface_probabilities(*grid_) : grid_->predicted;
+    outcome_ = QString::fromStdString(analysis.roles.outcome);
+    try {
+        region_ = data_region(run.design, grid_->x, grid_->z);
+    } catch (const InputError&) {
+        region_ = {};
+    }
+    pointsX_.clear();
+    pointsZ_.clear();
+    const int jx = run.design.main_column(grid_->x), jz = run.design.main_column(grid_->z);
+    if (jx >= 0 && jz >= 0) {
+        pointsX_.assign(run.design.X.col(jx).data(), run.design.X.col(jx).data() + run.design.X.rows());
+        pointsZ_.assign(run.design.X.col(jz).data(), run.design.X.col(jz).data() + run.design.X.rows());
+    }
+    redraw();
+}
+
+void SurfacePlot::clear() {
+    grid_.reset();
+    values_.resize(0, 0);
+    region_ = {};
+    pointsX_.clear();
+    pointsZ_.clear();
+    redraw();
+}
+
+void SurfacePlot::setGreyscale(bool on) {
+    greyscale_ = on;
+    redraw();
+}
+
+void SurfacePlot::redraw() {
+    plot_->clearPlottables();
+    plot_->clearItems();
+    map_ = nullptr;
+    beyondCells_ = 0;
+    title_->setText(subtitle());
+    scale_->setVisible(grid_.has_value());
+    if (!grid_) {
+        plot_->xAxis->setLabel(QString());
+        plot_->yAxis->setLabel(QString());
+        plot_->replot();
+        return;
+    }
+    const SurfaceGrid& g = *grid_;
+    const int nx = static_cast<int>(g.x_values.size()), nz = static_cast<int>(g.z_values.size());
+    setAxisTitle(plot_->xAxis, QString::fromStdString(g.x));
+    setAxisTitle(plot_->yAxis, QString::fromStdString(g.z));
+
+    map_ = new QCPColorMap(plot_->xAxis, plot_->yAxis);
+    map_->setName(tr("predicted"));
+    map_->removeFromLegend();
+    map_->data()->setSize(nx, nz);
+    map_->data()->setRange(QCPRange(g.x_values.front(), g.x_values.back()),
+                           QCPRange(g.z_values.front(), g.z_values.back()));
+    const bool haveRegion = region_.x.size() >= 3;
+    // Where the beyond cells gather most (for the label): per quadrant sums.
+    double qx[4] = {0, 0, 0, 0}, qz[4] = {0, 0, 0, 0};
+    int qn[4] = {0, 0, 0, 0};
+    for (int i = 0; i < nx; ++i)
+        for (int k = 0; k < nz; ++k) {
+            const double x = g.x_values[static_cast<std::size_t>(i)], z = g.z_values[static_cast<std::size_t>(k)];
+            map_->data()->setCell(i, k, values_(k, i));
+            if (haveRegion && !region_.contains(x, z)) {
+                map_->data()->setAlpha(i, k, kBeyondAlpha);
+                ++beyondCells_;
+                const int q = (2 * i >= nx ? 1 : 0) + (2 * k >= nz ? 2 : 0);
+                qx[q] += x;
+                qz[q] += z;
+                ++qn[q];
+            }
+        }
+    // The colour scale hands its gradient to the map: set the ramp after joining them.
+    map_->setColorScale(scale_);
+    map_->setGradient(ramp(greyscale_));
+    scale_->setGradient(ramp(greyscale_));
+    map_->setInterpolate(true);
+    map_->rescaleDataRange(true);
+    scale_->axis()->setLabel(probability_ ? tr("P(%1 = 1)").arg(outcome_)
+                                          : (logistic_ ? tr("log-odds of %1 = 1").arg(outcome_) : outcome_));
+
+    // The observed rows, light dots (thinned when dense).
+    if (!pointsX_.empty()) {
+        auto* pts = new QCPGraph(plot_->xAxis, plot_->yAxis);
+        pts->setName(tr("observed rows"));
+        pts->setLineStyle(QCPGraph::lsNone);
+        // ink dots with a light ring: visible on both ends of the ramp
+        const bool many = pointsX_.size() > 2000;
+        pts->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle,
+                                             QPen(QColor(255, 255, 255, many ? 90 : 150), 0.8),
+                                             QBrush(estuary::withAlpha(greyscale_ ? estuary::toGrey(estuary::ink)
+                                                                                  : estuary::ink,
+                                                                       many ? 0.3 : 0.5)),
+                                             4));
+        pts->removeFromLegend();
+        QVector<double> xs, zs;
+        for (std::size_t i : thinScatter(pointsX_, pointsZ_)) {
+            xs << pointsX_[i];
+            zs << pointsZ_[i];
+        }
+        pts->setData(xs, zs);
+    }
+    // Edge of the data.
+    if (region_.x.size() >= 2) {
+        auto* edge = new QCPCurve(plot_->xAxis, plot_->yAxis);
+        edge->setName(tr("edge of the observed data"));
+        QPen pen(greyscale_ ? estuary::toGrey(estuary::ink) : estuary::ink);
+        pen.setWidthF(1.4);
+        edge->setPen(pen);
+        QVector<double> t, xs, zs;
+        for (std::size_t i = 0; i <= region_.x.size(); ++i) {
+            const std::size_t j = i % region_.x.size();
+            t << static_cast<double>(i);
+            xs << region_.x[j];
+            zs << region_.z[j];
+        }
+        edge->setData(t, xs, zs, true);
+    }
+    // "beyond the data" in the legend (a filled key); also written inside
+    // the plot where the beyond area is large enough to hold it.
+    if (beyondCells_ > 0) {
+        auto* key = new QCPBars(plot_->xAxis, plot_->yAxis);
+        key->setName(tr("beyond the data"));
+        key->setPen(QPen(estuary::grid));
+        key->setBrush(QBrush(estuary::beyond));
+        key->setSelectable(QCP::stNone);
+    }
+    int best = -1;
+    for (int q = 0; q < 4; ++q)
+        if (qn[q] > 0 && (best < 0 || qn[q] > qn[best])) best = q;
+    if (best >= 0 && qn[best] >= nx * nz / 10) {
+        auto* label = new QCPItemText(plot_);
+        label->position->setType(QCPItemPosition::ptPlotCoords);
+        label->position->setCoords(qx[best] / qn[best], qz[best] / qn[best]);
+        label->setPositionAlignment(Qt::AlignCenter);
+        label->setText(tr("beyond the data"));
+        QFont f = font();
+        f.setItalic(true);
+        label->setFont(f);
+        label->setColor(estuary::ink);
+        label->setPadding(QMargins(3, 1, 3, 1));
+        label->setBrush(QBrush(estuary::withAlpha(estuary::beyond, 0.85)));
+        label->setClipToAxisRect(true);
+    }
+    plot_->legend->setVisible(region_.x.size() >= 2);
+    // Cells are centred on the grid's end values: show them whole.
+    const double hx = (g.x_values.back() - g.x_values.front()) / (2.0 * (nx - 1));
+    const double hz = (g.z_values.back() - g.z_values.front()) / (2.0 * (nz - 1));
+    plot_->xAxis->setRange(g.x_values.front() - hx, g.x_values.back() + hx);
+    plot_->yAxis->setRange(g.z_values.front() - hz, g.z_values.back() + hz);
+    plot_->replot();
+}
 
 }  // namespace moderato::ui

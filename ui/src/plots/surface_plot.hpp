@@ -1,14 +1,23 @@
 // The Surface plot: predicted outcome over a grid of two continuous
-// predictors (focal and moderator), as a colour map with contour-like
-// labelled colour scale, the observed data range outlined.
+// predictors (focal across, moderator up) as a colour map with a labelled
+// colour scale on a sequential Estuary ramp; the edge of the observed data
+// (convex hull of the used rows) is outlined and grid cells beyond it are
+// washed out on the "beyond the data" fill. Logistic fits on the
+// probability scale show probabilities and say so.
 #pragma once
 
 #include <QWidget>
+#include <optional>
 
 #include "moderato/analysis_run.hpp"
+#include "moderato/surface_view.hpp"
 #include "plots/figure_source.hpp"
 
 class QCustomPlot;
+class QCPColorMap;
+class QCPColorScale;
+class QCPTextElement;
+class QCPColorGradient;
 
 namespace moderato::ui {
 
@@ -25,8 +34,31 @@ public:
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override;
 
+    // What is drawn (for tests and the readout).
+    QCPColorMap* colorMap() const { return map_; }
+    QCPColorScale* colorScale() const { return scale_; }
+    bool showsProbability() const { return probability_; }
+    // Grid cells drawn as beyond the data.
+    int beyondCellCount() const { return beyondCells_; }
+    QString subtitle() const;
+
+    // The colour ramps (Estuary: near-white, series 1, ink; or greys).
+    static QCPColorGradient ramp(bool greyscale);
+
 private:
+    void redraw();
+
     QCustomPlot* plot_;
+    QCPTextElement* title_ = nullptr;
+    QCPColorScale* scale_ = nullptr;
+    QCPColorMap* map_ = nullptr;
+    std::optional<SurfaceGrid> grid_;
+    Eigen::MatrixXd values_;
+    DataRegion region_;
+    std::vector<double> pointsX_, pointsZ_;
+    QString outcome_;
+    bool probability_ = false, logistic_ = false, greyscale_ = false;
+    int beyondCells_ = 0;
 };
 
 }  // namespace moderato::ui

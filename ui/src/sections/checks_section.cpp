@@ -1,18 +1,199 @@
-// Placeholder until the section is built (issue #4, in progress).
 #include "sections/checks_section.hpp"
 
+#include <QGridLayout>
+#include <QHBoxLayout>
+#include <QHeaderView>
+#include <QItemSelectionModel>
 #include <QLabel>
+#include <QPushButton>
+#include <QTableView>
 #include <QVBoxLayout>
+#include <algorithm>
+#include <cmath>
+
+#include "model/project_document.hpp"
+#include "plots/diagnostic_plots.hpp"
+#include "plots/number_text.hpp"
+#include "sections/flagged_rows_model.hpp"
 
 namespace moderato::ui {
 
-ChecksSection::ChecksSection(ProjectDocument* doc, QWidget* parent) : AnalysisSection(doc, parent), label_(new QLabel(this)) {
+ChecksSection::ChecksSection(ProjectDocument* doc, QWidget* parent)
+    : AnalysisSection(doc, parent), note_(new QLabel(this)),
+      residuals_(new DiagnosticPlot(DiagnosticPlot::Residuals, this)),
+      quantiles_(new DiagnosticPlot(DiagnosticPlot::Quantiles, this)),
+      influence_(new DiagnosticPlot(DiagnosticPlot::Influence, this)), rules_(new QLabel(this)),
+      list_(new QTableView(this)), model_(new FlaggedRowsModel(this)),
+      show_(new QPushButton(tr("Show in dataset"), this)) {
+    setObjectName(QStringLiteral("checks-section"));
     auto* layout = new QVBoxLayout(this);
-    layout->addWidget(label_);
+    layout->setContentsMargins(0, 4, 0, 0);
+    note_->setObjectName(QStringLiteral("checks-note"));
+    note_->setWordWrap(true);
+    note_->setTextInteractionFlags(Qt::TextSelectableByMouse);
+    layout->addWidget(note_);
+
+    auto* grid = new QGridLayout;
+    grid->setSpacing(6);
+    grid->addWidget(residuals_, 0, 0);
+    grid->addWidget(quantiles_, 0, 1);
+    grid->addWidget(influence_, 1, 0);
+    auto* panel = new QWidget(this);
+    auto* side = new QVBoxLayout(panel);
+    side->setContentsMargins(0, 0, 0, 0);
+    auto* heading = new QLabel(tr("<b>Flagged rows</b>"), panel);
+    side->addWidget(heading);
+    rules_->setObjectName(QStringLiteral("checks-rules"));
+    rules_->setWordWrap(true);
+    rules_->setTextInteractionFlags(Qt::TextSelectableByMouse);
+    side->addWidget(rules_);
+    list_->setObjectName(QStringLiteral("flagged-rows"));
+    list_->setModel(model_);
+    list_->setSelectionBehavior(QAbstractItemView::SelectRows);
+    list_->setSelectionMode(QAbstractItemView::ExtendedSelection);
+    list_->setEditTriggers(QAbstractItemView::NoEditTriggers);
+    list_->verticalHeader()->hide();
+    list_->verticalHeader()->setDefaultSectionSize(list_->fontMetrics().height() + 6);
+    list_->horizontalHeader()->setStretchLastSection(true);
+    list_->setShowGrid(false);
+    list_->setWordWrap(false);
+    side->addWidget(list_, 1);
+    auto* buttons = new QHBoxLayout;
+    buttons->addStretch(1);
+    show_->setObjectName(QStringLiteral("show-in-dataset"));
+    show_->setToolTip(tr("Select these rows in the dataset's grid"));
+    show_->setEnabled(false);
+    buttons->addWidget(show_);
+    side->addLayout(buttons);
+    grid->addWidget(panel, 1, 1);
+    grid->setRowStretch(0, 1);
+    grid->setRowStretch(1, 1);
+    grid->setColumnStretch(0, 1);
+    grid->setColumnStretch(1, 1);
+    layout->addLayout(grid, 1);
+
+    connect(list_->selectionModel(), &QItemSelectionModel::selectionChanged, this, [this] { selectionChanged(); });
+    connect(show_, &QPushButton::clicked, this, &ChecksSection::emitSelectedRows);
+    connect(list_, &QTableView::doubleClicked, this, [this] { emitSelectedRows(); });
+    for (DiagnosticPlot* p : {residuals_, quantiles_, influence_})
+        connect(p, &DiagnosticPlot::observationClicked, this, &ChecksSection::selectObservation);
 }
 
-void ChecksSection::showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun>, const QString& error) {
-    label_->setText(error.isEmpty() ? id : error);
+QList<FigureSource*> ChecksSection::figures() { return {residuals_, quantiles_, influence_}; }
+
+namespace {
+// Whether two runs have the same rows, design and estimates: then their
+// diagnostics are the same (they do not depend on the SE kind or the probe).
+bool sameFit(const AnalysisRun& a, const AnalysisRun& b) {
+    auto same = [](const Eigen::VectorXd& u, const Eigen::VectorXd& v) {
+        return u.size() == v.size() &&
+               std::equal(u.data(), u.data() + u.size(), v.data(),
+                          [](double x, double y) { return x == y || (std::isnan(x) && std::isnan(y)); });
+    };
+    return a.table == b.table && a.fit.family == b.fit.family && a.design.rows == b.design.rows &&
+           a.design.X.cols() == b.design.X.cols() && same(a.design.weights, b.design.weights) &&
+           same(a.fit.beta, b.fit.beta) && same(a.fit.fitted, b.fit.fitted);
+}
+}  // namespace
+
+void ChecksSection::showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun> run, const QString& error) {
+    if (id == id_ && run == run_ && error == error_ && !dirty_ && (diag_ || !run)) return;
+    if (id == id_ && run && run_ && diag_ && !dirty_ && sameFit(*run, *run_)) {
+        run_ = std::move(run);  // a probe-only change: the checks stand
+        return;
+    }
+    id_ = id;
+    run_ = std::move(run);
+    error_ = error;
+    diag_.reset();
+    dirty_ = true;
+    if (isVisible()) ensureComputed();
+}
+
+void ChecksSection::showEvent(QShowEvent* event) {
+    AnalysisSection::showEvent(event);
+    ensureComputed();
+}
+
+std::shared_ptr<const Diagnostics> ChecksSection::diagnostics() {
+    ensureComputed();
+    return diag_;
+}
+
+void ChecksSection::ensureComputed() {
+    if (!dirty_) return;
+    dirty_ = false;
+    diag_.reset();
+    QString problem;
+    if (run_) {
+        try {
+            diag_ = std::make_shared<const Diagnostics>(moderato::diagnostics(run_->design, run_->fit));
+        } catch (const std::exception& e) {
+            problem = tr("The checks could not be computed: %1").arg(QString::fromUtf8(e.what()));
+        }
+    } else {
+        problem = error_.isEmpty() ? tr("No fitted model yet.") : error_;
+    }
+    for (DiagnosticPlot* p : {residuals_, quantiles_, influence_}) p->setDiagnostics(diag_);
+    model_->setDiagnostics(diag_, run_ ? run_->table : nullptr);
+    list_->resizeColumnsToContents();
+    show_->setEnabled(false);
+    if (!diag_) {
+        note_->setText(problem);
+        rules_->clear();
+        return;
+    }
+    const Diagnostics& d = *diag_;
+    QStringList note;
+    if (d.family == Family::Logistic) {
+        note << tr("Logistic fit: Pearson residuals against the fitted probability (the line is the mean residual "
+                   "in bins of the fitted probability; it should stay near zero); the quantile plot uses "
+                   "standardised deviance residuals, which for a 0/1 outcome need not follow the line closely — "
+                   "look for isolated points; leverage uses the fit's working weights p(1 − p).");
+    } else {
+        note << (d.weighted ? tr("Weighted fit: residuals are scaled by √weight.")
+                            : tr("Residuals against fitted values: look for curvature or a funnel shape."))
+             << tr("Quantile plot: externally studentised residuals against normal quantiles; points near the "
+                   "line y = x suggest roughly normal errors.");
+    }
+    note << tr("Cook's distance contours at 0.5 and 1.");
+    for (const auto& n : d.notes) note << QString::fromStdString(n);
+    note_->setText(note.join(QLatin1Char(' ')));
+    QString rules = tr("Rules of thumb (common practice, not tests): %1 · %2 · %3.")
+                        .arg(QString::fromStdString(d.residual_rule), QString::fromStdString(d.leverage_rule),
+                             QString::fromStdString(d.cooks_rule));
+    rules += QLatin1Char(' ') + tr("%1 of %2 rows flagged, most influential first.")
+                                    .arg(countText(static_cast<double>(d.flagged.size())),
+                                         countText(static_cast<double>(d.n)));
+    if (d.n > 20000) rules += QLatin1Char(' ') + tr("Dense plots are thinned; flagged rows are always drawn.");
+    rules_->setText(rules);
+}
+
+void ChecksSection::selectionChanged() {
+    std::vector<std::size_t> obs;
+    for (const QModelIndex& i : list_->selectionModel()->selectedRows())
+        if (const FlaggedRow* r = model_->flagged(i.row())) obs.push_back(r->observation);
+    show_->setEnabled(!obs.empty());
+    for (DiagnosticPlot* p : {residuals_, quantiles_, influence_}) p->setHighlighted(obs);
+}
+
+void ChecksSection::emitSelectedRows() {
+    std::vector<std::size_t> rows;
+    for (const QModelIndex& i : list_->selectionModel()->selectedRows())
+        if (const FlaggedRow* r = model_->flagged(i.row())) rows.push_back(r->table_row);
+    if (rows.empty()) return;
+    std::sort(rows.begin(), rows.end());
+    rows.erase(std::unique(rows.begin(), rows.end()), rows.end());
+    const Analysis* a = doc_->analysis(id_);
+    if (!a) return;
+    Q_EMIT rowsSelected(QString::fromStdString(a->dataset), rows);
+}
+
+void ChecksSection::selectObservation(std::size_t observation) {
+    const int row = model_->rowOf(observation);
+    if (row < 0) return;
+    list_->selectRow(row);
+    list_->scrollTo(model_->index(row, 0));
 }
 
 }  // namespace moderato::ui
