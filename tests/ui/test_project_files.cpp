@@ -16,7 +16,9 @@
 #include <QProcess>
 #include <QSettings>
 #include <QTemporaryDir>
+#include <QTest>
 #include <QTextEdit>
+#include <QTreeWidgetItem>
 #include <QUndoStack>
 #include <QUrl>
 #include <filesystem>
@@ -389,6 +391,50 @@ TEST(ProjectFiles, UndoRedoRestoreExactStates) {
     undo->undo();
     EXPECT_TRUE(w.windowTitle().contains(QStringLiteral(" *")));
     EXPECT_TRUE(doc->project() == states[0]);
+}
+
+TEST(ProjectFiles, SidebarEditsAreOneUndoStepEach) {
+    QTemporaryDir dir;
+    const QString project = test::copySample(QStringLiteral("coffee-discount"), dir);
+    MainWindow w;
+    w.setInteractive(false);
+    w.show();
+    ASSERT_TRUE(w.openProject(project));
+    ProjectDocument* doc = w.document();
+    QUndoStack* undo = doc->undoStack();
+    const QString id = QStringLiteral("discount-loyalty");
+    const Project start = doc->project();
+    // Nothing to remove: no undo step.
+    w.sidebar()->removeAnalysis(QStringLiteral("no-such-analysis"));
+    w.sidebar()->removeFigure(QStringLiteral("no-such-figure"));
+    w.sidebar()->renameAnalysis(id, QStringLiteral("   "));
+    w.sidebar()->renameAnalysis(id, QString::fromStdString(start.analyses[0].name));
+    EXPECT_EQ(undo->count(), 0);
+    EXPECT_FALSE(doc->isModified());
+    // Duplicate: a new id and name, one step.
+    const QString copy = w.sidebar()->duplicateAnalysis(id);
+    EXPECT_EQ(copy, QStringLiteral("discount-loyalty-2"));
+    ASSERT_TRUE(doc->analysis(copy));
+    EXPECT_EQ(doc->analysis(copy)->name, start.analyses[0].name + " (copy)");
+    EXPECT_EQ(undo->count(), 1);
+    // Clicking the copy in the sidebar shows it.
+    QTreeWidgetItem* item = nullptr;
+    for (auto* found : w.sidebar()->findItems(QString::fromStdString(start.analyses[0].name + " (copy)"),
+                                              Qt::MatchExactly | Qt::MatchRecursive))
+        item = found;
+    ASSERT_TRUE(item);
+    QTest::mouseClick(w.sidebar()->viewport(), Qt::LeftButton, Qt::NoModifier,
+                      w.sidebar()->visualItemRect(item).center());
+    EXPECT_EQ(w.analysisPage()->analysisId(), copy);
+    // Removing the figure, then the shown analysis: the page goes to another item.
+    w.sidebar()->removeFigure(QString::fromStdString(start.figures[0].id));
+    EXPECT_TRUE(doc->project().figures.empty());
+    w.sidebar()->removeAnalysis(copy);
+    EXPECT_EQ(w.analysisPage()->analysisId(), id);
+    EXPECT_EQ(undo->count(), 3);
+    for (int k = 0; k < 3; ++k) undo->undo();
+    EXPECT_TRUE(doc->project() == start);
+    EXPECT_FALSE(doc->isModified());
 }
 
 TEST(ProjectFiles, UndoneDatasetDoesNotLeaveItsTableBehind) {
