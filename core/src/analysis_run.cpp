@@ -2,6 +2,7 @@
 #include "moderato/analysis_run.hpp"
 
 #include <cmath>
+#include <set>
 
 #include "moderato/derive.hpp"
 #include "moderato/error.hpp"
@@ -70,6 +71,11 @@ Table apply_recipes(const Table& base, const std::vector<DerivedRecipe>& recipes
         t.columns.push_back(compute_recipe(t, r));
     }
     return t;
+}
+
+std::shared_ptr<const Table> with_recipes(std::shared_ptr<const Table> base, const std::vector<DerivedRecipe>& recipes) {
+    if (recipes.empty() || !base) return base;
+    return std::make_shared<const Table>(apply_recipes(*base, recipes));
 }
 
 ProbeKind probe_kind(const Table& t, const Analysis& a) {
@@ -160,14 +166,22 @@ AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a) 
     if (a.centring == "mean") {
         // Centre the numeric (not 0/1) focal predictor and moderators; the fit is the same
         // model, only the lower-order coefficients change meaning.
-        Table centred = t;
+        // Only the model's columns (not a copy of the whole table), plus the centred copies.
+        Table centred;
+        centred.source = t.source;
+        centred.row_lines = t.row_lines;
+        std::set<std::string> used{a.roles.outcome, a.roles.focal, a.roles.moderator, a.roles.second_moderator,
+                                   a.roles.weights, a.roles.clusters};
+        used.insert(a.roles.controls.begin(), a.roles.controls.end());
+        for (const Column& c : t.columns)
+            if (used.count(c.name)) centred.columns.push_back(c);
         std::map<std::string, std::string> names;
         for (const std::string& col : {a.roles.focal, a.roles.moderator, a.roles.second_moderator}) {
             if (col.empty()) continue;
             const Column& c = t.at(col);
             if (c.kind != ColumnKind::Numeric || zero_one(c)) continue;
             std::string name = col + "_centred";
-            while (centred.find(name)) name += "_";
+            while (t.find(name) || centred.find(name)) name += "_";
             // Centre at the mean over the rows the model uses, so the intercept and
             // lower-order terms describe the sample that was fitted.
             const auto s = run.design.summaries.find(col);

@@ -1,6 +1,7 @@
 // Project documents: JSON reading (with schema checks and migration) and writing.
 #include "moderato/project.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <filesystem>
 #include <nlohmann/json.hpp>
@@ -146,19 +147,49 @@ const std::vector<std::string> kPlots{"lines", "effect", "surface", "cells", "re
 // Schema 0 (the draft format before schema_version 1) kept the roles at the
 // top level of each analysis; version 1 groups them under "roles".
 void migrate_from_0(json& doc, std::vector<std::string>& notes) {
-    for (auto& a : doc["analyses"]) {
-        if (!a.is_object() || a.contains("roles")) continue;
-        json roles = json::object();
-        for (const char* key : {"outcome", "focal", "moderator", "second_moderator", "controls", "weights", "clusters"})
-            if (a.contains(key)) {
-                roles[key] = a[key];
-                a.erase(key);
-            }
-        a["roles"] = roles;
+    const auto list = doc.find("analyses");
+    if (list != doc.end() && list->is_array()) {
+        for (auto& a : *list) {
+            if (!a.is_object() || a.contains("roles")) continue;
+            json roles = json::object();
+            for (const char* key :
+                 {"outcome", "focal", "moderator", "second_moderator", "controls", "weights", "clusters"})
+                if (a.contains(key)) {
+                    roles[key] = a[key];
+                    a.erase(key);
+                }
+            a["roles"] = roles;
+        }
     }
     doc["schema_version"] = 1;
     notes.push_back("The project was saved by an older Moderato (schema 0) and was brought up to schema 1; "
                     "saving it writes schema 1.");
+}
+
+// Pinned values: a non-finite one means nothing on a slider (and JSON has no
+// number for it), so it is left out rather than written as an unreadable null.
+json finite_only(const std::vector<double>& values) {
+    json out = json::array();
+    for (const double v : values)
+        if (std::isfinite(v)) out.push_back(v);
+    return out;
+}
+
+// Line and column (1-based; the column counts characters, not bytes) of the
+// character at byte offset `at`.
+std::pair<std::size_t, std::size_t> line_and_column(const std::string& text, std::size_t at) {
+    at = std::min(at, text.size());
+    std::size_t line = 1, column = 1;
+    for (std::size_t i = 0; i < at; ++i) {
+        const auto c = static_cast<unsigned char>(text[i]);
+        if (c == '\n') {
+            ++line;
+            column = 1;
+        } else if ((c & 0xC0) != 0x80) {  // not a UTF-8 continuation byte
+            ++column;
+        }
+    }
+    return {line, column};
 }
 
 }  // namespace
@@ -167,6 +198,17 @@ bool ProbeSettings::operator==(const ProbeSettings& o) const {
     return same_number(current, o.current) && pinned == o.pinned && same_number(second_value, o.second_value) &&
            scale == o.scale && averaging == o.averaging && simultaneous_band == o.simultaneous_band &&
            show_points == o.show_points;
+}
+
+bool DataSource::operator==(const DataSource& o) const {
+    return id == o.id && path == o.path && sha256 == o.sha256 && import.delimiter == o.import.delimiter &&
+           import.header == o.import.header && import.missing_tokens == o.import.missing_tokens &&
+           import.decimal_comma == o.import.decimal_comma && import.column_kinds == o.import.column_kinds;
+}
+
+bool Project::operator==(const Project& o) const {
+    return schema_version == o.schema_version && datasets == o.datasets && derived == o.derived &&
+           analyses == o.analyses && figures == o.figures;
 }
 
 bool Analysis::operator==(const Analysis& o) const {
@@ -225,7 +267,7 @@ std::string project_to_json(const Project& p) {
         json j{{"dataset", r.dataset}, {"name", r.name}, {"kind", r.kind}, {"source", r.source}};
         if (!r.other.empty()) j["other"] = r.other;
         if (!r.level.empty()) j["level"] = r.level;
-        if (r.kind == "centre-value") j["value"] = r.value;
+        if (r.kind == "centre-value" || r.value != 0) j["value"] = number_or_null(r.value);
         derived.push_back(j);
     }
     doc["derived_columns"] = derived;
@@ -239,7 +281,7 @@ std::string project_to_json(const Project& p) {
                    {"weights", a.roles.weights},
                    {"clusters", a.roles.clusters}};
         json probe{{"current", number_or_null(a.probe.current)},
-                   {"pinned", a.probe.pinned},
+                   {"pinned", finite_only(a.probe.pinned)},
                    {"second_value", number_or_null(a.probe.second_value)},
                    {"scale", a.probe.scale},
                    {"averaging", a.probe.averaging},
@@ -273,30 +315,32 @@ Project project_from_json(const std::string& text, const std::string& name) {
     try {
         doc = json::parse(text);
     } catch (const json::parse_error& e) {
-        // Turn the byte offset into a line and column.
-        std::size_t line = 1, column = 1;
-        for (std::size_t i = 0; i < e.byte && i < text.size(); ++i) {
-            if (text[i] == '\n') {
-                ++line;
-                column = 1;
-            } else {
-                ++column;
-            }
-        }
-        if (column > 1) --column;
+        // e.byte counts the bytes read up to and including the offending one
+        // (one past the end for text that stops too early).
+        const auto [line, column] = line_and_column(text, e.byte > 0 ? e.byte - 1 : 0);
+        // The parser's own reason, without its prefix and its own position.
+        std::string reason = e.what();
+        const auto colon = reason.find(": ");
+        if (colon != std::string::npos && reason.find("parse error") != std::string::npos)
+            reason = reason.substr(colon + 2);
         throw InputError(name + ": line " + std::to_string(line) + ", column " + std::to_string(column) +
-                         ": not a Moderato project (the file is not valid JSON)");
+                         ": the file is not valid JSON, so it is not a Moderato project (" + reason + ")");
     }
     const Reader r(name);
     if (!doc.is_object()) r.fail("top level", "not a Moderato project (expected a JSON object)");
     const auto sv = doc.find("schema_version");
     if (sv == doc.end()) r.fail("top level", "not a Moderato project (no schema_version)");
     if (!sv->is_number_integer()) r.fail("schema_version", "expected a whole number");
-    const long long version = sv->get<long long>();
-    if (version > kProjectSchemaVersion)
-        throw InputError(name + ": made by a newer Moderato (project schema " + std::to_string(version) +
+    const bool unsigned_version = sv->is_number_unsigned();
+    const std::string version_text = unsigned_version ? std::to_string(sv->get<unsigned long long>())
+                                                      : std::to_string(sv->get<long long>());
+    if (unsigned_version ? sv->get<unsigned long long>() > static_cast<unsigned long long>(kProjectSchemaVersion)
+                         : sv->get<long long>() > kProjectSchemaVersion)
+        throw InputError(name + ": made by a newer Moderato (project schema " + version_text +
                          "; this version reads up to schema " + std::to_string(kProjectSchemaVersion) +
                          "). Open it with a newer Moderato; the file was not changed.");
+    const long long version = unsigned_version ? static_cast<long long>(sv->get<unsigned long long>())
+                                               : sv->get<long long>();
     if (version < 0) r.fail("schema_version", "must not be negative");
     Project p;
     if (version == 0) migrate_from_0(doc, p.migration_notes);
@@ -370,14 +414,16 @@ Project project_from_json(const std::string& text, const std::string& name) {
         a.figure.preset = r.one_of(fig, "preset", fw, kPresets, "memo");
         a.figure.width_in = r.number(fig, "width_in", fw, a.figure.width_in);
         a.figure.height_in = r.number(fig, "height_in", fw, a.figure.height_in);
-        a.figure.dpi = static_cast<int>(r.number(fig, "dpi", fw, a.figure.dpi));
+        const double dpi = r.number(fig, "dpi", fw, a.figure.dpi);
+        if (!(dpi >= 36 && dpi <= 2400)) r.fail(fw + ".dpi", "must lie between 36 and 2400");
+        if (dpi != std::floor(dpi)) r.fail(fw + ".dpi", "expected a whole number");
+        a.figure.dpi = static_cast<int>(dpi);
         a.figure.font_family = r.text(fig, "font_family", fw, false, a.figure.font_family);
         a.figure.font_pt = r.number(fig, "font_pt", fw, a.figure.font_pt);
         a.figure.greyscale = r.boolean(fig, "greyscale", fw, false);
         a.figure.caption = r.boolean(fig, "caption", fw, true);
         if (!(a.figure.width_in > 0 && a.figure.width_in <= 100 && a.figure.height_in > 0 && a.figure.height_in <= 100))
             r.fail(fw, "width and height must lie between 0 and 100 inches");
-        if (a.figure.dpi < 36 || a.figure.dpi > 2400) r.fail(fw + ".dpi", "must lie between 36 and 2400");
         p.analyses.push_back(std::move(a));
     }
     const json& figures = r.array(doc, "figures", "top level");
@@ -391,6 +437,8 @@ Project project_from_json(const std::string& text, const std::string& name) {
         f.analysis = r.text(j, "analysis", where, true);
         f.plot = r.one_of(j, "plot", where, kPlots, "lines");
         if (!p.analysis(f.analysis)) r.fail(where + ".analysis", "no analysis has the id \"" + f.analysis + "\"");
+        for (const auto& other : p.figures)
+            if (other.id == f.id) r.fail(where + ".id", "the id \"" + f.id + "\" is used twice");
         p.figures.push_back(std::move(f));
     }
     return p;

@@ -47,8 +47,7 @@ LoadedProject load_project(const std::string& path, const CsvProgress& progress)
                                    "recomputed from the file as it is now; save the project to accept the change.");
         out.base[source.id] = table;
         try {
-            out.tables[source.id] =
-                std::make_shared<const Table>(apply_recipes(*table, out.project.recipes_for(source.id)));
+            out.tables[source.id] = with_recipes(table, out.project.recipes_for(source.id));
         } catch (const InputError& e) {
             out.tables[source.id] = table;
             out.table_errors[source.id] = e.what();

@@ -16,7 +16,11 @@ What it does, all in one invocation so the ratios compare like with like:
        (d) python: read_csv, design matrix in numpy,
            sm.OLS(y, X).fit(cov_type="HC3"), .bse                (reference)
   3. checks that our estimates and HC3 standard errors agree with statsmodels';
-  4. prints a Markdown table and writes the same numbers as JSON.
+  4. when the workbench benchmark BUILD/tests/benchmarks/moderato_bench_open
+     is built (a Qt build), runs it: opening a --rows project in the
+     workbench until it is interactive, against core read_csv of the same
+     file in the same process (target: <= 3 s); --skip-open leaves it out;
+  5. prints a Markdown table and writes the same numbers as JSON.
 
 Ratios (targets from the benchmark issue):
   load     = median(b) / median(a)                          target >= 2
@@ -209,6 +213,8 @@ def main():
     parser.add_argument("--repeats", type=int, default=3, help="runs of each program; the median is kept (default 3)")
     parser.add_argument("--python", default="/usr/bin/python3", help="Python with pandas and statsmodels")
     parser.add_argument("--json", help="write the results here (default: SCRATCH/benchmark_results.json)")
+    parser.add_argument("--skip-open", action="store_true",
+                        help="do not run moderato_bench_open (opening a project in the workbench)")
     parser.add_argument("--extras", action="store_true",
                         help="also time moderato-cli with --threads 1, and statsmodels with the inherited "
                              "OPENBLAS_* variables (information only)")
@@ -407,6 +413,36 @@ def main():
     missed = [k for k in ("load_speed", "fit_speed", "load_rss") if ratios[k]["met"] is False]
     lines.append("")
     lines.append("Targets met: {}; missed: {}".format(", ".join(met) or "none", ", ".join(missed) or "none"))
+
+    # 6. The workbench: opening a project until it is interactive (its own process and table).
+    workbench_open = None
+    bench_open = build / "tests" / "benchmarks" / "moderato_bench_open"
+    if not args.skip_open and bench_open.is_file():
+        print("\nrunning {} ...".format(bench_open), flush=True)
+        with tempfile.TemporaryDirectory(dir=scratch) as tmp:
+            out_json = Path(tmp) / "open.json"
+            env = dict(os.environ)
+            env.setdefault("QT_QPA_PLATFORM", "offscreen")
+            done = subprocess.run([str(bench_open), "--rows", str(rows or 1_000_000), "--repeats", str(args.repeats),
+                                   "--dir", str(Path(tmp) / "data"), "--json", str(out_json)],
+                                  env=env, stdout=subprocess.PIPE, stderr=subprocess.STDOUT, text=True)
+            print(done.stdout)
+            if done.returncode != 0:
+                die("moderato_bench_open failed (exit status {})".format(done.returncode))
+            workbench_open = json.loads(out_json.read_text())
+        lines.append("")
+        lines.append("Workbench: opening a {:,}-row project until interactive (open + first result + paint), "
+                     "median of {} runs: {:.3f} s (load {:.3f}, first result {:.3f}, paint {:.3f}); core read_csv "
+                     "of the same file {:.3f} s, sha256_file {:.3f} s; open / read_csv = {:.2f}; target <= 3 s: {}"
+                     .format(workbench_open["rows"], workbench_open["repeats"], workbench_open["open_s_median"],
+                             workbench_open["load_s_median"], workbench_open["first_result_s_median"],
+                             workbench_open["paint_s_median"], workbench_open["read_csv_s_median"],
+                             workbench_open["sha256_s_median"], workbench_open["ratio_open_read"],
+                             "yes" if workbench_open["met"] else "**NO**"))
+    elif not args.skip_open:
+        lines.append("")
+        lines.append("Workbench open benchmark not run: {} is not built (a Qt build with benchmarks)".format(bench_open))
+
     report = "\n".join(lines)
     print()
     print(report)
@@ -415,7 +451,7 @@ def main():
               "numeric_bytes": numeric_bytes,
               "machine": dict(machine_info(), load_average_at_start=load_average_at_start), "processes": summary, "ratios": ratios,
               "ratios_info": ratios_info, "agreement": agreement, "statsmodels_inprocess": ref_inproc,
-              "pandas_inprocess": load_inproc,
+              "pandas_inprocess": load_inproc, "workbench_open": workbench_open,
               "reference_blas": blas, "versions": {k: ref[k] for k in ("numpy", "pandas", "statsmodels")},
               "markdown": report}
     json_path = Path(args.json) if args.json else scratch / "benchmark_results.json"

@@ -19,4 +19,11 @@ void write_file_atomically(const std::string& path, std::string_view content);
 // The whole file as bytes; InputError naming the file when unreadable.
 std::string read_file_bytes(const std::string& path);
 
+namespace detail {
+// For tests: SHA-256 by the portable code only (sha256_hex uses the x86 SHA
+// extensions where the processor has them), and whether it does.
+std::string sha256_hex_portable(std::string_view bytes);
+bool sha256_uses_cpu_extensions();
+}  // namespace detail
+
 }  // namespace moderato

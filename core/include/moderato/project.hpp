@@ -23,6 +23,8 @@ struct DataSource {
     std::string path;          // relative to the project file ('/' separators), or absolute
     std::string sha256;        // lower-case hex of the file when the project was saved; empty: unknown
     CsvOptions import;         // delimiter, header, missing tokens, decimal comma, column kinds
+    // Every saved field (CsvOptions::threads is not saved and not compared).
+    bool operator==(const DataSource&) const;
 };
 
 // A derived column added to a dataset. Kinds: "centre-mean", "centre-median",
@@ -113,6 +115,9 @@ struct Project {
     std::vector<FigureEntry> figures;
     std::vector<std::string> migration_notes;   // filled when an older schema was read (not saved)
 
+    // Every saved field; migration_notes (not saved) are not compared.
+    bool operator==(const Project&) const;
+
     const DataSource* dataset(const std::string& id) const;
     const Analysis* analysis(const std::string& id) const;
     Analysis* analysis(const std::string& id);
@@ -121,14 +126,17 @@ struct Project {
     std::string unique_id(const std::string& base) const;
 };
 
-// JSON text of a project (2-space indent, numbers round-trip exactly).
+// JSON text of a project (2-space indent, numbers round-trip exactly). NaN
+// ("the default") is written as null; a non-finite slider value is written as
+// null too (read back as NaN) and non-finite pinned values are left out.
 std::string project_to_json(const Project& project);
 
 // Parses a project. InputError naming `name` and what is wrong for: text that
-// is not JSON (with line and column), a missing or non-integer
+// is not JSON (with line and column; the column counts characters), a missing or non-integer
 // schema_version, a schema newer than this program reads ("made by a newer
 // Moderato"), wrong field types, unknown enum values, and references to
-// datasets or analyses that do not exist.
+// datasets or analyses that do not exist, and an id used twice. Messages name
+// the field path, e.g. "analyses[0].probe.pinned[1]: expected a number".
 Project project_from_json(const std::string& text, const std::string& name);
 
 // Reads and parses a project file (InputError for an unreadable file).

@@ -73,7 +73,15 @@ void AnalysisRunner::refresh(const QString& id) {
     const Analysis a = *found;
     auto table = doc_->table(a.dataset);
     Entry& e = entries_[id];
-    if (e.valid && e.table == table && same_probe(e.settings, a)) {
+    if (e.running > 0) {
+        // The newest worker already computes exactly this (e.g. the page asks
+        // again right after the project was opened): wait for it. Otherwise its
+        // result is outdated, even when this request equals the result on show.
+        if (e.pendingTable == table && same_probe(e.pending, a)) {
+            e.pending = a;
+            return;
+        }
+    } else if (e.valid && e.table == table && same_probe(e.settings, a)) {
         e.settings = a;  // only view settings changed
         return;
     }
@@ -81,11 +89,15 @@ void AnalysisRunner::refresh(const QString& id) {
     if (e.valid && e.table == table && same_model(e.settings, a) && e.run) cached = e.run;
     const int generation = ++e.generation;
     const double cells = table ? static_cast<double>(table->rows()) * static_cast<double>(table->cols()) : 0.0;
-    if (cached || cells < threshold_) {
+    if (cells < threshold_) {
         const Outcome o = compute(a, table, cached);
         finish(id, generation, a, table, o.run, o.error);
         return;
     }
+    // Big data: fit, or re-probe the cached fit (the probe scans the rows
+    // too, e.g. averaging over the sample on the probability scale), in a worker.
+    e.pending = a;
+    e.pendingTable = table;
     ++e.running;
     if (e.running == 1) Q_EMIT busyChanged(id, true);
     auto* watcher = new QFutureWatcher<Outcome>(this);
@@ -97,7 +109,7 @@ void AnalysisRunner::refresh(const QString& id) {
         if (--it->second.running == 0) Q_EMIT busyChanged(id, false);
         finish(id, generation, a, table, o.run, o.error);
     });
-    watcher->setFuture(QtConcurrent::run([a, table] { return compute(a, table, nullptr); }));
+    watcher->setFuture(QtConcurrent::run([a, table, cached] { return compute(a, table, cached); }));
 }
 
 void AnalysisRunner::finish(const QString& id, int generation, const Analysis& a, std::shared_ptr<const Table> table,

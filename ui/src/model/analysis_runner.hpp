@@ -1,7 +1,8 @@
 // Keeps each analysis's computed run up to date with its settings. Small
 // data are fitted on the UI thread (a fit takes milliseconds); big data are
-// fitted in a worker thread and the newest request wins. A change that
-// touches only the probe reuses the cached design and fit.
+// fitted (and re-probed) in a worker thread and the newest request wins; a
+// request equal to the one a worker is computing starts no second worker. A
+// change that touches only the probe reuses the cached design and fit.
 #pragma once
 
 #include <QObject>
@@ -47,6 +48,8 @@ private:
         bool valid = false;                      // settings/table describe a finished computation
         int generation = 0;                      // newest request
         int running = 0;                         // workers in flight
+        Analysis pending;                        // what the newest worker computes
+        std::shared_ptr<const Table> pendingTable;
     };
     void finish(const QString& id, int generation, const Analysis& a, std::shared_ptr<const Table> table,
                 std::shared_ptr<const AnalysisRun> run, const QString& error);

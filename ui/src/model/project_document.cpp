@@ -68,7 +68,12 @@ void ProjectDocument::adopt(LoadedProject loaded) {
     tables_ = std::move(loaded.tables);
     tableErrors_ = std::move(loaded.table_errors);
     absolutePaths_.clear();
-    for (const auto& d : project_.datasets) absolutePaths_[d.id] = resolve_data_path(d, loaded.path);
+    saved_.clear();
+    for (const auto& d : project_.datasets) {
+        absolutePaths_[d.id] = resolve_data_path(d, loaded.path);
+        saved_[d.id] = {d.path, d.sha256};
+    }
+    readHashes_ = std::move(loaded.sha256);
     undo_.clear();
     Q_EMIT filePathChanged(path_);
     Q_EMIT projectReset();
@@ -81,6 +86,8 @@ void ProjectDocument::clear() {
     tables_.clear();
     tableErrors_.clear();
     absolutePaths_.clear();
+    readHashes_.clear();
+    saved_.clear();
     undo_.clear();
     Q_EMIT filePathChanged(path_);
     Q_EMIT projectReset();
@@ -94,7 +101,7 @@ void ProjectDocument::rebuildTable(const std::string& id) {
         return;
     }
     try {
-        tables_[id] = std::make_shared<const Table>(apply_recipes(*base, project_.recipes_for(id)));
+        tables_[id] = with_recipes(base, project_.recipes_for(id));
     } catch (const InputError& e) {
         tables_[id] = base;
         tableErrors_[id] = e.what();
@@ -102,14 +109,21 @@ void ProjectDocument::rebuildTable(const std::string& id) {
 }
 
 std::string ProjectDocument::addDataset(const QString& dataPath, const CsvOptions& import,
-                                        std::shared_ptr<const Table> table) {
+                                        std::shared_ptr<const Table> table, const std::string& sha256) {
     Project after = project_;
     DataSource s;
     s.id = after.unique_id(stem_id(dataPath));
     s.path = QFileInfo(dataPath).absoluteFilePath().toStdString();
     s.import = import;
     after.datasets.push_back(s);
+    // The id may have belonged to a dataset whose addition was undone: forget
+    // everything about that one.
     base_[s.id] = table;
+    tables_.erase(s.id);
+    tableErrors_.erase(s.id);
+    readHashes_.erase(s.id);
+    if (!sha256.empty()) readHashes_[s.id] = sha256;
+    saved_.erase(s.id);
     absolutePaths_[s.id] = s.path;
     QString text = tr("Add dataset %1").arg(QFileInfo(dataPath).fileName());
     if (after.analyses.empty() && table) {
@@ -136,6 +150,10 @@ void ProjectDocument::setProject(const Project& after, const QString& descriptio
 void ProjectDocument::applyState(const Project& p) {
     const Project before = std::move(project_);
     project_ = p;
+    for (auto& d : project_.datasets) {
+        const auto it = saved_.find(d.id);
+        if (it != saved_.end()) d.path = it->second.path, d.sha256 = it->second.sha256;
+    }
     bool structure = before.datasets.size() != p.datasets.size() || before.analyses.size() != p.analyses.size() ||
                      !(before.figures == p.figures);
     for (std::size_t i = 0; !structure && i < p.datasets.size(); ++i)
@@ -159,16 +177,30 @@ void ProjectDocument::applyState(const Project& p) {
 }
 
 void ProjectDocument::saveAs(const QString& path) {
-    const std::string target = QFileInfo(path).absoluteFilePath().toStdString();
+    const QFileInfo info(path);
+    const std::string target = info.absoluteFilePath().toStdString();
     Project out = project_;
+    std::map<std::string, std::string> hashes;
     for (auto& d : out.datasets) {
-        const std::string file = dataPath(d.id).toStdString();
-        d.sha256 = sha256_file(file);
+        const QString dataFile = dataPath(d.id);
+        const std::string file = dataFile.toStdString();
+        if (QFileInfo(dataFile).absoluteFilePath() == info.absoluteFilePath() ||
+            (info.exists() && QFileInfo(dataFile).canonicalFilePath() == info.canonicalFilePath()))
+            throw InputError(target + ": this is the data file of dataset '" + d.id +
+                             "'; a project is saved in its own file (name.moderato), never over data");
+        const auto read = readHashes_.find(d.id);
+        d.sha256 = read != readHashes_.end() ? read->second : sha256_file(file);
+        hashes[d.id] = d.sha256;
         d.path = relative_data_path(file, target);
     }
     write_project_file(out, target);
     // Only paths and hashes changed: not an edit, so no undo step.
-    for (auto& d : out.datasets) absolutePaths_[d.id] = resolve_data_path(d, target);
+    saved_.clear();
+    for (auto& d : out.datasets) {
+        absolutePaths_[d.id] = resolve_data_path(d, target);
+        readHashes_[d.id] = hashes[d.id];
+        saved_[d.id] = {d.path, d.sha256};
+    }
     project_.datasets = out.datasets;
     path_ = QString::fromStdString(target);
     undo_.setClean();

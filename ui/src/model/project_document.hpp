@@ -43,18 +43,26 @@ public:
 
     // Adds a dataset read from `dataPath` (undoable); returns its id. When the
     // project is empty, also adds a first analysis with guessed roles.
-    std::string addDataset(const QString& dataPath, const CsvOptions& import, std::shared_ptr<const Table> table);
+    // `sha256`: of the bytes the table was read from (empty: computed at save).
+    std::string addDataset(const QString& dataPath, const CsvOptions& import, std::shared_ptr<const Table> table,
+                           const std::string& sha256 = {});
 
     // Edits (each one undo step). `mergeKey` non-empty: consecutive edits with
     // the same key merge into one step (typing, dragging).
     void setAnalysis(const Analysis& after, const QString& description, const QString& mergeKey = {});
     void setProject(const Project& after, const QString& description);
 
-    // Saves to `path` (atomically), recording each data file's SHA-256 and
-    // its path relative to the project. InputError when writing fails.
+    // Saves to `path` (atomically), recording each data file's SHA-256 (of
+    // the bytes that were read when the project was opened; of the file as it
+    // is now for a dataset added since) and its path relative to the project.
+    // InputError when writing fails or when `path` is one of the project's
+    // data files (user data are never written); nothing changes then.
     void saveAs(const QString& path);
 
-    // Applies a state (used by undo commands only).
+    // Applies a state (used by undo commands only). A dataset's path and
+    // SHA-256 record where its file is and what it held when the project was
+    // last opened or saved: bookkeeping, not an edit, so they keep their
+    // current values across undo and redo.
     void applyState(const Project& p);
 
 Q_SIGNALS:
@@ -73,6 +81,11 @@ private:
     std::map<std::string, std::shared_ptr<const Table>> base_, tables_;
     std::map<std::string, std::string> tableErrors_;
     std::map<std::string, std::string> absolutePaths_;  // dataset id -> absolute data path (unsaved projects)
+    std::map<std::string, std::string> readHashes_;     // dataset id -> SHA-256 of the bytes read at open
+    struct Saved {
+        std::string path, sha256;
+    };
+    std::map<std::string, Saved> saved_;                // dataset id -> path and hash as last opened/saved
 };
 
 // Guessed roles for a new analysis on a table: the first numeric column as

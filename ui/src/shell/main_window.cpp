@@ -30,6 +30,7 @@
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "moderato/error.hpp"
+#include "moderato/file_util.hpp"
 #include "moderato/project_loader.hpp"
 #include "sections/checks_section.hpp"
 #include "shell/analysis_page.hpp"
@@ -78,6 +79,7 @@ Result runWithProgress(QWidget* parent, const QString& label, bool interactive, 
 struct LoadOutcome {
     std::shared_ptr<LoadedProject> project;
     std::shared_ptr<const Table> table;
+    std::string sha256;  // of the data file read
     QString error;
     bool cancelled = false;
 };
@@ -280,6 +282,7 @@ bool MainWindow::importData(const QString& path, const CsvOptions& options) {
             LoadOutcome o;
             try {
                 o.table = std::make_shared<const Table>(read_csv(file, options, progress));
+                o.sha256 = sha256_file(file);
             } catch (const Cancelled&) {
                 o.cancelled = true;
             } catch (const InputError& e) {
@@ -293,7 +296,7 @@ bool MainWindow::importData(const QString& path, const CsvOptions& options) {
         report(tr("Cannot read data"), outcome.error);
         return false;
     }
-    const std::string id = doc_->addDataset(path, options, outcome.table);
+    const std::string id = doc_->addDataset(path, options, outcome.table, outcome.sha256);
     addRecent(QFileInfo(path).absoluteFilePath());
     if (!doc_->project().analyses.empty() && doc_->project().analyses.back().dataset == id)
         showAnalysis(QString::fromStdString(doc_->project().analyses.back().id));

@@ -115,7 +115,7 @@ QString ProjectSidebar::duplicateAnalysis(const QString& id) {
 void ProjectSidebar::removeAnalysis(const QString& id) {
     Project p = doc_->project();
     const std::string key = id.toStdString();
-    std::erase_if(p.analyses, [&](const Analysis& a) { return a.id == key; });
+    if (std::erase_if(p.analyses, [&](const Analysis& a) { return a.id == key; }) == 0) return;  // no empty undo step
     std::erase_if(p.figures, [&](const FigureEntry& f) { return f.analysis == key; });
     doc_->setProject(p, tr("Remove analysis"));
 }
@@ -123,7 +123,7 @@ void ProjectSidebar::removeAnalysis(const QString& id) {
 void ProjectSidebar::removeFigure(const QString& id) {
     Project p = doc_->project();
     const std::string key = id.toStdString();
-    std::erase_if(p.figures, [&](const FigureEntry& f) { return f.id == key; });
+    if (std::erase_if(p.figures, [&](const FigureEntry& f) { return f.id == key; }) == 0) return;
     doc_->setProject(p, tr("Remove figure"));
 }
 

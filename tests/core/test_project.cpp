@@ -1,0 +1,1092 @@
+// Project files: SHA-256 against the published examples and outside tools,
+// the JSON round trip, schema checks and migration, atomic writes, opening a
+// project with its data files (never writing anything), and analysis runs
+// built from project settings.
+#include <gtest/gtest.h>
+
+#include <signal.h>
+#include <stdlib.h>
+#include <sys/resource.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include <Eigen/Dense>
+#include <algorithm>
+#include <bit>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <functional>
+#include <limits>
+#include <map>
+#include <random>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include "common/table_builder.hpp"
+#include "moderato/analysis_run.hpp"
+#include "moderato/error.hpp"
+#include "moderato/file_util.hpp"
+#include "moderato/fit.hpp"
+#include "moderato/project.hpp"
+#include "moderato/project_loader.hpp"
+
+namespace fs = std::filesystem;
+using namespace moderato;
+
+namespace {
+
+const double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+class TempDir {
+public:
+    TempDir() {
+        std::string pattern = (fs::temp_directory_path() / "moderato_project_test_XXXXXX").string();
+        if (!::mkdtemp(pattern.data())) throw std::runtime_error("mkdtemp failed");
+        path_ = pattern;
+    }
+    ~TempDir() {
+        std::error_code ec;
+        fs::permissions(path_, fs::perms::owner_all, fs::perm_options::add, ec);
+        fs::remove_all(path_, ec);
+    }
+    const fs::path& path() const { return path_; }
+    std::string operator/(const std::string& name) const { return (path_ / name).string(); }
+
+private:
+    fs::path path_;
+};
+
+void write_bytes(const fs::path& path, const std::string& bytes) {
+    fs::create_directories(path.parent_path());
+    std::ofstream out(path, std::ios::binary);
+    out << bytes;
+}
+
+std::string read_bytes(const fs::path& path) {
+    std::ifstream in(path, std::ios::binary);
+    std::stringstream s;
+    s << in.rdbuf();
+    return s.str();
+}
+
+// Every entry under a folder (files with their bytes and modification time,
+// folders by name), to show that an operation wrote, added or removed nothing.
+struct Entry {
+    bool directory = false;
+    std::string bytes;
+    fs::file_time_type mtime;
+    bool operator==(const Entry&) const = default;
+};
+std::map<std::string, Entry> snapshot(const fs::path& dir) {
+    std::map<std::string, Entry> out;
+    for (const auto& e : fs::recursive_directory_iterator(dir)) {
+        Entry s;
+        s.directory = e.is_directory();
+        if (!s.directory) s.bytes = read_bytes(e.path());
+        s.mtime = fs::last_write_time(e.path());
+        out[e.path().string()] = s;
+    }
+    return out;
+}
+
+// Standard output of a shell command (empty when it cannot run).
+std::string run_command(const std::string& command) {
+    std::string out;
+    if (FILE* p = ::popen(command.c_str(), "r")) {
+        char buffer[4096];
+        std::size_t got;
+        while ((got = std::fread(buffer, 1, sizeof buffer, p)) > 0) out.append(buffer, got);
+        ::pclose(p);
+    }
+    return out;
+}
+
+bool contains(const std::string& text, const std::string& part) { return text.find(part) != std::string::npos; }
+
+// The message of the InputError `f` throws ("" when it throws none).
+template <typename F>
+std::string input_error(F&& f) {
+    try {
+        f();
+    } catch (const InputError& e) {
+        return e.what();
+    }
+    return {};
+}
+
+bool same_bits(double a, double b) { return std::bit_cast<std::uint64_t>(a) == std::bit_cast<std::uint64_t>(b); }
+
+}  // namespace
+
+// ---------------------------------------------------------------- SHA-256
+
+// Each check runs through sha256_hex (the x86 SHA extensions where the
+// processor has them) and through the portable code alone.
+#define EXPECT_SHA256(bytes, expected)                                  \
+    do {                                                                \
+        EXPECT_EQ(sha256_hex(bytes), expected);                         \
+        EXPECT_EQ(detail::sha256_hex_portable(bytes), expected) << "portable code"; \
+    } while (0)
+
+// FIPS 180-2 (with change notice), Appendix B.1: the one-block message "abc".
+TEST(Sha256, FipsOneBlockMessage) {
+    EXPECT_SHA256("abc", "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
+    std::printf("SHA-256 engine: %s\n", detail::sha256_uses_cpu_extensions() ? "x86 SHA extensions" : "portable");
+}
+
+// FIPS 180-2, Appendix B.2: the 448-bit two-block message.
+TEST(Sha256, FipsTwoBlockMessage) {
+    EXPECT_SHA256("abcdbcdecdefdefgefghfghighijhijkijkljklmklmnlmnomnopnopq",
+                  "248d6a61d20638b8e5c026930c3e6039a33ce45964ff2167f6ecedd419db06c1");
+}
+
+// FIPS 180-2, Appendix B.3: one million repetitions of 'a'.
+TEST(Sha256, FipsMillionA) {
+    EXPECT_SHA256(std::string(1000000, 'a'), "cdc76e5c9914fb9281a1c7e284d73e67f1809a48a497200e046d39ccc7112cd0");
+}
+
+// The empty message: e3b0c442... (NIST CAVS SHA256ShortMsg, Len = 0; from memory,
+// and checked against Python's hashlib in the next test).
+TEST(Sha256, EmptyMessage) {
+    EXPECT_SHA256("", "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855");
+}
+
+// Every length 0..200 (all the padding cases: 55, 56, 63, 64, 119, 120 bytes)
+// against Python's hashlib (OpenSSL) on the same bytes.
+TEST(Sha256, EveryPaddingCaseMatchesPythonHashlib) {
+    if (!fs::exists("/usr/bin/python3")) GTEST_SKIP() << "/usr/bin/python3 is not installed";
+    const std::string out = run_command(
+        "/usr/bin/python3 -c 'import hashlib\n"
+        "for n in range(201): print(hashlib.sha256(bytes((7 * j + 3) % 256 for j in range(n))).hexdigest())'");
+    std::istringstream lines(out);
+    std::string expected;
+    int n = 0;
+    for (; std::getline(lines, expected); ++n) {
+        std::string bytes;
+        for (int j = 0; j < n; ++j) bytes.push_back(static_cast<char>((7 * j + 3) % 256));
+        SCOPED_TRACE("length " + std::to_string(n));
+        EXPECT_SHA256(bytes, expected);
+        // The same bytes at an odd address.
+        const std::string shifted = "x" + bytes;
+        EXPECT_EQ(sha256_hex(std::string_view(shifted).substr(1)), expected);
+    }
+    EXPECT_EQ(n, 201) << "python3 printed " << n << " hashes";
+}
+
+// A file of 2.5 MB (more than the 1 MiB read buffer, not a multiple of it)
+// against the coreutils tool `sha256sum` on the same file.
+TEST(Sha256, FileMatchesSha256sum) {
+    TempDir dir;
+    std::mt19937 random(20240917);
+    std::string bytes(2500017, '\0');
+    for (char& c : bytes) c = static_cast<char>(random() & 0xff);
+    const std::string file = dir / "random.bin";
+    write_bytes(file, bytes);
+    const std::string tool = run_command("sha256sum '" + file + "'");
+    if (tool.size() < 64) GTEST_SKIP() << "sha256sum (coreutils) did not run";
+    EXPECT_EQ(sha256_file(file), tool.substr(0, 64));  // coreutils sha256sum
+    EXPECT_SHA256(bytes, tool.substr(0, 64));
+
+    const std::string empty = dir / "empty.bin";
+    write_bytes(empty, "");
+    EXPECT_EQ(sha256_file(empty), run_command("sha256sum '" + empty + "'").substr(0, 64));  // coreutils sha256sum
+}
+
+TEST(Sha256, UnreadableFileNamesTheFile) {
+    TempDir dir;
+    const std::string missing = dir / "nothing-here.csv";
+    const std::string message = input_error([&] { sha256_file(missing); });
+    EXPECT_TRUE(contains(message, missing)) << message;
+}
+
+// ---------------------------------------------------------------- JSON round trip
+
+namespace {
+
+// A project with every field set to something other than its default, and
+// numbers that only survive exact (shortest round-trip) formatting.
+Project full_project() {
+    Project p;
+    DataSource spend;
+    spend.id = "spend";
+    spend.path = "data/spend;weekly.csv";
+    spend.sha256 = sha256_hex("spend");
+    spend.import.delimiter = ';';
+    spend.import.header = false;
+    spend.import.missing_tokens = {"", "-999", "n/a", "“none”"};
+    spend.import.decimal_comma = true;
+    spend.import.column_kinds = {{"store", ColumnKind::Categorical}, {"code", ColumnKind::Numeric}};
+    DataSource plots;
+    plots.id = "plots";
+    plots.path = "/srv/field data/plots.tsv";
+    plots.import.delimiter = '\t';
+    plots.import.missing_tokens = {};
+    p.datasets = {spend, plots};
+
+    const std::vector<std::string> kinds{"centre-mean", "centre-median", "centre-value", "standardise", "log",
+                                         "log1p",       "square",        "dummy",        "product"};
+    for (const auto& kind : kinds) {
+        DerivedRecipe r;
+        r.dataset = kind == "product" ? "plots" : "spend";
+        r.name = "new_" + kind;
+        r.kind = kind;
+        r.source = "x";
+        if (kind == "centre-value") r.value = 1.0 / 3.0;
+        if (kind == "dummy") r.level = "North-East (coast)";
+        if (kind == "product") r.other = "z";
+        p.derived.push_back(r);
+    }
+
+    Analysis a;
+    a.id = "full";
+    a.name = "discount × loyalty — all settings";
+    a.dataset = "spend";
+    a.roles = {"y", "x", "z", "w", {"c1", "c2", "région"}, "wt", "site"};
+    a.family = Family::Logistic;
+    a.se = SeKind::Cluster;
+    a.level = 0.9;
+    a.centring = "mean";
+    a.probe.current = 12.375;
+    a.probe.pinned = {0.1, 1.0 / 3.0, -0.0, 1e-300, 5e-324, 1.7976931348623157e308, -2.5, 123456789.123456789};
+    a.probe.second_value = M_PI;
+    a.probe.scale = "response";
+    a.probe.averaging = "values";
+    a.probe.simultaneous_band = true;
+    a.probe.show_points = false;
+    a.figure = {"custom", 7.25, 3.1, 600, "Noto Serif", 10.5, true, false};
+    p.analyses.push_back(a);
+
+    // One analysis per standard-error kind, with the NaN defaults ("the mean").
+    const std::vector<SeKind> kinds_se{SeKind::Classical, SeKind::HC0, SeKind::HC1, SeKind::HC2, SeKind::HC3,
+                                       SeKind::HC4};
+    for (std::size_t i = 0; i < kinds_se.size(); ++i) {
+        Analysis b;
+        b.id = "se-" + std::to_string(i);
+        b.name = std::string("SE ") + to_string(kinds_se[i]);
+        b.dataset = "plots";
+        b.roles.outcome = "yield";
+        b.roles.focal = "n";
+        b.roles.moderator = "moisture";
+        b.se = kinds_se[i];
+        b.level = 0.99;
+        b.figure.preset = i % 2 ? "slide" : "two-column";
+        p.analyses.push_back(b);
+    }
+    EXPECT_TRUE(std::isnan(p.analyses[1].probe.current));
+    EXPECT_TRUE(std::isnan(p.analyses[1].probe.second_value));
+
+    const std::vector<std::string> plots_kinds{"lines", "effect", "surface", "cells", "residuals", "qq", "influence"};
+    for (const auto& plot : plots_kinds)
+        p.figures.push_back({"fig-" + plot, "The " + plot + " plot", plot == "lines" ? "full" : "se-1", plot});
+    return p;
+}
+
+}  // namespace
+
+TEST(ProjectJson, EveryFieldRoundTripsExactly) {
+    const Project p = full_project();
+    const std::string text = project_to_json(p);
+    const Project q = project_from_json(text, "memory.moderato");
+    EXPECT_TRUE(q == p);
+    // Field by field, so a failure says where.
+    ASSERT_EQ(q.datasets.size(), p.datasets.size());
+    for (std::size_t i = 0; i < p.datasets.size(); ++i) {
+        EXPECT_EQ(q.datasets[i].id, p.datasets[i].id);
+        EXPECT_EQ(q.datasets[i].path, p.datasets[i].path);
+        EXPECT_EQ(q.datasets[i].sha256, p.datasets[i].sha256);
+        EXPECT_EQ(q.datasets[i].import.delimiter, p.datasets[i].import.delimiter);
+        EXPECT_EQ(q.datasets[i].import.header, p.datasets[i].import.header);
+        EXPECT_EQ(q.datasets[i].import.missing_tokens, p.datasets[i].import.missing_tokens);
+        EXPECT_EQ(q.datasets[i].import.decimal_comma, p.datasets[i].import.decimal_comma);
+        EXPECT_EQ(q.datasets[i].import.column_kinds, p.datasets[i].import.column_kinds);
+    }
+    EXPECT_EQ(q.derived, p.derived);
+    ASSERT_EQ(q.analyses.size(), p.analyses.size());
+    for (std::size_t i = 0; i < p.analyses.size(); ++i) {
+        SCOPED_TRACE(p.analyses[i].id);
+        EXPECT_TRUE(q.analyses[i] == p.analyses[i]);
+        EXPECT_EQ(q.analyses[i].roles, p.analyses[i].roles);
+        EXPECT_EQ(q.analyses[i].se, p.analyses[i].se);
+        EXPECT_EQ(q.analyses[i].family, p.analyses[i].family);
+        EXPECT_TRUE(same_bits(q.analyses[i].level, p.analyses[i].level));
+        EXPECT_TRUE(q.analyses[i].probe == p.analyses[i].probe);
+        EXPECT_EQ(q.analyses[i].figure, p.analyses[i].figure);
+    }
+    // Numbers: the same bits, including the sign of zero and a subnormal.
+    const auto& pinned = q.analyses[0].probe.pinned;
+    ASSERT_EQ(pinned.size(), p.analyses[0].probe.pinned.size());
+    for (std::size_t i = 0; i < pinned.size(); ++i)
+        EXPECT_TRUE(same_bits(pinned[i], p.analyses[0].probe.pinned[i])) << "pinned[" << i << "]";
+    EXPECT_TRUE(std::signbit(pinned[2]));
+    EXPECT_TRUE(same_bits(q.analyses[0].probe.second_value, M_PI));
+    EXPECT_TRUE(same_bits(q.derived[2].value, 1.0 / 3.0));
+    EXPECT_TRUE(std::isnan(q.analyses[3].probe.current));
+    EXPECT_TRUE(std::isnan(q.analyses[3].probe.second_value));
+    EXPECT_EQ(q.figures, p.figures);
+    // Writing what was read gives the same text.
+    EXPECT_EQ(project_to_json(q), text);
+}
+
+TEST(ProjectJson, EqualityNoticesEveryKindOfChange) {
+    const Project p = full_project();
+    Project q = p;
+    q.datasets[0].import.column_kinds["store"] = ColumnKind::Numeric;
+    EXPECT_FALSE(q == p);
+    q = p;
+    q.analyses[1].probe.current = 0;  // NaN (the mean) is not 0
+    EXPECT_FALSE(q == p);
+    q = p;
+    q.analyses[0].probe.pinned[2] = 0.0;  // -0 == +0 numerically: equal states
+    EXPECT_TRUE(q == p);
+    q = p;
+    q.derived[4].source = "y";
+    EXPECT_FALSE(q == p);
+}
+
+TEST(ProjectJson, WritingARecipeValueAndNonFiniteNumbersStaysReadable) {
+    Project p = full_project();
+    p.analyses[0].probe.pinned.push_back(kNaN);
+    p.analyses[0].probe.pinned.push_back(std::numeric_limits<double>::infinity());
+    p.analyses[0].probe.current = std::numeric_limits<double>::infinity();
+    p.derived[0].value = 4.5;  // a value on a recipe that does not use it still round-trips
+    const Project q = project_from_json(project_to_json(p), "memory.moderato");
+    // Non-finite pinned values mean nothing on a slider: they are left out, and
+    // a non-finite slider position is read back as "the mean".
+    EXPECT_EQ(q.analyses[0].probe.pinned.size(), p.analyses[0].probe.pinned.size() - 2);
+    EXPECT_TRUE(std::isnan(q.analyses[0].probe.current));
+    EXPECT_EQ(q.derived[0].value, 4.5);
+}
+
+// ---------------------------------------------------------------- schema and errors
+
+namespace {
+
+const char* kSmallProject = R"({
+  "schema_version": 1,
+  "datasets": [ {"id": "d", "path": "d.csv", "import": {"delimiter": ","}} ],
+  "analyses": [ {"id": "a", "dataset": "d",
+                 "roles": {"outcome": "y", "focal": "x", "moderator": "z"},
+                 "probe": {"pinned": [1, 2]}} ]
+}
+)";
+
+std::string replaced(std::string text, const std::string& from, const std::string& to) {
+    const auto at = text.find(from);
+    EXPECT_NE(at, std::string::npos) << from;
+    if (at != std::string::npos) text.replace(at, from.size(), to);
+    return text;
+}
+
+}  // namespace
+
+TEST(ProjectJson, SmallProjectReadsWithDefaults) {
+    const Project p = project_from_json(kSmallProject, "small.moderato");
+    ASSERT_EQ(p.analyses.size(), 1u);
+    EXPECT_EQ(p.analyses[0].name, "a");  // the id when no name is given
+    EXPECT_EQ(p.analyses[0].probe.pinned, (std::vector<double>{1, 2}));
+    EXPECT_EQ(p.datasets[0].import.delimiter, ',');
+    EXPECT_TRUE(p.migration_notes.empty());
+}
+
+TEST(ProjectJson, NewerSchemaIsRefusedNamingTheFileAndBothVersions) {
+    const std::string text = replaced(kSmallProject, "\"schema_version\": 1", "\"schema_version\": 7");
+    const std::string message = input_error([&] { project_from_json(text, "/data/future.moderato"); });
+    EXPECT_TRUE(contains(message, "/data/future.moderato")) << message;
+    EXPECT_TRUE(contains(message, "newer")) << message;
+    EXPECT_TRUE(contains(message, "schema 7")) << message;
+    EXPECT_TRUE(contains(message, "schema " + std::to_string(kProjectSchemaVersion))) << message;
+    // A version too large for a signed 64-bit number is still "newer".
+    const std::string huge = replaced(kSmallProject, "\"schema_version\": 1", "\"schema_version\": 18446744073709551615");
+    const std::string huge_message = input_error([&] { project_from_json(huge, "future.moderato"); });
+    EXPECT_TRUE(contains(huge_message, "newer")) << huge_message;
+    EXPECT_TRUE(contains(huge_message, "18446744073709551615")) << huge_message;
+}
+
+TEST(ProjectJson, SchemaZeroIsMigratedWithANote) {
+    // Schema 0 kept the roles at the top level of each analysis.
+    const std::string old = R"({
+      "schema_version": 0,
+      "datasets": [ {"id": "d", "path": "d.csv"} ],
+      "analyses": [ {"id": "a", "dataset": "d", "outcome": "y", "focal": "x", "moderator": "z",
+                     "second_moderator": "w", "controls": ["c1", "c2"], "weights": "wt", "clusters": "g",
+                     "se": "cluster"} ]
+    })";
+    const Project p = project_from_json(old, "old.moderato");
+    ASSERT_EQ(p.analyses.size(), 1u);
+    const Roles expected{"y", "x", "z", "w", {"c1", "c2"}, "wt", "g"};
+    EXPECT_EQ(p.analyses[0].roles, expected);
+    EXPECT_EQ(p.analyses[0].se, SeKind::Cluster);
+    ASSERT_EQ(p.migration_notes.size(), 1u);
+    EXPECT_TRUE(contains(p.migration_notes[0], "schema 0")) << p.migration_notes[0];
+    EXPECT_EQ(p.schema_version, kProjectSchemaVersion);
+    // Saving writes the current schema with the roles grouped.
+    const std::string saved = project_to_json(p);
+    EXPECT_TRUE(contains(saved, "\"schema_version\": " + std::to_string(kProjectSchemaVersion))) << saved;
+    EXPECT_TRUE(contains(saved, "\"roles\"")) << saved;
+    EXPECT_TRUE(project_from_json(saved, "again.moderato").migration_notes.empty());
+
+    // A schema-0 project with no analyses at all is fine too.
+    const Project empty = project_from_json(R"({"schema_version": 0, "datasets": []})", "old-empty.moderato");
+    EXPECT_TRUE(empty.analyses.empty());
+    EXPECT_EQ(empty.migration_notes.size(), 1u);
+}
+
+TEST(ProjectJson, CorruptJsonGivesLineAndColumn) {
+    // By construction: the stray '}' is the 17th character of line 4
+    // ("    {" is 5 characters, "\"id\": \"a\", " 11 more, then '}').
+    const std::string text = "{\n  \"schema_version\": 1,\n  \"datasets\": [\n    {\"id\": \"a\", }\n  ]\n}\n";
+    const std::string message = input_error([&] { project_from_json(text, "broken.moderato"); });
+    EXPECT_TRUE(contains(message, "broken.moderato")) << message;
+    EXPECT_TRUE(contains(message, "line 4, column 17")) << message;
+    EXPECT_TRUE(contains(message, "not valid JSON")) << message;
+
+    // Cut off after the first line: the end of the text is on line 2.
+    const std::string cut = "{\n  \"schema_version\": 1,";
+    const std::string cut_message = input_error([&] { project_from_json(cut, "cut.moderato"); });
+    EXPECT_TRUE(contains(cut_message, "line 2")) << cut_message;
+
+    // The column counts characters: "é" is two bytes but one column; the
+    // stray ':' is the 18th character of line 2 (by construction).
+    const std::string utf8 = "{\n  \"name\": \"caf\xc3\xa9\" :\n}";
+    const std::string utf8_message = input_error([&] { project_from_json(utf8, "accent.moderato"); });
+    EXPECT_TRUE(contains(utf8_message, "line 2, column 18")) << utf8_message;
+
+    // An empty file and a file that is JSON but not an object.
+    EXPECT_TRUE(contains(input_error([&] { project_from_json("", "empty.moderato"); }), "line 1, column 1"));
+    EXPECT_TRUE(contains(input_error([&] { project_from_json("[1, 2]", "list.moderato"); }), "not a Moderato project"));
+    EXPECT_TRUE(contains(input_error([&] { project_from_json("{}", "nothing.moderato"); }), "schema_version"));
+    EXPECT_TRUE(contains(input_error([&] { project_from_json(R"({"schema_version": 1.5})", "half.moderato"); }),
+                         "whole number"));
+}
+
+TEST(ProjectJson, WrongTypesNameTheFieldPath) {
+    struct Case {
+        std::string from, to, path, expected;
+    };
+    const std::vector<Case> cases{
+        {"\"pinned\": [1, 2]", "\"pinned\": [1, \"two\"]", "analyses[0].probe.pinned[1]", "expected a number"},
+        {"\"pinned\": [1, 2]", "\"pinned\": 3", "analyses[0].probe.pinned", "expected a list"},
+        {"\"delimiter\": \",\"", "\"delimiter\": \",;\"", "datasets[0].import.delimiter", "one character"},
+        {"\"delimiter\": \",\"", "\"header\": \"yes\"", "datasets[0].import.header", "true or false"},
+        {"\"delimiter\": \",\"", "\"column_kinds\": {\"x\": \"date\"}", "datasets[0].import.column_kinds.x",
+         "numeric"},
+        {"\"outcome\": \"y\"", "\"outcome\": 5", "analyses[0].roles.outcome", "expected text"},
+        {"\"outcome\": \"y\"", "\"controls\": [\"c\", 3]", "analyses[0].roles.controls[1]", "expected text"},
+        {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"level\": \"95%\",", "analyses[0].level", "expected a number"},
+        {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"level\": 95,", "analyses[0].level", "between 0 and 1"},
+        {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"se\": \"hc9\",", "analyses[0].se", "hc3"},
+        {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"family\": \"poisson\",", "analyses[0].family", "logistic"},
+        {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"centring\": \"median\",", "analyses[0].centring", "mean"},
+        {"\"probe\": {", "\"probe\": {\"scale\": \"odds\",", "analyses[0].probe.scale", "response"},
+        {"\"probe\": {", "\"figure\": {\"dpi\": 1e20}, \"probe\": {", "analyses[0].figure.dpi", "between 36 and 2400"},
+        {"\"probe\": {", "\"figure\": {\"dpi\": 299.5}, \"probe\": {", "analyses[0].figure.dpi", "whole number"},
+        {"\"probe\": {", "\"figure\": {\"width_in\": -1}, \"probe\": {", "analyses[0].figure", "inches"},
+        {"\"probe\": {", "\"figure\": {\"preset\": \"poster\"}, \"probe\": {", "analyses[0].figure.preset", "memo"},
+        {"\"probe\": {", "\"figure\": [], \"probe\": {", "analyses[0].figure", "expected an object"},
+        {"\"datasets\": [", "\"datasets\": [ 7, ", "datasets[0]", "expected an object"},
+        {"\"id\": \"d\", \"path\": \"d.csv\",", "\"id\": \"d\",", "datasets[0]", "\"path\" is missing"},
+    };
+    for (const Case& c : cases) {
+        SCOPED_TRACE(c.to);
+        const std::string text = replaced(kSmallProject, c.from, c.to);
+        const std::string message = input_error([&] { project_from_json(text, "typed.moderato"); });
+        EXPECT_TRUE(contains(message, "typed.moderato: " + c.path + ":")) << message;
+        EXPECT_TRUE(contains(message, c.expected)) << message;
+    }
+}
+
+TEST(ProjectJson, UnknownReferencesAndRepeatedIdsAreRefused) {
+    struct Case {
+        std::string from, to, path, expected;
+    };
+    const std::vector<Case> cases{
+        {"\"dataset\": \"d\",", "\"dataset\": \"elsewhere\",", "analyses[0].dataset", "\"elsewhere\""},
+        {"\"analyses\": [", "\"derived_columns\": [{\"dataset\": \"gone\", \"name\": \"n\", \"kind\": \"log\", "
+                            "\"source\": \"x\"}], \"analyses\": [",
+         "derived_columns[0].dataset", "\"gone\""},
+        {"\"analyses\": [", "\"figures\": [{\"id\": \"f\", \"analysis\": \"nope\", \"plot\": \"lines\"}], \"analyses\": [",
+         "figures[0].analysis", "\"nope\""},
+        {"\"datasets\": [", "\"datasets\": [ {\"id\": \"d\", \"path\": \"other.csv\"}, ", "datasets[1].id",
+         "used twice"},
+        {"\"analyses\": [ {", "\"analyses\": [ {\"id\": \"a\", \"dataset\": \"d\"}, {", "analyses[1].id", "used twice"},
+    };
+    for (const Case& c : cases) {
+        SCOPED_TRACE(c.to);
+        const std::string text = replaced(kSmallProject, c.from, c.to);
+        const std::string message = input_error([&] { project_from_json(text, "refs.moderato"); });
+        EXPECT_TRUE(contains(message, "refs.moderato: " + c.path + ":")) << message;
+        EXPECT_TRUE(contains(message, c.expected)) << message;
+    }
+    // Two figures with one id.
+    const std::string figures =
+        replaced(kSmallProject, "\"analyses\": [",
+                 "\"figures\": [{\"id\": \"f\", \"analysis\": \"a\"}, {\"id\": \"f\", \"analysis\": \"a\"}], "
+                 "\"analyses\": [");
+    const std::string message = input_error([&] { project_from_json(figures, "refs.moderato"); });
+    EXPECT_TRUE(contains(message, "figures[1].id")) << message;
+}
+
+// ---------------------------------------------------------------- atomic writes
+
+namespace {
+std::vector<std::string> names_in(const fs::path& dir) {
+    std::vector<std::string> out;
+    for (const auto& e : fs::directory_iterator(dir)) out.push_back(e.path().filename().string());
+    std::sort(out.begin(), out.end());
+    return out;
+}
+}  // namespace
+
+TEST(AtomicWrite, WritesAndReplaces) {
+    TempDir dir;
+    const std::string file = dir / "project.moderato";
+    write_file_atomically(file, "first");
+    EXPECT_EQ(read_bytes(file), "first");
+    write_file_atomically(file, std::string("second\0with a NUL", 17));
+    EXPECT_EQ(read_bytes(file), std::string("second\0with a NUL", 17));
+    write_file_atomically(file, "");
+    EXPECT_EQ(read_bytes(file), "");
+    EXPECT_EQ(names_in(dir.path()), std::vector<std::string>{"project.moderato"});  // no temporary left
+    // A new file gets the usual permissions of a new file (umask applied);
+    // a replaced file keeps its own.
+    const mode_t mask = ::umask(0);
+    ::umask(mask);
+    const std::string fresh = dir / "fresh.moderato";
+    write_file_atomically(fresh, "x");
+    EXPECT_EQ(static_cast<mode_t>(fs::status(fresh).permissions()), 0666 & ~mask);
+    fs::permissions(file, fs::perms::owner_read | fs::perms::owner_write);
+    write_file_atomically(file, "private");
+    EXPECT_EQ(fs::status(file).permissions(), fs::perms::owner_read | fs::perms::owner_write);
+    EXPECT_EQ(read_bytes(file), "private");
+}
+
+TEST(AtomicWrite, ThroughASymlinkReplacesTheLinkedFile) {
+    TempDir dir;
+    const std::string real = dir / "real.moderato", link = dir / "link.moderato";
+    write_bytes(real, "old");
+    fs::create_symlink(real, link);
+    write_file_atomically(link, "new");
+    EXPECT_TRUE(fs::is_symlink(link));
+    EXPECT_EQ(read_bytes(real), "new");
+}
+
+TEST(AtomicWrite, TargetIsAFolder) {
+    TempDir dir;
+    const fs::path folder = dir.path() / "taken.moderato";
+    write_bytes(folder / "inside.txt", "keep me");
+    const auto before = snapshot(dir.path());
+    const std::string message = input_error([&] { write_file_atomically(folder.string(), "new content"); });
+    EXPECT_TRUE(contains(message, folder.string())) << message;
+    EXPECT_TRUE(before == snapshot(dir.path())) << "the folder changed or a temporary file was left";
+}
+
+TEST(AtomicWrite, FailureHalfwayLeavesTheOldFile) {
+    // A file-size limit makes write() fail with EFBIG partway through (this
+    // works for root too, where a read-only folder would not stop the write).
+    TempDir dir;
+    const std::string file = dir / "project.moderato";
+    const std::string old(3000, 'o');
+    write_bytes(file, old);
+    const auto before = snapshot(dir.path());
+    rlimit saved{};
+    ASSERT_EQ(::getrlimit(RLIMIT_FSIZE, &saved), 0);
+    rlimit small = saved;
+    small.rlim_cur = 1024;
+    const auto old_handler = ::signal(SIGXFSZ, SIG_IGN);
+    ASSERT_EQ(::setrlimit(RLIMIT_FSIZE, &small), 0);
+    const std::string message = input_error([&] { write_file_atomically(file, std::string(100000, 'n')); });
+    ::setrlimit(RLIMIT_FSIZE, &saved);
+    ::signal(SIGXFSZ, old_handler);
+    EXPECT_TRUE(contains(message, file)) << message;
+    EXPECT_TRUE(contains(message, "left as it was")) << message;
+    EXPECT_EQ(read_bytes(file), old);
+    EXPECT_TRUE(before == snapshot(dir.path())) << "the old file changed or a temporary file was left";
+}
+
+TEST(AtomicWrite, ReadOnlyFolder) {
+    if (::geteuid() == 0) GTEST_SKIP() << "running as root: a read-only folder does not stop root from writing";
+    TempDir dir;
+    const fs::path folder = dir.path() / "locked";
+    const fs::path file = folder / "project.moderato";
+    write_bytes(file, "old bytes");
+    fs::permissions(folder, fs::perms::owner_read | fs::perms::owner_exec);
+    const auto before = snapshot(dir.path());
+    const std::string message = input_error([&] { write_file_atomically(file.string(), "new"); });
+    EXPECT_TRUE(contains(message, file.string())) << message;
+    EXPECT_TRUE(before == snapshot(dir.path()));
+    fs::permissions(folder, fs::perms::owner_all);
+}
+
+TEST(AtomicWrite, MissingFolderNamesTheFile) {
+    TempDir dir;
+    const std::string file = dir / "no/such/folder/project.moderato";
+    const std::string message = input_error([&] { write_file_atomically(file, "x"); });
+    EXPECT_TRUE(contains(message, file)) << message;
+}
+
+// ---------------------------------------------------------------- paths
+
+TEST(ProjectPaths, RelativeInsideOrBesideTheProjectElseAbsolute) {
+    EXPECT_EQ(relative_data_path("/a/b/data.csv", "/a/b/p.moderato"), "data.csv");
+    EXPECT_EQ(relative_data_path("/a/b/sub/data.csv", "/a/b/p.moderato"), "sub/data.csv");
+    EXPECT_EQ(relative_data_path("/a/shared/data.csv", "/a/b/p.moderato"), "../shared/data.csv");
+    EXPECT_EQ(relative_data_path("/x/y/z/data.csv", "/a/b/p.moderato"), "/x/y/z/data.csv");
+    DataSource s;
+    s.path = "../shared/data.csv";
+    EXPECT_EQ(resolve_data_path(s, "/a/b/p.moderato"), "/a/shared/data.csv");
+    s.path = "/x/y/data.csv";
+    EXPECT_EQ(resolve_data_path(s, "/a/b/p.moderato"), "/x/y/data.csv");
+}
+
+// ---------------------------------------------------------------- loading
+
+namespace {
+
+// A project folder: study/study.moderato with its data in study/data/ and one
+// file in a sibling folder shared/, both named relative to the project.
+struct StudyFolder {
+    TempDir dir;
+    std::string project, survey, extra;
+    StudyFolder() {
+        project = dir / "study/study.moderato";
+        survey = dir / "study/data/survey.csv";
+        extra = dir / "shared/extra.csv";
+        write_bytes(survey, "y,x,z\n1.5,2,3\n2.5,3,1\n4.0,5,9\n3.25,1,4\n");
+        write_bytes(extra, "a;b\n1;x\n2;y\n");
+        Project p;
+        DataSource s;
+        s.id = "survey";
+        s.path = "data/survey.csv";
+        s.sha256 = sha256_file(survey);
+        DataSource e;
+        e.id = "extra";
+        e.path = "../shared/extra.csv";
+        e.sha256 = sha256_file(extra);
+        e.import.delimiter = ';';
+        p.datasets = {s, e};
+        p.derived.push_back({"survey", "log_x", "log", "x", "", "", 0});
+        Analysis a;
+        a.id = "main";
+        a.name = "x by z";
+        a.dataset = "survey";
+        a.roles.outcome = "y";
+        a.roles.focal = "x";
+        a.roles.moderator = "z";
+        p.analyses.push_back(a);
+        write_project_file(p, project);
+    }
+};
+
+}  // namespace
+
+TEST(LoadProject, DataPathsAreRelativeToTheProject) {
+    StudyFolder study;
+    const auto before = snapshot(study.dir.path());
+    const LoadedProject loaded = load_project(study.project);
+    EXPECT_TRUE(loaded.warnings.empty());
+    ASSERT_TRUE(loaded.tables.count("survey"));
+    const Table& survey = *loaded.tables.at("survey");
+    EXPECT_EQ(survey.rows(), 4u);
+    ASSERT_TRUE(survey.find("log_x"));
+    EXPECT_DOUBLE_EQ(survey.find("log_x")->numbers[2], std::log(5.0));  // closed form
+    EXPECT_EQ(loaded.base.at("survey")->cols(), 3u);
+    const Table& extra = *loaded.tables.at("extra");
+    EXPECT_EQ(extra.rows(), 2u);
+    EXPECT_EQ(extra.find("b")->kind, ColumnKind::Categorical);
+    // A dataset without derived columns shares its table (no copy).
+    EXPECT_EQ(loaded.tables.at("extra"), loaded.base.at("extra"));
+    // The hashes as read now, against coreutils sha256sum.
+    const std::string tool = run_command("sha256sum '" + study.survey + "'");
+    if (tool.size() >= 64) {
+        EXPECT_EQ(loaded.sha256.at("survey"), tool.substr(0, 64));  // coreutils sha256sum
+    }
+    EXPECT_TRUE(before == snapshot(study.dir.path())) << "opening a project wrote something";
+}
+
+TEST(LoadProject, ChangedDataFileWarnsAndStillLoads) {
+    StudyFolder study;
+    std::string bytes = read_bytes(study.survey);
+    const auto at = bytes.find("4.0");
+    ASSERT_NE(at, std::string::npos);
+    bytes[at] = '6';  // one byte: 4.0 -> 6.0
+    write_bytes(study.survey, bytes);
+    const auto before = snapshot(study.dir.path());
+    const LoadedProject loaded = load_project(study.project);
+    ASSERT_EQ(loaded.warnings.size(), 1u);
+    EXPECT_TRUE(contains(loaded.warnings[0], "changed since the project was saved")) << loaded.warnings[0];
+    EXPECT_TRUE(contains(loaded.warnings[0], "survey.csv")) << loaded.warnings[0];
+    EXPECT_TRUE(contains(loaded.warnings[0], "'survey'")) << loaded.warnings[0];
+    EXPECT_EQ(loaded.tables.at("survey")->find("y")->numbers[2], 6.0);  // the file as it is now
+    EXPECT_EQ(loaded.sha256.at("survey"), sha256_hex(bytes));
+    EXPECT_NE(loaded.sha256.at("survey"), loaded.project.dataset("survey")->sha256);
+    EXPECT_TRUE(before == snapshot(study.dir.path())) << "opening a project wrote something";
+}
+
+TEST(LoadProject, VanishedDataFileIsAnErrorNamingDatasetAndPath) {
+    StudyFolder study;
+    fs::remove(study.extra);
+    const auto before = snapshot(study.dir.path());
+    const std::string message = input_error([&] { load_project(study.project); });
+    EXPECT_TRUE(contains(message, "'extra'")) << message;
+    EXPECT_TRUE(contains(message, fs::path(study.extra).lexically_normal().string())) << message;
+    EXPECT_TRUE(contains(message, "../shared/extra.csv")) << message;
+    EXPECT_TRUE(contains(message, study.project)) << message;
+    EXPECT_TRUE(before == snapshot(study.dir.path())) << "a failed open wrote something";
+}
+
+TEST(LoadProject, FailingRecipeIsReportedAndTheDataStillLoad) {
+    StudyFolder study;
+    Project p = read_project_file(study.project);
+    p.derived.push_back({"survey", "log_neg", "centre-value", "x", "", "", 10});
+    p.derived.push_back({"survey", "bad_log", "log", "log_neg", "", "", 0});
+    write_project_file(p, study.project);
+    const auto before = snapshot(study.dir.path());
+    const LoadedProject loaded = load_project(study.project);
+    ASSERT_TRUE(loaded.table_errors.count("survey"));
+    EXPECT_TRUE(contains(loaded.table_errors.at("survey"), "bad_log")) << loaded.table_errors.at("survey");
+    EXPECT_EQ(loaded.tables.at("survey")->rows(), 4u);
+    ASSERT_EQ(loaded.warnings.size(), 1u);
+    EXPECT_TRUE(before == snapshot(study.dir.path()));
+}
+
+TEST(LoadProject, CorruptAndNewerProjectsWriteNothing) {
+    StudyFolder study;
+    const std::string text = read_bytes(study.project);
+    write_bytes(study.project, text.substr(0, text.size() / 2));
+    auto before = snapshot(study.dir.path());
+    std::string message = input_error([&] { load_project(study.project); });
+    EXPECT_TRUE(contains(message, study.project)) << message;
+    EXPECT_TRUE(contains(message, "line ")) << message;
+    EXPECT_TRUE(before == snapshot(study.dir.path()));
+
+    write_bytes(study.project, replaced(text, "\"schema_version\": 1", "\"schema_version\": 2"));
+    before = snapshot(study.dir.path());
+    message = input_error([&] { load_project(study.project); });
+    EXPECT_TRUE(contains(message, "newer")) << message;
+    EXPECT_TRUE(before == snapshot(study.dir.path()));
+}
+
+// ---------------------------------------------------------------- analysis runs
+
+namespace {
+
+// Invented data with a known structure; the checks below derive their
+// expected values independently (normal equations, the same core fit with a
+// hand-built specification, or the closed form of centring).
+Table study_table(std::size_t n = 240) {
+    std::mt19937_64 random(97);
+    std::normal_distribution<double> normal(0.0, 1.0);
+    std::vector<double> y, x, z, c, w, wt, d;
+    std::vector<std::string> g, site;
+    for (std::size_t i = 0; i < n; ++i) {
+        const double xi = 3 + normal(random), zi = 10 + 2 * normal(random), ci = normal(random);
+        const double wi = normal(random);
+        x.push_back(xi);
+        z.push_back(zi);
+        // A few missing controls: the model uses fewer rows than the table has.
+        c.push_back(i % 37 == 5 ? kNaN : ci);
+        w.push_back(wi);
+        wt.push_back(0.5 + (i % 4) * 0.25);
+        d.push_back(i % 3 == 0 ? 1.0 : 0.0);
+        g.push_back(i % 3 == 0 ? "north" : i % 3 == 1 ? "south" : "west");
+        site.push_back("s" + std::to_string(i % 12));
+        y.push_back(1 + 0.8 * xi - 0.3 * zi + 0.12 * xi * zi + 0.5 * ci + 0.2 * wi + normal(random));
+    }
+    using test::numeric_column;
+    return test::make_table({numeric_column("y", y), numeric_column("x", x), numeric_column("z", z),
+                             numeric_column("c", c), numeric_column("w", w), numeric_column("wt", wt),
+                             numeric_column("d", d), test::categorical_column("g", g),
+                             test::categorical_column("site", site)},
+                            "study.csv");
+}
+
+Analysis study_analysis() {
+    Analysis a;
+    a.id = "a1";
+    a.name = "x by z";
+    a.dataset = "study";
+    a.roles.outcome = "y";
+    a.roles.focal = "x";
+    a.roles.moderator = "z";
+    a.roles.controls = {"c"};
+    return a;
+}
+
+}  // namespace
+
+TEST(RunAnalysis, RolesGiveTheModelOfAHandBuiltSpecification) {
+    const auto table = std::make_shared<const Table>(study_table());
+    Analysis a = study_analysis();
+    a.se = SeKind::HC3;
+    a.level = 0.9;
+    const AnalysisRun run = run_analysis(table, a);
+    EXPECT_EQ(run.kind, ProbeKind::Continuous);
+    ModelSpec spec;
+    spec.outcome = "y";
+    spec.predictors = {"x", "z", "c"};
+    spec.interactions = {{"x", "z"}};
+    spec.se = SeKind::HC3;
+    spec.level = 0.9;
+    const FitResult direct = fit_model(*table, spec);
+    ASSERT_EQ(run.fit.coefficients.size(), direct.coefficients.size());
+    for (std::size_t i = 0; i < direct.coefficients.size(); ++i) {
+        EXPECT_EQ(run.fit.coefficients[i].term, direct.coefficients[i].term);
+        EXPECT_DOUBLE_EQ(run.fit.coefficients[i].estimate, direct.coefficients[i].estimate);
+        EXPECT_DOUBLE_EQ(run.fit.coefficients[i].std_error, direct.coefficients[i].std_error);
+        EXPECT_DOUBLE_EQ(run.fit.coefficients[i].ci_lower, direct.coefficients[i].ci_lower);
+    }
+    EXPECT_EQ(run.fit.se, SeKind::HC3);
+    EXPECT_DOUBLE_EQ(run.fit.level, 0.9);
+
+    // And the estimates solve the normal equations X'X b = X'y over the
+    // complete rows (closed form), X = [1, x, z, c, x z].
+    const Table& t = *table;
+    std::vector<std::size_t> rows;
+    for (std::size_t r = 0; r < t.rows(); ++r)
+        if (!std::isnan(t.find("c")->numbers[r])) rows.push_back(r);
+    Eigen::MatrixXd X(rows.size(), 5);
+    Eigen::VectorXd y(rows.size());
+    for (std::size_t k = 0; k < rows.size(); ++k) {
+        const double x = t.find("x")->numbers[rows[k]], z = t.find("z")->numbers[rows[k]];
+        X.row(k) << 1, x, z, t.find("c")->numbers[rows[k]], x * z;
+        y[k] = t.find("y")->numbers[rows[k]];
+    }
+    const Eigen::VectorXd b = (X.transpose() * X).ldlt().solve(X.transpose() * y);
+    EXPECT_EQ(run.fit.n, rows.size());
+    for (int k = 0; k < 5; ++k) EXPECT_NEAR(run.fit.beta[k], b[k], 1e-8 * (1 + std::abs(b[k]))) << k;
+}
+
+TEST(RunAnalysis, SecondModeratorWeightsAndClustersReachTheModel) {
+    const auto table = std::make_shared<const Table>(study_table());
+    Analysis a = study_analysis();
+    a.roles.second_moderator = "w";
+    a.roles.weights = "wt";
+    a.roles.clusters = "site";
+    a.se = SeKind::Cluster;
+    const AnalysisRun run = run_analysis(table, a);
+    ModelSpec spec;
+    spec.outcome = "y";
+    spec.predictors = {"x", "z", "w", "c"};
+    spec.interactions = {{"x", "z", "w"}};
+    spec.weights = "wt";
+    spec.cluster = "site";
+    spec.se = SeKind::Cluster;
+    const FitResult direct = fit_model(*table, spec);
+    ASSERT_EQ(run.fit.beta.size(), direct.beta.size());
+    for (Eigen::Index i = 0; i < direct.beta.size(); ++i) EXPECT_DOUBLE_EQ(run.fit.beta[i], direct.beta[i]);
+    for (Eigen::Index i = 0; i < direct.beta.size(); ++i)
+        EXPECT_DOUBLE_EQ(run.fit.covariance(i, i), direct.covariance(i, i));
+    EXPECT_EQ(run.fit.n_clusters, 12);
+    EXPECT_FALSE(run.surface.has_value());  // a second moderator: no single surface
+}
+
+TEST(RunAnalysis, ColumnThatNoLongerExistsNamesAnalysisRoleAndColumn) {
+    const auto table = std::make_shared<const Table>(study_table());
+    struct Case {
+        std::string role, column;
+        std::function<void(Analysis&)> set;
+    };
+    const std::vector<Case> cases{
+        {"Outcome", "sales", [](Analysis& a) { a.roles.outcome = "sales"; }},
+        {"Focal predictor", "price", [](Analysis& a) { a.roles.focal = "price"; }},
+        {"Moderator", "loyal", [](Analysis& a) { a.roles.moderator = "loyal"; }},
+        {"Second moderator", "season", [](Analysis& a) { a.roles.second_moderator = "season"; }},
+        {"Controls", "tenure", [](Analysis& a) { a.roles.controls.push_back("tenure"); }},
+        {"Weights", "weight_v2", [](Analysis& a) { a.roles.weights = "weight_v2"; }},
+        {"Clusters", "store", [](Analysis& a) { a.roles.clusters = "store"; }},
+    };
+    for (const Case& c : cases) {
+        SCOPED_TRACE(c.role);
+        Analysis a = study_analysis();
+        a.name = "weekly spend model";
+        c.set(a);
+        const std::string message = input_error([&] { run_analysis(table, a); });
+        EXPECT_TRUE(contains(message, "'weekly spend model'")) << message;
+        EXPECT_TRUE(contains(message, c.role)) << message;
+        EXPECT_TRUE(contains(message, "'" + c.column + "'")) << message;
+        EXPECT_TRUE(contains(message, "study.csv")) << message;
+    }
+    Analysis a = study_analysis();
+    a.roles.moderator.clear();
+    EXPECT_TRUE(contains(input_error([&] { run_analysis(table, a); }), "Moderator"));
+    a = study_analysis();
+    a.se = SeKind::Cluster;
+    EXPECT_TRUE(contains(input_error([&] { run_analysis(table, a); }), "Clusters"));
+    EXPECT_TRUE(contains(input_error([&] { run_analysis(nullptr, study_analysis()); }), "not loaded"));
+}
+
+TEST(RunAnalysis, ProbeKindOfEachSampleProject) {
+    // From each sample's design (README of sample-projects): binary moderator,
+    // continuous x continuous, 2 x 2 cells, three-level moderator, logistic.
+    const fs::path samples = fs::path(MODERATO_TEST_DATA_DIR) / ".." / ".." / "sample-projects";
+    const std::vector<std::pair<std::string, ProbeKind>> expected{{"coffee-discount", ProbeKind::Groups},
+                                                                  {"orchard-nitrogen", ProbeKind::Continuous},
+                                                                  {"volunteer-onboarding", ProbeKind::Cells},
+                                                                  {"helpdesk-staffing", ProbeKind::Groups},
+                                                                  {"trial-conversion", ProbeKind::Continuous}};
+    for (const auto& [name, kind] : expected) {
+        SCOPED_TRACE(name);
+        const fs::path file = samples / name / (name + ".moderato");
+        ASSERT_TRUE(fs::exists(file)) << file;
+        const LoadedProject loaded = load_project(file.string());
+        EXPECT_TRUE(loaded.warnings.empty());
+        ASSERT_FALSE(loaded.project.analyses.empty());
+        const Analysis& a = loaded.project.analyses.front();
+        EXPECT_EQ(probe_kind(*loaded.tables.at(a.dataset), a), kind);
+        const AnalysisRun run = run_analysis(loaded.tables.at(a.dataset), a);
+        EXPECT_EQ(run.kind, kind);
+        EXPECT_EQ(run.cells.has_value(), kind == ProbeKind::Cells);
+        EXPECT_EQ(run.probe.has_value(), kind != ProbeKind::Cells);
+        EXPECT_FALSE(run.cautions.empty());
+    }
+}
+
+TEST(RunAnalysis, ProbeKindFromColumnKinds) {
+    const Table t = study_table();
+    Analysis a = study_analysis();
+    a.roles.moderator = "d";  // 0/1
+    EXPECT_EQ(probe_kind(t, a), ProbeKind::Groups);
+    a.roles.moderator = "g";  // categorical
+    EXPECT_EQ(probe_kind(t, a), ProbeKind::Groups);
+    a.roles.focal = "d";
+    EXPECT_EQ(probe_kind(t, a), ProbeKind::Cells);
+    a.roles.focal = "g";
+    a.roles.moderator = "z";
+    EXPECT_TRUE(contains(input_error([&] { probe_kind(t, a); }), "swap"));
+}
+
+TEST(RunAnalysis, SameModelAndSameProbe) {
+    const Analysis a = study_analysis();
+    // View settings: the same probe.
+    for (const auto& change : std::vector<std::function<void(Analysis&)>>{
+             [](Analysis& b) { b.name = "renamed"; },
+             [](Analysis& b) { b.probe.current = 11.5; },
+             [](Analysis& b) { b.probe.simultaneous_band = true; },
+             [](Analysis& b) { b.probe.show_points = false; },
+             [](Analysis& b) { b.figure.dpi = 150; },
+         }) {
+        Analysis b = a;
+        change(b);
+        EXPECT_TRUE(same_model(a, b));
+        EXPECT_TRUE(same_probe(a, b));
+    }
+    // Probe settings: the same model, another probe.
+    for (const auto& change : std::vector<std::function<void(Analysis&)>>{
+             [](Analysis& b) { b.probe.pinned = {9, 11}; },
+             [](Analysis& b) { b.probe.second_value = 0.5; },
+             [](Analysis& b) { b.probe.scale = "response"; },
+             [](Analysis& b) { b.probe.averaging = "values"; },
+         }) {
+        Analysis b = a;
+        change(b);
+        EXPECT_TRUE(same_model(a, b));
+        EXPECT_FALSE(same_probe(a, b));
+    }
+    // Model settings: another model.
+    for (const auto& change : std::vector<std::function<void(Analysis&)>>{
+             [](Analysis& b) { b.dataset = "other"; },
+             [](Analysis& b) { b.roles.controls.clear(); },
+             [](Analysis& b) { b.roles.weights = "wt"; },
+             [](Analysis& b) { b.family = Family::Logistic; },
+             [](Analysis& b) { b.se = SeKind::HC1; },
+             [](Analysis& b) { b.level = 0.99; },
+             [](Analysis& b) { b.centring = "mean"; },
+         }) {
+        Analysis b = a;
+        change(b);
+        EXPECT_FALSE(same_model(a, b));
+        EXPECT_FALSE(same_probe(a, b));
+    }
+    // NaN (the mean) equals NaN.
+    Analysis b = a;
+    b.probe.second_value = kNaN;
+    EXPECT_TRUE(same_probe(a, b));
+}
+
+TEST(RunAnalysis, ProbeOnlyRerunReusesTheFit) {
+    const auto table = std::make_shared<const Table>(study_table());
+    Analysis a = study_analysis();
+    AnalysisRun run = run_analysis(table, a);
+    ASSERT_TRUE(run.probe);
+    a.probe.pinned = {8.5, 12.25};
+    probe_analysis(run, a);
+    ASSERT_TRUE(run.probe);
+    ASSERT_EQ(run.probe->effects.size(), 2u);
+    // Conditional effect b1 + b3 m (closed form for a two-way product).
+    const double b1 = run.fit.beta[run.design.column_index("x")];
+    const double b3 = run.fit.beta[run.design.product_columns().front()];
+    EXPECT_NEAR(run.probe->effects[0].effect, b1 + b3 * 8.5, 1e-10);
+    EXPECT_NEAR(run.probe->effects[1].effect, b1 + b3 * 12.25, 1e-10);
+}
+
+TEST(RunAnalysis, MeanCentringMatchesTheClosedForm) {
+    const auto table = std::make_shared<const Table>(study_table());
+    Analysis a = study_analysis();
+    const AnalysisRun raw = run_analysis(table, a);
+    EXPECT_FALSE(raw.centred_fit.has_value());
+    a.centring = "mean";
+    const AnalysisRun run = run_analysis(table, a);
+    ASSERT_TRUE(run.centred_fit.has_value());
+    // The means over the rows the model uses (the control c is missing in some rows).
+    const Table& t = *table;
+    double sx = 0, sz = 0;
+    std::size_t n = 0;
+    for (std::size_t r = 0; r < t.rows(); ++r) {
+        if (std::isnan(t.find("c")->numbers[r])) continue;
+        sx += t.find("x")->numbers[r];
+        sz += t.find("z")->numbers[r];
+        ++n;
+    }
+    const double mx = sx / static_cast<double>(n), mz = sz / static_cast<double>(n);
+    ASSERT_LT(n, t.rows());
+    EXPECT_NEAR(run.centres.at("x"), mx, 1e-12 * std::abs(mx));
+    EXPECT_NEAR(run.centres.at("z"), mz, 1e-12 * std::abs(mz));
+    // Closed form: y = b0 + b1 x + b2 z + b3 x z + ... rewritten in x - mx, z - mz
+    // has product coefficient b3, focal coefficient b1 + b3 mz (the conditional
+    // effect of x at the moderator mean) and moderator coefficient b2 + b3 mx.
+    const FitResult& c = *run.centred_fit;
+    const auto coef = [](const FitResult& f, const std::string& term) {
+        const int k = f.index_of(term);
+        EXPECT_GE(k, 0) << term;
+        return k >= 0 ? f.coefficients[static_cast<std::size_t>(k)].estimate : kNaN;
+    };
+    const double b1 = coef(raw.fit, "x"), b2 = coef(raw.fit, "z"), b3 = coef(raw.fit, "x×z");
+    const double tol = 1e-9;
+    EXPECT_NEAR(coef(c, "x_centred×z_centred"), b3, tol);
+    EXPECT_NEAR(coef(c, "x_centred"), b1 + b3 * mz, tol);
+    EXPECT_NEAR(coef(c, "z_centred"), b2 + b3 * mx, tol);
+    EXPECT_NEAR(coef(c, "c"), coef(raw.fit, "c"), tol);
+    // The same fit: residual sum of squares and the probe are unchanged.
+    EXPECT_NEAR(c.rss, raw.fit.rss, 1e-9 * raw.fit.rss);
+    ASSERT_TRUE(run.probe && raw.probe);
+    EXPECT_NEAR(run.probe->effect_function.effect(mz), b1 + b3 * mz, 1e-9);
+    // 0/1 and categorical roles are not centred.
+    a.roles.moderator = "d";
+    const AnalysisRun groups = run_analysis(table, a);
+    EXPECT_EQ(groups.centres.count("d"), 0u);
+    EXPECT_EQ(groups.centres.count("x"), 1u);
+}
+
+TEST(ApplyRecipes, AddsColumnsInOrderAndNamesTheFailingRecipe) {
+    const Table t = study_table(20);
+    const std::vector<DerivedRecipe> recipes{{"study", "xc", "centre-value", "x", "", "", 3},
+                                             {"study", "xz", "product", "xc", "z", "", 0},
+                                             {"study", "north", "dummy", "g", "", "north", 0}};
+    const Table out = apply_recipes(t, recipes);
+    ASSERT_EQ(out.cols(), t.cols() + 3);
+    for (std::size_t r = 0; r < t.rows(); ++r) {
+        const double x = t.find("x")->numbers[r], z = t.find("z")->numbers[r];
+        EXPECT_DOUBLE_EQ(out.find("xc")->numbers[r], x - 3);              // closed form
+        EXPECT_DOUBLE_EQ(out.find("xz")->numbers[r], (x - 3) * z);        // closed form
+        EXPECT_EQ(out.find("north")->numbers[r], r % 3 == 0 ? 1.0 : 0.0);  // by construction of g
+    }
+    const std::string message =
+        input_error([&] { apply_recipes(t, {{"study", "lz", "log", "missing_col", "", "", 0}}); });
+    EXPECT_TRUE(contains(message, "'lz'")) << message;
+    EXPECT_TRUE(contains(message, "'missing_col'")) << message;
+    const std::string twice = input_error([&] { apply_recipes(t, {{"study", "x", "square", "z", "", "", 0}}); });
+    EXPECT_TRUE(contains(twice, "already has a column")) << twice;
+}
