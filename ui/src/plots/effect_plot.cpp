@@ -195,14 +195,22 @@ void EffectPlot::buildContinuous() {
     QPen boundaryPen(estuary::ink);
     boundaryPen.setWidthF(1.2);
     boundaryPen.setStyle(Qt::DashLine);
-    for (double b : d.boundaries) {
-        if (!std::isfinite(b) || b < d.axis.first || b > d.axis.second) continue;
+    std::vector<double> shown;
+    for (double b : d.boundaries)
+        if (std::isfinite(b) && b >= d.axis.first && b <= d.axis.second) shown.push_back(b);
+    const double span = d.axis.second - d.axis.first;
+    for (std::size_t k = 0; k < shown.size(); ++k) {
+        const double b = shown[k];
         verticalLine(plot_, b, boundaryPen);
         auto* t = new QCPItemText(plot_);
         t->position->setTypeX(QCPItemPosition::ptPlotCoords);
         t->position->setTypeY(QCPItemPosition::ptAxisRectRatio);
         t->position->setCoords(b, 0);
-        t->setPositionAlignment(Qt::AlignTop | Qt::AlignHCenter);
+        // Labels of close boundaries go to the outer side of their lines.
+        Qt::Alignment h = Qt::AlignHCenter;
+        if (k + 1 < shown.size() && shown[k + 1] - b < 0.1 * span) h = Qt::AlignRight;
+        else if (k > 0 && b - shown[k - 1] < 0.1 * span) h = Qt::AlignLeft;
+        t->setPositionAlignment(Qt::AlignTop | h);
         t->setText(formatNumber(b, 3));
         t->setFont(note);
         t->setColor(estuary::ink);
@@ -251,9 +259,11 @@ void EffectPlot::buildGroups() {
     setAxisTitle(plot_->yAxis, d.effectTitle);
 
     plot_->setCurrentLayer(kShadingLayer);
+    bool anySignificant = false, anyNotSignificant = false;
     for (int k = 0; k < L; ++k) {
         const auto& e = d.groupEffects[static_cast<std::size_t>(k)];
         const bool significant = e.ci_lower > 0 || e.ci_upper < 0;
+        (significant ? anySignificant : anyNotSignificant) = true;
         spanRect(plot_, k - 0.42, k + 0.42,
                  significant ? estuary::significanceBrush(greyscale_) : estuary::notSignificantBrush());
     }
@@ -268,7 +278,8 @@ void EffectPlot::buildGroups() {
         g->setPen(solid);
         g->setScatterStyle(QCPScatterStyle(static_cast<QCPScatterStyle::ScatterShape>(estuary::markerShape(k)), solid,
                                            QBrush(Qt::white), 10));
-        g->setName(k < static_cast<int>(d.groupNames.size()) ? d.groupNames[static_cast<std::size_t>(k)] : QString());
+        const auto& names = d.legendNames.empty() ? d.groupNames : d.legendNames;
+        g->setName(k < static_cast<int>(names.size()) ? names[static_cast<std::size_t>(k)] : QString());
         g->setData(QVector<double>{double(k)}, QVector<double>{e.effect});
         auto* bars = new QCPErrorBars(plot_->xAxis, plot_->yAxis);
         bars->removeFromLegend();
@@ -278,8 +289,8 @@ void EffectPlot::buildGroups() {
         bars->setWhiskerWidth(12);
         bars->setSelectable(QCP::stNone);
     }
-    legendSwatch(plot_, tr("interval excludes zero"), estuary::significanceBrush(greyscale_));
-    legendSwatch(plot_, tr("not significant"), estuary::notSignificantBrush());
+    if (anySignificant) legendSwatch(plot_, tr("interval excludes zero"), estuary::significanceBrush(greyscale_));
+    if (anyNotSignificant) legendSwatch(plot_, tr("not significant"), estuary::notSignificantBrush());
     QPen zeroPen(estuary::ink);
     auto* zero = new QCPItemStraightLine(plot_);
     zero->point1->setCoords(0, 0);
@@ -298,10 +309,11 @@ void EffectPlot::buildMoving() {
             p->setTypeX(QCPItemPosition::ptPlotCoords);
             p->setTypeY(QCPItemPosition::ptAxisRectRatio);
         }
-        QPen outline(estuary::ink);
-        outline.setWidthF(1.2);
+        QPen outline(estuary::withAlpha(estuary::ink, 0.55));
+        outline.setWidthF(1.0);
+        outline.setStyle(Qt::DashLine);
         groupHighlight_->setPen(outline);
-        groupHighlight_->setBrush(Qt::NoBrush);
+        groupHighlight_->setBrush(estuary::withAlpha(estuary::ink, 0.06));
         groupHighlight_->setSelectable(false);
     } else {
         handle_ = new QCPItemLine(plot_);
@@ -343,14 +355,15 @@ void EffectPlot::setCurrent(double m, const EffectPoint& at, bool replot) {
     currentPoint_ = at;
     if (!knob_ || !hasData_) return;
     if (data_.groups) {
-        groupHighlight_->topLeft->setCoords(m - 0.46, 0.0);
-        groupHighlight_->bottomRight->setCoords(m + 0.46, 1.0);
+        groupHighlight_->topLeft->setCoords(m - 0.45, 0.0);
+        groupHighlight_->bottomRight->setCoords(m + 0.45, 1.0);
     } else {
         handle_->start->setCoords(m, 0.0);
         handle_->end->setCoords(m, 1.0);
     }
     // No estimate yet (recomputed when the drag ends): the handle moves alone.
-    const bool known = std::isfinite(at.effect);
+    // Groups: the group's own marker and interval are the estimate; the frame marks the choice.
+    const bool known = std::isfinite(at.effect) && !data_.groups;
     whisker_->setVisible(known && std::isfinite(at.ci_lower) && std::isfinite(at.ci_upper));
     knob_->setVisible(known);
     if (known) {

@@ -43,7 +43,8 @@ struct EffectPlotData {
     std::pair<double, double> axis{0, 1};
     std::vector<double> rug;                // observed moderator values (decimated)
     // Groups.
-    std::vector<QString> groupNames;
+    std::vector<QString> groupNames;         // axis ticks
+    std::vector<QString> legendNames;        // legend entries ("shift = day"); empty: the group names
     std::vector<EffectPoint> groupEffects;
 };
 

@@ -124,8 +124,15 @@ void LinesPlot::drawPoints(double ylo, double yhi) {
         map->setDataRange(QCPRange(1.0, std::max(2.0, static_cast<double>(most))));
         map->setInterpolate(false);
         map->setSelectable(QCP::stNone);
-        if (data_.pointsByGroup || g > 0) map->removeFromLegend();
-        else map->setName(tr("observed rows (binned counts)"));
+        map->removeFromLegend();
+    }
+    // A colour map's own legend icon is a tiny copy of the map: a swatch reads better.
+    if (!data_.pointsByGroup) {
+        auto* swatch = new QCPBars(plot_->xAxis, plot_->yAxis);
+        swatch->setName(tr("observed rows (binned counts)"));
+        swatch->setBrush(estuary::withAlpha(estuary::ink, 0.45));
+        swatch->setPen(Qt::NoPen);
+        swatch->setSelectable(QCP::stNone);
     }
 }
 

@@ -7,6 +7,8 @@
 #include <QHeaderView>
 #include <QItemSelectionModel>
 #include <QLabel>
+#include <QScrollBar>
+#include <algorithm>
 #include <QTableView>
 #include <QToolButton>
 #include <QVBoxLayout>
@@ -46,7 +48,7 @@ QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
         case P: return formatP(e.p_value);
         case Lower: return formatNumber(e.ci_lower);
         case Upper: return formatNumber(e.ci_upper);
-        case Note: return e.beyond_data ? tr("beyond the data") : (r.pinned ? QString() : tr("default"));
+        case Note: return e.beyond_data ? tr("beyond the data") : QString();
         }
     }
     if (role == Qt::TextAlignmentRole)
@@ -110,11 +112,10 @@ PinnedTable::PinnedTable(QWidget* parent)
     view_->horizontalHeader()->setStretchLastSection(true);
     view_->setAlternatingRowColors(false);
     view_->setWordWrap(false);
-    view_->setMinimumHeight(110);
     view_->setFont(small);
     view_->horizontalHeader()->setFont(small);
     view_->verticalHeader()->setDefaultSectionSize(QFontMetrics(small).height() + 6);
-    layout->addWidget(view_, 1);
+    layout->addWidget(view_);
     auto* del = new QAction(this);
     del->setShortcuts({QKeySequence::Delete, QKeySequence(Qt::Key_Backspace)});
     del->setShortcutContext(Qt::WidgetShortcut);
@@ -123,8 +124,10 @@ PinnedTable::PinnedTable(QWidget* parent)
     connect(remove_, &QToolButton::clicked, this, &PinnedTable::removeSelected);
     connect(copy_, &QToolButton::clicked, this, [this] { QApplication::clipboard()->setText(tsv()); });
     connect(model_, &QAbstractItemModel::modelReset, this, &PinnedTable::updateButtons);
+    connect(model_, &QAbstractItemModel::modelReset, this, &PinnedTable::fitHeight);
     connect(view_->selectionModel(), &QItemSelectionModel::selectionChanged, this, &PinnedTable::updateButtons);
     updateButtons();
+    fitHeight();
 }
 
 void PinnedTable::setCaption(const QString& text) {
@@ -141,6 +144,14 @@ void PinnedTable::removeSelected() {
         if (r.pinned && r.pinIndex >= 0) pins.insert(r.pinIndex);
     }
     if (!pins.empty()) Q_EMIT removeRequested(std::vector<int>(pins.begin(), pins.end()));
+}
+
+void PinnedTable::fitHeight() {
+    // As tall as its rows (two to twelve of them), so the panel below stays close.
+    const int rows = std::clamp(model_->rowCount(), 2, 12);
+    const int h = view_->horizontalHeader()->sizeHint().height() + rows * view_->verticalHeader()->defaultSectionSize() +
+                  2 * view_->frameWidth() + view_->horizontalScrollBar()->sizeHint().height() + 2;
+    view_->setFixedHeight(h);
 }
 
 void PinnedTable::updateButtons() {

@@ -58,6 +58,7 @@ Q_SIGNALS:
 private:
     void removeSelected();
     void updateButtons();
+    void fitHeight();
 
     PinnedTableModel* model_;
     QTableView* view_;

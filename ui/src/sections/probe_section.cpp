@@ -147,7 +147,7 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     panelLayout->addWidget(summary_);
     panelLayout->addStretch(1);
     scroll->setWidget(panel);
-    scroll->setMinimumWidth(420);
+    scroll->setMinimumWidth(490);
     split->addWidget(left);
     split->addWidget(scroll);
     split->setStretchFactor(0, 1);
@@ -366,6 +366,7 @@ void ProbeSection::buildPlots() {
     if (groups) {
         for (std::size_t k = 0; k < engine_.groupNames().size(); ++k) {
             e.groupNames.push_back(q(engine_.groupNames()[k]));
+            e.legendNames.push_back(QStringLiteral("%1 = %2").arg(q(engine_.moderator()), q(engine_.groupNames()[k])));
             e.groupEffects.push_back(engine_.effectAt(static_cast<double>(k)));
         }
     } else {
@@ -505,7 +506,13 @@ void ProbeSection::fillSummary() {
                 line(tr("Where the %1 pointwise interval excludes zero (critical value %2).")
                          .arg(QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%'),
                               formatNumber(r->critical_value, 3)));
-            if (r->boundaries.empty()) line(r->significant.empty() ? tr("Significant nowhere.") : tr("Significant everywhere."));
+            if (r->boundaries.empty()) {
+                if (r->significant.empty()) line(tr("Significant nowhere."));
+                else if (std::isinf(r->significant.front().lo) && std::isinf(r->significant.front().hi))
+                    line(tr("Significant everywhere."));
+                else
+                    line(tr("Significant over the whole range examined."));
+            }
             for (double b : r->boundaries)
                 line(tr("Boundary at %1 = %2 — %3").arg(mod, formatNumber(b),
                                                       b < lo || b > hi ? tr("beyond the data (observed %1 to %2)")
