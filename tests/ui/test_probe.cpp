@@ -503,3 +503,44 @@ TEST(Probe, SurfaceToggleSwapsTheLinesPlotInTheFigures) {
     QTest::mouseClick(s->surfaceToggle(), Qt::LeftButton);
     EXPECT_EQ(keys(), (QStringList{QStringLiteral("lines"), QStringLiteral("effect")}));
 }
+
+TEST(Probe, AFailedAnalysisShowsItsReasonInsteadOfPlots) {
+    QTemporaryDir dir;
+    ASSERT_TRUE(dir.isValid());
+    const QString good = writeSignChangeProject(dir);
+    Project p = read_project_file(good.toStdString());
+    p.analyses.front().roles.moderator = "not_a_column";
+    const QString bad = dir.filePath(QStringLiteral("bad.moderato"));
+    write_project_file(p, bad.toStdString());
+    MainWindow w;
+    w.setInteractive(false);
+    ASSERT_TRUE(w.openProject(bad)) << w.lastMessage().toStdString();
+    const QString id = w.analysisPage()->analysisId();
+    ASSERT_TRUE(test::waitUntil([&] { return !w.runner()->error(id).isEmpty(); }));
+    ProbeSection* s = w.analysisPage()->probe();
+    EXPECT_TRUE(s->figures().isEmpty());
+    // The reason names the role and the column (source: core's message, shown as it is).
+    EXPECT_TRUE(s->readoutText().contains(QStringLiteral("not_a_column"))) << s->readoutText().toStdString();
+    EXPECT_TRUE(s->readoutText().contains(QStringLiteral("Moderator")));
+}
+
+TEST(Probe, GreyscaleFiguresDrawTheLinesInGrey) {
+    Window win(test::sampleProject(QStringLiteral("coffee-discount")));
+    LinesPlot* lines = win.section->linesPlot();
+    auto linePens = [&] {
+        std::vector<QColor> colours;
+        QCustomPlot* p = lines->figurePlot();
+        for (int i = 0; i < p->graphCount(); ++i)
+            if (!p->graph(i)->name().isEmpty() && p->graph(i)->lineStyle() != QCPGraph::lsNone)
+                colours.push_back(p->graph(i)->pen().color());
+        return colours;
+    };
+    bool anyColour = false;
+    for (const QColor& c : linePens()) anyColour |= !(c.red() == c.green() && c.green() == c.blue());
+    EXPECT_TRUE(anyColour);
+    lines->setGreyscale(true);
+    const auto grey = linePens();
+    ASSERT_FALSE(grey.empty());
+    for (const QColor& c : grey) EXPECT_TRUE(c.red() == c.green() && c.green() == c.blue()) << c.name().toStdString();
+    lines->setGreyscale(false);
+}

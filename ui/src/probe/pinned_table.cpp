@@ -56,6 +56,11 @@ QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
                                                                                      : Qt::AlignRight | Qt::AlignVCenter);
     if (role == Qt::ForegroundRole && index.column() == Note) return QColor(estuary::notSignificant).darker(140);
     if (role == Qt::BackgroundRole && e.beyond_data) return QColor(estuary::beyond);
+    if (role == Qt::FontRole && e.beyond_data) {
+        QFont f;
+        f.setItalic(true);
+        return f;
+    }
     if (role == Qt::ToolTipRole) {
         if (e.beyond_data) return tr("This value lies outside the observed range of the moderator: an extrapolation.");
         if (!r.pinned) return tr("Shown until you pin a value of your own");
@@ -64,6 +69,7 @@ QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
 }
 
 QVariant PinnedTableModel::headerData(int section, Qt::Orientation orientation, int role) const {
+    if (orientation == Qt::Horizontal && role == Qt::ToolTipRole && section == Value) return moderator_;
     if (orientation != Qt::Horizontal || role != Qt::DisplayRole) return {};
     switch (section) {
     case Value: return moderator_;
@@ -110,6 +116,9 @@ PinnedTable::PinnedTable(QWidget* parent)
     view_->verticalHeader()->hide();
     view_->horizontalHeader()->setSectionResizeMode(QHeaderView::ResizeToContents);
     view_->horizontalHeader()->setStretchLastSection(true);
+    // On screen a row beyond the data is shaded and in italics (the caption says
+    // so); the "beyond the data" column is kept for the copied text.
+    view_->setColumnHidden(PinnedTableModel::Note, true);
     view_->setAlternatingRowColors(false);
     view_->setWordWrap(false);
     view_->setFont(small);

@@ -147,12 +147,12 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     panelLayout->addWidget(summary_);
     panelLayout->addStretch(1);
     scroll->setWidget(panel);
-    scroll->setMinimumWidth(490);
+    scroll->setMinimumWidth(430);
     split->addWidget(left);
     split->addWidget(scroll);
     split->setStretchFactor(0, 1);
     split->setStretchFactor(1, 0);
-    split->setSizes({860, 500});
+    split->setSizes({860, 480});
     pages_->addWidget(split);
     pages_->addWidget(cells_);
     pages_->setCurrentIndex(MessagePage);
@@ -467,10 +467,19 @@ void ProbeSection::fillTable() {
                                     defaults ? -1 : static_cast<int>(k)};
             rows.push_back(r);
         }
-        pinned_->setCaption(defaults ? tr("Nothing pinned yet: shown at the mean of %1 and one SD either side. "
-                                          "Move the slider and press Pin to add your own values.")
-                                           .arg(mod)
-                                     : QString());
+        QString caption = defaults ? tr("Nothing pinned yet: shown at the mean of %1 and one SD either side. "
+                                        "Move the slider and press Pin to add your own values.")
+                                         .arg(mod)
+                                   : QString();
+        bool beyond = false;
+        for (const auto& e : p.effects) beyond |= e.beyond_data;
+        if (beyond) {
+            const auto [lo, hi] = engine_.observedRange();
+            caption += (caption.isEmpty() ? QString() : QStringLiteral(" ")) +
+                       tr("Shaded rows in italics lie beyond the data (%1 observed from %2 to %3).")
+                           .arg(mod, formatNumber(lo), formatNumber(hi));
+        }
+        pinned_->setCaption(caption);
     }
     const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
     pinned_->model()->setRows(std::move(rows), mod, statisticName(p.df), level);
