@@ -218,6 +218,9 @@ def main():
     parser.add_argument("--extras", action="store_true",
                         help="also time moderato-cli with --threads 1, and statsmodels with the inherited "
                              "OPENBLAS_* variables (information only)")
+    parser.add_argument("--drag", action="store_true",
+                        help="also run BUILD/tests/benchmarks/moderato_bench_drag (frame time of a moderator drag "
+                             "in the Probe section, buffered layer against a full replot) and add it to the report")
     args = parser.parse_args()
     if args.repeats < 1:
         die("--repeats must be at least 1")
@@ -443,6 +446,21 @@ def main():
         lines.append("")
         lines.append("Workbench open benchmark not run: {} is not built (a Qt build with benchmarks)".format(bench_open))
 
+    drag = None
+    if args.drag:
+        drag_bin = build / "tests" / "benchmarks" / "moderato_bench_drag"
+        if not drag_bin.is_file():
+            die("no moderato_bench_drag at {} (configure with MODERATO_BUILD_GUI=ON and build it)".format(drag_bin))
+        drag_json = scratch / "drag_results.json"
+        out = subprocess.run([str(drag_bin), "--json", str(drag_json)], capture_output=True, text=True)
+        if out.returncode != 0:
+            die("moderato_bench_drag failed:\n" + out.stdout + out.stderr)
+        drag = json.loads(drag_json.read_text())
+        lines.append("")
+        lines.append("Probe section drag ({} rows, {} frames): layered frame median {:.2f} ms, p95 {:.2f} ms "
+                     "(targets 8 and 16); full replot of both plots median {:.2f} ms; ratio full / layered {:.2f}"
+                     .format(drag["rows"], drag["frames"], drag["layered_ms"]["median"], drag["layered_ms"]["p95"],
+                             drag["full_ms"]["median"], drag["ratio_median"]))
     report = "\n".join(lines)
     print()
     print(report)
@@ -453,7 +471,7 @@ def main():
               "ratios_info": ratios_info, "agreement": agreement, "statsmodels_inprocess": ref_inproc,
               "pandas_inprocess": load_inproc, "workbench_open": workbench_open,
               "reference_blas": blas, "versions": {k: ref[k] for k in ("numpy", "pandas", "statsmodels")},
-              "markdown": report}
+              "drag": drag, "markdown": report}
     json_path = Path(args.json) if args.json else scratch / "benchmark_results.json"
     tmp_json = json_path.with_name(json_path.name + ".tmp")
     tmp_json.write_text(json.dumps(result, indent=2) + "\n")

@@ -1,18 +1,694 @@
-// Placeholder until the section is built (issue #4, in progress).
 #include "sections/probe_section.hpp"
 
+#include <QCheckBox>
+#include <QComboBox>
+#include <QHBoxLayout>
 #include <QLabel>
+#include <QLocale>
+#include <QScrollArea>
+#include <QSlider>
+#include <QSplitter>
+#include <QStackedWidget>
+#include <QToolButton>
 #include <QVBoxLayout>
+#include <algorithm>
+#include <cmath>
+#include <optional>
+
+#include "model/project_document.hpp"
+#include "plots/cells_view.hpp"
+#include "plots/effect_plot.hpp"
+#include "plots/lines_plot.hpp"
+#include "plots/surface_plot.hpp"
+#include "probe/moderator_slider.hpp"
+#include "probe/number_format.hpp"
+#include "probe/pinned_table.hpp"
+#include "probe/readout_panel.hpp"
+#include "shell/figure_caption.hpp"
 
 namespace moderato::ui {
 
-ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent) : AnalysisSection(doc, parent), label_(new QLabel(this)) {
-    auto* layout = new QVBoxLayout(this);
-    layout->addWidget(label_);
+namespace {
+
+enum Page { MessagePage = 0, ProbePage = 1, CellsPage = 2 };
+
+QString q(const std::string& s) { return QString::fromStdString(s); }
+
+QLabel* plotTitle(QWidget* parent) {
+    auto* l = new QLabel(parent);
+    l->setTextFormat(Qt::RichText);
+    l->setContentsMargins(4, 2, 4, 0);
+    return l;
 }
 
-void ProbeSection::showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun>, const QString& error) {
-    label_->setText(error.isEmpty() ? id : error);
+QString escaped(const QString& s) { return s.toHtmlEscaped(); }
+
+bool sameNumber(double a, double b) { return a == b || (std::isnan(a) && std::isnan(b)); }
+
+}  // namespace
+
+ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
+    : AnalysisSection(doc, parent), pages_(new QStackedWidget(this)), message_(new QLabel(this)),
+      band_(new QComboBox(this)), points_(new QCheckBox(tr("Data points"), this)), scaleLabel_(new QLabel(tr("Scale"), this)),
+      scale_(new QComboBox(this)), averaging_(new QComboBox(this)), surfaceToggle_(new QToolButton(this)),
+      linesTitle_(plotTitle(this)), effectTitle_(plotTitle(this)), linesStack_(new QStackedWidget(this)),
+      lines_(new LinesPlot(this)), surface_(new SurfacePlot(this)), effect_(new EffectPlot(this)),
+      cells_(new CellsView(this)), slider_(new ModeratorSlider(this)), readout_(new ReadoutPanel(this)),
+      pinned_(new PinnedTable(this)), summary_(new QLabel(this)) {
+    auto* outer = new QVBoxLayout(this);
+    outer->setContentsMargins(0, 0, 0, 0);
+    outer->addWidget(pages_);
+
+    message_->setWordWrap(true);
+    message_->setAlignment(Qt::AlignCenter);
+    message_->setObjectName(QStringLiteral("probe-message"));
+    message_->setContentsMargins(40, 40, 40, 40);
+    pages_->addWidget(message_);
+
+    // The probe page: plots and slider on the left, readout and tables on the right.
+    auto* split = new QSplitter(Qt::Horizontal, this);
+    split->setChildrenCollapsible(false);
+    auto* left = new QWidget(split);
+    auto* leftLayout = new QVBoxLayout(left);
+    leftLayout->setContentsMargins(0, 0, 4, 0);
+    leftLayout->setSpacing(4);
+
+    auto* controls = new QHBoxLayout;
+    controls->setSpacing(8);
+    band_->setObjectName(QStringLiteral("band-choice"));
+    band_->addItem(tr("Pointwise band"), false);
+    band_->addItem(tr("Simultaneous band"), true);
+    band_->setToolTip(tr("Pointwise: each moderator value tested on its own. Simultaneous: a band that covers the "
+                         "whole effect curve at once (Potthoff), so the region of significance does not pick up "
+                         "false values from testing many moderator values."));
+    controls->addWidget(band_);
+    points_->setObjectName(QStringLiteral("points-toggle"));
+    points_->setToolTip(tr("Show the observed rows on the Lines plot (binned into counts above 20,000 rows)"));
+    controls->addWidget(points_);
+    controls->addSpacing(8);
+    controls->addWidget(scaleLabel_);
+    scale_->setObjectName(QStringLiteral("scale-choice"));
+    scale_->addItem(tr("log-odds"), QStringLiteral("link"));
+    scale_->addItem(tr("probability"), QStringLiteral("response"));
+    scale_->setToolTip(tr("Effects on the log-odds of the outcome, or on the probability that it is 1"));
+    controls->addWidget(scale_);
+    averaging_->setObjectName(QStringLiteral("averaging-choice"));
+    averaging_->addItem(tr("averaged over the rows"), QStringLiteral("sample"));
+    averaging_->addItem(tr("at the means"), QStringLiteral("values"));
+    averaging_->setToolTip(tr("Probability-scale effects averaged over every observed row, or at one profile with "
+                              "the other predictors at their means and reference levels"));
+    controls->addWidget(averaging_);
+    controls->addStretch(1);
+    surfaceToggle_->setObjectName(QStringLiteral("surface-toggle"));
+    surfaceToggle_->setText(tr("Surface plot"));
+    surfaceToggle_->setCheckable(true);
+    surfaceToggle_->setToolTip(tr("Show the predicted outcome over both predictors in place of the Lines plot"));
+    controls->addWidget(surfaceToggle_);
+    leftLayout->addLayout(controls);
+
+    auto* plots = new QSplitter(Qt::Vertical, left);
+    plots->setChildrenCollapsible(false);
+    auto* linesBox = new QWidget(plots);
+    auto* linesLayout = new QVBoxLayout(linesBox);
+    linesLayout->setContentsMargins(0, 0, 0, 0);
+    linesLayout->setSpacing(0);
+    linesLayout->addWidget(linesTitle_);
+    linesStack_->addWidget(lines_);
+    linesStack_->addWidget(surface_);
+    linesLayout->addWidget(linesStack_, 1);
+    auto* effectBox = new QWidget(plots);
+    auto* effectLayout = new QVBoxLayout(effectBox);
+    effectLayout->setContentsMargins(0, 0, 0, 0);
+    effectLayout->setSpacing(0);
+    effectLayout->addWidget(effectTitle_);
+    effectLayout->addWidget(effect_, 1);
+    plots->addWidget(linesBox);
+    plots->addWidget(effectBox);
+    plots->setStretchFactor(0, 1);
+    plots->setStretchFactor(1, 1);
+    leftLayout->addWidget(plots, 1);
+    leftLayout->addWidget(slider_);
+
+    auto* scroll = new QScrollArea(split);
+    scroll->setWidgetResizable(true);
+    scroll->setFrameShape(QFrame::NoFrame);
+    scroll->setHorizontalScrollBarPolicy(Qt::ScrollBarAlwaysOff);
+    auto* panel = new QWidget(scroll);
+    auto* panelLayout = new QVBoxLayout(panel);
+    panelLayout->setContentsMargins(6, 0, 6, 6);
+    panelLayout->setSpacing(10);
+    panelLayout->addWidget(readout_);
+    panelLayout->addWidget(pinned_);
+    summary_->setObjectName(QStringLiteral("probe-summary"));
+    summary_->setWordWrap(true);
+    summary_->setTextFormat(Qt::RichText);
+    summary_->setAlignment(Qt::AlignTop | Qt::AlignLeft);
+    summary_->setTextInteractionFlags(Qt::TextSelectableByMouse);
+    panelLayout->addWidget(summary_);
+    panelLayout->addStretch(1);
+    scroll->setWidget(panel);
+    scroll->setMinimumWidth(430);
+    split->addWidget(left);
+    split->addWidget(scroll);
+    split->setStretchFactor(0, 1);
+    split->setStretchFactor(1, 0);
+    split->setSizes({860, 480});
+    pages_->addWidget(split);
+    pages_->addWidget(cells_);
+    pages_->setCurrentIndex(MessagePage);
+
+    // Moving the moderator: every frame recomputes and redraws the moving layers.
+    connect(effect_, &EffectPlot::valueDragged, this, [this](double m) { moveTo(m, true); });
+    connect(effect_, &EffectPlot::dragFinished, this, [this](double m) {
+        moveTo(m, false);
+        commitCurrent(m, false);
+    });
+    connect(slider_, &ModeratorSlider::valueMoved, this, [this](double m) { moveTo(m, slider_->slider()->isSliderDown()); });
+    connect(slider_, &ModeratorSlider::valueCommitted, this, [this](double m, bool keyboard) {
+        if (!engine_.effectIsCheap()) moveTo(m, false);
+        commitCurrent(m, keyboard);
+    });
+    connect(slider_, &ModeratorSlider::presetRequested, this, &ProbeSection::applyPreset);
+    connect(slider_, &ModeratorSlider::pinRequested, this, &ProbeSection::pinCurrentValue);
+    connect(pinned_, &PinnedTable::removeRequested, this, &ProbeSection::removePinned);
+
+    // Settings (each an undoable edit).
+    connect(band_, &QComboBox::activated, this, [this](int i) {
+        const bool on = band_->itemData(i).toBool();
+        editSettings([on](ProbeSettings& p) { p.simultaneous_band = on; },
+                     on ? tr("Show the simultaneous band") : tr("Show the pointwise band"));
+    });
+    connect(points_, &QCheckBox::toggled, this, [this](bool on) {
+        if (rebuilding_) return;
+        editSettings([on](ProbeSettings& p) { p.show_points = on; }, on ? tr("Show data points") : tr("Hide data points"));
+    });
+    connect(scale_, &QComboBox::activated, this, [this](int i) {
+        const std::string s = scale_->itemData(i).toString().toStdString();
+        editSettings([s](ProbeSettings& p) { p.scale = s; },
+                     s == "response" ? tr("Probe on the probability scale") : tr("Probe on the log-odds scale"));
+    });
+    connect(averaging_, &QComboBox::activated, this, [this](int i) {
+        const std::string s = averaging_->itemData(i).toString().toStdString();
+        editSettings([s](ProbeSettings& p) { p.averaging = s; }, tr("Change how probability effects are averaged"));
+    });
+    connect(surfaceToggle_, &QToolButton::toggled, this, [this](bool on) {
+        linesStack_->setCurrentIndex(on ? 1 : 0);
+        fillReadoutContext();
+    });
+    connect(doc_, &ProjectDocument::analysisChanged, this, &ProbeSection::onDocumentChanged);
+}
+
+QSlider* ProbeSection::slider() const { return slider_->slider(); }
+
+QList<FigureSource*> ProbeSection::figures() {
+    if (pages_->currentIndex() == CellsPage) return {cells_};
+    if (pages_->currentIndex() != ProbePage) return {};
+    if (surfaceToggle_->isChecked()) return {surface_, effect_};
+    return {lines_, effect_};
+}
+
+EffectPoint ProbeSection::currentEffect() const { return readout_->point(); }
+QString ProbeSection::readoutText() const { return readout_->text(); }
+
+void ProbeSection::showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun> run, const QString& error) {
+    const Analysis* a = doc_->analysis(id);
+    if (id == id_ && run == run_ && error == error_ && a && *a == shown_) return;
+    if (id != id_) surfaceToggle_->setChecked(false);
+    id_ = id;
+    run_ = std::move(run);
+    error_ = error;
+    rebuild();
+}
+
+void ProbeSection::showMessage(const QString& text) {
+    engine_ = ProbeEngine();
+    message_->setText(text);
+    pages_->setCurrentIndex(MessagePage);
+    lines_->clear();
+    effect_->clear();
+    readout_->clear(text);
+}
+
+void ProbeSection::rebuild() {
+    const Analysis* a = doc_->analysis(id_);
+    if (!a) {
+        showMessage(tr("No analysis selected."));
+        return;
+    }
+    shown_ = *a;
+    if (!run_) {
+        showMessage(error_.isEmpty() ? tr("Fitting…") : error_);
+        return;
+    }
+    if (run_->kind == ProbeKind::Cells) {
+        engine_ = ProbeEngine();
+        cells_->setRun(*a, *run_);
+        pages_->setCurrentIndex(CellsPage);
+        return;
+    }
+    if (!run_->probe) {
+        showMessage(tr("This analysis has no probe to show."));
+        return;
+    }
+    rebuilding_ = true;
+    engine_ = ProbeEngine(run_, *a);
+    pages_->setCurrentIndex(ProbePage);
+
+    const ProbeSettings& ps = a->probe;
+    const bool logistic = engine_.logistic();
+    band_->setCurrentIndex(simultaneousShown() ? 1 : 0);
+    band_->setEnabled(engine_.hasSimultaneous());
+    band_->setVisible(!engine_.groups());
+    band_->setToolTip(engine_.hasSimultaneous()
+                          ? band_->toolTip()
+                          : tr("No simultaneous band here: on the probability scale the effect is not linear in the "
+                               "coefficients"));
+    points_->setChecked(ps.show_points);
+    points_->setEnabled(!logistic || engine_.probability());
+    scaleLabel_->setVisible(logistic);
+    scale_->setVisible(logistic);
+    scale_->setCurrentIndex(engine_.probability() ? 1 : 0);
+    averaging_->setVisible(logistic && engine_.probability());
+    averaging_->setCurrentIndex(ps.averaging == "values" ? 1 : 0);
+    const bool surfaceOk = run_->surface.has_value();
+    surfaceToggle_->setVisible(surfaceOk);
+    if (!surfaceOk) surfaceToggle_->setChecked(false);
+    if (surfaceOk) surface_->setRun(*a, *run_);
+    linesStack_->setCurrentIndex(surfaceToggle_->isChecked() ? 1 : 0);
+
+    if (engine_.groups()) {
+        QStringList names;
+        for (const auto& g : engine_.groupNames()) names << q(g);
+        slider_->setGroups(q(engine_.moderator()), names);
+    } else {
+        const auto [lo, hi] = engine_.observedRange();
+        const auto [alo, ahi] = engine_.axisRange();
+        slider_->setContinuous(q(engine_.moderator()), lo, hi, alo, ahi);
+    }
+    double m = std::isnan(ps.current) ? engine_.defaultValue() : ps.current;
+    if (engine_.groups())
+        m = std::clamp(std::round(m), 0.0, static_cast<double>(engine_.groupNames().size()) - 1);
+    current_ = m;
+
+    fillReadoutContext();
+    buildPlots();
+    fillTable();
+    fillSummary();
+    rebuilding_ = false;
+    moveTo(current_, false);
+}
+
+bool ProbeSection::simultaneousShown() const {
+    return shown_.probe.simultaneous_band && engine_.valid() && engine_.hasSimultaneous();
+}
+
+QString ProbeSection::effectTitle() const {
+    const QString f = q(engine_.focal()), y = q(engine_.outcome());
+    if (engine_.probability()) return tr("Effect of %1 on P(%2 = 1)").arg(f, y);
+    if (engine_.logistic()) return tr("Effect of %1 on the log-odds of %2").arg(f, y);
+    return tr("Effect of %1 on %2").arg(f, y);
+}
+
+QString ProbeSection::moderatorLabel(double m) const {
+    if (engine_.groups()) {
+        const auto& names = engine_.groupNames();
+        const std::size_t k = static_cast<std::size_t>(std::clamp(std::lround(m), 0L, static_cast<long>(names.size()) - 1));
+        return QStringLiteral("%1 = %2").arg(q(engine_.moderator()), q(names[k]));
+    }
+    return QStringLiteral("%1 = %2").arg(q(engine_.moderator()), formatNumber(m));
+}
+
+void ProbeSection::fillReadoutContext() {
+    if (!engine_.valid()) return;
+    const ProbeResult& p = engine_.probe();
+    const Analysis& a = shown_;
+    const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
+    QString scale;
+    if (engine_.probability())
+        scale = p.averaging == "values" ? tr("Probability scale, other predictors at their means")
+                                        : tr("Probability scale, averaged over the observed rows");
+    else if (engine_.logistic())
+        scale = tr("Log-odds scale");
+    else
+        scale = tr("Outcome scale");
+    QString statement = tr("%1 · %2 SEs · %3 pointwise interval").arg(scale, seDescription(a, *run_), level);
+    if (simultaneousShown())
+        statement += tr(" · band: %1 simultaneous (critical value %2)")
+                         .arg(level, formatNumber(p.simultaneous->critical_value, 3));
+    statement += tr(" · n = %1").arg(QLocale(QLocale::English).toString(static_cast<qulonglong>(run_->fit.n)));
+    readout_->setContext(effectTitle(), statisticName(p.df), tr("%1 CI").arg(level), statement);
+
+    const QString f = escaped(q(engine_.focal())), y = escaped(q(engine_.outcome())), mod = escaped(q(engine_.moderator()));
+    const QString yWhat = engine_.probability() ? tr("P(%1 = 1)").arg(y) : engine_.logistic() ? tr("log-odds of %1").arg(y) : y;
+    if (surfaceToggle_->isChecked())
+        linesTitle_->setText(tr("<b>Surface plot</b> &nbsp;<span style='color:gray'>predicted %1 over %2 and %3</span>")
+                                 .arg(yWhat, f, mod));
+    else
+        linesTitle_->setText(tr("<b>Lines plot</b> &nbsp;<span style='color:gray'>predicted %1 against %2, one line per %3</span>")
+                                 .arg(yWhat, f, engine_.groups() ? tr("group of %1").arg(mod) : tr("value of %1").arg(mod)));
+    effectTitle_->setText(
+        tr("<b>Effect plot</b> &nbsp;<span style='color:gray'>effect of %1 against %2 · drag to move the moderator</span>")
+            .arg(f, mod));
+}
+
+void ProbeSection::buildPlots() {
+    const ProbeResult& p = engine_.probe();
+    const bool groups = engine_.groups();
+    const bool sim = simultaneousShown();
+    const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
+    const QString y = q(engine_.outcome());
+
+    // Effect plot.
+    EffectPlotData e;
+    e.groups = groups;
+    e.moderatorTitle = q(engine_.moderator());
+    e.effectTitle = effectTitle();
+    if (groups) {
+        for (std::size_t k = 0; k < engine_.groupNames().size(); ++k) {
+            e.groupNames.push_back(q(engine_.groupNames()[k]));
+            e.legendNames.push_back(QStringLiteral("%1 = %2").arg(q(engine_.moderator()), q(engine_.groupNames()[k])));
+            e.groupEffects.push_back(engine_.effectAt(static_cast<double>(k)));
+        }
+    } else {
+        e.curve = engine_.effectCurve(sim);
+        e.bandName = sim ? tr("%1 simultaneous band").arg(level) : tr("%1 pointwise band").arg(level);
+        if (const SignificanceRegions* r = engine_.regions(sim)) {
+            e.significant = r->significant;
+            e.boundaries = r->boundaries;
+        }
+        e.observed = engine_.observedRange();
+        e.axis = engine_.axisRange();
+        e.rug = engine_.rug(2000);
+    }
+    effect_->setData(e);
+
+    // Lines plot.
+    LinesPlotData l;
+    l.focalTitle = q(engine_.focal());
+    l.outcomeTitle = engine_.probability() ? tr("P(%1 = 1)").arg(y) : engine_.logistic() ? tr("log-odds of %1").arg(y) : y;
+    l.xRange = engine_.focalRange();
+    const double xw = l.xRange.second - l.xRange.first;
+    l.xRange = {l.xRange.first - 0.02 * xw, l.xRange.second + 0.02 * xw};
+    groupLines_.clear();
+    const QString mod = q(engine_.moderator());
+    if (groups) {
+        for (std::size_t k = 0; k < engine_.groupNames().size(); ++k) {
+            groupLines_.push_back(engine_.lineAt(engine_.groupValues()[k]));
+            l.lines.push_back({QStringLiteral("%1 = %2").arg(mod, q(engine_.groupNames()[k])), groupLines_.back(),
+                               static_cast<int>(k)});
+        }
+    } else {
+        const bool defaults = shown_.probe.pinned.empty();
+        const char* defaultNames[] = {QT_TR_NOOP("mean − 1 SD"), QT_TR_NOOP("mean"), QT_TR_NOOP("mean + 1 SD")};
+        int k = 0;
+        for (const auto& ef : p.effects) {
+            QString name = QStringLiteral("%1 = %2").arg(mod, formatNumber(ef.moderator_value));
+            if (defaults && p.effects.size() == 3) name += QStringLiteral(" (%1)").arg(tr(defaultNames[k]));
+            if (ef.beyond_data) name += tr(" (beyond the data)");
+            l.lines.push_back({name, engine_.lineAt(ef.moderator_value), k});
+            ++k;
+        }
+        l.highlightName = tr("at the slider's value");
+        for (double m : {engine_.axisRange().first, engine_.axisRange().second})
+            for (CurvePoint c : engine_.lineAt(m, 3)) {
+                c.lower = c.upper = c.estimate;  // keep the slider's line in view, not its whole band
+                l.yExtent.push_back(c);
+            }
+    }
+    l.showPoints = shown_.probe.show_points && (!engine_.logistic() || engine_.probability());
+    if (l.showPoints) {
+        l.pointsX = engine_.pointsX();
+        l.pointsY = engine_.pointsY();
+        l.pointsGroup = engine_.pointsGroup();
+        l.pointsByGroup = groups;
+    }
+    // Crossover points inside the data.
+    const auto [flo, fhi] = engine_.focalRange();
+    l.crossingName = tr("lines cross (%1 interval)").arg(level);
+    for (std::size_t c = 0; c < p.crossovers.size(); ++c) {
+        const Crossover& x = p.crossovers[c];
+        if (!std::isfinite(x.focal_value) || x.focal_value < flo || x.focal_value > fhi) continue;
+        // The lines meet here; any of the two gives the height (the first group of the pair, or the mean).
+        double at = engine_.defaultValue();
+        if (groups) {
+            std::size_t pair = 0;
+            const std::size_t L = engine_.groupValues().size();
+            for (std::size_t a = 0; a < L; ++a)
+                for (std::size_t b = a + 1; b < L; ++b, ++pair)
+                    if (pair == c) at = engine_.groupValues()[a];
+        }
+        const auto pt = prediction_line(run_->design, run_->fit, engine_.focal(), engine_.heldValues(at),
+                                        {x.focal_value}, engine_.probability());
+        LinesPlotData::Crossing cr;
+        cr.x = x.focal_value;
+        cr.y = pt.front().estimate;
+        cr.bounded = x.ci_kind == "bounded";
+        cr.lower = x.ci_lower;
+        cr.upper = x.ci_upper;
+        l.crossings.push_back(cr);
+    }
+    lines_->setData(l);
+}
+
+void ProbeSection::fillTable() {
+    const ProbeResult& p = engine_.probe();
+    std::vector<PinnedTableModel::Row> rows;
+    const QString mod = q(engine_.moderator());
+    if (engine_.groups()) {
+        for (std::size_t k = 0; k < p.effects.size(); ++k)
+            rows.push_back({q(k < engine_.groupNames().size() ? engine_.groupNames()[k] : p.effects[k].level),
+                            p.effects[k], false, -1});
+        pinned_->setCaption(tr("The effect of %1 in each group of %2.").arg(q(engine_.focal()), mod));
+    } else {
+        const auto& pins = shown_.probe.pinned;
+        const bool defaults = pins.empty();
+        for (std::size_t k = 0; k < p.effects.size(); ++k) {
+            PinnedTableModel::Row r{formatNumber(p.effects[k].moderator_value), p.effects[k], !defaults,
+                                    defaults ? -1 : static_cast<int>(k)};
+            rows.push_back(r);
+        }
+        QString caption = defaults ? tr("Nothing pinned yet: shown at the mean of %1 and one SD either side. "
+                                        "Move the slider and press Pin to add your own values.")
+                                         .arg(mod)
+                                   : QString();
+        bool beyond = false;
+        for (const auto& e : p.effects) beyond |= e.beyond_data;
+        if (beyond) {
+            const auto [lo, hi] = engine_.observedRange();
+            caption += (caption.isEmpty() ? QString() : QStringLiteral(" ")) +
+                       tr("Shaded rows in italics lie beyond the data (%1 observed from %2 to %3).")
+                           .arg(mod, formatNumber(lo), formatNumber(hi));
+        }
+        pinned_->setCaption(caption);
+    }
+    const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
+    pinned_->model()->setRows(std::move(rows), mod, statisticName(p.df), level);
+}
+
+void ProbeSection::fillSummary() {
+    const ProbeResult& p = engine_.probe();
+    QStringList html, plain;
+    const QString mod = q(engine_.moderator());
+    const auto [lo, hi] = engine_.observedRange();
+    auto section = [&](const QString& title) {
+        html << QStringLiteral("<p style='margin-top:6px'><b>%1</b><br>").arg(escaped(title));
+        plain << title;
+    };
+    auto line = [&](const QString& text) {
+        html << escaped(text) + QStringLiteral("<br>");
+        plain << text;
+    };
+    auto end = [&] { html << QStringLiteral("</p>"); };
+
+    if (!engine_.groups()) {
+        const bool sim = simultaneousShown();
+        const SignificanceRegions* r = engine_.regions(sim);
+        section(sim ? tr("Region of significance (simultaneous band)") : tr("Region of significance (Johnson–Neyman)"));
+        if (!r) {
+            for (const auto& n : p.notes)
+                if (n.find("no region of significance") != std::string::npos) line(q(n));
+        } else {
+            if (sim)
+                line(tr("Where the whole simultaneous band excludes zero (critical value %1).")
+                         .arg(formatNumber(r->critical_value, 3)));
+            else
+                line(tr("Where the %1 pointwise interval excludes zero (critical value %2).")
+                         .arg(QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%'),
+                              formatNumber(r->critical_value, 3)));
+            if (r->boundaries.empty()) {
+                if (r->significant.empty()) line(tr("Significant nowhere."));
+                else if (std::isinf(r->significant.front().lo) && std::isinf(r->significant.front().hi))
+                    line(tr("Significant everywhere."));
+                else
+                    line(tr("Significant over the whole range examined."));
+            }
+            for (double b : r->boundaries)
+                line(tr("Boundary at %1 = %2 — %3").arg(mod, formatNumber(b),
+                                                      b < lo || b > hi ? tr("beyond the data (observed %1 to %2)")
+                                                                             .arg(formatNumber(lo), formatNumber(hi))
+                                                                       : tr("inside the observed range")));
+            QStringList regions;
+            for (const Region& g : r->significant)
+                regions << tr("%1 to %2").arg(formatNumber(g.lo), formatNumber(g.hi));
+            if (!regions.isEmpty()) line(tr("Significant for %1 in: %2").arg(mod, regions.join(QStringLiteral("; "))));
+        }
+        end();
+    }
+
+    section(tr("Crossover point"));
+    bool any = false;
+    for (const Crossover& c : p.crossovers) {
+        if (!std::isfinite(c.focal_value)) continue;
+        any = true;
+        QString interval;
+        if (c.ci_kind == "bounded") interval = tr("interval %1 to %2").arg(formatNumber(c.ci_lower), formatNumber(c.ci_upper));
+        else if (c.ci_kind == "unbounded")
+            interval = tr("interval unbounded: below %1 and above %2").arg(formatNumber(c.ci_lower), formatNumber(c.ci_upper));
+        else if (c.ci_kind == "whole line") interval = tr("the interval is the whole line");
+        const auto [flo, fhi] = engine_.focalRange();
+        line(tr("%1: the lines cross at %2 = %3 (%4), %5.")
+                 .arg(q(c.groups), q(engine_.focal()), formatNumber(c.focal_value), interval,
+                      c.within_observed_range ? tr("inside the data") : tr("beyond the data (observed %1 to %2)")
+                                                                            .arg(formatNumber(flo), formatNumber(fhi))));
+    }
+    if (!any) line(tr("The lines are parallel: they do not cross."));
+    end();
+
+    if (p.interaction_effect) {
+        const auto& ie = *p.interaction_effect;
+        section(tr("Interaction on the probability scale"));
+        line(tr("%1: %2 (SE %3, %4 to %5, p %6)")
+                 .arg(q(ie.kind), formatNumber(ie.estimate), formatNumber(ie.std_error), formatNumber(ie.ci_lower),
+                      formatNumber(ie.ci_upper), formatP(ie.p_value)));
+        end();
+    }
+
+    section(tr("Cautions"));
+    for (const auto& c : run_->cautions) line(QStringLiteral("• ") + q(c));
+    end();
+    if (!p.notes.empty()) {
+        section(tr("Notes"));
+        for (const auto& n : p.notes) line(QStringLiteral("• ") + q(n));
+        end();
+    }
+    summary_->setText(html.join(QString()));
+    summaryPlain_ = plain.join(QLatin1Char('\n'));
+}
+
+void ProbeSection::moveTo(double m, bool live) {
+    if (!engine_.valid()) return;
+    current_ = m;
+    const bool compute = !live || engine_.effectIsCheap();
+    if (compute) point_ = engine_.effectAt(m);
+    EffectPoint shown = point_;
+    std::optional<std::pair<double, double>> band;
+    if (simultaneousShown() && compute) {
+        const auto b = effect_band(engine_.probe().effect_function, {m}, engine_.probe().simultaneous->critical_value);
+        band = std::make_pair(b.front().lower, b.front().upper);
+        shown.ci_lower = band->first;  // the handle's bar shows the band that is drawn
+        shown.ci_upper = band->second;
+    }
+    if (compute) effect_->setCurrent(m, shown, true);
+    else {
+        EffectPoint moving = shown;
+        moving.effect = std::nan("");
+        effect_->setCurrent(m, moving, true);
+    }
+    if (engine_.groups()) {
+        const std::size_t k = static_cast<std::size_t>(std::lround(m));
+        lines_->setHighlight(k < groupLines_.size() ? groupLines_[k] : std::vector<CurvePoint>{}, static_cast<int>(k), true);
+    } else {
+        lines_->setHighlight(engine_.lineAt(m, engine_.probability() ? 61 : 21), -1, true);
+    }
+    readout_->setPoint(moderatorLabel(m), point_, band, !compute);
+    slider_->setValue(m);
+}
+
+void ProbeSection::commitCurrent(double m, bool mergeWithPrevious) {
+    if (!engine_.valid()) return;
+    const Analysis* a = doc_->analysis(id_);
+    if (!a) return;
+    if (!mergeWithPrevious || !lastWasKeyboard_) ++gesture_;
+    lastWasKeyboard_ = mergeWithPrevious;
+    if (sameNumber(a->probe.current, m)) return;
+    Analysis after = *a;
+    after.probe.current = m;
+    shown_.probe.current = m;
+    doc_->setAnalysis(after, tr("Move the moderator to %1").arg(moderatorLabel(m)),
+                      QStringLiteral("probe-current:%1:%2").arg(id_).arg(gesture_));
+}
+
+void ProbeSection::setCurrentModeratorValue(double m) {
+    lastWasKeyboard_ = false;
+    moveTo(m, false);
+    commitCurrent(m, false);
+}
+
+void ProbeSection::applyPreset(const QString& key) {
+    if (!engine_.valid() || engine_.groups()) return;
+    const Design& d = run_->design;
+    const auto it = d.summaries.find(engine_.moderator());
+    if (it == d.summaries.end()) return;
+    double m = it->second.mean;
+    if (key == QStringLiteral("mean-sd")) m = it->second.mean - it->second.sd;
+    else if (key == QStringLiteral("mean+sd")) m = it->second.mean + it->second.sd;
+    else if (key.startsWith(QLatin1Char('p'))) m = d.percentile(engine_.moderator(), key.mid(1).toDouble());
+    if (std::isnan(m)) return;
+    setCurrentModeratorValue(m);
+}
+
+void ProbeSection::pinCurrentValue() {
+    if (!engine_.valid() || engine_.groups()) return;
+    const double m = current_;
+    const Analysis* a = doc_->analysis(id_);
+    if (!a) return;
+    const auto [lo, hi] = engine_.observedRange();
+    const double tol = 1e-9 * std::max(1.0, hi - lo);
+    for (double v : a->probe.pinned)
+        if (std::abs(v - m) <= tol) return;  // already pinned
+    Analysis after = *a;
+    after.probe.pinned.push_back(m);
+    after.probe.current = m;
+    doc_->setAnalysis(after, tr("Pin %1").arg(moderatorLabel(m)));
+}
+
+void ProbeSection::removePinned(const std::vector<int>& indices) {
+    const Analysis* a = doc_->analysis(id_);
+    if (!a || indices.empty()) return;
+    Analysis after = *a;
+    std::vector<int> sorted = indices;
+    std::sort(sorted.rbegin(), sorted.rend());
+    for (int i : sorted)
+        if (i >= 0 && i < static_cast<int>(after.probe.pinned.size())) after.probe.pinned.erase(after.probe.pinned.begin() + i);
+    doc_->setAnalysis(after, indices.size() == 1 ? tr("Remove a pinned value") : tr("Remove pinned values"));
+}
+
+void ProbeSection::editSettings(const std::function<void(ProbeSettings&)>& edit, const QString& description) {
+    const Analysis* a = doc_->analysis(id_);
+    if (!a) return;
+    Analysis after = *a;
+    edit(after.probe);
+    doc_->setAnalysis(after, description);
+}
+
+void ProbeSection::onDocumentChanged(const QString& id) {
+    if (id != id_ || !engine_.valid()) return;
+    const Analysis* a = doc_->analysis(id);
+    if (!a) return;
+    const ProbeSettings& now = a->probe;
+    const ProbeSettings& was = shown_.probe;
+    // A change of the probe itself (pinned values, scale, ...) arrives as a new run.
+    if (!same_probe(*a, shown_)) return;
+    if (now.simultaneous_band != was.simultaneous_band || now.show_points != was.show_points) {
+        rebuild();
+        return;
+    }
+    if (!sameNumber(now.current, was.current)) {
+        shown_.probe.current = now.current;
+        if (effect_->dragging()) return;
+        double m = std::isnan(now.current) ? engine_.defaultValue() : now.current;
+        if (!sameNumber(m, current_)) moveTo(m, false);
+    }
 }
 
 }  // namespace moderato::ui

@@ -1,19 +1,125 @@
+// The Probe section: the Lines plot and the Effect plot joined by the
+// moderator slider, the readout, the pinned-values (pick-a-point) table, the
+// region of significance, the crossover point and the cautions. A
+// continuous × continuous analysis can swap the Lines plot for the Surface
+// plot; two categorical predictors show the Cells plot and cell table.
+//
+// Dragging the handle on the Effect plot (or the slider) recomputes the
+// effect at the new value from the cached effect function and redraws only
+// the plots' buffered "moving" layers and the readout, on every frame. The
+// value is kept in the analysis (one undo step per drag) when the drag ends.
 #pragma once
 
+#include <QString>
+#include <functional>
+#include <memory>
+
+#include "probe/probe_engine.hpp"
 #include "sections/analysis_section.hpp"
 
+class QCheckBox;
+class QComboBox;
 class QLabel;
+class QScrollArea;
+class QSlider;
+class QSplitter;
+class QStackedWidget;
+class QToolButton;
 
 namespace moderato::ui {
+
+class CellsView;
+class EffectPlot;
+class LinesPlot;
+class ModeratorSlider;
+class PinnedTable;
+class ReadoutPanel;
+class SurfacePlot;
 
 class ProbeSection : public AnalysisSection {
     Q_OBJECT
 public:
     explicit ProbeSection(ProjectDocument* doc, QWidget* parent = nullptr);
     void showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun> run, const QString& error) override;
+    QList<FigureSource*> figures() override;
+
+    // Parts, for tests and the figure exporter.
+    LinesPlot* linesPlot() const { return lines_; }
+    EffectPlot* effectPlot() const { return effect_; }
+    SurfacePlot* surfacePlot() const { return surface_; }
+    CellsView* cellsView() const { return cells_; }
+    ModeratorSlider* moderatorSlider() const { return slider_; }
+    QSlider* slider() const;
+    ReadoutPanel* readout() const { return readout_; }
+    PinnedTable* pinnedTable() const { return pinned_; }
+    QComboBox* bandChoice() const { return band_; }
+    QCheckBox* pointsToggle() const { return points_; }
+    QComboBox* scaleChoice() const { return scale_; }
+    QComboBox* averagingChoice() const { return averaging_; }
+    QToolButton* surfaceToggle() const { return surfaceToggle_; }
+    const ProbeEngine& engine() const { return engine_; }
+
+    // The moderator value under the slider (Groups: the group index).
+    double currentModeratorValue() const { return current_; }
+    // The effect shown in the readout.
+    EffectPoint currentEffect() const;
+    QString readoutText() const;
+    // Region of significance, crossover, cautions and notes as plain text.
+    QString summaryText() const { return summaryPlain_; }
+    // As the user would: moves the slider to m and keeps the value (one undo step).
+    void setCurrentModeratorValue(double m);
+    // Pins the current value (one undo step).
+    void pinCurrentValue();
 
 private:
-    QLabel* label_;
+    void rebuild();
+    void showMessage(const QString& text);
+    void buildPlots();
+    void fillTable();
+    void fillSummary();
+    void fillReadoutContext();
+    void moveTo(double m, bool live);
+    void commitCurrent(double m, bool mergeWithPrevious);
+    void applyPreset(const QString& key);
+    void removePinned(const std::vector<int>& indices);
+    void onDocumentChanged(const QString& id);
+    void editSettings(const std::function<void(ProbeSettings&)>& edit, const QString& description);
+    QString moderatorLabel(double m) const;
+    QString effectTitle() const;
+    bool simultaneousShown() const;
+
+    QString id_;
+    std::shared_ptr<const AnalysisRun> run_;
+    QString error_;
+    ProbeEngine engine_;
+    Analysis shown_;                 // the settings the view was built from
+    double current_ = 0;
+    EffectPoint point_;
+    std::vector<std::vector<CurvePoint>> groupLines_;
+    int gesture_ = 0;
+    bool lastWasKeyboard_ = false;
+    bool rebuilding_ = false;
+    QString summaryPlain_;
+
+    QStackedWidget* pages_;
+    QLabel* message_;
+    QComboBox* band_;
+    QCheckBox* points_;
+    QLabel* scaleLabel_;
+    QComboBox* scale_;
+    QComboBox* averaging_;
+    QToolButton* surfaceToggle_;
+    QLabel* linesTitle_;
+    QLabel* effectTitle_;
+    QStackedWidget* linesStack_;
+    LinesPlot* lines_;
+    SurfacePlot* surface_;
+    EffectPlot* effect_;
+    CellsView* cells_;
+    ModeratorSlider* slider_;
+    ReadoutPanel* readout_;
+    PinnedTable* pinned_;
+    QLabel* summary_;
 };
 
 }  // namespace moderato::ui

@@ -26,8 +26,8 @@ Qt::PenStyle lineStyle(int k) {
 }
 
 int markerShape(int k) {
-    // QCPScatterStyle: ssCircle = 4, ssSquare = 5, ssTriangle = 13, ssDiamond = 6, ssCross = 2, ssPlus = 3
-    static const int shapes[] = {4, 5, 13, 6, 2, 3};
+    // QCPScatterStyle (2.1): ssCircle = 4, ssSquare = 6, ssTriangle = 9, ssDiamond = 7, ssCross = 2, ssPlus = 3
+    static const int shapes[] = {4, 6, 9, 7, 2, 3};
     return shapes[wrap(k, 6)];
 }
 

@@ -1,0 +1,431 @@
+#include "plots/effect_plot.hpp"
+
+#include <QResizeEvent>
+#include <QVBoxLayout>
+#include <algorithm>
+#include <cmath>
+#include <qcustomplot.h>
+
+#include "plots/plot_style.hpp"
+#include "plots/probe_plot_util.hpp"
+#include "probe/number_format.hpp"
+#include "style/estuary.hpp"
+
+namespace moderato::ui {
+
+namespace {
+
+QCPItemRect* spanRect(QCustomPlot* plot, double a, double b, const QBrush& brush) {
+    auto* r = new QCPItemRect(plot);
+    for (QCPItemPosition* p : {r->topLeft, r->bottomRight}) {
+        p->setTypeX(QCPItemPosition::ptPlotCoords);
+        p->setTypeY(QCPItemPosition::ptAxisRectRatio);
+    }
+    r->topLeft->setCoords(a, 0);
+    r->bottomRight->setCoords(b, 1);
+    r->setBrush(brush);
+    r->setPen(Qt::NoPen);
+    r->setSelectable(false);
+    return r;
+}
+
+// A legend entry with a filled box (QCPBars draw their icon as a rectangle).
+void legendSwatch(QCustomPlot* plot, const QString& name, const QBrush& brush, const QPen& pen = Qt::NoPen) {
+    auto* bars = new QCPBars(plot->xAxis, plot->yAxis);
+    bars->setName(name);
+    bars->setBrush(brush);
+    bars->setPen(pen);
+    bars->setSelectable(QCP::stNone);
+}
+
+QCPItemStraightLine* verticalLine(QCustomPlot* plot, double x, const QPen& pen) {
+    auto* l = new QCPItemStraightLine(plot);
+    l->point1->setCoords(x, 0);
+    l->point2->setCoords(x, 1);
+    l->setPen(pen);
+    l->setSelectable(false);
+    return l;
+}
+
+QFont smallFont(const QFont& base, double scale = 0.9) {
+    QFont f = base;
+    f.setPointSizeF(std::max(6.0, base.pointSizeF() * scale));
+    return f;
+}
+
+}  // namespace
+
+EffectPlot::EffectPlot(QWidget* parent) : QWidget(parent), plot_(new QCustomPlot(this)) {
+    auto* layout = new QVBoxLayout(this);
+    layout->setContentsMargins(0, 0, 0, 0);
+    layout->addWidget(plot_);
+    plot_->setObjectName(QStringLiteral("effect-plot"));
+    stylePlot(plot_, font());
+    setUpProbePlot(plot_);
+    plot_->yAxis2->setRange(0, 1);
+    plot_->setMouseTracking(true);
+    plot_->setToolTip(tr("Drag to move the moderator; the Lines plot and the readout follow"));
+    connect(plot_, &QCustomPlot::mousePress, this, &EffectPlot::onPress);
+    connect(plot_, &QCustomPlot::mouseMove, this, &EffectPlot::onMove);
+    connect(plot_, &QCustomPlot::mouseRelease, this, &EffectPlot::onRelease);
+    setMinimumHeight(180);
+}
+
+QCPLayer* EffectPlot::movingLayer() const { return plot_->layer(kMovingLayer); }
+
+void EffectPlot::setData(const EffectPlotData& data) {
+    data_ = data;
+    hasData_ = true;
+    rebuild();
+}
+
+void EffectPlot::clear() {
+    hasData_ = false;
+    data_ = {};
+    rebuild();
+}
+
+void EffectPlot::setGreyscale(bool on) {
+    greyscale_ = on;
+    rebuild();
+}
+
+void EffectPlot::resizeEvent(QResizeEvent* event) {
+    QWidget::resizeEvent(event);
+    if (hasData_ && fitLegend(plot_)) plot_->replot();
+}
+
+void EffectPlot::rebuild() {
+    plot_->clearItems();
+    plot_->clearPlottables();
+    handle_ = whisker_ = nullptr;
+    knob_ = nullptr;
+    handleLabel_ = nullptr;
+    groupHighlight_ = nullptr;
+    drawnBoundaries_.clear();
+    if (hasData_) {
+        if (data_.groups) buildGroups();
+        else buildContinuous();
+        buildMoving();
+        setCurrent(current_, currentPoint_, false);
+        fitLegend(plot_);
+    }
+    plot_->replot();
+}
+
+void EffectPlot::buildContinuous() {
+    const EffectPlotData& d = data_;
+    auto xTicker = QSharedPointer<QCPAxisTicker>(new QCPAxisTicker);
+    plot_->xAxis->setTicker(xTicker);
+    plot_->xAxis->setRange(d.axis.first, d.axis.second);
+    double lo = 0, hi = 0;
+    for (const auto& c : d.curve) {
+        if (std::isfinite(c.lower)) lo = std::min(lo, c.lower);
+        if (std::isfinite(c.upper)) hi = std::max(hi, c.upper);
+    }
+    const double pad = 0.08 * (hi > lo ? hi - lo : 1.0);
+    plot_->yAxis->setRange(lo - pad, hi + pad);
+    setAxisTitle(plot_->xAxis, d.moderatorTitle);
+    setAxisTitle(plot_->yAxis, d.effectTitle);
+
+    // Shading under the grid: beyond the data, then the regions.
+    plot_->setCurrentLayer(kShadingLayer);
+    const QFont note = smallFont(font(), 0.85);
+    QColor noteColour = estuary::ink;
+    noteColour.setAlphaF(0.65f);
+    auto beyondRegion = [&](double a, double b) {
+        if (b <= a) return;
+        spanRect(plot_, a, b, QBrush(estuary::beyond));
+        auto* t = new QCPItemText(plot_);
+        t->position->setTypeX(QCPItemPosition::ptPlotCoords);
+        t->position->setTypeY(QCPItemPosition::ptAxisRectRatio);
+        t->position->setCoords(0.5 * (a + b), 1.0);
+        t->setPositionAlignment(Qt::AlignBottom | Qt::AlignHCenter);
+        t->setText(tr("beyond\nthe data"));
+        t->setTextAlignment(Qt::AlignCenter);
+        t->setFont(note);
+        t->setColor(noteColour);
+        t->setPadding(QMargins(2, 2, 2, 12));
+        t->setSelectable(false);
+    };
+    beyondRegion(d.axis.first, d.observed.first);
+    beyondRegion(d.observed.second, d.axis.second);
+    // Significant regions and their complement within the axis range.
+    double cursor = d.axis.first;
+    bool anySignificant = false, anyNotSignificant = false;
+    for (const Region& r : d.significant) {
+        const double a = std::max(r.lo, d.axis.first), b = std::min(r.hi, d.axis.second);
+        if (b <= a) continue;
+        if (a > cursor) {
+            spanRect(plot_, cursor, a, estuary::notSignificantBrush());
+            anyNotSignificant = true;
+        }
+        spanRect(plot_, a, b, estuary::significanceBrush(greyscale_));
+        anySignificant = true;
+        cursor = b;
+    }
+    if (cursor < d.axis.second) {
+        spanRect(plot_, cursor, d.axis.second, estuary::notSignificantBrush());
+        anyNotSignificant = true;
+    }
+
+    plot_->setCurrentLayer(QStringLiteral("main"));
+    // Legend: effect, band, region, not significant, beyond the data (the band's graphs stay out of it).
+    addBand(plot_, d.curve, estuary::bandBrush(0, greyscale_));
+    QCPGraph* curve = plot_->addGraph();  // after the band, so it draws above it
+    QPen curvePen = estuary::seriesPen(0, 2.2, greyscale_);
+    curvePen.setStyle(Qt::SolidLine);
+    curve->setPen(curvePen);
+    curve->setName(tr("conditional effect"));
+    setLineData(curve, d.curve);
+    legendSwatch(plot_, d.bandName, estuary::bandBrush(0, greyscale_));
+    if (anySignificant) legendSwatch(plot_, tr("region of significance"), estuary::significanceBrush(greyscale_));
+    if (anyNotSignificant) legendSwatch(plot_, tr("not significant"), estuary::notSignificantBrush());
+    if (d.axis.first < d.observed.first || d.axis.second > d.observed.second)
+        legendSwatch(plot_, tr("beyond the data"), QBrush(estuary::beyond), QPen(estuary::grid));
+
+    QPen zeroPen(estuary::ink);
+    zeroPen.setWidthF(1.0);
+    auto* zero = new QCPItemStraightLine(plot_);
+    zero->point1->setCoords(0, 0);
+    zero->point2->setCoords(1, 0);
+    zero->setPen(zeroPen);
+    zero->setSelectable(false);
+
+    QPen boundaryPen(estuary::ink);
+    boundaryPen.setWidthF(1.2);
+    boundaryPen.setStyle(Qt::DashLine);
+    std::vector<double> shown;
+    for (double b : d.boundaries)
+        if (std::isfinite(b) && b >= d.axis.first && b <= d.axis.second) shown.push_back(b);
+    const double span = d.axis.second - d.axis.first;
+    for (std::size_t k = 0; k < shown.size(); ++k) {
+        const double b = shown[k];
+        verticalLine(plot_, b, boundaryPen);
+        auto* t = new QCPItemText(plot_);
+        t->position->setTypeX(QCPItemPosition::ptPlotCoords);
+        t->position->setTypeY(QCPItemPosition::ptAxisRectRatio);
+        t->position->setCoords(b, 0);
+        // Labels of close boundaries go to the outer side of their lines.
+        Qt::Alignment h = Qt::AlignHCenter;
+        if (k + 1 < shown.size() && shown[k + 1] - b < 0.1 * span) h = Qt::AlignRight;
+        else if (k > 0 && b - shown[k - 1] < 0.1 * span) h = Qt::AlignLeft;
+        t->setPositionAlignment(Qt::AlignTop | h);
+        t->setText(formatNumber(b, 3));
+        t->setFont(note);
+        t->setColor(estuary::ink);
+        t->setBrush(QBrush(QColor(255, 255, 255, 220)));
+        t->setPadding(QMargins(3, 1, 3, 1));
+        t->setSelectable(false);
+        drawnBoundaries_.push_back(b);
+    }
+
+    // Rug: ticks along the bottom edge (on the hidden right axis, range 0..1).
+    if (!d.rug.empty()) {
+        QCPGraph* rug = plot_->addGraph(plot_->xAxis, plot_->yAxis2);
+        rug->removeFromLegend();
+        rug->setLineStyle(QCPGraph::lsNone);
+        QPainterPath tick;
+        tick.moveTo(0, 0);
+        tick.lineTo(0, -7);
+        QColor c = estuary::ink;
+        c.setAlphaF(d.rug.size() > 500 ? 0.35f : 0.6f);
+        QPen pen(c);
+        pen.setWidthF(1.0);
+        rug->setScatterStyle(QCPScatterStyle(tick, pen, Qt::NoBrush, 6));
+        rug->setAntialiasedScatters(false);
+        QVector<double> k(static_cast<qsizetype>(d.rug.size())), v(static_cast<qsizetype>(d.rug.size()), 0.0);
+        std::copy(d.rug.begin(), d.rug.end(), k.begin());
+        rug->setData(k, v, true);
+        rug->setSelectable(QCP::stNone);
+    }
+}
+
+void EffectPlot::buildGroups() {
+    const EffectPlotData& d = data_;
+    const int L = static_cast<int>(d.groupEffects.size());
+    auto ticker = QSharedPointer<QCPAxisTickerText>(new QCPAxisTickerText);
+    for (int k = 0; k < L; ++k) ticker->addTick(k, k < static_cast<int>(d.groupNames.size()) ? d.groupNames[static_cast<std::size_t>(k)] : QString());
+    plot_->xAxis->setTicker(ticker);
+    plot_->xAxis->setRange(-0.5, L - 0.5);
+    double lo = 0, hi = 0;
+    for (const auto& e : d.groupEffects) {
+        lo = std::min(lo, e.ci_lower);
+        hi = std::max(hi, e.ci_upper);
+    }
+    const double pad = 0.1 * (hi > lo ? hi - lo : 1.0);
+    plot_->yAxis->setRange(lo - pad, hi + pad);
+    setAxisTitle(plot_->xAxis, d.moderatorTitle);
+    setAxisTitle(plot_->yAxis, d.effectTitle);
+
+    plot_->setCurrentLayer(kShadingLayer);
+    bool anySignificant = false, anyNotSignificant = false;
+    for (int k = 0; k < L; ++k) {
+        const auto& e = d.groupEffects[static_cast<std::size_t>(k)];
+        const bool significant = e.ci_lower > 0 || e.ci_upper < 0;
+        (significant ? anySignificant : anyNotSignificant) = true;
+        spanRect(plot_, k - 0.42, k + 0.42,
+                 significant ? estuary::significanceBrush(greyscale_) : estuary::notSignificantBrush());
+    }
+    plot_->setCurrentLayer(QStringLiteral("main"));
+    for (int k = 0; k < L; ++k) {
+        const auto& e = d.groupEffects[static_cast<std::size_t>(k)];
+        QCPGraph* g = plot_->addGraph();
+        g->setLineStyle(QCPGraph::lsNone);
+        const QPen pen = estuary::seriesPen(k, 1.8, greyscale_);
+        QPen solid = pen;
+        solid.setStyle(Qt::SolidLine);
+        g->setPen(solid);
+        g->setScatterStyle(QCPScatterStyle(static_cast<QCPScatterStyle::ScatterShape>(estuary::markerShape(k)), solid,
+                                           QBrush(Qt::white), 10));
+        const auto& names = d.legendNames.empty() ? d.groupNames : d.legendNames;
+        g->setName(k < static_cast<int>(names.size()) ? names[static_cast<std::size_t>(k)] : QString());
+        g->setData(QVector<double>{double(k)}, QVector<double>{e.effect});
+        auto* bars = new QCPErrorBars(plot_->xAxis, plot_->yAxis);
+        bars->removeFromLegend();
+        bars->setDataPlottable(g);
+        bars->setData(QVector<double>{e.effect - e.ci_lower}, QVector<double>{e.ci_upper - e.effect});
+        bars->setPen(solid);
+        bars->setWhiskerWidth(12);
+        bars->setSelectable(QCP::stNone);
+    }
+    if (anySignificant) legendSwatch(plot_, tr("interval excludes zero"), estuary::significanceBrush(greyscale_));
+    if (anyNotSignificant) legendSwatch(plot_, tr("not significant"), estuary::notSignificantBrush());
+    QPen zeroPen(estuary::ink);
+    auto* zero = new QCPItemStraightLine(plot_);
+    zero->point1->setCoords(0, 0);
+    zero->point2->setCoords(1, 0);
+    zero->setPen(zeroPen);
+    zero->setSelectable(false);
+}
+
+void EffectPlot::buildMoving() {
+    plot_->setCurrentLayer(kMovingLayer);
+    QPen handlePen(estuary::ink);
+    handlePen.setWidthF(1.4);
+    if (data_.groups) {
+        groupHighlight_ = new QCPItemRect(plot_);
+        for (QCPItemPosition* p : {groupHighlight_->topLeft, groupHighlight_->bottomRight}) {
+            p->setTypeX(QCPItemPosition::ptPlotCoords);
+            p->setTypeY(QCPItemPosition::ptAxisRectRatio);
+        }
+        QPen outline(estuary::withAlpha(estuary::ink, 0.55));
+        outline.setWidthF(1.0);
+        outline.setStyle(Qt::DashLine);
+        groupHighlight_->setPen(outline);
+        groupHighlight_->setBrush(estuary::withAlpha(estuary::ink, 0.06));
+        groupHighlight_->setSelectable(false);
+    } else {
+        handle_ = new QCPItemLine(plot_);
+        for (QCPItemPosition* p : {handle_->start, handle_->end}) {
+            p->setTypeX(QCPItemPosition::ptPlotCoords);
+            p->setTypeY(QCPItemPosition::ptAxisRectRatio);
+        }
+        handle_->setPen(handlePen);
+        handle_->setSelectable(false);
+    }
+    whisker_ = new QCPItemLine(plot_);
+    QPen whiskerPen(estuary::ink);
+    whiskerPen.setWidthF(2.2);
+    whisker_->setPen(whiskerPen);
+    whisker_->setHead(QCPLineEnding(QCPLineEnding::esBar, 10));
+    whisker_->setTail(QCPLineEnding(QCPLineEnding::esBar, 10));
+    whisker_->setSelectable(false);
+    knob_ = new QCPItemTracer(plot_);
+    knob_->setStyle(QCPItemTracer::tsCircle);
+    knob_->setSize(12);
+    QPen knobPen(Qt::white);
+    knobPen.setWidthF(2.0);
+    knob_->setPen(knobPen);
+    knob_->setBrush(estuary::ink);
+    knob_->setSelectable(false);
+    handleLabel_ = new QCPItemText(plot_);
+    handleLabel_->position->setTypeX(QCPItemPosition::ptPlotCoords);
+    handleLabel_->position->setTypeY(QCPItemPosition::ptAxisRectRatio);
+    handleLabel_->setFont(smallFont(font(), 0.95));
+    handleLabel_->setColor(Qt::white);
+    handleLabel_->setBrush(estuary::ink);
+    handleLabel_->setPadding(QMargins(5, 2, 5, 2));
+    handleLabel_->setSelectable(false);
+    plot_->setCurrentLayer(QStringLiteral("main"));
+}
+
+void EffectPlot::setCurrent(double m, const EffectPoint& at, bool replot) {
+    current_ = m;
+    currentPoint_ = at;
+    if (!knob_ || !hasData_) return;
+    if (data_.groups) {
+        groupHighlight_->topLeft->setCoords(m - 0.45, 0.0);
+        groupHighlight_->bottomRight->setCoords(m + 0.45, 1.0);
+    } else {
+        handle_->start->setCoords(m, 0.0);
+        handle_->end->setCoords(m, 1.0);
+    }
+    // No estimate yet (recomputed when the drag ends): the handle moves alone.
+    // Groups: the group's own marker and interval are the estimate; the frame marks the choice.
+    const bool known = std::isfinite(at.effect) && !data_.groups;
+    whisker_->setVisible(known && std::isfinite(at.ci_lower) && std::isfinite(at.ci_upper));
+    knob_->setVisible(known);
+    if (known) {
+        whisker_->start->setCoords(m, at.ci_lower);
+        whisker_->end->setCoords(m, at.ci_upper);
+        knob_->position->setCoords(m, at.effect);
+    }
+    const std::size_t k = static_cast<std::size_t>(std::max(0L, std::lround(m)));
+    handleLabel_->setText(data_.groups ? (k < data_.groupNames.size() ? data_.groupNames[k] : QString())
+                                       : formatNumber(m) + (at.beyond_data ? tr("  beyond the data") : QString()));
+    // Keep the label inside the plot near either edge.
+    const QRect r = plot_->axisRect()->rect();
+    const double px = plot_->xAxis->coordToPixel(m);
+    Qt::Alignment h = Qt::AlignHCenter;
+    if (r.width() > 0) {
+        if (px - r.left() < 70) h = Qt::AlignLeft;
+        else if (r.right() - px < 70) h = Qt::AlignRight;
+    }
+    handleLabel_->position->setCoords(m, 0.0);
+    handleLabel_->setPositionAlignment(Qt::AlignTop | h);
+    if (replot) movingLayer()->replot();
+}
+
+double EffectPlot::valueAtPixel(double px) const { return plot_->xAxis->pixelToCoord(px); }
+double EffectPlot::pixelOfValue(double m) const { return plot_->xAxis->coordToPixel(m); }
+int EffectPlot::plotAreaMiddleY() const { return plot_->axisRect()->rect().center().y(); }
+
+double EffectPlot::snap(double m) const {
+    if (data_.groups) {
+        const double last = std::max(0.0, static_cast<double>(data_.groupEffects.size()) - 1);
+        return std::clamp(std::round(m), 0.0, last);
+    }
+    return std::clamp(m, data_.axis.first, data_.axis.second);
+}
+
+void EffectPlot::onPress(QMouseEvent* e) {
+    if (!hasData_ || e->button() != Qt::LeftButton) return;
+    if (!plot_->axisRect()->rect().adjusted(-6, -6, 6, 6).contains(e->pos())) return;
+    dragging_ = true;
+    Q_EMIT dragStarted();
+    Q_EMIT valueDragged(snap(valueAtPixel(e->pos().x())));
+}
+
+void EffectPlot::onMove(QMouseEvent* e) {
+    if (dragging_) {
+        const double m = snap(valueAtPixel(e->pos().x()));
+        if (m != current_) Q_EMIT valueDragged(m);
+        return;
+    }
+    if (!hasData_) return;
+    const QRect r = plot_->axisRect()->rect();
+    if (!r.contains(e->pos())) plot_->unsetCursor();
+    else if (std::abs(e->pos().x() - pixelOfValue(current_)) < 8) plot_->setCursor(Qt::SplitHCursor);
+    else plot_->setCursor(Qt::PointingHandCursor);
+}
+
+void EffectPlot::onRelease(QMouseEvent* e) {
+    if (!dragging_) return;
+    const double m = snap(valueAtPixel(e->pos().x()));
+    if (m != current_) Q_EMIT valueDragged(m);
+    dragging_ = false;
+    Q_EMIT dragFinished(current_);
+}
+
+}  // namespace moderato::ui

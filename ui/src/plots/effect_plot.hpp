@@ -1,0 +1,114 @@
+// The Effect plot: the conditional effect of the focal predictor against the
+// moderator, with its band (pointwise or simultaneous), the zero line, the
+// boundaries of the region of significance, the region itself as a tinted
+// strip (not significant: grey hatched), a rug of observed moderator values
+// and "beyond the data" shading outside the observed range. For a
+// categorical or 0/1 moderator: the effect in each group with its interval.
+//
+// A draggable handle marks the moderator slider's value. The handle and what
+// moves with it live on a buffered layer of their own ("moving"), so a drag
+// frame redraws that layer only, never the band, the rug or the axes.
+#pragma once
+
+#include <QString>
+#include <QWidget>
+#include <utility>
+#include <vector>
+
+#include "moderato/probe.hpp"
+#include "moderato/probe_curves.hpp"
+#include "plots/figure_source.hpp"
+
+class QCustomPlot;
+class QCPLayer;
+class QCPGraph;
+class QCPItemLine;
+class QCPItemText;
+class QCPItemTracer;
+class QCPItemRect;
+class QMouseEvent;
+
+namespace moderato::ui {
+
+struct EffectPlotData {
+    bool groups = false;
+    QString moderatorTitle;                 // x axis
+    QString effectTitle;                    // y axis
+    // Continuous moderator.
+    std::vector<CurvePoint> curve;          // effect and the band shown, over the axis range
+    QString bandName;                       // legend entry of the band ("95% pointwise band", ...)
+    std::vector<Region> significant;        // regions of significance for that band
+    std::vector<double> boundaries;         // their boundaries
+    std::pair<double, double> observed{0, 1};
+    std::pair<double, double> axis{0, 1};
+    std::vector<double> rug;                // observed moderator values (decimated)
+    // Groups.
+    std::vector<QString> groupNames;         // axis ticks
+    std::vector<QString> legendNames;        // legend entries ("shift = day"); empty: the group names
+    std::vector<EffectPoint> groupEffects;
+};
+
+class EffectPlot : public QWidget, public FigureSource {
+    Q_OBJECT
+public:
+    explicit EffectPlot(QWidget* parent = nullptr);
+
+    // Rebuilds every layer and replots.
+    void setData(const EffectPlotData& data);
+    void clear();
+    // Moves the handle to moderator value m (Groups: the group index) with
+    // the effect and interval there; with `replot`, redraws the moving layer only.
+    void setCurrent(double m, const EffectPoint& at, bool replot = true);
+    double current() const { return current_; }
+
+    // Pixel x (figurePlot() coordinates) <-> moderator value.
+    double valueAtPixel(double px) const;
+    double pixelOfValue(double m) const;
+    // Middle of the axis rect, for synthesized mouse events.
+    int plotAreaMiddleY() const;
+    // The boundary lines drawn (moderator values), left to right.
+    const std::vector<double>& drawnBoundaries() const { return drawnBoundaries_; }
+    bool dragging() const { return dragging_; }
+    QCPLayer* movingLayer() const;
+    const EffectPlotData& data() const { return data_; }
+
+    QString figureName() const override { return tr("Effect plot"); }
+    QString figureKey() const override { return QStringLiteral("effect"); }
+    QCustomPlot* figurePlot() override { return plot_; }
+    void setGreyscale(bool on) override;
+
+Q_SIGNALS:
+    void dragStarted();
+    void valueDragged(double m);       // every frame of a drag (Groups: the group index)
+    void dragFinished(double m);
+
+protected:
+    void resizeEvent(QResizeEvent* event) override;
+
+private:
+    void rebuild();
+    void buildContinuous();
+    void buildGroups();
+    void buildMoving();
+    double snap(double m) const;
+    void onPress(QMouseEvent* e);
+    void onMove(QMouseEvent* e);
+    void onRelease(QMouseEvent* e);
+
+    QCustomPlot* plot_;
+    EffectPlotData data_;
+    bool greyscale_ = false;
+    bool hasData_ = false;
+    double current_ = 0;
+    EffectPoint currentPoint_;
+    bool dragging_ = false;
+    std::vector<double> drawnBoundaries_;
+    // moving layer
+    QCPItemLine* handle_ = nullptr;
+    QCPItemLine* whisker_ = nullptr;
+    QCPItemTracer* knob_ = nullptr;
+    QCPItemText* handleLabel_ = nullptr;
+    QCPItemRect* groupHighlight_ = nullptr;
+};
+
+}  // namespace moderato::ui

@@ -1,0 +1,262 @@
+#include "plots/lines_plot.hpp"
+
+#include <QResizeEvent>
+#include <QVBoxLayout>
+#include <algorithm>
+#include <cmath>
+#include <qcustomplot.h>
+
+#include "plots/plot_style.hpp"
+#include "plots/probe_plot_util.hpp"
+#include "style/estuary.hpp"
+
+namespace moderato::ui {
+
+namespace {
+
+constexpr int kBinsX = 240, kBinsY = 160;
+
+QColor seriesColour(int k, bool grey) { return grey ? estuary::toGrey(estuary::series(k)) : estuary::series(k); }
+
+}  // namespace
+
+LinesPlot::LinesPlot(QWidget* parent) : QWidget(parent), plot_(new QCustomPlot(this)) {
+    auto* layout = new QVBoxLayout(this);
+    layout->setContentsMargins(0, 0, 0, 0);
+    layout->addWidget(plot_);
+    plot_->setObjectName(QStringLiteral("lines-plot"));
+    stylePlot(plot_, font());
+    setUpProbePlot(plot_);
+    setMinimumHeight(200);
+}
+
+QCPLayer* LinesPlot::movingLayer() const { return plot_->layer(kMovingLayer); }
+
+void LinesPlot::setData(const LinesPlotData& data) {
+    data_ = data;
+    hasData_ = true;
+    rebuild();
+}
+
+void LinesPlot::clear() {
+    data_ = {};
+    hasData_ = false;
+    highlight_.clear();
+    rebuild();
+}
+
+void LinesPlot::setGreyscale(bool on) {
+    greyscale_ = on;
+    rebuild();
+}
+
+void LinesPlot::resizeEvent(QResizeEvent* event) {
+    QWidget::resizeEvent(event);
+    if (hasData_ && fitLegend(plot_)) plot_->replot();
+}
+
+void LinesPlot::drawPoints(double ylo, double yhi) {
+    const std::size_t n = std::min(data_.pointsX.size(), data_.pointsY.size());
+    pointsMode_ = 0;
+    if (!data_.showPoints || n == 0) return;
+    int groups = 1;
+    if (data_.pointsByGroup)
+        for (int g : data_.pointsGroup) groups = std::max(groups, g + 1);
+    auto groupOf = [&](std::size_t i) {
+        return data_.pointsByGroup && i < data_.pointsGroup.size() ? data_.pointsGroup[i] : 0;
+    };
+    auto colourOf = [&](int g) { return data_.pointsByGroup ? seriesColour(g, greyscale_) : estuary::ink; };
+
+    if (n <= kMaxPoints) {
+        pointsMode_ = 1;
+        // Fewer points, more opaque: about 0.57 at 200 rows, 0.18 at 2,000, 0.1 from 6,400.
+        const double alpha = std::clamp(8.0 / std::sqrt(static_cast<double>(n)), 0.1, 0.6);
+        std::vector<QVector<double>> keys(static_cast<std::size_t>(groups)), values(static_cast<std::size_t>(groups));
+        for (std::size_t i = 0; i < n; ++i) {
+            const std::size_t g = static_cast<std::size_t>(groupOf(i));
+            keys[g].push_back(data_.pointsX[i]);
+            values[g].push_back(data_.pointsY[i]);
+        }
+        for (int g = 0; g < groups; ++g) {
+            QCPGraph* graph = plot_->addGraph();
+            graph->setLineStyle(QCPGraph::lsNone);
+            graph->setScatterStyle(
+                QCPScatterStyle(QCPScatterStyle::ssDisc, estuary::withAlpha(colourOf(g), alpha), 4.5));
+            graph->setData(keys[static_cast<std::size_t>(g)], values[static_cast<std::size_t>(g)]);
+            graph->setAntialiasedScatters(n <= 5000);
+            graph->setSelectable(QCP::stNone);
+            if (data_.pointsByGroup || g > 0) graph->removeFromLegend();
+            else graph->setName(tr("observed rows"));
+        }
+        return;
+    }
+    // Binned: a grid of counts per group, drawn as translucent colour maps
+    // (log scale of the count; empty cells transparent).
+    pointsMode_ = 2;
+    const double xlo = data_.xRange.first, xhi = data_.xRange.second;
+    const double dx = (xhi - xlo) / (kBinsX - 1), dy = (yhi - ylo) / (kBinsY - 1);
+    if (!(dx > 0) || !(dy > 0)) return;
+    std::vector<std::vector<int>> counts(static_cast<std::size_t>(groups), std::vector<int>(kBinsX * kBinsY, 0));
+    for (std::size_t i = 0; i < n; ++i) {
+        const long bx = std::lround((data_.pointsX[i] - xlo) / dx), by = std::lround((data_.pointsY[i] - ylo) / dy);
+        if (bx < 0 || bx >= kBinsX || by < 0 || by >= kBinsY) continue;
+        ++counts[static_cast<std::size_t>(groupOf(i))][static_cast<std::size_t>(by * kBinsX + bx)];
+    }
+    for (int g = 0; g < groups; ++g) {
+        const auto& c = counts[static_cast<std::size_t>(g)];
+        const int most = *std::max_element(c.begin(), c.end());
+        if (most == 0) continue;
+        auto* map = new QCPColorMap(plot_->xAxis, plot_->yAxis);
+        map->data()->setSize(kBinsX, kBinsY);
+        map->data()->setRange(QCPRange(xlo, xhi), QCPRange(ylo, yhi));
+        for (int by = 0; by < kBinsY; ++by)
+            for (int bx = 0; bx < kBinsX; ++bx) {
+                const int k = c[static_cast<std::size_t>(by * kBinsX + bx)];
+                map->data()->setCell(bx, by, k > 0 ? static_cast<double>(k) : std::nan(""));
+            }
+        QCPColorGradient gradient;
+        gradient.clearColorStops();
+        gradient.setColorStopAt(0.0, estuary::withAlpha(colourOf(g), 0.12));
+        gradient.setColorStopAt(1.0, estuary::withAlpha(colourOf(g), 0.75));
+        gradient.setNanHandling(QCPColorGradient::nhTransparent);
+        map->setGradient(gradient);
+        map->setDataScaleType(QCPAxis::stLogarithmic);
+        map->setDataRange(QCPRange(1.0, std::max(2.0, static_cast<double>(most))));
+        map->setInterpolate(false);
+        map->setSelectable(QCP::stNone);
+        map->removeFromLegend();
+    }
+    // A colour map's own legend icon is a tiny copy of the map: a swatch reads better.
+    if (!data_.pointsByGroup) {
+        auto* swatch = new QCPBars(plot_->xAxis, plot_->yAxis);
+        swatch->setName(tr("observed rows (binned counts)"));
+        swatch->setBrush(estuary::withAlpha(estuary::ink, 0.45));
+        swatch->setPen(Qt::NoPen);
+        swatch->setSelectable(QCP::stNone);
+    }
+}
+
+void LinesPlot::rebuild() {
+    plot_->clearItems();
+    plot_->clearPlottables();
+    highlightLine_ = highlightBand_ = nullptr;
+    crossoverMarkers_ = 0;
+    pointsMode_ = 0;
+    if (!hasData_) {
+        plot_->replot();
+        return;
+    }
+    const LinesPlotData& d = data_;
+    plot_->xAxis->setRange(d.xRange.first, d.xRange.second);
+    setAxisTitle(plot_->xAxis, d.focalTitle);
+    setAxisTitle(plot_->yAxis, d.outcomeTitle);
+
+    double ylo = std::numeric_limits<double>::infinity(), yhi = -ylo;
+    auto take = [&](double v) {
+        if (std::isfinite(v)) {
+            ylo = std::min(ylo, v);
+            yhi = std::max(yhi, v);
+        }
+    };
+    for (const auto& l : d.lines)
+        for (const auto& p : l.points) {
+            take(p.lower);
+            take(p.upper);
+        }
+    for (const auto& p : d.yExtent) {
+        take(p.lower);
+        take(p.upper);
+    }
+    if (d.showPoints)
+        for (double v : d.pointsY) take(v);
+    if (!(yhi > ylo)) {
+        ylo = std::isfinite(ylo) ? ylo - 1 : 0;
+        yhi = ylo + 2;
+    }
+    const double pad = 0.05 * (yhi - ylo);
+    ylo -= pad;
+    yhi += pad;
+    plot_->yAxis->setRange(ylo, yhi);
+
+    plot_->setCurrentLayer(QStringLiteral("main"));
+    drawPoints(ylo, yhi);
+    // Bands first (under every line), then the lines.
+    for (const auto& l : d.lines) addBand(plot_, l.points, estuary::bandBrush(l.series, greyscale_));
+    for (const auto& l : d.lines) {
+        QCPGraph* g = plot_->addGraph();
+        g->setName(l.name);
+        g->setPen(estuary::seriesPen(l.series, 2.0, greyscale_));
+        QPen markerPen = estuary::seriesPen(l.series, 1.6, greyscale_);
+        markerPen.setStyle(Qt::SolidLine);
+        g->setScatterStyle(QCPScatterStyle(static_cast<QCPScatterStyle::ScatterShape>(estuary::markerShape(l.series)),
+                                           markerPen, QBrush(Qt::white), 8));
+        // Markers at the start, middle and end of a line of 2k + 1 points.
+        if (l.points.size() > 2) g->setScatterSkip(static_cast<int>((l.points.size() - 1) / 2) - 1);
+        g->setSelectable(QCP::stNone);
+        setLineData(g, l.points);
+    }
+
+    // Crossover points inside the data: hollow diamond, interval as a bracket.
+    for (const auto& c : d.crossings) {
+        QPen ink(estuary::ink);
+        ink.setWidthF(1.5);
+        if (c.bounded) {
+            auto* bracket = new QCPItemLine(plot_);
+            bracket->start->setCoords(c.lower, c.y);
+            bracket->end->setCoords(c.upper, c.y);
+            bracket->setHead(QCPLineEnding(QCPLineEnding::esBar, 12));
+            bracket->setTail(QCPLineEnding(QCPLineEnding::esBar, 12));
+            bracket->setPen(ink);
+        } else {
+            auto* t = new QCPItemText(plot_);
+            t->position->setCoords(c.x, c.y);
+            t->setPositionAlignment(Qt::AlignTop | Qt::AlignHCenter);
+            t->setPadding(QMargins(2, 10, 2, 2));
+            t->setText(tr("interval unbounded"));
+            t->setColor(estuary::ink);
+            t->setFont(font());
+        }
+        QCPGraph* diamond = plot_->addGraph();
+        diamond->setLineStyle(QCPGraph::lsNone);
+        diamond->setPen(ink);
+        diamond->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssDiamond, ink, QBrush(Qt::white), 13));
+        diamond->setData(QVector<double>{c.x}, QVector<double>{c.y});
+        diamond->setSelectable(QCP::stNone);
+        if (crossoverMarkers_ == 0) diamond->setName(d.crossingName);
+        else diamond->removeFromLegend();
+        ++crossoverMarkers_;
+    }
+
+    // The slider's line, on the moving layer.
+    plot_->setCurrentLayer(kMovingLayer);
+    highlightBand_ = addBand(plot_, {}, QBrush(estuary::withAlpha(estuary::ink, 0.10)));
+    highlightLine_ = plot_->addGraph();
+    highlightLine_->setSelectable(QCP::stNone);
+    if (d.highlightName.isEmpty()) highlightLine_->removeFromLegend();
+    else highlightLine_->setName(d.highlightName);
+    plot_->setCurrentLayer(QStringLiteral("main"));
+    setHighlight(highlight_, highlightSeries_, false);
+    fitLegend(plot_);
+    plot_->replot();
+}
+
+void LinesPlot::setHighlight(const std::vector<CurvePoint>& points, int series, bool replot) {
+    highlight_ = points;
+    highlightSeries_ = series;
+    if (!highlightLine_) return;
+    QPen pen;
+    if (series < 0) {
+        pen = QPen(estuary::ink);
+        pen.setWidthF(2.6);
+        highlightBand_->setBrush(QBrush(estuary::withAlpha(estuary::ink, 0.10)));
+    } else {
+        pen = estuary::seriesPen(series, 3.6, greyscale_);
+        highlightBand_->setBrush(Qt::NoBrush);
+    }
+    highlightLine_->setPen(pen);
+    setBandData(highlightBand_, series < 0 ? points : std::vector<CurvePoint>{});
+    setLineData(highlightLine_, points);
+    if (replot) movingLayer()->replot();
+}
+
+}  // namespace moderato::ui

@@ -1,0 +1,99 @@
+// The Lines plot: the predicted outcome against the focal predictor over
+// its observed range, one line (with its confidence band) per group or per
+// pinned moderator value, the observed data as translucent points (binned
+// into a grid of counts above 20,000 rows, so drawing stays fast), and the
+// crossover point of the lines (a hollow diamond with its interval as a
+// bracket) when the lines cross inside the data.
+//
+// One more line follows the moderator slider. It lives on the buffered
+// "moving" layer, so a drag frame redraws that layer only.
+#pragma once
+
+#include <QString>
+#include <QWidget>
+#include <utility>
+#include <vector>
+
+#include "moderato/probe_curves.hpp"
+#include "plots/figure_source.hpp"
+
+class QCustomPlot;
+class QCPLayer;
+class QCPGraph;
+
+namespace moderato::ui {
+
+struct LinesPlotData {
+    QString focalTitle, outcomeTitle;
+    struct Line {
+        QString name;
+        std::vector<CurvePoint> points;
+        int series = 0;                      // Estuary series index (colour, line style, marker)
+    };
+    std::vector<Line> lines;
+    QString highlightName;                   // legend entry of the slider's line
+    // Observed data (drawn when showPoints).
+    bool showPoints = false;
+    std::vector<double> pointsX, pointsY;
+    std::vector<int> pointsGroup;            // series index per point (empty: all 0)
+    bool pointsByGroup = false;              // colour points by group
+    struct Crossing {
+        double x = 0, y = 0;                 // where the lines meet
+        double lower = 0, upper = 0;         // its interval along the focal predictor
+        bool bounded = false;                // false: the interval is unbounded (drawn as a note)
+    };
+    std::vector<Crossing> crossings;         // only those inside the focal range
+    QString crossingName;                    // legend entry
+    std::pair<double, double> xRange{0, 1};
+    // Estimates the y axis must also take in (e.g. the slider's line at the ends of its range).
+    std::vector<CurvePoint> yExtent;
+};
+
+class LinesPlot : public QWidget, public FigureSource {
+    Q_OBJECT
+public:
+    explicit LinesPlot(QWidget* parent = nullptr);
+
+    // Rebuilds every layer and replots.
+    void setData(const LinesPlotData& data);
+    void clear();
+    // The slider's line (series < 0: ink; else that series' colour, drawn
+    // bolder); with `replot`, redraws the moving layer only.
+    void setHighlight(const std::vector<CurvePoint>& points, int series, bool replot = true);
+    QCPLayer* movingLayer() const;
+
+    int lineCount() const { return static_cast<int>(data_.lines.size()); }
+    int crossoverMarkerCount() const { return crossoverMarkers_; }
+    // How the data points are drawn: 0 none, 1 points, 2 binned counts.
+    int pointsMode() const { return pointsMode_; }
+    const LinesPlotData& data() const { return data_; }
+    const std::vector<CurvePoint>& highlight() const { return highlight_; }
+
+    QString figureName() const override { return tr("Lines plot"); }
+    QString figureKey() const override { return QStringLiteral("lines"); }
+    QCustomPlot* figurePlot() override { return plot_; }
+    void setGreyscale(bool on) override;
+
+    // Above this many rows the points are binned into a grid of counts.
+    static constexpr std::size_t kMaxPoints = 20000;
+
+protected:
+    void resizeEvent(QResizeEvent* event) override;
+
+private:
+    void rebuild();
+    void drawPoints(double ylo, double yhi);
+
+    QCustomPlot* plot_;
+    LinesPlotData data_;
+    bool hasData_ = false;
+    bool greyscale_ = false;
+    int crossoverMarkers_ = 0;
+    int pointsMode_ = 0;
+    std::vector<CurvePoint> highlight_;
+    int highlightSeries_ = -1;
+    QCPGraph* highlightLine_ = nullptr;
+    QCPGraph* highlightBand_ = nullptr;
+};
+
+}  // namespace moderato::ui

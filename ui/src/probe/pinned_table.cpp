@@ -1,0 +1,175 @@
+#include "probe/pinned_table.hpp"
+
+#include <QAction>
+#include <QApplication>
+#include <QClipboard>
+#include <QHBoxLayout>
+#include <QHeaderView>
+#include <QItemSelectionModel>
+#include <QLabel>
+#include <QScrollBar>
+#include <algorithm>
+#include <QTableView>
+#include <QToolButton>
+#include <QVBoxLayout>
+#include <set>
+
+#include "probe/number_format.hpp"
+#include "shell/table_clipboard.hpp"
+#include "style/estuary.hpp"
+
+namespace moderato::ui {
+
+void PinnedTableModel::setRows(std::vector<Row> rows, const QString& moderator, const QString& statistic,
+                               const QString& interval) {
+    beginResetModel();
+    rows_ = std::move(rows);
+    moderator_ = moderator;
+    statistic_ = statistic;
+    interval_ = interval;
+    endResetModel();
+}
+
+int PinnedTableModel::rowCount(const QModelIndex& parent) const {
+    return parent.isValid() ? 0 : static_cast<int>(rows_.size());
+}
+int PinnedTableModel::columnCount(const QModelIndex& parent) const { return parent.isValid() ? 0 : ColumnCount; }
+
+QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
+    if (!index.isValid() || index.row() >= static_cast<int>(rows_.size())) return {};
+    const Row& r = rows_[static_cast<std::size_t>(index.row())];
+    const EffectPoint& e = r.point;
+    if (role == Qt::DisplayRole) {
+        switch (index.column()) {
+        case Value: return r.label;
+        case Effect: return formatNumber(e.effect);
+        case SE: return formatNumber(e.std_error);
+        case Statistic: return formatNumber(e.statistic, 3);
+        case P: return formatP(e.p_value);
+        case Lower: return formatNumber(e.ci_lower);
+        case Upper: return formatNumber(e.ci_upper);
+        case Note: return e.beyond_data ? tr("beyond the data") : QString();
+        }
+    }
+    if (role == Qt::TextAlignmentRole)
+        return QVariant::fromValue(index.column() == Value || index.column() == Note ? Qt::AlignLeft | Qt::AlignVCenter
+                                                                                     : Qt::AlignRight | Qt::AlignVCenter);
+    if (role == Qt::ForegroundRole && index.column() == Note) return QColor(estuary::notSignificant).darker(140);
+    if (role == Qt::BackgroundRole && e.beyond_data) return QColor(estuary::beyond);
+    if (role == Qt::FontRole && e.beyond_data) {
+        QFont f;
+        f.setItalic(true);
+        return f;
+    }
+    if (role == Qt::ToolTipRole) {
+        if (e.beyond_data) return tr("This value lies outside the observed range of the moderator: an extrapolation.");
+        if (!r.pinned) return tr("Shown until you pin a value of your own");
+    }
+    return {};
+}
+
+QVariant PinnedTableModel::headerData(int section, Qt::Orientation orientation, int role) const {
+    if (orientation == Qt::Horizontal && role == Qt::ToolTipRole && section == Value) return moderator_;
+    if (orientation != Qt::Horizontal || role != Qt::DisplayRole) return {};
+    switch (section) {
+    case Value: return moderator_;
+    case Effect: return tr("effect");
+    case SE: return tr("SE");
+    case Statistic: return statistic_;
+    case P: return tr("p");
+    case Lower: return tr("%1 low").arg(interval_);
+    case Upper: return tr("%1 high").arg(interval_);
+    case Note: return tr("note");
+    }
+    return {};
+}
+
+PinnedTable::PinnedTable(QWidget* parent)
+    : QWidget(parent), model_(new PinnedTableModel(this)), view_(new QTableView(this)), caption_(new QLabel(this)),
+      remove_(new QToolButton(this)), copy_(new QToolButton(this)) {
+    auto* layout = new QVBoxLayout(this);
+    layout->setContentsMargins(0, 0, 0, 0);
+    layout->setSpacing(4);
+    auto* header = new QHBoxLayout;
+    auto* title = new QLabel(tr("<b>Pinned values</b>"), this);
+    header->addWidget(title);
+    header->addStretch(1);
+    remove_->setText(tr("Remove"));
+    remove_->setToolTip(tr("Remove the selected pinned values (Delete)"));
+    copy_->setText(tr("Copy"));
+    copy_->setToolTip(tr("Copy the table (or the selected cells) as tab-separated text"));
+    remove_->setObjectName(QStringLiteral("pinned-remove"));
+    copy_->setObjectName(QStringLiteral("pinned-copy"));
+    header->addWidget(remove_);
+    header->addWidget(copy_);
+    layout->addLayout(header);
+    caption_->setWordWrap(true);
+    QFont small = caption_->font();
+    small.setPointSizeF(small.pointSizeF() * 0.9);
+    caption_->setFont(small);
+    caption_->setForegroundRole(QPalette::PlaceholderText);
+    layout->addWidget(caption_);
+    view_->setObjectName(QStringLiteral("pinned-table"));
+    view_->setModel(model_);
+    view_->setSelectionBehavior(QAbstractItemView::SelectRows);
+    view_->setSelectionMode(QAbstractItemView::ExtendedSelection);
+    view_->verticalHeader()->hide();
+    view_->horizontalHeader()->setSectionResizeMode(QHeaderView::ResizeToContents);
+    view_->horizontalHeader()->setStretchLastSection(true);
+    // On screen a row beyond the data is shaded and in italics (the caption says
+    // so); the "beyond the data" column is kept for the copied text.
+    view_->setColumnHidden(PinnedTableModel::Note, true);
+    view_->setAlternatingRowColors(false);
+    view_->setWordWrap(false);
+    view_->setFont(small);
+    view_->horizontalHeader()->setFont(small);
+    view_->verticalHeader()->setDefaultSectionSize(QFontMetrics(small).height() + 6);
+    layout->addWidget(view_);
+    auto* del = new QAction(this);
+    del->setShortcuts({QKeySequence::Delete, QKeySequence(Qt::Key_Backspace)});
+    del->setShortcutContext(Qt::WidgetShortcut);
+    view_->addAction(del);
+    connect(del, &QAction::triggered, this, &PinnedTable::removeSelected);
+    connect(remove_, &QToolButton::clicked, this, &PinnedTable::removeSelected);
+    connect(copy_, &QToolButton::clicked, this, [this] { QApplication::clipboard()->setText(tsv()); });
+    connect(model_, &QAbstractItemModel::modelReset, this, &PinnedTable::updateButtons);
+    connect(model_, &QAbstractItemModel::modelReset, this, &PinnedTable::fitHeight);
+    connect(view_->selectionModel(), &QItemSelectionModel::selectionChanged, this, &PinnedTable::updateButtons);
+    updateButtons();
+    fitHeight();
+}
+
+void PinnedTable::setCaption(const QString& text) {
+    caption_->setText(text);
+    caption_->setVisible(!text.isEmpty());
+}
+
+QString PinnedTable::tsv() const { return tableSelectionAsTsv(view_); }
+
+void PinnedTable::removeSelected() {
+    std::set<int> pins;
+    for (const QModelIndex& i : view_->selectionModel()->selectedRows()) {
+        const auto& r = model_->rows()[static_cast<std::size_t>(i.row())];
+        if (r.pinned && r.pinIndex >= 0) pins.insert(r.pinIndex);
+    }
+    if (!pins.empty()) Q_EMIT removeRequested(std::vector<int>(pins.begin(), pins.end()));
+}
+
+void PinnedTable::fitHeight() {
+    // As tall as its rows (two to twelve of them), so the panel below stays close.
+    const int rows = std::clamp(model_->rowCount(), 2, 12);
+    const int h = view_->horizontalHeader()->sizeHint().height() + rows * view_->verticalHeader()->defaultSectionSize() +
+                  2 * view_->frameWidth() + view_->horizontalScrollBar()->sizeHint().height() + 2;
+    view_->setFixedHeight(h);
+}
+
+void PinnedTable::updateButtons() {
+    bool any = false;
+    if (view_->selectionModel())
+        for (const QModelIndex& i : view_->selectionModel()->selectedRows())
+            any |= model_->rows()[static_cast<std::size_t>(i.row())].pinned;
+    remove_->setEnabled(any);
+    copy_->setEnabled(model_->rowCount() > 0);
+}
+
+}  // namespace moderato::ui

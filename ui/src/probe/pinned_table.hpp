@@ -1,0 +1,70 @@
+// The pick-a-point table: the conditional effect at each pinned moderator
+// value (or, before anything is pinned, at the defaults core chose: mean and
+// ± 1 SD; for groups, every group), with SE, test, p, interval and a
+// "beyond the data" flag. Pinned rows can be removed; the table copies as
+// tab-separated text.
+#pragma once
+
+#include <QAbstractTableModel>
+#include <QWidget>
+#include <vector>
+
+#include "moderato/probe.hpp"
+
+class QLabel;
+class QTableView;
+class QToolButton;
+
+namespace moderato::ui {
+
+class PinnedTableModel : public QAbstractTableModel {
+    Q_OBJECT
+public:
+    enum Column { Value, Effect, Lower, Upper, SE, Statistic, P, Note, ColumnCount };
+    struct Row {
+        QString label;          // the moderator value as shown ("23.1", "North", "mean − 1 SD: 23.1")
+        EffectPoint point;
+        bool pinned = false;    // removable
+        int pinIndex = -1;      // index into ProbeSettings.pinned
+    };
+    using QAbstractTableModel::QAbstractTableModel;
+    void setRows(std::vector<Row> rows, const QString& moderator, const QString& statistic, const QString& interval);
+    const std::vector<Row>& rows() const { return rows_; }
+
+    int rowCount(const QModelIndex& parent = {}) const override;
+    int columnCount(const QModelIndex& parent = {}) const override;
+    QVariant data(const QModelIndex& index, int role) const override;
+    QVariant headerData(int section, Qt::Orientation orientation, int role) const override;
+
+private:
+    std::vector<Row> rows_;
+    QString moderator_, statistic_, interval_;
+};
+
+class PinnedTable : public QWidget {
+    Q_OBJECT
+public:
+    explicit PinnedTable(QWidget* parent = nullptr);
+    PinnedTableModel* model() const { return model_; }
+    QTableView* view() const { return view_; }
+    void setCaption(const QString& text);
+    // The selection (or everything) as tab-separated text; also put on the clipboard by Copy.
+    QString tsv() const;
+
+Q_SIGNALS:
+    // The user asked to remove these pinned values (indices into ProbeSettings.pinned).
+    void removeRequested(const std::vector<int>& pinIndices);
+
+private:
+    void removeSelected();
+    void updateButtons();
+    void fitHeight();
+
+    PinnedTableModel* model_;
+    QTableView* view_;
+    QLabel* caption_;
+    QToolButton* remove_;
+    QToolButton* copy_;
+};
+
+}  // namespace moderato::ui

@@ -1,0 +1,150 @@
+#include "probe/probe_engine.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+namespace moderato::ui {
+
+ProbeEngine::ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis& analysis)
+    : run_(std::move(run)), analysis_(analysis) {
+    if (!valid()) return;
+    const Design& d = run_->design;
+    const ProbeResult& p = probe();
+
+    held_ = typical_values(d);
+    request_.focal = focal();
+    request_.moderator = moderator();
+    request_.averaging = p.averaging == "values" ? Averaging::AtValues : Averaging::Sample;
+    const std::string& second = analysis_.roles.second_moderator;
+    if (!second.empty()) {
+        const double v = std::isnan(analysis_.probe.second_value) ? d.summaries.at(second).mean
+                                                                   : analysis_.probe.second_value;
+        held_[second] = v;
+        request_.values[second] = v;
+    }
+
+    const Table& t = *run_->table;
+    const Column& focalColumn = t.at(focal());
+    const Column& moderatorColumn = t.at(moderator());
+    const CategoricalInfo* cat = d.categorical(moderator());
+    if (groups()) {
+        if (cat) {
+            groupNames_ = cat->levels;
+            for (std::size_t k = 0; k < cat->levels.size(); ++k) groupValues_.push_back(static_cast<double>(k));
+        } else {
+            groupNames_ = {"0", "1"};
+            groupValues_ = {0.0, 1.0};
+        }
+    }
+
+    const std::size_t n = d.n();
+    pointsX_.resize(n);
+    pointsY_.resize(n);
+    pointsGroup_.assign(n, 0);
+    if (!cat) moderatorValues_.resize(n);
+    std::vector<int> codeToGroup;
+    if (cat) {
+        codeToGroup.assign(moderatorColumn.levels.size(), 0);
+        for (std::size_t c = 0; c < moderatorColumn.levels.size(); ++c)
+            codeToGroup[c] = std::max(0, d.level_index(moderator(), moderatorColumn.levels[c]));
+    }
+    for (std::size_t i = 0; i < n; ++i) {
+        const std::size_t r = d.rows[i];
+        pointsX_[i] = focalColumn.numbers[r];
+        pointsY_[i] = d.y[static_cast<Eigen::Index>(i)];
+        if (cat) {
+            const int code = moderatorColumn.codes[r];
+            pointsGroup_[i] = code >= 0 ? codeToGroup[static_cast<std::size_t>(code)] : 0;
+        } else {
+            const double m = moderatorColumn.numbers[r];
+            moderatorValues_[i] = m;
+            if (groups()) pointsGroup_[i] = m == 1.0 ? 1 : 0;
+        }
+    }
+
+    if (!groups()) {
+        // The Effect plot shows a margin beyond the observed range, widened to
+        // take in boundaries and pinned values that lie not too far outside.
+        const auto [lo, hi] = p.observed_range;
+        const double w = hi > lo ? hi - lo : 1.0;
+        double a = lo - 0.12 * w, b = hi + 0.12 * w;
+        std::vector<double> extra;
+        if (p.johnson_neyman) extra = p.johnson_neyman->boundaries;
+        for (const auto& e : p.effects) extra.push_back(e.moderator_value);
+        for (double v : extra) {
+            if (!std::isfinite(v) || v < lo - 0.5 * w || v > hi + 0.5 * w) continue;
+            a = std::min(a, v - 0.05 * w);
+            b = std::max(b, v + 0.05 * w);
+        }
+        axisRange_ = {a, b};
+    } else {
+        axisRange_ = {-0.5, static_cast<double>(groupNames_.size()) - 0.5};
+    }
+}
+
+double ProbeEngine::defaultValue() const { return groups() ? 0.0 : probe().moderator_mean; }
+
+EffectPoint ProbeEngine::effectAt(double m) const {
+    const ProbeResult& p = probe();
+    if (groups()) {
+        const long k = std::lround(m);
+        const std::size_t idx = static_cast<std::size_t>(std::clamp(k, 0L, static_cast<long>(p.effects.size()) - 1));
+        return p.effects.at(idx);
+    }
+    if (probability()) {
+        EffectPoint e = probability_effect(run_->design, run_->fit, request_, m);
+        e.beyond_data = m < p.observed_range.first || m > p.observed_range.second;
+        return e;
+    }
+    return effect_at(p.effect_function, m, run_->fit, p.observed_range);
+}
+
+bool ProbeEngine::effectIsCheap() const { return !probability() || run_->design.n() <= kLiveProbabilityRows; }
+
+std::map<std::string, double> ProbeEngine::heldValues(double moderatorValue) const {
+    auto v = held_;
+    v[moderator()] = moderatorValue;
+    return v;
+}
+
+std::vector<CurvePoint> ProbeEngine::lineAt(double moderatorValue, int points) const {
+    const auto [lo, hi] = focalRange();
+    return prediction_line(run_->design, run_->fit, focal(), heldValues(moderatorValue), even_grid(lo, hi, points),
+                           probability());
+}
+
+std::vector<CurvePoint> ProbeEngine::effectCurve(bool simultaneous, int points) const {
+    const ProbeResult& p = probe();
+    if (groups()) return {};
+    if (probability()) {
+        if (run_->design.n() > kLiveProbabilityRows) points = std::min(points, 41);
+        std::vector<CurvePoint> out;
+        for (double m : even_grid(axisRange_.first, axisRange_.second, points)) {
+            const EffectPoint e = probability_effect(run_->design, run_->fit, request_, m);
+            out.push_back({m, e.effect, e.std_error, e.ci_lower, e.ci_upper});
+        }
+        return out;
+    }
+    const double q = simultaneous && p.simultaneous ? p.simultaneous->critical_value : p.critical_t;
+    return effect_band(p.effect_function, even_grid(axisRange_.first, axisRange_.second, points), q);
+}
+
+const SignificanceRegions* ProbeEngine::regions(bool simultaneous) const {
+    const ProbeResult& p = probe();
+    if (simultaneous && p.simultaneous) return &*p.simultaneous;
+    if (p.johnson_neyman) return &*p.johnson_neyman;
+    return nullptr;
+}
+
+std::vector<double> ProbeEngine::rug(std::size_t max) const {
+    std::vector<double> v = moderatorValues_;
+    std::sort(v.begin(), v.end());
+    v.erase(std::unique(v.begin(), v.end()), v.end());
+    if (v.size() <= max || max < 2) return v;
+    std::vector<double> out;
+    out.reserve(max);
+    for (std::size_t k = 0; k < max; ++k) out.push_back(v[k * (v.size() - 1) / (max - 1)]);
+    return out;
+}
+
+}  // namespace moderato::ui

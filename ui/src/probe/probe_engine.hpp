@@ -1,0 +1,99 @@
+// What the Probe section draws, asked of core for one analysis run: the
+// effect at a moderator value (on the cached EffectFunction, or core's
+// probability_effect on the probability scale), prediction lines along the
+// focal predictor, the effect curve with its band, and the observed data the
+// plots show. No statistics are computed here; this only chooses the inputs.
+#pragma once
+
+#include <memory>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "moderato/analysis_run.hpp"
+#include "moderato/probe_curves.hpp"
+#include "moderato/response_scale.hpp"
+
+namespace moderato::ui {
+
+class ProbeEngine {
+public:
+    ProbeEngine() = default;
+    // `run` must hold a probe (Continuous or Groups kind).
+    ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis& analysis);
+
+    bool valid() const { return run_ && run_->probe; }
+    const AnalysisRun& run() const { return *run_; }
+    const ProbeResult& probe() const { return *run_->probe; }
+    const Analysis& analysis() const { return analysis_; }
+
+    bool groups() const { return run_->kind == ProbeKind::Groups; }
+    bool probability() const { return probe().scale == "response"; }
+    bool logistic() const { return run_->fit.family == Family::Logistic; }
+    const std::string& focal() const { return analysis_.roles.focal; }
+    const std::string& moderator() const { return analysis_.roles.moderator; }
+    const std::string& outcome() const { return analysis_.roles.outcome; }
+
+    // Groups: the group names and the moderator value of each (level index
+    // for a categorical moderator, 0/1 for a 0/1 column).
+    const std::vector<std::string>& groupNames() const { return groupNames_; }
+    const std::vector<double>& groupValues() const { return groupValues_; }
+
+    // Continuous: the moderator's observed range (used rows) and the Effect
+    // plot's axis range (wider, so the part beyond the data shows).
+    std::pair<double, double> observedRange() const { return probe().observed_range; }
+    std::pair<double, double> axisRange() const { return axisRange_; }
+    std::pair<double, double> focalRange() const { return probe().focal_range; }
+    double defaultValue() const;   // the moderator's mean (Groups: the first group)
+
+    // The effect at moderator value m (Groups: m is the group index). Link
+    // scale: O(p^2) on the cached effect function. Probability scale: core's
+    // probability_effect, O(n p).
+    EffectPoint effectAt(double m) const;
+    // Whether effectAt is cheap enough for every frame of a drag.
+    bool effectIsCheap() const;
+
+    // Held values with the moderator at m (second moderator at its held value,
+    // the rest at means / reference levels).
+    std::map<std::string, double> heldValues(double moderatorValue) const;
+    // The predicted outcome along the focal predictor (its observed range)
+    // with the moderator at `moderatorValue` (Groups: the group's value).
+    std::vector<CurvePoint> lineAt(double moderatorValue, int points = 64) const;
+
+    // Effect curve with its band over the axis range: pointwise (the fit's
+    // critical value) or the simultaneous band. Probability scale: core's
+    // probability_effect on a grid (pointwise only).
+    std::vector<CurvePoint> effectCurve(bool simultaneous, int points = 161) const;
+    // Whether the simultaneous band exists for this result (link scale, numeric non-0/1 moderator).
+    bool hasSimultaneous() const { return probe().simultaneous.has_value(); }
+    // The regions of significance for the band shown (nullptr when none).
+    const SignificanceRegions* regions(bool simultaneous) const;
+
+    // Observed data on the used rows: focal values, outcome values and the
+    // group index of each row (Groups; else 0).
+    const std::vector<double>& pointsX() const { return pointsX_; }
+    const std::vector<double>& pointsY() const { return pointsY_; }
+    const std::vector<int>& pointsGroup() const { return pointsGroup_; }
+    // Distinct observed moderator values, at most `max` of them (evenly spaced
+    // ranks of the sorted distinct values, so the rug keeps its shape).
+    std::vector<double> rug(std::size_t max = 2000) const;
+
+    const ScaleRequest& scaleRequest() const { return request_; }
+
+private:
+    std::shared_ptr<const AnalysisRun> run_;
+    Analysis analysis_;
+    ScaleRequest request_;
+    std::map<std::string, double> held_;
+    std::vector<std::string> groupNames_;
+    std::vector<double> groupValues_;
+    std::pair<double, double> axisRange_{0, 1};
+    std::vector<double> pointsX_, pointsY_, moderatorValues_;
+    std::vector<int> pointsGroup_;
+};
+
+// Rows above which a probability-scale effect is recomputed on release
+// instead of on every frame of a drag.
+inline constexpr std::size_t kLiveProbabilityRows = 50000;
+
+}  // namespace moderato::ui
