@@ -3,12 +3,19 @@
 #include <gtest/gtest.h>
 
 #include <QApplication>
+#include <QSettings>
 #include <QStandardPaths>
+#include <QTemporaryDir>
 
 int main(int argc, char** argv) {
     if (qEnvironmentVariableIsEmpty("QT_QPA_PLATFORM")) qputenv("QT_QPA_PLATFORM", "offscreen");
-    // Settings and recent files of the tests never touch the user's own.
+    // Settings and recent files of the tests never touch the user's own, and
+    // each test process has its own (ctest runs tests in parallel processes,
+    // which would otherwise share one settings file).
     QStandardPaths::setTestModeEnabled(true);
+    QTemporaryDir settingsDir;
+    QSettings::setPath(QSettings::NativeFormat, QSettings::UserScope, settingsDir.path());
+    QSettings::setPath(QSettings::IniFormat, QSettings::UserScope, settingsDir.path());
     QApplication app(argc, argv);
     QApplication::setOrganizationName(QStringLiteral("Moderato-tests"));
     QApplication::setApplicationName(QStringLiteral("Moderato-tests"));

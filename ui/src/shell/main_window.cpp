@@ -143,7 +143,14 @@ MainWindow::MainWindow(QWidget* parent)
     updateTitle();
 }
 
-MainWindow::~MainWindow() { runner_->waitForIdle(); }
+MainWindow::~MainWindow() {
+    runner_->waitForIdle();
+    // The children (document, pages, actions) are deleted after this body, in
+    // creation order; the undo stack signals while it is destroyed, so nothing
+    // may still be listening to the document or its stack by then.
+    doc_->undoStack()->disconnect();
+    doc_->disconnect();
+}
 
 void MainWindow::buildMenus() {
     QMenu* file = menuBar()->addMenu(tr("&File"));
