@@ -91,13 +91,21 @@ public:
             p.setColor(QPalette::WindowText, app.color(QPalette::WindowText));
             p.setColor(QPalette::Text, app.color(QPalette::Text));
         }
+        if (p == widget_->palette() && p.resolveMask() == widget_->palette().resolveMask()) return;
+        applying_ = true;
         widget_->setPalette(p);
+        applying_ = false;
     }
     bool muted_ = false;
 
 protected:
     bool eventFilter(QObject* o, QEvent* e) override {
-        if (o == widget_ && e->type() == QEvent::ApplicationPaletteChange) apply();
+        // The application palette changed (a light or dark desktop): the quiet
+        // colour is recomputed from it. Setting it sends one more PaletteChange,
+        // which finds nothing left to change.
+        if (o == widget_ && !applying_ &&
+            (e->type() == QEvent::ApplicationPaletteChange || e->type() == QEvent::PaletteChange))
+            apply();
         return false;
     }
 
@@ -105,6 +113,7 @@ private:
     QPointer<QWidget> widget_;
     QPalette::ColorRole background_;
     QColor accent_;
+    bool applying_ = false;
 };
 
 TextColourKeeper* keeper(QWidget* w, QPalette::ColorRole background) {
