@@ -34,6 +34,7 @@
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/app_style.hpp"
+#include "shell/figure_caption.hpp"
 #include "shell/main_window.hpp"
 #include "style/palette_text.hpp"
 #include "ui_test_util.hpp"
@@ -379,6 +380,11 @@ TEST(ProbePolish, SecondModeratorHeldValueIsOneUndoableEditMatchingCore) {
     EXPECT_EQ(win.undo()->count(), steps + 2);
     EXPECT_TRUE(s->readoutText().contains(QStringLiteral("slope_pct held at 4"))) << s->readoutText().toStdString();
     checkAt(4.0);
+    // An exported figure's caption says so too.
+    const auto run = win.w.runner()->result(win.id);
+    ASSERT_TRUE(run);
+    EXPECT_TRUE(figureCaption(win.analysis(), *run).contains(QStringLiteral("slope_pct held at 4 ·")))
+        << figureCaption(win.analysis(), *run).toStdString();
     if (!qEnvironmentVariable("MODERATO_SCREENSHOT_DIR").isEmpty())
         win.w.grab().save(qEnvironmentVariable("MODERATO_SCREENSHOT_DIR") + QStringLiteral("/three-way-probe.png"));
 
@@ -676,4 +682,71 @@ TEST(ProbePolish, LogisticProbeSaysWhichScaleAndShowsTheProbabilityInteraction) 
                                               .arg(g4(b[b12]))))
         << s->summaryText().toStdString();
     saveScreenshot(win.w, QStringLiteral("logistic-log-odds"));
+}
+
+TEST(ProbePolish, CategoricalSecondModeratorIsHeldAtALevel) {
+    // Core's ProbeSpec.second_value for a categorical column is a level index (reference = 0).
+    const QString path = test::sampleProject(QStringLiteral("trial-conversion"));
+    Window win(path);
+    ProbeSection* s = win.section;
+    const auto edit = [](Analysis& a) {
+        a.roles.second_moderator = "region";
+        a.roles.controls.clear();
+        a.probe.scale = "link";
+    };
+    Analysis a = win.analysis();
+    edit(a);
+    win.w.document()->setAnalysis(a, QStringLiteral("Make region the second moderator"));
+    ASSERT_TRUE(test::waitUntil([&] { return s->heldValueControl()->isVisible() && s->engine().valid(); }));
+    ASSERT_TRUE(win.waitForRun());
+    const Direct base = direct(path, edit);
+    const CategoricalInfo* cat = base.design.categorical("region");
+    ASSERT_NE(cat, nullptr);
+    QComboBox* levels = s->heldValueControl()->levelChoice();
+    ASSERT_TRUE(levels->isVisible());
+    ASSERT_EQ(levels->count(), static_cast<int>(cat->levels.size()));
+    EXPECT_FALSE(s->heldValueControl()->valueBox()->isVisible());
+    EXPECT_TRUE(s->readoutText().contains(QStringLiteral("region held at '%1' (reference level)")
+                                              .arg(QString::fromStdString(cat->reference))))
+        << s->readoutText().toStdString();
+
+    // The next level, chosen with the keyboard: one undo step holding region at level index 1.
+    levels->setFocus();
+    QTest::keyClick(levels, Qt::Key_Down);
+    ASSERT_TRUE(test::waitUntil([&] { return s->engine().analysis().probe.second_value == 1.0; }));
+    const QString level1 = QString::fromStdString(cat->levels[1]);
+    EXPECT_TRUE(s->readoutText().contains(QStringLiteral("region held at '%1'").arg(level1)))
+        << s->readoutText().toStdString();
+    const double m = s->currentModeratorValue();
+    // Source: core probe() with ProbeSpec.second_value = 1 on the same data.
+    const Direct core = direct(path, [&](Analysis& x) {
+        edit(x);
+        x.probe.second_value = 1;
+    });
+    const EffectPoint expected = effect_at(core.probe.effect_function, m, core.fit, core.probe.observed_range);
+    EXPECT_LE(rel(s->currentEffect().effect, expected.effect), 1e-10);
+    EXPECT_LE(rel(s->currentEffect().std_error, expected.std_error), 1e-10);
+
+    // The probability scale holds the same level. Source: core probability_effect with region at index 1.
+    a = win.analysis();
+    a.probe.scale = "response";
+    win.w.document()->setAnalysis(a, QStringLiteral("Probe on the probability scale"));
+    ASSERT_TRUE(test::waitUntil([&] { return s->engine().valid() && s->engine().probability(); }));
+    ASSERT_TRUE(win.w.runner()->error(win.id).isEmpty()) << win.w.runner()->error(win.id).toStdString();
+    ScaleRequest req;
+    req.focal = "setup_sessions";
+    req.moderator = "employees";
+    req.values["region"] = 1;
+    const EffectPoint p = probability_effect(core.design, core.fit, req, s->currentModeratorValue());
+    EXPECT_LE(rel(s->currentEffect().effect, p.effect), 1e-10);
+    EXPECT_LE(rel(s->currentEffect().std_error, p.std_error), 1e-10);
+    // And with no level chosen, core's probability probe holds region at its reference level (index 0).
+    ProbeSpec ps;
+    ps.focal = "setup_sessions";
+    ps.moderator = "employees";
+    ps.second_moderator = "region";
+    const ProbeResult atReference = probe_response(core.design, core.fit, ps, Averaging::Sample);
+    req.values["region"] = 0;
+    const EffectPoint p0 = probability_effect(core.design, core.fit, req, atReference.effects.front().moderator_value);
+    EXPECT_LE(rel(atReference.effects.front().effect, p0.effect), 1e-12);
 }

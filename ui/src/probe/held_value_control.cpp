@@ -36,6 +36,23 @@ QString heldValueLabel(double value, double mean, double sd, const QStringList& 
     return tag.isEmpty() ? formatNumber(v) : QStringLiteral("%1 (%2)").arg(formatNumber(v), tag);
 }
 
+QString heldValueText(const Analysis& a, const Design& d) {
+    const std::string& second = a.roles.second_moderator;
+    if (second.empty()) return {};
+    const double v = a.probe.second_value;
+    QString value;
+    if (const CategoricalInfo* cat = d.categorical(second)) {
+        QStringList levels;
+        for (const auto& l : cat->levels) levels << QString::fromStdString(l);
+        value = heldValueLabel(v, 0, 0, levels);
+    } else {
+        const auto it = d.summaries.find(second);
+        if (it == d.summaries.end()) return {};
+        value = heldValueLabel(v, it->second.mean, it->second.sd, {}, d.is_binary(second));
+    }
+    return QObject::tr("%1 held at %2").arg(QString::fromStdString(second), value);
+}
+
 HeldValueControl::HeldValueControl(QWidget* parent)
     : QWidget(parent), name_(new QLabel(this)), box_(new QDoubleSpinBox(this)), levels_(new QComboBox(this)),
       meanMinus_(new QToolButton(this)), mean_(new QToolButton(this)), meanPlus_(new QToolButton(this)) {
@@ -73,6 +90,13 @@ HeldValueControl::HeldValueControl(QWidget* parent)
     connect(levels_, &QComboBox::activated, this, [this](int i) { Q_EMIT valueChosen(levels_->itemData(i).toDouble()); });
 }
 
+void HeldValueControl::relayout() {
+    // Which parts show changes with the kind of column: lay them out again now.
+    layout()->invalidate();
+    layout()->activate();
+    updateGeometry();
+}
+
 QToolButton* HeldValueControl::presetButton(const QString& key) const {
     if (key == QStringLiteral("mean-sd")) return meanMinus_;
     if (key == QStringLiteral("mean")) return mean_;
@@ -94,6 +118,7 @@ void HeldValueControl::setNumeric(const QString& name, double mean, double sd, d
     box_->setVisible(true);
     levels_->setVisible(false);
     for (QToolButton* b : {meanMinus_, mean_, meanPlus_}) b->setVisible(true);
+    relayout();
     updating_ = false;
 }
 
@@ -116,6 +141,7 @@ void HeldValueControl::setLevels(const QString& name, const QStringList& levels,
     box_->setVisible(false);
     levels_->setVisible(true);
     for (QToolButton* b : {meanMinus_, mean_, meanPlus_}) b->setVisible(false);
+    relayout();
     updating_ = false;
 }
 

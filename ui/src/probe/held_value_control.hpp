@@ -10,6 +10,9 @@
 #include <QWidget>
 #include <limits>
 
+#include "moderato/design.hpp"
+#include "moderato/project.hpp"
+
 class QComboBox;
 class QDoubleSpinBox;
 class QLabel;
@@ -37,6 +40,8 @@ Q_SIGNALS:
     void valueChosen(double value);
 
 private:
+    void relayout();
+
     QLabel* name_;
     QDoubleSpinBox* box_;
     QComboBox* levels_;
@@ -51,5 +56,9 @@ private:
 // "'EU'", "'APAC' (reference level)", "1", "0.43 (mean)". `value` NaN: the
 // default (mean, or reference level).
 QString heldValueLabel(double value, double mean, double sd, const QStringList& levels = {}, bool zeroOne = false);
+
+// "slope_pct held at 32.5 (mean + 1 SD)" for an analysis with a second
+// moderator (its held value described from the fitted design); empty without one.
+QString heldValueText(const Analysis& analysis, const Design& design);
 
 }  // namespace moderato::ui

@@ -41,6 +41,7 @@ QString q(const std::string& s) { return QString::fromStdString(s); }
 QLabel* plotTitle(QWidget* parent) {
     auto* l = new QLabel(parent);
     l->setTextFormat(Qt::RichText);
+    l->setWordWrap(true);  // a long subtitle (held values, long names) wraps instead of being cut off
     l->setContentsMargins(4, 2, 4, 0);
     return l;
 }
@@ -361,21 +362,7 @@ QString ProbeSection::outcomeWhat() const {
 
 QString ProbeSection::heldText() const {
     if (!engine_.valid()) return {};
-    const std::string& second = shown_.roles.second_moderator;
-    if (second.empty()) return {};
-    const Design& d = run_->design;
-    const double v = shown_.probe.second_value;
-    QString value;
-    if (const CategoricalInfo* cat = d.categorical(second)) {
-        QStringList levels;
-        for (const auto& l : cat->levels) levels << q(l);
-        value = heldValueLabel(v, 0, 0, levels);
-    } else {
-        const auto it = d.summaries.find(second);
-        if (it == d.summaries.end()) return {};
-        value = heldValueLabel(v, it->second.mean, it->second.sd, {}, d.is_binary(second));
-    }
-    return tr("%1 held at %2").arg(q(second), value);
+    return heldValueText(shown_, run_->design);
 }
 
 void ProbeSection::fillHeldValue() {
@@ -423,7 +410,7 @@ void ProbeSection::fillReadoutContext() {
     if (simultaneousShown())
         statement += tr(" · band: %1 simultaneous (critical value %2)")
                          .arg(level, formatNumber(p.simultaneous->critical_value, 3));
-    statement += tr(" · n = %1").arg(QLocale(QLocale::English).toString(static_cast<qulonglong>(run_->fit.n)));
+    statement += tr(" · n\u00A0=\u00A0%1").arg(QLocale(QLocale::English).toString(static_cast<qulonglong>(run_->fit.n)));
     readout_->setContext(effectTitle(), statisticName(p.df), tr("%1 CI").arg(level), statement);
 
     const QString f = escaped(q(engine_.focal())), mod = escaped(q(engine_.moderator()));
@@ -439,8 +426,8 @@ void ProbeSection::fillReadoutContext() {
                                  .arg(muted, yWhat, f,
                                       engine_.groups() ? tr("group of %1").arg(mod) : tr("value of %1").arg(mod), with));
     effectTitle_->setText(
-        tr("<b>Effect plot</b> &nbsp;<span style='color:%1'>effect of %2 on %3 against %4%5 · drag to move the moderator</span>")
-            .arg(muted, f, yWhat, mod, with));
+        tr("<b>Effect plot</b> &nbsp;<span style='color:%1'>effect of %2 against %3%4 · drag to move the moderator</span>")
+            .arg(muted, f, mod, with));
 }
 
 void ProbeSection::buildPlots() {
