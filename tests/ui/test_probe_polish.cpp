@@ -20,6 +20,7 @@
 #include <cmath>
 #include <qcustomplot.h>
 
+#include "data/dataset_page.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "moderato/analysis_run.hpp"
@@ -589,9 +590,18 @@ TEST(ProbePolish, SwitchingToDarkWhileOpenRecoloursQuietText) {
     PaletteScope scope(QApplication::style()->standardPalette());
     Window win(path);
     // The default pinned rows include mean − 1 SD, which lies beyond the data: a shaded row.
+    {
+        PaletteScope dark(darkDesktopPalette());
+        for (int i = 0; i < 10; ++i) QCoreApplication::processEvents();
+        expectReadable(win.section, QStringLiteral("switched to dark"));
+    }
+    // The dataset page, on screen while the desktop turns dark.
+    win.w.showDataset(QString::fromStdString(win.w.document()->project().datasets.front().id));
+    for (int i = 0; i < 10; ++i) QCoreApplication::processEvents();
+    expectReadable(win.w.datasetPage(), QStringLiteral("dataset page, light again"));
     PaletteScope dark(darkDesktopPalette());
     for (int i = 0; i < 10; ++i) QCoreApplication::processEvents();
-    expectReadable(win.section, QStringLiteral("switched to dark"));
+    expectReadable(win.w.datasetPage(), QStringLiteral("dataset page switched to dark"));
 }
 
 TEST(ProbePolish, ReadableOnMovesAColourJustFarEnough) {

@@ -1,5 +1,6 @@
 #include "data/dataset_page.hpp"
 
+#include <QEvent>
 #include <QFileInfo>
 #include <QGridLayout>
 #include <QGroupBox>
@@ -230,6 +231,15 @@ void DatasetPage::refresh() {
     if (table && !keepName.isEmpty())
         for (std::size_t c = 0; c < table->cols(); ++c)
             if (q(table->columns[c].name) == keepName) column = static_cast<int>(c);
+    summaryColumn_ = -2;  // force a redraw
+    showSummary(column);
+}
+
+void DatasetPage::changeEvent(QEvent* event) {
+    QWidget::changeEvent(event);
+    if (event->type() != QEvent::PaletteChange || id_.isEmpty()) return;
+    updateHeader();
+    const int column = summaryColumn_;
     summaryColumn_ = -2;  // force a redraw
     showSummary(column);
 }
