@@ -248,9 +248,10 @@ ProbeResult probe_response(const Design& d, const FitResult& fit, const ProbeSpe
     req.focal = spec.focal;
     req.moderator = spec.moderator;
     req.averaging = averaging;
+    // A second moderator at its chosen value, else its mean (numeric) or reference level (categorical).
     if (!spec.second_moderator.empty())
         req.values[spec.second_moderator] =
-            std::isnan(spec.second_value) ? d.summaries.at(spec.second_moderator).mean : spec.second_value;
+            std::isnan(spec.second_value) ? typical_values(d).at(spec.second_moderator) : spec.second_value;
     if (!std::isnan(spec.focal_value) && averaging == Averaging::AtValues) req.values[spec.focal] = spec.focal_value;
     r.scale = "response";
     r.averaging = averaging == Averaging::Sample ? "sample" : "values";

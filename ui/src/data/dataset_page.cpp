@@ -1,5 +1,6 @@
 #include "data/dataset_page.hpp"
 
+#include <QEvent>
 #include <QFileInfo>
 #include <QGridLayout>
 #include <QGroupBox>
@@ -25,6 +26,7 @@
 #include "data/table_model.hpp"
 #include "model/project_document.hpp"
 #include "style/estuary.hpp"
+#include "style/palette_text.hpp"
 
 namespace moderato::ui {
 
@@ -58,8 +60,9 @@ DatasetPage::DatasetPage(ProjectDocument* doc, QWidget* parent) : QWidget(parent
     error_->setObjectName(QStringLiteral("dataset-error"));
     error_->setWordWrap(true);
     error_->setTextInteractionFlags(Qt::TextSelectableByMouse);
-    error_->setStyleSheet(QStringLiteral("QLabel { color: %1; border: 1px solid %1; border-radius: 3px; padding: 6px; }")
+    error_->setStyleSheet(QStringLiteral("QLabel { border: 1px solid %1; border-radius: 3px; padding: 6px; }")
                               .arg(estuary::series(1).name()));
+    keepAccentText(error_, estuary::series(1));
     error_->hide();
     layout->addWidget(error_);
 
@@ -232,6 +235,15 @@ void DatasetPage::refresh() {
     showSummary(column);
 }
 
+void DatasetPage::changeEvent(QEvent* event) {
+    QWidget::changeEvent(event);
+    if (event->type() != QEvent::PaletteChange || id_.isEmpty()) return;
+    updateHeader();
+    const int column = summaryColumn_;
+    summaryColumn_ = -2;  // force a redraw
+    showSummary(column);
+}
+
 void DatasetPage::updateHeader() {
     const std::string id = id_.toStdString();
     const DataSource* s = doc_->project().dataset(id);
@@ -246,7 +258,7 @@ void DatasetPage::updateHeader() {
     if (t)
         text += tr(" &nbsp;·&nbsp; %1 rows × %2 columns").arg(count(t->rows()), count(t->cols()));
     text += QStringLiteral(" &nbsp;·&nbsp; <span style='color:%1'>%2</span>")
-                .arg(estuary::notSignificant.name(), QFileInfo(path).absolutePath().toHtmlEscaped());
+                .arg(cssColour(mutedText(palette())), QFileInfo(path).absolutePath().toHtmlEscaped());
     title_->setText(text);
     QString err = doc_->tableError(id);
     if (!t && err.isEmpty()) err = tr("The data of this dataset are not loaded.");
@@ -291,7 +303,7 @@ void DatasetPage::showSummary(int column) {
     const bool derived = model_->headerData(column, Qt::Horizontal, TableModel::DerivedRole).toBool();
     const bool numeric = s.kind == ColumnKind::Numeric;
     summaryTitle_->setText(QStringLiteral("<b>%1</b> &nbsp;<span style='color:%2'>%3%4</span>")
-                               .arg(q(s.name).toHtmlEscaped(), estuary::notSignificant.name(),
+                               .arg(q(s.name).toHtmlEscaped(), cssColour(mutedText(palette())),
                                     numeric ? tr("numeric") : tr("categorical"),
                                     derived ? tr(", derived") : QString()));
     const double share = s.rows ? 100.0 * static_cast<double>(s.missing) / static_cast<double>(s.rows) : 0.0;

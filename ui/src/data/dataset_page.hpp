@@ -57,6 +57,10 @@ public:
     // Removes the recipe of this derived column (one undo step).
     void removeDerived(const QString& name);
 
+protected:
+    // The quieter text in the title and summary follows the palette (light or dark desktop).
+    void changeEvent(QEvent* event) override;
+
 private:
     void refresh();
     void updateHeader();

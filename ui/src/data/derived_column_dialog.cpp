@@ -16,6 +16,7 @@
 #include "moderato/derive.hpp"
 #include "moderato/error.hpp"
 #include "style/estuary.hpp"
+#include "style/palette_text.hpp"
 
 namespace moderato::ui {
 
@@ -254,9 +255,7 @@ void DerivedColumnDialog::updateHint() {
 
 void DerivedColumnDialog::setMessage(const QString& text, bool error) {
     message_->setText(text);
-    QPalette pal = message_->palette();
-    pal.setColor(QPalette::WindowText, error ? estuary::series(1) : palette().color(QPalette::WindowText));
-    message_->setPalette(pal);
+    keepAccentText(message_, error ? estuary::series(1) : QColor());
 }
 
 QString DerivedColumnDialog::message() const { return message_->text(); }

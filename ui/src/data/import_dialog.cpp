@@ -27,6 +27,7 @@
 #include "data/table_model.hpp"
 #include "moderato/error.hpp"
 #include "style/estuary.hpp"
+#include "style/palette_text.hpp"
 
 namespace moderato::ui {
 
@@ -51,7 +52,7 @@ protected:
         if (index.data(Qt::EditRole).toString().isEmpty()) {
             option->text = ImportDialog::tr("(empty cell)");
             option->font.setItalic(true);
-            option->palette.setColor(QPalette::Text, estuary::notSignificant);
+            option->palette.setColor(QPalette::Text, mutedText(option->palette, QPalette::Base));
         }
     }
 };
@@ -247,9 +248,7 @@ void ImportDialog::schedulePreview() { previewTimer_->start(); }
 void ImportDialog::setMessage(const QString& text, bool error) {
     messageIsError_ = error;
     message_->setText(text);
-    QPalette pal = message_->palette();
-    pal.setColor(QPalette::WindowText, error ? estuary::series(1) : palette().color(QPalette::WindowText));
-    message_->setPalette(pal);
+    keepAccentText(message_, error ? estuary::series(1) : QColor());
 }
 
 QString ImportDialog::message() const { return message_->text(); }

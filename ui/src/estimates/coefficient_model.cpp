@@ -2,11 +2,13 @@
 
 #include <QBrush>
 #include <QFont>
+#include <QApplication>
 #include <QPalette>
 #include <cmath>
 #include <limits>
 
 #include "estimates/number_format.hpp"
+#include "style/palette_text.hpp"
 
 namespace moderato::ui {
 
@@ -81,7 +83,7 @@ QVariant CoefficientModel::data(const QModelIndex& index, int role) const {
         if (role == Qt::ToolTipRole && !c.aliased && !std::isnan(v)) return fullPrecision(v);
         if (role == Qt::TextAlignmentRole) return QVariant(Qt::AlignRight | Qt::AlignVCenter);
     }
-    if (role == Qt::ForegroundRole && c.aliased) return QBrush(QPalette().color(QPalette::Disabled, QPalette::Text));
+    if (role == Qt::ForegroundRole && c.aliased) return QBrush(mutedText(QApplication::palette(), QPalette::Base));
     if (role == Qt::FontRole && c.aliased) {
         QFont f;
         f.setItalic(true);

@@ -24,6 +24,7 @@
 
 #include "model/project_document.hpp"
 #include "plots/figure_source.hpp"
+#include "style/palette_text.hpp"
 
 namespace moderato::ui {
 
@@ -320,7 +321,7 @@ void FigureExportDialog::storeSettings() {
 
 void FigureExportDialog::setStatus(const QString& text, bool error) {
     status_->setText(text);
-    status_->setStyleSheet(error ? QStringLiteral("color: #B3261E;") : QString());
+    keepAccentText(status_, error ? QColor(0xB3, 0x26, 0x1E) : QColor());
 }
 
 bool FigureExportDialog::exportTo(const QString& requested) {

@@ -141,6 +141,7 @@ void LinesPlot::rebuild() {
     plot_->clearPlottables();
     highlightLine_ = highlightBand_ = nullptr;
     crossoverMarkers_ = 0;
+    differStrips_.clear();
     pointsMode_ = 0;
     if (!hasData_) {
         plot_->replot();
@@ -225,6 +226,39 @@ void LinesPlot::rebuild() {
         if (crossoverMarkers_ == 0) diamond->setName(d.crossingName);
         else diamond->removeFromLegend();
         ++crossoverMarkers_;
+    }
+
+    // Where the groups differ: a thin strip along the bottom edge, under the grid.
+    if (!d.differName.isEmpty()) {
+        plot_->setCurrentLayer(kShadingLayer);
+        const QBrush brush = estuary::significanceBrush(greyscale_);
+        // A fine outline in the same colour, so the thin strip shows without shouting.
+        QPen edge(estuary::withAlpha(greyscale_ ? estuary::toGrey(estuary::series(0)) : estuary::series(0), 0.55));
+        edge.setWidthF(1.0);
+        for (const auto& [a, b] : d.differ) {
+            const double from = std::max(a, d.xRange.first), to = std::min(b, d.xRange.second);
+            if (!(to > from)) continue;
+            auto* strip = new QCPItemRect(plot_);
+            strip->bottomRight->setTypeX(QCPItemPosition::ptPlotCoords);
+            strip->bottomRight->setTypeY(QCPItemPosition::ptAxisRectRatio);
+            strip->bottomRight->setCoords(to, 1.0);
+            strip->topLeft->setTypeX(QCPItemPosition::ptPlotCoords);
+            strip->topLeft->setParentAnchorY(strip->bottomRight);   // pixels above the bottom edge
+            strip->topLeft->setTypeY(QCPItemPosition::ptAbsolute);
+            strip->topLeft->setCoords(from, -kDifferStripHeight);
+            strip->setBrush(brush);
+            strip->setPen(edge);
+            strip->setSelectable(false);
+            differStrips_.emplace_back(from, to);
+        }
+        plot_->setCurrentLayer(QStringLiteral("main"));
+        if (!differStrips_.empty()) {
+            auto* swatch = new QCPBars(plot_->xAxis, plot_->yAxis);
+            swatch->setName(d.differName);
+            swatch->setBrush(brush);
+            swatch->setPen(edge);
+            swatch->setSelectable(QCP::stNone);
+        }
     }
 
     // The slider's line, on the moving layer.

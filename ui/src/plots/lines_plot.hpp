@@ -3,7 +3,8 @@
 // pinned moderator value, the observed data as translucent points (binned
 // into a grid of counts above 20,000 rows, so drawing stays fast), and the
 // crossover point of the lines (a hollow diamond with its interval as a
-// bracket) when the lines cross inside the data.
+// bracket) when the lines cross inside the data, and a thin strip along the
+// bottom of the plot where two groups (or any two lines) differ.
 //
 // One more line follows the moderator slider. It lives on the buffered
 // "moving" layer, so a drag frame redraws that layer only.
@@ -44,6 +45,10 @@ struct LinesPlotData {
     };
     std::vector<Crossing> crossings;         // only those inside the focal range
     QString crossingName;                    // legend entry
+    // Where the two groups (or any two lines) differ, along the focal
+    // predictor: drawn as a thin tinted strip at the bottom of the plot.
+    std::vector<std::pair<double, double>> differ;
+    QString differName;                      // legend entry ("groups differ"); empty: no strip
     std::pair<double, double> xRange{0, 1};
     // Estimates the y axis must also take in (e.g. the slider's line at the ends of its range).
     std::vector<CurvePoint> yExtent;
@@ -64,6 +69,10 @@ public:
 
     int lineCount() const { return static_cast<int>(data_.lines.size()); }
     int crossoverMarkerCount() const { return crossoverMarkers_; }
+    // The strips drawn where the groups differ (focal predictor from, to).
+    const std::vector<std::pair<double, double>>& differStrips() const { return differStrips_; }
+    // The strip's height in pixels.
+    static constexpr int kDifferStripHeight = 7;
     // How the data points are drawn: 0 none, 1 points, 2 binned counts.
     int pointsMode() const { return pointsMode_; }
     const LinesPlotData& data() const { return data_; }
@@ -89,6 +98,7 @@ private:
     bool hasData_ = false;
     bool greyscale_ = false;
     int crossoverMarkers_ = 0;
+    std::vector<std::pair<double, double>> differStrips_;
     int pointsMode_ = 0;
     std::vector<CurvePoint> highlight_;
     int highlightSeries_ = -1;

@@ -16,7 +16,7 @@
 
 #include "probe/number_format.hpp"
 #include "shell/table_clipboard.hpp"
-#include "style/estuary.hpp"
+#include "style/palette_text.hpp"
 
 namespace moderato::ui {
 
@@ -54,8 +54,9 @@ QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
     if (role == Qt::TextAlignmentRole)
         return QVariant::fromValue(index.column() == Value || index.column() == Note ? Qt::AlignLeft | Qt::AlignVCenter
                                                                                      : Qt::AlignRight | Qt::AlignVCenter);
-    if (role == Qt::ForegroundRole && index.column() == Note) return QColor(estuary::notSignificant).darker(140);
-    if (role == Qt::BackgroundRole && e.beyond_data) return QColor(estuary::beyond);
+    // From the palette, so a shaded row stays readable on a dark desktop too.
+    if (role == Qt::ForegroundRole && index.column() == Note) return mutedText(QApplication::palette(), QPalette::Base);
+    if (role == Qt::BackgroundRole && e.beyond_data) return beyondRowBackground(QApplication::palette());
     if (role == Qt::FontRole && e.beyond_data) {
         QFont f;
         f.setItalic(true);
@@ -107,7 +108,7 @@ PinnedTable::PinnedTable(QWidget* parent)
     QFont small = caption_->font();
     small.setPointSizeF(small.pointSizeF() * 0.9);
     caption_->setFont(small);
-    caption_->setForegroundRole(QPalette::PlaceholderText);
+    keepMutedText(caption_);
     layout->addWidget(caption_);
     view_->setObjectName(QStringLiteral("pinned-table"));
     view_->setModel(model_);

@@ -17,10 +17,9 @@ ProbeEngine::ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis&
     request_.averaging = p.averaging == "values" ? Averaging::AtValues : Averaging::Sample;
     const std::string& second = analysis_.roles.second_moderator;
     if (!second.empty()) {
-        const double v = std::isnan(analysis_.probe.second_value) ? d.summaries.at(second).mean
-                                                                   : analysis_.probe.second_value;
-        held_[second] = v;
-        request_.values[second] = v;
+        // Its mean (numeric) or reference level (categorical) unless a value is chosen.
+        if (!std::isnan(analysis_.probe.second_value)) held_[second] = analysis_.probe.second_value;
+        request_.values[second] = held_[second];
     }
 
     const Table& t = *run_->table;

@@ -23,6 +23,7 @@
 #include "specify/role_edit.hpp"
 #include "specify/section_widgets.hpp"
 #include "style/estuary.hpp"
+#include "style/palette_text.hpp"
 
 namespace moderato::ui {
 
@@ -161,9 +162,7 @@ EstimatesSection::EstimatesSection(ProjectDocument* doc, QWidget* parent)
     warnings_->setStyleSheet(bannerStyle(estuary::series(4)));
     v->addWidget(warnings_);
     notes_->setObjectName(QStringLiteral("estimates-notes"));
-    QPalette p = notes_->palette();
-    p.setColor(QPalette::WindowText, p.color(QPalette::Disabled, QPalette::WindowText));
-    notes_->setPalette(p);
+    keepMutedText(notes_);
     v->addWidget(notes_);
     v->addStretch(1);
 

@@ -2,6 +2,7 @@
 
 #include <QCheckBox>
 #include <QComboBox>
+#include <QEvent>
 #include <QHBoxLayout>
 #include <QLabel>
 #include <QLocale>
@@ -20,11 +21,14 @@
 #include "plots/effect_plot.hpp"
 #include "plots/lines_plot.hpp"
 #include "plots/surface_plot.hpp"
+#include "probe/gap_text.hpp"
+#include "probe/held_value_control.hpp"
 #include "probe/moderator_slider.hpp"
 #include "probe/number_format.hpp"
 #include "probe/pinned_table.hpp"
 #include "probe/readout_panel.hpp"
 #include "shell/figure_caption.hpp"
+#include "style/palette_text.hpp"
 
 namespace moderato::ui {
 
@@ -37,6 +41,7 @@ QString q(const std::string& s) { return QString::fromStdString(s); }
 QLabel* plotTitle(QWidget* parent) {
     auto* l = new QLabel(parent);
     l->setTextFormat(Qt::RichText);
+    l->setWordWrap(true);  // a long subtitle (held values, long names) wraps instead of being cut off
     l->setContentsMargins(4, 2, 4, 0);
     return l;
 }
@@ -51,9 +56,9 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     : AnalysisSection(doc, parent), pages_(new QStackedWidget(this)), message_(new QLabel(this)),
       band_(new QComboBox(this)), points_(new QCheckBox(tr("Data points"), this)), scaleLabel_(new QLabel(tr("Scale"), this)),
       scale_(new QComboBox(this)), averaging_(new QComboBox(this)), surfaceToggle_(new QToolButton(this)),
-      linesTitle_(plotTitle(this)), effectTitle_(plotTitle(this)), linesStack_(new QStackedWidget(this)),
+      differ_(new QCheckBox(tr("Where groups differ"), this)), linesTitle_(plotTitle(this)), effectTitle_(plotTitle(this)), linesStack_(new QStackedWidget(this)),
       lines_(new LinesPlot(this)), surface_(new SurfacePlot(this)), effect_(new EffectPlot(this)),
-      cells_(new CellsView(this)), slider_(new ModeratorSlider(this)), readout_(new ReadoutPanel(this)),
+      cells_(new CellsView(this)), slider_(new ModeratorSlider(this)), held_(new HeldValueControl(this)), readout_(new ReadoutPanel(this)),
       pinned_(new PinnedTable(this)), summary_(new QLabel(this)) {
     auto* outer = new QVBoxLayout(this);
     outer->setContentsMargins(0, 0, 0, 0);
@@ -98,6 +103,12 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     averaging_->setToolTip(tr("Probability-scale effects averaged over every observed row, or at one profile with "
                               "the other predictors at their means and reference levels"));
     controls->addWidget(averaging_);
+    differ_->setObjectName(QStringLiteral("differ-toggle"));
+    differ_->setChecked(true);
+    differ_->setToolTip(tr("Shade a strip along the bottom of the Lines plot where the predicted outcomes of the two "
+                           "groups (or of any two lines) differ: the Johnson–Neyman technique applied to the gap "
+                           "between them"));
+    controls->addWidget(differ_);
     controls->addStretch(1);
     surfaceToggle_->setObjectName(QStringLiteral("surface-toggle"));
     surfaceToggle_->setText(tr("Surface plot"));
@@ -128,6 +139,8 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     plots->setStretchFactor(1, 1);
     leftLayout->addWidget(plots, 1);
     leftLayout->addWidget(slider_);
+    held_->setVisible(false);
+    leftLayout->addWidget(held_);
 
     auto* scroll = new QScrollArea(split);
     scroll->setWidgetResizable(true);
@@ -191,6 +204,17 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
         const std::string s = averaging_->itemData(i).toString().toStdString();
         editSettings([s](ProbeSettings& p) { p.averaging = s; }, tr("Change how probability effects are averaged"));
     });
+    connect(held_, &HeldValueControl::valueChosen, this, [this](double v) {
+        const Analysis* a = doc_->analysis(id_);
+        if (!a || !engine_.valid() || sameNumber(a->probe.second_value, v)) return;
+        const QString col = q(a->roles.second_moderator);
+        editSettings([v](ProbeSettings& p) { p.second_value = v; },
+                     std::isnan(v) ? tr("Hold %1 at its default").arg(col)
+                                   : tr("Hold %1 at %2").arg(col, formatNumber(v)));
+    });
+    connect(differ_, &QCheckBox::toggled, this, [this] {
+        if (!rebuilding_ && engine_.valid()) buildPlots();
+    });
     connect(surfaceToggle_, &QToolButton::toggled, this, [this](bool on) {
         linesStack_->setCurrentIndex(on ? 1 : 0);
         fillReadoutContext();
@@ -199,6 +223,11 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
 }
 
 QSlider* ProbeSection::slider() const { return slider_->slider(); }
+
+void ProbeSection::changeEvent(QEvent* event) {
+    AnalysisSection::changeEvent(event);
+    if (event->type() == QEvent::PaletteChange && engine_.valid()) fillReadoutContext();
+}
 
 QList<FigureSource*> ProbeSection::figures() {
     if (pages_->currentIndex() == CellsPage) return {cells_};
@@ -275,6 +304,10 @@ void ProbeSection::rebuild() {
     if (!surfaceOk) surfaceToggle_->setChecked(false);
     if (surfaceOk) surface_->setRun(*a, *run_);
     linesStack_->setCurrentIndex(surfaceToggle_->isChecked() ? 1 : 0);
+    // One gap to shade: two groups, or the lines at any two values of a numeric moderator.
+    differ_->setVisible(run_->probe->crossovers.size() == 1);
+    differ_->setText(engine_.groups() ? tr("Where groups differ") : tr("Where lines differ"));
+    fillHeldValue();
 
     if (engine_.groups()) {
         QStringList names;
@@ -309,6 +342,46 @@ QString ProbeSection::effectTitle() const {
     return tr("Effect of %1 on %2").arg(f, y);
 }
 
+QString ProbeSection::productCoefficientText() const {
+    // " (setup_sessions×employees = 0.0003627)": the fit's own coefficient, when the model has one product term.
+    const FitResult& fit = run_->fit;
+    const std::string f = engine_.focal(), m = engine_.moderator();
+    for (const std::string& term : {f + "×" + m, m + "×" + f}) {
+        const int i = fit.index_of(term);
+        if (i >= 0) return QStringLiteral(" (%1 = %2)").arg(q(term), formatNumber(fit.beta[i]));
+    }
+    return {};
+}
+
+QString ProbeSection::outcomeWhat() const {
+    const QString y = q(engine_.outcome());
+    if (engine_.probability()) return tr("P(%1 = 1)").arg(y);
+    if (engine_.logistic()) return tr("log-odds of %1").arg(y);
+    return y;
+}
+
+QString ProbeSection::heldText() const {
+    if (!engine_.valid()) return {};
+    return heldValueText(shown_, run_->design);
+}
+
+void ProbeSection::fillHeldValue() {
+    const std::string& second = shown_.roles.second_moderator;
+    const Design& d = run_->design;
+    held_->setVisible(!second.empty());
+    if (second.empty()) return;
+    const double v = shown_.probe.second_value;
+    if (const CategoricalInfo* cat = d.categorical(second)) {
+        QStringList levels;
+        for (const auto& l : cat->levels) levels << q(l);
+        held_->setLevels(q(second), levels, v, false);
+    } else if (const auto it = d.summaries.find(second); it != d.summaries.end()) {
+        const NumericSummary& s = it->second;
+        if (d.is_binary(second)) held_->setLevels(q(second), {}, v, true, s.mean);
+        else held_->setNumeric(q(second), s.mean, s.sd, s.min, s.max, v);
+    }
+}
+
 QString ProbeSection::moderatorLabel(double m) const {
     if (engine_.groups()) {
         const auto& names = engine_.groupNames();
@@ -332,23 +405,29 @@ void ProbeSection::fillReadoutContext() {
     else
         scale = tr("Outcome scale");
     QString statement = tr("%1 · %2 SEs · %3 pointwise interval").arg(scale, seDescription(a, *run_), level);
+    const QString held = heldText();
+    if (!held.isEmpty()) statement = tr("With %1 · %2").arg(held, statement);
     if (simultaneousShown())
         statement += tr(" · band: %1 simultaneous (critical value %2)")
                          .arg(level, formatNumber(p.simultaneous->critical_value, 3));
-    statement += tr(" · n = %1").arg(QLocale(QLocale::English).toString(static_cast<qulonglong>(run_->fit.n)));
+    statement += tr(" · n\u00A0=\u00A0%1").arg(QLocale(QLocale::English).toString(static_cast<qulonglong>(run_->fit.n)));
     readout_->setContext(effectTitle(), statisticName(p.df), tr("%1 CI").arg(level), statement);
 
-    const QString f = escaped(q(engine_.focal())), y = escaped(q(engine_.outcome())), mod = escaped(q(engine_.moderator()));
-    const QString yWhat = engine_.probability() ? tr("P(%1 = 1)").arg(y) : engine_.logistic() ? tr("log-odds of %1").arg(y) : y;
+    const QString f = escaped(q(engine_.focal())), mod = escaped(q(engine_.moderator()));
+    const QString yWhat = escaped(outcomeWhat());
+    // Subtitles in the palette's quieter text colour (readable on a light or dark desktop).
+    const QString muted = cssColour(mutedText(palette()));
+    const QString with = held.isEmpty() ? QString() : tr(" · with %1").arg(escaped(held));
     if (surfaceToggle_->isChecked())
-        linesTitle_->setText(tr("<b>Surface plot</b> &nbsp;<span style='color:gray'>predicted %1 over %2 and %3</span>")
-                                 .arg(yWhat, f, mod));
+        linesTitle_->setText(tr("<b>Surface plot</b> &nbsp;<span style='color:%1'>predicted %2 over %3 and %4%5</span>")
+                                 .arg(muted, yWhat, f, mod, with));
     else
-        linesTitle_->setText(tr("<b>Lines plot</b> &nbsp;<span style='color:gray'>predicted %1 against %2, one line per %3</span>")
-                                 .arg(yWhat, f, engine_.groups() ? tr("group of %1").arg(mod) : tr("value of %1").arg(mod)));
+        linesTitle_->setText(tr("<b>Lines plot</b> &nbsp;<span style='color:%1'>predicted %2 against %3, one line per %4%5</span>")
+                                 .arg(muted, yWhat, f,
+                                      engine_.groups() ? tr("group of %1").arg(mod) : tr("value of %1").arg(mod), with));
     effectTitle_->setText(
-        tr("<b>Effect plot</b> &nbsp;<span style='color:gray'>effect of %1 against %2 · drag to move the moderator</span>")
-            .arg(f, mod));
+        tr("<b>Effect plot</b> &nbsp;<span style='color:%1'>effect of %2 against %3%4 · drag to move the moderator</span>")
+            .arg(muted, f, mod, with));
 }
 
 void ProbeSection::buildPlots() {
@@ -447,6 +526,13 @@ void ProbeSection::buildPlots() {
         cr.upper = x.ci_upper;
         l.crossings.push_back(cr);
     }
+    // Where the two groups (or any two lines) differ: core's gap regions, clipped to the data.
+    if (differ_->isChecked() && p.crossovers.size() == 1) {
+        l.differ = describeGap(p.crossovers.front().gap_regions, QString(), q(engine_.focal()), engine_.focalRange(),
+                               level)
+                       .differ;
+        l.differName = groups ? tr("groups differ") : tr("lines differ");
+    }
     lines_->setData(l);
 }
 
@@ -499,6 +585,32 @@ void ProbeSection::fillSummary() {
         plain << text;
     };
     auto end = [&] { html << QStringLiteral("</p>"); };
+
+    if (p.interaction_effect) {
+        // The interaction on the probability scale (Ai & Norton), which is not the product coefficient.
+        const auto& ie = *p.interaction_effect;
+        const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
+        section(tr("Interaction on the probability scale"));
+        QString kind = q(ie.kind);
+        if (!kind.isEmpty()) kind[0] = kind[0].toUpper();
+        line(tr("%1 of P(%2 = 1): %3 (SE %4, %5 CI %6 to %7, p %8)")
+                 .arg(kind, q(engine_.outcome()), formatNumber(ie.estimate), formatNumber(ie.std_error), level,
+                      formatNumber(ie.ci_lower), formatNumber(ie.ci_upper), formatP(ie.p_value)));
+        line(tr("How the effect of %1 on P(%2 = 1) changes with %3, %4 (Ai & Norton). The product coefficient "
+                "on the log-odds scale%5 is not this: it does not give the size, or even the sign, of the "
+                "interaction on the probability scale.")
+                 .arg(q(engine_.focal()), q(engine_.outcome()), mod,
+                      p.averaging == "values" ? tr("at the means of the other predictors")
+                                              : tr("averaged over the observed rows"),
+                      productCoefficientText()));
+        end();
+    } else if (engine_.logistic()) {
+        section(tr("Interaction on the log-odds scale"));
+        line(tr("The product coefficient%1 is the interaction on the log-odds scale only; it is not the interaction "
+                "on the probability scale. Choose the probability scale to see that (Ai & Norton).")
+                 .arg(productCoefficientText()));
+        end();
+    }
 
     if (!engine_.groups()) {
         const bool sim = simultaneousShown();
@@ -554,12 +666,27 @@ void ProbeSection::fillSummary() {
     if (!any) line(tr("The lines are parallel: they do not cross."));
     end();
 
-    if (p.interaction_effect) {
-        const auto& ie = *p.interaction_effect;
-        section(tr("Interaction on the probability scale"));
-        line(tr("%1: %2 (SE %3, %4 to %5, p %6)")
-                 .arg(q(ie.kind), formatNumber(ie.estimate), formatNumber(ie.std_error), formatNumber(ie.ci_lower),
-                      formatNumber(ie.ci_upper), formatP(ie.p_value)));
+    // Where the groups (or the lines) differ: the Johnson–Neyman technique on the gap between them.
+    if (!p.crossovers.empty()) {
+        const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
+        const QString y = q(engine_.outcome());
+        const QString predicted = engine_.logistic() ? tr("log-odds of %1").arg(y) : y;
+        const bool groups = engine_.groups();
+        section(groups ? tr("Where the groups differ") : tr("Where the lines differ"));
+        // Core lists the group pairs in order: (0,1), (0,2), ..., (1,2), ...
+        std::vector<std::pair<QString, QString>> pairs;
+        const auto& names = engine_.groupNames();
+        for (std::size_t a = 0; a < names.size(); ++a)
+            for (std::size_t b = a + 1; b < names.size(); ++b) pairs.emplace_back(q(names[a]), q(names[b]));
+        for (std::size_t k = 0; k < p.crossovers.size(); ++k) {
+            QString subject;
+            if (!groups) subject = tr("Predicted %1 at any two values of %2").arg(predicted, mod);
+            else if (p.crossovers.size() == 1 || k >= pairs.size()) subject = tr("The two groups' predicted %1").arg(predicted);
+            else subject = tr("Predicted %1 for %2 = %3 and %2 = %4").arg(predicted, mod, pairs[k].first, pairs[k].second);
+            line(describeGap(p.crossovers[k].gap_regions, subject, q(engine_.focal()), engine_.focalRange(), level).text);
+        }
+        if (engine_.probability())
+            line(tr("Tested on the log-odds scale: where two log-odds differ, the two probabilities differ too."));
         end();
     }
 

@@ -30,6 +30,7 @@ namespace moderato::ui {
 
 class CellsView;
 class EffectPlot;
+class HeldValueControl;
 class LinesPlot;
 class ModeratorSlider;
 class PinnedTable;
@@ -57,6 +58,10 @@ public:
     QComboBox* scaleChoice() const { return scale_; }
     QComboBox* averagingChoice() const { return averaging_; }
     QToolButton* surfaceToggle() const { return surfaceToggle_; }
+    // Shades the Lines plot where the two groups (or any two lines) differ.
+    QCheckBox* differToggle() const { return differ_; }
+    // The value the second moderator is held at (three-way models).
+    HeldValueControl* heldValueControl() const { return held_; }
     const ProbeEngine& engine() const { return engine_; }
 
     // The moderator value under the slider (Groups: the group index).
@@ -71,6 +76,10 @@ public:
     // Pins the current value (one undo step).
     void pinCurrentValue();
 
+protected:
+    // The subtitles' quieter text colour follows the palette (light or dark desktop).
+    void changeEvent(QEvent* event) override;
+
 private:
     void rebuild();
     void showMessage(const QString& text);
@@ -78,6 +87,13 @@ private:
     void fillTable();
     void fillSummary();
     void fillReadoutContext();
+    void fillHeldValue();
+    // "slope_pct held at 32.5 (mean + 1 SD)"; empty without a second moderator.
+    QString heldText() const;
+    // What the Lines plot's y axis shows: "weekly_spend", "P(converted = 1)", "log-odds of converted".
+    QString outcomeWhat() const;
+    // " (x×z = 0.0123)": the product coefficient of the focal predictor and the moderator, when there is one.
+    QString productCoefficientText() const;
     void moveTo(double m, bool live);
     void commitCurrent(double m, bool mergeWithPrevious);
     void applyPreset(const QString& key);
@@ -109,6 +125,7 @@ private:
     QComboBox* scale_;
     QComboBox* averaging_;
     QToolButton* surfaceToggle_;
+    QCheckBox* differ_;
     QLabel* linesTitle_;
     QLabel* effectTitle_;
     QStackedWidget* linesStack_;
@@ -117,6 +134,7 @@ private:
     EffectPlot* effect_;
     CellsView* cells_;
     ModeratorSlider* slider_;
+    HeldValueControl* held_;
     ReadoutPanel* readout_;
     PinnedTable* pinned_;
     QLabel* summary_;

@@ -2,6 +2,8 @@
 
 #include <QLocale>
 
+#include "probe/held_value_control.hpp"
+
 namespace moderato::ui {
 
 QString seDescription(const Analysis& a, const AnalysisRun& run) {
@@ -29,6 +31,9 @@ QString figureCaption(const Analysis& a, const AnalysisRun& run) {
         text += a.roles.controls.size() == 1 ? QStringLiteral(" (+1 control)")
                                               : QStringLiteral(" (+%1 controls)").arg(a.roles.controls.size());
     if (!a.roles.weights.empty()) text += QStringLiteral(", weighted by %1").arg(QString::fromStdString(a.roles.weights));
+    // A three-way model's figures hold the second moderator at one value: say which.
+    const QString held = heldValueText(a, run.design);
+    if (!held.isEmpty()) text += QStringLiteral(", ") + held;
     text += QStringLiteral(" · %1 SEs · %2% intervals · n = %3")
                 .arg(seDescription(a, run))
                 .arg(QLocale::c().toString(100.0 * a.level, 'g', 4))

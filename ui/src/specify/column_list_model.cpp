@@ -1,9 +1,11 @@
 #include "specify/column_list_model.hpp"
 
 #include <QBrush>
+#include <QApplication>
 #include <QPalette>
 
 #include "specify/column_mime.hpp"
+#include "style/palette_text.hpp"
 
 namespace moderato::ui {
 
@@ -56,7 +58,7 @@ QVariant ColumnListModel::data(const QModelIndex& index, int role) const {
     if (role == Qt::TextAlignmentRole && index.column() == Missing)
         return QVariant(Qt::AlignRight | Qt::AlignVCenter);
     if (role == Qt::ForegroundRole && (index.column() == InRole || (index.column() == Missing && e.missing == 0)))
-        return QBrush(QPalette().color(QPalette::Disabled, QPalette::Text));
+        return QBrush(mutedText(QApplication::palette(), QPalette::Base));
     if (role == Qt::ToolTipRole) {
         QString tip = tr("%1: %2, %3 missing of %4 rows")
                           .arg(QString::fromStdString(e.name), natureName(e.nature))

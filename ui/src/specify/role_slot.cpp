@@ -16,6 +16,7 @@
 #include "specify/flow_layout.hpp"
 #include "specify/section_widgets.hpp"
 #include "style/estuary.hpp"
+#include "style/palette_text.hpp"
 
 namespace moderato::ui {
 
@@ -114,7 +115,7 @@ RoleSlot::RoleSlot(Role role, QWidget* parent)
 
     placeholder_->setText(roleTakesSeveral(role) ? tr("drop columns here, or add them with the menu")
                                                  : tr("drop a column here, or pick one"));
-    placeholder_->setEnabled(false);
+    keepMutedText(placeholder_);  // quiet but readable (a disabled label is too faint on most palettes)
     QFont italic = placeholder_->font();
     italic.setItalic(true);
     placeholder_->setFont(italic);

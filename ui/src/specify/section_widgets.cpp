@@ -1,4 +1,5 @@
 #include "specify/section_widgets.hpp"
+#include "style/palette_text.hpp"
 
 #include <QLabel>
 #include <QPalette>
@@ -21,9 +22,7 @@ QLabel* sectionHeading(const QString& text, QWidget* parent) {
 QLabel* mutedLabel(QWidget* parent) {
     auto* l = new QLabel(parent);
     l->setWordWrap(true);
-    QPalette p = l->palette();
-    p.setColor(QPalette::WindowText, p.color(QPalette::Disabled, QPalette::WindowText));
-    l->setPalette(p);
+    keepMutedText(l);  // quieter than the body text, readable on a light or dark desktop
     return l;
 }
 
