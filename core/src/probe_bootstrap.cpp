@@ -57,8 +57,9 @@ ProbeBootstrap bootstrap_probe(const Design& design, const ModelSpec& spec, cons
     request.moderator = probe.moderator;
     request.averaging = probe.averaging == "values" ? Averaging::AtValues : Averaging::Sample;
     if (!probe_spec.second_moderator.empty())
+        // At its chosen value, else its mean (numeric) or reference level (categorical).
         request.values[probe_spec.second_moderator] = std::isnan(probe_spec.second_value)
-                                                          ? design.summaries.at(probe_spec.second_moderator).mean
+                                                          ? typical_values(design).at(probe_spec.second_moderator)
                                                           : probe_spec.second_value;
     if (request.averaging == Averaging::AtValues)  // held at the full sample's values, not each replicate's
         request.values = typical_values(design, request.values);
