@@ -1,0 +1,235 @@
+// Flows that went wrong when the workbench was tried as a user would (under
+// Xvfb with real mouse and keys). Each test drives the real widgets
+// (offscreen) through one of them and fails on the old behaviour. Expected
+// values come from the construction of the data (by hand), the arithmetic
+// mean of a column (closed form) or the standard keys of the desktops
+// (common practice).
+#include <gtest/gtest.h>
+
+#include <QApplication>
+#include <QCheckBox>
+#include <QComboBox>
+#include <QDoubleSpinBox>
+#include <QDropEvent>
+#include <QFile>
+#include <QFileDialog>
+#include <QFontMetricsF>
+#include <QLineEdit>
+#include <QMimeData>
+#include <QPushButton>
+#include <QTemporaryDir>
+#include <QTest>
+#include <QTimer>
+#include <QToolButton>
+#include <QUndoStack>
+#include <QXmlStreamReader>
+#include <cmath>
+#include <map>
+#include <qcustomplot.h>
+
+#include "data/import_dialog.hpp"
+#include "export/figure_exporter.hpp"
+#include "model/analysis_runner.hpp"
+#include "model/project_document.hpp"
+#include "plots/effect_plot.hpp"
+#include "plots/lines_plot.hpp"
+#include "probe/moderator_slider.hpp"
+#include "sections/probe_section.hpp"
+#include "sections/specify_section.hpp"
+#include "shell/analysis_page.hpp"
+#include "shell/main_window.hpp"
+#include "specify/column_list_model.hpp"
+#include "specify/role_slot.hpp"
+#include "ui_test_util.hpp"
+
+using namespace moderato;
+using namespace moderato::ui;
+
+namespace {
+
+// A main window on a copy of a sample project, shown and active (window
+// shortcuts need an active window), its first analysis fitted.
+struct Session {
+    QTemporaryDir dir;
+    QString path;
+    MainWindow w;
+    QString id;
+
+    explicit Session(const QString& sample) {
+        path = test::copySample(sample, dir);
+        w.setInteractive(false);
+        w.resize(1400, 900);
+        w.show();
+        EXPECT_TRUE(w.openProject(path)) << w.lastMessage().toStdString();
+        id = w.analysisPage()->analysisId();
+        EXPECT_TRUE(waitForRun());
+        w.activateWindow();
+        EXPECT_TRUE(QTest::qWaitForWindowActive(&w));
+    }
+    bool waitForRun() {
+        return test::waitUntil(
+            [&] { return !w.runner()->busy(id) && (w.runner()->result(id) || !w.runner()->error(id).isEmpty()); });
+    }
+    const Analysis& analysis() const { return *w.document()->analysis(id); }
+    ProbeSection* probe() const { return w.analysisPage()->probe(); }
+    SpecifySection* specify() const { return w.analysisPage()->specify(); }
+    void keys(Qt::Key key, Qt::KeyboardModifiers mods) {
+        QTest::keyClick(&w, key, mods);
+        QCoreApplication::processEvents();
+    }
+};
+
+QString writeFile(const QTemporaryDir& dir, const QString& name, const QByteArray& bytes) {
+    const QString path = dir.filePath(name);
+    QFile f(path);
+    EXPECT_TRUE(f.open(QIODevice::WriteOnly));
+    f.write(bytes);
+    return path;
+}
+
+template <typename T>
+T* child(const QObject* parent, const char* name) {
+    T* c = parent->findChild<T*>(QString::fromLatin1(name));
+    EXPECT_NE(c, nullptr) << "no child widget named " << name;
+    return c;
+}
+
+// Moves a combo box to `index` with arrow keys, as a user would.
+void chooseByKeys(QComboBox* box, int index) {
+    ASSERT_NE(box, nullptr);
+    box->setFocus();
+    for (int guard = 0; box->currentIndex() != index && guard < 20; ++guard)
+        QTest::keyClick(box, box->currentIndex() < index ? Qt::Key_Down : Qt::Key_Up);
+    ASSERT_EQ(box->currentIndex(), index);
+}
+
+// Types a value into a spin box and presses Enter.
+void typeValue(QDoubleSpinBox* box, const QString& text) {
+    ASSERT_NE(box, nullptr);
+    box->setFocus();
+    box->selectAll();
+    QTest::keyClicks(box, text);
+    QTest::keyClick(box, Qt::Key_Return);
+}
+
+// A drag of a column from the Specify list, dropped on a role slot (the
+// list model's own drag data; no QDrag event loop).
+void dropFromList(SpecifySection* s, const std::string& column, Role target) {
+    const int row = s->columnModel()->rowOf(column);
+    ASSERT_GE(row, 0) << column;
+    std::unique_ptr<QMimeData> mime(s->columnModel()->mimeData({s->columnModel()->index(row, 0)}));
+    RoleSlot* slot = s->slot(target);
+    const QPoint at = slot->rect().center();
+    QDragEnterEvent enter(at, Qt::CopyAction | Qt::MoveAction, mime.get(), Qt::LeftButton, Qt::NoModifier);
+    QCoreApplication::sendEvent(slot, &enter);
+    ASSERT_TRUE(enter.isAccepted()) << "the slot refused the drag";
+    QDropEvent drop(QPointF(at), Qt::CopyAction | Qt::MoveAction, mime.get(), Qt::LeftButton, Qt::NoModifier);
+    QCoreApplication::sendEvent(slot, &drop);
+}
+
+// The names in a plot's legend.
+QStringList legendNames(QCustomPlot* plot) {
+    QStringList names;
+    for (int i = 0; i < plot->legend->elementCount(); ++i)
+        if (auto* item = qobject_cast<QCPPlottableLegendItem*>(plot->legend->item(i)))
+            names << item->plottable()->name();
+    return names;
+}
+
+// Where each text of an SVG written by QSvgGenerator starts and ends
+// horizontally, in view-box units (measured with the font the text names).
+struct SvgText {
+    QString text;
+    double left = 0, right = 0;
+};
+struct SvgLayout {
+    double width = 0;
+    std::vector<SvgText> texts;
+};
+
+SvgLayout svgLayout(const QByteArray& svg) {
+    SvgLayout out;
+    QXmlStreamReader xml(svg);
+    std::vector<std::pair<double, double>> groups{{1.0, 0.0}};  // x scale and shift of each open <g>
+    while (!xml.atEnd()) {
+        xml.readNext();
+        if (xml.isStartElement() && xml.name() == QLatin1String("svg")) {
+            const QStringList box = xml.attributes().value(QLatin1String("viewBox")).toString().split(QLatin1Char(' '));
+            if (box.size() == 4) out.width = box[2].toDouble();
+        } else if (xml.isStartElement() && xml.name() == QLatin1String("g")) {
+            auto [scale, shift] = groups.back();
+            const QString t = xml.attributes().value(QLatin1String("transform")).toString();
+            if (t.startsWith(QLatin1String("matrix("))) {
+                const QStringList m = t.mid(7, t.size() - 8).split(QLatin1Char(','));
+                if (m.size() == 6) shift = shift + scale * m[4].toDouble(), scale *= m[0].toDouble();
+            }
+            groups.push_back({scale, shift});
+        } else if (xml.isEndElement() && xml.name() == QLatin1String("g")) {
+            if (groups.size() > 1) groups.pop_back();
+        } else if (xml.isStartElement() && xml.name() == QLatin1String("text")) {
+            const auto attrs = xml.attributes();
+            QFont font(attrs.value(QLatin1String("font-family")).toString());
+            font.setPixelSize(static_cast<int>(std::lround(attrs.value(QLatin1String("font-size")).toDouble())));
+            font.setWeight(static_cast<QFont::Weight>(attrs.value(QLatin1String("font-weight")).toInt()));
+            const double x = attrs.value(QLatin1String("x")).toDouble();
+            const QString text = xml.readElementText(QXmlStreamReader::IncludeChildElements);
+            const auto [scale, shift] = groups.back();
+            const double left = shift + scale * x;
+            out.texts.push_back({text, left, left + scale * QFontMetricsF(font).horizontalAdvance(text)});
+        }
+    }
+    return out;
+}
+
+double mean(const std::vector<double>& v) {
+    double sum = 0;
+    std::size_t n = 0;
+    for (double x : v)
+        if (!std::isnan(x)) sum += x, ++n;
+    return sum / static_cast<double>(n);
+}
+
+}  // namespace
+
+// Redo answered only Ctrl+Shift+Z and Save As had no key at all where the
+// desktop names none (a plain X11 session): Ctrl+Y and Ctrl+Shift+S did nothing.
+TEST(UserFlows, RedoAndSaveAsAnswerTheirUsualKeys) {
+    Session s(QStringLiteral("orchard-nitrogen"));
+    s.w.analysisPage()->showSection(AnalysisPage::Probe);
+    QTest::mouseClick(s.probe()->moderatorSlider()->pinButton(), Qt::LeftButton);
+    ASSERT_EQ(s.analysis().probe.pinned.size(), 1u);
+
+    // Ctrl+Z, Ctrl+Y, and Ctrl+Z, Ctrl+Shift+Z (common practice: both redo keys).
+    s.keys(Qt::Key_Z, Qt::ControlModifier);
+    EXPECT_TRUE(s.analysis().probe.pinned.empty()) << "Ctrl+Z undoes the pin";
+    s.keys(Qt::Key_Y, Qt::ControlModifier);
+    EXPECT_EQ(s.analysis().probe.pinned.size(), 1u) << "Ctrl+Y redoes it";
+    s.keys(Qt::Key_Z, Qt::ControlModifier);
+    s.keys(Qt::Key_Z, Qt::ControlModifier | Qt::ShiftModifier);
+    EXPECT_EQ(s.analysis().probe.pinned.size(), 1u) << "Ctrl+Shift+Z redoes it too";
+
+    // Ctrl+Shift+S asks where to save (common practice); the user types a path and accepts.
+    const QString target = s.dir.filePath(QStringLiteral("saved-as.moderato"));
+    bool asked = false;
+    QTimer answer;
+    QObject::connect(&answer, &QTimer::timeout, [&] {
+        auto* dialog = qobject_cast<QFileDialog*>(QApplication::activeModalWidget());
+        auto* name = dialog ? dialog->findChild<QLineEdit*>(QStringLiteral("fileNameEdit")) : nullptr;
+        if (!name) return;
+        asked = true;
+        answer.stop();
+        // Typed into the file name box and confirmed with Enter, after this timer's slot returns.
+        QTimer::singleShot(0, name, [name, target] {
+            name->selectAll();
+            QTest::keyClicks(name, target);
+            QTest::keyClick(name, Qt::Key_Return);
+        });
+    });
+    answer.start(20);
+    QTimer::singleShot(5000, &answer, [&] { answer.stop(); });  // no dialog: the test fails below, it does not hang
+    s.keys(Qt::Key_S, Qt::ControlModifier | Qt::ShiftModifier);
+    EXPECT_TRUE(test::waitUntil([&] { return asked; }, 6000)) << "Ctrl+Shift+S opened no dialog";
+    EXPECT_TRUE(test::waitUntil([&] { return QFile::exists(target); }, 6000));
+    EXPECT_EQ(QFileInfo(s.w.document()->filePath()).absoluteFilePath(), QFileInfo(target).absoluteFilePath());
+    EXPECT_FALSE(s.w.document()->isModified());
+}
