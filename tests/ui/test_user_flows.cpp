@@ -233,3 +233,42 @@ TEST(UserFlows, RedoAndSaveAsAnswerTheirUsualKeys) {
     EXPECT_EQ(QFileInfo(s.w.document()->filePath()).absoluteFilePath(), QFileInfo(target).absoluteFilePath());
     EXPECT_FALSE(s.w.document()->isModified());
 }
+
+// The legend row keeps the wrapping made for the plot on screen; at a
+// narrow figure size (Single column, 3.5 in) its last entries ran off the
+// figure's right edge ("at the slider's valu…").
+TEST(UserFlows, ExportedLegendFitsANarrowFigure) {
+    Session s(QStringLiteral("orchard-nitrogen"));
+    s.w.analysisPage()->showSection(AnalysisPage::Probe);
+    QCoreApplication::processEvents();
+    FigureSettings narrow;
+    const FigurePreset* preset = findFigurePreset("single-column");
+    ASSERT_NE(preset, nullptr);
+    narrow.preset = preset->key;
+    narrow.width_in = preset->widthIn;
+    narrow.height_in = preset->heightIn;
+    for (FigureSource* source : QList<FigureSource*>{s.probe()->linesPlot(), s.probe()->effectPlot()}) {
+        SCOPED_TRACE(source->figureName().toStdString());
+        QCustomPlot* plot = source->figurePlot();
+        const QStringList names = legendNames(plot);
+        ASSERT_GE(names.size(), 3) << "a legend with several entries";
+        const int wrapBefore = plot->legend->wrap();
+        const int columnsBefore = plot->legend->columnCount();
+
+        const SvgLayout svg = svgLayout(FigureExporter(source, narrow).renderSvg());
+        ASSERT_GT(svg.width, 0);
+        for (const QString& name : names) {
+            int found = 0;
+            for (const SvgText& t : svg.texts)
+                if (t.text == name) {
+                    ++found;
+                    EXPECT_GE(t.left, -0.5) << name.toStdString();
+                    EXPECT_LE(t.right, svg.width + 0.5) << name.toStdString() << " runs off the figure's right edge";
+                }
+            EXPECT_EQ(found, 1) << name.toStdString();
+        }
+        // The plot on screen keeps its own wrapping.
+        EXPECT_EQ(plot->legend->wrap(), wrapBefore);
+        EXPECT_EQ(plot->legend->columnCount(), columnsBefore);
+    }
+}
