@@ -272,3 +272,61 @@ TEST(UserFlows, ExportedLegendFitsANarrowFigure) {
         EXPECT_EQ(plot->legend->columnCount(), columnsBefore);
     }
 }
+
+// A file with ';' between fields and decimal commas previewed every number
+// as text (categorical) until the user found the decimal-mark setting.
+TEST(UserFlows, ImportReadsDecimalCommasTheWayTheFileWritesThem) {
+    QTemporaryDir dir;
+    const QString commas = writeFile(dir, QStringLiteral("commas.csv"), "site;yield;rain\nA;3,5;12,25\nB;4,75;0,5\nC;-1,25;7\n");
+    {
+        ImportDialog dlg(commas);
+        dlg.show();
+        ASSERT_NE(dlg.previewTable(), nullptr) << dlg.message().toStdString();
+        EXPECT_TRUE(child<QComboBox>(&dlg, "import-decimal")->currentData().toBool()) << "the comma is taken";
+        const Table& t = *dlg.previewTable();
+        ASSERT_EQ(t.cols(), 3u);
+        EXPECT_EQ(t.at("site").kind, ColumnKind::Categorical);
+        ASSERT_EQ(t.at("yield").kind, ColumnKind::Numeric);
+        ASSERT_EQ(t.at("rain").kind, ColumnKind::Numeric);
+        // by hand: "3,5" = 3.5, "-1,25" = -1.25, "0,5" = 0.5
+        EXPECT_DOUBLE_EQ(t.at("yield").numbers[0], 3.5);
+        EXPECT_DOUBLE_EQ(t.at("yield").numbers[2], -1.25);
+        EXPECT_DOUBLE_EQ(t.at("rain").numbers[1], 0.5);
+        QTest::mouseClick(child<QPushButton>(&dlg, "import-load"), Qt::LeftButton);
+        ASSERT_TRUE(test::waitUntil([&] { return dlg.result() == QDialog::Accepted; })) << dlg.message().toStdString();
+        EXPECT_TRUE(dlg.options().decimal_comma);
+        EXPECT_EQ(dlg.options().delimiter, 0) << "still detected";
+        EXPECT_DOUBLE_EQ(dlg.table()->at("rain").numbers[0], 12.25);
+    }
+    {
+        // The user's choice stands, through other changes of the options.
+        ImportDialog dlg(commas);
+        dlg.show();
+        chooseByKeys(child<QComboBox>(&dlg, "import-decimal"), 0);  // Point (3.14)
+        ASSERT_TRUE(test::waitUntil([&] {
+            return dlg.previewTable() && dlg.previewTable()->at("yield").kind == ColumnKind::Categorical;
+        })) << dlg.message().toStdString();
+        auto* header = child<QCheckBox>(&dlg, "import-header");
+        QTest::mouseClick(header, Qt::LeftButton, {}, QPoint(4, header->height() / 2));
+        QTest::mouseClick(header, Qt::LeftButton, {}, QPoint(4, header->height() / 2));
+        ASSERT_TRUE(test::waitUntil([&] { return dlg.previewTable() && dlg.previewTable()->cols() == 3 && header->isChecked(); }));
+        EXPECT_FALSE(child<QComboBox>(&dlg, "import-decimal")->currentData().toBool());
+        EXPECT_EQ(dlg.previewTable()->at("yield").kind, ColumnKind::Categorical);
+    }
+    {
+        // Decimal points between semicolons, and a comma-separated file with a
+        // quoted "3,5": the point stays.
+        const QString points = writeFile(dir, QStringLiteral("points.csv"), "site;yield\nA;3.5\nB;4\n");
+        ImportDialog dlg(points);
+        ASSERT_NE(dlg.previewTable(), nullptr) << dlg.message().toStdString();
+        EXPECT_FALSE(child<QComboBox>(&dlg, "import-decimal")->currentData().toBool());
+        EXPECT_DOUBLE_EQ(dlg.previewTable()->at("yield").numbers[0], 3.5);
+        const QString quoted = writeFile(dir, QStringLiteral("quoted.csv"), "a,b\n\"3,5\",1\n\"4,5\",2\n");
+        ImportDialog dlg2(quoted);
+        ASSERT_NE(dlg2.previewTable(), nullptr) << dlg2.message().toStdString();
+        EXPECT_FALSE(child<QComboBox>(&dlg2, "import-decimal")->currentData().toBool());
+        EXPECT_FALSE(dlg2.messageIsError()) << dlg2.message().toStdString();
+        EXPECT_EQ(dlg2.previewTable()->at("a").kind, ColumnKind::Categorical);
+        EXPECT_EQ(dlg2.previewTable()->at("b").kind, ColumnKind::Numeric);
+    }
+}
