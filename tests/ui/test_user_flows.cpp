@@ -330,3 +330,44 @@ TEST(UserFlows, ImportReadsDecimalCommasTheWayTheFileWritesThem) {
         EXPECT_EQ(dlg2.previewTable()->at("b").kind, ColumnKind::Numeric);
     }
 }
+
+// After the Moderator was changed, the Probe section kept the old column's
+// slider value and pinned values: the readout said "slope_pct = 35.48
+// (beyond the data)" while the slider sat at the end of its range.
+TEST(UserFlows, ANewModeratorStartsTheProbeAtItsMean) {
+    Session s(QStringLiteral("orchard-nitrogen"));
+    s.w.analysisPage()->showSection(AnalysisPage::Probe);
+    typeValue(s.probe()->moderatorSlider()->valueBox(), QStringLiteral("35.48"));
+    QTest::mouseClick(s.probe()->moderatorSlider()->pinButton(), Qt::LeftButton);
+    ASSERT_EQ(s.analysis().probe.pinned, std::vector<double>{35.48});
+    ASSERT_DOUBLE_EQ(s.analysis().probe.current, 35.48);
+
+    // Specify: slope_pct out of Controls, then dragged from the list onto Moderator.
+    s.w.analysisPage()->showSection(AnalysisPage::Specify);
+    QToolButton* remove = s.specify()->slot(Role::Controls)->removeButton("slope_pct");
+    ASSERT_NE(remove, nullptr);
+    QTest::mouseClick(remove, Qt::LeftButton);
+    dropFromList(s.specify(), "slope_pct", Role::Moderator);
+    ASSERT_EQ(s.analysis().roles.moderator, "slope_pct");
+    EXPECT_TRUE(s.analysis().probe.pinned.empty());
+    EXPECT_TRUE(std::isnan(s.analysis().probe.current));
+    EXPECT_TRUE(s.specify()->message().contains(QStringLiteral("pinned values of 'soil_moisture_pct' were cleared")))
+        << s.specify()->message().toStdString();
+
+    // Probe: the slider, the box and the readout agree, at slope_pct's mean (closed form: the column's mean).
+    ASSERT_TRUE(s.waitForRun());
+    s.w.analysisPage()->showSection(AnalysisPage::Probe);
+    QCoreApplication::processEvents();
+    const double slopeMean = mean(s.w.document()->table(s.analysis().dataset)->at("slope_pct").numbers);
+    EXPECT_NEAR(s.probe()->currentModeratorValue(), slopeMean, 1e-9);
+    EXPECT_NEAR(s.probe()->moderatorSlider()->value(), slopeMean, 1e-9);
+    EXPECT_NEAR(s.probe()->moderatorSlider()->valueBox()->value(), slopeMean, 0.01);
+    EXPECT_TRUE(s.probe()->readoutText().startsWith(QStringLiteral("slope_pct = "))) << s.probe()->readoutText().toStdString();
+    EXPECT_FALSE(s.probe()->currentEffect().beyond_data);
+
+    // One undo brings back the old moderator with its values.
+    s.w.document()->undoStack()->undo();
+    EXPECT_EQ(s.analysis().roles.moderator, "soil_moisture_pct");
+    EXPECT_EQ(s.analysis().probe.pinned, std::vector<double>{35.48});
+    EXPECT_DOUBLE_EQ(s.analysis().probe.current, 35.48);
+}
