@@ -371,3 +371,32 @@ TEST(UserFlows, ANewModeratorStartsTheProbeAtItsMean) {
     EXPECT_EQ(s.analysis().probe.pinned, std::vector<double>{35.48});
     EXPECT_DOUBLE_EQ(s.analysis().probe.current, 35.48);
 }
+
+// Data imported into a project that already had an analysis showed up as a
+// dataset only; the one way to analyse it was a context menu in the sidebar.
+TEST(UserFlows, ImportingIntoAProjectStartsAnAnalysisOfTheNewData) {
+    Session s(QStringLiteral("orchard-nitrogen"));
+    const QString tickets = s.dir.filePath(QStringLiteral("tickets.csv"));
+    ASSERT_TRUE(QFile::copy(test::samplesDir() + QStringLiteral("/helpdesk-staffing/tickets.csv"), tickets));
+    const int undoBefore = s.w.document()->undoStack()->count();
+    ASSERT_TRUE(s.w.importData(tickets, CsvOptions{})) << s.w.lastMessage().toStdString();
+
+    const Project& p = s.w.document()->project();
+    ASSERT_EQ(p.datasets.size(), 2u);
+    ASSERT_EQ(p.analyses.size(), 2u);
+    const Analysis& added = p.analyses.back();
+    EXPECT_EQ(added.dataset, p.datasets.back().id);
+    EXPECT_EQ(s.w.analysisPage()->analysisId(), QString::fromStdString(added.id)) << "the new analysis is on screen";
+    // tickets.csv holds one numeric outcome-like column first (by construction of the sample).
+    EXPECT_EQ(added.roles.outcome, "resolution_hours");
+    EXPECT_FALSE(added.roles.focal.empty());
+    const QString newId = QString::fromStdString(added.id);
+    EXPECT_TRUE(test::waitUntil([&] { return s.w.runner()->result(newId) || !s.w.runner()->error(newId).isEmpty(); }));
+    EXPECT_TRUE(s.w.runner()->error(newId).isEmpty()) << s.w.runner()->error(newId).toStdString();
+
+    // One step: undo removes the dataset and its analysis together.
+    EXPECT_EQ(s.w.document()->undoStack()->count(), undoBefore + 1);
+    s.w.document()->undoStack()->undo();
+    EXPECT_EQ(s.w.document()->project().datasets.size(), 1u);
+    EXPECT_EQ(s.w.document()->project().analyses.size(), 1u);
+}
