@@ -17,6 +17,7 @@
 #include <QLineEdit>
 #include <QMimeData>
 #include <QPushButton>
+#include <QStatusBar>
 #include <QTemporaryDir>
 #include <QTest>
 #include <QTimer>
@@ -28,6 +29,7 @@
 #include <qcustomplot.h>
 
 #include "data/import_dialog.hpp"
+#include "export/figure_export_dialog.hpp"
 #include "export/figure_exporter.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
@@ -399,4 +401,41 @@ TEST(UserFlows, ImportingIntoAProjectStartsAnAnalysisOfTheNewData) {
     s.w.document()->undoStack()->undo();
     EXPECT_EQ(s.w.document()->project().datasets.size(), 1u);
     EXPECT_EQ(s.w.document()->project().analyses.size(), 1u);
+}
+
+// Saving a figure closes the export dialog; nothing then said that (or
+// where) the file had been written.
+TEST(UserFlows, SavingAFigureSaysWhereItWent) {
+    Session s(QStringLiteral("orchard-nitrogen"));
+    s.w.analysisPage()->showSection(AnalysisPage::Probe);
+    const QString target = s.dir.filePath(QStringLiteral("effect.png"));
+    // Ctrl+E, then Save… in the export dialog, then the path typed into the file dialog.
+    enum { Export, FileName, Done } stage = Export;
+    QTimer driver;
+    QObject::connect(&driver, &QTimer::timeout, [&] {
+        QWidget* modal = QApplication::activeModalWidget();
+        auto* save = qobject_cast<FigureExportDialog*>(modal) ? modal->findChild<QPushButton*>(QStringLiteral("figure-save"))
+                                                              : nullptr;
+        if (stage == Export && save) {
+            stage = FileName;
+            QTimer::singleShot(0, save, [save] { QTest::mouseClick(save, Qt::LeftButton); });
+        } else if (stage == FileName && qobject_cast<QFileDialog*>(modal)) {
+            auto* name = modal->findChild<QLineEdit*>(QStringLiteral("fileNameEdit"));
+            if (!name) return;
+            stage = Done;
+            driver.stop();
+            QTimer::singleShot(0, name, [name, target] {
+                name->selectAll();
+                QTest::keyClicks(name, target);
+                QTest::keyClick(name, Qt::Key_Return);
+            });
+        }
+    });
+    driver.start(20);
+    QTimer::singleShot(8000, &driver, [&] { driver.stop(); });
+    s.keys(Qt::Key_E, Qt::ControlModifier);
+    ASSERT_TRUE(test::waitUntil([&] { return stage == Done && QApplication::activeModalWidget() == nullptr; }, 9000));
+    ASSERT_TRUE(QFile::exists(target));
+    const QString shown = s.w.statusBar()->currentMessage();
+    EXPECT_TRUE(shown.contains(QDir::toNativeSeparators(QFileInfo(target).absoluteFilePath()))) << shown.toStdString();
 }

@@ -5,6 +5,7 @@
 #include <QClipboard>
 #include <QCloseEvent>
 #include <QDragEnterEvent>
+#include <QDir>
 #include <QDropEvent>
 #include <QEventLoop>
 #include <QFileDialog>
@@ -447,7 +448,11 @@ void MainWindow::exportFigure() {
     const Analysis* a = doc_->analysis(id);
     const QString caption = a && run ? figureCaption(*a, *run) : QString();
     FigureExportDialog dialog(figures, doc_, id, caption, this);
-    dialog.exec();
+    // Saving closes the dialog: say where the file went.
+    if (dialog.exec() == QDialog::Accepted && !dialog.lastSavedPath().isEmpty())
+        statusBar()->showMessage(
+            tr("Saved the figure to %1").arg(QDir::toNativeSeparators(QFileInfo(dialog.lastSavedPath()).absoluteFilePath())),
+            10000);
 }
 
 void MainWindow::copySelection() {
