@@ -14,6 +14,7 @@
 #include <QFile>
 #include <QFileDialog>
 #include <QFontMetricsF>
+#include <QLabel>
 #include <QLineEdit>
 #include <QMimeData>
 #include <QPushButton>
@@ -28,6 +29,7 @@
 #include <map>
 #include <qcustomplot.h>
 
+#include "data/derived_column_dialog.hpp"
 #include "data/import_dialog.hpp"
 #include "export/figure_export_dialog.hpp"
 #include "export/figure_exporter.hpp"
@@ -438,4 +440,40 @@ TEST(UserFlows, SavingAFigureSaysWhereItWent) {
     ASSERT_TRUE(QFile::exists(target));
     const QString shown = s.w.statusBar()->currentMessage();
     EXPECT_TRUE(shown.contains(QDir::toNativeSeparators(QFileInfo(target).absoluteFilePath()))) << shown.toStdString();
+}
+
+// A recipe refused with a long message (log of a column holding 0) squeezed
+// the dialog's fields over each other and cut the message off: the dialog
+// kept its height while the wrapped text needed more.
+TEST(UserFlows, DerivedColumnDialogShowsAWholeRefusal) {
+    auto table = std::make_shared<Table>();
+    table->source = "/some/where/rather/long/folder/name/plots.csv";
+    Column c;
+    c.name = "nitrogen_kg_ha";
+    c.kind = ColumnKind::Numeric;
+    c.numbers = {12, 0, 7, 3};  // the 0 makes log impossible (by construction)
+    table->columns.push_back(c);
+    DerivedColumnDialog dialog(table, {"nitrogen_kg_ha"}, QStringLiteral("plots"));
+    dialog.setKind(QStringLiteral("log"));
+    dialog.setSource(QStringLiteral("nitrogen_kg_ha"));
+    dialog.show();
+    ASSERT_TRUE(QTest::qWaitForWindowExposed(&dialog));
+    const int heightBefore = dialog.height();
+    QTest::mouseClick(child<QPushButton>(&dialog, "derived-ok"), Qt::LeftButton);
+    ASSERT_EQ(dialog.result(), QDialog::Rejected) << "the recipe is refused";
+    auto* message = child<QLabel>(&dialog, "derived-message");
+    ASSERT_TRUE(message->text().contains(QStringLiteral("nitrogen_kg_ha"))) << message->text().toStdString();
+    QCoreApplication::processEvents();
+
+    // Every line of the message is shown, and nothing overlaps: each row of the
+    // form ends above the next, the message above the buttons.
+    EXPECT_GE(message->height(), message->heightForWidth(message->width()));
+    EXPECT_GT(dialog.height(), heightBefore);
+    const QWidget* name = child<QLineEdit>(&dialog, "derived-name");
+    const QWidget* hint = child<QLabel>(&dialog, "derived-hint");
+    const QWidget* ok = child<QPushButton>(&dialog, "derived-ok");
+    EXPECT_LE(name->geometry().bottom(), hint->geometry().top());
+    EXPECT_LE(hint->geometry().bottom(), message->geometry().top());
+    EXPECT_LE(message->geometry().bottom(), ok->mapTo(&dialog, QPoint(0, 0)).y());
+    EXPECT_GE(child<QComboBox>(&dialog, "derived-kind")->height(), child<QComboBox>(&dialog, "derived-kind")->minimumSizeHint().height());
 }
