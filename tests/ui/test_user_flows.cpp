@@ -26,7 +26,6 @@
 #include <QUndoStack>
 #include <QXmlStreamReader>
 #include <cmath>
-#include <map>
 #include <qcustomplot.h>
 
 #include "data/derived_column_dialog.hpp"
