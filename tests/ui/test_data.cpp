@@ -152,10 +152,11 @@ TEST(ImportDialog, SemicolonFileWithDecimalCommasPreviewsNumbers) {
     ImportDialog dlg(path);
     dlg.show();
     auto* model = dlg.previewModel();
-    // Defaults: the delimiter is detected, the decimal mark is a point, so "3,5" is text.
+    // Defaults: the delimiter is detected and the decimal mark follows the file, so "3,5" is a number.
     ASSERT_NE(dlg.previewTable(), nullptr) << dlg.message().toStdString();
     ASSERT_EQ(model->columnCount(), 4);
-    EXPECT_EQ(dlg.previewTable()->columns[1].kind, ColumnKind::Categorical);
+    EXPECT_EQ(dlg.previewTable()->columns[1].kind, ColumnKind::Numeric);
+    EXPECT_TRUE(child<QComboBox>(&dlg, "import-decimal")->currentData().toBool());
 
     chooseByKeys(child<QComboBox>(&dlg, "import-delimiter"), 2);  // Semicolon
     chooseByKeys(child<QComboBox>(&dlg, "import-decimal"), 1);    // Comma (3,14)

@@ -251,11 +251,24 @@ void DerivedColumnDialog::updateHint() {
         text = QString::fromStdString(e.what());
     }
     hint_->setText(text);
+    growToFit();
+}
+
+void DerivedColumnDialog::growToFit() {
+    // Wrapped text needs height for the dialog's width, which a dialog's
+    // minimum size does not follow: grow the dialog rather than squeeze the
+    // fields (before it is shown, showing sizes it).
+    if (!isVisible()) return;
+    layout()->activate();
+    const int need = layout()->hasHeightForWidth() ? layout()->totalHeightForWidth(width())
+                                                   : layout()->totalMinimumSize().height();
+    if (need > height()) resize(width(), need);
 }
 
 void DerivedColumnDialog::setMessage(const QString& text, bool error) {
     message_->setText(text);
     keepAccentText(message_, error ? estuary::series(1) : QColor());
+    growToFit();
 }
 
 QString DerivedColumnDialog::message() const { return message_->text(); }

@@ -49,6 +49,7 @@ private:
     void suggestName();
     void updateHint();
     void setMessage(const QString& text, bool error);
+    void growToFit();
 
     std::shared_ptr<const Table> table_;
     std::set<std::string> taken_;

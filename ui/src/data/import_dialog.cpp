@@ -14,6 +14,7 @@
 #include <QLocale>
 #include <QProgressBar>
 #include <QPushButton>
+#include <QSignalBlocker>
 #include <QSplitter>
 #include <QStyledItemDelegate>
 #include <QTableView>
@@ -21,6 +22,7 @@
 #include <QTimer>
 #include <QVBoxLayout>
 #include <QtConcurrent/QtConcurrentRun>
+#include <algorithm>
 #include <atomic>
 
 #include "data/csv_head.hpp"
@@ -56,6 +58,11 @@ protected:
         }
     }
 };
+
+std::size_t numericColumns(const Table& t) {
+    return static_cast<std::size_t>(std::count_if(t.columns.begin(), t.columns.end(),
+                                                  [](const Column& c) { return c.kind == ColumnKind::Numeric; }));
+}
 
 QString kindName(ColumnKind k) {
     return k == ColumnKind::Numeric ? ImportDialog::tr("numeric") : ImportDialog::tr("categorical");
@@ -226,6 +233,7 @@ void ImportDialog::buildUi() {
     });
     connect(otherDelimiter_, &QLineEdit::textChanged, this, &ImportDialog::schedulePreview);
     connect(header_, &QCheckBox::toggled, this, &ImportDialog::schedulePreview);
+    connect(decimal_, &QComboBox::activated, this, [this] { decimalChosen_ = true; });
     connect(decimal_, &QComboBox::currentIndexChanged, this, &ImportDialog::schedulePreview);
     connect(missing_, &QListWidget::itemChanged, this, &ImportDialog::schedulePreview);
     connect(addMissing_, &QPushButton::clicked, this, [this] {
@@ -308,6 +316,7 @@ void ImportDialog::refreshPreview() {
         return;
     }
     base.threads = 1;
+    if (!decimalChosen_) base.decimal_comma = false;  // guessed from the file below
     const std::string file = path_.toStdString();
     const CsvHead head = readCsvHead(file, kPreviewRecords, base.delimiter);
     if (!head.error.empty()) {
@@ -321,6 +330,25 @@ void ImportDialog::refreshPreview() {
     try {
         // First without the type overrides: the columns and what they hold.
         auto plain = std::make_shared<const Table>(read_csv_text(head.text, name, base));
+        if (!decimalChosen_) {
+            // Numbers written with a decimal comma ("3,14", fields split by ';'
+            // or tab) read as text with the point: take the comma when it
+            // makes more columns numeric, until the user picks a mark.
+            bool comma = false;
+            CsvOptions withComma = base;
+            withComma.decimal_comma = true;
+            try {
+                auto t = std::make_shared<const Table>(read_csv_text(head.text, name, withComma));
+                if (numericColumns(*t) > numericColumns(*plain)) {
+                    plain = std::move(t);
+                    comma = true;
+                }
+            } catch (const InputError&) {
+                // e.g. a comma-separated file: the point it is
+            }
+            const QSignalBlocker quiet(decimal_);
+            decimal_->setCurrentIndex(decimal_->findData(comma));
+        }
         rebuildKinds(*plain);
         CsvOptions withKinds = currentOptions();
         withKinds.threads = 1;

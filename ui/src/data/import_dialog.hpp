@@ -112,6 +112,7 @@ private:
     QTimer* progressTimer_ = nullptr;
     bool messageIsError_ = false;
     bool loading_ = false;
+    bool decimalChosen_ = false;  // the user chose the decimal mark (else it follows the file)
 
     std::shared_ptr<LoadState> load_;
     QFutureWatcher<LoadResult> watcher_;

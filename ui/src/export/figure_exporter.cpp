@@ -20,6 +20,7 @@
 #include <vector>
 
 #include "plots/figure_source.hpp"
+#include "plots/probe_plot_util.hpp"
 #include "style/estuary.hpp"
 
 namespace moderato::ui {
@@ -107,7 +108,8 @@ QBrush greyBrush(QBrush b) {
 // restores every value it changed (and the source's colours) when destroyed.
 class ExportState {
 public:
-    ExportState(FigureSource* source, QCustomPlot* plot, const FigureSettings& s)
+    // `width`: the figure's width in the units the plot is laid out in.
+    ExportState(FigureSource* source, QCustomPlot* plot, const FigureSettings& s, int width)
         : source_(source), plot_(plot), greyscale_(s.greyscale) {
         if (greyscale_) source_->setGreyscale(true);
         // Everything QCustomPlot draws is a layerable owned by the plot; its
@@ -153,6 +155,17 @@ public:
             }
         }
         for (std::size_t i = 0; i < saved_.size(); ++i) saved_[i].property.write(saved_[i].object, changed[i]);
+        // A legend in a row of its own is wrapped for the live plot's width:
+        // wrap it again for the figure's width and font, or its entries are cut off.
+        QCPLegend* legend = plot->legend;
+        if (legend && legend->visible() && !plot->axisRect()->insetLayout()->elements(false).contains(legend)) {
+            legend_ = legend;
+            legendWrap_ = legend->wrap();
+            legendOrder_ = legend->fillOrder();
+            for (int i = 0; i < legend->elementCount(); ++i)  // a wrapped grid has empty cells
+                if (QCPAbstractLegendItem* item = legend->item(i)) itemMargins_.push_back({item, item->margins()});
+            fitLegend(plot, width);
+        }
     }
 
     ~ExportState() {
@@ -160,6 +173,12 @@ public:
         // so the legend comes back first and each item's own value after it.
         for (const Saved& s : saved_)
             if (s.object) s.property.write(s.object, s.value);
+        if (legend_) {
+            for (const auto& [item, margins] : itemMargins_)
+                if (item) item->setMargins(margins);
+            legend_->setWrap(legendWrap_);
+            legend_->setFillOrder(legendOrder_, true);
+        }
         if (greyscale_) source_->setGreyscale(false);
         plot_->replot();  // lays the plot out again at its own size
     }
@@ -177,6 +196,10 @@ private:
     QCustomPlot* plot_;
     bool greyscale_;
     std::vector<Saved> saved_;
+    QPointer<QCPLegend> legend_;
+    int legendWrap_ = 0;
+    QCPLayoutGrid::FillOrder legendOrder_ = QCPLayoutGrid::foColumnsFirst;
+    std::vector<std::pair<QPointer<QCPAbstractLegendItem>, QMargins>> itemMargins_;
 };
 
 // Draws the plot and the caption under it into `logical` (units of 1/L inch).
@@ -243,11 +266,11 @@ QImage FigureExporter::renderImage() const {
     image.fill(Qt::white);
     QCustomPlot* plot = source_->figurePlot();
     {
-        ExportState state(source_, plot, settings_);
         const double L = layoutDpi();
         const double scale = settings_.dpi / L;  // the image keeps its default resolution (L) while painting
         const QSize logical(std::max(1, static_cast<int>(std::lround(px.width() / scale))),
                             std::max(1, static_cast<int>(std::lround(px.height() / scale))));
+        ExportState state(source_, plot, settings_, logical.width());
         QCPPainter painter(&image);
         painter.scale(scale, scale);
         paintFigure(painter, plot, logical, settings_, caption_);
@@ -277,7 +300,7 @@ QByteArray FigureExporter::renderSvg() const {
     generator.setDescription(caption_.isEmpty() ? QObject::tr("Made with Moderato") : caption_);
     QCustomPlot* plot = source_->figurePlot();
     {
-        ExportState state(source_, plot, settings_);
+        ExportState state(source_, plot, settings_, logical.width());
         QCPPainter painter;
         if (!painter.begin(&generator)) return {};
         painter.setMode(QCPPainter::pmVectorized);
@@ -308,7 +331,7 @@ QByteArray FigureExporter::renderPdf() const {
                            QPageLayout::Portrait, QMarginsF(0, 0, 0, 0), QPageLayout::Point);
         layout.setMode(QPageLayout::FullPageMode);
         writer.setPageLayout(layout);
-        ExportState state(source_, plot, settings_);
+        ExportState state(source_, plot, settings_, writer.width());
         QCPPainter painter;
         if (!painter.begin(&writer)) return {};
         painter.setMode(QCPPainter::pmVectorized);

@@ -126,7 +126,7 @@ std::string ProjectDocument::addDataset(const QString& dataPath, const CsvOption
     saved_.erase(s.id);
     absolutePaths_[s.id] = s.path;
     QString text = tr("Add dataset %1").arg(QFileInfo(dataPath).fileName());
-    if (after.analyses.empty() && table) {
+    if (table) {  // a new dataset has no analysis yet: start one, as for the first dataset
         Analysis a = guess_analysis(*table, s.id, after.unique_id("analysis"));
         after.analyses.push_back(a);
     }

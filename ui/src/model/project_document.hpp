@@ -41,8 +41,8 @@ public:
     void adopt(LoadedProject loaded);
     void clear();  // a new, empty project
 
-    // Adds a dataset read from `dataPath` (undoable); returns its id. When the
-    // project is empty, also adds a first analysis with guessed roles.
+    // Adds a dataset read from `dataPath` (undoable); returns its id. Also adds
+    // a first analysis of it with guessed roles (one undo step for both).
     // `sha256`: of the bytes the table was read from (empty: computed at save).
     std::string addDataset(const QString& dataPath, const CsvOptions& import, std::shared_ptr<const Table> table,
                            const std::string& sha256 = {});

@@ -32,7 +32,7 @@ void setUpProbePlot(QCustomPlot* plot) {
     plot->setPlottingHint(QCP::phCacheLabels, true);
 }
 
-bool fitLegend(QCustomPlot* plot) {
+bool fitLegend(QCustomPlot* plot, int width) {
     QCPLegend* legend = plot->legend;
     // A wrapped grid has empty cells: count the items that are there.
     std::vector<int> widths;
@@ -44,7 +44,7 @@ bool fitLegend(QCustomPlot* plot) {
         }
     const int n = static_cast<int>(widths.size());
     if (n == 0) return false;
-    const int available = plot->width() - legend->margins().left() - legend->margins().right() - 8;
+    const int available = (width > 0 ? width : plot->width()) - legend->margins().left() - legend->margins().right() - 8;
     int best = 1;
     for (int k = n; k >= 1; --k) {
         int total = (k - 1) * legend->columnSpacing();

@@ -26,9 +26,10 @@ inline const QString kMovingLayer = QStringLiteral("moving");
 // legend into a row of its own above the axis rect.
 void setUpProbePlot(QCustomPlot* plot);
 
-// Wraps the legend row into as many columns as fit the plot's width;
-// returns whether the layout changed (the caller replots).
-bool fitLegend(QCustomPlot* plot);
+// Wraps the legend row into as many columns as fit the plot's width (or
+// `width`, e.g. a figure's width when it is exported); returns whether the
+// layout changed (the caller replots).
+bool fitLegend(QCustomPlot* plot, int width = -1);
 
 // A band between lower and upper (brush `fill`, no outline), drawn on the
 // current layer; returns the upper graph (the one that carries the fill).

@@ -5,6 +5,7 @@
 #include <QClipboard>
 #include <QCloseEvent>
 #include <QDragEnterEvent>
+#include <QDir>
 #include <QDropEvent>
 #include <QEventLoop>
 #include <QFileDialog>
@@ -74,6 +75,15 @@ Result runWithProgress(QWidget* parent, const QString& label, bool interactive, 
     if (!watcher.isFinished()) loop.exec();
     *cancelled = stop.load();
     return watcher.result();
+}
+
+// The platform's keys for a standard action, then those of `usual` it lacks
+// (a plain X11 session binds no key to Save As and only Ctrl+Shift+Z to Redo).
+QList<QKeySequence> withFallback(QKeySequence::StandardKey key, const QList<QKeySequence>& usual) {
+    QList<QKeySequence> keys = QKeySequence::keyBindings(key);
+    for (const QKeySequence& k : usual)
+        if (!keys.contains(k)) keys << k;
+    return keys;
 }
 
 struct LoadOutcome {
@@ -174,11 +184,11 @@ void MainWindow::buildMenus() {
     });
     file->addSeparator();
     file->addAction(tr("&Save"), QKeySequence::Save, this, [this] { save(); });
-    file->addAction(tr("Save &As…"), QKeySequence::SaveAs, this, [this] {
+    file->addAction(tr("Save &As…"), this, [this] {
         const QString path = QFileDialog::getSaveFileName(this, tr("Save project"), doc_->filePath(),
                                                           tr("Moderato projects (*.moderato)"));
         if (!path.isEmpty()) saveAs(isProjectPath(path) ? path : path + QStringLiteral(".moderato"));
-    });
+    })->setShortcuts(withFallback(QKeySequence::SaveAs, {QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_S)}));
     file->addSeparator();
     file->addAction(tr("&Export Figure…"), QKeySequence(Qt::CTRL | Qt::Key_E), this, &MainWindow::exportFigure);
     file->addSeparator();
@@ -189,7 +199,9 @@ void MainWindow::buildMenus() {
     QAction* undo = doc_->undoStack()->createUndoAction(this, tr("&Undo"));
     undo->setShortcut(QKeySequence::Undo);
     QAction* redo = doc_->undoStack()->createRedoAction(this, tr("&Redo"));
-    redo->setShortcut(QKeySequence::Redo);
+    // Both usual keys for Redo on every desktop (some offer only one of them).
+    redo->setShortcuts(withFallback(QKeySequence::Redo, {QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_Z),
+                                                         QKeySequence(Qt::CTRL | Qt::Key_Y)}));
     edit->addAction(undo);
     edit->addAction(redo);
     edit->addSeparator();
@@ -443,7 +455,11 @@ void MainWindow::exportFigure() {
     const Analysis* a = doc_->analysis(id);
     const QString caption = a && run ? figureCaption(*a, *run) : QString();
     FigureExportDialog dialog(figures, doc_, id, caption, this);
-    dialog.exec();
+    // Saving closes the dialog: say where the file went.
+    if (dialog.exec() == QDialog::Accepted && !dialog.lastSavedPath().isEmpty())
+        statusBar()->showMessage(
+            tr("Saved the figure to %1").arg(QDir::toNativeSeparators(QFileInfo(dialog.lastSavedPath()).absoluteFilePath())),
+            10000);
 }
 
 void MainWindow::copySelection() {

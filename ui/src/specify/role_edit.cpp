@@ -2,6 +2,7 @@
 
 #include <QCoreApplication>
 #include <algorithm>
+#include <limits>
 
 namespace moderato::ui {
 
@@ -49,6 +50,20 @@ RoleEdit checked(const Analysis& before, Analysis after, const Table* table, QSt
         e.refusal = added.join(QLatin1Char('\n'));
         return e;
     }
+    // The slider's value and the pinned values are values of the moderator,
+    // and the second moderator's held value one of that column: they mean
+    // nothing for another column, so the probe starts again at the mean.
+    if (after.roles.moderator != before.roles.moderator) {
+        if (!after.probe.pinned.empty() && !before.roles.moderator.empty() && !after.roles.moderator.empty()) {
+            const QString cleared = tr("The pinned values of %1 were cleared; pin values of %2 in the Probe section.")
+                                        .arg(q(before.roles.moderator), q(after.roles.moderator));
+            note = note.isEmpty() ? cleared : note + QLatin1Char(' ') + cleared;
+        }
+        after.probe.current = std::numeric_limits<double>::quiet_NaN();
+        after.probe.pinned.clear();
+    }
+    if (after.roles.second_moderator != before.roles.second_moderator)
+        after.probe.second_value = std::numeric_limits<double>::quiet_NaN();
     e.after = std::move(after);
     e.description = std::move(description);
     e.note = std::move(note);
