@@ -7,6 +7,9 @@
 namespace moderato::ui {
 
 void stylePlot(QCustomPlot* plot, const QFont& font) {
+    // An explicit minimum: otherwise the layout takes the plot's own hint,
+    // which grows with its legend row and keeps the window from shrinking.
+    plot->setMinimumSize(240, 160);
     plot->setBackground(Qt::white);
     plot->setAntialiasedElements(QCP::aePlottables | QCP::aeItems | QCP::aeGrid);
     QPen axisPen(estuary::ink);

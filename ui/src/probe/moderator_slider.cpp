@@ -34,7 +34,7 @@ ModeratorSlider::ModeratorSlider(QWidget* parent)
     layout->addWidget(name_);
     slider_->setObjectName(QStringLiteral("moderator-slider"));
     slider_->setRange(0, kSteps);
-    slider_->setMinimumWidth(160);
+    slider_->setMinimumWidth(100);
     slider_->setToolTip(tr("Moderator slider: the highlighted line and the readout follow it"));
     layout->addWidget(slider_, 1);
     box_->setObjectName(QStringLiteral("moderator-value"));

@@ -160,7 +160,7 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     panelLayout->addWidget(summary_);
     panelLayout->addStretch(1);
     scroll->setWidget(panel);
-    scroll->setMinimumWidth(430);
+    scroll->setMinimumWidth(320);
     split->addWidget(left);
     split->addWidget(scroll);
     split->setStretchFactor(0, 1);
