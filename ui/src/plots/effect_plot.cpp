@@ -211,7 +211,7 @@ void EffectPlot::buildContinuous() {
         if (k + 1 < shown.size() && shown[k + 1] - b < 0.1 * span) h = Qt::AlignRight;
         else if (k > 0 && b - shown[k - 1] < 0.1 * span) h = Qt::AlignLeft;
         t->setPositionAlignment(Qt::AlignTop | h);
-        t->setText(formatNumber(b, 3));
+        t->setText(probeNumber(b, 3));
         t->setFont(note);
         t->setColor(estuary::ink);
         t->setBrush(QBrush(QColor(255, 255, 255, 220)));
@@ -373,7 +373,7 @@ void EffectPlot::setCurrent(double m, const EffectPoint& at, bool replot) {
     }
     const std::size_t k = static_cast<std::size_t>(std::max(0L, std::lround(m)));
     handleLabel_->setText(data_.groups ? (k < data_.groupNames.size() ? data_.groupNames[k] : QString())
-                                       : formatNumber(m) + (at.beyond_data ? tr("  beyond the data") : QString()));
+                                       : probeNumber(m) + (at.beyond_data ? tr("  beyond the data") : QString()));
     // Keep the label inside the plot near either edge.
     const QRect r = plot_->axisRect()->rect();
     const double px = plot_->xAxis->coordToPixel(m);

@@ -20,12 +20,12 @@ bool near(double a, double b, double scale) { return std::abs(a - b) <= 1e-9 * s
 
 QString heldValueLabel(double value, double mean, double sd, const QStringList& levels, bool zeroOne) {
     if (zeroOne) {
-        if (std::isnan(value)) return QObject::tr("%1 (mean)").arg(formatNumber(mean));
-        return formatNumber(value);
+        if (std::isnan(value)) return QObject::tr("%1 (mean)").arg(probeNumber(mean));
+        return probeNumber(value);
     }
     if (!levels.isEmpty()) {
         const long k = std::isnan(value) ? 0 : std::lround(value);
-        const QString level = k >= 0 && k < levels.size() ? levels[static_cast<int>(k)] : formatNumber(value);
+        const QString level = k >= 0 && k < levels.size() ? levels[static_cast<int>(k)] : probeNumber(value);
         return k == 0 ? QObject::tr("'%1' (reference level)").arg(level) : QStringLiteral("'%1'").arg(level);
     }
     const double v = std::isnan(value) ? mean : value;
@@ -33,7 +33,7 @@ QString heldValueLabel(double value, double mean, double sd, const QStringList& 
     if (std::isnan(value) || near(v, mean, sd)) tag = QObject::tr("mean");
     else if (sd > 0 && near(v, mean - sd, sd)) tag = QObject::tr("mean − 1 SD");
     else if (sd > 0 && near(v, mean + sd, sd)) tag = QObject::tr("mean + 1 SD");
-    return tag.isEmpty() ? formatNumber(v) : QStringLiteral("%1 (%2)").arg(formatNumber(v), tag);
+    return tag.isEmpty() ? probeNumber(v) : QStringLiteral("%1 (%2)").arg(probeNumber(v), tag);
 }
 
 QString heldValueText(const Analysis& a, const Design& d) {

@@ -1,6 +1,8 @@
 // How the Probe section writes numbers: four significant digits (no
 // exponent for ordinary magnitudes), p-values to three decimals with
-// "< 0.001" below that, and the names of the test statistic.
+// "< 0.001" below that, and the names of the test statistic. (The names
+// differ from estimates/number_format.hpp on purpose: two inline and
+// out-of-line functions with one name would break the one-definition rule.)
 #pragma once
 
 #include <QLocale>
@@ -9,7 +11,7 @@
 
 namespace moderato::ui {
 
-inline QString formatNumber(double v, int digits = 4) {
+inline QString probeNumber(double v, int digits = 4) {
     if (std::isnan(v)) return QStringLiteral("—");
     if (std::isinf(v)) return v > 0 ? QStringLiteral("∞") : QStringLiteral("−∞");
     QString s = QLocale::c().toString(v, 'g', digits);
@@ -17,7 +19,7 @@ inline QString formatNumber(double v, int digits = 4) {
     return s;
 }
 
-inline QString formatP(double p) {
+inline QString probePValue(double p) {
     if (std::isnan(p)) return QStringLiteral("—");
     if (p < 0.001) return QStringLiteral("< 0.001");
     return QLocale::c().toString(p, 'f', 3);

@@ -42,12 +42,12 @@ QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
     if (role == Qt::DisplayRole) {
         switch (index.column()) {
         case Value: return r.label;
-        case Effect: return formatNumber(e.effect);
-        case SE: return formatNumber(e.std_error);
-        case Statistic: return formatNumber(e.statistic, 3);
-        case P: return formatP(e.p_value);
-        case Lower: return formatNumber(e.ci_lower);
-        case Upper: return formatNumber(e.ci_upper);
+        case Effect: return probeNumber(e.effect);
+        case SE: return probeNumber(e.std_error);
+        case Statistic: return probeNumber(e.statistic, 3);
+        case P: return probePValue(e.p_value);
+        case Lower: return probeNumber(e.ci_lower);
+        case Upper: return probeNumber(e.ci_upper);
         case Note: return e.beyond_data ? tr("beyond the data") : QString();
         }
     }

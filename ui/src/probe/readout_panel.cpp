@@ -69,12 +69,12 @@ void ReadoutPanel::clear(const QString& message) {
 QList<ReadoutPanel::Row> ReadoutPanel::rows() const {
     QList<Row> r;
     if (!hasPoint_) return r;
-    r << Row{tr("effect"), formatNumber(point_.effect)};
-    r << Row{tr("SE"), formatNumber(point_.std_error)};
-    r << Row{intervalName_, tr("%1 to %2").arg(formatNumber(point_.ci_lower), formatNumber(point_.ci_upper))};
-    r << Row{statisticName_, formatNumber(point_.statistic, 3)};
-    r << Row{tr("p"), formatP(point_.p_value)};
-    if (band_) r << Row{tr("simultaneous band"), tr("%1 to %2").arg(formatNumber(band_->first), formatNumber(band_->second))};
+    r << Row{tr("effect"), probeNumber(point_.effect)};
+    r << Row{tr("SE"), probeNumber(point_.std_error)};
+    r << Row{intervalName_, tr("%1 to %2").arg(probeNumber(point_.ci_lower), probeNumber(point_.ci_upper))};
+    r << Row{statisticName_, probeNumber(point_.statistic, 3)};
+    r << Row{tr("p"), probePValue(point_.p_value)};
+    if (band_) r << Row{tr("simultaneous band"), tr("%1 to %2").arg(probeNumber(band_->first), probeNumber(band_->second))};
     return r;
 }
 

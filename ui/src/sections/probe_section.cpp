@@ -210,7 +210,7 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
         const QString col = q(a->roles.second_moderator);
         editSettings([v](ProbeSettings& p) { p.second_value = v; },
                      std::isnan(v) ? tr("Hold %1 at its default").arg(col)
-                                   : tr("Hold %1 at %2").arg(col, formatNumber(v)));
+                                   : tr("Hold %1 at %2").arg(col, probeNumber(v)));
     });
     connect(differ_, &QCheckBox::toggled, this, [this] {
         if (!rebuilding_ && engine_.valid()) buildPlots();
@@ -348,7 +348,7 @@ QString ProbeSection::productCoefficientText() const {
     const std::string f = engine_.focal(), m = engine_.moderator();
     for (const std::string& term : {f + "×" + m, m + "×" + f}) {
         const int i = fit.index_of(term);
-        if (i >= 0) return QStringLiteral(" (%1 = %2)").arg(q(term), formatNumber(fit.beta[i]));
+        if (i >= 0) return QStringLiteral(" (%1 = %2)").arg(q(term), probeNumber(fit.beta[i]));
     }
     return {};
 }
@@ -388,7 +388,7 @@ QString ProbeSection::moderatorLabel(double m) const {
         const std::size_t k = static_cast<std::size_t>(std::clamp(std::lround(m), 0L, static_cast<long>(names.size()) - 1));
         return QStringLiteral("%1 = %2").arg(q(engine_.moderator()), q(names[k]));
     }
-    return QStringLiteral("%1 = %2").arg(q(engine_.moderator()), formatNumber(m));
+    return QStringLiteral("%1 = %2").arg(q(engine_.moderator()), probeNumber(m));
 }
 
 void ProbeSection::fillReadoutContext() {
@@ -409,7 +409,7 @@ void ProbeSection::fillReadoutContext() {
     if (!held.isEmpty()) statement = tr("With %1 · %2").arg(held, statement);
     if (simultaneousShown())
         statement += tr(" · band: %1 simultaneous (critical value %2)")
-                         .arg(level, formatNumber(p.simultaneous->critical_value, 3));
+                         .arg(level, probeNumber(p.simultaneous->critical_value, 3));
     statement += tr(" · n\u00A0=\u00A0%1").arg(QLocale(QLocale::English).toString(static_cast<qulonglong>(run_->fit.n)));
     readout_->setContext(effectTitle(), statisticName(p.df), tr("%1 CI").arg(level), statement);
 
@@ -481,7 +481,7 @@ void ProbeSection::buildPlots() {
         const char* defaultNames[] = {QT_TR_NOOP("mean − 1 SD"), QT_TR_NOOP("mean"), QT_TR_NOOP("mean + 1 SD")};
         int k = 0;
         for (const auto& ef : p.effects) {
-            QString name = QStringLiteral("%1 = %2").arg(mod, formatNumber(ef.moderator_value));
+            QString name = QStringLiteral("%1 = %2").arg(mod, probeNumber(ef.moderator_value));
             if (defaults && p.effects.size() == 3) name += QStringLiteral(" (%1)").arg(tr(defaultNames[k]));
             if (ef.beyond_data) name += tr(" (beyond the data)");
             l.lines.push_back({name, engine_.lineAt(ef.moderator_value), k});
@@ -549,7 +549,7 @@ void ProbeSection::fillTable() {
         const auto& pins = shown_.probe.pinned;
         const bool defaults = pins.empty();
         for (std::size_t k = 0; k < p.effects.size(); ++k) {
-            PinnedTableModel::Row r{formatNumber(p.effects[k].moderator_value), p.effects[k], !defaults,
+            PinnedTableModel::Row r{probeNumber(p.effects[k].moderator_value), p.effects[k], !defaults,
                                     defaults ? -1 : static_cast<int>(k)};
             rows.push_back(r);
         }
@@ -563,7 +563,7 @@ void ProbeSection::fillTable() {
             const auto [lo, hi] = engine_.observedRange();
             caption += (caption.isEmpty() ? QString() : QStringLiteral(" ")) +
                        tr("Shaded rows in italics lie beyond the data (%1 observed from %2 to %3).")
-                           .arg(mod, formatNumber(lo), formatNumber(hi));
+                           .arg(mod, probeNumber(lo), probeNumber(hi));
         }
         pinned_->setCaption(caption);
     }
@@ -594,8 +594,8 @@ void ProbeSection::fillSummary() {
         QString kind = q(ie.kind);
         if (!kind.isEmpty()) kind[0] = kind[0].toUpper();
         line(tr("%1 of P(%2 = 1): %3 (SE %4, %5 CI %6 to %7, p %8)")
-                 .arg(kind, q(engine_.outcome()), formatNumber(ie.estimate), formatNumber(ie.std_error), level,
-                      formatNumber(ie.ci_lower), formatNumber(ie.ci_upper), formatP(ie.p_value)));
+                 .arg(kind, q(engine_.outcome()), probeNumber(ie.estimate), probeNumber(ie.std_error), level,
+                      probeNumber(ie.ci_lower), probeNumber(ie.ci_upper), probePValue(ie.p_value)));
         line(tr("How the effect of %1 on P(%2 = 1) changes with %3, %4 (Ai & Norton). The product coefficient "
                 "on the log-odds scale%5 is not this: it does not give the size, or even the sign, of the "
                 "interaction on the probability scale.")
@@ -622,11 +622,11 @@ void ProbeSection::fillSummary() {
         } else {
             if (sim)
                 line(tr("Where the whole simultaneous band excludes zero (critical value %1).")
-                         .arg(formatNumber(r->critical_value, 3)));
+                         .arg(probeNumber(r->critical_value, 3)));
             else
                 line(tr("Where the %1 pointwise interval excludes zero (critical value %2).")
                          .arg(QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%'),
-                              formatNumber(r->critical_value, 3)));
+                              probeNumber(r->critical_value, 3)));
             if (r->boundaries.empty()) {
                 if (r->significant.empty()) line(tr("Significant nowhere."));
                 else if (std::isinf(r->significant.front().lo) && std::isinf(r->significant.front().hi))
@@ -635,13 +635,13 @@ void ProbeSection::fillSummary() {
                     line(tr("Significant over the whole range examined."));
             }
             for (double b : r->boundaries)
-                line(tr("Boundary at %1 = %2 — %3").arg(mod, formatNumber(b),
+                line(tr("Boundary at %1 = %2 — %3").arg(mod, probeNumber(b),
                                                       b < lo || b > hi ? tr("beyond the data (observed %1 to %2)")
-                                                                             .arg(formatNumber(lo), formatNumber(hi))
+                                                                             .arg(probeNumber(lo), probeNumber(hi))
                                                                        : tr("inside the observed range")));
             QStringList regions;
             for (const Region& g : r->significant)
-                regions << tr("%1 to %2").arg(formatNumber(g.lo), formatNumber(g.hi));
+                regions << tr("%1 to %2").arg(probeNumber(g.lo), probeNumber(g.hi));
             if (!regions.isEmpty()) line(tr("Significant for %1 in: %2").arg(mod, regions.join(QStringLiteral("; "))));
         }
         end();
@@ -653,15 +653,15 @@ void ProbeSection::fillSummary() {
         if (!std::isfinite(c.focal_value)) continue;
         any = true;
         QString interval;
-        if (c.ci_kind == "bounded") interval = tr("interval %1 to %2").arg(formatNumber(c.ci_lower), formatNumber(c.ci_upper));
+        if (c.ci_kind == "bounded") interval = tr("interval %1 to %2").arg(probeNumber(c.ci_lower), probeNumber(c.ci_upper));
         else if (c.ci_kind == "unbounded")
-            interval = tr("interval unbounded: below %1 and above %2").arg(formatNumber(c.ci_lower), formatNumber(c.ci_upper));
+            interval = tr("interval unbounded: below %1 and above %2").arg(probeNumber(c.ci_lower), probeNumber(c.ci_upper));
         else if (c.ci_kind == "whole line") interval = tr("the interval is the whole line");
         const auto [flo, fhi] = engine_.focalRange();
         line(tr("%1: the lines cross at %2 = %3 (%4), %5.")
-                 .arg(q(c.groups), q(engine_.focal()), formatNumber(c.focal_value), interval,
+                 .arg(q(c.groups), q(engine_.focal()), probeNumber(c.focal_value), interval,
                       c.within_observed_range ? tr("inside the data") : tr("beyond the data (observed %1 to %2)")
-                                                                            .arg(formatNumber(flo), formatNumber(fhi))));
+                                                                            .arg(probeNumber(flo), probeNumber(fhi))));
     }
     if (!any) line(tr("The lines are parallel: they do not cross."));
     end();
