@@ -13,7 +13,7 @@ project="${1:-sample-projects/coffee-discount/coffee-discount.moderato}"
 if [ -z "${DISPLAY:-}" ] && [ -z "${WAYLAND_DISPLAY:-}" ] && [ -z "${QT_QPA_PLATFORM:-}" ]; then
   echo "run.sh: built $build/app/moderato, but there is no display to show it on (DISPLAY is not set)." >&2
   echo "run.sh: on a desktop session run: $build/app/moderato $project" >&2
-  echo "run.sh: headless, tests/ui/screenshots.sh saves screenshots of the workbench under Xvfb." >&2
+  echo "run.sh: headless, scripts/screenshots.sh saves screenshots of the workbench under Xvfb." >&2
   exit 1
 fi
 exec "$build/app/moderato" "$project"
