@@ -244,11 +244,7 @@ bool MainWindow::openPath(const QString& path) {
     ImportDialog dialog(path, this);
     if (dialog.exec() != QDialog::Accepted || !dialog.table()) return false;
     const std::string id = doc_->addDataset(path, dialog.options(), dialog.table());
-    addRecent(QFileInfo(path).absoluteFilePath());
-    if (!doc_->project().analyses.empty() && doc_->project().analyses.back().dataset == id)
-        showAnalysis(QString::fromStdString(doc_->project().analyses.back().id));
-    else
-        showDataset(QString::fromStdString(id));
+    showAddedDataset(path, id);
     return true;
 }
 
@@ -316,11 +312,7 @@ bool MainWindow::importData(const QString& path, const CsvOptions& options) {
         return false;
     }
     const std::string id = doc_->addDataset(path, options, outcome.table, outcome.sha256);
-    addRecent(QFileInfo(path).absoluteFilePath());
-    if (!doc_->project().analyses.empty() && doc_->project().analyses.back().dataset == id)
-        showAnalysis(QString::fromStdString(doc_->project().analyses.back().id));
-    else
-        showDataset(QString::fromStdString(id));
+    showAddedDataset(path, id);
     return true;
 }
 
@@ -359,6 +351,15 @@ void MainWindow::showDataset(const QString& id) {
     sidebar_->select(QStringLiteral("dataset"), id);
     datasetPage_->showDataset(id);
     pages_->setCurrentWidget(datasetPage_);
+}
+
+void MainWindow::showAddedDataset(const QString& path, const std::string& id) {
+    addRecent(QFileInfo(path).absoluteFilePath());
+    // Adding a dataset starts an analysis of it (ProjectDocument::addDataset): show that.
+    if (!doc_->project().analyses.empty() && doc_->project().analyses.back().dataset == id)
+        showAnalysis(QString::fromStdString(doc_->project().analyses.back().id));
+    else
+        showDataset(QString::fromStdString(id));
 }
 
 void MainWindow::showFirstItem() {

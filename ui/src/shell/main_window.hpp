@@ -5,6 +5,7 @@
 
 #include <QMainWindow>
 #include <QStringList>
+#include <string>
 
 #include "moderato/csv.hpp"
 
@@ -67,6 +68,8 @@ private:
     void exportFigure();
     void copySelection();
     void showFirstItem();
+    // After a data file became dataset `id`: remember the file, show its analysis.
+    void showAddedDataset(const QString& path, const std::string& id);
 
     ProjectDocument* doc_;
     AnalysisRunner* runner_;
