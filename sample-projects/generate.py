@@ -117,8 +117,9 @@ def analysis(id_, name, dataset, outcome, focal, moderator, controls=(), family=
     }
 
 
-def write_project(folder, data_name, dataset_id, analyses, missing=("", "NA", "NaN", ".")):
-    """A ready project file beside the data: one dataset, its analyses, a figure each."""
+def write_project(folder, data_name, dataset_id, analyses, missing=("", "NA", "NaN", "."), kept=("lines", "Lines plot")):
+    """A ready project file beside the data: one dataset, its analyses, a kept figure each
+    (`kept`: the plot key and its name; two categorical predictors have a Cells plot, not lines)."""
     path = os.path.join(HERE, folder)
     with open(os.path.join(path, data_name), "rb") as f:
         digest = hashlib.sha256(f.read()).hexdigest()
@@ -130,7 +131,7 @@ def write_project(folder, data_name, dataset_id, analyses, missing=("", "NA", "N
                                  "decimal_comma": False, "column_kinds": {}}}],
         "derived_columns": [],
         "analyses": analyses,
-        "figures": [{"id": "fig-" + a["id"], "name": a["name"] + ": Lines plot", "analysis": a["id"], "plot": "lines"}
+        "figures": [{"id": "fig-" + a["id"], "name": a["name"] + ": " + kept[1], "analysis": a["id"], "plot": kept[0]}
                     for a in analyses],
     }
     tmp = os.path.join(path, folder + ".moderato.tmp")
@@ -148,7 +149,7 @@ def write_projects():
                  "soil_moisture_pct", controls=["slope_pct"], se="hc3")])
     write_project("volunteer-onboarding", "volunteers.csv", "volunteers", [
         analysis("onboarding-mentoring", "onboarding × mentoring", "volunteers", "hours_q1", "onboarding",
-                 "mentoring", controls=["age"])])
+                 "mentoring", controls=["age"])], kept=("cells", "Cells plot"))
     write_project("helpdesk-staffing", "tickets.csv", "tickets", [
         analysis("staffing-shift", "agents × shift", "tickets", "resolution_hours", "agents_on_shift", "shift",
                  controls=["weekday"], se="hc3")])

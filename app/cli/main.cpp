@@ -19,6 +19,7 @@ Usage:
   moderato-cli probe [fit options] --focal A --moderator B [probe options]
   moderato-cli power --predictors K --f2 X (--n N | --power P) [power options]
   moderato-cli describe --data FILE [import options]
+  moderato-cli render PROJECT --out DIR [--accept-changed-data]
   moderato-cli --help | --version
 
 fit: estimates a linear or logistic model with product (interaction) terms.
@@ -59,6 +60,12 @@ power: sample size and power for detecting interaction terms (Cohen's f², nonce
   --predictors K --tested U --alpha A --f2 X (or --r2-full A --r2-reduced B)
   --n N (power) | --power P (smallest n) | --n N --power P --detectable (smallest f²)
 
+render: writes every analysis's figures (PNG, SVG, PDF at its figure settings), tables
+(CSV, Markdown, LaTeX, HTML) and memo (HTML, Markdown, PDF), and the project's kept
+figures, into DIR/<analysis>/ and DIR/figures/ — no display needed; the same files the
+workbench exports. A data file whose SHA-256 differs from the one the project recorded
+stops the render (exit 2) unless --accept-changed-data is given.
+
 Import options (fit, probe and describe):
   --delimiter comma|semicolon|tab|pipe   force the delimiter
   --no-header              the first row holds data; columns are named V1, V2, ...
@@ -77,7 +84,7 @@ int main(int argc, char** argv) {
     std::vector<std::string> args(argv + 1, argv + argc);
     try {
         if (args.empty()) {
-            std::cerr << "moderato-cli: no command given; commands are fit, probe, power and describe (see --help)\n";
+            std::cerr << "moderato-cli: no command given; commands are fit, probe, power, describe and render (see --help)\n";
             return 2;
         }
         if (args[0] == "--help" || args[0] == "-h" || args[0] == "help") {
@@ -99,8 +106,17 @@ int main(int argc, char** argv) {
         if (command == "describe") return moderato::cli::run_describe(rest);
         if (command == "probe") return moderato::cli::run_probe(rest);
         if (command == "power") return moderato::cli::run_power(rest);
+        if (command == "render") {
+#ifdef MODERATO_HAVE_RENDER
+            return moderato::cli::run_render(rest);
+#else
+            std::cerr << "moderato-cli: render needs the workbench's drawing code; this build was made without it "
+                         "(configure with -DMODERATO_BUILD_GUI=ON)\n";
+            return 2;
+#endif
+        }
         std::cerr << "moderato-cli: unknown command '" << command
-                  << "'; commands are fit, probe, power and describe (see --help)\n";
+                  << "'; commands are fit, probe, power, describe and render (see --help)\n";
         return 2;
     } catch (const moderato::InputError& e) {
         std::cerr << "moderato-cli: " << e.what() << "\n";

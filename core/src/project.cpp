@@ -213,7 +213,8 @@ bool Project::operator==(const Project& o) const {
 
 bool Analysis::operator==(const Analysis& o) const {
     return id == o.id && name == o.name && dataset == o.dataset && roles == o.roles && family == o.family &&
-           se == o.se && level == o.level && centring == o.centring && probe == o.probe && figure == o.figure;
+           se == o.se && level == o.level && centring == o.centring && probe == o.probe && figure == o.figure &&
+           memo_notes == o.memo_notes;
 }
 
 const DataSource* Project::dataset(const std::string& id) const {
@@ -301,6 +302,8 @@ std::string project_to_json(const Project& p) {
                             {"centring", a.centring},
                             {"probe", probe},
                             {"figure", figure}});
+        // Written only when there are notes, so older projects keep their bytes.
+        if (!a.memo_notes.empty()) analyses.back()["memo_notes"] = a.memo_notes;
     }
     doc["analyses"] = analyses;
     json figures = json::array();
@@ -424,6 +427,7 @@ Project project_from_json(const std::string& text, const std::string& name) {
         a.figure.caption = r.boolean(fig, "caption", fw, true);
         if (!(a.figure.width_in > 0 && a.figure.width_in <= 100 && a.figure.height_in > 0 && a.figure.height_in <= 100))
             r.fail(fw, "width and height must lie between 0 and 100 inches");
+        a.memo_notes = r.text(j, "memo_notes", where, false);
         p.analyses.push_back(std::move(a));
     }
     const json& figures = r.array(doc, "figures", "top level");

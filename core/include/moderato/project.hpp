@@ -94,6 +94,7 @@ struct Analysis {
     std::string centring = "none";
     ProbeSettings probe;
     FigureSettings figure;
+    std::string memo_notes;                // the analyst's own words, printed at the top of the memo
     bool operator==(const Analysis&) const;
 };
 

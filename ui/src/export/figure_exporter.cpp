@@ -1,4 +1,5 @@
 #include "export/figure_exporter.hpp"
+#include "export/pdf_stamp.hpp"
 
 #include <qcustomplot.h>
 
@@ -324,8 +325,7 @@ QByteArray FigureExporter::renderPdf() const {
     {
         QPdfWriter writer(&buffer);
         writer.setResolution(layoutDpi());
-        writer.setCreator(QStringLiteral("Moderato"));
-        writer.setTitle(source_->figureName());
+        prepareDeterministicPdf(writer, source_->figureName());
         QPageLayout layout(QPageSize(QSizeF(settings_.width_in, settings_.height_in), QPageSize::Inch, QString(),
                                      QPageSize::ExactMatch),
                            QPageLayout::Portrait, QMarginsF(0, 0, 0, 0), QPageLayout::Point);
@@ -338,7 +338,9 @@ QByteArray FigureExporter::renderPdf() const {
         paintFigure(painter, plot, QSize(writer.width(), writer.height()), settings_, caption_);
         painter.end();
     }
-    return buffer.data();
+    QByteArray pdf = buffer.data();
+    stabilisePdf(pdf);
+    return pdf;
 }
 
 QByteArray FigureExporter::render(FigureFormat format) const {

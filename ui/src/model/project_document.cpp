@@ -53,6 +53,11 @@ QString ProjectDocument::tableError(const std::string& id) const {
     return it == tableErrors_.end() ? QString() : QString::fromStdString(it->second);
 }
 
+std::string ProjectDocument::readHash(const std::string& datasetId) const {
+    const auto it = readHashes_.find(datasetId);
+    return it == readHashes_.end() ? std::string() : it->second;
+}
+
 QString ProjectDocument::dataPath(const std::string& id) const {
     const auto abs = absolutePaths_.find(id);
     if (abs != absolutePaths_.end()) return QString::fromStdString(abs->second);

@@ -36,6 +36,8 @@ public:
     QString tableError(const std::string& datasetId) const;
     // Absolute path of a dataset's data file.
     QString dataPath(const std::string& datasetId) const;
+    // SHA-256 of the data bytes the dataset's table was read from (empty: not known yet).
+    std::string readHash(const std::string& datasetId) const;
 
     // Replaces everything with a loaded project (clears undo history).
     void adopt(LoadedProject loaded);

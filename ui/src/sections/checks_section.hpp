@@ -36,6 +36,9 @@ public:
     QTableView* flaggedView() const { return list_; }
     QPushButton* showInDatasetButton() const { return show_; }
     QLabel* rulesLabel() const { return rules_; }
+    // Computes the diagnostics now (they are otherwise computed when the
+    // section is first shown); for exporting its figures unseen.
+    void ensureComputed();
 
 Q_SIGNALS:
     // The user asked to see these table rows (0-based) of a dataset in the grid.
@@ -45,7 +48,6 @@ protected:
     void showEvent(QShowEvent* event) override;
 
 private:
-    void ensureComputed();
     void selectionChanged();
     void emitSelectedRows();
     void selectObservation(std::size_t observation);

@@ -10,6 +10,7 @@
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "sections/checks_section.hpp"
+#include "sections/memo_section.hpp"
 #include "sections/estimates_section.hpp"
 #include "sections/probe_section.hpp"
 #include "sections/specify_section.hpp"
@@ -20,7 +21,7 @@ AnalysisPage::AnalysisPage(ProjectDocument* doc, AnalysisRunner* runner, QWidget
     : QWidget(parent), doc_(doc), runner_(runner), title_(new QLabel(this)), status_(new QLabel(this)),
       switcher_(new QButtonGroup(this)), stack_(new QStackedWidget(this)), specify_(new SpecifySection(doc, this)),
       estimates_(new EstimatesSection(doc, this)), probe_(new ProbeSection(doc, this)),
-      checks_(new ChecksSection(doc, this)) {
+      checks_(new ChecksSection(doc, this)), memo_(new MemoSection(doc, probe_, this)) {
     auto* layout = new QVBoxLayout(this);
     layout->setContentsMargins(8, 6, 8, 6);
     auto* header = new QHBoxLayout;
@@ -30,7 +31,7 @@ AnalysisPage::AnalysisPage(ProjectDocument* doc, AnalysisRunner* runner, QWidget
     title_->setFont(titleFont);
     header->addWidget(title_);
     header->addSpacing(16);
-    const QStringList names{tr("Specify"), tr("Estimates"), tr("Probe"), tr("Checks")};
+    const QStringList names{tr("Specify"), tr("Estimates"), tr("Probe"), tr("Checks"), tr("Memo")};
     for (int i = 0; i < names.size(); ++i) {
         auto* b = new QToolButton(this);
         b->setText(names[i]);
@@ -51,6 +52,7 @@ AnalysisPage::AnalysisPage(ProjectDocument* doc, AnalysisRunner* runner, QWidget
     stack_->addWidget(estimates_);
     stack_->addWidget(probe_);
     stack_->addWidget(checks_);
+    stack_->addWidget(memo_);
     layout->addWidget(stack_, 1);
     connect(switcher_, &QButtonGroup::idClicked, this, [this](int id) { showSection(static_cast<Section>(id)); });
     connect(runner_, &AnalysisRunner::resultChanged, this, [this](const QString& id) {
@@ -77,7 +79,7 @@ void AnalysisPage::refreshFromRunner(const QString& id) {
     const auto run = runner_->result(id);
     const QString error = runner_->error(id);
     status_->setText(runner_->busy(id) ? tr("Fitting…") : QString());
-    for (int s = Specify; s <= Checks; ++s) section(static_cast<Section>(s))->showAnalysis(id, run, error);
+    for (int s = Specify; s <= Memo; ++s) section(static_cast<Section>(s))->showAnalysis(id, run, error);
 }
 
 void AnalysisPage::showSection(Section s) {
@@ -94,6 +96,7 @@ AnalysisSection* AnalysisPage::section(Section s) const {
     case Estimates: return estimates_;
     case Probe: return probe_;
     case Checks: return checks_;
+    case Memo: return memo_;
     }
     return nullptr;
 }

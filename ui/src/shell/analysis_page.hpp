@@ -1,5 +1,5 @@
 // The page of one analysis: a section switcher (Specify · Estimates · Probe ·
-// Checks) over the sections, a status line (fitting…, errors) and the
+// Checks · Memo) over the sections, a status line (fitting…, errors) and the
 // analysis's latest run handed to every section.
 #pragma once
 
@@ -19,11 +19,12 @@ class SpecifySection;
 class EstimatesSection;
 class ProbeSection;
 class ChecksSection;
+class MemoSection;
 
 class AnalysisPage : public QWidget {
     Q_OBJECT
 public:
-    enum Section { Specify = 0, Estimates = 1, Probe = 2, Checks = 3 };
+    enum Section { Specify = 0, Estimates = 1, Probe = 2, Checks = 3, Memo = 4 };
 
     AnalysisPage(ProjectDocument* doc, AnalysisRunner* runner, QWidget* parent = nullptr);
     void showAnalysis(const QString& id);
@@ -35,6 +36,7 @@ public:
     EstimatesSection* estimates() const { return estimates_; }
     ProbeSection* probe() const { return probe_; }
     ChecksSection* checks() const { return checks_; }
+    MemoSection* memo() const { return memo_; }
     // The figures of the section on screen.
     QList<FigureSource*> currentFigures() const;
 
@@ -55,6 +57,7 @@ private:
     EstimatesSection* estimates_;
     ProbeSection* probe_;
     ChecksSection* checks_;
+    MemoSection* memo_;
 };
 
 }  // namespace moderato::ui

@@ -34,6 +34,7 @@
 #include "moderato/file_util.hpp"
 #include "moderato/project_loader.hpp"
 #include "sections/checks_section.hpp"
+#include "sections/memo_section.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/figure_caption.hpp"
 #include "shell/project_sidebar.hpp"
@@ -191,6 +192,8 @@ void MainWindow::buildMenus() {
     })->setShortcuts(withFallback(QKeySequence::SaveAs, {QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_S)}));
     file->addSeparator();
     file->addAction(tr("&Export Figure…"), QKeySequence(Qt::CTRL | Qt::Key_E), this, &MainWindow::exportFigure);
+    file->addAction(tr("Export &Tables…"), this, [this] { showMemo(MemoSection::SaveTables); });
+    file->addAction(tr("&Memo…"), QKeySequence(Qt::CTRL | Qt::Key_M), this, [this] { showMemo(-1); });
     file->addSeparator();
     auto* quit = file->addAction(tr("&Quit"), QKeySequence::Quit, this, &QWidget::close);
     quit->setMenuRole(QAction::QuitRole);
@@ -208,7 +211,7 @@ void MainWindow::buildMenus() {
     edit->addAction(tr("&Copy"), QKeySequence::Copy, this, &MainWindow::copySelection);
 
     QMenu* view = menuBar()->addMenu(tr("&View"));
-    const QStringList sections{tr("Specify"), tr("Estimates"), tr("Probe"), tr("Checks")};
+    const QStringList sections{tr("Specify"), tr("Estimates"), tr("Probe"), tr("Checks"), tr("Memo")};
     for (int i = 0; i < sections.size(); ++i)
         view->addAction(sections[i], this, [this, i] {
             if (pages_->currentWidget() == analysisPage_)
@@ -461,6 +464,15 @@ void MainWindow::exportFigure() {
         statusBar()->showMessage(
             tr("Saved the figure to %1").arg(QDir::toNativeSeparators(QFileInfo(dialog.lastSavedPath()).absoluteFilePath())),
             10000);
+}
+
+void MainWindow::showMemo(int saveKind) {
+    if (pages_->currentWidget() != analysisPage_) {
+        report(tr("Memo"), tr("Open an analysis first: its memo and tables are written from its results."), false);
+        return;
+    }
+    analysisPage_->showSection(AnalysisPage::Memo);
+    if (saveKind >= 0) analysisPage_->memo()->saveWithDialog(saveKind);
 }
 
 void MainWindow::copySelection() {

@@ -66,6 +66,8 @@ private:
     void rebuildRecentMenu();
     void updateTitle();
     void exportFigure();
+    // Shows the Memo section of the analysis on screen; saveKind >= 0 then asks where to save (MemoSection::SaveKind).
+    void showMemo(int saveKind);
     void copySelection();
     void showFirstItem();
     // After a data file became dataset `id`: remember the file, show its analysis.

@@ -1,0 +1,135 @@
+#include "render/analysis_outputs.hpp"
+
+#include <QBuffer>
+#include <QFileInfo>
+#include <QImage>
+#include <QPageLayout>
+#include <QPageSize>
+#include <QPdfWriter>
+#include <QTextDocument>
+#include <QTextFrame>
+#include <QTextTable>
+#include <memory>
+#include <QUrl>
+
+#include "export/figure_exporter.hpp"
+#include "moderato/error.hpp"
+#include "export/pdf_stamp.hpp"
+#include "model/project_document.hpp"
+#include "plots/figure_source.hpp"
+#include "sections/probe_section.hpp"
+#include "plots/cells_view.hpp"
+#include "plots/effect_plot.hpp"
+#include "plots/lines_plot.hpp"
+#include "plots/surface_plot.hpp"
+#include "shell/figure_caption.hpp"
+
+namespace moderato::ui {
+
+QList<FigureSource*> analysisFigures(ProbeSection* probe, const AnalysisRun& run) {
+    if (run.kind == ProbeKind::Cells) return run.cells ? QList<FigureSource*>{probe->cellsView()} : QList<FigureSource*>{};
+    if (!run.probe) return {};
+    QList<FigureSource*> out{probe->linesPlot(), probe->effectPlot()};
+    if (run.surface) out << probe->surfacePlot();
+    return out;
+}
+
+QString figureStem(FigureSource* figure) {
+    return QString::fromStdString(file_slug(figure->figureName().toStdString()));
+}
+
+MemoOutput buildMemo(const ProjectDocument& doc, const QString& analysisId, const AnalysisRun& run,
+                     ProbeSection* probe) {
+    const Analysis* a = doc.analysis(analysisId);
+    if (!a) throw InputError("no analysis has the id \"" + analysisId.toStdString() + "\"");
+    const QString caption = figureCaption(*a, run);
+    MemoOutput out;
+    std::vector<MemoFigure> figures;
+    FigureSettings settings = a->figure;
+    for (FigureSource* f : analysisFigures(probe, run)) {
+        const FigureExporter exporter(f, settings, caption);
+        const QByteArray png = exporter.render(FigureFormat::Png);
+        MemoFigure mf;
+        mf.title = f->figureName().toStdString();
+        mf.file = figureStem(f).toStdString() + ".png";
+        mf.png = png.toStdString();
+        mf.width_in = settings.width_in;
+        mf.height_in = settings.height_in;
+        figures.push_back(std::move(mf));
+        out.pngs.emplace_back(QString::fromStdString(figures.back().file), png);
+    }
+    MemoContext ctx;
+    ctx.caption = caption.toStdString();
+    ctx.project_file = doc.filePath().isEmpty() ? std::string("(not saved)")
+                                                : QFileInfo(doc.filePath()).fileName().toStdString();
+    if (const DataSource* d = doc.project().dataset(a->dataset)) {
+        ctx.data_file = d->path;
+        ctx.recorded_sha256 = d->sha256;
+    }
+    ctx.data_sha256 = doc.readHash(a->dataset);
+    if (ctx.data_sha256.empty()) ctx.data_sha256 = "(computed when the project is saved)";
+    out.memo = build_memo(doc.project(), *a, run, ctx, std::move(figures));
+    out.html = memo_to_html(out.memo);
+    out.markdown = memo_to_markdown(out.memo);
+    return out;
+}
+
+void layoutMemoTables(QTextDocument& document) {
+    for (QTextFrame* frame : document.rootFrame()->childFrames()) {
+        auto* table = qobject_cast<QTextTable*>(frame);
+        if (!table) continue;
+        const int n = table->columns();
+        QTextTableFormat format = table->format();
+        format.setWidth(QTextLength(QTextLength::PercentageLength, 100));
+        QList<QTextLength> widths;
+        const double first = n == 2 ? 60 : n > 2 ? 30 : 100;
+        for (int c = 0; c < n; ++c)
+            widths << QTextLength(QTextLength::PercentageLength, c == 0 ? first : (100 - first) / (n - 1));
+        format.setColumnWidthConstraints(widths);
+        format.setBorderCollapse(true);
+        format.setCellSpacing(0);
+        table->setFormat(format);
+    }
+}
+
+void loadMemoDocument(QTextDocument& document, const Memo& memo) {
+    document.clear();
+    for (const auto& f : memo.figures) {
+        QImage image;
+        image.loadFromData(reinterpret_cast<const uchar*>(f.png.data()), static_cast<int>(f.png.size()), "PNG");
+        document.addResource(QTextDocument::ImageResource, QUrl(QString::fromStdString(f.file)), image);
+    }
+    document.setHtml(QString::fromStdString(memo_to_html(memo, false)));
+    layoutMemoTables(document);
+}
+
+QByteArray printToPdf(const QTextDocument& source, const QString& title) {
+    std::unique_ptr<QTextDocument> text(source.clone());
+    text->setDocumentMargin(0);
+    QBuffer buffer;
+    buffer.open(QIODevice::WriteOnly);
+    {
+        QPdfWriter writer(&buffer);
+        prepareDeterministicPdf(writer, title);
+        writer.setResolution(96);
+        writer.setPageLayout(QPageLayout(QPageSize(QPageSize::Letter), QPageLayout::Portrait,
+                                         QMarginsF(0.9, 0.9, 0.9, 0.9), QPageLayout::Inch));
+        text->setPageSize(QSizeF(writer.width(), writer.height()));
+        text->print(&writer);
+    }
+    QByteArray pdf = buffer.data();
+    stabilisePdf(pdf);
+    return pdf;
+}
+
+QByteArray memoPdf(const Memo& memo) {
+    QTextDocument text;
+    loadMemoDocument(text, memo);
+    return printToPdf(text, QString::fromStdString(memo.title));
+}
+
+QByteArray tableBytes(const ExportTable& table, TableFormat format) {
+    return QByteArray::fromStdString(table_to_text(table, format));
+}
+
+}  // namespace moderato::ui

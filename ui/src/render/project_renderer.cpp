@@ -1,0 +1,151 @@
+#include "render/project_renderer.hpp"
+
+#include <QDir>
+#include <QFileInfo>
+#include <limits>
+#include <set>
+
+#include "export/figure_exporter.hpp"
+#include "model/analysis_runner.hpp"
+#include "model/project_document.hpp"
+#include "moderato/error.hpp"
+#include "moderato/file_util.hpp"
+#include "moderato/project_loader.hpp"
+#include "plots/figure_source.hpp"
+#include "render/analysis_outputs.hpp"
+#include "sections/checks_section.hpp"
+#include "sections/probe_section.hpp"
+#include "shell/analysis_page.hpp"
+#include "shell/figure_caption.hpp"
+
+namespace moderato::ui {
+namespace {
+
+class Writer {
+public:
+    Writer(QString root, std::set<QString> forbidden, RenderReport& report)
+        : root_(std::move(root)), forbidden_(std::move(forbidden)), report_(report) {}
+
+    void write(const QString& relative, const QByteArray& bytes) {
+        const QString path = QDir(root_).filePath(relative);
+        const QString canonical = QFileInfo(path).absoluteFilePath();
+        if (forbidden_.count(canonical))
+            throw InputError(canonical.toStdString() + ": is one of the project's data files; render writes only "
+                                                       "new files, choose another --out folder");
+        QDir().mkpath(QFileInfo(path).absolutePath());
+        write_file_atomically(path.toStdString(), bytes.toStdString());
+        report_.files << relative;
+    }
+
+private:
+    QString root_;
+    std::set<QString> forbidden_;
+    RenderReport& report_;
+};
+
+QString slug(const std::string& label) { return QString::fromStdString(file_slug(label)); }
+
+const FigureFormat kFormats[] = {FigureFormat::Png, FigureFormat::Svg, FigureFormat::Pdf};
+const TableFormat kTableFormats[] = {TableFormat::Csv, TableFormat::Markdown, TableFormat::Latex, TableFormat::Html};
+
+void writeFigure(Writer& out, const QString& stem, FigureSource* source, const FigureSettings& settings,
+                 const QString& caption) {
+    const FigureExporter exporter(source, settings, caption);
+    for (const FigureFormat f : kFormats) {
+        const QByteArray bytes = exporter.render(f);
+        if (bytes.isEmpty())
+            throw std::runtime_error("could not draw " + source->figureName().toStdString() + " as " +
+                                     figureFormatSuffix(f).toStdString());
+        out.write(stem + QLatin1Char('.') + figureFormatSuffix(f), bytes);
+    }
+}
+
+// The plot a kept figure names, if this run draws it.
+FigureSource* keptFigure(AnalysisPage& page, const AnalysisRun& run, const std::string& plot) {
+    QList<FigureSource*> all = analysisFigures(page.probe(), run);
+    const bool checks = plot == "residuals" || plot == "qq" || plot == "influence";
+    if (checks) {
+        page.checks()->ensureComputed();
+        all << page.checks()->figures();
+    }
+    for (FigureSource* f : all)
+        if (f->figureKey().toStdString() == plot) return f;
+    return nullptr;
+}
+
+}  // namespace
+
+RenderReport renderProject(const RenderRequest& request) {
+    RenderReport report;
+    LoadedProject loaded = load_project(request.projectPath.toStdString());
+    // Data that changed since the project was saved: say so, and stop unless told to go on.
+    QStringList changed;
+    std::set<QString> dataFiles;
+    for (const auto& d : loaded.project.datasets) {
+        dataFiles.insert(QFileInfo(QString::fromStdString(resolve_data_path(d, loaded.path))).absoluteFilePath());
+        const auto now = loaded.sha256.find(d.id);
+        if (!d.sha256.empty() && now != loaded.sha256.end() && now->second != d.sha256)
+            changed << QStringLiteral("%1 (dataset %2): SHA-256 %3 now, %4 when the project was saved")
+                           .arg(QString::fromStdString(resolve_data_path(d, loaded.path)), QString::fromStdString(d.id),
+                                QString::fromStdString(now->second), QString::fromStdString(d.sha256));
+    }
+    if (!changed.isEmpty() && !request.acceptChangedData)
+        throw InputError("the data changed since the project was saved: " + changed.join(QStringLiteral("; ")).toStdString() +
+                         ". Check the new data, then run again with --accept-changed-data to render from it.");
+    for (const QString& c : changed) report.warnings << QStringLiteral("rendering from changed data: ") + c;
+    for (const auto& n : loaded.project.migration_notes) report.warnings << QString::fromStdString(n);
+
+    const QString root = QFileInfo(request.outDir).absoluteFilePath();
+    if (!QDir().mkpath(root))
+        throw InputError(request.outDir.toStdString() + ": cannot make the output folder");
+    Writer out(root, dataFiles, report);
+
+    ProjectDocument doc;
+    doc.adopt(std::move(loaded));
+    AnalysisRunner runner(&doc);
+    runner.setBackgroundThreshold(std::numeric_limits<double>::infinity());  // fit here, in order
+    AnalysisPage page(&doc, &runner);
+    page.resize(1360, 860);
+
+    const Project project = doc.project();
+    std::set<QString> usedFolders;
+    for (const Analysis& a : project.analyses) {
+        const QString id = QString::fromStdString(a.id);
+        page.showAnalysis(id);
+        runner.waitForIdle();
+        const auto run = runner.result(id);
+        if (!run) {
+            report.failures << QStringLiteral("%1: %2").arg(id, runner.error(id));
+            continue;
+        }
+        QString folder = slug(a.id);
+        for (int k = 2; usedFolders.count(folder); ++k) folder = slug(a.id) + QLatin1Char('-') + QString::number(k);
+        usedFolders.insert(folder);
+        const QString caption = figureCaption(a, *run);
+        for (FigureSource* f : analysisFigures(page.probe(), *run))
+            writeFigure(out, folder + QLatin1Char('/') + figureStem(f), f, a.figure, caption);
+        for (const NamedTable& t : analysis_tables(a, *run))
+            for (const TableFormat tf : kTableFormats)
+                out.write(folder + QLatin1Char('/') + QString::fromStdString(t.key) + QLatin1Char('.') +
+                              QString::fromStdString(table_format_suffix(tf)),
+                          tableBytes(t.table, tf));
+        const MemoOutput memo = buildMemo(doc, id, *run, page.probe());
+        out.write(folder + QStringLiteral("/memo.html"), QByteArray::fromStdString(memo.html));
+        out.write(folder + QStringLiteral("/memo.md"), QByteArray::fromStdString(memo.markdown));
+        out.write(folder + QStringLiteral("/memo.pdf"), memoPdf(memo.memo));
+        // Kept figures of this analysis.
+        for (const FigureEntry& fe : project.figures) {
+            if (fe.analysis != a.id) continue;
+            FigureSource* f = keptFigure(page, *run, fe.plot);
+            if (!f) {
+                report.warnings << QStringLiteral("kept figure %1 not drawn: its analysis has no %2 plot now")
+                                       .arg(QString::fromStdString(fe.id), QString::fromStdString(fe.plot));
+                continue;
+            }
+            writeFigure(out, QStringLiteral("figures/") + slug(fe.id), f, a.figure, caption);
+        }
+    }
+    return report;
+}
+
+}  // namespace moderato::ui
