@@ -6,7 +6,8 @@ set -euo pipefail
 build_pkgs=(build-essential cmake ninja-build pkg-config libeigen3-dev libboost-math-dev nlohmann-json3-dev
             qt6-base-dev qt6-svg-dev libqcustomplot-dev fonts-dejavu-core)
 test_pkgs=(googletest libgtest-dev libgmock-dev libbenchmark-dev python3-statsmodels python3-pandas python3-numpy
-           python3-scipy cmark-gfm xvfb xauth xdotool imagemagick fonts-dejavu-core time)
+           python3-scipy cmark-gfm xvfb xauth xdotool imagemagick fonts-dejavu-core time
+           desktop-file-utils appstream shared-mime-info poppler-utils)
 
 want=("${build_pkgs[@]}")
 case "${1:-all}" in

@@ -1,20 +1,28 @@
 // The Moderato workbench.
 #include <QApplication>
 #include <QCommandLineParser>
+#include <QCoreApplication>
 #include <QFileInfo>
 #include <QTimer>
+
+#include <cstring>
 
 #include "shell/main_window.hpp"
 #include "shell/app_style.hpp"
 
-int main(int argc, char* argv[]) {
-    QApplication app(argc, argv);
-    QApplication::setOrganizationName(QStringLiteral("Moderato"));
-    QApplication::setApplicationName(QStringLiteral("Moderato"));
-    QApplication::setApplicationVersion(QStringLiteral(MODERATO_VERSION));
-    QApplication::setDesktopFileName(QStringLiteral("moderato"));
+#ifndef MODERATO_APP_ID
+#error "MODERATO_APP_ID (the desktop id) is defined by cmake/Packaging.cmake"
+#endif
 
-    QCommandLineParser parser;
+namespace {
+
+void nameApplication() {
+    QCoreApplication::setOrganizationName(QStringLiteral("Moderato"));
+    QCoreApplication::setApplicationName(QStringLiteral("Moderato"));
+    QCoreApplication::setApplicationVersion(QStringLiteral(MODERATO_VERSION));
+}
+
+void describeOptions(QCommandLineParser& parser) {
     parser.setApplicationDescription(
         QStringLiteral("Moderato: a workbench for moderated effects in regression (interaction terms, conditional "
                        "effects, Johnson–Neyman regions)."));
@@ -22,6 +30,38 @@ int main(int argc, char* argv[]) {
     parser.addVersionOption();
     parser.addPositionalArgument(QStringLiteral("file"),
                                  QStringLiteral("A project (.moderato) or a data file (CSV/TSV) to open."), QStringLiteral("[file]"));
+}
+
+// True when the command line only asks for text (--help, --version): that
+// needs no window, so it must work where no display is available.
+bool onlyText(int argc, char* argv[]) {
+    for (int i = 1; i < argc; ++i) {
+        const char* a = argv[i];
+        if (std::strcmp(a, "--") == 0) return false;
+        for (const char* flag : {"--version", "-v", "--help", "-h", "-?", "--help-all"})
+            if (std::strcmp(a, flag) == 0) return true;
+    }
+    return false;
+}
+
+}  // namespace
+
+int main(int argc, char* argv[]) {
+    if (onlyText(argc, argv)) {
+        QCoreApplication app(argc, argv);
+        nameApplication();
+        QCommandLineParser parser;
+        describeOptions(parser);
+        parser.process(app);  // prints the help or the version and exits
+        return 0;
+    }
+
+    QApplication app(argc, argv);
+    nameApplication();
+    QApplication::setDesktopFileName(QStringLiteral(MODERATO_APP_ID));
+
+    QCommandLineParser parser;
+    describeOptions(parser);
     parser.process(app);
 
     moderato::ui::applyAppStyle(app);
