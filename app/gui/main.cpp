@@ -3,6 +3,7 @@
 #include <QCommandLineParser>
 #include <QCoreApplication>
 #include <QFileInfo>
+#include <QHashSeed>
 #include <QTimer>
 
 #include <cstring>
@@ -47,6 +48,9 @@ bool onlyText(int argc, char* argv[]) {
 }  // namespace
 
 int main(int argc, char* argv[]) {
+    // Figures exported here and by `moderato-cli render` are the same bytes:
+    // Qt's PDF writer orders fonts by hash, so the seed is fixed.
+    QHashSeed::setDeterministicGlobalSeed();
     if (onlyText(argc, argv)) {
         QCoreApplication app(argc, argv);
         nameApplication();

@@ -3,11 +3,13 @@
 #include <gtest/gtest.h>
 
 #include <QApplication>
+#include <QHashSeed>
 #include <QSettings>
 #include <QStandardPaths>
 #include <QTemporaryDir>
 
 int main(int argc, char** argv) {
+    QHashSeed::setDeterministicGlobalSeed();  // as the workbench and the renderer do (repeatable PDFs)
     if (qEnvironmentVariableIsEmpty("QT_QPA_PLATFORM")) qputenv("QT_QPA_PLATFORM", "offscreen");
     // Settings and recent files of the tests never touch the user's own, and
     // each test process has its own (ctest runs tests in parallel processes,
