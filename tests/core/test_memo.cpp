@@ -1,0 +1,436 @@
+// The memo: its sentences are parsed back and every number they cite is
+// compared with an outside value (statsmodels fixtures, closed forms computed
+// here from the data and the fitted coefficients); escaping of user strings;
+// the number formats; base64.
+#include <gtest/gtest.h>
+
+#include <boost/math/distributions/students_t.hpp>
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <regex>
+#include <functional>
+#include <map>
+#include <algorithm>
+#include <sstream>
+
+#include "moderato/analysis_run.hpp"
+#include "moderato/csv.hpp"
+#include "moderato/memo.hpp"
+#include "moderato/project_loader.hpp"
+#include "moderato/report_text.hpp"
+
+namespace fs = std::filesystem;
+using namespace moderato;
+
+namespace {
+
+fs::path samples() { return fs::path(MODERATO_TEST_DATA_DIR) / ".." / ".." / "sample-projects"; }
+
+struct Sample {
+    LoadedProject loaded;
+    Analysis analysis;
+    AnalysisRun run;
+};
+
+Sample open_sample(const std::string& name) {
+    Sample s{load_project((samples() / name / (name + ".moderato")).string()), {}, {}};
+    s.analysis = s.loaded.project.analyses.front();
+    s.run = run_analysis(s.loaded.tables.at(s.analysis.dataset), s.analysis);
+    return s;
+}
+
+// The number as written in a sentence (U+2212 minus, "1,200" commas) as a double.
+double read_number(std::string text) {
+    for (std::size_t at; (at = text.find("\xE2\x88\x92")) != std::string::npos;) text.replace(at, 3, "-");
+    text.erase(std::remove(text.begin(), text.end(), ','), text.end());
+    return std::stod(text);
+}
+
+// Half a unit in the last digit written: how far a correctly rounded text may be from the value.
+double rounding(const std::string& text) {
+    const auto dot = text.find('.');
+    const int decimals = dot == std::string::npos ? 0 : static_cast<int>(text.size() - dot - 1);
+    return 0.5 * std::pow(10.0, -decimals) * (1 + 1e-9);
+}
+
+// Checks that `text` is `value` correctly rounded.
+void expect_written(const std::string& text, double value, const std::string& what) {
+    EXPECT_NEAR(read_number(text), value, rounding(text)) << what << ": written \"" << text << "\"";
+}
+
+const char* const kNum = "((?:\xE2\x88\x92)?[0-9][0-9,]*(?:\\.[0-9]+)?)";
+
+std::smatch find(const std::vector<std::string>& sentences, const std::string& pattern) {
+    const std::regex re(pattern);
+    for (const auto& s : sentences) {
+        std::smatch m;
+        if (std::regex_search(s, m, re)) return m;
+    }
+    ADD_FAILURE() << "no sentence matches " << pattern;
+    return {};
+}
+
+std::string joined(const std::vector<std::string>& v) {
+    std::string out;
+    for (const auto& s : v) out += s + "\n";
+    return out;
+}
+
+nlohmann::json orchard_reference() {
+    std::ifstream in(fs::path(MODERATO_REFERENCE_DIR) / "fixtures" / "ui_estimates_orchard.json");
+    return nlohmann::json::parse(in)["cases"]["sample_analysis"];
+}
+
+double column_mean(const Table& t, const std::string& name) {
+    const auto& c = t.at(name).numbers;
+    double s = 0;
+    for (double v : c) s += v;
+    return s / static_cast<double>(c.size());
+}
+
+double column_sd(const Table& t, const std::string& name) {
+    const auto& c = t.at(name).numbers;
+    const double m = column_mean(t, name);
+    double s = 0;
+    for (double v : c) s += (v - m) * (v - m);
+    return std::sqrt(s / static_cast<double>(c.size() - 1));
+}
+
+// Roots of a x^2 + b x + c = 0, sorted (empty if none).
+std::vector<double> quadratic_roots(double a, double b, double c) {
+    const double d = b * b - 4 * a * c;
+    if (d < 0) return {};
+    const double q = -0.5 * (b + std::copysign(std::sqrt(d), b));
+    std::vector<double> r{q / a, c / q};
+    std::sort(r.begin(), r.end());
+    return r;
+}
+
+}  // namespace
+
+TEST(MemoSentences, OrchardNumbersMatchStatsmodelsAndClosedForms) {
+    const Sample s = open_sample("orchard-nitrogen");
+    const auto findings = memo_findings(s.analysis, s.run);
+    SCOPED_TRACE(joined(findings));
+    const auto ref = orchard_reference();
+
+    // The product coefficient with its HC3 interval: statsmodels 0.13.5 OLS cov_type='HC3', use_t
+    // (fixture ui_estimates_orchard.json).
+    auto m = find(findings, std::string("changes the effect of nitrogen_kg_ha on yield_t_ha by ") + kNum + " \\(95% CI " +
+                                kNum + " to " + kNum + ", p < 0\\.001\\)");
+    ASSERT_EQ(m.size(), 4u);
+    expect_written(m[1], ref["estimates"][4].get<double>(), "product estimate");
+    expect_written(m[2], ref["ci_lower_95"][4].get<double>(), "product CI lower");
+    expect_written(m[3], ref["ci_upper_95"][4].get<double>(), "product CI upper");
+    EXPECT_LT(ref["p_values"][4].get<double>(), 0.001);
+
+    // The observed range: min and max of the column, read here from the table.
+    const Table& table = *s.run.table;
+    const auto& z = table.at("soil_moisture_pct").numbers;
+    m = find(findings, std::string("Among the observed values of soil_moisture_pct \\(") + kNum + " to " + kNum + "\\)");
+    ASSERT_EQ(m.size(), 3u);
+    expect_written(m[1], *std::min_element(z.begin(), z.end()), "observed minimum");
+    expect_written(m[2], *std::max_element(z.begin(), z.end()), "observed maximum");
+
+    // Johnson–Neyman boundaries: closed form, the roots of
+    // (b1 + b3 m)^2 = t^2 (V11 + 2 m V13 + m^2 V33), t the 97.5 % quantile of t(n - p) from Boost.Math.
+    const int i1 = s.run.fit.index_of("nitrogen_kg_ha"), i3 = s.run.fit.index_of("nitrogen_kg_ha×soil_moisture_pct");
+    ASSERT_GE(i1, 0);
+    ASSERT_GE(i3, 0);
+    const double b1 = s.run.fit.beta(i1), b3 = s.run.fit.beta(i3);
+    const auto& V = s.run.fit.covariance;
+    const double t = boost::math::quantile(boost::math::students_t(ref["df_residual"].get<double>()), 0.975);
+    const auto roots = quadratic_roots(b3 * b3 - t * t * V(i3, i3), 2 * (b1 * b3 - t * t * V(i1, i3)),
+                                       b1 * b1 - t * t * V(i1, i1));
+    ASSERT_EQ(roots.size(), 2u);
+    m = find(findings, std::string("Johnson–Neyman boundaries at ") + kNum + " and " + kNum + " lie beyond the data");
+    ASSERT_EQ(m.size(), 3u);
+    expect_written(m[1], roots[0], "first boundary");
+    expect_written(m[2], roots[1], "second boundary");
+    // Both below the observed minimum, so the effect is significant throughout the data.
+    EXPECT_LT(roots[1], *std::min_element(z.begin(), z.end()));
+    EXPECT_NE(joined(findings).find("is positive and differs from zero throughout the observed range"), std::string::npos);
+
+    // Effects at mean - SD, mean, mean + SD: b1 + b3 m with the column's mean and SD computed here.
+    const double mean = column_mean(table, "soil_moisture_pct"), sd = column_sd(table, "soil_moisture_pct");
+    m = find(findings, std::string("effect of nitrogen_kg_ha on yield_t_ha at chosen values: ") + kNum +
+                           " \\(95% CI [^)]*\\) at soil_moisture_pct = " + kNum + " \\(mean \xE2\x88\x92 1 SD\\)");
+    ASSERT_EQ(m.size(), 3u);
+    expect_written(m[2], mean - sd, "mean - SD");
+    expect_written(m[1], b1 + b3 * (mean - sd), "effect at mean - SD");
+
+    // R-squared with and without the product: statsmodels (fixture: rsquared, compare_f_test).
+    m = find(findings, std::string("raises R² from ") + kNum + " to " + kNum + " \\(change " + kNum + "; F\\(1, 475\\) = " +
+                           kNum);
+    ASSERT_EQ(m.size(), 5u);
+    expect_written(m[1], ref["r_squared_change"]["r_squared_reduced"].get<double>(), "R² without");
+    expect_written(m[2], ref["r_squared"].get<double>(), "R² with");
+    expect_written(m[3], ref["r_squared"].get<double>() - ref["r_squared_change"]["r_squared_reduced"].get<double>(),
+                   "R² change");
+    expect_written(m[4], ref["r_squared_change"]["f_statistic"].get<double>(), "F change");
+}
+
+TEST(MemoSentences, CoffeeCrossoverAndSlopesMatchClosedForms) {
+    const Sample s = open_sample("coffee-discount");
+    const auto findings = memo_findings(s.analysis, s.run);
+    SCOPED_TRACE(joined(findings));
+    const FitResult& f = s.run.fit;
+    const int i1 = f.index_of("discount_pct"), i2 = f.index_of("loyalty_member"),
+              i3 = f.index_of("discount_pct×loyalty_member");
+    ASSERT_GE(i1, 0);
+    ASSERT_GE(i2, 0);
+    ASSERT_GE(i3, 0);
+    const double b1 = f.beta(i1), b2 = f.beta(i2), b3 = f.beta(i3);
+    const auto& V = f.covariance;
+
+    // Slopes per group: b1 (members = 0) and b1 + b3 (closed form).
+    auto m = find(findings, std::string("The effect of discount_pct on weekly_spend is ") + kNum +
+                                " \\(95% CI [^)]*\\) for loyalty_member = 0 and " + kNum + " \\(95% CI [^)]*\\) for loyalty_member = 1");
+    ASSERT_EQ(m.size(), 3u);
+    expect_written(m[1], b1, "slope of non-members");
+    expect_written(m[2], b1 + b3, "slope of members");
+
+    // Crossover -b2/b3 and its Fieller interval: the roots of
+    // (b2 + b3 x)^2 = t^2 (V22 + 2 x V23 + x^2 V33) (Fieller 1954; closed form here).
+    const double t = boost::math::quantile(boost::math::students_t(f.df_residual), 0.975);
+    const auto fieller = quadratic_roots(b3 * b3 - t * t * V(i3, i3), 2 * (b2 * b3 - t * t * V(i2, i3)),
+                                         b2 * b2 - t * t * V(i2, i2));
+    ASSERT_EQ(fieller.size(), 2u);
+    m = find(findings, std::string("cross at discount_pct = ") + kNum + " \\(95% Fieller interval " + kNum + " to " + kNum +
+                           "\\), inside the observed discount_pct values \\(" + kNum + " to " + kNum +
+                           "\\): the interaction is disordinal there");
+    ASSERT_EQ(m.size(), 6u);
+    expect_written(m[1], -b2 / b3, "crossover");
+    expect_written(m[2], fieller[0], "Fieller lower");
+    expect_written(m[3], fieller[1], "Fieller upper");
+    const auto& x = s.run.table->at("discount_pct").numbers;
+    expect_written(m[4], *std::min_element(x.begin(), x.end()), "observed minimum");
+    expect_written(m[5], *std::max_element(x.begin(), x.end()), "observed maximum");
+    // With HC3, as the project asks.
+    EXPECT_NE(joined(findings).find("With HC3 standard errors the Wald test"), std::string::npos);
+}
+
+TEST(MemoSentences, CellsSentenceIsTheDifferenceInDifferences) {
+    const Sample s = open_sample("volunteer-onboarding");
+    ASSERT_TRUE(s.run.cells);
+    const auto findings = memo_findings(s.analysis, s.run);
+    SCOPED_TRACE(joined(findings));
+    const CellTable& c = *s.run.cells;
+    // Closed form: (mu11 - mu01) - (mu10 - mu00) from the cells' predictions.
+    const double did = (c.at(1, 1).estimate - c.at(0, 1).estimate) - (c.at(1, 0).estimate - c.at(0, 0).estimate);
+    const auto m = find(findings, std::string("the difference in differences is ") + kNum + " \\(95% CI " + kNum + " to " +
+                                      kNum);
+    ASSERT_EQ(m.size(), 4u);
+    expect_written(m[1], did, "difference in differences");
+    const double lo = read_number(m[2]), hi = read_number(m[3]);
+    EXPECT_LT(lo, did);
+    EXPECT_GT(hi, did);
+}
+
+TEST(MemoSentences, EverySampleHasFindingsAndTheUsualCautions) {
+    for (const char* name : {"coffee-discount", "orchard-nitrogen", "volunteer-onboarding", "helpdesk-staffing",
+                             "trial-conversion"}) {
+        SCOPED_TRACE(name);
+        const Sample s = open_sample(name);
+        EXPECT_GE(memo_findings(s.analysis, s.run).size(), 2u);
+        const std::string cautions = joined(memo_cautions(s.analysis, s.run));
+        // The cautions every memo carries (PRODUCT.md's list).
+        EXPECT_NE(cautions.find("not causal"), std::string::npos);
+        EXPECT_NE(cautions.find("extrapolation"), std::string::npos);
+        EXPECT_NE(cautions.find("large samples"), std::string::npos);
+        if (s.analysis.family == Family::Logistic) EXPECT_NE(cautions.find("probability"), std::string::npos);
+        if (s.run.kind == ProbeKind::Continuous) EXPECT_NE(cautions.find("many moderator values"), std::string::npos);
+    }
+}
+
+TEST(MemoSentences, ProbabilityScaleSentencesForTheLogisticSample) {
+    const Sample s = open_sample("trial-conversion");
+    ASSERT_TRUE(s.run.probe);
+    ASSERT_EQ(s.run.probe->scale, "response");
+    const auto findings = memo_findings(s.analysis, s.run);
+    SCOPED_TRACE(joined(findings));
+    const std::string all = joined(findings);
+    EXPECT_NE(all.find("on the log-odds of converted = 1"), std::string::npos);
+    EXPECT_NE(all.find("On the probability scale the interaction effect"), std::string::npos);
+    EXPECT_NE(all.find("likelihood-ratio χ²(1)"), std::string::npos);
+    // A pick point below the observed range is marked as such (mean - SD of a skewed count is negative).
+    EXPECT_NE(all.find("beyond the data"), std::string::npos);
+}
+
+namespace {
+
+std::shared_ptr<const Table> hostile_table() {
+    // A moderator column whose name is markup: it must come out as text.
+    std::ostringstream csv;
+    csv << "y,x,<script>alert(1)</script>\n";
+    unsigned state = 7;
+    for (int i = 0; i < 120; ++i) {
+        state = state * 1103515245u + 12345u;
+        const double x = (state >> 8) % 100 / 10.0;
+        state = state * 1103515245u + 12345u;
+        const double z = (state >> 8) % 50 / 10.0;
+        state = state * 1103515245u + 12345u;
+        const double e = ((state >> 8) % 1000 / 1000.0 - 0.5);
+        csv << 1 + 0.5 * x + 0.3 * z + 0.2 * x * z + e << ',' << x << ',' << z << "\n";
+    }
+    return std::make_shared<Table>(read_csv_text(csv.str(), "hostile.csv"));
+}
+
+}  // namespace
+
+TEST(MemoRender, UserStringsAreEscapedAndTheHtmlIsSelfContained) {
+    Project p;
+    DataSource d;
+    d.id = "data";
+    d.path = "hostile.csv";
+    p.datasets.push_back(d);
+    Analysis a;
+    a.id = "a1";
+    a.name = "Tom & Jerry <b>bold</b>";
+    a.dataset = "data";
+    a.roles.outcome = "y";
+    a.roles.focal = "x";
+    a.roles.moderator = "<script>alert(1)</script>";
+    a.memo_notes = "Check <img src=x onerror=alert(2)> & ask\n\nSecond paragraph";
+    p.analyses.push_back(a);
+    const AnalysisRun run = run_analysis(hostile_table(), a);
+    MemoContext ctx;
+    ctx.caption = "caption with <tags>";
+    ctx.project_file = "p<1>.moderato";
+    ctx.data_file = "hostile.csv";
+    ctx.data_sha256 = "abc";
+    MemoFigure fig;
+    fig.title = "Lines <plot>";
+    fig.file = "lines-plot.png";
+    fig.png = std::string("\x89PNG\r\n\x1a\n", 8);
+    const Memo memo = build_memo(p, a, run, ctx, {fig});
+    const std::string html = memo_to_html(memo);
+    // Escaped as the HTML spec's five characters (& < > " ').
+    EXPECT_NE(html.find("&lt;script&gt;alert(1)&lt;/script&gt;"), std::string::npos);
+    EXPECT_EQ(html.find("<script"), std::string::npos);
+    EXPECT_EQ(html.find("<img src=x"), std::string::npos);
+    EXPECT_NE(html.find("Check &lt;img src=x onerror=alert(2)&gt; &amp; ask"), std::string::npos);
+    EXPECT_NE(html.find("Tom &amp; Jerry &lt;b&gt;bold&lt;/b&gt;"), std::string::npos);
+    EXPECT_EQ(html.find("<b>bold"), std::string::npos);
+    // Self-contained: no address of another file or site, the figure inline.
+    for (const char* outside : {"http://", "https://", "<link", "@import", "url(", "src=\"lines-plot.png"})
+        EXPECT_EQ(html.find(outside), std::string::npos) << outside;
+    EXPECT_NE(html.find("src=\"data:image/png;base64,iVBORw0KGgo=\""), std::string::npos);  // RFC 4648 of the PNG signature
+
+    const std::string md = memo_to_markdown(memo);
+    // CommonMark: a backslash before '<' makes it a literal character, so no tag can open.
+    for (std::size_t at = md.find('<'); at != std::string::npos; at = md.find('<', at + 1)) {
+        const bool tag_like = at + 1 < md.size() && (std::isalpha(static_cast<unsigned char>(md[at + 1])) ||
+                                                     md[at + 1] == '/' || md[at + 1] == '!' || md[at + 1] == '?');
+        if (tag_like) EXPECT_TRUE(at > 0 && md[at - 1] == '\\') << md.substr(at, 30);
+    }
+    EXPECT_NE(md.find("\\<script>alert(1)\\</script>"), std::string::npos);
+    EXPECT_NE(md.find("](lines-plot.png)"), std::string::npos);
+}
+
+TEST(MemoRender, FooterStatesChecksumVersionAndEveryOption) {
+    const Sample s = open_sample("coffee-discount");
+    MemoContext ctx;
+    ctx.data_file = "spend.csv";
+    ctx.data_sha256 = s.loaded.sha256.at(s.analysis.dataset);
+    ctx.recorded_sha256 = s.loaded.project.dataset(s.analysis.dataset)->sha256;
+    const Memo memo = build_memo(s.loaded.project, s.analysis, s.run, ctx);
+    std::map<std::string, std::string> footer(memo.footer.begin(), memo.footer.end());
+    EXPECT_EQ(footer["software"], "Moderato " MODERATO_VERSION);
+    EXPECT_EQ(footer["data SHA-256"], ctx.data_sha256);
+    EXPECT_EQ(footer["data SHA-256 as saved"], "matches");
+    EXPECT_EQ(footer["analysis.se"], "hc3");
+    EXPECT_EQ(footer["analysis.roles.moderator"], "loyalty_member");
+    EXPECT_EQ(footer["dataset.import.delimiter"], ",");
+    EXPECT_EQ(footer["analysis.figure.dpi"], "300");
+    // Every leaf of the analysis's JSON is in the footer.
+    const auto json = nlohmann::json::parse(project_to_json(s.loaded.project));
+    std::size_t leaves = 0;
+    std::function<void(const nlohmann::json&)> count = [&](const nlohmann::json& j) {
+        if (j.is_object())
+            for (const auto& [k, v] : j.items()) count(v);
+        else
+            ++leaves;
+    };
+    count(json["analyses"][0]);
+    std::size_t analysis_rows = 0;
+    for (const auto& [k, v] : memo.footer) analysis_rows += k.rfind("analysis.", 0) == 0;
+    EXPECT_EQ(analysis_rows, leaves);
+    // A changed data file is said in the footer.
+    ctx.recorded_sha256 = std::string(64, '0');
+    const Memo changed = build_memo(s.loaded.project, s.analysis, s.run, ctx);
+    std::map<std::string, std::string> f2(changed.footer.begin(), changed.footer.end());
+    EXPECT_NE(f2["data SHA-256 as saved"].find("differs"), std::string::npos);
+}
+
+TEST(MemoRender, SameInputsSameBytes) {
+    const Sample s = open_sample("helpdesk-staffing");
+    MemoContext ctx;
+    const std::string a = memo_to_html(build_memo(s.loaded.project, s.analysis, s.run, ctx));
+    const Sample again = open_sample("helpdesk-staffing");
+    const std::string b = memo_to_html(build_memo(again.loaded.project, again.analysis, again.run, ctx));
+    EXPECT_EQ(a, b);
+}
+
+TEST(ReportText, FourSignificantDigitsAndTheMinusSign) {
+    // Common practice for reports: 4 significant digits, trailing zeros kept, U+2212 minus.
+    EXPECT_EQ(format_sig(15.9238), "15.92");
+    EXPECT_EQ(format_sig(17.3), "17.30");
+    EXPECT_EQ(format_sig(-0.45678), "\xE2\x88\x92" "0.4568");
+    EXPECT_EQ(format_sig(0.0018222), "0.001822");
+    EXPECT_EQ(format_sig(9.99962), "10.00");
+    EXPECT_EQ(format_sig(895), "895");
+    EXPECT_EQ(format_sig(0), "0");
+    EXPECT_EQ(format_sig(-0.0), "0");
+    EXPECT_EQ(format_sig(-2511.3), "\xE2\x88\x92" "2511");
+    EXPECT_EQ(format_sig(4.867e-5), "4.867\xC3\x97" "10\xE2\x81\xBB\xE2\x81\xB5");
+    EXPECT_EQ(format_sig(std::nan("")), "\xE2\x80\x94");
+    EXPECT_EQ(format_sig(-INFINITY), "\xE2\x88\x92\xE2\x88\x9E");
+    EXPECT_EQ(format_range(14.73, 17.3), "14.73 to 17.30");
+    EXPECT_EQ(format_range(0, 30), "0 to 30");
+    EXPECT_EQ(format_range(-11.0801, -5.58), "\xE2\x88\x92" "11.08 to \xE2\x88\x92" "5.58");
+    EXPECT_EQ(format_p_value(0.0234), "0.023");
+    EXPECT_EQ(format_p_value(0.0004), "< 0.001");
+    EXPECT_EQ(p_clause(0.0004), "p < 0.001");
+    EXPECT_EQ(p_clause(0.5), "p = 0.500");
+    EXPECT_EQ(format_count(1234567), "1,234,567");
+    EXPECT_EQ(format_count(900), "900");
+    EXPECT_EQ(level_text(0.95), "95%");
+    EXPECT_EQ(level_text(0.995), "99.5%");
+}
+
+TEST(ReportText, ExactTextRoundTrips) {
+    // The shortest decimal that reads back as the same double (C++17 to_chars, IEEE 754 round trip).
+    for (const double v : {0.1, -2.5e-7, 1.0 / 3.0, 123456789.125, 5e-324, 1.7976931348623157e308}) {
+        const std::string t = exact_text(v);
+        EXPECT_EQ(std::strtod(t.c_str(), nullptr), v) << t;
+    }
+    EXPECT_EQ(exact_text(0.1), "0.1");
+    EXPECT_EQ(exact_text(std::nan("")), "nan");
+}
+
+TEST(Base64, Rfc4648TestVectors) {
+    // RFC 4648 section 10.
+    EXPECT_EQ(base64_encode(""), "");
+    EXPECT_EQ(base64_encode("f"), "Zg==");
+    EXPECT_EQ(base64_encode("fo"), "Zm8=");
+    EXPECT_EQ(base64_encode("foo"), "Zm9v");
+    EXPECT_EQ(base64_encode("foob"), "Zm9vYg==");
+    EXPECT_EQ(base64_encode("fooba"), "Zm9vYmE=");
+    EXPECT_EQ(base64_encode("foobar"), "Zm9vYmFy");
+}
+
+TEST(ProjectFile, MemoNotesRoundTripAndAreLeftOutWhenEmpty) {
+    const Sample s = open_sample("coffee-discount");
+    Project p = s.loaded.project;
+    EXPECT_EQ(project_to_json(p).find("memo_notes"), std::string::npos);
+    p.analyses.front().memo_notes = "Ask the roaster <team> & \"finance\"\nline two";
+    const Project back = project_from_json(project_to_json(p), "test");
+    EXPECT_EQ(back.analyses.front().memo_notes, p.analyses.front().memo_notes);
+    EXPECT_TRUE(back == p);
+    Project other = back;
+    other.analyses.front().memo_notes.clear();
+    EXPECT_FALSE(other == back);
+}
