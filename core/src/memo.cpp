@@ -10,6 +10,7 @@
 
 #include "moderato/report_text.hpp"
 #include "moderato/response_scale.hpp"
+#include "moderato/table_export.hpp"
 
 namespace moderato {
 namespace {
@@ -283,21 +284,6 @@ std::string subscript(int k) {
     return out;
 }
 
-std::string html_text(const std::string& s) {
-    std::string out;
-    for (char c : s) {
-        switch (c) {
-        case '&': out += "&amp;"; break;
-        case '<': out += "&lt;"; break;
-        case '>': out += "&gt;"; break;
-        case '"': out += "&quot;"; break;
-        case '\'': out += "&#39;"; break;
-        default: out += c;
-        }
-    }
-    return out;
-}
-
 // "x×z" as \text{x} \times \text{z} (products outside \text, so any math renderer reads them).
 std::string latex_term(const std::string& term) {
     static const std::string times = "\xC3\x97";
@@ -319,7 +305,7 @@ void equation(const AnalysisRun& run, Memo& m) {
     const bool logistic = f.family == Family::Logistic;
     const std::string y = run.design.outcome;
     std::string lhs_text = logistic ? "logit P(" + y + " = 1)" : "E[" + y + "]";
-    std::string lhs_html = logistic ? "logit&nbsp;P(<i>" + html_text(y) + "</i> = 1)" : "E[<i>" + html_text(y) + "</i>]";
+    std::string lhs_html = logistic ? "logit&nbsp;P(<i>" + html_escape(y) + "</i> = 1)" : "E[<i>" + html_escape(y) + "</i>]";
     std::string lhs_latex = logistic ? "\\operatorname{logit} P(\\text{" + latex_escape(y) + "} = 1)"
                                      : "\\mathrm{E}[\\text{" + latex_escape(y) + "}]";
     std::string t = lhs_text + " = ", h = lhs_html + " = ", l = lhs_latex + " = ";
@@ -330,7 +316,7 @@ void equation(const AnalysisRun& run, Memo& m) {
         const bool intercept = c.term == "intercept";
         const std::string plus = k ? " + " : "";
         t += plus + "b" + subscript(k) + (intercept ? "" : "\xC2\xB7" + c.term);
-        h += plus + "<i>b</i><sub>" + std::to_string(k) + "</sub>" + (intercept ? "" : "&middot;" + html_text(c.term));
+        h += plus + "<i>b</i><sub>" + std::to_string(k) + "</sub>" + (intercept ? "" : "&middot;" + html_escape(c.term));
         l += plus + "b_{" + std::to_string(k) + "}" + (intercept ? "" : "\\," + latex_term(c.term));
         if (!c.aliased) {
             const std::string v = format_sig(std::fabs(c.estimate));
