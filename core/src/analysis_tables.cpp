@@ -124,8 +124,8 @@ ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
               " by " + p.moderator;
     const std::string lv = level_text(p.level);
     t.columns = {p.moderator, "Effect", "SE", prob ? "z" : statistic_name(fit), "p", lv + " CI lower",
-                 lv + " CI upper"};
-    t.numeric = {!p.categorical_moderator, true, true, true, true, true, true};
+                 lv + " CI upper", "Note"};
+    t.numeric = {!p.categorical_moderator, true, true, true, true, true, true, false};
     bool beyond = false;
     for (const auto& e : p.effects) {
         ExportCell at = p.categorical_moderator || !e.level.empty()
@@ -136,7 +136,7 @@ ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
             beyond = true;
         }
         t.rows.push_back({at, num(e.effect), num(e.std_error), num(e.statistic), pval(e.p_value), num(e.ci_lower),
-                          num(e.ci_upper)});
+                          num(e.ci_upper), text(e.beyond_data ? "beyond the data" : "")});
     }
     if (beyond) t.notes.push_back("† beyond the data: an extrapolation outside the observed " + p.moderator + " values.");
     if (!p.categorical_moderator)

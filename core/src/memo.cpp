@@ -89,6 +89,23 @@ std::string effect_of(const ProbeResult& p) {
     return "the effect of " + p.focal + (p.scale == "response" ? " on P(" + p.outcome + " = 1)" : " on " + p.outcome);
 }
 
+// ", with w held at 3.2" for a three-way model (its effects are conditional on that value).
+std::string held_clause(const Analysis& a, const AnalysisRun& run) {
+    const std::string& w = a.roles.second_moderator;
+    if (w.empty()) return "";
+    const auto typical = typical_values(run.design);
+    const auto it = typical.find(w);
+    const bool chosen = !std::isnan(a.probe.second_value);
+    const double v = chosen ? a.probe.second_value : it == typical.end() ? std::nan("") : it->second;
+    if (std::isnan(v)) return "";
+    for (const auto& c : run.design.categoricals)
+        if (c.column == w) {
+            const auto k = static_cast<std::size_t>(std::llround(v));
+            return k < c.levels.size() ? ", with " + w + " = " + c.levels[k] : "";
+        }
+    return ", with " + w + " held at " + (chosen ? format_sig(v) : "its mean (" + format_sig(v) + ")");
+}
+
 // "is positive and differs from zero for z above 3.2, and negative for z below −1"
 std::string significance_clause(const Analysis& a, const AnalysisRun& run, const std::vector<Region>& regions) {
     const ProbeResult& p = *run.probe;
@@ -125,9 +142,10 @@ void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector
         }
     }
     if (p.johnson_neyman) {
-        std::string s = "Among the observed values of " + p.moderator + " (" + format_range(lo, hi) + "), " +
-                        effect_of(p) + " " + significance_clause(a, run, p.johnson_neyman->significant) + " (" +
-                        level_text(p.level) + " pointwise intervals).";
+        std::string s = "Among the observed values of " + p.moderator + " (" + format_range(lo, hi) + ")" +
+                        held_clause(a, run) + ", " + effect_of(p) + " " +
+                        significance_clause(a, run, p.johnson_neyman->significant) + " (" + level_text(p.level) +
+                        " pointwise intervals).";
         out.push_back(s);
         std::vector<std::string> outside;
         for (std::size_t i = 0; i < p.johnson_neyman->boundaries.size(); ++i)

@@ -50,9 +50,9 @@ const char* const kQtStyle =
     "body{font-family:'DejaVu Sans';color:#1F2A44;font-size:10pt}"
     "h1{font-size:16pt}h2{font-size:12pt;margin-top:14px}"
     ".subtitle{color:#4A4E69}.equation{font-family:'DejaVu Serif';margin-left:20px}"
-    "th{border-bottom:1px solid #1F2A44;text-align:left;padding:2px 6px}td{padding:1px 6px}"
+    "table{font-size:9pt}th{text-align:left;padding:2px 5px}td{padding:1px 5px}"
     "caption{font-weight:bold;text-align:left}"
-    ".table-note{font-size:8pt;color:#4A4E69}figcaption{font-size:9pt;color:#4A4E69}"
+    ".table-note{font-size:8pt;color:#4A4E69}.figcaption{font-size:9pt;color:#4A4E69}"
     ".footer{font-size:7pt;color:#4A4E69}";
 
 // Markdown paragraph text: escaped, line breaks as hard breaks.
@@ -124,7 +124,9 @@ std::string memo_to_html(const Memo& m, bool embed_figures) {
     for (const auto& t : m.tables)
         if (t.key == "estimates" || t.key == "fit-statistics" || t.key == "model-comparison")
             h += table_to_html(t.table) + "\n";
-    if (!m.figures.empty() || m.tables.size() > 3) h += "<h2>Probe</h2>\n";
+    // On paper the figures start a page (Qt's printer cannot keep a heading with what follows).
+    if (!m.figures.empty() || m.tables.size() > 3)
+        h += embed_figures ? "<h2>Probe</h2>\n" : "<h2 style=\"page-break-before:always\">Probe</h2>\n";
     for (const auto& f : m.figures) {
         char width[32];
         std::snprintf(width, sizeof width, "%.3gin", f.width_in);
@@ -132,8 +134,11 @@ std::string memo_to_html(const Memo& m, bool embed_figures) {
         const std::string size = embed_figures ? std::string(" style=\"width:") + width + "\""
                                                : " width=\"" + std::to_string(static_cast<int>(f.width_in * 96 + 0.5)) +
                                                      "\" height=\"" + std::to_string(static_cast<int>(f.height_in * 96 + 0.5)) + "\"";
-        h += "<figure><img alt=\"" + html_escape(f.title) + "\"" + size + " src=\"" + src + "\"><figcaption>" +
-             html_escape(f.title) + "</figcaption></figure>\n";
+        const std::string img = "<img alt=\"" + html_escape(f.title) + "\"" + size + " src=\"" + src + "\">";
+        if (embed_figures)
+            h += "<figure>" + img + "<figcaption>" + html_escape(f.title) + "</figcaption></figure>\n";
+        else  // Qt's reader knows no <figure>: a paragraph each
+            h += "<p>" + img + "</p>\n<p class=\"figcaption\">" + html_escape(f.title) + "</p>\n";
     }
     for (const auto& t : m.tables)
         if (t.key != "estimates" && t.key != "fit-statistics" && t.key != "model-comparison")

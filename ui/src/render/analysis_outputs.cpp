@@ -1,11 +1,14 @@
 #include "render/analysis_outputs.hpp"
 
+#include <QBrush>
 #include <QBuffer>
+#include <QColor>
 #include <QFileInfo>
 #include <QImage>
 #include <QPageLayout>
 #include <QPageSize>
 #include <QPdfWriter>
+#include <QTextCursor>
 #include <QTextDocument>
 #include <QTextFrame>
 #include <QTextTable>
@@ -88,7 +91,30 @@ void layoutMemoTables(QTextDocument& document) {
         format.setColumnWidthConstraints(widths);
         format.setBorderCollapse(true);
         format.setCellSpacing(0);
+        format.setBorder(0);
         table->setFormat(format);
+        // Rules as in a printed table: above and below the header, below the last row.
+        const QBrush ink(QColor(0x1F, 0x2A, 0x44));
+        for (int c = 0; c < n; ++c) {
+            auto rule = [&](int row, bool top, bool bottom) {
+                QTextTableCell cell = table->cellAt(row, c);
+                QTextTableCellFormat f = cell.format().toTableCellFormat();
+                if (top) f.setTopBorder(1.2), f.setTopBorderBrush(ink), f.setTopBorderStyle(QTextFrameFormat::BorderStyle_Solid);
+                if (bottom) f.setBottomBorder(bottom && row == 0 ? 0.8 : 1.2), f.setBottomBorderBrush(ink),
+                    f.setBottomBorderStyle(QTextFrameFormat::BorderStyle_Solid);
+                cell.setFormat(f);
+            };
+            if (table->rows() > 0) rule(0, true, true);
+            if (table->rows() > 1) rule(table->rows() - 1, false, true);
+            // Numbers stay whole ("0.0002768" never splits at the point); labels may wrap.
+            if (c == 0) continue;
+            for (int r = 1; r < table->rows(); ++r) {
+                QTextCursor cursor = table->cellAt(r, c).firstCursorPosition();
+                QTextBlockFormat block = cursor.blockFormat();
+                block.setNonBreakableLines(true);
+                cursor.setBlockFormat(block);
+            }
+        }
     }
 }
 
