@@ -434,3 +434,38 @@ TEST(ProjectFile, MemoNotesRoundTripAndAreLeftOutWhenEmpty) {
     other.analyses.front().memo_notes.clear();
     EXPECT_FALSE(other == back);
 }
+
+TEST(MemoSentences, ThreeWayFindingsSayWhereTheSecondModeratorIsHeld) {
+    // y = 1 + x + z + w + 0.5 xz + 0.3 xzw + noise (a fixed LCG, invented data).
+    std::ostringstream csv;
+    csv << "y,x,z,w\n";
+    unsigned state = 11;
+    auto next = [&] {
+        state = state * 1103515245u + 12345u;
+        return ((state >> 8) % 10000) / 10000.0;
+    };
+    double w_sum = 0;
+    const int n = 400;
+    for (int i = 0; i < n; ++i) {
+        const double x = 4 * next(), z = 3 * next(), w = 2 * next(), e = next() - 0.5;
+        w_sum += w;
+        csv << 1 + x + z + w + 0.5 * x * z + 0.3 * x * z * w + e << ',' << x << ',' << z << ',' << w << "\n";
+    }
+    Analysis a;
+    a.id = "three";
+    a.dataset = "d";
+    a.roles = {"y", "x", "z", "w", {}, "", ""};
+    const AnalysisRun run = run_analysis(std::make_shared<Table>(read_csv_text(csv.str(), "three.csv")), a);
+    const auto findings = memo_findings(a, run);
+    SCOPED_TRACE(joined(findings));
+    // The mean of w, computed here from the generated values.
+    const auto m = find(findings, std::string("Among the observed values of z \\(") + kNum + " to " + kNum +
+                                      "\\), with w held at its mean \\(" + kNum + "\\)");
+    ASSERT_EQ(m.size(), 4u);
+    expect_written(m[3], w_sum / n, "mean of w");
+    // Held at a chosen value, the sentence says that value.
+    a.probe.second_value = 1.5;
+    AnalysisRun held = run;
+    probe_analysis(held, a);
+    EXPECT_NE(joined(memo_findings(a, held)).find("with w held at 1.500,"), std::string::npos) << joined(memo_findings(a, held));
+}
