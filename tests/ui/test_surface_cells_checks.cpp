@@ -285,6 +285,28 @@ TEST(SurfacePlot, OrchardNitrogenColourMapMatchesCoreSurfaceGrid) {
     screenshot(&plot, QStringLiteral("surface-orchard-nitrogen-grey.png"));
 }
 
+TEST(SurfacePlot, DataPointsFollowTheAnalysisSetting) {
+    MainWindow w;
+    const auto run = openAndRun(w, QStringLiteral("orchard-nitrogen"));
+    ASSERT_TRUE(run);
+    Analysis a = *w.document()->analysis(w.analysisPage()->analysisId());
+    auto observedRows = [](SurfacePlot& plot) {
+        int n = 0;
+        for (int i = 0; i < plot.figurePlot()->graphCount(); ++i)
+            if (plot.figurePlot()->graph(i)->name() == QStringLiteral("observed rows"))
+                n += plot.figurePlot()->graph(i)->dataCount();
+        return n;
+    };
+    SurfacePlot plot;
+    a.probe.show_points = true;
+    plot.setRun(a, *run);
+    EXPECT_GT(observedRows(plot), 0);
+    // "Data points" off: the surface shows no rows either (the export too).
+    a.probe.show_points = false;
+    plot.setRun(a, *run);
+    EXPECT_EQ(observedRows(plot), 0);
+}
+
 TEST(SurfacePlot, LogisticProbabilityScaleShowsProbabilities) {
     MainWindow w;
     const auto run = openAndRun(w, QStringLiteral("trial-conversion"));

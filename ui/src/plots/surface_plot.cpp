@@ -124,7 +124,8 @@ void SurfacePlot::setRun(const Analysis& analysis, const AnalysisRun& run) {
     pointsX_.clear();
     pointsZ_.clear();
     const int jx = run.design.main_column(grid_->x), jz = run.design.main_column(grid_->z);
-    if (jx >= 0 && jz >= 0) {
+    // The observed rows only when the analysis shows data points (as the Lines plot does).
+    if (jx >= 0 && jz >= 0 && analysis.probe.show_points) {
         pointsX_.assign(run.design.X.col(jx).data(), run.design.X.col(jx).data() + run.design.X.rows());
         pointsZ_.assign(run.design.X.col(jz).data(), run.design.X.col(jz).data() + run.design.X.rows());
     }
