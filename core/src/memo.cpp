@@ -158,7 +158,7 @@ void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector
     }
     if (p.simultaneous)
         out.push_back("With the simultaneous band, which keeps the chance of any false region at " +
-                      level_text(1 - p.level) + " (critical value " + format_sig(p.simultaneous->critical_value, 3) +
+                      level_text(1 - p.level) + " (critical value " + format_sig(p.simultaneous->critical_value) +
                       "), " + effect_of(p) + " " + significance_clause(a, run, p.simultaneous->significant) + ".");
     if (prob && p.interaction_effect) {
         const InteractionEffect& ie = *p.interaction_effect;
