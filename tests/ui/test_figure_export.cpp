@@ -614,3 +614,41 @@ TEST(FigureExport, ProbeSectionFiguresOfASampleProjectExport) {
         EXPECT_EQ(stateOf(source->figurePlot()), before);
     }
 }
+
+TEST(FigureExport, SingleColumnFigureWrapsALongAxisTitleAndShrinksTheLegend) {
+    MainWindow w;
+    w.setInteractive(false);
+    ASSERT_TRUE(w.openProject(test::sampleProject(QStringLiteral("orchard-nitrogen")))) << w.lastMessage().toStdString();
+    const QString id = w.analysisPage()->analysisId();
+    ASSERT_TRUE(test::waitUntil([&] { return w.runner()->result(id) || !w.runner()->error(id).isEmpty(); }));
+    w.resize(1400, 900);
+    w.show();
+    w.analysisPage()->showSection(AnalysisPage::Probe);
+    QCoreApplication::processEvents();
+    FigureSource* effect = nullptr;
+    for (FigureSource* f : w.analysisPage()->currentFigures())
+        if (f->figureKey() == QStringLiteral("effect")) effect = f;
+    ASSERT_TRUE(effect);
+    const QString title = effect->figurePlot()->yAxis->label();
+    ASSERT_FALSE(title.contains(QLatin1Char('\n')));
+    const PlotState before = stateOf(effect->figurePlot());
+    FigureSettings s = memo();
+    s.preset = "single-column";
+    s.width_in = 3.5;  // LOOK.md: Single column 3.5 × 2.6 in
+    s.height_in = 2.6;
+    const QByteArray svg = FigureExporter(effect, s, QStringLiteral("caption")).renderSvg();
+    // The long "Effect of … on …" title no longer fits the 2.6 in axis: two lines, split at a space,
+    // each written as its own text run.
+    const int split = title.lastIndexOf(QStringLiteral(" on "));
+    ASSERT_GT(split, 0);
+    EXPECT_TRUE(svg.contains(QStringLiteral(">%1<").arg(title.left(split)).toUtf8()) ||
+                svg.contains(QStringLiteral(">%1<").arg(title.left(title.indexOf(QLatin1Char(' '), split / 2))).toUtf8()))
+        << "no line break in the axis title";
+    EXPECT_FALSE(svg.contains(QStringLiteral(">%1<").arg(title).toUtf8()));
+    // The Memo preset keeps the title on one line.
+    const QByteArray wide = FigureExporter(effect, memo(), QStringLiteral("caption")).renderSvg();
+    EXPECT_TRUE(wide.contains(QStringLiteral(">%1<").arg(title).toUtf8()));
+    // And the live plot is as it was (title, legend font and layout).
+    EXPECT_EQ(effect->figurePlot()->yAxis->label(), title);
+    EXPECT_EQ(stateOf(effect->figurePlot()), before);
+}

@@ -109,9 +109,10 @@ QBrush greyBrush(QBrush b) {
 // restores every value it changed (and the source's colours) when destroyed.
 class ExportState {
 public:
-    // `width`: the figure's width in the units the plot is laid out in.
-    ExportState(FigureSource* source, QCustomPlot* plot, const FigureSettings& s, int width)
+    // `size`: the figure's size in the units the plot is laid out in.
+    ExportState(FigureSource* source, QCustomPlot* plot, const FigureSettings& s, QSize size)
         : source_(source), plot_(plot), greyscale_(s.greyscale) {
+        const int width = size.width();
         if (greyscale_) source_->setGreyscale(true);
         // Everything QCustomPlot draws is a layerable owned by the plot; its
         // pens, brushes, colours and fonts are properties. All values are read
@@ -166,7 +167,9 @@ public:
             for (int i = 0; i < legend->elementCount(); ++i)  // a wrapped grid has empty cells
                 if (QCPAbstractLegendItem* item = legend->item(i)) itemMargins_.push_back({item, item->margins()});
             fitLegend(plot, width);
+            shrinkLegend(plot, s, width, size.height());
         }
+        wrapAxisLabels(plot, size);
     }
 
     ~ExportState() {
@@ -174,7 +177,10 @@ public:
         // so the legend comes back first and each item's own value after it.
         for (const Saved& s : saved_)
             if (s.object) s.property.write(s.object, s.value);
+        for (const auto& [axis, label] : labels_)
+            if (axis) axis->setLabel(label);
         if (legend_) {
+            legend_->setIconSize(legendIcon_);
             for (const auto& [item, margins] : itemMargins_)
                 if (item) item->setMargins(margins);
             legend_->setWrap(legendWrap_);
@@ -188,6 +194,46 @@ public:
     ExportState& operator=(const ExportState&) = delete;
 
 private:
+    // On a small figure the legend would take the plot's room (and squeezed
+    // rows clip their text): smaller type, down to 3 pt below the figure's,
+    // until it takes at most a quarter of the height.
+    void shrinkLegend(QCustomPlot* plot, const FigureSettings& s, int width, int height) {
+        QCPLegend* legend = plot->legend;
+        legendIcon_ = legend->iconSize();
+        const double limit = height / 4.0;
+        for (double pt = s.font_pt; ; pt -= 0.5) {
+            if (legend->minimumOuterSizeHint().height() <= limit) return;
+            if (pt - 0.5 < std::max(5.0, s.font_pt - 3.0)) return;
+            QFont f = legend->font();
+            f.setPointSizeF(pt - 0.5);
+            legend->setFont(f);  // passes to the items
+            const double k = (pt - 0.5) / s.font_pt;
+            legend->setIconSize(QSize(std::max(8, static_cast<int>(legendIcon_.width() * k)),
+                                      std::max(6, static_cast<int>(legendIcon_.height() * k))));
+            fitLegend(plot, width);
+        }
+    }
+
+    // An axis title longer than its axis is broken into two lines near the middle.
+    void wrapAxisLabels(QCustomPlot* plot, QSize size) {
+        for (QCPAxis* axis : plot->axisRect()->axes()) {
+            const QString label = axis->label();
+            if (label.isEmpty() || label.contains(QLatin1Char('\n'))) continue;
+            const bool vertical = axis->orientation() == Qt::Vertical;
+            const double room = (vertical ? size.height() * 0.6 : size.width() * 0.85);
+            if (QFontMetricsF(axis->labelFont()).horizontalAdvance(label) <= room) continue;
+            int best = -1;
+            for (int i = 0; i < label.size(); ++i)
+                if (label[i] == QLatin1Char(' ') && (best < 0 || std::abs(i - label.size() / 2) < std::abs(best - label.size() / 2)))
+                    best = i;
+            if (best < 0) continue;
+            labels_.push_back({axis, label});
+            QString wrapped = label;
+            wrapped[best] = QLatin1Char('\n');
+            axis->setLabel(wrapped);
+        }
+    }
+
     struct Saved {
         QPointer<QObject> object;
         QMetaProperty property;
@@ -201,6 +247,8 @@ private:
     int legendWrap_ = 0;
     QCPLayoutGrid::FillOrder legendOrder_ = QCPLayoutGrid::foColumnsFirst;
     std::vector<std::pair<QPointer<QCPAbstractLegendItem>, QMargins>> itemMargins_;
+    QSize legendIcon_;
+    std::vector<std::pair<QPointer<QCPAxis>, QString>> labels_;
 };
 
 // Draws the plot and the caption under it into `logical` (units of 1/L inch).
@@ -271,7 +319,7 @@ QImage FigureExporter::renderImage() const {
         const double scale = settings_.dpi / L;  // the image keeps its default resolution (L) while painting
         const QSize logical(std::max(1, static_cast<int>(std::lround(px.width() / scale))),
                             std::max(1, static_cast<int>(std::lround(px.height() / scale))));
-        ExportState state(source_, plot, settings_, logical.width());
+        ExportState state(source_, plot, settings_, logical);
         QCPPainter painter(&image);
         painter.scale(scale, scale);
         paintFigure(painter, plot, logical, settings_, caption_);
@@ -301,7 +349,7 @@ QByteArray FigureExporter::renderSvg() const {
     generator.setDescription(caption_.isEmpty() ? QObject::tr("Made with Moderato") : caption_);
     QCustomPlot* plot = source_->figurePlot();
     {
-        ExportState state(source_, plot, settings_, logical.width());
+        ExportState state(source_, plot, settings_, logical);
         QCPPainter painter;
         if (!painter.begin(&generator)) return {};
         painter.setMode(QCPPainter::pmVectorized);
@@ -331,7 +379,7 @@ QByteArray FigureExporter::renderPdf() const {
                            QPageLayout::Portrait, QMarginsF(0, 0, 0, 0), QPageLayout::Point);
         layout.setMode(QPageLayout::FullPageMode);
         writer.setPageLayout(layout);
-        ExportState state(source_, plot, settings_, writer.width());
+        ExportState state(source_, plot, settings_, QSize(writer.width(), writer.height()));
         QCPPainter painter;
         if (!painter.begin(&writer)) return {};
         painter.setMode(QCPPainter::pmVectorized);
