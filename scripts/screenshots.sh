@@ -2,16 +2,28 @@
 # Screenshots of the workbench for the README: starts the built `moderato`
 # under a virtual X server (Xvfb), opens sample projects, switches the
 # analysis sections with their shortcuts (Ctrl+1 Specify, Ctrl+2 Estimates,
-# Ctrl+3 Probe, Ctrl+4 Checks) and saves one PNG per section.
+# Ctrl+3 Probe, Ctrl+4 Checks, Ctrl+5 Memo) and saves one PNG per section.
 #
 #   scripts/screenshots.sh [path/to/moderato] [output folder]
 #
 # Defaults: build/app/moderato and docs/screenshots/. Builds nothing itself.
 # Needs Xvfb, xdotool and ImageMagick's import. The app runs with its own
 # temporary settings folder, so the user's recent files and window state are
-# never touched. Environment: SETTLE (seconds to wait after opening a project,
+# never touched.
+#
+# Which screenshots: SHOTS, a space-separated list of project:section pairs.
+# The default is the set the README and the user guide show, so a plain run
+# regenerates docs/screenshots/. PROJECTS (sample names) and SECTIONS
+# (specify estimates probe checks memo), when either is given, replace SHOTS
+# with every section of SECTIONS (default all five) for every project of
+# PROJECTS (default the default's projects). Files are named
+# <project>-<section number>-<section>.png, so a run replaces the earlier
+# screenshot of the same project and section.
+#
+# Other environment: SETTLE (seconds to wait after opening a project,
 # default 3), PAUSE (seconds after switching a section, default 1.5),
-# PROJECTS (space-separated sample names).
+# COLOURS (palette size of the saved PNGs, default 256, which keeps them
+# small for the repository; 0 keeps full colour).
 set -euo pipefail
 
 root="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
@@ -19,8 +31,20 @@ app="${1:-$root/build/app/moderato}"
 out="${2:-$root/docs/screenshots}"
 settle="${SETTLE:-3}"
 pause="${PAUSE:-1.5}"
-read -r -a projects <<<"${PROJECTS:-orchard-nitrogen coffee-discount volunteer-onboarding}"
-sections=(specify estimates probe checks)
+colours="${COLOURS:-256}"
+sections=(specify estimates probe checks memo)
+default_shots="coffee-discount:specify coffee-discount:estimates coffee-discount:probe coffee-discount:memo
+orchard-nitrogen:probe orchard-nitrogen:checks volunteer-onboarding:probe helpdesk-staffing:probe
+trial-conversion:probe"
+read -r -a shots <<<"$(printf '%s' "${SHOTS:-$default_shots}" | tr '\n\t' '  ')"
+if [ -n "${PROJECTS:-}" ] || [ -n "${SECTIONS:-}" ]; then
+    read -r -a some_projects <<<"${PROJECTS:-coffee-discount orchard-nitrogen volunteer-onboarding trial-conversion}"
+    read -r -a some_sections <<<"${SECTIONS:-${sections[*]}}"
+    shots=()
+    for p in "${some_projects[@]}"; do
+        for s in "${some_sections[@]}"; do shots+=("$p:$s"); done
+    done
+fi
 width=1600
 height=1000
 
@@ -32,11 +56,22 @@ need() { command -v "$1" >/dev/null 2>&1 || die "'$1' is missing; install the De
 need Xvfb xvfb
 need xdotool xdotool
 need import imagemagick
+[[ "$colours" =~ ^[0-9]+$ ]] || die "COLOURS must be a whole number (0 = full colour)"
 [ -x "$app" ] || die "no moderato executable at '$app' (build it first: cmake --build build --target moderato)"
 app="$(cd "$(dirname "$app")" && pwd)/$(basename "$app")"
-for name in "${projects[@]}"; do
+# The projects in order of first mention, each with its wanted sections.
+projects=()
+declare -A wanted=()
+for shot in "${shots[@]}"; do
+    name="${shot%%:*}"
+    section="${shot#*:}"
+    if [ "$name" = "$shot" ] || [ -z "$name" ]; then die "'$shot' is not project:section"; fi
+    case " ${sections[*]} " in *" $section "*) ;; *) die "no section '$section' in '$shot' (sections: ${sections[*]})" ;; esac
     [ -f "$root/sample-projects/$name/$name.moderato" ] || die "no sample project '$root/sample-projects/$name/$name.moderato'"
+    [ -n "${wanted[$name]:-}" ] || projects+=("$name")
+    wanted[$name]="${wanted[$name]:-} $section"
 done
+[ "${#projects[@]}" -gt 0 ] || die "nothing to capture (SHOTS is empty)"
 
 # A display number nobody uses.
 display=
@@ -90,10 +125,15 @@ for name in "${projects[@]}"; do
     xdotool windowfocus --sync "$wid" 2>/dev/null || xdotool windowfocus "$wid"
     sleep "$settle"
     for i in "${!sections[@]}"; do
+        case "${wanted[$name]} " in *" ${sections[$i]} "*) ;; *) continue ;; esac
         xdotool key --clearmodifiers "ctrl+$((i + 1))"
         sleep "$pause"
         file="$out/$name-$((i + 1))-${sections[$i]}.png"
-        import -window root "$file"
+        if [ "$colours" -gt 0 ]; then
+            import -window root -colors "$colours" "PNG8:$file"
+        else
+            import -window root "$file"
+        fi
         echo "saved $file"
         saved=$((saved + 1))
     done
