@@ -742,74 +742,86 @@ TEST(RenderUsage, BadArgumentsExit2AndWriteNothing) {
 // A column literally named <script>alert(1)</script> and an analysis name with
 // & and <b>: every format shows them as text (HTML: entities; Markdown:
 // backslash escapes; LaTeX: $<$ in math mode), never as markup.
+constexpr const char* kScriptColumn = "<script>alert(1)</script>";
+constexpr const char* kAwkwardName = "dose & <b>bold</b> check";
+
+// Writes `dir`/esc.moderato: one analysis (id "escaping", named kAwkwardName)
+// of invented data at `dir`/`data_path` whose moderator column is named kScriptColumn.
+fs::path write_awkward_project(const fs::path& dir, const std::string& data_path) {
+    const char* const kColumn = kScriptColumn;
+    const char* const kName = kAwkwardName;
+    // Invented data with a known-nonzero product term: y = 1 + 0.5x + 0.3m + 0.2xm + noise.
+    std::string csv = std::string("score,dose,") + kColumn + "\n";
+    unsigned state = 12345;
+    for (int i = 0; i < 60; ++i) {
+        state = state * 1103515245u + 12345u;
+        const double noise = ((state >> 16) % 1000) / 1000.0 - 0.5;
+        const double x = i % 10, m = ((i * 7) % 13) / 2.0;
+        char row[96];
+        std::snprintf(row, sizeof row, "%.4f,%g,%g\n", 1 + 0.5 * x + 0.3 * m + 0.2 * x * m + noise, x, m);
+        csv += row;
+    }
+    fs::create_directories((dir / data_path).parent_path());
+    spit(dir / data_path, csv);
+    const json project = {
+        {"schema_version", 1},
+        {"datasets",
+         {{{"id", "esc"},
+           {"path", data_path},
+           {"sha256", ""},
+           {"import",
+            {{"delimiter", ","},
+             {"header", true},
+             {"missing_tokens", {"", "NA", "NaN", "."}},
+             {"decimal_comma", false},
+             {"column_kinds", json::object()}}}}}},
+        {"derived_columns", json::array()},
+        {"analyses",
+         {{{"id", "escaping"},
+           {"name", kName},
+           {"dataset", "esc"},
+           {"roles",
+            {{"outcome", "score"},
+             {"focal", "dose"},
+             {"moderator", kColumn},
+             {"second_moderator", ""},
+             {"controls", json::array()},
+             {"weights", ""},
+             {"clusters", ""}}},
+           {"family", "linear"},
+           {"se", "classical"},
+           {"level", 0.95},
+           {"centring", "none"},
+           {"probe",
+            {{"current", nullptr},
+             {"pinned", json::array()},
+             {"second_value", nullptr},
+             {"scale", "link"},
+             {"averaging", "sample"},
+             {"simultaneous_band", false},
+             {"show_points", true}}},
+           {"figure",
+            {{"preset", "memo"},
+             {"width_in", 6.5},
+             {"height_in", 4.0},
+             {"dpi", 100},
+             {"font_family", "DejaVu Sans"},
+             {"font_pt", 9},
+             {"greyscale", false},
+             {"caption", true}}},
+           {"memo_notes", "Notes with <i>tags</i> & an ampersand"}}}},
+        {"figures", json::array()}};
+    spit(dir / "esc.moderato", project.dump(2));
+    return dir / "esc.moderato";
+}
+
 class RenderEscaping : public ::testing::Test {
 protected:
-    static constexpr const char* kColumn = "<script>alert(1)</script>";
-    static constexpr const char* kName = "dose & <b>bold</b> check";
+    static constexpr const char* kColumn = kScriptColumn;
+    static constexpr const char* kName = kAwkwardName;
 
     void SetUp() override {
-        // Invented data with a known-nonzero product term: y = 1 + 0.5x + 0.3m + 0.2xm + noise.
-        std::string csv = std::string("score,dose,") + kColumn + "\n";
-        unsigned state = 12345;
-        for (int i = 0; i < 60; ++i) {
-            state = state * 1103515245u + 12345u;
-            const double noise = ((state >> 16) % 1000) / 1000.0 - 0.5;
-            const double x = i % 10, m = ((i * 7) % 13) / 2.0;
-            char row[96];
-            std::snprintf(row, sizeof row, "%.4f,%g,%g\n", 1 + 0.5 * x + 0.3 * m + 0.2 * x * m + noise, x, m);
-            csv += row;
-        }
-        spit(tmp_.path() / "esc.csv", csv);
-        const json project = {
-            {"schema_version", 1},
-            {"datasets",
-             {{{"id", "esc"},
-               {"path", "esc.csv"},
-               {"sha256", ""},
-               {"import",
-                {{"delimiter", ","},
-                 {"header", true},
-                 {"missing_tokens", {"", "NA", "NaN", "."}},
-                 {"decimal_comma", false},
-                 {"column_kinds", json::object()}}}}}},
-            {"derived_columns", json::array()},
-            {"analyses",
-             {{{"id", "escaping"},
-               {"name", kName},
-               {"dataset", "esc"},
-               {"roles",
-                {{"outcome", "score"},
-                 {"focal", "dose"},
-                 {"moderator", kColumn},
-                 {"second_moderator", ""},
-                 {"controls", json::array()},
-                 {"weights", ""},
-                 {"clusters", ""}}},
-               {"family", "linear"},
-               {"se", "classical"},
-               {"level", 0.95},
-               {"centring", "none"},
-               {"probe",
-                {{"current", nullptr},
-                 {"pinned", json::array()},
-                 {"second_value", nullptr},
-                 {"scale", "link"},
-                 {"averaging", "sample"},
-                 {"simultaneous_band", false},
-                 {"show_points", true}}},
-               {"figure",
-                {{"preset", "memo"},
-                 {"width_in", 6.5},
-                 {"height_in", 4.0},
-                 {"dpi", 100},
-                 {"font_family", "DejaVu Sans"},
-                 {"font_pt", 9},
-                 {"greyscale", false},
-                 {"caption", true}}},
-               {"memo_notes", "Notes with <i>tags</i> & an ampersand"}}}},
-            {"figures", json::array()}};
-        spit(tmp_.path() / "esc.moderato", project.dump(2));
-        const RunResult r = render(tmp_.path() / "esc.moderato", tmp_.path() / "out");
+        const RunResult r = render(write_awkward_project(tmp_.path(), "esc.csv"), tmp_.path() / "out");
         ASSERT_TRUE(r.exited && r.exit_code == 0) << r.describe();
         dir_ = tmp_.path() / "out" / "escaping";
     }
@@ -817,6 +829,26 @@ protected:
     TempDir tmp_;
     fs::path dir_;
 };
+
+// ------------------------------------------------------------------ data files are never written
+
+// A data file where the render would put a table (<out>/escaping/estimates.csv):
+// refused with exit 2 naming it, whether --out names the project's folder
+// directly or through a symbolic link; the data's bytes and time unchanged.
+TEST(RenderDataFiles, NeverWritesOverADataFileEvenThroughASymbolicLink) {
+    TempDir tmp;
+    const fs::path dir = tmp.path() / "p";
+    const fs::path project = write_awkward_project(dir, "escaping/estimates.csv");
+    const fs::path data = dir / "escaping" / "estimates.csv";
+    const FileSnapshot before = FileSnapshot::take(data.string());
+    fs::create_directory_symlink(dir, tmp.path() / "link");
+    for (const fs::path& out : {dir, tmp.path() / "link"}) {
+        const RunResult r = render(project, out);
+        EXPECT_TRUE(r.exited && r.exit_code == 2) << out << "\n" << r.describe();
+        EXPECT_TRUE(contains(r.err, "estimates.csv")) << r.err;
+        EXPECT_TRUE(FileSnapshot::take(data.string()) == before) << "the data file was written through " << out;
+    }
+}
 
 TEST_F(RenderEscaping, HtmlMemoAndTablesShowTheNamesAsText) {
     const std::string html = slurp(dir_ / "memo.html");
