@@ -328,11 +328,11 @@ const std::vector<BadCase> kCases = {
     {"unknown_subcommand",
      {"frobnicate", "--data", "ok/exact_interaction.csv"},
      "ok/exact_interaction.csv",
-     "moderato-cli: unknown command 'frobnicate'; commands are fit, probe, power and describe (see --help)"},
+     "moderato-cli: unknown command 'frobnicate'; commands are fit, probe, power, describe and render (see --help)"},
     {"no_command",
      {},
      "",
-     "moderato-cli: no command given; commands are fit, probe, power and describe (see --help)"},
+     "moderato-cli: no command given; commands are fit, probe, power, describe and render (see --help)"},
     {"missing_data_file",
      {"fit", "--data", "bad/no_such_file.csv", "--outcome", "y", "--predictors", "x"},
      "bad/no_such_file.csv",  // must still not exist afterwards

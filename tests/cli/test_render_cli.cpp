@@ -190,7 +190,8 @@ PngInfo read_png(const std::string& b) {
 }
 
 // ------------------------------------------------------------------ PDF
-// PDF 1.7 (ISO 32000-1) 14.11.2: MediaBox in default user space units, 1/72 inch.
+// PDF 1.7 (ISO 32000-1): a page's MediaBox is in default user space units of
+// 1/72 inch (section numbers from memory: 14.11.2 page boundaries, 8.3.2.3 user space).
 
 struct PdfInfo {
     bool ok = false;
@@ -428,6 +429,8 @@ const std::vector<SampleCase>& samples() {
     };
     return s;
 }
+
+void PrintTo(const SampleCase& c, std::ostream* os) { *os << c.name; }
 
 class RenderSample : public ::testing::TestWithParam<SampleCase> {};
 
