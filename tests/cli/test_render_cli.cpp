@@ -734,7 +734,15 @@ TEST(RenderUsage, BadArgumentsExit2AndWriteNothing) {
     EXPECT_TRUE(contains(csvAsProject.err, "spend.csv")) << csvAsProject.err;
     EXPECT_TRUE(FileSnapshot::take(notProject.string()) == csvBefore);
 
-    for (const RunResult* r : {&noOut, &unknown, &noProject, &absent, &outNeedsValue, &csvAsProject})
+    // A project whose data file is gone: exit 2 naming the data file.
+    TempDir other;
+    const fs::path orphan = copy_sample("coffee-discount", other.path());
+    fs::remove(other.path() / "spend.csv");
+    const RunResult noData = run_cli({"render", orphan.string(), "--out", (tmp.path() / "o").string()});
+    EXPECT_TRUE(noData.exited && noData.exit_code == 2) << noData.describe();
+    EXPECT_TRUE(contains(noData.err, "spend.csv")) << noData.err;
+
+    for (const RunResult* r : {&noOut, &unknown, &noProject, &absent, &outNeedsValue, &csvAsProject, &noData})
         EXPECT_EQ(r->out, "") << r->describe();
     EXPECT_FALSE(fs::exists(tmp.path() / "o")) << "an output folder was made for a failed render";
     EXPECT_TRUE(FileSnapshot::take((tmp.path() / "p").string()) == before);
