@@ -345,8 +345,13 @@ QByteArray FigureExporter::renderSvg() const {
     generator.setResolution(L);
     generator.setSize(logical);
     generator.setViewBox(QRect(QPoint(0, 0), logical));
-    generator.setTitle(source_->figureName());
-    generator.setDescription(caption_.isEmpty() ? QObject::tr("Made with Moderato") : caption_);
+    // Qt 6.4's generator writes the title and description without escaping
+    // them, so a '<' or '&' in a column name would break the XML (or make
+    // elements). Plain placeholders go in; the escaped text replaces them below.
+    static const QString titleMark = QStringLiteral("MODERATO-SVG-TITLE-MARK");
+    static const QString descMark = QStringLiteral("MODERATO-SVG-DESCRIPTION-MARK");
+    generator.setTitle(titleMark);
+    generator.setDescription(descMark);
     QCustomPlot* plot = source_->figurePlot();
     {
         ExportState state(source_, plot, settings_, logical);
@@ -359,6 +364,12 @@ QByteArray FigureExporter::renderSvg() const {
     // The generator states the size from whole units of 1/L inch; state the
     // figure's exact size instead (the view box scales the drawing to it).
     QString svg = QString::fromUtf8(buffer.data());
+    const auto replaceFirst = [&svg](const QString& mark, const QString& text) {
+        const qsizetype at = svg.indexOf(mark);
+        if (at >= 0) svg.replace(at, mark.size(), text.toHtmlEscaped());
+    };
+    replaceFirst(titleMark, source_->figureName());
+    replaceFirst(descMark, caption_.isEmpty() ? QObject::tr("Made with Moderato") : caption_);
     static const QRegularExpression size(QStringLiteral("<svg width=\"[^\"]*\" height=\"[^\"]*\""));
     svg.replace(size, QStringLiteral("<svg width=\"%1mm\" height=\"%2mm\"")
                           .arg(QString::number(settings_.width_in * 25.4, 'g', 10),

@@ -28,11 +28,13 @@ public:
 
     void write(const QString& relative, const QByteArray& bytes) {
         const QString path = QDir(root_).filePath(relative);
-        const QString canonical = QFileInfo(path).absoluteFilePath();
-        if (forbidden_.count(canonical))
-            throw InputError(canonical.toStdString() + ": is one of the project's data files; render writes only "
-                                                       "new files, choose another --out folder");
         QDir().mkpath(QFileInfo(path).absolutePath());
+        // The same file by another name (a symbolic link in the way) counts too.
+        const QFileInfo target(path);
+        if (forbidden_.count(target.absoluteFilePath()) || (target.exists() && forbidden_.count(target.canonicalFilePath())))
+            throw InputError(target.absoluteFilePath().toStdString() +
+                             ": is one of the project's data files; render writes only new files, choose another "
+                             "--out folder");
         write_file_atomically(path.toStdString(), bytes.toStdString());
         report_.files << relative;
     }
@@ -82,7 +84,9 @@ RenderReport renderProject(const RenderRequest& request) {
     QStringList changed;
     std::set<QString> dataFiles;
     for (const auto& d : loaded.project.datasets) {
-        dataFiles.insert(QFileInfo(QString::fromStdString(resolve_data_path(d, loaded.path))).absoluteFilePath());
+        const QFileInfo data(QString::fromStdString(resolve_data_path(d, loaded.path)));
+        dataFiles.insert(data.absoluteFilePath());
+        if (!data.canonicalFilePath().isEmpty()) dataFiles.insert(data.canonicalFilePath());
         const auto now = loaded.sha256.find(d.id);
         if (!d.sha256.empty() && now != loaded.sha256.end() && now->second != d.sha256)
             changed << QStringLiteral("%1 (dataset %2): SHA-256 %3 now, %4 when the project was saved")

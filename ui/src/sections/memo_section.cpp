@@ -13,6 +13,7 @@
 #include <QPdfWriter>
 #include <QPlainTextEdit>
 #include <QPushButton>
+#include <QRegularExpression>
 #include <QTextDocument>
 #include <QTextEdit>
 #include <QTimer>
@@ -199,8 +200,11 @@ void MemoSection::notesEdited() {
 
 QByteArray MemoSection::editedHtml() const {
     // Qt's HTML names the figures by their resource names: embed them, so the
-    // file stays self-contained.
+    // file stays self-contained. Its HTML 4 doctype names a DTD by URL: the
+    // plain HTML5 doctype instead, so the file refers to nothing outside it.
     QString html = editor_->document()->toHtml();
+    static const QRegularExpression doctype(QStringLiteral("^<!DOCTYPE[^>]*>"), QRegularExpression::CaseInsensitiveOption);
+    html.replace(doctype, QStringLiteral("<!DOCTYPE html>"));
     if (output_)
         for (const auto& [file, png] : output_->pngs)
             html.replace(QStringLiteral("src=\"%1\"").arg(file),
@@ -208,13 +212,22 @@ QByteArray MemoSection::editedHtml() const {
     return html.toUtf8();
 }
 
-bool MemoSection::write(const QString& path, const QByteArray& bytes, QString* error) {
-    const QString target = QFileInfo(path).absoluteFilePath();
-    for (const auto& d : doc_->project().datasets)
-        if (QFileInfo(doc_->dataPath(d.id)).absoluteFilePath() == target) {
+bool MemoSection::isDataFile(const QString& path, QString* error) const {
+    // The same file by another name (a symbolic link, "..") counts too.
+    const QFileInfo target(path);
+    for (const auto& d : doc_->project().datasets) {
+        const QFileInfo data(doc_->dataPath(d.id));
+        if (data.absoluteFilePath() == target.absoluteFilePath() ||
+            (target.exists() && data.canonicalFilePath() == target.canonicalFilePath())) {
             if (error) *error = tr("%1 is a data file of this project; Moderato never writes over data.").arg(path);
-            return false;
+            return true;
         }
+    }
+    return false;
+}
+
+bool MemoSection::write(const QString& path, const QByteArray& bytes, QString* error) {
+    if (isDataFile(path, error)) return false;
     try {
         write_file_atomically(path.toStdString(), bytes.toStdString());
     } catch (const std::exception& e) {
@@ -242,6 +255,7 @@ bool MemoSection::saveMarkdown(const QString& path, QString* error) {
         if (error) *error = tr("There is no memo yet: the analysis has no results.");
         return false;
     }
+    if (isDataFile(path, error)) return false;  // before any figure is written beside it
     const QDir dir = QFileInfo(path).absoluteDir();
     for (const auto& [file, png] : output_->pngs)
         if (!write(dir.filePath(file), png, error)) return false;

@@ -66,6 +66,8 @@ private:
     void notesEdited();
     void setEditedState(bool on);
     QByteArray editedHtml() const;
+    // Whether `path` names one of the project's data files (then `error` says so).
+    bool isDataFile(const QString& path, QString* error) const;
     bool write(const QString& path, const QByteArray& bytes, QString* error);
 
     ProbeSection* probe_;
