@@ -197,7 +197,7 @@ std::pair<std::size_t, std::size_t> line_and_column(const std::string& text, std
 bool ProbeSettings::operator==(const ProbeSettings& o) const {
     return same_number(current, o.current) && pinned == o.pinned && same_number(second_value, o.second_value) &&
            scale == o.scale && averaging == o.averaging && simultaneous_band == o.simultaneous_band &&
-           show_points == o.show_points;
+           show_points == o.show_points && show_gaps == o.show_gaps;
 }
 
 bool DataSource::operator==(const DataSource& o) const {
@@ -287,7 +287,8 @@ std::string project_to_json(const Project& p) {
                    {"scale", a.probe.scale},
                    {"averaging", a.probe.averaging},
                    {"simultaneous_band", a.probe.simultaneous_band},
-                   {"show_points", a.probe.show_points}};
+                   {"show_points", a.probe.show_points},
+                   {"show_gaps", a.probe.show_gaps}};
         json figure{{"preset", a.figure.preset},       {"width_in", a.figure.width_in},
                     {"height_in", a.figure.height_in}, {"dpi", a.figure.dpi},
                     {"font_family", a.figure.font_family}, {"font_pt", a.figure.font_pt},
@@ -412,6 +413,7 @@ Project project_from_json(const std::string& text, const std::string& name) {
         a.probe.averaging = r.one_of(probe, "averaging", pw, {"sample", "values"}, "sample");
         a.probe.simultaneous_band = r.boolean(probe, "simultaneous_band", pw, false);
         a.probe.show_points = r.boolean(probe, "show_points", pw, true);
+        a.probe.show_gaps = r.boolean(probe, "show_gaps", pw, true);
         const json& fig = r.object(j, "figure", where, false);
         const std::string fw = where + ".figure";
         a.figure.preset = r.one_of(fig, "preset", fw, kPresets, "memo");

@@ -240,8 +240,12 @@ TEST(MemoSentences, EverySampleHasFindingsAndTheUsualCautions) {
         EXPECT_NE(cautions.find("not causal"), std::string::npos);
         EXPECT_NE(cautions.find("extrapolation"), std::string::npos);
         EXPECT_NE(cautions.find("large samples"), std::string::npos);
-        if (s.analysis.family == Family::Logistic) EXPECT_NE(cautions.find("probability"), std::string::npos);
-        if (s.run.kind == ProbeKind::Continuous) EXPECT_NE(cautions.find("many moderator values"), std::string::npos);
+        if (s.analysis.family == Family::Logistic) {
+            EXPECT_NE(cautions.find("probability"), std::string::npos);
+        }
+        if (s.run.kind == ProbeKind::Continuous) {
+            EXPECT_NE(cautions.find("many moderator values"), std::string::npos);
+        }
     }
 }
 
@@ -324,7 +328,9 @@ TEST(MemoRender, UserStringsAreEscapedAndTheHtmlIsSelfContained) {
     for (std::size_t at = md.find('<'); at != std::string::npos; at = md.find('<', at + 1)) {
         const bool tag_like = at + 1 < md.size() && (std::isalpha(static_cast<unsigned char>(md[at + 1])) ||
                                                      md[at + 1] == '/' || md[at + 1] == '!' || md[at + 1] == '?');
-        if (tag_like) EXPECT_TRUE(at > 0 && md[at - 1] == '\\') << md.substr(at, 30);
+        if (tag_like) {
+            EXPECT_TRUE(at > 0 && md[at - 1] == '\\') << md.substr(at, 30);
+        }
     }
     EXPECT_NE(md.find("\\<script>alert(1)\\</script>"), std::string::npos);
     EXPECT_NE(md.find("](lines-plot.png)"), std::string::npos);

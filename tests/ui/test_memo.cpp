@@ -8,6 +8,7 @@
 #include <gtest/gtest.h>
 #include <unistd.h>
 
+#include <QCheckBox>
 #include <QAction>
 #include <QDir>
 #include <QFile>
@@ -34,6 +35,7 @@
 #include "plots/figure_source.hpp"
 #include "render/analysis_outputs.hpp"
 #include "sections/memo_section.hpp"
+#include "plots/lines_plot.hpp"
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/figure_caption.hpp"
@@ -406,3 +408,48 @@ TEST(MemoFindings, CrossoverSentenceStatesTheProbeSectionsValueAndTheClosedForm)
 }
 
 }  // namespace
+
+// ------------------------------------------------------------------ settings the render reads
+
+TEST(MemoMatchesRenderSettings, WhereGroupsDifferIsKeptInTheProjectAndTheRenderFollowsIt) {
+    Session s(QStringLiteral("coffee-discount"));
+    s.w.analysisPage()->showSection(AnalysisPage::Probe);
+    QCheckBox* differ = child<QCheckBox>(s.probe(), "differ-toggle");
+    ASSERT_TRUE(differ);
+    ASSERT_TRUE(differ->isChecked());
+    ASSERT_TRUE(s.analysis().probe.show_gaps);
+    // Unticked by a click: one undoable edit of the analysis.
+    QTest::mouseClick(differ, Qt::LeftButton, {}, QPoint(8, differ->height() / 2));
+    EXPECT_FALSE(differ->isChecked());
+    EXPECT_FALSE(s.analysis().probe.show_gaps);
+    s.w.document()->undoStack()->undo();
+    EXPECT_TRUE(s.analysis().probe.show_gaps);
+    EXPECT_TRUE(differ->isChecked());
+    s.w.document()->undoStack()->redo();
+    EXPECT_FALSE(s.analysis().probe.show_gaps);
+    EXPECT_FALSE(differ->isChecked());
+
+    // Saved, then rendered headless: the Lines plot is the one the workbench exports (no "groups differ" strip).
+    s.w.document()->saveAs(s.project);
+    const auto run = s.w.runner()->result(s.id);
+    ASSERT_TRUE(run);
+    QTemporaryDir out;
+    QString error;
+    const QString gui = out.filePath(QStringLiteral("gui-lines.png"));
+    ASSERT_TRUE(FigureExporter(s.probe()->linesPlot(), s.analysis().figure, figureCaption(s.analysis(), *run))
+                    .save(gui, FigureFormat::Png, &error))
+        << error.toStdString();
+    const QString cli = out.filePath(QStringLiteral("cli"));
+    const auto r = moderato::test::run_cli({"render", s.project.toStdString(), "--out", cli.toStdString()});
+    ASSERT_TRUE(r.exited && r.exit_code == 0) << r.describe();
+    const QByteArray rendered =
+        readAll(cli + QLatin1Char('/') + QString::fromStdString(file_slug(s.analysis().id)) + QStringLiteral("/lines-plot.png"));
+    EXPECT_FALSE(rendered.isEmpty());
+    EXPECT_TRUE(readAll(gui) == rendered);
+    // And the strip really is a difference: ticked again, the export changes.
+    differ->click();
+    ASSERT_TRUE(s.analysis().probe.show_gaps);
+    const QByteArray withStrip = FigureExporter(s.probe()->linesPlot(), s.analysis().figure,
+                                                figureCaption(s.analysis(), *run)).render(FigureFormat::Png);
+    EXPECT_FALSE(withStrip == rendered);
+}

@@ -64,6 +64,7 @@ struct ProbeSettings {
     std::string averaging = "sample";      // response scale: "sample" or "values"
     bool simultaneous_band = false;        // show the simultaneous band instead of pointwise
     bool show_points = true;               // data points on the Lines plot
+    bool show_gaps = true;                 // shade where two groups' (or lines') predictions differ
     bool operator==(const ProbeSettings&) const;
 };
 

@@ -212,8 +212,10 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
                      std::isnan(v) ? tr("Hold %1 at its default").arg(col)
                                    : tr("Hold %1 at %2").arg(col, probeNumber(v)));
     });
-    connect(differ_, &QCheckBox::toggled, this, [this] {
-        if (!rebuilding_ && engine_.valid()) buildPlots();
+    connect(differ_, &QCheckBox::toggled, this, [this](bool on) {
+        if (rebuilding_ || !engine_.valid()) return;
+        editSettings([on](ProbeSettings& p) { p.show_gaps = on; },
+                     on ? tr("Shade where the lines differ") : tr("Hide where the lines differ"));
     });
     connect(surfaceToggle_, &QToolButton::toggled, this, [this](bool on) {
         linesStack_->setCurrentIndex(on ? 1 : 0);
@@ -293,6 +295,7 @@ void ProbeSection::rebuild() {
                           : tr("No simultaneous band here: on the probability scale the effect is not linear in the "
                                "coefficients"));
     points_->setChecked(ps.show_points);
+    differ_->setChecked(ps.show_gaps);
     points_->setEnabled(!logistic || engine_.probability());
     scaleLabel_->setVisible(logistic);
     scale_->setVisible(logistic);
@@ -806,7 +809,8 @@ void ProbeSection::onDocumentChanged(const QString& id) {
     const ProbeSettings& was = shown_.probe;
     // A change of the probe itself (pinned values, scale, ...) arrives as a new run.
     if (!same_probe(*a, shown_)) return;
-    if (now.simultaneous_band != was.simultaneous_band || now.show_points != was.show_points) {
+    if (now.simultaneous_band != was.simultaneous_band || now.show_points != was.show_points ||
+        now.show_gaps != was.show_gaps) {
         rebuild();
         return;
     }
