@@ -49,7 +49,6 @@ import argparse
 import json
 import math
 import os
-import subprocess
 import sys
 
 import numpy as np
@@ -60,34 +59,12 @@ import scipy.stats
 import statsmodels
 import statsmodels.api as sm
 
-from reference_io import atomic_write, write_csv_roundtrip
+from reference_io import atomic_write, write_csv_roundtrip, fl, library_source
 
 BASE_SEED = 20240918
 COMMAND = "/usr/bin/python3 tests/reference/make_cells_reference.py --out DIR"
 TIMES = "\u00d7"
 SM = f"statsmodels {statsmodels.__version__}"
-
-
-def debian_version(package):
-    try:
-        out = subprocess.run(["dpkg-query", "-W", "-f=${Version}", package],
-                             capture_output=True, text=True, check=False)
-        return out.stdout.strip() or None
-    except OSError:
-        return None
-
-
-def library_source():
-    deb = debian_version("python3-statsmodels")
-    pkg = f"python3-statsmodels {deb}, Debian" if deb else "python3-statsmodels"
-    return (f"statsmodels {statsmodels.__version__} ({pkg}); numpy {np.__version__}, "
-            f"scipy {scipy.__version__}, pandas {pd.__version__}")
-
-
-def fl(a):
-    if np.ndim(a) == 0:
-        return float(a)
-    return [fl(v) for v in a]
 
 
 def rng_for(k):

@@ -45,7 +45,6 @@ import argparse
 import json
 import math
 import os
-import subprocess
 import sys
 
 import numpy as np
@@ -58,35 +57,13 @@ import statsmodels.api as sm
 from statsmodels.graphics.gofplots import ProbPlot
 from statsmodels.stats.outliers_influence import OLSInfluence
 
-from reference_io import atomic_write, write_csv_roundtrip
+from reference_io import atomic_write, write_csv_roundtrip, fl, library_source
 
 BASE_SEED = 20240921
 COMMAND = "/usr/bin/python3 tests/reference/make_diagnostics_reference.py --out DIR"
 TIMES = "\u00d7"
 SM = f"statsmodels {statsmodels.__version__}"
 BLOM_A = 0.375
-
-
-def debian_version(package):
-    try:
-        out = subprocess.run(["dpkg-query", "-W", "-f=${Version}", package],
-                             capture_output=True, text=True, check=False)
-        return out.stdout.strip() or None
-    except OSError:
-        return None
-
-
-def library_source():
-    deb = debian_version("python3-statsmodels")
-    pkg = f"python3-statsmodels {deb}, Debian" if deb else "python3-statsmodels"
-    return (f"statsmodels {statsmodels.__version__} ({pkg}); numpy {np.__version__}, "
-            f"scipy {scipy.__version__}, pandas {pd.__version__}")
-
-
-def fl(a):
-    if np.ndim(a) == 0:
-        return float(a)
-    return [fl(v) for v in a]
 
 
 def rng_for(k):

@@ -38,17 +38,15 @@ import argparse
 import hashlib
 import json
 import os
-import subprocess
 import sys
 
 import numpy as np
 import pandas as pd
-import scipy
 import statsmodels
 import statsmodels.api as sm
 from statsmodels.stats.outliers_influence import variance_inflation_factor
 
-from reference_io import atomic_write
+from reference_io import atomic_write, library_source
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(os.path.dirname(HERE))
@@ -64,22 +62,6 @@ CASES = {
                         "predictors": ["nitrogen_kg_ha", "slope_pct"],
                         "interaction": ["nitrogen_kg_ha", "slope_pct"]},
 }
-
-
-def debian_version(package):
-    try:
-        out = subprocess.run(["dpkg-query", "-W", "-f=${Version}", package],
-                             capture_output=True, text=True, check=False)
-        return out.stdout.strip() or None
-    except OSError:
-        return None
-
-
-def library_source():
-    deb = debian_version("python3-statsmodels")
-    pkg = f"python3-statsmodels {deb}, Debian" if deb else "python3-statsmodels"
-    return (f"statsmodels {statsmodels.__version__} ({pkg}); numpy {np.__version__}, "
-            f"scipy {scipy.__version__}, pandas {pd.__version__}")
 
 
 def design(df, spec):

@@ -1,11 +1,37 @@
-"""Output helpers shared by the reference scripts: files are written
-atomically, and a CSV is checked to read back as exactly the doubles that
-were fitted."""
+"""Helpers shared by the reference scripts: files are written atomically, a
+CSV is checked to read back as exactly the doubles that were fitted, numbers
+become plain Python floats, and each fixture names the libraries it came from."""
 import os
+import subprocess
 import tempfile
 
 import numpy as np
 import pandas as pd
+import scipy
+import statsmodels
+
+
+def debian_version(package):
+    try:
+        out = subprocess.run(["dpkg-query", "-W", "-f=${Version}", package],
+                             capture_output=True, text=True, check=False)
+        return out.stdout.strip() or None
+    except OSError:
+        return None
+
+
+def library_source():
+    deb = debian_version("python3-statsmodels")
+    pkg = f"python3-statsmodels {deb}, Debian" if deb else "python3-statsmodels"
+    return (f"statsmodels {statsmodels.__version__} ({pkg}); numpy {np.__version__}, "
+            f"scipy {scipy.__version__}, pandas {pd.__version__}")
+
+
+def fl(a):
+    """Python floats (repr = shortest round-trip) from numpy data."""
+    if np.ndim(a) == 0:
+        return float(a)
+    return [fl(v) for v in a]
 
 
 def atomic_write(path, text):
