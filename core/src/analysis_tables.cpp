@@ -6,19 +6,13 @@
 #include "moderato/report_text.hpp"
 
 namespace moderato {
-namespace {
 
-ExportCell num(double x) { return {format_sig(x), exact_text(x)}; }
-ExportCell pval(double p) { return {format_p_value(p), exact_text(p)}; }
-ExportCell text(const std::string& s) { return {s, ""}; }
-ExportCell count(long long n) { return {format_count(n), std::to_string(n)}; }
-
-}  // namespace
-
-std::string se_description(const FitResult& fit) {
+std::string se_description(const FitResult& fit, const std::string& clusters) {
     switch (fit.se) {
     case SeKind::Classical: return fit.family == Family::Logistic ? "model-based" : "classical";
-    case SeKind::Cluster: return "cluster-robust (" + std::to_string(fit.n_clusters) + " clusters)";
+    case SeKind::Cluster:
+        return "cluster-robust (" + (clusters.empty() ? std::string() : clusters + ", ") + std::to_string(fit.n_clusters) +
+               " clusters)";
     default: {
         std::string s = to_string(fit.se);
         for (auto& c : s) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
@@ -28,6 +22,11 @@ std::string se_description(const FitResult& fit) {
 }
 
 namespace {
+
+ExportCell num(double x) { return {format_sig(x), exact_text(x)}; }
+ExportCell pval(double p) { return {format_p_value(p), exact_text(p)}; }
+ExportCell text(const std::string& s) { return {s, ""}; }
+ExportCell count(long long n) { return {format_count(n), std::to_string(n)}; }
 
 ExportTable estimates_table(const Analysis& a, const AnalysisRun& run) {
     const bool centred = a.centring == "mean" && run.centred_fit;
@@ -45,7 +44,7 @@ ExportTable estimates_table(const Analysis& a, const AnalysisRun& run) {
         t.rows.push_back({text(c.term), num(c.estimate), num(c.std_error), num(c.statistic), pval(c.p_value),
                           num(c.ci_lower), num(c.ci_upper)});
     }
-    t.notes.push_back("Standard errors: " + se_description(fit) + "; n = " + format_count(static_cast<long long>(fit.n)) +
+    t.notes.push_back("Standard errors: " + se_description(fit, a.roles.clusters) + "; n = " + format_count(static_cast<long long>(fit.n)) +
                       (fit.n_excluded ? " (" + format_count(static_cast<long long>(fit.n_excluded)) +
                                             " rows with missing values left out)"
                                       : "") +
@@ -93,7 +92,7 @@ std::string df_text(double df1, double df2) {
     return format_sig(df1) + ", " + format_sig(df2);
 }
 
-ExportTable comparison_table(const AnalysisRun& run) {
+ExportTable comparison_table(const Analysis& a, const AnalysisRun& run) {
     const FitResult& f = run.fit;
     const NestedComparison& c = *f.comparison;
     ExportTable t;
@@ -112,7 +111,7 @@ ExportTable comparison_table(const AnalysisRun& run) {
     }
     const WaldTest& w = c.wald;
     const bool chi = !std::isfinite(w.df2);
-    t.rows.push_back({text(std::string("Wald ") + (chi ? "χ²" : "F") + " (" + se_description(f) + ")"),
+    t.rows.push_back({text(std::string("Wald ") + (chi ? "χ²" : "F") + " (" + se_description(f, a.roles.clusters) + ")"),
                       num(chi ? w.chi_square : w.statistic), text(df_text(w.df1, w.df2)), pval(w.p_value)});
     return t;
 }
@@ -214,7 +213,7 @@ std::vector<NamedTable> analysis_tables(const Analysis& a, const AnalysisRun& ru
     std::vector<NamedTable> out;
     out.push_back({"estimates", estimates_table(a, run)});
     out.push_back({"fit-statistics", fit_table(run)});
-    if (run.fit.comparison) out.push_back({"model-comparison", comparison_table(run)});
+    if (run.fit.comparison) out.push_back({"model-comparison", comparison_table(a, run)});
     if (run.probe) out.push_back({"conditional-effects", effects_table(*run.probe, run.fit)});
     if (run.cells) {
         out.push_back({"cell-table", cell_table_export(*run.cells)});

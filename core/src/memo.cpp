@@ -287,7 +287,7 @@ void comparison_sentence(const Analysis& a, const AnalysisRun& run, std::vector<
     }
     if (a.se != SeKind::Classical && a.family == Family::Linear) {
         const WaldTest& w = c.wald;
-        out.push_back("With " + se_description(run.fit) + " standard errors the Wald test of " + what + " gives F(" +
+        out.push_back("With " + se_description(run.fit, a.roles.clusters) + " standard errors the Wald test of " + what + " gives F(" +
                       format_sig(w.df1) + ", " + format_sig(w.df2) + ") = " + format_sig(w.statistic) + ", " +
                       p_clause(w.p_value) + ".");
     }

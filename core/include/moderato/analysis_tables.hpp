@@ -19,8 +19,9 @@ struct NamedTable {
     ExportTable table;
 };
 
-// "classical", "HC3", "cluster-robust (40 clusters)", "model-based" (logistic classical).
-std::string se_description(const FitResult& fit);
+// "classical", "HC3", "cluster-robust (shop, 40 clusters)", "model-based"
+// (logistic classical); `clusters` names the cluster column (may be empty).
+std::string se_description(const FitResult& fit, const std::string& clusters = {});
 
 // "t" for linear models, "z" for logistic ones.
 std::string statistic_name(const FitResult& fit);

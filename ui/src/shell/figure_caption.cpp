@@ -2,24 +2,13 @@
 
 #include <QLocale>
 
+#include "moderato/analysis_tables.hpp"
 #include "probe/held_value_control.hpp"
 
 namespace moderato::ui {
 
 QString seDescription(const Analysis& a, const AnalysisRun& run) {
-    switch (a.se) {
-    case SeKind::Classical: return a.family == Family::Logistic ? QStringLiteral("model-based") : QStringLiteral("classical");
-    case SeKind::HC0: return QStringLiteral("HC0");
-    case SeKind::HC1: return QStringLiteral("HC1");
-    case SeKind::HC2: return QStringLiteral("HC2");
-    case SeKind::HC3: return QStringLiteral("HC3");
-    case SeKind::HC4: return QStringLiteral("HC4");
-    case SeKind::Cluster:
-        return QStringLiteral("cluster-robust (%1, %2 clusters)")
-            .arg(QString::fromStdString(a.roles.clusters))
-            .arg(run.fit.n_clusters);
-    }
-    return {};
+    return QString::fromStdString(se_description(run.fit, a.roles.clusters));
 }
 
 QString figureCaption(const Analysis& a, const AnalysisRun& run) {
