@@ -174,7 +174,7 @@ TEST_P(MemoMatchesRender, SavedMemoTablesAndFiguresAreTheRenderedBytes) {
     for (const char* file : {"memo.html", "memo.md", "memo.pdf"})
         same(gui + QLatin1Char('/') + QLatin1String(file), folder + QLatin1Char('/') + QLatin1String(file));
     // The PNGs the Markdown memo names, saved beside it.
-    for (const auto& [file, png] : memo->output()->pngs) same(gui + QLatin1Char('/') + file, folder + QLatin1Char('/') + file);
+    for (const auto& [file, png] : memo->output()->pngs()) same(gui + QLatin1Char('/') + file, folder + QLatin1Char('/') + file);
     // Tables: "<analysis>-estimates.csv" from the workbench, "estimates.csv" from the render.
     ASSERT_FALSE(tables.isEmpty());
     bool estimates = false;
@@ -298,12 +298,12 @@ TEST(MemoEditing, EditedTextIsSavedSelfContainedAndRestoreBringsBackTheGenerated
     const QByteArray edited = readAll(out.filePath(QStringLiteral("edited.html")));
     EXPECT_TRUE(edited.contains(sentence.toUtf8()));
     EXPECT_TRUE(edited.contains("Findings")) << "the rest of the memo is still there";
-    expectSelfContained(edited, static_cast<int>(memo->output()->pngs.size()));
+    expectSelfContained(edited, static_cast<int>(memo->output()->pngs().size()));
     // The embedded figures are the memo's own PNGs.
-    for (const auto& [file, png] : memo->output()->pngs)
+    for (const auto& [file, png] : memo->output()->pngs())
         EXPECT_TRUE(edited.contains("data:image/png;base64," + png.toBase64())) << file;
     // The generated memo is self-contained too (the same checks).
-    expectSelfContained(generated, static_cast<int>(memo->output()->pngs.size()));
+    expectSelfContained(generated, static_cast<int>(memo->output()->pngs().size()));
 
     // Restore the generated text: not edited, and the same bytes as before.
     QTest::mouseClick(restore, Qt::LeftButton);

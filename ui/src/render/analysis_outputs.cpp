@@ -41,28 +41,34 @@ QString figureStem(FigureSource* figure) {
     return QString::fromStdString(file_slug(figure->figureName().toStdString()));
 }
 
-MemoOutput buildMemo(const ProjectDocument& doc, const QString& analysisId, const AnalysisRun& run,
-                     ProbeSection* probe) {
-    const Analysis* a = doc.analysis(analysisId);
-    if (!a) throw InputError("no analysis has the id \"" + analysisId.toStdString() + "\"");
-    const QString caption = figureCaption(*a, run);
-    MemoOutput out;
+std::vector<std::pair<QString, QByteArray>> MemoOutput::pngs() const {
+    std::vector<std::pair<QString, QByteArray>> out;
+    for (const auto& f : memo.figures) out.emplace_back(QString::fromStdString(f.file), QByteArray::fromStdString(f.png));
+    return out;
+}
+
+std::vector<MemoFigure> memoFigures(const Analysis& a, const AnalysisRun& run, ProbeSection* probe) {
+    const QString caption = figureCaption(a, run);
     std::vector<MemoFigure> figures;
-    FigureSettings settings = a->figure;
     for (FigureSource* f : analysisFigures(probe, run)) {
-        const FigureExporter exporter(f, settings, caption);
-        const QByteArray png = exporter.render(FigureFormat::Png);
         MemoFigure mf;
         mf.title = f->figureName().toStdString();
         mf.file = figureStem(f).toStdString() + ".png";
-        mf.png = png.toStdString();
-        mf.width_in = settings.width_in;
-        mf.height_in = settings.height_in;
+        mf.png = FigureExporter(f, a.figure, caption).render(FigureFormat::Png).toStdString();
+        mf.width_in = a.figure.width_in;
+        mf.height_in = a.figure.height_in;
         figures.push_back(std::move(mf));
-        out.pngs.emplace_back(QString::fromStdString(figures.back().file), png);
     }
+    return figures;
+}
+
+MemoOutput buildMemo(const ProjectDocument& doc, const QString& analysisId, const AnalysisRun& run,
+                     std::vector<MemoFigure> figures) {
+    const Analysis* a = doc.analysis(analysisId);
+    if (!a) throw InputError("no analysis has the id \"" + analysisId.toStdString() + "\"");
+    MemoOutput out;
     MemoContext ctx;
-    ctx.caption = caption.toStdString();
+    ctx.caption = figureCaption(*a, run).toStdString();
     ctx.project_file = doc.filePath().isEmpty() ? std::string("(not saved)")
                                                 : QFileInfo(doc.filePath()).fileName().toStdString();
     if (const DataSource* d = doc.project().dataset(a->dataset)) {

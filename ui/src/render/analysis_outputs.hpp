@@ -31,14 +31,19 @@ QString figureStem(FigureSource* figure);
 struct MemoOutput {
     Memo memo;
     std::string html;        // self-contained
-    std::string markdown;    // names the PNG files below
-    std::vector<std::pair<QString, QByteArray>> pngs;  // file name beside the Markdown memo, PNG bytes
+    std::string markdown;    // names the figures' PNG files
+    // The figures as (file name beside the Markdown memo, PNG bytes).
+    std::vector<std::pair<QString, QByteArray>> pngs() const;
 };
 
-// The memo of an analysis from its run and the Probe section's plots (which
-// must show this analysis). The figures use the analysis's figure settings.
+// The memo's figures (analysisFigures) as PNG at the analysis's figure
+// settings, with its caption: the bytes File ▸ Export Figure writes. The
+// Probe section must show this analysis.
+std::vector<MemoFigure> memoFigures(const Analysis& analysis, const AnalysisRun& run, ProbeSection* probe);
+
+// The memo of an analysis from its run and its figures (memoFigures).
 MemoOutput buildMemo(const ProjectDocument& doc, const QString& analysisId, const AnalysisRun& run,
-                     ProbeSection* probe);
+                     std::vector<MemoFigure> figures);
 
 // Loads a memo into a rich-text document (figures as resources) and lays
 // its tables over the text width: Qt's HTML reader sizes tables by their

@@ -2,6 +2,7 @@
 
 #include <QDir>
 #include <QFileInfo>
+#include <initializer_list>
 #include <limits>
 #include <set>
 
@@ -47,13 +48,13 @@ private:
 
 QString slug(const std::string& label) { return QString::fromStdString(file_slug(label)); }
 
-const FigureFormat kFormats[] = {FigureFormat::Png, FigureFormat::Svg, FigureFormat::Pdf};
 const TableFormat kTableFormats[] = {TableFormat::Csv, TableFormat::Markdown, TableFormat::Latex, TableFormat::Html};
 
 void writeFigure(Writer& out, const QString& stem, FigureSource* source, const FigureSettings& settings,
-                 const QString& caption) {
+                 const QString& caption,
+                 std::initializer_list<FigureFormat> formats = {FigureFormat::Png, FigureFormat::Svg, FigureFormat::Pdf}) {
     const FigureExporter exporter(source, settings, caption);
-    for (const FigureFormat f : kFormats) {
+    for (const FigureFormat f : formats) {
         const QByteArray bytes = exporter.render(f);
         if (bytes.isEmpty())
             throw std::runtime_error("could not draw " + source->figureName().toStdString() + " as " +
@@ -126,14 +127,20 @@ RenderReport renderProject(const RenderRequest& request) {
         for (int k = 2; usedFolders.count(folder); ++k) folder = slug(a.id) + QLatin1Char('-') + QString::number(k);
         usedFolders.insert(folder);
         const QString caption = figureCaption(a, *run);
-        for (FigureSource* f : analysisFigures(page.probe(), *run))
-            writeFigure(out, folder + QLatin1Char('/') + figureStem(f), f, a.figure, caption);
+        // Each figure is drawn once as PNG: the file and the memo share the bytes.
+        std::vector<MemoFigure> pngs = memoFigures(a, *run, page.probe());
+        const QList<FigureSource*> figures = analysisFigures(page.probe(), *run);
+        for (qsizetype i = 0; i < figures.size(); ++i) {
+            const QString stem = folder + QLatin1Char('/') + figureStem(figures[i]);
+            out.write(stem + QStringLiteral(".png"), QByteArray::fromStdString(pngs[static_cast<std::size_t>(i)].png));
+            writeFigure(out, stem, figures[i], a.figure, caption, {FigureFormat::Svg, FigureFormat::Pdf});
+        }
         for (const NamedTable& t : analysis_tables(a, *run))
             for (const TableFormat tf : kTableFormats)
                 out.write(folder + QLatin1Char('/') + QString::fromStdString(t.key) + QLatin1Char('.') +
                               QString::fromStdString(table_format_suffix(tf)),
                           tableBytes(t.table, tf));
-        const MemoOutput memo = buildMemo(doc, id, *run, page.probe());
+        const MemoOutput memo = buildMemo(doc, id, *run, std::move(pngs));
         out.write(folder + QStringLiteral("/memo.html"), QByteArray::fromStdString(memo.html));
         out.write(folder + QStringLiteral("/memo.md"), QByteArray::fromStdString(memo.markdown));
         out.write(folder + QStringLiteral("/memo.pdf"), memoPdf(memo.memo));

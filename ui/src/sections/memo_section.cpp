@@ -154,7 +154,16 @@ void MemoSection::rebuild() {
         return;
     }
     try {
-        output_ = buildMemo(*doc_, id_, *run_, probe_);
+        // Notes change the text, not the figures: redraw them only when what
+        // they show (the run or any other setting) changed.
+        Analysis shown = *doc_->analysis(id_);
+        shown.memo_notes.clear();
+        if (run_ != figuresRun_ || !(shown == figuresFor_)) {
+            figures_ = memoFigures(shown, *run_, probe_);
+            figuresRun_ = run_;
+            figuresFor_ = shown;
+        }
+        output_ = buildMemo(*doc_, id_, *run_, figures_);
     } catch (const std::exception& e) {
         output_.reset();
         loading_ = true;
@@ -206,7 +215,7 @@ QByteArray MemoSection::editedHtml() const {
     static const QRegularExpression doctype(QStringLiteral("^<!DOCTYPE[^>]*>"), QRegularExpression::CaseInsensitiveOption);
     html.replace(doctype, QStringLiteral("<!DOCTYPE html>"));
     if (output_)
-        for (const auto& [file, png] : output_->pngs)
+        for (const auto& [file, png] : output_->pngs())
             html.replace(QStringLiteral("src=\"%1\"").arg(file),
                          QStringLiteral("src=\"data:image/png;base64,%1\"").arg(QString::fromLatin1(png.toBase64())));
     return html.toUtf8();
@@ -257,7 +266,7 @@ bool MemoSection::saveMarkdown(const QString& path, QString* error) {
     }
     if (isDataFile(path, error)) return false;  // before any figure is written beside it
     const QDir dir = QFileInfo(path).absoluteDir();
-    for (const auto& [file, png] : output_->pngs)
+    for (const auto& [file, png] : output_->pngs())
         if (!write(dir.filePath(file), png, error)) return false;
     const QByteArray bytes =
         edited_ ? editor_->document()->toMarkdown().toUtf8() : QByteArray::fromStdString(output_->markdown);

@@ -78,6 +78,10 @@ private:
     bool loading_ = false;
     bool edited_ = false;
     std::optional<MemoOutput> output_;
+    // The figures drawn for the memo, and for which run and settings.
+    std::vector<MemoFigure> figures_;
+    std::shared_ptr<const AnalysisRun> figuresRun_;
+    Analysis figuresFor_;
     QPlainTextEdit* notes_;
     QTextEdit* editor_;
     QLabel* state_;
