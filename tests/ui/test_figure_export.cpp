@@ -581,8 +581,8 @@ TEST(FigureExportDialog, CopyPutsTheImageAtTheChosenSizeOnTheClipboard) {
     EXPECT_EQ(image.size(), QSize(650, 400));
 }
 
-TEST(FigureExport, ProbeSectionFiguresOfASampleProjectExport) {
-    MainWindow w;
+// The orchard-nitrogen sample open in a shown window, on its Probe section.
+void showOrchardProbe(MainWindow& w) {
     w.setInteractive(false);
     ASSERT_TRUE(w.openProject(test::sampleProject(QStringLiteral("orchard-nitrogen")))) << w.lastMessage().toStdString();
     const QString id = w.analysisPage()->analysisId();
@@ -591,6 +591,11 @@ TEST(FigureExport, ProbeSectionFiguresOfASampleProjectExport) {
     w.show();
     w.analysisPage()->showSection(AnalysisPage::Probe);
     QCoreApplication::processEvents();
+}
+
+TEST(FigureExport, ProbeSectionFiguresOfASampleProjectExport) {
+    MainWindow w;
+    ASSERT_NO_FATAL_FAILURE(showOrchardProbe(w));
     const QList<FigureSource*> figures = w.analysisPage()->currentFigures();
     if (figures.isEmpty()) GTEST_SKIP() << "the Probe section offers no figures yet";
     QTemporaryDir dir;
@@ -617,14 +622,7 @@ TEST(FigureExport, ProbeSectionFiguresOfASampleProjectExport) {
 
 TEST(FigureExport, SingleColumnFigureWrapsALongAxisTitleAndShrinksTheLegend) {
     MainWindow w;
-    w.setInteractive(false);
-    ASSERT_TRUE(w.openProject(test::sampleProject(QStringLiteral("orchard-nitrogen")))) << w.lastMessage().toStdString();
-    const QString id = w.analysisPage()->analysisId();
-    ASSERT_TRUE(test::waitUntil([&] { return w.runner()->result(id) || !w.runner()->error(id).isEmpty(); }));
-    w.resize(1400, 900);
-    w.show();
-    w.analysisPage()->showSection(AnalysisPage::Probe);
-    QCoreApplication::processEvents();
+    ASSERT_NO_FATAL_FAILURE(showOrchardProbe(w));
     FigureSource* effect = nullptr;
     for (FigureSource* f : w.analysisPage()->currentFigures())
         if (f->figureKey() == QStringLiteral("effect")) effect = f;
