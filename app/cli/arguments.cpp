@@ -3,7 +3,7 @@
 #include <charconv>
 #include <cmath>
 
-#include "moderato/error.hpp"
+#include "moderato/support/error.hpp"
 
 namespace moderato::cli {
 

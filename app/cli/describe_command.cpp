@@ -4,8 +4,8 @@
 
 #include "commands.hpp"
 #include "model_options.hpp"
-#include "moderato/error.hpp"
-#include "moderato/json_writer.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/reporting/json_writer.hpp"
 
 namespace moderato::cli {
 

@@ -2,10 +2,10 @@
 
 #include "commands.hpp"
 #include "model_options.hpp"
-#include "moderato/fit.hpp"
-#include "moderato/fit_report.hpp"
-#include "moderato/error.hpp"
-#include "moderato/json_writer.hpp"
+#include "moderato/estimation/fit.hpp"
+#include "moderato/reporting/fit_report.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/reporting/json_writer.hpp"
 
 namespace moderato::cli {
 

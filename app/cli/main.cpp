@@ -7,8 +7,8 @@
 #include <vector>
 
 #include "commands.hpp"
-#include "moderato/csv.hpp"
-#include "moderato/error.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/support/error.hpp"
 
 namespace {
 

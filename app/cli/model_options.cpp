@@ -4,8 +4,8 @@
 #include <cctype>
 #include <cstdio>
 
-#include "moderato/derive.hpp"
-#include "moderato/error.hpp"
+#include "moderato/reading/derive.hpp"
+#include "moderato/support/error.hpp"
 
 namespace moderato::cli {
 

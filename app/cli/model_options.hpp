@@ -7,10 +7,10 @@
 #include <vector>
 
 #include "arguments.hpp"
-#include "moderato/csv.hpp"
-#include "moderato/json_writer.hpp"
-#include "moderato/model.hpp"
-#include "moderato/table.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/reporting/json_writer.hpp"
+#include "moderato/estimation/model.hpp"
+#include "moderato/reading/table.hpp"
 
 namespace moderato::cli {
 

@@ -18,9 +18,9 @@
 #include "arguments.hpp"
 #include "commands.hpp"
 #include "model_options.hpp"
-#include "moderato/error.hpp"
-#include "moderato/json_writer.hpp"
-#include "moderato/power.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/reporting/json_writer.hpp"
+#include "moderato/probing/power.hpp"
 
 namespace moderato::cli {
 namespace {

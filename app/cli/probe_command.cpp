@@ -5,15 +5,16 @@
 
 #include "commands.hpp"
 #include "model_options.hpp"
-#include "moderato/cells.hpp"
-#include "moderato/cells_report.hpp"
-#include "moderato/error.hpp"
-#include "moderato/fit.hpp"
-#include "moderato/json_writer.hpp"
-#include "moderato/probe.hpp"
-#include "moderato/probe_bootstrap.hpp"
-#include "moderato/probe_report.hpp"
-#include "moderato/response_scale.hpp"
+#include "moderato/probing/cells.hpp"
+#include "moderato/reporting/cells_report.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/estimation/fit.hpp"
+#include "moderato/reporting/json_writer.hpp"
+#include "moderato/probing/probe.hpp"
+#include "moderato/probing/probe_bootstrap.hpp"
+#include "moderato/reporting/bootstrap_report.hpp"
+#include "moderato/reporting/probe_report.hpp"
+#include "moderato/probing/response_scale.hpp"
 
 namespace moderato::cli {
 

@@ -14,11 +14,11 @@
 #include <string>
 
 #include "bench_data.hpp"
-#include "moderato/design.hpp"
-#include "moderato/fit.hpp"
-#include "moderato/least_squares.hpp"
-#include "moderato/model.hpp"
-#include "moderato/table.hpp"
+#include "moderato/estimation/design.hpp"
+#include "moderato/estimation/fit.hpp"
+#include "moderato/estimation/least_squares.hpp"
+#include "moderato/estimation/model.hpp"
+#include "moderato/reading/table.hpp"
 
 namespace {
 

@@ -38,11 +38,11 @@
 #include "bench_data.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
-#include "moderato/analysis_run.hpp"
-#include "moderato/csv.hpp"
-#include "moderato/file_util.hpp"
-#include "moderato/project.hpp"
-#include "moderato/project_loader.hpp"
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/support/file_util.hpp"
+#include "moderato/project/project.hpp"
+#include "moderato/project/project_loader.hpp"
 #include "shell/main_window.hpp"
 
 namespace fs = std::filesystem;

@@ -35,13 +35,13 @@
 #include <vector>
 
 #include "bench_data.hpp"
-#include "moderato/bootstrap.hpp"
-#include "moderato/design.hpp"
-#include "moderato/distributions.hpp"
-#include "moderato/fit.hpp"
-#include "moderato/model.hpp"
-#include "moderato/probe.hpp"
-#include "moderato/table.hpp"
+#include "moderato/estimation/bootstrap.hpp"
+#include "moderato/estimation/design.hpp"
+#include "moderato/estimation/distributions.hpp"
+#include "moderato/estimation/fit.hpp"
+#include "moderato/estimation/model.hpp"
+#include "moderato/probing/probe.hpp"
+#include "moderato/reading/table.hpp"
 
 namespace {
 

@@ -34,8 +34,8 @@
 #include <vector>
 
 #include "model/project_document.hpp"
-#include "moderato/analysis_run.hpp"
-#include "moderato/project_loader.hpp"
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/project/project_loader.hpp"
 #include "plots/effect_plot.hpp"
 #include "plots/lines_plot.hpp"
 #include "probe/readout_panel.hpp"

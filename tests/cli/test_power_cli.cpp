@@ -15,7 +15,7 @@
 
 #include "cli_json.hpp"
 #include "cli_runner.hpp"
-#include "moderato/power.hpp"
+#include "moderato/probing/power.hpp"
 
 namespace {
 

@@ -29,14 +29,16 @@ inline std::filesystem::path nist_dir() {
 #endif
 }
 
+// The data are in the repository (tests/reference/nist-strd), so a missing
+// folder is a broken checkout or a wrong MODERATO_NIST_DIR: the tests fail.
 inline bool nist_available() {
     const auto d = nist_dir();
     return !d.empty() && std::filesystem::exists(d / "Longley.json");
 }
 
-inline std::string nist_skip_message() {
+inline std::string nist_missing_message() {
     return "NIST StRD reference folder not found at '" + nist_dir().string() +
-           "'; set MODERATO_NIST_DIR to the nist-strd folder to run these accuracy tests";
+           "' (it is tests/reference/nist-strd in the repository; MODERATO_NIST_DIR overrides it)";
 }
 
 struct NistCase {

@@ -4,7 +4,7 @@
 #include <string>
 #include <vector>
 
-#include "moderato/table.hpp"
+#include "moderato/reading/table.hpp"
 
 namespace moderato::test {
 

@@ -13,12 +13,12 @@
 #include <set>
 
 #include "common/table_builder.hpp"
-#include "moderato/bootstrap.hpp"
-#include "moderato/probe_bootstrap.hpp"
-#include "moderato/response_scale.hpp"
-#include "moderato/design.hpp"
-#include "moderato/error.hpp"
-#include "moderato/fit.hpp"
+#include "moderato/estimation/bootstrap.hpp"
+#include "moderato/probing/probe_bootstrap.hpp"
+#include "moderato/probing/response_scale.hpp"
+#include "moderato/estimation/design.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/estimation/fit.hpp"
 
 using namespace moderato;
 using namespace moderato::test;

@@ -15,10 +15,10 @@
 #include <random>
 
 #include "common/table_builder.hpp"
-#include "moderato/cells.hpp"
-#include "moderato/csv.hpp"
-#include "moderato/error.hpp"
-#include "moderato/fit.hpp"
+#include "moderato/probing/cells.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/estimation/fit.hpp"
 
 using namespace moderato;
 using namespace moderato::test;

@@ -10,8 +10,8 @@
 #include <string>
 #include <vector>
 
-#include "moderato/column_summary.hpp"
-#include "moderato/table.hpp"
+#include "moderato/reading/column_summary.hpp"
+#include "moderato/reading/table.hpp"
 
 using moderato::Column;
 using moderato::ColumnKind;

@@ -18,9 +18,9 @@
 #include <string>
 #include <vector>
 
-#include "moderato/csv.hpp"
-#include "moderato/error.hpp"
-#include "moderato/table.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/reading/table.hpp"
 
 namespace fs = std::filesystem;
 using moderato::Column;

@@ -7,10 +7,10 @@
 #include <string>
 #include <vector>
 
-#include "moderato/csv.hpp"
-#include "moderato/derive.hpp"
-#include "moderato/error.hpp"
-#include "moderato/table.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/reading/derive.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/reading/table.hpp"
 
 using moderato::CentreAt;
 using moderato::Column;

@@ -6,8 +6,8 @@
 #include <cmath>
 
 #include "common/table_builder.hpp"
-#include "moderato/design.hpp"
-#include "moderato/error.hpp"
+#include "moderato/estimation/design.hpp"
+#include "moderato/support/error.hpp"
 
 using namespace moderato;
 using namespace moderato::test;

@@ -19,10 +19,10 @@
 #include <set>
 
 #include "common/table_builder.hpp"
-#include "moderato/csv.hpp"
-#include "moderato/diagnostics.hpp"
-#include "moderato/error.hpp"
-#include "moderato/fit.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/estimation/diagnostics.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/estimation/fit.hpp"
 
 using namespace moderato;
 using namespace moderato::test;

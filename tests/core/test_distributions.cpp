@@ -6,7 +6,7 @@
 #include <cmath>
 #include <limits>
 
-#include "moderato/distributions.hpp"
+#include "moderato/estimation/distributions.hpp"
 
 using namespace moderato::dist;
 

@@ -6,8 +6,8 @@
 #include <random>
 
 #include "common/table_builder.hpp"
-#include "moderato/fit.hpp"
-#include "moderato/least_squares.hpp"
+#include "moderato/estimation/fit.hpp"
+#include "moderato/estimation/least_squares.hpp"
 
 using namespace moderato;
 using namespace moderato::test;

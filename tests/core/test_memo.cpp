@@ -15,11 +15,11 @@
 #include <algorithm>
 #include <sstream>
 
-#include "moderato/analysis_run.hpp"
-#include "moderato/csv.hpp"
-#include "moderato/memo.hpp"
-#include "moderato/project_loader.hpp"
-#include "moderato/report_text.hpp"
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/reporting/memo.hpp"
+#include "moderato/project/project_loader.hpp"
+#include "moderato/reporting/report_text.hpp"
 
 namespace fs = std::filesystem;
 using namespace moderato;

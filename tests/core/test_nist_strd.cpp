@@ -7,9 +7,9 @@
 #include <iostream>
 
 #include "common/nist.hpp"
-#include "moderato/csv.hpp"
-#include "moderato/fit.hpp"
-#include "moderato/least_squares.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/estimation/fit.hpp"
+#include "moderato/estimation/least_squares.hpp"
 
 using namespace moderato;
 using namespace moderato::test;
@@ -51,7 +51,7 @@ Scores score_core(const NistCase& c) {
 }  // namespace
 
 TEST(NistStrd, CoreApiMeetsCertifiedDigits) {
-    if (!nist_available()) GTEST_SKIP() << nist_skip_message();
+    ASSERT_TRUE(nist_available()) << nist_missing_message();
     std::printf("\nNIST StRD through the core API: minimum LRE (correct significant digits)\n");
     std::printf("%-9s %7s %7s %7s %7s %9s\n", "dataset", "coef", "SE", "res.SD", "R²", "required");
     for (const auto& name : nist_datasets()) {
@@ -70,7 +70,7 @@ TEST(NistStrd, CoreApiMeetsCertifiedDigits) {
 // datasets: the answer must not depend on the path, to the digits double
 // precision can carry on these problems. Source: NIST StRD certified values.
 TEST(NistStrd, BlockedDoublePathOnModerateProblems) {
-    if (!nist_available()) GTEST_SKIP() << nist_skip_message();
+    ASSERT_TRUE(nist_available()) << nist_missing_message();
     for (const std::string name : {"Norris", "NoInt1", "NoInt2", "Longley"}) {
         const NistCase c = load_nist(name);
         const Design d = build_design(read_csv(c.csv.string()), nist_spec(c));

@@ -24,8 +24,8 @@
 #include <string>
 #include <vector>
 
-#include "moderato/error.hpp"
-#include "moderato/power.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/probing/power.hpp"
 
 namespace {
 

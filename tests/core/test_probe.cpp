@@ -8,10 +8,10 @@
 #include <random>
 
 #include "common/table_builder.hpp"
-#include "moderato/distributions.hpp"
-#include "moderato/fit.hpp"
-#include "moderato/error.hpp"
-#include "moderato/probe.hpp"
+#include "moderato/estimation/distributions.hpp"
+#include "moderato/estimation/fit.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/probing/probe.hpp"
 
 using namespace moderato;
 using namespace moderato::test;

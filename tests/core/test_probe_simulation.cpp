@@ -8,8 +8,8 @@
 #include <random>
 
 #include "common/table_builder.hpp"
-#include "moderato/fit.hpp"
-#include "moderato/probe.hpp"
+#include "moderato/estimation/fit.hpp"
+#include "moderato/probing/probe.hpp"
 
 using namespace moderato;
 using namespace moderato::test;

@@ -26,12 +26,12 @@
 #include <vector>
 
 #include "common/table_builder.hpp"
-#include "moderato/analysis_run.hpp"
-#include "moderato/error.hpp"
-#include "moderato/file_util.hpp"
-#include "moderato/fit.hpp"
-#include "moderato/project.hpp"
-#include "moderato/project_loader.hpp"
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/support/file_util.hpp"
+#include "moderato/estimation/fit.hpp"
+#include "moderato/project/project.hpp"
+#include "moderato/project/project_loader.hpp"
 
 namespace fs = std::filesystem;
 using namespace moderato;

@@ -9,8 +9,8 @@
 #include <set>
 
 #include "common/table_builder.hpp"
-#include "moderato/surface_view.hpp"
-#include "moderato/error.hpp"
+#include "moderato/probing/surface_view.hpp"
+#include "moderato/support/error.hpp"
 
 using namespace moderato;
 using namespace moderato::test;

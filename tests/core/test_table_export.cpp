@@ -20,8 +20,8 @@
 #include <string>
 #include <vector>
 
-#include "moderato/error.hpp"
-#include "moderato/table_export.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/reporting/table_export.hpp"
 
 using namespace moderato;
 namespace fs = std::filesystem;

@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Reference values for Moderato's power planning (core/src/power.cpp).
+"""Reference values for Moderato's power planning (core/src/probing/power.cpp).
 
 Usage:
     /usr/bin/python3 tests/reference/make_power_reference.py [--out FILE]

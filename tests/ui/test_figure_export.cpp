@@ -36,7 +36,7 @@
 #include "export/figure_exporter.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
-#include "moderato/project_loader.hpp"
+#include "moderato/project/project_loader.hpp"
 #include "plots/figure_source.hpp"
 #include "plots/plot_style.hpp"
 #include "shell/analysis_page.hpp"

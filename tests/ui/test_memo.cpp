@@ -31,14 +31,14 @@
 #include "export/figure_exporter.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
-#include "moderato/table_export.hpp"
+#include "moderato/reporting/table_export.hpp"
 #include "plots/figure_source.hpp"
-#include "render/analysis_outputs.hpp"
+#include "outputs/analysis_outputs.hpp"
 #include "sections/memo_section.hpp"
 #include "plots/lines_plot.hpp"
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
-#include "shell/figure_caption.hpp"
+#include "common/figure_caption.hpp"
 #include "shell/main_window.hpp"
 #include "ui_test_util.hpp"
 
@@ -151,7 +151,7 @@ TEST_P(MemoMatchesRender, SavedMemoTablesAndFiguresAreTheRenderedBytes) {
     const auto run = s.w.runner()->result(s.id);
     ASSERT_TRUE(run);
     const QString caption = figureCaption(s.analysis(), *run);
-    const QList<FigureSource*> figures = analysisFigures(s.probe(), *run);
+    const QList<FigureSource*> figures = s.probe()->reportFigures(*run);
     ASSERT_FALSE(figures.isEmpty());
     for (FigureSource* f : figures)
         for (const FigureFormat fmt : {FigureFormat::Png, FigureFormat::Svg, FigureFormat::Pdf}) {

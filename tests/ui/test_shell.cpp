@@ -4,8 +4,8 @@
 
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
-#include "moderato/analysis_run.hpp"
-#include "moderato/project_loader.hpp"
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/project/project_loader.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
 #include "ui_test_util.hpp"

@@ -7,7 +7,7 @@
 #include <iostream>
 
 #include "../commands.hpp"
-#include "moderato/error.hpp"
+#include "moderato/support/error.hpp"
 #include "render/project_renderer.hpp"
 #include "shell/app_style.hpp"
 

@@ -16,8 +16,8 @@
 #include <memory>
 #include <vector>
 
-#include "moderato/column_summary.hpp"
-#include "moderato/table.hpp"
+#include "moderato/reading/column_summary.hpp"
+#include "moderato/reading/table.hpp"
 
 class QLabel;
 class QListWidget;

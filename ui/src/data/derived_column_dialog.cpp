@@ -12,9 +12,9 @@
 #include <cmath>
 
 #include "data/table_model.hpp"
-#include "moderato/analysis_run.hpp"
-#include "moderato/derive.hpp"
-#include "moderato/error.hpp"
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/reading/derive.hpp"
+#include "moderato/support/error.hpp"
 #include "style/estuary.hpp"
 #include "style/palette_text.hpp"
 

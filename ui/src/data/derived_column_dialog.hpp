@@ -10,8 +10,8 @@
 #include <set>
 #include <string>
 
-#include "moderato/project.hpp"
-#include "moderato/table.hpp"
+#include "moderato/project/project.hpp"
+#include "moderato/reading/table.hpp"
 
 class QComboBox;
 class QDialogButtonBox;

@@ -27,7 +27,7 @@
 
 #include "data/csv_head.hpp"
 #include "data/table_model.hpp"
-#include "moderato/error.hpp"
+#include "moderato/support/error.hpp"
 #include "style/estuary.hpp"
 #include "style/palette_text.hpp"
 

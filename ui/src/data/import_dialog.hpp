@@ -14,8 +14,8 @@
 #include <memory>
 #include <string>
 
-#include "moderato/csv.hpp"
-#include "moderato/table.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/reading/table.hpp"
 
 class QCheckBox;
 class QComboBox;

@@ -8,7 +8,7 @@
 #include <set>
 #include <string>
 
-#include "moderato/table.hpp"
+#include "moderato/reading/table.hpp"
 
 namespace moderato::ui {
 

@@ -7,7 +7,7 @@
 #include <cmath>
 #include <limits>
 
-#include "estimates/number_format.hpp"
+#include "common/number_format.hpp"
 #include "style/palette_text.hpp"
 
 namespace moderato::ui {

@@ -9,7 +9,7 @@
 #include <QStyledItemDelegate>
 #include <vector>
 
-#include "moderato/fit.hpp"
+#include "moderato/estimation/fit.hpp"
 
 namespace moderato::ui {
 

@@ -9,7 +9,7 @@
 #include <QList>
 
 #include "export/figure_exporter.hpp"
-#include "moderato/project.hpp"
+#include "moderato/project/project.hpp"
 
 class QCheckBox;
 class QComboBox;

@@ -11,7 +11,7 @@
 #include <QString>
 #include <optional>
 
-#include "moderato/project.hpp"
+#include "moderato/project/project.hpp"
 
 class QCustomPlot;
 

@@ -7,7 +7,7 @@
 #include <QtConcurrent/QtConcurrentRun>
 
 #include "model/project_document.hpp"
-#include "moderato/error.hpp"
+#include "moderato/support/error.hpp"
 
 namespace moderato::ui {
 

@@ -10,7 +10,7 @@
 #include <map>
 #include <memory>
 
-#include "moderato/analysis_run.hpp"
+#include "moderato/project/analysis_run.hpp"
 
 namespace moderato::ui {
 

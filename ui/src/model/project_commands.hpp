@@ -4,7 +4,7 @@
 
 #include <QUndoCommand>
 
-#include "moderato/project.hpp"
+#include "moderato/project/project.hpp"
 
 namespace moderato::ui {
 

@@ -4,9 +4,9 @@
 #include <set>
 
 #include "model/project_commands.hpp"
-#include "moderato/analysis_run.hpp"
-#include "moderato/error.hpp"
-#include "moderato/file_util.hpp"
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/support/file_util.hpp"
 
 namespace moderato::ui {
 

@@ -11,9 +11,9 @@
 #include <map>
 #include <memory>
 
-#include "moderato/project.hpp"
-#include "moderato/project_loader.hpp"
-#include "moderato/table.hpp"
+#include "moderato/project/project.hpp"
+#include "moderato/project/project_loader.hpp"
+#include "moderato/reading/table.hpp"
 
 namespace moderato::ui {
 

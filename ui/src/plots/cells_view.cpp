@@ -13,10 +13,10 @@
 #include <cmath>
 #include <qcustomplot.h>
 
-#include "plots/number_text.hpp"
+#include "common/number_text.hpp"
 #include "plots/plot_style.hpp"
-#include "shell/figure_caption.hpp"
-#include "shell/table_clipboard.hpp"
+#include "common/figure_caption.hpp"
+#include "common/table_clipboard.hpp"
 #include "style/estuary.hpp"
 
 namespace moderato::ui {

@@ -8,7 +8,7 @@
 #include <QWidget>
 #include <optional>
 
-#include "moderato/analysis_run.hpp"
+#include "moderato/project/analysis_run.hpp"
 #include "plots/figure_source.hpp"
 
 class QCustomPlot;

@@ -11,7 +11,7 @@
 #include <memory>
 #include <vector>
 
-#include "moderato/diagnostics.hpp"
+#include "moderato/estimation/diagnostics.hpp"
 #include "plots/figure_source.hpp"
 
 class QCustomPlot;

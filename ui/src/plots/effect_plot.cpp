@@ -8,7 +8,7 @@
 
 #include "plots/plot_style.hpp"
 #include "plots/probe_plot_util.hpp"
-#include "probe/number_format.hpp"
+#include "common/probe_number_format.hpp"
 #include "style/estuary.hpp"
 
 namespace moderato::ui {

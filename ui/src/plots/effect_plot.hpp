@@ -15,8 +15,8 @@
 #include <utility>
 #include <vector>
 
-#include "moderato/probe.hpp"
-#include "moderato/probe_curves.hpp"
+#include "moderato/probing/probe.hpp"
+#include "moderato/probing/probe_curves.hpp"
 #include "plots/figure_source.hpp"
 
 class QCustomPlot;

@@ -15,7 +15,7 @@
 #include <utility>
 #include <vector>
 
-#include "moderato/probe_curves.hpp"
+#include "moderato/probing/probe_curves.hpp"
 #include "plots/figure_source.hpp"
 
 class QCustomPlot;

@@ -9,7 +9,7 @@
 #include <QString>
 #include <vector>
 
-#include "moderato/probe_curves.hpp"
+#include "moderato/probing/probe_curves.hpp"
 
 class QCustomPlot;
 class QCPGraph;

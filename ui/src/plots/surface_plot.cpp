@@ -3,7 +3,7 @@
 #include <QVBoxLayout>
 #include <qcustomplot.h>
 
-#include "moderato/error.hpp"
+#include "moderato/support/error.hpp"
 #include "plots/plot_style.hpp"
 #include "plots/scatter_thinning.hpp"
 #include "style/estuary.hpp"

@@ -4,7 +4,7 @@
 #include <QStringList>
 #include <algorithm>
 
-#include "probe/number_format.hpp"
+#include "common/probe_number_format.hpp"
 
 namespace moderato::ui {
 

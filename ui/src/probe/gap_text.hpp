@@ -8,7 +8,7 @@
 #include <utility>
 #include <vector>
 
-#include "moderato/probe.hpp"
+#include "moderato/probing/probe.hpp"
 
 namespace moderato::ui {
 

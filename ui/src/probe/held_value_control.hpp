@@ -10,8 +10,8 @@
 #include <QWidget>
 #include <limits>
 
-#include "moderato/design.hpp"
-#include "moderato/project.hpp"
+#include "moderato/estimation/design.hpp"
+#include "moderato/project/project.hpp"
 
 class QComboBox;
 class QDoubleSpinBox;
@@ -51,14 +51,5 @@ private:
     double mean_value_ = 0, sd_ = 0;
     bool updating_ = false;
 };
-
-// How the held value is described: "32.5 (mean + 1 SD)", "30.1 (mean)",
-// "'EU'", "'APAC' (reference level)", "1", "0.43 (mean)". `value` NaN: the
-// default (mean, or reference level).
-QString heldValueLabel(double value, double mean, double sd, const QStringList& levels = {}, bool zeroOne = false);
-
-// "slope_pct held at 32.5 (mean + 1 SD)" for an analysis with a second
-// moderator (its held value described from the fitted design); empty without one.
-QString heldValueText(const Analysis& analysis, const Design& design);
 
 }  // namespace moderato::ui

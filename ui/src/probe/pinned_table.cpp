@@ -14,8 +14,8 @@
 #include <QVBoxLayout>
 #include <set>
 
-#include "probe/number_format.hpp"
-#include "shell/table_clipboard.hpp"
+#include "common/probe_number_format.hpp"
+#include "common/table_clipboard.hpp"
 #include "style/palette_text.hpp"
 
 namespace moderato::ui {

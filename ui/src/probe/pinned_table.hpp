@@ -9,7 +9,7 @@
 #include <QWidget>
 #include <vector>
 
-#include "moderato/probe.hpp"
+#include "moderato/probing/probe.hpp"
 
 class QLabel;
 class QTableView;

@@ -10,9 +10,9 @@
 #include <utility>
 #include <vector>
 
-#include "moderato/analysis_run.hpp"
-#include "moderato/probe_curves.hpp"
-#include "moderato/response_scale.hpp"
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/probing/probe_curves.hpp"
+#include "moderato/probing/response_scale.hpp"
 
 namespace moderato::ui {
 

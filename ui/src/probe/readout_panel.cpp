@@ -5,7 +5,7 @@
 #include <QPainterPath>
 #include <algorithm>
 
-#include "probe/number_format.hpp"
+#include "common/probe_number_format.hpp"
 #include "style/estuary.hpp"
 
 namespace moderato::ui {

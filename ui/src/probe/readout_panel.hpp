@@ -11,7 +11,7 @@
 #include <optional>
 #include <utility>
 
-#include "moderato/probe.hpp"
+#include "moderato/probing/probe.hpp"
 
 namespace moderato::ui {
 

@@ -9,15 +9,15 @@
 #include "export/figure_exporter.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
-#include "moderato/error.hpp"
-#include "moderato/file_util.hpp"
-#include "moderato/project_loader.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/support/file_util.hpp"
+#include "moderato/project/project_loader.hpp"
 #include "plots/figure_source.hpp"
-#include "render/analysis_outputs.hpp"
+#include "outputs/analysis_outputs.hpp"
 #include "sections/checks_section.hpp"
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
-#include "shell/figure_caption.hpp"
+#include "common/figure_caption.hpp"
 
 namespace moderato::ui {
 namespace {
@@ -65,7 +65,7 @@ void writeFigure(Writer& out, const QString& stem, FigureSource* source, const F
 
 // The plot a kept figure names, if this run draws it.
 FigureSource* keptFigure(AnalysisPage& page, const AnalysisRun& run, const std::string& plot) {
-    QList<FigureSource*> all = analysisFigures(page.probe(), run);
+    QList<FigureSource*> all = page.probe()->reportFigures(run);
     const bool checks = plot == "residuals" || plot == "qq" || plot == "influence";
     if (checks) {
         page.checks()->ensureComputed();
@@ -128,8 +128,8 @@ RenderReport renderProject(const RenderRequest& request) {
         usedFolders.insert(folder);
         const QString caption = figureCaption(a, *run);
         // Each figure is drawn once as PNG: the file and the memo share the bytes.
-        std::vector<MemoFigure> pngs = memoFigures(a, *run, page.probe());
-        const QList<FigureSource*> figures = analysisFigures(page.probe(), *run);
+        const QList<FigureSource*> figures = page.probe()->reportFigures(*run);
+        std::vector<MemoFigure> pngs = memoFigures(a, *run, figures);
         for (qsizetype i = 0; i < figures.size(); ++i) {
             const QString stem = folder + QLatin1Char('/') + figureStem(figures[i]);
             out.write(stem + QStringLiteral(".png"), QByteArray::fromStdString(pngs[static_cast<std::size_t>(i)].png));

@@ -8,7 +8,7 @@
 #include <QWidget>
 #include <memory>
 
-#include "moderato/analysis_run.hpp"
+#include "moderato/project/analysis_run.hpp"
 #include "plots/figure_source.hpp"
 
 namespace moderato::ui {

@@ -13,7 +13,7 @@
 
 #include "model/project_document.hpp"
 #include "plots/diagnostic_plots.hpp"
-#include "plots/number_text.hpp"
+#include "common/number_text.hpp"
 #include "sections/flagged_rows_model.hpp"
 
 namespace moderato::ui {

@@ -9,7 +9,7 @@
 #include <memory>
 #include <vector>
 
-#include "moderato/diagnostics.hpp"
+#include "moderato/estimation/diagnostics.hpp"
 #include "sections/analysis_section.hpp"
 
 class QLabel;

@@ -16,9 +16,9 @@
 #include <cmath>
 
 #include "estimates/coefficient_model.hpp"
-#include "estimates/number_format.hpp"
+#include "common/number_format.hpp"
 #include "model/project_document.hpp"
-#include "shell/table_clipboard.hpp"
+#include "common/table_clipboard.hpp"
 #include "specify/model_equation.hpp"
 #include "specify/role_edit.hpp"
 #include "specify/section_widgets.hpp"

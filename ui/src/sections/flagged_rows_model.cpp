@@ -1,6 +1,6 @@
 #include "sections/flagged_rows_model.hpp"
 
-#include "plots/number_text.hpp"
+#include "common/number_text.hpp"
 
 namespace moderato::ui {
 

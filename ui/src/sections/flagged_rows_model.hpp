@@ -6,8 +6,8 @@
 #include <QAbstractTableModel>
 #include <memory>
 
-#include "moderato/diagnostics.hpp"
-#include "moderato/table.hpp"
+#include "moderato/estimation/diagnostics.hpp"
+#include "moderato/reading/table.hpp"
 
 namespace moderato::ui {
 

@@ -22,8 +22,8 @@
 
 #include "export/pdf_stamp.hpp"
 #include "model/project_document.hpp"
-#include "moderato/error.hpp"
-#include "moderato/file_util.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/support/file_util.hpp"
 #include "sections/probe_section.hpp"
 
 namespace moderato::ui {
@@ -159,7 +159,7 @@ void MemoSection::rebuild() {
         Analysis shown = *doc_->analysis(id_);
         shown.memo_notes.clear();
         if (run_ != figuresRun_ || !(shown == figuresFor_)) {
-            figures_ = memoFigures(shown, *run_, probe_);
+            figures_ = memoFigures(shown, *run_, probe_->reportFigures(*run_));
             figuresRun_ = run_;
             figuresFor_ = shown;
         }

@@ -11,7 +11,7 @@
 #include <memory>
 #include <optional>
 
-#include "render/analysis_outputs.hpp"
+#include "outputs/analysis_outputs.hpp"
 #include "sections/analysis_section.hpp"
 
 class QComboBox;

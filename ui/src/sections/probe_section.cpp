@@ -22,12 +22,13 @@
 #include "plots/lines_plot.hpp"
 #include "plots/surface_plot.hpp"
 #include "probe/gap_text.hpp"
+#include "common/held_value_text.hpp"
 #include "probe/held_value_control.hpp"
 #include "probe/moderator_slider.hpp"
-#include "probe/number_format.hpp"
+#include "common/probe_number_format.hpp"
 #include "probe/pinned_table.hpp"
 #include "probe/readout_panel.hpp"
-#include "shell/figure_caption.hpp"
+#include "common/figure_caption.hpp"
 #include "style/palette_text.hpp"
 
 namespace moderato::ui {
@@ -236,6 +237,14 @@ QList<FigureSource*> ProbeSection::figures() {
     if (pages_->currentIndex() != ProbePage) return {};
     if (surfaceToggle_->isChecked()) return {surface_, effect_};
     return {lines_, effect_};
+}
+
+QList<FigureSource*> ProbeSection::reportFigures(const AnalysisRun& run) const {
+    if (run.kind == ProbeKind::Cells) return run.cells ? QList<FigureSource*>{cells_} : QList<FigureSource*>{};
+    if (!run.probe) return {};
+    QList<FigureSource*> out{lines_, effect_};
+    if (run.surface) out << surface_;
+    return out;
 }
 
 EffectPoint ProbeSection::currentEffect() const { return readout_->point(); }

@@ -43,6 +43,10 @@ public:
     explicit ProbeSection(ProjectDocument* doc, QWidget* parent = nullptr);
     void showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun> run, const QString& error) override;
     QList<FigureSource*> figures() override;
+    // The figures a memo and a headless render show for `run`: the Lines and
+    // Effect plots (and the Surface plot of a continuous × continuous
+    // analysis), or the Cells plot.
+    QList<FigureSource*> reportFigures(const AnalysisRun& run) const;
 
     // Parts, for tests and the figure exporter.
     LinesPlot* linesPlot() const { return lines_; }

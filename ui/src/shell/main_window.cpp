@@ -30,15 +30,15 @@
 #include "export/figure_export_dialog.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
-#include "moderato/error.hpp"
-#include "moderato/file_util.hpp"
-#include "moderato/project_loader.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/support/file_util.hpp"
+#include "moderato/project/project_loader.hpp"
 #include "sections/checks_section.hpp"
 #include "sections/memo_section.hpp"
 #include "shell/analysis_page.hpp"
-#include "shell/figure_caption.hpp"
+#include "common/figure_caption.hpp"
 #include "shell/project_sidebar.hpp"
-#include "shell/table_clipboard.hpp"
+#include "common/table_clipboard.hpp"
 
 // The resources live in a static library: register them once (outside any namespace).
 static void initResources() { Q_INIT_RESOURCE(moderato); }

@@ -7,7 +7,7 @@
 #include <QStringList>
 #include <string>
 
-#include "moderato/csv.hpp"
+#include "moderato/reading/csv.hpp"
 
 class QStackedWidget;
 class QMenu;

@@ -7,8 +7,8 @@
 #include <memory>
 #include <vector>
 
-#include "moderato/project.hpp"
-#include "moderato/table.hpp"
+#include "moderato/project/project.hpp"
+#include "moderato/reading/table.hpp"
 #include "specify/role_edit.hpp"
 
 namespace moderato::ui {

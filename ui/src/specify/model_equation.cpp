@@ -4,8 +4,8 @@
 #include <algorithm>
 #include <set>
 
-#include "estimates/number_format.hpp"
-#include "moderato/design.hpp"
+#include "common/number_format.hpp"
+#include "moderato/estimation/design.hpp"
 #include "specify/role_edit.hpp"
 
 namespace moderato::ui {

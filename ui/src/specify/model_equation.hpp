@@ -10,9 +10,9 @@
 #include <string>
 #include <vector>
 
-#include "moderato/analysis_run.hpp"
-#include "moderato/project.hpp"
-#include "moderato/table.hpp"
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/project/project.hpp"
+#include "moderato/reading/table.hpp"
 
 namespace moderato::ui {
 

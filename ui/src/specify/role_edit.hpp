@@ -12,8 +12,8 @@
 #include <string>
 #include <vector>
 
-#include "moderato/project.hpp"
-#include "moderato/table.hpp"
+#include "moderato/project/project.hpp"
+#include "moderato/reading/table.hpp"
 
 namespace moderato::ui {
 

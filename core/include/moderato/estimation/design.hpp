@@ -1,0 +1,103 @@
+// From a table and a specification to the numbers a fit needs: the design
+// matrix (one column per coefficient), outcome, weights and cluster ids, after
+// listwise deletion; with the bookkeeping that explains what was done.
+#pragma once
+
+#include <Eigen/Dense>
+#include <cstddef>
+#include <map>
+#include <string>
+#include <vector>
+
+#include "moderato/estimation/model.hpp"
+#include "moderato/reading/table.hpp"
+
+namespace moderato {
+
+// One factor of a design column: a numeric column raised to a power, or the
+// 0/1 indicator of one level of a categorical column.
+struct Atom {
+    std::string column;
+    std::string level;   // empty for a numeric column
+    int power = 1;
+    bool operator==(const Atom&) const = default;
+};
+
+struct DesignColumn {
+    std::string label;          // "intercept", "x", "x^2", "region=North", "x×z"
+    std::vector<Atom> atoms;    // empty for the intercept
+    int term = 0;               // index into Design::terms
+};
+
+struct DesignTerm {
+    std::string label;          // the term before dummy expansion, e.g. "region×x"
+    std::vector<std::pair<std::string, int>> factors;  // column, power
+    int degree = 0;             // sum of powers (0: intercept)
+    bool added = false;         // added as a lower-order term of a product
+    std::vector<int> columns;   // design columns of this term
+};
+
+struct Exclusion {
+    std::string column;
+    std::size_t rows = 0;       // used-model rows missing this column
+};
+
+struct CategoricalInfo {
+    std::string column;
+    std::vector<std::string> levels;  // sorted; levels[0] or the chosen one is the reference
+    std::string reference;
+};
+
+struct NumericSummary {
+    double mean = 0, sd = 0, min = 0, max = 0;
+};
+
+struct Design {
+    Eigen::MatrixXd X;          // n x p
+    Eigen::VectorXd y;          // n
+    Eigen::VectorXd weights;    // n, or empty
+    std::vector<int> cluster;   // n cluster codes 0..G-1, or empty
+    int n_clusters = 0;
+    std::vector<std::string> cluster_names;  // G
+    bool intercept = true;
+    std::vector<DesignColumn> columns;
+    std::vector<DesignTerm> terms;
+    std::vector<CategoricalInfo> categoricals;
+    std::vector<std::size_t> rows;   // table row of each used observation
+    std::size_t n_excluded = 0;
+    std::vector<Exclusion> exclusions;
+    std::vector<std::string> notes;
+    std::string outcome;
+    // Numeric columns of the model's terms over the used rows.
+    std::map<std::string, NumericSummary> summaries;
+
+    std::size_t n() const { return static_cast<std::size_t>(X.rows()); }
+    std::size_t p() const { return static_cast<std::size_t>(X.cols()); }
+    // Index of the design column with this label, or -1.
+    int column_index(const std::string& label) const;
+    // The p-th percentile (0..100; linear interpolation between order
+    // statistics) of a numeric column over the used rows; NaN if absent.
+    double percentile(const std::string& column, double p) const;
+    // The design column holding a numeric column's main effect, or -1.
+    int main_column(const std::string& column) const;
+    // Whether a numeric model column takes only the values 0 and 1 here.
+    bool is_binary(const std::string& column) const;
+    // Index of `level` among a categorical column's levels (reference = 0), or -1.
+    int level_index(const std::string& column, const std::string& level) const;
+    const CategoricalInfo* categorical(const std::string& column) const;
+    // Design columns of product terms (two or more distinct columns; powers of
+    // one column are not products).
+    std::vector<int> product_columns() const;
+};
+
+// Throws InputError for: unknown columns, non-numeric outcome, logistic
+// outcome not 0/1, a categorical column raised to a power, constant
+// predictors (with an intercept), weights <= 0 or non-numeric, a single
+// cluster, no complete rows, and n <= p.
+Design build_design(const Table& table, const ModelSpec& spec);
+
+// Sorted levels of a categorical column as the model uses them (numeric-looking
+// levels sort by value, others as text).
+std::vector<std::string> sorted_levels(const Column& column);
+
+}  // namespace moderato

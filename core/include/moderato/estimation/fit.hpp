@@ -1,0 +1,115 @@
+// Fitting a specified model: OLS/WLS by pivoted Householder QR, logistic
+// regression by Newton/IRLS; covariance of the chosen kind; fit statistics;
+// the nested comparison without the product terms; Wald tests; VIF.
+#pragma once
+
+#include <Eigen/Dense>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "moderato/estimation/design.hpp"
+#include "moderato/estimation/model.hpp"
+#include "moderato/reading/table.hpp"
+
+namespace moderato {
+
+struct Coefficient {
+    std::string term;
+    double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
+    bool aliased = false;       // estimate and the rest are NaN when aliased
+    double vif = 0;             // NaN where it does not apply (intercept, no-intercept model, aliased)
+};
+
+struct WaldTest {
+    std::vector<std::string> terms;
+    double statistic = 0;       // F form (chi-square / q for logistic models)
+    double df1 = 0, df2 = 0;    // df2 = inf: chi-square(df1) reference
+    double chi_square = 0;      // q * statistic
+    double p_value = 0;
+    std::string covariance;     // the covariance kind used
+};
+
+// The model with and without all product terms, fitted on the same rows.
+struct NestedComparison {
+    std::vector<std::string> dropped_terms;
+    // linear: R-squared change F test (classical)
+    double r_squared_reduced = 0, r_squared_change = 0;
+    double f_statistic = 0, df1 = 0, df2 = 0, p_value = 0;
+    // logistic: likelihood-ratio test
+    double lr_statistic = 0, lr_p_value = 0;
+    // Wald test of the same terms with the chosen covariance
+    WaldTest wald;
+};
+
+struct FitResult {
+    Family family = Family::Linear;
+    SeKind se = SeKind::Classical;
+    double level = 0.95;
+    std::size_t n = 0, n_excluded = 0;
+    std::vector<Exclusion> exclusions;
+    std::vector<Coefficient> coefficients;
+    Eigen::VectorXd beta;          // p; NaN for aliased
+    Eigen::MatrixXd covariance;    // p x p; NaN rows/columns for aliased
+    std::vector<std::string> aliased;
+    int rank = 0;
+    double df_residual = 0;
+    double df_inference = 0;       // t df for intervals (n - rank, G - 1 for cluster; inf for logistic)
+    double critical_value = 0;     // t or z quantile for the CIs
+    int n_clusters = 0;
+
+    // linear
+    double r_squared = 0, adj_r_squared = 0, residual_sd = 0, rss = 0, tss = 0;
+    // overall test of all non-intercept terms: F (linear, chosen covariance) or LR chi-square (logistic)
+    double f_statistic = 0, f_df1 = 0, f_df2 = 0, f_p_value = 0;
+    double log_likelihood = 0, aic = 0, bic = 0;
+    // logistic
+    double deviance = 0, null_deviance = 0, mcfadden_r2 = 0;
+    double lr_statistic = 0, lr_df = 0, lr_p_value = 0;
+    int iterations = 0;
+    bool converged = true;
+    bool separation = false;       // (quasi-)complete separation detected
+
+    std::optional<NestedComparison> comparison;
+    std::vector<WaldTest> wald_tests;
+    std::vector<std::string> notes;
+    std::vector<std::string> warnings;
+    bool extended_precision = false;
+
+    Eigen::VectorXd fitted;        // linear predictor scale (probabilities for logistic)
+    Eigen::VectorXd residuals;     // y - fitted (response residuals)
+
+    // Model terms before dummy expansion ("x×region") and their columns.
+    std::vector<std::pair<std::string, std::vector<int>>> terms;
+
+    int index_of(const std::string& term) const;  // -1 if absent
+};
+
+struct FitOptions {
+    bool compare_without_products = true;
+    int max_iterations = 100;      // logistic
+    // Problems with n * (p + 1)^2 up to this are solved in long double
+    // (see least_squares.hpp); 0 forces the blocked double-precision path.
+    double extended_budget = 2e7;
+};
+
+// One estimated number with its standard error, tested against zero with
+// the fit's reference distribution (t with df_inference, or z) and given a
+// confidence interval at the fit's level.
+struct Inference {
+    double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
+};
+Inference infer(double estimate, double std_error, const FitResult& fit);
+
+// Builds the design and fits it. Throws InputError for bad specifications.
+FitResult fit_model(const Table& table, const ModelSpec& spec, const FitOptions& options = {});
+// Fits a design already built.
+FitResult fit_design(const Design& design, const ModelSpec& spec, const FitOptions& options = {});
+
+// Joint Wald test that the named coefficients are all zero, with the fit's
+// covariance. A name is a coefficient label or a term label (all of a
+// categorical term's columns), with the factors of a product in any order.
+// InputError for an unknown or aliased term.
+WaldTest wald_test(const FitResult& fit, const std::vector<std::string>& terms);
+
+}  // namespace moderato

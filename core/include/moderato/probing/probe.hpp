@@ -1,0 +1,161 @@
+// Probing a fitted model: the conditional effect of the focal predictor as a
+// function of the moderator, pick-a-point tables, Johnson–Neyman regions, the
+// simultaneous band, and the crossover point of the simple regression lines
+// with its Fieller interval.
+#pragma once
+
+#include <Eigen/Dense>
+#include <limits>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "moderato/estimation/design.hpp"
+#include "moderato/estimation/fit.hpp"
+
+namespace moderato {
+
+struct Region {
+    double lo = -std::numeric_limits<double>::infinity();
+    double hi = std::numeric_limits<double>::infinity();
+};
+
+struct EffectPoint {
+    double moderator_value = 0;
+    std::string level;          // categorical moderator: the level (moderator_value is its index)
+    double effect = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
+    bool beyond_data = false;   // moderator value outside the observed range
+};
+
+// The conditional effect of `focal` is a polynomial in the moderator value m:
+// effect(m) = sum_k m^k g_k' b, with g_k fixed vectors over the coefficients.
+// Its variance is g(m)' V g(m) for the fit's covariance V.
+class EffectFunction {
+public:
+    EffectFunction() = default;
+    EffectFunction(std::vector<Eigen::VectorXd> g, const Eigen::VectorXd& beta, const Eigen::MatrixXd& cov);
+
+    int degree() const { return static_cast<int>(g_.size()) - 1; }
+    // The g_k vectors: they depend on the held values only, not on the data,
+    // so a refit (e.g. a bootstrap replicate) reuses them with its own b and V.
+    const std::vector<Eigen::VectorXd>& basis() const { return g_; }
+    Eigen::VectorXd gradient(double m) const;     // g(m)
+    double effect(double m) const;
+    double variance(double m) const;
+    // Coefficients of effect(m) = sum a_k m^k and of var(m) = sum v_kl m^(k+l).
+    const std::vector<double>& effect_coefficients() const { return a_; }
+    const Eigen::MatrixXd& variance_coefficients() const { return v_; }
+
+private:
+    std::vector<Eigen::VectorXd> g_;
+    std::vector<double> a_;
+    Eigen::MatrixXd v_;
+};
+
+// Where an effect differs from zero at a critical value q: the set of m with
+// effect(m)^2 > q^2 var(m).
+struct SignificanceRegions {
+    double critical_value = 0;
+    std::vector<double> boundaries;           // sorted
+    std::vector<Region> significant;          // disjoint, sorted; +-inf for unbounded
+    std::string kind;                         // "two boundaries, significant outside", ...
+};
+
+// Exact for effects linear in m (roots of a quadratic, every case); for
+// higher degrees, the real roots of the polynomial effect^2 - q^2 var (from
+// its companion matrix) polished by a bracketing root finder.
+SignificanceRegions significance_regions(const EffectFunction& f, double critical_value);
+
+struct ProbeSpec {
+    std::string focal;
+    std::string moderator;
+    std::string second_moderator;             // empty: none
+    double second_value = std::numeric_limits<double>::quiet_NaN();  // NaN: its mean
+    double focal_value = std::numeric_limits<double>::quiet_NaN();   // for a squared focal: NaN = its mean
+    std::vector<double> at;                   // moderator values; empty: defaults
+};
+
+struct Crossover {
+    double focal_value = std::numeric_limits<double>::quiet_NaN();
+    double ci_lower = std::numeric_limits<double>::quiet_NaN(), ci_upper = std::numeric_limits<double>::quiet_NaN();
+    // "bounded" [lo, hi]; "unbounded" (-inf, lo] U [hi, inf); "whole line"; "none" (parallel lines)
+    std::string ci_kind = "none";
+    bool within_observed_range = false;
+    std::string form;                         // "disordinal" (crossing inside the data) or "ordinal"
+    std::string groups;                       // which lines: "g=0 vs g=1", "z at 1.2 vs 3.4"
+    // Where the two groups' predictions differ (the Johnson–Neyman technique
+    // applied to the group gap over the focal predictor).
+    SignificanceRegions gap_regions;
+    EffectFunction gap;                       // the group gap over the focal predictor
+};
+
+// Predicted outcome (link scale) over a grid of two numeric predictors, the
+// others held at `values`; for the Surface plot.
+struct SurfaceGrid {
+    std::string x, z;
+    std::vector<double> x_values, z_values;
+    Eigen::MatrixXd predicted;                // z_values.size() x x_values.size()
+    Eigen::MatrixXd std_error;
+};
+SurfaceGrid surface_grid(const Design& design, const FitResult& fit, const std::string& x, const std::string& z,
+                         int nx = 41, int nz = 41, const std::map<std::string, double>& values = {});
+
+// An interaction effect on the probability scale (see response_scale.hpp).
+struct InteractionEffect {
+    std::string kind;   // "cross-partial derivative", "difference in slopes", "double difference"
+    double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
+};
+
+struct ProbeResult {
+    std::string outcome, focal, moderator;
+    std::string scale = "link";                             // "link" or "response" (probability)
+    std::string averaging;                                  // response scale: "sample" or "values"
+    std::optional<InteractionEffect> interaction_effect;    // response scale
+    bool categorical_moderator = false;
+    double level = 0.95, df = 0, critical_t = 0;
+    std::pair<double, double> observed_range{0, 0};        // moderator, used rows
+    std::pair<double, double> focal_range{0, 0};
+    double moderator_mean = 0, moderator_sd = 0;
+    std::vector<EffectPoint> effects;
+    std::optional<SignificanceRegions> johnson_neyman;      // continuous moderator only
+    std::vector<bool> jn_beyond_data;                       // per boundary
+    std::optional<SignificanceRegions> simultaneous;
+    std::vector<Crossover> crossovers;
+    std::vector<std::string> notes;
+    std::vector<std::string> cautions;                      // what a reader must not overlook
+    EffectFunction effect_function;                         // for plots and the slider
+};
+
+// InputError for: a focal column not in any product term, a moderator not in
+// the model, a categorical focal predictor, unknown columns.
+ProbeResult probe(const Design& design, const FitResult& fit, const ProbeSpec& spec);
+
+// Rewrites the result's cautions for what it now holds (scale, ranges,
+// band); call after changing a result.
+void refresh_cautions(ProbeResult& result, const FitResult& fit);
+
+EffectPoint effect_point(double moderator_value, const Inference& inference);
+
+// The effect function of `focal` in a fitted design with the moderator free
+// and every other column held at `values` (column -> value; categorical
+// columns -> level index; absent numeric columns at their means).
+EffectFunction effect_function(const Design& design, const FitResult& fit, const std::string& focal,
+                               const std::string& moderator, const std::map<std::string, double>& values);
+
+// The design row x(values) with prediction x' b: every column evaluated at
+// `values` (numeric columns: value; categorical columns: level index,
+// reference = 0; absent columns count as 0).
+Eigen::VectorXd design_row(const Design& design, const std::map<std::string, double>& values);
+
+// `values` with every numeric model column at its mean over the used rows and
+// every categorical one at its reference level, then `overrides` applied.
+std::map<std::string, double> typical_values(const Design& design, const std::map<std::string, double>& overrides = {});
+
+// The difference in predicted outcome between two values of `column` (for a
+// categorical column, level indices; reference = 0) as a function of the
+// numeric column `free`, others held at `values`. For two groups this is the
+// group gap; it is zero at the crossover of their lines.
+EffectFunction contrast_function(const Design& design, const FitResult& fit, const std::string& column, double from,
+                                 double to, const std::string& free, std::map<std::string, double> values);
+
+}  // namespace moderato

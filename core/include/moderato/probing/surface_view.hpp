@@ -1,0 +1,38 @@
+// What the Surface plot needs beside the grid itself: where the data are in
+// the plane of two numeric columns (the convex hull of the observed pairs,
+// so the parts of the rectangular grid beyond the data can be marked), and
+// the grid on the probability scale for a logistic fit.
+#pragma once
+
+#include <Eigen/Dense>
+#include <string>
+#include <vector>
+
+#include "moderato/estimation/design.hpp"
+#include "moderato/probing/probe.hpp"
+
+namespace moderato {
+
+struct DataRegion {
+    // Hull vertices in counter-clockwise order, not repeated at the end;
+    // fewer than three when the points are collinear (a segment or a point).
+    std::vector<double> x, z;
+    // Whether (x, z) lies inside or on the hull (within a relative tolerance
+    // of the hull's size).
+    bool contains(double x, double z) const;
+};
+
+// Convex hull of the pairs (x[i], z[i]), NaN pairs left out (Andrew's
+// monotone chain).
+DataRegion convex_hull(const std::vector<double>& x, const std::vector<double>& z);
+
+// The hull of two numeric model columns over the rows the model used (the
+// design's main-effect columns). InputError when a column has no main-effect
+// column in the design.
+DataRegion data_region(const Design& design, const std::string& x, const std::string& z);
+
+// The grid's predictions (log-odds of a logistic fit) as probabilities:
+// expit of each entry; same shape as grid.predicted.
+Eigen::MatrixXd surface_probabilities(const SurfaceGrid& grid);
+
+}  // namespace moderato

@@ -1,0 +1,77 @@
+// Delimited-text import (RFC 4180): quoted fields with embedded delimiters,
+// newlines and doubled quotes; LF or CRLF; UTF-8 BOM; delimiter sniffing;
+// missing tokens; decimal comma; numeric vs categorical inference with
+// per-column override. Parses with std::from_chars, in chunks, on all cores.
+#pragma once
+
+#include <atomic>
+#include <cstddef>
+#include <functional>
+#include <map>
+#include <string>
+#include <vector>
+
+#include "moderato/support/error.hpp"
+#include "moderato/reading/table.hpp"
+
+namespace moderato {
+
+// Conventions beyond RFC 4180 (common practice):
+// - blank lines (empty, or a lone CR) are skipped wherever they are;
+// - a '"' opens a quoted field only as the first byte of a field; elsewhere in
+//   an unquoted field it is literal text; spaces may follow a closing quote,
+//   any other text there is an error;
+// - spaces and tabs (unless the delimiter) around a cell are trimmed before
+//   missing-token matching and number parsing; categorical level text is the
+//   trimmed cell for unquoted cells and the exact content for quoted ones;
+// - a number is what std::from_chars reads in full, optionally after one '+',
+//   and finite ("inf" and "nan" are text unless listed as missing tokens);
+//   with decimal_comma the one decimal separator is ',' and '.' makes text;
+// - levels of a categorical column are coded in order of first appearance;
+//   a column whose first text comes after numbers were already stored for it
+//   is read once more from the start, so its levels keep the original text.
+// Messages name the file as given (path or `name`); Table::row_lines is
+// filled for files and for text alike.
+struct CsvOptions {
+    char delimiter = 0;                 // 0: sniff among ',', ';', '\t'
+    bool header = true;                 // first record holds the column names
+    // Cells equal to one of these (after trimming spaces) are missing.
+    std::vector<std::string> missing_tokens{"", "NA", "NaN", "."};
+    bool decimal_comma = false;         // "3,14" means 3.14 (',' cannot be the delimiter)
+    std::map<std::string, ColumnKind> column_kinds;  // per-column override
+    unsigned threads = 0;               // 0: all hardware threads
+};
+
+struct CsvProgress {
+    // Called now and then with bytes done and total; return false to cancel.
+    std::function<bool(std::size_t done, std::size_t total)> callback;
+};
+
+// Reads a file. Throws InputError with the file name and the line (and
+// column, where it applies) for: a missing/unreadable file, an empty file, a
+// header without data rows, invalid UTF-8, an unterminated quote, a row with
+// the wrong number of fields, empty or duplicate column names, and a forced
+// numeric column holding text. Throws Cancelled when the callback says stop.
+Table read_csv(const std::string& path, const CsvOptions& options = {},
+               const CsvProgress& progress = {});
+
+// Same, from text held in memory (`name` is used in messages).
+Table read_csv_text(const std::string& text, const std::string& name,
+                    const CsvOptions& options = {});
+
+namespace detail {
+// Internal knobs, public only so tests can exercise block and piece
+// boundaries with tiny sizes. The result never depends on them.
+struct CsvTuning {
+    std::size_t block_size = std::size_t{16} << 20;  // bytes read per block
+    std::size_t min_piece = std::size_t{1} << 16;    // smallest piece per thread
+};
+Table read_csv_tuned(const std::string& path, const CsvOptions& options,
+                     const CsvProgress& progress, const CsvTuning& tuning);
+Table read_csv_text_tuned(const std::string& text, const std::string& name,
+                          const CsvOptions& options, const CsvProgress& progress,
+                          const CsvTuning& tuning);
+}  // namespace detail
+
+
+}  // namespace moderato

@@ -1,0 +1,36 @@
+// The tables of an analysis, ready for export and for the memo: estimates,
+// fit statistics, the comparison with the model without the product terms,
+// the pick-a-point table of conditional effects, and for two categorical
+// predictors the cell table and its contrasts. Display text follows
+// report_text.hpp; the CSV column holds the exact doubles.
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/reporting/table_export.hpp"
+
+namespace moderato {
+
+struct NamedTable {
+    std::string key;     // file stem: "estimates", "fit-statistics", "model-comparison",
+                         // "conditional-effects", "cell-table", "cell-contrasts"
+    ExportTable table;
+};
+
+// "classical", "HC3", "cluster-robust (shop, 40 clusters)", "model-based"
+// (logistic classical); `clusters` names the cluster column (may be empty).
+std::string se_description(const FitResult& fit, const std::string& clusters = {});
+
+// "t" for linear models, "z" for logistic ones.
+std::string statistic_name(const FitResult& fit);
+
+// How a moderator value reads in a table or sentence: "12.5 (mean − 1 SD)",
+// "12.5 (mean)", or just the value.
+std::string moderator_value_label(const ProbeResult& probe, const EffectPoint& point);
+
+// Every table the run holds, in memo order.
+std::vector<NamedTable> analysis_tables(const Analysis& analysis, const AnalysisRun& run);
+
+}  // namespace moderato

@@ -1,0 +1,20 @@
+// A fit as JSON (the CLI contract of ARCHITECTURE.md, 17 significant digits)
+// and as a readable text table.
+#pragma once
+
+#include <string>
+
+#include "moderato/estimation/fit.hpp"
+#include "moderato/reporting/json_writer.hpp"
+
+namespace moderato {
+
+// Writes the fit's fields into an object that the caller has opened.
+void write_fit_fields(JsonWriter& w, const FitResult& fit);
+std::string fit_to_json(const FitResult& fit);
+std::string fit_to_text(const FitResult& fit, const std::string& outcome);
+
+// "0.0123", "< 0.0001"
+std::string format_p(double p);
+
+}  // namespace moderato

@@ -1,0 +1,83 @@
+// The memo of an analysis: the model in mathematical notation, the tables,
+// plain-language sentences generated from the numbers (region of
+// significance with the observed range, crossover point, model comparison,
+// effects at chosen moderator values), the figures, the cautions a reader
+// must not overlook, and a reproducibility footer (data checksum, software
+// version, every option). Written as one self-contained HTML file (figures
+// embedded, nothing fetched from elsewhere) or as Markdown with the figures
+// beside it. Every user-supplied string (column, analysis and file names,
+// levels, notes) is escaped for the format. No dates or clocks: the same
+// inputs give the same bytes.
+#pragma once
+
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/reporting/analysis_tables.hpp"
+#include "moderato/project/project.hpp"
+
+namespace moderato {
+
+struct MemoFigure {
+    std::string title;          // "Lines plot"
+    std::string file;           // PNG file name beside a Markdown memo, e.g. "lines-plot.png"
+    std::string png;            // the PNG bytes (embedded in the HTML memo)
+    double width_in = 6.5;      // printed size
+    double height_in = 4.0;
+};
+
+// What the memo needs beyond the analysis and its run.
+struct MemoContext {
+    std::string caption;        // model, SE kind, level, n (as under the figures)
+    std::string project_file;   // the project file's name
+    std::string data_file;      // the data file's path as the project records it
+    std::string data_sha256;    // SHA-256 of the data bytes the results come from
+    std::string recorded_sha256;  // the SHA-256 the project recorded ("" unknown)
+    std::string software = "Moderato " MODERATO_VERSION;
+};
+
+struct Memo {
+    std::string title;
+    std::string subtitle;                      // the caption
+    std::string notes;                         // the analyst's own notes (plain text)
+    std::vector<std::string> findings;         // plain-language sentences
+    std::string equation_text;                 // "weekly_spend = b₀ + b₁·discount_pct + …"
+    std::string equation_html;                 // the same with <i>/<sub> markup (escaped names)
+    std::string equation_latex;                // for the Markdown memo ($$ … $$)
+    std::string fitted_text;                   // the equation with the estimates
+    std::vector<NamedTable> tables;
+    std::vector<MemoFigure> figures;
+    std::vector<std::string> cautions;
+    std::vector<std::pair<std::string, std::string>> footer;  // label, value
+};
+
+// The sentences alone (also used by the workbench's Memo section).
+std::vector<std::string> memo_findings(const Analysis& analysis, const AnalysisRun& run);
+
+// The cautions: the run's own, then those of the usual list that apply and
+// were not said yet (association, beyond the data, multiple testing, sample
+// size, log-odds vs probability).
+std::vector<std::string> memo_cautions(const Analysis& analysis, const AnalysisRun& run);
+
+// Every saved option of the analysis, its dataset's import options and
+// derived columns, as "roles.outcome" = "weekly_spend" rows (from the project JSON).
+std::vector<std::pair<std::string, std::string>> analysis_options(const Project& project, const Analysis& analysis);
+
+Memo build_memo(const Project& project, const Analysis& analysis, const AnalysisRun& run, const MemoContext& context,
+                std::vector<MemoFigure> figures = {});
+
+// One self-contained HTML document (UTF-8): styles inline in the head,
+// figures as data: URIs, no scripts, no links to other files or sites.
+// With embed_figures false the images name their files instead, with a
+// width in pixels at 96 per inch, and the styles are the subset Qt's
+// rich-text engine reads (for the workbench's editor and printing to PDF).
+std::string memo_to_html(const Memo& memo, bool embed_figures = true);
+// Markdown (GitHub flavour, with a $$ math block); figures by file name.
+std::string memo_to_markdown(const Memo& memo);
+
+// RFC 4648 base64.
+std::string base64_encode(const std::string& bytes);
+
+}  // namespace moderato

@@ -1,0 +1,15 @@
+// A probe as JSON (the CLI contract of ARCHITECTURE.md) and as readable text.
+#pragma once
+
+#include <string>
+
+#include "moderato/reporting/json_writer.hpp"
+#include "moderato/probing/probe.hpp"
+
+namespace moderato {
+
+// Writes the probe's fields into an object the caller has opened.
+void write_probe_fields(JsonWriter& w, const ProbeResult& probe);
+std::string probe_to_text(const ProbeResult& probe, const FitResult& fit);
+
+}  // namespace moderato

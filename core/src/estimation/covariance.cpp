@@ -1,0 +1,81 @@
+#include "estimation/covariance.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include "support/parallel.hpp"
+
+namespace moderato::detail {
+
+namespace {
+constexpr Eigen::Index kBlockRows = 8192;
+
+// Rows r0..r1 of X restricted to the kept columns, times A: the rows A' x_i.
+Eigen::MatrixXd projected_rows(const Eigen::MatrixXd& X, const std::vector<int>& kept, const Eigen::MatrixXd& A,
+                               Eigen::Index r0, Eigen::Index r1) {
+    const Eigen::Index k = static_cast<Eigen::Index>(kept.size());
+    Eigen::MatrixXd Xb(r1 - r0, k);
+    for (Eigen::Index c = 0; c < k; ++c) Xb.col(c) = X.col(kept[static_cast<std::size_t>(c)]).segment(r0, r1 - r0);
+    return Xb * A;
+}
+}  // namespace
+
+Eigen::MatrixXd sandwich(const Eigen::MatrixXd& X, const std::vector<int>& kept, const Eigen::MatrixXd& A,
+                         const Eigen::VectorXd& score, const Eigen::VectorXd& leverage_weight, SeKind kind,
+                         const std::vector<int>& cluster, int n_clusters, unsigned threads) {
+    const Eigen::Index n = X.rows();
+    const Eigen::Index k = static_cast<Eigen::Index>(kept.size());
+    const std::size_t blocks = static_cast<std::size_t>((n + kBlockRows - 1) / kBlockRows);
+    const double nd = static_cast<double>(n), kd = static_cast<double>(k);
+    Eigen::MatrixXd meat = Eigen::MatrixXd::Zero(k, k);
+    double factor = 1.0;
+
+    if (kind == SeKind::Cluster) {
+        Eigen::MatrixXd U = Eigen::MatrixXd::Zero(n_clusters, k);  // per-cluster score sums
+        map_reduce_ordered<Eigen::MatrixXd>(
+            blocks, threads,
+            [&](std::size_t b) {
+                const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlockRows, r1 = std::min(n, r0 + kBlockRows);
+                Eigen::MatrixXd W = projected_rows(X, kept, A, r0, r1);
+                for (Eigen::Index i = 0; i < W.rows(); ++i) W.row(i) *= score[r0 + i];
+                return W;
+            },
+            [&](std::size_t b, Eigen::MatrixXd&& W) {
+                const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlockRows;
+                for (Eigen::Index i = 0; i < W.rows(); ++i) U.row(cluster[static_cast<std::size_t>(r0 + i)]) += W.row(i);
+            });
+        meat.selfadjointView<Eigen::Lower>().rankUpdate(U.transpose());
+        const double G = n_clusters;
+        factor = G / (G - 1.0) * (nd - 1.0) / (nd - kd);
+    } else {
+        map_reduce_ordered<Eigen::MatrixXd>(
+            blocks, threads,
+            [&](std::size_t b) {
+                const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlockRows, r1 = std::min(n, r0 + kBlockRows);
+                Eigen::MatrixXd W = projected_rows(X, kept, A, r0, r1);
+                for (Eigen::Index i = 0; i < W.rows(); ++i) {
+                    const double r = score[r0 + i];
+                    double omega = r * r;
+                    if (kind == SeKind::HC2 || kind == SeKind::HC3 || kind == SeKind::HC4) {
+                        const double h =
+                            W.row(i).squaredNorm() * (leverage_weight.size() ? leverage_weight[r0 + i] : 1.0);
+                        const double one_minus_h = 1.0 - h;
+                        if (kind == SeKind::HC2) omega /= one_minus_h;
+                        else if (kind == SeKind::HC3) omega /= one_minus_h * one_minus_h;
+                        else omega /= std::pow(one_minus_h, std::min(4.0, nd * h / kd));
+                    }
+                    W.row(i) *= std::sqrt(omega);
+                }
+                Eigen::MatrixXd M = Eigen::MatrixXd::Zero(k, k);
+                M.selfadjointView<Eigen::Lower>().rankUpdate(W.transpose());
+                return M;
+            },
+            [&](std::size_t, Eigen::MatrixXd&& M) { meat += M; });
+        if (kind == SeKind::HC1) factor = nd / (nd - kd);
+    }
+    const Eigen::MatrixXd full = meat.selfadjointView<Eigen::Lower>();
+    Eigen::MatrixXd cov = A * full * A.transpose() * factor;
+    return (cov + cov.transpose()) * 0.5;
+}
+
+}  // namespace moderato::detail

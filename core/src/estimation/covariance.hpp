@@ -1,0 +1,20 @@
+// Sandwich covariance estimators on a factored design (private to core).
+#pragma once
+
+#include <Eigen/Dense>
+#include <vector>
+
+#include "moderato/estimation/model.hpp"
+
+namespace moderato::detail {
+
+// Covariance of the kept coefficients for a robust kind (HC0..HC4, Cluster):
+//   A * [ sum_i omega_i (A' x_i)(A' x_i)' ] * A' * factor,
+// where (X_K' W X_K)^{-1} = A A', the score of row i is score[i] * x_i, and the
+// leverage of row i is leverage_weight[i] * |A' x_i|^2 (empty: 1).
+// Cluster sums the scores within clusters first (CR1 factor).
+Eigen::MatrixXd sandwich(const Eigen::MatrixXd& X, const std::vector<int>& kept, const Eigen::MatrixXd& A,
+                         const Eigen::VectorXd& score, const Eigen::VectorXd& leverage_weight, SeKind kind,
+                         const std::vector<int>& cluster, int n_clusters, unsigned threads);
+
+}  // namespace moderato::detail

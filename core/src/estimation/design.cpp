@@ -1,0 +1,549 @@
+#include "moderato/estimation/design.hpp"
+
+#include <algorithm>
+#include <charconv>
+#include <cmath>
+#include <limits>
+#include <map>
+#include <set>
+
+#include "moderato/support/error.hpp"
+#include "support/text_util.hpp"
+
+namespace moderato {
+
+using detail::fmt_num;
+using detail::join;
+using detail::quoted;
+
+int Design::column_index(const std::string& label) const {
+    for (std::size_t j = 0; j < columns.size(); ++j)
+        if (columns[j].label == label) return static_cast<int>(j);
+    return -1;
+}
+
+int Design::main_column(const std::string& column) const {
+    for (std::size_t k = 0; k < columns.size(); ++k)
+        if (columns[k].atoms.size() == 1 && columns[k].atoms[0] == Atom{column, "", 1}) return static_cast<int>(k);
+    return -1;
+}
+
+bool Design::is_binary(const std::string& column) const {
+    const int j = main_column(column);
+    return j >= 0 && ((X.col(j).array() == 0.0) || (X.col(j).array() == 1.0)).all();
+}
+
+double Design::percentile(const std::string& column, double p) const {
+    const int j = main_column(column);
+    if (j < 0 || X.rows() == 0) return std::numeric_limits<double>::quiet_NaN();
+    std::vector<double> sorted(X.col(j).data(), X.col(j).data() + X.rows());
+    std::sort(sorted.begin(), sorted.end());
+    const double pos = std::clamp(p, 0.0, 100.0) / 100.0 * static_cast<double>(sorted.size() - 1);
+    const auto lo = static_cast<std::size_t>(std::floor(pos));
+    const std::size_t hi = std::min(lo + 1, sorted.size() - 1);
+    return sorted[lo] + (pos - static_cast<double>(lo)) * (sorted[hi] - sorted[lo]);
+}
+
+const CategoricalInfo* Design::categorical(const std::string& column) const {
+    for (const auto& c : categoricals)
+        if (c.column == column) return &c;
+    return nullptr;
+}
+
+int Design::level_index(const std::string& column, const std::string& level) const {
+    const CategoricalInfo* c = categorical(column);
+    if (!c) return -1;
+    for (std::size_t i = 0; i < c->levels.size(); ++i)
+        if (c->levels[i] == level) return static_cast<int>(i);
+    return -1;
+}
+
+std::vector<int> Design::product_columns() const {
+    std::vector<int> out;
+    for (std::size_t j = 0; j < columns.size(); ++j)
+        if (terms[static_cast<std::size_t>(columns[j].term)].factors.size() >= 2) out.push_back(static_cast<int>(j));
+    return out;
+}
+
+namespace {
+
+bool parse_number(const std::string& s, double& out) {
+    const char* b = s.data();
+    const char* e = s.data() + s.size();
+    auto [ptr, ec] = std::from_chars(b, e, out);
+    return ec == std::errc() && ptr == e && std::isfinite(out);
+}
+
+std::string factor_label(const std::string& column, int power) {
+    return power == 1 ? column : column + "^" + std::to_string(power);
+}
+
+std::string term_label(const std::vector<std::pair<std::string, int>>& factors) {
+    std::vector<std::string> parts;
+    for (const auto& [c, k] : factors) parts.push_back(factor_label(c, k));
+    return join(parts, "×");
+}
+
+// Canonical key of a term: its factors sorted by column.
+std::vector<std::pair<std::string, int>> term_key(std::vector<std::pair<std::string, int>> f) {
+    std::sort(f.begin(), f.end());
+    return f;
+}
+
+struct TermBuilder {
+    std::vector<DesignTerm> terms;
+    std::map<std::vector<std::pair<std::string, int>>, std::size_t> index;
+    int order = 0;
+    std::vector<int> first_seen;
+
+    void add(const std::vector<std::pair<std::string, int>>& factors, bool added) {
+        auto key = term_key(factors);
+        auto it = index.find(key);
+        if (it != index.end()) {
+            if (!added) terms[it->second].added = false;
+            return;
+        }
+        DesignTerm t;
+        t.factors = factors;
+        t.label = term_label(factors);
+        for (const auto& f : factors) t.degree += f.second;
+        t.added = added;
+        index.emplace(std::move(key), terms.size());
+        terms.push_back(std::move(t));
+    }
+};
+
+// All lower-order sub-terms of a term (exponent vectors below the full one),
+// by degree, then in the order the factors were given.
+std::vector<std::vector<std::pair<std::string, int>>> sub_terms(
+    const std::vector<std::pair<std::string, int>>& factors) {
+    std::vector<std::vector<std::pair<std::string, int>>> out;
+    std::vector<int> e(factors.size(), 0);
+    while (true) {
+        std::size_t i = 0;
+        while (i < e.size() && e[i] == factors[i].second) e[i++] = 0;
+        if (i == e.size()) break;
+        ++e[i];
+        std::vector<std::pair<std::string, int>> t;
+        bool full = true;
+        for (std::size_t k = 0; k < e.size(); ++k) {
+            if (e[k] > 0) t.emplace_back(factors[k].first, e[k]);
+            if (e[k] != factors[k].second) full = false;
+        }
+        if (!full) out.push_back(std::move(t));
+    }
+    auto degree = [](const auto& t) {
+        int d = 0;
+        for (const auto& f : t) d += f.second;
+        return d;
+    };
+    auto position = [&](const auto& t) {
+        // lexicographic by factor positions, so (x,z) precedes (x,w) precedes (z,w)
+        std::vector<std::size_t> pos;
+        for (const auto& f : t)
+            for (std::size_t k = 0; k < factors.size(); ++k)
+                if (factors[k].first == f.first) pos.push_back(k);
+        return pos;
+    };
+    std::stable_sort(out.begin(), out.end(), [&](const auto& a, const auto& b) {
+        if (degree(a) != degree(b)) return degree(a) < degree(b);
+        return position(a) < position(b);
+    });
+    return out;
+}
+
+// The column for a role, or an error that names the role.
+const Column& column_for(const Table& table, const std::string& name, const std::string& role) {
+    if (const Column* c = table.find(name)) return *c;
+    std::vector<std::string> names;
+    for (const auto& c : table.columns) names.push_back(c.name);
+    throw InputError(role + " column " + quoted(name) + " not found" +
+                     (table.source.empty() ? std::string() : " in " + table.source) + "; columns are: " +
+                     join(names, ", "));
+}
+
+// A hint when text looks like a number written with a decimal comma.
+std::string decimal_comma_hint(const std::string& text) {
+    bool digit = false, comma = false;
+    for (std::size_t i = 0; i < text.size(); ++i) {
+        const char c = text[i];
+        if (c >= '0' && c <= '9') digit = true;
+        else if (c == ',' && !comma && digit) comma = true;
+        else if (!(c == '-' && i == 0)) return {};
+    }
+    return comma && text.back() != ',' ? "; if the file writes decimals with a comma, read it with the decimal-comma option"
+                                       : std::string();
+}
+
+std::string not_numeric(const Table& table, const std::string& role, const Column& c, const std::string& advice) {
+    return role + " " + quoted(c.name) + " is not numeric: line " + std::to_string(c.first_text_line) +
+           (table.source.empty() ? "" : " of " + table.source) + " holds " + quoted(c.first_text) + "; " + advice +
+           decimal_comma_hint(c.first_text);
+}
+
+// A column read as categorical only because a few cells hold text, while
+// most of its values are numbers, is almost always a data-entry slip.
+bool mostly_numbers(const Column& c) {
+    if (c.kind != ColumnKind::Categorical || c.kind_forced || c.first_text_line == 0) return false;
+    std::size_t numeric = 0;
+    double v;
+    for (const auto& l : c.levels)
+        if (parse_number(l, v)) ++numeric;
+    return numeric * 2 > c.levels.size() && c.levels.size() > 2;
+}
+
+std::string where(const Table& table, std::size_t row) {
+    std::string s = table.row_location(row);
+    if (!table.source.empty()) s += " of " + table.source;
+    return s;
+}
+
+}  // namespace
+
+std::vector<std::string> sorted_levels(const Column& column) {
+    std::vector<std::string> levels = column.levels;
+    std::vector<double> values(levels.size());
+    bool all_numeric = !levels.empty();
+    for (std::size_t i = 0; i < levels.size() && all_numeric; ++i)
+        all_numeric = parse_number(levels[i], values[i]);
+    std::vector<std::size_t> idx(levels.size());
+    for (std::size_t i = 0; i < idx.size(); ++i) idx[i] = i;
+    if (all_numeric)
+        std::stable_sort(idx.begin(), idx.end(), [&](auto a, auto b) { return values[a] < values[b]; });
+    else
+        std::stable_sort(idx.begin(), idx.end(), [&](auto a, auto b) { return levels[a] < levels[b]; });
+    std::vector<std::string> out;
+    for (auto i : idx) out.push_back(levels[i]);
+    return out;
+}
+
+Design build_design(const Table& table, const ModelSpec& spec) {
+    if (spec.outcome.empty()) throw InputError("no outcome given; choose the column to explain");
+    if (!(spec.level > 0 && spec.level < 1))
+        throw InputError("confidence level " + fmt_num(spec.level) + " is not between 0 and 1 (e.g. 0.95)");
+    const Column& outcome = column_for(table, spec.outcome, "outcome");
+
+    // 1. Terms, with the lower-order terms of every product.
+    TermBuilder tb;
+    for (const auto& name : spec.predictors) {
+        if (name == spec.outcome)
+            throw InputError("column " + quoted(name) + " is the outcome and cannot also be a predictor");
+        column_for(table, name, "predictor");
+        tb.add({{name, 1}}, false);
+    }
+    for (const auto& [name, degree] : spec.polynomial) {
+        column_for(table, name, "polynomial");
+        if (degree < 1 || degree > 12)
+            throw InputError("polynomial degree of " + quoted(name) + " must be between 1 and 12, got " +
+                             std::to_string(degree));
+        for (int k = 1; k <= degree; ++k) tb.add({{name, k}}, false);
+    }
+    std::vector<std::string> added_notes;
+    for (const auto& inter : spec.interactions) {
+        if (inter.size() < 2 || inter.size() > 3)
+            throw InputError("an interaction needs 2 or 3 columns, got " + std::to_string(inter.size()) + " (" +
+                             join(inter, ", ") + ")" +
+                             (inter.size() == 1 ? "; a single column is a main effect: list it among the predictors"
+                                                : std::string()));
+        std::vector<std::pair<std::string, int>> factors;
+        for (const auto& name : inter) {
+            if (name == spec.outcome)
+                throw InputError("column " + quoted(name) + " is the outcome and cannot also be a predictor");
+            column_for(table, name, "interaction");
+            auto it = std::find_if(factors.begin(), factors.end(), [&](auto& f) { return f.first == name; });
+            if (it == factors.end()) factors.emplace_back(name, 1);
+            else ++it->second;
+        }
+        const std::string full = term_label(factors);
+        for (const auto& sub : sub_terms(factors)) {
+            const bool existed = tb.index.count(term_key(sub)) > 0;
+            tb.add(sub, true);
+            if (!existed) added_notes.push_back(term_label(sub) + " (of " + full + ")");
+        }
+        tb.add(factors, false);
+    }
+    std::stable_sort(tb.terms.begin(), tb.terms.end(),
+                     [](const DesignTerm& a, const DesignTerm& b) { return a.degree < b.degree; });
+
+    for (const auto& t : tb.terms)
+        for (const auto& [name, power] : t.factors)
+            if (power > 1 && table.at(name).kind == ColumnKind::Categorical)
+                throw InputError("categorical column " + quoted(name) + " cannot be raised to a power");
+
+    // 2. Which rows are complete.
+    if (outcome.kind != ColumnKind::Numeric)
+        throw InputError(not_numeric(table, "outcome", outcome, "choose a numeric column or fix that cell"));
+    for (const auto& t : tb.terms)
+        for (const auto& f : t.factors) {
+            const Column& c = table.at(f.first);
+            if (mostly_numbers(c))
+                throw InputError(not_numeric(table, "predictor", c,
+                                             "fix that cell, add " + quoted(c.first_text) +
+                                                 " to the missing-value tokens, or declare " + quoted(c.name) +
+                                                 " categorical to dummy-code it"));
+        }
+    std::vector<std::string> used{spec.outcome};
+    auto use = [&](const std::string& name) {
+        if (std::find(used.begin(), used.end(), name) == used.end()) used.push_back(name);
+    };
+    for (const auto& t : tb.terms)
+        for (const auto& f : t.factors) use(f.first);
+    const Column* weights = nullptr;
+    const Column* cluster = nullptr;
+    if (!spec.weights.empty()) {
+        weights = &column_for(table, spec.weights, "weights");
+        if (weights->kind != ColumnKind::Numeric)
+            throw InputError(not_numeric(table, "weights", *weights,
+                                         "choose a numeric weights column or fix that cell"));
+        use(spec.weights);
+    }
+    if (spec.se == SeKind::Cluster && spec.cluster.empty())
+        throw InputError("cluster-robust standard errors need a cluster column; name one with --cluster");
+    if (!spec.cluster.empty()) {
+        cluster = &column_for(table, spec.cluster, "cluster");
+        use(spec.cluster);
+    }
+
+    const std::size_t N = table.rows();
+    std::vector<const Column*> cols;
+    for (const auto& name : used) cols.push_back(&table.at(name));
+    std::vector<std::size_t> missing_per(cols.size(), 0);
+    std::vector<std::size_t> rows;
+    rows.reserve(N);
+    for (std::size_t r = 0; r < N; ++r) {
+        bool complete = true;
+        for (std::size_t c = 0; c < cols.size(); ++c)
+            if (cols[c]->is_missing(r)) {
+                ++missing_per[c];
+                complete = false;
+            }
+        if (complete) rows.push_back(r);
+    }
+    Design d;
+    d.outcome = spec.outcome;
+    d.intercept = spec.intercept;
+    d.n_excluded = N - rows.size();
+    for (std::size_t c = 0; c < cols.size(); ++c)
+        if (missing_per[c] > 0) d.exclusions.push_back({used[c], missing_per[c]});
+    if (rows.empty()) {
+        std::vector<std::string> why;
+        for (const auto& e : d.exclusions) why.push_back(e.column + ": " + std::to_string(e.rows) + " missing");
+        throw InputError("no complete rows: every row" +
+                         (table.source.empty() ? std::string() : " of " + table.source) +
+                         " misses a value of a model column" + (why.empty() ? "" : " (" + join(why, ", ") + ")"));
+    }
+    const std::size_t n = rows.size();
+
+    // 3. Categorical levels among the used rows.
+    std::map<std::string, std::pair<std::vector<std::string>, std::vector<int>>> cat_map;  // levels, code->level idx
+    for (const auto& t : tb.terms)
+        for (const auto& f : t.factors) {
+            const Column& c = table.at(f.first);
+            if (c.kind != ColumnKind::Categorical || cat_map.count(f.first)) continue;
+            std::vector<char> present(c.levels.size(), 0);
+            for (auto r : rows) present[static_cast<std::size_t>(c.codes[r])] = 1;
+            Column only = c;
+            only.levels.clear();
+            for (std::size_t i = 0; i < c.levels.size(); ++i)
+                if (present[i]) only.levels.push_back(c.levels[i]);
+            std::vector<std::string> levels = sorted_levels(only);
+            std::string ref = levels.front();
+            if (auto it = spec.reference_levels.find(f.first); it != spec.reference_levels.end()) {
+                if (std::find(levels.begin(), levels.end(), it->second) == levels.end())
+                    throw InputError("reference level " + quoted(it->second) + " not found in column " +
+                                     quoted(f.first) + "; levels are: " + join(levels, ", "));
+                ref = it->second;
+            }
+            if (levels.size() < 2)
+                throw InputError("predictor " + quoted(f.first) + " is constant (every used row holds " +
+                                 quoted(levels.front()) + "); it has no contrast to estimate");
+            // reference first, the others in sorted order
+            std::vector<std::string> ordered{ref};
+            for (const auto& l : levels)
+                if (l != ref) ordered.push_back(l);
+            std::vector<int> code_to_level(c.levels.size(), -1);
+            for (std::size_t i = 0; i < c.levels.size(); ++i) {
+                auto it = std::find(ordered.begin(), ordered.end(), c.levels[i]);
+                if (it != ordered.end()) code_to_level[i] = static_cast<int>(it - ordered.begin());
+            }
+            d.categoricals.push_back({f.first, ordered, ref});
+            cat_map[f.first] = {ordered, code_to_level};
+        }
+    for (const auto& [col, lvl] : spec.reference_levels)
+        if (!cat_map.count(col)) {
+            const Column& c = column_for(table, col, "reference-level");
+            if (c.kind != ColumnKind::Categorical)
+                throw InputError("reference level given for " + quoted(col) +
+                                 ", which is numeric; declare it categorical to dummy-code it");
+            throw InputError("reference level given for " + quoted(col) + ", which is not in the model");
+        }
+
+    // 4. Design columns: the intercept, then each term expanded over the
+    //    non-reference levels of its categorical factors.
+    if (spec.intercept) {
+        d.terms.push_back({"intercept", {}, 0, false, {0}});
+        d.columns.push_back({"intercept", {}, 0});
+    }
+    for (auto& t : tb.terms) {
+        const int ti = static_cast<int>(d.terms.size());
+        std::vector<std::vector<Atom>> combos{{}};
+        for (const auto& [name, power] : t.factors) {
+            std::vector<std::vector<Atom>> next;
+            const Column& c = table.at(name);
+            if (c.kind == ColumnKind::Numeric) {
+                for (auto& combo : combos) {
+                    combo.push_back({name, "", power});
+                    next.push_back(combo);
+                }
+            } else {
+                const auto& levels = cat_map[name].first;
+                for (const auto& combo : combos)
+                    for (std::size_t l = 1; l < levels.size(); ++l) {
+                        auto c2 = combo;
+                        c2.push_back({name, levels[l], 1});
+                        next.push_back(std::move(c2));
+                    }
+            }
+            combos = std::move(next);
+        }
+        DesignTerm term = t;
+        for (auto& combo : combos) {
+            std::vector<std::string> parts;
+            for (const auto& a : combo)
+                parts.push_back(a.level.empty() ? factor_label(a.column, a.power) : a.column + "=" + a.level);
+            term.columns.push_back(static_cast<int>(d.columns.size()));
+            d.columns.push_back({join(parts, "×"), combo, ti});
+        }
+        d.terms.push_back(std::move(term));
+    }
+    const std::size_t p = d.columns.size();
+    if (p == 0) throw InputError("the model has no terms: add predictors or keep the intercept");
+
+    // 5. Numbers.
+    d.rows = rows;
+    d.X.resize(static_cast<Eigen::Index>(n), static_cast<Eigen::Index>(p));
+    for (std::size_t j = 0; j < p; ++j) {
+        auto col = d.X.col(static_cast<Eigen::Index>(j));
+        col.setOnes();
+        for (const auto& a : d.columns[j].atoms) {
+            const Column& c = table.at(a.column);
+            if (c.kind == ColumnKind::Numeric) {
+                const double* v = c.numbers.data();
+                if (a.power == 1)
+                    for (std::size_t i = 0; i < n; ++i) col[static_cast<Eigen::Index>(i)] *= v[rows[i]];
+                else
+                    for (std::size_t i = 0; i < n; ++i)
+                        col[static_cast<Eigen::Index>(i)] *= std::pow(v[rows[i]], a.power);
+            } else {
+                const auto& [levels, code_to_level] = cat_map[a.column];
+                const int want = static_cast<int>(std::find(levels.begin(), levels.end(), a.level) - levels.begin());
+                for (std::size_t i = 0; i < n; ++i)
+                    if (code_to_level[static_cast<std::size_t>(c.codes[rows[i]])] != want)
+                        col[static_cast<Eigen::Index>(i)] = 0.0;
+            }
+        }
+    }
+    d.y.resize(static_cast<Eigen::Index>(n));
+    for (std::size_t i = 0; i < n; ++i) d.y[static_cast<Eigen::Index>(i)] = outcome.numbers[rows[i]];
+    if (spec.family == Family::Logistic)
+        for (std::size_t i = 0; i < n; ++i) {
+            const double v = d.y[static_cast<Eigen::Index>(i)];
+            if (v != 0.0 && v != 1.0)
+                throw InputError("logistic outcome " + quoted(spec.outcome) + " must be 0 or 1: " +
+                                 where(table, rows[i]) + " holds " + fmt_num(v));
+        }
+    if (weights) {
+        d.weights.resize(static_cast<Eigen::Index>(n));
+        for (std::size_t i = 0; i < n; ++i) {
+            const double w = weights->numbers[rows[i]];
+            if (!(w > 0))
+                throw InputError("weights " + quoted(spec.weights) + " must be positive: " + where(table, rows[i]) +
+                                 " holds " + fmt_num(w) + "; fix that row or choose another weights column");
+            d.weights[static_cast<Eigen::Index>(i)] = w;
+        }
+    }
+    if (cluster) {
+        std::map<std::string, int> ids;
+        std::vector<int> code_id;
+        d.cluster.resize(n);
+        if (cluster->kind == ColumnKind::Categorical) {
+            code_id.assign(cluster->levels.size(), -1);
+            for (std::size_t i = 0; i < n; ++i) {
+                auto code = static_cast<std::size_t>(cluster->codes[rows[i]]);
+                if (code_id[code] < 0) {
+                    code_id[code] = static_cast<int>(d.cluster_names.size());
+                    d.cluster_names.push_back(cluster->levels[code]);
+                }
+                d.cluster[i] = code_id[code];
+            }
+        } else {
+            std::map<double, int> num_ids;
+            for (std::size_t i = 0; i < n; ++i) {
+                const double v = cluster->numbers[rows[i]];
+                auto [it, fresh] = num_ids.emplace(v, static_cast<int>(num_ids.size()));
+                if (fresh) d.cluster_names.push_back(fmt_num(v));
+                d.cluster[i] = it->second;
+            }
+        }
+        d.n_clusters = static_cast<int>(d.cluster_names.size());
+        if (d.n_clusters < 2)
+            throw InputError("cluster column " + quoted(spec.cluster) + " has a single cluster among the " +
+                             std::to_string(n) +
+                             " used rows; cluster-robust standard errors need at least 2 clusters (30 or more to be reliable)");
+    }
+
+    // 6. Checks that make a fit meaningless.
+    if (spec.intercept)
+        for (const auto& t : d.terms) {
+            if (t.degree != 1 || t.factors.size() != 1) continue;
+            const Column& c = table.at(t.factors[0].first);
+            if (c.kind != ColumnKind::Numeric) continue;
+            auto col = d.X.col(t.columns[0]);
+            if ((col.array() == col[0]).all())
+                throw InputError("predictor " + quoted(t.factors[0].first) + " is constant (every used row holds " +
+                                 fmt_num(col[0]) +
+                                 "); it cannot be estimated alongside the intercept — drop it or use --no-intercept");
+        }
+    if (n <= p) {
+        std::vector<std::string> labels;
+        for (const auto& c : d.columns) labels.push_back(c.label);
+        throw InputError("too few rows: " + (table.source.empty() ? std::string() : table.source + " has ") +
+                         std::to_string(n) + " complete rows for " + std::to_string(p) + " coefficients (" +
+                         join(labels, ", ") + "); the model needs more rows than coefficients — add rows or drop terms");
+    }
+
+    for (const auto& t : d.terms)
+        for (const auto& f : t.factors) {
+            const Column& c = table.at(f.first);
+            if (c.kind != ColumnKind::Numeric || d.summaries.count(f.first)) continue;
+            NumericSummary s;
+            s.min = std::numeric_limits<double>::infinity();
+            s.max = -s.min;
+            long double sum = 0;
+            for (auto r : rows) {
+                const double v = c.numbers[r];
+                sum += v;
+                s.min = std::min(s.min, v);
+                s.max = std::max(s.max, v);
+            }
+            s.mean = static_cast<double>(sum / static_cast<long double>(n));
+            long double ss = 0;
+            for (auto r : rows) ss += (c.numbers[r] - s.mean) * (c.numbers[r] - s.mean);
+            s.sd = n > 1 ? std::sqrt(static_cast<double>(ss / static_cast<long double>(n - 1))) : 0.0;
+            d.summaries.emplace(f.first, s);
+        }
+
+    if (!added_notes.empty())
+        d.notes.push_back("lower-order terms added: " + join(added_notes, ", "));
+    if (d.n_excluded > 0) {
+        std::vector<std::string> why;
+        for (const auto& e : d.exclusions) why.push_back(e.column + ": " + std::to_string(e.rows) + " missing");
+        d.notes.push_back(std::to_string(d.n_excluded) + " of " + std::to_string(N) +
+                          " rows excluded for missing values (" + join(why, ", ") + ")");
+    }
+    for (const auto& ci : d.categoricals)
+        d.notes.push_back(quoted(ci.column) + " is dummy-coded with reference level " + quoted(ci.reference));
+    return d;
+}
+
+}  // namespace moderato

@@ -1,0 +1,473 @@
+#include "moderato/estimation/fit.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <numbers>
+
+#include "estimation/covariance.hpp"
+#include "estimation/logistic_math.hpp"
+#include "moderato/estimation/distributions.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/estimation/least_squares.hpp"
+#include "support/parallel.hpp"
+#include "estimation/separation.hpp"
+#include "support/text_util.hpp"
+
+namespace moderato {
+
+using detail::fmt_num;
+using detail::join;
+using detail::quoted;
+
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+constexpr double kInf = std::numeric_limits<double>::infinity();
+
+using detail::expit;
+using detail::log1pexp;
+
+double weight(const Design& d, Eigen::Index i) { return d.weights.size() ? d.weights[i] : 1.0; }
+
+// Bernoulli log-likelihood at linear predictor eta.
+double logistic_loglik(const Design& d, const Eigen::VectorXd& eta) {
+    long double ll = 0;
+    for (Eigen::Index i = 0; i < eta.size(); ++i)
+        ll -= weight(d, i) * (d.y[i] == 1.0 ? log1pexp(-eta[i]) : log1pexp(eta[i]));
+    return static_cast<double>(ll);
+}
+
+Eigen::MatrixXd columns_of(const Eigen::MatrixXd& X, const std::vector<int>& cols) {
+    Eigen::MatrixXd out(X.rows(), static_cast<Eigen::Index>(cols.size()));
+    for (std::size_t c = 0; c < cols.size(); ++c) out.col(static_cast<Eigen::Index>(c)) = X.col(cols[c]);
+    return out;
+}
+
+// Full p x p covariance from the kept block (NaN rows/columns for aliased).
+Eigen::MatrixXd expand(const Eigen::MatrixXd& Vk, const std::vector<int>& kept, Eigen::Index p) {
+    Eigen::MatrixXd V = Eigen::MatrixXd::Constant(p, p, kNaN);
+    for (std::size_t a = 0; a < kept.size(); ++a)
+        for (std::size_t b = 0; b < kept.size(); ++b)
+            V(kept[a], kept[b]) = Vk(static_cast<Eigen::Index>(a), static_cast<Eigen::Index>(b));
+    return V;
+}
+
+struct LogisticFit {
+    Eigen::VectorXd beta;
+    LeastSquaresResult factor;   // at the final estimate: (X' V X)^{-1} = A A'
+    Eigen::VectorXd mu;
+    double loglik = 0;
+    int iterations = 0;
+    bool converged = false;
+};
+
+// Newton-Raphson (IRLS) with step halving. Each step solves the weighted least
+// squares problem by QR, so X'VX is never formed.
+LogisticFit fit_logistic(const Design& d, const Eigen::MatrixXd& X, int max_iterations,
+                         const LeastSquaresOptions& lso) {
+    const Eigen::Index n = X.rows(), p = X.cols();
+    const Eigen::VectorXd zero = Eigen::VectorXd::Zero(n);
+    LogisticFit f;
+    f.beta = Eigen::VectorXd::Zero(p);
+    Eigen::VectorXd eta = Eigen::VectorXd::Zero(n);
+    // Start from the usual (y + 1/2) / 2 working values: one weighted LS step.
+    {
+        Eigen::VectorXd z(n), v(n);
+        for (Eigen::Index i = 0; i < n; ++i) {
+            const double mu = (d.y[i] + 0.5) / 2.0;
+            z[i] = std::log(mu / (1 - mu));
+            v[i] = weight(d, i) * mu * (1 - mu);
+        }
+        auto ls = least_squares(X, z, v, lso);
+        f.beta = ls.coef;
+        for (Eigen::Index j = 0; j < p; ++j)
+            if (std::isnan(f.beta[j])) f.beta[j] = 0;
+        eta = X * f.beta;
+    }
+    double ll = logistic_loglik(d, eta);
+    std::vector<int> kept;
+    for (int it = 1; it <= max_iterations; ++it) {
+        f.iterations = it;
+        Eigen::VectorXd v(n), r(n);
+        for (Eigen::Index i = 0; i < n; ++i) {
+            const double mu = expit(eta[i]);
+            v[i] = weight(d, i) * mu * (1 - mu);
+            r[i] = weight(d, i) * (d.y[i] - mu);
+        }
+        auto ls = least_squares(X, zero, v, lso);
+        if (it == 1) kept = ls.kept;
+        // Newton step on the kept columns: A A' X_K' r.
+        const Eigen::Index k = static_cast<Eigen::Index>(kept.size());
+        Eigen::VectorXd g(k);
+        for (Eigen::Index c = 0; c < k; ++c) g[c] = X.col(kept[static_cast<std::size_t>(c)]).dot(r);
+        if (ls.kept != kept) break;  // rank changed while iterating: separation territory
+        const Eigen::VectorXd stepK = ls.inverse_factor * (ls.inverse_factor.transpose() * g);
+        Eigen::VectorXd step = Eigen::VectorXd::Zero(p);
+        for (Eigen::Index c = 0; c < k; ++c) step[kept[static_cast<std::size_t>(c)]] = stepK[c];
+
+        double t = 1.0;
+        Eigen::VectorXd beta_new, eta_new;
+        double ll_new = -kInf;
+        for (int halving = 0; halving < 30; ++halving, t *= 0.5) {
+            beta_new = f.beta + t * step;
+            eta_new = X * beta_new;
+            ll_new = logistic_loglik(d, eta_new);
+            if (ll_new >= ll - 1e-12 * (1 + std::abs(ll))) break;
+        }
+        bool small = true;
+        for (Eigen::Index j = 0; j < p; ++j)
+            if (std::abs(t * step[j]) > 1e-10 * (1 + std::abs(f.beta[j]))) small = false;
+        f.beta = beta_new;
+        eta = eta_new;
+        ll = ll_new;
+        if (small) {
+            f.converged = true;
+            break;
+        }
+    }
+    f.mu.resize(n);
+    Eigen::VectorXd v(n);
+    for (Eigen::Index i = 0; i < n; ++i) {
+        f.mu[i] = expit(eta[i]);
+        v[i] = weight(d, i) * f.mu[i] * (1 - f.mu[i]);
+    }
+    // The covariance factor at the final estimate decides which columns are
+    // estimable (under separation the weights can collapse the rank).
+    f.factor = least_squares(X, zero, v, lso);
+    for (Eigen::Index j = 0; j < p; ++j)
+        if (!std::binary_search(f.factor.kept.begin(), f.factor.kept.end(), static_cast<int>(j))) f.beta[j] = kNaN;
+    f.loglik = ll;
+    return f;
+}
+
+// VIF_j = [(X'WX)^{-1}]_jj * sum_i w_i (x_ij - mean_w(x_j))^2 for models with an intercept.
+std::vector<double> variance_inflation(const Design& d, const std::vector<int>& kept, const Eigen::MatrixXd& A) {
+    std::vector<double> vif(d.p(), kNaN);
+    if (!d.intercept || !std::binary_search(kept.begin(), kept.end(), 0)) return vif;
+    const Eigen::Index n = d.X.rows();
+    double sw = 0;
+    for (Eigen::Index i = 0; i < n; ++i) sw += weight(d, i);
+    for (std::size_t a = 0; a < kept.size(); ++a) {
+        const int j = kept[a];
+        if (j == 0) continue;
+        long double mean = 0, ss = 0;
+        for (Eigen::Index i = 0; i < n; ++i) mean += weight(d, i) * d.X(i, j);
+        mean /= sw;
+        for (Eigen::Index i = 0; i < n; ++i) {
+            const long double c = d.X(i, j) - mean;
+            ss += weight(d, i) * c * c;
+        }
+        vif[static_cast<std::size_t>(j)] = A.row(static_cast<Eigen::Index>(a)).squaredNorm() * static_cast<double>(ss);
+    }
+    return vif;
+}
+
+WaldTest wald_on_columns(const FitResult& fit, const std::vector<int>& cols, std::vector<std::string> labels) {
+    WaldTest w;
+    w.terms = std::move(labels);
+    w.covariance = to_string(fit.se);
+    const Eigen::Index q = static_cast<Eigen::Index>(cols.size());
+    Eigen::VectorXd b(q);
+    Eigen::MatrixXd V(q, q);
+    for (Eigen::Index a = 0; a < q; ++a) {
+        b[a] = fit.beta[cols[static_cast<std::size_t>(a)]];
+        for (Eigen::Index c = 0; c < q; ++c)
+            V(a, c) = fit.covariance(cols[static_cast<std::size_t>(a)], cols[static_cast<std::size_t>(c)]);
+    }
+    Eigen::LDLT<Eigen::MatrixXd> ldlt(V);
+    double chi2 = kNaN;
+    if (ldlt.info() == Eigen::Success && ldlt.isPositive() && (ldlt.vectorD().array() > 0).all())
+        chi2 = b.dot(ldlt.solve(b));
+    w.chi_square = chi2;
+    w.df1 = static_cast<double>(q);
+    w.df2 = fit.df_inference;
+    w.statistic = chi2 / w.df1;
+    w.p_value = std::isinf(w.df2) ? dist::upper_p_chi2(chi2, w.df1) : dist::upper_p_f(w.statistic, w.df1, w.df2);
+    return w;
+}
+
+}  // namespace
+
+Inference infer(double estimate, double std_error, const FitResult& fit) {
+    Inference r;
+    r.estimate = estimate;
+    r.std_error = std_error;
+    r.statistic = estimate / std_error;
+    r.p_value = std::isnan(r.statistic) ? kNaN : dist::two_sided_p_t(r.statistic, fit.df_inference);
+    r.ci_lower = estimate - fit.critical_value * std_error;
+    r.ci_upper = estimate + fit.critical_value * std_error;
+    return r;
+}
+
+int FitResult::index_of(const std::string& term) const {
+    for (std::size_t j = 0; j < coefficients.size(); ++j)
+        if (coefficients[j].term == term) return static_cast<int>(j);
+    return -1;
+}
+
+namespace {
+// "z×x" and "x×z" name the same product.
+std::string canonical(const std::string& label) {
+    std::vector<std::string> parts;
+    const std::string sep = "×";
+    std::size_t start = 0;
+    while (true) {
+        const auto at = label.find(sep, start);
+        parts.push_back(label.substr(start, at == std::string::npos ? std::string::npos : at - start));
+        if (at == std::string::npos) break;
+        start = at + sep.size();
+    }
+    std::sort(parts.begin(), parts.end());
+    return join(parts, sep);
+}
+}  // namespace
+
+WaldTest wald_test(const FitResult& fit, const std::vector<std::string>& terms) {
+    if (terms.empty()) throw InputError("a Wald test needs at least one term");
+    std::vector<int> cols;
+    auto add = [&](int j, const std::string& name) {
+        if (fit.coefficients[static_cast<std::size_t>(j)].aliased)
+            throw InputError("term " + quoted(name) + " is aliased (not estimable) and cannot be tested");
+        if (std::find(cols.begin(), cols.end(), j) == cols.end()) cols.push_back(j);
+    };
+    for (const auto& t : terms) {
+        const std::string key = canonical(t);
+        bool found = false;
+        for (std::size_t j = 0; j < fit.coefficients.size() && !found; ++j)
+            if (canonical(fit.coefficients[j].term) == key) {
+                add(static_cast<int>(j), t);
+                found = true;
+            }
+        for (const auto& [label, columns] : fit.terms)
+            if (!found && canonical(label) == key) {
+                for (int j : columns) add(j, t);
+                found = true;
+            }
+        if (!found) {
+            std::vector<std::string> names;
+            for (const auto& c : fit.coefficients) names.push_back(c.term);
+            throw InputError("term " + quoted(t) + " is not in the model; terms are: " + join(names, ", "));
+        }
+    }
+    return wald_on_columns(fit, cols, terms);
+}
+
+FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& options) {
+    const Eigen::Index n = d.X.rows(), p = d.X.cols();
+    const unsigned threads = detail::resolve_threads(spec.threads);
+    const bool logistic = spec.family == Family::Logistic;
+    if (logistic && (spec.se == SeKind::HC2 || spec.se == SeKind::HC3 || spec.se == SeKind::HC4))
+        throw InputError(std::string(to_string(spec.se)) +
+                         " is not offered for logistic models; use classical (model-based), hc0 or hc1 (sandwich), "
+                         "or cluster");
+
+    FitResult f;
+    f.family = spec.family;
+    f.se = spec.se;
+    f.level = spec.level;
+    f.n = static_cast<std::size_t>(n);
+    f.n_excluded = d.n_excluded;
+    f.exclusions = d.exclusions;
+    f.notes = d.notes;
+    f.n_clusters = d.n_clusters;
+    for (const auto& t : d.terms) f.terms.emplace_back(t.label, t.columns);
+
+    LeastSquaresOptions lso;
+    lso.threads = threads;
+    lso.extended_budget = options.extended_budget;
+    LeastSquaresResult ls;
+    Eigen::VectorXd score(n), leverage_weight;
+    std::optional<detail::SeparationFinding> separation;
+    if (!logistic) {
+        ls = least_squares(d.X, d.y, d.weights, lso);
+        f.beta = ls.coef;
+        f.residuals = ls.residuals;
+        f.fitted = d.y - ls.residuals;
+        for (Eigen::Index i = 0; i < n; ++i) score[i] = weight(d, i) * ls.residuals[i];
+        if (d.weights.size()) leverage_weight = d.weights;
+    } else {
+        auto lf = fit_logistic(d, d.X, options.max_iterations, lso);
+        ls = lf.factor;
+        f.beta = lf.beta;
+        f.fitted = lf.mu;
+        f.residuals = d.y - lf.mu;
+        for (Eigen::Index i = 0; i < n; ++i) score[i] = weight(d, i) * f.residuals[i];
+        f.iterations = lf.iterations;
+        f.converged = lf.converged;
+        f.log_likelihood = lf.loglik;
+        separation = detail::find_separation(d, f.beta, f.fitted, lf.converged);
+    }
+    f.extended_precision = ls.extended_precision;
+    const std::vector<int>& kept = ls.kept;
+    const Eigen::Index k = static_cast<Eigen::Index>(kept.size());
+    f.rank = static_cast<int>(k);
+    f.df_residual = static_cast<double>(n - k);
+    for (int j : ls.aliased) f.aliased.push_back(d.columns[static_cast<std::size_t>(j)].label);
+
+    // Covariance of the kept coefficients.
+    const Eigen::MatrixXd& A = ls.inverse_factor;
+    Eigen::MatrixXd Vk;
+    if (!logistic) {
+        f.rss = ls.rss;
+        const double sigma2 = ls.rss / f.df_residual;
+        f.residual_sd = std::sqrt(sigma2);
+        if (spec.se == SeKind::Classical) Vk = sigma2 * (A * A.transpose());
+    } else if (spec.se == SeKind::Classical) {
+        Vk = A * A.transpose();
+    }
+    if (spec.se != SeKind::Classical)
+        Vk = detail::sandwich(d.X, kept, A, score, leverage_weight, spec.se, d.cluster, d.n_clusters, threads);
+    f.covariance = expand(Vk, kept, p);
+
+    f.df_inference = logistic ? kInf : (spec.se == SeKind::Cluster ? d.n_clusters - 1.0 : f.df_residual);
+    f.critical_value = dist::t_quantile(0.5 + spec.level / 2.0, f.df_inference);
+    const auto vif = variance_inflation(
+        d, kept, logistic ? least_squares(d.X, Eigen::VectorXd::Zero(n), d.weights, lso).inverse_factor : A);
+    for (Eigen::Index j = 0; j < p; ++j) {
+        Coefficient c;
+        c.term = d.columns[static_cast<std::size_t>(j)].label;
+        c.aliased = std::isnan(f.beta[j]);
+        c.estimate = f.beta[j];
+        c.std_error = std::sqrt(f.covariance(j, j));
+        c.statistic = c.estimate / c.std_error;
+        c.p_value = dist::two_sided_p_t(c.statistic, f.df_inference);
+        c.ci_lower = c.estimate - f.critical_value * c.std_error;
+        c.ci_upper = c.estimate + f.critical_value * c.std_error;
+        c.vif = vif[static_cast<std::size_t>(j)];
+        f.coefficients.push_back(c);
+    }
+
+    // Fit statistics.
+    const double nd = static_cast<double>(n), kd = static_cast<double>(k);
+    const double icpt = d.intercept ? 1.0 : 0.0;
+    std::vector<int> tested;  // all kept non-intercept columns
+    for (int j : kept)
+        if (!(d.intercept && j == 0)) tested.push_back(j);
+    if (!logistic) {
+        long double sw = 0, swy = 0, tss = 0, sumlogw = 0;
+        for (Eigen::Index i = 0; i < n; ++i) {
+            sw += weight(d, i);
+            swy += weight(d, i) * d.y[i];
+            sumlogw += std::log(weight(d, i));
+        }
+        const long double ybar = d.intercept ? swy / sw : 0.0L;
+        for (Eigen::Index i = 0; i < n; ++i) tss += weight(d, i) * (d.y[i] - ybar) * (d.y[i] - ybar);
+        f.tss = static_cast<double>(tss);
+        f.r_squared = 1.0 - f.rss / f.tss;
+        f.adj_r_squared = 1.0 - (nd - icpt) / f.df_residual * (1.0 - f.r_squared);
+        f.log_likelihood = -nd / 2.0 * (std::log(2.0 * std::numbers::pi) + std::log(f.rss / nd) + 1.0) +
+                           0.5 * static_cast<double>(sumlogw);
+    } else {
+        long double sw = 0, swy = 0;
+        for (Eigen::Index i = 0; i < n; ++i) {
+            sw += weight(d, i);
+            swy += weight(d, i) * d.y[i];
+        }
+        const double mu0 = d.intercept ? static_cast<double>(swy / sw) : 0.5;
+        long double ll0 = 0;
+        for (Eigen::Index i = 0; i < n; ++i)
+            ll0 += weight(d, i) * (d.y[i] == 1.0 ? std::log(mu0) : std::log1p(-mu0));
+        const double null_ll = static_cast<double>(ll0);
+        f.deviance = -2.0 * f.log_likelihood;
+        f.null_deviance = -2.0 * null_ll;
+        f.mcfadden_r2 = 1.0 - f.log_likelihood / null_ll;
+        f.lr_statistic = 2.0 * (f.log_likelihood - null_ll);
+        f.lr_df = static_cast<double>(tested.size());
+        f.lr_p_value = dist::upper_p_chi2(f.lr_statistic, f.lr_df);
+    }
+    f.aic = -2.0 * f.log_likelihood + 2.0 * kd;
+    f.bic = -2.0 * f.log_likelihood + kd * std::log(nd);
+    if (!tested.empty()) {
+        std::vector<std::string> labels;
+        for (int j : tested) labels.push_back(d.columns[static_cast<std::size_t>(j)].label);
+        WaldTest overall = wald_on_columns(f, tested, labels);
+        if (!logistic && spec.se == SeKind::Classical) {
+            // The classical F from sums of squares: exact where the Wald form
+            // would invert an ill-conditioned covariance block.
+            overall.statistic = ((f.tss - f.rss) / overall.df1) / (f.rss / f.df_residual);
+            overall.p_value = dist::upper_p_f(overall.statistic, overall.df1, overall.df2);
+        }
+        if (!logistic) {
+            f.f_statistic = overall.statistic;
+            f.f_df1 = overall.df1;
+            f.f_df2 = overall.df2;
+            f.f_p_value = overall.p_value;
+        }
+    }
+
+    // Nested comparison without the product terms.
+    const std::vector<int> products = d.product_columns();
+    std::vector<int> products_kept;
+    for (int j : products)
+        if (std::binary_search(kept.begin(), kept.end(), j)) products_kept.push_back(j);
+    if (options.compare_without_products && !products_kept.empty()) {
+        NestedComparison cmp;
+        std::vector<int> reduced_cols;
+        for (Eigen::Index j = 0; j < p; ++j)
+            if (std::find(products.begin(), products.end(), static_cast<int>(j)) == products.end())
+                reduced_cols.push_back(static_cast<int>(j));
+        for (int j : products_kept) cmp.dropped_terms.push_back(d.columns[static_cast<std::size_t>(j)].label);
+        if (!logistic) {
+            // With full rank and the product columns last, the extra sum of
+            // squares is read off the factorisation already made (sequential
+            // sums of squares); otherwise refit without the products.
+            const bool trailing = ls.aliased.empty() && products.front() == static_cast<int>(reduced_cols.size()) &&
+                                  products.back() == static_cast<int>(p - 1);
+            double extra_ss = 0;
+            if (trailing) {
+                for (int j : products) extra_ss += ls.qty[j] * ls.qty[j];
+                cmp.df1 = static_cast<double>(products.size());
+            } else {
+                const auto red = least_squares(columns_of(d.X, reduced_cols), d.y, d.weights, lso);
+                extra_ss = red.rss - f.rss;
+                cmp.df1 = static_cast<double>(red.kept.size() < kept.size() ? kept.size() - red.kept.size() : 0);
+            }
+            cmp.r_squared_change = extra_ss / f.tss;
+            cmp.r_squared_reduced = f.r_squared - cmp.r_squared_change;
+            cmp.df2 = f.df_residual;
+            cmp.f_statistic = (extra_ss / cmp.df1) / (f.rss / f.df_residual);
+            cmp.p_value = dist::upper_p_f(cmp.f_statistic, cmp.df1, cmp.df2);
+        } else {
+            auto red = fit_logistic(d, columns_of(d.X, reduced_cols), options.max_iterations, lso);
+            cmp.df1 = static_cast<double>(kept.size() - red.factor.kept.size());
+            cmp.lr_statistic = 2.0 * (f.log_likelihood - red.loglik);
+            cmp.lr_p_value = dist::upper_p_chi2(cmp.lr_statistic, cmp.df1);
+        }
+        cmp.wald = wald_on_columns(f, products_kept, cmp.dropped_terms);
+        f.comparison = cmp;
+    }
+    for (const auto& set : spec.wald_tests) f.wald_tests.push_back(wald_test(f, set));
+
+    // Warnings a reader must see.
+    for (const auto& a : f.aliased)
+        f.warnings.push_back("aliased: " + quoted(a) +
+                             " is a linear combination of other columns and was not estimated");
+    if (spec.se == SeKind::Cluster && d.n_clusters < 30)
+        f.warnings.push_back("only " + std::to_string(d.n_clusters) +
+                             " clusters: cluster-robust standard errors are unreliable with fewer than 30");
+    if (logistic && !f.converged && !separation)
+        f.warnings.push_back("the logistic fit did not converge in " + std::to_string(f.iterations) +
+                             " iterations; the estimates are not reliable");
+    if (separation) {
+        f.separation = true;
+        f.warnings.push_back(separation->message);
+    }
+    if (!logistic && spec.se != SeKind::Classical && spec.se != SeKind::Cluster) {
+        // leverage of 1 makes HC2-HC4 undefined
+        for (const auto& c : f.coefficients)
+            if (!c.aliased && !std::isfinite(c.std_error)) {
+                f.warnings.push_back("some rows have leverage 1 (a coefficient fitted by a single row); " +
+                                     std::string(to_string(spec.se)) + " standard errors are undefined");
+                break;
+            }
+    }
+    return f;
+}
+
+FitResult fit_model(const Table& table, const ModelSpec& spec, const FitOptions& options) {
+    const Design d = build_design(table, spec);
+    return fit_design(d, spec, options);
+}
+
+}  // namespace moderato

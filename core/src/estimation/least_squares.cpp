@@ -1,0 +1,167 @@
+#include "moderato/estimation/least_squares.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <numeric>
+
+#include "support/parallel.hpp"
+
+namespace moderato {
+
+namespace {
+
+using LD = long double;
+using MatL = Eigen::Matrix<LD, Eigen::Dynamic, Eigen::Dynamic>;
+using VecL = Eigen::Matrix<LD, Eigen::Dynamic, 1>;
+
+constexpr Eigen::Index kBlockRows = 16384;
+
+// Upper-triangular R (at most p1 rows) of a Householder QR of M.
+template <class Mat>
+Mat triangular_factor(const Mat& M) {
+    Eigen::HouseholderQR<Mat> qr(M);
+    const Eigen::Index rows = std::min(M.rows(), M.cols());
+    Mat R = qr.matrixQR().topRows(rows);
+    R.template triangularView<Eigen::StrictlyLower>().setZero();
+    return R;
+}
+
+}  // namespace
+
+LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
+                                 const Eigen::VectorXd& weights, const LeastSquaresOptions& options) {
+    const Eigen::Index n = X.rows();
+    const Eigen::Index p = X.cols();
+    const bool weighted = weights.size() > 0;
+    const unsigned threads = detail::resolve_threads(options.threads);
+    auto sqrt_w = [&](Eigen::Index i) -> double { return weighted ? std::sqrt(weights[i]) : 1.0; };
+
+    // Unit-norm column scaling of the (weighted) design.
+    std::vector<double> scale(static_cast<std::size_t>(p), 1.0);
+    for (Eigen::Index j = 0; j < p; ++j) {
+        LD ss = 0;
+        for (Eigen::Index i = 0; i < n; ++i) {
+            const LD v = static_cast<LD>(X(i, j)) * (weighted ? static_cast<LD>(weights[i]) : 1.0L) * X(i, j);
+            ss += v;
+        }
+        const double s = static_cast<double>(std::sqrt(ss));
+        scale[static_cast<std::size_t>(j)] = s > 0 ? s : 1.0;
+    }
+
+    LeastSquaresResult out;
+    out.extended_precision =
+        static_cast<double>(n) * static_cast<double>(p + 1) * static_cast<double>(p + 1) <= options.extended_budget;
+
+    // 1. R of the scaled, weighted [X | y].
+    MatL Raug;
+    if (out.extended_precision) {
+        MatL A(n, p + 1);
+        for (Eigen::Index j = 0; j < p; ++j)
+            for (Eigen::Index i = 0; i < n; ++i)
+                A(i, j) = static_cast<LD>(X(i, j)) * static_cast<LD>(sqrt_w(i)) / scale[static_cast<std::size_t>(j)];
+        for (Eigen::Index i = 0; i < n; ++i) A(i, p) = static_cast<LD>(y[i]) * static_cast<LD>(sqrt_w(i));
+        Raug = triangular_factor(A);
+    } else {
+        const std::size_t blocks = static_cast<std::size_t>((n + kBlockRows - 1) / kBlockRows);
+        detail::map_reduce_ordered<Eigen::MatrixXd>(
+            blocks, threads,
+            [&](std::size_t b) {
+                const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlockRows;
+                const Eigen::Index rows = std::min(kBlockRows, n - r0);
+                Eigen::MatrixXd B(rows, p + 1);
+                for (Eigen::Index j = 0; j < p; ++j) {
+                    const double inv = 1.0 / scale[static_cast<std::size_t>(j)];
+                    for (Eigen::Index i = 0; i < rows; ++i) B(i, j) = X(r0 + i, j) * sqrt_w(r0 + i) * inv;
+                }
+                for (Eigen::Index i = 0; i < rows; ++i) B(i, p) = y[r0 + i] * sqrt_w(r0 + i);
+                return triangular_factor(B);
+            },
+            [&](std::size_t, Eigen::MatrixXd&& Rb) {
+                if (Raug.size() == 0) {
+                    Raug = Rb.cast<LD>();
+                    return;
+                }
+                MatL S(Raug.rows() + Rb.rows(), p + 1);
+                S << Raug, Rb.cast<LD>();
+                Raug = triangular_factor(S);
+            });
+    }
+    if (Raug.rows() < p + 1) {  // fewer rows than columns + 1: pad with zeros
+        MatL padded = MatL::Zero(p + 1, p + 1);
+        padded.topRows(Raug.rows()) = Raug;
+        Raug = padded;
+    }
+
+    out.qty = Raug.col(p).head(p).cast<double>();
+
+    // 2. Numerical rank from a pivoted QR of the small factor.
+    MatL Rx = Raug.topLeftCorner(p, p);
+    Eigen::ColPivHouseholderQR<MatL> piv(Rx);
+    const MatL& Rp = piv.matrixQR();
+    LD biggest = 0;
+    for (Eigen::Index k = 0; k < p; ++k) biggest = std::max(biggest, std::abs(Rp(k, k)));
+    // In double, exactly collinear columns leave pivots of a few sqrt(n) * eps.
+    const double tolerance =
+        out.extended_precision
+            ? options.rank_tolerance
+            : std::max(options.rank_tolerance,
+                       16.0 * std::sqrt(static_cast<double>(n)) * std::numeric_limits<double>::epsilon());
+    int rank = 0;
+    for (Eigen::Index k = 0; k < p; ++k)
+        if (std::abs(Rp(k, k)) > static_cast<LD>(tolerance) * biggest) ++rank;
+        else break;
+    const auto& perm = piv.colsPermutation().indices();
+    std::vector<int> kept(perm.data(), perm.data() + rank);
+    std::sort(kept.begin(), kept.end());
+    for (int j = 0; j < p; ++j)
+        if (!std::binary_search(kept.begin(), kept.end(), j)) out.aliased.push_back(j);
+    out.rank = rank;
+    out.kept = kept;
+
+    // 3. Solve the full-rank problem on the kept columns.
+    const Eigen::Index k = rank;
+    MatL Bk(p + 1, k + 1);
+    for (Eigen::Index c = 0; c < k; ++c) Bk.col(c) = Raug.col(kept[static_cast<std::size_t>(c)]);
+    Bk.col(k) = Raug.col(p);
+    MatL R2 = triangular_factor(Bk);
+    const MatL Rk = R2.topLeftCorner(k, k);
+    const VecL c = R2.col(k).head(k);
+    const VecL bs = Rk.triangularView<Eigen::Upper>().solve(c);
+    const MatL Rinv = Rk.triangularView<Eigen::Upper>().solve(MatL::Identity(k, k));
+
+    out.coef = Eigen::VectorXd::Constant(p, std::numeric_limits<double>::quiet_NaN());
+    VecL coefL = VecL::Zero(p);
+    out.inverse_factor.resize(k, k);
+    for (Eigen::Index a = 0; a < k; ++a) {
+        const LD s = scale[static_cast<std::size_t>(kept[static_cast<std::size_t>(a)])];
+        coefL[kept[static_cast<std::size_t>(a)]] = bs[a] / s;
+        out.coef[kept[static_cast<std::size_t>(a)]] = static_cast<double>(bs[a] / s);
+        for (Eigen::Index b = 0; b < k; ++b) out.inverse_factor(a, b) = static_cast<double>(Rinv(a, b) / s);
+    }
+
+    // 4. Residuals and weighted residual sum of squares, accumulated in long double.
+    out.residuals.resize(n);
+    const std::size_t blocks = static_cast<std::size_t>((n + kBlockRows - 1) / kBlockRows);
+    LD rss = 0;
+    detail::map_reduce_ordered<LD>(
+        blocks, threads,
+        [&](std::size_t b) {
+            const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlockRows;
+            const Eigen::Index r1 = std::min(n, r0 + kBlockRows);
+            LD part = 0;
+            for (Eigen::Index i = r0; i < r1; ++i) {
+                LD fit = 0;
+                for (int j : kept) fit += static_cast<LD>(X(i, j)) * coefL[j];
+                const LD e = static_cast<LD>(y[i]) - fit;
+                out.residuals[i] = static_cast<double>(e);
+                part += (weighted ? static_cast<LD>(weights[i]) : 1.0L) * e * e;
+            }
+            return part;
+        },
+        [&](std::size_t, LD&& part) { rss += part; });
+    out.rss = static_cast<double>(rss);
+    return out;
+}
+
+}  // namespace moderato

@@ -1,0 +1,198 @@
+// From a dataset and an analysis's settings to everything the analysis shows.
+#include "moderato/project/analysis_run.hpp"
+
+#include <cmath>
+#include <set>
+
+#include "moderato/reading/derive.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/probing/response_scale.hpp"
+
+namespace moderato {
+
+namespace {
+
+std::string quoted(const std::string& s) { return "'" + s + "'"; }
+
+// A numeric column whose present values are all 0 or 1 (and both occur).
+bool zero_one(const Column& c) {
+    if (c.kind != ColumnKind::Numeric) return false;
+    bool zero = false, one = false;
+    for (const double v : c.numbers) {
+        if (v != v) continue;
+        if (v == 0) zero = true;
+        else if (v == 1) one = true;
+        else return false;
+    }
+    return zero && one;
+}
+
+bool grouping(const Column& c) { return c.kind == ColumnKind::Categorical || zero_one(c); }
+
+Column compute_recipe(const Table& t, const DerivedRecipe& r) {
+    const std::string what = "derived column " + quoted(r.name) + " (" + r.kind + " of " + quoted(r.source) + ")";
+    const Column* x = t.find(r.source);
+    if (!x) throw InputError(what + ": the column " + quoted(r.source) + " is not in " + t.source);
+    try {
+        if (r.kind == "centre-mean") return centre(*x, CentreAt::Mean, 0.0, r.name);
+        if (r.kind == "centre-median") return centre(*x, CentreAt::Median, 0.0, r.name);
+        if (r.kind == "centre-value") return centre(*x, CentreAt::Value, r.value, r.name);
+        if (r.kind == "standardise") return standardise(*x, r.name);
+        if (r.kind == "log") return log_column(*x, t, r.name);
+        if (r.kind == "log1p") return log1p_column(*x, t, r.name);
+        if (r.kind == "square") return square(*x, r.name);
+        if (r.kind == "dummy") return dummy(*x, r.level, r.name);
+        if (r.kind == "product") {
+            const Column* y = t.find(r.other);
+            if (!y) throw InputError("the column " + quoted(r.other) + " is not in " + t.source);
+            return product(*x, *y, r.name);
+        }
+    } catch (const InputError& e) {
+        throw InputError(what + ": " + e.what());
+    }
+    throw InputError(what + ": unknown kind of derived column");
+}
+
+void require_column(const Table& t, const Analysis& a, const std::string& role, const std::string& column) {
+    if (column.empty() || t.find(column)) return;
+    throw InputError("analysis " + quoted(a.name) + ": the " + role + " column " + quoted(column) +
+                     " is not in the dataset " + t.source +
+                     "; choose another column in Specify or restore the column in the data file");
+}
+
+}  // namespace
+
+Table apply_recipes(const Table& base, const std::vector<DerivedRecipe>& recipes) {
+    Table t = base;
+    for (const auto& r : recipes) {
+        if (t.find(r.name))
+            throw InputError("derived column " + quoted(r.name) + ": " + t.source +
+                             " already has a column of that name; choose another name");
+        t.columns.push_back(compute_recipe(t, r));
+    }
+    return t;
+}
+
+std::shared_ptr<const Table> with_recipes(std::shared_ptr<const Table> base, const std::vector<DerivedRecipe>& recipes) {
+    if (recipes.empty() || !base) return base;
+    return std::make_shared<const Table>(apply_recipes(*base, recipes));
+}
+
+ProbeKind probe_kind(const Table& t, const Analysis& a) {
+    if (a.roles.outcome.empty()) throw InputError("analysis " + quoted(a.name) + ": choose an Outcome column");
+    if (a.roles.focal.empty()) throw InputError("analysis " + quoted(a.name) + ": choose a Focal predictor");
+    if (a.roles.moderator.empty()) throw InputError("analysis " + quoted(a.name) + ": choose a Moderator");
+    require_column(t, a, "Outcome", a.roles.outcome);
+    require_column(t, a, "Focal predictor", a.roles.focal);
+    require_column(t, a, "Moderator", a.roles.moderator);
+    const Column& f = t.at(a.roles.focal);
+    const Column& m = t.at(a.roles.moderator);
+    if (grouping(f) && grouping(m)) return ProbeKind::Cells;
+    if (f.kind == ColumnKind::Categorical)
+        throw InputError("analysis " + quoted(a.name) + ": the Focal predictor " + quoted(a.roles.focal) +
+                         " is categorical and the Moderator " + quoted(a.roles.moderator) +
+                         " is numeric; swap the two roles to see the effect of " + a.roles.moderator +
+                         " in each group of " + a.roles.focal);
+    return grouping(m) ? ProbeKind::Groups : ProbeKind::Continuous;
+}
+
+void probe_analysis(AnalysisRun& run, const Analysis& a) {
+    run.probe.reset();
+    run.probe_link.reset();
+    run.cells.reset();
+    run.surface.reset();
+    run.cautions.clear();
+    ProbeSpec ps;
+    ps.focal = a.roles.focal;
+    ps.moderator = a.roles.moderator;
+    ps.second_moderator = a.roles.second_moderator;
+    ps.second_value = a.probe.second_value;
+    switch (run.kind) {
+    case ProbeKind::Cells:
+        run.cells = cell_table(run.design, run.fit, a.roles.focal, a.roles.moderator);
+        break;
+    case ProbeKind::Groups:
+    case ProbeKind::Continuous: {
+        if (run.kind == ProbeKind::Continuous) ps.at = a.probe.pinned;
+        run.probe = probe(run.design, run.fit, ps);
+        if (a.family == Family::Logistic && a.probe.scale == "response") {
+            run.probe_link = run.probe;
+            run.probe = probe_response(run.design, run.fit, ps,
+                                       a.probe.averaging == "values" ? Averaging::AtValues : Averaging::Sample);
+        }
+        if (run.kind == ProbeKind::Continuous && a.roles.second_moderator.empty())
+            run.surface = surface_grid(run.design, run.fit, a.roles.focal, a.roles.moderator);
+        run.cautions = run.probe->cautions;
+        break;
+    }
+    }
+    if (run.cautions.empty())
+        run.cautions.push_back("These are associations in observational data, not causal effects, unless the focal "
+                               "predictor was randomised.");
+}
+
+bool same_model(const Analysis& a, const Analysis& b) {
+    return a.dataset == b.dataset && a.roles == b.roles && a.family == b.family && a.se == b.se &&
+           a.level == b.level && a.centring == b.centring;
+}
+
+bool same_probe(const Analysis& a, const Analysis& b) {
+    const auto same = [](double x, double y) { return x == y || (std::isnan(x) && std::isnan(y)); };
+    return same_model(a, b) && a.probe.pinned == b.probe.pinned && same(a.probe.second_value, b.probe.second_value) &&
+           a.probe.scale == b.probe.scale && a.probe.averaging == b.probe.averaging;
+}
+
+AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a) {
+    if (!table) throw InputError("analysis " + quoted(a.name) + ": its dataset is not loaded");
+    const Table& t = *table;
+    AnalysisRun run;
+    run.analysis_id = a.id;
+    run.table = table;
+    run.kind = probe_kind(t, a);
+    require_column(t, a, "Second moderator", a.roles.second_moderator);
+    for (const auto& c : a.roles.controls) require_column(t, a, "Controls", c);
+    require_column(t, a, "Weights", a.roles.weights);
+    require_column(t, a, "Clusters", a.roles.clusters);
+    if (a.se == SeKind::Cluster && a.roles.clusters.empty())
+        throw InputError("analysis " + quoted(a.name) +
+                         ": cluster-robust standard errors need a Clusters column; drop one in the Clusters slot");
+
+    run.spec = model_spec(a);
+    run.design = build_design(t, run.spec);
+    run.fit = fit_design(run.design, run.spec);
+
+    probe_analysis(run, a);
+
+    if (a.centring == "mean") {
+        // Centre the numeric (not 0/1) focal predictor and moderators; the fit is the same
+        // model, only the lower-order coefficients change meaning.
+        // Only the model's columns (not a copy of the whole table), plus the centred copies.
+        Table centred;
+        centred.source = t.source;
+        centred.row_lines = t.row_lines;
+        std::set<std::string> used{a.roles.outcome, a.roles.focal, a.roles.moderator, a.roles.second_moderator,
+                                   a.roles.weights, a.roles.clusters};
+        used.insert(a.roles.controls.begin(), a.roles.controls.end());
+        for (const Column& c : t.columns)
+            if (used.count(c.name)) centred.columns.push_back(c);
+        std::map<std::string, std::string> names;
+        for (const std::string& col : {a.roles.focal, a.roles.moderator, a.roles.second_moderator}) {
+            if (col.empty()) continue;
+            const Column& c = t.at(col);
+            if (c.kind != ColumnKind::Numeric || zero_one(c)) continue;
+            std::string name = col + "_centred";
+            while (t.find(name) || centred.find(name)) name += "_";
+            // Centre at the mean over the rows the model uses, so the intercept and
+            // lower-order terms describe the sample that was fitted.
+            const auto s = run.design.summaries.find(col);
+            const double m = s != run.design.summaries.end() ? s->second.mean : centre_value(c, CentreAt::Mean);
+            centred.columns.push_back(centre(c, CentreAt::Value, m, name));
+            names[col] = name;
+            run.centres[col] = m;
+        }
+        if (!names.empty()) run.centred_fit = fit_model(centred, model_spec(a, names));
+    }
+    return run;
+}
+
+}  // namespace moderato

@@ -1,0 +1,225 @@
+#include "moderato/reporting/analysis_tables.hpp"
+
+#include <cctype>
+#include <cmath>
+
+#include "moderato/reporting/report_text.hpp"
+
+namespace moderato {
+
+std::string se_description(const FitResult& fit, const std::string& clusters) {
+    switch (fit.se) {
+    case SeKind::Classical: return fit.family == Family::Logistic ? "model-based" : "classical";
+    case SeKind::Cluster:
+        return "cluster-robust (" + (clusters.empty() ? std::string() : clusters + ", ") + std::to_string(fit.n_clusters) +
+               " clusters)";
+    default: {
+        std::string s = to_string(fit.se);
+        for (auto& c : s) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
+        return s;
+    }
+    }
+}
+
+namespace {
+
+ExportCell num(double x) { return {format_sig(x), exact_text(x)}; }
+ExportCell pval(double p) { return {format_p_value(p), exact_text(p)}; }
+ExportCell text(const std::string& s) { return {s, ""}; }
+ExportCell count(long long n) { return {format_count(n), std::to_string(n)}; }
+
+ExportTable estimates_table(const Analysis& a, const AnalysisRun& run) {
+    const bool centred = a.centring == "mean" && run.centred_fit;
+    const FitResult& fit = centred ? *run.centred_fit : run.fit;
+    ExportTable t;
+    t.title = "Estimates";
+    const std::string lv = level_text(fit.level);
+    t.columns = {"Term", "Estimate", "SE", statistic_name(fit), "p", lv + " CI lower", lv + " CI upper"};
+    t.numeric = {false, true, true, true, true, true, true};
+    for (const auto& c : fit.coefficients) {
+        if (c.aliased) {
+            t.rows.push_back({text(c.term), text("aliased"), text(""), text(""), text(""), text(""), text("")});
+            continue;
+        }
+        t.rows.push_back({text(c.term), num(c.estimate), num(c.std_error), num(c.statistic), pval(c.p_value),
+                          num(c.ci_lower), num(c.ci_upper)});
+    }
+    t.notes.push_back("Standard errors: " + se_description(fit, a.roles.clusters) + "; n = " + format_count(static_cast<long long>(fit.n)) +
+                      (fit.n_excluded ? " (" + format_count(static_cast<long long>(fit.n_excluded)) +
+                                            " rows with missing values left out)"
+                                      : "") +
+                      ".");
+    if (fit.family == Family::Logistic) t.notes.push_back("Estimates are on the log-odds scale.");
+    if (centred) {
+        std::string cols;
+        for (const auto& [col, centre] : run.centres)
+            cols += (cols.empty() ? "" : ", ") + col + " at " + format_sig(centre);
+        t.notes.push_back("Centred columns (" + cols +
+                          "): lower-order terms are effects at the centre; the fit and the probe are unchanged.");
+    }
+    return t;
+}
+
+ExportTable fit_table(const AnalysisRun& run) {
+    const FitResult& f = run.fit;
+    ExportTable t;
+    t.title = "Fit statistics";
+    t.columns = {"Statistic", "Value"};
+    t.numeric = {false, true};
+    t.rows.push_back({text("Observations used"), count(static_cast<long long>(f.n))});
+    t.rows.push_back({text("Rows left out (missing values)"), count(static_cast<long long>(f.n_excluded))});
+    if (f.family == Family::Linear) {
+        t.rows.push_back({text("R²"), num(f.r_squared)});
+        t.rows.push_back({text("Adjusted R²"), num(f.adj_r_squared)});
+        t.rows.push_back({text("Residual SD"), num(f.residual_sd)});
+        t.rows.push_back({text("F (" + format_sig(f.f_df1) + ", " + format_sig(f.f_df2) + ")"), num(f.f_statistic)});
+        t.rows.push_back({text("p of F"), pval(f.f_p_value)});
+    } else {
+        t.rows.push_back({text("Deviance"), num(f.deviance)});
+        t.rows.push_back({text("Null deviance"), num(f.null_deviance)});
+        t.rows.push_back({text("McFadden R²"), num(f.mcfadden_r2)});
+        t.rows.push_back({text("LR χ² (" + format_sig(f.lr_df) + ")"), num(f.lr_statistic)});
+        t.rows.push_back({text("p of LR χ²"), pval(f.lr_p_value)});
+    }
+    t.rows.push_back({text("Log-likelihood"), num(f.log_likelihood)});
+    t.rows.push_back({text("AIC"), num(f.aic)});
+    t.rows.push_back({text("BIC"), num(f.bic)});
+    return t;
+}
+
+std::string df_text(double df1, double df2) {
+    if (!std::isfinite(df2)) return format_sig(df1);
+    return format_sig(df1) + ", " + format_sig(df2);
+}
+
+ExportTable comparison_table(const Analysis& a, const AnalysisRun& run) {
+    const FitResult& f = run.fit;
+    const NestedComparison& c = *f.comparison;
+    ExportTable t;
+    std::string dropped;
+    for (const auto& d : c.dropped_terms) dropped += (dropped.empty() ? "" : ", ") + d;
+    t.title = "With and without the interaction (" + dropped + ")";
+    t.columns = {"Test", "Statistic", "df", "p"};
+    t.numeric = {false, true, false, true};
+    if (f.family == Family::Linear) {
+        t.rows.push_back({text("R² without the interaction"), num(c.r_squared_reduced), text(""), text("")});
+        t.rows.push_back({text("R² with the interaction"), num(f.r_squared), text(""), text("")});
+        t.rows.push_back({text("R² change F test (classical)"), num(c.f_statistic), text(df_text(c.df1, c.df2)),
+                          pval(c.p_value)});
+    } else {
+        t.rows.push_back({text("Likelihood-ratio χ²"), num(c.lr_statistic), text(format_sig(c.df1)), pval(c.lr_p_value)});
+    }
+    const WaldTest& w = c.wald;
+    const bool chi = !std::isfinite(w.df2);
+    t.rows.push_back({text(std::string("Wald ") + (chi ? "χ²" : "F") + " (" + se_description(f, a.roles.clusters) + ")"),
+                      num(chi ? w.chi_square : w.statistic), text(df_text(w.df1, w.df2)), pval(w.p_value)});
+    return t;
+}
+
+ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
+    ExportTable t;
+    const bool prob = p.scale == "response";
+    t.title = "Conditional effect of " + p.focal + (prob ? " on P(" + p.outcome + " = 1)" : " on " + p.outcome) +
+              " by " + p.moderator;
+    const std::string lv = level_text(p.level);
+    t.columns = {p.moderator, "Effect", "SE", prob ? "z" : statistic_name(fit), "p", lv + " CI lower",
+                 lv + " CI upper", "Note"};
+    t.numeric = {!p.categorical_moderator, true, true, true, true, true, true, false};
+    bool beyond = false;
+    for (const auto& e : p.effects) {
+        ExportCell at = p.categorical_moderator || !e.level.empty()
+                            ? text(e.level.empty() ? format_sig(e.moderator_value) : e.level)
+                            : ExportCell{moderator_value_label(p, e), exact_text(e.moderator_value)};
+        if (e.beyond_data) {
+            at.text += " †";
+            beyond = true;
+        }
+        t.rows.push_back({at, num(e.effect), num(e.std_error), num(e.statistic), pval(e.p_value), num(e.ci_lower),
+                          num(e.ci_upper), text(e.beyond_data ? "beyond the data" : "")});
+    }
+    if (beyond) t.notes.push_back("† beyond the data: an extrapolation outside the observed " + p.moderator + " values.");
+    if (!p.categorical_moderator)
+        t.notes.push_back("Observed " + p.moderator + ": " + format_range(p.observed_range.first, p.observed_range.second) +
+                          ". Pointwise intervals; each row is one test.");
+    if (prob)
+        t.notes.push_back(p.averaging == "values" ? "Probability scale, at the means and reference levels."
+                                                  : "Probability scale, averaged over the observed rows.");
+    return t;
+}
+
+ExportTable cell_table_export(const CellTable& c) {
+    ExportTable t;
+    const bool logistic = c.family == Family::Logistic;
+    t.title = "Cells of " + c.row_factor + " × " + c.column_factor + " (" + c.scale + " scale)";
+    const std::string lv = level_text(c.level);
+    t.columns = {c.row_factor, c.column_factor, "n", "Observed mean", "Predicted", "SE", lv + " CI lower",
+                 lv + " CI upper"};
+    t.numeric = {false, false, true, true, true, true, true, true};
+    if (logistic) {
+        t.columns.insert(t.columns.end(), {"Probability", "P CI lower", "P CI upper"});
+        t.numeric.insert(t.numeric.end(), {true, true, true});
+    }
+    for (const auto& cell : c.cells) {
+        std::vector<ExportCell> row{text(cell.row_level), text(cell.column_level), count(static_cast<long long>(cell.n)),
+                                    num(cell.observed_mean), num(cell.estimate), num(cell.std_error),
+                                    num(cell.ci_lower), num(cell.ci_upper)};
+        if (logistic) row.insert(row.end(), {num(cell.probability), num(cell.probability_lower), num(cell.probability_upper)});
+        t.rows.push_back(std::move(row));
+    }
+    for (const auto& n : c.notes) t.notes.push_back(n);
+    return t;
+}
+
+ExportTable contrasts_table(const CellTable& c, const FitResult& fit) {
+    ExportTable t;
+    t.title = "Simple effects and the interaction contrast";
+    const std::string lv = level_text(c.level);
+    t.columns = {"Comparison", "Estimate", "SE", statistic_name(fit), "p", lv + " CI lower", lv + " CI upper"};
+    t.numeric = {false, true, true, true, true, true, true};
+    auto add = [&](const std::string& label, bool ok, double e, double se, double st, double p, double lo, double hi) {
+        if (!ok) {
+            t.rows.push_back({text(label), text("not estimable"), text(""), text(""), text(""), text(""), text("")});
+            return;
+        }
+        t.rows.push_back({text(label), num(e), num(se), num(st), pval(p), num(lo), num(hi)});
+    };
+    for (const auto& s : c.row_effects)
+        add(s.label, s.estimable, s.estimate, s.std_error, s.statistic, s.p_value, s.ci_lower, s.ci_upper);
+    for (const auto& s : c.column_effects)
+        add(s.label, s.estimable, s.estimate, s.std_error, s.statistic, s.p_value, s.ci_lower, s.ci_upper);
+    for (const auto& i : c.interactions)
+        add(i.label, i.estimable, i.estimate, i.std_error, i.statistic, i.p_value, i.ci_lower, i.ci_upper);
+    if (c.family == Family::Logistic) t.notes.push_back("On the log-odds scale.");
+    return t;
+}
+
+}  // namespace
+
+std::string statistic_name(const FitResult& fit) { return fit.family == Family::Logistic ? "z" : "t"; }
+
+std::string moderator_value_label(const ProbeResult& p, const EffectPoint& e) {
+    if (!e.level.empty()) return e.level;
+    if (p.categorical_moderator) return format_sig(e.moderator_value);
+    const std::string value = format_sig(e.moderator_value);
+    const double sd = p.moderator_sd;
+    const double tol = 1e-9 * (std::fabs(p.moderator_mean) + sd + 1);
+    if (std::fabs(e.moderator_value - p.moderator_mean) <= tol) return value + " (mean)";
+    if (sd > 0 && std::fabs(e.moderator_value - (p.moderator_mean - sd)) <= tol) return value + " (mean \xE2\x88\x92 1 SD)";
+    if (sd > 0 && std::fabs(e.moderator_value - (p.moderator_mean + sd)) <= tol) return value + " (mean + 1 SD)";
+    return value;
+}
+
+std::vector<NamedTable> analysis_tables(const Analysis& a, const AnalysisRun& run) {
+    std::vector<NamedTable> out;
+    out.push_back({"estimates", estimates_table(a, run)});
+    out.push_back({"fit-statistics", fit_table(run)});
+    if (run.fit.comparison) out.push_back({"model-comparison", comparison_table(a, run)});
+    if (run.probe) out.push_back({"conditional-effects", effects_table(*run.probe, run.fit)});
+    if (run.cells) {
+        out.push_back({"cell-table", cell_table_export(*run.cells)});
+        out.push_back({"cell-contrasts", contrasts_table(*run.cells, run.fit)});
+    }
+    return out;
+}
+
+}  // namespace moderato

@@ -1,0 +1,74 @@
+#include "moderato/reporting/bootstrap_report.hpp"
+
+#include <cmath>
+#include <cstdio>
+#include <sstream>
+
+#include "support/text_util.hpp"
+
+namespace moderato {
+
+void write_probe_bootstrap(JsonWriter& w, const ProbeBootstrap& b) {
+    const auto& r = b.result;
+    w.begin_object();
+    w.field("replicates", r.requested);
+    w.field("completed", r.completed);
+    w.field("seed", static_cast<long long>(b.seed));
+    w.field("resampling", r.resampling);
+    w.field("level", r.level);
+    w.field("jackknife", r.jackknife);
+    w.key("failures").begin_array();
+    for (const auto& [reason, count] : r.failures) {
+        w.begin_object();
+        w.field("reason", reason);
+        w.field("replicates", count);
+        w.end_object();
+    }
+    w.end_array();
+    w.key("statistics").begin_array();
+    for (std::size_t k = 0; k < b.labels.size() && k < r.intervals.size(); ++k) {
+        const auto& iv = r.intervals[k];
+        w.begin_object();
+        w.field("label", b.labels[k]);
+        w.field("kind", b.kinds[k]);
+        if (b.kinds[k] == "effect") w.field("moderator_value", b.at[k]);
+        w.field("estimate", iv.estimate);
+        w.field("std_error", iv.std_error);
+        w.field("percentile_lower", iv.percentile_lower);
+        w.field("percentile_upper", iv.percentile_upper);
+        w.field("bca_lower", iv.bca_lower);
+        w.field("bca_upper", iv.bca_upper);
+        w.field("valid_replicates", iv.valid_replicates);
+        w.end_object();
+    }
+    w.end_array();
+    w.key("warnings").begin_array();
+    for (const auto& s : r.warnings) w.value(s);
+    w.end_array();
+    w.end_object();
+}
+
+std::string probe_bootstrap_to_text(const ProbeBootstrap& b) {
+    const auto& r = b.result;
+    std::ostringstream o;
+    char line[320];
+    o << "\nBootstrap (" << r.resampling << ", " << r.completed << " of " << r.requested << " replicates, seed " << b.seed
+      << "; " << detail::fmt_short(100 * r.level) << "% intervals):\n";
+    std::snprintf(line, sizeof line, "  %-44s %11s %11s %23s %23s\n", "", "estimate", "boot. SE", "percentile",
+                  "BCa");
+    o << line;
+    for (std::size_t k = 0; k < b.labels.size() && k < r.intervals.size(); ++k) {
+        const auto& iv = r.intervals[k];
+        const std::string pct = detail::fmt_short(iv.percentile_lower) + " to " + detail::fmt_short(iv.percentile_upper);
+        const std::string bca = detail::fmt_short(iv.bca_lower) + " to " + detail::fmt_short(iv.bca_upper);
+        std::snprintf(line, sizeof line, "  %-44s %11s %11s %23s %23s\n", b.labels[k].c_str(),
+                      detail::fmt_short(iv.estimate).c_str(), detail::fmt_short(iv.std_error).c_str(), pct.c_str(),
+                      bca.c_str());
+        o << line;
+    }
+    for (const auto& [reason, count] : r.failures) o << "  failed replicates: " << count << " (" << reason << ")\n";
+    for (const auto& s : r.warnings) o << "  ! " << s << "\n";
+    return o.str();
+}
+
+}  // namespace moderato

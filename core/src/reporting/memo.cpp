@@ -1,0 +1,454 @@
+// The memo's content: sentences generated from the numbers, the equation,
+// the cautions and the options footer. Rendering to HTML and Markdown is in
+// memo_render.cpp.
+#include "moderato/reporting/memo.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <functional>
+#include <nlohmann/json.hpp>
+
+#include "moderato/reporting/report_text.hpp"
+#include "moderato/probing/response_scale.hpp"
+#include "moderato/reporting/table_export.hpp"
+
+namespace moderato {
+namespace {
+
+const char* const kMinus = "\xE2\x88\x92";
+
+std::string ci_text(double level, double lo, double hi) {
+    return level_text(level) + " CI " + format_range(lo, hi);
+}
+
+// The design columns of the focal × moderator product (one per moderator
+// dummy for a categorical moderator).
+std::vector<int> product_columns(const Design& d, const std::string& focal, const std::string& moderator) {
+    std::vector<int> out;
+    for (std::size_t j = 0; j < d.columns.size(); ++j) {
+        const auto& atoms = d.columns[j].atoms;
+        if (atoms.size() != 2) continue;
+        const bool fm = atoms[0].column == focal && atoms[1].column == moderator;
+        const bool mf = atoms[1].column == focal && atoms[0].column == moderator;
+        if ((fm || mf) && atoms[fm ? 0 : 1].power == 1 && atoms[fm ? 0 : 1].level.empty())
+            out.push_back(static_cast<int>(j));
+    }
+    return out;
+}
+
+// The focal effect at moderator value m on the probe's scale (its sign says
+// whether a region is one of positive or negative effects).
+double effect_at(const Analysis& a, const AnalysisRun& run, double m) {
+    const ProbeResult& p = *run.probe;
+    if (p.scale != "response") return p.effect_function.effect(m);
+    ScaleRequest req;
+    req.focal = p.focal;
+    req.moderator = p.moderator;
+    req.averaging = p.averaging == "values" ? Averaging::AtValues : Averaging::Sample;
+    if (!a.roles.second_moderator.empty())
+        req.values[a.roles.second_moderator] = std::isnan(a.probe.second_value)
+                                                   ? typical_values(run.design).at(a.roles.second_moderator)
+                                                   : a.probe.second_value;
+    return probability_effect(run.design, run.fit, req, m).effect;
+}
+
+struct Clipped {
+    double lo, hi;
+    bool from_start, to_end;   // touches the observed minimum / maximum
+};
+
+std::vector<Clipped> clip(const std::vector<Region>& regions, double lo, double hi) {
+    std::vector<Clipped> out;
+    const double eps = 1e-12 * std::max(1.0, std::fabs(hi - lo));
+    for (const auto& r : regions) {
+        const double a = std::max(r.lo, lo), b = std::min(r.hi, hi);
+        if (b - a <= eps) continue;
+        out.push_back({a, b, a <= lo + eps, b >= hi - eps});
+    }
+    return out;
+}
+
+// "above 3.2", "below 1.1", "between 2 and 4", "throughout".
+std::string region_words(const Clipped& c, const std::string& name) {
+    if (c.from_start && c.to_end) return "throughout the observed range";
+    if (c.from_start) return "for " + name + " below " + format_sig(c.hi);
+    if (c.to_end) return "for " + name + " above " + format_sig(c.lo);
+    return "for " + name + " between " + format_range(c.lo, c.hi);
+}
+
+std::string join_and(const std::vector<std::string>& parts) {
+    std::string out;
+    for (std::size_t i = 0; i < parts.size(); ++i) {
+        if (i) out += i + 1 == parts.size() ? " and " : ", ";
+        out += parts[i];
+    }
+    return out;
+}
+
+std::string effect_of(const ProbeResult& p) {
+    return "the effect of " + p.focal + (p.scale == "response" ? " on P(" + p.outcome + " = 1)" : " on " + p.outcome);
+}
+
+// ", with w held at 3.2" for a three-way model (its effects are conditional on that value).
+std::string held_clause(const Analysis& a, const AnalysisRun& run) {
+    const std::string& w = a.roles.second_moderator;
+    if (w.empty()) return "";
+    const auto typical = typical_values(run.design);
+    const auto it = typical.find(w);
+    const bool chosen = !std::isnan(a.probe.second_value);
+    const double v = chosen ? a.probe.second_value : it == typical.end() ? std::nan("") : it->second;
+    if (std::isnan(v)) return "";
+    for (const auto& c : run.design.categoricals)
+        if (c.column == w) {
+            const auto k = static_cast<std::size_t>(std::llround(v));
+            return k < c.levels.size() ? ", with " + w + " = " + c.levels[k] : "";
+        }
+    return ", with " + w + " held at " + (chosen ? format_sig(v) : "its mean (" + format_sig(v) + ")");
+}
+
+// "is positive and differs from zero for z above 3.2, and negative for z below −1"
+std::string significance_clause(const Analysis& a, const AnalysisRun& run, const std::vector<Region>& regions) {
+    const ProbeResult& p = *run.probe;
+    const auto [lo, hi] = p.observed_range;
+    const auto parts = clip(regions, lo, hi);
+    if (parts.empty()) return "does not differ from zero anywhere in the observed range";
+    std::vector<std::string> positive, negative;
+    for (const auto& c : parts) {
+        const double mid = 0.5 * (c.lo + c.hi);
+        (effect_at(a, run, mid) > 0 ? positive : negative).push_back(region_words(c, p.moderator));
+    }
+    std::string s;
+    if (!positive.empty()) s = "is positive and differs from zero " + join_and(positive);
+    if (!negative.empty())
+        s += (s.empty() ? "is negative and differs from zero " : ", and negative ") + join_and(negative);
+    return s;
+}
+
+void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector<std::string>& out) {
+    const ProbeResult& p = *run.probe;
+    const auto [lo, hi] = p.observed_range;
+    const bool prob = p.scale == "response";
+    // The product coefficient, on the model's own scale.
+    if (a.roles.second_moderator.empty()) {
+        const auto cols = product_columns(run.design, p.focal, p.moderator);
+        if (cols.size() == 1) {
+            const Coefficient& c = run.fit.coefficients[static_cast<std::size_t>(cols[0])];
+            if (!c.aliased)
+                out.push_back("Each one-unit increase in " + p.moderator + " changes the effect of " + p.focal +
+                              (run.fit.family == Family::Logistic ? " on the log-odds of " + p.outcome + " = 1"
+                                                                  : " on " + p.outcome) +
+                              " by " + format_sig(c.estimate) + " (" + ci_text(run.fit.level, c.ci_lower, c.ci_upper) +
+                              ", " + p_clause(c.p_value) + ").");
+        }
+    }
+    if (p.johnson_neyman) {
+        std::string s = "Among the observed values of " + p.moderator + " (" + format_range(lo, hi) + ")" +
+                        held_clause(a, run) + ", " + effect_of(p) + " " +
+                        significance_clause(a, run, p.johnson_neyman->significant) + " (" + level_text(p.level) +
+                        " pointwise intervals).";
+        out.push_back(s);
+        std::vector<std::string> outside;
+        for (std::size_t i = 0; i < p.johnson_neyman->boundaries.size(); ++i)
+            if (i < p.jn_beyond_data.size() && p.jn_beyond_data[i])
+                outside.push_back(format_sig(p.johnson_neyman->boundaries[i]));
+        if (!outside.empty())
+            out.push_back(std::string(outside.size() == 1 ? "The Johnson–Neyman boundary at " : "The Johnson–Neyman boundaries at ") +
+                          join_and(outside) + (outside.size() == 1 ? " lies" : " lie") + " beyond the data (" +
+                          p.moderator + " observed from " + format_range(lo, hi) + "): an extrapolation, not a finding.");
+    }
+    if (p.simultaneous)
+        out.push_back("With the simultaneous band, which keeps the chance of any false region at " +
+                      level_text(1 - p.level) + " (critical value " + format_sig(p.simultaneous->critical_value) +
+                      "), " + effect_of(p) + " " + significance_clause(a, run, p.simultaneous->significant) + ".");
+    if (prob && p.interaction_effect) {
+        const InteractionEffect& ie = *p.interaction_effect;
+        out.push_back("On the probability scale the interaction effect (" + ie.kind + ", " +
+                      (p.averaging == "values" ? "at the means" : "averaged over the observed rows") + ") is " +
+                      format_sig(ie.estimate) + " (" + ci_text(p.level, ie.ci_lower, ie.ci_upper) + ", " +
+                      p_clause(ie.p_value) + ").");
+    }
+    if (!p.effects.empty()) {
+        std::vector<std::string> at;
+        for (std::size_t i = 0; i < p.effects.size() && i < 5; ++i) {
+            const EffectPoint& e = p.effects[i];
+            at.push_back(format_sig(e.effect) + " (" + ci_text(p.level, e.ci_lower, e.ci_upper) + ") at " + p.moderator +
+                         " = " + moderator_value_label(p, e) + (e.beyond_data ? ", beyond the data" : ""));
+        }
+        std::string s = effect_of(p) + " at chosen values: " + join_and(at) + ".";
+        s[0] = 'T';
+        out.push_back(s);
+    }
+}
+
+void group_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
+    const ProbeResult& p = *run.probe;
+    std::vector<std::string> parts;
+    for (const auto& e : p.effects)
+        parts.push_back(format_sig(e.effect) + " (" + ci_text(p.level, e.ci_lower, e.ci_upper) + ") for " + p.moderator +
+                        " = " + moderator_value_label(p, e));
+    if (!parts.empty()) {
+        std::string s = (p.scale == "response" ? "The effect of " + p.focal + " on P(" + p.outcome + " = 1) is "
+                                               : "The effect of " + p.focal + " on " + p.outcome + " is ") +
+                        join_and(parts) + ".";
+        out.push_back(s);
+    }
+    const auto cols = product_columns(run.design, p.focal, p.moderator);
+    if (cols.size() == 1) {
+        const Coefficient& c = run.fit.coefficients[static_cast<std::size_t>(cols[0])];
+        if (!c.aliased)
+            out.push_back(std::string("The slopes differ by ") + format_sig(c.estimate) +
+                          (run.fit.family == Family::Logistic ? " on the log-odds scale" : "") + " (" +
+                          ci_text(run.fit.level, c.ci_lower, c.ci_upper) + ", " + p_clause(c.p_value) + ").");
+    } else if (cols.size() > 1 && run.fit.comparison) {
+        const WaldTest& w = run.fit.comparison->wald;
+        const bool chi = !std::isfinite(w.df2);
+        out.push_back("The joint test that the slopes are equal in every group gives " +
+                      std::string(chi ? "χ²(" + format_sig(w.df1) + ") = " + format_sig(w.chi_square)
+                                      : "F(" + format_sig(w.df1) + ", " + format_sig(w.df2) + ") = " + format_sig(w.statistic)) +
+                      ", " + p_clause(w.p_value) + ".");
+    }
+}
+
+void crossover_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
+    const ProbeResult& p = *run.probe;
+    const auto [flo, fhi] = p.focal_range;
+    int shown = 0;
+    for (const Crossover& c : p.crossovers) {
+        if (++shown > 3) break;
+        // c.groups: "g=0 vs g=1", or "lines at any two values of z" for a numeric moderator.
+        const std::string lines = c.groups.rfind("lines", 0) == 0 ? "The " + c.groups : "The lines for " + c.groups;
+        if (c.ci_kind == "none" || !std::isfinite(c.focal_value)) {
+            out.push_back(lines + " are parallel: they do not cross.");
+            continue;
+        }
+        std::string s = lines + " cross at " + p.focal + " = " + format_sig(c.focal_value);
+        const std::string lv = level_text(p.level);
+        if (c.ci_kind == "bounded")
+            s += " (" + lv + " Fieller interval " + format_range(c.ci_lower, c.ci_upper) + ")";
+        else if (c.ci_kind == "unbounded")
+            s += " (the " + lv + " Fieller interval is unbounded: " + p.focal + " below " + format_sig(c.ci_lower) +
+                 " or above " + format_sig(c.ci_upper) + ")";
+        else
+            s += " (the " + lv + " Fieller interval is the whole line: the crossing point is not pinned down)";
+        s += c.within_observed_range
+                 ? ", inside the observed " + p.focal + " values (" + format_range(flo, fhi) +
+                       "): the interaction is disordinal there."
+                 : ", outside the observed " + p.focal + " values (" + format_range(flo, fhi) +
+                       "): within the data the interaction is ordinal.";
+        out.push_back(s);
+        const auto gaps = clip(c.gap_regions.significant, flo, fhi);
+        std::vector<std::string> where;
+        for (const auto& g : gaps) where.push_back(region_words(g, p.focal));
+        out.push_back(where.empty() ? "Their predicted " + p.outcome + " does not differ anywhere in the observed " +
+                                          p.focal + " range."
+                                    : "Their predicted " + p.outcome + " differs " + join_and(where) + ".");
+    }
+}
+
+void cell_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
+    const CellTable& c = *run.cells;
+    const std::string scale = c.family == Family::Logistic ? " on the log-odds scale" : "";
+    int shown = 0;
+    for (const auto& i : c.interactions) {
+        if (++shown > 4) break;
+        if (!i.estimable) continue;
+        // The row effect of level i at the reference column level and at level j.
+        const SimpleEffect* at_ref = nullptr;
+        const SimpleEffect* at_j = nullptr;
+        for (const auto& s : c.row_effects) {
+            if (s.level != i.row_level) continue;
+            if (s.at_level == c.column_levels.front()) at_ref = &s;
+            if (s.at_level == i.column_level) at_j = &s;
+        }
+        std::string s;
+        if (at_ref && at_j && at_ref->estimable && at_j->estimable)
+            s = "Moving " + c.row_factor + " from " + c.row_levels.front() + " to " + i.row_level + " changes " +
+                run.design.outcome + " by " + format_sig(at_ref->estimate) + " when " + c.column_factor + " = " +
+                c.column_levels.front() + " and by " + format_sig(at_j->estimate) + " when " + c.column_factor + " = " +
+                i.column_level + scale + "; ";
+        s += std::string(s.empty() ? "T" : "t") + "he difference in differences is " + format_sig(i.estimate) + " (" +
+             ci_text(c.level, i.ci_lower, i.ci_upper) + ", " + p_clause(i.p_value) + ").";
+        out.push_back(s);
+    }
+}
+
+void comparison_sentence(const Analysis& a, const AnalysisRun& run, std::vector<std::string>& out) {
+    if (!run.fit.comparison) return;
+    const NestedComparison& c = *run.fit.comparison;
+    const std::string what = c.dropped_terms.size() == 1 ? "the interaction term" : "the interaction terms";
+    if (run.fit.family == Family::Linear) {
+        out.push_back("Adding " + what + " raises R² from " + format_sig(c.r_squared_reduced) + " to " +
+                      format_sig(run.fit.r_squared) + " (change " + format_sig(c.r_squared_change) + "; F(" +
+                      format_sig(c.df1) + ", " + format_sig(c.df2) + ") = " + format_sig(c.f_statistic) + ", " +
+                      p_clause(c.p_value) + ").");
+    } else {
+        out.push_back("Adding " + what + " improves the fit: likelihood-ratio χ²(" + format_sig(c.df1) + ") = " +
+                      format_sig(c.lr_statistic) + ", " + p_clause(c.lr_p_value) + ".");
+    }
+    if (a.se != SeKind::Classical && a.family == Family::Linear) {
+        const WaldTest& w = c.wald;
+        out.push_back("With " + se_description(run.fit, a.roles.clusters) + " standard errors the Wald test of " + what + " gives F(" +
+                      format_sig(w.df1) + ", " + format_sig(w.df2) + ") = " + format_sig(w.statistic) + ", " +
+                      p_clause(w.p_value) + ".");
+    }
+}
+
+std::string subscript(int k) {
+    static const char* const digits[] = {"\xE2\x82\x80", "\xE2\x82\x81", "\xE2\x82\x82", "\xE2\x82\x83",
+                                         "\xE2\x82\x84", "\xE2\x82\x85", "\xE2\x82\x86", "\xE2\x82\x87",
+                                         "\xE2\x82\x88", "\xE2\x82\x89"};
+    std::string out;
+    for (char c : std::to_string(k)) out += digits[c - '0'];
+    return out;
+}
+
+// "x×z" as \text{x} \times \text{z} (products outside \text, so any math renderer reads them).
+std::string latex_term(const std::string& term) {
+    static const std::string times = "\xC3\x97";
+    std::string out;
+    std::size_t from = 0;
+    while (true) {
+        const auto at = term.find(times, from);
+        out += "\\text{" + latex_escape(term.substr(from, at == std::string::npos ? std::string::npos : at - from)) + "}";
+        if (at == std::string::npos) break;
+        out += " \\times ";
+        from = at + times.size();
+    }
+    return out;
+}
+
+// The model as an equation in three notations.
+void equation(const AnalysisRun& run, Memo& m) {
+    const FitResult& f = run.fit;
+    const bool logistic = f.family == Family::Logistic;
+    const std::string y = run.design.outcome;
+    std::string lhs_text = logistic ? "logit P(" + y + " = 1)" : "E[" + y + "]";
+    std::string lhs_html = logistic ? "logit&nbsp;P(<i>" + html_escape(y) + "</i> = 1)" : "E[<i>" + html_escape(y) + "</i>]";
+    std::string lhs_latex = logistic ? "\\operatorname{logit} P(\\text{" + latex_escape(y) + "} = 1)"
+                                     : "\\mathrm{E}[\\text{" + latex_escape(y) + "}]";
+    std::string t = lhs_text + " = ", h = lhs_html + " = ", l = lhs_latex + " = ";
+    std::string fitted = (logistic ? "logit P(" + y + " = 1)" : y) + " \xE2\x89\x88 ";  // ≈
+    int k = 0;
+    for (std::size_t j = 0; j < f.coefficients.size(); ++j) {
+        const Coefficient& c = f.coefficients[j];
+        const bool intercept = c.term == "intercept";
+        const std::string plus = k ? " + " : "";
+        t += plus + "b" + subscript(k) + (intercept ? "" : "\xC2\xB7" + c.term);
+        h += plus + "<i>b</i><sub>" + std::to_string(k) + "</sub>" + (intercept ? "" : "&middot;" + html_escape(c.term));
+        l += plus + "b_{" + std::to_string(k) + "}" + (intercept ? "" : "\\," + latex_term(c.term));
+        if (!c.aliased) {
+            const std::string v = format_sig(std::fabs(c.estimate));
+            fitted += (k ? (c.estimate < 0 ? std::string(" ") + kMinus + " " : " + ")
+                         : (c.estimate < 0 ? std::string(kMinus) : "")) +
+                      v + (intercept ? "" : "\xC2\xB7" + c.term);
+        }
+        ++k;
+    }
+    m.equation_text = t;
+    m.equation_html = h;
+    m.equation_latex = l;
+    m.fitted_text = fitted;
+}
+
+void flatten(const nlohmann::json& j, const std::string& prefix, std::vector<std::pair<std::string, std::string>>& out) {
+    if (j.is_object()) {
+        for (auto it = j.begin(); it != j.end(); ++it) flatten(it.value(), prefix.empty() ? it.key() : prefix + "." + it.key(), out);
+    } else if (j.is_array() && !j.empty() && (j.front().is_object() || j.front().is_array())) {
+        for (std::size_t i = 0; i < j.size(); ++i) flatten(j[i], prefix + "[" + std::to_string(i) + "]", out);
+    } else if (j.is_string()) {
+        const std::string v = j.get<std::string>();
+        out.emplace_back(prefix, v.empty() ? std::string("(none)") : v);
+    } else if (j.is_array() && j.empty()) {
+        out.emplace_back(prefix, "(none)");
+    } else if (j.is_null()) {
+        out.emplace_back(prefix, "default");
+    } else {
+        out.emplace_back(prefix, j.dump());
+    }
+}
+
+}  // namespace
+
+std::vector<std::string> memo_findings(const Analysis& a, const AnalysisRun& run) {
+    std::vector<std::string> out;
+    switch (run.kind) {
+    case ProbeKind::Continuous:
+        if (run.probe) continuous_sentences(a, run, out);
+        if (run.probe) crossover_sentences(run, out);
+        break;
+    case ProbeKind::Groups:
+        if (run.probe) group_sentences(run, out);
+        if (run.probe) crossover_sentences(run, out);
+        break;
+    case ProbeKind::Cells:
+        if (run.cells) cell_sentences(run, out);
+        break;
+    }
+    comparison_sentence(a, run, out);
+    return out;
+}
+
+std::vector<std::string> memo_cautions(const Analysis& a, const AnalysisRun& run) {
+    std::vector<std::string> out = run.cautions;
+    auto said = [&](const char* word) {
+        return std::any_of(out.begin(), out.end(), [&](const std::string& s) { return s.find(word) != std::string::npos; });
+    };
+    if (!said("not causal"))
+        out.push_back("These are associations in observational data, not causal effects, unless the focal predictor "
+                      "was randomised.");
+    if (!said("extrapolation"))
+        out.push_back("Effects and boundaries outside the observed range of the moderator would be extrapolations; "
+                      "the statements above stay within it.");
+    if (run.kind == ProbeKind::Continuous && !said("many moderator values"))
+        out.push_back("Scanning many moderator values for significance inflates false positives; the simultaneous "
+                      "band guards against this.");
+    if (!said("observations,"))
+        out.push_back("Interaction estimates need large samples; with n = " +
+                      format_count(static_cast<long long>(run.fit.n)) +
+                      ", treat the boundaries of regions as approximate.");
+    if (a.family == Family::Logistic && !said("log-odds"))
+        out.push_back("In a logistic model the product coefficient (log-odds scale) is not the interaction on the "
+                      "probability scale; the probability-scale statements say how probabilities change.");
+    return out;
+}
+
+std::vector<std::pair<std::string, std::string>> analysis_options(const Project& project, const Analysis& a) {
+    const nlohmann::json doc = nlohmann::json::parse(project_to_json(project));
+    std::vector<std::pair<std::string, std::string>> out;
+    for (const auto& j : doc["analyses"])
+        if (j["id"] == a.id) flatten(j, "analysis", out);
+    for (const auto& j : doc["datasets"])
+        if (j["id"] == a.dataset) flatten(j, "dataset", out);
+    int k = 0;
+    for (const auto& j : doc["derived_columns"])
+        if (j["dataset"] == a.dataset) flatten(j, "derived[" + std::to_string(k++) + "]", out);
+    return out;
+}
+
+Memo build_memo(const Project& project, const Analysis& a, const AnalysisRun& run, const MemoContext& ctx,
+                std::vector<MemoFigure> figures) {
+    Memo m;
+    m.title = a.name.empty() ? a.id : a.name;
+    m.subtitle = ctx.caption;
+    m.notes = a.memo_notes;
+    m.findings = memo_findings(a, run);
+    equation(run, m);
+    m.tables = analysis_tables(a, run);
+    m.figures = std::move(figures);
+    m.cautions = memo_cautions(a, run);
+    m.footer.emplace_back("software", ctx.software);
+    m.footer.emplace_back("project file", ctx.project_file);
+    m.footer.emplace_back("data file", ctx.data_file);
+    m.footer.emplace_back("data SHA-256", ctx.data_sha256);
+    if (!ctx.recorded_sha256.empty())
+        m.footer.emplace_back("data SHA-256 as saved",
+                              ctx.recorded_sha256 == ctx.data_sha256
+                                  ? "matches"
+                                  : ctx.recorded_sha256 + " (differs: the data changed after the project was saved)");
+    m.footer.emplace_back("rows used", format_count(static_cast<long long>(run.fit.n)) + " of " +
+                                           format_count(static_cast<long long>(run.table ? run.table->rows() : 0)));
+    for (auto& kv : analysis_options(project, a)) m.footer.push_back(std::move(kv));
+    return m;
+}
+
+}  // namespace moderato

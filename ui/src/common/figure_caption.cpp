@@ -1,0 +1,33 @@
+#include "common/figure_caption.hpp"
+
+#include <QLocale>
+
+#include "moderato/reporting/analysis_tables.hpp"
+#include "common/held_value_text.hpp"
+
+namespace moderato::ui {
+
+QString seDescription(const Analysis& a, const AnalysisRun& run) {
+    return QString::fromStdString(se_description(run.fit, a.roles.clusters));
+}
+
+QString figureCaption(const Analysis& a, const AnalysisRun& run) {
+    const QString family = a.family == Family::Logistic ? QStringLiteral("Logistic") : QStringLiteral("Linear");
+    QString terms = QString::fromStdString(a.roles.focal) + QStringLiteral(" × ") + QString::fromStdString(a.roles.moderator);
+    if (!a.roles.second_moderator.empty()) terms += QStringLiteral(" × ") + QString::fromStdString(a.roles.second_moderator);
+    QString text = QStringLiteral("%1 model of %2 on %3").arg(family, QString::fromStdString(a.roles.outcome), terms);
+    if (!a.roles.controls.empty())
+        text += a.roles.controls.size() == 1 ? QStringLiteral(" (+1 control)")
+                                              : QStringLiteral(" (+%1 controls)").arg(a.roles.controls.size());
+    if (!a.roles.weights.empty()) text += QStringLiteral(", weighted by %1").arg(QString::fromStdString(a.roles.weights));
+    // A three-way model's figures hold the second moderator at one value: say which.
+    const QString held = heldValueText(a, run.design);
+    if (!held.isEmpty()) text += QStringLiteral(", ") + held;
+    text += QStringLiteral(" · %1 SEs · %2% intervals · n = %3")
+                .arg(seDescription(a, run))
+                .arg(QLocale::c().toString(100.0 * a.level, 'g', 4))
+                .arg(QLocale(QLocale::English).toString(static_cast<qulonglong>(run.fit.n)));
+    return text;
+}
+
+}  // namespace moderato::ui

@@ -1,0 +1,17 @@
+// The caption under an exported figure and the statement at the top of a
+// readout: model, SE kind, level, n — so a figure explains itself.
+#pragma once
+
+#include <QString>
+
+#include "moderato/project/analysis_run.hpp"
+
+namespace moderato::ui {
+
+// "Linear model of y on x × z (+2 controls) · HC3 SEs · 95% intervals · n = 1,200";
+// with a second moderator: "… on x × z × w, w held at 3.2 (mean + 1 SD) · …"
+QString figureCaption(const Analysis& analysis, const AnalysisRun& run);
+// "HC3" / "classical" / "cluster-robust (shop, 40 clusters)" / "model-based"
+QString seDescription(const Analysis& analysis, const AnalysisRun& run);
+
+}  // namespace moderato::ui
