@@ -18,8 +18,8 @@ public:
               const std::set<std::string>& valued, const std::set<std::string>& repeatable = {});
 
     bool has(const std::string& name) const { return values_.count(name) > 0; }
-    std::optional<std::string> get(const std::string& name) const;   // last occurrence
-    std::vector<std::string> all(const std::string& name) const;     // every occurrence
+    std::optional<std::string> get(const std::string& name) const;  // last occurrence
+    std::vector<std::string> all(const std::string& name) const;    // every occurrence
     std::string required(const std::string& name) const;
     std::vector<std::string> positional;
 

@@ -4,8 +4,8 @@
 
 #include "commands.hpp"
 #include "model_options.hpp"
-#include "moderato/support/error.hpp"
 #include "moderato/reporting/json_writer.hpp"
+#include "moderato/support/error.hpp"
 
 namespace moderato::cli {
 
@@ -23,8 +23,8 @@ int run_describe(const std::vector<std::string>& args) {
     w.field("data", a.required("data"));
     w.field("rows", t.rows());
     w.key("columns").begin_array();
-    std::string text = a.required("data") + ": " + std::to_string(t.rows()) + " rows, " +
-                       std::to_string(t.cols()) + " columns\n";
+    std::string text =
+        a.required("data") + ": " + std::to_string(t.rows()) + " rows, " + std::to_string(t.cols()) + " columns\n";
     for (const auto& c : t.columns) {
         const std::size_t missing = c.missing_count();
         w.begin_object();
@@ -49,7 +49,8 @@ int run_describe(const std::vector<std::string>& args) {
                 if (!std::isnan(v)) ss += (v - mean) * (v - mean);
             const double sd = n > 1 ? std::sqrt(static_cast<double>(ss / (n - 1))) : NAN;
             w.field("mean", mean).field("sd", sd).field("min", lo).field("max", hi);
-            std::snprintf(line, sizeof line, "  %-24s numeric      n %zu, missing %zu, mean %.6g, SD %.6g, range %.6g to %.6g\n",
+            std::snprintf(line, sizeof line,
+                          "  %-24s numeric      n %zu, missing %zu, mean %.6g, SD %.6g, range %.6g to %.6g\n",
                           c.name.c_str(), n, missing, mean, sd, lo, hi);
         } else {
             w.field("levels", c.levels.size());

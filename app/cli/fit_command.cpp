@@ -4,8 +4,8 @@
 #include "model_options.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/reporting/fit_report.hpp"
-#include "moderato/support/error.hpp"
 #include "moderato/reporting/json_writer.hpp"
+#include "moderato/support/error.hpp"
 
 namespace moderato::cli {
 

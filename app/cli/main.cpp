@@ -84,7 +84,8 @@ int main(int argc, char** argv) {
     std::vector<std::string> args(argv + 1, argv + argc);
     try {
         if (args.empty()) {
-            std::cerr << "moderato-cli: no command given; commands are fit, probe, power, describe and render (see --help)\n";
+            std::cerr
+                << "moderato-cli: no command given; commands are fit, probe, power, describe and render (see --help)\n";
             return 2;
         }
         if (args[0] == "--help" || args[0] == "-h" || args[0] == "help") {

@@ -38,8 +38,8 @@ std::string product_sign(std::string s) {
 }  // namespace
 
 std::set<std::string> repeatable_options() {
-    return {"missing", "categorical", "numeric", "interaction", "poly", "reference", "centre", "standardise", "log",
-            "log1p", "test"};
+    return {"missing", "categorical", "numeric", "interaction", "poly", "reference",
+            "centre",  "standardise", "log",     "log1p",       "test"};
 }
 
 std::set<std::string> import_flags() { return {"no-header", "decimal-comma"}; }
@@ -51,8 +51,8 @@ std::set<std::string> model_flags() {
 }
 std::set<std::string> model_valued() {
     auto s = import_valued();
-    for (const char* o : {"outcome", "predictors", "interaction", "poly", "family", "se", "cluster", "weights",
-                          "level", "reference", "centre", "standardise", "log", "log1p", "test", "format"})
+    for (const char* o : {"outcome", "predictors", "interaction", "poly", "family", "se", "cluster", "weights", "level",
+                          "reference", "centre", "standardise", "log", "log1p", "test", "format"})
         s.insert(o);
     return s;
 }
@@ -119,7 +119,11 @@ LoadedModel load_model(const Arguments& args) {
         }
         const double used = centre_value(c, at, value);
         replace(centre(c, at, value, col), col);
-        m.notes.push_back(col + " is centred at " + (at == CentreAt::Mean ? "its mean " : at == CentreAt::Median ? "its median " : "") + fmt(used));
+        m.notes.push_back(col + " is centred at " +
+                          (at == CentreAt::Mean     ? "its mean "
+                           : at == CentreAt::Median ? "its median "
+                                                    : "") +
+                          fmt(used));
     }
     for (const auto& list : args.all("standardise"))
         for (const auto& col : split_list(list, "standardise")) {

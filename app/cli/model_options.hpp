@@ -7,10 +7,10 @@
 #include <vector>
 
 #include "arguments.hpp"
-#include "moderato/reading/csv.hpp"
-#include "moderato/reporting/json_writer.hpp"
 #include "moderato/estimation/model.hpp"
+#include "moderato/reading/csv.hpp"
 #include "moderato/reading/table.hpp"
+#include "moderato/reporting/json_writer.hpp"
 
 namespace moderato::cli {
 
@@ -27,7 +27,7 @@ Table load_table(const Arguments& args);
 struct LoadedModel {
     Table table;
     ModelSpec spec;
-    std::vector<std::string> notes;   // what the column transforms did
+    std::vector<std::string> notes;  // what the column transforms did
 };
 
 // load_table, then the transforms (--centre, --standardise, --log, --log1p)

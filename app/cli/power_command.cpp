@@ -18,9 +18,9 @@
 #include "arguments.hpp"
 #include "commands.hpp"
 #include "model_options.hpp"
-#include "moderato/support/error.hpp"
-#include "moderato/reporting/json_writer.hpp"
 #include "moderato/probing/power.hpp"
+#include "moderato/reporting/json_writer.hpp"
+#include "moderato/support/error.hpp"
 
 namespace moderato::cli {
 namespace {
@@ -36,9 +36,12 @@ enum class Mode { power, sample_size, detectable };
 
 std::string mode_name(Mode m) {
     switch (m) {
-        case Mode::power: return "power";
-        case Mode::sample_size: return "sample_size";
-        case Mode::detectable: return "detectable_effect";
+        case Mode::power:
+            return "power";
+        case Mode::sample_size:
+            return "sample_size";
+        case Mode::detectable:
+            return "detectable_effect";
     }
     return "";
 }
@@ -63,11 +66,10 @@ std::string plural(long long count, const std::string& word) {
 }  // namespace
 
 int run_power(const std::vector<std::string>& args) {
-    const Arguments a(args, {"detectable"},
-                      {"f2", "r2-full", "r2-reduced", "tested", "predictors", "alpha", "n", "power", "noncentrality",
-                       "format"});
-    if (!a.positional.empty())
-        throw InputError("unexpected argument '" + a.positional.front() + "'\n" + kPowerUsage);
+    const Arguments a(
+        args, {"detectable"},
+        {"f2", "r2-full", "r2-reduced", "tested", "predictors", "alpha", "n", "power", "noncentrality", "format"});
+    if (!a.positional.empty()) throw InputError("unexpected argument '" + a.positional.front() + "'\n" + kPowerUsage);
     const std::string format = output_format(a);
 
     // What to compute.
@@ -75,12 +77,16 @@ int run_power(const std::vector<std::string>& args) {
     Mode mode;
     if (detectable) {
         if (!has_n || !has_power)
-            throw InputError("--detectable needs both --n and --power (the smallest f2 detectable with N observations "
-                             "at power P)\n" + std::string(kPowerUsage));
+            throw InputError(
+                "--detectable needs both --n and --power (the smallest f2 detectable with N observations "
+                "at power P)\n" +
+                std::string(kPowerUsage));
         mode = Mode::detectable;
     } else if (has_n && has_power) {
-        throw InputError("--n and --power together need --detectable (smallest detectable f2); give only --n to "
-                         "compute power, or only --power to compute the sample size\n" + std::string(kPowerUsage));
+        throw InputError(
+            "--n and --power together need --detectable (smallest detectable f2); give only --n to "
+            "compute power, or only --power to compute the sample size\n" +
+            std::string(kPowerUsage));
     } else if (has_n) {
         mode = Mode::power;
     } else if (has_power) {
@@ -92,8 +98,10 @@ int run_power(const std::vector<std::string>& args) {
 
     // The design.
     if (!a.has("predictors"))
-        throw InputError("option --predictors is required: the number of predictors in the full model, tested "
-                         "terms included, intercept excluded\n" + std::string(kPowerUsage));
+        throw InputError(
+            "option --predictors is required: the number of predictors in the full model, tested "
+            "terms included, intercept excluded\n" +
+            std::string(kPowerUsage));
     PowerDesign design;
     design.total_predictors = parse_integer(a.required("predictors"), "predictors", 1, 100000);
     design.tested_terms = a.has("tested") ? parse_integer(a.required("tested"), "tested", 1, 100000) : 1;
@@ -114,8 +122,9 @@ int run_power(const std::vector<std::string>& args) {
             f2 = parse_double(a.required("f2"), "f2");
         } else if (has_r2) {
             if (!a.has("r2-full") || !a.has("r2-reduced"))
-                throw InputError("--r2-full and --r2-reduced go together: give both (the R² with and without the "
-                                 "tested terms), or give --f2");
+                throw InputError(
+                    "--r2-full and --r2-reduced go together: give both (the R² with and without the "
+                    "tested terms), or give --f2");
             r2_full = parse_double(a.required("r2-full"), "r2-full");
             r2_reduced = parse_double(a.required("r2-reduced"), "r2-reduced");
             f2 = f2_from_r2(*r2_full, *r2_reduced);
@@ -136,14 +145,18 @@ int run_power(const std::vector<std::string>& args) {
     PowerResult r;
     double power_one_fewer = std::nan("");
     switch (mode) {
-        case Mode::power: r = power_of_test(*f2, *n, design); break;
+        case Mode::power:
+            r = power_of_test(*f2, *n, design);
+            break;
         case Mode::sample_size: {
             const auto s = smallest_n_for_power(*f2, *target, design);
             r = s.at_n;
             power_one_fewer = s.power_one_fewer;
             break;
         }
-        case Mode::detectable: r = smallest_detectable_f2(*n, *target, design).at_f2; break;
+        case Mode::detectable:
+            r = smallest_detectable_f2(*n, *target, design).at_f2;
+            break;
     }
     const double partial_r2 = partial_r2_from_f2(r.f2);
 
@@ -202,7 +215,8 @@ int run_power(const std::vector<std::string>& args) {
     row("alpha", num(r.alpha));
     if (mode == Mode::sample_size) {
         std::string note;
-        if (!std::isnan(power_one_fewer)) note = "  (with " + std::to_string(r.n - 1) + ": " + power_text(power_one_fewer) + ")";
+        if (!std::isnan(power_one_fewer))
+            note = "  (with " + std::to_string(r.n - 1) + ": " + power_text(power_one_fewer) + ")";
         row("n", std::to_string(r.n) + note);
     } else {
         row("n", std::to_string(r.n));
@@ -212,8 +226,9 @@ int run_power(const std::vector<std::string>& args) {
                              (r.convention == Noncentrality::cohen ? "Cohen's convention" : "n convention") + ")");
     row("critical F", num(r.critical_f));
     row("power", power_text(r.power));
-    text += "Assumes a linear model with normal errors of constant variance; f2 is the variance the tested terms\n"
-            "explain, relative to the variance the full model leaves unexplained.\n";
+    text +=
+        "Assumes a linear model with normal errors of constant variance; f2 is the variance the tested terms\n"
+        "explain, relative to the variance the full model leaves unexplained.\n";
     std::cout << text;
     return 0;
 }

@@ -1,20 +1,20 @@
 #include <cmath>
 #include <cstdint>
-#include <optional>
 #include <iostream>
+#include <optional>
 
 #include "commands.hpp"
 #include "model_options.hpp"
-#include "moderato/probing/cells.hpp"
-#include "moderato/reporting/cells_report.hpp"
-#include "moderato/support/error.hpp"
 #include "moderato/estimation/fit.hpp"
-#include "moderato/reporting/json_writer.hpp"
+#include "moderato/probing/cells.hpp"
 #include "moderato/probing/probe.hpp"
 #include "moderato/probing/probe_bootstrap.hpp"
-#include "moderato/reporting/bootstrap_report.hpp"
-#include "moderato/reporting/probe_report.hpp"
 #include "moderato/probing/response_scale.hpp"
+#include "moderato/reporting/bootstrap_report.hpp"
+#include "moderato/reporting/cells_report.hpp"
+#include "moderato/reporting/json_writer.hpp"
+#include "moderato/reporting/probe_report.hpp"
+#include "moderato/support/error.hpp"
 
 namespace moderato::cli {
 
@@ -59,8 +59,7 @@ int run_probe(const std::vector<std::string>& args) {
     if (design.categorical(ps.moderator) && (a.has("at") || a.has("at-percentiles")))
         throw InputError("--at and --at-percentiles need a numeric moderator; '" + ps.moderator +
                          "' is categorical, and its effects are given at every level");
-    if (a.has("at") && a.has("at-percentiles"))
-        throw InputError("give either --at or --at-percentiles, not both");
+    if (a.has("at") && a.has("at-percentiles")) throw InputError("give either --at or --at-percentiles, not both");
     if (auto at = a.get("at"))
         for (const auto& v : split_list(*at, "at")) ps.at.push_back(parse_double(v, "at"));
     if (auto pct = a.get("at-percentiles")) {
@@ -68,7 +67,8 @@ int run_probe(const std::vector<std::string>& args) {
             throw InputError("--at-percentiles needs a numeric moderator; '" + ps.moderator + "' is categorical");
         for (const auto& v : split_list(*pct, "at-percentiles")) {
             const double p = parse_double(v, "at-percentiles");
-            if (p < 0 || p > 100) throw InputError("option --at-percentiles takes percentiles from 0 to 100, got '" + v + "'");
+            if (p < 0 || p > 100)
+                throw InputError("option --at-percentiles takes percentiles from 0 to 100, got '" + v + "'");
             ps.at.push_back(design.percentile(ps.moderator, p));
         }
     }
@@ -88,8 +88,9 @@ int run_probe(const std::vector<std::string>& args) {
     if (average != "sample" && average != "values")
         throw InputError("option --average must be sample or values, got '" + average + "'");
     if (scale == "response" && m.spec.family != Family::Logistic)
-        throw InputError("--scale response applies to logistic models (--family logistic); a linear model's effects "
-                         "are already on the outcome's scale");
+        throw InputError(
+            "--scale response applies to logistic models (--family logistic); a linear model's effects "
+            "are already on the outcome's scale");
     std::optional<BootstrapOptions> boot;
     if (auto n = a.get("bootstrap")) {
         boot.emplace();

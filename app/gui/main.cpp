@@ -8,8 +8,8 @@
 
 #include <cstring>
 
-#include "shell/main_window.hpp"
 #include "shell/app_style.hpp"
+#include "shell/main_window.hpp"
 
 #ifndef MODERATO_APP_ID
 #error "MODERATO_APP_ID (the desktop id) is defined by cmake/Packaging.cmake"
@@ -30,7 +30,8 @@ void describeOptions(QCommandLineParser& parser) {
     parser.addHelpOption();
     parser.addVersionOption();
     parser.addPositionalArgument(QStringLiteral("file"),
-                                 QStringLiteral("A project (.moderato) or a data file (CSV/TSV) to open."), QStringLiteral("[file]"));
+                                 QStringLiteral("A project (.moderato) or a data file (CSV/TSV) to open."),
+                                 QStringLiteral("[file]"));
 }
 
 // True when the command line only asks for text (--help, --version): that

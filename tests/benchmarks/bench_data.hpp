@@ -53,15 +53,15 @@ public:
     Row next() {
         Row r;
         const double z1 = normal(), z2 = normal();
-        r.x1 = z1;                                      // N(0, 1)
-        r.x2 = 0.3 * z1 + std::sqrt(1.0 - 0.09) * z2;   // N(0, 1), corr 0.3 with x1
-        r.x3 = 10.0 * uniform();                        // U(0, 10): not centred
+        r.x1 = z1;                                     // N(0, 1)
+        r.x2 = 0.3 * z1 + std::sqrt(1.0 - 0.09) * z2;  // N(0, 1), corr 0.3 with x1
+        r.x3 = 10.0 * uniform();                       // U(0, 10): not centred
         r.treated = uniform() < 0.4 ? 1 : 0;
-        r.c[0] = normal();                               // N(0, 1)
-        r.c[1] = std::exp(0.5 * normal());               // lognormal
-        r.c[2] = 2.0 * uniform() - 1.0;                  // U(-1, 1)
-        r.c[3] = std::floor(18.0 + 50.0 * uniform());    // whole numbers 18..67 ("age")
-        r.c[4] = std::floor(4.0 * uniform());            // whole numbers 0..3 ("count")
+        r.c[0] = normal();                             // N(0, 1)
+        r.c[1] = std::exp(0.5 * normal());             // lognormal
+        r.c[2] = 2.0 * uniform() - 1.0;                // U(-1, 1)
+        r.c[3] = std::floor(18.0 + 50.0 * uniform());  // whole numbers 18..67 ("age")
+        r.c[4] = std::floor(4.0 * uniform());          // whole numbers 0..3 ("count")
         r.cluster_id = 1 + static_cast<int>(below(kClusters));
         r.region = static_cast<int>(below(kRegions.size()));
         static constexpr double kRegionShift[5] = {0.0, 0.2, -0.1, 0.3, -0.2};
@@ -89,7 +89,8 @@ private:
             return spare_;
         }
         double u1 = 0;
-        do u1 = uniform(); while (u1 <= 0.0);
+        do u1 = uniform();
+        while (u1 <= 0.0);
         const double u2 = uniform();
         const double radius = std::sqrt(-2.0 * std::log(u1));
         const double angle = 2.0 * std::numbers::pi * u2;

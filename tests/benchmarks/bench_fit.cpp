@@ -49,9 +49,8 @@ const Table& bench_table(std::size_t rows) {
     moderato::bench::Generator gen;
     for (std::size_t i = 0; i < rows; ++i) {
         const auto r = gen.next();
-        const double values[] = {r.y,      r.x1,     r.x2,     r.x3,     static_cast<double>(r.treated),
-                                 r.c[0],   r.c[1],   r.c[2],   r.c[3],   r.c[4],
-                                 static_cast<double>(r.cluster_id)};
+        const double values[] = {r.y,    r.x1,   r.x2,   r.x3,   static_cast<double>(r.treated),   r.c[0],
+                                 r.c[1], r.c[2], r.c[3], r.c[4], static_cast<double>(r.cluster_id)};
         for (std::size_t j = 0; j < std::size(values); ++j) t.columns[j].numbers.push_back(values[j]);
         region.codes.push_back(r.region);
     }

@@ -39,10 +39,10 @@
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "moderato/project/analysis_run.hpp"
-#include "moderato/reading/csv.hpp"
-#include "moderato/support/file_util.hpp"
 #include "moderato/project/project.hpp"
 #include "moderato/project/project_loader.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/support/file_util.hpp"
 #include "shell/main_window.hpp"
 
 namespace fs = std::filesystem;
@@ -155,13 +155,14 @@ OpenTiming time_open(const QString& project, const QString& id) {
 }
 
 void usage(std::FILE* to) {
-    std::fputs("usage: moderato_bench_open [--rows N] [--repeats R] [--dir DIR] [--keep]\n"
-               "  --rows N     data rows (default 1000000)\n"
-               "  --repeats R  runs of each measurement; medians are reported (default 3)\n"
-               "  --dir DIR    folder for the CSV and the project (default: a new temporary folder)\n"
-               "  --keep       keep the files afterwards\n"
-               "  --json FILE  also write the results as JSON\n",
-               to);
+    std::fputs(
+        "usage: moderato_bench_open [--rows N] [--repeats R] [--dir DIR] [--keep]\n"
+        "  --rows N     data rows (default 1000000)\n"
+        "  --repeats R  runs of each measurement; medians are reported (default 3)\n"
+        "  --dir DIR    folder for the CSV and the project (default: a new temporary folder)\n"
+        "  --keep       keep the files afterwards\n"
+        "  --json FILE  also write the results as JSON\n",
+        to);
 }
 
 }  // namespace
@@ -227,7 +228,8 @@ int main(int argc, char** argv) {
 
     const QString id = QString::fromStdString(p.analyses.front().id);
     std::vector<double> open, load, result, paint, read, hash, fit;
-    std::printf("| run | open (s) | = load | + first result | + paint | read_csv (s) | sha256_file (s) | run_analysis (s) |\n");
+    std::printf(
+        "| run | open (s) | = load | + first result | + paint | read_csv (s) | sha256_file (s) | run_analysis (s) |\n");
     std::printf("| --- | --- | --- | --- | --- | --- | --- | --- |\n");
     for (int r = 0; r < repeats; ++r) {
         const OpenTiming o = time_open(QString::fromStdString(project), id);
@@ -256,8 +258,8 @@ int main(int argc, char** argv) {
         std::fflush(stdout);
     }
     const double m_open = median(open), m_read = median(read);
-    std::printf("| median | %.3f | %.3f | %.3f | %.3f | %.3f | %.3f | %.3f |\n\n", m_open, median(load),
-                median(result), median(paint), m_read, median(hash), median(fit));
+    std::printf("| median | %.3f | %.3f | %.3f | %.3f | %.3f | %.3f | %.3f |\n\n", m_open, median(load), median(result),
+                median(paint), m_read, median(hash), median(fit));
     std::printf("open / read_csv = %.2f; sha256_file / read_csv = %.2f\n", m_open / m_read, median(hash) / m_read);
     std::printf("target: open <= 3 s (until interactive): %s (median %.2f s)\n", m_open <= 3.0 ? "met" : "MISSED",
                 m_open);

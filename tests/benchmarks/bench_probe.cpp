@@ -129,8 +129,7 @@ void BM_ProbeFrame(benchmark::State& state) {
     // What the frame found (the same every iteration): region boundaries.
     state.counters["jn_bounds"] =
         static_cast<double>(moderato::significance_regions(f, m.fit.critical_value).boundaries.size());
-    state.counters["band_bounds"] =
-        static_cast<double>(moderato::significance_regions(f, band_q).boundaries.size());
+    state.counters["band_bounds"] = static_cast<double>(moderato::significance_regions(f, band_q).boundaries.size());
 }
 
 void BM_ProbeEffectFunction(benchmark::State& state) {
@@ -338,8 +337,9 @@ void print_speedup() {
     if (std::isfinite(i1) && std::isfinite(i2))
         std::printf("without the run-queue wait (an idle machine, estimated): %.3f s / %.3f s = %.2fx\n", i1, i2,
                     i1 / i2);
-    std::printf("(main queued: share of wall the calling thread waited for a CPU, i.e. other work on the machine;\n"
-                " main blocked: share it slept, i.e. waited for the other worker at the end of a wave or in the kernel)\n");
+    std::printf(
+        "(main queued: share of wall the calling thread waited for a CPU, i.e. other work on the machine;\n"
+        " main blocked: share it slept, i.e. waited for the other worker at the end of a wave or in the kernel)\n");
 }
 
 }  // namespace

@@ -16,6 +16,7 @@
 //   moderato_bench_drag [--rows N] [--frames N] [--seed S] [--json FILE] [--screenshot FILE.png]
 //
 // Targets (issue 4): layered frame median <= 8 ms, p95 <= 16 ms.
+#include <qcustomplot.h>
 #include <QApplication>
 #include <QElapsedTimer>
 #include <QEvent>
@@ -28,7 +29,6 @@
 #include <cstdio>
 #include <cstdlib>
 #include <memory>
-#include <qcustomplot.h>
 #include <random>
 #include <string>
 #include <vector>
@@ -123,7 +123,9 @@ int main(int argc, char** argv) {
         else if (a == QStringLiteral("--json") && hasValue) jsonPath = args[++i];
         else if (a == QStringLiteral("--screenshot") && hasValue) screenshotPath = args[++i];
         else {
-            std::fprintf(stderr, "usage: moderato_bench_drag [--rows N] [--frames N] [--seed S] [--json FILE] [--screenshot FILE.png]\n");
+            std::fprintf(stderr,
+                         "usage: moderato_bench_drag [--rows N] [--frames N] [--seed S] [--json FILE] [--screenshot "
+                         "FILE.png]\n");
             return 2;
         }
     }
@@ -253,10 +255,14 @@ int main(int argc, char** argv) {
         if (std::fscanf(f, "%lf %lf %lf", &load[0], &load[1], &load[2]) != 3) load[0] = -1;
         std::fclose(f);
     }
-    std::printf("Probe section drag: %zu rows (continuous x continuous, HC3), data points %s, window 1400 x 900, "
-                "platform %s\n",
-                rows, lines->pointsMode() == 2 ? "binned into counts" : lines->pointsMode() == 1 ? "drawn" : "off",
-                qPrintable(QGuiApplication::platformName()));
+    std::printf(
+        "Probe section drag: %zu rows (continuous x continuous, HC3), data points %s, window 1400 x 900, "
+        "platform %s\n",
+        rows,
+        lines->pointsMode() == 2   ? "binned into counts"
+        : lines->pointsMode() == 1 ? "drawn"
+                                   : "off",
+        qPrintable(QGuiApplication::platformName()));
     std::printf("setup: table + fit + probe %.0f ms; section shown %.0f ms\n", fitMs, showMs);
     std::printf("frames: %d timed (after 20 warm-up), each a mouse move on the Effect plot, recompute, repaint\n\n",
                 frames);
@@ -277,10 +283,11 @@ int main(int argc, char** argv) {
         QSaveFile out(jsonPath);
         if (out.open(QIODevice::WriteOnly)) {
             const QString json =
-                QStringLiteral("{\n  \"rows\": %1,\n  \"frames\": %2,\n  \"layered_ms\": {\"median\": %3, \"p95\": %4, "
-                               "\"mean\": %5, \"max\": %6},\n  \"full_ms\": {\"median\": %7, \"p95\": %8, \"mean\": %9, "
-                               "\"max\": %10},\n  \"ratio_median\": %11,\n  \"ratio_p95\": %12,\n  \"recompute_us\": %13,\n"
-                               "  \"missed_paints\": %14,\n  \"targets_met\": %15,\n  \"load_average\": %16\n}\n")
+                QStringLiteral(
+                    "{\n  \"rows\": %1,\n  \"frames\": %2,\n  \"layered_ms\": {\"median\": %3, \"p95\": %4, "
+                    "\"mean\": %5, \"max\": %6},\n  \"full_ms\": {\"median\": %7, \"p95\": %8, \"mean\": %9, "
+                    "\"max\": %10},\n  \"ratio_median\": %11,\n  \"ratio_p95\": %12,\n  \"recompute_us\": %13,\n"
+                    "  \"missed_paints\": %14,\n  \"targets_met\": %15,\n  \"load_average\": %16\n}\n")
                     .arg(rows)
                     .arg(frames)
                     .arg(L.median)

@@ -7,6 +7,7 @@
 //
 // Without --out the table goes to standard output; with it the file is
 // written under a temporary name and renamed into place when complete.
+#include <unistd.h>
 #include <cerrno>
 #include <charconv>
 #include <cstdint>
@@ -18,18 +19,18 @@
 #include <string>
 #include <string_view>
 #include <system_error>
-#include <unistd.h>
 
 #include "bench_data.hpp"
 
 namespace {
 
 void usage(std::FILE* to) {
-    std::fputs("usage: make_bench_table [--rows N] [--seed S] [--out FILE]\n"
-               "  --rows N    data rows (default 1000000)\n"
-               "  --seed S    seed of std::mt19937_64 (default 20240917)\n"
-               "  --out FILE  write FILE (atomically) instead of standard output\n",
-               to);
+    std::fputs(
+        "usage: make_bench_table [--rows N] [--seed S] [--out FILE]\n"
+        "  --rows N    data rows (default 1000000)\n"
+        "  --seed S    seed of std::mt19937_64 (default 20240917)\n"
+        "  --out FILE  write FILE (atomically) instead of standard output\n",
+        to);
 }
 
 bool parse_u64(const char* text, std::uint64_t& out) {

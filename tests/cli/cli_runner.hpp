@@ -35,9 +35,9 @@
 namespace moderato::test {
 
 struct RunOptions {
-    std::string cwd;                               // empty: the test's own working directory
-    std::chrono::milliseconds timeout{120'000};    // generous: sanitizer builds are slow
-    std::vector<std::string> environment;          // "NAME=value" set for the child (over the inherited ones)
+    std::string cwd;                             // empty: the test's own working directory
+    std::chrono::milliseconds timeout{120'000};  // generous: sanitizer builds are slow
+    std::vector<std::string> environment;        // "NAME=value" set for the child (over the inherited ones)
 };
 
 struct RunResult {
@@ -68,7 +68,8 @@ inline std::string read_whole(const std::string& path) {
 
 // A new empty temporary file; returns its path.
 inline std::string make_temp(const char* tag) {
-    std::string templ = (std::filesystem::temp_directory_path() / (std::string("moderato-cli-") + tag + "-XXXXXX")).string();
+    std::string templ =
+        (std::filesystem::temp_directory_path() / (std::string("moderato-cli-") + tag + "-XXXXXX")).string();
     std::vector<char> buf(templ.begin(), templ.end());
     buf.push_back('\0');
     const int fd = ::mkstemp(buf.data());
@@ -172,8 +173,8 @@ inline RunResult run_cli(const std::vector<std::string>& args, RunOptions option
 struct FileSnapshot {
     bool exists = false;
     bool is_directory = false;
-    std::string bytes;                    // regular files
-    std::vector<std::string> entries;     // directories: sorted names
+    std::string bytes;                 // regular files
+    std::vector<std::string> entries;  // directories: sorted names
     long long mtime_sec = 0, mtime_nsec = 0;
 
     static FileSnapshot take(const std::string& path) {
@@ -185,7 +186,8 @@ struct FileSnapshot {
         s.mtime_nsec = static_cast<long long>(st.st_mtim.tv_nsec);
         if (S_ISDIR(st.st_mode)) {
             s.is_directory = true;
-            for (const auto& e : std::filesystem::directory_iterator(path)) s.entries.push_back(e.path().filename().string());
+            for (const auto& e : std::filesystem::directory_iterator(path))
+                s.entries.push_back(e.path().filename().string());
             std::sort(s.entries.begin(), s.entries.end());
         } else {
             s.bytes = detail::read_whole(path);

@@ -26,8 +26,8 @@
 namespace {
 
 using moderato::test::FileSnapshot;
-using moderato::test::RunOptions;
 using moderato::test::run_cli;
+using moderato::test::RunOptions;
 
 struct BadCase {
     const char* name;               // test name (ctest lists each separately)
@@ -222,8 +222,8 @@ const std::vector<BadCase> kCases = {
      "ok/exact_interaction.csv",
      "moderato-cli: option --level needs a number, got 'abc'"},
     {"hc3_with_cluster",
-     {"fit", "--data", "ok/exact_interaction.csv", "--outcome", "y", "--predictors", "x", "--se", "hc3",
-      "--cluster", "z"},
+     {"fit", "--data", "ok/exact_interaction.csv", "--outcome", "y", "--predictors", "x", "--se", "hc3", "--cluster",
+      "z"},
      "ok/exact_interaction.csv",
      "moderato-cli: --se hc3 and --cluster z ask for two kinds of standard error; choose one"},
     {"se_cluster_without_cluster_column",
@@ -231,8 +231,8 @@ const std::vector<BadCase> kCases = {
      "ok/exact_interaction.csv",
      "moderato-cli: cluster-robust standard errors need a cluster column; name one with --cluster"},
     {"hc3_for_logistic",
-     {"fit", "--data", "ok/logistic_small.csv", "--outcome", "y", "--predictors", "x", "--family", "logistic",
-      "--se", "hc3"},
+     {"fit", "--data", "ok/logistic_small.csv", "--outcome", "y", "--predictors", "x", "--family", "logistic", "--se",
+      "hc3"},
      "ok/logistic_small.csv",
      "moderato-cli: hc3 is not offered for logistic models; use classical (model-based), hc0 or hc1 (sandwich), "
      "or cluster"},
@@ -373,7 +373,8 @@ TEST_P(BadInput, Rejects) {
     if (!input.empty()) {
         EXPECT_TRUE(FileSnapshot::take(input) == input_before) << input << " changed";
     }
-    EXPECT_EQ(FileSnapshot::take(parent).entries, parent_before.entries) << "files appeared in or vanished from " << parent;
+    EXPECT_EQ(FileSnapshot::take(parent).entries, parent_before.entries)
+        << "files appeared in or vanished from " << parent;
 }
 
 // gtest names the cases Corpus/BadInput.Rejects/0, /1, ...; PrintTo gives
@@ -391,7 +392,11 @@ TEST(BadInputCorpus, FilesHoldTheirDefects) {
     const std::string header = FileSnapshot::take((bad / "invalid_utf8_header.csv").string()).bytes;
     EXPECT_EQ(header.rfind("y,x,caf\xE9\n", 0), 0u) << "invalid_utf8_header.csv must hold the raw byte 0xE9";
     const std::string nul = FileSnapshot::take((bad / "nul_byte.csv").string()).bytes;
-    EXPECT_NE(nul.find(std::string("3,\0" "4\n", 4)), std::string::npos) << "nul_byte.csv must hold a NUL byte";
+    EXPECT_NE(nul.find(std::string("3,\0"
+                                   "4\n",
+                                   4)),
+              std::string::npos)
+        << "nul_byte.csv must hold a NUL byte";
     EXPECT_FALSE(std::filesystem::exists(bad / "no_such_file.csv"));
     EXPECT_GE(kCases.size(), 30u);
 }

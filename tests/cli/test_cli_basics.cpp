@@ -27,9 +27,9 @@
 
 namespace {
 
+using moderato::test::run_cli;
 using moderato::test::RunOptions;
 using moderato::test::RunResult;
-using moderato::test::run_cli;
 using nlohmann::json;
 
 constexpr double kExact = 1e-9;  // tolerance for closed-form values on exact data
@@ -107,9 +107,9 @@ TEST(CliBasics, HelpExitsZeroAndDescribesFit) {
 TEST(CliBasics, FitJsonHasEveryContractKeyAndExactCoefficients) {
     const json j = fit_json({"--data", "ok/exact_interaction.csv", "--outcome", "y", "--interaction", "x,z"});
     ASSERT_TRUE(j.is_object());
-    for (const char* key : {"n", "n_excluded", "family", "se_type", "coefficients", "covariance", "aliased",
-                            "df_residual", "r_squared", "adj_r_squared", "residual_sd", "f_statistic", "f_p_value",
-                            "log_likelihood", "aic", "bic"})
+    for (const char* key :
+         {"n", "n_excluded", "family", "se_type", "coefficients", "covariance", "aliased", "df_residual", "r_squared",
+          "adj_r_squared", "residual_sd", "f_statistic", "f_p_value", "log_likelihood", "aic", "bic"})
         EXPECT_TRUE(j.contains(key)) << "missing key " << key;
     ASSERT_TRUE(j.contains("coefficients"));
     for (const auto& c : j.at("coefficients"))
@@ -123,8 +123,8 @@ TEST(CliBasics, FitJsonHasEveryContractKeyAndExactCoefficients) {
     EXPECT_NEAR(estimate_of(j, "x"), 2.0, kExact);
     EXPECT_NEAR(estimate_of(j, "z"), 3.0, kExact);
     EXPECT_NEAR(estimate_of(j, "x\u00D7z"), -0.5, kExact);
-    EXPECT_EQ(j.at("n"), 12);          // 12 rows in the file
-    EXPECT_EQ(j.at("n_excluded"), 0);  // none missing
+    EXPECT_EQ(j.at("n"), 12);           // 12 rows in the file
+    EXPECT_EQ(j.at("n_excluded"), 0);   // none missing
     EXPECT_EQ(j.at("df_residual"), 8);  // n − p = 12 − 4
     EXPECT_EQ(j.at("family"), "linear");
     EXPECT_EQ(j.at("se_type"), "classical");
@@ -140,8 +140,8 @@ TEST(CliBasics, FitJsonHasEveryContractKeyAndExactCoefficients) {
 }
 
 TEST(CliBasics, FitJsonWritesSeventeenSignificantDigits) {
-    const RunResult r = run_in_data({"fit", "--format", "json", "--data", "ok/slope_five_fourteenths.csv",
-                                     "--outcome", "y", "--predictors", "x"});
+    const RunResult r = run_in_data(
+        {"fit", "--format", "json", "--data", "ok/slope_five_fourteenths.csv", "--outcome", "y", "--predictors", "x"});
     ASSERT_TRUE(r.exited && r.exit_code == 0) << r.describe();
     const json j = json::parse(r.out);
     // Closed form: slope 5/14, intercept −1/7 (see the top of this file).
@@ -155,8 +155,8 @@ TEST(CliBasics, FitJsonWritesSeventeenSignificantDigits) {
 }
 
 TEST(CliBasics, FitTextNamesEveryTerm) {
-    const RunResult r = run_in_data({"fit", "--format", "text", "--data", "ok/exact_interaction.csv", "--outcome",
-                                     "y", "--interaction", "x,z"});
+    const RunResult r = run_in_data(
+        {"fit", "--format", "text", "--data", "ok/exact_interaction.csv", "--outcome", "y", "--interaction", "x,z"});
     ASSERT_TRUE(r.exited && r.exit_code == 0) << r.describe();
     EXPECT_EQ(r.err, "");
     for (const char* term : {"intercept", "x\u00D7z"}) EXPECT_NE(r.out.find(term), std::string::npos) << term;

@@ -17,8 +17,8 @@
 namespace {
 
 using moderato::test::FileSnapshot;
-using moderato::test::RunOptions;
 using moderato::test::run_process;
+using moderato::test::RunOptions;
 
 TEST(CliRunner, CapturesExitCodeAndSeparatesStdoutFromStderr) {
     const auto r = run_process("/bin/sh", {"-c", "printf out; printf err >&2; exit 3"});
@@ -57,7 +57,8 @@ TEST(CliRunner, MissingProgramExits127) {
 }
 
 TEST(CliRunner, SnapshotSeesChangedBytesAndChangedTime) {
-    const auto dir = std::filesystem::temp_directory_path() / ("moderato-cli-runner-test-" + std::to_string(::getpid()));
+    const auto dir =
+        std::filesystem::temp_directory_path() / ("moderato-cli-runner-test-" + std::to_string(::getpid()));
     std::filesystem::create_directories(dir);
     const std::string path = (dir / "f.csv").string();
     { std::ofstream(path, std::ios::binary) << "a,b\n1,2\n"; }

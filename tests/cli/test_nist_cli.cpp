@@ -43,8 +43,8 @@ TEST(NistStrdCli, JsonOutputMeetsCertifiedDigits) {
     std::printf("%-9s %7s %7s %7s %7s %9s\n", "dataset", "coef", "SE", "res.SD", "R²", "required");
     for (const auto& name : nist_datasets()) {
         const NistCase c = load_nist(name);
-        std::string cmd = std::string(MODERATO_CLI) + " fit --format json --data " + shell_quote(c.csv.string()) +
-                          " --outcome y";
+        std::string cmd =
+            std::string(MODERATO_CLI) + " fit --format json --data " + shell_quote(c.csv.string()) + " --outcome y";
         if (!c.intercept) cmd += " --no-intercept";
         if (c.degree < 0) {
             std::string list;

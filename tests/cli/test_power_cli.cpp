@@ -19,8 +19,8 @@
 
 namespace {
 
-using moderato::test::RunResult;
 using moderato::test::run_cli;
+using moderato::test::RunResult;
 using nlohmann::json;
 
 json power_json(std::vector<std::string> args) {
@@ -33,7 +33,7 @@ json power_json(std::vector<std::string> args) {
 // The first case of `section` in the scipy fixture for which `pick` is true.
 json reference_case(const std::string& section, const std::function<bool(const json&)>& pick) {
     std::string path = std::string(MODERATO_REFERENCE_DIR) + "/fixtures/power_reference.json";
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live) {   // the build's live run
+    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live) {  // the build's live run
         const std::string p = std::string(live) + "/power_reference.json";
         if (std::ifstream(p).good()) path = p;
     }
@@ -74,14 +74,15 @@ TEST(PowerCli, PowerJsonMatchesReferenceAndCore) {
     EXPECT_EQ(j.at("tested_terms"), 2);
     EXPECT_EQ(j.at("total_predictors"), 5);
     EXPECT_EQ(j.at("n"), 200);
-    EXPECT_EQ(j.at("df1").get<double>(), ref.at("df1").get<double>());   // scipy reference
-    EXPECT_EQ(j.at("df2").get<double>(), ref.at("df2").get<double>());   // scipy reference
+    EXPECT_EQ(j.at("df1").get<double>(), ref.at("df1").get<double>());  // scipy reference
+    EXPECT_EQ(j.at("df2").get<double>(), ref.at("df2").get<double>());  // scipy reference
     EXPECT_EQ(j.at("convention"), "n");
     EXPECT_EQ(j.at("noncentrality_formula"), "f2 * n");
-    EXPECT_LE(rel_diff(j.at("noncentrality").get<double>(), ref.at("noncentrality").get<double>()), 1e-12);  // scipy reference
-    EXPECT_LE(rel_diff(j.at("critical_f").get<double>(), ref.at("critical_f").get<double>()), 1e-8);        // scipy f.isf
-    EXPECT_LE(rel_diff(j.at("power").get<double>(), ref.at("power").get<double>()), 1e-8);                  // scipy ncf.sf
-    EXPECT_NEAR(j.at("partial_r2").get<double>(), 0.03 / 1.03, 1e-16);                                      // closed form
+    EXPECT_LE(rel_diff(j.at("noncentrality").get<double>(), ref.at("noncentrality").get<double>()),
+              1e-12);                                                                                 // scipy reference
+    EXPECT_LE(rel_diff(j.at("critical_f").get<double>(), ref.at("critical_f").get<double>()), 1e-8);  // scipy f.isf
+    EXPECT_LE(rel_diff(j.at("power").get<double>(), ref.at("power").get<double>()), 1e-8);            // scipy ncf.sf
+    EXPECT_NEAR(j.at("partial_r2").get<double>(), 0.03 / 1.03, 1e-16);                                // closed form
 
     // 17 significant digits: the printed number is the core's double exactly.
     const auto core = moderato::power_of_test(0.03, 200, design(2, 5, 0.01, moderato::Noncentrality::n));
@@ -93,34 +94,34 @@ TEST(PowerCli, SampleSizeJsonMatchesReference) {
     const json ref = reference_case("sample_size_cases", [](const json& c) {
         return c.at("tested_terms") == 2 && c.at("total_predictors") == 6 && c.at("convention") == "cohen";
     });
-    const json j = power_json({"--power", "0.9", "--f2", "0.05", "--tested", "2", "--predictors", "6", "--alpha",
-                               "0.01"});
+    const json j =
+        power_json({"--power", "0.9", "--f2", "0.05", "--tested", "2", "--predictors", "6", "--alpha", "0.01"});
     EXPECT_EQ(j.at("mode"), "sample_size");
     EXPECT_EQ(j.at("convention"), "cohen");
-    EXPECT_EQ(j.at("n").get<long long>(), ref.at("n").get<long long>());                                    // scan of scipy ncf.sf
-    EXPECT_LE(rel_diff(j.at("power").get<double>(), ref.at("power_at_n").get<double>()), 1e-8);             // scipy ncf.sf
-    EXPECT_LE(rel_diff(j.at("power_one_fewer").get<double>(), ref.at("power_one_fewer").get<double>()), 1e-8);  // scipy ncf.sf
+    EXPECT_EQ(j.at("n").get<long long>(), ref.at("n").get<long long>());                         // scan of scipy ncf.sf
+    EXPECT_LE(rel_diff(j.at("power").get<double>(), ref.at("power_at_n").get<double>()), 1e-8);  // scipy ncf.sf
+    EXPECT_LE(rel_diff(j.at("power_one_fewer").get<double>(), ref.at("power_one_fewer").get<double>()),
+              1e-8);  // scipy ncf.sf
     EXPECT_EQ(j.at("target_power").get<double>(), 0.9);
 }
 
 TEST(PowerCli, DetectableJsonMatchesReference) {
-    const json ref = reference_case("detectable_cases", [](const json& c) {
-        return c.at("tested_terms") == 2 && c.at("total_predictors") == 5;
-    });
+    const json ref = reference_case(
+        "detectable_cases", [](const json& c) { return c.at("tested_terms") == 2 && c.at("total_predictors") == 5; });
     const json j = power_json({"--n", "250", "--power", "0.9", "--detectable", "--tested", "2", "--predictors", "5"});
     EXPECT_EQ(j.at("mode"), "detectable_effect");
     EXPECT_LE(rel_diff(j.at("f2").get<double>(), ref.at("f2").get<double>()), 1e-8);  // scipy brentq on ncf.sf
-    EXPECT_NEAR(j.at("power").get<double>(), 0.9, 1e-12);                              // the target (closed form)
+    EXPECT_NEAR(j.at("power").get<double>(), 0.9, 1e-12);                             // the target (closed form)
 }
 
 // f2 from two R² values: (0.30 − 0.27)/(1 − 0.30) = 0.03/0.70 (closed form).
 TEST(PowerCli, EffectSizeFromRSquaredPair) {
     const json j = power_json({"--n", "150", "--r2-full", "0.30", "--r2-reduced", "0.27", "--predictors", "4"});
-    EXPECT_NEAR(j.at("f2").get<double>(), 0.03 / 0.70, 1e-15);   // closed form
+    EXPECT_NEAR(j.at("f2").get<double>(), 0.03 / 0.70, 1e-15);  // closed form
     EXPECT_EQ(j.at("r2_full").get<double>(), 0.30);
     EXPECT_EQ(j.at("r2_reduced").get<double>(), 0.27);
-    EXPECT_EQ(j.at("tested_terms"), 1);                            // default: one tested term
-    EXPECT_EQ(j.at("alpha").get<double>(), 0.05);                  // default alpha
+    EXPECT_EQ(j.at("tested_terms"), 1);            // default: one tested term
+    EXPECT_EQ(j.at("alpha").get<double>(), 0.05);  // default alpha
 }
 
 // The text form says what was assumed and shows the scipy power to 4 decimals:
@@ -129,9 +130,11 @@ TEST(PowerCli, TextSaysWhatWasAssumed) {
     const RunResult r = run_cli({"power", "--n", "55", "--f2", "0.15", "--predictors", "1"});
     ASSERT_TRUE(r.exited && r.exit_code == 0) << r.describe();
     EXPECT_NE(r.out.find("Power of the F test for 1 tested term among 1 predictor (plus an intercept)"),
-              std::string::npos) << r.out;
-    EXPECT_NE(r.out.find("  power                  0.8051\n"), std::string::npos) << r.out;   // scipy ncf.sf, rounded
-    EXPECT_NE(r.out.find("  degrees of freedom     1 and 53\n"), std::string::npos) << r.out;  // closed form: 55 − 1 − 1
+              std::string::npos)
+        << r.out;
+    EXPECT_NE(r.out.find("  power                  0.8051\n"), std::string::npos) << r.out;  // scipy ncf.sf, rounded
+    EXPECT_NE(r.out.find("  degrees of freedom     1 and 53\n"), std::string::npos)
+        << r.out;  // closed form: 55 − 1 − 1
     EXPECT_NE(r.out.find("f2 * (df1 + df2 + 1), Cohen's convention"), std::string::npos) << r.out;
     EXPECT_NE(r.out.find("Assumes a linear model"), std::string::npos) << r.out;
 }
@@ -139,7 +142,7 @@ TEST(PowerCli, TextSaysWhatWasAssumed) {
 // Bad input: exit code 2, nothing on stdout, the exact message on stderr.
 struct BadPower {
     std::vector<std::string> args;
-    std::string message;   // the whole of stderr
+    std::string message;  // the whole of stderr
 };
 
 TEST(PowerCli, BadInputExitsTwoWithExactMessage) {
@@ -152,12 +155,14 @@ TEST(PowerCli, BadInputExitsTwoWithExactMessage) {
     const std::vector<BadPower> cases = {
         {{"--n", "55", "--f2", "0.15"},
          "moderato-cli: option --predictors is required: the number of predictors in the full model, tested terms "
-         "included, intercept excluded\n" + usage},
+         "included, intercept excluded\n" +
+             usage},
         {{"--f2", "0.15", "--predictors", "3"},
          "moderato-cli: give --n (to compute power) or --power (to compute the sample size)\n" + usage},
         {{"--n", "80", "--power", "0.8", "--f2", "0.15", "--predictors", "3"},
          "moderato-cli: --n and --power together need --detectable (smallest detectable f2); give only --n to "
-         "compute power, or only --power to compute the sample size\n" + usage},
+         "compute power, or only --power to compute the sample size\n" +
+             usage},
         {{"--n", "80", "--predictors", "3"},
          "moderato-cli: give the effect size: --f2 X, or --r2-full A with --r2-reduced B\n" + usage},
         {{"--n", "80", "--f2", "0", "--predictors", "3"},

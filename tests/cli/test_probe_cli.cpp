@@ -17,9 +17,7 @@ namespace {
 const std::string kData = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects/coffee-discount/spend.csv";
 const std::string kOrchard = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects/orchard-nitrogen/plots.csv";
 
-json run_json(const std::vector<std::string>& args) {
-    return moderato::test::json_output(run_cli(args));
-}
+json run_json(const std::vector<std::string>& args) { return moderato::test::json_output(run_cli(args)); }
 
 double coefficient(const json& fit, const std::string& term) {
     for (const auto& c : fit.at("coefficients"))
@@ -31,10 +29,11 @@ double coefficient(const json& fit, const std::string& term) {
 }  // namespace
 
 TEST(ProbeCli, JsonHasTheContractFieldsAndAgreesWithFit) {
-    const std::vector<std::string> model{"--data", kOrchard, "--outcome", "yield_t_ha", "--interaction",
-                                         "nitrogen_kg_ha,soil_moisture_pct", "--se", "hc3", "--format", "json"};
-    std::vector<std::string> fit_args{"fit"}, probe_args{"probe", "--focal", "nitrogen_kg_ha", "--moderator",
-                                                         "soil_moisture_pct", "--at", "0,20"};
+    const std::vector<std::string> model{
+        "--data", kOrchard, "--outcome", "yield_t_ha", "--interaction", "nitrogen_kg_ha,soil_moisture_pct",
+        "--se",   "hc3",    "--format",  "json"};
+    std::vector<std::string> fit_args{"fit"},
+        probe_args{"probe", "--focal", "nitrogen_kg_ha", "--moderator", "soil_moisture_pct", "--at", "0,20"};
     fit_args.insert(fit_args.end(), model.begin(), model.end());
     probe_args.insert(probe_args.end(), model.begin(), model.end());
     const json fit = run_json(fit_args), probe = run_json(probe_args);
@@ -56,8 +55,8 @@ TEST(ProbeCli, JsonHasTheContractFieldsAndAgreesWithFit) {
     EXPECT_TRUE(effects.at(0).at("beyond_data").get<bool>());  // moisture 0 lies below the observed 12
     EXPECT_FALSE(effects.at(1).at("beyond_data").get<bool>());
     // crossover x* = -b_z / b_xz (closed form)
-    EXPECT_NEAR(probe.at("crossover").at("focal_value").get<double>(),
-                -coefficient(fit, "soil_moisture_pct") / bxz, 1e-9);
+    EXPECT_NEAR(probe.at("crossover").at("focal_value").get<double>(), -coefficient(fit, "soil_moisture_pct") / bxz,
+                1e-9);
     // an unbounded region is written with null
     bool has_null = false;
     for (const auto& r : probe.at("johnson_neyman").at("significant_regions"))
@@ -66,9 +65,9 @@ TEST(ProbeCli, JsonHasTheContractFieldsAndAgreesWithFit) {
 }
 
 TEST(ProbeCli, PercentilesAndTextOutput) {
-    auto r = run_cli({"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction",
-                      "discount_pct,tenure_months", "--focal", "discount_pct", "--moderator", "tenure_months",
-                      "--at-percentiles", "10,50,90"});
+    auto r =
+        run_cli({"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,tenure_months",
+                 "--focal", "discount_pct", "--moderator", "tenure_months", "--at-percentiles", "10,50,90"});
     ASSERT_TRUE(r.exited && r.exit_code == 0) << r.describe();
     EXPECT_NE(r.out.find("Region of significance"), std::string::npos);
     EXPECT_NE(r.out.find("Cautions:"), std::string::npos);
@@ -109,16 +108,31 @@ TEST(ProbeCli, RefusalsAreExplained) {
         EXPECT_EQ(r.exit_code, 2) << r.describe();
         EXPECT_TRUE(r.out.empty());
         if (!c.message.empty()) EXPECT_EQ(r.err, c.message + "\n");
-        else EXPECT_EQ(r.err.rfind("moderato-cli: the logistic fit shows separation, so its estimates", 0), 0u) << r.err;
+        else
+            EXPECT_EQ(r.err.rfind("moderato-cli: the logistic fit shows separation, so its estimates", 0), 0u) << r.err;
     }
 }
 
 // Common practice for resampling code: one random stream per replicate makes
 // the intervals identical whatever the thread count.
 TEST(ProbeCli, BootstrapIsTheSameOnOneOrTwoThreads) {
-    std::vector<std::string> args{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction",
-                                  "discount_pct,loyalty_member", "--focal", "discount_pct", "--moderator",
-                                  "loyalty_member", "--bootstrap", "200", "--seed", "11", "--format", "json"};
+    std::vector<std::string> args{"probe",
+                                  "--data",
+                                  kData,
+                                  "--outcome",
+                                  "weekly_spend",
+                                  "--interaction",
+                                  "discount_pct,loyalty_member",
+                                  "--focal",
+                                  "discount_pct",
+                                  "--moderator",
+                                  "loyalty_member",
+                                  "--bootstrap",
+                                  "200",
+                                  "--seed",
+                                  "11",
+                                  "--format",
+                                  "json"};
     auto one = args, two = args;
     one.insert(one.end(), {"--threads", "1"});
     two.insert(two.end(), {"--threads", "2"});
@@ -133,9 +147,9 @@ TEST(ProbeCli, BootstrapIsTheSameOnOneOrTwoThreads) {
 }
 
 TEST(ProbeCli, BootstrapRefusesTooFewRows) {
-    auto r = run_cli({"probe", "--data", std::string(MODERATO_TEST_DATA_DIR) + "/bad/too_few_rows_for_bootstrap.csv",
-                      "--outcome", "y", "--interaction", "x,z", "--focal", "x", "--moderator", "z", "--bootstrap",
-                      "200"});
+    auto r =
+        run_cli({"probe", "--data", std::string(MODERATO_TEST_DATA_DIR) + "/bad/too_few_rows_for_bootstrap.csv",
+                 "--outcome", "y", "--interaction", "x,z", "--focal", "x", "--moderator", "z", "--bootstrap", "200"});
     EXPECT_TRUE(r.exited && r.exit_code == 2) << r.describe();
     EXPECT_EQ(r.err,
               "moderato-cli: too few rows for the bootstrap: n = 9 rows for p = 4 coefficients; resampling needs at "
@@ -146,9 +160,10 @@ TEST(ProbeCli, BootstrapRefusesTooFewRows) {
 // Closed form: in the saturated 2 x 2 model each cell's prediction is its
 // observed mean and the difference in differences is the product coefficient.
 TEST(ProbeCli, TwoCategoricalPredictorsGiveTheCellTable) {
-    const std::string data = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects/volunteer-onboarding/volunteers.csv";
-    const std::vector<std::string> model{"--data", data, "--outcome", "hours_q1", "--interaction",
-                                         "onboarding,mentoring", "--format", "json"};
+    const std::string data =
+        std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects/volunteer-onboarding/volunteers.csv";
+    const std::vector<std::string> model{
+        "--data", data, "--outcome", "hours_q1", "--interaction", "onboarding,mentoring", "--format", "json"};
     std::vector<std::string> fit_args{"fit"}, probe_args{"probe", "--focal", "onboarding", "--moderator", "mentoring"};
     fit_args.insert(fit_args.end(), model.begin(), model.end());
     probe_args.insert(probe_args.end(), model.begin(), model.end());
@@ -164,10 +179,11 @@ TEST(ProbeCli, TwoCategoricalPredictorsGiveTheCellTable) {
 
 // Closed form: the surface is b0 + b_x x + b_z z + b_xz x z at each grid point.
 TEST(ProbeCli, SurfaceGridIsThePredictionOverBothPredictors) {
-    const std::vector<std::string> model{"--data", kOrchard, "--outcome", "yield_t_ha", "--interaction",
-                                         "nitrogen_kg_ha,soil_moisture_pct", "--format", "json"};
-    std::vector<std::string> fit_args{"fit"}, probe_args{"probe", "--focal", "nitrogen_kg_ha", "--moderator",
-                                                         "soil_moisture_pct", "--surface", "5"};
+    const std::vector<std::string> model{"--data",     kOrchard,        "--outcome",
+                                         "yield_t_ha", "--interaction", "nitrogen_kg_ha,soil_moisture_pct",
+                                         "--format",   "json"};
+    std::vector<std::string> fit_args{"fit"},
+        probe_args{"probe", "--focal", "nitrogen_kg_ha", "--moderator", "soil_moisture_pct", "--surface", "5"};
     fit_args.insert(fit_args.end(), model.begin(), model.end());
     probe_args.insert(probe_args.end(), model.begin(), model.end());
     const json fit = run_json(fit_args), probe = run_json(probe_args);

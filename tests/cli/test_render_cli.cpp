@@ -36,9 +36,9 @@ namespace {
 
 namespace fs = std::filesystem;
 using moderato::test::FileSnapshot;
-using moderato::test::RunResult;
 using moderato::test::run_cli;
 using moderato::test::run_process;
+using moderato::test::RunResult;
 using nlohmann::json;
 
 const char* const kPython = "/usr/bin/python3";
@@ -123,7 +123,8 @@ std::vector<std::string> lines_of(const std::string& text) {
 std::uint32_t be32(const std::string& b, std::size_t at) {
     return (std::uint32_t(static_cast<unsigned char>(b[at])) << 24) |
            (std::uint32_t(static_cast<unsigned char>(b[at + 1])) << 16) |
-           (std::uint32_t(static_cast<unsigned char>(b[at + 2])) << 8) | std::uint32_t(static_cast<unsigned char>(b[at + 3]));
+           (std::uint32_t(static_cast<unsigned char>(b[at + 2])) << 8) |
+           std::uint32_t(static_cast<unsigned char>(b[at + 3]));
 }
 
 std::uint32_t crc32(const char* data, std::size_t n) {
@@ -227,7 +228,8 @@ PdfInfo pdf_info(const fs::path& file) {
         info.height_pt = std::stod(m[4]) - std::stod(m[2]);
     }
     static const std::regex page(R"(/Type\s*/Page[^s])");
-    info.pages = static_cast<int>(std::distance(std::sregex_iterator(b.begin(), b.end(), page), std::sregex_iterator()));
+    info.pages =
+        static_cast<int>(std::distance(std::sregex_iterator(b.begin(), b.end(), page), std::sregex_iterator()));
     return info;
 }
 
@@ -504,7 +506,8 @@ void check_csv(const fs::path& file) {
 // data: URIs identical to the PNG files beside it.
 void check_memo_html(const fs::path& dir, const std::vector<std::string>& figures) {
     const std::string html = slurp(dir / "memo.html");
-    for (const char* bad : {"http://", "https://", "<link", "<script", "@import", "url(", "<iframe", "<object", "<embed"})
+    for (const char* bad :
+         {"http://", "https://", "<link", "<script", "@import", "url(", "<iframe", "<object", "<embed"})
         EXPECT_FALSE(contains(lower(html), bad)) << "memo.html contains " << bad;
     // Every src= (scanned by hand: std::regex recurses per character of a long data: URI).
     const std::string low = lower(html);
@@ -565,7 +568,8 @@ TEST_P(RenderSample, WritesEveryFileAtItsSettingsAndRepeatsByteForByte) {
         for (const char* ext : {".csv", ".md", ".tex", ".html"}) expected.insert(folder + "/" + t + ext);
     for (const char* ext : {".html", ".md", ".pdf"}) expected.insert(folder + "/memo" + ext);
     for (const auto& kept : doc.at("figures"))
-        for (const char* ext : {".png", ".svg", ".pdf"}) expected.insert("figures/" + kept.at("id").get<std::string>() + ext);
+        for (const char* ext : {".png", ".svg", ".pdf"})
+            expected.insert("figures/" + kept.at("id").get<std::string>() + ext);
     const auto filesA = tree(outA);
     std::set<std::string> written;
     for (const auto& [name, bytes] : filesA) {
@@ -774,54 +778,53 @@ fs::path write_awkward_project(const fs::path& dir, const std::string& data_path
     }
     fs::create_directories((dir / data_path).parent_path());
     spit(dir / data_path, csv);
-    const json project = {
-        {"schema_version", 1},
-        {"datasets",
-         {{{"id", "esc"},
-           {"path", data_path},
-           {"sha256", ""},
-           {"import",
-            {{"delimiter", ","},
-             {"header", true},
-             {"missing_tokens", {"", "NA", "NaN", "."}},
-             {"decimal_comma", false},
-             {"column_kinds", json::object()}}}}}},
-        {"derived_columns", json::array()},
-        {"analyses",
-         {{{"id", "escaping"},
-           {"name", kName},
-           {"dataset", "esc"},
-           {"roles",
-            {{"outcome", "score"},
-             {"focal", "dose"},
-             {"moderator", kColumn},
-             {"second_moderator", ""},
-             {"controls", json::array()},
-             {"weights", ""},
-             {"clusters", ""}}},
-           {"family", "linear"},
-           {"se", "classical"},
-           {"level", 0.95},
-           {"centring", "none"},
-           {"probe",
-            {{"current", nullptr},
-             {"pinned", json::array()},
-             {"second_value", nullptr},
-             {"scale", "link"},
-             {"averaging", "sample"},
-             {"simultaneous_band", false},
-             {"show_points", true}}},
-           {"figure",
-            {{"preset", "memo"},
-             {"width_in", 6.5},
-             {"height_in", 4.0},
-             {"dpi", 100},
-             {"font_family", "DejaVu Sans"},
-             {"font_pt", 9},
-             {"greyscale", false},
-             {"caption", true}}},
-           {"memo_notes", "Notes with <i>tags</i> & an ampersand"}}}},
-        {"figures", json::array()}};
+    const json project = {{"schema_version", 1},
+                          {"datasets",
+                           {{{"id", "esc"},
+                             {"path", data_path},
+                             {"sha256", ""},
+                             {"import",
+                              {{"delimiter", ","},
+                               {"header", true},
+                               {"missing_tokens", {"", "NA", "NaN", "."}},
+                               {"decimal_comma", false},
+                               {"column_kinds", json::object()}}}}}},
+                          {"derived_columns", json::array()},
+                          {"analyses",
+                           {{{"id", "escaping"},
+                             {"name", kName},
+                             {"dataset", "esc"},
+                             {"roles",
+                              {{"outcome", "score"},
+                               {"focal", "dose"},
+                               {"moderator", kColumn},
+                               {"second_moderator", ""},
+                               {"controls", json::array()},
+                               {"weights", ""},
+                               {"clusters", ""}}},
+                             {"family", "linear"},
+                             {"se", "classical"},
+                             {"level", 0.95},
+                             {"centring", "none"},
+                             {"probe",
+                              {{"current", nullptr},
+                               {"pinned", json::array()},
+                               {"second_value", nullptr},
+                               {"scale", "link"},
+                               {"averaging", "sample"},
+                               {"simultaneous_band", false},
+                               {"show_points", true}}},
+                             {"figure",
+                              {{"preset", "memo"},
+                               {"width_in", 6.5},
+                               {"height_in", 4.0},
+                               {"dpi", 100},
+                               {"font_family", "DejaVu Sans"},
+                               {"font_pt", 9},
+                               {"greyscale", false},
+                               {"caption", true}}},
+                             {"memo_notes", "Notes with <i>tags</i> & an ampersand"}}}},
+                          {"figures", json::array()}};
     spit(dir / "esc.moderato", project.dump(2));
     return dir / "esc.moderato";
 }
@@ -902,8 +905,8 @@ TEST_F(RenderEscaping, MarkdownEscapesEveryTagAndCmarkRendersItAsText) {
         for (std::size_t i = md.find('<'); i != std::string::npos; i = md.find('<', i + 1)) {
             const char next = i + 1 < md.size() ? md[i + 1] : ' ';
             if (std::isalpha(static_cast<unsigned char>(next)) || next == '/' || next == '!' || next == '?') {
-                EXPECT_TRUE(i > 0 && md[i - 1] == '\\') << e.path() << " raw '<' at byte " << i << ": "
-                                                         << md.substr(i > 20 ? i - 20 : 0, 60);
+                EXPECT_TRUE(i > 0 && md[i - 1] == '\\')
+                    << e.path() << " raw '<' at byte " << i << ": " << md.substr(i > 20 ? i - 20 : 0, 60);
             }
         }
     }
@@ -941,7 +944,8 @@ TEST_F(RenderEscaping, LatexTablesKeepAngleBracketsInMathMode) {
             }
             if (tex[i] == '$' && (i == 0 || tex[i - 1] != '\\')) math = !math;
             if ((tex[i] == '<' || tex[i] == '>') && !math)
-                ADD_FAILURE() << e.path() << ": '" << tex[i] << "' in text mode: " << tex.substr(i > 30 ? i - 30 : 0, 70);
+                ADD_FAILURE() << e.path() << ": '" << tex[i]
+                              << "' in text mode: " << tex.substr(i > 30 ? i - 30 : 0, 70);
         }
         EXPECT_FALSE(math) << e.path() << ": unbalanced $";
     }

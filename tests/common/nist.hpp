@@ -45,8 +45,8 @@ struct NistCase {
     std::string name;
     std::filesystem::path csv;
     bool intercept = true;
-    int degree = -1;                       // polynomial degree in x, or -1 (Longley)
-    std::vector<std::string> predictors;   // CSV predictor columns
+    int degree = -1;                                    // polynomial degree in x, or -1 (Longley)
+    std::vector<std::string> predictors;                // CSV predictor columns
     std::vector<double> coefficients, standard_errors;  // certified, in NIST term order
     double residual_sd = 0, r_squared = 0;
 };

@@ -14,11 +14,11 @@
 
 #include "common/table_builder.hpp"
 #include "moderato/estimation/bootstrap.hpp"
+#include "moderato/estimation/design.hpp"
+#include "moderato/estimation/fit.hpp"
 #include "moderato/probing/probe_bootstrap.hpp"
 #include "moderato/probing/response_scale.hpp"
-#include "moderato/estimation/design.hpp"
 #include "moderato/support/error.hpp"
-#include "moderato/estimation/fit.hpp"
 
 using namespace moderato;
 using namespace moderato::test;
@@ -58,8 +58,7 @@ ModelSpec interaction_spec() {
 BootstrapStatistic coefficients(std::vector<std::string> labels) {
     return [labels](const Design&, const FitResult& f) {
         Eigen::VectorXd v(static_cast<Eigen::Index>(labels.size()));
-        for (std::size_t k = 0; k < labels.size(); ++k)
-            v[static_cast<Eigen::Index>(k)] = f.beta[f.index_of(labels[k])];
+        for (std::size_t k = 0; k < labels.size(); ++k) v[static_cast<Eigen::Index>(k)] = f.beta[f.index_of(labels[k])];
         return v;
     };
 }
@@ -176,7 +175,7 @@ TEST(Bootstrap, SameNumbersForAnyThreadCountAndSeedMatters) {
     const BootstrapResult three = bootstrap(d, spec, stat, o);
     ASSERT_EQ(one.replicates.rows(), 120);
     ASSERT_EQ(one.replicates.cols(), 3);
-    EXPECT_TRUE(same_bits(one.replicates, two.replicates));   // common practice: one stream per replicate
+    EXPECT_TRUE(same_bits(one.replicates, two.replicates));  // common practice: one stream per replicate
     EXPECT_TRUE(same_bits(one.replicates, three.replicates));
     for (std::size_t k = 0; k < 3; ++k) {
         EXPECT_EQ(one.intervals[k].bca_lower, two.intervals[k].bca_lower);
@@ -335,7 +334,7 @@ TEST(Bootstrap, UndefinedStatisticIsAFailureWithItsReason) {
     EXPECT_EQ(r.completed + undefined, 200);
     EXPECT_EQ(r.intervals[1].valid_replicates, r.completed);
     EXPECT_EQ(r.intervals[0].valid_replicates, 200);  // the defined value keeps every replicate
-    EXPECT_GT(undefined, 60);   // Binomial(200, 1/2): 100 +- 7 (closed form)
+    EXPECT_GT(undefined, 60);                         // Binomial(200, 1/2): 100 +- 7 (closed form)
     EXPECT_LT(undefined, 140);
 }
 
@@ -356,8 +355,8 @@ TEST(Bootstrap, CancelFromProgressCallback) {
     };
     EXPECT_THROW(bootstrap(d, spec, coefficients({"x"}), o), Cancelled);
     EXPECT_GE(last_done, 100);
-    EXPECT_LT(last_done, 300);                   // stopped long before the end
-    EXPECT_EQ(seen_total, 500 + 100);            // replicates + leave-one-out jackknife fits
+    EXPECT_LT(last_done, 300);         // stopped long before the end
+    EXPECT_EQ(seen_total, 500 + 100);  // replicates + leave-one-out jackknife fits
     EXPECT_GE(calls, 2);
 
     // Without cancelling, the last report is done == total.
@@ -418,8 +417,7 @@ TEST(Bootstrap, ClusterResamplingKeepsClustersWhole) {
         for (const auto& [id, rows] : by_new) {
             const double label = label_of_row[rows.front()];
             std::set<std::size_t> distinct(rows.begin(), rows.end());
-            whole = whole && distinct.size() == rows.size() &&
-                    static_cast<int>(rows.size()) == cluster_size.at(label);
+            whole = whole && distinct.size() == rows.size() && static_cast<int>(rows.size()) == cluster_size.at(label);
             for (auto r : rows) whole = whole && label_of_row[r] == label;
             drawn.insert(label);
         }
@@ -441,8 +439,8 @@ TEST(Bootstrap, ClusterResamplingKeepsClustersWhole) {
     std::set<double> sizes;
     int repeated = 0;
     for (Eigen::Index i = 0; i < r.replicates.rows(); ++i) {
-        EXPECT_EQ(r.replicates(i, 1), G);        // G clusters drawn, repeats counted apart
-        EXPECT_EQ(r.replicates(i, 2), 1.0);      // each one a whole original cluster
+        EXPECT_EQ(r.replicates(i, 1), G);                   // G clusters drawn, repeats counted apart
+        EXPECT_EQ(r.replicates(i, 2), 1.0);                 // each one a whole original cluster
         EXPECT_EQ(r.replicates(i, 3), r.replicates(i, 4));  // distinct rows = sizes of distinct clusters
         sizes.insert(r.replicates(i, 0));
         if (r.replicates(i, 0) > r.replicates(i, 3)) ++repeated;
@@ -598,8 +596,7 @@ TEST(BootstrapInput, TooFewRows) {
             bootstrap(d, s, coefficients({"a"}), o);
             FAIL() << "expected InputError";
         } catch (const InputError& e) {
-            EXPECT_NE(std::string(e.what()).find("n = 12 rows for p = 7 coefficients"), std::string::npos)
-                << e.what();
+            EXPECT_NE(std::string(e.what()).find("n = 12 rows for p = 7 coefficients"), std::string::npos) << e.what();
         }
     }
 }
@@ -660,8 +657,8 @@ TEST(Bootstrap, ProbabilityScaleProbeWithACategoricalSecondModerator) {
         region.push_back(levels[g]);
         y.push_back(unit(rng) < 1.0 / (1.0 + std::exp(-eta)) ? 1.0 : 0.0);
     }
-    const Table t = make_table({numeric_column("y", y), numeric_column("x", x), numeric_column("z", z),
-                                categorical_column("region", region)});
+    const Table t = make_table(
+        {numeric_column("y", y), numeric_column("x", x), numeric_column("z", z), categorical_column("region", region)});
     ModelSpec spec;
     spec.outcome = "y";
     spec.predictors = {"x", "z", "region"};

@@ -15,10 +15,10 @@
 #include <random>
 
 #include "common/table_builder.hpp"
+#include "moderato/estimation/fit.hpp"
 #include "moderato/probing/cells.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/support/error.hpp"
-#include "moderato/estimation/fit.hpp"
 
 using namespace moderato;
 using namespace moderato::test;
@@ -308,8 +308,9 @@ TEST(CellTable, EmptyCellIsNotEstimable) {
     EXPECT_TRUE(std::isnan(empty.std_error));
     EXPECT_TRUE(std::isnan(empty.observed_mean));
     bool noted = false;
-    for (const auto& n : c.notes) noted |= n.find("cell (a=a1, b=b1) cannot be estimated") != std::string::npos &&
-                                           n.find("a=a1×b=b1") != std::string::npos;
+    for (const auto& n : c.notes)
+        noted |= n.find("cell (a=a1, b=b1) cannot be estimated") != std::string::npos &&
+                 n.find("a=a1×b=b1") != std::string::npos;
     EXPECT_TRUE(noted);
     for (const auto& cell : c.cells) {
         if (cell.n == 0) continue;
@@ -320,7 +321,7 @@ TEST(CellTable, EmptyCellIsNotEstimable) {
     EXPECT_FALSE(c.interaction_test.has_value());
     EXPECT_FALSE(c.interactions.at(0).estimable);  // (a1, b1)
     EXPECT_TRUE(std::isnan(c.interactions.at(0).estimate));
-    EXPECT_TRUE(c.interactions.at(1).estimable);   // (a1, b2)
+    EXPECT_TRUE(c.interactions.at(1).estimable);  // (a1, b2)
 }
 
 // With a numeric covariate the cells sit at its mean unless held elsewhere;
@@ -337,8 +338,8 @@ TEST(CellTable, HeldCovariate) {
         x.push_back(3 + N(rng));
         y.push_back(1 + 0.5 * x.back() + (a.back() == "q") - (b.back() == "s") + N(rng));
     }
-    const Table t = make_table({numeric_column("y", y), categorical_column("a", a), categorical_column("b", b),
-                                numeric_column("x", x)});
+    const Table t = make_table(
+        {numeric_column("y", y), categorical_column("a", a), categorical_column("b", b), numeric_column("x", x)});
     ModelSpec s = two_factor_spec("y", "a", "b");
     s.predictors.push_back("x");
     const auto [d, f] = fit_of(t, s);
@@ -356,7 +357,8 @@ TEST(CellTable, HeldCovariate) {
     for (std::size_t k = 0; k < at2.row_effects.size(); ++k)
         EXPECT_LE(std::abs(at5.row_effects[k].estimate - at2.row_effects[k].estimate), 1e-12);
     bool noted = false;
-    for (const auto& n : at_mean.notes) noted |= n.find("x = ") != std::string::npos && n.find("(its mean)") != std::string::npos;
+    for (const auto& n : at_mean.notes)
+        noted |= n.find("x = ") != std::string::npos && n.find("(its mean)") != std::string::npos;
     EXPECT_TRUE(noted);
 }
 
@@ -375,8 +377,8 @@ TEST(CellTable, ThreeWayProductDependsOnHeldValue) {
         const double ia = a.back() == "v", ib = b.back() == "m";
         y.push_back(0.3 * ia + 0.2 * ib + 0.6 * ia * ib * (1 + x.back()) + 0.4 * x.back() + N(rng));
     }
-    const Table t = make_table({numeric_column("y", y), categorical_column("a", a), categorical_column("b", b),
-                                numeric_column("x", x)});
+    const Table t = make_table(
+        {numeric_column("y", y), categorical_column("a", a), categorical_column("b", b), numeric_column("x", x)});
     ModelSpec s;
     s.outcome = "y";
     s.predictors = {"a", "b", "x"};
@@ -436,8 +438,9 @@ TEST(CellTable, LogisticSaturated2x2) {
         const double lor = std::log(double(succ[1][j]) * fail[0][j] / (double(fail[1][j]) * succ[0][j]));
         EXPECT_LE(std::abs(e.estimate - lor), 1e-8);
         EXPECT_LE(rel(e.odds_ratio, std::exp(lor)), 1e-8);
-        EXPECT_LE(rel(e.std_error, std::sqrt(1.0 / succ[1][j] + 1.0 / fail[1][j] + 1.0 / succ[0][j] + 1.0 / fail[0][j])),
-                  1e-8);
+        EXPECT_LE(
+            rel(e.std_error, std::sqrt(1.0 / succ[1][j] + 1.0 / fail[1][j] + 1.0 / succ[0][j] + 1.0 / fail[0][j])),
+            1e-8);
     }
     // closed form: the interaction contrast is the log ratio of odds ratios,
     // SE sqrt(sum of 1/count over the eight counts) (Woolf, common practice)
@@ -510,7 +513,7 @@ void compare_with_statsmodels(const std::string& name, SeKind se, const std::str
     const Case k = load(name, se);
     const json& ref = k.j.at("cells").at("by_se").at(se_name);
     const CellTable c = cell_table(k.fit.d, k.fit.f, ref.at("row_factor").get<std::string>(),
-                                     ref.at("column_factor").get<std::string>());
+                                   ref.at("column_factor").get<std::string>());
     EXPECT_EQ(c.row_levels, ref.at("row_levels").get<std::vector<std::string>>());
     EXPECT_EQ(c.column_levels, ref.at("column_levels").get<std::vector<std::string>>());
     for (const auto& [col, v] : ref.at("held").items())  // numpy mean (statsmodels script)

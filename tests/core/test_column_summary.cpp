@@ -47,13 +47,13 @@ std::vector<double> grid_values() {
 }  // namespace
 
 TEST(ColumnSummary, NumericColumnWithMissingCellsMatchesStatisticsAndNumpy) {
-    const Column c = numeric("amount", {12.5, 7.25, kNaN, 3, 18.75, 9.5, 11, kNaN, 14.25, 6.5, 21, 8.75, 10, 13.5,
-                                        4.25, 16, 9, 12, 7.75, 15.5, 5.5, 19.25, 11.75});
+    const Column c = numeric("amount", {12.5, 7.25, kNaN, 3,  18.75, 9.5, 11,   kNaN, 14.25, 6.5,   21,   8.75,
+                                        10,   13.5, 4.25, 16, 9,     12,  7.75, 15.5, 5.5,   19.25, 11.75});
     const ColumnSummary s = moderato::summarise_column(c);
     EXPECT_EQ(s.name, "amount");
     EXPECT_EQ(s.kind, ColumnKind::Numeric);
     EXPECT_EQ(s.rows, 23u);
-    EXPECT_EQ(s.n, 21u);       // 23 cells, two NaN (counted by hand)
+    EXPECT_EQ(s.n, 21u);  // 23 cells, two NaN (counted by hand)
     EXPECT_EQ(s.missing, 2u);
     EXPECT_DOUBLE_EQ(s.mean, 11.285714285714286);  // statistics.mean (exact, rounded)
     EXPECT_DOUBLE_EQ(s.sd, 4.94613846493259);      // statistics.stdev (n - 1)
@@ -70,10 +70,10 @@ TEST(ColumnSummary, ZeroInterquartileRangeFallsBackToSturges) {
     std::vector<double> v(20, 5.0);
     for (const double x : {1.0, 9.0, 12.0, 2.5}) v.push_back(x);
     const ColumnSummary s = moderato::summarise_column(numeric("spike", v));
-    EXPECT_DOUBLE_EQ(s.mean, 5.1875);              // statistics.mean
-    EXPECT_DOUBLE_EQ(s.sd, 1.93824494795185);      // statistics.stdev
-    EXPECT_DOUBLE_EQ(s.q1, 5.0);                   // numpy.percentile
-    EXPECT_DOUBLE_EQ(s.q3, 5.0);                   // numpy.percentile
+    EXPECT_DOUBLE_EQ(s.mean, 5.1875);          // statistics.mean
+    EXPECT_DOUBLE_EQ(s.sd, 1.93824494795185);  // statistics.stdev
+    EXPECT_DOUBLE_EQ(s.q1, 5.0);               // numpy.percentile
+    EXPECT_DOUBLE_EQ(s.q3, 5.0);               // numpy.percentile
     // numpy.histogram(x, bins="auto"): IQR 0, so Sturges' width alone.
     expect_histogram(s.histogram,
                      {1.0, 2.833333333333333, 4.666666666666666, 6.5, 8.333333333333332, 10.166666666666666, 12.0},
@@ -83,11 +83,11 @@ TEST(ColumnSummary, ZeroInterquartileRangeFallsBackToSturges) {
 TEST(ColumnSummary, ManyValuesOnBinEdgesMatchNumpyWithAndWithoutTheBinCap) {
     std::vector<double> v = grid_values();
     const ColumnSummary s = moderato::summarise_column(numeric("grid", v), 40);
-    EXPECT_DOUBLE_EQ(s.mean, 78.1726434375);        // statistics.mean
-    EXPECT_NEAR(s.sd, 45.1377088083429, 1e-12);    // statistics.stdev
-    EXPECT_DOUBLE_EQ(s.q1, 39.078125);              // numpy.percentile
-    EXPECT_DOUBLE_EQ(s.median, 78.171875);          // numpy.percentile
-    EXPECT_DOUBLE_EQ(s.q3, 117.265625);             // numpy.percentile
+    EXPECT_DOUBLE_EQ(s.mean, 78.1726434375);     // statistics.mean
+    EXPECT_NEAR(s.sd, 45.1377088083429, 1e-12);  // statistics.stdev
+    EXPECT_DOUBLE_EQ(s.q1, 39.078125);           // numpy.percentile
+    EXPECT_DOUBLE_EQ(s.median, 78.171875);       // numpy.percentile
+    EXPECT_DOUBLE_EQ(s.q3, 117.265625);          // numpy.percentile
     // "auto" asks for 47 bins; the cap of 40 gives numpy.histogram(x, bins=40).
     std::vector<double> edges40;
     for (int k = 0; k <= 40; ++k) edges40.push_back(k * (156.34375 / 40));  // numpy.linspace(0, 156.34375, 41)
@@ -98,10 +98,10 @@ TEST(ColumnSummary, ManyValuesOnBinEdgesMatchNumpyWithAndWithoutTheBinCap) {
     // Without the cap: numpy.histogram(x, bins="auto") counts.
     std::sort(v.begin(), v.end());
     const Histogram h = moderato::auto_histogram(v, 1000);
-    const std::vector<std::size_t> auto_counts{
-        2128, 2130, 2127, 2130, 2127, 2130, 2127, 2130, 2127, 2119, 2128, 2129, 2128, 2129, 2128, 2129,
-        2128, 2129, 2118, 2128, 2129, 2129, 2128, 2129, 2128, 2129, 2128, 2129, 2118, 2128, 2129, 2128,
-        2129, 2128, 2129, 2128, 2129, 2118, 2130, 2127, 2130, 2127, 2130, 2128, 2129, 2128, 2129};
+    const std::vector<std::size_t> auto_counts{2128, 2130, 2127, 2130, 2127, 2130, 2127, 2130, 2127, 2119, 2128, 2129,
+                                               2128, 2129, 2128, 2129, 2128, 2129, 2118, 2128, 2129, 2129, 2128, 2129,
+                                               2128, 2129, 2128, 2129, 2118, 2128, 2129, 2128, 2129, 2128, 2129, 2128,
+                                               2129, 2118, 2130, 2127, 2130, 2127, 2130, 2128, 2129, 2128, 2129};
     ASSERT_EQ(h.counts, auto_counts);
     EXPECT_DOUBLE_EQ(h.edges[1], 3.3264627659574466);   // numpy edge 1
     EXPECT_DOUBLE_EQ(h.edges[46], 153.01728723404256);  // numpy edge 46
@@ -111,7 +111,7 @@ TEST(ColumnSummary, ManyValuesOnBinEdgesMatchNumpyWithAndWithoutTheBinCap) {
 TEST(ColumnSummary, ConstantColumnGetsOneUnitBinAndZeroSd) {
     const ColumnSummary s = moderato::summarise_column(numeric("k", {2.5, 2.5, kNaN, 2.5}));
     EXPECT_EQ(s.n, 3u);
-    EXPECT_EQ(s.sd, 0.0);  // statistics.stdev([2.5] * 3)
+    EXPECT_EQ(s.sd, 0.0);                            // statistics.stdev([2.5] * 3)
     expect_histogram(s.histogram, {2.0, 3.0}, {3});  // numpy.histogram(x, bins="auto")
 }
 
@@ -123,8 +123,8 @@ TEST(ColumnSummary, TooFewValuesLeaveUndefinedStatisticsAsNaN) {
     EXPECT_TRUE(std::isnan(none.median));
     EXPECT_TRUE(none.histogram.counts.empty());
     const ColumnSummary one = moderato::summarise_column(numeric("x", {4.0}));
-    EXPECT_EQ(one.mean, 4.0);           // closed form
-    EXPECT_TRUE(std::isnan(one.sd));    // the n - 1 divisor needs two values (statistics.stdev raises)
+    EXPECT_EQ(one.mean, 4.0);         // closed form
+    EXPECT_TRUE(std::isnan(one.sd));  // the n - 1 divisor needs two values (statistics.stdev raises)
     EXPECT_EQ(one.median, 4.0);
 }
 

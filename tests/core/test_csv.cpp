@@ -19,8 +19,8 @@
 #include <vector>
 
 #include "moderato/reading/csv.hpp"
-#include "moderato/support/error.hpp"
 #include "moderato/reading/table.hpp"
+#include "moderato/support/error.hpp"
 
 namespace fs = std::filesystem;
 using moderato::Column;
@@ -105,10 +105,8 @@ void expect_same_table(const Table& a, const Table& b) {
         ASSERT_EQ(x.numbers.size(), y.numbers.size());
         for (std::size_t i = 0; i < x.numbers.size(); ++i) {
             const double u = x.numbers[i], v = y.numbers[i];
-            if (std::isnan(u) || std::isnan(v))
-                ASSERT_TRUE(std::isnan(u) && std::isnan(v)) << x.name << " row " << i;
-            else
-                ASSERT_EQ(u, v) << x.name << " row " << i;
+            if (std::isnan(u) || std::isnan(v)) ASSERT_TRUE(std::isnan(u) && std::isnan(v)) << x.name << " row " << i;
+            else ASSERT_EQ(u, v) << x.name << " row " << i;
         }
     }
 }
@@ -139,12 +137,13 @@ TEST(Csv, ReadsHeaderAndNumericColumns) {
 TEST(Csv, QuotedFieldMayHoldTheDelimiter) {
     const Table t = read("name,n\n\"Smith, J\",1\n\"Doe, A\",2\n");
     EXPECT_EQ(cells(t.at("name")), (std::vector<std::string>{"Smith, J", "Doe, A"}));  // RFC 4180 section 2, rule 6
-    EXPECT_EQ(t.at("n").numbers, (std::vector<double>{1, 2}));  // RFC 4180 section 2, rule 6
+    EXPECT_EQ(t.at("n").numbers, (std::vector<double>{1, 2}));                         // RFC 4180 section 2, rule 6
 }
 
 TEST(Csv, QuotedFieldMayHoldLineBreaksAndRowLinesCountThem) {
     const Table t = read("note,n\n\"first\nsecond\",1\nplain,2\n\"a\r\nb\",3\n");
-    EXPECT_EQ(cells(t.at("note")), (std::vector<std::string>{"first\nsecond", "plain", "a\r\nb"}));  // RFC 4180 section 2, rule 6
+    EXPECT_EQ(cells(t.at("note")),
+              (std::vector<std::string>{"first\nsecond", "plain", "a\r\nb"}));  // RFC 4180 section 2, rule 6
     EXPECT_EQ(t.row_lines, (std::vector<std::size_t>{2, 4, 5}));  // closed form: physical lines where records start
 }
 
@@ -155,25 +154,26 @@ TEST(Csv, DoubledQuoteInsideQuotedField) {
 
 TEST(Csv, CrlfLineEnds) {
     const Table t = read("a,b\r\n1,\"x\"\r\n2,y\r\n");
-    EXPECT_EQ(t.at("a").numbers, (std::vector<double>{1, 2}));  // RFC 4180 section 2, rule 1 (CRLF)
+    EXPECT_EQ(t.at("a").numbers, (std::vector<double>{1, 2}));          // RFC 4180 section 2, rule 1 (CRLF)
     EXPECT_EQ(cells(t.at("b")), (std::vector<std::string>{"x", "y"}));  // RFC 4180 section 2, rule 1: CR is not data
 }
 
 TEST(Csv, LastRecordWithoutLineBreak) {
     const Table t = read("a,b\n1,2\n3,4");
-    EXPECT_EQ(t.rows(), 2u);  // RFC 4180 section 2, rule 2
+    EXPECT_EQ(t.rows(), 2u);                                    // RFC 4180 section 2, rule 2
     EXPECT_EQ(t.at("b").numbers, (std::vector<double>{2, 4}));  // RFC 4180 section 2, rule 2
 }
 
 TEST(Csv, BlankLinesAreSkippedAnywhere) {
     const Table t = read("a,b\n1,2\n\n3,4\r\n\n\r\n\n");
     EXPECT_EQ(t.at("a").numbers, (std::vector<double>{1, 3}));  // common practice: blank lines carry no record
-    EXPECT_EQ(t.row_lines, (std::vector<std::size_t>{2, 4}));    // closed form: counting lines
+    EXPECT_EQ(t.row_lines, (std::vector<std::size_t>{2, 4}));   // closed form: counting lines
 }
 
 TEST(Csv, QuoteInsideUnquotedFieldIsLiteral) {
     const Table t = read("item,n\n5\" screen,1\nab\"c,2\n");
-    EXPECT_EQ(cells(t.at("item")), (std::vector<std::string>{"5\" screen", "ab\"c"}));  // common practice (lenient readers)
+    EXPECT_EQ(cells(t.at("item")),
+              (std::vector<std::string>{"5\" screen", "ab\"c"}));  // common practice (lenient readers)
 }
 
 TEST(Csv, QuotedNumbersAreNumbers) {
@@ -197,13 +197,13 @@ TEST(Csv, SniffsComma) {
 
 TEST(Csv, SniffsSemicolon) {
     const Table t = read("a;b;c\n1;2;3\n4;5;6\n");
-    ASSERT_EQ(t.cols(), 3u);  // closed form: three fields split by ';'
+    ASSERT_EQ(t.cols(), 3u);                                    // closed form: three fields split by ';'
     EXPECT_EQ(t.at("c").numbers, (std::vector<double>{3, 6}));  // closed form
 }
 
 TEST(Csv, SniffsTab) {
     const Table t = read("a\tb\n1\t2\n");
-    ASSERT_EQ(t.cols(), 2u);  // closed form: two fields split by tab
+    ASSERT_EQ(t.cols(), 2u);                                 // closed form: two fields split by tab
     EXPECT_EQ(t.at("b").numbers, (std::vector<double>{2}));  // closed form
 }
 
@@ -230,7 +230,7 @@ TEST(Csv, NoHeaderNamesColumnsV1ToVk) {
     EXPECT_EQ(t.columns[0].name, "V1");
     EXPECT_EQ(t.columns[1].name, "V2");
     EXPECT_EQ(t.columns[0].numbers, (std::vector<double>{1, 2}));  // RFC 4180 section 2, rule 3: no header line
-    EXPECT_EQ(t.row_lines, (std::vector<std::size_t>{1, 2}));        // closed form: counting lines
+    EXPECT_EQ(t.row_lines, (std::vector<std::size_t>{1, 2}));      // closed form: counting lines
 }
 
 TEST(Csv, DefaultMissingTokensAfterTrimming) {
@@ -251,8 +251,8 @@ TEST(Csv, UserMissingTokensReplaceTheDefaults) {
     const Column& x = t.at("x");
     ASSERT_EQ(x.kind, ColumnKind::Numeric);
     EXPECT_TRUE(std::isnan(x.numbers[0]));  // "-99" is listed
-    EXPECT_EQ(x.numbers[1], -99.0);  // closed form: "-99.0" is not the text "-99"
-    EXPECT_EQ(x.numbers[2], 5.0);    // closed form
+    EXPECT_EQ(x.numbers[1], -99.0);         // closed form: "-99.0" is not the text "-99"
+    EXPECT_EQ(x.numbers[2], 5.0);           // closed form
     // "NA" is no longer missing, so y is text.
     EXPECT_EQ(cells(t.at("y")), (std::vector<std::string>{"<NA>", "NA", "<NA>"}));
 }
@@ -277,7 +277,7 @@ TEST(Csv, DecimalCommaTreatsPointAsText) {
 TEST(Csv, SpacesAroundNumbersAndLeadingPlus) {
     const Table t = read("a,b\n  1.5 ,+2\n\t-3\t, +.5\n");
     EXPECT_EQ(t.at("a").numbers, (std::vector<double>{1.5, -3.0}));  // common practice: blanks trimmed
-    EXPECT_EQ(t.at("b").numbers, (std::vector<double>{2.0, 0.5}));    // common practice: leading '+'
+    EXPECT_EQ(t.at("b").numbers, (std::vector<double>{2.0, 0.5}));   // common practice: leading '+'
 }
 
 TEST(Csv, InfAndNanAreTextAndMakeTheColumnCategorical) {
@@ -293,8 +293,8 @@ TEST(Csv, InferredCategoricalKeepsOriginalTextAndFirstTextCell) {
     const Column& id = t.at("id");
     ASSERT_EQ(id.kind, ColumnKind::Categorical);
     EXPECT_EQ(id.levels, (std::vector<std::string>{"007", "1.50", "abc"}));  // first appearance order
-    EXPECT_EQ(id.codes, (std::vector<std::int32_t>{0, 1, 2, 0}));  // closed form
-    EXPECT_EQ(id.first_text_line, 4u);  // closed form: "abc" is on line 4
+    EXPECT_EQ(id.codes, (std::vector<std::int32_t>{0, 1, 2, 0}));            // closed form
+    EXPECT_EQ(id.first_text_line, 4u);                                       // closed form: "abc" is on line 4
     EXPECT_EQ(id.first_text, "abc");
     EXPECT_FALSE(id.kind_forced);
 }
@@ -546,10 +546,8 @@ TEST(CsvBlocks, ThreadCountDoesNotChangeTheTableAndTheFileIsUntouched) {
             text += std::to_string(g);
         }
         text += ',';
-        if (rng() % 10 == 0)
-            text += "NA";
-        else
-            text += std::to_string(rng() % 1000);
+        if (rng() % 10 == 0) text += "NA";
+        else text += std::to_string(rng() % 1000);
         text += ',';
         text += i == kRows - 10 ? std::string("text") : std::to_string(i % 97);
         text += "\n";
@@ -571,7 +569,7 @@ TEST(CsvBlocks, ThreadCountDoesNotChangeTheTableAndTheFileIsUntouched) {
     const Column& xc = a.at("x");
     ASSERT_EQ(xc.kind, ColumnKind::Numeric);
     for (std::size_t i = 0; i < x.size(); ++i)
-        ASSERT_EQ(xc.numbers[i], x[i]) << i;  // closed form: std::to_chars shortest form reads back exactly
+        ASSERT_EQ(xc.numbers[i], x[i]) << i;     // closed form: std::to_chars shortest form reads back exactly
     EXPECT_EQ(a.at("group").levels.size(), 6u);  // closed form: six generated groups
     EXPECT_EQ(a.at("late").kind, ColumnKind::Categorical);
     EXPECT_EQ(a.at("late").first_text, "text");
@@ -589,7 +587,7 @@ TEST(CsvBlocks, ReadsFileWithBomAndCrlf) {
     const Table t = moderato::read_csv(p.string(), o);
     EXPECT_EQ(t.source, p.string());
     EXPECT_EQ(t.at("x").numbers, (std::vector<double>{1.5, 2.0}));  // closed form
-    EXPECT_EQ(t.row_lines, (std::vector<std::size_t>{2, 3}));        // closed form
+    EXPECT_EQ(t.row_lines, (std::vector<std::size_t>{2, 3}));       // closed form
 }
 
 // ------------------------------------------------------------ table
@@ -604,7 +602,7 @@ TEST(TableLookup, AtFindAndRowLocation) {
     plain.columns.push_back(Column{});
     plain.columns.back().name = "z";
     plain.columns.back().numbers = {1.0, moderato::missing_value()};
-    EXPECT_EQ(plain.row_location(1), "row 2");  // closed form: 1-based row without lines
+    EXPECT_EQ(plain.row_location(1), "row 2");            // closed form: 1-based row without lines
     EXPECT_EQ(plain.columns.back().missing_count(), 1u);  // closed form
     EXPECT_EQ(error_of([&] { plain.at("y"); }), "column 'y' not found; columns are: z");
 }

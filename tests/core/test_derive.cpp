@@ -9,8 +9,8 @@
 
 #include "moderato/reading/csv.hpp"
 #include "moderato/reading/derive.hpp"
-#include "moderato/support/error.hpp"
 #include "moderato/reading/table.hpp"
+#include "moderato/support/error.hpp"
 
 using moderato::CentreAt;
 using moderato::Column;
@@ -53,10 +53,8 @@ void expect_values(const Column& c, const std::vector<double>& expected, double 
     ASSERT_EQ(c.kind, ColumnKind::Numeric);
     ASSERT_EQ(c.numbers.size(), expected.size());
     for (std::size_t i = 0; i < expected.size(); ++i) {
-        if (std::isnan(expected[i]))
-            EXPECT_TRUE(std::isnan(c.numbers[i])) << "row " << i;
-        else
-            EXPECT_NEAR(c.numbers[i], expected[i], tol) << "row " << i;
+        if (std::isnan(expected[i])) EXPECT_TRUE(std::isnan(c.numbers[i])) << "row " << i;
+        else EXPECT_NEAR(c.numbers[i], expected[i], tol) << "row " << i;
     }
 }
 
@@ -77,7 +75,8 @@ TEST(Derive, MeanSurvivesALargeOffset) {
 
 TEST(Derive, CentreAtMedian) {
     EXPECT_EQ(moderato::centre_value(numeric("x", {10, 1, 3, 2}), CentreAt::Median), 2.5);  // closed form: (2+3)/2
-    EXPECT_EQ(moderato::centre_value(numeric("x", {5, kNaN, 1, 9}), CentreAt::Median), 5.0);  // closed form: middle of 1,5,9
+    EXPECT_EQ(moderato::centre_value(numeric("x", {5, kNaN, 1, 9}), CentreAt::Median),
+              5.0);  // closed form: middle of 1,5,9
     const Column c = moderato::centre(numeric("x", {4, kNaN, 1, 9}), CentreAt::Median, 0.0, "xm");
     EXPECT_EQ(c.name, "xm");
     expect_values(c, {0, kNaN, -3, 5});  // closed form: median 4
@@ -90,7 +89,9 @@ TEST(Derive, CentreAtValue) {
 }
 
 TEST(Derive, CentreNeedsValues) {
-    EXPECT_EQ(error_of([] { moderato::centre(numeric("x", {kNaN, kNaN}), CentreAt::Mean); }),
+    EXPECT_EQ(error_of([] {
+                  moderato::centre(numeric("x", {kNaN, kNaN}), CentreAt::Mean);
+              }),
               "column 'x' has no values (every cell is missing); it cannot be centred");
 }
 
@@ -103,9 +104,13 @@ TEST(Derive, StandardiseUsesSampleSd) {
 }
 
 TEST(Derive, StandardiseRejectsConstantAndTooShortColumns) {
-    EXPECT_EQ(error_of([] { moderato::standardise(numeric("z", {3, 3, kNaN, 3})); }),
+    EXPECT_EQ(error_of([] {
+                  moderato::standardise(numeric("z", {3, 3, kNaN, 3}));
+              }),
               "column 'z' is constant (every value is 3); it cannot be standardised");
-    EXPECT_EQ(error_of([] { moderato::standardise(numeric("z", {3, kNaN})); }),
+    EXPECT_EQ(error_of([] {
+                  moderato::standardise(numeric("z", {3, kNaN}));
+              }),
               "column 'z' has 1 value; standardising needs at least 2 non-missing values");
 }
 
@@ -125,7 +130,9 @@ TEST(Derive, Log1pAndItsErrorWithoutLines) {
     EXPECT_EQ(l.name, "log1p(n)");
     expect_values(l, {0, 1, kNaN}, 1e-15);  // closed form: log(1 + (e - 1)) = 1
     Table plain;
-    EXPECT_EQ(error_of([&] { moderato::log1p_column(numeric("n", {0, -1.5}), plain); }),
+    EXPECT_EQ(error_of([&] {
+                  moderato::log1p_column(numeric("n", {0, -1.5}), plain);
+              }),
               "column 'n' has the value -1.5 at row 2, but log1p needs values above -1; add a constant first");
 }
 
@@ -136,7 +143,9 @@ TEST(Derive, SquareAndProduct) {
     const Column p = moderato::product(numeric("a", {2, kNaN, -1}), numeric("b", {3, 1, kNaN}));
     EXPECT_EQ(p.name, "a\u00D7b");
     expect_values(p, {6, kNaN, kNaN});  // closed form: missing if either is missing
-    EXPECT_EQ(error_of([] { moderato::product(numeric("a", {1, 2}), numeric("b", {1})); }),
+    EXPECT_EQ(error_of([] {
+                  moderato::product(numeric("a", {1, 2}), numeric("b", {1}));
+              }),
               "columns 'a' and 'b' have different lengths (2 and 1); a product needs columns of the same table");
 }
 

@@ -22,10 +22,9 @@ const double NA = missing_value();
 }  // namespace
 
 TEST(Design, ThreeWayProductAddsEveryLowerOrderTermInOrder) {
-    const Table t = make_table({numeric_column("y", {1, 2, 3, 4, 5, 6, 7, 9, 8, 10}),
-                                numeric_column("x", {1, 2, 1, 3, 2, 5, 4, 3, 6, 2}),
-                                numeric_column("z", {2, 1, 3, 2, 5, 1, 4, 6, 2, 3}),
-                                numeric_column("w", {5, 3, 1, 4, 2, 6, 3, 1, 2, 4})});
+    const Table t = make_table(
+        {numeric_column("y", {1, 2, 3, 4, 5, 6, 7, 9, 8, 10}), numeric_column("x", {1, 2, 1, 3, 2, 5, 4, 3, 6, 2}),
+         numeric_column("z", {2, 1, 3, 2, 5, 1, 4, 6, 2, 3}), numeric_column("w", {5, 3, 1, 4, 2, 6, 3, 1, 2, 4})});
     ModelSpec s;
     s.outcome = "y";
     s.interactions = {{"x", "z", "w"}};
@@ -50,17 +49,16 @@ TEST(Design, RepeatedColumnIsAPowerAndNotAProduct) {
 }
 
 TEST(Design, CategoricalIsDummyCodedWithSortedLevelsAndChosenReference) {
-    const Table t = make_table({numeric_column("y", {1, 2, 3, 4, 5, 6, 7, 8}),
-                                numeric_column("x", {1, 3, 2, 5, 4, 6, 8, 7}),
-                                categorical_column("region", {"Plains", "Coast", "Hills", "Coast", "Plains", "Hills",
-                                                              "Coast", "Plains"})});
+    const Table t = make_table(
+        {numeric_column("y", {1, 2, 3, 4, 5, 6, 7, 8}), numeric_column("x", {1, 3, 2, 5, 4, 6, 8, 7}),
+         categorical_column("region", {"Plains", "Coast", "Hills", "Coast", "Plains", "Hills", "Coast", "Plains"})});
     ModelSpec s;
     s.outcome = "y";
     s.interactions = {{"region", "x"}};
     Design d = build_design(t, s);
     // reference: first sorted level (common practice)
-    EXPECT_EQ(labels(d), (std::vector<std::string>{"intercept", "region=Hills", "region=Plains", "x",
-                                                   "region=Hills×x", "region=Plains×x"}));
+    EXPECT_EQ(labels(d), (std::vector<std::string>{"intercept", "region=Hills", "region=Plains", "x", "region=Hills×x",
+                                                   "region=Plains×x"}));
     EXPECT_EQ(d.X(0, 2), 1.0);  // row 0 is Plains
     EXPECT_EQ(d.X(0, 5), 1.0);  // Plains × x = 1
     EXPECT_EQ(d.X(2, 4), 2.0);  // Hills × x at x = 2
@@ -76,9 +74,9 @@ TEST(Design, NumericLookingLevelsSortByValue) {
 }
 
 TEST(Design, ListwiseDeletionReportsWhy) {
-    const Table t = make_table({numeric_column("y", {1, NA, 3, 4, 5, 6, 7}),
-                                numeric_column("x", {1, 2, NA, NA, 5, 6, 8}),
-                                numeric_column("unused", {NA, NA, NA, NA, NA, NA, NA})});
+    const Table t =
+        make_table({numeric_column("y", {1, NA, 3, 4, 5, 6, 7}), numeric_column("x", {1, 2, NA, NA, 5, 6, 8}),
+                    numeric_column("unused", {NA, NA, NA, NA, NA, NA, NA})});
     ModelSpec s;
     s.outcome = "y";
     s.predictors = {"x"};
@@ -94,9 +92,9 @@ TEST(Design, ListwiseDeletionReportsWhy) {
 }
 
 TEST(Design, NoInterceptAndWeightsAndClusters) {
-    const Table t = make_table({numeric_column("y", {1, 2, 3, 4, 5}), numeric_column("x", {2, 1, 4, 3, 5}),
-                                numeric_column("w", {1, 2, 1, 2, 1}),
-                                categorical_column("g", {"a", "b", "a", "c", "b"})});
+    const Table t =
+        make_table({numeric_column("y", {1, 2, 3, 4, 5}), numeric_column("x", {2, 1, 4, 3, 5}),
+                    numeric_column("w", {1, 2, 1, 2, 1}), categorical_column("g", {"a", "b", "a", "c", "b"})});
     ModelSpec s;
     s.outcome = "y";
     s.predictors = {"x"};
@@ -132,8 +130,9 @@ TEST(Design, ErrorsNameTheColumnAndLine) {
         build_design(t, s);
         FAIL() << "negative weight accepted";
     } catch (const InputError& e) {
-        EXPECT_STREQ(e.what(), "weights 'w' must be positive: line 3 of test.csv holds -2; fix that row or choose another "
-                               "weights column");
+        EXPECT_STREQ(e.what(),
+                     "weights 'w' must be positive: line 3 of test.csv holds -2; fix that row or choose another "
+                     "weights column");
     }
     s.weights.clear();
     s.outcome = "b";

@@ -19,10 +19,10 @@
 #include <set>
 
 #include "common/table_builder.hpp"
-#include "moderato/reading/csv.hpp"
 #include "moderato/estimation/diagnostics.hpp"
-#include "moderato/support/error.hpp"
 #include "moderato/estimation/fit.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/support/error.hpp"
 
 using namespace moderato;
 using namespace moderato::test;
@@ -213,9 +213,9 @@ Drawn drawn(unsigned seed, int n, bool weighted) {
         w[i] = U(rng);
         y[i] = 1 + x[i] - 0.5 * z[i] + 0.3 * x[i] * z[i] + N(rng) / std::sqrt(w[i]);
     }
-    Drawn d{make_table({numeric_column("y", y), numeric_column("x", x), numeric_column("z", z),
-                        numeric_column("w", w)}),
-            {}};
+    Drawn d{
+        make_table({numeric_column("y", y), numeric_column("x", x), numeric_column("z", z), numeric_column("w", w)}),
+        {}};
     d.spec.outcome = "y";
     d.spec.predictors = {"x", "z"};
     d.spec.interactions = {{"x", "z"}};
@@ -300,8 +300,8 @@ TEST(DiagnosticsClosedForm, RowWithLeverageOneIsFlaggedWithoutResidual) {
     ModelSpec s;
     s.outcome = "y";
     s.predictors = {"x", "grp"};
-    const Design d = build_design(
-        make_table({numeric_column("y", y), numeric_column("x", x), categorical_column("grp", grp)}), s);
+    const Design d =
+        build_design(make_table({numeric_column("y", y), numeric_column("x", x), categorical_column("grp", grp)}), s);
     const Diagnostics g = diagnostics(d, fit_design(d, s));
     EXPECT_NEAR(g.leverage[12], 1.0, 1e-12);
     EXPECT_TRUE(std::isnan(g.studentised[12]));

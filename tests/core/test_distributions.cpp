@@ -28,10 +28,11 @@ TEST(Distributions, NormalQuantilesMatchHandbook) {
 // Student t upper percentage points, two-sided 5 % and 1 % (Abramowitz & Stegun
 // 1964, Table 26.10; also any statistics text's t table; from memory).
 TEST(Distributions, StudentTQuantilesMatchHandbook) {
-    struct Row { double df, q975, q995; };
-    const Row rows[] = {{1, 12.706, 63.657}, {2, 4.303, 9.925}, {5, 2.571, 4.032},
-                        {10, 2.228, 3.169},  {20, 2.086, 2.845}, {30, 2.042, 2.750},
-                        {60, 2.000, 2.660},  {120, 1.980, 2.617}};
+    struct Row {
+        double df, q975, q995;
+    };
+    const Row rows[] = {{1, 12.706, 63.657}, {2, 4.303, 9.925},  {5, 2.571, 4.032},  {10, 2.228, 3.169},
+                        {20, 2.086, 2.845},  {30, 2.042, 2.750}, {60, 2.000, 2.660}, {120, 1.980, 2.617}};
     for (const auto& r : rows) {
         EXPECT_NEAR(t_quantile(0.975, r.df), r.q975, 5e-4) << "df " << r.df;
         EXPECT_NEAR(t_quantile(0.995, r.df), r.q995, 5e-4) << "df " << r.df;
@@ -43,8 +44,10 @@ TEST(Distributions, StudentTQuantilesMatchHandbook) {
 // Chi-square upper 5 % and 1 % points (Abramowitz & Stegun 1964, Table 26.8;
 // from memory).
 TEST(Distributions, ChiSquareQuantilesMatchHandbook) {
-    struct Row { double df, q95, q99; };
-    const Row rows[] = {{1, 3.841, 6.635}, {2, 5.991, 9.210}, {3, 7.815, 11.345},
+    struct Row {
+        double df, q95, q99;
+    };
+    const Row rows[] = {{1, 3.841, 6.635},   {2, 5.991, 9.210},    {3, 7.815, 11.345},
                         {5, 11.070, 15.086}, {10, 18.307, 23.209}, {30, 43.773, 50.892}};
     for (const auto& r : rows) {
         EXPECT_NEAR(chi2_quantile(0.95, r.df), r.q95, 5e-4) << "df " << r.df;
@@ -56,7 +59,9 @@ TEST(Distributions, ChiSquareQuantilesMatchHandbook) {
 // F upper 5 % and 1 % points (Abramowitz & Stegun 1964, Table 26.9; the usual
 // F tables; from memory).
 TEST(Distributions, FQuantilesMatchHandbook) {
-    struct Row { double df1, df2, q95, q99; };
+    struct Row {
+        double df1, df2, q95, q99;
+    };
     const Row rows[] = {{1, 10, 4.96, 10.04}, {2, 10, 4.10, 7.56}, {3, 20, 3.10, 4.94},
                         {5, 10, 3.33, 5.64},  {4, 30, 2.69, 4.02}, {1, 120, 3.92, 6.85}};
     for (const auto& r : rows) {

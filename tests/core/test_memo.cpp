@@ -4,21 +4,21 @@
 // the number formats; base64.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <boost/math/distributions/students_t.hpp>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
-#include <nlohmann/json.hpp>
-#include <regex>
 #include <functional>
 #include <map>
-#include <algorithm>
+#include <nlohmann/json.hpp>
+#include <regex>
 #include <sstream>
 
 #include "moderato/project/analysis_run.hpp"
+#include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/reporting/memo.hpp"
-#include "moderato/project/project_loader.hpp"
 #include "moderato/reporting/report_text.hpp"
 
 namespace fs = std::filesystem;
@@ -118,8 +118,8 @@ TEST(MemoSentences, OrchardNumbersMatchStatsmodelsAndClosedForms) {
 
     // The product coefficient with its HC3 interval: statsmodels 0.13.5 OLS cov_type='HC3', use_t
     // (fixture ui_estimates_orchard.json).
-    auto m = find(findings, std::string("changes the effect of nitrogen_kg_ha on yield_t_ha by ") + kNum + " \\(95% CI " +
-                                kNum + " to " + kNum + ", p < 0\\.001\\)");
+    auto m = find(findings, std::string("changes the effect of nitrogen_kg_ha on yield_t_ha by ") + kNum +
+                                " \\(95% CI " + kNum + " to " + kNum + ", p < 0\\.001\\)");
     ASSERT_EQ(m.size(), 4u);
     expect_written(m[1], ref["estimates"][4].get<double>(), "product estimate");
     expect_written(m[2], ref["ci_lower_95"][4].get<double>(), "product CI lower");
@@ -129,7 +129,8 @@ TEST(MemoSentences, OrchardNumbersMatchStatsmodelsAndClosedForms) {
     // The observed range: min and max of the column, read here from the table.
     const Table& table = *s.run.table;
     const auto& z = table.at("soil_moisture_pct").numbers;
-    m = find(findings, std::string("Among the observed values of soil_moisture_pct \\(") + kNum + " to " + kNum + "\\)");
+    m = find(findings,
+             std::string("Among the observed values of soil_moisture_pct \\(") + kNum + " to " + kNum + "\\)");
     ASSERT_EQ(m.size(), 3u);
     expect_written(m[1], *std::min_element(z.begin(), z.end()), "observed minimum");
     expect_written(m[2], *std::max_element(z.begin(), z.end()), "observed maximum");
@@ -142,8 +143,8 @@ TEST(MemoSentences, OrchardNumbersMatchStatsmodelsAndClosedForms) {
     const double b1 = s.run.fit.beta(i1), b3 = s.run.fit.beta(i3);
     const auto& V = s.run.fit.covariance;
     const double t = boost::math::quantile(boost::math::students_t(ref["df_residual"].get<double>()), 0.975);
-    const auto roots = quadratic_roots(b3 * b3 - t * t * V(i3, i3), 2 * (b1 * b3 - t * t * V(i1, i3)),
-                                       b1 * b1 - t * t * V(i1, i1));
+    const auto roots =
+        quadratic_roots(b3 * b3 - t * t * V(i3, i3), 2 * (b1 * b3 - t * t * V(i1, i3)), b1 * b1 - t * t * V(i1, i1));
     ASSERT_EQ(roots.size(), 2u);
     m = find(findings, std::string("Johnson–Neyman boundaries at ") + kNum + " and " + kNum + " lie beyond the data");
     ASSERT_EQ(m.size(), 3u);
@@ -151,7 +152,8 @@ TEST(MemoSentences, OrchardNumbersMatchStatsmodelsAndClosedForms) {
     expect_written(m[2], roots[1], "second boundary");
     // Both below the observed minimum, so the effect is significant throughout the data.
     EXPECT_LT(roots[1], *std::min_element(z.begin(), z.end()));
-    EXPECT_NE(joined(findings).find("is positive and differs from zero throughout the observed range"), std::string::npos);
+    EXPECT_NE(joined(findings).find("is positive and differs from zero throughout the observed range"),
+              std::string::npos);
 
     // Effects at mean - SD, mean, mean + SD: b1 + b3 m with the column's mean and SD computed here.
     const double mean = column_mean(table, "soil_moisture_pct"), sd = column_sd(table, "soil_moisture_pct");
@@ -162,8 +164,8 @@ TEST(MemoSentences, OrchardNumbersMatchStatsmodelsAndClosedForms) {
     expect_written(m[1], b1 + b3 * (mean - sd), "effect at mean - SD");
 
     // R-squared with and without the product: statsmodels (fixture: rsquared, compare_f_test).
-    m = find(findings, std::string("raises R² from ") + kNum + " to " + kNum + " \\(change " + kNum + "; F\\(1, 475\\) = " +
-                           kNum);
+    m = find(findings, std::string("raises R² from ") + kNum + " to " + kNum + " \\(change " + kNum +
+                           "; F\\(1, 475\\) = " + kNum);
     ASSERT_EQ(m.size(), 5u);
     expect_written(m[1], ref["r_squared_change"]["r_squared_reduced"].get<double>(), "R² without");
     expect_written(m[2], ref["r_squared"].get<double>(), "R² with");
@@ -187,7 +189,8 @@ TEST(MemoSentences, CoffeeCrossoverAndSlopesMatchClosedForms) {
 
     // Slopes per group: b1 (members = 0) and b1 + b3 (closed form).
     auto m = find(findings, std::string("The effect of discount_pct on weekly_spend is ") + kNum +
-                                " \\(95% CI [^)]*\\) for loyalty_member = 0 and " + kNum + " \\(95% CI [^)]*\\) for loyalty_member = 1");
+                                " \\(95% CI [^)]*\\) for loyalty_member = 0 and " + kNum +
+                                " \\(95% CI [^)]*\\) for loyalty_member = 1");
     ASSERT_EQ(m.size(), 3u);
     expect_written(m[1], b1, "slope of non-members");
     expect_written(m[2], b1 + b3, "slope of members");
@@ -195,11 +198,11 @@ TEST(MemoSentences, CoffeeCrossoverAndSlopesMatchClosedForms) {
     // Crossover -b2/b3 and its Fieller interval: the roots of
     // (b2 + b3 x)^2 = t^2 (V22 + 2 x V23 + x^2 V33) (Fieller 1954; closed form here).
     const double t = boost::math::quantile(boost::math::students_t(f.df_residual), 0.975);
-    const auto fieller = quadratic_roots(b3 * b3 - t * t * V(i3, i3), 2 * (b2 * b3 - t * t * V(i2, i3)),
-                                         b2 * b2 - t * t * V(i2, i2));
+    const auto fieller =
+        quadratic_roots(b3 * b3 - t * t * V(i3, i3), 2 * (b2 * b3 - t * t * V(i2, i3)), b2 * b2 - t * t * V(i2, i2));
     ASSERT_EQ(fieller.size(), 2u);
-    m = find(findings, std::string("cross at discount_pct = ") + kNum + " \\(95% Fieller interval " + kNum + " to " + kNum +
-                           "\\), inside the observed discount_pct values \\(" + kNum + " to " + kNum +
+    m = find(findings, std::string("cross at discount_pct = ") + kNum + " \\(95% Fieller interval " + kNum + " to " +
+                           kNum + "\\), inside the observed discount_pct values \\(" + kNum + " to " + kNum +
                            "\\): the interaction is disordinal there");
     ASSERT_EQ(m.size(), 6u);
     expect_written(m[1], -b2 / b3, "crossover");
@@ -220,8 +223,8 @@ TEST(MemoSentences, CellsSentenceIsTheDifferenceInDifferences) {
     const CellTable& c = *s.run.cells;
     // Closed form: (mu11 - mu01) - (mu10 - mu00) from the cells' predictions.
     const double did = (c.at(1, 1).estimate - c.at(0, 1).estimate) - (c.at(1, 0).estimate - c.at(0, 0).estimate);
-    const auto m = find(findings, std::string("the difference in differences is ") + kNum + " \\(95% CI " + kNum + " to " +
-                                      kNum);
+    const auto m =
+        find(findings, std::string("the difference in differences is ") + kNum + " \\(95% CI " + kNum + " to " + kNum);
     ASSERT_EQ(m.size(), 4u);
     expect_written(m[1], did, "difference in differences");
     const double lo = read_number(m[2]), hi = read_number(m[3]);
@@ -230,8 +233,8 @@ TEST(MemoSentences, CellsSentenceIsTheDifferenceInDifferences) {
 }
 
 TEST(MemoSentences, EverySampleHasFindingsAndTheUsualCautions) {
-    for (const char* name : {"coffee-discount", "orchard-nitrogen", "volunteer-onboarding", "helpdesk-staffing",
-                             "trial-conversion"}) {
+    for (const char* name :
+         {"coffee-discount", "orchard-nitrogen", "volunteer-onboarding", "helpdesk-staffing", "trial-conversion"}) {
         SCOPED_TRACE(name);
         const Sample s = open_sample(name);
         EXPECT_GE(memo_findings(s.analysis, s.run).size(), 2u);
@@ -321,7 +324,8 @@ TEST(MemoRender, UserStringsAreEscapedAndTheHtmlIsSelfContained) {
     // Self-contained: no address of another file or site, the figure inline.
     for (const char* outside : {"http://", "https://", "<link", "@import", "url(", "src=\"lines-plot.png"})
         EXPECT_EQ(html.find(outside), std::string::npos) << outside;
-    EXPECT_NE(html.find("src=\"data:image/png;base64,iVBORw0KGgo=\""), std::string::npos);  // RFC 4648 of the PNG signature
+    EXPECT_NE(html.find("src=\"data:image/png;base64,iVBORw0KGgo=\""),
+              std::string::npos);  // RFC 4648 of the PNG signature
 
     const std::string md = memo_to_markdown(memo);
     // CommonMark: a backslash before '<' makes it a literal character, so no tag can open.
@@ -357,8 +361,7 @@ TEST(MemoRender, FooterStatesChecksumVersionAndEveryOption) {
     std::function<void(const nlohmann::json&)> count = [&](const nlohmann::json& j) {
         if (j.is_object())
             for (const auto& [k, v] : j.items()) count(v);
-        else
-            ++leaves;
+        else ++leaves;
     };
     count(json["analyses"][0]);
     std::size_t analysis_rows = 0;
@@ -384,19 +387,28 @@ TEST(ReportText, FourSignificantDigitsAndTheMinusSign) {
     // Common practice for reports: 4 significant digits, trailing zeros kept, U+2212 minus.
     EXPECT_EQ(format_sig(15.9238), "15.92");
     EXPECT_EQ(format_sig(17.3), "17.30");
-    EXPECT_EQ(format_sig(-0.45678), "\xE2\x88\x92" "0.4568");
+    EXPECT_EQ(format_sig(-0.45678),
+              "\xE2\x88\x92"
+              "0.4568");
     EXPECT_EQ(format_sig(0.0018222), "0.001822");
     EXPECT_EQ(format_sig(9.99962), "10.00");
     EXPECT_EQ(format_sig(895), "895");
     EXPECT_EQ(format_sig(0), "0");
     EXPECT_EQ(format_sig(-0.0), "0");
-    EXPECT_EQ(format_sig(-2511.3), "\xE2\x88\x92" "2511");
-    EXPECT_EQ(format_sig(4.867e-5), "4.867\xC3\x97" "10\xE2\x81\xBB\xE2\x81\xB5");
+    EXPECT_EQ(format_sig(-2511.3),
+              "\xE2\x88\x92"
+              "2511");
+    EXPECT_EQ(format_sig(4.867e-5),
+              "4.867\xC3\x97"
+              "10\xE2\x81\xBB\xE2\x81\xB5");
     EXPECT_EQ(format_sig(std::nan("")), "\xE2\x80\x94");
     EXPECT_EQ(format_sig(-INFINITY), "\xE2\x88\x92\xE2\x88\x9E");
     EXPECT_EQ(format_range(14.73, 17.3), "14.73 to 17.30");
     EXPECT_EQ(format_range(0, 30), "0 to 30");
-    EXPECT_EQ(format_range(-11.0801, -5.58), "\xE2\x88\x92" "11.08 to \xE2\x88\x92" "5.58");
+    EXPECT_EQ(format_range(-11.0801, -5.58),
+              "\xE2\x88\x92"
+              "11.08 to \xE2\x88\x92"
+              "5.58");
     EXPECT_EQ(format_p_value(0.0234), "0.023");
     EXPECT_EQ(format_p_value(0.0004), "< 0.001");
     EXPECT_EQ(p_clause(0.0004), "p < 0.001");
@@ -473,5 +485,6 @@ TEST(MemoSentences, ThreeWayFindingsSayWhereTheSecondModeratorIsHeld) {
     a.probe.second_value = 1.5;
     AnalysisRun held = run;
     probe_analysis(held, a);
-    EXPECT_NE(joined(memo_findings(a, held)).find("with w held at 1.500,"), std::string::npos) << joined(memo_findings(a, held));
+    EXPECT_NE(joined(memo_findings(a, held)).find("with w held at 1.500,"), std::string::npos)
+        << joined(memo_findings(a, held));
 }

@@ -7,9 +7,9 @@
 #include <iostream>
 
 #include "common/nist.hpp"
-#include "moderato/reading/csv.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/estimation/least_squares.hpp"
+#include "moderato/reading/csv.hpp"
 
 using namespace moderato;
 using namespace moderato::test;

@@ -24,8 +24,8 @@
 #include <string>
 #include <vector>
 
-#include "moderato/support/error.hpp"
 #include "moderato/probing/power.hpp"
+#include "moderato/support/error.hpp"
 
 namespace {
 
@@ -99,11 +99,15 @@ Noncentrality convention_of(const json& c) {
 // Tolerance: max(2, 1 % of n). The exact answers are checked against scipy
 // below (ReferenceSampleSizes).
 TEST(Power, SampleSizesMatchCohenTables) {
-    struct Row { long long u; double f2; long long n; };
+    struct Row {
+        long long u;
+        double f2;
+        long long n;
+    };
     const Row rows[] = {
-        {1, 0.02, 395}, {1, 0.15, 55}, {1, 0.35, 25},   // from memory
-        {2, 0.02, 481}, {2, 0.15, 67}, {2, 0.35, 30},   // Cohen 1992, Table 2; from memory
-        {3, 0.02, 547}, {3, 0.15, 76}, {3, 0.35, 34},   // Cohen 1992, Table 2; from memory
+        {1, 0.02, 395}, {1, 0.15, 55}, {1, 0.35, 25},  // from memory
+        {2, 0.02, 481}, {2, 0.15, 67}, {2, 0.35, 30},  // Cohen 1992, Table 2; from memory
+        {3, 0.02, 547}, {3, 0.15, 76}, {3, 0.35, 34},  // Cohen 1992, Table 2; from memory
     };
     for (const auto& r : rows) {
         for (auto c : {Noncentrality::cohen, Noncentrality::n}) {
@@ -126,7 +130,7 @@ TEST(Power, SampleSizesMatchCohenTables) {
 // 10.91, but the chi-square limit is 10.903, so the recollection is doubtful.)
 TEST(Power, LargeSampleLambdaMatchesCohenAndChiSquareLimit) {
     namespace bm = boost::math;
-    const double table[] = {7.85, 9.64};   // Cohen 1988, Table 9.4.2, v = ∞; from memory
+    const double table[] = {7.85, 9.64};  // Cohen 1988, Table 9.4.2, v = ∞; from memory
     for (long long u = 1; u <= 3; ++u) {
         const long long n = 100'000'000;
         const auto d = moderato::smallest_detectable_f2(n, 0.80, design(u, u));
@@ -139,7 +143,8 @@ TEST(Power, LargeSampleLambdaMatchesCohenAndChiSquareLimit) {
         }
 
         const double crit = bm::quantile(bm::complement(bm::chi_squared_distribution<double>(u), 0.05));
-        const double chi_power = bm::cdf(bm::complement(bm::non_central_chi_squared_distribution<double>(u, lambda), crit));
+        const double chi_power =
+            bm::cdf(bm::complement(bm::non_central_chi_squared_distribution<double>(u, lambda), crit));
         EXPECT_NEAR(chi_power, 0.80, 1e-4) << "u = " << u;
     }
 }
@@ -156,12 +161,12 @@ TEST(Power, ReferencePowerMatchesScipy) {
                               c.at("alpha").get<double>(), convention_of(c));
         const auto r = moderato::power_of_test(c.at("f2").get<double>(), c.at("n").get<long long>(), d);
         const std::string where = c.dump();
-        EXPECT_EQ(r.df1, c.at("df1").get<double>()) << where;                  // scipy reference (exact)
-        EXPECT_EQ(r.df2, c.at("df2").get<double>()) << where;                  // scipy reference (exact)
+        EXPECT_EQ(r.df1, c.at("df1").get<double>()) << where;  // scipy reference (exact)
+        EXPECT_EQ(r.df2, c.at("df2").get<double>()) << where;  // scipy reference (exact)
         EXPECT_LE(rel_diff(r.noncentrality, c.at("noncentrality").get<double>()), 1e-12) << where;  // scipy reference
-        EXPECT_LE(rel_diff(r.critical_f, c.at("critical_f").get<double>()), 1e-8) << where;        // scipy f.isf
-        EXPECT_LE(rel_diff(r.power, c.at("power").get<double>()), 1e-8) << where;                  // scipy ncf.sf
-        EXPECT_LE(rel_diff(r.power, c.at("power_mpmath").get<double>()), 1e-8) << where;           // mpmath, 40 digits
+        EXPECT_LE(rel_diff(r.critical_f, c.at("critical_f").get<double>()), 1e-8) << where;         // scipy f.isf
+        EXPECT_LE(rel_diff(r.power, c.at("power").get<double>()), 1e-8) << where;                   // scipy ncf.sf
+        EXPECT_LE(rel_diff(r.power, c.at("power_mpmath").get<double>()), 1e-8) << where;            // mpmath, 40 digits
     }
 }
 
@@ -174,12 +179,13 @@ TEST(Power, ReferenceSampleSizes) {
                               c.at("alpha").get<double>(), convention_of(c));
         const auto s = moderato::smallest_n_for_power(c.at("f2").get<double>(), c.at("target_power").get<double>(), d);
         const std::string where = c.dump();
-        EXPECT_EQ(s.at_n.n, c.at("n").get<long long>()) << where;                                   // scan of scipy ncf.sf
-        EXPECT_LE(rel_diff(s.at_n.power, c.at("power_at_n").get<double>()), 1e-8) << where;         // scipy ncf.sf
+        EXPECT_EQ(s.at_n.n, c.at("n").get<long long>()) << where;                            // scan of scipy ncf.sf
+        EXPECT_LE(rel_diff(s.at_n.power, c.at("power_at_n").get<double>()), 1e-8) << where;  // scipy ncf.sf
         if (c.at("power_one_fewer").is_null()) {
             EXPECT_TRUE(std::isnan(s.power_one_fewer)) << where;
         } else {
-            EXPECT_LE(rel_diff(s.power_one_fewer, c.at("power_one_fewer").get<double>()), 1e-8) << where;  // scipy ncf.sf
+            EXPECT_LE(rel_diff(s.power_one_fewer, c.at("power_one_fewer").get<double>()), 1e-8)
+                << where;  // scipy ncf.sf
         }
     }
 }
@@ -191,7 +197,8 @@ TEST(Power, ReferenceDetectableEffectSizes) {
     for (const auto& c : ref.at("detectable_cases")) {
         const auto d = design(c.at("tested_terms").get<long long>(), c.at("total_predictors").get<long long>(),
                               c.at("alpha").get<double>(), convention_of(c));
-        const auto r = moderato::smallest_detectable_f2(c.at("n").get<long long>(), c.at("target_power").get<double>(), d);
+        const auto r =
+            moderato::smallest_detectable_f2(c.at("n").get<long long>(), c.at("target_power").get<double>(), d);
         EXPECT_LE(rel_diff(r.at_f2.f2, c.at("f2").get<double>()), 1e-8) << c.dump();  // scipy brentq on ncf.sf
     }
 }
@@ -243,7 +250,7 @@ TEST(Power, SampleSizeRoundTrip) {
                         if (n < k + 2) continue;
                         const auto d = design(u, k, 0.05, c);
                         const double p = moderato::power_of_test(f2, n, d).power;
-                        if (!(p < 1.0)) continue;   // a target of 1 is outside (0, 1)
+                        if (!(p < 1.0)) continue;  // a target of 1 is outside (0, 1)
                         const auto s = moderato::smallest_n_for_power(f2, p, d);
                         EXPECT_EQ(s.at_n.n, n) << "u " << u << " k " << k << " f2 " << f2;
                         EXPECT_EQ(s.at_n.power, p);
@@ -323,8 +330,8 @@ TEST(Power, NoncentralityConventions) {
 // f² = (R²_full − R²_reduced)/(1 − R²_full); partial R² = f²/(1 + f²) (closed form).
 TEST(Power, EffectSizeConversions) {
     EXPECT_NEAR(moderato::f2_from_r2(0.30, 0.25), 0.05 / 0.70, 1e-15);  // closed form
-    EXPECT_EQ(moderato::f2_from_r2(0.4, 0.4), 0.0);                      // closed form
-    EXPECT_NEAR(moderato::f2_from_r2(0.5, 0.0), 1.0, 1e-15);             // closed form
+    EXPECT_EQ(moderato::f2_from_r2(0.4, 0.4), 0.0);                     // closed form
+    EXPECT_NEAR(moderato::f2_from_r2(0.5, 0.0), 1.0, 1e-15);            // closed form
     // Cohen's conventional f² = .02, .15, .35 are R² = .0196, .1304, .2593 for
     // a set tested alone (Cohen 1988, ch. 9; from memory; also closed form).
     EXPECT_NEAR(moderato::partial_r2_from_f2(0.02), 0.0196, 5e-5);
@@ -332,14 +339,14 @@ TEST(Power, EffectSizeConversions) {
     EXPECT_NEAR(moderato::partial_r2_from_f2(0.35), 0.2593, 5e-5);
     for (double f2 : {0.0, 1e-6, 0.02, 0.15, 0.35, 4.0, 1e3}) {
         const double r2 = moderato::partial_r2_from_f2(f2);
-        EXPECT_NEAR(r2, f2 / (1 + f2), 1e-15 * (1 + r2));   // closed form
+        EXPECT_NEAR(r2, f2 / (1 + f2), 1e-15 * (1 + r2));  // closed form
         EXPECT_NEAR(moderato::f2_from_partial_r2(r2), f2, 1e-12 * (1 + f2));
     }
     // f² from an R² pair equals f² from the partial R² of that pair:
     // partial R² = (R²_full − R²_reduced)/(1 − R²_reduced) (closed form).
     const double full = 0.42, reduced = 0.37;
-    EXPECT_NEAR(moderato::f2_from_r2(full, reduced),
-                moderato::f2_from_partial_r2((full - reduced) / (1 - reduced)), 1e-14);
+    EXPECT_NEAR(moderato::f2_from_r2(full, reduced), moderato::f2_from_partial_r2((full - reduced) / (1 - reduced)),
+                1e-14);
 }
 
 // ---------------------------------------------------------------------------
@@ -384,7 +391,8 @@ TEST(Power, RejectsBadInputWithClearMessages) {
     EXPECT_EQ(input_error_of([] { f2_from_r2(0.2, 0.3); }),
               "the reduced model's R² (0.3) exceeds the full model's R² (0.2): the full model contains the reduced "
               "one plus the tested terms, so its R² is at least as large");
-    EXPECT_EQ(input_error_of([] { f2_from_r2(1.0, 0.3); }), "the full model's R² must be at least 0 and below 1, got 1");
+    EXPECT_EQ(input_error_of([] { f2_from_r2(1.0, 0.3); }),
+              "the full model's R² must be at least 0 and below 1, got 1");
     EXPECT_EQ(input_error_of([] { f2_from_r2(0.5, -0.1); }),
               "the reduced model's R² must be at least 0 and below 1, got -0.1");
     EXPECT_EQ(input_error_of([] { f2_from_partial_r2(1.0); }), "the partial R² must be at least 0 and below 1, got 1");
@@ -399,7 +407,7 @@ TEST(Power, RejectsBadInputWithClearMessages) {
 // effect gives power above alpha (closed form).
 TEST(Power, TargetBelowAlphaIsMetAtTheSmallestSample) {
     const auto s = moderato::smallest_n_for_power(0.01, 0.04, design(2, 5));
-    EXPECT_EQ(s.at_n.n, 7);   // k + 2 (closed form)
+    EXPECT_EQ(s.at_n.n, 7);  // k + 2 (closed form)
     EXPECT_TRUE(std::isnan(s.power_one_fewer));
     EXPECT_GE(s.at_n.power, 0.04);
 }

@@ -10,8 +10,8 @@
 #include "common/table_builder.hpp"
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/estimation/fit.hpp"
-#include "moderato/support/error.hpp"
 #include "moderato/probing/probe.hpp"
+#include "moderato/support/error.hpp"
 
 using namespace moderato;
 using namespace moderato::test;
@@ -69,7 +69,8 @@ void expect_boundaries_match_scan(const EffectFunction& f, double q, double lo, 
         EXPECT_LE(std::abs(sig.boundaries[i] - scan[i]), 1e-9 * std::max(1.0, std::abs(scan[i]))) << i;
     // every region is significant inside and not just outside its ends
     for (const auto& r : sig.significant) {
-        const double mid = std::isinf(r.lo) ? (std::isinf(r.hi) ? 0 : r.hi - 1) : (std::isinf(r.hi) ? r.lo + 1 : 0.5 * (r.lo + r.hi));
+        const double mid =
+            std::isinf(r.lo) ? (std::isinf(r.hi) ? 0 : r.hi - 1) : (std::isinf(r.hi) ? r.lo + 1 : 0.5 * (r.lo + r.hi));
         EXPECT_GT(std::abs(f.effect(mid)) / std::sqrt(f.variance(mid)), q);
     }
 }
@@ -246,7 +247,8 @@ TEST(Probe, SquaredFocalIsEvaluatedAtTheChosenFocalValue) {
     ps.focal_value = 1.5;
     ps.at = {4.0};
     const ProbeResult r = probe(d, f, ps);
-    const double expected = f.beta[f.index_of("x")] + 2 * f.beta[f.index_of("x^2")] * 1.5 + f.beta[f.index_of("x×z")] * 4.0;
+    const double expected =
+        f.beta[f.index_of("x")] + 2 * f.beta[f.index_of("x^2")] * 1.5 + f.beta[f.index_of("x×z")] * 4.0;
     EXPECT_NEAR(r.effects[0].effect, expected, 1e-12);
 }
 

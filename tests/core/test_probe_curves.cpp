@@ -10,8 +10,8 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 
-#include "moderato/reading/csv.hpp"
 #include "moderato/probing/probe_curves.hpp"
+#include "moderato/reading/csv.hpp"
 
 using namespace moderato;
 namespace fs = std::filesystem;

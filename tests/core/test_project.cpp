@@ -26,12 +26,12 @@
 #include <vector>
 
 #include "common/table_builder.hpp"
-#include "moderato/project/analysis_run.hpp"
-#include "moderato/support/error.hpp"
-#include "moderato/support/file_util.hpp"
 #include "moderato/estimation/fit.hpp"
+#include "moderato/project/analysis_run.hpp"
 #include "moderato/project/project.hpp"
 #include "moderato/project/project_loader.hpp"
+#include "moderato/support/error.hpp"
+#include "moderato/support/file_util.hpp"
 
 namespace fs = std::filesystem;
 using namespace moderato;
@@ -125,9 +125,9 @@ bool same_bits(double a, double b) { return std::bit_cast<std::uint64_t>(a) == s
 
 // Each check runs through sha256_hex (the x86 SHA extensions where the
 // processor has them) and through the portable code alone.
-#define EXPECT_SHA256(bytes, expected)                                  \
-    do {                                                                \
-        EXPECT_EQ(sha256_hex(bytes), expected);                         \
+#define EXPECT_SHA256(bytes, expected)                                              \
+    do {                                                                            \
+        EXPECT_EQ(sha256_hex(bytes), expected);                                     \
         EXPECT_EQ(detail::sha256_hex_portable(bytes), expected) << "portable code"; \
     } while (0)
 
@@ -150,9 +150,7 @@ TEST(Sha256, FipsMillionA) {
 
 // The empty message: e3b0c442... (NIST CAVS SHA256ShortMsg, Len = 0; from memory,
 // and checked against Python's hashlib in the next test).
-TEST(Sha256, EmptyMessage) {
-    EXPECT_SHA256("", "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855");
-}
+TEST(Sha256, EmptyMessage) { EXPECT_SHA256("", "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855"); }
 
 // Every length 0..200 (all the padding cases: 55, 56, 63, 64, 119, 120 bytes)
 // against Python's hashlib (OpenSSL) on the same bytes.
@@ -260,8 +258,8 @@ Project full_project() {
     p.analyses.push_back(a);
 
     // One analysis per standard-error kind, with the NaN defaults ("the mean").
-    const std::vector<SeKind> kinds_se{SeKind::Classical, SeKind::HC0, SeKind::HC1, SeKind::HC2, SeKind::HC3,
-                                       SeKind::HC4};
+    const std::vector<SeKind> kinds_se{SeKind::Classical, SeKind::HC0, SeKind::HC1,
+                                       SeKind::HC2,       SeKind::HC3, SeKind::HC4};
     for (std::size_t i = 0; i < kinds_se.size(); ++i) {
         Analysis b;
         b.id = "se-" + std::to_string(i);
@@ -399,7 +397,8 @@ TEST(ProjectJson, NewerSchemaIsRefusedNamingTheFileAndBothVersions) {
     EXPECT_TRUE(contains(message, "schema 7")) << message;
     EXPECT_TRUE(contains(message, "schema " + std::to_string(kProjectSchemaVersion))) << message;
     // A version too large for a signed 64-bit number is still "newer".
-    const std::string huge = replaced(kSmallProject, "\"schema_version\": 1", "\"schema_version\": 18446744073709551615");
+    const std::string huge =
+        replaced(kSmallProject, "\"schema_version\": 1", "\"schema_version\": 18446744073709551615");
     const std::string huge_message = input_error([&] { project_from_json(huge, "future.moderato"); });
     EXPECT_TRUE(contains(huge_message, "newer")) << huge_message;
     EXPECT_TRUE(contains(huge_message, "18446744073709551615")) << huge_message;
@@ -471,8 +470,7 @@ TEST(ProjectJson, WrongTypesNameTheFieldPath) {
         {"\"pinned\": [1, 2]", "\"pinned\": 3", "analyses[0].probe.pinned", "expected a list"},
         {"\"delimiter\": \",\"", "\"delimiter\": \",;\"", "datasets[0].import.delimiter", "one character"},
         {"\"delimiter\": \",\"", "\"header\": \"yes\"", "datasets[0].import.header", "true or false"},
-        {"\"delimiter\": \",\"", "\"column_kinds\": {\"x\": \"date\"}", "datasets[0].import.column_kinds.x",
-         "numeric"},
+        {"\"delimiter\": \",\"", "\"column_kinds\": {\"x\": \"date\"}", "datasets[0].import.column_kinds.x", "numeric"},
         {"\"outcome\": \"y\"", "\"outcome\": 5", "analyses[0].roles.outcome", "expected text"},
         {"\"outcome\": \"y\"", "\"controls\": [\"c\", 3]", "analyses[0].roles.controls[1]", "expected text"},
         {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"level\": \"95%\",", "analyses[0].level", "expected a number"},
@@ -504,10 +502,12 @@ TEST(ProjectJson, UnknownReferencesAndRepeatedIdsAreRefused) {
     };
     const std::vector<Case> cases{
         {"\"dataset\": \"d\",", "\"dataset\": \"elsewhere\",", "analyses[0].dataset", "\"elsewhere\""},
-        {"\"analyses\": [", "\"derived_columns\": [{\"dataset\": \"gone\", \"name\": \"n\", \"kind\": \"log\", "
-                            "\"source\": \"x\"}], \"analyses\": [",
+        {"\"analyses\": [",
+         "\"derived_columns\": [{\"dataset\": \"gone\", \"name\": \"n\", \"kind\": \"log\", "
+         "\"source\": \"x\"}], \"analyses\": [",
          "derived_columns[0].dataset", "\"gone\""},
-        {"\"analyses\": [", "\"figures\": [{\"id\": \"f\", \"analysis\": \"nope\", \"plot\": \"lines\"}], \"analyses\": [",
+        {"\"analyses\": [",
+         "\"figures\": [{\"id\": \"f\", \"analysis\": \"nope\", \"plot\": \"lines\"}], \"analyses\": [",
          "figures[0].analysis", "\"nope\""},
         {"\"datasets\": [", "\"datasets\": [ {\"id\": \"d\", \"path\": \"other.csv\"}, ", "datasets[1].id",
          "used twice"},
@@ -796,11 +796,11 @@ Table study_table(std::size_t n = 240) {
         y.push_back(1 + 0.8 * xi - 0.3 * zi + 0.12 * xi * zi + 0.5 * ci + 0.2 * wi + normal(random));
     }
     using test::numeric_column;
-    return test::make_table({numeric_column("y", y), numeric_column("x", x), numeric_column("z", z),
-                             numeric_column("c", c), numeric_column("w", w), numeric_column("wt", wt),
-                             numeric_column("d", d), test::categorical_column("g", g),
-                             test::categorical_column("site", site)},
-                            "study.csv");
+    return test::make_table(
+        {numeric_column("y", y), numeric_column("x", x), numeric_column("z", z), numeric_column("c", c),
+         numeric_column("w", w), numeric_column("wt", wt), numeric_column("d", d), test::categorical_column("g", g),
+         test::categorical_column("site", site)},
+        "study.csv");
 }
 
 Analysis study_analysis() {
@@ -975,7 +975,9 @@ TEST(RunAnalysis, SameModelAndSameProbe) {
     }
     // Probe settings: the same model, another probe.
     for (const auto& change : std::vector<std::function<void(Analysis&)>>{
-             [](Analysis& b) { b.probe.pinned = {9, 11}; },
+             [](Analysis& b) {
+                 b.probe.pinned = {9, 11};
+             },
              [](Analysis& b) { b.probe.second_value = 0.5; },
              [](Analysis& b) { b.probe.scale = "response"; },
              [](Analysis& b) { b.probe.averaging = "values"; },
@@ -1079,12 +1081,13 @@ TEST(ApplyRecipes, AddsColumnsInOrderAndNamesTheFailingRecipe) {
     ASSERT_EQ(out.cols(), t.cols() + 3);
     for (std::size_t r = 0; r < t.rows(); ++r) {
         const double x = t.find("x")->numbers[r], z = t.find("z")->numbers[r];
-        EXPECT_DOUBLE_EQ(out.find("xc")->numbers[r], x - 3);              // closed form
-        EXPECT_DOUBLE_EQ(out.find("xz")->numbers[r], (x - 3) * z);        // closed form
+        EXPECT_DOUBLE_EQ(out.find("xc")->numbers[r], x - 3);               // closed form
+        EXPECT_DOUBLE_EQ(out.find("xz")->numbers[r], (x - 3) * z);         // closed form
         EXPECT_EQ(out.find("north")->numbers[r], r % 3 == 0 ? 1.0 : 0.0);  // by construction of g
     }
-    const std::string message =
-        input_error([&] { apply_recipes(t, {{"study", "lz", "log", "missing_col", "", "", 0}}); });
+    const std::string message = input_error([&] {
+        apply_recipes(t, {{"study", "lz", "log", "missing_col", "", "", 0}});
+    });
     EXPECT_TRUE(contains(message, "'lz'")) << message;
     EXPECT_TRUE(contains(message, "'missing_col'")) << message;
     const std::string twice = input_error([&] { apply_recipes(t, {{"study", "x", "square", "z", "", "", 0}}); });

@@ -10,10 +10,10 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 
-#include "moderato/reading/csv.hpp"
-#include "moderato/support/error.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/probing/response_scale.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/support/error.hpp"
 
 using namespace moderato;
 namespace fs = std::filesystem;

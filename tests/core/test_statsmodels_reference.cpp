@@ -15,9 +15,9 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 
-#include "moderato/reading/csv.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/probing/probe.hpp"
+#include "moderato/reading/csv.hpp"
 
 using namespace moderato;
 namespace fs = std::filesystem;

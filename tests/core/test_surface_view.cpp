@@ -29,8 +29,8 @@ TEST(SurfaceView, HullOfASquareWithInnerPoints) {
     for (std::size_t i = 0; i < 4; ++i) area2 += r.x[i] * r.z[(i + 1) % 4] - r.x[(i + 1) % 4] * r.z[i];
     EXPECT_DOUBLE_EQ(area2 / 2, 8.0);
     EXPECT_TRUE(r.contains(2, 1));
-    EXPECT_TRUE(r.contains(0, 0));   // a vertex
-    EXPECT_TRUE(r.contains(4, 1));   // on an edge
+    EXPECT_TRUE(r.contains(0, 0));  // a vertex
+    EXPECT_TRUE(r.contains(4, 1));  // on an edge
     EXPECT_FALSE(r.contains(4.01, 1));
     EXPECT_FALSE(r.contains(-0.01, 1));
     EXPECT_FALSE(r.contains(2, 2.01));
@@ -54,9 +54,9 @@ TEST(SurfaceView, CollinearPointsGiveASegment) {
 
 TEST(SurfaceView, FromTheDesignUsesTheUsedRows) {
     // a row with a missing outcome is not used, so its (x, z) is not in the region
-    const Table t = make_table({numeric_column("y", {1, 2, 3, 4, std::nan(""), 2.5}),
-                                numeric_column("x", {0, 1, 0, 1, 10, 0.5}),
-                                numeric_column("z", {0, 0, 1, 1, 10, 0.7})});
+    const Table t =
+        make_table({numeric_column("y", {1, 2, 3, 4, std::nan(""), 2.5}), numeric_column("x", {0, 1, 0, 1, 10, 0.5}),
+                    numeric_column("z", {0, 0, 1, 1, 10, 0.7})});
     ModelSpec s;
     s.outcome = "y";
     s.predictors = {"x", "z"};
@@ -76,7 +76,7 @@ TEST(SurfaceView, ProbabilitiesAreTheInverseLogit) {
     const Eigen::MatrixXd p = surface_probabilities(g);
     ASSERT_EQ(p.rows(), 2);
     ASSERT_EQ(p.cols(), 3);
-    EXPECT_DOUBLE_EQ(p(0, 0), 0.5);                        // closed form
+    EXPECT_DOUBLE_EQ(p(0, 0), 0.5);                         // closed form
     EXPECT_NEAR(p(0, 1), 1 / (1 + std::exp(-1.0)), 1e-16);  // closed form
     EXPECT_NEAR(p(0, 1) + p(0, 2), 1.0, 1e-15);             // symmetry
     EXPECT_NEAR(p(1, 2), 0.75, 1e-15);                      // odds 3 -> 3/4

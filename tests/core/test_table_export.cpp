@@ -20,8 +20,8 @@
 #include <string>
 #include <vector>
 
-#include "moderato/support/error.hpp"
 #include "moderato/reporting/table_export.hpp"
+#include "moderato/support/error.hpp"
 
 using namespace moderato;
 namespace fs = std::filesystem;
@@ -141,17 +141,30 @@ ExportTable awkward_table() {
     t.numeric = {false, true, true, false};
     t.rows = {
         {{"\u22121 SD (2.5)", ""}, {"\u22120.123", "-0.12345678901234567"}, {"<0.001", "0.000123"}, {"a|b \\ c", ""}},
-        {{"Mean", ""}, {"0.456", "0.45612345678901234"}, {"0.04", ".04"},
+        {{"Mean", ""},
+         {"0.456", "0.45612345678901234"},
+         {"0.04", ".04"},
          {"=HYPERLINK(\"http://example.com\",\"click\")", ""}},
         {{"+1 SD", ""}, {"1.2e\u22125", "1.2e-05"}, {"\u2014", ""}, {"line one\nline two\r\nthree", ""}},
         {{" padded ", ""}, {"x", "-cmd|' /C calc'!A0"}, {"@SUM(1)", ""}, {"\tTab", ""}},
         {{"\rCR", ""}, {"-1+2", ""}, {"+1-1", ""}, {"# heading *star* _u_ `code` ~s~ [l](http://x) &amp; <i>", ""}},
         {{"", ""}, {"1,234", "1234"}, {"'quoted'", ""}, {"caf\u00E9 \u03B1 \u03B2 \u03C7\u00B2 \u2264 5 \u00B1 1", ""}},
     };
-    t.notes = {"# not a heading", "- not a list", "1. not a list either", "> not a quote", "=====",
-               "[ref]: http://example.com", "Plain note with * and _ and <i>italic</i> & more", "---",
-               "+ not a list", "2) not a list", "  - indented, not a list", "      not code", "-0.5 is a number",
-               "1.25 is a number", "#5 is not a heading"};
+    t.notes = {"# not a heading",
+               "- not a list",
+               "1. not a list either",
+               "> not a quote",
+               "=====",
+               "[ref]: http://example.com",
+               "Plain note with * and _ and <i>italic</i> & more",
+               "---",
+               "+ not a list",
+               "2) not a list",
+               "  - indented, not a list",
+               "      not code",
+               "-0.5 is a number",
+               "1.25 is a number",
+               "#5 is not a heading"};
     return t;
 }
 
@@ -195,8 +208,13 @@ TEST(CsvNeutralise, PlainNumbersStayNumbers) {
 // rule): each starts with a trigger, so each gets the quote (OWASP CSV
 // Injection guidance).
 TEST(CsvNeutralise, NearNumbersAndCommandsGetAQuote) {
-    for (const std::string cell : {"-1+2", "+1-1", "-cmd|' /C calc'!A0", "-inf", "+inf", "-nan", "-", "+", "-.", "+e5",
-                                   "-1e", "-1e+", "- 1", "-1 ", "-1,5", "-0x1A", "-1.2.3", "-1e5.5", "=1", "@1"}) {
+    for (const std::string cell : {"-1+2",  "+1-1",   "-cmd|' /C calc'!A0",
+                                   "-inf",  "+inf",   "-nan",
+                                   "-",     "+",      "-.",
+                                   "+e5",   "-1e",    "-1e+",
+                                   "- 1",   "-1 ",    "-1,5",
+                                   "-0x1A", "-1.2.3", "-1e5.5",
+                                   "=1",    "@1"}) {
         EXPECT_EQ(csv_neutralise(cell), "'" + cell) << cell;
     }
 }
@@ -204,8 +222,8 @@ TEST(CsvNeutralise, NearNumbersAndCommandsGetAQuote) {
 // Cells that start with nothing a spreadsheet reads as a formula are returned
 // as they are (OWASP CSV Injection guidance names only the triggers).
 TEST(CsvNeutralise, HarmlessCellsUnchanged) {
-    for (const std::string cell : {"", "abc", "0.5", "inf", "nan", "a=b", "x-1", "'=already", " 1", "1-2", "\u2014",
-                                   "<0.001", "caf\u00E9"}) {
+    for (const std::string cell :
+         {"", "abc", "0.5", "inf", "nan", "a=b", "x-1", "'=already", " 1", "1-2", "\u2014", "<0.001", "caf\u00E9"}) {
         EXPECT_EQ(csv_neutralise(cell), cell) << cell;
     }
 }
@@ -563,12 +581,13 @@ TEST(TableToLatex, CompilesWithPdflatex) {
     ScratchDir dir;
     ExportTable t = awkward_table();
     t.rows[0][0].text = "[0.1, 0.2]";
-    const std::string doc = "\\documentclass{article}\n\\usepackage[utf8]{inputenc}\n\\usepackage[T1]{fontenc}\n"
-                            "\\usepackage{booktabs}\n\\begin{document}\n" +
-                            table_to_latex(t) + "\\end{document}\n";
+    const std::string doc =
+        "\\documentclass{article}\n\\usepackage[utf8]{inputenc}\n\\usepackage[T1]{fontenc}\n"
+        "\\usepackage{booktabs}\n\\begin{document}\n" +
+        table_to_latex(t) + "\\end{document}\n";
     dir.write("t.tex", doc);
-    const std::string log = run_command("cd " + shell_quote(dir.path) +
-                                        " && pdflatex -interaction=nonstopmode -halt-on-error t.tex 2>&1");
+    const std::string log =
+        run_command("cd " + shell_quote(dir.path) + " && pdflatex -interaction=nonstopmode -halt-on-error t.tex 2>&1");
     EXPECT_TRUE(fs::exists(dir.path / "t.pdf")) << log;
 }
 

@@ -122,8 +122,8 @@ std::shared_ptr<const Table> bigTable(std::size_t rows) {
 TEST(CsvHead, CutsAtRecordEndsOutsideQuotes) {
     // Records counted by hand: the quoted field holds a line break.
     const std::string text = "a,b\n\"x\ny\",1\n2,3\n";
-    EXPECT_EQ(csvHeadLength(text, 1, ','), 4u);                  // "a,b\n"
-    EXPECT_EQ(csvHeadLength(text, 2, ','), 12u);                 // through "\"x\ny\",1\n"
+    EXPECT_EQ(csvHeadLength(text, 1, ','), 4u);   // "a,b\n"
+    EXPECT_EQ(csvHeadLength(text, 2, ','), 12u);  // through "\"x\ny\",1\n"
     EXPECT_EQ(csvHeadLength(text, 3, ','), text.size());
     EXPECT_EQ(csvHeadLength(text, 4, ','), kNoCut);
     // A quote inside an unquoted field is text, so the line break after it ends the record.
@@ -194,9 +194,8 @@ TEST(ImportDialog, SemicolonFileWithDecimalCommasPreviewsNumbers) {
     ASSERT_EQ(na.size(), 1);
     QTest::mouseClick(missing->viewport(), Qt::LeftButton, {}, missing->visualItemRect(na[0]).center());
     click(child<QPushButton>(&dlg, "import-missing-remove"));
-    ASSERT_TRUE(test::waitUntil([&] {
-        return dlg.previewTable() && dlg.previewTable()->columns[1].kind == ColumnKind::Categorical;
-    }));
+    ASSERT_TRUE(test::waitUntil(
+        [&] { return dlg.previewTable() && dlg.previewTable()->columns[1].kind == ColumnKind::Categorical; }));
     EXPECT_EQ(cell(model, 1, 1).toString(), QStringLiteral("NA"));
     EXPECT_EQ(missing->count(), 3);
     saveShot(&dlg, QStringLiteral("import-dialog.png"));
@@ -235,8 +234,8 @@ TEST(ImportDialog, SemicolonFileWithDecimalCommasPreviewsNumbers) {
     EXPECT_EQ(dlg.options().column_kinds.at("discount_pct"), ColumnKind::Categorical);
     EXPECT_EQ(dlg.table()->at("region").kind, ColumnKind::Categorical);
     EXPECT_EQ(dlg.table()->at("region").levels, std::vector<std::string>{"south"});  // "north" is missing now
-    EXPECT_EQ(dlg.table()->at("region").missing_count(), 3u);                      // 2 north + 1 empty
-    EXPECT_EQ(fileHash(path), hash);  // the file was only read
+    EXPECT_EQ(dlg.table()->at("region").missing_count(), 3u);                        // 2 north + 1 empty
+    EXPECT_EQ(fileHash(path), hash);                                                 // the file was only read
 }
 
 TEST(ImportDialog, MalformedFilesShowTheLineInTheDialogAndStayUnchanged) {
@@ -478,10 +477,8 @@ TEST(DatasetPage, CentreAtTheMeanFromTheDialogWithUndoAndRedo) {
     EXPECT_FALSE(model->headerData(1, Qt::Horizontal, TableModel::DerivedRole).toBool());
     for (int r = 0; r < model->rowCount(); ++r) {
         const double v = x.numbers[static_cast<std::size_t>(r)];
-        if (std::isnan(v))
-            EXPECT_TRUE(cell(model, r, 3, TableModel::MissingRole).toBool()) << "row " << r;
-        else
-            EXPECT_NEAR(cell(model, r, 3).toDouble(), v - mean, 1e-12) << "row " << r;
+        if (std::isnan(v)) EXPECT_TRUE(cell(model, r, 3, TableModel::MissingRole).toBool()) << "row " << r;
+        else EXPECT_NEAR(cell(model, r, 3).toDouble(), v - mean, 1e-12) << "row " << r;
     }
     auto* list = child<QListWidget>(&page, "derived-list");
     EXPECT_EQ(list->count(), 1);
@@ -537,7 +534,8 @@ TEST(DatasetPage, RecipesThatCannotBeComputedAreExplained) {
     name->selectAll();
     QTest::keyClicks(name, QStringLiteral("size"));
     click(child<QPushButton>(dialog, "derived-ok"));
-    EXPECT_TRUE(dialog->message().contains(QLatin1String("already has a column named"))) << dialog->message().toStdString();
+    EXPECT_TRUE(dialog->message().contains(QLatin1String("already has a column named")))
+        << dialog->message().toStdString();
     click(child<QPushButton>(dialog, "derived-cancel"));
     EXPECT_EQ(doc.undoStack()->count(), steps);
 

@@ -14,23 +14,23 @@
 #include <QClipboard>
 #include <QComboBox>
 #include <QDir>
+#include <QDoubleSpinBox>
 #include <QFile>
 #include <QFontComboBox>
-#include <QDoubleSpinBox>
 #include <QImage>
 #include <QImageReader>
 #include <QLineEdit>
 #include <QPushButton>
-#include <QSpinBox>
 #include <QRegularExpression>
+#include <QSpinBox>
 #include <QSvgRenderer>
 #include <QTemporaryDir>
 #include <QTest>
 #include <QUndoStack>
 #include <QVBoxLayout>
 #include <QXmlStreamReader>
-#include <csignal>
 #include <cmath>
+#include <csignal>
 
 #include "export/figure_export_dialog.hpp"
 #include "export/figure_exporter.hpp"
@@ -154,8 +154,8 @@ double mm(const QString& v) {
 
 // Width and height of the first page's MediaBox (PDF reference: "/MediaBox [llx lly urx ury]").
 std::pair<double, double> mediaBox(const QByteArray& pdf) {
-    static const QRegularExpression box(QStringLiteral(
-        R"(/MediaBox\s*\[\s*([-\d.]+)\s+([-\d.]+)\s+([-\d.]+)\s+([-\d.]+)\s*\])"));
+    static const QRegularExpression box(
+        QStringLiteral(R"(/MediaBox\s*\[\s*([-\d.]+)\s+([-\d.]+)\s+([-\d.]+)\s+([-\d.]+)\s*\])"));
     const auto m = box.match(QString::fromLatin1(pdf));
     if (!m.hasMatch()) return {-1, -1};
     return {m.captured(3).toDouble() - m.captured(1).toDouble(), m.captured(4).toDouble() - m.captured(2).toDouble()};
@@ -173,7 +173,9 @@ struct PlotState {
 };
 
 void PrintTo(const PlotState& s, std::ostream* os) {
-    auto rect = [](const QRect& r) { return QStringLiteral("%1,%2 %3x%4").arg(r.x()).arg(r.y()).arg(r.width()).arg(r.height()); };
+    auto rect = [](const QRect& r) {
+        return QStringLiteral("%1,%2 %3x%4").arg(r.x()).arg(r.y()).arg(r.width()).arg(r.height());
+    };
     *os << "size " << s.size.width() << "x" << s.size.height() << ", axis rect " << rect(s.axisRect).toStdString()
         << ", fonts " << s.tickFont.toString().toStdString() << " | " << s.labelFont.toString().toStdString() << " | "
         << s.legendFont.toString().toStdString() << " | " << s.legendItemFont.toString().toStdString() << ", layout "
@@ -341,8 +343,8 @@ TEST(FigureExport, SvgIsVectorAtThePresetSize) {
     // closed form: 6.5 in x 25.4 = 165.1 mm, 4 in x 25.4 = 101.6 mm
     EXPECT_NEAR(mm(svg.width), 165.1, 1e-6);
     EXPECT_NEAR(mm(svg.height), 101.6, 1e-6);
-    EXPECT_GT(svg.paths, 5);       // lines and axes as paths
-    EXPECT_EQ(svg.images, 0);      // no embedded bitmap
+    EXPECT_GT(svg.paths, 5);   // lines and axes as paths
+    EXPECT_EQ(svg.images, 0);  // no embedded bitmap
     EXPECT_TRUE(svg.texts.contains(QStringLiteral("dose (mg)")));
     EXPECT_TRUE(svg.texts.contains(QStringLiteral("response score")));
     EXPECT_TRUE(svg.texts.contains(QStringLiteral("group A")));
@@ -391,7 +393,8 @@ TEST(FigureExport, LivePlotIsUnchangedAfterwardsAndTheExportUsedItsOwnFontAndCap
     s.font_pt = 14;
     s.greyscale = true;
     s.caption = true;
-    const QString caption = QStringLiteral("Linear model of score on dose × group · classical SEs · 95% intervals · n = 21");
+    const QString caption =
+        QStringLiteral("Linear model of score on dose × group · classical SEs · 95% intervals · n = 21");
     FigureExporter exporter(&fig, s, caption);
     EXPECT_FALSE(exporter.renderImage().isNull());
     EXPECT_EQ(stateOf(plot), before);
@@ -425,7 +428,8 @@ TEST(FigureExport, ReadOnlyFolderGivesAClearErrorAndKeepsTheExistingFile) {
         f.write("an older figure");
     }
     ASSERT_TRUE(QFile::setPermissions(folder, QFileDevice::ReadOwner | QFileDevice::ExeOwner | QFileDevice::ReadGroup |
-                                                  QFileDevice::ExeGroup | QFileDevice::ReadOther | QFileDevice::ExeOther));
+                                                  QFileDevice::ExeGroup | QFileDevice::ReadOther |
+                                                  QFileDevice::ExeOther));
     {
         WithoutDacOverride asUser;
         if (folderWritable(folder)) {
@@ -584,7 +588,8 @@ TEST(FigureExportDialog, CopyPutsTheImageAtTheChosenSizeOnTheClipboard) {
 // The orchard-nitrogen sample open in a shown window, on its Probe section.
 void showOrchardProbe(MainWindow& w) {
     w.setInteractive(false);
-    ASSERT_TRUE(w.openProject(test::sampleProject(QStringLiteral("orchard-nitrogen")))) << w.lastMessage().toStdString();
+    ASSERT_TRUE(w.openProject(test::sampleProject(QStringLiteral("orchard-nitrogen"))))
+        << w.lastMessage().toStdString();
     const QString id = w.analysisPage()->analysisId();
     ASSERT_TRUE(test::waitUntil([&] { return w.runner()->result(id) || !w.runner()->error(id).isEmpty(); }));
     w.resize(1400, 900);
@@ -639,8 +644,9 @@ TEST(FigureExport, SingleColumnFigureWrapsALongAxisTitleAndShrinksTheLegend) {
     // each written as its own text run.
     const int split = title.lastIndexOf(QStringLiteral(" on "));
     ASSERT_GT(split, 0);
-    EXPECT_TRUE(svg.contains(QStringLiteral(">%1<").arg(title.left(split)).toUtf8()) ||
-                svg.contains(QStringLiteral(">%1<").arg(title.left(title.indexOf(QLatin1Char(' '), split / 2))).toUtf8()))
+    EXPECT_TRUE(
+        svg.contains(QStringLiteral(">%1<").arg(title.left(split)).toUtf8()) ||
+        svg.contains(QStringLiteral(">%1<").arg(title.left(title.indexOf(QLatin1Char(' '), split / 2))).toUtf8()))
         << "no line break in the axis title";
     EXPECT_FALSE(svg.contains(QStringLiteral(">%1<").arg(title).toUtf8()));
     // The Memo preset keeps the title on one line.

@@ -8,8 +8,9 @@
 #include <gtest/gtest.h>
 #include <unistd.h>
 
-#include <QCheckBox>
 #include <QAction>
+#include <QCheckBox>
+#include <QDateTime>
 #include <QDir>
 #include <QFile>
 #include <QFileInfo>
@@ -22,23 +23,22 @@
 #include <QTextEdit>
 #include <QToolButton>
 #include <QUndoStack>
-#include <QDateTime>
 #include <cmath>
 #include <functional>
 #include <nlohmann/json.hpp>
 
 #include "cli/cli_runner.hpp"
+#include "common/figure_caption.hpp"
 #include "export/figure_exporter.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "moderato/reporting/table_export.hpp"
-#include "plots/figure_source.hpp"
 #include "outputs/analysis_outputs.hpp"
-#include "sections/memo_section.hpp"
+#include "plots/figure_source.hpp"
 #include "plots/lines_plot.hpp"
+#include "sections/memo_section.hpp"
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
-#include "common/figure_caption.hpp"
 #include "shell/main_window.hpp"
 #include "ui_test_util.hpp"
 
@@ -102,7 +102,8 @@ struct Session {
         ASSERT_TRUE(test::waitUntil([&] { return w.analysisPage()->currentSection() == AnalysisPage::Memo; }, 3000))
             << "Ctrl+5 did not show the Memo section";
         ASSERT_TRUE(test::waitUntil([&] { return memo()->isVisible() && memo()->output().has_value(); }));
-        ASSERT_TRUE(test::waitUntil([&] { return memo()->editor()->toPlainText().contains(QStringLiteral("Findings")); }));
+        ASSERT_TRUE(
+            test::waitUntil([&] { return memo()->editor()->toPlainText().contains(QStringLiteral("Findings")); }));
     }
 };
 
@@ -155,7 +156,8 @@ TEST_P(MemoMatchesRender, SavedMemoTablesAndFiguresAreTheRenderedBytes) {
     ASSERT_FALSE(figures.isEmpty());
     for (FigureSource* f : figures)
         for (const FigureFormat fmt : {FigureFormat::Png, FigureFormat::Svg, FigureFormat::Pdf}) {
-            const QString path = gui + QStringLiteral("/fig-") + figureStem(f) + QLatin1Char('.') + figureFormatSuffix(fmt);
+            const QString path =
+                gui + QStringLiteral("/fig-") + figureStem(f) + QLatin1Char('.') + figureFormatSuffix(fmt);
             ASSERT_TRUE(FigureExporter(f, s.analysis().figure, caption).save(path, fmt, &error)) << error;
         }
 
@@ -174,7 +176,8 @@ TEST_P(MemoMatchesRender, SavedMemoTablesAndFiguresAreTheRenderedBytes) {
     for (const char* file : {"memo.html", "memo.md", "memo.pdf"})
         same(gui + QLatin1Char('/') + QLatin1String(file), folder + QLatin1Char('/') + QLatin1String(file));
     // The PNGs the Markdown memo names, saved beside it.
-    for (const auto& [file, png] : memo->output()->pngs()) same(gui + QLatin1Char('/') + file, folder + QLatin1Char('/') + file);
+    for (const auto& [file, png] : memo->output()->pngs())
+        same(gui + QLatin1Char('/') + file, folder + QLatin1Char('/') + file);
     // Tables: "<analysis>-estimates.csv" from the workbench, "estimates.csv" from the render.
     ASSERT_FALSE(tables.isEmpty());
     bool estimates = false;
@@ -206,7 +209,8 @@ INSTANTIATE_TEST_SUITE_P(Samples, MemoMatchesRender,
 
 TEST(MemoNotes, TypedNotesGoToTheProjectAsOneUndoStepAndIntoTheMemo) {
     const QString earlier = QStringLiteral("Earlier note.");
-    Session s(QStringLiteral("coffee-discount"), [&](nlohmann::json& j) { j["analyses"][0]["memo_notes"] = earlier.toStdString(); });
+    Session s(QStringLiteral("coffee-discount"),
+              [&](nlohmann::json& j) { j["analyses"][0]["memo_notes"] = earlier.toStdString(); });
     s.showMemo();
     auto* notes = child<QPlainTextEdit>(s.memo(), "memo-notes");
     ASSERT_NE(notes, nullptr);
@@ -249,8 +253,9 @@ TEST(MemoNotes, NotesAreEscapedInTheSavedHtmlAndMarkdown) {
     notes->setFocus();
     QTest::keyClicks(notes, QStringLiteral("<i>x</i> & y"));
     EXPECT_EQ(s.analysis().memo_notes, "<i>x</i> & y");
-    ASSERT_TRUE(test::waitUntil([&] { return s.memo()->editor()->toPlainText().contains(QStringLiteral("<i>x</i> & y")); }))
-        << "the editor shows the notes as typed, tags as text";
+    ASSERT_TRUE(test::waitUntil([&] {
+        return s.memo()->editor()->toPlainText().contains(QStringLiteral("<i>x</i> & y"));
+    })) << "the editor shows the notes as typed, tags as text";
 
     QTemporaryDir out;
     QString error;
@@ -401,7 +406,8 @@ TEST(MemoFindings, CrossoverSentenceStatesTheProbeSectionsValueAndTheClosedForm)
     EXPECT_NEAR(parseShown(inMemo.captured(1)), crossing, halfUlp);
     EXPECT_EQ(inMemo.captured(1), inProbe.captured(1)) << "the memo and the Probe section state the same number";
     // The sentence is in the Findings list, before the Model heading.
-    const int findings = memoText.indexOf(QStringLiteral("\nFindings\n")), model = memoText.indexOf(QStringLiteral("\nModel\n"));
+    const int findings = memoText.indexOf(QStringLiteral("\nFindings\n")),
+              model = memoText.indexOf(QStringLiteral("\nModel\n"));
     ASSERT_GE(findings, 0);
     EXPECT_LT(findings, inMemo.capturedStart());
     EXPECT_LT(inMemo.capturedStart(), model);
@@ -442,14 +448,15 @@ TEST(MemoMatchesRenderSettings, WhereGroupsDifferIsKeptInTheProjectAndTheRenderF
     const QString cli = out.filePath(QStringLiteral("cli"));
     const auto r = moderato::test::run_cli({"render", s.project.toStdString(), "--out", cli.toStdString()});
     ASSERT_TRUE(r.exited && r.exit_code == 0) << r.describe();
-    const QByteArray rendered =
-        readAll(cli + QLatin1Char('/') + QString::fromStdString(file_slug(s.analysis().id)) + QStringLiteral("/lines-plot.png"));
+    const QByteArray rendered = readAll(cli + QLatin1Char('/') + QString::fromStdString(file_slug(s.analysis().id)) +
+                                        QStringLiteral("/lines-plot.png"));
     EXPECT_FALSE(rendered.isEmpty());
     EXPECT_TRUE(readAll(gui) == rendered);
     // And the strip really is a difference: ticked again, the export changes.
     differ->click();
     ASSERT_TRUE(s.analysis().probe.show_gaps);
-    const QByteArray withStrip = FigureExporter(s.probe()->linesPlot(), s.analysis().figure,
-                                                figureCaption(s.analysis(), *run)).render(FigureFormat::Png);
+    const QByteArray withStrip =
+        FigureExporter(s.probe()->linesPlot(), s.analysis().figure, figureCaption(s.analysis(), *run))
+            .render(FigureFormat::Png);
     EXPECT_FALSE(withStrip == rendered);
 }

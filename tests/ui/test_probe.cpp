@@ -4,6 +4,7 @@
 // the same data"), and where the algebra is simple against the closed form.
 #include <gtest/gtest.h>
 
+#include <qcustomplot.h>
 #include <QAction>
 #include <QComboBox>
 #include <QMenu>
@@ -14,15 +15,14 @@
 #include <algorithm>
 #include <cmath>
 #include <fstream>
-#include <qcustomplot.h>
 #include <random>
 
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
-#include "moderato/project/analysis_run.hpp"
 #include "moderato/probing/probe_curves.hpp"
-#include "moderato/project/project_loader.hpp"
 #include "moderato/probing/response_scale.hpp"
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/project/project_loader.hpp"
 #include "plots/effect_plot.hpp"
 #include "plots/lines_plot.hpp"
 #include "probe/moderator_slider.hpp"
@@ -146,8 +146,8 @@ TEST(Probe, DraggingTheHandleUpdatesTheReadoutFromCore) {
     drag(effect, target);
 
     // Within a pixel of where the mouse was released.
-    const double pixel = (effect->data().axis.second - effect->data().axis.first) /
-                         effect->figurePlot()->axisRect()->width();
+    const double pixel =
+        (effect->data().axis.second - effect->data().axis.first) / effect->figurePlot()->axisRect()->width();
     const double m = s->currentModeratorValue();
     EXPECT_NEAR(m, target, 1.5 * pixel);
     EXPECT_EQ(fullReplots, 0) << "a drag redraws the moving layers only";
@@ -276,7 +276,8 @@ TEST(Probe, MeanAndSdButtonsUseTheRowsTheModelUses) {
     const Direct core = direct(path);
     // Independently of the design: the moderator over rows where every model column is present.
     const Table& t = *core.loaded.tables.at(core.analysis.dataset);
-    std::vector<std::string> cols{core.analysis.roles.outcome, core.analysis.roles.focal, core.analysis.roles.moderator};
+    std::vector<std::string> cols{core.analysis.roles.outcome, core.analysis.roles.focal,
+                                  core.analysis.roles.moderator};
     for (const auto& c : core.analysis.roles.controls) cols.push_back(c);
     std::vector<double> z;
     for (std::size_t r = 0; r < t.rows(); ++r) {
@@ -301,7 +302,7 @@ TEST(Probe, MeanAndSdButtonsUseTheRowsTheModelUses) {
     QTest::mouseClick(slider->presetButton(QStringLiteral("mean")), Qt::LeftButton);
     EXPECT_NEAR(s->currentModeratorValue(), mean, 1e-10 * std::abs(mean));
     expectSamePoint(s->currentEffect(), effect_at(core.probe.effect_function, s->currentModeratorValue(), core.fit,
-                                                   core.probe.observed_range));
+                                                  core.probe.observed_range));
 
     // The 25th percentile: common practice (linear interpolation between order statistics).
     std::sort(z.begin(), z.end());
@@ -388,7 +389,7 @@ TEST(Probe, ProbabilityScaleReadoutIsCoresProbabilityEffect) {
     QTest::keyClick(scale, Qt::Key_Up);
     ASSERT_TRUE(test::waitUntil([&] { return win.analysis().probe.scale == "link" && !s->engine().probability(); }));
     expectSamePoint(s->currentEffect(), effect_at(core.probe.effect_function, s->currentModeratorValue(), core.fit,
-                                                   core.probe.observed_range));
+                                                  core.probe.observed_range));
     EXPECT_TRUE(s->readoutText().contains(QStringLiteral("Log-odds scale")));
     QTest::keyClick(scale, Qt::Key_Down);
     ASSERT_TRUE(test::waitUntil([&] { return win.analysis().probe.scale == "response" && s->engine().probability(); }));
@@ -459,7 +460,8 @@ TEST(Probe, JohnsonNeymanBoundariesDrawnAreCores) {
     for (std::size_t k = 0; k < jn.size(); ++k) {
         EXPECT_DOUBLE_EQ(drawn[k], jn[k]);  // source: core probe() on the same data
         // Closed form: at a boundary |effect| / SE equals the critical value.
-        const double t = core.probe.effect_function.effect(jn[k]) / std::sqrt(core.probe.effect_function.variance(jn[k]));
+        const double t =
+            core.probe.effect_function.effect(jn[k]) / std::sqrt(core.probe.effect_function.variance(jn[k]));
         EXPECT_NEAR(std::abs(t), core.fit.critical_value, 1e-8);
     }
     EXPECT_TRUE(s->summaryText().contains(QStringLiteral("inside the observed range")));

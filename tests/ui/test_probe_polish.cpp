@@ -5,6 +5,7 @@
 // against the closed form.
 #include <gtest/gtest.h>
 
+#include <qcustomplot.h>
 #include <QAbstractItemView>
 #include <QApplication>
 #include <QCheckBox>
@@ -18,25 +19,24 @@
 #include <QToolButton>
 #include <QUndoStack>
 #include <cmath>
-#include <qcustomplot.h>
 
+#include "common/figure_caption.hpp"
+#include "common/held_value_text.hpp"
 #include "data/dataset_page.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
-#include "moderato/project/analysis_run.hpp"
 #include "moderato/probing/probe_curves.hpp"
-#include "moderato/project/project_loader.hpp"
 #include "moderato/probing/response_scale.hpp"
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/project/project_loader.hpp"
 #include "plots/effect_plot.hpp"
 #include "plots/lines_plot.hpp"
 #include "probe/gap_text.hpp"
-#include "common/held_value_text.hpp"
 #include "probe/held_value_control.hpp"
 #include "probe/readout_panel.hpp"
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/app_style.hpp"
-#include "common/figure_caption.hpp"
 #include "shell/main_window.hpp"
 #include "style/palette_text.hpp"
 #include "ui_test_util.hpp"
@@ -190,8 +190,9 @@ TEST(ProbePolish, GroupGapRegionsAreStatedAndShadedWhereCoreFindsThem) {
     const auto [flo, fhi] = core.probe.focal_range;
     ASSERT_GT(r.boundaries[0], flo);
     ASSERT_LT(r.boundaries[1], fhi);
-    const QString expected = QStringLiteral("The two groups' predicted weekly_spend differ (95% pointwise) for discount_pct "
-                                            "below %1 and above %2; between these values they cannot be told apart.")
+    const QString expected = QStringLiteral(
+                                 "The two groups' predicted weekly_spend differ (95% pointwise) for discount_pct "
+                                 "below %1 and above %2; between these values they cannot be told apart.")
                                  .arg(g4(r.boundaries[0]), g4(r.boundaries[1]));
     EXPECT_TRUE(s->summaryText().contains(expected)) << s->summaryText().toStdString();
 
@@ -239,7 +240,8 @@ TEST(ProbePolish, ThreeGroupsStateEachPairAndDrawNoStrip) {
             EXPECT_TRUE(s->summaryText().contains(g4(bd))) << g4(bd).toStdString();
             EXPECT_NEAR(std::abs(c.gap.effect(bd)) / std::sqrt(c.gap.variance(bd)), core.fit.critical_value, 1e-8);
         }
-    EXPECT_TRUE(s->summaryText().contains(QStringLiteral("Predicted resolution_hours for shift = day and shift = night")))
+    EXPECT_TRUE(
+        s->summaryText().contains(QStringLiteral("Predicted resolution_hours for shift = day and shift = night")))
         << s->summaryText().toStdString();
 }
 
@@ -259,7 +261,8 @@ TEST(ProbePolish, ContinuousModeratorLinesDifferWhereTheModeratorsEffectIs) {
     const GapStatement g = describeGap(c.gap_regions, QStringLiteral("X"), QStringLiteral("nitrogen_kg_ha"),
                                        core.probe.focal_range, QStringLiteral("95%"));
     EXPECT_EQ(s->linesPlot()->differStrips(), g.differ);
-    EXPECT_TRUE(s->summaryText().contains(QStringLiteral("Predicted yield_t_ha at any two values of soil_moisture_pct")))
+    EXPECT_TRUE(
+        s->summaryText().contains(QStringLiteral("Predicted yield_t_ha at any two values of soil_moisture_pct")))
         << s->summaryText().toStdString();
     for (double bd : c.gap_regions.boundaries) EXPECT_TRUE(s->summaryText().contains(g4(bd)));
 }
@@ -273,8 +276,9 @@ TEST(ProbePolish, GapStatementsCoverEveryCase) {
         r.significant = std::move(sig);
         return describeGap(r, QStringLiteral("S"), QStringLiteral("x"), {0.0, 30.0}, QStringLiteral("95%"));
     };
-    EXPECT_EQ(say({}, {}).text, QStringLiteral("S cannot be told apart (95% pointwise) anywhere in the observed range of "
-                                               "x (0 to 30)."));
+    EXPECT_EQ(say({}, {}).text,
+              QStringLiteral("S cannot be told apart (95% pointwise) anywhere in the observed range of "
+                             "x (0 to 30)."));
     EXPECT_EQ(say({}, {{-inf, inf}}).text,
               QStringLiteral("S differ (95% pointwise) over the whole observed range of x (0 to 30)."));
     const GapStatement two = say({13.1, 18.9}, {{-inf, 13.1}, {18.9, inf}});
@@ -283,8 +287,9 @@ TEST(ProbePolish, GapStatementsCoverEveryCase) {
     EXPECT_EQ(two.differ, (std::vector<std::pair<double, double>>{{0.0, 13.1}, {18.9, 30.0}}));
     // One boundary inside, one beyond the data.
     const GapStatement beyond = say({-4, 12.5}, {{-inf, -4}, {12.5, inf}});
-    EXPECT_EQ(beyond.text, QStringLiteral("S differ (95% pointwise) for x above 12.5; for x below 12.5 they cannot be "
-                                          "told apart. The boundary at x = −4 lies beyond the data (observed 0 to 30)."));
+    EXPECT_EQ(beyond.text,
+              QStringLiteral("S differ (95% pointwise) for x above 12.5; for x below 12.5 they cannot be "
+                             "told apart. The boundary at x = −4 lies beyond the data (observed 0 to 30)."));
     EXPECT_EQ(beyond.beyond, std::vector<double>{-4});
     EXPECT_EQ(beyond.inside, std::vector<double>{12.5});
     // Significant between the boundaries (an unbounded Fieller set).
@@ -294,9 +299,10 @@ TEST(ProbePolish, GapStatementsCoverEveryCase) {
     EXPECT_EQ(say({5, 10}, {{5, 10}}).text,
               QStringLiteral("S differ (95% pointwise) for x from 5 to 10; for x below 5 and above 10 they cannot be "
                              "told apart."));
-    EXPECT_EQ(say({-9, 45}, {{-inf, -9}, {45, inf}}).text,
-              QStringLiteral("S cannot be told apart (95% pointwise) anywhere in the observed range of x (0 to 30). The "
-                             "boundaries at x = −9 and 45 lie beyond the data (observed 0 to 30)."));
+    EXPECT_EQ(
+        say({-9, 45}, {{-inf, -9}, {45, inf}}).text,
+        QStringLiteral("S cannot be told apart (95% pointwise) anywhere in the observed range of x (0 to 30). The "
+                       "boundaries at x = −9 and 45 lie beyond the data (observed 0 to 30)."));
 }
 
 // ---------------------------------------------------------------------------
@@ -378,7 +384,8 @@ TEST(ProbePolish, SecondModeratorHeldValueIsOneUndoableEditMatchingCore) {
     box->selectAll();
     QTest::keyClicks(box, QStringLiteral("4"));
     QTest::keyClick(box, Qt::Key_Return);
-    ASSERT_TRUE(test::waitUntil([&] { return win.analysis().probe.second_value == 4.0 && s->engine().analysis().probe.second_value == 4.0; }));
+    ASSERT_TRUE(test::waitUntil(
+        [&] { return win.analysis().probe.second_value == 4.0 && s->engine().analysis().probe.second_value == 4.0; }));
     EXPECT_EQ(win.undo()->count(), steps + 2);
     EXPECT_TRUE(s->readoutText().contains(QStringLiteral("slope_pct held at 4"))) << s->readoutText().toStdString();
     checkAt(4.0);
@@ -523,7 +530,8 @@ void expectReadable(QWidget* root, const QString& where) {
     }
     for (ReadoutPanel* r : root->findChildren<ReadoutPanel*>()) {
         if (!r->isVisible()) continue;
-        EXPECT_GE(contrastRatio(r->palette().color(QPalette::Text), r->palette().color(QPalette::Base)), kMinimumContrast);
+        EXPECT_GE(contrastRatio(r->palette().color(QPalette::Text), r->palette().color(QPalette::Base)),
+                  kMinimumContrast);
     }
     EXPECT_GT(checked, 0) << where.toStdString();
 }
@@ -666,9 +674,10 @@ TEST(ProbePolish, LogisticProbeSaysWhichScaleAndShowsTheProbabilityInteraction) 
     for (double v : {fromCore.estimate, fromCore.std_error, fromCore.ci_lower, fromCore.ci_upper})
         EXPECT_TRUE(summary.contains(g4(v))) << g4(v).toStdString() << "\n" << summary.toStdString();
     EXPECT_TRUE(summary.contains(QStringLiteral("Interaction on the probability scale")));
-    EXPECT_TRUE(summary.contains(QStringLiteral("The product coefficient on the log-odds scale (setup_sessions×employees = %1) "
-                                                "is not this")
-                                     .arg(g4(b[b12]))))
+    EXPECT_TRUE(
+        summary.contains(QStringLiteral("The product coefficient on the log-odds scale (setup_sessions×employees = %1) "
+                                        "is not this")
+                             .arg(g4(b[b12]))))
         << summary.toStdString();
     // It sits in the side panel, above the region of significance.
     EXPECT_LT(summary.indexOf(QStringLiteral("Interaction on the probability scale")),
@@ -686,11 +695,13 @@ TEST(ProbePolish, LogisticProbeSaysWhichScaleAndShowsTheProbabilityInteraction) 
     EXPECT_TRUE(s->readoutText().contains(QStringLiteral("Log-odds scale")));
     EXPECT_EQ(s->linesPlot()->figurePlot()->yAxis->label(), QStringLiteral("log-odds of converted"));
     EXPECT_TRUE(s->effectPlot()->figurePlot()->yAxis->label().contains(QStringLiteral("log-odds of converted")));
-    EXPECT_TRUE(s->summaryText().contains(QStringLiteral("On the log-odds scale a product coefficient is not the "
-                                                         "interaction on the probability scale")));
-    EXPECT_TRUE(s->summaryText().contains(QStringLiteral("The product coefficient (setup_sessions×employees = %1) is the "
-                                                         "interaction on the log-odds scale only")
-                                              .arg(g4(b[b12]))))
+    EXPECT_TRUE(
+        s->summaryText().contains(QStringLiteral("On the log-odds scale a product coefficient is not the "
+                                                 "interaction on the probability scale")));
+    EXPECT_TRUE(
+        s->summaryText().contains(QStringLiteral("The product coefficient (setup_sessions×employees = %1) is the "
+                                                 "interaction on the log-odds scale only")
+                                      .arg(g4(b[b12]))))
         << s->summaryText().toStdString();
     saveScreenshot(win.w, QStringLiteral("logistic-log-odds"));
 }
@@ -717,8 +728,8 @@ TEST(ProbePolish, CategoricalSecondModeratorIsHeldAtALevel) {
     ASSERT_TRUE(levels->isVisible());
     ASSERT_EQ(levels->count(), static_cast<int>(cat->levels.size()));
     EXPECT_FALSE(s->heldValueControl()->valueBox()->isVisible());
-    EXPECT_TRUE(s->readoutText().contains(QStringLiteral("region held at '%1' (reference level)")
-                                              .arg(QString::fromStdString(cat->reference))))
+    EXPECT_TRUE(s->readoutText().contains(
+        QStringLiteral("region held at '%1' (reference level)").arg(QString::fromStdString(cat->reference))))
         << s->readoutText().toStdString();
 
     // The next level, chosen with the keyboard: one undo step holding region at level index 1.

@@ -28,10 +28,10 @@
 
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
-#include "moderato/reading/csv.hpp"
-#include "moderato/support/file_util.hpp"
 #include "moderato/project/project.hpp"
 #include "moderato/project/project_loader.hpp"
+#include "moderato/reading/csv.hpp"
+#include "moderato/support/file_util.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
 #include "shell/project_sidebar.hpp"
@@ -443,7 +443,8 @@ TEST(ProjectFiles, UndoneDatasetDoesNotLeaveItsTableBehind) {
     QTemporaryDir dir;
     ASSERT_TRUE(QDir(dir.path()).mkpath(QStringLiteral("a")));
     ASSERT_TRUE(QDir(dir.path()).mkpath(QStringLiteral("b")));
-    const QString first = dir.filePath(QStringLiteral("a/data.csv")), second = dir.filePath(QStringLiteral("b/data.csv"));
+    const QString first = dir.filePath(QStringLiteral("a/data.csv")),
+                  second = dir.filePath(QStringLiteral("b/data.csv"));
     writeBytes(first, "alpha,beta,gamma\n1,2,3\n4,5,6\n7,8,10\n");
     writeBytes(second, "height,weight,age,group\n1.7,60,30,a\n1.8,75,41,b\n1.6,55,25,a\n");
     MainWindow w;
@@ -485,7 +486,8 @@ TEST(ProjectFiles, RecentFilesListTheNewestFirst) {
     ASSERT_TRUE(recentMenu);
     QStringList texts;
     for (auto* action : recentMenu->actions()) texts << action->text();
-    EXPECT_EQ(texts, (QStringList{QStringLiteral("coffee-discount.moderato"), QStringLiteral("orchard-nitrogen.moderato")}));
+    EXPECT_EQ(texts,
+              (QStringList{QStringLiteral("coffee-discount.moderato"), QStringLiteral("orchard-nitrogen.moderato")}));
     // Choosing one opens it.
     recentMenu->actions()[1]->trigger();
     EXPECT_EQ(w.document()->filePath(), QFileInfo(p2).absoluteFilePath());
@@ -494,7 +496,8 @@ TEST(ProjectFiles, RecentFilesListTheNewestFirst) {
     const QString broken = test::copySample(QStringLiteral("helpdesk-staffing"), dir3);
     writeBytes(broken, "{ not json");
     EXPECT_FALSE(w.openProject(broken));
-    EXPECT_FALSE(QSettings().value(QStringLiteral("recentFiles")).toStringList().contains(QFileInfo(broken).absoluteFilePath()));
+    EXPECT_FALSE(
+        QSettings().value(QStringLiteral("recentFiles")).toStringList().contains(QFileInfo(broken).absoluteFilePath()));
     QSettings().remove(QStringLiteral("recentFiles"));
 }
 

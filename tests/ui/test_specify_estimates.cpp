@@ -58,7 +58,8 @@ struct Open {
         waitForRun();
     }
     bool waitForRun() {
-        return test::waitUntil([&] { return !w.runner()->busy(id) && (w.runner()->result(id) || !w.runner()->error(id).isEmpty()); });
+        return test::waitUntil(
+            [&] { return !w.runner()->busy(id) && (w.runner()->result(id) || !w.runner()->error(id).isEmpty()); });
     }
     const Analysis& analysis() const { return *w.document()->analysis(id); }
     SpecifySection* specify() const { return w.analysisPage()->specify(); }
@@ -191,12 +192,14 @@ TEST(SpecifyEstimates, PickerMovesAControlToModeratorAndTheTableFollows) {
     EXPECT_TRUE(fitText.contains(QString::number(case2["r_squared"].get<double>(), 'f', 4))) << fitText.toStdString();
     EXPECT_TRUE(fitText.contains(QString::number(case2["adj_r_squared"].get<double>(), 'f', 4)));
     // statsmodels fvalue with cov_type='HC3' (a Wald F), 2 decimals
-    EXPECT_TRUE(fitText.contains(QStringLiteral("F(3, 476) = ") + QString::number(case2["f_statistic"].get<double>(), 'f', 2)))
+    EXPECT_TRUE(
+        fitText.contains(QStringLiteral("F(3, 476) = ") + QString::number(case2["f_statistic"].get<double>(), 'f', 2)))
         << fitText.toStdString();
     const QString cmp = o.estimates()->comparisonLabel()->text();
     // statsmodels compare_f_test (classical R² change) and wald_test with HC3
     const auto& change = case2["r_squared_change"];
-    EXPECT_TRUE(cmp.contains(QStringLiteral("F(1, 476) = ") + QString::number(change["f_statistic"].get<double>(), 'f', 2)))
+    EXPECT_TRUE(
+        cmp.contains(QStringLiteral("F(1, 476) = ") + QString::number(change["f_statistic"].get<double>(), 'f', 2)))
         << cmp.toStdString();
     EXPECT_TRUE(cmp.contains(QString::number(change["r_squared_reduced"].get<double>(), 'f', 4))) << cmp.toStdString();
     const auto& wald = case2["wald_product"];
@@ -241,7 +244,8 @@ TEST(SpecifyEstimates, DroppingColumnsOnSlotsEditsTheAnalysis) {
     // No Moderator now: core refuses and the banner says so, naming the role.
     ASSERT_TRUE(o.waitForRun());
     EXPECT_TRUE(s->errorBanner()->isVisibleTo(s));
-    EXPECT_TRUE(s->errorBanner()->text().contains(QStringLiteral("Moderator"))) << s->errorBanner()->text().toStdString();
+    EXPECT_TRUE(s->errorBanner()->text().contains(QStringLiteral("Moderator")))
+        << s->errorBanner()->text().toStdString();
     EXPECT_TRUE(o.estimates()->errorBanner()->isVisibleTo(o.estimates()));
     EXPECT_EQ(o.estimates()->coefficients()->rowCount(), 0);
 
@@ -402,7 +406,9 @@ TEST(SpecifyEstimates, LogisticSampleOffersOnlyItsStandardErrorsAndTestsWithZ) {
     for (SeKind k : {SeKind::Classical, SeKind::HC0, SeKind::HC1, SeKind::Cluster})
         EXPECT_TRUE(items->item(s->seBox()->findData(static_cast<int>(k)))->isEnabled());
     // z, not t (the logistic model is compared with the normal distribution: common practice).
-    EXPECT_EQ(o.estimates()->coefficients()->headerData(CoefficientModel::Statistic, Qt::Horizontal, Qt::DisplayRole)
+    EXPECT_EQ(o.estimates()
+                  ->coefficients()
+                  ->headerData(CoefficientModel::Statistic, Qt::Horizontal, Qt::DisplayRole)
                   .toString(),
               QStringLiteral("z"));
     EXPECT_EQ(o.estimates()->table()->model()->headerData(CoefficientModel::Statistic, Qt::Horizontal).toString(),

@@ -9,6 +9,7 @@
 // Set MODERATO_SCREENSHOT_DIR to also save a PNG of each widget there.
 #include <gtest/gtest.h>
 
+#include <qcustomplot.h>
 #include <QApplication>
 #include <QClipboard>
 #include <QDir>
@@ -21,17 +22,16 @@
 #include <QTest>
 #include <cmath>
 #include <map>
-#include <qcustomplot.h>
 #include <set>
 
 #include "data/dataset_page.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
-#include "moderato/project/analysis_run.hpp"
-#include "moderato/reading/csv.hpp"
 #include "moderato/estimation/diagnostics.hpp"
-#include "moderato/project/project_loader.hpp"
 #include "moderato/probing/surface_view.hpp"
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/project/project_loader.hpp"
+#include "moderato/reading/csv.hpp"
 #include "plots/cells_view.hpp"
 #include "plots/diagnostic_plots.hpp"
 #include "plots/scatter_thinning.hpp"
@@ -143,7 +143,7 @@ TEST(CellsView, VolunteerOnboardingSeriesMatchCoreCellTable) {
         const QString label = m->item(r, 0)->text();
         for (const Cell& c : ref.cells)
             if (label == QStringLiteral("%1, %2").arg(QString::fromStdString(c.row_level),
-                                                       QString::fromStdString(c.column_level))) {
+                                                      QString::fromStdString(c.column_level))) {
                 ++cellRows;
                 EXPECT_EQ(m->item(r, 1)->text().toULongLong(), c.n);
                 EXPECT_NEAR(m->item(r, 3)->text().toDouble(), c.estimate, 5e-4 * std::abs(c.estimate));
@@ -257,8 +257,8 @@ TEST(SurfacePlot, OrchardNitrogenColourMapMatchesCoreSurfaceGrid) {
     for (int i = 0; i < map->data()->keySize(); ++i)
         for (int k = 0; k < map->data()->valueSize(); ++k) {
             EXPECT_NEAR(map->data()->cell(i, k), ref.predicted(k, i), 1e-12 * std::abs(ref.predicted(k, i)));
-            const bool outside = !region.contains(ref.x_values[static_cast<std::size_t>(i)],
-                                                  ref.z_values[static_cast<std::size_t>(k)]);
+            const bool outside =
+                !region.contains(ref.x_values[static_cast<std::size_t>(i)], ref.z_values[static_cast<std::size_t>(k)]);
             beyond += outside;
             EXPECT_EQ(map->data()->alpha(i, k) < 255, outside) << i << "," << k;
         }
@@ -506,8 +506,8 @@ TEST(DiagnosticPlot, DenseScatterIsThinnedButFlaggedRowsAreAllDrawn) {
         EXPECT_EQ(plot.flaggedGraph()->dataCount(), static_cast<int>(flagged.size()));
     }
     // Below the limit every point is drawn.
-    EXPECT_EQ(thinScatter(std::vector<double>(x.begin(), x.begin() + 1000),
-                          std::vector<double>(y.begin(), y.begin() + 1000))
-                  .size(),
-              1000u);
+    EXPECT_EQ(
+        thinScatter(std::vector<double>(x.begin(), x.begin() + 1000), std::vector<double>(y.begin(), y.begin() + 1000))
+            .size(),
+        1000u);
 }

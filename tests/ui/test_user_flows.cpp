@@ -6,6 +6,7 @@
 // (common practice).
 #include <gtest/gtest.h>
 
+#include <qcustomplot.h>
 #include <QApplication>
 #include <QCheckBox>
 #include <QComboBox>
@@ -26,7 +27,6 @@
 #include <QUndoStack>
 #include <QXmlStreamReader>
 #include <cmath>
-#include <qcustomplot.h>
 
 #include "data/derived_column_dialog.hpp"
 #include "data/import_dialog.hpp"
@@ -280,7 +280,8 @@ TEST(UserFlows, ExportedLegendFitsANarrowFigure) {
 // as text (categorical) until the user found the decimal-mark setting.
 TEST(UserFlows, ImportReadsDecimalCommasTheWayTheFileWritesThem) {
     QTemporaryDir dir;
-    const QString commas = writeFile(dir, QStringLiteral("commas.csv"), "site;yield;rain\nA;3,5;12,25\nB;4,75;0,5\nC;-1,25;7\n");
+    const QString commas =
+        writeFile(dir, QStringLiteral("commas.csv"), "site;yield;rain\nA;3,5;12,25\nB;4,75;0,5\nC;-1,25;7\n");
     {
         ImportDialog dlg(commas);
         dlg.show();
@@ -312,7 +313,8 @@ TEST(UserFlows, ImportReadsDecimalCommasTheWayTheFileWritesThem) {
         auto* header = child<QCheckBox>(&dlg, "import-header");
         QTest::mouseClick(header, Qt::LeftButton, {}, QPoint(4, header->height() / 2));
         QTest::mouseClick(header, Qt::LeftButton, {}, QPoint(4, header->height() / 2));
-        ASSERT_TRUE(test::waitUntil([&] { return dlg.previewTable() && dlg.previewTable()->cols() == 3 && header->isChecked(); }));
+        ASSERT_TRUE(test::waitUntil(
+            [&] { return dlg.previewTable() && dlg.previewTable()->cols() == 3 && header->isChecked(); }));
         EXPECT_FALSE(child<QComboBox>(&dlg, "import-decimal")->currentData().toBool());
         EXPECT_EQ(dlg.previewTable()->at("yield").kind, ColumnKind::Categorical);
     }
@@ -365,7 +367,8 @@ TEST(UserFlows, ANewModeratorStartsTheProbeAtItsMean) {
     EXPECT_NEAR(s.probe()->currentModeratorValue(), slopeMean, 1e-9);
     EXPECT_NEAR(s.probe()->moderatorSlider()->value(), slopeMean, 1e-9);
     EXPECT_NEAR(s.probe()->moderatorSlider()->valueBox()->value(), slopeMean, 0.01);
-    EXPECT_TRUE(s.probe()->readoutText().startsWith(QStringLiteral("slope_pct = "))) << s.probe()->readoutText().toStdString();
+    EXPECT_TRUE(s.probe()->readoutText().startsWith(QStringLiteral("slope_pct = ")))
+        << s.probe()->readoutText().toStdString();
     EXPECT_FALSE(s.probe()->currentEffect().beyond_data);
 
     // One undo brings back the old moderator with its values.
@@ -415,8 +418,9 @@ TEST(UserFlows, SavingAFigureSaysWhereItWent) {
     QTimer driver;
     QObject::connect(&driver, &QTimer::timeout, [&] {
         QWidget* modal = QApplication::activeModalWidget();
-        auto* save = qobject_cast<FigureExportDialog*>(modal) ? modal->findChild<QPushButton*>(QStringLiteral("figure-save"))
-                                                              : nullptr;
+        auto* save = qobject_cast<FigureExportDialog*>(modal)
+                         ? modal->findChild<QPushButton*>(QStringLiteral("figure-save"))
+                         : nullptr;
         if (stage == Export && save) {
             stage = FileName;
             QTimer::singleShot(0, save, [save] { QTest::mouseClick(save, Qt::LeftButton); });
@@ -474,5 +478,6 @@ TEST(UserFlows, DerivedColumnDialogShowsAWholeRefusal) {
     EXPECT_LE(name->geometry().bottom(), hint->geometry().top());
     EXPECT_LE(hint->geometry().bottom(), message->geometry().top());
     EXPECT_LE(message->geometry().bottom(), ok->mapTo(&dialog, QPoint(0, 0)).y());
-    EXPECT_GE(child<QComboBox>(&dialog, "derived-kind")->height(), child<QComboBox>(&dialog, "derived-kind")->minimumSizeHint().height());
+    EXPECT_GE(child<QComboBox>(&dialog, "derived-kind")->height(),
+              child<QComboBox>(&dialog, "derived-kind")->minimumSizeHint().height());
 }

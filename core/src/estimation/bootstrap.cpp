@@ -51,12 +51,11 @@ std::uint64_t uniform_below(std::mt19937_64& g, std::uint64_t n) {
     }
 }
 
-
 // ---- replicate designs -----------------------------------------------------
 
 struct Subset {
-    std::vector<Eigen::Index> rows;         // rows of the original design, in order
-    std::vector<int> cluster;               // new cluster id per row (cluster resampling/jackknife), or empty
+    std::vector<Eigen::Index> rows;  // rows of the original design, in order
+    std::vector<int> cluster;        // new cluster id per row (cluster resampling/jackknife), or empty
     std::vector<std::string> cluster_names;
 };
 
@@ -315,7 +314,7 @@ BootstrapInterval bootstrap_interval(const std::vector<double>& values, double e
     const auto below = static_cast<double>(std::lower_bound(v.begin(), v.end(), estimate) - v.begin());
     const auto ties = static_cast<double>(std::upper_bound(v.begin(), v.end(), estimate) - v.begin()) - below;
     const double share = (below + 0.5 * ties) / B;
-    out.bias_correction_z0 = share <= 0 ? -std::numeric_limits<double>::infinity()
+    out.bias_correction_z0 = share <= 0   ? -std::numeric_limits<double>::infinity()
                              : share >= 1 ? std::numeric_limits<double>::infinity()
                                           : dist::normal_quantile(share);
     const double z0 = out.bias_correction_z0;
@@ -348,8 +347,8 @@ BootstrapResult bootstrap(const Design& d, const ModelSpec& spec, const Bootstra
     const auto n = static_cast<long long>(d.n());
     const auto p = static_cast<long long>(d.p());
     if (n < 10 || n < 2 * p)
-        throw InputError("too few rows for the bootstrap: n = " + std::to_string(n) + " rows for p = " +
-                         std::to_string(p) +
+        throw InputError("too few rows for the bootstrap: n = " + std::to_string(n) +
+                         " rows for p = " + std::to_string(p) +
                          " coefficients; resampling needs at least 10 rows and at least twice as many rows as "
                          "coefficients (here " +
                          std::to_string(std::max<long long>(10, 2 * p)) + ") — add rows or drop terms");
@@ -393,10 +392,10 @@ BootstrapResult bootstrap(const Design& d, const ModelSpec& spec, const Bootstra
     const int J = std::min(units, kMaxJackknifeGroups);
     res.jackknife_groups = J;
     const std::string unit = clustered ? "cluster" : "row";
-    res.jackknife = J == units ? "leave one " + unit + " out (" + (clustered ? "G" : "n") + " = " +
-                                     std::to_string(units) + ")"
-                               : "grouped: " + std::to_string(J) + " groups (" + unit + " i in group i mod " +
-                                     std::to_string(J) + ")";
+    res.jackknife =
+        J == units
+            ? "leave one " + unit + " out (" + (clustered ? "G" : "n") + " = " + std::to_string(units) + ")"
+            : "grouped: " + std::to_string(J) + " groups (" + unit + " i in group i mod " + std::to_string(J) + ")";
 
     const int R = options.replicates;
     const int total = R + J;

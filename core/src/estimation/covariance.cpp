@@ -42,7 +42,8 @@ Eigen::MatrixXd sandwich(const Eigen::MatrixXd& X, const std::vector<int>& kept,
             },
             [&](std::size_t b, Eigen::MatrixXd&& W) {
                 const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlockRows;
-                for (Eigen::Index i = 0; i < W.rows(); ++i) U.row(cluster[static_cast<std::size_t>(r0 + i)]) += W.row(i);
+                for (Eigen::Index i = 0; i < W.rows(); ++i)
+                    U.row(cluster[static_cast<std::size_t>(r0 + i)]) += W.row(i);
             });
         meat.selfadjointView<Eigen::Lower>().rankUpdate(U.transpose());
         const double G = n_clusters;

@@ -158,8 +158,8 @@ const Column& column_for(const Table& table, const std::string& name, const std:
     std::vector<std::string> names;
     for (const auto& c : table.columns) names.push_back(c.name);
     throw InputError(role + " column " + quoted(name) + " not found" +
-                     (table.source.empty() ? std::string() : " in " + table.source) + "; columns are: " +
-                     join(names, ", "));
+                     (table.source.empty() ? std::string() : " in " + table.source) +
+                     "; columns are: " + join(names, ", "));
 }
 
 // A hint when text looks like a number written with a decimal comma.
@@ -171,8 +171,9 @@ std::string decimal_comma_hint(const std::string& text) {
         else if (c == ',' && !comma && digit) comma = true;
         else if (!(c == '-' && i == 0)) return {};
     }
-    return comma && text.back() != ',' ? "; if the file writes decimals with a comma, read it with the decimal-comma option"
-                                       : std::string();
+    return comma && text.back() != ','
+               ? "; if the file writes decimals with a comma, read it with the decimal-comma option"
+               : std::string();
 }
 
 std::string not_numeric(const Table& table, const std::string& role, const Column& c, const std::string& advice) {
@@ -204,14 +205,11 @@ std::vector<std::string> sorted_levels(const Column& column) {
     std::vector<std::string> levels = column.levels;
     std::vector<double> values(levels.size());
     bool all_numeric = !levels.empty();
-    for (std::size_t i = 0; i < levels.size() && all_numeric; ++i)
-        all_numeric = parse_number(levels[i], values[i]);
+    for (std::size_t i = 0; i < levels.size() && all_numeric; ++i) all_numeric = parse_number(levels[i], values[i]);
     std::vector<std::size_t> idx(levels.size());
     for (std::size_t i = 0; i < idx.size(); ++i) idx[i] = i;
-    if (all_numeric)
-        std::stable_sort(idx.begin(), idx.end(), [&](auto a, auto b) { return values[a] < values[b]; });
-    else
-        std::stable_sort(idx.begin(), idx.end(), [&](auto a, auto b) { return levels[a] < levels[b]; });
+    if (all_numeric) std::stable_sort(idx.begin(), idx.end(), [&](auto a, auto b) { return values[a] < values[b]; });
+    else std::stable_sort(idx.begin(), idx.end(), [&](auto a, auto b) { return levels[a] < levels[b]; });
     std::vector<std::string> out;
     for (auto i : idx) out.push_back(levels[i]);
     return out;
@@ -293,8 +291,8 @@ Design build_design(const Table& table, const ModelSpec& spec) {
     if (!spec.weights.empty()) {
         weights = &column_for(table, spec.weights, "weights");
         if (weights->kind != ColumnKind::Numeric)
-            throw InputError(not_numeric(table, "weights", *weights,
-                                         "choose a numeric weights column or fix that cell"));
+            throw InputError(
+                not_numeric(table, "weights", *weights, "choose a numeric weights column or fix that cell"));
         use(spec.weights);
     }
     if (spec.se == SeKind::Cluster && spec.cluster.empty())
@@ -449,8 +447,8 @@ Design build_design(const Table& table, const ModelSpec& spec) {
         for (std::size_t i = 0; i < n; ++i) {
             const double v = d.y[static_cast<Eigen::Index>(i)];
             if (v != 0.0 && v != 1.0)
-                throw InputError("logistic outcome " + quoted(spec.outcome) + " must be 0 or 1: " +
-                                 where(table, rows[i]) + " holds " + fmt_num(v));
+                throw InputError("logistic outcome " + quoted(spec.outcome) +
+                                 " must be 0 or 1: " + where(table, rows[i]) + " holds " + fmt_num(v));
         }
     if (weights) {
         d.weights.resize(static_cast<Eigen::Index>(n));
@@ -487,9 +485,9 @@ Design build_design(const Table& table, const ModelSpec& spec) {
         }
         d.n_clusters = static_cast<int>(d.cluster_names.size());
         if (d.n_clusters < 2)
-            throw InputError("cluster column " + quoted(spec.cluster) + " has a single cluster among the " +
-                             std::to_string(n) +
-                             " used rows; cluster-robust standard errors need at least 2 clusters (30 or more to be reliable)");
+            throw InputError(
+                "cluster column " + quoted(spec.cluster) + " has a single cluster among the " + std::to_string(n) +
+                " used rows; cluster-robust standard errors need at least 2 clusters (30 or more to be reliable)");
     }
 
     // 6. Checks that make a fit meaningless.
@@ -509,7 +507,8 @@ Design build_design(const Table& table, const ModelSpec& spec) {
         for (const auto& c : d.columns) labels.push_back(c.label);
         throw InputError("too few rows: " + (table.source.empty() ? std::string() : table.source + " has ") +
                          std::to_string(n) + " complete rows for " + std::to_string(p) + " coefficients (" +
-                         join(labels, ", ") + "); the model needs more rows than coefficients — add rows or drop terms");
+                         join(labels, ", ") +
+                         "); the model needs more rows than coefficients — add rows or drop terms");
     }
 
     for (const auto& t : d.terms)
@@ -533,8 +532,7 @@ Design build_design(const Table& table, const ModelSpec& spec) {
             d.summaries.emplace(f.first, s);
         }
 
-    if (!added_notes.empty())
-        d.notes.push_back("lower-order terms added: " + join(added_notes, ", "));
+    if (!added_notes.empty()) d.notes.push_back("lower-order terms added: " + join(added_notes, ", "));
     if (d.n_excluded > 0) {
         std::vector<std::string> why;
         for (const auto& e : d.exclusions) why.push_back(e.column + ": " + std::to_string(e.rows) + " missing");

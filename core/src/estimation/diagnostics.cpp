@@ -6,8 +6,8 @@
 #include <numeric>
 
 #include "moderato/estimation/distributions.hpp"
-#include "moderato/support/error.hpp"
 #include "moderato/estimation/least_squares.hpp"
+#include "moderato/support/error.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
@@ -146,9 +146,9 @@ Diagnostics diagnostics(const Design& design, const FitResult& fit, const Diagno
     for (Eigen::Index i = 0; i < n; ++i) {
         const unsigned flags = diagnostic_flags(d, static_cast<std::size_t>(i));
         if (flags)
-            d.flagged.push_back({static_cast<std::size_t>(i), design.rows.empty() ? static_cast<std::size_t>(i)
-                                                                                  : design.rows[static_cast<std::size_t>(i)],
-                                 flags});
+            d.flagged.push_back(
+                {static_cast<std::size_t>(i),
+                 design.rows.empty() ? static_cast<std::size_t>(i) : design.rows[static_cast<std::size_t>(i)], flags});
     }
     auto key = [&](const FlaggedRow& r) {
         const double c = d.cooks_distance[static_cast<Eigen::Index>(r.observation)];
@@ -157,8 +157,9 @@ Diagnostics diagnostics(const Design& design, const FitResult& fit, const Diagno
     std::stable_sort(d.flagged.begin(), d.flagged.end(),
                      [&](const FlaggedRow& a, const FlaggedRow& b) { return key(a) > key(b); });
     if (!d.flagged.empty() && d.flagged.size() > d.n / 10)
-        d.notes.push_back("more than a tenth of the rows meet a rule: with many rows the rules of thumb flag many "
-                          "ordinary rows; look at the most influential first");
+        d.notes.push_back(
+            "more than a tenth of the rows meet a rule: with many rows the rules of thumb flag many "
+            "ordinary rows; look at the most influential first");
     return d;
 }
 

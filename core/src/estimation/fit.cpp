@@ -7,11 +7,11 @@
 
 #include "estimation/covariance.hpp"
 #include "estimation/logistic_math.hpp"
-#include "moderato/estimation/distributions.hpp"
-#include "moderato/support/error.hpp"
-#include "moderato/estimation/least_squares.hpp"
-#include "support/parallel.hpp"
 #include "estimation/separation.hpp"
+#include "moderato/estimation/distributions.hpp"
+#include "moderato/estimation/least_squares.hpp"
+#include "moderato/support/error.hpp"
+#include "support/parallel.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
@@ -55,7 +55,7 @@ Eigen::MatrixXd expand(const Eigen::MatrixXd& Vk, const std::vector<int>& kept, 
 
 struct LogisticFit {
     Eigen::VectorXd beta;
-    LeastSquaresResult factor;   // at the final estimate: (X' V X)^{-1} = A A'
+    LeastSquaresResult factor;  // at the final estimate: (X' V X)^{-1} = A A'
     Eigen::VectorXd mu;
     double loglik = 0;
     int iterations = 0;
@@ -366,8 +366,7 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
         }
         const double mu0 = d.intercept ? static_cast<double>(swy / sw) : 0.5;
         long double ll0 = 0;
-        for (Eigen::Index i = 0; i < n; ++i)
-            ll0 += weight(d, i) * (d.y[i] == 1.0 ? std::log(mu0) : std::log1p(-mu0));
+        for (Eigen::Index i = 0; i < n; ++i) ll0 += weight(d, i) * (d.y[i] == 1.0 ? std::log(mu0) : std::log1p(-mu0));
         const double null_ll = static_cast<double>(ll0);
         f.deviance = -2.0 * f.log_likelihood;
         f.null_deviance = -2.0 * null_ll;

@@ -29,8 +29,8 @@ Mat triangular_factor(const Mat& M) {
 
 }  // namespace
 
-LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
-                                 const Eigen::VectorXd& weights, const LeastSquaresOptions& options) {
+LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd& y, const Eigen::VectorXd& weights,
+                                 const LeastSquaresOptions& options) {
     const Eigen::Index n = X.rows();
     const Eigen::Index p = X.cols();
     const bool weighted = weights.size() > 0;
@@ -102,11 +102,10 @@ LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd
     LD biggest = 0;
     for (Eigen::Index k = 0; k < p; ++k) biggest = std::max(biggest, std::abs(Rp(k, k)));
     // In double, exactly collinear columns leave pivots of a few sqrt(n) * eps.
-    const double tolerance =
-        out.extended_precision
-            ? options.rank_tolerance
-            : std::max(options.rank_tolerance,
-                       16.0 * std::sqrt(static_cast<double>(n)) * std::numeric_limits<double>::epsilon());
+    const double tolerance = out.extended_precision
+                                 ? options.rank_tolerance
+                                 : std::max(options.rank_tolerance, 16.0 * std::sqrt(static_cast<double>(n)) *
+                                                                        std::numeric_limits<double>::epsilon());
     int rank = 0;
     for (Eigen::Index k = 0; k < p; ++k)
         if (std::abs(Rp(k, k)) > static_cast<LD>(tolerance) * biggest) ++rank;

@@ -10,7 +10,7 @@
 namespace moderato::detail {
 
 struct SeparationFinding {
-    std::string message;   // names the column(s) at fault
+    std::string message;  // names the column(s) at fault
 };
 
 // Looks for single design columns that separate the outcome (a 0/1 column

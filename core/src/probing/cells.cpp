@@ -5,10 +5,10 @@
 #include <limits>
 #include <stdexcept>
 
-#include "moderato/estimation/distributions.hpp"
-#include "moderato/support/error.hpp"
-#include "moderato/probing/probe.hpp"
 #include "estimation/logistic_math.hpp"
+#include "moderato/estimation/distributions.hpp"
+#include "moderato/probing/probe.hpp"
+#include "moderato/support/error.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
@@ -38,7 +38,7 @@ bool has_factor(const DesignTerm& t, const std::string& column) {
 struct Factor {
     std::string name;
     std::vector<std::string> levels;
-    std::vector<int> row_level;   // per used observation
+    std::vector<int> row_level;  // per used observation
 };
 
 int main_column(const Design& d, const Atom& atom) {
@@ -157,8 +157,9 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
 
     for (const auto& [column, value] : held) {
         if (column == row_factor || column == column_factor)
-            throw InputError(quoted(column) +
-                             " is a factor of the cell table and cannot also be held at a value; drop it from the held values");
+            throw InputError(
+                quoted(column) +
+                " is a factor of the cell table and cannot also be held at a value; drop it from the held values");
         if (!in_model(d, column))
             throw InputError("held column " + quoted(column) + " is not in the model; hold only model columns");
         if (const CategoricalInfo* c = d.categorical(column)) {
@@ -195,8 +196,7 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
             if (const CategoricalInfo* c = d.categorical(column))
                 parts.push_back(column + " = " + quoted(c->levels[static_cast<std::size_t>(v)]) +
                                 (given ? "" : " (reference level)"));
-            else
-                parts.push_back(column + " = " + fmt_num(v) + (given ? "" : " (its mean)"));
+            else parts.push_back(column + " = " + fmt_num(v) + (given ? "" : " (its mean)"));
         }
         if (!parts.empty()) t.notes.push_back("cells predicted with " + join(parts, ", "));
     }
@@ -205,9 +205,10 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
                           ": the cells, simple effects and contrasts hold the other columns at the values above, "
                           "while the joint test covers only the two-way product columns");
     if (logistic)
-        t.notes.push_back("on the log-odds scale: simple effects are log odds ratios and interaction contrasts are "
-                          "log ratios of odds ratios; an interaction on the log-odds scale is not the same as one "
-                          "on the probability scale (cell probabilities are given beside)");
+        t.notes.push_back(
+            "on the log-odds scale: simple effects are log odds ratios and interaction contrasts are "
+            "log ratios of odds ratios; an interaction on the log-odds scale is not the same as one "
+            "on the probability scale (cell probabilities are given beside)");
 
     const std::size_t nr = R.levels.size(), nc = C.levels.size();
     // Counts and observed means from the used rows.
@@ -256,14 +257,13 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
                 c.probability_upper = expit(r.ci_upper);
                 c.probability_std_error = c.probability * (1 - c.probability) * r.std_error;
             }
-            const std::string where = "cell (" + level_text(row_factor, c.row_level) + ", " +
-                                      level_text(column_factor, c.column_level) + ")";
+            const std::string where =
+                "cell (" + level_text(row_factor, c.row_level) + ", " + level_text(column_factor, c.column_level) + ")";
             if (!c.estimable)
                 t.notes.push_back(where + " cannot be estimated: it needs the aliased coefficient" +
                                   (m.aliased.size() > 1 ? "s " : " ") + join(m.aliased, ", ") +
                                   (c.n == 0 ? " (no rows fall in this cell)" : ""));
-            else if (c.n == 0)
-                empty_cells.push_back(where);
+            else if (c.n == 0) empty_cells.push_back(where);
             t.cells.push_back(std::move(c));
         }
     if (!empty_cells.empty())
@@ -298,8 +298,8 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
             e.reference = C.levels[0];
             e.at_factor = row_factor;
             e.at_level = R.levels[i];
-            e.label = level_text(column_factor, e.level) + " vs " + level_text(column_factor, e.reference) +
-                      " at " + level_text(row_factor, e.at_level);
+            e.label = level_text(column_factor, e.level) + " vs " + level_text(column_factor, e.reference) + " at " +
+                      level_text(row_factor, e.at_level);
             fill(e, infer(m, fit), logistic);
             e.estimable = m.aliased.empty();
             not_estimable += !e.estimable;
@@ -315,7 +315,8 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
             e.column_level = C.levels[j];
             e.label = std::string("(");  // appended piecewise: GCC 12 warns falsely (-Wrestrict) on "(" + string&&
             e.label += level_text(row_factor, e.row_level) + " vs " + level_text(row_factor, R.levels[0]) + ") at " +
-                       level_text(column_factor, e.column_level) + " minus at " + level_text(column_factor, C.levels[0]);
+                       level_text(column_factor, e.column_level) + " minus at " +
+                       level_text(column_factor, C.levels[0]);
             fill(e, infer(m, fit), logistic);
             e.estimable = m.aliased.empty();
             not_estimable += !e.estimable;
@@ -331,8 +332,7 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
         std::vector<std::string> aliased;
         for (int j : pair_term->columns)
             if (std::isnan(fit.beta[j])) aliased.push_back(d.columns[static_cast<std::size_t>(j)].label);
-        if (aliased.empty())
-            t.interaction_test = wald_test(fit, {pair_term->label});
+        if (aliased.empty()) t.interaction_test = wald_test(fit, {pair_term->label});
         else
             t.notes.push_back("no joint test of " + pair_term->label + ": the product column" +
                               (aliased.size() > 1 ? "s " : " ") + join(aliased, ", ") +

@@ -34,8 +34,7 @@ void check_power_target(double p) {
 
 void check_design(const PowerDesign& d) {
     if (std::isnan(d.alpha) || !(d.alpha > 0 && d.alpha < 1))
-        throw InputError("alpha (the significance level) must be between 0 and 1 (exclusive), got " +
-                         fmt_num(d.alpha));
+        throw InputError("alpha (the significance level) must be between 0 and 1 (exclusive), got " + fmt_num(d.alpha));
     if (d.tested_terms < 1)
         throw InputError("the number of tested terms must be at least 1, got " + std::to_string(d.tested_terms));
     if (d.total_predictors < d.tested_terms)
@@ -72,7 +71,8 @@ PowerResult compute(double f2, long long n, const PowerDesign& d) {
     r.df2 = static_cast<double>(n - d.total_predictors - 1);
     r.noncentrality = lambda_of(f2, n, d);
     if (r.noncentrality > kMaxLambda)
-        throw InputError("the noncentrality (" + noncentrality_formula(d.convention) + " = " + fmt_num(r.noncentrality) +
+        throw InputError("the noncentrality (" + noncentrality_formula(d.convention) + " = " +
+                         fmt_num(r.noncentrality) +
                          ") is above 1e9, beyond what the power can be computed for; such a design has power "
                          "very close to 1; use a smaller f2 or n");
     r.critical_f = bm::quantile(bm::complement(bm::fisher_f_distribution<double>(r.df1, r.df2), d.alpha));
@@ -96,8 +96,8 @@ std::string noncentrality_formula(Noncentrality c) {
 Noncentrality parse_noncentrality(const std::string& text, const std::string& option) {
     if (text == "cohen") return Noncentrality::cohen;
     if (text == "n") return Noncentrality::n;
-    throw InputError("option --" + option + " must be cohen (lambda = f2 * (df1 + df2 + 1)) or n (lambda = f2 * n), got '" +
-                     text + "'");
+    throw InputError("option --" + option +
+                     " must be cohen (lambda = f2 * (df1 + df2 + 1)) or n (lambda = f2 * n), got '" + text + "'");
 }
 
 double noncentrality_for(double f2, long long n, const PowerDesign& design) {
@@ -125,7 +125,7 @@ SampleSizeResult smallest_n_for_power(double f2, double target_power, const Powe
     out.target_power = target_power;
     const auto reaches = [&](long long n) { return compute(f2, n, design).power >= target_power; };
 
-    long long lo = least - 1;   // the largest n known to fall short (least − 1: not a valid n)
+    long long lo = least - 1;  // the largest n known to fall short (least − 1: not a valid n)
     long long hi = least;
     if (!reaches(hi)) {
         // Bracket: double the distance from the smallest valid n.
@@ -167,15 +167,15 @@ DetectableResult smallest_detectable_f2(long long n, double target_power, const 
                          "): the test rejects with probability alpha even when there is no effect");
 
     const auto gap = [&](double f2) { return compute(f2, n, design).power - target_power; };
-    double a = 0, fa = design.alpha - target_power;   // f2 = 0: power is alpha exactly
+    double a = 0, fa = design.alpha - target_power;  // f2 = 0: power is alpha exactly
     double b = 0.01, fb = gap(b);
     while (fb < 0) {
         a = b;
         fa = fb;
         b *= 4;
         if (b > 1e15)
-            throw InputError("no effect size f2 up to 1e15 reaches power " + fmt_num(target_power) + " with n = " +
-                             std::to_string(n) + "; lower the target power or raise n");
+            throw InputError("no effect size f2 up to 1e15 reaches power " + fmt_num(target_power) +
+                             " with n = " + std::to_string(n) + "; lower the target power or raise n");
         fb = gap(b);
     }
     std::uintmax_t iterations = 200;
@@ -194,9 +194,9 @@ double f2_from_r2(double r2_full, double r2_reduced) {
     if (std::isnan(r2_reduced) || !(r2_reduced >= 0 && r2_reduced < 1))
         throw InputError("the reduced model's R² must be at least 0 and below 1, got " + fmt_num(r2_reduced));
     if (r2_reduced > r2_full)
-        throw InputError("the reduced model's R² (" + fmt_num(r2_reduced) + ") exceeds the full model's R² (" +
-                         fmt_num(r2_full) +
-                         "): the full model contains the reduced one plus the tested terms, so its R² is at least as large");
+        throw InputError(
+            "the reduced model's R² (" + fmt_num(r2_reduced) + ") exceeds the full model's R² (" + fmt_num(r2_full) +
+            "): the full model contains the reduced one plus the tested terms, so its R² is at least as large");
     return (r2_full - r2_reduced) / (1.0 - r2_full);
 }
 

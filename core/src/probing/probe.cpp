@@ -118,8 +118,7 @@ SignificanceRegions from_regions(double q, std::vector<Region> regions, std::str
 
 }  // namespace
 
-EffectFunction::EffectFunction(std::vector<Eigen::VectorXd> g, const Eigen::VectorXd& beta,
-                               const Eigen::MatrixXd& cov)
+EffectFunction::EffectFunction(std::vector<Eigen::VectorXd> g, const Eigen::VectorXd& beta, const Eigen::MatrixXd& cov)
     : g_(std::move(g)) {
     const std::size_t K = g_.size();
     a_.assign(K, 0.0);
@@ -205,7 +204,9 @@ SignificanceRegions significance_regions(const EffectFunction& f, double q) {
     const int K = f.degree();
     std::vector<double> P(static_cast<std::size_t>(2 * K + 1), 0.0);
     for (int k = 0; k <= K; ++k)
-        for (int l = 0; l <= K; ++l) P[static_cast<std::size_t>(k + l)] += a[static_cast<std::size_t>(k)] * a[static_cast<std::size_t>(l)] - q2 * v(k, l);
+        for (int l = 0; l <= K; ++l)
+            P[static_cast<std::size_t>(k + l)] +=
+                a[static_cast<std::size_t>(k)] * a[static_cast<std::size_t>(l)] - q2 * v(k, l);
     while (P.size() > 1 && std::abs(P.back()) < 1e-300) P.pop_back();
     std::vector<double> roots;
     const int deg = static_cast<int>(P.size()) - 1;
@@ -226,8 +227,8 @@ SignificanceRegions significance_regions(const EffectFunction& f, double q) {
         double lo = r - h, hi = r + h;
         if (gap(lo) * gap(hi) < 0) {
             std::uintmax_t iters = 100;
-            auto res = boost::math::tools::toms748_solve(gap, lo, hi, boost::math::tools::eps_tolerance<double>(50),
-                                                         iters);
+            auto res =
+                boost::math::tools::toms748_solve(gap, lo, hi, boost::math::tools::eps_tolerance<double>(50), iters);
             r = 0.5 * (res.first + res.second);
         }
         if (polished.empty() || std::abs(r - polished.back()) > 1e-9 * (1 + std::abs(r))) polished.push_back(r);
@@ -288,34 +289,38 @@ bool in_model(const Design& d, const std::string& c) {
 // The usual cautions, worded for this result.
 void refresh_cautions(ProbeResult& r, const FitResult& fit) {
     r.cautions.clear();
-    r.cautions.push_back("These are associations in observational data, not causal effects, unless the focal "
-                         "predictor was randomised.");
+    r.cautions.push_back(
+        "These are associations in observational data, not causal effects, unless the focal "
+        "predictor was randomised.");
     bool beyond = false;
     for (const auto& e : r.effects) beyond |= e.beyond_data;
     for (bool b : r.jn_beyond_data) beyond |= b;
     if (beyond)
         r.cautions.push_back("Some moderator values or boundaries lie beyond the observed range of " + r.moderator +
-                             " (" + detail::fmt_short(r.observed_range.first) + " to " + detail::fmt_short(r.observed_range.second) +
-                             "): there the results are extrapolations.");
+                             " (" + detail::fmt_short(r.observed_range.first) + " to " +
+                             detail::fmt_short(r.observed_range.second) + "): there the results are extrapolations.");
     if (r.johnson_neyman)
-        r.cautions.push_back("The region of significance tests many moderator values, each at the " +
-                             fmt_num(100 * (1 - fit.level)) + "% level" +
-                             (r.simultaneous ? "; the simultaneous band (critical value " +
-                                                   detail::fmt_short(r.simultaneous->critical_value) +
-                                                   ") keeps the chance of any false region at " +
-                                                   fmt_num(100 * (1 - fit.level)) + "%."
-                                             : "."));
+        r.cautions.push_back(
+            "The region of significance tests many moderator values, each at the " + fmt_num(100 * (1 - fit.level)) +
+            "% level" +
+            (r.simultaneous
+                 ? "; the simultaneous band (critical value " + detail::fmt_short(r.simultaneous->critical_value) +
+                       ") keeps the chance of any false region at " + fmt_num(100 * (1 - fit.level)) + "%."
+                 : "."));
     if (fit.n < 200)
         r.cautions.push_back("With " + std::to_string(fit.n) +
                              " observations, interaction estimates and regions of significance are unstable.");
     if (fit.family == Family::Logistic && r.scale == "link")
-        r.cautions.push_back("On the log-odds scale a product coefficient is not the interaction on the probability "
-                             "scale; use the probability scale to describe effects on P(" + r.outcome + " = 1).");
+        r.cautions.push_back(
+            "On the log-odds scale a product coefficient is not the interaction on the probability "
+            "scale; use the probability scale to describe effects on P(" +
+            r.outcome + " = 1).");
     if (r.scale == "response")
-        r.cautions.push_back("On the probability scale an effect depends on the values of every other predictor; "
-                             "these effects are " +
-                             std::string(r.averaging == "sample" ? "averaged over the observed rows."
-                                                                 : "at the means and reference levels."));
+        r.cautions.push_back(
+            "On the probability scale an effect depends on the values of every other predictor; "
+            "these effects are " +
+            std::string(r.averaging == "sample" ? "averaged over the observed rows."
+                                                : "at the means and reference levels."));
 }
 
 namespace {
@@ -382,23 +387,20 @@ EffectPoint effect_point(double moderator_value, const Inference& i) {
 ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) {
     if (fit.family == Family::Logistic && (!fit.converged || fit.separation))
         throw InputError(std::string("the logistic fit ") +
-                         (fit.separation ? "shows separation" : "did not converge in " + std::to_string(fit.iterations) +
-                                                                    " iterations") +
+                         (fit.separation ? "shows separation"
+                                         : "did not converge in " + std::to_string(fit.iterations) + " iterations") +
                          ", so its estimates and effects are not reliable and are not probed; " +
                          (fit.warnings.empty() ? std::string("simplify the model") : fit.warnings.back()));
-    if (!in_model(d, spec.focal))
-        throw InputError("focal predictor " + quoted(spec.focal) + " is not in the model");
+    if (!in_model(d, spec.focal)) throw InputError("focal predictor " + quoted(spec.focal) + " is not in the model");
     if (d.categorical(spec.focal))
         throw InputError("focal predictor " + quoted(spec.focal) +
                          " is categorical; choose a numeric focal predictor and make " + quoted(spec.focal) +
                          " the moderator");
-    if (!in_model(d, spec.moderator))
-        throw InputError("moderator " + quoted(spec.moderator) + " is not in the model");
+    if (!in_model(d, spec.moderator)) throw InputError("moderator " + quoted(spec.moderator) + " is not in the model");
     if (!in_product_with(d, spec.focal, spec.moderator))
         throw InputError("focal predictor " + quoted(spec.focal) + " and moderator " + quoted(spec.moderator) +
-                         " share no product term, so the effect of " + quoted(spec.focal) +
-                         " does not depend on " + quoted(spec.moderator) + "; add --interaction " + spec.focal +
-                         "," + spec.moderator);
+                         " share no product term, so the effect of " + quoted(spec.focal) + " does not depend on " +
+                         quoted(spec.moderator) + "; add --interaction " + spec.focal + "," + spec.moderator);
     if (!spec.second_moderator.empty() && !in_model(d, spec.second_moderator))
         throw InputError("second moderator " + quoted(spec.second_moderator) + " is not in the model");
 
@@ -428,10 +430,9 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
         for (const auto& f : t.factors) {
             const std::string& c = f.first;
             if (c == spec.focal || c == spec.moderator || c == spec.second_moderator) continue;
-            const std::string note =
-                c + " also changes the effect of " + spec.focal + "; it is held at " +
-                (d.categorical(c) ? "its reference level '" + d.categorical(c)->reference + "'"
-                                  : "its mean " + detail::fmt_short(values[c]));
+            const std::string note = c + " also changes the effect of " + spec.focal + "; it is held at " +
+                                     (d.categorical(c) ? "its reference level '" + d.categorical(c)->reference + "'"
+                                                       : "its mean " + detail::fmt_short(values[c]));
             if (std::find(r.notes.begin(), r.notes.end(), note) == r.notes.end()) r.notes.push_back(note);
         }
     }
@@ -458,9 +459,9 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
             for (std::size_t b = a + 1; b < cat->levels.size(); ++b) {
                 const EffectFunction gap = contrast_function(d, fit, spec.moderator, static_cast<double>(a),
                                                              static_cast<double>(b), spec.focal, values);
-                r.crossovers.push_back(crossover_of(gap, fit, r.focal_range,
-                                                    spec.moderator + "=" + cat->levels[a] + " vs " + spec.moderator +
-                                                        "=" + cat->levels[b]));
+                r.crossovers.push_back(crossover_of(
+                    gap, fit, r.focal_range,
+                    spec.moderator + "=" + cat->levels[a] + " vs " + spec.moderator + "=" + cat->levels[b]));
             }
         refresh_cautions(r, fit);
         return r;
@@ -474,15 +475,18 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     r.effect_function = f;
     const bool binary = d.is_binary(spec.moderator);
     std::vector<double> at = spec.at;
-    if (at.empty()) at = binary ? std::vector<double>{0.0, 1.0} : std::vector<double>{ms.mean - ms.sd, ms.mean, ms.mean + ms.sd};
+    if (at.empty())
+        at = binary ? std::vector<double>{0.0, 1.0} : std::vector<double>{ms.mean - ms.sd, ms.mean, ms.mean + ms.sd};
     for (double m : at) {
         EffectPoint e = point_at(f, m, fit);
         e.beyond_data = m < ms.min || m > ms.max;
         r.effects.push_back(e);
     }
     if (binary) {
-        r.notes.push_back(spec.moderator + " takes only the values 0 and 1: the effects at 0 and 1 are the whole "
-                          "story, so no region of significance over " + spec.moderator + " is reported");
+        r.notes.push_back(spec.moderator +
+                          " takes only the values 0 and 1: the effects at 0 and 1 are the whole "
+                          "story, so no region of significance over " +
+                          spec.moderator + " is reported");
     } else {
         r.johnson_neyman = significance_regions(f, fit.critical_value);
         for (double b : r.johnson_neyman->boundaries) r.jn_beyond_data.push_back(b < ms.min || b > ms.max);
@@ -494,9 +498,9 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     // Lines at different moderator values meet where the moderator's own
     // effect, as a function of the focal predictor, is zero.
     const EffectFunction gap(linear_form(d, spec.focal, spec.moderator, values), fit.beta, fit.covariance);
-    r.crossovers.push_back(crossover_of(gap, fit, r.focal_range,
-                                        binary ? spec.moderator + "=0 vs " + spec.moderator + "=1"
-                                               : "lines at any two values of " + spec.moderator));
+    r.crossovers.push_back(crossover_of(
+        gap, fit, r.focal_range,
+        binary ? spec.moderator + "=0 vs " + spec.moderator + "=1" : "lines at any two values of " + spec.moderator));
     refresh_cautions(r, fit);
     return r;
 }

@@ -43,8 +43,7 @@ ProbeBootstrap bootstrap_probe(const Design& design, const ModelSpec& spec, cons
         auto values = typical_values(design);
         for (const auto& e : probe.effects) {
             values[probe.moderator] = e.moderator_value;
-            level_gradients.push_back(
-                effect_function(design, FitResult{}, probe.focal, "", values).basis().front());
+            level_gradients.push_back(effect_function(design, FitResult{}, probe.focal, "", values).basis().front());
         }
     }
     const std::vector<Eigen::VectorXd> gap_basis =
@@ -67,7 +66,8 @@ ProbeBootstrap bootstrap_probe(const Design& design, const ModelSpec& spec, cons
         Eigen::VectorXd s = Eigen::VectorXd::Constant(static_cast<Eigen::Index>(m), kNaN);
         std::size_t k = 0;
         if (response) {
-            for (const auto& e : probe.effects) s[static_cast<Eigen::Index>(k++)] = probability_effect(rd, rf, request, e.moderator_value).effect;
+            for (const auto& e : probe.effects)
+                s[static_cast<Eigen::Index>(k++)] = probability_effect(rd, rf, request, e.moderator_value).effect;
         } else if (probe.categorical_moderator) {
             for (const auto& g : level_gradients) s[static_cast<Eigen::Index>(k++)] = g.dot(rf.beta);
         } else {

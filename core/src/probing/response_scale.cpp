@@ -6,9 +6,9 @@
 #include <functional>
 #include <limits>
 
+#include "estimation/logistic_math.hpp"
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/support/error.hpp"
-#include "estimation/logistic_math.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
@@ -20,7 +20,7 @@ namespace {
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
 using detail::expit;
-double phi(double p) { return p * (1 - p); }               // dP/deta
+double phi(double p) { return p * (1 - p); }                      // dP/deta
 double phi_prime(double p) { return p * (1 - p) * (1 - 2 * p); }  // d2P/deta2
 
 int main_column(const Design& d, const std::string& column) { return d.main_column(column); }
@@ -130,8 +130,8 @@ EffectPoint probability_effect(const Design& d, const FitResult& fit, const Scal
     return effect_point(m, infer(me, delta_se(grad, fit.covariance), fit));
 }
 
-SignificanceRegions probability_regions(const Design& d, const FitResult& fit, const ScaleRequest& request,
-                                        double q, double lo, double hi, int grid) {
+SignificanceRegions probability_regions(const Design& d, const FitResult& fit, const ScaleRequest& request, double q,
+                                        double lo, double hi, int grid) {
     auto h = [&](double m) { return std::abs(probability_effect(d, fit, request, m).statistic) - q; };
     std::vector<double> ms, hs;
     for (int i = 0; i <= grid; ++i) {
@@ -145,11 +145,10 @@ SignificanceRegions probability_regions(const Design& d, const FitResult& fit, c
     for (int i = 1; i <= grid; ++i) {
         if ((hs[static_cast<std::size_t>(i - 1)] > 0) == (hs[static_cast<std::size_t>(i)] > 0)) continue;
         std::uintmax_t iters = 100;
-        const auto root = boost::math::tools::toms748_solve(h, ms[static_cast<std::size_t>(i - 1)],
-                                                            ms[static_cast<std::size_t>(i)],
-                                                            hs[static_cast<std::size_t>(i - 1)],
-                                                            hs[static_cast<std::size_t>(i)],
-                                                            boost::math::tools::eps_tolerance<double>(40), iters);
+        const auto root =
+            boost::math::tools::toms748_solve(h, ms[static_cast<std::size_t>(i - 1)], ms[static_cast<std::size_t>(i)],
+                                              hs[static_cast<std::size_t>(i - 1)], hs[static_cast<std::size_t>(i)],
+                                              boost::math::tools::eps_tolerance<double>(40), iters);
         const double r = 0.5 * (root.first + root.second);
         s.boundaries.push_back(r);
         if (hs[static_cast<std::size_t>(i)] > 0) start = r;
@@ -192,10 +191,12 @@ InteractionEffect probability_interaction(const Design& d, const FitResult& fit,
         };
     } else if (fb || mb) {
         out.kind = "difference in slopes";
-        const std::string& B = fb ? F : M;   // the binary one
-        const std::string& C = fb ? M : F;   // the continuous one
-        const Eigen::MatrixXd X1 = rows_at(d, with({{B, 1}}), {}, pr.rows), X0 = rows_at(d, with({{B, 0}}), {}, pr.rows),
-                              G1 = rows_at(d, with({{B, 1}}), {C}, pr.rows), G0 = rows_at(d, with({{B, 0}}), {C}, pr.rows);
+        const std::string& B = fb ? F : M;  // the binary one
+        const std::string& C = fb ? M : F;  // the continuous one
+        const Eigen::MatrixXd X1 = rows_at(d, with({{B, 1}}), {}, pr.rows),
+                              X0 = rows_at(d, with({{B, 0}}), {}, pr.rows),
+                              G1 = rows_at(d, with({{B, 1}}), {C}, pr.rows),
+                              G0 = rows_at(d, with({{B, 0}}), {C}, pr.rows);
         s = [=](const Eigen::VectorXd& b) {
             const Eigen::VectorXd p1 = (X1 * b).unaryExpr(&expit), p0 = (X0 * b).unaryExpr(&expit);
             return ((p1.unaryExpr(&phi).array() * (G1 * b).array()) - (p0.unaryExpr(&phi).array() * (G0 * b).array()))
@@ -273,10 +274,12 @@ ProbeResult probe_response(const Design& d, const FitResult& fit, const ProbeSpe
     r.notes.push_back(std::string("effects on P(") + d.outcome + " = 1), " +
                       (averaging == Averaging::Sample ? "averaged over the observations"
                                                       : "at the covariates' means and reference levels") +
-                      "; " + (d.is_binary(spec.focal) ? "discrete change of " + spec.focal + " from 0 to 1"
-                                                          : "derivative with respect to " + spec.focal));
+                      "; " +
+                      (d.is_binary(spec.focal) ? "discrete change of " + spec.focal + " from 0 to 1"
+                                               : "derivative with respect to " + spec.focal));
     r.notes.push_back("no simultaneous band on the probability scale (the effect is not linear in the coefficients)");
-    r.notes.push_back("crossover points are where the log-odds lines cross, which is where the probability curves cross");
+    r.notes.push_back(
+        "crossover points are where the log-odds lines cross, which is where the probability curves cross");
     refresh_cautions(r, fit);
     return r;
 }

@@ -4,9 +4,9 @@
 #include <cmath>
 #include <set>
 
+#include "moderato/probing/response_scale.hpp"
 #include "moderato/reading/derive.hpp"
 #include "moderato/support/error.hpp"
-#include "moderato/probing/response_scale.hpp"
 
 namespace moderato {
 
@@ -73,7 +73,8 @@ Table apply_recipes(const Table& base, const std::vector<DerivedRecipe>& recipes
     return t;
 }
 
-std::shared_ptr<const Table> with_recipes(std::shared_ptr<const Table> base, const std::vector<DerivedRecipe>& recipes) {
+std::shared_ptr<const Table> with_recipes(std::shared_ptr<const Table> base,
+                                          const std::vector<DerivedRecipe>& recipes) {
     if (recipes.empty() || !base) return base;
     return std::make_shared<const Table>(apply_recipes(*base, recipes));
 }
@@ -108,32 +109,33 @@ void probe_analysis(AnalysisRun& run, const Analysis& a) {
     ps.second_moderator = a.roles.second_moderator;
     ps.second_value = a.probe.second_value;
     switch (run.kind) {
-    case ProbeKind::Cells:
-        run.cells = cell_table(run.design, run.fit, a.roles.focal, a.roles.moderator);
-        break;
-    case ProbeKind::Groups:
-    case ProbeKind::Continuous: {
-        if (run.kind == ProbeKind::Continuous) ps.at = a.probe.pinned;
-        run.probe = probe(run.design, run.fit, ps);
-        if (a.family == Family::Logistic && a.probe.scale == "response") {
-            run.probe_link = run.probe;
-            run.probe = probe_response(run.design, run.fit, ps,
-                                       a.probe.averaging == "values" ? Averaging::AtValues : Averaging::Sample);
+        case ProbeKind::Cells:
+            run.cells = cell_table(run.design, run.fit, a.roles.focal, a.roles.moderator);
+            break;
+        case ProbeKind::Groups:
+        case ProbeKind::Continuous: {
+            if (run.kind == ProbeKind::Continuous) ps.at = a.probe.pinned;
+            run.probe = probe(run.design, run.fit, ps);
+            if (a.family == Family::Logistic && a.probe.scale == "response") {
+                run.probe_link = run.probe;
+                run.probe = probe_response(run.design, run.fit, ps,
+                                           a.probe.averaging == "values" ? Averaging::AtValues : Averaging::Sample);
+            }
+            if (run.kind == ProbeKind::Continuous && a.roles.second_moderator.empty())
+                run.surface = surface_grid(run.design, run.fit, a.roles.focal, a.roles.moderator);
+            run.cautions = run.probe->cautions;
+            break;
         }
-        if (run.kind == ProbeKind::Continuous && a.roles.second_moderator.empty())
-            run.surface = surface_grid(run.design, run.fit, a.roles.focal, a.roles.moderator);
-        run.cautions = run.probe->cautions;
-        break;
-    }
     }
     if (run.cautions.empty())
-        run.cautions.push_back("These are associations in observational data, not causal effects, unless the focal "
-                               "predictor was randomised.");
+        run.cautions.push_back(
+            "These are associations in observational data, not causal effects, unless the focal "
+            "predictor was randomised.");
 }
 
 bool same_model(const Analysis& a, const Analysis& b) {
-    return a.dataset == b.dataset && a.roles == b.roles && a.family == b.family && a.se == b.se &&
-           a.level == b.level && a.centring == b.centring;
+    return a.dataset == b.dataset && a.roles == b.roles && a.family == b.family && a.se == b.se && a.level == b.level &&
+           a.centring == b.centring;
 }
 
 bool same_probe(const Analysis& a, const Analysis& b) {
@@ -170,8 +172,8 @@ AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a) 
         Table centred;
         centred.source = t.source;
         centred.row_lines = t.row_lines;
-        std::set<std::string> used{a.roles.outcome, a.roles.focal, a.roles.moderator, a.roles.second_moderator,
-                                   a.roles.weights, a.roles.clusters};
+        std::set<std::string> used{a.roles.outcome,          a.roles.focal,   a.roles.moderator,
+                                   a.roles.second_moderator, a.roles.weights, a.roles.clusters};
         used.insert(a.roles.controls.begin(), a.roles.controls.end());
         for (const Column& c : t.columns)
             if (used.count(c.name)) centred.columns.push_back(c);

@@ -116,8 +116,7 @@ json import_to_json(const CsvOptions& o) {
     j["missing_tokens"] = o.missing_tokens;
     j["decimal_comma"] = o.decimal_comma;
     json kinds = json::object();
-    for (const auto& [col, kind] : o.column_kinds)
-        kinds[col] = kind == ColumnKind::Numeric ? "numeric" : "categorical";
+    for (const auto& [col, kind] : o.column_kinds) kinds[col] = kind == ColumnKind::Numeric ? "numeric" : "categorical";
     j["column_kinds"] = kinds;
     return j;
 }
@@ -162,8 +161,9 @@ void migrate_from_0(json& doc, std::vector<std::string>& notes) {
         }
     }
     doc["schema_version"] = 1;
-    notes.push_back("The project was saved by an older Moderato (schema 0) and was brought up to schema 1; "
-                    "saving it writes schema 1.");
+    notes.push_back(
+        "The project was saved by an older Moderato (schema 0) and was brought up to schema 1; "
+        "saving it writes schema 1.");
 }
 
 // Pinned values: a non-finite one means nothing on a slider (and JSON has no
@@ -261,7 +261,8 @@ std::string project_to_json(const Project& p) {
     doc["program"] = "Moderato " MODERATO_VERSION;
     json datasets = json::array();
     for (const auto& d : p.datasets)
-        datasets.push_back({{"id", d.id}, {"path", d.path}, {"sha256", d.sha256}, {"import", import_to_json(d.import)}});
+        datasets.push_back(
+            {{"id", d.id}, {"path", d.path}, {"sha256", d.sha256}, {"import", import_to_json(d.import)}});
     doc["datasets"] = datasets;
     json derived = json::array();
     for (const auto& r : p.derived) {
@@ -274,12 +275,9 @@ std::string project_to_json(const Project& p) {
     doc["derived_columns"] = derived;
     json analyses = json::array();
     for (const auto& a : p.analyses) {
-        json roles{{"outcome", a.roles.outcome},
-                   {"focal", a.roles.focal},
-                   {"moderator", a.roles.moderator},
-                   {"second_moderator", a.roles.second_moderator},
-                   {"controls", a.roles.controls},
-                   {"weights", a.roles.weights},
+        json roles{{"outcome", a.roles.outcome},     {"focal", a.roles.focal},
+                   {"moderator", a.roles.moderator}, {"second_moderator", a.roles.second_moderator},
+                   {"controls", a.roles.controls},   {"weights", a.roles.weights},
                    {"clusters", a.roles.clusters}};
         json probe{{"current", number_or_null(a.probe.current)},
                    {"pinned", finite_only(a.probe.pinned)},
@@ -289,10 +287,10 @@ std::string project_to_json(const Project& p) {
                    {"simultaneous_band", a.probe.simultaneous_band},
                    {"show_points", a.probe.show_points},
                    {"show_gaps", a.probe.show_gaps}};
-        json figure{{"preset", a.figure.preset},       {"width_in", a.figure.width_in},
-                    {"height_in", a.figure.height_in}, {"dpi", a.figure.dpi},
+        json figure{{"preset", a.figure.preset},           {"width_in", a.figure.width_in},
+                    {"height_in", a.figure.height_in},     {"dpi", a.figure.dpi},
                     {"font_family", a.figure.font_family}, {"font_pt", a.figure.font_pt},
-                    {"greyscale", a.figure.greyscale}, {"caption", a.figure.caption}};
+                    {"greyscale", a.figure.greyscale},     {"caption", a.figure.caption}};
         analyses.push_back({{"id", a.id},
                             {"name", a.name},
                             {"dataset", a.dataset},
@@ -336,15 +334,15 @@ Project project_from_json(const std::string& text, const std::string& name) {
     if (sv == doc.end()) r.fail("top level", "not a Moderato project (no schema_version)");
     if (!sv->is_number_integer()) r.fail("schema_version", "expected a whole number");
     const bool unsigned_version = sv->is_number_unsigned();
-    const std::string version_text = unsigned_version ? std::to_string(sv->get<unsigned long long>())
-                                                      : std::to_string(sv->get<long long>());
+    const std::string version_text =
+        unsigned_version ? std::to_string(sv->get<unsigned long long>()) : std::to_string(sv->get<long long>());
     if (unsigned_version ? sv->get<unsigned long long>() > static_cast<unsigned long long>(kProjectSchemaVersion)
                          : sv->get<long long>() > kProjectSchemaVersion)
         throw InputError(name + ": made by a newer Moderato (project schema " + version_text +
                          "; this version reads up to schema " + std::to_string(kProjectSchemaVersion) +
                          "). Open it with a newer Moderato; the file was not changed.");
-    const long long version = unsigned_version ? static_cast<long long>(sv->get<unsigned long long>())
-                                               : sv->get<long long>();
+    const long long version =
+        unsigned_version ? static_cast<long long>(sv->get<unsigned long long>()) : sv->get<long long>();
     if (version < 0) r.fail("schema_version", "must not be negative");
     Project p;
     if (version == 0) migrate_from_0(doc, p.migration_notes);
@@ -474,10 +472,8 @@ ModelSpec model_spec(const Analysis& a, const std::map<std::string, std::string>
     if (!w.empty()) spec.predictors.push_back(w);
     for (const auto& c : a.roles.controls) spec.predictors.push_back(name(c));
     if (!f.empty() && !m.empty()) {
-        if (w.empty())
-            spec.interactions.push_back({f, m});
-        else
-            spec.interactions.push_back({f, m, w});
+        if (w.empty()) spec.interactions.push_back({f, m});
+        else spec.interactions.push_back({f, m, w});
     }
     return spec;
 }

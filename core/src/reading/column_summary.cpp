@@ -94,7 +94,7 @@ Histogram histogram_of(const std::vector<double>& v, double first, double last, 
         const double width = fd > 0.0 ? std::min(fd, sturges) : sturges;
         const double wanted = std::ceil(range / width);
         bins = wanted >= static_cast<double>(max_bins) ? max_bins
-                                                      : std::max<std::size_t>(1, static_cast<std::size_t>(wanted));
+                                                       : std::max<std::size_t>(1, static_cast<std::size_t>(wanted));
     }
     // numpy.linspace(first, last, bins + 1): start + k * step, the last edge exactly `last`.
     const double step = (last - first) / static_cast<double>(bins);

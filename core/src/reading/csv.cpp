@@ -18,8 +18,8 @@
 #include <thread>
 #include <unordered_map>
 
-#include "reading/csv_internal.hpp"
 #include "moderato/support/error.hpp"
+#include "reading/csv_internal.hpp"
 
 namespace moderato {
 
@@ -182,8 +182,9 @@ public:
             if (opt_.decimal_comma && first_line.find(';') == std::string_view::npos &&
                 first_line.find('\t') == std::string_view::npos &&
                 sniff_delimiter(sample, got < kSniffBytes, false) == ',')
-                fail("the file looks comma-separated, but with decimal commas the delimiter cannot be ','; read it "
-                     "without the decimal-comma option, or save it with ';' or tab as the delimiter");
+                fail(
+                    "the file looks comma-separated, but with decimal commas the delimiter cannot be ','; read it "
+                    "without the decimal-comma option, or save it with ';' or tab as the delimiter");
         }
         std::vector<char> text_columns;
         for (;;) {
@@ -235,8 +236,7 @@ void Reader::take_header(const RecordParse& r, std::size_t header_line, const st
             if (const char* bad = find_invalid_utf8(raw.data(), raw.data() + raw.size()))
                 fail_at(header_line + count_newlines(raw.data(), bad),
                         ", column " + std::to_string(j + 1) + ": invalid UTF-8 in the column name (byte " +
-                            hex_byte(static_cast<unsigned char>(*bad)) +
-                            "); save the file as UTF-8 and read it again");
+                            hex_byte(static_cast<unsigned char>(*bad)) + "); save the file as UTF-8 and read it again");
             names_.emplace_back(trim_blanks(raw, delim_));
         }
         for (std::size_t j = 0; j < ncols; ++j) {
@@ -260,16 +260,15 @@ void Reader::take_header(const RecordParse& r, std::size_t header_line, const st
     for (const auto& [name, kind] : opt_.column_kinds) {
         (void)kind;
         if (std::find(names_.begin(), names_.end(), name) == names_.end())
-            fail("column '" + name + "' has a type override but is not a column of this file; columns are: " +
-                 join_names(names_));
+            fail("column '" + name +
+                 "' has a type override but is not a column of this file; columns are: " + join_names(names_));
     }
     modes_.assign(ncols, Mode::NumberInferred);
     for (std::size_t j = 0; j < ncols; ++j) {
         const auto it = opt_.column_kinds.find(names_[j]);
         if (it != opt_.column_kinds.end())
             modes_[j] = it->second == ColumnKind::Categorical ? Mode::Text : Mode::NumberForced;
-        else if (j < text_columns.size() && text_columns[j])
-            modes_[j] = Mode::Text;
+        else if (j < text_columns.size() && text_columns[j]) modes_[j] = Mode::Text;
     }
     cols_.clear();
     cols_.resize(ncols);
@@ -386,7 +385,9 @@ bool Reader::pass(std::vector<char>& text_columns, Table& out) {
                                 static_cast<double>(cut - data_begin);
             const double piece_bytes = static_cast<double>(cut - data_begin) / static_cast<double>(np);
             setup.expected_rows = static_cast<std::size_t>(piece_bytes * rows_per_byte * 1.1) + 16;
-            auto parse = [&](std::size_t k) { parse_piece(setup, b + bounds[k], b + bounds[k + 1], modes_, pieces[k]); };
+            auto parse = [&](std::size_t k) {
+                parse_piece(setup, b + bounds[k], b + bounds[k + 1], modes_, pieces[k]);
+            };
             auto check_errors = [&] {
                 std::size_t line = data_line;
                 for (std::size_t k = 0; k < np; ++k) {
@@ -446,14 +447,12 @@ bool Reader::pass(std::vector<char>& text_columns, Table& out) {
                 reserved = true;
                 const std::size_t cut_offset = offset - (len - cut);
                 const std::size_t rest = total_ > cut_offset ? total_ - cut_offset : 0;
-                const std::size_t est =
-                    row_lines.size() + block_rows + static_cast<std::size_t>(static_cast<double>(rest) * rows_per_byte * 1.05) + 16;
+                const std::size_t est = row_lines.size() + block_rows +
+                                        static_cast<std::size_t>(static_cast<double>(rest) * rows_per_byte * 1.05) + 16;
                 row_lines.reserve(est);
                 for (auto& fc : cols_) {
-                    if (fc.mode == Mode::Text)
-                        fc.codes.reserve(est);
-                    else
-                        fc.numbers.reserve(est);
+                    if (fc.mode == Mode::Text) fc.codes.reserve(est);
+                    else fc.numbers.reserve(est);
                 }
             }
 

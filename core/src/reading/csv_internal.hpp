@@ -174,8 +174,8 @@ struct PieceResult {
 // record end or the end of the data. `modes` gives each column's starting
 // mode; inferred-numeric columns that meet text are re-read as Text, so on
 // return out.cols[j].mode is final for this piece.
-void parse_piece(const ParseSetup& setup, const char* begin, const char* end,
-                 const std::vector<Mode>& modes, PieceResult& out);
+void parse_piece(const ParseSetup& setup, const char* begin, const char* end, const std::vector<Mode>& modes,
+                 PieceResult& out);
 
 // Describes a column for messages: "column 3 ('age')".
 std::string column_label(const std::vector<std::string>* names, std::size_t j);

@@ -134,8 +134,13 @@ namespace {
 class PieceParser {
 public:
     PieceParser(const ParseSetup& setup, const char* begin, const char* end, PieceResult& out)
-        : s_(setup), begin_(begin), end_(end), out_(out), delim_(setup.delim),
-          fast_numbers_(!setup.decimal_comma), numeric_missing_(setup.missing->any_numeric()) {}
+        : s_(setup),
+          begin_(begin),
+          end_(end),
+          out_(out),
+          delim_(setup.delim),
+          fast_numbers_(!setup.decimal_comma),
+          numeric_missing_(setup.missing->any_numeric()) {}
 
     // npos when done (possibly with out.error set); otherwise the column
     // that met text and must be re-read as Text.
@@ -187,10 +192,8 @@ inline bool PieceParser::try_fast_number(ColumnChunk& col, const char*& p) {
     while (s < end_ && is_blank(*s, delim_)) ++s;
     const char* num = s;
     if (num < end_ && *num == '+') {
-        if (num + 1 < end_ && (is_digit(num[1]) || num[1] == '.'))
-            ++num;
-        else
-            return false;
+        if (num + 1 < end_ && (is_digit(num[1]) || num[1] == '.')) ++num;
+        else return false;
     }
     double v;
     const auto r = std::from_chars(num, end_, v);
@@ -287,10 +290,8 @@ PieceParser::Signal PieceParser::handle_value(std::size_t j, std::string_view ra
     ColumnChunk& col = out_.cols[j];
     const std::string_view trimmed = trim_blanks(raw, delim_);
     if (s_.missing->contains(trimmed)) {
-        if (col.mode == Mode::Text)
-            col.text.codes.push_back(-1);
-        else
-            col.numbers.push_back(std::numeric_limits<double>::quiet_NaN());
+        if (col.mode == Mode::Text) col.text.codes.push_back(-1);
+        else col.numbers.push_back(std::numeric_limits<double>::quiet_NaN());
         return Signal::Ok;
     }
     double v;
@@ -356,8 +357,8 @@ std::size_t PieceParser::run() {
         for (;;) {
             if (j < ncols) {
                 ColumnChunk& col = out_.cols[j];
-                const bool done = fast_numbers_ && col.mode != Mode::Text && p < end_ && *p != '"' &&
-                                  try_fast_number(col, p);
+                const bool done =
+                    fast_numbers_ && col.mode != Mode::Text && p < end_ && *p != '"' && try_fast_number(col, p);
                 if (!done) {
                     const Signal sig = general_cell(j, p, line);
                     if (sig == Signal::Error) return npos;

@@ -192,10 +192,8 @@ std::size_t field_index_at(const char* buf, std::size_t begin, std::size_t at, c
         const char c = buf[p];
         if (in_quotes) {
             if (c == '"') {
-                if (p + 1 < at && buf[p + 1] == '"')
-                    ++p;
-                else
-                    in_quotes = false;
+                if (p + 1 < at && buf[p + 1] == '"') ++p;
+                else in_quotes = false;
             }
             continue;
         }

@@ -9,10 +9,8 @@ namespace moderato {
 
 std::size_t Column::missing_count() const {
     if (kind == ColumnKind::Numeric)
-        return static_cast<std::size_t>(
-            std::count_if(numbers.begin(), numbers.end(), [](double v) { return v != v; }));
-    return static_cast<std::size_t>(
-        std::count_if(codes.begin(), codes.end(), [](std::int32_t c) { return c < 0; }));
+        return static_cast<std::size_t>(std::count_if(numbers.begin(), numbers.end(), [](double v) { return v != v; }));
+    return static_cast<std::size_t>(std::count_if(codes.begin(), codes.end(), [](std::int32_t c) { return c < 0; }));
 }
 
 const Column* Table::find(const std::string& name) const {
@@ -42,8 +40,7 @@ const Column& Table::at(const std::string& name) const {
             if (i) message += ", ";
             message += columns[i].name;
         }
-        if (columns.size() > shown)
-            message += ", ... (" + std::to_string(columns.size() - shown) + " more)";
+        if (columns.size() > shown) message += ", ... (" + std::to_string(columns.size() - shown) + " more)";
     }
     throw InputError(message);
 }

@@ -9,15 +9,16 @@ namespace moderato {
 
 std::string se_description(const FitResult& fit, const std::string& clusters) {
     switch (fit.se) {
-    case SeKind::Classical: return fit.family == Family::Logistic ? "model-based" : "classical";
-    case SeKind::Cluster:
-        return "cluster-robust (" + (clusters.empty() ? std::string() : clusters + ", ") + std::to_string(fit.n_clusters) +
-               " clusters)";
-    default: {
-        std::string s = to_string(fit.se);
-        for (auto& c : s) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
-        return s;
-    }
+        case SeKind::Classical:
+            return fit.family == Family::Logistic ? "model-based" : "classical";
+        case SeKind::Cluster:
+            return "cluster-robust (" + (clusters.empty() ? std::string() : clusters + ", ") +
+                   std::to_string(fit.n_clusters) + " clusters)";
+        default: {
+            std::string s = to_string(fit.se);
+            for (auto& c : s) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
+            return s;
+        }
     }
 }
 
@@ -44,7 +45,8 @@ ExportTable estimates_table(const Analysis& a, const AnalysisRun& run) {
         t.rows.push_back({text(c.term), num(c.estimate), num(c.std_error), num(c.statistic), pval(c.p_value),
                           num(c.ci_lower), num(c.ci_upper)});
     }
-    t.notes.push_back("Standard errors: " + se_description(fit, a.roles.clusters) + "; n = " + format_count(static_cast<long long>(fit.n)) +
+    t.notes.push_back("Standard errors: " + se_description(fit, a.roles.clusters) +
+                      "; n = " + format_count(static_cast<long long>(fit.n)) +
                       (fit.n_excluded ? " (" + format_count(static_cast<long long>(fit.n_excluded)) +
                                             " rows with missing values left out)"
                                       : "") +
@@ -104,15 +106,17 @@ ExportTable comparison_table(const Analysis& a, const AnalysisRun& run) {
     if (f.family == Family::Linear) {
         t.rows.push_back({text("R² without the interaction"), num(c.r_squared_reduced), text(""), text("")});
         t.rows.push_back({text("R² with the interaction"), num(f.r_squared), text(""), text("")});
-        t.rows.push_back({text("R² change F test (classical)"), num(c.f_statistic), text(df_text(c.df1, c.df2)),
-                          pval(c.p_value)});
+        t.rows.push_back(
+            {text("R² change F test (classical)"), num(c.f_statistic), text(df_text(c.df1, c.df2)), pval(c.p_value)});
     } else {
-        t.rows.push_back({text("Likelihood-ratio χ²"), num(c.lr_statistic), text(format_sig(c.df1)), pval(c.lr_p_value)});
+        t.rows.push_back(
+            {text("Likelihood-ratio χ²"), num(c.lr_statistic), text(format_sig(c.df1)), pval(c.lr_p_value)});
     }
     const WaldTest& w = c.wald;
     const bool chi = !std::isfinite(w.df2);
-    t.rows.push_back({text(std::string("Wald ") + (chi ? "χ²" : "F") + " (" + se_description(f, a.roles.clusters) + ")"),
-                      num(chi ? w.chi_square : w.statistic), text(df_text(w.df1, w.df2)), pval(w.p_value)});
+    t.rows.push_back(
+        {text(std::string("Wald ") + (chi ? "χ²" : "F") + " (" + se_description(f, a.roles.clusters) + ")"),
+         num(chi ? w.chi_square : w.statistic), text(df_text(w.df1, w.df2)), pval(w.p_value)});
     return t;
 }
 
@@ -122,8 +126,8 @@ ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
     t.title = "Conditional effect of " + p.focal + (prob ? " on P(" + p.outcome + " = 1)" : " on " + p.outcome) +
               " by " + p.moderator;
     const std::string lv = level_text(p.level);
-    t.columns = {p.moderator, "Effect", "SE", prob ? "z" : statistic_name(fit), "p", lv + " CI lower",
-                 lv + " CI upper", "Note"};
+    t.columns = {p.moderator,      "Effect",         "SE",  prob ? "z" : statistic_name(fit), "p",
+                 lv + " CI lower", lv + " CI upper", "Note"};
     t.numeric = {!p.categorical_moderator, true, true, true, true, true, true, false};
     bool beyond = false;
     for (const auto& e : p.effects) {
@@ -137,9 +141,11 @@ ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
         t.rows.push_back({at, num(e.effect), num(e.std_error), num(e.statistic), pval(e.p_value), num(e.ci_lower),
                           num(e.ci_upper), text(e.beyond_data ? "beyond the data" : "")});
     }
-    if (beyond) t.notes.push_back("† beyond the data: an extrapolation outside the observed " + p.moderator + " values.");
+    if (beyond)
+        t.notes.push_back("† beyond the data: an extrapolation outside the observed " + p.moderator + " values.");
     if (!p.categorical_moderator)
-        t.notes.push_back("Observed " + p.moderator + ": " + format_range(p.observed_range.first, p.observed_range.second) +
+        t.notes.push_back("Observed " + p.moderator + ": " +
+                          format_range(p.observed_range.first, p.observed_range.second) +
                           ". Pointwise intervals; each row is one test.");
     if (prob)
         t.notes.push_back(p.averaging == "values" ? "Probability scale, at the means and reference levels."
@@ -152,18 +158,20 @@ ExportTable cell_table_export(const CellTable& c) {
     const bool logistic = c.family == Family::Logistic;
     t.title = "Cells of " + c.row_factor + " × " + c.column_factor + " (" + c.scale + " scale)";
     const std::string lv = level_text(c.level);
-    t.columns = {c.row_factor, c.column_factor, "n", "Observed mean", "Predicted", "SE", lv + " CI lower",
-                 lv + " CI upper"};
+    t.columns = {c.row_factor,     c.column_factor, "n", "Observed mean", "Predicted", "SE",
+                 lv + " CI lower", lv + " CI upper"};
     t.numeric = {false, false, true, true, true, true, true, true};
     if (logistic) {
         t.columns.insert(t.columns.end(), {"Probability", "P CI lower", "P CI upper"});
         t.numeric.insert(t.numeric.end(), {true, true, true});
     }
     for (const auto& cell : c.cells) {
-        std::vector<ExportCell> row{text(cell.row_level), text(cell.column_level), count(static_cast<long long>(cell.n)),
-                                    num(cell.observed_mean), num(cell.estimate), num(cell.std_error),
-                                    num(cell.ci_lower), num(cell.ci_upper)};
-        if (logistic) row.insert(row.end(), {num(cell.probability), num(cell.probability_lower), num(cell.probability_upper)});
+        std::vector<ExportCell> row{
+            text(cell.row_level),    text(cell.column_level), count(static_cast<long long>(cell.n)),
+            num(cell.observed_mean), num(cell.estimate),      num(cell.std_error),
+            num(cell.ci_lower),      num(cell.ci_upper)};
+        if (logistic)
+            row.insert(row.end(), {num(cell.probability), num(cell.probability_lower), num(cell.probability_upper)});
         t.rows.push_back(std::move(row));
     }
     for (const auto& n : c.notes) t.notes.push_back(n);
@@ -204,7 +212,8 @@ std::string moderator_value_label(const ProbeResult& p, const EffectPoint& e) {
     const double sd = p.moderator_sd;
     const double tol = 1e-9 * (std::fabs(p.moderator_mean) + sd + 1);
     if (std::fabs(e.moderator_value - p.moderator_mean) <= tol) return value + " (mean)";
-    if (sd > 0 && std::fabs(e.moderator_value - (p.moderator_mean - sd)) <= tol) return value + " (mean \xE2\x88\x92 1 SD)";
+    if (sd > 0 && std::fabs(e.moderator_value - (p.moderator_mean - sd)) <= tol)
+        return value + " (mean \xE2\x88\x92 1 SD)";
     if (sd > 0 && std::fabs(e.moderator_value - (p.moderator_mean + sd)) <= tol) return value + " (mean + 1 SD)";
     return value;
 }

@@ -52,14 +52,14 @@ std::string probe_bootstrap_to_text(const ProbeBootstrap& b) {
     const auto& r = b.result;
     std::ostringstream o;
     char line[320];
-    o << "\nBootstrap (" << r.resampling << ", " << r.completed << " of " << r.requested << " replicates, seed " << b.seed
-      << "; " << detail::fmt_short(100 * r.level) << "% intervals):\n";
-    std::snprintf(line, sizeof line, "  %-44s %11s %11s %23s %23s\n", "", "estimate", "boot. SE", "percentile",
-                  "BCa");
+    o << "\nBootstrap (" << r.resampling << ", " << r.completed << " of " << r.requested << " replicates, seed "
+      << b.seed << "; " << detail::fmt_short(100 * r.level) << "% intervals):\n";
+    std::snprintf(line, sizeof line, "  %-44s %11s %11s %23s %23s\n", "", "estimate", "boot. SE", "percentile", "BCa");
     o << line;
     for (std::size_t k = 0; k < b.labels.size() && k < r.intervals.size(); ++k) {
         const auto& iv = r.intervals[k];
-        const std::string pct = detail::fmt_short(iv.percentile_lower) + " to " + detail::fmt_short(iv.percentile_upper);
+        const std::string pct =
+            detail::fmt_short(iv.percentile_lower) + " to " + detail::fmt_short(iv.percentile_upper);
         const std::string bca = detail::fmt_short(iv.bca_lower) + " to " + detail::fmt_short(iv.bca_upper);
         std::snprintf(line, sizeof line, "  %-44s %11s %11s %23s %23s\n", b.labels[k].c_str(),
                       detail::fmt_short(iv.estimate).c_str(), detail::fmt_short(iv.std_error).c_str(), pct.c_str(),

@@ -69,7 +69,8 @@ void write_cell_table(JsonWriter& w, const CellTable& t) {
     }
     w.end_array();
     for (const auto* list : {&t.row_effects, &t.column_effects}) {
-        w.key(list == &t.row_effects ? "simple_effects_of_row_factor" : "simple_effects_of_column_factor").begin_array();
+        w.key(list == &t.row_effects ? "simple_effects_of_row_factor" : "simple_effects_of_column_factor")
+            .begin_array();
         for (const auto& e : *list) {
             w.begin_object();
             w.field("label", e.label);
@@ -116,8 +117,8 @@ std::string cell_table_to_text(const CellTable& t) {
     o << "Cell table: " << t.row_factor << " × " << t.column_factor << " (" << t.scale << ", " << t.covariance
       << " standard errors)\n\n";
     char line[256];
-    std::snprintf(line, sizeof line, "  %-18s %-18s %6s %11s %11s %23s\n", t.row_factor.c_str(), t.column_factor.c_str(),
-                  "n", "predicted", "std. error", "interval");
+    std::snprintf(line, sizeof line, "  %-18s %-18s %6s %11s %11s %23s\n", t.row_factor.c_str(),
+                  t.column_factor.c_str(), "n", "predicted", "std. error", "interval");
     o << line;
     for (const auto& c : t.cells) {
         const std::string ci = num(c.ci_lower) + " to " + num(c.ci_upper);

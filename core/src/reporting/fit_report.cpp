@@ -43,13 +43,20 @@ std::string pad_right(const std::string& s, std::size_t w) {
 
 const char* se_title(SeKind s) {
     switch (s) {
-        case SeKind::Classical: return "classical";
-        case SeKind::HC0: return "HC0 (heteroskedasticity-consistent)";
-        case SeKind::HC1: return "HC1 (heteroskedasticity-consistent)";
-        case SeKind::HC2: return "HC2 (heteroskedasticity-consistent)";
-        case SeKind::HC3: return "HC3 (heteroskedasticity-consistent)";
-        case SeKind::HC4: return "HC4 (heteroskedasticity-consistent)";
-        case SeKind::Cluster: return "cluster-robust (CR1)";
+        case SeKind::Classical:
+            return "classical";
+        case SeKind::HC0:
+            return "HC0 (heteroskedasticity-consistent)";
+        case SeKind::HC1:
+            return "HC1 (heteroskedasticity-consistent)";
+        case SeKind::HC2:
+            return "HC2 (heteroskedasticity-consistent)";
+        case SeKind::HC3:
+            return "HC3 (heteroskedasticity-consistent)";
+        case SeKind::HC4:
+            return "HC4 (heteroskedasticity-consistent)";
+        case SeKind::Cluster:
+            return "cluster-robust (CR1)";
     }
     return "";
 }
@@ -205,8 +212,8 @@ std::string fit_to_text(const FitResult& f, const std::string& outcome) {
       << (std::isinf(f.df_inference) ? std::string("z (normal)") : "t with " + df_text(f.df_inference) + " df")
       << "\n\n";
 
-    const std::vector<std::string> head{"term", "estimate", "std. error", linear ? "t" : "z", "p-value",
-                                        std::string(lvl) + " CI low", "high", "VIF"};
+    const std::vector<std::string> head{
+        "term", "estimate", "std. error", linear ? "t" : "z", "p-value", std::string(lvl) + " CI low", "high", "VIF"};
     std::vector<std::vector<std::string>> rows;
     for (const auto& c : f.coefficients) {
         if (c.aliased) {
@@ -239,8 +246,8 @@ std::string fit_to_text(const FitResult& f, const std::string& outcome) {
         o << "deviance " << num(f.deviance) << " · null deviance " << num(f.null_deviance) << " · McFadden R² "
           << num(f.mcfadden_r2) << "\n";
         o << "All terms: likelihood-ratio χ²(" << df_text(f.lr_df) << ") = " << num(f.lr_statistic, 2) << ", p "
-          << (f.lr_p_value < 0.0001 ? "" : "= ") << format_p(f.lr_p_value) << " · " << f.iterations
-          << " iterations" << (f.converged ? "" : " (not converged)") << "\n";
+          << (f.lr_p_value < 0.0001 ? "" : "= ") << format_p(f.lr_p_value) << " · " << f.iterations << " iterations"
+          << (f.converged ? "" : " (not converged)") << "\n";
     }
     o << "log-likelihood " << num(f.log_likelihood) << " · AIC " << num(f.aic) << " · BIC " << num(f.bic) << "\n";
     if (f.comparison) {
@@ -254,9 +261,9 @@ std::string fit_to_text(const FitResult& f, const std::string& outcome) {
             o << "  likelihood-ratio χ²(" << df_text(c.df1) << ") = " << num(c.lr_statistic, 2) << ", p "
               << (c.lr_p_value < 0.0001 ? "" : "= ") << format_p(c.lr_p_value) << "\n";
         o << "  Wald test with " << c.wald.covariance << " covariance: "
-          << (std::isinf(c.wald.df2) ? "χ²(" + df_text(c.wald.df1) + ") = " + num(c.wald.chi_square, 2)
-                                     : "F(" + df_text(c.wald.df1) + ", " + df_text(c.wald.df2) + ") = " +
-                                           num(c.wald.statistic, 2))
+          << (std::isinf(c.wald.df2)
+                  ? "χ²(" + df_text(c.wald.df1) + ") = " + num(c.wald.chi_square, 2)
+                  : "F(" + df_text(c.wald.df1) + ", " + df_text(c.wald.df2) + ") = " + num(c.wald.statistic, 2))
           << ", p " << (c.wald.p_value < 0.0001 ? "" : "= ") << format_p(c.wald.p_value) << "\n";
     }
     for (const auto& t : f.wald_tests)

@@ -8,8 +8,8 @@
 #include <functional>
 #include <nlohmann/json.hpp>
 
-#include "moderato/reporting/report_text.hpp"
 #include "moderato/probing/response_scale.hpp"
+#include "moderato/reporting/report_text.hpp"
 #include "moderato/reporting/table_export.hpp"
 
 namespace moderato {
@@ -17,9 +17,7 @@ namespace {
 
 const char* const kMinus = "\xE2\x88\x92";
 
-std::string ci_text(double level, double lo, double hi) {
-    return level_text(level) + " CI " + format_range(lo, hi);
-}
+std::string ci_text(double level, double lo, double hi) { return level_text(level) + " CI " + format_range(lo, hi); }
 
 // The design columns of the focal × moderator product (one per moderator
 // dummy for a categorical moderator).
@@ -54,7 +52,7 @@ double effect_at(const Analysis& a, const AnalysisRun& run, double m) {
 
 struct Clipped {
     double lo, hi;
-    bool from_start, to_end;   // touches the observed minimum / maximum
+    bool from_start, to_end;  // touches the observed minimum / maximum
 };
 
 std::vector<Clipped> clip(const std::vector<Region>& regions, double lo, double hi) {
@@ -152,9 +150,11 @@ void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector
             if (i < p.jn_beyond_data.size() && p.jn_beyond_data[i])
                 outside.push_back(format_sig(p.johnson_neyman->boundaries[i]));
         if (!outside.empty())
-            out.push_back(std::string(outside.size() == 1 ? "The Johnson–Neyman boundary at " : "The Johnson–Neyman boundaries at ") +
+            out.push_back(std::string(outside.size() == 1 ? "The Johnson–Neyman boundary at "
+                                                          : "The Johnson–Neyman boundaries at ") +
                           join_and(outside) + (outside.size() == 1 ? " lies" : " lie") + " beyond the data (" +
-                          p.moderator + " observed from " + format_range(lo, hi) + "): an extrapolation, not a finding.");
+                          p.moderator + " observed from " + format_range(lo, hi) +
+                          "): an extrapolation, not a finding.");
     }
     if (p.simultaneous)
         out.push_back("With the simultaneous band, which keeps the chance of any false region at " +
@@ -171,8 +171,9 @@ void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector
         std::vector<std::string> at;
         for (std::size_t i = 0; i < p.effects.size() && i < 5; ++i) {
             const EffectPoint& e = p.effects[i];
-            at.push_back(format_sig(e.effect) + " (" + ci_text(p.level, e.ci_lower, e.ci_upper) + ") at " + p.moderator +
-                         " = " + moderator_value_label(p, e) + (e.beyond_data ? ", beyond the data" : ""));
+            at.push_back(format_sig(e.effect) + " (" + ci_text(p.level, e.ci_lower, e.ci_upper) + ") at " +
+                         p.moderator + " = " + moderator_value_label(p, e) +
+                         (e.beyond_data ? ", beyond the data" : ""));
         }
         std::string s = effect_of(p) + " at chosen values: " + join_and(at) + ".";
         s[0] = 'T';
@@ -184,8 +185,8 @@ void group_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
     const ProbeResult& p = *run.probe;
     std::vector<std::string> parts;
     for (const auto& e : p.effects)
-        parts.push_back(format_sig(e.effect) + " (" + ci_text(p.level, e.ci_lower, e.ci_upper) + ") for " + p.moderator +
-                        " = " + moderator_value_label(p, e));
+        parts.push_back(format_sig(e.effect) + " (" + ci_text(p.level, e.ci_lower, e.ci_upper) + ") for " +
+                        p.moderator + " = " + moderator_value_label(p, e));
     if (!parts.empty()) {
         std::string s = (p.scale == "response" ? "The effect of " + p.focal + " on P(" + p.outcome + " = 1) is "
                                                : "The effect of " + p.focal + " on " + p.outcome + " is ") +
@@ -202,10 +203,11 @@ void group_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
     } else if (cols.size() > 1 && run.fit.comparison) {
         const WaldTest& w = run.fit.comparison->wald;
         const bool chi = !std::isfinite(w.df2);
-        out.push_back("The joint test that the slopes are equal in every group gives " +
-                      std::string(chi ? "χ²(" + format_sig(w.df1) + ") = " + format_sig(w.chi_square)
-                                      : "F(" + format_sig(w.df1) + ", " + format_sig(w.df2) + ") = " + format_sig(w.statistic)) +
-                      ", " + p_clause(w.p_value) + ".");
+        out.push_back(
+            "The joint test that the slopes are equal in every group gives " +
+            std::string(chi ? "χ²(" + format_sig(w.df1) + ") = " + format_sig(w.chi_square)
+                            : "F(" + format_sig(w.df1) + ", " + format_sig(w.df2) + ") = " + format_sig(w.statistic)) +
+            ", " + p_clause(w.p_value) + ".");
     }
 }
 
@@ -223,18 +225,15 @@ void crossover_sentences(const AnalysisRun& run, std::vector<std::string>& out) 
         }
         std::string s = lines + " cross at " + p.focal + " = " + format_sig(c.focal_value);
         const std::string lv = level_text(p.level);
-        if (c.ci_kind == "bounded")
-            s += " (" + lv + " Fieller interval " + format_range(c.ci_lower, c.ci_upper) + ")";
+        if (c.ci_kind == "bounded") s += " (" + lv + " Fieller interval " + format_range(c.ci_lower, c.ci_upper) + ")";
         else if (c.ci_kind == "unbounded")
             s += " (the " + lv + " Fieller interval is unbounded: " + p.focal + " below " + format_sig(c.ci_lower) +
                  " or above " + format_sig(c.ci_upper) + ")";
-        else
-            s += " (the " + lv + " Fieller interval is the whole line: the crossing point is not pinned down)";
-        s += c.within_observed_range
-                 ? ", inside the observed " + p.focal + " values (" + format_range(flo, fhi) +
-                       "): the interaction is disordinal there."
-                 : ", outside the observed " + p.focal + " values (" + format_range(flo, fhi) +
-                       "): within the data the interaction is ordinal.";
+        else s += " (the " + lv + " Fieller interval is the whole line: the crossing point is not pinned down)";
+        s += c.within_observed_range ? ", inside the observed " + p.focal + " values (" + format_range(flo, fhi) +
+                                           "): the interaction is disordinal there."
+                                     : ", outside the observed " + p.focal + " values (" + format_range(flo, fhi) +
+                                           "): within the data the interaction is ordinal.";
         out.push_back(s);
         const auto gaps = clip(c.gap_regions.significant, flo, fhi);
         std::vector<std::string> where;
@@ -282,14 +281,14 @@ void comparison_sentence(const Analysis& a, const AnalysisRun& run, std::vector<
                       format_sig(c.df1) + ", " + format_sig(c.df2) + ") = " + format_sig(c.f_statistic) + ", " +
                       p_clause(c.p_value) + ").");
     } else {
-        out.push_back("Adding " + what + " improves the fit: likelihood-ratio χ²(" + format_sig(c.df1) + ") = " +
-                      format_sig(c.lr_statistic) + ", " + p_clause(c.lr_p_value) + ".");
+        out.push_back("Adding " + what + " improves the fit: likelihood-ratio χ²(" + format_sig(c.df1) +
+                      ") = " + format_sig(c.lr_statistic) + ", " + p_clause(c.lr_p_value) + ".");
     }
     if (a.se != SeKind::Classical && a.family == Family::Linear) {
         const WaldTest& w = c.wald;
-        out.push_back("With " + se_description(run.fit, a.roles.clusters) + " standard errors the Wald test of " + what + " gives F(" +
-                      format_sig(w.df1) + ", " + format_sig(w.df2) + ") = " + format_sig(w.statistic) + ", " +
-                      p_clause(w.p_value) + ".");
+        out.push_back("With " + se_description(run.fit, a.roles.clusters) + " standard errors the Wald test of " +
+                      what + " gives F(" + format_sig(w.df1) + ", " + format_sig(w.df2) +
+                      ") = " + format_sig(w.statistic) + ", " + p_clause(w.p_value) + ".");
     }
 }
 
@@ -309,7 +308,8 @@ std::string latex_term(const std::string& term) {
     std::size_t from = 0;
     while (true) {
         const auto at = term.find(times, from);
-        out += "\\text{" + latex_escape(term.substr(from, at == std::string::npos ? std::string::npos : at - from)) + "}";
+        out +=
+            "\\text{" + latex_escape(term.substr(from, at == std::string::npos ? std::string::npos : at - from)) + "}";
         if (at == std::string::npos) break;
         out += " \\times ";
         from = at + times.size();
@@ -323,7 +323,8 @@ void equation(const AnalysisRun& run, Memo& m) {
     const bool logistic = f.family == Family::Logistic;
     const std::string y = run.design.outcome;
     std::string lhs_text = logistic ? "logit P(" + y + " = 1)" : "E[" + y + "]";
-    std::string lhs_html = logistic ? "logit&nbsp;P(<i>" + html_escape(y) + "</i> = 1)" : "E[<i>" + html_escape(y) + "</i>]";
+    std::string lhs_html =
+        logistic ? "logit&nbsp;P(<i>" + html_escape(y) + "</i> = 1)" : "E[<i>" + html_escape(y) + "</i>]";
     std::string lhs_latex = logistic ? "\\operatorname{logit} P(\\text{" + latex_escape(y) + "} = 1)"
                                      : "\\mathrm{E}[\\text{" + latex_escape(y) + "}]";
     std::string t = lhs_text + " = ", h = lhs_html + " = ", l = lhs_latex + " = ";
@@ -334,7 +335,8 @@ void equation(const AnalysisRun& run, Memo& m) {
         const bool intercept = c.term == "intercept";
         const std::string plus = k ? " + " : "";
         t += plus + "b" + subscript(k) + (intercept ? "" : "\xC2\xB7" + c.term);
-        h += plus + "<i>b</i><sub>" + std::to_string(k) + "</sub>" + (intercept ? "" : "&middot;" + html_escape(c.term));
+        h +=
+            plus + "<i>b</i><sub>" + std::to_string(k) + "</sub>" + (intercept ? "" : "&middot;" + html_escape(c.term));
         l += plus + "b_{" + std::to_string(k) + "}" + (intercept ? "" : "\\," + latex_term(c.term));
         if (!c.aliased) {
             const std::string v = format_sig(std::fabs(c.estimate));
@@ -350,9 +352,11 @@ void equation(const AnalysisRun& run, Memo& m) {
     m.fitted_text = fitted;
 }
 
-void flatten(const nlohmann::json& j, const std::string& prefix, std::vector<std::pair<std::string, std::string>>& out) {
+void flatten(const nlohmann::json& j, const std::string& prefix,
+             std::vector<std::pair<std::string, std::string>>& out) {
     if (j.is_object()) {
-        for (auto it = j.begin(); it != j.end(); ++it) flatten(it.value(), prefix.empty() ? it.key() : prefix + "." + it.key(), out);
+        for (auto it = j.begin(); it != j.end(); ++it)
+            flatten(it.value(), prefix.empty() ? it.key() : prefix + "." + it.key(), out);
     } else if (j.is_array() && !j.empty() && (j.front().is_object() || j.front().is_array())) {
         for (std::size_t i = 0; i < j.size(); ++i) flatten(j[i], prefix + "[" + std::to_string(i) + "]", out);
     } else if (j.is_string()) {
@@ -372,17 +376,17 @@ void flatten(const nlohmann::json& j, const std::string& prefix, std::vector<std
 std::vector<std::string> memo_findings(const Analysis& a, const AnalysisRun& run) {
     std::vector<std::string> out;
     switch (run.kind) {
-    case ProbeKind::Continuous:
-        if (run.probe) continuous_sentences(a, run, out);
-        if (run.probe) crossover_sentences(run, out);
-        break;
-    case ProbeKind::Groups:
-        if (run.probe) group_sentences(run, out);
-        if (run.probe) crossover_sentences(run, out);
-        break;
-    case ProbeKind::Cells:
-        if (run.cells) cell_sentences(run, out);
-        break;
+        case ProbeKind::Continuous:
+            if (run.probe) continuous_sentences(a, run, out);
+            if (run.probe) crossover_sentences(run, out);
+            break;
+        case ProbeKind::Groups:
+            if (run.probe) group_sentences(run, out);
+            if (run.probe) crossover_sentences(run, out);
+            break;
+        case ProbeKind::Cells:
+            if (run.cells) cell_sentences(run, out);
+            break;
     }
     comparison_sentence(a, run, out);
     return out;
@@ -391,24 +395,29 @@ std::vector<std::string> memo_findings(const Analysis& a, const AnalysisRun& run
 std::vector<std::string> memo_cautions(const Analysis& a, const AnalysisRun& run) {
     std::vector<std::string> out = run.cautions;
     auto said = [&](const char* word) {
-        return std::any_of(out.begin(), out.end(), [&](const std::string& s) { return s.find(word) != std::string::npos; });
+        return std::any_of(out.begin(), out.end(),
+                           [&](const std::string& s) { return s.find(word) != std::string::npos; });
     };
     if (!said("not causal"))
-        out.push_back("These are associations in observational data, not causal effects, unless the focal predictor "
-                      "was randomised.");
+        out.push_back(
+            "These are associations in observational data, not causal effects, unless the focal predictor "
+            "was randomised.");
     if (!said("extrapolation"))
-        out.push_back("Effects and boundaries outside the observed range of the moderator would be extrapolations; "
-                      "the statements above stay within it.");
+        out.push_back(
+            "Effects and boundaries outside the observed range of the moderator would be extrapolations; "
+            "the statements above stay within it.");
     if (run.kind == ProbeKind::Continuous && !said("many moderator values"))
-        out.push_back("Scanning many moderator values for significance inflates false positives; the simultaneous "
-                      "band guards against this.");
+        out.push_back(
+            "Scanning many moderator values for significance inflates false positives; the simultaneous "
+            "band guards against this.");
     if (!said("observations,"))
-        out.push_back("Interaction estimates need large samples; with n = " +
-                      format_count(static_cast<long long>(run.fit.n)) +
-                      ", treat the boundaries of regions as approximate.");
+        out.push_back(
+            "Interaction estimates need large samples; with n = " + format_count(static_cast<long long>(run.fit.n)) +
+            ", treat the boundaries of regions as approximate.");
     if (a.family == Family::Logistic && !said("log-odds"))
-        out.push_back("In a logistic model the product coefficient (log-odds scale) is not the interaction on the "
-                      "probability scale; the probability-scale statements say how probabilities change.");
+        out.push_back(
+            "In a logistic model the product coefficient (log-odds scale) is not the interaction on the "
+            "probability scale; the probability-scale statements say how probabilities change.");
     return out;
 }
 

@@ -77,8 +77,8 @@ std::string base64_encode(const std::string& bytes) {
     out.reserve((bytes.size() + 2) / 3 * 4);
     std::size_t i = 0;
     for (; i + 2 < bytes.size(); i += 3) {
-        const unsigned v = (static_cast<unsigned char>(bytes[i]) << 16) | (static_cast<unsigned char>(bytes[i + 1]) << 8) |
-                           static_cast<unsigned char>(bytes[i + 2]);
+        const unsigned v = (static_cast<unsigned char>(bytes[i]) << 16) |
+                           (static_cast<unsigned char>(bytes[i + 1]) << 8) | static_cast<unsigned char>(bytes[i + 2]);
         out += table[(v >> 18) & 63];
         out += table[(v >> 12) & 63];
         out += table[(v >> 6) & 63];
@@ -90,7 +90,8 @@ std::string base64_encode(const std::string& bytes) {
         out += table[(v >> 12) & 63];
         out += "==";
     } else if (i + 2 == bytes.size()) {
-        const unsigned v = (static_cast<unsigned char>(bytes[i]) << 16) | (static_cast<unsigned char>(bytes[i + 1]) << 8);
+        const unsigned v =
+            (static_cast<unsigned char>(bytes[i]) << 16) | (static_cast<unsigned char>(bytes[i + 1]) << 8);
         out += table[(v >> 18) & 63];
         out += table[(v >> 12) & 63];
         out += table[(v >> 6) & 63];
@@ -102,7 +103,8 @@ std::string base64_encode(const std::string& bytes) {
 std::string memo_to_html(const Memo& m, bool embed_figures) {
     std::string h;
     h += "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n";
-    h += "<meta name=\"generator\" content=\"" + html_escape(m.footer.empty() ? std::string() : m.footer.front().second) + "\">\n";
+    h += "<meta name=\"generator\" content=\"" +
+         html_escape(m.footer.empty() ? std::string() : m.footer.front().second) + "\">\n";
     h += "<title>" + html_escape(m.title) + "</title>\n<style>" + (embed_figures ? kStyle : kQtStyle) +
          "</style>\n</head>\n<body>\n";
     h += "<h1>" + html_escape(m.title) + "</h1>\n";
@@ -133,10 +135,10 @@ std::string memo_to_html(const Memo& m, bool embed_figures) {
         const std::string src = embed_figures ? "data:image/png;base64," + base64_encode(f.png) : f.file;
         const std::string size = embed_figures ? std::string(" style=\"width:") + width + "\""
                                                : " width=\"" + std::to_string(static_cast<int>(f.width_in * 96 + 0.5)) +
-                                                     "\" height=\"" + std::to_string(static_cast<int>(f.height_in * 96 + 0.5)) + "\"";
+                                                     "\" height=\"" +
+                                                     std::to_string(static_cast<int>(f.height_in * 96 + 0.5)) + "\"";
         const std::string img = "<img alt=\"" + html_escape(f.title) + "\"" + size + " src=\"" + src + "\">";
-        if (embed_figures)
-            h += "<figure>" + img + "<figcaption>" + html_escape(f.title) + "</figcaption></figure>\n";
+        if (embed_figures) h += "<figure>" + img + "<figcaption>" + html_escape(f.title) + "</figcaption></figure>\n";
         else  // Qt's reader knows no <figure>: a paragraph each
             h += "<p>" + img + "</p>\n<p class=\"figcaption\">" + html_escape(f.title) + "</p>\n";
     }
@@ -147,7 +149,8 @@ std::string memo_to_html(const Memo& m, bool embed_figures) {
     for (const auto& c : m.cautions) h += "<li>" + html_escape(c) + "</li>\n";
     h += "</ul>\n";
     h += "<h2>Reproducibility</h2>\n<table class=\"footer\">\n";
-    for (const auto& [k, v] : m.footer) h += "<tr><td>" + html_escape(k) + "</td><td>" + html_escape(v) + "</td></tr>\n";
+    for (const auto& [k, v] : m.footer)
+        h += "<tr><td>" + html_escape(k) + "</td><td>" + html_escape(v) + "</td></tr>\n";
     h += "</table>\n</body>\n</html>\n";
     return h;
 }

@@ -162,8 +162,9 @@ std::string probe_to_text(const ProbeResult& r, const FitResult& fit) {
           << " (mean " << num(r.moderator_mean) << ", SD " << num(r.moderator_sd) << ")\n";
     o << "\n";
     char line[256];
-    std::snprintf(line, sizeof line, "%-18s %11s %11s %8s %10s %11s %11s\n", r.categorical_moderator ? "level" : "moderator",
-                  "effect", "std. error", std::isinf(r.df) ? "z" : "t", "p-value", "CI low", "CI high");
+    std::snprintf(line, sizeof line, "%-18s %11s %11s %8s %10s %11s %11s\n",
+                  r.categorical_moderator ? "level" : "moderator", "effect", "std. error", std::isinf(r.df) ? "z" : "t",
+                  "p-value", "CI low", "CI high");
     o << line;
     for (const auto& e : r.effects) {
         const std::string at = e.level.empty() ? num(e.moderator_value) + (e.beyond_data ? " *" : "") : e.level;
@@ -177,8 +178,9 @@ std::string probe_to_text(const ProbeResult& r, const FitResult& fit) {
     if (beyond) o << "  * beyond the data (extrapolation)\n";
     if (r.johnson_neyman) {
         o << "\nRegion of significance (Johnson–Neyman, pointwise " << lvl << "): the effect differs from zero "
-          << (r.johnson_neyman->significant.empty() ? "nowhere" : "for " + r.moderator + " " +
-                                                                      regions_text(r.johnson_neyman->significant))
+          << (r.johnson_neyman->significant.empty()
+                  ? "nowhere"
+                  : "for " + r.moderator + " " + regions_text(r.johnson_neyman->significant))
           << "\n";
         if (r.scale == "response") o << "  (" << r.johnson_neyman->kind << ")\n";
         for (std::size_t i = 0; i < r.johnson_neyman->boundaries.size(); ++i)
@@ -206,8 +208,8 @@ std::string probe_to_text(const ProbeResult& r, const FitResult& fit) {
     }
     if (r.interaction_effect) {
         const auto& ie = *r.interaction_effect;
-        o << "\nInteraction on the probability scale (" << ie.kind << ", Ai & Norton): " << num(ie.estimate)
-          << " (SE " << num(ie.std_error) << ", p " << format_p(ie.p_value) << ", CI " << num(ie.ci_lower) << " to "
+        o << "\nInteraction on the probability scale (" << ie.kind << ", Ai & Norton): " << num(ie.estimate) << " (SE "
+          << num(ie.std_error) << ", p " << format_p(ie.p_value) << ", CI " << num(ie.ci_lower) << " to "
           << num(ie.ci_upper) << ")\n";
     }
     if (!r.notes.empty()) {

@@ -18,8 +18,9 @@ std::string with_minus(std::string s) {
 }
 
 std::string superscript(int e) {
-    static const char* const digits[] = {"\xE2\x81\xB0", "\xC2\xB9", "\xC2\xB2", "\xC2\xB3", "\xE2\x81\xB4",
-                                         "\xE2\x81\xB5", "\xE2\x81\xB6", "\xE2\x81\xB7", "\xE2\x81\xB8", "\xE2\x81\xB9"};
+    static const char* const digits[] = {"\xE2\x81\xB0", "\xC2\xB9",     "\xC2\xB2",     "\xC2\xB3",
+                                         "\xE2\x81\xB4", "\xE2\x81\xB5", "\xE2\x81\xB6", "\xE2\x81\xB7",
+                                         "\xE2\x81\xB8", "\xE2\x81\xB9"};
     std::string out = e < 0 ? "\xE2\x81\xBB" : "";  // superscript minus
     const std::string d = std::to_string(std::abs(e));
     for (char c : d) out += digits[c - '0'];
@@ -59,7 +60,10 @@ std::string format_sig(double x, int significant) {
         std::string s = buf;
         const auto e = s.find('e');
         const int exponent = std::atoi(s.c_str() + e + 1);
-        return with_minus(s.substr(0, e)) + "\xC3\x97" "10" + superscript(exponent);
+        return with_minus(s.substr(0, e)) +
+               "\xC3\x97"
+               "10" +
+               superscript(exponent);
     }
     if (x == std::trunc(x)) return format_fixed(x, 0);  // counts, degrees of freedom, 0/1 levels
     return format_fixed(x, sig_decimals(x, significant));

@@ -121,20 +121,20 @@ struct Replacement {
 
 // Typographic characters that LaTeX spells its own way.
 constexpr std::array kLatexReplacements{
-    Replacement{"\u2212", "$-$"},          // minus sign
-    Replacement{"\u00D7", "$\\times$"},    // multiplication sign
+    Replacement{"\u2212", "$-$"},        // minus sign
+    Replacement{"\u00D7", "$\\times$"},  // multiplication sign
     Replacement{"\u2264", "$\\le$"},
     Replacement{"\u2265", "$\\ge$"},
     Replacement{"\u00B1", "$\\pm$"},
     Replacement{"\u2248", "$\\approx$"},
     Replacement{"\u00B2", "$^2$"},
     Replacement{"\u00B3", "$^3$"},
-    Replacement{"\u2013", "--"},           // en dash
-    Replacement{"\u2014", "---"},          // em dash
-    Replacement{"\u00A0", "~"},            // no-break space
-    Replacement{"\u2009", "\\,"},          // thin space
-    Replacement{"\u202F", "\\,"},          // narrow no-break space
-    Replacement{"\u00B5", "$\\mu$"},       // micro sign
+    Replacement{"\u2013", "--"},      // en dash
+    Replacement{"\u2014", "---"},     // em dash
+    Replacement{"\u00A0", "~"},       // no-break space
+    Replacement{"\u2009", "\\,"},     // thin space
+    Replacement{"\u202F", "\\,"},     // narrow no-break space
+    Replacement{"\u00B5", "$\\mu$"},  // micro sign
     Replacement{"\u03B1", "$\\alpha$"},
     Replacement{"\u03B2", "$\\beta$"},
     Replacement{"\u03B3", "$\\gamma$"},
@@ -149,7 +149,7 @@ constexpr std::array kLatexReplacements{
     Replacement{"\u03BC", "$\\mu$"},
     Replacement{"\u03BD", "$\\nu$"},
     Replacement{"\u03BE", "$\\xi$"},
-    Replacement{"\u03BF", "$o$"},          // omicron has no macro
+    Replacement{"\u03BF", "$o$"},  // omicron has no macro
     Replacement{"\u03C0", "$\\pi$"},
     Replacement{"\u03C1", "$\\rho$"},
     Replacement{"\u03C2", "$\\varsigma$"},
@@ -177,10 +177,14 @@ constexpr std::array kLatexReplacements{
 
 std::string table_format_suffix(TableFormat f) {
     switch (f) {
-        case TableFormat::Csv: return "csv";
-        case TableFormat::Markdown: return "md";
-        case TableFormat::Latex: return "tex";
-        case TableFormat::Html: return "html";
+        case TableFormat::Csv:
+            return "csv";
+        case TableFormat::Markdown:
+            return "md";
+        case TableFormat::Latex:
+            return "tex";
+        case TableFormat::Html:
+            return "html";
     }
     return "txt";
 }
@@ -207,9 +211,8 @@ std::string table_to_csv(const ExportTable& t) {
     std::string out;
     append_csv_record(out, t.columns, [](const std::string& s) -> std::string_view { return s; });
     for (const auto& row : t.rows)
-        append_csv_record(out, row, [](const ExportCell& c) -> std::string_view {
-            return c.exact.empty() ? c.text : c.exact;
-        });
+        append_csv_record(out, row,
+                          [](const ExportCell& c) -> std::string_view { return c.exact.empty() ? c.text : c.exact; });
     return out;
 }
 
@@ -218,12 +221,23 @@ std::string html_escape(std::string_view s) {
     out.reserve(s.size());
     for (char c : s) {
         switch (c) {
-            case '&': out += "&amp;"; break;
-            case '<': out += "&lt;"; break;
-            case '>': out += "&gt;"; break;
-            case '"': out += "&quot;"; break;
-            case '\'': out += "&#39;"; break;
-            default: out += c;
+            case '&':
+                out += "&amp;";
+                break;
+            case '<':
+                out += "&lt;";
+                break;
+            case '>':
+                out += "&gt;";
+                break;
+            case '"':
+                out += "&quot;";
+                break;
+            case '\'':
+                out += "&#39;";
+                break;
+            default:
+                out += c;
         }
     }
     return out;
@@ -248,19 +262,45 @@ std::string latex_escape(std::string_view s) {
     for (std::size_t i = 0; i < s.size(); ++i) {
         const char c = s[i];
         switch (c) {
-            case '#': out += "\\#"; continue;
-            case '$': out += "\\$"; continue;
-            case '%': out += "\\%"; continue;
-            case '&': out += "\\&"; continue;
-            case '_': out += "\\_"; continue;
-            case '{': out += "\\{"; continue;
-            case '}': out += "\\}"; continue;
-            case '~': out += "\\textasciitilde{}"; continue;
-            case '^': out += "\\textasciicircum{}"; continue;
-            case '\\': out += "\\textbackslash{}"; continue;
-            case '<': put("$<$"); continue;
-            case '>': put("$>$"); continue;
-            case '|': out += "\\textbar{}"; continue;
+            case '#':
+                out += "\\#";
+                continue;
+            case '$':
+                out += "\\$";
+                continue;
+            case '%':
+                out += "\\%";
+                continue;
+            case '&':
+                out += "\\&";
+                continue;
+            case '_':
+                out += "\\_";
+                continue;
+            case '{':
+                out += "\\{";
+                continue;
+            case '}':
+                out += "\\}";
+                continue;
+            case '~':
+                out += "\\textasciitilde{}";
+                continue;
+            case '^':
+                out += "\\textasciicircum{}";
+                continue;
+            case '\\':
+                out += "\\textbackslash{}";
+                continue;
+            case '<':
+                put("$<$");
+                continue;
+            case '>':
+                put("$>$");
+                continue;
+            case '|':
+                out += "\\textbar{}";
+                continue;
             case '-':
                 out += (i + 1 < s.size() && s[i + 1] == '-') ? "-{}" : "-";
                 continue;
@@ -268,8 +308,11 @@ std::string latex_escape(std::string_view s) {
                 if (i + 1 < s.size() && s[i + 1] == '\n') ++i;
                 out += ' ';
                 continue;
-            case '\n': out += ' '; continue;
-            default: break;
+            case '\n':
+                out += ' ';
+                continue;
+            default:
+                break;
         }
         if (static_cast<unsigned char>(c) >= 0x80) {
             bool replaced = false;
@@ -302,8 +345,8 @@ std::string markdown_escape(std::string_view input) {
     const auto ends_marker = [&s](std::size_t i) { return i == s.size() || s[i] == ' ' || s[i] == '\t'; };
     std::size_t start = 0;
     const bool sign = !s.empty() && (s[0] == '-' || s[0] == '+');
-    if (!s.empty() && (s[0] == '#' || s[0] == '>' || s[0] == '=' ||
-                       (sign && !(s.size() > 1 && (is_digit(s[1]) || s[1] == '.'))))) {
+    if (!s.empty() &&
+        (s[0] == '#' || s[0] == '>' || s[0] == '=' || (sign && !(s.size() > 1 && (is_digit(s[1]) || s[1] == '.'))))) {
         out += '\\';
         out += s[0];
         start = 1;
@@ -350,7 +393,8 @@ std::string markdown_escape(std::string_view input) {
                 out += c;
                 continue;
             }
-            default: out += c;
+            default:
+                out += c;
         }
     }
     return out;
@@ -451,10 +495,14 @@ std::string table_to_html(const ExportTable& t) {
 
 std::string table_to_text(const ExportTable& t, TableFormat f) {
     switch (f) {
-        case TableFormat::Csv: return table_to_csv(t);
-        case TableFormat::Markdown: return table_to_markdown(t);
-        case TableFormat::Latex: return table_to_latex(t);
-        case TableFormat::Html: return table_to_html(t);
+        case TableFormat::Csv:
+            return table_to_csv(t);
+        case TableFormat::Markdown:
+            return table_to_markdown(t);
+        case TableFormat::Latex:
+            return table_to_latex(t);
+        case TableFormat::Html:
+            return table_to_html(t);
     }
     return table_to_csv(t);
 }

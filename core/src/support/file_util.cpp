@@ -83,12 +83,12 @@ void blocks_portable(std::uint32_t* h_, const unsigned char* data, std::size_t b
 __attribute__((target("sha,sse4.1,ssse3"))) void blocks_x86(std::uint32_t* h, const unsigned char* data,
                                                             std::size_t blocks) {
     const __m128i byte_swap = _mm_set_epi64x(0x0c0d0e0f08090a0bULL, 0x0405060700010203ULL);
-    __m128i t = _mm_loadu_si128(reinterpret_cast<const __m128i*>(h));                // A B C D (lanes 0..3)
-    __m128i state1 = _mm_loadu_si128(reinterpret_cast<const __m128i*>(h + 4));       // E F G H
-    t = _mm_shuffle_epi32(t, 0xB1);                                                  // C D A B -> B A D C
-    state1 = _mm_shuffle_epi32(state1, 0x1B);                                        // H G F E
-    __m128i state0 = _mm_alignr_epi8(t, state1, 8);                                  // ABEF
-    state1 = _mm_blend_epi16(state1, t, 0xF0);                                       // CDGH
+    __m128i t = _mm_loadu_si128(reinterpret_cast<const __m128i*>(h));           // A B C D (lanes 0..3)
+    __m128i state1 = _mm_loadu_si128(reinterpret_cast<const __m128i*>(h + 4));  // E F G H
+    t = _mm_shuffle_epi32(t, 0xB1);                                             // C D A B -> B A D C
+    state1 = _mm_shuffle_epi32(state1, 0x1B);                                   // H G F E
+    __m128i state0 = _mm_alignr_epi8(t, state1, 8);                             // ABEF
+    state1 = _mm_blend_epi16(state1, t, 0xF0);                                  // CDGH
     for (; blocks > 0; --blocks, data += 64) {
         const __m128i save0 = state0, save1 = state1;
         __m128i m[4];
@@ -112,10 +112,10 @@ __attribute__((target("sha,sse4.1,ssse3"))) void blocks_x86(std::uint32_t* h, co
         state0 = _mm_add_epi32(state0, save0);
         state1 = _mm_add_epi32(state1, save1);
     }
-    t = _mm_shuffle_epi32(state0, 0x1B);                                             // FEBA
-    state1 = _mm_shuffle_epi32(state1, 0xB1);                                        // DCHG
-    state0 = _mm_blend_epi16(t, state1, 0xF0);                                       // DCBA
-    state1 = _mm_alignr_epi8(state1, t, 8);                                          // HGFE
+    t = _mm_shuffle_epi32(state0, 0x1B);        // FEBA
+    state1 = _mm_shuffle_epi32(state1, 0xB1);   // DCHG
+    state0 = _mm_blend_epi16(t, state1, 0xF0);  // DCBA
+    state1 = _mm_alignr_epi8(state1, t, 8);     // HGFE
     _mm_storeu_si128(reinterpret_cast<__m128i*>(h), state0);
     _mm_storeu_si128(reinterpret_cast<__m128i*>(h + 4), state1);
 }
@@ -167,7 +167,8 @@ public:
         const std::uint64_t bits = bytes_ * 8;
         unsigned char tail[128] = {0x80};
         const std::size_t pad = (fill_ < 56 ? 56 : 120) - fill_;
-        for (int i = 0; i < 8; ++i) tail[pad + static_cast<std::size_t>(i)] = static_cast<unsigned char>(bits >> (56 - 8 * i));
+        for (int i = 0; i < 8; ++i)
+            tail[pad + static_cast<std::size_t>(i)] = static_cast<unsigned char>(bits >> (56 - 8 * i));
         update(tail, pad + 8);
         static const char* digits = "0123456789abcdef";
         std::string out;
@@ -265,7 +266,8 @@ void write_file_atomically(const std::string& path, std::string_view content) {
         fd = ::open(temp.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, mode);
         if (fd < 0 && errno != EEXIST) break;
     }
-    if (fd < 0) throw InputError(path + ": cannot be written (" + std::strerror(errno) + "); the file was left as it was");
+    if (fd < 0)
+        throw InputError(path + ": cannot be written (" + std::strerror(errno) + "); the file was left as it was");
     const auto fail = [&](const char* what) {
         const int err = errno;
         ::close(fd);

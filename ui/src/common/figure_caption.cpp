@@ -2,8 +2,8 @@
 
 #include <QLocale>
 
-#include "moderato/reporting/analysis_tables.hpp"
 #include "common/held_value_text.hpp"
+#include "moderato/reporting/analysis_tables.hpp"
 
 namespace moderato::ui {
 
@@ -13,13 +13,16 @@ QString seDescription(const Analysis& a, const AnalysisRun& run) {
 
 QString figureCaption(const Analysis& a, const AnalysisRun& run) {
     const QString family = a.family == Family::Logistic ? QStringLiteral("Logistic") : QStringLiteral("Linear");
-    QString terms = QString::fromStdString(a.roles.focal) + QStringLiteral(" × ") + QString::fromStdString(a.roles.moderator);
-    if (!a.roles.second_moderator.empty()) terms += QStringLiteral(" × ") + QString::fromStdString(a.roles.second_moderator);
+    QString terms =
+        QString::fromStdString(a.roles.focal) + QStringLiteral(" × ") + QString::fromStdString(a.roles.moderator);
+    if (!a.roles.second_moderator.empty())
+        terms += QStringLiteral(" × ") + QString::fromStdString(a.roles.second_moderator);
     QString text = QStringLiteral("%1 model of %2 on %3").arg(family, QString::fromStdString(a.roles.outcome), terms);
     if (!a.roles.controls.empty())
         text += a.roles.controls.size() == 1 ? QStringLiteral(" (+1 control)")
-                                              : QStringLiteral(" (+%1 controls)").arg(a.roles.controls.size());
-    if (!a.roles.weights.empty()) text += QStringLiteral(", weighted by %1").arg(QString::fromStdString(a.roles.weights));
+                                             : QStringLiteral(" (+%1 controls)").arg(a.roles.controls.size());
+    if (!a.roles.weights.empty())
+        text += QStringLiteral(", weighted by %1").arg(QString::fromStdString(a.roles.weights));
     // A three-way model's figures hold the second moderator at one value: say which.
     const QString held = heldValueText(a, run.design);
     if (!held.isEmpty()) text += QStringLiteral(", ") + held;

@@ -33,7 +33,8 @@ QString modelAsTsv(const QAbstractItemModel* m) {
 QString tableSelectionAsTsv(const QTableView* view) {
     const QAbstractItemModel* m = view->model();
     if (!m) return {};
-    const QModelIndexList selected = view->selectionModel() ? view->selectionModel()->selectedIndexes() : QModelIndexList();
+    const QModelIndexList selected =
+        view->selectionModel() ? view->selectionModel()->selectedIndexes() : QModelIndexList();
     if (selected.isEmpty()) return modelAsTsv(m);
     std::set<int> columns;
     std::map<int, std::map<int, QString>> rows;

@@ -19,10 +19,10 @@ inline constexpr std::size_t kNoCut = static_cast<std::size_t>(-1);
 std::size_t csvHeadLength(std::string_view text, std::size_t records, char delimiter);
 
 struct CsvHead {
-    std::string text;           // the bytes to preview
-    bool wholeFile = false;     // the file ends within `text`
-    bool truncated = false;     // stopped at maxBytes without a cut (a quoted field that never closed)
-    std::string error;          // the file could not be read (then text is empty)
+    std::string text;        // the bytes to preview
+    bool wholeFile = false;  // the file ends within `text`
+    bool truncated = false;  // stopped at maxBytes without a cut (a quoted field that never closed)
+    std::string error;       // the file could not be read (then text is empty)
 };
 
 // Reads the file's first `records` records (and never more than `maxBytes`

@@ -102,10 +102,9 @@ DatasetPage::DatasetPage(ProjectDocument* doc, QWidget* parent) : QWidget(parent
     stats->setHorizontalSpacing(16);
     stats->setVerticalSpacing(2);
     const std::pair<const char*, QString> statNames[] = {
-        {"values", tr("values")}, {"missing", tr("missing")},       {"mean", tr("mean")},
-        {"sd", tr("SD")},         {"min", tr("min")},               {"q1", tr("lower quartile")},
-        {"median", tr("median")}, {"q3", tr("upper quartile")},     {"max", tr("max")},
-        {"levels", tr("levels")}};
+        {"values", tr("values")}, {"missing", tr("missing")},   {"mean", tr("mean")},     {"sd", tr("SD")},
+        {"min", tr("min")},       {"q1", tr("lower quartile")}, {"median", tr("median")}, {"q3", tr("upper quartile")},
+        {"max", tr("max")},       {"levels", tr("levels")}};
     for (const auto& [key, label] : statNames) {
         const int row = stats->rowCount();
         auto* name = new QLabel(label, summaryBox);
@@ -169,13 +168,11 @@ DatasetPage::DatasetPage(ProjectDocument* doc, QWidget* parent) : QWidget(parent
     split->setSizes({800, 300});
     layout->addWidget(split, 1);
 
-    connect(grid_->selectionModel(), &QItemSelectionModel::currentChanged, this,
-            [this](const QModelIndex& current) {
-                if (current.isValid() && current.column() != summaryColumn_) showSummary(current.column());
-            });
+    connect(grid_->selectionModel(), &QItemSelectionModel::currentChanged, this, [this](const QModelIndex& current) {
+        if (current.isValid() && current.column() != summaryColumn_) showSummary(current.column());
+    });
     connect(hh, &QHeaderView::sectionClicked, this, &DatasetPage::showSummary);
-    connect(recipes_, &QListWidget::currentRowChanged, this,
-            [this](int row) { removeDerived_->setEnabled(row >= 0); });
+    connect(recipes_, &QListWidget::currentRowChanged, this, [this](int row) { removeDerived_->setEnabled(row >= 0); });
     connect(recipes_, &QListWidget::itemActivated, this, [this](QListWidgetItem* item) {
         const Table* t = model_->table();
         if (!t) return;
@@ -255,16 +252,16 @@ void DatasetPage::updateHeader() {
     }
     const QString path = doc_->dataPath(id);
     QString text = QStringLiteral("<b>%1</b>").arg(QFileInfo(path).fileName().toHtmlEscaped());
-    if (t)
-        text += tr(" &nbsp;·&nbsp; %1 rows × %2 columns").arg(count(t->rows()), count(t->cols()));
+    if (t) text += tr(" &nbsp;·&nbsp; %1 rows × %2 columns").arg(count(t->rows()), count(t->cols()));
     text += QStringLiteral(" &nbsp;·&nbsp; <span style='color:%1'>%2</span>")
                 .arg(cssColour(mutedText(palette())), QFileInfo(path).absolutePath().toHtmlEscaped());
     title_->setText(text);
     QString err = doc_->tableError(id);
     if (!t && err.isEmpty()) err = tr("The data of this dataset are not loaded.");
     if (!err.isEmpty() && t && !doc_->project().recipes_for(id).empty())
-        err += tr("\nThe derived columns are left out until this is fixed: undo the last edit, or remove or change "
-                  "the recipe named above.");
+        err +=
+            tr("\nThe derived columns are left out until this is fixed: undo the last edit, or remove or change "
+               "the recipe named above.");
     error_->setText(err);
     error_->setVisible(!err.isEmpty());
 }
@@ -272,8 +269,8 @@ void DatasetPage::updateHeader() {
 void DatasetPage::updateRecipes() {
     recipes_->clear();
     for (const auto& r : doc_->project().recipes_for(id_.toStdString())) {
-        auto* item = new QListWidgetItem(
-            QStringLiteral("%1 — %2").arg(q(r.name), DerivedColumnDialog::describe(r)), recipes_);
+        auto* item =
+            new QListWidgetItem(QStringLiteral("%1 — %2").arg(q(r.name), DerivedColumnDialog::describe(r)), recipes_);
         item->setData(Qt::UserRole, q(r.name));
         item->setToolTip(DerivedColumnDialog::describe(r));
     }
@@ -286,8 +283,8 @@ void DatasetPage::showSummary(int column) {
     if (!t || column < 0 || column >= static_cast<int>(t->cols())) {
         summaryColumn_ = -1;
         summaryTitle_->setText(tr("<i>Select a column to see its summary.</i>"));
-        for (auto& [name, value] : stats_) value.second->clear(), value.first->setVisible(false),
-            value.second->setVisible(false);
+        for (auto& [name, value] : stats_)
+            value.second->clear(), value.first->setVisible(false), value.second->setVisible(false);
         histogram_->clear();
         histogramNote_->clear();
         levels_->setRowCount(0);
@@ -331,8 +328,7 @@ void DatasetPage::showSummary(int column) {
         levels_->hide();
         levels_->setRowCount(0);
         histogram_->setHistogram(s.histogram.edges, s.histogram.counts);
-        if (s.histogram.counts.empty())
-            histogramNote_->setText(tr("No values to draw."));
+        if (s.histogram.counts.empty()) histogramNote_->setText(tr("No values to draw."));
         else
             histogramNote_->setText(tr("%1 of width %2 (the narrower of the Freedman–Diaconis and Sturges "
                                        "widths, at most 40 bins).")
@@ -430,8 +426,7 @@ void DatasetPage::removeDerived(const QString& name) {
     Project p = doc_->project();
     for (const auto& r : p.derived)
         if (r.dataset == id && r.name != n && (r.source == n || r.other == n)) {
-            error_->setText(tr("“%1” is used by the derived column “%2”; remove that one first.")
-                                .arg(name, q(r.name)));
+            error_->setText(tr("“%1” is used by the derived column “%2”; remove that one first.").arg(name, q(r.name)));
             error_->show();
             return;
         }

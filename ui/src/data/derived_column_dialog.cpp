@@ -192,8 +192,7 @@ void DerivedColumnDialog::fillSources() {
         setMessage(k->categoricalSource ? tr("This dataset has no categorical column.")
                                         : tr("This dataset has no numeric column."),
                    true);
-    else
-        setMessage({}, false);
+    else setMessage({}, false);
 }
 
 void DerivedColumnDialog::fillLevels() {
@@ -201,8 +200,7 @@ void DerivedColumnDialog::fillLevels() {
     const QString keep = level_->currentText();
     level_->clear();
     if (!table_) return;
-    if (const Column* c = table_->find(source_->currentText().toStdString());
-        c && c->kind == ColumnKind::Categorical)
+    if (const Column* c = table_->find(source_->currentText().toStdString()); c && c->kind == ColumnKind::Categorical)
         for (const auto& l : c->levels) level_->addItem(q(l));
     if (const int i = level_->findText(keep); i >= 0) level_->setCurrentIndex(i);
 }
@@ -235,18 +233,16 @@ void DerivedColumnDialog::updateHint() {
     QString text;
     try {
         if (c && kind == QLatin1String("centre-mean"))
-            text = tr("The mean of %1 is %2.").arg(q(c->name), TableModel::numberText(centre_value(*c, CentreAt::Mean)));
+            text =
+                tr("The mean of %1 is %2.").arg(q(c->name), TableModel::numberText(centre_value(*c, CentreAt::Mean)));
         else if (c && kind == QLatin1String("centre-median"))
             text = tr("The median of %1 is %2.")
                        .arg(q(c->name), TableModel::numberText(centre_value(*c, CentreAt::Median)));
         else if (kind == QLatin1String("standardise"))
             text = tr("(value − mean) / SD, with the sample SD (divisor n − 1).");
-        else if (kind == QLatin1String("log"))
-            text = tr("Every value must be above 0.");
-        else if (kind == QLatin1String("log1p"))
-            text = tr("Every value must be above −1.");
-        else if (kind == QLatin1String("dummy"))
-            text = tr("Missing cells stay missing.");
+        else if (kind == QLatin1String("log")) text = tr("Every value must be above 0.");
+        else if (kind == QLatin1String("log1p")) text = tr("Every value must be above −1.");
+        else if (kind == QLatin1String("dummy")) text = tr("Missing cells stay missing.");
     } catch (const InputError& e) {
         text = QString::fromStdString(e.what());
     }
@@ -260,8 +256,8 @@ void DerivedColumnDialog::growToFit() {
     // fields (before it is shown, showing sizes it).
     if (!isVisible()) return;
     layout()->activate();
-    const int need = layout()->hasHeightForWidth() ? layout()->totalHeightForWidth(width())
-                                                   : layout()->totalMinimumSize().height();
+    const int need =
+        layout()->hasHeightForWidth() ? layout()->totalHeightForWidth(width()) : layout()->totalMinimumSize().height();
     if (need > height()) resize(width(), need);
 }
 

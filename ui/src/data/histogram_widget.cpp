@@ -74,8 +74,8 @@ void HistogramWidget::paintEvent(QPaintEvent*) {
     p.drawLine(plot.bottomLeft(), plot.bottomRight());
     p.drawText(QRectF(0, plot.top() - fm.height() / 2.0, left - 4, fm.height()), Qt::AlignRight | Qt::AlignVCenter,
                peakText);
-    p.drawText(QRectF(0, plot.bottom() - fm.height() / 2.0, left - 4, fm.height()),
-               Qt::AlignRight | Qt::AlignVCenter, QStringLiteral("0"));
+    p.drawText(QRectF(0, plot.bottom() - fm.height() / 2.0, left - 4, fm.height()), Qt::AlignRight | Qt::AlignVCenter,
+               QStringLiteral("0"));
     const QRectF labels(plot.left(), plot.bottom() + 3, plot.width(), fm.height());
     if (levels) {
         for (int k = 0; k < levels_.size(); ++k) {

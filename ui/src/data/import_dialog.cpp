@@ -221,9 +221,9 @@ void ImportDialog::buildUi() {
     connect(progressTimer_, &QTimer::timeout, this, [this] {
         if (!load_) return;
         const std::size_t total = load_->total.load();
-        progress_->setValue(total ? static_cast<int>(1000.0 * static_cast<double>(load_->done.load()) /
-                                                     static_cast<double>(total))
-                                  : 0);
+        progress_->setValue(
+            total ? static_cast<int>(1000.0 * static_cast<double>(load_->done.load()) / static_cast<double>(total))
+                  : 0);
     });
 
     connect(delimiter_, &QComboBox::currentIndexChanged, this, [this] {
@@ -268,9 +268,15 @@ bool ImportDialog::isLoading() const { return loading_; }
 bool ImportDialog::baseOptions(CsvOptions& o, QString& why) const {
     o = CsvOptions{};
     switch (delimiter_->currentData().toInt()) {
-        case Comma: o.delimiter = ','; break;
-        case Semicolon: o.delimiter = ';'; break;
-        case Tab: o.delimiter = '\t'; break;
+        case Comma:
+            o.delimiter = ',';
+            break;
+        case Semicolon:
+            o.delimiter = ';';
+            break;
+        case Tab:
+            o.delimiter = '\t';
+            break;
         case Other: {
             const QString t = otherDelimiter_->text();
             if (t.isEmpty()) {
@@ -284,7 +290,8 @@ bool ImportDialog::baseOptions(CsvOptions& o, QString& why) const {
             o.delimiter = static_cast<char>(t.at(0).unicode());
             break;
         }
-        default: o.delimiter = 0;
+        default:
+            o.delimiter = 0;
     }
     o.header = header_->isChecked();
     o.decimal_comma = decimal_->currentData().toBool();
@@ -352,8 +359,9 @@ void ImportDialog::refreshPreview() {
         rebuildKinds(*plain);
         CsvOptions withKinds = currentOptions();
         withKinds.threads = 1;
-        shown = withKinds.column_kinds.empty() ? plain
-                                               : std::make_shared<const Table>(read_csv_text(head.text, name, withKinds));
+        shown = withKinds.column_kinds.empty()
+                    ? plain
+                    : std::make_shared<const Table>(read_csv_text(head.text, name, withKinds));
     } catch (const InputError& e) {
         previewModel_->setTable(nullptr);
         QString text = QString::fromStdString(e.what());
@@ -378,13 +386,12 @@ void ImportDialog::refreshPreview() {
     const auto plural = [](std::size_t n, const QString& one, const QString& many) {
         return QLocale().toString(static_cast<qulonglong>(n)) + QLatin1Char(' ') + (n == 1 ? one : many);
     };
-    if (head.wholeFile)
-        text = tr("The whole file: %1").arg(plural(rows, tr("data row"), tr("data rows")));
+    if (head.wholeFile) text = tr("The whole file: %1").arg(plural(rows, tr("data row"), tr("data rows")));
     else
-        text = tr("Preview of the first %1; Load reads the whole file").arg(plural(rows, tr("data row"), tr("data rows")));
+        text =
+            tr("Preview of the first %1; Load reads the whole file").arg(plural(rows, tr("data row"), tr("data rows")));
     text += QStringLiteral(" · ") + plural(shown->cols(), tr("column"), tr("columns"));
-    if (!shown->row_lines.empty())
-        text += tr(" · row numbers are line numbers of the file");
+    if (!shown->row_lines.empty()) text += tr(" · row numbers are line numbers of the file");
     setMessage(text + QLatin1Char('.'), false);
 }
 
@@ -418,10 +425,8 @@ void ImportDialog::rebuildKinds(const Table& base) {
         const std::string name = c.name;
         connect(combo, &QComboBox::currentIndexChanged, this, [this, combo, name] {
             const int k = combo->currentData().toInt();
-            if (k < 0)
-                kinds_.erase(name);
-            else
-                kinds_[name] = static_cast<ColumnKind>(k);
+            if (k < 0) kinds_.erase(name);
+            else kinds_[name] = static_cast<ColumnKind>(k);
             schedulePreview();
         });
         kindsList_->setCellWidget(r, 1, combo);
@@ -478,10 +483,8 @@ void ImportDialog::setLoading(bool on) {
     if (!on) otherDelimiter_->setEnabled(delimiter_->currentData().toInt() == Other);
     progress_->setValue(0);
     progress_->setVisible(on);
-    if (on)
-        progressTimer_->start();
-    else
-        progressTimer_->stop();
+    if (on) progressTimer_->start();
+    else progressTimer_->stop();
 }
 
 void ImportDialog::loadFinished() {

@@ -31,7 +31,7 @@ QIcon derivedIcon() {
 
 int clampToInt(std::size_t n) {
     return n > static_cast<std::size_t>(std::numeric_limits<int>::max()) ? std::numeric_limits<int>::max()
-                                                                          : static_cast<int>(n);
+                                                                         : static_cast<int>(n);
 }
 
 }  // namespace
@@ -125,11 +125,10 @@ QVariant TableModel::headerData(int section, Qt::Orientation orientation, int ro
             }
             return {};
         case Qt::ToolTipRole: {
-            QString kind = c.kind == ColumnKind::Numeric
-                               ? tr("numeric")
-                               : tr("categorical, %1 %2")
-                                     .arg(c.levels.size())
-                                     .arg(c.levels.size() == 1 ? tr("level") : tr("levels"));
+            QString kind = c.kind == ColumnKind::Numeric ? tr("numeric")
+                                                         : tr("categorical, %1 %2")
+                                                               .arg(c.levels.size())
+                                                               .arg(c.levels.size() == 1 ? tr("level") : tr("levels"));
             QString tip = QStringLiteral("<b>%1</b> — %2").arg(QString::fromStdString(c.name).toHtmlEscaped(), kind);
             if (derived) tip += tr("<br>derived column (made by a recipe of this dataset)");
             return tip;

@@ -1,8 +1,8 @@
 #include "estimates/coefficient_model.hpp"
 
+#include <QApplication>
 #include <QBrush>
 #include <QFont>
-#include <QApplication>
 #include <QPalette>
 #include <cmath>
 #include <limits>
@@ -41,13 +41,20 @@ int CoefficientModel::columnCount(const QModelIndex& parent) const { return pare
 
 double CoefficientModel::value(const Coefficient& c, int column) const {
     switch (column) {
-    case Estimate: return c.estimate;
-    case StdError: return c.std_error;
-    case Statistic: return c.statistic;
-    case P: return c.p_value;
-    case Lower: return c.ci_lower;
-    case Upper: return c.ci_upper;
-    case Vif: return c.vif;
+        case Estimate:
+            return c.estimate;
+        case StdError:
+            return c.std_error;
+        case Statistic:
+            return c.statistic;
+        case P:
+            return c.p_value;
+        case Lower:
+            return c.ci_lower;
+        case Upper:
+            return c.ci_upper;
+        case Vif:
+            return c.vif;
     }
     return std::numeric_limits<double>::quiet_NaN();
 }
@@ -99,28 +106,41 @@ QVariant CoefficientModel::headerData(int section, Qt::Orientation o, int role) 
         return QVariant((section == Term ? Qt::AlignLeft : Qt::AlignRight) | Qt::AlignVCenter);
     if (role == Qt::DisplayRole) {
         switch (section) {
-        case Term: return tr("Term");
-        case Estimate: return tr("Estimate");
-        case StdError: return tr("SE");
-        case Statistic: return logistic_ ? QStringLiteral("z") : QStringLiteral("t");
-        case P: return QStringLiteral("p");
-        case Lower: return tr("Lower %1").arg(pct);
-        case Upper: return tr("Upper %1").arg(pct);
-        case Vif: return QStringLiteral("VIF");
+            case Term:
+                return tr("Term");
+            case Estimate:
+                return tr("Estimate");
+            case StdError:
+                return tr("SE");
+            case Statistic:
+                return logistic_ ? QStringLiteral("z") : QStringLiteral("t");
+            case P:
+                return QStringLiteral("p");
+            case Lower:
+                return tr("Lower %1").arg(pct);
+            case Upper:
+                return tr("Upper %1").arg(pct);
+            case Vif:
+                return QStringLiteral("VIF");
         }
     }
     if (role == Qt::ToolTipRole) {
         switch (section) {
-        case Estimate:
-            return logistic_ ? tr("Coefficient on the log-odds scale") : tr("Coefficient in units of the outcome");
-        case StdError: return tr("Standard error");
-        case Statistic:
-            return logistic_ ? tr("Estimate / SE, compared with the standard normal distribution")
-                             : tr("Estimate / SE, compared with the t distribution on %1 df").arg(df_);
-        case P: return tr("Two-sided p-value for the coefficient being zero");
-        case Lower:
-        case Upper: return tr("Bounds of the %1 confidence interval").arg(pct);
-        case Vif: return tr("Variance inflation factor: how much collinearity with the other columns inflates the variance");
+            case Estimate:
+                return logistic_ ? tr("Coefficient on the log-odds scale") : tr("Coefficient in units of the outcome");
+            case StdError:
+                return tr("Standard error");
+            case Statistic:
+                return logistic_ ? tr("Estimate / SE, compared with the standard normal distribution")
+                                 : tr("Estimate / SE, compared with the t distribution on %1 df").arg(df_);
+            case P:
+                return tr("Two-sided p-value for the coefficient being zero");
+            case Lower:
+            case Upper:
+                return tr("Bounds of the %1 confidence interval").arg(pct);
+            case Vif:
+                return tr(
+                    "Variance inflation factor: how much collinearity with the other columns inflates the variance");
         }
     }
     return {};

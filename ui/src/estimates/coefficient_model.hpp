@@ -18,7 +18,7 @@ class CoefficientModel : public QAbstractTableModel {
 public:
     enum Col { Term = 0, Estimate, StdError, Statistic, P, Lower, Upper, Vif, ColumnCount };
     static constexpr int FormattedRole = Qt::UserRole + 1;
-    static constexpr int ValueRole = Qt::UserRole + 2;   // the double (NaN where there is none)
+    static constexpr int ValueRole = Qt::UserRole + 2;  // the double (NaN where there is none)
     static constexpr int AliasedRole = Qt::UserRole + 3;
 
     explicit CoefficientModel(QObject* parent = nullptr);

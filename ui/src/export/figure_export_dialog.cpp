@@ -347,9 +347,11 @@ bool FigureExportDialog::exportTo(const QString& requested) {
     lastSavedPath_ = path;
     const QSize px = FigureExporter::pixelSize(settings());
     const QString shown = QDir::toNativeSeparators(QFileInfo(path).absoluteFilePath());
-    setStatus(fmt == FigureFormat::Png ? tr("Saved “%1” (%2 × %3 px, %4 DPI).").arg(shown).arg(px.width()).arg(px.height()).arg(settings().dpi)
-                                       : tr("Saved “%1”.").arg(shown),
-              false);
+    setStatus(
+        fmt == FigureFormat::Png
+            ? tr("Saved “%1” (%2 × %3 px, %4 DPI).").arg(shown).arg(px.width()).arg(px.height()).arg(settings().dpi)
+            : tr("Saved “%1”.").arg(shown),
+        false);
     return true;
 }
 
@@ -399,8 +401,9 @@ bool FigureExportDialog::keepInProject() {
     entry.plot = key;
     p.figures.push_back(entry);
     doc_->setProject(p, tr("Keep figure"));
-    setStatus(tr("Kept “%1” in the project (see “figures” in the Project sidebar).").arg(QString::fromStdString(entry.name)),
-              false);
+    setStatus(
+        tr("Kept “%1” in the project (see “figures” in the Project sidebar).").arg(QString::fromStdString(entry.name)),
+        false);
     return true;
 }
 
@@ -419,9 +422,9 @@ void FigureExportDialog::saveClicked() {
     QString selected = fmt == FigureFormat::Png   ? tr("PNG image (*.png)")
                        : fmt == FigureFormat::Svg ? tr("SVG drawing (*.svg)")
                                                   : tr("PDF document (*.pdf)");
-    const QString path = QFileDialog::getSaveFileName(this, tr("Save Figure"),
-                                                      QDir(dir).filePath(fileStem(source->figureName()) + QLatin1Char('.') + suffix),
-                                                      filters, &selected);
+    const QString path = QFileDialog::getSaveFileName(
+        this, tr("Save Figure"), QDir(dir).filePath(fileStem(source->figureName()) + QLatin1Char('.') + suffix),
+        filters, &selected);
     if (path.isEmpty()) return;
     settingsStore.setValue(QStringLiteral("figureExport/lastDir"), QFileInfo(path).absolutePath());
     if (exportTo(path)) accept();

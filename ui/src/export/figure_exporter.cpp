@@ -28,9 +28,12 @@ namespace moderato::ui {
 
 QString figureFormatSuffix(FigureFormat format) {
     switch (format) {
-    case FigureFormat::Png: return QStringLiteral("png");
-    case FigureFormat::Svg: return QStringLiteral("svg");
-    case FigureFormat::Pdf: return QStringLiteral("pdf");
+        case FigureFormat::Png:
+            return QStringLiteral("png");
+        case FigureFormat::Svg:
+            return QStringLiteral("svg");
+        case FigureFormat::Pdf:
+            return QStringLiteral("pdf");
     }
     return {};
 }
@@ -201,7 +204,7 @@ private:
         QCPLegend* legend = plot->legend;
         legendIcon_ = legend->iconSize();
         const double limit = height / 4.0;
-        for (double pt = s.font_pt; ; pt -= 0.5) {
+        for (double pt = s.font_pt;; pt -= 0.5) {
             if (legend->minimumOuterSizeHint().height() <= limit) return;
             if (pt - 0.5 < std::max(5.0, s.font_pt - 3.0)) return;
             QFont f = legend->font();
@@ -224,7 +227,8 @@ private:
             if (QFontMetricsF(axis->labelFont()).horizontalAdvance(label) <= room) continue;
             int best = -1;
             for (int i = 0; i < label.size(); ++i)
-                if (label[i] == QLatin1Char(' ') && (best < 0 || std::abs(i - label.size() / 2) < std::abs(best - label.size() / 2)))
+                if (label[i] == QLatin1Char(' ') &&
+                    (best < 0 || std::abs(i - label.size() / 2) < std::abs(best - label.size() / 2)))
                     best = i;
             if (best < 0) continue;
             labels_.push_back({axis, label});
@@ -254,7 +258,8 @@ private:
 // Draws the plot and the caption under it into `logical` (units of 1/L inch).
 // The caption is drawn by the painter below the plot rather than added to the
 // plot's layout, so long captions wrap and the live layout is never touched.
-void paintFigure(QCPPainter& painter, QCustomPlot* plot, QSize logical, const FigureSettings& s, const QString& caption) {
+void paintFigure(QCPPainter& painter, QCustomPlot* plot, QSize logical, const FigureSettings& s,
+                 const QString& caption) {
     painter.setMode(QCPPainter::pmNoCaching);
     painter.setMode(QCPPainter::pmNonCosmetic);
     painter.fillRect(QRect(QPoint(0, 0), logical), Qt::white);
@@ -267,7 +272,8 @@ void paintFigure(QCPPainter& painter, QCustomPlot* plot, QSize logical, const Fi
     if (!caption.isEmpty()) {
         const QFontMetricsF fm(captionFont);
         const double margin = std::ceil(fm.height() * 0.6);
-        const QRectF bounds = fm.boundingRect(QRectF(0, 0, std::max(1.0, logical.width() - 2 * margin), 1e6), flags, caption);
+        const QRectF bounds =
+            fm.boundingRect(QRectF(0, 0, std::max(1.0, logical.width() - 2 * margin), 1e6), flags, caption);
         captionHeight = static_cast<int>(std::ceil(bounds.height() + 1.5 * margin));
         captionHeight = std::min(captionHeight, logical.height() / 2);
         textRect = QRectF(margin, logical.height() - captionHeight + 0.5 * margin, logical.width() - 2 * margin,
@@ -286,7 +292,8 @@ void paintFigure(QCPPainter& painter, QCustomPlot* plot, QSize logical, const Fi
 }  // namespace
 
 QString validateFigureSettings(const FigureSettings& s) {
-    if (!(s.width_in >= kMinInches && s.width_in <= kMaxInches) || !(s.height_in >= kMinInches && s.height_in <= kMaxInches))
+    if (!(s.width_in >= kMinInches && s.width_in <= kMaxInches) ||
+        !(s.height_in >= kMinInches && s.height_in <= kMaxInches))
         return QObject::tr("the size %1 × %2 in is outside %3–%4 in")
             .arg(s.width_in)
             .arg(s.height_in)
@@ -296,8 +303,11 @@ QString validateFigureSettings(const FigureSettings& s) {
         return QObject::tr("the resolution %1 DPI is outside %2–%3 DPI").arg(s.dpi).arg(kMinDpi).arg(kMaxDpi);
     const QSize px = FigureExporter::pixelSize(s);
     if (double(px.width()) * px.height() > kMaxPixels)
-        return QObject::tr("%1 × %2 pixels is too large an image; lower the DPI or the size").arg(px.width()).arg(px.height());
-    if (!(s.font_pt >= 4 && s.font_pt <= 48)) return QObject::tr("the font size %1 pt is outside 4–48 pt").arg(s.font_pt);
+        return QObject::tr("%1 × %2 pixels is too large an image; lower the DPI or the size")
+            .arg(px.width())
+            .arg(px.height());
+    if (!(s.font_pt >= 4 && s.font_pt <= 48))
+        return QObject::tr("the font size %1 pt is outside 4–48 pt").arg(s.font_pt);
     return {};
 }
 
@@ -404,16 +414,18 @@ QByteArray FigureExporter::renderPdf() const {
 
 QByteArray FigureExporter::render(FigureFormat format) const {
     switch (format) {
-    case FigureFormat::Png: {
-        const QImage image = renderImage();
-        if (image.isNull()) return {};
-        QBuffer buffer;
-        buffer.open(QIODevice::WriteOnly);
-        if (!image.save(&buffer, "PNG")) return {};
-        return buffer.data();
-    }
-    case FigureFormat::Svg: return renderSvg();
-    case FigureFormat::Pdf: return renderPdf();
+        case FigureFormat::Png: {
+            const QImage image = renderImage();
+            if (image.isNull()) return {};
+            QBuffer buffer;
+            buffer.open(QIODevice::WriteOnly);
+            if (!image.save(&buffer, "PNG")) return {};
+            return buffer.data();
+        }
+        case FigureFormat::Svg:
+            return renderSvg();
+        case FigureFormat::Pdf:
+            return renderPdf();
     }
     return {};
 }

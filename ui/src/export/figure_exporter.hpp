@@ -28,8 +28,8 @@ std::optional<FigureFormat> figureFormatForPath(const QString& path);
 
 // The size presets of LOOK.md ("Figures for memos").
 struct FigurePreset {
-    std::string key;   // FigureSettings::preset
-    QString label;     // shown in the dialog
+    std::string key;  // FigureSettings::preset
+    QString label;    // shown in the dialog
     double widthIn;
     double heightIn;
 };

@@ -13,14 +13,14 @@ void prepareDeterministicPdf(QPdfWriter& writer, const QString& title) {
     writer.setTitle(title);
     const QString escaped = title.toHtmlEscaped();
     const QString xmp = QStringLiteral(
-        "<?xpacket begin='' id='W5M0MpCehiHzreSzNTczkc9d'?>\n"
-        "<x:xmpmeta xmlns:x='adobe:ns:meta/'>\n"
-        "<rdf:RDF xmlns:rdf='http://www.w3.org/1999/02/22-rdf-syntax-ns#'>\n"
-        "<rdf:Description rdf:about='' xmlns:dc='http://purl.org/dc/elements/1.1/' "
-        "xmlns:xmp='http://ns.adobe.com/xap/1.0/'>\n"
-        "<dc:title><rdf:Alt><rdf:li xml:lang='x-default'>%1</rdf:li></rdf:Alt></dc:title>\n"
-        "<xmp:CreatorTool>Moderato</xmp:CreatorTool>\n"
-        "</rdf:Description>\n</rdf:RDF>\n</x:xmpmeta>\n<?xpacket end='w'?>\n")
+                            "<?xpacket begin='' id='W5M0MpCehiHzreSzNTczkc9d'?>\n"
+                            "<x:xmpmeta xmlns:x='adobe:ns:meta/'>\n"
+                            "<rdf:RDF xmlns:rdf='http://www.w3.org/1999/02/22-rdf-syntax-ns#'>\n"
+                            "<rdf:Description rdf:about='' xmlns:dc='http://purl.org/dc/elements/1.1/' "
+                            "xmlns:xmp='http://ns.adobe.com/xap/1.0/'>\n"
+                            "<dc:title><rdf:Alt><rdf:li xml:lang='x-default'>%1</rdf:li></rdf:Alt></dc:title>\n"
+                            "<xmp:CreatorTool>Moderato</xmp:CreatorTool>\n"
+                            "</rdf:Description>\n</rdf:RDF>\n</x:xmpmeta>\n<?xpacket end='w'?>\n")
                             .arg(escaped);
     writer.setDocumentXmpMetadata(xmp.toUtf8());
 }
@@ -30,9 +30,8 @@ void stabilisePdf(QByteArray& pdf) {
     bool ok = false;
     const qint64 epoch = qEnvironmentVariable("SOURCE_DATE_EPOCH").toLongLong(&ok);
     if (ok && epoch >= 0) seconds = epoch;
-    const QByteArray stamp = QDateTime::fromSecsSinceEpoch(seconds, QTimeZone::utc())
-                                 .toString(QStringLiteral("yyyyMMddHHmmss"))
-                                 .toLatin1();
+    const QByteArray stamp =
+        QDateTime::fromSecsSinceEpoch(seconds, QTimeZone::utc()).toString(QStringLiteral("yyyyMMddHHmmss")).toLatin1();
     // "/CreationDate (D:YYYYMMDDHHmmSS" followed by a zone of any length.
     static const QByteArray key("/CreationDate (D:");
     for (qsizetype at = pdf.indexOf(key); at >= 0; at = pdf.indexOf(key, at + 1)) {

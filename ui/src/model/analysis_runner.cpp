@@ -32,7 +32,8 @@ Outcome compute(const Analysis& a, std::shared_ptr<const Table> table, std::shar
     } catch (const InputError& e) {
         out.error = QString::fromStdString(e.what());
     } catch (const std::exception& e) {
-        out.error = QCoreApplication::translate("AnalysisRunner", "Internal error: %1").arg(QString::fromUtf8(e.what()));
+        out.error =
+            QCoreApplication::translate("AnalysisRunner", "Internal error: %1").arg(QString::fromUtf8(e.what()));
     }
     return out;
 }

@@ -36,19 +36,19 @@ public:
     void waitForIdle();
 
 Q_SIGNALS:
-    void resultChanged(const QString& id);   // result() or error() changed
+    void resultChanged(const QString& id);  // result() or error() changed
     void busyChanged(const QString& id, bool busy);
 
 private:
     struct Entry {
-        Analysis settings;                       // what the current result was computed from
-        std::shared_ptr<const Table> table;      // ... and on which table
+        Analysis settings;                   // what the current result was computed from
+        std::shared_ptr<const Table> table;  // ... and on which table
         std::shared_ptr<const AnalysisRun> run;
         QString error;
-        bool valid = false;                      // settings/table describe a finished computation
-        int generation = 0;                      // newest request
-        int running = 0;                         // workers in flight
-        Analysis pending;                        // what the newest worker computes
+        bool valid = false;  // settings/table describe a finished computation
+        int generation = 0;  // newest request
+        int running = 0;     // workers in flight
+        Analysis pending;    // what the newest worker computes
         std::shared_ptr<const Table> pendingTable;
     };
     void finish(const QString& id, int generation, const Analysis& a, std::shared_ptr<const Table> table,

@@ -6,7 +6,10 @@ namespace moderato::ui {
 
 ProjectStateCommand::ProjectStateCommand(ProjectDocument* doc, Project before, Project after, const QString& text,
                                          int mergeId, QString mergeKey)
-    : doc_(doc), before_(std::move(before)), after_(std::move(after)), mergeId_(mergeId),
+    : doc_(doc),
+      before_(std::move(before)),
+      after_(std::move(after)),
+      mergeId_(mergeId),
       mergeKey_(std::move(mergeKey)) {
     setText(text);
 }

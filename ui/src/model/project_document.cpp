@@ -223,10 +223,8 @@ Analysis guess_analysis(const Table& t, const std::string& datasetId, const std:
     }
     if (!numeric.empty()) a.roles.outcome = numeric[0];
     if (numeric.size() >= 2) a.roles.focal = numeric[1];
-    if (!grouping.empty())
-        a.roles.moderator = grouping[0];
-    else if (numeric.size() >= 3)
-        a.roles.moderator = numeric[2];
+    if (!grouping.empty()) a.roles.moderator = grouping[0];
+    else if (numeric.size() >= 3) a.roles.moderator = numeric[2];
     a.name = a.roles.focal.empty() ? std::string("analysis") : a.roles.focal + " × " + a.roles.moderator;
     return a;
 }

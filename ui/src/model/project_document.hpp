@@ -24,8 +24,8 @@ public:
 
     const Project& project() const { return project_; }
     const Analysis* analysis(const QString& id) const;
-    QString filePath() const { return path_; }      // empty: not saved yet
-    QString displayName() const;                     // file name or "Untitled project"
+    QString filePath() const { return path_; }  // empty: not saved yet
+    QString displayName() const;                // file name or "Untitled project"
     QUndoStack* undoStack() { return &undo_; }
     bool isModified() const { return !undo_.isClean(); }
 
@@ -68,10 +68,10 @@ public:
     void applyState(const Project& p);
 
 Q_SIGNALS:
-    void projectReset();                     // a different project is open
-    void structureChanged();                 // datasets, analyses or figures added/removed/renamed
-    void analysisChanged(const QString& id); // any setting of one analysis
-    void datasetChanged(const QString& id);  // derived columns of a dataset
+    void projectReset();                      // a different project is open
+    void structureChanged();                  // datasets, analyses or figures added/removed/renamed
+    void analysisChanged(const QString& id);  // any setting of one analysis
+    void datasetChanged(const QString& id);   // derived columns of a dataset
     void filePathChanged(const QString& path);
 
 private:
@@ -87,7 +87,7 @@ private:
     struct Saved {
         std::string path, sha256;
     };
-    std::map<std::string, Saved> saved_;                // dataset id -> path and hash as last opened/saved
+    std::map<std::string, Saved> saved_;  // dataset id -> path and hash as last opened/saved
 };
 
 // Guessed roles for a new analysis on a table: the first numeric column as

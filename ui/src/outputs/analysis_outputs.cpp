@@ -12,15 +12,15 @@
 #include <QTextDocument>
 #include <QTextFrame>
 #include <QTextTable>
-#include <memory>
 #include <QUrl>
+#include <memory>
 
+#include "common/figure_caption.hpp"
 #include "export/figure_exporter.hpp"
-#include "moderato/support/error.hpp"
 #include "export/pdf_stamp.hpp"
 #include "model/project_document.hpp"
+#include "moderato/support/error.hpp"
 #include "plots/figure_source.hpp"
-#include "common/figure_caption.hpp"
 
 namespace moderato::ui {
 
@@ -30,7 +30,8 @@ QString figureStem(FigureSource* figure) {
 
 std::vector<std::pair<QString, QByteArray>> MemoOutput::pngs() const {
     std::vector<std::pair<QString, QByteArray>> out;
-    for (const auto& f : memo.figures) out.emplace_back(QString::fromStdString(f.file), QByteArray::fromStdString(f.png));
+    for (const auto& f : memo.figures)
+        out.emplace_back(QString::fromStdString(f.file), QByteArray::fromStdString(f.png));
     return out;
 }
 
@@ -56,8 +57,8 @@ MemoOutput buildMemo(const ProjectDocument& doc, const QString& analysisId, cons
     MemoOutput out;
     MemoContext ctx;
     ctx.caption = figureCaption(*a, run).toStdString();
-    ctx.project_file = doc.filePath().isEmpty() ? std::string("(not saved)")
-                                                : QFileInfo(doc.filePath()).fileName().toStdString();
+    ctx.project_file =
+        doc.filePath().isEmpty() ? std::string("(not saved)") : QFileInfo(doc.filePath()).fileName().toStdString();
     if (const DataSource* d = doc.project().dataset(a->dataset)) {
         ctx.data_file = d->path;
         ctx.recorded_sha256 = d->sha256;
@@ -92,9 +93,12 @@ void layoutMemoTables(QTextDocument& document) {
             auto rule = [&](int row, bool top, bool bottom) {
                 QTextTableCell cell = table->cellAt(row, c);
                 QTextTableCellFormat f = cell.format().toTableCellFormat();
-                if (top) f.setTopBorder(1.2), f.setTopBorderBrush(ink), f.setTopBorderStyle(QTextFrameFormat::BorderStyle_Solid);
-                if (bottom) f.setBottomBorder(bottom && row == 0 ? 0.8 : 1.2), f.setBottomBorderBrush(ink),
-                    f.setBottomBorderStyle(QTextFrameFormat::BorderStyle_Solid);
+                if (top)
+                    f.setTopBorder(1.2), f.setTopBorderBrush(ink),
+                        f.setTopBorderStyle(QTextFrameFormat::BorderStyle_Solid);
+                if (bottom)
+                    f.setBottomBorder(bottom && row == 0 ? 0.8 : 1.2), f.setBottomBorderBrush(ink),
+                        f.setBottomBorderStyle(QTextFrameFormat::BorderStyle_Solid);
                 cell.setFormat(f);
             };
             if (table->rows() > 0) rule(0, true, true);

@@ -25,8 +25,8 @@ QString figureStem(FigureSource* figure);
 
 struct MemoOutput {
     Memo memo;
-    std::string html;        // self-contained
-    std::string markdown;    // names the figures' PNG files
+    std::string html;      // self-contained
+    std::string markdown;  // names the figures' PNG files
     // The figures as (file name beside the Markdown memo, PNG bytes).
     std::vector<std::pair<QString, QByteArray>> pngs() const;
 };

@@ -1,5 +1,6 @@
 #include "plots/cells_view.hpp"
 
+#include <qcustomplot.h>
 #include <QApplication>
 #include <QClipboard>
 #include <QHBoxLayout>
@@ -11,12 +12,11 @@
 #include <QTableView>
 #include <QVBoxLayout>
 #include <cmath>
-#include <qcustomplot.h>
 
-#include "common/number_text.hpp"
-#include "plots/plot_style.hpp"
 #include "common/figure_caption.hpp"
+#include "common/number_text.hpp"
 #include "common/table_clipboard.hpp"
+#include "plots/plot_style.hpp"
 #include "style/estuary.hpp"
 
 namespace moderato::ui {
@@ -44,8 +44,12 @@ QString held(const CellTable& c, const Design& d) {
 }  // namespace
 
 CellsView::CellsView(QWidget* parent)
-    : QWidget(parent), plot_(new QCustomPlot(this)), table_(new QTableView(this)), model_(new QStandardItemModel(this)),
-      note_(new QLabel(this)), copy_(new QPushButton(tr("Copy table"), this)) {
+    : QWidget(parent),
+      plot_(new QCustomPlot(this)),
+      table_(new QTableView(this)),
+      model_(new QStandardItemModel(this)),
+      note_(new QLabel(this)),
+      copy_(new QPushButton(tr("Copy table"), this)) {
     setObjectName(QStringLiteral("cells-view"));
     auto* layout = new QVBoxLayout(this);
     layout->setContentsMargins(0, 0, 0, 0);
@@ -159,16 +163,14 @@ void CellsView::redraw() {
     const QString rowF = QString::fromStdString(c.row_factor), colF = QString::fromStdString(c.column_factor);
     const bool showObserved = !logistic_ || probability_;
     QString what;
-    if (probability_)
-        what = tr("Predicted probability that %1 = 1").arg(outcome_);
-    else if (logistic_)
-        what = tr("Predicted log-odds that %1 = 1").arg(outcome_);
-    else
-        what = tr("Predicted %1").arg(outcome_);
+    if (probability_) what = tr("Predicted probability that %1 = 1").arg(outcome_);
+    else if (logistic_) what = tr("Predicted log-odds that %1 = 1").arg(outcome_);
+    else what = tr("Predicted %1").arg(outcome_);
     title_->setText(tr("%1 in each cell, with %2 intervals").arg(what, levelText(c.level)));
 
     auto* ticker = new QCPAxisTickerText;
-    for (int i = 0; i < rows; ++i) ticker->addTick(i, QString::fromStdString(c.row_levels[static_cast<std::size_t>(i)]));
+    for (int i = 0; i < rows; ++i)
+        ticker->addTick(i, QString::fromStdString(c.row_levels[static_cast<std::size_t>(i)]));
     plot_->xAxis->setTicker(QSharedPointer<QCPAxisTicker>(ticker));
     plot_->xAxis->setSubTicks(false);
     plot_->xAxis->setTickLength(0, 4);
@@ -201,10 +203,11 @@ void CellsView::redraw() {
         }
         const QColor colour = greyscale_ ? estuary::toGrey(estuary::series(k)) : estuary::series(k);
         auto* g = new QCPGraph(plot_->xAxis, plot_->yAxis);
-        g->setName(QStringLiteral("%1 = %2").arg(colF, QString::fromStdString(c.column_levels[static_cast<std::size_t>(k)])));
+        g->setName(
+            QStringLiteral("%1 = %2").arg(colF, QString::fromStdString(c.column_levels[static_cast<std::size_t>(k)])));
         g->setPen(estuary::seriesPen(k, 2.0, greyscale_));
-        g->setScatterStyle(QCPScatterStyle(static_cast<QCPScatterStyle::ScatterShape>(estuary::markerShape(k)),
-                                           colour, colour, 8));
+        g->setScatterStyle(
+            QCPScatterStyle(static_cast<QCPScatterStyle::ScatterShape>(estuary::markerShape(k)), colour, colour, 8));
         g->setData(x, y, true);
         auto* bars = new QCPErrorBars(plot_->xAxis, plot_->yAxis);
         bars->removeFromLegend();
@@ -254,10 +257,15 @@ void CellsView::fillTable() {
     const QString stat = std::isinf(c.df) || logistic_ ? QStringLiteral("z") : QStringLiteral("t");
     const QString lvl = levelText(c.level);
     const QString joint = logistic_ ? QStringLiteral("χ²") : QStringLiteral("F");
-    QStringList header{QString(), tr("n"), logistic_ ? tr("observed share") : tr("observed mean"),
-                       logistic_ ? tr("estimate (log-odds)") : tr("estimate"), tr("SE"),
-                       QStringLiteral("%1 / %2").arg(stat, joint), tr("p"),
-                       tr("CI lower"), tr("CI upper")};
+    QStringList header{QString(),
+                       tr("n"),
+                       logistic_ ? tr("observed share") : tr("observed mean"),
+                       logistic_ ? tr("estimate (log-odds)") : tr("estimate"),
+                       tr("SE"),
+                       QStringLiteral("%1 / %2").arg(stat, joint),
+                       tr("p"),
+                       tr("CI lower"),
+                       tr("CI upper")};
     if (logistic_) header << tr("probability / odds ratio") << tr("lower") << tr("upper");
     model_->setHorizontalHeaderLabels(header);
     const int ncol = static_cast<int>(header.size());
@@ -334,11 +342,10 @@ void CellsView::fillTable() {
                                 .arg(rowF, colF)
                           : tr("Interaction contrasts of %1 by %2 (difference in differences)").arg(rowF, colF));
         for (const InteractionContrast& ic : c.interactions) {
-            const QString label = QStringLiteral("(%1 − %2) at %3 minus at %4")
-                                      .arg(QString::fromStdString(ic.row_level),
-                                           QString::fromStdString(c.row_levels.front()),
-                                           QString::fromStdString(ic.column_level),
-                                           QString::fromStdString(c.column_levels.front()));
+            const QString label =
+                QStringLiteral("(%1 − %2) at %3 minus at %4")
+                    .arg(QString::fromStdString(ic.row_level), QString::fromStdString(c.row_levels.front()),
+                         QString::fromStdString(ic.column_level), QString::fromStdString(c.column_levels.front()));
             inferenceRow(label, ic.estimate, ic.std_error, ic.statistic, ic.p_value, ic.ci_lower, ic.ci_upper,
                          ic.odds_ratio, ic.odds_ratio_lower, ic.odds_ratio_upper, ic.estimable);
         }
@@ -349,9 +356,8 @@ void CellsView::fillTable() {
         if (c.interaction_test) {
             const WaldTest& w = *c.interaction_test;
             const bool chi = std::isinf(w.df2);
-            const QString label =
-                chi ? tr("Wald χ²(%1), all product terms").arg(countText(w.df1))
-                    : tr("Wald F(%1, %2), all product terms").arg(countText(w.df1), countText(w.df2));
+            const QString label = chi ? tr("Wald χ²(%1), all product terms").arg(countText(w.df1))
+                                      : tr("Wald F(%1, %2), all product terms").arg(countText(w.df1), countText(w.df2));
             row << new QStandardItem(label) << numberItem(QString()) << numberItem(QString()) << numberItem(QString())
                 << numberItem(QString()) << numberItem(numberText(chi ? w.chi_square : w.statistic, 4))
                 << numberItem(pValueText(w.p_value));

@@ -1,9 +1,9 @@
 #include "plots/diagnostic_plots.hpp"
 
+#include <qcustomplot.h>
 #include <QVBoxLayout>
 #include <algorithm>
 #include <cmath>
-#include <qcustomplot.h>
 
 #include "plots/plot_style.hpp"
 #include "plots/scatter_thinning.hpp"
@@ -17,8 +17,7 @@ constexpr std::size_t kThinAbove = 20000;
 
 QColor shade(const QColor& c, bool grey) { return grey ? estuary::toGrey(c) : c; }
 
-QCPItemText* label(QCustomPlot* plot, const QString& text, double x, double y, Qt::Alignment align,
-                   const QFont& font) {
+QCPItemText* label(QCustomPlot* plot, const QString& text, double x, double y, Qt::Alignment align, const QFont& font) {
     auto* t = new QCPItemText(plot);
     t->position->setType(QCPItemPosition::ptPlotCoords);
     t->position->setCoords(x, y);
@@ -41,7 +40,8 @@ QCPRange padded(double lo, double hi, double share = 0.07) {
 
 }  // namespace
 
-DiagnosticPlot::DiagnosticPlot(Kind kind, QWidget* parent) : QWidget(parent), kind_(kind), plot_(new QCustomPlot(this)) {
+DiagnosticPlot::DiagnosticPlot(Kind kind, QWidget* parent)
+    : QWidget(parent), kind_(kind), plot_(new QCustomPlot(this)) {
     setObjectName(figureKey() + QStringLiteral("-plot"));
     auto* layout = new QVBoxLayout(this);
     layout->setContentsMargins(0, 0, 0, 0);
@@ -77,18 +77,24 @@ DiagnosticPlot::DiagnosticPlot(Kind kind, QWidget* parent) : QWidget(parent), ki
 
 QString DiagnosticPlot::figureName() const {
     switch (kind_) {
-    case Residuals: return tr("Residuals against fitted values");
-    case Quantiles: return tr("Normal quantile plot");
-    case Influence: return tr("Leverage and influence");
+        case Residuals:
+            return tr("Residuals against fitted values");
+        case Quantiles:
+            return tr("Normal quantile plot");
+        case Influence:
+            return tr("Leverage and influence");
     }
     return {};
 }
 
 QString DiagnosticPlot::figureKey() const {
     switch (kind_) {
-    case Residuals: return QStringLiteral("residuals");
-    case Quantiles: return QStringLiteral("qq");
-    case Influence: return QStringLiteral("influence");
+        case Residuals:
+            return QStringLiteral("residuals");
+        case Quantiles:
+            return QStringLiteral("qq");
+        case Influence:
+            return QStringLiteral("influence");
     }
     return {};
 }
@@ -121,23 +127,23 @@ void DiagnosticPlot::coordinates(std::vector<double>& x, std::vector<double>& y,
     y.clear();
     obs.clear();
     switch (kind_) {
-    case Residuals:
-    case Influence: {
-        const Eigen::VectorXd& ex = kind_ == Residuals ? d.fitted : d.leverage;
-        const Eigen::VectorXd& ey = kind_ == Residuals ? d.plot_residual() : d.standardised;
-        x.assign(ex.data(), ex.data() + ex.size());
-        y.assign(ey.data(), ey.data() + ey.size());
-        obs.resize(x.size());
-        for (std::size_t i = 0; i < obs.size(); ++i) obs[i] = i;
-        break;
-    }
-    case Quantiles: {
-        const QuantilePlot q = normal_quantile_plot(d.quantile_residual());
-        x = q.theoretical;
-        y = q.observed;
-        obs = q.order;
-        break;
-    }
+        case Residuals:
+        case Influence: {
+            const Eigen::VectorXd& ex = kind_ == Residuals ? d.fitted : d.leverage;
+            const Eigen::VectorXd& ey = kind_ == Residuals ? d.plot_residual() : d.standardised;
+            x.assign(ex.data(), ex.data() + ex.size());
+            y.assign(ey.data(), ey.data() + ey.size());
+            obs.resize(x.size());
+            for (std::size_t i = 0; i < obs.size(); ++i) obs[i] = i;
+            break;
+        }
+        case Quantiles: {
+            const QuantilePlot q = normal_quantile_plot(d.quantile_residual());
+            x = q.theoretical;
+            y = q.observed;
+            obs = q.order;
+            break;
+        }
     }
 }
 
@@ -206,90 +212,91 @@ void DiagnosticPlot::redraw() {
     small.setPointSizeF(small.pointSizeF() * 0.85);
     QCPRange xr = padded(xlo, xhi), yr = padded(ylo, yhi);
     switch (kind_) {
-    case Residuals: {
-        auto* zero = new QCPItemStraightLine(plot_);
-        QPen p = refPen;
-        p.setStyle(Qt::DashLine);
-        zero->setPen(p);
-        zero->point1->setCoords(0, 0);
-        zero->point2->setCoords(1, 0);
-        setAxisTitle(plot_->xAxis, QString::fromStdString(d.fitted_name));
-        setAxisTitle(plot_->yAxis, QString::fromStdString(d.plot_residual_name));
-        if (d.family == Family::Logistic) xr = QCPRange(std::max(-0.02, xr.lower), std::min(1.02, xr.upper));
-        break;
-    }
-    case Quantiles: {
-        auto* ref = new QCPItemStraightLine(plot_);
-        ref->setPen(refPen);
-        ref->point1->setCoords(0, 0);
-        ref->point2->setCoords(1, 1);
-        setAxisTitle(plot_->xAxis, tr("normal quantile (Blom positions)"));
-        setAxisTitle(plot_->yAxis, QString::fromStdString(d.quantile_residual_name));
-        yr = padded(std::min(ylo, xlo), std::max(yhi, xhi));
-        xr = padded(xlo, xhi);
-        break;
-    }
-    case Influence: {
-        xr = QCPRange(0, std::max(xhi, d.leverage_threshold) * 1.08);
-        const double ymax = std::max({std::abs(ylo), std::abs(yhi), 3.0}) * 1.1;
-        yr = QCPRange(-ymax, ymax);
-        setAxisTitle(plot_->xAxis, tr("leverage"));
-        setAxisTitle(plot_->yAxis, d.family == Family::Logistic ? tr("standardised Pearson residual")
-                                                                : tr("standardised residual"));
-        // Cook's distance contours at 0.5 and 1 (common practice).
-        const double hlo = std::max(xr.upper * 1e-3, 1e-6), hhi = std::min(xr.upper, 0.999);
-        const Qt::PenStyle styles[] = {Qt::DashLine, Qt::DashDotLine};
-        const double levels[] = {0.5, 1.0};
-        // Does the lower contour (D = 0.5) enter the plotted area at all?
-        const bool visible = cooks_contour(levels[0], d.p, hhi) <= ymax;
-        for (int c = 0; c < 2 && visible; ++c) {
-            QPen pen(shade(estuary::series(5), greyscale_));
-            pen.setWidthF(1.1);
-            pen.setStyle(styles[c]);
-            for (int sign : {1, -1}) {
-                auto* curve = new QCPCurve(plot_->xAxis, plot_->yAxis);
-                curve->setPen(pen);
-                curve->setName(tr("Cook's distance %1").arg(levels[c]));
-                if (sign < 0) curve->removeFromLegend();
-                QVector<double> t, cx, cy;
-                for (int s = 0; s <= 200; ++s) {
-                    const double h = hlo * std::pow(hhi / hlo, s / 200.0);
-                    const double r = cooks_contour(levels[c], d.p, h);
-                    if (!std::isfinite(r) || r > 4 * ymax) continue;
-                    t << s;
-                    cx << h;
-                    cy << sign * r;
-                }
-                curve->setData(t, cx, cy, true);
-                curve->setSelectable(QCP::stNone);
-                if (sign > 0 && !cx.isEmpty()) {
-                    // label where the contour meets the top of the plot, or at its right end
-                    int at = static_cast<int>(cx.size()) - 1;
-                    for (int s = 0; s < cx.size(); ++s)
-                        if (cy[s] <= ymax * 0.92) {
-                            at = s;
-                            break;
-                        }
-                    label(plot_, tr("D = %1").arg(levels[c]), cx[at], cy[at], Qt::AlignLeft | Qt::AlignBottom, small);
+        case Residuals: {
+            auto* zero = new QCPItemStraightLine(plot_);
+            QPen p = refPen;
+            p.setStyle(Qt::DashLine);
+            zero->setPen(p);
+            zero->point1->setCoords(0, 0);
+            zero->point2->setCoords(1, 0);
+            setAxisTitle(plot_->xAxis, QString::fromStdString(d.fitted_name));
+            setAxisTitle(plot_->yAxis, QString::fromStdString(d.plot_residual_name));
+            if (d.family == Family::Logistic) xr = QCPRange(std::max(-0.02, xr.lower), std::min(1.02, xr.upper));
+            break;
+        }
+        case Quantiles: {
+            auto* ref = new QCPItemStraightLine(plot_);
+            ref->setPen(refPen);
+            ref->point1->setCoords(0, 0);
+            ref->point2->setCoords(1, 1);
+            setAxisTitle(plot_->xAxis, tr("normal quantile (Blom positions)"));
+            setAxisTitle(plot_->yAxis, QString::fromStdString(d.quantile_residual_name));
+            yr = padded(std::min(ylo, xlo), std::max(yhi, xhi));
+            xr = padded(xlo, xhi);
+            break;
+        }
+        case Influence: {
+            xr = QCPRange(0, std::max(xhi, d.leverage_threshold) * 1.08);
+            const double ymax = std::max({std::abs(ylo), std::abs(yhi), 3.0}) * 1.1;
+            yr = QCPRange(-ymax, ymax);
+            setAxisTitle(plot_->xAxis, tr("leverage"));
+            setAxisTitle(plot_->yAxis, d.family == Family::Logistic ? tr("standardised Pearson residual")
+                                                                    : tr("standardised residual"));
+            // Cook's distance contours at 0.5 and 1 (common practice).
+            const double hlo = std::max(xr.upper * 1e-3, 1e-6), hhi = std::min(xr.upper, 0.999);
+            const Qt::PenStyle styles[] = {Qt::DashLine, Qt::DashDotLine};
+            const double levels[] = {0.5, 1.0};
+            // Does the lower contour (D = 0.5) enter the plotted area at all?
+            const bool visible = cooks_contour(levels[0], d.p, hhi) <= ymax;
+            for (int c = 0; c < 2 && visible; ++c) {
+                QPen pen(shade(estuary::series(5), greyscale_));
+                pen.setWidthF(1.1);
+                pen.setStyle(styles[c]);
+                for (int sign : {1, -1}) {
+                    auto* curve = new QCPCurve(plot_->xAxis, plot_->yAxis);
+                    curve->setPen(pen);
+                    curve->setName(tr("Cook's distance %1").arg(levels[c]));
+                    if (sign < 0) curve->removeFromLegend();
+                    QVector<double> t, cx, cy;
+                    for (int s = 0; s <= 200; ++s) {
+                        const double h = hlo * std::pow(hhi / hlo, s / 200.0);
+                        const double r = cooks_contour(levels[c], d.p, h);
+                        if (!std::isfinite(r) || r > 4 * ymax) continue;
+                        t << s;
+                        cx << h;
+                        cy << sign * r;
+                    }
+                    curve->setData(t, cx, cy, true);
+                    curve->setSelectable(QCP::stNone);
+                    if (sign > 0 && !cx.isEmpty()) {
+                        // label where the contour meets the top of the plot, or at its right end
+                        int at = static_cast<int>(cx.size()) - 1;
+                        for (int s = 0; s < cx.size(); ++s)
+                            if (cy[s] <= ymax * 0.92) {
+                                at = s;
+                                break;
+                            }
+                        label(plot_, tr("D = %1").arg(levels[c]), cx[at], cy[at], Qt::AlignLeft | Qt::AlignBottom,
+                              small);
+                    }
                 }
             }
+            if (!visible) {
+                auto* t = label(plot_, tr("Cook's distance 0.5 and 1 lie beyond this range"), xr.upper, ymax * 0.97,
+                                Qt::AlignRight | Qt::AlignTop, small);
+                t->setColor(shade(estuary::series(5), greyscale_));
+            }
+            auto* lev = new QCPItemStraightLine(plot_);
+            QPen lp(shade(estuary::notSignificant, greyscale_));
+            lp.setStyle(Qt::DotLine);
+            lp.setWidthF(1.2);
+            lev->setPen(lp);
+            lev->point1->setCoords(d.leverage_threshold, 0);
+            lev->point2->setCoords(d.leverage_threshold, 1);
+            label(plot_, tr("%1p/n").arg(d.rules.leverage_multiple), d.leverage_threshold, -ymax * 0.98,
+                  Qt::AlignLeft | Qt::AlignBottom, small);
+            break;
         }
-        if (!visible) {
-            auto* t = label(plot_, tr("Cook's distance 0.5 and 1 lie beyond this range"), xr.upper, ymax * 0.97,
-                            Qt::AlignRight | Qt::AlignTop, small);
-            t->setColor(shade(estuary::series(5), greyscale_));
-        }
-        auto* lev = new QCPItemStraightLine(plot_);
-        QPen lp(shade(estuary::notSignificant, greyscale_));
-        lp.setStyle(Qt::DotLine);
-        lp.setWidthF(1.2);
-        lev->setPen(lp);
-        lev->point1->setCoords(d.leverage_threshold, 0);
-        lev->point2->setCoords(d.leverage_threshold, 1);
-        label(plot_, tr("%1p/n").arg(d.rules.leverage_multiple), d.leverage_threshold, -ymax * 0.98,
-              Qt::AlignLeft | Qt::AlignBottom, small);
-        break;
-    }
     }
 
     points_ = new QCPGraph(plot_->xAxis, plot_->yAxis);

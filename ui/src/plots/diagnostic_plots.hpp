@@ -58,9 +58,9 @@ private:
     QCPTextElement* title_ = nullptr;
     std::shared_ptr<const Diagnostics> d_;
     std::vector<std::size_t> drawn_, drawnFlagged_, highlighted_;
-    std::vector<double> cx_, cy_;   // the plot's points, in the plot's order ...
-    std::vector<std::size_t> cobs_; // ... and the observation of each
-    std::vector<double> xs_, ys_;   // coordinates by observation (NaN if not drawn)
+    std::vector<double> cx_, cy_;    // the plot's points, in the plot's order ...
+    std::vector<std::size_t> cobs_;  // ... and the observation of each
+    std::vector<double> xs_, ys_;    // coordinates by observation (NaN if not drawn)
     QCPGraph* points_ = nullptr;
     QCPGraph* flaggedGraph_ = nullptr;
     QCPGraph* highlight_ = nullptr;

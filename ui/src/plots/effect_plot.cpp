@@ -1,14 +1,14 @@
 #include "plots/effect_plot.hpp"
 
+#include <qcustomplot.h>
 #include <QResizeEvent>
 #include <QVBoxLayout>
 #include <algorithm>
 #include <cmath>
-#include <qcustomplot.h>
 
+#include "common/probe_number_format.hpp"
 #include "plots/plot_style.hpp"
 #include "plots/probe_plot_util.hpp"
-#include "common/probe_number_format.hpp"
 #include "style/estuary.hpp"
 
 namespace moderato::ui {
@@ -245,7 +245,9 @@ void EffectPlot::buildGroups() {
     const EffectPlotData& d = data_;
     const int L = static_cast<int>(d.groupEffects.size());
     auto ticker = QSharedPointer<QCPAxisTickerText>(new QCPAxisTickerText);
-    for (int k = 0; k < L; ++k) ticker->addTick(k, k < static_cast<int>(d.groupNames.size()) ? d.groupNames[static_cast<std::size_t>(k)] : QString());
+    for (int k = 0; k < L; ++k)
+        ticker->addTick(
+            k, k < static_cast<int>(d.groupNames.size()) ? d.groupNames[static_cast<std::size_t>(k)] : QString());
     plot_->xAxis->setTicker(ticker);
     plot_->xAxis->setRange(-0.5, L - 0.5);
     double lo = 0, hi = 0;

@@ -32,19 +32,19 @@ namespace moderato::ui {
 
 struct EffectPlotData {
     bool groups = false;
-    QString moderatorTitle;                 // x axis
-    QString effectTitle;                    // y axis
+    QString moderatorTitle;  // x axis
+    QString effectTitle;     // y axis
     // Continuous moderator.
-    std::vector<CurvePoint> curve;          // effect and the band shown, over the axis range
-    QString bandName;                       // legend entry of the band ("95% pointwise band", ...)
-    std::vector<Region> significant;        // regions of significance for that band
-    std::vector<double> boundaries;         // their boundaries
+    std::vector<CurvePoint> curve;    // effect and the band shown, over the axis range
+    QString bandName;                 // legend entry of the band ("95% pointwise band", ...)
+    std::vector<Region> significant;  // regions of significance for that band
+    std::vector<double> boundaries;   // their boundaries
     std::pair<double, double> observed{0, 1};
     std::pair<double, double> axis{0, 1};
-    std::vector<double> rug;                // observed moderator values (decimated)
+    std::vector<double> rug;  // observed moderator values (decimated)
     // Groups.
-    std::vector<QString> groupNames;         // axis ticks
-    std::vector<QString> legendNames;        // legend entries ("shift = day"); empty: the group names
+    std::vector<QString> groupNames;   // axis ticks
+    std::vector<QString> legendNames;  // legend entries ("shift = day"); empty: the group names
     std::vector<EffectPoint> groupEffects;
 };
 
@@ -79,7 +79,7 @@ public:
 
 Q_SIGNALS:
     void dragStarted();
-    void valueDragged(double m);       // every frame of a drag (Groups: the group index)
+    void valueDragged(double m);  // every frame of a drag (Groups: the group index)
     void dragFinished(double m);
 
 protected:

@@ -1,10 +1,10 @@
 #include "plots/lines_plot.hpp"
 
+#include <qcustomplot.h>
 #include <QResizeEvent>
 #include <QVBoxLayout>
 #include <algorithm>
 #include <cmath>
-#include <qcustomplot.h>
 
 #include "plots/plot_style.hpp"
 #include "plots/probe_plot_util.hpp"
@@ -243,7 +243,7 @@ void LinesPlot::rebuild() {
             strip->bottomRight->setTypeY(QCPItemPosition::ptAxisRectRatio);
             strip->bottomRight->setCoords(to, 1.0);
             strip->topLeft->setTypeX(QCPItemPosition::ptPlotCoords);
-            strip->topLeft->setParentAnchorY(strip->bottomRight);   // pixels above the bottom edge
+            strip->topLeft->setParentAnchorY(strip->bottomRight);  // pixels above the bottom edge
             strip->topLeft->setTypeY(QCPItemPosition::ptAbsolute);
             strip->topLeft->setCoords(from, -kDifferStripHeight);
             strip->setBrush(brush);

@@ -29,26 +29,26 @@ struct LinesPlotData {
     struct Line {
         QString name;
         std::vector<CurvePoint> points;
-        int series = 0;                      // Estuary series index (colour, line style, marker)
+        int series = 0;  // Estuary series index (colour, line style, marker)
     };
     std::vector<Line> lines;
-    QString highlightName;                   // legend entry of the slider's line
+    QString highlightName;  // legend entry of the slider's line
     // Observed data (drawn when showPoints).
     bool showPoints = false;
     std::vector<double> pointsX, pointsY;
-    std::vector<int> pointsGroup;            // series index per point (empty: all 0)
-    bool pointsByGroup = false;              // colour points by group
+    std::vector<int> pointsGroup;  // series index per point (empty: all 0)
+    bool pointsByGroup = false;    // colour points by group
     struct Crossing {
-        double x = 0, y = 0;                 // where the lines meet
-        double lower = 0, upper = 0;         // its interval along the focal predictor
-        bool bounded = false;                // false: the interval is unbounded (drawn as a note)
+        double x = 0, y = 0;          // where the lines meet
+        double lower = 0, upper = 0;  // its interval along the focal predictor
+        bool bounded = false;         // false: the interval is unbounded (drawn as a note)
     };
-    std::vector<Crossing> crossings;         // only those inside the focal range
-    QString crossingName;                    // legend entry
+    std::vector<Crossing> crossings;  // only those inside the focal range
+    QString crossingName;             // legend entry
     // Where the two groups (or any two lines) differ, along the focal
     // predictor: drawn as a thin tinted strip at the bottom of the plot.
     std::vector<std::pair<double, double>> differ;
-    QString differName;                      // legend entry ("groups differ"); empty: no strip
+    QString differName;  // legend entry ("groups differ"); empty: no strip
     std::pair<double, double> xRange{0, 1};
     // Estimates the y axis must also take in (e.g. the slider's line at the ends of its range).
     std::vector<CurvePoint> yExtent;

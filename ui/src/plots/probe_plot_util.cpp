@@ -1,12 +1,13 @@
 #include "plots/probe_plot_util.hpp"
 
-#include <algorithm>
 #include <qcustomplot.h>
+#include <algorithm>
 
 namespace moderato::ui {
 
 void setUpProbePlot(QCustomPlot* plot) {
-    if (!plot->layer(kShadingLayer)) plot->addLayer(kShadingLayer, plot->layer(QStringLiteral("grid")), QCustomPlot::limBelow);
+    if (!plot->layer(kShadingLayer))
+        plot->addLayer(kShadingLayer, plot->layer(QStringLiteral("grid")), QCustomPlot::limBelow);
     if (!plot->layer(kMovingLayer)) {
         plot->addLayer(kMovingLayer, plot->layer(QStringLiteral("main")), QCustomPlot::limAbove);
         plot->layer(kMovingLayer)->setMode(QCPLayer::lmBuffered);
@@ -44,7 +45,8 @@ bool fitLegend(QCustomPlot* plot, int width) {
         }
     const int n = static_cast<int>(widths.size());
     if (n == 0) return false;
-    const int available = (width > 0 ? width : plot->width()) - legend->margins().left() - legend->margins().right() - 8;
+    const int available =
+        (width > 0 ? width : plot->width()) - legend->margins().left() - legend->margins().right() - 8;
     int best = 1;
     for (int k = n; k >= 1; --k) {
         int total = (k - 1) * legend->columnSpacing();
@@ -69,8 +71,9 @@ void curveVectors(const std::vector<CurvePoint>& points, int which, QVector<doub
     values.resize(static_cast<qsizetype>(points.size()));
     for (std::size_t i = 0; i < points.size(); ++i) {
         keys[static_cast<qsizetype>(i)] = points[i].x;
-        values[static_cast<qsizetype>(i)] =
-            which == 0 ? points[i].estimate : which < 0 ? points[i].lower : points[i].upper;
+        values[static_cast<qsizetype>(i)] = which == 0  ? points[i].estimate
+                                            : which < 0 ? points[i].lower
+                                                        : points[i].upper;
     }
 }
 

@@ -5,8 +5,8 @@
 
 #include <QBrush>
 #include <QColor>
-#include <QVector>
 #include <QString>
+#include <QVector>
 #include <vector>
 
 #include "moderato/probing/probe_curves.hpp"

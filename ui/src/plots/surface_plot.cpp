@@ -1,7 +1,7 @@
 #include "plots/surface_plot.hpp"
 
-#include <QVBoxLayout>
 #include <qcustomplot.h>
+#include <QVBoxLayout>
 
 #include "moderato/support/error.hpp"
 #include "plots/plot_style.hpp"
@@ -97,12 +97,9 @@ SurfacePlot::SurfacePlot(QWidget* parent) : QWidget(parent), plot_(new QCustomPl
 QString SurfacePlot::subtitle() const {
     if (!grid_) return {};
     QString what;
-    if (probability_)
-        what = tr("Predicted probability that %1 = 1 (inverse logit of the log-odds)").arg(outcome_);
-    else if (logistic_)
-        what = tr("Predicted log-odds that %1 = 1").arg(outcome_);
-    else
-        what = tr("Predicted %1").arg(outcome_);
+    if (probability_) what = tr("Predicted probability that %1 = 1 (inverse logit of the log-odds)").arg(outcome_);
+    else if (logistic_) what = tr("Predicted log-odds that %1 = 1").arg(outcome_);
+    else what = tr("Predicted %1").arg(outcome_);
     return what + tr("; other predictors at their means or reference levels");
 }
 
@@ -203,12 +200,10 @@ void SurfacePlot::redraw() {
         pts->setLineStyle(QCPGraph::lsNone);
         // ink dots with a light ring: visible on both ends of the ramp
         const bool many = pointsX_.size() > 2000;
-        pts->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle,
-                                             QPen(QColor(255, 255, 255, many ? 90 : 150), 0.8),
-                                             QBrush(estuary::withAlpha(greyscale_ ? estuary::toGrey(estuary::ink)
-                                                                                  : estuary::ink,
-                                                                       many ? 0.3 : 0.5)),
-                                             4));
+        pts->setScatterStyle(QCPScatterStyle(
+            QCPScatterStyle::ssCircle, QPen(QColor(255, 255, 255, many ? 90 : 150), 0.8),
+            QBrush(estuary::withAlpha(greyscale_ ? estuary::toGrey(estuary::ink) : estuary::ink, many ? 0.3 : 0.5)),
+            4));
         pts->removeFromLegend();
         QVector<double> xs, zs;
         for (std::size_t i : thinScatter(pointsX_, pointsZ_)) {

@@ -9,8 +9,8 @@
 #include <QWidget>
 #include <optional>
 
-#include "moderato/project/analysis_run.hpp"
 #include "moderato/probing/surface_view.hpp"
+#include "moderato/project/analysis_run.hpp"
 #include "plots/figure_source.hpp"
 
 class QCustomPlot;

@@ -14,7 +14,7 @@ QString tr(const char* text) { return QCoreApplication::translate("GapText", tex
 
 struct Piece {
     double a, b;
-    bool fromStart, toEnd;   // reaches the lower / upper end of the observed range
+    bool fromStart, toEnd;  // reaches the lower / upper end of the observed range
 };
 
 QString phrase(const Piece& p, const QString& focal) {
@@ -68,20 +68,20 @@ GapStatement describeGap(const SignificanceRegions& regions, const QString& subj
         out.text = tr("%1 cannot be told apart (%2) anywhere in the observed range of %3 (%4).")
                        .arg(subject, pointwise, focal, observed);
     } else if (apart.empty()) {
-        out.text = tr("%1 differ (%2) over the whole observed range of %3 (%4).").arg(subject, pointwise, focal, observed);
+        out.text =
+            tr("%1 differ (%2) over the whole observed range of %3 (%4).").arg(subject, pointwise, focal, observed);
     } else {
         out.text = tr("%1 differ (%2) for %3").arg(subject, pointwise, phrases(differ, focal));
         if (apart.size() == 1 && !apart.front().fromStart && !apart.front().toEnd && differ.size() == 2)
             out.text += tr("; between these values they cannot be told apart.");
-        else
-            out.text += tr("; for %1 they cannot be told apart.").arg(phrases(apart, focal));
+        else out.text += tr("; for %1 they cannot be told apart.").arg(phrases(apart, focal));
     }
     if (!out.beyond.empty()) {
         QStringList where;
         for (double b : out.beyond) where << probeNumber(b);
-        const QString list = where.size() == 1 ? where.front()
-                                               : where.mid(0, where.size() - 1).join(QStringLiteral(", ")) + tr(" and ") +
-                                                     where.back();
+        const QString list =
+            where.size() == 1 ? where.front()
+                              : where.mid(0, where.size() - 1).join(QStringLiteral(", ")) + tr(" and ") + where.back();
         out.text += (out.beyond.size() == 1 ? tr(" The boundary at %1 = %2 lies beyond the data (observed %3).")
                                             : tr(" The boundaries at %1 = %2 lie beyond the data (observed %3)."))
                         .arg(focal, list, observed);

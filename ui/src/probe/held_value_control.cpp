@@ -19,8 +19,13 @@ constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 }  // namespace
 
 HeldValueControl::HeldValueControl(QWidget* parent)
-    : QWidget(parent), name_(new QLabel(this)), box_(new QDoubleSpinBox(this)), levels_(new QComboBox(this)),
-      meanMinus_(new QToolButton(this)), mean_(new QToolButton(this)), meanPlus_(new QToolButton(this)) {
+    : QWidget(parent),
+      name_(new QLabel(this)),
+      box_(new QDoubleSpinBox(this)),
+      levels_(new QComboBox(this)),
+      meanMinus_(new QToolButton(this)),
+      mean_(new QToolButton(this)),
+      meanPlus_(new QToolButton(this)) {
     setObjectName(QStringLiteral("held-value"));
     auto* layout = new QHBoxLayout(this);
     layout->setContentsMargins(4, 0, 4, 2);
@@ -41,9 +46,11 @@ HeldValueControl::HeldValueControl(QWidget* parent)
         b->setToolTip(tip);
         layout->addWidget(b);
     };
-    button(meanMinus_, QStringLiteral("mean-sd"), tr("mean − SD"), tr("Hold the second moderator at its mean minus one SD"));
+    button(meanMinus_, QStringLiteral("mean-sd"), tr("mean − SD"),
+           tr("Hold the second moderator at its mean minus one SD"));
     button(mean_, QStringLiteral("mean"), tr("mean"), tr("Hold the second moderator at its mean"));
-    button(meanPlus_, QStringLiteral("mean+sd"), tr("mean + SD"), tr("Hold the second moderator at its mean plus one SD"));
+    button(meanPlus_, QStringLiteral("mean+sd"), tr("mean + SD"),
+           tr("Hold the second moderator at its mean plus one SD"));
     layout->addStretch(1);
 
     connect(meanMinus_, &QToolButton::clicked, this, [this] { Q_EMIT valueChosen(mean_value_ - sd_); });
@@ -52,7 +59,8 @@ HeldValueControl::HeldValueControl(QWidget* parent)
     connect(box_, &QDoubleSpinBox::valueChanged, this, [this](double v) {
         if (!updating_) Q_EMIT valueChosen(v);
     });
-    connect(levels_, &QComboBox::activated, this, [this](int i) { Q_EMIT valueChosen(levels_->itemData(i).toDouble()); });
+    connect(levels_, &QComboBox::activated, this,
+            [this](int i) { Q_EMIT valueChosen(levels_->itemData(i).toDouble()); });
 }
 
 void HeldValueControl::relayout() {

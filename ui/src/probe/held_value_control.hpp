@@ -33,7 +33,7 @@ public:
 
     QDoubleSpinBox* valueBox() const { return box_; }
     QComboBox* levelChoice() const { return levels_; }
-    QToolButton* presetButton(const QString& key) const;   // "mean-sd", "mean", "mean+sd"
+    QToolButton* presetButton(const QString& key) const;  // "mean-sd", "mean", "mean+sd"
 
 Q_SIGNALS:
     // The user chose a value (NaN: the default, its mean or reference level).

@@ -23,9 +23,15 @@ int decimalsFor(double lo, double hi) {
 }  // namespace
 
 ModeratorSlider::ModeratorSlider(QWidget* parent)
-    : QWidget(parent), name_(new QLabel(this)), slider_(new QSlider(Qt::Horizontal, this)),
-      box_(new QDoubleSpinBox(this)), groupLabel_(new QLabel(this)), meanMinus_(new QToolButton(this)),
-      mean_(new QToolButton(this)), meanPlus_(new QToolButton(this)), percentiles_(new QToolButton(this)),
+    : QWidget(parent),
+      name_(new QLabel(this)),
+      slider_(new QSlider(Qt::Horizontal, this)),
+      box_(new QDoubleSpinBox(this)),
+      groupLabel_(new QLabel(this)),
+      meanMinus_(new QToolButton(this)),
+      mean_(new QToolButton(this)),
+      meanPlus_(new QToolButton(this)),
+      percentiles_(new QToolButton(this)),
       pin_(new QToolButton(this)) {
     auto* layout = new QHBoxLayout(this);
     layout->setContentsMargins(4, 2, 4, 2);

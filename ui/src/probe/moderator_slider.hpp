@@ -31,16 +31,16 @@ public:
 
     QSlider* slider() const { return slider_; }
     QDoubleSpinBox* valueBox() const { return box_; }
-    QToolButton* presetButton(const QString& key) const;   // "mean-sd", "mean", "mean+sd", "percentiles"
+    QToolButton* presetButton(const QString& key) const;  // "mean-sd", "mean", "mean+sd", "percentiles"
     QToolButton* pinButton() const { return pin_; }
 
 Q_SIGNALS:
     void sliderPressed();
-    void valueMoved(double m);                      // while the slider is dragged
+    void valueMoved(double m);  // while the slider is dragged
     // A value to keep: the drag ended, a value was typed, or a key moved the
     // slider (`keyboard`: consecutive key steps merge into one undo step).
     void valueCommitted(double m, bool keyboard);
-    void presetRequested(const QString& key);      // "mean-sd", "mean", "mean+sd", "p10", ... "p90"
+    void presetRequested(const QString& key);  // "mean-sd", "mean", "mean+sd", "p10", ... "p90"
     void pinRequested();
 
 private:

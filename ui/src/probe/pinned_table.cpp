@@ -8,10 +8,10 @@
 #include <QItemSelectionModel>
 #include <QLabel>
 #include <QScrollBar>
-#include <algorithm>
 #include <QTableView>
 #include <QToolButton>
 #include <QVBoxLayout>
+#include <algorithm>
 #include <set>
 
 #include "common/probe_number_format.hpp"
@@ -41,19 +41,28 @@ QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
     const EffectPoint& e = r.point;
     if (role == Qt::DisplayRole) {
         switch (index.column()) {
-        case Value: return r.label;
-        case Effect: return probeNumber(e.effect);
-        case SE: return probeNumber(e.std_error);
-        case Statistic: return probeNumber(e.statistic, 3);
-        case P: return probePValue(e.p_value);
-        case Lower: return probeNumber(e.ci_lower);
-        case Upper: return probeNumber(e.ci_upper);
-        case Note: return e.beyond_data ? tr("beyond the data") : QString();
+            case Value:
+                return r.label;
+            case Effect:
+                return probeNumber(e.effect);
+            case SE:
+                return probeNumber(e.std_error);
+            case Statistic:
+                return probeNumber(e.statistic, 3);
+            case P:
+                return probePValue(e.p_value);
+            case Lower:
+                return probeNumber(e.ci_lower);
+            case Upper:
+                return probeNumber(e.ci_upper);
+            case Note:
+                return e.beyond_data ? tr("beyond the data") : QString();
         }
     }
     if (role == Qt::TextAlignmentRole)
-        return QVariant::fromValue(index.column() == Value || index.column() == Note ? Qt::AlignLeft | Qt::AlignVCenter
-                                                                                     : Qt::AlignRight | Qt::AlignVCenter);
+        return QVariant::fromValue(index.column() == Value || index.column() == Note
+                                       ? Qt::AlignLeft | Qt::AlignVCenter
+                                       : Qt::AlignRight | Qt::AlignVCenter);
     // From the palette, so a shaded row stays readable on a dark desktop too.
     if (role == Qt::ForegroundRole && index.column() == Note) return mutedText(QApplication::palette(), QPalette::Base);
     if (role == Qt::BackgroundRole && e.beyond_data) return beyondRowBackground(QApplication::palette());
@@ -73,21 +82,33 @@ QVariant PinnedTableModel::headerData(int section, Qt::Orientation orientation, 
     if (orientation == Qt::Horizontal && role == Qt::ToolTipRole && section == Value) return moderator_;
     if (orientation != Qt::Horizontal || role != Qt::DisplayRole) return {};
     switch (section) {
-    case Value: return moderator_;
-    case Effect: return tr("effect");
-    case SE: return tr("SE");
-    case Statistic: return statistic_;
-    case P: return tr("p");
-    case Lower: return tr("%1 low").arg(interval_);
-    case Upper: return tr("%1 high").arg(interval_);
-    case Note: return tr("note");
+        case Value:
+            return moderator_;
+        case Effect:
+            return tr("effect");
+        case SE:
+            return tr("SE");
+        case Statistic:
+            return statistic_;
+        case P:
+            return tr("p");
+        case Lower:
+            return tr("%1 low").arg(interval_);
+        case Upper:
+            return tr("%1 high").arg(interval_);
+        case Note:
+            return tr("note");
     }
     return {};
 }
 
 PinnedTable::PinnedTable(QWidget* parent)
-    : QWidget(parent), model_(new PinnedTableModel(this)), view_(new QTableView(this)), caption_(new QLabel(this)),
-      remove_(new QToolButton(this)), copy_(new QToolButton(this)) {
+    : QWidget(parent),
+      model_(new PinnedTableModel(this)),
+      view_(new QTableView(this)),
+      caption_(new QLabel(this)),
+      remove_(new QToolButton(this)),
+      copy_(new QToolButton(this)) {
     auto* layout = new QVBoxLayout(this);
     layout->setContentsMargins(0, 0, 0, 0);
     layout->setSpacing(4);
@@ -159,8 +180,9 @@ void PinnedTable::removeSelected() {
 void PinnedTable::fitHeight() {
     // As tall as its rows (two to twelve of them), so the panel below stays close.
     const int rows = std::clamp(model_->rowCount(), 2, 12);
-    const int h = view_->horizontalHeader()->sizeHint().height() + rows * view_->verticalHeader()->defaultSectionSize() +
-                  2 * view_->frameWidth() + view_->horizontalScrollBar()->sizeHint().height() + 2;
+    const int h = view_->horizontalHeader()->sizeHint().height() +
+                  rows * view_->verticalHeader()->defaultSectionSize() + 2 * view_->frameWidth() +
+                  view_->horizontalScrollBar()->sizeHint().height() + 2;
     view_->setFixedHeight(h);
 }
 

@@ -22,10 +22,10 @@ class PinnedTableModel : public QAbstractTableModel {
 public:
     enum Column { Value, Effect, Lower, Upper, SE, Statistic, P, Note, ColumnCount };
     struct Row {
-        QString label;          // the moderator value as shown ("23.1", "North", "mean − 1 SD: 23.1")
+        QString label;  // the moderator value as shown ("23.1", "North", "mean − 1 SD: 23.1")
         EffectPoint point;
-        bool pinned = false;    // removable
-        int pinIndex = -1;      // index into ProbeSettings.pinned
+        bool pinned = false;  // removable
+        int pinIndex = -1;    // index into ProbeSettings.pinned
     };
     using QAbstractTableModel::QAbstractTableModel;
     void setRows(std::vector<Row> rows, const QString& moderator, const QString& statistic, const QString& interval);

@@ -10,9 +10,9 @@
 #include <utility>
 #include <vector>
 
-#include "moderato/project/analysis_run.hpp"
 #include "moderato/probing/probe_curves.hpp"
 #include "moderato/probing/response_scale.hpp"
+#include "moderato/project/analysis_run.hpp"
 
 namespace moderato::ui {
 
@@ -44,7 +44,7 @@ public:
     std::pair<double, double> observedRange() const { return probe().observed_range; }
     std::pair<double, double> axisRange() const { return axisRange_; }
     std::pair<double, double> focalRange() const { return probe().focal_range; }
-    double defaultValue() const;   // the moderator's mean (Groups: the first group)
+    double defaultValue() const;  // the moderator's mean (Groups: the first group)
 
     // The effect at moderator value m (Groups: m is the group index). Link
     // scale: O(p^2) on the cached effect function. Probability scale: core's

@@ -74,7 +74,8 @@ QList<ReadoutPanel::Row> ReadoutPanel::rows() const {
     r << Row{intervalName_, tr("%1 to %2").arg(probeNumber(point_.ci_lower), probeNumber(point_.ci_upper))};
     r << Row{statisticName_, probeNumber(point_.statistic, 3)};
     r << Row{tr("p"), probePValue(point_.p_value)};
-    if (band_) r << Row{tr("simultaneous band"), tr("%1 to %2").arg(probeNumber(band_->first), probeNumber(band_->second))};
+    if (band_)
+        r << Row{tr("simultaneous band"), tr("%1 to %2").arg(probeNumber(band_->first), probeNumber(band_->second))};
     return r;
 }
 
@@ -97,9 +98,9 @@ int ReadoutPanel::idealHeight(int width) const {
                                           message_.isEmpty() ? QStringLiteral(" ") : message_);
         return h + r.height() + kMargin;
     }
-    h += small.height() + 6;                               // heading
+    h += small.height() + 6;  // heading
     h += static_cast<int>(rows().size()) * (body.height() + kRowGap) + 6;
-    h += small.height();                                   // stale note line (kept so the height does not jump)
+    h += small.height();  // stale note line (kept so the height does not jump)
     const QRect s = small.boundingRect(QRect(0, 0, std::max(80, width - 2 * kMargin), 2000), Qt::TextWordWrap,
                                        statement_.isEmpty() ? QStringLiteral(" ") : statement_);
     return h + s.height() + kMargin;
@@ -163,8 +164,8 @@ void ReadoutPanel::paintEvent(QPaintEvent*) {
     const QString title = tm.elidedText(label_, Qt::ElideRight, w - (tagWidth ? tagWidth + 8 : 0));
     p.drawText(QRect(kMargin, y, w, tm.height()), Qt::AlignLeft | Qt::AlignVCenter, title);
     if (tagWidth) {
-        const QRectF pill(kMargin + tm.horizontalAdvance(title) + 8, y + (tm.height() - sm.height() - 4) / 2.0, tagWidth,
-                          sm.height() + 4);
+        const QRectF pill(kMargin + tm.horizontalAdvance(title) + 8, y + (tm.height() - sm.height() - 4) / 2.0,
+                          tagWidth, sm.height() + 4);
         QPainterPath pp;
         pp.addRoundedRect(pill, 4, 4);
         p.fillPath(pp, QColor(estuary::beyond));

@@ -6,18 +6,18 @@
 #include <limits>
 #include <set>
 
+#include "common/figure_caption.hpp"
 #include "export/figure_exporter.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
+#include "moderato/project/project_loader.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/file_util.hpp"
-#include "moderato/project/project_loader.hpp"
-#include "plots/figure_source.hpp"
 #include "outputs/analysis_outputs.hpp"
+#include "plots/figure_source.hpp"
 #include "sections/checks_section.hpp"
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
-#include "common/figure_caption.hpp"
 
 namespace moderato::ui {
 namespace {
@@ -32,7 +32,8 @@ public:
         QDir().mkpath(QFileInfo(path).absolutePath());
         // The same file by another name (a symbolic link in the way) counts too.
         const QFileInfo target(path);
-        if (forbidden_.count(target.absoluteFilePath()) || (target.exists() && forbidden_.count(target.canonicalFilePath())))
+        if (forbidden_.count(target.absoluteFilePath()) ||
+            (target.exists() && forbidden_.count(target.canonicalFilePath())))
             throw InputError(target.absoluteFilePath().toStdString() +
                              ": is one of the project's data files; render writes only new files, choose another "
                              "--out folder");
@@ -52,7 +53,8 @@ const TableFormat kTableFormats[] = {TableFormat::Csv, TableFormat::Markdown, Ta
 
 void writeFigure(Writer& out, const QString& stem, FigureSource* source, const FigureSettings& settings,
                  const QString& caption,
-                 std::initializer_list<FigureFormat> formats = {FigureFormat::Png, FigureFormat::Svg, FigureFormat::Pdf}) {
+                 std::initializer_list<FigureFormat> formats = {FigureFormat::Png, FigureFormat::Svg,
+                                                                FigureFormat::Pdf}) {
     const FigureExporter exporter(source, settings, caption);
     for (const FigureFormat f : formats) {
         const QByteArray bytes = exporter.render(f);
@@ -95,14 +97,14 @@ RenderReport renderProject(const RenderRequest& request) {
                                 QString::fromStdString(now->second), QString::fromStdString(d.sha256));
     }
     if (!changed.isEmpty() && !request.acceptChangedData)
-        throw InputError("the data changed since the project was saved: " + changed.join(QStringLiteral("; ")).toStdString() +
-                         ". Check the new data, then run again with --accept-changed-data to render from it.");
+        throw InputError(
+            "the data changed since the project was saved: " + changed.join(QStringLiteral("; ")).toStdString() +
+            ". Check the new data, then run again with --accept-changed-data to render from it.");
     for (const QString& c : changed) report.warnings << QStringLiteral("rendering from changed data: ") + c;
     for (const auto& n : loaded.project.migration_notes) report.warnings << QString::fromStdString(n);
 
     const QString root = QFileInfo(request.outDir).absoluteFilePath();
-    if (!QDir().mkpath(root))
-        throw InputError(request.outDir.toStdString() + ": cannot make the output folder");
+    if (!QDir().mkpath(root)) throw InputError(request.outDir.toStdString() + ": cannot make the output folder");
     Writer out(root, dataFiles, report);
 
     ProjectDocument doc;

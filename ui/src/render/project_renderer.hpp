@@ -14,13 +14,13 @@ namespace moderato::ui {
 struct RenderRequest {
     QString projectPath;
     QString outDir;
-    bool acceptChangedData = false;   // go on when a data file's SHA-256 differs from the recorded one
+    bool acceptChangedData = false;  // go on when a data file's SHA-256 differs from the recorded one
 };
 
 struct RenderReport {
-    QStringList files;      // written, relative to outDir, in the order written
-    QStringList warnings;   // changed data accepted, migration notes, kept figures of a plot the analysis no longer has
-    QStringList failures;   // analyses that could not be rendered, with the reason
+    QStringList files;     // written, relative to outDir, in the order written
+    QStringList warnings;  // changed data accepted, migration notes, kept figures of a plot the analysis no longer has
+    QStringList failures;  // analyses that could not be rendered, with the reason
 };
 
 // Throws InputError when the project cannot be read, a data file is missing,

@@ -11,19 +11,22 @@
 #include <algorithm>
 #include <cmath>
 
+#include "common/number_text.hpp"
 #include "model/project_document.hpp"
 #include "plots/diagnostic_plots.hpp"
-#include "common/number_text.hpp"
 #include "sections/flagged_rows_model.hpp"
 
 namespace moderato::ui {
 
 ChecksSection::ChecksSection(ProjectDocument* doc, QWidget* parent)
-    : AnalysisSection(doc, parent), note_(new QLabel(this)),
+    : AnalysisSection(doc, parent),
+      note_(new QLabel(this)),
       residuals_(new DiagnosticPlot(DiagnosticPlot::Residuals, this)),
       quantiles_(new DiagnosticPlot(DiagnosticPlot::Quantiles, this)),
-      influence_(new DiagnosticPlot(DiagnosticPlot::Influence, this)), rules_(new QLabel(this)),
-      list_(new QTableView(this)), model_(new FlaggedRowsModel(this)),
+      influence_(new DiagnosticPlot(DiagnosticPlot::Influence, this)),
+      rules_(new QLabel(this)),
+      list_(new QTableView(this)),
+      model_(new FlaggedRowsModel(this)),
       show_(new QPushButton(tr("Show in dataset"), this)) {
     setObjectName(QStringLiteral("checks-section"));
     auto* layout = new QVBoxLayout(this);
@@ -86,9 +89,9 @@ namespace {
 // diagnostics are the same (they do not depend on the SE kind or the probe).
 bool sameFit(const AnalysisRun& a, const AnalysisRun& b) {
     auto same = [](const Eigen::VectorXd& u, const Eigen::VectorXd& v) {
-        return u.size() == v.size() &&
-               std::equal(u.data(), u.data() + u.size(), v.data(),
-                          [](double x, double y) { return x == y || (std::isnan(x) && std::isnan(y)); });
+        return u.size() == v.size() && std::equal(u.data(), u.data() + u.size(), v.data(), [](double x, double y) {
+                   return x == y || (std::isnan(x) && std::isnan(y));
+               });
     };
     return a.table == b.table && a.fit.family == b.fit.family && a.design.rows == b.design.rows &&
            a.design.X.cols() == b.design.X.cols() && same(a.design.weights, b.design.weights) &&
@@ -146,10 +149,11 @@ void ChecksSection::ensureComputed() {
     const Diagnostics& d = *diag_;
     QStringList note;
     if (d.family == Family::Logistic) {
-        note << tr("Logistic fit: Pearson residuals against the fitted probability (the line is the mean residual "
-                   "in bins of the fitted probability; it should stay near zero); the quantile plot uses "
-                   "standardised deviance residuals, which for a 0/1 outcome need not follow the line closely — "
-                   "look for isolated points; leverage uses the fit's working weights p(1 − p).");
+        note << tr(
+            "Logistic fit: Pearson residuals against the fitted probability (the line is the mean residual "
+            "in bins of the fitted probability; it should stay near zero); the quantile plot uses "
+            "standardised deviance residuals, which for a 0/1 outcome need not follow the line closely — "
+            "look for isolated points; leverage uses the fit's working weights p(1 − p).");
     } else {
         note << (d.weighted ? tr("Weighted fit: residuals are scaled by √weight.")
                             : tr("Residuals against fitted values: look for curvature or a funnel shape."))
@@ -162,9 +166,9 @@ void ChecksSection::ensureComputed() {
     QString rules = tr("Rules of thumb (common practice, not tests): %1 · %2 · %3.")
                         .arg(QString::fromStdString(d.residual_rule), QString::fromStdString(d.leverage_rule),
                              QString::fromStdString(d.cooks_rule));
-    rules += QLatin1Char(' ') + tr("%1 of %2 rows flagged, most influential first.")
-                                    .arg(countText(static_cast<double>(d.flagged.size())),
-                                         countText(static_cast<double>(d.n)));
+    rules += QLatin1Char(' ') +
+             tr("%1 of %2 rows flagged, most influential first.")
+                 .arg(countText(static_cast<double>(d.flagged.size())), countText(static_cast<double>(d.n)));
     if (d.n > 20000) rules += QLatin1Char(' ') + tr("Dense plots are thinned; flagged rows are always drawn.");
     rules_->setText(rules);
 }

@@ -15,10 +15,10 @@
 #include <algorithm>
 #include <cmath>
 
-#include "estimates/coefficient_model.hpp"
 #include "common/number_format.hpp"
-#include "model/project_document.hpp"
 #include "common/table_clipboard.hpp"
+#include "estimates/coefficient_model.hpp"
+#include "model/project_document.hpp"
 #include "specify/model_equation.hpp"
 #include "specify/role_edit.hpp"
 #include "specify/section_widgets.hpp"
@@ -54,9 +54,10 @@ QString seFromText(const std::string& text, Family f) {
 
 // "F(2, 145) = 12.31, p &lt; 0.001" or "χ²(2) = 24.62, p = 0.012" (rich text).
 QString testText(double statistic, double df1, double df2, double chiSquare, double p) {
-    const QString text = std::isinf(df2)
-                             ? QStringLiteral("\u03c7\u00b2(%1) = %2, %3").arg(df1).arg(formatFixed(chiSquare, 2), pClause(p))
-                             : QStringLiteral("F(%1, %2) = %3, %4").arg(df1).arg(df2).arg(formatFixed(statistic, 2), pClause(p));
+    const QString text =
+        std::isinf(df2)
+            ? QStringLiteral("\u03c7\u00b2(%1) = %2, %3").arg(df1).arg(formatFixed(chiSquare, 2), pClause(p))
+            : QStringLiteral("F(%1, %2) = %3, %4").arg(df1).arg(df2).arg(formatFixed(statistic, 2), pClause(p));
     return text.toHtmlEscaped();
 }
 
@@ -87,12 +88,21 @@ QStringList centredLabels(const AnalysisRun& run) {
 }  // namespace
 
 EstimatesSection::EstimatesSection(ProjectDocument* doc, QWidget* parent)
-    : AnalysisSection(doc, parent), header_(wrapped(this)), copy_(new QToolButton(this)), toggle_(new QWidget(this)),
+    : AnalysisSection(doc, parent),
+      header_(wrapped(this)),
+      copy_(new QToolButton(this)),
+      toggle_(new QWidget(this)),
       asIs_(new QRadioButton(tr("columns as they are"), toggle_)),
-      centred_(new QRadioButton(tr("centred at the mean"), toggle_)), toggleText_(wrapped(toggle_, false)),
-      table_(new QTableView(this)), model_(new CoefficientModel(this)), fit_(wrapped(this)),
-      comparisonTitle_(sectionHeading(tr("With and without the interaction"), this)), comparison_(wrapped(this)),
-      warnings_(wrapped(this)), notes_(wrapped(this)), errorBanner_(wrapped(this, false)) {
+      centred_(new QRadioButton(tr("centred at the mean"), toggle_)),
+      toggleText_(wrapped(toggle_, false)),
+      table_(new QTableView(this)),
+      model_(new CoefficientModel(this)),
+      fit_(wrapped(this)),
+      comparisonTitle_(sectionHeading(tr("With and without the interaction"), this)),
+      comparison_(wrapped(this)),
+      warnings_(wrapped(this)),
+      notes_(wrapped(this)),
+      errorBanner_(wrapped(this, false)) {
     auto* outer = new QVBoxLayout(this);
     outer->setContentsMargins(0, 4, 0, 0);
     auto* scroll = new QScrollArea(this);
@@ -204,8 +214,10 @@ void EstimatesSection::refresh() {
     errorBanner_->setVisible(!error_.isEmpty());
     if (!run_ || !a) {
         model_->clear();
-        header_->setText(error_.isEmpty() ? tr("No estimates yet.") : tr("No estimates: the model could not be fitted."));
-        for (QWidget* w : std::initializer_list<QWidget*>{toggle_, fit_, comparisonTitle_, comparison_, warnings_, notes_})
+        header_->setText(error_.isEmpty() ? tr("No estimates yet.")
+                                          : tr("No estimates: the model could not be fitted."));
+        for (QWidget* w :
+             std::initializer_list<QWidget*>{toggle_, fit_, comparisonTitle_, comparison_, warnings_, notes_})
             w->hide();
         copy_->setEnabled(false);
         fitTableHeight();
@@ -228,9 +240,8 @@ void EstimatesSection::refresh() {
     const QString dist = logistic ? tr("z (standard normal)") : tr("t on %1 df").arg(main.df_inference);
     header_->setText(tr("<b>Coefficients</b> of %1 &nbsp;·&nbsp; %2 model%3 &nbsp;·&nbsp; %4 standard errors "
                         "&nbsp;·&nbsp; %5 confidence intervals &nbsp;·&nbsp; %6")
-                         .arg(h(a->roles.outcome), familyName(main.family),
-                              logistic ? tr(" (log-odds)") : QString(), se.toHtmlEscaped(), levelPercent(main.level),
-                              dist));
+                         .arg(h(a->roles.outcome), familyName(main.family), logistic ? tr(" (log-odds)") : QString(),
+                              se.toHtmlEscaped(), levelPercent(main.level), dist));
 
     if (canCentre) {
         QStringList at;
@@ -252,18 +263,18 @@ void EstimatesSection::refresh() {
         rows += row(tr("Adjusted R\u00b2"), formatFixed(main.adj_r_squared, 4));
         rows += row(tr("Residual SD"), formatNumber(main.residual_sd));
         if (main.f_df1 > 0)
-            rows += row(tr("All terms but the intercept"),
-                        testText(main.f_statistic, main.f_df1, main.f_df2, main.f_statistic * main.f_df1,
-                                 main.f_p_value) +
-                            tr(" (%1 covariance)").arg(seLabel(main.se, main.family)));
+            rows +=
+                row(tr("All terms but the intercept"),
+                    testText(main.f_statistic, main.f_df1, main.f_df2, main.f_statistic * main.f_df1, main.f_p_value) +
+                        tr(" (%1 covariance)").arg(seLabel(main.se, main.family)));
     } else {
-        rows += row(tr("Deviance"), tr("%1 (null model %2)").arg(formatNumber(main.deviance, 6),
-                                                                  formatNumber(main.null_deviance, 6)));
+        rows += row(tr("Deviance"),
+                    tr("%1 (null model %2)").arg(formatNumber(main.deviance, 6), formatNumber(main.null_deviance, 6)));
         rows += row(tr("McFadden R\u00b2"), formatFixed(main.mcfadden_r2, 4));
         if (main.lr_df > 0)
-            rows += row(tr("All terms but the intercept"),
-                        tr("likelihood ratio %1")
-                            .arg(testText(0, main.lr_df, INFINITY, main.lr_statistic, main.lr_p_value)));
+            rows += row(
+                tr("All terms but the intercept"),
+                tr("likelihood ratio %1").arg(testText(0, main.lr_df, INFINITY, main.lr_statistic, main.lr_p_value)));
         rows += row(tr("Iterations"), main.converged ? tr("%1 (converged)").arg(main.iterations)
                                                      : tr("%1 (did not converge)").arg(main.iterations));
     }
@@ -297,7 +308,8 @@ void EstimatesSection::refresh() {
                          testText(c.wald.statistic, c.wald.df1, c.wald.df2, c.wald.chi_square, c.wald.p_value));
         comparison_->setText(text);
     } else {
-        comparison_->setText(tr("The model has no product terms that could be estimated, so there is nothing to compare."));
+        comparison_->setText(
+            tr("The model has no product terms that could be estimated, so there is nothing to compare."));
     }
 
     // Warnings (always worth reading) and notes.
@@ -316,8 +328,9 @@ void EstimatesSection::refresh() {
         notes << tr("VIF above 10: %1. A product term is correlated with its own components; that inflates their "
                     "VIFs without harming the product coefficient, and centring lowers them without changing the fit.")
                      .arg(highVif.join(QStringLiteral(", ")));
-    notes << tr("These coefficients describe associations in these data, not causal effects, unless the focal "
-                "predictor was randomised.");
+    notes << tr(
+        "These coefficients describe associations in these data, not causal effects, unless the focal "
+        "predictor was randomised.");
     notes_->setText(notes.join(QStringLiteral("<br>")));
     notes_->show();
 }

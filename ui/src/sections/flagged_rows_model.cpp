@@ -48,16 +48,22 @@ QVariant FlaggedRowsModel::data(const QModelIndex& index, int role) const {
         return tr("%1, table row %2").arg(QString::fromStdString(table_->source)).arg(r->table_row + 1);
     if (role != Qt::DisplayRole) return {};
     switch (index.column()) {
-    case Line:
-        if (table_ && r->table_row < table_->row_lines.size())
-            return QVariant::fromValue<qulonglong>(table_->row_lines[r->table_row]);
-        return QVariant::fromValue<qulonglong>(r->table_row + 1);
-    case Fitted: return numberText(d_->fitted[i]);
-    case Residual: return numberText(d_->check_residual()[i], 3);
-    case Leverage: return numberText(d_->leverage[i], 3);
-    case Cooks: return numberText(d_->cooks_distance[i], 3);
-    case Rules: return rulesText(r->flags);
-    default: return {};
+        case Line:
+            if (table_ && r->table_row < table_->row_lines.size())
+                return QVariant::fromValue<qulonglong>(table_->row_lines[r->table_row]);
+            return QVariant::fromValue<qulonglong>(r->table_row + 1);
+        case Fitted:
+            return numberText(d_->fitted[i]);
+        case Residual:
+            return numberText(d_->check_residual()[i], 3);
+        case Leverage:
+            return numberText(d_->leverage[i], 3);
+        case Cooks:
+            return numberText(d_->cooks_distance[i], 3);
+        case Rules:
+            return rulesText(r->flags);
+        default:
+            return {};
     }
 }
 
@@ -66,14 +72,20 @@ QVariant FlaggedRowsModel::headerData(int section, Qt::Orientation orientation, 
     if (role == Qt::ToolTipRole && section == Residual && d_) return QString::fromStdString(d_->check_residual_name);
     if (role != Qt::DisplayRole) return {};
     switch (section) {
-    case Line: return table_ && !table_->row_lines.empty() ? tr("line") : tr("row");
-    case Fitted: return d_ && d_->family == Family::Logistic ? tr("fitted probability") : tr("fitted");
-    case Residual:
-        return d_ && d_->family == Family::Logistic ? tr("std. Pearson residual") : tr("studentised residual");
-    case Leverage: return tr("leverage");
-    case Cooks: return tr("Cook's D");
-    case Rules: return tr("rules met");
-    default: return {};
+        case Line:
+            return table_ && !table_->row_lines.empty() ? tr("line") : tr("row");
+        case Fitted:
+            return d_ && d_->family == Family::Logistic ? tr("fitted probability") : tr("fitted");
+        case Residual:
+            return d_ && d_->family == Family::Logistic ? tr("std. Pearson residual") : tr("studentised residual");
+        case Leverage:
+            return tr("leverage");
+        case Cooks:
+            return tr("Cook's D");
+        case Rules:
+            return tr("rules met");
+        default:
+            return {};
     }
 }
 

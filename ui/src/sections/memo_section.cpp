@@ -28,14 +28,20 @@
 
 namespace moderato::ui {
 MemoSection::MemoSection(ProjectDocument* doc, ProbeSection* probe, QWidget* parent)
-    : AnalysisSection(doc, parent), probe_(probe), notes_(new QPlainTextEdit(this)), editor_(new QTextEdit(this)),
-      state_(new QLabel(this)), message_(new QLabel(this)), restore_(new QPushButton(tr("Restore generated text"), this)),
+    : AnalysisSection(doc, parent),
+      probe_(probe),
+      notes_(new QPlainTextEdit(this)),
+      editor_(new QTextEdit(this)),
+      state_(new QLabel(this)),
+      message_(new QLabel(this)),
+      restore_(new QPushButton(tr("Restore generated text"), this)),
       tableFormat_(new QComboBox(this)) {
     auto* layout = new QHBoxLayout(this);
     layout->setContentsMargins(0, 4, 0, 0);
 
     auto* side = new QVBoxLayout;
-    auto* notesLabel = new QLabel(tr("<b>Notes</b> — your own words, printed above the findings and kept in the project"), this);
+    auto* notesLabel =
+        new QLabel(tr("<b>Notes</b> — your own words, printed above the findings and kept in the project"), this);
     notesLabel->setWordWrap(true);
     side->addWidget(notesLabel);
     notes_->setObjectName(QStringLiteral("memo-notes"));
@@ -172,8 +178,10 @@ void MemoSection::rebuild() {
         return;
     }
     if (!edited_) loadEditor();
-    else state_->setText(tr("<b>Edited.</b> New results and notes are not in your edited text; "
-                            "restore the generated text to see them."));
+    else
+        state_->setText(
+            tr("<b>Edited.</b> New results and notes are not in your edited text; "
+               "restore the generated text to see them."));
 }
 
 void MemoSection::loadEditor() {
@@ -212,7 +220,8 @@ QByteArray MemoSection::editedHtml() const {
     // file stays self-contained. Its HTML 4 doctype names a DTD by URL: the
     // plain HTML5 doctype instead, so the file refers to nothing outside it.
     QString html = editor_->document()->toHtml();
-    static const QRegularExpression doctype(QStringLiteral("^<!DOCTYPE[^>]*>"), QRegularExpression::CaseInsensitiveOption);
+    static const QRegularExpression doctype(QStringLiteral("^<!DOCTYPE[^>]*>"),
+                                            QRegularExpression::CaseInsensitiveOption);
     html.replace(doctype, QStringLiteral("<!DOCTYPE html>"));
     if (output_)
         for (const auto& [file, png] : output_->pngs())
@@ -298,8 +307,9 @@ bool MemoSection::saveTables(const QString& folder, TableFormat format, QStringL
     const QString stem = QString::fromStdString(file_slug(a ? a->id : std::string("analysis")));
     const QDir dir(folder);
     for (const NamedTable& t : output_->memo.tables) {
-        const QString path = dir.filePath(QStringLiteral("%1-%2.%3").arg(stem, QString::fromStdString(t.key),
-                                                                          QString::fromStdString(table_format_suffix(format))));
+        const QString path = dir.filePath(
+            QStringLiteral("%1-%2.%3")
+                .arg(stem, QString::fromStdString(t.key), QString::fromStdString(table_format_suffix(format))));
         if (!write(path, tableBytes(t.table, format), error)) return false;
         if (written) *written << path;
     }
@@ -314,29 +324,34 @@ void MemoSection::saveWithDialog(int kind) {
     QString error, path;
     bool ok = false;
     switch (kind) {
-    case SaveHtml:
-        path = QFileDialog::getSaveFileName(this, tr("Save memo as HTML"), QDir(startDir).filePath(base + QStringLiteral(".html")),
-                                            tr("HTML (*.html)"));
-        if (!path.isEmpty()) ok = saveHtml(path, &error);
-        break;
-    case SaveMarkdown:
-        path = QFileDialog::getSaveFileName(this, tr("Save memo as Markdown"), QDir(startDir).filePath(base + QStringLiteral(".md")),
-                                            tr("Markdown (*.md)"));
-        if (!path.isEmpty()) ok = saveMarkdown(path, &error);
-        break;
-    case SavePdf:
-        path = QFileDialog::getSaveFileName(this, tr("Print memo to PDF"), QDir(startDir).filePath(base + QStringLiteral(".pdf")),
-                                            tr("PDF (*.pdf)"));
-        if (!path.isEmpty()) ok = savePdf(path, &error);
-        break;
-    case SaveTables: {
-        path = QFileDialog::getExistingDirectory(this, tr("Save tables into folder"), startDir);
-        QStringList files;
-        if (!path.isEmpty())
-            ok = saveTables(path, static_cast<TableFormat>(tableFormat_->currentData().toInt()), &files, &error);
-        if (ok) message_->setText(tr("Saved %n table(s) to %1", nullptr, static_cast<int>(files.size())).arg(QDir::toNativeSeparators(path)));
-        break;
-    }
+        case SaveHtml:
+            path = QFileDialog::getSaveFileName(this, tr("Save memo as HTML"),
+                                                QDir(startDir).filePath(base + QStringLiteral(".html")),
+                                                tr("HTML (*.html)"));
+            if (!path.isEmpty()) ok = saveHtml(path, &error);
+            break;
+        case SaveMarkdown:
+            path = QFileDialog::getSaveFileName(this, tr("Save memo as Markdown"),
+                                                QDir(startDir).filePath(base + QStringLiteral(".md")),
+                                                tr("Markdown (*.md)"));
+            if (!path.isEmpty()) ok = saveMarkdown(path, &error);
+            break;
+        case SavePdf:
+            path =
+                QFileDialog::getSaveFileName(this, tr("Print memo to PDF"),
+                                             QDir(startDir).filePath(base + QStringLiteral(".pdf")), tr("PDF (*.pdf)"));
+            if (!path.isEmpty()) ok = savePdf(path, &error);
+            break;
+        case SaveTables: {
+            path = QFileDialog::getExistingDirectory(this, tr("Save tables into folder"), startDir);
+            QStringList files;
+            if (!path.isEmpty())
+                ok = saveTables(path, static_cast<TableFormat>(tableFormat_->currentData().toInt()), &files, &error);
+            if (ok)
+                message_->setText(tr("Saved %n table(s) to %1", nullptr, static_cast<int>(files.size()))
+                                      .arg(QDir::toNativeSeparators(path)));
+            break;
+        }
     }
     if (path.isEmpty()) return;
     if (!ok) message_->setText(tr("Not saved: %1").arg(error));

@@ -43,7 +43,7 @@ public:
     // Save without dialogs (the buttons ask for a path, then call these).
     // False with a message naming the file in `error` when writing fails.
     bool saveHtml(const QString& path, QString* error = nullptr);
-    bool saveMarkdown(const QString& path, QString* error = nullptr);   // PNGs beside it
+    bool saveMarkdown(const QString& path, QString* error = nullptr);  // PNGs beside it
     bool savePdf(const QString& path, QString* error = nullptr);
     // Every table of the analysis into `folder` in the chosen format; the files written.
     bool saveTables(const QString& folder, TableFormat format, QStringList* written = nullptr,

@@ -16,19 +16,19 @@
 #include <cmath>
 #include <optional>
 
+#include "common/figure_caption.hpp"
+#include "common/held_value_text.hpp"
+#include "common/probe_number_format.hpp"
 #include "model/project_document.hpp"
 #include "plots/cells_view.hpp"
 #include "plots/effect_plot.hpp"
 #include "plots/lines_plot.hpp"
 #include "plots/surface_plot.hpp"
 #include "probe/gap_text.hpp"
-#include "common/held_value_text.hpp"
 #include "probe/held_value_control.hpp"
 #include "probe/moderator_slider.hpp"
-#include "common/probe_number_format.hpp"
 #include "probe/pinned_table.hpp"
 #include "probe/readout_panel.hpp"
-#include "common/figure_caption.hpp"
 #include "style/palette_text.hpp"
 
 namespace moderato::ui {
@@ -54,13 +54,28 @@ bool sameNumber(double a, double b) { return a == b || (std::isnan(a) && std::is
 }  // namespace
 
 ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
-    : AnalysisSection(doc, parent), pages_(new QStackedWidget(this)), message_(new QLabel(this)),
-      band_(new QComboBox(this)), points_(new QCheckBox(tr("Data points"), this)), scaleLabel_(new QLabel(tr("Scale"), this)),
-      scale_(new QComboBox(this)), averaging_(new QComboBox(this)), surfaceToggle_(new QToolButton(this)),
-      differ_(new QCheckBox(tr("Where groups differ"), this)), linesTitle_(plotTitle(this)), effectTitle_(plotTitle(this)), linesStack_(new QStackedWidget(this)),
-      lines_(new LinesPlot(this)), surface_(new SurfacePlot(this)), effect_(new EffectPlot(this)),
-      cells_(new CellsView(this)), slider_(new ModeratorSlider(this)), held_(new HeldValueControl(this)), readout_(new ReadoutPanel(this)),
-      pinned_(new PinnedTable(this)), summary_(new QLabel(this)) {
+    : AnalysisSection(doc, parent),
+      pages_(new QStackedWidget(this)),
+      message_(new QLabel(this)),
+      band_(new QComboBox(this)),
+      points_(new QCheckBox(tr("Data points"), this)),
+      scaleLabel_(new QLabel(tr("Scale"), this)),
+      scale_(new QComboBox(this)),
+      averaging_(new QComboBox(this)),
+      surfaceToggle_(new QToolButton(this)),
+      differ_(new QCheckBox(tr("Where groups differ"), this)),
+      linesTitle_(plotTitle(this)),
+      effectTitle_(plotTitle(this)),
+      linesStack_(new QStackedWidget(this)),
+      lines_(new LinesPlot(this)),
+      surface_(new SurfacePlot(this)),
+      effect_(new EffectPlot(this)),
+      cells_(new CellsView(this)),
+      slider_(new ModeratorSlider(this)),
+      held_(new HeldValueControl(this)),
+      readout_(new ReadoutPanel(this)),
+      pinned_(new PinnedTable(this)),
+      summary_(new QLabel(this)) {
     auto* outer = new QVBoxLayout(this);
     outer->setContentsMargins(0, 0, 0, 0);
     outer->addWidget(pages_);
@@ -84,9 +99,10 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     band_->setObjectName(QStringLiteral("band-choice"));
     band_->addItem(tr("Pointwise band"), false);
     band_->addItem(tr("Simultaneous band"), true);
-    band_->setToolTip(tr("Pointwise: each moderator value tested on its own. Simultaneous: a band that covers the "
-                         "whole effect curve at once (Potthoff), so the region of significance does not pick up "
-                         "false values from testing many moderator values."));
+    band_->setToolTip(
+        tr("Pointwise: each moderator value tested on its own. Simultaneous: a band that covers the "
+           "whole effect curve at once (Potthoff), so the region of significance does not pick up "
+           "false values from testing many moderator values."));
     controls->addWidget(band_);
     points_->setObjectName(QStringLiteral("points-toggle"));
     points_->setToolTip(tr("Show the observed rows on the Lines plot (binned into counts above 20,000 rows)"));
@@ -101,14 +117,16 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     averaging_->setObjectName(QStringLiteral("averaging-choice"));
     averaging_->addItem(tr("averaged over the rows"), QStringLiteral("sample"));
     averaging_->addItem(tr("at the means"), QStringLiteral("values"));
-    averaging_->setToolTip(tr("Probability-scale effects averaged over every observed row, or at one profile with "
-                              "the other predictors at their means and reference levels"));
+    averaging_->setToolTip(
+        tr("Probability-scale effects averaged over every observed row, or at one profile with "
+           "the other predictors at their means and reference levels"));
     controls->addWidget(averaging_);
     differ_->setObjectName(QStringLiteral("differ-toggle"));
     differ_->setChecked(true);
-    differ_->setToolTip(tr("Shade a strip along the bottom of the Lines plot where the predicted outcomes of the two "
-                           "groups (or of any two lines) differ: the Johnson–Neyman technique applied to the gap "
-                           "between them"));
+    differ_->setToolTip(
+        tr("Shade a strip along the bottom of the Lines plot where the predicted outcomes of the two "
+           "groups (or of any two lines) differ: the Johnson–Neyman technique applied to the gap "
+           "between them"));
     controls->addWidget(differ_);
     controls->addStretch(1);
     surfaceToggle_->setObjectName(QStringLiteral("surface-toggle"));
@@ -177,7 +195,8 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
         moveTo(m, false);
         commitCurrent(m, false);
     });
-    connect(slider_, &ModeratorSlider::valueMoved, this, [this](double m) { moveTo(m, slider_->slider()->isSliderDown()); });
+    connect(slider_, &ModeratorSlider::valueMoved, this,
+            [this](double m) { moveTo(m, slider_->slider()->isSliderDown()); });
     connect(slider_, &ModeratorSlider::valueCommitted, this, [this](double m, bool keyboard) {
         if (!engine_.effectIsCheap()) moveTo(m, false);
         commitCurrent(m, keyboard);
@@ -194,7 +213,8 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     });
     connect(points_, &QCheckBox::toggled, this, [this](bool on) {
         if (rebuilding_) return;
-        editSettings([on](ProbeSettings& p) { p.show_points = on; }, on ? tr("Show data points") : tr("Hide data points"));
+        editSettings([on](ProbeSettings& p) { p.show_points = on; },
+                     on ? tr("Show data points") : tr("Hide data points"));
     });
     connect(scale_, &QComboBox::activated, this, [this](int i) {
         const std::string s = scale_->itemData(i).toString().toStdString();
@@ -209,9 +229,9 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
         const Analysis* a = doc_->analysis(id_);
         if (!a || !engine_.valid() || sameNumber(a->probe.second_value, v)) return;
         const QString col = q(a->roles.second_moderator);
-        editSettings([v](ProbeSettings& p) { p.second_value = v; },
-                     std::isnan(v) ? tr("Hold %1 at its default").arg(col)
-                                   : tr("Hold %1 at %2").arg(col, probeNumber(v)));
+        editSettings([v](ProbeSettings& p) { p.second_value = v; }, std::isnan(v)
+                                                                        ? tr("Hold %1 at its default").arg(col)
+                                                                        : tr("Hold %1 at %2").arg(col, probeNumber(v)));
     });
     connect(differ_, &QCheckBox::toggled, this, [this](bool on) {
         if (rebuilding_ || !engine_.valid()) return;
@@ -331,8 +351,7 @@ void ProbeSection::rebuild() {
         slider_->setContinuous(q(engine_.moderator()), lo, hi, alo, ahi);
     }
     double m = std::isnan(ps.current) ? engine_.defaultValue() : ps.current;
-    if (engine_.groups())
-        m = std::clamp(std::round(m), 0.0, static_cast<double>(engine_.groupNames().size()) - 1);
+    if (engine_.groups()) m = std::clamp(std::round(m), 0.0, static_cast<double>(engine_.groupNames().size()) - 1);
     current_ = m;
 
     fillReadoutContext();
@@ -397,7 +416,8 @@ void ProbeSection::fillHeldValue() {
 QString ProbeSection::moderatorLabel(double m) const {
     if (engine_.groups()) {
         const auto& names = engine_.groupNames();
-        const std::size_t k = static_cast<std::size_t>(std::clamp(std::lround(m), 0L, static_cast<long>(names.size()) - 1));
+        const std::size_t k =
+            static_cast<std::size_t>(std::clamp(std::lround(m), 0L, static_cast<long>(names.size()) - 1));
         return QStringLiteral("%1 = %2").arg(q(engine_.moderator()), q(names[k]));
     }
     return QStringLiteral("%1 = %2").arg(q(engine_.moderator()), probeNumber(m));
@@ -412,17 +432,16 @@ void ProbeSection::fillReadoutContext() {
     if (engine_.probability())
         scale = p.averaging == "values" ? tr("Probability scale, other predictors at their means")
                                         : tr("Probability scale, averaged over the observed rows");
-    else if (engine_.logistic())
-        scale = tr("Log-odds scale");
-    else
-        scale = tr("Outcome scale");
+    else if (engine_.logistic()) scale = tr("Log-odds scale");
+    else scale = tr("Outcome scale");
     QString statement = tr("%1 · %2 SEs · %3 pointwise interval").arg(scale, seDescription(a, *run_), level);
     const QString held = heldText();
     if (!held.isEmpty()) statement = tr("With %1 · %2").arg(held, statement);
     if (simultaneousShown())
         statement += tr(" · band: %1 simultaneous (critical value %2)")
                          .arg(level, probeNumber(p.simultaneous->critical_value, 3));
-    statement += tr(" · n\u00A0=\u00A0%1").arg(QLocale(QLocale::English).toString(static_cast<qulonglong>(run_->fit.n)));
+    statement +=
+        tr(" · n\u00A0=\u00A0%1").arg(QLocale(QLocale::English).toString(static_cast<qulonglong>(run_->fit.n)));
     readout_->setContext(effectTitle(), statisticName(p.df), tr("%1 CI").arg(level), statement);
 
     const QString f = escaped(q(engine_.focal())), mod = escaped(q(engine_.moderator()));
@@ -434,12 +453,13 @@ void ProbeSection::fillReadoutContext() {
         linesTitle_->setText(tr("<b>Surface plot</b> &nbsp;<span style='color:%1'>predicted %2 over %3 and %4%5</span>")
                                  .arg(muted, yWhat, f, mod, with));
     else
-        linesTitle_->setText(tr("<b>Lines plot</b> &nbsp;<span style='color:%1'>predicted %2 against %3, one line per %4%5</span>")
-                                 .arg(muted, yWhat, f,
-                                      engine_.groups() ? tr("group of %1").arg(mod) : tr("value of %1").arg(mod), with));
-    effectTitle_->setText(
-        tr("<b>Effect plot</b> &nbsp;<span style='color:%1'>effect of %2 against %3%4 · drag to move the moderator</span>")
-            .arg(muted, f, mod, with));
+        linesTitle_->setText(
+            tr("<b>Lines plot</b> &nbsp;<span style='color:%1'>predicted %2 against %3, one line per %4%5</span>")
+                .arg(muted, yWhat, f, engine_.groups() ? tr("group of %1").arg(mod) : tr("value of %1").arg(mod),
+                     with));
+    effectTitle_->setText(tr("<b>Effect plot</b> &nbsp;<span style='color:%1'>effect of %2 against %3%4 · drag to move "
+                             "the moderator</span>")
+                              .arg(muted, f, mod, with));
 }
 
 void ProbeSection::buildPlots() {
@@ -476,7 +496,9 @@ void ProbeSection::buildPlots() {
     // Lines plot.
     LinesPlotData l;
     l.focalTitle = q(engine_.focal());
-    l.outcomeTitle = engine_.probability() ? tr("P(%1 = 1)").arg(y) : engine_.logistic() ? tr("log-odds of %1").arg(y) : y;
+    l.outcomeTitle = engine_.probability() ? tr("P(%1 = 1)").arg(y)
+                     : engine_.logistic()  ? tr("log-odds of %1").arg(y)
+                                           : y;
     l.xRange = engine_.focalRange();
     const double xw = l.xRange.second - l.xRange.first;
     l.xRange = {l.xRange.first - 0.02 * xw, l.xRange.second + 0.02 * xw};
@@ -540,9 +562,9 @@ void ProbeSection::buildPlots() {
     }
     // Where the two groups (or any two lines) differ: core's gap regions, clipped to the data.
     if (differ_->isChecked() && p.crossovers.size() == 1) {
-        l.differ = describeGap(p.crossovers.front().gap_regions, QString(), q(engine_.focal()), engine_.focalRange(),
-                               level)
-                       .differ;
+        l.differ =
+            describeGap(p.crossovers.front().gap_regions, QString(), q(engine_.focal()), engine_.focalRange(), level)
+                .differ;
         l.differName = groups ? tr("groups differ") : tr("lines differ");
     }
     lines_->setData(l);
@@ -643,17 +665,16 @@ void ProbeSection::fillSummary() {
                 if (r->significant.empty()) line(tr("Significant nowhere."));
                 else if (std::isinf(r->significant.front().lo) && std::isinf(r->significant.front().hi))
                     line(tr("Significant everywhere."));
-                else
-                    line(tr("Significant over the whole range examined."));
+                else line(tr("Significant over the whole range examined."));
             }
             for (double b : r->boundaries)
-                line(tr("Boundary at %1 = %2 — %3").arg(mod, probeNumber(b),
-                                                      b < lo || b > hi ? tr("beyond the data (observed %1 to %2)")
-                                                                             .arg(probeNumber(lo), probeNumber(hi))
-                                                                       : tr("inside the observed range")));
+                line(tr("Boundary at %1 = %2 — %3")
+                         .arg(mod, probeNumber(b),
+                              b < lo || b > hi
+                                  ? tr("beyond the data (observed %1 to %2)").arg(probeNumber(lo), probeNumber(hi))
+                                  : tr("inside the observed range")));
             QStringList regions;
-            for (const Region& g : r->significant)
-                regions << tr("%1 to %2").arg(probeNumber(g.lo), probeNumber(g.hi));
+            for (const Region& g : r->significant) regions << tr("%1 to %2").arg(probeNumber(g.lo), probeNumber(g.hi));
             if (!regions.isEmpty()) line(tr("Significant for %1 in: %2").arg(mod, regions.join(QStringLiteral("; "))));
         }
         end();
@@ -665,15 +686,18 @@ void ProbeSection::fillSummary() {
         if (!std::isfinite(c.focal_value)) continue;
         any = true;
         QString interval;
-        if (c.ci_kind == "bounded") interval = tr("interval %1 to %2").arg(probeNumber(c.ci_lower), probeNumber(c.ci_upper));
+        if (c.ci_kind == "bounded")
+            interval = tr("interval %1 to %2").arg(probeNumber(c.ci_lower), probeNumber(c.ci_upper));
         else if (c.ci_kind == "unbounded")
-            interval = tr("interval unbounded: below %1 and above %2").arg(probeNumber(c.ci_lower), probeNumber(c.ci_upper));
+            interval =
+                tr("interval unbounded: below %1 and above %2").arg(probeNumber(c.ci_lower), probeNumber(c.ci_upper));
         else if (c.ci_kind == "whole line") interval = tr("the interval is the whole line");
         const auto [flo, fhi] = engine_.focalRange();
         line(tr("%1: the lines cross at %2 = %3 (%4), %5.")
                  .arg(q(c.groups), q(engine_.focal()), probeNumber(c.focal_value), interval,
-                      c.within_observed_range ? tr("inside the data") : tr("beyond the data (observed %1 to %2)")
-                                                                            .arg(probeNumber(flo), probeNumber(fhi))));
+                      c.within_observed_range
+                          ? tr("inside the data")
+                          : tr("beyond the data (observed %1 to %2)").arg(probeNumber(flo), probeNumber(fhi))));
     }
     if (!any) line(tr("The lines are parallel: they do not cross."));
     end();
@@ -693,9 +717,13 @@ void ProbeSection::fillSummary() {
         for (std::size_t k = 0; k < p.crossovers.size(); ++k) {
             QString subject;
             if (!groups) subject = tr("Predicted %1 at any two values of %2").arg(predicted, mod);
-            else if (p.crossovers.size() == 1 || k >= pairs.size()) subject = tr("The two groups' predicted %1").arg(predicted);
-            else subject = tr("Predicted %1 for %2 = %3 and %2 = %4").arg(predicted, mod, pairs[k].first, pairs[k].second);
-            line(describeGap(p.crossovers[k].gap_regions, subject, q(engine_.focal()), engine_.focalRange(), level).text);
+            else if (p.crossovers.size() == 1 || k >= pairs.size())
+                subject = tr("The two groups' predicted %1").arg(predicted);
+            else
+                subject =
+                    tr("Predicted %1 for %2 = %3 and %2 = %4").arg(predicted, mod, pairs[k].first, pairs[k].second);
+            line(describeGap(p.crossovers[k].gap_regions, subject, q(engine_.focal()), engine_.focalRange(), level)
+                     .text);
         }
         if (engine_.probability())
             line(tr("Tested on the log-odds scale: where two log-odds differ, the two probabilities differ too."));
@@ -735,7 +763,8 @@ void ProbeSection::moveTo(double m, bool live) {
     }
     if (engine_.groups()) {
         const std::size_t k = static_cast<std::size_t>(std::lround(m));
-        lines_->setHighlight(k < groupLines_.size() ? groupLines_[k] : std::vector<CurvePoint>{}, static_cast<int>(k), true);
+        lines_->setHighlight(k < groupLines_.size() ? groupLines_[k] : std::vector<CurvePoint>{}, static_cast<int>(k),
+                             true);
     } else {
         lines_->setHighlight(engine_.lineAt(m, engine_.probability() ? 61 : 21), -1, true);
     }
@@ -798,7 +827,8 @@ void ProbeSection::removePinned(const std::vector<int>& indices) {
     std::vector<int> sorted = indices;
     std::sort(sorted.rbegin(), sorted.rend());
     for (int i : sorted)
-        if (i >= 0 && i < static_cast<int>(after.probe.pinned.size())) after.probe.pinned.erase(after.probe.pinned.begin() + i);
+        if (i >= 0 && i < static_cast<int>(after.probe.pinned.size()))
+            after.probe.pinned.erase(after.probe.pinned.begin() + i);
     doc_->setAnalysis(after, indices.size() == 1 ? tr("Remove a pinned value") : tr("Remove pinned values"));
 }
 

@@ -112,7 +112,7 @@ private:
     std::shared_ptr<const AnalysisRun> run_;
     QString error_;
     ProbeEngine engine_;
-    Analysis shown_;                 // the settings the view was built from
+    Analysis shown_;  // the settings the view was built from
     double current_ = 0;
     EffectPoint point_;
     std::vector<std::vector<CurvePoint>> groupLines_;

@@ -28,22 +28,28 @@ namespace moderato::ui {
 
 namespace {
 
-const SeKind kSeKinds[] = {SeKind::Classical, SeKind::HC0, SeKind::HC1, SeKind::HC2,
+const SeKind kSeKinds[] = {SeKind::Classical, SeKind::HC0, SeKind::HC1,    SeKind::HC2,
                            SeKind::HC3,       SeKind::HC4, SeKind::Cluster};
 
 QString seTooltip(SeKind s) {
     switch (s) {
-    case SeKind::Classical:
-        return SpecifySection::tr("Assumes the same error variance in every row (model-based for logistic models).");
-    case SeKind::HC0: return SpecifySection::tr("Heteroskedasticity-consistent sandwich, no small-sample correction.");
-    case SeKind::HC1: return SpecifySection::tr("HC0 scaled by n / (n − p).");
-    case SeKind::HC2: return SpecifySection::tr("Sandwich with each squared residual divided by (1 − leverage).");
-    case SeKind::HC3:
-        return SpecifySection::tr("Sandwich with each squared residual divided by (1 − leverage)²; a good default "
-                                  "for small samples.");
-    case SeKind::HC4: return SpecifySection::tr("Like HC3 with a stronger correction for high-leverage rows.");
-    case SeKind::Cluster:
-        return SpecifySection::tr("Allows errors to be correlated within the groups of the Clusters column.");
+        case SeKind::Classical:
+            return SpecifySection::tr(
+                "Assumes the same error variance in every row (model-based for logistic models).");
+        case SeKind::HC0:
+            return SpecifySection::tr("Heteroskedasticity-consistent sandwich, no small-sample correction.");
+        case SeKind::HC1:
+            return SpecifySection::tr("HC0 scaled by n / (n − p).");
+        case SeKind::HC2:
+            return SpecifySection::tr("Sandwich with each squared residual divided by (1 − leverage).");
+        case SeKind::HC3:
+            return SpecifySection::tr(
+                "Sandwich with each squared residual divided by (1 − leverage)²; a good default "
+                "for small samples.");
+        case SeKind::HC4:
+            return SpecifySection::tr("Like HC3 with a stronger correction for high-leverage rows.");
+        case SeKind::Cluster:
+            return SpecifySection::tr("Allows errors to be correlated within the groups of the Clusters column.");
     }
     return {};
 }
@@ -51,11 +57,21 @@ QString seTooltip(SeKind s) {
 }  // namespace
 
 SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
-    : AnalysisSection(doc, parent), columns_(new ColumnListModel(this)), columnView_(new QTableView(this)),
-      columnsTitle_(sectionHeading(tr("Columns"), this)), family_(new QComboBox(this)), se_(new QComboBox(this)),
-      level_(new QDoubleSpinBox(this)), centring_(new QComboBox(this)), centringHint_(nullptr),
-      message_(new QLabel(this)), errorBanner_(new QLabel(this)), equation_(new QLabel(this)), legend_(nullptr),
-      reading_(new QLabel(this)), rows_(nullptr) {
+    : AnalysisSection(doc, parent),
+      columns_(new ColumnListModel(this)),
+      columnView_(new QTableView(this)),
+      columnsTitle_(sectionHeading(tr("Columns"), this)),
+      family_(new QComboBox(this)),
+      se_(new QComboBox(this)),
+      level_(new QDoubleSpinBox(this)),
+      centring_(new QComboBox(this)),
+      centringHint_(nullptr),
+      message_(new QLabel(this)),
+      errorBanner_(new QLabel(this)),
+      equation_(new QLabel(this)),
+      legend_(nullptr),
+      reading_(new QLabel(this)),
+      rows_(nullptr) {
     auto* outer = new QHBoxLayout(this);
     outer->setContentsMargins(0, 4, 0, 0);
     auto* splitter = new QSplitter(Qt::Horizontal, this);
@@ -105,13 +121,15 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
         slots_[static_cast<std::size_t>(i)] = s;
         connect(s, &RoleSlot::columnChosen, this,
                 [this, role](const QString& column, int from) { columnChosen(role, column, from); });
-        connect(s, &RoleSlot::columnCleared, this, [this, role](const QString& column) { columnCleared(role, column); });
+        connect(s, &RoleSlot::columnCleared, this,
+                [this, role](const QString& column) { columnCleared(role, column); });
         r->addWidget(s);
     }
     auto* slotHint = mutedLabel(right);
-    slotHint->setText(tr("The model has the focal predictor, the moderator (and second moderator), their product "
-                         "and the controls. Drag a column from one slot to another to move it; between two "
-                         "single slots the columns swap."));
+    slotHint->setText(
+        tr("The model has the focal predictor, the moderator (and second moderator), their product "
+           "and the controls. Drag a column from one slot to another to move it; between two "
+           "single slots the columns swap."));
     r->addWidget(slotHint);
 
     r->addSpacing(4);
@@ -142,10 +160,11 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
     form->addRow(tr("Centring"), centring_);
     r->addLayout(form);
     centringHint_ = mutedLabel(right);
-    centringHint_->setText(tr("Centring at the mean subtracts the mean from the numeric focal predictor and "
-                              "moderator. It changes the meaning of the lower-order coefficients (each becomes the "
-                              "effect at the mean of the other), not the fit, the product coefficient or the "
-                              "conditional effects."));
+    centringHint_->setText(
+        tr("Centring at the mean subtracts the mean from the numeric focal predictor and "
+           "moderator. It changes the meaning of the lower-order coefficients (each becomes the "
+           "effect at the mean of the other), not the fit, the product coefficient or the "
+           "conditional effects."));
     r->addWidget(centringHint_);
 
     message_->setObjectName(QStringLiteral("specify-message"));
@@ -268,7 +287,8 @@ void SpecifySection::showColumnMenu(const QPoint& pos) {
     QMenu menu(this);
     for (int i = 0; i < kRoleCount; ++i) {
         const Role role = static_cast<Role>(i);
-        const QString text = roleTakesSeveral(role) ? tr("Add to %1").arg(roleName(role)) : tr("Use as %1").arg(roleName(role));
+        const QString text =
+            roleTakesSeveral(role) ? tr("Add to %1").arg(roleName(role)) : tr("Use as %1").arg(roleName(role));
         menu.addAction(text, this, [this, role, column] { columnChosen(role, column, -1); });
     }
     menu.exec(columnView_->viewport()->mapToGlobal(pos));
@@ -296,7 +316,8 @@ void SpecifySection::refresh() {
     std::vector<RoleSlot::Choice> choices;
     if (table)
         for (const Column& c : table->columns) choices.push_back({c.name, columnNature(c), roleOf(*a, c.name)});
-    for (int i = 0; i < kRoleCount; ++i) slots_[static_cast<std::size_t>(i)]->setContents(roleColumns(*a, static_cast<Role>(i)), choices);
+    for (int i = 0; i < kRoleCount; ++i)
+        slots_[static_cast<std::size_t>(i)]->setContents(roleColumns(*a, static_cast<Role>(i)), choices);
 
     {
         const QSignalBlocker b1(family_), b2(se_), b3(level_), b4(centring_);

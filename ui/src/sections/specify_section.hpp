@@ -54,8 +54,8 @@ private:
     QString id_;
     std::shared_ptr<const AnalysisRun> run_;
     QString error_;
-    QString refusal_;   // why the last edit was refused (until the next accepted edit)
-    QString note_;      // something to know about the last accepted edit
+    QString refusal_;  // why the last edit was refused (until the next accepted edit)
+    QString note_;     // something to know about the last accepted edit
     bool applying_ = false;
 
     ColumnListModel* columns_;

@@ -10,18 +10,26 @@
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "sections/checks_section.hpp"
-#include "sections/memo_section.hpp"
 #include "sections/estimates_section.hpp"
+#include "sections/memo_section.hpp"
 #include "sections/probe_section.hpp"
 #include "sections/specify_section.hpp"
 
 namespace moderato::ui {
 
 AnalysisPage::AnalysisPage(ProjectDocument* doc, AnalysisRunner* runner, QWidget* parent)
-    : QWidget(parent), doc_(doc), runner_(runner), title_(new QLabel(this)), status_(new QLabel(this)),
-      switcher_(new QButtonGroup(this)), stack_(new QStackedWidget(this)), specify_(new SpecifySection(doc, this)),
-      estimates_(new EstimatesSection(doc, this)), probe_(new ProbeSection(doc, this)),
-      checks_(new ChecksSection(doc, this)), memo_(new MemoSection(doc, probe_, this)) {
+    : QWidget(parent),
+      doc_(doc),
+      runner_(runner),
+      title_(new QLabel(this)),
+      status_(new QLabel(this)),
+      switcher_(new QButtonGroup(this)),
+      stack_(new QStackedWidget(this)),
+      specify_(new SpecifySection(doc, this)),
+      estimates_(new EstimatesSection(doc, this)),
+      probe_(new ProbeSection(doc, this)),
+      checks_(new ChecksSection(doc, this)),
+      memo_(new MemoSection(doc, probe_, this)) {
     auto* layout = new QVBoxLayout(this);
     layout->setContentsMargins(8, 6, 8, 6);
     auto* header = new QHBoxLayout;
@@ -92,11 +100,16 @@ AnalysisPage::Section AnalysisPage::currentSection() const { return static_cast<
 
 AnalysisSection* AnalysisPage::section(Section s) const {
     switch (s) {
-    case Specify: return specify_;
-    case Estimates: return estimates_;
-    case Probe: return probe_;
-    case Checks: return checks_;
-    case Memo: return memo_;
+        case Specify:
+            return specify_;
+        case Estimates:
+            return estimates_;
+        case Probe:
+            return probe_;
+        case Checks:
+            return checks_;
+        case Memo:
+            return memo_;
     }
     return nullptr;
 }

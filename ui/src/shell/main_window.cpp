@@ -4,8 +4,8 @@
 #include <QApplication>
 #include <QClipboard>
 #include <QCloseEvent>
-#include <QDragEnterEvent>
 #include <QDir>
+#include <QDragEnterEvent>
 #include <QDropEvent>
 #include <QEventLoop>
 #include <QFileDialog>
@@ -25,20 +25,20 @@
 #include <QtConcurrent/QtConcurrentRun>
 #include <atomic>
 
+#include "common/figure_caption.hpp"
+#include "common/table_clipboard.hpp"
 #include "data/dataset_page.hpp"
 #include "data/import_dialog.hpp"
 #include "export/figure_export_dialog.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
+#include "moderato/project/project_loader.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/file_util.hpp"
-#include "moderato/project/project_loader.hpp"
 #include "sections/checks_section.hpp"
 #include "sections/memo_section.hpp"
 #include "shell/analysis_page.hpp"
-#include "common/figure_caption.hpp"
 #include "shell/project_sidebar.hpp"
-#include "common/table_clipboard.hpp"
 
 // The resources live in a static library: register them once (outside any namespace).
 static void initResources() { Q_INIT_RESOURCE(moderato); }
@@ -100,18 +100,24 @@ struct LoadOutcome {
 bool isProjectPath(const QString& path) { return path.endsWith(QLatin1String(".moderato"), Qt::CaseInsensitive); }
 
 MainWindow::MainWindow(QWidget* parent)
-    : QMainWindow(parent), doc_(new ProjectDocument(this)), runner_(new AnalysisRunner(doc_, this)),
-      sidebar_(new ProjectSidebar(doc_, this)), pages_(new QStackedWidget(this)), welcome_(new QLabel(this)),
-      datasetPage_(new DatasetPage(doc_, this)), analysisPage_(new AnalysisPage(doc_, runner_, this)) {
+    : QMainWindow(parent),
+      doc_(new ProjectDocument(this)),
+      runner_(new AnalysisRunner(doc_, this)),
+      sidebar_(new ProjectSidebar(doc_, this)),
+      pages_(new QStackedWidget(this)),
+      welcome_(new QLabel(this)),
+      datasetPage_(new DatasetPage(doc_, this)),
+      analysisPage_(new AnalysisPage(doc_, runner_, this)) {
     initResources();
     setObjectName(QStringLiteral("moderato-main-window"));
     setWindowIcon(QIcon(QStringLiteral(":/moderato/moderato.svg")));
     setAcceptDrops(true);
     welcome_->setAlignment(Qt::AlignCenter);
     welcome_->setWordWrap(true);
-    welcome_->setText(tr("<h2>Moderato</h2><p>Does this effect depend on that?</p>"
-                         "<p>Open a project or a data file (File menu, or drop it here).<br>"
-                         "Sample projects are in the <i>sample-projects</i> folder.</p>"));
+    welcome_->setText(
+        tr("<h2>Moderato</h2><p>Does this effect depend on that?</p>"
+           "<p>Open a project or a data file (File menu, or drop it here).<br>"
+           "Sample projects are in the <i>sample-projects</i> folder.</p>"));
     pages_->addWidget(welcome_);
     pages_->addWidget(datasetPage_);
     pages_->addWidget(analysisPage_);
@@ -143,7 +149,8 @@ MainWindow::MainWindow(QWidget* parent)
     connect(doc_, &ProjectDocument::structureChanged, this, [this] {
         // The page on screen may have been removed (undo of an add, a delete).
         if (pages_->currentWidget() == analysisPage_ && !doc_->analysis(analysisPage_->analysisId())) showFirstItem();
-        if (pages_->currentWidget() == datasetPage_ && !doc_->project().dataset(datasetPage_->datasetId().toStdString()))
+        if (pages_->currentWidget() == datasetPage_ &&
+            !doc_->project().dataset(datasetPage_->datasetId().toStdString()))
             showFirstItem();
     });
     QSettings settings;
@@ -185,11 +192,13 @@ void MainWindow::buildMenus() {
     });
     file->addSeparator();
     file->addAction(tr("&Save"), QKeySequence::Save, this, [this] { save(); });
-    file->addAction(tr("Save &As…"), this, [this] {
-        const QString path = QFileDialog::getSaveFileName(this, tr("Save project"), doc_->filePath(),
-                                                          tr("Moderato projects (*.moderato)"));
-        if (!path.isEmpty()) saveAs(isProjectPath(path) ? path : path + QStringLiteral(".moderato"));
-    })->setShortcuts(withFallback(QKeySequence::SaveAs, {QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_S)}));
+    file->addAction(tr("Save &As…"), this,
+                    [this] {
+                        const QString path = QFileDialog::getSaveFileName(this, tr("Save project"), doc_->filePath(),
+                                                                          tr("Moderato projects (*.moderato)"));
+                        if (!path.isEmpty()) saveAs(isProjectPath(path) ? path : path + QStringLiteral(".moderato"));
+                    })
+        ->setShortcuts(withFallback(QKeySequence::SaveAs, {QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_S)}));
     file->addSeparator();
     file->addAction(tr("&Export Figure…"), QKeySequence(Qt::CTRL | Qt::Key_E), this, &MainWindow::exportFigure);
     file->addAction(tr("Export &Tables…"), this, [this] { showMemo(MemoSection::SaveTables); });
@@ -203,8 +212,8 @@ void MainWindow::buildMenus() {
     undo->setShortcut(QKeySequence::Undo);
     QAction* redo = doc_->undoStack()->createRedoAction(this, tr("&Redo"));
     // Both usual keys for Redo on every desktop (some offer only one of them).
-    redo->setShortcuts(withFallback(QKeySequence::Redo, {QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_Z),
-                                                         QKeySequence(Qt::CTRL | Qt::Key_Y)}));
+    redo->setShortcuts(withFallback(
+        QKeySequence::Redo, {QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_Z), QKeySequence(Qt::CTRL | Qt::Key_Y)}));
     edit->addAction(undo);
     edit->addAction(redo);
     edit->addSeparator();
@@ -235,10 +244,8 @@ void MainWindow::report(const QString& title, const QString& text, bool warning)
     Q_EMIT messageReported(title, text);
     statusBar()->showMessage(text.left(200), 8000);
     if (!interactive_) return;
-    if (warning)
-        QMessageBox::warning(this, title, text);
-    else
-        QMessageBox::information(this, title, text);
+    if (warning) QMessageBox::warning(this, title, text);
+    else QMessageBox::information(this, title, text);
 }
 
 bool MainWindow::openPath(const QString& path) {
@@ -322,8 +329,8 @@ bool MainWindow::importData(const QString& path, const CsvOptions& options) {
 bool MainWindow::save() {
     if (doc_->filePath().isEmpty()) {
         if (!interactive_) return false;
-        const QString path = QFileDialog::getSaveFileName(this, tr("Save project"), QString(),
-                                                          tr("Moderato projects (*.moderato)"));
+        const QString path =
+            QFileDialog::getSaveFileName(this, tr("Save project"), QString(), tr("Moderato projects (*.moderato)"));
         if (path.isEmpty()) return false;
         return saveAs(isProjectPath(path) ? path : path + QStringLiteral(".moderato"));
     }
@@ -361,18 +368,14 @@ void MainWindow::showAddedDataset(const QString& path, const std::string& id) {
     // Adding a dataset starts an analysis of it (ProjectDocument::addDataset): show that.
     if (!doc_->project().analyses.empty() && doc_->project().analyses.back().dataset == id)
         showAnalysis(QString::fromStdString(doc_->project().analyses.back().id));
-    else
-        showDataset(QString::fromStdString(id));
+    else showDataset(QString::fromStdString(id));
 }
 
 void MainWindow::showFirstItem() {
     const Project& p = doc_->project();
-    if (!p.analyses.empty())
-        showAnalysis(QString::fromStdString(p.analyses.front().id));
-    else if (!p.datasets.empty())
-        showDataset(QString::fromStdString(p.datasets.front().id));
-    else
-        pages_->setCurrentWidget(welcome_);
+    if (!p.analyses.empty()) showAnalysis(QString::fromStdString(p.analyses.front().id));
+    else if (!p.datasets.empty()) showDataset(QString::fromStdString(p.datasets.front().id));
+    else pages_->setCurrentWidget(welcome_);
 }
 
 bool MainWindow::confirmDiscard() {
@@ -434,19 +437,24 @@ void MainWindow::rebuildRecentMenu() {
     recentMenu_->clear();
     const QStringList recent = QSettings().value(QStringLiteral("recentFiles")).toStringList();
     for (const QString& path : recent)
-        recentMenu_->addAction(QFileInfo(path).fileName(), this, [this, path] {
-            if (!isProjectPath(path) || confirmDiscard()) openPath(path);
-        })->setToolTip(path);
+        recentMenu_
+            ->addAction(QFileInfo(path).fileName(), this,
+                        [this, path] {
+                            if (!isProjectPath(path) || confirmDiscard()) openPath(path);
+                        })
+            ->setToolTip(path);
     recentMenu_->setEnabled(!recent.isEmpty());
 }
 
 void MainWindow::updateTitle() {
-    setWindowTitle(tr("%1%2 — Moderato").arg(doc_->displayName(), doc_->isModified() ? QStringLiteral(" *") : QString()));
+    setWindowTitle(
+        tr("%1%2 — Moderato").arg(doc_->displayName(), doc_->isModified() ? QStringLiteral(" *") : QString()));
 }
 
 void MainWindow::exportFigure() {
     if (pages_->currentWidget() != analysisPage_) {
-        report(tr("Export figure"), tr("Open an analysis and show its Probe or Checks section to export a figure."), false);
+        report(tr("Export figure"), tr("Open an analysis and show its Probe or Checks section to export a figure."),
+               false);
         return;
     }
     const QList<FigureSource*> figures = analysisPage_->currentFigures();
@@ -462,7 +470,8 @@ void MainWindow::exportFigure() {
     // Saving closes the dialog: say where the file went.
     if (dialog.exec() == QDialog::Accepted && !dialog.lastSavedPath().isEmpty())
         statusBar()->showMessage(
-            tr("Saved the figure to %1").arg(QDir::toNativeSeparators(QFileInfo(dialog.lastSavedPath()).absoluteFilePath())),
+            tr("Saved the figure to %1")
+                .arg(QDir::toNativeSeparators(QFileInfo(dialog.lastSavedPath()).absoluteFilePath())),
             10000);
 }
 

@@ -1,7 +1,7 @@
 #include "specify/column_list_model.hpp"
 
-#include <QBrush>
 #include <QApplication>
+#include <QBrush>
 #include <QPalette>
 
 #include "specify/column_mime.hpp"
@@ -49,14 +49,17 @@ QVariant ColumnListModel::data(const QModelIndex& index, int role) const {
     const auto inRole = roleOf(analysis_, e.name);
     if (role == Qt::DisplayRole) {
         switch (index.column()) {
-        case Name: return QString::fromStdString(e.name);
-        case Kind: return natureName(e.nature);
-        case Missing: return QString::number(e.missing);
-        case InRole: return inRole ? roleName(*inRole) : QString();
+            case Name:
+                return QString::fromStdString(e.name);
+            case Kind:
+                return natureName(e.nature);
+            case Missing:
+                return QString::number(e.missing);
+            case InRole:
+                return inRole ? roleName(*inRole) : QString();
         }
     }
-    if (role == Qt::TextAlignmentRole && index.column() == Missing)
-        return QVariant(Qt::AlignRight | Qt::AlignVCenter);
+    if (role == Qt::TextAlignmentRole && index.column() == Missing) return QVariant(Qt::AlignRight | Qt::AlignVCenter);
     if (role == Qt::ForegroundRole && (index.column() == InRole || (index.column() == Missing && e.missing == 0)))
         return QBrush(mutedText(QApplication::palette(), QPalette::Base));
     if (role == Qt::ToolTipRole) {
@@ -73,10 +76,14 @@ QVariant ColumnListModel::data(const QModelIndex& index, int role) const {
 QVariant ColumnListModel::headerData(int section, Qt::Orientation o, int role) const {
     if (o != Qt::Horizontal || role != Qt::DisplayRole) return {};
     switch (section) {
-    case Name: return tr("Column");
-    case Kind: return tr("Kind");
-    case Missing: return tr("Missing");
-    case InRole: return tr("Role");
+        case Name:
+            return tr("Column");
+        case Kind:
+            return tr("Kind");
+        case Missing:
+            return tr("Missing");
+        case InRole:
+            return tr("Role");
     }
     return {};
 }

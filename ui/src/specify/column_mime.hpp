@@ -16,7 +16,7 @@ inline const QString kColumnMimeType = QStringLiteral("application/x-moderato-co
 
 struct ColumnDrag {
     std::string column;
-    std::optional<Role> from;   // none: dragged from the column list
+    std::optional<Role> from;  // none: dragged from the column list
 };
 
 // A new QMimeData carrying the column (the caller owns it).

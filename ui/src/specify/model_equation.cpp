@@ -174,11 +174,10 @@ QString interactionReading(const Analysis& a, const Table* table, const Analysis
     if (logistic) subject += tr(" on the log-odds scale");
     QString change;
     if (mn == ColumnNature::Categorical)
-        change = tr("differs between each level of %1 and its reference level %2").arg(M, referenceLevel(table, run, m));
-    else if (mn == ColumnNature::ZeroOne)
-        change = tr("changes from %1 = 0 to %1 = 1").arg(M);
-    else
-        change = tr("changes per unit of %1").arg(M);
+        change =
+            tr("differs between each level of %1 and its reference level %2").arg(M, referenceLevel(table, run, m));
+    else if (mn == ColumnNature::ZeroOne) change = tr("changes from %1 = 0 to %1 = 1").arg(M);
+    else change = tr("changes per unit of %1").arg(M);
     QString out = two.size() == 1 ? tr("%1 is how much %2 %3.").arg(bList(two), subject, change)
                                   : tr("%1 are how much %2 %3.").arg(bList(two), subject, change);
     if (!three.empty()) {
@@ -211,7 +210,8 @@ std::string factorColumn(const std::string& factor) {
     if (eq != std::string::npos) return factor.substr(0, eq);
     const std::size_t hat = factor.rfind('^');
     if (hat != std::string::npos && hat + 1 < factor.size() &&
-        std::all_of(factor.begin() + static_cast<long>(hat) + 1, factor.end(), [](char c) { return c >= '0' && c <= '9'; }))
+        std::all_of(factor.begin() + static_cast<long>(hat) + 1, factor.end(),
+                    [](char c) { return c >= '0' && c <= '9'; }))
         return factor.substr(0, hat);
     return factor;
 }
@@ -245,9 +245,9 @@ ModelEquation modelEquation(const Analysis& a, const Table* table, const Analysi
         for (std::size_t k = 0; k < coefs[i].size(); ++k) {
             const Atom& atom = coefs[i][k];
             if (k > 0) label += kTimes;
-            label += plain(atom.level.empty() ? (atom.power == 1 ? atom.column
-                                                                  : atom.column + "^" + std::to_string(atom.power))
-                                              : atom.column + "=" + atom.level);
+            label += plain(atom.level.empty()
+                               ? (atom.power == 1 ? atom.column : atom.column + "^" + std::to_string(atom.power))
+                               : atom.column + "=" + atom.level);
             if (!atom.level.empty()) hasIndicator = true;
         }
         eq.terms << (coefs[i].empty() ? QStringLiteral("intercept") : label);
@@ -275,9 +275,9 @@ ModelEquation modelEquation(const Analysis& a, const Table* table, const Analysi
             for (const auto& atom : f)
                 if (!atom.level.empty()) cats.insert(atom.column);
         QStringList refs;
-        for (const auto& c : cats)
-            refs << tr("%1 (reference level %2)").arg(plain(c), referenceLevel(table, run, c));
-        legend << tr("[column = level] is 1 in rows with that level and 0 otherwise; %1.").arg(refs.join(QStringLiteral(", ")));
+        for (const auto& c : cats) refs << tr("%1 (reference level %2)").arg(plain(c), referenceLevel(table, run, c));
+        legend << tr("[column = level] is 1 in rows with that level and 0 otherwise; %1.")
+                      .arg(refs.join(QStringLiteral(", ")));
     }
     if (a.centring == "mean") {
         QStringList centred;

@@ -17,11 +17,11 @@
 namespace moderato::ui {
 
 struct ModelEquation {
-    QStringList terms;     // coefficient labels in order ("intercept", "x", "region=North", "x×z")
-    QString html;          // the equation as rich text
-    QString plain;         // the same as plain text
-    QString legend;        // what ŷ and the indicators mean (plain text)
-    QString reading;       // "b₃ is how much the slope of x changes per unit of z."
+    QStringList terms;  // coefficient labels in order ("intercept", "x", "region=North", "x×z")
+    QString html;       // the equation as rich text
+    QString plain;      // the same as plain text
+    QString legend;     // what ŷ and the indicators mean (plain text)
+    QString reading;    // "b₃ is how much the slope of x changes per unit of z."
 };
 
 // Whether a run was fitted for this analysis's current roles and family.

@@ -16,13 +16,20 @@ QString plain(const std::string& s) { return QString::fromStdString(s); }
 template <class A>
 auto singleSlot(A& a, Role r) -> decltype(&a.roles.outcome) {
     switch (r) {
-    case Role::Outcome: return &a.roles.outcome;
-    case Role::Focal: return &a.roles.focal;
-    case Role::Moderator: return &a.roles.moderator;
-    case Role::SecondModerator: return &a.roles.second_moderator;
-    case Role::Weights: return &a.roles.weights;
-    case Role::Clusters: return &a.roles.clusters;
-    case Role::Controls: return nullptr;
+        case Role::Outcome:
+            return &a.roles.outcome;
+        case Role::Focal:
+            return &a.roles.focal;
+        case Role::Moderator:
+            return &a.roles.moderator;
+        case Role::SecondModerator:
+            return &a.roles.second_moderator;
+        case Role::Weights:
+            return &a.roles.weights;
+        case Role::Clusters:
+            return &a.roles.clusters;
+        case Role::Controls:
+            return nullptr;
     }
     return nullptr;
 }
@@ -76,13 +83,20 @@ QString formatValue(double v) { return QString::number(v, 'g', 10); }
 
 QString roleName(Role r) {
     switch (r) {
-    case Role::Outcome: return tr("Outcome");
-    case Role::Focal: return tr("Focal predictor");
-    case Role::Moderator: return tr("Moderator");
-    case Role::SecondModerator: return tr("Second moderator");
-    case Role::Controls: return tr("Controls");
-    case Role::Weights: return tr("Weights");
-    case Role::Clusters: return tr("Clusters");
+        case Role::Outcome:
+            return tr("Outcome");
+        case Role::Focal:
+            return tr("Focal predictor");
+        case Role::Moderator:
+            return tr("Moderator");
+        case Role::SecondModerator:
+            return tr("Second moderator");
+        case Role::Controls:
+            return tr("Controls");
+        case Role::Weights:
+            return tr("Weights");
+        case Role::Clusters:
+            return tr("Clusters");
     }
     return {};
 }
@@ -124,22 +138,32 @@ ColumnNature columnNature(const Column& c) {
 
 QString natureName(ColumnNature n) {
     switch (n) {
-    case ColumnNature::Numeric: return tr("numeric");
-    case ColumnNature::Categorical: return tr("categorical");
-    case ColumnNature::ZeroOne: return tr("0/1");
+        case ColumnNature::Numeric:
+            return tr("numeric");
+        case ColumnNature::Categorical:
+            return tr("categorical");
+        case ColumnNature::ZeroOne:
+            return tr("0/1");
     }
     return {};
 }
 
 QString seKindName(SeKind s) {
     switch (s) {
-    case SeKind::Classical: return tr("classical");
-    case SeKind::HC0: return QStringLiteral("HC0");
-    case SeKind::HC1: return QStringLiteral("HC1");
-    case SeKind::HC2: return QStringLiteral("HC2");
-    case SeKind::HC3: return QStringLiteral("HC3");
-    case SeKind::HC4: return QStringLiteral("HC4");
-    case SeKind::Cluster: return tr("cluster-robust");
+        case SeKind::Classical:
+            return tr("classical");
+        case SeKind::HC0:
+            return QStringLiteral("HC0");
+        case SeKind::HC1:
+            return QStringLiteral("HC1");
+        case SeKind::HC2:
+            return QStringLiteral("HC2");
+        case SeKind::HC3:
+            return QStringLiteral("HC3");
+        case SeKind::HC4:
+            return QStringLiteral("HC4");
+        case SeKind::Cluster:
+            return tr("cluster-robust");
     }
     return {};
 }
@@ -167,10 +191,10 @@ QStringList roleProblems(const Analysis& a, const Table* table) {
         QStringList names;
         for (Role r : roles) names << roleName(r);
         names.removeDuplicates();
-        out << (names.size() == 1 ? tr("%1 appears twice in %2; a column fills a role once.")
-                                        .arg(q(column), names.front())
-                                  : tr("%1 fills two roles (%2); a column can fill only one role.")
-                                        .arg(q(column), names.join(tr(" and "))));
+        out << (names.size() == 1
+                    ? tr("%1 appears twice in %2; a column fills a role once.").arg(q(column), names.front())
+                    : tr("%1 fills two roles (%2); a column can fill only one role.")
+                          .arg(q(column), names.join(tr(" and "))));
     }
     if (table) {
         for (int i = 0; i < kRoleCount; ++i) {
@@ -181,7 +205,8 @@ QStringList roleProblems(const Analysis& a, const Table* table) {
         }
         if (const Column* y = table->find(a.roles.outcome)) {
             if (y->kind == ColumnKind::Categorical) {
-                out << tr("The Outcome %1 is categorical; the Outcome must be a numeric column.").arg(q(a.roles.outcome));
+                out << tr("The Outcome %1 is categorical; the Outcome must be a numeric column.")
+                           .arg(q(a.roles.outcome));
             } else if (a.family == Family::Logistic) {
                 for (std::size_t i = 0; i < y->numbers.size(); ++i) {
                     const double v = y->numbers[i];
@@ -194,11 +219,13 @@ QStringList roleProblems(const Analysis& a, const Table* table) {
             }
         }
         if (const Column* w = table->find(a.roles.weights); w && w->kind == ColumnKind::Categorical)
-            out << tr("The Weights column %1 is categorical; weights must be positive numbers.").arg(q(a.roles.weights));
+            out << tr("The Weights column %1 is categorical; weights must be positive numbers.")
+                       .arg(q(a.roles.weights));
     }
     if (a.se == SeKind::Cluster && a.roles.clusters.empty())
-        out << tr("Cluster-robust standard errors need a Clusters column: drop one in the Clusters slot, or "
-                  "choose another kind of standard error.");
+        out << tr(
+            "Cluster-robust standard errors need a Clusters column: drop one in the Clusters slot, or "
+            "choose another kind of standard error.");
     if (!seOffered(a.family, a.se))
         out << tr("%1 standard errors are not offered for logistic models; choose classical, HC0, HC1 or "
                   "cluster-robust.")
@@ -237,8 +264,8 @@ RoleEdit assignColumn(const Analysis& before, const Table* table, Role target, c
     }
     if (target == Role::Controls) {
         after.roles.controls.push_back(column);
-        description = from ? tr("Move %1 from %2 to Controls").arg(col, roleName(*from))
-                           : tr("Add %1 to Controls").arg(col);
+        description =
+            from ? tr("Move %1 from %2 to Controls").arg(col, roleName(*from)) : tr("Add %1 to Controls").arg(col);
     } else {
         std::string* slot = singleSlot(after, target);
         const std::string previous = *slot;
@@ -282,7 +309,8 @@ RoleEdit setFamily(const Analysis& before, const Table* table, Family family) {
         // HC2–HC4 are linear-model corrections: the nearest sandwich that logistic models have is HC0.
         after.se = SeKind::HC0;
         description = tr("Set family to %1 (standard errors %2 → HC0)").arg(familyName(family), seKindName(before.se));
-        note = tr("%1 is not offered for logistic models, so the standard errors are now HC0.").arg(seKindName(before.se));
+        note =
+            tr("%1 is not offered for logistic models, so the standard errors are now HC0.").arg(seKindName(before.se));
     }
     return checked(before, std::move(after), table, description, note);
 }

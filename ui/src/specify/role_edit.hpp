@@ -20,9 +20,9 @@ namespace moderato::ui {
 enum class Role { Outcome, Focal, Moderator, SecondModerator, Controls, Weights, Clusters };
 inline constexpr int kRoleCount = 7;
 
-QString roleName(Role r);                    // "Outcome", "Focal predictor", ...
-bool roleTakesSeveral(Role r);               // Controls
-std::optional<Role> roleFromIndex(int i);    // -1 or out of range: none
+QString roleName(Role r);                  // "Outcome", "Focal predictor", ...
+bool roleTakesSeveral(Role r);             // Controls
+std::optional<Role> roleFromIndex(int i);  // -1 or out of range: none
 
 // The column(s) in a role.
 std::vector<std::string> roleColumns(const Analysis& a, Role r);
@@ -33,11 +33,11 @@ std::optional<Role> roleOf(const Analysis& a, const std::string& column);
 // only the values 0 and 1 (both present).
 enum class ColumnNature { Numeric, Categorical, ZeroOne };
 ColumnNature columnNature(const Column& c);
-QString natureName(ColumnNature n);          // "numeric", "categorical", "0/1"
+QString natureName(ColumnNature n);  // "numeric", "categorical", "0/1"
 
 // Display names of the standard-error kinds and families.
-QString seKindName(SeKind s);                // "classical", "HC0".."HC4", "cluster-robust"
-QString familyName(Family f);                // "linear", "logistic"
+QString seKindName(SeKind s);  // "classical", "HC0".."HC4", "cluster-robust"
+QString familyName(Family f);  // "linear", "logistic"
 // Whether core offers this SE kind for this family (HC2–HC4: linear only).
 bool seOffered(Family f, SeKind s);
 
@@ -45,9 +45,9 @@ bool seOffered(Family f, SeKind s);
 // was refused (then `after` is unset).
 struct RoleEdit {
     std::optional<Analysis> after;
-    QString description;   // "Set Moderator to soil_moisture_pct"
-    QString refusal;       // why nothing changed (empty when the edit is fine)
-    QString note;          // something the user should know about an accepted edit
+    QString description;  // "Set Moderator to soil_moisture_pct"
+    QString refusal;      // why nothing changed (empty when the edit is fine)
+    QString note;         // something the user should know about an accepted edit
 };
 
 // Puts `column` into `target`. `from` is the role the column was dragged out

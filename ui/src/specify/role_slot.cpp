@@ -24,27 +24,40 @@ namespace {
 
 QString roleKey(Role r) {
     switch (r) {
-    case Role::Outcome: return QStringLiteral("outcome");
-    case Role::Focal: return QStringLiteral("focal");
-    case Role::Moderator: return QStringLiteral("moderator");
-    case Role::SecondModerator: return QStringLiteral("second-moderator");
-    case Role::Controls: return QStringLiteral("controls");
-    case Role::Weights: return QStringLiteral("weights");
-    case Role::Clusters: return QStringLiteral("clusters");
+        case Role::Outcome:
+            return QStringLiteral("outcome");
+        case Role::Focal:
+            return QStringLiteral("focal");
+        case Role::Moderator:
+            return QStringLiteral("moderator");
+        case Role::SecondModerator:
+            return QStringLiteral("second-moderator");
+        case Role::Controls:
+            return QStringLiteral("controls");
+        case Role::Weights:
+            return QStringLiteral("weights");
+        case Role::Clusters:
+            return QStringLiteral("clusters");
     }
     return {};
 }
 
 QString roleHint(Role r) {
     switch (r) {
-    case Role::Outcome: return RoleSlot::tr("The column the model explains (numeric; 0/1 for a logistic model).");
-    case Role::Focal: return RoleSlot::tr("The predictor whose effect may depend on the moderator.");
-    case Role::Moderator: return RoleSlot::tr("The column the focal predictor's effect may depend on.");
-    case Role::SecondModerator:
-        return RoleSlot::tr("Optional: a third column in the product (a three-way interaction).");
-    case Role::Controls: return RoleSlot::tr("Optional: columns held constant, entered as main effects only.");
-    case Role::Weights: return RoleSlot::tr("Optional: positive case weights (weighted least squares).");
-    case Role::Clusters: return RoleSlot::tr("Optional: groups of rows for cluster-robust standard errors.");
+        case Role::Outcome:
+            return RoleSlot::tr("The column the model explains (numeric; 0/1 for a logistic model).");
+        case Role::Focal:
+            return RoleSlot::tr("The predictor whose effect may depend on the moderator.");
+        case Role::Moderator:
+            return RoleSlot::tr("The column the focal predictor's effect may depend on.");
+        case Role::SecondModerator:
+            return RoleSlot::tr("Optional: a third column in the product (a three-way interaction).");
+        case Role::Controls:
+            return RoleSlot::tr("Optional: columns held constant, entered as main effects only.");
+        case Role::Weights:
+            return RoleSlot::tr("Optional: positive case weights (weighted least squares).");
+        case Role::Clusters:
+            return RoleSlot::tr("Optional: groups of rows for cluster-robust standard errors.");
     }
     return {};
 }
@@ -89,20 +102,25 @@ private:
 }  // namespace
 
 RoleSlot::RoleSlot(Role role, QWidget* parent)
-    : QFrame(parent), role_(role), title_(new QLabel(roleName(role), this)), chipArea_(new QWidget(this)),
-      chips_(new FlowLayout(chipArea_, 4)), placeholder_(new QLabel(chipArea_)), picker_(new QToolButton(this)),
-      clear_(new QToolButton(this)), menu_(new QMenu(this)) {
+    : QFrame(parent),
+      role_(role),
+      title_(new QLabel(roleName(role), this)),
+      chipArea_(new QWidget(this)),
+      chips_(new FlowLayout(chipArea_, 4)),
+      placeholder_(new QLabel(chipArea_)),
+      picker_(new QToolButton(this)),
+      clear_(new QToolButton(this)),
+      menu_(new QMenu(this)) {
     setObjectName(QStringLiteral("slot-") + roleKey(role));
     setProperty("roleSlot", true);
     setAcceptDrops(true);
     setToolTip(roleHint(role));
-    setStyleSheet(QStringLiteral(
-        "QFrame[roleSlot=true] { border: 1px solid palette(mid); border-radius: 5px; }"
-        "QFrame[roleSlot=true][highlighted=true] { border: 2px solid %1; }"
-        "QFrame#column-chip { border: 1px solid %2; border-radius: 9px; background: %3; }"
-        "QFrame#column-chip QLabel { border: none; background: transparent; }")
-                      .arg(estuary::series(0).name(), cssRgba(estuary::series(0), 0.55),
-                           cssRgba(estuary::series(0), 0.12)));
+    setStyleSheet(
+        QStringLiteral("QFrame[roleSlot=true] { border: 1px solid palette(mid); border-radius: 5px; }"
+                       "QFrame[roleSlot=true][highlighted=true] { border: 2px solid %1; }"
+                       "QFrame#column-chip { border: 1px solid %2; border-radius: 9px; background: %3; }"
+                       "QFrame#column-chip QLabel { border: none; background: transparent; }")
+            .arg(estuary::series(0).name(), cssRgba(estuary::series(0), 0.55), cssRgba(estuary::series(0), 0.12)));
 
     auto* layout = new QHBoxLayout(this);
     layout->setContentsMargins(8, 4, 4, 4);
@@ -141,9 +159,7 @@ RoleSlot::RoleSlot(Role role, QWidget* parent)
     clear_->setAutoRaise(true);
     layout->addWidget(clear_);
     connect(clear_, &QToolButton::clicked, this, [this] { Q_EMIT columnCleared(QString()); });
-    connect(menu_, &QMenu::triggered, this, [this](QAction* a) {
-        Q_EMIT columnChosen(a->data().toString(), -1);
-    });
+    connect(menu_, &QMenu::triggered, this, [this](QAction* a) { Q_EMIT columnChosen(a->data().toString(), -1); });
 }
 
 void RoleSlot::setContents(const std::vector<std::string>& columns, const std::vector<Choice>& choices) {

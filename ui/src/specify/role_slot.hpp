@@ -31,7 +31,7 @@ public:
     struct Choice {
         std::string column;
         ColumnNature nature = ColumnNature::Numeric;
-        std::optional<Role> inRole;   // the role it fills now, if any
+        std::optional<Role> inRole;  // the role it fills now, if any
     };
     // The columns now in the slot and the columns the picker offers.
     void setContents(const std::vector<std::string>& columns, const std::vector<Choice>& choices);

@@ -2,9 +2,9 @@
 // figures readable in greyscale: colour, line style and end marker per series.
 #pragma once
 
+#include <QBrush>
 #include <QColor>
 #include <QPen>
-#include <QBrush>
 #include <Qt>
 
 namespace moderato::ui::estuary {

@@ -33,18 +33,18 @@
 #include <utility>
 #include <vector>
 
-#include "moderato/support/error.hpp"    // moderato::Cancelled
 #include "moderato/estimation/design.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/estimation/model.hpp"
+#include "moderato/support/error.hpp"  // moderato::Cancelled
 
 namespace moderato {
 
 struct BootstrapOptions {
-    int replicates = 2000;           // at least 100
+    int replicates = 2000;  // at least 100
     std::uint64_t seed = 1;
-    unsigned threads = 0;            // 0: all hardware threads; the numbers do not depend on it
-    double level = 0.95;             // of the percentile and BCa intervals
+    unsigned threads = 0;  // 0: all hardware threads; the numbers do not depend on it
+    double level = 0.95;   // of the percentile and BCa intervals
     // Called on the calling thread after each wave of fits with the fits done
     // and the total (replicates + jackknife fits for the BCa acceleration);
     // return false to cancel: bootstrap() then throws moderato::Cancelled.
@@ -61,8 +61,8 @@ using BootstrapStatistic = std::function<Eigen::VectorXd(const Design&, const Fi
 
 struct BootstrapInterval {
     static constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-    double estimate = kNaN;              // statistic on the full sample
-    double std_error = kNaN;             // SD of the valid replicates (divisor B - 1)
+    double estimate = kNaN;   // statistic on the full sample
+    double std_error = kNaN;  // SD of the valid replicates (divisor B - 1)
     double percentile_lower = kNaN, percentile_upper = kNaN;
     double bca_lower = kNaN, bca_upper = kNaN;  // NaN where BCa is undefined (see warnings)
     // The quantile levels behind the BCa endpoints (the percentile interval
@@ -70,7 +70,7 @@ struct BootstrapInterval {
     double bca_lower_level = kNaN, bca_upper_level = kNaN;
     double bias_correction_z0 = kNaN;
     double acceleration = kNaN;
-    int valid_replicates = 0;            // replicates with a finite value of this statistic
+    int valid_replicates = 0;  // replicates with a finite value of this statistic
 };
 
 struct BootstrapResult {
@@ -85,9 +85,9 @@ struct BootstrapResult {
     // whose statistic is undefined in some values still contributes its finite
     // values to their intervals.
     std::vector<std::pair<std::string, int>> failures;
-    std::vector<BootstrapInterval> intervals;   // m, one per statistic value
-    Eigen::MatrixXd replicates;                 // R x m; rows of failed fits are NaN
-    std::string resampling;                     // "cases" or "clusters (G = 40)"
+    std::vector<BootstrapInterval> intervals;  // m, one per statistic value
+    Eigen::MatrixXd replicates;                // R x m; rows of failed fits are NaN
+    std::string resampling;                    // "cases" or "clusters (G = 40)"
     // The jackknife behind the acceleration: "leave one row out (n = 80)",
     // "leave one cluster out (G = 40)", or "grouped: 200 groups (row i in
     // group i mod 200)" (delete-d jackknife, used above 200 rows or clusters).

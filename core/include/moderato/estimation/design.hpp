@@ -18,28 +18,28 @@ namespace moderato {
 // 0/1 indicator of one level of a categorical column.
 struct Atom {
     std::string column;
-    std::string level;   // empty for a numeric column
+    std::string level;  // empty for a numeric column
     int power = 1;
     bool operator==(const Atom&) const = default;
 };
 
 struct DesignColumn {
-    std::string label;          // "intercept", "x", "x^2", "region=North", "x×z"
-    std::vector<Atom> atoms;    // empty for the intercept
-    int term = 0;               // index into Design::terms
+    std::string label;        // "intercept", "x", "x^2", "region=North", "x×z"
+    std::vector<Atom> atoms;  // empty for the intercept
+    int term = 0;             // index into Design::terms
 };
 
 struct DesignTerm {
-    std::string label;          // the term before dummy expansion, e.g. "region×x"
+    std::string label;                                 // the term before dummy expansion, e.g. "region×x"
     std::vector<std::pair<std::string, int>> factors;  // column, power
-    int degree = 0;             // sum of powers (0: intercept)
-    bool added = false;         // added as a lower-order term of a product
-    std::vector<int> columns;   // design columns of this term
+    int degree = 0;                                    // sum of powers (0: intercept)
+    bool added = false;                                // added as a lower-order term of a product
+    std::vector<int> columns;                          // design columns of this term
 };
 
 struct Exclusion {
     std::string column;
-    std::size_t rows = 0;       // used-model rows missing this column
+    std::size_t rows = 0;  // used-model rows missing this column
 };
 
 struct CategoricalInfo {
@@ -53,17 +53,17 @@ struct NumericSummary {
 };
 
 struct Design {
-    Eigen::MatrixXd X;          // n x p
-    Eigen::VectorXd y;          // n
-    Eigen::VectorXd weights;    // n, or empty
-    std::vector<int> cluster;   // n cluster codes 0..G-1, or empty
+    Eigen::MatrixXd X;         // n x p
+    Eigen::VectorXd y;         // n
+    Eigen::VectorXd weights;   // n, or empty
+    std::vector<int> cluster;  // n cluster codes 0..G-1, or empty
     int n_clusters = 0;
     std::vector<std::string> cluster_names;  // G
     bool intercept = true;
     std::vector<DesignColumn> columns;
     std::vector<DesignTerm> terms;
     std::vector<CategoricalInfo> categoricals;
-    std::vector<std::size_t> rows;   // table row of each used observation
+    std::vector<std::size_t> rows;  // table row of each used observation
     std::size_t n_excluded = 0;
     std::vector<Exclusion> exclusions;
     std::vector<std::string> notes;

@@ -32,9 +32,9 @@ namespace moderato {
 
 // Rules of thumb for flagging rows (common practice, not tests).
 struct DiagnosticRules {
-    double residual_limit = 3.0;       // |studentised| (linear) or |standardised Pearson| (logistic) above this
-    double leverage_multiple = 3.0;    // leverage above this times p / n
-    double cooks_numerator = 4.0;      // Cook's distance above this divided by n
+    double residual_limit = 3.0;     // |studentised| (linear) or |standardised Pearson| (logistic) above this
+    double leverage_multiple = 3.0;  // leverage above this times p / n
+    double cooks_numerator = 4.0;    // Cook's distance above this divided by n
 };
 
 enum DiagnosticFlag : unsigned {
@@ -44,26 +44,26 @@ enum DiagnosticFlag : unsigned {
 };
 
 struct FlaggedRow {
-    std::size_t observation = 0;       // index among the used rows (0-based)
-    std::size_t table_row = 0;         // Design::rows[observation]
-    unsigned flags = 0;                // DiagnosticFlag bits
+    std::size_t observation = 0;  // index among the used rows (0-based)
+    std::size_t table_row = 0;    // Design::rows[observation]
+    unsigned flags = 0;           // DiagnosticFlag bits
 };
 
 struct Diagnostics {
     Family family = Family::Linear;
     bool weighted = false;
     std::size_t n = 0;
-    int p = 0;                         // rank of the design
-    double scale = 1;                  // phi: residual variance (linear), 1 (logistic)
+    int p = 0;         // rank of the design
+    double scale = 1;  // phi: residual variance (linear), 1 (logistic)
 
-    Eigen::VectorXd fitted;            // fitted value (linear) or fitted probability (logistic)
-    Eigen::VectorXd residuals;         // response residual y - fitted
+    Eigen::VectorXd fitted;     // fitted value (linear) or fitted probability (logistic)
+    Eigen::VectorXd residuals;  // response residual y - fitted
     Eigen::VectorXd pearson;
-    Eigen::VectorXd deviance;          // logistic only (empty for linear)
+    Eigen::VectorXd deviance;  // logistic only (empty for linear)
     Eigen::VectorXd leverage;
-    Eigen::VectorXd standardised;      // internally studentised (Pearson based)
+    Eigen::VectorXd standardised;           // internally studentised (Pearson based)
     Eigen::VectorXd standardised_deviance;  // logistic only: deviance / sqrt(1 - h)
-    Eigen::VectorXd studentised;       // linear only: externally studentised
+    Eigen::VectorXd studentised;            // linear only: externally studentised
     Eigen::VectorXd cooks_distance;
 
     // The residual each plot shows and the rules use, and what it is called.
@@ -76,7 +76,7 @@ struct Diagnostics {
     // Pearson ("Pearson residual").
     const Eigen::VectorXd& plot_residual() const { return family == Family::Linear && !weighted ? residuals : pearson; }
     std::string plot_residual_name;
-    std::string fitted_name;           // "fitted value" / "fitted probability"
+    std::string fitted_name;  // "fitted value" / "fitted probability"
 
     // For the normal quantile plot: linear: the studentised residuals;
     // logistic: the standardised deviance residuals (closer to normal than
@@ -114,9 +114,9 @@ double cooks_contour(double cooks, int p, double leverage);
 // (i - 3/8) / (n + 1/4), i = 1..n, beside each.
 struct QuantilePlot {
     std::string rule = "Blom plotting positions (i - 3/8) / (n + 1/4)";
-    std::vector<std::size_t> order;    // index into `values` of the i-th smallest
-    std::vector<double> observed;      // sorted values
-    std::vector<double> theoretical;   // normal quantiles
+    std::vector<std::size_t> order;   // index into `values` of the i-th smallest
+    std::vector<double> observed;     // sorted values
+    std::vector<double> theoretical;  // normal quantiles
 };
 QuantilePlot normal_quantile_plot(const Eigen::VectorXd& values);
 double blom_position(std::size_t i, std::size_t n);  // i 1-based

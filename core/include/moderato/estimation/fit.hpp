@@ -17,17 +17,17 @@ namespace moderato {
 struct Coefficient {
     std::string term;
     double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
-    bool aliased = false;       // estimate and the rest are NaN when aliased
-    double vif = 0;             // NaN where it does not apply (intercept, no-intercept model, aliased)
+    bool aliased = false;  // estimate and the rest are NaN when aliased
+    double vif = 0;        // NaN where it does not apply (intercept, no-intercept model, aliased)
 };
 
 struct WaldTest {
     std::vector<std::string> terms;
-    double statistic = 0;       // F form (chi-square / q for logistic models)
-    double df1 = 0, df2 = 0;    // df2 = inf: chi-square(df1) reference
-    double chi_square = 0;      // q * statistic
+    double statistic = 0;     // F form (chi-square / q for logistic models)
+    double df1 = 0, df2 = 0;  // df2 = inf: chi-square(df1) reference
+    double chi_square = 0;    // q * statistic
     double p_value = 0;
-    std::string covariance;     // the covariance kind used
+    std::string covariance;  // the covariance kind used
 };
 
 // The model with and without all product terms, fitted on the same rows.
@@ -49,13 +49,13 @@ struct FitResult {
     std::size_t n = 0, n_excluded = 0;
     std::vector<Exclusion> exclusions;
     std::vector<Coefficient> coefficients;
-    Eigen::VectorXd beta;          // p; NaN for aliased
-    Eigen::MatrixXd covariance;    // p x p; NaN rows/columns for aliased
+    Eigen::VectorXd beta;        // p; NaN for aliased
+    Eigen::MatrixXd covariance;  // p x p; NaN rows/columns for aliased
     std::vector<std::string> aliased;
     int rank = 0;
     double df_residual = 0;
-    double df_inference = 0;       // t df for intervals (n - rank, G - 1 for cluster; inf for logistic)
-    double critical_value = 0;     // t or z quantile for the CIs
+    double df_inference = 0;    // t df for intervals (n - rank, G - 1 for cluster; inf for logistic)
+    double critical_value = 0;  // t or z quantile for the CIs
     int n_clusters = 0;
 
     // linear
@@ -68,7 +68,7 @@ struct FitResult {
     double lr_statistic = 0, lr_df = 0, lr_p_value = 0;
     int iterations = 0;
     bool converged = true;
-    bool separation = false;       // (quasi-)complete separation detected
+    bool separation = false;  // (quasi-)complete separation detected
 
     std::optional<NestedComparison> comparison;
     std::vector<WaldTest> wald_tests;
@@ -76,8 +76,8 @@ struct FitResult {
     std::vector<std::string> warnings;
     bool extended_precision = false;
 
-    Eigen::VectorXd fitted;        // linear predictor scale (probabilities for logistic)
-    Eigen::VectorXd residuals;     // y - fitted (response residuals)
+    Eigen::VectorXd fitted;     // linear predictor scale (probabilities for logistic)
+    Eigen::VectorXd residuals;  // y - fitted (response residuals)
 
     // Model terms before dummy expansion ("x×region") and their columns.
     std::vector<std::pair<std::string, std::vector<int>>> terms;
@@ -87,7 +87,7 @@ struct FitResult {
 
 struct FitOptions {
     bool compare_without_products = true;
-    int max_iterations = 100;      // logistic
+    int max_iterations = 100;  // logistic
     // Problems with n * (p + 1)^2 up to this are solved in long double
     // (see least_squares.hpp); 0 forces the blocked double-precision path.
     double extended_budget = 2e7;

@@ -15,14 +15,14 @@ namespace moderato {
 
 struct LeastSquaresResult {
     int rank = 0;
-    std::vector<int> kept;          // estimable columns, ascending
-    std::vector<int> aliased;       // columns that are linear combinations of earlier ones
-    Eigen::VectorXd coef;           // p entries; NaN for aliased columns
+    std::vector<int> kept;     // estimable columns, ascending
+    std::vector<int> aliased;  // columns that are linear combinations of earlier ones
+    Eigen::VectorXd coef;      // p entries; NaN for aliased columns
     // k x k factor A with (X_K' W X_K)^{-1} = A A' (K: kept columns). The rows
     // of X_K A give leverages and scores without forming X'X.
     Eigen::MatrixXd inverse_factor;
-    Eigen::VectorXd residuals;      // y - X b (unweighted)
-    double rss = 0;                 // sum of w e^2
+    Eigen::VectorXd residuals;  // y - X b (unweighted)
+    double rss = 0;             // sum of w e^2
     // Q'y of the unpivoted factorisation of [X | y] in design column order:
     // qty[j]^2 is the drop in RSS from adding column j after columns 0..j-1
     // (sequential sums of squares), valid while the design has full rank.
@@ -31,7 +31,7 @@ struct LeastSquaresResult {
 };
 
 struct LeastSquaresOptions {
-    unsigned threads = 0;            // 0: all hardware threads
+    unsigned threads = 0;  // 0: all hardware threads
     // Relative size of a pivot in R (of the unit-norm-scaled design) below
     // which a column counts as aliased.
     double rank_tolerance = 1e-13;
@@ -41,7 +41,6 @@ struct LeastSquaresOptions {
 
 // weights: empty for OLS, else positive weights (WLS).
 LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
-                                 const Eigen::VectorXd& weights = {},
-                                 const LeastSquaresOptions& options = {});
+                                 const Eigen::VectorXd& weights = {}, const LeastSquaresOptions& options = {});
 
 }  // namespace moderato

@@ -12,7 +12,7 @@ enum class Family { Linear, Logistic };
 enum class SeKind { Classical, HC0, HC1, HC2, HC3, HC4, Cluster };
 
 const char* to_string(Family f);
-const char* to_string(SeKind s);       // "classical", "hc0", ..., "cluster"
+const char* to_string(SeKind s);  // "classical", "hc0", ..., "cluster"
 // Parse "classical", "hc0".."hc4", "cluster"; InputError otherwise.
 SeKind parse_se_kind(const std::string& text);
 Family parse_family(const std::string& text);
@@ -25,12 +25,12 @@ struct ModelSpec {
     bool intercept = true;
     Family family = Family::Linear;
     SeKind se = SeKind::Classical;
-    std::string weights;                                 // empty: none
-    std::string cluster;                                 // empty: none (required when se == Cluster)
+    std::string weights;  // empty: none
+    std::string cluster;  // empty: none (required when se == Cluster)
     double level = 0.95;
-    std::map<std::string, std::string> reference_levels; // categorical column -> reference level
-    std::vector<std::vector<std::string>> wald_tests;    // sets of term labels to test jointly
-    unsigned threads = 0;                                // 0: all hardware threads
+    std::map<std::string, std::string> reference_levels;  // categorical column -> reference level
+    std::vector<std::vector<std::string>> wald_tests;     // sets of term labels to test jointly
+    unsigned threads = 0;                                 // 0: all hardware threads
 };
 
 }  // namespace moderato

@@ -19,9 +19,9 @@
 namespace moderato {
 
 struct Cell {
-    std::size_t row = 0, column = 0;        // level indices (reference = 0)
+    std::size_t row = 0, column = 0;  // level indices (reference = 0)
     std::string row_level, column_level;
-    std::size_t n = 0;                      // used rows observed in the cell
+    std::size_t n = 0;  // used rows observed in the cell
     // Mean outcome of those rows (weighted by the fit's weights, if any; the
     // share of 1s for a logistic fit); NaN for an empty cell.
     double observed_mean = 0;
@@ -36,10 +36,10 @@ struct Cell {
 
 // A difference of two cells (a simple effect) on the link scale.
 struct SimpleEffect {
-    std::string factor;                     // the factor whose levels are compared
-    std::string level, reference;           // level vs the reference level of `factor`
-    std::string at_factor, at_level;        // the other factor, held at this level
-    std::string label;                      // "a=L1 vs a=L0 at b=M2"
+    std::string factor;               // the factor whose levels are compared
+    std::string level, reference;     // level vs the reference level of `factor`
+    std::string at_factor, at_level;  // the other factor, held at this level
+    std::string label;                // "a=L1 vs a=L0 at b=M2"
     double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
     // Logistic only (NaN otherwise): exp of estimate and CI ends (odds ratio).
     double odds_ratio = 0, odds_ratio_lower = 0, odds_ratio_upper = 0;
@@ -49,8 +49,8 @@ struct SimpleEffect {
 // (mu_ij - mu_i0) - (mu_0j - mu_00): how much the row effect of level i
 // changes from the reference column level to column level j.
 struct InteractionContrast {
-    std::string row_level, column_level;    // non-reference levels i and j
-    std::string label;                      // "(a=L1 vs a=L0) at b=M1 minus at b=M0"
+    std::string row_level, column_level;  // non-reference levels i and j
+    std::string label;                    // "(a=L1 vs a=L0) at b=M1 minus at b=M0"
     double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
     // Logistic only (NaN otherwise): ratio of odds ratios, exp of the above.
     double odds_ratio = 0, odds_ratio_lower = 0, odds_ratio_upper = 0;
@@ -61,13 +61,13 @@ struct CellTable {
     std::string row_factor, column_factor;
     std::vector<std::string> row_levels, column_levels;  // reference first
     Family family = Family::Linear;
-    std::string scale;                      // "mean" or "log-odds"
-    std::string covariance;                 // SE kind, as in to_string(SeKind)
+    std::string scale;       // "mean" or "log-odds"
+    std::string covariance;  // SE kind, as in to_string(SeKind)
     double level = 0.95, df = 0, critical_value = 0;
     // Every other model column as the cells hold it (numeric: value;
     // categorical: level index, reference = 0).
     std::map<std::string, double> held;
-    std::vector<Cell> cells;                // row-major: cells[i * column_levels.size() + j]
+    std::vector<Cell> cells;  // row-major: cells[i * column_levels.size() + j]
     // Row levels vs the reference row level, at each column level (column
     // level outer, row level inner); then the same with the roles swapped.
     std::vector<SimpleEffect> row_effects, column_effects;

@@ -32,24 +32,24 @@ std::string noncentrality_formula(Noncentrality c);
 Noncentrality parse_noncentrality(const std::string& text, const std::string& option);
 
 struct PowerDesign {
-    long long tested_terms = 1;       // u ≥ 1
-    long long total_predictors = 1;   // k ≥ u, excluding the intercept
-    double alpha = 0.05;              // 0 < alpha < 1
+    long long tested_terms = 1;      // u ≥ 1
+    long long total_predictors = 1;  // k ≥ u, excluding the intercept
+    double alpha = 0.05;             // 0 < alpha < 1
     Noncentrality convention = Noncentrality::cohen;
 };
 
 struct PowerResult {
     double f2 = 0;
     long long n = 0;
-    long long tested_terms = 0;       // u
-    long long total_predictors = 0;   // k
+    long long tested_terms = 0;      // u
+    long long total_predictors = 0;  // k
     double alpha = 0;
     Noncentrality convention = Noncentrality::cohen;
-    double df1 = 0;                   // u
-    double df2 = 0;                   // n − k − 1
-    double noncentrality = 0;         // λ
-    double critical_f = 0;            // upper-alpha point of F(df1, df2)
-    double power = 0;                 // P(F' > critical_f)
+    double df1 = 0;            // u
+    double df2 = 0;            // n − k − 1
+    double noncentrality = 0;  // λ
+    double critical_f = 0;     // upper-alpha point of F(df1, df2)
+    double power = 0;          // P(F' > critical_f)
 };
 
 // Power of the F test for the tested terms at effect size f2 and sample size n.
@@ -61,8 +61,8 @@ double noncentrality_for(double f2, long long n, const PowerDesign& design);
 
 struct SampleSizeResult {
     double target_power = 0;
-    PowerResult at_n;                 // the smallest n whose power ≥ target
-    double power_one_fewer = 0;       // power at n − 1 (NaN when n − 1 < k + 2)
+    PowerResult at_n;            // the smallest n whose power ≥ target
+    double power_one_fewer = 0;  // power at n − 1 (NaN when n − 1 < k + 2)
 };
 
 // The smallest n (≥ k + 2) with power ≥ target_power: power rises with n, so
@@ -73,7 +73,7 @@ SampleSizeResult smallest_n_for_power(double f2, double target_power, const Powe
 
 struct DetectableResult {
     double target_power = 0;
-    PowerResult at_f2;                // at_f2.f2 is the smallest detectable f²
+    PowerResult at_f2;  // at_f2.f2 is the smallest detectable f²
 };
 
 // The f² at which the test has exactly target_power with n observations
@@ -89,7 +89,7 @@ double f2_from_r2(double r2_full, double r2_reduced);
 // f² = R²_partial / (1 − R²_partial) and back, R²_partial = f² / (1 + f²),
 // where R²_partial is the share of the variance left by the reduced model
 // that the tested terms explain.
-double f2_from_partial_r2(double partial_r2);   // 0 ≤ partial_r2 < 1
-double partial_r2_from_f2(double f2);           // f2 ≥ 0, finite
+double f2_from_partial_r2(double partial_r2);  // 0 ≤ partial_r2 < 1
+double partial_r2_from_f2(double f2);          // f2 ≥ 0, finite
 
 }  // namespace moderato

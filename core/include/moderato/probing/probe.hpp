@@ -22,9 +22,9 @@ struct Region {
 
 struct EffectPoint {
     double moderator_value = 0;
-    std::string level;          // categorical moderator: the level (moderator_value is its index)
+    std::string level;  // categorical moderator: the level (moderator_value is its index)
     double effect = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
-    bool beyond_data = false;   // moderator value outside the observed range
+    bool beyond_data = false;  // moderator value outside the observed range
 };
 
 // The conditional effect of `focal` is a polynomial in the moderator value m:
@@ -39,7 +39,7 @@ public:
     // The g_k vectors: they depend on the held values only, not on the data,
     // so a refit (e.g. a bootstrap replicate) reuses them with its own b and V.
     const std::vector<Eigen::VectorXd>& basis() const { return g_; }
-    Eigen::VectorXd gradient(double m) const;     // g(m)
+    Eigen::VectorXd gradient(double m) const;  // g(m)
     double effect(double m) const;
     double variance(double m) const;
     // Coefficients of effect(m) = sum a_k m^k and of var(m) = sum v_kl m^(k+l).
@@ -56,9 +56,9 @@ private:
 // effect(m)^2 > q^2 var(m).
 struct SignificanceRegions {
     double critical_value = 0;
-    std::vector<double> boundaries;           // sorted
-    std::vector<Region> significant;          // disjoint, sorted; +-inf for unbounded
-    std::string kind;                         // "two boundaries, significant outside", ...
+    std::vector<double> boundaries;   // sorted
+    std::vector<Region> significant;  // disjoint, sorted; +-inf for unbounded
+    std::string kind;                 // "two boundaries, significant outside", ...
 };
 
 // Exact for effects linear in m (roots of a quadratic, every case); for
@@ -69,10 +69,10 @@ SignificanceRegions significance_regions(const EffectFunction& f, double critica
 struct ProbeSpec {
     std::string focal;
     std::string moderator;
-    std::string second_moderator;             // empty: none
+    std::string second_moderator;                                    // empty: none
     double second_value = std::numeric_limits<double>::quiet_NaN();  // NaN: its mean
     double focal_value = std::numeric_limits<double>::quiet_NaN();   // for a squared focal: NaN = its mean
-    std::vector<double> at;                   // moderator values; empty: defaults
+    std::vector<double> at;                                          // moderator values; empty: defaults
 };
 
 struct Crossover {
@@ -81,12 +81,12 @@ struct Crossover {
     // "bounded" [lo, hi]; "unbounded" (-inf, lo] U [hi, inf); "whole line"; "none" (parallel lines)
     std::string ci_kind = "none";
     bool within_observed_range = false;
-    std::string form;                         // "disordinal" (crossing inside the data) or "ordinal"
-    std::string groups;                       // which lines: "g=0 vs g=1", "z at 1.2 vs 3.4"
+    std::string form;    // "disordinal" (crossing inside the data) or "ordinal"
+    std::string groups;  // which lines: "g=0 vs g=1", "z at 1.2 vs 3.4"
     // Where the two groups' predictions differ (the Johnson–Neyman technique
     // applied to the group gap over the focal predictor).
     SignificanceRegions gap_regions;
-    EffectFunction gap;                       // the group gap over the focal predictor
+    EffectFunction gap;  // the group gap over the focal predictor
 };
 
 // Predicted outcome (link scale) over a grid of two numeric predictors, the
@@ -94,7 +94,7 @@ struct Crossover {
 struct SurfaceGrid {
     std::string x, z;
     std::vector<double> x_values, z_values;
-    Eigen::MatrixXd predicted;                // z_values.size() x x_values.size()
+    Eigen::MatrixXd predicted;  // z_values.size() x x_values.size()
     Eigen::MatrixXd std_error;
 };
 SurfaceGrid surface_grid(const Design& design, const FitResult& fit, const std::string& x, const std::string& z,
@@ -102,28 +102,28 @@ SurfaceGrid surface_grid(const Design& design, const FitResult& fit, const std::
 
 // An interaction effect on the probability scale (see response_scale.hpp).
 struct InteractionEffect {
-    std::string kind;   // "cross-partial derivative", "difference in slopes", "double difference"
+    std::string kind;  // "cross-partial derivative", "difference in slopes", "double difference"
     double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
 };
 
 struct ProbeResult {
     std::string outcome, focal, moderator;
-    std::string scale = "link";                             // "link" or "response" (probability)
-    std::string averaging;                                  // response scale: "sample" or "values"
-    std::optional<InteractionEffect> interaction_effect;    // response scale
+    std::string scale = "link";                           // "link" or "response" (probability)
+    std::string averaging;                                // response scale: "sample" or "values"
+    std::optional<InteractionEffect> interaction_effect;  // response scale
     bool categorical_moderator = false;
     double level = 0.95, df = 0, critical_t = 0;
-    std::pair<double, double> observed_range{0, 0};        // moderator, used rows
+    std::pair<double, double> observed_range{0, 0};  // moderator, used rows
     std::pair<double, double> focal_range{0, 0};
     double moderator_mean = 0, moderator_sd = 0;
     std::vector<EffectPoint> effects;
-    std::optional<SignificanceRegions> johnson_neyman;      // continuous moderator only
-    std::vector<bool> jn_beyond_data;                       // per boundary
+    std::optional<SignificanceRegions> johnson_neyman;  // continuous moderator only
+    std::vector<bool> jn_beyond_data;                   // per boundary
     std::optional<SignificanceRegions> simultaneous;
     std::vector<Crossover> crossovers;
     std::vector<std::string> notes;
-    std::vector<std::string> cautions;                      // what a reader must not overlook
-    EffectFunction effect_function;                         // for plots and the slider
+    std::vector<std::string> cautions;  // what a reader must not overlook
+    EffectFunction effect_function;     // for plots and the slider
 };
 
 // InputError for: a focal column not in any product term, a moderator not in

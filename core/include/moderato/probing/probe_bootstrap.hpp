@@ -13,9 +13,9 @@
 namespace moderato {
 
 struct ProbeBootstrap {
-    std::vector<std::string> labels;   // one per statistic, e.g. "effect at z = 1.5", "boundary 1", "crossover"
-    std::vector<std::string> kinds;    // "effect", "boundary", "crossover"
-    std::vector<double> at;            // moderator value (effects), index (boundaries), NaN (crossover)
+    std::vector<std::string> labels;  // one per statistic, e.g. "effect at z = 1.5", "boundary 1", "crossover"
+    std::vector<std::string> kinds;   // "effect", "boundary", "crossover"
+    std::vector<double> at;           // moderator value (effects), index (boundaries), NaN (crossover)
     BootstrapResult result;
     std::uint64_t seed = 0;
 };

@@ -19,9 +19,9 @@
 namespace moderato {
 
 struct CurvePoint {
-    double x = 0;               // focal value (a line) or moderator value (an effect curve)
-    double estimate = 0;        // predicted outcome, probability or effect
-    double std_error = 0;       // on the scale of `estimate`
+    double x = 0;          // focal value (a line) or moderator value (an effect curve)
+    double estimate = 0;   // predicted outcome, probability or effect
+    double std_error = 0;  // on the scale of `estimate`
     double lower = 0, upper = 0;
 };
 

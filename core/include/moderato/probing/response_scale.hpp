@@ -16,8 +16,8 @@
 namespace moderato {
 
 enum class Averaging {
-    Sample,     // every observation at its own covariate values, then averaged
-    AtValues,   // one profile: covariates at their means / reference levels (or as given)
+    Sample,    // every observation at its own covariate values, then averaged
+    AtValues,  // one profile: covariates at their means / reference levels (or as given)
 };
 
 struct ScaleRequest {

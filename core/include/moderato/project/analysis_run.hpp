@@ -10,9 +10,9 @@
 #include <string>
 #include <vector>
 
-#include "moderato/probing/cells.hpp"
 #include "moderato/estimation/design.hpp"
 #include "moderato/estimation/fit.hpp"
+#include "moderato/probing/cells.hpp"
 #include "moderato/probing/probe.hpp"
 #include "moderato/project/project.hpp"
 #include "moderato/reading/table.hpp"
@@ -29,26 +29,26 @@ std::shared_ptr<const Table> with_recipes(std::shared_ptr<const Table> base, con
 
 // Which plots an analysis offers, from the kinds of its focal predictor and moderator.
 enum class ProbeKind {
-    Continuous,      // numeric moderator (not 0/1): Effect plot, JN, slider
-    Groups,          // categorical or 0/1 moderator, numeric focal: one line per group
-    Cells,           // focal and moderator both categorical or 0/1: cell table
+    Continuous,  // numeric moderator (not 0/1): Effect plot, JN, slider
+    Groups,      // categorical or 0/1 moderator, numeric focal: one line per group
+    Cells,       // focal and moderator both categorical or 0/1: cell table
 };
 
 struct AnalysisRun {
     std::string analysis_id;
-    std::shared_ptr<const Table> table;         // with derived columns
+    std::shared_ptr<const Table> table;  // with derived columns
     ModelSpec spec;
     Design design;
     FitResult fit;
     ProbeKind kind = ProbeKind::Continuous;
-    std::optional<ProbeResult> probe;           // link scale (or the probability scale when asked)
-    std::optional<ProbeResult> probe_link;      // the link-scale probe when `probe` is on the probability scale
+    std::optional<ProbeResult> probe;       // link scale (or the probability scale when asked)
+    std::optional<ProbeResult> probe_link;  // the link-scale probe when `probe` is on the probability scale
     std::optional<CellTable> cells;
-    std::optional<SurfaceGrid> surface;         // both focal and moderator numeric, non-binary
+    std::optional<SurfaceGrid> surface;  // both focal and moderator numeric, non-binary
     // centring = "mean": the same model with centred columns, for the coefficient table.
     std::optional<FitResult> centred_fit;
-    std::map<std::string, double> centres;      // column -> centre used
-    std::vector<std::string> cautions;          // association, extrapolation, multiple testing, ...
+    std::map<std::string, double> centres;  // column -> centre used
+    std::vector<std::string> cautions;      // association, extrapolation, multiple testing, ...
 };
 
 // Fits and probes. `table` must already hold the derived columns. Throws

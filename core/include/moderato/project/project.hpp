@@ -11,18 +11,18 @@
 #include <string>
 #include <vector>
 
-#include "moderato/reading/csv.hpp"
 #include "moderato/estimation/model.hpp"
+#include "moderato/reading/csv.hpp"
 
 namespace moderato {
 
 inline constexpr int kProjectSchemaVersion = 1;
 
 struct DataSource {
-    std::string id;            // stable key, e.g. "spend"
-    std::string path;          // relative to the project file ('/' separators), or absolute
-    std::string sha256;        // lower-case hex of the file when the project was saved; empty: unknown
-    CsvOptions import;         // delimiter, header, missing tokens, decimal comma, column kinds
+    std::string id;      // stable key, e.g. "spend"
+    std::string path;    // relative to the project file ('/' separators), or absolute
+    std::string sha256;  // lower-case hex of the file when the project was saved; empty: unknown
+    CsvOptions import;   // delimiter, header, missing tokens, decimal comma, column kinds
     // Every saved field (CsvOptions::threads is not saved and not compared).
     bool operator==(const DataSource&) const;
 };
@@ -31,13 +31,13 @@ struct DataSource {
 // "centre-value" (uses `value`), "standardise", "log", "log1p", "square",
 // "dummy" (uses `level`), "product" (uses `other`).
 struct DerivedRecipe {
-    std::string dataset;       // DataSource::id
-    std::string name;          // the new column
+    std::string dataset;  // DataSource::id
+    std::string name;     // the new column
     std::string kind;
-    std::string source;        // the column it is computed from
-    std::string other;         // second column (product)
-    std::string level;         // dummy
-    double value = 0;          // centre-value
+    std::string source;  // the column it is computed from
+    std::string other;   // second column (product)
+    std::string level;   // dummy
+    double value = 0;    // centre-value
     bool operator==(const DerivedRecipe&) const = default;
 };
 
@@ -48,23 +48,23 @@ struct Roles {
     std::string outcome;
     std::string focal;
     std::string moderator;
-    std::string second_moderator;          // empty: none
+    std::string second_moderator;  // empty: none
     std::vector<std::string> controls;
-    std::string weights;                   // empty: none
-    std::string clusters;                  // empty: none
+    std::string weights;   // empty: none
+    std::string clusters;  // empty: none
     bool operator==(const Roles&) const = default;
 };
 
 struct ProbeSettings {
     // Moderator value under the slider (NaN: the moderator's mean).
     double current = std::numeric_limits<double>::quiet_NaN();
-    std::vector<double> pinned;            // pinned moderator values, in the order pinned
+    std::vector<double> pinned;                                      // pinned moderator values, in the order pinned
     double second_value = std::numeric_limits<double>::quiet_NaN();  // second moderator held at (NaN: mean)
-    std::string scale = "link";            // "link" or "response" (logistic: probability)
-    std::string averaging = "sample";      // response scale: "sample" or "values"
-    bool simultaneous_band = false;        // show the simultaneous band instead of pointwise
-    bool show_points = true;               // data points on the Lines plot
-    bool show_gaps = true;                 // shade where two groups' (or lines') predictions differ
+    std::string scale = "link";                                      // "link" or "response" (logistic: probability)
+    std::string averaging = "sample";                                // response scale: "sample" or "values"
+    bool simultaneous_band = false;                                  // show the simultaneous band instead of pointwise
+    bool show_points = true;                                         // data points on the Lines plot
+    bool show_gaps = true;  // shade where two groups' (or lines') predictions differ
     bool operator==(const ProbeSettings&) const;
 };
 
@@ -82,9 +82,9 @@ struct FigureSettings {
 };
 
 struct Analysis {
-    std::string id;                        // stable key
-    std::string name;                      // shown in the Project sidebar
-    std::string dataset;                   // DataSource::id
+    std::string id;       // stable key
+    std::string name;     // shown in the Project sidebar
+    std::string dataset;  // DataSource::id
     Roles roles;
     Family family = Family::Linear;
     SeKind se = SeKind::Classical;
@@ -95,7 +95,7 @@ struct Analysis {
     std::string centring = "none";
     ProbeSettings probe;
     FigureSettings figure;
-    std::string memo_notes;                // the analyst's own words, printed at the top of the memo
+    std::string memo_notes;  // the analyst's own words, printed at the top of the memo
     bool operator==(const Analysis&) const;
 };
 
@@ -104,7 +104,7 @@ struct Analysis {
 struct FigureEntry {
     std::string id;
     std::string name;
-    std::string analysis;                  // Analysis::id
+    std::string analysis;  // Analysis::id
     std::string plot;
     bool operator==(const FigureEntry&) const = default;
 };
@@ -115,7 +115,7 @@ struct Project {
     std::vector<DerivedRecipe> derived;
     std::vector<Analysis> analyses;
     std::vector<FigureEntry> figures;
-    std::vector<std::string> migration_notes;   // filled when an older schema was read (not saved)
+    std::vector<std::string> migration_notes;  // filled when an older schema was read (not saved)
 
     // Every saved field; migration_notes (not saved) are not compared.
     bool operator==(const Project&) const;

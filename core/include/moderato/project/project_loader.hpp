@@ -7,8 +7,8 @@
 #include <string>
 #include <vector>
 
-#include "moderato/reading/csv.hpp"
 #include "moderato/project/project.hpp"
+#include "moderato/reading/csv.hpp"
 #include "moderato/reading/table.hpp"
 
 namespace moderato {

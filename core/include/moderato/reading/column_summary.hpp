@@ -29,11 +29,11 @@ struct ColumnSummary {
     double mean = std::numeric_limits<double>::quiet_NaN();
     double sd = std::numeric_limits<double>::quiet_NaN();  // sample SD, divisor n - 1
     double min = std::numeric_limits<double>::quiet_NaN();
-    double q1 = std::numeric_limits<double>::quiet_NaN();      // 25th percentile
+    double q1 = std::numeric_limits<double>::quiet_NaN();  // 25th percentile
     double median = std::numeric_limits<double>::quiet_NaN();
-    double q3 = std::numeric_limits<double>::quiet_NaN();      // 75th percentile
+    double q3 = std::numeric_limits<double>::quiet_NaN();  // 75th percentile
     double max = std::numeric_limits<double>::quiet_NaN();
-    Histogram histogram;      // empty when there are no values
+    Histogram histogram;  // empty when there are no values
 
     // Categorical columns: levels[k] occurs level_counts[k] times (the
     // column's level order; a level with no present cell counts 0).

@@ -11,8 +11,8 @@
 #include <string>
 #include <vector>
 
-#include "moderato/support/error.hpp"
 #include "moderato/reading/table.hpp"
+#include "moderato/support/error.hpp"
 
 namespace moderato {
 
@@ -33,13 +33,13 @@ namespace moderato {
 // Messages name the file as given (path or `name`); Table::row_lines is
 // filled for files and for text alike.
 struct CsvOptions {
-    char delimiter = 0;                 // 0: sniff among ',', ';', '\t'
-    bool header = true;                 // first record holds the column names
+    char delimiter = 0;  // 0: sniff among ',', ';', '\t'
+    bool header = true;  // first record holds the column names
     // Cells equal to one of these (after trimming spaces) are missing.
     std::vector<std::string> missing_tokens{"", "NA", "NaN", "."};
-    bool decimal_comma = false;         // "3,14" means 3.14 (',' cannot be the delimiter)
+    bool decimal_comma = false;                      // "3,14" means 3.14 (',' cannot be the delimiter)
     std::map<std::string, ColumnKind> column_kinds;  // per-column override
-    unsigned threads = 0;               // 0: all hardware threads
+    unsigned threads = 0;                            // 0: all hardware threads
 };
 
 struct CsvProgress {
@@ -52,12 +52,10 @@ struct CsvProgress {
 // header without data rows, invalid UTF-8, an unterminated quote, a row with
 // the wrong number of fields, empty or duplicate column names, and a forced
 // numeric column holding text. Throws Cancelled when the callback says stop.
-Table read_csv(const std::string& path, const CsvOptions& options = {},
-               const CsvProgress& progress = {});
+Table read_csv(const std::string& path, const CsvOptions& options = {}, const CsvProgress& progress = {});
 
 // Same, from text held in memory (`name` is used in messages).
-Table read_csv_text(const std::string& text, const std::string& name,
-                    const CsvOptions& options = {});
+Table read_csv_text(const std::string& text, const std::string& name, const CsvOptions& options = {});
 
 namespace detail {
 // Internal knobs, public only so tests can exercise block and piece
@@ -66,12 +64,10 @@ struct CsvTuning {
     std::size_t block_size = std::size_t{16} << 20;  // bytes read per block
     std::size_t min_piece = std::size_t{1} << 16;    // smallest piece per thread
 };
-Table read_csv_tuned(const std::string& path, const CsvOptions& options,
-                     const CsvProgress& progress, const CsvTuning& tuning);
-Table read_csv_text_tuned(const std::string& text, const std::string& name,
-                          const CsvOptions& options, const CsvProgress& progress,
-                          const CsvTuning& tuning);
+Table read_csv_tuned(const std::string& path, const CsvOptions& options, const CsvProgress& progress,
+                     const CsvTuning& tuning);
+Table read_csv_text_tuned(const std::string& text, const std::string& name, const CsvOptions& options,
+                          const CsvProgress& progress, const CsvTuning& tuning);
 }  // namespace detail
-
 
 }  // namespace moderato

@@ -23,15 +23,15 @@ inline double missing_value() { return std::numeric_limits<double>::quiet_NaN();
 struct Column {
     std::string name;
     ColumnKind kind = ColumnKind::Numeric;
-    std::vector<double> numbers;        // Numeric: one per row, NaN = missing
-    std::vector<std::int32_t> codes;    // Categorical: one per row, -1 = missing
-    std::vector<std::string> levels;    // Categorical: code -> text
+    std::vector<double> numbers;      // Numeric: one per row, NaN = missing
+    std::vector<std::int32_t> codes;  // Categorical: one per row, -1 = missing
+    std::vector<std::string> levels;  // Categorical: code -> text
 
     // Where a column was inferred categorical because of text, the first such
     // cell (1-based physical line of the file, its text) for error messages.
     std::size_t first_text_line = 0;
     std::string first_text;
-    bool kind_forced = false;           // the kind was set by the user, not inferred
+    bool kind_forced = false;  // the kind was set by the user, not inferred
 
     std::size_t size() const { return kind == ColumnKind::Numeric ? numbers.size() : codes.size(); }
     bool is_missing(std::size_t row) const {

@@ -14,8 +14,8 @@
 namespace moderato {
 
 struct NamedTable {
-    std::string key;     // file stem: "estimates", "fit-statistics", "model-comparison",
-                         // "conditional-effects", "cell-table", "cell-contrasts"
+    std::string key;  // file stem: "estimates", "fit-statistics", "model-comparison",
+                      // "conditional-effects", "cell-table", "cell-contrasts"
     ExportTable table;
 };
 

@@ -4,8 +4,8 @@
 #include <string>
 
 #include "moderato/probing/cells.hpp"
-#include "moderato/reporting/json_writer.hpp"
 #include "moderato/probing/probe.hpp"
+#include "moderato/reporting/json_writer.hpp"
 
 namespace moderato {
 

@@ -29,18 +29,21 @@ public:
     JsonWriter& value(std::optional<double> v) { return v ? value(*v) : null(); }
 
     template <class T>
-    JsonWriter& field(const std::string& k, const T& v) { key(k); return value(v); }
+    JsonWriter& field(const std::string& k, const T& v) {
+        key(k);
+        return value(v);
+    }
 
     const std::string& str() const { return out_; }
 
-    static std::string number(double v);    // "%.17g" or "null"
+    static std::string number(double v);  // "%.17g" or "null"
     static std::string quote(const std::string& s);
 
 private:
     void before_value();
     void newline();
     std::string out_;
-    std::vector<bool> first_;   // per open container: nothing written yet
+    std::vector<bool> first_;  // per open container: nothing written yet
     bool after_key_ = false;
     int indent_;
 };

@@ -15,38 +15,38 @@
 #include <vector>
 
 #include "moderato/project/analysis_run.hpp"
-#include "moderato/reporting/analysis_tables.hpp"
 #include "moderato/project/project.hpp"
+#include "moderato/reporting/analysis_tables.hpp"
 
 namespace moderato {
 
 struct MemoFigure {
-    std::string title;          // "Lines plot"
-    std::string file;           // PNG file name beside a Markdown memo, e.g. "lines-plot.png"
-    std::string png;            // the PNG bytes (embedded in the HTML memo)
-    double width_in = 6.5;      // printed size
+    std::string title;      // "Lines plot"
+    std::string file;       // PNG file name beside a Markdown memo, e.g. "lines-plot.png"
+    std::string png;        // the PNG bytes (embedded in the HTML memo)
+    double width_in = 6.5;  // printed size
     double height_in = 4.0;
 };
 
 // What the memo needs beyond the analysis and its run.
 struct MemoContext {
-    std::string caption;        // model, SE kind, level, n (as under the figures)
-    std::string project_file;   // the project file's name
-    std::string data_file;      // the data file's path as the project records it
-    std::string data_sha256;    // SHA-256 of the data bytes the results come from
+    std::string caption;          // model, SE kind, level, n (as under the figures)
+    std::string project_file;     // the project file's name
+    std::string data_file;        // the data file's path as the project records it
+    std::string data_sha256;      // SHA-256 of the data bytes the results come from
     std::string recorded_sha256;  // the SHA-256 the project recorded ("" unknown)
     std::string software = "Moderato " MODERATO_VERSION;
 };
 
 struct Memo {
     std::string title;
-    std::string subtitle;                      // the caption
-    std::string notes;                         // the analyst's own notes (plain text)
-    std::vector<std::string> findings;         // plain-language sentences
-    std::string equation_text;                 // "weekly_spend = b₀ + b₁·discount_pct + …"
-    std::string equation_html;                 // the same with <i>/<sub> markup (escaped names)
-    std::string equation_latex;                // for the Markdown memo ($$ … $$)
-    std::string fitted_text;                   // the equation with the estimates
+    std::string subtitle;               // the caption
+    std::string notes;                  // the analyst's own notes (plain text)
+    std::vector<std::string> findings;  // plain-language sentences
+    std::string equation_text;          // "weekly_spend = b₀ + b₁·discount_pct + …"
+    std::string equation_html;          // the same with <i>/<sub> markup (escaped names)
+    std::string equation_latex;         // for the Markdown memo ($$ … $$)
+    std::string fitted_text;            // the equation with the estimates
     std::vector<NamedTable> tables;
     std::vector<MemoFigure> figures;
     std::vector<std::string> cautions;

@@ -3,8 +3,8 @@
 
 #include <string>
 
-#include "moderato/reporting/json_writer.hpp"
 #include "moderato/probing/probe.hpp"
+#include "moderato/reporting/json_writer.hpp"
 
 namespace moderato {
 
