@@ -677,11 +677,11 @@ TEST(Bootstrap, ProbabilityScaleProbeWithACategoricalSecondModerator) {
     req.moderator = "z";
     req.values["region"] = 0;
     for (std::size_t k = 0; k < ps.at.size(); ++k)
-        EXPECT_NEAR(pr.effects[k].effect, probability_effect(d, fit, req, ps.at[k]).effect, 1e-12);
+        EXPECT_NEAR(pr.effects[k].estimate, probability_effect(d, fit, req, ps.at[k]).estimate, 1e-12);
     BootstrapOptions o;
     o.replicates = 100;
     const ProbeBootstrap b = bootstrap_probe(d, spec, ps, pr, o);
     ASSERT_GE(b.result.intervals.size(), 2u);
-    EXPECT_NEAR(b.result.intervals[0].estimate, pr.effects[0].effect, 1e-9);
+    EXPECT_NEAR(b.result.intervals[0].estimate, pr.effects[0].estimate, 1e-9);
     EXPECT_GT(b.result.completed, 90);
 }

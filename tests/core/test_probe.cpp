@@ -111,9 +111,9 @@ TEST(Probe, EffectAtModeratorZeroIsTheFocalCoefficient) {
     const auto& bx = f.coefficients[static_cast<std::size_t>(f.index_of("x"))];
     const auto& bxz = f.coefficients[static_cast<std::size_t>(f.index_of("x×z"))];
     // closed form: effect(0) = b_x with the SE of b_x; effect(1) = b_x + b_xz
-    EXPECT_NEAR(r.effects[0].effect, bx.estimate, 1e-14 * std::abs(bx.estimate) + 1e-15);
+    EXPECT_NEAR(r.effects[0].estimate, bx.estimate, 1e-14 * std::abs(bx.estimate) + 1e-15);
     EXPECT_NEAR(r.effects[0].std_error, bx.std_error, 1e-12 * bx.std_error);
-    EXPECT_NEAR(r.effects[1].effect, bx.estimate + bxz.estimate, 1e-12);
+    EXPECT_NEAR(r.effects[1].estimate, bx.estimate + bxz.estimate, 1e-12);
 }
 
 TEST(Probe, JohnsonNeymanEveryRootCaseMatchesBruteForceScan) {
@@ -209,8 +209,8 @@ TEST(Probe, CategoricalModeratorGivesOneEffectPerLevel) {
     ASSERT_EQ(r.effects.size(), 3u);
     EXPECT_EQ(r.effects[1].level, "evening");
     // closed form: the slope within a level is b_x + b_(x×level)
-    EXPECT_NEAR(r.effects[0].effect, f.beta[f.index_of("x")], 1e-12);
-    EXPECT_NEAR(r.effects[2].effect, f.beta[f.index_of("x")] + f.beta[f.index_of("x×shift=night")], 1e-12);
+    EXPECT_NEAR(r.effects[0].estimate, f.beta[f.index_of("x")], 1e-12);
+    EXPECT_NEAR(r.effects[2].estimate, f.beta[f.index_of("x")] + f.beta[f.index_of("x×shift=night")], 1e-12);
     EXPECT_EQ(r.crossovers.size(), 3u);  // every pair of levels
 }
 
@@ -249,7 +249,7 @@ TEST(Probe, SquaredFocalIsEvaluatedAtTheChosenFocalValue) {
     const ProbeResult r = probe(d, f, ps);
     const double expected =
         f.beta[f.index_of("x")] + 2 * f.beta[f.index_of("x^2")] * 1.5 + f.beta[f.index_of("x×z")] * 4.0;
-    EXPECT_NEAR(r.effects[0].effect, expected, 1e-12);
+    EXPECT_NEAR(r.effects[0].estimate, expected, 1e-12);
 }
 
 // Common practice: a reader must be told where every other column that

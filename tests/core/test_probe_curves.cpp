@@ -104,7 +104,7 @@ TEST(ProbeCurves, EffectBandIsTheClosedFormOfATwoWayModel) {
         EXPECT_NEAR(band[i].lower, effect - q * std::sqrt(var), 1e-11);
         EXPECT_NEAR(band[i].upper, effect + q * std::sqrt(var), 1e-11);
         const EffectPoint e = effect_at(f, m, fit, {-1, 1});
-        EXPECT_NEAR(e.effect, effect, 1e-12 * (1 + std::abs(effect)));
+        EXPECT_NEAR(e.estimate, effect, 1e-12 * (1 + std::abs(effect)));
         // closed form: t = effect / SE, interval effect -+ t(0.975, n - p) SE
         EXPECT_NEAR(e.statistic, effect / std::sqrt(var), 1e-9);
         EXPECT_NEAR(e.ci_lower, effect - fit.critical_value * std::sqrt(var), 1e-11);

@@ -1020,8 +1020,8 @@ TEST(RunAnalysis, ProbeOnlyRerunReusesTheFit) {
     // Conditional effect b1 + b3 m (closed form for a two-way product).
     const double b1 = run.fit.beta[run.design.column_index("x")];
     const double b3 = run.fit.beta[run.design.product_columns().front()];
-    EXPECT_NEAR(run.probe->effects[0].effect, b1 + b3 * 8.5, 1e-10);
-    EXPECT_NEAR(run.probe->effects[1].effect, b1 + b3 * 12.25, 1e-10);
+    EXPECT_NEAR(run.probe->effects[0].estimate, b1 + b3 * 8.5, 1e-10);
+    EXPECT_NEAR(run.probe->effects[1].estimate, b1 + b3 * 12.25, 1e-10);
 }
 
 TEST(RunAnalysis, MeanCentringMatchesTheClosedForm) {

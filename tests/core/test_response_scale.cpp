@@ -57,7 +57,7 @@ TEST(ResponseScale, MarginalEffectsMatchDifferentiatedStatsmodelsPredictions) {
         SCOPED_TRACE(r.focal + " / " + r.moderator);
         if (row.at("quantity") == "effect") {
             const EffectPoint e = probability_effect(c.design, c.fit, r, row.at("at").get<double>());
-            EXPECT_LE(rel(e.effect, row.at("estimate").get<double>()), 1e-6);
+            EXPECT_LE(rel(e.estimate, row.at("estimate").get<double>()), 1e-6);
             EXPECT_LE(rel(e.std_error, row.at("std_error").get<double>()), 1e-6);
         } else {
             const InteractionEffect ie = probability_interaction(c.design, c.fit, r);
@@ -82,7 +82,7 @@ TEST(ResponseScale, AtValuesEffectIsTheLinkEffectTimesTheDensity) {
     const auto& b = c.fit.beta;
     const double eta = b[0] + b[1] * 0.3 + b[2] + b[3] * 0.3;
     const double p = 1 / (1 + std::exp(-eta));
-    EXPECT_NEAR(e.effect, p * (1 - p) * (b[1] + b[3]), 1e-14);
+    EXPECT_NEAR(e.estimate, p * (1 - p) * (b[1] + b[3]), 1e-14);
 }
 
 // Closed form: with no interaction on either scale a flat effect gives no

@@ -112,7 +112,7 @@ QString g4(double v) {
 }
 
 void expectSamePoint(const EffectPoint& shown, const EffectPoint& core, double tol = 1e-10) {
-    EXPECT_LE(rel(shown.effect, core.effect), tol);
+    EXPECT_LE(rel(shown.estimate, core.estimate), tol);
     EXPECT_LE(rel(shown.std_error, core.std_error), tol);
     EXPECT_LE(rel(shown.ci_lower, core.ci_lower), tol);
     EXPECT_LE(rel(shown.ci_upper, core.ci_upper), tol);
@@ -161,12 +161,12 @@ TEST(Probe, DraggingTheHandleUpdatesTheReadoutFromCore) {
     ASSERT_GE(b1, 0);
     ASSERT_GE(b3, 0);
     const Eigen::MatrixXd& V = core.fit.covariance;
-    EXPECT_NEAR(s->currentEffect().effect, core.fit.beta[b1] + core.fit.beta[b3] * m, 1e-12);
+    EXPECT_NEAR(s->currentEffect().estimate, core.fit.beta[b1] + core.fit.beta[b3] * m, 1e-12);
     EXPECT_NEAR(s->currentEffect().std_error, std::sqrt(V(b1, b1) + 2 * m * V(b1, b3) + m * m * V(b3, b3)), 1e-12);
 
     // What the readout says.
     const QString text = s->readoutText();
-    EXPECT_TRUE(text.contains(g4(expected.effect))) << text.toStdString();
+    EXPECT_TRUE(text.contains(g4(expected.estimate))) << text.toStdString();
     EXPECT_TRUE(text.contains(g4(expected.std_error))) << text.toStdString();
     EXPECT_TRUE(text.contains(QStringLiteral("HC3"))) << "the SE kind is stated";
     EXPECT_TRUE(text.contains(QStringLiteral("95%"))) << "the level is stated";

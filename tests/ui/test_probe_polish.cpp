@@ -351,12 +351,12 @@ TEST(ProbePolish, SecondModeratorHeldValueIsOneUndoableEditMatchingCore) {
         });
         const EffectPoint expected = effect_at(core.probe.effect_function, m, core.fit, core.probe.observed_range);
         const EffectPoint shown = s->currentEffect();
-        EXPECT_LE(rel(shown.effect, expected.effect), 1e-10);
+        EXPECT_LE(rel(shown.estimate, expected.estimate), 1e-10);
         EXPECT_LE(rel(shown.std_error, expected.std_error), 1e-10);
         EXPECT_LE(rel(shown.ci_lower, expected.ci_lower), 1e-10);
         EXPECT_LE(rel(shown.ci_upper, expected.ci_upper), 1e-10);
-        EXPECT_NEAR(shown.effect, b[bx] + b[bxz] * m + b[bxw] * heldAt + b[bxzw] * m * heldAt, 1e-10);
-        EXPECT_TRUE(s->readoutText().contains(g4(expected.effect))) << s->readoutText().toStdString();
+        EXPECT_NEAR(shown.estimate, b[bx] + b[bxz] * m + b[bxw] * heldAt + b[bxzw] * m * heldAt, 1e-10);
+        EXPECT_TRUE(s->readoutText().contains(g4(expected.estimate))) << s->readoutText().toStdString();
     };
 
     // mean + SD through its button: one undo step, and the readout, the subtitles and core agree.
@@ -746,7 +746,7 @@ TEST(ProbePolish, CategoricalSecondModeratorIsHeldAtALevel) {
         x.probe.second_value = 1;
     });
     const EffectPoint expected = effect_at(core.probe.effect_function, m, core.fit, core.probe.observed_range);
-    EXPECT_LE(rel(s->currentEffect().effect, expected.effect), 1e-10);
+    EXPECT_LE(rel(s->currentEffect().estimate, expected.estimate), 1e-10);
     EXPECT_LE(rel(s->currentEffect().std_error, expected.std_error), 1e-10);
 
     // The probability scale holds the same level. Source: core probability_effect with region at index 1.
@@ -760,7 +760,7 @@ TEST(ProbePolish, CategoricalSecondModeratorIsHeldAtALevel) {
     req.moderator = "employees";
     req.values["region"] = 1;
     const EffectPoint p = probability_effect(core.design, core.fit, req, s->currentModeratorValue());
-    EXPECT_LE(rel(s->currentEffect().effect, p.effect), 1e-10);
+    EXPECT_LE(rel(s->currentEffect().estimate, p.estimate), 1e-10);
     EXPECT_LE(rel(s->currentEffect().std_error, p.std_error), 1e-10);
     // And with no level chosen, core's probability probe holds region at its reference level (index 0).
     ProbeSpec ps;
@@ -770,5 +770,5 @@ TEST(ProbePolish, CategoricalSecondModeratorIsHeldAtALevel) {
     const ProbeResult atReference = probe_response(core.design, core.fit, ps, Averaging::Sample);
     req.values["region"] = 0;
     const EffectPoint p0 = probability_effect(core.design, core.fit, req, atReference.effects.front().moderator_value);
-    EXPECT_LE(rel(atReference.effects.front().effect, p0.effect), 1e-12);
+    EXPECT_LE(rel(atReference.effects.front().estimate, p0.estimate), 1e-12);
 }

@@ -328,12 +328,7 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
         Coefficient c;
         c.term = d.columns[static_cast<std::size_t>(j)].label;
         c.aliased = std::isnan(f.beta[j]);
-        c.estimate = f.beta[j];
-        c.std_error = std::sqrt(f.covariance(j, j));
-        c.statistic = c.estimate / c.std_error;
-        c.p_value = dist::two_sided_p_t(c.statistic, f.df_inference);
-        c.ci_lower = c.estimate - f.critical_value * c.std_error;
-        c.ci_upper = c.estimate + f.critical_value * c.std_error;
+        static_cast<Inference&>(c) = infer(f.beta[j], std::sqrt(f.covariance(j, j)), f);
         c.vif = vif[static_cast<std::size_t>(j)];
         f.coefficients.push_back(c);
     }

@@ -120,12 +120,7 @@ Inference infer(const Combination& c, const FitResult& fit) {
 
 template <class T>
 void fill(T& out, const Inference& r, bool logistic) {
-    out.estimate = r.estimate;
-    out.std_error = r.std_error;
-    out.statistic = r.statistic;
-    out.p_value = r.p_value;
-    out.ci_lower = r.ci_lower;
-    out.ci_upper = r.ci_upper;
+    static_cast<Inference&>(out) = r;
     out.odds_ratio = logistic ? std::exp(r.estimate) : kNaN;
     out.odds_ratio_lower = logistic ? std::exp(r.ci_lower) : kNaN;
     out.odds_ratio_upper = logistic ? std::exp(r.ci_upper) : kNaN;

@@ -374,13 +374,8 @@ Crossover crossover_of(const EffectFunction& gap, const FitResult& fit, std::pai
 
 EffectPoint effect_point(double moderator_value, const Inference& i) {
     EffectPoint e;
+    static_cast<Inference&>(e) = i;
     e.moderator_value = moderator_value;
-    e.effect = i.estimate;
-    e.std_error = i.std_error;
-    e.statistic = i.statistic;
-    e.p_value = i.p_value;
-    e.ci_lower = i.ci_lower;
-    e.ci_upper = i.ci_upper;
     return e;
 }
 

@@ -67,7 +67,7 @@ ProbeBootstrap bootstrap_probe(const Design& design, const ModelSpec& spec, cons
         std::size_t k = 0;
         if (response) {
             for (const auto& e : probe.effects)
-                s[static_cast<Eigen::Index>(k++)] = probability_effect(rd, rf, request, e.moderator_value).effect;
+                s[static_cast<Eigen::Index>(k++)] = probability_effect(rd, rf, request, e.moderator_value).estimate;
         } else if (probe.categorical_moderator) {
             for (const auto& g : level_gradients) s[static_cast<Eigen::Index>(k++)] = g.dot(rf.beta);
         } else {

@@ -234,12 +234,7 @@ InteractionEffect probability_interaction(const Design& d, const FitResult& fit,
         };
         grad[j] = (4 * D(h / 2) - D(h)) / 3;
     }
-    const Inference i = infer(out.estimate, delta_se(grad, fit.covariance), fit);
-    out.std_error = i.std_error;
-    out.statistic = i.statistic;
-    out.p_value = i.p_value;
-    out.ci_lower = i.ci_lower;
-    out.ci_upper = i.ci_upper;
+    static_cast<Inference&>(out) = infer(out.estimate, delta_se(grad, fit.covariance), fit);
     return out;
 }
 

@@ -138,7 +138,7 @@ ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
             at.text += " †";
             beyond = true;
         }
-        t.rows.push_back({at, num(e.effect), num(e.std_error), num(e.statistic), pval(e.p_value), num(e.ci_lower),
+        t.rows.push_back({at, num(e.estimate), num(e.std_error), num(e.statistic), pval(e.p_value), num(e.ci_lower),
                           num(e.ci_upper), text(e.beyond_data ? "beyond the data" : "")});
     }
     if (beyond)

@@ -47,7 +47,7 @@ double effect_at(const Analysis& a, const AnalysisRun& run, double m) {
         req.values[a.roles.second_moderator] = std::isnan(a.probe.second_value)
                                                    ? typical_values(run.design).at(a.roles.second_moderator)
                                                    : a.probe.second_value;
-    return probability_effect(run.design, run.fit, req, m).effect;
+    return probability_effect(run.design, run.fit, req, m).estimate;
 }
 
 struct Clipped {
@@ -171,7 +171,7 @@ void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector
         std::vector<std::string> at;
         for (std::size_t i = 0; i < p.effects.size() && i < 5; ++i) {
             const EffectPoint& e = p.effects[i];
-            at.push_back(format_sig(e.effect) + " (" + ci_text(p.level, e.ci_lower, e.ci_upper) + ") at " +
+            at.push_back(format_sig(e.estimate) + " (" + ci_text(p.level, e.ci_lower, e.ci_upper) + ") at " +
                          p.moderator + " = " + moderator_value_label(p, e) +
                          (e.beyond_data ? ", beyond the data" : ""));
         }
@@ -185,7 +185,7 @@ void group_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
     const ProbeResult& p = *run.probe;
     std::vector<std::string> parts;
     for (const auto& e : p.effects)
-        parts.push_back(format_sig(e.effect) + " (" + ci_text(p.level, e.ci_lower, e.ci_upper) + ") for " +
+        parts.push_back(format_sig(e.estimate) + " (" + ci_text(p.level, e.ci_lower, e.ci_upper) + ") for " +
                         p.moderator + " = " + moderator_value_label(p, e));
     if (!parts.empty()) {
         std::string s = (p.scale == "response" ? "The effect of " + p.focal + " on P(" + p.outcome + " = 1) is "

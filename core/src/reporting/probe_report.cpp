@@ -87,7 +87,7 @@ void write_probe_fields(JsonWriter& w, const ProbeResult& r) {
         w.begin_object();
         w.field("moderator_value", e.moderator_value);
         if (!e.level.empty()) w.field("level", e.level);
-        w.field("effect", e.effect);
+        w.field("effect", e.estimate);
         w.field("std_error", e.std_error);
         w.field("statistic", e.statistic);
         w.field("p_value", e.p_value);
@@ -168,7 +168,7 @@ std::string probe_to_text(const ProbeResult& r, const FitResult& fit) {
     o << line;
     for (const auto& e : r.effects) {
         const std::string at = e.level.empty() ? num(e.moderator_value) + (e.beyond_data ? " *" : "") : e.level;
-        std::snprintf(line, sizeof line, "%-18s %11s %11s %8.2f %10s %11s %11s\n", at.c_str(), num(e.effect).c_str(),
+        std::snprintf(line, sizeof line, "%-18s %11s %11s %8.2f %10s %11s %11s\n", at.c_str(), num(e.estimate).c_str(),
                       num(e.std_error).c_str(), e.statistic, format_p(e.p_value).c_str(), num(e.ci_lower).c_str(),
                       num(e.ci_upper).c_str());
         o << line;

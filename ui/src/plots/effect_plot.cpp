@@ -282,11 +282,11 @@ void EffectPlot::buildGroups() {
                                            QBrush(Qt::white), 10));
         const auto& names = d.legendNames.empty() ? d.groupNames : d.legendNames;
         g->setName(k < static_cast<int>(names.size()) ? names[static_cast<std::size_t>(k)] : QString());
-        g->setData(QVector<double>{double(k)}, QVector<double>{e.effect});
+        g->setData(QVector<double>{double(k)}, QVector<double>{e.estimate});
         auto* bars = new QCPErrorBars(plot_->xAxis, plot_->yAxis);
         bars->removeFromLegend();
         bars->setDataPlottable(g);
-        bars->setData(QVector<double>{e.effect - e.ci_lower}, QVector<double>{e.ci_upper - e.effect});
+        bars->setData(QVector<double>{e.estimate - e.ci_lower}, QVector<double>{e.ci_upper - e.estimate});
         bars->setPen(solid);
         bars->setWhiskerWidth(12);
         bars->setSelectable(QCP::stNone);
@@ -365,13 +365,13 @@ void EffectPlot::setCurrent(double m, const EffectPoint& at, bool replot) {
     }
     // No estimate yet (recomputed when the drag ends): the handle moves alone.
     // Groups: the group's own marker and interval are the estimate; the frame marks the choice.
-    const bool known = std::isfinite(at.effect) && !data_.groups;
+    const bool known = std::isfinite(at.estimate) && !data_.groups;
     whisker_->setVisible(known && std::isfinite(at.ci_lower) && std::isfinite(at.ci_upper));
     knob_->setVisible(known);
     if (known) {
         whisker_->start->setCoords(m, at.ci_lower);
         whisker_->end->setCoords(m, at.ci_upper);
-        knob_->position->setCoords(m, at.effect);
+        knob_->position->setCoords(m, at.estimate);
     }
     const std::size_t k = static_cast<std::size_t>(std::max(0L, std::lround(m)));
     handleLabel_->setText(data_.groups ? (k < data_.groupNames.size() ? data_.groupNames[k] : QString())

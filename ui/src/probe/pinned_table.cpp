@@ -44,7 +44,7 @@ QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
             case Value:
                 return r.label;
             case Effect:
-                return probeNumber(e.effect);
+                return probeNumber(e.estimate);
             case SE:
                 return probeNumber(e.std_error);
             case Statistic:

@@ -120,7 +120,7 @@ std::vector<CurvePoint> ProbeEngine::effectCurve(bool simultaneous, int points) 
         std::vector<CurvePoint> out;
         for (double m : even_grid(axisRange_.first, axisRange_.second, points)) {
             const EffectPoint e = probability_effect(run_->design, run_->fit, request_, m);
-            out.push_back({m, e.effect, e.std_error, e.ci_lower, e.ci_upper});
+            out.push_back({m, e.estimate, e.std_error, e.ci_lower, e.ci_upper});
         }
         return out;
     }

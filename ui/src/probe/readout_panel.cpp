@@ -69,7 +69,7 @@ void ReadoutPanel::clear(const QString& message) {
 QList<ReadoutPanel::Row> ReadoutPanel::rows() const {
     QList<Row> r;
     if (!hasPoint_) return r;
-    r << Row{tr("effect"), probeNumber(point_.effect)};
+    r << Row{tr("effect"), probeNumber(point_.estimate)};
     r << Row{tr("SE"), probeNumber(point_.std_error)};
     r << Row{intervalName_, tr("%1 to %2").arg(probeNumber(point_.ci_lower), probeNumber(point_.ci_upper))};
     r << Row{statisticName_, probeNumber(point_.statistic, 3)};

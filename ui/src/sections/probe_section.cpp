@@ -758,7 +758,7 @@ void ProbeSection::moveTo(double m, bool live) {
     if (compute) effect_->setCurrent(m, shown, true);
     else {
         EffectPoint moving = shown;
-        moving.effect = std::nan("");
+        moving.estimate = std::nan("");
         effect_->setCurrent(m, moving, true);
     }
     if (engine_.groups()) {

@@ -9,14 +9,14 @@
 #include <vector>
 
 #include "moderato/estimation/design.hpp"
+#include "moderato/estimation/inference.hpp"
 #include "moderato/estimation/model.hpp"
 #include "moderato/reading/table.hpp"
 
 namespace moderato {
 
-struct Coefficient {
+struct Coefficient : Inference {
     std::string term;
-    double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
     bool aliased = false;  // estimate and the rest are NaN when aliased
     double vif = 0;        // NaN where it does not apply (intercept, no-intercept model, aliased)
 };
@@ -93,12 +93,8 @@ struct FitOptions {
     double extended_budget = 2e7;
 };
 
-// One estimated number with its standard error, tested against zero with
-// the fit's reference distribution (t with df_inference, or z) and given a
-// confidence interval at the fit's level.
-struct Inference {
-    double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
-};
+// `estimate` with its standard error, tested with the fit's reference
+// distribution (t with df_inference, or z) at the fit's level.
 Inference infer(double estimate, double std_error, const FitResult& fit);
 
 // Builds the design and fits it. Throws InputError for bad specifications.

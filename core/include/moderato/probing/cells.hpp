@@ -35,12 +35,11 @@ struct Cell {
 };
 
 // A difference of two cells (a simple effect) on the link scale.
-struct SimpleEffect {
+struct SimpleEffect : Inference {
     std::string factor;               // the factor whose levels are compared
     std::string level, reference;     // level vs the reference level of `factor`
     std::string at_factor, at_level;  // the other factor, held at this level
     std::string label;                // "a=L1 vs a=L0 at b=M2"
-    double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
     // Logistic only (NaN otherwise): exp of estimate and CI ends (odds ratio).
     double odds_ratio = 0, odds_ratio_lower = 0, odds_ratio_upper = 0;
     bool estimable = true;
@@ -48,10 +47,9 @@ struct SimpleEffect {
 
 // (mu_ij - mu_i0) - (mu_0j - mu_00): how much the row effect of level i
 // changes from the reference column level to column level j.
-struct InteractionContrast {
+struct InteractionContrast : Inference {
     std::string row_level, column_level;  // non-reference levels i and j
     std::string label;                    // "(a=L1 vs a=L0) at b=M1 minus at b=M0"
-    double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
     // Logistic only (NaN otherwise): ratio of odds ratios, exp of the above.
     double odds_ratio = 0, odds_ratio_lower = 0, odds_ratio_upper = 0;
     bool estimable = true;

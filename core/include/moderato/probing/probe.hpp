@@ -20,10 +20,10 @@ struct Region {
     double hi = std::numeric_limits<double>::infinity();
 };
 
-struct EffectPoint {
+// The focal predictor's effect (`estimate`) at one moderator value.
+struct EffectPoint : Inference {
     double moderator_value = 0;
-    std::string level;  // categorical moderator: the level (moderator_value is its index)
-    double effect = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
+    std::string level;         // categorical moderator: the level (moderator_value is its index)
     bool beyond_data = false;  // moderator value outside the observed range
 };
 
@@ -101,9 +101,8 @@ SurfaceGrid surface_grid(const Design& design, const FitResult& fit, const std::
                          int nx = 41, int nz = 41, const std::map<std::string, double>& values = {});
 
 // An interaction effect on the probability scale (see response_scale.hpp).
-struct InteractionEffect {
+struct InteractionEffect : Inference {
     std::string kind;  // "cross-partial derivative", "difference in slopes", "double difference"
-    double estimate = 0, std_error = 0, statistic = 0, p_value = 0, ci_lower = 0, ci_upper = 0;
 };
 
 struct ProbeResult {

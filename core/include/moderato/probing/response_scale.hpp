@@ -12,13 +12,9 @@
 #include "moderato/estimation/design.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/probing/probe.hpp"
+#include "moderato/probing/scale.hpp"
 
 namespace moderato {
-
-enum class Averaging {
-    Sample,    // every observation at its own covariate values, then averaged
-    AtValues,  // one profile: covariates at their means / reference levels (or as given)
-};
 
 struct ScaleRequest {
     std::string focal, moderator;
