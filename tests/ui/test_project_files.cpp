@@ -31,7 +31,7 @@
 #include "moderato/project/project.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
-#include "moderato/support/file_util.hpp"
+#include "moderato/support/sha256.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
 #include "shell/project_sidebar.hpp"

@@ -34,7 +34,7 @@
 #include "model/project_document.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/support/error.hpp"
-#include "moderato/support/file_util.hpp"
+#include "moderato/support/sha256.hpp"
 #include "sections/checks_section.hpp"
 #include "sections/memo_section.hpp"
 #include "shell/analysis_page.hpp"
