@@ -155,7 +155,8 @@ TEST_F(BrokenProjects, CorruptProjectNamesFileLineAndColumn) {
 }
 
 TEST_F(BrokenProjects, NewerSchemaIsRefusedWithBothVersions) {
-    writeBytes(project, replaced(readBytes(project), "\"schema_version\": 1", "\"schema_version\": 42"));
+    writeBytes(project, replaced(readBytes(project), "\"schema_version\": " + std::to_string(kProjectSchemaVersion),
+                                 "\"schema_version\": 42"));
     const Snapshot before = snapshot(dir);
     EXPECT_FALSE(w.openProject(project));
     const QString message = w.lastMessage();

@@ -135,7 +135,7 @@ MainWindow::MainWindow(QWidget* parent)
         for (const auto& f : doc_->project().figures)
             if (f.id == id.toStdString()) {
                 showAnalysis(QString::fromStdString(f.analysis));
-                const bool checks = f.plot == "residuals" || f.plot == "qq" || f.plot == "influence";
+                const bool checks = is_check_plot(f.plot);
                 analysisPage_->showSection(checks ? AnalysisPage::Checks : AnalysisPage::Probe);
             }
     });
