@@ -128,10 +128,10 @@ for p in sorted(pathlib.Path(sys.argv[1]).glob("*/*.moderato")):
 EOF
 )
 # The installed command-line program reads an installed sample dataset.
-if env -u DISPLAY "$root/usr/bin/moderato-cli" describe --data "$samples/coffee-discount/spend.csv" >"$tmp/describe.txt" 2>&1; then
-  pass "moderato-cli describe reads the installed coffee-discount data"
+if env -u DISPLAY "$root/usr/bin/moderato-cli" columns --data "$samples/coffee-discount/spend.csv" >"$tmp/columns.txt" 2>&1; then
+  pass "moderato-cli columns reads the installed coffee-discount data"
 else
-  fail "moderato-cli describe failed: $(cat "$tmp/describe.txt")"
+  fail "moderato-cli columns failed: $(cat "$tmp/columns.txt")"
 fi
 
 # ------------------------------------------------------------------ desktop integration
