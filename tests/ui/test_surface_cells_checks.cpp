@@ -67,7 +67,7 @@ Direct direct(const QString& name) {
 
 std::shared_ptr<const AnalysisRun> openAndRun(MainWindow& w, const QString& name) {
     w.setInteractive(false);
-    if (!w.openProject(test::sampleProject(name))) {
+    if (!test::openProject(w, test::sampleProject(name))) {
         ADD_FAILURE() << w.lastMessage().toStdString();
         return nullptr;
     }
