@@ -93,6 +93,10 @@ private:
                    std::function<LoadResult(bool cancelled)> done);
     LoadResult adoptProject(const QString& path, LoadOutcome& outcome, bool cancelled);
     LoadResult addImported(const QString& path, const CsvOptions& options, const LoadOutcome& outcome, bool cancelled);
+    // Asks whether to save unsaved changes. Like the file choosers, this is
+    // a question run modally (a loop of its own): its answer decides the
+    // next step, and no work of ours runs while it is open. Everything that
+    // only informs (message boxes, the import and export dialogs) is opened.
     bool confirmDiscard();
     void addRecent(const QString& path);
     void rebuildRecentMenu();
