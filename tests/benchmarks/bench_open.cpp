@@ -8,7 +8,7 @@
 // analysis: y on x1, x3, x1×x3, c1, c2, region, HC3) into a temporary folder.
 // Then, R times and interleaved, in this one process on the offscreen
 // platform:
-//   open   MainWindow::openProject(path) + waiting for the analysis's first
+//   open   MainWindow::openProject(path) and its load + waiting for the analysis's first
 //          result (runner->result(id)) + one processEvents and a full paint of
 //          the window (QWidget::grab) = "until interactive";
 //   read   core read_csv of the same file alone (the reference);
@@ -124,7 +124,19 @@ OpenTiming time_open(const QString& project, const QString& id) {
     w.show();
     QCoreApplication::processEvents();
     const auto t0 = Clock::now();
-    if (!w.openProject(project)) {
+    // Opening is asynchronous: wait in an event loop for the load to end.
+    moderato::ui::MainWindow::LoadResult loaded = moderato::ui::MainWindow::Failed;
+    {
+        QEventLoop loop;
+        QObject::connect(&w, &moderato::ui::MainWindow::loadFinished, &loop,
+                         [&](const QString&, moderato::ui::MainWindow::LoadResult r) {
+                             loaded = r;
+                             loop.quit();
+                         });
+        w.openProject(project);
+        if (w.isLoading()) loop.exec();
+    }
+    if (loaded != moderato::ui::MainWindow::Loaded) {
         t.error = w.lastMessage().toStdString();
         return t;
     }

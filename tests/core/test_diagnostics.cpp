@@ -385,6 +385,35 @@ TEST(DiagnosticsClosedForm, BinnedResidualMeans) {
     EXPECT_EQ(binned_residuals(fitted, res, 20).count.size(), 7u);
 }
 
+TEST(DiagnosticsClosedForm, BinnedResidualIntervals) {
+    // mean ± t(0.975, m - 1) s / sqrt(m) within each bin (closed form), with
+    // the t quantiles from scipy 1.10: t.ppf(0.975, 1) = 12.706204736432095,
+    // t.ppf(0.975, 2) = 4.302652729911275, t.ppf(0.95, 2) = 2.919985580355516.
+    Eigen::VectorXd fitted(7), res(7);
+    fitted << 0.9, 0.1, 0.5, 0.3, 0.7, 0.2, 0.8;
+    res << 9, 1, 5, 3, 7, 2, 8;
+    const BinnedResiduals b = binned_residuals(fitted, res, 3);
+    EXPECT_EQ(b.level, 0.95);
+    ASSERT_EQ(b.residual_lower.size(), 3u);
+    ASSERT_EQ(b.residual_upper.size(), 3u);
+    // bin 0 holds 1 and 2: s = sqrt(0.5), half width 12.7062 * sqrt(0.5) / sqrt(2) = 12.7062 / 2
+    EXPECT_NEAR(b.residual_lower[0], 1.5 - 12.706204736432095 / 2, 1e-9);
+    EXPECT_NEAR(b.residual_upper[0], 1.5 + 12.706204736432095 / 2, 1e-9);
+    // bin 1 holds 3 and 5: s = sqrt(2), half width 12.7062 * sqrt(2) / sqrt(2)
+    EXPECT_NEAR(b.residual_upper[1], 4.0 + 12.706204736432095, 1e-9);
+    // bin 2 holds 7, 8 and 9: s = 1, half width 4.30265 / sqrt(3)
+    EXPECT_NEAR(b.residual_lower[2], 8.0 - 4.302652729911275 / std::sqrt(3.0), 1e-9);
+    EXPECT_NEAR(b.residual_upper[2], 8.0 + 4.302652729911275 / std::sqrt(3.0), 1e-9);
+    // Another level: the 90 % interval of bin 2.
+    const BinnedResiduals b90 = binned_residuals(fitted, res, 3, 0.90);
+    EXPECT_NEAR(b90.residual_upper[2] - 8.0, 2.919985580355516 / std::sqrt(3.0), 1e-9);
+    // A bin of one value has no interval.
+    const BinnedResiduals single = binned_residuals(fitted, res, 7);
+    EXPECT_TRUE(std::isnan(single.residual_lower[0]));
+    EXPECT_TRUE(std::isnan(single.residual_upper[0]));
+    EXPECT_DOUBLE_EQ(single.residual_mean[0], 1.0);
+}
+
 TEST(DiagnosticsClosedForm, CooksContourGivesThatDistance) {
     // Plugging the contour back into D = r^2 h / (p (1 - h)) (the definition).
     for (double h : {0.01, 0.2, 0.5, 0.9})

@@ -592,7 +592,7 @@ TEST(FigureExportDialog, CopyPutsTheImageAtTheChosenSizeOnTheClipboard) {
 // The orchard-nitrogen sample open in a shown window, on its Probe section.
 void showOrchardProbe(MainWindow& w) {
     w.setInteractive(false);
-    ASSERT_TRUE(w.openProject(test::sampleProject(QStringLiteral("orchard-nitrogen"))))
+    ASSERT_TRUE(test::openProject(w, test::sampleProject(QStringLiteral("orchard-nitrogen"))))
         << w.lastMessage().toStdString();
     const QString id = w.analysisPage()->analysisId();
     ASSERT_TRUE(test::waitUntil([&] { return w.runner()->result(id) || !w.runner()->error(id).isEmpty(); }));

@@ -81,7 +81,7 @@ struct Session {
         w.setInteractive(false);
         w.resize(1400, 900);
         w.show();
-        EXPECT_TRUE(w.openProject(project)) << w.lastMessage().toStdString();
+        EXPECT_TRUE(test::openProject(w, project)) << w.lastMessage().toStdString();
         id = w.analysisPage()->analysisId();
         EXPECT_TRUE(test::waitUntil([&] { return !w.runner()->busy(id) && w.runner()->result(id) != nullptr; }));
         w.activateWindow();

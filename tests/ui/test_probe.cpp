@@ -71,7 +71,7 @@ struct Window {
         w.setInteractive(false);
         w.resize(1400, 900);
         w.show();
-        EXPECT_TRUE(w.openProject(project)) << w.lastMessage().toStdString();
+        EXPECT_TRUE(test::openProject(w, project)) << w.lastMessage().toStdString();
         id = w.analysisPage()->analysisId();
         EXPECT_TRUE(test::waitUntil([&] { return w.runner()->result(id) != nullptr; }));
         w.analysisPage()->showSection(AnalysisPage::Probe);
@@ -518,7 +518,7 @@ TEST(Probe, AFailedAnalysisShowsItsReasonInsteadOfPlots) {
     write_project_file(p, bad.toStdString());
     MainWindow w;
     w.setInteractive(false);
-    ASSERT_TRUE(w.openProject(bad)) << w.lastMessage().toStdString();
+    ASSERT_TRUE(test::openProject(w, bad)) << w.lastMessage().toStdString();
     const QString id = w.analysisPage()->analysisId();
     ASSERT_TRUE(test::waitUntil([&] { return !w.runner()->error(id).isEmpty(); }));
     ProbeSection* s = w.analysisPage()->probe();

@@ -81,7 +81,7 @@ struct Window {
         w.setInteractive(false);
         w.resize(1500, 950);
         w.show();
-        EXPECT_TRUE(w.openProject(project)) << w.lastMessage().toStdString();
+        EXPECT_TRUE(test::openProject(w, project)) << w.lastMessage().toStdString();
         id = w.analysisPage()->analysisId();
         EXPECT_TRUE(waitForRun());
         w.analysisPage()->showSection(AnalysisPage::Probe);
@@ -561,7 +561,7 @@ void checkEverySection(const QString& tag) {
         w.setInteractive(false);
         w.resize(1500, 950);
         w.show();
-        ASSERT_TRUE(w.openProject(test::sampleProject(name)));
+        ASSERT_TRUE(test::openProject(w, test::sampleProject(name)));
         const QString id = w.analysisPage()->analysisId();
         ASSERT_TRUE(test::waitUntil([&] { return w.runner()->result(id) != nullptr; }));
         for (int s = 0; s < 4; ++s) {

@@ -126,7 +126,7 @@ protected:
         // A good project is open first: a failed open must not lose it.
         ASSERT_TRUE(good.isValid());
         goodProject = test::copySample(QStringLiteral("orchard-nitrogen"), good);
-        ASSERT_TRUE(w.openProject(goodProject)) << w.lastMessage().toStdString();
+        ASSERT_TRUE(test::openProject(w, goodProject)) << w.lastMessage().toStdString();
         goodState = w.document()->project();
     }
     void expectGoodProjectStillOpen() {
@@ -144,7 +144,7 @@ TEST_F(BrokenProjects, CorruptProjectNamesFileLineAndColumn) {
     const std::string text = readBytes(project);
     writeBytes(project, text.substr(0, text.size() / 2));
     const Snapshot before = snapshot(dir);
-    EXPECT_FALSE(w.openProject(project));
+    EXPECT_FALSE(test::openProject(w, project));
     const QString message = w.lastMessage();
     EXPECT_TRUE(contains(message, project)) << message.toStdString();
     EXPECT_TRUE(contains(message, QStringLiteral("line "))) << message.toStdString();
@@ -158,7 +158,7 @@ TEST_F(BrokenProjects, NewerSchemaIsRefusedWithBothVersions) {
     writeBytes(project, replaced(readBytes(project), "\"schema_version\": " + std::to_string(kProjectSchemaVersion),
                                  "\"schema_version\": 42"));
     const Snapshot before = snapshot(dir);
-    EXPECT_FALSE(w.openProject(project));
+    EXPECT_FALSE(test::openProject(w, project));
     const QString message = w.lastMessage();
     EXPECT_TRUE(contains(message, project)) << message.toStdString();
     EXPECT_TRUE(contains(message, QStringLiteral("newer Moderato"))) << message.toStdString();
@@ -178,7 +178,7 @@ TEST_F(BrokenProjects, ChangedDataFileOpensWithAWarning) {
     bytes[at] = bytes[at] == '9' ? '1' : static_cast<char>(bytes[at] + 1);
     writeBytes(data, bytes);
     const Snapshot before = snapshot(dir);
-    EXPECT_TRUE(w.openProject(project)) << w.lastMessage().toStdString();
+    EXPECT_TRUE(test::openProject(w, project)) << w.lastMessage().toStdString();
     const QString message = w.lastMessage();
     EXPECT_TRUE(contains(message, QStringLiteral("changed since the project was saved"))) << message.toStdString();
     EXPECT_TRUE(contains(message, data)) << message.toStdString();
@@ -195,7 +195,7 @@ TEST_F(BrokenProjects, ChangedDataFileOpensWithAWarning) {
 TEST_F(BrokenProjects, VanishedDataFileNamesDatasetAndPath) {
     ASSERT_TRUE(QFile::remove(data));
     const Snapshot before = snapshot(dir);
-    EXPECT_FALSE(w.openProject(project));
+    EXPECT_FALSE(test::openProject(w, project));
     const QString message = w.lastMessage();
     EXPECT_TRUE(contains(message, QStringLiteral("'spend'"))) << message.toStdString();
     EXPECT_TRUE(contains(message, data)) << message.toStdString();
@@ -210,7 +210,7 @@ TEST_F(BrokenProjects, ColumnThatNoLongerExistsIsShownOnTheAnalysis) {
     bytes = replaced(bytes, "discount_pct", "discount_share");
     writeBytes(data, bytes);
     const Snapshot before = snapshot(dir);
-    EXPECT_TRUE(w.openProject(project)) << w.lastMessage().toStdString();
+    EXPECT_TRUE(test::openProject(w, project)) << w.lastMessage().toStdString();
     const QString id = w.analysisPage()->analysisId();
     ASSERT_EQ(id, QStringLiteral("discount-loyalty"));
     ASSERT_TRUE(waitForRun(w, id));
@@ -237,7 +237,7 @@ TEST(ProjectFiles, SaveReopenGivesTheSameProject) {
     const std::string dataBytes = readBytes(data), projectBytes = readBytes(project);
     MainWindow w;
     w.setInteractive(false);
-    ASSERT_TRUE(w.openProject(project)) << w.lastMessage().toStdString();
+    ASSERT_TRUE(test::openProject(w, project)) << w.lastMessage().toStdString();
     EXPECT_FALSE(w.windowTitle().contains(QLatin1Char('*'))) << w.windowTitle().toStdString();
     const QString id = QStringLiteral("discount-loyalty");
     // Edits of several kinds, each through the document.
@@ -275,7 +275,7 @@ TEST(ProjectFiles, SaveReopenGivesTheSameProject) {
     // Reopened in another window: the same project, the same results.
     MainWindow again;
     again.setInteractive(false);
-    ASSERT_TRUE(again.openProject(saved)) << again.lastMessage().toStdString();
+    ASSERT_TRUE(test::openProject(again, saved)) << again.lastMessage().toStdString();
     EXPECT_TRUE(again.document()->project() == w.document()->project());
     EXPECT_TRUE(again.lastMessage().isEmpty()) << again.lastMessage().toStdString();  // no warnings
     const Analysis* reopened = again.document()->analysis(id);
@@ -303,7 +303,7 @@ TEST(ProjectFiles, SavingOverADataFileIsRefused) {
     const QString data = dir.filePath(QStringLiteral("spend.csv"));
     MainWindow w;
     w.setInteractive(false);
-    ASSERT_TRUE(w.openProject(project));
+    ASSERT_TRUE(test::openProject(w, project));
     w.sidebar()->renameAnalysis(QStringLiteral("discount-loyalty"), QStringLiteral("renamed"));
     const Snapshot before = snapshot(dir);
     EXPECT_FALSE(w.saveAs(data));
@@ -333,7 +333,7 @@ TEST(ProjectFiles, UndoRedoRestoreExactStates) {
     ASSERT_TRUE(QFile::copy(test::samplesDir() + QStringLiteral("/helpdesk-staffing/tickets.csv"), extraCsv));
     MainWindow w;
     w.setInteractive(false);
-    ASSERT_TRUE(w.openProject(project));
+    ASSERT_TRUE(test::openProject(w, project));
     ProjectDocument* doc = w.document();
     const QString id = QStringLiteral("discount-loyalty");
     const auto sidebarNames = [&] {
@@ -352,7 +352,7 @@ TEST(ProjectFiles, UndoRedoRestoreExactStates) {
     w.sidebar()->removeAnalysis(id);
     states.push_back(doc->project());
     shown.push_back(sidebarNames());
-    ASSERT_TRUE(w.importData(extraCsv, CsvOptions{})) << w.lastMessage().toStdString();
+    ASSERT_TRUE(test::importData(w, extraCsv)) << w.lastMessage().toStdString();
     states.push_back(doc->project());
     shown.push_back(sidebarNames());
 
@@ -400,7 +400,7 @@ TEST(ProjectFiles, SidebarEditsAreOneUndoStepEach) {
     MainWindow w;
     w.setInteractive(false);
     w.show();
-    ASSERT_TRUE(w.openProject(project));
+    ASSERT_TRUE(test::openProject(w, project));
     ProjectDocument* doc = w.document();
     QUndoStack* undo = doc->undoStack();
     const QString id = QStringLiteral("discount-loyalty");
@@ -450,12 +450,12 @@ TEST(ProjectFiles, UndoneDatasetDoesNotLeaveItsTableBehind) {
     writeBytes(second, "height,weight,age,group\n1.7,60,30,a\n1.8,75,41,b\n1.6,55,25,a\n");
     MainWindow w;
     w.setInteractive(false);
-    ASSERT_TRUE(w.importData(first, CsvOptions{}));
+    ASSERT_TRUE(test::importData(w, first));
     ASSERT_TRUE(w.document()->table("data"));
     EXPECT_TRUE(w.document()->table("data")->find("alpha"));
     w.document()->undoStack()->undo();
     EXPECT_TRUE(w.document()->project().datasets.empty());
-    ASSERT_TRUE(w.importData(second, CsvOptions{}));
+    ASSERT_TRUE(test::importData(w, second));
     ASSERT_EQ(w.document()->project().datasets.size(), 1u);
     const auto table = w.document()->table(w.document()->project().datasets[0].id);
     ASSERT_TRUE(table);
@@ -473,9 +473,9 @@ TEST(ProjectFiles, RecentFilesListTheNewestFirst) {
     const QString p2 = test::copySample(QStringLiteral("orchard-nitrogen"), dir2);
     MainWindow w;
     w.setInteractive(false);
-    ASSERT_TRUE(w.openProject(p1));
-    ASSERT_TRUE(w.openProject(p2));
-    ASSERT_TRUE(w.openProject(p1));
+    ASSERT_TRUE(test::openProject(w, p1));
+    ASSERT_TRUE(test::openProject(w, p2));
+    ASSERT_TRUE(test::openProject(w, p1));
     const QStringList recent = QSettings().value(QStringLiteral("recentFiles")).toStringList();
     ASSERT_EQ(recent.size(), 2);
     EXPECT_EQ(recent[0], QFileInfo(p1).absoluteFilePath());
@@ -490,13 +490,13 @@ TEST(ProjectFiles, RecentFilesListTheNewestFirst) {
     EXPECT_EQ(texts,
               (QStringList{QStringLiteral("coffee-discount.moderato"), QStringLiteral("orchard-nitrogen.moderato")}));
     // Choosing one opens it.
-    recentMenu->actions()[1]->trigger();
+    EXPECT_EQ(test::finishLoad(w, [&] { recentMenu->actions()[1]->trigger(); }), MainWindow::Loaded);
     EXPECT_EQ(w.document()->filePath(), QFileInfo(p2).absoluteFilePath());
     // A failed open does not enter the list.
     QTemporaryDir dir3;
     const QString broken = test::copySample(QStringLiteral("helpdesk-staffing"), dir3);
     writeBytes(broken, "{ not json");
-    EXPECT_FALSE(w.openProject(broken));
+    EXPECT_FALSE(test::openProject(w, broken));
     EXPECT_FALSE(
         QSettings().value(QStringLiteral("recentFiles")).toStringList().contains(QFileInfo(broken).absoluteFilePath()));
     QSettings().remove(QStringLiteral("recentFiles"));
@@ -528,7 +528,9 @@ TEST(ProjectFiles, DroppingACsvAddsADataset) {
     const Snapshot before = snapshot(dir);
     MainWindow w;
     w.setInteractive(false);
-    ASSERT_TRUE(dragAndDrop(w, QUrl::fromLocalFile(csv)));
+    bool accepted = false;
+    ASSERT_EQ(test::finishLoad(w, [&] { accepted = dragAndDrop(w, QUrl::fromLocalFile(csv)); }), MainWindow::Loaded);
+    ASSERT_TRUE(accepted);
     ASSERT_EQ(w.document()->project().datasets.size(), 1u);
     const DataSource& source = w.document()->project().datasets[0];
     EXPECT_EQ(source.id, "plots");
@@ -548,7 +550,9 @@ TEST(ProjectFiles, DroppingACsvAddsADataset) {
     // Dropping a project file opens the project.
     QTemporaryDir pdir;
     const QString project = test::copySample(QStringLiteral("volunteer-onboarding"), pdir);
-    ASSERT_TRUE(dragAndDrop(w, QUrl::fromLocalFile(project)));
+    ASSERT_EQ(test::finishLoad(w, [&] { accepted = dragAndDrop(w, QUrl::fromLocalFile(project)); }),
+              MainWindow::Loaded);
+    ASSERT_TRUE(accepted);
     EXPECT_EQ(w.document()->filePath(), QFileInfo(project).absoluteFilePath()) << w.lastMessage().toStdString();
     EXPECT_EQ(w.document()->project().datasets.size(), 1u);
     EXPECT_FALSE(w.document()->isModified());

@@ -18,7 +18,7 @@ TEST(Shell, EverySampleProjectOpensWithAReadyAnalysis) {
         SCOPED_TRACE(name.toStdString());
         MainWindow w;
         w.setInteractive(false);
-        ASSERT_TRUE(w.openProject(test::sampleProject(name))) << w.lastMessage().toStdString();
+        ASSERT_TRUE(test::openProject(w, test::sampleProject(name))) << w.lastMessage().toStdString();
         ASSERT_FALSE(w.document()->project().analyses.empty());
         const QString id = w.analysisPage()->analysisId();
         ASSERT_FALSE(id.isEmpty());

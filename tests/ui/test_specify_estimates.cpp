@@ -53,7 +53,7 @@ struct Open {
     explicit Open(const QString& name) {
         w.setInteractive(false);
         w.resize(1280, 860);
-        if (!w.openProject(test::sampleProject(name))) ADD_FAILURE() << w.lastMessage().toStdString();
+        if (!test::openProject(w, test::sampleProject(name))) ADD_FAILURE() << w.lastMessage().toStdString();
         id = w.analysisPage()->analysisId();
         waitForRun();
     }

@@ -4,7 +4,10 @@
 // core in the test (core cell_table, surface_grid, diagnostics on a design
 // and fit built here from the project file), and the flag list with the
 // rules of thumb (common practice: |studentised residual| > 3, leverage >
-// 3p/n, Cook's distance > 4/n) applied here to core's diagnostics.
+// 3p/n, Cook's distance > 4/n) applied here to core's diagnostics. The
+// influence view's rule lines are checked against those thresholds worked
+// out here (closed form), and the residual plot's bin means and intervals
+// against means and standard deviations computed here.
 //
 // Set MODERATO_SCREENSHOT_DIR to also save a PNG of each widget there.
 #include <gtest/gtest.h>
@@ -13,8 +16,10 @@
 #include <QApplication>
 #include <QClipboard>
 #include <QDir>
+#include <QFileInfo>
 #include <QHeaderView>
 #include <QLabel>
+#include <QLocale>
 #include <QPushButton>
 #include <QSignalSpy>
 #include <QStandardItemModel>
@@ -28,6 +33,7 @@
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "moderato/estimation/diagnostics.hpp"
+#include "moderato/estimation/distributions.hpp"
 #include "moderato/probing/surface_view.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/project/project_loader.hpp"
@@ -67,7 +73,7 @@ Direct direct(const QString& name) {
 
 std::shared_ptr<const AnalysisRun> openAndRun(MainWindow& w, const QString& name) {
     w.setInteractive(false);
-    if (!w.openProject(test::sampleProject(name))) {
+    if (!test::openProject(w, test::sampleProject(name))) {
         ADD_FAILURE() << w.lastMessage().toStdString();
         return nullptr;
     }
@@ -382,9 +388,14 @@ void checkFlaggedList(const QString& name, bool clickAndShow) {
         EXPECT_FALSE(m->index(r, FlaggedRowsModel::Rules).data().toString().isEmpty());
     }
     EXPECT_EQ(listed, expected);
-    // The rules are stated.
-    EXPECT_TRUE(checks->rulesLabel()->text().contains(QStringLiteral("common practice")));
-    EXPECT_TRUE(checks->rulesLabel()->text().contains(QStringLiteral("3p/n")));
+    // The rules are stated in words, with their numbers (n rows, p coefficients).
+    const QString rules = checks->rulesLabel()->text();
+    const QString n = QLocale(QLocale::English).toString(static_cast<qulonglong>(ref.n));
+    const QString p = QString::number(ref.p);
+    EXPECT_TRUE(rules.contains(QStringLiteral("common practice"))) << rules.toStdString();
+    EXPECT_TRUE(rules.contains(QStringLiteral("beyond ±3"))) << rules.toStdString();
+    EXPECT_TRUE(rules.contains(QStringLiteral("leverage above 3 × %1 / %2 = ").arg(p, n))) << rules.toStdString();
+    EXPECT_TRUE(rules.contains(QStringLiteral("Cook's distance above 4 / %1 = ").arg(n))) << rules.toStdString();
     // Flagged points are all drawn in each plot.
     for (DiagnosticPlot* p : {checks->residualPlot(), checks->quantilePlot(), checks->influencePlot()}) {
         SCOPED_TRACE(p->figureKey().toStdString());
@@ -464,6 +475,209 @@ TEST(ChecksSection, WithoutARunShowsTheReason) {
     EXPECT_EQ(checks->flaggedView()->model()->rowCount(), 0);
     EXPECT_FALSE(checks->showInDatasetButton()->isEnabled());
     EXPECT_TRUE(checks->findChild<QLabel*>(QStringLiteral("checks-note"))->text().contains(QStringLiteral("'y'")));
+}
+
+namespace {
+
+// The file line of each observation of the fit (the rows the design kept).
+std::vector<double> fileLines(const Direct& d) {
+    std::vector<double> lines;
+    for (std::size_t row : d.design.rows) lines.push_back(static_cast<double>(d.table->row_lines.at(row)));
+    return lines;
+}
+
+// The observations above `limit` by `value`, largest first, at most `most` of them.
+std::vector<std::size_t> largestAbove(const Eigen::VectorXd& value, double limit, std::size_t most) {
+    std::vector<std::size_t> over;
+    for (Eigen::Index i = 0; i < value.size(); ++i)
+        if (std::isfinite(value[i]) && value[i] > limit) over.push_back(static_cast<std::size_t>(i));
+    std::stable_sort(over.begin(), over.end(), [&](std::size_t a, std::size_t b) {
+        return value[static_cast<Eigen::Index>(a)] > value[static_cast<Eigen::Index>(b)];
+    });
+    if (over.size() > most) over.resize(most);
+    return over;
+}
+
+// Every point of a panel (rows and flagged rows) as x -> y.
+std::map<double, double> panelPoints(DiagnosticPlot* plot, int panel) {
+    std::map<double, double> points;
+    for (QCPGraph* g : {plot->pointsGraph(panel), plot->flaggedGraph(panel)})
+        for (auto it = g->data()->constBegin(); it != g->data()->constEnd(); ++it) points[it->key] = it->value;
+    return points;
+}
+
+// The texts of the plot's text items that start with `prefix`.
+std::set<QString> itemTexts(QCustomPlot* plot, const QString& prefix) {
+    std::set<QString> texts;
+    for (int i = 0; i < plot->itemCount(); ++i)
+        if (auto* t = qobject_cast<QCPItemText*>(plot->item(i)))
+            if (t->text().startsWith(prefix)) texts.insert(t->text());
+    return texts;
+}
+
+void checkInfluenceView(const QString& name) {
+    SCOPED_TRACE(name.toStdString());
+    MainWindow w;
+    ASSERT_TRUE(openAndRun(w, name));
+    w.resize(1400, 900);
+    w.show();
+    ASSERT_TRUE(QTest::qWaitForWindowExposed(&w));
+    w.analysisPage()->showSection(AnalysisPage::Checks);
+    DiagnosticPlot* plot = w.analysisPage()->checks()->influencePlot();
+    ASSERT_EQ(plot->figureKey(), QStringLiteral("influence"));  // the key project files store
+    ASSERT_EQ(plot->panelCount(), 2);
+
+    const Direct d = direct(name);
+    const Diagnostics ref = diagnostics(d.design, d.fit);  // core diagnostics on the fit built here
+    const double n = static_cast<double>(d.design.rows.size());
+    double p = 0;  // estimable coefficients (aliased ones are NaN)
+    for (Eigen::Index j = 0; j < d.fit.beta.size(); ++j) p += std::isnan(d.fit.beta[j]) ? 0 : 1;
+    // The flag rules as lines (closed form: 4/n and 3p/n; common practice).
+    EXPECT_NEAR(plot->ruleValue(0), 4.0 / n, 1e-15);
+    EXPECT_NEAR(plot->ruleValue(1), 3.0 * p / n, 1e-15);
+    // ... stated over each panel, and drawn across it at that value.
+    const QString rows = QLocale(QLocale::English).toString(static_cast<qulonglong>(n));
+    EXPECT_TRUE(
+        plot->panelCaption(0).startsWith(QStringLiteral("Cook's distance: flagged above 4 / %1 rows = ").arg(rows)))
+        << plot->panelCaption(0).toStdString();
+    EXPECT_TRUE(plot->panelCaption(1).startsWith(
+        QStringLiteral("Leverage: flagged above 3 × %1 coefficients / %2 rows = ").arg(p).arg(rows)))
+        << plot->panelCaption(1).toStdString();
+    int rules = 0;
+    for (int i = 0; i < plot->figurePlot()->graphCount(); ++i) {
+        QCPGraph* g = plot->figurePlot()->graph(i);
+        if (g->name() != QStringLiteral("flag rule")) continue;
+        const int panel = g->keyAxis()->axisRect() == plot->panelRect(0) ? 0 : 1;
+        ASSERT_EQ(g->dataCount(), 2);
+        for (int k = 0; k < 2; ++k) EXPECT_EQ(g->data()->at(k)->value, plot->ruleValue(panel));
+        ++rules;
+    }
+    EXPECT_EQ(rules, 2);
+
+    // Each row at its file line, with core's Cook's distance above and leverage below.
+    const std::vector<double> lines = fileLines(d);
+    const std::map<double, double> cooks = panelPoints(plot, 0), leverage = panelPoints(plot, 1);
+    ASSERT_EQ(leverage.size(), lines.size()) << "every row is drawn (no thinning at this size)";
+    for (std::size_t i = 0; i < lines.size(); ++i) {
+        const auto e = static_cast<Eigen::Index>(i);
+        ASSERT_TRUE(leverage.count(lines[i])) << "line " << lines[i];
+        EXPECT_NEAR(leverage.at(lines[i]), ref.leverage[e], 1e-12);
+        if (std::isfinite(ref.cooks_distance[e])) {
+            EXPECT_NEAR(cooks.at(lines[i]), ref.cooks_distance[e], 1e-12);
+        }
+    }
+    // The largest rows above each line are labelled "line N".
+    const auto expectLabels = [&](int panel, const Eigen::VectorXd& value, double limit) {
+        const std::vector<std::size_t> want = largestAbove(value, limit, DiagnosticPlot::kMaxLabels);
+        EXPECT_EQ(plot->labelledObservations(panel), want) << "panel " << panel;
+        return want;
+    };
+    std::set<QString> wantTexts;
+    for (std::size_t o : expectLabels(0, ref.cooks_distance, 4.0 / n))
+        wantTexts.insert(QStringLiteral("line %1").arg(static_cast<qulonglong>(lines[o])));
+    for (std::size_t o : expectLabels(1, ref.leverage, 3.0 * p / n))
+        wantTexts.insert(QStringLiteral("line %1").arg(static_cast<qulonglong>(lines[o])));
+    EXPECT_FALSE(wantTexts.empty());
+    EXPECT_EQ(itemTexts(plot->figurePlot(), QStringLiteral("line ")), wantTexts);
+    // Axis titles in words; no fixed Cook's distance contours (no curves at all).
+    EXPECT_EQ(plot->panelRect(0)->axis(QCPAxis::atLeft)->label(), QStringLiteral("Cook's distance"));
+    EXPECT_EQ(plot->panelRect(1)->axis(QCPAxis::atLeft)->label(), QStringLiteral("leverage"));
+    EXPECT_EQ(plot->panelRect(1)->axis(QCPAxis::atBottom)->label(),
+              QStringLiteral("line of %1").arg(QFileInfo(QString::fromStdString(d.table->source)).fileName()));
+    for (int i = 0; i < plot->figurePlot()->plottableCount(); ++i)
+        EXPECT_EQ(qobject_cast<QCPCurve*>(plot->figurePlot()->plottable(i)), nullptr);
+}
+
+}  // namespace
+
+TEST(ChecksSection, InfluenceViewDrawsCoreNumbersWithTheFlagRules) {
+    checkInfluenceView(QStringLiteral("orchard-nitrogen"));
+}
+
+TEST(ChecksSection, LogisticInfluenceViewDrawsCoreNumbersWithTheFlagRules) {
+    // trial-conversion: rows with a missing region, so file lines and fit rows differ
+    checkInfluenceView(QStringLiteral("trial-conversion"));
+}
+
+TEST(ChecksSection, ResidualBinsShowTheMeanResidualWithItsInterval) {
+    MainWindow w;
+    ASSERT_TRUE(openAndRun(w, QStringLiteral("orchard-nitrogen")));
+    w.show();
+    ASSERT_TRUE(QTest::qWaitForWindowExposed(&w));
+    w.analysisPage()->showSection(AnalysisPage::Checks);
+    DiagnosticPlot* plot = w.analysisPage()->checks()->residualPlot();
+    const Direct d = direct(QStringLiteral("orchard-nitrogen"));
+    // Residuals y - fitted in order of the fitted value, computed here.
+    const Eigen::Index m = d.fit.fitted.size();
+    std::vector<Eigen::Index> order(static_cast<std::size_t>(m));
+    for (Eigen::Index i = 0; i < m; ++i) order[static_cast<std::size_t>(i)] = i;
+    std::stable_sort(order.begin(), order.end(),
+                     [&](Eigen::Index a, Eigen::Index b) { return d.fit.fitted[a] < d.fit.fitted[b]; });
+    // 480 rows: min(480 / 10, 20) = 20 bins of 24 rows (the rule in diagnostic_plots.cpp).
+    const std::size_t k = 20;
+    ASSERT_EQ(m, 480);
+    QCPGraph* means = plot->binMeansGraph();
+    ASSERT_TRUE(means);
+    ASSERT_EQ(means->dataCount(), static_cast<int>(k));
+    auto bars = plot->binIntervals()->data();
+    ASSERT_EQ(bars->size(), static_cast<int>(k));
+    for (std::size_t g = 0; g < k; ++g) {
+        const std::size_t lo = g * 480 / k, hi = (g + 1) * 480 / k;
+        double sf = 0, sr = 0;
+        for (std::size_t t = lo; t < hi; ++t) {
+            const Eigen::Index i = order[t];
+            sf += d.fit.fitted[i];
+            sr += d.design.y[i] - d.fit.fitted[i];
+        }
+        const double c = static_cast<double>(hi - lo), mean = sr / c;
+        double ss = 0;
+        for (std::size_t t = lo; t < hi; ++t) {
+            const Eigen::Index i = order[t];
+            ss += std::pow(d.design.y[i] - d.fit.fitted[i] - mean, 2);
+        }
+        // mean ± t(0.975, c − 1) s / √c (closed form; the t quantile from core's Boost wrapper)
+        const double half = dist::t_quantile(0.975, c - 1) * std::sqrt(ss / (c - 1)) / std::sqrt(c);
+        const auto point = means->data()->at(static_cast<int>(g));
+        EXPECT_NEAR(point->key, sf / c, 1e-9);
+        EXPECT_NEAR(point->value, mean, 1e-9);
+        EXPECT_NEAR(bars->at(static_cast<int>(g)).errorMinus, half, 1e-9);
+        EXPECT_NEAR(bars->at(static_cast<int>(g)).errorPlus, half, 1e-9);
+    }
+    EXPECT_EQ(plot->panelRect()->axis(QCPAxis::atLeft)->label(), QStringLiteral("residual (observed − fitted)"));
+}
+
+TEST(ChecksSection, LabelsAreSpelledOut) {
+    for (const QString& name : {QStringLiteral("orchard-nitrogen"), QStringLiteral("trial-conversion")}) {
+        SCOPED_TRACE(name.toStdString());
+        MainWindow w;
+        ASSERT_TRUE(openAndRun(w, name));
+        w.show();
+        ASSERT_TRUE(QTest::qWaitForWindowExposed(&w));
+        w.analysisPage()->showSection(AnalysisPage::Checks);
+        ChecksSection* checks = w.analysisPage()->checks();
+        ASSERT_TRUE(checks->diagnostics());
+        QStringList texts;
+        for (DiagnosticPlot* p : {checks->residualPlot(), checks->quantilePlot(), checks->influencePlot()}) {
+            QCustomPlot* cp = p->figurePlot();
+            for (QCPAxisRect* rect : cp->axisRects())
+                for (QCPAxis* axis : rect->axes()) texts << axis->label();
+            for (int i = 0; i < cp->legend->itemCount(); ++i)
+                if (auto* item = qobject_cast<QCPPlottableLegendItem*>(cp->legend->item(i)))
+                    texts << item->plottable()->name();
+        }
+        QAbstractItemModel* m = checks->flaggedView()->model();
+        for (int c = 0; c < m->columnCount(); ++c) texts << m->headerData(c, Qt::Horizontal).toString();
+        for (int r = 0; r < m->rowCount(); ++r) texts << m->index(r, FlaggedRowsModel::Rules).data().toString();
+        texts << checks->rulesLabel()->text() << checks->findChild<QLabel*>(QStringLiteral("checks-note"))->text();
+        for (const QString& t : texts) {
+            EXPECT_FALSE(t.contains(QStringLiteral("std."))) << t.toStdString();
+            EXPECT_FALSE(t.contains(QStringLiteral("Cook's D"))) << t.toStdString();
+            EXPECT_FALSE(t.contains(QStringLiteral("p/n"))) << t.toStdString();
+        }
+        EXPECT_TRUE(texts.contains(name == QStringLiteral("trial-conversion")
+                                       ? QStringLiteral("standardised Pearson residual")
+                                       : QStringLiteral("externally studentised residual")));
+    }
 }
 
 TEST(DiagnosticPlot, DenseScatterIsThinnedButFlaggedRowsAreAllDrawn) {

@@ -63,7 +63,7 @@ struct Session {
         w.setInteractive(false);
         w.resize(1400, 900);
         w.show();
-        EXPECT_TRUE(w.openProject(path)) << w.lastMessage().toStdString();
+        EXPECT_TRUE(test::openProject(w, path)) << w.lastMessage().toStdString();
         id = w.analysisPage()->analysisId();
         EXPECT_TRUE(waitForRun());
         w.activateWindow();
@@ -385,7 +385,7 @@ TEST(UserFlows, ImportingIntoAProjectStartsAnAnalysisOfTheNewData) {
     const QString tickets = s.dir.filePath(QStringLiteral("tickets.csv"));
     ASSERT_TRUE(QFile::copy(test::samplesDir() + QStringLiteral("/helpdesk-staffing/tickets.csv"), tickets));
     const int undoBefore = s.w.document()->undoStack()->count();
-    ASSERT_TRUE(s.w.importData(tickets, CsvOptions{})) << s.w.lastMessage().toStdString();
+    ASSERT_TRUE(test::importData(s.w, tickets)) << s.w.lastMessage().toStdString();
 
     const Project& p = s.w.document()->project();
     ASSERT_EQ(p.datasets.size(), 2u);

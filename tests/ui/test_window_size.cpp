@@ -14,7 +14,7 @@ TEST(WindowSize, EverySectionOfEverySampleFitsA1280By720Screen) {
         SCOPED_TRACE(name.toStdString());
         MainWindow w;
         w.setInteractive(false);
-        ASSERT_TRUE(w.openProject(moderato::test::sampleProject(name)));
+        ASSERT_TRUE(moderato::test::openProject(w, moderato::test::sampleProject(name)));
         const QString id = w.analysisPage()->analysisId();
         ASSERT_TRUE(moderato::test::waitUntil([&] { return w.runner()->result(id) != nullptr; }));
         w.show();

@@ -4,9 +4,13 @@
 #include <QCoreApplication>
 #include <QDir>
 #include <QElapsedTimer>
+#include <QSignalSpy>
 #include <QString>
 #include <QTemporaryDir>
 #include <functional>
+
+#include "moderato/reading/csv.hpp"
+#include "shell/main_window.hpp"
 
 namespace moderato::test {
 
@@ -30,6 +34,25 @@ inline bool waitUntil(const std::function<bool()>& done, int ms = 10000) {
         QCoreApplication::processEvents(QEventLoop::AllEvents, 20);
     }
     return true;
+}
+
+// Runs `start` (which opens or imports a file in the main window: a menu
+// action, a drop, a call) and waits until the window's load has ended.
+// Returns how it ended (Failed also when it did not end within `ms`).
+inline ui::MainWindow::LoadResult finishLoad(ui::MainWindow& w, const std::function<void()>& start, int ms = 60000) {
+    QSignalSpy spy(&w, &ui::MainWindow::loadFinished);
+    start();
+    if (spy.isEmpty() && !spy.wait(ms)) return ui::MainWindow::Failed;
+    return spy.first().at(1).value<ui::MainWindow::LoadResult>();
+}
+
+// Opens a project or reads a data file in the main window and waits for it;
+// whether it was loaded.
+inline bool openProject(ui::MainWindow& w, const QString& path) {
+    return finishLoad(w, [&] { w.openProject(path); }) == ui::MainWindow::Loaded;
+}
+inline bool importData(ui::MainWindow& w, const QString& path, const CsvOptions& options = {}) {
+    return finishLoad(w, [&] { w.importData(path, options); }) == ui::MainWindow::Loaded;
 }
 
 // Copies a sample project folder into `dir` and returns the copied project path.

@@ -200,8 +200,10 @@ QuantilePlot normal_quantile_plot(const Eigen::VectorXd& values) {
     return q;
 }
 
-BinnedResiduals binned_residuals(const Eigen::VectorXd& fitted, const Eigen::VectorXd& residual, int bins) {
+BinnedResiduals binned_residuals(const Eigen::VectorXd& fitted, const Eigen::VectorXd& residual, int bins,
+                                 double level) {
     BinnedResiduals b;
+    b.level = level;
     std::vector<std::size_t> idx;
     for (Eigen::Index i = 0; i < std::min(fitted.size(), residual.size()); ++i)
         if (!std::isnan(fitted[i]) && !std::isnan(residual[i])) idx.push_back(static_cast<std::size_t>(i));
@@ -219,9 +221,24 @@ BinnedResiduals binned_residuals(const Eigen::VectorXd& fitted, const Eigen::Vec
             sr += residual[static_cast<Eigen::Index>(idx[t])];
         }
         const auto c = static_cast<long double>(hi - lo);
+        const double mean = static_cast<double>(sr / c);
         b.fitted_mean.push_back(static_cast<double>(sf / c));
-        b.residual_mean.push_back(static_cast<double>(sr / c));
+        b.residual_mean.push_back(mean);
         b.count.push_back(hi - lo);
+        // The interval of the bin's mean: its standard deviation (two passes).
+        double half = kNaN;
+        if (hi - lo > 1) {
+            long double ss = 0;
+            for (std::size_t t = lo; t < hi; ++t) {
+                const long double e = residual[static_cast<Eigen::Index>(idx[t])] - mean;
+                ss += e * e;
+            }
+            const double df = static_cast<double>(c) - 1.0;
+            const double sd = std::sqrt(static_cast<double>(ss) / df);
+            half = dist::t_quantile(1.0 - (1.0 - level) / 2.0, df) * sd / std::sqrt(static_cast<double>(c));
+        }
+        b.residual_lower.push_back(mean - half);
+        b.residual_upper.push_back(mean + half);
     }
     return b;
 }

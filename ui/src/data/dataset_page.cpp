@@ -68,6 +68,26 @@ DatasetPage::DatasetPage(ProjectDocument* doc, QWidget* parent) : QWidget(parent
 
     auto* split = new QSplitter(Qt::Horizontal, this);
     split->setObjectName(QStringLiteral("dataset-splitter"));
+    createGrid(split);
+    split->addWidget(grid_);
+    auto* side = new QWidget(split);
+    side->setObjectName(QStringLiteral("dataset-side"));
+    auto* sideLayout = new QVBoxLayout(side);
+    sideLayout->setContentsMargins(0, 0, 0, 0);
+    sideLayout->addWidget(createSummaryBox(side), 3);
+    sideLayout->addWidget(createRecipeBox(side), 1);
+    split->addWidget(side);
+    split->setStretchFactor(0, 1);
+    split->setStretchFactor(1, 0);
+    split->setSizes({800, 300});
+    layout->addWidget(split, 1);
+
+    connectSignals();
+    showSummary(-1);
+}
+
+// The grid of the table's cells (the core table itself, never copied).
+void DatasetPage::createGrid(QWidget* split) {
     grid_ = new QTableView(split);
     grid_->setObjectName(QStringLiteral("dataset-grid"));
     model_ = new TableModel(grid_);
@@ -86,12 +106,10 @@ DatasetPage::DatasetPage(ProjectDocument* doc, QWidget* parent) : QWidget(parent
     hh->setDefaultSectionSize(110);
     hh->setHighlightSections(true);
     hh->setResizeContentsPrecision(200);  // sizing columns looks at a few hundred rows, not all
-    split->addWidget(grid_);
+}
 
-    auto* side = new QWidget(split);
-    side->setObjectName(QStringLiteral("dataset-side"));
-    auto* sideLayout = new QVBoxLayout(side);
-    sideLayout->setContentsMargins(0, 0, 0, 0);
+// The summary of the selected column: statistics, histogram or level bars, levels table.
+QWidget* DatasetPage::createSummaryBox(QWidget* side) {
     auto* summaryBox = new QGroupBox(tr("Column"), side);
     auto* summaryLayout = new QVBoxLayout(summaryBox);
     summaryTitle_ = new QLabel(summaryBox);
@@ -140,8 +158,11 @@ DatasetPage::DatasetPage(ProjectDocument* doc, QWidget* parent) : QWidget(parent
     summaryLayout->addWidget(levels_, 1);
     summaryLayout->addStretch(0);
     summaryLayout_ = summaryLayout;
-    sideLayout->addWidget(summaryBox, 3);
+    return summaryBox;
+}
 
+// The derived columns of the dataset, with Add and Remove.
+QWidget* DatasetPage::createRecipeBox(QWidget* side) {
     auto* recipeBox = new QGroupBox(tr("Derived columns"), side);
     auto* recipeLayout = new QVBoxLayout(recipeBox);
     recipes_ = new QListWidget(recipeBox);
@@ -161,17 +182,14 @@ DatasetPage::DatasetPage(ProjectDocument* doc, QWidget* parent) : QWidget(parent
     recipeButtons->addStretch(1);
     recipeButtons->addWidget(removeDerived_);
     recipeLayout->addLayout(recipeButtons);
-    sideLayout->addWidget(recipeBox, 1);
-    split->addWidget(side);
-    split->setStretchFactor(0, 1);
-    split->setStretchFactor(1, 0);
-    split->setSizes({800, 300});
-    layout->addWidget(split, 1);
+    return recipeBox;
+}
 
+void DatasetPage::connectSignals() {
     connect(grid_->selectionModel(), &QItemSelectionModel::currentChanged, this, [this](const QModelIndex& current) {
         if (current.isValid() && current.column() != summaryColumn_) showSummary(current.column());
     });
-    connect(hh, &QHeaderView::sectionClicked, this, &DatasetPage::showSummary);
+    connect(grid_->horizontalHeader(), &QHeaderView::sectionClicked, this, &DatasetPage::showSummary);
     connect(recipes_, &QListWidget::currentRowChanged, this, [this](int row) { removeDerived_->setEnabled(row >= 0); });
     connect(recipes_, &QListWidget::itemActivated, this, [this](QListWidgetItem* item) {
         const Table* t = model_->table();
@@ -195,7 +213,6 @@ DatasetPage::DatasetPage(ProjectDocument* doc, QWidget* parent) : QWidget(parent
         const std::string id = id_.toStdString();
         if (!doc_->project().dataset(id) || model_->sharedTable() != doc_->table(id)) refresh();
     });
-    showSummary(-1);
 }
 
 void DatasetPage::showDataset(const QString& id) {
@@ -324,18 +341,23 @@ void DatasetPage::showSummary(int column) {
     summaryLayout_->setStretchFactor(levels_, numeric ? 0 : 1);
     summaryLayout_->setStretch(summaryLayout_->count() - 1, numeric ? 1 : 0);
 
-    if (numeric) {
-        levels_->hide();
-        levels_->setRowCount(0);
-        histogram_->setHistogram(s.histogram.edges, s.histogram.counts);
-        if (s.histogram.counts.empty()) histogramNote_->setText(tr("No values to draw."));
-        else
-            histogramNote_->setText(tr("%1 of width %2 (the narrower of the Freedman–Diaconis and Sturges "
-                                       "widths, at most 40 bins).")
-                                        .arg(plural(s.histogram.counts.size(), tr("bin"), tr("bins")),
-                                             num(s.histogram.edges[1] - s.histogram.edges[0])));
-        return;
-    }
+    if (numeric) showNumeric(s);
+    else showLevels(s);
+}
+
+void DatasetPage::showNumeric(const ColumnSummary& s) {
+    levels_->hide();
+    levels_->setRowCount(0);
+    histogram_->setHistogram(s.histogram.edges, s.histogram.counts);
+    if (s.histogram.counts.empty()) histogramNote_->setText(tr("No values to draw."));
+    else
+        histogramNote_->setText(tr("%1 of width %2 (the narrower of the Freedman–Diaconis and Sturges "
+                                   "widths, at most 40 bins).")
+                                    .arg(plural(s.histogram.counts.size(), tr("bin"), tr("bins")),
+                                         num(s.histogram.edges[1] - s.histogram.edges[0])));
+}
+
+void DatasetPage::showLevels(const ColumnSummary& s) {
     // Levels: the table lists the most frequent first; the bars show the most frequent few.
     std::vector<std::size_t> order(s.levels.size());
     std::iota(order.begin(), order.end(), std::size_t{0});

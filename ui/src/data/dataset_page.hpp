@@ -62,6 +62,15 @@ protected:
     void changeEvent(QEvent* event) override;
 
 private:
+    // The constructor's steps: the grid, the column summary, the derived
+    // columns, then the connections.
+    void createGrid(QWidget* split);
+    QWidget* createSummaryBox(QWidget* side);
+    QWidget* createRecipeBox(QWidget* side);
+    void connectSignals();
+    // The summary of a numeric column (histogram) or of a categorical one (levels).
+    void showNumeric(const ColumnSummary& s);
+    void showLevels(const ColumnSummary& s);
     void refresh();
     void updateHeader();
     void updateRecipes();

@@ -21,10 +21,9 @@
 #include <QTableWidget>
 #include <QTimer>
 #include <QVBoxLayout>
-#include <QtConcurrent/QtConcurrentRun>
 #include <algorithm>
-#include <atomic>
 
+#include "common/background_job.hpp"
 #include "data/csv_head.hpp"
 #include "data/table_model.hpp"
 #include "moderato/support/error.hpp"
@@ -32,11 +31,6 @@
 #include "style/palette_text.hpp"
 
 namespace moderato::ui {
-
-struct ImportDialog::LoadState {
-    std::atomic<std::size_t> done{0}, total{0};
-    std::atomic<bool> stop{false};
-};
 
 namespace {
 
@@ -82,20 +76,23 @@ ImportDialog::ImportDialog(const QString& path, QWidget* parent) : QDialog(paren
     setObjectName(QStringLiteral("import-dialog"));
     setWindowTitle(tr("Import %1").arg(QFileInfo(path).fileName()));
     buildUi();
-    connect(&watcher_, &QFutureWatcher<LoadResult>::finished, this, &ImportDialog::loadFinished);
     refreshPreview();
-}
-
-ImportDialog::~ImportDialog() {
-    if (load_) {
-        load_->stop = true;
-        watcher_.waitForFinished();
-    }
 }
 
 void ImportDialog::buildUi() {
     auto* layout = new QVBoxLayout(this);
+    layout->addWidget(createFileLabel());
+    auto* top = new QHBoxLayout;
+    top->addWidget(createReadingOptions(), 3);
+    top->addWidget(createMissingValues(), 2);
+    layout->addLayout(top);
+    layout->addWidget(createPreview(), 1);
+    createFooter(layout);
+    connectSignals();
+    resize(920, 640);
+}
 
+QWidget* ImportDialog::createFileLabel() {
     const QFileInfo info(path_);
     auto* file = new QLabel(this);
     file->setObjectName(QStringLiteral("import-file"));
@@ -104,10 +101,11 @@ void ImportDialog::buildUi() {
                       .arg(info.fileName().toHtmlEscaped(), info.absolutePath().toHtmlEscaped(),
                            QLocale().formattedDataSize(info.size())));
     file->setTextInteractionFlags(Qt::TextSelectableByMouse);
-    layout->addWidget(file);
+    return file;
+}
 
-    // ---- reading options
-    auto* top = new QHBoxLayout;
+// ---- reading options
+QWidget* ImportDialog::createReadingOptions() {
     auto* reading = new QGroupBox(tr("Reading"), this);
     auto* form = new QFormLayout(reading);
     delimiter_ = new QComboBox(reading);
@@ -136,8 +134,10 @@ void ImportDialog::buildUi() {
     decimal_->addItem(tr("Point  (3.14)"), false);
     decimal_->addItem(tr("Comma  (3,14)"), true);
     form->addRow(tr("Decimal mark"), decimal_);
-    top->addWidget(reading, 3);
+    return reading;
+}
 
+QWidget* ImportDialog::createMissingValues() {
     auto* missingBox = new QGroupBox(tr("Missing values"), this);
     auto* missingLayout = new QHBoxLayout(missingBox);
     missing_ = new QListWidget(missingBox);
@@ -159,10 +159,11 @@ void ImportDialog::buildUi() {
     missingButtons->addStretch(1);
     missingLayout->addWidget(missing_, 1);
     missingLayout->addLayout(missingButtons);
-    top->addWidget(missingBox, 2);
-    layout->addLayout(top);
+    return missingBox;
+}
 
-    // ---- preview and column types
+// ---- preview and column types
+QWidget* ImportDialog::createPreview() {
     auto* split = new QSplitter(Qt::Horizontal, this);
     preview_ = new QTableView(split);
     preview_->setObjectName(QStringLiteral("import-preview"));
@@ -186,8 +187,11 @@ void ImportDialog::buildUi() {
     split->setStretchFactor(0, 3);
     split->setStretchFactor(1, 1);
     split->setSizes({600, 300});
-    layout->addWidget(split, 1);
+    return split;
+}
 
+// ---- the message, the progress of a load and the buttons
+void ImportDialog::createFooter(QVBoxLayout* layout) {
     message_ = new QLabel(this);
     message_->setObjectName(QStringLiteral("import-message"));
     message_->setWordWrap(true);
@@ -209,22 +213,15 @@ void ImportDialog::buildUi() {
     cancelButton_ = buttons_->addButton(QDialogButtonBox::Cancel);
     cancelButton_->setObjectName(QStringLiteral("import-cancel"));
     layout->addWidget(buttons_);
+}
+
+void ImportDialog::connectSignals() {
     connect(buttons_, &QDialogButtonBox::accepted, this, &ImportDialog::startLoad);
     connect(buttons_, &QDialogButtonBox::rejected, this, &ImportDialog::reject);
-
     previewTimer_ = new QTimer(this);
     previewTimer_->setSingleShot(true);
     previewTimer_->setInterval(0);
     connect(previewTimer_, &QTimer::timeout, this, &ImportDialog::refreshPreview);
-    progressTimer_ = new QTimer(this);
-    progressTimer_->setInterval(50);
-    connect(progressTimer_, &QTimer::timeout, this, [this] {
-        if (!load_) return;
-        const std::size_t total = load_->total.load();
-        progress_->setValue(
-            total ? static_cast<int>(1000.0 * static_cast<double>(load_->done.load()) / static_cast<double>(total))
-                  : 0);
-    });
 
     connect(delimiter_, &QComboBox::currentIndexChanged, this, [this] {
         otherDelimiter_->setEnabled(delimiter_->currentData().toInt() == Other);
@@ -248,7 +245,6 @@ void ImportDialog::buildUi() {
         delete missing_->currentItem();
         schedulePreview();
     });
-    resize(920, 640);
 }
 
 void ImportDialog::schedulePreview() { previewTimer_->start(); }
@@ -324,44 +320,16 @@ void ImportDialog::refreshPreview() {
     }
     base.threads = 1;
     if (!decimalChosen_) base.decimal_comma = false;  // guessed from the file below
-    const std::string file = path_.toStdString();
-    const CsvHead head = readCsvHead(file, kPreviewRecords, base.delimiter);
+    const CsvHead head = readCsvHead(path_.toStdString(), kPreviewRecords, base.delimiter);
     if (!head.error.empty()) {
         previewModel_->setTable(nullptr);
         setMessage(QString::fromStdString(head.error), true);
         loadButton_->setEnabled(false);
         return;
     }
-    const std::string name = QFileInfo(path_).fileName().toStdString();
     std::shared_ptr<const Table> shown;
     try {
-        // First without the type overrides: the columns and what they hold.
-        auto plain = std::make_shared<const Table>(read_csv_text(head.text, name, base));
-        if (!decimalChosen_) {
-            // Numbers written with a decimal comma ("3,14", fields split by ';'
-            // or tab) read as text with the point: take the comma when it
-            // makes more columns numeric, until the user picks a mark.
-            bool comma = false;
-            CsvOptions withComma = base;
-            withComma.decimal_comma = true;
-            try {
-                auto t = std::make_shared<const Table>(read_csv_text(head.text, name, withComma));
-                if (numericColumns(*t) > numericColumns(*plain)) {
-                    plain = std::move(t);
-                    comma = true;
-                }
-            } catch (const InputError&) {
-                // e.g. a comma-separated file: the point it is
-            }
-            const QSignalBlocker quiet(decimal_);
-            decimal_->setCurrentIndex(decimal_->findData(comma));
-        }
-        rebuildKinds(*plain);
-        CsvOptions withKinds = currentOptions();
-        withKinds.threads = 1;
-        shown = withKinds.column_kinds.empty()
-                    ? plain
-                    : std::make_shared<const Table>(read_csv_text(head.text, name, withKinds));
+        shown = readPreview(head, base);
     } catch (const InputError& e) {
         previewModel_->setTable(nullptr);
         QString text = QString::fromStdString(e.what());
@@ -376,6 +344,40 @@ void ImportDialog::refreshPreview() {
         setMessage(tr("The preview failed: %1").arg(QString::fromUtf8(e.what())), true);
         return;
     }
+    showPreview(shown, head.wholeFile);
+}
+
+std::shared_ptr<const Table> ImportDialog::readPreview(const CsvHead& head, const CsvOptions& base) {
+    const std::string name = QFileInfo(path_).fileName().toStdString();
+    // First without the type overrides: the columns and what they hold.
+    auto plain = std::make_shared<const Table>(read_csv_text(head.text, name, base));
+    if (!decimalChosen_) {
+        // Numbers written with a decimal comma ("3,14", fields split by ';'
+        // or tab) read as text with the point: take the comma when it
+        // makes more columns numeric, until the user picks a mark.
+        bool comma = false;
+        CsvOptions withComma = base;
+        withComma.decimal_comma = true;
+        try {
+            auto t = std::make_shared<const Table>(read_csv_text(head.text, name, withComma));
+            if (numericColumns(*t) > numericColumns(*plain)) {
+                plain = std::move(t);
+                comma = true;
+            }
+        } catch (const InputError&) {
+            // e.g. a comma-separated file: the point it is
+        }
+        const QSignalBlocker quiet(decimal_);
+        decimal_->setCurrentIndex(decimal_->findData(comma));
+    }
+    rebuildKinds(*plain);
+    CsvOptions withKinds = currentOptions();
+    withKinds.threads = 1;
+    return withKinds.column_kinds.empty() ? plain
+                                          : std::make_shared<const Table>(read_csv_text(head.text, name, withKinds));
+}
+
+void ImportDialog::showPreview(const std::shared_ptr<const Table>& shown, bool wholeFile) {
     previewModel_->setTable(shown);
     preview_->resizeColumnsToContents();
     for (int c = 0; c < previewModel_->columnCount(); ++c)
@@ -386,7 +388,7 @@ void ImportDialog::refreshPreview() {
     const auto plural = [](std::size_t n, const QString& one, const QString& many) {
         return QLocale().toString(static_cast<qulonglong>(n)) + QLatin1Char(' ') + (n == 1 ? one : many);
     };
-    if (head.wholeFile) text = tr("The whole file: %1").arg(plural(rows, tr("data row"), tr("data rows")));
+    if (wholeFile) text = tr("The whole file: %1").arg(plural(rows, tr("data row"), tr("data rows")));
     else
         text =
             tr("Preview of the first %1; Load reads the whole file").arg(plural(rows, tr("data row"), tr("data rows")));
@@ -442,37 +444,27 @@ void ImportDialog::startLoad() {
         return;
     }
     loadingOptions_ = currentOptions();
-    load_ = std::make_shared<LoadState>();
-    auto state = load_;
     const std::string file = path_.toStdString();
     const CsvOptions o = loadingOptions_;
+    auto result = std::make_shared<LoadResult>();
+    job_ = new BackgroundJob(this);
+    connect(job_, &BackgroundJob::progressChanged, progress_, &QProgressBar::setValue);
+    connect(job_, &BackgroundJob::finished, this, [this, result](bool cancelled) { loadFinished(*result, cancelled); });
     setLoading(true);
     setMessage(tr("Reading %1…").arg(QFileInfo(path_).fileName()), false);
-    watcher_.setFuture(QtConcurrent::run([state, file, o]() {
-        LoadResult r;
-        CsvProgress progress;
-        progress.callback = [state](std::size_t done, std::size_t total) {
-            state->done = done;
-            state->total = total;
-            return !state->stop.load();
-        };
+    job_->start([result, file, o](const BackgroundJob::Progress& progress) {
         try {
-            r.table = std::make_shared<const Table>(read_csv(file, o, progress));
+            result->table = std::make_shared<const Table>(read_csv(file, o, CsvProgress{progress}));
         } catch (const Cancelled&) {
-            r.cancelled = true;
+            result->cancelled = true;
         } catch (const InputError& e) {
-            r.error = QString::fromStdString(e.what());
+            result->error = QString::fromStdString(e.what());
         } catch (const std::bad_alloc&) {
-            r.error = tr("There is not enough memory to read this file.");
+            result->error = tr("There is not enough memory to read this file.");
         } catch (const std::exception& e) {
-            r.error = tr("Internal error while reading: %1").arg(QString::fromUtf8(e.what()));
+            result->error = tr("Internal error while reading: %1").arg(QString::fromUtf8(e.what()));
         }
-        if (state->stop.load()) {  // asked to stop: keep nothing, even if reading had just finished
-            r.table.reset();
-            r.cancelled = true;
-        }
-        return r;
-    }));
+    });
 }
 
 void ImportDialog::setLoading(bool on) {
@@ -483,14 +475,14 @@ void ImportDialog::setLoading(bool on) {
     if (!on) otherDelimiter_->setEnabled(delimiter_->currentData().toInt() == Other);
     progress_->setValue(0);
     progress_->setVisible(on);
-    if (on) progressTimer_->start();
-    else progressTimer_->stop();
 }
 
-void ImportDialog::loadFinished() {
-    const LoadResult r = watcher_.result();
+void ImportDialog::loadFinished(const LoadResult& r, bool cancelled) {
+    job_->deleteLater();
+    job_ = nullptr;
     setLoading(false);
-    if (r.cancelled) {
+    // Asked to stop: keep nothing, even if reading had just finished.
+    if (cancelled || r.cancelled) {
         setMessage(tr("Loading was cancelled; nothing was read. Change the options or press Load again."), false);
         return;
     }
@@ -506,7 +498,7 @@ void ImportDialog::loadFinished() {
 
 void ImportDialog::reject() {
     if (isLoading()) {
-        load_->stop = true;
+        job_->cancel();
         setMessage(tr("Cancelling…"), false);
         return;
     }

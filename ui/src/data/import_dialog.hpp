@@ -4,12 +4,11 @@
 // The preview reads only the file's first records (core read_csv_text on
 // them) and is read again after every change of an option; a parse error is
 // shown in the dialog, never in a message box. Load reads the whole file in
-// a worker (QtConcurrent) while a progress bar runs; Cancel stops it and
-// keeps the dialog open. The user's file is only ever read.
+// a BackgroundJob while a progress bar runs; Cancel stops it and keeps the
+// dialog open. The user's file is only ever read.
 #pragma once
 
 #include <QDialog>
-#include <QFutureWatcher>
 #include <map>
 #include <memory>
 #include <string>
@@ -28,10 +27,13 @@ class QPushButton;
 class QTableView;
 class QTableWidget;
 class QTimer;
+class QVBoxLayout;
 
 namespace moderato::ui {
 
+class BackgroundJob;
 class TableModel;
+struct CsvHead;
 
 class ImportDialog : public QDialog {
     Q_OBJECT
@@ -39,8 +41,8 @@ public:
     // Records read for the preview (the header and about 200 data rows).
     static constexpr std::size_t kPreviewRecords = 201;
 
+    // A load still running when the dialog goes is stopped by its job.
     explicit ImportDialog(const QString& path, QWidget* parent = nullptr);
-    ~ImportDialog() override;
 
     QString path() const { return path_; }
     // The options the table was read with (after Load), else the current ones.
@@ -68,7 +70,6 @@ public Q_SLOTS:
     void reject() override;
 
 private:
-    struct LoadState;
     struct LoadResult {
         std::shared_ptr<const Table> table;
         QString error;
@@ -76,10 +77,20 @@ private:
     };
 
     void buildUi();
+    QWidget* createFileLabel();
+    QWidget* createReadingOptions();
+    QWidget* createMissingValues();
+    QWidget* createPreview();
+    void createFooter(QVBoxLayout* layout);
+    void connectSignals();
+    // The preview table of the file's first records, read with `base` (and
+    // the decimal mark guessed, the column types applied). Throws InputError.
+    std::shared_ptr<const Table> readPreview(const CsvHead& head, const CsvOptions& base);
+    void showPreview(const std::shared_ptr<const Table>& shown, bool wholeFile);
     void schedulePreview();
     void setMessage(const QString& text, bool error);
     void rebuildKinds(const Table& base);
-    void loadFinished();
+    void loadFinished(const LoadResult& result, bool cancelled);
     void setLoading(bool on);
     // The options without the per-column overrides; false (with a message in
     // `why`) when the widgets do not give a usable delimiter.
@@ -109,13 +120,11 @@ private:
     QPushButton* loadButton_ = nullptr;
     QPushButton* cancelButton_ = nullptr;
     QTimer* previewTimer_ = nullptr;
-    QTimer* progressTimer_ = nullptr;
     bool messageIsError_ = false;
     bool loading_ = false;
     bool decimalChosen_ = false;  // the user chose the decimal mark (else it follows the file)
 
-    std::shared_ptr<LoadState> load_;
-    QFutureWatcher<LoadResult> watcher_;
+    BackgroundJob* job_ = nullptr;  // the load in progress
     CsvOptions loadingOptions_;
 };
 

@@ -29,6 +29,14 @@
 namespace moderato::ui {
 
 namespace {
+
+// A row whose field is a layout needs its label's buddy set by hand.
+QLabel* buddyLabel(QWidget* parent, const QString& text, QWidget* buddy) {
+    auto* label = new QLabel(text, parent);
+    label->setBuddy(buddy);
+    return label;
+}
+
 constexpr int kPreviewWidth = 420, kPreviewHeight = 300;
 
 // "Effect plot" -> "effect-plot"
@@ -58,15 +66,28 @@ FigureExportDialog::FigureExportDialog(const QList<FigureSource*>& sources, Proj
 }
 
 void FigureExportDialog::build() {
-    // A row whose field is a layout needs its label's buddy set by hand.
-    auto buddyLabel = [this](const QString& text, QWidget* buddy) {
-        auto* label = new QLabel(text, this);
-        label->setBuddy(buddy);
-        return label;
-    };
     auto* form = new QFormLayout;
     form->setFieldGrowthPolicy(QFormLayout::AllNonFixedFieldsGrow);
+    createFigureRows(form);
+    createLookRows(form);
+    auto* top = new QHBoxLayout;
+    top->addLayout(form, 0);
+    top->addWidget(createPreview(), 1);
+    status_ = new QLabel(this);
+    status_->setObjectName(QStringLiteral("figure-status"));
+    status_->setWordWrap(true);
+    status_->setTextInteractionFlags(Qt::TextSelectableByMouse);
 
+    QDialogButtonBox* buttons = createButtons();
+    auto* layout = new QVBoxLayout(this);
+    layout->addLayout(top, 1);
+    layout->addWidget(status_);
+    layout->addWidget(buttons);
+    connectSignals(buttons);
+}
+
+// Which figure, in which format, at which size.
+void FigureExportDialog::createFigureRows(QFormLayout* form) {
     figure_ = new QComboBox(this);
     figure_->setObjectName(QStringLiteral("figure-choice"));
     for (FigureSource* s : sources_) figure_->addItem(s->figureName());
@@ -102,8 +123,11 @@ void FigureExportDialog::build() {
     sizeRow->addWidget(width_);
     sizeRow->addWidget(new QLabel(QStringLiteral("×"), this));
     sizeRow->addWidget(height_);
-    form->addRow(buddyLabel(tr("&Width × height:"), width_), sizeRow);
+    form->addRow(buddyLabel(this, tr("&Width × height:"), width_), sizeRow);
+}
 
+// Resolution, font, greyscale and caption.
+void FigureExportDialog::createLookRows(QFormLayout* form) {
     dpi_ = new QSpinBox(this);
     dpi_->setObjectName(QStringLiteral("figure-dpi"));
     dpi_->setRange(72, 1200);
@@ -116,7 +140,7 @@ void FigureExportDialog::build() {
     auto* dpiRow = new QHBoxLayout;
     dpiRow->addWidget(dpi_);
     dpiRow->addWidget(pixels_, 1);
-    form->addRow(buddyLabel(tr("&Resolution:"), dpi_), dpiRow);
+    form->addRow(buddyLabel(this, tr("&Resolution:"), dpi_), dpiRow);
 
     font_ = new QFontComboBox(this);
     font_->setObjectName(QStringLiteral("figure-font"));
@@ -130,7 +154,7 @@ void FigureExportDialog::build() {
     auto* fontRow = new QHBoxLayout;
     fontRow->addWidget(font_, 1);
     fontRow->addWidget(fontSize_);
-    form->addRow(buddyLabel(tr("Fo&nt:"), font_), fontRow);
+    form->addRow(buddyLabel(this, tr("Fo&nt:"), font_), fontRow);
 
     greyscale_ = new QCheckBox(tr("&Greyscale"), this);
     greyscale_->setObjectName(QStringLiteral("figure-greyscale"));
@@ -145,7 +169,9 @@ void FigureExportDialog::build() {
     captionText_->setToolTip(tr("Model, SE kind, level and n; edit the text for this export"));
     form->addRow(QString(), captionOn_);
     form->addRow(tr("Caption &text:"), captionText_);
+}
 
+QWidget* FigureExportDialog::createPreview() {
     preview_ = new QLabel(this);
     preview_->setObjectName(QStringLiteral("figure-preview"));
     preview_->setMinimumSize(kPreviewWidth, kPreviewHeight);
@@ -155,15 +181,10 @@ void FigureExportDialog::build() {
     auto* previewLayout = new QVBoxLayout(previewBox);
     previewLayout->addWidget(preview_, 1);
 
-    auto* top = new QHBoxLayout;
-    top->addLayout(form, 0);
-    top->addWidget(previewBox, 1);
+    return previewBox;
+}
 
-    status_ = new QLabel(this);
-    status_->setObjectName(QStringLiteral("figure-status"));
-    status_->setWordWrap(true);
-    status_->setTextInteractionFlags(Qt::TextSelectableByMouse);
-
+QDialogButtonBox* FigureExportDialog::createButtons() {
     auto* buttons = new QDialogButtonBox(this);
     save_ = buttons->addButton(tr("&Save…"), QDialogButtonBox::AcceptRole);
     save_->setObjectName(QStringLiteral("figure-save"));
@@ -176,11 +197,10 @@ void FigureExportDialog::build() {
     buttons->addButton(QDialogButtonBox::Close);
     save_->setDefault(true);
 
-    auto* layout = new QVBoxLayout(this);
-    layout->addLayout(top, 1);
-    layout->addWidget(status_);
-    layout->addWidget(buttons);
+    return buttons;
+}
 
+void FigureExportDialog::connectSignals(QDialogButtonBox* buttons) {
     previewTimer_ = new QTimer(this);
     previewTimer_->setSingleShot(true);
     previewTimer_->setInterval(120);

@@ -13,8 +13,10 @@
 
 class QCheckBox;
 class QComboBox;
+class QDialogButtonBox;
 class QDoubleSpinBox;
 class QFontComboBox;
+class QFormLayout;
 class QLabel;
 class QLineEdit;
 class QPushButton;
@@ -57,7 +59,14 @@ public:
     QString lastSavedPath() const { return lastSavedPath_; }
 
 private:
+    // The dialog's parts: the form (the figure's rows, then its look), the
+    // preview, the buttons, then the connections.
     void build();
+    void createFigureRows(QFormLayout* form);
+    void createLookRows(QFormLayout* form);
+    QWidget* createPreview();
+    QDialogButtonBox* createButtons();
+    void connectSignals(QDialogButtonBox* buttons);
     void loadSettings(const FigureSettings& s);
     void presetChosen();
     void sizeEdited();

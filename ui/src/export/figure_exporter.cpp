@@ -124,7 +124,8 @@ public:
         std::vector<QVariant> changed;
         for (QCPLayerable* layerable : plot->findChildren<QCPLayerable*>()) {
             const QMetaObject* mo = layerable->metaObject();
-            const bool title = qobject_cast<QCPTextElement*>(layerable) != nullptr;
+            const bool title = qobject_cast<QCPTextElement*>(layerable) != nullptr &&
+                               layerable->objectName() != QLatin1String(kPanelCaptionName);
             for (int i = 0; i < mo->propertyCount(); ++i) {
                 const QMetaProperty prop = mo->property(i);
                 if (!prop.isReadable() || !prop.isWritable()) continue;
@@ -217,25 +218,30 @@ private:
         }
     }
 
-    // An axis title longer than its axis is broken into two lines near the middle.
+    // An axis title longer than its axis is broken into two lines near the
+    // middle (panels stacked in one plot share its height).
     void wrapAxisLabels(QCustomPlot* plot, QSize size) {
-        for (QCPAxis* axis : plot->axisRect()->axes()) {
-            const QString label = axis->label();
-            if (label.isEmpty() || label.contains(QLatin1Char('\n'))) continue;
-            const bool vertical = axis->orientation() == Qt::Vertical;
-            const double room = (vertical ? size.height() * 0.6 : size.width() * 0.85);
-            if (QFontMetricsF(axis->labelFont()).horizontalAdvance(label) <= room) continue;
-            int best = -1;
-            for (int i = 0; i < label.size(); ++i)
-                if (label[i] == QLatin1Char(' ') &&
-                    (best < 0 || std::abs(i - label.size() / 2) < std::abs(best - label.size() / 2)))
-                    best = i;
-            if (best < 0) continue;
-            labels_.push_back({axis, label});
-            QString wrapped = label;
-            wrapped[best] = QLatin1Char('\n');
-            axis->setLabel(wrapped);
-        }
+        const QList<QCPAxisRect*> rects = plot->axisRects();
+        const double height = size.height() * 0.6 / std::max<qsizetype>(1, rects.size());
+        for (QCPAxisRect* rect : rects)
+            for (QCPAxis* axis : rect->axes())
+                wrapAxisLabel(axis, axis->orientation() == Qt::Vertical ? height : size.width() * 0.85);
+    }
+
+    void wrapAxisLabel(QCPAxis* axis, double room) {
+        const QString label = axis->label();
+        if (label.isEmpty() || label.contains(QLatin1Char('\n'))) return;
+        if (QFontMetricsF(axis->labelFont()).horizontalAdvance(label) <= room) return;
+        int best = -1;
+        for (int i = 0; i < label.size(); ++i)
+            if (label[i] == QLatin1Char(' ') &&
+                (best < 0 || std::abs(i - label.size() / 2) < std::abs(best - label.size() / 2)))
+                best = i;
+        if (best < 0) return;
+        labels_.push_back({axis, label});
+        QString wrapped = label;
+        wrapped[best] = QLatin1Char('\n');
+        axis->setLabel(wrapped);
     }
 
     struct Saved {

@@ -3,8 +3,8 @@
 #include <QCoreApplication>
 #include <QFutureWatcher>
 #include <QPointer>
-#include <QThread>
 #include <QtConcurrent/QtConcurrentRun>
+#include <vector>
 
 #include "model/project_document.hpp"
 #include "moderato/support/error.hpp"
@@ -43,8 +43,14 @@ Outcome compute(const Analysis& a, std::shared_ptr<const Table> table, std::shar
 AnalysisRunner::AnalysisRunner(ProjectDocument* doc, QObject* parent) : QObject(parent), doc_(doc) {
     connect(doc_, &ProjectDocument::analysisChanged, this, &AnalysisRunner::refresh);
     connect(doc_, &ProjectDocument::projectReset, this, [this] {
-        waitForIdle();
+        // Workers of the old project run on (they own what they read), but
+        // their results are dropped: they belong to an earlier epoch.
+        ++epoch_;
+        std::vector<QString> wasBusy;
+        for (const auto& [id, e] : entries_)
+            if (e.running > 0) wasBusy.push_back(id);
         entries_.clear();
+        for (const QString& id : wasBusy) Q_EMIT busyChanged(id, false);
         for (const auto& a : doc_->project().analyses) refresh(QString::fromStdString(a.id));
     });
 }
@@ -102,14 +108,16 @@ void AnalysisRunner::refresh(const QString& id) {
     ++e.running;
     if (e.running == 1) Q_EMIT busyChanged(id, true);
     auto* watcher = new QFutureWatcher<Outcome>(this);
-    connect(watcher, &QFutureWatcher<Outcome>::finished, this, [this, watcher, id, generation, a, table] {
-        const Outcome o = watcher->result();
-        watcher->deleteLater();
-        auto it = entries_.find(id);
-        if (it == entries_.end()) return;
-        if (--it->second.running == 0) Q_EMIT busyChanged(id, false);
-        finish(id, generation, a, table, o.run, o.error);
-    });
+    connect(watcher, &QFutureWatcher<Outcome>::finished, this,
+            [this, watcher, id, generation, a, table, epoch = epoch_] {
+                const Outcome o = watcher->result();
+                watcher->deleteLater();
+                if (epoch != epoch_) return;  // computed for a project that is no longer open
+                auto it = entries_.find(id);
+                if (it == entries_.end()) return;
+                if (--it->second.running == 0) Q_EMIT busyChanged(id, false);
+                finish(id, generation, a, table, o.run, o.error);
+            });
     watcher->setFuture(QtConcurrent::run([a, table, cached] { return compute(a, table, cached); }));
 }
 
@@ -124,18 +132,6 @@ void AnalysisRunner::finish(const QString& id, int generation, const Analysis& a
     e.error = error;
     e.valid = true;
     Q_EMIT resultChanged(id);
-}
-
-void AnalysisRunner::waitForIdle() {
-    auto anyRunning = [this] {
-        for (const auto& [id, e] : entries_)
-            if (e.running > 0) return true;
-        return false;
-    };
-    while (anyRunning()) {
-        QCoreApplication::processEvents(QEventLoop::AllEvents, 20);
-        QThread::msleep(2);
-    }
 }
 
 }  // namespace moderato::ui

@@ -30,10 +30,11 @@ public:
     // Rows times design columns above which fitting moves off the UI thread.
     void setBackgroundThreshold(double cells) { threshold_ = cells; }
 
-    // Recomputes now (or starts the worker) if the settings changed since the last run.
+    // Recomputes now (or starts the worker) if the settings changed since the
+    // last run. Nothing ever waits for a worker: its result arrives through
+    // resultChanged(). With an infinite threshold every fit is computed here,
+    // before refresh() returns (the headless renderer relies on that).
     void refresh(const QString& id);
-    // Blocks until no worker is running (tests, shutdown).
-    void waitForIdle();
 
 Q_SIGNALS:
     void resultChanged(const QString& id);  // result() or error() changed
@@ -57,6 +58,7 @@ private:
     ProjectDocument* doc_;
     std::map<QString, Entry> entries_;
     double threshold_ = 2e6;
+    int epoch_ = 0;  // counts projects opened: a worker's result is kept only in its own epoch
 };
 
 }  // namespace moderato::ui

@@ -27,6 +27,12 @@ enum Col { cItem = 0, cN, cObserved, cEstimate, cSe, cStat, cP, cLower, cUpper, 
 
 QString levelText(double level) { return QLocale::c().toString(100.0 * level, 'g', 4) + QLatin1Char('%'); }
 
+QStandardItem* numberItem(const QString& text) {
+    auto* item = new QStandardItem(text);
+    item->setTextAlignment(Qt::AlignRight | Qt::AlignVCenter);
+    return item;
+}
+
 // "age = 41.2, region = North": categorical columns by their level name.
 QString held(const CellTable& c, const Design& d) {
     QStringList parts;
@@ -160,75 +166,13 @@ void CellsView::redraw() {
     }
     const CellTable& c = *cells_;
     const int rows = static_cast<int>(c.row_levels.size()), cols = static_cast<int>(c.column_levels.size());
-    const QString rowF = QString::fromStdString(c.row_factor), colF = QString::fromStdString(c.column_factor);
     const bool showObserved = !logistic_ || probability_;
-    QString what;
-    if (probability_) what = tr("Predicted probability that %1 = 1").arg(outcome_);
-    else if (logistic_) what = tr("Predicted log-odds that %1 = 1").arg(outcome_);
-    else what = tr("Predicted %1").arg(outcome_);
-    title_->setText(tr("%1 in each cell, with %2 intervals").arg(what, levelText(c.level)));
+    drawTitleAndAxes(c);
 
-    auto* ticker = new QCPAxisTickerText;
-    for (int i = 0; i < rows; ++i)
-        ticker->addTick(i, QString::fromStdString(c.row_levels[static_cast<std::size_t>(i)]));
-    plot_->xAxis->setTicker(QSharedPointer<QCPAxisTicker>(ticker));
-    plot_->xAxis->setSubTicks(false);
-    plot_->xAxis->setTickLength(0, 4);
-    setAxisTitle(plot_->xAxis, rowF);
-    setAxisTitle(plot_->yAxis, probability_ ? tr("P(%1 = 1)").arg(outcome_)
-                                            : (logistic_ ? tr("log-odds of %1 = 1").arg(outcome_) : outcome_));
-
+    // One series a column level, dodged around each row level.
     const double spacing = cols > 1 ? std::min(0.12, 0.45 / (cols - 1)) : 0.0;
     double lo = INFINITY, hi = -INFINITY;
-    for (int k = 0; k < cols; ++k) {
-        const double dodge = (k - (cols - 1) / 2.0) * spacing;
-        QVector<double> x, y, minus, plus, ox, oy;
-        for (int i = 0; i < rows; ++i) {
-            const Cell& cell = c.at(static_cast<std::size_t>(i), static_cast<std::size_t>(k));
-            const double est = probability_ ? cell.probability : cell.estimate;
-            const double l = probability_ ? cell.probability_lower : cell.ci_lower;
-            const double u = probability_ ? cell.probability_upper : cell.ci_upper;
-            x << i + dodge;
-            y << est;
-            minus << est - l;
-            plus << u - est;
-            if (std::isfinite(l)) lo = std::min(lo, l);
-            if (std::isfinite(u)) hi = std::max(hi, u);
-            if (showObserved && cell.n > 0 && std::isfinite(cell.observed_mean)) {
-                ox << i + dodge + spacing * 0.45 + 0.04;
-                oy << cell.observed_mean;
-                lo = std::min(lo, cell.observed_mean);
-                hi = std::max(hi, cell.observed_mean);
-            }
-        }
-        const QColor colour = greyscale_ ? estuary::toGrey(estuary::series(k)) : estuary::series(k);
-        auto* g = new QCPGraph(plot_->xAxis, plot_->yAxis);
-        g->setName(
-            QStringLiteral("%1 = %2").arg(colF, QString::fromStdString(c.column_levels[static_cast<std::size_t>(k)])));
-        g->setPen(estuary::seriesPen(k, 2.0, greyscale_));
-        g->setScatterStyle(
-            QCPScatterStyle(static_cast<QCPScatterStyle::ScatterShape>(estuary::markerShape(k)), colour, colour, 8));
-        g->setData(x, y, true);
-        auto* bars = new QCPErrorBars(plot_->xAxis, plot_->yAxis);
-        bars->removeFromLegend();
-        bars->setDataPlottable(g);
-        bars->setErrorType(QCPErrorBars::etValueError);
-        bars->setData(minus, plus);
-        QPen barPen(colour);
-        barPen.setWidthF(1.4);
-        bars->setPen(barPen);
-        bars->setWhiskerWidth(8);
-        bars->setSymbolGap(9);
-        series_.push_back(g);
-        bars_.push_back(bars);
-        auto* obs = new QCPGraph(plot_->xAxis, plot_->yAxis);
-        obs->setName(tr("observed mean"));
-        obs->setLineStyle(QCPGraph::lsNone);
-        obs->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, QPen(colour, 1.2), Qt::NoBrush, 6));
-        obs->setData(ox, oy, true);
-        obs->removeFromLegend();
-        observed_.push_back(obs);
-    }
+    for (int k = 0; k < cols; ++k) drawSeries(c, k, spacing, showObserved, lo, hi);
     if (showObserved) {
         // One legend entry for all observed means, in ink.
         auto* key = new QCPGraph(plot_->xAxis, plot_->yAxis);
@@ -245,6 +189,78 @@ void CellsView::redraw() {
     plot_->replot();
 }
 
+void CellsView::drawTitleAndAxes(const CellTable& c) {
+    const int rows = static_cast<int>(c.row_levels.size());
+    const QString rowF = QString::fromStdString(c.row_factor);
+    QString what;
+    if (probability_) what = tr("Predicted probability that %1 = 1").arg(outcome_);
+    else if (logistic_) what = tr("Predicted log-odds that %1 = 1").arg(outcome_);
+    else what = tr("Predicted %1").arg(outcome_);
+    title_->setText(tr("%1 in each cell, with %2 intervals").arg(what, levelText(c.level)));
+
+    auto* ticker = new QCPAxisTickerText;
+    for (int i = 0; i < rows; ++i)
+        ticker->addTick(i, QString::fromStdString(c.row_levels[static_cast<std::size_t>(i)]));
+    plot_->xAxis->setTicker(QSharedPointer<QCPAxisTicker>(ticker));
+    plot_->xAxis->setSubTicks(false);
+    plot_->xAxis->setTickLength(0, 4);
+    setAxisTitle(plot_->xAxis, rowF);
+    setAxisTitle(plot_->yAxis, probability_ ? tr("P(%1 = 1)").arg(outcome_)
+                                            : (logistic_ ? tr("log-odds of %1 = 1").arg(outcome_) : outcome_));
+}
+
+void CellsView::drawSeries(const CellTable& c, int k, double spacing, bool showObserved, double& lo, double& hi) {
+    const int rows = static_cast<int>(c.row_levels.size()), cols = static_cast<int>(c.column_levels.size());
+    const QString colF = QString::fromStdString(c.column_factor);
+    const double dodge = (k - (cols - 1) / 2.0) * spacing;
+    QVector<double> x, y, minus, plus, ox, oy;
+    for (int i = 0; i < rows; ++i) {
+        const Cell& cell = c.at(static_cast<std::size_t>(i), static_cast<std::size_t>(k));
+        const double est = probability_ ? cell.probability : cell.estimate;
+        const double l = probability_ ? cell.probability_lower : cell.ci_lower;
+        const double u = probability_ ? cell.probability_upper : cell.ci_upper;
+        x << i + dodge;
+        y << est;
+        minus << est - l;
+        plus << u - est;
+        if (std::isfinite(l)) lo = std::min(lo, l);
+        if (std::isfinite(u)) hi = std::max(hi, u);
+        if (showObserved && cell.n > 0 && std::isfinite(cell.observed_mean)) {
+            ox << i + dodge + spacing * 0.45 + 0.04;
+            oy << cell.observed_mean;
+            lo = std::min(lo, cell.observed_mean);
+            hi = std::max(hi, cell.observed_mean);
+        }
+    }
+    const QColor colour = greyscale_ ? estuary::toGrey(estuary::series(k)) : estuary::series(k);
+    auto* g = new QCPGraph(plot_->xAxis, plot_->yAxis);
+    g->setName(
+        QStringLiteral("%1 = %2").arg(colF, QString::fromStdString(c.column_levels[static_cast<std::size_t>(k)])));
+    g->setPen(estuary::seriesPen(k, 2.0, greyscale_));
+    g->setScatterStyle(
+        QCPScatterStyle(static_cast<QCPScatterStyle::ScatterShape>(estuary::markerShape(k)), colour, colour, 8));
+    g->setData(x, y, true);
+    auto* bars = new QCPErrorBars(plot_->xAxis, plot_->yAxis);
+    bars->removeFromLegend();
+    bars->setDataPlottable(g);
+    bars->setErrorType(QCPErrorBars::etValueError);
+    bars->setData(minus, plus);
+    QPen barPen(colour);
+    barPen.setWidthF(1.4);
+    bars->setPen(barPen);
+    bars->setWhiskerWidth(8);
+    bars->setSymbolGap(9);
+    series_.push_back(g);
+    bars_.push_back(bars);
+    auto* obs = new QCPGraph(plot_->xAxis, plot_->yAxis);
+    obs->setName(tr("observed mean"));
+    obs->setLineStyle(QCPGraph::lsNone);
+    obs->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, QPen(colour, 1.2), Qt::NoBrush, 6));
+    obs->setData(ox, oy, true);
+    obs->removeFromLegend();
+    observed_.push_back(obs);
+}
+
 void CellsView::fillTable() {
     model_->clear();
     copy_->setEnabled(cells_.has_value());
@@ -253,9 +269,35 @@ void CellsView::fillTable() {
         return;
     }
     const CellTable& c = *cells_;
-    const bool linear = !logistic_;
+    setTableHeader(c);
+    const QString rowF = QString::fromStdString(c.row_factor), colF = QString::fromStdString(c.column_factor);
+    appendSection(logistic_ ? tr("Cells: %1, %2 (predicted log-odds; probability = inverse logit)").arg(rowF, colF)
+                            : tr("Cells: %1, %2 (predicted mean)").arg(rowF, colF));
+    for (const Cell& cell : c.cells) appendCell(cell);
+    appendEffects(c.row_effects, rowF);
+    appendEffects(c.column_effects, colF);
+    if (!c.interactions.empty()) {
+        appendSection(logistic_ ? tr("Interaction contrasts of %1 by %2 (difference in differences of log-odds; "
+                                     "ratio of odds ratios)")
+                                      .arg(rowF, colF)
+                                : tr("Interaction contrasts of %1 by %2 (difference in differences)").arg(rowF, colF));
+        for (const InteractionContrast& ic : c.interactions) {
+            const QString label =
+                QStringLiteral("(%1 − %2) at %3 minus at %4")
+                    .arg(QString::fromStdString(ic.row_level), QString::fromStdString(c.row_levels.front()),
+                         QString::fromStdString(ic.column_level), QString::fromStdString(c.column_levels.front()));
+            appendInference(label, ic.estimate, ic.std_error, ic.statistic, ic.p_value, ic.ci_lower, ic.ci_upper,
+                            ic.odds_ratio, ic.odds_ratio_lower, ic.odds_ratio_upper, ic.estimable);
+        }
+    }
+    appendSection(tr("Joint test of the interaction"));
+    appendJointTest(c);
+    fitLabelColumn();
+    fillNote(c);
+}
+
+void CellsView::setTableHeader(const CellTable& c) {
     const QString stat = std::isinf(c.df) || logistic_ ? QStringLiteral("z") : QStringLiteral("t");
-    const QString lvl = levelText(c.level);
     const QString joint = logistic_ ? QStringLiteral("χ²") : QStringLiteral("F");
     QStringList header{QString(),
                        tr("n"),
@@ -268,114 +310,102 @@ void CellsView::fillTable() {
                        tr("CI upper")};
     if (logistic_) header << tr("probability / odds ratio") << tr("lower") << tr("upper");
     model_->setHorizontalHeaderLabels(header);
-    const int ncol = static_cast<int>(header.size());
-    auto numberItem = [](const QString& text) {
-        auto* item = new QStandardItem(text);
-        item->setTextAlignment(Qt::AlignRight | Qt::AlignVCenter);
-        return item;
-    };
-    auto section = [&](const QString& text) {
-        QList<QStandardItem*> row;
-        auto* item = new QStandardItem(text);
-        QFont f = item->font();
-        f.setBold(true);
-        item->setFont(f);
-        row << item;
-        for (int k = 1; k < ncol; ++k) row << new QStandardItem;
-        model_->appendRow(row);
-        table_->setSpan(model_->rowCount() - 1, 0, 1, ncol);
-    };
-    auto inferenceRow = [&](const QString& label, double est, double se, double st, double p, double lo, double hi,
-                            double e, double el, double eh, bool estimable) {
-        QList<QStandardItem*> row;
-        row << new QStandardItem(label) << numberItem(QString()) << numberItem(QString());
-        if (!estimable) {
-            row << numberItem(tr("not estimable"));
-            for (int k = cSe; k < ncol; ++k) row << numberItem(QString());
-        } else {
-            row << numberItem(numberText(est)) << numberItem(numberText(se)) << numberItem(numberText(st, 3))
-                << numberItem(pValueText(p)) << numberItem(numberText(lo)) << numberItem(numberText(hi));
-            if (logistic_) row << numberItem(numberText(e)) << numberItem(numberText(el)) << numberItem(numberText(eh));
-        }
-        model_->appendRow(row);
-    };
+}
 
-    const QString rowF = QString::fromStdString(c.row_factor), colF = QString::fromStdString(c.column_factor);
-    section(logistic_ ? tr("Cells: %1, %2 (predicted log-odds; probability = inverse logit)").arg(rowF, colF)
-                      : tr("Cells: %1, %2 (predicted mean)").arg(rowF, colF));
-    for (const Cell& cell : c.cells) {
-        QList<QStandardItem*> row;
-        row << new QStandardItem(QStringLiteral("%1, %2").arg(QString::fromStdString(cell.row_level),
-                                                              QString::fromStdString(cell.column_level)))
-            << numberItem(countText(static_cast<double>(cell.n)))
-            << numberItem(cell.n ? numberText(cell.observed_mean) : QStringLiteral("—"));
-        if (!cell.estimable) {
-            row << numberItem(tr("not estimable"));
-            for (int k = cSe; k < ncol; ++k) row << numberItem(QString());
-        } else {
-            row << numberItem(numberText(cell.estimate)) << numberItem(numberText(cell.std_error))
-                << numberItem(QString()) << numberItem(QString()) << numberItem(numberText(cell.ci_lower))
-                << numberItem(numberText(cell.ci_upper));
-            if (logistic_)
-                row << numberItem(numberText(cell.probability)) << numberItem(numberText(cell.probability_lower))
-                    << numberItem(numberText(cell.probability_upper));
-        }
-        model_->appendRow(row);
+void CellsView::appendSection(const QString& text) {
+    const int ncol = model_->columnCount();
+    QList<QStandardItem*> row;
+    auto* item = new QStandardItem(text);
+    QFont f = item->font();
+    f.setBold(true);
+    item->setFont(f);
+    row << item;
+    for (int k = 1; k < ncol; ++k) row << new QStandardItem;
+    model_->appendRow(row);
+    table_->setSpan(model_->rowCount() - 1, 0, 1, ncol);
+}
+
+void CellsView::appendInference(const QString& label, double est, double se, double st, double p, double lo, double hi,
+                                double e, double el, double eh, bool estimable) {
+    const int ncol = model_->columnCount();
+    QList<QStandardItem*> row;
+    row << new QStandardItem(label) << numberItem(QString()) << numberItem(QString());
+    if (!estimable) {
+        row << numberItem(tr("not estimable"));
+        for (int k = cSe; k < ncol; ++k) row << numberItem(QString());
+    } else {
+        row << numberItem(numberText(est)) << numberItem(numberText(se)) << numberItem(numberText(st, 3))
+            << numberItem(pValueText(p)) << numberItem(numberText(lo)) << numberItem(numberText(hi));
+        if (logistic_) row << numberItem(numberText(e)) << numberItem(numberText(el)) << numberItem(numberText(eh));
     }
-    auto effects = [&](const std::vector<SimpleEffect>& list, const QString& factor) {
-        if (list.empty()) return;
-        section(logistic_ ? tr("Simple effects of %1 (log-odds difference; odds ratio)").arg(factor)
-                          : tr("Simple effects of %1 (difference in predicted means)").arg(factor));
-        for (const SimpleEffect& e : list) {
-            const QString label = QStringLiteral("%1 − %2, at %3")
-                                      .arg(QString::fromStdString(e.level), QString::fromStdString(e.reference),
-                                           QString::fromStdString(e.at_level));
-            inferenceRow(label, e.estimate, e.std_error, e.statistic, e.p_value, e.ci_lower, e.ci_upper, e.odds_ratio,
-                         e.odds_ratio_lower, e.odds_ratio_upper, e.estimable);
-        }
-    };
-    effects(c.row_effects, rowF);
-    effects(c.column_effects, colF);
-    if (!c.interactions.empty()) {
-        section(logistic_ ? tr("Interaction contrasts of %1 by %2 (difference in differences of log-odds; ratio "
-                               "of odds ratios)")
-                                .arg(rowF, colF)
-                          : tr("Interaction contrasts of %1 by %2 (difference in differences)").arg(rowF, colF));
-        for (const InteractionContrast& ic : c.interactions) {
-            const QString label =
-                QStringLiteral("(%1 − %2) at %3 minus at %4")
-                    .arg(QString::fromStdString(ic.row_level), QString::fromStdString(c.row_levels.front()),
-                         QString::fromStdString(ic.column_level), QString::fromStdString(c.column_levels.front()));
-            inferenceRow(label, ic.estimate, ic.std_error, ic.statistic, ic.p_value, ic.ci_lower, ic.ci_upper,
-                         ic.odds_ratio, ic.odds_ratio_lower, ic.odds_ratio_upper, ic.estimable);
-        }
+    model_->appendRow(row);
+}
+
+void CellsView::appendCell(const Cell& cell) {
+    const int ncol = model_->columnCount();
+    QList<QStandardItem*> row;
+    row << new QStandardItem(QStringLiteral("%1, %2").arg(QString::fromStdString(cell.row_level),
+                                                          QString::fromStdString(cell.column_level)))
+        << numberItem(countText(static_cast<double>(cell.n)))
+        << numberItem(cell.n ? numberText(cell.observed_mean) : QStringLiteral("—"));
+    if (!cell.estimable) {
+        row << numberItem(tr("not estimable"));
+        for (int k = cSe; k < ncol; ++k) row << numberItem(QString());
+    } else {
+        row << numberItem(numberText(cell.estimate)) << numberItem(numberText(cell.std_error)) << numberItem(QString())
+            << numberItem(QString()) << numberItem(numberText(cell.ci_lower)) << numberItem(numberText(cell.ci_upper));
+        if (logistic_)
+            row << numberItem(numberText(cell.probability)) << numberItem(numberText(cell.probability_lower))
+                << numberItem(numberText(cell.probability_upper));
     }
-    section(tr("Joint test of the interaction"));
-    {
-        QList<QStandardItem*> row;
-        if (c.interaction_test) {
-            const WaldTest& w = *c.interaction_test;
-            const bool chi = std::isinf(w.df2);
-            const QString label = chi ? tr("Wald χ²(%1), all product terms").arg(countText(w.df1))
-                                      : tr("Wald F(%1, %2), all product terms").arg(countText(w.df1), countText(w.df2));
-            row << new QStandardItem(label) << numberItem(QString()) << numberItem(QString()) << numberItem(QString())
-                << numberItem(QString()) << numberItem(numberText(chi ? w.chi_square : w.statistic, 4))
-                << numberItem(pValueText(w.p_value));
-        } else {
-            row << new QStandardItem(tr("not available: a product term is aliased"));
-        }
-        while (row.size() < ncol) row << numberItem(QString());
-        model_->appendRow(row);
+    model_->appendRow(row);
+}
+
+void CellsView::appendEffects(const std::vector<SimpleEffect>& list, const QString& factor) {
+    if (list.empty()) return;
+    appendSection(logistic_ ? tr("Simple effects of %1 (log-odds difference; odds ratio)").arg(factor)
+                            : tr("Simple effects of %1 (difference in predicted means)").arg(factor));
+    for (const SimpleEffect& e : list) {
+        const QString label = QStringLiteral("%1 − %2, at %3")
+                                  .arg(QString::fromStdString(e.level), QString::fromStdString(e.reference),
+                                       QString::fromStdString(e.at_level));
+        appendInference(label, e.estimate, e.std_error, e.statistic, e.p_value, e.ci_lower, e.ci_upper, e.odds_ratio,
+                        e.odds_ratio_lower, e.odds_ratio_upper, e.estimable);
     }
+}
+
+void CellsView::appendJointTest(const CellTable& c) {
+    const int ncol = model_->columnCount();
+    QList<QStandardItem*> row;
+    if (c.interaction_test) {
+        const WaldTest& w = *c.interaction_test;
+        const bool chi = std::isinf(w.df2);
+        const QString label = chi ? tr("Wald χ²(%1), all product terms").arg(countText(w.df1))
+                                  : tr("Wald F(%1, %2), all product terms").arg(countText(w.df1), countText(w.df2));
+        row << new QStandardItem(label) << numberItem(QString()) << numberItem(QString()) << numberItem(QString())
+            << numberItem(QString()) << numberItem(numberText(chi ? w.chi_square : w.statistic, 4))
+            << numberItem(pValueText(w.p_value));
+    } else {
+        row << new QStandardItem(tr("not available: a product term is aliased"));
+    }
+    while (row.size() < ncol) row << numberItem(QString());
+    model_->appendRow(row);
+}
+
+// The first column fits its row labels; section headings span the row.
+void CellsView::fitLabelColumn() {
     table_->resizeColumnsToContents();
-    // The first column fits its row labels; section headings span the row.
     int labelWidth = 60;
     const QFontMetrics fm(table_->font());
     for (int r = 0; r < model_->rowCount(); ++r)
         if (table_->columnSpan(r, cItem) == 1)
             labelWidth = std::max(labelWidth, fm.horizontalAdvance(model_->item(r, cItem)->text()) + 16);
     table_->setColumnWidth(cItem, std::min(labelWidth, 360));
+}
 
+void CellsView::fillNote(const CellTable& c) {
+    const bool linear = !logistic_;
+    const QString lvl = levelText(c.level);
     QStringList notes;
     notes << tr("Scale: %1. SEs: %2. Intervals: %3.")
                  .arg(linear ? tr("the outcome's mean") : tr("log-odds (probabilities by the inverse logit)"),

@@ -52,8 +52,23 @@ protected:
     void resizeEvent(QResizeEvent* event) override;
 
 private:
+    // The plot: title and axes, then one series (with its intervals and
+    // observed means) for each column level; `lo`/`hi` grow to what is drawn.
     void redraw();
+    void drawTitleAndAxes(const CellTable& c);
+    void drawSeries(const CellTable& c, int k, double spacing, bool showObserved, double& lo, double& hi);
+    // The table: cells, simple effects, interaction contrasts, the joint
+    // test, each under a heading, and the note under it.
     void fillTable();
+    void setTableHeader(const CellTable& c);
+    void appendSection(const QString& text);
+    void appendInference(const QString& label, double est, double se, double st, double p, double lo, double hi,
+                         double e, double el, double eh, bool estimable);
+    void appendCell(const Cell& cell);
+    void appendEffects(const std::vector<SimpleEffect>& list, const QString& factor);
+    void appendJointTest(const CellTable& c);
+    void fitLabelColumn();
+    void fillNote(const CellTable& c);
 
     QCustomPlot* plot_;
     QCPTextElement* title_ = nullptr;

@@ -5,7 +5,9 @@
 #include <algorithm>
 #include <cmath>
 
+#include "common/number_text.hpp"
 #include "plots/plot_style.hpp"
+#include "plots/probe_plot_util.hpp"
 #include "plots/scatter_thinning.hpp"
 #include "style/estuary.hpp"
 
@@ -14,13 +16,26 @@ namespace moderato::ui {
 namespace {
 
 constexpr std::size_t kThinAbove = 20000;
+constexpr const char* kUnderLayer = "grid";       // reference lines: under the points, over the grid
+constexpr const char* kFlaggedLayer = "flagged";  // flagged rows and the ring of the selected ones
 
 QColor shade(const QColor& c, bool grey) { return grey ? estuary::toGrey(c) : c; }
 
-QCPItemText* label(QCustomPlot* plot, const QString& text, double x, double y, Qt::Alignment align, const QFont& font) {
+QCPRange padded(double lo, double hi, double share = 0.07) {
+    if (!std::isfinite(lo) || !std::isfinite(hi)) return QCPRange(-1, 1);
+    if (hi <= lo) return QCPRange(lo - 1, hi + 1);
+    const double pad = share * (hi - lo);
+    return QCPRange(lo - pad, hi + pad);
+}
+
+// A text in plot coordinates of `rect`, clipped to it.
+QCPItemText* label(QCustomPlot* plot, QCPAxisRect* rect, const QString& text, double x, double y, Qt::Alignment align,
+                   const QFont& font) {
     auto* t = new QCPItemText(plot);
+    t->position->setAxes(rect->axis(QCPAxis::atBottom), rect->axis(QCPAxis::atLeft));
     t->position->setType(QCPItemPosition::ptPlotCoords);
     t->position->setCoords(x, y);
+    t->setClipAxisRect(rect);
     t->setPositionAlignment(align);
     t->setText(text);
     t->setFont(font);
@@ -28,14 +43,42 @@ QCPItemText* label(QCustomPlot* plot, const QString& text, double x, double y, Q
     t->setClipToAxisRect(true);
     t->setPadding(QMargins(2, 1, 2, 1));
     t->setBrush(QBrush(QColor(255, 255, 255, 200)));
+    t->setSelectable(false);  // clicks go to the points
     return t;
 }
 
-QCPRange padded(double lo, double hi, double share = 0.07) {
-    if (!std::isfinite(lo) || !std::isfinite(hi)) return QCPRange(-1, 1);
-    if (hi <= lo) return QCPRange(lo - 1, hi + 1);
-    const double pad = share * (hi - lo);
-    return QCPRange(lo - pad, hi + pad);
+// A straight line through (x1, y1) and (x2, y2) in plot coordinates of `rect`, under the points.
+QCPItemStraightLine* straightLine(QCustomPlot* plot, QCPAxisRect* rect, const QPen& pen, double x1, double y1,
+                                  double x2, double y2) {
+    auto* line = new QCPItemStraightLine(plot);
+    line->setLayer(QLatin1String(kUnderLayer));
+    line->setClipAxisRect(rect);
+    for (QCPItemPosition* p : {line->point1, line->point2})
+        p->setAxes(rect->axis(QCPAxis::atBottom), rect->axis(QCPAxis::atLeft));
+    line->setPen(pen);
+    line->setSelectable(false);
+    line->point1->setCoords(x1, y1);
+    line->point2->setCoords(x2, y2);
+    return line;
+}
+
+QCPGraph* scatterGraph(QCPAxisRect* rect, const QString& name, const QCPScatterStyle& style) {
+    auto* g = new QCPGraph(rect->axis(QCPAxis::atBottom), rect->axis(QCPAxis::atLeft));
+    g->setName(name);
+    g->setLineStyle(QCPGraph::lsNone);
+    g->setScatterStyle(style);
+    g->setSelectable(QCP::stNone);
+    return g;
+}
+
+// A multiple in a rule ("4 / 480 rows"): whole numbers without decimals.
+QString ruleNumber(double v) { return v == std::round(v) ? countText(v) : numberText(v); }
+
+// What the residual axis shows, in words (core's plot_residual).
+QString residualTitle(const Diagnostics& d) {
+    if (d.family == Family::Logistic) return DiagnosticPlot::tr("Pearson residual");
+    if (d.weighted) return DiagnosticPlot::tr("weighted residual (residual × √weight)");
+    return DiagnosticPlot::tr("residual (observed − fitted)");
 }
 
 }  // namespace
@@ -47,18 +90,38 @@ DiagnosticPlot::DiagnosticPlot(Kind kind, QWidget* parent)
     layout->setContentsMargins(0, 0, 0, 0);
     layout->addWidget(plot_);
     stylePlot(plot_, font());
+    // Flagged rows above the axes: a point on an axis line is still drawn whole and takes the click.
+    plot_->addLayer(QLatin1String(kFlaggedLayer), plot_->layer(QStringLiteral("axes")), QCustomPlot::limAbove);
+    setUpLayout();
+    setMinimumSize(220, kind_ == Influence ? 240 : 180);
+    connect(plot_, &QCustomPlot::plottableClick, this, [this](QCPAbstractPlottable* p, int index, QMouseEvent*) {
+        for (const Panel& panel : panels_)
+            if (p == panel.flagged && index >= 0 && static_cast<std::size_t>(index) < panel.drawnFlagged.size())
+                Q_EMIT observationClicked(panel.drawnFlagged[static_cast<std::size_t>(index)]);
+    });
+}
+
+void DiagnosticPlot::resizeEvent(QResizeEvent* event) {
+    QWidget::resizeEvent(event);
+    if (d_ && fitLegend(plot_)) plot_->replot();
+}
+
+void DiagnosticPlot::setUpLayout() {
+    // Row 0 the title; then one row per panel; the legend in a row under
+    // the panels, so it never hides points.
     plot_->plotLayout()->insertRow(0);
     QFont tf = font();
     tf.setBold(true);
     title_ = new QCPTextElement(plot_, figureName(), tf);
     title_->setTextColor(estuary::ink);
     plot_->plotLayout()->addElement(0, 0, title_);
-    // The legend in a row under the plot, so it never hides points.
+    setPanelCount(kind_ == Influence ? 2 : 1);
+    const int legendAt = plot_->plotLayout()->rowCount();
     auto* legendRow = new QCPLayoutGrid;
-    plot_->plotLayout()->addElement(2, 0, legendRow);
+    plot_->plotLayout()->addElement(legendAt, 0, legendRow);
     legendRow->addElement(0, 0, plot_->legend);
     legendRow->setMargins(QMargins(0, 0, 0, 2));
-    plot_->plotLayout()->setRowStretchFactor(2, 0.001);
+    plot_->plotLayout()->setRowStretchFactor(legendAt, 0.001);
     plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
     plot_->legend->setWrap(3);
     plot_->legend->setBorderPen(Qt::NoPen);
@@ -68,11 +131,34 @@ DiagnosticPlot::DiagnosticPlot(Kind kind, QWidget* parent)
     QFont lf = font();
     lf.setPointSizeF(lf.pointSizeF() * 0.9);
     plot_->legend->setFont(lf);
-    setMinimumSize(220, 180);
-    connect(plot_, &QCustomPlot::plottableClick, this, [this](QCPAbstractPlottable* p, int index, QMouseEvent*) {
-        if (p != flaggedGraph_ || index < 0 || static_cast<std::size_t>(index) >= drawnFlagged_.size()) return;
-        Q_EMIT observationClicked(drawnFlagged_[static_cast<std::size_t>(index)]);
-    });
+}
+
+void DiagnosticPlot::setPanelCount(int count) {
+    panels_.assign(static_cast<std::size_t>(count), Panel{});
+    panels_[0].rect = plot_->axisRect();
+    if (count == 1) return;
+    // Further panels stacked under the first, sharing its left and right
+    // margins; each panel under a caption that states its flag rule.
+    auto* margins = new QCPMarginGroup(plot_);
+    panels_[0].rect->setMarginGroup(QCP::msLeft | QCP::msRight, margins);
+    for (int k = 1; k < count; ++k) {
+        auto* rect = new QCPAxisRect(plot_);
+        plot_->plotLayout()->addElement(1 + k, 0, rect);
+        rect->axis(QCPAxis::atTop)->setVisible(false);
+        rect->axis(QCPAxis::atRight)->setVisible(false);
+        rect->setMarginGroup(QCP::msLeft | QCP::msRight, margins);
+        styleAxisRect(rect, font());
+        panels_[static_cast<std::size_t>(k)].rect = rect;
+    }
+    for (int k = count - 1; k >= 0; --k) {
+        plot_->plotLayout()->insertRow(1 + k);
+        auto* caption = new QCPTextElement(plot_, QString(), smallFont());
+        caption->setObjectName(QLatin1String(kPanelCaptionName));
+        caption->setTextColor(estuary::ink);
+        caption->setMargins(QMargins(0, k == 0 ? 0 : 6, 0, 0));
+        plot_->plotLayout()->addElement(1 + k, 0, caption);
+        panels_[static_cast<std::size_t>(k)].caption = caption;
+    }
 }
 
 QString DiagnosticPlot::figureName() const {
@@ -82,12 +168,14 @@ QString DiagnosticPlot::figureName() const {
         case Quantiles:
             return tr("Normal quantile plot");
         case Influence:
-            return tr("Leverage and influence");
+            return tr("Influence of each row");
     }
     return {};
 }
 
 FigurePlot DiagnosticPlot::figureKind() const {
+    // The kinds kept figures are stored under in project files: the influence
+    // view keeps its kind (and key) though it is drawn differently now.
     switch (kind_) {
         case Residuals:
             return FigurePlot::Residuals;
@@ -99,20 +187,42 @@ FigurePlot DiagnosticPlot::figureKind() const {
     return FigurePlot::Residuals;
 }
 
-void DiagnosticPlot::setDiagnostics(std::shared_ptr<const Diagnostics> d) {
+QCPAxisRect* DiagnosticPlot::panelRect(int panel) const { return panels_.at(static_cast<std::size_t>(panel)).rect; }
+const std::vector<std::size_t>& DiagnosticPlot::drawnObservations(int panel) const {
+    return panels_.at(static_cast<std::size_t>(panel)).drawn;
+}
+const std::vector<std::size_t>& DiagnosticPlot::drawnFlagged(int panel) const {
+    return panels_.at(static_cast<std::size_t>(panel)).drawnFlagged;
+}
+QCPGraph* DiagnosticPlot::pointsGraph(int panel) const { return panels_.at(static_cast<std::size_t>(panel)).points; }
+QCPGraph* DiagnosticPlot::flaggedGraph(int panel) const { return panels_.at(static_cast<std::size_t>(panel)).flagged; }
+double DiagnosticPlot::ruleValue(int panel) const { return panels_.at(static_cast<std::size_t>(panel)).rule; }
+QString DiagnosticPlot::panelCaption(int panel) const {
+    const QCPTextElement* caption = panels_.at(static_cast<std::size_t>(panel)).caption;
+    return caption ? caption->text() : QString();
+}
+const std::vector<std::size_t>& DiagnosticPlot::labelledObservations(int panel) const {
+    return panels_.at(static_cast<std::size_t>(panel)).labelled;
+}
+
+void DiagnosticPlot::setDiagnostics(std::shared_ptr<const Diagnostics> d, RowNumbers rows) {
     d_ = std::move(d);
+    rows_ = std::move(rows);
+    if (d_ && rows_.number.size() != d_->n) {
+        // The order the rows were used in the fit.
+        rows_.number.resize(d_->n);
+        for (std::size_t i = 0; i < d_->n; ++i) rows_.number[i] = static_cast<double>(i + 1);
+        rows_.word = tr("row");
+        rows_.axisTitle = tr("row, in the order the fit used them");
+    }
     highlighted_.clear();
-    // The coordinates once per diagnostics (the quantile plot sorts every row).
-    cx_.clear();
-    cy_.clear();
-    cobs_.clear();
-    if (d_) coordinates(cx_, cy_, cobs_);
+    computeCoordinates();
     redraw();
 }
 
 void DiagnosticPlot::setHighlighted(const std::vector<std::size_t>& observations) {
     highlighted_ = observations;
-    drawHighlight();
+    for (Panel& p : panels_) drawHighlight(p);
     plot_->replot();
 }
 
@@ -121,241 +231,311 @@ void DiagnosticPlot::setGreyscale(bool on) {
     redraw();
 }
 
-void DiagnosticPlot::coordinates(std::vector<double>& x, std::vector<double>& y, std::vector<std::size_t>& obs) const {
+void DiagnosticPlot::computeCoordinates() {
+    for (Panel& p : panels_) {
+        p.x.clear();
+        p.y.clear();
+        p.obs.clear();
+    }
+    if (!d_) return;
     const Diagnostics& d = *d_;
-    x.clear();
-    y.clear();
-    obs.clear();
+    // Each panel's x and y of every observation; points without both are left out.
+    auto take = [](Panel& p, const std::vector<double>& x, const std::vector<double>& y,
+                   const std::vector<std::size_t>& obs) {
+        for (std::size_t k = 0; k < obs.size(); ++k)
+            if (std::isfinite(x[k]) && std::isfinite(y[k])) {
+                p.x.push_back(x[k]);
+                p.y.push_back(y[k]);
+                p.obs.push_back(obs[k]);
+            }
+    };
+    std::vector<std::size_t> all(d.n);
+    for (std::size_t i = 0; i < d.n; ++i) all[i] = i;
+    auto values = [](const Eigen::VectorXd& v) { return std::vector<double>(v.data(), v.data() + v.size()); };
     switch (kind_) {
         case Residuals:
-        case Influence: {
-            const Eigen::VectorXd& ex = kind_ == Residuals ? d.fitted : d.leverage;
-            const Eigen::VectorXd& ey = kind_ == Residuals ? d.plot_residual() : d.standardised;
-            x.assign(ex.data(), ex.data() + ex.size());
-            y.assign(ey.data(), ey.data() + ey.size());
-            obs.resize(x.size());
-            for (std::size_t i = 0; i < obs.size(); ++i) obs[i] = i;
+            take(panels_[0], values(d.fitted), values(d.plot_residual()), all);
             break;
-        }
         case Quantiles: {
+            // The quantile plot sorts every row: once per diagnostics.
             const QuantilePlot q = normal_quantile_plot(d.quantile_residual());
-            x = q.theoretical;
-            y = q.observed;
-            obs = q.order;
+            take(panels_[0], q.theoretical, q.observed, q.order);
             break;
         }
+        case Influence:
+            take(panels_[0], rows_.number, values(d.cooks_distance), all);
+            take(panels_[1], rows_.number, values(d.leverage), all);
+            break;
     }
 }
 
-void DiagnosticPlot::redraw() {
+void DiagnosticPlot::clearPanels() {
     plot_->clearPlottables();
     plot_->clearItems();
-    points_ = flaggedGraph_ = highlight_ = nullptr;
-    drawn_.clear();
-    drawnFlagged_.clear();
-    xs_.clear();
-    ys_.clear();
+    binMeans_ = nullptr;
+    binBars_ = nullptr;
+    for (Panel& p : panels_) {
+        p.points = p.flagged = p.highlight = nullptr;
+        p.drawn.clear();
+        p.drawnFlagged.clear();
+        p.labelled.clear();
+        p.xs.clear();
+        p.ys.clear();
+        p.rule = NAN;
+        p.xlo = p.ylo = INFINITY;
+        p.xhi = p.yhi = -INFINITY;
+        for (QCPAxis* axis : p.rect->axes()) axis->setLabel(QString());
+        if (p.caption) p.caption->setText(QString());
+    }
     plot_->legend->setVisible(false);
+}
+
+void DiagnosticPlot::redraw() {
+    clearPanels();
     if (!d_) {
-        plot_->xAxis->setLabel(QString());
-        plot_->yAxis->setLabel(QString());
         plot_->replot();
         return;
     }
-    const Diagnostics& d = *d_;
-    std::vector<char> flagged(d.n, 0);
-    for (const auto& r : d.flagged) flagged[r.observation] = 1;
+    std::vector<char> flagged(d_->n, 0);
+    for (const auto& r : d_->flagged) flagged[r.observation] = 1;
+    // The rows first, then what each kind adds over them, then the flagged rows on top.
+    for (Panel& p : panels_) drawPoints(p, flagged);
+    switch (kind_) {
+        case Residuals:
+            decorateResiduals();
+            break;
+        case Quantiles:
+            decorateQuantiles();
+            break;
+        case Influence:
+            decorateInfluence();
+            break;
+    }
+    for (Panel& p : panels_) drawFlagged(p);
+    plot_->legend->setVisible(true);
+    fitLegend(plot_);
+    plot_->replot();
+}
 
-    const std::vector<double>& x = cx_;
-    const std::vector<double>& y = cy_;
-    const std::vector<std::size_t>& obs = cobs_;
-    xs_.assign(d.n, NAN);
-    ys_.assign(d.n, NAN);
-    for (std::size_t k = 0; k < obs.size(); ++k) {
-        xs_[obs[k]] = x[k];
-        ys_[obs[k]] = y[k];
+void DiagnosticPlot::drawPoints(Panel& p, const std::vector<char>& flagged) {
+    const std::size_t n = d_->n;
+    p.xs.assign(n, NAN);
+    p.ys.assign(n, NAN);
+    for (std::size_t k = 0; k < p.obs.size(); ++k) {
+        p.xs[p.obs[k]] = p.x[k];
+        p.ys[p.obs[k]] = p.y[k];
     }
     const std::vector<std::size_t> keep =
-        thinScatter(x, y, kThinAbove, 600, 400, [&](std::size_t k) { return flagged[obs[k]] != 0; });
-    QVector<double> px, py, fx, fy;
+        thinScatter(p.x, p.y, kThinAbove, 600, 400, [&](std::size_t k) { return flagged[p.obs[k]] != 0; });
+    QVector<double> px, py;
     std::vector<std::size_t> flaggedAt;  // positions k of the flagged points
-    double xlo = INFINITY, xhi = -INFINITY, ylo = INFINITY, yhi = -INFINITY;
     for (std::size_t k : keep) {
-        xlo = std::min(xlo, x[k]);
-        xhi = std::max(xhi, x[k]);
-        ylo = std::min(ylo, y[k]);
-        yhi = std::max(yhi, y[k]);
-        if (flagged[obs[k]]) {
+        p.xlo = std::min(p.xlo, p.x[k]);
+        p.xhi = std::max(p.xhi, p.x[k]);
+        p.ylo = std::min(p.ylo, p.y[k]);
+        p.yhi = std::max(p.yhi, p.y[k]);
+        if (flagged[p.obs[k]]) {
             flaggedAt.push_back(k);
         } else {
-            px << x[k];
-            py << y[k];
-            drawn_.push_back(obs[k]);
+            px << p.x[k];
+            py << p.y[k];
+            p.drawn.push_back(p.obs[k]);
         }
     }
     // QCPGraph keeps its data sorted by x: sort the flagged points the same
     // way so a clicked point's index names its observation.
-    std::stable_sort(flaggedAt.begin(), flaggedAt.end(), [&](std::size_t a, std::size_t b) { return x[a] < x[b]; });
-    for (std::size_t k : flaggedAt) {
-        fx << x[k];
-        fy << y[k];
-        drawnFlagged_.push_back(obs[k]);
-    }
-    const bool dense = keep.size() < x.size() || x.size() > 3000;
-    const QColor pointColour = estuary::withAlpha(shade(estuary::series(0), greyscale_), dense ? 0.35 : 0.55);
-    const QColor flagColour = shade(estuary::series(1), greyscale_);
-
-    // Reference lines first (under the points).
-    QPen refPen(estuary::ink);
-    refPen.setWidthF(1.0);
-    QFont small = font();
-    small.setPointSizeF(small.pointSizeF() * 0.85);
-    QCPRange xr = padded(xlo, xhi), yr = padded(ylo, yhi);
-    switch (kind_) {
-        case Residuals: {
-            auto* zero = new QCPItemStraightLine(plot_);
-            QPen p = refPen;
-            p.setStyle(Qt::DashLine);
-            zero->setPen(p);
-            zero->point1->setCoords(0, 0);
-            zero->point2->setCoords(1, 0);
-            setAxisTitle(plot_->xAxis, QString::fromStdString(d.fitted_name));
-            setAxisTitle(plot_->yAxis, QString::fromStdString(d.plot_residual_name));
-            if (d.family == Family::Logistic) xr = QCPRange(std::max(-0.02, xr.lower), std::min(1.02, xr.upper));
-            break;
-        }
-        case Quantiles: {
-            auto* ref = new QCPItemStraightLine(plot_);
-            ref->setPen(refPen);
-            ref->point1->setCoords(0, 0);
-            ref->point2->setCoords(1, 1);
-            setAxisTitle(plot_->xAxis, tr("normal quantile (Blom positions)"));
-            setAxisTitle(plot_->yAxis, QString::fromStdString(d.quantile_residual_name));
-            yr = padded(std::min(ylo, xlo), std::max(yhi, xhi));
-            xr = padded(xlo, xhi);
-            break;
-        }
-        case Influence: {
-            xr = QCPRange(0, std::max(xhi, d.leverage_threshold) * 1.08);
-            const double ymax = std::max({std::abs(ylo), std::abs(yhi), 3.0}) * 1.1;
-            yr = QCPRange(-ymax, ymax);
-            setAxisTitle(plot_->xAxis, tr("leverage"));
-            setAxisTitle(plot_->yAxis, d.family == Family::Logistic ? tr("standardised Pearson residual")
-                                                                    : tr("standardised residual"));
-            // Cook's distance contours at 0.5 and 1 (common practice).
-            const double hlo = std::max(xr.upper * 1e-3, 1e-6), hhi = std::min(xr.upper, 0.999);
-            const Qt::PenStyle styles[] = {Qt::DashLine, Qt::DashDotLine};
-            const double levels[] = {0.5, 1.0};
-            // Does the lower contour (D = 0.5) enter the plotted area at all?
-            const bool visible = cooks_contour(levels[0], d.p, hhi) <= ymax;
-            for (int c = 0; c < 2 && visible; ++c) {
-                QPen pen(shade(estuary::series(5), greyscale_));
-                pen.setWidthF(1.1);
-                pen.setStyle(styles[c]);
-                for (int sign : {1, -1}) {
-                    auto* curve = new QCPCurve(plot_->xAxis, plot_->yAxis);
-                    curve->setPen(pen);
-                    curve->setName(tr("Cook's distance %1").arg(levels[c]));
-                    if (sign < 0) curve->removeFromLegend();
-                    QVector<double> t, cx, cy;
-                    for (int s = 0; s <= 200; ++s) {
-                        const double h = hlo * std::pow(hhi / hlo, s / 200.0);
-                        const double r = cooks_contour(levels[c], d.p, h);
-                        if (!std::isfinite(r) || r > 4 * ymax) continue;
-                        t << s;
-                        cx << h;
-                        cy << sign * r;
-                    }
-                    curve->setData(t, cx, cy, true);
-                    curve->setSelectable(QCP::stNone);
-                    if (sign > 0 && !cx.isEmpty()) {
-                        // label where the contour meets the top of the plot, or at its right end
-                        int at = static_cast<int>(cx.size()) - 1;
-                        for (int s = 0; s < cx.size(); ++s)
-                            if (cy[s] <= ymax * 0.92) {
-                                at = s;
-                                break;
-                            }
-                        label(plot_, tr("D = %1").arg(levels[c]), cx[at], cy[at], Qt::AlignLeft | Qt::AlignBottom,
-                              small);
-                    }
-                }
-            }
-            if (!visible) {
-                auto* t = label(plot_, tr("Cook's distance 0.5 and 1 lie beyond this range"), xr.upper, ymax * 0.97,
-                                Qt::AlignRight | Qt::AlignTop, small);
-                t->setColor(shade(estuary::series(5), greyscale_));
-            }
-            auto* lev = new QCPItemStraightLine(plot_);
-            QPen lp(shade(estuary::notSignificant, greyscale_));
-            lp.setStyle(Qt::DotLine);
-            lp.setWidthF(1.2);
-            lev->setPen(lp);
-            lev->point1->setCoords(d.leverage_threshold, 0);
-            lev->point2->setCoords(d.leverage_threshold, 1);
-            label(plot_, tr("%1p/n").arg(d.rules.leverage_multiple), d.leverage_threshold, -ymax * 0.98,
-                  Qt::AlignLeft | Qt::AlignBottom, small);
-            break;
-        }
-    }
-
-    points_ = new QCPGraph(plot_->xAxis, plot_->yAxis);
-    points_->setName(tr("rows"));
-    points_->setLineStyle(QCPGraph::lsNone);
-    points_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssDisc, pointColour, pointColour, dense ? 3 : 4.5));
-    points_->setData(px, py);
-    points_->setSelectable(QCP::stNone);
-    points_->setAdaptiveSampling(true);
-
-    if (kind_ == Residuals) {
-        // The mean residual in bins of the fitted value: where it leaves zero,
-        // the model misses a pattern.
-        const int bins = static_cast<int>(std::clamp<std::size_t>(d.n / 10, 2, 20));
-        const BinnedResiduals b = binned_residuals(d.fitted, d.plot_residual(), bins);
-        auto* line = new QCPGraph(plot_->xAxis, plot_->yAxis);
-        line->setName(tr("mean residual in %1 bins of the fitted value").arg(b.count.size()));
-        QPen pen(shade(estuary::ink, greyscale_));
-        pen.setWidthF(1.6);
-        line->setPen(pen);
-        line->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssDisc, pen.color(), pen.color(), 4));
-        line->setData(QVector<double>(b.fitted_mean.begin(), b.fitted_mean.end()),
-                      QVector<double>(b.residual_mean.begin(), b.residual_mean.end()));
-        line->setSelectable(QCP::stNone);
-    }
-
-    flaggedGraph_ = new QCPGraph(plot_->xAxis, plot_->yAxis);
-    flaggedGraph_->setName(tr("flagged rows"));
-    flaggedGraph_->setLineStyle(QCPGraph::lsNone);
-    flaggedGraph_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssDiamond, QPen(flagColour, 1.2),
-                                                   QBrush(estuary::withAlpha(flagColour, 0.75)), 7));
-    flaggedGraph_->setData(fx, fy, true);  // sorted above
-    flaggedGraph_->setSelectable(QCP::stSingleData);
-    flaggedGraph_->setSelectionDecorator(nullptr);
-
-    highlight_ = new QCPGraph(plot_->xAxis, plot_->yAxis);
-    highlight_->setName(tr("selected in the list"));
-    highlight_->setLineStyle(QCPGraph::lsNone);
-    highlight_->setScatterStyle(
-        QCPScatterStyle(QCPScatterStyle::ssCircle, QPen(shade(estuary::ink, greyscale_), 1.6), Qt::NoBrush, 13));
-    highlight_->setSelectable(QCP::stNone);
-    highlight_->removeFromLegend();
-    drawHighlight();
-
-    plot_->legend->setVisible(true);
-    plot_->xAxis->setRange(xr);
-    plot_->yAxis->setRange(yr);
-    plot_->replot();
+    std::stable_sort(flaggedAt.begin(), flaggedAt.end(), [&](std::size_t a, std::size_t b) { return p.x[a] < p.x[b]; });
+    for (std::size_t k : flaggedAt) p.drawnFlagged.push_back(p.obs[k]);
+    p.dense = keep.size() < p.x.size() || p.x.size() > 3000;
+    const QColor pointColour = estuary::withAlpha(shade(estuary::series(0), greyscale_), p.dense ? 0.35 : 0.55);
+    p.points = scatterGraph(p.rect, tr("rows"),
+                            QCPScatterStyle(QCPScatterStyle::ssDisc, pointColour, pointColour, p.dense ? 3 : 4.5));
+    p.points->setData(px, py);
+    p.points->setAdaptiveSampling(true);
+    if (&p != &panels_.front()) p.points->removeFromLegend();  // later panels repeat the legend of the first
 }
 
-void DiagnosticPlot::drawHighlight() {
-    if (!highlight_) return;
+void DiagnosticPlot::drawFlagged(Panel& p) {
+    QVector<double> fx, fy;
+    for (std::size_t o : p.drawnFlagged) {
+        fx << p.xs[o];
+        fy << p.ys[o];
+    }
+    const QColor flagColour = shade(estuary::series(1), greyscale_);
+    p.flagged = scatterGraph(p.rect, tr("flagged rows (any rule)"),
+                             QCPScatterStyle(QCPScatterStyle::ssDiamond, QPen(flagColour, 1.2),
+                                             QBrush(estuary::withAlpha(flagColour, 0.75)), 7));
+    p.flagged->setData(fx, fy, true);  // sorted by x in drawPoints
+    p.flagged->setSelectable(QCP::stSingleData);
+    p.flagged->setSelectionDecorator(nullptr);
+    p.flagged->setLayer(QLatin1String(kFlaggedLayer));
+    if (&p != &panels_.front()) p.flagged->removeFromLegend();
+
+    p.highlight = scatterGraph(
+        p.rect, tr("selected in the list"),
+        QCPScatterStyle(QCPScatterStyle::ssCircle, QPen(shade(estuary::ink, greyscale_), 1.6), Qt::NoBrush, 13));
+    p.highlight->removeFromLegend();
+    p.highlight->setLayer(QLatin1String(kFlaggedLayer));
+    drawHighlight(p);
+}
+
+void DiagnosticPlot::drawHighlight(Panel& p) {
+    if (!p.highlight) return;
     QVector<double> hx, hy;
     for (std::size_t o : highlighted_)
-        if (o < xs_.size() && std::isfinite(xs_[o]) && std::isfinite(ys_[o])) {
-            hx << xs_[o];
-            hy << ys_[o];
+        if (o < p.xs.size() && std::isfinite(p.xs[o]) && std::isfinite(p.ys[o])) {
+            hx << p.xs[o];
+            hy << p.ys[o];
         }
-    highlight_->setData(hx, hy);  // sorts by x
+    p.highlight->setData(hx, hy);  // sorts by x
+}
+
+QFont DiagnosticPlot::smallFont() const {
+    QFont small = font();
+    small.setPointSizeF(small.pointSizeF() * 0.85);
+    return small;
+}
+
+void DiagnosticPlot::decorateResiduals() {
+    const Diagnostics& d = *d_;
+    Panel& p = panels_[0];
+    QPen zeroPen(estuary::ink);
+    zeroPen.setWidthF(1.0);
+    zeroPen.setStyle(Qt::DashLine);
+    straightLine(plot_, p.rect, zeroPen, 0, 0, 1, 0);
+    setAxisTitle(p.rect->axis(QCPAxis::atBottom), QString::fromStdString(d.fitted_name));
+    setAxisTitle(p.rect->axis(QCPAxis::atLeft), residualTitle(d));
+    QCPRange xr = padded(p.xlo, p.xhi);
+    if (d.family == Family::Logistic) xr = QCPRange(std::max(-0.02, xr.lower), std::min(1.02, xr.upper));
+
+    // The mean residual in bins of the fitted value, each with the interval
+    // of its mean: where an interval misses zero, the model misses a pattern.
+    const int bins = static_cast<int>(std::clamp<std::size_t>(d.n / 10, 2, 20));
+    const BinnedResiduals b = binned_residuals(d.fitted, d.plot_residual(), bins);
+    QVector<double> key, mean, below, above;
+    for (std::size_t g = 0; g < b.count.size(); ++g) {
+        if (!std::isfinite(b.residual_lower[g]) || !std::isfinite(b.residual_upper[g])) continue;  // one row
+        key << b.fitted_mean[g];
+        mean << b.residual_mean[g];
+        below << b.residual_mean[g] - b.residual_lower[g];
+        above << b.residual_upper[g] - b.residual_mean[g];
+    }
+    const QColor ink = shade(estuary::ink, greyscale_);
+    binMeans_ = scatterGraph(
+        p.rect, tr("mean residual in %1 bins, with %2% interval").arg(key.size()).arg(std::lround(b.level * 100)),
+        QCPScatterStyle(QCPScatterStyle::ssSquare, QPen(ink, 1.2), QBrush(ink), 5));
+    binMeans_->setData(key, mean, true);  // bins come in order of the fitted value
+    binBars_ = new QCPErrorBars(p.rect->axis(QCPAxis::atBottom), p.rect->axis(QCPAxis::atLeft));
+    binBars_->setDataPlottable(binMeans_);
+    binBars_->setErrorType(QCPErrorBars::etValueError);
+    binBars_->setData(below, above);
+    binBars_->setPen(QPen(ink, 1.4));
+    binBars_->setWhiskerWidth(6);
+    binBars_->setSelectable(QCP::stNone);
+    binBars_->removeFromLegend();
+
+    double ylo = p.ylo, yhi = p.yhi;
+    for (int g = 0; g < key.size(); ++g) {
+        ylo = std::min(ylo, mean[g] - below[g]);
+        yhi = std::max(yhi, mean[g] + above[g]);
+    }
+    p.rect->axis(QCPAxis::atBottom)->setRange(xr);
+    p.rect->axis(QCPAxis::atLeft)->setRange(padded(ylo, yhi));
+}
+
+void DiagnosticPlot::decorateQuantiles() {
+    const Diagnostics& d = *d_;
+    Panel& p = panels_[0];
+    QPen refPen(estuary::ink);
+    refPen.setWidthF(1.0);
+    straightLine(plot_, p.rect, refPen, 0, 0, 1, 1);
+    setAxisTitle(p.rect->axis(QCPAxis::atBottom), tr("normal quantile (Blom plotting positions)"));
+    setAxisTitle(p.rect->axis(QCPAxis::atLeft), QString::fromStdString(d.quantile_residual_name));
+    p.rect->axis(QCPAxis::atBottom)->setRange(padded(p.xlo, p.xhi));
+    p.rect->axis(QCPAxis::atLeft)->setRange(padded(std::min(p.ylo, p.xlo), std::max(p.yhi, p.xhi)));
+}
+
+void DiagnosticPlot::decorateInfluence() {
+    const Diagnostics& d = *d_;
+    Panel& cooks = panels_[0];
+    Panel& leverage = panels_[1];
+    setAxisTitle(cooks.rect->axis(QCPAxis::atLeft), tr("Cook's distance"));
+    setAxisTitle(leverage.rect->axis(QCPAxis::atLeft), tr("leverage"));
+    setAxisTitle(leverage.rect->axis(QCPAxis::atBottom), rows_.axisTitle);
+    // Both panels over the same rows; the row numbers are read on the lower one.
+    const QCPRange xr = padded(std::min(cooks.xlo, leverage.xlo), std::max(cooks.xhi, leverage.xhi), 0.02);
+    cooks.rect->axis(QCPAxis::atBottom)->setTickLabels(false);
+    // The rules core flags rows by (Diagnostics::cooks_threshold, leverage_threshold), stated over each panel.
+    const QString n = countText(static_cast<double>(d.n));
+    drawRuleLine(cooks, d.cooks_threshold, xr,
+                 tr("Cook's distance: flagged above %1 / %2 rows = %3")
+                     .arg(ruleNumber(d.rules.cooks_numerator), n, numberText(d.cooks_threshold, 3)));
+    drawRuleLine(
+        leverage, d.leverage_threshold, xr,
+        tr("Leverage: flagged above %1 × %2 coefficients / %3 rows = %4")
+            .arg(ruleNumber(d.rules.leverage_multiple), countText(d.p), n, numberText(d.leverage_threshold, 3)));
+    for (Panel* p : {&cooks, &leverage}) {
+        p->rect->axis(QCPAxis::atBottom)->setRange(xr);
+        // From just below zero, so rows at zero show whole above the axis.
+        const double top = std::max(std::isfinite(p->yhi) ? p->yhi : 0.0, p->rule);
+        const double upper = top > 0 ? top * 1.15 : 1.0;
+        p->rect->axis(QCPAxis::atLeft)->setRange(-0.04 * upper, upper);
+    }
+    labelRows(cooks, d.cooks_distance, d.cooks_threshold);
+    labelRows(leverage, d.leverage, d.leverage_threshold);
+}
+
+void DiagnosticPlot::drawRuleLine(Panel& p, double value, const QCPRange& xr, const QString& caption) {
+    p.rule = value;
+    p.caption->setText(caption);
+    QPen pen(shade(estuary::series(1), greyscale_));
+    pen.setWidthF(1.2);
+    pen.setStyle(Qt::DashLine);
+    // A line across the panel, under the points.
+    auto* line = new QCPGraph(p.rect->axis(QCPAxis::atBottom), p.rect->axis(QCPAxis::atLeft));
+    line->setLayer(QLatin1String(kUnderLayer));
+    line->setName(tr("flag rule"));
+    line->setPen(pen);
+    line->setSelectable(QCP::stNone);
+    line->setData(QVector<double>{xr.lower, xr.upper}, QVector<double>{value, value}, true);
+    if (&p != &panels_.front()) line->removeFromLegend();  // one entry for both panels
+}
+
+void DiagnosticPlot::labelRows(Panel& p, const Eigen::VectorXd& value, double above) {
+    // The largest rows above the rule line, by value.
+    std::vector<std::size_t> over;
+    for (std::size_t i = 0; i < d_->n; ++i)
+        if (std::isfinite(value[static_cast<Eigen::Index>(i)]) && value[static_cast<Eigen::Index>(i)] > above)
+            over.push_back(i);
+    std::stable_sort(over.begin(), over.end(), [&](std::size_t a, std::size_t b) {
+        return value[static_cast<Eigen::Index>(a)] > value[static_cast<Eigen::Index>(b)];
+    });
+    if (over.size() > kMaxLabels) over.resize(kMaxLabels);
+    const QCPRange xr = p.rect->axis(QCPAxis::atBottom)->range();
+    const QCPRange yr = p.rect->axis(QCPAxis::atLeft)->range();
+    std::vector<std::pair<double, double>> placed;  // labelled points, as shares of the axis ranges
+    for (std::size_t o : over) {
+        const double x = rows_.number[o], y = value[static_cast<Eigen::Index>(o)];
+        // Beside the marker, on its left near the right edge (so the text stays inside) ...
+        const bool left = x > xr.lower + 0.85 * xr.size();
+        // ... and under it when another label is close by.
+        const double sx = (x - xr.lower) / xr.size(), sy = (y - yr.lower) / yr.size();
+        bool crowded = false;
+        for (const auto& [px, py] : placed) crowded = crowded || (std::abs(px - sx) < 0.1 && std::abs(py - sy) < 0.12);
+        placed.emplace_back(sx, sy);
+        QCPItemText* t =
+            label(plot_, p.rect, rowLabel(o), x, y,
+                  (left ? Qt::AlignRight : Qt::AlignLeft) | (crowded ? Qt::AlignTop : Qt::AlignVCenter), smallFont());
+        t->setBrush(Qt::NoBrush);
+        // Clear of the marker (and, under it, of the label beside it).
+        t->setPadding(QMargins(left ? 2 : 7, crowded ? 5 : 0, left ? 7 : 2, 0));
+        p.labelled.push_back(o);
+    }
+}
+
+QString DiagnosticPlot::rowLabel(std::size_t observation) const {
+    // Written as the file or the grid numbers it (no thousands separator).
+    return rows_.word + QLatin1Char(' ') + QString::number(static_cast<qulonglong>(rows_.number[observation]));
 }
 
 }  // namespace moderato::ui

@@ -1,13 +1,23 @@
 // The three plots of the Checks section, each exportable as a figure:
-// residuals against fitted values (with the mean residual in bins of the
-// fitted value), the normal quantile plot of the residuals with the line
-// y = x, and leverage against standardised residuals with Cook's distance
-// contours at 0.5 and 1. Flagged rows are drawn on top in their own marker
-// and never thinned away; above 20,000 points the rest are thinned to one
-// per screen-sized bin.
+//
+// - Residuals: residuals against fitted values, with the mean residual in
+//   bins of the fitted value and an interval for each bin's mean (core
+//   binned_residuals): where an interval misses zero, the residuals there
+//   average away from zero and the model misses a pattern.
+// - Quantiles: the normal quantile plot of the residuals with the line y = x.
+// - Influence: two panels over the rows in file order, Cook's distance above
+//   and leverage below, each with the line of the rule that flags rows
+//   (core's thresholds: Cook's distance above 4/n, leverage above 3p/n) and
+//   a caption stating it; the largest rows above a line are labelled with
+//   their line (or row) number.
+//
+// Flagged rows are drawn on top in their own marker and never thinned away;
+// above 20,000 points the rest are thinned to one per screen-sized bin.
 #pragma once
 
+#include <QString>
 #include <QWidget>
+#include <cmath>
 #include <memory>
 #include <vector>
 
@@ -15,10 +25,23 @@
 #include "plots/figure_source.hpp"
 
 class QCustomPlot;
+class QCPAxisRect;
+class QCPErrorBars;
 class QCPGraph;
+class QCPItemText;
+class QCPRange;
 class QCPTextElement;
 
 namespace moderato::ui {
+
+// How the reader finds each row of the fit: its number (the file line, or
+// the row of the dataset) and what the number is called. Empty: the rows
+// are counted 1, 2, ... in the order they were used in the fit.
+struct RowNumbers {
+    std::vector<double> number;  // by observation
+    QString word;                // "line" or "row": the label of a point is "line 271"
+    QString axisTitle;           // "line of plots.csv"
+};
 
 class DiagnosticPlot : public QWidget, public FigureSource {
     Q_OBJECT
@@ -26,8 +49,8 @@ public:
     enum Kind { Residuals, Quantiles, Influence };
     explicit DiagnosticPlot(Kind kind, QWidget* parent = nullptr);
 
-    // nullptr clears the plot.
-    void setDiagnostics(std::shared_ptr<const Diagnostics> d);
+    // nullptr clears the plot. `rows` numbers the rows on the influence plot.
+    void setDiagnostics(std::shared_ptr<const Diagnostics> d, RowNumbers rows = {});
     // Rows (observation indices) to ring, e.g. the ones selected in the list.
     void setHighlighted(const std::vector<std::size_t>& observations);
 
@@ -37,33 +60,84 @@ public:
     void setGreyscale(bool on) override;
 
     Kind kind() const { return kind_; }
-    // What is drawn (for tests): the plotted observation of each point.
-    const std::vector<std::size_t>& drawnObservations() const { return drawn_; }
-    const std::vector<std::size_t>& drawnFlagged() const { return drawnFlagged_; }
-    QCPGraph* pointsGraph() const { return points_; }
-    QCPGraph* flaggedGraph() const { return flaggedGraph_; }
+    // What is drawn (for tests). Panel 0 is the only panel of the residual
+    // and quantile plots, and the Cook's distance panel of the influence
+    // plot; panel 1 is its leverage panel.
+    int panelCount() const { return static_cast<int>(panels_.size()); }
+    QCPAxisRect* panelRect(int panel = 0) const;
+    // The plotted observation of each point.
+    const std::vector<std::size_t>& drawnObservations(int panel = 0) const;
+    const std::vector<std::size_t>& drawnFlagged(int panel = 0) const;
+    QCPGraph* pointsGraph(int panel = 0) const;
+    QCPGraph* flaggedGraph(int panel = 0) const;
+    // The value of the panel's flag rule line (NaN: none), and the rows
+    // labelled beside their points (observation indices, largest first).
+    double ruleValue(int panel = 0) const;
+    // The caption over a panel of the influence plot (its flag rule in words).
+    QString panelCaption(int panel = 0) const;
+    const std::vector<std::size_t>& labelledObservations(int panel = 0) const;
+    // Residual plot: the bin means (key: mean fitted value) and their intervals.
+    QCPGraph* binMeansGraph() const { return binMeans_; }
+    QCPErrorBars* binIntervals() const { return binBars_; }
+
+    // At most this many rows are labelled on each influence panel.
+    static constexpr std::size_t kMaxLabels = 5;
 
 Q_SIGNALS:
     // A flagged point was clicked.
     void observationClicked(std::size_t observation);
 
+protected:
+    // The legend wraps to the plot's width.
+    void resizeEvent(QResizeEvent* event) override;
+
 private:
+    // One axis rect with its points: the flagged ones on top, a ring for
+    // the highlighted ones.
+    struct Panel {
+        QCPAxisRect* rect = nullptr;
+        QCPTextElement* caption = nullptr;  // over the panel (influence plot)
+        std::vector<double> x, y;           // the panel's points, in the panel's order ...
+        std::vector<std::size_t> obs;       // ... and the observation of each
+        std::vector<double> xs, ys;         // coordinates by observation (NaN if not drawn)
+        std::vector<std::size_t> drawn, drawnFlagged, labelled;
+        QCPGraph* points = nullptr;
+        QCPGraph* flagged = nullptr;
+        QCPGraph* highlight = nullptr;
+        double rule = NAN;
+        bool dense = false;
+        double xlo = INFINITY, xhi = -INFINITY, ylo = INFINITY, yhi = -INFINITY;  // of the drawn points
+    };
+
+    void setUpLayout();
+    void setPanelCount(int count);
+    // The coordinates of every observation, once per diagnostics.
+    void computeCoordinates();
     void redraw();
-    void drawHighlight();
-    // x and y of every observation for this plot.
-    void coordinates(std::vector<double>& x, std::vector<double>& y, std::vector<std::size_t>& obs) const;
+    void clearPanels();
+    // The points of a panel (thinned; flagged rows kept apart for drawFlagged),
+    // then the flagged points and the highlight ring on top.
+    void drawPoints(Panel& panel, const std::vector<char>& flagged);
+    void drawFlagged(Panel& panel);
+    void drawHighlight(Panel& panel);
+    // What each kind adds: reference lines, bins, rules, labels, axis titles, ranges.
+    void decorateResiduals();
+    void decorateQuantiles();
+    void decorateInfluence();
+    void drawRuleLine(Panel& panel, double value, const QCPRange& xr, const QString& caption);
+    void labelRows(Panel& panel, const Eigen::VectorXd& value, double above);
+    QString rowLabel(std::size_t observation) const;
+    QFont smallFont() const;
 
     Kind kind_;
     QCustomPlot* plot_;
     QCPTextElement* title_ = nullptr;
     std::shared_ptr<const Diagnostics> d_;
-    std::vector<std::size_t> drawn_, drawnFlagged_, highlighted_;
-    std::vector<double> cx_, cy_;    // the plot's points, in the plot's order ...
-    std::vector<std::size_t> cobs_;  // ... and the observation of each
-    std::vector<double> xs_, ys_;    // coordinates by observation (NaN if not drawn)
-    QCPGraph* points_ = nullptr;
-    QCPGraph* flaggedGraph_ = nullptr;
-    QCPGraph* highlight_ = nullptr;
+    RowNumbers rows_;
+    std::vector<Panel> panels_;
+    std::vector<std::size_t> highlighted_;
+    QCPGraph* binMeans_ = nullptr;
+    QCPErrorBars* binBars_ = nullptr;
     bool greyscale_ = false;
 };
 

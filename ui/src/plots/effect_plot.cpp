@@ -128,28 +128,19 @@ void EffectPlot::buildContinuous() {
     setAxisTitle(plot_->xAxis, d.moderatorTitle);
     setAxisTitle(plot_->yAxis, d.effectTitle);
 
-    // Shading under the grid: beyond the data, then the regions.
+    const auto [anySignificant, anyNotSignificant] = drawRegions();
+    drawCurve(anySignificant, anyNotSignificant);
+    drawBoundaries();
+    if (!d.rug.empty()) drawRug();
+}
+
+// Shading under the grid: beyond the data, then the significant regions and
+// their complement within the axis range. Says which kinds were drawn.
+std::pair<bool, bool> EffectPlot::drawRegions() {
+    const EffectPlotData& d = data_;
     plot_->setCurrentLayer(kShadingLayer);
-    const QFont note = smallFont(font(), 0.85);
-    QColor noteColour = estuary::ink;
-    noteColour.setAlphaF(0.65f);
-    auto beyondRegion = [&](double a, double b) {
-        if (b <= a) return;
-        spanRect(plot_, a, b, QBrush(estuary::beyond));
-        auto* t = new QCPItemText(plot_);
-        t->position->setTypeX(QCPItemPosition::ptPlotCoords);
-        t->position->setTypeY(QCPItemPosition::ptAxisRectRatio);
-        t->position->setCoords(0.5 * (a + b), 1.0);
-        t->setPositionAlignment(Qt::AlignBottom | Qt::AlignHCenter);
-        t->setText(tr("beyond\nthe data"));
-        t->setTextAlignment(Qt::AlignCenter);
-        t->setFont(note);
-        t->setColor(noteColour);
-        t->setPadding(QMargins(2, 2, 2, 12));
-        t->setSelectable(false);
-    };
-    beyondRegion(d.axis.first, d.observed.first);
-    beyondRegion(d.observed.second, d.axis.second);
+    shadeBeyond(d.axis.first, d.observed.first);
+    shadeBeyond(d.observed.second, d.axis.second);
     // Significant regions and their complement within the axis range.
     double cursor = d.axis.first;
     bool anySignificant = false, anyNotSignificant = false;
@@ -168,7 +159,31 @@ void EffectPlot::buildContinuous() {
         spanRect(plot_, cursor, d.axis.second, estuary::notSignificantBrush());
         anyNotSignificant = true;
     }
+    return {anySignificant, anyNotSignificant};
+}
 
+void EffectPlot::shadeBeyond(double a, double b) {
+    if (b <= a) return;
+    const QFont note = smallFont(font(), 0.85);
+    QColor noteColour = estuary::ink;
+    noteColour.setAlphaF(0.65f);
+    spanRect(plot_, a, b, QBrush(estuary::beyond));
+    auto* t = new QCPItemText(plot_);
+    t->position->setTypeX(QCPItemPosition::ptPlotCoords);
+    t->position->setTypeY(QCPItemPosition::ptAxisRectRatio);
+    t->position->setCoords(0.5 * (a + b), 1.0);
+    t->setPositionAlignment(Qt::AlignBottom | Qt::AlignHCenter);
+    t->setText(tr("beyond\nthe data"));
+    t->setTextAlignment(Qt::AlignCenter);
+    t->setFont(note);
+    t->setColor(noteColour);
+    t->setPadding(QMargins(2, 2, 2, 12));
+    t->setSelectable(false);
+}
+
+// The band and the effect curve, the legend, and the zero line.
+void EffectPlot::drawCurve(bool anySignificant, bool anyNotSignificant) {
+    const EffectPlotData& d = data_;
     plot_->setCurrentLayer(QStringLiteral("main"));
     // Legend: effect, band, region, not significant, beyond the data (the band's graphs stay out of it).
     addBand(plot_, d.curve, estuary::bandBrush(0, greyscale_));
@@ -191,7 +206,12 @@ void EffectPlot::buildContinuous() {
     zero->point2->setCoords(1, 0);
     zero->setPen(zeroPen);
     zero->setSelectable(false);
+}
 
+// The Johnson–Neyman boundaries inside the axis, as labelled dashed lines.
+void EffectPlot::drawBoundaries() {
+    const EffectPlotData& d = data_;
+    const QFont note = smallFont(font(), 0.85);
     QPen boundaryPen(estuary::ink);
     boundaryPen.setWidthF(1.2);
     boundaryPen.setStyle(Qt::DashLine);
@@ -219,26 +239,27 @@ void EffectPlot::buildContinuous() {
         t->setSelectable(false);
         drawnBoundaries_.push_back(b);
     }
+}
 
-    // Rug: ticks along the bottom edge (on the hidden right axis, range 0..1).
-    if (!d.rug.empty()) {
-        QCPGraph* rug = plot_->addGraph(plot_->xAxis, plot_->yAxis2);
-        rug->removeFromLegend();
-        rug->setLineStyle(QCPGraph::lsNone);
-        QPainterPath tick;
-        tick.moveTo(0, 0);
-        tick.lineTo(0, -7);
-        QColor c = estuary::ink;
-        c.setAlphaF(d.rug.size() > 500 ? 0.35f : 0.6f);
-        QPen pen(c);
-        pen.setWidthF(1.0);
-        rug->setScatterStyle(QCPScatterStyle(tick, pen, Qt::NoBrush, 6));
-        rug->setAntialiasedScatters(false);
-        QVector<double> k(static_cast<qsizetype>(d.rug.size())), v(static_cast<qsizetype>(d.rug.size()), 0.0);
-        std::copy(d.rug.begin(), d.rug.end(), k.begin());
-        rug->setData(k, v, true);
-        rug->setSelectable(QCP::stNone);
-    }
+// Rug: ticks along the bottom edge (on the hidden right axis, range 0..1).
+void EffectPlot::drawRug() {
+    const EffectPlotData& d = data_;
+    QCPGraph* rug = plot_->addGraph(plot_->xAxis, plot_->yAxis2);
+    rug->removeFromLegend();
+    rug->setLineStyle(QCPGraph::lsNone);
+    QPainterPath tick;
+    tick.moveTo(0, 0);
+    tick.lineTo(0, -7);
+    QColor c = estuary::ink;
+    c.setAlphaF(d.rug.size() > 500 ? 0.35f : 0.6f);
+    QPen pen(c);
+    pen.setWidthF(1.0);
+    rug->setScatterStyle(QCPScatterStyle(tick, pen, Qt::NoBrush, 6));
+    rug->setAntialiasedScatters(false);
+    QVector<double> k(static_cast<qsizetype>(d.rug.size())), v(static_cast<qsizetype>(d.rug.size()), 0.0);
+    std::copy(d.rug.begin(), d.rug.end(), k.begin());
+    rug->setData(k, v, true);
+    rug->setSelectable(QCP::stNone);
 }
 
 void EffectPlot::buildGroups() {

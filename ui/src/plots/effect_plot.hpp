@@ -87,7 +87,14 @@ protected:
 
 private:
     void rebuild();
+    // The continuous moderator: axes, shaded regions, band and curve,
+    // boundaries, rug.
     void buildContinuous();
+    std::pair<bool, bool> drawRegions();
+    void shadeBeyond(double a, double b);
+    void drawCurve(bool anySignificant, bool anyNotSignificant);
+    void drawBoundaries();
+    void drawRug();
     void buildGroups();
     void buildMoving();
     double snap(double m) const;

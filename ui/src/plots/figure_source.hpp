@@ -9,6 +9,10 @@ class QCustomPlot;
 
 namespace moderato::ui {
 
+// The object name of a caption over one panel of a plot (a QCPTextElement
+// like the plot's title, but exported at the text size, not the title's).
+inline constexpr const char* kPanelCaptionName = "panel-caption";
+
 class FigureSource {
 public:
     virtual ~FigureSource() = default;

@@ -151,7 +151,21 @@ void LinesPlot::rebuild() {
     plot_->xAxis->setRange(d.xRange.first, d.xRange.second);
     setAxisTitle(plot_->xAxis, d.focalTitle);
     setAxisTitle(plot_->yAxis, d.outcomeTitle);
+    const auto [ylo, yhi] = fitValueRange();
 
+    plot_->setCurrentLayer(QStringLiteral("main"));
+    drawPoints(ylo, yhi);
+    drawLines();
+    drawCrossings();
+    if (!d.differName.isEmpty()) drawDifferStrips();
+    drawHighlightLayer();
+    fitLegend(plot_);
+    plot_->replot();
+}
+
+// The value axis covers every band, the slider's line at both ends, and the points.
+std::pair<double, double> LinesPlot::fitValueRange() {
+    const LinesPlotData& d = data_;
     double ylo = std::numeric_limits<double>::infinity(), yhi = -ylo;
     auto take = [&](double v) {
         if (std::isfinite(v)) {
@@ -178,9 +192,11 @@ void LinesPlot::rebuild() {
     ylo -= pad;
     yhi += pad;
     plot_->yAxis->setRange(ylo, yhi);
+    return {ylo, yhi};
+}
 
-    plot_->setCurrentLayer(QStringLiteral("main"));
-    drawPoints(ylo, yhi);
+void LinesPlot::drawLines() {
+    const LinesPlotData& d = data_;
     // Bands first (under every line), then the lines.
     for (const auto& l : d.lines) addBand(plot_, l.points, estuary::bandBrush(l.series, greyscale_));
     for (const auto& l : d.lines) {
@@ -196,7 +212,10 @@ void LinesPlot::rebuild() {
         g->setSelectable(QCP::stNone);
         setLineData(g, l.points);
     }
+}
 
+void LinesPlot::drawCrossings() {
+    const LinesPlotData& d = data_;
     // Crossover points inside the data: hollow diamond, interval as a bracket.
     for (const auto& c : d.crossings) {
         QPen ink(estuary::ink);
@@ -227,40 +246,44 @@ void LinesPlot::rebuild() {
         else diamond->removeFromLegend();
         ++crossoverMarkers_;
     }
+}
 
+void LinesPlot::drawDifferStrips() {
+    const LinesPlotData& d = data_;
     // Where the groups differ: a thin strip along the bottom edge, under the grid.
-    if (!d.differName.isEmpty()) {
-        plot_->setCurrentLayer(kShadingLayer);
-        const QBrush brush = estuary::significanceBrush(greyscale_);
-        // A fine outline in the same colour, so the thin strip shows without shouting.
-        QPen edge(estuary::withAlpha(greyscale_ ? estuary::toGrey(estuary::series(0)) : estuary::series(0), 0.55));
-        edge.setWidthF(1.0);
-        for (const auto& [a, b] : d.differ) {
-            const double from = std::max(a, d.xRange.first), to = std::min(b, d.xRange.second);
-            if (!(to > from)) continue;
-            auto* strip = new QCPItemRect(plot_);
-            strip->bottomRight->setTypeX(QCPItemPosition::ptPlotCoords);
-            strip->bottomRight->setTypeY(QCPItemPosition::ptAxisRectRatio);
-            strip->bottomRight->setCoords(to, 1.0);
-            strip->topLeft->setTypeX(QCPItemPosition::ptPlotCoords);
-            strip->topLeft->setParentAnchorY(strip->bottomRight);  // pixels above the bottom edge
-            strip->topLeft->setTypeY(QCPItemPosition::ptAbsolute);
-            strip->topLeft->setCoords(from, -kDifferStripHeight);
-            strip->setBrush(brush);
-            strip->setPen(edge);
-            strip->setSelectable(false);
-            differStrips_.emplace_back(from, to);
-        }
-        plot_->setCurrentLayer(QStringLiteral("main"));
-        if (!differStrips_.empty()) {
-            auto* swatch = new QCPBars(plot_->xAxis, plot_->yAxis);
-            swatch->setName(d.differName);
-            swatch->setBrush(brush);
-            swatch->setPen(edge);
-            swatch->setSelectable(QCP::stNone);
-        }
+    plot_->setCurrentLayer(kShadingLayer);
+    const QBrush brush = estuary::significanceBrush(greyscale_);
+    // A fine outline in the same colour, so the thin strip shows without shouting.
+    QPen edge(estuary::withAlpha(greyscale_ ? estuary::toGrey(estuary::series(0)) : estuary::series(0), 0.55));
+    edge.setWidthF(1.0);
+    for (const auto& [a, b] : d.differ) {
+        const double from = std::max(a, d.xRange.first), to = std::min(b, d.xRange.second);
+        if (!(to > from)) continue;
+        auto* strip = new QCPItemRect(plot_);
+        strip->bottomRight->setTypeX(QCPItemPosition::ptPlotCoords);
+        strip->bottomRight->setTypeY(QCPItemPosition::ptAxisRectRatio);
+        strip->bottomRight->setCoords(to, 1.0);
+        strip->topLeft->setTypeX(QCPItemPosition::ptPlotCoords);
+        strip->topLeft->setParentAnchorY(strip->bottomRight);  // pixels above the bottom edge
+        strip->topLeft->setTypeY(QCPItemPosition::ptAbsolute);
+        strip->topLeft->setCoords(from, -kDifferStripHeight);
+        strip->setBrush(brush);
+        strip->setPen(edge);
+        strip->setSelectable(false);
+        differStrips_.emplace_back(from, to);
     }
+    plot_->setCurrentLayer(QStringLiteral("main"));
+    if (!differStrips_.empty()) {
+        auto* swatch = new QCPBars(plot_->xAxis, plot_->yAxis);
+        swatch->setName(d.differName);
+        swatch->setBrush(brush);
+        swatch->setPen(edge);
+        swatch->setSelectable(QCP::stNone);
+    }
+}
 
+void LinesPlot::drawHighlightLayer() {
+    const LinesPlotData& d = data_;
     // The slider's line, on the moving layer.
     plot_->setCurrentLayer(kMovingLayer);
     highlightBand_ = addBand(plot_, {}, QBrush(estuary::withAlpha(estuary::ink, 0.10)));
@@ -270,8 +293,6 @@ void LinesPlot::rebuild() {
     else highlightLine_->setName(d.highlightName);
     plot_->setCurrentLayer(QStringLiteral("main"));
     setHighlight(highlight_, highlightSeries_, false);
-    fitLegend(plot_);
-    plot_->replot();
 }
 
 void LinesPlot::setHighlight(const std::vector<CurvePoint>& points, int series, bool replot) {

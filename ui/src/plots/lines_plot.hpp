@@ -90,7 +90,14 @@ protected:
     void resizeEvent(QResizeEvent* event) override;
 
 private:
+    // Draws everything again, in this order: points, bands and lines, the
+    // crossings, where the lines differ, and the slider's line on its layer.
     void rebuild();
+    std::pair<double, double> fitValueRange();
+    void drawLines();
+    void drawCrossings();
+    void drawDifferStrips();
+    void drawHighlightLayer();
     void drawPoints(double ylo, double yhi);
 
     QCustomPlot* plot_;

@@ -12,11 +12,19 @@ void stylePlot(QCustomPlot* plot, const QFont& font) {
     plot->setMinimumSize(240, 160);
     plot->setBackground(Qt::white);
     plot->setAntialiasedElements(QCP::aePlottables | QCP::aeItems | QCP::aeGrid);
+    styleAxisRect(plot->axisRect(), font);
+    plot->legend->setFont(font);
+    plot->legend->setTextColor(estuary::ink);
+    plot->legend->setBorderPen(QPen(estuary::grid));
+    plot->legend->setBrush(QBrush(QColor(255, 255, 255, 230)));
+}
+
+void styleAxisRect(QCPAxisRect* rect, const QFont& font) {
     QPen axisPen(estuary::ink);
     axisPen.setWidthF(1.0);
     QPen gridPen(estuary::grid);
     gridPen.setWidthF(0.8);
-    for (QCPAxis* axis : plot->axisRect()->axes()) {
+    for (QCPAxis* axis : rect->axes()) {
         axis->setBasePen(axisPen);
         axis->setTickPen(axisPen);
         axis->setSubTickPen(axisPen);
@@ -30,10 +38,6 @@ void stylePlot(QCustomPlot* plot, const QFont& font) {
         axis->grid()->setZeroLinePen(Qt::NoPen);
         axis->grid()->setSubGridVisible(false);
     }
-    plot->legend->setFont(font);
-    plot->legend->setTextColor(estuary::ink);
-    plot->legend->setBorderPen(QPen(estuary::grid));
-    plot->legend->setBrush(QBrush(QColor(255, 255, 255, 230)));
 }
 
 void setAxisTitle(QCPAxis* axis, const QString& title) { axis->setLabel(title); }

@@ -7,11 +7,15 @@
 
 class QCustomPlot;
 class QCPAxis;
+class QCPAxisRect;
 
 namespace moderato::ui {
 
 // Applies the house look to the plot's axes, grid, legend and background.
 void stylePlot(QCustomPlot* plot, const QFont& font = QFont());
+// The house look for the axes and grid of one axis rect (stylePlot does the
+// plot's own; a plot with more panels styles each further rect).
+void styleAxisRect(QCPAxisRect* rect, const QFont& font);
 // Axis title with the variable name (and unit when known: "discount_pct (%)").
 void setAxisTitle(QCPAxis* axis, const QString& title);
 

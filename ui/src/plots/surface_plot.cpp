@@ -160,7 +160,24 @@ void SurfacePlot::redraw() {
     const int nx = static_cast<int>(g.x_values.size()), nz = static_cast<int>(g.z_values.size());
     setAxisTitle(plot_->xAxis, QString::fromStdString(g.x));
     setAxisTitle(plot_->yAxis, QString::fromStdString(g.z));
+    const BeyondQuadrants q = drawMap(g);
+    // The observed rows, light dots (thinned when dense).
+    if (!pointsX_.empty()) drawObservedRows();
+    // Edge of the data.
+    if (region_.x.size() >= 2) drawEdge();
+    markBeyond(q, nx * nz);
+    plot_->legend->setVisible(region_.x.size() >= 2);
+    // Cells are centred on the grid's end values: show them whole.
+    const double hx = (g.x_values.back() - g.x_values.front()) / (2.0 * (nx - 1));
+    const double hz = (g.z_values.back() - g.z_values.front()) / (2.0 * (nz - 1));
+    plot_->xAxis->setRange(g.x_values.front() - hx, g.x_values.back() + hx);
+    plot_->yAxis->setRange(g.z_values.front() - hz, g.z_values.back() + hz);
+    plot_->replot();
+}
 
+// The colour map of the predicted values; cells beyond the data faded.
+SurfacePlot::BeyondQuadrants SurfacePlot::drawMap(const SurfaceGrid& g) {
+    const int nx = static_cast<int>(g.x_values.size()), nz = static_cast<int>(g.z_values.size());
     map_ = new QCPColorMap(plot_->xAxis, plot_->yAxis);
     map_->setName(tr("predicted"));
     map_->removeFromLegend();
@@ -169,8 +186,7 @@ void SurfacePlot::redraw() {
                            QCPRange(g.z_values.front(), g.z_values.back()));
     const bool haveRegion = region_.x.size() >= 3;
     // Where the beyond cells gather most (for the label): per quadrant sums.
-    double qx[4] = {0, 0, 0, 0}, qz[4] = {0, 0, 0, 0};
-    int qn[4] = {0, 0, 0, 0};
+    BeyondQuadrants q;
     for (int i = 0; i < nx; ++i)
         for (int k = 0; k < nz; ++k) {
             const double x = g.x_values[static_cast<std::size_t>(i)], z = g.z_values[static_cast<std::size_t>(k)];
@@ -178,10 +194,10 @@ void SurfacePlot::redraw() {
             if (haveRegion && !region_.contains(x, z)) {
                 map_->data()->setAlpha(i, k, kBeyondAlpha);
                 ++beyondCells_;
-                const int q = (2 * i >= nx ? 1 : 0) + (2 * k >= nz ? 2 : 0);
-                qx[q] += x;
-                qz[q] += z;
-                ++qn[q];
+                const int at = (2 * i >= nx ? 1 : 0) + (2 * k >= nz ? 2 : 0);
+                q.x[at] += x;
+                q.z[at] += z;
+                ++q.n[at];
             }
         }
     // The colour scale hands its gradient to the map: set the ramp after joining them.
@@ -192,42 +208,44 @@ void SurfacePlot::redraw() {
     map_->rescaleDataRange(true);
     scale_->axis()->setLabel(probability_ ? tr("P(%1 = 1)").arg(outcome_)
                                           : (logistic_ ? tr("log-odds of %1 = 1").arg(outcome_) : outcome_));
+    return q;
+}
 
-    // The observed rows, light dots (thinned when dense).
-    if (!pointsX_.empty()) {
-        auto* pts = new QCPGraph(plot_->xAxis, plot_->yAxis);
-        pts->setName(tr("observed rows"));
-        pts->setLineStyle(QCPGraph::lsNone);
-        // ink dots with a light ring: visible on both ends of the ramp
-        const bool many = pointsX_.size() > 2000;
-        pts->setScatterStyle(QCPScatterStyle(
-            QCPScatterStyle::ssCircle, QPen(QColor(255, 255, 255, many ? 90 : 150), 0.8),
-            QBrush(estuary::withAlpha(greyscale_ ? estuary::toGrey(estuary::ink) : estuary::ink, many ? 0.3 : 0.5)),
-            4));
-        pts->removeFromLegend();
-        QVector<double> xs, zs;
-        for (std::size_t i : thinScatter(pointsX_, pointsZ_)) {
-            xs << pointsX_[i];
-            zs << pointsZ_[i];
-        }
-        pts->setData(xs, zs);
+void SurfacePlot::drawObservedRows() {
+    auto* pts = new QCPGraph(plot_->xAxis, plot_->yAxis);
+    pts->setName(tr("observed rows"));
+    pts->setLineStyle(QCPGraph::lsNone);
+    // ink dots with a light ring: visible on both ends of the ramp
+    const bool many = pointsX_.size() > 2000;
+    pts->setScatterStyle(QCPScatterStyle(
+        QCPScatterStyle::ssCircle, QPen(QColor(255, 255, 255, many ? 90 : 150), 0.8),
+        QBrush(estuary::withAlpha(greyscale_ ? estuary::toGrey(estuary::ink) : estuary::ink, many ? 0.3 : 0.5)), 4));
+    pts->removeFromLegend();
+    QVector<double> xs, zs;
+    for (std::size_t i : thinScatter(pointsX_, pointsZ_)) {
+        xs << pointsX_[i];
+        zs << pointsZ_[i];
     }
-    // Edge of the data.
-    if (region_.x.size() >= 2) {
-        auto* edge = new QCPCurve(plot_->xAxis, plot_->yAxis);
-        edge->setName(tr("edge of the observed data"));
-        QPen pen(greyscale_ ? estuary::toGrey(estuary::ink) : estuary::ink);
-        pen.setWidthF(1.4);
-        edge->setPen(pen);
-        QVector<double> t, xs, zs;
-        for (std::size_t i = 0; i <= region_.x.size(); ++i) {
-            const std::size_t j = i % region_.x.size();
-            t << static_cast<double>(i);
-            xs << region_.x[j];
-            zs << region_.z[j];
-        }
-        edge->setData(t, xs, zs, true);
+    pts->setData(xs, zs);
+}
+
+void SurfacePlot::drawEdge() {
+    auto* edge = new QCPCurve(plot_->xAxis, plot_->yAxis);
+    edge->setName(tr("edge of the observed data"));
+    QPen pen(greyscale_ ? estuary::toGrey(estuary::ink) : estuary::ink);
+    pen.setWidthF(1.4);
+    edge->setPen(pen);
+    QVector<double> t, xs, zs;
+    for (std::size_t i = 0; i <= region_.x.size(); ++i) {
+        const std::size_t j = i % region_.x.size();
+        t << static_cast<double>(i);
+        xs << region_.x[j];
+        zs << region_.z[j];
     }
+    edge->setData(t, xs, zs, true);
+}
+
+void SurfacePlot::markBeyond(const BeyondQuadrants& q, int cells) {
     // "beyond the data" in the legend (a filled key); also written inside
     // the plot where the beyond area is large enough to hold it.
     if (beyondCells_ > 0) {
@@ -238,12 +256,12 @@ void SurfacePlot::redraw() {
         key->setSelectable(QCP::stNone);
     }
     int best = -1;
-    for (int q = 0; q < 4; ++q)
-        if (qn[q] > 0 && (best < 0 || qn[q] > qn[best])) best = q;
-    if (best >= 0 && qn[best] >= nx * nz / 10) {
+    for (int k = 0; k < 4; ++k)
+        if (q.n[k] > 0 && (best < 0 || q.n[k] > q.n[best])) best = k;
+    if (best >= 0 && q.n[best] >= cells / 10) {
         auto* label = new QCPItemText(plot_);
         label->position->setType(QCPItemPosition::ptPlotCoords);
-        label->position->setCoords(qx[best] / qn[best], qz[best] / qn[best]);
+        label->position->setCoords(q.x[best] / q.n[best], q.z[best] / q.n[best]);
         label->setPositionAlignment(Qt::AlignCenter);
         label->setText(tr("beyond the data"));
         QFont f = font();
@@ -254,13 +272,6 @@ void SurfacePlot::redraw() {
         label->setBrush(QBrush(estuary::withAlpha(estuary::beyond, 0.85)));
         label->setClipToAxisRect(true);
     }
-    plot_->legend->setVisible(region_.x.size() >= 2);
-    // Cells are centred on the grid's end values: show them whole.
-    const double hx = (g.x_values.back() - g.x_values.front()) / (2.0 * (nx - 1));
-    const double hz = (g.z_values.back() - g.z_values.front()) / (2.0 * (nz - 1));
-    plot_->xAxis->setRange(g.x_values.front() - hx, g.x_values.back() + hx);
-    plot_->yAxis->setRange(g.z_values.front() - hz, g.z_values.back() + hz);
-    plot_->replot();
 }
 
 }  // namespace moderato::ui

@@ -46,7 +46,19 @@ public:
     static QCPColorGradient ramp(bool greyscale);
 
 private:
+    // Where the cells beyond the data gather, by quadrant of the grid (sums
+    // of their coordinates and counts), for the label "beyond the data".
+    struct BeyondQuadrants {
+        double x[4] = {0, 0, 0, 0}, z[4] = {0, 0, 0, 0};
+        int n[4] = {0, 0, 0, 0};
+    };
+    // Draws the map, the observed rows, the edge of the data and the
+    // "beyond the data" key and label, in that order.
     void redraw();
+    BeyondQuadrants drawMap(const SurfaceGrid& g);
+    void drawObservedRows();
+    void drawEdge();
+    void markBeyond(const BeyondQuadrants& q, int cells);
 
     QCustomPlot* plot_;
     QCPTextElement* title_ = nullptr;

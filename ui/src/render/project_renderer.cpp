@@ -77,12 +77,9 @@ FigureSource* keptFigure(AnalysisPage& page, const AnalysisRun& run, FigurePlot 
     return nullptr;
 }
 
-}  // namespace
-
-RenderReport renderProject(const RenderRequest& request) {
-    RenderReport report;
-    LoadedProject loaded = load_project(request.projectPath.toStdString());
-    // Data that changed since the project was saved: say so, and stop unless told to go on.
+// The project's data files (never written by the renderer). Data that
+// changed since the project was saved: say so, and stop unless told to go on.
+std::set<QString> checkDataFiles(const LoadedProject& loaded, const RenderRequest& request, RenderReport& report) {
     QStringList changed;
     std::set<QString> dataFiles;
     for (const auto& d : loaded.project.datasets) {
@@ -102,6 +99,16 @@ RenderReport renderProject(const RenderRequest& request) {
     for (const QString& c : changed) report.warnings << QStringLiteral("rendering from changed data: ") + c;
     for (const auto& n : loaded.project.migration_notes) report.warnings << QString::fromStdString(n);
 
+    return dataFiles;
+}
+
+}  // namespace
+
+RenderReport renderProject(const RenderRequest& request) {
+    RenderReport report;
+    LoadedProject loaded = load_project(request.projectPath.toStdString());
+    const std::set<QString> dataFiles = checkDataFiles(loaded, request, report);
+
     const QString root = QFileInfo(request.outDir).absoluteFilePath();
     if (!QDir().mkpath(root)) throw InputError(request.outDir.toStdString() + ": cannot make the output folder");
     Writer out(root, dataFiles, report);
@@ -109,7 +116,9 @@ RenderReport renderProject(const RenderRequest& request) {
     ProjectDocument doc;
     doc.adopt(std::move(loaded));
     AnalysisRunner runner(&doc);
-    runner.setBackgroundThreshold(std::numeric_limits<double>::infinity());  // fit here, in order
+    // Every fit on this thread, in order: showAnalysis() has the run (or its
+    // error) ready when it returns, so nothing ever waits for a worker here.
+    runner.setBackgroundThreshold(std::numeric_limits<double>::infinity());
     AnalysisPage page(&doc, &runner);
     page.resize(1360, 860);
 
@@ -118,7 +127,6 @@ RenderReport renderProject(const RenderRequest& request) {
     for (const Analysis& a : project.analyses) {
         const QString id = QString::fromStdString(a.id);
         page.showAnalysis(id);
-        runner.waitForIdle();
         const auto run = runner.result(id);
         if (!run) {
             report.failures << QStringLiteral("%1: %2").arg(id, runner.error(id));

@@ -1,5 +1,6 @@
 #include "sections/checks_section.hpp"
 
+#include <QFileInfo>
 #include <QGridLayout>
 #include <QHBoxLayout>
 #include <QHeaderView>
@@ -137,7 +138,8 @@ void ChecksSection::ensureComputed() {
     } else {
         problem = error_.isEmpty() ? tr("No fitted model yet.") : error_;
     }
-    for (DiagnosticPlot* p : {residuals_, quantiles_, influence_}) p->setDiagnostics(diag_);
+    const RowNumbers rows = diag_ ? rowNumbers(*run_) : RowNumbers{};
+    for (DiagnosticPlot* p : {residuals_, quantiles_, influence_}) p->setDiagnostics(diag_, rows);
     model_->setDiagnostics(diag_, run_ ? run_->table : nullptr);
     list_->resizeColumnsToContents();
     show_->setEnabled(false);
@@ -146,31 +148,72 @@ void ChecksSection::ensureComputed() {
         rules_->clear();
         return;
     }
-    const Diagnostics& d = *diag_;
+    note_->setText(noteText(*diag_));
+    rules_->setText(rulesText(*diag_));
+}
+
+RowNumbers ChecksSection::rowNumbers(const AnalysisRun& run) const {
+    // As the flagged-rows list names them: the file line when the table
+    // knows it, else the row of the dataset (1-based).
+    RowNumbers r;
+    const Table* table = run.table.get();
+    const bool lines = table && !table->row_lines.empty();
+    const std::size_t n = static_cast<std::size_t>(run.design.X.rows());
+    r.number.resize(n);
+    for (std::size_t i = 0; i < n; ++i) {
+        const std::size_t row = run.design.rows.empty() ? i : run.design.rows[i];
+        r.number[i] = lines && row < table->row_lines.size() ? static_cast<double>(table->row_lines[row])
+                                                             : static_cast<double>(row + 1);
+    }
+    const QString file = table ? QFileInfo(QString::fromStdString(table->source)).fileName() : QString();
+    r.word = lines ? tr("line") : tr("row");
+    r.axisTitle = lines && !file.isEmpty() ? tr("line of %1").arg(file) : tr("row of the dataset");
+    return r;
+}
+
+QString ChecksSection::noteText(const Diagnostics& d) const {
     QStringList note;
+    const QString bins =
+        tr("The squares are the mean residual in bins of the fitted value, each with its 95% interval: where "
+           "an interval misses the zero line, the residuals there average away from zero and the model misses a "
+           "pattern (with many bins, about one interval in twenty misses zero by chance alone).");
     if (d.family == Family::Logistic) {
-        note << tr(
-            "Logistic fit: Pearson residuals against the fitted probability (the line is the mean residual "
-            "in bins of the fitted probability; it should stay near zero); the quantile plot uses "
-            "standardised deviance residuals, which for a 0/1 outcome need not follow the line closely — "
-            "look for isolated points; leverage uses the fit's working weights p(1 − p).");
+        note << tr("Logistic fit: Pearson residuals against the fitted probability.") << bins
+             << tr("The quantile plot uses standardised deviance residuals, which for a 0/1 outcome need not "
+                   "follow the line closely: look for isolated points. Leverage uses the fit's working weights "
+                   "p(1 − p).");
     } else {
-        note << (d.weighted ? tr("Weighted fit: residuals are scaled by √weight.")
-                            : tr("Residuals against fitted values: look for curvature or a funnel shape."))
+        note << (d.weighted ? tr("Weighted fit: residuals are scaled by the square root of the weight.")
+                            : tr("Residuals against fitted values: a funnel shape means the spread changes."))
+             << bins
              << tr("Quantile plot: externally studentised residuals against normal quantiles; points near the "
                    "line y = x suggest roughly normal errors.");
     }
-    note << tr("Cook's distance contours at 0.5 and 1.");
+    note << tr(
+        "Influence: Cook's distance and leverage of each row, in the order of the data; the dashed line "
+        "is the rule that flags rows, and the largest rows above it are labelled.");
     for (const auto& n : d.notes) note << QString::fromStdString(n);
-    note_->setText(note.join(QLatin1Char(' ')));
-    QString rules = tr("Rules of thumb (common practice, not tests): %1 · %2 · %3.")
-                        .arg(QString::fromStdString(d.residual_rule), QString::fromStdString(d.leverage_rule),
-                             QString::fromStdString(d.cooks_rule));
-    rules += QLatin1Char(' ') +
-             tr("%1 of %2 rows flagged, most influential first.")
-                 .arg(countText(static_cast<double>(d.flagged.size())), countText(static_cast<double>(d.n)));
+    return note.join(QLatin1Char(' '));
+}
+
+QString ChecksSection::rulesText(const Diagnostics& d) const {
+    // The rules core applies (diagnostics.hpp, DiagnosticRules), in words.
+    const QString n = countText(static_cast<double>(d.n));
+    const QString residual =
+        d.family == Family::Logistic ? tr("standardised Pearson residual") : tr("externally studentised residual");
+    auto multiple = [](double v) { return v == std::round(v) ? countText(v) : numberText(v); };
+    QString rules =
+        tr("Rows are flagged by rules of thumb (common practice, not tests), with %1 rows in the fit and %2 "
+           "estimated coefficients: %3 beyond ±%4 · leverage above %5 × %2 / %1 = %6 · Cook's distance above "
+           "%7 / %1 = %8.")
+            .arg(n, countText(d.p), residual, multiple(d.rules.residual_limit), multiple(d.rules.leverage_multiple),
+                 numberText(d.leverage_threshold, 3), multiple(d.rules.cooks_numerator),
+                 numberText(d.cooks_threshold, 3));
+    rules +=
+        QLatin1Char(' ') +
+        tr("%1 of %2 rows flagged, most influential first.").arg(countText(static_cast<double>(d.flagged.size())), n);
     if (d.n > 20000) rules += QLatin1Char(' ') + tr("Dense plots are thinned; flagged rows are always drawn.");
-    rules_->setText(rules);
+    return rules;
 }
 
 void ChecksSection::selectionChanged() {

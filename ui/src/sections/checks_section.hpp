@@ -1,8 +1,10 @@
-// The Checks section: residuals against fitted values, the normal quantile
-// plot and leverage with Cook's distance (each exportable), beside the list
-// of rows that common rules of thumb flag, with their file lines. Selected
-// rows can be shown in the dataset grid. Core computes every number
-// (moderato/diagnostics.hpp); this section draws them.
+// The Checks section: residuals against fitted values with binned means,
+// the normal quantile plot, and the influence of each row (Cook's distance
+// and leverage in the order of the data, with the rules that flag rows),
+// each exportable, beside the list of rows that common rules of thumb flag,
+// with their file lines. Selected rows can be shown in the dataset grid.
+// Core computes every number (moderato/estimation/diagnostics.hpp); this
+// section draws them and says in words what they show.
 #pragma once
 
 #include <cstddef>
@@ -20,6 +22,7 @@ namespace moderato::ui {
 
 class DiagnosticPlot;
 class FlaggedRowsModel;
+struct RowNumbers;
 
 class ChecksSection : public AnalysisSection {
     Q_OBJECT
@@ -51,6 +54,11 @@ private:
     void selectionChanged();
     void emitSelectedRows();
     void selectObservation(std::size_t observation);
+    // How the reader finds each row of the run (file lines or dataset rows).
+    RowNumbers rowNumbers(const AnalysisRun& run) const;
+    // What the plots show, and the rules that flag rows, in words.
+    QString noteText(const Diagnostics& d) const;
+    QString rulesText(const Diagnostics& d) const;
 
     QString id_;
     std::shared_ptr<const AnalysisRun> run_;

@@ -225,7 +225,6 @@ void EstimatesSection::refresh() {
     }
     const AnalysisRun& run = *run_;
     const FitResult& main = run.fit;
-    const bool logistic = main.family == Family::Logistic;
     const bool canCentre = run.centred_fit.has_value() && a->centring == Centring::Mean;
     toggle_->setVisible(canCentre);
     const bool centred = canCentre && centred_->isChecked();
@@ -234,27 +233,38 @@ void EstimatesSection::refresh() {
     fitTableHeight();
     copy_->setEnabled(true);
 
-    // What the table is: the model, SE kind, level, reference distribution.
+    showHeader(*a, main);
+    if (canCentre) showCentres(run);
+    showFitStatistics(main);
+    showComparison(main);
+    showWarningsAndNotes(main, shown);
+}
+
+// What the table is: the model, SE kind, level, reference distribution.
+void EstimatesSection::showHeader(const Analysis& a, const FitResult& main) {
+    const bool logistic = main.family == Family::Logistic;
     QString se = seLabel(main.se, main.family);
     if (main.se == SeKind::Cluster) se += tr(" (%1 clusters)").arg(main.n_clusters);
     const QString dist = logistic ? tr("z (standard normal)") : tr("t on %1 df").arg(main.df_inference);
     header_->setText(tr("<b>Coefficients</b> of %1 &nbsp;·&nbsp; %2 model%3 &nbsp;·&nbsp; %4 standard errors "
                         "&nbsp;·&nbsp; %5 confidence intervals &nbsp;·&nbsp; %6")
-                         .arg(h(a->roles.outcome), familyName(main.family), logistic ? tr(" (log-odds)") : QString(),
+                         .arg(h(a.roles.outcome), familyName(main.family), logistic ? tr(" (log-odds)") : QString(),
                               se.toHtmlEscaped(), levelPercent(main.level), dist));
+}
 
-    if (canCentre) {
-        QStringList at;
-        for (const auto& [col, centre] : run.centres)
-            at << tr("%1 at %2").arg(QString::fromStdString(col), formatNumber(centre));
-        toggleText_->setText(
-            tr("Centred: %1. Centring changes the intercept and the lower-order coefficients (each main effect "
-               "becomes the effect where the other centred columns are at their means); it does not change the "
-               "product coefficient, the fit or the conditional effects.")
-                .arg(at.join(QStringLiteral(", "))));
-    }
+void EstimatesSection::showCentres(const AnalysisRun& run) {
+    QStringList at;
+    for (const auto& [col, centre] : run.centres)
+        at << tr("%1 at %2").arg(QString::fromStdString(col), formatNumber(centre));
+    toggleText_->setText(
+        tr("Centred: %1. Centring changes the intercept and the lower-order coefficients (each main effect "
+           "becomes the effect where the other centred columns are at their means); it does not change the "
+           "product coefficient, the fit or the conditional effects.")
+            .arg(at.join(QStringLiteral(", "))));
+}
 
-    // Fit statistics.
+void EstimatesSection::showFitStatistics(const FitResult& main) {
+    const bool logistic = main.family == Family::Logistic;
     QString rows;
     rows += row(QStringLiteral("n"), main.n_excluded ? tr("%1 (%2 rows excluded)").arg(main.n).arg(main.n_excluded)
                                                      : QString::number(main.n));
@@ -283,8 +293,11 @@ void EstimatesSection::refresh() {
     rows += row(QStringLiteral("BIC"), formatNumber(main.bic, 6));
     fit_->setText(QStringLiteral("<table>%1</table>").arg(rows));
     fit_->show();
+}
 
-    // The model with and without its product terms.
+// The model with and without its product terms.
+void EstimatesSection::showComparison(const FitResult& main) {
+    const bool logistic = main.family == Family::Logistic;
     comparisonTitle_->show();
     comparison_->show();
     if (main.comparison) {
@@ -311,8 +324,10 @@ void EstimatesSection::refresh() {
         comparison_->setText(
             tr("The model has no product terms that could be estimated, so there is nothing to compare."));
     }
+}
 
-    // Warnings (always worth reading) and notes.
+// Warnings (always worth reading) and notes.
+void EstimatesSection::showWarningsAndNotes(const FitResult& main, const FitResult& shown) {
     QStringList warn;
     for (const auto& w : main.warnings) warn << QStringLiteral("\u2022 ") + h(w);
     warnings_->setText(tr("<b>Warnings</b><br>") + warn.join(QStringLiteral("<br>")));

@@ -41,7 +41,14 @@ public:
     QString tableText() const;
 
 private:
+    // Fills every part from the run: the header, the centres, the fit
+    // statistics, the comparison without the product terms, the warnings and notes.
     void refresh();
+    void showHeader(const Analysis& a, const FitResult& main);
+    void showCentres(const AnalysisRun& run);
+    void showFitStatistics(const FitResult& main);
+    void showComparison(const FitResult& main);
+    void showWarningsAndNotes(const FitResult& main, const FitResult& shown);
     void fitTableHeight();
 
     QString id_;

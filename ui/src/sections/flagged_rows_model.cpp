@@ -33,7 +33,7 @@ QString FlaggedRowsModel::rulesText(unsigned flags) {
     QStringList parts;
     if (flags & FlagResidual) parts << tr("residual");
     if (flags & FlagLeverage) parts << tr("leverage");
-    if (flags & FlagCooks) parts << tr("Cook's D");
+    if (flags & FlagCooks) parts << tr("Cook's distance");
     return parts.join(QStringLiteral(", "));
 }
 
@@ -75,13 +75,14 @@ QVariant FlaggedRowsModel::headerData(int section, Qt::Orientation orientation, 
         case Line:
             return table_ && !table_->row_lines.empty() ? tr("line") : tr("row");
         case Fitted:
-            return d_ && d_->family == Family::Logistic ? tr("fitted probability") : tr("fitted");
+            return d_ && d_->family == Family::Logistic ? tr("fitted probability") : tr("fitted value");
         case Residual:
-            return d_ && d_->family == Family::Logistic ? tr("std. Pearson residual") : tr("studentised residual");
+            return d_ && d_->family == Family::Logistic ? tr("standardised Pearson residual")
+                                                        : tr("externally studentised residual");
         case Leverage:
             return tr("leverage");
         case Cooks:
-            return tr("Cook's D");
+            return tr("Cook's distance");
         case Rules:
             return tr("rules met");
         default:

@@ -40,6 +40,24 @@ MemoSection::MemoSection(ProjectDocument* doc, ProbeSection* probe, QWidget* par
     layout->setContentsMargins(0, 4, 0, 0);
 
     auto* side = new QVBoxLayout;
+    createNotesAndSave(side);
+    createTablesAndState(side);
+    auto* sideWidget = new QWidget(this);
+    sideWidget->setLayout(side);
+    sideWidget->setFixedWidth(270);
+    layout->addWidget(sideWidget);
+
+    editor_->setObjectName(QStringLiteral("memo-editor"));
+    editor_->setAcceptRichText(true);
+    editor_->document()->setDocumentMargin(16);
+    layout->addWidget(editor_, 1);
+
+    connectSignals();
+    setEditedState(false);
+}
+
+// The notes box and the buttons that save the memo.
+void MemoSection::createNotesAndSave(QVBoxLayout* side) {
     auto* notesLabel =
         new QLabel(tr("<b>Notes</b> — your own words, printed above the findings and kept in the project"), this);
     notesLabel->setWordWrap(true);
@@ -65,6 +83,10 @@ MemoSection::MemoSection(ProjectDocument* doc, ProbeSection* probe, QWidget* par
         connect(button, &QPushButton::clicked, this, [this, kind] { saveWithDialog(kind); });
         side->addWidget(button);
     }
+}
+
+// The table format and Save Tables, then the memo's state, Restore and messages.
+void MemoSection::createTablesAndState(QVBoxLayout* side) {
     side->addSpacing(8);
     side->addWidget(new QLabel(tr("<b>Tables</b>"), this));
     tableFormat_->setObjectName(QStringLiteral("memo-table-format"));
@@ -88,16 +110,9 @@ MemoSection::MemoSection(ProjectDocument* doc, ProbeSection* probe, QWidget* par
     message_->setTextInteractionFlags(Qt::TextSelectableByMouse);
     side->addWidget(message_);
     side->addStretch(1);
-    auto* sideWidget = new QWidget(this);
-    sideWidget->setLayout(side);
-    sideWidget->setFixedWidth(270);
-    layout->addWidget(sideWidget);
+}
 
-    editor_->setObjectName(QStringLiteral("memo-editor"));
-    editor_->setAcceptRichText(true);
-    editor_->document()->setDocumentMargin(16);
-    layout->addWidget(editor_, 1);
-
+void MemoSection::connectSignals() {
     connect(editor_, &QTextEdit::textChanged, this, [this] {
         if (!loading_ && output_) setEditedState(true);
     });
@@ -121,7 +136,6 @@ MemoSection::MemoSection(ProjectDocument* doc, ProbeSection* probe, QWidget* par
         }
         later->start();
     });
-    setEditedState(false);
 }
 
 void MemoSection::showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun> run, const QString& error) {

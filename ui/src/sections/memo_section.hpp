@@ -19,6 +19,7 @@ class QLabel;
 class QPlainTextEdit;
 class QPushButton;
 class QTextEdit;
+class QVBoxLayout;
 
 namespace moderato::ui {
 
@@ -61,6 +62,11 @@ protected:
     void showEvent(QShowEvent* event) override;
 
 private:
+    // The constructor's steps: the side column (notes and saving, tables and
+    // state) beside the editor, then the connections.
+    void createNotesAndSave(QVBoxLayout* side);
+    void createTablesAndState(QVBoxLayout* side);
+    void connectSignals();
     void rebuild();
     void loadEditor();
     void notesEdited();

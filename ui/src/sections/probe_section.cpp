@@ -94,6 +94,29 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     leftLayout->setContentsMargins(0, 0, 4, 0);
     leftLayout->setSpacing(4);
 
+    leftLayout->addLayout(createControls());
+    leftLayout->addWidget(createPlots(left), 1);
+    leftLayout->addWidget(slider_);
+    held_->setVisible(false);
+    leftLayout->addWidget(held_);
+
+    QWidget* scroll = createSidePanel(split);
+    split->addWidget(left);
+    split->addWidget(scroll);
+    split->setStretchFactor(0, 1);
+    split->setStretchFactor(1, 0);
+    split->setSizes({860, 480});
+    pages_->addWidget(split);
+    pages_->addWidget(cells_);
+    pages_->setCurrentIndex(MessagePage);
+
+    connectMoves();
+    connectSettings();
+}
+
+// The row of choices above the plots: band, data points, scale, averaging,
+// where groups differ, and the Surface plot toggle.
+QHBoxLayout* ProbeSection::createControls() {
     auto* controls = new QHBoxLayout;
     controls->setSpacing(8);
     band_->setObjectName(QStringLiteral("band-choice"));
@@ -134,8 +157,11 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     surfaceToggle_->setCheckable(true);
     surfaceToggle_->setToolTip(tr("Show the predicted outcome over both predictors in place of the Lines plot"));
     controls->addWidget(surfaceToggle_);
-    leftLayout->addLayout(controls);
+    return controls;
+}
 
+// The Lines (or Surface) plot over the Effect plot, each under its title.
+QWidget* ProbeSection::createPlots(QWidget* left) {
     auto* plots = new QSplitter(Qt::Vertical, left);
     plots->setChildrenCollapsible(false);
     auto* linesBox = new QWidget(plots);
@@ -156,11 +182,11 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     plots->addWidget(effectBox);
     plots->setStretchFactor(0, 1);
     plots->setStretchFactor(1, 1);
-    leftLayout->addWidget(plots, 1);
-    leftLayout->addWidget(slider_);
-    held_->setVisible(false);
-    leftLayout->addWidget(held_);
+    return plots;
+}
 
+// The right side: readout, pinned values and the summary, scrolled.
+QWidget* ProbeSection::createSidePanel(QWidget* split) {
     auto* scroll = new QScrollArea(split);
     scroll->setWidgetResizable(true);
     scroll->setFrameShape(QFrame::NoFrame);
@@ -180,15 +206,10 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     panelLayout->addStretch(1);
     scroll->setWidget(panel);
     scroll->setMinimumWidth(320);
-    split->addWidget(left);
-    split->addWidget(scroll);
-    split->setStretchFactor(0, 1);
-    split->setStretchFactor(1, 0);
-    split->setSizes({860, 480});
-    pages_->addWidget(split);
-    pages_->addWidget(cells_);
-    pages_->setCurrentIndex(MessagePage);
+    return scroll;
+}
 
+void ProbeSection::connectMoves() {
     // Moving the moderator: every frame recomputes and redraws the moving layers.
     connect(effect_, &EffectPlot::valueDragged, this, [this](double m) { moveTo(m, true); });
     connect(effect_, &EffectPlot::dragFinished, this, [this](double m) {
@@ -204,7 +225,9 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     connect(slider_, &ModeratorSlider::presetRequested, this, &ProbeSection::applyPreset);
     connect(slider_, &ModeratorSlider::pinRequested, this, &ProbeSection::pinCurrentValue);
     connect(pinned_, &PinnedTable::removeRequested, this, &ProbeSection::removePinned);
+}
 
+void ProbeSection::connectSettings() {
     // Settings (each an undoable edit).
     connect(band_, &QComboBox::activated, this, [this](int i) {
         const bool on = band_->itemData(i).toBool();
@@ -468,8 +491,22 @@ void ProbeSection::buildPlots() {
     const bool groups = engine_.groups();
     const bool sim = simultaneousShown();
     const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
-    const QString y = q(engine_.outcome());
 
+    buildEffectPlot(sim, level);
+    LinesPlotData l = linesPlotData();
+    addCrossings(l, level);
+    // Where the two groups (or any two lines) differ: core's gap regions, clipped to the data.
+    if (differ_->isChecked() && p.crossovers.size() == 1) {
+        l.differ =
+            describeGap(p.crossovers.front().gap_regions, QString(), q(engine_.focal()), engine_.focalRange(), level)
+                .differ;
+        l.differName = groups ? tr("groups differ") : tr("lines differ");
+    }
+    lines_->setData(l);
+}
+
+void ProbeSection::buildEffectPlot(bool sim, const QString& level) {
+    const bool groups = engine_.groups();
     // Effect plot.
     EffectPlotData e;
     e.groups = groups;
@@ -493,8 +530,13 @@ void ProbeSection::buildPlots() {
         e.rug = engine_.rug(2000);
     }
     effect_->setData(e);
+}
 
-    // Lines plot.
+LinesPlotData ProbeSection::linesPlotData() {
+    const ProbeResult& p = engine_.probe();
+    const bool groups = engine_.groups();
+    const QString y = q(engine_.outcome());
+    // The lines: one per group, or per pinned (or default) moderator value.
     LinesPlotData l;
     l.focalTitle = q(engine_.focal());
     l.outcomeTitle = engine_.probability() ? tr("P(%1 = 1)").arg(y)
@@ -536,7 +578,13 @@ void ProbeSection::buildPlots() {
         l.pointsGroup = engine_.pointsGroup();
         l.pointsByGroup = groups;
     }
-    // Crossover points inside the data.
+    return l;
+}
+
+// Crossover points inside the data.
+void ProbeSection::addCrossings(LinesPlotData& l, const QString& level) {
+    const ProbeResult& p = engine_.probe();
+    const bool groups = engine_.groups();
     const auto [flo, fhi] = engine_.focalRange();
     l.crossingName = tr("lines cross (%1 interval)").arg(level);
     for (std::size_t c = 0; c < p.crossovers.size(); ++c) {
@@ -561,14 +609,6 @@ void ProbeSection::buildPlots() {
         cr.upper = x.ci_upper;
         l.crossings.push_back(cr);
     }
-    // Where the two groups (or any two lines) differ: core's gap regions, clipped to the data.
-    if (differ_->isChecked() && p.crossovers.size() == 1) {
-        l.differ =
-            describeGap(p.crossovers.front().gap_regions, QString(), q(engine_.focal()), engine_.focalRange(), level)
-                .differ;
-        l.differName = groups ? tr("groups differ") : tr("lines differ");
-    }
-    lines_->setData(l);
 }
 
 void ProbeSection::fillTable() {
@@ -606,82 +646,111 @@ void ProbeSection::fillTable() {
     pinned_->model()->setRows(std::move(rows), mod, statisticName(p.df), level);
 }
 
-void ProbeSection::fillSummary() {
-    const ProbeResult& p = engine_.probe();
+// The summary's text as HTML (for the label) and as plain lines (for copying).
+struct SummaryText {
     QStringList html, plain;
-    const QString mod = q(engine_.moderator());
-    const auto [lo, hi] = engine_.observedRange();
-    auto section = [&](const QString& title) {
+    void section(const QString& title) {
         html << QStringLiteral("<p style='margin-top:6px'><b>%1</b><br>").arg(escaped(title));
         plain << title;
-    };
-    auto line = [&](const QString& text) {
+    }
+    void line(const QString& text) {
         html << escaped(text) + QStringLiteral("<br>");
         plain << text;
-    };
-    auto end = [&] { html << QStringLiteral("</p>"); };
+    }
+    void end() { html << QStringLiteral("</p>"); }
+};
 
+void ProbeSection::fillSummary() {
+    const ProbeResult& p = engine_.probe();
+    SummaryText out;
+    summarizeInteraction(out);
+    if (!engine_.groups()) summarizeRegions(out);
+    summarizeCrossovers(out);
+    // Where the groups (or the lines) differ: the Johnson–Neyman technique on the gap between them.
+    if (!p.crossovers.empty()) summarizeGaps(out);
+    out.section(tr("Cautions"));
+    for (const auto& c : run_->cautions) out.line(QStringLiteral("• ") + q(c));
+    out.end();
+    if (!p.notes.empty()) {
+        out.section(tr("Notes"));
+        for (const auto& n : p.notes) out.line(QStringLiteral("• ") + q(n));
+        out.end();
+    }
+    summary_->setText(out.html.join(QString()));
+    summaryPlain_ = out.plain.join(QLatin1Char('\n'));
+}
+
+void ProbeSection::summarizeInteraction(SummaryText& out) {
+    const ProbeResult& p = engine_.probe();
+    const QString mod = q(engine_.moderator());
     if (p.interaction_effect) {
         // The interaction on the probability scale (Ai & Norton), which is not the product coefficient.
         const auto& ie = *p.interaction_effect;
         const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
-        section(tr("Interaction on the probability scale"));
+        out.section(tr("Interaction on the probability scale"));
         QString kind = q(ie.kind);
         if (!kind.isEmpty()) kind[0] = kind[0].toUpper();
-        line(tr("%1 of P(%2 = 1): %3 (SE %4, %5 CI %6 to %7, p %8)")
-                 .arg(kind, q(engine_.outcome()), probeNumber(ie.estimate), probeNumber(ie.std_error), level,
-                      probeNumber(ie.ci_lower), probeNumber(ie.ci_upper), probePValue(ie.p_value)));
-        line(tr("How the effect of %1 on P(%2 = 1) changes with %3, %4 (Ai & Norton). The product coefficient "
-                "on the log-odds scale%5 is not this: it does not give the size, or even the sign, of the "
-                "interaction on the probability scale.")
-                 .arg(q(engine_.focal()), q(engine_.outcome()), mod,
-                      p.averaging == "values" ? tr("at the means of the other predictors")
-                                              : tr("averaged over the observed rows"),
-                      productCoefficientText()));
-        end();
+        out.line(tr("%1 of P(%2 = 1): %3 (SE %4, %5 CI %6 to %7, p %8)")
+                     .arg(kind, q(engine_.outcome()), probeNumber(ie.estimate), probeNumber(ie.std_error), level,
+                          probeNumber(ie.ci_lower), probeNumber(ie.ci_upper), probePValue(ie.p_value)));
+        out.line(tr("How the effect of %1 on P(%2 = 1) changes with %3, %4 (Ai & Norton). The product coefficient "
+                    "on the log-odds scale%5 is not this: it does not give the size, or even the sign, of the "
+                    "interaction on the probability scale.")
+                     .arg(q(engine_.focal()), q(engine_.outcome()), mod,
+                          p.averaging == "values" ? tr("at the means of the other predictors")
+                                                  : tr("averaged over the observed rows"),
+                          productCoefficientText()));
+        out.end();
     } else if (engine_.logistic()) {
-        section(tr("Interaction on the log-odds scale"));
-        line(tr("The product coefficient%1 is the interaction on the log-odds scale only; it is not the interaction "
-                "on the probability scale. Choose the probability scale to see that (Ai & Norton).")
-                 .arg(productCoefficientText()));
-        end();
+        out.section(tr("Interaction on the log-odds scale"));
+        out.line(
+            tr("The product coefficient%1 is the interaction on the log-odds scale only; it is not the interaction "
+               "on the probability scale. Choose the probability scale to see that (Ai & Norton).")
+                .arg(productCoefficientText()));
+        out.end();
     }
+}
 
-    if (!engine_.groups()) {
-        const bool sim = simultaneousShown();
-        const SignificanceRegions* r = engine_.regions(sim);
-        section(sim ? tr("Region of significance (simultaneous band)") : tr("Region of significance (Johnson–Neyman)"));
-        if (!r) {
-            for (const auto& n : p.notes)
-                if (n.find("no region of significance") != std::string::npos) line(q(n));
-        } else {
-            if (sim)
-                line(tr("Where the whole simultaneous band excludes zero (critical value %1).")
+void ProbeSection::summarizeRegions(SummaryText& out) {
+    const ProbeResult& p = engine_.probe();
+    const QString mod = q(engine_.moderator());
+    const auto [lo, hi] = engine_.observedRange();
+    const bool sim = simultaneousShown();
+    const SignificanceRegions* r = engine_.regions(sim);
+    out.section(sim ? tr("Region of significance (simultaneous band)") : tr("Region of significance (Johnson–Neyman)"));
+    if (!r) {
+        for (const auto& n : p.notes)
+            if (n.find("no region of significance") != std::string::npos) out.line(q(n));
+    } else {
+        if (sim)
+            out.line(tr("Where the whole simultaneous band excludes zero (critical value %1).")
                          .arg(probeNumber(r->critical_value, 3)));
-            else
-                line(tr("Where the %1 pointwise interval excludes zero (critical value %2).")
+        else
+            out.line(tr("Where the %1 pointwise interval excludes zero (critical value %2).")
                          .arg(QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%'),
                               probeNumber(r->critical_value, 3)));
-            if (r->boundaries.empty()) {
-                if (r->significant.empty()) line(tr("Significant nowhere."));
-                else if (std::isinf(r->significant.front().lo) && std::isinf(r->significant.front().hi))
-                    line(tr("Significant everywhere."));
-                else line(tr("Significant over the whole range examined."));
-            }
-            for (double b : r->boundaries)
-                line(tr("Boundary at %1 = %2 — %3")
+        if (r->boundaries.empty()) {
+            if (r->significant.empty()) out.line(tr("Significant nowhere."));
+            else if (std::isinf(r->significant.front().lo) && std::isinf(r->significant.front().hi))
+                out.line(tr("Significant everywhere."));
+            else out.line(tr("Significant over the whole range examined."));
+        }
+        for (double b : r->boundaries)
+            out.line(tr("Boundary at %1 = %2 — %3")
                          .arg(mod, probeNumber(b),
                               b < lo || b > hi
                                   ? tr("beyond the data (observed %1 to %2)").arg(probeNumber(lo), probeNumber(hi))
                                   : tr("inside the observed range")));
-            QStringList regions;
-            for (const Region& g : r->significant) regions << tr("%1 to %2").arg(probeNumber(g.lo), probeNumber(g.hi));
-            if (!regions.isEmpty()) line(tr("Significant for %1 in: %2").arg(mod, regions.join(QStringLiteral("; "))));
-        }
-        end();
+        QStringList regions;
+        for (const Region& g : r->significant) regions << tr("%1 to %2").arg(probeNumber(g.lo), probeNumber(g.hi));
+        if (!regions.isEmpty()) out.line(tr("Significant for %1 in: %2").arg(mod, regions.join(QStringLiteral("; "))));
     }
+    out.end();
+}
 
-    section(tr("Crossover point"));
+void ProbeSection::summarizeCrossovers(SummaryText& out) {
+    const ProbeResult& p = engine_.probe();
+    out.section(tr("Crossover point"));
     bool any = false;
     for (const Crossover& c : p.crossovers) {
         if (!std::isfinite(c.focal_value)) continue;
@@ -694,53 +763,41 @@ void ProbeSection::fillSummary() {
                 tr("interval unbounded: below %1 and above %2").arg(probeNumber(c.ci_lower), probeNumber(c.ci_upper));
         else if (c.ci_kind == "whole line") interval = tr("the interval is the whole line");
         const auto [flo, fhi] = engine_.focalRange();
-        line(tr("%1: the lines cross at %2 = %3 (%4), %5.")
-                 .arg(q(c.groups), q(engine_.focal()), probeNumber(c.focal_value), interval,
-                      c.within_observed_range
-                          ? tr("inside the data")
-                          : tr("beyond the data (observed %1 to %2)").arg(probeNumber(flo), probeNumber(fhi))));
+        out.line(tr("%1: the lines cross at %2 = %3 (%4), %5.")
+                     .arg(q(c.groups), q(engine_.focal()), probeNumber(c.focal_value), interval,
+                          c.within_observed_range
+                              ? tr("inside the data")
+                              : tr("beyond the data (observed %1 to %2)").arg(probeNumber(flo), probeNumber(fhi))));
     }
-    if (!any) line(tr("The lines are parallel: they do not cross."));
-    end();
+    if (!any) out.line(tr("The lines are parallel: they do not cross."));
+    out.end();
+}
 
-    // Where the groups (or the lines) differ: the Johnson–Neyman technique on the gap between them.
-    if (!p.crossovers.empty()) {
-        const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
-        const QString y = q(engine_.outcome());
-        const QString predicted = engine_.logistic() ? tr("log-odds of %1").arg(y) : y;
-        const bool groups = engine_.groups();
-        section(groups ? tr("Where the groups differ") : tr("Where the lines differ"));
-        // Core lists the group pairs in order: (0,1), (0,2), ..., (1,2), ...
-        std::vector<std::pair<QString, QString>> pairs;
-        const auto& names = engine_.groupNames();
-        for (std::size_t a = 0; a < names.size(); ++a)
-            for (std::size_t b = a + 1; b < names.size(); ++b) pairs.emplace_back(q(names[a]), q(names[b]));
-        for (std::size_t k = 0; k < p.crossovers.size(); ++k) {
-            QString subject;
-            if (!groups) subject = tr("Predicted %1 at any two values of %2").arg(predicted, mod);
-            else if (p.crossovers.size() == 1 || k >= pairs.size())
-                subject = tr("The two groups' predicted %1").arg(predicted);
-            else
-                subject =
-                    tr("Predicted %1 for %2 = %3 and %2 = %4").arg(predicted, mod, pairs[k].first, pairs[k].second);
-            line(describeGap(p.crossovers[k].gap_regions, subject, q(engine_.focal()), engine_.focalRange(), level)
-                     .text);
-        }
-        if (engine_.probability())
-            line(tr("Tested on the log-odds scale: where two log-odds differ, the two probabilities differ too."));
-        end();
+void ProbeSection::summarizeGaps(SummaryText& out) {
+    const ProbeResult& p = engine_.probe();
+    const QString mod = q(engine_.moderator());
+    const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
+    const QString y = q(engine_.outcome());
+    const QString predicted = engine_.logistic() ? tr("log-odds of %1").arg(y) : y;
+    const bool groups = engine_.groups();
+    out.section(groups ? tr("Where the groups differ") : tr("Where the lines differ"));
+    // Core lists the group pairs in order: (0,1), (0,2), ..., (1,2), ...
+    std::vector<std::pair<QString, QString>> pairs;
+    const auto& names = engine_.groupNames();
+    for (std::size_t a = 0; a < names.size(); ++a)
+        for (std::size_t b = a + 1; b < names.size(); ++b) pairs.emplace_back(q(names[a]), q(names[b]));
+    for (std::size_t k = 0; k < p.crossovers.size(); ++k) {
+        QString subject;
+        if (!groups) subject = tr("Predicted %1 at any two values of %2").arg(predicted, mod);
+        else if (p.crossovers.size() == 1 || k >= pairs.size())
+            subject = tr("The two groups' predicted %1").arg(predicted);
+        else subject = tr("Predicted %1 for %2 = %3 and %2 = %4").arg(predicted, mod, pairs[k].first, pairs[k].second);
+        out.line(
+            describeGap(p.crossovers[k].gap_regions, subject, q(engine_.focal()), engine_.focalRange(), level).text);
     }
-
-    section(tr("Cautions"));
-    for (const auto& c : run_->cautions) line(QStringLiteral("• ") + q(c));
-    end();
-    if (!p.notes.empty()) {
-        section(tr("Notes"));
-        for (const auto& n : p.notes) line(QStringLiteral("• ") + q(n));
-        end();
-    }
-    summary_->setText(html.join(QString()));
-    summaryPlain_ = plain.join(QLatin1Char('\n'));
+    if (engine_.probability())
+        out.line(tr("Tested on the log-odds scale: where two log-odds differ, the two probabilities differ too."));
+    out.end();
 }
 
 void ProbeSection::moveTo(double m, bool live) {

@@ -19,6 +19,7 @@
 
 class QCheckBox;
 class QComboBox;
+class QHBoxLayout;
 class QLabel;
 class QScrollArea;
 class QSlider;
@@ -36,6 +37,8 @@ class ModeratorSlider;
 class PinnedTable;
 class ReadoutPanel;
 class SurfacePlot;
+struct LinesPlotData;
+struct SummaryText;
 
 class ProbeSection : public AnalysisSection {
     Q_OBJECT
@@ -85,11 +88,30 @@ protected:
     void changeEvent(QEvent* event) override;
 
 private:
+    // The constructor's steps: the choices above the plots, the plots, the
+    // side panel, then the connections for moving the moderator and for
+    // the settings.
+    QHBoxLayout* createControls();
+    QWidget* createPlots(QWidget* left);
+    QWidget* createSidePanel(QWidget* split);
+    void connectMoves();
+    void connectSettings();
     void rebuild();
     void showMessage(const QString& text);
+    // The Effect and Lines plots of the current probe: the effect curve (or
+    // group effects), the lines with their points, the crossings, and where
+    // the lines differ.
     void buildPlots();
+    void buildEffectPlot(bool simultaneous, const QString& level);
+    LinesPlotData linesPlotData();
+    void addCrossings(LinesPlotData& l, const QString& level);
     void fillTable();
+    // The summary under the tables, section by section (as HTML and as plain text).
     void fillSummary();
+    void summarizeInteraction(SummaryText& out);
+    void summarizeRegions(SummaryText& out);
+    void summarizeCrossovers(SummaryText& out);
+    void summarizeGaps(SummaryText& out);
     void fillReadoutContext();
     void fillHeldValue();
     // "slope_pct held at 32.5 (mean + 1 SD)"; empty without a second moderator.

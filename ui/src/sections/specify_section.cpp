@@ -77,8 +77,21 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
     auto* splitter = new QSplitter(Qt::Horizontal, this);
     outer->addWidget(splitter);
 
+    QWidget* left = createColumnList(splitter);
+    QWidget* scroll = createSettings(splitter);
+    splitter->addWidget(left);
+    splitter->addWidget(scroll);
+    splitter->setStretchFactor(0, 0);
+    splitter->setStretchFactor(1, 1);
+    splitter->setSizes({330, 700});
+
+    connectSignals();
+    refresh();
+}
+
+QWidget* SpecifySection::createColumnList(QWidget* parent) {
     // Left: the dataset's columns, draggable.
-    auto* left = new QWidget(splitter);
+    auto* left = new QWidget(parent);
     auto* leftLayout = new QVBoxLayout(left);
     leftLayout->setContentsMargins(0, 0, 6, 0);
     leftLayout->addWidget(columnsTitle_);
@@ -103,8 +116,12 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
     dragHint->setText(tr("Drag a column onto a role slot, or right-click it to choose a role."));
     leftLayout->addWidget(dragHint);
 
+    return left;
+}
+
+QWidget* SpecifySection::createSettings(QWidget* parent) {
     // Right: slots, options, equation.
-    auto* scroll = new QScrollArea(splitter);
+    auto* scroll = new QScrollArea(parent);
     scroll->setWidgetResizable(true);
     scroll->setFrameShape(QFrame::NoFrame);
     scroll->setHorizontalScrollBarPolicy(Qt::ScrollBarAlwaysOff);
@@ -114,6 +131,15 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
     r->setContentsMargins(6, 0, 6, 6);
     r->setSpacing(6);
 
+    createRoleSlots(right, r);
+    createModelOptions(right, r);
+    createMessages(r);
+    createEquation(right, r);
+    return scroll;
+}
+
+// The role slots, each reporting its drops and clears.
+void SpecifySection::createRoleSlots(QWidget* right, QVBoxLayout* r) {
     r->addWidget(sectionHeading(tr("Roles"), right));
     for (int i = 0; i < kRoleCount; ++i) {
         const Role role = static_cast<Role>(i);
@@ -131,7 +157,10 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
            "and the controls. Drag a column from one slot to another to move it; between two "
            "single slots the columns swap."));
     r->addWidget(slotHint);
+}
 
+// Family, standard errors, confidence level and centring.
+void SpecifySection::createModelOptions(QWidget* right, QVBoxLayout* r) {
     r->addSpacing(4);
     r->addWidget(sectionHeading(tr("Model"), right));
     auto* form = new QFormLayout;
@@ -166,7 +195,10 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
            "effect at the mean of the other), not the fit, the product coefficient or the "
            "conditional effects."));
     r->addWidget(centringHint_);
+}
 
+// The inline message (refused edits) and the banner of run errors.
+void SpecifySection::createMessages(QVBoxLayout* r) {
     message_->setObjectName(QStringLiteral("specify-message"));
     message_->setWordWrap(true);
     message_->setTextFormat(Qt::PlainText);
@@ -181,7 +213,10 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
     errorBanner_->setTextInteractionFlags(Qt::TextSelectableByMouse);
     errorBanner_->hide();
     r->addWidget(errorBanner_);
+}
 
+// The model as an equation, what it reads, and the rows it uses.
+void SpecifySection::createEquation(QWidget* right, QVBoxLayout* r) {
     r->addSpacing(4);
     r->addWidget(sectionHeading(tr("Equation"), right));
     equation_->setObjectName(QStringLiteral("specify-equation"));
@@ -201,13 +236,9 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
     rows_->setObjectName(QStringLiteral("specify-rows"));
     r->addWidget(rows_);
     r->addStretch(1);
+}
 
-    splitter->addWidget(left);
-    splitter->addWidget(scroll);
-    splitter->setStretchFactor(0, 0);
-    splitter->setStretchFactor(1, 1);
-    splitter->setSizes({330, 700});
-
+void SpecifySection::connectSignals() {
     connect(family_, &QComboBox::activated, this, [this](int index) {
         if (const Analysis* a = current())
             apply(setFamily(*a, doc_->table(a->dataset).get(), static_cast<Family>(family_->itemData(index).toInt())));
@@ -240,7 +271,6 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
         if (a && QString::fromStdString(a->dataset) == id) refresh();
     });
     connect(doc_, &ProjectDocument::structureChanged, this, [this] { refresh(); });
-    refresh();
 }
 
 const Analysis* SpecifySection::current() const { return id_.isEmpty() ? nullptr : doc_->analysis(id_); }

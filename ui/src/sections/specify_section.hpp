@@ -16,6 +16,7 @@ class QComboBox;
 class QDoubleSpinBox;
 class QLabel;
 class QTableView;
+class QVBoxLayout;
 
 namespace moderato::ui {
 
@@ -44,6 +45,16 @@ public:
     QLabel* rowsLabel() const { return rows_; }
 
 private:
+    // The constructor's steps: the column list (left), the settings (right:
+    // role slots, model options, messages, equation), then the connections.
+    QWidget* createColumnList(QWidget* parent);
+    QWidget* createSettings(QWidget* parent);
+    void createRoleSlots(QWidget* right, QVBoxLayout* r);
+    void createModelOptions(QWidget* right, QVBoxLayout* r);
+    void createMessages(QVBoxLayout* r);
+    void createEquation(QWidget* right, QVBoxLayout* r);
+    void connectSignals();
+
     const Analysis* current() const;
     void refresh();
     void apply(const RoleEdit& edit, const QString& mergeKey = {});

@@ -7,25 +7,22 @@
 #include <QDir>
 #include <QDragEnterEvent>
 #include <QDropEvent>
-#include <QEventLoop>
 #include <QFileDialog>
 #include <QFileInfo>
-#include <QFutureWatcher>
 #include <QLabel>
 #include <QMenuBar>
 #include <QMessageBox>
 #include <QMimeData>
-#include <QProgressDialog>
 #include <QSettings>
 #include <QSplitter>
 #include <QStackedWidget>
 #include <QStatusBar>
 #include <QTableView>
 #include <QTimer>
-#include <QtConcurrent/QtConcurrentRun>
-#include <atomic>
 
+#include "common/background_job.hpp"
 #include "common/figure_caption.hpp"
+#include "common/job_progress_dialog.hpp"
 #include "common/table_clipboard.hpp"
 #include "data/dataset_page.hpp"
 #include "data/import_dialog.hpp"
@@ -48,36 +45,6 @@ namespace moderato::ui {
 namespace {
 constexpr int kMaxRecent = 8;
 
-// Runs `work` in a worker thread while the event loop keeps the window
-// alive; shows a progress dialog with Cancel after a short delay.
-template <typename Result, typename Work>
-Result runWithProgress(QWidget* parent, const QString& label, bool interactive, Work work, bool* cancelled) {
-    std::atomic<int> permille{0};
-    std::atomic<bool> stop{false};
-    CsvProgress progress;
-    progress.callback = [&](std::size_t done, std::size_t total) {
-        permille = total ? static_cast<int>(1000.0 * static_cast<double>(done) / static_cast<double>(total)) : 0;
-        return !stop.load();
-    };
-    QFutureWatcher<Result> watcher;
-    QEventLoop loop;
-    QObject::connect(&watcher, &QFutureWatcher<Result>::finished, &loop, &QEventLoop::quit);
-    watcher.setFuture(QtConcurrent::run([&] { return work(progress); }));
-    std::unique_ptr<QProgressDialog> dialog;
-    if (interactive) {
-        dialog = std::make_unique<QProgressDialog>(label, QObject::tr("Cancel"), 0, 1000, parent);
-        dialog->setWindowModality(Qt::WindowModal);
-        dialog->setMinimumDuration(400);
-        QObject::connect(dialog.get(), &QProgressDialog::canceled, [&] { stop = true; });
-        auto* timer = new QTimer(dialog.get());
-        QObject::connect(timer, &QTimer::timeout, [&] { dialog->setValue(permille.load()); });
-        timer->start(50);
-    }
-    if (!watcher.isFinished()) loop.exec();
-    *cancelled = stop.load();
-    return watcher.result();
-}
-
 // The platform's keys for a standard action, then those of `usual` it lacks
 // (a plain X11 session binds no key to Save As and only Ctrl+Shift+Z to Redo).
 QList<QKeySequence> withFallback(QKeySequence::StandardKey key, const QList<QKeySequence>& usual) {
@@ -87,6 +54,9 @@ QList<QKeySequence> withFallback(QKeySequence::StandardKey key, const QList<QKey
     return keys;
 }
 
+}  // namespace
+
+// What a load in the worker produced; read on the UI thread once it ended.
 struct LoadOutcome {
     std::shared_ptr<LoadedProject> project;
     std::shared_ptr<const Table> table;
@@ -94,6 +64,25 @@ struct LoadOutcome {
     QString error;
     bool cancelled = false;
 };
+
+namespace {
+
+// Runs one load (`read` fills the outcome) and turns every failure into the
+// outcome's message; core's readers throw Cancelled when asked to stop.
+template <typename Read>
+void loadInto(LoadOutcome& o, Read read) {
+    try {
+        read();
+    } catch (const Cancelled&) {
+        o.cancelled = true;
+    } catch (const InputError& e) {
+        o.error = QString::fromStdString(e.what());
+    } catch (const std::bad_alloc&) {
+        o.error = MainWindow::tr("There is not enough memory to read this file.");
+    } catch (const std::exception& e) {
+        o.error = MainWindow::tr("Internal error: %1").arg(QString::fromUtf8(e.what()));
+    }
+}
 
 }  // namespace
 
@@ -107,7 +96,8 @@ MainWindow::MainWindow(QWidget* parent)
       pages_(new QStackedWidget(this)),
       welcome_(new QLabel(this)),
       datasetPage_(new DatasetPage(doc_, this)),
-      analysisPage_(new AnalysisPage(doc_, runner_, this)) {
+      analysisPage_(new AnalysisPage(doc_, runner_, this)),
+      progressDelayMs_(JobProgressDialog::kDefaultDelayMs) {
     initResources();
     setObjectName(QStringLiteral("moderato-main-window"));
     setWindowIcon(QIcon(QStringLiteral(":/moderato/moderato.svg")));
@@ -162,7 +152,8 @@ MainWindow::MainWindow(QWidget* parent)
 }
 
 MainWindow::~MainWindow() {
-    runner_->waitForIdle();
+    // A load still running is cancelled by its job as the job goes (with the
+    // children); analysis workers own copies of what they read and finish on their own.
     // The children (document, pages, actions) are deleted after this body, in
     // creation order; the undo stack signals while it is destroyed, so nothing
     // may still be listening to the document or its stack by then.
@@ -229,13 +220,15 @@ void MainWindow::buildMenus() {
 
     QMenu* help = menuBar()->addMenu(tr("&Help"));
     help->addAction(tr("&About Moderato"), this, [this] {
-        QMessageBox::about(this, tr("About Moderato"),
+        QMessageBox* box =
+            showMessageBox(QMessageBox::NoIcon, tr("About Moderato"),
                            tr("<h3>Moderato %1</h3><p>A workbench for moderated effects in regression: "
                               "conditional effects, Johnson–Neyman regions, crossover points.</p>"
                               "<p>Results from observational data are associations, not causal effects.</p>"
                               "<p>Free software under the GNU General Public License, version 3 or later. "
                               "Plots by QCustomPlot (GPL-3.0).</p>")
                                .arg(QStringLiteral(MODERATO_VERSION)));
+        box->setIconPixmap(windowIcon().pixmap(64, 64));
     });
 }
 
@@ -244,46 +237,97 @@ void MainWindow::report(const QString& title, const QString& text, bool warning)
     Q_EMIT messageReported(title, text);
     statusBar()->showMessage(text.left(200), 8000);
     if (!interactive_) return;
-    if (warning) QMessageBox::warning(this, title, text);
-    else QMessageBox::information(this, title, text);
+    showMessageBox(warning ? QMessageBox::Warning : QMessageBox::Information, title, text);
 }
 
-bool MainWindow::openPath(const QString& path) {
+QMessageBox* MainWindow::showMessageBox(int icon, const QString& title, const QString& text) {
+    // Opened, not run: the window goes on (a load may finish meanwhile).
+    auto* box = new QMessageBox(static_cast<QMessageBox::Icon>(icon), title, text, QMessageBox::Ok, this);
+    box->setAttribute(Qt::WA_DeleteOnClose);
+    box->open();
+    return box;
+}
+
+void MainWindow::openPath(const QString& path) {
     if (isProjectPath(path)) return openProject(path);
     if (!interactive_) return importData(path, CsvOptions{});
-    ImportDialog dialog(path, this);
-    if (dialog.exec() != QDialog::Accepted || !dialog.table()) return false;
-    const std::string id = doc_->addDataset(path, dialog.options(), dialog.table());
-    showAddedDataset(path, id);
-    return true;
+    // The import dialog reads the file itself (in a worker, with its own
+    // progress bar); it is opened, not run: the rest happens when it is accepted.
+    auto* dialog = new ImportDialog(path, this);
+    dialog->setAttribute(Qt::WA_DeleteOnClose);
+    connect(dialog, &QDialog::accepted, this, [this, dialog, path] {
+        if (!dialog->table()) return;
+        const std::string id = doc_->addDataset(path, dialog->options(), dialog->table());
+        showAddedDataset(path, id);
+    });
+    dialog->open();
 }
 
-bool MainWindow::openProject(const QString& path) {
-    bool cancelled = false;
+void MainWindow::openProject(const QString& path) {
     const std::string file = path.toStdString();
-    const LoadOutcome outcome = runWithProgress<LoadOutcome>(
-        this, tr("Opening %1…").arg(QFileInfo(path).fileName()), interactive_,
-        [file](const CsvProgress& progress) {
-            LoadOutcome o;
-            try {
-                o.project = std::make_shared<LoadedProject>(load_project(file, progress));
-            } catch (const Cancelled&) {
-                o.cancelled = true;
-            } catch (const InputError& e) {
-                o.error = QString::fromStdString(e.what());
-            } catch (const std::exception& e) {
-                o.error = tr("Internal error: %1").arg(QString::fromUtf8(e.what()));
-            }
-            return o;
+    auto outcome = std::make_shared<LoadOutcome>();
+    startLoad(
+        path, tr("Opening %1…").arg(QFileInfo(path).fileName()),
+        [outcome, file](const BackgroundJob::Progress& progress) {
+            loadInto(*outcome, [&] {
+                outcome->project = std::make_shared<LoadedProject>(load_project(file, CsvProgress{progress}));
+            });
         },
-        &cancelled);
-    if (outcome.cancelled || cancelled) {
-        statusBar()->showMessage(tr("Opening cancelled; nothing was changed."), 5000);
-        return false;
+        [this, path, outcome](bool cancelled) { return adoptProject(path, *outcome, cancelled); });
+}
+
+void MainWindow::importData(const QString& path, const CsvOptions& options) {
+    const std::string file = path.toStdString();
+    auto outcome = std::make_shared<LoadOutcome>();
+    startLoad(
+        path, tr("Reading %1…").arg(QFileInfo(path).fileName()),
+        [outcome, file, options](const BackgroundJob::Progress& progress) {
+            loadInto(*outcome, [&] {
+                outcome->table = std::make_shared<const Table>(read_csv(file, options, CsvProgress{progress}));
+                outcome->sha256 = sha256_file(file);
+            });
+        },
+        [this, path, options, outcome](bool cancelled) { return addImported(path, options, *outcome, cancelled); });
+}
+
+void MainWindow::startLoad(const QString& path, const QString& text, BackgroundJob::Work work,
+                           std::function<LoadResult(bool cancelled)> done) {
+    if (load_) {
+        report(tr("Still loading"),
+               tr("%1 is still being read. Wait for it, or cancel it, before opening another file.")
+                   .arg(QDir::toNativeSeparators(loadingPath_)));
+        Q_EMIT loadFinished(path, Failed);
+        return;
     }
-    if (!outcome.error.isEmpty()) {
-        report(tr("Cannot open project"), outcome.error);
-        return false;
+    load_ = new BackgroundJob(this);
+    loadingPath_ = path;
+    connect(load_, &BackgroundJob::progressChanged, this, &MainWindow::loadProgress);
+    connect(load_, &BackgroundJob::finished, this, [this, path, done = std::move(done)](bool cancelled) {
+        load_->deleteLater();
+        load_ = nullptr;
+        loadingPath_.clear();
+        statusBar()->clearMessage();
+        Q_EMIT loadFinished(path, done(cancelled));
+    });
+    if (interactive_) new JobProgressDialog(load_, text, this, progressDelayMs_);
+    statusBar()->showMessage(text);
+    load_->start(std::move(work));
+}
+
+void MainWindow::cancelLoad() {
+    if (load_) load_->cancel();
+}
+
+MainWindow::LoadResult MainWindow::adoptProject(const QString& path, LoadOutcome& outcome, bool cancelled) {
+    // Nothing of a cancelled load is kept, even when it had just finished.
+    if (cancelled || outcome.cancelled) {
+        statusBar()->showMessage(tr("Opening cancelled; nothing was changed."), 5000);
+        return Cancelled;
+    }
+    if (!outcome.error.isEmpty() || !outcome.project) {
+        report(tr("Cannot open project"),
+               outcome.error.isEmpty() ? tr("The project could not be read.") : outcome.error);
+        return Failed;
     }
     LoadedProject loaded = std::move(*outcome.project);
     const std::vector<std::string> warnings = loaded.warnings;
@@ -295,35 +339,22 @@ bool MainWindow::openProject(const QString& path) {
         for (const auto& w : warnings) lines << QString::fromStdString(w);
         report(tr("Project opened with notes"), lines.join(QStringLiteral("\n\n")));
     }
-    return true;
+    return Loaded;
 }
 
-bool MainWindow::importData(const QString& path, const CsvOptions& options) {
-    bool cancelled = false;
-    const std::string file = path.toStdString();
-    const LoadOutcome outcome = runWithProgress<LoadOutcome>(
-        this, tr("Reading %1…").arg(QFileInfo(path).fileName()), interactive_,
-        [file, options](const CsvProgress& progress) {
-            LoadOutcome o;
-            try {
-                o.table = std::make_shared<const Table>(read_csv(file, options, progress));
-                o.sha256 = sha256_file(file);
-            } catch (const Cancelled&) {
-                o.cancelled = true;
-            } catch (const InputError& e) {
-                o.error = QString::fromStdString(e.what());
-            }
-            return o;
-        },
-        &cancelled);
-    if (outcome.cancelled || cancelled) return false;
-    if (!outcome.error.isEmpty()) {
-        report(tr("Cannot read data"), outcome.error);
-        return false;
+MainWindow::LoadResult MainWindow::addImported(const QString& path, const CsvOptions& options,
+                                               const LoadOutcome& outcome, bool cancelled) {
+    if (cancelled || outcome.cancelled) {
+        statusBar()->showMessage(tr("Reading cancelled; nothing was added."), 5000);
+        return Cancelled;
+    }
+    if (!outcome.error.isEmpty() || !outcome.table) {
+        report(tr("Cannot read data"), outcome.error.isEmpty() ? tr("The file could not be read.") : outcome.error);
+        return Failed;
     }
     const std::string id = doc_->addDataset(path, options, outcome.table, outcome.sha256);
     showAddedDataset(path, id);
-    return true;
+    return Loaded;
 }
 
 bool MainWindow::save() {
@@ -466,13 +497,17 @@ void MainWindow::exportFigure() {
     const auto run = runner_->result(id);
     const Analysis* a = doc_->analysis(id);
     const QString caption = a && run ? figureCaption(*a, *run) : QString();
-    FigureExportDialog dialog(figures, doc_, id, caption, this);
+    auto* dialog = new FigureExportDialog(figures, doc_, id, caption, this);
+    dialog->setAttribute(Qt::WA_DeleteOnClose);
     // Saving closes the dialog: say where the file went.
-    if (dialog.exec() == QDialog::Accepted && !dialog.lastSavedPath().isEmpty())
+    connect(dialog, &QDialog::accepted, this, [this, dialog] {
+        if (dialog->lastSavedPath().isEmpty()) return;
         statusBar()->showMessage(
             tr("Saved the figure to %1")
-                .arg(QDir::toNativeSeparators(QFileInfo(dialog.lastSavedPath()).absoluteFilePath())),
+                .arg(QDir::toNativeSeparators(QFileInfo(dialog->lastSavedPath()).absoluteFilePath())),
             10000);
+    });
+    dialog->open();
 }
 
 void MainWindow::showMemo(int saveKind) {

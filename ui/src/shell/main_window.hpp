@@ -1,16 +1,24 @@
 // The main window: menus, the Project sidebar, and the page of the selected
 // dataset or analysis. Opens projects and data files (menu, command line,
 // drag and drop), saves projects, remembers recent files and window state.
+//
+// Opening a project or reading a data file is long work: it runs in a
+// BackgroundJob while the window stays live, with a progress dialog and
+// Cancel; loadFinished() says how it ended. Until then the open project is
+// untouched, and a cancelled or failed load leaves it as it was.
 #pragma once
 
 #include <QMainWindow>
 #include <QStringList>
+#include <functional>
 #include <string>
 
+#include "common/background_job.hpp"
 #include "moderato/reading/csv.hpp"
 
 class QStackedWidget;
 class QMenu;
+class QMessageBox;
 class QLabel;
 
 namespace moderato::ui {
@@ -20,10 +28,15 @@ class AnalysisRunner;
 class DatasetPage;
 class ProjectDocument;
 class ProjectSidebar;
+struct LoadOutcome;
 
 class MainWindow : public QMainWindow {
     Q_OBJECT
 public:
+    // How a load ended.
+    enum LoadResult { Loaded, Failed, Cancelled };
+    Q_ENUM(LoadResult)
+
     explicit MainWindow(QWidget* parent = nullptr);
     ~MainWindow() override;
 
@@ -34,11 +47,19 @@ public:
     DatasetPage* datasetPage() const { return datasetPage_; }
 
     // Opens a project (.moderato) or imports a data file (with the import
-    // dialog when interactive). Returns false and reports when it fails.
-    bool openPath(const QString& path);
-    bool openProject(const QString& path);
-    // Reads a data file with these options (no dialog) and adds it as a dataset.
-    bool importData(const QString& path, const CsvOptions& options);
+    // dialog when interactive). Returns at once; the file is read in a worker
+    // and loadFinished() follows (failures are reported then).
+    void openPath(const QString& path);
+    void openProject(const QString& path);
+    // Reads a data file with these options (no dialog) and adds it as a
+    // dataset; asynchronous like openProject().
+    void importData(const QString& path, const CsvOptions& options);
+    // Whether a project or data file is being read, and stopping it (the
+    // project stays as it was).
+    bool isLoading() const { return load_ != nullptr; }
+    void cancelLoad();
+    // How long a load runs before its progress dialog opens (ms; 0: at once).
+    void setProgressDelay(int ms) { progressDelayMs_ = ms; }
     bool save();
     bool saveAs(const QString& path);
 
@@ -52,6 +73,9 @@ public:
 
 Q_SIGNALS:
     void messageReported(const QString& title, const QString& text);
+    // The load of `path` progressed (thousandths) or ended.
+    void loadProgress(int permille);
+    void loadFinished(const QString& path, moderato::ui::MainWindow::LoadResult result);
 
 protected:
     void closeEvent(QCloseEvent* event) override;
@@ -61,6 +85,18 @@ protected:
 private:
     void buildMenus();
     void report(const QString& title, const QString& text, bool warning = true);
+    // A message box opened over the window (never run in a loop of its own); deletes itself.
+    QMessageBox* showMessageBox(int icon, const QString& title, const QString& text);
+    // Runs `work` in a BackgroundJob with progress (and a progress dialog
+    // when interactive); `done` adopts the outcome on the UI thread.
+    void startLoad(const QString& path, const QString& text, BackgroundJob::Work work,
+                   std::function<LoadResult(bool cancelled)> done);
+    LoadResult adoptProject(const QString& path, LoadOutcome& outcome, bool cancelled);
+    LoadResult addImported(const QString& path, const CsvOptions& options, const LoadOutcome& outcome, bool cancelled);
+    // Asks whether to save unsaved changes. Like the file choosers, this is
+    // a question run modally (a loop of its own): its answer decides the
+    // next step, and no work of ours runs while it is open. Everything that
+    // only informs (message boxes, the import and export dialogs) is opened.
     bool confirmDiscard();
     void addRecent(const QString& path);
     void rebuildRecentMenu();
@@ -83,6 +119,9 @@ private:
     QMenu* recentMenu_ = nullptr;
     bool interactive_ = true;
     QString lastMessage_;
+    BackgroundJob* load_ = nullptr;  // the load in progress
+    QString loadingPath_;
+    int progressDelayMs_;
 };
 
 // Whether a path names a project file (by extension).

@@ -125,10 +125,21 @@ double blom_position(std::size_t i, std::size_t n);  // i 1-based
 // taken in order of `fitted` (binned residual plot; for a 0/1 outcome the raw
 // residuals are two bands and only their local means are readable). NaNs
 // left out; fewer bins when there are fewer values.
+//
+// Each bin's mean residual also gets an interval at `level`: mean ± t ·
+// s / √m, with m the bin's count, s its standard deviation (divisor m − 1)
+// and t the t quantile at 1 − (1 − level)/2 with m − 1 degrees of freedom
+// (NaN for a bin of one value). It is a guide to whether the mean residual
+// there departs from zero, not a test: residuals are not independent, and
+// across many bins about a share 1 − level of the intervals miss zero by
+// chance alone.
 struct BinnedResiduals {
+    double level = 0.95;
     std::vector<double> fitted_mean, residual_mean;
+    std::vector<double> residual_lower, residual_upper;  // the interval of each bin's mean
     std::vector<std::size_t> count;
 };
-BinnedResiduals binned_residuals(const Eigen::VectorXd& fitted, const Eigen::VectorXd& residual, int bins);
+BinnedResiduals binned_residuals(const Eigen::VectorXd& fitted, const Eigen::VectorXd& residual, int bins,
+                                 double level = 0.95);
 
 }  // namespace moderato
