@@ -3,7 +3,7 @@
 #include <cctype>
 #include <cmath>
 
-#include "moderato/reporting/report_text.hpp"
+#include "moderato/support/report_text.hpp"
 
 namespace moderato {
 
