@@ -25,6 +25,7 @@
 #include <algorithm>
 #include <atomic>
 
+#include "common/number_text.hpp"
 #include "data/csv_head.hpp"
 #include "data/table_model.hpp"
 #include "moderato/support/error.hpp"
@@ -384,7 +385,7 @@ void ImportDialog::refreshPreview() {
     const std::size_t rows = shown->rows();
     QString text;
     const auto plural = [](std::size_t n, const QString& one, const QString& many) {
-        return QLocale().toString(static_cast<qulonglong>(n)) + QLatin1Char(' ') + (n == 1 ? one : many);
+        return countText(static_cast<long long>(n)) + QLatin1Char(' ') + (n == 1 ? one : many);
     };
     if (head.wholeFile) text = tr("The whole file: %1").arg(plural(rows, tr("data row"), tr("data rows")));
     else

@@ -25,8 +25,6 @@ namespace {
 
 enum Col { cItem = 0, cN, cObserved, cEstimate, cSe, cStat, cP, cLower, cUpper, cExp, cExpLower, cExpUpper };
 
-QString levelText(double level) { return QLocale::c().toString(100.0 * level, 'g', 4) + QLatin1Char('%'); }
-
 // "age = 41.2, region = North": categorical columns by their level name.
 QString held(const CellTable& c, const Design& d) {
     QStringList parts;
@@ -293,7 +291,7 @@ void CellsView::fillTable() {
             row << numberItem(tr("not estimable"));
             for (int k = cSe; k < ncol; ++k) row << numberItem(QString());
         } else {
-            row << numberItem(numberText(est)) << numberItem(numberText(se)) << numberItem(numberText(st, 3))
+            row << numberItem(numberText(est)) << numberItem(numberText(se)) << numberItem(numberText(st))
                 << numberItem(pValueText(p)) << numberItem(numberText(lo)) << numberItem(numberText(hi));
             if (logistic_) row << numberItem(numberText(e)) << numberItem(numberText(el)) << numberItem(numberText(eh));
         }
@@ -307,7 +305,7 @@ void CellsView::fillTable() {
         QList<QStandardItem*> row;
         row << new QStandardItem(QStringLiteral("%1, %2").arg(QString::fromStdString(cell.row_level),
                                                               QString::fromStdString(cell.column_level)))
-            << numberItem(countText(static_cast<double>(cell.n)))
+            << numberItem(countText(static_cast<long long>(cell.n)))
             << numberItem(cell.n ? numberText(cell.observed_mean) : QStringLiteral("—"));
         if (!cell.estimable) {
             row << numberItem(tr("not estimable"));
@@ -356,10 +354,11 @@ void CellsView::fillTable() {
         if (c.interaction_test) {
             const WaldTest& w = *c.interaction_test;
             const bool chi = std::isinf(w.df2);
-            const QString label = chi ? tr("Wald χ²(%1), all product terms").arg(countText(w.df1))
-                                      : tr("Wald F(%1, %2), all product terms").arg(countText(w.df1), countText(w.df2));
+            const QString label =
+                chi ? tr("Wald χ²(%1), all product terms").arg(numberText(w.df1))
+                    : tr("Wald F(%1, %2), all product terms").arg(numberText(w.df1), numberText(w.df2));
             row << new QStandardItem(label) << numberItem(QString()) << numberItem(QString()) << numberItem(QString())
-                << numberItem(QString()) << numberItem(numberText(chi ? w.chi_square : w.statistic, 4))
+                << numberItem(QString()) << numberItem(numberText(chi ? w.chi_square : w.statistic))
                 << numberItem(pValueText(w.p_value));
         } else {
             row << new QStandardItem(tr("not available: a product term is aliased"));

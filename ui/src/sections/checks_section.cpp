@@ -168,7 +168,7 @@ void ChecksSection::ensureComputed() {
                              QString::fromStdString(d.cooks_rule));
     rules += QLatin1Char(' ') +
              tr("%1 of %2 rows flagged, most influential first.")
-                 .arg(countText(static_cast<double>(d.flagged.size())), countText(static_cast<double>(d.n)));
+                 .arg(countText(static_cast<long long>(d.flagged.size())), countText(static_cast<long long>(d.n)));
     if (d.n > 20000) rules += QLatin1Char(' ') + tr("Dense plots are thinned; flagged rows are always drawn.");
     rules_->setText(rules);
 }
