@@ -23,7 +23,9 @@ namespace moderato::ui {
 
 namespace {
 
-enum Col { cItem = 0, cN, cObserved, cEstimate, cSe, cStat, cP, cLower, cUpper, cExp, cExpLower, cExpUpper };
+// The house order of an estimate (as in the memo's tables and the Probe section):
+// the estimate, its interval, SE, test value, p.
+enum Col { cItem = 0, cN, cObserved, cEstimate, cLower, cUpper, cSe, cStat, cP, cExp, cExpLower, cExpUpper };
 
 // "age = 41.2, region = North": categorical columns by their level name.
 QString held(const CellTable& c, const Design& d) {
@@ -259,11 +261,11 @@ void CellsView::fillTable() {
                        tr("n"),
                        logistic_ ? tr("observed share") : tr("observed mean"),
                        logistic_ ? tr("estimate (log-odds)") : tr("estimate"),
+                       tr("%1 CI low").arg(lvl),
+                       tr("%1 CI high").arg(lvl),
                        tr("SE"),
                        QStringLiteral("%1 / %2").arg(stat, joint),
-                       tr("p"),
-                       tr("CI lower"),
-                       tr("CI upper")};
+                       tr("p")};
     if (logistic_) header << tr("probability / odds ratio") << tr("lower") << tr("upper");
     model_->setHorizontalHeaderLabels(header);
     const int ncol = static_cast<int>(header.size());
@@ -289,10 +291,10 @@ void CellsView::fillTable() {
         row << new QStandardItem(label) << numberItem(QString()) << numberItem(QString());
         if (!estimable) {
             row << numberItem(tr("not estimable"));
-            for (int k = cSe; k < ncol; ++k) row << numberItem(QString());
+            for (int k = cLower; k < ncol; ++k) row << numberItem(QString());
         } else {
-            row << numberItem(numberText(est)) << numberItem(numberText(se)) << numberItem(numberText(st))
-                << numberItem(pValueText(p)) << numberItem(numberText(lo)) << numberItem(numberText(hi));
+            row << numberItem(numberText(est)) << numberItem(numberText(lo)) << numberItem(numberText(hi))
+                << numberItem(numberText(se)) << numberItem(numberText(st)) << numberItem(pValueText(p));
             if (logistic_) row << numberItem(numberText(e)) << numberItem(numberText(el)) << numberItem(numberText(eh));
         }
         model_->appendRow(row);
@@ -309,11 +311,11 @@ void CellsView::fillTable() {
             << numberItem(cell.n ? numberText(cell.observed_mean) : QStringLiteral("—"));
         if (!cell.estimable) {
             row << numberItem(tr("not estimable"));
-            for (int k = cSe; k < ncol; ++k) row << numberItem(QString());
+            for (int k = cLower; k < ncol; ++k) row << numberItem(QString());
         } else {
-            row << numberItem(numberText(cell.estimate)) << numberItem(numberText(cell.std_error))
-                << numberItem(QString()) << numberItem(QString()) << numberItem(numberText(cell.ci_lower))
-                << numberItem(numberText(cell.ci_upper));
+            row << numberItem(numberText(cell.estimate)) << numberItem(numberText(cell.ci_lower))
+                << numberItem(numberText(cell.ci_upper)) << numberItem(numberText(cell.std_error))
+                << numberItem(QString()) << numberItem(QString());
             if (logistic_)
                 row << numberItem(numberText(cell.probability)) << numberItem(numberText(cell.probability_lower))
                     << numberItem(numberText(cell.probability_upper));
@@ -357,9 +359,9 @@ void CellsView::fillTable() {
             const QString label =
                 chi ? tr("Wald χ²(%1), all product terms").arg(numberText(w.df1))
                     : tr("Wald F(%1, %2), all product terms").arg(numberText(w.df1), numberText(w.df2));
-            row << new QStandardItem(label) << numberItem(QString()) << numberItem(QString()) << numberItem(QString())
-                << numberItem(QString()) << numberItem(numberText(chi ? w.chi_square : w.statistic))
-                << numberItem(pValueText(w.p_value));
+            row << new QStandardItem(label);
+            while (row.size() < cStat) row << numberItem(QString());
+            row << numberItem(numberText(chi ? w.chi_square : w.statistic)) << numberItem(pValueText(w.p_value));
         } else {
             row << new QStandardItem(tr("not available: a product term is aliased"));
         }
