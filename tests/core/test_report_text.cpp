@@ -57,7 +57,7 @@ TEST(ReportText, MinusSignIsUnicodeU2212AndThereIsNoMinusZero) {
     EXPECT_EQ(format_sig(-0.0), "0");
     // Worked by hand: a small negative value keeps its sign in its own digits, never "−0.000".
     EXPECT_EQ(format_sig(-0.00012), kMinus + "0.0001200");
-    EXPECT_EQ(format_tick(-1e-17, 0.5), "0");
+    EXPECT_EQ(format_tick(-1e-17, 0.5), "0.0");
     EXPECT_EQ(format_sig(-1.0), kMinus + "1");
 }
 
@@ -164,9 +164,11 @@ TEST(ReportText, AxisTicksTakeTheDecimalsOfTheirStep) {
     EXPECT_EQ(format_tick(1, 0.25), "1.00");
     EXPECT_EQ(format_tick(20, 5), "20");
     EXPECT_EQ(format_tick(2.5, 0.5), "2.5");
-    // Tick positions carry binary rounding: 3 × 0.1 and a zero that came out as 5.6e-17.
+    // Tick positions carry binary rounding: 3 × 0.1 and a zero that came out as 5.6e-17 (zero takes the
+    // axis's decimals like every other tick).
     EXPECT_EQ(format_tick(0.1 * 3, 0.1), "0.3");
-    EXPECT_EQ(format_tick(5.551115123125783e-17, 0.1), "0");
+    EXPECT_EQ(format_tick(5.551115123125783e-17, 0.1), "0.0");
+    EXPECT_EQ(format_tick(0, 5), "0");
     // Powers of ten where format_sig uses them.
     EXPECT_EQ(format_tick(1.5e7, 5e6), "1.500" + kTimes + "10" + kSup7);
     EXPECT_EQ(format_tick(2e-5, 1e-5), "2.000" + kTimes + "10" + kSupMinus + kSup5);

@@ -145,9 +145,9 @@ std::string format_data(double x) {
 
 std::string format_tick(double x, double step) {
     if (!std::isfinite(x) || !std::isfinite(step) || step == 0) return format_sig(x);
-    // A tick meant to be zero may carry rounding noise (3e-17).
-    if (std::fabs(x) <= 1e-9 * std::fabs(step)) return "0";
-    if (needs_power(x) || std::fabs(step) < 1e-4) return format_sig(x);
+    // A tick meant to be zero may carry rounding noise (3e-17): it reads 0 with the axis's decimals.
+    if (std::fabs(x) <= 1e-9 * std::fabs(step)) x = 0;
+    else if (needs_power(x) || std::fabs(step) < 1e-4) return format_sig(x);
     return format_fixed(x, step_decimals(step));
 }
 

@@ -261,8 +261,8 @@ void CellsView::fillTable() {
                        tr("n"),
                        logistic_ ? tr("observed share") : tr("observed mean"),
                        logistic_ ? tr("estimate (log-odds)") : tr("estimate"),
-                       tr("%1 CI low").arg(lvl),
-                       tr("%1 CI high").arg(lvl),
+                       tr("%1 low").arg(lvl),
+                       tr("%1 high").arg(lvl),
                        tr("SE"),
                        QStringLiteral("%1 / %2").arg(stat, joint),
                        tr("p")};

@@ -93,9 +93,9 @@ QVariant PinnedTableModel::headerData(int section, Qt::Orientation orientation, 
         case P:
             return tr("p");
         case Lower:
-            return tr("%1 CI low").arg(interval_);
+            return tr("%1 low").arg(interval_);
         case Upper:
-            return tr("%1 CI high").arg(interval_);
+            return tr("%1 high").arg(interval_);
         case Note:
             return tr("note");
     }

@@ -47,7 +47,7 @@ std::string exact_text(double x);
 // as x, with the minus sign, powers of ten and symbols of format_sig.
 std::string format_data(double x);
 // A plot axis tick at x when the ticks are `step` apart: the decimals the step
-// needs, the same for every tick of the axis (0.00, 0.25, 0.50); powers of ten
+// needs, the same for every tick of the axis (0.00, 0.25, 0.50: zero too); powers of ten
 // as format_sig where it uses them.
 std::string format_tick(double x, double step);
 // Unicode subscript and superscript digits: 12 -> "₁₂", −2 -> "⁻²".
