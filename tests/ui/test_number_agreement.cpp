@@ -3,16 +3,23 @@
 // shows (its summary, the readout and the pinned values) cite the same
 // strings for the same numbers on the sample projects. Each string is also
 // checked against the value it stands for (core run_analysis on the same
-// data), written by the rule's own route (test::fourDigits: printf).
+// data), written by the rule's own route (test::fourDigits: printf). The plot
+// axes and the dataset grid follow the same rules.
 #include <gtest/gtest.h>
 
+#include <qcustomplot.h>
 #include <QRegularExpression>
 #include <QTest>
+#include <cmath>
+#include <cstdio>
 
+#include "data/table_model.hpp"
 #include "model/analysis_runner.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/project/project_loader.hpp"
+#include "moderato/reading/csv.hpp"
 #include "moderato/reporting/memo.hpp"
+#include "plots/effect_plot.hpp"
 #include "probe/pinned_table.hpp"
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
@@ -194,4 +201,41 @@ TEST(NumberAgreement, BoundariesRangesAndTheProbabilityInteractionReadTheSame) {
         EXPECT_EQ(memo[0][0], test::fourDigits(c.run.probe->interaction_effect->estimate));
         EXPECT_TRUE(memo[0][0].contains(QStringLiteral("×10⁻"))) << memo[0][0].toStdString();
     }
+}
+
+TEST(NumberAgreement, AxisTicksAndTheDatasetGridFollowTheSameRules) {
+    // The Effect plot's axes (helpdesk: negative effects): every tick label has the decimals its step needs, the
+    // same on each tick, and the minus sign U+2212 (worked here with printf "%.*f" from the ticks' own values).
+    Workbench b(QStringLiteral("helpdesk-staffing"));
+    QCPAxis* y = b.probe->effectPlot()->figurePlot()->yAxis;
+    b.probe->effectPlot()->figurePlot()->replot();
+    const QVector<double> ticks = y->tickVector();
+    const QVector<QString> labels = y->tickVectorLabels();
+    ASSERT_GE(ticks.size(), 3);
+    ASSERT_EQ(labels.size(), ticks.size());
+    const double step = ticks[1] - ticks[0];
+    int decimals = 0;
+    while (std::fabs(step * std::pow(10.0, decimals) - std::round(step * std::pow(10.0, decimals))) > 1e-6) ++decimals;
+    bool negative = false;
+    for (int k = 0; k < ticks.size(); ++k) {
+        char buf[64];
+        std::snprintf(buf, sizeof buf, "%.*f", decimals, std::fabs(ticks[k]) < 1e-9 * step ? 0.0 : ticks[k]);
+        QString expected = QString::fromLatin1(buf);
+        if (expected.startsWith(QLatin1Char('-'))) {
+            expected.replace(0, 1, QChar(0x2212));
+            negative = true;
+        }
+        EXPECT_EQ(labels[k], expected) << "tick " << ticks[k];
+    }
+    EXPECT_TRUE(negative) << "the helpdesk effects are negative, so some ticks are";
+
+    // The dataset grid shows every digit a value has (the shortest text that reads back as it, IEEE 754), with the
+    // minus sign: 0.1 + 0.2 is 0.30000000000000004 in binary, and −2.5 is written with U+2212.
+    const auto table = std::make_shared<const Table>(read_csv_text("v\n-2.5\n0.30000000000000004\n41\n", "v.csv"));
+    TableModel model;
+    model.setTable(table);
+    const auto shown = [&](int row) { return model.data(model.index(row, 0), Qt::DisplayRole).toString(); };
+    EXPECT_EQ(shown(0), QStringLiteral("−2.5"));
+    EXPECT_EQ(shown(1), QStringLiteral("0.30000000000000004"));
+    EXPECT_EQ(shown(2), QStringLiteral("41"));
 }
