@@ -347,8 +347,9 @@ TEST(DiagnosticsClosedForm, RulesAreStated) {
     EXPECT_DOUBLE_EQ(g.cooks_threshold, 4.0 / 50);         // 4/n, common practice
     EXPECT_DOUBLE_EQ(g.residual_threshold, 3.0);
     EXPECT_EQ(g.residual_rule, "|externally studentised residual| > 3");
-    EXPECT_EQ(g.leverage_rule, "leverage > 3p/n = 0.24");
-    EXPECT_EQ(g.cooks_rule, "Cook's distance > 4/n = 0.08");
+    // Written by report_text's rule, four significant digits with trailing zeros (12/50 = 0.24, 4/50 = 0.08).
+    EXPECT_EQ(g.leverage_rule, "leverage > 3p/n = 0.2400");
+    EXPECT_EQ(g.cooks_rule, "Cook's distance > 4/n = 0.08000");
 }
 
 TEST(DiagnosticsClosedForm, BlomPositionsAndQuantiles) {

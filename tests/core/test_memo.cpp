@@ -1,7 +1,7 @@
 // The memo: its sentences are parsed back and every number they cite is
 // compared with an outside value (statsmodels fixtures, closed forms computed
 // here from the data and the fitted coefficients); escaping of user strings;
-// the number formats; base64.
+// base64. The number formats have their own tests (test_report_text.cpp).
 #include <gtest/gtest.h>
 
 #include <algorithm>
@@ -19,7 +19,7 @@
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/reporting/memo.hpp"
-#include "moderato/reporting/report_text.hpp"
+#include "moderato/support/report_text.hpp"
 
 namespace fs = std::filesystem;
 using namespace moderato;
@@ -381,52 +381,6 @@ TEST(MemoRender, SameInputsSameBytes) {
     const Sample again = open_sample("helpdesk-staffing");
     const std::string b = memo_to_html(build_memo(again.loaded.project, again.analysis, again.run, ctx));
     EXPECT_EQ(a, b);
-}
-
-TEST(ReportText, FourSignificantDigitsAndTheMinusSign) {
-    // Common practice for reports: 4 significant digits, trailing zeros kept, U+2212 minus.
-    EXPECT_EQ(format_sig(15.9238), "15.92");
-    EXPECT_EQ(format_sig(17.3), "17.30");
-    EXPECT_EQ(format_sig(-0.45678),
-              "\xE2\x88\x92"
-              "0.4568");
-    EXPECT_EQ(format_sig(0.0018222), "0.001822");
-    EXPECT_EQ(format_sig(9.99962), "10.00");
-    EXPECT_EQ(format_sig(895), "895");
-    EXPECT_EQ(format_sig(0), "0");
-    EXPECT_EQ(format_sig(-0.0), "0");
-    EXPECT_EQ(format_sig(-2511.3),
-              "\xE2\x88\x92"
-              "2511");
-    EXPECT_EQ(format_sig(4.867e-5),
-              "4.867\xC3\x97"
-              "10\xE2\x81\xBB\xE2\x81\xB5");
-    EXPECT_EQ(format_sig(std::nan("")), "\xE2\x80\x94");
-    EXPECT_EQ(format_sig(-INFINITY), "\xE2\x88\x92\xE2\x88\x9E");
-    EXPECT_EQ(format_range(14.73, 17.3), "14.73 to 17.30");
-    EXPECT_EQ(format_range(0, 30), "0 to 30");
-    EXPECT_EQ(format_range(-11.0801, -5.58),
-              "\xE2\x88\x92"
-              "11.08 to \xE2\x88\x92"
-              "5.58");
-    EXPECT_EQ(format_p_value(0.0234), "0.023");
-    EXPECT_EQ(format_p_value(0.0004), "< 0.001");
-    EXPECT_EQ(p_clause(0.0004), "p < 0.001");
-    EXPECT_EQ(p_clause(0.5), "p = 0.500");
-    EXPECT_EQ(format_count(1234567), "1,234,567");
-    EXPECT_EQ(format_count(900), "900");
-    EXPECT_EQ(level_text(0.95), "95%");
-    EXPECT_EQ(level_text(0.995), "99.5%");
-}
-
-TEST(ReportText, ExactTextRoundTrips) {
-    // The shortest decimal that reads back as the same double (C++17 to_chars, IEEE 754 round trip).
-    for (const double v : {0.1, -2.5e-7, 1.0 / 3.0, 123456789.125, 5e-324, 1.7976931348623157e308}) {
-        const std::string t = exact_text(v);
-        EXPECT_EQ(std::strtod(t.c_str(), nullptr), v) << t;
-    }
-    EXPECT_EQ(exact_text(0.1), "0.1");
-    EXPECT_EQ(exact_text(std::nan("")), "nan");
 }
 
 TEST(Base64, Rfc4648TestVectors) {

@@ -253,7 +253,8 @@ TEST(Probe, SquaredFocalIsEvaluatedAtTheChosenFocalValue) {
 }
 
 // Common practice: a reader must be told where every other column that
-// changes the effect is held (here g, whose mean is exactly 0.5 by design).
+// changes the effect is held (here g, whose mean is exactly 0.5 by design,
+// written at four significant digits as every number is: 0.5000).
 TEST(Probe, NotesSayWhereOtherModeratorsAreHeld) {
     const Table t = simulate(100, 7, 0.1);
     ModelSpec s;
@@ -262,6 +263,7 @@ TEST(Probe, NotesSayWhereOtherModeratorsAreHeld) {
     const Design d = build_design(t, s);
     const FitResult f = fit_design(d, s);
     const ProbeResult r = probe(d, f, spec_of("x", "z"));
-    EXPECT_NE(std::find(r.notes.begin(), r.notes.end(), "g also changes the effect of x; it is held at its mean 0.5"),
-              r.notes.end());
+    EXPECT_NE(
+        std::find(r.notes.begin(), r.notes.end(), "g also changes the effect of x; it is held at its mean 0.5000"),
+        r.notes.end());
 }

@@ -5,12 +5,17 @@
 // reader is installed the output is read back by it: Python's csv module
 // (CSV), Python's html.parser (HTML), cmark-gfm, GitHub's reference Markdown
 // renderer (Markdown), pdflatex (LaTeX); tests skip where it is absent.
+// The tables of an analysis (analysis_tables) are checked against closed
+// forms on the sample projects: their headings, the house column order and
+// the numbers, and that the memo's sentences cite the same strings.
 #include <gtest/gtest.h>
 
 #include <unistd.h>
 
 #include <array>
 #include <atomic>
+#include <boost/math/distributions/students_t.hpp>
+#include <cmath>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
@@ -20,6 +25,10 @@
 #include <string>
 #include <vector>
 
+#include "moderato/project/analysis_run.hpp"
+#include "moderato/project/project_loader.hpp"
+#include "moderato/reporting/analysis_tables.hpp"
+#include "moderato/reporting/memo.hpp"
 #include "moderato/reporting/table_export.hpp"
 #include "moderato/support/error.hpp"
 
@@ -699,5 +708,139 @@ TEST(FileSlug, AnyBytesGiveAPortableName) {
         const std::string slug = file_slug(label);
         EXPECT_TRUE(std::regex_match(slug, shape)) << slug;
         EXPECT_LE(slug.size(), 60u);
+    }
+}
+
+// ---------------------------------------------------------------------------
+// The tables of an analysis on the sample projects.
+
+namespace {
+
+struct SampleRun {
+    LoadedProject loaded;
+    Analysis analysis;
+    AnalysisRun run;
+};
+
+SampleRun sample_run(const std::string& name) {
+    const fs::path file =
+        fs::path(MODERATO_TEST_DATA_DIR) / ".." / ".." / "sample-projects" / name / (name + ".moderato");
+    SampleRun s{load_project(file.string()), {}, {}};
+    s.analysis = s.loaded.project.analyses.front();
+    s.run = run_analysis(s.loaded.tables.at(s.analysis.dataset), s.analysis);
+    return s;
+}
+
+const ExportTable& table_of(const std::vector<NamedTable>& tables, const std::string& key) {
+    for (const auto& t : tables)
+        if (t.key == key) return t.table;
+    ADD_FAILURE() << "no table " << key;
+    static const ExportTable none;
+    return none;
+}
+
+// A number as the tables write it (U+2212 minus) read back as a double.
+double read_display(std::string text) {
+    for (std::size_t at; (at = text.find("\xE2\x88\x92")) != std::string::npos;) text.replace(at, 3, "-");
+    return std::stod(text);
+}
+
+// `text` is `value` correctly rounded: within half a unit in its last digit.
+void expect_rounded(const std::string& text, double value) {
+    const auto dot = text.find('.');
+    const int decimals = dot == std::string::npos ? 0 : static_cast<int>(text.size() - dot - 1);
+    EXPECT_NEAR(read_display(text), value, 0.5 * std::pow(10.0, -decimals) * (1 + 1e-9)) << text;
+}
+
+}  // namespace
+
+TEST(AnalysisTables, EffectsAtChosenValuesInTheHouseOrderMatchTheClosedForm) {
+    const SampleRun s = sample_run("orchard-nitrogen");
+    const auto tables = analysis_tables(s.analysis, s.run);
+    const ExportTable& t = table_of(tables, "conditional-effects");
+    // Our own heading and the house order: moderator value, effect, interval, SE, test value, p, note.
+    EXPECT_EQ(t.title, "Effect of nitrogen_kg_ha on yield_t_ha at chosen values of soil_moisture_pct");
+    EXPECT_EQ(t.columns, (std::vector<std::string>{"soil_moisture_pct", "Effect", "95% CI low", "95% CI high", "SE",
+                                                   "t", "p", "Note"}));
+    ASSERT_EQ(t.rows.size(), 3u);  // mean − 1 SD, mean, mean + 1 SD
+    // Closed form for a two-way product: effect b1 + b3 m, variance V11 + 2 m V13 + m² V33, interval effect ± t SE
+    // with t the 97.5% quantile of t(df) (Boost.Math), p = 2 P(T > |effect / SE|).
+    const FitResult& f = s.run.fit;
+    const int i1 = f.index_of("nitrogen_kg_ha"), i3 = f.index_of("nitrogen_kg_ha×soil_moisture_pct");
+    ASSERT_GE(i1, 0);
+    ASSERT_GE(i3, 0);
+    const auto& V = f.covariance;
+    const boost::math::students_t dist(f.df_inference);
+    const double q = boost::math::quantile(dist, 0.975);
+    for (const auto& row : t.rows) {
+        ASSERT_EQ(row.size(), t.columns.size());
+        const double m = std::stod(row[0].exact);
+        const double effect = f.beta(i1) + f.beta(i3) * m;
+        const double se = std::sqrt(V(i1, i1) + 2 * m * V(i1, i3) + m * m * V(i3, i3));
+        const double p = 2 * boost::math::cdf(boost::math::complement(dist, std::fabs(effect / se)));
+        const double expected[] = {effect, effect - q * se, effect + q * se, se, effect / se};
+        for (int k = 0; k < 5; ++k) {
+            EXPECT_NEAR(std::stod(row[static_cast<std::size_t>(k + 1)].exact), expected[k],
+                        1e-9 * (1 + std::fabs(expected[k])));
+            expect_rounded(row[static_cast<std::size_t>(k + 1)].text, expected[k]);
+        }
+        EXPECT_NEAR(std::stod(row[6].exact), p, 1e-9 + 1e-6 * p);
+    }
+}
+
+TEST(AnalysisTables, GroupsAndCellsKeepTheHouseOrder) {
+    // A categorical moderator: one row per group, headed by the group.
+    const SampleRun helpdesk = sample_run("helpdesk-staffing");
+    const auto helpdeskTables = analysis_tables(helpdesk.analysis, helpdesk.run);
+    const ExportTable& e = table_of(helpdeskTables, "conditional-effects");
+    EXPECT_EQ(e.title, "Effect of agents_on_shift on resolution_hours in each group of shift");
+    EXPECT_EQ(e.columns,
+              (std::vector<std::string>{"shift", "Effect", "95% CI low", "95% CI high", "SE", "t", "p", "Note"}));
+    // The reference group's effect is the focal coefficient b1 (closed form).
+    ASSERT_FALSE(e.rows.empty());
+    const int i1 = helpdesk.run.fit.index_of("agents_on_shift");
+    ASSERT_GE(i1, 0);
+    EXPECT_NEAR(std::stod(e.rows[0][1].exact), helpdesk.run.fit.beta(i1), 1e-12);
+
+    // Two categorical predictors: the contrasts in the same order; the cells list the interval before the SE.
+    const SampleRun cells = sample_run("volunteer-onboarding");
+    ASSERT_TRUE(cells.run.cells);
+    const auto tables = analysis_tables(cells.analysis, cells.run);
+    const ExportTable& c = table_of(tables, "cell-contrasts");
+    EXPECT_EQ(c.columns,
+              (std::vector<std::string>{"Comparison", "Estimate", "95% CI low", "95% CI high", "SE", "t", "p"}));
+    const CellTable& ct = *cells.run.cells;
+    // Closed form: the difference in differences (mu11 - mu01) - (mu10 - mu00) from the cells' predictions.
+    const double did = (ct.at(1, 1).estimate - ct.at(0, 1).estimate) - (ct.at(1, 0).estimate - ct.at(0, 0).estimate);
+    ASSERT_FALSE(c.rows.empty());
+    const auto& last = c.rows.back();  // the interaction contrast comes last
+    EXPECT_NEAR(std::stod(last[1].exact), did, 1e-9 * (1 + std::fabs(did)));
+    EXPECT_LT(std::stod(last[2].exact), did);
+    EXPECT_GT(std::stod(last[3].exact), did);
+    const ExportTable& cellTable = table_of(tables, "cell-table");
+    ASSERT_GE(cellTable.columns.size(), 8u);
+    EXPECT_EQ(std::vector<std::string>(cellTable.columns.begin() + 4, cellTable.columns.begin() + 8),
+              (std::vector<std::string>{"Predicted", "95% CI low", "95% CI high", "SE"}));
+}
+
+TEST(AnalysisTables, MemoSentencesCiteTheTableStrings) {
+    // The same number reads the same in a sentence and in a table: the memo's effects at chosen values are the
+    // table's display strings, character for character (orchard: continuous; helpdesk: groups and crossovers).
+    for (const char* name : {"orchard-nitrogen", "helpdesk-staffing"}) {
+        SCOPED_TRACE(name);
+        const SampleRun s = sample_run(name);
+        const auto tables = analysis_tables(s.analysis, s.run);
+        const ExportTable& t = table_of(tables, "conditional-effects");
+        std::string memo;
+        for (const auto& line : memo_findings(s.analysis, s.run)) memo += line + "\n";
+        ASSERT_FALSE(t.rows.empty());
+        for (const auto& row : t.rows) {
+            std::string value = row[0].text;
+            const auto dagger = value.find(" \xE2\x80\xA0");  // the table marks rows beyond the data with " †"
+            if (dagger != std::string::npos) value.erase(dagger);
+            const std::string cited = row[1].text + " (95% CI " + row[2].text + " to " + row[3].text + ") " +
+                                      (s.run.kind == ProbeKind::Groups ? "for " : "at ") + t.columns[0] + " = " + value;
+            EXPECT_NE(memo.find(cited), std::string::npos) << cited << "\n" << memo;
+        }
     }
 }

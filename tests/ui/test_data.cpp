@@ -421,8 +421,11 @@ TEST(DatasetPage, MillionRowGridReadsTheCoreTable) {
     EXPECT_EQ(s->max, 0.25 * 999'998);  // row 999999 is missing, 999998 is the largest present
     auto* histogram = child<HistogramWidget>(&page, "column-histogram");
     EXPECT_EQ(histogram->counts(), s->histogram.counts);
-    EXPECT_EQ(child<QLabel>(&page, "summary-mean")->text(), QString::number(sum / static_cast<double>(n), 'g', 6));
-    EXPECT_EQ(child<QLabel>(&page, "summary-values")->text(), QLocale().toString(static_cast<qulonglong>(n)));
+    // Written as every number is: four significant digits (the whole part kept), counts with thousands
+    // separators (English grouping).
+    EXPECT_EQ(child<QLabel>(&page, "summary-mean")->text(), test::fourDigits(sum / static_cast<double>(n)));
+    EXPECT_EQ(child<QLabel>(&page, "summary-values")->text(),
+              QLocale(QLocale::English).toString(static_cast<qulonglong>(n)));
     // The categorical column: a, b, c in turn (by construction: 333334, 333333, 333333).
     page.showSummary(1);
     ASSERT_NE(page.currentSummary(), nullptr);

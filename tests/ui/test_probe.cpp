@@ -104,12 +104,8 @@ void drag(EffectPlot* plot, double to, int steps = 12) {
 
 double rel(double a, double b) { return a == b ? 0 : std::abs(a - b) / std::max(std::abs(b), 1e-300); }
 
-// Common practice: "%.4g" as the readout writes numbers.
-QString g4(double v) {
-    QString s = QLocale::c().toString(v, 'g', 4);
-    if (s.startsWith(QLatin1Char('-'))) s.replace(0, 1, QChar(0x2212));
-    return s;
-}
+// Four significant digits as the workbench writes numbers (common practice; see test::fourDigits).
+QString g4(double v) { return test::fourDigits(v); }
 
 void expectSamePoint(const EffectPoint& shown, const EffectPoint& core, double tol = 1e-10) {
     EXPECT_LE(rel(shown.estimate, core.estimate), tol);

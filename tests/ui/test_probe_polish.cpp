@@ -103,12 +103,8 @@ struct Window {
     QUndoStack* undo() { return w.document()->undoStack(); }
 };
 
-// Common practice: "%.4g" with a real minus sign, as the Probe section writes numbers.
-QString g4(double v) {
-    QString s = QLocale::c().toString(v, 'g', 4);
-    if (s.startsWith(QLatin1Char('-'))) s.replace(0, 1, QChar(0x2212));
-    return s;
-}
+// Four significant digits as the workbench writes numbers (common practice; see test::fourDigits).
+QString g4(double v) { return test::fourDigits(v); }
 
 double rel(double a, double b) { return a == b ? 0 : std::abs(a - b) / std::max(std::abs(b), 1e-300); }
 
@@ -281,14 +277,15 @@ TEST(ProbePolish, GapStatementsCoverEveryCase) {
                              "x (0 to 30)."));
     EXPECT_EQ(say({}, {{-inf, inf}}).text,
               QStringLiteral("S differ (95% pointwise) over the whole observed range of x (0 to 30)."));
+    // Numbers at four significant digits, trailing zeros kept (13.1 -> "13.10").
     const GapStatement two = say({13.1, 18.9}, {{-inf, 13.1}, {18.9, inf}});
-    EXPECT_EQ(two.text, QStringLiteral("S differ (95% pointwise) for x below 13.1 and above 18.9; between these values "
-                                       "they cannot be told apart."));
+    EXPECT_EQ(two.text, QStringLiteral("S differ (95% pointwise) for x below 13.10 and above 18.90; between these "
+                                       "values they cannot be told apart."));
     EXPECT_EQ(two.differ, (std::vector<std::pair<double, double>>{{0.0, 13.1}, {18.9, 30.0}}));
     // One boundary inside, one beyond the data.
     const GapStatement beyond = say({-4, 12.5}, {{-inf, -4}, {12.5, inf}});
     EXPECT_EQ(beyond.text,
-              QStringLiteral("S differ (95% pointwise) for x above 12.5; for x below 12.5 they cannot be "
+              QStringLiteral("S differ (95% pointwise) for x above 12.50; for x below 12.50 they cannot be "
                              "told apart. The boundary at x = −4 lies beyond the data (observed 0 to 30)."));
     EXPECT_EQ(beyond.beyond, std::vector<double>{-4});
     EXPECT_EQ(beyond.inside, std::vector<double>{12.5});
@@ -425,7 +422,7 @@ TEST(ProbePolish, HeldValueLabelsNameTheChoice) {
     EXPECT_EQ(heldValueLabel(std::nan(""), 0, 0, {QStringLiteral("APAC"), QStringLiteral("EU")}),
               QStringLiteral("'APAC' (reference level)"));
     EXPECT_EQ(heldValueLabel(1, 0, 0, {QStringLiteral("APAC"), QStringLiteral("EU")}), QStringLiteral("'EU'"));
-    EXPECT_EQ(heldValueLabel(std::nan(""), 0.43, 0.5, {}, true), QStringLiteral("0.43 (mean)"));
+    EXPECT_EQ(heldValueLabel(std::nan(""), 0.43, 0.5, {}, true), QStringLiteral("0.4300 (mean)"));  // 4 digits
     EXPECT_EQ(heldValueLabel(1, 0.43, 0.5, {}, true), QStringLiteral("1"));
 }
 

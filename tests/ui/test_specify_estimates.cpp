@@ -186,7 +186,7 @@ TEST(SpecifyEstimates, PickerMovesAControlToModeratorAndTheTableFollows) {
     // Header states SE kind and level; fit statistics and the comparison use the fixture's numbers.
     const QString header = o.estimates()->headerLabel()->text();
     EXPECT_TRUE(header.contains(QStringLiteral("HC3"))) << header.toStdString();
-    EXPECT_TRUE(header.contains(QStringLiteral("95 %"))) << header.toStdString();
+    EXPECT_TRUE(header.contains(QStringLiteral("95%"))) << header.toStdString();
     const QString fitText = o.estimates()->fitLabel()->text();
     // statsmodels rsquared / rsquared_adj, shown with 4 decimals
     EXPECT_TRUE(fitText.contains(QString::number(case2["r_squared"].get<double>(), 'f', 4))) << fitText.toStdString();
@@ -362,7 +362,7 @@ TEST(SpecifyEstimates, CopyTableGivesTabSeparatedTextWithEveryDigit) {
     EXPECT_TRUE(lines.back().isEmpty());  // ends with a line break
     lines.removeLast();
     ASSERT_EQ(lines.size(), 1 + static_cast<int>(run->fit.coefficients.size()));  // header + one line per coefficient
-    EXPECT_EQ(lines[0], QStringLiteral("Term\tEstimate\tSE\tt\tp\tLower 95 %\tUpper 95 %\tVIF"));
+    EXPECT_EQ(lines[0], QStringLiteral("Term\tEstimate\tSE\tt\tp\tLower 95%\tUpper 95%\tVIF"));
     for (int r = 1; r < lines.size(); ++r) {
         const QStringList f = lines[r].split(QLatin1Char('\t'));
         ASSERT_EQ(f.size(), 8) << lines[r].toStdString();

@@ -7,6 +7,8 @@
 #include <QSignalSpy>
 #include <QString>
 #include <QTemporaryDir>
+#include <cmath>
+#include <cstdio>
 #include <functional>
 
 #include "moderato/reading/csv.hpp"
@@ -60,6 +62,34 @@ inline QString copySample(const QString& name, const QTemporaryDir& dir) {
     const QDir from(samplesDir() + QLatin1Char('/') + name);
     for (const QString& f : from.entryList(QDir::Files)) QFile::copy(from.filePath(f), dir.filePath(f));
     return dir.filePath(name + QStringLiteral(".moderato"));
+}
+
+// A number as the workbench and the memo write it, computed here without the
+// formatter under test. Common practice for reports: four significant digits
+// with the trailing zeros kept (printf "%#.4g"), the whole part written out
+// from 1000 up ("%.0f"), d.ddd×10⁻ⁿ below 1e-4 (printf "%.3e" rewritten with
+// U+00D7 and superscript digits), and the minus sign U+2212. Values of 1e7
+// and up are not used by the tests.
+inline QString fourDigits(double v) {
+    static const char16_t superscripts[] = {0x2070, 0x00B9, 0x00B2, 0x00B3, 0x2074,
+                                            0x2075, 0x2076, 0x2077, 0x2078, 0x2079};
+    const double a = std::fabs(v);
+    char buf[64];
+    QString s;
+    if (a != 0 && a < 1e-4) {
+        std::snprintf(buf, sizeof buf, "%.3e", v);  // "4.867e-05"
+        const QString t = QString::fromLatin1(buf);
+        const int e = static_cast<int>(t.indexOf(QLatin1Char('e')));
+        const int exponent = t.mid(e + 1).toInt();
+        s = t.left(e) + QChar(0x00D7) + QStringLiteral("10") + (exponent < 0 ? QString(QChar(0x207B)) : QString());
+        for (const QChar c : QString::number(std::abs(exponent))) s += QChar(superscripts[c.unicode() - '0']);
+    } else {
+        std::snprintf(buf, sizeof buf, a >= 1000 || v == std::trunc(v) ? "%.0f" : "%#.4g", v);
+        s = QString::fromLatin1(buf);
+        if (s.endsWith(QLatin1Char('.'))) s.chop(1);  // 999.96 -> "1000."
+    }
+    if (s.startsWith(QLatin1Char('-'))) s.replace(0, 1, QChar(0x2212));
+    return s;
 }
 
 }  // namespace moderato::test

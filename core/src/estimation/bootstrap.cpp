@@ -8,12 +8,12 @@
 
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/support/error.hpp"
+#include "moderato/support/report_text.hpp"
 #include "support/parallel.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
 
-using detail::fmt_num;
 using detail::join;
 using detail::quoted;
 
@@ -342,7 +342,7 @@ BootstrapResult bootstrap(const Design& d, const ModelSpec& spec, const Bootstra
                          std::to_string(options.replicates) +
                          "; ask for 1000 or more for percentile intervals and 2000 or more for BCa intervals");
     if (!(options.level > 0 && options.level < 1))
-        throw InputError("bootstrap confidence level " + fmt_num(options.level) +
+        throw InputError("bootstrap confidence level " + exact_text(options.level) +
                          " is not between 0 and 1 (e.g. 0.95)");
     const auto n = static_cast<long long>(d.n());
     const auto p = static_cast<long long>(d.p());

@@ -8,11 +8,11 @@
 #include <set>
 
 #include "moderato/support/error.hpp"
+#include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
 
-using detail::fmt_num;
 using detail::join;
 using detail::quoted;
 
@@ -218,7 +218,7 @@ std::vector<std::string> sorted_levels(const Column& column) {
 Design build_design(const Table& table, const ModelSpec& spec) {
     if (spec.outcome.empty()) throw InputError("no outcome given; choose the column to explain");
     if (!(spec.level > 0 && spec.level < 1))
-        throw InputError("confidence level " + fmt_num(spec.level) + " is not between 0 and 1 (e.g. 0.95)");
+        throw InputError("confidence level " + exact_text(spec.level) + " is not between 0 and 1 (e.g. 0.95)");
     const Column& outcome = column_for(table, spec.outcome, "outcome");
 
     // 1. Terms, with the lower-order terms of every product.
@@ -448,7 +448,7 @@ Design build_design(const Table& table, const ModelSpec& spec) {
             const double v = d.y[static_cast<Eigen::Index>(i)];
             if (v != 0.0 && v != 1.0)
                 throw InputError("logistic outcome " + quoted(spec.outcome) +
-                                 " must be 0 or 1: " + where(table, rows[i]) + " holds " + fmt_num(v));
+                                 " must be 0 or 1: " + where(table, rows[i]) + " holds " + exact_text(v));
         }
     if (weights) {
         d.weights.resize(static_cast<Eigen::Index>(n));
@@ -456,7 +456,7 @@ Design build_design(const Table& table, const ModelSpec& spec) {
             const double w = weights->numbers[rows[i]];
             if (!(w > 0))
                 throw InputError("weights " + quoted(spec.weights) + " must be positive: " + where(table, rows[i]) +
-                                 " holds " + fmt_num(w) + "; fix that row or choose another weights column");
+                                 " holds " + exact_text(w) + "; fix that row or choose another weights column");
             d.weights[static_cast<Eigen::Index>(i)] = w;
         }
     }
@@ -479,7 +479,7 @@ Design build_design(const Table& table, const ModelSpec& spec) {
             for (std::size_t i = 0; i < n; ++i) {
                 const double v = cluster->numbers[rows[i]];
                 auto [it, fresh] = num_ids.emplace(v, static_cast<int>(num_ids.size()));
-                if (fresh) d.cluster_names.push_back(fmt_num(v));
+                if (fresh) d.cluster_names.push_back(exact_text(v));
                 d.cluster[i] = it->second;
             }
         }
@@ -499,7 +499,7 @@ Design build_design(const Table& table, const ModelSpec& spec) {
             auto col = d.X.col(t.columns[0]);
             if ((col.array() == col[0]).all())
                 throw InputError("predictor " + quoted(t.factors[0].first) + " is constant (every used row holds " +
-                                 fmt_num(col[0]) +
+                                 exact_text(col[0]) +
                                  "); it cannot be estimated alongside the intercept — drop it or use --no-intercept");
         }
     if (n <= p) {

@@ -8,6 +8,7 @@
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/estimation/least_squares.hpp"
 #include "moderato/support/error.hpp"
+#include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
@@ -22,7 +23,7 @@ constexpr double kLeverageOne = 1.0 - 1e-10;
 // y log(y / mu) with 0 log 0 = 0.
 double ylogy(double y, double mu) { return y > 0 ? y * std::log(y / mu) : 0.0; }
 
-std::string number(double v) { return detail::fmt_short(v); }
+std::string number(double v) { return format_sig(v); }
 
 }  // namespace
 

@@ -16,7 +16,6 @@
 
 namespace moderato {
 
-using detail::fmt_num;
 using detail::join;
 using detail::quoted;
 

@@ -4,6 +4,7 @@
 #include <cmath>
 #include <limits>
 
+#include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato::detail {
@@ -38,7 +39,7 @@ std::string column_finding(const Design& d, Eigen::Index j) {
                                    !d.columns[static_cast<std::size_t>(j)].atoms.front().level.empty() &&
                                    d.columns[static_cast<std::size_t>(j)].atoms.size() == 1;
                 const std::string rows = dummy && level == 1.0 ? "every row with " + label
-                                                               : "every row with " + label + " = " + fmt_num(level);
+                                                               : "every row with " + label + " = " + exact_text(level);
                 return "quasi-complete separation by " + quoted(label) + ": " + rows + " has " + d.outcome + " = " +
                        outcome_value(r.lo);
             }

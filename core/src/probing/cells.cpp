@@ -9,11 +9,11 @@
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/probing/probe.hpp"
 #include "moderato/support/error.hpp"
+#include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
 
-using detail::fmt_num;
 using detail::join;
 using detail::quoted;
 
@@ -73,7 +73,7 @@ Factor factor_of(const Design& d, const std::string& name, const std::string& ro
     if (j >= 0)
         for (Eigen::Index i = 0; i < n && offending.empty(); ++i) {
             const double v = d.X(i, j);
-            if (v != 0.0 && v != 1.0) offending = fmt_num(v);
+            if (v != 0.0 && v != 1.0) offending = exact_text(v);
             else f.row_level[static_cast<std::size_t>(i)] = static_cast<int>(v);
         }
     if (j < 0 || !offending.empty())
@@ -159,7 +159,7 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
             throw InputError("held column " + quoted(column) + " is not in the model; hold only model columns");
         if (const CategoricalInfo* c = d.categorical(column)) {
             if (!(value >= 0 && value < static_cast<double>(c->levels.size()) && value == std::floor(value)))
-                throw InputError("held level " + fmt_num(value) + " of " + quoted(column) +
+                throw InputError("held level " + exact_text(value) + " of " + quoted(column) +
                                  " is not a level index; give 0 to " + std::to_string(c->levels.size() - 1) + " (" +
                                  join(c->levels, ", ") + ")");
         } else if (!std::isfinite(value)) {
@@ -191,7 +191,7 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
             if (const CategoricalInfo* c = d.categorical(column))
                 parts.push_back(column + " = " + quoted(c->levels[static_cast<std::size_t>(v)]) +
                                 (given ? "" : " (reference level)"));
-            else parts.push_back(column + " = " + fmt_num(v) + (given ? "" : " (its mean)"));
+            else parts.push_back(column + " = " + format_sig(v) + (given ? "" : " (its mean)"));
         }
         if (!parts.empty()) t.notes.push_back("cells predicted with " + join(parts, ", "));
     }

@@ -9,11 +9,11 @@
 #include <string>
 
 #include "moderato/support/error.hpp"
+#include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
 namespace bm = boost::math;
-using detail::fmt_num;
 
 namespace {
 
@@ -24,17 +24,18 @@ constexpr double kMaxLambda = 1e9;
 
 void check_f2(double f2) {
     if (std::isnan(f2) || !(f2 > 0) || std::isinf(f2))
-        throw InputError("f2 (the effect size) must be a finite number greater than 0, got " + fmt_num(f2));
+        throw InputError("f2 (the effect size) must be a finite number greater than 0, got " + exact_text(f2));
 }
 
 void check_power_target(double p) {
     if (std::isnan(p) || !(p > 0 && p < 1))
-        throw InputError("the target power must be between 0 and 1 (exclusive), got " + fmt_num(p));
+        throw InputError("the target power must be between 0 and 1 (exclusive), got " + exact_text(p));
 }
 
 void check_design(const PowerDesign& d) {
     if (std::isnan(d.alpha) || !(d.alpha > 0 && d.alpha < 1))
-        throw InputError("alpha (the significance level) must be between 0 and 1 (exclusive), got " + fmt_num(d.alpha));
+        throw InputError("alpha (the significance level) must be between 0 and 1 (exclusive), got " +
+                         exact_text(d.alpha));
     if (d.tested_terms < 1)
         throw InputError("the number of tested terms must be at least 1, got " + std::to_string(d.tested_terms));
     if (d.total_predictors < d.tested_terms)
@@ -72,7 +73,7 @@ PowerResult compute(double f2, long long n, const PowerDesign& d) {
     r.noncentrality = lambda_of(f2, n, d);
     if (r.noncentrality > kMaxLambda)
         throw InputError("the noncentrality (" + noncentrality_formula(d.convention) + " = " +
-                         fmt_num(r.noncentrality) +
+                         exact_text(r.noncentrality) +
                          ") is above 1e9, beyond what the power can be computed for; such a design has power "
                          "very close to 1; use a smaller f2 or n");
     r.critical_f = bm::quantile(bm::complement(bm::fisher_f_distribution<double>(r.df1, r.df2), d.alpha));
@@ -133,7 +134,7 @@ SampleSizeResult smallest_n_for_power(double f2, double target_power, const Powe
         lo = hi;
         for (;;) {
             if (hi >= max_n)
-                throw InputError("f2 = " + fmt_num(f2) + " is too small to reach power " + fmt_num(target_power) +
+                throw InputError("f2 = " + exact_text(f2) + " is too small to reach power " + exact_text(target_power) +
                                  " with at most " + std::to_string(max_n) +
                                  " observations; plan for a larger effect or a lower power");
             step = step > max_n / 2 ? max_n : step * 2;
@@ -162,8 +163,8 @@ DetectableResult smallest_detectable_f2(long long n, double target_power, const 
     check_power_target(target_power);
     check_n(n, design);
     if (!(target_power > design.alpha))
-        throw InputError("the target power (" + fmt_num(target_power) + ") must be greater than alpha (" +
-                         fmt_num(design.alpha) +
+        throw InputError("the target power (" + exact_text(target_power) + ") must be greater than alpha (" +
+                         exact_text(design.alpha) +
                          "): the test rejects with probability alpha even when there is no effect");
 
     const auto gap = [&](double f2) { return compute(f2, n, design).power - target_power; };
@@ -174,7 +175,7 @@ DetectableResult smallest_detectable_f2(long long n, double target_power, const 
         fa = fb;
         b *= 4;
         if (b > 1e15)
-            throw InputError("no effect size f2 up to 1e15 reaches power " + fmt_num(target_power) +
+            throw InputError("no effect size f2 up to 1e15 reaches power " + exact_text(target_power) +
                              " with n = " + std::to_string(n) + "; lower the target power or raise n");
         fb = gap(b);
     }
@@ -190,25 +191,26 @@ DetectableResult smallest_detectable_f2(long long n, double target_power, const 
 
 double f2_from_r2(double r2_full, double r2_reduced) {
     if (std::isnan(r2_full) || !(r2_full >= 0 && r2_full < 1))
-        throw InputError("the full model's R² must be at least 0 and below 1, got " + fmt_num(r2_full));
+        throw InputError("the full model's R² must be at least 0 and below 1, got " + exact_text(r2_full));
     if (std::isnan(r2_reduced) || !(r2_reduced >= 0 && r2_reduced < 1))
-        throw InputError("the reduced model's R² must be at least 0 and below 1, got " + fmt_num(r2_reduced));
+        throw InputError("the reduced model's R² must be at least 0 and below 1, got " + exact_text(r2_reduced));
     if (r2_reduced > r2_full)
         throw InputError(
-            "the reduced model's R² (" + fmt_num(r2_reduced) + ") exceeds the full model's R² (" + fmt_num(r2_full) +
+            "the reduced model's R² (" + exact_text(r2_reduced) + ") exceeds the full model's R² (" +
+            exact_text(r2_full) +
             "): the full model contains the reduced one plus the tested terms, so its R² is at least as large");
     return (r2_full - r2_reduced) / (1.0 - r2_full);
 }
 
 double f2_from_partial_r2(double partial_r2) {
     if (std::isnan(partial_r2) || !(partial_r2 >= 0 && partial_r2 < 1))
-        throw InputError("the partial R² must be at least 0 and below 1, got " + fmt_num(partial_r2));
+        throw InputError("the partial R² must be at least 0 and below 1, got " + exact_text(partial_r2));
     return partial_r2 / (1.0 - partial_r2);
 }
 
 double partial_r2_from_f2(double f2) {
     if (std::isnan(f2) || !(f2 >= 0) || std::isinf(f2))
-        throw InputError("f2 (the effect size) must be a finite number of at least 0, got " + fmt_num(f2));
+        throw InputError("f2 (the effect size) must be a finite number of at least 0, got " + exact_text(f2));
     return f2 / (1.0 + f2);
 }
 

@@ -7,11 +7,11 @@
 
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/support/error.hpp"
+#include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
 
-using detail::fmt_num;
 using detail::quoted;
 
 namespace {
@@ -297,16 +297,15 @@ void refresh_cautions(ProbeResult& r, const FitResult& fit) {
     for (bool b : r.jn_beyond_data) beyond |= b;
     if (beyond)
         r.cautions.push_back("Some moderator values or boundaries lie beyond the observed range of " + r.moderator +
-                             " (" + detail::fmt_short(r.observed_range.first) + " to " +
-                             detail::fmt_short(r.observed_range.second) + "): there the results are extrapolations.");
+                             " (" + format_range(r.observed_range.first, r.observed_range.second) +
+                             "): there the results are extrapolations.");
     if (r.johnson_neyman)
         r.cautions.push_back(
-            "The region of significance tests many moderator values, each at the " + fmt_num(100 * (1 - fit.level)) +
-            "% level" +
-            (r.simultaneous
-                 ? "; the simultaneous band (critical value " + detail::fmt_short(r.simultaneous->critical_value) +
-                       ") keeps the chance of any false region at " + fmt_num(100 * (1 - fit.level)) + "%."
-                 : "."));
+            "The region of significance tests many moderator values, each at the " + level_text(1 - fit.level) +
+            " level" +
+            (r.simultaneous ? "; the simultaneous band (critical value " + format_sig(r.simultaneous->critical_value) +
+                                  ") keeps the chance of any false region at " + level_text(1 - fit.level) + "."
+                            : "."));
     if (fit.n < 200)
         r.cautions.push_back("With " + std::to_string(fit.n) +
                              " observations, interaction estimates and regions of significance are unstable.");
@@ -414,7 +413,7 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     if (!std::isnan(spec.focal_value)) values[spec.focal] = spec.focal_value;
     if (!spec.second_moderator.empty()) {
         if (!std::isnan(spec.second_value)) values[spec.second_moderator] = spec.second_value;
-        r.notes.push_back(spec.second_moderator + " held at " + detail::fmt_short(values[spec.second_moderator]));
+        r.notes.push_back(spec.second_moderator + " held at " + format_sig(values[spec.second_moderator]));
     }
     // Say where every other column the effect depends on is held.
     for (const auto& t : d.terms) {
@@ -427,7 +426,7 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
             if (c == spec.focal || c == spec.moderator || c == spec.second_moderator) continue;
             const std::string note = c + " also changes the effect of " + spec.focal + "; it is held at " +
                                      (d.categorical(c) ? "its reference level '" + d.categorical(c)->reference + "'"
-                                                       : "its mean " + detail::fmt_short(values[c]));
+                                                       : "its mean " + format_sig(values[c]));
             if (std::find(r.notes.begin(), r.notes.end(), note) == r.notes.end()) r.notes.push_back(note);
         }
     }
@@ -435,7 +434,7 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
         if (t.factors.size() == 1 && t.factors[0].first == spec.focal && t.factors[0].second > 1) {
             r.notes.push_back("with " + t.label + " in the model the effect of " + spec.focal + " depends on " +
                               spec.focal + " itself; it is taken at " + spec.focal + " = " +
-                              detail::fmt_short(values[spec.focal]));
+                              format_sig(values[spec.focal]));
             break;
         }
 

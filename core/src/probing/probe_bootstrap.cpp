@@ -4,6 +4,7 @@
 #include <limits>
 
 #include "moderato/probing/response_scale.hpp"
+#include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
@@ -19,7 +20,7 @@ ProbeBootstrap bootstrap_probe(const Design& design, const ModelSpec& spec, cons
     const bool response = probe.scale == "response";
     for (const auto& e : probe.effects) {
         out.labels.push_back("effect at " + probe.moderator + " = " +
-                             (e.level.empty() ? detail::fmt_short(e.moderator_value) : e.level));
+                             (e.level.empty() ? format_sig(e.moderator_value) : e.level));
         out.kinds.push_back("effect");
         out.at.push_back(e.moderator_value);
     }

@@ -9,6 +9,7 @@
 #include "estimation/logistic_math.hpp"
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/support/error.hpp"
+#include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
@@ -140,7 +141,7 @@ SignificanceRegions probability_regions(const Design& d, const FitResult& fit, c
     }
     SignificanceRegions s;
     s.critical_value = q;
-    s.kind = "scan of the moderator from " + detail::fmt_num(lo) + " to " + detail::fmt_num(hi);
+    s.kind = "scan of the moderator from " + format_range(lo, hi);
     double start = hs[0] > 0 ? lo : kNaN;
     for (int i = 1; i <= grid; ++i) {
         if ((hs[static_cast<std::size_t>(i - 1)] > 0) == (hs[static_cast<std::size_t>(i)] > 0)) continue;

@@ -3,7 +3,7 @@
 #include <cctype>
 #include <cmath>
 
-#include "moderato/reporting/report_text.hpp"
+#include "moderato/support/report_text.hpp"
 
 namespace moderato {
 
@@ -29,13 +29,24 @@ ExportCell pval(double p) { return {format_p_value(p), exact_text(p)}; }
 ExportCell text(const std::string& s) { return {s, ""}; }
 ExportCell count(long long n) { return {format_count(n), std::to_string(n)}; }
 
+// The house order of an estimate with its inference, in every table that
+// shows one (conditional effects, cell contrasts; the Probe section's pinned
+// values and readout): the value, its interval, SE, test value, p.
+std::vector<std::string> inference_columns(const std::string& value, double level, const std::string& statistic) {
+    const std::string lv = level_text(level);
+    return {value, lv + " CI low", lv + " CI high", "SE", statistic, "p"};
+}
+std::vector<ExportCell> inference_cells(double estimate, double lo, double hi, double se, double statistic, double p) {
+    return {num(estimate), num(lo), num(hi), num(se), num(statistic), pval(p)};
+}
+
 ExportTable estimates_table(const Analysis& a, const AnalysisRun& run) {
     const bool centred = a.centring == Centring::Mean && run.centred_fit;
     const FitResult& fit = centred ? *run.centred_fit : run.fit;
     ExportTable t;
     t.title = "Estimates";
     const std::string lv = level_text(fit.level);
-    t.columns = {"Term", "Estimate", "SE", statistic_name(fit), "p", lv + " CI lower", lv + " CI upper"};
+    t.columns = {"Term", "Estimate", "SE", statistic_name(fit), "p", lv + " CI low", lv + " CI high"};
     t.numeric = {false, true, true, true, true, true, true};
     for (const auto& c : fit.coefficients) {
         if (c.aliased) {
@@ -123,11 +134,11 @@ ExportTable comparison_table(const Analysis& a, const AnalysisRun& run) {
 ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
     ExportTable t;
     const bool prob = p.scale == "response";
-    t.title = "Conditional effect of " + p.focal + (prob ? " on P(" + p.outcome + " = 1)" : " on " + p.outcome) +
-              " by " + p.moderator;
-    const std::string lv = level_text(p.level);
-    t.columns = {p.moderator,      "Effect",         "SE",  prob ? "z" : statistic_name(fit), "p",
-                 lv + " CI lower", lv + " CI upper", "Note"};
+    t.title = "Effect of " + p.focal + (prob ? " on P(" + p.outcome + " = 1)" : " on " + p.outcome) +
+              (p.categorical_moderator ? " in each group of " : " at chosen values of ") + p.moderator;
+    t.columns = {p.moderator};
+    for (auto& c : inference_columns("Effect", p.level, prob ? "z" : statistic_name(fit))) t.columns.push_back(c);
+    t.columns.push_back("Note");
     t.numeric = {!p.categorical_moderator, true, true, true, true, true, true, false};
     bool beyond = false;
     for (const auto& e : p.effects) {
@@ -138,8 +149,11 @@ ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
             at.text += " †";
             beyond = true;
         }
-        t.rows.push_back({at, num(e.estimate), num(e.std_error), num(e.statistic), pval(e.p_value), num(e.ci_lower),
-                          num(e.ci_upper), text(e.beyond_data ? "beyond the data" : "")});
+        std::vector<ExportCell> row{at};
+        for (auto& c : inference_cells(e.estimate, e.ci_lower, e.ci_upper, e.std_error, e.statistic, e.p_value))
+            row.push_back(std::move(c));
+        row.push_back(text(e.beyond_data ? "beyond the data" : ""));
+        t.rows.push_back(std::move(row));
     }
     if (beyond)
         t.notes.push_back("† beyond the data: an extrapolation outside the observed " + p.moderator + " values.");
@@ -158,18 +172,19 @@ ExportTable cell_table_export(const CellTable& c) {
     const bool logistic = c.family == Family::Logistic;
     t.title = "Cells of " + c.row_factor + " × " + c.column_factor + " (" + c.scale + " scale)";
     const std::string lv = level_text(c.level);
-    t.columns = {c.row_factor,     c.column_factor, "n", "Observed mean", "Predicted", "SE",
-                 lv + " CI lower", lv + " CI upper"};
+    // The predicted value, its interval, SE: the house order (no test: a cell mean is not tested).
+    t.columns = {c.row_factor,   c.column_factor, "n", "Observed mean", "Predicted",
+                 lv + " CI low", lv + " CI high", "SE"};
     t.numeric = {false, false, true, true, true, true, true, true};
     if (logistic) {
-        t.columns.insert(t.columns.end(), {"Probability", "P CI lower", "P CI upper"});
+        t.columns.insert(t.columns.end(), {"Probability", "P CI low", "P CI high"});
         t.numeric.insert(t.numeric.end(), {true, true, true});
     }
     for (const auto& cell : c.cells) {
         std::vector<ExportCell> row{
             text(cell.row_level),    text(cell.column_level), count(static_cast<long long>(cell.n)),
-            num(cell.observed_mean), num(cell.estimate),      num(cell.std_error),
-            num(cell.ci_lower),      num(cell.ci_upper)};
+            num(cell.observed_mean), num(cell.estimate),      num(cell.ci_lower),
+            num(cell.ci_upper),      num(cell.std_error)};
         if (logistic)
             row.insert(row.end(), {num(cell.probability), num(cell.probability_lower), num(cell.probability_upper)});
         t.rows.push_back(std::move(row));
@@ -181,15 +196,17 @@ ExportTable cell_table_export(const CellTable& c) {
 ExportTable contrasts_table(const CellTable& c, const FitResult& fit) {
     ExportTable t;
     t.title = "Simple effects and the interaction contrast";
-    const std::string lv = level_text(c.level);
-    t.columns = {"Comparison", "Estimate", "SE", statistic_name(fit), "p", lv + " CI lower", lv + " CI upper"};
+    t.columns = {"Comparison"};
+    for (auto& col : inference_columns("Estimate", c.level, statistic_name(fit))) t.columns.push_back(col);
     t.numeric = {false, true, true, true, true, true, true};
     auto add = [&](const std::string& label, bool ok, double e, double se, double st, double p, double lo, double hi) {
         if (!ok) {
             t.rows.push_back({text(label), text("not estimable"), text(""), text(""), text(""), text(""), text("")});
             return;
         }
-        t.rows.push_back({text(label), num(e), num(se), num(st), pval(p), num(lo), num(hi)});
+        std::vector<ExportCell> row{text(label)};
+        for (auto& cell : inference_cells(e, lo, hi, se, st, p)) row.push_back(std::move(cell));
+        t.rows.push_back(std::move(row));
     };
     for (const auto& s : c.row_effects)
         add(s.label, s.estimable, s.estimate, s.std_error, s.statistic, s.p_value, s.ci_lower, s.ci_upper);

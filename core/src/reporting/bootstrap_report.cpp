@@ -5,6 +5,7 @@
 #include <sstream>
 
 #include "moderato/reporting/output_json.hpp"
+#include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
@@ -65,18 +66,16 @@ std::string probe_bootstrap_to_text(const ProbeBootstrap& b) {
     std::ostringstream o;
     char line[320];
     o << "\nBootstrap (" << r.resampling << ", " << r.completed << " of " << r.requested << " replicates, seed "
-      << b.seed << "; " << detail::fmt_short(100 * r.level) << "% intervals):\n";
+      << b.seed << "; " << level_text(r.level) << " intervals):\n";
     // value, intervals, SE: the order of every estimate table of ours.
     std::snprintf(line, sizeof line, "  %-44s %11s %23s %23s %11s\n", "", "value", "percentile", "BCa", "boot. SE");
     o << line;
     for (std::size_t k = 0; k < b.labels.size() && k < r.intervals.size(); ++k) {
         const auto& iv = r.intervals[k];
-        const std::string pct =
-            detail::fmt_short(iv.percentile_lower) + " to " + detail::fmt_short(iv.percentile_upper);
-        const std::string bca = detail::fmt_short(iv.bca_lower) + " to " + detail::fmt_short(iv.bca_upper);
+        const std::string pct = format_range(iv.percentile_lower, iv.percentile_upper);
+        const std::string bca = format_range(iv.bca_lower, iv.bca_upper);
         std::snprintf(line, sizeof line, "  %-44s %11s %23s %23s %11s\n", b.labels[k].c_str(),
-                      detail::fmt_short(iv.estimate).c_str(), pct.c_str(), bca.c_str(),
-                      detail::fmt_short(iv.std_error).c_str());
+                      format_sig(iv.estimate).c_str(), pct.c_str(), bca.c_str(), format_sig(iv.std_error).c_str());
         o << line;
     }
     for (const auto& [reason, count] : r.failures) o << "  failed replicates: " << count << " (" << reason << ")\n";

@@ -6,6 +6,7 @@
 
 #include "moderato/reporting/fit_report.hpp"
 #include "moderato/reporting/output_json.hpp"
+#include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
@@ -27,7 +28,7 @@ void write_contrast_inference(JsonWriter& w, const T& e, bool logistic) {
     w.field("estimable", e.estimable);
 }
 
-std::string num(double v) { return std::isnan(v) ? "—" : detail::fmt_short(v); }
+std::string num(double v) { return std::isnan(v) ? "—" : format_sig(v); }
 
 void write_levels(JsonWriter& w, const CellTable& t) {
     w.field("row_factor", t.row_factor);

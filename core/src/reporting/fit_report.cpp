@@ -7,6 +7,7 @@
 #include <sstream>
 
 #include "moderato/reporting/output_json.hpp"
+#include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
@@ -124,7 +125,7 @@ std::string num(double v, int digits = 4) {
     return buf;
 }
 
-std::string df_text(double df) { return std::isinf(df) ? "inf" : detail::fmt_num(df); }
+std::string df_text(double df) { return std::isinf(df) ? "inf" : exact_text(df); }
 
 // "p = 0.0123" or "p < 0.0001"
 std::string p_clause(double p) { return std::string("p ") + (p < 0.0001 ? "" : "= ") + format_p(p); }

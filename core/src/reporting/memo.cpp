@@ -9,8 +9,8 @@
 #include <nlohmann/json.hpp>
 
 #include "moderato/probing/response_scale.hpp"
-#include "moderato/reporting/report_text.hpp"
 #include "moderato/reporting/table_export.hpp"
+#include "moderato/support/report_text.hpp"
 
 namespace moderato {
 namespace {
@@ -292,15 +292,6 @@ void comparison_sentence(const Analysis& a, const AnalysisRun& run, std::vector<
     }
 }
 
-std::string subscript(int k) {
-    static const char* const digits[] = {"\xE2\x82\x80", "\xE2\x82\x81", "\xE2\x82\x82", "\xE2\x82\x83",
-                                         "\xE2\x82\x84", "\xE2\x82\x85", "\xE2\x82\x86", "\xE2\x82\x87",
-                                         "\xE2\x82\x88", "\xE2\x82\x89"};
-    std::string out;
-    for (char c : std::to_string(k)) out += digits[c - '0'];
-    return out;
-}
-
 // "x×z" as \text{x} \times \text{z} (products outside \text, so any math renderer reads them).
 std::string latex_term(const std::string& term) {
     static const std::string times = "\xC3\x97";
@@ -334,7 +325,7 @@ void equation(const AnalysisRun& run, Memo& m) {
         const Coefficient& c = f.coefficients[j];
         const bool intercept = c.term == "intercept";
         const std::string plus = k ? " + " : "";
-        t += plus + "b" + subscript(k) + (intercept ? "" : "\xC2\xB7" + c.term);
+        t += plus + "b" + subscript_text(k) + (intercept ? "" : "\xC2\xB7" + c.term);
         h +=
             plus + "<i>b</i><sub>" + std::to_string(k) + "</sub>" + (intercept ? "" : "&middot;" + html_escape(c.term));
         l += plus + "b_{" + std::to_string(k) + "}" + (intercept ? "" : "\\," + latex_term(c.term));

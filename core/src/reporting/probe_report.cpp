@@ -7,6 +7,7 @@
 
 #include "moderato/reporting/fit_report.hpp"
 #include "moderato/reporting/output_json.hpp"
+#include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
@@ -145,8 +146,7 @@ void write_heading(std::ostringstream& o, const ProbeResult& r, const FitResult&
     o << "Effect of " << r.focal << " at chosen values of " << r.moderator
       << (outcome ? " (probability scale)" : (fit.family == Family::Logistic ? " (log-odds scale)" : "")) << "\n";
     o << "Standard errors: " << standard_errors_text(fit.se) << " · " << level_text(r.level) << " intervals · "
-      << (std::isinf(r.df) ? std::string("z") : "t with " + detail::fmt_num(r.df) + " df") << " · n = " << fit.n
-      << "\n";
+      << (std::isinf(r.df) ? std::string("z") : "t with " + exact_text(r.df) + " df") << " · n = " << fit.n << "\n";
     if (!r.categorical_moderator)
         o << r.moderator << " observed from " << num(r.observed_range.first) << " to " << num(r.observed_range.second)
           << " (mean " << num(r.moderator_mean) << ", SD " << num(r.moderator_sd) << ")\n";

@@ -1,8 +1,7 @@
 #include "common/figure_caption.hpp"
 
-#include <QLocale>
-
 #include "common/held_value_text.hpp"
+#include "common/number_text.hpp"
 #include "moderato/reporting/analysis_tables.hpp"
 
 namespace moderato::ui {
@@ -26,10 +25,10 @@ QString figureCaption(const Analysis& a, const AnalysisRun& run) {
     // A three-way model's figures hold the second moderator at one value: say which.
     const QString held = heldValueText(a, run.design);
     if (!held.isEmpty()) text += QStringLiteral(", ") + held;
-    text += QStringLiteral(" · %1 SEs · %2% intervals · n = %3")
+    text += QStringLiteral(" · %1 SEs · %2 intervals · n = %3")
                 .arg(seDescription(a, run))
-                .arg(QLocale::c().toString(100.0 * a.level, 'g', 4))
-                .arg(QLocale(QLocale::English).toString(static_cast<qulonglong>(run.fit.n)));
+                .arg(levelText(a.level))
+                .arg(countText(static_cast<long long>(run.fit.n)));
     return text;
 }
 

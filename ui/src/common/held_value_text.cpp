@@ -4,7 +4,7 @@
 #include <algorithm>
 #include <cmath>
 
-#include "common/probe_number_format.hpp"
+#include "common/number_text.hpp"
 
 namespace moderato::ui {
 
@@ -14,12 +14,12 @@ bool near(double a, double b, double scale) { return std::abs(a - b) <= 1e-9 * s
 
 QString heldValueLabel(double value, double mean, double sd, const QStringList& levels, bool zeroOne) {
     if (zeroOne) {
-        if (std::isnan(value)) return QObject::tr("%1 (mean)").arg(probeNumber(mean));
-        return probeNumber(value);
+        if (std::isnan(value)) return QObject::tr("%1 (mean)").arg(numberText(mean));
+        return numberText(value);
     }
     if (!levels.isEmpty()) {
         const long k = std::isnan(value) ? 0 : std::lround(value);
-        const QString level = k >= 0 && k < levels.size() ? levels[static_cast<int>(k)] : probeNumber(value);
+        const QString level = k >= 0 && k < levels.size() ? levels[static_cast<int>(k)] : numberText(value);
         return k == 0 ? QObject::tr("'%1' (reference level)").arg(level) : QStringLiteral("'%1'").arg(level);
     }
     const double v = std::isnan(value) ? mean : value;
@@ -27,7 +27,7 @@ QString heldValueLabel(double value, double mean, double sd, const QStringList& 
     if (std::isnan(value) || near(v, mean, sd)) tag = QObject::tr("mean");
     else if (sd > 0 && near(v, mean - sd, sd)) tag = QObject::tr("mean − 1 SD");
     else if (sd > 0 && near(v, mean + sd, sd)) tag = QObject::tr("mean + 1 SD");
-    return tag.isEmpty() ? probeNumber(v) : QStringLiteral("%1 (%2)").arg(probeNumber(v), tag);
+    return tag.isEmpty() ? numberText(v) : QStringLiteral("%1 (%2)").arg(numberText(v), tag);
 }
 
 QString heldValueText(const Analysis& a, const Design& d) {

@@ -9,7 +9,6 @@
 #include <QItemSelection>
 #include <QLabel>
 #include <QListWidget>
-#include <QLocale>
 #include <QPushButton>
 #include <QScrollBar>
 #include <QSplitter>
@@ -21,6 +20,7 @@
 #include <numeric>
 #include <set>
 
+#include "common/number_text.hpp"
 #include "data/derived_column_dialog.hpp"
 #include "data/histogram_widget.hpp"
 #include "data/table_model.hpp"
@@ -35,9 +35,9 @@ namespace {
 constexpr int kMaxBars = 12;        // level bars drawn in the summary
 constexpr int kMaxLevelRows = 200;  // levels listed in the summary table
 
-QString num(double v) { return std::isnan(v) ? TableModel::missingText() : QString::number(v, 'g', 6); }
+QString num(double v) { return std::isnan(v) ? TableModel::missingText() : numberText(v); }
 
-QString count(std::size_t n) { return QLocale().toString(static_cast<qulonglong>(n)); }
+QString count(std::size_t n) { return countText(static_cast<long long>(n)); }
 
 QString q(const std::string& s) { return QString::fromStdString(s); }
 

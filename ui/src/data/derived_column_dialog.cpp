@@ -11,6 +11,7 @@
 #include <QVBoxLayout>
 #include <cmath>
 
+#include "common/number_text.hpp"
 #include "data/table_model.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/reading/derive.hpp"
@@ -81,7 +82,7 @@ QString DerivedColumnDialog::describe(const DerivedRecipe& r) {
         case RecipeKind::CentreMedian:
             return tr("%1 centred at its median").arg(s);
         case RecipeKind::CentreValue:
-            return tr("%1 minus %2").arg(s, TableModel::numberText(r.value));
+            return tr("%1 minus %2").arg(s, dataText(r.value));
         case RecipeKind::Standardise:
             return tr("%1 standardised").arg(s);
         case RecipeKind::Log:
@@ -254,11 +255,9 @@ void DerivedColumnDialog::updateHint() {
     QString text;
     try {
         if (c && kind == RecipeKind::CentreMean)
-            text =
-                tr("The mean of %1 is %2.").arg(q(c->name), TableModel::numberText(centre_value(*c, CentreAt::Mean)));
+            text = tr("The mean of %1 is %2.").arg(q(c->name), numberText(centre_value(*c, CentreAt::Mean)));
         else if (c && kind == RecipeKind::CentreMedian)
-            text = tr("The median of %1 is %2.")
-                       .arg(q(c->name), TableModel::numberText(centre_value(*c, CentreAt::Median)));
+            text = tr("The median of %1 is %2.").arg(q(c->name), numberText(centre_value(*c, CentreAt::Median)));
         else if (kind == RecipeKind::Standardise) text = tr("(value − mean) / SD, with the sample SD (divisor n − 1).");
         else if (kind == RecipeKind::Log) text = tr("Every value must be above 0.");
         else if (kind == RecipeKind::Log1p) text = tr("Every value must be above −1.");

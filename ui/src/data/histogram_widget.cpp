@@ -1,9 +1,9 @@
 #include "data/histogram_widget.hpp"
 
-#include <QLocale>
 #include <QPainter>
 #include <algorithm>
 
+#include "common/number_text.hpp"
 #include "data/table_model.hpp"
 #include "style/estuary.hpp"
 
@@ -46,7 +46,7 @@ void HistogramWidget::paintEvent(QPaintEvent*) {
     p.setFont(small);
     const QFontMetrics fm(small);
     const std::size_t peak = *std::max_element(counts_.begin(), counts_.end());
-    const QString peakText = QLocale().toString(static_cast<qulonglong>(peak));
+    const QString peakText = countText(static_cast<long long>(peak));
     const int left = fm.horizontalAdvance(peakText) + 8, right = 8, top = fm.height() / 2 + 4;
     const int bottom = fm.height() + 8;
     const QRectF plot(left, top, width() - left - right, height() - top - bottom);
@@ -83,8 +83,8 @@ void HistogramWidget::paintEvent(QPaintEvent*) {
             p.drawText(cell, Qt::AlignHCenter | Qt::AlignTop, fm.elidedText(levels_[k], Qt::ElideRight, int(w) - 2));
         }
     } else if (edges_.size() >= 2) {
-        p.drawText(labels, Qt::AlignLeft | Qt::AlignTop, TableModel::numberText(edges_.front()));
-        p.drawText(labels, Qt::AlignRight | Qt::AlignTop, TableModel::numberText(edges_.back()));
+        p.drawText(labels, Qt::AlignLeft | Qt::AlignTop, dataText(edges_.front()));
+        p.drawText(labels, Qt::AlignRight | Qt::AlignTop, dataText(edges_.back()));
     }
 }
 

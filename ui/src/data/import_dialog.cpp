@@ -24,6 +24,7 @@
 #include <algorithm>
 
 #include "common/background_job.hpp"
+#include "common/number_text.hpp"
 #include "data/csv_head.hpp"
 #include "data/table_model.hpp"
 #include "moderato/support/error.hpp"
@@ -386,7 +387,7 @@ void ImportDialog::showPreview(const std::shared_ptr<const Table>& shown, bool w
     const std::size_t rows = shown->rows();
     QString text;
     const auto plural = [](std::size_t n, const QString& one, const QString& many) {
-        return QLocale().toString(static_cast<qulonglong>(n)) + QLatin1Char(' ') + (n == 1 ? one : many);
+        return countText(static_cast<long long>(n)) + QLatin1Char(' ') + (n == 1 ? one : many);
     };
     if (wholeFile) text = tr("The whole file: %1").arg(plural(rows, tr("data row"), tr("data rows")));
     else

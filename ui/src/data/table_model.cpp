@@ -7,6 +7,7 @@
 #include <QPixmap>
 #include <limits>
 
+#include "common/number_text.hpp"
 #include "style/estuary.hpp"
 
 namespace moderato::ui {
@@ -53,8 +54,6 @@ int TableModel::columnCount(const QModelIndex& parent) const {
     return parent.isValid() || !table_ ? 0 : clampToInt(table_->cols());
 }
 
-QString TableModel::numberText(double v) { return QString::number(v, 'g', 10); }
-
 QString TableModel::missingText() { return QStringLiteral("—"); }
 
 QVariant TableModel::data(const QModelIndex& index, int role) const {
@@ -68,7 +67,7 @@ QVariant TableModel::data(const QModelIndex& index, int role) const {
         case Qt::DisplayRole:
         case Qt::ToolTipRole:
             if (c.is_missing(row)) return role == Qt::DisplayRole ? missingText() : tr("missing");
-            if (numeric) return numberText(c.numbers[row]);
+            if (numeric) return dataText(c.numbers[row]);
             return QString::fromStdString(c.levels[static_cast<std::size_t>(c.codes[row])]);
         case ValueRole:
             if (c.is_missing(row)) return {};

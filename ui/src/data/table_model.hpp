@@ -34,8 +34,6 @@ public:
     QVariant data(const QModelIndex& index, int role = Qt::DisplayRole) const override;
     QVariant headerData(int section, Qt::Orientation orientation, int role = Qt::DisplayRole) const override;
 
-    // How the grid writes a number: up to 10 significant digits.
-    static QString numberText(double v);
     static QString missingText();  // "—"
 
 private:

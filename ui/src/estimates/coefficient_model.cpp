@@ -7,7 +7,7 @@
 #include <cmath>
 #include <limits>
 
-#include "common/number_format.hpp"
+#include "common/number_text.hpp"
 #include "style/palette_text.hpp"
 
 namespace moderato::ui {
@@ -77,17 +77,17 @@ QVariant CoefficientModel::data(const QModelIndex& index, int role) const {
         if (role == ValueRole) return v;
         if (role == Qt::DisplayRole) {
             if (c.aliased) return col == Estimate ? tr("aliased") : QString();
-            return fullPrecision(v);
+            return exactText(v);
         }
         if (role == FormattedRole) {
             if (c.aliased) return col == Estimate ? tr("aliased") : QString();
             if (std::isnan(v)) return QString();
-            if (col == P) return formatP(v);
-            if (col == Statistic) return formatFixed(v, 2);
-            if (col == Vif) return formatFixed(v, 2);
-            return formatNumber(v);
+            if (col == P) return pValueText(v);
+            if (col == Statistic) return numberText(v);
+            if (col == Vif) return numberText(v);
+            return numberText(v);
         }
-        if (role == Qt::ToolTipRole && !c.aliased && !std::isnan(v)) return fullPrecision(v);
+        if (role == Qt::ToolTipRole && !c.aliased && !std::isnan(v)) return exactText(v);
         if (role == Qt::TextAlignmentRole) return QVariant(Qt::AlignRight | Qt::AlignVCenter);
     }
     if (role == Qt::ForegroundRole && c.aliased) return QBrush(mutedText(QApplication::palette(), QPalette::Base));
@@ -101,7 +101,7 @@ QVariant CoefficientModel::data(const QModelIndex& index, int role) const {
 
 QVariant CoefficientModel::headerData(int section, Qt::Orientation o, int role) const {
     if (o != Qt::Horizontal) return {};
-    const QString pct = levelPercent(level_);
+    const QString pct = levelText(level_);
     if (role == Qt::TextAlignmentRole)
         return QVariant((section == Term ? Qt::AlignLeft : Qt::AlignRight) | Qt::AlignVCenter);
     if (role == Qt::DisplayRole) {

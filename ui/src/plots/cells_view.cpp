@@ -23,9 +23,9 @@ namespace moderato::ui {
 
 namespace {
 
-enum Col { cItem = 0, cN, cObserved, cEstimate, cSe, cStat, cP, cLower, cUpper, cExp, cExpLower, cExpUpper };
-
-QString levelText(double level) { return QLocale::c().toString(100.0 * level, 'g', 4) + QLatin1Char('%'); }
+// The house order of an estimate (as in the memo's tables and the Probe section):
+// the estimate, its interval, SE, test value, p.
+enum Col { cItem = 0, cN, cObserved, cEstimate, cLower, cUpper, cSe, cStat, cP, cExp, cExpLower, cExpUpper };
 
 QStandardItem* numberItem(const QString& text) {
     auto* item = new QStandardItem(text);
@@ -299,15 +299,16 @@ void CellsView::fillTable() {
 void CellsView::setTableHeader(const CellTable& c) {
     const QString stat = std::isinf(c.df) || logistic_ ? QStringLiteral("z") : QStringLiteral("t");
     const QString joint = logistic_ ? QStringLiteral("χ²") : QStringLiteral("F");
+    const QString lvl = levelText(c.level);
     QStringList header{QString(),
                        tr("n"),
                        logistic_ ? tr("observed share") : tr("observed mean"),
                        logistic_ ? tr("estimate (log-odds)") : tr("estimate"),
+                       tr("%1 low").arg(lvl),
+                       tr("%1 high").arg(lvl),
                        tr("SE"),
                        QStringLiteral("%1 / %2").arg(stat, joint),
-                       tr("p"),
-                       tr("CI lower"),
-                       tr("CI upper")};
+                       tr("p")};
     if (logistic_) header << tr("probability / odds ratio") << tr("lower") << tr("upper");
     model_->setHorizontalHeaderLabels(header);
 }
@@ -332,10 +333,10 @@ void CellsView::appendInference(const QString& label, double est, double se, dou
     row << new QStandardItem(label) << numberItem(QString()) << numberItem(QString());
     if (!estimable) {
         row << numberItem(tr("not estimable"));
-        for (int k = cSe; k < ncol; ++k) row << numberItem(QString());
+        for (int k = cLower; k < ncol; ++k) row << numberItem(QString());
     } else {
-        row << numberItem(numberText(est)) << numberItem(numberText(se)) << numberItem(numberText(st, 3))
-            << numberItem(pValueText(p)) << numberItem(numberText(lo)) << numberItem(numberText(hi));
+        row << numberItem(numberText(est)) << numberItem(numberText(lo)) << numberItem(numberText(hi))
+            << numberItem(numberText(se)) << numberItem(numberText(st)) << numberItem(pValueText(p));
         if (logistic_) row << numberItem(numberText(e)) << numberItem(numberText(el)) << numberItem(numberText(eh));
     }
     model_->appendRow(row);
@@ -346,14 +347,15 @@ void CellsView::appendCell(const Cell& cell) {
     QList<QStandardItem*> row;
     row << new QStandardItem(QStringLiteral("%1, %2").arg(QString::fromStdString(cell.row_level),
                                                           QString::fromStdString(cell.column_level)))
-        << numberItem(countText(static_cast<double>(cell.n)))
+        << numberItem(countText(static_cast<long long>(cell.n)))
         << numberItem(cell.n ? numberText(cell.observed_mean) : QStringLiteral("—"));
     if (!cell.estimable) {
         row << numberItem(tr("not estimable"));
-        for (int k = cSe; k < ncol; ++k) row << numberItem(QString());
+        for (int k = cLower; k < ncol; ++k) row << numberItem(QString());
     } else {
-        row << numberItem(numberText(cell.estimate)) << numberItem(numberText(cell.std_error)) << numberItem(QString())
-            << numberItem(QString()) << numberItem(numberText(cell.ci_lower)) << numberItem(numberText(cell.ci_upper));
+        row << numberItem(numberText(cell.estimate)) << numberItem(numberText(cell.ci_lower))
+            << numberItem(numberText(cell.ci_upper)) << numberItem(numberText(cell.std_error)) << numberItem(QString())
+            << numberItem(QString());
         if (logistic_)
             row << numberItem(numberText(cell.probability)) << numberItem(numberText(cell.probability_lower))
                 << numberItem(numberText(cell.probability_upper));
@@ -380,11 +382,11 @@ void CellsView::appendJointTest(const CellTable& c) {
     if (c.interaction_test) {
         const WaldTest& w = *c.interaction_test;
         const bool chi = std::isinf(w.df2);
-        const QString label = chi ? tr("Wald χ²(%1), all product terms").arg(countText(w.df1))
-                                  : tr("Wald F(%1, %2), all product terms").arg(countText(w.df1), countText(w.df2));
-        row << new QStandardItem(label) << numberItem(QString()) << numberItem(QString()) << numberItem(QString())
-            << numberItem(QString()) << numberItem(numberText(chi ? w.chi_square : w.statistic, 4))
-            << numberItem(pValueText(w.p_value));
+        const QString label = chi ? tr("Wald χ²(%1), all product terms").arg(numberText(w.df1))
+                                  : tr("Wald F(%1, %2), all product terms").arg(numberText(w.df1), numberText(w.df2));
+        row << new QStandardItem(label);
+        while (row.size() < cStat) row << numberItem(QString());
+        row << numberItem(numberText(chi ? w.chi_square : w.statistic)) << numberItem(pValueText(w.p_value));
     } else {
         row << new QStandardItem(tr("not available: a product term is aliased"));
     }

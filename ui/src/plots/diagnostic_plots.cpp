@@ -466,14 +466,13 @@ void DiagnosticPlot::decorateInfluence() {
     const QCPRange xr = padded(std::min(cooks.xlo, leverage.xlo), std::max(cooks.xhi, leverage.xhi), 0.02);
     cooks.rect->axis(QCPAxis::atBottom)->setTickLabels(false);
     // The rules core flags rows by (Diagnostics::cooks_threshold, leverage_threshold), stated over each panel.
-    const QString n = countText(static_cast<double>(d.n));
+    const QString n = countText(static_cast<long long>(d.n));
     drawRuleLine(cooks, d.cooks_threshold, xr,
                  tr("Cook's distance: flagged above %1 / %2 rows = %3")
-                     .arg(ruleNumber(d.rules.cooks_numerator), n, numberText(d.cooks_threshold, 3)));
-    drawRuleLine(
-        leverage, d.leverage_threshold, xr,
-        tr("Leverage: flagged above %1 × %2 coefficients / %3 rows = %4")
-            .arg(ruleNumber(d.rules.leverage_multiple), countText(d.p), n, numberText(d.leverage_threshold, 3)));
+                     .arg(ruleNumber(d.rules.cooks_numerator), n, numberText(d.cooks_threshold)));
+    drawRuleLine(leverage, d.leverage_threshold, xr,
+                 tr("Leverage: flagged above %1 × %2 coefficients / %3 rows = %4")
+                     .arg(ruleNumber(d.rules.leverage_multiple), countText(d.p), n, numberText(d.leverage_threshold)));
     for (Panel* p : {&cooks, &leverage}) {
         p->rect->axis(QCPAxis::atBottom)->setRange(xr);
         // From just below zero, so rows at zero show whole above the axis.

@@ -6,7 +6,7 @@
 #include <algorithm>
 #include <cmath>
 
-#include "common/probe_number_format.hpp"
+#include "common/number_text.hpp"
 #include "plots/plot_style.hpp"
 #include "plots/probe_plot_util.hpp"
 #include "style/estuary.hpp"
@@ -115,7 +115,7 @@ void EffectPlot::rebuild() {
 
 void EffectPlot::buildContinuous() {
     const EffectPlotData& d = data_;
-    auto xTicker = QSharedPointer<QCPAxisTicker>(new QCPAxisTicker);
+    auto xTicker = numberTicker();
     plot_->xAxis->setTicker(xTicker);
     plot_->xAxis->setRange(d.axis.first, d.axis.second);
     double lo = 0, hi = 0;
@@ -231,7 +231,7 @@ void EffectPlot::drawBoundaries() {
         if (k + 1 < shown.size() && shown[k + 1] - b < 0.1 * span) h = Qt::AlignRight;
         else if (k > 0 && b - shown[k - 1] < 0.1 * span) h = Qt::AlignLeft;
         t->setPositionAlignment(Qt::AlignTop | h);
-        t->setText(probeNumber(b, 3));
+        t->setText(numberText(b));
         t->setFont(note);
         t->setColor(estuary::ink);
         t->setBrush(QBrush(QColor(255, 255, 255, 220)));
@@ -396,7 +396,7 @@ void EffectPlot::setCurrent(double m, const EffectPoint& at, bool replot) {
     }
     const std::size_t k = static_cast<std::size_t>(std::max(0L, std::lround(m)));
     handleLabel_->setText(data_.groups ? (k < data_.groupNames.size() ? data_.groupNames[k] : QString())
-                                       : probeNumber(m) + (at.beyond_data ? tr("  beyond the data") : QString()));
+                                       : numberText(m) + (at.beyond_data ? tr("  beyond the data") : QString()));
     // Keep the label inside the plot near either edge.
     const QRect r = plot_->axisRect()->rect();
     const double px = plot_->xAxis->coordToPixel(m);

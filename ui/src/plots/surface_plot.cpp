@@ -24,6 +24,7 @@ void styleScaleAxis(QCPAxis* axis, const QFont& font) {
     axis->setLabelColor(estuary::ink);
     axis->setTickLabelFont(font);
     axis->setLabelFont(font);
+    axis->setTicker(numberTicker());
 }
 
 }  // namespace

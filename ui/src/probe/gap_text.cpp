@@ -4,7 +4,7 @@
 #include <QStringList>
 #include <algorithm>
 
-#include "common/probe_number_format.hpp"
+#include "common/number_text.hpp"
 
 namespace moderato::ui {
 
@@ -18,9 +18,9 @@ struct Piece {
 };
 
 QString phrase(const Piece& p, const QString& focal) {
-    if (p.fromStart && !p.toEnd) return tr("%1 below %2").arg(focal, probeNumber(p.b));
-    if (!p.fromStart && p.toEnd) return tr("%1 above %2").arg(focal, probeNumber(p.a));
-    return tr("%1 from %2 to %3").arg(focal, probeNumber(p.a), probeNumber(p.b));
+    if (p.fromStart && !p.toEnd) return tr("%1 below %2").arg(focal, numberText(p.b));
+    if (!p.fromStart && p.toEnd) return tr("%1 above %2").arg(focal, numberText(p.a));
+    return tr("%1 from %2 to %3").arg(focal, numberText(p.a), numberText(p.b));
 }
 
 // "x below 3 and above 7": the focal predictor's name only once.
@@ -62,7 +62,7 @@ GapStatement describeGap(const SignificanceRegions& regions, const QString& subj
     }
     if (cursor < hi) apart.push_back({cursor, hi, atStart, true});
 
-    const QString observed = tr("%1 to %2").arg(probeNumber(lo), probeNumber(hi));
+    const QString observed = tr("%1 to %2").arg(numberText(lo), numberText(hi));
     const QString pointwise = tr("%1 pointwise").arg(level);
     if (differ.empty()) {
         out.text = tr("%1 cannot be told apart (%2) anywhere in the observed range of %3 (%4).")
@@ -78,7 +78,7 @@ GapStatement describeGap(const SignificanceRegions& regions, const QString& subj
     }
     if (!out.beyond.empty()) {
         QStringList where;
-        for (double b : out.beyond) where << probeNumber(b);
+        for (double b : out.beyond) where << numberText(b);
         const QString list =
             where.size() == 1 ? where.front()
                               : where.mid(0, where.size() - 1).join(QStringLiteral(", ")) + tr(" and ") + where.back();

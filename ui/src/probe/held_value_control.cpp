@@ -9,7 +9,6 @@
 #include <cmath>
 
 #include "common/held_value_text.hpp"
-#include "common/probe_number_format.hpp"
 
 namespace moderato::ui {
 

@@ -14,7 +14,7 @@
 #include <algorithm>
 #include <set>
 
-#include "common/probe_number_format.hpp"
+#include "common/number_text.hpp"
 #include "common/table_clipboard.hpp"
 #include "style/palette_text.hpp"
 
@@ -44,17 +44,17 @@ QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
             case Value:
                 return r.label;
             case Effect:
-                return probeNumber(e.estimate);
+                return numberText(e.estimate);
             case SE:
-                return probeNumber(e.std_error);
+                return numberText(e.std_error);
             case Statistic:
-                return probeNumber(e.statistic, 3);
+                return numberText(e.statistic);
             case P:
-                return probePValue(e.p_value);
+                return pValueText(e.p_value);
             case Lower:
-                return probeNumber(e.ci_lower);
+                return numberText(e.ci_lower);
             case Upper:
-                return probeNumber(e.ci_upper);
+                return numberText(e.ci_upper);
             case Note:
                 return e.beyond_data ? tr("beyond the data") : QString();
         }

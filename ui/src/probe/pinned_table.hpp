@@ -1,8 +1,9 @@
 // The pick-a-point table: the conditional effect at each pinned moderator
 // value (or, before anything is pinned, at the defaults core chose: mean and
-// ± 1 SD; for groups, every group), with SE, test, p, interval and a
-// "beyond the data" flag. Pinned rows can be removed; the table copies as
-// tab-separated text.
+// ± 1 SD; for groups, every group) in the house order of an estimate, the
+// same as the memo's and the exported tables: moderator value, effect,
+// interval (low, high), SE, test value, p, and a "beyond the data" note.
+// Pinned rows can be removed; the table copies as tab-separated text.
 #pragma once
 
 #include <QAbstractTableModel>

@@ -5,7 +5,7 @@
 #include <QPainterPath>
 #include <algorithm>
 
-#include "common/probe_number_format.hpp"
+#include "common/number_text.hpp"
 #include "style/estuary.hpp"
 
 namespace moderato::ui {
@@ -69,13 +69,14 @@ void ReadoutPanel::clear(const QString& message) {
 QList<ReadoutPanel::Row> ReadoutPanel::rows() const {
     QList<Row> r;
     if (!hasPoint_) return r;
-    r << Row{tr("effect"), probeNumber(point_.estimate)};
-    r << Row{tr("SE"), probeNumber(point_.std_error)};
-    r << Row{intervalName_, tr("%1 to %2").arg(probeNumber(point_.ci_lower), probeNumber(point_.ci_upper))};
-    r << Row{statisticName_, probeNumber(point_.statistic, 3)};
-    r << Row{tr("p"), probePValue(point_.p_value)};
-    if (band_)
-        r << Row{tr("simultaneous band"), tr("%1 to %2").arg(probeNumber(band_->first), probeNumber(band_->second))};
+    // The house order of an estimate, as in the pinned values and the memo's tables:
+    // effect, interval, SE, test value, p.
+    r << Row{tr("effect"), numberText(point_.estimate)};
+    r << Row{intervalName_, rangeText(point_.ci_lower, point_.ci_upper)};
+    r << Row{tr("SE"), numberText(point_.std_error)};
+    r << Row{statisticName_, numberText(point_.statistic)};
+    r << Row{tr("p"), pValueText(point_.p_value)};
+    if (band_) r << Row{tr("simultaneous band"), rangeText(band_->first, band_->second)};
     return r;
 }
 

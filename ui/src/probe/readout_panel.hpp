@@ -1,5 +1,5 @@
 // The readout beside the plots: the moderator value under the slider and the
-// conditional effect there (estimate, SE, interval, test), with a statement
+// conditional effect there (effect, interval, SE, test value, p), with a statement
 // of what is shown (scale, SE kind, level, band) so a screenshot explains
 // itself. Painted directly with a fixed size, so updating it on every frame
 // of a drag repaints this widget only and never re-lays out the page.

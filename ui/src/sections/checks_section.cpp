@@ -198,20 +198,19 @@ QString ChecksSection::noteText(const Diagnostics& d) const {
 
 QString ChecksSection::rulesText(const Diagnostics& d) const {
     // The rules core applies (diagnostics.hpp, DiagnosticRules), in words.
-    const QString n = countText(static_cast<double>(d.n));
+    const QString n = countText(static_cast<long long>(d.n));
     const QString residual =
         d.family == Family::Logistic ? tr("standardised Pearson residual") : tr("externally studentised residual");
-    auto multiple = [](double v) { return v == std::round(v) ? countText(v) : numberText(v); };
+    auto multiple = [](double v) { return v == std::round(v) ? countText(static_cast<long long>(v)) : numberText(v); };
     QString rules =
         tr("Rows are flagged by rules of thumb (common practice, not tests), with %1 rows in the fit and %2 "
            "estimated coefficients: %3 beyond ±%4 · leverage above %5 × %2 / %1 = %6 · Cook's distance above "
            "%7 / %1 = %8.")
-            .arg(n, countText(d.p), residual, multiple(d.rules.residual_limit), multiple(d.rules.leverage_multiple),
-                 numberText(d.leverage_threshold, 3), multiple(d.rules.cooks_numerator),
-                 numberText(d.cooks_threshold, 3));
-    rules +=
-        QLatin1Char(' ') +
-        tr("%1 of %2 rows flagged, most influential first.").arg(countText(static_cast<double>(d.flagged.size())), n);
+            .arg(n, countText(static_cast<long long>(d.p)), residual, multiple(d.rules.residual_limit),
+                 multiple(d.rules.leverage_multiple), numberText(d.leverage_threshold),
+                 multiple(d.rules.cooks_numerator), numberText(d.cooks_threshold));
+    rules += QLatin1Char(' ') + tr("%1 of %2 rows flagged, most influential first.")
+                                    .arg(countText(static_cast<long long>(d.flagged.size())), n);
     if (d.n > 20000) rules += QLatin1Char(' ') + tr("Dense plots are thinned; flagged rows are always drawn.");
     return rules;
 }

@@ -15,7 +15,7 @@
 #include <algorithm>
 #include <cmath>
 
-#include "common/number_format.hpp"
+#include "common/number_text.hpp"
 #include "common/table_clipboard.hpp"
 #include "estimates/coefficient_model.hpp"
 #include "model/project_document.hpp"
@@ -56,8 +56,8 @@ QString seFromText(const std::string& text, Family f) {
 QString testText(double statistic, double df1, double df2, double chiSquare, double p) {
     const QString text =
         std::isinf(df2)
-            ? QStringLiteral("\u03c7\u00b2(%1) = %2, %3").arg(df1).arg(formatFixed(chiSquare, 2), pClause(p))
-            : QStringLiteral("F(%1, %2) = %3, %4").arg(df1).arg(df2).arg(formatFixed(statistic, 2), pClause(p));
+            ? QStringLiteral("\u03c7\u00b2(%1) = %2, %3").arg(df1).arg(numberText(chiSquare), pClauseText(p))
+            : QStringLiteral("F(%1, %2) = %3, %4").arg(df1).arg(df2).arg(numberText(statistic), pClauseText(p));
     return text.toHtmlEscaped();
 }
 
@@ -78,7 +78,7 @@ QStringList centredLabels(const AnalysisRun& run) {
                 parts << QString::fromStdString(factor);
                 continue;
             }
-            parts << QStringLiteral("(%1 \u2212 %2)").arg(QString::fromStdString(col), formatNumber(it->second));
+            parts << QStringLiteral("(%1 \u2212 %2)").arg(QString::fromStdString(col), numberText(it->second));
         }
         out << parts.join(QStringLiteral("\u00d7"));
     }
@@ -249,13 +249,13 @@ void EstimatesSection::showHeader(const Analysis& a, const FitResult& main) {
     header_->setText(tr("<b>Coefficients</b> of %1 &nbsp;·&nbsp; %2 model%3 &nbsp;·&nbsp; %4 standard errors "
                         "&nbsp;·&nbsp; %5 confidence intervals &nbsp;·&nbsp; %6")
                          .arg(h(a.roles.outcome), familyName(main.family), logistic ? tr(" (log-odds)") : QString(),
-                              se.toHtmlEscaped(), levelPercent(main.level), dist));
+                              se.toHtmlEscaped(), levelText(main.level), dist));
 }
 
 void EstimatesSection::showCentres(const AnalysisRun& run) {
     QStringList at;
     for (const auto& [col, centre] : run.centres)
-        at << tr("%1 at %2").arg(QString::fromStdString(col), formatNumber(centre));
+        at << tr("%1 at %2").arg(QString::fromStdString(col), numberText(centre));
     toggleText_->setText(
         tr("Centred: %1. Centring changes the intercept and the lower-order coefficients (each main effect "
            "becomes the effect where the other centred columns are at their means); it does not change the "
@@ -266,12 +266,13 @@ void EstimatesSection::showCentres(const AnalysisRun& run) {
 void EstimatesSection::showFitStatistics(const FitResult& main) {
     const bool logistic = main.family == Family::Logistic;
     QString rows;
-    rows += row(QStringLiteral("n"), main.n_excluded ? tr("%1 (%2 rows excluded)").arg(main.n).arg(main.n_excluded)
-                                                     : QString::number(main.n));
+    rows += row(QStringLiteral("n"),
+                main.n_excluded ? tr("%1 (%2 rows excluded)").arg(countText(main.n), countText(main.n_excluded))
+                                : countText(main.n));
     if (!logistic) {
-        rows += row(QStringLiteral("R\u00b2"), formatFixed(main.r_squared, 4));
-        rows += row(tr("Adjusted R\u00b2"), formatFixed(main.adj_r_squared, 4));
-        rows += row(tr("Residual SD"), formatNumber(main.residual_sd));
+        rows += row(QStringLiteral("R\u00b2"), numberText(main.r_squared));
+        rows += row(tr("Adjusted R\u00b2"), numberText(main.adj_r_squared));
+        rows += row(tr("Residual SD"), numberText(main.residual_sd));
         if (main.f_df1 > 0)
             rows +=
                 row(tr("All terms but the intercept"),
@@ -279,8 +280,8 @@ void EstimatesSection::showFitStatistics(const FitResult& main) {
                         tr(" (%1 covariance)").arg(seLabel(main.se, main.family)));
     } else {
         rows += row(tr("Deviance"),
-                    tr("%1 (null model %2)").arg(formatNumber(main.deviance, 6), formatNumber(main.null_deviance, 6)));
-        rows += row(tr("McFadden R\u00b2"), formatFixed(main.mcfadden_r2, 4));
+                    tr("%1 (null model %2)").arg(numberText(main.deviance), numberText(main.null_deviance)));
+        rows += row(tr("McFadden R\u00b2"), numberText(main.mcfadden_r2));
         if (main.lr_df > 0)
             rows += row(
                 tr("All terms but the intercept"),
@@ -288,9 +289,9 @@ void EstimatesSection::showFitStatistics(const FitResult& main) {
         rows += row(tr("Iterations"), main.converged ? tr("%1 (converged)").arg(main.iterations)
                                                      : tr("%1 (did not converge)").arg(main.iterations));
     }
-    rows += row(tr("Log-likelihood"), formatNumber(main.log_likelihood, 6));
-    rows += row(QStringLiteral("AIC"), formatNumber(main.aic, 6));
-    rows += row(QStringLiteral("BIC"), formatNumber(main.bic, 6));
+    rows += row(tr("Log-likelihood"), numberText(main.log_likelihood));
+    rows += row(QStringLiteral("AIC"), numberText(main.aic));
+    rows += row(QStringLiteral("BIC"), numberText(main.bic));
     fit_->setText(QStringLiteral("<table>%1</table>").arg(rows));
     fit_->show();
 }
@@ -309,8 +310,8 @@ void EstimatesSection::showComparison(const FitResult& main) {
         if (!logistic) {
             text = tr("Without %1: R\u00b2 = %2; with: %3 (change %4).<br>"
                       "R\u00b2-change test (classical, from the sums of squares): %5.")
-                       .arg(terms, formatFixed(c.r_squared_reduced, 4), formatFixed(main.r_squared, 4),
-                            formatFixed(c.r_squared_change, 4),
+                       .arg(terms, numberText(c.r_squared_reduced), numberText(main.r_squared),
+                            numberText(c.r_squared_change),
                             testText(c.f_statistic, c.df1, c.df2, c.f_statistic * c.df1, c.p_value));
         } else {
             text = tr("Without %1.<br>Likelihood-ratio test: %2.")
@@ -338,7 +339,7 @@ void EstimatesSection::showWarningsAndNotes(const FitResult& main, const FitResu
     QStringList highVif;
     for (const auto& c : shown.coefficients)
         if (!c.aliased && std::isfinite(c.vif) && c.vif > 10)
-            highVif << QStringLiteral("%1 (%2)").arg(h(c.term), formatFixed(c.vif, 1));
+            highVif << QStringLiteral("%1 (%2)").arg(h(c.term), numberText(c.vif));
     if (!highVif.isEmpty())
         notes << tr("VIF above 10: %1. A product term is correlated with its own components; that inflates their "
                     "VIFs without harming the product coefficient, and centring lowers them without changing the fit.")

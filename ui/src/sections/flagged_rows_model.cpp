@@ -55,11 +55,11 @@ QVariant FlaggedRowsModel::data(const QModelIndex& index, int role) const {
         case Fitted:
             return numberText(d_->fitted[i]);
         case Residual:
-            return numberText(d_->check_residual()[i], 3);
+            return numberText(d_->check_residual()[i]);
         case Leverage:
-            return numberText(d_->leverage[i], 3);
+            return numberText(d_->leverage[i]);
         case Cooks:
-            return numberText(d_->cooks_distance[i], 3);
+            return numberText(d_->cooks_distance[i]);
         case Rules:
             return rulesText(r->flags);
         default:

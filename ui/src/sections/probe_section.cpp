@@ -5,7 +5,6 @@
 #include <QEvent>
 #include <QHBoxLayout>
 #include <QLabel>
-#include <QLocale>
 #include <QScrollArea>
 #include <QSlider>
 #include <QSplitter>
@@ -18,7 +17,7 @@
 
 #include "common/figure_caption.hpp"
 #include "common/held_value_text.hpp"
-#include "common/probe_number_format.hpp"
+#include "common/number_text.hpp"
 #include "model/project_document.hpp"
 #include "plots/cells_view.hpp"
 #include "plots/effect_plot.hpp"
@@ -255,7 +254,7 @@ void ProbeSection::connectSettings() {
         const QString col = q(a->roles.second_moderator);
         editSettings([v](ProbeSettings& p) { p.second_value = v; }, std::isnan(v)
                                                                         ? tr("Hold %1 at its default").arg(col)
-                                                                        : tr("Hold %1 at %2").arg(col, probeNumber(v)));
+                                                                        : tr("Hold %1 at %2").arg(col, numberText(v)));
     });
     connect(differ_, &QCheckBox::toggled, this, [this](bool on) {
         if (rebuilding_ || !engine_.valid()) return;
@@ -403,7 +402,7 @@ QString ProbeSection::productCoefficientText() const {
     const std::string f = engine_.focal(), m = engine_.moderator();
     for (const std::string& term : {f + "×" + m, m + "×" + f}) {
         const int i = fit.index_of(term);
-        if (i >= 0) return QStringLiteral(" (%1 = %2)").arg(q(term), probeNumber(fit.beta[i]));
+        if (i >= 0) return QStringLiteral(" (%1 = %2)").arg(q(term), numberText(fit.beta[i]));
     }
     return {};
 }
@@ -444,14 +443,14 @@ QString ProbeSection::moderatorLabel(double m) const {
             static_cast<std::size_t>(std::clamp(std::lround(m), 0L, static_cast<long>(names.size()) - 1));
         return QStringLiteral("%1 = %2").arg(q(engine_.moderator()), q(names[k]));
     }
-    return QStringLiteral("%1 = %2").arg(q(engine_.moderator()), probeNumber(m));
+    return QStringLiteral("%1 = %2").arg(q(engine_.moderator()), numberText(m));
 }
 
 void ProbeSection::fillReadoutContext() {
     if (!engine_.valid()) return;
     const ProbeResult& p = engine_.probe();
     const Analysis& a = shown_;
-    const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
+    const QString level = levelText(p.level);
     QString scale;
     if (engine_.probability())
         scale = p.averaging == "values" ? tr("Probability scale, other predictors at their means")
@@ -462,11 +461,10 @@ void ProbeSection::fillReadoutContext() {
     const QString held = heldText();
     if (!held.isEmpty()) statement = tr("With %1 · %2").arg(held, statement);
     if (simultaneousShown())
-        statement += tr(" · band: %1 simultaneous (critical value %2)")
-                         .arg(level, probeNumber(p.simultaneous->critical_value, 3));
-    statement +=
-        tr(" · n\u00A0=\u00A0%1").arg(QLocale(QLocale::English).toString(static_cast<qulonglong>(run_->fit.n)));
-    readout_->setContext(effectTitle(), statisticName(p.df), tr("%1 CI").arg(level), statement);
+        statement +=
+            tr(" · band: %1 simultaneous (critical value %2)").arg(level, numberText(p.simultaneous->critical_value));
+    statement += tr(" · n\u00A0=\u00A0%1").arg(countText(static_cast<long long>(run_->fit.n)));
+    readout_->setContext(effectTitle(), statisticText(p.df), tr("%1 CI").arg(level), statement);
 
     const QString f = escaped(q(engine_.focal())), mod = escaped(q(engine_.moderator()));
     const QString yWhat = escaped(outcomeWhat());
@@ -490,7 +488,7 @@ void ProbeSection::buildPlots() {
     const ProbeResult& p = engine_.probe();
     const bool groups = engine_.groups();
     const bool sim = simultaneousShown();
-    const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
+    const QString level = levelText(p.level);
 
     buildEffectPlot(sim, level);
     LinesPlotData l = linesPlotData();
@@ -558,7 +556,7 @@ LinesPlotData ProbeSection::linesPlotData() {
         const char* defaultNames[] = {QT_TR_NOOP("mean − 1 SD"), QT_TR_NOOP("mean"), QT_TR_NOOP("mean + 1 SD")};
         int k = 0;
         for (const auto& ef : p.effects) {
-            QString name = QStringLiteral("%1 = %2").arg(mod, probeNumber(ef.moderator_value));
+            QString name = QStringLiteral("%1 = %2").arg(mod, numberText(ef.moderator_value));
             if (defaults && p.effects.size() == 3) name += QStringLiteral(" (%1)").arg(tr(defaultNames[k]));
             if (ef.beyond_data) name += tr(" (beyond the data)");
             l.lines.push_back({name, engine_.lineAt(ef.moderator_value), k});
@@ -624,7 +622,7 @@ void ProbeSection::fillTable() {
         const auto& pins = shown_.probe.pinned;
         const bool defaults = pins.empty();
         for (std::size_t k = 0; k < p.effects.size(); ++k) {
-            PinnedTableModel::Row r{probeNumber(p.effects[k].moderator_value), p.effects[k], !defaults,
+            PinnedTableModel::Row r{numberText(p.effects[k].moderator_value), p.effects[k], !defaults,
                                     defaults ? -1 : static_cast<int>(k)};
             rows.push_back(r);
         }
@@ -638,12 +636,12 @@ void ProbeSection::fillTable() {
             const auto [lo, hi] = engine_.observedRange();
             caption += (caption.isEmpty() ? QString() : QStringLiteral(" ")) +
                        tr("Shaded rows in italics lie beyond the data (%1 observed from %2 to %3).")
-                           .arg(mod, probeNumber(lo), probeNumber(hi));
+                           .arg(mod, numberText(lo), numberText(hi));
         }
         pinned_->setCaption(caption);
     }
-    const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
-    pinned_->model()->setRows(std::move(rows), mod, statisticName(p.df), level);
+    const QString level = levelText(p.level);
+    pinned_->model()->setRows(std::move(rows), mod, statisticText(p.df), level);
 }
 
 // The summary's text as HTML (for the label) and as plain lines (for copying).
@@ -686,13 +684,13 @@ void ProbeSection::summarizeInteraction(SummaryText& out) {
     if (p.interaction_effect) {
         // The interaction on the probability scale (Ai & Norton), which is not the product coefficient.
         const auto& ie = *p.interaction_effect;
-        const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
+        const QString level = levelText(p.level);
         out.section(tr("Interaction on the probability scale"));
         QString kind = q(ie.kind);
         if (!kind.isEmpty()) kind[0] = kind[0].toUpper();
         out.line(tr("%1 of P(%2 = 1): %3 (SE %4, %5 CI %6 to %7, p %8)")
-                     .arg(kind, q(engine_.outcome()), probeNumber(ie.estimate), probeNumber(ie.std_error), level,
-                          probeNumber(ie.ci_lower), probeNumber(ie.ci_upper), probePValue(ie.p_value)));
+                     .arg(kind, q(engine_.outcome()), numberText(ie.estimate), numberText(ie.std_error), level,
+                          numberText(ie.ci_lower), numberText(ie.ci_upper), pValueText(ie.p_value)));
         out.line(tr("How the effect of %1 on P(%2 = 1) changes with %3, %4 (Ai & Norton). The product coefficient "
                     "on the log-odds scale%5 is not this: it does not give the size, or even the sign, of the "
                     "interaction on the probability scale.")
@@ -724,11 +722,10 @@ void ProbeSection::summarizeRegions(SummaryText& out) {
     } else {
         if (sim)
             out.line(tr("Where the whole simultaneous band excludes zero (critical value %1).")
-                         .arg(probeNumber(r->critical_value, 3)));
+                         .arg(numberText(r->critical_value)));
         else
             out.line(tr("Where the %1 pointwise interval excludes zero (critical value %2).")
-                         .arg(QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%'),
-                              probeNumber(r->critical_value, 3)));
+                         .arg(levelText(p.level), numberText(r->critical_value)));
         if (r->boundaries.empty()) {
             if (r->significant.empty()) out.line(tr("Significant nowhere."));
             else if (std::isinf(r->significant.front().lo) && std::isinf(r->significant.front().hi))
@@ -737,12 +734,12 @@ void ProbeSection::summarizeRegions(SummaryText& out) {
         }
         for (double b : r->boundaries)
             out.line(tr("Boundary at %1 = %2 — %3")
-                         .arg(mod, probeNumber(b),
+                         .arg(mod, numberText(b),
                               b < lo || b > hi
-                                  ? tr("beyond the data (observed %1 to %2)").arg(probeNumber(lo), probeNumber(hi))
+                                  ? tr("beyond the data (observed %1 to %2)").arg(numberText(lo), numberText(hi))
                                   : tr("inside the observed range")));
         QStringList regions;
-        for (const Region& g : r->significant) regions << tr("%1 to %2").arg(probeNumber(g.lo), probeNumber(g.hi));
+        for (const Region& g : r->significant) regions << tr("%1 to %2").arg(numberText(g.lo), numberText(g.hi));
         if (!regions.isEmpty()) out.line(tr("Significant for %1 in: %2").arg(mod, regions.join(QStringLiteral("; "))));
     }
     out.end();
@@ -757,17 +754,17 @@ void ProbeSection::summarizeCrossovers(SummaryText& out) {
         any = true;
         QString interval;
         if (c.ci_kind == "bounded")
-            interval = tr("interval %1 to %2").arg(probeNumber(c.ci_lower), probeNumber(c.ci_upper));
+            interval = tr("interval %1 to %2").arg(numberText(c.ci_lower), numberText(c.ci_upper));
         else if (c.ci_kind == "unbounded")
             interval =
-                tr("interval unbounded: below %1 and above %2").arg(probeNumber(c.ci_lower), probeNumber(c.ci_upper));
+                tr("interval unbounded: below %1 and above %2").arg(numberText(c.ci_lower), numberText(c.ci_upper));
         else if (c.ci_kind == "whole line") interval = tr("the interval is the whole line");
         const auto [flo, fhi] = engine_.focalRange();
         out.line(tr("%1: the lines cross at %2 = %3 (%4), %5.")
-                     .arg(q(c.groups), q(engine_.focal()), probeNumber(c.focal_value), interval,
+                     .arg(q(c.groups), q(engine_.focal()), numberText(c.focal_value), interval,
                           c.within_observed_range
                               ? tr("inside the data")
-                              : tr("beyond the data (observed %1 to %2)").arg(probeNumber(flo), probeNumber(fhi))));
+                              : tr("beyond the data (observed %1 to %2)").arg(numberText(flo), numberText(fhi))));
     }
     if (!any) out.line(tr("The lines are parallel: they do not cross."));
     out.end();
@@ -776,7 +773,7 @@ void ProbeSection::summarizeCrossovers(SummaryText& out) {
 void ProbeSection::summarizeGaps(SummaryText& out) {
     const ProbeResult& p = engine_.probe();
     const QString mod = q(engine_.moderator());
-    const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
+    const QString level = levelText(p.level);
     const QString y = q(engine_.outcome());
     const QString predicted = engine_.logistic() ? tr("log-odds of %1").arg(y) : y;
     const bool groups = engine_.groups();

@@ -4,6 +4,7 @@
 #include <QBrush>
 #include <QPalette>
 
+#include "common/number_text.hpp"
 #include "specify/column_mime.hpp"
 #include "style/palette_text.hpp"
 
@@ -54,7 +55,7 @@ QVariant ColumnListModel::data(const QModelIndex& index, int role) const {
             case Kind:
                 return natureName(e.nature);
             case Missing:
-                return QString::number(e.missing);
+                return countText(static_cast<long long>(e.missing));
             case InRole:
                 return inRole ? roleName(*inRole) : QString();
         }

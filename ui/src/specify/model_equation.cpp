@@ -4,7 +4,7 @@
 #include <algorithm>
 #include <set>
 
-#include "common/number_format.hpp"
+#include "common/number_text.hpp"
 #include "moderato/estimation/design.hpp"
 #include "specify/role_edit.hpp"
 
@@ -17,13 +17,6 @@ QString plain(const std::string& s) { return QString::fromStdString(s); }
 const QString kTimes = QStringLiteral("\u00d7");
 
 using Factors = std::vector<Atom>;  // one coefficient's factors; empty: the intercept
-
-QString superscript(int n) {
-    static const char16_t digits[] = {0x2070, 0x00B9, 0x00B2, 0x00B3, 0x2074, 0x2075, 0x2076, 0x2077, 0x2078, 0x2079};
-    QString out;
-    for (const QChar c : QString::number(n)) out += QChar(digits[c.unicode() - '0']);
-    return out;
-}
 
 // The coefficients the roles ask for, expanded like core expands them:
 // intercept, main effects, then the products (a three-way product brings its
@@ -98,11 +91,11 @@ Rendered renderFactor(const Atom& atom, const Analysis& a, const Table* table, c
         QString centre = tr("mean");
         if (run) {
             const auto it = run->centres.find(atom.column);
-            if (it != run->centres.end()) centre = formatNumber(it->second);
+            if (it != run->centres.end()) centre = numberText(it->second);
         }
         base = QStringLiteral("(%1 \u2212 %2)").arg(name, centre);
     }
-    if (atom.power != 1) base += superscript(atom.power);
+    if (atom.power != 1) base += superscriptText(atom.power);
     return {base.toHtmlEscaped(), base};
 }
 
@@ -128,7 +121,7 @@ std::set<std::string> columnsOf(const Factors& f) {
 
 QString bList(const std::vector<int>& idx) {
     QStringList parts;
-    for (int i : idx) parts << QStringLiteral("b") + subscript(i);
+    for (int i : idx) parts << QStringLiteral("b") + subscriptText(i);
     if (parts.size() <= 3) return parts.join(QStringLiteral(", "));
     return parts.front() + QStringLiteral(" \u2026 ") + parts.back();
 }
@@ -240,7 +233,7 @@ ModelEquation modelEquation(const Analysis& a, const Table* table, const Analysi
     QStringList htmlTerms, plainTerms;
     bool hasIndicator = false;
     for (std::size_t i = 0; i < coefs.size(); ++i) {
-        const QString b = QStringLiteral("b") + subscript(static_cast<int>(i));
+        const QString b = QStringLiteral("b") + subscriptText(static_cast<int>(i));
         QString label;
         for (std::size_t k = 0; k < coefs[i].size(); ++k) {
             const Atom& atom = coefs[i][k];

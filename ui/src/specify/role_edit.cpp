@@ -1,4 +1,5 @@
 #include "specify/role_edit.hpp"
+#include "common/number_text.hpp"
 
 #include <QCoreApplication>
 #include <algorithm>
@@ -76,8 +77,6 @@ RoleEdit checked(const Analysis& before, Analysis after, const Table* table, QSt
     e.note = std::move(note);
     return e;
 }
-
-QString formatValue(double v) { return QString::number(v, 'g', 10); }
 
 }  // namespace
 
@@ -213,7 +212,7 @@ QStringList roleProblems(const Analysis& a, const Table* table) {
                     if (v != v || v == 0 || v == 1) continue;
                     out << tr("A logistic model needs an Outcome of 0s and 1s: %1 holds %2 (%3). Choose a 0/1 "
                               "Outcome or the linear family.")
-                               .arg(q(a.roles.outcome), formatValue(v), plain(table->row_location(i)));
+                               .arg(q(a.roles.outcome), dataText(v), plain(table->row_location(i)));
                     break;
                 }
             }

@@ -1,8 +1,12 @@
 // The tables of an analysis, ready for export and for the memo: estimates,
 // fit statistics, the comparison with the model without the product terms,
-// the pick-a-point table of conditional effects, and for two categorical
-// predictors the cell table and its contrasts. Display text follows
-// report_text.hpp; the CSV column holds the exact doubles.
+// the effects at chosen moderator values (pick-a-point), and for two
+// categorical predictors the cell table and its contrasts. Display text
+// follows support/report_text.hpp; the CSV column holds the exact doubles.
+// The effects and the contrasts list each estimate in the house order, as the
+// Probe section does: the value, its interval (low, high), SE, test value, p.
+// The estimates table keeps the order regression coefficients are usually
+// printed in (estimate, SE, test value, p, interval).
 #pragma once
 
 #include <string>
