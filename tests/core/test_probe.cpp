@@ -61,9 +61,9 @@ std::vector<double> scan_boundaries(const EffectFunction& f, double q, double lo
 void expect_boundaries_match_scan(const EffectFunction& f, double q, double lo, double hi, std::size_t count,
                                   const std::string& expected_kind) {
     const auto sig = significance_regions(f, q);
-    EXPECT_EQ(sig.kind, expected_kind);
+    EXPECT_EQ(kind_text(sig), expected_kind);
     const auto scan = scan_boundaries(f, q, lo, hi);
-    ASSERT_EQ(sig.boundaries.size(), count) << sig.kind;
+    ASSERT_EQ(sig.boundaries.size(), count) << kind_text(sig);
     ASSERT_EQ(scan.size(), count);
     for (std::size_t i = 0; i < count; ++i)
         EXPECT_LE(std::abs(sig.boundaries[i] - scan[i]), 1e-9 * std::max(1.0, std::abs(scan[i]))) << i;
@@ -178,7 +178,7 @@ TEST(Probe, LinesMeetAtMinusB2OverB3AndFiellerMatchesTheGapTest) {
         const double v = f.covariance(i2, i2) + 2 * x * f.covariance(i2, i3) + x * x * f.covariance(i3, i3);
         return std::abs(e) / std::sqrt(v);
     };
-    ASSERT_EQ(c.ci_kind, "bounded");
+    ASSERT_EQ(c.ci_kind, FiellerInterval::Bounded);
     EXPECT_NEAR(gap_t(c.ci_lower), f.critical_value, 1e-9);
     EXPECT_NEAR(gap_t(c.ci_upper), f.critical_value, 1e-9);
     EXPECT_LT(gap_t(0.5 * (c.ci_lower + c.ci_upper)), f.critical_value);

@@ -261,6 +261,19 @@ void in_waves(int count, unsigned threads, int& done, int total, const Bootstrap
 
 }  // namespace
 
+std::string resampling_text(const BootstrapResult& r) {
+    return r.resampling == Resampling::Clusters ? "clusters (G = " + std::to_string(r.units) + ")" : "cases";
+}
+
+std::string jackknife_text(const BootstrapResult& r) {
+    const bool clustered = r.resampling == Resampling::Clusters;
+    const std::string unit = clustered ? "cluster" : "row";
+    const int J = r.jackknife_groups;
+    return J == r.units
+               ? "leave one " + unit + " out (" + (clustered ? "G" : "n") + " = " + std::to_string(r.units) + ")"
+               : "grouped: " + std::to_string(J) + " groups (" + unit + " i in group i mod " + std::to_string(J) + ")";
+}
+
 double quantile_type7(const std::vector<double>& sorted, double p) {
     if (sorted.empty() || std::isnan(p)) return kNaN;
     const double h = std::clamp(p, 0.0, 1.0) * static_cast<double>(sorted.size() - 1);
@@ -384,18 +397,14 @@ BootstrapResult bootstrap(const Design& d, const ModelSpec& spec, const Bootstra
     BootstrapResult res;
     res.requested = options.replicates;
     res.level = options.level;
-    res.resampling = clustered ? "clusters (G = " + std::to_string(d.n_clusters) + ")" : "cases";
+    res.resampling = clustered ? Resampling::Clusters : Resampling::Cases;
 
     // Jackknife groups: rows (cases) or clusters, at most 200, unit i in group
     // i mod J (a fixed split that does not follow any sorting of the data).
     const int units = clustered ? d.n_clusters : static_cast<int>(n);
+    res.units = units;
     const int J = std::min(units, kMaxJackknifeGroups);
     res.jackknife_groups = J;
-    const std::string unit = clustered ? "cluster" : "row";
-    res.jackknife =
-        J == units
-            ? "leave one " + unit + " out (" + (clustered ? "G" : "n") + " = " + std::to_string(units) + ")"
-            : "grouped: " + std::to_string(J) + " groups (" + unit + " i in group i mod " + std::to_string(J) + ")";
 
     const int R = options.replicates;
     const int total = R + J;
@@ -404,7 +413,7 @@ BootstrapResult bootstrap(const Design& d, const ModelSpec& spec, const Bootstra
     // 1. Replicates.
     res.replicates = Eigen::MatrixXd::Constant(R, m, kNaN);
     std::vector<std::string> reasons(static_cast<std::size_t>(R));
-    const std::string note = "bootstrap replicate (" + res.resampling + ")";
+    const std::string note = "bootstrap replicate (" + resampling_text(res) + ")";
     in_waves(R, threads, done, total, options, [&](int r) {
         const Subset s = rs.draw(options.seed, static_cast<std::uint64_t>(r));
         const Design rd = rs.build(s, note);
@@ -416,7 +425,7 @@ BootstrapResult bootstrap(const Design& d, const ModelSpec& spec, const Bootstra
     // 2. Jackknife for the acceleration.
     Eigen::MatrixXd jack = Eigen::MatrixXd::Constant(J, m, kNaN);
     std::vector<std::string> jack_reasons(static_cast<std::size_t>(J));
-    const std::string jnote = "jackknife design (" + res.jackknife + ")";
+    const std::string jnote = "jackknife design (" + jackknife_text(res) + ")";
     in_waves(J, threads, done, total, options, [&](int g) {
         Subset s;
         if (!clustered) {

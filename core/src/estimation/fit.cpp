@@ -166,7 +166,7 @@ std::vector<double> variance_inflation(const Design& d, const std::vector<int>& 
 WaldTest wald_on_columns(const FitResult& fit, const std::vector<int>& cols, std::vector<std::string> labels) {
     WaldTest w;
     w.terms = std::move(labels);
-    w.covariance = to_string(fit.se);
+    w.covariance = fit.se;
     const Eigen::Index q = static_cast<Eigen::Index>(cols.size());
     Eigen::VectorXd b(q);
     Eigen::MatrixXd V(q, q);

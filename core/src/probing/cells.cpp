@@ -130,6 +130,8 @@ std::string level_text(const std::string& factor, const std::string& level) { re
 
 }  // namespace
 
+const char* to_string(CellScale scale) { return scale == CellScale::LogOdds ? "log-odds" : "mean"; }
+
 CellTable cell_table(const Design& d, const FitResult& fit, const std::string& row_factor,
                      const std::string& column_factor, const std::map<std::string, double>& held) {
     if (!row_factor.empty() && row_factor == column_factor)
@@ -174,8 +176,8 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
     t.row_levels = R.levels;
     t.column_levels = C.levels;
     t.family = fit.family;
-    t.scale = logistic ? "log-odds" : "mean";
-    t.covariance = to_string(fit.se);
+    t.scale = logistic ? CellScale::LogOdds : CellScale::Mean;
+    t.covariance = fit.se;
     t.level = fit.level;
     t.df = fit.df_inference;
     t.critical_value = fit.critical_value;

@@ -103,7 +103,7 @@ std::vector<Region> regions_from_signs(const std::vector<double>& roots, const s
     return out;
 }
 
-SignificanceRegions from_regions(double q, std::vector<Region> regions, std::string kind) {
+SignificanceRegions from_regions(double q, std::vector<Region> regions, RegionsKind kind) {
     SignificanceRegions s;
     s.critical_value = q;
     s.significant = std::move(regions);
@@ -112,11 +112,59 @@ SignificanceRegions from_regions(double q, std::vector<Region> regions, std::str
         if (std::isfinite(r.hi)) s.boundaries.push_back(r.hi);
     }
     std::sort(s.boundaries.begin(), s.boundaries.end());
-    s.kind = std::move(kind);
+    s.kind = kind;
     return s;
 }
 
 }  // namespace
+
+std::string kind_text(const SignificanceRegions& s) {
+    switch (s.kind) {
+        case RegionsKind::Everywhere:
+            return "significant everywhere";
+        case RegionsKind::Nowhere:
+            return "significant nowhere";
+        case RegionsKind::OneBoundary:
+            return "one boundary (degenerate case)";
+        case RegionsKind::Outside:
+            return "significant outside the two boundaries";
+        case RegionsKind::Between:
+            return "significant between the two boundaries";
+        case RegionsKind::PolynomialRoots:
+            return "roots of a polynomial";
+        case RegionsKind::Scan:
+            return "scan of the moderator from " + fmt_num(s.scan_from) + " to " + fmt_num(s.scan_to);
+    }
+    return {};
+}
+
+const char* to_string(FiellerInterval interval) {
+    switch (interval) {
+        case FiellerInterval::Bounded:
+            return "bounded";
+        case FiellerInterval::Unbounded:
+            return "unbounded";
+        case FiellerInterval::WholeLine:
+            return "whole line";
+        case FiellerInterval::None:
+            return "none";
+    }
+    return "";
+}
+
+const char* to_string(CrossoverForm form) { return form == CrossoverForm::Disordinal ? "disordinal" : "ordinal"; }
+
+const char* to_string(InteractionMeasure measure) {
+    switch (measure) {
+        case InteractionMeasure::CrossPartial:
+            return "cross-partial derivative";
+        case InteractionMeasure::SlopeDifference:
+            return "difference in slopes";
+        case InteractionMeasure::DoubleDifference:
+            return "double difference";
+    }
+    return "";
+}
 
 EffectFunction::EffectFunction(std::vector<Eigen::VectorXd> g, const Eigen::VectorXd& beta, const Eigen::MatrixXd& cov)
     : g_(std::move(g)) {
@@ -171,7 +219,7 @@ SignificanceRegions significance_regions(const EffectFunction& f, double q) {
     if (f.degree() <= 0) {
         const bool sig = a[0] * a[0] > q2 * v(0, 0);
         return from_regions(q, sig ? std::vector<Region>{Region{}} : std::vector<Region>{},
-                            sig ? "significant everywhere" : "significant nowhere");
+                            sig ? RegionsKind::Everywhere : RegionsKind::Nowhere);
     }
     if (f.degree() == 1) {
         // (a0 + a1 m)^2 - q^2 (v00 + 2 v01 m + v11 m^2) = A m^2 + B m + C
@@ -182,22 +230,22 @@ SignificanceRegions significance_regions(const EffectFunction& f, double q) {
         if (std::abs(A) <= 1e-12 * scale) {  // degenerate: linear in m
             if (B == 0)
                 return from_regions(q, C > 0 ? std::vector<Region>{Region{}} : std::vector<Region>{},
-                                    C > 0 ? "significant everywhere" : "significant nowhere");
+                                    C > 0 ? RegionsKind::Everywhere : RegionsKind::Nowhere);
             const double r = -C / B;
             return from_regions(q, B > 0 ? std::vector<Region>{{r, kInf}} : std::vector<Region>{{-kInf, r}},
-                                "one boundary (degenerate case)");
+                                RegionsKind::OneBoundary);
         }
         const double disc = B * B - 4 * A * C;
         if (disc <= 0) {
             const bool sig = A > 0;
             return from_regions(q, sig ? std::vector<Region>{Region{}} : std::vector<Region>{},
-                                sig ? "significant everywhere" : "significant nowhere");
+                                sig ? RegionsKind::Everywhere : RegionsKind::Nowhere);
         }
         const double t = -0.5 * (B + std::copysign(std::sqrt(disc), B));
         double r1 = t / A, r2 = C / t;
         if (r1 > r2) std::swap(r1, r2);
-        if (A > 0) return from_regions(q, {{-kInf, r1}, {r2, kInf}}, "significant outside the two boundaries");
-        return from_regions(q, {{r1, r2}}, "significant between the two boundaries");
+        if (A > 0) return from_regions(q, {{-kInf, r1}, {r2, kInf}}, RegionsKind::Outside);
+        return from_regions(q, {{r1, r2}}, RegionsKind::Between);
     }
     // Higher degree: real roots of the polynomial gap(m), from the companion
     // matrix, polished by a bracketing root finder.
@@ -234,7 +282,7 @@ SignificanceRegions significance_regions(const EffectFunction& f, double q) {
         if (polished.empty() || std::abs(r - polished.back()) > 1e-9 * (1 + std::abs(r))) polished.push_back(r);
     }
     auto regions = regions_from_signs(polished, gap);
-    return from_regions(q, regions, regions.empty() ? "significant nowhere" : "roots of a polynomial");
+    return from_regions(q, regions, regions.empty() ? RegionsKind::Nowhere : RegionsKind::PolynomialRoots);
 }
 
 EffectFunction effect_function(const Design& d, const FitResult& fit, const std::string& focal,
@@ -310,17 +358,17 @@ void refresh_cautions(ProbeResult& r, const FitResult& fit) {
     if (fit.n < 200)
         r.cautions.push_back("With " + std::to_string(fit.n) +
                              " observations, interaction estimates and regions of significance are unstable.");
-    if (fit.family == Family::Logistic && r.scale == "link")
+    if (fit.family == Family::Logistic && r.scale == ProbeScale::Model)
         r.cautions.push_back(
             "On the log-odds scale a product coefficient is not the interaction on the probability "
             "scale; use the probability scale to describe effects on P(" +
             r.outcome + " = 1).");
-    if (r.scale == "response")
+    if (r.scale == ProbeScale::Outcome)
         r.cautions.push_back(
             "On the probability scale an effect depends on the values of every other predictor; "
             "these effects are " +
-            std::string(r.averaging == "sample" ? "averaged over the observed rows."
-                                                : "at the means and reference levels."));
+            std::string(r.averaging == Averaging::Sample ? "averaged over the observed rows."
+                                                         : "at the means and reference levels."));
 }
 
 namespace {
@@ -340,30 +388,30 @@ Crossover crossover_of(const EffectFunction& gap, const FitResult& fit, std::pai
     const auto& a = gap.effect_coefficients();
     c.gap_regions = significance_regions(gap, fit.critical_value);
     if (gap.degree() != 1 || a[1] == 0 || std::isnan(a[1])) {
-        c.ci_kind = "none";
-        c.form = "ordinal";
+        c.ci_kind = FiellerInterval::None;
+        c.form = CrossoverForm::Ordinal;
         return c;
     }
     c.focal_value = -a[0] / a[1];
     c.within_observed_range = c.focal_value >= focal_range.first && c.focal_value <= focal_range.second;
-    c.form = c.within_observed_range ? "disordinal" : "ordinal";
+    c.form = c.within_observed_range ? CrossoverForm::Disordinal : CrossoverForm::Ordinal;
     const SignificanceRegions& sig = c.gap_regions;
     // Fieller set = complement of the significant regions.
     if (sig.significant.empty()) {
-        c.ci_kind = "whole line";
+        c.ci_kind = FiellerInterval::WholeLine;
         c.ci_lower = -kInf;
         c.ci_upper = kInf;
     } else if (sig.significant.size() == 2) {
-        c.ci_kind = "bounded";
+        c.ci_kind = FiellerInterval::Bounded;
         c.ci_lower = sig.significant[0].hi;
         c.ci_upper = sig.significant[1].lo;
     } else if (sig.significant.size() == 1 && std::isfinite(sig.significant[0].lo) &&
                std::isfinite(sig.significant[0].hi)) {
-        c.ci_kind = "unbounded";
+        c.ci_kind = FiellerInterval::Unbounded;
         c.ci_lower = sig.significant[0].lo;  // the set is (-inf, lo] U [hi, inf)
         c.ci_upper = sig.significant[0].hi;
     } else if (sig.significant.size() == 1) {  // degenerate: a half line
-        c.ci_kind = "unbounded";
+        c.ci_kind = FiellerInterval::Unbounded;
         c.ci_lower = std::isfinite(sig.significant[0].lo) ? -kInf : sig.significant[0].hi;
         c.ci_upper = std::isfinite(sig.significant[0].lo) ? sig.significant[0].lo : kInf;
     }

@@ -42,8 +42,8 @@ void write_cell_table(JsonWriter& w, const CellTable& t) {
     w.key("column_levels").begin_array();
     for (const auto& l : t.column_levels) w.value(l);
     w.end_array();
-    w.field("scale", t.scale);
-    w.field("se_type", t.covariance);
+    w.field("scale", to_string(t.scale));
+    w.field("se_type", to_string(t.covariance));
     w.field("level", t.level);
     w.field("df", t.df);
     w.field("critical_value", t.critical_value);
@@ -101,7 +101,7 @@ void write_cell_table(JsonWriter& w, const CellTable& t) {
         w.field("df2", x.df2);
         w.field("chi_square", x.chi_square);
         w.field("p_value", x.p_value);
-        w.field("covariance", x.covariance);
+        w.field("covariance", to_string(x.covariance));
         w.end_object();
     } else {
         w.null();
@@ -114,8 +114,8 @@ void write_cell_table(JsonWriter& w, const CellTable& t) {
 
 std::string cell_table_to_text(const CellTable& t) {
     std::ostringstream o;
-    o << "Cell table: " << t.row_factor << " × " << t.column_factor << " (" << t.scale << ", " << t.covariance
-      << " standard errors)\n\n";
+    o << "Cell table: " << t.row_factor << " × " << t.column_factor << " (" << to_string(t.scale) << ", "
+      << to_string(t.covariance) << " standard errors)\n\n";
     char line[256];
     std::snprintf(line, sizeof line, "  %-18s %-18s %6s %11s %11s %23s\n", t.row_factor.c_str(),
                   t.column_factor.c_str(), "n", "predicted", "std. error", "interval");

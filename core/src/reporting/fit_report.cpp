@@ -66,7 +66,7 @@ void write_wald(JsonWriter& w, const WaldTest& t) {
     w.key("terms").begin_array();
     for (const auto& s : t.terms) w.value(s);
     w.end_array();
-    w.field("covariance", t.covariance);
+    w.field("covariance", to_string(t.covariance));
     w.field("statistic", t.statistic);
     w.field("df1", t.df1);
     w.field("df2", t.df2);
@@ -260,14 +260,14 @@ std::string fit_to_text(const FitResult& f, const std::string& outcome) {
         else
             o << "  likelihood-ratio χ²(" << df_text(c.df1) << ") = " << num(c.lr_statistic, 2) << ", p "
               << (c.lr_p_value < 0.0001 ? "" : "= ") << format_p(c.lr_p_value) << "\n";
-        o << "  Wald test with " << c.wald.covariance << " covariance: "
+        o << "  Wald test with " << to_string(c.wald.covariance) << " covariance: "
           << (std::isinf(c.wald.df2)
                   ? "χ²(" + df_text(c.wald.df1) + ") = " + num(c.wald.chi_square, 2)
                   : "F(" + df_text(c.wald.df1) + ", " + df_text(c.wald.df2) + ") = " + num(c.wald.statistic, 2))
           << ", p " << (c.wald.p_value < 0.0001 ? "" : "= ") << format_p(c.wald.p_value) << "\n";
     }
     for (const auto& t : f.wald_tests)
-        o << "\nWald test of " << detail::join(t.terms, ", ") << " (" << t.covariance << "): "
+        o << "\nWald test of " << detail::join(t.terms, ", ") << " (" << to_string(t.covariance) << "): "
           << (std::isinf(t.df2) ? "χ²(" + df_text(t.df1) + ") = " + num(t.chi_square, 2)
                                 : "F(" + df_text(t.df1) + ", " + df_text(t.df2) + ") = " + num(t.statistic, 2))
           << ", p " << (t.p_value < 0.0001 ? "" : "= ") << format_p(t.p_value) << "\n";

@@ -28,7 +28,7 @@ void write_significance(JsonWriter& w, const SignificanceRegions& s) {
     for (double b : s.boundaries) w.value(b);
     w.end_array();
     write_regions(w, s.significant);
-    w.field("kind", s.kind);
+    w.field("kind", kind_text(s));
 }
 
 void write_crossover(JsonWriter& w, const Crossover& c) {
@@ -37,9 +37,9 @@ void write_crossover(JsonWriter& w, const Crossover& c) {
     w.field("focal_value", c.focal_value);
     w.field("ci_lower", c.ci_lower);
     w.field("ci_upper", c.ci_upper);
-    w.field("ci_kind", c.ci_kind);
+    w.field("ci_kind", to_string(c.ci_kind));
     w.field("within_observed_range", c.within_observed_range);
-    w.field("form", c.form);
+    w.field("form", to_string(c.form));
     w.key("group_gap").begin_object();
     write_significance(w, c.gap_regions);
     w.end_object();
@@ -73,8 +73,8 @@ std::string regions_text(const std::vector<Region>& regions) {
 void write_probe_fields(JsonWriter& w, const ProbeResult& r) {
     w.field("focal", r.focal);
     w.field("moderator", r.moderator);
-    w.field("scale", r.scale);
-    if (r.scale == "response") w.field("averaging", r.averaging);
+    w.field("scale", to_string(r.scale));
+    if (r.scale == ProbeScale::Outcome) w.field("averaging", to_string(r.averaging));
     w.field("level", r.level);
     w.field("df", r.df);
     w.field("critical_t", r.critical_t);
@@ -127,7 +127,7 @@ void write_probe_fields(JsonWriter& w, const ProbeResult& r) {
     if (r.interaction_effect) {
         const auto& ie = *r.interaction_effect;
         w.key("interaction_effect").begin_object();
-        w.field("kind", ie.kind);
+        w.field("kind", to_string(ie.kind));
         w.field("estimate", ie.estimate);
         w.field("std_error", ie.std_error);
         w.field("statistic", ie.statistic);
@@ -146,7 +146,7 @@ void write_probe_fields(JsonWriter& w, const ProbeResult& r) {
 
 std::string probe_to_text(const ProbeResult& r, const FitResult& fit) {
     std::ostringstream o;
-    const bool response = r.scale == "response";
+    const bool response = r.scale == ProbeScale::Outcome;
     char lvl[16];
     std::snprintf(lvl, sizeof lvl, "%g%%", r.level * 100);
     o << "Effect of " << r.focal << " by " << r.moderator
@@ -182,7 +182,7 @@ std::string probe_to_text(const ProbeResult& r, const FitResult& fit) {
                   ? "nowhere"
                   : "for " + r.moderator + " " + regions_text(r.johnson_neyman->significant))
           << "\n";
-        if (r.scale == "response") o << "  (" << r.johnson_neyman->kind << ")\n";
+        if (r.scale == ProbeScale::Outcome) o << "  (" << kind_text(*r.johnson_neyman) << ")\n";
         for (std::size_t i = 0; i < r.johnson_neyman->boundaries.size(); ++i)
             o << "  boundary " << num(r.johnson_neyman->boundaries[i])
               << (r.jn_beyond_data[i] ? "  (beyond the data)" : "") << "\n";
@@ -194,22 +194,22 @@ std::string probe_to_text(const ProbeResult& r, const FitResult& fit) {
           << "\n";
     for (const auto& c : r.crossovers) {
         o << "\nCrossover (" << c.groups << "): ";
-        if (c.ci_kind == "none") {
+        if (c.ci_kind == FiellerInterval::None) {
             o << "the lines do not cross (parallel or curved)\n";
             continue;
         }
         o << r.focal << " = " << num(c.focal_value) << ", " << lvl << " Fieller interval ";
-        if (c.ci_kind == "bounded") o << "[" << num(c.ci_lower) << ", " << num(c.ci_upper) << "]";
-        else if (c.ci_kind == "whole line") o << "the whole line";
+        if (c.ci_kind == FiellerInterval::Bounded) o << "[" << num(c.ci_lower) << ", " << num(c.ci_upper) << "]";
+        else if (c.ci_kind == FiellerInterval::WholeLine) o << "the whole line";
         else o << "outside (" << num(c.ci_lower) << ", " << num(c.ci_upper) << ")";
         o << " — " << (c.within_observed_range ? "inside" : "outside") << " the observed " << r.focal << " range ("
-          << num(r.focal_range.first) << " to " << num(r.focal_range.second) << "): " << c.form << "\n";
+          << num(r.focal_range.first) << " to " << num(r.focal_range.second) << "): " << to_string(c.form) << "\n";
         o << "  the groups differ for " << r.focal << " " << regions_text(c.gap_regions.significant) << "\n";
     }
     if (r.interaction_effect) {
         const auto& ie = *r.interaction_effect;
-        o << "\nInteraction on the probability scale (" << ie.kind << ", Ai & Norton): " << num(ie.estimate) << " (SE "
-          << num(ie.std_error) << ", p " << format_p(ie.p_value) << ", CI " << num(ie.ci_lower) << " to "
+        o << "\nInteraction on the probability scale (" << to_string(ie.kind) << ", Ai & Norton): " << num(ie.estimate)
+          << " (SE " << num(ie.std_error) << ", p " << format_p(ie.p_value) << ", CI " << num(ie.ci_lower) << " to "
           << num(ie.ci_upper) << ")\n";
     }
     if (!r.notes.empty()) {

@@ -44,14 +44,6 @@ QString seLabel(SeKind s, Family f) {
     return seKindName(s);
 }
 
-QString seFromText(const std::string& text, Family f) {
-    try {
-        return seLabel(parse_se_kind(text), f);
-    } catch (...) {
-        return QString::fromStdString(text);
-    }
-}
-
 // "F(2, 145) = 12.31, p &lt; 0.001" or "χ²(2) = 24.62, p = 0.012" (rich text).
 QString testText(double statistic, double df1, double df2, double chiSquare, double p) {
     const QString text =
@@ -304,7 +296,7 @@ void EstimatesSection::refresh() {
                        .arg(terms, testText(0, c.df1, INFINITY, c.lr_statistic, c.lr_p_value));
         }
         text += tr("<br>Wald test of the same terms with the %1 covariance: %2.")
-                    .arg(seFromText(c.wald.covariance, main.family).toHtmlEscaped(),
+                    .arg(seLabel(c.wald.covariance, main.family).toHtmlEscaped(),
                          testText(c.wald.statistic, c.wald.df1, c.wald.df2, c.wald.chi_square, c.wald.p_value));
         comparison_->setText(text);
     } else {

@@ -430,8 +430,8 @@ void ProbeSection::fillReadoutContext() {
     const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
     QString scale;
     if (engine_.probability())
-        scale = p.averaging == "values" ? tr("Probability scale, other predictors at their means")
-                                        : tr("Probability scale, averaged over the observed rows");
+        scale = p.averaging == Averaging::AtValues ? tr("Probability scale, other predictors at their means")
+                                                   : tr("Probability scale, averaged over the observed rows");
     else if (engine_.logistic()) scale = tr("Log-odds scale");
     else scale = tr("Outcome scale");
     QString statement = tr("%1 · %2 SEs · %3 pointwise interval").arg(scale, seDescription(a, *run_), level);
@@ -555,7 +555,7 @@ void ProbeSection::buildPlots() {
         LinesPlotData::Crossing cr;
         cr.x = x.focal_value;
         cr.y = pt.front().estimate;
-        cr.bounded = x.ci_kind == "bounded";
+        cr.bounded = x.ci_kind == FiellerInterval::Bounded;
         cr.lower = x.ci_lower;
         cr.upper = x.ci_upper;
         l.crossings.push_back(cr);
@@ -625,7 +625,7 @@ void ProbeSection::fillSummary() {
         const auto& ie = *p.interaction_effect;
         const QString level = QLocale::c().toString(100.0 * p.level, 'g', 4) + QLatin1Char('%');
         section(tr("Interaction on the probability scale"));
-        QString kind = q(ie.kind);
+        QString kind = QString::fromLatin1(to_string(ie.kind));
         if (!kind.isEmpty()) kind[0] = kind[0].toUpper();
         line(tr("%1 of P(%2 = 1): %3 (SE %4, %5 CI %6 to %7, p %8)")
                  .arg(kind, q(engine_.outcome()), probeNumber(ie.estimate), probeNumber(ie.std_error), level,
@@ -634,8 +634,8 @@ void ProbeSection::fillSummary() {
                 "on the log-odds scale%5 is not this: it does not give the size, or even the sign, of the "
                 "interaction on the probability scale.")
                  .arg(q(engine_.focal()), q(engine_.outcome()), mod,
-                      p.averaging == "values" ? tr("at the means of the other predictors")
-                                              : tr("averaged over the observed rows"),
+                      p.averaging == Averaging::AtValues ? tr("at the means of the other predictors")
+                                                         : tr("averaged over the observed rows"),
                       productCoefficientText()));
         end();
     } else if (engine_.logistic()) {
@@ -686,12 +686,12 @@ void ProbeSection::fillSummary() {
         if (!std::isfinite(c.focal_value)) continue;
         any = true;
         QString interval;
-        if (c.ci_kind == "bounded")
+        if (c.ci_kind == FiellerInterval::Bounded)
             interval = tr("interval %1 to %2").arg(probeNumber(c.ci_lower), probeNumber(c.ci_upper));
-        else if (c.ci_kind == "unbounded")
+        else if (c.ci_kind == FiellerInterval::Unbounded)
             interval =
                 tr("interval unbounded: below %1 and above %2").arg(probeNumber(c.ci_lower), probeNumber(c.ci_upper));
-        else if (c.ci_kind == "whole line") interval = tr("the interval is the whole line");
+        else if (c.ci_kind == FiellerInterval::WholeLine) interval = tr("the interval is the whole line");
         const auto [flo, fhi] = engine_.focalRange();
         line(tr("%1: the lines cross at %2 = %3 (%4), %5.")
                  .arg(q(c.groups), q(engine_.focal()), probeNumber(c.focal_value), interval,
