@@ -214,6 +214,29 @@ TEST(Probe, CategoricalModeratorGivesOneEffectPerLevel) {
     EXPECT_EQ(r.crossovers.size(), 3u);  // every pair of levels
 }
 
+// A 0/1 moderator has two effects and no region of significance; a
+// continuous one has both regions.
+TEST(Probe, BinaryModeratorIsSaidByAFieldNotOnlyByANote) {
+    const Table t = simulate(300, 8, 0.1);
+    ModelSpec s;
+    s.outcome = "y";
+    s.interactions = {{"x", "g"}, {"x", "z"}};
+    const Design d = build_design(t, s);
+    const FitResult f = fit_design(d, s);
+    const ProbeResult binary = probe(d, f, spec_of("x", "g"));
+    EXPECT_TRUE(binary.binary_moderator);
+    EXPECT_FALSE(binary.categorical_moderator);
+    EXPECT_FALSE(binary.johnson_neyman.has_value());
+    EXPECT_FALSE(binary.simultaneous.has_value());
+    ASSERT_EQ(binary.effects.size(), 2u);
+    EXPECT_EQ(binary.effects[0].moderator_value, 0.0);
+    EXPECT_EQ(binary.effects[1].moderator_value, 1.0);
+    const ProbeResult continuous = probe(d, f, spec_of("x", "z"));
+    EXPECT_FALSE(continuous.binary_moderator);
+    EXPECT_TRUE(continuous.johnson_neyman.has_value());
+    EXPECT_TRUE(continuous.simultaneous.has_value());
+}
+
 TEST(Probe, BadRequestsAreExplained) {
     const Table t = simulate(100, 5, 0.1);
     ModelSpec s;

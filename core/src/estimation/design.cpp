@@ -58,6 +58,15 @@ int Design::level_index(const std::string& column, const std::string& level) con
     return -1;
 }
 
+int Design::column_of(const std::vector<Atom>& atoms) const {
+    for (std::size_t j = 0; j < columns.size(); ++j) {
+        const auto& a = columns[j].atoms;
+        if (a.size() == atoms.size() && std::is_permutation(a.begin(), a.end(), atoms.begin()))
+            return static_cast<int>(j);
+    }
+    return -1;
+}
+
 std::vector<int> Design::product_columns() const {
     std::vector<int> out;
     for (std::size_t j = 0; j < columns.size(); ++j)
@@ -77,6 +86,14 @@ bool parse_number(const std::string& s, double& out) {
 std::string factor_label(const std::string& column, int power) {
     return power == 1 ? column : column + "^" + std::to_string(power);
 }
+
+}  // namespace
+
+std::string atom_label(const Atom& a) {
+    return a.level.empty() ? factor_label(a.column, a.power) : a.column + "=" + a.level;
+}
+
+namespace {
 
 std::string term_label(const std::vector<std::pair<std::string, int>>& factors) {
     std::vector<std::string> parts;
@@ -407,8 +424,7 @@ Design build_design(const Table& table, const ModelSpec& spec) {
         DesignTerm term = t;
         for (auto& combo : combos) {
             std::vector<std::string> parts;
-            for (const auto& a : combo)
-                parts.push_back(a.level.empty() ? factor_label(a.column, a.power) : a.column + "=" + a.level);
+            for (const auto& a : combo) parts.push_back(atom_label(a));
             term.columns.push_back(static_cast<int>(d.columns.size()));
             d.columns.push_back({join(parts, "×"), combo, ti});
         }

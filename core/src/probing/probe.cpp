@@ -525,6 +525,7 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
         e.beyond_data = m < ms.min || m > ms.max;
         r.effects.push_back(e);
     }
+    r.binary_moderator = binary;
     if (binary) {
         r.notes.push_back(spec.moderator +
                           " takes only the values 0 and 1: the effects at 0 and 1 are the whole "

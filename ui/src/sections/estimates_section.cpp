@@ -61,16 +61,19 @@ QString row(const QString& label, const QString& value) {
 // centre subtracted, e.g. "(nitrogen_kg_ha − 112.4)×(soil_moisture_pct − 30.12)".
 QStringList centredLabels(const AnalysisRun& run) {
     QStringList out;
-    for (const auto& c : run.fit.coefficients) {
+    for (const DesignColumn& c : run.design.columns) {
+        if (c.atoms.empty()) {  // the intercept
+            out << QString::fromStdString(c.label);
+            continue;
+        }
         QStringList parts;
-        for (const std::string& factor : labelFactors(c.term)) {
-            const std::string col = factorColumn(factor);
-            const auto it = run.centres.find(col);
-            if (it == run.centres.end() || factor != col) {
-                parts << QString::fromStdString(factor);
+        for (const Atom& a : c.atoms) {
+            const auto it = run.centres.find(a.column);
+            if (it == run.centres.end() || !a.level.empty() || a.power != 1) {
+                parts << QString::fromStdString(atom_label(a));
                 continue;
             }
-            parts << QStringLiteral("(%1 \u2212 %2)").arg(QString::fromStdString(col), formatNumber(it->second));
+            parts << QStringLiteral("(%1 \u2212 %2)").arg(QString::fromStdString(a.column), formatNumber(it->second));
         }
         out << parts.join(QStringLiteral("\u00d7"));
     }

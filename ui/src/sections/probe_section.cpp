@@ -375,13 +375,11 @@ QString ProbeSection::effectTitle() const {
 
 QString ProbeSection::productCoefficientText() const {
     // " (setup_sessions×employees = 0.0003627)": the fit's own coefficient, when the model has one product term.
-    const FitResult& fit = run_->fit;
-    const std::string f = engine_.focal(), m = engine_.moderator();
-    for (const std::string& term : {f + "×" + m, m + "×" + f}) {
-        const int i = fit.index_of(term);
-        if (i >= 0) return QStringLiteral(" (%1 = %2)").arg(q(term), probeNumber(fit.beta[i]));
-    }
-    return {};
+    const Design& d = run_->design;
+    const int i = d.column_of({{engine_.focal(), "", 1}, {engine_.moderator(), "", 1}});
+    if (i < 0) return {};
+    return QStringLiteral(" (%1 = %2)")
+        .arg(q(d.columns[static_cast<std::size_t>(i)].label), probeNumber(run_->fit.beta[i]));
 }
 
 QString ProbeSection::outcomeWhat() const {
@@ -651,8 +649,10 @@ void ProbeSection::fillSummary() {
         const SignificanceRegions* r = engine_.regions(sim);
         section(sim ? tr("Region of significance (simultaneous band)") : tr("Region of significance (Johnson–Neyman)"));
         if (!r) {
-            for (const auto& n : p.notes)
-                if (n.find("no region of significance") != std::string::npos) line(q(n));
+            if (p.binary_moderator)
+                line(tr("%1 takes only the values 0 and 1: the effects at 0 and 1 are the whole story, so no region "
+                        "of significance over %1 is reported")
+                         .arg(mod));
         } else {
             if (sim)
                 line(tr("Where the whole simultaneous band excludes zero (critical value %1).")

@@ -145,6 +145,9 @@ struct ProbeResult {
     Averaging averaging = Averaging::Sample;              // outcome scale only
     std::optional<InteractionEffect> interaction_effect;  // outcome scale
     bool categorical_moderator = false;
+    // A numeric moderator that takes only the values 0 and 1 among the used
+    // rows: its effects at 0 and 1 are reported, no region of significance.
+    bool binary_moderator = false;
     double level = 0.95, df = 0, critical_t = 0;
     std::pair<double, double> observed_range{0, 0};  // moderator, used rows
     std::pair<double, double> focal_range{0, 0};
