@@ -427,7 +427,10 @@ EffectPoint effect_point(double moderator_value, const Inference& i) {
     return e;
 }
 
-ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) {
+namespace {
+
+// InputError for a probe the fit or the model cannot answer.
+void check_probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) {
     if (fit.family == Family::Logistic && (!fit.converged || fit.separation))
         throw InputError(std::string("the logistic fit ") +
                          (fit.separation ? "shows separation"
@@ -446,25 +449,18 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
                          quoted(spec.moderator) + "; add --interaction " + spec.focal + "," + spec.moderator);
     if (!spec.second_moderator.empty() && !in_model(d, spec.second_moderator))
         throw InputError("second moderator " + quoted(spec.second_moderator) + " is not in the model");
+}
 
-    ProbeResult r;
-    r.outcome = d.outcome;
-    r.focal = spec.focal;
-    r.moderator = spec.moderator;
-    r.level = fit.level;
-    r.df = fit.df_inference;
-    r.critical_t = fit.critical_value;
-    const auto& fs = d.summaries.at(spec.focal);
-    r.focal_range = {fs.min, fs.max};
-
-    // Everything else held at its mean (numeric) or reference level.
+// Everything else held at its mean (numeric) or reference level, or at the
+// values the spec gives; the notes say where every other column the effect
+// depends on is held.
+std::map<std::string, double> held_values(const Design& d, const ProbeSpec& spec, ProbeResult& r) {
     std::map<std::string, double> values = typical_values(d);
     if (!std::isnan(spec.focal_value)) values[spec.focal] = spec.focal_value;
     if (!spec.second_moderator.empty()) {
         if (!std::isnan(spec.second_value)) values[spec.second_moderator] = spec.second_value;
         r.notes.push_back(spec.second_moderator + " held at " + detail::fmt_short(values[spec.second_moderator]));
     }
-    // Say where every other column the effect depends on is held.
     for (const auto& t : d.terms) {
         if (t.factors.size() < 2) continue;
         bool has_focal = false;
@@ -486,30 +482,36 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
                               detail::fmt_short(values[spec.focal]));
             break;
         }
+    return values;
+}
 
-    const CategoricalInfo* cat = d.categorical(spec.moderator);
-    r.categorical_moderator = cat != nullptr;
-    if (cat) {
-        for (std::size_t L = 0; L < cat->levels.size(); ++L) {
-            values[spec.moderator] = static_cast<double>(L);
-            const EffectFunction f(linear_form(d, "", spec.focal, values), fit.beta, fit.covariance);
-            EffectPoint e = point_at(f, 0, fit);
-            e.moderator_value = static_cast<double>(L);
-            e.level = cat->levels[L];
-            r.effects.push_back(e);
-        }
-        for (std::size_t a = 0; a < cat->levels.size(); ++a)
-            for (std::size_t b = a + 1; b < cat->levels.size(); ++b) {
-                const EffectFunction gap = contrast_function(d, fit, spec.moderator, static_cast<double>(a),
-                                                             static_cast<double>(b), spec.focal, values);
-                r.crossovers.push_back(crossover_of(
-                    gap, fit, r.focal_range,
-                    spec.moderator + "=" + cat->levels[a] + " vs " + spec.moderator + "=" + cat->levels[b]));
-            }
-        refresh_cautions(r, fit);
-        return r;
+// A categorical moderator: the effect in every group and the crossover of
+// every pair of group lines.
+void probe_groups(const Design& d, const FitResult& fit, const ProbeSpec& spec, const CategoricalInfo& cat,
+                  std::map<std::string, double> values, ProbeResult& r) {
+    for (std::size_t L = 0; L < cat.levels.size(); ++L) {
+        values[spec.moderator] = static_cast<double>(L);
+        const EffectFunction f(linear_form(d, "", spec.focal, values), fit.beta, fit.covariance);
+        EffectPoint e = point_at(f, 0, fit);
+        e.moderator_value = static_cast<double>(L);
+        e.level = cat.levels[L];
+        r.effects.push_back(e);
     }
+    for (std::size_t a = 0; a < cat.levels.size(); ++a)
+        for (std::size_t b = a + 1; b < cat.levels.size(); ++b) {
+            const EffectFunction gap = contrast_function(d, fit, spec.moderator, static_cast<double>(a),
+                                                         static_cast<double>(b), spec.focal, values);
+            r.crossovers.push_back(
+                crossover_of(gap, fit, r.focal_range,
+                             spec.moderator + "=" + cat.levels[a] + " vs " + spec.moderator + "=" + cat.levels[b]));
+        }
+}
 
+// A numeric moderator: effects at the chosen values (or the defaults), the
+// Johnson–Neyman regions and the simultaneous band (not for a 0/1
+// moderator), and where the lines at different moderator values cross.
+void probe_numeric(const Design& d, const FitResult& fit, const ProbeSpec& spec,
+                   const std::map<std::string, double>& values, ProbeResult& r) {
     const auto& ms = d.summaries.at(spec.moderator);
     r.observed_range = {ms.min, ms.max};
     r.moderator_mean = ms.mean;
@@ -517,6 +519,7 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     const EffectFunction f = effect_function(d, fit, spec.focal, spec.moderator, values);
     r.effect_function = f;
     const bool binary = d.is_binary(spec.moderator);
+    r.binary_moderator = binary;
     std::vector<double> at = spec.at;
     if (at.empty())
         at = binary ? std::vector<double>{0.0, 1.0} : std::vector<double>{ms.mean - ms.sd, ms.mean, ms.mean + ms.sd};
@@ -525,7 +528,6 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
         e.beyond_data = m < ms.min || m > ms.max;
         r.effects.push_back(e);
     }
-    r.binary_moderator = binary;
     if (binary) {
         r.notes.push_back(spec.moderator +
                           " takes only the values 0 and 1: the effects at 0 and 1 are the whole "
@@ -545,6 +547,27 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     r.crossovers.push_back(crossover_of(
         gap, fit, r.focal_range,
         binary ? spec.moderator + "=0 vs " + spec.moderator + "=1" : "lines at any two values of " + spec.moderator));
+}
+
+}  // namespace
+
+ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) {
+    check_probe(d, fit, spec);
+    ProbeResult r;
+    r.outcome = d.outcome;
+    r.focal = spec.focal;
+    r.moderator = spec.moderator;
+    r.level = fit.level;
+    r.df = fit.df_inference;
+    r.critical_t = fit.critical_value;
+    const auto& fs = d.summaries.at(spec.focal);
+    r.focal_range = {fs.min, fs.max};
+
+    const std::map<std::string, double> values = held_values(d, spec, r);
+    const CategoricalInfo* cat = d.categorical(spec.moderator);
+    r.categorical_moderator = cat != nullptr;
+    if (cat) probe_groups(d, fit, spec, *cat, values, r);
+    else probe_numeric(d, fit, spec, values, r);
     refresh_cautions(r, fit);
     return r;
 }
