@@ -103,13 +103,13 @@ def trial_conversion(rng):
     write("trial-conversion", "trials.csv", ["converted", "setup_sessions", "employees", "region"], rows)
 
 
-def analysis(id_, name, dataset, outcome, focal, moderator, controls=(), family="linear", se="classical",
-             scale="link", pinned=()):
+def analysis(id_, name, dataset, outcome, focal, moderator, controls=(), family="linear", se="model-based",
+             scale="model", pinned=()):
     return {
         "id": id_, "name": name, "dataset": dataset,
         "roles": {"outcome": outcome, "focal": focal, "moderator": moderator, "second_moderator": "",
                   "controls": list(controls), "weights": "", "clusters": ""},
-        "family": family, "se": se, "level": 0.95, "centring": "none",
+        "family": family, "standard_errors": se, "level": 0.95, "centring": "none",
         "probe": {"current": None, "pinned": list(pinned), "second_value": None, "scale": scale,
                   "averaging": "sample", "simultaneous_band": False, "show_points": True},
         "figure": {"preset": "memo", "width_in": 6.5, "height_in": 4.0, "dpi": 300, "font_family": "DejaVu Sans",
@@ -118,13 +118,13 @@ def analysis(id_, name, dataset, outcome, focal, moderator, controls=(), family=
 
 
 def write_project(folder, data_name, dataset_id, analyses, missing=("", "NA", "NaN", "."), kept=("lines", "Lines plot")):
-    """A ready project file beside the data: one dataset, its analyses, a kept figure each
-    (`kept`: the plot key and its name; two categorical predictors have a Cells plot, not lines)."""
+    """A ready project file (schema 2, docs/cli-output.md) beside the data: one dataset, its analyses, a kept
+    figure each (`kept`: the plot key and its name; two categorical predictors have a Cells plot, not lines)."""
     path = os.path.join(HERE, folder)
     with open(os.path.join(path, data_name), "rb") as f:
         digest = hashlib.sha256(f.read()).hexdigest()
     doc = {
-        "schema_version": 1,
+        "schema_version": 2,
         "program": "Moderato (sample-projects/generate.py)",
         "datasets": [{"id": dataset_id, "path": data_name, "sha256": digest,
                       "import": {"delimiter": ",", "header": True, "missing_tokens": list(missing),
@@ -156,7 +156,7 @@ def write_projects():
     # "NA" is a region here (North America), so it is not a missing-value token.
     write_project("trial-conversion", "trials.csv", "trials", [
         analysis("sessions-size", "setup sessions × company size", "trials", "converted", "setup_sessions",
-                 "employees", controls=["region"], family="logistic", scale="response")],
+                 "employees", controls=["region"], family="logistic", scale="outcome")],
                   missing=("", "NaN", "."))
 
 

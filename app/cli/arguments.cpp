@@ -7,6 +7,21 @@
 
 namespace moderato::cli {
 
+namespace {
+
+// Options that were renamed: the old spelling is refused with the new one.
+std::string renamed_option_message(const std::string& name) {
+    if (name == "at")
+        return "option --at is now called --moderator-values (probe: --moderator-values v1,v2,...); see "
+               "moderato-cli --help";
+    if (name == "at-percentiles")
+        return "option --at-percentiles is now called --moderator-percentiles (probe: --moderator-percentiles "
+               "10,50,90); see moderato-cli --help";
+    return "";
+}
+
+}  // namespace
+
 Arguments::Arguments(const std::vector<std::string>& args, const std::set<std::string>& flags,
                      const std::set<std::string>& valued, const std::set<std::string>& repeatable) {
     for (std::size_t i = 0; i < args.size(); ++i) {
@@ -35,6 +50,8 @@ Arguments::Arguments(const std::vector<std::string>& args, const std::set<std::s
                 throw InputError("option --" + name + " is given twice ('" + values_[name].front() + "' and '" + value +
                                  "'); give it once");
             values_[name].push_back(value);
+        } else if (const std::string renamed = renamed_option_message(name); !renamed.empty()) {
+            throw InputError(renamed);
         } else {
             throw InputError("unknown option --" + name + "; see moderato-cli --help");
         }

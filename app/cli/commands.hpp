@@ -8,7 +8,7 @@
 namespace moderato::cli {
 
 int run_fit(const std::vector<std::string>& args);
-int run_describe(const std::vector<std::string>& args);
+int run_columns(const std::vector<std::string>& args);
 int run_probe(const std::vector<std::string>& args);
 int run_power(const std::vector<std::string>& args);
 // Only in a build with the workbench (MODERATO_HAVE_RENDER).

@@ -18,7 +18,7 @@ Usage:
   moderato-cli fit --data FILE --outcome COL --predictors A,B [options]
   moderato-cli probe [fit options] --focal A --moderator B [probe options]
   moderato-cli power --predictors K --f2 X (--n N | --power P) [power options]
-  moderato-cli describe --data FILE [import options]
+  moderato-cli columns --data FILE [import options]
   moderato-cli render PROJECT --out DIR [--accept-changed-data]
   moderato-cli --help | --version
 
@@ -39,18 +39,20 @@ fit: estimates a linear or logistic model with product (interaction) terms.
   --standardise A,B        standardise columns (mean 0, SD 1)
   --log A,B / --log1p A,B  replace columns by log(x) / log(1 + x)
   --test TERM,TERM         joint Wald test of these terms (write products as A*B); repeatable
-  --format json|text       output (default text)
+  --format json|text       output (default text; JSON fields: docs/cli-output.md)
 
 probe: conditional effects of the focal predictor across the moderator, the
 region of significance (Johnson–Neyman), the simultaneous band and crossover points.
   --focal A                the predictor whose effect is probed
   --moderator B            the column it depends on
-  --at v1,v2,...           moderator values (default: mean - SD, mean, mean + SD; 0 and 1 for a 0/1 moderator)
-  --at-percentiles 10,50,90   moderator values at these percentiles of the data
+  --moderator-values v1,v2,...   the moderator values to probe at (default: mean - SD, mean,
+                           mean + SD; 0 and 1 for a 0/1 moderator)
+  --moderator-percentiles 10,50,90   the moderator values at these percentiles of the data
   --second-moderator W[=VALUE]   hold a second moderator at VALUE (default its mean)
   --focal-at VALUE         where a squared focal predictor's effect is taken (default its mean)
-  --scale link|response    logistic models: log-odds (link) or probability (response) scale
-  --average sample|values  response scale: average over the rows (default) or at the means
+  --scale model|outcome    model: the scale the coefficients live on (log-odds for a logistic model;
+                           the default); outcome: the outcome's own scale (probability)
+  --average sample|values  outcome scale: average over the rows (default) or at the means
   --surface K              also write predictions on a K x K grid over both (numeric) predictors
   (a categorical focal predictor with a categorical moderator gives the cell table instead)
   --bootstrap N [--seed S] case (or cluster) bootstrap: percentile and BCa intervals for the
@@ -60,13 +62,16 @@ power: sample size and power for detecting interaction terms (Cohen's f², nonce
   --predictors K --tested U --alpha A --f2 X (or --r2-full A --r2-reduced B)
   --n N (power) | --power P (smallest n) | --n N --power P --detectable (smallest f²)
 
+columns: what the import makes of each column of a data file: its kind (numeric or
+categorical), values present and missing, mean, SD and range or the number of levels.
+
 render: writes every analysis's figures (PNG, SVG, PDF at its figure settings), tables
 (CSV, Markdown, LaTeX, HTML) and memo (HTML, Markdown, PDF), and the project's kept
 figures, into DIR/<analysis>/ and DIR/figures/ — no display needed; the same files the
 workbench exports. A data file whose SHA-256 differs from the one the project recorded
 stops the render (exit 2) unless --accept-changed-data is given.
 
-Import options (fit, probe and describe):
+Import options (fit, probe and columns):
   --delimiter comma|semicolon|tab|pipe   force the delimiter
   --no-header              the first row holds data; columns are named V1, V2, ...
   --missing TOKENS         extra missing-value tokens (always: empty, NA, NaN, .)
@@ -85,7 +90,7 @@ int main(int argc, char** argv) {
     try {
         if (args.empty()) {
             std::cerr
-                << "moderato-cli: no command given; commands are fit, probe, power, describe and render (see --help)\n";
+                << "moderato-cli: no command given; commands are fit, probe, power, columns and render (see --help)\n";
             return 2;
         }
         if (args[0] == "--help" || args[0] == "-h" || args[0] == "help") {
@@ -104,7 +109,12 @@ int main(int argc, char** argv) {
                 return 0;
             }
         if (command == "fit") return moderato::cli::run_fit(rest);
-        if (command == "describe") return moderato::cli::run_describe(rest);
+        if (command == "columns") return moderato::cli::run_columns(rest);
+        if (command == "describe") {
+            std::cerr << "moderato-cli: the command 'describe' is now called 'columns' (moderato-cli columns --data "
+                         "FILE); see --help\n";
+            return 2;
+        }
         if (command == "probe") return moderato::cli::run_probe(rest);
         if (command == "power") return moderato::cli::run_power(rest);
         if (command == "render") {
@@ -117,7 +127,7 @@ int main(int argc, char** argv) {
 #endif
         }
         std::cerr << "moderato-cli: unknown command '" << command
-                  << "'; commands are fit, probe, power, describe and render (see --help)\n";
+                  << "'; commands are fit, probe, power, columns and render (see --help)\n";
         return 2;
     } catch (const moderato::InputError& e) {
         std::cerr << "moderato-cli: " << e.what() << "\n";

@@ -5,6 +5,7 @@
 #include <cstdio>
 
 #include "moderato/reading/derive.hpp"
+#include "moderato/reporting/output_json.hpp"
 #include "moderato/support/error.hpp"
 
 namespace moderato::cli {
@@ -23,6 +24,11 @@ std::pair<std::string, std::string> split_pair(const std::string& text, const st
     if (eq == std::string::npos || eq == 0 || eq + 1 == text.size())
         throw InputError("option --" + option + " needs COLUMN=" + what + ", got '" + text + "'");
     return {text.substr(0, eq), text.substr(eq + 1)};
+}
+
+void replace_column(Table& t, Column c, const std::string& name) {
+    c.name = name;
+    *t.find(name) = std::move(c);
 }
 
 // Replace every "*" with the product sign used in term labels.
@@ -58,8 +64,7 @@ std::set<std::string> model_valued() {
 }
 
 JsonWriter begin_output(const Arguments& args, const ModelSpec& spec) {
-    JsonWriter w;
-    w.begin_object();
+    JsonWriter w = begin_document();
     w.field("moderato_version", MODERATO_VERSION);
     w.field("data", args.required("data"));
     w.field("outcome", spec.outcome);
@@ -93,16 +98,11 @@ Table load_table(const Arguments& args) {
     return read_csv(args.required("data"), o);
 }
 
-LoadedModel load_model(const Arguments& args) {
-    LoadedModel m;
-    m.table = load_table(args);
-    Table& t = m.table;
+namespace {
 
-    // Column transforms, applied in place (the file is never touched).
-    auto replace = [&](Column c, const std::string& name) {
-        c.name = name;
-        *t.find(name) = std::move(c);
-    };
+// --centre COL[=mean|median|VALUE], repeatable.
+void apply_centring(const Arguments& args, LoadedModel& m) {
+    Table& t = m.table;
     for (const auto& item : args.all("centre")) {
         std::string col = item, how = "mean";
         if (auto eq = item.find('='); eq != std::string::npos) {
@@ -118,30 +118,39 @@ LoadedModel load_model(const Arguments& args) {
             value = parse_double(how, "centre");
         }
         const double used = centre_value(c, at, value);
-        replace(centre(c, at, value, col), col);
+        replace_column(t, centre(c, at, value, col), col);
         m.notes.push_back(col + " is centred at " +
                           (at == CentreAt::Mean     ? "its mean "
                            : at == CentreAt::Median ? "its median "
                                                     : "") +
                           fmt(used));
     }
+}
+
+// Column transforms, applied in place (the file is never touched):
+// --centre, then --standardise, --log and --log1p.
+void apply_transforms(const Arguments& args, LoadedModel& m) {
+    Table& t = m.table;
+    apply_centring(args, m);
     for (const auto& list : args.all("standardise"))
         for (const auto& col : split_list(list, "standardise")) {
-            replace(standardise(t.at(col), col), col);
+            replace_column(t, standardise(t.at(col), col), col);
             m.notes.push_back(col + " is standardised (mean 0, SD 1)");
         }
     for (const auto& list : args.all("log"))
         for (const auto& col : split_list(list, "log")) {
-            replace(log_column(t.at(col), t, col), col);
+            replace_column(t, log_column(t.at(col), t, col), col);
             m.notes.push_back(col + " is replaced by its natural logarithm");
         }
     for (const auto& list : args.all("log1p"))
         for (const auto& col : split_list(list, "log1p")) {
-            replace(log1p_column(t.at(col), t, col), col);
+            replace_column(t, log1p_column(t.at(col), t, col), col);
             m.notes.push_back(col + " is replaced by log(1 + " + col + ")");
         }
+}
 
-    ModelSpec& s = m.spec;
+// --outcome, --predictors, --interaction, --poly, --no-intercept.
+void read_terms(const Arguments& args, ModelSpec& s) {
     s.outcome = args.required("outcome");
     if (auto p = args.get("predictors")) s.predictors = split_list(*p, "predictors");
     for (const auto& i : args.all("interaction")) s.interactions.push_back(split_list(i, "interaction"));
@@ -152,6 +161,10 @@ LoadedModel load_model(const Arguments& args) {
     if (s.predictors.empty() && s.interactions.empty() && s.polynomial.empty())
         throw InputError("no predictors: give --predictors, --interaction or --poly");
     s.intercept = !args.has("no-intercept");
+}
+
+// --family, --cluster, --weights, --se, --level.
+void read_estimation(const Arguments& args, ModelSpec& s) {
     if (auto f = args.get("family")) s.family = parse_family(*f);
     if (auto c = args.get("cluster")) s.cluster = *c;
     if (auto w = args.get("weights")) s.weights = *w;
@@ -170,6 +183,10 @@ LoadedModel load_model(const Arguments& args) {
         if (!(s.level > 0 && s.level < 1))
             throw InputError("option --level must be between 0 and 1 (e.g. 0.95), got '" + *l + "'");
     }
+}
+
+// --reference, --test, --threads.
+void read_extras(const Arguments& args, ModelSpec& s) {
     for (const auto& item : args.all("reference")) {
         auto [col, level] = split_pair(item, "reference", "LEVEL");
         s.reference_levels[col] = level;
@@ -180,6 +197,17 @@ LoadedModel load_model(const Arguments& args) {
         s.wald_tests.push_back(terms);
     }
     if (auto th = args.get("threads")) s.threads = static_cast<unsigned>(parse_integer(*th, "threads", 1, 256));
+}
+
+}  // namespace
+
+LoadedModel load_model(const Arguments& args) {
+    LoadedModel m;
+    m.table = load_table(args);
+    apply_transforms(args, m);
+    read_terms(args, m.spec);
+    read_estimation(args, m.spec);
+    read_extras(args, m.spec);
     return m;
 }
 

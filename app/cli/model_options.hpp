@@ -1,5 +1,5 @@
 // The options shared by every subcommand that reads data and specifies a
-// model (fit now, probe later): import settings, roles, family, SE kind.
+// model (fit and probe): import settings, roles, family, SE kind.
 #pragma once
 
 #include <set>
@@ -37,7 +37,7 @@ struct LoadedModel {
 LoadedModel load_model(const Arguments& args);
 
 // Opens a JSON document with what every model-based output starts with:
-// the program version, the data file and the outcome.
+// "output_version" (2), the program version, the data file and the outcome.
 JsonWriter begin_output(const Arguments& args, const ModelSpec& spec);
 
 // "json" (default "text" when absent); usage error otherwise.

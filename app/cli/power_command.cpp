@@ -20,6 +20,7 @@
 #include "model_options.hpp"
 #include "moderato/probing/power.hpp"
 #include "moderato/reporting/json_writer.hpp"
+#include "moderato/reporting/output_json.hpp"
 #include "moderato/support/error.hpp"
 
 namespace moderato::cli {
@@ -53,7 +54,7 @@ std::string num(double v, const char* format = "%.4g") {
 }
 
 // Power for reading: 4 decimals, without rounding up to a misleading 1.
-std::string power_text(double p) {
+std::string power_words(double p) {
     if (std::isnan(p)) return "n/a";
     if (p > 0.9999) return "above 0.9999";
     return num(p, "%.4f");
@@ -63,40 +64,45 @@ std::string plural(long long count, const std::string& word) {
     return std::to_string(count) + " " + word + (count == 1 ? "" : "s");
 }
 
-}  // namespace
+// What the command was asked: which quantity to compute, the design, the
+// effect size (absent in detectable mode) and the given n and power.
+struct PowerRequest {
+    Mode mode = Mode::power;
+    PowerDesign design;
+    std::optional<double> f2, r2_full, r2_reduced;
+    std::optional<long long> n;
+    std::optional<double> target;
+};
 
-int run_power(const std::vector<std::string>& args) {
-    const Arguments a(
-        args, {"detectable"},
-        {"f2", "r2-full", "r2-reduced", "tested", "predictors", "alpha", "n", "power", "noncentrality", "format"});
-    if (!a.positional.empty()) throw InputError("unexpected argument '" + a.positional.front() + "'\n" + kPowerUsage);
-    const std::string format = output_format(a);
+// The answer: the power calculation, plus the power at one observation
+// fewer in sample-size mode.
+struct PowerAnswer {
+    PowerResult r;
+    double power_one_fewer = std::nan("");
+};
 
-    // What to compute.
-    const bool has_n = a.has("n"), has_power = a.has("power"), detectable = a.has("detectable");
-    Mode mode;
-    if (detectable) {
+Mode read_mode(const Arguments& a) {
+    const bool has_n = a.has("n"), has_power = a.has("power");
+    if (a.has("detectable")) {
         if (!has_n || !has_power)
             throw InputError(
                 "--detectable needs both --n and --power (the smallest f2 detectable with N observations "
                 "at power P)\n" +
                 std::string(kPowerUsage));
-        mode = Mode::detectable;
-    } else if (has_n && has_power) {
+        return Mode::detectable;
+    }
+    if (has_n && has_power)
         throw InputError(
             "--n and --power together need --detectable (smallest detectable f2); give only --n to "
             "compute power, or only --power to compute the sample size\n" +
             std::string(kPowerUsage));
-    } else if (has_n) {
-        mode = Mode::power;
-    } else if (has_power) {
-        mode = Mode::sample_size;
-    } else {
-        throw InputError("give --n (to compute power) or --power (to compute the sample size)\n" +
-                         std::string(kPowerUsage));
-    }
+    if (has_n) return Mode::power;
+    if (has_power) return Mode::sample_size;
+    throw InputError("give --n (to compute power) or --power (to compute the sample size)\n" +
+                     std::string(kPowerUsage));
+}
 
-    // The design.
+PowerDesign read_design(const Arguments& a) {
     if (!a.has("predictors"))
         throw InputError(
             "option --predictors is required: the number of predictors in the full model, tested "
@@ -108,128 +114,145 @@ int run_power(const std::vector<std::string>& args) {
     design.alpha = a.has("alpha") ? parse_double(a.required("alpha"), "alpha") : 0.05;
     design.convention = a.has("noncentrality") ? parse_noncentrality(a.required("noncentrality"), "noncentrality")
                                                : Noncentrality::cohen;
+    return design;
+}
 
-    // The effect size.
-    std::optional<double> f2, r2_full, r2_reduced;
+// --f2, or --r2-full with --r2-reduced; none in detectable mode.
+void read_effect_size(const Arguments& a, PowerRequest& req) {
     const bool has_r2 = a.has("r2-full") || a.has("r2-reduced");
-    if (mode == Mode::detectable) {
+    if (req.mode == Mode::detectable) {
         if (a.has("f2") || has_r2)
             throw InputError("--detectable computes f2: do not give --f2, --r2-full or --r2-reduced with it");
-    } else {
-        if (a.has("f2") && has_r2)
-            throw InputError("give the effect size once: either --f2, or --r2-full with --r2-reduced");
-        if (a.has("f2")) {
-            f2 = parse_double(a.required("f2"), "f2");
-        } else if (has_r2) {
-            if (!a.has("r2-full") || !a.has("r2-reduced"))
-                throw InputError(
-                    "--r2-full and --r2-reduced go together: give both (the R² with and without the "
-                    "tested terms), or give --f2");
-            r2_full = parse_double(a.required("r2-full"), "r2-full");
-            r2_reduced = parse_double(a.required("r2-reduced"), "r2-reduced");
-            f2 = f2_from_r2(*r2_full, *r2_reduced);
-            if (*f2 == 0)
-                throw InputError("--r2-full equals --r2-reduced (" + num(*r2_full, "%.10g") +
-                                 "): the tested terms add nothing (f2 = 0), so there is no effect to plan for");
-        } else {
-            throw InputError("give the effect size: --f2 X, or --r2-full A with --r2-reduced B\n" +
-                             std::string(kPowerUsage));
-        }
+        return;
     }
+    if (a.has("f2") && has_r2)
+        throw InputError("give the effect size once: either --f2, or --r2-full with --r2-reduced");
+    if (a.has("f2")) {
+        req.f2 = parse_double(a.required("f2"), "f2");
+        return;
+    }
+    if (!has_r2)
+        throw InputError("give the effect size: --f2 X, or --r2-full A with --r2-reduced B\n" +
+                         std::string(kPowerUsage));
+    if (!a.has("r2-full") || !a.has("r2-reduced"))
+        throw InputError(
+            "--r2-full and --r2-reduced go together: give both (the R² with and without the "
+            "tested terms), or give --f2");
+    req.r2_full = parse_double(a.required("r2-full"), "r2-full");
+    req.r2_reduced = parse_double(a.required("r2-reduced"), "r2-reduced");
+    req.f2 = f2_from_r2(*req.r2_full, *req.r2_reduced);
+    if (*req.f2 == 0)
+        throw InputError("--r2-full equals --r2-reduced (" + num(*req.r2_full, "%.10g") +
+                         "): the tested terms add nothing (f2 = 0), so there is no effect to plan for");
+}
 
-    std::optional<long long> n;
-    if (has_n) n = parse_integer(a.required("n"), "n", 1, 1'000'000'000'000LL);
-    std::optional<double> target;
-    if (has_power) target = parse_double(a.required("power"), "power");
+PowerRequest read_request(const Arguments& a) {
+    PowerRequest req;
+    req.mode = read_mode(a);
+    req.design = read_design(a);
+    read_effect_size(a, req);
+    if (a.has("n")) req.n = parse_integer(a.required("n"), "n", 1, 1'000'000'000'000LL);
+    if (a.has("power")) req.target = parse_double(a.required("power"), "power");
+    return req;
+}
 
-    PowerResult r;
-    double power_one_fewer = std::nan("");
-    switch (mode) {
+PowerAnswer compute(const PowerRequest& req) {
+    PowerAnswer out;
+    switch (req.mode) {
         case Mode::power:
-            r = power_of_test(*f2, *n, design);
+            out.r = power_of_test(*req.f2, *req.n, req.design);
             break;
         case Mode::sample_size: {
-            const auto s = smallest_n_for_power(*f2, *target, design);
-            r = s.at_n;
-            power_one_fewer = s.power_one_fewer;
+            const auto s = smallest_n_for_power(*req.f2, *req.target, req.design);
+            out.r = s.at_n;
+            out.power_one_fewer = s.power_one_fewer;
             break;
         }
         case Mode::detectable:
-            r = smallest_detectable_f2(*n, *target, design).at_f2;
+            out.r = smallest_detectable_f2(*req.n, *req.target, req.design).at_f2;
             break;
     }
-    const double partial_r2 = partial_r2_from_f2(r.f2);
+    return out;
+}
 
-    if (format == "json") {
-        JsonWriter w;
-        w.begin_object();
-        w.field("mode", mode_name(mode));
-        w.field("f2", r.f2);
-        w.field("partial_r2", partial_r2);
-        if (r2_full) w.field("r2_full", *r2_full).field("r2_reduced", *r2_reduced);
-        w.field("tested_terms", r.tested_terms);
-        w.field("total_predictors", r.total_predictors);
-        w.field("alpha", r.alpha);
-        w.field("n", r.n);
-        w.field("df1", r.df1);
-        w.field("df2", r.df2);
-        w.field("noncentrality", r.noncentrality);
-        w.field("convention", noncentrality_name(r.convention));
-        w.field("noncentrality_formula", noncentrality_formula(r.convention));
-        w.field("critical_f", r.critical_f);
-        w.field("power", r.power);
-        if (target) w.field("target_power", *target);
-        if (mode == Mode::sample_size) {
-            w.key("power_one_fewer");
-            if (std::isnan(power_one_fewer)) w.null();
-            else w.value(power_one_fewer);
-        }
-        w.end_object();
-        std::cout << w.str();
-        return 0;
-    }
+std::string power_json(const PowerRequest& req, const PowerAnswer& ans) {
+    const PowerResult& r = ans.r;
+    JsonWriter w = begin_document();
+    w.field("mode", mode_name(req.mode));
+    w.field("f2", r.f2);
+    w.field("partial_r2", partial_r2_from_f2(r.f2));
+    if (req.r2_full) w.field("r2_full", *req.r2_full).field("r2_reduced", *req.r2_reduced);
+    w.field("tested_terms", r.tested_terms);
+    w.field("total_predictors", r.total_predictors);
+    w.field("alpha", r.alpha);
+    w.field("sample_size", r.n);
+    w.field("df1", r.df1);
+    w.field("df2", r.df2);
+    w.field("noncentrality", r.noncentrality);
+    w.field("noncentrality_convention", noncentrality_name(r.convention));
+    w.field("noncentrality_formula", noncentrality_formula(r.convention));
+    w.field("critical_value", r.critical_f);
+    w.field("power", r.power);
+    if (req.target) w.field("target_power", *req.target);
+    if (req.mode == Mode::sample_size) w.field("power_one_fewer", ans.power_one_fewer);  // NaN -> null
+    w.end_object();
+    return w.str();
+}
 
-    std::string text;
+std::string heading(const PowerRequest& req, const PowerResult& r) {
     const std::string design_words = plural(r.tested_terms, "tested term") + " among " +
                                      plural(r.total_predictors, "predictor") + " (plus an intercept)";
-    switch (mode) {
+    switch (req.mode) {
         case Mode::power:
-            text += "Power of the F test for " + design_words + "\n";
-            break;
+            return "Power of the F test for " + design_words + "\n";
         case Mode::sample_size:
-            text += "Smallest sample reaching power " + num(*target) + " for " + design_words + "\n";
-            break;
+            return "Smallest sample reaching power " + num(*req.target) + " for " + design_words + "\n";
         case Mode::detectable:
-            text += "Smallest effect detectable with power " + num(*target) + " and n = " + std::to_string(r.n) +
-                    " for " + design_words + "\n";
-            break;
+            return "Smallest effect detectable with power " + num(*req.target) + " and n = " + std::to_string(r.n) +
+                   " for " + design_words + "\n";
     }
+    return "";
+}
+
+std::string power_text(const PowerRequest& req, const PowerAnswer& ans) {
+    const PowerResult& r = ans.r;
+    std::string text = heading(req, r);
     const auto row = [&](const std::string& label, const std::string& value) {
         char buf[512];
         std::snprintf(buf, sizeof buf, "  %-22s %s\n", label.c_str(), value.c_str());
         text += buf;
     };
-    std::string f2_note = "(partial R² " + num(partial_r2) + ")";
-    if (r2_full) f2_note = "(from R² " + num(*r2_full) + " with and " + num(*r2_reduced) + " without the tested terms)";
-    row(mode == Mode::detectable ? "smallest f2" : "effect size f2", num(r.f2) + "  " + f2_note);
+    std::string f2_note = "(partial R² " + num(partial_r2_from_f2(r.f2)) + ")";
+    if (req.r2_full)
+        f2_note = "(from R² " + num(*req.r2_full) + " with and " + num(*req.r2_reduced) + " without the tested terms)";
+    row(req.mode == Mode::detectable ? "smallest f2" : "effect size f2", num(r.f2) + "  " + f2_note);
     row("alpha", num(r.alpha));
-    if (mode == Mode::sample_size) {
-        std::string note;
-        if (!std::isnan(power_one_fewer))
-            note = "  (with " + std::to_string(r.n - 1) + ": " + power_text(power_one_fewer) + ")";
-        row("n", std::to_string(r.n) + note);
-    } else {
-        row("n", std::to_string(r.n));
-    }
+    std::string n_note;
+    if (req.mode == Mode::sample_size && !std::isnan(ans.power_one_fewer))
+        n_note = "  (with " + std::to_string(r.n - 1) + ": " + power_words(ans.power_one_fewer) + ")";
+    row("n", std::to_string(r.n) + n_note);
     row("degrees of freedom", num(r.df1, "%.0f") + " and " + num(r.df2, "%.0f"));
     row("noncentrality", num(r.noncentrality) + "  (" + noncentrality_formula(r.convention) + ", " +
                              (r.convention == Noncentrality::cohen ? "Cohen's convention" : "n convention") + ")");
     row("critical F", num(r.critical_f));
-    row("power", power_text(r.power));
+    row("power", power_words(r.power));
     text +=
         "Assumes a linear model with normal errors of constant variance; f2 is the variance the tested terms\n"
         "explain, relative to the variance the full model leaves unexplained.\n";
-    std::cout << text;
+    return text;
+}
+
+}  // namespace
+
+int run_power(const std::vector<std::string>& args) {
+    const Arguments a(
+        args, {"detectable"},
+        {"f2", "r2-full", "r2-reduced", "tested", "predictors", "alpha", "n", "power", "noncentrality", "format"});
+    if (!a.positional.empty()) throw InputError("unexpected argument '" + a.positional.front() + "'\n" + kPowerUsage);
+    const std::string format = output_format(a);
+    const PowerRequest req = read_request(a);
+    const PowerAnswer ans = compute(req);
+    std::cout << (format == "json" ? power_json(req, ans) : power_text(req, ans));
     return 0;
 }
 

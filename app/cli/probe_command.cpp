@@ -1,3 +1,6 @@
+// `moderato-cli probe`: conditional effects of the focal predictor across the
+// moderator, regions of significance, the simultaneous band and crossover
+// points; the cell table when both predictors are categorical.
 #include <cmath>
 #include <cstdint>
 #include <iostream>
@@ -10,68 +13,84 @@
 #include "moderato/probing/probe.hpp"
 #include "moderato/probing/probe_bootstrap.hpp"
 #include "moderato/probing/response_scale.hpp"
+#include "moderato/probing/scale.hpp"
 #include "moderato/reporting/bootstrap_report.hpp"
 #include "moderato/reporting/cells_report.hpp"
+#include "moderato/reporting/fit_report.hpp"
 #include "moderato/reporting/json_writer.hpp"
+#include "moderato/reporting/output_json.hpp"
 #include "moderato/reporting/probe_report.hpp"
 #include "moderato/support/error.hpp"
 
 namespace moderato::cli {
 
-// Conditional effects of the focal predictor across the moderator, regions of
-// significance, the simultaneous band and crossover points.
-int run_probe(const std::vector<std::string>& args) {
+namespace {
+
+// What a probe run asked for, beyond the model.
+struct ProbeRequest {
+    ProbeSpec spec;
+    ProbeScale scale = ProbeScale::Model;
+    Averaging averaging = Averaging::Sample;
+    std::optional<BootstrapOptions> bootstrap;
+    int surface = 0;  // grid size; 0: none
+};
+
+std::set<std::string> probe_valued() {
     auto valued = model_valued();
-    for (const char* o : {"focal", "moderator", "at", "at-percentiles", "second-moderator", "focal-at", "scale",
-                          "average", "bootstrap", "seed", "surface"})
+    for (const char* o : {"focal", "moderator", "moderator-values", "moderator-percentiles", "second-moderator",
+                          "focal-at", "scale", "average", "bootstrap", "seed", "surface"})
         valued.insert(o);
-    const Arguments a(args, model_flags(), valued, repeatable_options());
-    if (!a.positional.empty()) throw InputError("unexpected argument '" + a.positional.front() + "'");
-    const std::string format = output_format(a);
-    LoadedModel m = load_model(a);
-    const Design design = build_design(m.table, m.spec);
-    FitResult fit = fit_design(design, m.spec);
+    return valued;
+}
 
-    ProbeSpec ps;
-    ps.focal = a.required("focal");
-    ps.moderator = a.required("moderator");
-
-    // Two categorical predictors: the cell table answers the question.
-    if (design.categorical(ps.focal) && design.categorical(ps.moderator)) {
-        for (const char* o : {"at", "at-percentiles", "second-moderator", "focal-at", "bootstrap", "surface"})
-            if (a.has(o))
-                throw InputError(std::string("option --") + o +
-                                 " does not apply when both the focal predictor and the moderator are categorical");
-        const CellTable t = cell_table(design, fit, ps.focal, ps.moderator);
-        if (format == "json") {
-            JsonWriter w = begin_output(a, m.spec);
-            w.field("family", to_string(fit.family));
-            w.field("n", fit.n);
-            w.key("cell_table");
-            write_cell_table(w, t);
-            w.end_object();
-            std::cout << w.str();
-        } else {
-            std::cout << cell_table_to_text(t);
-        }
+// Two categorical predictors: the cell table answers the question.
+int run_cells(const Arguments& a, const LoadedModel& m, const Design& design, const FitResult& fit, const ProbeSpec& ps,
+              const std::string& format) {
+    for (const char* o :
+         {"moderator-values", "moderator-percentiles", "second-moderator", "focal-at", "bootstrap", "surface"})
+        if (a.has(o))
+            throw InputError(std::string("option --") + o +
+                             " does not apply when both the focal predictor and the moderator are categorical");
+    const CellTable t = cell_table(design, fit, ps.focal, ps.moderator);
+    if (format != "json") {
+        std::cout << cell_table_to_text(t);
         return 0;
     }
-    if (design.categorical(ps.moderator) && (a.has("at") || a.has("at-percentiles")))
-        throw InputError("--at and --at-percentiles need a numeric moderator; '" + ps.moderator +
+    JsonWriter w = begin_output(a, m.spec);
+    w.field("family", to_string(fit.family));
+    w.field("standard_errors", standard_errors_name(fit.se));
+    w.field("rows_used", fit.n);
+    w.key("cell_table");
+    write_cell_table(w, t);
+    w.end_object();
+    std::cout << w.str();
+    return 0;
+}
+
+// --moderator-values or --moderator-percentiles (numeric moderators only).
+void read_moderator_values(const Arguments& a, const Design& design, ProbeSpec& ps) {
+    const bool values = a.has("moderator-values"), percentiles = a.has("moderator-percentiles");
+    if ((values || percentiles) && design.categorical(ps.moderator))
+        throw InputError("--moderator-values and --moderator-percentiles need a numeric moderator; '" + ps.moderator +
                          "' is categorical, and its effects are given at every level");
-    if (a.has("at") && a.has("at-percentiles")) throw InputError("give either --at or --at-percentiles, not both");
-    if (auto at = a.get("at"))
-        for (const auto& v : split_list(*at, "at")) ps.at.push_back(parse_double(v, "at"));
-    if (auto pct = a.get("at-percentiles")) {
+    if (values && percentiles) throw InputError("give either --moderator-values or --moderator-percentiles, not both");
+    if (auto at = a.get("moderator-values"))
+        for (const auto& v : split_list(*at, "moderator-values")) ps.at.push_back(parse_double(v, "moderator-values"));
+    if (auto pct = a.get("moderator-percentiles")) {
         if (!design.summaries.count(ps.moderator))
-            throw InputError("--at-percentiles needs a numeric moderator; '" + ps.moderator + "' is categorical");
-        for (const auto& v : split_list(*pct, "at-percentiles")) {
-            const double p = parse_double(v, "at-percentiles");
+            throw InputError("--moderator-percentiles needs a numeric moderator; '" + ps.moderator +
+                             "' is categorical");
+        for (const auto& v : split_list(*pct, "moderator-percentiles")) {
+            const double p = parse_double(v, "moderator-percentiles");
             if (p < 0 || p > 100)
-                throw InputError("option --at-percentiles takes percentiles from 0 to 100, got '" + v + "'");
+                throw InputError("option --moderator-percentiles takes percentiles from 0 to 100, got '" + v + "'");
             ps.at.push_back(design.percentile(ps.moderator, p));
         }
     }
+}
+
+// --second-moderator W[=VALUE] and --focal-at VALUE.
+void read_held_values(const Arguments& a, ProbeSpec& ps) {
     if (auto sm = a.get("second-moderator")) {
         std::string col = *sm;
         if (auto eq = sm->find('='); eq != std::string::npos) {
@@ -81,57 +100,95 @@ int run_probe(const std::vector<std::string>& args) {
         ps.second_moderator = col;
     }
     if (auto fa = a.get("focal-at")) ps.focal_value = parse_double(*fa, "focal-at");
-    const std::string scale = a.get("scale").value_or("link");
-    if (scale != "link" && scale != "response")
-        throw InputError("option --scale must be link or response, got '" + scale + "'");
+}
+
+// --scale model|outcome (the old words link and response are refused with
+// the new ones) and --average sample|values.
+void read_scale(const Arguments& a, Family family, ProbeRequest& req) {
+    const std::string scale = a.get("scale").value_or("model");
+    if (scale == "link" || scale == "response")
+        throw InputError("--scale " + scale + " is now called --scale " +
+                         (scale == "link" ? "model (the scale the coefficients live on, e.g. log-odds)"
+                                          : "outcome (the outcome's own scale, e.g. probability)"));
+    if (scale != "model" && scale != "outcome")
+        throw InputError("option --scale must be model or outcome, got '" + scale + "'");
     const std::string average = a.get("average").value_or("sample");
     if (average != "sample" && average != "values")
         throw InputError("option --average must be sample or values, got '" + average + "'");
-    if (scale == "response" && m.spec.family != Family::Logistic)
+    req.scale = scale == "outcome" ? ProbeScale::Outcome : ProbeScale::Model;
+    req.averaging = average == "values" ? Averaging::AtValues : Averaging::Sample;
+    if (req.scale == ProbeScale::Outcome && family != Family::Logistic)
         throw InputError(
-            "--scale response applies to logistic models (--family logistic); a linear model's effects "
+            "--scale outcome applies to logistic models (--family logistic); a linear model's effects "
             "are already on the outcome's scale");
-    std::optional<BootstrapOptions> boot;
+}
+
+// --bootstrap N [--seed S] and --surface K.
+void read_extras(const Arguments& a, const ModelSpec& spec, ProbeRequest& req) {
     if (auto n = a.get("bootstrap")) {
-        boot.emplace();
-        boot->replicates = static_cast<int>(parse_integer(*n, "bootstrap", 100, 1000000));
-        boot->seed = static_cast<std::uint64_t>(parse_integer(a.get("seed").value_or("1"), "seed", 0, INT64_MAX));
-        boot->threads = m.spec.threads;
-        boot->level = m.spec.level;
+        auto& boot = req.bootstrap.emplace();
+        boot.replicates = static_cast<int>(parse_integer(*n, "bootstrap", 100, 1000000));
+        boot.seed = static_cast<std::uint64_t>(parse_integer(a.get("seed").value_or("1"), "seed", 0, INT64_MAX));
+        boot.threads = spec.threads;
+        boot.level = spec.level;
     } else if (a.has("seed")) {
         throw InputError("option --seed goes with --bootstrap N");
     }
+    if (auto sz = a.get("surface")) req.surface = static_cast<int>(parse_integer(*sz, "surface", 2, 401));
+}
 
-    const ProbeResult r =
-        scale == "response"
-            ? probe_response(design, fit, ps, average == "sample" ? Averaging::Sample : Averaging::AtValues)
-            : probe(design, fit, ps);
-    std::optional<ProbeBootstrap> pb;
-    if (boot) pb = bootstrap_probe(design, m.spec, ps, r, *boot);
-    std::optional<SurfaceGrid> surface;
-    if (auto sz = a.get("surface")) {
-        const int k = static_cast<int>(parse_integer(*sz, "surface", 2, 401));
-        surface = surface_grid(design, fit, ps.focal, ps.moderator, k, k);
-    }
-    if (format == "json") {
-        JsonWriter w = begin_output(a, m.spec);
-        w.field("family", to_string(fit.family));
-        w.field("se_type", to_string(fit.se));
-        w.field("n", fit.n);
-        write_probe_fields(w, r);
-        w.key("bootstrap");
-        if (pb) write_probe_bootstrap(w, *pb);
-        else w.null();
-        if (surface) {
-            w.key("surface");
-            write_surface(w, *surface);
-        }
-        w.end_object();
-        std::cout << w.str();
-    } else {
+void print_probe(const Arguments& a, const LoadedModel& m, const FitResult& fit, const ProbeResult& r,
+                 const std::optional<ProbeBootstrap>& pb, const std::optional<SurfaceGrid>& surface,
+                 const std::string& format) {
+    if (format != "json") {
         std::cout << probe_to_text(r, fit);
         if (pb) std::cout << probe_bootstrap_to_text(*pb);
+        return;
     }
+    JsonWriter w = begin_output(a, m.spec);
+    w.field("family", to_string(fit.family));
+    w.field("standard_errors", standard_errors_name(fit.se));
+    w.field("rows_used", fit.n);
+    write_probe_fields(w, r);
+    w.key("bootstrap");
+    if (pb) write_probe_bootstrap(w, *pb);
+    else w.null();
+    if (surface) {
+        w.key("surface");
+        write_surface(w, *surface);
+    }
+    w.end_object();
+    std::cout << w.str();
+}
+
+}  // namespace
+
+int run_probe(const std::vector<std::string>& args) {
+    const Arguments a(args, model_flags(), probe_valued(), repeatable_options());
+    if (!a.positional.empty()) throw InputError("unexpected argument '" + a.positional.front() + "'");
+    const std::string format = output_format(a);
+    LoadedModel m = load_model(a);
+    const Design design = build_design(m.table, m.spec);
+    FitResult fit = fit_design(design, m.spec);
+
+    ProbeRequest req;
+    req.spec.focal = a.required("focal");
+    req.spec.moderator = a.required("moderator");
+    if (design.categorical(req.spec.focal) && design.categorical(req.spec.moderator))
+        return run_cells(a, m, design, fit, req.spec, format);
+    read_moderator_values(a, design, req.spec);
+    read_held_values(a, req.spec);
+    read_scale(a, m.spec.family, req);
+    read_extras(a, m.spec, req);
+
+    const ProbeResult r = req.scale == ProbeScale::Outcome ? probe_response(design, fit, req.spec, req.averaging)
+                                                           : probe(design, fit, req.spec);
+    std::optional<ProbeBootstrap> pb;
+    if (req.bootstrap) pb = bootstrap_probe(design, m.spec, req.spec, r, *req.bootstrap);
+    std::optional<SurfaceGrid> surface;
+    if (req.surface > 0)
+        surface = surface_grid(design, fit, req.spec.focal, req.spec.moderator, req.surface, req.surface);
+    print_probe(a, m, fit, r, pb, surface, format);
     return 0;
 }
 

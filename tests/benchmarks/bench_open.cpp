@@ -42,7 +42,7 @@
 #include "moderato/project/project.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
-#include "moderato/support/file_util.hpp"
+#include "moderato/support/sha256.hpp"
 #include "shell/main_window.hpp"
 
 namespace fs = std::filesystem;

@@ -10,7 +10,7 @@ What it does, all in one invocation so the ratios compare like with like:
   2. times four programs as whole processes, each --repeats times (default 3),
      interleaved, and keeps the median wall time and the peak resident set
      (ru_maxrss of the child, from os.wait4):
-       (a) moderato-cli describe --data F --format json          (our load)
+       (a) moderato-cli columns --data F --format json           (our load)
        (b) python: pandas.read_csv(F)                            (reference load)
        (c) moderato-cli fit ... --se hc3 --format json           (our load + fit + HC3)
        (d) python: read_csv, design matrix in numpy,
@@ -263,8 +263,8 @@ def main():
     fit_args = ["fit", "--data", str(data), "--outcome", "y", "--interaction", ",".join(FOCAL),
                 "--predictors", ",".join(CONTROLS), "--se", "hc3", "--format", "json"]
     cases = [
-        ("our_load", "moderato-cli describe (load)",
-         [str(cli), "describe", "--data", str(data), "--format", "json"], our_env),
+        ("our_load", "moderato-cli columns (load)",
+         [str(cli), "columns", "--data", str(data), "--format", "json"], our_env),
         ("ref_load", "pandas.read_csv (load)", [args.python, "-c", LOAD_SNIPPET, str(data)], ref_env),
         ("our_fit", "moderato-cli fit, HC3 (load + fit)", [str(cli)] + fit_args, our_env),
         ("ref_fit", "statsmodels OLS, HC3 (read_csv + design + fit)",
@@ -272,8 +272,8 @@ def main():
     ]
     if args.extras:
         cases += [
-            ("our_load_1t", "moderato-cli describe --threads 1",
-             [str(cli), "describe", "--data", str(data), "--format", "json", "--threads", "1"], our_env),
+            ("our_load_1t", "moderato-cli columns --threads 1",
+             [str(cli), "columns", "--data", str(data), "--format", "json", "--threads", "1"], our_env),
             ("our_fit_1t", "moderato-cli fit --threads 1", [str(cli)] + fit_args + ["--threads", "1"], our_env),
             ("ref_fit_env", "statsmodels, inherited OPENBLAS_* env",
              [args.python, "-c", FIT_SNIPPET, str(data)], our_env),
@@ -312,31 +312,31 @@ def main():
     ref, ref_load = ref_runs[-1], ref_load_runs[-1]
     n_rows = described["rows"]
     if rows is not None and n_rows != rows:
-        die("moderato-cli describe read {} rows, the table has {}".format(n_rows, rows))
-    if not (ours["n"] == ref["rows"] == ref_load["rows"] == n_rows):
-        die("row counts differ: moderato fit n={}, statsmodels {}, read_csv {}, describe {}".format(
-            ours["n"], ref["rows"], ref_load["rows"], n_rows))
-    by_factors = {frozenset(c["term"].split("×")): c for c in ours["coefficients"]}
-    worst = {"estimate": (0.0, None), "std_error": (0.0, None)}
+        die("moderato-cli columns read {} rows, the table has {}".format(n_rows, rows))
+    if not (ours["rows_used"] == ref["rows"] == ref_load["rows"] == n_rows):
+        die("row counts differ: moderato fit rows_used={}, statsmodels {}, read_csv {}, columns {}".format(
+            ours["rows_used"], ref["rows"], ref_load["rows"], n_rows))
+    by_factors = {frozenset(c["name"].split("×")): c for c in ours["terms"]}
+    worst = {"value": (0.0, None), "se": (0.0, None)}
     for name, b, se in zip(ref["names"], ref["params"], ref["bse"]):
         c = by_factors.get(frozenset(name.split("*")))
         if c is None:
             die("moderato-cli fit has no term for statsmodels' " + name)
-        for field, value in (("estimate", b), ("std_error", se)):
+        for field, value in (("value", b), ("se", se)):
             ours_value = c[field]
             if ours_value is None:
-                die("moderato-cli fit gave no {} for {}".format(field, c["term"]))
+                die("moderato-cli fit gave no {} for {}".format(field, c["name"]))
             rel = abs(ours_value - value) / abs(value) if value != 0 else abs(ours_value)
             if rel != rel:  # NaN on either side
                 rel = float("inf")
             if rel >= worst[field][0]:
-                worst[field] = (rel, c["term"])
+                worst[field] = (rel, c["name"])
     if len(by_factors) != len(ref["names"]):
         die("moderato-cli fit has {} terms, statsmodels {}".format(len(by_factors), len(ref["names"])))
-    agreement = {"max_rel_diff_coefficients": worst["estimate"][0], "worst_coefficient": worst["estimate"][1],
-                 "max_rel_diff_hc3_se": worst["std_error"][0], "worst_se": worst["std_error"][1],
+    agreement = {"max_rel_diff_coefficients": worst["value"][0], "worst_coefficient": worst["value"][1],
+                 "max_rel_diff_hc3_se": worst["se"][0], "worst_se": worst["se"][1],
                  "limit": AGREEMENT_LIMIT}
-    agreement["agree"] = max(worst["estimate"][0], worst["std_error"][0]) <= AGREEMENT_LIMIT
+    agreement["agree"] = max(worst["value"][0], worst["se"][0]) <= AGREEMENT_LIMIT
 
     # 4. Ratios.
     m = {k: v["wall_s_median"] for k, v in summary.items()}

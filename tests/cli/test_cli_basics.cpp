@@ -50,14 +50,14 @@ json fit_json(std::vector<std::string> args) {
 
 std::vector<std::string> terms_of(const json& j) {
     std::vector<std::string> t;
-    for (const auto& c : j.at("coefficients")) t.push_back(c.at("term").get<std::string>());
+    for (const auto& c : j.at("terms")) t.push_back(c.at("name").get<std::string>());
     return t;
 }
 
 double estimate_of(const json& j, const std::string& term) {
-    for (const auto& c : j.at("coefficients"))
-        if (c.at("term") == term) return c.at("estimate").get<double>();
-    ADD_FAILURE() << "no term " << term << " in " << j.at("coefficients").dump();
+    for (const auto& c : j.at("terms"))
+        if (c.at("name") == term) return c.at("value").get<double>();
+    ADD_FAILURE() << "no term " << term << " in " << j.at("terms").dump();
     return NAN;
 }
 
@@ -72,15 +72,15 @@ int significant_digits(std::string number) {
     return first == std::string::npos ? 0 : static_cast<int>(digits.size() - first);
 }
 
-// The raw text of the "estimate" written for `term` in the JSON output
-// (the writer puts "estimate" right after "term" in each coefficient).
+// The raw text of the "value" written for `term` in the JSON output
+// (the writer puts "value" right after "name" in each term).
 std::string raw_estimate(const std::string& out, const std::string& term) {
-    const std::string key = "\"term\": \"" + term + "\"";
+    const std::string key = "\"name\": \"" + term + "\"";
     const auto at = out.find(key);
     if (at == std::string::npos) return "";
-    const auto est = out.find("\"estimate\":", at);
+    const auto est = out.find("\"value\":", at);
     if (est == std::string::npos) return "";
-    const auto b = out.find_first_not_of(" \n", est + 11);
+    const auto b = out.find_first_not_of(" \n", est + 8);
     if (b == std::string::npos) return "";
     const auto e = out.find_first_of(",\n}", b);
     return out.substr(b, e == std::string::npos ? std::string::npos : e - b);
@@ -107,14 +107,14 @@ TEST(CliBasics, HelpExitsZeroAndDescribesFit) {
 TEST(CliBasics, FitJsonHasEveryContractKeyAndExactCoefficients) {
     const json j = fit_json({"--data", "ok/exact_interaction.csv", "--outcome", "y", "--interaction", "x,z"});
     ASSERT_TRUE(j.is_object());
-    for (const char* key :
-         {"n", "n_excluded", "family", "se_type", "coefficients", "covariance", "aliased", "df_residual", "r_squared",
-          "adj_r_squared", "residual_sd", "f_statistic", "f_p_value", "log_likelihood", "aic", "bic"})
+    for (const char* key : {"output_version", "rows_used", "rows_left_out", "family", "standard_errors", "test",
+                            "residual_df", "terms", "covariance", "not_estimated", "r2", "r2_adjusted", "residual_sd",
+                            "overall_test", "log_likelihood", "aic", "bic"})
         EXPECT_TRUE(j.contains(key)) << "missing key " << key;
-    ASSERT_TRUE(j.contains("coefficients"));
-    for (const auto& c : j.at("coefficients"))
-        for (const char* key : {"term", "estimate", "std_error", "statistic", "p_value", "ci_lower", "ci_upper"})
-            EXPECT_TRUE(c.contains(key)) << "coefficient lacks " << key << ": " << c.dump();
+    ASSERT_TRUE(j.contains("terms"));
+    for (const auto& c : j.at("terms"))
+        for (const char* key : {"name", "value", "se", "test_value", "p", "low", "high"})
+            EXPECT_TRUE(c.contains(key)) << "term lacks " << key << ": " << c.dump();
 
     // Term labels (ARCHITECTURE.md): intercept, columns, product with U+00D7.
     EXPECT_EQ(terms_of(j), (std::vector<std::string>{"intercept", "x", "z", "x\u00D7z"}));
@@ -123,13 +123,15 @@ TEST(CliBasics, FitJsonHasEveryContractKeyAndExactCoefficients) {
     EXPECT_NEAR(estimate_of(j, "x"), 2.0, kExact);
     EXPECT_NEAR(estimate_of(j, "z"), 3.0, kExact);
     EXPECT_NEAR(estimate_of(j, "x\u00D7z"), -0.5, kExact);
-    EXPECT_EQ(j.at("n"), 12);           // 12 rows in the file
-    EXPECT_EQ(j.at("n_excluded"), 0);   // none missing
-    EXPECT_EQ(j.at("df_residual"), 8);  // n − p = 12 − 4
+    EXPECT_EQ(j.at("output_version"), 2);  // ARCHITECTURE.md
+    EXPECT_EQ(j.at("rows_used"), 12);      // 12 rows in the file
+    EXPECT_EQ(j.at("rows_left_out"), 0);   // none missing
+    EXPECT_EQ(j.at("residual_df"), 8);     // n − p = 12 − 4
     EXPECT_EQ(j.at("family"), "linear");
-    EXPECT_EQ(j.at("se_type"), "classical");
-    EXPECT_NEAR(j.at("r_squared").get<double>(), 1.0, kExact);  // exact fit
-    EXPECT_TRUE(j.at("aliased").is_array() && j.at("aliased").empty());
+    EXPECT_EQ(j.at("standard_errors"), "model-based");
+    EXPECT_EQ(j.at("test"), "t");
+    EXPECT_NEAR(j.at("r2").get<double>(), 1.0, kExact);  // exact fit
+    EXPECT_TRUE(j.at("not_estimated").is_array() && j.at("not_estimated").empty());
     // Covariance: p × p, same order as the coefficients, symmetric.
     const auto& v = j.at("covariance");
     ASSERT_EQ(v.size(), 4u);
@@ -168,9 +170,9 @@ TEST(CliBasics, FitTextNamesEveryTerm) {
 TEST(CliBasics, MissingCellsAreCountedAsExcludedRows) {
     // The file: the 12 exact rows, plus one row with x = NA and one with z empty.
     const json j = fit_json({"--data", "ok/exact_interaction_missing.csv", "--outcome", "y", "--interaction", "x,z"});
-    ASSERT_TRUE(j.is_object() && j.contains("n"));
-    EXPECT_EQ(j.at("n"), 12);
-    EXPECT_EQ(j.at("n_excluded"), 2);
+    ASSERT_TRUE(j.is_object() && j.contains("rows_used"));
+    EXPECT_EQ(j.at("rows_used"), 12);
+    EXPECT_EQ(j.at("rows_left_out"), 2);
     // The excluded rows do not pull the fit off the exact plane (closed form).
     EXPECT_NEAR(estimate_of(j, "x\u00D7z"), -0.5, kExact);
 }
@@ -178,7 +180,7 @@ TEST(CliBasics, MissingCellsAreCountedAsExcludedRows) {
 TEST(CliBasics, CategoricalPredictorUsesFirstSortedLevelAsReference) {
     // The file lists levels in the order b, a, c; the reference is the first sorted: a.
     const json j = fit_json({"--data", "ok/categorical.csv", "--outcome", "y", "--predictors", "x,g"});
-    ASSERT_TRUE(j.is_object() && j.contains("coefficients"));
+    ASSERT_TRUE(j.is_object() && j.contains("terms"));
     EXPECT_EQ(terms_of(j), (std::vector<std::string>{"intercept", "x", "g=b", "g=c"}));
     // Closed form: y = 1 + 2x + 5[g=b] − 3[g=c].
     EXPECT_NEAR(estimate_of(j, "intercept"), 1.0, kExact);
@@ -190,7 +192,7 @@ TEST(CliBasics, CategoricalPredictorUsesFirstSortedLevelAsReference) {
 TEST(CliBasics, ReferenceOptionChangesTheReferenceLevel) {
     const json j =
         fit_json({"--data", "ok/categorical.csv", "--outcome", "y", "--predictors", "x,g", "--reference", "g=c"});
-    ASSERT_TRUE(j.is_object() && j.contains("coefficients"));
+    ASSERT_TRUE(j.is_object() && j.contains("terms"));
     EXPECT_EQ(terms_of(j), (std::vector<std::string>{"intercept", "x", "g=a", "g=b"}));
     // Closed form: the same plane written with reference c:
     // y = −2 + 2x + 3[g=a] + 8[g=b].
@@ -200,23 +202,23 @@ TEST(CliBasics, ReferenceOptionChangesTheReferenceLevel) {
     EXPECT_NEAR(estimate_of(j, "g=b"), 8.0, kExact);
 }
 
-TEST(CliBasics, CollinearColumnIsReportedAsAliasedNotDropped) {
+TEST(CliBasics, CollinearColumnIsReportedAsNotEstimatedNotDropped) {
     const json j = fit_json({"--data", "ok/collinear.csv", "--outcome", "y", "--predictors", "x,z,z2"});
-    ASSERT_TRUE(j.is_object() && j.contains("coefficients"));
+    ASSERT_TRUE(j.is_object() && j.contains("terms"));
     // z2 = 2z exactly. Common practice (R's lm with pivoting): the later of two
-    // collinear columns is the aliased one; it stays listed, with no estimate.
-    EXPECT_EQ(j.at("aliased"), json::array({"z2"}));
+    // collinear columns is the one not estimated; it stays listed, with no value.
+    EXPECT_EQ(j.at("not_estimated"), json::array({"z2"}));
     EXPECT_EQ(terms_of(j), (std::vector<std::string>{"intercept", "x", "z", "z2"}));
-    for (const auto& c : j.at("coefficients"))
-        if (c.at("term") == "z2") {
-            EXPECT_TRUE(c.at("estimate").is_null()) << c.dump();
-            EXPECT_TRUE(c.at("std_error").is_null()) << c.dump();
+    for (const auto& c : j.at("terms"))
+        if (c.at("name") == "z2") {
+            EXPECT_TRUE(c.at("value").is_null()) << c.dump();
+            EXPECT_TRUE(c.at("se").is_null()) << c.dump();
         }
     // Closed form: exact data y = 1 + 2x + 3z.
     EXPECT_NEAR(estimate_of(j, "intercept"), 1.0, kExact);
     EXPECT_NEAR(estimate_of(j, "x"), 2.0, kExact);
     EXPECT_NEAR(estimate_of(j, "z"), 3.0, kExact);
-    EXPECT_EQ(j.at("df_residual"), 9);  // 12 rows − rank 3
+    EXPECT_EQ(j.at("residual_df"), 9);  // 12 rows − rank 3
     // The user is told, not only the JSON reader.
     bool warned = false;
     for (const auto& w : j.value("warnings", json::array()))

@@ -58,20 +58,21 @@ TEST(NistStrdCli, JsonOutputMeetsCertifiedDigits) {
         ASSERT_EQ(status, 0) << cmd;
         const auto j = nlohmann::json::parse(out);
         double coef = 15, se = 15;
-        ASSERT_EQ(j.at("coefficients").size(), c.coefficients.size()) << name;
+        ASSERT_EQ(j.at("output_version"), 2) << name;
+        ASSERT_EQ(j.at("terms").size(), c.coefficients.size()) << name;
         for (std::size_t k = 0; k < c.coefficients.size(); ++k) {
             const std::string term = nist_term(c, k);
             bool found = false;
-            for (const auto& row : j.at("coefficients"))
-                if (row.at("term") == term) {
+            for (const auto& row : j.at("terms"))
+                if (row.at("name") == term) {
                     found = true;
-                    coef = std::min(coef, lre(row.at("estimate").get<double>(), c.coefficients[k]));
-                    se = std::min(se, lre(row.at("std_error").get<double>(), c.standard_errors[k]));
+                    coef = std::min(coef, lre(row.at("value").get<double>(), c.coefficients[k]));
+                    se = std::min(se, lre(row.at("se").get<double>(), c.standard_errors[k]));
                 }
             EXPECT_TRUE(found) << name << " " << term;
         }
         const double sd = lre(j.at("residual_sd").get<double>(), c.residual_sd);
-        const double r2 = lre(j.at("r_squared").get<double>(), c.r_squared);
+        const double r2 = lre(j.at("r2").get<double>(), c.r_squared);
         const double need = nist_required_lre(name);
         std::printf("%-9s %7.2f %7.2f %7.2f %7.2f %9.0f\n", name.c_str(), coef, se, sd, r2, need);
         EXPECT_GE(coef, need) << name;

@@ -73,21 +73,23 @@ TEST(PowerCli, PowerJsonMatchesReferenceAndCore) {
     EXPECT_EQ(j.at("mode"), "power");
     EXPECT_EQ(j.at("tested_terms"), 2);
     EXPECT_EQ(j.at("total_predictors"), 5);
-    EXPECT_EQ(j.at("n"), 200);
+    EXPECT_EQ(j.at("output_version"), 2);
+    EXPECT_EQ(j.at("sample_size"), 200);
     EXPECT_EQ(j.at("df1").get<double>(), ref.at("df1").get<double>());  // scipy reference
     EXPECT_EQ(j.at("df2").get<double>(), ref.at("df2").get<double>());  // scipy reference
-    EXPECT_EQ(j.at("convention"), "n");
+    EXPECT_EQ(j.at("noncentrality_convention"), "n");
     EXPECT_EQ(j.at("noncentrality_formula"), "f2 * n");
     EXPECT_LE(rel_diff(j.at("noncentrality").get<double>(), ref.at("noncentrality").get<double>()),
-              1e-12);                                                                                 // scipy reference
-    EXPECT_LE(rel_diff(j.at("critical_f").get<double>(), ref.at("critical_f").get<double>()), 1e-8);  // scipy f.isf
-    EXPECT_LE(rel_diff(j.at("power").get<double>(), ref.at("power").get<double>()), 1e-8);            // scipy ncf.sf
-    EXPECT_NEAR(j.at("partial_r2").get<double>(), 0.03 / 1.03, 1e-16);                                // closed form
+              1e-12);  // scipy reference
+    EXPECT_LE(rel_diff(j.at("critical_value").get<double>(), ref.at("critical_f").get<double>()),
+              1e-8);                                                                        // scipy f.isf
+    EXPECT_LE(rel_diff(j.at("power").get<double>(), ref.at("power").get<double>()), 1e-8);  // scipy ncf.sf
+    EXPECT_NEAR(j.at("partial_r2").get<double>(), 0.03 / 1.03, 1e-16);                      // closed form
 
     // 17 significant digits: the printed number is the core's double exactly.
     const auto core = moderato::power_of_test(0.03, 200, design(2, 5, 0.01, moderato::Noncentrality::n));
     EXPECT_EQ(j.at("power").get<double>(), core.power);
-    EXPECT_EQ(j.at("critical_f").get<double>(), core.critical_f);
+    EXPECT_EQ(j.at("critical_value").get<double>(), core.critical_f);
 }
 
 TEST(PowerCli, SampleSizeJsonMatchesReference) {
@@ -97,8 +99,8 @@ TEST(PowerCli, SampleSizeJsonMatchesReference) {
     const json j =
         power_json({"--power", "0.9", "--f2", "0.05", "--tested", "2", "--predictors", "6", "--alpha", "0.01"});
     EXPECT_EQ(j.at("mode"), "sample_size");
-    EXPECT_EQ(j.at("convention"), "cohen");
-    EXPECT_EQ(j.at("n").get<long long>(), ref.at("n").get<long long>());                         // scan of scipy ncf.sf
+    EXPECT_EQ(j.at("noncentrality_convention"), "cohen");
+    EXPECT_EQ(j.at("sample_size").get<long long>(), ref.at("n").get<long long>());               // scan of scipy ncf.sf
     EXPECT_LE(rel_diff(j.at("power").get<double>(), ref.at("power_at_n").get<double>()), 1e-8);  // scipy ncf.sf
     EXPECT_LE(rel_diff(j.at("power_one_fewer").get<double>(), ref.at("power_one_fewer").get<double>()),
               1e-8);  // scipy ncf.sf

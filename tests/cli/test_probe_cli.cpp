@@ -20,8 +20,8 @@ const std::string kOrchard = std::string(MODERATO_TEST_DATA_DIR) + "/../../sampl
 json run_json(const std::vector<std::string>& args) { return moderato::test::json_output(run_cli(args)); }
 
 double coefficient(const json& fit, const std::string& term) {
-    for (const auto& c : fit.at("coefficients"))
-        if (c.at("term") == term) return c.at("estimate").get<double>();
+    for (const auto& c : fit.at("terms"))
+        if (c.at("name") == term) return c.at("value").get<double>();
     ADD_FAILURE() << "no term " << term;
     return NAN;
 }
@@ -33,33 +33,34 @@ TEST(ProbeCli, JsonHasTheContractFieldsAndAgreesWithFit) {
         "--data", kOrchard, "--outcome", "yield_t_ha", "--interaction", "nitrogen_kg_ha,soil_moisture_pct",
         "--se",   "hc3",    "--format",  "json"};
     std::vector<std::string> fit_args{"fit"},
-        probe_args{"probe", "--focal", "nitrogen_kg_ha", "--moderator", "soil_moisture_pct", "--at", "0,20"};
+        probe_args{"probe", "--focal", "nitrogen_kg_ha", "--moderator", "soil_moisture_pct", "--moderator-values",
+                   "0,20"};
     fit_args.insert(fit_args.end(), model.begin(), model.end());
     probe_args.insert(probe_args.end(), model.begin(), model.end());
     const json fit = run_json(fit_args), probe = run_json(probe_args);
-    for (const char* key : {"focal", "moderator", "scale", "level", "df", "critical_t", "conditional_effects",
-                            "johnson_neyman", "simultaneous_band", "crossover"})
+    for (const char* key : {"output_version", "focal", "moderator", "scale", "level", "df", "critical_value",
+                            "effects_at", "significance_region", "simultaneous", "crossing"})
         EXPECT_TRUE(probe.contains(key)) << key;
-    for (const char* key : {"moderator_value", "effect", "std_error", "statistic", "p_value", "ci_lower", "ci_upper"})
-        EXPECT_TRUE(probe.at("conditional_effects").at(0).contains(key)) << key;
-    for (const char* key : {"boundaries", "significant_regions", "observed_range"})
-        EXPECT_TRUE(probe.at("johnson_neyman").contains(key)) << key;
-    for (const char* key : {"critical_value", "boundaries", "significant_regions"})
-        EXPECT_TRUE(probe.at("simultaneous_band").contains(key)) << key;
-    for (const char* key : {"focal_value", "ci_lower", "ci_upper", "ci_kind", "within_observed_range", "form"})
-        EXPECT_TRUE(probe.at("crossover").contains(key)) << key;
+    for (const char* key : {"moderator_value", "effect", "se", "test_value", "p", "low", "high", "beyond_data"})
+        EXPECT_TRUE(probe.at("effects_at").at(0).contains(key)) << key;
+    for (const char* key : {"boundaries", "intervals", "observed_range"})
+        EXPECT_TRUE(probe.at("significance_region").contains(key)) << key;
+    for (const char* key : {"critical_value", "boundaries", "intervals"})
+        EXPECT_TRUE(probe.at("simultaneous").contains(key)) << key;
+    for (const char* key : {"at", "low", "high", "interval_kind", "inside_data", "form"})
+        EXPECT_TRUE(probe.at("crossing").contains(key)) << key;
+    EXPECT_EQ(probe.at("scale"), "model");  // a linear model: the coefficients' scale is the outcome's
     const double bx = coefficient(fit, "nitrogen_kg_ha"), bxz = coefficient(fit, "nitrogen_kg_ha×soil_moisture_pct");
-    const auto& effects = probe.at("conditional_effects");
+    const auto& effects = probe.at("effects_at");
     EXPECT_NEAR(effects.at(0).at("effect").get<double>(), bx, 1e-15);  // closed form: effect(0) = b_x
     EXPECT_NEAR(effects.at(1).at("effect").get<double>(), bx + 20 * bxz, 1e-14);
     EXPECT_TRUE(effects.at(0).at("beyond_data").get<bool>());  // moisture 0 lies below the observed 12
     EXPECT_FALSE(effects.at(1).at("beyond_data").get<bool>());
     // crossover x* = -b_z / b_xz (closed form)
-    EXPECT_NEAR(probe.at("crossover").at("focal_value").get<double>(), -coefficient(fit, "soil_moisture_pct") / bxz,
-                1e-9);
+    EXPECT_NEAR(probe.at("crossing").at("at").get<double>(), -coefficient(fit, "soil_moisture_pct") / bxz, 1e-9);
     // an unbounded region is written with null
     bool has_null = false;
-    for (const auto& r : probe.at("johnson_neyman").at("significant_regions"))
+    for (const auto& r : probe.at("significance_region").at("intervals"))
         has_null |= r.at(0).is_null() || r.at(1).is_null();
     EXPECT_TRUE(has_null);
 }
@@ -67,7 +68,7 @@ TEST(ProbeCli, JsonHasTheContractFieldsAndAgreesWithFit) {
 TEST(ProbeCli, PercentilesAndTextOutput) {
     auto r =
         run_cli({"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,tenure_months",
-                 "--focal", "discount_pct", "--moderator", "tenure_months", "--at-percentiles", "10,50,90"});
+                 "--focal", "discount_pct", "--moderator", "tenure_months", "--moderator-percentiles", "10,50,90"});
     ASSERT_TRUE(r.exited && r.exit_code == 0) << r.describe();
     EXPECT_NE(r.out.find("Region of significance"), std::string::npos);
     EXPECT_NE(r.out.find("Cautions:"), std::string::npos);
@@ -91,12 +92,12 @@ TEST(ProbeCli, RefusalsAreExplained) {
           "--focal", "discount_pct", "--moderator", "shop"},
          "moderato-cli: moderator 'shop' is not in the model"},
         {{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,shop", "--focal",
-          "discount_pct", "--moderator", "shop", "--at", "1,2"},
-         "moderato-cli: --at and --at-percentiles need a numeric moderator; 'shop' is categorical, and its effects "
-         "are given at every level"},
+          "discount_pct", "--moderator", "shop", "--moderator-values", "1,2"},
+         "moderato-cli: --moderator-values and --moderator-percentiles need a numeric moderator; 'shop' is "
+         "categorical, and its effects are given at every level"},
         {{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,loyalty_member",
-          "--focal", "discount_pct", "--moderator", "loyalty_member", "--scale", "response"},
-         "moderato-cli: --scale response applies to logistic models (--family logistic); a linear model's effects "
+          "--focal", "discount_pct", "--moderator", "loyalty_member", "--scale", "outcome"},
+         "moderato-cli: --scale outcome applies to logistic models (--family logistic); a linear model's effects "
          "are already on the outcome's scale"},
         {{"probe", "--data", sep, "--outcome", "y", "--interaction", "x,z", "--family", "logistic", "--focal", "x",
           "--moderator", "z"},
@@ -138,12 +139,12 @@ TEST(ProbeCli, BootstrapIsTheSameOnOneOrTwoThreads) {
     two.insert(two.end(), {"--threads", "2"});
     const json a = run_json(one), b = run_json(two);
     ASSERT_TRUE(a.at("bootstrap").is_object());
-    EXPECT_EQ(a.at("bootstrap").at("statistics"), b.at("bootstrap").at("statistics"));
+    EXPECT_EQ(a.at("bootstrap").at("resampled"), b.at("bootstrap").at("resampled"));
     EXPECT_EQ(a.at("bootstrap").at("completed").get<int>(), 200);
     // the effect at loyalty_member = 0 equals the discount_pct coefficient (closed form), bootstrapped around it
-    const auto& first = a.at("bootstrap").at("statistics").at(0);
-    EXPECT_LT(first.at("percentile_lower").get<double>(), first.at("estimate").get<double>());
-    EXPECT_GT(first.at("percentile_upper").get<double>(), first.at("estimate").get<double>());
+    const auto& first = a.at("bootstrap").at("resampled").at(0);
+    EXPECT_LT(first.at("percentile").at("low").get<double>(), first.at("value").get<double>());
+    EXPECT_GT(first.at("percentile").at("high").get<double>(), first.at("value").get<double>());
 }
 
 TEST(ProbeCli, BootstrapRefusesTooFewRows) {
@@ -171,9 +172,9 @@ TEST(ProbeCli, TwoCategoricalPredictorsGiveTheCellTable) {
     const auto& t = probe.at("cell_table");
     ASSERT_EQ(t.at("cells").size(), 4u);
     for (const auto& c : t.at("cells"))
-        EXPECT_NEAR(c.at("estimate").get<double>(), c.at("observed_mean").get<double>(), 1e-10);
+        EXPECT_NEAR(c.at("value").get<double>(), c.at("observed_mean").get<double>(), 1e-10);
     ASSERT_EQ(t.at("interaction_contrasts").size(), 1u);
-    EXPECT_NEAR(t.at("interaction_contrasts").at(0).at("estimate").get<double>(),
+    EXPECT_NEAR(t.at("interaction_contrasts").at(0).at("value").get<double>(),
                 coefficient(fit, "onboarding=online×mentoring=no mentor"), 1e-10);
 }
 

@@ -778,7 +778,7 @@ fs::path write_awkward_project(const fs::path& dir, const std::string& data_path
     }
     fs::create_directories((dir / data_path).parent_path());
     spit(dir / data_path, csv);
-    const json project = {{"schema_version", 1},
+    const json project = {{"schema_version", 2},
                           {"datasets",
                            {{{"id", "esc"},
                              {"path", data_path},
@@ -803,14 +803,14 @@ fs::path write_awkward_project(const fs::path& dir, const std::string& data_path
                                {"weights", ""},
                                {"clusters", ""}}},
                              {"family", "linear"},
-                             {"se", "classical"},
+                             {"standard_errors", "model-based"},
                              {"level", 0.95},
                              {"centring", "none"},
                              {"probe",
                               {{"current", nullptr},
                                {"pinned", json::array()},
                                {"second_value", nullptr},
-                               {"scale", "link"},
+                               {"scale", "model"},
                                {"averaging", "sample"},
                                {"simultaneous_band", false},
                                {"show_points", true}}},

@@ -351,7 +351,7 @@ TEST(MemoRender, FooterStatesChecksumVersionAndEveryOption) {
     EXPECT_EQ(footer["software"], "Moderato " MODERATO_VERSION);
     EXPECT_EQ(footer["data SHA-256"], ctx.data_sha256);
     EXPECT_EQ(footer["data SHA-256 as saved"], "matches");
-    EXPECT_EQ(footer["analysis.se"], "hc3");
+    EXPECT_EQ(footer["analysis.standard_errors"], "hc3");
     EXPECT_EQ(footer["analysis.roles.moderator"], "loyalty_member");
     EXPECT_EQ(footer["dataset.import.delimiter"], ",");
     EXPECT_EQ(footer["analysis.figure.dpi"], "300");

@@ -544,7 +544,7 @@ TEST(DatasetPage, RecipesThatCannotBeComputedAreExplained) {
     DerivedRecipe bad;
     bad.dataset = id;
     bad.name = "log_amount";
-    bad.kind = "log";
+    bad.kind = RecipeKind::Log;
     bad.source = "amount";
     p.derived.push_back(bad);
     doc.setProject(p, QStringLiteral("test"));

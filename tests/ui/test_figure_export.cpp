@@ -53,8 +53,8 @@ namespace {
 // tests do not depend on the sections being finished.
 class TestFigure : public QWidget, public FigureSource {
 public:
-    explicit TestFigure(QString name = QStringLiteral("Test plot"), QString key = QStringLiteral("lines"))
-        : name_(std::move(name)), key_(std::move(key)) {
+    explicit TestFigure(QString name = QStringLiteral("Test plot"), FigurePlot kind = FigurePlot::Lines)
+        : name_(std::move(name)), kind_(kind) {
         plot_ = new QCustomPlot(this);
         auto* layout = new QVBoxLayout(this);
         layout->setContentsMargins(0, 0, 0, 0);
@@ -81,7 +81,7 @@ public:
         QCoreApplication::processEvents();
     }
     QString figureName() const override { return name_; }
-    QString figureKey() const override { return key_; }
+    FigurePlot figureKind() const override { return kind_; }
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override {
         for (int k = 0; k < plot_->graphCount(); ++k) plot_->graph(k)->setPen(estuary::seriesPen(k, 2.0, on));
@@ -89,13 +89,14 @@ public:
     }
 
 private:
-    QString name_, key_;
+    QString name_;
+    FigurePlot kind_;
     QCustomPlot* plot_;
 };
 
 FigureSettings memo() {
     FigureSettings s;  // defaults: memo preset 6.5 x 4 in, 300 DPI
-    s.preset = "memo";
+    s.preset = SizePreset::Memo;
     s.width_in = 6.5;
     s.height_in = 4.0;
     s.dpi = 300;
@@ -241,17 +242,20 @@ bool folderWritable(const QString& dir) {
 TEST(FigureExport, PresetsAreTheSizesOfTheLookGuide) {
     // LOOK.md, "Figures for memos".
     const struct {
-        const char* key;
+        SizePreset key;
         double w, h;
-    } expected[] = {{"memo", 6.5, 4.0}, {"single-column", 3.5, 2.6}, {"two-column", 7.0, 4.3}, {"slide", 10.0, 5.63}};
+    } expected[] = {{SizePreset::Memo, 6.5, 4.0},
+                    {SizePreset::SingleColumn, 3.5, 2.6},
+                    {SizePreset::TwoColumn, 7.0, 4.3},
+                    {SizePreset::Slide, 10.0, 5.63}};
     ASSERT_EQ(figurePresets().size(), 4);
     for (const auto& e : expected) {
         const FigurePreset* p = findFigurePreset(e.key);
-        ASSERT_NE(p, nullptr) << e.key;
+        ASSERT_NE(p, nullptr) << to_string(e.key);
         EXPECT_DOUBLE_EQ(p->widthIn, e.w);
         EXPECT_DOUBLE_EQ(p->heightIn, e.h);
     }
-    EXPECT_EQ(findFigurePreset("custom"), nullptr);
+    EXPECT_EQ(findFigurePreset(SizePreset::Custom), nullptr);
 }
 
 TEST(FigureExport, PngHasThePresetPixelSizeAndCarriesItsDpi) {
@@ -284,7 +288,7 @@ TEST(FigureExport, PngHasThePresetPixelSizeAndCarriesItsDpi) {
 
     // Another preset and DPI. closed form: 3.5 x 150 = 525, 2.6 x 150 = 390; 150 / 0.0254 = 5905.5
     FigureSettings single = memo();
-    single.preset = "single-column";
+    single.preset = SizePreset::SingleColumn;
     single.width_in = 3.5;
     single.height_in = 2.6;
     single.dpi = 150;
@@ -351,7 +355,7 @@ TEST(FigureExport, SvgIsVectorAtThePresetSize) {
 
     // Slide preset: closed form 10 x 25.4 = 254 mm, 5.63 x 25.4 = 143.002 mm
     FigureSettings slide = memo();
-    slide.preset = "slide";
+    slide.preset = SizePreset::Slide;
     slide.width_in = 10;
     slide.height_in = 5.63;
     const SvgSummary wide = readSvg(FigureExporter(&fig, slide).renderSvg());
@@ -376,7 +380,7 @@ TEST(FigureExport, PdfPageIsThePresetSizeInPoints) {
 
     // Two column: closed form 7 x 72 = 504 pt, 4.3 x 72 = 309.6 pt (PDF page sizes in whole points: 310)
     FigureSettings two = memo();
-    two.preset = "two-column";
+    two.preset = SizePreset::TwoColumn;
     two.width_in = 7;
     two.height_in = 4.3;
     const auto [w2, h2] = mediaBox(FigureExporter(&fig, two).renderPdf());
@@ -496,9 +500,9 @@ TEST(FigureExportDialog, SettingsAreStoredInTheAnalysisAsOneUndoableEdit) {
     ASSERT_FALSE(doc.project().analyses.empty());
     const QString id = QString::fromStdString(doc.project().analyses.front().id);
     const FigureSettings original = doc.analysis(id)->figure;
-    ASSERT_EQ(original.preset, "memo");
-    TestFigure lines(QStringLiteral("Lines plot"), QStringLiteral("lines"));
-    TestFigure effect(QStringLiteral("Effect plot"), QStringLiteral("effect"));
+    ASSERT_EQ(original.preset, SizePreset::Memo);
+    TestFigure lines(QStringLiteral("Lines plot"), FigurePlot::Lines);
+    TestFigure effect(QStringLiteral("Effect plot"), FigurePlot::Effect);
     QTemporaryDir dir;
     const int steps = doc.undoStack()->count();
     {
@@ -534,7 +538,7 @@ TEST(FigureExportDialog, SettingsAreStoredInTheAnalysisAsOneUndoableEdit) {
     ASSERT_EQ(doc.undoStack()->count(), steps + 1);
     const FigureSettings stored = doc.analysis(id)->figure;
     EXPECT_TRUE(stored.greyscale);
-    EXPECT_EQ(stored.preset, "single-column");  // the preset after Memo in LOOK.md's list
+    EXPECT_EQ(stored.preset, SizePreset::SingleColumn);  // the preset after Memo in LOOK.md's list
     EXPECT_EQ(doc.undoStack()->undoText(), QStringLiteral("Figure settings"));
     doc.undoStack()->undo();
     EXPECT_EQ(doc.analysis(id)->figure, original);
@@ -554,7 +558,7 @@ TEST(FigureExportDialog, KeepInProjectAddsAFigureEntryThatCanBeUndone) {
     doc.adopt(load_project(test::sampleProject(QStringLiteral("coffee-discount")).toStdString()));
     const QString id = QString::fromStdString(doc.project().analyses.front().id);
     const std::size_t figuresBefore = doc.project().figures.size();
-    TestFigure effect(QStringLiteral("Effect plot"), QStringLiteral("effect"));
+    TestFigure effect(QStringLiteral("Effect plot"), FigurePlot::Effect);
     FigureExportDialog dialog(&effect, &doc, id, QString());
     dialog.show();
     auto* keep = dialog.findChild<QPushButton*>(QStringLiteral("figure-keep"));
@@ -562,7 +566,7 @@ TEST(FigureExportDialog, KeepInProjectAddsAFigureEntryThatCanBeUndone) {
     QTest::mouseClick(keep, Qt::LeftButton);
     ASSERT_EQ(doc.project().figures.size(), figuresBefore + 1);
     const FigureEntry& entry = doc.project().figures.back();
-    EXPECT_EQ(entry.plot, "effect");
+    EXPECT_EQ(entry.plot, FigurePlot::Effect);
     EXPECT_EQ(entry.analysis, id.toStdString());
     EXPECT_TRUE(QString::fromStdString(entry.name).endsWith(QStringLiteral(": Effect plot")));
     // Keeping the same plot twice adds nothing.
@@ -636,7 +640,7 @@ TEST(FigureExport, SingleColumnFigureWrapsALongAxisTitleAndShrinksTheLegend) {
     ASSERT_FALSE(title.contains(QLatin1Char('\n')));
     const PlotState before = stateOf(effect->figurePlot());
     FigureSettings s = memo();
-    s.preset = "single-column";
+    s.preset = SizePreset::SingleColumn;
     s.width_in = 3.5;  // LOOK.md: Single column 3.5 × 2.6 in
     s.height_in = 2.6;
     const QByteArray svg = FigureExporter(effect, s, QStringLiteral("caption")).renderSvg();

@@ -381,18 +381,20 @@ TEST(Probe, ProbabilityScaleReadoutIsCoresProbabilityEffect) {
     Window win(path);
     ProbeSection* s = win.section;
     const Direct core = direct(path);
-    ASSERT_EQ(win.analysis().probe.scale, "response");
+    ASSERT_EQ(win.analysis().probe.scale, ProbeScale::Outcome);
     QComboBox* scale = s->scaleChoice();
     ASSERT_TRUE(scale->isVisible());
     // To the log-odds scale with the keyboard, then back.
     scale->setFocus();
     QTest::keyClick(scale, Qt::Key_Up);
-    ASSERT_TRUE(test::waitUntil([&] { return win.analysis().probe.scale == "link" && !s->engine().probability(); }));
+    ASSERT_TRUE(
+        test::waitUntil([&] { return win.analysis().probe.scale == ProbeScale::Model && !s->engine().probability(); }));
     expectSamePoint(s->currentEffect(), effect_at(core.probe.effect_function, s->currentModeratorValue(), core.fit,
                                                   core.probe.observed_range));
     EXPECT_TRUE(s->readoutText().contains(QStringLiteral("Log-odds scale")));
     QTest::keyClick(scale, Qt::Key_Down);
-    ASSERT_TRUE(test::waitUntil([&] { return win.analysis().probe.scale == "response" && s->engine().probability(); }));
+    ASSERT_TRUE(test::waitUntil(
+        [&] { return win.analysis().probe.scale == ProbeScale::Outcome && s->engine().probability(); }));
     EXPECT_TRUE(s->readoutText().contains(QStringLiteral("Probability scale")));
 
     ScaleRequest req;

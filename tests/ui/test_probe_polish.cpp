@@ -633,7 +633,7 @@ TEST(ProbePolish, LogisticProbeSaysWhichScaleAndShowsTheProbabilityInteraction) 
     const QString path = test::sampleProject(QStringLiteral("trial-conversion"));
     Window win(path);
     ProbeSection* s = win.section;
-    ASSERT_EQ(win.analysis().probe.scale, "response");
+    ASSERT_EQ(win.analysis().probe.scale, ProbeScale::Outcome);
     const Direct core = direct(path);
     const std::string fx = core.analysis.roles.focal, mz = core.analysis.roles.moderator;
 
@@ -688,7 +688,8 @@ TEST(ProbePolish, LogisticProbeSaysWhichScaleAndShowsTheProbabilityInteraction) 
     QComboBox* scale = s->scaleChoice();
     scale->setFocus();
     QTest::keyClick(scale, Qt::Key_Up);
-    ASSERT_TRUE(test::waitUntil([&] { return win.analysis().probe.scale == "link" && !s->engine().probability(); }));
+    ASSERT_TRUE(
+        test::waitUntil([&] { return win.analysis().probe.scale == ProbeScale::Model && !s->engine().probability(); }));
     win.settle();
     EXPECT_TRUE(s->readoutText().contains(QStringLiteral("Effect of setup_sessions on the log-odds of converted")))
         << s->readoutText().toStdString();
@@ -714,7 +715,7 @@ TEST(ProbePolish, CategoricalSecondModeratorIsHeldAtALevel) {
     const auto edit = [](Analysis& a) {
         a.roles.second_moderator = "region";
         a.roles.controls.clear();
-        a.probe.scale = "link";
+        a.probe.scale = ProbeScale::Model;
     };
     Analysis a = win.analysis();
     edit(a);
@@ -751,7 +752,7 @@ TEST(ProbePolish, CategoricalSecondModeratorIsHeldAtALevel) {
 
     // The probability scale holds the same level. Source: core probability_effect with region at index 1.
     a = win.analysis();
-    a.probe.scale = "response";
+    a.probe.scale = ProbeScale::Outcome;
     win.w.document()->setAnalysis(a, QStringLiteral("Probe on the probability scale"));
     ASSERT_TRUE(test::waitUntil([&] { return s->engine().valid() && s->engine().probability(); }));
     ASSERT_TRUE(win.w.runner()->error(win.id).isEmpty()) << win.w.runner()->error(win.id).toStdString();

@@ -31,7 +31,7 @@
 #include "moderato/project/project.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
-#include "moderato/support/file_util.hpp"
+#include "moderato/support/sha256.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
 #include "shell/project_sidebar.hpp"
@@ -155,7 +155,8 @@ TEST_F(BrokenProjects, CorruptProjectNamesFileLineAndColumn) {
 }
 
 TEST_F(BrokenProjects, NewerSchemaIsRefusedWithBothVersions) {
-    writeBytes(project, replaced(readBytes(project), "\"schema_version\": 1", "\"schema_version\": 42"));
+    writeBytes(project, replaced(readBytes(project), "\"schema_version\": " + std::to_string(kProjectSchemaVersion),
+                                 "\"schema_version\": 42"));
     const Snapshot before = snapshot(dir);
     EXPECT_FALSE(w.openProject(project));
     const QString message = w.lastMessage();

@@ -462,7 +462,7 @@ TEST(SpecifyEstimates, CentringToggleChangesLowerOrderTermsOnly) {
     EstimatesSection* e = o.estimates();
     EXPECT_FALSE(e->centringToggle()->isVisibleTo(e));
     QTest::keyClick(s->centringBox(), Qt::Key_Down);
-    ASSERT_EQ(o.analysis().centring, "mean");
+    ASSERT_EQ(o.analysis().centring, Centring::Mean);
     ASSERT_TRUE(o.waitForRun());
     const auto run = o.w.runner()->result(o.id);
     ASSERT_TRUE(run && run->centred_fit);

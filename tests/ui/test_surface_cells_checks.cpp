@@ -185,7 +185,7 @@ TEST(CellsView, LogisticProbabilityScaleShowsProbabilitiesAndOddsRatios) {
     a.roles.moderator = "mentor";
     a.roles.controls = {"tenure"};
     a.family = Family::Logistic;
-    a.probe.scale = "response";
+    a.probe.scale = ProbeScale::Outcome;
     const AnalysisRun run = run_analysis(table, a);
     ASSERT_TRUE(run.cells.has_value());
     // core cell_table on a design and fit built here
@@ -313,7 +313,7 @@ TEST(SurfacePlot, LogisticProbabilityScaleShowsProbabilities) {
     ASSERT_TRUE(run);
     ASSERT_TRUE(run->surface.has_value());
     const Analysis& a = *w.document()->analysis(w.analysisPage()->analysisId());
-    ASSERT_EQ(a.probe.scale, "response");
+    ASSERT_EQ(a.probe.scale, ProbeScale::Outcome);
     const Direct d = direct(QStringLiteral("trial-conversion"));
     const SurfaceGrid ref = surface_grid(d.design, d.fit, d.analysis.roles.focal, d.analysis.roles.moderator);
     SurfacePlot plot;

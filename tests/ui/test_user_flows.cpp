@@ -245,7 +245,7 @@ TEST(UserFlows, ExportedLegendFitsANarrowFigure) {
     s.w.analysisPage()->showSection(AnalysisPage::Probe);
     QCoreApplication::processEvents();
     FigureSettings narrow;
-    const FigurePreset* preset = findFigurePreset("single-column");
+    const FigurePreset* preset = findFigurePreset(SizePreset::SingleColumn);
     ASSERT_NE(preset, nullptr);
     narrow.preset = preset->key;
     narrow.width_in = preset->widthIn;
@@ -457,7 +457,7 @@ TEST(UserFlows, DerivedColumnDialogShowsAWholeRefusal) {
     c.numbers = {12, 0, 7, 3};  // the 0 makes log impossible (by construction)
     table->columns.push_back(c);
     DerivedColumnDialog dialog(table, {"nitrogen_kg_ha"}, QStringLiteral("plots"));
-    dialog.setKind(QStringLiteral("log"));
+    dialog.setKind(RecipeKind::Log);
     dialog.setSource(QStringLiteral("nitrogen_kg_ha"));
     dialog.show();
     ASSERT_TRUE(QTest::qWaitForWindowExposed(&dialog));

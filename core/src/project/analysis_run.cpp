@@ -30,19 +30,20 @@ bool zero_one(const Column& c) {
 bool grouping(const Column& c) { return c.kind == ColumnKind::Categorical || zero_one(c); }
 
 Column compute_recipe(const Table& t, const DerivedRecipe& r) {
-    const std::string what = "derived column " + quoted(r.name) + " (" + r.kind + " of " + quoted(r.source) + ")";
+    const std::string what =
+        "derived column " + quoted(r.name) + " (" + to_string(r.kind) + " of " + quoted(r.source) + ")";
     const Column* x = t.find(r.source);
     if (!x) throw InputError(what + ": the column " + quoted(r.source) + " is not in " + t.source);
     try {
-        if (r.kind == "centre-mean") return centre(*x, CentreAt::Mean, 0.0, r.name);
-        if (r.kind == "centre-median") return centre(*x, CentreAt::Median, 0.0, r.name);
-        if (r.kind == "centre-value") return centre(*x, CentreAt::Value, r.value, r.name);
-        if (r.kind == "standardise") return standardise(*x, r.name);
-        if (r.kind == "log") return log_column(*x, t, r.name);
-        if (r.kind == "log1p") return log1p_column(*x, t, r.name);
-        if (r.kind == "square") return square(*x, r.name);
-        if (r.kind == "dummy") return dummy(*x, r.level, r.name);
-        if (r.kind == "product") {
+        if (r.kind == RecipeKind::CentreMean) return centre(*x, CentreAt::Mean, 0.0, r.name);
+        if (r.kind == RecipeKind::CentreMedian) return centre(*x, CentreAt::Median, 0.0, r.name);
+        if (r.kind == RecipeKind::CentreValue) return centre(*x, CentreAt::Value, r.value, r.name);
+        if (r.kind == RecipeKind::Standardise) return standardise(*x, r.name);
+        if (r.kind == RecipeKind::Log) return log_column(*x, t, r.name);
+        if (r.kind == RecipeKind::Log1p) return log1p_column(*x, t, r.name);
+        if (r.kind == RecipeKind::Square) return square(*x, r.name);
+        if (r.kind == RecipeKind::Dummy) return dummy(*x, r.level, r.name);
+        if (r.kind == RecipeKind::Product) {
             const Column* y = t.find(r.other);
             if (!y) throw InputError("the column " + quoted(r.other) + " is not in " + t.source);
             return product(*x, *y, r.name);
@@ -116,10 +117,9 @@ void probe_analysis(AnalysisRun& run, const Analysis& a) {
         case ProbeKind::Continuous: {
             if (run.kind == ProbeKind::Continuous) ps.at = a.probe.pinned;
             run.probe = probe(run.design, run.fit, ps);
-            if (a.family == Family::Logistic && a.probe.scale == "response") {
+            if (a.family == Family::Logistic && a.probe.scale == ProbeScale::Outcome) {
                 run.probe_link = run.probe;
-                run.probe = probe_response(run.design, run.fit, ps,
-                                           a.probe.averaging == "values" ? Averaging::AtValues : Averaging::Sample);
+                run.probe = probe_response(run.design, run.fit, ps, a.probe.averaging);
             }
             if (run.kind == ProbeKind::Continuous && a.roles.second_moderator.empty())
                 run.surface = surface_grid(run.design, run.fit, a.roles.focal, a.roles.moderator);
@@ -165,7 +165,7 @@ AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a) 
 
     probe_analysis(run, a);
 
-    if (a.centring == "mean") {
+    if (a.centring == Centring::Mean) {
         // Centre the numeric (not 0/1) focal predictor and moderators; the fit is the same
         // model, only the lower-order coefficients change meaning.
         // Only the model's columns (not a copy of the whole table), plus the centred copies.

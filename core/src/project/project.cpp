@@ -5,10 +5,12 @@
 #include <cmath>
 #include <filesystem>
 #include <nlohmann/json.hpp>
+#include <optional>
 #include <set>
 
 #include "moderato/support/error.hpp"
 #include "moderato/support/file_util.hpp"
+#include "project/project_migration.hpp"
 
 namespace moderato {
 
@@ -21,6 +23,52 @@ bool same_number(double a, double b) { return a == b || (std::isnan(a) && std::i
 
 // NaN (meaning "the default") is stored as null.
 json number_or_null(double v) { return std::isfinite(v) ? json(v) : json(nullptr); }
+
+// ------------------------------------------------------------ stored words
+
+// An enum value and its word in project files (schema 2).
+template <class E>
+struct Word {
+    E value;
+    const char* text;
+};
+
+template <class E, std::size_t N>
+const char* word_of(const Word<E> (&words)[N], E value) {
+    for (const auto& w : words)
+        if (w.value == value) return w.text;
+    return "";
+}
+
+constexpr Word<RecipeKind> kRecipeWords[] = {{RecipeKind::CentreMean, "centre-mean"},
+                                             {RecipeKind::CentreMedian, "centre-median"},
+                                             {RecipeKind::CentreValue, "centre-value"},
+                                             {RecipeKind::Standardise, "standardise"},
+                                             {RecipeKind::Log, "log"},
+                                             {RecipeKind::Log1p, "log1p"},
+                                             {RecipeKind::Square, "square"},
+                                             {RecipeKind::Dummy, "dummy"},
+                                             {RecipeKind::Product, "product"}};
+constexpr Word<Centring> kCentringWords[] = {{Centring::None, "none"}, {Centring::Mean, "mean"}};
+constexpr Word<SizePreset> kPresetWords[] = {{SizePreset::Memo, "memo"},
+                                             {SizePreset::SingleColumn, "single-column"},
+                                             {SizePreset::TwoColumn, "two-column"},
+                                             {SizePreset::Slide, "slide"},
+                                             {SizePreset::Custom, "custom"}};
+constexpr Word<FigurePlot> kPlotWords[] = {{FigurePlot::Lines, "lines"},         {FigurePlot::Effect, "effect"},
+                                           {FigurePlot::Surface, "surface"},     {FigurePlot::Cells, "cells"},
+                                           {FigurePlot::Residuals, "residuals"}, {FigurePlot::QQ, "qq"},
+                                           {FigurePlot::Influence, "influence"}};
+constexpr Word<ProbeScale> kScaleWords[] = {{ProbeScale::Model, "model"}, {ProbeScale::Outcome, "outcome"}};
+constexpr Word<Averaging> kAveragingWords[] = {{Averaging::Sample, "sample"}, {Averaging::AtValues, "values"}};
+constexpr Word<Family> kFamilyWords[] = {{Family::Linear, "linear"}, {Family::Logistic, "logistic"}};
+constexpr Word<SeKind> kSeWords[] = {{SeKind::Classical, "model-based"},
+                                     {SeKind::HC0, "hc0"},
+                                     {SeKind::HC1, "hc1"},
+                                     {SeKind::HC2, "hc2"},
+                                     {SeKind::HC3, "hc3"},
+                                     {SeKind::HC4, "hc4"},
+                                     {SeKind::Cluster, "cluster-robust"}};
 
 // Reading with messages that name the project, the field and what was expected.
 class Reader {
@@ -95,13 +143,16 @@ public:
         return out;
     }
 
-    std::string one_of(const json& parent, const char* key, const std::string& where,
-                       const std::vector<std::string>& allowed, const std::string& fallback) const {
-        const std::string v = text(parent, key, where, false, fallback);
-        for (const auto& a : allowed)
-            if (v == a) return v;
+    // The enum whose word `key` holds (`fallback` when absent); the message
+    // lists the words allowed.
+    template <class E, std::size_t N>
+    E choice(const json& parent, const char* key, const std::string& where, const Word<E> (&words)[N],
+             std::optional<E> fallback) const {
+        const std::string v = text(parent, key, where, false, fallback ? word_of(words, *fallback) : "");
+        for (const auto& w : words)
+            if (v == w.text) return w.value;
         std::string list;
-        for (const auto& a : allowed) list += (list.empty() ? "" : ", ") + a;
+        for (const auto& w : words) list += (list.empty() ? "" : ", ") + std::string(w.text);
         fail(where + "." + key, "\"" + v + "\" is not one of: " + list);
     }
 
@@ -138,34 +189,6 @@ CsvOptions import_from_json(const Reader& r, const json& j, const std::string& w
     return o;
 }
 
-const std::vector<std::string> kRecipeKinds{"centre-mean", "centre-median", "centre-value", "standardise", "log",
-                                            "log1p",       "square",        "dummy",        "product"};
-const std::vector<std::string> kPresets{"memo", "single-column", "two-column", "slide", "custom"};
-const std::vector<std::string> kPlots{"lines", "effect", "surface", "cells", "residuals", "qq", "influence"};
-
-// Schema 0 (the draft format before schema_version 1) kept the roles at the
-// top level of each analysis; version 1 groups them under "roles".
-void migrate_from_0(json& doc, std::vector<std::string>& notes) {
-    const auto list = doc.find("analyses");
-    if (list != doc.end() && list->is_array()) {
-        for (auto& a : *list) {
-            if (!a.is_object() || a.contains("roles")) continue;
-            json roles = json::object();
-            for (const char* key :
-                 {"outcome", "focal", "moderator", "second_moderator", "controls", "weights", "clusters"})
-                if (a.contains(key)) {
-                    roles[key] = a[key];
-                    a.erase(key);
-                }
-            a["roles"] = roles;
-        }
-    }
-    doc["schema_version"] = 1;
-    notes.push_back(
-        "The project was saved by an older Moderato (schema 0) and was brought up to schema 1; "
-        "saving it writes schema 1.");
-}
-
 // Pinned values: a non-finite one means nothing on a slider (and JSON has no
 // number for it), so it is left out rather than written as an unreadable null.
 json finite_only(const std::vector<double>& values) {
@@ -192,7 +215,224 @@ std::pair<std::size_t, std::size_t> line_and_column(const std::string& text, std
     return {line, column};
 }
 
+// ------------------------------------------------------------ writing
+
+json recipe_to_json(const DerivedRecipe& r) {
+    json j{{"dataset", r.dataset}, {"name", r.name}, {"kind", to_string(r.kind)}, {"source", r.source}};
+    if (!r.other.empty()) j["other"] = r.other;
+    if (!r.level.empty()) j["level"] = r.level;
+    if (r.kind == RecipeKind::CentreValue || r.value != 0) j["value"] = number_or_null(r.value);
+    return j;
+}
+
+json probe_to_json(const ProbeSettings& p) {
+    return {{"current", number_or_null(p.current)},
+            {"pinned", finite_only(p.pinned)},
+            {"second_value", number_or_null(p.second_value)},
+            {"scale", word_of(kScaleWords, p.scale)},
+            {"averaging", word_of(kAveragingWords, p.averaging)},
+            {"simultaneous_band", p.simultaneous_band},
+            {"show_points", p.show_points},
+            {"show_gaps", p.show_gaps}};
+}
+
+json figure_to_json(const FigureSettings& f) {
+    return {
+        {"preset", to_string(f.preset)}, {"width_in", f.width_in}, {"height_in", f.height_in}, {"dpi", f.dpi},
+        {"font_family", f.font_family},  {"font_pt", f.font_pt},   {"greyscale", f.greyscale}, {"caption", f.caption}};
+}
+
+json analysis_to_json(const Analysis& a) {
+    json roles{{"outcome", a.roles.outcome},     {"focal", a.roles.focal},
+               {"moderator", a.roles.moderator}, {"second_moderator", a.roles.second_moderator},
+               {"controls", a.roles.controls},   {"weights", a.roles.weights},
+               {"clusters", a.roles.clusters}};
+    json j{{"id", a.id},
+           {"name", a.name},
+           {"dataset", a.dataset},
+           {"roles", roles},
+           {"family", word_of(kFamilyWords, a.family)},
+           {"standard_errors", word_of(kSeWords, a.se)},
+           {"level", a.level},
+           {"centring", to_string(a.centring)},
+           {"probe", probe_to_json(a.probe)},
+           {"figure", figure_to_json(a.figure)}};
+    // Written only when there are notes, so projects without them keep their bytes.
+    if (!a.memo_notes.empty()) j["memo_notes"] = a.memo_notes;
+    return j;
+}
+
+// ------------------------------------------------------------ reading
+
+// The document, or InputError with the line and column where it stops being JSON.
+json parse_document(const std::string& text, const std::string& name) {
+    try {
+        return json::parse(text);
+    } catch (const json::parse_error& e) {
+        // e.byte counts the bytes read up to and including the offending one
+        // (one past the end for text that stops too early).
+        const auto [line, column] = line_and_column(text, e.byte > 0 ? e.byte - 1 : 0);
+        // The parser's own reason, without its prefix and its own position.
+        std::string reason = e.what();
+        const auto colon = reason.find(": ");
+        if (colon != std::string::npos && reason.find("parse error") != std::string::npos)
+            reason = reason.substr(colon + 2);
+        throw InputError(name + ": line " + std::to_string(line) + ", column " + std::to_string(column) +
+                         ": the file is not valid JSON, so it is not a Moderato project (" + reason + ")");
+    }
+}
+
+// The schema version; InputError for a missing, malformed, negative or newer one.
+long long schema_version(const Reader& r, const json& doc, const std::string& name) {
+    if (!doc.is_object()) r.fail("top level", "not a Moderato project (expected a JSON object)");
+    const auto sv = doc.find("schema_version");
+    if (sv == doc.end()) r.fail("top level", "not a Moderato project (no schema_version)");
+    if (!sv->is_number_integer()) r.fail("schema_version", "expected a whole number");
+    const bool unsigned_version = sv->is_number_unsigned();
+    const std::string version_text =
+        unsigned_version ? std::to_string(sv->get<unsigned long long>()) : std::to_string(sv->get<long long>());
+    if (unsigned_version ? sv->get<unsigned long long>() > static_cast<unsigned long long>(kProjectSchemaVersion)
+                         : sv->get<long long>() > kProjectSchemaVersion)
+        throw InputError(name + ": made by a newer Moderato (project schema " + version_text +
+                         "; this version reads up to schema " + std::to_string(kProjectSchemaVersion) +
+                         "). Open it with a newer Moderato; the file was not changed.");
+    const long long version =
+        unsigned_version ? static_cast<long long>(sv->get<unsigned long long>()) : sv->get<long long>();
+    if (version < 0) r.fail("schema_version", "must not be negative");
+    return version;
+}
+
+void read_datasets(const Reader& r, const json& doc, Project& p) {
+    const json& datasets = r.array(doc, "datasets", "top level");
+    for (std::size_t i = 0; i < datasets.size(); ++i) {
+        const std::string where = "datasets[" + std::to_string(i) + "]";
+        const json& d = datasets[i];
+        if (!d.is_object()) r.fail(where, "expected an object");
+        DataSource s;
+        s.id = r.text(d, "id", where, true);
+        s.path = r.text(d, "path", where, true);
+        s.sha256 = r.text(d, "sha256", where, false);
+        s.import = import_from_json(r, r.object(d, "import", where, false), where + ".import");
+        if (p.dataset(s.id)) r.fail(where + ".id", "the id \"" + s.id + "\" is used twice");
+        p.datasets.push_back(std::move(s));
+    }
+}
+
+void read_recipes(const Reader& r, const json& doc, Project& p) {
+    const json& derived = r.array(doc, "derived_columns", "top level");
+    for (std::size_t i = 0; i < derived.size(); ++i) {
+        const std::string where = "derived_columns[" + std::to_string(i) + "]";
+        const json& d = derived[i];
+        if (!d.is_object()) r.fail(where, "expected an object");
+        DerivedRecipe rec;
+        rec.dataset = r.text(d, "dataset", where, true);
+        rec.name = r.text(d, "name", where, true);
+        rec.kind = r.choice(d, "kind", where, kRecipeWords, std::optional<RecipeKind>());
+        rec.source = r.text(d, "source", where, true);
+        rec.other = r.text(d, "other", where, false);
+        rec.level = r.text(d, "level", where, false);
+        rec.value = r.number(d, "value", where, 0.0);
+        if (!p.dataset(rec.dataset)) r.fail(where + ".dataset", "no dataset has the id \"" + rec.dataset + "\"");
+        p.derived.push_back(std::move(rec));
+    }
+}
+
+Roles read_roles(const Reader& r, const json& j, const std::string& where) {
+    const json& roles = r.object(j, "roles", where, false);
+    const std::string rw = where + ".roles";
+    Roles out;
+    out.outcome = r.text(roles, "outcome", rw, false);
+    out.focal = r.text(roles, "focal", rw, false);
+    out.moderator = r.text(roles, "moderator", rw, false);
+    out.second_moderator = r.text(roles, "second_moderator", rw, false);
+    out.controls = r.texts(roles, "controls", rw);
+    out.weights = r.text(roles, "weights", rw, false);
+    out.clusters = r.text(roles, "clusters", rw, false);
+    return out;
+}
+
+ProbeSettings read_probe(const Reader& r, const json& j, const std::string& where) {
+    const json& probe = r.object(j, "probe", where, false);
+    const std::string pw = where + ".probe";
+    ProbeSettings out;
+    out.current = r.number(probe, "current", pw, out.current);
+    out.pinned = r.numbers(probe, "pinned", pw);
+    out.second_value = r.number(probe, "second_value", pw, out.second_value);
+    out.scale = r.choice(probe, "scale", pw, kScaleWords, std::optional(ProbeScale::Model));
+    out.averaging = r.choice(probe, "averaging", pw, kAveragingWords, std::optional(Averaging::Sample));
+    out.simultaneous_band = r.boolean(probe, "simultaneous_band", pw, false);
+    out.show_points = r.boolean(probe, "show_points", pw, true);
+    out.show_gaps = r.boolean(probe, "show_gaps", pw, true);
+    return out;
+}
+
+FigureSettings read_figure(const Reader& r, const json& j, const std::string& where) {
+    const json& fig = r.object(j, "figure", where, false);
+    const std::string fw = where + ".figure";
+    FigureSettings f;
+    f.preset = r.choice(fig, "preset", fw, kPresetWords, std::optional(SizePreset::Memo));
+    f.width_in = r.number(fig, "width_in", fw, f.width_in);
+    f.height_in = r.number(fig, "height_in", fw, f.height_in);
+    const double dpi = r.number(fig, "dpi", fw, f.dpi);
+    if (!(dpi >= 36 && dpi <= 2400)) r.fail(fw + ".dpi", "must lie between 36 and 2400");
+    if (dpi != std::floor(dpi)) r.fail(fw + ".dpi", "expected a whole number");
+    f.dpi = static_cast<int>(dpi);
+    f.font_family = r.text(fig, "font_family", fw, false, f.font_family);
+    f.font_pt = r.number(fig, "font_pt", fw, f.font_pt);
+    f.greyscale = r.boolean(fig, "greyscale", fw, false);
+    f.caption = r.boolean(fig, "caption", fw, true);
+    if (!(f.width_in > 0 && f.width_in <= 100 && f.height_in > 0 && f.height_in <= 100))
+        r.fail(fw, "width and height must lie between 0 and 100 inches");
+    return f;
+}
+
+Analysis read_analysis(const Reader& r, const json& j, const std::string& where, const Project& p) {
+    if (!j.is_object()) r.fail(where, "expected an object");
+    Analysis a;
+    a.id = r.text(j, "id", where, true);
+    a.name = r.text(j, "name", where, false, a.id);
+    a.dataset = r.text(j, "dataset", where, true);
+    if (!p.dataset(a.dataset)) r.fail(where + ".dataset", "no dataset has the id \"" + a.dataset + "\"");
+    if (p.analysis(a.id)) r.fail(where + ".id", "the id \"" + a.id + "\" is used twice");
+    a.roles = read_roles(r, j, where);
+    a.family = r.choice(j, "family", where, kFamilyWords, std::optional(Family::Linear));
+    a.se = r.choice(j, "standard_errors", where, kSeWords, std::optional(SeKind::Classical));
+    a.level = r.number(j, "level", where, 0.95);
+    if (!(a.level > 0 && a.level < 1)) r.fail(where + ".level", "must lie strictly between 0 and 1");
+    a.centring = r.choice(j, "centring", where, kCentringWords, std::optional(Centring::None));
+    a.probe = read_probe(r, j, where);
+    a.figure = read_figure(r, j, where);
+    a.memo_notes = r.text(j, "memo_notes", where, false);
+    return a;
+}
+
+void read_figures(const Reader& r, const json& doc, Project& p) {
+    const json& figures = r.array(doc, "figures", "top level");
+    for (std::size_t i = 0; i < figures.size(); ++i) {
+        const std::string where = "figures[" + std::to_string(i) + "]";
+        const json& j = figures[i];
+        if (!j.is_object()) r.fail(where, "expected an object");
+        FigureEntry f;
+        f.id = r.text(j, "id", where, true);
+        f.name = r.text(j, "name", where, false, f.id);
+        f.analysis = r.text(j, "analysis", where, true);
+        f.plot = r.choice(j, "plot", where, kPlotWords, std::optional(FigurePlot::Lines));
+        if (!p.analysis(f.analysis)) r.fail(where + ".analysis", "no analysis has the id \"" + f.analysis + "\"");
+        for (const auto& other : p.figures)
+            if (other.id == f.id) r.fail(where + ".id", "the id \"" + f.id + "\" is used twice");
+        p.figures.push_back(std::move(f));
+    }
+}
+
 }  // namespace
+
+const char* to_string(RecipeKind kind) { return word_of(kRecipeWords, kind); }
+const char* to_string(Centring centring) { return word_of(kCentringWords, centring); }
+const char* to_string(SizePreset preset) { return word_of(kPresetWords, preset); }
+const char* to_string(FigurePlot plot) { return word_of(kPlotWords, plot); }
+bool is_check_plot(FigurePlot plot) {
+    return plot == FigurePlot::Residuals || plot == FigurePlot::QQ || plot == FigurePlot::Influence;
+}
 
 bool ProbeSettings::operator==(const ProbeSettings& o) const {
     return same_number(current, o.current) && pinned == o.pinned && same_number(second_value, o.second_value) &&
@@ -265,186 +505,30 @@ std::string project_to_json(const Project& p) {
             {{"id", d.id}, {"path", d.path}, {"sha256", d.sha256}, {"import", import_to_json(d.import)}});
     doc["datasets"] = datasets;
     json derived = json::array();
-    for (const auto& r : p.derived) {
-        json j{{"dataset", r.dataset}, {"name", r.name}, {"kind", r.kind}, {"source", r.source}};
-        if (!r.other.empty()) j["other"] = r.other;
-        if (!r.level.empty()) j["level"] = r.level;
-        if (r.kind == "centre-value" || r.value != 0) j["value"] = number_or_null(r.value);
-        derived.push_back(j);
-    }
+    for (const auto& r : p.derived) derived.push_back(recipe_to_json(r));
     doc["derived_columns"] = derived;
     json analyses = json::array();
-    for (const auto& a : p.analyses) {
-        json roles{{"outcome", a.roles.outcome},     {"focal", a.roles.focal},
-                   {"moderator", a.roles.moderator}, {"second_moderator", a.roles.second_moderator},
-                   {"controls", a.roles.controls},   {"weights", a.roles.weights},
-                   {"clusters", a.roles.clusters}};
-        json probe{{"current", number_or_null(a.probe.current)},
-                   {"pinned", finite_only(a.probe.pinned)},
-                   {"second_value", number_or_null(a.probe.second_value)},
-                   {"scale", a.probe.scale},
-                   {"averaging", a.probe.averaging},
-                   {"simultaneous_band", a.probe.simultaneous_band},
-                   {"show_points", a.probe.show_points},
-                   {"show_gaps", a.probe.show_gaps}};
-        json figure{{"preset", a.figure.preset},           {"width_in", a.figure.width_in},
-                    {"height_in", a.figure.height_in},     {"dpi", a.figure.dpi},
-                    {"font_family", a.figure.font_family}, {"font_pt", a.figure.font_pt},
-                    {"greyscale", a.figure.greyscale},     {"caption", a.figure.caption}};
-        analyses.push_back({{"id", a.id},
-                            {"name", a.name},
-                            {"dataset", a.dataset},
-                            {"roles", roles},
-                            {"family", to_string(a.family)},
-                            {"se", to_string(a.se)},
-                            {"level", a.level},
-                            {"centring", a.centring},
-                            {"probe", probe},
-                            {"figure", figure}});
-        // Written only when there are notes, so older projects keep their bytes.
-        if (!a.memo_notes.empty()) analyses.back()["memo_notes"] = a.memo_notes;
-    }
+    for (const auto& a : p.analyses) analyses.push_back(analysis_to_json(a));
     doc["analyses"] = analyses;
     json figures = json::array();
     for (const auto& f : p.figures)
-        figures.push_back({{"id", f.id}, {"name", f.name}, {"analysis", f.analysis}, {"plot", f.plot}});
+        figures.push_back({{"id", f.id}, {"name", f.name}, {"analysis", f.analysis}, {"plot", to_string(f.plot)}});
     doc["figures"] = figures;
     return doc.dump(2) + "\n";
 }
 
 Project project_from_json(const std::string& text, const std::string& name) {
-    json doc;
-    try {
-        doc = json::parse(text);
-    } catch (const json::parse_error& e) {
-        // e.byte counts the bytes read up to and including the offending one
-        // (one past the end for text that stops too early).
-        const auto [line, column] = line_and_column(text, e.byte > 0 ? e.byte - 1 : 0);
-        // The parser's own reason, without its prefix and its own position.
-        std::string reason = e.what();
-        const auto colon = reason.find(": ");
-        if (colon != std::string::npos && reason.find("parse error") != std::string::npos)
-            reason = reason.substr(colon + 2);
-        throw InputError(name + ": line " + std::to_string(line) + ", column " + std::to_string(column) +
-                         ": the file is not valid JSON, so it is not a Moderato project (" + reason + ")");
-    }
+    json doc = parse_document(text, name);
     const Reader r(name);
-    if (!doc.is_object()) r.fail("top level", "not a Moderato project (expected a JSON object)");
-    const auto sv = doc.find("schema_version");
-    if (sv == doc.end()) r.fail("top level", "not a Moderato project (no schema_version)");
-    if (!sv->is_number_integer()) r.fail("schema_version", "expected a whole number");
-    const bool unsigned_version = sv->is_number_unsigned();
-    const std::string version_text =
-        unsigned_version ? std::to_string(sv->get<unsigned long long>()) : std::to_string(sv->get<long long>());
-    if (unsigned_version ? sv->get<unsigned long long>() > static_cast<unsigned long long>(kProjectSchemaVersion)
-                         : sv->get<long long>() > kProjectSchemaVersion)
-        throw InputError(name + ": made by a newer Moderato (project schema " + version_text +
-                         "; this version reads up to schema " + std::to_string(kProjectSchemaVersion) +
-                         "). Open it with a newer Moderato; the file was not changed.");
-    const long long version =
-        unsigned_version ? static_cast<long long>(sv->get<unsigned long long>()) : sv->get<long long>();
-    if (version < 0) r.fail("schema_version", "must not be negative");
+    const long long version = schema_version(r, doc, name);
     Project p;
-    if (version == 0) migrate_from_0(doc, p.migration_notes);
-
-    const json& datasets = r.array(doc, "datasets", "top level");
-    for (std::size_t i = 0; i < datasets.size(); ++i) {
-        const std::string where = "datasets[" + std::to_string(i) + "]";
-        const json& d = datasets[i];
-        if (!d.is_object()) r.fail(where, "expected an object");
-        DataSource s;
-        s.id = r.text(d, "id", where, true);
-        s.path = r.text(d, "path", where, true);
-        s.sha256 = r.text(d, "sha256", where, false);
-        s.import = import_from_json(r, r.object(d, "import", where, false), where + ".import");
-        if (p.dataset(s.id)) r.fail(where + ".id", "the id \"" + s.id + "\" is used twice");
-        p.datasets.push_back(std::move(s));
-    }
-    const json& derived = r.array(doc, "derived_columns", "top level");
-    for (std::size_t i = 0; i < derived.size(); ++i) {
-        const std::string where = "derived_columns[" + std::to_string(i) + "]";
-        const json& d = derived[i];
-        if (!d.is_object()) r.fail(where, "expected an object");
-        DerivedRecipe rec;
-        rec.dataset = r.text(d, "dataset", where, true);
-        rec.name = r.text(d, "name", where, true);
-        rec.kind = r.one_of(d, "kind", where, kRecipeKinds, "");
-        rec.source = r.text(d, "source", where, true);
-        rec.other = r.text(d, "other", where, false);
-        rec.level = r.text(d, "level", where, false);
-        rec.value = r.number(d, "value", where, 0.0);
-        if (!p.dataset(rec.dataset)) r.fail(where + ".dataset", "no dataset has the id \"" + rec.dataset + "\"");
-        p.derived.push_back(std::move(rec));
-    }
+    if (version < kProjectSchemaVersion) detail::migrate_project(doc, version, p.migration_notes);
+    read_datasets(r, doc, p);
+    read_recipes(r, doc, p);
     const json& analyses = r.array(doc, "analyses", "top level");
-    for (std::size_t i = 0; i < analyses.size(); ++i) {
-        const std::string where = "analyses[" + std::to_string(i) + "]";
-        const json& j = analyses[i];
-        if (!j.is_object()) r.fail(where, "expected an object");
-        Analysis a;
-        a.id = r.text(j, "id", where, true);
-        a.name = r.text(j, "name", where, false, a.id);
-        a.dataset = r.text(j, "dataset", where, true);
-        if (!p.dataset(a.dataset)) r.fail(where + ".dataset", "no dataset has the id \"" + a.dataset + "\"");
-        if (p.analysis(a.id)) r.fail(where + ".id", "the id \"" + a.id + "\" is used twice");
-        const json& roles = r.object(j, "roles", where, false);
-        const std::string rw = where + ".roles";
-        a.roles.outcome = r.text(roles, "outcome", rw, false);
-        a.roles.focal = r.text(roles, "focal", rw, false);
-        a.roles.moderator = r.text(roles, "moderator", rw, false);
-        a.roles.second_moderator = r.text(roles, "second_moderator", rw, false);
-        a.roles.controls = r.texts(roles, "controls", rw);
-        a.roles.weights = r.text(roles, "weights", rw, false);
-        a.roles.clusters = r.text(roles, "clusters", rw, false);
-        a.family = parse_family(r.one_of(j, "family", where, {"linear", "logistic"}, "linear"));
-        a.se = parse_se_kind(
-            r.one_of(j, "se", where, {"classical", "hc0", "hc1", "hc2", "hc3", "hc4", "cluster"}, "classical"));
-        a.level = r.number(j, "level", where, 0.95);
-        if (!(a.level > 0 && a.level < 1)) r.fail(where + ".level", "must lie strictly between 0 and 1");
-        a.centring = r.one_of(j, "centring", where, {"none", "mean"}, "none");
-        const json& probe = r.object(j, "probe", where, false);
-        const std::string pw = where + ".probe";
-        a.probe.current = r.number(probe, "current", pw, a.probe.current);
-        a.probe.pinned = r.numbers(probe, "pinned", pw);
-        a.probe.second_value = r.number(probe, "second_value", pw, a.probe.second_value);
-        a.probe.scale = r.one_of(probe, "scale", pw, {"link", "response"}, "link");
-        a.probe.averaging = r.one_of(probe, "averaging", pw, {"sample", "values"}, "sample");
-        a.probe.simultaneous_band = r.boolean(probe, "simultaneous_band", pw, false);
-        a.probe.show_points = r.boolean(probe, "show_points", pw, true);
-        a.probe.show_gaps = r.boolean(probe, "show_gaps", pw, true);
-        const json& fig = r.object(j, "figure", where, false);
-        const std::string fw = where + ".figure";
-        a.figure.preset = r.one_of(fig, "preset", fw, kPresets, "memo");
-        a.figure.width_in = r.number(fig, "width_in", fw, a.figure.width_in);
-        a.figure.height_in = r.number(fig, "height_in", fw, a.figure.height_in);
-        const double dpi = r.number(fig, "dpi", fw, a.figure.dpi);
-        if (!(dpi >= 36 && dpi <= 2400)) r.fail(fw + ".dpi", "must lie between 36 and 2400");
-        if (dpi != std::floor(dpi)) r.fail(fw + ".dpi", "expected a whole number");
-        a.figure.dpi = static_cast<int>(dpi);
-        a.figure.font_family = r.text(fig, "font_family", fw, false, a.figure.font_family);
-        a.figure.font_pt = r.number(fig, "font_pt", fw, a.figure.font_pt);
-        a.figure.greyscale = r.boolean(fig, "greyscale", fw, false);
-        a.figure.caption = r.boolean(fig, "caption", fw, true);
-        if (!(a.figure.width_in > 0 && a.figure.width_in <= 100 && a.figure.height_in > 0 && a.figure.height_in <= 100))
-            r.fail(fw, "width and height must lie between 0 and 100 inches");
-        a.memo_notes = r.text(j, "memo_notes", where, false);
-        p.analyses.push_back(std::move(a));
-    }
-    const json& figures = r.array(doc, "figures", "top level");
-    for (std::size_t i = 0; i < figures.size(); ++i) {
-        const std::string where = "figures[" + std::to_string(i) + "]";
-        const json& j = figures[i];
-        if (!j.is_object()) r.fail(where, "expected an object");
-        FigureEntry f;
-        f.id = r.text(j, "id", where, true);
-        f.name = r.text(j, "name", where, false, f.id);
-        f.analysis = r.text(j, "analysis", where, true);
-        f.plot = r.one_of(j, "plot", where, kPlots, "lines");
-        if (!p.analysis(f.analysis)) r.fail(where + ".analysis", "no analysis has the id \"" + f.analysis + "\"");
-        for (const auto& other : p.figures)
-            if (other.id == f.id) r.fail(where + ".id", "the id \"" + f.id + "\" is used twice");
-        p.figures.push_back(std::move(f));
-    }
+    for (std::size_t i = 0; i < analyses.size(); ++i)
+        p.analyses.push_back(read_analysis(r, analyses[i], "analyses[" + std::to_string(i) + "]", p));
+    read_figures(r, doc, p);
     return p;
 }
 

@@ -30,7 +30,7 @@ ExportCell text(const std::string& s) { return {s, ""}; }
 ExportCell count(long long n) { return {format_count(n), std::to_string(n)}; }
 
 ExportTable estimates_table(const Analysis& a, const AnalysisRun& run) {
-    const bool centred = a.centring == "mean" && run.centred_fit;
+    const bool centred = a.centring == Centring::Mean && run.centred_fit;
     const FitResult& fit = centred ? *run.centred_fit : run.fit;
     ExportTable t;
     t.title = "Estimates";

@@ -4,9 +4,37 @@
 #include <cstdio>
 #include <sstream>
 
+#include "moderato/reporting/output_json.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
+
+namespace {
+
+void write_bounds(JsonWriter& w, const char* key, double low, double high) {
+    w.key(key).begin_object();
+    w.field("low", low);
+    w.field("high", high);
+    w.end_object();
+}
+
+// One bootstrapped quantity: its full-sample value, bootstrap SE, and the
+// percentile and BCa intervals.
+void write_resampled(JsonWriter& w, const ProbeBootstrap& b, std::size_t k) {
+    const auto& iv = b.result.intervals[k];
+    w.begin_object();
+    w.field("label", b.labels[k]);
+    w.field("kind", to_string(b.kinds[k]));
+    if (b.kinds[k] == ProbeStatistic::Effect) w.field("moderator_value", b.at[k]);
+    w.field("value", iv.estimate);
+    w.field("se", iv.std_error);
+    write_bounds(w, "percentile", iv.percentile_lower, iv.percentile_upper);
+    write_bounds(w, "bca", iv.bca_lower, iv.bca_upper);
+    w.field("valid_replicates", iv.valid_replicates);
+    w.end_object();
+}
+
+}  // namespace
 
 void write_probe_bootstrap(JsonWriter& w, const ProbeBootstrap& b) {
     const auto& r = b.result;
@@ -25,26 +53,10 @@ void write_probe_bootstrap(JsonWriter& w, const ProbeBootstrap& b) {
         w.end_object();
     }
     w.end_array();
-    w.key("statistics").begin_array();
-    for (std::size_t k = 0; k < b.labels.size() && k < r.intervals.size(); ++k) {
-        const auto& iv = r.intervals[k];
-        w.begin_object();
-        w.field("label", b.labels[k]);
-        w.field("kind", to_string(b.kinds[k]));
-        if (b.kinds[k] == ProbeStatistic::Effect) w.field("moderator_value", b.at[k]);
-        w.field("estimate", iv.estimate);
-        w.field("std_error", iv.std_error);
-        w.field("percentile_lower", iv.percentile_lower);
-        w.field("percentile_upper", iv.percentile_upper);
-        w.field("bca_lower", iv.bca_lower);
-        w.field("bca_upper", iv.bca_upper);
-        w.field("valid_replicates", iv.valid_replicates);
-        w.end_object();
-    }
+    w.key("resampled").begin_array();
+    for (std::size_t k = 0; k < b.labels.size() && k < r.intervals.size(); ++k) write_resampled(w, b, k);
     w.end_array();
-    w.key("warnings").begin_array();
-    for (const auto& s : r.warnings) w.value(s);
-    w.end_array();
+    write_texts(w, "warnings", r.warnings);
     w.end_object();
 }
 
@@ -54,16 +66,17 @@ std::string probe_bootstrap_to_text(const ProbeBootstrap& b) {
     char line[320];
     o << "\nBootstrap (" << resampling_text(r) << ", " << r.completed << " of " << r.requested << " replicates, seed "
       << b.seed << "; " << detail::fmt_short(100 * r.level) << "% intervals):\n";
-    std::snprintf(line, sizeof line, "  %-44s %11s %11s %23s %23s\n", "", "estimate", "boot. SE", "percentile", "BCa");
+    // value, intervals, SE: the order of every estimate table of ours.
+    std::snprintf(line, sizeof line, "  %-44s %11s %23s %23s %11s\n", "", "value", "percentile", "BCa", "boot. SE");
     o << line;
     for (std::size_t k = 0; k < b.labels.size() && k < r.intervals.size(); ++k) {
         const auto& iv = r.intervals[k];
         const std::string pct =
             detail::fmt_short(iv.percentile_lower) + " to " + detail::fmt_short(iv.percentile_upper);
         const std::string bca = detail::fmt_short(iv.bca_lower) + " to " + detail::fmt_short(iv.bca_upper);
-        std::snprintf(line, sizeof line, "  %-44s %11s %11s %23s %23s\n", b.labels[k].c_str(),
-                      detail::fmt_short(iv.estimate).c_str(), detail::fmt_short(iv.std_error).c_str(), pct.c_str(),
-                      bca.c_str());
+        std::snprintf(line, sizeof line, "  %-44s %11s %23s %23s %11s\n", b.labels[k].c_str(),
+                      detail::fmt_short(iv.estimate).c_str(), pct.c_str(), bca.c_str(),
+                      detail::fmt_short(iv.std_error).c_str());
         o << line;
     }
     for (const auto& [reason, count] : r.failures) o << "  failed replicates: " << count << " (" << reason << ")\n";

@@ -6,11 +6,113 @@
 #include <limits>
 #include <sstream>
 
+#include "moderato/reporting/output_json.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
 
 namespace {
+
+// ------------------------------------------------------------------ JSON
+
+// A test statistic with its reference distribution ("F" or "chi-square");
+// df2 is null for a chi-square reference.
+void write_test(JsonWriter& w, const char* key, const char* distribution, double value, double df1, double df2,
+                double p) {
+    w.key(key).begin_object();
+    w.field("distribution", distribution);
+    w.field("value", value);
+    w.field("df1", df1);
+    w.field("df2", df2);
+    w.field("p", p);
+    w.end_object();
+}
+
+void write_rows(JsonWriter& w, const FitResult& f) {
+    w.field("rows_used", f.n);
+    w.field("rows_left_out", f.n_excluded);
+    w.key("left_out_by_column").begin_array();
+    for (const auto& e : f.exclusions) {
+        w.begin_object();
+        w.field("column", e.column);
+        w.field("rows_missing", e.rows);
+        w.end_object();
+    }
+    w.end_array();
+}
+
+void write_model(JsonWriter& w, const FitResult& f) {
+    w.field("family", to_string(f.family));
+    w.field("standard_errors", standard_errors_name(f.se));
+    if (f.se == SeKind::Cluster) w.field("clusters", f.n_clusters);
+    w.field("level", f.level);
+    w.field("test", test_name(f.df_inference));
+    w.field("residual_df", f.df_residual);
+    w.field("test_df", f.df_inference);
+    w.field("critical_value", f.critical_value);
+}
+
+void write_terms(JsonWriter& w, const FitResult& f) {
+    w.key("terms").begin_array();
+    for (const auto& c : f.coefficients) {
+        w.begin_object();
+        w.field("name", c.term);
+        write_inference(w, c);
+        w.field("vif", c.vif);
+        w.end_object();
+    }
+    w.end_array();
+    w.key("covariance").begin_array();
+    for (Eigen::Index i = 0; i < f.covariance.rows(); ++i) {
+        w.begin_array();
+        for (Eigen::Index j = 0; j < f.covariance.cols(); ++j) w.value(f.covariance(i, j));
+        w.end_array();
+    }
+    w.end_array();
+    write_texts(w, "not_estimated", f.aliased);
+}
+
+// R² and the residual SD belong to linear models (null for logistic ones);
+// the overall test is the F test (linear) or the likelihood-ratio test.
+void write_fit_statistics(JsonWriter& w, const FitResult& f) {
+    const bool linear = f.family == Family::Linear;
+    const double none = std::numeric_limits<double>::quiet_NaN();
+    w.field("r2", linear ? f.r_squared : none);
+    w.field("r2_adjusted", linear ? f.adj_r_squared : none);
+    w.field("residual_sd", linear ? f.residual_sd : none);
+    if (linear) write_test(w, "overall_test", "F", f.f_statistic, f.f_df1, f.f_df2, f.f_p_value);
+    else write_test(w, "overall_test", "chi-square", f.lr_statistic, f.lr_df, none, f.lr_p_value);
+    w.field("log_likelihood", f.log_likelihood);
+    w.field("aic", f.aic);
+    w.field("bic", f.bic);
+    if (linear) return;
+    w.field("deviance", f.deviance);
+    w.field("null_deviance", f.null_deviance);
+    w.field("r2_mcfadden", f.mcfadden_r2);
+    w.field("iterations", f.iterations);
+    w.field("converged", f.converged);
+}
+
+// The model without its product terms, on the same rows.
+void write_comparison(JsonWriter& w, const FitResult& f) {
+    if (!f.comparison) return;
+    const auto& c = *f.comparison;
+    w.key("without_products").begin_object();
+    write_texts(w, "dropped_terms", c.dropped_terms);
+    if (f.family == Family::Linear) {
+        w.field("r2_without", c.r_squared_reduced);
+        w.field("r2_change", c.r_squared_change);
+        write_test(w, "test", "F", c.f_statistic, c.df1, c.df2, c.p_value);
+    } else {
+        write_test(w, "test", "chi-square", c.lr_statistic, c.df1, std::numeric_limits<double>::infinity(),
+                   c.lr_p_value);
+    }
+    w.key("wald");
+    write_joint_test(w, c.wald);
+    w.end_object();
+}
+
+// ------------------------------------------------------------------ text
 
 std::string num(double v, int digits = 4) {
     if (std::isnan(v)) return "—";
@@ -23,6 +125,15 @@ std::string num(double v, int digits = 4) {
 }
 
 std::string df_text(double df) { return std::isinf(df) ? "inf" : detail::fmt_num(df); }
+
+// "p = 0.0123" or "p < 0.0001"
+std::string p_clause(double p) { return std::string("p ") + (p < 0.0001 ? "" : "= ") + format_p(p); }
+
+std::string level_text(double level) {
+    char buf[16];
+    std::snprintf(buf, sizeof buf, "%g%%", level * 100);
+    return buf;
+}
 
 // Display width of a UTF-8 string (code points).
 std::size_t width(const std::string& s) {
@@ -41,10 +152,125 @@ std::string pad_right(const std::string& s, std::size_t w) {
     return have >= w ? s : s + std::string(w - have, ' ');
 }
 
-const char* se_title(SeKind s) {
-    switch (s) {
+// F(df1, df2) = value, or χ²(df1) = value for a normal reference.
+std::string wald_text(const WaldTest& t) {
+    return (std::isinf(t.df2) ? "χ²(" + df_text(t.df1) + ") = " + num(t.chi_square, 2)
+                              : "F(" + df_text(t.df1) + ", " + df_text(t.df2) + ") = " + num(t.statistic, 2)) +
+           ", " + p_clause(t.p_value);
+}
+
+void write_heading(std::ostringstream& o, const FitResult& f, const std::string& outcome) {
+    const bool linear = f.family == Family::Linear;
+    o << (linear ? "Linear model" : "Logistic model") << " of " << outcome
+      << (linear ? "" : " (probability that " + outcome + " = 1, log-odds scale)") << "\n";
+    o << "n = " << f.n << " rows used";
+    if (f.n_excluded > 0) {
+        o << ", " << f.n_excluded << " left out (";
+        for (std::size_t i = 0; i < f.exclusions.size(); ++i)
+            o << (i ? ", " : "") << f.exclusions[i].column << ": " << f.exclusions[i].rows << " missing";
+        o << ")";
+    }
+    o << "\n";
+    o << "Standard errors: " << standard_errors_text(f.se);
+    if (f.se == SeKind::Cluster) o << ", " << f.n_clusters << " clusters";
+    o << " · " << level_text(f.level) << " intervals · "
+      << (std::isinf(f.df_inference) ? std::string("z (normal)") : "t with " + df_text(f.df_inference) + " df")
+      << "\n\n";
+}
+
+// One line per term: value, interval, SE, test value, p (the order of every
+// estimate table of ours), then the VIF.
+void write_term_table(std::ostringstream& o, const FitResult& f) {
+    const std::vector<std::string> head{"term", "value", level_text(f.level) + " low",
+                                        "high", "SE",    f.family == Family::Linear ? "t" : "z",
+                                        "p",    "VIF"};
+    std::vector<std::vector<std::string>> rows;
+    for (const auto& c : f.coefficients) {
+        if (c.aliased) {
+            rows.push_back({c.term, "not estimated", "", "", "", "", "", ""});
+            continue;
+        }
+        rows.push_back({c.term, num(c.estimate), num(c.ci_lower), num(c.ci_upper), num(c.std_error),
+                        num(c.statistic, 2), format_p(c.p_value), std::isnan(c.vif) ? "" : num(c.vif, 2)});
+    }
+    std::vector<std::size_t> wid(head.size());
+    for (std::size_t k = 0; k < head.size(); ++k) {
+        wid[k] = width(head[k]);
+        for (const auto& r : rows) wid[k] = std::max(wid[k], width(r[k]));
+    }
+    auto line = [&](const std::vector<std::string>& r) {
+        o << pad_right(r[0], wid[0]);
+        for (std::size_t k = 1; k < r.size(); ++k) o << "  " << pad_left(r[k], wid[k]);
+        o << "\n";
+    };
+    line(head);
+    for (const auto& r : rows) line(r);
+    o << "\n";
+}
+
+void write_fit_statistics_text(std::ostringstream& o, const FitResult& f) {
+    if (f.family == Family::Linear) {
+        o << "R² " << num(f.r_squared) << " · adjusted R² " << num(f.adj_r_squared) << " · residual SD "
+          << num(f.residual_sd) << "\n";
+        if (f.f_df1 > 0)
+            o << "All terms: F(" << df_text(f.f_df1) << ", " << df_text(f.f_df2) << ") = " << num(f.f_statistic, 2)
+              << ", " << p_clause(f.f_p_value) << "\n";
+    } else {
+        o << "deviance " << num(f.deviance) << " · null deviance " << num(f.null_deviance) << " · McFadden R² "
+          << num(f.mcfadden_r2) << "\n";
+        o << "All terms: likelihood-ratio χ²(" << df_text(f.lr_df) << ") = " << num(f.lr_statistic, 2) << ", "
+          << p_clause(f.lr_p_value) << " · " << f.iterations << " iterations" << (f.converged ? "" : " (not converged)")
+          << "\n";
+    }
+    o << "log-likelihood " << num(f.log_likelihood) << " · AIC " << num(f.aic) << " · BIC " << num(f.bic) << "\n";
+}
+
+void write_tests_text(std::ostringstream& o, const FitResult& f) {
+    if (f.comparison) {
+        const auto& c = *f.comparison;
+        o << "\nWithout the product terms (" << detail::join(c.dropped_terms, ", ") << "):\n";
+        if (f.family == Family::Linear)
+            o << "  R² " << num(c.r_squared_reduced) << ", change " << num(c.r_squared_change) << "; F("
+              << df_text(c.df1) << ", " << df_text(c.df2) << ") = " << num(c.f_statistic, 2) << ", "
+              << p_clause(c.p_value) << "\n";
+        else
+            o << "  likelihood-ratio χ²(" << df_text(c.df1) << ") = " << num(c.lr_statistic, 2) << ", "
+              << p_clause(c.lr_p_value) << "\n";
+        o << "  Wald test with " << standard_errors_text(f.se) << " standard errors: " << wald_text(c.wald) << "\n";
+    }
+    for (const auto& t : f.wald_tests)
+        o << "\nWald test of " << detail::join(t.terms, ", ") << " (" << standard_errors_text(f.se)
+          << " standard errors): " << wald_text(t) << "\n";
+}
+
+void write_notes_text(std::ostringstream& o, const FitResult& f) {
+    if (!f.notes.empty()) {
+        o << "\nNotes:\n";
+        for (const auto& s : f.notes) o << "  - " << s << "\n";
+    }
+    if (!f.warnings.empty()) {
+        o << "\nWarnings:\n";
+        for (const auto& s : f.warnings) o << "  ! " << s << "\n";
+    }
+    o << "\nCaution: regression estimates from observational data are associations, not causal effects.\n";
+    if (f.family != Family::Linear)
+        o << "Caution: a product coefficient on the log-odds scale is not the interaction on the probability scale.\n";
+}
+
+}  // namespace
+
+std::string format_p(double p) {
+    if (std::isnan(p)) return "—";
+    if (p < 0.0001) return "< 0.0001";
+    char buf[32];
+    std::snprintf(buf, sizeof buf, "%.4f", p);
+    return buf;
+}
+
+const char* standard_errors_text(SeKind se) {
+    switch (se) {
         case SeKind::Classical:
-            return "classical";
+            return "model-based";
         case SeKind::HC0:
             return "HC0 (heteroskedasticity-consistent)";
         case SeKind::HC1:
@@ -61,131 +287,21 @@ const char* se_title(SeKind s) {
     return "";
 }
 
-void write_wald(JsonWriter& w, const WaldTest& t) {
-    w.begin_object();
-    w.key("terms").begin_array();
-    for (const auto& s : t.terms) w.value(s);
-    w.end_array();
-    w.field("covariance", to_string(t.covariance));
-    w.field("statistic", t.statistic);
-    w.field("df1", t.df1);
-    w.field("df2", t.df2);
-    w.field("chi_square", t.chi_square);
-    w.field("p_value", t.p_value);
-    w.end_object();
-}
-
-}  // namespace
-
-std::string format_p(double p) {
-    if (std::isnan(p)) return "—";
-    if (p < 0.0001) return "< 0.0001";
-    char buf[32];
-    std::snprintf(buf, sizeof buf, "%.4f", p);
-    return buf;
-}
-
 void write_fit_fields(JsonWriter& w, const FitResult& f) {
-    const bool linear = f.family == Family::Linear;
-    auto lin = [&](double v) { return linear ? v : std::numeric_limits<double>::quiet_NaN(); };
-    w.field("n", f.n);
-    w.field("n_excluded", f.n_excluded);
-    w.key("exclusions").begin_array();
-    for (const auto& e : f.exclusions) {
-        w.begin_object();
-        w.field("column", e.column);
-        w.field("rows_missing", e.rows);
-        w.end_object();
-    }
+    write_rows(w, f);
+    write_model(w, f);
+    write_terms(w, f);
+    write_fit_statistics(w, f);
+    write_comparison(w, f);
+    w.key("joint_tests").begin_array();
+    for (const auto& t : f.wald_tests) write_joint_test(w, t);
     w.end_array();
-    w.field("family", to_string(f.family));
-    w.field("se_type", to_string(f.se));
-    w.field("level", f.level);
-    w.key("coefficients").begin_array();
-    for (const auto& c : f.coefficients) {
-        w.begin_object();
-        w.field("term", c.term);
-        w.field("estimate", c.estimate);
-        w.field("std_error", c.std_error);
-        w.field("statistic", c.statistic);
-        w.field("p_value", c.p_value);
-        w.field("ci_lower", c.ci_lower);
-        w.field("ci_upper", c.ci_upper);
-        w.field("vif", c.vif);
-        w.end_object();
-    }
-    w.end_array();
-    w.key("covariance").begin_array();
-    for (Eigen::Index i = 0; i < f.covariance.rows(); ++i) {
-        w.begin_array();
-        for (Eigen::Index j = 0; j < f.covariance.cols(); ++j) w.value(f.covariance(i, j));
-        w.end_array();
-    }
-    w.end_array();
-    w.key("aliased").begin_array();
-    for (const auto& a : f.aliased) w.value(a);
-    w.end_array();
-    w.field("rank", f.rank);
-    w.field("df_residual", f.df_residual);
-    w.field("df_inference", f.df_inference);
-    w.field("critical_value", f.critical_value);
-    if (f.se == SeKind::Cluster) w.field("n_clusters", f.n_clusters);
-    w.field("r_squared", lin(f.r_squared));
-    w.field("adj_r_squared", lin(f.adj_r_squared));
-    w.field("residual_sd", lin(f.residual_sd));
-    w.field("f_statistic", lin(f.f_statistic));
-    w.field("f_df1", lin(f.f_df1));
-    w.field("f_df2", lin(f.f_df2));
-    w.field("f_p_value", lin(f.f_p_value));
-    w.field("log_likelihood", f.log_likelihood);
-    w.field("aic", f.aic);
-    w.field("bic", f.bic);
-    if (!linear) {
-        w.field("deviance", f.deviance);
-        w.field("null_deviance", f.null_deviance);
-        w.field("mcfadden_r2", f.mcfadden_r2);
-        w.field("lr_statistic", f.lr_statistic);
-        w.field("lr_df", f.lr_df);
-        w.field("lr_p_value", f.lr_p_value);
-        w.field("iterations", f.iterations);
-        w.field("converged", f.converged);
-    }
-    if (f.comparison) {
-        const auto& c = *f.comparison;
-        w.key("comparison").begin_object();
-        w.key("dropped_terms").begin_array();
-        for (const auto& t : c.dropped_terms) w.value(t);
-        w.end_array();
-        if (linear) {
-            w.field("r_squared_reduced", c.r_squared_reduced);
-            w.field("r_squared_change", c.r_squared_change);
-            w.field("f_statistic", c.f_statistic);
-            w.field("df1", c.df1);
-            w.field("df2", c.df2);
-            w.field("p_value", c.p_value);
-        } else {
-            w.field("lr_statistic", c.lr_statistic);
-            w.field("df", c.df1);
-            w.field("lr_p_value", c.lr_p_value);
-        }
-        w.key("wald");
-        write_wald(w, c.wald);
-        w.end_object();
-    }
-    w.key("wald_tests").begin_array();
-    for (const auto& t : f.wald_tests) write_wald(w, t);
-    w.end_array();
-    w.key("notes").begin_array();
-    for (const auto& s : f.notes) w.value(s);
-    w.end_array();
-    w.key("warnings").begin_array();
-    for (const auto& s : f.warnings) w.value(s);
-    w.end_array();
+    write_texts(w, "notes", f.notes);
+    write_texts(w, "warnings", f.warnings);
 }
 
 std::string fit_to_json(const FitResult& fit) {
-    JsonWriter w;
-    w.begin_object();
+    JsonWriter w = begin_document();
     write_fit_fields(w, fit);
     w.end_object();
     return w.str();
@@ -193,95 +309,11 @@ std::string fit_to_json(const FitResult& fit) {
 
 std::string fit_to_text(const FitResult& f, const std::string& outcome) {
     std::ostringstream o;
-    const bool linear = f.family == Family::Linear;
-    o << (linear ? "Linear model" : "Logistic model") << " of " << outcome
-      << (linear ? "" : " (probability that " + outcome + " = 1, log-odds scale)") << "\n";
-    o << "n = " << f.n << " rows used";
-    if (f.n_excluded > 0) {
-        o << ", " << f.n_excluded << " excluded (";
-        for (std::size_t i = 0; i < f.exclusions.size(); ++i)
-            o << (i ? ", " : "") << f.exclusions[i].column << ": " << f.exclusions[i].rows << " missing";
-        o << ")";
-    }
-    o << "\n";
-    char lvl[16];
-    std::snprintf(lvl, sizeof lvl, "%g%%", f.level * 100);
-    o << "Standard errors: " << se_title(f.se);
-    if (f.se == SeKind::Cluster) o << ", " << f.n_clusters << " clusters";
-    o << " · " << lvl << " intervals · "
-      << (std::isinf(f.df_inference) ? std::string("z (normal)") : "t with " + df_text(f.df_inference) + " df")
-      << "\n\n";
-
-    const std::vector<std::string> head{
-        "term", "estimate", "std. error", linear ? "t" : "z", "p-value", std::string(lvl) + " CI low", "high", "VIF"};
-    std::vector<std::vector<std::string>> rows;
-    for (const auto& c : f.coefficients) {
-        if (c.aliased) {
-            rows.push_back({c.term, "aliased", "", "", "", "", "", ""});
-            continue;
-        }
-        rows.push_back({c.term, num(c.estimate), num(c.std_error), num(c.statistic, 2), format_p(c.p_value),
-                        num(c.ci_lower), num(c.ci_upper), std::isnan(c.vif) ? "" : num(c.vif, 2)});
-    }
-    std::vector<std::size_t> wid(head.size());
-    for (std::size_t k = 0; k < head.size(); ++k) {
-        wid[k] = width(head[k]);
-        for (const auto& r : rows) wid[k] = std::max(wid[k], width(r[k]));
-    }
-    auto line = [&](const std::vector<std::string>& r) {
-        o << pad_right(r[0], wid[0]);
-        for (std::size_t k = 1; k < r.size(); ++k) o << "  " << pad_left(r[k], wid[k]);
-        o << "\n";
-    };
-    line(head);
-    for (const auto& r : rows) line(r);
-    o << "\n";
-    if (linear) {
-        o << "R² " << num(f.r_squared) << " · adjusted R² " << num(f.adj_r_squared) << " · residual SD "
-          << num(f.residual_sd) << "\n";
-        if (f.f_df1 > 0)
-            o << "All terms: F(" << df_text(f.f_df1) << ", " << df_text(f.f_df2) << ") = " << num(f.f_statistic, 2)
-              << ", p " << (f.f_p_value < 0.0001 ? "" : "= ") << format_p(f.f_p_value) << "\n";
-    } else {
-        o << "deviance " << num(f.deviance) << " · null deviance " << num(f.null_deviance) << " · McFadden R² "
-          << num(f.mcfadden_r2) << "\n";
-        o << "All terms: likelihood-ratio χ²(" << df_text(f.lr_df) << ") = " << num(f.lr_statistic, 2) << ", p "
-          << (f.lr_p_value < 0.0001 ? "" : "= ") << format_p(f.lr_p_value) << " · " << f.iterations << " iterations"
-          << (f.converged ? "" : " (not converged)") << "\n";
-    }
-    o << "log-likelihood " << num(f.log_likelihood) << " · AIC " << num(f.aic) << " · BIC " << num(f.bic) << "\n";
-    if (f.comparison) {
-        const auto& c = *f.comparison;
-        o << "\nWithout the product terms (" << detail::join(c.dropped_terms, ", ") << "):\n";
-        if (linear)
-            o << "  R² " << num(c.r_squared_reduced) << ", change " << num(c.r_squared_change) << "; F("
-              << df_text(c.df1) << ", " << df_text(c.df2) << ") = " << num(c.f_statistic, 2) << ", p "
-              << (c.p_value < 0.0001 ? "" : "= ") << format_p(c.p_value) << "\n";
-        else
-            o << "  likelihood-ratio χ²(" << df_text(c.df1) << ") = " << num(c.lr_statistic, 2) << ", p "
-              << (c.lr_p_value < 0.0001 ? "" : "= ") << format_p(c.lr_p_value) << "\n";
-        o << "  Wald test with " << to_string(c.wald.covariance) << " covariance: "
-          << (std::isinf(c.wald.df2)
-                  ? "χ²(" + df_text(c.wald.df1) + ") = " + num(c.wald.chi_square, 2)
-                  : "F(" + df_text(c.wald.df1) + ", " + df_text(c.wald.df2) + ") = " + num(c.wald.statistic, 2))
-          << ", p " << (c.wald.p_value < 0.0001 ? "" : "= ") << format_p(c.wald.p_value) << "\n";
-    }
-    for (const auto& t : f.wald_tests)
-        o << "\nWald test of " << detail::join(t.terms, ", ") << " (" << to_string(t.covariance) << "): "
-          << (std::isinf(t.df2) ? "χ²(" + df_text(t.df1) + ") = " + num(t.chi_square, 2)
-                                : "F(" + df_text(t.df1) + ", " + df_text(t.df2) + ") = " + num(t.statistic, 2))
-          << ", p " << (t.p_value < 0.0001 ? "" : "= ") << format_p(t.p_value) << "\n";
-    if (!f.notes.empty()) {
-        o << "\nNotes:\n";
-        for (const auto& s : f.notes) o << "  - " << s << "\n";
-    }
-    if (!f.warnings.empty()) {
-        o << "\nWarnings:\n";
-        for (const auto& s : f.warnings) o << "  ! " << s << "\n";
-    }
-    o << "\nCaution: regression estimates from observational data are associations, not causal effects.\n";
-    if (!linear)
-        o << "Caution: a product coefficient on the log-odds scale is not the interaction on the probability scale.\n";
+    write_heading(o, f, outcome);
+    write_term_table(o, f);
+    write_fit_statistics_text(o, f);
+    write_tests_text(o, f);
+    write_notes_text(o, f);
     return o.str();
 }
 

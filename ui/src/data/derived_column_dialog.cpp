@@ -23,29 +23,38 @@ namespace moderato::ui {
 namespace {
 
 struct KindInfo {
-    const char* key;
+    RecipeKind kind;
     const char* label;
     bool categoricalSource;  // else numeric
     bool other, level, value;
 };
 
 const KindInfo kKinds[] = {
-    {"centre-mean", QT_TRANSLATE_NOOP("DerivedColumnDialog", "Centre at the mean"), false, false, false, false},
-    {"centre-median", QT_TRANSLATE_NOOP("DerivedColumnDialog", "Centre at the median"), false, false, false, false},
-    {"centre-value", QT_TRANSLATE_NOOP("DerivedColumnDialog", "Centre at a value"), false, false, false, true},
-    {"standardise", QT_TRANSLATE_NOOP("DerivedColumnDialog", "Standardise (mean 0, SD 1)"), false, false, false, false},
-    {"log", QT_TRANSLATE_NOOP("DerivedColumnDialog", "Natural log"), false, false, false, false},
-    {"log1p", QT_TRANSLATE_NOOP("DerivedColumnDialog", "Natural log of 1 + value"), false, false, false, false},
-    {"square", QT_TRANSLATE_NOOP("DerivedColumnDialog", "Square"), false, false, false, false},
-    {"dummy", QT_TRANSLATE_NOOP("DerivedColumnDialog", "Indicator of one level (1 / 0)"), true, false, true, false},
-    {"product", QT_TRANSLATE_NOOP("DerivedColumnDialog", "Product of two columns"), false, true, false, false},
+    {RecipeKind::CentreMean, QT_TRANSLATE_NOOP("DerivedColumnDialog", "Centre at the mean"), false, false, false,
+     false},
+    {RecipeKind::CentreMedian, QT_TRANSLATE_NOOP("DerivedColumnDialog", "Centre at the median"), false, false, false,
+     false},
+    {RecipeKind::CentreValue, QT_TRANSLATE_NOOP("DerivedColumnDialog", "Centre at a value"), false, false, false, true},
+    {RecipeKind::Standardise, QT_TRANSLATE_NOOP("DerivedColumnDialog", "Standardise (mean 0, SD 1)"), false, false,
+     false, false},
+    {RecipeKind::Log, QT_TRANSLATE_NOOP("DerivedColumnDialog", "Natural log"), false, false, false, false},
+    {RecipeKind::Log1p, QT_TRANSLATE_NOOP("DerivedColumnDialog", "Natural log of 1 + value"), false, false, false,
+     false},
+    {RecipeKind::Square, QT_TRANSLATE_NOOP("DerivedColumnDialog", "Square"), false, false, false, false},
+    {RecipeKind::Dummy, QT_TRANSLATE_NOOP("DerivedColumnDialog", "Indicator of one level (1 / 0)"), true, false, true,
+     false},
+    {RecipeKind::Product, QT_TRANSLATE_NOOP("DerivedColumnDialog", "Product of two columns"), false, true, false,
+     false},
 };
 
-const KindInfo* info(const QString& key) {
+const KindInfo* info(RecipeKind kind) {
     for (const auto& k : kKinds)
-        if (key == QLatin1String(k.key)) return &k;
+        if (k.kind == kind) return &k;
     return nullptr;
 }
+
+// The kind the combo box shows (its item data is the RecipeKind).
+RecipeKind kindOf(const QComboBox* box) { return static_cast<RecipeKind>(box->currentData().toInt()); }
 
 // Letters, digits and '_' only, for names built from level text.
 QString plainName(const QString& s) {
@@ -60,22 +69,33 @@ QString q(const std::string& s) { return QString::fromStdString(s); }
 
 QStringList DerivedColumnDialog::kinds() {
     QStringList out;
-    for (const auto& k : kKinds) out << QString::fromLatin1(k.key);
+    for (const auto& k : kKinds) out << QString::fromLatin1(to_string(k.kind));
     return out;
 }
 
 QString DerivedColumnDialog::describe(const DerivedRecipe& r) {
     const QString s = q(r.source);
-    if (r.kind == "centre-mean") return tr("%1 centred at its mean").arg(s);
-    if (r.kind == "centre-median") return tr("%1 centred at its median").arg(s);
-    if (r.kind == "centre-value") return tr("%1 minus %2").arg(s, TableModel::numberText(r.value));
-    if (r.kind == "standardise") return tr("%1 standardised").arg(s);
-    if (r.kind == "log") return tr("natural log of %1").arg(s);
-    if (r.kind == "log1p") return tr("natural log of 1 + %1").arg(s);
-    if (r.kind == "square") return tr("%1 squared").arg(s);
-    if (r.kind == "dummy") return tr("1 where %1 is “%2”, else 0").arg(s, q(r.level));
-    if (r.kind == "product") return tr("%1 × %2").arg(s, q(r.other));
-    return tr("%1 of %2").arg(q(r.kind), s);
+    switch (r.kind) {
+        case RecipeKind::CentreMean:
+            return tr("%1 centred at its mean").arg(s);
+        case RecipeKind::CentreMedian:
+            return tr("%1 centred at its median").arg(s);
+        case RecipeKind::CentreValue:
+            return tr("%1 minus %2").arg(s, TableModel::numberText(r.value));
+        case RecipeKind::Standardise:
+            return tr("%1 standardised").arg(s);
+        case RecipeKind::Log:
+            return tr("natural log of %1").arg(s);
+        case RecipeKind::Log1p:
+            return tr("natural log of 1 + %1").arg(s);
+        case RecipeKind::Square:
+            return tr("%1 squared").arg(s);
+        case RecipeKind::Dummy:
+            return tr("1 where %1 is “%2”, else 0").arg(s, q(r.level));
+        case RecipeKind::Product:
+            return tr("%1 × %2").arg(s, q(r.other));
+    }
+    return tr("%1 of %2").arg(q(to_string(r.kind)), s);
 }
 
 DerivedColumnDialog::DerivedColumnDialog(std::shared_ptr<const Table> table, std::set<std::string> taken,
@@ -87,7 +107,7 @@ DerivedColumnDialog::DerivedColumnDialog(std::shared_ptr<const Table> table, std
     auto* form = new QFormLayout;
     kind_ = new QComboBox(this);
     kind_->setObjectName(QStringLiteral("derived-kind"));
-    for (const auto& k : kKinds) kind_->addItem(tr(k.label), QString::fromLatin1(k.key));
+    for (const auto& k : kKinds) kind_->addItem(tr(k.label), static_cast<int>(k.kind));
     form->addRow(tr("Kind"), kind_);
     source_ = new QComboBox(this);
     source_->setObjectName(QStringLiteral("derived-source"));
@@ -143,8 +163,8 @@ DerivedColumnDialog::DerivedColumnDialog(std::shared_ptr<const Table> table, std
     kindChanged();
 }
 
-void DerivedColumnDialog::setKind(const QString& kind) {
-    const int i = kind_->findData(kind);
+void DerivedColumnDialog::setKind(RecipeKind kind) {
+    const int i = kind_->findData(static_cast<int>(kind));
     if (i >= 0) kind_->setCurrentIndex(i);
 }
 
@@ -154,7 +174,7 @@ void DerivedColumnDialog::setSource(const QString& column) {
 }
 
 void DerivedColumnDialog::kindChanged() {
-    const KindInfo* k = info(kind_->currentData().toString());
+    const KindInfo* k = info(kindOf(kind_));
     if (!k) return;
     const struct {
         QWidget* field;
@@ -171,7 +191,7 @@ void DerivedColumnDialog::kindChanged() {
 }
 
 void DerivedColumnDialog::fillSources() {
-    const KindInfo* k = info(kind_->currentData().toString());
+    const KindInfo* k = info(kindOf(kind_));
     const QString keep = source_->currentText(), keepOther = other_->currentText();
     const QSignalBlocker b1(source_), b2(other_);
     source_->clear();
@@ -207,20 +227,21 @@ void DerivedColumnDialog::fillLevels() {
 
 void DerivedColumnDialog::suggestName() {
     if (nameEdited_) return;
-    const QString kind = kind_->currentData().toString(), s = source_->currentText();
+    const RecipeKind kind = kindOf(kind_);
+    const QString s = source_->currentText();
     if (s.isEmpty()) {
         name_->clear();
         return;
     }
     QString base;
-    if (kind == QLatin1String("centre-mean") || kind == QLatin1String("centre-value")) base = s + QStringLiteral("_c");
-    else if (kind == QLatin1String("centre-median")) base = s + QStringLiteral("_cmed");
-    else if (kind == QLatin1String("standardise")) base = s + QStringLiteral("_z");
-    else if (kind == QLatin1String("log")) base = QStringLiteral("log_") + s;
-    else if (kind == QLatin1String("log1p")) base = QStringLiteral("log1p_") + s;
-    else if (kind == QLatin1String("square")) base = s + QStringLiteral("_sq");
-    else if (kind == QLatin1String("dummy")) base = s + QLatin1Char('_') + plainName(level_->currentText());
-    else if (kind == QLatin1String("product")) base = s + QStringLiteral("_x_") + other_->currentText();
+    if (kind == RecipeKind::CentreMean || kind == RecipeKind::CentreValue) base = s + QStringLiteral("_c");
+    else if (kind == RecipeKind::CentreMedian) base = s + QStringLiteral("_cmed");
+    else if (kind == RecipeKind::Standardise) base = s + QStringLiteral("_z");
+    else if (kind == RecipeKind::Log) base = QStringLiteral("log_") + s;
+    else if (kind == RecipeKind::Log1p) base = QStringLiteral("log1p_") + s;
+    else if (kind == RecipeKind::Square) base = s + QStringLiteral("_sq");
+    else if (kind == RecipeKind::Dummy) base = s + QLatin1Char('_') + plainName(level_->currentText());
+    else if (kind == RecipeKind::Product) base = s + QStringLiteral("_x_") + other_->currentText();
     QString name = base;
     for (int k = 2; taken_.count(name.toStdString()); ++k) name = base + QLatin1Char('_') + QString::number(k);
     name_->setText(name);
@@ -228,21 +249,20 @@ void DerivedColumnDialog::suggestName() {
 
 void DerivedColumnDialog::updateHint() {
     // What the recipe will use, computed by core.
-    const QString kind = kind_->currentData().toString();
+    const RecipeKind kind = kindOf(kind_);
     const Column* c = table_ ? table_->find(source_->currentText().toStdString()) : nullptr;
     QString text;
     try {
-        if (c && kind == QLatin1String("centre-mean"))
+        if (c && kind == RecipeKind::CentreMean)
             text =
                 tr("The mean of %1 is %2.").arg(q(c->name), TableModel::numberText(centre_value(*c, CentreAt::Mean)));
-        else if (c && kind == QLatin1String("centre-median"))
+        else if (c && kind == RecipeKind::CentreMedian)
             text = tr("The median of %1 is %2.")
                        .arg(q(c->name), TableModel::numberText(centre_value(*c, CentreAt::Median)));
-        else if (kind == QLatin1String("standardise"))
-            text = tr("(value − mean) / SD, with the sample SD (divisor n − 1).");
-        else if (kind == QLatin1String("log")) text = tr("Every value must be above 0.");
-        else if (kind == QLatin1String("log1p")) text = tr("Every value must be above −1.");
-        else if (kind == QLatin1String("dummy")) text = tr("Missing cells stay missing.");
+        else if (kind == RecipeKind::Standardise) text = tr("(value − mean) / SD, with the sample SD (divisor n − 1).");
+        else if (kind == RecipeKind::Log) text = tr("Every value must be above 0.");
+        else if (kind == RecipeKind::Log1p) text = tr("Every value must be above −1.");
+        else if (kind == RecipeKind::Dummy) text = tr("Missing cells stay missing.");
     } catch (const InputError& e) {
         text = QString::fromStdString(e.what());
     }
@@ -273,9 +293,9 @@ DerivedRecipe DerivedColumnDialog::recipe() const {
     DerivedRecipe r;
     r.dataset = datasetId_.toStdString();
     r.name = name_->text().trimmed().toStdString();
-    r.kind = kind_->currentData().toString().toStdString();
+    r.kind = kindOf(kind_);
     r.source = source_->currentText().toStdString();
-    const KindInfo* k = info(kind_->currentData().toString());
+    const KindInfo* k = info(r.kind);
     if (k && k->other) r.other = other_->currentText().toStdString();
     if (k && k->level) r.level = level_->currentText().toStdString();
     if (k && k->value) r.value = QLocale::c().toDouble(value_->text());
@@ -296,12 +316,12 @@ void DerivedColumnDialog::accept() {
         setMessage(tr("The dataset already has a column named “%1”; choose another name.").arg(q(r.name)), true);
         return;
     }
-    if (r.kind == "dummy" && r.level.empty()) {
+    if (r.kind == RecipeKind::Dummy && r.level.empty()) {
         setMessage(tr("Choose the level the indicator marks."), true);
         return;
     }
     bool ok = false;
-    if (r.kind == "centre-value" && (QLocale::c().toDouble(value_->text(), &ok), !ok)) {
+    if (r.kind == RecipeKind::CentreValue && (QLocale::c().toDouble(value_->text(), &ok), !ok)) {
         setMessage(tr("Type the centring value as a number (with a point as the decimal mark)."), true);
         return;
     }

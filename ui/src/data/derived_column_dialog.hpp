@@ -28,8 +28,8 @@ public:
     DerivedColumnDialog(std::shared_ptr<const Table> table, std::set<std::string> taken, const QString& datasetId,
                         QWidget* parent = nullptr);
 
-    // Picks the kind (e.g. "centre-mean") and the source column.
-    void setKind(const QString& kind);
+    // Picks the kind and the source column.
+    void setKind(RecipeKind kind);
     void setSource(const QString& column);
     DerivedRecipe recipe() const;
     QString message() const;

@@ -30,7 +30,6 @@ namespace moderato::ui {
 
 namespace {
 constexpr int kPreviewWidth = 420, kPreviewHeight = 300;
-const char* kCustom = "custom";
 
 // "Effect plot" -> "effect-plot"
 QString fileStem(const QString& name) {
@@ -83,8 +82,8 @@ void FigureExportDialog::build() {
 
     preset_ = new QComboBox(this);
     preset_->setObjectName(QStringLiteral("figure-preset"));
-    for (const FigurePreset& p : figurePresets()) preset_->addItem(p.label, QString::fromStdString(p.key));
-    preset_->addItem(tr("Custom size"), QString::fromLatin1(kCustom));
+    for (const FigurePreset& p : figurePresets()) preset_->addItem(p.label, static_cast<int>(p.key));
+    preset_->addItem(tr("Custom size"), static_cast<int>(SizePreset::Custom));
     form->addRow(tr("Si&ze:"), preset_);
 
     auto makeInches = [this](const QString& name) {
@@ -213,7 +212,7 @@ void FigureExportDialog::loadSettings(const FigureSettings& s) {
     loading_ = true;
     width_->setValue(s.width_in);
     height_->setValue(s.height_in);
-    const int presetIndex = preset_->findData(QString::fromStdString(s.preset));
+    const int presetIndex = preset_->findData(static_cast<int>(s.preset));
     preset_->setCurrentIndex(presetIndex >= 0 ? presetIndex : preset_->count() - 1);
     dpi_->setValue(s.dpi);
     QFont f(QString::fromStdString(s.font_family));
@@ -228,7 +227,7 @@ void FigureExportDialog::loadSettings(const FigureSettings& s) {
 
 FigureSettings FigureExportDialog::settings() const {
     FigureSettings s;
-    s.preset = preset_->currentData().toString().toStdString();
+    s.preset = static_cast<SizePreset>(preset_->currentData().toInt());
     s.width_in = width_->value();
     s.height_in = height_->value();
     s.dpi = dpi_->value();
@@ -254,7 +253,7 @@ QString FigureExportDialog::statusText() const { return status_->text(); }
 
 void FigureExportDialog::presetChosen() {
     if (loading_) return;
-    if (const FigurePreset* p = findFigurePreset(preset_->currentData().toString().toStdString())) {
+    if (const FigurePreset* p = findFigurePreset(static_cast<SizePreset>(preset_->currentData().toInt()))) {
         loading_ = true;
         width_->setValue(p->widthIn);
         height_->setValue(p->heightIn);
@@ -387,9 +386,9 @@ bool FigureExportDialog::keepInProject() {
         setStatus(tr("The analysis of this figure is no longer in the project."), true);
         return false;
     }
-    const std::string key = source->figureKey().toStdString();
+    const FigurePlot plot = source->figureKind();
     for (const FigureEntry& f : p.figures)
-        if (f.analysis == a->id && f.plot == key) {
+        if (f.analysis == a->id && f.plot == plot) {
             setStatus(tr("The project already keeps this figure as “%1”.").arg(QString::fromStdString(f.name)), false);
             return false;
         }
@@ -398,7 +397,7 @@ bool FigureExportDialog::keepInProject() {
     entry.id = p.unique_id("figure");
     entry.name = (QString::fromStdString(a->name) + QStringLiteral(": ") + source->figureName()).toStdString();
     entry.analysis = a->id;
-    entry.plot = key;
+    entry.plot = plot;
     p.figures.push_back(entry);
     doc_->setProject(p, tr("Keep figure"));
     setStatus(

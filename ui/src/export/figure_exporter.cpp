@@ -48,15 +48,15 @@ std::optional<FigureFormat> figureFormatForPath(const QString& path) {
 const QList<FigurePreset>& figurePresets() {
     // LOOK.md, "Figures for memos".
     static const QList<FigurePreset> presets{
-        {"memo", QObject::tr("Memo (6.5 × 4 in)"), 6.5, 4.0},
-        {"single-column", QObject::tr("Single column (3.5 × 2.6 in)"), 3.5, 2.6},
-        {"two-column", QObject::tr("Two column (7 × 4.3 in)"), 7.0, 4.3},
-        {"slide", QObject::tr("Slide (10 × 5.63 in)"), 10.0, 5.63},
+        {SizePreset::Memo, QObject::tr("Memo (6.5 × 4 in)"), 6.5, 4.0},
+        {SizePreset::SingleColumn, QObject::tr("Single column (3.5 × 2.6 in)"), 3.5, 2.6},
+        {SizePreset::TwoColumn, QObject::tr("Two column (7 × 4.3 in)"), 7.0, 4.3},
+        {SizePreset::Slide, QObject::tr("Slide (10 × 5.63 in)"), 10.0, 5.63},
     };
     return presets;
 }
 
-const FigurePreset* findFigurePreset(const std::string& key) {
+const FigurePreset* findFigurePreset(SizePreset key) {
     for (const FigurePreset& p : figurePresets())
         if (p.key == key) return &p;
     return nullptr;

@@ -28,14 +28,14 @@ std::optional<FigureFormat> figureFormatForPath(const QString& path);
 
 // The size presets of LOOK.md ("Figures for memos").
 struct FigurePreset {
-    std::string key;  // FigureSettings::preset
-    QString label;    // shown in the dialog
+    SizePreset key;  // FigureSettings::preset
+    QString label;   // shown in the dialog
     double widthIn;
     double heightIn;
 };
 const QList<FigurePreset>& figurePresets();
-// The preset with this key (nullptr: unknown or "custom").
-const FigurePreset* findFigurePreset(const std::string& key);
+// The preset with this key (nullptr: Custom).
+const FigurePreset* findFigurePreset(SizePreset key);
 
 // Checks that the settings can be drawn (sizes, DPI, font size in range);
 // returns the reason when they cannot, else an empty string.

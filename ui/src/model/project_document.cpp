@@ -6,7 +6,7 @@
 #include "model/project_commands.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/support/error.hpp"
-#include "moderato/support/file_util.hpp"
+#include "moderato/support/sha256.hpp"
 
 namespace moderato::ui {
 

@@ -113,7 +113,7 @@ void CellsView::setRun(const Analysis& analysis, const AnalysisRun& run) {
     }
     cells_ = *run.cells;
     logistic_ = run.cells->family == Family::Logistic;
-    probability_ = logistic_ && analysis.probe.scale == "response";
+    probability_ = logistic_ && analysis.probe.scale == ProbeScale::Outcome;
     outcome_ = QString::fromStdString(analysis.roles.outcome);
     held_ = held(*cells_, run.design);
     seText_ = seDescription(analysis, run);

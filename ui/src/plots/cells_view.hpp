@@ -32,7 +32,7 @@ public:
     void clear();
 
     QString figureName() const override { return tr("Cells plot"); }
-    QString figureKey() const override { return QStringLiteral("cells"); }
+    FigurePlot figureKind() const override { return FigurePlot::Cells; }
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override;
 

@@ -87,16 +87,16 @@ QString DiagnosticPlot::figureName() const {
     return {};
 }
 
-QString DiagnosticPlot::figureKey() const {
+FigurePlot DiagnosticPlot::figureKind() const {
     switch (kind_) {
         case Residuals:
-            return QStringLiteral("residuals");
+            return FigurePlot::Residuals;
         case Quantiles:
-            return QStringLiteral("qq");
+            return FigurePlot::QQ;
         case Influence:
-            return QStringLiteral("influence");
+            return FigurePlot::Influence;
     }
-    return {};
+    return FigurePlot::Residuals;
 }
 
 void DiagnosticPlot::setDiagnostics(std::shared_ptr<const Diagnostics> d) {

@@ -32,7 +32,7 @@ public:
     void setHighlighted(const std::vector<std::size_t>& observations);
 
     QString figureName() const override;
-    QString figureKey() const override;
+    FigurePlot figureKind() const override;
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override;
 

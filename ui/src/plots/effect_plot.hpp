@@ -73,7 +73,7 @@ public:
     const EffectPlotData& data() const { return data_; }
 
     QString figureName() const override { return tr("Effect plot"); }
-    QString figureKey() const override { return QStringLiteral("effect"); }
+    FigurePlot figureKind() const override { return FigurePlot::Effect; }
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override;
 

@@ -3,6 +3,8 @@
 
 #include <QString>
 
+#include "moderato/project/project.hpp"
+
 class QCustomPlot;
 
 namespace moderato::ui {
@@ -12,9 +14,11 @@ public:
     virtual ~FigureSource() = default;
     // "Lines plot", "Effect plot", ... (also the default file name).
     virtual QString figureName() const = 0;
-    // The plot key stored in the project ("lines", "effect", "surface", "cells",
-    // "residuals", "qq", "influence").
-    virtual QString figureKey() const = 0;
+    // Which plot this is (what a kept figure of the project names).
+    virtual FigurePlot figureKind() const = 0;
+    // Its key, as the project file spells it ("lines", "effect", …): object
+    // names and file names.
+    QString figureKey() const { return QString::fromLatin1(to_string(figureKind())); }
     // The live plot; the exporter renders it at the figure size and restores it.
     virtual QCustomPlot* figurePlot() = 0;
     // Restyle every series in grey (true) or the Estuary colours (false); replots.

@@ -79,7 +79,7 @@ public:
     const std::vector<CurvePoint>& highlight() const { return highlight_; }
 
     QString figureName() const override { return tr("Lines plot"); }
-    QString figureKey() const override { return QStringLiteral("lines"); }
+    FigurePlot figureKind() const override { return FigurePlot::Lines; }
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override;
 

@@ -110,7 +110,7 @@ void SurfacePlot::setRun(const Analysis& analysis, const AnalysisRun& run) {
     }
     grid_ = *run.surface;
     logistic_ = run.fit.family == Family::Logistic;
-    probability_ = logistic_ && analysis.probe.scale == "response";
+    probability_ = logistic_ && analysis.probe.scale == ProbeScale::Outcome;
     values_ = probability_ ? surface_probabilities(*grid_) : grid_->predicted;
     outcome_ = QString::fromStdString(analysis.roles.outcome);
     try {

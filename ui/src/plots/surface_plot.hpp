@@ -30,7 +30,7 @@ public:
     void clear();
 
     QString figureName() const override { return tr("Surface plot"); }
-    QString figureKey() const override { return QStringLiteral("surface"); }
+    FigurePlot figureKind() const override { return FigurePlot::Surface; }
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override;
 

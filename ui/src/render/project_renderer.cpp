@@ -66,15 +66,14 @@ void writeFigure(Writer& out, const QString& stem, FigureSource* source, const F
 }
 
 // The plot a kept figure names, if this run draws it.
-FigureSource* keptFigure(AnalysisPage& page, const AnalysisRun& run, const std::string& plot) {
+FigureSource* keptFigure(AnalysisPage& page, const AnalysisRun& run, FigurePlot plot) {
     QList<FigureSource*> all = page.probe()->reportFigures(run);
-    const bool checks = plot == "residuals" || plot == "qq" || plot == "influence";
-    if (checks) {
+    if (is_check_plot(plot)) {
         page.checks()->ensureComputed();
         all << page.checks()->figures();
     }
     for (FigureSource* f : all)
-        if (f->figureKey().toStdString() == plot) return f;
+        if (f->figureKind() == plot) return f;
     return nullptr;
 }
 
@@ -152,7 +151,7 @@ RenderReport renderProject(const RenderRequest& request) {
             FigureSource* f = keptFigure(page, *run, fe.plot);
             if (!f) {
                 report.warnings << QStringLiteral("kept figure %1 not drawn: its analysis has no %2 plot now")
-                                       .arg(QString::fromStdString(fe.id), QString::fromStdString(fe.plot));
+                                       .arg(QString::fromStdString(fe.id), QString::fromLatin1(to_string(fe.plot)));
                 continue;
             }
             writeFigure(out, QStringLiteral("figures/") + slug(fe.id), f, a.figure, caption);

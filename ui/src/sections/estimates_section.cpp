@@ -221,7 +221,7 @@ void EstimatesSection::refresh() {
     const AnalysisRun& run = *run_;
     const FitResult& main = run.fit;
     const bool logistic = main.family == Family::Logistic;
-    const bool canCentre = run.centred_fit.has_value() && a->centring == "mean";
+    const bool canCentre = run.centred_fit.has_value() && a->centring == Centring::Mean;
     toggle_->setVisible(canCentre);
     const bool centred = canCentre && centred_->isChecked();
     const FitResult& shown = centred ? *run.centred_fit : main;

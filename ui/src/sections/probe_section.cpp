@@ -110,13 +110,13 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     controls->addSpacing(8);
     controls->addWidget(scaleLabel_);
     scale_->setObjectName(QStringLiteral("scale-choice"));
-    scale_->addItem(tr("log-odds"), QStringLiteral("link"));
-    scale_->addItem(tr("probability"), QStringLiteral("response"));
+    scale_->addItem(tr("log-odds"), static_cast<int>(ProbeScale::Model));
+    scale_->addItem(tr("probability"), static_cast<int>(ProbeScale::Outcome));
     scale_->setToolTip(tr("Effects on the log-odds of the outcome, or on the probability that it is 1"));
     controls->addWidget(scale_);
     averaging_->setObjectName(QStringLiteral("averaging-choice"));
-    averaging_->addItem(tr("averaged over the rows"), QStringLiteral("sample"));
-    averaging_->addItem(tr("at the means"), QStringLiteral("values"));
+    averaging_->addItem(tr("averaged over the rows"), static_cast<int>(Averaging::Sample));
+    averaging_->addItem(tr("at the means"), static_cast<int>(Averaging::AtValues));
     averaging_->setToolTip(
         tr("Probability-scale effects averaged over every observed row, or at one profile with "
            "the other predictors at their means and reference levels"));
@@ -217,12 +217,13 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
                      on ? tr("Show data points") : tr("Hide data points"));
     });
     connect(scale_, &QComboBox::activated, this, [this](int i) {
-        const std::string s = scale_->itemData(i).toString().toStdString();
-        editSettings([s](ProbeSettings& p) { p.scale = s; },
-                     s == "response" ? tr("Probe on the probability scale") : tr("Probe on the log-odds scale"));
+        const auto s = static_cast<ProbeScale>(scale_->itemData(i).toInt());
+        editSettings([s](ProbeSettings& p) { p.scale = s; }, s == ProbeScale::Outcome
+                                                                 ? tr("Probe on the probability scale")
+                                                                 : tr("Probe on the log-odds scale"));
     });
     connect(averaging_, &QComboBox::activated, this, [this](int i) {
-        const std::string s = averaging_->itemData(i).toString().toStdString();
+        const auto s = static_cast<Averaging>(averaging_->itemData(i).toInt());
         editSettings([s](ProbeSettings& p) { p.averaging = s; }, tr("Change how probability effects are averaged"));
     });
     connect(held_, &HeldValueControl::valueChosen, this, [this](double v) {
@@ -330,7 +331,7 @@ void ProbeSection::rebuild() {
     scale_->setVisible(logistic);
     scale_->setCurrentIndex(engine_.probability() ? 1 : 0);
     averaging_->setVisible(logistic && engine_.probability());
-    averaging_->setCurrentIndex(ps.averaging == "values" ? 1 : 0);
+    averaging_->setCurrentIndex(ps.averaging == Averaging::AtValues ? 1 : 0);
     const bool surfaceOk = run_->surface.has_value();
     surfaceToggle_->setVisible(surfaceOk);
     if (!surfaceOk) surfaceToggle_->setChecked(false);

@@ -152,8 +152,8 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
     level_->setKeyboardTracking(false);
     level_->setToolTip(tr("Confidence level of the intervals (0.80 to 0.999)."));
     centring_->setObjectName(QStringLiteral("specify-centring"));
-    centring_->addItem(tr("none (columns as they are)"), QStringLiteral("none"));
-    centring_->addItem(tr("mean (focal and moderator centred)"), QStringLiteral("mean"));
+    centring_->addItem(tr("none (columns as they are)"), static_cast<int>(Centring::None));
+    centring_->addItem(tr("mean (focal and moderator centred)"), static_cast<int>(Centring::Mean));
     form->addRow(tr("Family"), family_);
     form->addRow(tr("Standard errors"), se_);
     form->addRow(tr("Confidence level"), level_);
@@ -223,7 +223,8 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
     });
     connect(centring_, &QComboBox::activated, this, [this](int index) {
         if (const Analysis* a = current())
-            apply(setCentring(*a, doc_->table(a->dataset).get(), centring_->itemData(index).toString().toStdString()));
+            apply(setCentring(*a, doc_->table(a->dataset).get(),
+                              static_cast<Centring>(centring_->itemData(index).toInt())));
     });
 
     connect(doc_, &ProjectDocument::analysisChanged, this, [this](const QString& id) {
@@ -338,7 +339,7 @@ void SpecifySection::refresh() {
         se_->setCurrentIndex(se_->findData(static_cast<int>(a->se)));
         se_->setToolTip(se_->itemData(se_->currentIndex(), Qt::ToolTipRole).toString());
         level_->setValue(a->level);
-        centring_->setCurrentIndex(std::max(0, centring_->findData(QString::fromStdString(a->centring))));
+        centring_->setCurrentIndex(std::max(0, centring_->findData(static_cast<int>(a->centring))));
     }
 
     QStringList lines;

@@ -34,7 +34,7 @@
 #include "model/project_document.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/support/error.hpp"
-#include "moderato/support/file_util.hpp"
+#include "moderato/support/sha256.hpp"
 #include "sections/checks_section.hpp"
 #include "sections/memo_section.hpp"
 #include "shell/analysis_page.hpp"
@@ -135,7 +135,7 @@ MainWindow::MainWindow(QWidget* parent)
         for (const auto& f : doc_->project().figures)
             if (f.id == id.toStdString()) {
                 showAnalysis(QString::fromStdString(f.analysis));
-                const bool checks = f.plot == "residuals" || f.plot == "qq" || f.plot == "influence";
+                const bool checks = is_check_plot(f.plot);
                 analysisPage_->showSection(checks ? AnalysisPage::Checks : AnalysisPage::Probe);
             }
     });

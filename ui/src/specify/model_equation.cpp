@@ -77,7 +77,7 @@ std::vector<Factors> runFactors(const AnalysisRun& run) {
 }
 
 bool isCentred(const Analysis& a, const Table* table, const std::string& column) {
-    if (a.centring != "mean" || column.empty()) return false;
+    if (a.centring != Centring::Mean || column.empty()) return false;
     if (column != a.roles.focal && column != a.roles.moderator && column != a.roles.second_moderator) return false;
     const Column* c = table ? table->find(column) : nullptr;
     return c && columnNature(*c) == ColumnNature::Numeric;
@@ -255,7 +255,7 @@ ModelEquation modelEquation(const Analysis& a, const Table* table, const Analysi
         legend << tr("[column = level] is 1 in rows with that level and 0 otherwise; %1.")
                       .arg(refs.join(QStringLiteral(", ")));
     }
-    if (a.centring == "mean") {
+    if (a.centring == Centring::Mean) {
         QStringList centred;
         for (const std::string& c : {a.roles.focal, a.roles.moderator, a.roles.second_moderator})
             if (isCentred(a, table, c)) centred << plain(c);

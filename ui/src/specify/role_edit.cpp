@@ -333,10 +333,10 @@ RoleEdit setLevel(const Analysis& before, const Table* table, double level) {
                    tr("Set confidence level to %1").arg(QString::number(level, 'g', 6)));
 }
 
-RoleEdit setCentring(const Analysis& before, const Table* table, const std::string& centring) {
+RoleEdit setCentring(const Analysis& before, const Table* table, Centring centring) {
     Analysis after = before;
     after.centring = centring;
-    return checked(before, std::move(after), table, tr("Set centring to %1").arg(plain(centring)));
+    return checked(before, std::move(after), table, tr("Set centring to %1").arg(plain(to_string(centring))));
 }
 
 }  // namespace moderato::ui

@@ -60,7 +60,7 @@ RoleEdit clearRole(const Analysis& before, const Table* table, Role role, const 
 RoleEdit setFamily(const Analysis& before, const Table* table, Family family);
 RoleEdit setSeKind(const Analysis& before, const Table* table, SeKind se);
 RoleEdit setLevel(const Analysis& before, const Table* table, double level);
-RoleEdit setCentring(const Analysis& before, const Table* table, const std::string& centring);
+RoleEdit setCentring(const Analysis& before, const Table* table, Centring centring);
 
 // What cannot work in these settings, each naming the role and the column
 // (empty when nothing the UI can see is wrong; core may still refuse).

@@ -16,8 +16,4 @@ enum class Averaging {
     AtValues,  // one profile: covariates at their means / reference levels (or as given)
 };
 
-// Their words in probe reports: "link" / "response" and "sample" / "values".
-inline const char* to_string(ProbeScale scale) { return scale == ProbeScale::Outcome ? "response" : "link"; }
-inline const char* to_string(Averaging averaging) { return averaging == Averaging::AtValues ? "values" : "sample"; }
-
 }  // namespace moderato

@@ -12,11 +12,43 @@
 #include <vector>
 
 #include "moderato/estimation/model.hpp"
+#include "moderato/probing/scale.hpp"
 #include "moderato/reading/csv.hpp"
 
 namespace moderato {
 
-inline constexpr int kProjectSchemaVersion = 1;
+// Schema 2 (this version) stores the probe scale as "model"/"outcome" and the
+// standard errors under "standard_errors" ("model-based", "hc0"…"hc4",
+// "cluster-robust"); schemas 0 and 1 are migrated when read.
+inline constexpr int kProjectSchemaVersion = 2;
+
+// The project-level kinds. Their words in project files (and where the
+// workbench shows a key, e.g. in an undo step's name) come from to_string;
+// everything else compares the enums.
+
+// A derived column's recipe: centre at the mean, the median or `value`;
+// standardise; log(x); log(1 + x); x²; 1 where x equals `level`; x × `other`.
+enum class RecipeKind { CentreMean, CentreMedian, CentreValue, Standardise, Log, Log1p, Square, Dummy, Product };
+// None: columns as they are; Mean: the focal predictor and moderators
+// (numeric, not 0/1) centred at their means for the coefficient table.
+enum class Centring { None, Mean };
+// Figure sizes: Memo 6.5 x 4 in, SingleColumn 3.5 x 2.6 in, TwoColumn
+// 7 x 4.3 in, Slide 10 x 5.63 in, Custom (the width and height given).
+enum class SizePreset { Memo, SingleColumn, TwoColumn, Slide, Custom };
+// The plots a figure can be kept from; the last three are the model checks.
+enum class FigurePlot { Lines, Effect, Surface, Cells, Residuals, QQ, Influence };
+
+// "centre-mean", "centre-median", "centre-value", "standardise", "log",
+// "log1p", "square", "dummy", "product".
+const char* to_string(RecipeKind kind);
+const char* to_string(Centring centring);  // "none", "mean"
+// "memo", "single-column", "two-column", "slide", "custom".
+const char* to_string(SizePreset preset);
+// "lines", "effect", "surface", "cells", "residuals", "qq", "influence":
+// also the key of the workbench's plot (FigureSource::figureKey).
+const char* to_string(FigurePlot plot);
+// Residuals, QQ, Influence: drawn by the model checks, not the probe.
+bool is_check_plot(FigurePlot plot);
 
 struct DataSource {
     std::string id;      // stable key, e.g. "spend"
@@ -27,13 +59,12 @@ struct DataSource {
     bool operator==(const DataSource&) const;
 };
 
-// A derived column added to a dataset. Kinds: "centre-mean", "centre-median",
-// "centre-value" (uses `value`), "standardise", "log", "log1p", "square",
-// "dummy" (uses `level`), "product" (uses `other`).
+// A derived column added to a dataset. CentreValue uses `value`, Dummy uses
+// `level`, Product uses `other`.
 struct DerivedRecipe {
     std::string dataset;  // DataSource::id
     std::string name;     // the new column
-    std::string kind;
+    RecipeKind kind = RecipeKind::CentreMean;
     std::string source;  // the column it is computed from
     std::string other;   // second column (product)
     std::string level;   // dummy
@@ -60,18 +91,17 @@ struct ProbeSettings {
     double current = std::numeric_limits<double>::quiet_NaN();
     std::vector<double> pinned;                                      // pinned moderator values, in the order pinned
     double second_value = std::numeric_limits<double>::quiet_NaN();  // second moderator held at (NaN: mean)
-    std::string scale = "link";                                      // "link" or "response" (logistic: probability)
-    std::string averaging = "sample";                                // response scale: "sample" or "values"
+    ProbeScale scale = ProbeScale::Model;                            // Outcome: probabilities (logistic)
+    Averaging averaging = Averaging::Sample;                         // outcome scale: over the rows, or at values
     bool simultaneous_band = false;                                  // show the simultaneous band instead of pointwise
     bool show_points = true;                                         // data points on the Lines plot
     bool show_gaps = true;  // shade where two groups' (or lines') predictions differ
     bool operator==(const ProbeSettings&) const;
 };
 
-// How a figure is exported. Presets: "memo" 6.5 x 4 in, "single-column"
-// 3.5 x 2.6 in, "two-column" 7 x 4.3 in, "slide" 10 x 5.63 in, "custom".
+// How a figure is exported (the preset names its size, see SizePreset).
 struct FigureSettings {
-    std::string preset = "memo";
+    SizePreset preset = SizePreset::Memo;
     double width_in = 6.5, height_in = 4.0;
     int dpi = 300;
     std::string font_family = "DejaVu Sans";
@@ -89,10 +119,8 @@ struct Analysis {
     Family family = Family::Linear;
     SeKind se = SeKind::Classical;
     double level = 0.95;
-    // "none": columns as they are; "mean": the focal predictor and moderators
-    // (numeric, not 0/1) centred at their means for the coefficient table.
     // Centring changes the meaning of lower-order terms, not the fit or the probe.
-    std::string centring = "none";
+    Centring centring = Centring::None;
     ProbeSettings probe;
     FigureSettings figure;
     std::string memo_notes;  // the analyst's own words, printed at the top of the memo
@@ -100,12 +128,11 @@ struct Analysis {
 };
 
 // A figure kept in the Project sidebar: which plot of which analysis.
-// Plots: "lines", "effect", "surface", "cells", "residuals", "qq", "influence".
 struct FigureEntry {
     std::string id;
     std::string name;
     std::string analysis;  // Analysis::id
-    std::string plot;
+    FigurePlot plot = FigurePlot::Lines;
     bool operator==(const FigureEntry&) const = default;
 };
 
@@ -115,7 +142,7 @@ struct Project {
     std::vector<DerivedRecipe> derived;
     std::vector<Analysis> analyses;
     std::vector<FigureEntry> figures;
-    std::vector<std::string> migration_notes;  // filled when an older schema was read (not saved)
+    std::vector<std::string> migration_notes;  // what was migrated when an older schema was read (not saved)
 
     // Every saved field; migration_notes (not saved) are not compared.
     bool operator==(const Project&) const;
@@ -133,7 +160,9 @@ struct Project {
 // null too (read back as NaN) and non-finite pinned values are left out.
 std::string project_to_json(const Project& project);
 
-// Parses a project. InputError naming `name` and what is wrong for: text that
+// Parses a project; schemas 0 and 1 are migrated in memory (migration_notes
+// say what changed; the file itself is not touched). InputError naming
+// `name` and what is wrong for: text that
 // is not JSON (with line and column; the column counts characters), a missing or non-integer
 // schema_version, a schema newer than this program reads ("made by a newer
 // Moderato"), wrong field types, unknown enum values, and references to
@@ -149,7 +178,7 @@ Project read_project_file(const std::string& path);
 void write_project_file(const Project& project, const std::string& path);
 
 // Roles, family, SE kind and level as a model specification; `centred`
-// maps a column to the name of its centred copy (for centring = "mean").
+// maps a column to the name of its centred copy (for Centring::Mean).
 ModelSpec model_spec(const Analysis& analysis, const std::map<std::string, std::string>& centred = {});
 
 // The data file of a source resolved against the project file's folder.

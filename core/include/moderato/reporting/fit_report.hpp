@@ -1,5 +1,6 @@
-// A fit as JSON (the CLI contract of ARCHITECTURE.md, 17 significant digits)
-// and as a readable text table.
+// A fit as JSON (output_version 2: ARCHITECTURE.md's CLI contract, every
+// field in docs/cli-output.md; 17 significant digits) and as a readable text
+// table.
 #pragma once
 
 #include <string>
@@ -11,10 +12,14 @@ namespace moderato {
 
 // Writes the fit's fields into an object that the caller has opened.
 void write_fit_fields(JsonWriter& w, const FitResult& fit);
+// A whole document: output_version, then the fit's fields.
 std::string fit_to_json(const FitResult& fit);
 std::string fit_to_text(const FitResult& fit, const std::string& outcome);
 
 // "0.0123", "< 0.0001"
 std::string format_p(double p);
+// The standard errors as a reader sees them: "model-based", "HC3
+// (heteroskedasticity-consistent)", "cluster-robust (CR1)".
+const char* standard_errors_text(SeKind se);
 
 }  // namespace moderato

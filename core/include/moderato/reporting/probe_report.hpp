@@ -1,4 +1,5 @@
-// A probe as JSON (the CLI contract of ARCHITECTURE.md) and as readable text.
+// A probe as JSON (output_version 2: ARCHITECTURE.md's CLI contract, every
+// field in docs/cli-output.md) and as readable text.
 #pragma once
 
 #include <string>
