@@ -188,8 +188,9 @@ TEST(Bootstrap, SameNumbersForAnyThreadCountAndSeedMatters) {
     EXPECT_EQ(one.intervals[0].estimate, other.intervals[0].estimate);
     EXPECT_EQ(one.completed, 120);
     EXPECT_TRUE(one.failures.empty());
-    EXPECT_EQ(one.resampling, "cases");
-    EXPECT_EQ(one.jackknife, "leave one row out (n = 150)");
+    EXPECT_EQ(one.resampling, Resampling::Cases);
+    EXPECT_EQ(resampling_text(one), "cases");
+    EXPECT_EQ(jackknife_text(one), "leave one row out (n = 150)");
 }
 
 TEST(Bootstrap, StandardErrorMatchesClassicalInLargeHomoskedasticSample) {
@@ -228,7 +229,7 @@ TEST(Bootstrap, StandardErrorMatchesClassicalInLargeHomoskedasticSample) {
         EXPECT_LT(std::abs(iv.acceleration), 0.05);
     }
     EXPECT_EQ(r.jackknife_groups, 200);
-    EXPECT_EQ(r.jackknife, "grouped: 200 groups (row i in group i mod 200)");
+    EXPECT_EQ(jackknife_text(r), "grouped: 200 groups (row i in group i mod 200)");
 }
 
 TEST(Bootstrap, FailuresAreCountedByReasonAndLeftOutOfIntervals) {
@@ -433,8 +434,9 @@ TEST(Bootstrap, ClusterResamplingKeepsClustersWhole) {
     o.replicates = 150;
     o.seed = 8;
     const BootstrapResult r = bootstrap(d, spec, stat, o);
-    EXPECT_EQ(r.resampling, "clusters (G = 12)");
-    EXPECT_EQ(r.jackknife, "leave one cluster out (G = 12)");
+    EXPECT_EQ(r.resampling, Resampling::Clusters);
+    EXPECT_EQ(resampling_text(r), "clusters (G = 12)");
+    EXPECT_EQ(jackknife_text(r), "leave one cluster out (G = 12)");
     ASSERT_EQ(r.completed, 150);
     std::set<double> sizes;
     int repeated = 0;

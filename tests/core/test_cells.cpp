@@ -118,7 +118,8 @@ void expect_saturated_ols(const std::vector<std::string>& A, const std::vector<s
     ASSERT_EQ(c.row_levels, A);  // levels sort as text and A, B are given sorted
     ASSERT_EQ(c.column_levels, B);
     ASSERT_EQ(c.cells.size(), A.size() * B.size());
-    EXPECT_EQ(c.scale, "mean");
+    EXPECT_EQ(c.scale, CellScale::Mean);
+    EXPECT_STREQ(to_string(c.scale), "mean");
     EXPECT_TRUE(c.held.empty());
 
     // closed form: residual variance of the saturated model is the pooled
@@ -224,7 +225,7 @@ TEST(CellTable, SaturatedHc3CellVariance) {
     const Table t = make_table({numeric_column("y", r.y), categorical_column("a", r.a), categorical_column("b", r.b)});
     const auto [d, f] = fit_of(t, two_factor_spec("y", "a", "b", Family::Linear, SeKind::HC3));
     const CellTable c = cell_table(d, f, "a", "b");
-    EXPECT_EQ(c.covariance, "hc3");
+    EXPECT_EQ(c.covariance, SeKind::HC3);
     for (const auto& cell : c.cells) {
         SCOPED_TRACE(cell.row_level + "," + cell.column_level);
         const CellStats s = stats(r, cell.row_level, cell.column_level);
@@ -411,7 +412,8 @@ TEST(CellTable, LogisticSaturated2x2) {
     const Table t = make_table({numeric_column("y", y), categorical_column("a", a), categorical_column("b", b)});
     const auto [d, f] = fit_of(t, two_factor_spec("y", "a", "b", Family::Logistic));
     const CellTable c = cell_table(d, f, "a", "b");
-    EXPECT_EQ(c.scale, "log-odds");
+    EXPECT_EQ(c.scale, CellScale::LogOdds);
+    EXPECT_STREQ(to_string(c.scale), "log-odds");
     EXPECT_TRUE(std::isinf(c.df));
     for (int i = 0; i < 2; ++i)
         for (int j = 0; j < 2; ++j) {

@@ -68,6 +68,36 @@ TEST(Design, CategoricalIsDummyCodedWithSortedLevelsAndChosenReference) {
     EXPECT_EQ(labels(d)[2], "region=Hills");
 }
 
+// The labelling contract (ARCHITECTURE.md): a numeric factor by its name,
+// a power as name^k, a level indicator as name=level; a product's factors in
+// any order name the same column.
+TEST(Design, AtomLabelsAndColumnsFoundByTheirFactors) {
+    EXPECT_EQ(atom_label(Atom{"x", "", 1}), "x");
+    EXPECT_EQ(atom_label(Atom{"x", "", 3}), "x^3");
+    EXPECT_EQ(atom_label(Atom{"region", "North", 1}), "region=North");
+    const Table t = make_table(
+        {numeric_column("y", {1, 2, 3, 4, 5, 6, 7, 8}), numeric_column("x", {1, 3, 2, 5, 4, 6, 8, 7}),
+         categorical_column("region", {"Plains", "Coast", "Hills", "Coast", "Plains", "Hills", "Coast", "Plains"})});
+    ModelSpec s;
+    s.outcome = "y";
+    s.interactions = {{"region", "x"}, {"x", "x"}};
+    const Design d = build_design(t, s);
+    for (std::size_t j = 0; j < d.columns.size(); ++j) {
+        std::string label;
+        for (const Atom& a : d.columns[j].atoms) label += (label.empty() ? "" : "×") + atom_label(a);
+        if (!d.columns[j].atoms.empty()) {
+            EXPECT_EQ(label, d.columns[j].label);
+        }
+        EXPECT_EQ(d.column_of(d.columns[j].atoms), static_cast<int>(j)) << d.columns[j].label;
+    }
+    const int product = d.column_index("region=Plains×x");
+    ASSERT_GE(product, 0);
+    EXPECT_EQ(d.column_of({{"x", "", 1}, {"region", "Plains", 1}}), product);
+    EXPECT_EQ(d.column_of({{"x", "", 2}}), d.column_index("x^2"));
+    EXPECT_EQ(d.column_of({{"x", "", 1}, {"region", "Coast", 1}}), -1);  // the reference level has no column
+    EXPECT_EQ(d.column_of({{"y", "", 1}}), -1);
+}
+
 TEST(Design, NumericLookingLevelsSortByValue) {
     Column c = categorical_column("dose", {"10", "2", "1"});
     EXPECT_EQ(sorted_levels(c), (std::vector<std::string>{"1", "2", "10"}));

@@ -255,7 +255,7 @@ TEST(MemoSentences, EverySampleHasFindingsAndTheUsualCautions) {
 TEST(MemoSentences, ProbabilityScaleSentencesForTheLogisticSample) {
     const Sample s = open_sample("trial-conversion");
     ASSERT_TRUE(s.run.probe);
-    ASSERT_EQ(s.run.probe->scale, "response");
+    ASSERT_EQ(s.run.probe->scale, ProbeScale::Outcome);
     const auto findings = memo_findings(s.analysis, s.run);
     SCOPED_TRACE(joined(findings));
     const std::string all = joined(findings);

@@ -61,9 +61,9 @@ std::vector<double> scan_boundaries(const EffectFunction& f, double q, double lo
 void expect_boundaries_match_scan(const EffectFunction& f, double q, double lo, double hi, std::size_t count,
                                   const std::string& expected_kind) {
     const auto sig = significance_regions(f, q);
-    EXPECT_EQ(sig.kind, expected_kind);
+    EXPECT_EQ(kind_text(sig), expected_kind);
     const auto scan = scan_boundaries(f, q, lo, hi);
-    ASSERT_EQ(sig.boundaries.size(), count) << sig.kind;
+    ASSERT_EQ(sig.boundaries.size(), count) << kind_text(sig);
     ASSERT_EQ(scan.size(), count);
     for (std::size_t i = 0; i < count; ++i)
         EXPECT_LE(std::abs(sig.boundaries[i] - scan[i]), 1e-9 * std::max(1.0, std::abs(scan[i]))) << i;
@@ -178,7 +178,7 @@ TEST(Probe, LinesMeetAtMinusB2OverB3AndFiellerMatchesTheGapTest) {
         const double v = f.covariance(i2, i2) + 2 * x * f.covariance(i2, i3) + x * x * f.covariance(i3, i3);
         return std::abs(e) / std::sqrt(v);
     };
-    ASSERT_EQ(c.ci_kind, "bounded");
+    ASSERT_EQ(c.ci_kind, FiellerInterval::Bounded);
     EXPECT_NEAR(gap_t(c.ci_lower), f.critical_value, 1e-9);
     EXPECT_NEAR(gap_t(c.ci_upper), f.critical_value, 1e-9);
     EXPECT_LT(gap_t(0.5 * (c.ci_lower + c.ci_upper)), f.critical_value);
@@ -212,6 +212,29 @@ TEST(Probe, CategoricalModeratorGivesOneEffectPerLevel) {
     EXPECT_NEAR(r.effects[0].estimate, f.beta[f.index_of("x")], 1e-12);
     EXPECT_NEAR(r.effects[2].estimate, f.beta[f.index_of("x")] + f.beta[f.index_of("x×shift=night")], 1e-12);
     EXPECT_EQ(r.crossovers.size(), 3u);  // every pair of levels
+}
+
+// A 0/1 moderator has two effects and no region of significance; a
+// continuous one has both regions.
+TEST(Probe, BinaryModeratorIsSaidByAFieldNotOnlyByANote) {
+    const Table t = simulate(300, 8, 0.1);
+    ModelSpec s;
+    s.outcome = "y";
+    s.interactions = {{"x", "g"}, {"x", "z"}};
+    const Design d = build_design(t, s);
+    const FitResult f = fit_design(d, s);
+    const ProbeResult binary = probe(d, f, spec_of("x", "g"));
+    EXPECT_TRUE(binary.binary_moderator);
+    EXPECT_FALSE(binary.categorical_moderator);
+    EXPECT_FALSE(binary.johnson_neyman.has_value());
+    EXPECT_FALSE(binary.simultaneous.has_value());
+    ASSERT_EQ(binary.effects.size(), 2u);
+    EXPECT_EQ(binary.effects[0].moderator_value, 0.0);
+    EXPECT_EQ(binary.effects[1].moderator_value, 1.0);
+    const ProbeResult continuous = probe(d, f, spec_of("x", "z"));
+    EXPECT_FALSE(continuous.binary_moderator);
+    EXPECT_TRUE(continuous.johnson_neyman.has_value());
+    EXPECT_TRUE(continuous.simultaneous.has_value());
 }
 
 TEST(Probe, BadRequestsAreExplained) {

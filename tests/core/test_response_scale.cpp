@@ -61,7 +61,7 @@ TEST(ResponseScale, MarginalEffectsMatchDifferentiatedStatsmodelsPredictions) {
             EXPECT_LE(rel(e.std_error, row.at("std_error").get<double>()), 1e-6);
         } else {
             const InteractionEffect ie = probability_interaction(c.design, c.fit, r);
-            EXPECT_EQ(ie.kind, row.at("kind").get<std::string>());
+            EXPECT_EQ(to_string(ie.kind), row.at("kind").get<std::string>());
             EXPECT_LE(rel(ie.estimate, row.at("estimate").get<double>()), 1e-6);
             EXPECT_LE(rel(ie.std_error, row.at("std_error").get<double>()), 1e-6);
         }

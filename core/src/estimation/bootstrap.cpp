@@ -261,6 +261,19 @@ void in_waves(int count, unsigned threads, int& done, int total, const Bootstrap
 
 }  // namespace
 
+std::string resampling_text(const BootstrapResult& r) {
+    return r.resampling == Resampling::Clusters ? "clusters (G = " + std::to_string(r.units) + ")" : "cases";
+}
+
+std::string jackknife_text(const BootstrapResult& r) {
+    const bool clustered = r.resampling == Resampling::Clusters;
+    const std::string unit = clustered ? "cluster" : "row";
+    const int J = r.jackknife_groups;
+    return J == r.units
+               ? "leave one " + unit + " out (" + (clustered ? "G" : "n") + " = " + std::to_string(r.units) + ")"
+               : "grouped: " + std::to_string(J) + " groups (" + unit + " i in group i mod " + std::to_string(J) + ")";
+}
+
 double quantile_type7(const std::vector<double>& sorted, double p) {
     if (sorted.empty() || std::isnan(p)) return kNaN;
     const double h = std::clamp(p, 0.0, 1.0) * static_cast<double>(sorted.size() - 1);
@@ -334,8 +347,10 @@ BootstrapInterval bootstrap_interval(const std::vector<double>& values, double e
     return out;
 }
 
-BootstrapResult bootstrap(const Design& d, const ModelSpec& spec, const BootstrapStatistic& statistic,
-                          const BootstrapOptions& options) {
+namespace {
+
+void check_request(const Design& d, const ModelSpec& spec, const BootstrapStatistic& statistic,
+                   const BootstrapOptions& options) {
     if (!statistic) throw std::invalid_argument("bootstrap: no statistic given");
     if (options.replicates < kMinReplicates)
         throw InputError("the bootstrap needs at least " + std::to_string(kMinReplicates) + " replicates, got " +
@@ -352,105 +367,69 @@ BootstrapResult bootstrap(const Design& d, const ModelSpec& spec, const Bootstra
                          " coefficients; resampling needs at least 10 rows and at least twice as many rows as "
                          "coefficients (here " +
                          std::to_string(std::max<long long>(10, 2 * p)) + ") — add rows or drop terms");
-    const bool clustered = !d.cluster.empty();
-    if (clustered && d.n_clusters < kMinClusters)
+    if (!d.cluster.empty() && d.n_clusters < kMinClusters)
         throw InputError("cluster resampling needs at least " + std::to_string(kMinClusters) + " clusters, but " +
                          (spec.cluster.empty() ? std::string("the cluster column") : quoted(spec.cluster)) +
                          " has G = " + std::to_string(d.n_clusters) +
                          " among the used rows; use a cluster column with more clusters, or remove the cluster "
                          "column to resample rows");
+}
 
-    const unsigned threads = detail::resolve_threads(options.threads);
-
-    // The full sample: the estimate, and the checks that make every replicate fail.
-    FitResult full;
-    {
-        Resampler probe_only(d, spec, statistic, 0);
-        full = probe_only.fit_full(threads);
-        if (!full.aliased.empty())
-            throw InputError("the model has aliased terms (" + join(full.aliased, ", ") +
-                             ") on the full sample, so every bootstrap replicate would fail; drop those terms first");
-        if (const std::string why = probe_only.fit_problem(full); !why.empty()) {
-            std::string detail = full.warnings.empty() ? why : join(full.warnings, "; ");
-            throw InputError("the full-sample fit cannot be bootstrapped: " + detail +
-                             "; fix the model (e.g. drop or merge the separating terms) first");
-        }
+// The full-sample fit behind the estimate, refused when every replicate
+// would fail the same way.
+FitResult full_sample_fit(const Design& d, const ModelSpec& spec, const BootstrapStatistic& statistic,
+                          unsigned threads) {
+    Resampler probe_only(d, spec, statistic, 0);
+    FitResult full = probe_only.fit_full(threads);
+    if (!full.aliased.empty())
+        throw InputError("the model has aliased terms (" + join(full.aliased, ", ") +
+                         ") on the full sample, so every bootstrap replicate would fail; drop those terms first");
+    if (const std::string why = probe_only.fit_problem(full); !why.empty()) {
+        std::string detail = full.warnings.empty() ? why : join(full.warnings, "; ");
+        throw InputError("the full-sample fit cannot be bootstrapped: " + detail +
+                         "; fix the model (e.g. drop or merge the separating terms) first");
     }
-    const Eigen::VectorXd estimate = statistic(d, full);
-    const Eigen::Index m = estimate.size();
-    if (m == 0) throw std::invalid_argument("bootstrap: the statistic returned no values");
+    return full;
+}
 
-    Resampler rs(d, spec, statistic, m);
-    BootstrapResult res;
-    res.requested = options.replicates;
-    res.level = options.level;
-    res.resampling = clustered ? "clusters (G = " + std::to_string(d.n_clusters) + ")" : "cases";
-
-    // Jackknife groups: rows (cases) or clusters, at most 200, unit i in group
-    // i mod J (a fixed split that does not follow any sorting of the data).
-    const int units = clustered ? d.n_clusters : static_cast<int>(n);
-    const int J = std::min(units, kMaxJackknifeGroups);
-    res.jackknife_groups = J;
-    const std::string unit = clustered ? "cluster" : "row";
-    res.jackknife =
-        J == units
-            ? "leave one " + unit + " out (" + (clustered ? "G" : "n") + " = " + std::to_string(units) + ")"
-            : "grouped: " + std::to_string(J) + " groups (" + unit + " i in group i mod " + std::to_string(J) + ")";
-
-    const int R = options.replicates;
-    const int total = R + J;
-    int done = 0;
-
-    // 1. Replicates.
-    res.replicates = Eigen::MatrixXd::Constant(R, m, kNaN);
-    std::vector<std::string> reasons(static_cast<std::size_t>(R));
-    const std::string note = "bootstrap replicate (" + res.resampling + ")";
-    in_waves(R, threads, done, total, options, [&](int r) {
-        const Subset s = rs.draw(options.seed, static_cast<std::uint64_t>(r));
-        const Design rd = rs.build(s, note);
-        auto o = rs.evaluate(rd);
-        res.replicates.row(r) = o.values.transpose();
-        reasons[static_cast<std::size_t>(r)] = std::move(o.reason);
-    });
-
-    // 2. Jackknife for the acceleration.
-    Eigen::MatrixXd jack = Eigen::MatrixXd::Constant(J, m, kNaN);
-    std::vector<std::string> jack_reasons(static_cast<std::size_t>(J));
-    const std::string jnote = "jackknife design (" + res.jackknife + ")";
-    in_waves(J, threads, done, total, options, [&](int g) {
-        Subset s;
-        if (!clustered) {
-            for (Eigen::Index i = 0; i < static_cast<Eigen::Index>(n); ++i)
-                if (i % J != g) s.rows.push_back(i);
-        } else {
-            int next = 0;
-            for (int c = 0; c < d.n_clusters; ++c) {
-                if (c % J == g) continue;
-                for (Eigen::Index i : rs.members()[static_cast<std::size_t>(c)]) {
-                    s.rows.push_back(i);
-                    s.cluster.push_back(next);
-                }
-                s.cluster_names.push_back(d.cluster_names[static_cast<std::size_t>(c)]);
-                ++next;
-            }
-            // keep the original row order within the design
-            std::vector<std::size_t> order(s.rows.size());
-            for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
-            std::sort(order.begin(), order.end(), [&](auto a, auto b) { return s.rows[a] < s.rows[b]; });
-            Subset sorted;
-            sorted.cluster_names = s.cluster_names;
-            for (auto i : order) {
-                sorted.rows.push_back(s.rows[i]);
-                sorted.cluster.push_back(s.cluster[i]);
-            }
-            s = std::move(sorted);
+// The design rows left in jackknife group g of J: every row (or every
+// cluster's rows, clusters renumbered) except those of group g, in the
+// original row order.
+Subset jackknife_subset(const Design& d, const Resampler& rs, int J, int g) {
+    Subset s;
+    if (d.cluster.empty()) {
+        for (Eigen::Index i = 0; i < static_cast<Eigen::Index>(d.n()); ++i)
+            if (i % J != g) s.rows.push_back(i);
+        return s;
+    }
+    int next = 0;
+    for (int c = 0; c < d.n_clusters; ++c) {
+        if (c % J == g) continue;
+        for (Eigen::Index i : rs.members()[static_cast<std::size_t>(c)]) {
+            s.rows.push_back(i);
+            s.cluster.push_back(next);
         }
-        auto o = rs.evaluate(rs.build(s, jnote));
-        jack.row(g) = o.values.transpose();
-        jack_reasons[static_cast<std::size_t>(g)] = std::move(o.reason);
-    });
+        s.cluster_names.push_back(d.cluster_names[static_cast<std::size_t>(c)]);
+        ++next;
+    }
+    // keep the original row order within the design
+    std::vector<std::size_t> order(s.rows.size());
+    for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
+    std::sort(order.begin(), order.end(), [&](auto a, auto b) { return s.rows[a] < s.rows[b]; });
+    Subset sorted;
+    sorted.cluster_names = s.cluster_names;
+    for (auto i : order) {
+        sorted.rows.push_back(s.rows[i]);
+        sorted.cluster.push_back(s.cluster[i]);
+    }
+    return sorted;
+}
 
-    // 3. Failures by reason, in order of first occurrence.
+// Failures by reason, in order of first occurrence, and the warnings about
+// failed replicates and jackknife fits.
+void tally_failures(const std::vector<std::string>& reasons, const std::vector<std::string>& jack_reasons,
+                    BootstrapResult& res) {
+    const int R = static_cast<int>(reasons.size()), J = static_cast<int>(jack_reasons.size());
     std::map<std::string, std::size_t> slot;
     for (const auto& why : reasons) {
         if (why.empty()) {
@@ -475,39 +454,104 @@ BootstrapResult bootstrap(const Design& d, const ModelSpec& spec, const Bootstra
         res.warnings.push_back(std::to_string(jack_failed) + " of " + std::to_string(J) +
                                " jackknife fits failed (first: " + first_jack_reason +
                                "); the BCa acceleration uses the others");
+}
 
-    // 4. Intervals.
+// The warning an interval needs, if any ("which": the statistic or one of its values).
+void warn_about_interval(const BootstrapInterval& iv, double estimate, double a, const std::string& which,
+                         BootstrapResult& res) {
+    if (iv.valid_replicates < 2) {
+        res.warnings.push_back(which + " is defined in " + std::to_string(iv.valid_replicates) +
+                               " replicates only; no interval is given");
+    } else if (!std::isfinite(estimate)) {
+        res.warnings.push_back(which + " is undefined on the full sample; BCa intervals are not given");
+    } else if (std::isnan(iv.bca_lower) || std::isnan(iv.bca_upper)) {
+        res.warnings.push_back(
+            which + ": BCa interval undefined (" +
+            (std::isfinite(iv.bias_correction_z0)
+                 ? std::string(std::isnan(a) ? "no usable jackknife values" : "acceleration too large for the level")
+                 : std::string("the estimate lies outside all replicates")) +
+            "); use the percentile interval");
+    } else {
+        // Type 7 interpolates between the two most extreme replicates:
+        // the endpoint rests on one or two replicates.
+        const double last = static_cast<double>(iv.valid_replicates - 1);
+        if (iv.bca_lower_level * last < 1.0 || iv.bca_upper_level * last > last - 1.0)
+            res.warnings.push_back(
+                which + ": a BCa endpoint lies among the most extreme replicates; increase the number of replicates");
+    }
+}
+
+// Percentile and BCa intervals of every value of the statistic.
+void intervals(const Eigen::VectorXd& estimate, const Eigen::MatrixXd& jack, double level, BootstrapResult& res) {
+    const Eigen::Index m = estimate.size();
+    const int R = static_cast<int>(res.replicates.rows()), J = static_cast<int>(jack.rows());
     for (Eigen::Index k = 0; k < m; ++k) {
         std::vector<double> values(static_cast<std::size_t>(R));
         for (int r = 0; r < R; ++r) values[static_cast<std::size_t>(r)] = res.replicates(r, k);
         std::vector<double> jv(static_cast<std::size_t>(J));
         for (int g = 0; g < J; ++g) jv[static_cast<std::size_t>(g)] = jack(g, k);
         const double a = jackknife_acceleration(jv);
-        BootstrapInterval iv = bootstrap_interval(values, estimate[k], a, options.level);
+        BootstrapInterval iv = bootstrap_interval(values, estimate[k], a, level);
         const std::string which = m == 1 ? "the statistic" : "value " + std::to_string(k + 1) + " of the statistic";
-        if (iv.valid_replicates < 2) {
-            res.warnings.push_back(which + " is defined in " + std::to_string(iv.valid_replicates) +
-                                   " replicates only; no interval is given");
-        } else if (!std::isfinite(estimate[k])) {
-            res.warnings.push_back(which + " is undefined on the full sample; BCa intervals are not given");
-        } else if (std::isnan(iv.bca_lower) || std::isnan(iv.bca_upper)) {
-            res.warnings.push_back(which + ": BCa interval undefined (" +
-                                   (std::isfinite(iv.bias_correction_z0)
-                                        ? std::string(std::isnan(a) ? "no usable jackknife values"
-                                                                    : "acceleration too large for the level")
-                                        : std::string("the estimate lies outside all replicates")) +
-                                   "); use the percentile interval");
-        } else {
-            // Type 7 interpolates between the two most extreme replicates:
-            // the endpoint rests on one or two replicates.
-            const double last = static_cast<double>(iv.valid_replicates - 1);
-            if (iv.bca_lower_level * last < 1.0 || iv.bca_upper_level * last > last - 1.0)
-                res.warnings.push_back(which +
-                                       ": a BCa endpoint lies among the most extreme replicates; increase the number "
-                                       "of replicates");
-        }
+        warn_about_interval(iv, estimate[k], a, which, res);
         res.intervals.push_back(iv);
     }
+}
+
+}  // namespace
+
+BootstrapResult bootstrap(const Design& d, const ModelSpec& spec, const BootstrapStatistic& statistic,
+                          const BootstrapOptions& options) {
+    check_request(d, spec, statistic, options);
+    const bool clustered = !d.cluster.empty();
+    const unsigned threads = detail::resolve_threads(options.threads);
+
+    // The full sample: the estimate, and the checks that make every replicate fail.
+    const FitResult full = full_sample_fit(d, spec, statistic, threads);
+    const Eigen::VectorXd estimate = statistic(d, full);
+    const Eigen::Index m = estimate.size();
+    if (m == 0) throw std::invalid_argument("bootstrap: the statistic returned no values");
+
+    Resampler rs(d, spec, statistic, m);
+    BootstrapResult res;
+    res.requested = options.replicates;
+    res.level = options.level;
+    res.resampling = clustered ? Resampling::Clusters : Resampling::Cases;
+    // Jackknife groups: rows (cases) or clusters, at most 200, unit i in group
+    // i mod J (a fixed split that does not follow any sorting of the data).
+    res.units = clustered ? d.n_clusters : static_cast<int>(d.n());
+    const int J = std::min(res.units, kMaxJackknifeGroups);
+    res.jackknife_groups = J;
+
+    const int R = options.replicates;
+    const int total = R + J;
+    int done = 0;
+
+    // 1. Replicates.
+    res.replicates = Eigen::MatrixXd::Constant(R, m, kNaN);
+    std::vector<std::string> reasons(static_cast<std::size_t>(R));
+    const std::string note = "bootstrap replicate (" + resampling_text(res) + ")";
+    in_waves(R, threads, done, total, options, [&](int r) {
+        const Subset s = rs.draw(options.seed, static_cast<std::uint64_t>(r));
+        const Design rd = rs.build(s, note);
+        auto o = rs.evaluate(rd);
+        res.replicates.row(r) = o.values.transpose();
+        reasons[static_cast<std::size_t>(r)] = std::move(o.reason);
+    });
+
+    // 2. Jackknife for the acceleration.
+    Eigen::MatrixXd jack = Eigen::MatrixXd::Constant(J, m, kNaN);
+    std::vector<std::string> jack_reasons(static_cast<std::size_t>(J));
+    const std::string jnote = "jackknife design (" + jackknife_text(res) + ")";
+    in_waves(J, threads, done, total, options, [&](int g) {
+        auto o = rs.evaluate(rs.build(jackknife_subset(d, rs, J, g), jnote));
+        jack.row(g) = o.values.transpose();
+        jack_reasons[static_cast<std::size_t>(g)] = std::move(o.reason);
+    });
+
+    // 3. Failures by reason; 4. intervals.
+    tally_failures(reasons, jack_reasons, res);
+    intervals(estimate, jack, options.level, res);
     return res;
 }
 

@@ -58,6 +58,15 @@ int Design::level_index(const std::string& column, const std::string& level) con
     return -1;
 }
 
+int Design::column_of(const std::vector<Atom>& atoms) const {
+    for (std::size_t j = 0; j < columns.size(); ++j) {
+        const auto& a = columns[j].atoms;
+        if (a.size() == atoms.size() && std::is_permutation(a.begin(), a.end(), atoms.begin()))
+            return static_cast<int>(j);
+    }
+    return -1;
+}
+
 std::vector<int> Design::product_columns() const {
     std::vector<int> out;
     for (std::size_t j = 0; j < columns.size(); ++j)
@@ -77,6 +86,14 @@ bool parse_number(const std::string& s, double& out) {
 std::string factor_label(const std::string& column, int power) {
     return power == 1 ? column : column + "^" + std::to_string(power);
 }
+
+}  // namespace
+
+std::string atom_label(const Atom& a) {
+    return a.level.empty() ? factor_label(a.column, a.power) : a.column + "=" + a.level;
+}
+
+namespace {
 
 std::string term_label(const std::vector<std::pair<std::string, int>>& factors) {
     std::vector<std::string> parts;
@@ -215,13 +232,15 @@ std::vector<std::string> sorted_levels(const Column& column) {
     return out;
 }
 
-Design build_design(const Table& table, const ModelSpec& spec) {
-    if (spec.outcome.empty()) throw InputError("no outcome given; choose the column to explain");
-    if (!(spec.level > 0 && spec.level < 1))
-        throw InputError("confidence level " + exact_text(spec.level) + " is not between 0 and 1 (e.g. 0.95)");
-    const Column& outcome = column_for(table, spec.outcome, "outcome");
+namespace {
 
-    // 1. Terms, with the lower-order terms of every product.
+// Categorical column -> its levels among the used rows (reference first) and
+// the level index of each of its codes (-1: a level no used row holds).
+using LevelMap = std::map<std::string, std::pair<std::vector<std::string>, std::vector<int>>>;
+
+// 1. Terms, with the lower-order terms of every product, sorted by degree.
+//    `added_notes` says which lower-order terms were added.
+std::vector<DesignTerm> model_terms(const Table& table, const ModelSpec& spec, std::vector<std::string>& added_notes) {
     TermBuilder tb;
     for (const auto& name : spec.predictors) {
         if (name == spec.outcome)
@@ -236,7 +255,6 @@ Design build_design(const Table& table, const ModelSpec& spec) {
                              std::to_string(degree));
         for (int k = 1; k <= degree; ++k) tb.add({{name, k}}, false);
     }
-    std::vector<std::string> added_notes;
     for (const auto& inter : spec.interactions) {
         if (inter.size() < 2 || inter.size() > 3)
             throw InputError("an interaction needs 2 or 3 columns, got " + std::to_string(inter.size()) + " (" +
@@ -262,16 +280,20 @@ Design build_design(const Table& table, const ModelSpec& spec) {
     }
     std::stable_sort(tb.terms.begin(), tb.terms.end(),
                      [](const DesignTerm& a, const DesignTerm& b) { return a.degree < b.degree; });
-
     for (const auto& t : tb.terms)
         for (const auto& [name, power] : t.factors)
             if (power > 1 && table.at(name).kind == ColumnKind::Categorical)
                 throw InputError("categorical column " + quoted(name) + " cannot be raised to a power");
+    return std::move(tb.terms);
+}
 
-    // 2. Which rows are complete.
+// The model's columns: the outcome, every factor of the terms, then the
+// weights and cluster columns (each once), with the checks of their kinds.
+std::vector<std::string> used_columns(const Table& table, const ModelSpec& spec, const Column& outcome,
+                                      const std::vector<DesignTerm>& terms) {
     if (outcome.kind != ColumnKind::Numeric)
         throw InputError(not_numeric(table, "outcome", outcome, "choose a numeric column or fix that cell"));
-    for (const auto& t : tb.terms)
+    for (const auto& t : terms)
         for (const auto& f : t.factors) {
             const Column& c = table.at(f.first);
             if (mostly_numbers(c))
@@ -284,24 +306,27 @@ Design build_design(const Table& table, const ModelSpec& spec) {
     auto use = [&](const std::string& name) {
         if (std::find(used.begin(), used.end(), name) == used.end()) used.push_back(name);
     };
-    for (const auto& t : tb.terms)
+    for (const auto& t : terms)
         for (const auto& f : t.factors) use(f.first);
-    const Column* weights = nullptr;
-    const Column* cluster = nullptr;
     if (!spec.weights.empty()) {
-        weights = &column_for(table, spec.weights, "weights");
-        if (weights->kind != ColumnKind::Numeric)
+        const Column& weights = column_for(table, spec.weights, "weights");
+        if (weights.kind != ColumnKind::Numeric)
             throw InputError(
-                not_numeric(table, "weights", *weights, "choose a numeric weights column or fix that cell"));
+                not_numeric(table, "weights", weights, "choose a numeric weights column or fix that cell"));
         use(spec.weights);
     }
     if (spec.se == SeKind::Cluster && spec.cluster.empty())
         throw InputError("cluster-robust standard errors need a cluster column; name one with --cluster");
     if (!spec.cluster.empty()) {
-        cluster = &column_for(table, spec.cluster, "cluster");
+        column_for(table, spec.cluster, "cluster");
         use(spec.cluster);
     }
+    return used;
+}
 
+// 2. The rows with a value in every used column (listwise deletion); the
+//    exclusions per column go into `d`.
+std::vector<std::size_t> complete_rows(const Table& table, const std::vector<std::string>& used, Design& d) {
     const std::size_t N = table.rows();
     std::vector<const Column*> cols;
     for (const auto& name : used) cols.push_back(&table.at(name));
@@ -317,9 +342,6 @@ Design build_design(const Table& table, const ModelSpec& spec) {
             }
         if (complete) rows.push_back(r);
     }
-    Design d;
-    d.outcome = spec.outcome;
-    d.intercept = spec.intercept;
     d.n_excluded = N - rows.size();
     for (std::size_t c = 0; c < cols.size(); ++c)
         if (missing_per[c] > 0) d.exclusions.push_back({used[c], missing_per[c]});
@@ -330,41 +352,51 @@ Design build_design(const Table& table, const ModelSpec& spec) {
                          (table.source.empty() ? std::string() : " of " + table.source) +
                          " misses a value of a model column" + (why.empty() ? "" : " (" + join(why, ", ") + ")"));
     }
-    const std::size_t n = rows.size();
+    return rows;
+}
 
-    // 3. Categorical levels among the used rows.
-    std::map<std::string, std::pair<std::vector<std::string>, std::vector<int>>> cat_map;  // levels, code->level idx
-    for (const auto& t : tb.terms)
+// The levels of one categorical column among the used rows, reference first
+// (the chosen one, else the first in sorted order).
+std::vector<std::string> used_levels(const Column& c, const ModelSpec& spec, const std::vector<std::size_t>& rows) {
+    std::vector<char> present(c.levels.size(), 0);
+    for (auto r : rows) present[static_cast<std::size_t>(c.codes[r])] = 1;
+    Column only = c;
+    only.levels.clear();
+    for (std::size_t i = 0; i < c.levels.size(); ++i)
+        if (present[i]) only.levels.push_back(c.levels[i]);
+    std::vector<std::string> levels = sorted_levels(only);
+    std::string ref = levels.front();
+    if (auto it = spec.reference_levels.find(c.name); it != spec.reference_levels.end()) {
+        if (std::find(levels.begin(), levels.end(), it->second) == levels.end())
+            throw InputError("reference level " + quoted(it->second) + " not found in column " + quoted(c.name) +
+                             "; levels are: " + join(levels, ", "));
+        ref = it->second;
+    }
+    if (levels.size() < 2)
+        throw InputError("predictor " + quoted(c.name) + " is constant (every used row holds " +
+                         quoted(levels.front()) + "); it has no contrast to estimate");
+    std::vector<std::string> ordered{ref};
+    for (const auto& l : levels)
+        if (l != ref) ordered.push_back(l);
+    return ordered;
+}
+
+// 3. Categorical levels among the used rows (into d.categoricals), and the
+//    check that every reference level given belongs to a categorical model column.
+LevelMap categorical_levels(const Table& table, const ModelSpec& spec, const std::vector<DesignTerm>& terms,
+                            const std::vector<std::size_t>& rows, Design& d) {
+    LevelMap cat_map;
+    for (const auto& t : terms)
         for (const auto& f : t.factors) {
             const Column& c = table.at(f.first);
             if (c.kind != ColumnKind::Categorical || cat_map.count(f.first)) continue;
-            std::vector<char> present(c.levels.size(), 0);
-            for (auto r : rows) present[static_cast<std::size_t>(c.codes[r])] = 1;
-            Column only = c;
-            only.levels.clear();
-            for (std::size_t i = 0; i < c.levels.size(); ++i)
-                if (present[i]) only.levels.push_back(c.levels[i]);
-            std::vector<std::string> levels = sorted_levels(only);
-            std::string ref = levels.front();
-            if (auto it = spec.reference_levels.find(f.first); it != spec.reference_levels.end()) {
-                if (std::find(levels.begin(), levels.end(), it->second) == levels.end())
-                    throw InputError("reference level " + quoted(it->second) + " not found in column " +
-                                     quoted(f.first) + "; levels are: " + join(levels, ", "));
-                ref = it->second;
-            }
-            if (levels.size() < 2)
-                throw InputError("predictor " + quoted(f.first) + " is constant (every used row holds " +
-                                 quoted(levels.front()) + "); it has no contrast to estimate");
-            // reference first, the others in sorted order
-            std::vector<std::string> ordered{ref};
-            for (const auto& l : levels)
-                if (l != ref) ordered.push_back(l);
+            std::vector<std::string> ordered = used_levels(c, spec, rows);
             std::vector<int> code_to_level(c.levels.size(), -1);
             for (std::size_t i = 0; i < c.levels.size(); ++i) {
                 auto it = std::find(ordered.begin(), ordered.end(), c.levels[i]);
                 if (it != ordered.end()) code_to_level[i] = static_cast<int>(it - ordered.begin());
             }
-            d.categoricals.push_back({f.first, ordered, ref});
+            d.categoricals.push_back({f.first, ordered, ordered.front()});
             cat_map[f.first] = {ordered, code_to_level};
         }
     for (const auto& [col, lvl] : spec.reference_levels)
@@ -375,14 +407,18 @@ Design build_design(const Table& table, const ModelSpec& spec) {
                                  ", which is numeric; declare it categorical to dummy-code it");
             throw InputError("reference level given for " + quoted(col) + ", which is not in the model");
         }
+    return cat_map;
+}
 
-    // 4. Design columns: the intercept, then each term expanded over the
-    //    non-reference levels of its categorical factors.
-    if (spec.intercept) {
+// 4. Design columns: the intercept, then each term expanded over the
+//    non-reference levels of its categorical factors.
+void design_columns(const Table& table, const std::vector<DesignTerm>& terms, const LevelMap& cat_map, bool intercept,
+                    Design& d) {
+    if (intercept) {
         d.terms.push_back({"intercept", {}, 0, false, {0}});
         d.columns.push_back({"intercept", {}, 0});
     }
-    for (auto& t : tb.terms) {
+    for (const auto& t : terms) {
         const int ti = static_cast<int>(d.terms.size());
         std::vector<std::vector<Atom>> combos{{}};
         for (const auto& [name, power] : t.factors) {
@@ -394,7 +430,7 @@ Design build_design(const Table& table, const ModelSpec& spec) {
                     next.push_back(combo);
                 }
             } else {
-                const auto& levels = cat_map[name].first;
+                const auto& levels = cat_map.at(name).first;
                 for (const auto& combo : combos)
                     for (std::size_t l = 1; l < levels.size(); ++l) {
                         auto c2 = combo;
@@ -407,18 +443,19 @@ Design build_design(const Table& table, const ModelSpec& spec) {
         DesignTerm term = t;
         for (auto& combo : combos) {
             std::vector<std::string> parts;
-            for (const auto& a : combo)
-                parts.push_back(a.level.empty() ? factor_label(a.column, a.power) : a.column + "=" + a.level);
+            for (const auto& a : combo) parts.push_back(atom_label(a));
             term.columns.push_back(static_cast<int>(d.columns.size()));
             d.columns.push_back({join(parts, "×"), combo, ti});
         }
         d.terms.push_back(std::move(term));
     }
-    const std::size_t p = d.columns.size();
-    if (p == 0) throw InputError("the model has no terms: add predictors or keep the intercept");
+    if (d.columns.empty()) throw InputError("the model has no terms: add predictors or keep the intercept");
+}
 
-    // 5. Numbers.
-    d.rows = rows;
+// 5. Numbers: the design matrix over the used rows.
+void fill_matrix(const Table& table, const LevelMap& cat_map, Design& d) {
+    const std::vector<std::size_t>& rows = d.rows;
+    const std::size_t n = rows.size(), p = d.columns.size();
     d.X.resize(static_cast<Eigen::Index>(n), static_cast<Eigen::Index>(p));
     for (std::size_t j = 0; j < p; ++j) {
         auto col = d.X.col(static_cast<Eigen::Index>(j));
@@ -433,7 +470,7 @@ Design build_design(const Table& table, const ModelSpec& spec) {
                     for (std::size_t i = 0; i < n; ++i)
                         col[static_cast<Eigen::Index>(i)] *= std::pow(v[rows[i]], a.power);
             } else {
-                const auto& [levels, code_to_level] = cat_map[a.column];
+                const auto& [levels, code_to_level] = cat_map.at(a.column);
                 const int want = static_cast<int>(std::find(levels.begin(), levels.end(), a.level) - levels.begin());
                 for (std::size_t i = 0; i < n; ++i)
                     if (code_to_level[static_cast<std::size_t>(c.codes[rows[i]])] != want)
@@ -441,6 +478,12 @@ Design build_design(const Table& table, const ModelSpec& spec) {
             }
         }
     }
+}
+
+// The outcome over the used rows (0 or 1 for a logistic model) and the weights (positive).
+void fill_outcome_and_weights(const Table& table, const ModelSpec& spec, const Column& outcome, Design& d) {
+    const std::vector<std::size_t>& rows = d.rows;
+    const std::size_t n = rows.size();
     d.y.resize(static_cast<Eigen::Index>(n));
     for (std::size_t i = 0; i < n; ++i) d.y[static_cast<Eigen::Index>(i)] = outcome.numbers[rows[i]];
     if (spec.family == Family::Logistic)
@@ -450,47 +493,54 @@ Design build_design(const Table& table, const ModelSpec& spec) {
                 throw InputError("logistic outcome " + quoted(spec.outcome) +
                                  " must be 0 or 1: " + where(table, rows[i]) + " holds " + exact_text(v));
         }
-    if (weights) {
-        d.weights.resize(static_cast<Eigen::Index>(n));
-        for (std::size_t i = 0; i < n; ++i) {
-            const double w = weights->numbers[rows[i]];
-            if (!(w > 0))
-                throw InputError("weights " + quoted(spec.weights) + " must be positive: " + where(table, rows[i]) +
-                                 " holds " + exact_text(w) + "; fix that row or choose another weights column");
-            d.weights[static_cast<Eigen::Index>(i)] = w;
-        }
+    if (spec.weights.empty()) return;
+    const Column& weights = table.at(spec.weights);
+    d.weights.resize(static_cast<Eigen::Index>(n));
+    for (std::size_t i = 0; i < n; ++i) {
+        const double w = weights.numbers[rows[i]];
+        if (!(w > 0))
+            throw InputError("weights " + quoted(spec.weights) + " must be positive: " + where(table, rows[i]) +
+                             " holds " + exact_text(w) + "; fix that row or choose another weights column");
+        d.weights[static_cast<Eigen::Index>(i)] = w;
     }
-    if (cluster) {
-        std::map<std::string, int> ids;
-        std::vector<int> code_id;
-        d.cluster.resize(n);
-        if (cluster->kind == ColumnKind::Categorical) {
-            code_id.assign(cluster->levels.size(), -1);
-            for (std::size_t i = 0; i < n; ++i) {
-                auto code = static_cast<std::size_t>(cluster->codes[rows[i]]);
-                if (code_id[code] < 0) {
-                    code_id[code] = static_cast<int>(d.cluster_names.size());
-                    d.cluster_names.push_back(cluster->levels[code]);
-                }
-                d.cluster[i] = code_id[code];
-            }
-        } else {
-            std::map<double, int> num_ids;
-            for (std::size_t i = 0; i < n; ++i) {
-                const double v = cluster->numbers[rows[i]];
-                auto [it, fresh] = num_ids.emplace(v, static_cast<int>(num_ids.size()));
-                if (fresh) d.cluster_names.push_back(exact_text(v));
-                d.cluster[i] = it->second;
-            }
-        }
-        d.n_clusters = static_cast<int>(d.cluster_names.size());
-        if (d.n_clusters < 2)
-            throw InputError(
-                "cluster column " + quoted(spec.cluster) + " has a single cluster among the " + std::to_string(n) +
-                " used rows; cluster-robust standard errors need at least 2 clusters (30 or more to be reliable)");
-    }
+}
 
-    // 6. Checks that make a fit meaningless.
+// Cluster codes 0..G-1 in order of first appearance among the used rows, with
+// their names; at least two clusters.
+void fill_clusters(const Table& table, const ModelSpec& spec, Design& d) {
+    const Column& cluster = table.at(spec.cluster);
+    const std::vector<std::size_t>& rows = d.rows;
+    const std::size_t n = rows.size();
+    d.cluster.resize(n);
+    if (cluster.kind == ColumnKind::Categorical) {
+        std::vector<int> code_id(cluster.levels.size(), -1);
+        for (std::size_t i = 0; i < n; ++i) {
+            auto code = static_cast<std::size_t>(cluster.codes[rows[i]]);
+            if (code_id[code] < 0) {
+                code_id[code] = static_cast<int>(d.cluster_names.size());
+                d.cluster_names.push_back(cluster.levels[code]);
+            }
+            d.cluster[i] = code_id[code];
+        }
+    } else {
+        std::map<double, int> num_ids;
+        for (std::size_t i = 0; i < n; ++i) {
+            const double v = cluster.numbers[rows[i]];
+            auto [it, fresh] = num_ids.emplace(v, static_cast<int>(num_ids.size()));
+            if (fresh) d.cluster_names.push_back(exact_text(v));
+            d.cluster[i] = it->second;
+        }
+    }
+    d.n_clusters = static_cast<int>(d.cluster_names.size());
+    if (d.n_clusters < 2)
+        throw InputError(
+            "cluster column " + quoted(spec.cluster) + " has a single cluster among the " + std::to_string(n) +
+            " used rows; cluster-robust standard errors need at least 2 clusters (30 or more to be reliable)");
+}
+
+// 6. Checks that make a fit meaningless: a constant numeric main effect
+//    beside the intercept, and no more rows than coefficients.
+void check_estimable(const Table& table, const ModelSpec& spec, const Design& d) {
     if (spec.intercept)
         for (const auto& t : d.terms) {
             if (t.degree != 1 || t.factors.size() != 1) continue;
@@ -502,6 +552,7 @@ Design build_design(const Table& table, const ModelSpec& spec) {
                                  exact_text(col[0]) +
                                  "); it cannot be estimated alongside the intercept — drop it or use --no-intercept");
         }
+    const std::size_t n = d.rows.size(), p = d.columns.size();
     if (n <= p) {
         std::vector<std::string> labels;
         for (const auto& c : d.columns) labels.push_back(c.label);
@@ -510,7 +561,12 @@ Design build_design(const Table& table, const ModelSpec& spec) {
                          join(labels, ", ") +
                          "); the model needs more rows than coefficients — add rows or drop terms");
     }
+}
 
+// Mean, SD, minimum and maximum of every numeric model column over the used rows.
+void summarise(const Table& table, Design& d) {
+    const std::vector<std::size_t>& rows = d.rows;
+    const std::size_t n = rows.size();
     for (const auto& t : d.terms)
         for (const auto& f : t.factors) {
             const Column& c = table.at(f.first);
@@ -531,16 +587,44 @@ Design build_design(const Table& table, const ModelSpec& spec) {
             s.sd = n > 1 ? std::sqrt(static_cast<double>(ss / static_cast<long double>(n - 1))) : 0.0;
             d.summaries.emplace(f.first, s);
         }
+}
 
+// What was done, for the reader: added terms, excluded rows, dummy coding.
+void add_notes(const std::vector<std::string>& added_notes, std::size_t table_rows, Design& d) {
     if (!added_notes.empty()) d.notes.push_back("lower-order terms added: " + join(added_notes, ", "));
     if (d.n_excluded > 0) {
         std::vector<std::string> why;
         for (const auto& e : d.exclusions) why.push_back(e.column + ": " + std::to_string(e.rows) + " missing");
-        d.notes.push_back(std::to_string(d.n_excluded) + " of " + std::to_string(N) +
+        d.notes.push_back(std::to_string(d.n_excluded) + " of " + std::to_string(table_rows) +
                           " rows excluded for missing values (" + join(why, ", ") + ")");
     }
     for (const auto& ci : d.categoricals)
         d.notes.push_back(quoted(ci.column) + " is dummy-coded with reference level " + quoted(ci.reference));
+}
+
+}  // namespace
+
+Design build_design(const Table& table, const ModelSpec& spec) {
+    if (spec.outcome.empty()) throw InputError("no outcome given; choose the column to explain");
+    if (!(spec.level > 0 && spec.level < 1))
+        throw InputError("confidence level " + exact_text(spec.level) + " is not between 0 and 1 (e.g. 0.95)");
+    const Column& outcome = column_for(table, spec.outcome, "outcome");
+    std::vector<std::string> added_notes;
+    const std::vector<DesignTerm> terms = model_terms(table, spec, added_notes);
+    const std::vector<std::string> used = used_columns(table, spec, outcome, terms);
+
+    Design d;
+    d.outcome = spec.outcome;
+    d.intercept = spec.intercept;
+    d.rows = complete_rows(table, used, d);
+    const LevelMap cat_map = categorical_levels(table, spec, terms, d.rows, d);
+    design_columns(table, terms, cat_map, spec.intercept, d);
+    fill_matrix(table, cat_map, d);
+    fill_outcome_and_weights(table, spec, outcome, d);
+    if (!spec.cluster.empty()) fill_clusters(table, spec, d);
+    check_estimable(table, spec, d);
+    summarise(table, d);
+    add_notes(added_notes, table.rows(), d);
     return d;
 }
 

@@ -27,70 +27,70 @@ std::string number(double v) { return format_sig(v); }
 
 }  // namespace
 
-Diagnostics diagnostics(const Design& design, const FitResult& fit, const DiagnosticRules& rules) {
-    const Eigen::Index n = design.X.rows();
-    const Eigen::Index pcols = design.X.cols();
-    if (fit.beta.size() != pcols || fit.fitted.size() != n || fit.residuals.size() != n)
-        throw InputError("diagnostics: the fit does not belong to this design (" + std::to_string(n) + " rows, " +
-                         std::to_string(pcols) + " columns)");
-    const bool logistic = fit.family == Family::Logistic;
-    const bool weighted = design.weights.size() > 0;
-    auto w = [&](Eigen::Index i) { return weighted ? design.weights[i] : 1.0; };
+namespace {
 
-    Diagnostics d;
-    d.family = fit.family;
-    d.weighted = weighted;
-    d.n = static_cast<std::size_t>(n);
-    d.rules = rules;
-    d.fitted = fit.fitted;
-    d.residuals = fit.residuals;
+double weight(const Design& design, Eigen::Index i) { return design.weights.size() > 0 ? design.weights[i] : 1.0; }
 
-    // Estimable columns only: aliased ones add nothing to the column space.
-    std::vector<int> kept;
-    for (Eigen::Index j = 0; j < pcols; ++j)
+// The estimable columns of the design (aliased ones add nothing to the column
+// space); their indices go into `kept`.
+Eigen::MatrixXd estimable_columns(const Design& design, const FitResult& fit, std::vector<int>& kept) {
+    for (Eigen::Index j = 0; j < design.X.cols(); ++j)
         if (!std::isnan(fit.beta[j])) kept.push_back(static_cast<int>(j));
-    Eigen::MatrixXd XK(n, static_cast<Eigen::Index>(kept.size()));
+    Eigen::MatrixXd XK(design.X.rows(), static_cast<Eigen::Index>(kept.size()));
     for (std::size_t c = 0; c < kept.size(); ++c) XK.col(static_cast<Eigen::Index>(c)) = design.X.col(kept[c]);
+    return XK;
+}
 
-    // Working weights v_i and Pearson residuals.
+// Working weights v_i (returned) and Pearson residuals (into d).
+Eigen::VectorXd working_weights(const Design& design, const FitResult& fit, Diagnostics& d) {
+    const Eigen::Index n = design.X.rows();
+    const bool logistic = fit.family == Family::Logistic;
     Eigen::VectorXd v(n);
     d.pearson.resize(n);
     for (Eigen::Index i = 0; i < n; ++i) {
+        const double w = weight(design, i);
         if (logistic) {
             const double mu = fit.fitted[i];
             const double var = mu * (1 - mu);
-            v[i] = w(i) * var;
-            d.pearson[i] = std::sqrt(w(i)) * (design.y[i] - mu) / std::sqrt(var);
+            v[i] = w * var;
+            d.pearson[i] = std::sqrt(w) * (design.y[i] - mu) / std::sqrt(var);
         } else {
-            v[i] = w(i);
-            d.pearson[i] = std::sqrt(w(i)) * fit.residuals[i];
+            v[i] = w;
+            d.pearson[i] = std::sqrt(w) * fit.residuals[i];
         }
     }
+    return v;
+}
 
-    // Leverage from the QR factor of V^{1/2} X_K: (X_K' V X_K)^{-1} = A A', so
-    // h_i = v_i |x_i' A|^2, without forming X'VX.
+// Leverage from the QR factor of V^{1/2} X_K: (X_K' V X_K)^{-1} = A A', so
+// h_i = v_i |x_i' A|^2, without forming X'VX. Sets d.p (the rank).
+void leverages(const Eigen::MatrixXd& XK, const Eigen::VectorXd& v, Diagnostics& d) {
+    const Eigen::Index n = XK.rows();
     const LeastSquaresResult ls = least_squares(XK, Eigen::VectorXd::Zero(n), v);
     const Eigen::Index k = static_cast<Eigen::Index>(ls.kept.size());
     d.p = static_cast<int>(k);
-    if (ls.kept.size() < kept.size())
+    if (k < XK.cols())
         d.notes.push_back("the working weights of the fit leave only " + std::to_string(k) + " of " +
-                          std::to_string(kept.size()) + " estimable columns; leverages use those");
+                          std::to_string(XK.cols()) + " estimable columns; leverages use those");
     Eigen::MatrixXd XKk(n, k);
     for (Eigen::Index c = 0; c < k; ++c) XKk.col(c) = XK.col(ls.kept[static_cast<std::size_t>(c)]);
     const Eigen::MatrixXd B = XKk * ls.inverse_factor;
     d.leverage.resize(n);
     for (Eigen::Index i = 0; i < n; ++i) d.leverage[i] = std::min(1.0, v[i] * B.row(i).squaredNorm());
+}
 
-    const double nd = static_cast<double>(n), pd = static_cast<double>(k);
-    const double df = nd - pd;
-    if (logistic) {
+// The scale phi, the standardised Pearson residuals and Cook's distances.
+void standardised_residuals(Diagnostics& d) {
+    const Eigen::Index n = d.pearson.size();
+    const double pd = static_cast<double>(d.p);
+    const double df = static_cast<double>(n) - pd;
+    if (d.family == Family::Logistic) {
         d.scale = 1.0;
     } else {
         long double ss = 0;
         for (Eigen::Index i = 0; i < n; ++i) ss += static_cast<long double>(d.pearson[i]) * d.pearson[i];
         d.scale = df > 0 ? static_cast<double>(ss / df) : kNaN;
     }
-
     d.standardised.resize(n);
     d.cooks_distance.resize(n);
     for (Eigen::Index i = 0; i < n; ++i) {
@@ -103,53 +103,65 @@ Diagnostics diagnostics(const Design& design, const FitResult& fit, const Diagno
         d.standardised[i] = d.pearson[i] / std::sqrt(d.scale * (1 - h));
         d.cooks_distance[i] = d.standardised[i] * d.standardised[i] * h / (pd * (1 - h));
     }
+}
 
-    if (logistic) {
-        d.deviance.resize(n);
-        d.standardised_deviance.resize(n);
-        for (Eigen::Index i = 0; i < n; ++i) {
-            const double y = design.y[i], mu = fit.fitted[i];
-            const double unit = 2.0 * (ylogy(y, mu) + ylogy(1 - y, 1 - mu));
-            const double sign = y > mu ? 1.0 : (y < mu ? -1.0 : 0.0);
-            d.deviance[i] = sign * std::sqrt(w(i) * std::max(0.0, unit));
-            const double h = d.leverage[i];
-            d.standardised_deviance[i] = h >= kLeverageOne ? kNaN : d.deviance[i] / std::sqrt(1 - h);
-        }
-    } else {
-        // s_(i)^2 = (RSS - w_i e_i^2 / (1 - h_i)) / (n - p - 1): the residual
-        // variance without row i (the deletion identity).
-        const double rss = d.scale * df;
-        d.studentised.resize(n);
-        for (Eigen::Index i = 0; i < n; ++i) {
-            const double h = d.leverage[i];
-            if (h >= kLeverageOne || df - 1 <= 0) {
-                d.studentised[i] = kNaN;
-                continue;
-            }
-            const double e2 = d.pearson[i] * d.pearson[i];
-            const double s2 = std::max(0.0, (rss - e2 / (1 - h)) / (df - 1));
-            d.studentised[i] = d.pearson[i] / std::sqrt(s2 * (1 - h));
-        }
+// Logistic: deviance residuals and their standardised form.
+void deviance_residuals(const Design& design, const FitResult& fit, Diagnostics& d) {
+    const Eigen::Index n = design.X.rows();
+    d.deviance.resize(n);
+    d.standardised_deviance.resize(n);
+    for (Eigen::Index i = 0; i < n; ++i) {
+        const double y = design.y[i], mu = fit.fitted[i];
+        const double unit = 2.0 * (ylogy(y, mu) + ylogy(1 - y, 1 - mu));
+        const double sign = y > mu ? 1.0 : (y < mu ? -1.0 : 0.0);
+        d.deviance[i] = sign * std::sqrt(weight(design, i) * std::max(0.0, unit));
+        const double h = d.leverage[i];
+        d.standardised_deviance[i] = h >= kLeverageOne ? kNaN : d.deviance[i] / std::sqrt(1 - h);
     }
+}
 
+// Linear: externally studentised residuals. s_(i)^2 = (RSS - w_i e_i^2 /
+// (1 - h_i)) / (n - p - 1): the residual variance without row i (the
+// deletion identity).
+void studentised_residuals(Diagnostics& d) {
+    const Eigen::Index n = d.pearson.size();
+    const double df = static_cast<double>(n) - static_cast<double>(d.p);
+    const double rss = d.scale * df;
+    d.studentised.resize(n);
+    for (Eigen::Index i = 0; i < n; ++i) {
+        const double h = d.leverage[i];
+        if (h >= kLeverageOne || df - 1 <= 0) {
+            d.studentised[i] = kNaN;
+            continue;
+        }
+        const double e2 = d.pearson[i] * d.pearson[i];
+        const double s2 = std::max(0.0, (rss - e2 / (1 - h)) / (df - 1));
+        d.studentised[i] = d.pearson[i] / std::sqrt(s2 * (1 - h));
+    }
+}
+
+// What each residual is called, and the rules with their thresholds.
+void names_and_rules(const DiagnosticRules& rules, Diagnostics& d) {
+    const bool logistic = d.family == Family::Logistic;
     d.fitted_name = logistic ? "fitted probability" : "fitted value";
-    d.plot_residual_name = logistic ? "Pearson residual" : (weighted ? "weighted residual √w·e" : "residual");
+    d.plot_residual_name = logistic ? "Pearson residual" : (d.weighted ? "weighted residual √w·e" : "residual");
     d.check_residual_name = logistic ? "standardised Pearson residual" : "externally studentised residual";
     d.quantile_residual_name = logistic ? "standardised deviance residual" : "externally studentised residual";
 
+    const double nd = static_cast<double>(d.n), pd = static_cast<double>(d.p);
     d.residual_threshold = rules.residual_limit;
     d.leverage_threshold = rules.leverage_multiple * pd / nd;
     d.cooks_threshold = rules.cooks_numerator / nd;
     d.residual_rule = "|" + d.check_residual_name + "| > " + number(rules.residual_limit);
     d.leverage_rule = "leverage > " + number(rules.leverage_multiple) + "p/n = " + number(d.leverage_threshold);
     d.cooks_rule = "Cook's distance > " + number(rules.cooks_numerator) + "/n = " + number(d.cooks_threshold);
+}
 
-    for (Eigen::Index i = 0; i < n; ++i) {
-        const unsigned flags = diagnostic_flags(d, static_cast<std::size_t>(i));
-        if (flags)
-            d.flagged.push_back(
-                {static_cast<std::size_t>(i),
-                 design.rows.empty() ? static_cast<std::size_t>(i) : design.rows[static_cast<std::size_t>(i)], flags});
+// The rows meeting any rule, most influential first.
+void flag_rows(const Design& design, Diagnostics& d) {
+    for (std::size_t i = 0; i < d.n; ++i) {
+        const unsigned flags = diagnostic_flags(d, i);
+        if (flags) d.flagged.push_back({i, design.rows.empty() ? i : design.rows[i], flags});
     }
     auto key = [&](const FlaggedRow& r) {
         const double c = d.cooks_distance[static_cast<Eigen::Index>(r.observation)];
@@ -161,6 +173,33 @@ Diagnostics diagnostics(const Design& design, const FitResult& fit, const Diagno
         d.notes.push_back(
             "more than a tenth of the rows meet a rule: with many rows the rules of thumb flag many "
             "ordinary rows; look at the most influential first");
+}
+
+}  // namespace
+
+Diagnostics diagnostics(const Design& design, const FitResult& fit, const DiagnosticRules& rules) {
+    const Eigen::Index n = design.X.rows();
+    const Eigen::Index pcols = design.X.cols();
+    if (fit.beta.size() != pcols || fit.fitted.size() != n || fit.residuals.size() != n)
+        throw InputError("diagnostics: the fit does not belong to this design (" + std::to_string(n) + " rows, " +
+                         std::to_string(pcols) + " columns)");
+    Diagnostics d;
+    d.family = fit.family;
+    d.weighted = design.weights.size() > 0;
+    d.n = static_cast<std::size_t>(n);
+    d.rules = rules;
+    d.fitted = fit.fitted;
+    d.residuals = fit.residuals;
+
+    std::vector<int> kept;
+    const Eigen::MatrixXd XK = estimable_columns(design, fit, kept);
+    const Eigen::VectorXd v = working_weights(design, fit, d);
+    leverages(XK, v, d);
+    standardised_residuals(d);
+    if (fit.family == Family::Logistic) deviance_residuals(design, fit, d);
+    else studentised_residuals(d);
+    names_and_rules(rules, d);
+    flag_rows(design, d);
     return d;
 }
 

@@ -165,7 +165,7 @@ std::vector<double> variance_inflation(const Design& d, const std::vector<int>& 
 WaldTest wald_on_columns(const FitResult& fit, const std::vector<int>& cols, std::vector<std::string> labels) {
     WaldTest w;
     w.terms = std::move(labels);
-    w.covariance = to_string(fit.se);
+    w.covariance = fit.se;
     const Eigen::Index q = static_cast<Eigen::Index>(cols.size());
     Eigen::VectorXd b(q);
     Eigen::MatrixXd V(q, q);
@@ -252,77 +252,92 @@ WaldTest wald_test(const FitResult& fit, const std::vector<std::string>& terms) 
     return wald_on_columns(fit, cols, terms);
 }
 
-FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& options) {
-    const Eigen::Index n = d.X.rows(), p = d.X.cols();
-    const unsigned threads = detail::resolve_threads(spec.threads);
-    const bool logistic = spec.family == Family::Logistic;
-    if (logistic && (spec.se == SeKind::HC2 || spec.se == SeKind::HC3 || spec.se == SeKind::HC4))
+namespace {
+
+// What the later steps of a fit need from its solution.
+struct Solution {
+    LeastSquaresResult ls;  // the factor at the estimate: kept columns, (X' W X)^{-1} = A A'
+    Eigen::VectorXd score, leverage_weight;
+    std::optional<detail::SeparationFinding> separation;
+};
+
+FitResult start_result(const Design& d, const ModelSpec& spec) {
+    if (spec.family == Family::Logistic && (spec.se == SeKind::HC2 || spec.se == SeKind::HC3 || spec.se == SeKind::HC4))
         throw InputError(std::string(to_string(spec.se)) +
                          " is not offered for logistic models; use classical (model-based), hc0 or hc1 (sandwich), "
                          "or cluster");
-
     FitResult f;
     f.family = spec.family;
     f.se = spec.se;
     f.level = spec.level;
-    f.n = static_cast<std::size_t>(n);
+    f.n = static_cast<std::size_t>(d.X.rows());
     f.n_excluded = d.n_excluded;
     f.exclusions = d.exclusions;
     f.notes = d.notes;
     f.n_clusters = d.n_clusters;
     for (const auto& t : d.terms) f.terms.emplace_back(t.label, t.columns);
+    return f;
+}
 
-    LeastSquaresOptions lso;
-    lso.threads = threads;
-    lso.extended_budget = options.extended_budget;
-    LeastSquaresResult ls;
-    Eigen::VectorXd score(n), leverage_weight;
-    std::optional<detail::SeparationFinding> separation;
-    if (!logistic) {
-        ls = least_squares(d.X, d.y, d.weights, lso);
-        f.beta = ls.coef;
-        f.residuals = ls.residuals;
-        f.fitted = d.y - ls.residuals;
-        for (Eigen::Index i = 0; i < n; ++i) score[i] = weight(d, i) * ls.residuals[i];
-        if (d.weights.size()) leverage_weight = d.weights;
+// The estimates: least squares (linear), Newton/IRLS (logistic); the rank.
+Solution solve(const Design& d, const ModelSpec& spec, const FitOptions& options, const LeastSquaresOptions& lso,
+               FitResult& f) {
+    const Eigen::Index n = d.X.rows();
+    Solution s;
+    s.score.resize(n);
+    if (spec.family != Family::Logistic) {
+        s.ls = least_squares(d.X, d.y, d.weights, lso);
+        f.beta = s.ls.coef;
+        f.residuals = s.ls.residuals;
+        f.fitted = d.y - s.ls.residuals;
+        for (Eigen::Index i = 0; i < n; ++i) s.score[i] = weight(d, i) * s.ls.residuals[i];
+        if (d.weights.size()) s.leverage_weight = d.weights;
     } else {
         auto lf = fit_logistic(d, d.X, options.max_iterations, lso);
-        ls = lf.factor;
+        s.ls = std::move(lf.factor);
         f.beta = lf.beta;
         f.fitted = lf.mu;
         f.residuals = d.y - lf.mu;
-        for (Eigen::Index i = 0; i < n; ++i) score[i] = weight(d, i) * f.residuals[i];
+        for (Eigen::Index i = 0; i < n; ++i) s.score[i] = weight(d, i) * f.residuals[i];
         f.iterations = lf.iterations;
         f.converged = lf.converged;
         f.log_likelihood = lf.loglik;
-        separation = detail::find_separation(d, f.beta, f.fitted, lf.converged);
+        s.separation = detail::find_separation(d, f.beta, f.fitted, lf.converged);
     }
-    f.extended_precision = ls.extended_precision;
-    const std::vector<int>& kept = ls.kept;
-    const Eigen::Index k = static_cast<Eigen::Index>(kept.size());
-    f.rank = static_cast<int>(k);
-    f.df_residual = static_cast<double>(n - k);
-    for (int j : ls.aliased) f.aliased.push_back(d.columns[static_cast<std::size_t>(j)].label);
+    f.extended_precision = s.ls.extended_precision;
+    f.rank = static_cast<int>(s.ls.kept.size());
+    f.df_residual = static_cast<double>(n - static_cast<Eigen::Index>(s.ls.kept.size()));
+    for (int j : s.ls.aliased) f.aliased.push_back(d.columns[static_cast<std::size_t>(j)].label);
+    return s;
+}
 
-    // Covariance of the kept coefficients.
-    const Eigen::MatrixXd& A = ls.inverse_factor;
+// Covariance of the kept coefficients (NaN for aliased ones), the inference df
+// and the critical value.
+void covariance(const Design& d, const ModelSpec& spec, const Solution& s, unsigned threads, FitResult& f) {
+    const bool logistic = spec.family == Family::Logistic;
+    const Eigen::MatrixXd& A = s.ls.inverse_factor;
     Eigen::MatrixXd Vk;
     if (!logistic) {
-        f.rss = ls.rss;
-        const double sigma2 = ls.rss / f.df_residual;
+        f.rss = s.ls.rss;
+        const double sigma2 = s.ls.rss / f.df_residual;
         f.residual_sd = std::sqrt(sigma2);
         if (spec.se == SeKind::Classical) Vk = sigma2 * (A * A.transpose());
     } else if (spec.se == SeKind::Classical) {
         Vk = A * A.transpose();
     }
     if (spec.se != SeKind::Classical)
-        Vk = detail::sandwich(d.X, kept, A, score, leverage_weight, spec.se, d.cluster, d.n_clusters, threads);
-    f.covariance = expand(Vk, kept, p);
-
+        Vk = detail::sandwich(d.X, s.ls.kept, A, s.score, s.leverage_weight, spec.se, d.cluster, d.n_clusters, threads);
+    f.covariance = expand(Vk, s.ls.kept, d.X.cols());
     f.df_inference = logistic ? kInf : (spec.se == SeKind::Cluster ? d.n_clusters - 1.0 : f.df_residual);
     f.critical_value = dist::t_quantile(0.5 + spec.level / 2.0, f.df_inference);
+}
+
+void coefficient_table(const Design& d, const Solution& s, const LeastSquaresOptions& lso, FitResult& f) {
+    const Eigen::Index n = d.X.rows(), p = d.X.cols();
     const auto vif = variance_inflation(
-        d, kept, logistic ? least_squares(d.X, Eigen::VectorXd::Zero(n), d.weights, lso).inverse_factor : A);
+        d, s.ls.kept,
+        f.family == Family::Logistic ? least_squares(d.X, Eigen::VectorXd::Zero(n), d.weights, lso).inverse_factor
+                                     : s.ls.inverse_factor);
     for (Eigen::Index j = 0; j < p; ++j) {
         Coefficient c;
         c.term = d.columns[static_cast<std::size_t>(j)].label;
@@ -331,120 +346,149 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
         c.vif = vif[static_cast<std::size_t>(j)];
         f.coefficients.push_back(c);
     }
+}
 
-    // Fit statistics.
-    const double nd = static_cast<double>(n), kd = static_cast<double>(k);
+// TSS, R-squared, adjusted R-squared and the Gaussian log-likelihood.
+void linear_statistics(const Design& d, FitResult& f) {
+    const Eigen::Index n = d.X.rows();
+    const double nd = static_cast<double>(n);
     const double icpt = d.intercept ? 1.0 : 0.0;
+    long double sw = 0, swy = 0, tss = 0, sumlogw = 0;
+    for (Eigen::Index i = 0; i < n; ++i) {
+        sw += weight(d, i);
+        swy += weight(d, i) * d.y[i];
+        sumlogw += std::log(weight(d, i));
+    }
+    const long double ybar = d.intercept ? swy / sw : 0.0L;
+    for (Eigen::Index i = 0; i < n; ++i) tss += weight(d, i) * (d.y[i] - ybar) * (d.y[i] - ybar);
+    f.tss = static_cast<double>(tss);
+    f.r_squared = 1.0 - f.rss / f.tss;
+    f.adj_r_squared = 1.0 - (nd - icpt) / f.df_residual * (1.0 - f.r_squared);
+    f.log_likelihood = -nd / 2.0 * (std::log(2.0 * std::numbers::pi) + std::log(f.rss / nd) + 1.0) +
+                       0.5 * static_cast<double>(sumlogw);
+}
+
+// Deviances, McFadden's R-squared and the likelihood-ratio test against the
+// intercept-only model (tested: the number of non-intercept columns kept).
+void logistic_statistics(const Design& d, std::size_t tested, FitResult& f) {
+    const Eigen::Index n = d.X.rows();
+    long double sw = 0, swy = 0;
+    for (Eigen::Index i = 0; i < n; ++i) {
+        sw += weight(d, i);
+        swy += weight(d, i) * d.y[i];
+    }
+    const double mu0 = d.intercept ? static_cast<double>(swy / sw) : 0.5;
+    long double ll0 = 0;
+    for (Eigen::Index i = 0; i < n; ++i) ll0 += weight(d, i) * (d.y[i] == 1.0 ? std::log(mu0) : std::log1p(-mu0));
+    const double null_ll = static_cast<double>(ll0);
+    f.deviance = -2.0 * f.log_likelihood;
+    f.null_deviance = -2.0 * null_ll;
+    f.mcfadden_r2 = 1.0 - f.log_likelihood / null_ll;
+    f.lr_statistic = 2.0 * (f.log_likelihood - null_ll);
+    f.lr_df = static_cast<double>(tested);
+    f.lr_p_value = dist::upper_p_chi2(f.lr_statistic, f.lr_df);
+}
+
+// Fit statistics, information criteria and the overall test of every kept
+// non-intercept column.
+void fit_statistics(const Design& d, const ModelSpec& spec, const std::vector<int>& kept, FitResult& f) {
+    const bool logistic = spec.family == Family::Logistic;
+    const double nd = static_cast<double>(d.X.rows()), kd = static_cast<double>(kept.size());
     std::vector<int> tested;  // all kept non-intercept columns
     for (int j : kept)
         if (!(d.intercept && j == 0)) tested.push_back(j);
-    if (!logistic) {
-        long double sw = 0, swy = 0, tss = 0, sumlogw = 0;
-        for (Eigen::Index i = 0; i < n; ++i) {
-            sw += weight(d, i);
-            swy += weight(d, i) * d.y[i];
-            sumlogw += std::log(weight(d, i));
-        }
-        const long double ybar = d.intercept ? swy / sw : 0.0L;
-        for (Eigen::Index i = 0; i < n; ++i) tss += weight(d, i) * (d.y[i] - ybar) * (d.y[i] - ybar);
-        f.tss = static_cast<double>(tss);
-        f.r_squared = 1.0 - f.rss / f.tss;
-        f.adj_r_squared = 1.0 - (nd - icpt) / f.df_residual * (1.0 - f.r_squared);
-        f.log_likelihood = -nd / 2.0 * (std::log(2.0 * std::numbers::pi) + std::log(f.rss / nd) + 1.0) +
-                           0.5 * static_cast<double>(sumlogw);
-    } else {
-        long double sw = 0, swy = 0;
-        for (Eigen::Index i = 0; i < n; ++i) {
-            sw += weight(d, i);
-            swy += weight(d, i) * d.y[i];
-        }
-        const double mu0 = d.intercept ? static_cast<double>(swy / sw) : 0.5;
-        long double ll0 = 0;
-        for (Eigen::Index i = 0; i < n; ++i) ll0 += weight(d, i) * (d.y[i] == 1.0 ? std::log(mu0) : std::log1p(-mu0));
-        const double null_ll = static_cast<double>(ll0);
-        f.deviance = -2.0 * f.log_likelihood;
-        f.null_deviance = -2.0 * null_ll;
-        f.mcfadden_r2 = 1.0 - f.log_likelihood / null_ll;
-        f.lr_statistic = 2.0 * (f.log_likelihood - null_ll);
-        f.lr_df = static_cast<double>(tested.size());
-        f.lr_p_value = dist::upper_p_chi2(f.lr_statistic, f.lr_df);
-    }
+    if (!logistic) linear_statistics(d, f);
+    else logistic_statistics(d, tested.size(), f);
     f.aic = -2.0 * f.log_likelihood + 2.0 * kd;
     f.bic = -2.0 * f.log_likelihood + kd * std::log(nd);
-    if (!tested.empty()) {
-        std::vector<std::string> labels;
-        for (int j : tested) labels.push_back(d.columns[static_cast<std::size_t>(j)].label);
-        WaldTest overall = wald_on_columns(f, tested, labels);
-        if (!logistic && spec.se == SeKind::Classical) {
-            // The classical F from sums of squares: exact where the Wald form
-            // would invert an ill-conditioned covariance block.
-            overall.statistic = ((f.tss - f.rss) / overall.df1) / (f.rss / f.df_residual);
-            overall.p_value = dist::upper_p_f(overall.statistic, overall.df1, overall.df2);
-        }
-        if (!logistic) {
-            f.f_statistic = overall.statistic;
-            f.f_df1 = overall.df1;
-            f.f_df2 = overall.df2;
-            f.f_p_value = overall.p_value;
-        }
+    if (tested.empty()) return;
+    std::vector<std::string> labels;
+    for (int j : tested) labels.push_back(d.columns[static_cast<std::size_t>(j)].label);
+    WaldTest overall = wald_on_columns(f, tested, labels);
+    if (!logistic && spec.se == SeKind::Classical) {
+        // The classical F from sums of squares: exact where the Wald form
+        // would invert an ill-conditioned covariance block.
+        overall.statistic = ((f.tss - f.rss) / overall.df1) / (f.rss / f.df_residual);
+        overall.p_value = dist::upper_p_f(overall.statistic, overall.df1, overall.df2);
     }
+    if (!logistic) {
+        f.f_statistic = overall.statistic;
+        f.f_df1 = overall.df1;
+        f.f_df2 = overall.df2;
+        f.f_p_value = overall.p_value;
+    }
+}
 
-    // Nested comparison without the product terms.
+// The R-squared change F test of dropping the product columns (linear fits).
+void linear_comparison(const Design& d, const LeastSquaresOptions& lso, const LeastSquaresResult& ls,
+                       const std::vector<int>& products, const std::vector<int>& reduced_cols, const FitResult& f,
+                       NestedComparison& cmp) {
+    const Eigen::Index p = d.X.cols();
+    // With full rank and the product columns last, the extra sum of squares
+    // is read off the factorisation already made (sequential sums of
+    // squares); otherwise refit without the products.
+    const bool trailing = ls.aliased.empty() && products.front() == static_cast<int>(reduced_cols.size()) &&
+                          products.back() == static_cast<int>(p - 1);
+    double extra_ss = 0;
+    if (trailing) {
+        for (int j : products) extra_ss += ls.qty[j] * ls.qty[j];
+        cmp.df1 = static_cast<double>(products.size());
+    } else {
+        const auto red = least_squares(columns_of(d.X, reduced_cols), d.y, d.weights, lso);
+        extra_ss = red.rss - f.rss;
+        cmp.df1 = static_cast<double>(red.kept.size() < ls.kept.size() ? ls.kept.size() - red.kept.size() : 0);
+    }
+    cmp.r_squared_change = extra_ss / f.tss;
+    cmp.r_squared_reduced = f.r_squared - cmp.r_squared_change;
+    cmp.df2 = f.df_residual;
+    cmp.f_statistic = (extra_ss / cmp.df1) / (f.rss / f.df_residual);
+    cmp.p_value = dist::upper_p_f(cmp.f_statistic, cmp.df1, cmp.df2);
+}
+
+// The model without its product terms, fitted on the same rows; none when no
+// product column is estimable.
+std::optional<NestedComparison> nested_comparison(const Design& d, const FitOptions& options,
+                                                  const LeastSquaresOptions& lso, const LeastSquaresResult& ls,
+                                                  const FitResult& f) {
+    const Eigen::Index p = d.X.cols();
     const std::vector<int> products = d.product_columns();
     std::vector<int> products_kept;
     for (int j : products)
-        if (std::binary_search(kept.begin(), kept.end(), j)) products_kept.push_back(j);
-    if (options.compare_without_products && !products_kept.empty()) {
-        NestedComparison cmp;
-        std::vector<int> reduced_cols;
-        for (Eigen::Index j = 0; j < p; ++j)
-            if (std::find(products.begin(), products.end(), static_cast<int>(j)) == products.end())
-                reduced_cols.push_back(static_cast<int>(j));
-        for (int j : products_kept) cmp.dropped_terms.push_back(d.columns[static_cast<std::size_t>(j)].label);
-        if (!logistic) {
-            // With full rank and the product columns last, the extra sum of
-            // squares is read off the factorisation already made (sequential
-            // sums of squares); otherwise refit without the products.
-            const bool trailing = ls.aliased.empty() && products.front() == static_cast<int>(reduced_cols.size()) &&
-                                  products.back() == static_cast<int>(p - 1);
-            double extra_ss = 0;
-            if (trailing) {
-                for (int j : products) extra_ss += ls.qty[j] * ls.qty[j];
-                cmp.df1 = static_cast<double>(products.size());
-            } else {
-                const auto red = least_squares(columns_of(d.X, reduced_cols), d.y, d.weights, lso);
-                extra_ss = red.rss - f.rss;
-                cmp.df1 = static_cast<double>(red.kept.size() < kept.size() ? kept.size() - red.kept.size() : 0);
-            }
-            cmp.r_squared_change = extra_ss / f.tss;
-            cmp.r_squared_reduced = f.r_squared - cmp.r_squared_change;
-            cmp.df2 = f.df_residual;
-            cmp.f_statistic = (extra_ss / cmp.df1) / (f.rss / f.df_residual);
-            cmp.p_value = dist::upper_p_f(cmp.f_statistic, cmp.df1, cmp.df2);
-        } else {
-            auto red = fit_logistic(d, columns_of(d.X, reduced_cols), options.max_iterations, lso);
-            cmp.df1 = static_cast<double>(kept.size() - red.factor.kept.size());
-            cmp.lr_statistic = 2.0 * (f.log_likelihood - red.loglik);
-            cmp.lr_p_value = dist::upper_p_chi2(cmp.lr_statistic, cmp.df1);
-        }
-        cmp.wald = wald_on_columns(f, products_kept, cmp.dropped_terms);
-        f.comparison = cmp;
+        if (std::binary_search(ls.kept.begin(), ls.kept.end(), j)) products_kept.push_back(j);
+    if (products_kept.empty()) return std::nullopt;
+    NestedComparison cmp;
+    std::vector<int> reduced_cols;
+    for (Eigen::Index j = 0; j < p; ++j)
+        if (std::find(products.begin(), products.end(), static_cast<int>(j)) == products.end())
+            reduced_cols.push_back(static_cast<int>(j));
+    for (int j : products_kept) cmp.dropped_terms.push_back(d.columns[static_cast<std::size_t>(j)].label);
+    if (f.family != Family::Logistic) {
+        linear_comparison(d, lso, ls, products, reduced_cols, f, cmp);
+    } else {
+        auto red = fit_logistic(d, columns_of(d.X, reduced_cols), options.max_iterations, lso);
+        cmp.df1 = static_cast<double>(ls.kept.size() - red.factor.kept.size());
+        cmp.lr_statistic = 2.0 * (f.log_likelihood - red.loglik);
+        cmp.lr_p_value = dist::upper_p_chi2(cmp.lr_statistic, cmp.df1);
     }
-    for (const auto& set : spec.wald_tests) f.wald_tests.push_back(wald_test(f, set));
+    cmp.wald = wald_on_columns(f, products_kept, cmp.dropped_terms);
+    return cmp;
+}
 
-    // Warnings a reader must see.
+// Warnings a reader must see.
+void add_warnings(const Design& d, const ModelSpec& spec, const Solution& s, FitResult& f) {
+    const bool logistic = spec.family == Family::Logistic;
     for (const auto& a : f.aliased)
         f.warnings.push_back("aliased: " + quoted(a) +
                              " is a linear combination of other columns and was not estimated");
     if (spec.se == SeKind::Cluster && d.n_clusters < 30)
         f.warnings.push_back("only " + std::to_string(d.n_clusters) +
                              " clusters: cluster-robust standard errors are unreliable with fewer than 30");
-    if (logistic && !f.converged && !separation)
+    if (logistic && !f.converged && !s.separation)
         f.warnings.push_back("the logistic fit did not converge in " + std::to_string(f.iterations) +
                              " iterations; the estimates are not reliable");
-    if (separation) {
+    if (s.separation) {
         f.separation = true;
-        f.warnings.push_back(separation->message);
+        f.warnings.push_back(s.separation->message);
     }
     if (!logistic && spec.se != SeKind::Classical && spec.se != SeKind::Cluster) {
         // leverage of 1 makes HC2-HC4 undefined
@@ -455,6 +499,23 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
                 break;
             }
     }
+}
+
+}  // namespace
+
+FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& options) {
+    const unsigned threads = detail::resolve_threads(spec.threads);
+    FitResult f = start_result(d, spec);
+    LeastSquaresOptions lso;
+    lso.threads = threads;
+    lso.extended_budget = options.extended_budget;
+    const Solution s = solve(d, spec, options, lso, f);
+    covariance(d, spec, s, threads, f);
+    coefficient_table(d, s, lso, f);
+    fit_statistics(d, spec, s.ls.kept, f);
+    if (options.compare_without_products) f.comparison = nested_comparison(d, options, lso, s.ls, f);
+    for (const auto& set : spec.wald_tests) f.wald_tests.push_back(wald_test(f, set));
+    add_warnings(d, spec, s, f);
     return f;
 }
 

@@ -27,17 +27,18 @@ Mat triangular_factor(const Mat& M) {
     return R;
 }
 
-}  // namespace
+// sqrt(w_i), or 1 without weights.
+struct RootWeight {
+    const Eigen::VectorXd& weights;
+    double operator()(Eigen::Index i) const { return weights.size() > 0 ? std::sqrt(weights[i]) : 1.0; }
+};
 
-LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd& y, const Eigen::VectorXd& weights,
-                                 const LeastSquaresOptions& options) {
-    const Eigen::Index n = X.rows();
-    const Eigen::Index p = X.cols();
+std::size_t block_count(Eigen::Index n) { return static_cast<std::size_t>((n + kBlockRows - 1) / kBlockRows); }
+
+// Unit-norm column scaling of the (weighted) design.
+std::vector<double> column_scales(const Eigen::MatrixXd& X, const Eigen::VectorXd& weights) {
+    const Eigen::Index n = X.rows(), p = X.cols();
     const bool weighted = weights.size() > 0;
-    const unsigned threads = detail::resolve_threads(options.threads);
-    auto sqrt_w = [&](Eigen::Index i) -> double { return weighted ? std::sqrt(weights[i]) : 1.0; };
-
-    // Unit-norm column scaling of the (weighted) design.
     std::vector<double> scale(static_cast<std::size_t>(p), 1.0);
     for (Eigen::Index j = 0; j < p; ++j) {
         LD ss = 0;
@@ -48,64 +49,62 @@ LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd
         const double s = static_cast<double>(std::sqrt(ss));
         scale[static_cast<std::size_t>(j)] = s > 0 ? s : 1.0;
     }
+    return scale;
+}
 
-    LeastSquaresResult out;
-    out.extended_precision =
-        static_cast<double>(n) * static_cast<double>(p + 1) * static_cast<double>(p + 1) <= options.extended_budget;
+// R of the scaled, weighted [X | y] by one Householder QR in long double.
+MatL extended_factor(const Eigen::MatrixXd& X, const Eigen::VectorXd& y, const Eigen::VectorXd& weights,
+                     const std::vector<double>& scale) {
+    const Eigen::Index n = X.rows(), p = X.cols();
+    const RootWeight sqrt_w{weights};
+    MatL A(n, p + 1);
+    for (Eigen::Index j = 0; j < p; ++j)
+        for (Eigen::Index i = 0; i < n; ++i)
+            A(i, j) = static_cast<LD>(X(i, j)) * static_cast<LD>(sqrt_w(i)) / scale[static_cast<std::size_t>(j)];
+    for (Eigen::Index i = 0; i < n; ++i) A(i, p) = static_cast<LD>(y[i]) * static_cast<LD>(sqrt_w(i));
+    return triangular_factor(A);
+}
 
-    // 1. R of the scaled, weighted [X | y].
+// The same by a tall-skinny QR: fixed row blocks factored in double on all
+// threads, their factors merged in long double in block order.
+MatL blocked_factor(const Eigen::MatrixXd& X, const Eigen::VectorXd& y, const Eigen::VectorXd& weights,
+                    const std::vector<double>& scale, unsigned threads) {
+    const Eigen::Index n = X.rows(), p = X.cols();
+    const RootWeight sqrt_w{weights};
     MatL Raug;
-    if (out.extended_precision) {
-        MatL A(n, p + 1);
-        for (Eigen::Index j = 0; j < p; ++j)
-            for (Eigen::Index i = 0; i < n; ++i)
-                A(i, j) = static_cast<LD>(X(i, j)) * static_cast<LD>(sqrt_w(i)) / scale[static_cast<std::size_t>(j)];
-        for (Eigen::Index i = 0; i < n; ++i) A(i, p) = static_cast<LD>(y[i]) * static_cast<LD>(sqrt_w(i));
-        Raug = triangular_factor(A);
-    } else {
-        const std::size_t blocks = static_cast<std::size_t>((n + kBlockRows - 1) / kBlockRows);
-        detail::map_reduce_ordered<Eigen::MatrixXd>(
-            blocks, threads,
-            [&](std::size_t b) {
-                const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlockRows;
-                const Eigen::Index rows = std::min(kBlockRows, n - r0);
-                Eigen::MatrixXd B(rows, p + 1);
-                for (Eigen::Index j = 0; j < p; ++j) {
-                    const double inv = 1.0 / scale[static_cast<std::size_t>(j)];
-                    for (Eigen::Index i = 0; i < rows; ++i) B(i, j) = X(r0 + i, j) * sqrt_w(r0 + i) * inv;
-                }
-                for (Eigen::Index i = 0; i < rows; ++i) B(i, p) = y[r0 + i] * sqrt_w(r0 + i);
-                return triangular_factor(B);
-            },
-            [&](std::size_t, Eigen::MatrixXd&& Rb) {
-                if (Raug.size() == 0) {
-                    Raug = Rb.cast<LD>();
-                    return;
-                }
-                MatL S(Raug.rows() + Rb.rows(), p + 1);
-                S << Raug, Rb.cast<LD>();
-                Raug = triangular_factor(S);
-            });
-    }
-    if (Raug.rows() < p + 1) {  // fewer rows than columns + 1: pad with zeros
-        MatL padded = MatL::Zero(p + 1, p + 1);
-        padded.topRows(Raug.rows()) = Raug;
-        Raug = padded;
-    }
+    detail::map_reduce_ordered<Eigen::MatrixXd>(
+        block_count(n), threads,
+        [&](std::size_t b) {
+            const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlockRows;
+            const Eigen::Index rows = std::min(kBlockRows, n - r0);
+            Eigen::MatrixXd B(rows, p + 1);
+            for (Eigen::Index j = 0; j < p; ++j) {
+                const double inv = 1.0 / scale[static_cast<std::size_t>(j)];
+                for (Eigen::Index i = 0; i < rows; ++i) B(i, j) = X(r0 + i, j) * sqrt_w(r0 + i) * inv;
+            }
+            for (Eigen::Index i = 0; i < rows; ++i) B(i, p) = y[r0 + i] * sqrt_w(r0 + i);
+            return triangular_factor(B);
+        },
+        [&](std::size_t, Eigen::MatrixXd&& Rb) {
+            if (Raug.size() == 0) {
+                Raug = Rb.cast<LD>();
+                return;
+            }
+            MatL S(Raug.rows() + Rb.rows(), p + 1);
+            S << Raug, Rb.cast<LD>();
+            Raug = triangular_factor(S);
+        });
+    return Raug;
+}
 
-    out.qty = Raug.col(p).head(p).cast<double>();
-
-    // 2. Numerical rank from a pivoted QR of the small factor.
+// Numerical rank from a pivoted QR of the small factor: the kept columns
+// (ascending), the aliased ones and the rank go into `out`.
+void decide_rank(const MatL& Raug, Eigen::Index p, double tolerance, LeastSquaresResult& out) {
     MatL Rx = Raug.topLeftCorner(p, p);
     Eigen::ColPivHouseholderQR<MatL> piv(Rx);
     const MatL& Rp = piv.matrixQR();
     LD biggest = 0;
     for (Eigen::Index k = 0; k < p; ++k) biggest = std::max(biggest, std::abs(Rp(k, k)));
-    // In double, exactly collinear columns leave pivots of a few sqrt(n) * eps.
-    const double tolerance = out.extended_precision
-                                 ? options.rank_tolerance
-                                 : std::max(options.rank_tolerance, 16.0 * std::sqrt(static_cast<double>(n)) *
-                                                                        std::numeric_limits<double>::epsilon());
     int rank = 0;
     for (Eigen::Index k = 0; k < p; ++k)
         if (std::abs(Rp(k, k)) > static_cast<LD>(tolerance) * biggest) ++rank;
@@ -117,9 +116,15 @@ LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd
         if (!std::binary_search(kept.begin(), kept.end(), j)) out.aliased.push_back(j);
     out.rank = rank;
     out.kept = kept;
+}
 
-    // 3. Solve the full-rank problem on the kept columns.
-    const Eigen::Index k = rank;
+// Solves the full-rank problem on the kept columns: the coefficients (NaN for
+// aliased columns) and the inverse factor go into `out`; the coefficients are
+// also returned in long double (0 for aliased columns) for the residuals.
+VecL solve_kept(const MatL& Raug, const std::vector<double>& scale, LeastSquaresResult& out) {
+    const Eigen::Index p = Raug.cols() - 1;
+    const std::vector<int>& kept = out.kept;
+    const Eigen::Index k = out.rank;
     MatL Bk(p + 1, k + 1);
     for (Eigen::Index c = 0; c < k; ++c) Bk.col(c) = Raug.col(kept[static_cast<std::size_t>(c)]);
     Bk.col(k) = Raug.col(p);
@@ -138,13 +143,20 @@ LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd
         out.coef[kept[static_cast<std::size_t>(a)]] = static_cast<double>(bs[a] / s);
         for (Eigen::Index b = 0; b < k; ++b) out.inverse_factor(a, b) = static_cast<double>(Rinv(a, b) / s);
     }
+    return coefL;
+}
 
-    // 4. Residuals and weighted residual sum of squares, accumulated in long double.
+// Residuals and the weighted residual sum of squares, accumulated in long
+// double over fixed row blocks (reduced in block order).
+void residuals(const Eigen::MatrixXd& X, const Eigen::VectorXd& y, const Eigen::VectorXd& weights, const VecL& coefL,
+               unsigned threads, LeastSquaresResult& out) {
+    const Eigen::Index n = X.rows();
+    const bool weighted = weights.size() > 0;
+    const std::vector<int>& kept = out.kept;
     out.residuals.resize(n);
-    const std::size_t blocks = static_cast<std::size_t>((n + kBlockRows - 1) / kBlockRows);
     LD rss = 0;
     detail::map_reduce_ordered<LD>(
-        blocks, threads,
+        block_count(n), threads,
         [&](std::size_t b) {
             const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlockRows;
             const Eigen::Index r1 = std::min(n, r0 + kBlockRows);
@@ -160,6 +172,44 @@ LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd
         },
         [&](std::size_t, LD&& part) { rss += part; });
     out.rss = static_cast<double>(rss);
+}
+
+}  // namespace
+
+LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd& y, const Eigen::VectorXd& weights,
+                                 const LeastSquaresOptions& options) {
+    const Eigen::Index n = X.rows();
+    const Eigen::Index p = X.cols();
+    const unsigned threads = detail::resolve_threads(options.threads);
+    const std::vector<double> scale = column_scales(X, weights);
+
+    LeastSquaresResult out;
+    out.extended_precision =
+        static_cast<double>(n) * static_cast<double>(p + 1) * static_cast<double>(p + 1) <= options.extended_budget;
+
+    // 1. R of the scaled, weighted [X | y].
+    MatL Raug =
+        out.extended_precision ? extended_factor(X, y, weights, scale) : blocked_factor(X, y, weights, scale, threads);
+    if (Raug.rows() < p + 1) {  // fewer rows than columns + 1: pad with zeros
+        MatL padded = MatL::Zero(p + 1, p + 1);
+        padded.topRows(Raug.rows()) = Raug;
+        Raug = padded;
+    }
+    out.qty = Raug.col(p).head(p).cast<double>();
+
+    // 2. Numerical rank. In double, exactly collinear columns leave pivots of
+    //    a few sqrt(n) * eps.
+    const double tolerance = out.extended_precision
+                                 ? options.rank_tolerance
+                                 : std::max(options.rank_tolerance, 16.0 * std::sqrt(static_cast<double>(n)) *
+                                                                        std::numeric_limits<double>::epsilon());
+    decide_rank(Raug, p, tolerance, out);
+
+    // 3. Solve the full-rank problem on the kept columns.
+    const VecL coefL = solve_kept(Raug, scale, out);
+
+    // 4. Residuals and weighted residual sum of squares, accumulated in long double.
+    residuals(X, y, weights, coefL, threads, out);
     return out;
 }
 

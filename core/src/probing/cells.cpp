@@ -128,28 +128,27 @@ void fill(T& out, const Inference& r, bool logistic) {
 
 std::string level_text(const std::string& factor, const std::string& level) { return factor + "=" + level; }
 
-}  // namespace
+// The product terms of the model that hold both factors.
+struct SharedTerms {
+    const DesignTerm* pair = nullptr;  // the two-way product, if the model has it
+    std::vector<std::string> higher;   // labels of higher-order products
+};
 
-CellTable cell_table(const Design& d, const FitResult& fit, const std::string& row_factor,
-                     const std::string& column_factor, const std::map<std::string, double>& held) {
-    if (!row_factor.empty() && row_factor == column_factor)
-        throw InputError("row and column factor are both " + quoted(row_factor) +
-                         "; choose two different factors for the cell table");
-    const Factor R = factor_of(d, row_factor, "row");
-    const Factor C = factor_of(d, column_factor, "column");
-    const DesignTerm* pair_term = nullptr;
-    std::vector<std::string> higher;
+SharedTerms shared_terms(const Design& d, const std::string& row_factor, const std::string& column_factor) {
+    SharedTerms s;
     for (const auto& t : d.terms) {
         if (!has_factor(t, row_factor) || !has_factor(t, column_factor)) continue;
-        if (t.factors.size() == 2) pair_term = &t;
-        else higher.push_back(t.label);
+        if (t.factors.size() == 2) s.pair = &t;
+        else s.higher.push_back(t.label);
     }
-    if (!pair_term && higher.empty())
+    if (!s.pair && s.higher.empty())
         throw InputError(quoted(row_factor) + " and " + quoted(column_factor) +
                          " share no product term; add an interaction of " + row_factor + " and " + column_factor);
-    if (fit.beta.size() != d.X.cols() || fit.covariance.rows() != d.X.cols())
-        throw std::invalid_argument("cell_table: the fit does not belong to this design");
+    return s;
+}
 
+void check_held(const Design& d, const std::string& row_factor, const std::string& column_factor,
+                const std::map<std::string, double>& held) {
     for (const auto& [column, value] : held) {
         if (column == row_factor || column == column_factor)
             throw InputError(
@@ -166,67 +165,73 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
             throw InputError("held value of " + quoted(column) + " is not a finite number; give a number");
         }
     }
+}
 
-    const bool logistic = fit.family == Family::Logistic;
-    CellTable t;
-    t.row_factor = row_factor;
-    t.column_factor = column_factor;
-    t.row_levels = R.levels;
-    t.column_levels = C.levels;
-    t.family = fit.family;
-    t.scale = logistic ? "log-odds" : "mean";
-    t.covariance = to_string(fit.se);
-    t.level = fit.level;
-    t.df = fit.df_inference;
-    t.critical_value = fit.critical_value;
-
-    std::map<std::string, double> values = typical_values(d, held);
-    values.erase(row_factor);
-    values.erase(column_factor);
-    t.held = values;
-    {
-        std::vector<std::string> parts;
-        for (const auto& [column, v] : values) {
-            const bool given = held.count(column) > 0;
-            if (const CategoricalInfo* c = d.categorical(column))
-                parts.push_back(column + " = " + quoted(c->levels[static_cast<std::size_t>(v)]) +
-                                (given ? "" : " (reference level)"));
-            else parts.push_back(column + " = " + format_sig(v) + (given ? "" : " (its mean)"));
-        }
-        if (!parts.empty()) t.notes.push_back("cells predicted with " + join(parts, ", "));
+// The notes that say where the other columns are held and what the scale means.
+void held_notes(const Design& d, const std::map<std::string, double>& held, const SharedTerms& shared, CellTable& t) {
+    std::vector<std::string> parts;
+    for (const auto& [column, v] : t.held) {
+        const bool given = held.count(column) > 0;
+        if (const CategoricalInfo* c = d.categorical(column))
+            parts.push_back(column + " = " + quoted(c->levels[static_cast<std::size_t>(v)]) +
+                            (given ? "" : " (reference level)"));
+        else parts.push_back(column + " = " + format_sig(v) + (given ? "" : " (its mean)"));
     }
-    if (!higher.empty())
-        t.notes.push_back(quoted(row_factor) + " and " + quoted(column_factor) + " also enter " + join(higher, ", ") +
+    if (!parts.empty()) t.notes.push_back("cells predicted with " + join(parts, ", "));
+    if (!shared.higher.empty())
+        t.notes.push_back(quoted(t.row_factor) + " and " + quoted(t.column_factor) + " also enter " +
+                          join(shared.higher, ", ") +
                           ": the cells, simple effects and contrasts hold the other columns at the values above, "
                           "while the joint test covers only the two-way product columns");
-    if (logistic)
+    if (t.family == Family::Logistic)
         t.notes.push_back(
             "on the log-odds scale: simple effects are log odds ratios and interaction contrasts are "
             "log ratios of odds ratios; an interaction on the log-odds scale is not the same as one "
             "on the probability scale (cell probabilities are given beside)");
+}
 
+// Counts and (weighted) outcome sums of the used rows, per cell (row-major).
+struct Observed {
+    std::vector<std::size_t> count;
+    std::vector<long double> sum_wy, sum_w;
+};
+
+Observed observed_cells(const Design& d, const Factor& R, const Factor& C) {
     const std::size_t nr = R.levels.size(), nc = C.levels.size();
-    // Counts and observed means from the used rows.
-    std::vector<std::size_t> count(nr * nc, 0);
-    std::vector<long double> sum_wy(nr * nc, 0), sum_w(nr * nc, 0);
+    Observed o{std::vector<std::size_t>(nr * nc, 0), std::vector<long double>(nr * nc, 0),
+               std::vector<long double>(nr * nc, 0)};
     for (Eigen::Index i = 0; i < d.X.rows(); ++i) {
         const auto k = static_cast<std::size_t>(R.row_level[static_cast<std::size_t>(i)]) * nc +
                        static_cast<std::size_t>(C.row_level[static_cast<std::size_t>(i)]);
         const double w = d.weights.size() ? d.weights[i] : 1.0;
-        ++count[k];
-        sum_wy[k] += w * d.y[i];
-        sum_w[k] += w;
+        ++o.count[k];
+        o.sum_wy[k] += w * d.y[i];
+        o.sum_w[k] += w;
     }
+    return o;
+}
 
-    // Design rows of the cells.
+// Design rows of the cells (row-major), the other columns at `values`.
+std::vector<Eigen::VectorXd> cell_rows(const Design& d, const Factor& R, const Factor& C,
+                                       std::map<std::string, double> values) {
+    const std::size_t nr = R.levels.size(), nc = C.levels.size();
     std::vector<Eigen::VectorXd> x(nr * nc);
     for (std::size_t i = 0; i < nr; ++i)
         for (std::size_t j = 0; j < nc; ++j) {
-            values[row_factor] = static_cast<double>(i);
-            values[column_factor] = static_cast<double>(j);
+            values[R.name] = static_cast<double>(i);
+            values[C.name] = static_cast<double>(j);
             x[i * nc + j] = design_row(d, values);
         }
+    return x;
+}
 
+// Every cell: count, observed mean, prediction with its interval (and
+// probabilities for a logistic fit), with notes on cells that cannot be
+// estimated or hold no rows.
+void predicted_cells(const Design& d, const FitResult& fit, const Factor& R, const Factor& C, const Observed& o,
+                     const std::vector<Eigen::VectorXd>& x, CellTable& t) {
+    const bool logistic = fit.family == Family::Logistic;
+    const std::size_t nr = R.levels.size(), nc = C.levels.size();
     std::vector<std::string> empty_cells;
     for (std::size_t i = 0; i < nr; ++i)
         for (std::size_t j = 0; j < nc; ++j) {
@@ -236,8 +241,8 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
             c.column = j;
             c.row_level = R.levels[i];
             c.column_level = C.levels[j];
-            c.n = count[k];
-            c.observed_mean = count[k] ? static_cast<double>(sum_wy[k] / sum_w[k]) : kNaN;
+            c.n = o.count[k];
+            c.observed_mean = o.count[k] ? static_cast<double>(o.sum_wy[k] / o.sum_w[k]) : kNaN;
             const Combination m = combine(fit, d, x[k]);
             const Inference r = infer(m, fit);
             c.estimable = m.aliased.empty();
@@ -253,7 +258,7 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
                 c.probability_std_error = c.probability * (1 - c.probability) * r.std_error;
             }
             const std::string where =
-                "cell (" + level_text(row_factor, c.row_level) + ", " + level_text(column_factor, c.column_level) + ")";
+                "cell (" + level_text(R.name, c.row_level) + ", " + level_text(C.name, c.column_level) + ")";
             if (!c.estimable)
                 t.notes.push_back(where + " cannot be estimated: it needs the aliased coefficient" +
                                   (m.aliased.size() > 1 ? "s " : " ") + join(m.aliased, ", ") +
@@ -264,43 +269,52 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
     if (!empty_cells.empty())
         t.notes.push_back(join(empty_cells, ", ") + (empty_cells.size() > 1 ? " have" : " has") +
                           " no observed rows: the prediction rests on the model's structure alone");
+}
 
+// Level `level` of factor F vs its reference level, with the other factor G
+// at `at_level`; `x` is the difference of the two cells' design rows.
+SimpleEffect simple_effect(const Design& d, const FitResult& fit, const Eigen::VectorXd& x, const Factor& F,
+                           std::size_t level, const Factor& G, std::size_t at_level) {
+    const Combination m = combine(fit, d, x);
+    SimpleEffect e;
+    e.factor = F.name;
+    e.level = F.levels[level];
+    e.reference = F.levels[0];
+    e.at_factor = G.name;
+    e.at_level = G.levels[at_level];
+    e.label = level_text(F.name, e.level) + " vs " + level_text(F.name, e.reference) + " at " +
+              level_text(G.name, e.at_level);
+    fill(e, infer(m, fit), fit.family == Family::Logistic);
+    e.estimable = m.aliased.empty();
+    return e;
+}
+
+// Row levels vs the reference row level at each column level, then column
+// levels vs the reference column level at each row level. Returns how many
+// are not estimable.
+std::size_t simple_effects(const Design& d, const FitResult& fit, const Factor& R, const Factor& C,
+                           const std::vector<Eigen::VectorXd>& x, CellTable& t) {
+    const std::size_t nr = R.levels.size(), nc = C.levels.size();
     std::size_t not_estimable = 0;
-    // Row levels vs the reference row level at each column level.
     for (std::size_t j = 0; j < nc; ++j)
         for (std::size_t i = 1; i < nr; ++i) {
-            const Combination m = combine(fit, d, x[i * nc + j] - x[j]);
-            SimpleEffect e;
-            e.factor = row_factor;
-            e.level = R.levels[i];
-            e.reference = R.levels[0];
-            e.at_factor = column_factor;
-            e.at_level = C.levels[j];
-            e.label = level_text(row_factor, e.level) + " vs " + level_text(row_factor, e.reference) + " at " +
-                      level_text(column_factor, e.at_level);
-            fill(e, infer(m, fit), logistic);
-            e.estimable = m.aliased.empty();
-            not_estimable += !e.estimable;
-            t.row_effects.push_back(std::move(e));
+            t.row_effects.push_back(simple_effect(d, fit, x[i * nc + j] - x[j], R, i, C, j));
+            not_estimable += !t.row_effects.back().estimable;
         }
-    // Column levels vs the reference column level at each row level.
     for (std::size_t i = 0; i < nr; ++i)
         for (std::size_t j = 1; j < nc; ++j) {
-            const Combination m = combine(fit, d, x[i * nc + j] - x[i * nc]);
-            SimpleEffect e;
-            e.factor = column_factor;
-            e.level = C.levels[j];
-            e.reference = C.levels[0];
-            e.at_factor = row_factor;
-            e.at_level = R.levels[i];
-            e.label = level_text(column_factor, e.level) + " vs " + level_text(column_factor, e.reference) + " at " +
-                      level_text(row_factor, e.at_level);
-            fill(e, infer(m, fit), logistic);
-            e.estimable = m.aliased.empty();
-            not_estimable += !e.estimable;
-            t.column_effects.push_back(std::move(e));
+            t.column_effects.push_back(simple_effect(d, fit, x[i * nc + j] - x[i * nc], C, j, R, i));
+            not_estimable += !t.column_effects.back().estimable;
         }
-    // Differences in differences.
+    return not_estimable;
+}
+
+// Differences in differences, one per pair of non-reference levels. Returns
+// how many are not estimable.
+std::size_t interaction_contrasts(const Design& d, const FitResult& fit, const Factor& R, const Factor& C,
+                                  const std::vector<Eigen::VectorXd>& x, CellTable& t) {
+    const std::size_t nr = R.levels.size(), nc = C.levels.size();
+    std::size_t not_estimable = 0;
     for (std::size_t i = 1; i < nr; ++i)
         for (std::size_t j = 1; j < nc; ++j) {
             const Eigen::VectorXd v = (x[i * nc + j] - x[i * nc]) - (x[j] - x[0]);
@@ -309,31 +323,70 @@ CellTable cell_table(const Design& d, const FitResult& fit, const std::string& r
             e.row_level = R.levels[i];
             e.column_level = C.levels[j];
             e.label = std::string("(");  // appended piecewise: GCC 12 warns falsely (-Wrestrict) on "(" + string&&
-            e.label += level_text(row_factor, e.row_level) + " vs " + level_text(row_factor, R.levels[0]) + ") at " +
-                       level_text(column_factor, e.column_level) + " minus at " +
-                       level_text(column_factor, C.levels[0]);
-            fill(e, infer(m, fit), logistic);
+            e.label += level_text(R.name, e.row_level) + " vs " + level_text(R.name, R.levels[0]) + ") at " +
+                       level_text(C.name, e.column_level) + " minus at " + level_text(C.name, C.levels[0]);
+            fill(e, infer(m, fit), fit.family == Family::Logistic);
             e.estimable = m.aliased.empty();
             not_estimable += !e.estimable;
             t.interactions.push_back(std::move(e));
         }
+    return not_estimable;
+}
+
+// Joint test of the two-way product columns, or a note on why there is none.
+void joint_test(const Design& d, const FitResult& fit, const DesignTerm& pair_term, CellTable& t) {
+    std::vector<std::string> aliased;
+    for (int j : pair_term.columns)
+        if (std::isnan(fit.beta[j])) aliased.push_back(d.columns[static_cast<std::size_t>(j)].label);
+    if (aliased.empty()) t.interaction_test = wald_test(fit, {pair_term.label});
+    else
+        t.notes.push_back("no joint test of " + pair_term.label + ": the product column" +
+                          (aliased.size() > 1 ? "s " : " ") + join(aliased, ", ") +
+                          (aliased.size() > 1 ? " are" : " is") +
+                          " aliased (often an empty cell); the estimable contrasts above are still valid");
+}
+
+}  // namespace
+
+const char* to_string(CellScale scale) { return scale == CellScale::LogOdds ? "log-odds" : "mean"; }
+
+CellTable cell_table(const Design& d, const FitResult& fit, const std::string& row_factor,
+                     const std::string& column_factor, const std::map<std::string, double>& held) {
+    if (!row_factor.empty() && row_factor == column_factor)
+        throw InputError("row and column factor are both " + quoted(row_factor) +
+                         "; choose two different factors for the cell table");
+    const Factor R = factor_of(d, row_factor, "row");
+    const Factor C = factor_of(d, column_factor, "column");
+    const SharedTerms shared = shared_terms(d, row_factor, column_factor);
+    if (fit.beta.size() != d.X.cols() || fit.covariance.rows() != d.X.cols())
+        throw std::invalid_argument("cell_table: the fit does not belong to this design");
+    check_held(d, row_factor, column_factor, held);
+
+    CellTable t;
+    t.row_factor = row_factor;
+    t.column_factor = column_factor;
+    t.row_levels = R.levels;
+    t.column_levels = C.levels;
+    t.family = fit.family;
+    t.scale = fit.family == Family::Logistic ? CellScale::LogOdds : CellScale::Mean;
+    t.covariance = fit.se;
+    t.level = fit.level;
+    t.df = fit.df_inference;
+    t.critical_value = fit.critical_value;
+    t.held = typical_values(d, held);
+    t.held.erase(row_factor);
+    t.held.erase(column_factor);
+    held_notes(d, held, shared, t);
+
+    const std::vector<Eigen::VectorXd> x = cell_rows(d, R, C, t.held);
+    predicted_cells(d, fit, R, C, observed_cells(d, R, C), x, t);
+    std::size_t not_estimable = simple_effects(d, fit, R, C, x, t);
+    not_estimable += interaction_contrasts(d, fit, R, C, x, t);
     if (not_estimable > 0)
         t.notes.push_back(std::to_string(not_estimable) +
                           " simple effect(s) or interaction contrast(s) need aliased coefficients and are not "
                           "estimable (NaN)");
-
-    // Joint test of the two-way product columns.
-    if (pair_term) {
-        std::vector<std::string> aliased;
-        for (int j : pair_term->columns)
-            if (std::isnan(fit.beta[j])) aliased.push_back(d.columns[static_cast<std::size_t>(j)].label);
-        if (aliased.empty()) t.interaction_test = wald_test(fit, {pair_term->label});
-        else
-            t.notes.push_back("no joint test of " + pair_term->label + ": the product column" +
-                              (aliased.size() > 1 ? "s " : " ") + join(aliased, ", ") +
-                              (aliased.size() > 1 ? " are" : " is") +
-                              " aliased (often an empty cell); the estimable contrasts above are still valid");
-    }
+    if (shared.pair) joint_test(d, fit, *shared.pair, t);
     return t;
 }
 

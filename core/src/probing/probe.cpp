@@ -103,7 +103,7 @@ std::vector<Region> regions_from_signs(const std::vector<double>& roots, const s
     return out;
 }
 
-SignificanceRegions from_regions(double q, std::vector<Region> regions, std::string kind) {
+SignificanceRegions from_regions(double q, std::vector<Region> regions, RegionsKind kind) {
     SignificanceRegions s;
     s.critical_value = q;
     s.significant = std::move(regions);
@@ -112,11 +112,59 @@ SignificanceRegions from_regions(double q, std::vector<Region> regions, std::str
         if (std::isfinite(r.hi)) s.boundaries.push_back(r.hi);
     }
     std::sort(s.boundaries.begin(), s.boundaries.end());
-    s.kind = std::move(kind);
+    s.kind = kind;
     return s;
 }
 
 }  // namespace
+
+std::string kind_text(const SignificanceRegions& s) {
+    switch (s.kind) {
+        case RegionsKind::Everywhere:
+            return "significant everywhere";
+        case RegionsKind::Nowhere:
+            return "significant nowhere";
+        case RegionsKind::OneBoundary:
+            return "one boundary (degenerate case)";
+        case RegionsKind::Outside:
+            return "significant outside the two boundaries";
+        case RegionsKind::Between:
+            return "significant between the two boundaries";
+        case RegionsKind::PolynomialRoots:
+            return "roots of a polynomial";
+        case RegionsKind::Scan:
+            return "scan of the moderator from " + format_range(s.scan_from, s.scan_to);
+    }
+    return {};
+}
+
+const char* to_string(FiellerInterval interval) {
+    switch (interval) {
+        case FiellerInterval::Bounded:
+            return "bounded";
+        case FiellerInterval::Unbounded:
+            return "unbounded";
+        case FiellerInterval::WholeLine:
+            return "whole line";
+        case FiellerInterval::None:
+            return "none";
+    }
+    return "";
+}
+
+const char* to_string(CrossoverForm form) { return form == CrossoverForm::Disordinal ? "disordinal" : "ordinal"; }
+
+const char* to_string(InteractionMeasure measure) {
+    switch (measure) {
+        case InteractionMeasure::CrossPartial:
+            return "cross-partial derivative";
+        case InteractionMeasure::SlopeDifference:
+            return "difference in slopes";
+        case InteractionMeasure::DoubleDifference:
+            return "double difference";
+    }
+    return "";
+}
 
 EffectFunction::EffectFunction(std::vector<Eigen::VectorXd> g, const Eigen::VectorXd& beta, const Eigen::MatrixXd& cov)
     : g_(std::move(g)) {
@@ -171,7 +219,7 @@ SignificanceRegions significance_regions(const EffectFunction& f, double q) {
     if (f.degree() <= 0) {
         const bool sig = a[0] * a[0] > q2 * v(0, 0);
         return from_regions(q, sig ? std::vector<Region>{Region{}} : std::vector<Region>{},
-                            sig ? "significant everywhere" : "significant nowhere");
+                            sig ? RegionsKind::Everywhere : RegionsKind::Nowhere);
     }
     if (f.degree() == 1) {
         // (a0 + a1 m)^2 - q^2 (v00 + 2 v01 m + v11 m^2) = A m^2 + B m + C
@@ -182,22 +230,22 @@ SignificanceRegions significance_regions(const EffectFunction& f, double q) {
         if (std::abs(A) <= 1e-12 * scale) {  // degenerate: linear in m
             if (B == 0)
                 return from_regions(q, C > 0 ? std::vector<Region>{Region{}} : std::vector<Region>{},
-                                    C > 0 ? "significant everywhere" : "significant nowhere");
+                                    C > 0 ? RegionsKind::Everywhere : RegionsKind::Nowhere);
             const double r = -C / B;
             return from_regions(q, B > 0 ? std::vector<Region>{{r, kInf}} : std::vector<Region>{{-kInf, r}},
-                                "one boundary (degenerate case)");
+                                RegionsKind::OneBoundary);
         }
         const double disc = B * B - 4 * A * C;
         if (disc <= 0) {
             const bool sig = A > 0;
             return from_regions(q, sig ? std::vector<Region>{Region{}} : std::vector<Region>{},
-                                sig ? "significant everywhere" : "significant nowhere");
+                                sig ? RegionsKind::Everywhere : RegionsKind::Nowhere);
         }
         const double t = -0.5 * (B + std::copysign(std::sqrt(disc), B));
         double r1 = t / A, r2 = C / t;
         if (r1 > r2) std::swap(r1, r2);
-        if (A > 0) return from_regions(q, {{-kInf, r1}, {r2, kInf}}, "significant outside the two boundaries");
-        return from_regions(q, {{r1, r2}}, "significant between the two boundaries");
+        if (A > 0) return from_regions(q, {{-kInf, r1}, {r2, kInf}}, RegionsKind::Outside);
+        return from_regions(q, {{r1, r2}}, RegionsKind::Between);
     }
     // Higher degree: real roots of the polynomial gap(m), from the companion
     // matrix, polished by a bracketing root finder.
@@ -234,7 +282,7 @@ SignificanceRegions significance_regions(const EffectFunction& f, double q) {
         if (polished.empty() || std::abs(r - polished.back()) > 1e-9 * (1 + std::abs(r))) polished.push_back(r);
     }
     auto regions = regions_from_signs(polished, gap);
-    return from_regions(q, regions, regions.empty() ? "significant nowhere" : "roots of a polynomial");
+    return from_regions(q, regions, regions.empty() ? RegionsKind::Nowhere : RegionsKind::PolynomialRoots);
 }
 
 EffectFunction effect_function(const Design& d, const FitResult& fit, const std::string& focal,
@@ -309,17 +357,17 @@ void refresh_cautions(ProbeResult& r, const FitResult& fit) {
     if (fit.n < 200)
         r.cautions.push_back("With " + std::to_string(fit.n) +
                              " observations, interaction estimates and regions of significance are unstable.");
-    if (fit.family == Family::Logistic && r.scale == "link")
+    if (fit.family == Family::Logistic && r.scale == ProbeScale::Model)
         r.cautions.push_back(
             "On the log-odds scale a product coefficient is not the interaction on the probability "
             "scale; use the probability scale to describe effects on P(" +
             r.outcome + " = 1).");
-    if (r.scale == "response")
+    if (r.scale == ProbeScale::Outcome)
         r.cautions.push_back(
             "On the probability scale an effect depends on the values of every other predictor; "
             "these effects are " +
-            std::string(r.averaging == "sample" ? "averaged over the observed rows."
-                                                : "at the means and reference levels."));
+            std::string(r.averaging == Averaging::Sample ? "averaged over the observed rows."
+                                                         : "at the means and reference levels."));
 }
 
 namespace {
@@ -339,30 +387,30 @@ Crossover crossover_of(const EffectFunction& gap, const FitResult& fit, std::pai
     const auto& a = gap.effect_coefficients();
     c.gap_regions = significance_regions(gap, fit.critical_value);
     if (gap.degree() != 1 || a[1] == 0 || std::isnan(a[1])) {
-        c.ci_kind = "none";
-        c.form = "ordinal";
+        c.ci_kind = FiellerInterval::None;
+        c.form = CrossoverForm::Ordinal;
         return c;
     }
     c.focal_value = -a[0] / a[1];
     c.within_observed_range = c.focal_value >= focal_range.first && c.focal_value <= focal_range.second;
-    c.form = c.within_observed_range ? "disordinal" : "ordinal";
+    c.form = c.within_observed_range ? CrossoverForm::Disordinal : CrossoverForm::Ordinal;
     const SignificanceRegions& sig = c.gap_regions;
     // Fieller set = complement of the significant regions.
     if (sig.significant.empty()) {
-        c.ci_kind = "whole line";
+        c.ci_kind = FiellerInterval::WholeLine;
         c.ci_lower = -kInf;
         c.ci_upper = kInf;
     } else if (sig.significant.size() == 2) {
-        c.ci_kind = "bounded";
+        c.ci_kind = FiellerInterval::Bounded;
         c.ci_lower = sig.significant[0].hi;
         c.ci_upper = sig.significant[1].lo;
     } else if (sig.significant.size() == 1 && std::isfinite(sig.significant[0].lo) &&
                std::isfinite(sig.significant[0].hi)) {
-        c.ci_kind = "unbounded";
+        c.ci_kind = FiellerInterval::Unbounded;
         c.ci_lower = sig.significant[0].lo;  // the set is (-inf, lo] U [hi, inf)
         c.ci_upper = sig.significant[0].hi;
     } else if (sig.significant.size() == 1) {  // degenerate: a half line
-        c.ci_kind = "unbounded";
+        c.ci_kind = FiellerInterval::Unbounded;
         c.ci_lower = std::isfinite(sig.significant[0].lo) ? -kInf : sig.significant[0].hi;
         c.ci_upper = std::isfinite(sig.significant[0].lo) ? sig.significant[0].lo : kInf;
     }
@@ -378,7 +426,10 @@ EffectPoint effect_point(double moderator_value, const Inference& i) {
     return e;
 }
 
-ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) {
+namespace {
+
+// InputError for a probe the fit or the model cannot answer.
+void check_probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) {
     if (fit.family == Family::Logistic && (!fit.converged || fit.separation))
         throw InputError(std::string("the logistic fit ") +
                          (fit.separation ? "shows separation"
@@ -397,25 +448,18 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
                          quoted(spec.moderator) + "; add --interaction " + spec.focal + "," + spec.moderator);
     if (!spec.second_moderator.empty() && !in_model(d, spec.second_moderator))
         throw InputError("second moderator " + quoted(spec.second_moderator) + " is not in the model");
+}
 
-    ProbeResult r;
-    r.outcome = d.outcome;
-    r.focal = spec.focal;
-    r.moderator = spec.moderator;
-    r.level = fit.level;
-    r.df = fit.df_inference;
-    r.critical_t = fit.critical_value;
-    const auto& fs = d.summaries.at(spec.focal);
-    r.focal_range = {fs.min, fs.max};
-
-    // Everything else held at its mean (numeric) or reference level.
+// Everything else held at its mean (numeric) or reference level, or at the
+// values the spec gives; the notes say where every other column the effect
+// depends on is held.
+std::map<std::string, double> held_values(const Design& d, const ProbeSpec& spec, ProbeResult& r) {
     std::map<std::string, double> values = typical_values(d);
     if (!std::isnan(spec.focal_value)) values[spec.focal] = spec.focal_value;
     if (!spec.second_moderator.empty()) {
         if (!std::isnan(spec.second_value)) values[spec.second_moderator] = spec.second_value;
         r.notes.push_back(spec.second_moderator + " held at " + format_sig(values[spec.second_moderator]));
     }
-    // Say where every other column the effect depends on is held.
     for (const auto& t : d.terms) {
         if (t.factors.size() < 2) continue;
         bool has_focal = false;
@@ -437,30 +481,36 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
                               format_sig(values[spec.focal]));
             break;
         }
+    return values;
+}
 
-    const CategoricalInfo* cat = d.categorical(spec.moderator);
-    r.categorical_moderator = cat != nullptr;
-    if (cat) {
-        for (std::size_t L = 0; L < cat->levels.size(); ++L) {
-            values[spec.moderator] = static_cast<double>(L);
-            const EffectFunction f(linear_form(d, "", spec.focal, values), fit.beta, fit.covariance);
-            EffectPoint e = point_at(f, 0, fit);
-            e.moderator_value = static_cast<double>(L);
-            e.level = cat->levels[L];
-            r.effects.push_back(e);
-        }
-        for (std::size_t a = 0; a < cat->levels.size(); ++a)
-            for (std::size_t b = a + 1; b < cat->levels.size(); ++b) {
-                const EffectFunction gap = contrast_function(d, fit, spec.moderator, static_cast<double>(a),
-                                                             static_cast<double>(b), spec.focal, values);
-                r.crossovers.push_back(crossover_of(
-                    gap, fit, r.focal_range,
-                    spec.moderator + "=" + cat->levels[a] + " vs " + spec.moderator + "=" + cat->levels[b]));
-            }
-        refresh_cautions(r, fit);
-        return r;
+// A categorical moderator: the effect in every group and the crossover of
+// every pair of group lines.
+void probe_groups(const Design& d, const FitResult& fit, const ProbeSpec& spec, const CategoricalInfo& cat,
+                  std::map<std::string, double> values, ProbeResult& r) {
+    for (std::size_t L = 0; L < cat.levels.size(); ++L) {
+        values[spec.moderator] = static_cast<double>(L);
+        const EffectFunction f(linear_form(d, "", spec.focal, values), fit.beta, fit.covariance);
+        EffectPoint e = point_at(f, 0, fit);
+        e.moderator_value = static_cast<double>(L);
+        e.level = cat.levels[L];
+        r.effects.push_back(e);
     }
+    for (std::size_t a = 0; a < cat.levels.size(); ++a)
+        for (std::size_t b = a + 1; b < cat.levels.size(); ++b) {
+            const EffectFunction gap = contrast_function(d, fit, spec.moderator, static_cast<double>(a),
+                                                         static_cast<double>(b), spec.focal, values);
+            r.crossovers.push_back(
+                crossover_of(gap, fit, r.focal_range,
+                             spec.moderator + "=" + cat.levels[a] + " vs " + spec.moderator + "=" + cat.levels[b]));
+        }
+}
 
+// A numeric moderator: effects at the chosen values (or the defaults), the
+// Johnson–Neyman regions and the simultaneous band (not for a 0/1
+// moderator), and where the lines at different moderator values cross.
+void probe_numeric(const Design& d, const FitResult& fit, const ProbeSpec& spec,
+                   const std::map<std::string, double>& values, ProbeResult& r) {
     const auto& ms = d.summaries.at(spec.moderator);
     r.observed_range = {ms.min, ms.max};
     r.moderator_mean = ms.mean;
@@ -468,6 +518,7 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     const EffectFunction f = effect_function(d, fit, spec.focal, spec.moderator, values);
     r.effect_function = f;
     const bool binary = d.is_binary(spec.moderator);
+    r.binary_moderator = binary;
     std::vector<double> at = spec.at;
     if (at.empty())
         at = binary ? std::vector<double>{0.0, 1.0} : std::vector<double>{ms.mean - ms.sd, ms.mean, ms.mean + ms.sd};
@@ -495,6 +546,27 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     r.crossovers.push_back(crossover_of(
         gap, fit, r.focal_range,
         binary ? spec.moderator + "=0 vs " + spec.moderator + "=1" : "lines at any two values of " + spec.moderator));
+}
+
+}  // namespace
+
+ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) {
+    check_probe(d, fit, spec);
+    ProbeResult r;
+    r.outcome = d.outcome;
+    r.focal = spec.focal;
+    r.moderator = spec.moderator;
+    r.level = fit.level;
+    r.df = fit.df_inference;
+    r.critical_t = fit.critical_value;
+    const auto& fs = d.summaries.at(spec.focal);
+    r.focal_range = {fs.min, fs.max};
+
+    const std::map<std::string, double> values = held_values(d, spec, r);
+    const CategoricalInfo* cat = d.categorical(spec.moderator);
+    r.categorical_moderator = cat != nullptr;
+    if (cat) probe_groups(d, fit, spec, *cat, values, r);
+    else probe_numeric(d, fit, spec, values, r);
     refresh_cautions(r, fit);
     return r;
 }

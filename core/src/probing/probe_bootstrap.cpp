@@ -13,27 +13,39 @@ namespace {
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 }
 
+const char* to_string(ProbeStatistic statistic) {
+    switch (statistic) {
+        case ProbeStatistic::Effect:
+            return "effect";
+        case ProbeStatistic::Boundary:
+            return "boundary";
+        case ProbeStatistic::Crossover:
+            return "crossover";
+    }
+    return "";
+}
+
 ProbeBootstrap bootstrap_probe(const Design& design, const ModelSpec& spec, const ProbeSpec& probe_spec,
                                const ProbeResult& probe, const BootstrapOptions& options) {
     ProbeBootstrap out;
     out.seed = options.seed;
-    const bool response = probe.scale == "response";
+    const bool response = probe.scale == ProbeScale::Outcome;
     for (const auto& e : probe.effects) {
         out.labels.push_back("effect at " + probe.moderator + " = " +
                              (e.level.empty() ? format_sig(e.moderator_value) : e.level));
-        out.kinds.push_back("effect");
+        out.kinds.push_back(ProbeStatistic::Effect);
         out.at.push_back(e.moderator_value);
     }
     const std::size_t n_boundaries = !response && probe.johnson_neyman ? probe.johnson_neyman->boundaries.size() : 0;
     for (std::size_t k = 0; k < n_boundaries; ++k) {
         out.labels.push_back("Johnson–Neyman boundary " + std::to_string(k + 1));
-        out.kinds.push_back("boundary");
+        out.kinds.push_back(ProbeStatistic::Boundary);
         out.at.push_back(static_cast<double>(k));
     }
-    const bool crossover = !probe.crossovers.empty() && probe.crossovers.front().ci_kind != "none";
+    const bool crossover = !probe.crossovers.empty() && probe.crossovers.front().ci_kind != FiellerInterval::None;
     if (crossover) {
         out.labels.push_back("crossover (" + probe.crossovers.front().groups + ")");
-        out.kinds.push_back("crossover");
+        out.kinds.push_back(ProbeStatistic::Crossover);
         out.at.push_back(kNaN);
     }
 
@@ -53,7 +65,7 @@ ProbeBootstrap bootstrap_probe(const Design& design, const ModelSpec& spec, cons
     ScaleRequest request;
     request.focal = probe.focal;
     request.moderator = probe.moderator;
-    request.averaging = probe.averaging == "values" ? Averaging::AtValues : Averaging::Sample;
+    request.averaging = probe.averaging;
     if (!probe_spec.second_moderator.empty())
         // At its chosen value, else its mean (numeric) or reference level (categorical).
         request.values[probe_spec.second_moderator] = std::isnan(probe_spec.second_value)

@@ -141,7 +141,9 @@ SignificanceRegions probability_regions(const Design& d, const FitResult& fit, c
     }
     SignificanceRegions s;
     s.critical_value = q;
-    s.kind = "scan of the moderator from " + format_range(lo, hi);
+    s.kind = RegionsKind::Scan;
+    s.scan_from = lo;
+    s.scan_to = hi;
     double start = hs[0] > 0 ? lo : kNaN;
     for (int i = 1; i <= grid; ++i) {
         if ((hs[static_cast<std::size_t>(i - 1)] > 0) == (hs[static_cast<std::size_t>(i)] > 0)) continue;
@@ -179,7 +181,7 @@ InteractionEffect probability_interaction(const Design& d, const FitResult& fit,
     std::function<double(const Eigen::VectorXd&)> s;
     InteractionEffect out;
     if (fb && mb) {
-        out.kind = "double difference";
+        out.kind = InteractionMeasure::DoubleDifference;
         const Eigen::MatrixXd X11 = rows_at(d, with({{F, 1}, {M, 1}}), {}, pr.rows),
                               X10 = rows_at(d, with({{F, 1}, {M, 0}}), {}, pr.rows),
                               X01 = rows_at(d, with({{F, 0}, {M, 1}}), {}, pr.rows),
@@ -191,7 +193,7 @@ InteractionEffect probability_interaction(const Design& d, const FitResult& fit,
                    rows;
         };
     } else if (fb || mb) {
-        out.kind = "difference in slopes";
+        out.kind = InteractionMeasure::SlopeDifference;
         const std::string& B = fb ? F : M;  // the binary one
         const std::string& C = fb ? M : F;  // the continuous one
         const Eigen::MatrixXd X1 = rows_at(d, with({{B, 1}}), {}, pr.rows),
@@ -205,7 +207,7 @@ InteractionEffect probability_interaction(const Design& d, const FitResult& fit,
                    rows;
         };
     } else {
-        out.kind = "cross-partial derivative";
+        out.kind = InteractionMeasure::CrossPartial;
         const Eigen::MatrixXd X = rows_at(d, pr.overrides, {}, pr.rows), GF = rows_at(d, pr.overrides, {F}, pr.rows),
                               GM = rows_at(d, pr.overrides, {M}, pr.rows),
                               GFM = rows_at(d, pr.overrides, {F, M}, pr.rows);
@@ -250,8 +252,8 @@ ProbeResult probe_response(const Design& d, const FitResult& fit, const ProbeSpe
         req.values[spec.second_moderator] =
             std::isnan(spec.second_value) ? typical_values(d).at(spec.second_moderator) : spec.second_value;
     if (!std::isnan(spec.focal_value) && averaging == Averaging::AtValues) req.values[spec.focal] = spec.focal_value;
-    r.scale = "response";
-    r.averaging = averaging == Averaging::Sample ? "sample" : "values";
+    r.scale = ProbeScale::Outcome;
+    r.averaging = averaging;
     for (auto& e : r.effects) {
         EffectPoint p = probability_effect(d, fit, req, e.moderator_value);
         p.level = e.level;

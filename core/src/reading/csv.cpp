@@ -150,6 +150,45 @@ std::string join_names(const std::vector<std::string>& names) {
     return s;
 }
 
+// The state of one pass over the source.
+struct Pass {
+    Pass(const CsvOptions& opt, char delim, const std::vector<std::string>* names)
+        : missing(opt.missing_tokens, delim, opt.decimal_comma) {
+        setup.delim = delim;
+        setup.decimal_comma = opt.decimal_comma;
+        setup.missing = &missing;
+        setup.names = names;
+        sc.delim = delim;
+    }
+    Pass(const Pass&) = delete;  // setup points at missing
+    Pass& operator=(const Pass&) = delete;
+
+    const MissingTokens missing;
+    ParseSetup setup;
+    Scanner sc;
+    std::unique_ptr<char[]> buf;
+    std::size_t cap = 0, carry = 0;
+    std::size_t offset = 0;  // next byte of the source to read
+    std::size_t line0 = 1;   // line of buf[0]
+    bool header_done = false;
+    std::size_t header_line = 0;
+    std::vector<std::size_t> row_lines;
+    std::vector<PieceResult> pieces;
+    std::vector<std::size_t> targets, splits, bounds;
+    double rows_per_byte = 0.0;
+    bool reserved = false;
+};
+
+// One block in the buffer: b[0, len) holds the carried bytes and those just
+// read; the records before `cut` are complete.
+struct Block {
+    char* b = nullptr;
+    std::size_t len = 0, cut = 0;
+    bool eof = false, unterminated = false;
+    std::size_t data_begin = 0, data_line = 0;  // where its data records start
+    std::size_t pieces = 0;                     // parsed in this many pieces
+};
+
 class Reader {
 public:
     Reader(Source& src, const std::string& name, const CsvOptions& options, const CsvProgress& progress,
@@ -208,6 +247,27 @@ private:
     // in earlier blocks met text: `text_columns` then says which columns to
     // read as text from the start, and the caller runs another pass.
     bool pass(std::vector<char>& text_columns, Table& out);
+    // Reads the next block after the carried bytes and finds its record ends
+    // and its split points.
+    Block read_block(Pass& ps);
+    // Finds the header record (after blank lines) and where the data start.
+    void find_header(Pass& ps, Block& blk, const std::vector<char>& text_columns);
+    // Parses the block's data records in pieces, one per thread.
+    void parse_pieces(Pass& ps, Block& blk);
+    void parse_one(Pass& ps, const Block& blk, std::size_t k);
+    void check_pieces(const Pass& ps, const Block& blk) const;
+    // Columns that met their first text in this block are re-read as text.
+    // Returns false when one had already stored numbers (see pass).
+    bool take_new_text(Pass& ps, const Block& blk, std::vector<char>& text_columns);
+    // Reserves the whole table once, from the first block's density.
+    void reserve_table(Pass& ps, const Block& blk);
+    // Appends the pieces to the table; returns the line at the block's cut.
+    std::size_t append_pieces(Pass& ps, const Block& blk);
+    void append_column(Pass& ps, const Block& blk, std::size_t j, const std::vector<std::size_t>& piece_line,
+                       std::vector<std::int32_t>& remap);
+    [[noreturn]] void fail_unterminated(const Pass& ps, const Block& blk) const;
+    // Moves the columns read into `out`.
+    void build_table(Pass& ps, Table& out);
 
     Source& src_;
     const std::string& name_;
@@ -276,259 +336,268 @@ void Reader::take_header(const RecordParse& r, std::size_t header_line, const st
 }
 
 bool Reader::pass(std::vector<char>& text_columns, Table& out) {
-    const MissingTokens missing(opt_.missing_tokens, delim_, opt_.decimal_comma);
-    ParseSetup setup;
-    setup.delim = delim_;
-    setup.decimal_comma = opt_.decimal_comma;
-    setup.missing = &missing;
-    setup.names = &names_;
-
-    Scanner sc;
-    sc.delim = delim_;
-    std::unique_ptr<char[]> buf;
-    std::size_t cap = 0, carry = 0;
-    std::size_t offset = start_;  // next byte of the source to read
-    std::size_t line0 = 1;        // line of buf[0]
-    bool header_done = false;
-    std::size_t header_line = 0;
-    std::vector<std::size_t> row_lines;
-    std::vector<PieceResult> pieces;
-    std::vector<std::size_t> targets, splits, bounds;
-    double rows_per_byte = 0.0;
-    bool reserved = false;
+    Pass ps(opt_, delim_, &names_);
+    ps.offset = start_;
     names_.clear();
     modes_.clear();
     cols_.clear();
-
     for (;;) {
-        const std::size_t block = tuning_.block_size;
-        if (carry + block > cap) {
-            const std::size_t ncap = std::max(carry + block, cap + cap / 2);
-            std::unique_ptr<char[]> nb(new char[ncap]);
-            if (carry) std::memcpy(nb.get(), buf.get(), carry);
-            buf = std::move(nb);
-            cap = ncap;
-        }
-        char* b = buf.get();
-        const std::size_t got = src_.read(offset, b + carry, block);
-        offset += got;
-        const std::size_t len = carry + got;
-        const bool eof = got < block;
-
-        // Split targets spread evenly over the bytes not scanned yet.
-        targets.clear();
-        splits.clear();
-        if (len > sc.pos) {
-            const std::size_t span = len - sc.pos;
-            const std::size_t want =
-                std::min<std::size_t>(threads_, std::max<std::size_t>(1, span / tuning_.min_piece));
-            for (std::size_t k = 1; k < want; ++k) targets.push_back(sc.pos + span / want * k);
-        }
-        sc.scan(b, len, targets, splits);
-        const bool unterminated = eof && sc.in_quotes();
-        std::size_t cut = sc.record_start;
-        if (eof && !unterminated) cut = len;
-        if (!eof && cut == 0) {  // no complete record yet: read more
-            carry = len;
-            report(offset);
+        Block blk = read_block(ps);
+        if (!blk.eof && blk.cut == 0) {  // no complete record yet: read more
+            ps.carry = blk.len;
+            report(ps.offset);
             continue;
         }
+        blk.data_line = ps.line0;
+        if (!ps.header_done) find_header(ps, blk, text_columns);
+        std::size_t line_at_cut = blk.data_line;
+        if (ps.header_done && blk.cut > blk.data_begin) {
+            parse_pieces(ps, blk);
+            if (!take_new_text(ps, blk, text_columns)) return false;
+            reserve_table(ps, blk);
+            line_at_cut = append_pieces(ps, blk);
+        }
+        ps.line0 = line_at_cut;
+        if (blk.unterminated) fail_unterminated(ps, blk);
+        report(ps.offset);
+        if (blk.eof) break;
+        ps.carry = blk.len - blk.cut;
+        if (ps.carry) std::memmove(blk.b, blk.b + blk.cut, ps.carry);
+        ps.sc.shift(blk.cut);
+    }
+    build_table(ps, out);
+    return true;
+}
 
-        std::size_t data_begin = 0, data_line = line0;
-        if (!header_done) {
-            std::size_t p = 0, newlines = 0;
-            RecordParse r;
-            bool found = false;
-            while (p < cut) {
-                r = parse_record(b, p, cut, delim_, eof && cut == len);
-                if (r.status == RecordStatus::Blank) {
-                    newlines += r.newlines;
-                    p = r.next;
-                    continue;
-                }
-                found = r.status != RecordStatus::Incomplete;
+Block Reader::read_block(Pass& ps) {
+    const std::size_t block = tuning_.block_size;
+    if (ps.carry + block > ps.cap) {
+        const std::size_t ncap = std::max(ps.carry + block, ps.cap + ps.cap / 2);
+        std::unique_ptr<char[]> nb(new char[ncap]);
+        if (ps.carry) std::memcpy(nb.get(), ps.buf.get(), ps.carry);
+        ps.buf = std::move(nb);
+        ps.cap = ncap;
+    }
+    Block blk;
+    blk.b = ps.buf.get();
+    const std::size_t got = src_.read(ps.offset, blk.b + ps.carry, block);
+    ps.offset += got;
+    blk.len = ps.carry + got;
+    blk.eof = got < block;
+
+    // Split targets spread evenly over the bytes not scanned yet.
+    ps.targets.clear();
+    ps.splits.clear();
+    if (blk.len > ps.sc.pos) {
+        const std::size_t span = blk.len - ps.sc.pos;
+        const std::size_t want = std::min<std::size_t>(threads_, std::max<std::size_t>(1, span / tuning_.min_piece));
+        for (std::size_t k = 1; k < want; ++k) ps.targets.push_back(ps.sc.pos + span / want * k);
+    }
+    ps.sc.scan(blk.b, blk.len, ps.targets, ps.splits);
+    blk.unterminated = blk.eof && ps.sc.in_quotes();
+    blk.cut = ps.sc.record_start;
+    if (blk.eof && !blk.unterminated) blk.cut = blk.len;
+    return blk;
+}
+
+void Reader::find_header(Pass& ps, Block& blk, const std::vector<char>& text_columns) {
+    std::size_t p = 0, newlines = 0;
+    RecordParse r;
+    bool found = false;
+    while (p < blk.cut) {
+        r = parse_record(blk.b, p, blk.cut, delim_, blk.eof && blk.cut == blk.len);
+        if (r.status == RecordStatus::Blank) {
+            newlines += r.newlines;
+            p = r.next;
+            continue;
+        }
+        found = r.status != RecordStatus::Incomplete;
+        break;
+    }
+    if (!found) {
+        blk.data_begin = blk.cut;  // blank lines only
+        blk.data_line = ps.line0 + newlines;
+        return;
+    }
+    ps.header_line = ps.line0 + newlines;
+    if (r.status == RecordStatus::TextAfterQuote)
+        fail_at(ps.header_line + r.bad_newlines,
+                ", column " + std::to_string(r.bad_field + 1) +
+                    ": text follows the closing quote of a quoted field; write a '\"' inside a quoted "
+                    "field as '\"\"', or remove the text after the closing quote");
+    take_header(r, ps.header_line, text_columns);
+    ps.header_done = true;
+    if (opt_.header) {
+        blk.data_begin = r.next;
+        blk.data_line = ps.header_line + r.newlines;
+    } else {
+        blk.data_begin = p;
+        blk.data_line = ps.header_line;
+    }
+}
+
+void Reader::parse_pieces(Pass& ps, Block& blk) {
+    ps.bounds.assign(1, blk.data_begin);
+    for (const std::size_t s : ps.splits)
+        if (s > ps.bounds.back() && s < blk.cut) ps.bounds.push_back(s);
+    ps.bounds.push_back(blk.cut);
+    const std::size_t np = ps.bounds.size() - 1;
+    blk.pieces = np;
+    if (ps.pieces.size() < np) ps.pieces.resize(np);
+    for (std::size_t j = 0; j < cols_.size(); ++j) modes_[j] = cols_[j].mode;
+    const double bytes = static_cast<double>(blk.cut - blk.data_begin);
+    if (ps.rows_per_byte == 0.0)  // first data block: estimate the density from its line count
+        ps.rows_per_byte = static_cast<double>(count_newlines(blk.b + blk.data_begin, blk.b + blk.cut) + 1) / bytes;
+    const double piece_bytes = bytes / static_cast<double>(np);
+    ps.setup.expected_rows = static_cast<std::size_t>(piece_bytes * ps.rows_per_byte * 1.1) + 16;
+    run_parallel(np, [&](std::size_t k) { parse_one(ps, blk, k); });
+    check_pieces(ps, blk);
+}
+
+void Reader::parse_one(Pass& ps, const Block& blk, std::size_t k) {
+    parse_piece(ps.setup, blk.b + ps.bounds[k], blk.b + ps.bounds[k + 1], modes_, ps.pieces[k]);
+}
+
+void Reader::check_pieces(const Pass& ps, const Block& blk) const {
+    std::size_t line = blk.data_line;
+    for (std::size_t k = 0; k < blk.pieces; ++k) {
+        if (ps.pieces[k].error.set) fail_at(line + ps.pieces[k].error.line, ps.pieces[k].error.rest);
+        line += ps.pieces[k].newlines;
+    }
+}
+
+bool Reader::take_new_text(Pass& ps, const Block& blk, std::vector<char>& text_columns) {
+    const std::size_t np = blk.pieces;
+    std::vector<std::size_t> turned;
+    for (std::size_t j = 0; j < cols_.size(); ++j) {
+        if (cols_[j].mode == Mode::Text) continue;
+        for (std::size_t k = 0; k < np; ++k)
+            if (ps.pieces[k].cols[j].mode == Mode::Text) {
+                turned.push_back(j);
                 break;
             }
-            if (found) {
-                header_line = line0 + newlines;
-                if (r.status == RecordStatus::TextAfterQuote)
-                    fail_at(header_line + r.bad_newlines,
-                            ", column " + std::to_string(r.bad_field + 1) +
-                                ": text follows the closing quote of a quoted field; write a '\"' inside a quoted "
-                                "field as '\"\"', or remove the text after the closing quote");
-                take_header(r, header_line, text_columns);
-                header_done = true;
-                if (opt_.header) {
-                    data_begin = r.next;
-                    data_line = header_line + r.newlines;
-                } else {
-                    data_begin = p;
-                    data_line = header_line;
-                }
-            } else {
-                data_begin = cut;  // blank lines only
-                data_line = line0 + newlines;
-            }
-        }
-
-        std::size_t line_at_cut = data_line;
-        if (header_done && cut > data_begin) {
-            bounds.assign(1, data_begin);
-            for (const std::size_t s : splits)
-                if (s > bounds.back() && s < cut) bounds.push_back(s);
-            bounds.push_back(cut);
-            const std::size_t np = bounds.size() - 1;
-            if (pieces.size() < np) pieces.resize(np);
-            for (std::size_t j = 0; j < cols_.size(); ++j) modes_[j] = cols_[j].mode;
-            if (rows_per_byte == 0.0)  // first data block: estimate the density from its line count
-                rows_per_byte = static_cast<double>(count_newlines(b + data_begin, b + cut) + 1) /
-                                static_cast<double>(cut - data_begin);
-            const double piece_bytes = static_cast<double>(cut - data_begin) / static_cast<double>(np);
-            setup.expected_rows = static_cast<std::size_t>(piece_bytes * rows_per_byte * 1.1) + 16;
-            auto parse = [&](std::size_t k) {
-                parse_piece(setup, b + bounds[k], b + bounds[k + 1], modes_, pieces[k]);
-            };
-            auto check_errors = [&] {
-                std::size_t line = data_line;
-                for (std::size_t k = 0; k < np; ++k) {
-                    if (pieces[k].error.set) fail_at(line + pieces[k].error.line, pieces[k].error.rest);
-                    line += pieces[k].newlines;
-                }
-            };
-            run_parallel(np, parse);
-            check_errors();
-
-            // Columns that met their first text in this block.
-            std::vector<std::size_t> turned;
-            for (std::size_t j = 0; j < cols_.size(); ++j) {
-                if (cols_[j].mode == Mode::Text) continue;
-                for (std::size_t k = 0; k < np; ++k)
-                    if (pieces[k].cols[j].mode == Mode::Text) {
-                        turned.push_back(j);
-                        break;
-                    }
-            }
-            if (!turned.empty()) {
-                for (const std::size_t j : turned) modes_[j] = Mode::Text;
-                run_parallel(np, [&](std::size_t k) {
-                    for (const std::size_t j : turned)
-                        if (pieces[k].cols[j].mode != Mode::Text) {
-                            parse(k);
-                            return;
-                        }
-                });
-                check_errors();
-                bool again = false;
-                for (const std::size_t j : turned)
-                    for (const double v : cols_[j].numbers)
-                        if (v == v) {  // a number already stored: its text is gone
-                            again = true;
-                            break;
-                        }
-                if (again) {
-                    text_columns.assign(cols_.size(), 0);
-                    for (std::size_t j = 0; j < cols_.size(); ++j) text_columns[j] = modes_[j] == Mode::Text;
-                    return false;
-                }
-                for (const std::size_t j : turned) {  // only missing cells so far
-                    FinalColumn& fc = cols_[j];
-                    fc.codes.reserve(std::max(fc.numbers.capacity(), fc.numbers.size()));
-                    fc.codes.assign(fc.numbers.size(), kMissingCode);
-                    std::vector<double>().swap(fc.numbers);
-                    fc.mode = Mode::Text;
-                }
-            }
-
-            // Reserve the whole table once, from the first block's density.
-            std::size_t block_rows = 0;
-            for (std::size_t k = 0; k < np; ++k) block_rows += pieces[k].row_lines.size();
-            rows_per_byte = static_cast<double>(block_rows) / static_cast<double>(cut - data_begin);
-            if (!reserved) {
-                reserved = true;
-                const std::size_t cut_offset = offset - (len - cut);
-                const std::size_t rest = total_ > cut_offset ? total_ - cut_offset : 0;
-                const std::size_t est = row_lines.size() + block_rows +
-                                        static_cast<std::size_t>(static_cast<double>(rest) * rows_per_byte * 1.05) + 16;
-                row_lines.reserve(est);
-                for (auto& fc : cols_) {
-                    if (fc.mode == Mode::Text) fc.codes.reserve(est);
-                    else fc.numbers.reserve(est);
-                }
-            }
-
-            // Append the chunks in order, one column per task (first touch of
-            // the table's memory happens here, so it is spread over threads).
-            std::vector<std::size_t> piece_line(np + 1, data_line);
-            for (std::size_t k = 0; k < np; ++k) piece_line[k + 1] = piece_line[k] + pieces[k].newlines;
-            const std::size_t tasks = cols_.size() + 1;
-            const std::size_t workers = std::min<std::size_t>(threads_, tasks);
-            run_parallel(workers, [&](std::size_t w) {
-                std::vector<std::int32_t> remap;
-                for (std::size_t t = w; t < tasks; t += workers) {
-                    if (t == cols_.size()) {
-                        for (std::size_t k = 0; k < np; ++k)
-                            for (const std::size_t r : pieces[k].row_lines) row_lines.push_back(piece_line[k] + r);
-                        continue;
-                    }
-                    FinalColumn& fc = cols_[t];
-                    for (std::size_t k = 0; k < np; ++k) {
-                        ColumnChunk& ch = pieces[k].cols[t];
-                        if (fc.mode != Mode::Text) {
-                            fc.numbers.insert(fc.numbers.end(), ch.numbers.begin(), ch.numbers.end());
-                            continue;
-                        }
-                        remap.resize(ch.text.levels.size());
-                        for (std::size_t i = 0; i < ch.text.levels.size(); ++i) {
-                            const std::string_view lv = ch.text.levels[i];
-                            const auto it = fc.index.find(lv);
-                            if (it != fc.index.end()) {
-                                remap[i] = it->second;
-                            } else {
-                                const auto code = static_cast<std::int32_t>(fc.store.size());
-                                const std::string& kept = fc.store.emplace_back(lv);
-                                fc.index.emplace(std::string_view(kept), code);
-                                remap[i] = code;
-                            }
-                        }
-                        for (const std::int32_t c : ch.text.codes)
-                            fc.codes.push_back(c < 0 ? kMissingCode : remap[static_cast<std::size_t>(c)]);
-                        if (fc.first_text_line == 0 && ch.first_text_line != npos) {
-                            fc.first_text_line = piece_line[k] + ch.first_text_line;
-                            fc.first_text = ch.first_text;
-                        }
-                    }
-                }
-            });
-            const std::size_t base = piece_line[np];
-            line_at_cut = base;
-        }
-        line0 = line_at_cut;
-
-        if (unterminated) {
-            const std::size_t field = field_index_at(b, cut, sc.quote_open, delim_);
-            const std::string label =
-                header_done ? column_label(&names_, field) : "column " + std::to_string(field + 1);
-            fail_at(line0 + count_newlines(b + cut, b + sc.quote_open),
-                    ", " + label +
-                        ": the quoted field that starts here has no closing quote; add the missing '\"' (write "
-                        "a '\"' inside a quoted field as '\"\"')");
-        }
-        report(offset);
-        if (eof) break;
-        carry = len - cut;
-        if (carry) std::memmove(b, b + cut, carry);
-        sc.shift(cut);
     }
+    if (turned.empty()) return true;
+    for (const std::size_t j : turned) modes_[j] = Mode::Text;
+    run_parallel(np, [&](std::size_t k) {
+        for (const std::size_t j : turned)
+            if (ps.pieces[k].cols[j].mode != Mode::Text) {
+                parse_one(ps, blk, k);
+                return;
+            }
+    });
+    check_pieces(ps, blk);
+    bool again = false;
+    for (const std::size_t j : turned)
+        for (const double v : cols_[j].numbers)
+            if (v == v) {  // a number already stored: its text is gone
+                again = true;
+                break;
+            }
+    if (again) {
+        text_columns.assign(cols_.size(), 0);
+        for (std::size_t j = 0; j < cols_.size(); ++j) text_columns[j] = modes_[j] == Mode::Text;
+        return false;
+    }
+    for (const std::size_t j : turned) {  // only missing cells so far
+        FinalColumn& fc = cols_[j];
+        fc.codes.reserve(std::max(fc.numbers.capacity(), fc.numbers.size()));
+        fc.codes.assign(fc.numbers.size(), kMissingCode);
+        std::vector<double>().swap(fc.numbers);
+        fc.mode = Mode::Text;
+    }
+    return true;
+}
 
-    if (!header_done)
+void Reader::reserve_table(Pass& ps, const Block& blk) {
+    std::size_t block_rows = 0;
+    for (std::size_t k = 0; k < blk.pieces; ++k) block_rows += ps.pieces[k].row_lines.size();
+    ps.rows_per_byte = static_cast<double>(block_rows) / static_cast<double>(blk.cut - blk.data_begin);
+    if (ps.reserved) return;
+    ps.reserved = true;
+    const std::size_t cut_offset = ps.offset - (blk.len - blk.cut);
+    const std::size_t rest = total_ > cut_offset ? total_ - cut_offset : 0;
+    const std::size_t est = ps.row_lines.size() + block_rows +
+                            static_cast<std::size_t>(static_cast<double>(rest) * ps.rows_per_byte * 1.05) + 16;
+    ps.row_lines.reserve(est);
+    for (auto& fc : cols_) {
+        if (fc.mode == Mode::Text) fc.codes.reserve(est);
+        else fc.numbers.reserve(est);
+    }
+}
+
+// One column per task (first touch of the table's memory happens here, so it
+// is spread over threads), the row lines as one more task.
+std::size_t Reader::append_pieces(Pass& ps, const Block& blk) {
+    const std::size_t np = blk.pieces;
+    std::vector<std::size_t> piece_line(np + 1, blk.data_line);
+    for (std::size_t k = 0; k < np; ++k) piece_line[k + 1] = piece_line[k] + ps.pieces[k].newlines;
+    const std::size_t tasks = cols_.size() + 1;
+    const std::size_t workers = std::min<std::size_t>(threads_, tasks);
+    run_parallel(workers, [&](std::size_t w) {
+        std::vector<std::int32_t> remap;
+        for (std::size_t t = w; t < tasks; t += workers) {
+            if (t == cols_.size()) {
+                for (std::size_t k = 0; k < np; ++k)
+                    for (const std::size_t r : ps.pieces[k].row_lines) ps.row_lines.push_back(piece_line[k] + r);
+                continue;
+            }
+            append_column(ps, blk, t, piece_line, remap);
+        }
+    });
+    return piece_line[np];
+}
+
+void Reader::append_column(Pass& ps, const Block& blk, std::size_t j, const std::vector<std::size_t>& piece_line,
+                           std::vector<std::int32_t>& remap) {
+    FinalColumn& fc = cols_[j];
+    for (std::size_t k = 0; k < blk.pieces; ++k) {
+        ColumnChunk& ch = ps.pieces[k].cols[j];
+        if (fc.mode != Mode::Text) {
+            fc.numbers.insert(fc.numbers.end(), ch.numbers.begin(), ch.numbers.end());
+            continue;
+        }
+        remap.resize(ch.text.levels.size());
+        for (std::size_t i = 0; i < ch.text.levels.size(); ++i) {
+            const std::string_view lv = ch.text.levels[i];
+            const auto it = fc.index.find(lv);
+            if (it != fc.index.end()) {
+                remap[i] = it->second;
+            } else {
+                const auto code = static_cast<std::int32_t>(fc.store.size());
+                const std::string& kept = fc.store.emplace_back(lv);
+                fc.index.emplace(std::string_view(kept), code);
+                remap[i] = code;
+            }
+        }
+        for (const std::int32_t c : ch.text.codes)
+            fc.codes.push_back(c < 0 ? kMissingCode : remap[static_cast<std::size_t>(c)]);
+        if (fc.first_text_line == 0 && ch.first_text_line != npos) {
+            fc.first_text_line = piece_line[k] + ch.first_text_line;
+            fc.first_text = ch.first_text;
+        }
+    }
+}
+
+void Reader::fail_unterminated(const Pass& ps, const Block& blk) const {
+    const std::size_t field = field_index_at(blk.b, blk.cut, ps.sc.quote_open, delim_);
+    const std::string label = ps.header_done ? column_label(&names_, field) : "column " + std::to_string(field + 1);
+    fail_at(ps.line0 + count_newlines(blk.b + blk.cut, blk.b + ps.sc.quote_open),
+            ", " + label +
+                ": the quoted field that starts here has no closing quote; add the missing '\"' (write "
+                "a '\"' inside a quoted field as '\"\"')");
+}
+
+void Reader::build_table(Pass& ps, Table& out) {
+    if (!ps.header_done)
         fail(opt_.header ? "the file is empty; expected a header row and data rows"
                          : "the file is empty; expected data rows");
-    if (row_lines.empty())
-        fail("the file has a header (line " + std::to_string(header_line) +
+    if (ps.row_lines.empty())
+        fail("the file has a header (line " + std::to_string(ps.header_line) +
              ") but no data rows; add data rows below the header");
 
     out.source = name_;
-    out.row_lines = std::move(row_lines);
+    out.row_lines = std::move(ps.row_lines);
     out.columns.resize(cols_.size());
     for (std::size_t j = 0; j < cols_.size(); ++j) {
         FinalColumn& fc = cols_[j];
@@ -549,7 +618,6 @@ bool Reader::pass(std::vector<char>& text_columns, Table& out) {
         }
         fc = FinalColumn{};
     }
-    return true;
 }
 
 }  // namespace

@@ -133,7 +133,7 @@ ExportTable comparison_table(const Analysis& a, const AnalysisRun& run) {
 
 ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
     ExportTable t;
-    const bool prob = p.scale == "response";
+    const bool prob = p.scale == ProbeScale::Outcome;
     t.title = "Effect of " + p.focal + (prob ? " on P(" + p.outcome + " = 1)" : " on " + p.outcome) +
               (p.categorical_moderator ? " in each group of " : " at chosen values of ") + p.moderator;
     t.columns = {p.moderator};
@@ -162,15 +162,15 @@ ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
                           format_range(p.observed_range.first, p.observed_range.second) +
                           ". Pointwise intervals; each row is one test.");
     if (prob)
-        t.notes.push_back(p.averaging == "values" ? "Probability scale, at the means and reference levels."
-                                                  : "Probability scale, averaged over the observed rows.");
+        t.notes.push_back(p.averaging == Averaging::AtValues ? "Probability scale, at the means and reference levels."
+                                                             : "Probability scale, averaged over the observed rows.");
     return t;
 }
 
 ExportTable cell_table_export(const CellTable& c) {
     ExportTable t;
     const bool logistic = c.family == Family::Logistic;
-    t.title = "Cells of " + c.row_factor + " × " + c.column_factor + " (" + c.scale + " scale)";
+    t.title = "Cells of " + c.row_factor + " × " + c.column_factor + " (" + to_string(c.scale) + " scale)";
     const std::string lv = level_text(c.level);
     // The predicted value, its interval, SE: the house order (no test: a cell mean is not tested).
     t.columns = {c.row_factor,   c.column_factor, "n", "Observed mean", "Predicted",

@@ -25,8 +25,8 @@ void write_resampled(JsonWriter& w, const ProbeBootstrap& b, std::size_t k) {
     const auto& iv = b.result.intervals[k];
     w.begin_object();
     w.field("label", b.labels[k]);
-    w.field("kind", b.kinds[k]);
-    if (b.kinds[k] == "effect") w.field("moderator_value", b.at[k]);
+    w.field("kind", to_string(b.kinds[k]));
+    if (b.kinds[k] == ProbeStatistic::Effect) w.field("moderator_value", b.at[k]);
     w.field("value", iv.estimate);
     w.field("se", iv.std_error);
     write_bounds(w, "percentile", iv.percentile_lower, iv.percentile_upper);
@@ -43,9 +43,9 @@ void write_probe_bootstrap(JsonWriter& w, const ProbeBootstrap& b) {
     w.field("replicates", r.requested);
     w.field("completed", r.completed);
     w.field("seed", static_cast<long long>(b.seed));
-    w.field("resampling", r.resampling);
+    w.field("resampling", resampling_text(r));
     w.field("level", r.level);
-    w.field("jackknife", r.jackknife);
+    w.field("jackknife", jackknife_text(r));
     w.key("failures").begin_array();
     for (const auto& [reason, count] : r.failures) {
         w.begin_object();
@@ -65,7 +65,7 @@ std::string probe_bootstrap_to_text(const ProbeBootstrap& b) {
     const auto& r = b.result;
     std::ostringstream o;
     char line[320];
-    o << "\nBootstrap (" << r.resampling << ", " << r.completed << " of " << r.requested << " replicates, seed "
+    o << "\nBootstrap (" << resampling_text(r) << ", " << r.completed << " of " << r.requested << " replicates, seed "
       << b.seed << "; " << level_text(r.level) << " intervals):\n";
     // value, intervals, SE: the order of every estimate table of ours.
     std::snprintf(line, sizeof line, "  %-44s %11s %23s %23s %11s\n", "", "value", "percentile", "BCa", "boot. SE");

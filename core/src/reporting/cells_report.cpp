@@ -116,8 +116,8 @@ void write_cell_table(JsonWriter& w, const CellTable& t) {
 
 std::string cell_table_to_text(const CellTable& t) {
     std::ostringstream o;
-    o << "Cell table: " << t.row_factor << " × " << t.column_factor << " (" << t.scale << ", "
-      << standard_errors_text(parse_se_kind(t.covariance)) << " standard errors)\n\n";
+    o << "Cell table: " << t.row_factor << " × " << t.column_factor << " (" << to_string(t.scale) << ", "
+      << standard_errors_text(t.covariance) << " standard errors)\n\n";
     char line[256];
     std::snprintf(line, sizeof line, "  %-18s %-18s %6s %11s %23s %11s\n", t.row_factor.c_str(),
                   t.column_factor.c_str(), "rows", "predicted", "interval", "SE");

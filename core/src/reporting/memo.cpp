@@ -38,11 +38,11 @@ std::vector<int> product_columns(const Design& d, const std::string& focal, cons
 // whether a region is one of positive or negative effects).
 double effect_at(const Analysis& a, const AnalysisRun& run, double m) {
     const ProbeResult& p = *run.probe;
-    if (p.scale != "response") return p.effect_function.effect(m);
+    if (p.scale != ProbeScale::Outcome) return p.effect_function.effect(m);
     ScaleRequest req;
     req.focal = p.focal;
     req.moderator = p.moderator;
-    req.averaging = p.averaging == "values" ? Averaging::AtValues : Averaging::Sample;
+    req.averaging = p.averaging;
     if (!a.roles.second_moderator.empty())
         req.values[a.roles.second_moderator] = std::isnan(a.probe.second_value)
                                                    ? typical_values(run.design).at(a.roles.second_moderator)
@@ -84,7 +84,8 @@ std::string join_and(const std::vector<std::string>& parts) {
 }
 
 std::string effect_of(const ProbeResult& p) {
-    return "the effect of " + p.focal + (p.scale == "response" ? " on P(" + p.outcome + " = 1)" : " on " + p.outcome);
+    return "the effect of " + p.focal +
+           (p.scale == ProbeScale::Outcome ? " on P(" + p.outcome + " = 1)" : " on " + p.outcome);
 }
 
 // ", with w held at 3.2" for a three-way model (its effects are conditional on that value).
@@ -125,7 +126,7 @@ std::string significance_clause(const Analysis& a, const AnalysisRun& run, const
 void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector<std::string>& out) {
     const ProbeResult& p = *run.probe;
     const auto [lo, hi] = p.observed_range;
-    const bool prob = p.scale == "response";
+    const bool prob = p.scale == ProbeScale::Outcome;
     // The product coefficient, on the model's own scale.
     if (a.roles.second_moderator.empty()) {
         const auto cols = product_columns(run.design, p.focal, p.moderator);
@@ -162,9 +163,9 @@ void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector
                       "), " + effect_of(p) + " " + significance_clause(a, run, p.simultaneous->significant) + ".");
     if (prob && p.interaction_effect) {
         const InteractionEffect& ie = *p.interaction_effect;
-        out.push_back("On the probability scale the interaction effect (" + ie.kind + ", " +
-                      (p.averaging == "values" ? "at the means" : "averaged over the observed rows") + ") is " +
-                      format_sig(ie.estimate) + " (" + ci_text(p.level, ie.ci_lower, ie.ci_upper) + ", " +
+        out.push_back(std::string("On the probability scale the interaction effect (") + to_string(ie.kind) + ", " +
+                      (p.averaging == Averaging::AtValues ? "at the means" : "averaged over the observed rows") +
+                      ") is " + format_sig(ie.estimate) + " (" + ci_text(p.level, ie.ci_lower, ie.ci_upper) + ", " +
                       p_clause(ie.p_value) + ").");
     }
     if (!p.effects.empty()) {
@@ -188,9 +189,10 @@ void group_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
         parts.push_back(format_sig(e.estimate) + " (" + ci_text(p.level, e.ci_lower, e.ci_upper) + ") for " +
                         p.moderator + " = " + moderator_value_label(p, e));
     if (!parts.empty()) {
-        std::string s = (p.scale == "response" ? "The effect of " + p.focal + " on P(" + p.outcome + " = 1) is "
-                                               : "The effect of " + p.focal + " on " + p.outcome + " is ") +
-                        join_and(parts) + ".";
+        std::string s =
+            (p.scale == ProbeScale::Outcome ? "The effect of " + p.focal + " on P(" + p.outcome + " = 1) is "
+                                            : "The effect of " + p.focal + " on " + p.outcome + " is ") +
+            join_and(parts) + ".";
         out.push_back(s);
     }
     const auto cols = product_columns(run.design, p.focal, p.moderator);
@@ -219,14 +221,15 @@ void crossover_sentences(const AnalysisRun& run, std::vector<std::string>& out) 
         if (++shown > 3) break;
         // c.groups: "g=0 vs g=1", or "lines at any two values of z" for a numeric moderator.
         const std::string lines = c.groups.rfind("lines", 0) == 0 ? "The " + c.groups : "The lines for " + c.groups;
-        if (c.ci_kind == "none" || !std::isfinite(c.focal_value)) {
+        if (c.ci_kind == FiellerInterval::None || !std::isfinite(c.focal_value)) {
             out.push_back(lines + " are parallel: they do not cross.");
             continue;
         }
         std::string s = lines + " cross at " + p.focal + " = " + format_sig(c.focal_value);
         const std::string lv = level_text(p.level);
-        if (c.ci_kind == "bounded") s += " (" + lv + " Fieller interval " + format_range(c.ci_lower, c.ci_upper) + ")";
-        else if (c.ci_kind == "unbounded")
+        if (c.ci_kind == FiellerInterval::Bounded)
+            s += " (" + lv + " Fieller interval " + format_range(c.ci_lower, c.ci_upper) + ")";
+        else if (c.ci_kind == FiellerInterval::Unbounded)
             s += " (the " + lv + " Fieller interval is unbounded: " + p.focal + " below " + format_sig(c.ci_lower) +
                  " or above " + format_sig(c.ci_upper) + ")";
         else s += " (the " + lv + " Fieller interval is the whole line: the crossing point is not pinned down)";

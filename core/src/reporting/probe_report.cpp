@@ -14,12 +14,6 @@ namespace moderato {
 
 namespace {
 
-// The probe's scale as the enum (the result holds its text today).
-ProbeScale scale_of(const ProbeResult& r) { return r.scale == "response" ? ProbeScale::Outcome : ProbeScale::Model; }
-Averaging averaging_of(const ProbeResult& r) {
-    return r.averaging == "values" ? Averaging::AtValues : Averaging::Sample;
-}
-
 // ------------------------------------------------------------------ JSON
 
 // Boundaries, the intervals where the effect differs from zero, and how
@@ -27,14 +21,14 @@ Averaging averaging_of(const ProbeResult& r) {
 void write_region_fields(JsonWriter& w, const SignificanceRegions& s) {
     write_numbers(w, "boundaries", s.boundaries);
     write_intervals(w, "intervals", s.significant);
-    w.field("shape", s.kind);
+    w.field("shape", kind_text(s));
 }
 
 void write_setting(JsonWriter& w, const ProbeResult& r) {
     w.field("focal", r.focal);
     w.field("moderator", r.moderator);
-    w.field("scale", scale_name(scale_of(r)));
-    if (scale_of(r) == ProbeScale::Outcome) w.field("averaging", averaging_name(averaging_of(r)));
+    w.field("scale", scale_name(r.scale));
+    if (r.scale == ProbeScale::Outcome) w.field("averaging", averaging_name(r.averaging));
     w.field("level", r.level);
     w.field("df", r.df);
     w.field("critical_value", r.critical_t);
@@ -91,9 +85,9 @@ void write_crossing(JsonWriter& w, const Crossover& c) {
     w.field("at", c.focal_value);
     w.field("low", c.ci_lower);
     w.field("high", c.ci_upper);
-    w.field("interval_kind", c.ci_kind);
+    w.field("interval_kind", to_string(c.ci_kind));
     w.field("inside_data", c.within_observed_range);
-    w.field("form", c.form);
+    w.field("form", to_string(c.form));
     w.key("lines_differ").begin_object();
     w.field("critical_value", c.gap_regions.critical_value);
     write_region_fields(w, c.gap_regions);
@@ -142,7 +136,7 @@ std::string regions_text(const std::vector<Region>& regions) {
 }
 
 void write_heading(std::ostringstream& o, const ProbeResult& r, const FitResult& fit) {
-    const bool outcome = scale_of(r) == ProbeScale::Outcome;
+    const bool outcome = r.scale == ProbeScale::Outcome;
     o << "Effect of " << r.focal << " at chosen values of " << r.moderator
       << (outcome ? " (probability scale)" : (fit.family == Family::Logistic ? " (log-odds scale)" : "")) << "\n";
     o << "Standard errors: " << standard_errors_text(fit.se) << " · " << level_text(r.level) << " intervals · "
@@ -180,7 +174,7 @@ void write_regions_text(std::ostringstream& o, const ProbeResult& r) {
         o << "\nRegion of significance (Johnson–Neyman, pointwise " << level_text(r.level)
           << "): the effect differs from zero "
           << (jn.significant.empty() ? "nowhere" : "for " + r.moderator + " " + regions_text(jn.significant)) << "\n";
-        if (scale_of(r) == ProbeScale::Outcome) o << "  (" << jn.kind << ")\n";
+        if (r.scale == ProbeScale::Outcome) o << "  (" << kind_text(jn) << ")\n";
         for (std::size_t i = 0; i < jn.boundaries.size(); ++i)
             o << "  boundary " << num(jn.boundaries[i]) << (r.jn_beyond_data[i] ? "  (beyond the data)" : "") << "\n";
     }
@@ -194,16 +188,16 @@ void write_regions_text(std::ostringstream& o, const ProbeResult& r) {
 void write_crossings_text(std::ostringstream& o, const ProbeResult& r) {
     for (const auto& c : r.crossovers) {
         o << "\nCrossover (" << c.groups << "): ";
-        if (c.ci_kind == "none") {
+        if (c.ci_kind == FiellerInterval::None) {
             o << "the lines do not cross (parallel or curved)\n";
             continue;
         }
         o << r.focal << " = " << num(c.focal_value) << ", " << level_text(r.level) << " Fieller interval ";
-        if (c.ci_kind == "bounded") o << "[" << num(c.ci_lower) << ", " << num(c.ci_upper) << "]";
-        else if (c.ci_kind == "whole line") o << "the whole line";
+        if (c.ci_kind == FiellerInterval::Bounded) o << "[" << num(c.ci_lower) << ", " << num(c.ci_upper) << "]";
+        else if (c.ci_kind == FiellerInterval::WholeLine) o << "the whole line";
         else o << "outside (" << num(c.ci_lower) << ", " << num(c.ci_upper) << ")";
         o << " — " << (c.within_observed_range ? "inside" : "outside") << " the observed " << r.focal << " range ("
-          << num(r.focal_range.first) << " to " << num(r.focal_range.second) << "): " << c.form << "\n";
+          << num(r.focal_range.first) << " to " << num(r.focal_range.second) << "): " << to_string(c.form) << "\n";
         o << "  the groups differ for " << r.focal << " " << regions_text(c.gap_regions.significant) << "\n";
     }
 }
@@ -211,7 +205,7 @@ void write_crossings_text(std::ostringstream& o, const ProbeResult& r) {
 void write_closing_text(std::ostringstream& o, const ProbeResult& r) {
     if (r.interaction_effect) {
         const auto& ie = *r.interaction_effect;
-        o << "\nInteraction on the probability scale (" << ie.kind << ", Ai & Norton): " << num(ie.estimate)
+        o << "\nInteraction on the probability scale (" << to_string(ie.kind) << ", Ai & Norton): " << num(ie.estimate)
           << " (interval " << num(ie.ci_lower) << " to " << num(ie.ci_upper) << ", SE " << num(ie.std_error) << ", p "
           << format_p(ie.p_value) << ")\n";
     }
@@ -232,7 +226,7 @@ void write_probe_fields(JsonWriter& w, const ProbeResult& r) {
     write_crossings(w, r);
     if (r.interaction_effect) {
         w.key("interaction_on_outcome_scale").begin_object();
-        w.field("kind", r.interaction_effect->kind);
+        w.field("kind", to_string(r.interaction_effect->kind));
         write_inference(w, *r.interaction_effect);
         w.end_object();
     }

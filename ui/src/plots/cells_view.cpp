@@ -411,7 +411,7 @@ void CellsView::fillNote(const CellTable& c) {
     QStringList notes;
     notes << tr("Scale: %1. SEs: %2. Intervals: %3.")
                  .arg(linear ? tr("the outcome's mean") : tr("log-odds (probabilities by the inverse logit)"),
-                      seText_.isEmpty() ? QString::fromStdString(c.covariance) : seText_, lvl);
+                      seText_.isEmpty() ? QString::fromLatin1(to_string(c.covariance)) : seText_, lvl);
     if (c.notes.empty() && !held_.isEmpty()) notes << tr("Other predictors held at %1.").arg(held_);
     for (const auto& n : c.notes) {
         QString text = QString::fromStdString(n);

@@ -14,7 +14,7 @@ ProbeEngine::ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis&
     held_ = typical_values(d);
     request_.focal = focal();
     request_.moderator = moderator();
-    request_.averaging = p.averaging == "values" ? Averaging::AtValues : Averaging::Sample;
+    request_.averaging = p.averaging;
     const std::string& second = analysis_.roles.second_moderator;
     if (!second.empty()) {
         // Its mean (numeric) or reference level (categorical) unless a value is chosen.

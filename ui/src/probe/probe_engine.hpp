@@ -28,7 +28,7 @@ public:
     const Analysis& analysis() const { return analysis_; }
 
     bool groups() const { return run_->kind == ProbeKind::Groups; }
-    bool probability() const { return probe().scale == "response"; }
+    bool probability() const { return probe().scale == ProbeScale::Outcome; }
     bool logistic() const { return run_->fit.family == Family::Logistic; }
     const std::string& focal() const { return analysis_.roles.focal; }
     const std::string& moderator() const { return analysis_.roles.moderator; }

@@ -44,14 +44,6 @@ QString seLabel(SeKind s, Family f) {
     return seKindName(s);
 }
 
-QString seFromText(const std::string& text, Family f) {
-    try {
-        return seLabel(parse_se_kind(text), f);
-    } catch (...) {
-        return QString::fromStdString(text);
-    }
-}
-
 // "F(2, 145) = 12.31, p &lt; 0.001" or "χ²(2) = 24.62, p = 0.012" (rich text).
 QString testText(double statistic, double df1, double df2, double chiSquare, double p) {
     const QString text =
@@ -69,16 +61,19 @@ QString row(const QString& label, const QString& value) {
 // centre subtracted, e.g. "(nitrogen_kg_ha − 112.4)×(soil_moisture_pct − 30.12)".
 QStringList centredLabels(const AnalysisRun& run) {
     QStringList out;
-    for (const auto& c : run.fit.coefficients) {
+    for (const DesignColumn& c : run.design.columns) {
+        if (c.atoms.empty()) {  // the intercept
+            out << QString::fromStdString(c.label);
+            continue;
+        }
         QStringList parts;
-        for (const std::string& factor : labelFactors(c.term)) {
-            const std::string col = factorColumn(factor);
-            const auto it = run.centres.find(col);
-            if (it == run.centres.end() || factor != col) {
-                parts << QString::fromStdString(factor);
+        for (const Atom& a : c.atoms) {
+            const auto it = run.centres.find(a.column);
+            if (it == run.centres.end() || !a.level.empty() || a.power != 1) {
+                parts << QString::fromStdString(atom_label(a));
                 continue;
             }
-            parts << QStringLiteral("(%1 \u2212 %2)").arg(QString::fromStdString(col), numberText(it->second));
+            parts << QStringLiteral("(%1 \u2212 %2)").arg(QString::fromStdString(a.column), numberText(it->second));
         }
         out << parts.join(QStringLiteral("\u00d7"));
     }
@@ -318,7 +313,7 @@ void EstimatesSection::showComparison(const FitResult& main) {
                        .arg(terms, testText(0, c.df1, INFINITY, c.lr_statistic, c.lr_p_value));
         }
         text += tr("<br>Wald test of the same terms with the %1 covariance: %2.")
-                    .arg(seFromText(c.wald.covariance, main.family).toHtmlEscaped(),
+                    .arg(seLabel(c.wald.covariance, main.family).toHtmlEscaped(),
                          testText(c.wald.statistic, c.wald.df1, c.wald.df2, c.wald.chi_square, c.wald.p_value));
         comparison_->setText(text);
     } else {

@@ -398,13 +398,11 @@ QString ProbeSection::effectTitle() const {
 
 QString ProbeSection::productCoefficientText() const {
     // " (setup_sessions×employees = 0.0003627)": the fit's own coefficient, when the model has one product term.
-    const FitResult& fit = run_->fit;
-    const std::string f = engine_.focal(), m = engine_.moderator();
-    for (const std::string& term : {f + "×" + m, m + "×" + f}) {
-        const int i = fit.index_of(term);
-        if (i >= 0) return QStringLiteral(" (%1 = %2)").arg(q(term), numberText(fit.beta[i]));
-    }
-    return {};
+    const Design& d = run_->design;
+    const int i = d.column_of({{engine_.focal(), "", 1}, {engine_.moderator(), "", 1}});
+    if (i < 0) return {};
+    return QStringLiteral(" (%1 = %2)")
+        .arg(q(d.columns[static_cast<std::size_t>(i)].label), numberText(run_->fit.beta[i]));
 }
 
 QString ProbeSection::outcomeWhat() const {
@@ -453,8 +451,8 @@ void ProbeSection::fillReadoutContext() {
     const QString level = levelText(p.level);
     QString scale;
     if (engine_.probability())
-        scale = p.averaging == "values" ? tr("Probability scale, other predictors at their means")
-                                        : tr("Probability scale, averaged over the observed rows");
+        scale = p.averaging == Averaging::AtValues ? tr("Probability scale, other predictors at their means")
+                                                   : tr("Probability scale, averaged over the observed rows");
     else if (engine_.logistic()) scale = tr("Log-odds scale");
     else scale = tr("Outcome scale");
     QString statement = tr("%1 · %2 SEs · %3 pointwise interval").arg(scale, seDescription(a, *run_), level);
@@ -602,7 +600,7 @@ void ProbeSection::addCrossings(LinesPlotData& l, const QString& level) {
         LinesPlotData::Crossing cr;
         cr.x = x.focal_value;
         cr.y = pt.front().estimate;
-        cr.bounded = x.ci_kind == "bounded";
+        cr.bounded = x.ci_kind == FiellerInterval::Bounded;
         cr.lower = x.ci_lower;
         cr.upper = x.ci_upper;
         l.crossings.push_back(cr);
@@ -686,7 +684,7 @@ void ProbeSection::summarizeInteraction(SummaryText& out) {
         const auto& ie = *p.interaction_effect;
         const QString level = levelText(p.level);
         out.section(tr("Interaction on the probability scale"));
-        QString kind = q(ie.kind);
+        QString kind = QString::fromLatin1(to_string(ie.kind));
         if (!kind.isEmpty()) kind[0] = kind[0].toUpper();
         out.line(tr("%1 of P(%2 = 1): %3 (SE %4, %5 CI %6 to %7, p %8)")
                      .arg(kind, q(engine_.outcome()), numberText(ie.estimate), numberText(ie.std_error), level,
@@ -695,8 +693,8 @@ void ProbeSection::summarizeInteraction(SummaryText& out) {
                     "on the log-odds scale%5 is not this: it does not give the size, or even the sign, of the "
                     "interaction on the probability scale.")
                      .arg(q(engine_.focal()), q(engine_.outcome()), mod,
-                          p.averaging == "values" ? tr("at the means of the other predictors")
-                                                  : tr("averaged over the observed rows"),
+                          p.averaging == Averaging::AtValues ? tr("at the means of the other predictors")
+                                                             : tr("averaged over the observed rows"),
                           productCoefficientText()));
         out.end();
     } else if (engine_.logistic()) {
@@ -717,8 +715,10 @@ void ProbeSection::summarizeRegions(SummaryText& out) {
     const SignificanceRegions* r = engine_.regions(sim);
     out.section(sim ? tr("Region of significance (simultaneous band)") : tr("Region of significance (Johnson–Neyman)"));
     if (!r) {
-        for (const auto& n : p.notes)
-            if (n.find("no region of significance") != std::string::npos) out.line(q(n));
+        if (p.binary_moderator)
+            out.line(tr("%1 takes only the values 0 and 1: the effects at 0 and 1 are the whole story, so no region "
+                        "of significance over %1 is reported")
+                         .arg(mod));
     } else {
         if (sim)
             out.line(tr("Where the whole simultaneous band excludes zero (critical value %1).")
@@ -753,12 +753,12 @@ void ProbeSection::summarizeCrossovers(SummaryText& out) {
         if (!std::isfinite(c.focal_value)) continue;
         any = true;
         QString interval;
-        if (c.ci_kind == "bounded")
+        if (c.ci_kind == FiellerInterval::Bounded)
             interval = tr("interval %1 to %2").arg(numberText(c.ci_lower), numberText(c.ci_upper));
-        else if (c.ci_kind == "unbounded")
+        else if (c.ci_kind == FiellerInterval::Unbounded)
             interval =
                 tr("interval unbounded: below %1 and above %2").arg(numberText(c.ci_lower), numberText(c.ci_upper));
-        else if (c.ci_kind == "whole line") interval = tr("the interval is the whole line");
+        else if (c.ci_kind == FiellerInterval::WholeLine) interval = tr("the interval is the whole line");
         const auto [flo, fhi] = engine_.focalRange();
         out.line(tr("%1: the lines cross at %2 = %3 (%4), %5.")
                      .arg(q(c.groups), q(engine_.focal()), numberText(c.focal_value), interval,

@@ -185,30 +185,6 @@ QString interactionReading(const Analysis& a, const Table* table, const Analysis
 
 }  // namespace
 
-std::vector<std::string> labelFactors(const std::string& label) {
-    std::vector<std::string> out;
-    const std::string sep = "\u00d7";
-    std::size_t start = 0;
-    while (true) {
-        const std::size_t at = label.find(sep, start);
-        out.push_back(label.substr(start, at == std::string::npos ? std::string::npos : at - start));
-        if (at == std::string::npos) break;
-        start = at + sep.size();
-    }
-    return out;
-}
-
-std::string factorColumn(const std::string& factor) {
-    const std::size_t eq = factor.find('=');
-    if (eq != std::string::npos) return factor.substr(0, eq);
-    const std::size_t hat = factor.rfind('^');
-    if (hat != std::string::npos && hat + 1 < factor.size() &&
-        std::all_of(factor.begin() + static_cast<long>(hat) + 1, factor.end(),
-                    [](char c) { return c >= '0' && c <= '9'; }))
-        return factor.substr(0, hat);
-    return factor;
-}
-
 bool runMatches(const AnalysisRun& run, const Analysis& a) {
     const ModelSpec s = model_spec(a);
     return run.analysis_id == a.id && run.spec.outcome == s.outcome && run.spec.predictors == s.predictors &&

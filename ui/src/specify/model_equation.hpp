@@ -33,10 +33,4 @@ ModelEquation modelEquation(const Analysis& a, const Table* table, const Analysi
 // "n = 150 rows used; 3 excluded (rows missing soil_moisture_pct: 2)".
 QString rowsUsedText(const FitResult& fit);
 
-// The column a factor of a coefficient label refers to ("region=North" ->
-// "region", "x^2" -> "x").
-std::string factorColumn(const std::string& factor);
-// The factors of a label ("x×region=North" -> {"x", "region=North"}).
-std::vector<std::string> labelFactors(const std::string& label);
-
 }  // namespace moderato::ui

@@ -73,6 +73,9 @@ struct BootstrapInterval {
     int valid_replicates = 0;  // replicates with a finite value of this statistic
 };
 
+// What a replicate draws with replacement: rows, or whole clusters.
+enum class Resampling { Cases, Clusters };
+
 struct BootstrapResult {
     int requested = 0;
     // Replicates whose fit succeeded and whose statistic is finite in every
@@ -87,15 +90,21 @@ struct BootstrapResult {
     std::vector<std::pair<std::string, int>> failures;
     std::vector<BootstrapInterval> intervals;  // m, one per statistic value
     Eigen::MatrixXd replicates;                // R x m; rows of failed fits are NaN
-    std::string resampling;                    // "cases" or "clusters (G = 40)"
-    // The jackknife behind the acceleration: "leave one row out (n = 80)",
-    // "leave one cluster out (G = 40)", or "grouped: 200 groups (row i in
-    // group i mod 200)" (delete-d jackknife, used above 200 rows or clusters).
-    std::string jackknife;
+    Resampling resampling = Resampling::Cases;
+    int units = 0;  // rows (cases) or clusters the replicates draw from
+    // The jackknife behind the acceleration leaves out one of `jackknife_groups`
+    // groups of units at a time: unit i is in group i mod jackknife_groups
+    // (one unit per group up to 200 units; a delete-d jackknife above).
     int jackknife_groups = 0;
     double level = 0.95;
     std::vector<std::string> warnings;
 };
+
+// "cases" or "clusters (G = 40)".
+std::string resampling_text(const BootstrapResult& result);
+// "leave one row out (n = 80)", "leave one cluster out (G = 40)", or
+// "grouped: 200 groups (row i in group i mod 200)".
+std::string jackknife_text(const BootstrapResult& result);
 
 // Throws InputError for fewer than 100 replicates, a level outside (0, 1),
 // fewer than 10 rows or fewer than twice as many rows as coefficients, fewer

@@ -23,6 +23,9 @@ struct Atom {
     bool operator==(const Atom&) const = default;
 };
 
+// How a factor appears in a design column's label: "x", "x^2", "region=North".
+std::string atom_label(const Atom& atom);
+
 struct DesignColumn {
     std::string label;        // "intercept", "x", "x^2", "region=North", "x×z"
     std::vector<Atom> atoms;  // empty for the intercept
@@ -88,6 +91,9 @@ struct Design {
     // Design columns of product terms (two or more distinct columns; powers of
     // one column are not products).
     std::vector<int> product_columns() const;
+    // Index of the design column whose factors are exactly `atoms` (in any
+    // order), or -1.
+    int column_of(const std::vector<Atom>& atoms) const;
 };
 
 // Throws InputError for: unknown columns, non-numeric outcome, logistic

@@ -27,7 +27,7 @@ struct WaldTest {
     double df1 = 0, df2 = 0;  // df2 = inf: chi-square(df1) reference
     double chi_square = 0;    // q * statistic
     double p_value = 0;
-    std::string covariance;  // the covariance kind used
+    SeKind covariance = SeKind::Classical;  // the covariance kind used
 };
 
 // The model with and without all product terms, fitted on the same rows.

@@ -55,12 +55,17 @@ struct InteractionContrast : Inference {
     bool estimable = true;
 };
 
+// The scale of the cell estimates: the outcome's mean (linear models) or
+// the log-odds (logistic models).
+enum class CellScale { Mean, LogOdds };
+const char* to_string(CellScale scale);  // "mean", "log-odds"
+
 struct CellTable {
     std::string row_factor, column_factor;
     std::vector<std::string> row_levels, column_levels;  // reference first
     Family family = Family::Linear;
-    std::string scale;       // "mean" or "log-odds"
-    std::string covariance;  // SE kind, as in to_string(SeKind)
+    CellScale scale = CellScale::Mean;
+    SeKind covariance = SeKind::Classical;
     double level = 0.95, df = 0, critical_value = 0;
     // Every other model column as the cells hold it (numeric: value;
     // categorical: level index, reference = 0).

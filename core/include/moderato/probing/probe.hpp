@@ -12,6 +12,7 @@
 
 #include "moderato/estimation/design.hpp"
 #include "moderato/estimation/fit.hpp"
+#include "moderato/probing/scale.hpp"
 
 namespace moderato {
 
@@ -52,14 +53,31 @@ private:
     Eigen::MatrixXd v_;
 };
 
+// What the significant set looks like, or how it was found.
+enum class RegionsKind {
+    Everywhere,       // every moderator value
+    Nowhere,          // no moderator value
+    OneBoundary,      // a half line (the degenerate linear case)
+    Outside,          // outside two boundaries
+    Between,          // between two boundaries
+    PolynomialRoots,  // higher degree: between the real roots of a polynomial
+    Scan,             // probability scale: a scan of the moderator over scan_from..scan_to
+};
+
 // Where an effect differs from zero at a critical value q: the set of m with
 // effect(m)^2 > q^2 var(m).
 struct SignificanceRegions {
     double critical_value = 0;
     std::vector<double> boundaries;   // sorted
     std::vector<Region> significant;  // disjoint, sorted; +-inf for unbounded
-    std::string kind;                 // "two boundaries, significant outside", ...
+    RegionsKind kind = RegionsKind::Nowhere;
+    double scan_from = 0, scan_to = 0;  // Scan: the range scanned
 };
+
+// "significant everywhere", "significant nowhere", "one boundary (degenerate
+// case)", "significant outside the two boundaries", "significant between the
+// two boundaries", "roots of a polynomial", "scan of the moderator from A to B".
+std::string kind_text(const SignificanceRegions& regions);
 
 // Exact for effects linear in m (roots of a quadratic, every case); for
 // higher degrees, the real roots of the polynomial effect^2 - q^2 var (from
@@ -75,13 +93,22 @@ struct ProbeSpec {
     std::vector<double> at;                                          // moderator values; empty: defaults
 };
 
+// The Fieller interval of a crossover point: Bounded [lo, hi]; Unbounded
+// (-inf, lo] U [hi, inf); WholeLine; None (the lines do not cross).
+enum class FiellerInterval { Bounded, Unbounded, WholeLine, None };
+const char* to_string(FiellerInterval interval);  // "bounded", "unbounded", "whole line", "none"
+
+// Disordinal: the lines cross inside the observed focal range; Ordinal: they
+// do not (they cross outside it, or not at all).
+enum class CrossoverForm { Disordinal, Ordinal };
+const char* to_string(CrossoverForm form);  // "disordinal", "ordinal"
+
 struct Crossover {
     double focal_value = std::numeric_limits<double>::quiet_NaN();
     double ci_lower = std::numeric_limits<double>::quiet_NaN(), ci_upper = std::numeric_limits<double>::quiet_NaN();
-    // "bounded" [lo, hi]; "unbounded" (-inf, lo] U [hi, inf); "whole line"; "none" (parallel lines)
-    std::string ci_kind = "none";
+    FiellerInterval ci_kind = FiellerInterval::None;
     bool within_observed_range = false;
-    std::string form;    // "disordinal" (crossing inside the data) or "ordinal"
+    CrossoverForm form = CrossoverForm::Ordinal;
     std::string groups;  // which lines: "g=0 vs g=1", "z at 1.2 vs 3.4"
     // Where the two groups' predictions differ (the Johnson–Neyman technique
     // applied to the group gap over the focal predictor).
@@ -100,17 +127,27 @@ struct SurfaceGrid {
 SurfaceGrid surface_grid(const Design& design, const FitResult& fit, const std::string& x, const std::string& z,
                          int nx = 41, int nz = 41, const std::map<std::string, double>& values = {});
 
+// How an interaction on the probability scale is measured: CrossPartial
+// (focal and moderator continuous), SlopeDifference (one of them 0/1),
+// DoubleDifference (both 0/1).
+enum class InteractionMeasure { CrossPartial, SlopeDifference, DoubleDifference };
+// "cross-partial derivative", "difference in slopes", "double difference"
+const char* to_string(InteractionMeasure measure);
+
 // An interaction effect on the probability scale (see response_scale.hpp).
 struct InteractionEffect : Inference {
-    std::string kind;  // "cross-partial derivative", "difference in slopes", "double difference"
+    InteractionMeasure kind = InteractionMeasure::CrossPartial;
 };
 
 struct ProbeResult {
     std::string outcome, focal, moderator;
-    std::string scale = "link";                           // "link" or "response" (probability)
-    std::string averaging;                                // response scale: "sample" or "values"
-    std::optional<InteractionEffect> interaction_effect;  // response scale
+    ProbeScale scale = ProbeScale::Model;                 // Outcome: the probability scale
+    Averaging averaging = Averaging::Sample;              // outcome scale only
+    std::optional<InteractionEffect> interaction_effect;  // outcome scale
     bool categorical_moderator = false;
+    // A numeric moderator that takes only the values 0 and 1 among the used
+    // rows: its effects at 0 and 1 are reported, no region of significance.
+    bool binary_moderator = false;
     double level = 0.95, df = 0, critical_t = 0;
     std::pair<double, double> observed_range{0, 0};  // moderator, used rows
     std::pair<double, double> focal_range{0, 0};

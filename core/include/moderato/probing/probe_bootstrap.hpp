@@ -12,10 +12,15 @@
 
 namespace moderato {
 
+// What a bootstrapped statistic of a probe is: a conditional effect, a
+// Johnson–Neyman boundary or the crossover point.
+enum class ProbeStatistic { Effect, Boundary, Crossover };
+const char* to_string(ProbeStatistic statistic);  // "effect", "boundary", "crossover"
+
 struct ProbeBootstrap {
     std::vector<std::string> labels;  // one per statistic, e.g. "effect at z = 1.5", "boundary 1", "crossover"
-    std::vector<std::string> kinds;   // "effect", "boundary", "crossover"
-    std::vector<double> at;           // moderator value (effects), index (boundaries), NaN (crossover)
+    std::vector<ProbeStatistic> kinds;
+    std::vector<double> at;  // moderator value (effects), index (boundaries), NaN (crossover)
     BootstrapResult result;
     std::uint64_t seed = 0;
 };
