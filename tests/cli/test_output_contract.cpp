@@ -23,11 +23,13 @@
 
 #include "cli_json.hpp"
 #include "cli_runner.hpp"
+#include "common/tolerance.hpp"
 
 namespace {
 
 namespace fs = std::filesystem;
 using moderato::test::expect_version_two;
+using moderato::test::rel;
 using moderato::test::run_cli;
 using moderato::test::RunResult;
 using nlohmann::json;
@@ -61,8 +63,6 @@ json run_json(std::vector<std::string> args) {
     expect_version_two(r.out, j, args.front() + " " + (args.size() > 1 ? args[1] : ""));
     return j;
 }
-
-double rel(double a, double b) { return std::abs(a - b) / std::max(std::abs(b), 1e-300); }
 
 const json& term(const json& fit, const std::string& name) {
     for (const auto& t : fit.at("terms"))

@@ -15,6 +15,7 @@
 #include <random>
 
 #include "common/table_builder.hpp"
+#include "common/tolerance.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/probing/cells.hpp"
 #include "moderato/reading/csv.hpp"
@@ -29,11 +30,6 @@ namespace {
 
 // 0.975 quantile of the standard normal (common practice: 1.959963984540054).
 constexpr double kZ975 = 1.959963984540054;
-
-double rel(double a, double b) {
-    if (a == b) return 0;
-    return std::abs(a - b) / std::max(std::abs(b), 1e-300);
-}
 
 double logit(double p) { return std::log(p / (1 - p)); }
 double expit(double x) { return 1 / (1 + std::exp(-x)); }

@@ -10,10 +10,12 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 
+#include "common/tolerance.hpp"
 #include "moderato/probing/probe_curves.hpp"
 #include "moderato/reading/csv.hpp"
 
 using namespace moderato;
+using moderato::test::rel;
 namespace fs = std::filesystem;
 using nlohmann::json;
 
@@ -26,8 +28,6 @@ fs::path fixture_dir() {
     }
     return fs::path(MODERATO_REFERENCE_DIR) / "fixtures";
 }
-
-double rel(double a, double b) { return a == b ? 0 : std::abs(a - b) / std::max(std::abs(b), 1e-300); }
 
 }  // namespace
 

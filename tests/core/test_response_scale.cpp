@@ -10,12 +10,14 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 
+#include "common/tolerance.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/probing/response_scale.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/support/error.hpp"
 
 using namespace moderato;
+using moderato::test::rel;
 namespace fs = std::filesystem;
 
 namespace {
@@ -41,8 +43,6 @@ LogitCase logit_case() {
     c.fit = fit_design(c.design, s);
     return c;
 }
-
-double rel(double a, double b) { return std::abs(a - b) / std::abs(b); }
 
 }  // namespace
 

@@ -15,11 +15,13 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 
+#include "common/tolerance.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/probing/probe.hpp"
 #include "moderato/reading/csv.hpp"
 
 using namespace moderato;
+using moderato::test::rel;
 namespace fs = std::filesystem;
 using nlohmann::json;
 
@@ -52,11 +54,6 @@ std::vector<fs::path> cases(const fs::path& dir) {
     }
     std::sort(out.begin(), out.end());
     return out;
-}
-
-double rel(double a, double b) {
-    if (a == b) return 0;
-    return std::abs(a - b) / std::max(std::abs(b), 1e-300);
 }
 
 struct Loaded {

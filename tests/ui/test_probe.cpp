@@ -17,6 +17,7 @@
 #include <fstream>
 #include <random>
 
+#include "common/tolerance.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "moderato/probing/probe_curves.hpp"
@@ -35,6 +36,7 @@
 
 using namespace moderato;
 using namespace moderato::ui;
+using moderato::test::rel;
 
 namespace {
 
@@ -101,8 +103,6 @@ void drag(EffectPlot* plot, double to, int steps = 12) {
     for (int i = 1; i <= steps; ++i) QTest::mouseMove(p, QPoint(x0 + (x1 - x0) * i / steps, y));
     QTest::mouseRelease(p, Qt::LeftButton, Qt::NoModifier, QPoint(x1, y));
 }
-
-double rel(double a, double b) { return a == b ? 0 : std::abs(a - b) / std::max(std::abs(b), 1e-300); }
 
 // Four significant digits as the workbench writes numbers (common practice; see test::fourDigits).
 QString g4(double v) { return test::fourDigits(v); }

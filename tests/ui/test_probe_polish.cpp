@@ -22,6 +22,7 @@
 
 #include "common/figure_caption.hpp"
 #include "common/held_value_text.hpp"
+#include "common/tolerance.hpp"
 #include "data/dataset_page.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
@@ -43,6 +44,7 @@
 
 using namespace moderato;
 using namespace moderato::ui;
+using moderato::test::rel;
 
 namespace {
 
@@ -105,8 +107,6 @@ struct Window {
 
 // Four significant digits as the workbench writes numbers (common practice; see test::fourDigits).
 QString g4(double v) { return test::fourDigits(v); }
-
-double rel(double a, double b) { return a == b ? 0 : std::abs(a - b) / std::max(std::abs(b), 1e-300); }
 
 int coefficient(const FitResult& fit, std::vector<std::string> factors) {
     std::sort(factors.begin(), factors.end());
