@@ -23,6 +23,7 @@
 
 #include "cli_json.hpp"
 #include "cli_runner.hpp"
+#include "common/reference_fixtures.hpp"
 #include "common/tolerance.hpp"
 
 namespace {
@@ -38,20 +39,9 @@ const std::string kData = MODERATO_TEST_DATA_DIR;
 const std::string kSamples = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects";
 
 // The folder of the statsmodels fixtures: the build's live run, else the committed one.
-fs::path fixtures() {
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live)
-        if (fs::exists(fs::path(live) / "ols_binary_continuous.json")) return live;
-    return fs::path(MODERATO_REFERENCE_DIR) / "fixtures";
-}
+fs::path fixtures() { return moderato::test::reference_fixture_dir("ols_binary_continuous.json"); }
 
-json fixture(const std::string& name) {
-    std::ifstream in(fixtures() / name);
-    if (!in) {
-        ADD_FAILURE() << "cannot open the fixture " << name;
-        return json::object();
-    }
-    return json::parse(in);
-}
+json fixture(const std::string& name) { return moderato::test::read_fixture_json(fixtures() / name); }
 
 // Runs the CLI with --format json; checks the document is version 2 and
 // free of version-1 words; returns it parsed.

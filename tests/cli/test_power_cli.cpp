@@ -15,6 +15,7 @@
 
 #include "cli_json.hpp"
 #include "cli_runner.hpp"
+#include "common/reference_fixtures.hpp"
 #include "common/tolerance.hpp"
 #include "moderato/probing/power.hpp"
 
@@ -34,18 +35,8 @@ json power_json(std::vector<std::string> args) {
 
 // The first case of `section` in the scipy fixture for which `pick` is true.
 json reference_case(const std::string& section, const std::function<bool(const json&)>& pick) {
-    std::string path = std::string(MODERATO_REFERENCE_DIR) + "/fixtures/power_reference.json";
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live) {  // the build's live run
-        const std::string p = std::string(live) + "/power_reference.json";
-        if (std::ifstream(p).good()) path = p;
-    }
-    std::ifstream in(path);
-    if (!in) {
-        ADD_FAILURE() << "cannot open the power reference fixture";
-        return json::object();
-    }
-    const json doc = json::parse(in);
-    for (const auto& c : doc.at(section))
+    const json doc = moderato::test::read_fixture_json(moderato::test::reference_fixture("power_reference.json"));
+    for (const auto& c : doc.value(section, json::array()))
         if (pick(c)) return c;
     ADD_FAILURE() << "no such case in " << section;
     return json::object();

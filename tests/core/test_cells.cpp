@@ -14,6 +14,7 @@
 #include <nlohmann/json.hpp>
 #include <random>
 
+#include "common/reference_fixtures.hpp"
 #include "common/table_builder.hpp"
 #include "common/tolerance.hpp"
 #include "moderato/estimation/fit.hpp"
@@ -460,22 +461,14 @@ TEST(CellTable, LogisticSaturated2x2) {
 // ---------------------------------------------------------------------------
 // statsmodels reference (tests/reference/make_cells_reference.py).
 
-fs::path cells_fixture(const std::string& name) {
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live) {
-        const fs::path p = fs::path(live) / name;
-        if (fs::exists(p)) return p;
-    }
-    return fs::path(MODERATO_REFERENCE_DIR) / "fixtures" / name;
-}
-
 struct Case {
     json j;
     Fitted fit;
 };
 
 Case load(const std::string& name, SeKind se) {
-    const fs::path path = cells_fixture(name + ".json");
-    json j = json::parse(std::ifstream(path));
+    const fs::path path = reference_fixture(name + ".json");
+    json j = read_fixture_json(path);
     const json& s = j.at("spec");
     CsvOptions o;
     ModelSpec spec;

@@ -24,6 +24,7 @@
 #include <string>
 #include <vector>
 
+#include "common/reference_fixtures.hpp"
 #include "common/tolerance.hpp"
 #include "moderato/probing/power.hpp"
 #include "moderato/support/error.hpp"
@@ -55,25 +56,9 @@ std::string input_error_of(const std::function<void()>& f) {
     return "";
 }
 
-// The build's live run of the script (tests/reference/run_live.py writes into
-// $MODERATO_REFERENCE_OUT) when it produced the file, else the committed copy.
-std::string reference_path() {
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live) {
-        const std::string p = std::string(live) + "/power_reference.json";
-        if (std::ifstream(p).good()) return p;
-    }
-    return std::string(MODERATO_REFERENCE_DIR) + "/fixtures/power_reference.json";
-}
-
+// The scipy fixture (tests/reference/make_power_reference.py): the build's live run, else the committed copy.
 json load_reference() {
-    const std::string path = reference_path();
-    std::ifstream in(path);
-    if (!in) {
-        ADD_FAILURE() << "cannot open " << path
-                      << " (regenerate with /usr/bin/python3 tests/reference/make_power_reference.py)";
-        return json::object();
-    }
-    return json::parse(in);
+    return moderato::test::read_fixture_json(moderato::test::reference_fixture("power_reference.json"));
 }
 
 Noncentrality convention_of(const json& c) {

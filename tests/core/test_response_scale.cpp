@@ -10,6 +10,7 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 
+#include "common/reference_fixtures.hpp"
 #include "common/tolerance.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/probing/response_scale.hpp"
@@ -17,16 +18,10 @@
 #include "moderato/support/error.hpp"
 
 using namespace moderato;
-using moderato::test::rel;
+using namespace moderato::test;
 namespace fs = std::filesystem;
 
 namespace {
-
-fs::path effects_file() {
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live)
-        if (fs::exists(fs::path(live) / "logit_effects.json")) return fs::path(live) / "logit_effects.json";
-    return fs::path(MODERATO_REFERENCE_DIR) / "fixtures" / "logit_effects.json";
-}
 
 struct LogitCase {
     Design design;
@@ -34,7 +29,7 @@ struct LogitCase {
 };
 
 LogitCase logit_case() {
-    const Table t = read_csv((fs::path(MODERATO_REFERENCE_DIR) / "fixtures" / "logit_interaction.csv").string());
+    const Table t = read_csv((committed_fixture_dir() / "logit_interaction.csv").string());
     ModelSpec s;
     s.outcome = "y";
     s.interactions = {{"x", "g"}};
@@ -48,7 +43,7 @@ LogitCase logit_case() {
 
 TEST(ResponseScale, MarginalEffectsMatchDifferentiatedStatsmodelsPredictions) {
     const LogitCase c = logit_case();
-    const auto j = nlohmann::json::parse(std::ifstream(effects_file()));
+    const auto j = read_fixture_json(reference_fixture("logit_effects.json"));
     int checked = 0;
     for (const auto& row : j.at("cases")) {
         ScaleRequest r;
@@ -100,7 +95,7 @@ TEST(ResponseScale, RegionsFromTheScanHitTheCriticalValue) {
 }
 
 TEST(ResponseScale, LinearModelsAreRefused) {
-    const Table t = read_csv((fs::path(MODERATO_REFERENCE_DIR) / "fixtures" / "logit_interaction.csv").string());
+    const Table t = read_csv((committed_fixture_dir() / "logit_interaction.csv").string());
     ModelSpec s;
     s.outcome = "y";
     s.interactions = {{"x", "g"}};
