@@ -18,6 +18,7 @@
 #include <string>
 #include <vector>
 
+#include "common/input_error.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/reading/table.hpp"
 #include "moderato/support/error.hpp"
@@ -28,6 +29,7 @@ using moderato::ColumnKind;
 using moderato::CsvOptions;
 using moderato::InputError;
 using moderato::Table;
+using moderato::test::input_error_of;
 
 namespace {
 
@@ -35,18 +37,8 @@ Table read(const std::string& text, const CsvOptions& options = {}) {
     return moderato::read_csv_text(text, "t.csv", options);
 }
 
-// The InputError message of fn(), or a marker that fails any comparison.
-std::string error_of(const std::function<void()>& fn) {
-    try {
-        fn();
-    } catch (const InputError& e) {
-        return e.what();
-    }
-    return "<no InputError thrown>";
-}
-
 std::string text_error(const std::string& text, const CsvOptions& options = {}) {
-    return error_of([&] { read(text, options); });
+    return input_error_of([&] { read(text, options); });
 }
 
 std::vector<std::string> cells(const Column& c) {
@@ -342,13 +334,14 @@ TEST(Csv, ValidUtf8TextIsKept) {
 TEST(CsvErrors, FileNotFound) {
     TempDir dir;
     const std::string p = (dir.path() / "nope.csv").string();
-    EXPECT_EQ(error_of([&] { moderato::read_csv(p); }), p + ": file not found; check the path and the file name");
+    EXPECT_EQ(input_error_of([&] { moderato::read_csv(p); }), p + ": file not found; check the path and the file name");
 }
 
 TEST(CsvErrors, FolderInsteadOfFile) {
     TempDir dir;
     const std::string p = dir.path().string();
-    EXPECT_EQ(error_of([&] { moderato::read_csv(p); }), p + ": is a folder, not a file; choose a CSV or TSV file");
+    EXPECT_EQ(input_error_of([&] { moderato::read_csv(p); }),
+              p + ": is a folder, not a file; choose a CSV or TSV file");
 }
 
 TEST(CsvErrors, EmptyFile) {
@@ -484,8 +477,9 @@ TEST(CsvBlocks, ErrorsAreTheSameWhateverTheBlocks) {
     for (const std::size_t block : {1u, 5u, 64u}) {
         CsvOptions o;
         o.threads = 2;
-        EXPECT_EQ(error_of([&] { moderato::detail::read_csv_text_tuned(text, "t.csv", o, {}, tiny_blocks(block)); }),
-                  expected)
+        EXPECT_EQ(
+            input_error_of([&] { moderato::detail::read_csv_text_tuned(text, "t.csv", o, {}, tiny_blocks(block)); }),
+            expected)
             << block;
     }
 }
@@ -596,7 +590,7 @@ TEST(TableLookup, AtFindAndRowLocation) {
     const Table t = moderato::read_csv_text("a,b,c\n1,2,3\n\n4,5,6\n", "spend.csv");
     EXPECT_NE(t.find("b"), nullptr);
     EXPECT_EQ(t.find("B"), nullptr);  // names are case-sensitive
-    EXPECT_EQ(error_of([&] { t.at("foo"); }), "column 'foo' not found in spend.csv; columns are: a, b, c");
+    EXPECT_EQ(input_error_of([&] { t.at("foo"); }), "column 'foo' not found in spend.csv; columns are: a, b, c");
     EXPECT_EQ(t.row_location(1), "line 4");  // closed form: the blank line 3 is skipped
     Table plain;
     plain.columns.push_back(Column{});
@@ -604,5 +598,5 @@ TEST(TableLookup, AtFindAndRowLocation) {
     plain.columns.back().numbers = {1.0, moderato::missing_value()};
     EXPECT_EQ(plain.row_location(1), "row 2");            // closed form: 1-based row without lines
     EXPECT_EQ(plain.columns.back().missing_count(), 1u);  // closed form
-    EXPECT_EQ(error_of([&] { plain.at("y"); }), "column 'y' not found; columns are: z");
+    EXPECT_EQ(input_error_of([&] { plain.at("y"); }), "column 'y' not found; columns are: z");
 }

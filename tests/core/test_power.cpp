@@ -24,6 +24,7 @@
 #include <string>
 #include <vector>
 
+#include "common/input_error.hpp"
 #include "common/reference_fixtures.hpp"
 #include "common/tolerance.hpp"
 #include "moderato/probing/power.hpp"
@@ -34,6 +35,7 @@ namespace {
 using moderato::InputError;
 using moderato::Noncentrality;
 using moderato::PowerDesign;
+using moderato::test::input_error_of;
 using moderato::test::rel;
 using nlohmann::json;
 
@@ -44,16 +46,6 @@ PowerDesign design(long long u, long long k, double alpha = 0.05, Noncentrality 
     d.alpha = alpha;
     d.convention = c;
     return d;
-}
-
-// The exact message of the InputError that `f` throws ("" if none).
-std::string input_error_of(const std::function<void()>& f) {
-    try {
-        f();
-    } catch (const InputError& e) {
-        return e.what();
-    }
-    return "";
 }
 
 // The scipy fixture (tests/reference/make_power_reference.py): the build's live run, else the committed copy.

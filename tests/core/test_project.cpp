@@ -26,6 +26,7 @@
 #include <string>
 #include <vector>
 
+#include "common/input_error.hpp"
 #include "common/table_builder.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/project/analysis_run.hpp"
@@ -37,6 +38,7 @@
 
 namespace fs = std::filesystem;
 using namespace moderato;
+using moderato::test::input_error_of;
 
 namespace {
 
@@ -107,17 +109,6 @@ std::string run_command(const std::string& command) {
 }
 
 bool contains(const std::string& text, const std::string& part) { return text.find(part) != std::string::npos; }
-
-// The message of the InputError `f` throws ("" when it throws none).
-template <typename F>
-std::string input_error(F&& f) {
-    try {
-        f();
-    } catch (const InputError& e) {
-        return e.what();
-    }
-    return {};
-}
 
 bool same_bits(double a, double b) { return std::bit_cast<std::uint64_t>(a) == std::bit_cast<std::uint64_t>(b); }
 
@@ -194,7 +185,7 @@ TEST(Sha256, FileMatchesSha256sum) {
 TEST(Sha256, UnreadableFileNamesTheFile) {
     TempDir dir;
     const std::string missing = dir / "nothing-here.csv";
-    const std::string message = input_error([&] { sha256_file(missing); });
+    const std::string message = input_error_of([&] { sha256_file(missing); });
     EXPECT_TRUE(contains(message, missing)) << message;
 }
 
@@ -394,7 +385,7 @@ TEST(ProjectJson, SmallProjectReadsWithDefaults) {
 
 TEST(ProjectJson, NewerSchemaIsRefusedNamingTheFileAndBothVersions) {
     const std::string text = replaced(kSmallProject, "\"schema_version\": 2", "\"schema_version\": 7");
-    const std::string message = input_error([&] { project_from_json(text, "/data/future.moderato"); });
+    const std::string message = input_error_of([&] { project_from_json(text, "/data/future.moderato"); });
     EXPECT_TRUE(contains(message, "/data/future.moderato")) << message;
     EXPECT_TRUE(contains(message, "newer")) << message;
     EXPECT_TRUE(contains(message, "schema 7")) << message;
@@ -402,7 +393,7 @@ TEST(ProjectJson, NewerSchemaIsRefusedNamingTheFileAndBothVersions) {
     // A version too large for a signed 64-bit number is still "newer".
     const std::string huge =
         replaced(kSmallProject, "\"schema_version\": 2", "\"schema_version\": 18446744073709551615");
-    const std::string huge_message = input_error([&] { project_from_json(huge, "future.moderato"); });
+    const std::string huge_message = input_error_of([&] { project_from_json(huge, "future.moderato"); });
     EXPECT_TRUE(contains(huge_message, "newer")) << huge_message;
     EXPECT_TRUE(contains(huge_message, "18446744073709551615")) << huge_message;
 }
@@ -469,14 +460,14 @@ TEST(ProjectJson, SchemaOneIsMigratedToOurWordsWithANote) {
         EXPECT_FALSE(contains(saved, word)) << word;
     // A value schema 1 did not have stays an error naming the field, in the new words.
     const std::string odd = replaced(old, "\"scale\": \"link\"", "\"scale\": \"odds\"");
-    const std::string message = input_error([&] { project_from_json(odd, "odd.moderato"); });
+    const std::string message = input_error_of([&] { project_from_json(odd, "odd.moderato"); });
     EXPECT_TRUE(contains(message, "odd.moderato: analyses[1].probe.scale:")) << message;
     EXPECT_TRUE(contains(message, "model, outcome")) << message;
 }
 
 TEST(ProjectJson, SchemaThreeIsRefused) {
     const std::string text = replaced(kSmallProject, "\"schema_version\": 2", "\"schema_version\": 3");
-    EXPECT_EQ(input_error([&] { project_from_json(text, "three.moderato"); }),
+    EXPECT_EQ(input_error_of([&] { project_from_json(text, "three.moderato"); }),
               "three.moderato: made by a newer Moderato (project schema 3; this version reads up to schema 2). "
               "Open it with a newer Moderato; the file was not changed.");
 }
@@ -544,27 +535,28 @@ TEST(ProjectJson, CorruptJsonGivesLineAndColumn) {
     // By construction: the stray '}' is the 17th character of line 4
     // ("    {" is 5 characters, "\"id\": \"a\", " 11 more, then '}').
     const std::string text = "{\n  \"schema_version\": 1,\n  \"datasets\": [\n    {\"id\": \"a\", }\n  ]\n}\n";
-    const std::string message = input_error([&] { project_from_json(text, "broken.moderato"); });
+    const std::string message = input_error_of([&] { project_from_json(text, "broken.moderato"); });
     EXPECT_TRUE(contains(message, "broken.moderato")) << message;
     EXPECT_TRUE(contains(message, "line 4, column 17")) << message;
     EXPECT_TRUE(contains(message, "not valid JSON")) << message;
 
     // Cut off after the first line: the end of the text is on line 2.
     const std::string cut = "{\n  \"schema_version\": 1,";
-    const std::string cut_message = input_error([&] { project_from_json(cut, "cut.moderato"); });
+    const std::string cut_message = input_error_of([&] { project_from_json(cut, "cut.moderato"); });
     EXPECT_TRUE(contains(cut_message, "line 2")) << cut_message;
 
     // The column counts characters: "é" is two bytes but one column; the
     // stray ':' is the 18th character of line 2 (by construction).
     const std::string utf8 = "{\n  \"name\": \"caf\xc3\xa9\" :\n}";
-    const std::string utf8_message = input_error([&] { project_from_json(utf8, "accent.moderato"); });
+    const std::string utf8_message = input_error_of([&] { project_from_json(utf8, "accent.moderato"); });
     EXPECT_TRUE(contains(utf8_message, "line 2, column 18")) << utf8_message;
 
     // An empty file and a file that is JSON but not an object.
-    EXPECT_TRUE(contains(input_error([&] { project_from_json("", "empty.moderato"); }), "line 1, column 1"));
-    EXPECT_TRUE(contains(input_error([&] { project_from_json("[1, 2]", "list.moderato"); }), "not a Moderato project"));
-    EXPECT_TRUE(contains(input_error([&] { project_from_json("{}", "nothing.moderato"); }), "schema_version"));
-    EXPECT_TRUE(contains(input_error([&] { project_from_json(R"({"schema_version": 1.5})", "half.moderato"); }),
+    EXPECT_TRUE(contains(input_error_of([&] { project_from_json("", "empty.moderato"); }), "line 1, column 1"));
+    EXPECT_TRUE(
+        contains(input_error_of([&] { project_from_json("[1, 2]", "list.moderato"); }), "not a Moderato project"));
+    EXPECT_TRUE(contains(input_error_of([&] { project_from_json("{}", "nothing.moderato"); }), "schema_version"));
+    EXPECT_TRUE(contains(input_error_of([&] { project_from_json(R"({"schema_version": 1.5})", "half.moderato"); }),
                          "whole number"));
 }
 
@@ -598,7 +590,7 @@ TEST(ProjectJson, WrongTypesNameTheFieldPath) {
     for (const Case& c : cases) {
         SCOPED_TRACE(c.to);
         const std::string text = replaced(kSmallProject, c.from, c.to);
-        const std::string message = input_error([&] { project_from_json(text, "typed.moderato"); });
+        const std::string message = input_error_of([&] { project_from_json(text, "typed.moderato"); });
         EXPECT_TRUE(contains(message, "typed.moderato: " + c.path + ":")) << message;
         EXPECT_TRUE(contains(message, c.expected)) << message;
     }
@@ -624,7 +616,7 @@ TEST(ProjectJson, UnknownReferencesAndRepeatedIdsAreRefused) {
     for (const Case& c : cases) {
         SCOPED_TRACE(c.to);
         const std::string text = replaced(kSmallProject, c.from, c.to);
-        const std::string message = input_error([&] { project_from_json(text, "refs.moderato"); });
+        const std::string message = input_error_of([&] { project_from_json(text, "refs.moderato"); });
         EXPECT_TRUE(contains(message, "refs.moderato: " + c.path + ":")) << message;
         EXPECT_TRUE(contains(message, c.expected)) << message;
     }
@@ -633,7 +625,7 @@ TEST(ProjectJson, UnknownReferencesAndRepeatedIdsAreRefused) {
         replaced(kSmallProject, "\"analyses\": [",
                  "\"figures\": [{\"id\": \"f\", \"analysis\": \"a\"}, {\"id\": \"f\", \"analysis\": \"a\"}], "
                  "\"analyses\": [");
-    const std::string message = input_error([&] { project_from_json(figures, "refs.moderato"); });
+    const std::string message = input_error_of([&] { project_from_json(figures, "refs.moderato"); });
     EXPECT_TRUE(contains(message, "figures[1].id")) << message;
 }
 
@@ -686,7 +678,7 @@ TEST(AtomicWrite, TargetIsAFolder) {
     const fs::path folder = dir.path() / "taken.moderato";
     write_bytes(folder / "inside.txt", "keep me");
     const auto before = snapshot(dir.path());
-    const std::string message = input_error([&] { write_file_atomically(folder.string(), "new content"); });
+    const std::string message = input_error_of([&] { write_file_atomically(folder.string(), "new content"); });
     EXPECT_TRUE(contains(message, folder.string())) << message;
     EXPECT_TRUE(before == snapshot(dir.path())) << "the folder changed or a temporary file was left";
 }
@@ -705,7 +697,7 @@ TEST(AtomicWrite, FailureHalfwayLeavesTheOldFile) {
     small.rlim_cur = 1024;
     const auto old_handler = ::signal(SIGXFSZ, SIG_IGN);
     ASSERT_EQ(::setrlimit(RLIMIT_FSIZE, &small), 0);
-    const std::string message = input_error([&] { write_file_atomically(file, std::string(100000, 'n')); });
+    const std::string message = input_error_of([&] { write_file_atomically(file, std::string(100000, 'n')); });
     ::setrlimit(RLIMIT_FSIZE, &saved);
     ::signal(SIGXFSZ, old_handler);
     EXPECT_TRUE(contains(message, file)) << message;
@@ -722,7 +714,7 @@ TEST(AtomicWrite, ReadOnlyFolder) {
     write_bytes(file, "old bytes");
     fs::permissions(folder, fs::perms::owner_read | fs::perms::owner_exec);
     const auto before = snapshot(dir.path());
-    const std::string message = input_error([&] { write_file_atomically(file.string(), "new"); });
+    const std::string message = input_error_of([&] { write_file_atomically(file.string(), "new"); });
     EXPECT_TRUE(contains(message, file.string())) << message;
     EXPECT_TRUE(before == snapshot(dir.path()));
     fs::permissions(folder, fs::perms::owner_all);
@@ -731,7 +723,7 @@ TEST(AtomicWrite, ReadOnlyFolder) {
 TEST(AtomicWrite, MissingFolderNamesTheFile) {
     TempDir dir;
     const std::string file = dir / "no/such/folder/project.moderato";
-    const std::string message = input_error([&] { write_file_atomically(file, "x"); });
+    const std::string message = input_error_of([&] { write_file_atomically(file, "x"); });
     EXPECT_TRUE(contains(message, file)) << message;
 }
 
@@ -837,7 +829,7 @@ TEST(LoadProject, VanishedDataFileIsAnErrorNamingDatasetAndPath) {
     StudyFolder study;
     fs::remove(study.extra);
     const auto before = snapshot(study.dir.path());
-    const std::string message = input_error([&] { load_project(study.project); });
+    const std::string message = input_error_of([&] { load_project(study.project); });
     EXPECT_TRUE(contains(message, "'extra'")) << message;
     EXPECT_TRUE(contains(message, fs::path(study.extra).lexically_normal().string())) << message;
     EXPECT_TRUE(contains(message, "../shared/extra.csv")) << message;
@@ -865,14 +857,14 @@ TEST(LoadProject, CorruptAndNewerProjectsWriteNothing) {
     const std::string text = read_bytes(study.project);
     write_bytes(study.project, text.substr(0, text.size() / 2));
     auto before = snapshot(study.dir.path());
-    std::string message = input_error([&] { load_project(study.project); });
+    std::string message = input_error_of([&] { load_project(study.project); });
     EXPECT_TRUE(contains(message, study.project)) << message;
     EXPECT_TRUE(contains(message, "line ")) << message;
     EXPECT_TRUE(before == snapshot(study.dir.path()));
 
     write_bytes(study.project, replaced(text, "\"schema_version\": 2", "\"schema_version\": 3"));
     before = snapshot(study.dir.path());
-    message = input_error([&] { load_project(study.project); });
+    message = input_error_of([&] { load_project(study.project); });
     EXPECT_TRUE(contains(message, "newer")) << message;
     EXPECT_TRUE(before == snapshot(study.dir.path()));
 }
@@ -1011,7 +1003,7 @@ TEST(RunAnalysis, ColumnThatNoLongerExistsNamesAnalysisRoleAndColumn) {
         Analysis a = study_analysis();
         a.name = "weekly spend model";
         c.set(a);
-        const std::string message = input_error([&] { run_analysis(table, a); });
+        const std::string message = input_error_of([&] { run_analysis(table, a); });
         EXPECT_TRUE(contains(message, "'weekly spend model'")) << message;
         EXPECT_TRUE(contains(message, c.role)) << message;
         EXPECT_TRUE(contains(message, "'" + c.column + "'")) << message;
@@ -1019,11 +1011,11 @@ TEST(RunAnalysis, ColumnThatNoLongerExistsNamesAnalysisRoleAndColumn) {
     }
     Analysis a = study_analysis();
     a.roles.moderator.clear();
-    EXPECT_TRUE(contains(input_error([&] { run_analysis(table, a); }), "Moderator"));
+    EXPECT_TRUE(contains(input_error_of([&] { run_analysis(table, a); }), "Moderator"));
     a = study_analysis();
     a.se = SeKind::Cluster;
-    EXPECT_TRUE(contains(input_error([&] { run_analysis(table, a); }), "Clusters"));
-    EXPECT_TRUE(contains(input_error([&] { run_analysis(nullptr, study_analysis()); }), "not loaded"));
+    EXPECT_TRUE(contains(input_error_of([&] { run_analysis(table, a); }), "Clusters"));
+    EXPECT_TRUE(contains(input_error_of([&] { run_analysis(nullptr, study_analysis()); }), "not loaded"));
 }
 
 TEST(RunAnalysis, ProbeKindOfEachSampleProject) {
@@ -1063,7 +1055,7 @@ TEST(RunAnalysis, ProbeKindFromColumnKinds) {
     EXPECT_EQ(probe_kind(t, a), ProbeKind::Cells);
     a.roles.focal = "g";
     a.roles.moderator = "z";
-    EXPECT_TRUE(contains(input_error([&] { probe_kind(t, a); }), "swap"));
+    EXPECT_TRUE(contains(input_error_of([&] { probe_kind(t, a); }), "swap"));
 }
 
 TEST(RunAnalysis, SameModelAndSameProbe) {
@@ -1193,12 +1185,12 @@ TEST(ApplyRecipes, AddsColumnsInOrderAndNamesTheFailingRecipe) {
         EXPECT_DOUBLE_EQ(out.find("xz")->numbers[r], (x - 3) * z);         // closed form
         EXPECT_EQ(out.find("north")->numbers[r], r % 3 == 0 ? 1.0 : 0.0);  // by construction of g
     }
-    const std::string message = input_error([&] {
+    const std::string message = input_error_of([&] {
         apply_recipes(t, {{"study", "lz", RecipeKind::Log, "missing_col", "", "", 0}});
     });
     EXPECT_TRUE(contains(message, "'lz'")) << message;
     EXPECT_TRUE(contains(message, "'missing_col'")) << message;
-    const std::string twice = input_error([&] {
+    const std::string twice = input_error_of([&] {
         apply_recipes(t, {{"study", "x", RecipeKind::Square, "z", "", "", 0}});
     });
     EXPECT_TRUE(contains(twice, "already has a column")) << twice;

@@ -25,6 +25,7 @@
 #include <string>
 #include <vector>
 
+#include "common/input_error.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reporting/analysis_tables.hpp"
@@ -33,6 +34,7 @@
 #include "moderato/support/error.hpp"
 
 using namespace moderato;
+using moderato::test::input_error_of;
 namespace fs = std::filesystem;
 using nlohmann::json;
 
@@ -73,17 +75,6 @@ struct ScratchDir {
 };
 
 std::string shell_quote(const fs::path& p) { return "'" + p.string() + "'"; }
-
-// The InputError message `f` throws ("" when it throws none).
-template <class F>
-std::string input_error(F&& f) {
-    try {
-        f();
-    } catch (const InputError& e) {
-        return e.what();
-    }
-    return {};
-}
 
 // Parses HTML read from standard input with Python's html.parser and prints
 // JSON: "errors" (a closing tag that does not match the open one, tags left
@@ -346,13 +337,13 @@ TEST(TableExportShape, RowWithWrongCellCountNamesTitleAndRow) {
     t.columns = {"a", "b"};
     t.rows = {{{"1", ""}, {"2", ""}}, {{"1", ""}, {"2", ""}}, {{"only one", ""}}};
     for (TableFormat f : {TableFormat::Csv, TableFormat::Markdown, TableFormat::Latex, TableFormat::Html}) {
-        const std::string message = input_error([&] { table_to_text(t, f); });
+        const std::string message = input_error_of([&] { table_to_text(t, f); });
         EXPECT_TRUE(contains(message, "Simple slopes")) << message;
         EXPECT_TRUE(contains(message, "row 3")) << message;
         EXPECT_TRUE(contains(message, "has 1 cell,")) << message;
     }
     t.rows = {{{"1", ""}, {"2", ""}, {"3", ""}}};
-    EXPECT_TRUE(contains(input_error([&] { table_to_csv(t); }), "row 1"));
+    EXPECT_TRUE(contains(input_error_of([&] { table_to_csv(t); }), "row 1"));
 }
 
 TEST(TableExportShape, AlignmentListOfWrongSizeNamesTitle) {
@@ -361,11 +352,11 @@ TEST(TableExportShape, AlignmentListOfWrongSizeNamesTitle) {
     t.columns = {"a", "b", "c"};
     t.numeric = {true, false};
     for (TableFormat f : {TableFormat::Csv, TableFormat::Markdown, TableFormat::Latex, TableFormat::Html}) {
-        const std::string message = input_error([&] { table_to_text(t, f); });
+        const std::string message = input_error_of([&] { table_to_text(t, f); });
         EXPECT_TRUE(contains(message, "Regions")) << message;
     }
     t.numeric = {};
-    EXPECT_EQ(input_error([&] { table_to_html(t); }), "");
+    EXPECT_EQ(input_error_of([&] { table_to_html(t); }), "");
 }
 
 TEST(TableExport, SuffixAndDispatch) {
