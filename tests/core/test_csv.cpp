@@ -19,6 +19,7 @@
 #include <vector>
 
 #include "common/input_error.hpp"
+#include "common/temp_dir.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/reading/table.hpp"
 #include "moderato/support/error.hpp"
@@ -30,6 +31,8 @@ using moderato::CsvOptions;
 using moderato::InputError;
 using moderato::Table;
 using moderato::test::input_error_of;
+using moderato::test::read_file;
+using moderato::test::TempDir;
 
 namespace {
 
@@ -45,39 +48,6 @@ std::vector<std::string> cells(const Column& c) {
     std::vector<std::string> out;
     for (auto code : c.codes) out.push_back(code < 0 ? "<NA>" : c.levels[static_cast<std::size_t>(code)]);
     return out;
-}
-
-// A scratch folder under the system temp directory, removed afterwards.
-class TempDir {
-public:
-    TempDir() {
-        path_ = fs::temp_directory_path() /
-                ("moderato_csv_test_" + std::to_string(::getpid()) + "_" + std::to_string(counter()++));
-        fs::create_directories(path_);
-    }
-    ~TempDir() {
-        std::error_code ec;
-        fs::remove_all(path_, ec);
-    }
-    fs::path file(const std::string& name, const std::string& bytes) const {
-        const fs::path p = path_ / name;
-        std::ofstream out(p, std::ios::binary);
-        out.write(bytes.data(), static_cast<std::streamsize>(bytes.size()));
-        return p;
-    }
-    const fs::path& path() const { return path_; }
-
-private:
-    static int& counter() {
-        static int n = 0;
-        return n;
-    }
-    fs::path path_;
-};
-
-std::string slurp(const fs::path& p) {
-    std::ifstream in(p, std::ios::binary);
-    return std::string(std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>());
 }
 
 // Exact equality, NaN equal to NaN (every NaN means "missing").
@@ -332,13 +302,13 @@ TEST(Csv, ValidUtf8TextIsKept) {
 // ------------------------------------------------------------ errors
 
 TEST(CsvErrors, FileNotFound) {
-    TempDir dir;
+    TempDir dir("csv");
     const std::string p = (dir.path() / "nope.csv").string();
     EXPECT_EQ(input_error_of([&] { moderato::read_csv(p); }), p + ": file not found; check the path and the file name");
 }
 
 TEST(CsvErrors, FolderInsteadOfFile) {
-    TempDir dir;
+    TempDir dir("csv");
     const std::string p = dir.path().string();
     EXPECT_EQ(input_error_of([&] { moderato::read_csv(p); }),
               p + ": is a folder, not a file; choose a CSV or TSV file");
@@ -485,10 +455,10 @@ TEST(CsvBlocks, ErrorsAreTheSameWhateverTheBlocks) {
 }
 
 TEST(CsvBlocks, ProgressAndCancel) {
-    TempDir dir;
+    TempDir dir("csv");
     std::string text = "a,b\n";
     for (int i = 0; i < 1000; ++i) text += std::to_string(i) + "," + std::to_string(2 * i) + "\n";
-    const fs::path p = dir.file("p.csv", text);
+    const fs::path p = dir.write("p.csv", text);
     std::vector<std::size_t> done;
     std::size_t total_seen = 0;
     moderato::CsvProgress progress;
@@ -546,8 +516,8 @@ TEST(CsvBlocks, ThreadCountDoesNotChangeTheTableAndTheFileIsUntouched) {
         text += i == kRows - 10 ? std::string("text") : std::to_string(i % 97);
         text += "\n";
     }
-    TempDir dir;
-    const fs::path p = dir.file("big.csv", text);
+    TempDir dir("csv");
+    const fs::path p = dir.write("big.csv", text);
     const auto mtime = fs::last_write_time(p);
 
     CsvOptions one, two;
@@ -569,13 +539,13 @@ TEST(CsvBlocks, ThreadCountDoesNotChangeTheTableAndTheFileIsUntouched) {
     EXPECT_EQ(a.at("late").first_text, "text");
     EXPECT_EQ(a.at("late").first_text_line, a.row_lines[kRows - 10]);  // closed form: same record
 
-    EXPECT_EQ(slurp(p), text);  // the input is never written to
+    EXPECT_EQ(read_file(p), text);  // the input is never written to
     EXPECT_EQ(fs::last_write_time(p), mtime);
 }
 
 TEST(CsvBlocks, ReadsFileWithBomAndCrlf) {
-    TempDir dir;
-    const fs::path p = dir.file("bom.csv", "\xEF\xBB\xBFx;g\r\n1,5;a\r\n2;b\r\n");
+    TempDir dir("csv");
+    const fs::path p = dir.write("bom.csv", "\xEF\xBB\xBFx;g\r\n1,5;a\r\n2;b\r\n");
     CsvOptions o;
     o.decimal_comma = true;
     const Table t = moderato::read_csv(p.string(), o);

@@ -26,8 +26,11 @@
 #include <string>
 #include <vector>
 
+#include "common/file_bytes.hpp"
 #include "common/input_error.hpp"
+#include "common/shell_command.hpp"
 #include "common/table_builder.hpp"
+#include "common/temp_dir.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/project/project.hpp"
@@ -39,42 +42,14 @@
 namespace fs = std::filesystem;
 using namespace moderato;
 using moderato::test::input_error_of;
+using moderato::test::read_file;
+using moderato::test::run_command;
+using moderato::test::TempDir;
+using moderato::test::write_file;
 
 namespace {
 
 const double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-class TempDir {
-public:
-    TempDir() {
-        std::string pattern = (fs::temp_directory_path() / "moderato_project_test_XXXXXX").string();
-        if (!::mkdtemp(pattern.data())) throw std::runtime_error("mkdtemp failed");
-        path_ = pattern;
-    }
-    ~TempDir() {
-        std::error_code ec;
-        fs::permissions(path_, fs::perms::owner_all, fs::perm_options::add, ec);
-        fs::remove_all(path_, ec);
-    }
-    const fs::path& path() const { return path_; }
-    std::string operator/(const std::string& name) const { return (path_ / name).string(); }
-
-private:
-    fs::path path_;
-};
-
-void write_bytes(const fs::path& path, const std::string& bytes) {
-    fs::create_directories(path.parent_path());
-    std::ofstream out(path, std::ios::binary);
-    out << bytes;
-}
-
-std::string read_bytes(const fs::path& path) {
-    std::ifstream in(path, std::ios::binary);
-    std::stringstream s;
-    s << in.rdbuf();
-    return s.str();
-}
 
 // Every entry under a folder (files with their bytes and modification time,
 // folders by name), to show that an operation wrote, added or removed nothing.
@@ -89,21 +64,9 @@ std::map<std::string, Entry> snapshot(const fs::path& dir) {
     for (const auto& e : fs::recursive_directory_iterator(dir)) {
         Entry s;
         s.directory = e.is_directory();
-        if (!s.directory) s.bytes = read_bytes(e.path());
+        if (!s.directory) s.bytes = read_file(e.path());
         s.mtime = fs::last_write_time(e.path());
         out[e.path().string()] = s;
-    }
-    return out;
-}
-
-// Standard output of a shell command (empty when it cannot run).
-std::string run_command(const std::string& command) {
-    std::string out;
-    if (FILE* p = ::popen(command.c_str(), "r")) {
-        char buffer[4096];
-        std::size_t got;
-        while ((got = std::fread(buffer, 1, sizeof buffer, p)) > 0) out.append(buffer, got);
-        ::pclose(p);
     }
     return out;
 }
@@ -166,24 +129,24 @@ TEST(Sha256, EveryPaddingCaseMatchesPythonHashlib) {
 // A file of 2.5 MB (more than the 1 MiB read buffer, not a multiple of it)
 // against the coreutils tool `sha256sum` on the same file.
 TEST(Sha256, FileMatchesSha256sum) {
-    TempDir dir;
+    TempDir dir("project");
     std::mt19937 random(20240917);
     std::string bytes(2500017, '\0');
     for (char& c : bytes) c = static_cast<char>(random() & 0xff);
     const std::string file = dir / "random.bin";
-    write_bytes(file, bytes);
+    write_file(file, bytes);
     const std::string tool = run_command("sha256sum '" + file + "'");
     if (tool.size() < 64) GTEST_SKIP() << "sha256sum (coreutils) did not run";
     EXPECT_EQ(sha256_file(file), tool.substr(0, 64));  // coreutils sha256sum
     EXPECT_SHA256(bytes, tool.substr(0, 64));
 
     const std::string empty = dir / "empty.bin";
-    write_bytes(empty, "");
+    write_file(empty, "");
     EXPECT_EQ(sha256_file(empty), run_command("sha256sum '" + empty + "'").substr(0, 64));  // coreutils sha256sum
 }
 
 TEST(Sha256, UnreadableFileNamesTheFile) {
-    TempDir dir;
+    TempDir dir("project");
     const std::string missing = dir / "nothing-here.csv";
     const std::string message = input_error_of([&] { sha256_file(missing); });
     EXPECT_TRUE(contains(message, missing)) << message;
@@ -489,16 +452,16 @@ TEST(ProjectMigration, EverySampleOfSchemaOneOpensAsItsSchemaTwoProject) {
         SCOPED_TRACE(name);
         const fs::path v1 = fs::path(MODERATO_TEST_DATA_DIR) / "v1-projects" / (std::string(name) + ".moderato");
         const fs::path v2 = samples_dir() / name / (std::string(name) + ".moderato");
-        const std::string v1_text = read_bytes(v1);
+        const std::string v1_text = read_file(v1);
         ASSERT_TRUE(contains(v1_text, "\"schema_version\": 1"));
-        ASSERT_TRUE(contains(read_bytes(v2), "\"schema_version\": 2"));
+        ASSERT_TRUE(contains(read_file(v2), "\"schema_version\": 2"));
         // The v1 file beside a copy of its data, as it was saved.
-        TempDir dir;
+        TempDir dir("project");
         const Project v2_project = read_project_file(v2.string());
         ASSERT_EQ(v2_project.datasets.size(), 1u);
         const std::string csv = v2_project.datasets[0].path;
         fs::copy_file(samples_dir() / name / csv, dir.path() / csv);
-        write_bytes(dir.path() / "old.moderato", v1_text);
+        write_file(dir.path() / "old.moderato", v1_text);
         const auto before = snapshot(dir.path());
         const LoadedProject loaded = load_project(dir / "old.moderato");
         EXPECT_TRUE(before == snapshot(dir.path())) << "opening a schema-1 project wrote something";
@@ -517,7 +480,7 @@ TEST(ProjectMigration, SampleKindsAreTheEnumsOfTheirSchemaOneWords) {
     for (const char* name : kSamples) {
         SCOPED_TRACE(name);
         const fs::path v1 = fs::path(MODERATO_TEST_DATA_DIR) / "v1-projects" / (std::string(name) + ".moderato");
-        const std::string text = read_bytes(v1);
+        const std::string text = read_file(v1);
         const Project p = project_from_json(text, v1.string());
         ASSERT_EQ(p.analyses.size(), 1u);
         const Analysis& a = p.analyses[0];
@@ -641,14 +604,14 @@ std::vector<std::string> names_in(const fs::path& dir) {
 }  // namespace
 
 TEST(AtomicWrite, WritesAndReplaces) {
-    TempDir dir;
+    TempDir dir("project");
     const std::string file = dir / "project.moderato";
     write_file_atomically(file, "first");
-    EXPECT_EQ(read_bytes(file), "first");
+    EXPECT_EQ(read_file(file), "first");
     write_file_atomically(file, std::string("second\0with a NUL", 17));
-    EXPECT_EQ(read_bytes(file), std::string("second\0with a NUL", 17));
+    EXPECT_EQ(read_file(file), std::string("second\0with a NUL", 17));
     write_file_atomically(file, "");
-    EXPECT_EQ(read_bytes(file), "");
+    EXPECT_EQ(read_file(file), "");
     EXPECT_EQ(names_in(dir.path()), std::vector<std::string>{"project.moderato"});  // no temporary left
     // A new file gets the usual permissions of a new file (umask applied);
     // a replaced file keeps its own.
@@ -660,23 +623,23 @@ TEST(AtomicWrite, WritesAndReplaces) {
     fs::permissions(file, fs::perms::owner_read | fs::perms::owner_write);
     write_file_atomically(file, "private");
     EXPECT_EQ(fs::status(file).permissions(), fs::perms::owner_read | fs::perms::owner_write);
-    EXPECT_EQ(read_bytes(file), "private");
+    EXPECT_EQ(read_file(file), "private");
 }
 
 TEST(AtomicWrite, ThroughASymlinkReplacesTheLinkedFile) {
-    TempDir dir;
+    TempDir dir("project");
     const std::string real = dir / "real.moderato", link = dir / "link.moderato";
-    write_bytes(real, "old");
+    write_file(real, "old");
     fs::create_symlink(real, link);
     write_file_atomically(link, "new");
     EXPECT_TRUE(fs::is_symlink(link));
-    EXPECT_EQ(read_bytes(real), "new");
+    EXPECT_EQ(read_file(real), "new");
 }
 
 TEST(AtomicWrite, TargetIsAFolder) {
-    TempDir dir;
+    TempDir dir("project");
     const fs::path folder = dir.path() / "taken.moderato";
-    write_bytes(folder / "inside.txt", "keep me");
+    write_file(folder / "inside.txt", "keep me");
     const auto before = snapshot(dir.path());
     const std::string message = input_error_of([&] { write_file_atomically(folder.string(), "new content"); });
     EXPECT_TRUE(contains(message, folder.string())) << message;
@@ -686,10 +649,10 @@ TEST(AtomicWrite, TargetIsAFolder) {
 TEST(AtomicWrite, FailureHalfwayLeavesTheOldFile) {
     // A file-size limit makes write() fail with EFBIG partway through (this
     // works for root too, where a read-only folder would not stop the write).
-    TempDir dir;
+    TempDir dir("project");
     const std::string file = dir / "project.moderato";
     const std::string old(3000, 'o');
-    write_bytes(file, old);
+    write_file(file, old);
     const auto before = snapshot(dir.path());
     rlimit saved{};
     ASSERT_EQ(::getrlimit(RLIMIT_FSIZE, &saved), 0);
@@ -702,16 +665,16 @@ TEST(AtomicWrite, FailureHalfwayLeavesTheOldFile) {
     ::signal(SIGXFSZ, old_handler);
     EXPECT_TRUE(contains(message, file)) << message;
     EXPECT_TRUE(contains(message, "left as it was")) << message;
-    EXPECT_EQ(read_bytes(file), old);
+    EXPECT_EQ(read_file(file), old);
     EXPECT_TRUE(before == snapshot(dir.path())) << "the old file changed or a temporary file was left";
 }
 
 TEST(AtomicWrite, ReadOnlyFolder) {
     if (::geteuid() == 0) GTEST_SKIP() << "running as root: a read-only folder does not stop root from writing";
-    TempDir dir;
+    TempDir dir("project");
     const fs::path folder = dir.path() / "locked";
     const fs::path file = folder / "project.moderato";
-    write_bytes(file, "old bytes");
+    write_file(file, "old bytes");
     fs::permissions(folder, fs::perms::owner_read | fs::perms::owner_exec);
     const auto before = snapshot(dir.path());
     const std::string message = input_error_of([&] { write_file_atomically(file.string(), "new"); });
@@ -721,7 +684,7 @@ TEST(AtomicWrite, ReadOnlyFolder) {
 }
 
 TEST(AtomicWrite, MissingFolderNamesTheFile) {
-    TempDir dir;
+    TempDir dir("project");
     const std::string file = dir / "no/such/folder/project.moderato";
     const std::string message = input_error_of([&] { write_file_atomically(file, "x"); });
     EXPECT_TRUE(contains(message, file)) << message;
@@ -748,14 +711,14 @@ namespace {
 // A project folder: study/study.moderato with its data in study/data/ and one
 // file in a sibling folder shared/, both named relative to the project.
 struct StudyFolder {
-    TempDir dir;
+    TempDir dir{"project"};
     std::string project, survey, extra;
     StudyFolder() {
         project = dir / "study/study.moderato";
         survey = dir / "study/data/survey.csv";
         extra = dir / "shared/extra.csv";
-        write_bytes(survey, "y,x,z\n1.5,2,3\n2.5,3,1\n4.0,5,9\n3.25,1,4\n");
-        write_bytes(extra, "a;b\n1;x\n2;y\n");
+        write_file(survey, "y,x,z\n1.5,2,3\n2.5,3,1\n4.0,5,9\n3.25,1,4\n");
+        write_file(extra, "a;b\n1;x\n2;y\n");
         Project p;
         DataSource s;
         s.id = "survey";
@@ -808,11 +771,11 @@ TEST(LoadProject, DataPathsAreRelativeToTheProject) {
 
 TEST(LoadProject, ChangedDataFileWarnsAndStillLoads) {
     StudyFolder study;
-    std::string bytes = read_bytes(study.survey);
+    std::string bytes = read_file(study.survey);
     const auto at = bytes.find("4.0");
     ASSERT_NE(at, std::string::npos);
     bytes[at] = '6';  // one byte: 4.0 -> 6.0
-    write_bytes(study.survey, bytes);
+    write_file(study.survey, bytes);
     const auto before = snapshot(study.dir.path());
     const LoadedProject loaded = load_project(study.project);
     ASSERT_EQ(loaded.warnings.size(), 1u);
@@ -854,15 +817,15 @@ TEST(LoadProject, FailingRecipeIsReportedAndTheDataStillLoad) {
 
 TEST(LoadProject, CorruptAndNewerProjectsWriteNothing) {
     StudyFolder study;
-    const std::string text = read_bytes(study.project);
-    write_bytes(study.project, text.substr(0, text.size() / 2));
+    const std::string text = read_file(study.project);
+    write_file(study.project, text.substr(0, text.size() / 2));
     auto before = snapshot(study.dir.path());
     std::string message = input_error_of([&] { load_project(study.project); });
     EXPECT_TRUE(contains(message, study.project)) << message;
     EXPECT_TRUE(contains(message, "line ")) << message;
     EXPECT_TRUE(before == snapshot(study.dir.path()));
 
-    write_bytes(study.project, replaced(text, "\"schema_version\": 2", "\"schema_version\": 3"));
+    write_file(study.project, replaced(text, "\"schema_version\": 2", "\"schema_version\": 3"));
     before = snapshot(study.dir.path());
     message = input_error_of([&] { load_project(study.project); });
     EXPECT_TRUE(contains(message, "newer")) << message;

@@ -26,6 +26,8 @@
 #include <vector>
 
 #include "common/input_error.hpp"
+#include "common/shell_command.hpp"
+#include "common/temp_dir.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reporting/analysis_tables.hpp"
@@ -35,46 +37,15 @@
 
 using namespace moderato;
 using moderato::test::input_error_of;
+using moderato::test::run_command;
+using moderato::test::shell_quote;
+using moderato::test::TempDir;
 namespace fs = std::filesystem;
 using nlohmann::json;
 
 namespace {
 
-// Standard output of a shell command (empty when it cannot run).
-std::string run_command(const std::string& command) {
-    std::string out;
-    if (FILE* p = ::popen(command.c_str(), "r")) {
-        char buffer[4096];
-        std::size_t got;
-        while ((got = std::fread(buffer, 1, sizeof buffer, p)) > 0) out.append(buffer, got);
-        ::pclose(p);
-    }
-    return out;
-}
-
 bool contains(const std::string& text, const std::string& part) { return text.find(part) != std::string::npos; }
-
-// A scratch folder removed at the end of the test.
-struct ScratchDir {
-    fs::path path;
-    ScratchDir() {
-        static std::atomic<int> counter{0};
-        path = fs::temp_directory_path() /
-               ("moderato_table_export_" + std::to_string(::getpid()) + "_" + std::to_string(counter++));
-        fs::create_directories(path);
-    }
-    ~ScratchDir() {
-        std::error_code ec;
-        fs::remove_all(path, ec);
-    }
-    fs::path write(const std::string& name, const std::string& bytes) const {
-        const fs::path file = path / name;
-        std::ofstream(file, std::ios::binary) << bytes;
-        return file;
-    }
-};
-
-std::string shell_quote(const fs::path& p) { return "'" + p.string() + "'"; }
 
 // Parses HTML read from standard input with Python's html.parser and prints
 // JSON: "errors" (a closing tag that does not match the open one, tags left
@@ -127,7 +98,7 @@ print(json.dumps({"bom": data.startswith("\ufeff"), "rows": list(csv.reader(io.S
 
 bool have_python() { return fs::exists("/usr/bin/python3"); }
 
-json run_html_reader(const ScratchDir& dir, const std::string& html_command) {
+json run_html_reader(const TempDir& dir, const std::string& html_command) {
     const fs::path script = dir.write("read_html.py", kHtmlReader);
     const std::string out = run_command(html_command + " | /usr/bin/python3 " + shell_quote(script));
     return json::parse(out);
@@ -274,7 +245,7 @@ TEST(TableToCsv, HeaderCellsAreNeutralised) {
 // the cell's exact value (else its text) after neutralising; no byte-order mark.
 TEST(TableToCsv, RoundTripThroughPythonCsvModule) {
     if (!have_python()) GTEST_SKIP() << "/usr/bin/python3 is not installed";
-    ScratchDir dir;
+    TempDir dir("table-export");
     ExportTable t = awkward_table();
     t.columns.push_back("=HYPERLINK(\"x\")");
     t.numeric.push_back(false);
@@ -322,7 +293,7 @@ TEST(TableToCsv, LoneEmptyFieldSurvivesPythonCsvModule) {
     t.rows = {{{"", ""}}, {{"x", ""}}};
     EXPECT_EQ(table_to_csv(t), "only\r\n\"\"\r\nx\r\n");
     if (!have_python()) GTEST_SKIP() << "/usr/bin/python3 is not installed";
-    ScratchDir dir;
+    TempDir dir("table-export");
     const fs::path file = dir.write("t.csv", table_to_csv(t));
     const fs::path script = dir.write("read_csv.py", kCsvReader);
     const json got = json::parse(run_command("/usr/bin/python3 " + shell_quote(script) + " " + shell_quote(file)));
@@ -464,7 +435,7 @@ TEST(TableToMarkdown, EveryLineHasTheRightNumberOfCells) {
 TEST(TableToMarkdown, RendersAsTheOriginalTextInCmarkGfm) {
     if (!fs::exists("/usr/bin/cmark-gfm")) GTEST_SKIP() << "cmark-gfm is not installed (Debian package cmark-gfm)";
     if (!have_python()) GTEST_SKIP() << "/usr/bin/python3 is not installed";
-    ScratchDir dir;
+    TempDir dir("table-export");
     const ExportTable t = awkward_table();
     const fs::path md = dir.write("t.md", table_to_markdown(t));
     const json got = run_html_reader(
@@ -578,7 +549,7 @@ TEST(TableToLatex, LeadingBracketOrStarIsShielded) {
 TEST(TableToLatex, CompilesWithPdflatex) {
     const std::string pdflatex = run_command("command -v pdflatex");
     if (pdflatex.empty()) GTEST_SKIP() << "pdflatex is not installed";
-    ScratchDir dir;
+    TempDir dir("table-export");
     ExportTable t = awkward_table();
     t.rows[0][0].text = "[0.1, 0.2]";
     const std::string doc =
@@ -586,9 +557,9 @@ TEST(TableToLatex, CompilesWithPdflatex) {
         "\\usepackage{booktabs}\n\\begin{document}\n" +
         table_to_latex(t) + "\\end{document}\n";
     dir.write("t.tex", doc);
-    const std::string log =
-        run_command("cd " + shell_quote(dir.path) + " && pdflatex -interaction=nonstopmode -halt-on-error t.tex 2>&1");
-    EXPECT_TRUE(fs::exists(dir.path / "t.pdf")) << log;
+    const std::string log = run_command("cd " + shell_quote(dir.path()) +
+                                        " && pdflatex -interaction=nonstopmode -halt-on-error t.tex 2>&1");
+    EXPECT_TRUE(fs::exists(dir.path() / "t.pdf")) << log;
 }
 
 // ---------------------------------------------------------------- HTML
@@ -638,7 +609,7 @@ TEST(TableToHtml, Layout) {
 // and every caption, header cell, cell and note as the original text.
 TEST(TableToHtml, WellFormedInPythonHtmlParser) {
     if (!have_python()) GTEST_SKIP() << "/usr/bin/python3 is not installed";
-    ScratchDir dir;
+    TempDir dir("table-export");
     ExportTable t = awkward_table();
     t.columns[3] = "<script>alert(1)</script>";
     const fs::path file = dir.write("t.html", table_to_html(t));
