@@ -27,6 +27,7 @@
 #include <vector>
 
 #include "common/file_bytes.hpp"
+#include "common/folder_snapshot.hpp"
 #include "common/input_error.hpp"
 #include "common/shell_command.hpp"
 #include "common/table_builder.hpp"
@@ -44,32 +45,13 @@ using namespace moderato;
 using moderato::test::input_error_of;
 using moderato::test::read_file;
 using moderato::test::run_command;
+using moderato::test::snapshot_folder;
 using moderato::test::TempDir;
 using moderato::test::write_file;
 
 namespace {
 
 const double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-// Every entry under a folder (files with their bytes and modification time,
-// folders by name), to show that an operation wrote, added or removed nothing.
-struct Entry {
-    bool directory = false;
-    std::string bytes;
-    fs::file_time_type mtime;
-    bool operator==(const Entry&) const = default;
-};
-std::map<std::string, Entry> snapshot(const fs::path& dir) {
-    std::map<std::string, Entry> out;
-    for (const auto& e : fs::recursive_directory_iterator(dir)) {
-        Entry s;
-        s.directory = e.is_directory();
-        if (!s.directory) s.bytes = read_file(e.path());
-        s.mtime = fs::last_write_time(e.path());
-        out[e.path().string()] = s;
-    }
-    return out;
-}
 
 bool contains(const std::string& text, const std::string& part) { return text.find(part) != std::string::npos; }
 
@@ -462,9 +444,9 @@ TEST(ProjectMigration, EverySampleOfSchemaOneOpensAsItsSchemaTwoProject) {
         const std::string csv = v2_project.datasets[0].path;
         fs::copy_file(samples_dir() / name / csv, dir.path() / csv);
         write_file(dir.path() / "old.moderato", v1_text);
-        const auto before = snapshot(dir.path());
+        const auto before = snapshot_folder(dir.path());
         const LoadedProject loaded = load_project(dir / "old.moderato");
-        EXPECT_TRUE(before == snapshot(dir.path())) << "opening a schema-1 project wrote something";
+        EXPECT_TRUE(before == snapshot_folder(dir.path())) << "opening a schema-1 project wrote something";
         ASSERT_EQ(loaded.project.migration_notes.size(), 1u);
         EXPECT_TRUE(contains(loaded.project.migration_notes[0], "schema 1")) << loaded.project.migration_notes[0];
         EXPECT_EQ(loaded.warnings, loaded.project.migration_notes);  // and no changed-data warning: same SHA-256
@@ -640,10 +622,10 @@ TEST(AtomicWrite, TargetIsAFolder) {
     TempDir dir("project");
     const fs::path folder = dir.path() / "taken.moderato";
     write_file(folder / "inside.txt", "keep me");
-    const auto before = snapshot(dir.path());
+    const auto before = snapshot_folder(dir.path());
     const std::string message = input_error_of([&] { write_file_atomically(folder.string(), "new content"); });
     EXPECT_TRUE(contains(message, folder.string())) << message;
-    EXPECT_TRUE(before == snapshot(dir.path())) << "the folder changed or a temporary file was left";
+    EXPECT_TRUE(before == snapshot_folder(dir.path())) << "the folder changed or a temporary file was left";
 }
 
 TEST(AtomicWrite, FailureHalfwayLeavesTheOldFile) {
@@ -653,7 +635,7 @@ TEST(AtomicWrite, FailureHalfwayLeavesTheOldFile) {
     const std::string file = dir / "project.moderato";
     const std::string old(3000, 'o');
     write_file(file, old);
-    const auto before = snapshot(dir.path());
+    const auto before = snapshot_folder(dir.path());
     rlimit saved{};
     ASSERT_EQ(::getrlimit(RLIMIT_FSIZE, &saved), 0);
     rlimit small = saved;
@@ -666,7 +648,7 @@ TEST(AtomicWrite, FailureHalfwayLeavesTheOldFile) {
     EXPECT_TRUE(contains(message, file)) << message;
     EXPECT_TRUE(contains(message, "left as it was")) << message;
     EXPECT_EQ(read_file(file), old);
-    EXPECT_TRUE(before == snapshot(dir.path())) << "the old file changed or a temporary file was left";
+    EXPECT_TRUE(before == snapshot_folder(dir.path())) << "the old file changed or a temporary file was left";
 }
 
 TEST(AtomicWrite, ReadOnlyFolder) {
@@ -676,10 +658,10 @@ TEST(AtomicWrite, ReadOnlyFolder) {
     const fs::path file = folder / "project.moderato";
     write_file(file, "old bytes");
     fs::permissions(folder, fs::perms::owner_read | fs::perms::owner_exec);
-    const auto before = snapshot(dir.path());
+    const auto before = snapshot_folder(dir.path());
     const std::string message = input_error_of([&] { write_file_atomically(file.string(), "new"); });
     EXPECT_TRUE(contains(message, file.string())) << message;
-    EXPECT_TRUE(before == snapshot(dir.path()));
+    EXPECT_TRUE(before == snapshot_folder(dir.path()));
     fs::permissions(folder, fs::perms::owner_all);
 }
 
@@ -747,7 +729,7 @@ struct StudyFolder {
 
 TEST(LoadProject, DataPathsAreRelativeToTheProject) {
     StudyFolder study;
-    const auto before = snapshot(study.dir.path());
+    const auto before = snapshot_folder(study.dir.path());
     const LoadedProject loaded = load_project(study.project);
     EXPECT_TRUE(loaded.warnings.empty());
     ASSERT_TRUE(loaded.tables.count("survey"));
@@ -766,7 +748,7 @@ TEST(LoadProject, DataPathsAreRelativeToTheProject) {
     if (tool.size() >= 64) {
         EXPECT_EQ(loaded.sha256.at("survey"), tool.substr(0, 64));  // coreutils sha256sum
     }
-    EXPECT_TRUE(before == snapshot(study.dir.path())) << "opening a project wrote something";
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path())) << "opening a project wrote something";
 }
 
 TEST(LoadProject, ChangedDataFileWarnsAndStillLoads) {
@@ -776,7 +758,7 @@ TEST(LoadProject, ChangedDataFileWarnsAndStillLoads) {
     ASSERT_NE(at, std::string::npos);
     bytes[at] = '6';  // one byte: 4.0 -> 6.0
     write_file(study.survey, bytes);
-    const auto before = snapshot(study.dir.path());
+    const auto before = snapshot_folder(study.dir.path());
     const LoadedProject loaded = load_project(study.project);
     ASSERT_EQ(loaded.warnings.size(), 1u);
     EXPECT_TRUE(contains(loaded.warnings[0], "changed since the project was saved")) << loaded.warnings[0];
@@ -785,19 +767,19 @@ TEST(LoadProject, ChangedDataFileWarnsAndStillLoads) {
     EXPECT_EQ(loaded.tables.at("survey")->find("y")->numbers[2], 6.0);  // the file as it is now
     EXPECT_EQ(loaded.sha256.at("survey"), sha256_hex(bytes));
     EXPECT_NE(loaded.sha256.at("survey"), loaded.project.dataset("survey")->sha256);
-    EXPECT_TRUE(before == snapshot(study.dir.path())) << "opening a project wrote something";
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path())) << "opening a project wrote something";
 }
 
 TEST(LoadProject, VanishedDataFileIsAnErrorNamingDatasetAndPath) {
     StudyFolder study;
     fs::remove(study.extra);
-    const auto before = snapshot(study.dir.path());
+    const auto before = snapshot_folder(study.dir.path());
     const std::string message = input_error_of([&] { load_project(study.project); });
     EXPECT_TRUE(contains(message, "'extra'")) << message;
     EXPECT_TRUE(contains(message, fs::path(study.extra).lexically_normal().string())) << message;
     EXPECT_TRUE(contains(message, "../shared/extra.csv")) << message;
     EXPECT_TRUE(contains(message, study.project)) << message;
-    EXPECT_TRUE(before == snapshot(study.dir.path())) << "a failed open wrote something";
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path())) << "a failed open wrote something";
 }
 
 TEST(LoadProject, FailingRecipeIsReportedAndTheDataStillLoad) {
@@ -806,30 +788,30 @@ TEST(LoadProject, FailingRecipeIsReportedAndTheDataStillLoad) {
     p.derived.push_back({"survey", "log_neg", RecipeKind::CentreValue, "x", "", "", 10});
     p.derived.push_back({"survey", "bad_log", RecipeKind::Log, "log_neg", "", "", 0});
     write_project_file(p, study.project);
-    const auto before = snapshot(study.dir.path());
+    const auto before = snapshot_folder(study.dir.path());
     const LoadedProject loaded = load_project(study.project);
     ASSERT_TRUE(loaded.table_errors.count("survey"));
     EXPECT_TRUE(contains(loaded.table_errors.at("survey"), "bad_log")) << loaded.table_errors.at("survey");
     EXPECT_EQ(loaded.tables.at("survey")->rows(), 4u);
     ASSERT_EQ(loaded.warnings.size(), 1u);
-    EXPECT_TRUE(before == snapshot(study.dir.path()));
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path()));
 }
 
 TEST(LoadProject, CorruptAndNewerProjectsWriteNothing) {
     StudyFolder study;
     const std::string text = read_file(study.project);
     write_file(study.project, text.substr(0, text.size() / 2));
-    auto before = snapshot(study.dir.path());
+    auto before = snapshot_folder(study.dir.path());
     std::string message = input_error_of([&] { load_project(study.project); });
     EXPECT_TRUE(contains(message, study.project)) << message;
     EXPECT_TRUE(contains(message, "line ")) << message;
-    EXPECT_TRUE(before == snapshot(study.dir.path()));
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path()));
 
     write_file(study.project, replaced(text, "\"schema_version\": 2", "\"schema_version\": 3"));
-    before = snapshot(study.dir.path());
+    before = snapshot_folder(study.dir.path());
     message = input_error_of([&] { load_project(study.project); });
     EXPECT_TRUE(contains(message, "newer")) << message;
-    EXPECT_TRUE(before == snapshot(study.dir.path()));
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path()));
 }
 
 // ---------------------------------------------------------------- analysis runs
