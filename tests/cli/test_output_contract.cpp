@@ -24,6 +24,7 @@
 #include "cli_json.hpp"
 #include "cli_runner.hpp"
 #include "common/reference_fixtures.hpp"
+#include "common/sample_projects.hpp"
 #include "common/tolerance.hpp"
 
 namespace {
@@ -36,7 +37,7 @@ using moderato::test::RunResult;
 using nlohmann::json;
 
 const std::string kData = MODERATO_TEST_DATA_DIR;
-const std::string kSamples = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects";
+const std::string kSamples = moderato::test::samples_dir().string();
 
 // The folder of the statsmodels fixtures: the build's live run, else the committed one.
 fs::path fixtures() { return moderato::test::reference_fixture_dir("ols_binary_continuous.json"); }

@@ -32,11 +32,13 @@
 
 #include "cli_runner.hpp"
 #include "common/file_bytes.hpp"
+#include "common/sample_projects.hpp"
 #include "common/temp_dir.hpp"
 
 namespace {
 
 namespace fs = std::filesystem;
+using moderato::test::copy_sample;
 using moderato::test::FileSnapshot;
 using moderato::test::read_file;
 using moderato::test::run_cli;
@@ -53,15 +55,6 @@ bool contains(const std::string& hay, const std::string& needle) { return hay.fi
 std::string lower(std::string s) {
     for (char& c : s) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
     return s;
-}
-
-// Copies sample-projects/<name>/ into `into`; returns the copied project file.
-fs::path copy_sample(const std::string& name, const fs::path& into) {
-    const fs::path from = fs::path(MODERATO_SAMPLES_DIR) / name;
-    fs::create_directories(into);
-    for (const auto& e : fs::directory_iterator(from))
-        if (e.is_regular_file()) fs::copy_file(e.path(), into / e.path().filename());
-    return into / (name + ".moderato");
 }
 
 RunResult render(const fs::path& project, const fs::path& out, bool accept = false) {
@@ -607,7 +600,7 @@ TEST_P(RenderSample, WritesEveryFileAtItsSettingsAndRepeatsByteForByte) {
     // The project folder (project file and data) is as it was.
     EXPECT_TRUE(FileSnapshot::take((tmp.path() / "project").string()) == projectBefore);
     for (const auto& e : fs::directory_iterator(tmp.path() / "project"))
-        EXPECT_TRUE(read_file(e.path()) == read_file(fs::path(MODERATO_SAMPLES_DIR) / c.name / e.path().filename()))
+        EXPECT_TRUE(read_file(e.path()) == read_file(moderato::test::sample_file(c.name, e.path().filename().string())))
             << e.path();
 }
 

@@ -29,6 +29,7 @@
 #include "common/file_bytes.hpp"
 #include "common/folder_snapshot.hpp"
 #include "common/input_error.hpp"
+#include "common/sample_projects.hpp"
 #include "common/shell_command.hpp"
 #include "common/table_builder.hpp"
 #include "common/temp_dir.hpp"
@@ -45,6 +46,7 @@ using namespace moderato;
 using moderato::test::input_error_of;
 using moderato::test::read_file;
 using moderato::test::run_command;
+using moderato::test::samples_dir;
 using moderato::test::snapshot_folder;
 using moderato::test::TempDir;
 using moderato::test::write_file;
@@ -421,8 +423,6 @@ namespace {
 
 const char* const kSamples[] = {"coffee-discount", "helpdesk-staffing", "orchard-nitrogen", "trial-conversion",
                                 "volunteer-onboarding"};
-
-fs::path samples_dir() { return fs::path(MODERATO_TEST_DATA_DIR) / ".." / ".." / "sample-projects"; }
 
 }  // namespace
 
@@ -966,7 +966,7 @@ TEST(RunAnalysis, ColumnThatNoLongerExistsNamesAnalysisRoleAndColumn) {
 TEST(RunAnalysis, ProbeKindOfEachSampleProject) {
     // From each sample's design (README of sample-projects): binary moderator,
     // continuous x continuous, 2 x 2 cells, three-level moderator, logistic.
-    const fs::path samples = fs::path(MODERATO_TEST_DATA_DIR) / ".." / ".." / "sample-projects";
+    const fs::path samples = moderato::test::samples_dir();
     const std::vector<std::pair<std::string, ProbeKind>> expected{{"coffee-discount", ProbeKind::Groups},
                                                                   {"orchard-nitrogen", ProbeKind::Continuous},
                                                                   {"volunteer-onboarding", ProbeKind::Cells},

@@ -26,6 +26,7 @@
 #include <vector>
 
 #include "common/input_error.hpp"
+#include "common/sample_run.hpp"
 #include "common/shell_command.hpp"
 #include "common/temp_dir.hpp"
 #include "moderato/project/analysis_run.hpp"
@@ -38,6 +39,8 @@
 using namespace moderato;
 using moderato::test::input_error_of;
 using moderato::test::run_command;
+using moderato::test::run_sample;
+using moderato::test::SampleRun;
 using moderato::test::shell_quote;
 using moderato::test::TempDir;
 namespace fs = std::filesystem;
@@ -678,21 +681,6 @@ TEST(FileSlug, AnyBytesGiveAPortableName) {
 
 namespace {
 
-struct SampleRun {
-    LoadedProject loaded;
-    Analysis analysis;
-    AnalysisRun run;
-};
-
-SampleRun sample_run(const std::string& name) {
-    const fs::path file =
-        fs::path(MODERATO_TEST_DATA_DIR) / ".." / ".." / "sample-projects" / name / (name + ".moderato");
-    SampleRun s{load_project(file.string()), {}, {}};
-    s.analysis = s.loaded.project.analyses.front();
-    s.run = run_analysis(s.loaded.tables.at(s.analysis.dataset), s.analysis);
-    return s;
-}
-
 const ExportTable& table_of(const std::vector<NamedTable>& tables, const std::string& key) {
     for (const auto& t : tables)
         if (t.key == key) return t.table;
@@ -717,7 +705,7 @@ void expect_rounded(const std::string& text, double value) {
 }  // namespace
 
 TEST(AnalysisTables, EffectsAtChosenValuesInTheHouseOrderMatchTheClosedForm) {
-    const SampleRun s = sample_run("orchard-nitrogen");
+    const SampleRun s = run_sample("orchard-nitrogen");
     const auto tables = analysis_tables(s.analysis, s.run);
     const ExportTable& t = table_of(tables, "conditional-effects");
     // Our own heading and the house order: moderator value, effect, interval, SE, test value, p, note.
@@ -752,7 +740,7 @@ TEST(AnalysisTables, EffectsAtChosenValuesInTheHouseOrderMatchTheClosedForm) {
 
 TEST(AnalysisTables, GroupsAndCellsKeepTheHouseOrder) {
     // A categorical moderator: one row per group, headed by the group.
-    const SampleRun helpdesk = sample_run("helpdesk-staffing");
+    const SampleRun helpdesk = run_sample("helpdesk-staffing");
     const auto helpdeskTables = analysis_tables(helpdesk.analysis, helpdesk.run);
     const ExportTable& e = table_of(helpdeskTables, "conditional-effects");
     EXPECT_EQ(e.title, "Effect of agents_on_shift on resolution_hours in each group of shift");
@@ -765,7 +753,7 @@ TEST(AnalysisTables, GroupsAndCellsKeepTheHouseOrder) {
     EXPECT_NEAR(std::stod(e.rows[0][1].exact), helpdesk.run.fit.beta(i1), 1e-12);
 
     // Two categorical predictors: the contrasts in the same order; the cells list the interval before the SE.
-    const SampleRun cells = sample_run("volunteer-onboarding");
+    const SampleRun cells = run_sample("volunteer-onboarding");
     ASSERT_TRUE(cells.run.cells);
     const auto tables = analysis_tables(cells.analysis, cells.run);
     const ExportTable& c = table_of(tables, "cell-contrasts");
@@ -790,7 +778,7 @@ TEST(AnalysisTables, MemoSentencesCiteTheTableStrings) {
     // table's display strings, character for character (orchard: continuous; helpdesk: groups and crossovers).
     for (const char* name : {"orchard-nitrogen", "helpdesk-staffing"}) {
         SCOPED_TRACE(name);
-        const SampleRun s = sample_run(name);
+        const SampleRun s = run_sample(name);
         const auto tables = analysis_tables(s.analysis, s.run);
         const ExportTable& t = table_of(tables, "conditional-effects");
         std::string memo;
