@@ -34,16 +34,16 @@
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/support/sha256.hpp"
+#include "qstring_print.hpp"
+#include "sample_window.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
 #include "shell/project_sidebar.hpp"
 #include "ui_test_util.hpp"
 
-// Readable QString values in failure messages.
-inline void PrintTo(const QString& s, std::ostream* os) { *os << '"' << s.toStdString() << '"'; }
-
 using namespace moderato;
 using namespace moderato::ui;
+using moderato::test::waitForRun;
 namespace fs = std::filesystem;
 
 namespace {
@@ -71,10 +71,6 @@ QString visibleText(QWidget* root) {
     for (auto* label : root->findChildren<QLabel*>()) parts << label->text();
     for (auto* edit : root->findChildren<QTextEdit*>()) parts << edit->toPlainText();
     return parts.join(QLatin1Char('\n'));
-}
-
-bool waitForRun(MainWindow& w, const QString& id) {
-    return test::waitUntil([&] { return w.runner()->result(id) || !w.runner()->error(id).isEmpty(); });
 }
 
 }  // namespace
