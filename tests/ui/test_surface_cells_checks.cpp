@@ -56,7 +56,6 @@ using namespace moderato::ui;
 
 TEST(CellsView, VolunteerOnboardingSeriesMatchCoreCellTable) {
     test::SampleWindow win(test::sampleProject(QStringLiteral("volunteer-onboarding")));
-    MainWindow& w = win.w;
     const auto run = win.run();
     ASSERT_TRUE(run);
     ASSERT_TRUE(run->cells.has_value());
@@ -67,7 +66,7 @@ TEST(CellsView, VolunteerOnboardingSeriesMatchCoreCellTable) {
 
     CellsView view;
     view.resize(1000, 760);
-    view.setRun(*w.document()->analysis(w.analysisPage()->analysisId()), *run);
+    view.setRun(win.analysis(), *run);
     view.show();
     ASSERT_TRUE(QTest::qWaitForWindowExposed(&view));
     EXPECT_FALSE(view.showsProbability());
@@ -203,7 +202,6 @@ TEST(CellsView, LogisticProbabilityScaleShowsProbabilitiesAndOddsRatios) {
 
 TEST(SurfacePlot, OrchardNitrogenColourMapMatchesCoreSurfaceGrid) {
     test::SampleWindow win(test::sampleProject(QStringLiteral("orchard-nitrogen")));
-    MainWindow& w = win.w;
     const auto run = win.run();
     ASSERT_TRUE(run);
     ASSERT_TRUE(run->surface.has_value());
@@ -214,7 +212,7 @@ TEST(SurfacePlot, OrchardNitrogenColourMapMatchesCoreSurfaceGrid) {
 
     SurfacePlot plot;
     plot.resize(760, 520);
-    plot.setRun(*w.document()->analysis(w.analysisPage()->analysisId()), *run);
+    plot.setRun(win.analysis(), *run);
     plot.show();
     ASSERT_TRUE(QTest::qWaitForWindowExposed(&plot));
     QCPColorMap* map = plot.colorMap();
@@ -259,10 +257,9 @@ TEST(SurfacePlot, OrchardNitrogenColourMapMatchesCoreSurfaceGrid) {
 
 TEST(SurfacePlot, DataPointsFollowTheAnalysisSetting) {
     test::SampleWindow win(test::sampleProject(QStringLiteral("orchard-nitrogen")));
-    MainWindow& w = win.w;
     const auto run = win.run();
     ASSERT_TRUE(run);
-    Analysis a = *w.document()->analysis(w.analysisPage()->analysisId());
+    Analysis a = win.analysis();
     auto observedRows = [](SurfacePlot& plot) {
         int n = 0;
         for (int i = 0; i < plot.figurePlot()->graphCount(); ++i)
@@ -282,11 +279,10 @@ TEST(SurfacePlot, DataPointsFollowTheAnalysisSetting) {
 
 TEST(SurfacePlot, LogisticProbabilityScaleShowsProbabilities) {
     test::SampleWindow win(test::sampleProject(QStringLiteral("trial-conversion")));
-    MainWindow& w = win.w;
     const auto run = win.run();
     ASSERT_TRUE(run);
     ASSERT_TRUE(run->surface.has_value());
-    const Analysis& a = *w.document()->analysis(w.analysisPage()->analysisId());
+    const Analysis& a = win.analysis();
     ASSERT_EQ(a.probe.scale, ProbeScale::Outcome);
     const test::DirectFit d = test::direct_fit(test::sampleProject(QStringLiteral("trial-conversion")).toStdString());
     const SurfaceGrid ref = surface_grid(d.design, d.fit, d.analysis.roles.focal, d.analysis.roles.moderator);
