@@ -32,6 +32,8 @@
 #include <thread>
 #include <vector>
 
+#include "common/file_bytes.hpp"
+
 namespace moderato::test {
 
 struct RunOptions {
@@ -60,11 +62,6 @@ struct RunResult {
 };
 
 namespace detail {
-
-inline std::string read_whole(const std::string& path) {
-    std::ifstream in(path, std::ios::binary);
-    return std::string(std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>());
-}
 
 // A new empty temporary file; returns its path.
 inline std::string make_temp(const char* tag) {
@@ -145,8 +142,8 @@ inline RunResult run_process(const std::string& program, const std::vector<std::
     } else if (WIFSIGNALED(status)) {
         r.signal = WTERMSIG(status);
     }
-    r.out = detail::read_whole(out_path);
-    r.err = detail::read_whole(err_path);
+    r.out = read_file(out_path);
+    r.err = read_file(err_path);
     std::filesystem::remove(out_path);
     std::filesystem::remove(err_path);
     return r;
@@ -190,7 +187,7 @@ struct FileSnapshot {
                 s.entries.push_back(e.path().filename().string());
             std::sort(s.entries.begin(), s.entries.end());
         } else {
-            s.bytes = detail::read_whole(path);
+            s.bytes = read_file(path);
         }
         return s;
     }

@@ -10,32 +10,9 @@
 #include <string>
 
 #include "common/nist.hpp"
+#include "common/shell_command.hpp"
 
 using namespace moderato::test;
-
-namespace {
-
-std::string run_stdout(const std::string& command, int& status) {
-    std::string out;
-    FILE* pipe = popen(command.c_str(), "r");
-    if (!pipe) {
-        status = -1;
-        return out;
-    }
-    std::array<char, 65536> buf{};
-    std::size_t got;
-    while ((got = std::fread(buf.data(), 1, buf.size(), pipe)) > 0) out.append(buf.data(), got);
-    status = pclose(pipe);
-    return out;
-}
-
-std::string shell_quote(const std::string& s) {
-    std::string q = "'";
-    for (char c : s) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
-    return q + "'";
-}
-
-}  // namespace
 
 TEST(NistStrdCli, JsonOutputMeetsCertifiedDigits) {
     ASSERT_TRUE(nist_available()) << nist_missing_message();
@@ -54,7 +31,7 @@ TEST(NistStrdCli, JsonOutputMeetsCertifiedDigits) {
             cmd += " --poly x=" + std::to_string(c.degree);
         }
         int status = 0;
-        const std::string out = run_stdout(cmd + " 2>/dev/null", status);
+        const std::string out = run_command(cmd + " 2>/dev/null", &status);
         ASSERT_EQ(status, 0) << cmd;
         const auto j = nlohmann::json::parse(out);
         double coef = 15, se = 15;

@@ -23,33 +23,26 @@
 
 #include "cli_json.hpp"
 #include "cli_runner.hpp"
+#include "common/reference_fixtures.hpp"
+#include "common/sample_projects.hpp"
+#include "common/tolerance.hpp"
 
 namespace {
 
 namespace fs = std::filesystem;
 using moderato::test::expect_version_two;
+using moderato::test::rel;
 using moderato::test::run_cli;
 using moderato::test::RunResult;
 using nlohmann::json;
 
 const std::string kData = MODERATO_TEST_DATA_DIR;
-const std::string kSamples = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects";
+const std::string kSamples = moderato::test::samples_dir().string();
 
 // The folder of the statsmodels fixtures: the build's live run, else the committed one.
-fs::path fixtures() {
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live)
-        if (fs::exists(fs::path(live) / "ols_binary_continuous.json")) return live;
-    return fs::path(MODERATO_REFERENCE_DIR) / "fixtures";
-}
+fs::path fixtures() { return moderato::test::reference_fixture_dir("ols_binary_continuous.json"); }
 
-json fixture(const std::string& name) {
-    std::ifstream in(fixtures() / name);
-    if (!in) {
-        ADD_FAILURE() << "cannot open the fixture " << name;
-        return json::object();
-    }
-    return json::parse(in);
-}
+json fixture(const std::string& name) { return moderato::test::read_fixture_json(fixtures() / name); }
 
 // Runs the CLI with --format json; checks the document is version 2 and
 // free of version-1 words; returns it parsed.
@@ -61,8 +54,6 @@ json run_json(std::vector<std::string> args) {
     expect_version_two(r.out, j, args.front() + " " + (args.size() > 1 ? args[1] : ""));
     return j;
 }
-
-double rel(double a, double b) { return std::abs(a - b) / std::max(std::abs(b), 1e-300); }
 
 const json& term(const json& fit, const std::string& name) {
     for (const auto& t : fit.at("terms"))

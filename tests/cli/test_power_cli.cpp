@@ -15,10 +15,13 @@
 
 #include "cli_json.hpp"
 #include "cli_runner.hpp"
+#include "common/reference_fixtures.hpp"
+#include "common/tolerance.hpp"
 #include "moderato/probing/power.hpp"
 
 namespace {
 
+using moderato::test::rel;
 using moderato::test::run_cli;
 using moderato::test::RunResult;
 using nlohmann::json;
@@ -32,24 +35,12 @@ json power_json(std::vector<std::string> args) {
 
 // The first case of `section` in the scipy fixture for which `pick` is true.
 json reference_case(const std::string& section, const std::function<bool(const json&)>& pick) {
-    std::string path = std::string(MODERATO_REFERENCE_DIR) + "/fixtures/power_reference.json";
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live) {  // the build's live run
-        const std::string p = std::string(live) + "/power_reference.json";
-        if (std::ifstream(p).good()) path = p;
-    }
-    std::ifstream in(path);
-    if (!in) {
-        ADD_FAILURE() << "cannot open the power reference fixture";
-        return json::object();
-    }
-    const json doc = json::parse(in);
-    for (const auto& c : doc.at(section))
+    const json doc = moderato::test::read_fixture_json(moderato::test::reference_fixture("power_reference.json"));
+    for (const auto& c : doc.value(section, json::array()))
         if (pick(c)) return c;
     ADD_FAILURE() << "no such case in " << section;
     return json::object();
 }
-
-double rel_diff(double a, double b) { return std::fabs(a - b) / std::fabs(b); }
 
 moderato::PowerDesign design(long long u, long long k, double alpha = 0.05,
                              moderato::Noncentrality c = moderato::Noncentrality::cohen) {
@@ -79,12 +70,12 @@ TEST(PowerCli, PowerJsonMatchesReferenceAndCore) {
     EXPECT_EQ(j.at("df2").get<double>(), ref.at("df2").get<double>());  // scipy reference
     EXPECT_EQ(j.at("noncentrality_convention"), "n");
     EXPECT_EQ(j.at("noncentrality_formula"), "f2 * n");
-    EXPECT_LE(rel_diff(j.at("noncentrality").get<double>(), ref.at("noncentrality").get<double>()),
+    EXPECT_LE(rel(j.at("noncentrality").get<double>(), ref.at("noncentrality").get<double>()),
               1e-12);  // scipy reference
-    EXPECT_LE(rel_diff(j.at("critical_value").get<double>(), ref.at("critical_f").get<double>()),
-              1e-8);                                                                        // scipy f.isf
-    EXPECT_LE(rel_diff(j.at("power").get<double>(), ref.at("power").get<double>()), 1e-8);  // scipy ncf.sf
-    EXPECT_NEAR(j.at("partial_r2").get<double>(), 0.03 / 1.03, 1e-16);                      // closed form
+    EXPECT_LE(rel(j.at("critical_value").get<double>(), ref.at("critical_f").get<double>()),
+              1e-8);                                                                   // scipy f.isf
+    EXPECT_LE(rel(j.at("power").get<double>(), ref.at("power").get<double>()), 1e-8);  // scipy ncf.sf
+    EXPECT_NEAR(j.at("partial_r2").get<double>(), 0.03 / 1.03, 1e-16);                 // closed form
 
     // 17 significant digits: the printed number is the core's double exactly.
     const auto core = moderato::power_of_test(0.03, 200, design(2, 5, 0.01, moderato::Noncentrality::n));
@@ -100,9 +91,9 @@ TEST(PowerCli, SampleSizeJsonMatchesReference) {
         power_json({"--power", "0.9", "--f2", "0.05", "--tested", "2", "--predictors", "6", "--alpha", "0.01"});
     EXPECT_EQ(j.at("mode"), "sample_size");
     EXPECT_EQ(j.at("noncentrality_convention"), "cohen");
-    EXPECT_EQ(j.at("sample_size").get<long long>(), ref.at("n").get<long long>());               // scan of scipy ncf.sf
-    EXPECT_LE(rel_diff(j.at("power").get<double>(), ref.at("power_at_n").get<double>()), 1e-8);  // scipy ncf.sf
-    EXPECT_LE(rel_diff(j.at("power_one_fewer").get<double>(), ref.at("power_one_fewer").get<double>()),
+    EXPECT_EQ(j.at("sample_size").get<long long>(), ref.at("n").get<long long>());          // scan of scipy ncf.sf
+    EXPECT_LE(rel(j.at("power").get<double>(), ref.at("power_at_n").get<double>()), 1e-8);  // scipy ncf.sf
+    EXPECT_LE(rel(j.at("power_one_fewer").get<double>(), ref.at("power_one_fewer").get<double>()),
               1e-8);  // scipy ncf.sf
     EXPECT_EQ(j.at("target_power").get<double>(), 0.9);
 }
@@ -112,8 +103,8 @@ TEST(PowerCli, DetectableJsonMatchesReference) {
         "detectable_cases", [](const json& c) { return c.at("tested_terms") == 2 && c.at("total_predictors") == 5; });
     const json j = power_json({"--n", "250", "--power", "0.9", "--detectable", "--tested", "2", "--predictors", "5"});
     EXPECT_EQ(j.at("mode"), "detectable_effect");
-    EXPECT_LE(rel_diff(j.at("f2").get<double>(), ref.at("f2").get<double>()), 1e-8);  // scipy brentq on ncf.sf
-    EXPECT_NEAR(j.at("power").get<double>(), 0.9, 1e-12);                             // the target (closed form)
+    EXPECT_LE(rel(j.at("f2").get<double>(), ref.at("f2").get<double>()), 1e-8);  // scipy brentq on ncf.sf
+    EXPECT_NEAR(j.at("power").get<double>(), 0.9, 1e-12);                        // the target (closed form)
 }
 
 // f2 from two R² values: (0.30 − 0.27)/(1 − 0.30) = 0.03/0.70 (closed form).

@@ -8,14 +8,15 @@
 
 #include "cli/cli_json.hpp"
 #include "cli/cli_runner.hpp"
+#include "common/sample_projects.hpp"
 
 using moderato::test::run_cli;
 using nlohmann::json;
 
 namespace {
 
-const std::string kData = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects/coffee-discount/spend.csv";
-const std::string kOrchard = std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects/orchard-nitrogen/plots.csv";
+const std::string kData = moderato::test::sample_file("coffee-discount", "spend.csv").string();
+const std::string kOrchard = moderato::test::sample_file("orchard-nitrogen", "plots.csv").string();
 
 json run_json(const std::vector<std::string>& args) { return moderato::test::json_output(run_cli(args)); }
 
@@ -161,8 +162,7 @@ TEST(ProbeCli, BootstrapRefusesTooFewRows) {
 // Closed form: in the saturated 2 x 2 model each cell's prediction is its
 // observed mean and the difference in differences is the product coefficient.
 TEST(ProbeCli, TwoCategoricalPredictorsGiveTheCellTable) {
-    const std::string data =
-        std::string(MODERATO_TEST_DATA_DIR) + "/../../sample-projects/volunteer-onboarding/volunteers.csv";
+    const std::string data = moderato::test::sample_file("volunteer-onboarding", "volunteers.csv").string();
     const std::vector<std::string> model{
         "--data", data, "--outcome", "hours_q1", "--interaction", "onboarding,mentoring", "--format", "json"};
     std::vector<std::string> fit_args{"fit"}, probe_args{"probe", "--focal", "onboarding", "--moderator", "mentoring"};

@@ -31,64 +31,30 @@
 #include <vector>
 
 #include "cli_runner.hpp"
+#include "common/file_bytes.hpp"
+#include "common/sample_projects.hpp"
+#include "common/temp_dir.hpp"
 
 namespace {
 
 namespace fs = std::filesystem;
+using moderato::test::copy_sample;
 using moderato::test::FileSnapshot;
+using moderato::test::read_file;
 using moderato::test::run_cli;
 using moderato::test::run_process;
 using moderato::test::RunResult;
+using moderato::test::TempDir;
+using moderato::test::write_file;
 using nlohmann::json;
 
 const char* const kPython = "/usr/bin/python3";
-
-std::string slurp(const fs::path& p) {
-    std::ifstream in(p, std::ios::binary);
-    std::ostringstream s;
-    s << in.rdbuf();
-    return s.str();
-}
-
-void spit(const fs::path& p, const std::string& bytes) {
-    std::ofstream out(p, std::ios::binary | std::ios::trunc);
-    out << bytes;
-}
 
 bool contains(const std::string& hay, const std::string& needle) { return hay.find(needle) != std::string::npos; }
 
 std::string lower(std::string s) {
     for (char& c : s) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
     return s;
-}
-
-// A fresh folder under the system's temporary folder, removed afterwards.
-class TempDir {
-public:
-    TempDir() {
-        std::string templ = (fs::temp_directory_path() / "moderato-render-XXXXXX").string();
-        if (!::mkdtemp(templ.data())) throw std::runtime_error("mkdtemp failed for " + templ);
-        path_ = templ;
-    }
-    ~TempDir() {
-        std::error_code ec;
-        fs::remove_all(path_, ec);
-    }
-    TempDir(const TempDir&) = delete;
-    TempDir& operator=(const TempDir&) = delete;
-    const fs::path& path() const { return path_; }
-
-private:
-    fs::path path_;
-};
-
-// Copies sample-projects/<name>/ into `into`; returns the copied project file.
-fs::path copy_sample(const std::string& name, const fs::path& into) {
-    const fs::path from = fs::path(MODERATO_SAMPLES_DIR) / name;
-    fs::create_directories(into);
-    for (const auto& e : fs::directory_iterator(from))
-        if (e.is_regular_file()) fs::copy_file(e.path(), into / e.path().filename());
-    return into / (name + ".moderato");
 }
 
 RunResult render(const fs::path& project, const fs::path& out, bool accept = false) {
@@ -102,7 +68,7 @@ std::map<std::string, std::string> tree(const fs::path& root) {
     std::map<std::string, std::string> out;
     if (!fs::exists(root)) return out;
     for (const auto& e : fs::recursive_directory_iterator(root))
-        if (e.is_regular_file()) out[fs::relative(e.path(), root).generic_string()] = slurp(e.path());
+        if (e.is_regular_file()) out[fs::relative(e.path(), root).generic_string()] = read_file(e.path());
     return out;
 }
 
@@ -218,7 +184,7 @@ PdfInfo pdf_info(const fs::path& file) {
         return info;
     }
     // No poppler: read the first /MediaBox and count the page objects.
-    const std::string b = slurp(file);
+    const std::string b = read_file(file);
     info.text = "(pdfinfo absent: parsed the bytes)";
     info.ok = b.rfind("%PDF-", 0) == 0 && contains(b, "%%EOF");
     std::smatch m;
@@ -253,7 +219,7 @@ int pdf_raster_images(const fs::path& file) {
         }
         return n;
     }
-    const std::string b = slurp(file);
+    const std::string b = read_file(file);
     static const std::regex image(R"(/Subtype\s*/Image)");
     return static_cast<int>(std::distance(std::sregex_iterator(b.begin(), b.end(), image), std::sregex_iterator()));
 }
@@ -447,7 +413,7 @@ void check_figure(const fs::path& stem, const json& figure, const json& svg, int
     SCOPED_TRACE(stem.string());
 
     // PNG: closed form, inches × dpi pixels, rounded.
-    const PngInfo png = read_png(slurp(stem.string() + ".png"));
+    const PngInfo png = read_png(read_file(stem.string() + ".png"));
     ASSERT_EQ(png.error, "");
     EXPECT_EQ(png.width, static_cast<std::uint32_t>(std::lround(w_in * dpi)));
     EXPECT_EQ(png.height, static_cast<std::uint32_t>(std::lround(h_in * dpi)));
@@ -459,7 +425,7 @@ void check_figure(const fs::path& stem, const json& figure, const json& svg, int
 
     // SVG: well-formed XML (expat), size in mm = inches × 25.4 (exact by definition of the inch),
     // drawn as vectors, no embedded raster.
-    const std::string svgBytes = slurp(stem.string() + ".svg");
+    const std::string svgBytes = read_file(stem.string() + ".svg");
     ASSERT_FALSE(svg.contains("error")) << svg.dump();
     EXPECT_EQ(svg.at("root"), "svg");
     const std::string width = svg.at("width"), height = svg.at("height");
@@ -478,7 +444,7 @@ void check_figure(const fs::path& stem, const json& figure, const json& svg, int
         EXPECT_EQ(href.get<std::string>().rfind("data:image/", 0), 0u) << href;
 
     // PDF: one page of the figure size in points, vectors only.
-    const std::string pdf = slurp(stem.string() + ".pdf");
+    const std::string pdf = read_file(stem.string() + ".pdf");
     EXPECT_EQ(pdf.rfind("%PDF-", 0), 0u);
     const PdfInfo info = pdf_info(stem.string() + ".pdf");
     EXPECT_TRUE(info.ok) << info.text;
@@ -491,21 +457,21 @@ void check_figure(const fs::path& stem, const json& figure, const json& svg, int
 void check_csv(const fs::path& file) {
     SCOPED_TRACE(file.string());
     std::string error;
-    const auto records = parse_rfc4180(slurp(file), error);
+    const auto records = parse_rfc4180(read_file(file), error);
     ASSERT_EQ(error, "");
     ASSERT_GE(records.size(), 2u) << "a header and at least one row";
     for (std::size_t r = 0; r < records.size(); ++r) {
         EXPECT_EQ(records[r].size(), records[0].size()) << "record " << r;
         for (const auto& cell : records[r]) EXPECT_FALSE(formula_like(cell)) << "record " << r << ": " << cell;
     }
-    const std::string bytes = slurp(file);
+    const std::string bytes = read_file(file);
     EXPECT_NE(bytes.rfind("\xEF\xBB\xBF", 0), 0u) << "byte-order mark";
 }
 
 // memo.html: self-contained (nothing a browser would fetch), figures as
 // data: URIs identical to the PNG files beside it.
 void check_memo_html(const fs::path& dir, const std::vector<std::string>& figures) {
-    const std::string html = slurp(dir / "memo.html");
+    const std::string html = read_file(dir / "memo.html");
     for (const char* bad :
          {"http://", "https://", "<link", "<script", "@import", "url(", "<iframe", "<object", "<embed"})
         EXPECT_FALSE(contains(lower(html), bad)) << "memo.html contains " << bad;
@@ -526,7 +492,7 @@ void check_memo_html(const fs::path& dir, const std::vector<std::string>& figure
 
 // memo.md: each image it names is a PNG file beside it.
 void check_memo_markdown(const fs::path& dir, const std::vector<std::string>& figures) {
-    const std::string md = slurp(dir / "memo.md");
+    const std::string md = read_file(dir / "memo.md");
     static const std::regex image(R"(!\[[^\]]*\]\(([^)\s]+)\))");
     std::vector<std::string> named;
     for (auto it = std::sregex_iterator(md.begin(), md.end(), image); it != std::sregex_iterator(); ++it) {
@@ -534,7 +500,7 @@ void check_memo_markdown(const fs::path& dir, const std::vector<std::string>& fi
         named.push_back(target);
         EXPECT_EQ(target.find('/'), std::string::npos) << target << " is not beside the memo";
         ASSERT_TRUE(fs::is_regular_file(dir / target)) << target;
-        EXPECT_EQ(read_png(slurp(dir / target)).error, "") << target;
+        EXPECT_EQ(read_png(read_file(dir / target)).error, "") << target;
     }
     std::vector<std::string> expected;
     for (const auto& f : figures) expected.push_back(f + ".png");
@@ -543,10 +509,10 @@ void check_memo_markdown(const fs::path& dir, const std::vector<std::string>& fi
 
 TEST_P(RenderSample, WritesEveryFileAtItsSettingsAndRepeatsByteForByte) {
     const SampleCase& c = GetParam();
-    TempDir tmp;
+    TempDir tmp{"render"};
     const fs::path project = copy_sample(c.name, tmp.path() / "project");
     const FileSnapshot projectBefore = FileSnapshot::take((tmp.path() / "project").string());
-    const json doc = json::parse(slurp(project));
+    const json doc = json::parse(read_file(project));
     const json& analysis = doc.at("analyses").at(0);
     const std::string folder = analysis.at("id");
     const json& figure = analysis.at("figure");
@@ -616,7 +582,7 @@ TEST_P(RenderSample, WritesEveryFileAtItsSettingsAndRepeatsByteForByte) {
     EXPECT_GE(pdf_raster_images(outA / folder / "memo.pdf"), static_cast<int>(c.figures.size()))
         << "the memo PDF shows its figures";
     // The footer names the data file's SHA-256 (as sha256sum computes it) and says it matches the project's.
-    const std::string md = slurp(outA / folder / "memo.md");
+    const std::string md = read_file(outA / folder / "memo.md");
     const std::string dataFile = doc.at("datasets").at(0).at("path");
     EXPECT_TRUE(contains(md, sha256_of(project.parent_path() / dataFile))) << md;
     EXPECT_TRUE(contains(md, "matches")) << md;
@@ -634,7 +600,7 @@ TEST_P(RenderSample, WritesEveryFileAtItsSettingsAndRepeatsByteForByte) {
     // The project folder (project file and data) is as it was.
     EXPECT_TRUE(FileSnapshot::take((tmp.path() / "project").string()) == projectBefore);
     for (const auto& e : fs::directory_iterator(tmp.path() / "project"))
-        EXPECT_TRUE(slurp(e.path()) == slurp(fs::path(MODERATO_SAMPLES_DIR) / c.name / e.path().filename()))
+        EXPECT_TRUE(read_file(e.path()) == read_file(moderato::test::sample_file(c.name, e.path().filename().string())))
             << e.path();
 }
 
@@ -650,14 +616,14 @@ INSTANTIATE_TEST_SUITE_P(Samples, RenderSample, ::testing::ValuesIn(samples()),
 
 // Appends a copy of the last data row: the file's SHA-256 changes.
 void append_last_row(const fs::path& csv) {
-    std::string bytes = slurp(csv);
+    std::string bytes = read_file(csv);
     if (!bytes.empty() && bytes.back() == '\n') bytes.pop_back();
     const auto nl = bytes.rfind('\n');
-    spit(csv, slurp(csv) + bytes.substr(nl + 1) + "\n");
+    write_file(csv, read_file(csv) + bytes.substr(nl + 1) + "\n");
 }
 
 TEST(RenderChangedData, StopsWithExit2NamingTheFileAndWritesNothing) {
-    TempDir tmp;
+    TempDir tmp{"render"};
     const fs::path project = copy_sample("coffee-discount", tmp.path() / "p");
     const fs::path csv = tmp.path() / "p" / "spend.csv";
     append_last_row(csv);
@@ -677,10 +643,10 @@ TEST(RenderChangedData, StopsWithExit2NamingTheFileAndWritesNothing) {
 }
 
 TEST(RenderChangedData, AcceptedWithAWarningAndTheMemoSaysTheHashDiffers) {
-    TempDir tmp;
+    TempDir tmp{"render"};
     const fs::path project = copy_sample("coffee-discount", tmp.path() / "p");
     const fs::path csv = tmp.path() / "p" / "spend.csv";
-    const std::string recorded = json::parse(slurp(project)).at("datasets").at(0).at("sha256");
+    const std::string recorded = json::parse(read_file(project)).at("datasets").at(0).at("sha256");
     ASSERT_EQ(sha256_of(csv), recorded) << "the sample's recorded hash is the file's (sha256sum)";
     append_last_row(csv);
     const std::string now = sha256_of(csv);
@@ -694,20 +660,20 @@ TEST(RenderChangedData, AcceptedWithAWarningAndTheMemoSaysTheHashDiffers) {
     EXPECT_TRUE(contains(r.err, "spend.csv")) << r.err;
     EXPECT_TRUE(FileSnapshot::take(csv.string()) == csvBefore);
     for (const char* memo : {"memo.md", "memo.html"}) {
-        const std::string text = slurp(out / "discount-loyalty" / memo);
+        const std::string text = read_file(out / "discount-loyalty" / memo);
         EXPECT_TRUE(contains(text, now)) << memo << ": the SHA-256 of the data as rendered";
         EXPECT_TRUE(contains(text, recorded)) << memo << ": the SHA-256 the project recorded";
         EXPECT_TRUE(contains(text, "differs")) << memo;
         EXPECT_FALSE(contains(text, "matches")) << memo;
     }
     // 901 lines = header + 900 rows; one more row is used now (invented sample, counted with wc -l).
-    EXPECT_TRUE(contains(slurp(out / "discount-loyalty" / "memo.md"), "901 of 901")) << "rows used";
+    EXPECT_TRUE(contains(read_file(out / "discount-loyalty" / "memo.md"), "901 of 901")) << "rows used";
 }
 
 // ------------------------------------------------------------------ usage errors
 
 TEST(RenderUsage, BadArgumentsExit2AndWriteNothing) {
-    TempDir tmp;
+    TempDir tmp{"render"};
     const fs::path project = copy_sample("coffee-discount", tmp.path() / "p");
     const FileSnapshot before = FileSnapshot::take((tmp.path() / "p").string());
 
@@ -739,7 +705,7 @@ TEST(RenderUsage, BadArgumentsExit2AndWriteNothing) {
     EXPECT_TRUE(FileSnapshot::take(notProject.string()) == csvBefore);
 
     // A project whose data file is gone: exit 2 naming the data file.
-    TempDir other;
+    TempDir other{"render"};
     const fs::path orphan = copy_sample("coffee-discount", other.path());
     fs::remove(other.path() / "spend.csv");
     const RunResult noData = run_cli({"render", orphan.string(), "--out", (tmp.path() / "o").string()});
@@ -777,7 +743,7 @@ fs::path write_awkward_project(const fs::path& dir, const std::string& data_path
         csv += row;
     }
     fs::create_directories((dir / data_path).parent_path());
-    spit(dir / data_path, csv);
+    write_file(dir / data_path, csv);
     const json project = {{"schema_version", 2},
                           {"datasets",
                            {{{"id", "esc"},
@@ -825,7 +791,7 @@ fs::path write_awkward_project(const fs::path& dir, const std::string& data_path
                                {"caption", true}}},
                              {"memo_notes", "Notes with <i>tags</i> & an ampersand"}}}},
                           {"figures", json::array()}};
-    spit(dir / "esc.moderato", project.dump(2));
+    write_file(dir / "esc.moderato", project.dump(2));
     return dir / "esc.moderato";
 }
 
@@ -840,7 +806,7 @@ protected:
         dir_ = tmp_.path() / "out" / "escaping";
     }
 
-    TempDir tmp_;
+    TempDir tmp_{"render"};
     fs::path dir_;
 };
 
@@ -850,7 +816,7 @@ protected:
 // refused with exit 2 naming it, whether --out names the project's folder
 // directly or through a symbolic link; the data's bytes and time unchanged.
 TEST(RenderDataFiles, NeverWritesOverADataFileEvenThroughASymbolicLink) {
-    TempDir tmp;
+    TempDir tmp{"render"};
     const fs::path dir = tmp.path() / "p";
     const fs::path project = write_awkward_project(dir, "escaping/estimates.csv");
     const fs::path data = dir / "escaping" / "estimates.csv";
@@ -865,7 +831,7 @@ TEST(RenderDataFiles, NeverWritesOverADataFileEvenThroughASymbolicLink) {
 }
 
 TEST_F(RenderEscaping, HtmlMemoAndTablesShowTheNamesAsText) {
-    const std::string html = slurp(dir_ / "memo.html");
+    const std::string html = read_file(dir_ / "memo.html");
     EXPECT_TRUE(contains(html, "&lt;script&gt;alert(1)&lt;/script&gt;")) << html.substr(0, 3000);
     EXPECT_FALSE(contains(lower(html), "<script"));
     EXPECT_TRUE(contains(html, "dose &amp; &lt;b&gt;bold&lt;/b&gt; check"));
@@ -884,7 +850,7 @@ TEST_F(RenderEscaping, HtmlMemoAndTablesShowTheNamesAsText) {
     for (const auto& e : fs::directory_iterator(dir_)) {
         if (e.path().extension() != ".html" || e.path().filename() == "memo.html") continue;
         ++tables;
-        const std::string t = slurp(e.path());
+        const std::string t = read_file(e.path());
         EXPECT_FALSE(contains(lower(t), "<script")) << e.path();
         const json p = python_json(kHtmlScript, {e.path().string()});
         const auto ttags = p.at("tags").get<std::vector<std::string>>();
@@ -893,7 +859,7 @@ TEST_F(RenderEscaping, HtmlMemoAndTablesShowTheNamesAsText) {
     EXPECT_EQ(tables, 4);
     // The estimates and the conditional effects name the moderator.
     for (const char* key : {"estimates.html", "conditional-effects.html"})
-        EXPECT_TRUE(contains(slurp(dir_ / key), "&lt;script&gt;alert(1)&lt;/script&gt;")) << key;
+        EXPECT_TRUE(contains(read_file(dir_ / key), "&lt;script&gt;alert(1)&lt;/script&gt;")) << key;
 }
 
 TEST_F(RenderEscaping, MarkdownEscapesEveryTagAndCmarkRendersItAsText) {
@@ -901,7 +867,7 @@ TEST_F(RenderEscaping, MarkdownEscapesEveryTagAndCmarkRendersItAsText) {
     // preceded by a backslash, so no raw HTML reaches a Markdown reader.
     for (const auto& e : fs::directory_iterator(dir_)) {
         if (e.path().extension() != ".md") continue;
-        const std::string md = slurp(e.path());
+        const std::string md = read_file(e.path());
         for (std::size_t i = md.find('<'); i != std::string::npos; i = md.find('<', i + 1)) {
             const char next = i + 1 < md.size() ? md[i + 1] : ' ';
             if (std::isalpha(static_cast<unsigned char>(next)) || next == '/' || next == '!' || next == '?') {
@@ -933,7 +899,7 @@ TEST_F(RenderEscaping, LatexTablesKeepAngleBracketsInMathMode) {
     for (const auto& e : fs::directory_iterator(dir_)) {
         if (e.path().extension() != ".tex") continue;
         ++files;
-        const std::string tex = slurp(e.path());
+        const std::string tex = read_file(e.path());
         EXPECT_FALSE(contains(tex, "<script")) << e.path();
         bool math = false;
         for (std::size_t i = 0; i < tex.size(); ++i) {
@@ -950,7 +916,7 @@ TEST_F(RenderEscaping, LatexTablesKeepAngleBracketsInMathMode) {
         EXPECT_FALSE(math) << e.path() << ": unbalanced $";
     }
     EXPECT_EQ(files, 4);
-    EXPECT_TRUE(contains(slurp(dir_ / "estimates.tex"), "script")) << "the moderator is named";
+    EXPECT_TRUE(contains(read_file(dir_ / "estimates.tex"), "script")) << "the moderator is named";
 }
 
 TEST_F(RenderEscaping, SvgFiguresAreWellFormedWithTheNameAsText) {

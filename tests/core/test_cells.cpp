@@ -14,7 +14,9 @@
 #include <nlohmann/json.hpp>
 #include <random>
 
+#include "common/reference_fixtures.hpp"
 #include "common/table_builder.hpp"
+#include "common/tolerance.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/probing/cells.hpp"
 #include "moderato/reading/csv.hpp"
@@ -29,11 +31,6 @@ namespace {
 
 // 0.975 quantile of the standard normal (common practice: 1.959963984540054).
 constexpr double kZ975 = 1.959963984540054;
-
-double rel(double a, double b) {
-    if (a == b) return 0;
-    return std::abs(a - b) / std::max(std::abs(b), 1e-300);
-}
 
 double logit(double p) { return std::log(p / (1 - p)); }
 double expit(double x) { return 1 / (1 + std::exp(-x)); }
@@ -464,22 +461,14 @@ TEST(CellTable, LogisticSaturated2x2) {
 // ---------------------------------------------------------------------------
 // statsmodels reference (tests/reference/make_cells_reference.py).
 
-fs::path cells_fixture(const std::string& name) {
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live) {
-        const fs::path p = fs::path(live) / name;
-        if (fs::exists(p)) return p;
-    }
-    return fs::path(MODERATO_REFERENCE_DIR) / "fixtures" / name;
-}
-
 struct Case {
     json j;
     Fitted fit;
 };
 
 Case load(const std::string& name, SeKind se) {
-    const fs::path path = cells_fixture(name + ".json");
-    json j = json::parse(std::ifstream(path));
+    const fs::path path = reference_fixture(name + ".json");
+    json j = read_fixture_json(path);
     const json& s = j.at("spec");
     CsvOptions o;
     ModelSpec spec;

@@ -10,6 +10,7 @@
 #include <string>
 #include <vector>
 
+#include "common/table_builder.hpp"
 #include "moderato/reading/column_summary.hpp"
 #include "moderato/reading/table.hpp"
 
@@ -17,18 +18,11 @@ using moderato::Column;
 using moderato::ColumnKind;
 using moderato::ColumnSummary;
 using moderato::Histogram;
+using moderato::test::numeric_column;
 
 namespace {
 
 const double kNaN = moderato::missing_value();
-
-Column numeric(const std::string& name, std::vector<double> values) {
-    Column c;
-    c.name = name;
-    c.kind = ColumnKind::Numeric;
-    c.numbers = std::move(values);
-    return c;
-}
 
 void expect_histogram(const Histogram& h, const std::vector<double>& edges, const std::vector<std::size_t>& counts) {
     ASSERT_EQ(h.edges.size(), edges.size());
@@ -47,8 +41,8 @@ std::vector<double> grid_values() {
 }  // namespace
 
 TEST(ColumnSummary, NumericColumnWithMissingCellsMatchesStatisticsAndNumpy) {
-    const Column c = numeric("amount", {12.5, 7.25, kNaN, 3,  18.75, 9.5, 11,   kNaN, 14.25, 6.5,   21,   8.75,
-                                        10,   13.5, 4.25, 16, 9,     12,  7.75, 15.5, 5.5,   19.25, 11.75});
+    const Column c = numeric_column("amount", {12.5, 7.25, kNaN, 3,  18.75, 9.5, 11,   kNaN, 14.25, 6.5,   21,   8.75,
+                                               10,   13.5, 4.25, 16, 9,     12,  7.75, 15.5, 5.5,   19.25, 11.75});
     const ColumnSummary s = moderato::summarise_column(c);
     EXPECT_EQ(s.name, "amount");
     EXPECT_EQ(s.kind, ColumnKind::Numeric);
@@ -69,7 +63,7 @@ TEST(ColumnSummary, NumericColumnWithMissingCellsMatchesStatisticsAndNumpy) {
 TEST(ColumnSummary, ZeroInterquartileRangeFallsBackToSturges) {
     std::vector<double> v(20, 5.0);
     for (const double x : {1.0, 9.0, 12.0, 2.5}) v.push_back(x);
-    const ColumnSummary s = moderato::summarise_column(numeric("spike", v));
+    const ColumnSummary s = moderato::summarise_column(numeric_column("spike", v));
     EXPECT_DOUBLE_EQ(s.mean, 5.1875);          // statistics.mean
     EXPECT_DOUBLE_EQ(s.sd, 1.93824494795185);  // statistics.stdev
     EXPECT_DOUBLE_EQ(s.q1, 5.0);               // numpy.percentile
@@ -82,7 +76,7 @@ TEST(ColumnSummary, ZeroInterquartileRangeFallsBackToSturges) {
 
 TEST(ColumnSummary, ManyValuesOnBinEdgesMatchNumpyWithAndWithoutTheBinCap) {
     std::vector<double> v = grid_values();
-    const ColumnSummary s = moderato::summarise_column(numeric("grid", v), 40);
+    const ColumnSummary s = moderato::summarise_column(numeric_column("grid", v), 40);
     EXPECT_DOUBLE_EQ(s.mean, 78.1726434375);     // statistics.mean
     EXPECT_NEAR(s.sd, 45.1377088083429, 1e-12);  // statistics.stdev
     EXPECT_DOUBLE_EQ(s.q1, 39.078125);           // numpy.percentile
@@ -109,20 +103,20 @@ TEST(ColumnSummary, ManyValuesOnBinEdgesMatchNumpyWithAndWithoutTheBinCap) {
 }
 
 TEST(ColumnSummary, ConstantColumnGetsOneUnitBinAndZeroSd) {
-    const ColumnSummary s = moderato::summarise_column(numeric("k", {2.5, 2.5, kNaN, 2.5}));
+    const ColumnSummary s = moderato::summarise_column(numeric_column("k", {2.5, 2.5, kNaN, 2.5}));
     EXPECT_EQ(s.n, 3u);
     EXPECT_EQ(s.sd, 0.0);                            // statistics.stdev([2.5] * 3)
     expect_histogram(s.histogram, {2.0, 3.0}, {3});  // numpy.histogram(x, bins="auto")
 }
 
 TEST(ColumnSummary, TooFewValuesLeaveUndefinedStatisticsAsNaN) {
-    const ColumnSummary none = moderato::summarise_column(numeric("x", {kNaN, kNaN}));
+    const ColumnSummary none = moderato::summarise_column(numeric_column("x", {kNaN, kNaN}));
     EXPECT_EQ(none.n, 0u);
     EXPECT_EQ(none.missing, 2u);
     EXPECT_TRUE(std::isnan(none.mean));
     EXPECT_TRUE(std::isnan(none.median));
     EXPECT_TRUE(none.histogram.counts.empty());
-    const ColumnSummary one = moderato::summarise_column(numeric("x", {4.0}));
+    const ColumnSummary one = moderato::summarise_column(numeric_column("x", {4.0}));
     EXPECT_EQ(one.mean, 4.0);         // closed form
     EXPECT_TRUE(std::isnan(one.sd));  // the n - 1 divisor needs two values (statistics.stdev raises)
     EXPECT_EQ(one.median, 4.0);

@@ -18,6 +18,8 @@
 #include <string>
 #include <vector>
 
+#include "common/input_error.hpp"
+#include "common/temp_dir.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/reading/table.hpp"
 #include "moderato/support/error.hpp"
@@ -28,6 +30,9 @@ using moderato::ColumnKind;
 using moderato::CsvOptions;
 using moderato::InputError;
 using moderato::Table;
+using moderato::test::input_error_of;
+using moderato::test::read_file;
+using moderato::test::TempDir;
 
 namespace {
 
@@ -35,57 +40,14 @@ Table read(const std::string& text, const CsvOptions& options = {}) {
     return moderato::read_csv_text(text, "t.csv", options);
 }
 
-// The InputError message of fn(), or a marker that fails any comparison.
-std::string error_of(const std::function<void()>& fn) {
-    try {
-        fn();
-    } catch (const InputError& e) {
-        return e.what();
-    }
-    return "<no InputError thrown>";
-}
-
 std::string text_error(const std::string& text, const CsvOptions& options = {}) {
-    return error_of([&] { read(text, options); });
+    return input_error_of([&] { read(text, options); });
 }
 
 std::vector<std::string> cells(const Column& c) {
     std::vector<std::string> out;
     for (auto code : c.codes) out.push_back(code < 0 ? "<NA>" : c.levels[static_cast<std::size_t>(code)]);
     return out;
-}
-
-// A scratch folder under the system temp directory, removed afterwards.
-class TempDir {
-public:
-    TempDir() {
-        path_ = fs::temp_directory_path() /
-                ("moderato_csv_test_" + std::to_string(::getpid()) + "_" + std::to_string(counter()++));
-        fs::create_directories(path_);
-    }
-    ~TempDir() {
-        std::error_code ec;
-        fs::remove_all(path_, ec);
-    }
-    fs::path file(const std::string& name, const std::string& bytes) const {
-        const fs::path p = path_ / name;
-        std::ofstream out(p, std::ios::binary);
-        out.write(bytes.data(), static_cast<std::streamsize>(bytes.size()));
-        return p;
-    }
-    const fs::path& path() const { return path_; }
-
-private:
-    static int& counter() {
-        static int n = 0;
-        return n;
-    }
-    fs::path path_;
-};
-
-std::string slurp(const fs::path& p) {
-    std::ifstream in(p, std::ios::binary);
-    return std::string(std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>());
 }
 
 // Exact equality, NaN equal to NaN (every NaN means "missing").
@@ -340,15 +302,16 @@ TEST(Csv, ValidUtf8TextIsKept) {
 // ------------------------------------------------------------ errors
 
 TEST(CsvErrors, FileNotFound) {
-    TempDir dir;
+    TempDir dir("csv");
     const std::string p = (dir.path() / "nope.csv").string();
-    EXPECT_EQ(error_of([&] { moderato::read_csv(p); }), p + ": file not found; check the path and the file name");
+    EXPECT_EQ(input_error_of([&] { moderato::read_csv(p); }), p + ": file not found; check the path and the file name");
 }
 
 TEST(CsvErrors, FolderInsteadOfFile) {
-    TempDir dir;
+    TempDir dir("csv");
     const std::string p = dir.path().string();
-    EXPECT_EQ(error_of([&] { moderato::read_csv(p); }), p + ": is a folder, not a file; choose a CSV or TSV file");
+    EXPECT_EQ(input_error_of([&] { moderato::read_csv(p); }),
+              p + ": is a folder, not a file; choose a CSV or TSV file");
 }
 
 TEST(CsvErrors, EmptyFile) {
@@ -484,17 +447,18 @@ TEST(CsvBlocks, ErrorsAreTheSameWhateverTheBlocks) {
     for (const std::size_t block : {1u, 5u, 64u}) {
         CsvOptions o;
         o.threads = 2;
-        EXPECT_EQ(error_of([&] { moderato::detail::read_csv_text_tuned(text, "t.csv", o, {}, tiny_blocks(block)); }),
-                  expected)
+        EXPECT_EQ(
+            input_error_of([&] { moderato::detail::read_csv_text_tuned(text, "t.csv", o, {}, tiny_blocks(block)); }),
+            expected)
             << block;
     }
 }
 
 TEST(CsvBlocks, ProgressAndCancel) {
-    TempDir dir;
+    TempDir dir("csv");
     std::string text = "a,b\n";
     for (int i = 0; i < 1000; ++i) text += std::to_string(i) + "," + std::to_string(2 * i) + "\n";
-    const fs::path p = dir.file("p.csv", text);
+    const fs::path p = dir.write("p.csv", text);
     std::vector<std::size_t> done;
     std::size_t total_seen = 0;
     moderato::CsvProgress progress;
@@ -552,8 +516,8 @@ TEST(CsvBlocks, ThreadCountDoesNotChangeTheTableAndTheFileIsUntouched) {
         text += i == kRows - 10 ? std::string("text") : std::to_string(i % 97);
         text += "\n";
     }
-    TempDir dir;
-    const fs::path p = dir.file("big.csv", text);
+    TempDir dir("csv");
+    const fs::path p = dir.write("big.csv", text);
     const auto mtime = fs::last_write_time(p);
 
     CsvOptions one, two;
@@ -575,13 +539,13 @@ TEST(CsvBlocks, ThreadCountDoesNotChangeTheTableAndTheFileIsUntouched) {
     EXPECT_EQ(a.at("late").first_text, "text");
     EXPECT_EQ(a.at("late").first_text_line, a.row_lines[kRows - 10]);  // closed form: same record
 
-    EXPECT_EQ(slurp(p), text);  // the input is never written to
+    EXPECT_EQ(read_file(p), text);  // the input is never written to
     EXPECT_EQ(fs::last_write_time(p), mtime);
 }
 
 TEST(CsvBlocks, ReadsFileWithBomAndCrlf) {
-    TempDir dir;
-    const fs::path p = dir.file("bom.csv", "\xEF\xBB\xBFx;g\r\n1,5;a\r\n2;b\r\n");
+    TempDir dir("csv");
+    const fs::path p = dir.write("bom.csv", "\xEF\xBB\xBFx;g\r\n1,5;a\r\n2;b\r\n");
     CsvOptions o;
     o.decimal_comma = true;
     const Table t = moderato::read_csv(p.string(), o);
@@ -596,7 +560,7 @@ TEST(TableLookup, AtFindAndRowLocation) {
     const Table t = moderato::read_csv_text("a,b,c\n1,2,3\n\n4,5,6\n", "spend.csv");
     EXPECT_NE(t.find("b"), nullptr);
     EXPECT_EQ(t.find("B"), nullptr);  // names are case-sensitive
-    EXPECT_EQ(error_of([&] { t.at("foo"); }), "column 'foo' not found in spend.csv; columns are: a, b, c");
+    EXPECT_EQ(input_error_of([&] { t.at("foo"); }), "column 'foo' not found in spend.csv; columns are: a, b, c");
     EXPECT_EQ(t.row_location(1), "line 4");  // closed form: the blank line 3 is skipped
     Table plain;
     plain.columns.push_back(Column{});
@@ -604,5 +568,5 @@ TEST(TableLookup, AtFindAndRowLocation) {
     plain.columns.back().numbers = {1.0, moderato::missing_value()};
     EXPECT_EQ(plain.row_location(1), "row 2");            // closed form: 1-based row without lines
     EXPECT_EQ(plain.columns.back().missing_count(), 1u);  // closed form
-    EXPECT_EQ(error_of([&] { plain.at("y"); }), "column 'y' not found; columns are: z");
+    EXPECT_EQ(input_error_of([&] { plain.at("y"); }), "column 'y' not found; columns are: z");
 }

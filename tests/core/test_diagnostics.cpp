@@ -18,6 +18,7 @@
 #include <random>
 #include <set>
 
+#include "common/reference_fixtures.hpp"
 #include "common/table_builder.hpp"
 #include "moderato/estimation/diagnostics.hpp"
 #include "moderato/estimation/fit.hpp"
@@ -31,14 +32,6 @@ using nlohmann::json;
 
 namespace {
 
-fs::path fixture(const std::string& name) {
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live) {
-        const fs::path p = fs::path(live) / name;
-        if (fs::exists(p)) return p;
-    }
-    return fs::path(MODERATO_REFERENCE_DIR) / "fixtures" / name;
-}
-
 struct Case {
     json j;
     Design d;
@@ -46,8 +39,8 @@ struct Case {
 };
 
 Case load(const std::string& name) {
-    const fs::path path = fixture(name + ".json");
-    json j = json::parse(std::ifstream(path));
+    const fs::path path = reference_fixture(name + ".json");
+    json j = read_fixture_json(path);
     const json& s = j.at("spec");
     ModelSpec spec;
     spec.outcome = s.at("outcome").get<std::string>();

@@ -6,6 +6,7 @@
 #include <random>
 
 #include "common/table_builder.hpp"
+#include "common/tolerance.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/estimation/least_squares.hpp"
 
@@ -49,8 +50,6 @@ ModelSpec base_spec() {
     s.interactions = {{"x", "g"}};
     return s;
 }
-
-double rel(double a, double b) { return std::abs(a - b) / std::max(std::abs(b), 1e-300); }
 
 }  // namespace
 

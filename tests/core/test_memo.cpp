@@ -15,6 +15,8 @@
 #include <regex>
 #include <sstream>
 
+#include "common/reference_fixtures.hpp"
+#include "common/sample_run.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
@@ -23,23 +25,10 @@
 
 namespace fs = std::filesystem;
 using namespace moderato;
+using moderato::test::run_sample;
+using moderato::test::SampleRun;
 
 namespace {
-
-fs::path samples() { return fs::path(MODERATO_TEST_DATA_DIR) / ".." / ".." / "sample-projects"; }
-
-struct Sample {
-    LoadedProject loaded;
-    Analysis analysis;
-    AnalysisRun run;
-};
-
-Sample open_sample(const std::string& name) {
-    Sample s{load_project((samples() / name / (name + ".moderato")).string()), {}, {}};
-    s.analysis = s.loaded.project.analyses.front();
-    s.run = run_analysis(s.loaded.tables.at(s.analysis.dataset), s.analysis);
-    return s;
-}
 
 // The number as written in a sentence (U+2212 minus, "1,200" commas) as a double.
 double read_number(std::string text) {
@@ -79,7 +68,7 @@ std::string joined(const std::vector<std::string>& v) {
 }
 
 nlohmann::json orchard_reference() {
-    std::ifstream in(fs::path(MODERATO_REFERENCE_DIR) / "fixtures" / "ui_estimates_orchard.json");
+    std::ifstream in(moderato::test::committed_fixture_dir() / "ui_estimates_orchard.json");
     return nlohmann::json::parse(in)["cases"]["sample_analysis"];
 }
 
@@ -111,7 +100,7 @@ std::vector<double> quadratic_roots(double a, double b, double c) {
 }  // namespace
 
 TEST(MemoSentences, OrchardNumbersMatchStatsmodelsAndClosedForms) {
-    const Sample s = open_sample("orchard-nitrogen");
+    const SampleRun s = run_sample("orchard-nitrogen");
     const auto findings = memo_findings(s.analysis, s.run);
     SCOPED_TRACE(joined(findings));
     const auto ref = orchard_reference();
@@ -175,7 +164,7 @@ TEST(MemoSentences, OrchardNumbersMatchStatsmodelsAndClosedForms) {
 }
 
 TEST(MemoSentences, CoffeeCrossoverAndSlopesMatchClosedForms) {
-    const Sample s = open_sample("coffee-discount");
+    const SampleRun s = run_sample("coffee-discount");
     const auto findings = memo_findings(s.analysis, s.run);
     SCOPED_TRACE(joined(findings));
     const FitResult& f = s.run.fit;
@@ -216,7 +205,7 @@ TEST(MemoSentences, CoffeeCrossoverAndSlopesMatchClosedForms) {
 }
 
 TEST(MemoSentences, CellsSentenceIsTheDifferenceInDifferences) {
-    const Sample s = open_sample("volunteer-onboarding");
+    const SampleRun s = run_sample("volunteer-onboarding");
     ASSERT_TRUE(s.run.cells);
     const auto findings = memo_findings(s.analysis, s.run);
     SCOPED_TRACE(joined(findings));
@@ -236,7 +225,7 @@ TEST(MemoSentences, EverySampleHasFindingsAndTheUsualCautions) {
     for (const char* name :
          {"coffee-discount", "orchard-nitrogen", "volunteer-onboarding", "helpdesk-staffing", "trial-conversion"}) {
         SCOPED_TRACE(name);
-        const Sample s = open_sample(name);
+        const SampleRun s = run_sample(name);
         EXPECT_GE(memo_findings(s.analysis, s.run).size(), 2u);
         const std::string cautions = joined(memo_cautions(s.analysis, s.run));
         // The cautions every memo carries (PRODUCT.md's list).
@@ -253,7 +242,7 @@ TEST(MemoSentences, EverySampleHasFindingsAndTheUsualCautions) {
 }
 
 TEST(MemoSentences, ProbabilityScaleSentencesForTheLogisticSample) {
-    const Sample s = open_sample("trial-conversion");
+    const SampleRun s = run_sample("trial-conversion");
     ASSERT_TRUE(s.run.probe);
     ASSERT_EQ(s.run.probe->scale, ProbeScale::Outcome);
     const auto findings = memo_findings(s.analysis, s.run);
@@ -341,7 +330,7 @@ TEST(MemoRender, UserStringsAreEscapedAndTheHtmlIsSelfContained) {
 }
 
 TEST(MemoRender, FooterStatesChecksumVersionAndEveryOption) {
-    const Sample s = open_sample("coffee-discount");
+    const SampleRun s = run_sample("coffee-discount");
     MemoContext ctx;
     ctx.data_file = "spend.csv";
     ctx.data_sha256 = s.loaded.sha256.at(s.analysis.dataset);
@@ -375,10 +364,10 @@ TEST(MemoRender, FooterStatesChecksumVersionAndEveryOption) {
 }
 
 TEST(MemoRender, SameInputsSameBytes) {
-    const Sample s = open_sample("helpdesk-staffing");
+    const SampleRun s = run_sample("helpdesk-staffing");
     MemoContext ctx;
     const std::string a = memo_to_html(build_memo(s.loaded.project, s.analysis, s.run, ctx));
-    const Sample again = open_sample("helpdesk-staffing");
+    const SampleRun again = run_sample("helpdesk-staffing");
     const std::string b = memo_to_html(build_memo(again.loaded.project, again.analysis, again.run, ctx));
     EXPECT_EQ(a, b);
 }
@@ -395,7 +384,7 @@ TEST(Base64, Rfc4648TestVectors) {
 }
 
 TEST(ProjectFile, MemoNotesRoundTripAndAreLeftOutWhenEmpty) {
-    const Sample s = open_sample("coffee-discount");
+    const SampleRun s = run_sample("coffee-discount");
     Project p = s.loaded.project;
     EXPECT_EQ(project_to_json(p).find("memo_notes"), std::string::npos);
     p.analyses.front().memo_notes = "Ask the roaster <team> & \"finance\"\nline two";

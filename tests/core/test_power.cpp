@@ -24,6 +24,9 @@
 #include <string>
 #include <vector>
 
+#include "common/input_error.hpp"
+#include "common/reference_fixtures.hpp"
+#include "common/tolerance.hpp"
 #include "moderato/probing/power.hpp"
 #include "moderato/support/error.hpp"
 
@@ -32,6 +35,8 @@ namespace {
 using moderato::InputError;
 using moderato::Noncentrality;
 using moderato::PowerDesign;
+using moderato::test::input_error_of;
+using moderato::test::rel;
 using nlohmann::json;
 
 PowerDesign design(long long u, long long k, double alpha = 0.05, Noncentrality c = Noncentrality::cohen) {
@@ -43,37 +48,9 @@ PowerDesign design(long long u, long long k, double alpha = 0.05, Noncentrality 
     return d;
 }
 
-double rel_diff(double a, double b) { return std::fabs(a - b) / std::fabs(b); }
-
-// The exact message of the InputError that `f` throws ("" if none).
-std::string input_error_of(const std::function<void()>& f) {
-    try {
-        f();
-    } catch (const InputError& e) {
-        return e.what();
-    }
-    return "";
-}
-
-// The build's live run of the script (tests/reference/run_live.py writes into
-// $MODERATO_REFERENCE_OUT) when it produced the file, else the committed copy.
-std::string reference_path() {
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live) {
-        const std::string p = std::string(live) + "/power_reference.json";
-        if (std::ifstream(p).good()) return p;
-    }
-    return std::string(MODERATO_REFERENCE_DIR) + "/fixtures/power_reference.json";
-}
-
+// The scipy fixture (tests/reference/make_power_reference.py): the build's live run, else the committed copy.
 json load_reference() {
-    const std::string path = reference_path();
-    std::ifstream in(path);
-    if (!in) {
-        ADD_FAILURE() << "cannot open " << path
-                      << " (regenerate with /usr/bin/python3 tests/reference/make_power_reference.py)";
-        return json::object();
-    }
-    return json::parse(in);
+    return moderato::test::read_fixture_json(moderato::test::reference_fixture("power_reference.json"));
 }
 
 Noncentrality convention_of(const json& c) {
@@ -163,10 +140,10 @@ TEST(Power, ReferencePowerMatchesScipy) {
         const std::string where = c.dump();
         EXPECT_EQ(r.df1, c.at("df1").get<double>()) << where;  // scipy reference (exact)
         EXPECT_EQ(r.df2, c.at("df2").get<double>()) << where;  // scipy reference (exact)
-        EXPECT_LE(rel_diff(r.noncentrality, c.at("noncentrality").get<double>()), 1e-12) << where;  // scipy reference
-        EXPECT_LE(rel_diff(r.critical_f, c.at("critical_f").get<double>()), 1e-8) << where;         // scipy f.isf
-        EXPECT_LE(rel_diff(r.power, c.at("power").get<double>()), 1e-8) << where;                   // scipy ncf.sf
-        EXPECT_LE(rel_diff(r.power, c.at("power_mpmath").get<double>()), 1e-8) << where;            // mpmath, 40 digits
+        EXPECT_LE(rel(r.noncentrality, c.at("noncentrality").get<double>()), 1e-12) << where;  // scipy reference
+        EXPECT_LE(rel(r.critical_f, c.at("critical_f").get<double>()), 1e-8) << where;         // scipy f.isf
+        EXPECT_LE(rel(r.power, c.at("power").get<double>()), 1e-8) << where;                   // scipy ncf.sf
+        EXPECT_LE(rel(r.power, c.at("power_mpmath").get<double>()), 1e-8) << where;            // mpmath, 40 digits
     }
 }
 
@@ -179,13 +156,12 @@ TEST(Power, ReferenceSampleSizes) {
                               c.at("alpha").get<double>(), convention_of(c));
         const auto s = moderato::smallest_n_for_power(c.at("f2").get<double>(), c.at("target_power").get<double>(), d);
         const std::string where = c.dump();
-        EXPECT_EQ(s.at_n.n, c.at("n").get<long long>()) << where;                            // scan of scipy ncf.sf
-        EXPECT_LE(rel_diff(s.at_n.power, c.at("power_at_n").get<double>()), 1e-8) << where;  // scipy ncf.sf
+        EXPECT_EQ(s.at_n.n, c.at("n").get<long long>()) << where;                       // scan of scipy ncf.sf
+        EXPECT_LE(rel(s.at_n.power, c.at("power_at_n").get<double>()), 1e-8) << where;  // scipy ncf.sf
         if (c.at("power_one_fewer").is_null()) {
             EXPECT_TRUE(std::isnan(s.power_one_fewer)) << where;
         } else {
-            EXPECT_LE(rel_diff(s.power_one_fewer, c.at("power_one_fewer").get<double>()), 1e-8)
-                << where;  // scipy ncf.sf
+            EXPECT_LE(rel(s.power_one_fewer, c.at("power_one_fewer").get<double>()), 1e-8) << where;  // scipy ncf.sf
         }
     }
 }
@@ -199,7 +175,7 @@ TEST(Power, ReferenceDetectableEffectSizes) {
                               c.at("alpha").get<double>(), convention_of(c));
         const auto r =
             moderato::smallest_detectable_f2(c.at("n").get<long long>(), c.at("target_power").get<double>(), d);
-        EXPECT_LE(rel_diff(r.at_f2.f2, c.at("f2").get<double>()), 1e-8) << c.dump();  // scipy brentq on ncf.sf
+        EXPECT_LE(rel(r.at_f2.f2, c.at("f2").get<double>()), 1e-8) << c.dump();  // scipy brentq on ncf.sf
     }
 }
 
@@ -299,7 +275,7 @@ TEST(Power, SingleTermEqualsTwoSidedNoncentralT) {
                 const double t_crit = bm::quantile(bm::complement(bm::students_t_distribution<double>(v), alpha / 2));
                 const bm::non_central_t_distribution<double> t(v, std::sqrt(r.noncentrality));
                 const double p_t = bm::cdf(bm::complement(t, t_crit)) + bm::cdf(t, -t_crit);
-                EXPECT_LE(rel_diff(r.power, p_t), 1e-9) << "alpha " << alpha << " n " << n << " f2 " << f2;
+                EXPECT_LE(rel(r.power, p_t), 1e-9) << "alpha " << alpha << " n " << n << " f2 " << f2;
             }
         }
     }

@@ -10,31 +10,19 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 
+#include "common/reference_fixtures.hpp"
+#include "common/tolerance.hpp"
 #include "moderato/probing/probe_curves.hpp"
 #include "moderato/reading/csv.hpp"
 
 using namespace moderato;
+using namespace moderato::test;
 namespace fs = std::filesystem;
 using nlohmann::json;
 
-namespace {
-
-fs::path fixture_dir() {
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live) {
-        const fs::path p(live);
-        if (fs::exists(p / "prediction_lines.json")) return p;
-    }
-    return fs::path(MODERATO_REFERENCE_DIR) / "fixtures";
-}
-
-double rel(double a, double b) { return a == b ? 0 : std::abs(a - b) / std::max(std::abs(b), 1e-300); }
-
-}  // namespace
-
 TEST(ProbeCurves, PredictionLinesMatchStatsmodelsGetPrediction) {
-    const fs::path dir = fixture_dir();
-    const json ref = json::parse(std::ifstream(dir / "prediction_lines.json"));
-    const fs::path data_dir = fs::path(MODERATO_REFERENCE_DIR) / "fixtures";
+    const json ref = read_fixture_json(reference_fixture("prediction_lines.json"));
+    const fs::path data_dir = committed_fixture_dir();
     int checked = 0;
     for (const json& c : ref.at("cases")) {
         SCOPED_TRACE(c.at("case").get<std::string>() + " " + c.at("se").get<std::string>() + " " +
@@ -75,7 +63,7 @@ TEST(ProbeCurves, PredictionLinesMatchStatsmodelsGetPrediction) {
 }
 
 TEST(ProbeCurves, EffectBandIsTheClosedFormOfATwoWayModel) {
-    const fs::path data_dir = fs::path(MODERATO_REFERENCE_DIR) / "fixtures";
+    const fs::path data_dir = committed_fixture_dir();
     const Table table = read_csv((data_dir / "ols_continuous_3way.csv").string(), CsvOptions{});
     ModelSpec spec;
     spec.outcome = "y";
@@ -114,7 +102,7 @@ TEST(ProbeCurves, EffectBandIsTheClosedFormOfATwoWayModel) {
 
 TEST(ProbeCurves, LinesAtTwoModeratorValuesMeetWhereTheModeratorEffectIsZero) {
     // Closed form: in y = b0 + b1 x + b2 z + b3 xz + ..., lines at any two z meet at x = -b2 / b3.
-    const fs::path data_dir = fs::path(MODERATO_REFERENCE_DIR) / "fixtures";
+    const fs::path data_dir = committed_fixture_dir();
     const Table table = read_csv((data_dir / "ols_continuous_3way.csv").string(), CsvOptions{});
     ModelSpec spec;
     spec.outcome = "y";

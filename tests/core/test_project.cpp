@@ -26,7 +26,13 @@
 #include <string>
 #include <vector>
 
+#include "common/file_bytes.hpp"
+#include "common/folder_snapshot.hpp"
+#include "common/input_error.hpp"
+#include "common/sample_projects.hpp"
+#include "common/shell_command.hpp"
 #include "common/table_builder.hpp"
+#include "common/temp_dir.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/project/project.hpp"
@@ -37,87 +43,19 @@
 
 namespace fs = std::filesystem;
 using namespace moderato;
+using moderato::test::input_error_of;
+using moderato::test::read_file;
+using moderato::test::run_command;
+using moderato::test::samples_dir;
+using moderato::test::snapshot_folder;
+using moderato::test::TempDir;
+using moderato::test::write_file;
 
 namespace {
 
 const double kNaN = std::numeric_limits<double>::quiet_NaN();
 
-class TempDir {
-public:
-    TempDir() {
-        std::string pattern = (fs::temp_directory_path() / "moderato_project_test_XXXXXX").string();
-        if (!::mkdtemp(pattern.data())) throw std::runtime_error("mkdtemp failed");
-        path_ = pattern;
-    }
-    ~TempDir() {
-        std::error_code ec;
-        fs::permissions(path_, fs::perms::owner_all, fs::perm_options::add, ec);
-        fs::remove_all(path_, ec);
-    }
-    const fs::path& path() const { return path_; }
-    std::string operator/(const std::string& name) const { return (path_ / name).string(); }
-
-private:
-    fs::path path_;
-};
-
-void write_bytes(const fs::path& path, const std::string& bytes) {
-    fs::create_directories(path.parent_path());
-    std::ofstream out(path, std::ios::binary);
-    out << bytes;
-}
-
-std::string read_bytes(const fs::path& path) {
-    std::ifstream in(path, std::ios::binary);
-    std::stringstream s;
-    s << in.rdbuf();
-    return s.str();
-}
-
-// Every entry under a folder (files with their bytes and modification time,
-// folders by name), to show that an operation wrote, added or removed nothing.
-struct Entry {
-    bool directory = false;
-    std::string bytes;
-    fs::file_time_type mtime;
-    bool operator==(const Entry&) const = default;
-};
-std::map<std::string, Entry> snapshot(const fs::path& dir) {
-    std::map<std::string, Entry> out;
-    for (const auto& e : fs::recursive_directory_iterator(dir)) {
-        Entry s;
-        s.directory = e.is_directory();
-        if (!s.directory) s.bytes = read_bytes(e.path());
-        s.mtime = fs::last_write_time(e.path());
-        out[e.path().string()] = s;
-    }
-    return out;
-}
-
-// Standard output of a shell command (empty when it cannot run).
-std::string run_command(const std::string& command) {
-    std::string out;
-    if (FILE* p = ::popen(command.c_str(), "r")) {
-        char buffer[4096];
-        std::size_t got;
-        while ((got = std::fread(buffer, 1, sizeof buffer, p)) > 0) out.append(buffer, got);
-        ::pclose(p);
-    }
-    return out;
-}
-
 bool contains(const std::string& text, const std::string& part) { return text.find(part) != std::string::npos; }
-
-// The message of the InputError `f` throws ("" when it throws none).
-template <typename F>
-std::string input_error(F&& f) {
-    try {
-        f();
-    } catch (const InputError& e) {
-        return e.what();
-    }
-    return {};
-}
 
 bool same_bits(double a, double b) { return std::bit_cast<std::uint64_t>(a) == std::bit_cast<std::uint64_t>(b); }
 
@@ -175,26 +113,26 @@ TEST(Sha256, EveryPaddingCaseMatchesPythonHashlib) {
 // A file of 2.5 MB (more than the 1 MiB read buffer, not a multiple of it)
 // against the coreutils tool `sha256sum` on the same file.
 TEST(Sha256, FileMatchesSha256sum) {
-    TempDir dir;
+    TempDir dir("project");
     std::mt19937 random(20240917);
     std::string bytes(2500017, '\0');
     for (char& c : bytes) c = static_cast<char>(random() & 0xff);
     const std::string file = dir / "random.bin";
-    write_bytes(file, bytes);
+    write_file(file, bytes);
     const std::string tool = run_command("sha256sum '" + file + "'");
     if (tool.size() < 64) GTEST_SKIP() << "sha256sum (coreutils) did not run";
     EXPECT_EQ(sha256_file(file), tool.substr(0, 64));  // coreutils sha256sum
     EXPECT_SHA256(bytes, tool.substr(0, 64));
 
     const std::string empty = dir / "empty.bin";
-    write_bytes(empty, "");
+    write_file(empty, "");
     EXPECT_EQ(sha256_file(empty), run_command("sha256sum '" + empty + "'").substr(0, 64));  // coreutils sha256sum
 }
 
 TEST(Sha256, UnreadableFileNamesTheFile) {
-    TempDir dir;
+    TempDir dir("project");
     const std::string missing = dir / "nothing-here.csv";
-    const std::string message = input_error([&] { sha256_file(missing); });
+    const std::string message = input_error_of([&] { sha256_file(missing); });
     EXPECT_TRUE(contains(message, missing)) << message;
 }
 
@@ -394,7 +332,7 @@ TEST(ProjectJson, SmallProjectReadsWithDefaults) {
 
 TEST(ProjectJson, NewerSchemaIsRefusedNamingTheFileAndBothVersions) {
     const std::string text = replaced(kSmallProject, "\"schema_version\": 2", "\"schema_version\": 7");
-    const std::string message = input_error([&] { project_from_json(text, "/data/future.moderato"); });
+    const std::string message = input_error_of([&] { project_from_json(text, "/data/future.moderato"); });
     EXPECT_TRUE(contains(message, "/data/future.moderato")) << message;
     EXPECT_TRUE(contains(message, "newer")) << message;
     EXPECT_TRUE(contains(message, "schema 7")) << message;
@@ -402,7 +340,7 @@ TEST(ProjectJson, NewerSchemaIsRefusedNamingTheFileAndBothVersions) {
     // A version too large for a signed 64-bit number is still "newer".
     const std::string huge =
         replaced(kSmallProject, "\"schema_version\": 2", "\"schema_version\": 18446744073709551615");
-    const std::string huge_message = input_error([&] { project_from_json(huge, "future.moderato"); });
+    const std::string huge_message = input_error_of([&] { project_from_json(huge, "future.moderato"); });
     EXPECT_TRUE(contains(huge_message, "newer")) << huge_message;
     EXPECT_TRUE(contains(huge_message, "18446744073709551615")) << huge_message;
 }
@@ -469,14 +407,14 @@ TEST(ProjectJson, SchemaOneIsMigratedToOurWordsWithANote) {
         EXPECT_FALSE(contains(saved, word)) << word;
     // A value schema 1 did not have stays an error naming the field, in the new words.
     const std::string odd = replaced(old, "\"scale\": \"link\"", "\"scale\": \"odds\"");
-    const std::string message = input_error([&] { project_from_json(odd, "odd.moderato"); });
+    const std::string message = input_error_of([&] { project_from_json(odd, "odd.moderato"); });
     EXPECT_TRUE(contains(message, "odd.moderato: analyses[1].probe.scale:")) << message;
     EXPECT_TRUE(contains(message, "model, outcome")) << message;
 }
 
 TEST(ProjectJson, SchemaThreeIsRefused) {
     const std::string text = replaced(kSmallProject, "\"schema_version\": 2", "\"schema_version\": 3");
-    EXPECT_EQ(input_error([&] { project_from_json(text, "three.moderato"); }),
+    EXPECT_EQ(input_error_of([&] { project_from_json(text, "three.moderato"); }),
               "three.moderato: made by a newer Moderato (project schema 3; this version reads up to schema 2). "
               "Open it with a newer Moderato; the file was not changed.");
 }
@@ -485,8 +423,6 @@ namespace {
 
 const char* const kSamples[] = {"coffee-discount", "helpdesk-staffing", "orchard-nitrogen", "trial-conversion",
                                 "volunteer-onboarding"};
-
-fs::path samples_dir() { return fs::path(MODERATO_TEST_DATA_DIR) / ".." / ".." / "sample-projects"; }
 
 }  // namespace
 
@@ -498,19 +434,19 @@ TEST(ProjectMigration, EverySampleOfSchemaOneOpensAsItsSchemaTwoProject) {
         SCOPED_TRACE(name);
         const fs::path v1 = fs::path(MODERATO_TEST_DATA_DIR) / "v1-projects" / (std::string(name) + ".moderato");
         const fs::path v2 = samples_dir() / name / (std::string(name) + ".moderato");
-        const std::string v1_text = read_bytes(v1);
+        const std::string v1_text = read_file(v1);
         ASSERT_TRUE(contains(v1_text, "\"schema_version\": 1"));
-        ASSERT_TRUE(contains(read_bytes(v2), "\"schema_version\": 2"));
+        ASSERT_TRUE(contains(read_file(v2), "\"schema_version\": 2"));
         // The v1 file beside a copy of its data, as it was saved.
-        TempDir dir;
+        TempDir dir("project");
         const Project v2_project = read_project_file(v2.string());
         ASSERT_EQ(v2_project.datasets.size(), 1u);
         const std::string csv = v2_project.datasets[0].path;
         fs::copy_file(samples_dir() / name / csv, dir.path() / csv);
-        write_bytes(dir.path() / "old.moderato", v1_text);
-        const auto before = snapshot(dir.path());
+        write_file(dir.path() / "old.moderato", v1_text);
+        const auto before = snapshot_folder(dir.path());
         const LoadedProject loaded = load_project(dir / "old.moderato");
-        EXPECT_TRUE(before == snapshot(dir.path())) << "opening a schema-1 project wrote something";
+        EXPECT_TRUE(before == snapshot_folder(dir.path())) << "opening a schema-1 project wrote something";
         ASSERT_EQ(loaded.project.migration_notes.size(), 1u);
         EXPECT_TRUE(contains(loaded.project.migration_notes[0], "schema 1")) << loaded.project.migration_notes[0];
         EXPECT_EQ(loaded.warnings, loaded.project.migration_notes);  // and no changed-data warning: same SHA-256
@@ -526,7 +462,7 @@ TEST(ProjectMigration, SampleKindsAreTheEnumsOfTheirSchemaOneWords) {
     for (const char* name : kSamples) {
         SCOPED_TRACE(name);
         const fs::path v1 = fs::path(MODERATO_TEST_DATA_DIR) / "v1-projects" / (std::string(name) + ".moderato");
-        const std::string text = read_bytes(v1);
+        const std::string text = read_file(v1);
         const Project p = project_from_json(text, v1.string());
         ASSERT_EQ(p.analyses.size(), 1u);
         const Analysis& a = p.analyses[0];
@@ -544,27 +480,28 @@ TEST(ProjectJson, CorruptJsonGivesLineAndColumn) {
     // By construction: the stray '}' is the 17th character of line 4
     // ("    {" is 5 characters, "\"id\": \"a\", " 11 more, then '}').
     const std::string text = "{\n  \"schema_version\": 1,\n  \"datasets\": [\n    {\"id\": \"a\", }\n  ]\n}\n";
-    const std::string message = input_error([&] { project_from_json(text, "broken.moderato"); });
+    const std::string message = input_error_of([&] { project_from_json(text, "broken.moderato"); });
     EXPECT_TRUE(contains(message, "broken.moderato")) << message;
     EXPECT_TRUE(contains(message, "line 4, column 17")) << message;
     EXPECT_TRUE(contains(message, "not valid JSON")) << message;
 
     // Cut off after the first line: the end of the text is on line 2.
     const std::string cut = "{\n  \"schema_version\": 1,";
-    const std::string cut_message = input_error([&] { project_from_json(cut, "cut.moderato"); });
+    const std::string cut_message = input_error_of([&] { project_from_json(cut, "cut.moderato"); });
     EXPECT_TRUE(contains(cut_message, "line 2")) << cut_message;
 
     // The column counts characters: "é" is two bytes but one column; the
     // stray ':' is the 18th character of line 2 (by construction).
     const std::string utf8 = "{\n  \"name\": \"caf\xc3\xa9\" :\n}";
-    const std::string utf8_message = input_error([&] { project_from_json(utf8, "accent.moderato"); });
+    const std::string utf8_message = input_error_of([&] { project_from_json(utf8, "accent.moderato"); });
     EXPECT_TRUE(contains(utf8_message, "line 2, column 18")) << utf8_message;
 
     // An empty file and a file that is JSON but not an object.
-    EXPECT_TRUE(contains(input_error([&] { project_from_json("", "empty.moderato"); }), "line 1, column 1"));
-    EXPECT_TRUE(contains(input_error([&] { project_from_json("[1, 2]", "list.moderato"); }), "not a Moderato project"));
-    EXPECT_TRUE(contains(input_error([&] { project_from_json("{}", "nothing.moderato"); }), "schema_version"));
-    EXPECT_TRUE(contains(input_error([&] { project_from_json(R"({"schema_version": 1.5})", "half.moderato"); }),
+    EXPECT_TRUE(contains(input_error_of([&] { project_from_json("", "empty.moderato"); }), "line 1, column 1"));
+    EXPECT_TRUE(
+        contains(input_error_of([&] { project_from_json("[1, 2]", "list.moderato"); }), "not a Moderato project"));
+    EXPECT_TRUE(contains(input_error_of([&] { project_from_json("{}", "nothing.moderato"); }), "schema_version"));
+    EXPECT_TRUE(contains(input_error_of([&] { project_from_json(R"({"schema_version": 1.5})", "half.moderato"); }),
                          "whole number"));
 }
 
@@ -598,7 +535,7 @@ TEST(ProjectJson, WrongTypesNameTheFieldPath) {
     for (const Case& c : cases) {
         SCOPED_TRACE(c.to);
         const std::string text = replaced(kSmallProject, c.from, c.to);
-        const std::string message = input_error([&] { project_from_json(text, "typed.moderato"); });
+        const std::string message = input_error_of([&] { project_from_json(text, "typed.moderato"); });
         EXPECT_TRUE(contains(message, "typed.moderato: " + c.path + ":")) << message;
         EXPECT_TRUE(contains(message, c.expected)) << message;
     }
@@ -624,7 +561,7 @@ TEST(ProjectJson, UnknownReferencesAndRepeatedIdsAreRefused) {
     for (const Case& c : cases) {
         SCOPED_TRACE(c.to);
         const std::string text = replaced(kSmallProject, c.from, c.to);
-        const std::string message = input_error([&] { project_from_json(text, "refs.moderato"); });
+        const std::string message = input_error_of([&] { project_from_json(text, "refs.moderato"); });
         EXPECT_TRUE(contains(message, "refs.moderato: " + c.path + ":")) << message;
         EXPECT_TRUE(contains(message, c.expected)) << message;
     }
@@ -633,7 +570,7 @@ TEST(ProjectJson, UnknownReferencesAndRepeatedIdsAreRefused) {
         replaced(kSmallProject, "\"analyses\": [",
                  "\"figures\": [{\"id\": \"f\", \"analysis\": \"a\"}, {\"id\": \"f\", \"analysis\": \"a\"}], "
                  "\"analyses\": [");
-    const std::string message = input_error([&] { project_from_json(figures, "refs.moderato"); });
+    const std::string message = input_error_of([&] { project_from_json(figures, "refs.moderato"); });
     EXPECT_TRUE(contains(message, "figures[1].id")) << message;
 }
 
@@ -649,14 +586,14 @@ std::vector<std::string> names_in(const fs::path& dir) {
 }  // namespace
 
 TEST(AtomicWrite, WritesAndReplaces) {
-    TempDir dir;
+    TempDir dir("project");
     const std::string file = dir / "project.moderato";
     write_file_atomically(file, "first");
-    EXPECT_EQ(read_bytes(file), "first");
+    EXPECT_EQ(read_file(file), "first");
     write_file_atomically(file, std::string("second\0with a NUL", 17));
-    EXPECT_EQ(read_bytes(file), std::string("second\0with a NUL", 17));
+    EXPECT_EQ(read_file(file), std::string("second\0with a NUL", 17));
     write_file_atomically(file, "");
-    EXPECT_EQ(read_bytes(file), "");
+    EXPECT_EQ(read_file(file), "");
     EXPECT_EQ(names_in(dir.path()), std::vector<std::string>{"project.moderato"});  // no temporary left
     // A new file gets the usual permissions of a new file (umask applied);
     // a replaced file keeps its own.
@@ -668,70 +605,70 @@ TEST(AtomicWrite, WritesAndReplaces) {
     fs::permissions(file, fs::perms::owner_read | fs::perms::owner_write);
     write_file_atomically(file, "private");
     EXPECT_EQ(fs::status(file).permissions(), fs::perms::owner_read | fs::perms::owner_write);
-    EXPECT_EQ(read_bytes(file), "private");
+    EXPECT_EQ(read_file(file), "private");
 }
 
 TEST(AtomicWrite, ThroughASymlinkReplacesTheLinkedFile) {
-    TempDir dir;
+    TempDir dir("project");
     const std::string real = dir / "real.moderato", link = dir / "link.moderato";
-    write_bytes(real, "old");
+    write_file(real, "old");
     fs::create_symlink(real, link);
     write_file_atomically(link, "new");
     EXPECT_TRUE(fs::is_symlink(link));
-    EXPECT_EQ(read_bytes(real), "new");
+    EXPECT_EQ(read_file(real), "new");
 }
 
 TEST(AtomicWrite, TargetIsAFolder) {
-    TempDir dir;
+    TempDir dir("project");
     const fs::path folder = dir.path() / "taken.moderato";
-    write_bytes(folder / "inside.txt", "keep me");
-    const auto before = snapshot(dir.path());
-    const std::string message = input_error([&] { write_file_atomically(folder.string(), "new content"); });
+    write_file(folder / "inside.txt", "keep me");
+    const auto before = snapshot_folder(dir.path());
+    const std::string message = input_error_of([&] { write_file_atomically(folder.string(), "new content"); });
     EXPECT_TRUE(contains(message, folder.string())) << message;
-    EXPECT_TRUE(before == snapshot(dir.path())) << "the folder changed or a temporary file was left";
+    EXPECT_TRUE(before == snapshot_folder(dir.path())) << "the folder changed or a temporary file was left";
 }
 
 TEST(AtomicWrite, FailureHalfwayLeavesTheOldFile) {
     // A file-size limit makes write() fail with EFBIG partway through (this
     // works for root too, where a read-only folder would not stop the write).
-    TempDir dir;
+    TempDir dir("project");
     const std::string file = dir / "project.moderato";
     const std::string old(3000, 'o');
-    write_bytes(file, old);
-    const auto before = snapshot(dir.path());
+    write_file(file, old);
+    const auto before = snapshot_folder(dir.path());
     rlimit saved{};
     ASSERT_EQ(::getrlimit(RLIMIT_FSIZE, &saved), 0);
     rlimit small = saved;
     small.rlim_cur = 1024;
     const auto old_handler = ::signal(SIGXFSZ, SIG_IGN);
     ASSERT_EQ(::setrlimit(RLIMIT_FSIZE, &small), 0);
-    const std::string message = input_error([&] { write_file_atomically(file, std::string(100000, 'n')); });
+    const std::string message = input_error_of([&] { write_file_atomically(file, std::string(100000, 'n')); });
     ::setrlimit(RLIMIT_FSIZE, &saved);
     ::signal(SIGXFSZ, old_handler);
     EXPECT_TRUE(contains(message, file)) << message;
     EXPECT_TRUE(contains(message, "left as it was")) << message;
-    EXPECT_EQ(read_bytes(file), old);
-    EXPECT_TRUE(before == snapshot(dir.path())) << "the old file changed or a temporary file was left";
+    EXPECT_EQ(read_file(file), old);
+    EXPECT_TRUE(before == snapshot_folder(dir.path())) << "the old file changed or a temporary file was left";
 }
 
 TEST(AtomicWrite, ReadOnlyFolder) {
     if (::geteuid() == 0) GTEST_SKIP() << "running as root: a read-only folder does not stop root from writing";
-    TempDir dir;
+    TempDir dir("project");
     const fs::path folder = dir.path() / "locked";
     const fs::path file = folder / "project.moderato";
-    write_bytes(file, "old bytes");
+    write_file(file, "old bytes");
     fs::permissions(folder, fs::perms::owner_read | fs::perms::owner_exec);
-    const auto before = snapshot(dir.path());
-    const std::string message = input_error([&] { write_file_atomically(file.string(), "new"); });
+    const auto before = snapshot_folder(dir.path());
+    const std::string message = input_error_of([&] { write_file_atomically(file.string(), "new"); });
     EXPECT_TRUE(contains(message, file.string())) << message;
-    EXPECT_TRUE(before == snapshot(dir.path()));
+    EXPECT_TRUE(before == snapshot_folder(dir.path()));
     fs::permissions(folder, fs::perms::owner_all);
 }
 
 TEST(AtomicWrite, MissingFolderNamesTheFile) {
-    TempDir dir;
+    TempDir dir("project");
     const std::string file = dir / "no/such/folder/project.moderato";
-    const std::string message = input_error([&] { write_file_atomically(file, "x"); });
+    const std::string message = input_error_of([&] { write_file_atomically(file, "x"); });
     EXPECT_TRUE(contains(message, file)) << message;
 }
 
@@ -756,14 +693,14 @@ namespace {
 // A project folder: study/study.moderato with its data in study/data/ and one
 // file in a sibling folder shared/, both named relative to the project.
 struct StudyFolder {
-    TempDir dir;
+    TempDir dir{"project"};
     std::string project, survey, extra;
     StudyFolder() {
         project = dir / "study/study.moderato";
         survey = dir / "study/data/survey.csv";
         extra = dir / "shared/extra.csv";
-        write_bytes(survey, "y,x,z\n1.5,2,3\n2.5,3,1\n4.0,5,9\n3.25,1,4\n");
-        write_bytes(extra, "a;b\n1;x\n2;y\n");
+        write_file(survey, "y,x,z\n1.5,2,3\n2.5,3,1\n4.0,5,9\n3.25,1,4\n");
+        write_file(extra, "a;b\n1;x\n2;y\n");
         Project p;
         DataSource s;
         s.id = "survey";
@@ -792,7 +729,7 @@ struct StudyFolder {
 
 TEST(LoadProject, DataPathsAreRelativeToTheProject) {
     StudyFolder study;
-    const auto before = snapshot(study.dir.path());
+    const auto before = snapshot_folder(study.dir.path());
     const LoadedProject loaded = load_project(study.project);
     EXPECT_TRUE(loaded.warnings.empty());
     ASSERT_TRUE(loaded.tables.count("survey"));
@@ -811,17 +748,17 @@ TEST(LoadProject, DataPathsAreRelativeToTheProject) {
     if (tool.size() >= 64) {
         EXPECT_EQ(loaded.sha256.at("survey"), tool.substr(0, 64));  // coreutils sha256sum
     }
-    EXPECT_TRUE(before == snapshot(study.dir.path())) << "opening a project wrote something";
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path())) << "opening a project wrote something";
 }
 
 TEST(LoadProject, ChangedDataFileWarnsAndStillLoads) {
     StudyFolder study;
-    std::string bytes = read_bytes(study.survey);
+    std::string bytes = read_file(study.survey);
     const auto at = bytes.find("4.0");
     ASSERT_NE(at, std::string::npos);
     bytes[at] = '6';  // one byte: 4.0 -> 6.0
-    write_bytes(study.survey, bytes);
-    const auto before = snapshot(study.dir.path());
+    write_file(study.survey, bytes);
+    const auto before = snapshot_folder(study.dir.path());
     const LoadedProject loaded = load_project(study.project);
     ASSERT_EQ(loaded.warnings.size(), 1u);
     EXPECT_TRUE(contains(loaded.warnings[0], "changed since the project was saved")) << loaded.warnings[0];
@@ -830,19 +767,19 @@ TEST(LoadProject, ChangedDataFileWarnsAndStillLoads) {
     EXPECT_EQ(loaded.tables.at("survey")->find("y")->numbers[2], 6.0);  // the file as it is now
     EXPECT_EQ(loaded.sha256.at("survey"), sha256_hex(bytes));
     EXPECT_NE(loaded.sha256.at("survey"), loaded.project.dataset("survey")->sha256);
-    EXPECT_TRUE(before == snapshot(study.dir.path())) << "opening a project wrote something";
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path())) << "opening a project wrote something";
 }
 
 TEST(LoadProject, VanishedDataFileIsAnErrorNamingDatasetAndPath) {
     StudyFolder study;
     fs::remove(study.extra);
-    const auto before = snapshot(study.dir.path());
-    const std::string message = input_error([&] { load_project(study.project); });
+    const auto before = snapshot_folder(study.dir.path());
+    const std::string message = input_error_of([&] { load_project(study.project); });
     EXPECT_TRUE(contains(message, "'extra'")) << message;
     EXPECT_TRUE(contains(message, fs::path(study.extra).lexically_normal().string())) << message;
     EXPECT_TRUE(contains(message, "../shared/extra.csv")) << message;
     EXPECT_TRUE(contains(message, study.project)) << message;
-    EXPECT_TRUE(before == snapshot(study.dir.path())) << "a failed open wrote something";
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path())) << "a failed open wrote something";
 }
 
 TEST(LoadProject, FailingRecipeIsReportedAndTheDataStillLoad) {
@@ -851,30 +788,30 @@ TEST(LoadProject, FailingRecipeIsReportedAndTheDataStillLoad) {
     p.derived.push_back({"survey", "log_neg", RecipeKind::CentreValue, "x", "", "", 10});
     p.derived.push_back({"survey", "bad_log", RecipeKind::Log, "log_neg", "", "", 0});
     write_project_file(p, study.project);
-    const auto before = snapshot(study.dir.path());
+    const auto before = snapshot_folder(study.dir.path());
     const LoadedProject loaded = load_project(study.project);
     ASSERT_TRUE(loaded.table_errors.count("survey"));
     EXPECT_TRUE(contains(loaded.table_errors.at("survey"), "bad_log")) << loaded.table_errors.at("survey");
     EXPECT_EQ(loaded.tables.at("survey")->rows(), 4u);
     ASSERT_EQ(loaded.warnings.size(), 1u);
-    EXPECT_TRUE(before == snapshot(study.dir.path()));
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path()));
 }
 
 TEST(LoadProject, CorruptAndNewerProjectsWriteNothing) {
     StudyFolder study;
-    const std::string text = read_bytes(study.project);
-    write_bytes(study.project, text.substr(0, text.size() / 2));
-    auto before = snapshot(study.dir.path());
-    std::string message = input_error([&] { load_project(study.project); });
+    const std::string text = read_file(study.project);
+    write_file(study.project, text.substr(0, text.size() / 2));
+    auto before = snapshot_folder(study.dir.path());
+    std::string message = input_error_of([&] { load_project(study.project); });
     EXPECT_TRUE(contains(message, study.project)) << message;
     EXPECT_TRUE(contains(message, "line ")) << message;
-    EXPECT_TRUE(before == snapshot(study.dir.path()));
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path()));
 
-    write_bytes(study.project, replaced(text, "\"schema_version\": 2", "\"schema_version\": 3"));
-    before = snapshot(study.dir.path());
-    message = input_error([&] { load_project(study.project); });
+    write_file(study.project, replaced(text, "\"schema_version\": 2", "\"schema_version\": 3"));
+    before = snapshot_folder(study.dir.path());
+    message = input_error_of([&] { load_project(study.project); });
     EXPECT_TRUE(contains(message, "newer")) << message;
-    EXPECT_TRUE(before == snapshot(study.dir.path()));
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path()));
 }
 
 // ---------------------------------------------------------------- analysis runs
@@ -1011,7 +948,7 @@ TEST(RunAnalysis, ColumnThatNoLongerExistsNamesAnalysisRoleAndColumn) {
         Analysis a = study_analysis();
         a.name = "weekly spend model";
         c.set(a);
-        const std::string message = input_error([&] { run_analysis(table, a); });
+        const std::string message = input_error_of([&] { run_analysis(table, a); });
         EXPECT_TRUE(contains(message, "'weekly spend model'")) << message;
         EXPECT_TRUE(contains(message, c.role)) << message;
         EXPECT_TRUE(contains(message, "'" + c.column + "'")) << message;
@@ -1019,17 +956,17 @@ TEST(RunAnalysis, ColumnThatNoLongerExistsNamesAnalysisRoleAndColumn) {
     }
     Analysis a = study_analysis();
     a.roles.moderator.clear();
-    EXPECT_TRUE(contains(input_error([&] { run_analysis(table, a); }), "Moderator"));
+    EXPECT_TRUE(contains(input_error_of([&] { run_analysis(table, a); }), "Moderator"));
     a = study_analysis();
     a.se = SeKind::Cluster;
-    EXPECT_TRUE(contains(input_error([&] { run_analysis(table, a); }), "Clusters"));
-    EXPECT_TRUE(contains(input_error([&] { run_analysis(nullptr, study_analysis()); }), "not loaded"));
+    EXPECT_TRUE(contains(input_error_of([&] { run_analysis(table, a); }), "Clusters"));
+    EXPECT_TRUE(contains(input_error_of([&] { run_analysis(nullptr, study_analysis()); }), "not loaded"));
 }
 
 TEST(RunAnalysis, ProbeKindOfEachSampleProject) {
     // From each sample's design (README of sample-projects): binary moderator,
     // continuous x continuous, 2 x 2 cells, three-level moderator, logistic.
-    const fs::path samples = fs::path(MODERATO_TEST_DATA_DIR) / ".." / ".." / "sample-projects";
+    const fs::path samples = moderato::test::samples_dir();
     const std::vector<std::pair<std::string, ProbeKind>> expected{{"coffee-discount", ProbeKind::Groups},
                                                                   {"orchard-nitrogen", ProbeKind::Continuous},
                                                                   {"volunteer-onboarding", ProbeKind::Cells},
@@ -1063,7 +1000,7 @@ TEST(RunAnalysis, ProbeKindFromColumnKinds) {
     EXPECT_EQ(probe_kind(t, a), ProbeKind::Cells);
     a.roles.focal = "g";
     a.roles.moderator = "z";
-    EXPECT_TRUE(contains(input_error([&] { probe_kind(t, a); }), "swap"));
+    EXPECT_TRUE(contains(input_error_of([&] { probe_kind(t, a); }), "swap"));
 }
 
 TEST(RunAnalysis, SameModelAndSameProbe) {
@@ -1193,12 +1130,12 @@ TEST(ApplyRecipes, AddsColumnsInOrderAndNamesTheFailingRecipe) {
         EXPECT_DOUBLE_EQ(out.find("xz")->numbers[r], (x - 3) * z);         // closed form
         EXPECT_EQ(out.find("north")->numbers[r], r % 3 == 0 ? 1.0 : 0.0);  // by construction of g
     }
-    const std::string message = input_error([&] {
+    const std::string message = input_error_of([&] {
         apply_recipes(t, {{"study", "lz", RecipeKind::Log, "missing_col", "", "", 0}});
     });
     EXPECT_TRUE(contains(message, "'lz'")) << message;
     EXPECT_TRUE(contains(message, "'missing_col'")) << message;
-    const std::string twice = input_error([&] {
+    const std::string twice = input_error_of([&] {
         apply_recipes(t, {{"study", "x", RecipeKind::Square, "z", "", "", 0}});
     });
     EXPECT_TRUE(contains(twice, "already has a column")) << twice;

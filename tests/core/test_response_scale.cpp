@@ -10,21 +10,18 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 
+#include "common/reference_fixtures.hpp"
+#include "common/tolerance.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/probing/response_scale.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/support/error.hpp"
 
 using namespace moderato;
+using namespace moderato::test;
 namespace fs = std::filesystem;
 
 namespace {
-
-fs::path effects_file() {
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live)
-        if (fs::exists(fs::path(live) / "logit_effects.json")) return fs::path(live) / "logit_effects.json";
-    return fs::path(MODERATO_REFERENCE_DIR) / "fixtures" / "logit_effects.json";
-}
 
 struct LogitCase {
     Design design;
@@ -32,7 +29,7 @@ struct LogitCase {
 };
 
 LogitCase logit_case() {
-    const Table t = read_csv((fs::path(MODERATO_REFERENCE_DIR) / "fixtures" / "logit_interaction.csv").string());
+    const Table t = read_csv((committed_fixture_dir() / "logit_interaction.csv").string());
     ModelSpec s;
     s.outcome = "y";
     s.interactions = {{"x", "g"}};
@@ -42,13 +39,11 @@ LogitCase logit_case() {
     return c;
 }
 
-double rel(double a, double b) { return std::abs(a - b) / std::abs(b); }
-
 }  // namespace
 
 TEST(ResponseScale, MarginalEffectsMatchDifferentiatedStatsmodelsPredictions) {
     const LogitCase c = logit_case();
-    const auto j = nlohmann::json::parse(std::ifstream(effects_file()));
+    const auto j = read_fixture_json(reference_fixture("logit_effects.json"));
     int checked = 0;
     for (const auto& row : j.at("cases")) {
         ScaleRequest r;
@@ -100,7 +95,7 @@ TEST(ResponseScale, RegionsFromTheScanHitTheCriticalValue) {
 }
 
 TEST(ResponseScale, LinearModelsAreRefused) {
-    const Table t = read_csv((fs::path(MODERATO_REFERENCE_DIR) / "fixtures" / "logit_interaction.csv").string());
+    const Table t = read_csv((committed_fixture_dir() / "logit_interaction.csv").string());
     ModelSpec s;
     s.outcome = "y";
     s.interactions = {{"x", "g"}};

@@ -15,11 +15,14 @@
 #include <fstream>
 #include <nlohmann/json.hpp>
 
+#include "common/reference_fixtures.hpp"
+#include "common/tolerance.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/probing/probe.hpp"
 #include "moderato/reading/csv.hpp"
 
 using namespace moderato;
+using namespace moderato::test;
 namespace fs = std::filesystem;
 using nlohmann::json;
 
@@ -29,16 +32,8 @@ constexpr double kEstimateTol = 1e-8;
 constexpr double kSeTol = 1e-8;
 constexpr double kStatTol = 1e-8;
 
-fs::path committed_dir() { return fs::path(MODERATO_REFERENCE_DIR) / "fixtures"; }
-
 // The live run's folder when it produced results, else the committed one.
-fs::path fixture_dir() {
-    if (const char* live = std::getenv("MODERATO_REFERENCE_OUT"); live && *live) {
-        const fs::path p(live);
-        if (fs::exists(p / "ols_binary_continuous.json")) return p;
-    }
-    return committed_dir();
-}
+fs::path fixture_dir() { return reference_fixture_dir("ols_binary_continuous.json"); }
 
 std::vector<fs::path> cases(const fs::path& dir) {
     std::vector<fs::path> out;
@@ -52,11 +47,6 @@ std::vector<fs::path> cases(const fs::path& dir) {
     }
     std::sort(out.begin(), out.end());
     return out;
-}
-
-double rel(double a, double b) {
-    if (a == b) return 0;
-    return std::abs(a - b) / std::max(std::abs(b), 1e-300);
 }
 
 struct Loaded {
@@ -201,8 +191,9 @@ TEST(StatsmodelsReference, EveryCaseMatches) {
 // script could run live): a stale fixture would test against old numbers.
 TEST(StatsmodelsReference, CommittedFixturesMatchLiveRun) {
     const fs::path live = fixture_dir();
-    if (live == committed_dir()) GTEST_SKIP() << "statsmodels not installed here: only the committed fixtures are used";
-    for (const auto& p : cases(committed_dir())) {
+    if (live == committed_fixture_dir())
+        GTEST_SKIP() << "statsmodels not installed here: only the committed fixtures are used";
+    for (const auto& p : cases(committed_fixture_dir())) {
         SCOPED_TRACE(p.filename().string());
         const fs::path q = live / p.filename();
         ASSERT_TRUE(fs::exists(q));

@@ -25,6 +25,10 @@
 #include <string>
 #include <vector>
 
+#include "common/input_error.hpp"
+#include "common/sample_run.hpp"
+#include "common/shell_command.hpp"
+#include "common/temp_dir.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reporting/analysis_tables.hpp"
@@ -33,57 +37,18 @@
 #include "moderato/support/error.hpp"
 
 using namespace moderato;
+using moderato::test::input_error_of;
+using moderato::test::run_command;
+using moderato::test::run_sample;
+using moderato::test::SampleRun;
+using moderato::test::shell_quote;
+using moderato::test::TempDir;
 namespace fs = std::filesystem;
 using nlohmann::json;
 
 namespace {
 
-// Standard output of a shell command (empty when it cannot run).
-std::string run_command(const std::string& command) {
-    std::string out;
-    if (FILE* p = ::popen(command.c_str(), "r")) {
-        char buffer[4096];
-        std::size_t got;
-        while ((got = std::fread(buffer, 1, sizeof buffer, p)) > 0) out.append(buffer, got);
-        ::pclose(p);
-    }
-    return out;
-}
-
 bool contains(const std::string& text, const std::string& part) { return text.find(part) != std::string::npos; }
-
-// A scratch folder removed at the end of the test.
-struct ScratchDir {
-    fs::path path;
-    ScratchDir() {
-        static std::atomic<int> counter{0};
-        path = fs::temp_directory_path() /
-               ("moderato_table_export_" + std::to_string(::getpid()) + "_" + std::to_string(counter++));
-        fs::create_directories(path);
-    }
-    ~ScratchDir() {
-        std::error_code ec;
-        fs::remove_all(path, ec);
-    }
-    fs::path write(const std::string& name, const std::string& bytes) const {
-        const fs::path file = path / name;
-        std::ofstream(file, std::ios::binary) << bytes;
-        return file;
-    }
-};
-
-std::string shell_quote(const fs::path& p) { return "'" + p.string() + "'"; }
-
-// The InputError message `f` throws ("" when it throws none).
-template <class F>
-std::string input_error(F&& f) {
-    try {
-        f();
-    } catch (const InputError& e) {
-        return e.what();
-    }
-    return {};
-}
 
 // Parses HTML read from standard input with Python's html.parser and prints
 // JSON: "errors" (a closing tag that does not match the open one, tags left
@@ -136,7 +101,7 @@ print(json.dumps({"bom": data.startswith("\ufeff"), "rows": list(csv.reader(io.S
 
 bool have_python() { return fs::exists("/usr/bin/python3"); }
 
-json run_html_reader(const ScratchDir& dir, const std::string& html_command) {
+json run_html_reader(const TempDir& dir, const std::string& html_command) {
     const fs::path script = dir.write("read_html.py", kHtmlReader);
     const std::string out = run_command(html_command + " | /usr/bin/python3 " + shell_quote(script));
     return json::parse(out);
@@ -283,7 +248,7 @@ TEST(TableToCsv, HeaderCellsAreNeutralised) {
 // the cell's exact value (else its text) after neutralising; no byte-order mark.
 TEST(TableToCsv, RoundTripThroughPythonCsvModule) {
     if (!have_python()) GTEST_SKIP() << "/usr/bin/python3 is not installed";
-    ScratchDir dir;
+    TempDir dir("table-export");
     ExportTable t = awkward_table();
     t.columns.push_back("=HYPERLINK(\"x\")");
     t.numeric.push_back(false);
@@ -331,7 +296,7 @@ TEST(TableToCsv, LoneEmptyFieldSurvivesPythonCsvModule) {
     t.rows = {{{"", ""}}, {{"x", ""}}};
     EXPECT_EQ(table_to_csv(t), "only\r\n\"\"\r\nx\r\n");
     if (!have_python()) GTEST_SKIP() << "/usr/bin/python3 is not installed";
-    ScratchDir dir;
+    TempDir dir("table-export");
     const fs::path file = dir.write("t.csv", table_to_csv(t));
     const fs::path script = dir.write("read_csv.py", kCsvReader);
     const json got = json::parse(run_command("/usr/bin/python3 " + shell_quote(script) + " " + shell_quote(file)));
@@ -346,13 +311,13 @@ TEST(TableExportShape, RowWithWrongCellCountNamesTitleAndRow) {
     t.columns = {"a", "b"};
     t.rows = {{{"1", ""}, {"2", ""}}, {{"1", ""}, {"2", ""}}, {{"only one", ""}}};
     for (TableFormat f : {TableFormat::Csv, TableFormat::Markdown, TableFormat::Latex, TableFormat::Html}) {
-        const std::string message = input_error([&] { table_to_text(t, f); });
+        const std::string message = input_error_of([&] { table_to_text(t, f); });
         EXPECT_TRUE(contains(message, "Simple slopes")) << message;
         EXPECT_TRUE(contains(message, "row 3")) << message;
         EXPECT_TRUE(contains(message, "has 1 cell,")) << message;
     }
     t.rows = {{{"1", ""}, {"2", ""}, {"3", ""}}};
-    EXPECT_TRUE(contains(input_error([&] { table_to_csv(t); }), "row 1"));
+    EXPECT_TRUE(contains(input_error_of([&] { table_to_csv(t); }), "row 1"));
 }
 
 TEST(TableExportShape, AlignmentListOfWrongSizeNamesTitle) {
@@ -361,11 +326,11 @@ TEST(TableExportShape, AlignmentListOfWrongSizeNamesTitle) {
     t.columns = {"a", "b", "c"};
     t.numeric = {true, false};
     for (TableFormat f : {TableFormat::Csv, TableFormat::Markdown, TableFormat::Latex, TableFormat::Html}) {
-        const std::string message = input_error([&] { table_to_text(t, f); });
+        const std::string message = input_error_of([&] { table_to_text(t, f); });
         EXPECT_TRUE(contains(message, "Regions")) << message;
     }
     t.numeric = {};
-    EXPECT_EQ(input_error([&] { table_to_html(t); }), "");
+    EXPECT_EQ(input_error_of([&] { table_to_html(t); }), "");
 }
 
 TEST(TableExport, SuffixAndDispatch) {
@@ -473,7 +438,7 @@ TEST(TableToMarkdown, EveryLineHasTheRightNumberOfCells) {
 TEST(TableToMarkdown, RendersAsTheOriginalTextInCmarkGfm) {
     if (!fs::exists("/usr/bin/cmark-gfm")) GTEST_SKIP() << "cmark-gfm is not installed (Debian package cmark-gfm)";
     if (!have_python()) GTEST_SKIP() << "/usr/bin/python3 is not installed";
-    ScratchDir dir;
+    TempDir dir("table-export");
     const ExportTable t = awkward_table();
     const fs::path md = dir.write("t.md", table_to_markdown(t));
     const json got = run_html_reader(
@@ -587,7 +552,7 @@ TEST(TableToLatex, LeadingBracketOrStarIsShielded) {
 TEST(TableToLatex, CompilesWithPdflatex) {
     const std::string pdflatex = run_command("command -v pdflatex");
     if (pdflatex.empty()) GTEST_SKIP() << "pdflatex is not installed";
-    ScratchDir dir;
+    TempDir dir("table-export");
     ExportTable t = awkward_table();
     t.rows[0][0].text = "[0.1, 0.2]";
     const std::string doc =
@@ -595,9 +560,9 @@ TEST(TableToLatex, CompilesWithPdflatex) {
         "\\usepackage{booktabs}\n\\begin{document}\n" +
         table_to_latex(t) + "\\end{document}\n";
     dir.write("t.tex", doc);
-    const std::string log =
-        run_command("cd " + shell_quote(dir.path) + " && pdflatex -interaction=nonstopmode -halt-on-error t.tex 2>&1");
-    EXPECT_TRUE(fs::exists(dir.path / "t.pdf")) << log;
+    const std::string log = run_command("cd " + shell_quote(dir.path()) +
+                                        " && pdflatex -interaction=nonstopmode -halt-on-error t.tex 2>&1");
+    EXPECT_TRUE(fs::exists(dir.path() / "t.pdf")) << log;
 }
 
 // ---------------------------------------------------------------- HTML
@@ -647,7 +612,7 @@ TEST(TableToHtml, Layout) {
 // and every caption, header cell, cell and note as the original text.
 TEST(TableToHtml, WellFormedInPythonHtmlParser) {
     if (!have_python()) GTEST_SKIP() << "/usr/bin/python3 is not installed";
-    ScratchDir dir;
+    TempDir dir("table-export");
     ExportTable t = awkward_table();
     t.columns[3] = "<script>alert(1)</script>";
     const fs::path file = dir.write("t.html", table_to_html(t));
@@ -716,21 +681,6 @@ TEST(FileSlug, AnyBytesGiveAPortableName) {
 
 namespace {
 
-struct SampleRun {
-    LoadedProject loaded;
-    Analysis analysis;
-    AnalysisRun run;
-};
-
-SampleRun sample_run(const std::string& name) {
-    const fs::path file =
-        fs::path(MODERATO_TEST_DATA_DIR) / ".." / ".." / "sample-projects" / name / (name + ".moderato");
-    SampleRun s{load_project(file.string()), {}, {}};
-    s.analysis = s.loaded.project.analyses.front();
-    s.run = run_analysis(s.loaded.tables.at(s.analysis.dataset), s.analysis);
-    return s;
-}
-
 const ExportTable& table_of(const std::vector<NamedTable>& tables, const std::string& key) {
     for (const auto& t : tables)
         if (t.key == key) return t.table;
@@ -755,7 +705,7 @@ void expect_rounded(const std::string& text, double value) {
 }  // namespace
 
 TEST(AnalysisTables, EffectsAtChosenValuesInTheHouseOrderMatchTheClosedForm) {
-    const SampleRun s = sample_run("orchard-nitrogen");
+    const SampleRun s = run_sample("orchard-nitrogen");
     const auto tables = analysis_tables(s.analysis, s.run);
     const ExportTable& t = table_of(tables, "conditional-effects");
     // Our own heading and the house order: moderator value, effect, interval, SE, test value, p, note.
@@ -790,7 +740,7 @@ TEST(AnalysisTables, EffectsAtChosenValuesInTheHouseOrderMatchTheClosedForm) {
 
 TEST(AnalysisTables, GroupsAndCellsKeepTheHouseOrder) {
     // A categorical moderator: one row per group, headed by the group.
-    const SampleRun helpdesk = sample_run("helpdesk-staffing");
+    const SampleRun helpdesk = run_sample("helpdesk-staffing");
     const auto helpdeskTables = analysis_tables(helpdesk.analysis, helpdesk.run);
     const ExportTable& e = table_of(helpdeskTables, "conditional-effects");
     EXPECT_EQ(e.title, "Effect of agents_on_shift on resolution_hours in each group of shift");
@@ -803,7 +753,7 @@ TEST(AnalysisTables, GroupsAndCellsKeepTheHouseOrder) {
     EXPECT_NEAR(std::stod(e.rows[0][1].exact), helpdesk.run.fit.beta(i1), 1e-12);
 
     // Two categorical predictors: the contrasts in the same order; the cells list the interval before the SE.
-    const SampleRun cells = sample_run("volunteer-onboarding");
+    const SampleRun cells = run_sample("volunteer-onboarding");
     ASSERT_TRUE(cells.run.cells);
     const auto tables = analysis_tables(cells.analysis, cells.run);
     const ExportTable& c = table_of(tables, "cell-contrasts");
@@ -828,7 +778,7 @@ TEST(AnalysisTables, MemoSentencesCiteTheTableStrings) {
     // table's display strings, character for character (orchard: continuous; helpdesk: groups and crossovers).
     for (const char* name : {"orchard-nitrogen", "helpdesk-staffing"}) {
         SCOPED_TRACE(name);
-        const SampleRun s = sample_run(name);
+        const SampleRun s = run_sample(name);
         const auto tables = analysis_tables(s.analysis, s.run);
         const ExportTable& t = table_of(tables, "conditional-effects");
         std::string memo;

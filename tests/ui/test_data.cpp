@@ -29,46 +29,19 @@
 #include "data/import_dialog.hpp"
 #include "data/table_model.hpp"
 #include "model/project_document.hpp"
+#include "qt_file_bytes.hpp"
+#include "screenshot.hpp"
 #include "ui_test_util.hpp"
+#include "widget_input.hpp"
 
 using namespace moderato;
 using namespace moderato::ui;
+using moderato::test::child;
+using moderato::test::chooseByKeys;
+using moderato::test::fileHash;
+using moderato::test::writeFile;
 
 namespace {
-
-QString writeFile(const QTemporaryDir& dir, const QString& name, const QByteArray& bytes) {
-    const QString path = dir.filePath(name);
-    QFile f(path);
-    EXPECT_TRUE(f.open(QIODevice::WriteOnly));
-    f.write(bytes);
-    return path;
-}
-
-QByteArray fileHash(const QString& path) {
-    QFile f(path);
-    if (!f.open(QIODevice::ReadOnly)) return {};
-    QCryptographicHash h(QCryptographicHash::Sha256);
-    h.addData(&f);
-    return h.result();
-}
-
-template <typename T>
-T* child(const QObject* parent, const char* name) {
-    T* c = parent->findChild<T*>(QString::fromLatin1(name));
-    EXPECT_NE(c, nullptr) << "no child widget named " << name;
-    return c;
-}
-
-// Moves a combo box to `index` with arrow keys, as a user would.
-void chooseByKeys(QComboBox* box, int index) {
-    ASSERT_NE(box, nullptr);
-    ASSERT_GE(index, 0);
-    ASSERT_LT(index, box->count());
-    box->setFocus();
-    for (int guard = 0; box->currentIndex() != index && guard < 100; ++guard)
-        QTest::keyClick(box, box->currentIndex() < index ? Qt::Key_Down : Qt::Key_Up);
-    ASSERT_EQ(box->currentIndex(), index);
-}
 
 void chooseText(QComboBox* box, const QString& text) {
     ASSERT_NE(box, nullptr);
@@ -79,13 +52,6 @@ void click(QWidget* w) {
     ASSERT_NE(w, nullptr);
     ASSERT_TRUE(w->isEnabled()) << w->objectName().toStdString() << " is disabled";
     QTest::mouseClick(w, Qt::LeftButton);
-}
-
-void saveShot(QWidget* w, const QString& name) {
-    const QString dir = qEnvironmentVariable("MODERATO_SCREENSHOT_DIR");
-    if (dir.isEmpty()) return;
-    QCoreApplication::processEvents();  // let pending layout requests settle first
-    w->grab().save(dir + QLatin1Char('/') + name);
 }
 
 QVariant cell(const TableModel* m, int row, int col, int role = TableModel::ValueRole) {
@@ -198,7 +164,7 @@ TEST(ImportDialog, SemicolonFileWithDecimalCommasPreviewsNumbers) {
         [&] { return dlg.previewTable() && dlg.previewTable()->columns[1].kind == ColumnKind::Categorical; }));
     EXPECT_EQ(cell(model, 1, 1).toString(), QStringLiteral("NA"));
     EXPECT_EQ(missing->count(), 3);
-    saveShot(&dlg, QStringLiteral("import-dialog.png"));
+    test::saveScreenshot(&dlg, QStringLiteral("import-dialog.png"));
 
     // Header off: the names become data and the columns V1..V4.
     click(child<QCheckBox>(&dlg, "import-header"));
@@ -463,7 +429,7 @@ TEST(DatasetPage, CentreAtTheMeanFromTheDialogWithUndoAndRedo) {
     chooseText(child<QComboBox>(dialog, "derived-source"), QStringLiteral("discount_pct"));
     auto* name = child<QLineEdit>(dialog, "derived-name");
     EXPECT_EQ(name->text(), QStringLiteral("discount_pct_c"));
-    saveShot(dialog, QStringLiteral("derived-dialog.png"));
+    test::saveScreenshot(dialog, QStringLiteral("derived-dialog.png"));
     click(child<QPushButton>(dialog, "derived-ok"));
     ASSERT_TRUE(test::waitUntil([&] { return model->columnCount() == 4; }));
     EXPECT_EQ(doc.undoStack()->count(), steps + 1);
@@ -485,11 +451,11 @@ TEST(DatasetPage, CentreAtTheMeanFromTheDialogWithUndoAndRedo) {
     }
     auto* list = child<QListWidget>(&page, "derived-list");
     EXPECT_EQ(list->count(), 1);
-    saveShot(&page, QStringLiteral("dataset-page.png"));
+    test::saveScreenshot(&page, QStringLiteral("dataset-page.png"));
     page.showSummary(2);  // tier: basic on every third row (i % 3 == 0), gold otherwise (construction)
     ASSERT_NE(page.currentSummary(), nullptr);
     EXPECT_EQ(page.currentSummary()->level_counts, (std::vector<std::size_t>{20, 40}));
-    saveShot(&page, QStringLiteral("dataset-page-levels.png"));
+    test::saveScreenshot(&page, QStringLiteral("dataset-page-levels.png"));
 
     doc.undoStack()->undo();
     EXPECT_EQ(model->columnCount(), 3);

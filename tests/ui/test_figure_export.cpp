@@ -39,6 +39,8 @@
 #include "moderato/project/project_loader.hpp"
 #include "plots/figure_source.hpp"
 #include "plots/plot_style.hpp"
+#include "qt_file_bytes.hpp"
+#include "sample_window.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
 #include "style/estuary.hpp"
@@ -46,6 +48,7 @@
 
 using namespace moderato;
 using namespace moderato::ui;
+using moderato::test::readAll;
 
 namespace {
 
@@ -102,11 +105,6 @@ FigureSettings memo() {
     s.dpi = 300;
     s.caption = false;
     return s;
-}
-
-QByteArray readAll(const QString& path) {
-    QFile f(path);
-    return f.open(QIODevice::ReadOnly) ? f.readAll() : QByteArray();
 }
 
 struct SvgSummary {
@@ -589,22 +587,11 @@ TEST(FigureExportDialog, CopyPutsTheImageAtTheChosenSizeOnTheClipboard) {
     EXPECT_EQ(image.size(), QSize(650, 400));
 }
 
-// The orchard-nitrogen sample open in a shown window, on its Probe section.
-void showOrchardProbe(MainWindow& w) {
-    w.setInteractive(false);
-    ASSERT_TRUE(test::openProject(w, test::sampleProject(QStringLiteral("orchard-nitrogen"))))
-        << w.lastMessage().toStdString();
-    const QString id = w.analysisPage()->analysisId();
-    ASSERT_TRUE(test::waitUntil([&] { return w.runner()->result(id) || !w.runner()->error(id).isEmpty(); }));
-    w.resize(1400, 900);
-    w.show();
-    w.analysisPage()->showSection(AnalysisPage::Probe);
-    QCoreApplication::processEvents();
-}
-
 TEST(FigureExport, ProbeSectionFiguresOfASampleProjectExport) {
-    MainWindow w;
-    ASSERT_NO_FATAL_FAILURE(showOrchardProbe(w));
+    // The orchard-nitrogen sample open in a shown window, on its Probe section.
+    test::SampleWindow win(test::sampleProject(QStringLiteral("orchard-nitrogen")));
+    win.showSection(AnalysisPage::Probe);
+    MainWindow& w = win.w;
     const QList<FigureSource*> figures = w.analysisPage()->currentFigures();
     if (figures.isEmpty()) GTEST_SKIP() << "the Probe section offers no figures yet";
     QTemporaryDir dir;
@@ -630,8 +617,10 @@ TEST(FigureExport, ProbeSectionFiguresOfASampleProjectExport) {
 }
 
 TEST(FigureExport, SingleColumnFigureWrapsALongAxisTitleAndShrinksTheLegend) {
-    MainWindow w;
-    ASSERT_NO_FATAL_FAILURE(showOrchardProbe(w));
+    // The orchard-nitrogen sample open in a shown window, on its Probe section.
+    test::SampleWindow win(test::sampleProject(QStringLiteral("orchard-nitrogen")));
+    win.showSection(AnalysisPage::Probe);
+    MainWindow& w = win.w;
     FigureSource* effect = nullptr;
     for (FigureSource* f : w.analysisPage()->currentFigures())
         if (f->figureKey() == QStringLiteral("effect")) effect = f;

@@ -24,12 +24,14 @@
 #include "common/job_progress_dialog.hpp"
 #include "data/import_dialog.hpp"
 #include "model/project_document.hpp"
+#include "qt_file_bytes.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
 #include "ui_test_util.hpp"
 
 using namespace moderato;
 using namespace moderato::ui;
+using moderato::test::fileHash;
 
 namespace {
 
@@ -58,14 +60,6 @@ QString bigOrchardCsv() {
                                     ? dir.filePath(QStringLiteral("plots.csv"))
                                     : QString();
     return path;
-}
-
-QByteArray fileHash(const QString& path) {
-    QFile f(path);
-    if (!f.open(QIODevice::ReadOnly)) return {};
-    QCryptographicHash h(QCryptographicHash::Sha256);
-    h.addData(&f);
-    return h.result();
 }
 
 }  // namespace

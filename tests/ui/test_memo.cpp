@@ -36,58 +36,39 @@
 #include "outputs/analysis_outputs.hpp"
 #include "plots/figure_source.hpp"
 #include "plots/lines_plot.hpp"
+#include "qstring_print.hpp"
+#include "qt_file_bytes.hpp"
+#include "sample_window.hpp"
 #include "sections/memo_section.hpp"
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
 #include "ui_test_util.hpp"
-
-inline void PrintTo(const QString& s, std::ostream* os) { *os << '"' << s.toStdString() << '"'; }
-// QString in failure messages.
-inline std::ostream& operator<<(std::ostream& os, const QString& s) { return os << s.toStdString(); }
+#include "widget_input.hpp"
 
 using namespace moderato;
 using namespace moderato::ui;
+using moderato::test::child;
+using moderato::test::readAll;
 
 namespace {
 
-QByteArray readAll(const QString& path) {
-    QFile f(path);
-    return f.open(QIODevice::ReadOnly) ? f.readAll() : QByteArray();
-}
-
-void writeAll(const QString& path, const QByteArray& bytes) {
-    QFile f(path);
-    ASSERT_TRUE(f.open(QIODevice::WriteOnly | QIODevice::Truncate)) << path;
-    f.write(bytes);
-}
-
 // A main window on a copy of a sample project, shown and active (window
 // shortcuts need an active window), its analysis fitted.
-struct Session {
-    QTemporaryDir dir;
+struct Session : test::SampleWindow {
     QString project;
-    MainWindow w;
-    QString id;
 
     // `edit` may change the copied project's JSON before it is opened.
     explicit Session(const QString& sample, const std::function<void(nlohmann::json&)>& edit = {}) {
-        project = test::copySample(sample, dir);
+        project = copy(sample);
         if (edit) {
-            nlohmann::json j = nlohmann::json::parse(readAll(project).toStdString());
+            nlohmann::json j = nlohmann::json::parse(test::readAll(project).toStdString());
             edit(j);
-            writeAll(project, QByteArray::fromStdString(j.dump(2)));
+            test::writeAll(project, QByteArray::fromStdString(j.dump(2)));
         }
-        w.setInteractive(false);
-        w.resize(1400, 900);
-        w.show();
-        EXPECT_TRUE(test::openProject(w, project)) << w.lastMessage().toStdString();
-        id = w.analysisPage()->analysisId();
-        EXPECT_TRUE(test::waitUntil([&] { return !w.runner()->busy(id) && w.runner()->result(id) != nullptr; }));
-        w.activateWindow();
-        EXPECT_TRUE(QTest::qWaitForWindowActive(&w));
+        EXPECT_TRUE(open(project)) << w.runner()->error(id).toStdString();
+        activate();
     }
-    const Analysis& analysis() const { return *w.document()->analysis(id); }
     MemoSection* memo() const { return w.analysisPage()->memo(); }
     ProbeSection* probe() const { return w.analysisPage()->probe(); }
     QString dataPath() const { return w.document()->dataPath(analysis().dataset); }
@@ -106,13 +87,6 @@ struct Session {
             test::waitUntil([&] { return memo()->editor()->toPlainText().contains(QStringLiteral("Findings")); }));
     }
 };
-
-template <typename T>
-T* child(const QObject* parent, const char* name) {
-    T* c = parent->findChild<T*>(QString::fromLatin1(name));
-    EXPECT_NE(c, nullptr) << "no child widget named " << name;
-    return c;
-}
 
 // Everything a browser could fetch from elsewhere, or run.
 void expectSelfContained(const QByteArray& html, int figures) {

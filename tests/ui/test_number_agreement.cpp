@@ -13,14 +13,14 @@
 #include <cmath>
 #include <cstdio>
 
+#include "common/sample_run.hpp"
 #include "data/table_model.hpp"
 #include "model/analysis_runner.hpp"
-#include "moderato/project/analysis_run.hpp"
-#include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/reporting/memo.hpp"
 #include "plots/effect_plot.hpp"
 #include "probe/pinned_table.hpp"
+#include "probe_window.hpp"
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
@@ -35,41 +35,22 @@ namespace {
 const QString kNum = QStringLiteral("(−?[0-9][0-9,]*(?:\\.[0-9]+)?(?:×10⁻?[⁰¹²³⁴⁵⁶⁷⁸⁹]+)?)");
 
 // What core says, by the renderer's route: the project's first analysis run and its memo sentences.
-struct Core {
-    LoadedProject loaded;
-    Analysis analysis;
-    AnalysisRun run;
+struct Core : test::SampleRun {
     QString memo;  // the findings, one per line
 };
 
 Core core(const QString& name) {
-    Core c{load_project(test::sampleProject(name).toStdString()), {}, {}, {}};
-    c.analysis = c.loaded.project.analyses.front();
-    c.run = run_analysis(c.loaded.tables.at(c.analysis.dataset), c.analysis);
+    Core c{test::run_sample(name.toStdString()), {}};
     for (const auto& s : memo_findings(c.analysis, c.run)) c.memo += QString::fromStdString(s) + QLatin1Char('\n');
     return c;
 }
 
 // The workbench with the sample open on its Probe section.
-struct Workbench {
-    MainWindow w;
-    ProbeSection* probe = nullptr;
-
-    explicit Workbench(const QString& name) {
-        w.setInteractive(false);
-        w.resize(1400, 900);
-        w.show();
-        EXPECT_TRUE(test::openProject(w, test::sampleProject(name))) << w.lastMessage().toStdString();
-        const QString id = w.analysisPage()->analysisId();
-        EXPECT_TRUE(test::waitUntil([&] { return w.runner()->result(id) != nullptr; }));
-        w.analysisPage()->showSection(AnalysisPage::Probe);
-        probe = w.analysisPage()->probe();
-        EXPECT_TRUE(QTest::qWaitForWindowExposed(&w));
-        for (int i = 0; i < 5; ++i) QCoreApplication::processEvents();
-    }
+struct Workbench : test::ProbeWindow {
+    explicit Workbench(const QString& name) : ProbeWindow(test::sampleProject(name)) {}
     // The pinned values table as the user sees it: each row's cells by column.
     QString cell(int row, int column) const {
-        const PinnedTableModel* m = probe->pinnedTable()->model();
+        const PinnedTableModel* m = section->pinnedTable()->model();
         return m->data(m->index(row, column), Qt::DisplayRole).toString();
     }
 };
@@ -90,7 +71,7 @@ QList<QStringList> matches(const QString& text, QString pattern) {
 TEST(NumberAgreement, HelpdeskCrossoversAndFiellerIntervalsReadTheSameInMemoAndProbe) {
     const Core c = core(QStringLiteral("helpdesk-staffing"));
     Workbench b(QStringLiteral("helpdesk-staffing"));
-    const QString summary = b.probe->summaryText();
+    const QString summary = b.section->summaryText();
     SCOPED_TRACE(c.memo.toStdString() + "\n" + summary.toStdString());
     ASSERT_TRUE(c.run.probe);
     const auto& crossings = c.run.probe->crossovers;
@@ -127,7 +108,7 @@ TEST(NumberAgreement, EffectsAtChosenValuesReadTheSameInMemoPinnedTableAndReadou
                                 QStringLiteral("coffee-discount"), QStringLiteral("trial-conversion")}) {
         const Core c = core(name);
         Workbench b(name);
-        const QString readout = b.probe->readoutText();
+        const QString readout = b.section->readoutText();
         SCOPED_TRACE(name.toStdString() + "\n" + c.memo.toStdString() + "\n" + readout.toStdString());
         ASSERT_TRUE(c.run.probe);
         const auto& effects = c.run.probe->effects;
@@ -136,7 +117,7 @@ TEST(NumberAgreement, EffectsAtChosenValuesReadTheSameInMemoPinnedTableAndReadou
         // "0.07501 (95% CI 0.07086 to 0.07916) at soil_moisture_pct = 25.26" or "... for shift = day".
         const auto memo =
             matches(c.memo, QStringLiteral("NUM \\(95% CI NUM to NUM\\) (?:at|for) %1 = (NUM|[^ ,.()]+)").arg(mod));
-        const PinnedTableModel* table = b.probe->pinnedTable()->model();
+        const PinnedTableModel* table = b.section->pinnedTable()->model();
         ASSERT_EQ(memo.size(), table->rowCount());
         ASSERT_EQ(memo.size(), static_cast<int>(effects.size()));
         for (int k = 0; k < memo.size(); ++k) {
@@ -172,7 +153,7 @@ TEST(NumberAgreement, BoundariesRangesAndTheProbabilityInteractionReadTheSame) {
     {
         const Core c = core(QStringLiteral("orchard-nitrogen"));
         Workbench b(QStringLiteral("orchard-nitrogen"));
-        const QString summary = b.probe->summaryText();
+        const QString summary = b.section->summaryText();
         SCOPED_TRACE(c.memo.toStdString() + "\n" + summary.toStdString());
         const auto memo = matches(c.memo, QStringLiteral("Johnson–Neyman boundaries at NUM and NUM lie beyond the data "
                                                          "\\(soil_moisture_pct observed from NUM to NUM\\)"));
@@ -190,7 +171,7 @@ TEST(NumberAgreement, BoundariesRangesAndTheProbabilityInteractionReadTheSame) {
     {
         const Core c = core(QStringLiteral("trial-conversion"));
         Workbench b(QStringLiteral("trial-conversion"));
-        const QString summary = b.probe->summaryText();
+        const QString summary = b.section->summaryText();
         SCOPED_TRACE(c.memo.toStdString() + "\n" + summary.toStdString());
         const auto memo = matches(c.memo, QStringLiteral("interaction effect \\([^)]*\\) is NUM \\(95% CI NUM to NUM"));
         const auto shown = matches(summary, QStringLiteral("P\\(converted = 1\\): NUM \\(SE NUM, 95% CI NUM to NUM"));
@@ -207,8 +188,8 @@ TEST(NumberAgreement, AxisTicksAndTheDatasetGridFollowTheSameRules) {
     // The Effect plot's axes (helpdesk: negative effects): every tick label has the decimals its step needs, the
     // same on each tick, and the minus sign U+2212 (worked here with printf "%.*f" from the ticks' own values).
     Workbench b(QStringLiteral("helpdesk-staffing"));
-    QCPAxis* y = b.probe->effectPlot()->figurePlot()->yAxis;
-    b.probe->effectPlot()->figurePlot()->replot();
+    QCPAxis* y = b.section->effectPlot()->figurePlot()->yAxis;
+    b.section->effectPlot()->figurePlot()->replot();
     const QVector<double> ticks = y->tickVector();
     const QVector<QString> labels = y->tickVectorLabels();
     ASSERT_GE(ticks.size(), 3);

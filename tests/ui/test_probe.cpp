@@ -17,6 +17,8 @@
 #include <fstream>
 #include <random>
 
+#include "common/direct_fit.hpp"
+#include "common/tolerance.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "moderato/probing/probe_curves.hpp"
@@ -28,6 +30,7 @@
 #include "probe/moderator_slider.hpp"
 #include "probe/pinned_table.hpp"
 #include "probe/readout_panel.hpp"
+#include "probe_window.hpp"
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
@@ -35,60 +38,12 @@
 
 using namespace moderato;
 using namespace moderato::ui;
+using moderato::test::rel;
 
 namespace {
 
-// Core on its own: the project's first analysis fitted and probed directly.
-struct Direct {
-    LoadedProject loaded;
-    Analysis analysis;
-    Design design;
-    FitResult fit;
-    ProbeResult probe;
-};
-
-Direct direct(const QString& projectPath) {
-    Direct d;
-    d.loaded = load_project(projectPath.toStdString());
-    d.analysis = d.loaded.project.analyses.front();
-    const ModelSpec spec = model_spec(d.analysis);
-    d.design = build_design(*d.loaded.tables.at(d.analysis.dataset), spec);
-    d.fit = fit_design(d.design, spec);
-    ProbeSpec ps;
-    ps.focal = d.analysis.roles.focal;
-    ps.moderator = d.analysis.roles.moderator;
-    d.probe = probe(d.design, d.fit, ps);
-    return d;
-}
-
 // A main window showing the first analysis's Probe section at a realistic size.
-struct Window {
-    MainWindow w;
-    QString id;
-    ProbeSection* section = nullptr;
-
-    explicit Window(const QString& project) {
-        w.setInteractive(false);
-        w.resize(1400, 900);
-        w.show();
-        EXPECT_TRUE(test::openProject(w, project)) << w.lastMessage().toStdString();
-        id = w.analysisPage()->analysisId();
-        EXPECT_TRUE(test::waitUntil([&] { return w.runner()->result(id) != nullptr; }));
-        w.analysisPage()->showSection(AnalysisPage::Probe);
-        section = w.analysisPage()->probe();
-        EXPECT_TRUE(QTest::qWaitForWindowExposed(&w));
-        settle();
-    }
-    // Lets layouts and queued replots finish, then lays the plots out at their size.
-    void settle() {
-        for (int i = 0; i < 5; ++i) QCoreApplication::processEvents();
-        section->effectPlot()->figurePlot()->replot();
-        section->linesPlot()->figurePlot()->replot();
-        QCoreApplication::processEvents();
-    }
-    const Analysis& analysis() const { return *w.document()->analysis(id); }
-    QUndoStack* undo() { return w.document()->undoStack(); }
-};
+using Window = test::ProbeWindow;
 
 // Drags the Effect plot's handle from its current value to value `to`, with
 // intermediate mouse moves like a real drag.
@@ -102,11 +57,6 @@ void drag(EffectPlot* plot, double to, int steps = 12) {
     QTest::mouseRelease(p, Qt::LeftButton, Qt::NoModifier, QPoint(x1, y));
 }
 
-double rel(double a, double b) { return a == b ? 0 : std::abs(a - b) / std::max(std::abs(b), 1e-300); }
-
-// Four significant digits as the workbench writes numbers (common practice; see test::fourDigits).
-QString g4(double v) { return test::fourDigits(v); }
-
 void expectSamePoint(const EffectPoint& shown, const EffectPoint& core, double tol = 1e-10) {
     EXPECT_LE(rel(shown.estimate, core.estimate), tol);
     EXPECT_LE(rel(shown.std_error, core.std_error), tol);
@@ -116,12 +66,6 @@ void expectSamePoint(const EffectPoint& shown, const EffectPoint& core, double t
     EXPECT_LE(std::abs(shown.p_value - core.p_value), 1e-12 + tol * core.p_value);
 }
 
-int coefficientOf(const FitResult& fit, const std::string& a, const std::string& b = {}) {
-    if (b.empty()) return fit.index_of(a);
-    const int ab = fit.index_of(a + "×" + b);
-    return ab >= 0 ? ab : fit.index_of(b + "×" + a);
-}
-
 }  // namespace
 
 TEST(Probe, DraggingTheHandleUpdatesTheReadoutFromCore) {
@@ -129,7 +73,7 @@ TEST(Probe, DraggingTheHandleUpdatesTheReadoutFromCore) {
     Window win(path);
     ProbeSection* s = win.section;
     EffectPlot* effect = s->effectPlot();
-    const Direct core = direct(path);
+    const test::DirectProbe core = test::direct_probe(path.toStdString());
     const auto [lo, hi] = core.probe.observed_range;
     // Default: the moderator's mean (core).
     EXPECT_DOUBLE_EQ(s->currentModeratorValue(), core.probe.moderator_mean);
@@ -152,8 +96,8 @@ TEST(Probe, DraggingTheHandleUpdatesTheReadoutFromCore) {
     const EffectPoint expected = effect_at(core.probe.effect_function, m, core.fit, core.probe.observed_range);
     expectSamePoint(s->currentEffect(), expected);
     // Closed form: effect b1 + b3 m, variance V11 + 2 m V13 + m^2 V33.
-    const int b1 = coefficientOf(core.fit, core.analysis.roles.focal);
-    const int b3 = coefficientOf(core.fit, core.analysis.roles.focal, core.analysis.roles.moderator);
+    const int b1 = test::coefficient_index(core.fit, {core.analysis.roles.focal});
+    const int b3 = test::coefficient_index(core.fit, {core.analysis.roles.focal, core.analysis.roles.moderator});
     ASSERT_GE(b1, 0);
     ASSERT_GE(b3, 0);
     const Eigen::MatrixXd& V = core.fit.covariance;
@@ -162,8 +106,8 @@ TEST(Probe, DraggingTheHandleUpdatesTheReadoutFromCore) {
 
     // What the readout says.
     const QString text = s->readoutText();
-    EXPECT_TRUE(text.contains(g4(expected.estimate))) << text.toStdString();
-    EXPECT_TRUE(text.contains(g4(expected.std_error))) << text.toStdString();
+    EXPECT_TRUE(text.contains(test::fourDigits(expected.estimate))) << text.toStdString();
+    EXPECT_TRUE(text.contains(test::fourDigits(expected.std_error))) << text.toStdString();
     EXPECT_TRUE(text.contains(QStringLiteral("HC3"))) << "the SE kind is stated";
     EXPECT_TRUE(text.contains(QStringLiteral("95%"))) << "the level is stated";
     EXPECT_TRUE(text.contains(QStringLiteral("t(%1)").arg(core.fit.df_inference))) << text.toStdString();
@@ -197,7 +141,7 @@ TEST(Probe, SliderDragMovesTheSameValue) {
     const QString path = test::sampleProject(QStringLiteral("orchard-nitrogen"));
     Window win(path);
     ProbeSection* s = win.section;
-    const Direct core = direct(path);
+    const test::DirectProbe core = test::direct_probe(path.toStdString());
     QSlider* slider = s->slider();
     // Keyboard: End moves to the top of the observed range.
     slider->setFocus();
@@ -214,7 +158,7 @@ TEST(Probe, PinAddsARowThatUndoRemovesAndRedoRestores) {
     const QString path = test::sampleProject(QStringLiteral("orchard-nitrogen"));
     Window win(path);
     ProbeSection* s = win.section;
-    const Direct core = direct(path);
+    const test::DirectProbe core = test::direct_probe(path.toStdString());
     PinnedTableModel* table = s->pinnedTable()->model();
     // Before pinning: core's defaults (mean and +-1 SD), not removable.
     ASSERT_EQ(table->rowCount(), 3);
@@ -269,7 +213,7 @@ TEST(Probe, MeanAndSdButtonsUseTheRowsTheModelUses) {
     const QString path = test::sampleProject(QStringLiteral("orchard-nitrogen"));
     Window win(path);
     ProbeSection* s = win.section;
-    const Direct core = direct(path);
+    const test::DirectProbe core = test::direct_probe(path.toStdString());
     // Independently of the design: the moderator over rows where every model column is present.
     const Table& t = *core.loaded.tables.at(core.analysis.dataset);
     std::vector<std::string> cols{core.analysis.roles.outcome, core.analysis.roles.focal,
@@ -321,7 +265,7 @@ TEST(Probe, GroupsDrawOneLinePerGroupAndTheCrossoverOnlyWhenItExists) {
         const QString path = test::sampleProject(name);
         Window win(path);
         ProbeSection* s = win.section;
-        const Direct core = direct(path);
+        const test::DirectProbe core = test::direct_probe(path.toStdString());
         const auto run = win.w.runner()->result(win.id);
         ASSERT_TRUE(run);
         ASSERT_EQ(run->kind, ProbeKind::Groups);
@@ -353,12 +297,12 @@ TEST(Probe, GroupsDrawOneLinePerGroupAndTheCrossoverOnlyWhenItExists) {
 TEST(Probe, CoffeeDiscountLinesCrossWhereCoreSays) {
     const QString path = test::sampleProject(QStringLiteral("coffee-discount"));
     Window win(path);
-    const Direct core = direct(path);
+    const test::DirectProbe core = test::direct_probe(path.toStdString());
     ASSERT_EQ(core.probe.crossovers.size(), 1u);
     const Crossover& c = core.probe.crossovers.front();
     // Closed form: the two groups' lines meet where b2 + b3 x = 0, x = -b2 / b3.
-    const int b2 = coefficientOf(core.fit, core.analysis.roles.moderator);
-    const int b3 = coefficientOf(core.fit, core.analysis.roles.focal, core.analysis.roles.moderator);
+    const int b2 = test::coefficient_index(core.fit, {core.analysis.roles.moderator});
+    const int b3 = test::coefficient_index(core.fit, {core.analysis.roles.focal, core.analysis.roles.moderator});
     ASSERT_GE(b2, 0);
     ASSERT_GE(b3, 0);
     EXPECT_NEAR(c.focal_value, -core.fit.beta[b2] / core.fit.beta[b3], 1e-9 * (1 + std::abs(c.focal_value)));
@@ -376,7 +320,7 @@ TEST(Probe, ProbabilityScaleReadoutIsCoresProbabilityEffect) {
     const QString path = test::sampleProject(QStringLiteral("trial-conversion"));
     Window win(path);
     ProbeSection* s = win.section;
-    const Direct core = direct(path);
+    const test::DirectProbe core = test::direct_probe(path.toStdString());
     ASSERT_EQ(win.analysis().probe.scale, ProbeScale::Outcome);
     QComboBox* scale = s->scaleChoice();
     ASSERT_TRUE(scale->isVisible());
@@ -449,7 +393,7 @@ TEST(Probe, JohnsonNeymanBoundariesDrawnAreCores) {
     const QString path = writeSignChangeProject(dir);
     Window win(path);
     ProbeSection* s = win.section;
-    const Direct core = direct(path);
+    const test::DirectProbe core = test::direct_probe(path.toStdString());
     ASSERT_TRUE(core.probe.johnson_neyman);
     const auto& jn = core.probe.johnson_neyman->boundaries;
     ASSERT_EQ(jn.size(), 2u) << "the effect 0.5 - 0.12 z changes sign near z = 4.2";
@@ -512,12 +456,10 @@ TEST(Probe, AFailedAnalysisShowsItsReasonInsteadOfPlots) {
     p.analyses.front().roles.moderator = "not_a_column";
     const QString bad = dir.filePath(QStringLiteral("bad.moderato"));
     write_project_file(p, bad.toStdString());
-    MainWindow w;
-    w.setInteractive(false);
-    ASSERT_TRUE(test::openProject(w, bad)) << w.lastMessage().toStdString();
-    const QString id = w.analysisPage()->analysisId();
-    ASSERT_TRUE(test::waitUntil([&] { return !w.runner()->error(id).isEmpty(); }));
-    ProbeSection* s = w.analysisPage()->probe();
+    test::SampleWindow win;
+    ASSERT_FALSE(win.open(bad)) << "the analysis ran";
+    ASSERT_FALSE(win.w.runner()->error(win.id).isEmpty());
+    ProbeSection* s = win.w.analysisPage()->probe();
     EXPECT_TRUE(s->figures().isEmpty());
     // The reason names the role and the column (source: core's message, shown as it is).
     EXPECT_TRUE(s->readoutText().contains(QStringLiteral("not_a_column"))) << s->readoutText().toStdString();

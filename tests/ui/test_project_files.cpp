@@ -26,68 +26,35 @@
 #include <map>
 #include <sstream>
 
+#include "common/file_bytes.hpp"
+#include "common/folder_snapshot.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "moderato/project/project.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/support/sha256.hpp"
+#include "qstring_print.hpp"
+#include "sample_window.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
 #include "shell/project_sidebar.hpp"
 #include "ui_test_util.hpp"
 
-// Readable QString values in failure messages.
-inline void PrintTo(const QString& s, std::ostream* os) { *os << '"' << s.toStdString() << '"'; }
-
 using namespace moderato;
 using namespace moderato::ui;
+using moderato::test::waitForRun;
 namespace fs = std::filesystem;
 
 namespace {
 
-std::string readBytes(const QString& path) {
-    std::ifstream in(path.toStdString(), std::ios::binary);
-    std::stringstream s;
-    s << in.rdbuf();
-    return s.str();
-}
+std::string readBytes(const QString& path) { return test::read_file(path.toStdString()); }
+void writeBytes(const QString& path, const std::string& bytes) { test::write_file(path.toStdString(), bytes); }
 
-void writeBytes(const QString& path, const std::string& bytes) {
-    std::ofstream out(path.toStdString(), std::ios::binary | std::ios::trunc);
-    out << bytes;
-}
-
-// Every entry under a folder, hidden ones included: files with their bytes
-// and modification time, folders by name. Equal snapshots: nothing was
-// written, added (no temporary file left) or removed.
-struct Entry {
-    bool directory = false;
-    std::string bytes;
-    fs::file_time_type mtime;
-    bool operator==(const Entry&) const = default;
-};
-using Snapshot = std::map<std::string, Entry>;
-Snapshot snapshot(const QTemporaryDir& dir) {
-    Snapshot out;
-    for (const auto& e : fs::recursive_directory_iterator(dir.path().toStdString())) {
-        Entry s;
-        s.directory = e.is_directory();
-        if (!s.directory) s.bytes = readBytes(QString::fromStdString(e.path().string()));
-        s.mtime = fs::last_write_time(e.path());
-        out[e.path().string()] = s;
-    }
-    return out;
-}
-std::string describe(const Snapshot& before, const Snapshot& after) {
-    std::string out;
-    for (const auto& [path, e] : after)
-        if (!before.count(path)) out += "added " + path + "\n";
-        else if (!(before.at(path) == e)) out += "changed " + path + "\n";
-    for (const auto& [path, e] : before)
-        if (!after.count(path)) out += "removed " + path + "\n";
-    return out;
-}
+// Every entry under a test's folder (tests/common/folder_snapshot.hpp). Equal
+// snapshots: nothing was written, added (no temporary file left) or removed.
+using Snapshot = test::FolderSnapshot;
+Snapshot snapshot(const QTemporaryDir& dir) { return test::snapshot_folder(dir.path().toStdString()); }
 
 std::string replaced(std::string text, const std::string& from, const std::string& to) {
     const auto at = text.find(from);
@@ -104,10 +71,6 @@ QString visibleText(QWidget* root) {
     for (auto* label : root->findChildren<QLabel*>()) parts << label->text();
     for (auto* edit : root->findChildren<QTextEdit*>()) parts << edit->toPlainText();
     return parts.join(QLatin1Char('\n'));
-}
-
-bool waitForRun(MainWindow& w, const QString& id) {
-    return test::waitUntil([&] { return w.runner()->result(id) || !w.runner()->error(id).isEmpty(); });
 }
 
 }  // namespace
@@ -150,7 +113,7 @@ TEST_F(BrokenProjects, CorruptProjectNamesFileLineAndColumn) {
     EXPECT_TRUE(contains(message, QStringLiteral("line "))) << message.toStdString();
     EXPECT_TRUE(contains(message, QStringLiteral("column "))) << message.toStdString();
     EXPECT_TRUE(contains(message, QStringLiteral("not valid JSON"))) << message.toStdString();
-    EXPECT_EQ(describe(before, snapshot(dir)), "");
+    EXPECT_EQ(test::folder_changes(before, snapshot(dir)), "");
     expectGoodProjectStillOpen();
 }
 
@@ -164,7 +127,7 @@ TEST_F(BrokenProjects, NewerSchemaIsRefusedWithBothVersions) {
     EXPECT_TRUE(contains(message, QStringLiteral("newer Moderato"))) << message.toStdString();
     EXPECT_TRUE(contains(message, QStringLiteral("schema 42"))) << message.toStdString();
     EXPECT_TRUE(contains(message, QStringLiteral("schema %1").arg(kProjectSchemaVersion))) << message.toStdString();
-    EXPECT_EQ(describe(before, snapshot(dir)), "");
+    EXPECT_EQ(test::folder_changes(before, snapshot(dir)), "");
     expectGoodProjectStillOpen();
 }
 
@@ -187,7 +150,7 @@ TEST_F(BrokenProjects, ChangedDataFileOpensWithAWarning) {
     ASSERT_TRUE(waitForRun(w, id));
     EXPECT_TRUE(w.runner()->error(id).isEmpty()) << w.runner()->error(id).toStdString();
     EXPECT_EQ(w.document()->table("spend")->rows(), read_csv(data.toStdString()).rows());
-    EXPECT_EQ(describe(before, snapshot(dir)), "");
+    EXPECT_EQ(test::folder_changes(before, snapshot(dir)), "");
     // Not modified: opening is not an edit (saving accepts the new file).
     EXPECT_FALSE(w.document()->isModified());
 }
@@ -200,7 +163,7 @@ TEST_F(BrokenProjects, VanishedDataFileNamesDatasetAndPath) {
     EXPECT_TRUE(contains(message, QStringLiteral("'spend'"))) << message.toStdString();
     EXPECT_TRUE(contains(message, data)) << message.toStdString();
     EXPECT_TRUE(contains(message, QStringLiteral("missing"))) << message.toStdString();
-    EXPECT_EQ(describe(before, snapshot(dir)), "");
+    EXPECT_EQ(test::folder_changes(before, snapshot(dir)), "");
     expectGoodProjectStillOpen();
 }
 
@@ -225,7 +188,7 @@ TEST_F(BrokenProjects, ColumnThatNoLongerExistsIsShownOnTheAnalysis) {
         << visibleText(w.analysisPage()).toStdString();
     // The file change is also reported (the hash differs).
     EXPECT_TRUE(contains(w.lastMessage(), QStringLiteral("changed since"))) << w.lastMessage().toStdString();
-    EXPECT_EQ(describe(before, snapshot(dir)), "");
+    EXPECT_EQ(test::folder_changes(before, snapshot(dir)), "");
 }
 
 // ---------------------------------------------------------------- save and reopen
@@ -309,13 +272,13 @@ TEST(ProjectFiles, SavingOverADataFileIsRefused) {
     EXPECT_FALSE(w.saveAs(data));
     EXPECT_TRUE(contains(w.lastMessage(), QStringLiteral("data file of dataset 'spend'")))
         << w.lastMessage().toStdString();
-    EXPECT_EQ(describe(before, snapshot(dir)), "");
+    EXPECT_EQ(test::folder_changes(before, snapshot(dir)), "");
     // A folder in the way: the write fails, nothing is left behind.
     ASSERT_TRUE(QDir(dir.path()).mkpath(QStringLiteral("taken.moderato/inner")));
     const Snapshot withFolder = snapshot(dir);
     EXPECT_FALSE(w.saveAs(dir.filePath(QStringLiteral("taken.moderato"))));
     EXPECT_TRUE(contains(w.lastMessage(), QStringLiteral("taken.moderato"))) << w.lastMessage().toStdString();
-    EXPECT_EQ(describe(withFolder, snapshot(dir)), "");
+    EXPECT_EQ(test::folder_changes(withFolder, snapshot(dir)), "");
     // Still modified, still the old file.
     EXPECT_TRUE(w.document()->isModified());
     EXPECT_EQ(w.document()->filePath(), QFileInfo(project).absoluteFilePath());
@@ -545,7 +508,7 @@ TEST(ProjectFiles, DroppingACsvAddsADataset) {
     EXPECT_EQ(w.analysisPage()->analysisId(), QString::fromStdString(w.document()->project().analyses[0].id));
     EXPECT_TRUE(w.document()->isModified());
     EXPECT_TRUE(w.windowTitle().contains(QStringLiteral(" *")));
-    EXPECT_EQ(describe(before, snapshot(dir)), "");
+    EXPECT_EQ(test::folder_changes(before, snapshot(dir)), "");
 
     // Dropping a project file opens the project.
     QTemporaryDir pdir;

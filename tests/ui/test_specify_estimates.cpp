@@ -32,6 +32,7 @@
 #include "model/project_document.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/project/project_loader.hpp"
+#include "sample_window.hpp"
 #include "sections/estimates_section.hpp"
 #include "sections/specify_section.hpp"
 #include "shell/analysis_page.hpp"
@@ -47,25 +48,11 @@ using namespace moderato::ui;
 namespace {
 
 // An open sample project with its first analysis fitted.
-struct Open {
-    MainWindow w;
-    QString id;
-    explicit Open(const QString& name) {
-        w.setInteractive(false);
-        w.resize(1280, 860);
-        if (!test::openProject(w, test::sampleProject(name))) ADD_FAILURE() << w.lastMessage().toStdString();
-        id = w.analysisPage()->analysisId();
-        waitForRun();
-    }
-    bool waitForRun() {
-        return test::waitUntil(
-            [&] { return !w.runner()->busy(id) && (w.runner()->result(id) || !w.runner()->error(id).isEmpty()); });
-    }
-    const Analysis& analysis() const { return *w.document()->analysis(id); }
+struct Open : test::SampleWindow {
+    explicit Open(const QString& name) : SampleWindow(test::sampleProject(name), QSize(1280, 860)) {}
     SpecifySection* specify() const { return w.analysisPage()->specify(); }
     EstimatesSection* estimates() const { return w.analysisPage()->estimates(); }
     std::shared_ptr<const Table> table() const { return w.document()->table(analysis().dataset); }
-    QUndoStack* undo() const { return w.document()->undoStack(); }
 };
 
 nlohmann::json orchardReference() {

@@ -29,6 +29,7 @@
 #include <map>
 #include <set>
 
+#include "common/direct_fit.hpp"
 #include "data/dataset_page.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
@@ -42,6 +43,8 @@
 #include "plots/diagnostic_plots.hpp"
 #include "plots/scatter_thinning.hpp"
 #include "plots/surface_plot.hpp"
+#include "sample_window.hpp"
+#include "screenshot.hpp"
 #include "sections/checks_section.hpp"
 #include "sections/flagged_rows_model.hpp"
 #include "shell/analysis_page.hpp"
@@ -51,59 +54,19 @@
 using namespace moderato;
 using namespace moderato::ui;
 
-namespace {
-
-// The analysis as core sees it straight from the project file.
-struct Direct {
-    LoadedProject loaded;
-    Analysis analysis;
-    std::shared_ptr<const Table> table;
-    Design design;
-    FitResult fit;
-};
-
-Direct direct(const QString& name) {
-    Direct d{load_project(test::sampleProject(name).toStdString()), {}, {}, {}, {}};
-    d.analysis = d.loaded.project.analyses.front();
-    d.table = std::make_shared<const Table>(*d.loaded.tables.at(d.analysis.dataset));
-    d.design = build_design(*d.table, model_spec(d.analysis));
-    d.fit = fit_design(d.design, model_spec(d.analysis));
-    return d;
-}
-
-std::shared_ptr<const AnalysisRun> openAndRun(MainWindow& w, const QString& name) {
-    w.setInteractive(false);
-    if (!test::openProject(w, test::sampleProject(name))) {
-        ADD_FAILURE() << w.lastMessage().toStdString();
-        return nullptr;
-    }
-    const QString id = w.analysisPage()->analysisId();
-    if (!test::waitUntil([&] { return w.runner()->result(id) || !w.runner()->error(id).isEmpty(); })) return nullptr;
-    return w.runner()->result(id);
-}
-
-void screenshot(QWidget* widget, const QString& file) {
-    const QString dir = qEnvironmentVariable("MODERATO_SCREENSHOT_DIR");
-    if (dir.isEmpty()) return;
-    QDir().mkpath(dir);
-    QCoreApplication::processEvents();  // let layouts settle
-    widget->grab().save(QDir(dir).filePath(file));
-}
-
-}  // namespace
-
 TEST(CellsView, VolunteerOnboardingSeriesMatchCoreCellTable) {
-    MainWindow w;
-    const auto run = openAndRun(w, QStringLiteral("volunteer-onboarding"));
+    test::SampleWindow win(test::sampleProject(QStringLiteral("volunteer-onboarding")));
+    const auto run = win.run();
     ASSERT_TRUE(run);
     ASSERT_TRUE(run->cells.has_value());
-    const Direct d = direct(QStringLiteral("volunteer-onboarding"));
+    const test::DirectFit d =
+        test::direct_fit(test::sampleProject(QStringLiteral("volunteer-onboarding")).toStdString());
     // core cell_table on the design and fit built here
     const CellTable ref = cell_table(d.design, d.fit, d.analysis.roles.focal, d.analysis.roles.moderator);
 
     CellsView view;
     view.resize(1000, 760);
-    view.setRun(*w.document()->analysis(w.analysisPage()->analysisId()), *run);
+    view.setRun(win.analysis(), *run);
     view.show();
     ASSERT_TRUE(QTest::qWaitForWindowExposed(&view));
     EXPECT_FALSE(view.showsProbability());
@@ -168,9 +131,9 @@ TEST(CellsView, VolunteerOnboardingSeriesMatchCoreCellTable) {
     QTest::mouseClick(view.findChild<QPushButton*>(QStringLiteral("copy-cell-table")), Qt::LeftButton);
     EXPECT_EQ(QApplication::clipboard()->text(), tsv);
     EXPECT_EQ(tsv.count(QLatin1Char('\n')), m->rowCount() + 1);
-    screenshot(&view, QStringLiteral("cells-volunteer-onboarding.png"));
+    test::saveScreenshot(&view, QStringLiteral("cells-volunteer-onboarding.png"));
     view.resize(1500, 520);  // wide: the table beside the plot
-    screenshot(&view, QStringLiteral("cells-volunteer-onboarding-wide.png"));
+    test::saveScreenshot(&view, QStringLiteral("cells-volunteer-onboarding-wide.png"));
 
     view.setGreyscale(true);
     const QColor c = view.seriesGraph(1)->pen().color();
@@ -234,22 +197,22 @@ TEST(CellsView, LogisticProbabilityScaleShowsProbabilitiesAndOddsRatios) {
     EXPECT_EQ(contrastRows, 1);
     view.show();
     ASSERT_TRUE(QTest::qWaitForWindowExposed(&view));
-    screenshot(&view, QStringLiteral("cells-logistic.png"));
+    test::saveScreenshot(&view, QStringLiteral("cells-logistic.png"));
 }
 
 TEST(SurfacePlot, OrchardNitrogenColourMapMatchesCoreSurfaceGrid) {
-    MainWindow w;
-    const auto run = openAndRun(w, QStringLiteral("orchard-nitrogen"));
+    test::SampleWindow win(test::sampleProject(QStringLiteral("orchard-nitrogen")));
+    const auto run = win.run();
     ASSERT_TRUE(run);
     ASSERT_TRUE(run->surface.has_value());
-    const Direct d = direct(QStringLiteral("orchard-nitrogen"));
+    const test::DirectFit d = test::direct_fit(test::sampleProject(QStringLiteral("orchard-nitrogen")).toStdString());
     // core surface_grid on the design and fit built here (41 x 41, its default)
     const SurfaceGrid ref = surface_grid(d.design, d.fit, d.analysis.roles.focal, d.analysis.roles.moderator);
     const DataRegion region = data_region(d.design, d.analysis.roles.focal, d.analysis.roles.moderator);
 
     SurfacePlot plot;
     plot.resize(760, 520);
-    plot.setRun(*w.document()->analysis(w.analysisPage()->analysisId()), *run);
+    plot.setRun(win.analysis(), *run);
     plot.show();
     ASSERT_TRUE(QTest::qWaitForWindowExposed(&plot));
     QCPColorMap* map = plot.colorMap();
@@ -282,21 +245,21 @@ TEST(SurfacePlot, OrchardNitrogenColourMapMatchesCoreSurfaceGrid) {
     EXPECT_TRUE(legend.contains(QStringLiteral("beyond the data")));
     EXPECT_TRUE(legend.contains(QStringLiteral("edge of the observed data")));
     EXPECT_TRUE(plot.figurePlot()->legend->visible());
-    screenshot(&plot, QStringLiteral("surface-orchard-nitrogen.png"));
+    test::saveScreenshot(&plot, QStringLiteral("surface-orchard-nitrogen.png"));
 
     // Greyscale: the ramp's dark end is a grey.
     plot.setGreyscale(true);
     const QRgb top = plot.colorMap()->gradient().color(1.0, QCPRange(0, 1));
     EXPECT_EQ(qRed(top), qGreen(top));
     EXPECT_EQ(qGreen(top), qBlue(top));
-    screenshot(&plot, QStringLiteral("surface-orchard-nitrogen-grey.png"));
+    test::saveScreenshot(&plot, QStringLiteral("surface-orchard-nitrogen-grey.png"));
 }
 
 TEST(SurfacePlot, DataPointsFollowTheAnalysisSetting) {
-    MainWindow w;
-    const auto run = openAndRun(w, QStringLiteral("orchard-nitrogen"));
+    test::SampleWindow win(test::sampleProject(QStringLiteral("orchard-nitrogen")));
+    const auto run = win.run();
     ASSERT_TRUE(run);
-    Analysis a = *w.document()->analysis(w.analysisPage()->analysisId());
+    Analysis a = win.analysis();
     auto observedRows = [](SurfacePlot& plot) {
         int n = 0;
         for (int i = 0; i < plot.figurePlot()->graphCount(); ++i)
@@ -315,13 +278,13 @@ TEST(SurfacePlot, DataPointsFollowTheAnalysisSetting) {
 }
 
 TEST(SurfacePlot, LogisticProbabilityScaleShowsProbabilities) {
-    MainWindow w;
-    const auto run = openAndRun(w, QStringLiteral("trial-conversion"));
+    test::SampleWindow win(test::sampleProject(QStringLiteral("trial-conversion")));
+    const auto run = win.run();
     ASSERT_TRUE(run);
     ASSERT_TRUE(run->surface.has_value());
-    const Analysis& a = *w.document()->analysis(w.analysisPage()->analysisId());
+    const Analysis& a = win.analysis();
     ASSERT_EQ(a.probe.scale, ProbeScale::Outcome);
-    const Direct d = direct(QStringLiteral("trial-conversion"));
+    const test::DirectFit d = test::direct_fit(test::sampleProject(QStringLiteral("trial-conversion")).toStdString());
     const SurfaceGrid ref = surface_grid(d.design, d.fit, d.analysis.roles.focal, d.analysis.roles.moderator);
     SurfacePlot plot;
     plot.resize(760, 520);
@@ -338,7 +301,7 @@ TEST(SurfacePlot, LogisticProbabilityScaleShowsProbabilities) {
     EXPECT_TRUE(plot.colorScale()->axis()->label().startsWith(QStringLiteral("P(")));
     plot.show();
     ASSERT_TRUE(QTest::qWaitForWindowExposed(&plot));
-    screenshot(&plot, QStringLiteral("surface-trial-conversion.png"));
+    test::saveScreenshot(&plot, QStringLiteral("surface-trial-conversion.png"));
 }
 
 namespace {
@@ -358,19 +321,17 @@ std::set<std::size_t> expectedFlaggedTableRows(const Diagnostics& g, const Desig
 
 void checkFlaggedList(const QString& name, bool clickAndShow) {
     SCOPED_TRACE(name.toStdString());
-    MainWindow w;
-    const auto run = openAndRun(w, name);
+    test::SampleWindow win(test::sampleProject(name));
+    MainWindow& w = win.w;
+    const auto run = win.run();
     ASSERT_TRUE(run);
-    w.resize(1400, 900);
-    w.show();
-    ASSERT_TRUE(QTest::qWaitForWindowExposed(&w));
-    w.analysisPage()->showSection(AnalysisPage::Checks);
+    win.showSection(AnalysisPage::Checks);
     ChecksSection* checks = w.analysisPage()->checks();
     ASSERT_TRUE(checks->isVisible());
     const auto diag = checks->diagnostics();
     ASSERT_TRUE(diag);
 
-    const Direct d = direct(name);
+    const test::DirectFit d = test::direct_fit(test::sampleProject(name).toStdString());
     const Diagnostics ref = diagnostics(d.design, d.fit);  // core diagnostics on the fit built here
     const std::set<std::size_t> expected = expectedFlaggedTableRows(ref, d.design);
     ASSERT_FALSE(expected.empty());
@@ -409,7 +370,7 @@ void checkFlaggedList(const QString& name, bool clickAndShow) {
     QStringList keys;
     for (FigureSource* f : checks->figures()) keys << f->figureKey();
     EXPECT_EQ(keys, (QStringList{QStringLiteral("residuals"), QStringLiteral("qq"), QStringLiteral("influence")}));
-    screenshot(checks, QStringLiteral("checks-%1.png").arg(name));
+    test::saveScreenshot(checks, QStringLiteral("checks-%1.png").arg(name));
 
     if (!clickAndShow) return;
     // Select the second listed row with the mouse and press "Show in dataset".
@@ -481,7 +442,7 @@ TEST(ChecksSection, WithoutARunShowsTheReason) {
 namespace {
 
 // The file line of each observation of the fit (the rows the design kept).
-std::vector<double> fileLines(const Direct& d) {
+std::vector<double> fileLines(const test::DirectFit& d) {
     std::vector<double> lines;
     for (std::size_t row : d.design.rows) lines.push_back(static_cast<double>(d.table->row_lines.at(row)));
     return lines;
@@ -518,17 +479,15 @@ std::set<QString> itemTexts(QCustomPlot* plot, const QString& prefix) {
 
 void checkInfluenceView(const QString& name) {
     SCOPED_TRACE(name.toStdString());
-    MainWindow w;
-    ASSERT_TRUE(openAndRun(w, name));
-    w.resize(1400, 900);
-    w.show();
-    ASSERT_TRUE(QTest::qWaitForWindowExposed(&w));
-    w.analysisPage()->showSection(AnalysisPage::Checks);
+    test::SampleWindow win(test::sampleProject(name));
+    MainWindow& w = win.w;
+    ASSERT_TRUE(win.run());
+    win.showSection(AnalysisPage::Checks);
     DiagnosticPlot* plot = w.analysisPage()->checks()->influencePlot();
     ASSERT_EQ(plot->figureKey(), QStringLiteral("influence"));  // the key project files store
     ASSERT_EQ(plot->panelCount(), 2);
 
-    const Direct d = direct(name);
+    const test::DirectFit d = test::direct_fit(test::sampleProject(name).toStdString());
     const Diagnostics ref = diagnostics(d.design, d.fit);  // core diagnostics on the fit built here
     const double n = static_cast<double>(d.design.rows.size());
     double p = 0;  // estimable coefficients (aliased ones are NaN)
@@ -601,13 +560,12 @@ TEST(ChecksSection, LogisticInfluenceViewDrawsCoreNumbersWithTheFlagRules) {
 }
 
 TEST(ChecksSection, ResidualBinsShowTheMeanResidualWithItsInterval) {
-    MainWindow w;
-    ASSERT_TRUE(openAndRun(w, QStringLiteral("orchard-nitrogen")));
-    w.show();
-    ASSERT_TRUE(QTest::qWaitForWindowExposed(&w));
-    w.analysisPage()->showSection(AnalysisPage::Checks);
+    test::SampleWindow win(test::sampleProject(QStringLiteral("orchard-nitrogen")));
+    MainWindow& w = win.w;
+    ASSERT_TRUE(win.run());
+    win.showSection(AnalysisPage::Checks);
     DiagnosticPlot* plot = w.analysisPage()->checks()->residualPlot();
-    const Direct d = direct(QStringLiteral("orchard-nitrogen"));
+    const test::DirectFit d = test::direct_fit(test::sampleProject(QStringLiteral("orchard-nitrogen")).toStdString());
     // Residuals y - fitted in order of the fitted value, computed here.
     const Eigen::Index m = d.fit.fitted.size();
     std::vector<Eigen::Index> order(static_cast<std::size_t>(m));
@@ -650,11 +608,10 @@ TEST(ChecksSection, ResidualBinsShowTheMeanResidualWithItsInterval) {
 TEST(ChecksSection, LabelsAreSpelledOut) {
     for (const QString& name : {QStringLiteral("orchard-nitrogen"), QStringLiteral("trial-conversion")}) {
         SCOPED_TRACE(name.toStdString());
-        MainWindow w;
-        ASSERT_TRUE(openAndRun(w, name));
-        w.show();
-        ASSERT_TRUE(QTest::qWaitForWindowExposed(&w));
-        w.analysisPage()->showSection(AnalysisPage::Checks);
+        test::SampleWindow win(test::sampleProject(name));
+        MainWindow& w = win.w;
+        ASSERT_TRUE(win.run());
+        win.showSection(AnalysisPage::Checks);
         ChecksSection* checks = w.analysisPage()->checks();
         ASSERT_TRUE(checks->diagnostics());
         QStringList texts;

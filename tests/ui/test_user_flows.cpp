@@ -37,6 +37,8 @@
 #include "plots/effect_plot.hpp"
 #include "plots/lines_plot.hpp"
 #include "probe/moderator_slider.hpp"
+#include "qt_file_bytes.hpp"
+#include "sample_window.hpp"
 #include "sections/probe_section.hpp"
 #include "sections/specify_section.hpp"
 #include "shell/analysis_page.hpp"
@@ -44,36 +46,23 @@
 #include "specify/column_list_model.hpp"
 #include "specify/role_slot.hpp"
 #include "ui_test_util.hpp"
+#include "widget_input.hpp"
 
 using namespace moderato;
 using namespace moderato::ui;
+using moderato::test::child;
+using moderato::test::chooseByKeys;
+using moderato::test::writeFile;
 
 namespace {
 
 // A main window on a copy of a sample project, shown and active (window
 // shortcuts need an active window), its first analysis fitted.
-struct Session {
-    QTemporaryDir dir;
-    QString path;
-    MainWindow w;
-    QString id;
-
+struct Session : test::SampleWindow {
     explicit Session(const QString& sample) {
-        path = test::copySample(sample, dir);
-        w.setInteractive(false);
-        w.resize(1400, 900);
-        w.show();
-        EXPECT_TRUE(test::openProject(w, path)) << w.lastMessage().toStdString();
-        id = w.analysisPage()->analysisId();
-        EXPECT_TRUE(waitForRun());
-        w.activateWindow();
-        EXPECT_TRUE(QTest::qWaitForWindowActive(&w));
+        EXPECT_TRUE(open(copy(sample))) << w.runner()->error(id).toStdString();
+        activate();
     }
-    bool waitForRun() {
-        return test::waitUntil(
-            [&] { return !w.runner()->busy(id) && (w.runner()->result(id) || !w.runner()->error(id).isEmpty()); });
-    }
-    const Analysis& analysis() const { return *w.document()->analysis(id); }
     ProbeSection* probe() const { return w.analysisPage()->probe(); }
     SpecifySection* specify() const { return w.analysisPage()->specify(); }
     void keys(Qt::Key key, Qt::KeyboardModifiers mods) {
@@ -81,30 +70,6 @@ struct Session {
         QCoreApplication::processEvents();
     }
 };
-
-QString writeFile(const QTemporaryDir& dir, const QString& name, const QByteArray& bytes) {
-    const QString path = dir.filePath(name);
-    QFile f(path);
-    EXPECT_TRUE(f.open(QIODevice::WriteOnly));
-    f.write(bytes);
-    return path;
-}
-
-template <typename T>
-T* child(const QObject* parent, const char* name) {
-    T* c = parent->findChild<T*>(QString::fromLatin1(name));
-    EXPECT_NE(c, nullptr) << "no child widget named " << name;
-    return c;
-}
-
-// Moves a combo box to `index` with arrow keys, as a user would.
-void chooseByKeys(QComboBox* box, int index) {
-    ASSERT_NE(box, nullptr);
-    box->setFocus();
-    for (int guard = 0; box->currentIndex() != index && guard < 20; ++guard)
-        QTest::keyClick(box, box->currentIndex() < index ? Qt::Key_Down : Qt::Key_Up);
-    ASSERT_EQ(box->currentIndex(), index);
-}
 
 // Types a value into a spin box and presses Enter.
 void typeValue(QDoubleSpinBox* box, const QString& text) {

@@ -3,6 +3,7 @@
 #include <gtest/gtest.h>
 
 #include "model/analysis_runner.hpp"
+#include "sample_window.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
 #include "ui_test_util.hpp"
@@ -12,12 +13,9 @@ using namespace moderato::ui;
 TEST(WindowSize, EverySectionOfEverySampleFitsA1280By720Screen) {
     for (const QString& name : moderato::test::sampleNames()) {
         SCOPED_TRACE(name.toStdString());
-        MainWindow w;
-        w.setInteractive(false);
-        ASSERT_TRUE(moderato::test::openProject(w, moderato::test::sampleProject(name)));
-        const QString id = w.analysisPage()->analysisId();
-        ASSERT_TRUE(moderato::test::waitUntil([&] { return w.runner()->result(id) != nullptr; }));
-        w.show();
+        moderato::test::SampleWindow win(moderato::test::sampleProject(name));
+        ASSERT_TRUE(win.run());
+        MainWindow& w = win.w;
         for (int s = AnalysisPage::Specify; s <= AnalysisPage::Checks; ++s) {
             w.analysisPage()->showSection(static_cast<AnalysisPage::Section>(s));
             QCoreApplication::processEvents();

@@ -1,0 +1,22 @@
+// Pictures of widgets for looking at them by eye: saved only when
+// MODERATO_SCREENSHOT_DIR is set, and no test depends on them.
+#pragma once
+
+#include <QCoreApplication>
+#include <QDir>
+#include <QPixmap>
+#include <QString>
+#include <QWidget>
+
+namespace moderato::test {
+
+// Saves `widget` as MODERATO_SCREENSHOT_DIR/<file> ("name.png") when the variable is set.
+inline void saveScreenshot(QWidget* widget, const QString& file) {
+    const QString dir = qEnvironmentVariable("MODERATO_SCREENSHOT_DIR");
+    if (dir.isEmpty()) return;
+    QDir().mkpath(dir);
+    QCoreApplication::processEvents();  // let pending layouts settle first
+    widget->grab().save(QDir(dir).filePath(file));
+}
+
+}  // namespace moderato::test
