@@ -670,6 +670,31 @@ TEST(RenderChangedData, AcceptedWithAWarningAndTheMemoSaysTheHashDiffers) {
     EXPECT_TRUE(contains(read_file(out / "discount-loyalty" / "memo.md"), "901 of 901")) << "rows used";
 }
 
+// A project file holding numbers no double can hold (beyond about 1.8e308,
+// IEEE 754; some of those a random mutation of a sample file produces):
+// exit 2 naming the file and the number's line, never an internal error.
+TEST(RenderHostileProject, NumberTooLargeIsBadInputNamingItsLine) {
+    TempDir tmp{"render"};
+    const fs::path project = copy_sample("coffee-discount", tmp.path() / "p");
+    std::string text = read_file(project);
+    const std::string level = "\"level\": 0.95";
+    const auto at = text.find(level);
+    ASSERT_NE(at, std::string::npos) << "the sample states its confidence level";
+    text.replace(at, level.size(), "\"level\": 9999e99999");
+    write_file(project, text);
+    const int line = 1 + static_cast<int>(std::count(text.begin(), text.begin() + static_cast<long>(at), '\n'));
+    const FileSnapshot before = FileSnapshot::take((tmp.path() / "p").string());
+
+    const RunResult r = render(project, tmp.path() / "out");
+    ASSERT_TRUE(r.exited) << r.describe();
+    EXPECT_EQ(r.exit_code, 2) << r.describe();
+    EXPECT_TRUE(contains(r.err, project.filename().string() + ": line " + std::to_string(line) + ",")) << r.err;
+    EXPECT_TRUE(contains(r.err, "9999e99999")) << r.err;
+    EXPECT_FALSE(contains(r.err, "internal error")) << r.err;
+    EXPECT_TRUE(tree(tmp.path() / "out").empty());
+    EXPECT_TRUE(FileSnapshot::take((tmp.path() / "p").string()) == before) << "the project folder was touched";
+}
+
 // ------------------------------------------------------------------ usage errors
 
 TEST(RenderUsage, BadArgumentsExit2AndWriteNothing) {

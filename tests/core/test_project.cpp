@@ -476,6 +476,24 @@ TEST(ProjectMigration, SampleKindsAreTheEnumsOfTheirSchemaOneWords) {
     }
 }
 
+TEST(ProjectJson, NumberTooLargeForADoubleIsBadInputWithItsPlace) {
+    // A number beyond the range of a double (about 1.8e308, IEEE 754) makes the
+    // JSON parser give up without a position; the message still names the file,
+    // the line and column of the number (by construction: line 3, column 12),
+    // and the number itself, as bad input rather than a failure of ours.
+    const std::string text = "{\n  \"schema_version\": 2,\n  \"level\": 9999e99999,\n  \"x\": 1\n}\n";
+    const std::string message = input_error_of([&] { project_from_json(text, "huge.moderato"); });
+    EXPECT_TRUE(contains(message, "huge.moderato: line 3, column 12")) << message;
+    EXPECT_TRUE(contains(message, "9999e99999")) << message;
+    EXPECT_TRUE(contains(message, "too large")) << message;
+
+    // The same digits earlier inside a longer number do not mislead the place:
+    // "19999e99999" on line 2 does not overflow the search for "9999e99999".
+    const std::string two = "{\n  \"a\": \"19999e99999\",\n  \"b\": 9999e99999\n}\n";
+    const std::string two_message = input_error_of([&] { project_from_json(two, "two.moderato"); });
+    EXPECT_TRUE(contains(two_message, "line 3, column 8")) << two_message;
+}
+
 TEST(ProjectJson, CorruptJsonGivesLineAndColumn) {
     // By construction: the stray '}' is the 17th character of line 4
     // ("    {" is 5 characters, "\"id\": \"a\", " 11 more, then '}').

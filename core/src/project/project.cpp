@@ -2,6 +2,7 @@
 #include "moderato/project/project.hpp"
 
 #include <algorithm>
+#include <cctype>
 #include <cmath>
 #include <filesystem>
 #include <nlohmann/json.hpp>
@@ -264,6 +265,26 @@ json analysis_to_json(const Analysis& a) {
 
 // ------------------------------------------------------------ reading
 
+// The message for a number the parser cannot hold as a double ("1e999"): the
+// parser names the number's text but not where it stands, so the first place
+// that text appears as a number gives the line and column.
+std::string too_large_number(const std::string& text, const std::string& name, const std::string& what) {
+    const auto open = what.find('\''), close = what.rfind('\'');
+    const std::string token = open != std::string::npos && close > open ? what.substr(open + 1, close - open - 1) : "";
+    std::size_t at = token.empty() ? std::string::npos : text.find(token);
+    const auto number_char = [](char c) {
+        return std::isdigit(static_cast<unsigned char>(c)) || c == '.' || c == '-' || c == '"';
+    };
+    while (at != std::string::npos && at > 0 && number_char(text[at - 1])) at = text.find(token, at + 1);
+    std::string where;
+    if (at != std::string::npos) {
+        const auto [line, column] = line_and_column(text, at);
+        where = ": line " + std::to_string(line) + ", column " + std::to_string(column);
+    }
+    return name + where + ": the number " + (token.empty() ? std::string("there") : token) +
+           " is too large to hold (a number must lie within about ±1.8e308); the file was not changed";
+}
+
 // The document, or InputError with the line and column where it stops being JSON.
 json parse_document(const std::string& text, const std::string& name) {
     try {
@@ -279,6 +300,8 @@ json parse_document(const std::string& text, const std::string& name) {
             reason = reason.substr(colon + 2);
         throw InputError(name + ": line " + std::to_string(line) + ", column " + std::to_string(column) +
                          ": the file is not valid JSON, so it is not a Moderato project (" + reason + ")");
+    } catch (const json::out_of_range& e) {
+        throw InputError(too_large_number(text, name, e.what()));
     }
 }
 
@@ -520,16 +543,23 @@ std::string project_to_json(const Project& p) {
 Project project_from_json(const std::string& text, const std::string& name) {
     json doc = parse_document(text, name);
     const Reader r(name);
-    const long long version = schema_version(r, doc, name);
-    Project p;
-    if (version < kProjectSchemaVersion) detail::migrate_project(doc, version, p.migration_notes);
-    read_datasets(r, doc, p);
-    read_recipes(r, doc, p);
-    const json& analyses = r.array(doc, "analyses", "top level");
-    for (std::size_t i = 0; i < analyses.size(); ++i)
-        p.analyses.push_back(read_analysis(r, analyses[i], "analyses[" + std::to_string(i) + "]", p));
-    read_figures(r, doc, p);
-    return p;
+    try {
+        const long long version = schema_version(r, doc, name);
+        Project p;
+        if (version < kProjectSchemaVersion) detail::migrate_project(doc, version, p.migration_notes);
+        read_datasets(r, doc, p);
+        read_recipes(r, doc, p);
+        const json& analyses = r.array(doc, "analyses", "top level");
+        for (std::size_t i = 0; i < analyses.size(); ++i)
+            p.analyses.push_back(read_analysis(r, analyses[i], "analyses[" + std::to_string(i) + "]", p));
+        read_figures(r, doc, p);
+        return p;
+    } catch (const json::exception& e) {
+        // The readers check each value's type before taking it; should one be
+        // missed, the file is still what is wrong, so it is reported as such.
+        throw InputError(name + ": a value of an unexpected kind (" + std::string(e.what()) +
+                         "); the file was not changed");
+    }
 }
 
 Project read_project_file(const std::string& path) { return project_from_json(read_file_bytes(path), path); }
