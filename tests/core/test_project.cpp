@@ -6,9 +6,11 @@
 #include <gtest/gtest.h>
 
 #include <signal.h>
+#include <spawn.h>
 #include <stdlib.h>
 #include <sys/resource.h>
 #include <sys/stat.h>
+#include <sys/wait.h>
 #include <unistd.h>
 
 #include <Eigen/Dense>
@@ -688,6 +690,49 @@ TEST(AtomicWrite, MissingFolderNamesTheFile) {
     const std::string file = dir / "no/such/folder/project.moderato";
     const std::string message = input_error_of([&] { write_file_atomically(file, "x"); });
     EXPECT_TRUE(contains(message, file)) << message;
+}
+
+// A writer killed between creating its temporary file and renaming it leaves
+// that file behind; the next write into the folder removes it. The kill is
+// real: this test runs itself as a child (posix_spawn of /proc/self/exe, so
+// nothing runs between fork and exec) whose file-size limit makes the kernel
+// end it with SIGXFSZ in the middle of write() (POSIX default action).
+TEST(AtomicWrite, TemporaryFileOfAKilledWriterGoesOnTheNextWrite) {
+    if (const char* target = std::getenv("MODERATO_TEST_KILLED_WRITER")) {
+        rlimit small{4096, 4096}, no_core{0, 0};
+        ::setrlimit(RLIMIT_CORE, &no_core);
+        ::signal(SIGXFSZ, SIG_DFL);
+        ::setrlimit(RLIMIT_FSIZE, &small);
+        write_file_atomically(target, std::string(1 << 20, 'n'));
+        std::_Exit(3);  // not reached: the write is killed
+    }
+    TempDir dir("project");
+    const std::string file = dir / "project.moderato";
+    write_file(file, "old complete bytes");
+    const std::string self = fs::read_symlink("/proc/self/exe").string();
+    const std::string env = "MODERATO_TEST_KILLED_WRITER=" + file;
+    const std::string filter = "--gtest_filter=AtomicWrite.TemporaryFileOfAKilledWriterGoesOnTheNextWrite";
+    char* argv[] = {const_cast<char*>(self.c_str()), const_cast<char*>(filter.c_str()), nullptr};
+    char* envp[] = {const_cast<char*>(env.c_str()), nullptr};
+    pid_t child = 0;
+    ASSERT_EQ(::posix_spawn(&child, self.c_str(), nullptr, nullptr, argv, envp), 0);
+    int status = 0;
+    ASSERT_EQ(::waitpid(child, &status, 0), child);
+    ASSERT_TRUE(WIFSIGNALED(status) && WTERMSIG(status) == SIGXFSZ) << "child status " << status;
+    EXPECT_EQ(read_file(file), "old complete bytes") << "the target is the old complete file";
+    const std::vector<std::string> after_kill = names_in(dir.path());
+    ASSERT_EQ(after_kill.size(), 2u) << "the killed writer left its temporary file";
+    EXPECT_EQ(after_kill[0].rfind(".project.moderato.tmp-" + std::to_string(child) + "-", 0), 0u) << after_kill[0];
+
+    // Files that are not a dead writer's temporary stay: pid 1 always runs,
+    // and names of other shapes are not ours.
+    for (const char* keep : {".other.tmp-1-77", "notes.tmp-99999999-1", ".x.tmp-abc", ".y.tmp-12-"})
+        write_file(dir / keep, "keep");
+    write_file_atomically(file, "new complete bytes");
+    EXPECT_EQ(read_file(file), "new complete bytes");
+    const std::vector<std::string> expected{".other.tmp-1-77", ".x.tmp-abc", ".y.tmp-12-", "notes.tmp-99999999-1",
+                                            "project.moderato"};
+    EXPECT_EQ(names_in(dir.path()), expected);
 }
 
 // ---------------------------------------------------------------- paths

@@ -2,6 +2,7 @@
 #include "moderato/support/file_util.hpp"
 
 #include <fcntl.h>
+#include <signal.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
@@ -24,6 +25,46 @@ std::string read_file_bytes(const std::string& path) {
     return out;
 }
 
+namespace {
+
+// A temporary file of ours is named ".<target>.tmp-<pid>-<number>": the
+// process that wrote it is in its name, so a later run can tell a file left
+// by a process that died (killed, crashed, power cut) from one being written.
+std::string temp_name(const std::string& target_name, unsigned number) {
+    return "." + target_name + ".tmp-" + std::to_string(::getpid()) + "-" + std::to_string(number);
+}
+
+// The writer's process id when `name` is one of our temporary files, else 0.
+pid_t temp_owner(const std::string& name) {
+    const auto mark = name.rfind(".tmp-");
+    if (name.empty() || name[0] != '.' || mark == std::string::npos || mark < 2) return 0;
+    std::size_t i = mark + 5, digits = 0;
+    long long pid = 0;
+    for (; i < name.size() && name[i] >= '0' && name[i] <= '9' && digits < 10; ++i, ++digits)
+        pid = pid * 10 + (name[i] - '0');
+    if (digits == 0 || i >= name.size() || name[i] != '-' || i + 1 == name.size()) return 0;
+    for (++i; i < name.size(); ++i)
+        if (name[i] < '0' || name[i] > '9') return 0;
+    return pid > 0 && pid <= 0x7fffffff ? static_cast<pid_t>(pid) : 0;
+}
+
+}  // namespace
+
+int remove_stale_temp_files(const std::string& dir) {
+    namespace fs = std::filesystem;
+    std::error_code ec;
+    int removed = 0;
+    for (fs::directory_iterator it(dir, ec), end; !ec && it != end; it.increment(ec)) {
+        const pid_t owner = temp_owner(it->path().filename().string());
+        if (owner == 0 || owner == ::getpid()) continue;
+        // No such process: its writer is gone, and the file can never be renamed into place.
+        if (::kill(owner, 0) == 0 || errno != ESRCH) continue;
+        std::error_code rm;
+        if (it->is_regular_file(rm) && fs::remove(it->path(), rm)) ++removed;
+    }
+    return removed;
+}
+
 void write_file_atomically(const std::string& path, std::string_view content) {
     namespace fs = std::filesystem;
     // Writing through a symbolic link replaces the file it points to, not the link.
@@ -42,11 +83,12 @@ void write_file_atomically(const std::string& path, std::string_view content) {
         mode = old.st_mode & 07777;
         keep_mode = true;
     }
+    remove_stale_temp_files(dir.string());
     std::random_device rd;
     std::string temp;
     int fd = -1;
     for (int attempt = 0; attempt < 16 && fd < 0; ++attempt) {
-        temp = (dir / ("." + target.filename().string() + ".tmp-" + std::to_string(rd() & 0xffffff))).string();
+        temp = (dir / temp_name(target.filename().string(), rd() & 0xffffff)).string();
         fd = ::open(temp.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, mode);
         if (fd < 0 && errno != EEXIST) break;
     }
