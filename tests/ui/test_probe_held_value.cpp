@@ -10,6 +10,7 @@
 #include <QDoubleSpinBox>
 #include <QLabel>
 #include <QTest>
+#include <QTextBoundaryFinder>
 #include <QToolButton>
 #include <QUndoStack>
 #include <cmath>
@@ -148,6 +149,17 @@ TEST(ProbeHeldValue, SecondModeratorHeldValueIsOneUndoableEditMatchingCore) {
     ASSERT_TRUE(run);
     EXPECT_TRUE(figureCaption(win.analysis(), *run).contains(QStringLiteral("slope_pct held at 4 ·")))
         << figureCaption(win.analysis(), *run).toStdString();
+    // Where a long caption wraps, "n = <count>" stays on one line: Unicode line
+    // breaking (UAX #14, as Qt's QTextBoundaryFinder implements it) finds no
+    // break opportunity inside it.
+    const QString caption = figureCaption(win.analysis(), *run);
+    const qsizetype n = caption.lastIndexOf(QStringLiteral(" · n")) + 3;
+    ASSERT_GT(n, 3) << caption.toStdString();
+    QTextBoundaryFinder lines(QTextBoundaryFinder::Line, caption);
+    for (qsizetype p = n + 1; p < caption.size(); ++p) {
+        lines.setPosition(p);
+        EXPECT_FALSE(lines.isAtBoundary()) << "a line may break at " << p << " in " << caption.toStdString();
+    }
     test::saveScreenshot(&win.w, QStringLiteral("three-way-probe.png"));
 
     // Undo goes back to mean + SD, then to the mean; redo comes forward again.

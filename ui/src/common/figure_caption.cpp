@@ -25,7 +25,8 @@ QString figureCaption(const Analysis& a, const AnalysisRun& run) {
     // A three-way model's figures hold the second moderator at one value: say which.
     const QString held = heldValueText(a, run.design);
     if (!held.isEmpty()) text += QStringLiteral(", ") + held;
-    text += QStringLiteral(" · %1 SEs · %2 intervals · n = %3")
+    // No-break spaces keep "n = 1,200" on one line when the caption wraps.
+    text += QStringLiteral(" · %1 SEs · %2 intervals · n\u00A0=\u00A0%3")
                 .arg(seDescription(a, run))
                 .arg(levelText(a.level))
                 .arg(countText(static_cast<long long>(run.fit.n)));
