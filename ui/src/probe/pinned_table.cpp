@@ -136,8 +136,11 @@ PinnedTable::PinnedTable(QWidget* parent)
     view_->setSelectionBehavior(QAbstractItemView::SelectRows);
     view_->setSelectionMode(QAbstractItemView::ExtendedSelection);
     view_->verticalHeader()->hide();
+    // Every column as wide as its text; a narrow pane scrolls sideways rather
+    // than clipping the last column (a stretched last section can shrink below
+    // its text: "< 0.001" read "< 0....").
     view_->horizontalHeader()->setSectionResizeMode(QHeaderView::ResizeToContents);
-    view_->horizontalHeader()->setStretchLastSection(true);
+    view_->horizontalHeader()->setStretchLastSection(false);
     // On screen a row beyond the data is shaded and in italics (the caption says
     // so); the "beyond the data" column is kept for the copied text.
     view_->setColumnHidden(PinnedTableModel::Note, true);
