@@ -238,6 +238,15 @@ TEST(MemoSentences, EverySampleHasFindingsAndTheUsualCautions) {
         if (s.run.kind == ProbeKind::Continuous) {
             EXPECT_NE(cautions.find("many moderator values"), std::string::npos);
         }
+        // Several pairs of lines compared: multiple testing (common practice;
+        // Bonferroni's level is the 5% shared among the pairs: 5% / 3 = 1.667%).
+        const std::size_t pairs = s.run.probe ? s.run.probe->crossovers.size() : 0;
+        EXPECT_EQ(cautions.find("pairs of lines are each compared") != std::string::npos, pairs > 1) << cautions;
+        if (std::string(name) == "helpdesk-staffing") {
+            EXPECT_EQ(pairs, 3u) << "three shifts: three pairs";
+            EXPECT_NE(cautions.find("The 3 pairs of lines"), std::string::npos) << cautions;
+            EXPECT_NE(cautions.find("Bonferroni: 1.667% per pair"), std::string::npos) << cautions;
+        }
     }
 }
 

@@ -354,6 +354,14 @@ void refresh_cautions(ProbeResult& r, const FitResult& fit) {
             (r.simultaneous ? "; the simultaneous band (critical value " + format_sig(r.simultaneous->critical_value) +
                                   ") keeps the chance of any false region at " + level_text(1 - fit.level) + "."
                             : "."));
+    if (r.crossovers.size() > 1) {
+        const double pairs = static_cast<double>(r.crossovers.size());
+        r.cautions.push_back("The " + std::to_string(r.crossovers.size()) +
+                             " pairs of lines are each compared at the " + level_text(1 - fit.level) +
+                             " level; with several comparisons some pair may look different by chance alone "
+                             "(Bonferroni: " +
+                             level_text((1 - fit.level) / pairs) + " per pair).");
+    }
     if (fit.n < 200)
         r.cautions.push_back("With " + std::to_string(fit.n) +
                              " observations, interaction estimates and regions of significance are unstable.");
