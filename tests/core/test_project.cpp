@@ -544,7 +544,11 @@ TEST(ProjectJson, WrongTypesNameTheFieldPath) {
         {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"family\": \"poisson\",", "analyses[0].family", "logistic"},
         {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"centring\": \"median\",", "analyses[0].centring", "mean"},
         {"\"probe\": {", "\"probe\": {\"scale\": \"odds\",", "analyses[0].probe.scale", "outcome"},
-        {"\"probe\": {", "\"figure\": {\"dpi\": 1e20}, \"probe\": {", "analyses[0].figure.dpi", "between 36 and 2400"},
+        {"\"probe\": {", "\"figure\": {\"dpi\": 1e20}, \"probe\": {", "analyses[0].figure.dpi", "between 72 and 1200"},
+        // Values a random mutation of a sample produced: nothing sensible to draw.
+        {"\"probe\": {", "\"figure\": {\"width_in\": 1e-320}, \"probe\": {", "analyses[0].figure", "0.5 and 40 inches"},
+        {"\"probe\": {", "\"figure\": {\"font_pt\": 0}, \"probe\": {", "analyses[0].figure.font_pt",
+         "between 4 and 48"},
         {"\"probe\": {", "\"figure\": {\"dpi\": 299.5}, \"probe\": {", "analyses[0].figure.dpi", "whole number"},
         {"\"probe\": {", "\"figure\": {\"width_in\": -1}, \"probe\": {", "analyses[0].figure", "inches"},
         {"\"probe\": {", "\"figure\": {\"preset\": \"poster\"}, \"probe\": {", "analyses[0].figure.preset", "memo"},

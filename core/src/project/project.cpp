@@ -11,6 +11,7 @@
 
 #include "moderato/support/error.hpp"
 #include "moderato/support/file_util.hpp"
+#include "moderato/support/report_text.hpp"
 #include "project/project_migration.hpp"
 
 namespace moderato {
@@ -396,16 +397,23 @@ FigureSettings read_figure(const Reader& r, const json& j, const std::string& wh
     f.preset = r.choice(fig, "preset", fw, kPresetWords, std::optional(SizePreset::Memo));
     f.width_in = r.number(fig, "width_in", fw, f.width_in);
     f.height_in = r.number(fig, "height_in", fw, f.height_in);
+    using L = FigureLimits;
     const double dpi = r.number(fig, "dpi", fw, f.dpi);
-    if (!(dpi >= 36 && dpi <= 2400)) r.fail(fw + ".dpi", "must lie between 36 and 2400");
+    if (!(dpi >= L::min_dpi && dpi <= L::max_dpi))
+        r.fail(fw + ".dpi", "must lie between " + std::to_string(L::min_dpi) + " and " + std::to_string(L::max_dpi));
     if (dpi != std::floor(dpi)) r.fail(fw + ".dpi", "expected a whole number");
     f.dpi = static_cast<int>(dpi);
     f.font_family = r.text(fig, "font_family", fw, false, f.font_family);
     f.font_pt = r.number(fig, "font_pt", fw, f.font_pt);
+    if (!(f.font_pt >= L::min_font_pt && f.font_pt <= L::max_font_pt))
+        r.fail(fw + ".font_pt",
+               "must lie between " + exact_text(L::min_font_pt) + " and " + exact_text(L::max_font_pt) + " points");
     f.greyscale = r.boolean(fig, "greyscale", fw, false);
     f.caption = r.boolean(fig, "caption", fw, true);
-    if (!(f.width_in > 0 && f.width_in <= 100 && f.height_in > 0 && f.height_in <= 100))
-        r.fail(fw, "width and height must lie between 0 and 100 inches");
+    const auto inches = [](double v) { return v >= L::min_inches && v <= L::max_inches; };
+    if (!(inches(f.width_in) && inches(f.height_in)))
+        r.fail(fw, "width and height must lie between " + exact_text(L::min_inches) + " and " +
+                       exact_text(L::max_inches) + " inches");
     return f;
 }
 

@@ -110,7 +110,7 @@ void FigureExportDialog::createFigureRows(QFormLayout* form) {
     auto makeInches = [this](const QString& name) {
         auto* box = new QDoubleSpinBox(this);
         box->setObjectName(name);
-        box->setRange(0.5, 40.0);
+        box->setRange(FigureLimits::min_inches, FigureLimits::max_inches);
         box->setDecimals(2);
         box->setSingleStep(0.1);
         box->setSuffix(tr(" in"));
@@ -130,7 +130,7 @@ void FigureExportDialog::createFigureRows(QFormLayout* form) {
 void FigureExportDialog::createLookRows(QFormLayout* form) {
     dpi_ = new QSpinBox(this);
     dpi_->setObjectName(QStringLiteral("figure-dpi"));
-    dpi_->setRange(72, 1200);
+    dpi_->setRange(FigureLimits::min_dpi, FigureLimits::max_dpi);
     dpi_->setSingleStep(50);
     dpi_->setSuffix(tr(" DPI"));
     dpi_->setKeyboardTracking(false);
@@ -146,7 +146,7 @@ void FigureExportDialog::createLookRows(QFormLayout* form) {
     font_->setObjectName(QStringLiteral("figure-font"));
     fontSize_ = new QDoubleSpinBox(this);
     fontSize_->setObjectName(QStringLiteral("figure-font-size"));
-    fontSize_->setRange(4, 48);
+    fontSize_->setRange(FigureLimits::min_font_pt, FigureLimits::max_font_pt);
     fontSize_->setDecimals(1);
     fontSize_->setSingleStep(0.5);
     fontSize_->setSuffix(tr(" pt"));

@@ -100,6 +100,15 @@ struct ProbeSettings {
 };
 
 // How a figure is exported (the preset names its size, see SizePreset).
+// The figures Moderato draws: the export dialog offers these ranges, and a
+// project file must keep to them (a hand-edited 0.00001-inch figure or a 0 pt
+// font has nothing sensible to draw).
+struct FigureLimits {
+    static constexpr double min_inches = 0.5, max_inches = 40;
+    static constexpr int min_dpi = 72, max_dpi = 1200;
+    static constexpr double min_font_pt = 4, max_font_pt = 48;
+};
+
 struct FigureSettings {
     SizePreset preset = SizePreset::Memo;
     double width_in = 6.5, height_in = 4.0;
