@@ -32,23 +32,10 @@ void write_joint_test(JsonWriter& w, const WaldTest& t) {
 }
 
 const char* standard_errors_name(SeKind se) {
-    switch (se) {
-        case SeKind::Classical:
-            return "model-based";
-        case SeKind::HC0:
-            return "hc0";
-        case SeKind::HC1:
-            return "hc1";
-        case SeKind::HC2:
-            return "hc2";
-        case SeKind::HC3:
-            return "hc3";
-        case SeKind::HC4:
-            return "hc4";
-        case SeKind::Cluster:
-            return "cluster-robust";
-    }
-    return "";
+    // Our JSON words where they differ from the CLI's option values (to_string).
+    if (se == SeKind::Classical) return "model-based";
+    if (se == SeKind::Cluster) return "cluster-robust";
+    return to_string(se);
 }
 
 const char* test_name(double df) { return std::isinf(df) ? "z" : "t"; }
