@@ -349,6 +349,7 @@ MainWindow::LoadResult MainWindow::adoptProject(const QString& path, LoadOutcome
         statusBar()->showMessage(tr("Opening cancelled; nothing was changed."), 5000);
         return Cancelled;
     }
+    // A moved data file the user located: opened again with it (that load reports; this result is not emitted).
     if (outcome.missing && locateMissing(path, outcome)) return Cancelled;
     if (!outcome.error.isEmpty() || !outcome.project) {
         report(tr("Cannot open project"),
