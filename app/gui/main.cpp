@@ -8,8 +8,10 @@
 
 #include <cstring>
 
+#include "model/project_document.hpp"
 #include "shell/app_style.hpp"
 #include "shell/main_window.hpp"
+#include "shell/recovery_prompt.hpp"
 
 #ifndef MODERATO_APP_ID
 #error "MODERATO_APP_ID (the desktop id) is defined by cmake/Packaging.cmake"
@@ -46,6 +48,22 @@ bool onlyText(int argc, char* argv[]) {
     return false;
 }
 
+// For the tests that kill the workbench: MODERATO_TEST_RENAME=<name> renames
+// the first analysis once a project is open, an edit made as the user would
+// (one undo step through the document).
+void renameForTests(moderato::ui::MainWindow& window) {
+    const QString name = qEnvironmentVariable("MODERATO_TEST_RENAME");
+    if (name.isEmpty()) return;
+    QObject::connect(&window, &moderato::ui::MainWindow::loadFinished, &window,
+                     [&window, name](const QString&, moderato::ui::MainWindow::LoadResult result) {
+                         moderato::ui::ProjectDocument* doc = window.document();
+                         if (result != moderato::ui::MainWindow::Loaded || doc->project().analyses.empty()) return;
+                         moderato::Analysis a = doc->project().analyses.front();
+                         a.name = name.toStdString();
+                         doc->setAnalysis(a, QStringLiteral("Rename analysis"));
+                     });
+}
+
 }  // namespace
 
 int main(int argc, char* argv[]) {
@@ -72,10 +90,13 @@ int main(int argc, char* argv[]) {
     moderato::ui::applyAppStyle(app);
     moderato::ui::MainWindow window;
     window.show();
+    renameForTests(window);
     const QStringList files = parser.positionalArguments();
-    if (!files.isEmpty()) {
-        const QString path = QFileInfo(files.front()).absoluteFilePath();
-        QTimer::singleShot(0, &window, [&window, path] { window.openPath(path); });
-    }
+    const QString path = files.isEmpty() ? QString() : QFileInfo(files.front()).absoluteFilePath();
+    QTimer::singleShot(0, &window, [&window, path] {
+        // Edits a crashed session left come first; a file named here opens unless they were restored.
+        const bool restoring = moderato::ui::offerRecovery(&window, moderato::ui::recoveryAnswerFromEnvironment());
+        if (!path.isEmpty() && !restoring) window.openPath(path);
+    });
     return app.exec();
 }

@@ -642,6 +642,24 @@ TEST(RenderChangedData, StopsWithExit2NamingTheFileAndWritesNothing) {
     EXPECT_TRUE(FileSnapshot::take(project.string()) == projectBefore) << "the project file was touched";
 }
 
+TEST(RenderMovedData, RefusedWithExit2NamingTheRecordedPathAndWhereItLooked) {
+    TempDir tmp{"render"};
+    const fs::path project = copy_sample("coffee-discount", tmp.path() / "p");
+    const fs::path csv = tmp.path() / "p" / "spend.csv";
+    fs::rename(csv, tmp.path() / "spend.csv");  // moved out of the project's folder
+    const FileSnapshot projectBefore = FileSnapshot::take(project.string());
+    const fs::path out = tmp.path() / "out";
+
+    const RunResult r = render(project, out);
+    ASSERT_TRUE(r.exited) << r.describe();
+    EXPECT_EQ(r.exit_code, 2) << r.describe();               // bad input, not an internal error
+    EXPECT_TRUE(contains(r.err, "\"spend.csv\"")) << r.err;  // as the sample project records it
+    EXPECT_TRUE(contains(r.err, csv.string())) << r.err;     // where that points
+    EXPECT_TRUE(contains(r.err, "'spend'")) << r.err;
+    EXPECT_TRUE(tree(out).empty()) << "files were written although the render stopped";
+    EXPECT_TRUE(FileSnapshot::take(project.string()) == projectBefore) << "the project file was touched";
+}
+
 TEST(RenderChangedData, AcceptedWithAWarningAndTheMemoSaysTheHashDiffers) {
     TempDir tmp{"render"};
     const fs::path project = copy_sample("coffee-discount", tmp.path() / "p");

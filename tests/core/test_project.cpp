@@ -849,6 +849,45 @@ TEST(LoadProject, VanishedDataFileIsAnErrorNamingDatasetAndPath) {
     EXPECT_TRUE(before == snapshot_folder(study.dir.path())) << "a failed open wrote something";
 }
 
+TEST(LoadProject, MissingDataFileSaysWhatTheProjectRecordsAndWhereItLooked) {
+    StudyFolder study;
+    fs::remove(study.survey);
+    try {
+        load_project(study.project);
+        ADD_FAILURE() << "a missing data file was not refused";
+    } catch (const MissingDataFile& e) {
+        EXPECT_EQ(e.dataset, "survey");
+        EXPECT_EQ(e.recorded, "data/survey.csv");  // as StudyFolder wrote it
+        EXPECT_EQ(fs::path(e.looked_at).lexically_normal(), fs::path(study.survey).lexically_normal());
+        EXPECT_TRUE(contains(e.what(), "\"data/survey.csv\"")) << e.what();
+        EXPECT_TRUE(contains(e.what(), e.looked_at)) << e.what();
+    }
+}
+
+TEST(LoadProject, MovedDataFileIsReadFromWhereTheUserFoundIt) {
+    StudyFolder study;
+    const std::string moved = study.dir / "elsewhere/survey.csv";
+    fs::create_directories(fs::path(moved).parent_path());
+    fs::rename(study.survey, moved);
+    const LoadedProject same = load_project(study.project, {}, {{"survey", moved}});
+    EXPECT_TRUE(same.warnings.empty());  // same bytes: the recorded SHA-256 matches
+    EXPECT_EQ(same.tables.at("survey")->rows(), 4u);
+    EXPECT_EQ(same.project.dataset("survey")->path, "data/survey.csv");  // the project itself is not changed here
+
+    std::string bytes = read_file(moved);
+    bytes[bytes.find("4.0")] = '6';
+    write_file(moved, bytes);
+    const auto before = snapshot_folder(study.dir.path());
+    const LoadedProject other = load_project(study.project, {}, {{"survey", moved}});
+    ASSERT_EQ(other.warnings.size(), 1u);
+    // One wording for a changed data file, shared with the renderer.
+    const std::string expected =
+        changed_data_text(moved, "survey", sha256_hex(bytes), same.project.dataset("survey")->sha256);
+    EXPECT_TRUE(contains(other.warnings[0], expected)) << other.warnings[0];
+    EXPECT_EQ(other.tables.at("survey")->find("y")->numbers[2], 6.0);  // the file as it is now
+    EXPECT_TRUE(before == snapshot_folder(study.dir.path())) << "opening a project wrote something";
+}
+
 TEST(LoadProject, FailingRecipeIsReportedAndTheDataStillLoad) {
     StudyFolder study;
     Project p = read_project_file(study.project);

@@ -18,6 +18,9 @@ int main(int argc, char** argv) {
     QTemporaryDir settingsDir;
     QSettings::setPath(QSettings::NativeFormat, QSettings::UserScope, settingsDir.path());
     QSettings::setPath(QSettings::IniFormat, QSettings::UserScope, settingsDir.path());
+    // Recovery copies of unsaved edits (model/recovery_store) go to a folder of this process too.
+    QTemporaryDir stateDir;
+    qputenv("XDG_STATE_HOME", stateDir.path().toLocal8Bit());
     QApplication app(argc, argv);
     QApplication::setOrganizationName(QStringLiteral("Moderato-tests"));
     QApplication::setApplicationName(QStringLiteral("Moderato-tests"));

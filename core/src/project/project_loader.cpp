@@ -9,27 +9,46 @@
 
 namespace moderato {
 
+MissingDataFile::MissingDataFile(const std::string& project_path, std::string dataset_id, std::string recorded_path,
+                                 std::string file)
+    : InputError((project_path.empty() ? std::string("the project") : project_path) + ": the data file of dataset '" +
+                 dataset_id + "' is missing: the project records it as \"" + recorded_path + "\" and no file is at " +
+                 file +
+                 ". Put the file back there, or open the project in the workbench and point it at the file's new "
+                 "place; the project was not changed."),
+      dataset(std::move(dataset_id)),
+      recorded(std::move(recorded_path)),
+      looked_at(std::move(file)) {}
+
 std::shared_ptr<const Table> load_data_source(const DataSource& source, const std::string& project_path,
-                                              const CsvProgress& progress) {
-    const std::string file = resolve_data_path(source, project_path);
+                                              const CsvProgress& progress, const std::string& moved_to) {
+    const std::string file = moved_to.empty() ? resolve_data_path(source, project_path) : moved_to;
     std::error_code ec;
-    if (!std::filesystem::exists(file, ec))
-        throw InputError(project_path + ": the data file of dataset '" + source.id + "' is missing: " + file +
-                         " (named \"" + source.path +
-                         "\" in the project). Put the file back there, or open the data file and rebuild the "
-                         "analysis; the project was not changed.");
+    if (!std::filesystem::exists(file, ec)) throw MissingDataFile(project_path, source.id, source.path, file);
     return std::make_shared<const Table>(read_csv(file, source.import, progress));
 }
 
-LoadedProject load_project(const std::string& path, const CsvProgress& progress) {
+std::string changed_data_text(const std::string& file, const std::string& dataset, const std::string& sha_now,
+                              const std::string& sha_recorded) {
+    return file + " (dataset '" + dataset + "'): SHA-256 " + sha_now + " now, " + sha_recorded +
+           " when the project was saved";
+}
+
+LoadedProject load_project(const std::string& path, const CsvProgress& progress, const DataLocations& moved) {
+    return load_project_data(read_project_file(path), path, progress, moved);
+}
+
+LoadedProject load_project_data(Project project, const std::string& path, const CsvProgress& progress,
+                                const DataLocations& moved) {
     LoadedProject out;
     out.path = path;
-    out.project = read_project_file(path);
+    out.project = std::move(project);
     out.warnings = out.project.migration_notes;
     const std::size_t count = out.project.datasets.size();
     for (std::size_t i = 0; i < count; ++i) {
         const DataSource& source = out.project.datasets[i];
-        const std::string file = resolve_data_path(source, path);
+        const auto relocated = moved.find(source.id);
+        const std::string file = relocated != moved.end() ? relocated->second : resolve_data_path(source, path);
         // Progress over all files: each file is an equal share.
         CsvProgress part;
         if (progress.callback)
@@ -38,13 +57,14 @@ LoadedProject load_project(const std::string& path, const CsvProgress& progress)
                 return progress.callback(static_cast<std::size_t>((static_cast<double>(i) + share) * 1000.0),
                                          count * 1000);
             };
-        auto table = load_data_source(source, path, part);
+        auto table = load_data_source(source, path, part, file);
         const std::string hash = sha256_file(file);
         out.sha256[source.id] = hash;
         if (!source.sha256.empty() && hash != source.sha256)
-            out.warnings.push_back("The data file " + file + " (dataset '" + source.id +
-                                   "') changed since the project was saved: its SHA-256 differs. Every analysis is "
-                                   "recomputed from the file as it is now; save the project to accept the change.");
+            out.warnings.push_back("The data changed since the project was saved: " +
+                                   changed_data_text(file, source.id, hash, source.sha256) +
+                                   ". Every analysis is recomputed from the file as it is now; save the project to "
+                                   "accept the change.");
         out.base[source.id] = table;
         try {
             out.tables[source.id] = with_recipes(table, out.project.recipes_for(source.id));

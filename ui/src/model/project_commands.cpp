@@ -24,4 +24,13 @@ bool ProjectStateCommand::mergeWith(const QUndoCommand* other) {
     return true;
 }
 
+DataLocationCommand::DataLocationCommand(ProjectDocument* doc, DataLocations before, DataLocations after,
+                                         const QString& text)
+    : doc_(doc), before_(std::move(before)), after_(std::move(after)) {
+    setText(text);
+}
+
+void DataLocationCommand::undo() { doc_->setDataLocations(before_); }
+void DataLocationCommand::redo() { doc_->setDataLocations(after_); }
+
 }  // namespace moderato::ui

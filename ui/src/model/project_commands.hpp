@@ -5,6 +5,7 @@
 #include <QUndoCommand>
 
 #include "moderato/project/project.hpp"
+#include "moderato/project/project_loader.hpp"
 
 namespace moderato::ui {
 
@@ -24,6 +25,21 @@ private:
     Project before_, after_;
     int mergeId_;
     QString mergeKey_;
+};
+
+// Points datasets at other data files (a moved file the user located). The
+// data paths are not part of the project states the other steps hold (they
+// record where the files are, and survive undo of settings), so moving a
+// file is a step of its own, with the old and new absolute paths.
+class DataLocationCommand : public QUndoCommand {
+public:
+    DataLocationCommand(ProjectDocument* doc, DataLocations before, DataLocations after, const QString& text);
+    void undo() override;
+    void redo() override;
+
+private:
+    ProjectDocument* doc_;
+    DataLocations before_, after_;
 };
 
 }  // namespace moderato::ui

@@ -79,6 +79,7 @@ void ProjectDocument::adopt(LoadedProject loaded) {
         saved_[d.id] = {d.path, d.sha256};
     }
     readHashes_ = std::move(loaded.sha256);
+    confirmSaveTarget_ = false;
     undo_.clear();
     Q_EMIT filePathChanged(path_);
     Q_EMIT projectReset();
@@ -93,6 +94,7 @@ void ProjectDocument::clear() {
     absolutePaths_.clear();
     readHashes_.clear();
     saved_.clear();
+    confirmSaveTarget_ = false;
     undo_.clear();
     Q_EMIT filePathChanged(path_);
     Q_EMIT projectReset();
@@ -181,6 +183,24 @@ void ProjectDocument::applyState(const Project& p) {
     }
 }
 
+void ProjectDocument::relocateData(const DataLocations& moved, const QString& description) {
+    DataLocations before;
+    for (const auto& [id, file] : moved) before[id] = dataPath(id).toStdString();
+    undo_.push(new DataLocationCommand(this, before, moved, description));
+}
+
+void ProjectDocument::setDataLocations(const DataLocations& files) {
+    const std::string project = path_.toStdString();
+    for (const auto& [id, file] : files) {
+        const std::string recorded = project.empty() ? file : relative_data_path(file, project);
+        absolutePaths_[id] = file;
+        saved_[id].path = recorded;
+        for (auto& d : project_.datasets)
+            if (d.id == id) d.path = recorded, saved_[id].sha256 = d.sha256;
+    }
+    Q_EMIT structureChanged();  // the sidebar names the data file
+}
+
 void ProjectDocument::saveAs(const QString& path) {
     const QFileInfo info(path);
     const std::string target = info.absoluteFilePath().toStdString();
@@ -208,6 +228,7 @@ void ProjectDocument::saveAs(const QString& path) {
     }
     project_.datasets = out.datasets;
     path_ = QString::fromStdString(target);
+    confirmSaveTarget_ = false;
     undo_.setClean();
     Q_EMIT filePathChanged(path_);
 }

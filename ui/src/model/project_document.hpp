@@ -61,6 +61,21 @@ public:
     // data files (user data are never written); nothing changes then.
     void saveAs(const QString& path);
 
+    // Points datasets at other data files (dataset id -> absolute path; a
+    // data file the user located after it moved): one undo step. The path is
+    // recorded relative to the project, as saving does; undo returns to the
+    // old one. The tables stay as they are (they were read from the new files).
+    void relocateData(const DataLocations& moved, const QString& description);
+    // Used by that undo step only: sets the data files, without an undo step.
+    void setDataLocations(const DataLocations& files);
+
+    // Marks the document as holding unsaved edits (edits recovered after a crash).
+    void markUnsaved() { undo_.resetClean(); }
+    // Whether the next Save asks where to save (the project file changed on
+    // disk since these edits were made); saving clears it.
+    bool confirmSaveTarget() const { return confirmSaveTarget_; }
+    void setConfirmSaveTarget(bool on) { confirmSaveTarget_ = on; }
+
     // Applies a state (used by undo commands only). A dataset's path and
     // SHA-256 record where its file is and what it held when the project was
     // last opened or saved: bookkeeping, not an edit, so they keep their
@@ -88,6 +103,7 @@ private:
         std::string path, sha256;
     };
     std::map<std::string, Saved> saved_;  // dataset id -> path and hash as last opened/saved
+    bool confirmSaveTarget_ = false;
 };
 
 // Guessed roles for a new analysis on a table: the first numeric column as

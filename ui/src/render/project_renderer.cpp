@@ -88,9 +88,8 @@ std::set<QString> checkDataFiles(const LoadedProject& loaded, const RenderReques
         if (!data.canonicalFilePath().isEmpty()) dataFiles.insert(data.canonicalFilePath());
         const auto now = loaded.sha256.find(d.id);
         if (!d.sha256.empty() && now != loaded.sha256.end() && now->second != d.sha256)
-            changed << QStringLiteral("%1 (dataset %2): SHA-256 %3 now, %4 when the project was saved")
-                           .arg(QString::fromStdString(resolve_data_path(d, loaded.path)), QString::fromStdString(d.id),
-                                QString::fromStdString(now->second), QString::fromStdString(d.sha256));
+            changed << QString::fromStdString(
+                changed_data_text(resolve_data_path(d, loaded.path), d.id, now->second, d.sha256));
     }
     if (!changed.isEmpty() && !request.acceptChangedData)
         throw InputError(

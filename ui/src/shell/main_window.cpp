@@ -19,6 +19,7 @@
 #include <QStatusBar>
 #include <QTableView>
 #include <QTimer>
+#include <optional>
 
 #include "common/background_job.hpp"
 #include "common/figure_caption.hpp"
@@ -29,12 +30,14 @@
 #include "export/figure_export_dialog.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
+#include "model/recovery_store.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/sha256.hpp"
 #include "sections/checks_section.hpp"
 #include "sections/memo_section.hpp"
 #include "shell/analysis_page.hpp"
+#include "shell/locate_data.hpp"
 #include "shell/project_sidebar.hpp"
 
 // The resources live in a static library: register them once (outside any namespace).
@@ -63,6 +66,12 @@ struct LoadOutcome {
     std::string sha256;  // of the data file read
     QString error;
     bool cancelled = false;
+    // Opening a project: what was asked for (to ask again with a located data
+    // file) and the data file found missing, if one was.
+    std::shared_ptr<const Project> inMemory;
+    DataLocations moved;
+    std::optional<MissingDataFile> missing;
+    std::function<void()> adopted;
 };
 
 namespace {
@@ -75,6 +84,9 @@ void loadInto(LoadOutcome& o, Read read) {
         read();
     } catch (const Cancelled&) {
         o.cancelled = true;
+    } catch (const MissingDataFile& e) {
+        o.missing = e;
+        o.error = QString::fromStdString(e.what());
     } catch (const InputError& e) {
         o.error = QString::fromStdString(e.what());
     } catch (const std::bad_alloc&) {
@@ -97,6 +109,7 @@ MainWindow::MainWindow(QWidget* parent)
       welcome_(new QLabel(this)),
       datasetPage_(new DatasetPage(doc_, this)),
       analysisPage_(new AnalysisPage(doc_, runner_, this)),
+      recovery_(new RecoveryStore(doc_, RecoveryStore::defaultFolder(), this)),
       progressDelayMs_(JobProgressDialog::kDefaultDelayMs) {
     initResources();
     setObjectName(QStringLiteral("moderato-main-window"));
@@ -263,14 +276,24 @@ void MainWindow::openPath(const QString& path) {
     dialog->open();
 }
 
-void MainWindow::openProject(const QString& path) {
+void MainWindow::openProject(const QString& path) { openProjectFrom(path, nullptr, {}); }
+
+void MainWindow::openProjectFrom(const QString& path, std::shared_ptr<const Project> project,
+                                 const DataLocations& moved, std::function<void()> adopted) {
     const std::string file = path.toStdString();
     auto outcome = std::make_shared<LoadOutcome>();
+    outcome->inMemory = std::move(project);
+    outcome->moved = moved;
+    outcome->adopted = std::move(adopted);
+    const QString name = path.isEmpty() ? tr("Untitled project") : QFileInfo(path).fileName();
     startLoad(
-        path, tr("Opening %1…").arg(QFileInfo(path).fileName()),
+        path, tr("Opening %1…").arg(name),
         [outcome, file](const BackgroundJob::Progress& progress) {
             loadInto(*outcome, [&] {
-                outcome->project = std::make_shared<LoadedProject>(load_project(file, CsvProgress{progress}));
+                const CsvProgress p{progress};
+                outcome->project = std::make_shared<LoadedProject>(
+                    outcome->inMemory ? load_project_data(*outcome->inMemory, file, p, outcome->moved)
+                                      : load_project(file, p, outcome->moved));
             });
         },
         [this, path, outcome](bool cancelled) { return adoptProject(path, *outcome, cancelled); });
@@ -307,7 +330,9 @@ void MainWindow::startLoad(const QString& path, const QString& text, BackgroundJ
         load_ = nullptr;
         loadingPath_.clear();
         statusBar()->clearMessage();
-        Q_EMIT loadFinished(path, done(cancelled));
+        const LoadResult result = done(cancelled);
+        if (load_) return;  // it goes on in another load (a located data file), which reports the end
+        Q_EMIT loadFinished(path, result);
     });
     if (interactive_) new JobProgressDialog(load_, text, this, progressDelayMs_);
     statusBar()->showMessage(text);
@@ -324,6 +349,8 @@ MainWindow::LoadResult MainWindow::adoptProject(const QString& path, LoadOutcome
         statusBar()->showMessage(tr("Opening cancelled; nothing was changed."), 5000);
         return Cancelled;
     }
+    // A moved data file the user located: opened again with it (that load reports; this result is not emitted).
+    if (outcome.missing && locateMissing(path, outcome)) return Cancelled;
     if (!outcome.error.isEmpty() || !outcome.project) {
         report(tr("Cannot open project"),
                outcome.error.isEmpty() ? tr("The project could not be read.") : outcome.error);
@@ -332,7 +359,9 @@ MainWindow::LoadResult MainWindow::adoptProject(const QString& path, LoadOutcome
     LoadedProject loaded = std::move(*outcome.project);
     const std::vector<std::string> warnings = loaded.warnings;
     doc_->adopt(std::move(loaded));
-    addRecent(QFileInfo(path).absoluteFilePath());
+    if (!outcome.moved.empty()) doc_->relocateData(outcome.moved, tr("Locate data file"));
+    if (outcome.adopted) outcome.adopted();
+    if (!path.isEmpty()) addRecent(QFileInfo(path).absoluteFilePath());
     showFirstItem();
     if (!warnings.empty()) {
         QStringList lines;
@@ -357,11 +386,32 @@ MainWindow::LoadResult MainWindow::addImported(const QString& path, const CsvOpt
     return Loaded;
 }
 
+bool MainWindow::locateMissing(const QString& path, const LoadOutcome& outcome) {
+    const MissingDataFile& m = *outcome.missing;
+    DataLocator ask = locator_;
+    if (!ask && interactive_)
+        ask = [this](const QString& dataset, const QString& recorded, const QString& file) {
+            return askForMovedDataFile(this, dataset, recorded, file);
+        };
+    if (!ask) return false;
+    const QString chosen =
+        ask(QString::fromStdString(m.dataset), QString::fromStdString(m.recorded), QString::fromStdString(m.looked_at));
+    const std::string file = QFileInfo(chosen).absoluteFilePath().toStdString();
+    const auto tried = outcome.moved.find(m.dataset);
+    if (chosen.isEmpty() || (tried != outcome.moved.end() && tried->second == file)) return false;
+    DataLocations moved = outcome.moved;
+    moved[m.dataset] = file;
+    // Opened again with the chosen file; its SHA-256 is checked as for any data file.
+    openProjectFrom(path, outcome.inMemory, moved, outcome.adopted);
+    return true;
+}
+
 bool MainWindow::save() {
-    if (doc_->filePath().isEmpty()) {
+    // Recovered edits whose project file changed meanwhile: ask where (the chooser confirms overwriting).
+    if (doc_->filePath().isEmpty() || doc_->confirmSaveTarget()) {
         if (!interactive_) return false;
-        const QString path =
-            QFileDialog::getSaveFileName(this, tr("Save project"), QString(), tr("Moderato projects (*.moderato)"));
+        const QString path = QFileDialog::getSaveFileName(this, tr("Save project"), doc_->filePath(),
+                                                          tr("Moderato projects (*.moderato)"));
         if (path.isEmpty()) return false;
         return saveAs(isProjectPath(path) ? path : path + QStringLiteral(".moderato"));
     }
@@ -429,6 +479,7 @@ void MainWindow::closeEvent(QCloseEvent* event) {
     settings.setValue(QStringLiteral("window/state"), saveState());
     if (auto* splitter = findChild<QSplitter*>(QStringLiteral("main-splitter")))
         settings.setValue(QStringLiteral("window/splitter"), splitter->saveState());
+    recovery_->discard();  // a clean quit keeps no recovery copy
     event->accept();
 }
 

@@ -11,9 +11,11 @@
 #include <QMainWindow>
 #include <QStringList>
 #include <functional>
+#include <memory>
 #include <string>
 
 #include "common/background_job.hpp"
+#include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
 
 class QStackedWidget;
@@ -28,6 +30,7 @@ class AnalysisRunner;
 class DatasetPage;
 class ProjectDocument;
 class ProjectSidebar;
+class RecoveryStore;
 struct LoadOutcome;
 
 class MainWindow : public QMainWindow {
@@ -45,12 +48,23 @@ public:
     ProjectSidebar* sidebar() const { return sidebar_; }
     AnalysisPage* analysisPage() const { return analysisPage_; }
     DatasetPage* datasetPage() const { return datasetPage_; }
+    RecoveryStore* recovery() const { return recovery_; }
 
     // Opens a project (.moderato) or imports a data file (with the import
     // dialog when interactive). Returns at once; the file is read in a worker
     // and loadFinished() follows (failures are reported then).
     void openPath(const QString& path);
     void openProject(const QString& path);
+    // The same for a project held in memory (`project`, e.g. recovered edits;
+    // null: read `path`), reading datasets listed in `moved` from those files.
+    // `adopted` runs once the document holds it.
+    void openProjectFrom(const QString& path, std::shared_ptr<const Project> project, const DataLocations& moved,
+                         std::function<void()> adopted = {});
+    // Asked when a project's data file is missing: the dataset id, the path the
+    // project records and the file looked for; returns the chosen file (empty:
+    // cancel). Interactive windows ask with a file chooser (shell/locate_data).
+    using DataLocator = std::function<QString(const QString& dataset, const QString& recorded, const QString& file)>;
+    void setDataLocator(DataLocator locator) { locator_ = std::move(locator); }
     // Reads a data file with these options (no dialog) and adds it as a
     // dataset; asynchronous like openProject().
     void importData(const QString& path, const CsvOptions& options);
@@ -70,6 +84,8 @@ public:
     // shown in dialogs, and no dialog asks anything.
     void setInteractive(bool on) { interactive_ = on; }
     QString lastMessage() const { return lastMessage_; }
+    // Tells the user (a dialog when interactive) and records it as lastMessage().
+    void report(const QString& title, const QString& text, bool warning = true);
 
 Q_SIGNALS:
     void messageReported(const QString& title, const QString& text);
@@ -84,7 +100,6 @@ protected:
 
 private:
     void buildMenus();
-    void report(const QString& title, const QString& text, bool warning = true);
     // A message box opened over the window (never run in a loop of its own); deletes itself.
     QMessageBox* showMessageBox(int icon, const QString& title, const QString& text);
     // Runs `work` in a BackgroundJob with progress (and a progress dialog
@@ -92,6 +107,9 @@ private:
     void startLoad(const QString& path, const QString& text, BackgroundJob::Work work,
                    std::function<LoadResult(bool cancelled)> done);
     LoadResult adoptProject(const QString& path, LoadOutcome& outcome, bool cancelled);
+    // A data file was missing: asks for it and opens again with it (true), or
+    // leaves things as they are (false: cancelled, or nobody to ask).
+    bool locateMissing(const QString& path, const LoadOutcome& outcome);
     LoadResult addImported(const QString& path, const CsvOptions& options, const LoadOutcome& outcome, bool cancelled);
     // Asks whether to save unsaved changes. Like the file choosers, this is
     // a question run modally (a loop of its own): its answer decides the
@@ -116,6 +134,8 @@ private:
     QLabel* welcome_;
     DatasetPage* datasetPage_;
     AnalysisPage* analysisPage_;
+    RecoveryStore* recovery_;
+    DataLocator locator_;
     QMenu* recentMenu_ = nullptr;
     bool interactive_ = true;
     QString lastMessage_;
