@@ -172,7 +172,9 @@ bool drive_project(StallMeter& meter, MainWindow& w, const QString& path, const 
                    const std::vector<moderato::SeKind>& refits) {
     w.analysisPage()->showSection(AnalysisPage::Probe);
     ResultCounter results(w, id);
-    if (!run_phase(meter, "open " + tag, [&] { w.openProject(path); }, [&] { return idle(w, id); })) return false;
+    if (!run_phase(
+            meter, "open " + tag, [&] { w.openProject(path); }, [&] { return idle(w, id); }))
+        return false;
     const int before = results.count;
     std::size_t next = 0;
     const auto refit_done = [&] {
@@ -181,7 +183,9 @@ bool drive_project(StallMeter& meter, MainWindow& w, const QString& path, const 
         set_se(w, id, refits[next++]);  // the next change, as the user's next click
         return false;
     };
-    if (!run_phase(meter, "refit " + tag, [&] { set_se(w, id, refits[next++]); }, refit_done)) return false;
+    if (!run_phase(
+            meter, "refit " + tag, [&] { set_se(w, id, refits[next++]); }, refit_done))
+        return false;
     return run_phase(
         meter, "checks " + tag, [&] { w.analysisPage()->showSection(AnalysisPage::Checks); },
         [&] { return checks_idle(w); });
@@ -211,7 +215,8 @@ bool drive_bootstrap(StallMeter& meter, const std::string& csv, int replicates) 
 }
 
 void print_summary(const StallMeter& meter, std::FILE* json) {
-    std::printf("| phase | ticks | median (ms) | p90 | p99 | max | > 50 ms |\n| --- | --- | --- | --- | --- | --- | --- |\n");
+    std::printf(
+        "| phase | ticks | median (ms) | p90 | p99 | max | > 50 ms |\n| --- | --- | --- | --- | --- | --- | --- |\n");
     std::vector<double> all;
     if (json) std::fprintf(json, "{\"tick_ms\": %d, \"phases\": [\n", kTickMs);
     const auto row = [&](const std::string& name, const Summary& s, bool last) {
@@ -232,7 +237,9 @@ void print_summary(const StallMeter& meter, std::FILE* json) {
     row("all", s, true);
     std::printf("\ngoal: longest stall <= 50 ms: %s (max %.1f ms, %zu ticks above 50 ms)\n",
                 s.max <= 50.0 ? "met" : "MISSED", s.max, s.over50);
-    if (json) std::fprintf(json, "], \"max_ms\": %.3f, \"goal_ms\": 50, \"met\": %s}\n", s.max, s.max <= 50 ? "true" : "false");
+    if (json)
+        std::fprintf(json, "], \"max_ms\": %.3f, \"goal_ms\": 50, \"met\": %s}\n", s.max,
+                     s.max <= 50 ? "true" : "false");
 }
 
 struct Options {
@@ -291,11 +298,12 @@ int main(int argc, char** argv) {
     const std::string big = write_project(o.dir, "big", o.rows);
     const std::string mid = write_project(o.dir, "mid", o.mid_rows);
     write_project(o.dir, "boot", o.boot_rows);
-    std::printf("moderato_bench_ui_stall: %llu / %llu rows (fits), %llu rows × %d replicates (bootstrap); "
-                "%u hardware threads; platform %s\n\n",
-                static_cast<unsigned long long>(o.rows), static_cast<unsigned long long>(o.mid_rows),
-                static_cast<unsigned long long>(o.boot_rows), o.replicates, std::thread::hardware_concurrency(),
-                qgetenv("QT_QPA_PLATFORM").constData());
+    std::printf(
+        "moderato_bench_ui_stall: %llu / %llu rows (fits), %llu rows × %d replicates (bootstrap); "
+        "%u hardware threads; platform %s\n\n",
+        static_cast<unsigned long long>(o.rows), static_cast<unsigned long long>(o.mid_rows),
+        static_cast<unsigned long long>(o.boot_rows), o.replicates, std::thread::hardware_concurrency(),
+        qgetenv("QT_QPA_PLATFORM").constData());
 
     StallMeter meter;
     bool ok = true;
@@ -309,8 +317,7 @@ int main(int argc, char** argv) {
         using moderato::SeKind;
         ok = drive_project(meter, w, QString::fromStdString(big), id, "big", {SeKind::HC1}) &&
              drive_bootstrap(meter, (fs::path(o.dir) / "boot.csv").string(), o.replicates) &&
-             drive_project(meter, w, QString::fromStdString(mid), id, "mid",
-                           {SeKind::HC1, SeKind::HC2, SeKind::HC3});
+             drive_project(meter, w, QString::fromStdString(mid), id, "mid", {SeKind::HC1, SeKind::HC2, SeKind::HC3});
         if (!w.runner()->error(id).isEmpty()) std::fprintf(stderr, "%s\n", qPrintable(w.runner()->error(id)));
     }
     std::FILE* json = o.json.empty() ? nullptr : std::fopen(o.json.c_str(), "w");

@@ -1,5 +1,6 @@
-// Work in a worker never shows an outdated answer. The analysis runner and
-// the Checks section compute in a worker (their thresholds set to 0 here, so
+// Work in a worker never shows an outdated answer. The analysis runner, the
+// Probe section and the Checks section compute in a worker (their
+// thresholds set to 0 here, so
 // the small sample projects take the path that big data take); when the user
 // changes the model while a worker runs, the old worker's result is dropped
 // and never reaches the screen, and Cancel (the button, clicked with the
@@ -16,6 +17,7 @@
 #include <QSignalSpy>
 #include <QTest>
 #include <QThreadPool>
+#include <QTimer>
 #include <vector>
 
 #include "model/analysis_runner.hpp"
@@ -23,6 +25,7 @@
 #include "moderato/estimation/diagnostics.hpp"
 #include "sample_window.hpp"
 #include "sections/checks_section.hpp"
+#include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
 
 using namespace moderato;
@@ -166,4 +169,34 @@ TEST(StaleResults, CancellingTheChecksShowsNothingOldAndComputeAgainWorks) {
     ASSERT_TRUE(checks->shownDiagnostics());
     EXPECT_EQ(checks->shownDiagnostics()->n, static_cast<std::size_t>(win.run()->design.X.rows()));
     EXPECT_FALSE(cancel->isVisible());
+}
+
+TEST(StaleResults, TheProbePlotsFollowTheNewestRunOnly) {
+    test::SampleWindow win(test::sampleProject(QStringLiteral("orchard-nitrogen")));
+    AnalysisPage* page = win.w.analysisPage();
+    ProbeSection* probe = page->probe();
+    page->setBackgroundThreshold(0);  // the Probe section prepares its engine in a worker
+    const auto first = win.run();
+    ASSERT_TRUE(first);
+    ASSERT_EQ(&probe->engine().run(), first.get());
+    std::vector<const AnalysisRun*> built;  // the run of the engine after each preparation ended
+    QObject::connect(probe, &ProbeSection::preparingChanged, probe, [&](bool preparing) {
+        if (!preparing) QTimer::singleShot(0, probe, [&] { built.push_back(&probe->engine().run()); });
+    });
+    // Two new fits (on this thread) in one turn: the first run's preparation is dropped.
+    setSe(win, first->spec.se == SeKind::HC1 ? SeKind::HC4 : SeKind::HC1);
+    const auto second = win.run();
+    ASSERT_TRUE(probe->isPreparing());
+    EXPECT_EQ(&probe->engine().run(), first.get());  // the earlier plots stay until the new ones are ready
+    setSe(win, first->spec.se == SeKind::HC2 ? SeKind::HC0 : SeKind::HC2);
+    const auto third = win.run();
+    ASSERT_NE(second, third);
+    ASSERT_TRUE(win.waitForRun());
+    drainWorkers();
+    EXPECT_EQ(&probe->engine().run(), third.get());
+    for (const AnalysisRun* r : built) EXPECT_NE(r, second.get()) << "an outdated run reached the plots";
+    // The readout shows the newest run's effect (core's probe, called directly on it).
+    const AnalysisRun direct = run_analysis(third->table, win.analysis());
+    ASSERT_FALSE(direct.probe->effects.empty());
+    EXPECT_EQ(probe->engine().probe().effects.front().std_error, direct.probe->effects.front().std_error);
 }
