@@ -1,7 +1,7 @@
 // Work in a worker never shows an outdated answer. The analysis runner, the
-// Probe section and the Checks section compute in a worker (their
-// thresholds set to 0 here, so
-// the small sample projects take the path that big data take); when the user
+// Probe section and the Checks section compute in a worker (their thresholds
+// set to 0 here, so the small sample projects take the path that big data
+// take); when the user
 // changes the model while a worker runs, the old worker's result is dropped
 // and never reaches the screen, and Cancel (the button, clicked with the
 // mouse) stops waiting and keeps what was on show.
