@@ -35,7 +35,7 @@
 #include <thread>
 #include <vector>
 
-#include "bench_data.hpp"
+#include "bench_project.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "moderato/project/analysis_run.hpp"
@@ -56,58 +56,6 @@ double median(std::vector<double> v) {
     std::sort(v.begin(), v.end());
     const std::size_t n = v.size();
     return n == 0 ? 0.0 : n % 2 ? v[n / 2] : 0.5 * (v[n / 2 - 1] + v[n / 2]);
-}
-
-void write_csv(const std::string& path, std::uint64_t rows) {
-    std::FILE* f = std::fopen(path.c_str(), "wb");
-    if (!f) throw std::runtime_error("cannot write " + path);
-    std::vector<char> buffer;
-    buffer.reserve(1 << 21);
-    const auto flush = [&] {
-        if (!buffer.empty() && std::fwrite(buffer.data(), 1, buffer.size(), f) != buffer.size())
-            throw std::runtime_error("cannot write " + path);
-        buffer.clear();
-    };
-    const auto number = [&](double v) {
-        char tmp[32];
-        const auto r = std::to_chars(tmp, tmp + sizeof tmp, v, std::chars_format::general, 9);
-        buffer.insert(buffer.end(), tmp, r.ptr);
-    };
-    const auto text = [&](const char* s) { buffer.insert(buffer.end(), s, s + std::strlen(s)); };
-    text("y,x1,x3,region,c1,c2\n");
-    moderato::bench::Generator gen;
-    for (std::uint64_t i = 0; i < rows; ++i) {
-        const moderato::bench::Row r = gen.next();
-        number(r.y), buffer.push_back(',');
-        number(r.x1), buffer.push_back(',');
-        number(r.x3), buffer.push_back(',');
-        text(moderato::bench::kRegions[static_cast<std::size_t>(r.region)]), buffer.push_back(',');
-        number(r.c[0]), buffer.push_back(',');
-        number(r.c[1]), buffer.push_back('\n');
-        if (buffer.size() > (1 << 20)) flush();
-    }
-    flush();
-    if (std::fclose(f) != 0) throw std::runtime_error("cannot write " + path);
-}
-
-moderato::Project make_project(const std::string& csv) {
-    moderato::Project p;
-    moderato::DataSource s;
-    s.id = "big";
-    s.path = fs::path(csv).filename().string();
-    s.sha256 = moderato::sha256_file(csv);
-    p.datasets.push_back(s);
-    moderato::Analysis a;
-    a.id = "big-model";
-    a.name = "x1 × x3";
-    a.dataset = "big";
-    a.roles.outcome = "y";
-    a.roles.focal = "x1";
-    a.roles.moderator = "x3";
-    a.roles.controls = {"c1", "c2", "region"};
-    a.se = moderato::SeKind::HC3;
-    p.analyses.push_back(a);
-    return p;
 }
 
 struct OpenTiming {
@@ -228,9 +176,9 @@ int main(int argc, char** argv) {
     const std::string project = (fs::path(dir) / "big.moderato").string();
 
     auto t0 = Clock::now();
-    write_csv(csv, rows);
+    moderato::bench::write_csv(csv, rows);
     const double t_write = seconds_since(t0);
-    const moderato::Project p = make_project(csv);
+    const moderato::Project p = moderato::bench::make_project(csv);
     moderato::write_project_file(p, project);
     const auto bytes = fs::file_size(csv);
     std::printf("moderato_bench_open: %llu rows, 6 columns, %.1f MB (10^6 bytes) written in %.2f s to %s\n",

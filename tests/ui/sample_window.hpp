@@ -17,15 +17,19 @@
 
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
+#include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
 #include "ui_test_util.hpp"
 
 namespace moderato::test {
 
-// Whether analysis `id`'s run has ended: none is running, and it left a result or an error.
+// Whether analysis `id`'s run has ended and the window is idle: no fit is
+// running, it left a result or an error, and the Probe section is not
+// preparing its plots in a worker (big data: ProbeSection::isPreparing).
 inline bool runEnded(const ui::MainWindow& w, const QString& id) {
-    return !w.runner()->busy(id) && (w.runner()->result(id) || !w.runner()->error(id).isEmpty());
+    return !w.runner()->busy(id) && !w.analysisPage()->probe()->isPreparing() &&
+           (w.runner()->result(id) || !w.runner()->error(id).isEmpty());
 }
 
 // Processes events until that holds or `ms` pass; whether it held.

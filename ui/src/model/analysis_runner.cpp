@@ -6,6 +6,7 @@
 #include <QtConcurrent/QtConcurrentRun>
 #include <vector>
 
+#include "common/inline_work.hpp"
 #include "model/project_document.hpp"
 #include "moderato/support/error.hpp"
 
@@ -40,7 +41,8 @@ Outcome compute(const Analysis& a, std::shared_ptr<const Table> table, std::shar
 
 }  // namespace
 
-AnalysisRunner::AnalysisRunner(ProjectDocument* doc, QObject* parent) : QObject(parent), doc_(doc) {
+AnalysisRunner::AnalysisRunner(ProjectDocument* doc, QObject* parent)
+    : QObject(parent), doc_(doc), threshold_(kInlineWorkCells) {
     connect(doc_, &ProjectDocument::analysisChanged, this, &AnalysisRunner::refresh);
     connect(doc_, &ProjectDocument::projectReset, this, [this] {
         // Workers of the old project run on (they own what they read), but
@@ -48,7 +50,7 @@ AnalysisRunner::AnalysisRunner(ProjectDocument* doc, QObject* parent) : QObject(
         ++epoch_;
         std::vector<QString> wasBusy;
         for (const auto& [id, e] : entries_)
-            if (e.running > 0) wasBusy.push_back(id);
+            if (e.awaited != 0) wasBusy.push_back(id);
         entries_.clear();
         for (const QString& id : wasBusy) Q_EMIT busyChanged(id, false);
         for (const auto& a : doc_->project().analyses) refresh(QString::fromStdString(a.id));
@@ -67,7 +69,23 @@ QString AnalysisRunner::error(const QString& id) const {
 
 bool AnalysisRunner::busy(const QString& id) const {
     const auto it = entries_.find(id);
-    return it != entries_.end() && it->second.running > 0;
+    return it != entries_.end() && it->second.awaited != 0;
+}
+
+bool AnalysisRunner::stopped(const QString& id) const {
+    const auto it = entries_.find(id);
+    return it != entries_.end() && it->second.stopped;
+}
+
+void AnalysisRunner::cancel(const QString& id) {
+    auto it = entries_.find(id);
+    if (it == entries_.end() || it->second.awaited == 0) return;
+    Entry& e = it->second;
+    e.stopped = true;
+    e.awaited = 0;
+    ++e.generation;  // the worker's result no longer matches any request
+    Q_EMIT busyChanged(id, false);
+    Q_EMIT resultChanged(id);  // the sections learn that the run on show stays
 }
 
 void AnalysisRunner::refresh(const QString& id) {
@@ -80,7 +98,7 @@ void AnalysisRunner::refresh(const QString& id) {
     const Analysis a = *found;
     auto table = doc_->table(a.dataset);
     Entry& e = entries_[id];
-    if (e.running > 0) {
+    if (e.awaited != 0) {
         // The newest worker already computes exactly this (e.g. the page asks
         // again right after the project was opened): wait for it. Otherwise its
         // result is outdated, even when this request equals the result on show.
@@ -89,7 +107,11 @@ void AnalysisRunner::refresh(const QString& id) {
             return;
         }
     } else if (e.valid && e.table == table && same_probe(e.settings, a)) {
-        e.settings = a;  // only view settings changed
+        e.settings = a;  // only view settings changed (or back to those on show after a cancel)
+        if (e.stopped) {
+            e.stopped = false;
+            Q_EMIT resultChanged(id);
+        }
         return;
     }
     std::shared_ptr<const AnalysisRun> cached;
@@ -98,15 +120,26 @@ void AnalysisRunner::refresh(const QString& id) {
     const double cells = table ? static_cast<double>(table->rows()) * static_cast<double>(table->cols()) : 0.0;
     if (cells < threshold_) {
         const Outcome o = compute(a, table, cached);
+        const bool wasBusy = e.awaited != 0;
+        e.awaited = 0;  // a worker still running computes outdated settings
+        if (wasBusy) Q_EMIT busyChanged(id, false);
         finish(id, generation, a, table, o.run, o.error);
         return;
     }
     // Big data: fit, or re-probe the cached fit (the probe scans the rows
     // too, e.g. averaging over the sample on the probability scale), in a worker.
+    startWorker(id, generation, a, std::move(table), std::move(cached));
+}
+
+void AnalysisRunner::startWorker(const QString& id, int generation, const Analysis& a,
+                                 std::shared_ptr<const Table> table, std::shared_ptr<const AnalysisRun> cached) {
+    Entry& e = entries_[id];
+    const bool wasBusy = e.awaited != 0;
     e.pending = a;
     e.pendingTable = table;
-    ++e.running;
-    if (e.running == 1) Q_EMIT busyChanged(id, true);
+    e.stopped = false;
+    e.awaited = generation;
+    if (!wasBusy) Q_EMIT busyChanged(id, true);
     auto* watcher = new QFutureWatcher<Outcome>(this);
     connect(watcher, &QFutureWatcher<Outcome>::finished, this,
             [this, watcher, id, generation, a, table, epoch = epoch_] {
@@ -114,8 +147,10 @@ void AnalysisRunner::refresh(const QString& id) {
                 watcher->deleteLater();
                 if (epoch != epoch_) return;  // computed for a project that is no longer open
                 auto it = entries_.find(id);
-                if (it == entries_.end()) return;
-                if (--it->second.running == 0) Q_EMIT busyChanged(id, false);
+                // Dropped: cancelled, or a newer request was made since.
+                if (it == entries_.end() || it->second.awaited != generation) return;
+                it->second.awaited = 0;
+                Q_EMIT busyChanged(id, false);
                 finish(id, generation, a, table, o.run, o.error);
             });
     watcher->setFuture(QtConcurrent::run([a, table, cached] { return compute(a, table, cached); }));
@@ -126,6 +161,7 @@ void AnalysisRunner::finish(const QString& id, int generation, const Analysis& a
     auto it = entries_.find(id);
     if (it == entries_.end() || it->second.generation != generation) return;  // a newer request is on its way
     Entry& e = it->second;
+    e.stopped = false;
     e.settings = a;
     e.table = std::move(table);
     e.run = std::move(run);

@@ -1,8 +1,12 @@
-// Keeps each analysis's computed run up to date with its settings. Small
-// data are fitted on the UI thread (a fit takes milliseconds); big data are
-// fitted (and re-probed) in a worker thread and the newest request wins; a
-// request equal to the one a worker is computing starts no second worker. A
-// change that touches only the probe reuses the cached design and fit.
+// Keeps each analysis's computed run up to date with its settings. Tiny
+// data (below kInlineWorkCells, common/inline_work.hpp) are fitted on the UI
+// thread (a fit takes a few milliseconds); anything bigger is fitted (and
+// re-probed) in a worker thread and the newest request wins: a result that
+// arrives for settings the user has since changed is dropped (generation
+// counters). A request equal to the one a worker is computing starts no
+// second worker. A change that touches only the probe reuses the cached
+// design and fit. cancel() stops waiting for a worker: its result is dropped
+// and the run on show stays that of the earlier settings.
 #pragma once
 
 #include <QObject>
@@ -26,6 +30,9 @@ public:
     // Why the latest run failed (empty when it did not).
     QString error(const QString& id) const;
     bool busy(const QString& id) const;
+    // Whether the newest request was cancelled: the result on show (if any)
+    // is that of earlier settings. The next change (or refresh) computes again.
+    bool stopped(const QString& id) const;
 
     // Rows times design columns above which fitting moves off the UI thread.
     void setBackgroundThreshold(double cells) { threshold_ = cells; }
@@ -35,6 +42,10 @@ public:
     // resultChanged(). With an infinite threshold every fit is computed here,
     // before refresh() returns (the headless renderer relies on that).
     void refresh(const QString& id);
+    // Drops the worker's coming result (the worker itself runs to its end:
+    // a fit cannot be interrupted, but it owns what it reads); busy() turns
+    // false at once.
+    void cancel(const QString& id);
 
 Q_SIGNALS:
     void resultChanged(const QString& id);  // result() or error() changed
@@ -46,18 +57,22 @@ private:
         std::shared_ptr<const Table> table;  // ... and on which table
         std::shared_ptr<const AnalysisRun> run;
         QString error;
-        bool valid = false;  // settings/table describe a finished computation
-        int generation = 0;  // newest request
-        int running = 0;     // workers in flight
-        Analysis pending;    // what the newest worker computes
+        bool valid = false;    // settings/table describe a finished computation
+        int generation = 0;    // newest request
+        int awaited = 0;       // generation of the worker whose result is awaited (0: none)
+        bool stopped = false;  // cancel() dropped the newest request
+        Analysis pending;      // what the newest worker computes
         std::shared_ptr<const Table> pendingTable;
     };
     void finish(const QString& id, int generation, const Analysis& a, std::shared_ptr<const Table> table,
                 std::shared_ptr<const AnalysisRun> run, const QString& error);
+    // Runs compute() in a worker for `generation`.
+    void startWorker(const QString& id, int generation, const Analysis& a, std::shared_ptr<const Table> table,
+                     std::shared_ptr<const AnalysisRun> cached);
 
     ProjectDocument* doc_;
     std::map<QString, Entry> entries_;
-    double threshold_ = 2e6;
+    double threshold_;
     int epoch_ = 0;  // counts projects opened: a worker's result is kept only in its own epoch
 };
 

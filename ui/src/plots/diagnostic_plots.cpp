@@ -205,18 +205,27 @@ const std::vector<std::size_t>& DiagnosticPlot::labelledObservations(int panel) 
     return panels_.at(static_cast<std::size_t>(panel)).labelled;
 }
 
-void DiagnosticPlot::setDiagnostics(std::shared_ptr<const Diagnostics> d, RowNumbers rows) {
+RowNumbers DiagnosticPlot::fitOrder(RowNumbers rows, std::size_t n) {
+    if (rows.number.size() == n) return rows;
+    // The order the rows were used in the fit.
+    rows.number.resize(n);
+    for (std::size_t i = 0; i < n; ++i) rows.number[i] = static_cast<double>(i + 1);
+    rows.word = tr("row");
+    rows.axisTitle = tr("row, in the order the fit used them");
+    return rows;
+}
+
+void DiagnosticPlot::setDiagnostics(std::shared_ptr<const Diagnostics> d, RowNumbers rows,
+                                    std::shared_ptr<const DiagnosticPoints> points) {
     d_ = std::move(d);
-    rows_ = std::move(rows);
-    if (d_ && rows_.number.size() != d_->n) {
-        // The order the rows were used in the fit.
-        rows_.number.resize(d_->n);
-        for (std::size_t i = 0; i < d_->n; ++i) rows_.number[i] = static_cast<double>(i + 1);
-        rows_.word = tr("row");
-        rows_.axisTitle = tr("row, in the order the fit used them");
-    }
+    rows_ = d_ ? fitOrder(std::move(rows), d_->n) : std::move(rows);
     highlighted_.clear();
-    computeCoordinates();
+    points_.reset();
+    if (d_)
+        points_ = points ? std::move(points)
+                         : std::make_shared<const DiagnosticPoints>(DiagnosticPlot::points(kind_, *d_, rows_));
+    for (std::size_t k = 0; k < panels_.size(); ++k)
+        panels_[k].pts = points_ && k < points_->panels.size() ? &points_->panels[k] : nullptr;
     redraw();
 }
 
@@ -231,16 +240,11 @@ void DiagnosticPlot::setGreyscale(bool on) {
     redraw();
 }
 
-void DiagnosticPlot::computeCoordinates() {
-    for (Panel& p : panels_) {
-        p.x.clear();
-        p.y.clear();
-        p.obs.clear();
-    }
-    if (!d_) return;
-    const Diagnostics& d = *d_;
+DiagnosticPoints DiagnosticPlot::points(Kind kind, const Diagnostics& d, const RowNumbers& rowNumbers) {
+    DiagnosticPoints out;
+    out.panels.resize(kind == Influence ? 2 : 1);
     // Each panel's x and y of every observation; points without both are left out.
-    auto take = [](Panel& p, const std::vector<double>& x, const std::vector<double>& y,
+    auto take = [](DiagnosticPoints::Panel& p, const std::vector<double>& x, const std::vector<double>& y,
                    const std::vector<std::size_t>& obs) {
         for (std::size_t k = 0; k < obs.size(); ++k)
             if (std::isfinite(x[k]) && std::isfinite(y[k])) {
@@ -252,21 +256,39 @@ void DiagnosticPlot::computeCoordinates() {
     std::vector<std::size_t> all(d.n);
     for (std::size_t i = 0; i < d.n; ++i) all[i] = i;
     auto values = [](const Eigen::VectorXd& v) { return std::vector<double>(v.data(), v.data() + v.size()); };
-    switch (kind_) {
-        case Residuals:
-            take(panels_[0], values(d.fitted), values(d.plot_residual()), all);
-            break;
-        case Quantiles: {
-            // The quantile plot sorts every row: once per diagnostics.
-            const QuantilePlot q = normal_quantile_plot(d.quantile_residual());
-            take(panels_[0], q.theoretical, q.observed, q.order);
+    switch (kind) {
+        case Residuals: {
+            take(out.panels[0], values(d.fitted), values(d.plot_residual()), all);
+            const int bins = static_cast<int>(std::clamp<std::size_t>(d.n / 10, 2, 20));
+            out.bins = binned_residuals(d.fitted, d.plot_residual(), bins);
             break;
         }
-        case Influence:
-            take(panels_[0], rows_.number, values(d.cooks_distance), all);
-            take(panels_[1], rows_.number, values(d.leverage), all);
+        case Quantiles: {
+            const QuantilePlot q = normal_quantile_plot(d.quantile_residual());
+            take(out.panels[0], q.theoretical, q.observed, q.order);
             break;
+        }
+        case Influence: {
+            const RowNumbers rows = fitOrder(rowNumbers, d.n);
+            take(out.panels[0], rows.number, values(d.cooks_distance), all);
+            take(out.panels[1], rows.number, values(d.leverage), all);
+            break;
+        }
     }
+    std::vector<char> flagged(d.n, 0);
+    for (const auto& r : d.flagged) flagged[r.observation] = 1;
+    for (DiagnosticPoints::Panel& p : out.panels) {
+        p.xs.assign(d.n, NAN);
+        p.ys.assign(d.n, NAN);
+        for (std::size_t k = 0; k < p.obs.size(); ++k) {
+            p.xs[p.obs[k]] = p.x[k];
+            p.ys[p.obs[k]] = p.y[k];
+        }
+        p.keep = thinScatter(p.x, p.y, kThinAbove, 600, 400, [&](std::size_t k) { return flagged[p.obs[k]] != 0; });
+        // In the order QCPGraph keeps its data (by x), so it need not sort them.
+        std::stable_sort(p.keep.begin(), p.keep.end(), [&](std::size_t a, std::size_t b) { return p.x[a] < p.x[b]; });
+    }
+    return out;
 }
 
 void DiagnosticPlot::clearPanels() {
@@ -279,8 +301,6 @@ void DiagnosticPlot::clearPanels() {
         p.drawn.clear();
         p.drawnFlagged.clear();
         p.labelled.clear();
-        p.xs.clear();
-        p.ys.clear();
         p.rule = NAN;
         p.xlo = p.ylo = INFINITY;
         p.xhi = p.yhi = -INFINITY;
@@ -292,7 +312,7 @@ void DiagnosticPlot::clearPanels() {
 
 void DiagnosticPlot::redraw() {
     clearPanels();
-    if (!d_) {
+    if (!d_ || !points_) {
         plot_->replot();
         return;
     }
@@ -317,49 +337,43 @@ void DiagnosticPlot::redraw() {
     plot_->replot();
 }
 
-void DiagnosticPlot::drawPoints(Panel& p, const std::vector<char>& flagged) {
-    const std::size_t n = d_->n;
-    p.xs.assign(n, NAN);
-    p.ys.assign(n, NAN);
-    for (std::size_t k = 0; k < p.obs.size(); ++k) {
-        p.xs[p.obs[k]] = p.x[k];
-        p.ys[p.obs[k]] = p.y[k];
-    }
-    const std::vector<std::size_t> keep =
-        thinScatter(p.x, p.y, kThinAbove, 600, 400, [&](std::size_t k) { return flagged[p.obs[k]] != 0; });
+void DiagnosticPlot::drawPoints(Panel& panel, const std::vector<char>& flagged) {
+    const DiagnosticPoints::Panel& p = *panel.pts;
+    const std::vector<std::size_t>& keep = p.keep;
     QVector<double> px, py;
     std::vector<std::size_t> flaggedAt;  // positions k of the flagged points
     for (std::size_t k : keep) {
-        p.xlo = std::min(p.xlo, p.x[k]);
-        p.xhi = std::max(p.xhi, p.x[k]);
-        p.ylo = std::min(p.ylo, p.y[k]);
-        p.yhi = std::max(p.yhi, p.y[k]);
+        panel.xlo = std::min(panel.xlo, p.x[k]);
+        panel.xhi = std::max(panel.xhi, p.x[k]);
+        panel.ylo = std::min(panel.ylo, p.y[k]);
+        panel.yhi = std::max(panel.yhi, p.y[k]);
         if (flagged[p.obs[k]]) {
             flaggedAt.push_back(k);
         } else {
             px << p.x[k];
             py << p.y[k];
-            p.drawn.push_back(p.obs[k]);
+            panel.drawn.push_back(p.obs[k]);
         }
     }
     // QCPGraph keeps its data sorted by x: sort the flagged points the same
     // way so a clicked point's index names its observation.
     std::stable_sort(flaggedAt.begin(), flaggedAt.end(), [&](std::size_t a, std::size_t b) { return p.x[a] < p.x[b]; });
-    for (std::size_t k : flaggedAt) p.drawnFlagged.push_back(p.obs[k]);
-    p.dense = keep.size() < p.x.size() || p.x.size() > 3000;
-    const QColor pointColour = estuary::withAlpha(shade(estuary::series(0), greyscale_), p.dense ? 0.35 : 0.55);
-    p.points = scatterGraph(p.rect, tr("rows"),
-                            QCPScatterStyle(QCPScatterStyle::ssDisc, pointColour, pointColour, p.dense ? 3 : 4.5));
-    p.points->setData(px, py);
-    p.points->setAdaptiveSampling(true);
-    if (&p != &panels_.front()) p.points->removeFromLegend();  // later panels repeat the legend of the first
+    for (std::size_t k : flaggedAt) panel.drawnFlagged.push_back(p.obs[k]);
+    panel.dense = keep.size() < p.x.size() || p.x.size() > 3000;
+    const QColor pointColour = estuary::withAlpha(shade(estuary::series(0), greyscale_), panel.dense ? 0.35 : 0.55);
+    panel.points =
+        scatterGraph(panel.rect, tr("rows"),
+                     QCPScatterStyle(QCPScatterStyle::ssDisc, pointColour, pointColour, panel.dense ? 3 : 4.5));
+    panel.points->setData(px, py, true);  // sorted by x in points()
+    panel.points->setAdaptiveSampling(true);
+    if (&panel != &panels_.front()) panel.points->removeFromLegend();  // later panels repeat the legend of the first
 }
 
 void DiagnosticPlot::drawFlagged(Panel& p) {
     QVector<double> fx, fy;
     for (std::size_t o : p.drawnFlagged) {
-        fx << p.xs[o];
-        fy << p.ys[o];
+        fx << p.pts->xs[o];
+        fy << p.pts->ys[o];
     }
     const QColor flagColour = shade(estuary::series(1), greyscale_);
     p.flagged = scatterGraph(p.rect, tr("flagged rows (any rule)"),
@@ -383,9 +397,9 @@ void DiagnosticPlot::drawHighlight(Panel& p) {
     if (!p.highlight) return;
     QVector<double> hx, hy;
     for (std::size_t o : highlighted_)
-        if (o < p.xs.size() && std::isfinite(p.xs[o]) && std::isfinite(p.ys[o])) {
-            hx << p.xs[o];
-            hy << p.ys[o];
+        if (p.pts && o < p.pts->xs.size() && std::isfinite(p.pts->xs[o]) && std::isfinite(p.pts->ys[o])) {
+            hx << p.pts->xs[o];
+            hy << p.pts->ys[o];
         }
     p.highlight->setData(hx, hy);  // sorts by x
 }
@@ -410,8 +424,7 @@ void DiagnosticPlot::decorateResiduals() {
 
     // The mean residual in bins of the fitted value, each with the interval
     // of its mean: where an interval misses zero, the model misses a pattern.
-    const int bins = static_cast<int>(std::clamp<std::size_t>(d.n / 10, 2, 20));
-    const BinnedResiduals b = binned_residuals(d.fitted, d.plot_residual(), bins);
+    const BinnedResiduals& b = *points_->bins;
     QVector<double> key, mean, below, above;
     for (std::size_t g = 0; g < b.count.size(); ++g) {
         if (!std::isfinite(b.residual_lower[g]) || !std::isfinite(b.residual_upper[g])) continue;  // one row

@@ -19,6 +19,7 @@
 #include <QWidget>
 #include <cmath>
 #include <memory>
+#include <optional>
 #include <vector>
 
 #include "moderato/estimation/diagnostics.hpp"
@@ -43,6 +44,21 @@ struct RowNumbers {
     QString axisTitle;           // "line of plots.csv"
 };
 
+// A plot's points, computed from the diagnostics alone: each panel's
+// coordinates (the quantile plot sorts every row), the points kept by
+// thinning, the coordinates by observation, and the residual plot's bins.
+// Pure data, so the Checks section computes them in its worker.
+struct DiagnosticPoints {
+    struct Panel {
+        std::vector<double> x, y;       // the panel's points, in the panel's order ...
+        std::vector<std::size_t> obs;   // ... and the observation of each
+        std::vector<std::size_t> keep;  // positions left after thinning (flagged rows always kept)
+        std::vector<double> xs, ys;     // coordinates by observation (NaN if not drawn)
+    };
+    std::vector<Panel> panels;
+    std::optional<BinnedResiduals> bins;  // the residual plot's bins
+};
+
 class DiagnosticPlot : public QWidget, public FigureSource {
     Q_OBJECT
 public:
@@ -50,7 +66,11 @@ public:
     explicit DiagnosticPlot(Kind kind, QWidget* parent = nullptr);
 
     // nullptr clears the plot. `rows` numbers the rows on the influence plot.
-    void setDiagnostics(std::shared_ptr<const Diagnostics> d, RowNumbers rows = {});
+    // `points`: points(kind(), *d, rows) when already computed (else computed here).
+    void setDiagnostics(std::shared_ptr<const Diagnostics> d, RowNumbers rows = {},
+                        std::shared_ptr<const DiagnosticPoints> points = nullptr);
+    // The points of a plot of this kind (safe to call in a worker).
+    static DiagnosticPoints points(Kind kind, const Diagnostics& d, const RowNumbers& rows);
     // Rows (observation indices) to ring, e.g. the ones selected in the list.
     void setHighlighted(const std::vector<std::size_t>& observations);
 
@@ -96,10 +116,8 @@ private:
     // the highlighted ones.
     struct Panel {
         QCPAxisRect* rect = nullptr;
-        QCPTextElement* caption = nullptr;  // over the panel (influence plot)
-        std::vector<double> x, y;           // the panel's points, in the panel's order ...
-        std::vector<std::size_t> obs;       // ... and the observation of each
-        std::vector<double> xs, ys;         // coordinates by observation (NaN if not drawn)
+        QCPTextElement* caption = nullptr;             // over the panel (influence plot)
+        const DiagnosticPoints::Panel* pts = nullptr;  // its points (in points_)
         std::vector<std::size_t> drawn, drawnFlagged, labelled;
         QCPGraph* points = nullptr;
         QCPGraph* flagged = nullptr;
@@ -111,8 +129,8 @@ private:
 
     void setUpLayout();
     void setPanelCount(int count);
-    // The coordinates of every observation, once per diagnostics.
-    void computeCoordinates();
+    // Numbers the rows 1, 2, ... in the fit's order when `rows` does not number them.
+    static RowNumbers fitOrder(RowNumbers rows, std::size_t n);
     void redraw();
     void clearPanels();
     // The points of a panel (thinned; flagged rows kept apart for drawFlagged),
@@ -133,6 +151,7 @@ private:
     QCustomPlot* plot_;
     QCPTextElement* title_ = nullptr;
     std::shared_ptr<const Diagnostics> d_;
+    std::shared_ptr<const DiagnosticPoints> points_;
     RowNumbers rows_;
     std::vector<Panel> panels_;
     std::vector<std::size_t> highlighted_;

@@ -104,7 +104,7 @@ QString SurfacePlot::subtitle() const {
     return what + tr("; other predictors at their means or reference levels");
 }
 
-void SurfacePlot::setRun(const Analysis& analysis, const AnalysisRun& run) {
+void SurfacePlot::setRun(const Analysis& analysis, const AnalysisRun& run, const DataRegion* region) {
     if (!run.surface) {
         clear();
         return;
@@ -115,7 +115,7 @@ void SurfacePlot::setRun(const Analysis& analysis, const AnalysisRun& run) {
     values_ = probability_ ? surface_probabilities(*grid_) : grid_->predicted;
     outcome_ = QString::fromStdString(analysis.roles.outcome);
     try {
-        region_ = data_region(run.design, grid_->x, grid_->z);
+        region_ = region ? *region : data_region(run.design, grid_->x, grid_->z);
     } catch (const InputError&) {
         region_ = {};
     }

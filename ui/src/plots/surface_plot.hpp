@@ -26,7 +26,8 @@ class SurfacePlot : public QWidget, public FigureSource {
 public:
     explicit SurfacePlot(QWidget* parent = nullptr);
     // Draws run.surface (nothing when the run has none).
-    void setRun(const Analysis& analysis, const AnalysisRun& run);
+    // `region`: the run's data region when already computed (ProbeExtras).
+    void setRun(const Analysis& analysis, const AnalysisRun& run, const DataRegion* region = nullptr);
     void clear();
 
     QString figureName() const override { return tr("Surface plot"); }

@@ -3,10 +3,13 @@
 #include <algorithm>
 #include <cmath>
 
+#include "moderato/support/error.hpp"
+
 namespace moderato::ui {
 
-ProbeEngine::ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis& analysis)
-    : run_(std::move(run)), analysis_(analysis) {
+ProbeEngine::ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis& analysis,
+                         std::shared_ptr<const ProbeExtras> extras)
+    : run_(std::move(run)), analysis_(analysis), extras_(std::move(extras)) {
     if (!valid()) return;
     const Design& d = run_->design;
     const ProbeResult& p = probe();
@@ -135,7 +138,22 @@ const SignificanceRegions* ProbeEngine::regions(bool simultaneous) const {
     return nullptr;
 }
 
+void ProbeEngine::prepareExtras() {
+    if (!valid() || extras_) return;
+    auto out = std::make_shared<ProbeExtras>();
+    out->rug = rug(kRugPoints);
+    if (run_->surface) {
+        try {
+            out->region = data_region(run_->design, run_->surface->x, run_->surface->z);
+        } catch (const InputError&) {
+            out->region = DataRegion{};
+        }
+    }
+    extras_ = std::move(out);
+}
+
 std::vector<double> ProbeEngine::rug(std::size_t max) const {
+    if (extras_ && max == kRugPoints) return extras_->rug;
     std::vector<double> v = moderatorValues_;
     std::sort(v.begin(), v.end());
     v.erase(std::unique(v.begin(), v.end()), v.end());

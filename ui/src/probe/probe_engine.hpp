@@ -12,15 +12,31 @@
 
 #include "moderato/probing/probe_curves.hpp"
 #include "moderato/probing/response_scale.hpp"
+#include "moderato/probing/surface_view.hpp"
 #include "moderato/project/analysis_run.hpp"
 
 namespace moderato::ui {
 
+// What the plots need of a run beyond the probe itself that scans every row
+// (a sort of the moderator's values, a convex hull): computed once per run,
+// in a worker for big data (ProbeSection), and handed to the engine.
+struct ProbeExtras {
+    std::vector<double> rug;           // rug(kRugPoints)
+    std::optional<DataRegion> region;  // the Surface plot's data region (when the run has a surface)
+};
+
 class ProbeEngine {
 public:
     ProbeEngine() = default;
-    // `run` must hold a probe (Continuous or Groups kind).
-    ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis& analysis);
+    // `run` must hold a probe (Continuous or Groups kind). `extras`, when
+    // given, must be those of an engine of the same run (else what they hold
+    // is computed when asked for).
+    ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis& analysis,
+                std::shared_ptr<const ProbeExtras> extras = nullptr);
+    // Computes the extras now (an engine may be built and prepared in a
+    // worker: it reads only its run) and hands them on.
+    void prepareExtras();
+    std::shared_ptr<const ProbeExtras> extras() const { return extras_; }
 
     bool valid() const { return run_ && run_->probe; }
     const AnalysisRun& run() const { return *run_; }
@@ -76,7 +92,10 @@ public:
     const std::vector<int>& pointsGroup() const { return pointsGroup_; }
     // Distinct observed moderator values, at most `max` of them (evenly spaced
     // ranks of the sorted distinct values, so the rug keeps its shape).
-    std::vector<double> rug(std::size_t max = 2000) const;
+    std::vector<double> rug(std::size_t max = kRugPoints) const;
+    static constexpr std::size_t kRugPoints = 2000;
+    // The Surface plot's data region when the extras hold it (nullptr: compute it).
+    const DataRegion* surfaceRegion() const { return extras_ && extras_->region ? &*extras_->region : nullptr; }
 
     const ScaleRequest& scaleRequest() const { return request_; }
 
@@ -90,6 +109,7 @@ private:
     std::pair<double, double> axisRange_{0, 1};
     std::vector<double> pointsX_, pointsY_, moderatorValues_;
     std::vector<int> pointsGroup_;
+    std::shared_ptr<const ProbeExtras> extras_;
 };
 
 // Rows above which a probability-scale effect is recomputed on release

@@ -119,6 +119,7 @@ RenderReport renderProject(const RenderRequest& request) {
     // error) ready when it returns, so nothing ever waits for a worker here.
     runner.setBackgroundThreshold(std::numeric_limits<double>::infinity());
     AnalysisPage page(&doc, &runner);
+    page.setBackgroundThreshold(std::numeric_limits<double>::infinity());
     page.resize(1360, 860);
 
     const Project project = doc.project();

@@ -6,12 +6,15 @@
 #include <QHeaderView>
 #include <QItemSelectionModel>
 #include <QLabel>
+#include <QProgressBar>
 #include <QPushButton>
 #include <QTableView>
 #include <QVBoxLayout>
 #include <algorithm>
 #include <cmath>
 
+#include "common/background_job.hpp"
+#include "common/inline_work.hpp"
 #include "common/number_text.hpp"
 #include "model/project_document.hpp"
 #include "plots/diagnostic_plots.hpp"
@@ -21,7 +24,10 @@ namespace moderato::ui {
 
 ChecksSection::ChecksSection(ProjectDocument* doc, QWidget* parent)
     : AnalysisSection(doc, parent),
+      threshold_(kInlineWorkCells),
       note_(new QLabel(this)),
+      busy_(new QProgressBar(this)),
+      cancel_(new QPushButton(tr("Cancel"), this)),
       residuals_(new DiagnosticPlot(DiagnosticPlot::Residuals, this)),
       quantiles_(new DiagnosticPlot(DiagnosticPlot::Quantiles, this)),
       influence_(new DiagnosticPlot(DiagnosticPlot::Influence, this)),
@@ -35,7 +41,18 @@ ChecksSection::ChecksSection(ProjectDocument* doc, QWidget* parent)
     note_->setObjectName(QStringLiteral("checks-note"));
     note_->setWordWrap(true);
     note_->setTextInteractionFlags(Qt::TextSelectableByMouse);
-    layout->addWidget(note_);
+    auto* top = new QHBoxLayout;
+    top->addWidget(note_, 1);
+    busy_->setObjectName(QStringLiteral("checks-busy"));
+    busy_->setRange(0, 0);  // the diagnostics report no progress: an indicator that they run
+    busy_->setTextVisible(false);
+    busy_->setMaximumWidth(80);
+    busy_->hide();
+    top->addWidget(busy_);
+    cancel_->setObjectName(QStringLiteral("checks-cancel"));
+    cancel_->hide();
+    top->addWidget(cancel_);
+    layout->addLayout(top);
 
     auto* grid = new QGridLayout;
     grid->setSpacing(6);
@@ -78,6 +95,10 @@ ChecksSection::ChecksSection(ProjectDocument* doc, QWidget* parent)
 
     connect(list_->selectionModel(), &QItemSelectionModel::selectionChanged, this, [this] { selectionChanged(); });
     connect(show_, &QPushButton::clicked, this, &ChecksSection::emitSelectedRows);
+    connect(cancel_, &QPushButton::clicked, this, [this] {
+        if (job_) cancel();
+        else startWorker();  // "Compute again" after a cancelled pass
+    });
     connect(list_, &QTableView::doubleClicked, this, [this] { emitSelectedRows(); });
     for (DiagnosticPlot* p : {residuals_, quantiles_, influence_})
         connect(p, &DiagnosticPlot::observationClicked, this, &ChecksSection::selectObservation);
@@ -101,22 +122,23 @@ bool sameFit(const AnalysisRun& a, const AnalysisRun& b) {
 }  // namespace
 
 void ChecksSection::showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun> run, const QString& error) {
-    if (id == id_ && run == run_ && error == error_ && !dirty_ && (diag_ || !run)) return;
-    if (id == id_ && run && run_ && diag_ && !dirty_ && sameFit(*run, *run_)) {
-        run_ = std::move(run);  // a probe-only change: the checks stand
+    if (id == id_ && run == run_ && error == error_ && !dirty_ && (diag_ || job_ || !run)) return;
+    if (id == id_ && run && run_ && (diag_ || job_) && !dirty_ && sameFit(*run, *run_)) {
+        run_ = std::move(run);  // a probe-only change: the checks (or the pass computing them) stand
         return;
     }
+    dropWorker();  // its result would belong to the run no longer on show
     id_ = id;
     run_ = std::move(run);
     error_ = error;
     diag_.reset();
     dirty_ = true;
-    if (isVisible()) ensureComputed();
+    if (isVisible()) computeWhenDue();
 }
 
 void ChecksSection::showEvent(QShowEvent* event) {
     AnalysisSection::showEvent(event);
-    ensureComputed();
+    computeWhenDue();
 }
 
 std::shared_ptr<const Diagnostics> ChecksSection::diagnostics() {
@@ -124,7 +146,19 @@ std::shared_ptr<const Diagnostics> ChecksSection::diagnostics() {
     return diag_;
 }
 
+void ChecksSection::computeWhenDue() {
+    if (!dirty_ || job_) return;
+    const double cells =
+        run_ ? static_cast<double>(run_->design.X.rows()) * static_cast<double>(run_->design.X.cols()) : 0.0;
+    if (cells < threshold_) ensureComputed();
+    else startWorker();
+}
+
 void ChecksSection::ensureComputed() {
+    if (job_) {
+        dropWorker();
+        dirty_ = true;
+    }
     if (!dirty_) return;
     dirty_ = false;
     diag_.reset();
@@ -138,8 +172,80 @@ void ChecksSection::ensureComputed() {
     } else {
         problem = error_.isEmpty() ? tr("No fitted model yet.") : error_;
     }
+    showDiagnostics(problem);
+    Q_EMIT computed();
+}
+
+void ChecksSection::startWorker() {
+    dropWorker();
+    if (!run_) return;
+    dirty_ = false;
+    const int generation = ++generation_;
+    struct Outcome {
+        std::shared_ptr<const Diagnostics> diag;
+        QString problem;
+        std::vector<std::shared_ptr<const DiagnosticPoints>> points;  // residuals, quantiles, influence
+    };
+    auto outcome = std::make_shared<Outcome>();
+    job_ = new BackgroundJob(this);
+    connect(job_, &BackgroundJob::finished, this, [this, job = job_, generation, outcome](bool cancelled) {
+        job->deleteLater();
+        if (generation != generation_ || cancelled) return;  // dropped: a newer run, or cancelled
+        job_ = nullptr;
+        busy_->hide();
+        cancel_->hide();
+        diag_ = outcome->diag;
+        showDiagnostics(outcome->problem, outcome->points);
+        Q_EMIT computed();
+    });
+    diag_.reset();
+    showDiagnostics(QString());  // the checks of an earlier fit never stay on show under this note
+    busy_->show();
+    cancel_->setText(tr("Cancel"));
+    cancel_->setToolTip(tr("Stop computing the checks"));
+    cancel_->show();
+    note_->setText(
+        tr("Computing the checks of %1 rows…").arg(countText(static_cast<long long>(run_->design.X.rows()))));
+    job_->start([run = run_, outcome](const BackgroundJob::Progress&) {
+        try {
+            outcome->diag = std::make_shared<const Diagnostics>(moderato::diagnostics(run->design, run->fit));
+            const RowNumbers rows = rowNumbers(*run);
+            for (auto kind : {DiagnosticPlot::Residuals, DiagnosticPlot::Quantiles, DiagnosticPlot::Influence})
+                outcome->points.push_back(
+                    std::make_shared<const DiagnosticPoints>(DiagnosticPlot::points(kind, *outcome->diag, rows)));
+        } catch (const std::exception& e) {
+            outcome->diag.reset();
+            outcome->points.clear();
+            outcome->problem =
+                ChecksSection::tr("The checks could not be computed: %1").arg(QString::fromUtf8(e.what()));
+        }
+    });
+}
+
+void ChecksSection::dropWorker() {
+    if (!job_) return;
+    ++generation_;  // its result is dropped when it arrives
+    job_->cancel();
+    job_ = nullptr;
+    busy_->hide();
+    cancel_->hide();
+}
+
+void ChecksSection::cancel() {
+    if (!job_) return;
+    dropWorker();
+    dirty_ = true;  // still due: "Compute again", or the next time the section is shown
+    note_->setText(tr("The checks were cancelled."));
+    cancel_->setText(tr("Compute again"));
+    cancel_->setToolTip(tr("Compute the checks of this fit"));
+    cancel_->show();
+}
+
+void ChecksSection::showDiagnostics(const QString& problem,
+                                    const std::vector<std::shared_ptr<const DiagnosticPoints>>& points) {
     const RowNumbers rows = diag_ ? rowNumbers(*run_) : RowNumbers{};
-    for (DiagnosticPlot* p : {residuals_, quantiles_, influence_}) p->setDiagnostics(diag_, rows);
+    DiagnosticPlot* const plots[] = {residuals_, quantiles_, influence_};
+    for (std::size_t k = 0; k < 3; ++k) plots[k]->setDiagnostics(diag_, rows, k < points.size() ? points[k] : nullptr);
     model_->setDiagnostics(diag_, run_ ? run_->table : nullptr);
     list_->resizeColumnsToContents();
     show_->setEnabled(false);
@@ -152,7 +258,7 @@ void ChecksSection::ensureComputed() {
     rules_->setText(rulesText(*diag_));
 }
 
-RowNumbers ChecksSection::rowNumbers(const AnalysisRun& run) const {
+RowNumbers ChecksSection::rowNumbers(const AnalysisRun& run) {
     // As the flagged-rows list names them: the file line when the table
     // knows it, else the row of the dataset (1-based).
     RowNumbers r;

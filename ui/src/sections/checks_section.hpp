@@ -4,7 +4,10 @@
 // each exportable, beside the list of rows that common rules of thumb flag,
 // with their file lines. Selected rows can be shown in the dataset grid.
 // Core computes every number (moderato/estimation/diagnostics.hpp); this
-// section draws them and says in words what they show.
+// section draws them and says in words what they show. For more than
+// kInlineWorkCells (common/inline_work.hpp) rows × coefficients the
+// diagnostics are computed in a worker when the section is shown, with a
+// busy indicator and Cancel; a result for a run no longer on show is dropped.
 #pragma once
 
 #include <cstddef>
@@ -15,12 +18,15 @@
 #include "sections/analysis_section.hpp"
 
 class QLabel;
+class QProgressBar;
 class QPushButton;
 class QTableView;
 
 namespace moderato::ui {
 
+class BackgroundJob;
 class DiagnosticPlot;
+struct DiagnosticPoints;
 class FlaggedRowsModel;
 struct RowNumbers;
 
@@ -31,8 +37,17 @@ public:
     void showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun> run, const QString& error) override;
     QList<FigureSource*> figures() override;
 
-    // The diagnostics on show (computed on first need; nullptr without a run).
+    // The diagnostics on show (computed now, on this thread, when they are
+    // due and not yet there; nullptr without a run). Drops a worker's pass.
     std::shared_ptr<const Diagnostics> diagnostics();
+    // What is on show, without computing anything.
+    std::shared_ptr<const Diagnostics> shownDiagnostics() const { return diag_; }
+    // Whether a worker computes the diagnostics now, and its Cancel button
+    // (which, once a pass is cancelled, offers to compute them again).
+    bool isComputing() const { return job_ != nullptr; }
+    QPushButton* cancelButton() const { return cancel_; }
+    // Rows × coefficients from which the diagnostics are computed in a worker.
+    void setBackgroundThreshold(double cells) { threshold_ = cells; }
     DiagnosticPlot* residualPlot() const { return residuals_; }
     DiagnosticPlot* quantilePlot() const { return quantiles_; }
     DiagnosticPlot* influencePlot() const { return influence_; }
@@ -42,8 +57,12 @@ public:
     // Computes the diagnostics now (they are otherwise computed when the
     // section is first shown); for exporting its figures unseen.
     void ensureComputed();
+    // Stops a worker's pass: nothing changes on show but the note.
+    void cancel();
 
 Q_SIGNALS:
+    // A diagnostics pass ended and its result (or problem) is on show.
+    void computed();
     // The user asked to see these table rows (0-based) of a dataset in the grid.
     void rowsSelected(const QString& datasetId, const std::vector<std::size_t>& rows);
 
@@ -51,11 +70,19 @@ protected:
     void showEvent(QShowEvent* event) override;
 
 private:
+    // Computes on this thread when small, else starts a worker.
+    void computeWhenDue();
+    void startWorker();
+    void dropWorker();
+    // Shows diag_ (or `problem` without it) in the plots, the list and the
+    // notes; `points` (residuals, quantiles, influence) when computed in the worker.
+    void showDiagnostics(const QString& problem,
+                         const std::vector<std::shared_ptr<const DiagnosticPoints>>& points = {});
     void selectionChanged();
     void emitSelectedRows();
     void selectObservation(std::size_t observation);
     // How the reader finds each row of the run (file lines or dataset rows).
-    RowNumbers rowNumbers(const AnalysisRun& run) const;
+    static RowNumbers rowNumbers(const AnalysisRun& run);
     // What the plots show, and the rules that flag rows, in words.
     QString noteText(const Diagnostics& d) const;
     QString rulesText(const Diagnostics& d) const;
@@ -64,8 +91,13 @@ private:
     std::shared_ptr<const AnalysisRun> run_;
     std::shared_ptr<const Diagnostics> diag_;
     bool dirty_ = false;
+    BackgroundJob* job_ = nullptr;  // the worker's pass in progress
+    int generation_ = 0;            // counts passes: only the newest one's result is shown
+    double threshold_;
     QString error_;
     QLabel* note_;
+    QProgressBar* busy_;
+    QPushButton* cancel_;
     DiagnosticPlot* residuals_;
     DiagnosticPlot* quantiles_;
     DiagnosticPlot* influence_;

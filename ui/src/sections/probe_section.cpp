@@ -15,8 +15,10 @@
 #include <cmath>
 #include <optional>
 
+#include "common/background_job.hpp"
 #include "common/figure_caption.hpp"
 #include "common/held_value_text.hpp"
+#include "common/inline_work.hpp"
 #include "common/number_text.hpp"
 #include "model/project_document.hpp"
 #include "plots/cells_view.hpp"
@@ -54,6 +56,7 @@ bool sameNumber(double a, double b) { return a == b || (std::isnan(a) && std::is
 
 ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
     : AnalysisSection(doc, parent),
+      threshold_(kInlineWorkCells),
       pages_(new QStackedWidget(this)),
       message_(new QLabel(this)),
       band_(new QComboBox(this)),
@@ -296,11 +299,53 @@ QString ProbeSection::readoutText() const { return readout_->text(); }
 void ProbeSection::showAnalysis(const QString& id, std::shared_ptr<const AnalysisRun> run, const QString& error) {
     const Analysis* a = doc_->analysis(id);
     if (id == id_ && run == run_ && error == error_ && a && *a == shown_) return;
+    if (prepare_ && id == id_ && run == run_ && error == error_) return;  // being prepared already
     if (id != id_) surfaceToggle_->setChecked(false);
     id_ = id;
     run_ = std::move(run);
     error_ = error;
+    const double cells =
+        run_ ? static_cast<double>(run_->design.X.rows()) * static_cast<double>(run_->design.X.cols()) : 0.0;
+    if (a && run_ && run_->probe && run_->kind != ProbeKind::Cells && cells >= threshold_) {
+        startPrepare();  // rebuild() follows when the engine is ready
+        return;
+    }
+    dropPrepare();
     rebuild();
+}
+
+void ProbeSection::startPrepare() {
+    dropPrepare();
+    const int generation = ++prepareGeneration_;
+    auto out = std::make_shared<ProbeEngine>();
+    prepare_ = new BackgroundJob(this);
+    connect(prepare_, &BackgroundJob::finished, this, [this, job = prepare_, generation, out](bool cancelled) {
+        job->deleteLater();
+        if (generation != prepareGeneration_ || cancelled) return;  // dropped: a newer run is on its way
+        prepare_ = nullptr;
+        Q_EMIT preparingChanged(false);
+        if (out->valid() && &out->run() == run_.get()) prepared_ = out;  // else rebuild() builds it here
+        rebuild();
+    });
+    Q_EMIT preparingChanged(true);
+    prepare_->start([run = run_, a = *doc_->analysis(id_), out](const BackgroundJob::Progress&) {
+        try {
+            ProbeEngine engine(run, a);
+            engine.prepareExtras();
+            *out = std::move(engine);
+        } catch (const std::exception&) {
+            *out = ProbeEngine();  // rebuild() tries again on the UI thread and shows what fails
+        }
+    });
+}
+
+void ProbeSection::dropPrepare() {
+    prepared_.reset();
+    if (!prepare_) return;
+    ++prepareGeneration_;  // its engine is dropped when it arrives
+    prepare_->cancel();
+    prepare_ = nullptr;
+    Q_EMIT preparingChanged(false);
 }
 
 void ProbeSection::showMessage(const QString& text) {
@@ -334,7 +379,14 @@ void ProbeSection::rebuild() {
         return;
     }
     rebuilding_ = true;
-    engine_ = ProbeEngine(run_, *a);
+    if (prepared_ && &prepared_->run() == run_.get()) {
+        engine_ = std::move(*prepared_);  // built in a worker for this very run
+    } else {
+        // The same run again (a view setting changed): keep what was prepared for it.
+        auto extras = engine_.valid() && &engine_.run() == run_.get() ? engine_.extras() : nullptr;
+        engine_ = ProbeEngine(run_, *a, std::move(extras));
+    }
+    prepared_.reset();
     pages_->setCurrentIndex(ProbePage);
 
     const ProbeSettings& ps = a->probe;
@@ -357,7 +409,7 @@ void ProbeSection::rebuild() {
     const bool surfaceOk = run_->surface.has_value();
     surfaceToggle_->setVisible(surfaceOk);
     if (!surfaceOk) surfaceToggle_->setChecked(false);
-    if (surfaceOk) surface_->setRun(*a, *run_);
+    if (surfaceOk) surface_->setRun(*a, *run_, engine_.surfaceRegion());
     linesStack_->setCurrentIndex(surfaceToggle_->isChecked() ? 1 : 0);
     // One gap to shade: two groups, or the lines at any two values of a numeric moderator.
     differ_->setVisible(run_->probe->crossovers.size() == 1);

@@ -29,6 +29,7 @@ class QToolButton;
 
 namespace moderato::ui {
 
+class BackgroundJob;
 class CellsView;
 class EffectPlot;
 class HeldValueControl;
@@ -70,6 +71,12 @@ public:
     // The value the second moderator is held at (three-way models).
     HeldValueControl* heldValueControl() const { return held_; }
     const ProbeEngine& engine() const { return engine_; }
+    // Big runs (rows × design columns from this threshold, kInlineWorkCells
+    // by default) have their engine built and prepared (ProbeExtras) in a
+    // worker before the plots are redrawn; the plots of the previous run
+    // stay until then, and a preparation for a run no longer on show is dropped.
+    void setBackgroundThreshold(double cells) { threshold_ = cells; }
+    bool isPreparing() const { return prepare_ != nullptr; }
 
     // The moderator value under the slider (Groups: the group index).
     double currentModeratorValue() const { return current_; }
@@ -82,6 +89,9 @@ public:
     void setCurrentModeratorValue(double m);
     // Pins the current value (one undo step).
     void pinCurrentValue();
+
+Q_SIGNALS:
+    void preparingChanged(bool preparing);
 
 protected:
     // The subtitles' quieter text colour follows the palette (light or dark desktop).
@@ -97,6 +107,9 @@ private:
     void connectMoves();
     void connectSettings();
     void rebuild();
+    // The engine of a big run, in a worker; rebuild() follows.
+    void startPrepare();
+    void dropPrepare();
     void showMessage(const QString& text);
     // The Effect and Lines plots of the current probe: the effect curve (or
     // group effects), the lines with their points, the crossings, and where
@@ -134,6 +147,10 @@ private:
     std::shared_ptr<const AnalysisRun> run_;
     QString error_;
     ProbeEngine engine_;
+    std::shared_ptr<ProbeEngine> prepared_;  // built in a worker for run_, taken by rebuild()
+    BackgroundJob* prepare_ = nullptr;       // the preparation in progress
+    int prepareGeneration_ = 0;              // only the newest preparation is used
+    double threshold_;
     Analysis shown_;  // the settings the view was built from
     double current_ = 0;
     EffectPoint point_;

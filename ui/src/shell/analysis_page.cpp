@@ -3,6 +3,8 @@
 #include <QButtonGroup>
 #include <QHBoxLayout>
 #include <QLabel>
+#include <QProgressBar>
+#include <QPushButton>
 #include <QStackedWidget>
 #include <QToolButton>
 #include <QVBoxLayout>
@@ -23,6 +25,8 @@ AnalysisPage::AnalysisPage(ProjectDocument* doc, AnalysisRunner* runner, QWidget
       runner_(runner),
       title_(new QLabel(this)),
       status_(new QLabel(this)),
+      busy_(new QProgressBar(this)),
+      cancel_(new QPushButton(tr("Cancel"), this)),
       switcher_(new QButtonGroup(this)),
       stack_(new QStackedWidget(this)),
       specify_(new SpecifySection(doc, this)),
@@ -55,6 +59,16 @@ AnalysisPage::AnalysisPage(ProjectDocument* doc, AnalysisRunner* runner, QWidget
     header->addStretch(1);
     status_->setObjectName(QStringLiteral("analysis-status"));
     header->addWidget(status_);
+    busy_->setObjectName(QStringLiteral("analysis-busy"));
+    busy_->setRange(0, 0);  // a fit reports no progress: an indicator that it runs
+    busy_->setTextVisible(false);
+    busy_->setMaximumWidth(80);
+    busy_->hide();
+    header->addWidget(busy_);
+    cancel_->setObjectName(QStringLiteral("cancel-fit"));
+    cancel_->setToolTip(tr("Stop waiting for this fit; the results shown stay those of the earlier settings"));
+    cancel_->hide();
+    header->addWidget(cancel_);
     layout->addLayout(header);
     stack_->addWidget(specify_);
     stack_->addWidget(estimates_);
@@ -66,9 +80,11 @@ AnalysisPage::AnalysisPage(ProjectDocument* doc, AnalysisRunner* runner, QWidget
     connect(runner_, &AnalysisRunner::resultChanged, this, [this](const QString& id) {
         if (id == id_) refreshFromRunner(id);
     });
-    connect(runner_, &AnalysisRunner::busyChanged, this, [this](const QString& id, bool busy) {
-        if (id == id_) status_->setText(busy ? tr("Fitting…") : QString());
+    connect(runner_, &AnalysisRunner::busyChanged, this, [this](const QString& id) {
+        if (id == id_) showBusy();
     });
+    connect(cancel_, &QPushButton::clicked, this, [this] { runner_->cancel(id_); });
+    connect(probe_, &ProbeSection::preparingChanged, this, &AnalysisPage::showBusy);
     connect(doc_, &ProjectDocument::structureChanged, this, [this] {
         if (const Analysis* a = doc_->analysis(id_)) title_->setText(QString::fromStdString(a->name));
     });
@@ -86,8 +102,24 @@ void AnalysisPage::showAnalysis(const QString& id) {
 void AnalysisPage::refreshFromRunner(const QString& id) {
     const auto run = runner_->result(id);
     const QString error = runner_->error(id);
-    status_->setText(runner_->busy(id) ? tr("Fitting…") : QString());
+    showBusy();
     for (int s = Specify; s <= Memo; ++s) section(static_cast<Section>(s))->showAnalysis(id, run, error);
+}
+
+void AnalysisPage::setBackgroundThreshold(double cells) {
+    probe_->setBackgroundThreshold(cells);
+    checks_->setBackgroundThreshold(cells);
+}
+
+void AnalysisPage::showBusy() {
+    const bool busy = runner_->busy(id_);
+    busy_->setVisible(busy || probe_->isPreparing());
+    cancel_->setVisible(busy);
+    if (busy) status_->setText(tr("Fitting…"));
+    else if (probe_->isPreparing()) status_->setText(tr("Drawing…"));
+    else if (runner_->stopped(id_))
+        status_->setText(tr("Fit cancelled: the results shown are for the earlier settings"));
+    else status_->setText(QString());
 }
 
 void AnalysisPage::showSection(Section s) {

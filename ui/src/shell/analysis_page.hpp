@@ -1,6 +1,7 @@
 // The page of one analysis: a section switcher (Specify · Estimates · Probe ·
 // Checks · Memo) over the sections, a status line (fitting…, errors) and the
-// analysis's latest run handed to every section.
+// analysis's latest run handed to every section. While a fit runs in a
+// worker, a busy indicator and Cancel sit beside the status line.
 #pragma once
 
 #include <QWidget>
@@ -9,6 +10,8 @@
 
 class QButtonGroup;
 class QLabel;
+class QProgressBar;
+class QPushButton;
 class QStackedWidget;
 
 namespace moderato::ui {
@@ -37,6 +40,12 @@ public:
     ProbeSection* probe() const { return probe_; }
     ChecksSection* checks() const { return checks_; }
     MemoSection* memo() const { return memo_; }
+    // Rows × columns from which the sections prepare their views in a worker
+    // (ProbeSection, ChecksSection); infinite: everything on this thread.
+    void setBackgroundThreshold(double cells);
+    // The busy indicator and its Cancel button (shown while a fit runs in a worker).
+    QPushButton* cancelButton() const { return cancel_; }
+    QProgressBar* busyIndicator() const { return busy_; }
     // The figures of the section on screen.
     QList<FigureSource*> currentFigures() const;
 
@@ -45,12 +54,15 @@ Q_SIGNALS:
 
 private:
     void refreshFromRunner(const QString& id);
+    void showBusy();
 
     ProjectDocument* doc_;
     AnalysisRunner* runner_;
     QString id_;
     QLabel* title_;
     QLabel* status_;
+    QProgressBar* busy_;
+    QPushButton* cancel_;
     QButtonGroup* switcher_;
     QStackedWidget* stack_;
     SpecifySection* specify_;
