@@ -192,6 +192,43 @@ const std::vector<BadCase> kCases = {
      "moderato-cli: ok/exact_interaction.csv: column 'q' has a type override but is not a column of this "
      "file; columns are: y, x, z"},
 
+#ifdef MODERATO_RENDER_TESTS  // `render` exists only with the workbench's drawing code
+    // ---------------------------------------------- malformed project files (render)
+    // Each names the file, the place (line and column, or the JSON path) and
+    // what was expected; the render output folder is never made.
+    {"project_number_overflow",
+     {"render", "bad/project_number_overflow.moderato", "--out", "bad/never"},
+     "bad/project_number_overflow.moderato",
+     "moderato-cli: bad/project_number_overflow.moderato: line 8, column 30 (at analyses[0].probe.pinned[1]): the "
+     "number 1e999 is too large to hold (a number must lie within about ±1.8e308); the file was not changed"},
+    {"project_deep_nesting",
+     {"render", "bad/project_deep_nesting.moderato", "--out", "bad/never"},
+     "bad/project_deep_nesting.moderato",
+     "moderato-cli: bad/project_deep_nesting.moderato: line 8, column 81: lists and objects nest more than 64 levels "
+     "deep here, so it is not a Moderato project (which nests a few levels); the file was not changed"},
+    {"project_missing_token_number",
+     {"render", "bad/project_missing_token_number.moderato", "--out", "bad/never"},
+     "bad/project_missing_token_number.moderato",
+     "moderato-cli: bad/project_missing_token_number.moderato: datasets[0].import.missing_tokens[1]: expected text"},
+    {"project_nul_in_font",
+     {"render", "bad/project_nul_in_font.moderato", "--out", "bad/never"},
+     "bad/project_nul_in_font.moderato",
+     "moderato-cli: bad/project_nul_in_font.moderato: analyses[0].figure.font_family: contains a NUL character "
+     "(\\u0000), which no name or setting may hold"},
+    {"project_dpi_huge",
+     {"render", "bad/project_dpi_huge.moderato", "--out", "bad/never"},
+     "bad/project_dpi_huge.moderato",
+     "moderato-cli: bad/project_dpi_huge.moderato: analyses[0].figure.dpi: must lie between 72 and 1200"},
+    {"project_recipe_value_text",
+     {"render", "bad/project_recipe_value_text.moderato", "--out", "bad/never"},
+     "bad/project_recipe_value_text.moderato",
+     "moderato-cli: bad/project_recipe_value_text.moderato: derived_columns[0].value: expected a number"},
+    {"project_notes_not_text",
+     {"render", "bad/project_notes_not_text.moderato", "--out", "bad/never"},
+     "bad/project_notes_not_text.moderato",
+     "moderato-cli: bad/project_notes_not_text.moderato: analyses[0].memo_notes: expected text"},
+#endif
+
     // ------------------------------------------------------ malformed specifications
     {"unknown_se_kind",
      {"fit", "--data", "ok/exact_interaction.csv", "--outcome", "y", "--predictors", "x", "--se", "hc5"},

@@ -32,6 +32,7 @@
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reporting/analysis_tables.hpp"
+#include "moderato/reporting/json_writer.hpp"
 #include "moderato/reporting/memo.hpp"
 #include "moderato/reporting/table_export.hpp"
 #include "moderato/support/error.hpp"
@@ -793,4 +794,17 @@ TEST(AnalysisTables, MemoSentencesCiteTheTableStrings) {
             EXPECT_NE(memo.find(cited), std::string::npos) << cited << "\n" << memo;
         }
     }
+}
+
+TEST(JsonWriterText, BytesThatAreNotUtf8BecomeReplacementCharacters) {
+    // JSON text is UTF-8 (RFC 8259 §8.1): a Latin-1 file name given on the
+    // command line ("caf\xE9.csv") must not make the CLI's JSON unreadable. Each
+    // byte that does not start a valid sequence becomes U+FFFD (the Unicode
+    // replacement character, EF BF BD in UTF-8); valid text is unchanged.
+    EXPECT_EQ(moderato::JsonWriter::quote("caf\xE9.csv"), "\"caf\xEF\xBF\xBD.csv\"");
+    EXPECT_EQ(moderato::JsonWriter::quote("\xC3\xA9\xFF\x80"), "\"\xC3\xA9\xEF\xBF\xBD\xEF\xBF\xBD\"");
+    EXPECT_EQ(moderato::JsonWriter::quote("a\xE2\x82"), "\"a\xEF\xBF\xBD\xEF\xBF\xBD\"");  // cut-off sequence
+    const std::string odd = std::string("x\0y", 3) + "\xED\xA0\x80";                       // NUL, a lone surrogate
+    const auto parsed = nlohmann::json::parse(moderato::JsonWriter::quote(odd));
+    EXPECT_EQ(parsed.get<std::string>(), std::string("x\0y", 3) + "\xEF\xBF\xBD\xEF\xBF\xBD\xEF\xBF\xBD");
 }

@@ -29,31 +29,6 @@ bool zero_one(const Column& c) {
 
 bool grouping(const Column& c) { return c.kind == ColumnKind::Categorical || zero_one(c); }
 
-Column compute_recipe(const Table& t, const DerivedRecipe& r) {
-    const std::string what =
-        "derived column " + quoted(r.name) + " (" + to_string(r.kind) + " of " + quoted(r.source) + ")";
-    const Column* x = t.find(r.source);
-    if (!x) throw InputError(what + ": the column " + quoted(r.source) + " is not in " + t.source);
-    try {
-        if (r.kind == RecipeKind::CentreMean) return centre(*x, CentreAt::Mean, 0.0, r.name);
-        if (r.kind == RecipeKind::CentreMedian) return centre(*x, CentreAt::Median, 0.0, r.name);
-        if (r.kind == RecipeKind::CentreValue) return centre(*x, CentreAt::Value, r.value, r.name);
-        if (r.kind == RecipeKind::Standardise) return standardise(*x, r.name);
-        if (r.kind == RecipeKind::Log) return log_column(*x, t, r.name);
-        if (r.kind == RecipeKind::Log1p) return log1p_column(*x, t, r.name);
-        if (r.kind == RecipeKind::Square) return square(*x, r.name);
-        if (r.kind == RecipeKind::Dummy) return dummy(*x, r.level, r.name);
-        if (r.kind == RecipeKind::Product) {
-            const Column* y = t.find(r.other);
-            if (!y) throw InputError("the column " + quoted(r.other) + " is not in " + t.source);
-            return product(*x, *y, r.name);
-        }
-    } catch (const InputError& e) {
-        throw InputError(what + ": " + e.what());
-    }
-    throw InputError(what + ": unknown kind of derived column");
-}
-
 void require_column(const Table& t, const Analysis& a, const std::string& role, const std::string& column) {
     if (column.empty() || t.find(column)) return;
     throw InputError("analysis " + quoted(a.name) + ": the " + role + " column " + quoted(column) +
@@ -62,23 +37,6 @@ void require_column(const Table& t, const Analysis& a, const std::string& role, 
 }
 
 }  // namespace
-
-Table apply_recipes(const Table& base, const std::vector<DerivedRecipe>& recipes) {
-    Table t = base;
-    for (const auto& r : recipes) {
-        if (t.find(r.name))
-            throw InputError("derived column " + quoted(r.name) + ": " + t.source +
-                             " already has a column of that name; choose another name");
-        t.columns.push_back(compute_recipe(t, r));
-    }
-    return t;
-}
-
-std::shared_ptr<const Table> with_recipes(std::shared_ptr<const Table> base,
-                                          const std::vector<DerivedRecipe>& recipes) {
-    if (recipes.empty() || !base) return base;
-    return std::make_shared<const Table>(apply_recipes(*base, recipes));
-}
 
 ProbeKind probe_kind(const Table& t, const Analysis& a) {
     if (a.roles.outcome.empty()) throw InputError("analysis " + quoted(a.name) + ": choose an Outcome column");

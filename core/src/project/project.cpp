@@ -2,7 +2,6 @@
 #include "moderato/project/project.hpp"
 
 #include <algorithm>
-#include <cctype>
 #include <cmath>
 #include <filesystem>
 #include <nlohmann/json.hpp>
@@ -13,6 +12,7 @@
 #include "moderato/support/file_util.hpp"
 #include "moderato/support/report_text.hpp"
 #include "project/project_migration.hpp"
+#include "support/json_document.hpp"
 
 namespace moderato {
 
@@ -108,7 +108,15 @@ public:
             return fallback;
         }
         if (!it->is_string()) fail(where + "." + key, "expected text");
-        return it->get<std::string>();
+        return checked(it->get_ref<const std::string&>(), where + "." + key);
+    }
+
+    // Text without NUL characters: a name or setting holding one would be cut
+    // short by file paths and other programs.
+    const std::string& checked(const std::string& s, const std::string& where) const {
+        if (s.find('\0') != std::string::npos)
+            fail(where, "contains a NUL character (\\u0000), which no name or setting may hold");
+        return s;
     }
 
     double number(const json& parent, const char* key, const std::string& where, double fallback) const {
@@ -130,7 +138,8 @@ public:
         const json& list = array(parent, key, where);
         for (std::size_t i = 0; i < list.size(); ++i) {
             if (!list[i].is_string()) fail(where + "." + key + "[" + std::to_string(i) + "]", "expected text");
-            out.push_back(list[i].get<std::string>());
+            out.push_back(
+                checked(list[i].get_ref<const std::string&>(), where + "." + key + "[" + std::to_string(i) + "]"));
         }
         return out;
     }
@@ -182,8 +191,14 @@ CsvOptions import_from_json(const Reader& r, const json& j, const std::string& w
     o.header = r.boolean(j, "header", where, true);
     if (j.contains("missing_tokens")) o.missing_tokens = r.texts(j, "missing_tokens", where);
     o.decimal_comma = r.boolean(j, "decimal_comma", where, false);
+    // The same rules the CSV reader keeps, reported here with the project's path.
+    if (o.delimiter == '"' || o.delimiter == '\n' || o.delimiter == '\r')
+        r.fail(where + ".delimiter", "cannot be a quote or a line break; expected e.g. \",\", \";\" or a tab");
+    if (o.delimiter == ',' && o.decimal_comma)
+        r.fail(where + ".delimiter", "cannot be ',' when decimal_comma is true; expected e.g. \";\" or a tab");
     const json& kinds = r.object(j, "column_kinds", where, false);
     for (auto it = kinds.begin(); it != kinds.end(); ++it) {
+        r.checked(it.key(), where + ".column_kinds");
         if (!it->is_string() || (*it != "numeric" && *it != "categorical"))
             r.fail(where + ".column_kinds." + it.key(), "expected \"numeric\" or \"categorical\"");
         o.column_kinds[it.key()] = *it == "numeric" ? ColumnKind::Numeric : ColumnKind::Categorical;
@@ -198,23 +213,6 @@ json finite_only(const std::vector<double>& values) {
     for (const double v : values)
         if (std::isfinite(v)) out.push_back(v);
     return out;
-}
-
-// Line and column (1-based; the column counts characters, not bytes) of the
-// character at byte offset `at`.
-std::pair<std::size_t, std::size_t> line_and_column(const std::string& text, std::size_t at) {
-    at = std::min(at, text.size());
-    std::size_t line = 1, column = 1;
-    for (std::size_t i = 0; i < at; ++i) {
-        const auto c = static_cast<unsigned char>(text[i]);
-        if (c == '\n') {
-            ++line;
-            column = 1;
-        } else if ((c & 0xC0) != 0x80) {  // not a UTF-8 continuation byte
-            ++column;
-        }
-    }
-    return {line, column};
 }
 
 // ------------------------------------------------------------ writing
@@ -266,44 +264,10 @@ json analysis_to_json(const Analysis& a) {
 
 // ------------------------------------------------------------ reading
 
-// The message for a number the parser cannot hold as a double ("1e999"): the
-// parser names the number's text but not where it stands, so the first place
-// that text appears as a number gives the line and column.
-std::string too_large_number(const std::string& text, const std::string& name, const std::string& what) {
-    const auto open = what.find('\''), close = what.rfind('\'');
-    const std::string token = open != std::string::npos && close > open ? what.substr(open + 1, close - open - 1) : "";
-    std::size_t at = token.empty() ? std::string::npos : text.find(token);
-    const auto number_char = [](char c) {
-        return std::isdigit(static_cast<unsigned char>(c)) || c == '.' || c == '-' || c == '"';
-    };
-    while (at != std::string::npos && at > 0 && number_char(text[at - 1])) at = text.find(token, at + 1);
-    std::string where;
-    if (at != std::string::npos) {
-        const auto [line, column] = line_and_column(text, at);
-        where = ": line " + std::to_string(line) + ", column " + std::to_string(column);
-    }
-    return name + where + ": the number " + (token.empty() ? std::string("there") : token) +
-           " is too large to hold (a number must lie within about ±1.8e308); the file was not changed";
-}
-
-// The document, or InputError with the line and column where it stops being JSON.
+// The document, or InputError with the line, column and JSON path where it
+// stops being a JSON document we can hold.
 json parse_document(const std::string& text, const std::string& name) {
-    try {
-        return json::parse(text);
-    } catch (const json::parse_error& e) {
-        // e.byte counts the bytes read up to and including the offending one
-        // (one past the end for text that stops too early).
-        const auto [line, column] = line_and_column(text, e.byte > 0 ? e.byte - 1 : 0);
-        // The parser's own reason, without its prefix and its own position.
-        std::string reason = e.what();
-        const auto colon = reason.find(": ");
-        if (colon != std::string::npos && reason.find("parse error") != std::string::npos)
-            reason = reason.substr(colon + 2);
-        throw InputError(name + ": line " + std::to_string(line) + ", column " + std::to_string(column) +
-                         ": the file is not valid JSON, so it is not a Moderato project (" + reason + ")");
-    } catch (const json::out_of_range& e) {
-        throw InputError(too_large_number(text, name, e.what()));
-    }
+    return detail::parse_json_document(text, name, "a Moderato project");
 }
 
 // The schema version; InputError for a missing, malformed, negative or newer one.
@@ -545,7 +509,9 @@ std::string project_to_json(const Project& p) {
     for (const auto& f : p.figures)
         figures.push_back({{"id", f.id}, {"name", f.name}, {"analysis", f.analysis}, {"plot", to_string(f.plot)}});
     doc["figures"] = figures;
-    return doc.dump(2) + "\n";
+    // Text that is not UTF-8 (none should reach here: the CSV reader and the
+    // project reader refuse it) is written with U+FFFD rather than failing the save.
+    return doc.dump(2, ' ', false, json::error_handler_t::replace) + "\n";
 }
 
 Project project_from_json(const std::string& text, const std::string& name) {
@@ -570,7 +536,18 @@ Project project_from_json(const std::string& text, const std::string& name) {
     }
 }
 
-Project read_project_file(const std::string& path) { return project_from_json(read_file_bytes(path), path); }
+Project read_project_file(const std::string& path) {
+    // A project holds settings, never data: a file far larger than any
+    // project is refused before it is read into memory.
+    constexpr std::uintmax_t kMaxBytes = std::uintmax_t{64} << 20;
+    std::error_code ec;
+    const std::uintmax_t size = fs::file_size(path, ec);
+    if (!ec && size > kMaxBytes)
+        throw InputError(path + ": " + std::to_string(size >> 20) +
+                         " MB is too large for a Moderato project (at most 64 MB: a project holds settings, not "
+                         "data); the file was not changed");
+    return project_from_json(read_file_bytes(path), path);
+}
 
 void write_project_file(const Project& project, const std::string& path) {
     write_file_atomically(path, project_to_json(project));

@@ -3,6 +3,8 @@
 #include <cmath>
 #include <cstdio>
 
+#include "reading/csv_internal.hpp"
+
 namespace moderato {
 
 std::string JsonWriter::number(double v) {
@@ -13,7 +15,21 @@ std::string JsonWriter::number(double v) {
     return buf;
 }
 
-std::string JsonWriter::quote(const std::string& s) {
+std::string JsonWriter::quote(const std::string& text) {
+    // JSON text is UTF-8 (RFC 8259): a byte that does not start a valid UTF-8
+    // sequence (a file name in another encoding, say) is written as U+FFFD.
+    std::string s;
+    s.reserve(text.size());
+    for (const char* p = text.data(); p < text.data() + text.size();) {
+        const char* bad = csv_detail::find_invalid_utf8(p, text.data() + text.size());
+        if (!bad) {
+            s.append(p, text.data() + text.size());
+            break;
+        }
+        s.append(p, bad);
+        s += "\xEF\xBF\xBD";
+        p = bad + 1;
+    }
     std::string out;
     out.reserve(s.size() + 2);
     out += '"';

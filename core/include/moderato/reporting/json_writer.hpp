@@ -37,6 +37,7 @@ public:
     const std::string& str() const { return out_; }
 
     static std::string number(double v);  // "%.17g" or "null"
+    // A JSON string; bytes that are not UTF-8 are written as U+FFFD.
     static std::string quote(const std::string& s);
 
 private:
