@@ -31,6 +31,7 @@
 #include "model/project_document.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/support/error.hpp"
+#include "moderato/support/file_util.hpp"
 #include "moderato/support/sha256.hpp"
 #include "sections/checks_section.hpp"
 #include "sections/memo_section.hpp"
@@ -265,10 +266,15 @@ void MainWindow::openPath(const QString& path) {
 
 void MainWindow::openProject(const QString& path) {
     const std::string file = path.toStdString();
+    const std::string folder = QFileInfo(path).absolutePath().toStdString();
     auto outcome = std::make_shared<LoadOutcome>();
     startLoad(
         path, tr("Opening %1…").arg(QFileInfo(path).fileName()),
-        [outcome, file](const BackgroundJob::Progress& progress) {
+        [outcome, file, folder](const BackgroundJob::Progress& progress) {
+            // A save into this folder killed before its rename (a crash, a
+            // power cut) left its temporary file; its writer is gone, so the
+            // file goes. A live writer's file, and any other file, stays.
+            remove_stale_temp_files(folder);
             loadInto(*outcome, [&] {
                 outcome->project = std::make_shared<LoadedProject>(load_project(file, CsvProgress{progress}));
             });
