@@ -150,6 +150,7 @@ struct RunResult {
     bool ok = false;
     double seconds = 0;
     std::string why;
+    bool finishedFirst = false;  // a killed run had already ended by itself (status 0)
 };
 
 // Runs `run` to its end, or kills it `killAfter` seconds after its save began
@@ -159,11 +160,11 @@ RunResult run_save(const SaveRun& run, double killAfter, AtReady&& atReady, pid_
     RunResult r;
     Child child(run.argv, run.env, run.errLog, run.handshake);
     if (pidOut) *pidOut = child.pid();
-    if (child.pid() <= 0) return {false, 0, "cannot start " + run.argv[0]};
+    if (child.pid() <= 0) return {false, 0, "cannot start " + run.argv[0], false};
     constexpr int kTimeoutMs = 600000;
     if (run.handshake) {
         if (child.readLine(kTimeoutMs) != "ready")
-            return {false, 0, "the driver did not get ready (see " + run.errLog.string() + ")"};
+            return {false, 0, "the driver did not get ready (see " + run.errLog.string() + ")", false};
         atReady();
     }
     const auto start = std::chrono::steady_clock::now();
@@ -171,8 +172,15 @@ RunResult run_save(const SaveRun& run, double killAfter, AtReady&& atReady, pid_
     if (killAfter >= 0) {
         std::this_thread::sleep_until(start + std::chrono::duration<double>(killAfter));
         child.kill();
-        child.wait();
-        return {true, killAfter, ""};
+        const int status = child.wait();
+        // Killed by our SIGKILL, or ended well just before it: anything else (a crash) is a failure.
+        r.finishedFirst = WIFEXITED(status) && WEXITSTATUS(status) == 0;
+        r.ok = r.finishedFirst || (WIFSIGNALED(status) && WTERMSIG(status) == SIGKILL);
+        r.seconds = killAfter;
+        if (!r.ok)
+            r.why =
+                "the run ended by itself with status " + std::to_string(status) + " (see " + run.errLog.string() + ")";
+        return r;
     }
     const std::string done = run.handshake ? child.readLine(kTimeoutMs) : std::string("done");
     const int status = child.wait();
