@@ -8,16 +8,20 @@
 #include <poll.h>
 #include <signal.h>
 #include <spawn.h>
+#include <sys/inotify.h>
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <atomic>
 #include <chrono>
 #include <filesystem>
 #include <map>
+#include <optional>
 #include <random>
 #include <set>
 #include <string>
 #include <thread>
+#include <utility>
 #include <vector>
 
 #include "common/file_bytes.hpp"
@@ -155,9 +159,72 @@ struct RunResult {
 
 // Runs `run` to its end, or kills it `killAfter` seconds after its save began
 // (a negative value: never). `atReady` is called when a driver is ready, before it is told to save.
+// When temporary files exist during a run (Linux inotify on a folder and
+// the folders in it): each [created, renamed or removed] interval in seconds
+// from a start time, the moments at which a kill lands in the middle of a write.
+class WriteWindows {
+public:
+    explicit WriteWindows(const fs::path& folder) : fd_(::inotify_init1(IN_NONBLOCK | IN_CLOEXEC)) {
+        if (fd_ < 0) return;
+        ::inotify_add_watch(fd_, folder.c_str(), kMask);
+        for (const auto& e : fs::recursive_directory_iterator(folder))
+            if (e.is_directory()) ::inotify_add_watch(fd_, e.path().c_str(), kMask);
+        thread_ = std::thread([this] { watch(); });
+    }
+    ~WriteWindows() { stop(); }
+    WriteWindows(const WriteWindows&) = delete;
+    WriteWindows& operator=(const WriteWindows&) = delete;
+
+    void setStart(std::chrono::steady_clock::time_point t) { start_ = t.time_since_epoch().count(); }
+    // Stops watching; the intervals seen (each from the start time).
+    std::vector<std::pair<double, double>> stop() {
+        if (thread_.joinable()) {
+            done_ = true;
+            thread_.join();
+        }
+        if (fd_ >= 0) ::close(fd_);
+        fd_ = -1;
+        return windows_;
+    }
+
+private:
+    static constexpr std::uint32_t kMask = IN_CREATE | IN_MOVED_FROM | IN_DELETE;
+    void watch() {
+        alignas(inotify_event) char buf[65536];
+        std::map<std::string, double> open;  // temporary file -> when it was created
+        while (!done_) {
+            pollfd p{fd_, POLLIN, 0};
+            if (::poll(&p, 1, 5) <= 0) continue;
+            const ssize_t n = ::read(fd_, buf, sizeof buf);
+            const std::chrono::steady_clock::time_point start{std::chrono::steady_clock::duration(start_.load())};
+            const double now = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+            for (ssize_t i = 0; i < n;) {
+                const auto* ev = reinterpret_cast<const inotify_event*>(buf + i);
+                i += static_cast<ssize_t>(sizeof(inotify_event) + ev->len);
+                const std::string name = ev->len ? ev->name : "";
+                if (!temp_file_pid(name)) continue;
+                const std::string key = std::to_string(ev->wd) + "/" + name;
+                if (ev->mask & IN_CREATE) open[key] = now;
+                else if (open.count(key)) {
+                    windows_.emplace_back(open[key], now);
+                    open.erase(key);
+                }
+            }
+        }
+    }
+    int fd_;
+    std::thread thread_;
+    std::atomic<bool> done_{false};
+    std::atomic<std::chrono::steady_clock::rep> start_{std::chrono::steady_clock::now().time_since_epoch().count()};
+    std::vector<std::pair<double, double>> windows_;
+};
+
 template <class AtReady>
-RunResult run_save(const SaveRun& run, double killAfter, AtReady&& atReady, pid_t* pidOut = nullptr) {
+RunResult run_save(const SaveRun& run, double killAfter, AtReady&& atReady, pid_t* pidOut = nullptr,
+                   std::vector<std::pair<double, double>>* windows = nullptr) {
     RunResult r;
+    std::optional<WriteWindows> watcher;
+    if (windows) watcher.emplace(run.folder);
     Child child(run.argv, run.env, run.errLog, run.handshake);
     if (pidOut) *pidOut = child.pid();
     if (child.pid() <= 0) return {false, 0, "cannot start " + run.argv[0], false};
@@ -168,6 +235,7 @@ RunResult run_save(const SaveRun& run, double killAfter, AtReady&& atReady, pid_
         atReady();
     }
     const auto start = std::chrono::steady_clock::now();
+    if (watcher) watcher->setStart(start);
     if (run.handshake) child.send("go");
     if (killAfter >= 0) {
         std::this_thread::sleep_until(start + std::chrono::duration<double>(killAfter));
@@ -186,6 +254,7 @@ RunResult run_save(const SaveRun& run, double killAfter, AtReady&& atReady, pid_
     const int status = child.wait();
     r.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
     r.ok = done == "done" && WIFEXITED(status) && WEXITSTATUS(status) == 0;
+    if (watcher) *windows = watcher->stop();
     if (!r.ok)
         r.why = "the save did not finish (status " + std::to_string(status) + ", see " + run.errLog.string() + ")";
     return r;

@@ -62,9 +62,9 @@ bool applyVariant(MainWindow& w, const QString& id, const Args& a) {
     Analysis after = *w.document()->analysis(id);
     after.level = a.newVariant ? 0.95 : 0.90;
     after.memo_notes = variantNotes(a.newVariant, a.noteBytes);
-    // Figures are exported at a high resolution, so their files are big; the
+    // Figures are exported at print resolution (300 DPI: big files); the
     // memo's figures at a low one, so that building the memo stays quick.
-    after.figure.dpi = a.kind == QLatin1String("figure") ? 600 : 100;
+    after.figure.dpi = a.kind == QLatin1String("figure") ? 300 : 100;
     w.document()->setAnalysis(after, QStringLiteral("variant"));
     w.runner()->refresh(id);
     return test::waitUntil([&] { return !w.runner()->busy(id) && w.runner()->result(id); }, 60000);

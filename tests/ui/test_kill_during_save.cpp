@@ -106,18 +106,27 @@ void expect_old_or_new(const Files& now, const Files& old, const Files& fresh, c
 
 struct KillPlan {
     std::string kind;
-    SaveRun run;               // the new version's save
-    Files old, fresh;          // every file of the folder before and after an unkilled save
-    double seconds = 0;        // one unkilled save
+    SaveRun run;                                     // the new version's save
+    Files old, fresh;                                // every file of the folder before and after an unkilled save
+    double seconds = 0;                              // one unkilled save
+    std::vector<std::pair<double, double>> windows;  // when its temporary files existed (from its start)
     bool startCleans = false;  // the driver's start (opening the project there) removes stale temporary files
 };
 
-// One trial: the old files, a save killed after a random delay in [0, one
-// unkilled save], then the checks.
+// When to kill: even trials anywhere in [0, one unkilled save]; odd ones
+// within a moment at which the unkilled save had a temporary file open (the
+// writes are a small part of a save: most of it is drawing and laying out).
+double kill_delay(const KillPlan& p, std::mt19937_64& rng, int trial) {
+    if (trial % 2 == 0 || p.windows.empty()) return std::uniform_real_distribution<double>(0.0, p.seconds)(rng);
+    const auto& w = p.windows[std::uniform_int_distribution<std::size_t>(0, p.windows.size() - 1)(rng)];
+    return std::uniform_real_distribution<double>(w.first, w.second)(rng);
+}
+
+// One trial: the old files, a save killed after a random delay (kill_delay), then the checks.
 void one_trial(const KillPlan& p, std::mt19937_64& rng, int trial, std::uint64_t seed, Tally& t) {
     restore(p.run.folder, p.old);
     std::map<fs::path, pid_t> stale = temp_files(p.run.folder);
-    const double delay = std::uniform_real_distribution<double>(0.0, p.seconds)(rng);
+    const double delay = kill_delay(p, rng, trial);
     const std::string where = p.kind + " trial " + std::to_string(trial) + " (seed " + std::to_string(seed) +
                               ", killed " + std::to_string(delay) + " s into the save)";
     pid_t pid = 0;
@@ -167,9 +176,12 @@ void kill_trials(KillPlan& p, int trials) {
     EXPECT_EQ(t.trials, trials);
 }
 
-// Runs `run` unkilled; the files of its folder afterwards and how long it took.
-Files unkilled(const SaveRun& run, double* seconds = nullptr) {
-    const RunResult r = run_save(run, -1, [] {});
+// Runs `run` unkilled; the files of its folder afterwards, how long it took
+// and when its temporary files existed.
+Files unkilled(const SaveRun& run, double* seconds = nullptr,
+               std::vector<std::pair<double, double>>* windows = nullptr) {
+    const RunResult r = run_save(
+        run, -1, [] {}, nullptr, windows);
     EXPECT_TRUE(r.ok) << r.why;
     if (seconds) *seconds = r.seconds;
     return target_files(run.folder);
@@ -186,8 +198,11 @@ void check_versions(const KillPlan& p, int changedAtLeast) {
         changed += bytes != p.fresh.at(rel);
     }
     EXPECT_GE(changed, changedAtLeast) << "the old and new versions must differ for the check to mean anything";
+    double writing = 0;
+    for (const auto& [from, to] : p.windows) writing += to - from;
     std::cout << p.kind << ": " << p.old.size() << " files, " << changed << " differ; one save takes " << p.seconds
-              << " s" << std::endl;
+              << " s, of which " << writing << " s with a temporary file (" << p.windows.size() << " writes seen)"
+              << std::endl;
 }
 
 class KillDuringSave : public ::testing::Test {
@@ -222,7 +237,7 @@ protected:
         p.kind = kind;
         p.old = unkilled(driver(kind, project, out, "old", noteBytes));
         p.run = driver(kind, project, out, "new", noteBytes);
-        p.fresh = unkilled(p.run, &p.seconds);
+        p.fresh = unkilled(p.run, &p.seconds, &p.windows);
         ASSERT_NO_FATAL_FAILURE(check_versions(p, changedAtLeast));
         kill_trials(p, trial_count(trials));
     }
@@ -240,7 +255,7 @@ TEST_F(KillDuringSave, ProjectSave) {
     p.kind = "project-save";
     p.old = unkilled(driver("project", project, folder, "old", kNotes));
     p.run = driver("project", project, folder, "new", kNotes);
-    p.fresh = unkilled(p.run, &p.seconds);
+    p.fresh = unkilled(p.run, &p.seconds, &p.windows);
     // The quicker of two saves: one slowed by other work on the machine would
     // put most kills after the save has ended.
     double again = 0;
@@ -257,7 +272,7 @@ TEST_F(KillDuringSave, MemoSave) { outputKind("memo", 2000, 30, 3); }
 // Memo ▸ Save tables in CSV, Markdown, LaTeX and HTML into one folder.
 TEST_F(KillDuringSave, TableExport) { outputKind("tables", 100, 30, 4); }
 
-// File ▸ Export Figure at 600 DPI as PNG, SVG and PDF (big files).
+// File ▸ Export Figure at 300 DPI (print resolution) as PNG, SVG and PDF.
 TEST_F(KillDuringSave, FigureExport) { outputKind("figure", 100, 40, 3); }
 
 // `moderato-cli render` of the new project over the output of the old one.
@@ -279,7 +294,7 @@ TEST_F(KillDuringSave, Render) {
     p.kind = "render";
     p.old = unkilled(render(oldProject));
     p.run = render(newProject);
-    p.fresh = unkilled(p.run, &p.seconds);
+    p.fresh = unkilled(p.run, &p.seconds, &p.windows);
     ASSERT_NO_FATAL_FAILURE(check_versions(p, 5));
     kill_trials(p, trial_count(40));
 }
