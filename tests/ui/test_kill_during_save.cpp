@@ -263,14 +263,14 @@ TEST_F(KillDuringSave, ProjectSave) {
     p.seconds = std::min(p.seconds, again);
     p.startCleans = true;
     ASSERT_NO_FATAL_FAILURE(check_versions(p, 1));
-    kill_trials(p, trial_count(60));
+    kill_trials(p, trial_count(76));
 }
 
 // Memo ▸ Save as HTML, Markdown (and its figure files) and PDF into one folder.
-TEST_F(KillDuringSave, MemoSave) { outputKind("memo", 2000, 30, 3); }
+TEST_F(KillDuringSave, MemoSave) { outputKind("memo", 2000, 20, 3); }
 
 // Memo ▸ Save tables in CSV, Markdown, LaTeX and HTML into one folder.
-TEST_F(KillDuringSave, TableExport) { outputKind("tables", 100, 30, 4); }
+TEST_F(KillDuringSave, TableExport) { outputKind("tables", 100, 24, 4); }
 
 // File ▸ Export Figure at 300 DPI (print resolution) as PNG, SVG and PDF.
 TEST_F(KillDuringSave, FigureExport) { outputKind("figure", 100, 40, 3); }
