@@ -739,6 +739,26 @@ TEST(AtomicWrite, TemporaryFileOfAKilledWriterGoesOnTheNextWrite) {
     EXPECT_EQ(names_in(dir.path()), expected);
 }
 
+// Only plain files are ours: a folder or a symbolic link with the name of a
+// dead writer's temporary file is someone else's and stays (and the file the
+// link points to is untouched).
+TEST(AtomicWrite, StaleTemporaryNamesCountOnlyForPlainFiles) {
+    pid_t dead = 0;
+    char* argv[] = {const_cast<char*>("/bin/true"), nullptr};
+    ASSERT_EQ(::posix_spawn(&dead, "/bin/true", nullptr, nullptr, argv, nullptr), 0);
+    ASSERT_EQ(::waitpid(dead, nullptr, 0), dead);  // reaped: no such process any more
+    const std::string d = std::to_string(dead);
+    TempDir dir("project");
+    write_file(dir / "data.csv", "a,b\n1,2\n");
+    write_file(dir / (".p.moderato.tmp-" + d + "-1"), "left by a killed save");
+    fs::create_directory(dir / (".folder.tmp-" + d + "-2"));
+    fs::create_symlink(dir / "data.csv", dir / (".link.tmp-" + d + "-3"));
+    EXPECT_EQ(remove_stale_temp_files(dir.path().string()), 1);
+    const std::vector<std::string> expected{".folder.tmp-" + d + "-2", ".link.tmp-" + d + "-3", "data.csv"};
+    EXPECT_EQ(names_in(dir.path()), expected);
+    EXPECT_EQ(read_file(dir / "data.csv"), "a,b\n1,2\n");
+}
+
 // ---------------------------------------------------------------- paths
 
 TEST(ProjectPaths, RelativeInsideOrBesideTheProjectElseAbsolute) {

@@ -59,8 +59,9 @@ int remove_stale_temp_files(const std::string& dir) {
         if (owner == 0 || owner == ::getpid()) continue;
         // No such process: its writer is gone, and the file can never be renamed into place.
         if (::kill(owner, 0) == 0 || errno != ESRCH) continue;
+        // Ours are plain files: a folder or a symbolic link of that name is someone else's.
         std::error_code rm;
-        if (it->is_regular_file(rm) && fs::remove(it->path(), rm)) ++removed;
+        if (fs::is_regular_file(it->symlink_status(rm)) && fs::remove(it->path(), rm)) ++removed;
     }
     return removed;
 }

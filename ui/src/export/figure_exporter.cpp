@@ -15,11 +15,13 @@
 #include <QPdfWriter>
 #include <QPointer>
 #include <QRegularExpression>
-#include <QSaveFile>
 #include <QSvgGenerator>
 #include <cmath>
+#include <string>
+#include <string_view>
 #include <vector>
 
+#include "moderato/support/file_util.hpp"
 #include "plots/figure_source.hpp"
 #include "plots/probe_plot_util.hpp"
 #include "style/estuary.hpp"
@@ -445,16 +447,18 @@ bool FigureExporter::save(const QString& path, FigureFormat format, QString* err
     if (const QString bad = validateFigureSettings(settings_); !bad.isEmpty()) return fail(bad);
     const QByteArray data = render(format);
     if (data.isEmpty()) return fail(QObject::tr("the %1 could not be drawn").arg(figureFormatSuffix(format).toUpper()));
-    // QSaveFile writes a temporary file in the same folder and renames it over
-    // the target on commit; it removes the temporary file when anything fails.
-    QSaveFile file(path);
-    if (!file.open(QIODevice::WriteOnly)) return fail(file.errorString());
-    if (file.write(data) != data.size()) {
-        const QString why = file.errorString();
-        file.cancelWriting();
-        return fail(why);
+    // Our atomic write (core support/file_util): a temporary file in the same
+    // folder, synced, renamed over the target, the folder synced; a killed
+    // export leaves the old file whole and a temporary file that the next
+    // write into the folder removes.
+    const std::string file = path.toStdString();
+    try {
+        write_file_atomically(file, std::string_view(data.constData(), static_cast<std::size_t>(data.size())));
+    } catch (const std::exception& e) {
+        std::string why = e.what();  // "<path>: cannot be written (...); the file was left as it was"
+        if (why.rfind(file + ": ", 0) == 0) why.erase(0, file.size() + 2);
+        return fail(QString::fromStdString(why));
     }
-    if (!file.commit()) return fail(file.errorString());
     return true;
 }
 

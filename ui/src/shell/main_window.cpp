@@ -33,6 +33,7 @@
 #include "model/recovery_store.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/support/error.hpp"
+#include "moderato/support/file_util.hpp"
 #include "moderato/support/sha256.hpp"
 #include "sections/checks_section.hpp"
 #include "sections/memo_section.hpp"
@@ -281,6 +282,7 @@ void MainWindow::openProject(const QString& path) { openProjectFrom(path, nullpt
 void MainWindow::openProjectFrom(const QString& path, std::shared_ptr<const Project> project,
                                  const DataLocations& moved, std::function<void()> adopted) {
     const std::string file = path.toStdString();
+    const std::string folder = path.isEmpty() ? std::string() : QFileInfo(path).absolutePath().toStdString();
     auto outcome = std::make_shared<LoadOutcome>();
     outcome->inMemory = std::move(project);
     outcome->moved = moved;
@@ -288,7 +290,11 @@ void MainWindow::openProjectFrom(const QString& path, std::shared_ptr<const Proj
     const QString name = path.isEmpty() ? tr("Untitled project") : QFileInfo(path).fileName();
     startLoad(
         path, tr("Opening %1…").arg(name),
-        [outcome, file](const BackgroundJob::Progress& progress) {
+        [outcome, file, folder](const BackgroundJob::Progress& progress) {
+            // A save into this folder killed before its rename (a crash, a
+            // power cut) left its temporary file; its writer is gone, so the
+            // file goes. A live writer's file, and any other file, stays.
+            if (!file.empty()) remove_stale_temp_files(folder);
             loadInto(*outcome, [&] {
                 const CsvProgress p{progress};
                 outcome->project = std::make_shared<LoadedProject>(
