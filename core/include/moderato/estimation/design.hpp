@@ -55,6 +55,21 @@ struct NumericSummary {
     double mean = 0, sd = 0, min = 0, max = 0;
 };
 
+// The largest design build_design makes; a bigger one is refused with a
+// message naming the categorical column with the most levels, its level
+// count and the limit, before the matrix is allocated.
+// - Columns: the fit keeps p × p matrices (the triangular factor, the
+//   covariance, the sandwich's bread; 32 MB each at 2,000 columns), its QR
+//   costs n·p² operations, and a moderator with thousands of levels has too
+//   few rows per level to estimate its effects anyway.
+// - Cells (n × p): X takes 8 bytes a cell, and the fit and the sandwich
+//   estimators hold about three n × p matrices at once; 5·10⁸ cells are 4 GB
+//   a copy, about half of a 24 GB machine for the three, beside the table.
+struct DesignLimits {
+    static constexpr std::size_t max_columns = 2'000;
+    static constexpr std::size_t max_cells = 500'000'000;
+};
+
 struct Design {
     Eigen::MatrixXd X;         // n x p
     Eigen::VectorXd y;         // n
