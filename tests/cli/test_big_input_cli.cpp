@@ -111,8 +111,8 @@ TEST(BigInputCli, AHundredThousandLevelModeratorIsRefusedBeforeTheDesign) {
         "reference is a design column in every term it enters; the model needs 200,000 design columns, over the "
         "limit of 2,000. Use a column with fewer levels as the moderator (or group its levels)\n";
     for (const char* command : {"fit", "probe"}) {
-        std::vector<std::string> args{command,         "--data",        file.string(), "--outcome", "y",
-                                      "--predictors",  "x,shop",        "--interaction", "x,shop"};
+        std::vector<std::string> args{command,        "--data", file.string(),   "--outcome", "y",
+                                      "--predictors", "x,shop", "--interaction", "x,shop"};
         if (std::string(command) == "probe") args.insert(args.end(), {"--focal", "x", "--moderator", "shop"});
         const RunResult r = run_on(file, args);
         EXPECT_EQ(r.exit_code, 2) << command << ": " << r.describe();

@@ -443,9 +443,7 @@ void check_design_size(const Table& table, const std::vector<DesignTerm>& terms,
                          ". Use a column with fewer levels as the moderator (or group its levels)");
     throw InputError(cause + "the design matrix would hold " + count(cells) + " cells (" +
                      count(static_cast<double>(n)) + " rows × " + count(p) + " columns), over the limit of " +
-                     count(DesignLimits::max_cells) + " cells (" +
-                     format_count(static_cast<long long>(DesignLimits::max_cells * 8 / 1'000'000'000)) +
-                     " GB). Fit fewer rows or fewer columns");
+                     count(DesignLimits::max_cells) + " cells. Fit fewer rows or fewer columns");
 }
 
 // 4. Design columns: the intercept, then each term expanded over the

@@ -63,11 +63,14 @@ struct NumericSummary {
 //   costs n·p² operations, and a moderator with thousands of levels has too
 //   few rows per level to estimate its effects anyway.
 // - Cells (n × p): X takes 8 bytes a cell, and the fit and the sandwich
-//   estimators hold about three n × p matrices at once; 5·10⁸ cells are 4 GB
-//   a copy, about half of a 24 GB machine for the three, beside the table.
+//   estimators hold about three n × p matrices at once. Measured
+//   (tests/benchmarks/big_inputs.py): a fit of a 2 GB CSV, 2.2·10⁸ design
+//   cells, peaks at 8.2 GB, 2.6 GB of it the table, so about 26 bytes a
+//   design cell; 3·10⁸ cells are then about 8 GB for the fit, a third of a
+//   24 GB machine, with room left for the table.
 struct DesignLimits {
     static constexpr std::size_t max_columns = 2'000;
-    static constexpr std::size_t max_cells = 500'000'000;
+    static constexpr std::size_t max_cells = 300'000'000;
 };
 
 struct Design {
