@@ -962,10 +962,6 @@ TEST_F(RenderEscaping, SvgFiguresAreWellFormedWithTheNameAsText) {
     EXPECT_TRUE(named) << "the moderator's name appears as text in some figure";
 }
 
-}  // namespace
-
-#endif  // MODERATO_RENDER_TESTS
-
 // A figure preset over FigureLimits::max_pixels (40 × 40 in at 1200 DPI is
 // 48,000 × 48,000 px, a 9 GB image by closed form: 48,000² × 4 bytes) is bad
 // input: exit 2 naming the project file and the JSON path, nothing drawn,
@@ -994,3 +990,7 @@ TEST(RenderFigureLimits, AnOversizedFigurePresetStopsWithExit2NamingTheJsonPath)
     EXPECT_TRUE(tree(out).empty()) << "files were written although the render stopped";
     EXPECT_TRUE(FileSnapshot::take(project.string()) == projectBefore) << "the project file was touched";
 }
+
+}  // namespace
+
+#endif  // MODERATO_RENDER_TESTS
