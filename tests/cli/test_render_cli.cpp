@@ -980,6 +980,35 @@ TEST_F(RenderEscaping, SvgFiguresAreWellFormedWithTheNameAsText) {
     EXPECT_TRUE(named) << "the moderator's name appears as text in some figure";
 }
 
+// A figure preset over FigureLimits::max_pixels (40 × 40 in at 1200 DPI is
+// 48,000 × 48,000 px, a 9 GB image by closed form: 48,000² × 4 bytes) is bad
+// input: exit 2 naming the project file and the JSON path, nothing drawn,
+// nothing written.
+TEST(RenderFigureLimits, AnOversizedFigurePresetStopsWithExit2NamingTheJsonPath) {
+    TempDir tmp{"render"};
+    const fs::path project = copy_sample("coffee-discount", tmp.path() / "p");
+    json doc = json::parse(read_file(project));
+    doc["analyses"][0]["figure"]["width_in"] = 40;
+    doc["analyses"][0]["figure"]["height_in"] = 40;
+    doc["analyses"][0]["figure"]["dpi"] = 1200;
+    write_file(project, doc.dump(2));
+    const FileSnapshot projectBefore = FileSnapshot::take(project.string());
+    const fs::path out = tmp.path() / "out";
+
+    const RunResult r = render(project, out);
+    ASSERT_TRUE(r.exited) << r.describe();
+    EXPECT_EQ(r.exit_code, 2) << r.describe();
+    EXPECT_TRUE(contains(r.err, project.string())) << r.err;
+    // 200,000,000 / 1,600 in² = 125,000 px per in², √ = 353.6, so at most 353 DPI (closed form)
+    EXPECT_TRUE(contains(r.err,
+                         "analyses[0].figure: 40 × 40 in at 1200 DPI is 48,000 × 48,000 pixels, over the "
+                         "limit of 200,000,000 pixels for a figure; at this size the DPI may be at most 353"))
+        << r.err;
+    EXPECT_EQ(r.out, "");
+    EXPECT_TRUE(tree(out).empty()) << "files were written although the render stopped";
+    EXPECT_TRUE(FileSnapshot::take(project.string()) == projectBefore) << "the project file was touched";
+}
+
 }  // namespace
 
 #endif  // MODERATO_RENDER_TESTS

@@ -5,6 +5,7 @@
 
 #include <cmath>
 
+#include "common/input_error.hpp"
 #include "common/table_builder.hpp"
 #include "moderato/estimation/design.hpp"
 #include "moderato/support/error.hpp"
@@ -173,4 +174,67 @@ TEST(Design, ErrorsNameTheColumnAndLine) {
     } catch (const InputError& e) {
         EXPECT_STREQ(e.what(), "logistic outcome 'b' must be 0 or 1: line 4 of test.csv holds 2");
     }
+}
+
+// ------------------------------------------------ the size of the design
+
+namespace {
+
+// n rows: y = i mod 7, x = i mod 5, and "shop" with level "s<i mod L>" (so
+// min(n, L) levels, each in the first rows it can be).
+Table shops_table(std::size_t n, std::size_t levels) {
+    Column y, x, shop;
+    y.name = "y";
+    x.name = "x";
+    shop.name = "shop";
+    shop.kind = ColumnKind::Categorical;
+    for (std::size_t i = 0; i < n; ++i) {
+        y.numbers.push_back(static_cast<double>(i % 7));
+        x.numbers.push_back(static_cast<double>(i % 5));
+        shop.codes.push_back(static_cast<std::int32_t>(i % levels));
+    }
+    for (std::size_t l = 0; l < std::min(n, levels); ++l) shop.levels.push_back("s" + std::to_string(l));
+    return make_table({y, x, shop});
+}
+
+ModelSpec moderated_by_shop() {
+    ModelSpec s;
+    s.outcome = "y";
+    s.predictors = {"x", "shop"};
+    s.interactions = {{"x", "shop"}};
+    return s;
+}
+
+}  // namespace
+
+TEST(DesignLimits, AHundredThousandLevelModeratorIsRefusedNamingTheColumn) {
+    // 100,000 rows, each its own shop: x, shop and x×shop need
+    // 1 + 1 + 99,999 + 99,999 = 200,000 columns (by construction), and the
+    // matrix would be 100,000 × 200,000 doubles (160 GB) if it were made.
+    const Table t = shops_table(100'000, 100'000);
+    const std::string msg = input_error_of([&] { build_design(t, moderated_by_shop()); });
+    EXPECT_EQ(msg,
+              "categorical column 'shop' has 100,000 levels among the used rows, and each level but the reference "
+              "is a design column in every term it enters; the model needs 200,000 design columns, over the limit "
+              "of 2,000. Use a column with fewer levels as the moderator (or group its levels)");
+}
+
+TEST(DesignLimits, TooManyCellsAreRefusedEvenWithinTheColumnLimit) {
+    // 1,000 shops: 1 + 1 + 999 + 999 = 2,000 columns, at the column limit;
+    // 300,000 rows × 2,000 = 6·10⁸ cells, over the 3·10⁸ limit (by construction).
+    static_assert(DesignLimits::max_columns == 2'000 && DesignLimits::max_cells == 300'000'000);
+    const Table t = shops_table(300'000, 1'000);
+    const std::string msg = input_error_of([&] { build_design(t, moderated_by_shop()); });
+    EXPECT_NE(msg.find("the design matrix would hold 600,000,000 cells (300,000 rows × 2,000 columns), over the limit "
+                       "of 300,000,000 cells. Fit fewer rows or fewer columns"),
+              std::string::npos)
+        << msg;
+}
+
+TEST(DesignLimits, AManyLevelModeratorWithinTheLimitsIsBuilt) {
+    // 500 shops on 2,000 rows: 1 + 1 + 499 + 499 = 1,000 columns (by construction).
+    const Table t = shops_table(2'000, 500);
+    const Design d = build_design(t, moderated_by_shop());
+    EXPECT_EQ(d.p(), 1'000u);
+    EXPECT_EQ(d.n(), 2'000u);
 }

@@ -553,6 +553,12 @@ TEST(ProjectJson, WrongTypesNameTheFieldPath) {
         {"\"probe\": {", "\"figure\": {\"width_in\": -1}, \"probe\": {", "analyses[0].figure", "inches"},
         {"\"probe\": {", "\"figure\": {\"preset\": \"poster\"}, \"probe\": {", "analyses[0].figure.preset", "memo"},
         {"\"probe\": {", "\"figure\": [], \"probe\": {", "analyses[0].figure", "expected an object"},
+        // Each within its range, together over FigureLimits::max_pixels: 40 in × 1200 DPI = 48,000 px a side,
+        // 12 × 12 in at 1200 DPI = 14,400² = 207,360,000 px (closed form); 11 × 11 in fits (174,240,000).
+        {"\"probe\": {", "\"figure\": {\"width_in\": 40, \"height_in\": 40, \"dpi\": 1200}, \"probe\": {",
+         "analyses[0].figure", "48,000 × 48,000 pixels, over the limit of 200,000,000 pixels"},
+        {"\"probe\": {", "\"figure\": {\"width_in\": 12, \"height_in\": 12, \"dpi\": 1200}, \"probe\": {",
+         "analyses[0].figure", "14,400 × 14,400 pixels, over the limit"},
         {"\"datasets\": [", "\"datasets\": [ 7, ", "datasets[0]", "expected an object"},
         {"\"id\": \"d\", \"path\": \"d.csv\",", "\"id\": \"d\",", "datasets[0]", "\"path\" is missing"},
     };
@@ -563,6 +569,20 @@ TEST(ProjectJson, WrongTypesNameTheFieldPath) {
         EXPECT_TRUE(contains(message, "typed.moderato: " + c.path + ":")) << message;
         EXPECT_TRUE(contains(message, c.expected)) << message;
     }
+}
+
+TEST(FigureLimits, ThePixelLimitAndTheLargestDpiAtASize) {
+    using L = FigureLimits;
+    // closed form: 11 in × 1200 DPI = 13,200 px; 13,200² = 174,240,000 ≤ 2·10⁸
+    EXPECT_TRUE(L::pixels_fit(11, 11, 1200));
+    EXPECT_FALSE(L::pixels_fit(12, 12, 1200));  // 207,360,000
+    EXPECT_EQ(L::max_dpi_for(11, 11), 1200);    // capped by max_dpi
+    // closed form: √(2·10⁸ / 1,600) = 353.55; 40 × 353 = 14,120 px, 14,120² = 199,374,400 fits, 354 does not
+    EXPECT_EQ(L::max_dpi_for(40, 40), 353);
+    EXPECT_TRUE(L::pixels_fit(40, 40, 353));
+    EXPECT_FALSE(L::pixels_fit(40, 40, 354));
+    // The memo preset (6.5 × 4 in) at the highest DPI: 7,800 × 4,800 px (closed form)
+    EXPECT_EQ(L::pixels(6.5, 4, 1200), 7800.0 * 4800.0);
 }
 
 TEST(ProjectJson, UnknownReferencesAndRepeatedIdsAreRefused) {

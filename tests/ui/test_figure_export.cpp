@@ -19,6 +19,7 @@
 #include <QFontComboBox>
 #include <QImage>
 #include <QImageReader>
+#include <QLabel>
 #include <QLineEdit>
 #include <QPushButton>
 #include <QRegularExpression>
@@ -648,4 +649,62 @@ TEST(FigureExport, SingleColumnFigureWrapsALongAxisTitleAndShrinksTheLegend) {
     // And the live plot is as it was (title, legend font and layout).
     EXPECT_EQ(effect->figurePlot()->yAxis->label(), title);
     EXPECT_EQ(stateOf(effect->figurePlot()), before);
+}
+
+// ------------------------------------------- the pixel limit (FigureLimits)
+
+// Types `text` into a spin box as a user would (select all, type, Enter).
+void typeInto(QAbstractSpinBox* box, const QString& text) {
+    box->setFocus();
+    QTest::keyClick(box, Qt::Key_A, Qt::ControlModifier);
+    QTest::keyClicks(box, text);
+    QTest::keyClick(box, Qt::Key_Return);
+}
+
+TEST(FigureExport, AnImageOverThePixelLimitIsRefusedWithoutDrawingIt) {
+    TestFigure fig;
+    QTemporaryDir dir;
+    FigureSettings s = memo();
+    s.width_in = s.height_in = 40;
+    s.dpi = 1200;  // 48,000 × 48,000 px: a 9 GB image (closed form)
+    const FigureExporter exporter(&fig, s);
+    EXPECT_TRUE(exporter.renderImage().isNull());
+    EXPECT_TRUE(exporter.render(FigureFormat::Png).isEmpty());
+    QString error;
+    const QString path = dir.filePath(QStringLiteral("x.png"));
+    EXPECT_FALSE(exporter.save(path, FigureFormat::Png, &error));
+    // closed form: √(2·10⁸ / 1,600 in²) = 353.6 DPI
+    EXPECT_TRUE(error.contains(QStringLiteral("48000 × 48000 pixels is over the limit of 200 megapixels")))
+        << error.toStdString();
+    EXPECT_TRUE(error.contains(QStringLiteral("at most 353 DPI"))) << error.toStdString();
+    EXPECT_FALSE(QFile::exists(path));
+}
+
+TEST(FigureExportDialog, OffersNoResolutionOverThePixelLimitAndSaysWhy) {
+    TestFigure fig;
+    FigureExportDialog dialog(&fig, nullptr, QString(), QString());
+    dialog.show();
+    auto* width = dialog.findChild<QDoubleSpinBox*>(QStringLiteral("figure-width"));
+    auto* height = dialog.findChild<QDoubleSpinBox*>(QStringLiteral("figure-height"));
+    auto* dpi = dialog.findChild<QSpinBox*>(QStringLiteral("figure-dpi"));
+    auto* pixels = dialog.findChild<QLabel*>(QStringLiteral("figure-pixels"));
+    ASSERT_TRUE(width && height && dpi && pixels);
+    typeInto(dpi, QStringLiteral("1200"));
+    EXPECT_EQ(dpi->value(), 1200);  // the memo size at 1200 DPI fits: 7,800 × 4,800 px (closed form)
+    typeInto(width, QStringLiteral("40"));
+    typeInto(height, QStringLiteral("40"));
+    ASSERT_DOUBLE_EQ(width->value(), 40.0);
+    ASSERT_DOUBLE_EQ(height->value(), 40.0);
+    // closed form: at 40 × 40 in the limit allows 353 DPI, 14,120 × 14,120 px
+    EXPECT_EQ(dpi->maximum(), 353);
+    EXPECT_EQ(dpi->value(), 353);
+    EXPECT_EQ(pixels->text(), QStringLiteral("14,120 × 14,120 px (at most 200 megapixels: 353 DPI at this size)"));
+    typeInto(dpi, QStringLiteral("1000"));
+    EXPECT_EQ(dpi->value(), 353);  // the box does not take a value over its maximum
+    EXPECT_TRUE(
+        FigureLimits::pixels_fit(dialog.settings().width_in, dialog.settings().height_in, dialog.settings().dpi));
+    // A smaller size gives the range back.
+    typeInto(width, QStringLiteral("6.5"));
+    typeInto(height, QStringLiteral("4"));
+    EXPECT_EQ(dpi->maximum(), 1200);
 }

@@ -6,6 +6,8 @@
 #include <limits>
 #include <map>
 #include <set>
+#include <string_view>
+#include <unordered_map>
 
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
@@ -391,11 +393,11 @@ LevelMap categorical_levels(const Table& table, const ModelSpec& spec, const std
             const Column& c = table.at(f.first);
             if (c.kind != ColumnKind::Categorical || cat_map.count(f.first)) continue;
             std::vector<std::string> ordered = used_levels(c, spec, rows);
+            std::unordered_map<std::string_view, int> position;  // linear in the levels, however many
+            for (std::size_t i = 0; i < ordered.size(); ++i) position.emplace(ordered[i], static_cast<int>(i));
             std::vector<int> code_to_level(c.levels.size(), -1);
-            for (std::size_t i = 0; i < c.levels.size(); ++i) {
-                auto it = std::find(ordered.begin(), ordered.end(), c.levels[i]);
-                if (it != ordered.end()) code_to_level[i] = static_cast<int>(it - ordered.begin());
-            }
+            for (std::size_t i = 0; i < c.levels.size(); ++i)
+                if (const auto it = position.find(c.levels[i]); it != position.end()) code_to_level[i] = it->second;
             d.categoricals.push_back({f.first, ordered, ordered.front()});
             cat_map[f.first] = {ordered, code_to_level};
         }
@@ -408,6 +410,40 @@ LevelMap categorical_levels(const Table& table, const ModelSpec& spec, const std
             throw InputError("reference level given for " + quoted(col) + ", which is not in the model");
         }
     return cat_map;
+}
+
+// 3b. The size of the design, refused before anything of that size is
+//     allocated (DesignLimits says why the limits are where they are).
+void check_design_size(const Table& table, const std::vector<DesignTerm>& terms, const LevelMap& cat_map,
+                       bool intercept, std::size_t n) {
+    double p = intercept ? 1.0 : 0.0;  // double: a product of level counts may not fit an integer
+    for (const auto& t : terms) {
+        double cols = 1.0;
+        for (const auto& f : t.factors)
+            if (table.at(f.first).kind == ColumnKind::Categorical)
+                cols *= static_cast<double>(cat_map.at(f.first).first.size() - 1);
+        p += cols;
+    }
+    const double cells = p * static_cast<double>(n);
+    const bool too_wide = p > static_cast<double>(DesignLimits::max_columns);
+    if (!too_wide && cells <= static_cast<double>(DesignLimits::max_cells)) return;
+    std::string widest;  // the categorical column with the most levels, the usual cause
+    std::size_t most = 0;
+    for (const auto& [name, levels] : cat_map)
+        if (levels.first.size() > most) most = levels.first.size(), widest = name;
+    std::string cause;
+    if (!widest.empty())
+        cause = "categorical column " + quoted(widest) + " has " + format_count(static_cast<long long>(most)) +
+                " levels among the used rows, and each level but the reference is a design column in every term "
+                "it enters; ";
+    const auto count = [](double v) { return format_count(static_cast<long long>(std::min(v, 9.0e18))); };
+    if (too_wide)
+        throw InputError(cause + "the model needs " + count(p) + " design columns, over the limit of " +
+                         count(DesignLimits::max_columns) +
+                         ". Use a column with fewer levels as the moderator (or group its levels)");
+    throw InputError(cause + "the design matrix would hold " + count(cells) + " cells (" +
+                     count(static_cast<double>(n)) + " rows × " + count(p) + " columns), over the limit of " +
+                     count(DesignLimits::max_cells) + " cells. Fit fewer rows or fewer columns");
 }
 
 // 4. Design columns: the intercept, then each term expanded over the
@@ -618,6 +654,7 @@ Design build_design(const Table& table, const ModelSpec& spec) {
     d.intercept = spec.intercept;
     d.rows = complete_rows(table, used, d);
     const LevelMap cat_map = categorical_levels(table, spec, terms, d.rows, d);
+    check_design_size(table, terms, cat_map, spec.intercept, d.rows.size());
     design_columns(table, terms, cat_map, spec.intercept, d);
     fill_matrix(table, cat_map, d);
     fill_outcome_and_weights(table, spec, outcome, d);

@@ -17,6 +17,15 @@
 namespace moderato {
 
 namespace fs = std::filesystem;
+
+long long FigureLimits::side_pixels(double inches, int dpi) { return std::llround(inches * dpi); }
+
+int FigureLimits::max_dpi_for(double width_in, double height_in) {
+    int dpi = static_cast<int>(std::floor(std::sqrt(max_pixels / (width_in * height_in))));
+    dpi = std::clamp(dpi, min_dpi, max_dpi);
+    while (dpi > min_dpi && !pixels_fit(width_in, height_in, dpi)) --dpi;  // rounding to whole pixels
+    return dpi;
+}
 using nlohmann::json;
 
 namespace {
@@ -378,6 +387,12 @@ FigureSettings read_figure(const Reader& r, const json& j, const std::string& wh
     if (!(inches(f.width_in) && inches(f.height_in)))
         r.fail(fw, "width and height must lie between " + exact_text(L::min_inches) + " and " +
                        exact_text(L::max_inches) + " inches");
+    if (!L::pixels_fit(f.width_in, f.height_in, f.dpi))
+        r.fail(fw, exact_text(f.width_in) + " × " + exact_text(f.height_in) + " in at " + std::to_string(f.dpi) +
+                       " DPI is " + format_count(L::side_pixels(f.width_in, f.dpi)) + " × " +
+                       format_count(L::side_pixels(f.height_in, f.dpi)) + " pixels, over the limit of " +
+                       format_count(static_cast<long long>(L::max_pixels)) + " pixels for a figure; at this size " +
+                       "the DPI may be at most " + std::to_string(L::max_dpi_for(f.width_in, f.height_in)));
     return f;
 }
 

@@ -11,14 +11,18 @@
 #include <deque>
 #include <exception>
 #include <filesystem>
-#include <fstream>
 #include <memory>
 #include <string_view>
 #include <system_error>
 #include <thread>
 #include <unordered_map>
 
+#include <fcntl.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
 #include "moderato/support/error.hpp"
+#include "moderato/support/report_text.hpp"
 #include "reading/csv_internal.hpp"
 
 namespace moderato {
@@ -35,8 +39,16 @@ public:
     virtual std::size_t size() const = 0;
     // Reads up to n bytes at offset; fewer only at the end of the data.
     virtual std::size_t read(std::size_t offset, char* dst, std::size_t n) = 0;
+    // Throws InputError when the data changed since the source was opened.
+    virtual void check_unchanged() const {}
 };
 
+// A file read through one descriptor. The size, modification time and
+// identity seen at opening are the file's snapshot: reads stop at that size,
+// and check_unchanged() refuses a file that was appended to, cut short,
+// rewritten in place or replaced since, so torn data are never parsed
+// silently (the modification time has nanoseconds where the file system
+// keeps them).
 class FileSource final : public Source {
 public:
     explicit FileSource(const std::string& path) : path_(path) {
@@ -50,31 +62,62 @@ public:
                              "); check the path and that you may read the file");
         if (st.type() == fs::file_type::directory)
             throw InputError(path + ": is a folder, not a file; choose a CSV or TSV file");
-        in_.open(path, std::ios::in | std::ios::binary);
-        if (!in_) {
+        fd_ = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
+        if (fd_ < 0) {
             const int err = errno;
             throw InputError(path + ": cannot be opened (" +
                              std::error_code(err ? err : EACCES, std::generic_category()).message() +
                              "); check that you may read the file");
         }
-        const auto sz = fs::file_size(path, ec);
-        size_ = ec ? 0 : static_cast<std::size_t>(sz);
+        struct stat now {};
+        if (::fstat(fd_, &now) != 0) now.st_size = 0;
+        opened_ = now;
+        size_ = S_ISREG(now.st_mode) ? static_cast<std::size_t>(now.st_size) : 0;
     }
+    ~FileSource() override { ::close(fd_); }
+    FileSource(const FileSource&) = delete;
+    FileSource& operator=(const FileSource&) = delete;
+
     std::size_t size() const override { return size_; }
     std::size_t read(std::size_t offset, char* dst, std::size_t n) override {
-        in_.clear();
-        in_.seekg(static_cast<std::streamoff>(offset));
-        in_.read(dst, static_cast<std::streamsize>(n));
-        const auto got = static_cast<std::size_t>(in_.gcount());
-        if (in_.bad())
-            throw InputError(path_ + ": reading failed near byte " + std::to_string(offset + got) +
-                             "; check the disk or copy the file elsewhere and try again");
+        if (offset >= size_) return 0;
+        n = std::min(n, size_ - offset);  // the snapshot's bytes only
+        std::size_t got = 0;
+        while (got < n) {
+            const ssize_t r = ::pread(fd_, dst + got, n - got, static_cast<off_t>(offset + got));
+            if (r < 0 && errno == EINTR) continue;
+            if (r < 0)
+                throw InputError(path_ + ": reading failed near byte " + std::to_string(offset + got) +
+                                 "; check the disk or copy the file elsewhere and try again");
+            if (r == 0)
+                changed("it became shorter (" + std::to_string(offset + got) + " of " + std::to_string(size_) +
+                        " bytes were there)");
+            got += static_cast<std::size_t>(r);
+        }
         return got;
+    }
+    void check_unchanged() const override {
+        struct stat now {};
+        if (::fstat(fd_, &now) != 0 || now.st_size != opened_.st_size)
+            changed("its size went from " + std::to_string(opened_.st_size) + " to " + std::to_string(now.st_size) +
+                    " bytes");
+        if (now.st_mtim.tv_sec != opened_.st_mtim.tv_sec || now.st_mtim.tv_nsec != opened_.st_mtim.tv_nsec)
+            changed("it was written to (its modification time changed)");
+        struct stat named {};
+        if (::stat(path_.c_str(), &named) != 0 || named.st_ino != opened_.st_ino || named.st_dev != opened_.st_dev)
+            changed("another file took its place");
     }
 
 private:
+    [[noreturn]] void changed(const std::string& how) const {
+        throw InputError(path_ + ": the file changed while it was being read (" + how +
+                         "); nothing was imported. Wait until the program writing it has finished, or read a "
+                         "copy, and try again");
+    }
+
     std::string path_;
-    std::ifstream in_;
+    int fd_ = -1;
+    struct stat opened_ {};
     std::size_t size_ = 0;
 };
 
@@ -140,6 +183,19 @@ struct FinalColumn {
     std::size_t first_text_line = 0;
     std::string first_text;
 };
+
+std::string count_text(std::size_t n) { return format_count(static_cast<long long>(n)); }
+
+// "256 MiB" for whole mebibytes, else bytes.
+std::string byte_text(std::size_t n) {
+    if (n % (std::size_t{1} << 20) == 0) return count_text(n >> 20) + " MiB";
+    return count_text(n) + " bytes";
+}
+
+std::string delimiter_name(char d) {
+    if (d == '\t') return "tab";
+    return std::string("'") + d + "'";
+}
 
 std::string join_names(const std::vector<std::string>& names) {
     std::string s;
@@ -266,6 +322,9 @@ private:
     void append_column(Pass& ps, const Block& blk, std::size_t j, const std::vector<std::size_t>& piece_line,
                        std::vector<std::int32_t>& remap);
     [[noreturn]] void fail_unterminated(const Pass& ps, const Block& blk) const;
+    // The limits of CsvLimits: one record's length, the table's cells.
+    void check_record_length(const Pass& ps, const Block& blk) const;
+    void check_cells(const Pass& ps, const Block& blk) const;
     // Moves the columns read into `out`.
     void build_table(Pass& ps, Table& out);
 
@@ -343,6 +402,8 @@ bool Reader::pass(std::vector<char>& text_columns, Table& out) {
     cols_.clear();
     for (;;) {
         Block blk = read_block(ps);
+        src_.check_unchanged();
+        check_record_length(ps, blk);
         if (!blk.eof && blk.cut == 0) {  // no complete record yet: read more
             ps.carry = blk.len;
             report(ps.offset);
@@ -354,6 +415,7 @@ bool Reader::pass(std::vector<char>& text_columns, Table& out) {
         if (ps.header_done && blk.cut > blk.data_begin) {
             parse_pieces(ps, blk);
             if (!take_new_text(ps, blk, text_columns)) return false;
+            check_cells(ps, blk);
             reserve_table(ps, blk);
             line_at_cut = append_pieces(ps, blk);
         }
@@ -405,7 +467,7 @@ void Reader::find_header(Pass& ps, Block& blk, const std::vector<char>& text_col
     RecordParse r;
     bool found = false;
     while (p < blk.cut) {
-        r = parse_record(blk.b, p, blk.cut, delim_, blk.eof && blk.cut == blk.len);
+        r = parse_record(blk.b, p, blk.cut, delim_, blk.eof && blk.cut == blk.len, tuning_.max_columns);
         if (r.status == RecordStatus::Blank) {
             newlines += r.newlines;
             p = r.next;
@@ -420,6 +482,11 @@ void Reader::find_header(Pass& ps, Block& blk, const std::vector<char>& text_col
         return;
     }
     ps.header_line = ps.line0 + newlines;
+    if (r.status == RecordStatus::TooManyFields)
+        fail_at(ps.header_line, " has more than " + count_text(tuning_.max_columns) +
+                                    " fields; Moderato reads at most " + count_text(tuning_.max_columns) +
+                                    " columns. Check the delimiter (" + delimiter_name(delim_) +
+                                    "), or keep only the columns the analysis needs");
     if (r.status == RecordStatus::TextAfterQuote)
         fail_at(ps.header_line + r.bad_newlines,
                 ", column " + std::to_string(r.bad_field + 1) +
@@ -517,8 +584,9 @@ void Reader::reserve_table(Pass& ps, const Block& blk) {
     ps.reserved = true;
     const std::size_t cut_offset = ps.offset - (blk.len - blk.cut);
     const std::size_t rest = total_ > cut_offset ? total_ - cut_offset : 0;
-    const std::size_t est = ps.row_lines.size() + block_rows +
-                            static_cast<std::size_t>(static_cast<double>(rest) * ps.rows_per_byte * 1.05) + 16;
+    std::size_t est = ps.row_lines.size() + block_rows +
+                      static_cast<std::size_t>(static_cast<double>(rest) * ps.rows_per_byte * 1.05) + 16;
+    est = std::min(est, tuning_.max_cells / std::max<std::size_t>(1, cols_.size()) + 1);
     ps.row_lines.reserve(est);
     for (auto& fc : cols_) {
         if (fc.mode == Mode::Text) fc.codes.reserve(est);
@@ -577,6 +645,26 @@ void Reader::append_column(Pass& ps, const Block& blk, std::size_t j, const std:
             fc.first_text = ch.first_text;
         }
     }
+}
+
+void Reader::check_record_length(const Pass& ps, const Block& blk) const {
+    const std::size_t open = blk.len - blk.cut;  // bytes of the record not yet complete
+    if (blk.eof || open <= tuning_.max_record_bytes) return;
+    fail_at(ps.line0 + count_newlines(blk.b, blk.b + blk.cut),
+            ": a record starts here and runs on for more than " + byte_text(tuning_.max_record_bytes) +
+                " without ending; Moderato reads records of at most " + byte_text(tuning_.max_record_bytes) +
+                ". A quoted field may lack its closing quote, or the file is not line-based text");
+}
+
+void Reader::check_cells(const Pass& ps, const Block& blk) const {
+    std::size_t rows = ps.row_lines.size();
+    for (std::size_t k = 0; k < blk.pieces; ++k) rows += ps.pieces[k].row_lines.size();
+    const std::size_t ncols = std::max<std::size_t>(1, cols_.size());
+    if (rows <= tuning_.max_cells / ncols) return;
+    fail("more than " + count_text(tuning_.max_cells) + " cells (" + count_text(rows) + " rows × " +
+         count_text(cols_.size()) + " columns by byte " + count_text(ps.offset) + " of " + count_text(total_) +
+         "); Moderato holds at most " + count_text(tuning_.max_cells) +
+         " cells in memory. Keep only the columns or rows the analysis needs");
 }
 
 void Reader::fail_unterminated(const Pass& ps, const Block& blk) const {

@@ -105,7 +105,7 @@ struct RawField {
     bool quoted = false;
 };
 
-enum class RecordStatus : std::uint8_t { Ok, Blank, Incomplete, TextAfterQuote };
+enum class RecordStatus : std::uint8_t { Ok, Blank, Incomplete, TextAfterQuote, TooManyFields };
 
 struct RecordParse {
     RecordStatus status = RecordStatus::Incomplete;
@@ -117,8 +117,10 @@ struct RecordParse {
 };
 
 // Parses one record starting at buf[begin]; `at_eof` says the data ends at
-// `end` (so a last record without '\n' is complete).
-RecordParse parse_record(const char* buf, std::size_t begin, std::size_t end, char delim, bool at_eof);
+// `end` (so a last record without '\n' is complete). Stops with
+// TooManyFields once the record has more than `max_fields` fields.
+RecordParse parse_record(const char* buf, std::size_t begin, std::size_t end, char delim, bool at_eof,
+                         std::size_t max_fields = npos);
 
 // Picks ',', ';' or '\t' from a sample of the first lines.
 char sniff_delimiter(std::string_view sample, bool sample_is_whole, bool decimal_comma);

@@ -78,7 +78,8 @@ void Scanner::scan(const char* buf, std::size_t len, const std::vector<std::size
     pos = p;
 }
 
-RecordParse parse_record(const char* buf, std::size_t begin, std::size_t end, char delim, bool at_eof) {
+RecordParse parse_record(const char* buf, std::size_t begin, std::size_t end, char delim, bool at_eof,
+                         std::size_t max_fields) {
     RecordParse r;
     std::size_t p = begin;
     if (p >= end) return r;  // Incomplete: nothing there
@@ -132,6 +133,10 @@ RecordParse parse_record(const char* buf, std::size_t begin, std::size_t end, ch
             if ((p == end || buf[p] == '\n') && !f.text.empty() && f.text.back() == '\r') f.text.pop_back();
         }
         r.fields.push_back(std::move(f));
+        if (r.fields.size() > max_fields) {
+            r.status = RecordStatus::TooManyFields;
+            return r;
+        }
         if (p >= end) {
             if (!at_eof) return r;
             r.status = RecordStatus::Ok;

@@ -22,6 +22,7 @@
 #include <QVBoxLayout>
 #include <cmath>
 
+#include "common/number_text.hpp"
 #include "model/project_document.hpp"
 #include "plots/figure_source.hpp"
 #include "style/palette_text.hpp"
@@ -137,6 +138,7 @@ void FigureExportDialog::createLookRows(QFormLayout* form) {
     dpi_->setToolTip(tr("Resolution of the PNG image and of the image copied to the clipboard"));
     pixels_ = new QLabel(this);
     pixels_->setObjectName(QStringLiteral("figure-pixels"));
+    pixels_->setWordWrap(true);
     auto* dpiRow = new QHBoxLayout;
     dpiRow->addWidget(dpi_);
     dpiRow->addWidget(pixels_, 1);
@@ -302,9 +304,16 @@ void FigureExportDialog::formatChosen() {
     schedulePreview();
 }
 
+// The DPI box offers only resolutions whose image keeps to the pixel limit
+// at the chosen size (FigureLimits), and the readout says both.
 void FigureExportDialog::updatePixelReadout() {
+    const int cap = FigureLimits::max_dpi_for(width_->value(), height_->value());
+    if (dpi_->maximum() != cap) dpi_->setMaximum(cap);  // lowers the value when it was over
     const QSize px = FigureExporter::pixelSize(settings());
-    pixels_->setText(tr("%1 × %2 px").arg(px.width()).arg(px.height()));
+    const QString limit = countText(static_cast<long long>(FigureLimits::max_pixels / 1e6));
+    pixels_->setText(tr("%1 × %2 px (at most %3 megapixels: %4 DPI at this size)")
+                         .arg(countText(px.width()), countText(px.height()), limit)
+                         .arg(cap));
     schedulePreview();
 }
 

@@ -16,6 +16,7 @@
 #include <QPointer>
 #include <QRegularExpression>
 #include <QSvgGenerator>
+#include <algorithm>
 #include <cmath>
 #include <string>
 #include <string_view>
@@ -66,9 +67,7 @@ const FigurePreset* findFigurePreset(SizePreset key) {
 
 namespace {
 
-constexpr double kMinInches = 0.5, kMaxInches = 40.0;
-constexpr int kMinDpi = 36, kMaxDpi = 2400;
-constexpr double kMaxPixels = 200e6;  // 800 MB of ARGB: beyond that, refuse instead of failing to allocate
+using L = FigureLimits;  // the one set of limits, shared with the project loader
 
 // The resolution QFontMetrics assumes for a font without a paint device.
 // QCustomPlot measures text that way while laying out, so every figure is
@@ -300,22 +299,32 @@ void paintFigure(QCPPainter& painter, QCustomPlot* plot, QSize logical, const Fi
 }  // namespace
 
 QString validateFigureSettings(const FigureSettings& s) {
-    if (!(s.width_in >= kMinInches && s.width_in <= kMaxInches) ||
-        !(s.height_in >= kMinInches && s.height_in <= kMaxInches))
+    if (!(s.width_in >= L::min_inches && s.width_in <= L::max_inches) ||
+        !(s.height_in >= L::min_inches && s.height_in <= L::max_inches))
         return QObject::tr("the size %1 × %2 in is outside %3–%4 in")
             .arg(s.width_in)
             .arg(s.height_in)
-            .arg(kMinInches)
-            .arg(kMaxInches);
-    if (s.dpi < kMinDpi || s.dpi > kMaxDpi)
-        return QObject::tr("the resolution %1 DPI is outside %2–%3 DPI").arg(s.dpi).arg(kMinDpi).arg(kMaxDpi);
-    const QSize px = FigureExporter::pixelSize(s);
-    if (double(px.width()) * px.height() > kMaxPixels)
-        return QObject::tr("%1 × %2 pixels is too large an image; lower the DPI or the size")
+            .arg(L::min_inches)
+            .arg(L::max_inches);
+    if (s.dpi < L::min_dpi || s.dpi > L::max_dpi)
+        return QObject::tr("the resolution %1 DPI is outside %2–%3 DPI").arg(s.dpi).arg(L::min_dpi).arg(L::max_dpi);
+    if (!L::pixels_fit(s.width_in, s.height_in, s.dpi)) {
+        const QSize px = FigureExporter::pixelSize(s);
+        return QObject::tr(
+                   "%1 × %2 pixels is over the limit of %3 megapixels for a figure; at %4 × %5 in the "
+                   "resolution may be at most %6 DPI")
             .arg(px.width())
-            .arg(px.height());
-    if (!(s.font_pt >= 4 && s.font_pt <= 48))
-        return QObject::tr("the font size %1 pt is outside 4–48 pt").arg(s.font_pt);
+            .arg(px.height())
+            .arg(L::max_pixels / 1e6)
+            .arg(s.width_in)
+            .arg(s.height_in)
+            .arg(L::max_dpi_for(s.width_in, s.height_in));
+    }
+    if (!(s.font_pt >= L::min_font_pt && s.font_pt <= L::max_font_pt))
+        return QObject::tr("the font size %1 pt is outside %2–%3 pt")
+            .arg(s.font_pt)
+            .arg(L::min_font_pt)
+            .arg(L::max_font_pt);
     return {};
 }
 
@@ -323,10 +332,16 @@ FigureExporter::FigureExporter(FigureSource* source, const FigureSettings& setti
     : source_(source), settings_(settings), caption_(settings.caption ? caption.trimmed() : QString()) {}
 
 QSize FigureExporter::pixelSize(const FigureSettings& s) {
-    return {static_cast<int>(std::lround(s.width_in * s.dpi)), static_cast<int>(std::lround(s.height_in * s.dpi))};
+    const auto side = [&](double inches) {
+        return static_cast<int>(std::clamp<long long>(L::side_pixels(inches, s.dpi), 0, 1 << 30));
+    };
+    return {side(s.width_in), side(s.height_in)};
 }
 
 QImage FigureExporter::renderImage() const {
+    // Over the pixel limit nothing is allocated: a null image, which every
+    // caller reports as a figure that could not be drawn.
+    if (!L::pixels_fit(settings_.width_in, settings_.height_in, settings_.dpi)) return {};
     const QSize px = pixelSize(settings_);
     QImage image(px, QImage::Format_ARGB32_Premultiplied);
     if (image.isNull()) return image;

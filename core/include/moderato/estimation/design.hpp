@@ -55,6 +55,24 @@ struct NumericSummary {
     double mean = 0, sd = 0, min = 0, max = 0;
 };
 
+// The largest design build_design makes; a bigger one is refused with a
+// message naming the categorical column with the most levels, its level
+// count and the limit, before the matrix is allocated.
+// - Columns: the fit keeps p × p matrices (the triangular factor, the
+//   covariance, the sandwich's bread; 32 MB each at 2,000 columns), its QR
+//   costs n·p² operations, and a moderator with thousands of levels has too
+//   few rows per level to estimate its effects anyway.
+// - Cells (n × p): X takes 8 bytes a cell, and the fit and the sandwich
+//   estimators hold about three n × p matrices at once. Measured
+//   (tests/benchmarks/big_inputs.py): a fit of a 2 GB CSV, 2.2·10⁸ design
+//   cells, peaks at 8.2 GB, 2.6 GB of it the table, so about 26 bytes a
+//   design cell; 3·10⁸ cells are then about 8 GB for the fit, a third of a
+//   24 GB machine, with room left for the table.
+struct DesignLimits {
+    static constexpr std::size_t max_columns = 2'000;
+    static constexpr std::size_t max_cells = 300'000'000;
+};
+
 struct Design {
     Eigen::MatrixXd X;         // n x p
     Eigen::VectorXd y;         // n

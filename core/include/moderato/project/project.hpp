@@ -103,10 +103,30 @@ struct ProbeSettings {
 // The figures Moderato draws: the export dialog offers these ranges, and a
 // project file must keep to them (a hand-edited 0.00001-inch figure or a 0 pt
 // font has nothing sensible to draw).
+//
+// Pixels: each side and the resolution have their own range, but 40 in at
+// 1200 DPI is 48,000 px a side, a 9 GB image. A raster figure (PNG, the
+// clipboard image) may hold at most 200 megapixels: 800 MB as 32-bit pixels,
+// drawn once and converted once, so under 2 GB at the peak; a letter page
+// (8.5 × 11 in) at 1200 DPI is 135 megapixels, so every printable figure
+// fits. The loader, the export dialog and the renderer all ask pixels_fit().
 struct FigureLimits {
     static constexpr double min_inches = 0.5, max_inches = 40;
     static constexpr int min_dpi = 72, max_dpi = 1200;
     static constexpr double min_font_pt = 4, max_font_pt = 48;
+    static constexpr double max_pixels = 200e6;
+
+    // Pixels a side: the inches times the DPI, rounded to the nearest pixel.
+    static long long side_pixels(double inches, int dpi);
+    static double pixels(double width_in, double height_in, int dpi) {
+        return static_cast<double>(side_pixels(width_in, dpi)) * static_cast<double>(side_pixels(height_in, dpi));
+    }
+    static bool pixels_fit(double width_in, double height_in, int dpi) {
+        return pixels(width_in, height_in, dpi) <= max_pixels;
+    }
+    // The highest DPI in [min_dpi, max_dpi] whose image fits (min_dpi when
+    // none does; the largest size at min_dpi, 40 × 40 in, is 10.4 megapixels).
+    static int max_dpi_for(double width_in, double height_in);
 };
 
 struct FigureSettings {

@@ -42,6 +42,20 @@ struct CsvOptions {
     unsigned threads = 0;                            // 0: all hardware threads
 };
 
+// What the reader refuses rather than run out of memory on. Each message names
+// the limit. Columns: the reader keeps some bookkeeping per column and thread
+// (about a kilobyte), and a table wider than the widest common spreadsheet
+// (16,384 columns, from memory) several times over is not a table of
+// variables. Record: a record is held whole in memory while it is parsed,
+// with a copy of its cells; a record this long is most often a quote that
+// was never closed. Cells: the table stores 8 bytes a numeric cell, so 10^9
+// cells are 8 GB before any model is fitted (a third of a 24 GB machine).
+struct CsvLimits {
+    static constexpr std::size_t max_columns = 100'000;
+    static constexpr std::size_t max_record_bytes = std::size_t{256} << 20;  // 256 MiB
+    static constexpr std::size_t max_cells = 1'000'000'000;
+};
+
 struct CsvProgress {
     // Called now and then with bytes done and total; return false to cancel.
     std::function<bool(std::size_t done, std::size_t total)> callback;
@@ -50,8 +64,11 @@ struct CsvProgress {
 // Reads a file. Throws InputError with the file name and the line (and
 // column, where it applies) for: a missing/unreadable file, an empty file, a
 // header without data rows, invalid UTF-8, an unterminated quote, a row with
-// the wrong number of fields, empty or duplicate column names, and a forced
-// numeric column holding text. Throws Cancelled when the callback says stop.
+// the wrong number of fields, empty or duplicate column names, a forced
+// numeric column holding text, a file over one of the CsvLimits, and a file
+// that changed while it was read (its size, modification time or identity
+// differs from when it was opened). Throws Cancelled when the callback says
+// stop.
 Table read_csv(const std::string& path, const CsvOptions& options = {}, const CsvProgress& progress = {});
 
 // Same, from text held in memory (`name` is used in messages).
@@ -63,6 +80,10 @@ namespace detail {
 struct CsvTuning {
     std::size_t block_size = std::size_t{16} << 20;  // bytes read per block
     std::size_t min_piece = std::size_t{1} << 16;    // smallest piece per thread
+    // The CsvLimits, smaller in tests.
+    std::size_t max_columns = CsvLimits::max_columns;
+    std::size_t max_record_bytes = CsvLimits::max_record_bytes;
+    std::size_t max_cells = CsvLimits::max_cells;
 };
 Table read_csv_tuned(const std::string& path, const CsvOptions& options, const CsvProgress& progress,
                      const CsvTuning& tuning);
