@@ -638,6 +638,75 @@ TEST(ChecksSection, LabelsAreSpelledOut) {
     }
 }
 
+TEST(DiagnosticPlot, ManyFlaggedRowsAreThinnedOnAFineGridKeepingTheLabelledOnes) {
+    // 60,000 rows, one in eight far out in x (x in [10, 11], the rest in
+    // [0, 1]): their leverage is about 1/n + 7/n, above the 3p/n = 6/n rule
+    // (by construction: (x - mean)² ≈ 7 var(x)), so 7,500 rows are flagged.
+    // The display-thinning rule
+    // (diagnostic_plots.cpp): unflagged points one per cell of a 120 × 80
+    // grid; above 5,000 flagged points, flagged points one per cell of a
+    // 120 × 80 grid too, always keeping the labelled (largest) rows. The bounds
+    // below are the grids' cell counts (thinScatter's bins run 0..bins, by
+    // construction).
+    const int n = 60000;
+    std::vector<double> x(n), y(n);
+    std::uint64_t state = 2024;
+    auto uniform = [&] {  // a small LCG (Knuth MMIX constants)
+        state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+        return (static_cast<double>(state >> 11) + 0.5) / 9007199254740992.0;
+    };
+    for (std::size_t i = 0; i < static_cast<std::size_t>(n); ++i) {
+        x[i] = (i % 8 == 0 ? 10 : 0) + uniform();
+        y[i] = 1 + 0.5 * x[i] + (uniform() - 0.5) * 2;
+    }
+    Table t;
+    Column cx, cy;
+    cx.name = "x";
+    cx.numbers = x;
+    cy.name = "y";
+    cy.numbers = y;
+    t.columns = {cy, cx};
+    ModelSpec s;
+    s.outcome = "y";
+    s.predictors = {"x"};
+    const Design d = build_design(t, s);
+    auto diag = std::make_shared<const Diagnostics>(diagnostics(d, fit_design(d, s)));
+    std::set<std::size_t> flagged;
+    for (const auto& r : diag->flagged) flagged.insert(r.observation);
+    ASSERT_GT(flagged.size(), 5000u) << "the data must flag more rows than the flagged-thinning limit";
+    for (auto kind : {DiagnosticPlot::Residuals, DiagnosticPlot::Quantiles, DiagnosticPlot::Influence}) {
+        DiagnosticPlot plot(kind);
+        plot.resize(600, 420);
+        plot.setDiagnostics(diag);
+        SCOPED_TRACE(plot.figureKey().toStdString());
+        for (int panel = 0; panel < plot.panelCount(); ++panel) {
+            const auto& drawn = plot.drawnObservations(panel);
+            const auto& drawnFlagged = plot.drawnFlagged(panel);
+            EXPECT_LE(drawn.size(), 121u * 81u);
+            EXPECT_LE(drawnFlagged.size(), 121u * 81u + 2 * DiagnosticPlot::kMaxLabels + 2);
+            EXPECT_LT(drawnFlagged.size(), flagged.size());
+            EXPECT_GT(drawnFlagged.size(), 0u);
+            for (std::size_t o : drawnFlagged) EXPECT_TRUE(flagged.count(o)) << o;
+            for (std::size_t o : drawn) EXPECT_FALSE(flagged.count(o)) << o;
+            // The labelled rows (influence panels) are among the drawn flagged points.
+            const std::set<std::size_t> shown(drawnFlagged.begin(), drawnFlagged.end());
+            for (std::size_t o : plot.labelledObservations(panel)) EXPECT_TRUE(shown.count(o)) << o;
+        }
+        // Residual plot: the flagged rows with the largest and the smallest residual are drawn.
+        if (kind == DiagnosticPlot::Residuals) {
+            const auto r = diag->plot_residual();
+            std::size_t hi = *flagged.begin(), lo = hi;
+            for (std::size_t o : flagged) {
+                if (r[static_cast<Eigen::Index>(o)] > r[static_cast<Eigen::Index>(hi)]) hi = o;
+                if (r[static_cast<Eigen::Index>(o)] < r[static_cast<Eigen::Index>(lo)]) lo = o;
+            }
+            const std::set<std::size_t> shown(plot.drawnFlagged().begin(), plot.drawnFlagged().end());
+            EXPECT_TRUE(shown.count(hi));
+            EXPECT_TRUE(shown.count(lo));
+        }
+    }
+}
+
 TEST(DiagnosticPlot, DenseScatterIsThinnedButFlaggedRowsAreAllDrawn) {
     // 40,000 rows: above the 20,000-point limit.
     const int n = 40000;

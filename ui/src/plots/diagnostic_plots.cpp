@@ -15,7 +15,18 @@ namespace moderato::ui {
 
 namespace {
 
+// Display thinning (the picture at plot size, not the data): above
+// kThinAbove points, one unflagged point per cell of a kThinBinsX ×
+// kThinBinsY grid over the panel's range (cells of about 4 px at the usual
+// plot size; the dots are 3 px, so a dense cloud still reads as one); above
+// kFlaggedThinAbove flagged points, one flagged point per cell of a grid of
+// the same size (their 7 px markers cover a cell and its neighbours). The
+// flagged rows with the largest and smallest y (the labelled rows) and the
+// smallest and largest x are always drawn; every flagged row stays in the list.
 constexpr std::size_t kThinAbove = 20000;
+constexpr int kThinBinsX = 120, kThinBinsY = 80;
+constexpr std::size_t kFlaggedThinAbove = 5000;
+constexpr int kFlaggedBinsX = 120, kFlaggedBinsY = 80;
 constexpr const char* kUnderLayer = "grid";       // reference lines: under the points, over the grid
 constexpr const char* kFlaggedLayer = "flagged";  // flagged rows and the ring of the selected ones
 
@@ -79,6 +90,37 @@ QString residualTitle(const Diagnostics& d) {
     if (d.family == Family::Logistic) return DiagnosticPlot::tr("Pearson residual");
     if (d.weighted) return DiagnosticPlot::tr("weighted residual (residual × √weight)");
     return DiagnosticPlot::tr("residual (observed − fitted)");
+}
+
+// Thins the flagged points among `keep` (positions in `p`) when there are
+// more than kFlaggedThinAbove of them: one per cell of the fine grid, always
+// keeping the kMaxLabels largest and smallest y (the labelled rows) and the
+// smallest and largest x. The unflagged positions are left as they are.
+std::vector<std::size_t> thinFlagged(const DiagnosticPoints::Panel& p, const std::vector<std::size_t>& keep,
+                                     const std::vector<char>& flagged) {
+    std::vector<std::size_t> out, at;  // `at`: positions of the flagged points
+    for (std::size_t k : keep) (flagged[p.obs[k]] ? at : out).push_back(k);
+    if (at.size() <= kFlaggedThinAbove) return keep;
+    std::vector<double> fx(at.size()), fy(at.size());
+    for (std::size_t j = 0; j < at.size(); ++j) {
+        fx[j] = p.x[at[j]];
+        fy[j] = p.y[at[j]];
+    }
+    std::vector<char> must(at.size(), 0);
+    std::vector<std::size_t> order(at.size());
+    for (std::size_t j = 0; j < order.size(); ++j) order[j] = j;
+    const std::size_t m = DiagnosticPlot::kMaxLabels;
+    const auto top = order.begin() + static_cast<std::ptrdiff_t>(m);
+    std::partial_sort(order.begin(), top, order.end(), [&](std::size_t a, std::size_t b) { return fy[a] > fy[b]; });
+    for (auto it = order.begin(); it != top; ++it) must[*it] = 1;
+    std::partial_sort(order.begin(), top, order.end(), [&](std::size_t a, std::size_t b) { return fy[a] < fy[b]; });
+    for (auto it = order.begin(); it != top; ++it) must[*it] = 1;
+    must[static_cast<std::size_t>(std::min_element(fx.begin(), fx.end()) - fx.begin())] = 1;
+    must[static_cast<std::size_t>(std::max_element(fx.begin(), fx.end()) - fx.begin())] = 1;
+    for (std::size_t j : thinScatter(fx, fy, kFlaggedThinAbove, kFlaggedBinsX, kFlaggedBinsY,
+                                     [&](std::size_t j) { return must[j] != 0; }))
+        out.push_back(at[j]);
+    return out;
 }
 
 }  // namespace
@@ -284,7 +326,10 @@ DiagnosticPoints DiagnosticPlot::points(Kind kind, const Diagnostics& d, const R
             p.xs[p.obs[k]] = p.x[k];
             p.ys[p.obs[k]] = p.y[k];
         }
-        p.keep = thinScatter(p.x, p.y, kThinAbove, 600, 400, [&](std::size_t k) { return flagged[p.obs[k]] != 0; });
+        p.keep = thinFlagged(p,
+                             thinScatter(p.x, p.y, kThinAbove, kThinBinsX, kThinBinsY,
+                                         [&](std::size_t k) { return flagged[p.obs[k]] != 0; }),
+                             flagged);
         // In the order QCPGraph keeps its data (by x), so it need not sort them.
         std::stable_sort(p.keep.begin(), p.keep.end(), [&](std::size_t a, std::size_t b) { return p.x[a] < p.x[b]; });
     }

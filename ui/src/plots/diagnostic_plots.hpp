@@ -11,8 +11,10 @@
 //   a caption stating it; the largest rows above a line are labelled with
 //   their line (or row) number.
 //
-// Flagged rows are drawn on top in their own marker and never thinned away;
-// above 20,000 points the rest are thinned to one per screen-sized bin.
+// Flagged rows are drawn on top in their own marker. Above 20,000 points the
+// rest are thinned for display to one per cell of a 120 × 80 grid; above
+// 5,000 flagged rows those are thinned the same way among themselves, the
+// labelled (extreme) ones always kept (the rule in diagnostic_plots.cpp).
 #pragma once
 
 #include <QString>

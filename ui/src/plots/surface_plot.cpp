@@ -223,7 +223,9 @@ void SurfacePlot::drawObservedRows() {
         QBrush(estuary::withAlpha(greyscale_ ? estuary::toGrey(estuary::ink) : estuary::ink, many ? 0.3 : 0.5)), 4));
     pts->removeFromLegend();
     QVector<double> xs, zs;
-    for (std::size_t i : thinScatter(pointsX_, pointsZ_)) {
+    // Display thinning above 20,000 rows: one row per cell of a 150 × 100 grid
+    // (cells of about 4 px; the dots are 4 px wide, so a dense cloud stays filled).
+    for (std::size_t i : thinScatter(pointsX_, pointsZ_, 20000, 150, 100)) {
         xs << pointsX_[i];
         zs << pointsZ_[i];
     }

@@ -9,6 +9,7 @@
 #include <QProgressBar>
 #include <QPushButton>
 #include <QTableView>
+#include <QTimer>
 #include <QVBoxLayout>
 #include <algorithm>
 #include <cmath>
@@ -77,6 +78,9 @@ ChecksSection::ChecksSection(ProjectDocument* doc, QWidget* parent)
     list_->verticalHeader()->setDefaultSectionSize(list_->fontMetrics().height() + 6);
     list_->horizontalHeader()->setStretchLastSection(true);
     list_->setShowGrid(false);
+    // Columns sized from the first rows only: sizing them from every flagged
+    // row of a big fit would hold up the window.
+    list_->horizontalHeader()->setResizeContentsPrecision(kListSizingRows);
     list_->setWordWrap(false);
     side->addWidget(list_, 1);
     auto* buttons = new QHBoxLayout;
@@ -195,8 +199,7 @@ void ChecksSection::startWorker() {
         busy_->hide();
         cancel_->hide();
         diag_ = outcome->diag;
-        showDiagnostics(outcome->problem, outcome->points);
-        Q_EMIT computed();
+        showDiagnostics(outcome->problem, outcome->points, true);
     });
     diag_.reset();
     showDiagnostics(QString());  // the checks of an earlier fit never stay on show under this note
@@ -242,12 +245,21 @@ void ChecksSection::cancel() {
 }
 
 void ChecksSection::showDiagnostics(const QString& problem,
-                                    const std::vector<std::shared_ptr<const DiagnosticPoints>>& points) {
-    const RowNumbers rows = diag_ ? rowNumbers(*run_) : RowNumbers{};
-    DiagnosticPlot* const plots[] = {residuals_, quantiles_, influence_};
-    for (std::size_t k = 0; k < 3; ++k) plots[k]->setDiagnostics(diag_, rows, k < points.size() ? points[k] : nullptr);
+                                    const std::vector<std::shared_ptr<const DiagnosticPoints>>& points, bool staged) {
+    const int shown = ++shown_;  // a plot still due from an earlier call is not drawn
+    plotsDue_ = false;
+    auto rows = std::make_shared<const RowNumbers>(diag_ ? rowNumbers(*run_) : RowNumbers{});
+    if (staged && diag_ && points.size() == 3) {
+        plotsDue_ = true;
+        drawPlotLater(0, shown, rows, points);
+    } else {
+        DiagnosticPlot* const plots[] = {residuals_, quantiles_, influence_};
+        for (std::size_t k = 0; k < 3; ++k)
+            plots[k]->setDiagnostics(diag_, *rows, k < points.size() ? points[k] : nullptr);
+        if (staged) Q_EMIT computed();
+    }
     model_->setDiagnostics(diag_, run_ ? run_->table : nullptr);
-    list_->resizeColumnsToContents();
+    list_->resizeColumnsToContents();  // sized from at most kListSizingRows rows (set up in the constructor)
     show_->setEnabled(false);
     if (!diag_) {
         note_->setText(problem);
@@ -256,6 +268,23 @@ void ChecksSection::showDiagnostics(const QString& problem,
     }
     note_->setText(noteText(*diag_));
     rules_->setText(rulesText(*diag_));
+}
+
+void ChecksSection::drawPlotLater(std::size_t k, int shown, std::shared_ptr<const RowNumbers> rows,
+                                  std::vector<std::shared_ptr<const DiagnosticPoints>> points) {
+    // One plot a turn of the event loop: drawing a dense plot takes a while,
+    // and the window answers in between.
+    QTimer::singleShot(0, this, [this, k, shown, rows = std::move(rows), points = std::move(points)] {
+        if (shown != shown_) return;  // the section has shown something else since
+        DiagnosticPlot* const plots[] = {residuals_, quantiles_, influence_};
+        plots[k]->setDiagnostics(diag_, *rows, points[k]);
+        if (k + 1 < points.size()) {
+            drawPlotLater(k + 1, shown, rows, points);
+            return;
+        }
+        plotsDue_ = false;
+        Q_EMIT computed();
+    });
 }
 
 RowNumbers ChecksSection::rowNumbers(const AnalysisRun& run) {

@@ -44,7 +44,7 @@ public:
     std::shared_ptr<const Diagnostics> shownDiagnostics() const { return diag_; }
     // Whether a worker computes the diagnostics now, and its Cancel button
     // (which, once a pass is cancelled, offers to compute them again).
-    bool isComputing() const { return job_ != nullptr; }
+    bool isComputing() const { return job_ != nullptr || plotsDue_; }  // plotsDue_: drawn after the worker
     QPushButton* cancelButton() const { return cancel_; }
     // Rows × coefficients from which the diagnostics are computed in a worker.
     void setBackgroundThreshold(double cells) { threshold_ = cells; }
@@ -76,8 +76,12 @@ private:
     void dropWorker();
     // Shows diag_ (or `problem` without it) in the plots, the list and the
     // notes; `points` (residuals, quantiles, influence) when computed in the worker.
+    // `staged`: a worker's result; the plots are drawn one a turn of the event
+    // loop and computed() is emitted after the last.
     void showDiagnostics(const QString& problem,
-                         const std::vector<std::shared_ptr<const DiagnosticPoints>>& points = {});
+                         const std::vector<std::shared_ptr<const DiagnosticPoints>>& points = {}, bool staged = false);
+    void drawPlotLater(std::size_t k, int shown, std::shared_ptr<const RowNumbers> rows,
+                       std::vector<std::shared_ptr<const DiagnosticPoints>> points);
     void selectionChanged();
     void emitSelectedRows();
     void selectObservation(std::size_t observation);
@@ -93,6 +97,9 @@ private:
     bool dirty_ = false;
     BackgroundJob* job_ = nullptr;  // the worker's pass in progress
     int generation_ = 0;            // counts passes: only the newest one's result is shown
+    int shown_ = 0;                 // counts showDiagnostics calls: a plot due from an older one is dropped
+    bool plotsDue_ = false;         // plots of the worker's result still to be drawn
+    static constexpr int kListSizingRows = 100;
     double threshold_;
     QString error_;
     QLabel* note_;
