@@ -564,10 +564,13 @@ void DiagnosticPlot::labelRows(Panel& p, const Eigen::VectorXd& value, double ab
     for (std::size_t i = 0; i < d_->n; ++i)
         if (std::isfinite(value[static_cast<Eigen::Index>(i)]) && value[static_cast<Eigen::Index>(i)] > above)
             over.push_back(i);
-    std::stable_sort(over.begin(), over.end(), [&](std::size_t a, std::size_t b) {
-        return value[static_cast<Eigen::Index>(a)] > value[static_cast<Eigen::Index>(b)];
+    // Only the first kMaxLabels in order (ties by row, as a stable sort of the rows would give).
+    const auto first = over.begin() + static_cast<std::ptrdiff_t>(std::min(over.size(), kMaxLabels));
+    std::partial_sort(over.begin(), first, over.end(), [&](std::size_t a, std::size_t b) {
+        const double va = value[static_cast<Eigen::Index>(a)], vb = value[static_cast<Eigen::Index>(b)];
+        return va > vb || (va == vb && a < b);
     });
-    if (over.size() > kMaxLabels) over.resize(kMaxLabels);
+    over.erase(first, over.end());
     const QCPRange xr = p.rect->axis(QCPAxis::atBottom)->range();
     const QCPRange yr = p.rect->axis(QCPAxis::atLeft)->range();
     std::vector<std::pair<double, double>> placed;  // labelled points, as shares of the axis ranges

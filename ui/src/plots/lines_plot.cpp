@@ -14,8 +14,6 @@ namespace moderato::ui {
 
 namespace {
 
-constexpr int kBinsX = 240, kBinsY = 160;
-
 QColor seriesColour(int k, bool grey) { return grey ? estuary::toGrey(estuary::series(k)) : estuary::series(k); }
 
 }  // namespace
@@ -55,69 +53,53 @@ void LinesPlot::resizeEvent(QResizeEvent* event) {
     if (hasData_ && fitLegend(plot_)) plot_->replot();
 }
 
-void LinesPlot::drawPoints(double ylo, double yhi) {
-    const std::size_t n = std::min(data_.pointsX.size(), data_.pointsY.size());
+void LinesPlot::drawPoints() {
     pointsMode_ = 0;
-    if (!data_.showPoints || n == 0) return;
-    int groups = 1;
-    if (data_.pointsByGroup)
-        for (int g : data_.pointsGroup) groups = std::max(groups, g + 1);
-    auto groupOf = [&](std::size_t i) {
-        return data_.pointsByGroup && i < data_.pointsGroup.size() ? data_.pointsGroup[i] : 0;
-    };
-    auto colourOf = [&](int g) { return data_.pointsByGroup ? seriesColour(g, greyscale_) : estuary::ink; };
-
-    if (n <= kMaxPoints) {
-        pointsMode_ = 1;
-        // Fewer points, more opaque: about 0.57 at 200 rows, 0.18 at 2,000, 0.1 from 6,400.
-        const double alpha = std::clamp(8.0 / std::sqrt(static_cast<double>(n)), 0.1, 0.6);
-        std::vector<QVector<double>> keys(static_cast<std::size_t>(groups)), values(static_cast<std::size_t>(groups));
-        for (std::size_t i = 0; i < n; ++i) {
-            const std::size_t g = static_cast<std::size_t>(groupOf(i));
-            keys[g].push_back(data_.pointsX[i]);
-            values[g].push_back(data_.pointsY[i]);
-        }
-        for (int g = 0; g < groups; ++g) {
-            QCPGraph* graph = plot_->addGraph();
-            graph->setLineStyle(QCPGraph::lsNone);
-            graph->setScatterStyle(
-                QCPScatterStyle(QCPScatterStyle::ssDisc, estuary::withAlpha(colourOf(g), alpha), 4.5));
-            graph->setData(keys[static_cast<std::size_t>(g)], values[static_cast<std::size_t>(g)]);
-            graph->setAntialiasedScatters(n <= 5000);
-            graph->setSelectable(QCP::stNone);
-            if (data_.pointsByGroup || g > 0) graph->removeFromLegend();
-            else graph->setName(tr("observed rows"));
-        }
+    if (!data_.showPoints || !data_.points || data_.points->rows == 0) return;
+    const LinesPoints& p = *data_.points;
+    if (p.binned) {
+        drawPointMaps(p);
         return;
     }
-    // Binned: a grid of counts per group, drawn as translucent colour maps
-    // (log scale of the count; empty cells transparent).
-    pointsMode_ = 2;
-    const double xlo = data_.xRange.first, xhi = data_.xRange.second;
-    const double dx = (xhi - xlo) / (kBinsX - 1), dy = (yhi - ylo) / (kBinsY - 1);
-    if (!(dx > 0) || !(dy > 0)) return;
-    std::vector<std::vector<int>> counts(static_cast<std::size_t>(groups), std::vector<int>(kBinsX * kBinsY, 0));
-    for (std::size_t i = 0; i < n; ++i) {
-        const long bx = std::lround((data_.pointsX[i] - xlo) / dx), by = std::lround((data_.pointsY[i] - ylo) / dy);
-        if (bx < 0 || bx >= kBinsX || by < 0 || by >= kBinsY) continue;
-        ++counts[static_cast<std::size_t>(groupOf(i))][static_cast<std::size_t>(by * kBinsX + bx)];
+    pointsMode_ = 1;
+    // Fewer points, more opaque: about 0.57 at 200 rows, 0.18 at 2,000, 0.1 from 6,400.
+    const double alpha = std::clamp(8.0 / std::sqrt(static_cast<double>(p.rows)), 0.1, 0.6);
+    for (int g = 0; g < p.groups; ++g) {
+        const auto& xs = p.x[static_cast<std::size_t>(g)];
+        const auto& ys = p.y[static_cast<std::size_t>(g)];
+        QCPGraph* graph = plot_->addGraph();
+        graph->setLineStyle(QCPGraph::lsNone);
+        graph->setScatterStyle(
+            QCPScatterStyle(QCPScatterStyle::ssDisc, estuary::withAlpha(pointColour(g), alpha), 4.5));
+        graph->setData(QVector<double>(xs.begin(), xs.end()), QVector<double>(ys.begin(), ys.end()), true);
+        graph->setAntialiasedScatters(p.rows <= 5000);
+        graph->setSelectable(QCP::stNone);
+        if (data_.pointsByGroup || g > 0) graph->removeFromLegend();
+        else graph->setName(tr("observed rows"));
     }
-    for (int g = 0; g < groups; ++g) {
-        const auto& c = counts[static_cast<std::size_t>(g)];
+}
+
+// Binned points: a grid of counts per group, drawn as translucent colour maps
+// (log scale of the count; empty cells transparent).
+void LinesPlot::drawPointMaps(const LinesPoints& p) {
+    pointsMode_ = 2;
+    constexpr int bx = LinesPoints::kBinsX, by = LinesPoints::kBinsY;
+    for (int g = 0; g < p.groups; ++g) {
+        const auto& c = p.counts[static_cast<std::size_t>(g)];
         const int most = *std::max_element(c.begin(), c.end());
         if (most == 0) continue;
         auto* map = new QCPColorMap(plot_->xAxis, plot_->yAxis);
-        map->data()->setSize(kBinsX, kBinsY);
-        map->data()->setRange(QCPRange(xlo, xhi), QCPRange(ylo, yhi));
-        for (int by = 0; by < kBinsY; ++by)
-            for (int bx = 0; bx < kBinsX; ++bx) {
-                const int k = c[static_cast<std::size_t>(by * kBinsX + bx)];
-                map->data()->setCell(bx, by, k > 0 ? static_cast<double>(k) : std::nan(""));
+        map->data()->setSize(bx, by);
+        map->data()->setRange(QCPRange(p.xRange.first, p.xRange.second), QCPRange(p.yRange.first, p.yRange.second));
+        for (int j = 0; j < by; ++j)
+            for (int i = 0; i < bx; ++i) {
+                const int k = c[static_cast<std::size_t>(j * bx + i)];
+                map->data()->setCell(i, j, k > 0 ? static_cast<double>(k) : std::nan(""));
             }
         QCPColorGradient gradient;
         gradient.clearColorStops();
-        gradient.setColorStopAt(0.0, estuary::withAlpha(colourOf(g), 0.12));
-        gradient.setColorStopAt(1.0, estuary::withAlpha(colourOf(g), 0.75));
+        gradient.setColorStopAt(0.0, estuary::withAlpha(pointColour(g), 0.12));
+        gradient.setColorStopAt(1.0, estuary::withAlpha(pointColour(g), 0.75));
         gradient.setNanHandling(QCPColorGradient::nhTransparent);
         map->setGradient(gradient);
         map->setDataScaleType(QCPAxis::stLogarithmic);
@@ -136,6 +118,10 @@ void LinesPlot::drawPoints(double ylo, double yhi) {
     }
 }
 
+QColor LinesPlot::pointColour(int group) const {
+    return data_.pointsByGroup ? seriesColour(group, greyscale_) : estuary::ink;
+}
+
 void LinesPlot::rebuild() {
     plot_->clearItems();
     plot_->clearPlottables();
@@ -151,10 +137,10 @@ void LinesPlot::rebuild() {
     plot_->xAxis->setRange(d.xRange.first, d.xRange.second);
     setAxisTitle(plot_->xAxis, d.focalTitle);
     setAxisTitle(plot_->yAxis, d.outcomeTitle);
-    const auto [ylo, yhi] = fitValueRange();
+    fitValueRange();
 
     plot_->setCurrentLayer(QStringLiteral("main"));
-    drawPoints(ylo, yhi);
+    drawPoints();
     drawLines();
     drawCrossings();
     if (!d.differName.isEmpty()) drawDifferStrips();
@@ -164,7 +150,7 @@ void LinesPlot::rebuild() {
 }
 
 // The value axis covers every band, the slider's line at both ends, and the points.
-std::pair<double, double> LinesPlot::fitValueRange() {
+void LinesPlot::fitValueRange() {
     const LinesPlotData& d = data_;
     double ylo = std::numeric_limits<double>::infinity(), yhi = -ylo;
     auto take = [&](double v) {
@@ -182,8 +168,10 @@ std::pair<double, double> LinesPlot::fitValueRange() {
         take(p.lower);
         take(p.upper);
     }
-    if (d.showPoints)
-        for (double v : d.pointsY) take(v);
+    if (d.showPoints && d.points && d.points->rows > 0) {
+        take(d.points->yRange.first);
+        take(d.points->yRange.second);
+    }
     if (!(yhi > ylo)) {
         ylo = std::isfinite(ylo) ? ylo - 1 : 0;
         yhi = ylo + 2;
@@ -192,7 +180,6 @@ std::pair<double, double> LinesPlot::fitValueRange() {
     ylo -= pad;
     yhi += pad;
     plot_->yAxis->setRange(ylo, yhi);
-    return {ylo, yhi};
 }
 
 void LinesPlot::drawLines() {

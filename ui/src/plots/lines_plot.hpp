@@ -12,11 +12,13 @@
 
 #include <QString>
 #include <QWidget>
+#include <memory>
 #include <utility>
 #include <vector>
 
 #include "moderato/probing/probe_curves.hpp"
 #include "plots/figure_source.hpp"
+#include "plots/observed_points.hpp"
 
 class QCustomPlot;
 class QCPLayer;
@@ -33,11 +35,11 @@ struct LinesPlotData {
     };
     std::vector<Line> lines;
     QString highlightName;  // legend entry of the slider's line
-    // Observed data (drawn when showPoints).
+    // Observed data (drawn when showPoints), made ready to draw where the
+    // rows are (ProbeEngine); their group index is the series index.
     bool showPoints = false;
-    std::vector<double> pointsX, pointsY;
-    std::vector<int> pointsGroup;  // series index per point (empty: all 0)
-    bool pointsByGroup = false;    // colour points by group
+    std::shared_ptr<const LinesPoints> points;
+    bool pointsByGroup = false;  // colour points by group
     struct Crossing {
         double x = 0, y = 0;          // where the lines meet
         double lower = 0, upper = 0;  // its interval along the focal predictor
@@ -83,9 +85,6 @@ public:
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override;
 
-    // Above this many rows the points are binned into a grid of counts.
-    static constexpr std::size_t kMaxPoints = 20000;
-
 protected:
     void resizeEvent(QResizeEvent* event) override;
 
@@ -93,12 +92,14 @@ private:
     // Draws everything again, in this order: points, bands and lines, the
     // crossings, where the lines differ, and the slider's line on its layer.
     void rebuild();
-    std::pair<double, double> fitValueRange();
+    void fitValueRange();
     void drawLines();
     void drawCrossings();
     void drawDifferStrips();
     void drawHighlightLayer();
-    void drawPoints(double ylo, double yhi);
+    void drawPoints();
+    void drawPointMaps(const LinesPoints& p);
+    QColor pointColour(int group) const;
 
     QCustomPlot* plot_;
     LinesPlotData data_;

@@ -5,7 +5,6 @@
 
 #include "moderato/support/error.hpp"
 #include "plots/plot_style.hpp"
-#include "plots/scatter_thinning.hpp"
 #include "style/estuary.hpp"
 
 namespace moderato::ui {
@@ -104,7 +103,8 @@ QString SurfacePlot::subtitle() const {
     return what + tr("; other predictors at their means or reference levels");
 }
 
-void SurfacePlot::setRun(const Analysis& analysis, const AnalysisRun& run, const DataRegion* region) {
+void SurfacePlot::setRun(const Analysis& analysis, const AnalysisRun& run, const DataRegion* region,
+                         std::shared_ptr<const SurfacePoints> points) {
     if (!run.surface) {
         clear();
         return;
@@ -119,13 +119,16 @@ void SurfacePlot::setRun(const Analysis& analysis, const AnalysisRun& run, const
     } catch (const InputError&) {
         region_ = {};
     }
-    pointsX_.clear();
-    pointsZ_.clear();
-    const int jx = run.design.main_column(grid_->x), jz = run.design.main_column(grid_->z);
+    points_.reset();
     // The observed rows only when the analysis shows data points (as the Lines plot does).
-    if (jx >= 0 && jz >= 0 && analysis.probe.show_points) {
-        pointsX_.assign(run.design.X.col(jx).data(), run.design.X.col(jx).data() + run.design.X.rows());
-        pointsZ_.assign(run.design.X.col(jz).data(), run.design.X.col(jz).data() + run.design.X.rows());
+    const int jx = run.design.main_column(grid_->x), jz = run.design.main_column(grid_->z);
+    if (analysis.probe.show_points && points) {
+        points_ = std::move(points);
+    } else if (analysis.probe.show_points && jx >= 0 && jz >= 0) {
+        const auto column = [&](int j) {
+            return std::vector<double>(run.design.X.col(j).data(), run.design.X.col(j).data() + run.design.X.rows());
+        };
+        points_ = std::make_shared<const SurfacePoints>(makeSurfacePoints(column(jx), column(jz)));
     }
     redraw();
 }
@@ -134,8 +137,7 @@ void SurfacePlot::clear() {
     grid_.reset();
     values_.resize(0, 0);
     region_ = {};
-    pointsX_.clear();
-    pointsZ_.clear();
+    points_.reset();
     redraw();
 }
 
@@ -163,7 +165,7 @@ void SurfacePlot::redraw() {
     setAxisTitle(plot_->yAxis, QString::fromStdString(g.z));
     const BeyondQuadrants q = drawMap(g);
     // The observed rows, light dots (thinned when dense).
-    if (!pointsX_.empty()) drawObservedRows();
+    if (points_ && !points_->x.empty()) drawObservedRows();
     // Edge of the data.
     if (region_.x.size() >= 2) drawEdge();
     markBeyond(q, nx * nz);
@@ -217,19 +219,13 @@ void SurfacePlot::drawObservedRows() {
     pts->setName(tr("observed rows"));
     pts->setLineStyle(QCPGraph::lsNone);
     // ink dots with a light ring: visible on both ends of the ramp
-    const bool many = pointsX_.size() > 2000;
+    const bool many = points_->rows > 2000;
     pts->setScatterStyle(QCPScatterStyle(
         QCPScatterStyle::ssCircle, QPen(QColor(255, 255, 255, many ? 90 : 150), 0.8),
         QBrush(estuary::withAlpha(greyscale_ ? estuary::toGrey(estuary::ink) : estuary::ink, many ? 0.3 : 0.5)), 4));
     pts->removeFromLegend();
-    QVector<double> xs, zs;
-    // Display thinning above 20,000 rows: one row per cell of a 150 × 100 grid
-    // (cells of about 4 px; the dots are 4 px wide, so a dense cloud stays filled).
-    for (std::size_t i : thinScatter(pointsX_, pointsZ_, 20000, 150, 100)) {
-        xs << pointsX_[i];
-        zs << pointsZ_[i];
-    }
-    pts->setData(xs, zs);
+    pts->setData(QVector<double>(points_->x.begin(), points_->x.end()),
+                 QVector<double>(points_->z.begin(), points_->z.end()));
 }
 
 void SurfacePlot::drawEdge() {

@@ -7,11 +7,13 @@
 #pragma once
 
 #include <QWidget>
+#include <memory>
 #include <optional>
 
 #include "moderato/probing/surface_view.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "plots/figure_source.hpp"
+#include "plots/observed_points.hpp"
 
 class QCustomPlot;
 class QCPColorMap;
@@ -25,9 +27,11 @@ class SurfacePlot : public QWidget, public FigureSource {
     Q_OBJECT
 public:
     explicit SurfacePlot(QWidget* parent = nullptr);
-    // Draws run.surface (nothing when the run has none).
-    // `region`: the run's data region when already computed (ProbeExtras).
-    void setRun(const Analysis& analysis, const AnalysisRun& run, const DataRegion* region = nullptr);
+    // Draws run.surface (nothing when the run has none). `region` and
+    // `points`: the run's data region and observed rows when already
+    // computed (ProbeExtras); else they are computed here.
+    void setRun(const Analysis& analysis, const AnalysisRun& run, const DataRegion* region = nullptr,
+                std::shared_ptr<const SurfacePoints> points = nullptr);
     void clear();
 
     QString figureName() const override { return tr("Surface plot"); }
@@ -68,7 +72,7 @@ private:
     std::optional<SurfaceGrid> grid_;
     Eigen::MatrixXd values_;
     DataRegion region_;
-    std::vector<double> pointsX_, pointsZ_;
+    std::shared_ptr<const SurfacePoints> points_;  // drawn when the analysis shows data points
     QString outcome_;
     bool probability_ = false, logistic_ = false, greyscale_ = false;
     int beyondCells_ = 0;

@@ -25,9 +25,6 @@ ProbeEngine::ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis&
         request_.values[second] = held_[second];
     }
 
-    const Table& t = *run_->table;
-    const Column& focalColumn = t.at(focal());
-    const Column& moderatorColumn = t.at(moderator());
     const CategoricalInfo* cat = d.categorical(moderator());
     if (groups()) {
         if (cat) {
@@ -36,31 +33,6 @@ ProbeEngine::ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis&
         } else {
             groupNames_ = {"0", "1"};
             groupValues_ = {0.0, 1.0};
-        }
-    }
-
-    const std::size_t n = d.n();
-    pointsX_.resize(n);
-    pointsY_.resize(n);
-    pointsGroup_.assign(n, 0);
-    if (!cat) moderatorValues_.resize(n);
-    std::vector<int> codeToGroup;
-    if (cat) {
-        codeToGroup.assign(moderatorColumn.levels.size(), 0);
-        for (std::size_t c = 0; c < moderatorColumn.levels.size(); ++c)
-            codeToGroup[c] = std::max(0, d.level_index(moderator(), moderatorColumn.levels[c]));
-    }
-    for (std::size_t i = 0; i < n; ++i) {
-        const std::size_t r = d.rows[i];
-        pointsX_[i] = focalColumn.numbers[r];
-        pointsY_[i] = d.y[static_cast<Eigen::Index>(i)];
-        if (cat) {
-            const int code = moderatorColumn.codes[r];
-            pointsGroup_[i] = code >= 0 ? codeToGroup[static_cast<std::size_t>(code)] : 0;
-        } else {
-            const double m = moderatorColumn.numbers[r];
-            moderatorValues_[i] = m;
-            if (groups()) pointsGroup_[i] = m == 1.0 ? 1 : 0;
         }
     }
 
@@ -138,29 +110,79 @@ const SignificanceRegions* ProbeEngine::regions(bool simultaneous) const {
     return nullptr;
 }
 
+namespace {
+
+// The used rows' focal values, outcome values, moderator values (numeric
+// moderator) and group indices (Groups; else 0).
+struct RowValues {
+    std::vector<double> x, y, moderator;
+    std::vector<int> group;
+};
+
+}  // namespace
+
 void ProbeEngine::prepareExtras() {
     if (!valid() || extras_) return;
+    const Design& d = run_->design;
+    const Table& t = *run_->table;
+    const Column& focalColumn = t.at(focal());
+    const Column& moderatorColumn = t.at(moderator());
+    const CategoricalInfo* cat = d.categorical(moderator());
+    std::vector<int> codeToGroup;
+    if (cat)
+        for (const std::string& level : moderatorColumn.levels)
+            codeToGroup.push_back(std::max(0, d.level_index(moderator(), level)));
+    RowValues v;
+    const std::size_t n = d.n();
+    v.x.resize(n);
+    v.y.resize(n);
+    v.group.assign(n, 0);
+    if (!cat) v.moderator.resize(n);
+    for (std::size_t i = 0; i < n; ++i) {
+        const std::size_t r = d.rows[i];
+        v.x[i] = focalColumn.numbers[r];
+        v.y[i] = d.y[static_cast<Eigen::Index>(i)];
+        if (cat) {
+            const int code = moderatorColumn.codes[r];
+            v.group[i] = code >= 0 ? codeToGroup[static_cast<std::size_t>(code)] : 0;
+        } else {
+            v.moderator[i] = moderatorColumn.numbers[r];
+            if (groups()) v.group[i] = v.moderator[i] == 1.0 ? 1 : 0;
+        }
+    }
+    extras_ = makeExtras(v.x, v.y, v.moderator, groups() ? v.group : std::vector<int>{});
+}
+
+std::shared_ptr<const ProbeExtras> ProbeEngine::makeExtras(const std::vector<double>& x, const std::vector<double>& y,
+                                                           std::vector<double> moderator,
+                                                           const std::vector<int>& group) const {
     auto out = std::make_shared<ProbeExtras>();
-    out->rug = rug(kRugPoints);
+    out->lines = std::make_shared<const LinesPoints>(makeLinesPoints(x, y, group));
     if (run_->surface) {
         try {
             out->region = data_region(run_->design, run_->surface->x, run_->surface->z);
         } catch (const InputError&) {
             out->region = DataRegion{};
         }
+        // In the design's own units, as the surface grid is.
+        const Design& d = run_->design;
+        const int jx = d.main_column(run_->surface->x), jz = d.main_column(run_->surface->z);
+        if (jx >= 0 && jz >= 0) {
+            const auto column = [&](int j) {
+                return std::vector<double>(d.X.col(j).data(), d.X.col(j).data() + d.X.rows());
+            };
+            out->surface = std::make_shared<const SurfacePoints>(makeSurfacePoints(column(jx), column(jz)));
+        }
     }
-    extras_ = std::move(out);
-}
-
-std::vector<double> ProbeEngine::rug(std::size_t max) const {
-    if (extras_ && max == kRugPoints) return extras_->rug;
-    std::vector<double> v = moderatorValues_;
-    std::sort(v.begin(), v.end());
-    v.erase(std::unique(v.begin(), v.end()), v.end());
-    if (v.size() <= max || max < 2) return v;
-    std::vector<double> out;
-    out.reserve(max);
-    for (std::size_t k = 0; k < max; ++k) out.push_back(v[k * (v.size() - 1) / (max - 1)]);
+    // The rug: distinct moderator values, evenly spaced ranks of them above kRugPoints.
+    std::sort(moderator.begin(), moderator.end());
+    moderator.erase(std::unique(moderator.begin(), moderator.end()), moderator.end());
+    if (moderator.size() <= kRugPoints) {
+        out->rug = std::move(moderator);
+    } else {
+        for (std::size_t k = 0; k < kRugPoints; ++k)
+            out->rug.push_back(moderator[k * (moderator.size() - 1) / (kRugPoints - 1)]);
+    }
     return out;
 }
 

@@ -14,15 +14,21 @@
 #include "moderato/probing/response_scale.hpp"
 #include "moderato/probing/surface_view.hpp"
 #include "moderato/project/analysis_run.hpp"
+#include "plots/observed_points.hpp"
 
 namespace moderato::ui {
 
 // What the plots need of a run beyond the probe itself that scans every row
-// (a sort of the moderator's values, a convex hull): computed once per run,
-// in a worker for big data (ProbeSection), and handed to the engine.
+// (a sort of the moderator's values, a convex hull, the observed rows made
+// ready to draw): computed once per run, in a worker for big data
+// (ProbeSection), and handed to the engine.
 struct ProbeExtras {
-    std::vector<double> rug;           // rug(kRugPoints)
+    std::vector<double> rug;           // rug(): distinct moderator values
     std::optional<DataRegion> region;  // the Surface plot's data region (when the run has a surface)
+    // The observed rows: focal predictor and outcome per group (Lines plot),
+    // focal predictor and moderator (Surface plot, when the run has a surface).
+    std::shared_ptr<const LinesPoints> lines;
+    std::shared_ptr<const SurfacePoints> surface;
 };
 
 class ProbeEngine {
@@ -33,8 +39,9 @@ public:
     // is computed when asked for).
     ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis& analysis,
                 std::shared_ptr<const ProbeExtras> extras = nullptr);
-    // Computes the extras now (an engine may be built and prepared in a
-    // worker: it reads only its run) and hands them on.
+    // Computes the extras now, unless the engine was given them (an engine
+    // may be built and prepared in a worker: it reads only its run). Every
+    // accessor of what they hold needs them.
     void prepareExtras();
     std::shared_ptr<const ProbeExtras> extras() const { return extras_; }
 
@@ -85,14 +92,14 @@ public:
     // The regions of significance for the band shown (nullptr when none).
     const SignificanceRegions* regions(bool simultaneous) const;
 
-    // Observed data on the used rows: focal values, outcome values and the
-    // group index of each row (Groups; else 0).
-    const std::vector<double>& pointsX() const { return pointsX_; }
-    const std::vector<double>& pointsY() const { return pointsY_; }
-    const std::vector<int>& pointsGroup() const { return pointsGroup_; }
-    // Distinct observed moderator values, at most `max` of them (evenly spaced
-    // ranks of the sorted distinct values, so the rug keeps its shape).
-    std::vector<double> rug(std::size_t max = kRugPoints) const;
+    // Observed data on the used rows, ready to draw: focal values against
+    // outcome values by group (Groups; else one group), and focal values
+    // against moderator values (nullptr without a surface).
+    std::shared_ptr<const LinesPoints> linesPoints() const { return extras_ ? extras_->lines : nullptr; }
+    std::shared_ptr<const SurfacePoints> surfacePoints() const { return extras_ ? extras_->surface : nullptr; }
+    // Distinct observed moderator values, at most kRugPoints of them (evenly
+    // spaced ranks of the sorted distinct values, so the rug keeps its shape).
+    std::vector<double> rug() const { return extras_ ? extras_->rug : std::vector<double>{}; }
     static constexpr std::size_t kRugPoints = 2000;
     // The Surface plot's data region when the extras hold it (nullptr: compute it).
     const DataRegion* surfaceRegion() const { return extras_ && extras_->region ? &*extras_->region : nullptr; }
@@ -100,6 +107,9 @@ public:
     const ScaleRequest& scaleRequest() const { return request_; }
 
 private:
+    std::shared_ptr<const ProbeExtras> makeExtras(const std::vector<double>& x, const std::vector<double>& y,
+                                                  std::vector<double> moderator, const std::vector<int>& group) const;
+
     std::shared_ptr<const AnalysisRun> run_;
     Analysis analysis_;
     ScaleRequest request_;
@@ -107,8 +117,6 @@ private:
     std::vector<std::string> groupNames_;
     std::vector<double> groupValues_;
     std::pair<double, double> axisRange_{0, 1};
-    std::vector<double> pointsX_, pointsY_, moderatorValues_;
-    std::vector<int> pointsGroup_;
     std::shared_ptr<const ProbeExtras> extras_;
 };
 

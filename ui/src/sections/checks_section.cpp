@@ -189,6 +189,7 @@ void ChecksSection::startWorker() {
         std::shared_ptr<const Diagnostics> diag;
         QString problem;
         std::vector<std::shared_ptr<const DiagnosticPoints>> points;  // residuals, quantiles, influence
+        std::shared_ptr<const RowNumbers> rows;
     };
     auto outcome = std::make_shared<Outcome>();
     job_ = new BackgroundJob(this);
@@ -199,7 +200,7 @@ void ChecksSection::startWorker() {
         busy_->hide();
         cancel_->hide();
         diag_ = outcome->diag;
-        showDiagnostics(outcome->problem, outcome->points, true);
+        showDiagnostics(outcome->problem, outcome->points, true, outcome->rows);
     });
     diag_.reset();
     showDiagnostics(QString());  // the checks of an earlier fit never stay on show under this note
@@ -212,13 +213,14 @@ void ChecksSection::startWorker() {
     job_->start([run = run_, outcome](const BackgroundJob::Progress&) {
         try {
             outcome->diag = std::make_shared<const Diagnostics>(moderato::diagnostics(run->design, run->fit));
-            const RowNumbers rows = rowNumbers(*run);
+            outcome->rows = std::make_shared<const RowNumbers>(rowNumbers(*run));
             for (auto kind : {DiagnosticPlot::Residuals, DiagnosticPlot::Quantiles, DiagnosticPlot::Influence})
-                outcome->points.push_back(
-                    std::make_shared<const DiagnosticPoints>(DiagnosticPlot::points(kind, *outcome->diag, rows)));
+                outcome->points.push_back(std::make_shared<const DiagnosticPoints>(
+                    DiagnosticPlot::points(kind, *outcome->diag, *outcome->rows)));
         } catch (const std::exception& e) {
             outcome->diag.reset();
             outcome->points.clear();
+            outcome->rows.reset();
             outcome->problem =
                 ChecksSection::tr("The checks could not be computed: %1").arg(QString::fromUtf8(e.what()));
         }
@@ -245,10 +247,11 @@ void ChecksSection::cancel() {
 }
 
 void ChecksSection::showDiagnostics(const QString& problem,
-                                    const std::vector<std::shared_ptr<const DiagnosticPoints>>& points, bool staged) {
+                                    const std::vector<std::shared_ptr<const DiagnosticPoints>>& points, bool staged,
+                                    std::shared_ptr<const RowNumbers> rows) {
     const int shown = ++shown_;  // a plot still due from an earlier call is not drawn
     plotsDue_ = false;
-    auto rows = std::make_shared<const RowNumbers>(diag_ ? rowNumbers(*run_) : RowNumbers{});
+    if (!rows) rows = std::make_shared<const RowNumbers>(diag_ ? rowNumbers(*run_) : RowNumbers{});
     if (staged && diag_ && points.size() == 3) {
         plotsDue_ = true;
         drawPlotLater(0, shown, rows, points);

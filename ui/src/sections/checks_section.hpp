@@ -77,9 +77,11 @@ private:
     // Shows diag_ (or `problem` without it) in the plots, the list and the
     // notes; `points` (residuals, quantiles, influence) when computed in the worker.
     // `staged`: a worker's result; the plots are drawn one a turn of the event
-    // loop and computed() is emitted after the last.
+    // loop and computed() is emitted after the last. `rows`: rowNumbers(),
+    // when the worker computed them.
     void showDiagnostics(const QString& problem,
-                         const std::vector<std::shared_ptr<const DiagnosticPoints>>& points = {}, bool staged = false);
+                         const std::vector<std::shared_ptr<const DiagnosticPoints>>& points = {}, bool staged = false,
+                         std::shared_ptr<const RowNumbers> rows = nullptr);
     void drawPlotLater(std::size_t k, int shown, std::shared_ptr<const RowNumbers> rows,
                        std::vector<std::shared_ptr<const DiagnosticPoints>> points);
     void selectionChanged();

@@ -385,6 +385,7 @@ void ProbeSection::rebuild() {
         // The same run again (a view setting changed): keep what was prepared for it.
         auto extras = engine_.valid() && &engine_.run() == run_.get() ? engine_.extras() : nullptr;
         engine_ = ProbeEngine(run_, *a, std::move(extras));
+        engine_.prepareExtras();  // at once for small data; big data's come from the worker
     }
     prepared_.reset();
     pages_->setCurrentIndex(ProbePage);
@@ -409,7 +410,7 @@ void ProbeSection::rebuild() {
     const bool surfaceOk = run_->surface.has_value();
     surfaceToggle_->setVisible(surfaceOk);
     if (!surfaceOk) surfaceToggle_->setChecked(false);
-    if (surfaceOk) surface_->setRun(*a, *run_, engine_.surfaceRegion());
+    if (surfaceOk) surface_->setRun(*a, *run_, engine_.surfaceRegion(), engine_.surfacePoints());
     linesStack_->setCurrentIndex(surfaceToggle_->isChecked() ? 1 : 0);
     // One gap to shade: two groups, or the lines at any two values of a numeric moderator.
     differ_->setVisible(run_->probe->crossovers.size() == 1);
@@ -575,7 +576,7 @@ void ProbeSection::buildEffectPlot(bool sim, const QString& level) {
         }
         e.observed = engine_.observedRange();
         e.axis = engine_.axisRange();
-        e.rug = engine_.rug(2000);
+        e.rug = engine_.rug();
     }
     effect_->setData(e);
 }
@@ -621,9 +622,7 @@ LinesPlotData ProbeSection::linesPlotData() {
     }
     l.showPoints = shown_.probe.show_points && (!engine_.logistic() || engine_.probability());
     if (l.showPoints) {
-        l.pointsX = engine_.pointsX();
-        l.pointsY = engine_.pointsY();
-        l.pointsGroup = engine_.pointsGroup();
+        l.points = engine_.linesPoints();
         l.pointsByGroup = groups;
     }
     return l;

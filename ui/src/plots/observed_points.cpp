@@ -1,0 +1,85 @@
+#include "plots/observed_points.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+#include "plots/scatter_thinning.hpp"
+
+namespace moderato::ui {
+
+namespace {
+
+bool finitePair(double a, double b) { return std::isfinite(a) && std::isfinite(b); }
+
+// The finite points' extent along x and y, and how many there are.
+std::size_t extent(const std::vector<double>& x, const std::vector<double>& y, std::size_t n_rows, LinesPoints& out) {
+    double x0 = std::numeric_limits<double>::infinity(), x1 = -x0, y0 = x0, y1 = -x0;
+    std::size_t n = 0;
+    for (std::size_t i = 0; i < n_rows; ++i) {
+        if (!finitePair(x[i], y[i])) continue;
+        ++n;
+        x0 = std::min(x0, x[i]);
+        x1 = std::max(x1, x[i]);
+        y0 = std::min(y0, y[i]);
+        y1 = std::max(y1, y[i]);
+    }
+    if (n > 0) {
+        out.xRange = {x0, x1};
+        out.yRange = {y0, y1};
+    }
+    return n;
+}
+
+void binPoints(const std::vector<double>& x, const std::vector<double>& y, std::size_t n_rows,
+               const std::vector<int>& group, LinesPoints& out) {
+    constexpr int bx = LinesPoints::kBinsX, by = LinesPoints::kBinsY;
+    out.binned = true;
+    out.counts.assign(static_cast<std::size_t>(out.groups), std::vector<int>(bx * by, 0));
+    const auto [x0, x1] = out.xRange;
+    const auto [y0, y1] = out.yRange;
+    // One point (or a line of them) still lands in a cell: a zero width bins all at 0.
+    const double sx = x1 > x0 ? (bx - 1) / (x1 - x0) : 0.0, sy = y1 > y0 ? (by - 1) / (y1 - y0) : 0.0;
+    for (std::size_t i = 0; i < n_rows; ++i) {
+        if (!finitePair(x[i], y[i])) continue;
+        const long i_x = std::clamp(std::lround((x[i] - x0) * sx), 0L, long{bx - 1});
+        const long i_y = std::clamp(std::lround((y[i] - y0) * sy), 0L, long{by - 1});
+        const std::size_t g = group.empty() ? 0 : static_cast<std::size_t>(group[i]);
+        ++out.counts[g][static_cast<std::size_t>(i_y * bx + i_x)];
+    }
+}
+
+}  // namespace
+
+LinesPoints makeLinesPoints(const std::vector<double>& x, const std::vector<double>& y, const std::vector<int>& group,
+                            std::size_t maxPoints) {
+    LinesPoints out;
+    const std::size_t n = std::min(x.size(), y.size());
+    for (int g : group) out.groups = std::max(out.groups, g + 1);
+    out.rows = extent(x, y, n, out);
+    if (out.rows > maxPoints) {
+        binPoints(x, y, n, group, out);
+        return out;
+    }
+    out.x.resize(static_cast<std::size_t>(out.groups));
+    out.y.resize(static_cast<std::size_t>(out.groups));
+    for (std::size_t i = 0; i < n; ++i) {
+        if (!finitePair(x[i], y[i])) continue;
+        const std::size_t g = group.empty() ? 0 : static_cast<std::size_t>(group[i]);
+        out.x[g].push_back(x[i]);
+        out.y[g].push_back(y[i]);
+    }
+    return out;
+}
+
+SurfacePoints makeSurfacePoints(const std::vector<double>& x, const std::vector<double>& z) {
+    SurfacePoints out;
+    out.rows = std::min(x.size(), z.size());
+    for (std::size_t i : thinScatter(x, z, 20000, 150, 100)) {
+        out.x.push_back(x[i]);
+        out.z.push_back(z[i]);
+    }
+    return out;
+}
+
+}  // namespace moderato::ui
