@@ -258,7 +258,7 @@ RowNumbers DiagnosticPlot::fitOrder(RowNumbers rows, std::size_t n) {
 }
 
 void DiagnosticPlot::setDiagnostics(std::shared_ptr<const Diagnostics> d, RowNumbers rows,
-                                    std::shared_ptr<const DiagnosticPoints> points) {
+                                    std::shared_ptr<const DiagnosticPoints> points, bool paintNextTurn) {
     d_ = std::move(d);
     rows_ = d_ ? fitOrder(std::move(rows), d_->n) : std::move(rows);
     highlighted_.clear();
@@ -268,7 +268,9 @@ void DiagnosticPlot::setDiagnostics(std::shared_ptr<const Diagnostics> d, RowNum
                          : std::make_shared<const DiagnosticPoints>(DiagnosticPlot::points(kind_, *d_, rows_));
     for (std::size_t k = 0; k < panels_.size(); ++k)
         panels_[k].pts = points_ && k < points_->panels.size() ? &points_->panels[k] : nullptr;
+    paintNextTurn_ = paintNextTurn;
     redraw();
+    paintNextTurn_ = false;
 }
 
 void DiagnosticPlot::setHighlighted(const std::vector<std::size_t>& observations) {
@@ -379,7 +381,7 @@ void DiagnosticPlot::redraw() {
     for (Panel& p : panels_) drawFlagged(p);
     plot_->legend->setVisible(true);
     fitLegend(plot_);
-    plot_->replot();
+    plot_->replot(paintNextTurn_ ? QCustomPlot::rpQueuedReplot : QCustomPlot::rpRefreshHint);
 }
 
 void DiagnosticPlot::drawPoints(Panel& panel, const std::vector<char>& flagged) {

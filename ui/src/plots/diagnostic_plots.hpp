@@ -69,8 +69,10 @@ public:
 
     // nullptr clears the plot. `rows` numbers the rows on the influence plot.
     // `points`: points(kind(), *d, rows) when already computed (else computed here).
+    // `paintNextTurn`: the plot is built now and painted in the next turn of
+    // the event loop (a dense plot's two halves of work, each a turn).
     void setDiagnostics(std::shared_ptr<const Diagnostics> d, RowNumbers rows = {},
-                        std::shared_ptr<const DiagnosticPoints> points = nullptr);
+                        std::shared_ptr<const DiagnosticPoints> points = nullptr, bool paintNextTurn = false);
     // The points of a plot of this kind (safe to call in a worker).
     static DiagnosticPoints points(Kind kind, const Diagnostics& d, const RowNumbers& rows);
     // Rows (observation indices) to ring, e.g. the ones selected in the list.
@@ -160,6 +162,7 @@ private:
     QCPGraph* binMeans_ = nullptr;
     QCPErrorBars* binBars_ = nullptr;
     bool greyscale_ = false;
+    bool paintNextTurn_ = false;  // redraw() leaves the painting to the next turn
 };
 
 }  // namespace moderato::ui

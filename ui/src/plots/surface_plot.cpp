@@ -156,7 +156,7 @@ void SurfacePlot::redraw() {
     if (!grid_) {
         plot_->xAxis->setLabel(QString());
         plot_->yAxis->setLabel(QString());
-        plot_->replot();
+        replotWhenShown();
         return;
     }
     const SurfaceGrid& g = *grid_;
@@ -175,7 +175,22 @@ void SurfacePlot::redraw() {
     const double hz = (g.z_values.back() - g.z_values.front()) / (2.0 * (nz - 1));
     plot_->xAxis->setRange(g.x_values.front() - hx, g.x_values.back() + hx);
     plot_->yAxis->setRange(g.z_values.front() - hz, g.z_values.back() + hz);
-    plot_->replot();
+    replotWhenShown();
+}
+
+void SurfacePlot::replotWhenShown() {
+    // Hidden (the Lines plot is on show): painted when shown. An export draws
+    // the plot itself, from the plottables built above.
+    replotDue_ = !isVisible();
+    if (!replotDue_) plot_->replot();
+}
+
+void SurfacePlot::showEvent(QShowEvent* event) {
+    QWidget::showEvent(event);
+    if (replotDue_) {
+        replotDue_ = false;
+        plot_->replot();
+    }
 }
 
 // The colour map of the predicted values; cells beyond the data faded.

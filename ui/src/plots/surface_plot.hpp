@@ -50,6 +50,9 @@ public:
     // The colour ramps (Estuary: near-white, series 1, ink; or greys).
     static QCPColorGradient ramp(bool greyscale);
 
+protected:
+    void showEvent(QShowEvent* event) override;
+
 private:
     // Where the cells beyond the data gather, by quadrant of the grid (sums
     // of their coordinates and counts), for the label "beyond the data".
@@ -64,6 +67,8 @@ private:
     void drawObservedRows();
     void drawEdge();
     void markBeyond(const BeyondQuadrants& q, int cells);
+    // Replots now when on show, else when next shown.
+    void replotWhenShown();
 
     QCustomPlot* plot_;
     QCPTextElement* title_ = nullptr;
@@ -76,6 +81,7 @@ private:
     QString outcome_;
     bool probability_ = false, logistic_ = false, greyscale_ = false;
     int beyondCells_ = 0;
+    bool replotDue_ = false;
 };
 
 }  // namespace moderato::ui

@@ -275,18 +275,21 @@ void ChecksSection::showDiagnostics(const QString& problem,
 
 void ChecksSection::drawPlotLater(std::size_t k, int shown, std::shared_ptr<const RowNumbers> rows,
                                   std::vector<std::shared_ptr<const DiagnosticPoints>> points) {
-    // One plot a turn of the event loop: drawing a dense plot takes a while,
-    // and the window answers in between.
+    // One plot a turn of the event loop, built in one turn and painted in the
+    // next: drawing a dense plot takes a while, and the window answers in
+    // between. computed() follows the last painting.
     QTimer::singleShot(0, this, [this, k, shown, rows = std::move(rows), points = std::move(points)] {
         if (shown != shown_) return;  // the section has shown something else since
-        DiagnosticPlot* const plots[] = {residuals_, quantiles_, influence_};
-        plots[k]->setDiagnostics(diag_, *rows, points[k]);
-        if (k + 1 < points.size()) {
-            drawPlotLater(k + 1, shown, rows, points);
+        if (k == points.size()) {
+            plotsDue_ = false;
+            Q_EMIT computed();
             return;
         }
-        plotsDue_ = false;
-        Q_EMIT computed();
+        DiagnosticPlot* const plots[] = {residuals_, quantiles_, influence_};
+        plots[k]->setDiagnostics(diag_, *rows, points[k], true);
+        // The painting was posted just now, so it comes in the next turn; the
+        // next plot one turn after it (events posted during a turn wait for the next).
+        QTimer::singleShot(0, this, [=, this] { drawPlotLater(k + 1, shown, rows, points); });
     });
 }
 
