@@ -137,8 +137,16 @@ TEST(ObservedPoints, LinesPlotDrawsTheGridAndTakesInThePointsRange) {
     plot.setData(d);
     EXPECT_EQ(plot.pointsMode(), 2);
     EXPECT_GE(plot.figurePlot()->yAxis->range().upper, 95.0);
-    d.points = std::make_shared<const LinesPoints>(makeLinesPoints({0, 1}, {12, 13}, {}));
+    // Below the limit: every row drawn, in x order although the rows are not.
+    const Rows few = randomRows(500, 1);
+    d.points = std::make_shared<const LinesPoints>(makeLinesPoints(few.x, few.y, {}));
     plot.setData(d);
     EXPECT_EQ(plot.pointsMode(), 1);
     EXPECT_LT(plot.figurePlot()->yAxis->range().upper, 95.0);
+    QCPGraph* points = nullptr;
+    for (int i = 0; i < plot.figurePlot()->graphCount(); ++i)
+        if (plot.figurePlot()->graph(i)->lineStyle() == QCPGraph::lsNone) points = plot.figurePlot()->graph(i);
+    ASSERT_TRUE(points);
+    ASSERT_EQ(points->data()->size(), 500);
+    for (int i = 1; i < 500; ++i) EXPECT_LE(points->data()->at(i - 1)->key, points->data()->at(i)->key);
 }

@@ -71,7 +71,8 @@ void LinesPlot::drawPoints() {
         graph->setLineStyle(QCPGraph::lsNone);
         graph->setScatterStyle(
             QCPScatterStyle(QCPScatterStyle::ssDisc, estuary::withAlpha(pointColour(g), alpha), 4.5));
-        graph->setData(QVector<double>(xs.begin(), xs.end()), QVector<double>(ys.begin(), ys.end()), true);
+        graph->setData(QVector<double>(xs.begin(), xs.end()),
+                       QVector<double>(ys.begin(), ys.end()));  // QCPGraph sorts them by x
         graph->setAntialiasedScatters(p.rows <= 5000);
         graph->setSelectable(QCP::stNone);
         if (data_.pointsByGroup || g > 0) graph->removeFromLegend();

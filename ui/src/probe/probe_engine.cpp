@@ -150,7 +150,7 @@ void ProbeEngine::prepareExtras() {
             if (groups()) v.group[i] = v.moderator[i] == 1.0 ? 1 : 0;
         }
     }
-    extras_ = makeExtras(v.x, v.y, v.moderator, groups() ? v.group : std::vector<int>{});
+    extras_ = makeExtras(v.x, v.y, std::move(v.moderator), groups() ? v.group : std::vector<int>{});
 }
 
 std::shared_ptr<const ProbeExtras> ProbeEngine::makeExtras(const std::vector<double>& x, const std::vector<double>& y,
