@@ -82,4 +82,11 @@ SurfacePoints makeSurfacePoints(const std::vector<double>& x, const std::vector<
     return out;
 }
 
+std::shared_ptr<const SurfacePoints> makeSurfacePoints(const Design& d, const std::string& x, const std::string& z) {
+    const int jx = d.main_column(x), jz = d.main_column(z);
+    if (jx < 0 || jz < 0) return nullptr;
+    const auto column = [&](int j) { return std::vector<double>(d.X.col(j).data(), d.X.col(j).data() + d.X.rows()); };
+    return std::make_shared<const SurfacePoints>(makeSurfacePoints(column(jx), column(jz)));
+}
+
 }  // namespace moderato::ui

@@ -10,8 +10,12 @@
 #pragma once
 
 #include <cstddef>
+#include <memory>
+#include <string>
 #include <utility>
 #include <vector>
+
+#include "moderato/estimation/design.hpp"
 
 namespace moderato::ui {
 
@@ -41,5 +45,8 @@ struct SurfacePoints {
 // Above 20,000 rows, one row per cell of a 150 × 100 grid (cells of about
 // 4 px at plot size; the dots are 4 px wide, so a dense cloud stays filled).
 SurfacePoints makeSurfacePoints(const std::vector<double>& x, const std::vector<double>& z);
+// The same of the design's main columns of predictors `x` and `z` (in the
+// design's own units, as a surface grid is); nullptr when either has none.
+std::shared_ptr<const SurfacePoints> makeSurfacePoints(const Design& d, const std::string& x, const std::string& z);
 
 }  // namespace moderato::ui

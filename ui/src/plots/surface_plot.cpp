@@ -121,15 +121,8 @@ void SurfacePlot::setRun(const Analysis& analysis, const AnalysisRun& run, const
     }
     points_.reset();
     // The observed rows only when the analysis shows data points (as the Lines plot does).
-    const int jx = run.design.main_column(grid_->x), jz = run.design.main_column(grid_->z);
-    if (analysis.probe.show_points && points) {
-        points_ = std::move(points);
-    } else if (analysis.probe.show_points && jx >= 0 && jz >= 0) {
-        const auto column = [&](int j) {
-            return std::vector<double>(run.design.X.col(j).data(), run.design.X.col(j).data() + run.design.X.rows());
-        };
-        points_ = std::make_shared<const SurfacePoints>(makeSurfacePoints(column(jx), column(jz)));
-    }
+    if (analysis.probe.show_points)
+        points_ = points ? std::move(points) : makeSurfacePoints(run.design, grid_->x, grid_->z);
     redraw();
 }
 

@@ -164,15 +164,7 @@ std::shared_ptr<const ProbeExtras> ProbeEngine::makeExtras(const std::vector<dou
         } catch (const InputError&) {
             out->region = DataRegion{};
         }
-        // In the design's own units, as the surface grid is.
-        const Design& d = run_->design;
-        const int jx = d.main_column(run_->surface->x), jz = d.main_column(run_->surface->z);
-        if (jx >= 0 && jz >= 0) {
-            const auto column = [&](int j) {
-                return std::vector<double>(d.X.col(j).data(), d.X.col(j).data() + d.X.rows());
-            };
-            out->surface = std::make_shared<const SurfacePoints>(makeSurfacePoints(column(jx), column(jz)));
-        }
+        out->surface = makeSurfacePoints(run_->design, run_->surface->x, run_->surface->z);
     }
     // The rug: distinct moderator values, evenly spaced ranks of them above kRugPoints.
     std::sort(moderator.begin(), moderator.end());

@@ -35,8 +35,8 @@ class ProbeEngine {
 public:
     ProbeEngine() = default;
     // `run` must hold a probe (Continuous or Groups kind). `extras`, when
-    // given, must be those of an engine of the same run (else what they hold
-    // is computed when asked for).
+    // given, must be those of an engine of the same run (else prepareExtras()
+    // computes them).
     ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis& analysis,
                 std::shared_ptr<const ProbeExtras> extras = nullptr);
     // Computes the extras now, unless the engine was given them (an engine
