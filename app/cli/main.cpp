@@ -53,6 +53,8 @@ region of significance (Johnson–Neyman), the simultaneous band and crossover p
   --scale model|outcome    model: the scale the coefficients live on (log-odds for a logistic model;
                            the default); outcome: the outcome's own scale (probability)
   --average sample|values  outcome scale: average over the rows (default) or at the means
+  --adjust holm|bonferroni|none   categorical moderator: how the p-values of the pairwise
+                           differences between its levels are adjusted (default holm)
   --surface K              also write predictions on a K x K grid over both (numeric) predictors
   (a categorical focal predictor with a categorical moderator gives the cell table instead)
   --bootstrap N [--seed S] case (or cluster) bootstrap: percentile and BCa intervals for the

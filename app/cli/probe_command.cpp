@@ -38,7 +38,7 @@ struct ProbeRequest {
 std::set<std::string> probe_valued() {
     auto valued = model_valued();
     for (const char* o : {"focal", "moderator", "moderator-values", "moderator-percentiles", "second-moderator",
-                          "focal-at", "scale", "average", "bootstrap", "seed", "surface"})
+                          "focal-at", "scale", "average", "bootstrap", "seed", "surface", "adjust"})
         valued.insert(o);
     return valued;
 }
@@ -46,8 +46,8 @@ std::set<std::string> probe_valued() {
 // Two categorical predictors: the cell table answers the question.
 int run_cells(const Arguments& a, const LoadedModel& m, const Design& design, const FitResult& fit, const ProbeSpec& ps,
               const std::string& format) {
-    for (const char* o :
-         {"moderator-values", "moderator-percentiles", "second-moderator", "focal-at", "bootstrap", "surface"})
+    for (const char* o : {"moderator-values", "moderator-percentiles", "second-moderator", "focal-at", "bootstrap",
+                          "surface", "adjust"})
         if (a.has(o))
             throw InputError(std::string("option --") + o +
                              " does not apply when both the focal predictor and the moderator are categorical");
@@ -123,6 +123,19 @@ void read_scale(const Arguments& a, Family family, ProbeRequest& req) {
             "are already on the outcome's scale");
 }
 
+// --adjust holm|bonferroni|none: for the pairwise differences between the
+// levels of a categorical moderator.
+void read_adjustment(const Arguments& a, const Design& design, ProbeSpec& ps) {
+    const auto word = a.get("adjust");
+    if (!word) return;
+    const auto adjustment = adjustment_from_string(*word);
+    if (!adjustment) throw InputError("option --adjust must be holm, bonferroni or none, got '" + *word + "'");
+    if (!design.categorical(ps.moderator))
+        throw InputError("option --adjust applies to the pairwise comparisons of a categorical moderator's levels; '" +
+                         ps.moderator + "' is numeric");
+    ps.adjustment = *adjustment;
+}
+
 // --bootstrap N [--seed S] and --surface K.
 void read_extras(const Arguments& a, const ModelSpec& spec, ProbeRequest& req) {
     if (auto n = a.get("bootstrap")) {
@@ -178,6 +191,7 @@ int run_probe(const std::vector<std::string>& args) {
         return run_cells(a, m, design, fit, req.spec, format);
     read_moderator_values(a, design, req.spec);
     read_held_values(a, req.spec);
+    read_adjustment(a, design, req.spec);
     read_scale(a, m.spec.family, req);
     read_extras(a, m.spec, req);
 

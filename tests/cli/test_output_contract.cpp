@@ -356,3 +356,67 @@ TEST(OutputContract, RenamedCommandAndOptionsWork) {
     for (const char* word : {"describe", "--at ", "link", "response"})
         EXPECT_EQ(help.out.find(word), std::string::npos) << word;
 }
+
+// A four-level categorical moderator with cluster-robust SEs: every pairwise
+// difference of the slopes, its Holm- and Bonferroni-adjusted p, and the joint
+// test, against statsmodels 0.13 t_test, multitest.multipletests and
+// wald_test (tests/reference/make_contrasts_reference.py, contrasts_ols4).
+TEST(OutputContract, SlopeContrastsAreStatsmodelsTTests) {
+    const json ref = moderato::test::read_fixture_json(moderato::test::reference_fixture("contrasts_ols4.json"));
+    const json& c = ref.at("contrasts").at("cluster");
+    const std::string data =
+        (moderato::test::reference_fixture_dir("contrasts_ols4.json") / "contrasts_ols4.csv").string();
+    for (const std::string adjust : {"holm", "bonferroni"}) {
+        SCOPED_TRACE(adjust);
+        const json j = run_json({"probe",
+                                 "--data",
+                                 data,
+                                 "--outcome",
+                                 "wait",
+                                 "--predictors",
+                                 "tenure,channel,backlog",
+                                 "--interaction",
+                                 "channel,tenure",
+                                 "--reference",
+                                 "channel=phone",
+                                 "--se",
+                                 "cluster",
+                                 "--cluster",
+                                 "team",
+                                 "--focal",
+                                 "tenure",
+                                 "--moderator",
+                                 "channel",
+                                 "--adjust",
+                                 adjust});
+        EXPECT_EQ(j.at("adjustment"), adjust);
+        const json& pairs = j.at("slope_contrasts");
+        ASSERT_EQ(pairs.size(), c.at("pairs").size());
+        for (std::size_t q = 0; q < pairs.size(); ++q) {
+            const json& ours = pairs[q];
+            const json& theirs = c.at("pairs")[q];
+            EXPECT_EQ(ours.at("pair"), theirs.at("pair"));
+            EXPECT_LE(rel(ours.at("difference").get<double>(), theirs.at("estimate").get<double>()), 1e-8);
+            EXPECT_LE(rel(ours.at("se").get<double>(), theirs.at("std_error").get<double>()), 1e-8);
+            EXPECT_LE(rel(ours.at("test_value").get<double>(), theirs.at("statistic").get<double>()), 1e-8);
+            EXPECT_LE(rel(ours.at("p").get<double>(), theirs.at("p_value").get<double>()), 1e-6);
+            EXPECT_LE(rel(ours.at("p_adjusted").get<double>(), c.at(adjust)[q].get<double>()), 1e-6);
+            for (const char* key : {"low", "high"}) EXPECT_TRUE(ours.contains(key)) << key;
+        }
+        const json& test = j.at("interaction_test");
+        EXPECT_EQ(test.at("df1").get<double>(), c.at("wald").at("df_num").get<double>());
+        EXPECT_EQ(test.at("df2").get<double>(), c.at("wald").at("df_denom").get<double>());  // G - 1
+        EXPECT_LE(rel(test.at("value").get<double>(), c.at("wald").at("statistic").get<double>()), 1e-8);
+    }
+    // a numeric moderator: no pairs, but still the joint test
+    const json numeric = run_json({"probe", "--data", kSamples + "/orchard-nitrogen/plots.csv", "--outcome",
+                                   "yield_t_ha", "--interaction", "nitrogen_kg_ha,soil_moisture_pct", "--focal",
+                                   "nitrogen_kg_ha", "--moderator", "soil_moisture_pct"});
+    EXPECT_TRUE(numeric.at("slope_contrasts").is_null());
+    EXPECT_FALSE(numeric.contains("adjustment"));
+    // one product term: the joint F is the square of its t (closed form)
+    const json fit = run_json({"fit", "--data", kSamples + "/orchard-nitrogen/plots.csv", "--outcome", "yield_t_ha",
+                               "--interaction", "nitrogen_kg_ha,soil_moisture_pct"});
+    const double t = term(fit, "nitrogen_kg_ha×soil_moisture_pct").at("test_value").get<double>();
+    EXPECT_LE(rel(numeric.at("interaction_test").at("value").get<double>(), t * t), 1e-12);
+}

@@ -100,6 +100,13 @@ TEST(ProbeCli, RefusalsAreExplained) {
           "--focal", "discount_pct", "--moderator", "loyalty_member", "--scale", "outcome"},
          "moderato-cli: --scale outcome applies to logistic models (--family logistic); a linear model's effects "
          "are already on the outcome's scale"},
+        {{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,shop", "--focal",
+          "discount_pct", "--moderator", "shop", "--adjust", "Holm"},
+         "moderato-cli: option --adjust must be holm, bonferroni or none, got 'Holm'"},
+        {{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,tenure_months",
+          "--focal", "discount_pct", "--moderator", "tenure_months", "--adjust", "none"},
+         "moderato-cli: option --adjust applies to the pairwise comparisons of a categorical moderator's levels; "
+         "'tenure_months' is numeric"},
         {{"probe", "--data", sep, "--outcome", "y", "--interaction", "x,z", "--family", "logistic", "--focal", "x",
           "--moderator", "z"},
          ""},  // message checked by prefix below

@@ -362,6 +362,11 @@ void refresh_cautions(ProbeResult& r, const FitResult& fit) {
                              "(Bonferroni: " +
                              level_text((1 - fit.level) / pairs) + " per pair).");
     }
+    if (r.slope_contrasts.size() > 1 && r.adjustment == Adjustment::None)
+        r.cautions.push_back("The " + std::to_string(r.slope_contrasts.size()) +
+                             " pairwise differences in the effect of " + r.focal +
+                             " are not adjusted for multiple comparisons; with several pairs some may look "
+                             "different by chance alone.");
     if (fit.n < 200)
         r.cautions.push_back("With " + std::to_string(fit.n) +
                              " observations, interaction estimates and regions of significance are unstable.");
@@ -496,6 +501,7 @@ std::map<std::string, double> held_values(const Design& d, const ProbeSpec& spec
 // every pair of group lines.
 void probe_groups(const Design& d, const FitResult& fit, const ProbeSpec& spec, const CategoricalInfo& cat,
                   std::map<std::string, double> values, ProbeResult& r) {
+    std::vector<LevelEffect> level_effects;
     for (std::size_t L = 0; L < cat.levels.size(); ++L) {
         values[spec.moderator] = static_cast<double>(L);
         const EffectFunction f(linear_form(d, "", spec.focal, values), fit.beta, fit.covariance);
@@ -503,7 +509,9 @@ void probe_groups(const Design& d, const FitResult& fit, const ProbeSpec& spec, 
         e.moderator_value = static_cast<double>(L);
         e.level = cat.levels[L];
         r.effects.push_back(e);
+        level_effects.push_back({cat.levels[L], f.effect(0), f.basis().front()});
     }
+    r.slope_contrasts = slope_contrasts(level_effects, fit, spec.adjustment);
     for (std::size_t a = 0; a < cat.levels.size(); ++a)
         for (std::size_t b = a + 1; b < cat.levels.size(); ++b) {
             const EffectFunction gap = contrast_function(d, fit, spec.moderator, static_cast<double>(a),
@@ -571,6 +579,8 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     r.focal_range = {fs.min, fs.max};
 
     const std::map<std::string, double> values = held_values(d, spec, r);
+    r.adjustment = spec.adjustment;
+    r.interaction_test = interaction_test(d, fit, spec.focal, spec.moderator);
     const CategoricalInfo* cat = d.categorical(spec.moderator);
     r.categorical_moderator = cat != nullptr;
     if (cat) probe_groups(d, fit, spec, *cat, values, r);

@@ -103,7 +103,7 @@ void check_request(const Design& d, const FitResult& fit, const ScaleRequest& r)
 
 }  // namespace
 
-EffectPoint probability_effect(const Design& d, const FitResult& fit, const ScaleRequest& request, double m) {
+LevelEffect probability_effect_gradient(const Design& d, const FitResult& fit, const ScaleRequest& request, double m) {
     check_request(d, fit, request);
     Profile pr = profile(d, request);
     pr.overrides[request.moderator] = m;
@@ -128,7 +128,12 @@ EffectPoint probability_effect(const Design& d, const FitResult& fit, const Scal
                 G.transpose() * p.unaryExpr(&phi)) /
                rows;
     }
-    return effect_point(m, infer(me, delta_se(grad, fit.covariance), fit));
+    return {"", me, grad};
+}
+
+EffectPoint probability_effect(const Design& d, const FitResult& fit, const ScaleRequest& request, double m) {
+    const LevelEffect e = probability_effect_gradient(d, fit, request, m);
+    return effect_point(m, infer(e.value, delta_se(e.gradient, fit.covariance), fit));
 }
 
 SignificanceRegions probability_regions(const Design& d, const FitResult& fit, const ScaleRequest& request, double q,
@@ -254,12 +259,17 @@ ProbeResult probe_response(const Design& d, const FitResult& fit, const ProbeSpe
     if (!std::isnan(spec.focal_value) && averaging == Averaging::AtValues) req.values[spec.focal] = spec.focal_value;
     r.scale = ProbeScale::Outcome;
     r.averaging = averaging;
+    std::vector<LevelEffect> level_effects;
     for (auto& e : r.effects) {
-        EffectPoint p = probability_effect(d, fit, req, e.moderator_value);
+        LevelEffect g = probability_effect_gradient(d, fit, req, e.moderator_value);
+        EffectPoint p = effect_point(e.moderator_value, infer(g.value, delta_se(g.gradient, fit.covariance), fit));
         p.level = e.level;
         p.beyond_data = e.beyond_data;
         e = p;
+        g.level = e.level;
+        level_effects.push_back(std::move(g));
     }
+    if (r.categorical_moderator) r.slope_contrasts = slope_contrasts(level_effects, fit, spec.adjustment);
     r.simultaneous.reset();
     r.effect_function = EffectFunction();
     if (!r.categorical_moderator) {

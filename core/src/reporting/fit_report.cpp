@@ -136,12 +136,13 @@ std::string level_text(double level) {
     return buf;
 }
 
-// Display width of a UTF-8 string (code points).
-std::size_t width(const std::string& s) {
-    std::size_t w = 0;
-    for (unsigned char c : s)
-        if ((c & 0xC0) != 0x80) ++w;
-    return w;
+std::size_t width(const std::string& s) { return detail::display_width(s); }
+
+// F(df1, df2) = value, or χ²(df1) = value for a normal reference.
+std::string wald_text(const WaldTest& t) {
+    return (std::isinf(t.df2) ? "χ²(" + df_text(t.df1) + ") = " + num(t.chi_square, 2)
+                              : "F(" + df_text(t.df1) + ", " + df_text(t.df2) + ") = " + num(t.statistic, 2)) +
+           ", " + p_clause(t.p_value);
 }
 
 std::string pad_left(const std::string& s, std::size_t w) {
@@ -151,13 +152,6 @@ std::string pad_left(const std::string& s, std::size_t w) {
 std::string pad_right(const std::string& s, std::size_t w) {
     const std::size_t have = width(s);
     return have >= w ? s : s + std::string(w - have, ' ');
-}
-
-// F(df1, df2) = value, or χ²(df1) = value for a normal reference.
-std::string wald_text(const WaldTest& t) {
-    return (std::isinf(t.df2) ? "χ²(" + df_text(t.df1) + ") = " + num(t.chi_square, 2)
-                              : "F(" + df_text(t.df1) + ", " + df_text(t.df2) + ") = " + num(t.statistic, 2)) +
-           ", " + p_clause(t.p_value);
 }
 
 void write_heading(std::ostringstream& o, const FitResult& f, const std::string& outcome) {
@@ -259,6 +253,8 @@ void write_notes_text(std::ostringstream& o, const FitResult& f) {
 }
 
 }  // namespace
+
+std::string joint_test_text(const WaldTest& t) { return wald_text(t); }
 
 std::string format_p(double p) {
     if (std::isnan(p)) return "—";

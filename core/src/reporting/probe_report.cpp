@@ -105,6 +105,32 @@ void write_crossings(JsonWriter& w, const ProbeResult& r) {
     write_pair(w, "focal_range", r.focal_range);
 }
 
+// The joint test of the interaction, and for a categorical moderator every
+// pairwise difference of the effect with its adjusted p-value.
+void write_comparisons(JsonWriter& w, const ProbeResult& r) {
+    w.key("interaction_test");
+    if (r.interaction_test) write_joint_test(w, *r.interaction_test);
+    else w.null();
+    w.key("slope_contrasts");
+    if (!r.categorical_moderator) {
+        w.null();
+        return;
+    }
+    w.begin_array();
+    for (const auto& c : r.slope_contrasts) {
+        w.begin_object();
+        w.key("pair").begin_array();
+        w.value(c.first);
+        w.value(c.second);
+        w.end_array();
+        write_inference(w, c, "difference");
+        w.field("p_adjusted", c.p_adjusted);
+        w.end_object();
+    }
+    w.end_array();
+    w.field("adjustment", to_string(r.adjustment));
+}
+
 // ------------------------------------------------------------------ text
 
 std::string num(double v) {
@@ -202,6 +228,36 @@ void write_crossings_text(std::ostringstream& o, const ProbeResult& r) {
     }
 }
 
+// "Joint test of the interaction (HC3): F(2, 440) = …" and the table of
+// pairwise differences.
+void write_comparisons_text(std::ostringstream& o, const ProbeResult& r, const FitResult& fit) {
+    if (r.interaction_test)
+        o << "\nJoint test that the effect of " << r.focal << " does not depend on " << r.moderator << " ("
+          << standard_errors_text(fit.se) << " standard errors"
+          << (r.scale == ProbeScale::Outcome ? ", log-odds scale" : "") << "): " << joint_test_text(*r.interaction_test)
+          << "\n";
+    if (r.slope_contrasts.empty()) return;
+    const char* adjusted = r.adjustment == Adjustment::Holm         ? "Holm-adjusted p"
+                           : r.adjustment == Adjustment::Bonferroni ? "Bonferroni-adjusted p"
+                                                                    : "p (not adjusted)";
+    o << "\nDifferences in the effect of " << r.focal << " between levels of " << r.moderator
+      << " (second minus first)\n";
+    char line[512];
+    std::snprintf(line, sizeof line, "%-28s %11s %11s %11s %11s %8s %10s %10s\n", "pair", "difference",
+                  (level_text(r.level) + " low").c_str(), "high", "SE", std::isinf(r.df) ? "z" : "t", "p", "adjusted");
+    o << line;
+    for (const auto& c : r.slope_contrasts) {
+        const std::string pair = c.second + " − " + c.first;
+        std::snprintf(line, sizeof line, "%-*s %11s %11s %11s %11s %8.2f %10s %10s\n",
+                      28 + static_cast<int>(pair.size() - detail::display_width(pair)), pair.c_str(),
+                      num(c.estimate).c_str(), num(c.ci_lower).c_str(), num(c.ci_upper).c_str(),
+                      num(c.std_error).c_str(), c.statistic, format_p(c.p_value).c_str(),
+                      format_p(c.p_adjusted).c_str());
+        o << line;
+    }
+    o << "  adjusted: " << adjusted << " over " << r.slope_contrasts.size() << " pairs\n";
+}
+
 void write_closing_text(std::ostringstream& o, const ProbeResult& r) {
     if (r.interaction_effect) {
         const auto& ie = *r.interaction_effect;
@@ -224,6 +280,7 @@ void write_probe_fields(JsonWriter& w, const ProbeResult& r) {
     write_effects_at(w, r);
     write_regions(w, r);
     write_crossings(w, r);
+    write_comparisons(w, r);
     if (r.interaction_effect) {
         w.key("interaction_on_outcome_scale").begin_object();
         w.field("kind", to_string(r.interaction_effect->kind));
@@ -240,6 +297,7 @@ std::string probe_to_text(const ProbeResult& r, const FitResult& fit) {
     write_effects_table(o, r);
     write_regions_text(o, r);
     write_crossings_text(o, r);
+    write_comparisons_text(o, r, fit);
     write_closing_text(o, r);
     return o.str();
 }

@@ -17,4 +17,12 @@ inline std::string join(const std::vector<std::string>& parts, const std::string
 
 inline std::string quoted(const std::string& s) { return "'" + s + "'"; }
 
+// Display width of a UTF-8 string (code points).
+inline std::size_t display_width(const std::string& s) {
+    std::size_t w = 0;
+    for (unsigned char c : s)
+        if ((c & 0xC0) != 0x80) ++w;
+    return w;
+}
+
 }  // namespace moderato::detail

@@ -12,7 +12,9 @@
 
 #include "moderato/estimation/design.hpp"
 #include "moderato/estimation/fit.hpp"
+#include "moderato/probing/multiplicity.hpp"
 #include "moderato/probing/scale.hpp"
+#include "moderato/probing/slope_contrasts.hpp"
 
 namespace moderato {
 
@@ -91,6 +93,7 @@ struct ProbeSpec {
     double second_value = std::numeric_limits<double>::quiet_NaN();  // NaN: its mean
     double focal_value = std::numeric_limits<double>::quiet_NaN();   // for a squared focal: NaN = its mean
     std::vector<double> at;                                          // moderator values; empty: defaults
+    Adjustment adjustment = Adjustment::Holm;  // for the pairwise slope contrasts of a categorical moderator
 };
 
 // The Fieller interval of a crossover point: Bounded [lo, hi]; Unbounded
@@ -157,6 +160,13 @@ struct ProbeResult {
     std::vector<bool> jn_beyond_data;                   // per boundary
     std::optional<SignificanceRegions> simultaneous;
     std::vector<Crossover> crossovers;
+    // The joint test that the focal predictor's effect does not depend on the
+    // moderator (all their product terms zero), with the fit's covariance.
+    std::optional<WaldTest> interaction_test;
+    // Categorical moderator: every pair of levels, the second's effect minus
+    // the first's, on the result's scale; p-values adjusted by `adjustment`.
+    std::vector<SlopeContrast> slope_contrasts;
+    Adjustment adjustment = Adjustment::Holm;
     std::vector<std::string> notes;
     std::vector<std::string> cautions;  // what a reader must not overlook
     EffectFunction effect_function;     // for plots and the slider

@@ -26,6 +26,9 @@ struct ScaleRequest {
 // derivative for a continuous focal, the discrete change from 0 to 1 for a
 // 0/1 focal. Analytic delta-method standard error.
 EffectPoint probability_effect(const Design& d, const FitResult& fit, const ScaleRequest& request, double m);
+// The same effect's value and its gradient over the coefficients (the
+// delta method's ingredients, e.g. for differences between levels).
+LevelEffect probability_effect_gradient(const Design& d, const FitResult& fit, const ScaleRequest& request, double m);
 
 // Where that effect differs from zero, scanning `lo`..`hi` and refining sign
 // changes of |t| - q with a bracketing root finder.
