@@ -31,6 +31,7 @@
 #include "common/file_bytes.hpp"
 #include "common/folder_snapshot.hpp"
 #include "common/input_error.hpp"
+#include "common/reference_fixtures.hpp"
 #include "common/sample_projects.hpp"
 #include "common/shell_command.hpp"
 #include "common/table_builder.hpp"
@@ -193,6 +194,8 @@ Project full_project() {
     a.probe.averaging = Averaging::AtValues;
     a.probe.simultaneous_band = true;
     a.probe.show_points = false;
+    a.probe.adjustment = Adjustment::Bonferroni;
+    a.reference_levels = {{"région", "Île"}, {"store", "B"}};
     a.figure = {SizePreset::Custom, 7.25, 3.1, 600, "Noto Serif", 10.5, true, false};
     p.analyses.push_back(a);
 
@@ -255,6 +258,8 @@ TEST(ProjectJson, EveryFieldRoundTripsExactly) {
         EXPECT_TRUE(same_bits(q.analyses[i].level, p.analyses[i].level));
         EXPECT_TRUE(q.analyses[i].probe == p.analyses[i].probe);
         EXPECT_EQ(q.analyses[i].figure, p.analyses[i].figure);
+        EXPECT_EQ(q.analyses[i].reference_levels, p.analyses[i].reference_levels);
+        EXPECT_EQ(q.analyses[i].probe.adjustment, p.analyses[i].probe.adjustment);
     }
     // Numbers: the same bits, including the sign of zero and a subnormal.
     const auto& pinned = q.analyses[0].probe.pinned;
@@ -285,6 +290,26 @@ TEST(ProjectJson, EqualityNoticesEveryKindOfChange) {
     q = p;
     q.derived[4].source = "y";
     EXPECT_FALSE(q == p);
+    q = p;
+    q.analyses[0].reference_levels["store"] = "A";
+    EXPECT_FALSE(q == p);
+    q = p;
+    q.analyses[1].probe.adjustment = Adjustment::None;
+    EXPECT_FALSE(q == p);
+}
+
+// The defaults (Holm; every reference level its first in text order) are not
+// written, so a project that never used them keeps its bytes.
+TEST(ProjectJson, DefaultAdjustmentAndReferenceLevelsAreNotWritten) {
+    Project p = full_project();
+    const std::string text = project_to_json(p);
+    EXPECT_NE(text.find("\"adjustment\": \"bonferroni\""), std::string::npos);
+    EXPECT_NE(text.find("\"reference_levels\""), std::string::npos);
+    p.analyses[0].probe.adjustment = Adjustment::Holm;
+    p.analyses[0].reference_levels.clear();
+    const std::string plain = project_to_json(p);
+    EXPECT_EQ(plain.find("adjustment"), std::string::npos);
+    EXPECT_EQ(plain.find("reference_levels"), std::string::npos);
 }
 
 TEST(ProjectJson, WritingARecipeValueAndNonFiniteNumbersStaysReadable) {
@@ -544,6 +569,11 @@ TEST(ProjectJson, WrongTypesNameTheFieldPath) {
         {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"family\": \"poisson\",", "analyses[0].family", "logistic"},
         {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"centring\": \"median\",", "analyses[0].centring", "mean"},
         {"\"probe\": {", "\"probe\": {\"scale\": \"odds\",", "analyses[0].probe.scale", "outcome"},
+        {"\"probe\": {", "\"probe\": {\"adjustment\": \"sidak\",", "analyses[0].probe.adjustment", "bonferroni"},
+        {"\"probe\": {", "\"reference_levels\": {\"z\": 2}, \"probe\": {", "analyses[0].reference_levels.z",
+         "expected text"},
+        {"\"probe\": {", "\"reference_levels\": [\"z\"], \"probe\": {", "analyses[0].reference_levels",
+         "expected an object"},
         {"\"probe\": {", "\"figure\": {\"dpi\": 1e20}, \"probe\": {", "analyses[0].figure.dpi", "between 72 and 1200"},
         // Values a random mutation of a sample produced: nothing sensible to draw.
         {"\"probe\": {", "\"figure\": {\"width_in\": 1e-320}, \"probe\": {", "analyses[0].figure", "0.5 and 40 inches"},
@@ -1285,4 +1315,45 @@ TEST(ApplyRecipes, AddsColumnsInOrderAndNamesTheFailingRecipe) {
         apply_recipes(t, {{"study", "x", RecipeKind::Square, "z", "", "", 0}});
     });
     EXPECT_TRUE(contains(twice, "already has a column")) << twice;
+}
+
+// The reference level chosen for an analysis reaches the model and the probe;
+// one chosen for a column that has left the model is kept but not used.
+// Expected: the slopes of a re-referenced model are the same numbers in a
+// new order, and a pair's difference changes sign with its order (algebra).
+TEST(RunAnalysis, ChosenReferenceLevelOrdersTheGroupsAndTheirPairs) {
+    const fs::path csv = moderato::test::reference_fixture_dir("contrasts_ols4.json") / "contrasts_ols4.csv";
+    CsvOptions o;
+    o.column_kinds["channel"] = ColumnKind::Categorical;
+    o.column_kinds["team"] = ColumnKind::Categorical;
+    const auto table = std::make_shared<const Table>(read_csv(csv.string(), o));
+    Analysis a;
+    a.id = "queue";
+    a.name = "queue";
+    a.dataset = "queue";
+    a.roles.outcome = "wait";
+    a.roles.focal = "tenure";
+    a.roles.moderator = "channel";
+    a.probe.adjustment = Adjustment::None;
+    const AnalysisRun first = run_analysis(table, a);  // reference: "chat", first in text order
+    a.reference_levels = {{"channel", "visit"}, {"team", "T07"}};
+    const AnalysisRun chosen = run_analysis(table, a);
+    ASSERT_TRUE(first.probe && chosen.probe);
+    ASSERT_EQ(chosen.probe->effects.size(), 4u);
+    EXPECT_EQ(first.probe->effects[0].level, "chat");
+    EXPECT_EQ(chosen.probe->effects[0].level, "visit");
+    EXPECT_EQ(chosen.probe->effects[1].level, "chat");
+    EXPECT_NEAR(chosen.probe->effects[0].estimate, first.probe->effects[3].estimate, 1e-10);
+    // (chat, visit) before; (visit, chat) now: the same difference, negated
+    const auto find = [](const ProbeResult& r, const std::string& a1, const std::string& b1) {
+        for (const auto& c : r.slope_contrasts)
+            if (c.first == a1 && c.second == b1) return c;
+        ADD_FAILURE() << a1 << " " << b1;
+        return SlopeContrast{};
+    };
+    const SlopeContrast before = find(*first.probe, "chat", "visit"), after = find(*chosen.probe, "visit", "chat");
+    EXPECT_NEAR(after.estimate, -before.estimate, 1e-10);
+    EXPECT_NEAR(after.std_error, before.std_error, 1e-10);
+    EXPECT_EQ(after.p_adjusted, after.p_value);  // adjustment none
+    EXPECT_EQ(chosen.spec.reference_levels.count("team"), 0u);
 }

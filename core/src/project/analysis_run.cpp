@@ -67,6 +67,7 @@ void probe_analysis(AnalysisRun& run, const Analysis& a) {
     ps.moderator = a.roles.moderator;
     ps.second_moderator = a.roles.second_moderator;
     ps.second_value = a.probe.second_value;
+    ps.adjustment = a.probe.adjustment;
     switch (run.kind) {
         case ProbeKind::Cells:
             run.cells = cell_table(run.design, run.fit, a.roles.focal, a.roles.moderator);
@@ -93,13 +94,14 @@ void probe_analysis(AnalysisRun& run, const Analysis& a) {
 
 bool same_model(const Analysis& a, const Analysis& b) {
     return a.dataset == b.dataset && a.roles == b.roles && a.family == b.family && a.se == b.se && a.level == b.level &&
-           a.centring == b.centring;
+           a.centring == b.centring && a.reference_levels == b.reference_levels;
 }
 
 bool same_probe(const Analysis& a, const Analysis& b) {
     const auto same = [](double x, double y) { return x == y || (std::isnan(x) && std::isnan(y)); };
     return same_model(a, b) && a.probe.pinned == b.probe.pinned && same(a.probe.second_value, b.probe.second_value) &&
-           a.probe.scale == b.probe.scale && a.probe.averaging == b.probe.averaging;
+           a.probe.scale == b.probe.scale && a.probe.averaging == b.probe.averaging &&
+           a.probe.adjustment == b.probe.adjustment;
 }
 
 AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a) {

@@ -71,6 +71,8 @@ constexpr Word<FigurePlot> kPlotWords[] = {{FigurePlot::Lines, "lines"},        
                                            {FigurePlot::Residuals, "residuals"}, {FigurePlot::QQ, "qq"},
                                            {FigurePlot::Influence, "influence"}};
 constexpr Word<ProbeScale> kScaleWords[] = {{ProbeScale::Model, "model"}, {ProbeScale::Outcome, "outcome"}};
+constexpr Word<Adjustment> kAdjustmentWords[] = {
+    {Adjustment::Holm, "holm"}, {Adjustment::Bonferroni, "bonferroni"}, {Adjustment::None, "none"}};
 constexpr Word<Averaging> kAveragingWords[] = {{Averaging::Sample, "sample"}, {Averaging::AtValues, "values"}};
 constexpr Word<Family> kFamilyWords[] = {{Family::Linear, "linear"}, {Family::Logistic, "logistic"}};
 constexpr Word<SeKind> kSeWords[] = {{SeKind::Classical, "model-based"},
@@ -235,14 +237,17 @@ json recipe_to_json(const DerivedRecipe& r) {
 }
 
 json probe_to_json(const ProbeSettings& p) {
-    return {{"current", number_or_null(p.current)},
-            {"pinned", finite_only(p.pinned)},
-            {"second_value", number_or_null(p.second_value)},
-            {"scale", word_of(kScaleWords, p.scale)},
-            {"averaging", word_of(kAveragingWords, p.averaging)},
-            {"simultaneous_band", p.simultaneous_band},
-            {"show_points", p.show_points},
-            {"show_gaps", p.show_gaps}};
+    json j{{"current", number_or_null(p.current)},
+           {"pinned", finite_only(p.pinned)},
+           {"second_value", number_or_null(p.second_value)},
+           {"scale", word_of(kScaleWords, p.scale)},
+           {"averaging", word_of(kAveragingWords, p.averaging)},
+           {"simultaneous_band", p.simultaneous_band},
+           {"show_points", p.show_points},
+           {"show_gaps", p.show_gaps}};
+    // Written only when not the default, so projects keep their bytes.
+    if (p.adjustment != Adjustment::Holm) j["adjustment"] = word_of(kAdjustmentWords, p.adjustment);
+    return j;
 }
 
 json figure_to_json(const FigureSettings& f) {
@@ -268,6 +273,7 @@ json analysis_to_json(const Analysis& a) {
            {"figure", figure_to_json(a.figure)}};
     // Written only when there are notes, so projects without them keep their bytes.
     if (!a.memo_notes.empty()) j["memo_notes"] = a.memo_notes;
+    if (!a.reference_levels.empty()) j["reference_levels"] = a.reference_levels;
     return j;
 }
 
@@ -360,6 +366,7 @@ ProbeSettings read_probe(const Reader& r, const json& j, const std::string& wher
     out.simultaneous_band = r.boolean(probe, "simultaneous_band", pw, false);
     out.show_points = r.boolean(probe, "show_points", pw, true);
     out.show_gaps = r.boolean(probe, "show_gaps", pw, true);
+    out.adjustment = r.choice(probe, "adjustment", pw, kAdjustmentWords, std::optional(Adjustment::Holm));
     return out;
 }
 
@@ -413,6 +420,9 @@ Analysis read_analysis(const Reader& r, const json& j, const std::string& where,
     a.probe = read_probe(r, j, where);
     a.figure = read_figure(r, j, where);
     a.memo_notes = r.text(j, "memo_notes", where, false);
+    const json& refs = r.object(j, "reference_levels", where, false);
+    for (auto it = refs.begin(); it != refs.end(); ++it)
+        a.reference_levels[it.key()] = r.text(refs, it.key().c_str(), where + ".reference_levels", true);
     return a;
 }
 
@@ -447,7 +457,7 @@ bool is_check_plot(FigurePlot plot) {
 bool ProbeSettings::operator==(const ProbeSettings& o) const {
     return same_number(current, o.current) && pinned == o.pinned && same_number(second_value, o.second_value) &&
            scale == o.scale && averaging == o.averaging && simultaneous_band == o.simultaneous_band &&
-           show_points == o.show_points && show_gaps == o.show_gaps;
+           show_points == o.show_points && show_gaps == o.show_gaps && adjustment == o.adjustment;
 }
 
 bool DataSource::operator==(const DataSource& o) const {
@@ -463,8 +473,8 @@ bool Project::operator==(const Project& o) const {
 
 bool Analysis::operator==(const Analysis& o) const {
     return id == o.id && name == o.name && dataset == o.dataset && roles == o.roles && family == o.family &&
-           se == o.se && level == o.level && centring == o.centring && probe == o.probe && figure == o.figure &&
-           memo_notes == o.memo_notes;
+           se == o.se && level == o.level && centring == o.centring && reference_levels == o.reference_levels &&
+           probe == o.probe && figure == o.figure && memo_notes == o.memo_notes;
 }
 
 const DataSource* Project::dataset(const std::string& id) const {
@@ -589,6 +599,10 @@ ModelSpec model_spec(const Analysis& a, const std::map<std::string, std::string>
         if (w.empty()) spec.interactions.push_back({f, m});
         else spec.interactions.push_back({f, m, w});
     }
+    // A reference level chosen for a column that has since left the model is kept for when it returns.
+    for (const auto& [column, level] : a.reference_levels)
+        if (std::find(spec.predictors.begin(), spec.predictors.end(), column) != spec.predictors.end())
+            spec.reference_levels[column] = level;
     return spec;
 }
 

@@ -21,6 +21,7 @@ bool ProjectStateCommand::mergeWith(const QUndoCommand* other) {
     const auto* o = dynamic_cast<const ProjectStateCommand*>(other);
     if (!o || o->mergeId_ != mergeId_ || o->mergeKey_ != mergeKey_ || mergeKey_.isEmpty()) return false;
     after_ = o->after_;
+    setText(o->text());  // the step is named for where it ended ("… to 'night'", not the first key's level)
     return true;
 }
 

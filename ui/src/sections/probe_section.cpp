@@ -30,6 +30,7 @@
 #include "probe/moderator_slider.hpp"
 #include "probe/pinned_table.hpp"
 #include "probe/readout_panel.hpp"
+#include "specify/role_edit.hpp"
 #include "style/palette_text.hpp"
 
 namespace moderato::ui {
@@ -64,6 +65,7 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
       scaleLabel_(new QLabel(tr("Scale"), this)),
       scale_(new QComboBox(this)),
       averaging_(new QComboBox(this)),
+      adjust_(new QComboBox(this)),
       surfaceToggle_(new QToolButton(this)),
       differ_(new QCheckBox(tr("Where groups differ"), this)),
       linesTitle_(plotTitle(this)),
@@ -146,6 +148,14 @@ QHBoxLayout* ProbeSection::createControls() {
         tr("Probability-scale effects averaged over every observed row, or at one profile with "
            "the other predictors at their means and reference levels"));
     controls->addWidget(averaging_);
+    adjust_->setObjectName(QStringLiteral("adjustment-choice"));
+    adjust_->addItem(tr("pairs: Holm-adjusted p"), static_cast<int>(Adjustment::Holm));
+    adjust_->addItem(tr("pairs: Bonferroni-adjusted p"), static_cast<int>(Adjustment::Bonferroni));
+    adjust_->addItem(tr("pairs: unadjusted p"), static_cast<int>(Adjustment::None));
+    adjust_->setToolTip(
+        tr("How the p-values of the differences between every two groups are adjusted for making several "
+           "comparisons at once. Holm's step-down is never less powerful than Bonferroni's."));
+    controls->addWidget(adjust_);
     differ_->setObjectName(QStringLiteral("differ-toggle"));
     differ_->setChecked(true);
     differ_->setToolTip(
@@ -250,6 +260,11 @@ void ProbeSection::connectSettings() {
     connect(averaging_, &QComboBox::activated, this, [this](int i) {
         const auto s = static_cast<Averaging>(averaging_->itemData(i).toInt());
         editSettings([s](ProbeSettings& p) { p.averaging = s; }, tr("Change how probability effects are averaged"));
+    });
+    connect(adjust_, &QComboBox::activated, this, [this](int i) {
+        const auto a = static_cast<Adjustment>(adjust_->itemData(i).toInt());
+        editSettings([a](ProbeSettings& p) { p.adjustment = a; },
+                     tr("Adjust pairwise p-values: %1").arg(QString::fromLatin1(to_string(a))));
     });
     connect(held_, &HeldValueControl::valueChosen, this, [this](double v) {
         const Analysis* a = doc_->analysis(id_);
@@ -407,6 +422,8 @@ void ProbeSection::rebuild() {
     scale_->setCurrentIndex(engine_.probability() ? 1 : 0);
     averaging_->setVisible(logistic && engine_.probability());
     averaging_->setCurrentIndex(ps.averaging == Averaging::AtValues ? 1 : 0);
+    adjust_->setVisible(run_->probe->slope_contrasts.size() > 1);
+    adjust_->setCurrentIndex(std::max(0, adjust_->findData(static_cast<int>(ps.adjustment))));
     const bool surfaceOk = run_->surface.has_value();
     surfaceToggle_->setVisible(surfaceOk);
     if (!surfaceOk) surfaceToggle_->setChecked(false);
@@ -711,6 +728,7 @@ void ProbeSection::fillSummary() {
     const ProbeResult& p = engine_.probe();
     SummaryText out;
     summarizeInteraction(out);
+    summarizeComparisons(out);
     if (!engine_.groups()) summarizeRegions(out);
     summarizeCrossovers(out);
     // Where the groups (or the lines) differ: the Johnson–Neyman technique on the gap between them.
@@ -756,6 +774,35 @@ void ProbeSection::summarizeInteraction(SummaryText& out) {
                 .arg(productCoefficientText()));
         out.end();
     }
+}
+
+void ProbeSection::summarizeComparisons(SummaryText& out) {
+    const ProbeResult& p = engine_.probe();
+    const QString focal = q(engine_.focal()), mod = q(engine_.moderator());
+    if (p.interaction_test) {
+        const WaldTest& t = *p.interaction_test;
+        out.section(tr("Does the effect of %1 depend on %2?").arg(focal, mod));
+        const QString stat =
+            std::isinf(t.df2) ? tr("χ²(%1) = %2").arg(exactText(t.df1), numberText(t.chi_square))
+                              : tr("F(%1, %2) = %3").arg(exactText(t.df1), exactText(t.df2), numberText(t.statistic));
+        out.line(tr("Joint test of the interaction with %1 standard errors (the test to report): %2, %3.")
+                     .arg(seKindName(run_->fit.se), stat, pClauseText(t.p_value)));
+        if (engine_.probability()) out.line(tr("Tested on the log-odds scale, on the model's coefficients."));
+        out.end();
+    }
+    if (p.slope_contrasts.size() < 2) return;
+    const QString how = p.adjustment == Adjustment::Holm         ? tr("Holm-adjusted")
+                        : p.adjustment == Adjustment::Bonferroni ? tr("Bonferroni-adjusted")
+                                                                 : tr("not adjusted");
+    out.section(tr("Differences between groups in the effect of %1 (p %2)").arg(focal, how));
+    for (const SlopeContrast& c : p.slope_contrasts)
+        out.line(tr("%1 − %2: %3 (SE %4, %5 CI %6 to %7), %8, adjusted %9")
+                     .arg(q(c.second), q(c.first), numberText(c.estimate), numberText(c.std_error), levelText(p.level),
+                          numberText(c.ci_lower), numberText(c.ci_upper), pClauseText(c.p_value),
+                          pClauseText(c.p_adjusted)));
+    out.line(tr("%1 pairs compared; each difference is the second group's effect minus the first's.")
+                 .arg(p.slope_contrasts.size()));
+    out.end();
 }
 
 void ProbeSection::summarizeRegions(SummaryText& out) {

@@ -65,6 +65,9 @@ public:
     QCheckBox* pointsToggle() const { return points_; }
     QComboBox* scaleChoice() const { return scale_; }
     QComboBox* averagingChoice() const { return averaging_; }
+    // How the p-values of the pairwise differences between groups are adjusted
+    // (shown for a categorical moderator with three or more groups).
+    QComboBox* adjustmentChoice() const { return adjust_; }
     QToolButton* surfaceToggle() const { return surfaceToggle_; }
     // Shades the Lines plot where the two groups (or any two lines) differ.
     QCheckBox* differToggle() const { return differ_; }
@@ -122,6 +125,8 @@ private:
     // The summary under the tables, section by section (as HTML and as plain text).
     void fillSummary();
     void summarizeInteraction(SummaryText& out);
+    // The joint test of the interaction and, between groups, every pairwise difference.
+    void summarizeComparisons(SummaryText& out);
     void summarizeRegions(SummaryText& out);
     void summarizeCrossovers(SummaryText& out);
     void summarizeGaps(SummaryText& out);
@@ -167,6 +172,7 @@ private:
     QLabel* scaleLabel_;
     QComboBox* scale_;
     QComboBox* averaging_;
+    QComboBox* adjust_;
     QToolButton* surfaceToggle_;
     QCheckBox* differ_;
     QLabel* linesTitle_;

@@ -18,6 +18,7 @@
 #include <cmath>
 
 #include "model/project_document.hpp"
+#include "moderato/estimation/design.hpp"
 #include "specify/column_list_model.hpp"
 #include "specify/model_equation.hpp"
 #include "specify/role_slot.hpp"
@@ -65,6 +66,8 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
       se_(new QComboBox(this)),
       level_(new QDoubleSpinBox(this)),
       centring_(new QComboBox(this)),
+      reference_(new QComboBox(this)),
+      referenceLabel_(new QLabel(this)),
       centringHint_(nullptr),
       message_(new QLabel(this)),
       errorBanner_(new QLabel(this)),
@@ -186,7 +189,13 @@ void SpecifySection::createModelOptions(QWidget* right, QVBoxLayout* r) {
     form->addRow(tr("Family"), family_);
     form->addRow(tr("Standard errors"), se_);
     form->addRow(tr("Confidence level"), level_);
+    reference_->setObjectName(QStringLiteral("specify-reference"));
+    reference_->setToolTip(
+        tr("The group the others are compared with: the baseline of the dummy columns and the first "
+           "group in Probe's pairwise differences."));
+    form->addRow(referenceLabel_, reference_);
     form->addRow(tr("Centring"), centring_);
+    modelForm_ = form;
     r->addLayout(form);
     centringHint_ = mutedLabel(right);
     centringHint_->setText(
@@ -256,6 +265,13 @@ void SpecifySection::connectSignals() {
         if (const Analysis* a = current())
             apply(setCentring(*a, doc_->table(a->dataset).get(),
                               static_cast<Centring>(centring_->itemData(index).toInt())));
+    });
+
+    connect(reference_, &QComboBox::activated, this, [this](int index) {
+        if (const Analysis* a = current())
+            apply(setReferenceLevel(*a, doc_->table(a->dataset).get(), a->roles.moderator,
+                                    reference_->itemData(index).toString().toStdString()),
+                  QStringLiteral("reference:") + id_);
     });
 
     connect(doc_, &ProjectDocument::analysisChanged, this, [this](const QString& id) {
@@ -371,6 +387,7 @@ void SpecifySection::refresh() {
         level_->setValue(a->level);
         centring_->setCurrentIndex(std::max(0, centring_->findData(static_cast<int>(a->centring))));
     }
+    refreshReference(*a, table.get());
 
     QStringList lines;
     if (!refusal_.isEmpty()) lines << tr("Not changed: %1").arg(refusal_);
@@ -392,6 +409,23 @@ void SpecifySection::refresh() {
     reading_->setVisible(!eq.reading.isEmpty());
     rows_->setText(run ? rowsUsedText(run->fit) : QString());
     rows_->setVisible(run != nullptr);
+}
+
+// The moderator's levels, the model's reference first; the row shows only
+// for a categorical moderator.
+void SpecifySection::refreshReference(const Analysis& a, const Table* table) {
+    const std::vector<std::string> levels =
+        table ? orderedLevels(a, *table, a.roles.moderator) : std::vector<std::string>{};
+    modelForm_->setRowVisible(reference_, !levels.empty());
+    const QSignalBlocker block(reference_);
+    reference_->clear();
+    if (levels.empty()) return;
+    referenceLabel_->setText(tr("Reference level of %1").arg(QString::fromStdString(a.roles.moderator)));
+    for (const auto& l : sorted_levels(table->at(a.roles.moderator))) {
+        const QString name = QString::fromStdString(l);
+        reference_->addItem(name, name);
+    }
+    reference_->setCurrentIndex(reference_->findData(QString::fromStdString(levels.front())));
 }
 
 }  // namespace moderato::ui

@@ -13,6 +13,7 @@
 #include "specify/role_edit.hpp"
 
 class QComboBox;
+class QFormLayout;
 class QDoubleSpinBox;
 class QLabel;
 class QTableView;
@@ -36,6 +37,8 @@ public:
     QComboBox* seBox() const { return se_; }
     QDoubleSpinBox* levelBox() const { return level_; }
     QComboBox* centringBox() const { return centring_; }
+    // The reference level of a categorical moderator (hidden otherwise).
+    QComboBox* referenceBox() const { return reference_; }
     // The inline message (refused edits and problems with the roles); empty when none.
     QString message() const;
     QLabel* messageLabel() const { return message_; }
@@ -61,6 +64,7 @@ private:
     void columnChosen(Role target, const QString& column, int fromRole);
     void columnCleared(Role role, const QString& column);
     void showColumnMenu(const QPoint& pos);
+    void refreshReference(const Analysis& a, const Table* table);
 
     QString id_;
     std::shared_ptr<const AnalysisRun> run_;
@@ -77,6 +81,9 @@ private:
     QComboBox* se_;
     QDoubleSpinBox* level_;
     QComboBox* centring_;
+    QComboBox* reference_;
+    QLabel* referenceLabel_;
+    QFormLayout* modelForm_ = nullptr;
     QLabel* centringHint_;
     QLabel* message_;
     QLabel* errorBanner_;

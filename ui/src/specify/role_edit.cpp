@@ -1,8 +1,10 @@
 #include "specify/role_edit.hpp"
 #include "common/number_text.hpp"
+#include "moderato/estimation/design.hpp"
 
 #include <QCoreApplication>
 #include <algorithm>
+#include <cmath>
 #include <limits>
 
 namespace moderato::ui {
@@ -336,6 +338,36 @@ RoleEdit setCentring(const Analysis& before, const Table* table, Centring centri
     Analysis after = before;
     after.centring = centring;
     return checked(before, std::move(after), table, tr("Set centring to %1").arg(plain(to_string(centring))));
+}
+
+std::vector<std::string> orderedLevels(const Analysis& a, const Table& table, const std::string& column) {
+    const Column* c = table.find(column);
+    if (!c || c->kind != ColumnKind::Categorical) return {};
+    std::vector<std::string> levels = sorted_levels(*c);
+    const auto chosen = a.reference_levels.find(column);
+    if (chosen != a.reference_levels.end()) {
+        const auto it = std::find(levels.begin(), levels.end(), chosen->second);
+        if (it != levels.end()) std::rotate(levels.begin(), it, it + 1);
+    }
+    return levels;
+}
+
+RoleEdit setReferenceLevel(const Analysis& before, const Table* table, const std::string& column,
+                           const std::string& level) {
+    if (!table) return {};
+    const std::vector<std::string> was = orderedLevels(before, *table, column);
+    if (std::find(was.begin(), was.end(), level) == was.end()) return {};
+    Analysis after = before;
+    const std::vector<std::string> text_order = sorted_levels(table->at(column));
+    if (level == text_order.front()) after.reference_levels.erase(column);
+    else after.reference_levels[column] = level;
+    const std::vector<std::string> now = orderedLevels(after, *table, column);
+    const double g = before.probe.current;
+    if (column == before.roles.moderator && std::isfinite(g) && g >= 0 && g < static_cast<double>(was.size())) {
+        const auto& name = was[static_cast<std::size_t>(g)];
+        after.probe.current = static_cast<double>(std::find(now.begin(), now.end(), name) - now.begin());
+    }
+    return checked(before, std::move(after), table, tr("Set reference level of %1 to %2").arg(q(column), q(level)));
 }
 
 }  // namespace moderato::ui

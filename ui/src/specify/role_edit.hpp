@@ -61,6 +61,15 @@ RoleEdit setFamily(const Analysis& before, const Table* table, Family family);
 RoleEdit setSeKind(const Analysis& before, const Table* table, SeKind se);
 RoleEdit setLevel(const Analysis& before, const Table* table, double level);
 RoleEdit setCentring(const Analysis& before, const Table* table, Centring centring);
+// Makes `level` the reference level of the categorical `column` (its first
+// level in the design: the baseline of its dummies and the first group). The
+// first level in text order is the default and is not stored. The slider
+// stays on the same group.
+RoleEdit setReferenceLevel(const Analysis& before, const Table* table, const std::string& column,
+                           const std::string& level);
+// The levels of a categorical `column` in the order the model uses them:
+// the analysis's reference level first, then the others in text order.
+std::vector<std::string> orderedLevels(const Analysis& a, const Table& table, const std::string& column);
 
 // What cannot work in these settings, each naming the role and the column
 // (empty when nothing the UI can see is wrong; core may still refuse).

@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "moderato/estimation/model.hpp"
+#include "moderato/probing/multiplicity.hpp"
 #include "moderato/probing/scale.hpp"
 #include "moderato/reading/csv.hpp"
 
@@ -96,6 +97,9 @@ struct ProbeSettings {
     bool simultaneous_band = false;                                  // show the simultaneous band instead of pointwise
     bool show_points = true;                                         // data points on the Lines plot
     bool show_gaps = true;  // shade where two groups' (or lines') predictions differ
+    // Categorical moderator: how the pairwise differences' p-values are
+    // adjusted (written to the file only when not Holm).
+    Adjustment adjustment = Adjustment::Holm;
     bool operator==(const ProbeSettings&) const;
 };
 
@@ -150,6 +154,9 @@ struct Analysis {
     double level = 0.95;
     // Centring changes the meaning of lower-order terms, not the fit or the probe.
     Centring centring = Centring::None;
+    // Categorical column -> its reference level; a column not listed uses
+    // its first level in text order (written only when not empty).
+    std::map<std::string, std::string> reference_levels;
     ProbeSettings probe;
     FigureSettings figure;
     std::string memo_notes;  // the analyst's own words, printed at the top of the memo
