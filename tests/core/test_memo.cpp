@@ -200,8 +200,41 @@ TEST(MemoSentences, CoffeeCrossoverAndSlopesMatchClosedForms) {
     const auto& x = s.run.table->at("discount_pct").numbers;
     expect_written(m[4], *std::min_element(x.begin(), x.end()), "observed minimum");
     expect_written(m[5], *std::max_element(x.begin(), x.end()), "observed maximum");
-    // With HC3, as the project asks.
-    EXPECT_NE(joined(findings).find("With HC3 standard errors the Wald test"), std::string::npos);
+    // With HC3, as the project asks: the Wald test is the one to report, the R² change F secondary.
+    const std::string all = joined(findings);
+    EXPECT_NE(all.find("With HC3 standard errors the test of the interaction term to report is the Wald test: F(1, "),
+              std::string::npos);
+    EXPECT_NE(all.find("a classical test that assumes the same error variance in every row, so it is secondary"),
+              std::string::npos);
+}
+
+// Three groups: the joint test is stated once (the Wald test with HC3 SEs,
+// F = the statsmodels-checked Wald F of the fit's comparison), and every
+// pairwise difference with its Holm-adjusted p, equal to the probe's numbers
+// (checked against statsmodels in test_slope_contrasts.cpp).
+TEST(MemoSentences, ThreeGroupsStateTheJointTestOnceAndEveryPair) {
+    const SampleRun s = run_sample("helpdesk-staffing");
+    const auto findings = memo_findings(s.analysis, s.run);
+    const std::string all = joined(findings);
+    SCOPED_TRACE(all);
+    std::size_t count = 0;
+    for (std::size_t at = all.find("Wald"); at != std::string::npos; at = all.find("Wald", at + 1)) ++count;
+    EXPECT_EQ(count, 1u);
+    auto m = find(findings,
+                  std::string("test of the interaction terms to report is the Wald test: F\\(2, 1188\\) = ") + kNum);
+    ASSERT_EQ(m.size(), 2u);
+    expect_written(m[1], s.run.fit.comparison->wald.statistic, "Wald F");
+    const ProbeResult& p = *s.run.probe;
+    ASSERT_EQ(p.slope_contrasts.size(), 3u);
+    m = find(findings, std::string("p-values Holm-adjusted over 3 pairs\\): evening − day ") + kNum + " \\(95% CI " +
+                           kNum + " to " + kNum + ", adjusted p");
+    ASSERT_EQ(m.size(), 4u);
+    expect_written(m[1], p.slope_contrasts[0].estimate, "evening - day");
+    expect_written(m[2], p.slope_contrasts[0].ci_lower, "its lower end");
+    expect_written(m[3], p.slope_contrasts[0].ci_upper, "its upper end");
+    m = find(findings, std::string("\\) and night − evening ") + kNum);
+    ASSERT_EQ(m.size(), 2u);
+    expect_written(m[1], p.slope_contrasts[2].estimate, "night - evening");
 }
 
 TEST(MemoSentences, CellsSentenceIsTheDifferenceInDifferences) {

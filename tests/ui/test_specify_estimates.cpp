@@ -193,6 +193,12 @@ TEST(SpecifyEstimates, PickerMovesAControlToModeratorAndTheTableFollows) {
     EXPECT_TRUE(cmp.contains(QStringLiteral("HC3 covariance: F(1, 476) = ") +
                              QString::number(wald["statistic"].get<double>(), 'f', 2)))
         << cmp.toStdString();
+    // HC3 chosen: the Wald test is the one to report, the classical R² change test secondary (one story).
+    const qsizetype waldAt = cmp.indexOf(QStringLiteral("HC3 covariance: F(1, 476)"));
+    EXPECT_GT(cmp.indexOf(QStringLiteral(" — <b>the test to report</b>."), waldAt), waldAt) << cmp.toStdString();
+    EXPECT_EQ(cmp.count(QStringLiteral("the test to report")), 1) << cmp.toStdString();
+    EXPECT_TRUE(cmp.contains(QStringLiteral("secondary here: it assumes the same error variance in every row")))
+        << cmp.toStdString();
 
     // The equation names the columns; the reading names focal and moderator (from the roles).
     const QString eq = o.specify()->equationLabel()->toolTip();

@@ -128,6 +128,15 @@ ExportTable comparison_table(const Analysis& a, const AnalysisRun& run) {
     t.rows.push_back(
         {text(std::string("Wald ") + (chi ? "χ²" : "F") + " (" + se_description(f, a.roles.clusters) + ")"),
          num(chi ? w.chi_square : w.statistic), text(df_text(w.df1, w.df2)), pval(w.p_value)});
+    const bool linear = f.family == Family::Linear;
+    const std::string model_test = linear ? "the R² change F test" : "the likelihood-ratio test";
+    t.notes.push_back(a.se == SeKind::Classical
+                          ? "With " + se_description(f, a.roles.clusters) + " standard errors the test to report is " +
+                                model_test + "."
+                          : "With " + se_description(f, a.roles.clusters) +
+                                " standard errors the test to report is the Wald test; " + model_test +
+                                (linear ? " assumes the same error variance in every row."
+                                        : " assumes the model's variance is right."));
     return t;
 }
 

@@ -182,6 +182,23 @@ void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector
     }
 }
 
+// Every pairwise difference of the groups' effects, with the adjusted p;
+// the joint test is said once, in comparison_sentence.
+void pairwise_sentence(const ProbeResult& p, std::vector<std::string>& out) {
+    if (p.slope_contrasts.size() < 2) return;
+    std::vector<std::string> parts;
+    for (const auto& c : p.slope_contrasts)
+        parts.push_back(c.second + " − " + c.first + " " + format_sig(c.estimate) + " (" +
+                        ci_text(p.level, c.ci_lower, c.ci_upper) + ", adjusted " + p_clause(c.p_adjusted) + ")");
+    const std::string how = p.adjustment == Adjustment::Holm         ? "Holm-adjusted"
+                            : p.adjustment == Adjustment::Bonferroni ? "Bonferroni-adjusted"
+                                                                     : "here not adjusted";
+    out.push_back("Pairwise, the effect of " + p.focal +
+                  (p.scale == ProbeScale::Outcome ? " on P(" + p.outcome + " = 1)" : "") +
+                  " differs between groups (the second group's minus the first's; p-values " + how + " over " +
+                  std::to_string(p.slope_contrasts.size()) + " pairs): " + join_and(parts) + ".");
+}
+
 void group_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
     const ProbeResult& p = *run.probe;
     std::vector<std::string> parts;
@@ -202,14 +219,8 @@ void group_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
             out.push_back(std::string("The slopes differ by ") + format_sig(c.estimate) +
                           (run.fit.family == Family::Logistic ? " on the log-odds scale" : "") + " (" +
                           ci_text(run.fit.level, c.ci_lower, c.ci_upper) + ", " + p_clause(c.p_value) + ").");
-    } else if (cols.size() > 1 && run.fit.comparison) {
-        const WaldTest& w = run.fit.comparison->wald;
-        const bool chi = !std::isfinite(w.df2);
-        out.push_back(
-            "The joint test that the slopes are equal in every group gives " +
-            std::string(chi ? "χ²(" + format_sig(w.df1) + ") = " + format_sig(w.chi_square)
-                            : "F(" + format_sig(w.df1) + ", " + format_sig(w.df2) + ") = " + format_sig(w.statistic)) +
-            ", " + p_clause(w.p_value) + ".");
+    } else if (cols.size() > 1) {
+        pairwise_sentence(p, out);
     }
 }
 
@@ -274,25 +285,36 @@ void cell_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
     }
 }
 
+// The test of the interaction to report follows the chosen standard errors:
+// the classical R²-change F (linear) or likelihood-ratio test (logistic)
+// with model-based SEs, else the Wald test with the chosen covariance, the
+// other one then named as secondary with its reason. Said once.
 void comparison_sentence(const Analysis& a, const AnalysisRun& run, std::vector<std::string>& out) {
     if (!run.fit.comparison) return;
     const NestedComparison& c = *run.fit.comparison;
     const std::string what = c.dropped_terms.size() == 1 ? "the interaction term" : "the interaction terms";
-    if (run.fit.family == Family::Linear) {
-        out.push_back("Adding " + what + " raises R² from " + format_sig(c.r_squared_reduced) + " to " +
-                      format_sig(run.fit.r_squared) + " (change " + format_sig(c.r_squared_change) + "; F(" +
-                      format_sig(c.df1) + ", " + format_sig(c.df2) + ") = " + format_sig(c.f_statistic) + ", " +
-                      p_clause(c.p_value) + ").");
-    } else {
-        out.push_back("Adding " + what + " improves the fit: likelihood-ratio χ²(" + format_sig(c.df1) +
-                      ") = " + format_sig(c.lr_statistic) + ", " + p_clause(c.lr_p_value) + ".");
+    const bool linear = run.fit.family == Family::Linear, robust = a.se != SeKind::Classical;
+    const std::string model_test =
+        linear ? "Adding " + what + " raises R² from " + format_sig(c.r_squared_reduced) + " to " +
+                     format_sig(run.fit.r_squared) + " (change " + format_sig(c.r_squared_change) + "; F(" +
+                     format_sig(c.df1) + ", " + format_sig(c.df2) + ") = " + format_sig(c.f_statistic) + ", " +
+                     p_clause(c.p_value) + ")"
+               : "Adding " + what + " improves the fit: likelihood-ratio χ²(" + format_sig(c.df1) +
+                     ") = " + format_sig(c.lr_statistic) + ", " + p_clause(c.lr_p_value);
+    if (!robust) {
+        out.push_back(model_test + "; with " + (linear ? "classical" : "model-based") +
+                      " standard errors this is the test of " + what + " to report.");
+        return;
     }
-    if (a.se != SeKind::Classical && a.family == Family::Linear) {
-        const WaldTest& w = c.wald;
-        out.push_back("With " + se_description(run.fit, a.roles.clusters) + " standard errors the Wald test of " +
-                      what + " gives F(" + format_sig(w.df1) + ", " + format_sig(w.df2) +
-                      ") = " + format_sig(w.statistic) + ", " + p_clause(w.p_value) + ".");
-    }
+    const WaldTest& w = c.wald;
+    const std::string stat =
+        std::isfinite(w.df2) ? "F(" + format_sig(w.df1) + ", " + format_sig(w.df2) + ") = " + format_sig(w.statistic)
+                             : "χ²(" + format_sig(w.df1) + ") = " + format_sig(w.chi_square);
+    out.push_back("With " + se_description(run.fit, a.roles.clusters) + " standard errors the test of " + what +
+                  " to report is the Wald test: " + stat + ", " + p_clause(w.p_value) + ". " + model_test + ", " +
+                  (linear ? "a classical test that assumes the same error variance in every row"
+                          : "a test that assumes the model's variance is right") +
+                  ", so it is secondary here.");
 }
 
 // "x×z" as \text{x} \times \text{z} (products outside \text, so any math renderer reads them).

@@ -301,20 +301,30 @@ void EstimatesSection::showComparison(const FitResult& main) {
         QStringList dropped;
         for (const auto& t : c.dropped_terms) dropped << h(t);
         const QString terms = dropped.join(QStringLiteral(", "));
+        // One test to report, following the chosen standard errors; the other is named secondary with its reason.
+        const bool robust = main.se != SeKind::Classical;
+        const QString toReport = tr(" — <b>the test to report</b>");
+        const QString modelNote = !robust    ? toReport
+                                  : logistic ? tr(" — secondary here: it assumes the model's variance is right")
+                                             : tr(" — secondary here: it assumes the same error variance in every row");
+        const QString waldNote = robust     ? toReport
+                                 : logistic ? tr(" — the same question asked another way; report the test above")
+                                            : tr(" — with classical standard errors, the test above again");
         QString text;
         if (!logistic) {
             text = tr("Without %1: R\u00b2 = %2; with: %3 (change %4).<br>"
-                      "R\u00b2-change test (classical, from the sums of squares): %5.")
+                      "R\u00b2-change test (classical, from the sums of squares): %5%6.")
                        .arg(terms, numberText(c.r_squared_reduced), numberText(main.r_squared),
                             numberText(c.r_squared_change),
-                            testText(c.f_statistic, c.df1, c.df2, c.f_statistic * c.df1, c.p_value));
+                            testText(c.f_statistic, c.df1, c.df2, c.f_statistic * c.df1, c.p_value), modelNote);
         } else {
-            text = tr("Without %1.<br>Likelihood-ratio test: %2.")
-                       .arg(terms, testText(0, c.df1, INFINITY, c.lr_statistic, c.lr_p_value));
+            text = tr("Without %1.<br>Likelihood-ratio test: %2%3.")
+                       .arg(terms, testText(0, c.df1, INFINITY, c.lr_statistic, c.lr_p_value), modelNote);
         }
-        text += tr("<br>Wald test of the same terms with the %1 covariance: %2.")
-                    .arg(seLabel(c.wald.covariance, main.family).toHtmlEscaped(),
-                         testText(c.wald.statistic, c.wald.df1, c.wald.df2, c.wald.chi_square, c.wald.p_value));
+        text +=
+            tr("<br>Wald test of the same terms with the %1 covariance: %2%3.")
+                .arg(seLabel(c.wald.covariance, main.family).toHtmlEscaped(),
+                     testText(c.wald.statistic, c.wald.df1, c.wald.df2, c.wald.chi_square, c.wald.p_value), waldNote);
         comparison_->setText(text);
     } else {
         comparison_->setText(

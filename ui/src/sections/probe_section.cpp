@@ -149,12 +149,13 @@ QHBoxLayout* ProbeSection::createControls() {
            "the other predictors at their means and reference levels"));
     controls->addWidget(averaging_);
     adjust_->setObjectName(QStringLiteral("adjustment-choice"));
-    adjust_->addItem(tr("pairs: Holm-adjusted p"), static_cast<int>(Adjustment::Holm));
-    adjust_->addItem(tr("pairs: Bonferroni-adjusted p"), static_cast<int>(Adjustment::Bonferroni));
-    adjust_->addItem(tr("pairs: unadjusted p"), static_cast<int>(Adjustment::None));
+    adjust_->addItem(tr("pairs: Holm"), static_cast<int>(Adjustment::Holm));
+    adjust_->addItem(tr("pairs: Bonferroni"), static_cast<int>(Adjustment::Bonferroni));
+    adjust_->addItem(tr("pairs: unadjusted"), static_cast<int>(Adjustment::None));
     adjust_->setToolTip(
         tr("How the p-values of the differences between every two groups are adjusted for making several "
            "comparisons at once. Holm's step-down is never less powerful than Bonferroni's."));
+    adjust_->hide();  // shown for three or more groups
     controls->addWidget(adjust_);
     differ_->setObjectName(QStringLiteral("differ-toggle"));
     differ_->setChecked(true);
