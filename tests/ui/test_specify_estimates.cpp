@@ -41,6 +41,7 @@
 #include "specify/column_mime.hpp"
 #include "specify/role_slot.hpp"
 #include "ui_test_util.hpp"
+#include "widget_input.hpp"
 
 using namespace moderato;
 using namespace moderato::ui;
@@ -484,4 +485,52 @@ TEST(SpecifyEstimates, CentringToggleChangesLowerOrderTermsOnly) {
     expectRel(mz, sz / static_cast<double>(t.rows()), 1e-12, "mean z");
     QTest::mouseClick(e->asIsButton(), Qt::LeftButton);
     EXPECT_EQ(cell(m, 1, CoefficientModel::Estimate), b1);
+}
+
+// One story of inference: a column dropped on Clusters makes the standard
+// errors cluster-robust (with a note), one undo step takes both back, and
+// clearing Clusters falls back to HC3. The fit then uses CR1 with G − 1 df
+// (core's cluster covariance, checked against statsmodels elsewhere).
+TEST(SpecifyEstimates, ClustersAndClusterRobustErrorsGoTogether) {
+    Open o(QStringLiteral("coffee-discount"));
+    SpecifySection* s = o.specify();
+    ASSERT_EQ(o.analysis().se, SeKind::HC3);
+    const int steps = o.undo()->count();
+    std::unique_ptr<QMimeData> shop(columnListMime(s, "shop"));
+    ASSERT_TRUE(shop);
+    dropOn(s->slot(Role::Clusters), shop.get());
+    EXPECT_EQ(o.analysis().roles.clusters, "shop");
+    EXPECT_EQ(o.analysis().se, SeKind::Cluster);
+    EXPECT_EQ(o.undo()->count(), steps + 1);
+    EXPECT_TRUE(s->message().contains(QStringLiteral("Standard errors are now cluster-robust by 'shop'")))
+        << s->message().toStdString();
+    EXPECT_EQ(s->seBox()->currentData().toInt(), static_cast<int>(SeKind::Cluster));
+    ASSERT_TRUE(o.waitForRun());
+    ASSERT_TRUE(o.run());
+    EXPECT_EQ(o.run()->fit.se, SeKind::Cluster);
+    EXPECT_EQ(o.run()->fit.n_clusters, 36);  // the sample has 36 shops (sample-projects/generate.py)
+    EXPECT_EQ(o.run()->fit.df_inference, 35);
+    const QString cmp = o.estimates()->comparisonLabel()->text();
+    EXPECT_GT(cmp.indexOf(QStringLiteral("the test to report")), cmp.indexOf(QStringLiteral("Wald test")))
+        << cmp.toStdString();
+
+    // Choosing HC3 with Clusters still set says the clusters go unused.
+    test::chooseByKeys(s->seBox(), s->seBox()->findData(static_cast<int>(SeKind::HC3)));
+    EXPECT_EQ(o.analysis().se, SeKind::HC3);
+    EXPECT_TRUE(s->message().contains(QStringLiteral("do not use the Clusters column 'shop'")))
+        << s->message().toStdString();
+    o.undo()->undo();
+    EXPECT_EQ(o.analysis().se, SeKind::Cluster);
+
+    // Clearing Clusters: back to a sandwich, with a note.
+    QTest::mouseClick(s->slot(Role::Clusters)->clearButton(), Qt::LeftButton);
+    EXPECT_TRUE(o.analysis().roles.clusters.empty());
+    EXPECT_EQ(o.analysis().se, SeKind::HC3);
+    EXPECT_TRUE(s->message().contains(QStringLiteral("With no Clusters column the standard errors are now HC3")))
+        << s->message().toStdString();
+    o.undo()->undo();
+    o.undo()->undo();
+    EXPECT_TRUE(o.analysis().roles.clusters.empty());
+    EXPECT_EQ(o.analysis().se, SeKind::HC3);
+    EXPECT_EQ(o.undo()->index(), steps);  // back where it started
 }

@@ -254,7 +254,8 @@ void SpecifySection::connectSignals() {
     });
     connect(se_, &QComboBox::activated, this, [this](int index) {
         if (const Analysis* a = current())
-            apply(setSeKind(*a, doc_->table(a->dataset).get(), static_cast<SeKind>(se_->itemData(index).toInt())));
+            apply(setSeKind(*a, doc_->table(a->dataset).get(), static_cast<SeKind>(se_->itemData(index).toInt())),
+                  QStringLiteral("se:") + id_);  // arrow keys through the list: one step
     });
     connect(level_, &QDoubleSpinBox::valueChanged, this, [this](double v) {
         const Analysis* a = current();

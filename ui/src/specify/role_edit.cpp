@@ -49,8 +49,29 @@ void removeFrom(Analysis& a, Role r, const std::string& column) {
 // The edit is refused when it brings a problem the analysis did not have
 // before (a project may arrive with problems of its own; fixing one of them
 // must stay possible while the others remain).
+void addNote(QString& note, const QString& more) { note = note.isEmpty() ? more : note + QLatin1Char(' ') + more; }
+
+// One story of inference: a Clusters column means cluster-robust standard
+// errors, and cluster-robust errors without one fall back to a sandwich.
+void followClusters(const Analysis& before, Analysis& after, QString& note) {
+    if (after.roles.clusters == before.roles.clusters) return;
+    if (!after.roles.clusters.empty() && after.se != SeKind::Cluster) {
+        after.se = SeKind::Cluster;
+        addNote(note, tr("Standard errors are now cluster-robust by %1, so rows of one "
+                         "cluster are not taken as independent; choose others under "
+                         "Standard errors (the clusters are then not used).")
+                          .arg(q(after.roles.clusters)));
+    } else if (after.roles.clusters.empty() && after.se == SeKind::Cluster) {
+        after.se = after.family == Family::Linear ? SeKind::HC3 : SeKind::HC0;
+        addNote(note, tr("With no Clusters column the standard errors are now %1 "
+                         "(cluster-robust ones need clusters).")
+                          .arg(after.se == SeKind::HC3 ? QStringLiteral("HC3") : QStringLiteral("HC0")));
+    }
+}
+
 RoleEdit checked(const Analysis& before, Analysis after, const Table* table, QString description, QString note = {}) {
     RoleEdit e;
+    followClusters(before, after, note);
     if (after == before) return e;  // nothing to do
     const QStringList old = roleProblems(before, table);
     QStringList added;
@@ -67,7 +88,7 @@ RoleEdit checked(const Analysis& before, Analysis after, const Table* table, QSt
         if (!after.probe.pinned.empty() && !before.roles.moderator.empty() && !after.roles.moderator.empty()) {
             const QString cleared = tr("The pinned values of %1 were cleared; pin values of %2 in the Probe section.")
                                         .arg(q(before.roles.moderator), q(after.roles.moderator));
-            note = note.isEmpty() ? cleared : note + QLatin1Char(' ') + cleared;
+            addNote(note, cleared);
         }
         after.probe.current = std::numeric_limits<double>::quiet_NaN();
         after.probe.pinned.clear();
@@ -319,7 +340,12 @@ RoleEdit setFamily(const Analysis& before, const Table* table, Family family) {
 RoleEdit setSeKind(const Analysis& before, const Table* table, SeKind se) {
     Analysis after = before;
     after.se = se;
-    return checked(before, std::move(after), table, tr("Set standard errors to %1").arg(seKindName(se)));
+    QString note;
+    if (se != SeKind::Cluster && !before.roles.clusters.empty())
+        note = tr("%1 standard errors do not use the Clusters column %2; rows of one cluster are taken as "
+                  "independent.")
+                   .arg(seKindName(se), q(before.roles.clusters));
+    return checked(before, std::move(after), table, tr("Set standard errors to %1").arg(seKindName(se)), note);
 }
 
 RoleEdit setLevel(const Analysis& before, const Table* table, double level) {
