@@ -14,6 +14,7 @@
 #include "common/direct_fit.hpp"
 #include "common/number_text.hpp"
 #include "moderato/probing/probe.hpp"
+#include "plots/lines_plot.hpp"
 #include "sample_window.hpp"
 #include "sections/probe_section.hpp"
 #include "sections/specify_section.hpp"
@@ -136,4 +137,22 @@ TEST(GroupComparisons, ReferenceLevelChosenInSpecifyReordersTheGroupsAndUndoes) 
     }));
     EXPECT_TRUE(win.analysis().reference_levels.empty());
     EXPECT_EQ(box->currentText(), QStringLiteral("day"));
+}
+
+// Three groups cross in three places inside the data: each diamond names its pair.
+TEST(GroupComparisons, CrossoverMarkersNameTheirPair) {
+    test::SampleWindow win(test::sampleProject(kHelpdesk));
+    win.showSection(AnalysisPage::Probe);
+    const LinesPlot* lines = win.w.analysisPage()->probe()->linesPlot();
+    const ProbeResult& p = *win.run()->probe;
+    QStringList want;
+    std::size_t pair = 0;
+    for (std::size_t a = 0; a < 3; ++a)
+        for (std::size_t b = a + 1; b < 3; ++b, ++pair) {
+            const Crossover& c = p.crossovers[pair];
+            if (c.within_observed_range) want << QString::fromStdString(p.effects[a].level + "/" + p.effects[b].level);
+        }
+    EXPECT_EQ(want.size(), 3);  // all three inside 3..14 agents (the sample's lines cross at about 8, 9.6, 10.6)
+    EXPECT_EQ(lines->crossoverLabels(), want);
+    EXPECT_EQ(lines->crossoverMarkerCount(), 3);
 }

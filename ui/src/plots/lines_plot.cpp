@@ -224,6 +224,28 @@ void LinesPlot::drawCrossings() {
             t->setColor(estuary::ink);
             t->setFont(font());
         }
+        if (!c.label.isEmpty()) {  // several pairs: say which two lines meet, above and below in turn
+            const bool above = crossoverMarkers_ % 2 == 0;
+            // A short leader from the diamond; the name sits at its far end, a fixed number of pixels away.
+            auto* leader = new QCPItemLine(plot_);
+            leader->start->setCoords(c.x, c.y);
+            leader->end->setParentAnchor(leader->start);
+            leader->end->setCoords(0, above ? -14 : 14);
+            QPen thin(estuary::ink);
+            thin.setWidthF(0.8);
+            leader->setPen(thin);
+            leader->setSelectable(false);
+            auto* name = new QCPItemText(plot_);
+            name->position->setParentAnchor(leader->end);
+            name->position->setCoords(0, 0);
+            name->setPositionAlignment((above ? Qt::AlignBottom : Qt::AlignTop) | Qt::AlignHCenter);
+            name->setPadding(QMargins(3, 1, 3, 1));
+            name->setBrush(QBrush(estuary::withAlpha(Qt::white, 0.85)));
+            name->setText(c.label);
+            name->setColor(estuary::ink);
+            name->setFont(font());
+            name->setSelectable(false);
+        }
         QCPGraph* diamond = plot_->addGraph();
         diamond->setLineStyle(QCPGraph::lsNone);
         diamond->setPen(ink);

@@ -11,6 +11,7 @@
 #pragma once
 
 #include <QString>
+#include <QStringList>
 #include <QWidget>
 #include <memory>
 #include <utility>
@@ -44,6 +45,7 @@ struct LinesPlotData {
         double x = 0, y = 0;          // where the lines meet
         double lower = 0, upper = 0;  // its interval along the focal predictor
         bool bounded = false;         // false: the interval is unbounded (drawn as a note)
+        QString label;                // which two lines meet ("day/night"); empty when only one pair
     };
     std::vector<Crossing> crossings;  // only those inside the focal range
     QString crossingName;             // legend entry
@@ -71,6 +73,12 @@ public:
 
     int lineCount() const { return static_cast<int>(data_.lines.size()); }
     int crossoverMarkerCount() const { return crossoverMarkers_; }
+    // The pair named beside each crossover marker (empty entries: one pair only).
+    QStringList crossoverLabels() const {
+        QStringList out;
+        for (const auto& c : data_.crossings) out << c.label;
+        return out;
+    }
     // The strips drawn where the groups differ (focal predictor from, to).
     const std::vector<std::pair<double, double>>& differStrips() const { return differStrips_; }
     // The strip's height in pixels.

@@ -657,12 +657,17 @@ void ProbeSection::addCrossings(LinesPlotData& l, const QString& level) {
         if (!std::isfinite(x.focal_value) || x.focal_value < flo || x.focal_value > fhi) continue;
         // The lines meet here; any of the two gives the height (the first group of the pair, or the mean).
         double at = engine_.defaultValue();
+        QString label;
         if (groups) {
             std::size_t pair = 0;
             const std::size_t L = engine_.groupValues().size();
+            const auto& names = engine_.groupNames();
             for (std::size_t a = 0; a < L; ++a)
                 for (std::size_t b = a + 1; b < L; ++b, ++pair)
-                    if (pair == c) at = engine_.groupValues()[a];
+                    if (pair == c) {
+                        at = engine_.groupValues()[a];
+                        if (p.crossovers.size() > 1 && b < names.size()) label = q(names[a]) + u'/' + q(names[b]);
+                    }
         }
         const auto pt = prediction_line(run_->design, run_->fit, engine_.focal(), engine_.heldValues(at),
                                         {x.focal_value}, engine_.probability());
@@ -672,6 +677,7 @@ void ProbeSection::addCrossings(LinesPlotData& l, const QString& level) {
         cr.bounded = x.ci_kind == FiellerInterval::Bounded;
         cr.lower = x.ci_lower;
         cr.upper = x.ci_upper;
+        cr.label = label;
         l.crossings.push_back(cr);
     }
 }
