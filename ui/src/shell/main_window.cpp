@@ -1,4 +1,6 @@
 #include "shell/main_window.hpp"
+#include "shell/undo_keys.hpp"
+#include "shell/user_guide.hpp"
 
 #include <QAction>
 #include <QApplication>
@@ -133,6 +135,7 @@ MainWindow::MainWindow(QWidget* parent)
     splitter->setSizes({200, 1000});
     setCentralWidget(splitter);
     buildMenus();
+    new UndoKeys(this);
     connect(sidebar_, &ProjectSidebar::analysisActivated, this, &MainWindow::showAnalysis);
     connect(sidebar_, &ProjectSidebar::datasetActivated, this, &MainWindow::showDataset);
     connect(sidebar_, &ProjectSidebar::figureActivated, this, [this](const QString& id) {
@@ -175,6 +178,29 @@ MainWindow::~MainWindow() {
     doc_->disconnect();
 }
 
+QString MainWindow::newAnalysis() {
+    std::string dataset;
+    if (pages_->currentWidget() == datasetPage_) dataset = datasetPage_->datasetId().toStdString();
+    else if (const Analysis* a = doc_->analysis(analysisPage_->analysisId())) dataset = a->dataset;
+    if (!doc_->project().dataset(dataset) && !doc_->project().datasets.empty())
+        dataset = doc_->project().datasets.front().id;
+    if (dataset.empty()) {
+        report(tr("New analysis"), tr("Import a data file first (File › Import Data…): an analysis needs a dataset."));
+        return {};
+    }
+    const QString id = sidebar_->newAnalysis(QString::fromStdString(dataset));
+    if (!id.isEmpty()) showAnalysis(id);
+    return id;
+}
+
+UserGuide* MainWindow::showUserGuide() {
+    if (!guide_) guide_ = new UserGuide(this);
+    guide_->show();
+    guide_->raise();
+    guide_->activateWindow();
+    return guide_;
+}
+
 void MainWindow::buildMenus() {
     QMenu* file = menuBar()->addMenu(tr("&File"));
     file->addAction(tr("&New Project"), QKeySequence::New, this, [this] {
@@ -190,6 +216,8 @@ void MainWindow::buildMenus() {
     });
     recentMenu_ = file->addMenu(tr("Open &Recent"));
     rebuildRecentMenu();
+    file->addAction(tr("New &Analysis"), QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_N), this,
+                    [this] { newAnalysis(); });
     file->addAction(tr("&Import Data…"), QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_I), this, [this] {
         const QString path = QFileDialog::getOpenFileName(this, tr("Import data"), QString(),
                                                           tr("Delimited text (*.csv *.tsv *.txt);;All files (*)"));
@@ -233,6 +261,7 @@ void MainWindow::buildMenus() {
         });
 
     QMenu* help = menuBar()->addMenu(tr("&Help"));
+    help->addAction(tr("&User Guide"), QKeySequence::HelpContents, this, [this] { showUserGuide(); });
     help->addAction(tr("&About Moderato"), this, [this] {
         QMessageBox* box =
             showMessageBox(QMessageBox::NoIcon, tr("About Moderato"),

@@ -25,6 +25,8 @@ class QLabel;
 
 namespace moderato::ui {
 
+class UserGuide;
+
 class AnalysisPage;
 class AnalysisRunner;
 class DatasetPage;
@@ -79,6 +81,11 @@ public:
 
     void showAnalysis(const QString& id);
     void showDataset(const QString& id);
+    // File › New Analysis: a new analysis of the dataset on show (or of the
+    // shown analysis's dataset, else the first), shown; empty id when there is no data.
+    QString newAnalysis();
+    // Help › User Guide (created on first use).
+    UserGuide* showUserGuide();
 
     // Non-interactive mode (tests, scripts): messages are recorded instead of
     // shown in dialogs, and no dialog asks anything.
@@ -132,6 +139,7 @@ private:
     ProjectSidebar* sidebar_;
     QStackedWidget* pages_;
     QLabel* welcome_;
+    UserGuide* guide_ = nullptr;
     DatasetPage* datasetPage_;
     AnalysisPage* analysisPage_;
     RecoveryStore* recovery_;

@@ -146,7 +146,10 @@ void ProjectSidebar::contextMenu(const QPoint& pos) {
                                                        QString::fromStdString(a->name), &ok);
             if (ok) renameAnalysis(id, name);
         });
-        menu.addAction(tr("Duplicate"), this, [this, id] { duplicateAnalysis(id); });
+        menu.addAction(tr("Duplicate"), this, [this, id] {
+            const QString copy = duplicateAnalysis(id);
+            if (!copy.isEmpty()) Q_EMIT analysisActivated(copy);  // the copy is what one works on next
+        });
         menu.addAction(tr("Remove"), this, [this, id] { removeAnalysis(id); });
     } else if (kind == QLatin1String("figure")) {
         menu.addAction(tr("Remove"), this, [this, id] { removeFigure(id); });

@@ -1,0 +1,138 @@
+// Commands a user reaches for: Undo with the focus in a value box, File ›
+// New Analysis, Duplicate showing the copy, Help › User Guide. Driven with
+// key presses and menu actions as a user would trigger them; what they
+// change is read back from the project ("common practice" for editors:
+// Ctrl+Z undoes the last change wherever the focus is).
+#include <gtest/gtest.h>
+
+#include <QAction>
+#include <QApplication>
+#include <QDoubleSpinBox>
+#include <QImage>
+#include <QMenu>
+#include <QMenuBar>
+#include <QTest>
+#include <QTextBrowser>
+#include <QTextDocument>
+#include <QTimer>
+#include <QUndoStack>
+#include <cmath>
+
+#include "probe/moderator_slider.hpp"
+#include "sample_window.hpp"
+#include "sections/probe_section.hpp"
+#include "shell/analysis_page.hpp"
+#include "shell/main_window.hpp"
+#include "shell/project_sidebar.hpp"
+#include "shell/user_guide.hpp"
+#include "ui_test_util.hpp"
+
+using namespace moderato;
+using namespace moderato::ui;
+
+namespace {
+
+QAction* menuAction(MainWindow& w, const QString& menuTitle, const QString& text) {
+    for (auto* menu : w.menuBar()->findChildren<QMenu*>())
+        if (menu->title().remove(QLatin1Char('&')) == menuTitle)
+            for (auto* a : menu->actions())
+                if (a->text().remove(QLatin1Char('&')) == text) return a;
+    ADD_FAILURE() << "no " << text.toStdString() << " in " << menuTitle.toStdString();
+    return nullptr;
+}
+
+}  // namespace
+
+TEST(Commands, UndoKeysWorkWithTheFocusInTheModeratorValueBox) {
+    test::SampleWindow win(test::sampleProject(QStringLiteral("orchard-nitrogen")));
+    win.showSection(AnalysisPage::Probe);
+    win.activate();
+    QDoubleSpinBox* box = win.w.analysisPage()->probe()->moderatorSlider()->valueBox();
+    const double before = win.analysis().probe.current;
+    // Step the value with the keyboard, keep it (Enter): one undo step.
+    box->setFocus();
+    ASSERT_TRUE(test::waitUntil([&] { return box->hasFocus(); }, 2000));
+    QTest::keyClick(box, Qt::Key_Up);
+    QTest::keyClick(box, Qt::Key_Return);
+    ASSERT_TRUE(test::waitUntil([&] { return !std::isnan(win.analysis().probe.current); }, 3000));
+    const double moved = win.analysis().probe.current;
+    EXPECT_NE(moved, before);
+    ASSERT_TRUE(box->hasFocus());
+    // Ctrl+Z with the focus still in the box undoes the project's change.
+    QTest::keyClick(box, Qt::Key_Z, Qt::ControlModifier);
+    EXPECT_TRUE(test::waitUntil(
+        [&] {
+            const double now = win.analysis().probe.current;
+            return now == before || (std::isnan(now) && std::isnan(before));
+        },
+        3000))
+        << "still " << win.analysis().probe.current;
+    // And Ctrl+Shift+Z redoes it.
+    QTest::keyClick(box, Qt::Key_Z, Qt::ControlModifier | Qt::ShiftModifier);
+    EXPECT_TRUE(test::waitUntil([&] { return win.analysis().probe.current == moved; }, 3000));
+}
+
+TEST(Commands, NewAnalysisFromTheFileMenuIsShownAndUndoable) {
+    test::SampleWindow win(test::sampleProject(QStringLiteral("coffee-discount")));
+    const std::size_t before = win.w.document()->project().analyses.size();
+    QAction* action = menuAction(win.w, QStringLiteral("File"), QStringLiteral("New Analysis"));
+    ASSERT_TRUE(action);
+    EXPECT_EQ(action->shortcut(), QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_N));
+    action->trigger();
+    ASSERT_EQ(win.w.document()->project().analyses.size(), before + 1);
+    const std::string id = win.w.document()->project().analyses.back().id;
+    EXPECT_EQ(win.w.analysisPage()->analysisId().toStdString(), id);  // shown at once
+    EXPECT_EQ(win.w.document()->project().analyses.back().dataset, "spend");
+    EXPECT_EQ(win.undo()->undoText(), QStringLiteral("New analysis"));
+    win.undo()->undo();
+    EXPECT_EQ(win.w.document()->project().analyses.size(), before);
+}
+
+TEST(Commands, DuplicateShowsTheCopy) {
+    test::SampleWindow win(test::sampleProject(QStringLiteral("coffee-discount")));
+    ProjectSidebar* bar = win.w.sidebar();
+    QTreeWidgetItem* item = nullptr;
+    for (auto* found :
+         bar->findItems(QString::fromStdString(win.analysis().name), Qt::MatchExactly | Qt::MatchRecursive))
+        item = found;
+    ASSERT_TRUE(item);
+    // The sidebar's context menu, as a right-click opens it; "Duplicate" chosen from it.
+    QTimer::singleShot(0, [&] {
+        auto* menu = qobject_cast<QMenu*>(QApplication::activePopupWidget());
+        ASSERT_TRUE(menu);
+        for (auto* a : menu->actions())
+            if (a->text() == QStringLiteral("Duplicate")) {
+                menu->setActiveAction(a);
+                QTest::keyClick(menu, Qt::Key_Return);
+                return;
+            }
+        menu->close();
+        ADD_FAILURE() << "no Duplicate in the menu";
+    });
+    const QPoint at = bar->visualItemRect(item).center();
+    QContextMenuEvent event(QContextMenuEvent::Mouse, at, bar->viewport()->mapToGlobal(at));
+    QApplication::sendEvent(bar->viewport(), &event);
+    ASSERT_EQ(win.w.document()->project().analyses.size(), 2u);
+    EXPECT_EQ(win.w.analysisPage()->analysisId().toStdString(), win.w.document()->project().analyses.back().id);
+}
+
+TEST(Commands, UserGuideShowsTheShippedGuideWithItsPictures) {
+    test::SampleWindow win;
+    QAction* action = menuAction(win.w, QStringLiteral("Help"), QStringLiteral("User Guide"));
+    ASSERT_TRUE(action);
+    action->trigger();
+    auto* guide = win.w.findChild<UserGuide*>(QStringLiteral("user-guide"));
+    ASSERT_TRUE(guide);
+    EXPECT_TRUE(guide->isVisible());
+    const QString text = guide->browser()->toPlainText();
+    EXPECT_TRUE(text.startsWith(QStringLiteral("Moderato user guide"))) << text.left(80).toStdString();
+    EXPECT_TRUE(text.contains(QStringLiteral("Specify · Estimates · Probe · Checks · Memo")));
+    // The pictures come from inside the program, not from a docs folder beside it.
+    const QVariant picture = guide->browser()->document()->resource(
+        QTextDocument::ImageResource, QUrl(QStringLiteral("screenshots/coffee-discount-3-probe.png")));
+    const QImage image = picture.value<QImage>();
+    EXPECT_FALSE(image.isNull());
+    EXPECT_GT(image.width(), 400);
+    action->trigger();  // a second time: the same window, raised
+    EXPECT_EQ(win.w.findChildren<UserGuide*>().size(), 1);
+}
