@@ -379,8 +379,8 @@ std::string sha256_of(const fs::path& file) {
 // two text columns.
 struct SampleCase {
     std::string name;
-    std::vector<std::string> figures;
-    std::vector<std::string> tables;
+    std::vector<std::vector<std::string>> figures;  // per analysis, in project order
+    std::vector<std::string> tables;                // the same for each analysis
 };
 
 const std::vector<std::string> kProbeTables{"estimates", "fit-statistics", "model-comparison", "conditional-effects"};
@@ -389,11 +389,14 @@ const std::vector<std::string> kCellTables{"estimates", "fit-statistics", "model
 
 const std::vector<SampleCase>& samples() {
     static const std::vector<SampleCase> s{
-        {"coffee-discount", {"lines-plot", "effect-plot"}, kProbeTables},
-        {"orchard-nitrogen", {"lines-plot", "effect-plot", "surface-plot"}, kProbeTables},
-        {"volunteer-onboarding", {"cells-plot"}, kCellTables},
-        {"helpdesk-staffing", {"lines-plot", "effect-plot"}, kProbeTables},
-        {"trial-conversion", {"lines-plot", "effect-plot", "surface-plot"}, kProbeTables},
+        {"coffee-discount", {{"lines-plot", "effect-plot"}}, kProbeTables},
+        {"orchard-nitrogen", {{"lines-plot", "effect-plot", "surface-plot"}}, kProbeTables},
+        {"volunteer-onboarding", {{"cells-plot"}}, kCellTables},
+        {"helpdesk-staffing", {{"lines-plot", "effect-plot"}}, kProbeTables},
+        {"trial-conversion", {{"lines-plot", "effect-plot", "surface-plot"}}, kProbeTables},
+        {"turbine-repairs",
+         {{"lines-plot", "effect-plot"}, {"lines-plot", "effect-plot", "surface-plot"}},
+         kProbeTables},
     };
     return s;
 }
@@ -513,13 +516,14 @@ TEST_P(RenderSample, WritesEveryFileAtItsSettingsAndRepeatsByteForByte) {
     const fs::path project = copy_sample(c.name, tmp.path() / "project");
     const FileSnapshot projectBefore = FileSnapshot::take((tmp.path() / "project").string());
     const json doc = json::parse(read_file(project));
-    const json& analysis = doc.at("analyses").at(0);
-    const std::string folder = analysis.at("id");
-    const json& figure = analysis.at("figure");
+    ASSERT_EQ(doc.at("analyses").size(), c.figures.size());
+    const json& figure = doc.at("analyses").at(0).at("figure");
     // The samples all use the memo preset: 6.5 × 4 in at 300 dpi (LOOK.md, "Figures for memos").
+    for (const auto& analysis : doc.at("analyses")) ASSERT_EQ(analysis.at("figure"), figure);
     ASSERT_EQ(figure.at("width_in").get<double>(), 6.5);
     ASSERT_EQ(figure.at("height_in").get<double>(), 4.0);
     ASSERT_EQ(figure.at("dpi").get<int>(), 300);
+    auto folder_of = [&](std::size_t k) { return doc.at("analyses").at(k).at("id").get<std::string>(); };
 
     const fs::path outA = tmp.path() / "out-a", outB = tmp.path() / "out b";  // a space in the path, too
     const RunResult a = render(project, outA);
@@ -528,11 +532,14 @@ TEST_P(RenderSample, WritesEveryFileAtItsSettingsAndRepeatsByteForByte) {
 
     // The files: exactly these, each listed on stdout, none empty.
     std::set<std::string> expected;
-    for (const auto& f : c.figures)
-        for (const char* ext : {".png", ".svg", ".pdf"}) expected.insert(folder + "/" + f + ext);
-    for (const auto& t : c.tables)
-        for (const char* ext : {".csv", ".md", ".tex", ".html"}) expected.insert(folder + "/" + t + ext);
-    for (const char* ext : {".html", ".md", ".pdf"}) expected.insert(folder + "/memo" + ext);
+    for (std::size_t k = 0; k < c.figures.size(); ++k) {
+        const std::string folder = folder_of(k);
+        for (const auto& f : c.figures[k])
+            for (const char* ext : {".png", ".svg", ".pdf"}) expected.insert(folder + "/" + f + ext);
+        for (const auto& t : c.tables)
+            for (const char* ext : {".csv", ".md", ".tex", ".html"}) expected.insert(folder + "/" + t + ext);
+        for (const char* ext : {".html", ".md", ".pdf"}) expected.insert(folder + "/memo" + ext);
+    }
     for (const auto& kept : doc.at("figures"))
         for (const char* ext : {".png", ".svg", ".pdf"})
             expected.insert("figures/" + kept.at("id").get<std::string>() + ext);
@@ -550,7 +557,8 @@ TEST_P(RenderSample, WritesEveryFileAtItsSettingsAndRepeatsByteForByte) {
     // Figures, analysis and kept.
     std::vector<std::string> svgs;
     std::vector<fs::path> stems;
-    for (const auto& f : c.figures) stems.push_back(outA / folder / f);
+    for (std::size_t k = 0; k < c.figures.size(); ++k)
+        for (const auto& f : c.figures[k]) stems.push_back(outA / folder_of(k) / f);
     for (const auto& kept : doc.at("figures")) stems.push_back(outA / "figures" / kept.at("id").get<std::string>());
     for (const auto& s : stems) svgs.push_back(s.string() + ".svg");
     const json svgInfo = python_json(kSvgScript, svgs);
@@ -562,30 +570,34 @@ TEST_P(RenderSample, WritesEveryFileAtItsSettingsAndRepeatsByteForByte) {
         if (kept.at("plot") != "lines") continue;
         for (const char* ext : {".png", ".svg", ".pdf"}) {
             EXPECT_TRUE(filesA.at("figures/" + kept.at("id").get<std::string>() + ext) ==
-                        filesA.at(folder + "/lines-plot" + ext))
+                        filesA.at(kept.at("analysis").get<std::string>() + "/lines-plot" + ext))
                 << ext;
         }
     }
 
-    // Tables.
-    for (const auto& t : c.tables) check_csv(outA / folder / (t + ".csv"));
+    for (std::size_t k = 0; k < c.figures.size(); ++k) {
+        SCOPED_TRACE(folder_of(k));
+        const std::string folder = folder_of(k);
+        // Tables.
+        for (const auto& t : c.tables) check_csv(outA / folder / (t + ".csv"));
 
-    // Memo.
-    check_memo_html(outA / folder, c.figures);
-    check_memo_markdown(outA / folder, c.figures);
-    const PdfInfo memoPdf = pdf_info(outA / folder / "memo.pdf");
-    EXPECT_TRUE(memoPdf.ok) << memoPdf.text;
-    EXPECT_GE(memoPdf.pages, 1);
-    // US Letter, 8.5 × 11 in = 612 × 792 pt (PDF 1.7: 1/72 inch units).
-    EXPECT_NEAR(memoPdf.width_pt, 612, 0.5) << memoPdf.text;
-    EXPECT_NEAR(memoPdf.height_pt, 792, 0.5) << memoPdf.text;
-    EXPECT_GE(pdf_raster_images(outA / folder / "memo.pdf"), static_cast<int>(c.figures.size()))
-        << "the memo PDF shows its figures";
-    // The footer names the data file's SHA-256 (as sha256sum computes it) and says it matches the project's.
-    const std::string md = read_file(outA / folder / "memo.md");
-    const std::string dataFile = doc.at("datasets").at(0).at("path");
-    EXPECT_TRUE(contains(md, sha256_of(project.parent_path() / dataFile))) << md;
-    EXPECT_TRUE(contains(md, "matches")) << md;
+        // Memo.
+        check_memo_html(outA / folder, c.figures[k]);
+        check_memo_markdown(outA / folder, c.figures[k]);
+        const PdfInfo memoPdf = pdf_info(outA / folder / "memo.pdf");
+        EXPECT_TRUE(memoPdf.ok) << memoPdf.text;
+        EXPECT_GE(memoPdf.pages, 1);
+        // US Letter, 8.5 × 11 in = 612 × 792 pt (PDF 1.7: 1/72 inch units).
+        EXPECT_NEAR(memoPdf.width_pt, 612, 0.5) << memoPdf.text;
+        EXPECT_NEAR(memoPdf.height_pt, 792, 0.5) << memoPdf.text;
+        EXPECT_GE(pdf_raster_images(outA / folder / "memo.pdf"), static_cast<int>(c.figures[k].size()))
+            << "the memo PDF shows its figures";
+        // The footer names the data file's SHA-256 (as sha256sum computes it) and says it matches the project's.
+        const std::string md = read_file(outA / folder / "memo.md");
+        const std::string dataFile = doc.at("datasets").at(0).at("path");
+        EXPECT_TRUE(contains(md, sha256_of(project.parent_path() / dataFile))) << md;
+        EXPECT_TRUE(contains(md, "matches")) << md;
+    }
 
     // Determinism: a second render into another folder gives the same bytes.
     const RunResult b = render(project, outB);

@@ -171,7 +171,7 @@ TEST_P(MemoMatchesRender, SavedMemoTablesAndFiguresAreTheRenderedBytes) {
 
 INSTANTIATE_TEST_SUITE_P(Samples, MemoMatchesRender,
                          ::testing::Values("coffee-discount", "orchard-nitrogen", "volunteer-onboarding",
-                                           "helpdesk-staffing", "trial-conversion"),
+                                           "helpdesk-staffing", "trial-conversion", "turbine-repairs"),
                          [](const ::testing::TestParamInfo<const char*>& info) {
                              std::string n = info.param;
                              for (char& c : n)

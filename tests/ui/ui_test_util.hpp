@@ -21,9 +21,9 @@ inline QString sampleProject(const QString& name) {
     return samplesDir() + QLatin1Char('/') + name + QLatin1Char('/') + name + QStringLiteral(".moderato");
 }
 inline const QStringList& sampleNames() {
-    static const QStringList names{QStringLiteral("coffee-discount"), QStringLiteral("orchard-nitrogen"),
+    static const QStringList names{QStringLiteral("coffee-discount"),      QStringLiteral("orchard-nitrogen"),
                                    QStringLiteral("volunteer-onboarding"), QStringLiteral("helpdesk-staffing"),
-                                   QStringLiteral("trial-conversion")};
+                                   QStringLiteral("trial-conversion"),     QStringLiteral("turbine-repairs")};
     return names;
 }
 

@@ -2,6 +2,7 @@
 
 #include <QBrush>
 #include <QFont>
+#include <QGuiApplication>
 #include <QIcon>
 #include <QPainter>
 #include <QPixmap>
@@ -9,6 +10,7 @@
 
 #include "common/number_text.hpp"
 #include "style/estuary.hpp"
+#include "style/palette_text.hpp"
 
 namespace moderato::ui {
 
@@ -76,7 +78,8 @@ QVariant TableModel::data(const QModelIndex& index, int role) const {
         case MissingRole:
             return c.is_missing(row);
         case Qt::ForegroundRole:
-            if (c.is_missing(row)) return QBrush(estuary::notSignificant);
+            // Quieter than the values, yet readable on the desktop's light or dark cells.
+            if (c.is_missing(row)) return QBrush(mutedText(QGuiApplication::palette(), QPalette::Base));
             return {};
         case Qt::TextAlignmentRole:
             if (c.is_missing(row)) return int(Qt::AlignCenter);
