@@ -469,20 +469,8 @@ struct Case {
 Case load(const std::string& name, SeKind se) {
     const fs::path path = reference_fixture(name + ".json");
     json j = read_fixture_json(path);
-    const json& s = j.at("spec");
-    CsvOptions o;
-    ModelSpec spec;
-    for (const auto& [col, ref] : s.at("categorical").items()) {
-        o.column_kinds[col] = ColumnKind::Categorical;
-        spec.reference_levels[col] = ref.get<std::string>();
-    }
-    const Table t = read_csv((path.parent_path() / j.at("data").get<std::string>()).string(), o);
-    spec.outcome = s.at("outcome").get<std::string>();
-    spec.predictors = s.at("predictors").get<std::vector<std::string>>();
-    spec.interactions = s.at("interactions").get<std::vector<std::vector<std::string>>>();
-    spec.family = parse_family(s.at("family").get<std::string>());
-    spec.se = se;
-    return {std::move(j), fit_of(t, spec)};
+    const FixtureModel m = fixture_model(j, path, se);
+    return {std::move(j), fit_of(m.table, m.spec)};
 }
 
 template <class T>

@@ -45,6 +45,7 @@ import statsmodels
 import statsmodels.api as sm
 from statsmodels.stats.multitest import multipletests
 
+from make_cells_reference import factor_levels
 from reference_io import atomic_write, write_csv_roundtrip, fl, library_source
 
 BASE_SEED = 20261204
@@ -57,18 +58,11 @@ def rng_for(k):
     return np.random.Generator(np.random.PCG64(np.random.SeedSequence([BASE_SEED, k])))
 
 
-def levels_of(df, var, ref):
-    """Moderato's order: the reference first, then the others sorted as text."""
-    levels = sorted(set(df[var].astype(str)))
-    assert ref in levels
-    return [ref] + [lev for lev in levels if lev != ref]
-
-
 def build_design(df, spec):
     """intercept, focal, moderator dummies, other predictors in order, then
     the products moderator=level x focal."""
     focal, mod = spec["focal"], spec["moderator"]
-    levels = levels_of(df, mod, spec["categorical"][mod])
+    levels = factor_levels(df, mod, spec["categorical"][mod])
     cols, labels = [np.ones(len(df))], ["intercept"]
     for v in spec["predictors"]:
         if v == mod:
