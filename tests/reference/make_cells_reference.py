@@ -46,7 +46,6 @@ levels sorted as text); products in the order given.  Labels: 'a=level',
 """
 
 import argparse
-import json
 import math
 import os
 import sys
@@ -59,7 +58,7 @@ import scipy.stats
 import statsmodels
 import statsmodels.api as sm
 
-from reference_io import atomic_write, write_csv_roundtrip, fl, library_source
+from reference_io import write_case, fl, library_source
 
 BASE_SEED = 20240918
 COMMAND = "/usr/bin/python3 tests/reference/make_cells_reference.py --out DIR"
@@ -388,19 +387,8 @@ def main():
     source = library_source()
     print(f"statsmodels {statsmodels.__version__}  ({source})")
     for case, make, fit in CASES:
-        df, desc, spec = make()
-        back = write_csv_roundtrip(df, os.path.join(args.out, f"{case}.csv"))
-        body = fit(back, spec)
-        doc = {"case": case, "source": source, "command": COMMAND, "data": f"{case}.csv",
-               "dataset": {"generated": desc, "generator": (
-                   f"numpy.random.Generator(PCG64(SeedSequence([{BASE_SEED}, case number]))) "
-                   f"in make_cells_reference.py")},
-               "spec": spec}
-        doc.update(body)
-        all_finite(doc, case)
-        atomic_write(os.path.join(args.out, f"{case}.json"),
-                     json.dumps(doc, indent=1, ensure_ascii=False, allow_nan=False) + "\n")
-        print(f"  {case:16s} n={body['n']:4d}  terms: {', '.join(body['terms'])}")
+        write_case(args.out, case, make(), fit, source=source, command=COMMAND, base_seed=BASE_SEED,
+                   script="make_cells_reference.py", check=all_finite)
     return 0
 
 

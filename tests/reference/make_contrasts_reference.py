@@ -34,7 +34,6 @@ step-down with the running maximum).
 """
 
 import argparse
-import json
 import math
 import os
 import sys
@@ -46,7 +45,7 @@ import statsmodels.api as sm
 from statsmodels.stats.multitest import multipletests
 
 from make_cells_reference import factor_levels
-from reference_io import atomic_write, write_csv_roundtrip, fl, library_source
+from reference_io import write_case, fl, library_source
 
 BASE_SEED = 20261204
 COMMAND = "/usr/bin/python3 tests/reference/make_contrasts_reference.py --out DIR"
@@ -219,18 +218,8 @@ def main():
     os.makedirs(args.out, exist_ok=True)
     source = library_source()
     for case, make in CASES:
-        df, desc, spec = make()
-        back = write_csv_roundtrip(df, os.path.join(args.out, f"{case}.csv"))
-        body = fit_case(back, spec)
-        doc = {"case": case, "source": source, "command": COMMAND, "data": f"{case}.csv",
-               "dataset": {"generated": desc, "generator": (
-                   f"numpy.random.Generator(PCG64(SeedSequence([{BASE_SEED}, case number]))) "
-                   f"in make_contrasts_reference.py")},
-               "spec": spec}
-        doc.update(body)
-        atomic_write(os.path.join(args.out, f"{case}.json"),
-                     json.dumps(doc, indent=1, ensure_ascii=False, allow_nan=False) + "\n")
-        print(f"  {case:16s} n={body['n']:4d}  terms: {', '.join(body['terms'])}")
+        write_case(args.out, case, make(), fit_case, source=source, command=COMMAND, base_seed=BASE_SEED,
+                   script="make_contrasts_reference.py")
     return 0
 
 

@@ -1,6 +1,7 @@
 """Helpers shared by the reference scripts: files are written atomically, a
 CSV is checked to read back as exactly the doubles that were fitted, numbers
 become plain Python floats, and each fixture names the libraries it came from."""
+import json
 import os
 import subprocess
 import tempfile
@@ -66,3 +67,24 @@ def write_csv_roundtrip(df, path):
         if df[c].dtype.kind == "O":
             back[c] = back[c].astype(str)
     return back
+
+
+def write_case(out_dir, case, made, fit, *, source, command, base_seed, script, check=None):
+    """Writes CASE.csv (the data, read back bit for bit) and CASE.json (how the
+    data were made, the spec and what `fit` computed on the data as read
+    back); `check(doc, case)` runs before the JSON is written. Returns the
+    fitted body."""
+    df, desc, spec = made
+    back = write_csv_roundtrip(df, os.path.join(out_dir, f"{case}.csv"))
+    body = fit(back, spec)
+    doc = {"case": case, "source": source, "command": command, "data": f"{case}.csv",
+           "dataset": {"generated": desc, "generator": (
+               f"numpy.random.Generator(PCG64(SeedSequence([{base_seed}, case number]))) in {script}")},
+           "spec": spec}
+    doc.update(body)
+    if check:
+        check(doc, case)
+    atomic_write(os.path.join(out_dir, f"{case}.json"),
+                 json.dumps(doc, indent=1, ensure_ascii=False, allow_nan=False) + "\n")
+    print(f"  {case:16s} n={body['n']:4d}  terms: {', '.join(body['terms'])}")
+    return body

@@ -24,6 +24,18 @@ std::optional<Adjustment> adjustment_from_string(std::string_view word) {
     return std::nullopt;
 }
 
+const char* adjustment_text(Adjustment adjustment) {
+    switch (adjustment) {
+        case Adjustment::Holm:
+            return "Holm-adjusted";
+        case Adjustment::Bonferroni:
+            return "Bonferroni-adjusted";
+        case Adjustment::None:
+            return "not adjusted";
+    }
+    return "Holm-adjusted";
+}
+
 std::vector<double> adjust_p_values(const std::vector<double>& p, Adjustment adjustment) {
     std::vector<std::size_t> order;
     for (std::size_t i = 0; i < p.size(); ++i)

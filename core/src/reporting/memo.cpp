@@ -190,13 +190,10 @@ void pairwise_sentence(const ProbeResult& p, std::vector<std::string>& out) {
     for (const auto& c : p.slope_contrasts)
         parts.push_back(c.second + " − " + c.first + " " + format_sig(c.estimate) + " (" +
                         ci_text(p.level, c.ci_lower, c.ci_upper) + ", adjusted " + p_clause(c.p_adjusted) + ")");
-    const std::string how = p.adjustment == Adjustment::Holm         ? "Holm-adjusted"
-                            : p.adjustment == Adjustment::Bonferroni ? "Bonferroni-adjusted"
-                                                                     : "here not adjusted";
-    out.push_back("Pairwise, the effect of " + p.focal +
-                  (p.scale == ProbeScale::Outcome ? " on P(" + p.outcome + " = 1)" : "") +
-                  " differs between groups (the second group's minus the first's; p-values " + how + " over " +
-                  std::to_string(p.slope_contrasts.size()) + " pairs): " + join_and(parts) + ".");
+    out.push_back(
+        "Pairwise, the effect of " + p.focal + (p.scale == ProbeScale::Outcome ? " on P(" + p.outcome + " = 1)" : "") +
+        " differs between groups (the second group's minus the first's; p-values " + adjustment_text(p.adjustment) +
+        " over " + std::to_string(p.slope_contrasts.size()) + " pairs): " + join_and(parts) + ".");
 }
 
 void group_sentences(const AnalysisRun& run, std::vector<std::string>& out) {

@@ -237,9 +237,6 @@ void write_comparisons_text(std::ostringstream& o, const ProbeResult& r, const F
           << (r.scale == ProbeScale::Outcome ? ", log-odds scale" : "") << "): " << joint_test_text(*r.interaction_test)
           << "\n";
     if (r.slope_contrasts.empty()) return;
-    const char* adjusted = r.adjustment == Adjustment::Holm         ? "Holm-adjusted p"
-                           : r.adjustment == Adjustment::Bonferroni ? "Bonferroni-adjusted p"
-                                                                    : "p (not adjusted)";
     o << "\nDifferences in the effect of " << r.focal << " between levels of " << r.moderator
       << " (second minus first)\n";
     char line[512];
@@ -255,7 +252,7 @@ void write_comparisons_text(std::ostringstream& o, const ProbeResult& r, const F
                       format_p(c.p_adjusted).c_str());
         o << line;
     }
-    o << "  adjusted: " << adjusted << " over " << r.slope_contrasts.size() << " pairs\n";
+    o << "  p-values " << adjustment_text(r.adjustment) << " over " << r.slope_contrasts.size() << " pairs\n";
 }
 
 void write_closing_text(std::ostringstream& o, const ProbeResult& r) {

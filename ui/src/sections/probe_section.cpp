@@ -798,10 +798,8 @@ void ProbeSection::summarizeComparisons(SummaryText& out) {
         out.end();
     }
     if (p.slope_contrasts.size() < 2) return;
-    const QString how = p.adjustment == Adjustment::Holm         ? tr("Holm-adjusted")
-                        : p.adjustment == Adjustment::Bonferroni ? tr("Bonferroni-adjusted")
-                                                                 : tr("not adjusted");
-    out.section(tr("Differences between groups in the effect of %1 (p %2)").arg(focal, how));
+    out.section(tr("Differences between groups in the effect of %1 (p %2)")
+                    .arg(focal, QString::fromLatin1(adjustment_text(p.adjustment))));
     for (const SlopeContrast& c : p.slope_contrasts)
         out.line(tr("%1 − %2: %3 (SE %4, %5 CI %6 to %7), %8, adjusted %9")
                      .arg(q(c.second), q(c.first), numberText(c.estimate), numberText(c.std_error), levelText(p.level),
