@@ -46,7 +46,8 @@ region of significance (Johnson–Neyman), the simultaneous band and crossover p
   --focal A                the predictor whose effect is probed
   --moderator B            the column it depends on
   --moderator-values v1,v2,...   the moderator values to probe at (default: mean - SD, mean,
-                           mean + SD; 0 and 1 for a 0/1 moderator)
+                           mean + SD; the 10th, 50th and 90th percentiles for a skewed moderator
+                           or one whose mean +/- SD leaves the data; 0 and 1 for a 0/1 moderator)
   --moderator-percentiles 10,50,90   the moderator values at these percentiles of the data
   --second-moderator W[=VALUE]   hold a second moderator at VALUE (default its mean)
   --focal-at VALUE         where a squared focal predictor's effect is taken (default its mean)
@@ -80,6 +81,7 @@ Import options (fit, probe and columns):
   --decimal-comma          numbers are written 3,14
   --categorical A,B        treat these columns as categorical
   --numeric A,B            insist these columns are numeric
+  --text-missing A,B       read these columns as numbers; their cells of text are missing
   --threads N              threads for reading and fitting (default: all cores)
 
 Exit codes: 0 success; 2 bad input or usage (the message names the problem); 1 internal error.

@@ -44,12 +44,14 @@ std::string product_sign(std::string s) {
 }  // namespace
 
 std::set<std::string> repeatable_options() {
-    return {"missing", "categorical", "numeric", "interaction", "poly", "reference",
-            "centre",  "standardise", "log",     "log1p",       "test"};
+    return {"missing",   "categorical", "numeric",     "text-missing", "interaction", "poly",
+            "reference", "centre",      "standardise", "log",          "log1p",       "test"};
 }
 
 std::set<std::string> import_flags() { return {"no-header", "decimal-comma"}; }
-std::set<std::string> import_valued() { return {"data", "delimiter", "missing", "categorical", "numeric", "threads"}; }
+std::set<std::string> import_valued() {
+    return {"data", "delimiter", "missing", "categorical", "numeric", "text-missing", "threads"};
+}
 std::set<std::string> model_flags() {
     auto s = import_flags();
     s.insert("no-intercept");
@@ -94,6 +96,8 @@ Table load_table(const Arguments& args) {
         for (const auto& c : split_list(list, "categorical")) o.column_kinds[c] = ColumnKind::Categorical;
     for (const auto& list : args.all("numeric"))
         for (const auto& c : split_list(list, "numeric")) o.column_kinds[c] = ColumnKind::Numeric;
+    for (const auto& list : args.all("text-missing"))
+        for (const auto& c : split_list(list, "text-missing")) o.text_as_missing.insert(c);
     if (auto t = args.get("threads")) o.threads = static_cast<unsigned>(parse_integer(*t, "threads", 1, 256));
     return read_csv(args.required("data"), o);
 }

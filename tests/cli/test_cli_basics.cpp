@@ -177,6 +177,15 @@ TEST(CliBasics, MissingCellsAreCountedAsExcludedRows) {
     EXPECT_NEAR(estimate_of(j, "x\u00D7z"), -0.5, kExact);
 }
 
+TEST(CliBasics, TextMissingReadsAColumnAsNumbersWithoutItsTextCells) {
+    // The file has 8 rows; line 4 holds x = "3..5" (text), so 7 rows are fitted.
+    const json j = fit_json({"--data", "bad/numeric_predictor_with_text.csv", "--outcome", "y", "--predictors", "x",
+                             "--text-missing", "x"});
+    ASSERT_TRUE(j.is_object() && j.contains("rows_used")) << j.dump();
+    EXPECT_EQ(j.at("rows_used"), 7);
+    EXPECT_EQ(j.at("rows_left_out"), 1);
+}
+
 TEST(CliBasics, CategoricalPredictorUsesFirstSortedLevelAsReference) {
     // The file lists levels in the order b, a, c; the reference is the first sorted: a.
     const json j = fit_json({"--data", "ok/categorical.csv", "--outcome", "y", "--predictors", "x,g"});

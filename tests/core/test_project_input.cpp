@@ -99,6 +99,10 @@ TEST(ProjectInput, WrongTypesInImportOptionsNameThePath) {
         {", \"decimal_comma\": 1", "datasets[0].import.decimal_comma", "expected true or false"},
         {", \"column_kinds\": {\"x\": \"text\"}", "datasets[0].import.column_kinds.x", "expected \"numeric\" or"},
         {", \"column_kinds\": [1]", "datasets[0].import.column_kinds", "expected an object"},
+        {", \"text_as_missing\": \"x\"", "datasets[0].import.text_as_missing", "expected a list"},
+        {", \"text_as_missing\": [\"x\", 2]", "datasets[0].import.text_as_missing[1]", "expected text"},
+        {", \"column_kinds\": {\"x\": \"categorical\"}, \"text_as_missing\": [\"x\"]",
+         "datasets[0].import.text_as_missing", "'x' is also in column_kinds as categorical"},
         // What the CSV reader refuses (csv.hpp) is refused here, with the project's path.
         {", \"delimiter\": \"\\\"\"", "datasets[0].import.delimiter", "cannot be a quote or a line break"},
         {", \"delimiter\": \"\\n\"", "datasets[0].import.delimiter", "cannot be a quote or a line break"},

@@ -280,6 +280,27 @@ TEST(SpecifyEstimates, UndoAndRedoRestoreRolesAndTable) {
     EXPECT_TRUE(o.specify()->slot(Role::Controls)->columns().empty());
 }
 
+TEST(SpecifyEstimates, ANameMadeFromTheRolesFollowsThemAndAGivenNameStays) {
+    Open o(QStringLiteral("orchard-nitrogen"));
+    // The sample's name was given by a person: a role change leaves it.
+    const std::string given = o.analysis().name;
+    std::unique_ptr<QMimeData> mime(columnMimeData("slope_pct", Role::Controls));
+    dropOn(o.specify()->slot(Role::Moderator), mime.get());
+    EXPECT_EQ(o.analysis().roles.moderator, "slope_pct");
+    EXPECT_EQ(o.analysis().name, given);
+    o.undo()->undo();
+    // A name that is the roles' own (as a new analysis gets) follows the next role change.
+    Analysis named = o.analysis();
+    named.name = roleBasedName(named.roles);
+    EXPECT_EQ(named.name, "nitrogen_kg_ha × soil_moisture_pct");
+    o.w.document()->setAnalysis(named, QStringLiteral("Rename"));
+    std::unique_ptr<QMimeData> again(columnMimeData("slope_pct", Role::Controls));
+    dropOn(o.specify()->slot(Role::Moderator), again.get());
+    EXPECT_EQ(o.analysis().name, "nitrogen_kg_ha × slope_pct");
+    o.undo()->undo();
+    EXPECT_EQ(o.analysis().name, "nitrogen_kg_ha × soil_moisture_pct");
+}
+
 TEST(SpecifyEstimates, RefusedEditsExplainThemselvesAndChangeNothing) {
     Open o(QStringLiteral("orchard-nitrogen"));
     SpecifySection* s = o.specify();

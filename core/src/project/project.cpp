@@ -182,15 +182,32 @@ private:
     std::string name_;
 };
 
+json kinds_to_json(const std::map<std::string, ColumnKind>& kinds) {
+    json j = json::object();
+    for (const auto& [col, kind] : kinds) j[col] = kind == ColumnKind::Numeric ? "numeric" : "categorical";
+    return j;
+}
+
+// An object of column name -> "numeric" | "categorical" (`where` names it).
+std::map<std::string, ColumnKind> kinds_from_json(const Reader& r, const json& kinds, const std::string& where) {
+    std::map<std::string, ColumnKind> out;
+    for (auto it = kinds.begin(); it != kinds.end(); ++it) {
+        r.checked(it.key(), where);
+        if (!it->is_string() || (*it != "numeric" && *it != "categorical"))
+            r.fail(where + "." + it.key(), "expected \"numeric\" or \"categorical\"");
+        out[it.key()] = *it == "numeric" ? ColumnKind::Numeric : ColumnKind::Categorical;
+    }
+    return out;
+}
+
 json import_to_json(const CsvOptions& o) {
     json j;
     j["delimiter"] = o.delimiter == 0 ? json(nullptr) : json(std::string(1, o.delimiter));
     j["header"] = o.header;
     j["missing_tokens"] = o.missing_tokens;
     j["decimal_comma"] = o.decimal_comma;
-    json kinds = json::object();
-    for (const auto& [col, kind] : o.column_kinds) kinds[col] = kind == ColumnKind::Numeric ? "numeric" : "categorical";
-    j["column_kinds"] = kinds;
+    j["column_kinds"] = kinds_to_json(o.column_kinds);
+    if (!o.text_as_missing.empty()) j["text_as_missing"] = o.text_as_missing;
     return j;
 }
 
@@ -207,12 +224,14 @@ CsvOptions import_from_json(const Reader& r, const json& j, const std::string& w
         r.fail(where + ".delimiter", "cannot be a quote or a line break; expected e.g. \",\", \";\" or a tab");
     if (o.delimiter == ',' && o.decimal_comma)
         r.fail(where + ".delimiter", "cannot be ',' when decimal_comma is true; expected e.g. \";\" or a tab");
-    const json& kinds = r.object(j, "column_kinds", where, false);
-    for (auto it = kinds.begin(); it != kinds.end(); ++it) {
-        r.checked(it.key(), where + ".column_kinds");
-        if (!it->is_string() || (*it != "numeric" && *it != "categorical"))
-            r.fail(where + ".column_kinds." + it.key(), "expected \"numeric\" or \"categorical\"");
-        o.column_kinds[it.key()] = *it == "numeric" ? ColumnKind::Numeric : ColumnKind::Categorical;
+    o.column_kinds = kinds_from_json(r, r.object(j, "column_kinds", where, false), where + ".column_kinds");
+    if (j.contains("text_as_missing")) {
+        for (const auto& name : r.texts(j, "text_as_missing", where)) {
+            const auto kind = o.column_kinds.find(name);
+            if (kind != o.column_kinds.end() && kind->second == ColumnKind::Categorical)
+                r.fail(where + ".text_as_missing", "'" + name + "' is also in column_kinds as categorical");
+            o.text_as_missing.insert(name);
+        }
     }
     return o;
 }
@@ -316,6 +335,7 @@ void read_datasets(const Reader& r, const json& doc, Project& p) {
         s.path = r.text(d, "path", where, true);
         s.sha256 = r.text(d, "sha256", where, false);
         s.import = import_from_json(r, r.object(d, "import", where, false), where + ".import");
+        s.retyped = kinds_from_json(r, r.object(d, "retyped", where, false), where + ".retyped");
         if (p.dataset(s.id)) r.fail(where + ".id", "the id \"" + s.id + "\" is used twice");
         p.datasets.push_back(std::move(s));
     }
@@ -463,7 +483,8 @@ bool ProbeSettings::operator==(const ProbeSettings& o) const {
 bool DataSource::operator==(const DataSource& o) const {
     return id == o.id && path == o.path && sha256 == o.sha256 && import.delimiter == o.import.delimiter &&
            import.header == o.import.header && import.missing_tokens == o.import.missing_tokens &&
-           import.decimal_comma == o.import.decimal_comma && import.column_kinds == o.import.column_kinds;
+           import.decimal_comma == o.import.decimal_comma && import.column_kinds == o.import.column_kinds &&
+           import.text_as_missing == o.import.text_as_missing && retyped == o.retyped;
 }
 
 bool Project::operator==(const Project& o) const {
@@ -520,9 +541,11 @@ std::string project_to_json(const Project& p) {
     doc["schema_version"] = kProjectSchemaVersion;
     doc["program"] = "Moderato " MODERATO_VERSION;
     json datasets = json::array();
-    for (const auto& d : p.datasets)
-        datasets.push_back(
-            {{"id", d.id}, {"path", d.path}, {"sha256", d.sha256}, {"import", import_to_json(d.import)}});
+    for (const auto& d : p.datasets) {
+        json entry = {{"id", d.id}, {"path", d.path}, {"sha256", d.sha256}, {"import", import_to_json(d.import)}};
+        if (!d.retyped.empty()) entry["retyped"] = kinds_to_json(d.retyped);
+        datasets.push_back(std::move(entry));
+    }
     doc["datasets"] = datasets;
     json derived = json::array();
     for (const auto& r : p.derived) derived.push_back(recipe_to_json(r));

@@ -67,7 +67,7 @@ LoadedProject load_project_data(Project project, const std::string& path, const 
                                    "accept the change.");
         out.base[source.id] = table;
         try {
-            out.tables[source.id] = with_recipes(table, out.project.recipes_for(source.id));
+            out.tables[source.id] = dataset_table(table, source, out.project.recipes_for(source.id));
         } catch (const InputError& e) {
             out.tables[source.id] = table;
             out.table_errors[source.id] = e.what();

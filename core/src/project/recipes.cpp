@@ -2,6 +2,7 @@
 #include "moderato/project/recipes.hpp"
 
 #include "moderato/reading/derive.hpp"
+#include "moderato/reading/retype.hpp"
 #include "moderato/support/error.hpp"
 
 namespace moderato {
@@ -52,6 +53,13 @@ std::shared_ptr<const Table> with_recipes(std::shared_ptr<const Table> base,
                                           const std::vector<DerivedRecipe>& recipes) {
     if (recipes.empty() || !base) return base;
     return std::make_shared<const Table>(apply_recipes(*base, recipes));
+}
+
+std::shared_ptr<const Table> dataset_table(std::shared_ptr<const Table> read, const DataSource& source,
+                                           const std::vector<DerivedRecipe>& recipes) {
+    if (!read || source.retyped.empty()) return with_recipes(std::move(read), recipes);
+    auto retyped = std::make_shared<const Table>(retype_columns(*read, source.retyped, source.import.decimal_comma));
+    return with_recipes(std::move(retyped), recipes);
 }
 
 }  // namespace moderato

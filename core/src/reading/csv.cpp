@@ -182,6 +182,8 @@ struct FinalColumn {
     std::unordered_map<std::string_view, std::int32_t> index;
     std::size_t first_text_line = 0;
     std::string first_text;
+    std::size_t text_cells = 0;  // NumberTextMissing
+    std::vector<TextCell> text_examples;
 };
 
 std::string count_text(std::size_t n) { return format_count(static_cast<long long>(n)); }
@@ -324,6 +326,8 @@ private:
     [[noreturn]] void fail_unterminated(const Pass& ps, const Block& blk) const;
     // The limits of CsvLimits: one record's length, the table's cells.
     void check_record_length(const Pass& ps, const Block& blk) const;
+    // The per-column overrides name columns of the file and do not contradict each other.
+    void check_overrides() const;
     void check_cells(const Pass& ps, const Block& blk) const;
     // Moves the columns read into `out`.
     void build_table(Pass& ps, Table& out);
@@ -376,16 +380,12 @@ void Reader::take_header(const RecordParse& r, std::size_t header_line, const st
             names_.push_back(std::move(v));
         }
     }
-    for (const auto& [name, kind] : opt_.column_kinds) {
-        (void)kind;
-        if (std::find(names_.begin(), names_.end(), name) == names_.end())
-            fail("column '" + name +
-                 "' has a type override but is not a column of this file; columns are: " + join_names(names_));
-    }
+    check_overrides();
     modes_.assign(ncols, Mode::NumberInferred);
     for (std::size_t j = 0; j < ncols; ++j) {
         const auto it = opt_.column_kinds.find(names_[j]);
-        if (it != opt_.column_kinds.end())
+        if (opt_.text_as_missing.count(names_[j])) modes_[j] = Mode::NumberTextMissing;
+        else if (it != opt_.column_kinds.end())
             modes_[j] = it->second == ColumnKind::Categorical ? Mode::Text : Mode::NumberForced;
         else if (j < text_columns.size() && text_columns[j]) modes_[j] = Mode::Text;
     }
@@ -623,6 +623,10 @@ void Reader::append_column(Pass& ps, const Block& blk, std::size_t j, const std:
         ColumnChunk& ch = ps.pieces[k].cols[j];
         if (fc.mode != Mode::Text) {
             fc.numbers.insert(fc.numbers.end(), ch.numbers.begin(), ch.numbers.end());
+            fc.text_cells += ch.text_cells;
+            for (const TextCell& t : ch.text_examples)
+                if (fc.text_examples.size() < kTextExamples)
+                    fc.text_examples.push_back({piece_line[k] + t.line, t.text});
             continue;
         }
         remap.resize(ch.text.levels.size());
@@ -645,6 +649,25 @@ void Reader::append_column(Pass& ps, const Block& blk, std::size_t j, const std:
             fc.first_text = ch.first_text;
         }
     }
+}
+
+void Reader::check_overrides() const {
+    const auto known = [this](const std::string& name) {
+        return std::find(names_.begin(), names_.end(), name) != names_.end();
+    };
+    for (const auto& [name, kind] : opt_.column_kinds) {
+        if (!known(name))
+            fail("column '" + name +
+                 "' has a type override but is not a column of this file; columns are: " + join_names(names_));
+        if (kind == ColumnKind::Categorical && opt_.text_as_missing.count(name))
+            fail("column '" + name + "' is set to categorical and also to numbers with text as missing; choose one");
+    }
+    for (const auto& name : opt_.text_as_missing)
+        if (!known(name))
+            fail("column '" + name +
+                 "' is set to numbers with text as missing but is not a column of this file; "
+                 "columns are: " +
+                 join_names(names_));
 }
 
 void Reader::check_record_length(const Pass& ps, const Block& blk) const {
@@ -685,13 +708,14 @@ void Reader::build_table(Pass& ps, Table& out) {
              ") but no data rows; add data rows below the header");
 
     out.source = name_;
+    out.delimiter = delim_;
     out.row_lines = std::move(ps.row_lines);
     out.columns.resize(cols_.size());
     for (std::size_t j = 0; j < cols_.size(); ++j) {
         FinalColumn& fc = cols_[j];
         Column& c = out.columns[j];
         c.name = names_[j];
-        c.kind_forced = opt_.column_kinds.count(names_[j]) > 0;
+        c.kind_forced = opt_.column_kinds.count(names_[j]) > 0 || opt_.text_as_missing.count(names_[j]) > 0;
         if (fc.mode == Mode::Text) {
             c.kind = ColumnKind::Categorical;
             c.codes = std::move(fc.codes);
@@ -703,6 +727,8 @@ void Reader::build_table(Pass& ps, Table& out) {
         } else {
             c.kind = ColumnKind::Numeric;
             c.numbers = std::move(fc.numbers);
+            c.text_as_missing = fc.text_cells;
+            c.text_examples = std::move(fc.text_examples);
         }
         fc = FinalColumn{};
     }

@@ -11,15 +11,18 @@
 #include <unordered_map>
 #include <vector>
 
+#include "moderato/reading/table.hpp"
+
 namespace moderato::csv_detail {
 
 inline constexpr std::size_t npos = static_cast<std::size_t>(-1);
 
 // How a column is being read.
 enum class Mode : std::uint8_t {
-    NumberInferred,  // numeric so far; the first text cell turns it to Text
-    NumberForced,    // numeric by request; a text cell is an error
-    Text,            // categorical: every non-missing cell is a level
+    NumberInferred,     // numeric so far; the first text cell turns it to Text
+    NumberForced,       // numeric by request; a text cell is an error
+    NumberTextMissing,  // numeric by request; a text cell is missing (counted)
+    Text,               // categorical: every non-missing cell is a level
 };
 
 // ---------------------------------------------------------------- cells
@@ -157,6 +160,9 @@ struct ColumnChunk {
     TextChunk text;
     std::size_t first_text_line = npos;  // local line of the first non-number text
     std::string first_text;
+    // NumberTextMissing: text cells read as missing, the first few with local lines.
+    std::size_t text_cells = 0;
+    std::vector<TextCell> text_examples;
 };
 
 struct PieceError {

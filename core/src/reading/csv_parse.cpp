@@ -303,6 +303,12 @@ PieceParser::Signal PieceParser::handle_value(std::size_t j, std::string_view ra
         restart_column_ = j;
         return Signal::Restart;
     }
+    if (col.mode == Mode::NumberTextMissing) {
+        if (const Signal bad = check_utf8(j, raw, cell_line); bad != Signal::Ok) return bad;
+        col.numbers.push_back(std::numeric_limits<double>::quiet_NaN());
+        if (col.text_cells++ < kTextExamples) col.text_examples.push_back({cell_line, excerpt(trimmed)});
+        return Signal::Ok;
+    }
     if (col.mode == Mode::NumberForced) {
         if (const Signal bad = check_utf8(j, raw, cell_line); bad != Signal::Ok) return bad;
         const std::string text = excerpt(trimmed);
@@ -400,6 +406,8 @@ void parse_piece(const ParseSetup& setup, const char* begin, const char* end, co
             c.mode = m[j];
             c.first_text_line = npos;
             c.first_text.clear();
+            c.text_cells = 0;
+            c.text_examples.clear();
             c.text.clear();
             c.numbers.clear();
             if (c.mode == Mode::Text) {

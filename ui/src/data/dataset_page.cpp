@@ -21,6 +21,7 @@
 #include <set>
 
 #include "common/number_text.hpp"
+#include "data/column_kind_box.hpp"
 #include "data/derived_column_dialog.hpp"
 #include "data/histogram_widget.hpp"
 #include "data/table_model.hpp"
@@ -151,7 +152,9 @@ QWidget* DatasetPage::createSummaryBox(QWidget* side) {
     levels_->horizontalHeader()->setSectionResizeMode(2, QHeaderView::ResizeToContents);
     levels_->setEditTriggers(QAbstractItemView::NoEditTriggers);
     levels_->verticalHeader()->setDefaultSectionSize(levels_->fontMetrics().height() + 4);
+    kindBox_ = new ColumnKindBox(doc_, summaryBox);
     summaryLayout->addWidget(summaryTitle_);
+    summaryLayout->addWidget(kindBox_);
     summaryLayout->addLayout(stats);
     summaryLayout->addWidget(histogram_);
     summaryLayout->addWidget(histogramNote_);
@@ -306,6 +309,7 @@ void DatasetPage::showSummary(int column) {
         histogramNote_->clear();
         levels_->setRowCount(0);
         levels_->hide();
+        kindBox_->showColumn({}, nullptr, -1, false);
         return;
     }
     if (column == summaryColumn_) return;
@@ -316,6 +320,7 @@ void DatasetPage::showSummary(int column) {
     const ColumnSummary& s = it->second;
     const bool derived = model_->headerData(column, Qt::Horizontal, TableModel::DerivedRole).toBool();
     const bool numeric = s.kind == ColumnKind::Numeric;
+    kindBox_->showColumn(id_.toStdString(), t, column, derived);
     summaryTitle_->setText(QStringLiteral("<b>%1</b> &nbsp;<span style='color:%2'>%3%4</span>")
                                .arg(q(s.name).toHtmlEscaped(), cssColour(mutedText(palette())),
                                     numeric ? tr("numeric") : tr("categorical"),

@@ -28,6 +28,7 @@ class QVBoxLayout;
 
 namespace moderato::ui {
 
+class ColumnKindBox;
 class DerivedColumnDialog;
 class HistogramWidget;
 class ProjectDocument;
@@ -46,6 +47,8 @@ public:
     TableModel* model() const { return model_; }
     // The column the summary panel describes (-1: none).
     int summaryColumn() const { return summaryColumn_; }
+    // "Read as numbers / categories" of the column on show.
+    ColumnKindBox* kindBox() const { return kindBox_; }
     // The core summary on show (nullptr: none).
     const ColumnSummary* currentSummary() const {
         const auto it = summaries_.find(summaryColumn_);
@@ -83,6 +86,7 @@ private:
     QLabel* error_;
     // Summary panel.
     QLabel* summaryTitle_;
+    ColumnKindBox* kindBox_;
     std::map<QString, std::pair<QLabel*, QLabel*>> stats_;  // key -> (name, value)
     QVBoxLayout* summaryLayout_;
     QTableWidget* levels_;

@@ -27,6 +27,7 @@
 #include "common/number_text.hpp"
 #include "data/csv_head.hpp"
 #include "data/table_model.hpp"
+#include "moderato/reading/retype.hpp"
 #include "moderato/support/error.hpp"
 #include "style/estuary.hpp"
 #include "style/palette_text.hpp"
@@ -36,6 +37,9 @@ namespace moderato::ui {
 namespace {
 
 enum DelimiterChoice { Automatic, Comma, Semicolon, Tab, Other };
+// The "Read as" choices of a column (automatic is -1).
+enum KindChoice { AsNumbers = 0, AsCategories = 1, AsNumbersTextMissing = 2 };
+static_assert(int(ColumnKind::Numeric) == AsNumbers && int(ColumnKind::Categorical) == AsCategories);
 
 // Shows the empty token as "(empty cell)" in the missing-token list; the
 // item's text itself stays empty so editing it edits the real token.
@@ -69,6 +73,33 @@ QString kindTip(const Column& c) {
     return ImportDialog::tr("Read as categorical because of “%1” on line %2")
         .arg(QString::fromStdString(c.first_text))
         .arg(c.first_text_line);
+}
+
+QString delimiterText(char d) {
+    switch (d) {
+        case ',':
+            return ImportDialog::tr("comma");
+        case ';':
+            return ImportDialog::tr("semicolon");
+        case '\t':
+            return ImportDialog::tr("tab");
+        default:
+            return QStringLiteral("“%1”").arg(QChar(d));
+    }
+}
+
+// “twelve” on line 38, “n/a” on line 90 …
+QString cellList(const std::vector<TextCell>& cells, std::size_t total) {
+    QStringList parts;
+    for (const TextCell& c : cells)
+        parts << ImportDialog::tr("line %1 “%2”").arg(c.line).arg(QString::fromStdString(c.text).toHtmlEscaped());
+    QString text = parts.join(QStringLiteral(", "));
+    if (total > cells.size()) text += QStringLiteral(", …");
+    return text;
+}
+
+QString cellCount(std::size_t n) {
+    return n == 1 ? ImportDialog::tr("1 cell") : ImportDialog::tr("%1 cells").arg(countText(static_cast<long long>(n)));
 }
 
 }  // namespace
@@ -134,7 +165,12 @@ QWidget* ImportDialog::createReadingOptions() {
     decimal_->setObjectName(QStringLiteral("import-decimal"));
     decimal_->addItem(tr("Point  (3.14)"), false);
     decimal_->addItem(tr("Comma  (3,14)"), true);
-    form->addRow(tr("Decimal mark"), decimal_);
+    decimalNote_ = new QLabel(reading);
+    decimalNote_->setObjectName(QStringLiteral("import-decimal-note"));
+    auto* decimalRow = new QHBoxLayout;
+    decimalRow->addWidget(decimal_, 1);
+    decimalRow->addWidget(decimalNote_);
+    form->addRow(tr("Decimal mark"), decimalRow);
     return reading;
 }
 
@@ -175,12 +211,14 @@ QWidget* ImportDialog::createPreview() {
     preview_->verticalHeader()->setDefaultSectionSize(preview_->fontMetrics().height() + 6);
     preview_->verticalHeader()->setToolTip(tr("Line numbers of the file"));
     preview_->setAlternatingRowColors(true);
-    kindsList_ = new QTableWidget(0, 2, split);
+    kindsList_ = new QTableWidget(0, 3, split);
     kindsList_->setObjectName(QStringLiteral("import-column-types"));
-    kindsList_->setHorizontalHeaderLabels({tr("Column"), tr("Read as")});
+    kindsList_->setHorizontalHeaderLabels({tr("Column"), tr("Missing"), tr("Read as")});
+    kindsList_->horizontalHeaderItem(1)->setToolTip(tr("Missing cells among the rows of the preview"));
     kindsList_->verticalHeader()->hide();
     kindsList_->horizontalHeader()->setSectionResizeMode(0, QHeaderView::Stretch);
     kindsList_->horizontalHeader()->setSectionResizeMode(1, QHeaderView::ResizeToContents);
+    kindsList_->horizontalHeader()->setSectionResizeMode(2, QHeaderView::ResizeToContents);
     kindsList_->setEditTriggers(QAbstractItemView::NoEditTriggers);
     kindsList_->setSelectionMode(QAbstractItemView::NoSelection);
     split->addWidget(preview_);
@@ -193,6 +231,11 @@ QWidget* ImportDialog::createPreview() {
 
 // ---- the message, the progress of a load and the buttons
 void ImportDialog::createFooter(QVBoxLayout* layout) {
+    textNotes_ = new QWidget(this);
+    textNotes_->setObjectName(QStringLiteral("import-text-notes"));
+    auto* notes = new QVBoxLayout(textNotes_);
+    notes->setContentsMargins(0, 0, 0, 0);
+    layout->addWidget(textNotes_);
     message_ = new QLabel(this);
     message_->setObjectName(QStringLiteral("import-message"));
     message_->setWordWrap(true);
@@ -304,6 +347,7 @@ CsvOptions ImportDialog::currentOptions() const {
     for (const auto& name : previewNames_) {
         const auto it = kinds_.find(name);
         if (it != kinds_.end()) o.column_kinds[name] = it->second;
+        if (textMissing_.count(name)) o.text_as_missing.insert(name);
     }
     return o;
 }
@@ -371,11 +415,13 @@ std::shared_ptr<const Table> ImportDialog::readPreview(const CsvHead& head, cons
         const QSignalBlocker quiet(decimal_);
         decimal_->setCurrentIndex(decimal_->findData(comma));
     }
+    decimalNote_->setText(decimalChosen_ ? QString() : tr("found in the file"));
     rebuildKinds(*plain);
+    plain_ = plain;
     CsvOptions withKinds = currentOptions();
     withKinds.threads = 1;
-    return withKinds.column_kinds.empty() ? plain
-                                          : std::make_shared<const Table>(read_csv_text(head.text, name, withKinds));
+    if (withKinds.column_kinds.empty() && withKinds.text_as_missing.empty()) return plain;
+    return std::make_shared<const Table>(read_csv_text(head.text, name, withKinds));
 }
 
 void ImportDialog::showPreview(const std::shared_ptr<const Table>& shown, bool wholeFile) {
@@ -396,6 +442,70 @@ void ImportDialog::showPreview(const std::shared_ptr<const Table>& shown, bool w
     text += QStringLiteral(" · ") + plural(shown->cols(), tr("column"), tr("columns"));
     if (!shown->row_lines.empty()) text += tr(" · row numbers are line numbers of the file");
     setMessage(text + QLatin1Char('.'), false);
+    delimiter_->setItemText(
+        0, shown->delimiter ? tr("Detect (found: %1)").arg(delimiterText(shown->delimiter)) : tr("Detect"));
+    updateMissingCounts(*shown);
+    if (plain_) updateTextNotes(*plain_, *shown);
+}
+
+void ImportDialog::updateMissingCounts(const Table& shown) {
+    for (int r = 0; r < kindsList_->rowCount() && r < static_cast<int>(shown.cols()); ++r) {
+        const Column& c = shown.columns[static_cast<std::size_t>(r)];
+        auto* item = new QTableWidgetItem(countText(static_cast<long long>(c.missing_count())));
+        item->setTextAlignment(Qt::AlignRight | Qt::AlignVCenter);
+        if (c.text_as_missing) item->setToolTip(tr("%1 of text read as missing").arg(cellCount(c.text_as_missing)));
+        kindsList_->setItem(r, 1, item);
+    }
+}
+
+void ImportDialog::updateTextNotes(const Table& plain, const Table& shown) {
+    auto* layout = textNotes_->layout();
+    while (QLayoutItem* item = layout->takeAt(0)) {
+        delete item->widget();
+        delete item;
+    }
+    const bool comma = decimal_->currentData().toBool();
+    for (const Column& c : plain.columns) {
+        if (kinds_.count(c.name) || textMissing_.count(c.name)) continue;
+        const StrayText stray = stray_text(plain, c, comma);
+        if (!mostly_numbers(stray)) continue;
+        auto* row = new QWidget(textNotes_);
+        row->setObjectName(QStringLiteral("import-text-note-") + QString::fromStdString(c.name));
+        auto* h = new QHBoxLayout(row);
+        h->setContentsMargins(0, 0, 0, 0);
+        auto* label = new QLabel(row);
+        label->setWordWrap(true);
+        label->setText(tr("<b>%1</b> reads as categorical because %2 of its %3 non-missing cells %4: %5.")
+                           .arg(QString::fromStdString(c.name).toHtmlEscaped(),
+                                countText(static_cast<long long>(stray.text_cells)),
+                                countText(static_cast<long long>(stray.text_cells + stray.number_cells)),
+                                stray.text_cells == 1 ? tr("is not a number") : tr("are not numbers"),
+                                cellList(stray.first, stray.text_cells)));
+        auto* button = new QPushButton(tr("Read as numbers; these cells missing"), row);
+        button->setObjectName(QStringLiteral("import-text-missing-") + QString::fromStdString(c.name));
+        const std::string name = c.name;
+        connect(button, &QPushButton::clicked, this, [this, name] { chooseKind(name, AsNumbersTextMissing); });
+        h->addWidget(label, 1);
+        h->addWidget(button);
+        layout->addWidget(row);
+    }
+    for (const Column& c : shown.columns) {
+        if (!c.text_as_missing) continue;
+        auto* label = new QLabel(textNotes_);
+        label->setObjectName(QStringLiteral("import-text-read-missing-") + QString::fromStdString(c.name));
+        label->setWordWrap(true);
+        label->setText(tr("<b>%1</b>: %2 of text read as missing (%3).")
+                           .arg(QString::fromStdString(c.name).toHtmlEscaped(), cellCount(c.text_as_missing),
+                                cellList(c.text_examples, c.text_as_missing)));
+        layout->addWidget(label);
+    }
+}
+
+void ImportDialog::chooseKind(const std::string& column, int choice) {
+    for (int r = 0; r < kindsList_->rowCount(); ++r)
+        if (kindsList_->item(r, 0) && kindsList_->item(r, 0)->text().toStdString() == column)
+            if (auto* combo = qobject_cast<QComboBox*>(kindsList_->cellWidget(r, 2)))
+                combo->setCurrentIndex(combo->findData(choice));
 }
 
 void ImportDialog::rebuildKinds(const Table& base) {
@@ -404,7 +514,7 @@ void ImportDialog::rebuildKinds(const Table& base) {
     if (names == previewNames_ && kindsList_->rowCount() == static_cast<int>(names.size())) {
         // Same columns: keep the combo boxes (and the keyboard focus), update what "automatic" found.
         for (int r = 0; r < kindsList_->rowCount(); ++r)
-            if (auto* combo = qobject_cast<QComboBox*>(kindsList_->cellWidget(r, 1))) {
+            if (auto* combo = qobject_cast<QComboBox*>(kindsList_->cellWidget(r, 2))) {
                 const Column& c = base.columns[static_cast<std::size_t>(r)];
                 combo->setItemText(0, tr("automatic (%1)").arg(kindName(c.kind)));
                 if (auto* item = kindsList_->item(r, 0)) item->setToolTip(kindTip(c));
@@ -421,18 +531,23 @@ void ImportDialog::rebuildKinds(const Table& base) {
         auto* combo = new QComboBox(kindsList_);
         combo->setObjectName(QStringLiteral("import-kind-") + QString::fromStdString(c.name));
         combo->addItem(tr("automatic (%1)").arg(kindName(c.kind)), -1);
-        combo->addItem(tr("numeric"), int(ColumnKind::Numeric));
-        combo->addItem(tr("categorical"), int(ColumnKind::Categorical));
+        combo->addItem(tr("numeric"), int(AsNumbers));
+        combo->addItem(tr("categorical"), int(AsCategories));
+        combo->addItem(tr("numeric, text as missing"), int(AsNumbersTextMissing));
+        combo->setItemData(3, tr("Numbers; a cell of text is read as missing and counted"), Qt::ToolTipRole);
         const auto it = kinds_.find(c.name);
-        if (it != kinds_.end()) combo->setCurrentIndex(combo->findData(int(it->second)));
+        if (textMissing_.count(c.name)) combo->setCurrentIndex(combo->findData(int(AsNumbersTextMissing)));
+        else if (it != kinds_.end()) combo->setCurrentIndex(combo->findData(int(it->second)));
         const std::string name = c.name;
         connect(combo, &QComboBox::currentIndexChanged, this, [this, combo, name] {
             const int k = combo->currentData().toInt();
-            if (k < 0) kinds_.erase(name);
-            else kinds_[name] = static_cast<ColumnKind>(k);
+            kinds_.erase(name);
+            textMissing_.erase(name);
+            if (k == AsNumbersTextMissing) textMissing_.insert(name);
+            else if (k >= 0) kinds_[name] = static_cast<ColumnKind>(k);
             schedulePreview();
         });
-        kindsList_->setCellWidget(r, 1, combo);
+        kindsList_->setCellWidget(r, 2, combo);
     }
 }
 
@@ -471,7 +586,7 @@ void ImportDialog::startLoad() {
 void ImportDialog::setLoading(bool on) {
     loading_ = on;
     for (QWidget* w : std::initializer_list<QWidget*>{delimiter_, otherDelimiter_, header_, decimal_, missing_,
-                                                      addMissing_, removeMissing_, kindsList_, loadButton_})
+                                                      addMissing_, removeMissing_, kindsList_, textNotes_, loadButton_})
         w->setEnabled(!on);
     if (!on) otherDelimiter_->setEnabled(delimiter_->currentData().toInt() == Other);
     progress_->setValue(0);

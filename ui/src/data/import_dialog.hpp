@@ -11,6 +11,7 @@
 #include <QDialog>
 #include <map>
 #include <memory>
+#include <set>
 #include <string>
 
 #include "moderato/reading/csv.hpp"
@@ -58,6 +59,8 @@ public:
     // The text under the preview: what the preview shows, or the error.
     QString message() const;
     bool messageIsError() const { return messageIsError_; }
+    // The notes on columns with cells of text among numbers (under the preview).
+    QWidget* textNotes() const { return textNotes_; }
     bool isLoading() const;
 
 public Q_SLOTS:
@@ -90,6 +93,14 @@ private:
     void schedulePreview();
     void setMessage(const QString& text, bool error);
     void rebuildKinds(const Table& base);
+    // The "Missing" column of the column list, from the table on show.
+    void updateMissingCounts(const Table& shown);
+    // Notes under the preview: columns read as categorical only because of a
+    // few cells of text (each with a button to read it as numbers), and
+    // columns whose text cells are read as missing.
+    void updateTextNotes(const Table& plain, const Table& shown);
+    // Sets a column's "Read as" choice as the user would (the preview follows).
+    void chooseKind(const std::string& column, int choice);
     void loadFinished(const LoadResult& result, bool cancelled);
     void setLoading(bool on);
     // The options without the per-column overrides; false (with a message in
@@ -100,20 +111,26 @@ private:
     CsvOptions options_;
     std::shared_ptr<const Table> table_;
 
-    // Per-column type chosen by the user (by column name; absent = automatic).
+    // Per-column type chosen by the user (by column name; absent = automatic),
+    // and the columns read as numbers with their text cells missing.
     std::map<std::string, ColumnKind> kinds_;
+    std::set<std::string> textMissing_;
+    // The preview as read with the automatic types (for the notes).
+    std::shared_ptr<const Table> plain_;
     std::vector<std::string> previewNames_;
 
     QComboBox* delimiter_ = nullptr;
     QLineEdit* otherDelimiter_ = nullptr;
     QCheckBox* header_ = nullptr;
     QComboBox* decimal_ = nullptr;
+    QLabel* decimalNote_ = nullptr;  // "found in the file" while the mark is guessed
     QListWidget* missing_ = nullptr;
     QPushButton* addMissing_ = nullptr;
     QPushButton* removeMissing_ = nullptr;
     QTableView* preview_ = nullptr;
     TableModel* previewModel_ = nullptr;
     QTableWidget* kindsList_ = nullptr;
+    QWidget* textNotes_ = nullptr;
     QLabel* message_ = nullptr;
     QProgressBar* progress_ = nullptr;
     QDialogButtonBox* buttons_ = nullptr;

@@ -108,7 +108,9 @@ void ProjectDocument::rebuildTable(const std::string& id) {
         return;
     }
     try {
-        tables_[id] = with_recipes(base, project_.recipes_for(id));
+        const DataSource* source = project_.dataset(id);
+        tables_[id] = source ? dataset_table(base, *source, project_.recipes_for(id))
+                             : with_recipes(base, project_.recipes_for(id));
     } catch (const InputError& e) {
         tables_[id] = base;
         tableErrors_[id] = e.what();
@@ -170,7 +172,9 @@ void ProjectDocument::applyState(const Project& p) {
     // Derived columns: rebuild the tables whose recipes changed.
     std::set<std::string> changedData;
     for (const auto& d : p.datasets) {
-        if (!tables_.count(d.id) || before.recipes_for(d.id) != p.recipes_for(d.id)) {
+        const DataSource* was = before.dataset(d.id);
+        if (!tables_.count(d.id) || before.recipes_for(d.id) != p.recipes_for(d.id) || !was ||
+            was->retyped != d.retyped) {
             rebuildTable(d.id);
             changedData.insert(d.id);
         }
@@ -233,6 +237,11 @@ void ProjectDocument::saveAs(const QString& path) {
     Q_EMIT filePathChanged(path_);
 }
 
+std::string roleBasedName(const Roles& roles) {
+    if (roles.focal.empty()) return "analysis";
+    return roles.moderator.empty() ? roles.focal : roles.focal + " × " + roles.moderator;
+}
+
 Analysis guess_analysis(const Table& t, const std::string& datasetId, const std::string& id) {
     Analysis a;
     a.id = id;
@@ -246,7 +255,7 @@ Analysis guess_analysis(const Table& t, const std::string& datasetId, const std:
     if (numeric.size() >= 2) a.roles.focal = numeric[1];
     if (!grouping.empty()) a.roles.moderator = grouping[0];
     else if (numeric.size() >= 3) a.roles.moderator = numeric[2];
-    a.name = a.roles.focal.empty() ? std::string("analysis") : a.roles.focal + " × " + a.roles.moderator;
+    a.name = roleBasedName(a.roles);
     return a;
 }
 

@@ -106,6 +106,11 @@ private:
     bool confirmSaveTarget_ = false;
 };
 
+// The name an analysis gets from its roles ("training_hours × route";
+// "analysis" without a focal predictor). A name still equal to it follows
+// the roles when they change (specify/role_edit); a name the user gave stays.
+std::string roleBasedName(const Roles& roles);
+
 // Guessed roles for a new analysis on a table: the first numeric column as
 // Outcome, then a numeric Focal predictor and a Moderator (a grouping column
 // when there is one). Empty roles when the table has too few columns.

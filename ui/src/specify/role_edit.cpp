@@ -1,5 +1,6 @@
 #include "specify/role_edit.hpp"
 #include "common/number_text.hpp"
+#include "model/project_document.hpp"
 #include "moderato/estimation/design.hpp"
 
 #include <QCoreApplication>
@@ -95,6 +96,7 @@ RoleEdit checked(const Analysis& before, Analysis after, const Table* table, QSt
     }
     if (after.roles.second_moderator != before.roles.second_moderator)
         after.probe.second_value = std::numeric_limits<double>::quiet_NaN();
+    if (before.name == roleBasedName(before.roles)) after.name = roleBasedName(after.roles);
     e.after = std::move(after);
     e.description = std::move(description);
     e.note = std::move(note);

@@ -18,4 +18,11 @@ Table apply_recipes(const Table& base, const std::vector<DerivedRecipe>& recipes
 // (no copy of a possibly large table).
 std::shared_ptr<const Table> with_recipes(std::shared_ptr<const Table> base, const std::vector<DerivedRecipe>& recipes);
 
+// The table a dataset's analyses see: the table as read, with the column
+// kinds changed after import (DataSource::retyped), then the dataset's
+// recipes. Without either, the table as read itself. InputError as above, or
+// naming a retyped column the table does not have.
+std::shared_ptr<const Table> dataset_table(std::shared_ptr<const Table> read, const DataSource& source,
+                                           const std::vector<DerivedRecipe>& recipes);
+
 }  // namespace moderato

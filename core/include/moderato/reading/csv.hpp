@@ -8,6 +8,7 @@
 #include <cstddef>
 #include <functional>
 #include <map>
+#include <set>
 #include <string>
 #include <vector>
 
@@ -39,7 +40,11 @@ struct CsvOptions {
     std::vector<std::string> missing_tokens{"", "NA", "NaN", "."};
     bool decimal_comma = false;                      // "3,14" means 3.14 (',' cannot be the delimiter)
     std::map<std::string, ColumnKind> column_kinds;  // per-column override
-    unsigned threads = 0;                            // 0: all hardware threads
+    // Columns read as numbers whose cells of text are missing (counted in
+    // Column::text_as_missing); such a column needs no column_kinds entry and
+    // cannot also be set to categorical there.
+    std::set<std::string> text_as_missing;
+    unsigned threads = 0;  // 0: all hardware threads
 };
 
 // What the reader refuses rather than run out of memory on. Each message names

@@ -20,6 +20,17 @@ inline constexpr std::int32_t kMissingCode = -1;
 
 inline double missing_value() { return std::numeric_limits<double>::quiet_NaN(); }
 
+// A cell of text where numbers were expected: its 1-based physical line in
+// the file (its row number when the table has no lines) and its text.
+struct TextCell {
+    std::size_t line = 0;
+    std::string text;
+    bool operator==(const TextCell&) const = default;
+};
+
+// How many such cells a column keeps to show (the first ones, in row order).
+inline constexpr std::size_t kTextExamples = 5;
+
 struct Column {
     std::string name;
     ColumnKind kind = ColumnKind::Numeric;
@@ -32,6 +43,10 @@ struct Column {
     std::size_t first_text_line = 0;
     std::string first_text;
     bool kind_forced = false;  // the kind was set by the user, not inferred
+    // A numeric column whose text cells were read as missing (at the user's
+    // request): how many there were and the first kTextExamples of them.
+    std::size_t text_as_missing = 0;
+    std::vector<TextCell> text_examples;
 
     std::size_t size() const { return kind == ColumnKind::Numeric ? numbers.size() : codes.size(); }
     bool is_missing(std::size_t row) const {
@@ -47,6 +62,7 @@ public:
     // (empty when the table was not read from a file).
     std::vector<std::size_t> row_lines;
     std::string source;  // file name the table came from, for messages
+    char delimiter = 0;  // the delimiter the text was read with (given or detected); 0: not read from text
 
     std::size_t rows() const { return columns.empty() ? 0 : columns.front().size(); }
     std::size_t cols() const { return columns.size(); }
