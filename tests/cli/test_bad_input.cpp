@@ -106,8 +106,8 @@ const std::vector<BadCase> kCases = {
      {"fit", "--data", "bad/numeric_predictor_with_text.csv", "--outcome", "y", "--predictors", "x"},
      "bad/numeric_predictor_with_text.csv",
      "moderato-cli: predictor 'x' is not numeric: line 4 of bad/numeric_predictor_with_text.csv holds "
-     "'3..5'; fix that cell, add '3..5' to the missing-value tokens, or declare 'x' categorical to "
-     "dummy-code it"},
+     "'3..5'; fix that cell, add '3..5' to the missing-value tokens, read 'x' as numbers with its cells of "
+     "text missing, or set it to categorical to dummy-code it"},
     {"constant_predictor",
      {"fit", "--data", "bad/constant_predictor.csv", "--outcome", "y", "--predictors", "x,z"},
      "bad/constant_predictor.csv",

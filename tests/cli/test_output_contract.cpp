@@ -265,8 +265,9 @@ TEST(OutputContract, ProbeWritesEveryContractName) {
     const json j =
         run_json({"probe", "--data", data, "--outcome", "yield_t_ha", "--interaction",
                   "nitrogen_kg_ha,soil_moisture_pct", "--focal", "nitrogen_kg_ha", "--moderator", "soil_moisture_pct"});
-    for (const char* key : {"focal", "moderator", "scale", "level", "df", "critical_value", "effects_at",
-                            "significance_region", "simultaneous", "crossing"})
+    for (const char* key :
+         {"focal", "moderator", "scale", "level", "df", "critical_value", "effects_at", "significance_region",
+          "simultaneous", "crossing", "moderator_skew", "moderator_percentiles", "values_from"})
         EXPECT_TRUE(j.contains(key)) << key;
     for (const auto& e : j.at("effects_at"))
         for (const char* key : {"moderator_value", "effect", "se", "test_value", "p", "low", "high", "beyond_data"})

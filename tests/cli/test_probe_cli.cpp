@@ -205,3 +205,20 @@ TEST(ProbeCli, SurfaceGridIsThePredictionOverBothPredictors) {
             EXPECT_NEAR(s.at("predicted").at(k).at(i).get<double>(), b0 + bx * x + bz * z + bxz * x * z, 1e-9);
         }
 }
+
+TEST(ProbeCli, TheModeratorsShapeIsReportedAndAgreesWithScipy) {
+    const json j = run_json({"probe", "--data", kOrchard, "--outcome", "yield_t_ha", "--predictors", "slope_pct",
+                             "--interaction", "nitrogen_kg_ha,soil_moisture_pct", "--focal", "nitrogen_kg_ha",
+                             "--moderator", "soil_moisture_pct", "--format", "json"});
+    // scipy 1.10.1 stats.skew(bias=True) and numpy 1.24.2 percentile (linear) on the 480 rows used.
+    EXPECT_NEAR(j.at("moderator_skew").get<double>(), -0.08505456207039845, 1e-12);
+    const auto pct = j.at("moderator_percentiles").get<std::vector<double>>();
+    ASSERT_EQ(pct.size(), 3u);
+    EXPECT_NEAR(pct[0], 14.5, 1e-12);
+    EXPECT_NEAR(pct[1], 25.7, 1e-12);
+    EXPECT_NEAR(pct[2], 35.7, 1e-12);
+    // Not skewed, and mean ± SD (17.56 to 32.97) lies inside 12 to 37.9: mean and ± 1 SD.
+    EXPECT_EQ(j.at("values_from"), "mean-sd");
+    EXPECT_NEAR(j.at("effects_at").at(1).at("moderator_value").get<double>(), j.at("moderator_mean").get<double>(),
+                1e-12);
+}

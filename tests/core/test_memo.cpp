@@ -271,14 +271,17 @@ TEST(MemoSentences, EverySampleHasFindingsAndTheUsualCautions) {
         if (s.run.kind == ProbeKind::Continuous) {
             EXPECT_NE(cautions.find("many moderator values"), std::string::npos);
         }
-        // Several pairs of lines compared: multiple testing (common practice;
-        // Bonferroni's level is the 5% shared among the pairs: 5% / 3 = 1.667%).
+        // Several pairs of lines compared: multiple testing (common practice).
+        // The groups' differences follow the chosen adjustment (Holm by default).
         const std::size_t pairs = s.run.probe ? s.run.probe->crossovers.size() : 0;
         EXPECT_EQ(cautions.find("pairs of lines are each compared") != std::string::npos, pairs > 1) << cautions;
         if (std::string(name) == "helpdesk-staffing") {
             EXPECT_EQ(pairs, 3u) << "three shifts: three pairs";
             EXPECT_NE(cautions.find("The 3 pairs of lines"), std::string::npos) << cautions;
-            EXPECT_NE(cautions.find("Bonferroni: 1.667% per pair"), std::string::npos) << cautions;
+            EXPECT_NE(cautions.find("effects of " + s.run.probe->focal + " are Holm-adjusted for this"),
+                      std::string::npos)
+                << cautions;
+            EXPECT_EQ(cautions.find("Bonferroni"), std::string::npos) << cautions;
         }
     }
 }
@@ -293,8 +296,11 @@ TEST(MemoSentences, ProbabilityScaleSentencesForTheLogisticSample) {
     EXPECT_NE(all.find("on the log-odds of converted = 1"), std::string::npos);
     EXPECT_NE(all.find("On the probability scale the interaction effect"), std::string::npos);
     EXPECT_NE(all.find("likelihood-ratio χ²(1)"), std::string::npos);
-    // A pick point below the observed range is marked as such (mean - SD of a skewed count is negative).
-    EXPECT_NE(all.find("beyond the data"), std::string::npos);
+    // A skewed count (mean - SD would be negative) is probed at its percentiles, inside the data.
+    EXPECT_NE(all.find("(10th percentile)"), std::string::npos);
+    EXPECT_NE(all.find("(median)"), std::string::npos);
+    EXPECT_NE(all.find("(90th percentile)"), std::string::npos);
+    EXPECT_EQ(all.find("beyond the data"), std::string::npos);
 }
 
 namespace {

@@ -290,3 +290,90 @@ TEST(Probe, NotesSayWhereOtherModeratorsAreHeld) {
         std::find(r.notes.begin(), r.notes.end(), "g also changes the effect of x; it is held at its mean 0.5000"),
         r.notes.end());
 }
+
+namespace {
+
+// The p-th quantile of ascending values by linear interpolation between order
+// statistics (numpy.percentile's default, Hyndman & Fan definition 7),
+// written out here rather than taken from the code under test.
+double percentile_h7(std::vector<double> v, double p) {
+    std::sort(v.begin(), v.end());
+    const double h = (static_cast<double>(v.size()) - 1) * p;
+    const auto lo = static_cast<std::size_t>(std::floor(h));
+    const std::size_t hi = std::min(lo + 1, v.size() - 1);
+    return v[lo] + (h - std::floor(h)) * (v[hi] - v[lo]);
+}
+
+// x, and a moderator z = exp(N(1, 0.8)) (log-normal: skewness well above 1).
+Table skewed(std::size_t n, unsigned seed) {
+    std::mt19937_64 rng(seed);
+    std::normal_distribution<double> N(0, 1);
+    std::vector<double> y, x, z;
+    for (std::size_t i = 0; i < n; ++i) {
+        const double xi = N(rng), zi = std::exp(1 + 0.8 * N(rng));
+        x.push_back(xi);
+        z.push_back(zi);
+        y.push_back(1 + 0.5 * xi + 0.2 * zi + 0.1 * xi * zi + N(rng));
+    }
+    return make_table({numeric_column("y", y), numeric_column("x", x), numeric_column("z", z)});
+}
+
+}  // namespace
+
+TEST(Probe, ASkewedModeratorIsProbedAtItsPercentilesAndSaysSo) {
+    const Table t = skewed(400, 21);
+    ModelSpec s;
+    s.outcome = "y";
+    s.interactions = {{"x", "z"}};
+    const Design d = build_design(t, s);
+    const FitResult f = fit_design(d, s);
+    const ProbeResult r = probe(d, f, spec_of("x", "z"));
+    const std::vector<double>& z = t.at("z").numbers;
+    // Moment skewness m3 / m2^(3/2) (scipy.stats.skew with bias=True), summed here.
+    double mean = 0;
+    for (double v : z) mean += v;
+    mean /= static_cast<double>(z.size());
+    double m2 = 0, m3 = 0;
+    for (double v : z) m2 += (v - mean) * (v - mean), m3 += (v - mean) * (v - mean) * (v - mean);
+    m2 /= static_cast<double>(z.size());
+    m3 /= static_cast<double>(z.size());
+    EXPECT_NEAR(r.moderator_skew, m3 / std::pow(m2, 1.5), 1e-10);
+    ASSERT_GT(r.moderator_skew, 1.0);  // log-normal with sigma 0.8: skewness about 3.7 (from memory)
+    EXPECT_EQ(r.points, ProbePoints::Percentiles);
+    ASSERT_EQ(r.effects.size(), 3u);
+    EXPECT_NEAR(r.effects[0].moderator_value, percentile_h7(z, 0.10), 1e-12);
+    EXPECT_NEAR(r.effects[1].moderator_value, percentile_h7(z, 0.50), 1e-12);
+    EXPECT_NEAR(r.effects[2].moderator_value, percentile_h7(z, 0.90), 1e-12);
+    bool said = false;
+    for (const auto& n : r.notes) said |= n.find("10th, 50th and 90th percentiles") != std::string::npos;
+    EXPECT_TRUE(said);
+
+    // A symmetric moderator keeps mean and ± 1 SD.
+    const Table sym = simulate(300, 3, 0.2);
+    const Design ds = build_design(sym, s);
+    const ProbeResult rs = probe(ds, fit_design(ds, s), spec_of("x", "z"));
+    EXPECT_EQ(rs.points, ProbePoints::MeanSd);
+    EXPECT_NEAR(rs.effects[1].moderator_value, rs.moderator_mean, 1e-12);
+}
+
+TEST(Probe, PinsJoinTheDefaultsInOrderOfValue) {
+    const Table t = simulate(300, 5, 0.2);
+    ModelSpec s;
+    s.outcome = "y";
+    s.interactions = {{"x", "z"}};
+    const Design d = build_design(t, s);
+    const FitResult f = fit_design(d, s);
+    ProbeSpec ps = spec_of("x", "z");
+    const ProbeResult plain = probe(d, f, ps);
+    ASSERT_EQ(plain.effects.size(), 3u);
+    const double mean = plain.moderator_mean, sd = plain.moderator_sd;
+    ps.pinned = {mean + 2 * sd, mean - 0.5 * sd, mean};  // the mean is a default already
+    const ProbeResult r = probe(d, f, ps);
+    ASSERT_EQ(r.effects.size(), 5u);
+    const double expected[] = {mean - sd, mean - 0.5 * sd, mean, mean + sd, mean + 2 * sd};
+    for (std::size_t k = 0; k < 5; ++k) EXPECT_NEAR(r.effects[k].moderator_value, expected[k], 1e-12) << k;
+    EXPECT_EQ(r.points, ProbePoints::MeanSd);
+    // Chosen values replace the defaults and ignore pins.
+    ps.at = {1.0};
+    EXPECT_EQ(probe(d, f, ps).effects.size(), 1u);
+}

@@ -183,7 +183,7 @@ TEST(DesktopPalette, SwitchingToDarkWhileOpenRecoloursQuietText) {
     const QString path = test::sampleProject(QStringLiteral("trial-conversion"));
     PaletteScope scope(QApplication::style()->standardPalette());
     test::ProbeWindow win(path);
-    // The default pinned rows include mean − 1 SD, which lies beyond the data: a shaded row.
+    // The default rows are the percentiles of a skewed moderator, and the summary has several sections.
     {
         PaletteScope dark(darkDesktopPalette());
         for (int i = 0; i < 10; ++i) QCoreApplication::processEvents();

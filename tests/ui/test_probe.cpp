@@ -163,48 +163,66 @@ TEST(Probe, PinAddsARowThatUndoRemovesAndRedoRestores) {
     // Before pinning: core's defaults (mean and +-1 SD), not removable.
     ASSERT_EQ(table->rowCount(), 3);
     for (const auto& r : table->rows()) EXPECT_FALSE(r.pinned);
+    const auto defaults = table->rows();
 
     const auto [lo, hi] = core.probe.observed_range;
     const double m = lo + 0.8 * (hi - lo);
     s->setCurrentModeratorValue(m);
     QTest::mouseClick(s->moderatorSlider()->pinButton(), Qt::LeftButton);
-    ASSERT_TRUE(test::waitUntil([&] { return table->rowCount() == 1; }));
+    // The pin joins the defaults (they stay), and the rows are in order of value.
+    ASSERT_TRUE(test::waitUntil([&] { return table->rowCount() == 4; }));
     EXPECT_EQ(win.analysis().probe.pinned, std::vector<double>{m});
-    const auto& row = table->rows().front();
-    EXPECT_TRUE(row.pinned);
-    EXPECT_DOUBLE_EQ(row.point.moderator_value, m);
-    // Source: core probe() on the same data with the value pinned.
-    ProbeSpec ps;
-    ps.focal = core.analysis.roles.focal;
-    ps.moderator = core.analysis.roles.moderator;
-    ps.at = {m};
-    const ProbeResult pinned = probe(core.design, core.fit, ps);
-    expectSamePoint(row.point, pinned.effects.front());
-    EXPECT_FALSE(row.point.beyond_data);
-    EXPECT_EQ(s->linesPlot()->lineCount(), 1) << "one line per pinned value";
+    int pinnedRows = 0;
+    for (int k = 0; k < 4; ++k) {
+        const auto& r = table->rows()[static_cast<std::size_t>(k)];
+        if (k > 0)
+            EXPECT_LT(table->rows()[static_cast<std::size_t>(k - 1)].point.moderator_value, r.point.moderator_value);
+        pinnedRows += r.pinned;
+        if (!r.pinned) continue;
+        EXPECT_DOUBLE_EQ(r.point.moderator_value, m);
+        EXPECT_EQ(r.pinIndex, 0);
+        // Source: core probe() on the same data with the value pinned.
+        ProbeSpec ps;
+        ps.focal = core.analysis.roles.focal;
+        ps.moderator = core.analysis.roles.moderator;
+        ps.at = {m};
+        expectSamePoint(r.point, probe(core.design, core.fit, ps).effects.front());
+        EXPECT_FALSE(r.point.beyond_data);
+    }
+    EXPECT_EQ(pinnedRows, 1);
+    for (const auto& d : defaults) {
+        bool kept = false;
+        for (const auto& r : table->rows()) kept |= r.point.moderator_value == d.point.moderator_value && !r.pinned;
+        EXPECT_TRUE(kept) << d.label.toStdString();
+    }
+    EXPECT_EQ(s->linesPlot()->lineCount(), 4) << "one line per row";
     // The table copies as tab-separated text with the moderator's name in the header.
     const QString tsv = s->pinnedTable()->tsv();
     EXPECT_TRUE(tsv.startsWith(QString::fromStdString(core.analysis.roles.moderator) + QLatin1Char('\t')));
-    EXPECT_EQ(tsv.count(QLatin1Char('\n')), 2);
+    EXPECT_EQ(tsv.count(QLatin1Char('\n')), 5);
 
     win.undo()->undo();
     ASSERT_TRUE(test::waitUntil([&] { return table->rowCount() == 3; }));
     EXPECT_TRUE(win.analysis().probe.pinned.empty());
     for (const auto& r : table->rows()) EXPECT_FALSE(r.pinned);
     win.undo()->redo();
-    ASSERT_TRUE(test::waitUntil([&] { return table->rowCount() == 1; }));
-    EXPECT_DOUBLE_EQ(table->rows().front().point.moderator_value, m);
+    ASSERT_TRUE(test::waitUntil([&] { return table->rowCount() == 4; }));
 
-    // A pinned value beyond the data is flagged; Remove takes a row away (undoable).
+    // A pinned value beyond the data is flagged, last by value; Remove takes a pinned row away (undoable).
     s->setCurrentModeratorValue(hi + 0.1 * (hi - lo));
     s->pinCurrentValue();
-    ASSERT_TRUE(test::waitUntil([&] { return table->rowCount() == 2; }));
+    ASSERT_TRUE(test::waitUntil([&] { return table->rowCount() == 5; }));
     EXPECT_TRUE(table->rows().back().point.beyond_data);
-    EXPECT_EQ(table->data(table->index(1, PinnedTableModel::Note), Qt::DisplayRole).toString(),
+    EXPECT_TRUE(table->rows().back().pinned);
+    EXPECT_EQ(table->data(table->index(4, PinnedTableModel::Note), Qt::DisplayRole).toString(),
               QStringLiteral("beyond the data"));
-    s->pinnedTable()->view()->selectRow(0);
+    int first = -1;
+    for (int k = 0; k < 5 && first < 0; ++k)
+        if (table->rows()[static_cast<std::size_t>(k)].pinned) first = k;
+    ASSERT_GE(first, 0);
+    s->pinnedTable()->view()->selectRow(first);
     QTest::mouseClick(s->pinnedTable()->findChild<QToolButton*>(QStringLiteral("pinned-remove")), Qt::LeftButton);
-    ASSERT_TRUE(test::waitUntil([&] { return table->rowCount() == 1; }));
+    ASSERT_TRUE(test::waitUntil([&] { return table->rowCount() == 4; }));
     EXPECT_EQ(win.analysis().probe.pinned.size(), 1u);
     EXPECT_GT(win.analysis().probe.pinned.front(), hi);
 }

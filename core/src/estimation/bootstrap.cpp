@@ -144,16 +144,7 @@ public:
                 continue;
             }
             const auto col = r.X.col(j);
-            NumericSummary sm;
-            sm.min = col.minCoeff();
-            sm.max = col.maxCoeff();
-            long double sum = 0;
-            for (Eigen::Index i = 0; i < n; ++i) sum += col[i];
-            sm.mean = static_cast<double>(sum / static_cast<long double>(n));
-            long double ss = 0;
-            for (Eigen::Index i = 0; i < n; ++i) ss += (col[i] - sm.mean) * (col[i] - sm.mean);
-            sm.sd = n > 1 ? std::sqrt(static_cast<double>(ss / static_cast<long double>(n - 1))) : 0.0;
-            r.summaries[name] = sm;
+            r.summaries[name] = numeric_summary(std::vector<double>(col.begin(), col.end()));
         }
         return r;
     }

@@ -9,6 +9,7 @@
 #include <string_view>
 #include <unordered_map>
 
+#include "moderato/reading/column_summary.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
@@ -90,6 +91,35 @@ std::string factor_label(const std::string& column, int power) {
 }
 
 }  // namespace
+
+NumericSummary numeric_summary(std::vector<double> values) {
+    NumericSummary s;
+    const std::size_t n = values.size();
+    if (n == 0) return s;
+    s.min = std::numeric_limits<double>::infinity();
+    s.max = -s.min;
+    long double sum = 0;
+    for (const double v : values) {
+        sum += v;
+        s.min = std::min(s.min, v);
+        s.max = std::max(s.max, v);
+    }
+    s.mean = static_cast<double>(sum / static_cast<long double>(n));
+    long double ss = 0, cube = 0;
+    for (const double v : values) {
+        const long double e = v - s.mean;
+        ss += e * e;
+        cube += e * e * e;
+    }
+    s.sd = n > 1 ? std::sqrt(static_cast<double>(ss / static_cast<long double>(n - 1))) : 0.0;
+    const long double m2 = ss / static_cast<long double>(n), m3 = cube / static_cast<long double>(n);
+    s.skew = m2 > 0 ? static_cast<double>(m3 / std::pow(m2, 1.5L)) : 0.0;
+    std::sort(values.begin(), values.end());
+    s.p10 = quantile_sorted(values, 0.10);
+    s.p50 = quantile_sorted(values, 0.50);
+    s.p90 = quantile_sorted(values, 0.90);
+    return s;
+}
 
 std::string atom_label(const Atom& a) {
     return a.level.empty() ? factor_label(a.column, a.power) : a.column + "=" + a.level;
@@ -301,8 +331,9 @@ std::vector<std::string> used_columns(const Table& table, const ModelSpec& spec,
             if (mostly_numbers(c))
                 throw InputError(not_numeric(table, "predictor", c,
                                              "fix that cell, add " + quoted(c.first_text) +
-                                                 " to the missing-value tokens, or declare " + quoted(c.name) +
-                                                 " categorical to dummy-code it"));
+                                                 " to the missing-value tokens, read " + quoted(c.name) +
+                                                 " as numbers with its cells of text missing, or set it to "
+                                                 "categorical to dummy-code it"));
         }
     std::vector<std::string> used{spec.outcome};
     auto use = [&](const std::string& name) {
@@ -599,29 +630,16 @@ void check_estimable(const Table& table, const ModelSpec& spec, const Design& d)
     }
 }
 
-// Mean, SD, minimum and maximum of every numeric model column over the used rows.
+// The summary of every numeric model column over the used rows.
 void summarise(const Table& table, Design& d) {
-    const std::vector<std::size_t>& rows = d.rows;
-    const std::size_t n = rows.size();
     for (const auto& t : d.terms)
         for (const auto& f : t.factors) {
             const Column& c = table.at(f.first);
             if (c.kind != ColumnKind::Numeric || d.summaries.count(f.first)) continue;
-            NumericSummary s;
-            s.min = std::numeric_limits<double>::infinity();
-            s.max = -s.min;
-            long double sum = 0;
-            for (auto r : rows) {
-                const double v = c.numbers[r];
-                sum += v;
-                s.min = std::min(s.min, v);
-                s.max = std::max(s.max, v);
-            }
-            s.mean = static_cast<double>(sum / static_cast<long double>(n));
-            long double ss = 0;
-            for (auto r : rows) ss += (c.numbers[r] - s.mean) * (c.numbers[r] - s.mean);
-            s.sd = n > 1 ? std::sqrt(static_cast<double>(ss / static_cast<long double>(n - 1))) : 0.0;
-            d.summaries.emplace(f.first, s);
+            std::vector<double> values;
+            values.reserve(d.rows.size());
+            for (auto r : d.rows) values.push_back(c.numbers[r]);
+            d.summaries.emplace(f.first, numeric_summary(std::move(values)));
         }
 }
 

@@ -355,12 +355,16 @@ void refresh_cautions(ProbeResult& r, const FitResult& fit) {
                                   ") keeps the chance of any false region at " + level_text(1 - fit.level) + "."
                             : "."));
     if (r.crossovers.size() > 1) {
+        // The pairwise differences in slope follow the user's adjustment; lines
+        // at moderator values have none, so the shared level is quoted.
         const double pairs = static_cast<double>(r.crossovers.size());
+        const bool adjusted = !r.slope_contrasts.empty() && r.adjustment != Adjustment::None;
         r.cautions.push_back("The " + std::to_string(r.crossovers.size()) +
                              " pairs of lines are each compared at the " + level_text(1 - fit.level) +
-                             " level; with several comparisons some pair may look different by chance alone "
-                             "(Bonferroni: " +
-                             level_text((1 - fit.level) / pairs) + " per pair).");
+                             " level; with several comparisons some pair may look different by chance alone " +
+                             (adjusted ? "(the differences between the groups' effects of " + r.focal + " are " +
+                                             adjustment_text(r.adjustment) + " for this)."
+                                       : "(Bonferroni: " + level_text((1 - fit.level) / pairs) + " per pair)."));
     }
     if (r.slope_contrasts.size() > 1 && r.adjustment == Adjustment::None)
         r.cautions.push_back("The " + std::to_string(r.slope_contrasts.size()) +
@@ -522,6 +526,48 @@ void probe_groups(const Design& d, const FitResult& fit, const ProbeSpec& spec, 
         }
 }
 
+// The moderator values to probe at: the chosen ones, else the defaults
+// (ProbePoints), with a note when the percentiles replace mean ± 1 SD.
+std::vector<double> default_points(const ProbeSpec& spec, const NumericSummary& ms, bool binary, ProbeResult& r) {
+    if (!spec.at.empty()) {
+        r.points = ProbePoints::Chosen;
+        return spec.at;
+    }
+    if (binary) {
+        r.points = ProbePoints::ZeroOne;
+        return {0.0, 1.0};
+    }
+    if (!use_percentiles(ms)) {
+        r.points = ProbePoints::MeanSd;
+        return {ms.mean - ms.sd, ms.mean, ms.mean + ms.sd};
+    }
+    r.points = ProbePoints::Percentiles;
+    const std::string why = std::fabs(ms.skew) > 1
+                                ? spec.moderator + " is skewed (skewness " + format_sig(ms.skew) + ")"
+                                : "mean ± 1 SD of " + spec.moderator + " (" +
+                                      format_range(ms.mean - ms.sd, ms.mean + ms.sd) +
+                                      ") reaches beyond its observed range (" + format_range(ms.min, ms.max) + ")";
+    r.notes.push_back(why + ", so the effects are given at its 10th, 50th and 90th percentiles (" + format_sig(ms.p10) +
+                      ", " + format_sig(ms.p50) + ", " + format_sig(ms.p90) + ") rather than at the mean and ± 1 SD");
+    return {ms.p10, ms.p50, ms.p90};
+}
+
+// The defaults and the pins, ascending; a pin within 1e-9 of the moderator's
+// scale from a default is that default.
+std::vector<double> with_pins(std::vector<double> at, const ProbeSpec& spec) {
+    if (!spec.at.empty() || spec.pinned.empty()) return at;
+    double scale = 1;
+    for (const double v : at) scale = std::max(scale, std::fabs(v));
+    for (const double pin : spec.pinned) {
+        if (!std::isfinite(pin)) continue;
+        const bool known =
+            std::any_of(at.begin(), at.end(), [&](double v) { return std::fabs(v - pin) <= 1e-9 * scale; });
+        if (!known) at.push_back(pin);
+    }
+    std::sort(at.begin(), at.end());
+    return at;
+}
+
 // A numeric moderator: effects at the chosen values (or the defaults), the
 // Johnson–Neyman regions and the simultaneous band (not for a 0/1
 // moderator), and where the lines at different moderator values cross.
@@ -531,13 +577,13 @@ void probe_numeric(const Design& d, const FitResult& fit, const ProbeSpec& spec,
     r.observed_range = {ms.min, ms.max};
     r.moderator_mean = ms.mean;
     r.moderator_sd = ms.sd;
+    r.moderator_skew = ms.skew;
+    r.moderator_percentiles = {ms.p10, ms.p50, ms.p90};
     const EffectFunction f = effect_function(d, fit, spec.focal, spec.moderator, values);
     r.effect_function = f;
     const bool binary = d.is_binary(spec.moderator);
     r.binary_moderator = binary;
-    std::vector<double> at = spec.at;
-    if (at.empty())
-        at = binary ? std::vector<double>{0.0, 1.0} : std::vector<double>{ms.mean - ms.sd, ms.mean, ms.mean + ms.sd};
+    const std::vector<double> at = with_pins(default_points(spec, ms, binary, r), spec);
     for (double m : at) {
         EffectPoint e = point_at(f, m, fit);
         e.beyond_data = m < ms.min || m > ms.max;
@@ -565,6 +611,10 @@ void probe_numeric(const Design& d, const FitResult& fit, const ProbeSpec& spec,
 }
 
 }  // namespace
+
+bool use_percentiles(const NumericSummary& m) {
+    return std::fabs(m.skew) > 1 || m.mean - m.sd < m.min || m.mean + m.sd > m.max;
+}
 
 ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) {
     check_probe(d, fit, spec);

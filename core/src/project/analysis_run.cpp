@@ -74,7 +74,7 @@ void probe_analysis(AnalysisRun& run, const Analysis& a) {
             break;
         case ProbeKind::Groups:
         case ProbeKind::Continuous: {
-            if (run.kind == ProbeKind::Continuous) ps.at = a.probe.pinned;
+            if (run.kind == ProbeKind::Continuous) ps.pinned = a.probe.pinned;
             run.probe = probe(run.design, run.fit, ps);
             if (a.family == Family::Logistic && a.probe.scale == ProbeScale::Outcome) {
                 run.probe_link = run.probe;

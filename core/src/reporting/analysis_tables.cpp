@@ -235,6 +235,12 @@ std::string moderator_value_label(const ProbeResult& p, const EffectPoint& e) {
     if (!e.level.empty()) return e.level;
     if (p.categorical_moderator) return format_sig(e.moderator_value);
     const std::string value = format_sig(e.moderator_value);
+    if (p.points == ProbePoints::Percentiles) {
+        const char* names[] = {" (10th percentile)", " (median)", " (90th percentile)"};
+        for (std::size_t k = 0; k < 3; ++k)
+            if (e.moderator_value == p.moderator_percentiles[k]) return value + names[k];
+        return value;
+    }
     const double sd = p.moderator_sd;
     const double tol = 1e-9 * (std::fabs(p.moderator_mean) + sd + 1);
     if (std::fabs(e.moderator_value - p.moderator_mean) <= tol) return value + " (mean)";

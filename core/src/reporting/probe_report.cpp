@@ -24,6 +24,20 @@ void write_region_fields(JsonWriter& w, const SignificanceRegions& s) {
     w.field("shape", kind_text(s));
 }
 
+const char* points_name(ProbePoints points) {
+    switch (points) {
+        case ProbePoints::MeanSd:
+            return "mean-sd";
+        case ProbePoints::Percentiles:
+            return "percentiles";
+        case ProbePoints::ZeroOne:
+            return "zero-one";
+        case ProbePoints::Chosen:
+            break;
+    }
+    return "chosen";
+}
+
 void write_setting(JsonWriter& w, const ProbeResult& r) {
     w.field("focal", r.focal);
     w.field("moderator", r.moderator);
@@ -35,6 +49,11 @@ void write_setting(JsonWriter& w, const ProbeResult& r) {
     if (!r.categorical_moderator) {
         w.field("moderator_mean", r.moderator_mean);
         w.field("moderator_sd", r.moderator_sd);
+        w.field("moderator_skew", r.moderator_skew);
+        w.key("moderator_percentiles").begin_array();
+        for (const double v : r.moderator_percentiles) w.value(v);
+        w.end_array();
+        w.field("values_from", points_name(r.points));
     }
 }
 

@@ -56,7 +56,11 @@ ProbeEngine::ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis&
     }
 }
 
-double ProbeEngine::defaultValue() const { return groups() ? 0.0 : probe().moderator_mean; }
+double ProbeEngine::defaultValue() const {
+    if (groups()) return 0.0;
+    const ProbeResult& p = probe();
+    return p.points == ProbePoints::Percentiles ? p.moderator_percentiles[1] : p.moderator_mean;
+}
 
 EffectPoint ProbeEngine::effectAt(double m) const {
     const ProbeResult& p = probe();

@@ -67,7 +67,8 @@ public:
     std::pair<double, double> observedRange() const { return probe().observed_range; }
     std::pair<double, double> axisRange() const { return axisRange_; }
     std::pair<double, double> focalRange() const { return probe().focal_range; }
-    double defaultValue() const;  // the moderator's mean (Groups: the first group)
+    // The moderator's mean; its median when the defaults are percentiles (Groups: the first group).
+    double defaultValue() const;
 
     // The effect at moderator value m (Groups: m is the group index). Link
     // scale: O(p^2) on the cached effect function. Probability scale: core's

@@ -621,12 +621,11 @@ LinesPlotData ProbeSection::linesPlotData() {
                                static_cast<int>(k)});
         }
     } else {
-        const bool defaults = shown_.probe.pinned.empty();
-        const char* defaultNames[] = {QT_TR_NOOP("mean − 1 SD"), QT_TR_NOOP("mean"), QT_TR_NOOP("mean + 1 SD")};
         int k = 0;
         for (const auto& ef : p.effects) {
             QString name = QStringLiteral("%1 = %2").arg(mod, numberText(ef.moderator_value));
-            if (defaults && p.effects.size() == 3) name += QStringLiteral(" (%1)").arg(tr(defaultNames[k]));
+            const QString tag = defaultTag(p, ef.moderator_value);
+            if (!tag.isEmpty()) name += QStringLiteral(" (%1)").arg(tag);
             if (ef.beyond_data) name += tr(" (beyond the data)");
             l.lines.push_back({name, engine_.lineAt(ef.moderator_value), k});
             ++k;
@@ -682,6 +681,30 @@ void ProbeSection::addCrossings(LinesPlotData& l, const QString& level) {
     }
 }
 
+// Which default a moderator value is ("mean − 1 SD", "10th percentile"; empty: none).
+QString ProbeSection::defaultTag(const ProbeResult& p, double value) {
+    const double tol = 1e-9 * std::max(1.0, std::abs(p.moderator_mean) + p.moderator_sd);
+    const auto near = [&](double a) { return std::abs(value - a) <= tol; };
+    if (p.points == ProbePoints::Percentiles) {
+        if (near(p.moderator_percentiles[0])) return tr("10th percentile");
+        if (near(p.moderator_percentiles[1])) return tr("median");
+        if (near(p.moderator_percentiles[2])) return tr("90th percentile");
+        return {};
+    }
+    if (p.points != ProbePoints::MeanSd) return {};
+    if (near(p.moderator_mean)) return tr("mean");
+    if (p.moderator_sd > 0 && near(p.moderator_mean - p.moderator_sd)) return tr("mean − 1 SD");
+    if (p.moderator_sd > 0 && near(p.moderator_mean + p.moderator_sd)) return tr("mean + 1 SD");
+    return {};
+}
+
+// The index of `value` among the pins (-1: not pinned).
+int ProbeSection::pinIndex(const std::vector<double>& pins, double value) {
+    for (std::size_t i = 0; i < pins.size(); ++i)
+        if (std::abs(pins[i] - value) <= 1e-9 * std::max(1.0, std::abs(value))) return static_cast<int>(i);
+    return -1;
+}
+
 void ProbeSection::fillTable() {
     const ProbeResult& p = engine_.probe();
     std::vector<PinnedTableModel::Row> rows;
@@ -693,16 +716,17 @@ void ProbeSection::fillTable() {
         pinned_->setCaption(tr("The effect of %1 in each group of %2.").arg(q(engine_.focal()), mod));
     } else {
         const auto& pins = shown_.probe.pinned;
-        const bool defaults = pins.empty();
-        for (std::size_t k = 0; k < p.effects.size(); ++k) {
-            PinnedTableModel::Row r{numberText(p.effects[k].moderator_value), p.effects[k], !defaults,
-                                    defaults ? -1 : static_cast<int>(k)};
-            rows.push_back(r);
+        for (const auto& e : p.effects) {
+            const int pin = pinIndex(pins, e.moderator_value);
+            rows.push_back({numberText(e.moderator_value), e, pin >= 0, pin});
         }
-        QString caption = defaults ? tr("Nothing pinned yet: shown at the mean of %1 and one SD either side. "
-                                        "Move the slider and press Pin to add your own values.")
-                                         .arg(mod)
-                                   : QString();
+        QString caption = p.points == ProbePoints::Percentiles
+                              ? tr("Shown at the 10th, 50th and 90th percentiles of %1 (it is skewed, or mean ± 1 SD "
+                                   "would leave the data)")
+                                    .arg(mod)
+                              : tr("Shown at the mean of %1 and one SD either side").arg(mod);
+        caption += pins.empty() ? tr(". Move the slider and press Pin to add your own values.")
+                                : tr(", with your pinned values, in order of value.");
         bool beyond = false;
         for (const auto& e : p.effects) beyond |= e.beyond_data;
         if (beyond) {

@@ -122,6 +122,8 @@ private:
     LinesPlotData linesPlotData();
     void addCrossings(LinesPlotData& l, const QString& level);
     void fillTable();
+    static QString defaultTag(const ProbeResult& p, double value);
+    static int pinIndex(const std::vector<double>& pins, double value);
     // The summary under the tables, section by section (as HTML and as plain text).
     void fillSummary();
     void summarizeInteraction(SummaryText& out);

@@ -51,9 +51,16 @@ struct CategoricalInfo {
     std::string reference;
 };
 
+// A numeric column over the used rows. skew: the moment coefficient
+// m3 / m2^(3/2) (population moments; 0 for a constant column); p10, p50,
+// p90: percentiles by linear interpolation (column_summary.hpp's quantile).
 struct NumericSummary {
     double mean = 0, sd = 0, min = 0, max = 0;
+    double skew = 0, p10 = 0, p50 = 0, p90 = 0;
 };
+
+// The summary of these values (none missing), in their order for the sums.
+NumericSummary numeric_summary(std::vector<double> values);
 
 // The largest design build_design makes; a bigger one is refused with a
 // message naming the categorical column with the most levels, its level

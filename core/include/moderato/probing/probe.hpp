@@ -5,6 +5,7 @@
 #pragma once
 
 #include <Eigen/Dense>
+#include <array>
 #include <limits>
 #include <optional>
 #include <string>
@@ -93,6 +94,9 @@ struct ProbeSpec {
     double second_value = std::numeric_limits<double>::quiet_NaN();  // NaN: its mean
     double focal_value = std::numeric_limits<double>::quiet_NaN();   // for a squared focal: NaN = its mean
     std::vector<double> at;                                          // moderator values; empty: defaults
+    // Values added to the defaults (the workbench's pins); all in ascending
+    // order, a pin equal to a default counted once. Not used with `at`.
+    std::vector<double> pinned;
     Adjustment adjustment = Adjustment::Holm;  // for the pairwise slope contrasts of a categorical moderator
 };
 
@@ -142,6 +146,12 @@ struct InteractionEffect : Inference {
     InteractionMeasure kind = InteractionMeasure::CrossPartial;
 };
 
+// The moderator values of the effects when none were chosen: the mean and
+// ± 1 SD; the 10th, 50th and 90th percentiles for a skewed moderator (see
+// default_moderator_values); 0 and 1 for a 0/1 moderator. Chosen: the
+// values were given.
+enum class ProbePoints { MeanSd, Percentiles, ZeroOne, Chosen };
+
 struct ProbeResult {
     std::string outcome, focal, moderator;
     ProbeScale scale = ProbeScale::Model;                 // Outcome: the probability scale
@@ -155,6 +165,9 @@ struct ProbeResult {
     std::pair<double, double> observed_range{0, 0};  // moderator, used rows
     std::pair<double, double> focal_range{0, 0};
     double moderator_mean = 0, moderator_sd = 0;
+    double moderator_skew = 0;
+    std::array<double, 3> moderator_percentiles{0, 0, 0};  // 10th, 50th, 90th
+    ProbePoints points = ProbePoints::MeanSd;
     std::vector<EffectPoint> effects;
     std::optional<SignificanceRegions> johnson_neyman;  // continuous moderator only
     std::vector<bool> jn_beyond_data;                   // per boundary
@@ -171,6 +184,12 @@ struct ProbeResult {
     std::vector<std::string> cautions;  // what a reader must not overlook
     EffectFunction effect_function;     // for plots and the slider
 };
+
+// Whether a numeric moderator's default values are its percentiles rather
+// than mean ± 1 SD: when |skew| > 1, or when mean − 1 SD or mean + 1 SD lies
+// outside the observed range (a value no row has would be probed). The
+// threshold of 1 is a common rule of thumb for a markedly skewed variable.
+bool use_percentiles(const NumericSummary& moderator);
 
 // InputError for: a focal column not in any product term, a moderator not in
 // the model, a categorical focal predictor, unknown columns.

@@ -56,6 +56,9 @@ struct DataSource {
     std::string path;    // relative to the project file ('/' separators), or absolute
     std::string sha256;  // lower-case hex of the file when the project was saved; empty: unknown
     CsvOptions import;   // delimiter, header, missing tokens, decimal comma, column kinds
+    // Kinds changed after import (reading/retype.hpp), applied to the table
+    // as read, before the derived columns. Saved only when not empty.
+    std::map<std::string, ColumnKind> retyped;
     // Every saved field (CsvOptions::threads is not saved and not compared).
     bool operator==(const DataSource&) const;
 };
@@ -88,7 +91,7 @@ struct Roles {
 };
 
 struct ProbeSettings {
-    // Moderator value under the slider (NaN: the moderator's mean).
+    // Moderator value under the slider (NaN: the mean; the median of a moderator probed at percentiles).
     double current = std::numeric_limits<double>::quiet_NaN();
     std::vector<double> pinned;                                      // pinned moderator values, in the order pinned
     double second_value = std::numeric_limits<double>::quiet_NaN();  // second moderator held at (NaN: mean)
