@@ -68,6 +68,7 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
       adjust_(new QComboBox(this)),
       surfaceToggle_(new QToolButton(this)),
       differ_(new QCheckBox(tr("Where groups differ"), this)),
+      extend_(new QCheckBox(tr("Extend to boundaries"), this)),
       linesTitle_(plotTitle(this)),
       effectTitle_(plotTitle(this)),
       linesStack_(new QStackedWidget(this)),
@@ -119,7 +120,7 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
 }
 
 // The row of choices above the plots: band, data points, scale, averaging,
-// where groups differ, and the Surface plot toggle.
+// where groups differ, extend to boundaries, and the Surface plot toggle.
 QHBoxLayout* ProbeSection::createControls() {
     auto* controls = new QHBoxLayout;
     controls->setSpacing(8);
@@ -164,6 +165,12 @@ QHBoxLayout* ProbeSection::createControls() {
            "groups (or of any two lines) differ: the Johnson–Neyman technique applied to the gap "
            "between them"));
     controls->addWidget(differ_);
+    extend_->setObjectName(QStringLiteral("extend-toggle"));
+    extend_->setToolTip(
+        tr("Widen the Effect plot's axis to show Johnson–Neyman boundaries that lie beyond the observed "
+           "values of the moderator (never to values the data cannot take, such as below 0 for a "
+           "moderator observed only at 0 or above). Off: they are written at the plot's edge."));
+    controls->addWidget(extend_);
     controls->addStretch(1);
     surfaceToggle_->setObjectName(QStringLiteral("surface-toggle"));
     surfaceToggle_->setText(tr("Surface plot"));
@@ -279,6 +286,12 @@ void ProbeSection::connectSettings() {
         if (rebuilding_ || !engine_.valid()) return;
         editSettings([on](ProbeSettings& p) { p.show_gaps = on; },
                      on ? tr("Shade where the lines differ") : tr("Hide where the lines differ"));
+    });
+    connect(extend_, &QCheckBox::toggled, this, [this](bool on) {
+        if (rebuilding_ || !engine_.valid()) return;
+        editSettings(
+            [on](ProbeSettings& p) { p.extend_to_boundaries = on; },
+            on ? tr("Extend the Effect plot to the boundaries") : tr("Keep the Effect plot to the observed range"));
     });
     connect(surfaceToggle_, &QToolButton::toggled, this, [this](bool on) {
         linesStack_->setCurrentIndex(on ? 1 : 0);
@@ -417,6 +430,8 @@ void ProbeSection::rebuild() {
                                "coefficients"));
     points_->setChecked(ps.show_points);
     differ_->setChecked(ps.show_gaps);
+    extend_->setChecked(ps.extend_to_boundaries);
+    extend_->setVisible(!engine_.groups());
     points_->setEnabled(!logistic || engine_.probability());
     scaleLabel_->setVisible(logistic);
     scale_->setVisible(logistic);
@@ -611,7 +626,13 @@ LinesPlotData ProbeSection::linesPlotData() {
                                            : y;
     l.xRange = engine_.focalRange();
     const double xw = l.xRange.second - l.xRange.first;
-    l.xRange = {l.xRange.first - 0.02 * xw, l.xRange.second + 0.02 * xw};
+    // A focal predictor observed only at 0 or above gets no negative margin.
+    l.xRange = {l.xRange.first >= 0 ? std::max(0.0, l.xRange.first - 0.02 * xw) : l.xRange.first - 0.02 * xw,
+                l.xRange.second + 0.02 * xw};
+    // What the outcome can take: a probability, or a value observed only at 0 or above.
+    const Eigen::VectorXd& observedY = run_->design.y;
+    if (engine_.probability()) l.yBounds = {0.0, 1.0};
+    else if (!engine_.logistic() && observedY.size() > 0 && observedY.minCoeff() >= 0) l.yBounds.first = 0.0;
     groupLines_.clear();
     const QString mod = q(engine_.moderator());
     if (groups) {
@@ -1007,7 +1028,7 @@ void ProbeSection::onDocumentChanged(const QString& id) {
     // A change of the probe itself (pinned values, scale, ...) arrives as a new run.
     if (!same_probe(*a, shown_)) return;
     if (now.simultaneous_band != was.simultaneous_band || now.show_points != was.show_points ||
-        now.show_gaps != was.show_gaps) {
+        now.show_gaps != was.show_gaps || now.extend_to_boundaries != was.extend_to_boundaries) {
         rebuild();
         return;
     }
