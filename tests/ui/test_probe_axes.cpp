@@ -3,7 +3,8 @@
 // data unless asked ("Extend to boundaries", one undo step), write such a
 // boundary as a note at the plot's edge, and never invent impossible values
 // (an axis below 0 for a variable observed only at 0 or above, a
-// probability outside 0 to 1).
+// probability outside 0 to 1). The region of significance is said in the
+// memo's sentence, and a linear model's readout names no scale.
 //
 // Expected ranges are re-derived here from the rule itself (observed range
 // of the used rows from core probe() on the same data, the 8% margin, the
@@ -246,4 +247,28 @@ TEST(ProbeAxes, ProbabilityAxisStaysWithinZeroAndOne) {
     EXPECT_LE(y.upper, 1.0);
     // A probability scale is still named (two scales to choose from).
     EXPECT_TRUE(s->readoutText().contains(QStringLiteral("Probability scale"))) << s->readoutText().toStdString();
+}
+
+TEST(ProbeAxes, SignificanceIsTheMemosSentenceAndALinearModelNamesNoScale) {
+    TurbineWind win;
+    ProbeSection* s = win.section;
+    const auto run = win.run();
+    ASSERT_TRUE(run);
+    // The memo's findings, from core's memo on the same analysis and run.
+    QStringList memo;
+    for (const auto& f : memo_findings(win.analysis(), *run)) memo << QString::fromStdString(f);
+    const QString summary = s->summaryText();
+    int said = 0;
+    for (const QString& f : memo)
+        if (f.startsWith(QStringLiteral("Among the observed values of wind_ms")) ||
+            f.startsWith(QStringLiteral("The Johnson–Neyman boundar"))) {
+            EXPECT_TRUE(summary.contains(f)) << f.toStdString() << "\n" << summary.toStdString();
+            ++said;
+        }
+    EXPECT_EQ(said, 2) << "the region and the boundary beyond the data";
+    EXPECT_FALSE(summary.contains(QStringLiteral("∞"))) << summary.toStdString();
+    // Linear: one scale only, so the readout names none.
+    EXPECT_FALSE(s->readoutText().contains(QStringLiteral("scale"), Qt::CaseInsensitive))
+        << s->readoutText().toStdString();
+    EXPECT_TRUE(s->readoutText().contains(QStringLiteral("SEs"))) << s->readoutText().toStdString();
 }

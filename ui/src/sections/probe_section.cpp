@@ -21,6 +21,7 @@
 #include "common/inline_work.hpp"
 #include "common/number_text.hpp"
 #include "model/project_document.hpp"
+#include "moderato/reporting/memo.hpp"
 #include "plots/cells_view.hpp"
 #include "plots/effect_plot.hpp"
 #include "plots/lines_plot.hpp"
@@ -535,13 +536,14 @@ void ProbeSection::fillReadoutContext() {
     const ProbeResult& p = engine_.probe();
     const Analysis& a = shown_;
     const QString level = levelText(p.level);
+    // A logistic model's effects are on one of two scales: say which. A linear model has only its outcome's.
     QString scale;
     if (engine_.probability())
         scale = p.averaging == Averaging::AtValues ? tr("Probability scale, other predictors at their means")
                                                    : tr("Probability scale, averaged over the observed rows");
     else if (engine_.logistic()) scale = tr("Log-odds scale");
-    else scale = tr("Outcome scale");
-    QString statement = tr("%1 · %2 SEs · %3 pointwise interval").arg(scale, seDescription(a, *run_), level);
+    QString statement = tr("%1 SEs · %2 pointwise interval").arg(seDescription(a, *run_), level);
+    if (!scale.isEmpty()) statement = tr("%1 · %2").arg(scale, statement);
     const QString held = heldText();
     if (!held.isEmpty()) statement = tr("With %1 · %2").arg(held, statement);
     if (simultaneousShown())
@@ -834,7 +836,6 @@ void ProbeSection::summarizeComparisons(SummaryText& out) {
 void ProbeSection::summarizeRegions(SummaryText& out) {
     const ProbeResult& p = engine_.probe();
     const QString mod = q(engine_.moderator());
-    const auto [lo, hi] = engine_.observedRange();
     const bool sim = simultaneousShown();
     const SignificanceRegions* r = engine_.regions(sim);
     out.section(sim ? tr("Region of significance (simultaneous band)") : tr("Region of significance (Johnson–Neyman)"));
@@ -850,21 +851,10 @@ void ProbeSection::summarizeRegions(SummaryText& out) {
         else
             out.line(tr("Where the %1 pointwise interval excludes zero (critical value %2).")
                          .arg(levelText(p.level), numberText(r->critical_value)));
-        if (r->boundaries.empty()) {
-            if (r->significant.empty()) out.line(tr("Significant nowhere."));
-            else if (std::isinf(r->significant.front().lo) && std::isinf(r->significant.front().hi))
-                out.line(tr("Significant everywhere."));
-            else out.line(tr("Significant over the whole range examined."));
-        }
-        for (double b : r->boundaries)
-            out.line(tr("Boundary at %1 = %2 — %3")
-                         .arg(mod, numberText(b),
-                              b < lo || b > hi
-                                  ? tr("beyond the data (observed %1 to %2)").arg(numberText(lo), numberText(hi))
-                                  : tr("inside the observed range")));
-        QStringList regions;
-        for (const Region& g : r->significant) regions << tr("%1 to %2").arg(numberText(g.lo), numberText(g.hi));
-        if (!regions.isEmpty()) out.line(tr("Significant for %1 in: %2").arg(mod, regions.join(QStringLiteral("; "))));
+        // The memo's own sentences, so the two say the same.
+        if (sim) out.line(q(simultaneous_region_sentence(shown_, *run_)));
+        else
+            for (const std::string& sentence : region_sentences(shown_, *run_)) out.line(q(sentence));
     }
     out.end();
 }
