@@ -121,7 +121,7 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
 }
 
 // The row of choices above the plots: band, data points, scale, averaging,
-// where groups differ, extend to boundaries, and the Surface plot toggle.
+// where groups differ, and the Surface plot toggle.
 QHBoxLayout* ProbeSection::createControls() {
     auto* controls = new QHBoxLayout;
     controls->setSpacing(8);
@@ -166,12 +166,6 @@ QHBoxLayout* ProbeSection::createControls() {
            "groups (or of any two lines) differ: the Johnson–Neyman technique applied to the gap "
            "between them"));
     controls->addWidget(differ_);
-    extend_->setObjectName(QStringLiteral("extend-toggle"));
-    extend_->setToolTip(
-        tr("Widen the Effect plot's axis to show Johnson–Neyman boundaries that lie beyond the observed "
-           "values of the moderator (never to values the data cannot take, such as below 0 for a "
-           "moderator observed only at 0 or above). Off: they are written at the plot's edge."));
-    controls->addWidget(extend_);
     controls->addStretch(1);
     surfaceToggle_->setObjectName(QStringLiteral("surface-toggle"));
     surfaceToggle_->setText(tr("Surface plot"));
@@ -181,7 +175,8 @@ QHBoxLayout* ProbeSection::createControls() {
     return controls;
 }
 
-// The Lines (or Surface) plot over the Effect plot, each under its title.
+// The Lines (or Surface) plot over the Effect plot, each under its title
+// (the Effect plot's with the extend-to-boundaries switch beside it).
 QWidget* ProbeSection::createPlots(QWidget* left) {
     auto* plots = new QSplitter(Qt::Vertical, left);
     plots->setChildrenCollapsible(false);
@@ -197,7 +192,17 @@ QWidget* ProbeSection::createPlots(QWidget* left) {
     auto* effectLayout = new QVBoxLayout(effectBox);
     effectLayout->setContentsMargins(0, 0, 0, 0);
     effectLayout->setSpacing(0);
-    effectLayout->addWidget(effectTitle_);
+    // Beside the Effect plot's title: whether its axis takes in the boundaries beyond the data.
+    auto* effectHead = new QHBoxLayout;
+    effectHead->setContentsMargins(0, 0, 4, 0);
+    effectHead->addWidget(effectTitle_, 1);
+    extend_->setObjectName(QStringLiteral("extend-toggle"));
+    extend_->setToolTip(
+        tr("Widen the Effect plot's axis to show Johnson–Neyman boundaries that lie beyond the observed "
+           "values of the moderator (never to values the data cannot take, such as below 0 for a "
+           "moderator observed only at 0 or above). Off: they are written at the plot's edge."));
+    effectHead->addWidget(extend_);
+    effectLayout->addLayout(effectHead);
     effectLayout->addWidget(effect_, 1);
     plots->addWidget(linesBox);
     plots->addWidget(effectBox);
