@@ -195,6 +195,7 @@ Project full_project() {
     a.probe.simultaneous_band = true;
     a.probe.show_points = false;
     a.probe.adjustment = Adjustment::Bonferroni;
+    a.probe.extend_to_boundaries = true;
     a.reference_levels = {{"région", "Île"}, {"store", "B"}};
     a.figure = {SizePreset::Custom, 7.25, 3.1, 600, "Noto Serif", 10.5, true, false};
     p.analyses.push_back(a);
@@ -260,6 +261,7 @@ TEST(ProjectJson, EveryFieldRoundTripsExactly) {
         EXPECT_EQ(q.analyses[i].figure, p.analyses[i].figure);
         EXPECT_EQ(q.analyses[i].reference_levels, p.analyses[i].reference_levels);
         EXPECT_EQ(q.analyses[i].probe.adjustment, p.analyses[i].probe.adjustment);
+        EXPECT_EQ(q.analyses[i].probe.extend_to_boundaries, p.analyses[i].probe.extend_to_boundaries);
     }
     // Numbers: the same bits, including the sign of zero and a subnormal.
     const auto& pinned = q.analyses[0].probe.pinned;
@@ -296,20 +298,29 @@ TEST(ProjectJson, EqualityNoticesEveryKindOfChange) {
     q = p;
     q.analyses[1].probe.adjustment = Adjustment::None;
     EXPECT_FALSE(q == p);
+    q = p;
+    q.analyses[1].probe.extend_to_boundaries = true;
+    EXPECT_FALSE(q == p);
 }
 
-// The defaults (Holm; every reference level its first in text order) are not
-// written, so a project that never used them keeps its bytes.
+// The defaults (Holm; every reference level its first in text order; the
+// Effect plot's axis not extended to the boundaries) are not written, so a
+// project that never used them keeps its bytes.
 TEST(ProjectJson, DefaultAdjustmentAndReferenceLevelsAreNotWritten) {
     Project p = full_project();
     const std::string text = project_to_json(p);
     EXPECT_NE(text.find("\"adjustment\": \"bonferroni\""), std::string::npos);
     EXPECT_NE(text.find("\"reference_levels\""), std::string::npos);
+    EXPECT_NE(text.find("\"extend_to_boundaries\": true"), std::string::npos);
     p.analyses[0].probe.adjustment = Adjustment::Holm;
     p.analyses[0].reference_levels.clear();
+    p.analyses[0].probe.extend_to_boundaries = false;
     const std::string plain = project_to_json(p);
     EXPECT_EQ(plain.find("adjustment"), std::string::npos);
     EXPECT_EQ(plain.find("reference_levels"), std::string::npos);
+    EXPECT_EQ(plain.find("extend_to_boundaries"), std::string::npos);
+    // Read back: absent means false.
+    EXPECT_FALSE(project_from_json(plain, "memory.moderato").analyses[0].probe.extend_to_boundaries);
 }
 
 TEST(ProjectJson, WritingARecipeValueAndNonFiniteNumbersStaysReadable) {

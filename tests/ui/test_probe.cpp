@@ -424,7 +424,10 @@ TEST(Probe, JohnsonNeymanBoundariesDrawnAreCores) {
             core.probe.effect_function.effect(jn[k]) / std::sqrt(core.probe.effect_function.variance(jn[k]));
         EXPECT_NEAR(std::abs(t), core.fit.critical_value, 1e-8);
     }
-    EXPECT_TRUE(s->summaryText().contains(QStringLiteral("inside the observed range")));
+    // The summary says where, in the memo's sentence, naming both boundaries (inside the data).
+    EXPECT_TRUE(s->summaryText().contains(QStringLiteral("for z below ") + test::fourDigits(jn[0])));
+    EXPECT_TRUE(s->summaryText().contains(QStringLiteral("for z above ") + test::fourDigits(jn[1])));
+    EXPECT_TRUE(s->summaryText().contains(QStringLiteral("Among the observed values of z")));
 
     // The simultaneous band: its own boundaries, and the readout says so.
     QComboBox* band = s->bandChoice();

@@ -266,6 +266,7 @@ json probe_to_json(const ProbeSettings& p) {
            {"show_gaps", p.show_gaps}};
     // Written only when not the default, so projects keep their bytes.
     if (p.adjustment != Adjustment::Holm) j["adjustment"] = word_of(kAdjustmentWords, p.adjustment);
+    if (p.extend_to_boundaries) j["extend_to_boundaries"] = true;
     return j;
 }
 
@@ -387,6 +388,7 @@ ProbeSettings read_probe(const Reader& r, const json& j, const std::string& wher
     out.show_points = r.boolean(probe, "show_points", pw, true);
     out.show_gaps = r.boolean(probe, "show_gaps", pw, true);
     out.adjustment = r.choice(probe, "adjustment", pw, kAdjustmentWords, std::optional(Adjustment::Holm));
+    out.extend_to_boundaries = r.boolean(probe, "extend_to_boundaries", pw, false);
     return out;
 }
 
@@ -477,7 +479,8 @@ bool is_check_plot(FigurePlot plot) {
 bool ProbeSettings::operator==(const ProbeSettings& o) const {
     return same_number(current, o.current) && pinned == o.pinned && same_number(second_value, o.second_value) &&
            scale == o.scale && averaging == o.averaging && simultaneous_band == o.simultaneous_band &&
-           show_points == o.show_points && show_gaps == o.show_gaps && adjustment == o.adjustment;
+           show_points == o.show_points && show_gaps == o.show_gaps && adjustment == o.adjustment &&
+           extend_to_boundaries == o.extend_to_boundaries;
 }
 
 bool DataSource::operator==(const DataSource& o) const {

@@ -123,9 +123,41 @@ std::string significance_clause(const Analysis& a, const AnalysisRun& run, const
     return s;
 }
 
-void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector<std::string>& out) {
+}  // namespace
+
+std::vector<std::string> region_sentences(const Analysis& a, const AnalysisRun& run) {
+    if (!run.probe || !run.probe->johnson_neyman) return {};
     const ProbeResult& p = *run.probe;
     const auto [lo, hi] = p.observed_range;
+    std::vector<std::string> out;
+    out.push_back("Among the observed values of " + p.moderator + " (" + format_range(lo, hi) + ")" +
+                  held_clause(a, run) + ", " + effect_of(p) + " " +
+                  significance_clause(a, run, p.johnson_neyman->significant) + " (" + level_text(p.level) +
+                  " pointwise intervals).");
+    std::vector<std::string> outside;
+    for (std::size_t i = 0; i < p.johnson_neyman->boundaries.size(); ++i)
+        if (i < p.jn_beyond_data.size() && p.jn_beyond_data[i])
+            outside.push_back(format_sig(p.johnson_neyman->boundaries[i]));
+    if (!outside.empty())
+        out.push_back(
+            std::string(outside.size() == 1 ? "The Johnson–Neyman boundary at " : "The Johnson–Neyman boundaries at ") +
+            join_and(outside) + (outside.size() == 1 ? " lies" : " lie") + " beyond the data (" + p.moderator +
+            " observed from " + format_range(lo, hi) + "): an extrapolation, not a finding.");
+    return out;
+}
+
+std::string simultaneous_region_sentence(const Analysis& a, const AnalysisRun& run) {
+    if (!run.probe || !run.probe->simultaneous) return "";
+    const ProbeResult& p = *run.probe;
+    return "With the simultaneous band, which keeps the chance of any false region at " + level_text(1 - p.level) +
+           " (critical value " + format_sig(p.simultaneous->critical_value) + "), " + effect_of(p) + " " +
+           significance_clause(a, run, p.simultaneous->significant) + ".";
+}
+
+namespace {
+
+void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector<std::string>& out) {
+    const ProbeResult& p = *run.probe;
     const bool prob = p.scale == ProbeScale::Outcome;
     // The product coefficient, on the model's own scale.
     if (a.roles.second_moderator.empty()) {
@@ -140,27 +172,8 @@ void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector
                               ", " + p_clause(c.p_value) + ").");
         }
     }
-    if (p.johnson_neyman) {
-        std::string s = "Among the observed values of " + p.moderator + " (" + format_range(lo, hi) + ")" +
-                        held_clause(a, run) + ", " + effect_of(p) + " " +
-                        significance_clause(a, run, p.johnson_neyman->significant) + " (" + level_text(p.level) +
-                        " pointwise intervals).";
-        out.push_back(s);
-        std::vector<std::string> outside;
-        for (std::size_t i = 0; i < p.johnson_neyman->boundaries.size(); ++i)
-            if (i < p.jn_beyond_data.size() && p.jn_beyond_data[i])
-                outside.push_back(format_sig(p.johnson_neyman->boundaries[i]));
-        if (!outside.empty())
-            out.push_back(std::string(outside.size() == 1 ? "The Johnson–Neyman boundary at "
-                                                          : "The Johnson–Neyman boundaries at ") +
-                          join_and(outside) + (outside.size() == 1 ? " lies" : " lie") + " beyond the data (" +
-                          p.moderator + " observed from " + format_range(lo, hi) +
-                          "): an extrapolation, not a finding.");
-    }
-    if (p.simultaneous)
-        out.push_back("With the simultaneous band, which keeps the chance of any false region at " +
-                      level_text(1 - p.level) + " (critical value " + format_sig(p.simultaneous->critical_value) +
-                      "), " + effect_of(p) + " " + significance_clause(a, run, p.simultaneous->significant) + ".");
+    for (auto& s : region_sentences(a, run)) out.push_back(std::move(s));
+    if (std::string s = simultaneous_region_sentence(a, run); !s.empty()) out.push_back(std::move(s));
     if (prob && p.interaction_effect) {
         const InteractionEffect& ie = *p.interaction_effect;
         out.push_back(std::string("On the probability scale the interaction effect (") + to_string(ie.kind) + ", " +

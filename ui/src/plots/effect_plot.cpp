@@ -103,6 +103,7 @@ void EffectPlot::rebuild() {
     handleLabel_ = nullptr;
     groupHighlight_ = nullptr;
     drawnBoundaries_.clear();
+    boundaryNotes_.clear();
     if (hasData_) {
         if (data_.groups) buildGroups();
         else buildContinuous();
@@ -131,6 +132,7 @@ void EffectPlot::buildContinuous() {
     const auto [anySignificant, anyNotSignificant] = drawRegions();
     drawCurve(anySignificant, anyNotSignificant);
     drawBoundaries();
+    drawBoundaryNotes();
     if (!d.rug.empty()) drawRug();
 }
 
@@ -239,6 +241,37 @@ void EffectPlot::drawBoundaries() {
         t->setSelectable(false);
         drawnBoundaries_.push_back(b);
     }
+}
+
+// Boundaries beyond the axis: a note at that edge of the plot ("← boundary
+// at −7.000, beyond the data"), so the axis need not stretch to show them.
+void EffectPlot::drawBoundaryNotes() {
+    const EffectPlotData& d = data_;
+    QStringList left, right;
+    for (double b : d.boundaries) {
+        if (!std::isfinite(b)) continue;
+        if (b < d.axis.first) left << numberText(b);
+        else if (b > d.axis.second) right << numberText(b);
+    }
+    const auto note = [this](const QStringList& values, bool atLeft) {
+        if (values.isEmpty()) return;
+        const QString where = values.size() == 1
+                                  ? tr("boundary at %1, beyond the data").arg(values.front())
+                                  : tr("boundaries at %1, beyond the data").arg(values.join(tr(" and ")));
+        auto* t = new QCPItemText(plot_);
+        t->position->setType(QCPItemPosition::ptAxisRectRatio);
+        t->position->setCoords(atLeft ? 0.0 : 1.0, 0.12);
+        t->setPositionAlignment(Qt::AlignTop | (atLeft ? Qt::AlignLeft : Qt::AlignRight));
+        t->setText(atLeft ? QStringLiteral("← ") + where : where + QStringLiteral(" →"));
+        t->setFont(smallFont(font(), 0.85));
+        t->setColor(estuary::ink);
+        t->setBrush(QBrush(QColor(255, 255, 255, 220)));
+        t->setPadding(QMargins(4, 1, 4, 1));
+        t->setSelectable(false);
+        boundaryNotes_ << t->text();
+    };
+    note(left, true);
+    note(right, false);
 }
 
 // Rug: ticks along the bottom edge (on the hidden right axis, range 0..1).

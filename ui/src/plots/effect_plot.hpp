@@ -1,8 +1,9 @@
 // The Effect plot: the conditional effect of the focal predictor against the
 // moderator, with its band (pointwise or simultaneous), the zero line, the
-// boundaries of the region of significance, the region itself as a tinted
-// strip (not significant: grey hatched), a rug of observed moderator values
-// and "beyond the data" shading outside the observed range. For a
+// boundaries of the region of significance (those beyond the axis written
+// as notes at its edges), the region itself as a tinted strip (not
+// significant: grey hatched), a rug of observed moderator values and
+// "beyond the data" shading outside the observed range. For a
 // categorical or 0/1 moderator: the effect in each group with its interval.
 //
 // A draggable handle marks the moderator slider's value. The handle and what
@@ -11,6 +12,7 @@
 #pragma once
 
 #include <QString>
+#include <QStringList>
 #include <QWidget>
 #include <utility>
 #include <vector>
@@ -68,6 +70,8 @@ public:
     int plotAreaMiddleY() const;
     // The boundary lines drawn (moderator values), left to right.
     const std::vector<double>& drawnBoundaries() const { return drawnBoundaries_; }
+    // The notes written at the plot's edges for boundaries beyond the axis.
+    const QStringList& boundaryNotes() const { return boundaryNotes_; }
     bool dragging() const { return dragging_; }
     QCPLayer* movingLayer() const;
     const EffectPlotData& data() const { return data_; }
@@ -94,6 +98,7 @@ private:
     void shadeBeyond(double a, double b);
     void drawCurve(bool anySignificant, bool anyNotSignificant);
     void drawBoundaries();
+    void drawBoundaryNotes();
     void drawRug();
     void buildGroups();
     void buildMoving();
@@ -110,6 +115,7 @@ private:
     EffectPoint currentPoint_;
     bool dragging_ = false;
     std::vector<double> drawnBoundaries_;
+    QStringList boundaryNotes_;
     // moving layer
     QCPItemLine* handle_ = nullptr;
     QCPItemLine* whisker_ = nullptr;

@@ -150,7 +150,8 @@ void LinesPlot::rebuild() {
     plot_->replot();
 }
 
-// The value axis covers every band, the slider's line at both ends, and the points.
+// The value axis covers every band, the slider's line at both ends, and the
+// points, with a margin that stays inside yBounds.
 void LinesPlot::fitValueRange() {
     const LinesPlotData& d = data_;
     double ylo = std::numeric_limits<double>::infinity(), yhi = -ylo;
@@ -173,13 +174,22 @@ void LinesPlot::fitValueRange() {
         take(d.points->yRange.first);
         take(d.points->yRange.second);
     }
+    // What is drawn spans lo to hi; the margin (or the room around a single value) comes on top.
+    double lo = ylo, hi = yhi;
     if (!(yhi > ylo)) {
-        ylo = std::isfinite(ylo) ? ylo - 1 : 0;
-        yhi = ylo + 2;
+        lo = hi = std::isfinite(ylo) ? ylo : 0;
+        ylo = lo - 1;
+        yhi = lo + 1;
+    } else {
+        const double pad = 0.05 * (yhi - ylo);
+        ylo -= pad;
+        yhi += pad;
     }
-    const double pad = 0.05 * (yhi - ylo);
-    ylo -= pad;
-    yhi += pad;
+    // The margin never reaches values the outcome cannot take (a negative
+    // count, a probability above 1); a line that does sets the edge itself.
+    const auto [least, most] = d.yBounds;
+    ylo = lo >= least ? std::max(ylo, least) : lo;
+    yhi = hi <= most ? std::min(yhi, most) : hi;
     plot_->yAxis->setRange(ylo, yhi);
 }
 

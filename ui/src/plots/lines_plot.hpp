@@ -13,6 +13,7 @@
 #include <QString>
 #include <QStringList>
 #include <QWidget>
+#include <limits>
 #include <memory>
 #include <utility>
 #include <vector>
@@ -56,6 +57,11 @@ struct LinesPlotData {
     std::pair<double, double> xRange{0, 1};
     // Estimates the y axis must also take in (e.g. the slider's line at the ends of its range).
     std::vector<CurvePoint> yExtent;
+    // The values the outcome can take ({0, ∞} for one observed only at 0 or
+    // above, {0, 1} for a probability): the y axis's margin stays inside
+    // them; only what is drawn (a line, a band) may take the axis beyond.
+    std::pair<double, double> yBounds{-std::numeric_limits<double>::infinity(),
+                                      std::numeric_limits<double>::infinity()};
 };
 
 class LinesPlot : public QWidget, public FigureSource {
@@ -100,6 +106,7 @@ private:
     // Draws everything again, in this order: points, bands and lines, the
     // crossings, where the lines differ, and the slider's line on its layer.
     void rebuild();
+    // The y axis: what is drawn and the points, with a margin inside yBounds.
     void fitValueRange();
     void drawLines();
     void drawCrossings();

@@ -2,6 +2,7 @@
 
 #include <qcustomplot.h>
 #include <QVBoxLayout>
+#include <algorithm>
 
 #include "moderato/support/error.hpp"
 #include "plots/plot_style.hpp"
@@ -166,8 +167,11 @@ void SurfacePlot::redraw() {
     // Cells are centred on the grid's end values: show them whole.
     const double hx = (g.x_values.back() - g.x_values.front()) / (2.0 * (nx - 1));
     const double hz = (g.z_values.back() - g.z_values.front()) / (2.0 * (nz - 1));
-    plot_->xAxis->setRange(g.x_values.front() - hx, g.x_values.back() + hx);
-    plot_->yAxis->setRange(g.z_values.front() - hz, g.z_values.back() + hz);
+    // The grid spans the observed values: a variable observed only at 0 or
+    // above keeps its axis there (the first cells show half).
+    const auto from = [](double first, double half) { return first >= 0 ? std::max(0.0, first - half) : first - half; };
+    plot_->xAxis->setRange(from(g.x_values.front(), hx), g.x_values.back() + hx);
+    plot_->yAxis->setRange(from(g.z_values.front(), hz), g.z_values.back() + hz);
     replotWhenShown();
 }
 

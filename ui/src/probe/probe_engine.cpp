@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 #include "moderato/support/error.hpp"
 
@@ -37,23 +38,38 @@ ProbeEngine::ProbeEngine(std::shared_ptr<const AnalysisRun> run, const Analysis&
     }
 
     if (!groups()) {
-        // The Effect plot shows a margin beyond the observed range, widened to
-        // take in boundaries and pinned values that lie not too far outside.
-        const auto [lo, hi] = p.observed_range;
-        const double w = hi > lo ? hi - lo : 1.0;
-        double a = lo - 0.12 * w, b = hi + 0.12 * w;
-        std::vector<double> extra;
-        if (p.johnson_neyman) extra = p.johnson_neyman->boundaries;
-        for (const auto& e : p.effects) extra.push_back(e.moderator_value);
-        for (double v : extra) {
-            if (!std::isfinite(v) || v < lo - 0.5 * w || v > hi + 0.5 * w) continue;
-            a = std::min(a, v - 0.05 * w);
-            b = std::max(b, v + 0.05 * w);
-        }
-        axisRange_ = {a, b};
+        std::vector<double> pins;
+        for (const auto& e : p.effects) pins.push_back(e.moderator_value);
+        axisRange_ =
+            effectAxisRange(p.observed_range, p.johnson_neyman ? p.johnson_neyman->boundaries : std::vector<double>{},
+                            pins, analysis_.probe.extend_to_boundaries);
     } else {
         axisRange_ = {-0.5, static_cast<double>(groupNames_.size()) - 0.5};
     }
+}
+
+std::pair<double, double> effectAxisRange(std::pair<double, double> observed, const std::vector<double>& boundaries,
+                                          const std::vector<double>& pinned, bool extend) {
+    const auto [lo, hi] = observed;
+    const double w = hi > lo ? hi - lo : 1.0;
+    // A moderator observed only at 0 or above: the axis never shows negative values.
+    const double least = lo >= 0 ? 0.0 : -std::numeric_limits<double>::infinity();
+    double a = lo - kEffectAxisMargin * w, b = hi + kEffectAxisMargin * w;
+    // Pinned values a little outside the data stay in view.
+    for (double v : pinned) {
+        if (!std::isfinite(v) || v < lo - 0.5 * w || v > hi + 0.5 * w) continue;
+        a = std::min(a, v - 0.05 * w);
+        b = std::max(b, v + 0.05 * w);
+    }
+    if (extend)
+        for (double v : boundaries) {
+            // One the axis may not reach (below the floor) stays a note; the axis does not widen towards it.
+            if (!std::isfinite(v) || v < std::max(least, lo - kBoundaryReach * w) || v > hi + kBoundaryReach * w)
+                continue;
+            a = std::min(a, v - 0.05 * w);
+            b = std::max(b, v + 0.05 * w);
+        }
+    return {std::max(a, least), b};
 }
 
 double ProbeEngine::defaultValue() const {

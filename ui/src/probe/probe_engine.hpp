@@ -63,7 +63,8 @@ public:
     const std::vector<double>& groupValues() const { return groupValues_; }
 
     // Continuous: the moderator's observed range (used rows) and the Effect
-    // plot's axis range (wider, so the part beyond the data shows).
+    // plot's axis range (effectAxisRange: a margin beyond the data, and the
+    // boundaries when the analysis extends the axis to them).
     std::pair<double, double> observedRange() const { return probe().observed_range; }
     std::pair<double, double> axisRange() const { return axisRange_; }
     std::pair<double, double> focalRange() const { return probe().focal_range; }
@@ -120,6 +121,17 @@ private:
     std::pair<double, double> axisRange_{0, 1};
     std::shared_ptr<const ProbeExtras> extras_;
 };
+
+// The Effect plot's moderator axis: the observed range with a margin of
+// kEffectAxisMargin of its width either side, widened to take in pinned
+// values less than half the width outside and, with `extend`, the
+// Johnson–Neyman boundaries less than kBoundaryReach widths outside. A
+// moderator observed only at 0 or above never gets an axis below 0, whatever
+// the margin, pins or boundaries ask.
+inline constexpr double kEffectAxisMargin = 0.08;
+inline constexpr double kBoundaryReach = 1.0;
+std::pair<double, double> effectAxisRange(std::pair<double, double> observed, const std::vector<double>& boundaries,
+                                          const std::vector<double>& pinned, bool extend);
 
 // Rows above which a probability-scale effect is recomputed on release
 // instead of on every frame of a drag.

@@ -21,6 +21,7 @@
 #include "common/inline_work.hpp"
 #include "common/number_text.hpp"
 #include "model/project_document.hpp"
+#include "moderato/reporting/memo.hpp"
 #include "plots/cells_view.hpp"
 #include "plots/effect_plot.hpp"
 #include "plots/lines_plot.hpp"
@@ -68,6 +69,7 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
       adjust_(new QComboBox(this)),
       surfaceToggle_(new QToolButton(this)),
       differ_(new QCheckBox(tr("Where groups differ"), this)),
+      extend_(new QCheckBox(tr("Extend to boundaries"), this)),
       linesTitle_(plotTitle(this)),
       effectTitle_(plotTitle(this)),
       linesStack_(new QStackedWidget(this)),
@@ -173,7 +175,8 @@ QHBoxLayout* ProbeSection::createControls() {
     return controls;
 }
 
-// The Lines (or Surface) plot over the Effect plot, each under its title.
+// The Lines (or Surface) plot over the Effect plot, each under its title
+// (the Effect plot's with the extend-to-boundaries switch beside it).
 QWidget* ProbeSection::createPlots(QWidget* left) {
     auto* plots = new QSplitter(Qt::Vertical, left);
     plots->setChildrenCollapsible(false);
@@ -189,7 +192,17 @@ QWidget* ProbeSection::createPlots(QWidget* left) {
     auto* effectLayout = new QVBoxLayout(effectBox);
     effectLayout->setContentsMargins(0, 0, 0, 0);
     effectLayout->setSpacing(0);
-    effectLayout->addWidget(effectTitle_);
+    // Beside the Effect plot's title: whether its axis takes in the boundaries beyond the data.
+    auto* effectHead = new QHBoxLayout;
+    effectHead->setContentsMargins(0, 0, 4, 0);
+    effectHead->addWidget(effectTitle_, 1);
+    extend_->setObjectName(QStringLiteral("extend-toggle"));
+    extend_->setToolTip(
+        tr("Widen the Effect plot's axis to show Johnson–Neyman boundaries that lie beyond the observed "
+           "values of the moderator (never to values the data cannot take, such as below 0 for a "
+           "moderator observed only at 0 or above). Off: they are written at the plot's edge."));
+    effectHead->addWidget(extend_);
+    effectLayout->addLayout(effectHead);
     effectLayout->addWidget(effect_, 1);
     plots->addWidget(linesBox);
     plots->addWidget(effectBox);
@@ -279,6 +292,12 @@ void ProbeSection::connectSettings() {
         if (rebuilding_ || !engine_.valid()) return;
         editSettings([on](ProbeSettings& p) { p.show_gaps = on; },
                      on ? tr("Shade where the lines differ") : tr("Hide where the lines differ"));
+    });
+    connect(extend_, &QCheckBox::toggled, this, [this](bool on) {
+        if (rebuilding_ || !engine_.valid()) return;
+        editSettings(
+            [on](ProbeSettings& p) { p.extend_to_boundaries = on; },
+            on ? tr("Extend the Effect plot to the boundaries") : tr("Keep the Effect plot to the observed range"));
     });
     connect(surfaceToggle_, &QToolButton::toggled, this, [this](bool on) {
         linesStack_->setCurrentIndex(on ? 1 : 0);
@@ -417,6 +436,8 @@ void ProbeSection::rebuild() {
                                "coefficients"));
     points_->setChecked(ps.show_points);
     differ_->setChecked(ps.show_gaps);
+    extend_->setChecked(ps.extend_to_boundaries);
+    extend_->setVisible(!engine_.groups());
     points_->setEnabled(!logistic || engine_.probability());
     scaleLabel_->setVisible(logistic);
     scale_->setVisible(logistic);
@@ -520,13 +541,14 @@ void ProbeSection::fillReadoutContext() {
     const ProbeResult& p = engine_.probe();
     const Analysis& a = shown_;
     const QString level = levelText(p.level);
+    // A logistic model's effects are on one of two scales: say which. A linear model has only its outcome's.
     QString scale;
     if (engine_.probability())
         scale = p.averaging == Averaging::AtValues ? tr("Probability scale, other predictors at their means")
                                                    : tr("Probability scale, averaged over the observed rows");
     else if (engine_.logistic()) scale = tr("Log-odds scale");
-    else scale = tr("Outcome scale");
-    QString statement = tr("%1 · %2 SEs · %3 pointwise interval").arg(scale, seDescription(a, *run_), level);
+    QString statement = tr("%1 SEs · %2 pointwise interval").arg(seDescription(a, *run_), level);
+    if (!scale.isEmpty()) statement = tr("%1 · %2").arg(scale, statement);
     const QString held = heldText();
     if (!held.isEmpty()) statement = tr("With %1 · %2").arg(held, statement);
     if (simultaneousShown())
@@ -611,7 +633,13 @@ LinesPlotData ProbeSection::linesPlotData() {
                                            : y;
     l.xRange = engine_.focalRange();
     const double xw = l.xRange.second - l.xRange.first;
-    l.xRange = {l.xRange.first - 0.02 * xw, l.xRange.second + 0.02 * xw};
+    // A focal predictor observed only at 0 or above gets no negative margin.
+    l.xRange = {l.xRange.first >= 0 ? std::max(0.0, l.xRange.first - 0.02 * xw) : l.xRange.first - 0.02 * xw,
+                l.xRange.second + 0.02 * xw};
+    // What the outcome can take: a probability, or a value observed only at 0 or above.
+    const Eigen::VectorXd& observedY = run_->design.y;
+    if (engine_.probability()) l.yBounds = {0.0, 1.0};
+    else if (!engine_.logistic() && observedY.size() > 0 && observedY.minCoeff() >= 0) l.yBounds.first = 0.0;
     groupLines_.clear();
     const QString mod = q(engine_.moderator());
     if (groups) {
@@ -837,7 +865,6 @@ void ProbeSection::summarizeComparisons(SummaryText& out) {
 void ProbeSection::summarizeRegions(SummaryText& out) {
     const ProbeResult& p = engine_.probe();
     const QString mod = q(engine_.moderator());
-    const auto [lo, hi] = engine_.observedRange();
     const bool sim = simultaneousShown();
     const SignificanceRegions* r = engine_.regions(sim);
     out.section(sim ? tr("Region of significance (simultaneous band)") : tr("Region of significance (Johnson–Neyman)"));
@@ -853,21 +880,10 @@ void ProbeSection::summarizeRegions(SummaryText& out) {
         else
             out.line(tr("Where the %1 pointwise interval excludes zero (critical value %2).")
                          .arg(levelText(p.level), numberText(r->critical_value)));
-        if (r->boundaries.empty()) {
-            if (r->significant.empty()) out.line(tr("Significant nowhere."));
-            else if (std::isinf(r->significant.front().lo) && std::isinf(r->significant.front().hi))
-                out.line(tr("Significant everywhere."));
-            else out.line(tr("Significant over the whole range examined."));
-        }
-        for (double b : r->boundaries)
-            out.line(tr("Boundary at %1 = %2 — %3")
-                         .arg(mod, numberText(b),
-                              b < lo || b > hi
-                                  ? tr("beyond the data (observed %1 to %2)").arg(numberText(lo), numberText(hi))
-                                  : tr("inside the observed range")));
-        QStringList regions;
-        for (const Region& g : r->significant) regions << tr("%1 to %2").arg(numberText(g.lo), numberText(g.hi));
-        if (!regions.isEmpty()) out.line(tr("Significant for %1 in: %2").arg(mod, regions.join(QStringLiteral("; "))));
+        // The memo's own sentences, so the two say the same.
+        if (sim) out.line(q(simultaneous_region_sentence(shown_, *run_)));
+        else
+            for (const std::string& sentence : region_sentences(shown_, *run_)) out.line(q(sentence));
     }
     out.end();
 }
@@ -1031,7 +1047,7 @@ void ProbeSection::onDocumentChanged(const QString& id) {
     // A change of the probe itself (pinned values, scale, ...) arrives as a new run.
     if (!same_probe(*a, shown_)) return;
     if (now.simultaneous_band != was.simultaneous_band || now.show_points != was.show_points ||
-        now.show_gaps != was.show_gaps) {
+        now.show_gaps != was.show_gaps || now.extend_to_boundaries != was.extend_to_boundaries) {
         rebuild();
         return;
     }

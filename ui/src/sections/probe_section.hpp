@@ -71,6 +71,9 @@ public:
     QToolButton* surfaceToggle() const { return surfaceToggle_; }
     // Shades the Lines plot where the two groups (or any two lines) differ.
     QCheckBox* differToggle() const { return differ_; }
+    // Widens the Effect plot's moderator axis to the Johnson–Neyman boundaries
+    // beyond the data (continuous moderator); off, they are written as notes.
+    QCheckBox* extendToggle() const { return extend_; }
     // The value the second moderator is held at (three-way models).
     HeldValueControl* heldValueControl() const { return held_; }
     const ProbeEngine& engine() const { return engine_; }
@@ -177,6 +180,7 @@ private:
     QComboBox* adjust_;
     QToolButton* surfaceToggle_;
     QCheckBox* differ_;
+    QCheckBox* extend_;
     QLabel* linesTitle_;
     QLabel* effectTitle_;
     QStackedWidget* linesStack_;

@@ -103,6 +103,11 @@ struct ProbeSettings {
     // Categorical moderator: how the pairwise differences' p-values are
     // adjusted (written to the file only when not Holm).
     Adjustment adjustment = Adjustment::Holm;
+    // The Effect plot's moderator axis takes in Johnson–Neyman boundaries
+    // beyond the data (never below 0 for a moderator observed only >= 0);
+    // false: the observed range plus a margin, with boundaries beyond it
+    // written as notes. Written to the file only when true.
+    bool extend_to_boundaries = false;
     bool operator==(const ProbeSettings&) const;
 };
 

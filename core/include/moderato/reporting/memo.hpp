@@ -56,6 +56,19 @@ struct Memo {
 // The sentences alone (also used by the workbench's Memo section).
 std::vector<std::string> memo_findings(const Analysis& analysis, const AnalysisRun& run);
 
+// Where the focal predictor's effect differs from zero, as the memo says it
+// and the Probe section repeats it (one wording): "Among the observed values
+// of z (0 to 25), the effect of x on y is positive and differs from zero for
+// z above 3.2 (95% pointwise intervals)." and, when Johnson–Neyman
+// boundaries lie beyond the data, "The Johnson–Neyman boundary at −7 lies
+// beyond the data (z observed from 0 to 25): an extrapolation, not a
+// finding." Empty without a Johnson–Neyman region (groups, a 0/1 moderator).
+std::vector<std::string> region_sentences(const Analysis& analysis, const AnalysisRun& run);
+// The same for the simultaneous band ("With the simultaneous band, which
+// keeps the chance of any false region at 5% (critical value 2.455), the
+// effect of x on y …."); empty when the run has no simultaneous band.
+std::string simultaneous_region_sentence(const Analysis& analysis, const AnalysisRun& run);
+
 // The cautions: the run's own, then those of the usual list that apply and
 // were not said yet (association, beyond the data, multiple testing, sample
 // size, log-odds vs probability).
