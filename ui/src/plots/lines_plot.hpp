@@ -24,6 +24,8 @@
 class QCustomPlot;
 class QCPLayer;
 class QCPGraph;
+class QCPItemLine;
+class QCPItemText;
 
 namespace moderato::ui {
 
@@ -67,8 +69,10 @@ public:
     void setData(const LinesPlotData& data);
     void clear();
     // The slider's line (series < 0: ink; else that series' colour, drawn
-    // bolder); with `replot`, redraws the moving layer only.
-    void setHighlight(const std::vector<CurvePoint>& points, int series, bool replot = true);
+    // bolder); with `replot`, redraws the moving layer only. `mark`: where
+    // the slider stands ("wind = 8.0"), the line's legend entry in an export
+    // that marks the slider's value.
+    void setHighlight(const std::vector<CurvePoint>& points, int series, bool replot = true, const QString& mark = {});
     QCPLayer* movingLayer() const;
 
     int lineCount() const { return static_cast<int>(data_.lines.size()); }
@@ -92,6 +96,10 @@ public:
     FigurePlot figureKind() const override { return FigurePlot::Lines; }
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override;
+    void setExportLook(bool exporting, bool markSlider) override;
+    // Whether the slider's line is drawn, and its legend entry (empty: none).
+    bool sliderLineShown() const;
+    QString sliderLineLegendName() const;
 
 protected:
     void resizeEvent(QResizeEvent* event) override;
@@ -105,6 +113,11 @@ private:
     void drawCrossings();
     void drawDifferStrips();
     void drawHighlightLayer();
+    // Shows or hides the slider's line and names it in the legend, as the
+    // export look asks (setExportLook).
+    void applySliderMark();
+    // Keeps the names of crossing pairs inside the plot area (after every layout).
+    void placeCrossingNames();
     void drawPoints();
     void drawPointMaps(const LinesPoints& p);
     QColor pointColour(int group) const;
@@ -118,8 +131,11 @@ private:
     int pointsMode_ = 0;
     std::vector<CurvePoint> highlight_;
     int highlightSeries_ = -1;
+    QString highlightMark_;
+    bool exporting_ = false, markSlider_ = false;
     QCPGraph* highlightLine_ = nullptr;
     QCPGraph* highlightBand_ = nullptr;
+    std::vector<std::pair<QCPItemText*, QCPItemLine*>> crossingNames_;  // a pair's name and its leader
 };
 
 }  // namespace moderato::ui

@@ -922,9 +922,9 @@ void ProbeSection::moveTo(double m, bool live) {
     if (engine_.groups()) {
         const std::size_t k = static_cast<std::size_t>(std::lround(m));
         lines_->setHighlight(k < groupLines_.size() ? groupLines_[k] : std::vector<CurvePoint>{}, static_cast<int>(k),
-                             true);
+                             true, moderatorLabel(m));
     } else {
-        lines_->setHighlight(engine_.lineAt(m, engine_.probability() ? 61 : 21), -1, true);
+        lines_->setHighlight(engine_.lineAt(m, engine_.probability() ? 61 : 21), -1, true, moderatorLabel(m));
     }
     readout_->setPoint(moderatorLabel(m), point_, band, !compute);
     slider_->setValue(m);
