@@ -80,6 +80,7 @@ void LinesPlot::resizeEvent(QResizeEvent* event) {
 
 void LinesPlot::drawPoints() {
     pointsMode_ = 0;
+    jittered_ = false;
     if (!data_.showPoints || !data_.points || data_.points->rows == 0) return;
     const LinesPoints& p = *data_.points;
     if (p.binned) {
@@ -89,8 +90,11 @@ void LinesPlot::drawPoints() {
     pointsMode_ = 1;
     // Fewer points, more opaque: about 0.57 at 200 rows, 0.18 at 2,000, 0.1 from 6,400.
     const double alpha = std::clamp(8.0 / std::sqrt(static_cast<double>(p.rows)), 0.1, 0.6);
+    jittered_ = data_.jitter && discreteFocal(p);
+    const double width = jittered_ ? jitterWidth(p) : 0.0;
     for (int g = 0; g < p.groups; ++g) {
-        const auto& xs = p.x[static_cast<std::size_t>(g)];
+        const auto& xs =
+            jittered_ ? jittered(p.x[static_cast<std::size_t>(g)], g, width) : p.x[static_cast<std::size_t>(g)];
         const auto& ys = p.y[static_cast<std::size_t>(g)];
         QCPGraph* graph = plot_->addGraph();
         graph->setLineStyle(QCPGraph::lsNone);
@@ -101,7 +105,13 @@ void LinesPlot::drawPoints() {
         graph->setAntialiasedScatters(p.rows <= 5000);
         graph->setSelectable(QCP::stNone);
         if (data_.pointsByGroup || g > 0) graph->removeFromLegend();
-        else graph->setName(tr("observed rows"));
+        else graph->setName(jittered_ ? tr("observed rows (spread sideways)") : tr("observed rows"));
+    }
+    // The points spread past the end values stay in view.
+    if (jittered_) {
+        const QCPRange r = plot_->xAxis->range();
+        plot_->xAxis->setRange(std::min(r.lower, p.xRange.first - 1.2 * width),
+                               std::max(r.upper, p.xRange.second + 1.2 * width));
     }
 }
 

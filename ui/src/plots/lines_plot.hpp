@@ -43,6 +43,9 @@ struct LinesPlotData {
     bool showPoints = false;
     std::shared_ptr<const LinesPoints> points;
     bool pointsByGroup = false;  // colour points by group
+    // Spread the points of a discrete focal predictor sideways (seeded, so
+    // every draw is the same; see discreteFocal()).
+    bool jitter = false;
     struct Crossing {
         double x = 0, y = 0;          // where the lines meet
         double lower = 0, upper = 0;  // its interval along the focal predictor
@@ -89,6 +92,8 @@ public:
     static constexpr int kDifferStripHeight = 7;
     // How the data points are drawn: 0 none, 1 points, 2 binned counts.
     int pointsMode() const { return pointsMode_; }
+    // Whether the points drawn are jittered (asked for, and the focal predictor is discrete).
+    bool pointsJittered() const { return jittered_; }
     const LinesPlotData& data() const { return data_; }
     const std::vector<CurvePoint>& highlight() const { return highlight_; }
 
@@ -129,6 +134,7 @@ private:
     int crossoverMarkers_ = 0;
     std::vector<std::pair<double, double>> differStrips_;
     int pointsMode_ = 0;
+    bool jittered_ = false;
     std::vector<CurvePoint> highlight_;
     int highlightSeries_ = -1;
     QString highlightMark_;

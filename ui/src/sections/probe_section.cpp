@@ -134,6 +134,12 @@ QHBoxLayout* ProbeSection::createControls() {
     points_->setObjectName(QStringLiteral("points-toggle"));
     points_->setToolTip(tr("Show the observed rows on the Lines plot (binned into counts above 20,000 rows)"));
     controls->addWidget(points_);
+    jitter_ = new QCheckBox(tr("Spread sideways"), this);
+    jitter_->setObjectName(QStringLiteral("jitter-toggle"));
+    jitter_->setToolTip(
+        tr("The focal predictor takes a few whole values: move each data point a little sideways "
+           "(the same way on every draw) so points on one value do not hide one another"));
+    controls->addWidget(jitter_);
     controls->addSpacing(8);
     controls->addWidget(scaleLabel_);
     scale_->setObjectName(QStringLiteral("scale-choice"));
@@ -251,6 +257,11 @@ void ProbeSection::connectSettings() {
         if (rebuilding_) return;
         editSettings([on](ProbeSettings& p) { p.show_points = on; },
                      on ? tr("Show data points") : tr("Hide data points"));
+    });
+    connect(jitter_, &QCheckBox::toggled, this, [this](bool on) {
+        if (rebuilding_) return;
+        editSettings([on](ProbeSettings& p) { p.jitter = on; },
+                     on ? tr("Spread data points sideways") : tr("Draw data points at their values"));
     });
     connect(scale_, &QComboBox::activated, this, [this](int i) {
         const auto s = static_cast<ProbeScale>(scale_->itemData(i).toInt());
@@ -418,6 +429,7 @@ void ProbeSection::rebuild() {
     points_->setChecked(ps.show_points);
     differ_->setChecked(ps.show_gaps);
     points_->setEnabled(!logistic || engine_.probability());
+    syncJitterToggle(ps);
     scaleLabel_->setVisible(logistic);
     scale_->setVisible(logistic);
     scale_->setCurrentIndex(engine_.probability() ? 1 : 0);
@@ -572,6 +584,14 @@ void ProbeSection::buildPlots() {
     lines_->setData(l);
 }
 
+// Jitter is offered for a discrete focal predictor only (observed_points.hpp).
+void ProbeSection::syncJitterToggle(const ProbeSettings& ps) {
+    const auto linesPoints = engine_.linesPoints();
+    jitter_->setVisible(linesPoints && discreteFocal(*linesPoints));
+    jitter_->setChecked(ps.jitter);
+    jitter_->setEnabled(points_->isEnabled() && ps.show_points);
+}
+
 void ProbeSection::buildEffectPlot(bool sim, const QString& level) {
     const bool groups = engine_.groups();
     // Effect plot.
@@ -641,6 +661,7 @@ LinesPlotData ProbeSection::linesPlotData() {
     l.showPoints = shown_.probe.show_points && (!engine_.logistic() || engine_.probability());
     if (l.showPoints) {
         l.points = engine_.linesPoints();
+        l.jitter = shown_.probe.jitter;
         l.pointsByGroup = groups;
     }
     return l;
@@ -1007,7 +1028,7 @@ void ProbeSection::onDocumentChanged(const QString& id) {
     // A change of the probe itself (pinned values, scale, ...) arrives as a new run.
     if (!same_probe(*a, shown_)) return;
     if (now.simultaneous_band != was.simultaneous_band || now.show_points != was.show_points ||
-        now.show_gaps != was.show_gaps) {
+        now.show_gaps != was.show_gaps || now.jitter != was.jitter) {
         rebuild();
         return;
     }
