@@ -133,13 +133,18 @@ QHBoxLayout* ProbeSection::createControls() {
     controls->addWidget(band_);
     points_->setObjectName(QStringLiteral("points-toggle"));
     points_->setToolTip(tr("Show the observed rows on the Lines plot (binned into counts above 20,000 rows)"));
-    controls->addWidget(points_);
+    // The spread toggle sits under "Data points", so the row keeps its width.
+    auto* pointsColumn = new QVBoxLayout;
+    pointsColumn->setSpacing(0);
+    pointsColumn->addWidget(points_);
+    controls->addLayout(pointsColumn);
     jitter_ = new QCheckBox(tr("Spread sideways"), this);
     jitter_->setObjectName(QStringLiteral("jitter-toggle"));
     jitter_->setToolTip(
         tr("The focal predictor takes a few whole values: move each data point a little sideways "
            "(the same way on every draw) so points on one value do not hide one another"));
-    controls->addWidget(jitter_);
+    pointsColumn->addWidget(jitter_);
+    jitter_->setVisible(false);  // until a discrete focal predictor shows (syncJitterToggle)
     controls->addSpacing(8);
     controls->addWidget(scaleLabel_);
     scale_->setObjectName(QStringLiteral("scale-choice"));
