@@ -36,7 +36,7 @@ LinesPlot::LinesPlot(QWidget* parent) : QWidget(parent), plot_(new QCustomPlot(t
 void LinesPlot::placeCrossingNames() {
     const QRect r = plot_->axisRect()->rect();
     if (r.width() <= 0) return;
-    for (const auto& [name, leader] : crossingNames_) {
+    for (const auto& [name, leader, preferAbove] : crossingNames_) {
         const QFontMetricsF fm(name->font());
         const QMargins pad = name->padding();
         const double w = fm.horizontalAdvance(name->text()) + pad.left() + pad.right();
@@ -45,7 +45,9 @@ void LinesPlot::placeCrossingNames() {
         Qt::Alignment side = Qt::AlignHCenter;
         if (at.x() - 0.5 * w < r.left()) side = Qt::AlignLeft;
         else if (at.x() + 0.5 * w > r.right()) side = Qt::AlignRight;
-        bool above = leader->end->coords().y() < 0;
+        // From the side it was placed on each time, so every layout of the
+        // same size places it alike (the workbench's export and the renderer's).
+        bool above = preferAbove;
         if (above && at.y() - 14 - h < r.top()) above = false;
         else if (!above && at.y() + 14 + h > r.bottom()) above = true;
         leader->end->setCoords(0, above ? -14 : 14);
@@ -281,7 +283,7 @@ void LinesPlot::drawCrossings() {
             name->setColor(estuary::ink);
             name->setFont(font());
             name->setSelectable(false);
-            crossingNames_.push_back({name, leader});
+            crossingNames_.push_back({name, leader, above});
         }
         QCPGraph* diamond = plot_->addGraph();
         diamond->setLineStyle(QCPGraph::lsNone);

@@ -141,7 +141,12 @@ private:
     bool exporting_ = false, markSlider_ = false;
     QCPGraph* highlightLine_ = nullptr;
     QCPGraph* highlightBand_ = nullptr;
-    std::vector<std::pair<QCPItemText*, QCPItemLine*>> crossingNames_;  // a pair's name and its leader
+    struct CrossingName {
+        QCPItemText* name;
+        QCPItemLine* leader;
+        bool above;  // the side it is placed on when it fits
+    };
+    std::vector<CrossingName> crossingNames_;
 };
 
 }  // namespace moderato::ui
