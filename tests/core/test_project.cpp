@@ -196,8 +196,9 @@ Project full_project() {
     a.probe.show_points = false;
     a.probe.adjustment = Adjustment::Bonferroni;
     a.probe.extend_to_boundaries = true;
+    a.probe.jitter = false;
     a.reference_levels = {{"région", "Île"}, {"store", "B"}};
-    a.figure = {SizePreset::Custom, 7.25, 3.1, 600, "Noto Serif", 10.5, true, false};
+    a.figure = {SizePreset::Custom, 7.25, 3.1, 600, "Noto Serif", 10.5, true, false, true};
     p.analyses.push_back(a);
 
     // One analysis per standard-error kind, with the NaN defaults ("the mean").
@@ -301,6 +302,39 @@ TEST(ProjectJson, EqualityNoticesEveryKindOfChange) {
     q = p;
     q.analyses[1].probe.extend_to_boundaries = true;
     EXPECT_FALSE(q == p);
+    q = p;
+    q.analyses[1].figure.mark_slider = true;
+    EXPECT_FALSE(q == p);
+    q = p;
+    q.analyses[1].probe.jitter = false;
+    EXPECT_FALSE(q == p);
+}
+
+// Jitter is on by default; only "off" is written, so projects keep their bytes.
+TEST(ProjectJson, JitterIsWrittenOnlyWhenOff) {
+    Project p = full_project();
+    ASSERT_FALSE(p.analyses[0].probe.jitter);
+    EXPECT_TRUE(p.analyses[1].probe.jitter);  // the default
+    const std::string text = project_to_json(p);
+    EXPECT_NE(text.find("\"jitter\": false"), std::string::npos);
+    EXPECT_EQ(text.find("\"jitter\": true"), std::string::npos);
+    EXPECT_FALSE(project_from_json(text, "memory.moderato").analyses[0].probe.jitter);
+    p.analyses[0].probe.jitter = true;
+    EXPECT_EQ(project_to_json(p).find("jitter"), std::string::npos);
+}
+
+// Marking the slider's value in exports is off unless asked for; off, the
+// key is not written, so sample projects keep their bytes.
+TEST(ProjectJson, MarkSliderIsWrittenOnlyWhenOn) {
+    Project p = full_project();
+    ASSERT_TRUE(p.analyses[0].figure.mark_slider);
+    EXPECT_FALSE(p.analyses[1].figure.mark_slider);  // the default
+    const std::string text = project_to_json(p);
+    EXPECT_NE(text.find("\"mark_slider\": true"), std::string::npos);
+    EXPECT_EQ(text.find("\"mark_slider\": false"), std::string::npos);
+    EXPECT_TRUE(project_from_json(text, "memory.moderato").analyses[0].figure.mark_slider);
+    p.analyses[0].figure.mark_slider = false;
+    EXPECT_EQ(project_to_json(p).find("mark_slider"), std::string::npos);
 }
 
 // The defaults (Holm; every reference level its first in text order; the

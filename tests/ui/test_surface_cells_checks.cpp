@@ -230,9 +230,13 @@ TEST(SurfacePlot, OrchardNitrogenColourMapMatchesCoreSurfaceGrid) {
             const bool outside =
                 !region.contains(ref.x_values[static_cast<std::size_t>(i)], ref.z_values[static_cast<std::size_t>(k)]);
             beyond += outside;
-            EXPECT_EQ(map->data()->alpha(i, k) < 255, outside) << i << "," << k;
+            // No cell is faded: the wash beyond the data is a mask along the hull (test_surface_mask.cpp).
+            EXPECT_EQ(map->data()->alpha(i, k), 255) << i << "," << k;
         }
     EXPECT_EQ(plot.beyondCellCount(), beyond);
+    EXPECT_EQ(plot.region().x, region.x);  // the masked hull is core's data_region
+    EXPECT_EQ(plot.region().z, region.z);
+    EXPECT_TRUE(plot.beyondMask());
     EXPECT_GT(beyond, 0);  // random scatter never fills the corners of its bounding box
     EXPECT_EQ(plot.figurePlot()->xAxis->label(), QString::fromStdString(d.analysis.roles.focal));
     EXPECT_EQ(plot.figurePlot()->yAxis->label(), QString::fromStdString(d.analysis.roles.moderator));

@@ -226,6 +226,8 @@ TEST(UserFlows, ExportedLegendFitsANarrowFigure) {
         const SvgLayout svg = svgLayout(FigureExporter(source, narrow).renderSvg());
         ASSERT_GT(svg.width, 0);
         for (const QString& name : names) {
+            // An export shows no slider's line unless asked (test_figure_slider_mark.cpp).
+            if (name == QStringLiteral("at the slider's value")) continue;
             int found = 0;
             for (const SvgText& t : svg.texts)
                 if (t.text == name) {
@@ -372,8 +374,8 @@ TEST(UserFlows, ImportingIntoAProjectStartsAnAnalysisOfTheNewData) {
     EXPECT_EQ(s.w.document()->project().analyses.size(), 1u);
 }
 
-// Saving a figure closes the export dialog; nothing then said that (or
-// where) the file had been written.
+// Saving a figure said nothing of that (or where) the file had been
+// written; the export dialog stays open after a save.
 TEST(UserFlows, SavingAFigureSaysWhereItWent) {
     Session s(QStringLiteral("orchard-nitrogen"));
     s.w.analysisPage()->showSection(AnalysisPage::Probe);
@@ -404,10 +406,16 @@ TEST(UserFlows, SavingAFigureSaysWhereItWent) {
     driver.start(20);
     QTimer::singleShot(8000, &driver, [&] { driver.stop(); });
     s.keys(Qt::Key_E, Qt::ControlModifier);
-    ASSERT_TRUE(test::waitUntil([&] { return stage == Done && QApplication::activeModalWidget() == nullptr; }, 9000));
-    ASSERT_TRUE(QFile::exists(target));
+    // The export dialog stays open after the save (for the next file).
+    ASSERT_TRUE(test::waitUntil(
+        [&] {
+            return stage == Done && QFile::exists(target) &&
+                   qobject_cast<FigureExportDialog*>(QApplication::activeModalWidget());
+        },
+        9000));
     const QString shown = s.w.statusBar()->currentMessage();
     EXPECT_TRUE(shown.contains(QDir::toNativeSeparators(QFileInfo(target).absoluteFilePath()))) << shown.toStdString();
+    QApplication::activeModalWidget()->close();
 }
 
 // A recipe refused with a long message (log of a column holding 0) squeezed

@@ -267,13 +267,17 @@ json probe_to_json(const ProbeSettings& p) {
     // Written only when not the default, so projects keep their bytes.
     if (p.adjustment != Adjustment::Holm) j["adjustment"] = word_of(kAdjustmentWords, p.adjustment);
     if (p.extend_to_boundaries) j["extend_to_boundaries"] = true;
+    if (!p.jitter) j["jitter"] = false;
     return j;
 }
 
 json figure_to_json(const FigureSettings& f) {
-    return {
+    json j{
         {"preset", to_string(f.preset)}, {"width_in", f.width_in}, {"height_in", f.height_in}, {"dpi", f.dpi},
         {"font_family", f.font_family},  {"font_pt", f.font_pt},   {"greyscale", f.greyscale}, {"caption", f.caption}};
+    // Written only when on, so projects keep their bytes.
+    if (f.mark_slider) j["mark_slider"] = true;
+    return j;
 }
 
 json analysis_to_json(const Analysis& a) {
@@ -387,6 +391,7 @@ ProbeSettings read_probe(const Reader& r, const json& j, const std::string& wher
     out.simultaneous_band = r.boolean(probe, "simultaneous_band", pw, false);
     out.show_points = r.boolean(probe, "show_points", pw, true);
     out.show_gaps = r.boolean(probe, "show_gaps", pw, true);
+    out.jitter = r.boolean(probe, "jitter", pw, true);
     out.adjustment = r.choice(probe, "adjustment", pw, kAdjustmentWords, std::optional(Adjustment::Holm));
     out.extend_to_boundaries = r.boolean(probe, "extend_to_boundaries", pw, false);
     return out;
@@ -412,6 +417,7 @@ FigureSettings read_figure(const Reader& r, const json& j, const std::string& wh
                "must lie between " + exact_text(L::min_font_pt) + " and " + exact_text(L::max_font_pt) + " points");
     f.greyscale = r.boolean(fig, "greyscale", fw, false);
     f.caption = r.boolean(fig, "caption", fw, true);
+    f.mark_slider = r.boolean(fig, "mark_slider", fw, false);
     const auto inches = [](double v) { return v >= L::min_inches && v <= L::max_inches; };
     if (!(inches(f.width_in) && inches(f.height_in)))
         r.fail(fw, "width and height must lie between " + exact_text(L::min_inches) + " and " +
@@ -480,7 +486,7 @@ bool ProbeSettings::operator==(const ProbeSettings& o) const {
     return same_number(current, o.current) && pinned == o.pinned && same_number(second_value, o.second_value) &&
            scale == o.scale && averaging == o.averaging && simultaneous_band == o.simultaneous_band &&
            show_points == o.show_points && show_gaps == o.show_gaps && adjustment == o.adjustment &&
-           extend_to_boundaries == o.extend_to_boundaries;
+           extend_to_boundaries == o.extend_to_boundaries && jitter == o.jitter;
 }
 
 bool DataSource::operator==(const DataSource& o) const {

@@ -11,6 +11,7 @@
 #include <QFormLayout>
 #include <QGroupBox>
 #include <QHBoxLayout>
+#include <QHash>
 #include <QLabel>
 #include <QLineEdit>
 #include <QPushButton>
@@ -47,6 +48,12 @@ QString fileStem(const QString& name) {
     stem.remove(QRegularExpression(QStringLiteral("^-+|-+$")));
     return stem.isEmpty() ? QStringLiteral("figure") : stem;
 }
+
+// The plot last chosen in Export Figure, per project file (this session only).
+QHash<QString, FigurePlot>& lastPlots() {
+    static QHash<QString, FigurePlot> plots;
+    return plots;
+}
 }  // namespace
 
 FigureExportDialog::FigureExportDialog(FigureSource* source, ProjectDocument* doc, const QString& analysisId,
@@ -63,6 +70,14 @@ FigureExportDialog::FigureExportDialog(const QList<FigureSource*>& sources, Proj
     if (doc_)
         if (const Analysis* a = doc_->analysis(analysisId_)) stored = a->figure;
     loadSettings(stored);
+    // The plot chosen last time for this project, when this section has it.
+    const QString key = doc_ ? doc_->filePath() : QString();
+    if (const auto last = lastPlots().constFind(key); last != lastPlots().constEnd())
+        for (int i = 0; i < sources_.size(); ++i)
+            if (sources_[i]->figureKind() == *last) figure_->setCurrentIndex(i);
+    connect(figure_, &QComboBox::currentIndexChanged, this, [this, key] {
+        if (FigureSource* s = currentSource()) lastPlots().insert(key, s->figureKind());
+    });
     updatePreview();
 }
 
@@ -163,6 +178,13 @@ void FigureExportDialog::createLookRows(QFormLayout* form) {
     greyscale_->setToolTip(tr("Draw every line, band and label in shades of grey (the series keep their line styles)"));
     form->addRow(QString(), greyscale_);
 
+    markSlider_ = new QCheckBox(tr("&Mark the slider's value"), this);
+    markSlider_->setObjectName(QStringLiteral("figure-mark-slider"));
+    markSlider_->setToolTip(
+        tr("Show where the moderator slider stands (its line or frame), labelled with the value, e.g. “wind = 8.0”; "
+           "off, the figure shows no slider"));
+    form->addRow(QString(), markSlider_);
+
     captionOn_ = new QCheckBox(tr("&Caption under the figure"), this);
     captionOn_->setObjectName(QStringLiteral("figure-caption-on"));
     captionText_ = new QLineEdit(caption_, this);
@@ -208,7 +230,7 @@ void FigureExportDialog::connectSignals(QDialogButtonBox* buttons) {
     previewTimer_->setInterval(120);
     connect(previewTimer_, &QTimer::timeout, this, &FigureExportDialog::updatePreview);
 
-    // Save… opens a file dialog; it closes this one only when saving works.
+    // Save… opens a file dialog; this one stays open for the next file.
     connect(save_, &QPushButton::clicked, this, &FigureExportDialog::saveClicked);
     connect(copy_, &QPushButton::clicked, this, [this] { copyToClipboard(); });
     connect(keep_, &QPushButton::clicked, this, [this] { keepInProject(); });
@@ -223,6 +245,7 @@ void FigureExportDialog::connectSignals(QDialogButtonBox* buttons) {
     connect(font_, &QFontComboBox::currentFontChanged, this, &FigureExportDialog::schedulePreview);
     connect(fontSize_, &QDoubleSpinBox::valueChanged, this, &FigureExportDialog::schedulePreview);
     connect(greyscale_, &QCheckBox::toggled, this, &FigureExportDialog::schedulePreview);
+    connect(markSlider_, &QCheckBox::toggled, this, &FigureExportDialog::schedulePreview);
     connect(captionOn_, &QCheckBox::toggled, this, [this](bool on) {
         captionText_->setEnabled(on);
         schedulePreview();
@@ -241,6 +264,7 @@ void FigureExportDialog::loadSettings(const FigureSettings& s) {
     font_->setCurrentFont(f);
     fontSize_->setValue(s.font_pt);
     greyscale_->setChecked(s.greyscale);
+    markSlider_->setChecked(s.mark_slider);
     captionOn_->setChecked(s.caption);
     captionText_->setEnabled(s.caption);
     loading_ = false;
@@ -256,6 +280,7 @@ FigureSettings FigureExportDialog::settings() const {
     s.font_family = font_->currentFont().family().toStdString();
     s.font_pt = fontSize_->value();
     s.greyscale = greyscale_->isChecked();
+    s.mark_slider = markSlider_->isChecked();
     s.caption = captionOn_->isChecked();
     return s;
 }
@@ -435,27 +460,35 @@ bool FigureExportDialog::keepInProject() {
     return true;
 }
 
-void FigureExportDialog::saveClicked() {
+QString FigureExportDialog::suggestedFileName() const {
     FigureSource* source = currentSource();
-    if (!source) return;
+    if (!source) return {};
+    const Analysis* a = doc_ ? doc_->analysis(analysisId_) : nullptr;
+    const QString stem = a ? fileStem(QString::fromStdString(a->name) + QLatin1Char(' ') + source->figureKey())
+                           : fileStem(source->figureName());
+    return stem + QLatin1Char('.') + figureFormatSuffix(format());
+}
+
+QString FigureExportDialog::saveFolder() const {
+    // Beside the project; an unsaved project: the folder saved to last.
+    if (doc_ && !doc_->filePath().isEmpty()) return QFileInfo(doc_->filePath()).absolutePath();
+    const QString dir = QSettings().value(QStringLiteral("figureExport/lastDir")).toString();
+    if (!dir.isEmpty() && QDir(dir).exists()) return dir;
+    return QStandardPaths::writableLocation(QStandardPaths::DocumentsLocation);
+}
+
+void FigureExportDialog::saveClicked() {
+    if (!currentSource()) return;
     const FigureFormat fmt = format();
-    QSettings settingsStore;
-    QString dir = settingsStore.value(QStringLiteral("figureExport/lastDir")).toString();
-    if (dir.isEmpty() || !QDir(dir).exists()) {
-        dir = doc_ && !doc_->filePath().isEmpty() ? QFileInfo(doc_->filePath()).absolutePath()
-                                                  : QStandardPaths::writableLocation(QStandardPaths::DocumentsLocation);
-    }
-    const QString suffix = figureFormatSuffix(fmt);
     const QString filters = tr("PNG image (*.png);;SVG drawing (*.svg);;PDF document (*.pdf)");
     QString selected = fmt == FigureFormat::Png   ? tr("PNG image (*.png)")
                        : fmt == FigureFormat::Svg ? tr("SVG drawing (*.svg)")
                                                   : tr("PDF document (*.pdf)");
     const QString path = QFileDialog::getSaveFileName(
-        this, tr("Save Figure"), QDir(dir).filePath(fileStem(source->figureName()) + QLatin1Char('.') + suffix),
-        filters, &selected);
+        this, tr("Save Figure"), QDir(saveFolder()).filePath(suggestedFileName()), filters, &selected);
     if (path.isEmpty()) return;
-    settingsStore.setValue(QStringLiteral("figureExport/lastDir"), QFileInfo(path).absolutePath());
-    if (exportTo(path)) accept();
+    QSettings().setValue(QStringLiteral("figureExport/lastDir"), QFileInfo(path).absolutePath());
+    if (exportTo(path)) Q_EMIT figureSaved(lastSavedPath_);
 }
 
 }  // namespace moderato::ui

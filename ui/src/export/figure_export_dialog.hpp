@@ -1,8 +1,10 @@
 // Exporting a figure: which plot of the section, format (PNG at a DPI, SVG,
-// PDF), a LOOK.md preset or a custom size, font and size, greyscale, caption;
-// a live preview; save, copy to the clipboard, or keep the figure in the
-// project. The settings start from the analysis's stored ones and are stored
-// back (one undoable edit) when the user exports.
+// PDF), a LOOK.md preset or a custom size, font and size, greyscale, whether
+// the moderator slider's value is marked (off: no slider in the figure),
+// caption; a live preview; save (the dialog stays open, so several files can
+// be saved), copy to the clipboard, or keep the figure in the project. It
+// starts on the plot chosen last for the project (this session). The settings start from the analysis's stored ones and
+// are stored back (one undoable edit) when the user exports.
 #pragma once
 
 #include <QDialog>
@@ -57,6 +59,15 @@ public:
     // The last outcome ("Saved …", or the error naming the file).
     QString statusText() const;
     QString lastSavedPath() const { return lastSavedPath_; }
+    // What Save… offers: the analysis's name and the plot ("nitrogen ×
+    // soil moisture", Effect plot, PNG: "nitrogen-soil-moisture-effect.png"),
+    // in the project's folder (an unsaved project: the folder saved to last).
+    QString suggestedFileName() const;
+    QString saveFolder() const;
+
+Q_SIGNALS:
+    // Save… wrote `path`; the dialog stays open for the next file.
+    void figureSaved(const QString& path);
 
 private:
     // The dialog's parts: the form (the figure's rows, then its look), the
@@ -94,6 +105,7 @@ private:
     QFontComboBox* font_ = nullptr;
     QDoubleSpinBox* fontSize_ = nullptr;
     QCheckBox* greyscale_ = nullptr;
+    QCheckBox* markSlider_ = nullptr;
     QCheckBox* captionOn_ = nullptr;
     QLineEdit* captionText_ = nullptr;
     QLabel* preview_ = nullptr;

@@ -69,15 +69,6 @@ namespace {
 
 using L = FigureLimits;  // the one set of limits, shared with the project loader
 
-// The resolution QFontMetrics assumes for a font without a paint device.
-// QCustomPlot measures text that way while laying out, so every figure is
-// laid out in units of 1/L inch and drawn on a device of L dots per inch:
-// text is measured and drawn alike, and a 9 pt font is 9 pt on the page.
-int layoutDpi() {
-    const QImage probe(1, 1, QImage::Format_ARGB32);  // a fresh image carries the default resolution
-    return std::max(1, probe.logicalDpiY());
-}
-
 QFont exportFont(const QFont& original, const FigureSettings& s, double factor) {
     QFont f = original;
     if (!s.font_family.empty()) f.setFamilies({QString::fromStdString(s.font_family)});
@@ -118,6 +109,7 @@ public:
         : source_(source), plot_(plot), greyscale_(s.greyscale) {
         const int width = size.width();
         if (greyscale_) source_->setGreyscale(true);
+        source_->setExportLook(true, s.mark_slider);
         // Everything QCustomPlot draws is a layerable owned by the plot; its
         // pens, brushes, colours and fonts are properties. All values are read
         // before any is written: some setters pass theirs on (a legend's font
@@ -175,6 +167,7 @@ public:
             shrinkLegend(plot, s, width, size.height());
         }
         wrapAxisLabels(plot, size);
+        wrapTextElements(plot, size);
     }
 
     ~ExportState() {
@@ -184,6 +177,8 @@ public:
             if (s.object) s.property.write(s.object, s.value);
         for (const auto& [axis, label] : labels_)
             if (axis) axis->setLabel(label);
+        for (const auto& [element, text] : texts_)
+            if (element) element->setText(text);
         if (legend_) {
             legend_->setIconSize(legendIcon_);
             for (const auto& [item, margins] : itemMargins_)
@@ -191,6 +186,7 @@ public:
             legend_->setWrap(legendWrap_);
             legend_->setFillOrder(legendOrder_, true);
         }
+        source_->setExportLook(false, false);
         if (greyscale_) source_->setGreyscale(false);
         plot_->replot();  // lays the plot out again at its own size
     }
@@ -245,6 +241,34 @@ private:
         axis->setLabel(wrapped);
     }
 
+    // A title or caption wider than its place in the figure's layout (a
+    // layout pass at the figure's size says how wide that is) is broken at
+    // spaces into lines that fit.
+    void wrapTextElements(QCustomPlot* plot, QSize size) {
+        const QRect viewport = plot->viewport();
+        plot->setViewport(QRect(QPoint(0, 0), size));
+        for (auto phase : {QCPLayoutElement::upPreparation, QCPLayoutElement::upMargins, QCPLayoutElement::upLayout})
+            plot->plotLayout()->update(phase);
+        std::vector<std::pair<QCPTextElement*, double>> rooms;
+        for (QCPTextElement* element : plot->findChildren<QCPTextElement*>())
+            if (element->visible())
+                rooms.push_back({element, std::min<double>(size.width(), element->rect().width()) - 4});
+        plot->setViewport(viewport);
+        for (const auto& [element, room] : rooms) {
+            const QString text = element->text();
+            const QFontMetricsF fm(element->font());
+            if (text.isEmpty() || text.contains(QLatin1Char('\n')) || fm.horizontalAdvance(text) <= room) continue;
+            QStringList lines;
+            for (const QString& word : text.split(QLatin1Char(' '))) {
+                if (!lines.isEmpty() && fm.horizontalAdvance(lines.last() + QLatin1Char(' ') + word) <= room)
+                    lines.last() += QLatin1Char(' ') + word;
+                else lines << word;
+            }
+            texts_.push_back({element, text});
+            element->setText(lines.join(QLatin1Char('\n')));
+        }
+    }
+
     struct Saved {
         QPointer<QObject> object;
         QMetaProperty property;
@@ -260,6 +284,7 @@ private:
     std::vector<std::pair<QPointer<QCPAbstractLegendItem>, QMargins>> itemMargins_;
     QSize legendIcon_;
     std::vector<std::pair<QPointer<QCPAxis>, QString>> labels_;
+    std::vector<std::pair<QPointer<QCPTextElement>, QString>> texts_;
 };
 
 // Draws the plot and the caption under it into `logical` (units of 1/L inch).
@@ -331,6 +356,20 @@ QString validateFigureSettings(const FigureSettings& s) {
 FigureExporter::FigureExporter(FigureSource* source, const FigureSettings& settings, const QString& caption)
     : source_(source), settings_(settings), caption_(settings.caption ? caption.trimmed() : QString()) {}
 
+// The resolution QFontMetrics assumes for a font without a paint device.
+// QCustomPlot measures text that way while laying out, so every figure is
+// laid out in units of 1/L inch and drawn on a device of L dots per inch:
+// text is measured and drawn alike, and a 9 pt font is 9 pt on the page.
+int FigureExporter::layoutDpi() {
+    const QImage probe(1, 1, QImage::Format_ARGB32);  // a fresh image carries the default resolution
+    return std::max(1, probe.logicalDpiY());
+}
+
+QSize FigureExporter::layoutSize(const FigureSettings& s) {
+    const int L = layoutDpi();
+    return {static_cast<int>(std::lround(s.width_in * L)), static_cast<int>(std::lround(s.height_in * L))};
+}
+
 QSize FigureExporter::pixelSize(const FigureSettings& s) {
     const auto side = [&](double inches) {
         return static_cast<int>(std::clamp<long long>(L::side_pixels(inches, s.dpi), 0, 1 << 30));
@@ -369,8 +408,7 @@ QImage FigureExporter::renderImage() const {
 
 QByteArray FigureExporter::renderSvg() const {
     const int L = layoutDpi();
-    const QSize logical(static_cast<int>(std::lround(settings_.width_in * L)),
-                        static_cast<int>(std::lround(settings_.height_in * L)));
+    const QSize logical = layoutSize(settings_);
     QBuffer buffer;
     buffer.open(QIODevice::WriteOnly);
     QSvgGenerator generator;
@@ -433,6 +471,17 @@ QByteArray FigureExporter::renderPdf() const {
     QByteArray pdf = buffer.data();
     stabilisePdf(pdf);
     return pdf;
+}
+
+void FigureExporter::paint(QPaintDevice* device) const {
+    const QSize logical = layoutSize(settings_);
+    QCustomPlot* plot = source_->figurePlot();
+    ExportState state(source_, plot, settings_, logical);
+    QCPPainter painter;
+    if (!painter.begin(device)) return;
+    painter.setMode(QCPPainter::pmVectorized);
+    paintFigure(painter, plot, logical, settings_, caption_);
+    painter.end();
 }
 
 QByteArray FigureExporter::render(FigureFormat format) const {

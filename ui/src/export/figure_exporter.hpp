@@ -14,6 +14,7 @@
 #include "moderato/project/project.hpp"
 
 class QCustomPlot;
+class QPaintDevice;
 
 namespace moderato::ui {
 
@@ -49,6 +50,11 @@ public:
 
     // Pixel size of the PNG: inches × DPI, rounded.
     static QSize pixelSize(const FigureSettings& settings);
+    // Figures are laid out in units of 1/layoutDpi() inch (the resolution
+    // fonts are measured at without a device); layoutSize() is the figure's
+    // size in those units, rounded.
+    static int layoutDpi();
+    static QSize layoutSize(const FigureSettings& settings);
 
     // The figure as an image of pixelSize() carrying the DPI in its metadata
     // (greyscale settings: an 8-bit grey image).
@@ -58,6 +64,9 @@ public:
     // PDF document of one page of the figure size.
     QByteArray renderPdf() const;
     QByteArray render(FigureFormat format) const;
+    // Draws the figure, as every format does, on `device` of layoutSize()
+    // at layoutDpi() (e.g. a device that checks what is drawn where).
+    void paint(QPaintDevice* device) const;
 
     // Writes the figure to `path` atomically (a temporary file beside it,
     // renamed over the target when complete). On failure returns false with a

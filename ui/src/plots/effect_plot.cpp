@@ -1,6 +1,7 @@
 #include "plots/effect_plot.hpp"
 
 #include <qcustomplot.h>
+#include <QFontMetricsF>
 #include <QResizeEvent>
 #include <QVBoxLayout>
 #include <algorithm>
@@ -47,6 +48,13 @@ QCPItemStraightLine* verticalLine(QCustomPlot* plot, double x, const QPen& pen) 
     return l;
 }
 
+// Width of a text item's box (text and padding), in the units it is laid out in.
+double boxWidth(const QCPItemText* t) {
+    const QRectF text =
+        QFontMetricsF(t->font()).boundingRect(QRectF(0, 0, 0, 0), Qt::TextDontClip | t->textAlignment(), t->text());
+    return text.width() + t->padding().left() + t->padding().right();
+}
+
 QFont smallFont(const QFont& base, double scale = 0.9) {
     QFont f = base;
     f.setPointSizeF(std::max(6.0, base.pointSizeF() * scale));
@@ -68,6 +76,7 @@ EffectPlot::EffectPlot(QWidget* parent) : QWidget(parent), plot_(new QCustomPlot
     connect(plot_, &QCustomPlot::mousePress, this, &EffectPlot::onPress);
     connect(plot_, &QCustomPlot::mouseMove, this, &EffectPlot::onMove);
     connect(plot_, &QCustomPlot::mouseRelease, this, &EffectPlot::onRelease);
+    connect(plot_, &QCustomPlot::afterLayout, this, &EffectPlot::placeLabels);
     setMinimumHeight(180);
 }
 
@@ -90,6 +99,16 @@ void EffectPlot::setGreyscale(bool on) {
     rebuild();
 }
 
+void EffectPlot::setExportLook(bool exporting, bool markSlider) {
+    exporting_ = exporting;
+    markSlider_ = markSlider;
+    setCurrent(current_, currentPoint_, false);
+}
+
+bool EffectPlot::sliderMarkShown() const { return handleLabel_ && handleLabel_->visible(); }
+
+QString EffectPlot::handleText() const { return handleLabel_ ? handleLabel_->text() : QString(); }
+
 void EffectPlot::resizeEvent(QResizeEvent* event) {
     QWidget::resizeEvent(event);
     if (hasData_ && fitLegend(plot_)) plot_->replot();
@@ -104,6 +123,8 @@ void EffectPlot::rebuild() {
     groupHighlight_ = nullptr;
     drawnBoundaries_.clear();
     boundaryNotes_.clear();
+    beyondNotes_.clear();
+    boundaryLabels_.clear();
     if (hasData_) {
         if (data_.groups) buildGroups();
         else buildContinuous();
@@ -181,6 +202,7 @@ void EffectPlot::shadeBeyond(double a, double b) {
     t->setColor(noteColour);
     t->setPadding(QMargins(2, 2, 2, 12));
     t->setSelectable(false);
+    beyondNotes_.push_back({t, a, b});
 }
 
 // The band and the effect curve, the legend, and the zero line.
@@ -239,6 +261,7 @@ void EffectPlot::drawBoundaries() {
         t->setBrush(QBrush(QColor(255, 255, 255, 220)));
         t->setPadding(QMargins(3, 1, 3, 1));
         t->setSelectable(false);
+        boundaryLabels_.push_back({t, b, h});
         drawnBoundaries_.push_back(b);
     }
 }
@@ -410,16 +433,20 @@ void EffectPlot::setCurrent(double m, const EffectPoint& at, bool replot) {
     current_ = m;
     currentPoint_ = at;
     if (!knob_ || !hasData_) return;
+    // An export shows the slider only when asked to, and then says what it is.
+    const bool shown = !exporting_ || markSlider_;
     if (data_.groups) {
         groupHighlight_->topLeft->setCoords(m - 0.45, 0.0);
         groupHighlight_->bottomRight->setCoords(m + 0.45, 1.0);
+        groupHighlight_->setVisible(shown);
     } else {
         handle_->start->setCoords(m, 0.0);
         handle_->end->setCoords(m, 1.0);
+        handle_->setVisible(shown);
     }
     // No estimate yet (recomputed when the drag ends): the handle moves alone.
     // Groups: the group's own marker and interval are the estimate; the frame marks the choice.
-    const bool known = std::isfinite(at.estimate) && !data_.groups;
+    const bool known = shown && std::isfinite(at.estimate) && !data_.groups;
     whisker_->setVisible(known && std::isfinite(at.ci_lower) && std::isfinite(at.ci_upper));
     knob_->setVisible(known);
     if (known) {
@@ -428,19 +455,58 @@ void EffectPlot::setCurrent(double m, const EffectPoint& at, bool replot) {
         knob_->position->setCoords(m, at.estimate);
     }
     const std::size_t k = static_cast<std::size_t>(std::max(0L, std::lround(m)));
-    handleLabel_->setText(data_.groups ? (k < data_.groupNames.size() ? data_.groupNames[k] : QString())
-                                       : numberText(m) + (at.beyond_data ? tr("  beyond the data") : QString()));
-    // Keep the label inside the plot near either edge.
+    QString value = data_.groups ? (k < data_.groupNames.size() ? data_.groupNames[k] : QString()) : numberText(m);
+    if (exporting_) value = QStringLiteral("%1 = %2").arg(data_.moderatorTitle, value);
+    if (!data_.groups && at.beyond_data) value += tr("  beyond the data");
+    handleLabel_->setText(value);
+    handleLabel_->setVisible(shown);
+    handleLabel_->position->setCoords(m, 0.0);
+    alignHandleLabel();
+    if (replot) movingLayer()->replot();
+}
+
+void EffectPlot::alignHandleLabel() {
+    if (!handleLabel_) return;
     const QRect r = plot_->axisRect()->rect();
-    const double px = plot_->xAxis->coordToPixel(m);
+    const double px = plot_->xAxis->coordToPixel(current_);
+    const double half = 0.5 * boxWidth(handleLabel_);
     Qt::Alignment h = Qt::AlignHCenter;
     if (r.width() > 0) {
-        if (px - r.left() < 70) h = Qt::AlignLeft;
-        else if (r.right() - px < 70) h = Qt::AlignRight;
+        if (px - r.left() < half + 2) h = Qt::AlignLeft;
+        else if (r.right() - px < half + 2) h = Qt::AlignRight;
     }
-    handleLabel_->position->setCoords(m, 0.0);
     handleLabel_->setPositionAlignment(Qt::AlignTop | h);
-    if (replot) movingLayer()->replot();
+}
+
+void EffectPlot::placeLabels() {
+    alignHandleLabel();
+    const QRect r = plot_->axisRect()->rect();
+    if (r.width() <= 0) return;
+    QCPAxis* x = plot_->xAxis;
+    // A note wider than its strip goes against the plot area's outer edge.
+    for (const BeyondNote& n : beyondNotes_) {
+        const double half = 0.5 * boxWidth(n.item), mid = 0.5 * (n.from + n.to), px = x->coordToPixel(mid);
+        Qt::Alignment h = Qt::AlignHCenter;
+        double at = mid;
+        if (px - half < r.left()) {
+            h = Qt::AlignLeft;
+            at = x->pixelToCoord(r.left());
+        } else if (px + half > r.right()) {
+            h = Qt::AlignRight;
+            at = x->pixelToCoord(r.right());
+        }
+        n.item->position->setCoords(at, 1.0);
+        n.item->setPositionAlignment(Qt::AlignBottom | h);
+    }
+    // A boundary label that would cross the edge goes to the inner side of its line.
+    for (const BoundaryLabel& b : boundaryLabels_) {
+        const double w = boxWidth(b.item), px = x->coordToPixel(b.value);
+        const double left = b.side == Qt::AlignLeft ? px : b.side == Qt::AlignRight ? px - w : px - 0.5 * w;
+        Qt::Alignment h = b.side;
+        if (left < r.left()) h = Qt::AlignLeft;
+        else if (left + w > r.right()) h = Qt::AlignRight;
+        b.item->setPositionAlignment(Qt::AlignTop | h);
+    }
 }
 
 double EffectPlot::valueAtPixel(double px) const { return plot_->xAxis->pixelToCoord(px); }

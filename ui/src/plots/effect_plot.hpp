@@ -80,6 +80,11 @@ public:
     FigurePlot figureKind() const override { return FigurePlot::Effect; }
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override;
+    void setExportLook(bool exporting, bool markSlider) override;
+    // The text of the slider's value box ("8.0"; exported: "wind = 8.0").
+    QString handleText() const;
+    // Whether the slider's mark (handle or group frame, value box) is drawn.
+    bool sliderMarkShown() const;
 
 Q_SIGNALS:
     void dragStarted();
@@ -102,6 +107,13 @@ private:
     void drawRug();
     void buildGroups();
     void buildMoving();
+    // Keeps the value box inside the plot area near either edge (after every
+    // layout, so an exported figure places it for its own size).
+    void alignHandleLabel();
+    // After every layout: the value box, the "beyond the data" notes and the
+    // boundary labels turn inwards where they would cross the plot area's
+    // edge (and be cut off there, or sit on the axis).
+    void placeLabels();
     double snap(double m) const;
     void onPress(QMouseEvent* e);
     void onMove(QMouseEvent* e);
@@ -114,8 +126,20 @@ private:
     double current_ = 0;
     EffectPoint currentPoint_;
     bool dragging_ = false;
+    bool exporting_ = false, markSlider_ = false;
     std::vector<double> drawnBoundaries_;
     QStringList boundaryNotes_;
+    struct BeyondNote {
+        QCPItemText* item;
+        double from, to;  // the strip, moderator values
+    };
+    struct BoundaryLabel {
+        QCPItemText* item;
+        double value;
+        Qt::Alignment side;  // as placed for its neighbours
+    };
+    std::vector<BeyondNote> beyondNotes_;
+    std::vector<BoundaryLabel> boundaryLabels_;
     // moving layer
     QCPItemLine* handle_ = nullptr;
     QCPItemLine* whisker_ = nullptr;

@@ -27,6 +27,15 @@ public:
     virtual QCustomPlot* figurePlot() = 0;
     // Restyle every series in grey (true) or the Estuary colours (false); replots.
     virtual void setGreyscale(bool on) = 0;
+    // While a figure is exported (`exporting`), what marks the moderator
+    // slider's value (a handle, its value box, the slider's line) is hidden
+    // unless `markSlider`; a mark that is shown names itself ("wind = 8.0").
+    // Not exporting: the live look again. Does not replot. Plots without a
+    // slider's mark ignore it.
+    virtual void setExportLook(bool exporting, bool markSlider) {
+        (void)exporting;
+        (void)markSlider;
+    }
 };
 
 }  // namespace moderato::ui

@@ -1,6 +1,7 @@
 #include "plots/lines_plot.hpp"
 
 #include <qcustomplot.h>
+#include <QFontMetricsF>
 #include <QResizeEvent>
 #include <QVBoxLayout>
 #include <algorithm>
@@ -26,6 +27,32 @@ LinesPlot::LinesPlot(QWidget* parent) : QWidget(parent), plot_(new QCustomPlot(t
     stylePlot(plot_, font());
     setUpProbePlot(plot_);
     setMinimumHeight(200);
+    connect(plot_, &QCustomPlot::afterLayout, this, &LinesPlot::placeCrossingNames);
+}
+
+// After every layout (an export's too): a pair's name that would cross the
+// plot area's edge goes to the inner side of its leader (left or right), or
+// to the other end of it (above or below).
+void LinesPlot::placeCrossingNames() {
+    const QRect r = plot_->axisRect()->rect();
+    if (r.width() <= 0) return;
+    for (const auto& [name, leader, preferAbove] : crossingNames_) {
+        const QFontMetricsF fm(name->font());
+        const QMargins pad = name->padding();
+        const double w = fm.horizontalAdvance(name->text()) + pad.left() + pad.right();
+        const double h = fm.height() + pad.top() + pad.bottom();
+        const QPointF at = leader->start->pixelPosition();
+        Qt::Alignment side = Qt::AlignHCenter;
+        if (at.x() - 0.5 * w < r.left()) side = Qt::AlignLeft;
+        else if (at.x() + 0.5 * w > r.right()) side = Qt::AlignRight;
+        // From the side it was placed on each time, so every layout of the
+        // same size places it alike (the workbench's export and the renderer's).
+        bool above = preferAbove;
+        if (above && at.y() - 14 - h < r.top()) above = false;
+        else if (!above && at.y() + 14 + h > r.bottom()) above = true;
+        leader->end->setCoords(0, above ? -14 : 14);
+        name->setPositionAlignment((above ? Qt::AlignBottom : Qt::AlignTop) | side);
+    }
 }
 
 QCPLayer* LinesPlot::movingLayer() const { return plot_->layer(kMovingLayer); }
@@ -55,6 +82,7 @@ void LinesPlot::resizeEvent(QResizeEvent* event) {
 
 void LinesPlot::drawPoints() {
     pointsMode_ = 0;
+    jittered_ = false;
     if (!data_.showPoints || !data_.points || data_.points->rows == 0) return;
     const LinesPoints& p = *data_.points;
     if (p.binned) {
@@ -64,8 +92,11 @@ void LinesPlot::drawPoints() {
     pointsMode_ = 1;
     // Fewer points, more opaque: about 0.57 at 200 rows, 0.18 at 2,000, 0.1 from 6,400.
     const double alpha = std::clamp(8.0 / std::sqrt(static_cast<double>(p.rows)), 0.1, 0.6);
+    jittered_ = data_.jitter && discreteFocal(p);
+    const double width = jittered_ ? jitterWidth(p) : 0.0;
     for (int g = 0; g < p.groups; ++g) {
-        const auto& xs = p.x[static_cast<std::size_t>(g)];
+        const auto& xs =
+            jittered_ ? jittered(p.x[static_cast<std::size_t>(g)], g, width) : p.x[static_cast<std::size_t>(g)];
         const auto& ys = p.y[static_cast<std::size_t>(g)];
         QCPGraph* graph = plot_->addGraph();
         graph->setLineStyle(QCPGraph::lsNone);
@@ -76,7 +107,13 @@ void LinesPlot::drawPoints() {
         graph->setAntialiasedScatters(p.rows <= 5000);
         graph->setSelectable(QCP::stNone);
         if (data_.pointsByGroup || g > 0) graph->removeFromLegend();
-        else graph->setName(tr("observed rows"));
+        else graph->setName(jittered_ ? tr("observed rows (spread sideways)") : tr("observed rows"));
+    }
+    // The points spread past the end values stay in view.
+    if (jittered_) {
+        const QCPRange r = plot_->xAxis->range();
+        plot_->xAxis->setRange(std::min(r.lower, p.xRange.first - 1.2 * width),
+                               std::max(r.upper, p.xRange.second + 1.2 * width));
     }
 }
 
@@ -128,6 +165,7 @@ void LinesPlot::rebuild() {
     plot_->clearPlottables();
     highlightLine_ = highlightBand_ = nullptr;
     crossoverMarkers_ = 0;
+    crossingNames_.clear();
     differStrips_.clear();
     pointsMode_ = 0;
     if (!hasData_) {
@@ -255,6 +293,7 @@ void LinesPlot::drawCrossings() {
             name->setColor(estuary::ink);
             name->setFont(font());
             name->setSelectable(false);
+            crossingNames_.push_back({name, leader, above});
         }
         QCPGraph* diamond = plot_->addGraph();
         diamond->setLineStyle(QCPGraph::lsNone);
@@ -310,14 +349,15 @@ void LinesPlot::drawHighlightLayer() {
     highlightLine_ = plot_->addGraph();
     highlightLine_->setSelectable(QCP::stNone);
     if (d.highlightName.isEmpty()) highlightLine_->removeFromLegend();
-    else highlightLine_->setName(d.highlightName);
+    highlightLine_->setName(d.highlightName);
     plot_->setCurrentLayer(QStringLiteral("main"));
     setHighlight(highlight_, highlightSeries_, false);
 }
 
-void LinesPlot::setHighlight(const std::vector<CurvePoint>& points, int series, bool replot) {
+void LinesPlot::setHighlight(const std::vector<CurvePoint>& points, int series, bool replot, const QString& mark) {
     highlight_ = points;
     highlightSeries_ = series;
+    if (!mark.isEmpty()) highlightMark_ = mark;
     if (!highlightLine_) return;
     QPen pen;
     if (series < 0) {
@@ -331,7 +371,39 @@ void LinesPlot::setHighlight(const std::vector<CurvePoint>& points, int series, 
     highlightLine_->setPen(pen);
     setBandData(highlightBand_, series < 0 ? points : std::vector<CurvePoint>{});
     setLineData(highlightLine_, points);
+    applySliderMark();
     if (replot) movingLayer()->replot();
+}
+
+void LinesPlot::setExportLook(bool exporting, bool markSlider) {
+    exporting_ = exporting;
+    markSlider_ = markSlider;
+    applySliderMark();
+    if (!exporting && hasData_) fitLegend(plot_);  // the legend entry may be back
+}
+
+bool LinesPlot::sliderLineShown() const { return highlightLine_ && highlightLine_->visible(); }
+
+QString LinesPlot::sliderLineLegendName() const {
+    return highlightLine_ && plot_->legend->hasItemWithPlottable(highlightLine_) ? highlightLine_->name() : QString();
+}
+
+void LinesPlot::applySliderMark() {
+    if (!highlightLine_) return;
+    const bool shown = !exporting_ || markSlider_;
+    highlightLine_->setVisible(shown);
+    highlightBand_->setVisible(shown);
+    // Live: "at the slider's value" (groups: no entry, the line is a group's
+    // own drawn bolder). A marked export names the value it shows.
+    QString name = data_.highlightName;
+    if (exporting_) {
+        const QString mark = highlightMark_.isEmpty() ? data_.highlightName : highlightMark_;
+        name = !shown ? QString() : highlightSeries_ >= 0 ? tr("%1 (marked)").arg(mark) : mark;
+    }
+    const bool listed = plot_->legend->hasItemWithPlottable(highlightLine_);
+    if (name.isEmpty() && listed) highlightLine_->removeFromLegend();
+    highlightLine_->setName(name);
+    if (!name.isEmpty() && !listed) highlightLine_->addToLegend();
 }
 
 }  // namespace moderato::ui

@@ -25,6 +25,8 @@
 class QCustomPlot;
 class QCPLayer;
 class QCPGraph;
+class QCPItemLine;
+class QCPItemText;
 
 namespace moderato::ui {
 
@@ -42,6 +44,9 @@ struct LinesPlotData {
     bool showPoints = false;
     std::shared_ptr<const LinesPoints> points;
     bool pointsByGroup = false;  // colour points by group
+    // Spread the points of a discrete focal predictor sideways (seeded, so
+    // every draw is the same; see discreteFocal()).
+    bool jitter = false;
     struct Crossing {
         double x = 0, y = 0;          // where the lines meet
         double lower = 0, upper = 0;  // its interval along the focal predictor
@@ -73,8 +78,10 @@ public:
     void setData(const LinesPlotData& data);
     void clear();
     // The slider's line (series < 0: ink; else that series' colour, drawn
-    // bolder); with `replot`, redraws the moving layer only.
-    void setHighlight(const std::vector<CurvePoint>& points, int series, bool replot = true);
+    // bolder); with `replot`, redraws the moving layer only. `mark`: where
+    // the slider stands ("wind = 8.0"), the line's legend entry in an export
+    // that marks the slider's value.
+    void setHighlight(const std::vector<CurvePoint>& points, int series, bool replot = true, const QString& mark = {});
     QCPLayer* movingLayer() const;
 
     int lineCount() const { return static_cast<int>(data_.lines.size()); }
@@ -91,6 +98,8 @@ public:
     static constexpr int kDifferStripHeight = 7;
     // How the data points are drawn: 0 none, 1 points, 2 binned counts.
     int pointsMode() const { return pointsMode_; }
+    // Whether the points drawn are jittered (asked for, and the focal predictor is discrete).
+    bool pointsJittered() const { return jittered_; }
     const LinesPlotData& data() const { return data_; }
     const std::vector<CurvePoint>& highlight() const { return highlight_; }
 
@@ -98,6 +107,10 @@ public:
     FigurePlot figureKind() const override { return FigurePlot::Lines; }
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override;
+    void setExportLook(bool exporting, bool markSlider) override;
+    // Whether the slider's line is drawn, and its legend entry (empty: none).
+    bool sliderLineShown() const;
+    QString sliderLineLegendName() const;
 
 protected:
     void resizeEvent(QResizeEvent* event) override;
@@ -112,6 +125,11 @@ private:
     void drawCrossings();
     void drawDifferStrips();
     void drawHighlightLayer();
+    // Shows or hides the slider's line and names it in the legend, as the
+    // export look asks (setExportLook).
+    void applySliderMark();
+    // Keeps the names of crossing pairs inside the plot area (after every layout).
+    void placeCrossingNames();
     void drawPoints();
     void drawPointMaps(const LinesPoints& p);
     QColor pointColour(int group) const;
@@ -123,10 +141,19 @@ private:
     int crossoverMarkers_ = 0;
     std::vector<std::pair<double, double>> differStrips_;
     int pointsMode_ = 0;
+    bool jittered_ = false;
     std::vector<CurvePoint> highlight_;
     int highlightSeries_ = -1;
+    QString highlightMark_;
+    bool exporting_ = false, markSlider_ = false;
     QCPGraph* highlightLine_ = nullptr;
     QCPGraph* highlightBand_ = nullptr;
+    struct CrossingName {
+        QCPItemText* name;
+        QCPItemLine* leader;
+        bool above;  // the side it is placed on when it fits
+    };
+    std::vector<CrossingName> crossingNames_;
 };
 
 }  // namespace moderato::ui

@@ -2,7 +2,9 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdint>
 #include <limits>
+#include <set>
 
 #include "plots/scatter_thinning.hpp"
 
@@ -68,6 +70,53 @@ LinesPoints makeLinesPoints(const std::vector<double>& x, const std::vector<doub
         const std::size_t g = group.empty() ? 0 : static_cast<std::size_t>(group[i]);
         out.x[g].push_back(x[i]);
         out.y[g].push_back(y[i]);
+    }
+    return out;
+}
+
+namespace {
+
+std::set<double> distinctFocal(const LinesPoints& p, std::size_t limit) {
+    std::set<double> values;
+    for (const auto& xs : p.x)
+        for (double v : xs) {
+            values.insert(v);
+            if (values.size() > limit) return values;
+        }
+    return values;
+}
+
+// SplitMix64 (Steele, Lea and Flood 2014): a well-mixed 64-bit hash.
+std::uint64_t splitMix(std::uint64_t z) {
+    z += 0x9E3779B97F4A7C15ull;
+    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ull;
+    z = (z ^ (z >> 27)) * 0x94D049BB133111EBull;
+    return z ^ (z >> 31);
+}
+
+}  // namespace
+
+bool discreteFocal(const LinesPoints& p, int maxValues) {
+    if (p.binned || p.rows == 0) return false;
+    const std::set<double> values = distinctFocal(p, static_cast<std::size_t>(maxValues));
+    if (values.size() > static_cast<std::size_t>(maxValues)) return false;
+    return std::all_of(values.begin(), values.end(), [](double v) { return v == std::round(v); });
+}
+
+double jitterWidth(const LinesPoints& p) {
+    const std::set<double> values = distinctFocal(p, std::numeric_limits<std::size_t>::max());
+    double gap = std::numeric_limits<double>::infinity();
+    for (auto it = values.begin(); it != values.end() && std::next(it) != values.end(); ++it)
+        gap = std::min(gap, *std::next(it) - *it);
+    return std::isfinite(gap) ? 0.15 * gap : 0.0;
+}
+
+std::vector<double> jittered(const std::vector<double>& x, int group, double width) {
+    std::vector<double> out(x.size());
+    const std::uint64_t seed = splitMix(0x4D6F646572ull + static_cast<std::uint64_t>(group));
+    for (std::size_t i = 0; i < x.size(); ++i) {
+        const double u = static_cast<double>(splitMix(seed + i) >> 11) * 0x1.0p-53;  // [0, 1)
+        out[i] = x[i] + width * (2 * u - 1);
     }
     return out;
 }

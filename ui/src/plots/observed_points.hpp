@@ -37,6 +37,18 @@ struct LinesPoints {
 LinesPoints makeLinesPoints(const std::vector<double>& x, const std::vector<double>& y, const std::vector<int>& group,
                             std::size_t maxPoints = 20000);
 
+// Whether the points' focal values are discrete: at most `maxValues`
+// distinct values, all whole numbers (a count, a rating, a 0/1 flag).
+// False when binned.
+bool discreteFocal(const LinesPoints& points, int maxValues = 12);
+// How far a point may be moved sideways when jittered: 0.15 of the smallest
+// gap between distinct focal values (0 with fewer than two values).
+double jitterWidth(const LinesPoints& points);
+// `x` moved sideways by up to ± `width`, each point by an offset fixed by
+// its group and position (a seeded hash, not a random device), so every
+// draw and every export of the same data is the same.
+std::vector<double> jittered(const std::vector<double>& x, int group, double width);
+
 struct SurfacePoints {
     std::size_t rows = 0;  // rows before thinning
     std::vector<double> x, z;

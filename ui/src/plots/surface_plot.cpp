@@ -12,8 +12,43 @@ namespace moderato::ui {
 
 namespace {
 
-// Cells beyond the data keep a trace of their colour over the "beyond" fill.
-constexpr unsigned char kBeyondAlpha = 60;
+// What lies beyond the data keeps a trace of its colour under the "beyond"
+// wash (about a quarter, as 60 of 255).
+constexpr double kWashAlpha = 1.0 - 60.0 / 255.0;
+
+// The wash over everything in the plot area outside the data's hull: one
+// filled path (the area, minus the hull polygon), so its edge follows the
+// hull smoothly at any size rather than the grid's cells.
+class BeyondMask : public QCPAbstractItem {
+public:
+    BeyondMask(QCustomPlot* plot, const DataRegion& hull, const QBrush& brush)
+        : QCPAbstractItem(plot), hull_(hull), brush_(brush) {
+        setSelectable(false);
+    }
+    double selectTest(const QPointF&, bool, QVariant*) const override { return -1; }
+    const QBrush& brush() const { return brush_; }
+
+protected:
+    void draw(QCPPainter* painter) override {
+        QCPAxis* x = parentPlot()->xAxis;
+        QCPAxis* z = parentPlot()->yAxis;
+        QPolygonF hull;
+        for (std::size_t i = 0; i < hull_.x.size(); ++i)
+            hull << QPointF(x->coordToPixel(hull_.x[i]), z->coordToPixel(hull_.z[i]));
+        QPainterPath path;
+        path.setFillRule(Qt::OddEvenFill);
+        path.addRect(QRectF(clipRect()));
+        path.addPolygon(hull);
+        path.closeSubpath();
+        painter->setPen(Qt::NoPen);
+        painter->setBrush(brush_);
+        painter->drawPath(path);
+    }
+
+private:
+    DataRegion hull_;
+    QBrush brush_;
+};
 
 void styleScaleAxis(QCPAxis* axis, const QFont& font) {
     QPen pen(estuary::ink);
@@ -144,6 +179,7 @@ void SurfacePlot::redraw() {
     plot_->clearPlottables();
     plot_->clearItems();
     map_ = nullptr;
+    mask_ = nullptr;
     beyondCells_ = 0;
     title_->setText(subtitle());
     scale_->setVisible(grid_.has_value());
@@ -158,6 +194,10 @@ void SurfacePlot::redraw() {
     setAxisTitle(plot_->xAxis, QString::fromStdString(g.x));
     setAxisTitle(plot_->yAxis, QString::fromStdString(g.z));
     const BeyondQuadrants q = drawMap(g);
+    // The wash beyond the data's hull, over the map and under the rows and edge.
+    mask_ = region_.x.size() >= 3
+                ? new BeyondMask(plot_, region_, QBrush(estuary::withAlpha(estuary::beyond, kWashAlpha)))
+                : nullptr;
     // The observed rows, light dots (thinned when dense).
     if (points_ && !points_->x.empty()) drawObservedRows();
     // Edge of the data.
@@ -207,7 +247,6 @@ SurfacePlot::BeyondQuadrants SurfacePlot::drawMap(const SurfaceGrid& g) {
             const double x = g.x_values[static_cast<std::size_t>(i)], z = g.z_values[static_cast<std::size_t>(k)];
             map_->data()->setCell(i, k, values_(k, i));
             if (haveRegion && !region_.contains(x, z)) {
-                map_->data()->setAlpha(i, k, kBeyondAlpha);
                 ++beyondCells_;
                 const int at = (2 * i >= nx ? 1 : 0) + (2 * k >= nz ? 2 : 0);
                 q.x[at] += x;

@@ -1,8 +1,9 @@
 // The Surface plot: predicted outcome over a grid of two continuous
 // predictors (focal across, moderator up) as a colour map with a labelled
 // colour scale on a sequential Estuary ramp; the edge of the observed data
-// (convex hull of the used rows) is outlined and grid cells beyond it are
-// washed out on the "beyond the data" fill. Logistic fits on the
+// (convex hull of the used rows) is outlined and everything beyond it is
+// washed over with the "beyond the data" fill (a path along the hull, so the
+// wash follows the data's outline smoothly). Logistic fits on the
 // probability scale show probabilities and say so.
 #pragma once
 
@@ -20,6 +21,7 @@ class QCPColorMap;
 class QCPColorScale;
 class QCPTextElement;
 class QCPColorGradient;
+class QCPAbstractItem;
 
 namespace moderato::ui {
 
@@ -43,8 +45,12 @@ public:
     QCPColorMap* colorMap() const { return map_; }
     QCPColorScale* colorScale() const { return scale_; }
     bool showsProbability() const { return probability_; }
-    // Grid cells drawn as beyond the data.
+    // Grid cells whose centre lies beyond the data.
     int beyondCellCount() const { return beyondCells_; }
+    // The hull of the observed (focal, moderator) pairs, as outlined.
+    const DataRegion& region() const { return region_; }
+    // The wash beyond the data's hull (nullptr: no hull, nothing washed).
+    QCPAbstractItem* beyondMask() const { return mask_; }
     QString subtitle() const;
 
     // The colour ramps (Estuary: near-white, series 1, ink; or greys).
@@ -74,6 +80,7 @@ private:
     QCPTextElement* title_ = nullptr;
     QCPColorScale* scale_ = nullptr;
     QCPColorMap* map_ = nullptr;
+    QCPAbstractItem* mask_ = nullptr;
     std::optional<SurfaceGrid> grid_;
     Eigen::MatrixXd values_;
     DataRegion region_;

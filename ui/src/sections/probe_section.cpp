@@ -135,7 +135,18 @@ QHBoxLayout* ProbeSection::createControls() {
     controls->addWidget(band_);
     points_->setObjectName(QStringLiteral("points-toggle"));
     points_->setToolTip(tr("Show the observed rows on the Lines plot (binned into counts above 20,000 rows)"));
-    controls->addWidget(points_);
+    // The spread toggle sits under "Data points", so the row keeps its width.
+    auto* pointsColumn = new QVBoxLayout;
+    pointsColumn->setSpacing(0);
+    pointsColumn->addWidget(points_);
+    controls->addLayout(pointsColumn);
+    jitter_ = new QCheckBox(tr("Spread sideways"), this);
+    jitter_->setObjectName(QStringLiteral("jitter-toggle"));
+    jitter_->setToolTip(
+        tr("The focal predictor takes a few whole values: move each data point a little sideways "
+           "(the same way on every draw) so points on one value do not hide one another"));
+    pointsColumn->addWidget(jitter_);
+    jitter_->setVisible(false);  // until a discrete focal predictor shows (syncJitterToggle)
     controls->addSpacing(8);
     controls->addWidget(scaleLabel_);
     scale_->setObjectName(QStringLiteral("scale-choice"));
@@ -264,6 +275,11 @@ void ProbeSection::connectSettings() {
         if (rebuilding_) return;
         editSettings([on](ProbeSettings& p) { p.show_points = on; },
                      on ? tr("Show data points") : tr("Hide data points"));
+    });
+    connect(jitter_, &QCheckBox::toggled, this, [this](bool on) {
+        if (rebuilding_) return;
+        editSettings([on](ProbeSettings& p) { p.jitter = on; },
+                     on ? tr("Spread data points sideways") : tr("Draw data points at their values"));
     });
     connect(scale_, &QComboBox::activated, this, [this](int i) {
         const auto s = static_cast<ProbeScale>(scale_->itemData(i).toInt());
@@ -439,6 +455,7 @@ void ProbeSection::rebuild() {
     extend_->setChecked(ps.extend_to_boundaries);
     extend_->setVisible(!engine_.groups());
     points_->setEnabled(!logistic || engine_.probability());
+    syncJitterToggle(ps);
     scaleLabel_->setVisible(logistic);
     scale_->setVisible(logistic);
     scale_->setCurrentIndex(engine_.probability() ? 1 : 0);
@@ -594,6 +611,14 @@ void ProbeSection::buildPlots() {
     lines_->setData(l);
 }
 
+// Jitter is offered for a discrete focal predictor only (observed_points.hpp).
+void ProbeSection::syncJitterToggle(const ProbeSettings& ps) {
+    const auto linesPoints = engine_.linesPoints();
+    jitter_->setVisible(linesPoints && discreteFocal(*linesPoints));
+    jitter_->setChecked(ps.jitter);
+    jitter_->setEnabled(points_->isEnabled() && ps.show_points);
+}
+
 void ProbeSection::buildEffectPlot(bool sim, const QString& level) {
     const bool groups = engine_.groups();
     // Effect plot.
@@ -668,6 +693,7 @@ LinesPlotData ProbeSection::linesPlotData() {
     l.showPoints = shown_.probe.show_points && (!engine_.logistic() || engine_.probability());
     if (l.showPoints) {
         l.points = engine_.linesPoints();
+        l.jitter = shown_.probe.jitter;
         l.pointsByGroup = groups;
     }
     return l;
@@ -962,9 +988,9 @@ void ProbeSection::moveTo(double m, bool live) {
     if (engine_.groups()) {
         const std::size_t k = static_cast<std::size_t>(std::lround(m));
         lines_->setHighlight(k < groupLines_.size() ? groupLines_[k] : std::vector<CurvePoint>{}, static_cast<int>(k),
-                             true);
+                             true, moderatorLabel(m));
     } else {
-        lines_->setHighlight(engine_.lineAt(m, engine_.probability() ? 61 : 21), -1, true);
+        lines_->setHighlight(engine_.lineAt(m, engine_.probability() ? 61 : 21), -1, true, moderatorLabel(m));
     }
     readout_->setPoint(moderatorLabel(m), point_, band, !compute);
     slider_->setValue(m);
@@ -1047,7 +1073,8 @@ void ProbeSection::onDocumentChanged(const QString& id) {
     // A change of the probe itself (pinned values, scale, ...) arrives as a new run.
     if (!same_probe(*a, shown_)) return;
     if (now.simultaneous_band != was.simultaneous_band || now.show_points != was.show_points ||
-        now.show_gaps != was.show_gaps || now.extend_to_boundaries != was.extend_to_boundaries) {
+        now.show_gaps != was.show_gaps || now.extend_to_boundaries != was.extend_to_boundaries ||
+        now.jitter != was.jitter) {
         rebuild();
         return;
     }

@@ -121,6 +121,7 @@ private:
     // group effects), the lines with their points, the crossings, and where
     // the lines differ.
     void buildPlots();
+    void syncJitterToggle(const ProbeSettings& ps);
     void buildEffectPlot(bool simultaneous, const QString& level);
     LinesPlotData linesPlotData();
     void addCrossings(LinesPlotData& l, const QString& level);
@@ -174,6 +175,7 @@ private:
     QLabel* message_;
     QComboBox* band_;
     QCheckBox* points_;
+    QCheckBox* jitter_ = nullptr;  // shown for a discrete focal predictor
     QLabel* scaleLabel_;
     QComboBox* scale_;
     QComboBox* averaging_;

@@ -585,13 +585,10 @@ void MainWindow::exportFigure() {
     const QString caption = a && run ? figureCaption(*a, *run) : QString();
     auto* dialog = new FigureExportDialog(figures, doc_, id, caption, this);
     dialog->setAttribute(Qt::WA_DeleteOnClose);
-    // Saving closes the dialog: say where the file went.
-    connect(dialog, &QDialog::accepted, this, [this, dialog] {
-        if (dialog->lastSavedPath().isEmpty()) return;
+    // Each save says where the file went (the dialog stays open).
+    connect(dialog, &FigureExportDialog::figureSaved, this, [this](const QString& path) {
         statusBar()->showMessage(
-            tr("Saved the figure to %1")
-                .arg(QDir::toNativeSeparators(QFileInfo(dialog->lastSavedPath()).absoluteFilePath())),
-            10000);
+            tr("Saved the figure to %1").arg(QDir::toNativeSeparators(QFileInfo(path).absoluteFilePath())), 10000);
     });
     dialog->open();
 }

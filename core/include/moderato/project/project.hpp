@@ -99,6 +99,10 @@ struct ProbeSettings {
     Averaging averaging = Averaging::Sample;                         // outcome scale: over the rows, or at values
     bool simultaneous_band = false;                                  // show the simultaneous band instead of pointwise
     bool show_points = true;                                         // data points on the Lines plot
+    // A discrete focal predictor (a few whole values): its data points are
+    // spread a little sideways so they do not hide one another (written to
+    // the file only when off).
+    bool jitter = true;
     bool show_gaps = true;  // shade where two groups' (or lines') predictions differ
     // Categorical moderator: how the pairwise differences' p-values are
     // adjusted (written to the file only when not Holm).
@@ -149,6 +153,10 @@ struct FigureSettings {
     double font_pt = 9;
     bool greyscale = false;
     bool caption = true;
+    // Exports show where the moderator slider stands (its handle or line,
+    // labelled "wind = 8.0"); off, they show no slider at all. Written to the
+    // file only when on, so projects keep their bytes.
+    bool mark_slider = false;
     bool operator==(const FigureSettings&) const = default;
 };
 
