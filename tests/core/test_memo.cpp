@@ -7,6 +7,7 @@
 #include <algorithm>
 #include <boost/math/distributions/students_t.hpp>
 #include <cmath>
+#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <functional>
@@ -21,6 +22,7 @@
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/reporting/memo.hpp"
+#include "moderato/reporting/probe_report.hpp"
 #include "moderato/support/report_text.hpp"
 
 namespace fs = std::filesystem;
@@ -412,6 +414,38 @@ TEST(MemoRender, SameInputsSameBytes) {
     const SampleRun again = run_sample("helpdesk-staffing");
     const std::string b = memo_to_html(build_memo(again.loaded.project, again.analysis, again.run, ctx));
     EXPECT_EQ(a, b);
+}
+
+// Issue 12: the critical value of the simultaneous band read 2.46 in one
+// place and 2.455 in another, and the probe's text report wrote intervals
+// with "%.4g" ("0.077 to 0.08845", "12 to 37.9"). One formatter: the memo
+// and the text report write the same strings, checked against printf here
+// ("%#.4g": four significant digits with trailing zeros, common practice).
+TEST(MemoRender, CriticalValueAndRangesReadTheSameInMemoAndProbeText) {
+    const SampleRun s = run_sample("orchard-nitrogen");
+    ASSERT_TRUE(s.run.probe && s.run.probe->simultaneous);
+    char buf[64];
+    std::snprintf(buf, sizeof buf, "%#.4g", s.run.probe->simultaneous->critical_value);
+    const std::string critical = buf;
+    EXPECT_EQ(critical, "2.455");  // docs/cli-output.md shows 2.4554858833784179 for this sample
+    const Memo memo = build_memo(s.loaded.project, s.analysis, s.run, MemoContext{});
+    std::string memo_text;
+    for (const auto& f : memo.findings) memo_text += f + "\n";
+    for (const auto& c : memo.cautions) memo_text += c + "\n";
+    const std::string report = probe_to_text(*s.run.probe, s.run.fit);
+    for (const std::string* text : {static_cast<const std::string*>(&memo_text), &report}) {
+        std::size_t seen = 0;
+        for (std::size_t at = text->find("critical value "); at != std::string::npos;
+             at = text->find("critical value ", at + 1), ++seen)
+            EXPECT_EQ(text->substr(at + 15, critical.size() + 1), critical + ")") << *text;
+        EXPECT_GE(seen, 1u) << *text;
+    }
+    // The observed moderator range: 12 (a whole number) to 37.9, both ends to two decimals in both texts.
+    const auto [lo, hi] = s.run.probe->observed_range;
+    ASSERT_EQ(lo, 12.0);
+    std::snprintf(buf, sizeof buf, "%.2f to %.2f", lo, hi);
+    EXPECT_NE(report.find(std::string("observed from ") + buf), std::string::npos) << report;
+    EXPECT_NE(memo_text.find(std::string("(") + buf + ")"), std::string::npos) << memo_text;
 }
 
 TEST(Base64, Rfc4648TestVectors) {
