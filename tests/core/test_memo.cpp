@@ -416,6 +416,60 @@ TEST(MemoRender, SameInputsSameBytes) {
     EXPECT_EQ(a, b);
 }
 
+// Each figure's caption sits with its own image, numbered, so it cannot read
+// as the heading of the next one (issue 12, seen in Chromium): one <figure>
+// holding the image and then its <figcaption> in a browser, the image's
+// paragraph and then its caption's paragraph for Qt's reader. Numbers keep
+// together: "< 0.001" in a sentence has a no-break space (U+00A0, &#160;),
+// and every table cell holding a number does not wrap.
+TEST(MemoRender, CaptionsFollowTheirOwnFigureAndNumbersStayWhole) {
+    const SampleRun s = run_sample("orchard-nitrogen");
+    MemoContext ctx;
+    std::vector<MemoFigure> figs(3);
+    const char* titles[] = {"Lines plot", "Effect plot", "Surface plot"};
+    for (std::size_t i = 0; i < figs.size(); ++i) {
+        figs[i].title = titles[i];
+        figs[i].file = "f" + std::to_string(i) + ".png";
+        figs[i].png = std::string("\x89PNG\r\n\x1a\n", 8);
+    }
+    const Memo memo = build_memo(s.loaded.project, s.analysis, s.run, ctx, figs);
+    for (bool embed : {true, false}) {
+        SCOPED_TRACE(embed ? "embedded" : "for Qt");
+        const std::string html = memo_to_html(memo, embed);
+        const std::regex figure(embed ? "<figure><img alt=\"([^\"]*)\"[^>]*><figcaption>Figure ([0-9]+)\\. "
+                                        "([^<]*)</figcaption></figure>"
+                                      : "<p class=\"figure\"><img alt=\"([^\"]*)\"[^>]*></p>\n"
+                                        "<p class=\"figcaption\">Figure ([0-9]+)\\. ([^<]*)</p>");
+        std::size_t n = 0;
+        for (auto it = std::sregex_iterator(html.begin(), html.end(), figure); it != std::sregex_iterator(); ++it) {
+            EXPECT_EQ((*it)[1].str(), titles[n]);
+            EXPECT_EQ((*it)[2].str(), std::to_string(n + 1));
+            EXPECT_EQ((*it)[3].str(), titles[n]);  // the caption names the image right above it
+            ++n;
+        }
+        EXPECT_EQ(n, figs.size()) << html.substr(html.find("Probe</h2>"), 600);
+    }
+    // The orchard's interaction has p < 0.001 (its memo says so): held together in sentences.
+    const std::string html = memo_to_html(memo);
+    const std::string findings = html.substr(html.find("<ul class=\"findings\">"));
+    EXPECT_NE(findings.find("&lt;&#160;0.001"), std::string::npos);
+    for (const std::string list : {"<ul class=\"findings\">", "<ul class=\"cautions\">"}) {
+        const std::string items = html.substr(html.find(list), html.find("</ul>", html.find(list)) - html.find(list));
+        EXPECT_EQ(items.find("&lt; 0"), std::string::npos) << items;
+    }
+    // Every table cell whose text is a number (a minus sign, "< 0.001", digits) does not wrap.
+    const std::regex cell("<td([^>]*)>([^<]*)</td>");
+    const std::regex number("^(\u2212|&lt; )?[0-9][0-9.,]*(, [0-9]+)?$");  // "1, 196": degrees of freedom
+    const std::string tables = html.substr(0, html.find("<h2>Reproducibility"));
+    std::size_t numbers = 0;
+    for (auto it = std::sregex_iterator(tables.begin(), tables.end(), cell); it != std::sregex_iterator(); ++it) {
+        if (!std::regex_match((*it)[2].str(), number)) continue;
+        ++numbers;
+        EXPECT_NE((*it)[1].str().find("white-space:nowrap"), std::string::npos) << (*it)[0].str();
+    }
+    EXPECT_GT(numbers, 20u);
+}
+
 // Issue 12: the critical value of the simultaneous band read 2.46 in one
 // place and 2.455 in another, and the probe's text report wrote intervals
 // with "%.4g" ("0.077 to 0.08845", "12 to 37.9"). One formatter: the memo

@@ -469,7 +469,9 @@ std::string table_to_latex(const ExportTable& t) {
 
 std::string table_to_html(const ExportTable& t) {
     check_shape(t);
-    static constexpr std::string_view kRight = " style=\"text-align:right\"";
+    // A number is never broken over two lines ("<" on one, "0.001" on the
+    // next; "−" apart from its digits): numeric cells do not wrap.
+    static constexpr std::string_view kRight = " style=\"text-align:right;white-space:nowrap\"";
     std::string out = "<table class=\"moderato-table\">\n";
     if (!t.title.empty()) out += "<caption>" + html_escape(t.title) + "</caption>\n";
     out += "<thead>\n<tr>";

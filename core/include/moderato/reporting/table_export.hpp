@@ -66,7 +66,8 @@ std::string table_to_latex(const ExportTable& t);
 
 // An HTML fragment (not a document): <table class="moderato-table"> with
 // <caption>, <thead> and <tbody>; numeric cells carry
-// style="text-align:right"; notes follow as <p class="table-note">. Every
+// style="text-align:right;white-space:nowrap" (a number or "< 0.001" never
+// breaks over two lines); notes follow as <p class="table-note">. Every
 // string goes through html_escape.
 std::string table_to_html(const ExportTable& t);
 
