@@ -34,9 +34,9 @@ const char* const kStyle =
     ".equation{font-family:'DejaVu Serif',Georgia,serif;font-size:1.05em;margin:0.6em 0 0.6em 1.5em}"
     "table.moderato-table{border-collapse:collapse;margin:0.8em 0;font-size:0.92em}"
     "table.moderato-table caption{text-align:left;font-weight:bold;padding-bottom:0.3em}"
-    "table.moderato-table th{border-top:1.5px solid #1F2A44;border-bottom:1px solid #1F2A44;padding:0.2em 0.6em;"
-    "text-align:left}"
-    "table.moderato-table td{padding:0.15em 0.6em}"
+    "table.moderato-table th{border-top:1.5px solid #1F2A44;border-bottom:1px solid #1F2A44;padding:0.2em 0.45em;"
+    "text-align:left;vertical-align:bottom}"
+    "table.moderato-table td{padding:0.15em 0.45em}"
     "table.moderato-table tbody tr:last-child td{border-bottom:1.5px solid #1F2A44}"
     ".table-note{font-size:0.85em;color:#4A4E69;margin-top:0}"
     // A caption sits right under its own image and a wide gap follows it, so it
