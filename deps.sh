@@ -9,7 +9,7 @@ build_pkgs=(build-essential cmake ninja-build pkg-config libeigen3-dev libboost-
             libssl-dev qt6-base-dev qt6-svg-dev libqcustomplot-dev fonts-dejavu-core)
 test_pkgs=(googletest libgtest-dev libgmock-dev libbenchmark-dev python3 python3-statsmodels python3-pandas
            python3-numpy python3-scipy python3-mpmath cmark-gfm xvfb xauth xdotool imagemagick fonts-dejavu-core time
-           desktop-file-utils appstream shared-mime-info poppler-utils file clang-format git
+           desktop-file-utils appstream shared-mime-info poppler-utils chromium file clang-format git
            clang-15 libfuzzer-15-dev)
 
 want=("${build_pkgs[@]}")

@@ -7,6 +7,7 @@
 #include <algorithm>
 #include <boost/math/distributions/students_t.hpp>
 #include <cmath>
+#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <functional>
@@ -21,6 +22,7 @@
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/reporting/memo.hpp"
+#include "moderato/reporting/probe_report.hpp"
 #include "moderato/support/report_text.hpp"
 
 namespace fs = std::filesystem;
@@ -418,6 +420,92 @@ TEST(MemoRender, SameInputsSameBytes) {
     const SampleRun again = run_sample("helpdesk-staffing");
     const std::string b = memo_to_html(build_memo(again.loaded.project, again.analysis, again.run, ctx));
     EXPECT_EQ(a, b);
+}
+
+// Each figure's caption sits with its own image, numbered, so it cannot read
+// as the heading of the next one (issue 12, seen in Chromium): one <figure>
+// holding the image and then its <figcaption> in a browser, the image's
+// paragraph and then its caption's paragraph for Qt's reader. Numbers keep
+// together: "< 0.001" in a sentence has a no-break space (U+00A0, &#160;),
+// and every table cell holding a number does not wrap.
+TEST(MemoRender, CaptionsFollowTheirOwnFigureAndNumbersStayWhole) {
+    const SampleRun s = run_sample("orchard-nitrogen");
+    MemoContext ctx;
+    std::vector<MemoFigure> figs(3);
+    const char* titles[] = {"Lines plot", "Effect plot", "Surface plot"};
+    for (std::size_t i = 0; i < figs.size(); ++i) {
+        figs[i].title = titles[i];
+        figs[i].file = "f" + std::to_string(i) + ".png";
+        figs[i].png = std::string("\x89PNG\r\n\x1a\n", 8);
+    }
+    const Memo memo = build_memo(s.loaded.project, s.analysis, s.run, ctx, figs);
+    for (bool embed : {true, false}) {
+        SCOPED_TRACE(embed ? "embedded" : "for Qt");
+        const std::string html = memo_to_html(memo, embed);
+        const std::regex figure(embed ? "<figure><img alt=\"([^\"]*)\"[^>]*><figcaption>Figure ([0-9]+)\\. "
+                                        "([^<]*)</figcaption></figure>"
+                                      : "<p class=\"figure\"><img alt=\"([^\"]*)\"[^>]*></p>\n"
+                                        "<p class=\"figcaption\">Figure ([0-9]+)\\. ([^<]*)</p>");
+        std::size_t n = 0;
+        for (auto it = std::sregex_iterator(html.begin(), html.end(), figure); it != std::sregex_iterator(); ++it) {
+            EXPECT_EQ((*it)[1].str(), titles[n]);
+            EXPECT_EQ((*it)[2].str(), std::to_string(n + 1));
+            EXPECT_EQ((*it)[3].str(), titles[n]);  // the caption names the image right above it
+            ++n;
+        }
+        EXPECT_EQ(n, figs.size()) << html.substr(html.find("Probe</h2>"), 600);
+    }
+    // The orchard's interaction has p < 0.001 (its memo says so): held together in sentences.
+    const std::string html = memo_to_html(memo);
+    const std::string findings = html.substr(html.find("<ul class=\"findings\">"));
+    EXPECT_NE(findings.find("&lt;&#160;0.001"), std::string::npos);
+    for (const std::string list : {"<ul class=\"findings\">", "<ul class=\"cautions\">"}) {
+        const std::string items = html.substr(html.find(list), html.find("</ul>", html.find(list)) - html.find(list));
+        EXPECT_EQ(items.find("&lt; 0"), std::string::npos) << items;
+    }
+    // Every table cell whose text is a number (a minus sign, "< 0.001", digits) does not wrap.
+    const std::regex cell("<td([^>]*)>([^<]*)</td>");
+    const std::regex number("^(\u2212|&lt; )?[0-9][0-9.,]*(, [0-9]+)?$");  // "1, 196": degrees of freedom
+    const std::string tables = html.substr(0, html.find("<h2>Reproducibility"));
+    std::size_t numbers = 0;
+    for (auto it = std::sregex_iterator(tables.begin(), tables.end(), cell); it != std::sregex_iterator(); ++it) {
+        if (!std::regex_match((*it)[2].str(), number)) continue;
+        ++numbers;
+        EXPECT_NE((*it)[1].str().find("white-space:nowrap"), std::string::npos) << (*it)[0].str();
+    }
+    EXPECT_GT(numbers, 20u);
+}
+
+// Issue 12: the critical value of the simultaneous band read 2.46 in one
+// place and 2.455 in another, and the probe's text report wrote intervals
+// with "%.4g" ("0.077 to 0.08845", "12 to 37.9"). One formatter: the memo
+// and the text report write the same strings, checked against printf here
+// ("%#.4g": four significant digits with trailing zeros, common practice).
+TEST(MemoRender, CriticalValueAndRangesReadTheSameInMemoAndProbeText) {
+    const SampleRun s = run_sample("orchard-nitrogen");
+    ASSERT_TRUE(s.run.probe && s.run.probe->simultaneous);
+    char buf[64];
+    std::snprintf(buf, sizeof buf, "%#.4g", s.run.probe->simultaneous->critical_value);
+    const std::string critical = buf;
+    EXPECT_EQ(critical, "2.455");  // docs/cli-output.md shows 2.4554858833784179 for this sample
+    const Memo memo = build_memo(s.loaded.project, s.analysis, s.run, MemoContext{});
+    std::string memo_text;
+    for (const auto& f : memo.findings) memo_text += f + "\n";
+    for (const auto& c : memo.cautions) memo_text += c + "\n";
+    const std::string report = probe_to_text(*s.run.probe, s.run.fit);
+    for (const std::string* text : {static_cast<const std::string*>(&memo_text), &report}) {
+        std::size_t seen = 0;
+        for (std::size_t at = text->find("critical value "); at != std::string::npos;
+             at = text->find("critical value ", at + 1), ++seen)
+            EXPECT_EQ(text->substr(at + 15, critical.size() + 1), critical + ")") << *text;
+        EXPECT_GE(seen, 1u) << *text;
+    }
+    // The observed moderator range: 12 (a whole number) to 37.9, both ends to two decimals in both texts.
+    const auto [lo, hi] = s.run.probe->observed_range;
+    ASSERT_EQ(lo, 12.0);
+    std::snprintf(buf, sizeof buf, "%.2f to %.2f", lo, hi);
+    EXPECT_NE(report.find(std::string("observed from ") + buf), std::string::npos) << report;
+    EXPECT_NE(memo_text.find(std::string("(") + buf + ")"), std::string::npos) << memo_text;
 }
 
 TEST(Base64, Rfc4648TestVectors) {

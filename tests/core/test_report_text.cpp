@@ -8,6 +8,8 @@
 #include <cmath>
 #include <cstdlib>
 #include <string>
+#include <utility>
+#include <vector>
 
 #include "moderato/support/report_text.hpp"
 
@@ -84,7 +86,7 @@ TEST(ReportText, NotANumberAndInfinities) {
     EXPECT_EQ(format_range(-INFINITY, 2.5), kMinus + kInfinity + " to 2.500");
 }
 
-TEST(ReportText, IntervalEndsReadAsTheyDoAlone) {
+TEST(ReportText, IntervalEndsReadAsTheyDoAloneWithTheirTrailingZeros) {
     // The helpdesk-staffing memo once wrote "Fieller interval 9.93 to 11.29" and one line down "below 9.928":
     // each end of an interval is written by itself (worked by hand: 9.92814 -> 9.928, 11.2867 -> 11.29).
     EXPECT_EQ(format_range(9.92814, 11.2867), "9.928 to 11.29");
@@ -92,6 +94,23 @@ TEST(ReportText, IntervalEndsReadAsTheyDoAlone) {
     EXPECT_EQ(format_range(14.73, 17.3), "14.73 to 17.30");
     EXPECT_EQ(format_range(0, 30), "0 to 30");
     EXPECT_EQ(format_range(-11.0801, -5.58), kMinus + "11.08 to " + kMinus + "5.580");
+    // Issue 12: "0.077 to 0.08845" (the probe text report's own "%.4g") and "12 to 37.90" (a whole-number
+    // end) dropped trailing zeros at one end. Common practice: both ends with the same decimals where the
+    // digits allow it; a whole end takes the other end's decimals, up to four significant digits.
+    EXPECT_EQ(format_range(0.077, 0.08845), "0.07700 to 0.08845");
+    EXPECT_EQ(format_range(12, 37.9), "12.00 to 37.90");
+    EXPECT_EQ(format_range(-37.9, -12), kMinus + "37.90 to " + kMinus + "12.00");
+    EXPECT_EQ(format_range(0, 0.5), "0.0000 to 0.5000");
+    EXPECT_EQ(format_range(0.5, 1), "0.5000 to 1.000");  // 1 to four significant digits, no more
+    EXPECT_EQ(format_range(0.5, 12000), "0.5000 to 12000");
+    EXPECT_EQ(format_range(2e-5, 3), format_sig(2e-5) + " to 3");  // a power of ten gives no decimals to copy
+    // Ends of one order of magnitude, or one of them whole: the same count of decimals.
+    for (const auto& [lo, hi] : std::vector<std::pair<double, double>>{
+             {0.077, 0.08845}, {3.25, 7.5}, {-0.0625, -0.05}, {12, 37.9}, {101.5, 250}}) {
+        const std::string r = format_range(lo, hi);
+        const std::string a = r.substr(0, r.find(" to ")), b = r.substr(r.find(" to ") + 4);
+        EXPECT_EQ(a.size() - a.find('.'), b.size() - b.find('.')) << r;
+    }
 }
 
 TEST(ReportText, PValuesToThreeDecimalsOrBelow0001) {

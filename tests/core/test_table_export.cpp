@@ -64,6 +64,8 @@ class Reader(HTMLParser):
         super().__init__(convert_charrefs=True)
         self.stack, self.errors, self.items, self.current = [], [], [], None
     def handle_starttag(self, tag, attrs):
+        if tag in ("wbr", "br"):  # void elements: no end tag
+            return
         self.stack.append(tag)
         if tag == "script":
             self.errors.append("a script element")
@@ -588,13 +590,16 @@ TEST(TableToHtml, ScriptInAColumnNameIsText) {
     EXPECT_FALSE(contains(html, "<script")) << html;
 }
 
-// Our layout: table class, caption, thead/tbody, right-aligned numeric cells.
+// Our layout: table class, caption, thead/tbody, right-aligned numeric
+// columns whose cells do not wrap (a browser would otherwise break "< 0.001"
+// or "−0.5" over two lines in a narrow column; checked in Chromium by
+// tests/browser/memo_layout.py), a break opportunity after a product's "×".
 TEST(TableToHtml, Layout) {
     ExportTable t;
     t.title = "Slopes";
     t.columns = {"Group", "Slope"};
     t.numeric = {false, true};
-    t.rows = {{{"A", ""}, {"\u22120.5", "-0.5"}}};
+    t.rows = {{{"A", ""}, {"\u22120.5", "-0.5"}}, {{"dose\u00D7moisture", ""}, {"< 0.001", "0.0004"}}};
     t.notes = {"Note."};
     EXPECT_EQ(table_to_html(t),
               "<table class=\"moderato-table\">\n"
@@ -603,7 +608,9 @@ TEST(TableToHtml, Layout) {
               "<tr><th scope=\"col\">Group</th><th scope=\"col\" style=\"text-align:right\">Slope</th></tr>\n"
               "</thead>\n"
               "<tbody>\n"
-              "<tr><td>A</td><td style=\"text-align:right\">\u22120.5</td></tr>\n"
+              "<tr><td>A</td><td style=\"text-align:right;white-space:nowrap\">\u22120.5</td></tr>\n"
+              "<tr><td>dose\u00D7<wbr>moisture</td><td style=\"text-align:right;white-space:nowrap\">&lt; "
+              "0.001</td></tr>\n"
               "</tbody>\n"
               "</table>\n"
               "<p class=\"table-note\">Note.</p>\n");
@@ -616,17 +623,19 @@ TEST(TableToHtml, WellFormedInPythonHtmlParser) {
     TempDir dir("table-export");
     ExportTable t = awkward_table();
     t.columns[3] = "<script>alert(1)</script>";
+    t.rows[1][0].text = "dose\u00D7moisture";  // a <wbr> after the "×": no text of its own
     const fs::path file = dir.write("t.html", table_to_html(t));
     const json got = run_html_reader(dir, "cat " + shell_quote(file));
     EXPECT_EQ(got["errors"], json::array());
 
     std::vector<std::array<std::string, 3>> expected;
     expected.push_back({"caption", t.title, ""});
-    const std::string right = "text-align:right";
+    const std::string right = "text-align:right", number = "text-align:right;white-space:nowrap";
     for (std::size_t c = 0; c < t.columns.size(); ++c)
         expected.push_back({"th", t.columns[c], t.numeric[c] ? right : ""});
     for (const auto& row : t.rows)
-        for (std::size_t c = 0; c < row.size(); ++c) expected.push_back({"td", row[c].text, t.numeric[c] ? right : ""});
+        for (std::size_t c = 0; c < row.size(); ++c)
+            expected.push_back({"td", row[c].text, t.numeric[c] ? number : ""});
     for (const std::string& note : t.notes) expected.push_back({"p", note, ""});
     const auto& items = got["items"];
     ASSERT_EQ(items.size(), expected.size()) << got.dump(1);

@@ -1,5 +1,6 @@
 // Commands a user reaches for: Undo with the focus in a value box, File ›
-// New Analysis, Duplicate showing the copy, Help › User Guide. Driven with
+// New Analysis (and its tool bar button), Duplicate showing the copy, Help ›
+// User Guide, where Save As starts. Driven with
 // key presses and menu actions as a user would trigger them; what they
 // change is read back from the project ("common practice" for editors:
 // Ctrl+Z undoes the last change wherever the focus is).
@@ -7,19 +8,28 @@
 
 #include <QAction>
 #include <QApplication>
+#include <QDir>
 #include <QDoubleSpinBox>
+#include <QFile>
+#include <QFileDialog>
+#include <QFileInfo>
 #include <QImage>
+#include <QLineEdit>
 #include <QMenu>
 #include <QMenuBar>
 #include <QTest>
 #include <QTextBrowser>
 #include <QTextDocument>
 #include <QTimer>
+#include <QToolBar>
+#include <QToolButton>
 #include <QUndoStack>
 #include <cmath>
+#include <functional>
 
 #include "probe/moderator_slider.hpp"
 #include "sample_window.hpp"
+#include "sections/memo_section.hpp"
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
@@ -39,6 +49,29 @@ QAction* menuAction(MainWindow& w, const QString& menuTitle, const QString& text
                 if (a->text().remove(QLatin1Char('&')) == text) return a;
     ADD_FAILURE() << "no " << text.toStdString() << " in " << menuTitle.toStdString();
     return nullptr;
+}
+
+// Runs `open` (which opens a save dialog), reads where the dialog starts
+// (its folder, the name in its file name box) and cancels it.
+struct DialogStart {
+    QString folder, name;
+    bool asked = false;
+};
+DialogStart saveDialogStart(const std::function<void()>& open) {
+    DialogStart start;
+    QTimer answer;
+    QObject::connect(&answer, &QTimer::timeout, [&] {
+        auto* dialog = qobject_cast<QFileDialog*>(QApplication::activeModalWidget());
+        auto* name = dialog ? dialog->findChild<QLineEdit*>(QStringLiteral("fileNameEdit")) : nullptr;
+        if (!name) return;
+        answer.stop();
+        start = {QFileInfo(dialog->directory().absolutePath()).canonicalFilePath(), name->text(), true};
+        QTimer::singleShot(0, dialog, &QDialog::reject);
+    });
+    answer.start(20);
+    QTimer::singleShot(5000, &answer, [&] { answer.stop(); });  // no dialog: the test fails, it does not hang
+    open();
+    return start;
 }
 
 }  // namespace
@@ -135,4 +168,58 @@ TEST(Commands, UserGuideShowsTheShippedGuideWithItsPictures) {
     EXPECT_GT(image.width(), 400);
     action->trigger();  // a second time: the same window, raised
     EXPECT_EQ(win.w.findChildren<UserGuide*>().size(), 1);
+}
+
+// Issue 12: "New analysis" was reachable only from a menu; the tool bar has
+// it as a button (the File menu's own action, so one command, one shortcut).
+TEST(Commands, NewAnalysisHasAToolBarButton) {
+    test::SampleWindow win(test::sampleProject(QStringLiteral("coffee-discount")));
+    auto* bar = win.w.findChild<QToolBar*>(QStringLiteral("main-toolbar"));
+    ASSERT_TRUE(bar);
+    EXPECT_TRUE(bar->isVisible());
+    QAction* action = menuAction(win.w, QStringLiteral("File"), QStringLiteral("New Analysis"));
+    ASSERT_TRUE(action);
+    auto* button = qobject_cast<QToolButton*>(bar->widgetForAction(action));
+    ASSERT_TRUE(button) << "no tool bar button for File › New Analysis";
+    EXPECT_TRUE(button->isVisible());
+    EXPECT_EQ(button->text().remove(QLatin1Char('&')), QStringLiteral("New Analysis"));
+    const std::size_t before = win.w.document()->project().analyses.size();
+    QTest::mouseClick(button, Qt::LeftButton);
+    ASSERT_EQ(win.w.document()->project().analyses.size(), before + 1);
+    EXPECT_EQ(win.w.analysisPage()->analysisId().toStdString(), win.w.document()->project().analyses.back().id);
+}
+
+// Issue 12: the project's save dialog started in the home folder with no
+// name. Common practice for editors: a saved document's dialog starts at its
+// file; a new one beside the file it came from, named after it.
+TEST(Commands, SaveAsStartsBesideTheProjectOrTheDataFileWithASuggestedName) {
+    test::SampleWindow win;
+    // A data file imported into a new project: beside the data file, named after it.
+    ASSERT_TRUE(QDir(win.dir.path()).mkpath(QStringLiteral("trips")));
+    const QString data = win.dir.filePath(QStringLiteral("trips/ferry-trips.csv"));
+    ASSERT_TRUE(QFile::copy(test::samplesDir() + QStringLiteral("/coffee-discount/spend.csv"), data));
+    ASSERT_TRUE(test::importData(win.w, data)) << win.w.lastMessage().toStdString();
+    QAction* saveAs = menuAction(win.w, QStringLiteral("File"), QStringLiteral("Save As…"));
+    ASSERT_TRUE(saveAs);
+    DialogStart start = saveDialogStart([&] { saveAs->trigger(); });
+    ASSERT_TRUE(start.asked) << "Save As opened no dialog";
+    const QString trips = QFileInfo(win.dir.filePath(QStringLiteral("trips"))).canonicalFilePath();
+    EXPECT_EQ(start.folder, trips);
+    EXPECT_EQ(start.name, QStringLiteral("ferry-trips.moderato"));
+    EXPECT_TRUE(win.w.document()->filePath().isEmpty()) << "cancelled: nothing saved";
+    // The memo of the new project's analysis: beside the data file too.
+    win.id = win.w.analysisPage()->analysisId();
+    ASSERT_TRUE(win.waitForRun());
+    start = saveDialogStart([&] { win.w.analysisPage()->memo()->saveWithDialog(MemoSection::SaveHtml); });
+    ASSERT_TRUE(start.asked) << "Save memo opened no dialog";
+    EXPECT_EQ(start.folder, trips);
+    EXPECT_TRUE(start.name.endsWith(QStringLiteral(".html"))) << start.name.toStdString();
+
+    // A project opened from its file: at that file.
+    const QString project = win.copy(QStringLiteral("orchard-nitrogen"));
+    ASSERT_TRUE(win.open(project));
+    start = saveDialogStart([&] { saveAs->trigger(); });
+    ASSERT_TRUE(start.asked);
+    EXPECT_EQ(start.folder, QFileInfo(win.dir.path()).canonicalFilePath());
+    EXPECT_EQ(start.name, QStringLiteral("orchard-nitrogen.moderato"));
 }

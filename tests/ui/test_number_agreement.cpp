@@ -18,9 +18,11 @@
 #include "model/analysis_runner.hpp"
 #include "moderato/reading/csv.hpp"
 #include "moderato/reporting/memo.hpp"
+#include "plots/cells_view.hpp"
 #include "plots/effect_plot.hpp"
 #include "probe/pinned_table.hpp"
 #include "probe_window.hpp"
+#include "sample_window.hpp"
 #include "sections/probe_section.hpp"
 #include "shell/analysis_page.hpp"
 #include "shell/main_window.hpp"
@@ -221,4 +223,30 @@ TEST(NumberAgreement, AxisTicksAndTheDatasetGridFollowTheSameRules) {
     EXPECT_EQ(shown(0), QStringLiteral("−2.5"));
     EXPECT_EQ(shown(1), QStringLiteral("0.30000000000000004"));
     EXPECT_EQ(shown(2), QStringLiteral("41"));
+}
+
+// Issue 12: the cell table and the dataset grid wrote "-" where the rest
+// writes "−". The Cells table of the volunteer sample (negative simple
+// effects: onboarding online lowers hours) as the user copies it: every
+// negative number with U+2212, never a hyphen, and each one the core value
+// at four significant digits (printf "%#.4g", test::fourDigits).
+TEST(NumberAgreement, TheCellTableWritesTheMinusSign) {
+    test::SampleWindow win(test::sampleProject(QStringLiteral("volunteer-onboarding")));
+    const auto run = win.run();
+    ASSERT_TRUE(run && run->cells.has_value());
+    CellsView view;
+    view.setRun(win.analysis(), *run);
+    const QString text = view.tableText();
+    const auto hyphen = QRegularExpression(QStringLiteral("(^|[\\t (])-[0-9]")).match(text);
+    EXPECT_FALSE(hyphen.hasMatch()) << "a hyphen for minus: " << hyphen.captured(0).toStdString();
+    int negatives = 0;
+    for (const auto* effects : {&run->cells->row_effects, &run->cells->column_effects})
+        for (const SimpleEffect& s : *effects) {
+            if (!(s.estimate < 0)) continue;
+            ++negatives;
+            EXPECT_TRUE(text.contains(test::fourDigits(s.estimate)))
+                << test::fourDigits(s.estimate).toStdString() << " not in\n"
+                << text.toStdString();
+        }
+    EXPECT_GE(negatives, 1) << "the volunteer sample's simple effects include negative ones";
 }

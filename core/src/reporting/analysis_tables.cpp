@@ -113,7 +113,7 @@ ExportTable comparison_table(const Analysis& a, const AnalysisRun& run) {
     for (const auto& d : c.dropped_terms) dropped += (dropped.empty() ? "" : ", ") + d;
     t.title = "With and without the interaction (" + dropped + ")";
     t.columns = {"Test", "Statistic", "df", "p"};
-    t.numeric = {false, true, false, true};
+    t.numeric = {false, true, true, true};  // df "1, 196": numbers too, kept on one line
     if (f.family == Family::Linear) {
         t.rows.push_back({text("R² without the interaction"), num(c.r_squared_reduced), text(""), text("")});
         t.rows.push_back({text("R² with the interaction"), num(f.r_squared), text(""), text("")});

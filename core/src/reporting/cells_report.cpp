@@ -123,14 +123,14 @@ std::string cell_table_to_text(const CellTable& t) {
                   t.column_factor.c_str(), "rows", "predicted", "interval", "SE");
     o << line;
     for (const auto& c : t.cells) {
-        const std::string ci = num(c.ci_lower) + " to " + num(c.ci_upper);
+        const std::string ci = format_range(c.ci_lower, c.ci_upper);
         std::snprintf(line, sizeof line, "  %-18s %-18s %6zu %11s %23s %11s\n", c.row_level.c_str(),
                       c.column_level.c_str(), c.n, num(c.estimate).c_str(), ci.c_str(), num(c.std_error).c_str());
         o << line;
     }
     // value, interval, SE, p: the order of every estimate table of ours.
     const auto contrast = [&](const std::string& label, const Inference& e) {
-        o << "  " << label << ": " << num(e.estimate) << " (interval " << num(e.ci_lower) << " to " << num(e.ci_upper)
+        o << "  " << label << ": " << num(e.estimate) << " (interval " << format_range(e.ci_lower, e.ci_upper)
           << ", SE " << num(e.std_error) << ", p " << format_p(e.p_value) << ")\n";
     };
     o << "\nSimple effects:\n";

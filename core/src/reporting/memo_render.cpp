@@ -34,12 +34,15 @@ const char* const kStyle =
     ".equation{font-family:'DejaVu Serif',Georgia,serif;font-size:1.05em;margin:0.6em 0 0.6em 1.5em}"
     "table.moderato-table{border-collapse:collapse;margin:0.8em 0;font-size:0.92em}"
     "table.moderato-table caption{text-align:left;font-weight:bold;padding-bottom:0.3em}"
-    "table.moderato-table th{border-top:1.5px solid #1F2A44;border-bottom:1px solid #1F2A44;padding:0.2em 0.6em;"
-    "text-align:left}"
-    "table.moderato-table td{padding:0.15em 0.6em}"
+    "table.moderato-table th{border-top:1.5px solid #1F2A44;border-bottom:1px solid #1F2A44;padding:0.2em 0.45em;"
+    "text-align:left;vertical-align:bottom}"
+    "table.moderato-table td{padding:0.15em 0.45em}"
     "table.moderato-table tbody tr:last-child td{border-bottom:1.5px solid #1F2A44}"
     ".table-note{font-size:0.85em;color:#4A4E69;margin-top:0}"
-    "figure{margin:1em 0}figure img{max-width:100%;height:auto}figcaption{font-size:0.9em;color:#4A4E69}"
+    // A caption sits right under its own image and a wide gap follows it, so it
+    // never reads as the heading of the next figure.
+    "figure{margin:1.2em 0 2.6em;break-inside:avoid}figure img{display:block;max-width:100%;height:auto}"
+    "figcaption{font-size:0.9em;color:#4A4E69;margin-top:0.35em;padding-top:0.3em;border-top:1px solid #E6E6E1}"
     ".cautions li{margin-bottom:0.3em}"
     ".footer{font-size:0.8em;color:#4A4E69}.footer td{padding:0.05em 0.8em 0.05em 0;vertical-align:top;"
     "word-break:break-all}"
@@ -52,7 +55,8 @@ const char* const kQtStyle =
     ".subtitle{color:#4A4E69}.equation{font-family:'DejaVu Serif';margin-left:20px}"
     "table{font-size:9pt}th{text-align:left;padding:2px 5px}td{padding:1px 5px}"
     "caption{font-weight:bold;text-align:left}"
-    ".table-note{font-size:8pt;color:#4A4E69}.figcaption{font-size:9pt;color:#4A4E69}"
+    ".table-note{font-size:8pt;color:#4A4E69}p.figure{margin-bottom:0}"
+    "p.figcaption{font-size:9pt;color:#4A4E69;margin-top:2px;margin-bottom:22px}"
     ".footer{font-size:7pt;color:#4A4E69}";
 
 // Markdown paragraph text: escaped, line breaks as hard breaks.
@@ -66,6 +70,33 @@ std::string md_paragraph(const std::string& text) {
         out += markdown_escape(line);
         first = false;
     }
+    return out;
+}
+
+// A figure with its numbered caption right under it ("Figure 1. Lines plot"):
+// one <figure> in a browser; for Qt's reader, which knows no <figure>, the
+// image and the caption as two paragraphs spaced the same way.
+std::string figure_html(const MemoFigure& f, std::size_t number, bool embed) {
+    char width[32];
+    std::snprintf(width, sizeof width, "%.3gin", f.width_in);
+    const std::string src = embed ? "data:image/png;base64," + base64_encode(f.png) : f.file;
+    const std::string size = embed
+                                 ? std::string(" style=\"width:") + width + "\""
+                                 : " width=\"" + std::to_string(static_cast<int>(f.width_in * 96 + 0.5)) +
+                                       "\" height=\"" + std::to_string(static_cast<int>(f.height_in * 96 + 0.5)) + "\"";
+    const std::string img = "<img alt=\"" + html_escape(f.title) + "\"" + size + " src=\"" + src + "\">";
+    const std::string caption = "Figure " + std::to_string(number) + ". " + html_escape(f.title);
+    if (embed) return "<figure>" + img + "<figcaption>" + caption + "</figcaption></figure>\n";
+    return "<p class=\"figure\">" + img + "</p>\n<p class=\"figcaption\">" + caption + "</p>\n";
+}
+
+// Sentence text for HTML: escaped, and "< 0.001" held on one line (a
+// no-break space), as in the tables.
+std::string sentence_html(const std::string& text) {
+    std::string out = html_escape(text);
+    const std::string loose = "&lt; 0.", tight = "&lt;&#160;0.";
+    for (std::size_t at = out.find(loose); at != std::string::npos; at = out.find(loose, at + tight.size()))
+        out.replace(at, loose.size(), tight);
     return out;
 }
 
@@ -119,7 +150,7 @@ std::string memo_to_html(const Memo& m, bool embed_figures) {
         }
     }
     h += "<h2>Findings</h2>\n<ul class=\"findings\">\n";
-    for (const auto& s : m.findings) h += "<li>" + html_escape(s) + "</li>\n";
+    for (const auto& s : m.findings) h += "<li>" + sentence_html(s) + "</li>\n";
     h += "</ul>\n";
     h += "<h2>Model</h2>\n<p class=\"equation\">" + m.equation_html + "</p>\n";
     h += "<p>Fitted: " + html_escape(m.fitted_text) + "</p>\n";
@@ -129,24 +160,12 @@ std::string memo_to_html(const Memo& m, bool embed_figures) {
     // On paper the figures start a page (Qt's printer cannot keep a heading with what follows).
     if (!m.figures.empty() || m.tables.size() > 3)
         h += embed_figures ? "<h2>Probe</h2>\n" : "<h2 style=\"page-break-before:always\">Probe</h2>\n";
-    for (const auto& f : m.figures) {
-        char width[32];
-        std::snprintf(width, sizeof width, "%.3gin", f.width_in);
-        const std::string src = embed_figures ? "data:image/png;base64," + base64_encode(f.png) : f.file;
-        const std::string size = embed_figures ? std::string(" style=\"width:") + width + "\""
-                                               : " width=\"" + std::to_string(static_cast<int>(f.width_in * 96 + 0.5)) +
-                                                     "\" height=\"" +
-                                                     std::to_string(static_cast<int>(f.height_in * 96 + 0.5)) + "\"";
-        const std::string img = "<img alt=\"" + html_escape(f.title) + "\"" + size + " src=\"" + src + "\">";
-        if (embed_figures) h += "<figure>" + img + "<figcaption>" + html_escape(f.title) + "</figcaption></figure>\n";
-        else  // Qt's reader knows no <figure>: a paragraph each
-            h += "<p>" + img + "</p>\n<p class=\"figcaption\">" + html_escape(f.title) + "</p>\n";
-    }
+    for (std::size_t i = 0; i < m.figures.size(); ++i) h += figure_html(m.figures[i], i + 1, embed_figures);
     for (const auto& t : m.tables)
         if (t.key != "estimates" && t.key != "fit-statistics" && t.key != "model-comparison")
             h += table_to_html(t.table) + "\n";
     h += "<h2>Cautions</h2>\n<ul class=\"cautions\">\n";
-    for (const auto& c : m.cautions) h += "<li>" + html_escape(c) + "</li>\n";
+    for (const auto& c : m.cautions) h += "<li>" + sentence_html(c) + "</li>\n";
     h += "</ul>\n";
     h += "<h2>Reproducibility</h2>\n<table class=\"footer\">\n";
     for (const auto& [k, v] : m.footer)

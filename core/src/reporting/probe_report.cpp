@@ -152,12 +152,14 @@ void write_comparisons(JsonWriter& w, const ProbeResult& r) {
 
 // ------------------------------------------------------------------ text
 
-std::string num(double v) {
-    if (std::isnan(v)) return "—";
-    if (std::isinf(v)) return v > 0 ? "∞" : "−∞";
-    char buf[40];
-    std::snprintf(buf, sizeof buf, "%.4g", v);
-    return buf;
+// The one number formatter (support/report_text): four significant digits
+// with trailing zeros, U+2212 minus, "—" for NaN, ∞.
+std::string num(double v) { return format_sig(v); }
+
+// `s` right-aligned in `w` columns (U+2212 and "—" are one column each), after a space.
+std::string column(const std::string& s, std::size_t w) {
+    const std::size_t have = detail::display_width(s);
+    return " " + (have >= w ? s : std::string(w - have, ' ') + s);
 }
 
 std::string level_text(double level) {
@@ -175,7 +177,7 @@ std::string regions_text(const std::vector<Region>& regions) {
         if (std::isinf(r.lo) && std::isinf(r.hi)) out += "everywhere";
         else if (std::isinf(r.lo)) out += "below " + num(r.hi);
         else if (std::isinf(r.hi)) out += "above " + num(r.lo);
-        else out += "from " + num(r.lo) + " to " + num(r.hi);
+        else out += "from " + format_range(r.lo, r.hi);
     }
     return out;
 }
@@ -187,7 +189,7 @@ void write_heading(std::ostringstream& o, const ProbeResult& r, const FitResult&
     o << "Standard errors: " << standard_errors_text(fit.se) << " · " << level_text(r.level) << " intervals · "
       << (std::isinf(r.df) ? std::string("z") : "t with " + exact_text(r.df) + " df") << " · n = " << fit.n << "\n";
     if (!r.categorical_moderator)
-        o << r.moderator << " observed from " << num(r.observed_range.first) << " to " << num(r.observed_range.second)
+        o << r.moderator << " observed from " << format_range(r.observed_range.first, r.observed_range.second)
           << " (mean " << num(r.moderator_mean) << ", SD " << num(r.moderator_sd) << ")\n";
     o << "\n";
 }
@@ -204,10 +206,10 @@ void write_effects_table(std::ostringstream& o, const ProbeResult& r) {
     bool beyond = false;
     for (const auto& e : r.effects) {
         const std::string at = e.level.empty() ? num(e.moderator_value) + (e.beyond_data ? " *" : "") : e.level;
-        std::snprintf(line, sizeof line, "%-*s %11s %11s %11s %11s %8.2f %10s\n", w, at.c_str(),
-                      num(e.estimate).c_str(), num(e.ci_lower).c_str(), num(e.ci_upper).c_str(),
-                      num(e.std_error).c_str(), e.statistic, format_p(e.p_value).c_str());
-        o << line;
+        const std::size_t width = static_cast<std::size_t>(w);
+        o << at << std::string(width - std::min(width, detail::display_width(at)), ' ') << column(num(e.estimate), 11)
+          << column(num(e.ci_lower), 11) << column(num(e.ci_upper), 11) << column(num(e.std_error), 11)
+          << column(num(e.statistic), 8) << column(format_p(e.p_value), 10) << "\n";
         beyond |= e.beyond_data;
     }
     if (beyond) o << "  * beyond the data (extrapolation)\n";
@@ -242,7 +244,7 @@ void write_crossings_text(std::ostringstream& o, const ProbeResult& r) {
         else if (c.ci_kind == FiellerInterval::WholeLine) o << "the whole line";
         else o << "outside (" << num(c.ci_lower) << ", " << num(c.ci_upper) << ")";
         o << " — " << (c.within_observed_range ? "inside" : "outside") << " the observed " << r.focal << " range ("
-          << num(r.focal_range.first) << " to " << num(r.focal_range.second) << "): " << to_string(c.form) << "\n";
+          << format_range(r.focal_range.first, r.focal_range.second) << "): " << to_string(c.form) << "\n";
         o << "  the groups differ for " << r.focal << " " << regions_text(c.gap_regions.significant) << "\n";
     }
 }
@@ -264,12 +266,10 @@ void write_comparisons_text(std::ostringstream& o, const ProbeResult& r, const F
     o << line;
     for (const auto& c : r.slope_contrasts) {
         const std::string pair = c.second + " − " + c.first;
-        std::snprintf(line, sizeof line, "%-*s %11s %11s %11s %11s %8.2f %10s %10s\n",
-                      28 + static_cast<int>(pair.size() - detail::display_width(pair)), pair.c_str(),
-                      num(c.estimate).c_str(), num(c.ci_lower).c_str(), num(c.ci_upper).c_str(),
-                      num(c.std_error).c_str(), c.statistic, format_p(c.p_value).c_str(),
-                      format_p(c.p_adjusted).c_str());
-        o << line;
+        o << pair << std::string(28 - std::min<std::size_t>(28, detail::display_width(pair)), ' ')
+          << column(num(c.estimate), 11) << column(num(c.ci_lower), 11) << column(num(c.ci_upper), 11)
+          << column(num(c.std_error), 11) << column(num(c.statistic), 8) << column(format_p(c.p_value), 10)
+          << column(format_p(c.p_adjusted), 10) << "\n";
     }
     o << "  p-values " << adjustment_text(r.adjustment) << " over " << r.slope_contrasts.size() << " pairs\n";
 }
@@ -278,7 +278,7 @@ void write_closing_text(std::ostringstream& o, const ProbeResult& r) {
     if (r.interaction_effect) {
         const auto& ie = *r.interaction_effect;
         o << "\nInteraction on the probability scale (" << to_string(ie.kind) << ", Ai & Norton): " << num(ie.estimate)
-          << " (interval " << num(ie.ci_lower) << " to " << num(ie.ci_upper) << ", SE " << num(ie.std_error) << ", p "
+          << " (interval " << format_range(ie.ci_lower, ie.ci_upper) << ", SE " << num(ie.std_error) << ", p "
           << format_p(ie.p_value) << ")\n";
     }
     if (!r.notes.empty()) {

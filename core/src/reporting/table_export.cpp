@@ -80,6 +80,23 @@ void check_shape(const ExportTable& t) {
                              ", but there are " + std::to_string(columns) + " columns");
 }
 
+// Escaped HTML text with a line-break opportunity (<wbr>) after each "×"
+// (U+00D7), where a product term such as "dose×moisture" may wrap.
+std::string break_after_times(const std::string& escaped) {
+    static const std::string times = "\xC3\x97";
+    std::string out;
+    for (std::size_t at = 0; at < escaped.size();) {
+        const std::size_t next = escaped.find(times, at);
+        if (next == std::string::npos) {
+            out.append(escaped, at, std::string::npos);
+            break;
+        }
+        out.append(escaped, at, next + times.size() - at).append("<wbr>");
+        at = next + times.size();
+    }
+    return out;
+}
+
 bool is_numeric(const ExportTable& t, std::size_t column) { return !t.numeric.empty() && t.numeric[column]; }
 
 // ------------------------------------------------------------------ CSV
@@ -469,7 +486,12 @@ std::string table_to_latex(const ExportTable& t) {
 
 std::string table_to_html(const ExportTable& t) {
     check_shape(t);
+    // A number is never broken over two lines ("<" on one, "0.001" on the
+    // next; "−" apart from its digits): numeric cells do not wrap. Headers
+    // may ("95% CI" over "high"), and a product term may break after its
+    // "×" (<wbr>), so the table still fits a narrow page.
     static constexpr std::string_view kRight = " style=\"text-align:right\"";
+    static constexpr std::string_view kNumber = " style=\"text-align:right;white-space:nowrap\"";
     std::string out = "<table class=\"moderato-table\">\n";
     if (!t.title.empty()) out += "<caption>" + html_escape(t.title) + "</caption>\n";
     out += "<thead>\n<tr>";
@@ -483,8 +505,9 @@ std::string table_to_html(const ExportTable& t) {
         out += "<tr>";
         for (std::size_t c = 0; c < row.size(); ++c) {
             out += "<td";
-            if (is_numeric(t, c)) out += kRight;
-            out += '>' + html_escape(row[c].text) + "</td>";
+            if (is_numeric(t, c)) out += kNumber;
+            out += '>' + (is_numeric(t, c) ? html_escape(row[c].text) : break_after_times(html_escape(row[c].text))) +
+                   "</td>";
         }
         out += "</tr>\n";
     }

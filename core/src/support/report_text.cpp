@@ -1,5 +1,6 @@
 #include "moderato/support/report_text.hpp"
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <cstdio>
@@ -91,7 +92,21 @@ std::string format_sig(double x) {
     return format_fixed(x, sig_decimals(x));
 }
 
-std::string format_range(double lo, double hi) { return format_sig(lo) + " to " + format_sig(hi); }
+std::string format_range(double lo, double hi) {
+    std::string ends[2] = {format_sig(lo), format_sig(hi)};
+    const double x[2] = {lo, hi};
+    const auto whole = [](double v) { return std::isfinite(v) && v == std::trunc(v) && !needs_power(v); };
+    const auto fractional = [](double v) { return std::isfinite(v) && v != std::trunc(v) && !needs_power(v); };
+    // A whole-number end beside a fractional one is written as a measured
+    // value, with trailing zeros to the other end's decimals ("12.00 to 37.90",
+    // not "12 to 37.90"); four significant digits at most (zero: all of them).
+    for (int k = 0; k < 2; ++k)
+        if (whole(x[k]) && fractional(x[1 - k])) {
+            const int other = sig_decimals(x[1 - k]);
+            ends[k] = format_fixed(x[k], x[k] == 0 ? other : std::min(other, sig_decimals(x[k])));
+        }
+    return ends[0] + " to " + ends[1];
+}
 
 std::string format_p_value(double p) {
     if (std::isnan(p)) return kDash;

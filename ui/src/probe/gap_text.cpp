@@ -20,7 +20,7 @@ struct Piece {
 QString phrase(const Piece& p, const QString& focal) {
     if (p.fromStart && !p.toEnd) return tr("%1 below %2").arg(focal, numberText(p.b));
     if (!p.fromStart && p.toEnd) return tr("%1 above %2").arg(focal, numberText(p.a));
-    return tr("%1 from %2 to %3").arg(focal, numberText(p.a), numberText(p.b));
+    return tr("%1 from %2").arg(focal, rangeText(p.a, p.b));
 }
 
 // "x below 3 and above 7": the focal predictor's name only once.
@@ -62,7 +62,7 @@ GapStatement describeGap(const SignificanceRegions& regions, const QString& subj
     }
     if (cursor < hi) apart.push_back({cursor, hi, atStart, true});
 
-    const QString observed = tr("%1 to %2").arg(numberText(lo), numberText(hi));
+    const QString observed = rangeText(lo, hi);
     const QString pointwise = tr("%1 pointwise").arg(level);
     if (differ.empty()) {
         out.text = tr("%1 cannot be told apart (%2) anywhere in the observed range of %3 (%4).")

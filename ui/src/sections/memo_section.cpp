@@ -334,7 +334,9 @@ bool MemoSection::saveTables(const QString& folder, TableFormat format, QStringL
 void MemoSection::saveWithDialog(int kind) {
     const Analysis* a = doc_->analysis(id_);
     const QString base = QString::fromStdString(file_slug(a ? a->name : std::string("memo")));
-    const QString startDir = doc_->filePath().isEmpty() ? QDir::homePath() : QFileInfo(doc_->filePath()).absolutePath();
+    // Beside the project file; not saved yet, beside the analysis's data file.
+    const QString beside = !doc_->filePath().isEmpty() ? doc_->filePath() : a ? doc_->dataPath(a->dataset) : QString();
+    const QString startDir = beside.isEmpty() ? QDir::homePath() : QFileInfo(beside).absolutePath();
     QString error, path;
     bool ok = false;
     switch (kind) {

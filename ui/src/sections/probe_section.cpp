@@ -785,9 +785,9 @@ void ProbeSection::fillTable() {
         for (const auto& e : p.effects) beyond |= e.beyond_data;
         if (beyond) {
             const auto [lo, hi] = engine_.observedRange();
-            caption += (caption.isEmpty() ? QString() : QStringLiteral(" ")) +
-                       tr("Shaded rows in italics lie beyond the data (%1 observed from %2 to %3).")
-                           .arg(mod, numberText(lo), numberText(hi));
+            caption +=
+                (caption.isEmpty() ? QString() : QStringLiteral(" ")) +
+                tr("Shaded rows in italics lie beyond the data (%1 observed from %2).").arg(mod, rangeText(lo, hi));
         }
         pinned_->setCaption(caption);
     }
@@ -840,9 +840,9 @@ void ProbeSection::summarizeInteraction(SummaryText& out) {
         out.section(tr("Interaction on the probability scale"));
         QString kind = QString::fromLatin1(to_string(ie.kind));
         if (!kind.isEmpty()) kind[0] = kind[0].toUpper();
-        out.line(tr("%1 of P(%2 = 1): %3 (SE %4, %5 CI %6 to %7, p %8)")
+        out.line(tr("%1 of P(%2 = 1): %3 (SE %4, %5 CI %6, p %7)")
                      .arg(kind, q(engine_.outcome()), numberText(ie.estimate), numberText(ie.std_error), level,
-                          numberText(ie.ci_lower), numberText(ie.ci_upper), pValueText(ie.p_value)));
+                          rangeText(ie.ci_lower, ie.ci_upper), pValueText(ie.p_value)));
         out.line(tr("How the effect of %1 on P(%2 = 1) changes with %3, %4 (Ai & Norton). The product coefficient "
                     "on the log-odds scale%5 is not this: it does not give the size, or even the sign, of the "
                     "interaction on the probability scale.")
@@ -879,10 +879,9 @@ void ProbeSection::summarizeComparisons(SummaryText& out) {
     out.section(tr("Differences between groups in the effect of %1 (p %2)")
                     .arg(focal, QString::fromLatin1(adjustment_text(p.adjustment))));
     for (const SlopeContrast& c : p.slope_contrasts)
-        out.line(tr("%1 − %2: %3 (SE %4, %5 CI %6 to %7), %8, adjusted %9")
+        out.line(tr("%1 − %2: %3 (SE %4, %5 CI %6), %7, adjusted %8")
                      .arg(q(c.second), q(c.first), numberText(c.estimate), numberText(c.std_error), levelText(p.level),
-                          numberText(c.ci_lower), numberText(c.ci_upper), pClauseText(c.p_value),
-                          pClauseText(c.p_adjusted)));
+                          rangeText(c.ci_lower, c.ci_upper), pClauseText(c.p_value), pClauseText(c.p_adjusted)));
     out.line(tr("%1 pairs compared; each difference is the second group's effect minus the first's.")
                  .arg(p.slope_contrasts.size()));
     out.end();
@@ -922,8 +921,7 @@ void ProbeSection::summarizeCrossovers(SummaryText& out) {
         if (!std::isfinite(c.focal_value)) continue;
         any = true;
         QString interval;
-        if (c.ci_kind == FiellerInterval::Bounded)
-            interval = tr("interval %1 to %2").arg(numberText(c.ci_lower), numberText(c.ci_upper));
+        if (c.ci_kind == FiellerInterval::Bounded) interval = tr("interval %1").arg(rangeText(c.ci_lower, c.ci_upper));
         else if (c.ci_kind == FiellerInterval::Unbounded)
             interval =
                 tr("interval unbounded: below %1 and above %2").arg(numberText(c.ci_lower), numberText(c.ci_upper));
@@ -931,9 +929,8 @@ void ProbeSection::summarizeCrossovers(SummaryText& out) {
         const auto [flo, fhi] = engine_.focalRange();
         out.line(tr("%1: the lines cross at %2 = %3 (%4), %5.")
                      .arg(q(c.groups), q(engine_.focal()), numberText(c.focal_value), interval,
-                          c.within_observed_range
-                              ? tr("inside the data")
-                              : tr("beyond the data (observed %1 to %2)").arg(numberText(flo), numberText(fhi))));
+                          c.within_observed_range ? tr("inside the data")
+                                                  : tr("beyond the data (observed %1)").arg(rangeText(flo, fhi))));
     }
     if (!any) out.line(tr("The lines are parallel: they do not cross."));
     out.end();

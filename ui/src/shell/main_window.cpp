@@ -21,6 +21,7 @@
 #include <QStatusBar>
 #include <QTableView>
 #include <QTimer>
+#include <QToolBar>
 #include <optional>
 
 #include "common/background_job.hpp"
@@ -135,6 +136,7 @@ MainWindow::MainWindow(QWidget* parent)
     splitter->setSizes({200, 1000});
     setCentralWidget(splitter);
     buildMenus();
+    buildToolBar();
     new UndoKeys(this);
     connect(sidebar_, &ProjectSidebar::analysisActivated, this, &MainWindow::showAnalysis);
     connect(sidebar_, &ProjectSidebar::datasetActivated, this, &MainWindow::showDataset);
@@ -216,8 +218,8 @@ void MainWindow::buildMenus() {
     });
     recentMenu_ = file->addMenu(tr("Open &Recent"));
     rebuildRecentMenu();
-    file->addAction(tr("New &Analysis"), QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_N), this,
-                    [this] { newAnalysis(); });
+    newAnalysisAction_ = file->addAction(tr("New &Analysis"), QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_N), this,
+                                         [this] { newAnalysis(); });
     file->addAction(tr("&Import Data…"), QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_I), this, [this] {
         const QString path = QFileDialog::getOpenFileName(this, tr("Import data"), QString(),
                                                           tr("Delimited text (*.csv *.tsv *.txt);;All files (*)"));
@@ -227,8 +229,8 @@ void MainWindow::buildMenus() {
     file->addAction(tr("&Save"), QKeySequence::Save, this, [this] { save(); });
     file->addAction(tr("Save &As…"), this,
                     [this] {
-                        const QString path = QFileDialog::getSaveFileName(this, tr("Save project"), doc_->filePath(),
-                                                                          tr("Moderato projects (*.moderato)"));
+                        const QString path = QFileDialog::getSaveFileName(
+                            this, tr("Save project"), suggestedProjectPath(), tr("Moderato projects (*.moderato)"));
                         if (!path.isEmpty()) saveAs(isProjectPath(path) ? path : path + QStringLiteral(".moderato"));
                     })
         ->setShortcuts(withFallback(QKeySequence::SaveAs, {QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_S)}));
@@ -273,6 +275,27 @@ void MainWindow::buildMenus() {
                                .arg(QStringLiteral(MODERATO_VERSION)));
         box->setIconPixmap(windowIcon().pixmap(64, 64));
     });
+}
+
+void MainWindow::buildToolBar() {
+    QToolBar* bar = addToolBar(tr("Commands"));
+    bar->setObjectName(QStringLiteral("main-toolbar"));  // for saveState()/restoreState()
+    bar->setMovable(false);
+    bar->setToolButtonStyle(Qt::ToolButtonTextOnly);
+    newAnalysisAction_->setToolTip(tr("New analysis of the dataset on show (%1)")
+                                       .arg(newAnalysisAction_->shortcut().toString(QKeySequence::NativeText)));
+    bar->addAction(newAnalysisAction_);
+}
+
+QString MainWindow::suggestedProjectPath() const {
+    if (!doc_->filePath().isEmpty()) return doc_->filePath();
+    // Not saved yet: beside the (first) data file, named after it.
+    for (const DataSource& d : doc_->project().datasets) {
+        const QFileInfo data(doc_->dataPath(d.id));
+        if (data.fileName().isEmpty()) continue;
+        return QDir(data.absolutePath()).filePath(data.completeBaseName() + QStringLiteral(".moderato"));
+    }
+    return QDir::home().filePath(tr("untitled") + QStringLiteral(".moderato"));
 }
 
 void MainWindow::report(const QString& title, const QString& text, bool warning) {
@@ -445,7 +468,7 @@ bool MainWindow::save() {
     // Recovered edits whose project file changed meanwhile: ask where (the chooser confirms overwriting).
     if (doc_->filePath().isEmpty() || doc_->confirmSaveTarget()) {
         if (!interactive_) return false;
-        const QString path = QFileDialog::getSaveFileName(this, tr("Save project"), doc_->filePath(),
+        const QString path = QFileDialog::getSaveFileName(this, tr("Save project"), suggestedProjectPath(),
                                                           tr("Moderato projects (*.moderato)"));
         if (path.isEmpty()) return false;
         return saveAs(isProjectPath(path) ? path : path + QStringLiteral(".moderato"));

@@ -18,6 +18,7 @@
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
 
+class QAction;
 class QStackedWidget;
 class QMenu;
 class QMessageBox;
@@ -107,6 +108,12 @@ protected:
 
 private:
     void buildMenus();
+    // The tool bar: File › New Analysis as a button (the menu's own action).
+    void buildToolBar();
+    // Where Save and Save As propose to save: the project file; unsaved, a
+    // project named after the first data file, beside it; with no data, the
+    // home folder.
+    QString suggestedProjectPath() const;
     // A message box opened over the window (never run in a loop of its own); deletes itself.
     QMessageBox* showMessageBox(int icon, const QString& title, const QString& text);
     // Runs `work` in a BackgroundJob with progress (and a progress dialog
@@ -145,6 +152,7 @@ private:
     RecoveryStore* recovery_;
     DataLocator locator_;
     QMenu* recentMenu_ = nullptr;
+    QAction* newAnalysisAction_ = nullptr;
     bool interactive_ = true;
     QString lastMessage_;
     BackgroundJob* load_ = nullptr;  // the load in progress

@@ -65,9 +65,11 @@ std::string table_to_markdown(const ExportTable& t);
 std::string table_to_latex(const ExportTable& t);
 
 // An HTML fragment (not a document): <table class="moderato-table"> with
-// <caption>, <thead> and <tbody>; numeric cells carry
-// style="text-align:right"; notes follow as <p class="table-note">. Every
-// string goes through html_escape.
+// <caption>, <thead> and <tbody>; numeric columns are right-aligned
+// (style="text-align:right"), their body cells also white-space:nowrap (a
+// number or "< 0.001" never breaks over two lines); other cells get a <wbr>
+// after each "×" (a product term may wrap there); notes follow as
+// <p class="table-note">. Every string goes through html_escape.
 std::string table_to_html(const ExportTable& t);
 
 // Calls the writer for `f`.

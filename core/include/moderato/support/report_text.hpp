@@ -25,8 +25,12 @@ namespace moderato {
 
 // Four significant digits (the rules above).
 std::string format_sig(double x);
-// "lo to hi", each end written by format_sig (so "9.928 to 11.29": a number
-// reads the same inside an interval as on its own).
+// "lo to hi", each end with the four significant digits it has on its own
+// (so "9.928 to 11.29": a number reads the same inside an interval as
+// alone), trailing zeros kept ("0.07700 to 0.08845"); a whole-number end
+// beside a fractional one gets the other's decimals as trailing zeros, up to
+// four significant digits ("12.00 to 37.90", "0.0000 to 0.5000"). Both ends
+// whole stay whole ("0 to 30").
 std::string format_range(double lo, double hi);
 // "0.023", "< 0.001", "1.000" (NaN -> "—").
 std::string format_p_value(double p);
