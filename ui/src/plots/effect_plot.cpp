@@ -55,6 +55,20 @@ double boxWidth(const QCPItemText* t) {
     return text.width() + t->padding().left() + t->padding().right();
 }
 
+// Sets `text` on `t`, breaking lines between words so that no line (with
+// the padding) is wider than `width` pixels; a single long word keeps its line.
+void wrapToWidth(QCPItemText* t, const QString& text, double width) {
+    const QFontMetricsF fm(t->font());
+    const double room = width - t->padding().left() - t->padding().right();
+    QStringList lines;
+    for (const QString& word : text.split(QLatin1Char(' '), Qt::SkipEmptyParts)) {
+        if (!lines.isEmpty() && fm.horizontalAdvance(lines.back() + QLatin1Char(' ') + word) <= room)
+            lines.back() += QLatin1Char(' ') + word;
+        else lines << word;
+    }
+    t->setText(lines.join(QLatin1Char('\n')));
+}
+
 QFont smallFont(const QFont& base, double scale = 0.9) {
     QFont f = base;
     f.setPointSizeF(std::max(6.0, base.pointSizeF() * scale));
@@ -123,6 +137,7 @@ void EffectPlot::rebuild() {
     groupHighlight_ = nullptr;
     drawnBoundaries_.clear();
     boundaryNotes_.clear();
+    boundaryNoteItems_.clear();
     beyondNotes_.clear();
     boundaryLabels_.clear();
     if (hasData_) {
@@ -292,6 +307,7 @@ void EffectPlot::drawBoundaryNotes() {
         t->setPadding(QMargins(4, 1, 4, 1));
         t->setSelectable(false);
         boundaryNotes_ << t->text();
+        boundaryNoteItems_.push_back(t);
     };
     note(left, true);
     note(right, false);
@@ -498,6 +514,9 @@ void EffectPlot::placeLabels() {
         n.item->position->setCoords(at, 1.0);
         n.item->setPositionAlignment(Qt::AlignBottom | h);
     }
+    // A note on boundaries beyond the data breaks between words to fit the plot area.
+    for (std::size_t k = 0; k < boundaryNoteItems_.size() && k < static_cast<std::size_t>(boundaryNotes_.size()); ++k)
+        wrapToWidth(boundaryNoteItems_[k], boundaryNotes_[static_cast<int>(k)], r.width() - 8);
     // A boundary label that would cross the edge goes to the inner side of its line.
     for (const BoundaryLabel& b : boundaryLabels_) {
         const double w = boxWidth(b.item), px = x->coordToPixel(b.value);

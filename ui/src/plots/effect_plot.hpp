@@ -128,7 +128,8 @@ private:
     bool dragging_ = false;
     bool exporting_ = false, markSlider_ = false;
     std::vector<double> drawnBoundaries_;
-    QStringList boundaryNotes_;
+    QStringList boundaryNotes_;                    // as written on one line
+    std::vector<QCPItemText*> boundaryNoteItems_;  // the same notes, wrapped to the plot's width
     struct BeyondNote {
         QCPItemText* item;
         double from, to;  // the strip, moderator values
