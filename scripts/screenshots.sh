@@ -35,7 +35,7 @@ colours="${COLOURS:-256}"
 sections=(specify estimates probe checks memo)
 default_shots="coffee-discount:specify coffee-discount:estimates coffee-discount:probe coffee-discount:memo
 orchard-nitrogen:probe orchard-nitrogen:checks volunteer-onboarding:probe helpdesk-staffing:probe
-trial-conversion:probe"
+trial-conversion:probe turbine-repairs:estimates turbine-repairs:probe"
 read -r -a shots <<<"$(printf '%s' "${SHOTS:-$default_shots}" | tr '\n\t' '  ')"
 if [ -n "${PROJECTS:-}" ] || [ -n "${SECTIONS:-}" ]; then
     read -r -a some_projects <<<"${PROJECTS:-coffee-discount orchard-nitrogen volunteer-onboarding trial-conversion}"
