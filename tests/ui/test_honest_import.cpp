@@ -129,8 +129,10 @@ TEST(HonestImport, AFewWordsAmongNumbersAreShownWithAOneClickFix) {
     ASSERT_TRUE(test::waitUntil([&] {
         return dlg.previewTable() && dlg.previewTable()->at("training_hours").kind == ColumnKind::Categorical;
     }));
-    ASSERT_NE(dlg.textNotes()->findChild<QWidget*>(QStringLiteral("import-text-note-training_hours")), nullptr);
-    click(dlg.textNotes()->findChild<QPushButton*>(QStringLiteral("import-text-missing-training_hours")));
+    auto* again = dlg.textNotes()->findChild<QPushButton*>(QStringLiteral("import-text-missing-training_hours"));
+    ASSERT_NE(again, nullptr);
+    EXPECT_TRUE(again->isVisible()) << "shown as soon as the preview is read";
+    click(again);
     ASSERT_TRUE(test::waitUntil(
         [&] { return dlg.previewTable() && dlg.previewTable()->at("training_hours").kind == ColumnKind::Numeric; }));
 

@@ -488,6 +488,7 @@ void ImportDialog::updateTextNotes(const Table& plain, const Table& shown) {
         h->addWidget(label, 1);
         h->addWidget(button);
         layout->addWidget(row);
+        row->show();  // at once: a layout shows a new child only on the next turn of the event loop
     }
     for (const Column& c : shown.columns) {
         if (!c.text_as_missing) continue;
@@ -498,6 +499,7 @@ void ImportDialog::updateTextNotes(const Table& plain, const Table& shown) {
                            .arg(QString::fromStdString(c.name).toHtmlEscaped(), cellCount(c.text_as_missing),
                                 cellList(c.text_examples, c.text_as_missing)));
         layout->addWidget(label);
+        label->show();
     }
 }
 
