@@ -176,7 +176,13 @@ Memo harmless(Memo m) {
     return m;
 }
 
-std::size_t count_lt(const std::string& s) { return static_cast<std::size_t>(std::count(s.begin(), s.end(), '<')); }
+// Tags in the text, leaving out the line-break opportunities (<wbr>) the
+// writers add after a "×" on purpose: text without "×" has none.
+std::size_t count_lt(const std::string& s) {
+    std::size_t wbr = 0;
+    for (std::size_t at = s.find("<wbr>"); at != std::string::npos; at = s.find("<wbr>", at + 1)) ++wbr;
+    return static_cast<std::size_t>(std::count(s.begin(), s.end(), '<')) - wbr;
+}
 
 void check_all(FuzzedDataProvider& in) {
     ExportTable t = table_from(in);
