@@ -8,6 +8,7 @@
 #include <QVBoxLayout>
 
 #include "common/number_text.hpp"
+#include "data/text_cell_list.hpp"
 #include "model/project_document.hpp"
 #include "moderato/reading/retype.hpp"
 
@@ -18,13 +19,6 @@ namespace {
 QString cells(std::size_t n) {
     return n == 1 ? ColumnKindBox::tr("1 cell")
                   : ColumnKindBox::tr("%1 cells").arg(countText(static_cast<long long>(n)));
-}
-
-QString cellList(const std::vector<TextCell>& list, std::size_t total) {
-    QStringList parts;
-    for (const TextCell& c : list)
-        parts << ColumnKindBox::tr("line %1 “%2”").arg(c.line).arg(QString::fromStdString(c.text).toHtmlEscaped());
-    return parts.join(QStringLiteral(", ")) + (total > list.size() ? QStringLiteral(", …") : QString());
 }
 
 }  // namespace
@@ -84,7 +78,7 @@ void ColumnKindBox::showNote(const Table& table, int column) {
     const DataSource* source = doc_->project().dataset(dataset_);
     if (c.kind == ColumnKind::Numeric && c.text_as_missing) {
         note_->setText(tr("%1 of text read as missing: %2.")
-                           .arg(cells(c.text_as_missing), cellList(c.text_examples, c.text_as_missing)));
+                           .arg(cells(c.text_as_missing), textCellList(c.text_examples, c.text_as_missing)));
         note_->show();
         return;
     }
@@ -95,7 +89,7 @@ void ColumnKindBox::showNote(const Table& table, int column) {
                        .arg(countText(static_cast<long long>(stray.text_cells)),
                             countText(static_cast<long long>(stray.text_cells + stray.number_cells)),
                             stray.text_cells == 1 ? tr("is not a number") : tr("are not numbers"),
-                            cellList(stray.first, stray.text_cells)));
+                            textCellList(stray.first, stray.text_cells)));
     note_->show();
     asNumbers_->show();
 }

@@ -27,6 +27,7 @@
 #include "common/number_text.hpp"
 #include "data/csv_head.hpp"
 #include "data/table_model.hpp"
+#include "data/text_cell_list.hpp"
 #include "moderato/reading/retype.hpp"
 #include "moderato/support/error.hpp"
 #include "style/estuary.hpp"
@@ -89,15 +90,6 @@ QString delimiterText(char d) {
 }
 
 // “twelve” on line 38, “n/a” on line 90 …
-QString cellList(const std::vector<TextCell>& cells, std::size_t total) {
-    QStringList parts;
-    for (const TextCell& c : cells)
-        parts << ImportDialog::tr("line %1 “%2”").arg(c.line).arg(QString::fromStdString(c.text).toHtmlEscaped());
-    QString text = parts.join(QStringLiteral(", "));
-    if (total > cells.size()) text += QStringLiteral(", …");
-    return text;
-}
-
 QString cellCount(std::size_t n) {
     return n == 1 ? ImportDialog::tr("1 cell") : ImportDialog::tr("%1 cells").arg(countText(static_cast<long long>(n)));
 }
@@ -480,7 +472,7 @@ void ImportDialog::updateTextNotes(const Table& plain, const Table& shown) {
                                 countText(static_cast<long long>(stray.text_cells)),
                                 countText(static_cast<long long>(stray.text_cells + stray.number_cells)),
                                 stray.text_cells == 1 ? tr("is not a number") : tr("are not numbers"),
-                                cellList(stray.first, stray.text_cells)));
+                                textCellList(stray.first, stray.text_cells)));
         auto* button = new QPushButton(tr("Read as numbers; these cells missing"), row);
         button->setObjectName(QStringLiteral("import-text-missing-") + QString::fromStdString(c.name));
         const std::string name = c.name;
@@ -497,7 +489,7 @@ void ImportDialog::updateTextNotes(const Table& plain, const Table& shown) {
         label->setWordWrap(true);
         label->setText(tr("<b>%1</b>: %2 of text read as missing (%3).")
                            .arg(QString::fromStdString(c.name).toHtmlEscaped(), cellCount(c.text_as_missing),
-                                cellList(c.text_examples, c.text_as_missing)));
+                                textCellList(c.text_examples, c.text_as_missing)));
         layout->addWidget(label);
         label->show();
     }
