@@ -99,14 +99,13 @@ TEST(ProbeGroupGap, GroupGapRegionsAreStatedAndShadedWhereCoreFindsThem) {
     EXPECT_EQ(s->linesPlot()->differStrips().size(), 2u);
 }
 
-TEST(ProbeGroupGap, ThreeGroupsStateEachPairAndDrawNoStrip) {
+TEST(ProbeGroupGap, ThreeGroupsStateAndDrawEachPairOnItsOwnNamedRow) {
     const QString path = test::sampleProject(QStringLiteral("helpdesk-staffing"));
     test::ProbeWindow win(path);
     ProbeSection* s = win.section;
     const test::DirectProbe core = test::direct_probe(path.toStdString());
     ASSERT_EQ(core.probe.crossovers.size(), 3u);
-    EXPECT_FALSE(s->differToggle()->isVisible());
-    EXPECT_TRUE(s->linesPlot()->differStrips().empty());
+    EXPECT_TRUE(s->differToggle()->isVisible());
     for (const Crossover& c : core.probe.crossovers)
         for (double bd : c.gap_regions.boundaries) {
             // Source: core's gap regions; closed form: |gap| / SE = q at a boundary.
@@ -116,6 +115,50 @@ TEST(ProbeGroupGap, ThreeGroupsStateEachPairAndDrawNoStrip) {
     EXPECT_TRUE(
         s->summaryText().contains(QStringLiteral("Predicted resolution_hours for shift = day and shift = night")))
         << s->summaryText().toStdString();
+    // Three pairs tested at once, unadjusted: said so (common practice: name the multiplicity).
+    EXPECT_TRUE(s->summaryText().contains(QStringLiteral("Each of the 3 pairs is tested on its own")));
+
+    // One row per pair, in core's order, each named; its strips are that pair's gap regions in the data.
+    const QStringList expectedNames{QStringLiteral("day/evening"), QStringLiteral("day/night"),
+                                    QStringLiteral("evening/night")};
+    LinesPlot* lp = s->linesPlot();
+    EXPECT_EQ(lp->differRowLabels(), expectedNames);
+    std::vector<std::pair<double, double>> expected;
+    std::vector<int> rows;
+    for (std::size_t k = 0; k < 3; ++k)
+        for (const auto& span : describeGap(core.probe.crossovers[k].gap_regions, QStringLiteral("X"),
+                                            QStringLiteral("x"), core.probe.focal_range, QStringLiteral("95%"))
+                                    .differ) {
+            expected.push_back(span);
+            rows.push_back(static_cast<int>(k));
+        }
+    ASSERT_FALSE(expected.empty());
+    EXPECT_EQ(lp->differStrips(), expected);
+    EXPECT_EQ(lp->differStripRows(), rows);
+
+    // Drawn where it says: inside a strip of row k the pixel is tinted; above the rows it is not the tint.
+    QCustomPlot* plot = lp->figurePlot();
+    plot->replot();
+    const QImage image = plot->toPixmap().toImage();
+    const QRect axis = plot->axisRect()->rect();
+    const QImage off = [&] {
+        QTest::mouseClick(s->differToggle(), Qt::LeftButton);
+        EXPECT_TRUE(lp->differStrips().empty());
+        plot->replot();
+        return plot->toPixmap().toImage();
+    }();
+    int tinted = 0;
+    for (std::size_t i = 0; i < expected.size(); ++i) {
+        // The middle of the strip, right of where the row's name could be.
+        const double mid = 0.5 * (expected[i].first + expected[i].second);
+        const int px = static_cast<int>(std::lround(plot->xAxis->coordToPixel(mid)));
+        const int py = axis.bottom() - rows[i] * lp->differRowPitch() - 2;
+        if (px < axis.left() + 90) continue;
+        tinted += image.pixelColor(px, py) != off.pixelColor(px, py);
+    }
+    EXPECT_GT(tinted, 0);
+    QTest::mouseClick(s->differToggle(), Qt::LeftButton);
+    EXPECT_EQ(lp->differStrips(), expected);
 }
 
 TEST(ProbeGroupGap, ContinuousModeratorLinesDifferWhereTheModeratorsEffectIs) {

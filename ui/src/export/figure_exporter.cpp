@@ -126,7 +126,8 @@ public:
                 const QVariant value = prop.read(layerable);
                 QVariant next;
                 if (type == QMetaType::QFont) {
-                    next = exportFont(value.value<QFont>(), s, title ? 1.2 : 1.0);
+                    const bool small = layerable->objectName() == QLatin1String(kSmallTextName);
+                    next = exportFont(value.value<QFont>(), s, title ? 1.2 : small ? kSmallTextScale : 1.0);
                 } else if (!greyscale_) {
                     continue;
                 } else if (type == QMetaType::QPen) {

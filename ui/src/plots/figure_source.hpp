@@ -12,6 +12,10 @@ namespace moderato::ui {
 // The object name of a caption over one panel of a plot (a QCPTextElement
 // like the plot's title, but exported at the text size, not the title's).
 inline constexpr const char* kPanelCaptionName = "panel-caption";
+// The object name of a small label inside a plot (a row's name), exported at
+// kSmallTextScale times the figure's text size.
+inline constexpr const char* kSmallTextName = "small-text";
+inline constexpr double kSmallTextScale = 0.8;
 
 class FigureSource {
 public:

@@ -28,6 +28,7 @@ LinesPlot::LinesPlot(QWidget* parent) : QWidget(parent), plot_(new QCustomPlot(t
     setUpProbePlot(plot_);
     setMinimumHeight(200);
     connect(plot_, &QCustomPlot::afterLayout, this, &LinesPlot::placeCrossingNames);
+    connect(plot_, &QCustomPlot::afterLayout, this, &LinesPlot::placeDifferRows);
 }
 
 // After every layout (an export's too): a pair's name that would cross the
@@ -167,6 +168,10 @@ void LinesPlot::rebuild() {
     crossoverMarkers_ = 0;
     crossingNames_.clear();
     differStrips_.clear();
+    differStripRows_.clear();
+    differRowLabels_.clear();
+    differRects_.clear();
+    differNames_.clear();
     pointsMode_ = 0;
     if (!hasData_) {
         plot_->replot();
@@ -309,27 +314,29 @@ void LinesPlot::drawCrossings() {
 
 void LinesPlot::drawDifferStrips() {
     const LinesPlotData& d = data_;
-    // Where the groups differ: a thin strip along the bottom edge, under the grid.
+    // Where the groups differ: thin strips along the bottom edge, under the grid.
     plot_->setCurrentLayer(kShadingLayer);
     const QBrush brush = estuary::significanceBrush(greyscale_);
     // A fine outline in the same colour, so the thin strip shows without shouting.
     QPen edge(estuary::withAlpha(greyscale_ ? estuary::toGrey(estuary::series(0)) : estuary::series(0), 0.55));
     edge.setWidthF(1.0);
-    for (const auto& [a, b] : d.differ) {
-        const double from = std::max(a, d.xRange.first), to = std::min(b, d.xRange.second);
-        if (!(to > from)) continue;
-        auto* strip = new QCPItemRect(plot_);
-        strip->bottomRight->setTypeX(QCPItemPosition::ptPlotCoords);
-        strip->bottomRight->setTypeY(QCPItemPosition::ptAxisRectRatio);
-        strip->bottomRight->setCoords(to, 1.0);
-        strip->topLeft->setTypeX(QCPItemPosition::ptPlotCoords);
-        strip->topLeft->setParentAnchorY(strip->bottomRight);  // pixels above the bottom edge
-        strip->topLeft->setTypeY(QCPItemPosition::ptAbsolute);
-        strip->topLeft->setCoords(from, -kDifferStripHeight);
-        strip->setBrush(brush);
-        strip->setPen(edge);
-        strip->setSelectable(false);
-        differStrips_.emplace_back(from, to);
+    const bool any = std::any_of(d.differ.begin(), d.differ.end(), [&](const LinesPlotData::DifferRow& r) {
+        return std::any_of(r.spans.begin(), r.spans.end(), [&](const auto& s) {
+            return std::min(s.second, d.xRange.second) > std::max(s.first, d.xRange.first);
+        });
+    });
+    // Several pairs: every row is drawn and named, so a pair that differs nowhere shows as an empty row.
+    if (any) {
+        // An unseen line along the bottom edge: rows hang their pixel offsets on its left end.
+        auto* base = new QCPItemLine(plot_);
+        for (auto* end : {base->start, base->end}) {
+            end->setType(QCPItemPosition::ptAxisRectRatio);
+            end->setCoords(end == base->start ? 0 : 1, 1);
+        }
+        base->setPen(Qt::NoPen);
+        base->setSelectable(false);
+        for (std::size_t r = 0; r < d.differ.size(); ++r)
+            drawDifferRow(d.differ[r], static_cast<int>(r), base->start, brush, edge);
     }
     plot_->setCurrentLayer(QStringLiteral("main"));
     if (!differStrips_.empty()) {
@@ -339,6 +346,63 @@ void LinesPlot::drawDifferStrips() {
         swatch->setPen(edge);
         swatch->setSelectable(QCP::stNone);
     }
+}
+
+void LinesPlot::drawDifferRow(const LinesPlotData::DifferRow& row, int index, QCPItemPosition* base,
+                              const QBrush& brush, const QPen& edge) {
+    const LinesPlotData& d = data_;
+    // The rows' heights and places follow the names' font: placeDifferRows().
+    for (const auto& [a, b] : row.spans) {
+        const double from = std::max(a, d.xRange.first), to = std::min(b, d.xRange.second);
+        if (!(to > from)) continue;
+        auto* strip = new QCPItemRect(plot_);
+        // x in the focal predictor's units; y in pixels above the bottom edge.
+        for (QCPItemPosition* corner : {strip->topLeft, strip->bottomRight}) {
+            corner->setTypeX(QCPItemPosition::ptPlotCoords);
+            corner->setParentAnchorY(base);
+            corner->setTypeY(QCPItemPosition::ptAbsolute);
+        }
+        strip->topLeft->setCoords(from, 0);
+        strip->bottomRight->setCoords(to, 0);
+        strip->setBrush(brush);
+        strip->setPen(edge);
+        strip->setSelectable(false);
+        differStrips_.emplace_back(from, to);
+        differStripRows_.push_back(index);
+        differRects_.push_back(strip);
+    }
+    if (row.label.isEmpty()) return;
+    auto* name = new QCPItemText(plot_);
+    name->position->setParentAnchor(base);
+    name->setPositionAlignment(Qt::AlignLeft | Qt::AlignVCenter);
+    name->setPadding(QMargins(0, 0, 0, 0));
+    QFont small = font();
+    small.setPointSizeF(small.pointSizeF() * kSmallTextScale);
+    name->setFont(small);
+    name->setObjectName(QString::fromLatin1(kSmallTextName));
+    name->setColor(estuary::ink);
+    name->setText(row.label);
+    name->setSelectable(false);
+    differRowLabels_ << row.label;
+    differNames_.emplace_back(name, index);
+}
+
+// After every layout (an export's too, whose font is larger): each row of
+// strips is tall enough for the names, stacked up from the bottom edge.
+void LinesPlot::placeDifferRows() {
+    const bool named = !differNames_.empty();
+    // A named row: the name's line and a pixel above and below; rows 3 pixels apart.
+    int height = kDifferStripHeight;
+    if (named) height = static_cast<int>(std::ceil(QFontMetricsF(differNames_.front().first->font()).height())) + 2;
+    const int pitch = std::max(kDifferRowPitch, height + 3);
+    differRowPitch_ = pitch;
+    for (std::size_t i = 0; i < differRects_.size(); ++i) {
+        const int lift = differStripRows_[i] * pitch;
+        QCPItemRect* r = differRects_[i];
+        r->topLeft->setCoords(r->topLeft->coords().x(), -height - lift);
+        r->bottomRight->setCoords(r->bottomRight->coords().x(), -lift);
+    }
+    for (const auto& [name, row] : differNames_) name->position->setCoords(4, -row * pitch - height / 2.0);
 }
 
 void LinesPlot::drawHighlightLayer() {

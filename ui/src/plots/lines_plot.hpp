@@ -27,6 +27,10 @@ class QCPLayer;
 class QCPGraph;
 class QCPItemLine;
 class QCPItemText;
+class QCPItemPosition;
+class QCPItemRect;
+class QBrush;
+class QPen;
 
 namespace moderato::ui {
 
@@ -55,9 +59,14 @@ struct LinesPlotData {
     };
     std::vector<Crossing> crossings;  // only those inside the focal range
     QString crossingName;             // legend entry
-    // Where the two groups (or any two lines) differ, along the focal
-    // predictor: drawn as a thin tinted strip at the bottom of the plot.
-    std::vector<std::pair<double, double>> differ;
+    // Where two groups (or any two lines) differ, along the focal predictor:
+    // one row per pair, stacked up from the bottom edge, tinted where the pair
+    // differs. With several rows each is named by its pair at its left end.
+    struct DifferRow {
+        QString label;  // the pair ("day/night"); empty when there is one pair
+        std::vector<std::pair<double, double>> spans;
+    };
+    std::vector<DifferRow> differ;
     QString differName;  // legend entry ("groups differ"); empty: no strip
     std::pair<double, double> xRange{0, 1};
     // Estimates the y axis must also take in (e.g. the slider's line at the ends of its range).
@@ -92,10 +101,17 @@ public:
         for (const auto& c : data_.crossings) out << c.label;
         return out;
     }
-    // The strips drawn where the groups differ (focal predictor from, to).
+    // The strips drawn where the groups differ (focal predictor from, to),
+    // row after row, and the row each is in (0: along the bottom edge).
     const std::vector<std::pair<double, double>>& differStrips() const { return differStrips_; }
-    // The strip's height in pixels.
+    const std::vector<int>& differStripRows() const { return differStripRows_; }
+    // The pair named on each row drawn (empty when there is one pair).
+    QStringList differRowLabels() const { return differRowLabels_; }
+    // A strip's height in pixels; rows of several pairs are differRowPitch()
+    // apart, at least kDifferRowPitch and enough for the row's name.
     static constexpr int kDifferStripHeight = 7;
+    static constexpr int kDifferRowPitch = 14;
+    int differRowPitch() const { return differRowPitch_; }
     // How the data points are drawn: 0 none, 1 points, 2 binned counts.
     int pointsMode() const { return pointsMode_; }
     // Whether the points drawn are jittered (asked for, and the focal predictor is discrete).
@@ -124,12 +140,15 @@ private:
     void drawLines();
     void drawCrossings();
     void drawDifferStrips();
+    void drawDifferRow(const LinesPlotData::DifferRow& row, int index, QCPItemPosition* base, const QBrush& brush,
+                       const QPen& edge);
     void drawHighlightLayer();
     // Shows or hides the slider's line and names it in the legend, as the
     // export look asks (setExportLook).
     void applySliderMark();
     // Keeps the names of crossing pairs inside the plot area (after every layout).
     void placeCrossingNames();
+    void placeDifferRows();
     void drawPoints();
     void drawPointMaps(const LinesPoints& p);
     QColor pointColour(int group) const;
@@ -140,6 +159,11 @@ private:
     bool greyscale_ = false;
     int crossoverMarkers_ = 0;
     std::vector<std::pair<double, double>> differStrips_;
+    std::vector<int> differStripRows_;
+    QStringList differRowLabels_;
+    int differRowPitch_ = kDifferRowPitch;
+    std::vector<QCPItemRect*> differRects_;                  // beside differStrips_
+    std::vector<std::pair<QCPItemText*, int>> differNames_;  // a row's name and its row
     int pointsMode_ = 0;
     bool jittered_ = false;
     std::vector<CurvePoint> highlight_;

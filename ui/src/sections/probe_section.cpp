@@ -173,9 +173,9 @@ QHBoxLayout* ProbeSection::createControls() {
     differ_->setObjectName(QStringLiteral("differ-toggle"));
     differ_->setChecked(true);
     differ_->setToolTip(
-        tr("Shade a strip along the bottom of the Lines plot where the predicted outcomes of the two "
+        tr("Shade a strip along the bottom of the Lines plot where the predicted outcomes of two "
            "groups (or of any two lines) differ: the Johnson–Neyman technique applied to the gap "
-           "between them"));
+           "between them. With three or more groups, one named strip per pair."));
     controls->addWidget(differ_);
     controls->addStretch(1);
     surfaceToggle_->setObjectName(QStringLiteral("surface-toggle"));
@@ -468,8 +468,8 @@ void ProbeSection::rebuild() {
     if (!surfaceOk) surfaceToggle_->setChecked(false);
     if (surfaceOk) surface_->setRun(*a, *run_, engine_.surfaceRegion(), engine_.surfacePoints());
     linesStack_->setCurrentIndex(surfaceToggle_->isChecked() ? 1 : 0);
-    // One gap to shade: two groups, or the lines at any two values of a numeric moderator.
-    differ_->setVisible(run_->probe->crossovers.size() == 1);
+    // A gap to shade: each pair of groups, or the lines at any two values of a numeric moderator.
+    differ_->setVisible(!run_->probe->crossovers.empty());
     differ_->setText(engine_.groups() ? tr("Where groups differ") : tr("Where lines differ"));
     fillHeldValue();
 
@@ -601,12 +601,21 @@ void ProbeSection::buildPlots() {
     buildEffectPlot(sim, level);
     LinesPlotData l = linesPlotData();
     addCrossings(l, level);
-    // Where the two groups (or any two lines) differ: core's gap regions, clipped to the data.
-    if (differ_->isChecked() && p.crossovers.size() == 1) {
-        l.differ =
-            describeGap(p.crossovers.front().gap_regions, QString(), q(engine_.focal()), engine_.focalRange(), level)
-                .differ;
-        l.differName = groups ? tr("groups differ") : tr("lines differ");
+    // Where two groups (or any two lines) differ: core's gap regions, clipped to the data, one row per pair.
+    if (differ_->isChecked() && !p.crossovers.empty()) {
+        const QStringList pairs = pairNames();
+        for (std::size_t k = 0; k < p.crossovers.size(); ++k) {
+            LinesPlotData::DifferRow row;
+            row.spans =
+                describeGap(p.crossovers[k].gap_regions, QString(), q(engine_.focal()), engine_.focalRange(), level)
+                    .differ;
+            if (p.crossovers.size() > 1 && k < static_cast<std::size_t>(pairs.size()))
+                row.label = pairs[static_cast<qsizetype>(k)];
+            l.differ.push_back(row);
+        }
+        l.differName = !groups                   ? tr("lines differ")
+                       : p.crossovers.size() > 1 ? tr("pair differs (unadjusted)")
+                                                 : tr("groups differ");
     }
     lines_->setData(l);
 }
@@ -700,11 +709,38 @@ LinesPlotData ProbeSection::linesPlotData() {
 }
 
 // Crossover points inside the data.
+// Core lists the pairs of groups in order: (0,1), (0,2), ..., (1,2), ...
+std::vector<std::pair<QString, QString>> ProbeSection::pairLevels() const {
+    std::vector<std::pair<QString, QString>> pairs;
+    const auto& names = engine_.groupNames();
+    for (std::size_t a = 0; a < names.size(); ++a)
+        for (std::size_t b = a + 1; b < names.size(); ++b) pairs.emplace_back(q(names[a]), q(names[b]));
+    return pairs;
+}
+
+// Each pair as it is named on the plot ("day/night").
+QStringList ProbeSection::pairNames() const {
+    QStringList out;
+    for (const auto& [a, b] : pairLevels()) out << a + u'/' + b;
+    return out;
+}
+
+// The first group of the k-th pair in core's order.
+std::size_t ProbeSection::pairFirst(std::size_t k) const {
+    const std::size_t L = engine_.groupValues().size();
+    for (std::size_t a = 0; a < L; ++a) {
+        if (k < L - a - 1) return a;
+        k -= L - a - 1;
+    }
+    return 0;
+}
+
 void ProbeSection::addCrossings(LinesPlotData& l, const QString& level) {
     const ProbeResult& p = engine_.probe();
     const bool groups = engine_.groups();
     const auto [flo, fhi] = engine_.focalRange();
     l.crossingName = tr("lines cross (%1 interval)").arg(level);
+    const QStringList pairs = pairNames();
     for (std::size_t c = 0; c < p.crossovers.size(); ++c) {
         const Crossover& x = p.crossovers[c];
         if (!std::isfinite(x.focal_value) || x.focal_value < flo || x.focal_value > fhi) continue;
@@ -712,15 +748,9 @@ void ProbeSection::addCrossings(LinesPlotData& l, const QString& level) {
         double at = engine_.defaultValue();
         QString label;
         if (groups) {
-            std::size_t pair = 0;
-            const std::size_t L = engine_.groupValues().size();
-            const auto& names = engine_.groupNames();
-            for (std::size_t a = 0; a < L; ++a)
-                for (std::size_t b = a + 1; b < L; ++b, ++pair)
-                    if (pair == c) {
-                        at = engine_.groupValues()[a];
-                        if (p.crossovers.size() > 1 && b < names.size()) label = q(names[a]) + u'/' + q(names[b]);
-                    }
+            at = engine_.groupValues()[pairFirst(c)];
+            if (p.crossovers.size() > 1 && c < static_cast<std::size_t>(pairs.size()))
+                label = pairs[static_cast<qsizetype>(c)];
         }
         const auto pt = prediction_line(run_->design, run_->fit, engine_.focal(), engine_.heldValues(at),
                                         {x.focal_value}, engine_.probability());
@@ -944,11 +974,7 @@ void ProbeSection::summarizeGaps(SummaryText& out) {
     const QString predicted = engine_.logistic() ? tr("log-odds of %1").arg(y) : y;
     const bool groups = engine_.groups();
     out.section(groups ? tr("Where the groups differ") : tr("Where the lines differ"));
-    // Core lists the group pairs in order: (0,1), (0,2), ..., (1,2), ...
-    std::vector<std::pair<QString, QString>> pairs;
-    const auto& names = engine_.groupNames();
-    for (std::size_t a = 0; a < names.size(); ++a)
-        for (std::size_t b = a + 1; b < names.size(); ++b) pairs.emplace_back(q(names[a]), q(names[b]));
+    const auto pairs = pairLevels();
     for (std::size_t k = 0; k < p.crossovers.size(); ++k) {
         QString subject;
         if (!groups) subject = tr("Predicted %1 at any two values of %2").arg(predicted, mod);
@@ -958,6 +984,11 @@ void ProbeSection::summarizeGaps(SummaryText& out) {
         out.line(
             describeGap(p.crossovers[k].gap_regions, subject, q(engine_.focal()), engine_.focalRange(), level).text);
     }
+    if (groups && p.crossovers.size() > 1)
+        out.line(tr("Each of the %1 pairs is tested on its own at each value of %2, with no adjustment for the "
+                    "number of pairs: some of these differences will show by chance.")
+                     .arg(p.crossovers.size())
+                     .arg(q(engine_.focal())));
     if (engine_.probability())
         out.line(tr("Tested on the log-odds scale: where two log-odds differ, the two probabilities differ too."));
     out.end();

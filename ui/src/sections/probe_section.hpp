@@ -125,6 +125,10 @@ private:
     void buildEffectPlot(bool simultaneous, const QString& level);
     LinesPlotData linesPlotData();
     void addCrossings(LinesPlotData& l, const QString& level);
+    // The pairs of groups in core's order, as two level names and as one plot label.
+    std::vector<std::pair<QString, QString>> pairLevels() const;
+    QStringList pairNames() const;
+    std::size_t pairFirst(std::size_t k) const;
     void fillTable();
     static QString defaultTag(const ProbeResult& p, double value);
     static int pinIndex(const std::vector<double>& pins, double value);
