@@ -109,6 +109,7 @@ public:
         : source_(source), plot_(plot), greyscale_(s.greyscale) {
         const int width = size.width();
         if (greyscale_) source_->setGreyscale(true);
+        source_->setExportSize(s.width_in, s.height_in);
         source_->setExportLook(true, s.mark_slider);
         // Everything QCustomPlot draws is a layerable owned by the plot; its
         // pens, brushes, colours and fonts are properties. All values are read
@@ -248,12 +249,22 @@ private:
     void wrapTextElements(QCustomPlot* plot, QSize size) {
         const QRect viewport = plot->viewport();
         plot->setViewport(QRect(QPoint(0, 0), size));
+        // Each text's room is its cell's width without it: a long text
+        // widens its column (the Surface plot's title squeezes the colour
+        // scale's), and the room it leaves once wrapped is less.
+        std::vector<std::pair<QCPTextElement*, QString>> texts;
+        for (QCPTextElement* element : plot->findChildren<QCPTextElement*>())
+            if (element->visible()) {
+                texts.emplace_back(element, element->text());
+                element->setText(QString());
+            }
         for (auto phase : {QCPLayoutElement::upPreparation, QCPLayoutElement::upMargins, QCPLayoutElement::upLayout})
             plot->plotLayout()->update(phase);
         std::vector<std::pair<QCPTextElement*, double>> rooms;
-        for (QCPTextElement* element : plot->findChildren<QCPTextElement*>())
-            if (element->visible())
-                rooms.push_back({element, std::min<double>(size.width(), element->rect().width()) - 4});
+        for (const auto& [element, text] : texts) {
+            rooms.push_back({element, std::min<double>(size.width(), element->rect().width()) - 4});
+            element->setText(text);
+        }
         plot->setViewport(viewport);
         for (const auto& [element, room] : rooms) {
             const QString text = element->text();

@@ -1,6 +1,7 @@
 #include "plots/diagnostic_plots.hpp"
 
 #include <qcustomplot.h>
+#include <QFontMetricsF>
 #include <QVBoxLayout>
 #include <algorithm>
 #include <cmath>
@@ -136,6 +137,7 @@ DiagnosticPlot::DiagnosticPlot(Kind kind, QWidget* parent)
     plot_->addLayer(QLatin1String(kFlaggedLayer), plot_->layer(QStringLiteral("axes")), QCustomPlot::limAbove);
     setUpLayout();
     setMinimumSize(220, kind_ == Influence ? 240 : 180);
+    connect(plot_, &QCustomPlot::afterLayout, this, &DiagnosticPlot::placeRowLabels);
     connect(plot_, &QCustomPlot::plottableClick, this, [this](QCPAbstractPlottable* p, int index, QMouseEvent*) {
         for (const Panel& panel : panels_)
             if (p == panel.flagged && index >= 0 && static_cast<std::size_t>(index) < panel.drawnFlagged.size())
@@ -348,7 +350,10 @@ void DiagnosticPlot::clearPanels() {
         p.drawn.clear();
         p.drawnFlagged.clear();
         p.labelled.clear();
+        p.labels.clear();
         p.rule = NAN;
+        p.ruleWords.clear();
+        p.ruleShort.clear();
         p.xlo = p.ylo = INFINITY;
         p.xhi = p.yhi = -INFINITY;
         for (QCPAxis* axis : p.rect->axes()) axis->setLabel(QString());
@@ -413,7 +418,8 @@ void DiagnosticPlot::drawPoints(Panel& panel, const std::vector<char>& flagged) 
                      QCPScatterStyle(QCPScatterStyle::ssDisc, pointColour, pointColour, panel.dense ? 3 : 4.5));
     panel.points->setData(px, py, true);  // sorted by x in points()
     panel.points->setAdaptiveSampling(true);
-    if (&panel != &panels_.front()) panel.points->removeFromLegend();  // later panels repeat the legend of the first
+    // Later panels repeat the legend of the first; a compact figure's legend leaves the rows out.
+    if (&panel != &panels_.front() || compact_) panel.points->removeFromLegend();
 }
 
 void DiagnosticPlot::drawFlagged(Panel& p) {
@@ -423,7 +429,7 @@ void DiagnosticPlot::drawFlagged(Panel& p) {
         fy << p.pts->ys[o];
     }
     const QColor flagColour = shade(estuary::series(1), greyscale_);
-    p.flagged = scatterGraph(p.rect, tr("flagged rows (any rule)"),
+    p.flagged = scatterGraph(p.rect, compact_ ? tr("flagged (any rule)") : tr("flagged rows (any rule)"),
                              QCPScatterStyle(QCPScatterStyle::ssDiamond, QPen(flagColour, 1.2),
                                              QBrush(estuary::withAlpha(flagColour, 0.75)), 7));
     p.flagged->setData(fx, fy, true);  // sorted by x in drawPoints
@@ -527,12 +533,15 @@ void DiagnosticPlot::decorateInfluence() {
     cooks.rect->axis(QCPAxis::atBottom)->setTickLabels(false);
     // The rules core flags rows by (Diagnostics::cooks_threshold, leverage_threshold), stated over each panel.
     const QString n = countText(static_cast<long long>(d.n));
+    const QString cooksRule = ruleNumber(d.rules.cooks_numerator), leverageRule = ruleNumber(d.rules.leverage_multiple);
+    const QString cooksAt = numberText(d.cooks_threshold), leverageAt = numberText(d.leverage_threshold);
     drawRuleLine(cooks, d.cooks_threshold, xr,
-                 tr("Cook's distance: flagged above %1 / %2 rows = %3")
-                     .arg(ruleNumber(d.rules.cooks_numerator), n, numberText(d.cooks_threshold)));
+                 tr("Cook's distance: flagged above %1 / %2 rows = %3").arg(cooksRule, n, cooksAt),
+                 tr("Cook's distance > %1 / %2 = %3").arg(cooksRule, n, cooksAt));
     drawRuleLine(leverage, d.leverage_threshold, xr,
                  tr("Leverage: flagged above %1 × %2 coefficients / %3 rows = %4")
-                     .arg(ruleNumber(d.rules.leverage_multiple), countText(d.p), n, numberText(d.leverage_threshold)));
+                     .arg(leverageRule, countText(d.p), n, leverageAt),
+                 tr("leverage > %1 × %2 / %3 = %4").arg(leverageRule, countText(d.p), n, leverageAt));
     for (Panel* p : {&cooks, &leverage}) {
         p->rect->axis(QCPAxis::atBottom)->setRange(xr);
         // From just below zero, so rows at zero show whole above the axis.
@@ -544,9 +553,12 @@ void DiagnosticPlot::decorateInfluence() {
     labelRows(leverage, d.leverage, d.leverage_threshold);
 }
 
-void DiagnosticPlot::drawRuleLine(Panel& p, double value, const QCPRange& xr, const QString& caption) {
+void DiagnosticPlot::drawRuleLine(Panel& p, double value, const QCPRange& xr, const QString& words,
+                                  const QString& brief) {
     p.rule = value;
-    p.caption->setText(caption);
+    p.ruleWords = words;
+    p.ruleShort = brief;
+    p.caption->setText(exporting_ ? brief : words);
     QPen pen(shade(estuary::series(1), greyscale_));
     pen.setWidthF(1.2);
     pen.setStyle(Qt::DashLine);
@@ -578,21 +590,79 @@ void DiagnosticPlot::labelRows(Panel& p, const Eigen::VectorXd& value, double ab
     std::vector<std::pair<double, double>> placed;  // labelled points, as shares of the axis ranges
     for (std::size_t o : over) {
         const double x = rows_.number[o], y = value[static_cast<Eigen::Index>(o)];
-        // Beside the marker, on its left near the right edge (so the text stays inside) ...
-        const bool left = x > xr.lower + 0.85 * xr.size();
-        // ... and under it when another label is close by.
+        // Beside the marker (the side: placeRowLabels), under it when another label is close by.
         const double sx = (x - xr.lower) / xr.size(), sy = (y - yr.lower) / yr.size();
         bool crowded = false;
         for (const auto& [px, py] : placed) crowded = crowded || (std::abs(px - sx) < 0.1 && std::abs(py - sy) < 0.12);
         placed.emplace_back(sx, sy);
-        QCPItemText* t =
-            label(plot_, p.rect, rowLabel(o), x, y,
-                  (left ? Qt::AlignRight : Qt::AlignLeft) | (crowded ? Qt::AlignTop : Qt::AlignVCenter), smallFont());
+        QCPItemText* t = label(plot_, p.rect, rowLabel(o), x, y, Qt::AlignLeft | Qt::AlignVCenter, smallFont());
         t->setBrush(Qt::NoBrush);
-        // Clear of the marker (and, under it, of the label beside it).
-        t->setPadding(QMargins(left ? 2 : 7, crowded ? 5 : 0, left ? 7 : 2, 0));
+        t->setObjectName(QString::fromLatin1(kSmallTextName));  // smaller than the figure's text in an export
+        p.labels.emplace_back(t, crowded);
         p.labelled.push_back(o);
     }
+    placeRowLabels();
+}
+
+void DiagnosticPlot::placeRowLabels() {
+    for (const Panel& p : panels_) {
+        const QRect r = p.rect->rect();
+        if (r.width() <= 0) continue;
+        for (const auto& [t, crowded] : p.labels) {
+            const QFontMetricsF fm(t->font());
+            const double w = fm.horizontalAdvance(t->text()) + 9, h = fm.height() + 5;
+            const QPointF at = t->position->pixelPosition();
+            // Right of the marker when it fits, else left of it (whichever has more room if neither does).
+            const bool left = at.x() + w > r.right() && at.x() - r.left() > r.right() - at.x();
+            // Beside the marker; under it when another label is close by; over or under it at an edge.
+            bool under = crowded;
+            if (!under && at.y() - 0.5 * fm.height() < r.top()) under = true;
+            if (under && at.y() + h > r.bottom()) under = false;
+            const bool over = !under && at.y() + 0.5 * fm.height() > r.bottom();
+            const Qt::Alignment v = under ? Qt::AlignTop : over ? Qt::AlignBottom : Qt::AlignVCenter;
+            t->setPositionAlignment((left ? Qt::AlignRight : Qt::AlignLeft) | v);
+            // A panel too short for a label beside its point (a small figure) labels no rows.
+            t->setVisible(r.height() >= 2.5 * h);
+            // Clear of the marker (and, under it, of the label beside it).
+            t->setPadding(QMargins(left ? 2 : 7, under ? 5 : 0, left ? 7 : 2, over ? 5 : 0));
+        }
+    }
+}
+
+// A compact figure: no title row, the rows closer together, and panels
+// that may be shorter than QCustomPlot's default minimum (50 units), so the
+// layout is not squeezed below the height of its text.
+void DiagnosticPlot::setCompactLayout(bool compact) {
+    QCPLayoutGrid* layout = plot_->plotLayout();
+    if (compact) {
+        layout->take(title_);
+        layout->simplify();
+    } else {
+        layout->insertRow(0);
+        layout->addElement(0, 0, title_);
+    }
+    title_->setVisible(!compact);
+    layout->setRowSpacing(compact ? 1 : 5);
+    for (std::size_t k = 0; k < panels_.size(); ++k) {
+        panels_[k].rect->setMinimumSize(50, compact ? 20 : 50);
+        // Short panels: fewer values on their axes, so the tick labels do not overlap.
+        panels_[k].rect->axis(QCPAxis::atLeft)->ticker()->setTickCount(compact ? 2 : 5);
+        if (k > 0) panels_[k].caption->setMargins(QMargins(0, compact ? 2 : 6, 0, 0));
+    }
+}
+
+void DiagnosticPlot::setExportSize(double /*widthIn*/, double heightIn) { exportHeightIn_ = heightIn; }
+
+void DiagnosticPlot::setExportLook(bool exporting, bool /*markSlider*/) {
+    exporting_ = exporting;
+    const bool compact = exporting && kind_ == Influence && exportHeightIn_ < kCompactHeightIn;
+    if (compact != compact_) {
+        compact_ = compact;
+        setCompactLayout(compact);
+        if (d_ && points_) redraw();
+    }
+    for (Panel& p : panels_)
+        if (p.caption && !p.ruleWords.isEmpty()) p.caption->setText(exporting ? p.ruleShort : p.ruleWords);
 }
 
 QString DiagnosticPlot::rowLabel(std::size_t observation) const {

@@ -107,6 +107,14 @@ public:
     // At most this many rows are labelled on each influence panel.
     static constexpr std::size_t kMaxLabels = 5;
 
+    // An exported figure states each flag rule in few words (the panels of a
+    // small figure are narrow). A short influence figure (under
+    // kCompactHeightIn) leaves out its title and the legend's "rows" entry,
+    // so its two panels keep room for their points and labels.
+    void setExportLook(bool exporting, bool markSlider) override;
+    void setExportSize(double widthIn, double heightIn) override;
+    static constexpr double kCompactHeightIn = 3.2;
+
 Q_SIGNALS:
     // A flagged point was clicked.
     void observationClicked(std::size_t observation);
@@ -127,6 +135,9 @@ private:
         QCPGraph* flagged = nullptr;
         QCPGraph* highlight = nullptr;
         double rule = NAN;
+        QString ruleWords, ruleShort;  // the caption in the workbench, and in an export
+        // The row labels, and whether each was put under its point (another label close by).
+        std::vector<std::pair<QCPItemText*, bool>> labels;
         bool dense = false;
         double xlo = INFINITY, xhi = -INFINITY, ylo = INFINITY, yhi = -INFINITY;  // of the drawn points
     };
@@ -146,8 +157,12 @@ private:
     void decorateResiduals();
     void decorateQuantiles();
     void decorateInfluence();
-    void drawRuleLine(Panel& panel, double value, const QCPRange& xr, const QString& caption);
+    void drawRuleLine(Panel& panel, double value, const QCPRange& xr, const QString& words, const QString& brief);
     void labelRows(Panel& panel, const Eigen::VectorXd& value, double above);
+    // After every layout (an export's too): each row label on the side of
+    // its point where it fits inside the panel.
+    void placeRowLabels();
+    void setCompactLayout(bool compact);
     QString rowLabel(std::size_t observation) const;
     QFont smallFont() const;
 
@@ -163,6 +178,9 @@ private:
     QCPErrorBars* binBars_ = nullptr;
     bool greyscale_ = false;
     bool paintNextTurn_ = false;  // redraw() leaves the painting to the next turn
+    bool exporting_ = false;
+    bool compact_ = false;  // exporting a short influence figure
+    double exportHeightIn_ = 0;
 };
 
 }  // namespace moderato::ui

@@ -40,6 +40,13 @@ public:
         (void)exporting;
         (void)markSlider;
     }
+    // The size of the figure about to be exported, in inches: told before
+    // setExportLook(true, ...), so a plot can be drawn more compactly for a
+    // small figure. Plots that need no change ignore it.
+    virtual void setExportSize(double widthIn, double heightIn) {
+        (void)widthIn;
+        (void)heightIn;
+    }
 };
 
 }  // namespace moderato::ui

@@ -106,15 +106,23 @@ SurfacePlot::SurfacePlot(QWidget* parent) : QWidget(parent), plot_(new QCustomPl
         a->setSubTickPen(QPen(estuary::ink));
     }
 
-    plot_->plotLayout()->insertRow(0);
+    // One column: the title, the map beside its colour scale, the legend; so
+    // the title and the legend have the figure's whole width.
+    QCPLayoutGrid* top = plot_->plotLayout();
+    QCPAxisRect* rect = plot_->axisRect();
+    top->take(rect);
+    top->simplify();
     title_ = new QCPTextElement(plot_, QString(), font());
     title_->setTextColor(estuary::ink);
-    plot_->plotLayout()->addElement(0, 0, title_);
+    top->addElement(0, 0, title_);
+    auto* body = new QCPLayoutGrid;
+    top->addElement(1, 0, body);
+    body->addElement(0, 0, rect);
     scale_ = new QCPColorScale(plot_);
     scale_->setType(QCPAxis::atRight);
     scale_->setBarWidth(12);
     styleScaleAxis(scale_->axis(), font());
-    plot_->plotLayout()->addElement(1, 1, scale_);
+    body->addElement(0, 1, scale_);
     auto* group = new QCPMarginGroup(plot_);
     plot_->axisRect()->setMarginGroup(QCP::msBottom | QCP::msTop, group);
     scale_->setMarginGroup(QCP::msBottom | QCP::msTop, group);
@@ -132,6 +140,7 @@ SurfacePlot::SurfacePlot(QWidget* parent) : QWidget(parent), plot_(new QCustomPl
 
 QString SurfacePlot::subtitle() const {
     if (!grid_) return {};
+    if (compact_) return tr("others at means / reference levels");
     QString what;
     if (probability_) what = tr("Predicted probability that %1 = 1 (inverse logit of the log-odds)").arg(outcome_);
     else if (logistic_) what = tr("Predicted log-odds that %1 = 1").arg(outcome_);
@@ -172,6 +181,15 @@ void SurfacePlot::clear() {
 
 void SurfacePlot::setGreyscale(bool on) {
     greyscale_ = on;
+    redraw();
+}
+
+void SurfacePlot::setExportSize(double /*widthIn*/, double heightIn) { exportHeightIn_ = heightIn; }
+
+void SurfacePlot::setExportLook(bool exporting, bool /*markSlider*/) {
+    const bool compact = exporting && exportHeightIn_ < kCompactHeightIn;
+    if (compact == compact_) return;
+    compact_ = compact;
     redraw();
 }
 
@@ -281,7 +299,7 @@ void SurfacePlot::drawObservedRows() {
 
 void SurfacePlot::drawEdge() {
     auto* edge = new QCPCurve(plot_->xAxis, plot_->yAxis);
-    edge->setName(tr("edge of the observed data"));
+    edge->setName(compact_ ? tr("data edge") : tr("edge of the observed data"));
     QPen pen(greyscale_ ? estuary::toGrey(estuary::ink) : estuary::ink);
     pen.setWidthF(1.4);
     edge->setPen(pen);

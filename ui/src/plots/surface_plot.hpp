@@ -40,6 +40,11 @@ public:
     FigurePlot figureKind() const override { return FigurePlot::Surface; }
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override;
+    // A short figure (under kCompactHeightIn) says less over the map: the
+    // colour scale names what is predicted, and the legend's names are brief.
+    void setExportSize(double widthIn, double heightIn) override;
+    void setExportLook(bool exporting, bool markSlider) override;
+    static constexpr double kCompactHeightIn = 3.2;
 
     // What is drawn (for tests and the readout).
     QCPColorMap* colorMap() const { return map_; }
@@ -89,6 +94,8 @@ private:
     bool probability_ = false, logistic_ = false, greyscale_ = false;
     int beyondCells_ = 0;
     bool replotDue_ = false;
+    double exportHeightIn_ = 0;
+    bool compact_ = false;  // exporting a short figure
 };
 
 }  // namespace moderato::ui
