@@ -455,6 +455,14 @@ TEST(MemoRender, CaptionsFollowTheirOwnFigureAndNumbersStayWhole) {
         }
         EXPECT_EQ(n, figs.size()) << html.substr(html.find("Probe</h2>"), 600);
     }
+    // The Markdown memo too: each image, then its numbered caption as the next paragraph
+    // (CommonMark: a blank line ends a paragraph; *…* is emphasis).
+    const std::string md = memo_to_markdown(memo);
+    for (std::size_t i = 0; i < figs.size(); ++i) {
+        const std::string expected = "![" + std::string(titles[i]) + "](" + figs[i].file + ")\n\n*Figure " +
+                                     std::to_string(i + 1) + ". " + titles[i] + "*\n\n";
+        EXPECT_NE(md.find(expected), std::string::npos) << md.substr(md.find("## Probe"), 400);
+    }
     // The orchard's interaction has p < 0.001 (its memo says so): held together in sentences.
     const std::string html = memo_to_html(memo);
     const std::string findings = html.substr(html.find("<ul class=\"findings\">"));

@@ -190,7 +190,11 @@ std::string memo_to_markdown(const Memo& m) {
         if (t.key == "estimates" || t.key == "fit-statistics" || t.key == "model-comparison")
             s += table_to_markdown(t.table) + "\n";
     if (!m.figures.empty() || m.tables.size() > 3) s += "## Probe\n\n";
-    for (const auto& f : m.figures) s += "![" + markdown_escape(f.title) + "](" + f.file + ")\n\n";
+    // Each figure with its numbered caption on the line under it, as in the HTML memo.
+    for (std::size_t i = 0; i < m.figures.size(); ++i) {
+        const std::string title = markdown_escape(m.figures[i].title);
+        s += "![" + title + "](" + m.figures[i].file + ")\n\n*Figure " + std::to_string(i + 1) + ". " + title + "*\n\n";
+    }
     for (const auto& t : m.tables)
         if (t.key != "estimates" && t.key != "fit-statistics" && t.key != "model-comparison")
             s += table_to_markdown(t.table) + "\n";
