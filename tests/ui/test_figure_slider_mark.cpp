@@ -17,6 +17,7 @@
 #include "plots/lines_plot.hpp"
 #include "qt_file_bytes.hpp"
 #include "sample_window.hpp"
+#include "style/estuary.hpp"
 
 using namespace moderato;
 using namespace moderato::ui;
@@ -107,4 +108,59 @@ TEST(FigureSliderMark, TheDialogOffersTheMarkAndStoresIt) {
     // A new dialog starts with the stored choice.
     FigureExportDialog again(effect, win.w.document(), win.id, QString());
     EXPECT_TRUE(again.findChild<QCheckBox*>(QStringLiteral("figure-mark-slider"))->isChecked());
+}
+
+namespace {
+
+// The legend entry of the slider's line on the Lines plot, or nullptr.
+QCPPlottableLegendItem* sliderEntry(QCustomPlot* plot) {
+    for (int i = 0; i < plot->legend->itemCount(); ++i)
+        if (auto* item = qobject_cast<QCPPlottableLegendItem*>(plot->legend->item(i)))
+            if (item->plottable()->name() == QStringLiteral("at the slider's value")) return item;
+    return nullptr;
+}
+
+}  // namespace
+
+// The legend follows the analysis shown: switching from a categorical
+// moderator (the slider picks a group's own line, no entry of its own) to a
+// continuous one (an ink line "at the slider's value") and back leaves no
+// entry or pen of the other behind (seen stale in use: common practice is
+// that a legend describes what is drawn).
+TEST(FigureSliderMark, TheLegendFollowsTheAnalysisShown) {
+    test::SampleWindow win(test::sampleProject(QStringLiteral("turbine-repairs")));
+    win.showSection(AnalysisPage::Probe);
+    auto* lines = win.w.findChild<LinesPlot*>();
+    ASSERT_TRUE(lines);
+    ProbeSection* probe = win.w.analysisPage()->probe();
+    const auto showAndSettle = [&](const char* id, const char* moderator) {
+        win.w.showAnalysis(QString::fromLatin1(id));
+        win.id = QString::fromLatin1(id);
+        EXPECT_TRUE(win.waitForRun());
+        EXPECT_TRUE(test::waitUntil(
+            [&] { return probe->engine().valid() && probe->engine().moderator() == std::string(moderator); }));
+        QTest::qWait(50);
+    };
+    showAndSettle("experience-site", "site");
+    QCustomPlot* plot = lines->figurePlot();
+    EXPECT_EQ(sliderEntry(plot), nullptr);
+    EXPECT_TRUE(lines->sliderLineLegendName().isEmpty());
+
+    showAndSettle("experience-wind", "wind_ms");
+    QCPPlottableLegendItem* entry = sliderEntry(plot);
+    ASSERT_NE(entry, nullptr);
+    EXPECT_EQ(lines->sliderLineLegendName(), QStringLiteral("at the slider's value"));
+    const auto* graph = qobject_cast<QCPGraph*>(entry->plottable());
+    ASSERT_TRUE(graph);
+    EXPECT_EQ(graph->pen().color(), estuary::ink);  // the ink line, not a group's colour
+
+    showAndSettle("experience-site", "site");
+    EXPECT_EQ(sliderEntry(plot), nullptr);
+    EXPECT_TRUE(lines->sliderLineLegendName().isEmpty());
+    // Every line in the legend is one of the site groups' lines.
+    for (int i = 0; i < plot->legend->itemCount(); ++i)
+        if (auto* item = qobject_cast<QCPPlottableLegendItem*>(plot->legend->item(i)))
+            if (qobject_cast<QCPGraph*>(item->plottable()) && item->plottable()->name().startsWith(u's'))
+                EXPECT_TRUE(item->plottable()->name().startsWith(QStringLiteral("site = ")))
+                    << item->plottable()->name().toStdString();
 }
