@@ -8,6 +8,7 @@
 #include "moderato/reporting/json_writer.hpp"
 #include "moderato/reporting/output_json.hpp"
 #include "moderato/support/error.hpp"
+#include "moderato/support/report_text.hpp"
 
 namespace moderato::cli {
 
@@ -35,6 +36,8 @@ NumericSummary summarise(const Column& c) {
     return s;
 }
 
+std::string count(std::size_t n) { return format_count(static_cast<long long>(n)); }
+
 // One column: its JSON object, and its line of the text output.
 std::string write_column(JsonWriter& w, const Table& t, const Column& c) {
     const std::size_t missing = c.missing_count();
@@ -43,17 +46,19 @@ std::string write_column(JsonWriter& w, const Table& t, const Column& c) {
     w.field("kind", c.kind == ColumnKind::Numeric ? "numeric" : "categorical");
     w.field("values", t.rows() - missing);
     w.field("missing", missing);
-    char line[256];
+    // The text line: the one number formatter (support/report_text).
+    std::string name = c.name;
+    if (name.size() < 24) name.append(24 - name.size(), ' ');
+    std::string line;
     if (c.kind == ColumnKind::Numeric) {
         const NumericSummary s = summarise(c);
         w.field("mean", s.mean).field("sd", s.sd).field("min", s.lo).field("max", s.hi);
-        std::snprintf(line, sizeof line,
-                      "  %-24s numeric      n %zu, missing %zu, mean %.6g, SD %.6g, range %.6g to %.6g\n",
-                      c.name.c_str(), s.present, missing, s.mean, s.sd, s.lo, s.hi);
+        line = "  " + name + " numeric      n " + count(s.present) + ", missing " + count(missing) + ", mean " +
+               format_sig(s.mean) + ", SD " + format_sig(s.sd) + ", range " + format_range(s.lo, s.hi) + "\n";
     } else {
         w.field("levels", c.levels.size());
-        std::snprintf(line, sizeof line, "  %-24s categorical  n %zu, missing %zu, %zu levels\n", c.name.c_str(),
-                      t.rows() - missing, missing, c.levels.size());
+        line = "  " + name + " categorical  n " + count(t.rows() - missing) + ", missing " + count(missing) + ", " +
+               count(c.levels.size()) + " levels\n";
     }
     w.end_object();
     return line;

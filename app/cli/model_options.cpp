@@ -7,16 +7,11 @@
 #include "moderato/reading/derive.hpp"
 #include "moderato/reporting/output_json.hpp"
 #include "moderato/support/error.hpp"
+#include "moderato/support/report_text.hpp"
 
 namespace moderato::cli {
 
 namespace {
-
-std::string fmt(double v) {
-    char buf[40];
-    std::snprintf(buf, sizeof buf, "%.6g", v);
-    return buf;
-}
 
 std::pair<std::string, std::string> split_pair(const std::string& text, const std::string& option,
                                                const std::string& what) {
@@ -127,7 +122,7 @@ void apply_centring(const Arguments& args, LoadedModel& m) {
                           (at == CentreAt::Mean     ? "its mean "
                            : at == CentreAt::Median ? "its median "
                                                     : "") +
-                          fmt(used));
+                          format_sig(used));
     }
 }
 

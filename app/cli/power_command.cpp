@@ -22,6 +22,7 @@
 #include "moderato/reporting/json_writer.hpp"
 #include "moderato/reporting/output_json.hpp"
 #include "moderato/support/error.hpp"
+#include "moderato/support/report_text.hpp"
 
 namespace moderato::cli {
 namespace {
@@ -47,17 +48,16 @@ std::string mode_name(Mode m) {
     return "";
 }
 
-std::string num(double v, const char* format = "%.4g") {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, format, v);
-    return buf;
-}
+// A computed value: the one number formatter (support/report_text).
+std::string num(double v) { return format_sig(v); }
+// A value the user gave, as given (every digit it has).
+std::string given(double v) { return format_data(v); }
 
-// Power for reading: 4 decimals, without rounding up to a misleading 1.
+// Power for reading: four significant digits, without rounding up to a misleading 1.
 std::string power_words(double p) {
     if (std::isnan(p)) return "n/a";
     if (p > 0.9999) return "above 0.9999";
-    return num(p, "%.4f");
+    return num(p);
 }
 
 std::string plural(long long count, const std::string& word) {
@@ -142,7 +142,7 @@ void read_effect_size(const Arguments& a, PowerRequest& req) {
     req.r2_reduced = parse_double(a.required("r2-reduced"), "r2-reduced");
     req.f2 = f2_from_r2(*req.r2_full, *req.r2_reduced);
     if (*req.f2 == 0)
-        throw InputError("--r2-full equals --r2-reduced (" + num(*req.r2_full, "%.10g") +
+        throw InputError("--r2-full equals --r2-reduced (" + given(*req.r2_full) +
                          "): the tested terms add nothing (f2 = 0), so there is no effect to plan for");
 }
 
@@ -206,10 +206,10 @@ std::string heading(const PowerRequest& req, const PowerResult& r) {
         case Mode::power:
             return "Power of the F test for " + design_words + "\n";
         case Mode::sample_size:
-            return "Smallest sample reaching power " + num(*req.target) + " for " + design_words + "\n";
+            return "Smallest sample reaching power " + given(*req.target) + " for " + design_words + "\n";
         case Mode::detectable:
-            return "Smallest effect detectable with power " + num(*req.target) + " and n = " + std::to_string(r.n) +
-                   " for " + design_words + "\n";
+            return "Smallest effect detectable with power " + given(*req.target) +
+                   " and n = " + format_count(static_cast<long long>(r.n)) + " for " + design_words + "\n";
     }
     return "";
 }
@@ -224,14 +224,16 @@ std::string power_text(const PowerRequest& req, const PowerAnswer& ans) {
     };
     std::string f2_note = "(partial R² " + num(partial_r2_from_f2(r.f2)) + ")";
     if (req.r2_full)
-        f2_note = "(from R² " + num(*req.r2_full) + " with and " + num(*req.r2_reduced) + " without the tested terms)";
+        f2_note =
+            "(from R² " + given(*req.r2_full) + " with and " + given(*req.r2_reduced) + " without the tested terms)";
     row(req.mode == Mode::detectable ? "smallest f2" : "effect size f2", num(r.f2) + "  " + f2_note);
-    row("alpha", num(r.alpha));
+    row("alpha", given(r.alpha));
     std::string n_note;
     if (req.mode == Mode::sample_size && !std::isnan(ans.power_one_fewer))
-        n_note = "  (with " + std::to_string(r.n - 1) + ": " + power_words(ans.power_one_fewer) + ")";
-    row("n", std::to_string(r.n) + n_note);
-    row("degrees of freedom", num(r.df1, "%.0f") + " and " + num(r.df2, "%.0f"));
+        n_note =
+            "  (with " + format_count(static_cast<long long>(r.n) - 1) + ": " + power_words(ans.power_one_fewer) + ")";
+    row("n", format_count(static_cast<long long>(r.n)) + n_note);
+    row("degrees of freedom", format_count(std::llround(r.df1)) + " and " + format_count(std::llround(r.df2)));
     row("noncentrality", num(r.noncentrality) + "  (" + noncentrality_formula(r.convention) + ", " +
                              (r.convention == Noncentrality::cohen ? "Cohen's convention" : "n convention") + ")");
     row("critical F", num(r.critical_f));

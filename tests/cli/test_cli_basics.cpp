@@ -167,6 +167,44 @@ TEST(CliBasics, FitTextNamesEveryTerm) {
     EXPECT_NE(r.out.find("\nz "), std::string::npos) << r.out;
 }
 
+// The text report writes numbers by the rules every other output uses
+// (common practice for reports; the rules of support/report_text.hpp,
+// re-derived here): four significant digits with trailing zeros, the minus
+// sign U+2212, p-values to three decimals. Values from the JSON output of
+// the same fit, 17 significant digits.
+std::string four_significant(double v) {
+    const int lead = static_cast<int>(std::floor(std::log10(std::abs(v))));
+    char buf[64];
+    std::snprintf(buf, sizeof buf, "%.*f", std::max(0, 3 - lead), std::abs(v));
+    return (v < 0 ? "\u2212" : "") + std::string(buf);
+}
+
+TEST(CliBasics, FitTextWritesNumbersByTheOneSetOfRules) {
+    const std::vector<std::string> args{
+        "--data", "ok/logistic_small.csv", "--outcome", "y", "--predictors", "x", "--family", "logistic"};
+    std::vector<std::string> text_args{"fit", "--format", "text"};
+    text_args.insert(text_args.end(), args.begin(), args.end());
+    const RunResult r = run_in_data(text_args);
+    ASSERT_TRUE(r.exited && r.exit_code == 0) << r.describe();
+    const json j = fit_json(args);
+    for (const auto& term : j.at("terms")) {
+        const std::string name = term.at("name").get<std::string>();
+        const std::size_t at = r.out.find("\n" + name + " ");
+        ASSERT_NE(at, std::string::npos) << name << "\n" << r.out;
+        const std::string line = r.out.substr(at + 1, r.out.find('\n', at + 1) - at - 1);
+        EXPECT_NE(line.find(four_significant(term.at("value").get<double>())), std::string::npos) << line;
+        EXPECT_NE(line.find(four_significant(term.at("se").get<double>())), std::string::npos) << line;
+        const double p = term.at("p").get<double>();
+        char pbuf[16];
+        std::snprintf(pbuf, sizeof pbuf, "%.3f", p);
+        EXPECT_NE(line.find(p < 0.001 ? std::string("< 0.001") : std::string(pbuf)), std::string::npos) << line;
+    }
+    // No hyphen-minus before a digit anywhere in the report.
+    for (std::size_t k = 0; k + 1 < r.out.size(); ++k)
+        if (r.out[k] == '-' && std::isdigit(static_cast<unsigned char>(r.out[k + 1])))
+            ADD_FAILURE() << "hyphen as minus at " << k << ": " << r.out.substr(k > 20 ? k - 20 : 0, 40);
+}
+
 TEST(CliBasics, MissingCellsAreCountedAsExcludedRows) {
     // The file: the 12 exact rows, plus one row with x = NA and one with z empty.
     const json j = fit_json({"--data", "ok/exact_interaction_missing.csv", "--outcome", "y", "--interaction", "x,z"});

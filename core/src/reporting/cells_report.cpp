@@ -131,7 +131,7 @@ std::string cell_table_to_text(const CellTable& t) {
     // value, interval, SE, p: the order of every estimate table of ours.
     const auto contrast = [&](const std::string& label, const Inference& e) {
         o << "  " << label << ": " << num(e.estimate) << " (interval " << format_range(e.ci_lower, e.ci_upper)
-          << ", SE " << num(e.std_error) << ", p " << format_p(e.p_value) << ")\n";
+          << ", SE " << num(e.std_error) << ", p " << format_p_value(e.p_value) << ")\n";
     };
     o << "\nSimple effects:\n";
     for (const auto* list : {&t.row_effects, &t.column_effects})
@@ -143,7 +143,7 @@ std::string cell_table_to_text(const CellTable& t) {
         const bool chi = std::isinf(x.df2);
         o << "  joint test of all interaction terms: " << (chi ? "χ²" : "F") << "(" << num(x.df1)
           << (chi ? "" : ", " + num(x.df2)) << ") = " << num(chi ? x.chi_square : x.statistic) << ", p "
-          << format_p(x.p_value) << "\n";
+          << format_p_value(x.p_value) << "\n";
     }
     if (!t.notes.empty()) {
         o << "\nNotes:\n";

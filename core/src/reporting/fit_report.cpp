@@ -115,33 +115,18 @@ void write_comparison(JsonWriter& w, const FitResult& f) {
 
 // ------------------------------------------------------------------ text
 
-std::string num(double v, int digits = 4) {
-    if (std::isnan(v)) return "—";
-    if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
-    char buf[48];
-    const double a = std::abs(v);
-    if (a != 0 && (a >= 1e6 || a < 1e-3)) std::snprintf(buf, sizeof buf, "%.*e", digits - 1, v);
-    else std::snprintf(buf, sizeof buf, "%.*f", digits, v);
-    return buf;
-}
+// The one number formatter (support/report_text): four significant digits
+// with trailing zeros, U+2212 minus, "—" for NaN, ∞.
+std::string num(double v) { return format_sig(v); }
 
 std::string df_text(double df) { return std::isinf(df) ? "inf" : exact_text(df); }
-
-// "p = 0.0123" or "p < 0.0001"
-std::string p_clause(double p) { return std::string("p ") + (p < 0.0001 ? "" : "= ") + format_p(p); }
-
-std::string level_text(double level) {
-    char buf[16];
-    std::snprintf(buf, sizeof buf, "%g%%", level * 100);
-    return buf;
-}
 
 std::size_t width(const std::string& s) { return detail::display_width(s); }
 
 // F(df1, df2) = value, or χ²(df1) = value for a normal reference.
 std::string wald_text(const WaldTest& t) {
-    return (std::isinf(t.df2) ? "χ²(" + df_text(t.df1) + ") = " + num(t.chi_square, 2)
-                              : "F(" + df_text(t.df1) + ", " + df_text(t.df2) + ") = " + num(t.statistic, 2)) +
+    return (std::isinf(t.df2) ? "χ²(" + df_text(t.df1) + ") = " + num(t.chi_square)
+                              : "F(" + df_text(t.df1) + ", " + df_text(t.df2) + ") = " + num(t.statistic)) +
            ", " + p_clause(t.p_value);
 }
 
@@ -158,11 +143,12 @@ void write_heading(std::ostringstream& o, const FitResult& f, const std::string&
     const bool linear = f.family == Family::Linear;
     o << (linear ? "Linear model" : "Logistic model") << " of " << outcome
       << (linear ? "" : " (probability that " + outcome + " = 1, log-odds scale)") << "\n";
-    o << "n = " << f.n << " rows used";
+    const auto count = [](std::size_t k) { return format_count(static_cast<long long>(k)); };
+    o << "n = " << count(f.n) << " rows used";
     if (f.n_excluded > 0) {
-        o << ", " << f.n_excluded << " left out (";
+        o << ", " << count(f.n_excluded) << " left out (";
         for (std::size_t i = 0; i < f.exclusions.size(); ++i)
-            o << (i ? ", " : "") << f.exclusions[i].column << ": " << f.exclusions[i].rows << " missing";
+            o << (i ? ", " : "") << f.exclusions[i].column << ": " << count(f.exclusions[i].rows) << " missing";
         o << ")";
     }
     o << "\n";
@@ -185,8 +171,8 @@ void write_term_table(std::ostringstream& o, const FitResult& f) {
             rows.push_back({c.term, "not estimated", "", "", "", "", "", ""});
             continue;
         }
-        rows.push_back({c.term, num(c.estimate), num(c.ci_lower), num(c.ci_upper), num(c.std_error),
-                        num(c.statistic, 2), format_p(c.p_value), std::isnan(c.vif) ? "" : num(c.vif, 2)});
+        rows.push_back({c.term, num(c.estimate), num(c.ci_lower), num(c.ci_upper), num(c.std_error), num(c.statistic),
+                        format_p_value(c.p_value), std::isnan(c.vif) ? "" : num(c.vif)});
     }
     std::vector<std::size_t> wid(head.size());
     for (std::size_t k = 0; k < head.size(); ++k) {
@@ -208,12 +194,12 @@ void write_fit_statistics_text(std::ostringstream& o, const FitResult& f) {
         o << "R² " << num(f.r_squared) << " · adjusted R² " << num(f.adj_r_squared) << " · residual SD "
           << num(f.residual_sd) << "\n";
         if (f.f_df1 > 0)
-            o << "All terms: F(" << df_text(f.f_df1) << ", " << df_text(f.f_df2) << ") = " << num(f.f_statistic, 2)
-              << ", " << p_clause(f.f_p_value) << "\n";
+            o << "All terms: F(" << df_text(f.f_df1) << ", " << df_text(f.f_df2) << ") = " << num(f.f_statistic) << ", "
+              << p_clause(f.f_p_value) << "\n";
     } else {
         o << "deviance " << num(f.deviance) << " · null deviance " << num(f.null_deviance) << " · McFadden R² "
           << num(f.mcfadden_r2) << "\n";
-        o << "All terms: likelihood-ratio χ²(" << df_text(f.lr_df) << ") = " << num(f.lr_statistic, 2) << ", "
+        o << "All terms: likelihood-ratio χ²(" << df_text(f.lr_df) << ") = " << num(f.lr_statistic) << ", "
           << p_clause(f.lr_p_value) << " · " << f.iterations << " iterations" << (f.converged ? "" : " (not converged)")
           << "\n";
     }
@@ -226,10 +212,10 @@ void write_tests_text(std::ostringstream& o, const FitResult& f) {
         o << "\nWithout the product terms (" << detail::join(c.dropped_terms, ", ") << "):\n";
         if (f.family == Family::Linear)
             o << "  R² " << num(c.r_squared_reduced) << ", change " << num(c.r_squared_change) << "; F("
-              << df_text(c.df1) << ", " << df_text(c.df2) << ") = " << num(c.f_statistic, 2) << ", "
-              << p_clause(c.p_value) << "\n";
+              << df_text(c.df1) << ", " << df_text(c.df2) << ") = " << num(c.f_statistic) << ", " << p_clause(c.p_value)
+              << "\n";
         else
-            o << "  likelihood-ratio χ²(" << df_text(c.df1) << ") = " << num(c.lr_statistic, 2) << ", "
+            o << "  likelihood-ratio χ²(" << df_text(c.df1) << ") = " << num(c.lr_statistic) << ", "
               << p_clause(c.lr_p_value) << "\n";
         o << "  Wald test with " << standard_errors_text(f.se) << " standard errors: " << wald_text(c.wald) << "\n";
     }
@@ -255,14 +241,6 @@ void write_notes_text(std::ostringstream& o, const FitResult& f) {
 }  // namespace
 
 std::string joint_test_text(const WaldTest& t) { return wald_text(t); }
-
-std::string format_p(double p) {
-    if (std::isnan(p)) return "—";
-    if (p < 0.0001) return "< 0.0001";
-    char buf[32];
-    std::snprintf(buf, sizeof buf, "%.4f", p);
-    return buf;
-}
 
 const char* standard_errors_text(SeKind se) {
     switch (se) {

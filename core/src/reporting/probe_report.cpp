@@ -162,12 +162,6 @@ std::string column(const std::string& s, std::size_t w) {
     return " " + (have >= w ? s : std::string(w - have, ' ') + s);
 }
 
-std::string level_text(double level) {
-    char buf[16];
-    std::snprintf(buf, sizeof buf, "%g%%", level * 100);
-    return buf;
-}
-
 std::string regions_text(const std::vector<Region>& regions) {
     if (regions.empty()) return "nowhere";
     std::string out;
@@ -209,7 +203,7 @@ void write_effects_table(std::ostringstream& o, const ProbeResult& r) {
         const std::size_t width = static_cast<std::size_t>(w);
         o << at << std::string(width - std::min(width, detail::display_width(at)), ' ') << column(num(e.estimate), 11)
           << column(num(e.ci_lower), 11) << column(num(e.ci_upper), 11) << column(num(e.std_error), 11)
-          << column(num(e.statistic), 8) << column(format_p(e.p_value), 10) << "\n";
+          << column(num(e.statistic), 8) << column(format_p_value(e.p_value), 10) << "\n";
         beyond |= e.beyond_data;
     }
     if (beyond) o << "  * beyond the data (extrapolation)\n";
@@ -268,8 +262,8 @@ void write_comparisons_text(std::ostringstream& o, const ProbeResult& r, const F
         const std::string pair = c.second + " − " + c.first;
         o << pair << std::string(28 - std::min<std::size_t>(28, detail::display_width(pair)), ' ')
           << column(num(c.estimate), 11) << column(num(c.ci_lower), 11) << column(num(c.ci_upper), 11)
-          << column(num(c.std_error), 11) << column(num(c.statistic), 8) << column(format_p(c.p_value), 10)
-          << column(format_p(c.p_adjusted), 10) << "\n";
+          << column(num(c.std_error), 11) << column(num(c.statistic), 8) << column(format_p_value(c.p_value), 10)
+          << column(format_p_value(c.p_adjusted), 10) << "\n";
     }
     o << "  p-values " << adjustment_text(r.adjustment) << " over " << r.slope_contrasts.size() << " pairs\n";
 }
@@ -279,7 +273,7 @@ void write_closing_text(std::ostringstream& o, const ProbeResult& r) {
         const auto& ie = *r.interaction_effect;
         o << "\nInteraction on the probability scale (" << to_string(ie.kind) << ", Ai & Norton): " << num(ie.estimate)
           << " (interval " << format_range(ie.ci_lower, ie.ci_upper) << ", SE " << num(ie.std_error) << ", p "
-          << format_p(ie.p_value) << ")\n";
+          << format_p_value(ie.p_value) << ")\n";
     }
     if (!r.notes.empty()) {
         o << "\nNotes:\n";

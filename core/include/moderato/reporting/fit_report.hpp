@@ -16,10 +16,7 @@ void write_fit_fields(JsonWriter& w, const FitResult& fit);
 std::string fit_to_json(const FitResult& fit);
 std::string fit_to_text(const FitResult& fit, const std::string& outcome);
 
-// "0.0123", "< 0.0001"
-std::string format_p(double p);
-
-// A joint test as a reader sees it: "F(2, 440) = 5.31, p = 0.0052", or
+// A joint test as a reader sees it: "F(2, 440) = 5.310, p = 0.005", or
 // "χ²(2) = …" for a normal reference.
 std::string joint_test_text(const WaldTest& t);
 // The standard errors as a reader sees them: "model-based", "HC3
