@@ -160,7 +160,8 @@ TEST(FigureSliderMark, TheLegendFollowsTheAnalysisShown) {
     // Every line in the legend is one of the site groups' lines.
     for (int i = 0; i < plot->legend->itemCount(); ++i)
         if (auto* item = qobject_cast<QCPPlottableLegendItem*>(plot->legend->item(i)))
-            if (qobject_cast<QCPGraph*>(item->plottable()) && item->plottable()->name().startsWith(u's'))
+            if (qobject_cast<QCPGraph*>(item->plottable()) && item->plottable()->name().startsWith(u's')) {
                 EXPECT_TRUE(item->plottable()->name().startsWith(QStringLiteral("site = ")))
                     << item->plottable()->name().toStdString();
+            }
 }

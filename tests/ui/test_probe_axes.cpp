@@ -65,11 +65,14 @@ test::DirectProbe coreProbe(const QString& project, const std::string& id) {
     return test::direct_probe(project.toStdString(), [&](Analysis& a) { a = chosen; });
 }
 
-// Every text item drawn on a plot.
+// Every text item drawn on a plot, and the texts over its plot area.
 QStringList plotTexts(QCustomPlot* plot) {
     QStringList out;
     for (int i = 0; i < plot->itemCount(); ++i)
         if (auto* t = qobject_cast<QCPItemText*>(plot->item(i))) out << t->text();
+    // The notes over the plot area (text elements of the layout).
+    for (auto* t : plot->findChildren<QCPTextElement*>())
+        if (t->visible() && !t->text().isEmpty()) out << t->text();
     return out;
 }
 

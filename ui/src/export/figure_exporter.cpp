@@ -119,7 +119,8 @@ public:
         for (QCPLayerable* layerable : plot->findChildren<QCPLayerable*>()) {
             const QMetaObject* mo = layerable->metaObject();
             const bool title = qobject_cast<QCPTextElement*>(layerable) != nullptr &&
-                               layerable->objectName() != QLatin1String(kPanelCaptionName);
+                               layerable->objectName() != QLatin1String(kPanelCaptionName) &&
+                               layerable->objectName() != QLatin1String(kSmallTextName);
             for (int i = 0; i < mo->propertyCount(); ++i) {
                 const QMetaProperty prop = mo->property(i);
                 if (!prop.isReadable() || !prop.isWritable()) continue;
@@ -168,8 +169,12 @@ public:
             fitLegend(plot, width);
             shrinkLegend(plot, s, width, size.height());
         }
+        // An axis title's lines widen the margin beside the plot area (less room for a title
+        // over it), and a title's lines take height from the plot area (less room for an axis
+        // title): the axis titles are wrapped again once the titles are.
         wrapAxisLabels(plot, size);
         wrapTextElements(plot, size);
+        wrapAxisLabels(plot, size);
     }
 
     ~ExportState() {
@@ -220,26 +225,50 @@ private:
     // An axis title longer than its axis is broken into two lines near the
     // middle (panels stacked in one plot share its height).
     void wrapAxisLabels(QCustomPlot* plot, QSize size) {
-        const QList<QCPAxisRect*> rects = plot->axisRects();
-        const double height = size.height() * 0.6 / std::max<qsizetype>(1, rects.size());
-        for (QCPAxisRect* rect : rects)
+        // The room of each axis title: its side of the plot area at the figure's size.
+        const QRect viewport = plot->viewport();
+        plot->setViewport(QRect(QPoint(0, 0), size));
+        for (auto phase : {QCPLayoutElement::upPreparation, QCPLayoutElement::upMargins, QCPLayoutElement::upLayout})
+            plot->plotLayout()->update(phase);
+        std::vector<std::pair<QCPAxis*, double>> rooms;
+        for (QCPAxisRect* rect : plot->axisRects())
             for (QCPAxis* axis : rect->axes())
-                wrapAxisLabel(axis, axis->orientation() == Qt::Vertical ? height : size.width() * 0.85);
+                rooms.emplace_back(axis, axis->orientation() == Qt::Vertical
+                                             ? rect->height() - 4.0
+                                             : std::min(size.width() * 0.85, rect->width() - 4.0));
+        plot->setViewport(viewport);
+        for (const auto& [axis, room] : rooms) wrapAxisLabel(axis, room);
     }
 
+    // Breaks an axis title at spaces into lines no longer than `room`; a
+    // title that fits on two lines breaks at the space nearest its middle.
     void wrapAxisLabel(QCPAxis* axis, double room) {
-        const QString label = axis->label();
-        if (label.isEmpty() || label.contains(QLatin1Char('\n'))) return;
-        if (QFontMetricsF(axis->labelFont()).horizontalAdvance(label) <= room) return;
+        // A title wrapped before is wrapped again from its own text.
+        const auto earlier =
+            std::find_if(labels_.begin(), labels_.end(), [&](const auto& l) { return l.first == axis; });
+        const QString label = earlier != labels_.end() ? earlier->second : axis->label();
+        const QFontMetricsF fm(axis->labelFont());
+        if (label.isEmpty() || label.contains(QLatin1Char('\n')) || fm.horizontalAdvance(label) <= room) return;
         int best = -1;
         for (int i = 0; i < label.size(); ++i)
             if (label[i] == QLatin1Char(' ') &&
                 (best < 0 || std::abs(i - label.size() / 2) < std::abs(best - label.size() / 2)))
                 best = i;
         if (best < 0) return;
-        labels_.push_back({axis, label});
+        if (earlier == labels_.end()) labels_.push_back({axis, label});
         QString wrapped = label;
         wrapped[best] = QLatin1Char('\n');
+        bool fits = true;
+        for (const QString& line : wrapped.split(QLatin1Char('\n'))) fits = fits && fm.horizontalAdvance(line) <= room;
+        if (!fits) {
+            QStringList lines;
+            for (const QString& word : label.split(QLatin1Char(' '))) {
+                if (!lines.isEmpty() && fm.horizontalAdvance(lines.last() + QLatin1Char(' ') + word) <= room)
+                    lines.last() += QLatin1Char(' ') + word;
+                else lines << word;
+            }
+            wrapped = lines.join(QLatin1Char('\n'));
+        }
         axis->setLabel(wrapped);
     }
 

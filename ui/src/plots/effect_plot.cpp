@@ -6,6 +6,7 @@
 #include <QVBoxLayout>
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 #include "common/number_text.hpp"
 #include "plots/plot_style.hpp"
@@ -55,18 +56,16 @@ double boxWidth(const QCPItemText* t) {
     return text.width() + t->padding().left() + t->padding().right();
 }
 
-// Sets `text` on `t`, breaking lines between words so that no line (with
-// the padding) is wider than `width` pixels; a single long word keeps its line.
-void wrapToWidth(QCPItemText* t, const QString& text, double width) {
-    const QFontMetricsF fm(t->font());
-    const double room = width - t->padding().left() - t->padding().right();
-    QStringList lines;
-    for (const QString& word : text.split(QLatin1Char(' '), Qt::SkipEmptyParts)) {
-        if (!lines.isEmpty() && fm.horizontalAdvance(lines.back() + QLatin1Char(' ') + word) <= room)
-            lines.back() += QLatin1Char(' ') + word;
-        else lines << word;
-    }
-    t->setText(lines.join(QLatin1Char('\n')));
+// Height of a text item's box (text lines and padding).
+double boxHeight(const QCPItemText* t) {
+    const QRectF text =
+        QFontMetricsF(t->font()).boundingRect(QRectF(0, 0, 0, 0), Qt::TextDontClip | t->textAlignment(), t->text());
+    return text.height() + t->padding().top() + t->padding().bottom();
+}
+
+// How many pixels of [top, bottom] the span [a, b] covers.
+double overlap(double top, double bottom, std::pair<double, double> span) {
+    return std::max(0.0, std::min(bottom, span.second) - std::max(top, span.first));
 }
 
 QFont smallFont(const QFont& base, double scale = 0.9) {
@@ -91,6 +90,12 @@ EffectPlot::EffectPlot(QWidget* parent) : QWidget(parent), plot_(new QCustomPlot
     connect(plot_, &QCustomPlot::mouseMove, this, &EffectPlot::onMove);
     connect(plot_, &QCustomPlot::mouseRelease, this, &EffectPlot::onRelease);
     connect(plot_, &QCustomPlot::afterLayout, this, &EffectPlot::placeLabels);
+    noteMargins_ = new QCPMarginGroup(plot_);
+    // The notes' row keeps the margins of its last layout (QCustomPlot counts an element's own
+    // margins in its group): cleared before each replot, the plot area alone sets them.
+    connect(plot_, &QCustomPlot::beforeReplot, this, [this] {
+        if (noteRow_) noteRow_->setMargins(QMargins());
+    });
     setMinimumHeight(180);
 }
 
@@ -137,7 +142,12 @@ void EffectPlot::rebuild() {
     groupHighlight_ = nullptr;
     drawnBoundaries_.clear();
     boundaryNotes_.clear();
-    boundaryNoteItems_.clear();
+    if (noteRow_) {
+        // The notes' row goes with the notes it held.
+        plot_->plotLayout()->remove(noteRow_);
+        plot_->plotLayout()->simplify();
+        noteRow_ = nullptr;
+    }
     beyondNotes_.clear();
     boundaryLabels_.clear();
     if (hasData_) {
@@ -291,23 +301,35 @@ void EffectPlot::drawBoundaryNotes() {
         if (b < d.axis.first) left << numberText(b);
         else if (b > d.axis.second) right << numberText(b);
     }
+    if (left.isEmpty() && right.isEmpty()) return;
+    // In a row of their own over the plot area, so they never cover the curve:
+    // the left-hand note at the left, the right-hand one at the right.
+    noteRow_ = new QCPLayoutGrid;
+    noteRow_->setColumnSpacing(12);
+    QCPLayoutGrid* layout = plot_->plotLayout();
+    int row = 0;
+    while (row < layout->rowCount() && layout->element(row, 0) != plot_->axisRect()) ++row;
+    layout->insertRow(row);
+    layout->addElement(row, 0, noteRow_);
+    layout->setRowStretchFactor(row, 0.001);
+    // As wide as the plot area, not over the value axis's labels.
+    noteRow_->setAutoMargins(QCP::msLeft | QCP::msRight);
+    noteRow_->setMarginGroup(QCP::msLeft | QCP::msRight, noteMargins_);
+    plot_->axisRect()->setMarginGroup(QCP::msLeft | QCP::msRight, noteMargins_);
     const auto note = [this](const QStringList& values, bool atLeft) {
         if (values.isEmpty()) return;
         const QString where = values.size() == 1
                                   ? tr("boundary at %1, beyond the data").arg(values.front())
                                   : tr("boundaries at %1, beyond the data").arg(values.join(tr(" and ")));
-        auto* t = new QCPItemText(plot_);
-        t->position->setType(QCPItemPosition::ptAxisRectRatio);
-        t->position->setCoords(atLeft ? 0.0 : 1.0, 0.12);
-        t->setPositionAlignment(Qt::AlignTop | (atLeft ? Qt::AlignLeft : Qt::AlignRight));
-        t->setText(atLeft ? QStringLiteral("← ") + where : where + QStringLiteral(" →"));
-        t->setFont(smallFont(font(), 0.85));
-        t->setColor(estuary::ink);
-        t->setBrush(QBrush(QColor(255, 255, 255, 220)));
-        t->setPadding(QMargins(4, 1, 4, 1));
+        const QString text = atLeft ? QStringLiteral("← ") + where : where + QStringLiteral(" →");
+        auto* t = new QCPTextElement(plot_, text, smallFont(font(), 0.85));
+        t->setObjectName(QString::fromLatin1(kSmallTextName));  // not a title: the plot's text size in an export
+        t->setTextFlags((atLeft ? Qt::AlignLeft : Qt::AlignRight) | Qt::AlignVCenter);
+        t->setTextColor(estuary::ink);
+        t->setMargins(QMargins(0, 2, 0, 2));
         t->setSelectable(false);
-        boundaryNotes_ << t->text();
-        boundaryNoteItems_.push_back(t);
+        noteRow_->addElement(0, noteRow_->elementCount(), t);
+        boundaryNotes_ << text;
     };
     note(left, true);
     note(right, false);
@@ -511,12 +533,24 @@ void EffectPlot::placeLabels() {
             h = Qt::AlignRight;
             at = x->pixelToCoord(r.right());
         }
-        n.item->position->setCoords(at, 1.0);
-        n.item->setPositionAlignment(Qt::AlignBottom | h);
+        // At the bottom (over the rug), else the middle or the top: wherever it covers least of
+        // the curve, its band and the zero line.
+        const double w = boxWidth(n.item) + 4, hgt = boxHeight(n.item) + 10;
+        const double left = h == Qt::AlignLeft ? r.left() : h == Qt::AlignRight ? r.right() - w : px - 0.5 * w;
+        const auto drawn = curvePixels(left, left + w);
+        const double zero = plot_->yAxis->coordToPixel(0);
+        const auto covered = [&](double top) {
+            return overlap(top, top + hgt, drawn) + 4 * overlap(top, top + hgt, {zero - 2, zero + 2});
+        };
+        const double place[] = {r.bottom() - hgt, r.center().y() - 0.5 * hgt, static_cast<double>(r.top())};
+        int best = 0;
+        for (int k = 1; k < 3; ++k)
+            if (covered(place[k]) < covered(place[best])) best = k;
+        const Qt::Alignment v[] = {Qt::AlignBottom, Qt::AlignVCenter, Qt::AlignTop};
+        n.item->position->setCoords(at, best == 0 ? 1.0 : best == 1 ? 0.5 : 0.0);
+        n.item->setPositionAlignment(v[best] | h);
+        n.item->setPadding(best == 0 ? QMargins(2, 2, 2, 12) : QMargins(2, 4, 2, 4));
     }
-    // A note on boundaries beyond the data breaks between words to fit the plot area.
-    for (std::size_t k = 0; k < boundaryNoteItems_.size() && k < static_cast<std::size_t>(boundaryNotes_.size()); ++k)
-        wrapToWidth(boundaryNoteItems_[k], boundaryNotes_[static_cast<int>(k)], r.width() - 8);
     // A boundary label that would cross the edge goes to the inner side of its line.
     for (const BoundaryLabel& b : boundaryLabels_) {
         const double w = boxWidth(b.item), px = x->coordToPixel(b.value);
@@ -526,6 +560,23 @@ void EffectPlot::placeLabels() {
         else if (left + w > r.right()) h = Qt::AlignRight;
         b.item->setPositionAlignment(Qt::AlignTop | h);
     }
+}
+
+// The pixel rows the curve and its band cover between two pixel columns (top, bottom); an empty span (+∞, −∞)
+// where nothing is drawn.
+std::pair<double, double> EffectPlot::curvePixels(double fromPx, double toPx) const {
+    double top = std::numeric_limits<double>::infinity(), bottom = -top;
+    const double a = plot_->xAxis->pixelToCoord(fromPx), b = plot_->xAxis->pixelToCoord(toPx);
+    for (const CurvePoint& p : data_.curve) {
+        if (p.x < std::min(a, b) || p.x > std::max(a, b)) continue;
+        for (double v : {p.estimate, p.lower, p.upper}) {
+            if (!std::isfinite(v)) continue;
+            const double py = plot_->yAxis->coordToPixel(v);
+            top = std::min(top, py);
+            bottom = std::max(bottom, py);
+        }
+    }
+    return {top, bottom};
 }
 
 double EffectPlot::valueAtPixel(double px) const { return plot_->xAxis->pixelToCoord(px); }

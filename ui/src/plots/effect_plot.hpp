@@ -28,6 +28,8 @@ class QCPItemLine;
 class QCPItemText;
 class QCPItemTracer;
 class QCPItemRect;
+class QCPLayoutGrid;
+class QCPMarginGroup;
 class QMouseEvent;
 
 namespace moderato::ui {
@@ -128,8 +130,9 @@ private:
     bool dragging_ = false;
     bool exporting_ = false, markSlider_ = false;
     std::vector<double> drawnBoundaries_;
-    QStringList boundaryNotes_;                    // as written on one line
-    std::vector<QCPItemText*> boundaryNoteItems_;  // the same notes, wrapped to the plot's width
+    QStringList boundaryNotes_;              // as written on one line
+    QCPLayoutGrid* noteRow_ = nullptr;       // the row holding them, over the plot area
+    QCPMarginGroup* noteMargins_ = nullptr;  // keeps that row as wide as the plot area
     struct BeyondNote {
         QCPItemText* item;
         double from, to;  // the strip, moderator values
@@ -140,6 +143,8 @@ private:
         Qt::Alignment side;  // as placed for its neighbours
     };
     std::vector<BeyondNote> beyondNotes_;
+    // The pixel rows (top, bottom) the curve and its band cover between two pixel columns.
+    std::pair<double, double> curvePixels(double fromPx, double toPx) const;
     std::vector<BoundaryLabel> boundaryLabels_;
     // moving layer
     QCPItemLine* handle_ = nullptr;
