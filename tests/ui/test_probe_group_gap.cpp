@@ -152,7 +152,7 @@ TEST(ProbeGroupGap, ThreeGroupsStateAndDrawEachPairOnItsOwnNamedRow) {
         // The middle of the strip, right of where the row's name could be.
         const double mid = 0.5 * (expected[i].first + expected[i].second);
         const int px = static_cast<int>(std::lround(plot->xAxis->coordToPixel(mid)));
-        const int py = axis.bottom() - rows[i] * lp->differRowPitch() - 2;
+        const int py = axis.bottom() - 2 - rows[i] * lp->differRowPitch() - 3;
         if (px < axis.left() + 90) continue;
         tinted += image.pixelColor(px, py) != off.pixelColor(px, py);
     }

@@ -391,18 +391,22 @@ void LinesPlot::drawDifferRow(const LinesPlotData::DifferRow& row, int index, QC
 // strips is tall enough for the names, stacked up from the bottom edge.
 void LinesPlot::placeDifferRows() {
     const bool named = !differNames_.empty();
-    // A named row: the name's line and a pixel above and below; rows 3 pixels apart.
-    int height = kDifferStripHeight;
-    if (named) height = static_cast<int>(std::ceil(QFontMetricsF(differNames_.front().first->font()).height())) + 2;
+    // A named row: the name's line and two pixels above and below, rows 3 pixels apart, the
+    // first clear of the axis line (a name's descenders are not cut at the plot area's edge).
+    int height = kDifferStripHeight, base = 0;
+    if (named) {
+        height = static_cast<int>(std::ceil(QFontMetricsF(differNames_.front().first->font()).height())) + 4;
+        base = 2;
+    }
     const int pitch = std::max(kDifferRowPitch, height + 3);
     differRowPitch_ = pitch;
     for (std::size_t i = 0; i < differRects_.size(); ++i) {
-        const int lift = differStripRows_[i] * pitch;
+        const int lift = base + differStripRows_[i] * pitch;
         QCPItemRect* r = differRects_[i];
         r->topLeft->setCoords(r->topLeft->coords().x(), -height - lift);
         r->bottomRight->setCoords(r->bottomRight->coords().x(), -lift);
     }
-    for (const auto& [name, row] : differNames_) name->position->setCoords(4, -row * pitch - height / 2.0);
+    for (const auto& [name, row] : differNames_) name->position->setCoords(4, -base - row * pitch - height / 2.0);
 }
 
 void LinesPlot::drawHighlightLayer() {
