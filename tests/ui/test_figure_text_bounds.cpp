@@ -61,6 +61,23 @@ QStringList clippedTexts(FigureSource* source, const FigureSettings& s, const QS
     return out;
 }
 
+// A sample project's first analysis on a workbench page, fitted on this thread.
+struct FirstAnalysis {
+    ProjectDocument doc;
+    AnalysisRunner runner{&doc};
+    AnalysisPage page{&doc, &runner};
+    QString id;
+    explicit FirstAnalysis(const QString& name) {
+        runner.setBackgroundThreshold(std::numeric_limits<double>::infinity());
+        page.setBackgroundThreshold(std::numeric_limits<double>::infinity());
+        doc.adopt(load_project(test::sampleProject(name).toStdString()));
+        page.resize(1360, 860);
+        id = QString::fromStdString(doc.project().analyses.front().id);
+        page.showAnalysis(id);
+    }
+    bool run() const { return runner.result(id) != nullptr; }
+};
+
 FigureSettings presetSettings(const FigurePreset& p) {
     FigureSettings s;  // the default font (DejaVu Sans 9 pt), caption on
     s.preset = p.key;
@@ -110,17 +127,9 @@ TEST(FigureTextBounds, EveryTextOfEveryPlotOfEverySampleFitsAtEveryPreset) {
 // The "beyond the data" note on the Effect plot's right-hand strip was cut
 // to "the dat" at the Single column size: the case that started this check.
 TEST(FigureTextBounds, TheEffectPlotsRightHandBeyondNoteIsWhole) {
-    ProjectDocument doc;
-    doc.adopt(load_project(test::sampleProject(QStringLiteral("orchard-nitrogen")).toStdString()));
-    AnalysisRunner runner(&doc);
-    runner.setBackgroundThreshold(std::numeric_limits<double>::infinity());
-    AnalysisPage page(&doc, &runner);
-    page.setBackgroundThreshold(std::numeric_limits<double>::infinity());
-    page.resize(1360, 860);
-    const QString id = QString::fromStdString(doc.project().analyses.front().id);
-    page.showAnalysis(id);
-    ASSERT_TRUE(runner.result(id));
-    auto* effect = page.findChild<EffectPlot*>();
+    FirstAnalysis sample(QStringLiteral("orchard-nitrogen"));
+    ASSERT_TRUE(sample.run());
+    auto* effect = sample.page.findChild<EffectPlot*>();
     ASSERT_TRUE(effect);
     const EffectPlotData& d = effect->data();
     ASSERT_FALSE(d.groups);
@@ -140,18 +149,10 @@ TEST(FigureTextBounds, TheEffectPlotsRightHandBeyondNoteIsWhole) {
 // The influence figure at the Single column size leaves out its title and
 // states each flag rule briefly; the live plot afterwards has both again.
 TEST(FigureTextBounds, ACompactInfluenceFigureRestoresTheLivePlot) {
-    ProjectDocument doc;
-    doc.adopt(load_project(test::sampleProject(QStringLiteral("helpdesk-staffing")).toStdString()));
-    AnalysisRunner runner(&doc);
-    runner.setBackgroundThreshold(std::numeric_limits<double>::infinity());
-    AnalysisPage page(&doc, &runner);
-    page.setBackgroundThreshold(std::numeric_limits<double>::infinity());
-    page.resize(1360, 860);
-    const QString id = QString::fromStdString(doc.project().analyses.front().id);
-    page.showAnalysis(id);
-    ASSERT_TRUE(runner.result(id));
-    page.checks()->ensureComputed();
-    DiagnosticPlot* influence = page.checks()->influencePlot();
+    FirstAnalysis sample(QStringLiteral("helpdesk-staffing"));
+    ASSERT_TRUE(sample.run());
+    sample.page.checks()->ensureComputed();
+    DiagnosticPlot* influence = sample.page.checks()->influencePlot();
     ASSERT_TRUE(influence);
     const QString live = influence->panelCaption(0);
     ASSERT_TRUE(live.startsWith(QStringLiteral("Cook's distance: flagged above"))) << live.toStdString();
