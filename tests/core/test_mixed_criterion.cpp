@@ -1,0 +1,152 @@
+// The linear mixed model's criterion (estimation/mixed_criterion): the
+// profiled REML and ML log-likelihoods, the GLS fixed effects and the
+// profiled residual variance at given random-effects covariances, checked
+// against statsmodels MixedLM (tests/reference/make_mixed_reference.py, which
+// also checks statsmodels against a dense numpy computation) and against the
+// ordinary least-squares log-likelihood when the random effects have no
+// variance.
+#include <gtest/gtest.h>
+
+#include <Eigen/Dense>
+#include <cmath>
+#include <numbers>
+#include <string>
+#include <vector>
+
+#include "common/reference_fixtures.hpp"
+#include "moderato/estimation/mixed_criterion.hpp"
+
+using namespace moderato;
+
+namespace {
+
+struct MixedCase {
+    nlohmann::json doc;
+    Eigen::MatrixXd X, Z;
+    Eigen::VectorXd y;
+    std::vector<std::size_t> group;
+};
+
+// The fixture's data as the model sees them: X = [1, hours, climate,
+// hours × climate], Z = [1] or [1, hours], one group per team.
+MixedCase load_case(const std::string& name) {
+    MixedCase c;
+    const auto path = test::reference_fixture(name + ".json");
+    c.doc = test::read_fixture_json(path);
+    CsvOptions o;
+    o.column_kinds["team"] = ColumnKind::Categorical;
+    const Table t = read_csv((path.parent_path() / c.doc.at("data").get<std::string>()).string(), o);
+    const auto& hours = t.at("hours").numbers;
+    const auto& climate = t.at("climate").numbers;
+    const auto n = static_cast<Eigen::Index>(hours.size());
+    const auto q = static_cast<Eigen::Index>(c.doc.at("spec").at("random").size());
+    c.X.resize(n, 4);
+    c.Z.resize(n, q);
+    c.y.resize(n);
+    for (Eigen::Index i = 0; i < n; ++i) {
+        const auto k = static_cast<std::size_t>(i);
+        c.X.row(i) << 1, hours[k], climate[k], hours[k] * climate[k];
+        c.Z(i, 0) = 1;
+        if (q == 2) c.Z(i, 1) = hours[k];
+        c.y[i] = t.at("score").numbers[k];
+        c.group.push_back(static_cast<std::size_t>(t.at("team").codes[k]));
+    }
+    return c;
+}
+
+Eigen::MatrixXd matrix(const nlohmann::json& rows) {
+    Eigen::MatrixXd m(static_cast<Eigen::Index>(rows.size()), static_cast<Eigen::Index>(rows.size()));
+    for (std::size_t i = 0; i < rows.size(); ++i)
+        for (std::size_t j = 0; j < rows.size(); ++j)
+            m(static_cast<Eigen::Index>(i), static_cast<Eigen::Index>(j)) = rows[i][j].get<double>();
+    return m;
+}
+
+void expect_matches_statsmodels(const std::string& name) {
+    const MixedCase c = load_case(name);
+    const MixedCrossproducts data(c.X, c.Z, c.y, c.group);
+    ASSERT_EQ(data.rows(), c.doc.at("n").get<std::size_t>());
+    ASSERT_EQ(data.groups(), c.doc.at("groups_count").get<std::size_t>());
+    ASSERT_GE(c.doc.at("points").size(), 3u);
+    for (const auto& point : c.doc.at("points")) {
+        const Eigen::MatrixXd psi = matrix(point.at("psi"));
+        const Eigen::MatrixXd L = Eigen::LLT<Eigen::MatrixXd>(psi).matrixL();
+        for (const char* key : {"reml", "ml"}) {
+            SCOPED_TRACE(name + " " + key + " psi " + point.at("psi").dump());
+            const nlohmann::json& ref = point.at(key);  // statsmodels 0.13 MixedLM, named in the fixture's "source"
+            const MixedCriterion got =
+                mixed_criterion(data, L, std::string(key) == "reml" ? MixedEstimation::Reml : MixedEstimation::Ml);
+            EXPECT_NEAR(got.value, ref.at("criterion").get<double>(), 1e-8);
+            EXPECT_NEAR(got.sigma2, ref.at("scale").get<double>(), 1e-9 * got.sigma2);
+            const auto& fe = ref.at("fixed_effects");
+            ASSERT_EQ(static_cast<std::size_t>(got.beta.size()), fe.size());
+            for (std::size_t k = 0; k < fe.size(); ++k)
+                EXPECT_NEAR(got.beta[static_cast<Eigen::Index>(k)], fe[k].get<double>(),
+                            1e-8 * (1 + std::abs(fe[k].get<double>())));
+        }
+    }
+}
+
+}  // namespace
+
+TEST(MixedCriterion, RandomSlopeMatchesStatsmodels) { expect_matches_statsmodels("mixed_slope"); }
+
+TEST(MixedCriterion, RandomInterceptMatchesStatsmodels) { expect_matches_statsmodels("mixed_intercept"); }
+
+// With no variance in the random effects (L = 0) V = I: the ML criterion is
+// the least-squares log-likelihood -n/2 (log(2 pi RSS / n) + 1) and beta the
+// least-squares fit (common practice, from memory); REML uses n - p and
+// subtracts 1/2 log|X'X|.
+TEST(MixedCriterion, NoRandomVarianceIsLeastSquares) {
+    const MixedCase c = load_case("mixed_slope");
+    const MixedCrossproducts data(c.X, c.Z, c.y, c.group);
+    const Eigen::VectorXd beta = c.X.colPivHouseholderQr().solve(c.y);
+    const double rss = (c.y - c.X * beta).squaredNorm();
+    const double n = static_cast<double>(c.y.size()), p = 4;
+    const Eigen::MatrixXd zero = Eigen::MatrixXd::Zero(2, 2);
+    const MixedCriterion ml = mixed_criterion(data, zero, MixedEstimation::Ml);
+    EXPECT_NEAR(ml.value, -n / 2 * (std::log(2 * std::numbers::pi * rss / n) + 1), 1e-9);
+    EXPECT_NEAR(ml.sigma2, rss / n, 1e-12 * rss);
+    for (Eigen::Index k = 0; k < 4; ++k) EXPECT_NEAR(ml.beta[k], beta[k], 1e-9 * (1 + std::abs(beta[k])));
+    const MixedCriterion reml = mixed_criterion(data, zero, MixedEstimation::Reml);
+    const double logdet_xtx = std::log((c.X.transpose() * c.X).determinant());
+    EXPECT_NEAR(reml.value, -(n - p) / 2 * (std::log(2 * std::numbers::pi * rss / (n - p)) + 1) - 0.5 * logdet_xtx,
+                1e-8);
+}
+
+// The rows' order and the groups' numbering do not matter: the data enter as
+// per-group sums.
+TEST(MixedCriterion, RowOrderDoesNotMatter) {
+    const MixedCase c = load_case("mixed_slope");
+    const Eigen::Index n = c.y.size();
+    Eigen::MatrixXd X(n, 4), Z(n, 2);
+    Eigen::VectorXd y(n);
+    std::vector<std::size_t> group(static_cast<std::size_t>(n));
+    const std::size_t G = 45;
+    for (Eigen::Index i = 0; i < n; ++i) {
+        const Eigen::Index from = n - 1 - i;  // reversed rows, groups renumbered backwards
+        X.row(i) = c.X.row(from);
+        Z.row(i) = c.Z.row(from);
+        y[i] = c.y[from];
+        group[static_cast<std::size_t>(i)] = G - 1 - c.group[static_cast<std::size_t>(from)];
+    }
+    Eigen::MatrixXd L(2, 2);
+    L << 0.7, 0, 0.1, 0.3;
+    for (MixedEstimation e : {MixedEstimation::Reml, MixedEstimation::Ml}) {
+        const MixedCriterion a = mixed_criterion(MixedCrossproducts(c.X, c.Z, c.y, c.group), L, e);
+        const MixedCriterion b = mixed_criterion(MixedCrossproducts(X, Z, y, group), L, e);
+        EXPECT_NEAR(a.value, b.value, 1e-9 * std::abs(a.value));
+    }
+}
+
+// Bad shapes and a design with collinear fixed effects are refused with a reason.
+TEST(MixedCriterion, RefusesWhatItCannotEvaluate) {
+    const MixedCase c = load_case("mixed_intercept");
+    EXPECT_THROW(MixedCrossproducts(c.X, c.Z, c.y.head(10), c.group), std::invalid_argument);
+    const MixedCrossproducts data(c.X, c.Z, c.y, c.group);
+    EXPECT_THROW(mixed_criterion(data, Eigen::MatrixXd::Identity(2, 2), MixedEstimation::Reml), std::invalid_argument);
+    Eigen::MatrixXd twice(c.X.rows(), 5);
+    twice << c.X, c.X.col(1);
+    const MixedCrossproducts collinear(twice, c.Z, c.y, c.group);
+    EXPECT_THROW(mixed_criterion(collinear, Eigen::MatrixXd::Identity(1, 1), MixedEstimation::Ml), std::domain_error);
+}
