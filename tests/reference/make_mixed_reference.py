@@ -22,7 +22,13 @@ columns in order, random-effects columns, the group column) and, per
 evaluation point, "psi" (the random-effects covariance relative to the
 residual variance, in the order of the random-effects columns) with, for
 REML and for ML: statsmodels' MixedLM.loglike(params, profile_fe=True)
-("criterion"), get_fe_params ("fixed_effects") and get_scale ("scale").
+("criterion"), get_fe_params ("fixed_effects") and get_scale ("scale");
+and "fits", statsmodels' own MixedLM.fit (REML and ML, full covariance; for
+the random slope also REML with a diagonal covariance): criterion (llf),
+fixed_effects, std_errors (bse_fe, from the inverse observed information of
+all parameters), std_errors_gls (the usual sqrt(diag(scale (X' V^-1 X)^-1))
+at statsmodels' optimum, by numpy), random_covariance (cov_re, absolute),
+residual_variance (scale) and whether it converged.
 
 Before writing, the script checks each criterion against a direct dense
 computation with numpy (V = I + Z psi Z' per group; the textbook profiled
@@ -33,6 +39,7 @@ import argparse
 import json
 import os
 import sys
+import warnings
 
 import numpy as np
 import pandas as pd
@@ -129,6 +136,41 @@ def evaluate(df, random, psis):
     return points
 
 
+def gls_information(df, X, Z, psi):
+    """X' V^-1 X with V = I + Z psi Z' per group (dense numpy)."""
+    xvx = np.zeros((X.shape[1], X.shape[1]))
+    for g in np.unique(df.team):
+        rows = (df.team == g).to_numpy()
+        V = np.eye(rows.sum()) + Z[rows] @ psi @ Z[rows].T
+        xvx += X[rows].T @ np.linalg.solve(V, X[rows])
+    return xvx
+
+
+def fits(df, random):
+    """statsmodels' own fits: REML and ML with a full covariance, and (random
+    slope) REML with a diagonal one (MixedLM.fit's `free` pattern)."""
+    X, Z = design(df, random)
+    wanted = [("reml", "full"), ("ml", "full")] + ([("reml", "diagonal")] if random == 2 else [])
+    out = []
+    for estimation, covariance in wanted:
+        model = MixedLM(df.score.to_numpy(), X, groups=df.team.to_numpy(), exog_re=Z)
+        kw = {}
+        if covariance == "diagonal":
+            kw["free"] = MixedLMParams.from_components(np.ones(X.shape[1]), np.eye(Z.shape[1]))
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            r = model.fit(reml=estimation == "reml", **kw)
+        # The usual fixed-effect covariance, scale (X' V^-1 X)^-1 at statsmodels' optimum; its
+        # bse_fe inverts the observed information of all parameters instead.
+        xvx = gls_information(df, X, Z, np.asarray(r.cov_re) / r.scale)
+        gls = np.sqrt(np.diag(r.scale * np.linalg.inv(xvx)))
+        out.append({"estimation": estimation, "covariance": covariance, "converged": bool(r.converged),
+                    "criterion": float(r.llf), "fixed_effects": fl(r.fe_params), "std_errors": fl(r.bse_fe),
+                    "std_errors_gls": fl(gls),
+                    "random_covariance": fl(np.asarray(r.cov_re)), "residual_variance": float(r.scale)})
+    return out
+
+
 def main():
     ap = argparse.ArgumentParser()
     ap.add_argument("--out", default=os.path.join(os.path.dirname(os.path.abspath(__file__)), "fixtures"))
@@ -145,7 +187,7 @@ def main():
                "spec": {"outcome": "score", "fixed": ["intercept", "hours", "climate", f"hours{TIMES}climate"],
                         "random": ["intercept", "hours"][:random], "groups": "team"},
                "n": int(len(back)), "groups_count": int(back.team.nunique()),
-               "points": evaluate(back, random, psis)}
+               "points": evaluate(back, random, psis), "fits": fits(back, random)}
         atomic_write(os.path.join(args.out, f"{case}.json"),
                      json.dumps(doc, indent=1, ensure_ascii=False, allow_nan=False) + "\n")
         print(f"  {case:16s} n={len(back)}  groups={back.team.nunique()}  points={len(psis)}")

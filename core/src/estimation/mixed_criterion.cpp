@@ -65,6 +65,7 @@ MixedCriterion mixed_criterion(const MixedCrossproducts& data, const Eigen::Matr
     out.sigma2 = qf / m;
     out.value = -0.5 * logdet - 0.5 * m * (std::log(2 * std::numbers::pi * out.sigma2) + 1);
     if (reml) out.value -= 0.5 * d.array().log().sum();
+    out.beta_covariance = out.sigma2 * xvx_ldlt.solve(Eigen::MatrixXd::Identity(p, p));
     return out;
 }
 

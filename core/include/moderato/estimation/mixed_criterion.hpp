@@ -52,9 +52,10 @@ private:
 };
 
 struct MixedCriterion {
-    double value = 0;      // the maximised quantity (log-likelihood or restricted log-likelihood)
-    Eigen::VectorXd beta;  // the GLS fixed effects at this Psi
-    double sigma2 = 0;     // the profiled residual variance: qf / n (ML) or qf / (n - p) (REML)
+    double value = 0;                 // the maximised quantity (log-likelihood or restricted log-likelihood)
+    Eigen::VectorXd beta;             // the GLS fixed effects at this Psi
+    double sigma2 = 0;                // the profiled residual variance: qf / n (ML) or qf / (n - p) (REML)
+    Eigen::MatrixXd beta_covariance;  // sigma2 (X' V^-1 X)^-1
 };
 
 // The criterion at Psi = L L' (L: q x q, lower triangular, any diagonal
