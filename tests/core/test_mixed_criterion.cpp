@@ -215,3 +215,33 @@ TEST(MixedFit, AVarianceAtZeroIsReportedAsSingular) {
     EXPECT_TRUE(fit.singular) << fit.random_covariance;
     EXPECT_LT(fit.random_covariance(0, 0), 1e-6 * fit.residual_variance);
 }
+
+// The random slope's likelihood-ratio test on the teams data: its statistic
+// from our two REML fits equals the one from statsmodels' criteria at their
+// maxima (in the fixtures) within 1e-5, and its p-value is the 50:50
+// mixture of chi-square(1) and chi-square(2), computed here by hand from the
+// closed forms P(X1 > s) = erfc(sqrt(s / 2)) and P(X2 > s) = exp(−s / 2)
+// (Self and Liang 1987).
+TEST(MixedFit, RandomSlopeTestUsesTheBoundaryMixture) {
+    const MixedCase slope = load_case("mixed_slope");
+    const MixedCase intercept = load_case("mixed_intercept");
+    const MixedFit with = fit_mixed(MixedCrossproducts(slope.X, slope.Z, slope.y, slope.group));
+    const MixedFit without = fit_mixed(MixedCrossproducts(intercept.X, intercept.Z, intercept.y, intercept.group));
+    const RandomEffectTest t = added_random_effect_test(without, with, 1);
+    // statsmodels MixedLM.fit for the slope (REML, full; it converged), and for the intercept its
+    // criterion maximised by scipy (MixedLM.fit stops short there and says so).
+    ASSERT_EQ(slope.doc.at("fits")[0].at("estimation"), "reml");
+    ASSERT_TRUE(slope.doc.at("fits")[0].at("converged").get<bool>());
+    const double sm_slope = slope.doc.at("fits")[0].at("criterion").get<double>();
+    const double sm_intercept = intercept.doc.at("profile_maximum").at("reml").at("criterion").get<double>();
+    EXPECT_NEAR(without.criterion, sm_intercept, 1e-7);
+    EXPECT_NEAR(t.statistic, 2 * (sm_slope - sm_intercept), 1e-5);
+    const double s = t.statistic;
+    EXPECT_NEAR(t.p_value, 0.5 * (std::erfc(std::sqrt(s / 2)) + std::exp(-s / 2)), 1e-12);
+    EXPECT_EQ(t.df_low, 1);
+    EXPECT_EQ(t.df_high, 2);
+    // A fit that came out a little worse (an optimiser's noise) is no evidence: statistic 0, p = 1.
+    const RandomEffectTest none = added_random_effect_test(with, without, 1);
+    EXPECT_EQ(none.statistic, 0);
+    EXPECT_DOUBLE_EQ(none.p_value, 1);
+}

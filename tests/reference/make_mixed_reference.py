@@ -28,7 +28,10 @@ the random slope also REML with a diagonal covariance): criterion (llf),
 fixed_effects, std_errors (bse_fe, from the inverse observed information of
 all parameters), std_errors_gls (the usual sqrt(diag(scale (X' V^-1 X)^-1))
 at statsmodels' optimum, by numpy), random_covariance (cov_re, absolute),
-residual_variance (scale) and whether it converged.
+residual_variance (scale) and whether it converged. For the random intercept
+also "profile_maximum": statsmodels' criterion maximised over its one
+covariance parameter by scipy.optimize.minimize_scalar (bounded), per REML
+and ML.
 
 Before writing, the script checks each criterion against a direct dense
 computation with numpy (V = I + Z psi Z' per group; the textbook profiled
@@ -171,6 +174,25 @@ def fits(df, random):
     return out
 
 
+def intercept_maxima(df):
+    """A random intercept has one covariance parameter: statsmodels' profiled criterion
+    maximised over it by scipy's bounded scalar search (MixedLM.fit can stop short here)."""
+    from scipy.optimize import minimize_scalar
+    X, Z = design(df, 1)
+    out = {}
+    for reml in (True, False):
+        model = MixedLM(df.score.to_numpy(), X, groups=df.team.to_numpy(), exog_re=Z)
+        model.reml, model.cov_pen, model.fe_pen = reml, None, None
+
+        def minus(log_psi):
+            params = MixedLMParams.from_components(np.zeros(X.shape[1]), np.array([[np.exp(log_psi)]]))
+            return -model.loglike(params, profile_fe=True)
+
+        r = minimize_scalar(minus, bounds=(-12, 4), method="bounded", options={"xatol": 1e-10})
+        out["reml" if reml else "ml"] = {"criterion": float(-r.fun), "psi": float(np.exp(r.x))}
+    return out
+
+
 def main():
     ap = argparse.ArgumentParser()
     ap.add_argument("--out", default=os.path.join(os.path.dirname(os.path.abspath(__file__)), "fixtures"))
@@ -188,6 +210,8 @@ def main():
                         "random": ["intercept", "hours"][:random], "groups": "team"},
                "n": int(len(back)), "groups_count": int(back.team.nunique()),
                "points": evaluate(back, random, psis), "fits": fits(back, random)}
+        if random == 1:
+            doc["profile_maximum"] = intercept_maxima(back)
         atomic_write(os.path.join(args.out, f"{case}.json"),
                      json.dumps(doc, indent=1, ensure_ascii=False, allow_nan=False) + "\n")
         print(f"  {case:16s} n={len(back)}  groups={back.team.nunique()}  points={len(psis)}")

@@ -6,6 +6,8 @@
 #include <numeric>
 #include <vector>
 
+#include "moderato/estimation/distributions.hpp"
+
 namespace moderato {
 
 namespace {
@@ -138,6 +140,19 @@ MixedFit fit_mixed(const MixedCrossproducts& data, const MixedFitOptions& option
     const Eigen::VectorXd d = L.diagonal().cwiseAbs();
     out.singular = d.minCoeff() <= 1e-4 * std::max(1.0, d.maxCoeff());
     return out;
+}
+
+RandomEffectTest added_random_effect_test(const MixedFit& without, const MixedFit& with, Eigen::Index before) {
+    RandomEffectTest t;
+    t.df_low = before;
+    t.df_high = before + 1;
+    t.statistic = std::max(0.0, 2 * (with.criterion - without.criterion));
+    // A chi-square with 0 degrees of freedom is 0: it exceeds no positive statistic.
+    const auto upper = [&](Eigen::Index df) {
+        return df == 0 ? (t.statistic > 0 ? 0.0 : 1.0) : dist::upper_p_chi2(t.statistic, static_cast<double>(df));
+    };
+    t.p_value = 0.5 * (upper(t.df_low) + upper(t.df_high));
+    return t;
 }
 
 }  // namespace moderato

@@ -35,4 +35,17 @@ struct MixedFit {
 
 MixedFit fit_mixed(const MixedCrossproducts& data, const MixedFitOptions& options = {});
 
+// The likelihood-ratio test of one more random effect (a random slope) in a
+// model with `before` random effects and a full covariance: the statistic
+// 2 (l_with − l_without), both fits REML (same fixed effects) or both ML.
+// Its variance lies on the boundary of the null, so the reference is the
+// 50:50 mixture of chi-square(before) and chi-square(before + 1) (Self and
+// Liang 1987; Stram and Lee 1994): p = (P(X_before > s) + P(X_before+1 > s)) / 2.
+struct RandomEffectTest {
+    double statistic = 0;  // negative differences (an optimiser's noise) count as 0
+    double p_value = 1;
+    Eigen::Index df_low = 0, df_high = 1;  // the mixture's two degrees of freedom
+};
+RandomEffectTest added_random_effect_test(const MixedFit& without, const MixedFit& with, Eigen::Index before);
+
 }  // namespace moderato
