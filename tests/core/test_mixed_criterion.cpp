@@ -245,3 +245,23 @@ TEST(MixedFit, RandomSlopeTestUsesTheBoundaryMixture) {
     EXPECT_EQ(none.statistic, 0);
     EXPECT_DOUBLE_EQ(none.p_value, 1);
 }
+
+// Units do not matter: hours in thousandths of an hour gives the same
+// maximised criterion (REML: up to log|X'V^-1X|'s change of units,
+// 2 log 1000 for the two rescaled columns), and the small slope variance is
+// not mistaken for a boundary.
+TEST(MixedFit, TheUnitsOfAPredictorDoNotMatter) {
+    const MixedCase c = load_case("mixed_slope");
+    Eigen::MatrixXd X = c.X, Z = c.Z;
+    X.col(1) *= 1000;
+    X.col(3) *= 1000;
+    Z.col(1) *= 1000;
+    MixedFitOptions ml;
+    ml.estimation = MixedEstimation::Ml;
+    const MixedFit a = fit_mixed(MixedCrossproducts(c.X, c.Z, c.y, c.group), ml);
+    const MixedFit b = fit_mixed(MixedCrossproducts(X, Z, c.y, c.group), ml);
+    EXPECT_NEAR(b.criterion, a.criterion, 1e-6);
+    EXPECT_NEAR(b.beta[1] * 1000, a.beta[1], 1e-5 * std::abs(a.beta[1]));
+    EXPECT_FALSE(a.singular);
+    EXPECT_FALSE(b.singular);
+}

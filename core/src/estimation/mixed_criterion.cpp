@@ -52,20 +52,26 @@ MixedCriterion mixed_criterion(const MixedCrossproducts& data, const Eigen::Matr
         yvy += b.yty - c.dot(Mc);
         logdet += 2 * chol.matrixLLT().diagonal().array().log().sum();
     }
-    const Eigen::LDLT<Eigen::MatrixXd> xvx_ldlt(xvx);
-    const Eigen::VectorXd d = xvx_ldlt.vectorD();
-    if (xvx_ldlt.info() != Eigen::Success || !(d.minCoeff() > 1e-10 * d.cwiseAbs().maxCoeff()))
+    // Columns scaled to a unit diagonal first, so a column's units (dollars or thousands of
+    // dollars) change neither the collinearity check nor the accuracy.
+    const Eigen::VectorXd s = xvx.diagonal().cwiseMax(0).cwiseSqrt().cwiseInverse();
+    if (!s.allFinite()) throw std::domain_error("mixed model: a fixed-effect column is all zero");
+    const Eigen::LDLT<Eigen::MatrixXd> scaled(s.asDiagonal() * xvx * s.asDiagonal());
+    const Eigen::VectorXd d = scaled.vectorD();
+    if (scaled.info() != Eigen::Success || !(d.minCoeff() > 1e-12))
         throw std::domain_error("mixed model: the fixed-effect columns are collinear");
     MixedCriterion out;
-    out.beta = xvx_ldlt.solve(xvy);
+    out.beta = s.cwiseProduct(scaled.solve(s.cwiseProduct(xvy)));
     const double qf = yvy - out.beta.dot(xvy);
     const bool reml = estimation == MixedEstimation::Reml;
     const double m = static_cast<double>(data.rows()) - (reml ? static_cast<double>(p) : 0.0);
     if (!(m > 0) || !(qf > 0)) throw std::domain_error("mixed model: no residual variation is left");
     out.sigma2 = qf / m;
     out.value = -0.5 * logdet - 0.5 * m * (std::log(2 * std::numbers::pi * out.sigma2) + 1);
-    if (reml) out.value -= 0.5 * d.array().log().sum();
-    out.beta_covariance = out.sigma2 * xvx_ldlt.solve(Eigen::MatrixXd::Identity(p, p));
+    // log|X'V^-1X| = log|S X'V^-1X S| - 2 sum log s.
+    if (reml) out.value -= 0.5 * (d.array().log().sum() - 2 * s.array().log().sum());
+    const Eigen::MatrixXd inverse = scaled.solve(Eigen::MatrixXd::Identity(p, p));
+    out.beta_covariance = out.sigma2 * s.asDiagonal() * inverse * s.asDiagonal();
     return out;
 }
 

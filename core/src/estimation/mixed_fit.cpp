@@ -104,8 +104,16 @@ Eigen::VectorXd nelder_mead(const std::function<double(const Eigen::VectorXd&)>&
 
 MixedFit fit_mixed(const MixedCrossproducts& data, const MixedFitOptions& options) {
     const Eigen::Index q = data.random_columns();
+    // The search runs over the factor for Z's columns scaled to unit root mean square, so a
+    // column's units do not set the simplex's scale: L = D^-1 L~ with D the columns' RMS.
+    Eigen::VectorXd rms = Eigen::VectorXd::Zero(q);
+    for (const auto& b : data.blocks()) rms += b.ZtZ.diagonal();
+    rms = (rms / static_cast<double>(data.rows())).cwiseSqrt().cwiseMax(1e-300);
+    const auto factor = [&](const Eigen::VectorXd& theta) {
+        return Eigen::MatrixXd(rms.cwiseInverse().asDiagonal() * factor_from(theta, q, options.covariance));
+    };
     const auto criterion = [&](const Eigen::VectorXd& theta) {
-        return mixed_criterion(data, factor_from(theta, q, options.covariance), options.estimation);
+        return mixed_criterion(data, factor(theta), options.estimation);
     };
     const auto f = [&](const Eigen::VectorXd& theta) { return -criterion(theta).value; };
     // From L = I (Psi = I, as many fits start), restarted from the best point with
@@ -130,15 +138,15 @@ MixedFit fit_mixed(const MixedCrossproducts& data, const MixedFitOptions& option
         step = std::max(1e-3, 0.25 * step);
     }
     const MixedCriterion at = criterion(theta);
-    const Eigen::MatrixXd L = factor_from(theta, q, options.covariance);
+    const Eigen::MatrixXd L = factor(theta);
     out.criterion = at.value;
     out.beta = at.beta;
     out.beta_covariance = at.beta_covariance;
     out.residual_variance = at.sigma2;
     out.random_covariance = at.sigma2 * L * L.transpose();
-    // Boundary: a diagonal entry of L negligible against the largest (a zero variance, or a correlation at ±1).
-    const Eigen::VectorXd d = L.diagonal().cwiseAbs();
-    out.singular = d.minCoeff() <= 1e-4 * std::max(1.0, d.maxCoeff());
+    // Boundary (a zero variance, or a correlation at ±1): a diagonal entry of the scaled factor
+    // (a random effect's part of the outcome's spread, relative to sigma) that is negligible.
+    out.singular = factor_from(theta, q, options.covariance).diagonal().cwiseAbs().minCoeff() <= 1e-4;
     return out;
 }
 
