@@ -18,6 +18,7 @@
 #include <QSvgGenerator>
 #include <algorithm>
 #include <cmath>
+#include <functional>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -77,6 +78,28 @@ QFont exportFont(const QFont& original, const FigureSettings& s, double factor) 
 }
 
 QColor grey(const QColor& c) { return c.isValid() ? estuary::toGrey(c) : c; }
+
+// `text` broken at spaces into lines no wider than `room` (a single long word keeps its line).
+QString wrapWords(const QString& text, const QFontMetricsF& fm, double room) {
+    QStringList lines;
+    for (const QString& word : text.split(QLatin1Char(' '))) {
+        if (!lines.isEmpty() && fm.horizontalAdvance(lines.last() + QLatin1Char(' ') + word) <= room)
+            lines.last() += QLatin1Char(' ') + word;
+        else lines << word;
+    }
+    return lines.join(QLatin1Char('\n'));
+}
+
+// Lays `plot` out at the figure's `size`, lets `read` take what it needs
+// from that layout, and gives the plot its own viewport back.
+void atFigureSize(QCustomPlot* plot, QSize size, const std::function<void()>& read) {
+    const QRect viewport = plot->viewport();
+    plot->setViewport(QRect(QPoint(0, 0), size));
+    for (auto phase : {QCPLayoutElement::upPreparation, QCPLayoutElement::upMargins, QCPLayoutElement::upLayout})
+        plot->plotLayout()->update(phase);
+    read();
+    plot->setViewport(viewport);
+}
 
 QPen greyPen(QPen p) {
     QBrush b = p.brush();
@@ -226,17 +249,14 @@ private:
     // middle (panels stacked in one plot share its height).
     void wrapAxisLabels(QCustomPlot* plot, QSize size) {
         // The room of each axis title: its side of the plot area at the figure's size.
-        const QRect viewport = plot->viewport();
-        plot->setViewport(QRect(QPoint(0, 0), size));
-        for (auto phase : {QCPLayoutElement::upPreparation, QCPLayoutElement::upMargins, QCPLayoutElement::upLayout})
-            plot->plotLayout()->update(phase);
         std::vector<std::pair<QCPAxis*, double>> rooms;
-        for (QCPAxisRect* rect : plot->axisRects())
-            for (QCPAxis* axis : rect->axes())
-                rooms.emplace_back(axis, axis->orientation() == Qt::Vertical
-                                             ? rect->height() - 4.0
-                                             : std::min(size.width() * 0.85, rect->width() - 4.0));
-        plot->setViewport(viewport);
+        atFigureSize(plot, size, [&] {
+            for (QCPAxisRect* rect : plot->axisRects())
+                for (QCPAxis* axis : rect->axes())
+                    rooms.emplace_back(axis, axis->orientation() == Qt::Vertical
+                                                 ? rect->height() - 4.0
+                                                 : std::min(size.width() * 0.85, rect->width() - 4.0));
+        });
         for (const auto& [axis, room] : rooms) wrapAxisLabel(axis, room);
     }
 
@@ -260,15 +280,7 @@ private:
         wrapped[best] = QLatin1Char('\n');
         bool fits = true;
         for (const QString& line : wrapped.split(QLatin1Char('\n'))) fits = fits && fm.horizontalAdvance(line) <= room;
-        if (!fits) {
-            QStringList lines;
-            for (const QString& word : label.split(QLatin1Char(' '))) {
-                if (!lines.isEmpty() && fm.horizontalAdvance(lines.last() + QLatin1Char(' ') + word) <= room)
-                    lines.last() += QLatin1Char(' ') + word;
-                else lines << word;
-            }
-            wrapped = lines.join(QLatin1Char('\n'));
-        }
+        if (!fits) wrapped = wrapWords(label, fm, room);
         axis->setLabel(wrapped);
     }
 
@@ -276,8 +288,6 @@ private:
     // layout pass at the figure's size says how wide that is) is broken at
     // spaces into lines that fit.
     void wrapTextElements(QCustomPlot* plot, QSize size) {
-        const QRect viewport = plot->viewport();
-        plot->setViewport(QRect(QPoint(0, 0), size));
         // Each text's room is its cell's width without it: a long text
         // widens its column (the Surface plot's title squeezes the colour
         // scale's), and the room it leaves once wrapped is less.
@@ -287,26 +297,18 @@ private:
                 texts.emplace_back(element, element->text());
                 element->setText(QString());
             }
-        for (auto phase : {QCPLayoutElement::upPreparation, QCPLayoutElement::upMargins, QCPLayoutElement::upLayout})
-            plot->plotLayout()->update(phase);
-        std::vector<std::pair<QCPTextElement*, double>> rooms;
-        for (const auto& [element, text] : texts) {
-            rooms.push_back({element, std::min<double>(size.width(), element->rect().width()) - 4});
+        std::vector<double> rooms;
+        atFigureSize(plot, size, [&] {
+            for (const auto& [element, text] : texts)
+                rooms.push_back(std::min<double>(size.width(), element->rect().width()) - 4);
+        });
+        for (std::size_t i = 0; i < texts.size(); ++i) {
+            const auto& [element, text] = texts[i];
             element->setText(text);
-        }
-        plot->setViewport(viewport);
-        for (const auto& [element, room] : rooms) {
-            const QString text = element->text();
             const QFontMetricsF fm(element->font());
-            if (text.isEmpty() || text.contains(QLatin1Char('\n')) || fm.horizontalAdvance(text) <= room) continue;
-            QStringList lines;
-            for (const QString& word : text.split(QLatin1Char(' '))) {
-                if (!lines.isEmpty() && fm.horizontalAdvance(lines.last() + QLatin1Char(' ') + word) <= room)
-                    lines.last() += QLatin1Char(' ') + word;
-                else lines << word;
-            }
+            if (text.isEmpty() || text.contains(QLatin1Char('\n')) || fm.horizontalAdvance(text) <= rooms[i]) continue;
             texts_.push_back({element, text});
-            element->setText(lines.join(QLatin1Char('\n')));
+            element->setText(wrapWords(text, fm, rooms[i]));
         }
     }
 

@@ -655,7 +655,7 @@ void DiagnosticPlot::setExportSize(double /*widthIn*/, double heightIn) { export
 
 void DiagnosticPlot::setExportLook(bool exporting, bool /*markSlider*/) {
     exporting_ = exporting;
-    const bool compact = exporting && kind_ == Influence && exportHeightIn_ < kCompactHeightIn;
+    const bool compact = exporting && kind_ == Influence && exportHeightIn_ < kCompactFigureHeightIn;
     if (compact != compact_) {
         compact_ = compact;
         setCompactLayout(compact);

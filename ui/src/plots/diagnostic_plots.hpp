@@ -109,11 +109,10 @@ public:
 
     // An exported figure states each flag rule in few words (the panels of a
     // small figure are narrow). A short influence figure (under
-    // kCompactHeightIn) leaves out its title and the legend's "rows" entry,
+    // kCompactFigureHeightIn) leaves out its title and the legend's "rows" entry,
     // so its two panels keep room for their points and labels.
     void setExportLook(bool exporting, bool markSlider) override;
     void setExportSize(double widthIn, double heightIn) override;
-    static constexpr double kCompactHeightIn = 3.2;
 
 Q_SIGNALS:
     // A flagged point was clicked.

@@ -49,18 +49,12 @@ QCPItemStraightLine* verticalLine(QCustomPlot* plot, double x, const QPen& pen) 
     return l;
 }
 
-// Width of a text item's box (text and padding), in the units it is laid out in.
-double boxWidth(const QCPItemText* t) {
+// Size of a text item's box (text lines and padding), in the units it is laid out in.
+QSizeF boxSize(const QCPItemText* t) {
     const QRectF text =
         QFontMetricsF(t->font()).boundingRect(QRectF(0, 0, 0, 0), Qt::TextDontClip | t->textAlignment(), t->text());
-    return text.width() + t->padding().left() + t->padding().right();
-}
-
-// Height of a text item's box (text lines and padding).
-double boxHeight(const QCPItemText* t) {
-    const QRectF text =
-        QFontMetricsF(t->font()).boundingRect(QRectF(0, 0, 0, 0), Qt::TextDontClip | t->textAlignment(), t->text());
-    return text.height() + t->padding().top() + t->padding().bottom();
+    const QMargins pad = t->padding();
+    return {text.width() + pad.left() + pad.right(), text.height() + pad.top() + pad.bottom()};
 }
 
 // How many pixels of [top, bottom] the span [a, b] covers.
@@ -507,7 +501,7 @@ void EffectPlot::alignHandleLabel() {
     if (!handleLabel_) return;
     const QRect r = plot_->axisRect()->rect();
     const double px = plot_->xAxis->coordToPixel(current_);
-    const double half = 0.5 * boxWidth(handleLabel_);
+    const double half = 0.5 * boxSize(handleLabel_).width();
     Qt::Alignment h = Qt::AlignHCenter;
     if (r.width() > 0) {
         if (px - r.left() < half + 2) h = Qt::AlignLeft;
@@ -523,7 +517,7 @@ void EffectPlot::placeLabels() {
     QCPAxis* x = plot_->xAxis;
     // A note wider than its strip goes against the plot area's outer edge.
     for (const BeyondNote& n : beyondNotes_) {
-        const double half = 0.5 * boxWidth(n.item), mid = 0.5 * (n.from + n.to), px = x->coordToPixel(mid);
+        const double half = 0.5 * boxSize(n.item).width(), mid = 0.5 * (n.from + n.to), px = x->coordToPixel(mid);
         Qt::Alignment h = Qt::AlignHCenter;
         double at = mid;
         if (px - half < r.left()) {
@@ -535,7 +529,7 @@ void EffectPlot::placeLabels() {
         }
         // At the bottom (over the rug), else the middle or the top: wherever it covers least of
         // the curve, its band and the zero line.
-        const double w = boxWidth(n.item) + 4, hgt = boxHeight(n.item) + 10;
+        const double w = boxSize(n.item).width() + 4, hgt = boxSize(n.item).height() + 10;
         const double left = h == Qt::AlignLeft ? r.left() : h == Qt::AlignRight ? r.right() - w : px - 0.5 * w;
         const auto drawn = curvePixels(left, left + w);
         const double zero = plot_->yAxis->coordToPixel(0);
@@ -553,7 +547,7 @@ void EffectPlot::placeLabels() {
     }
     // A boundary label that would cross the edge goes to the inner side of its line.
     for (const BoundaryLabel& b : boundaryLabels_) {
-        const double w = boxWidth(b.item), px = x->coordToPixel(b.value);
+        const double w = boxSize(b.item).width(), px = x->coordToPixel(b.value);
         const double left = b.side == Qt::AlignLeft ? px : b.side == Qt::AlignRight ? px - w : px - 0.5 * w;
         Qt::Alignment h = b.side;
         if (left < r.left()) h = Qt::AlignLeft;

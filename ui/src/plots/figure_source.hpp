@@ -16,6 +16,9 @@ inline constexpr const char* kPanelCaptionName = "panel-caption";
 // kSmallTextScale times the figure's text size.
 inline constexpr const char* kSmallTextName = "small-text";
 inline constexpr double kSmallTextScale = 0.8;
+// A figure shorter than this (inches) is drawn compactly by the plots that
+// would otherwise crowd it (setExportSize).
+inline constexpr double kCompactFigureHeightIn = 3.2;
 
 class FigureSource {
 public:

@@ -187,7 +187,7 @@ void SurfacePlot::setGreyscale(bool on) {
 void SurfacePlot::setExportSize(double /*widthIn*/, double heightIn) { exportHeightIn_ = heightIn; }
 
 void SurfacePlot::setExportLook(bool exporting, bool /*markSlider*/) {
-    const bool compact = exporting && exportHeightIn_ < kCompactHeightIn;
+    const bool compact = exporting && exportHeightIn_ < kCompactFigureHeightIn;
     if (compact == compact_) return;
     compact_ = compact;
     redraw();

@@ -40,11 +40,10 @@ public:
     FigurePlot figureKind() const override { return FigurePlot::Surface; }
     QCustomPlot* figurePlot() override { return plot_; }
     void setGreyscale(bool on) override;
-    // A short figure (under kCompactHeightIn) says less over the map: the
+    // A short figure (under kCompactFigureHeightIn) says less over the map: the
     // colour scale names what is predicted, and the legend's names are brief.
     void setExportSize(double widthIn, double heightIn) override;
     void setExportLook(bool exporting, bool markSlider) override;
-    static constexpr double kCompactHeightIn = 3.2;
 
     // What is drawn (for tests and the readout).
     QCPColorMap* colorMap() const { return map_; }

@@ -708,7 +708,6 @@ LinesPlotData ProbeSection::linesPlotData() {
     return l;
 }
 
-// Crossover points inside the data.
 // Core lists the pairs of groups in order: (0,1), (0,2), ..., (1,2), ...
 std::vector<std::pair<QString, QString>> ProbeSection::pairLevels() const {
     std::vector<std::pair<QString, QString>> pairs;
@@ -735,6 +734,7 @@ std::size_t ProbeSection::pairFirst(std::size_t k) const {
     return 0;
 }
 
+// Crossover points inside the data.
 void ProbeSection::addCrossings(LinesPlotData& l, const QString& level) {
     const ProbeResult& p = engine_.probe();
     const bool groups = engine_.groups();
