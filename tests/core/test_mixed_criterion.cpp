@@ -153,16 +153,18 @@ TEST(MixedCriterion, RefusesWhatItCannotEvaluate) {
 }
 
 // The fit: our optimum is at least as good as statsmodels' own MixedLM.fit
-// (criterion >= theirs − 1e-6); where statsmodels reports convergence, the
+// (criterion >= theirs − 1e-6); where statsmodels reaches the same optimum, the
 // fixed effects agree within 1e-5, their SEs within 1e-4 (relative; the
 // usual GLS form at statsmodels' optimum) and the variance components within
 // 1e-3 (relative to the largest).
 namespace {
 
-void expect_fit_as_good(const std::string& name) {
+// Returns how many of statsmodels' fits reached our optimum and were compared in detail.
+int expect_fit_as_good(const std::string& name) {
     const MixedCase c = load_case(name);
     const MixedCrossproducts data(c.X, c.Z, c.y, c.group);
-    ASSERT_FALSE(c.doc.at("fits").empty());
+    EXPECT_FALSE(c.doc.at("fits").empty());
+    int detailed = 0;
     for (const auto& ref : c.doc.at("fits")) {  // statsmodels 0.13 MixedLM.fit, named in the fixture's "source"
         SCOPED_TRACE(name + " " + ref.at("estimation").get<std::string>() + " " +
                      ref.at("covariance").get<std::string>());
@@ -172,8 +174,10 @@ void expect_fit_as_good(const std::string& name) {
         const MixedFit fit = fit_mixed(data, o);
         EXPECT_TRUE(fit.converged);
         EXPECT_GE(fit.criterion, ref.at("criterion").get<double>() - 1e-6);
-        if (!ref.at("converged").get<bool>()) continue;  // statsmodels stopped short: only the criterion compares
-        EXPECT_NEAR(fit.criterion, ref.at("criterion").get<double>(), 1e-6);
+        // Where statsmodels stopped short of the optimum only the criterion compares. Its own
+        // "converged" flag is no guide: one build's run of the same fit says True below the optimum.
+        if (fit.criterion - ref.at("criterion").get<double>() > 1e-6) continue;
+        ++detailed;
         for (std::size_t k = 0; k < 4; ++k) {
             const auto K = static_cast<Eigen::Index>(k);
             const double b = ref.at("fixed_effects")[k].get<double>();
@@ -190,13 +194,28 @@ void expect_fit_as_good(const std::string& name) {
         EXPECT_NEAR(fit.residual_variance, ref.at("residual_variance").get<double>(), 1e-4 * fit.residual_variance);
         EXPECT_FALSE(fit.singular);
     }
+    return detailed;
 }
 
 }  // namespace
 
-TEST(MixedFit, RandomSlopeIsAtLeastAsGoodAsStatsmodels) { expect_fit_as_good("mixed_slope"); }
+// statsmodels reaches the optimum of both full random-slope fits (REML and ML): both compare in detail.
+TEST(MixedFit, RandomSlopeIsAtLeastAsGoodAsStatsmodels) { EXPECT_GE(expect_fit_as_good("mixed_slope"), 2); }
 
-TEST(MixedFit, RandomInterceptIsAtLeastAsGoodAsStatsmodels) { expect_fit_as_good("mixed_intercept"); }
+// For the random intercept MixedLM.fit can stop short; the criterion maximised over its one
+// parameter by scipy (in the fixture) is the reference for both REML and ML, to 1e-7.
+TEST(MixedFit, RandomInterceptIsAtLeastAsGoodAsStatsmodels) {
+    expect_fit_as_good("mixed_intercept");
+    const MixedCase c = load_case("mixed_intercept");
+    const MixedCrossproducts data(c.X, c.Z, c.y, c.group);
+    for (const char* key : {"reml", "ml"}) {
+        SCOPED_TRACE(key);
+        MixedFitOptions o;
+        o.estimation = std::string(key) == "reml" ? MixedEstimation::Reml : MixedEstimation::Ml;
+        EXPECT_NEAR(fit_mixed(data, o).criterion, c.doc.at("profile_maximum").at(key).at("criterion").get<double>(),
+                    1e-7);
+    }
+}
 
 // No group differs from the others (the outcome is pure noise around the
 // fixed part, the same in every group): the random-intercept variance goes
