@@ -41,6 +41,16 @@ fit: estimates a linear or logistic model with product (interaction) terms.
   --test TERM,TERM         joint Wald test of these terms (write products as A*B); repeatable
   --format json|text       output (default text; JSON fields: docs/cli-output.md)
 
+  Multilevel (linear mixed) models, rows nested in groups:
+  --groups COL             a random intercept for each group of COL
+  --random-slopes A[,B]    random slopes for these numeric predictors too
+  --estimation reml|ml     (default reml)
+  --random-covariance full|diagonal   the random effects' covariance (default full)
+  --df z|between-within|satterthwaite   df of the fixed effects' tests (default satterthwaite)
+  --centre-within A[,B]    replace A by its deviation from its group's mean
+  --group-means A[,B]      add A_group_mean (A's mean in each group) as a group-level predictor
+  --group-effects          also report each group's conditional modes
+
 probe: conditional effects of the focal predictor across the moderator, the
 region of significance (Johnson–Neyman), the simultaneous band and crossover points.
   --focal A                the predictor whose effect is probed

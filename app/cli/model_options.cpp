@@ -50,12 +50,16 @@ std::set<std::string> import_valued() {
 std::set<std::string> model_flags() {
     auto s = import_flags();
     s.insert("no-intercept");
+    s.insert("group-effects");
     return s;
 }
 std::set<std::string> model_valued() {
     auto s = import_valued();
-    for (const char* o : {"outcome", "predictors", "interaction", "poly", "family", "se", "cluster", "weights", "level",
-                          "reference", "centre", "standardise", "log", "log1p", "test", "format"})
+    for (const char* o : {"outcome", "predictors",    "interaction",   "poly",       "family",
+                          "se",      "cluster",       "weights",       "level",      "reference",
+                          "centre",  "standardise",   "log",           "log1p",      "test",
+                          "format",  "groups",        "random-slopes", "estimation", "random-covariance",
+                          "df",      "centre-within", "group-means"})
         s.insert(o);
     return s;
 }
@@ -198,6 +202,28 @@ void read_extras(const Arguments& args, ModelSpec& s) {
     if (auto th = args.get("threads")) s.threads = static_cast<unsigned>(parse_integer(*th, "threads", 1, 256));
 }
 
+// --groups, --random-slopes, --estimation, --random-covariance, --df,
+// --centre-within, --group-means, --group-effects.
+void read_multilevel(const Arguments& args, ModelSpec& s) {
+    MultilevelSpec& ml = s.multilevel;
+    if (auto g = args.get("groups")) ml.groups = *g;
+    if (auto r = args.get("random-slopes")) ml.random_slopes = split_list(*r, "random-slopes");
+    if (auto e = args.get("estimation")) ml.estimation = parse_mixed_estimation(*e);
+    if (auto c = args.get("random-covariance")) ml.covariance = parse_random_covariance(*c);
+    if (auto d = args.get("df")) ml.df = parse_fixed_effect_df(*d);
+    if (auto c = args.get("centre-within")) ml.centre_within = split_list(*c, "centre-within");
+    if (auto m = args.get("group-means")) ml.group_means = split_list(*m, "group-means");
+    ml.group_effects = args.has("group-effects");
+    if (ml.active()) return;
+    for (const char* o : {"random-slopes", "estimation", "random-covariance", "df", "centre-within", "group-means"})
+        if (args.get(o))
+            throw InputError(std::string("option --") + o +
+                             " belongs to a multilevel model; name its grouping column with --groups");
+    if (ml.group_effects)
+        throw InputError(
+            "option --group-effects belongs to a multilevel model; name its grouping column with --groups");
+}
+
 }  // namespace
 
 LoadedModel load_model(const Arguments& args) {
@@ -207,6 +233,7 @@ LoadedModel load_model(const Arguments& args) {
     read_terms(args, m.spec);
     read_estimation(args, m.spec);
     read_extras(args, m.spec);
+    read_multilevel(args, m.spec);
     return m;
 }
 

@@ -217,6 +217,18 @@ Project full_project() {
         b.figure.preset = i % 2 ? SizePreset::Slide : SizePreset::TwoColumn;
         p.analyses.push_back(b);
     }
+    // A multilevel analysis with every setting away from its default.
+    Analysis m = p.analyses.back();
+    m.id = "multilevel";
+    m.se = SeKind::Classical;
+    m.multilevel.groups = "field";
+    m.multilevel.random_slopes = {"n", "moisture"};
+    m.multilevel.estimation = MixedEstimation::Ml;
+    m.multilevel.covariance = RandomCovariance::Diagonal;
+    m.multilevel.df = FixedEffectDf::BetweenWithin;
+    m.multilevel.centre_within = {"n"};
+    m.multilevel.group_means = {"n", "moisture"};
+    p.analyses.push_back(m);
     EXPECT_TRUE(std::isnan(p.analyses[1].probe.current));
     EXPECT_TRUE(std::isnan(p.analyses[1].probe.second_value));
 
@@ -263,6 +275,7 @@ TEST(ProjectJson, EveryFieldRoundTripsExactly) {
         EXPECT_EQ(q.analyses[i].reference_levels, p.analyses[i].reference_levels);
         EXPECT_EQ(q.analyses[i].probe.adjustment, p.analyses[i].probe.adjustment);
         EXPECT_EQ(q.analyses[i].probe.extend_to_boundaries, p.analyses[i].probe.extend_to_boundaries);
+        EXPECT_TRUE(q.analyses[i].multilevel == p.analyses[i].multilevel);
     }
     // Numbers: the same bits, including the sign of zero and a subnormal.
     const auto& pinned = q.analyses[0].probe.pinned;
@@ -308,6 +321,25 @@ TEST(ProjectJson, EqualityNoticesEveryKindOfChange) {
     q = p;
     q.analyses[1].probe.jitter = false;
     EXPECT_FALSE(q == p);
+    q = p;
+    q.analyses.back().multilevel.df = FixedEffectDf::Satterthwaite;
+    EXPECT_FALSE(q == p);
+    q = p;
+    q.analyses.back().multilevel.groups.clear();
+    EXPECT_FALSE(q == p);
+}
+
+// The Groups role and the multilevel settings are written only for a
+// multilevel analysis, so single-level projects keep their bytes.
+TEST(ProjectJson, MultilevelSettingsAreWrittenOnlyWithGroups) {
+    Project p = full_project();
+    const std::string text = project_to_json(p);
+    EXPECT_NE(text.find("\"groups\": \"field\""), std::string::npos);
+    EXPECT_NE(text.find("\"df\": \"between-within\""), std::string::npos);
+    p.analyses.pop_back();
+    const std::string single = project_to_json(p);
+    EXPECT_EQ(single.find("multilevel"), std::string::npos);
+    EXPECT_EQ(single.find("\"groups\""), std::string::npos);
 }
 
 // Jitter is on by default; only "off" is written, so projects keep their bytes.

@@ -9,6 +9,7 @@
 #include <string_view>
 #include <unordered_map>
 
+#include "moderato/estimation/group_centring.hpp"
 #include "moderato/reading/column_summary.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
@@ -354,6 +355,10 @@ std::vector<std::string> used_columns(const Table& table, const ModelSpec& spec,
         column_for(table, spec.cluster, "cluster");
         use(spec.cluster);
     }
+    if (spec.multilevel.active()) {
+        column_for(table, spec.multilevel.groups, "grouping");
+        use(spec.multilevel.groups);
+    }
     return used;
 }
 
@@ -605,6 +610,27 @@ void fill_clusters(const Table& table, const ModelSpec& spec, Design& d) {
             " used rows; cluster-robust standard errors need at least 2 clusters (30 or more to be reliable)");
 }
 
+// Each used row's group, for a multilevel model; at least two groups.
+void fill_groups(const Table& table, const ModelSpec& spec, Design& d) {
+    const std::string& name = spec.multilevel.groups;
+    const GroupCodes all = group_codes(table.at(name));
+    std::vector<int> id(all.names.size(), -1);
+    d.group.resize(d.rows.size());
+    for (std::size_t i = 0; i < d.rows.size(); ++i) {
+        const auto code = static_cast<std::size_t>(all.code[d.rows[i]]);
+        if (id[code] < 0) {
+            id[code] = static_cast<int>(d.group_names.size());
+            d.group_names.push_back(all.names[code]);
+        }
+        d.group[i] = static_cast<std::size_t>(id[code]);
+    }
+    if (d.group_names.size() < 2)
+        throw InputError("grouping column " + quoted(name) + " has a single group (" + quoted(d.group_names.front()) +
+                         ") among the " + std::to_string(d.rows.size()) +
+                         " used rows; a multilevel model needs many groups (30 or more for variances and "
+                         "cross-level effects worth reporting) — choose another grouping column");
+}
+
 // 6. Checks that make a fit meaningless: a constant numeric main effect
 //    beside the intercept, and no more rows than coefficients.
 void check_estimable(const Table& table, const ModelSpec& spec, const Design& d) {
@@ -659,6 +685,11 @@ void add_notes(const std::vector<std::string>& added_notes, std::size_t table_ro
 }  // namespace
 
 Design build_design(const Table& table, const ModelSpec& spec) {
+    if (auto centred = group_centred(table, spec)) {
+        Design d = build_design(centred->table, centred->spec);
+        d.notes.insert(d.notes.begin(), centred->notes.begin(), centred->notes.end());
+        return d;
+    }
     if (spec.outcome.empty()) throw InputError("no outcome given; choose the column to explain");
     if (!(spec.level > 0 && spec.level < 1))
         throw InputError("confidence level " + exact_text(spec.level) + " is not between 0 and 1 (e.g. 0.95)");
@@ -677,6 +708,7 @@ Design build_design(const Table& table, const ModelSpec& spec) {
     fill_matrix(table, cat_map, d);
     fill_outcome_and_weights(table, spec, outcome, d);
     if (!spec.cluster.empty()) fill_clusters(table, spec, d);
+    if (spec.multilevel.active()) fill_groups(table, spec, d);
     check_estimable(table, spec, d);
     summarise(table, d);
     add_notes(added_notes, table.rows(), d);

@@ -7,6 +7,7 @@
 
 #include "estimation/covariance.hpp"
 #include "estimation/logistic_math.hpp"
+#include "estimation/mixed_model.hpp"
 #include "estimation/separation.hpp"
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/estimation/least_squares.hpp"
@@ -199,6 +200,18 @@ Inference infer(double estimate, double std_error, const FitResult& fit) {
     return r;
 }
 
+Inference infer_with_df(double estimate, double std_error, double df, double level) {
+    Inference r;
+    const double q = dist::t_quantile(0.5 + level / 2.0, df);
+    r.estimate = estimate;
+    r.std_error = std_error;
+    r.statistic = estimate / std_error;
+    r.p_value = std::isnan(r.statistic) ? kNaN : dist::two_sided_p_t(r.statistic, df);
+    r.ci_lower = estimate - q * std_error;
+    r.ci_upper = estimate + q * std_error;
+    return r;
+}
+
 int FitResult::index_of(const std::string& term) const {
     for (std::size_t j = 0; j < coefficients.size(); ++j)
         if (coefficients[j].term == term) return static_cast<int>(j);
@@ -260,24 +273,6 @@ struct Solution {
     Eigen::VectorXd score, leverage_weight;
     std::optional<detail::SeparationFinding> separation;
 };
-
-FitResult start_result(const Design& d, const ModelSpec& spec) {
-    if (spec.family == Family::Logistic && (spec.se == SeKind::HC2 || spec.se == SeKind::HC3 || spec.se == SeKind::HC4))
-        throw InputError(std::string(to_string(spec.se)) +
-                         " is not offered for logistic models; use classical (model-based), hc0 or hc1 (sandwich), "
-                         "or cluster");
-    FitResult f;
-    f.family = spec.family;
-    f.se = spec.se;
-    f.level = spec.level;
-    f.n = static_cast<std::size_t>(d.X.rows());
-    f.n_excluded = d.n_excluded;
-    f.exclusions = d.exclusions;
-    f.notes = d.notes;
-    f.n_clusters = d.n_clusters;
-    for (const auto& t : d.terms) f.terms.emplace_back(t.label, t.columns);
-    return f;
-}
 
 // The estimates: least squares (linear), Newton/IRLS (logistic); the rank.
 Solution solve(const Design& d, const ModelSpec& spec, const FitOptions& options, const LeastSquaresOptions& lso,
@@ -503,9 +498,28 @@ void add_warnings(const Design& d, const ModelSpec& spec, const Solution& s, Fit
 
 }  // namespace
 
+FitResult detail::start_result(const Design& d, const ModelSpec& spec) {
+    if (spec.family == Family::Logistic && (spec.se == SeKind::HC2 || spec.se == SeKind::HC3 || spec.se == SeKind::HC4))
+        throw InputError(std::string(to_string(spec.se)) +
+                         " is not offered for logistic models; use classical (model-based), hc0 or hc1 (sandwich), "
+                         "or cluster");
+    FitResult f;
+    f.family = spec.family;
+    f.se = spec.se;
+    f.level = spec.level;
+    f.n = static_cast<std::size_t>(d.X.rows());
+    f.n_excluded = d.n_excluded;
+    f.exclusions = d.exclusions;
+    f.notes = d.notes;
+    f.n_clusters = d.n_clusters;
+    for (const auto& t : d.terms) f.terms.emplace_back(t.label, t.columns);
+    return f;
+}
+
 FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& options) {
+    if (spec.multilevel.active()) return detail::fit_mixed_design(d, spec);
     const unsigned threads = detail::resolve_threads(spec.threads);
-    FitResult f = start_result(d, spec);
+    FitResult f = detail::start_result(d, spec);
     LeastSquaresOptions lso;
     lso.threads = threads;
     lso.extended_budget = options.extended_budget;

@@ -39,4 +39,50 @@ Family parse_family(const std::string& text) {
     throw InputError("unknown family '" + text + "'; use linear or logistic");
 }
 
+const char* to_string(MixedEstimation e) { return e == MixedEstimation::Reml ? "reml" : "ml"; }
+const char* to_string(RandomCovariance c) { return c == RandomCovariance::Full ? "full" : "diagonal"; }
+const char* to_string(FixedEffectDf d) {
+    switch (d) {
+        case FixedEffectDf::Normal:
+            return "z";
+        case FixedEffectDf::BetweenWithin:
+            return "between-within";
+        case FixedEffectDf::Satterthwaite:
+            return "satterthwaite";
+    }
+    return "?";
+}
+
+std::string df_method_text(FixedEffectDf d) {
+    switch (d) {
+        case FixedEffectDf::Normal:
+            return "z (normal)";
+        case FixedEffectDf::BetweenWithin:
+            return "between–within";
+        case FixedEffectDf::Satterthwaite:
+            return "Satterthwaite";
+    }
+    return "";
+}
+
+MixedEstimation parse_mixed_estimation(const std::string& text) {
+    for (auto e : {MixedEstimation::Reml, MixedEstimation::Ml})
+        if (text == to_string(e)) return e;
+    throw InputError("unknown estimation '" + text + "'; use reml or ml");
+}
+
+RandomCovariance parse_random_covariance(const std::string& text) {
+    for (auto c : {RandomCovariance::Full, RandomCovariance::Diagonal})
+        if (text == to_string(c)) return c;
+    throw InputError("unknown random-effects covariance '" + text + "'; use full or diagonal");
+}
+
+FixedEffectDf parse_fixed_effect_df(const std::string& text) {
+    for (auto d : {FixedEffectDf::Normal, FixedEffectDf::BetweenWithin, FixedEffectDf::Satterthwaite})
+        if (text == to_string(d)) return d;
+    throw InputError("unknown degrees of freedom '" + text + "'; use z, between-within or satterthwaite");
+}
+
+std::string group_mean_name(const std::string& column) { return column + "_group_mean"; }
+
 }  // namespace moderato

@@ -6,6 +6,7 @@
 #include <map>
 
 #include "moderato/estimation/distributions.hpp"
+#include "moderato/probing/multilevel_probe.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
@@ -379,6 +380,7 @@ void refresh_cautions(ProbeResult& r, const FitResult& fit) {
             "On the log-odds scale a product coefficient is not the interaction on the probability "
             "scale; use the probability scale to describe effects on P(" +
             r.outcome + " = 1).");
+    for (auto& c : multilevel_cautions(fit, r)) r.cautions.push_back(std::move(c));
     if (r.scale == ProbeScale::Outcome)
         r.cautions.push_back(
             "On the probability scale an effect depends on the values of every other predictor; "
@@ -635,6 +637,8 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     r.categorical_moderator = cat != nullptr;
     if (cat) probe_groups(d, fit, spec, *cat, values, r);
     else probe_numeric(d, fit, spec, values, r);
+    r.group_slopes = group_slope_spread(fit, spec.focal);
+    add_multilevel_notes(fit, r);
     refresh_cautions(r, fit);
     return r;
 }

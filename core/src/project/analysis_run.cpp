@@ -94,7 +94,7 @@ void probe_analysis(AnalysisRun& run, const Analysis& a) {
 
 bool same_model(const Analysis& a, const Analysis& b) {
     return a.dataset == b.dataset && a.roles == b.roles && a.family == b.family && a.se == b.se && a.level == b.level &&
-           a.centring == b.centring && a.reference_levels == b.reference_levels;
+           a.centring == b.centring && a.reference_levels == b.reference_levels && a.multilevel == b.multilevel;
 }
 
 bool same_probe(const Analysis& a, const Analysis& b) {
@@ -115,6 +115,7 @@ AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a) 
     for (const auto& c : a.roles.controls) require_column(t, a, "Controls", c);
     require_column(t, a, "Weights", a.roles.weights);
     require_column(t, a, "Clusters", a.roles.clusters);
+    require_column(t, a, "Groups", a.multilevel.groups);
     if (a.se == SeKind::Cluster && a.roles.clusters.empty())
         throw InputError("analysis " + quoted(a.name) +
                          ": cluster-robust standard errors need a Clusters column; drop one in the Clusters slot");
@@ -135,6 +136,9 @@ AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a) 
         std::set<std::string> used{a.roles.outcome,          a.roles.focal,   a.roles.moderator,
                                    a.roles.second_moderator, a.roles.weights, a.roles.clusters};
         used.insert(a.roles.controls.begin(), a.roles.controls.end());
+        used.insert(a.multilevel.groups);
+        used.insert(a.multilevel.centre_within.begin(), a.multilevel.centre_within.end());
+        used.insert(a.multilevel.group_means.begin(), a.multilevel.group_means.end());
         for (const Column& c : t.columns)
             if (used.count(c.name)) centred.columns.push_back(c);
         std::map<std::string, std::string> names;

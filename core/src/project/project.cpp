@@ -74,6 +74,12 @@ constexpr Word<ProbeScale> kScaleWords[] = {{ProbeScale::Model, "model"}, {Probe
 constexpr Word<Adjustment> kAdjustmentWords[] = {
     {Adjustment::Holm, "holm"}, {Adjustment::Bonferroni, "bonferroni"}, {Adjustment::None, "none"}};
 constexpr Word<Averaging> kAveragingWords[] = {{Averaging::Sample, "sample"}, {Averaging::AtValues, "values"}};
+constexpr Word<MixedEstimation> kEstimationWords[] = {{MixedEstimation::Reml, "reml"}, {MixedEstimation::Ml, "ml"}};
+constexpr Word<RandomCovariance> kRandomCovarianceWords[] = {{RandomCovariance::Full, "full"},
+                                                             {RandomCovariance::Diagonal, "diagonal"}};
+constexpr Word<FixedEffectDf> kDfWords[] = {{FixedEffectDf::Satterthwaite, "satterthwaite"},
+                                            {FixedEffectDf::BetweenWithin, "between-within"},
+                                            {FixedEffectDf::Normal, "z"}};
 constexpr Word<Family> kFamilyWords[] = {{Family::Linear, "linear"}, {Family::Logistic, "logistic"}};
 constexpr Word<SeKind> kSeWords[] = {{SeKind::Classical, "model-based"},
                                      {SeKind::HC0, "hc0"},
@@ -298,6 +304,16 @@ json analysis_to_json(const Analysis& a) {
     // Written only when there are notes, so projects without them keep their bytes.
     if (!a.memo_notes.empty()) j["memo_notes"] = a.memo_notes;
     if (!a.reference_levels.empty()) j["reference_levels"] = a.reference_levels;
+    if (a.multilevel.active()) {
+        const MultilevelSpec& m = a.multilevel;
+        j["roles"]["groups"] = m.groups;
+        j["multilevel"] = json{{"random_slopes", m.random_slopes},
+                               {"estimation", word_of(kEstimationWords, m.estimation)},
+                               {"random_covariance", word_of(kRandomCovarianceWords, m.covariance)},
+                               {"df", word_of(kDfWords, m.df)},
+                               {"centre_within", m.centre_within},
+                               {"group_means", m.group_means}};
+    }
     return j;
 }
 
@@ -431,6 +447,21 @@ FigureSettings read_figure(const Reader& r, const json& j, const std::string& wh
     return f;
 }
 
+// The Groups role and the multilevel settings (defaults when absent).
+MultilevelSpec read_multilevel(const Reader& r, const json& j, const std::string& where) {
+    MultilevelSpec m;
+    m.groups = r.text(r.object(j, "roles", where, false), "groups", where + ".roles", false);
+    const json& ml = r.object(j, "multilevel", where, false);
+    const std::string mw = where + ".multilevel";
+    m.random_slopes = r.texts(ml, "random_slopes", mw);
+    m.estimation = r.choice(ml, "estimation", mw, kEstimationWords, std::optional(MixedEstimation::Reml));
+    m.covariance = r.choice(ml, "random_covariance", mw, kRandomCovarianceWords, std::optional(RandomCovariance::Full));
+    m.df = r.choice(ml, "df", mw, kDfWords, std::optional(FixedEffectDf::Satterthwaite));
+    m.centre_within = r.texts(ml, "centre_within", mw);
+    m.group_means = r.texts(ml, "group_means", mw);
+    return m;
+}
+
 Analysis read_analysis(const Reader& r, const json& j, const std::string& where, const Project& p) {
     if (!j.is_object()) r.fail(where, "expected an object");
     Analysis a;
@@ -440,6 +471,7 @@ Analysis read_analysis(const Reader& r, const json& j, const std::string& where,
     if (!p.dataset(a.dataset)) r.fail(where + ".dataset", "no dataset has the id \"" + a.dataset + "\"");
     if (p.analysis(a.id)) r.fail(where + ".id", "the id \"" + a.id + "\" is used twice");
     a.roles = read_roles(r, j, where);
+    a.multilevel = read_multilevel(r, j, where);
     a.family = r.choice(j, "family", where, kFamilyWords, std::optional(Family::Linear));
     a.se = r.choice(j, "standard_errors", where, kSeWords, std::optional(SeKind::Classical));
     a.level = r.number(j, "level", where, 0.95);
@@ -504,7 +536,7 @@ bool Project::operator==(const Project& o) const {
 bool Analysis::operator==(const Analysis& o) const {
     return id == o.id && name == o.name && dataset == o.dataset && roles == o.roles && family == o.family &&
            se == o.se && level == o.level && centring == o.centring && reference_levels == o.reference_levels &&
-           probe == o.probe && figure == o.figure && memo_notes == o.memo_notes;
+           multilevel == o.multilevel && probe == o.probe && figure == o.figure && memo_notes == o.memo_notes;
 }
 
 const DataSource* Project::dataset(const std::string& id) const {
@@ -631,6 +663,8 @@ ModelSpec model_spec(const Analysis& a, const std::map<std::string, std::string>
         if (w.empty()) spec.interactions.push_back({f, m});
         else spec.interactions.push_back({f, m, w});
     }
+    spec.multilevel = a.multilevel;
+    for (auto& s : spec.multilevel.random_slopes) s = name(s);
     // A reference level chosen for a column that has since left the model is kept for when it returns.
     for (const auto& [column, level] : a.reference_levels)
         if (std::find(spec.predictors.begin(), spec.predictors.end(), column) != spec.predictors.end())

@@ -6,6 +6,7 @@
 #include <limits>
 #include <sstream>
 
+#include "moderato/reporting/multilevel_report.hpp"
 #include "moderato/reporting/output_json.hpp"
 #include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
@@ -51,6 +52,7 @@ void write_model(JsonWriter& w, const FitResult& f) {
     w.field("residual_df", f.df_residual);
     w.field("test_df", f.df_inference);
     w.field("critical_value", f.critical_value);
+    write_multilevel_fields(w, f);
 }
 
 void write_terms(JsonWriter& w, const FitResult& f) {
@@ -60,6 +62,7 @@ void write_terms(JsonWriter& w, const FitResult& f) {
         w.field("name", c.term);
         write_inference(w, c);
         w.field("vif", c.vif);
+        if (f.multilevel) w.field("df", c.df);
         w.end_object();
     }
     w.end_array();
@@ -100,11 +103,11 @@ void write_comparison(JsonWriter& w, const FitResult& f) {
     const auto& c = *f.comparison;
     w.key("without_products").begin_object();
     write_texts(w, "dropped_terms", c.dropped_terms);
-    if (f.family == Family::Linear) {
+    if (!f.multilevel && f.family == Family::Linear) {
         w.field("r2_without", c.r_squared_reduced);
         w.field("r2_change", c.r_squared_change);
         write_test(w, "test", "F", c.f_statistic, c.df1, c.df2, c.p_value);
-    } else {
+    } else if (!f.multilevel) {
         write_test(w, "test", "chi-square", c.lr_statistic, c.df1, std::numeric_limits<double>::infinity(),
                    c.lr_p_value);
     }
@@ -119,7 +122,7 @@ void write_comparison(JsonWriter& w, const FitResult& f) {
 // with trailing zeros, U+2212 minus, "—" for NaN, ∞.
 std::string num(double v) { return format_sig(v); }
 
-std::string df_text(double df) { return std::isinf(df) ? "inf" : exact_text(df); }
+std::string df_text(double df) { return format_df(df); }
 
 std::size_t width(const std::string& s) { return detail::display_width(s); }
 
@@ -141,8 +144,10 @@ std::string pad_right(const std::string& s, std::size_t w) {
 
 void write_heading(std::ostringstream& o, const FitResult& f, const std::string& outcome) {
     const bool linear = f.family == Family::Linear;
-    o << (linear ? "Linear model" : "Logistic model") << " of " << outcome
-      << (linear ? "" : " (probability that " + outcome + " = 1, log-odds scale)") << "\n";
+    o << (f.multilevel ? "Multilevel linear model"
+          : linear     ? "Linear model"
+                       : "Logistic model")
+      << " of " << outcome << (linear ? "" : " (probability that " + outcome + " = 1, log-odds scale)") << "\n";
     const auto count = [](std::size_t k) { return format_count(static_cast<long long>(k)); };
     o << "n = " << count(f.n) << " rows used";
     if (f.n_excluded > 0) {
@@ -154,25 +159,37 @@ void write_heading(std::ostringstream& o, const FitResult& f, const std::string&
     o << "\n";
     o << "Standard errors: " << standard_errors_text(f.se);
     if (f.se == SeKind::Cluster) o << ", " << f.n_clusters << " clusters";
-    o << " · " << level_text(f.level) << " intervals · "
-      << (std::isinf(f.df_inference) ? std::string("z (normal)") : "t with " + df_text(f.df_inference) + " df")
-      << "\n\n";
+    o << " · " << level_text(f.level) << " intervals · ";
+    if (f.multilevel && f.multilevel->df != FixedEffectDf::Normal)
+        o << "t with " << df_method_text(f.multilevel->df) << " df for each term (probing: " << df_text(f.df_inference)
+          << ")";
+    else o << (std::isinf(f.df_inference) ? std::string("z (normal)") : "t with " + df_text(f.df_inference) + " df");
+    o << "\n\n";
 }
 
 // One line per term: value, interval, SE, test value, p (the order of every
 // estimate table of ours), then the VIF.
 void write_term_table(std::ostringstream& o, const FitResult& f) {
-    const std::vector<std::string> head{"term", "value", level_text(f.level) + " low",
-                                        "high", "SE",    f.family == Family::Linear ? "t" : "z",
-                                        "p",    "VIF"};
+    const std::vector<std::string> head{"term",
+                                        "value",
+                                        level_text(f.level) + " low",
+                                        "high",
+                                        "SE",
+                                        f.family == Family::Linear ? "t" : "z",
+                                        "p",
+                                        f.multilevel ? "df" : "VIF"};
     std::vector<std::vector<std::string>> rows;
+    const bool own_df = f.multilevel.has_value();
     for (const auto& c : f.coefficients) {
         if (c.aliased) {
             rows.push_back({c.term, "not estimated", "", "", "", "", "", ""});
             continue;
         }
         rows.push_back({c.term, num(c.estimate), num(c.ci_lower), num(c.ci_upper), num(c.std_error), num(c.statistic),
-                        format_p_value(c.p_value), std::isnan(c.vif) ? "" : num(c.vif)});
+                        format_p_value(c.p_value),
+                        own_df              ? df_text(c.df)
+                        : std::isnan(c.vif) ? ""
+                                            : num(c.vif)});
     }
     std::vector<std::size_t> wid(head.size());
     for (std::size_t k = 0; k < head.size(); ++k) {
@@ -190,7 +207,12 @@ void write_term_table(std::ostringstream& o, const FitResult& f) {
 }
 
 void write_fit_statistics_text(std::ostringstream& o, const FitResult& f) {
-    if (f.family == Family::Linear) {
+    if (f.multilevel) {
+        o << "residual SD " << num(f.residual_sd) << "\n";
+        if (f.f_df1 > 0)
+            o << "All terms: Wald F(" << df_text(f.f_df1) << ", " << df_text(f.f_df2) << ") = " << num(f.f_statistic)
+              << ", " << p_clause(f.f_p_value) << "\n";
+    } else if (f.family == Family::Linear) {
         o << "R² " << num(f.r_squared) << " · adjusted R² " << num(f.adj_r_squared) << " · residual SD "
           << num(f.residual_sd) << "\n";
         if (f.f_df1 > 0)
@@ -203,18 +225,19 @@ void write_fit_statistics_text(std::ostringstream& o, const FitResult& f) {
           << p_clause(f.lr_p_value) << " · " << f.iterations << " iterations" << (f.converged ? "" : " (not converged)")
           << "\n";
     }
-    o << "log-likelihood " << num(f.log_likelihood) << " · AIC " << num(f.aic) << " · BIC " << num(f.bic) << "\n";
+    o << (f.multilevel && f.multilevel->estimation == MixedEstimation::Reml ? "REML criterion " : "log-likelihood ")
+      << num(f.log_likelihood) << " · AIC " << num(f.aic) << " · BIC " << num(f.bic) << "\n";
 }
 
 void write_tests_text(std::ostringstream& o, const FitResult& f) {
     if (f.comparison) {
         const auto& c = *f.comparison;
         o << "\nWithout the product terms (" << detail::join(c.dropped_terms, ", ") << "):\n";
-        if (f.family == Family::Linear)
+        if (!f.multilevel && f.family == Family::Linear)
             o << "  R² " << num(c.r_squared_reduced) << ", change " << num(c.r_squared_change) << "; F("
               << df_text(c.df1) << ", " << df_text(c.df2) << ") = " << num(c.f_statistic) << ", " << p_clause(c.p_value)
               << "\n";
-        else
+        else if (!f.multilevel)
             o << "  likelihood-ratio χ²(" << df_text(c.df1) << ") = " << num(c.lr_statistic) << ", "
               << p_clause(c.lr_p_value) << "\n";
         o << "  Wald test with " << standard_errors_text(f.se) << " standard errors: " << wald_text(c.wald) << "\n";
@@ -287,6 +310,7 @@ std::string fit_to_text(const FitResult& f, const std::string& outcome) {
     write_heading(o, f, outcome);
     write_term_table(o, f);
     write_fit_statistics_text(o, f);
+    o << multilevel_text(f);
     write_tests_text(o, f);
     write_notes_text(o, f);
     return o.str();

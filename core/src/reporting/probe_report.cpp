@@ -55,6 +55,15 @@ void write_setting(JsonWriter& w, const ProbeResult& r) {
         w.end_array();
         w.field("values_from", points_name(r.points));
     }
+    w.key("group_slopes");
+    if (!r.group_slopes) {
+        w.null();
+        return;
+    }
+    w.begin_object();
+    w.field("sd", r.group_slopes->sd);
+    w.field("critical_value", r.group_slopes->critical_value);
+    w.end_object();
 }
 
 void write_effects_at(JsonWriter& w, const ProbeResult& r) {
@@ -181,7 +190,7 @@ void write_heading(std::ostringstream& o, const ProbeResult& r, const FitResult&
     o << "Effect of " << r.focal << " at chosen values of " << r.moderator
       << (outcome ? " (probability scale)" : (fit.family == Family::Logistic ? " (log-odds scale)" : "")) << "\n";
     o << "Standard errors: " << standard_errors_text(fit.se) << " · " << level_text(r.level) << " intervals · "
-      << (std::isinf(r.df) ? std::string("z") : "t with " + exact_text(r.df) + " df") << " · n = " << fit.n << "\n";
+      << (std::isinf(r.df) ? std::string("z") : "t with " + format_df(r.df) + " df") << " · n = " << fit.n << "\n";
     if (!r.categorical_moderator)
         o << r.moderator << " observed from " << format_range(r.observed_range.first, r.observed_range.second)
           << " (mean " << num(r.moderator_mean) << ", SD " << num(r.moderator_sd) << ")\n";
@@ -207,6 +216,10 @@ void write_effects_table(std::ostringstream& o, const ProbeResult& r) {
         beyond |= e.beyond_data;
     }
     if (beyond) o << "  * beyond the data (extrapolation)\n";
+    if (r.group_slopes)
+        o << "  groups' own slopes of " << r.focal << ": the effect ± "
+          << num(r.group_slopes->critical_value * r.group_slopes->sd) << " holds " << level_text(r.level)
+          << " of groups (random slope SD " << num(r.group_slopes->sd) << ")\n";
 }
 
 void write_regions_text(std::ostringstream& o, const ProbeResult& r) {

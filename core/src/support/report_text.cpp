@@ -180,4 +180,9 @@ std::string superscript_text(int n) {
     return digits_of(n, digits, "\xE2\x81\xBB");  // superscript minus U+207B
 }
 
+std::string format_df(double df) {
+    if (std::isinf(df)) return "inf";
+    return df == std::round(df) ? exact_text(df) : format_sig(df);
+}
+
 }  // namespace moderato

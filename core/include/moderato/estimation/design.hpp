@@ -87,6 +87,10 @@ struct Design {
     std::vector<int> cluster;  // n cluster codes 0..G-1, or empty
     int n_clusters = 0;
     std::vector<std::string> cluster_names;  // G
+    // Multilevel models: each used row's group 0..G-1 (in order of first
+    // appearance) and the groups' names; empty for a single-level model.
+    std::vector<std::size_t> group;
+    std::vector<std::string> group_names;
     bool intercept = true;
     std::vector<DesignColumn> columns;
     std::vector<DesignTerm> terms;
@@ -124,7 +128,8 @@ struct Design {
 // Throws InputError for: unknown columns, non-numeric outcome, logistic
 // outcome not 0/1, a categorical column raised to a power, constant
 // predictors (with an intercept), weights <= 0 or non-numeric, a single
-// cluster, no complete rows, and n <= p.
+// cluster or group, no complete rows, and n <= p. A multilevel model's
+// centring options are applied first (group_centring.hpp).
 Design build_design(const Table& table, const ModelSpec& spec);
 
 // Sorted levels of a categorical column as the model uses them (numeric-looking

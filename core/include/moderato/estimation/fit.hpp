@@ -4,6 +4,7 @@
 #pragma once
 
 #include <Eigen/Dense>
+#include <limits>
 #include <optional>
 #include <string>
 #include <vector>
@@ -11,6 +12,7 @@
 #include "moderato/estimation/design.hpp"
 #include "moderato/estimation/inference.hpp"
 #include "moderato/estimation/model.hpp"
+#include "moderato/estimation/multilevel_result.hpp"
 #include "moderato/reading/table.hpp"
 
 namespace moderato {
@@ -19,6 +21,7 @@ struct Coefficient : Inference {
     std::string term;
     bool aliased = false;  // estimate and the rest are NaN when aliased
     double vif = 0;        // NaN where it does not apply (intercept, no-intercept model, aliased)
+    double df = std::numeric_limits<double>::quiet_NaN();  // its own test df (multilevel fits); NaN: the fit's
 };
 
 struct WaldTest {
@@ -75,6 +78,9 @@ struct FitResult {
     std::vector<std::string> notes;
     std::vector<std::string> warnings;
     bool extended_precision = false;
+    // Multilevel fits: the random part. df_inference is then the df used
+    // for probing (that of the product terms under the chosen rule).
+    std::optional<MultilevelResult> multilevel;
 
     Eigen::VectorXd fitted;     // linear predictor scale (probabilities for logistic)
     Eigen::VectorXd residuals;  // y - fitted (response residuals)
@@ -96,10 +102,13 @@ struct FitOptions {
 // `estimate` with its standard error, tested with the fit's reference
 // distribution (t with df_inference, or z) at the fit's level.
 Inference infer(double estimate, double std_error, const FitResult& fit);
+// The same with its own df (inf: z).
+Inference infer_with_df(double estimate, double std_error, double df, double level);
 
 // Builds the design and fits it. Throws InputError for bad specifications.
 FitResult fit_model(const Table& table, const ModelSpec& spec, const FitOptions& options = {});
-// Fits a design already built.
+// Fits a design already built (a multilevel model when the specification
+// names groups).
 FitResult fit_design(const Design& design, const ModelSpec& spec, const FitOptions& options = {});
 
 // Joint Wald test that the named coefficients are all zero, with the fit's

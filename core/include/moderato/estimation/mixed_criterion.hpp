@@ -21,9 +21,9 @@
 #include <cstddef>
 #include <vector>
 
-namespace moderato {
+#include "moderato/estimation/model.hpp"
 
-enum class MixedEstimation { Reml, Ml };
+namespace moderato {
 
 // Each group's cross-products of [X Z y], made once from the rows.
 class MixedCrossproducts {

@@ -15,8 +15,6 @@
 
 namespace moderato {
 
-enum class RandomCovariance { Full, Diagonal };
-
 struct MixedFitOptions {
     MixedEstimation estimation = MixedEstimation::Reml;
     RandomCovariance covariance = RandomCovariance::Full;

@@ -10,12 +10,48 @@ namespace moderato {
 
 enum class Family { Linear, Logistic };
 enum class SeKind { Classical, HC0, HC1, HC2, HC3, HC4, Cluster };
+// Multilevel (linear mixed) models: how the variance components are
+// estimated, the shape of the random-effects covariance, and the degrees of
+// freedom the fixed effects are tested with.
+enum class MixedEstimation { Reml, Ml };
+enum class RandomCovariance { Full, Diagonal };
+enum class FixedEffectDf { Normal, BetweenWithin, Satterthwaite };
 
 const char* to_string(Family f);
 const char* to_string(SeKind s);  // "classical", "hc0", ..., "cluster"
 // Parse "classical", "hc0".."hc4", "cluster"; InputError otherwise.
 SeKind parse_se_kind(const std::string& text);
 Family parse_family(const std::string& text);
+const char* to_string(MixedEstimation e);   // "reml", "ml"
+const char* to_string(RandomCovariance c);  // "full", "diagonal"
+const char* to_string(FixedEffectDf d);     // "z", "between-within", "satterthwaite"
+// "Satterthwaite", "between–within" or "z (normal)" for readers.
+std::string df_method_text(FixedEffectDf d);
+MixedEstimation parse_mixed_estimation(const std::string& text);
+RandomCovariance parse_random_covariance(const std::string& text);
+FixedEffectDf parse_fixed_effect_df(const std::string& text);
+
+// A multilevel model: rows nested in the groups of one column, a random
+// intercept per group plus random slopes for the named numeric predictors.
+// Group-mean centring replaces a level-1 column by its deviation from its
+// group's mean; a group-means column "COL_group_mean" (the mean over the
+// group's rows the model uses) joins the predictors as a level-2 column.
+struct MultilevelSpec {
+    std::string groups;  // empty: a single-level model
+    std::vector<std::string> random_slopes;
+    MixedEstimation estimation = MixedEstimation::Reml;
+    RandomCovariance covariance = RandomCovariance::Full;
+    FixedEffectDf df = FixedEffectDf::Satterthwaite;
+    std::vector<std::string> centre_within;
+    std::vector<std::string> group_means;
+    bool group_effects = false;  // report each group's conditional modes
+
+    bool active() const { return !groups.empty(); }
+    bool operator==(const MultilevelSpec&) const = default;
+};
+
+// The name of the column holding a column's group means.
+std::string group_mean_name(const std::string& column);
 
 struct ModelSpec {
     std::string outcome;
@@ -31,6 +67,7 @@ struct ModelSpec {
     std::map<std::string, std::string> reference_levels;  // categorical column -> reference level
     std::vector<std::vector<std::string>> wald_tests;     // sets of term labels to test jointly
     unsigned threads = 0;                                 // 0: all hardware threads
+    MultilevelSpec multilevel;
 };
 
 }  // namespace moderato

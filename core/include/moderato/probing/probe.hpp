@@ -152,6 +152,15 @@ struct InteractionEffect : Inference {
 // values were given.
 enum class ProbePoints { MeanSd, Percentiles, ZeroOne, Chosen };
 
+// A multilevel fit with a random slope for the focal predictor: each
+// group's own slope varies around the conditional effect (the fixed part,
+// a typical group's) with the random slope's SD, so a new group's slope
+// falls within effect ± critical_value × sd with the result's probability
+// (critical_value: the normal quantile).
+struct GroupSlopeSpread {
+    double sd = 0, critical_value = 0;
+};
+
 struct ProbeResult {
     std::string outcome, focal, moderator;
     ProbeScale scale = ProbeScale::Model;                 // Outcome: the probability scale
@@ -183,6 +192,7 @@ struct ProbeResult {
     std::vector<std::string> notes;
     std::vector<std::string> cautions;  // what a reader must not overlook
     EffectFunction effect_function;     // for plots and the slider
+    std::optional<GroupSlopeSpread> group_slopes;
 };
 
 // Whether a numeric moderator's default values are its percentiles rather

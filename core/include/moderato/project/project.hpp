@@ -173,6 +173,9 @@ struct Analysis {
     // Categorical column -> its reference level; a column not listed uses
     // its first level in text order (written only when not empty).
     std::map<std::string, std::string> reference_levels;
+    // A multilevel model: its "groups" is the Groups role (written, with the
+    // rest, only when a Groups column is chosen).
+    MultilevelSpec multilevel;
     ProbeSettings probe;
     FigureSettings figure;
     std::string memo_notes;  // the analyst's own words, printed at the top of the memo

@@ -37,6 +37,9 @@ std::string format_p_value(double p);
 // "p = 0.023" or "p < 0.001".
 std::string p_clause(double p);
 // 1200 -> "1,200"; −1200 -> "−1,200".
+// Degrees of freedom: whole ones as they are ("475"), approximate ones
+// (Satterthwaite's) to four significant digits ("27.19"), "inf" for none.
+std::string format_df(double df);
 std::string format_count(long long n);
 // 0.95 -> "95%" (0.9 -> "90%", 0.995 -> "99.5%").
 std::string level_text(double level);
