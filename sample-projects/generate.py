@@ -127,9 +127,32 @@ def turbine_repairs(rng):
           ["repair_hours", "experience_years", "site", "wind_ms", "turbine_age", "crew"], rows)
 
 
+def warehouse_picking(rng):
+    """Order pickers' items per hour by their weeks on the job, in 60
+    warehouses that differ in how many of their aisles are automated (%).
+    Experience pays off less where more of the work is automated: a
+    cross-level interaction. Warehouses differ in their level and in how
+    fast their pickers learn (a random intercept and a random slope); they
+    employ 4 to 40 pickers; a few shift records are missing ("NA")."""
+    rows = []
+    for w in range(60):
+        automation = round(rng.uniform(0, 80), 0)
+        level, learning = rng.gauss(0, 6.0), rng.gauss(0, 0.05)
+        for _ in range(rng.randint(4, 40)):
+            weeks = round(rng.uniform(1, 104), 0)
+            night = 1 if rng.random() < 0.3 else 0
+            items = (92 + 0.30 * automation + (0.42 + learning) * weeks - 0.0045 * weeks * automation
+                     - 4.0 * night + level + rng.gauss(0, 9))
+            rows.append([f"{items:.1f}", f"{weeks:.0f}", "NA" if rng.random() < 0.01 else ("night" if night else "day"),
+                         f"{automation:.0f}", f"wh{w + 1:02d}"])
+    rng.shuffle(rows)
+    write("warehouse-picking", "pickers.csv",
+          ["items_per_hour", "weeks_on_job", "shift", "automation_pct", "warehouse"], rows)
+
+
 def analysis(id_, name, dataset, outcome, focal, moderator, controls=(), family="linear", se="model-based",
-             scale="model", pinned=(), clusters=""):
-    return {
+             scale="model", pinned=(), clusters="", groups="", random_slopes=()):
+    out = {
         "id": id_, "name": name, "dataset": dataset,
         "roles": {"outcome": outcome, "focal": focal, "moderator": moderator, "second_moderator": "",
                   "controls": list(controls), "weights": "", "clusters": clusters},
@@ -139,6 +162,11 @@ def analysis(id_, name, dataset, outcome, focal, moderator, controls=(), family=
         "figure": {"preset": "memo", "width_in": 6.5, "height_in": 4.0, "dpi": 300, "font_family": "DejaVu Sans",
                    "font_pt": 9, "greyscale": False, "caption": True},
     }
+    if groups:  # a multilevel model: the Groups role and its settings, as the program writes them
+        out["roles"]["groups"] = groups
+        out["multilevel"] = {"random_slopes": list(random_slopes), "estimation": "reml", "random_covariance": "full",
+                             "df": "satterthwaite", "centre_within": [], "group_means": []}
+    return out
 
 
 def write_project(folder, data_name, dataset_id, analyses, missing=("", "NA", "NaN", "."), kept=("lines", "Lines plot")):
@@ -187,11 +215,15 @@ def write_projects():
                  controls=["wind_ms", "turbine_age"], se="cluster-robust", clusters="crew"),
         analysis("experience-wind", "experience × wind", "visits", "repair_hours", "experience_years", "wind_ms",
                  controls=["site", "turbine_age"], se="cluster-robust", clusters="crew")])
+    write_project("warehouse-picking", "pickers.csv", "pickers", [
+        analysis("weeks-automation", "weeks on the job × automation", "pickers", "items_per_hour", "weeks_on_job",
+                 "automation_pct", controls=["shift"], groups="warehouse", random_slopes=["weeks_on_job"])])
 
 
 def main():
     for seed, scenario in enumerate([coffee_discount, orchard_nitrogen, volunteer_onboarding,
-                                     helpdesk_staffing, trial_conversion, turbine_repairs], start=20261):
+                                     helpdesk_staffing, trial_conversion, turbine_repairs, warehouse_picking],
+                                    start=20261):
         scenario(random.Random(seed))
     write_projects()
 
