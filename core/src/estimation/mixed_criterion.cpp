@@ -5,6 +5,8 @@
 #include <numbers>
 #include <stdexcept>
 
+#include "support/parallel.hpp"
+
 namespace moderato {
 
 MixedCrossproducts::MixedCrossproducts(const Eigen::MatrixXd& X, const Eigen::MatrixXd& Z, const Eigen::VectorXd& y,
@@ -29,29 +31,91 @@ MixedCrossproducts::MixedCrossproducts(const Eigen::MatrixXd& X, const Eigen::Ma
         b.Xty += x * y[r];
         b.yty += y[r] * y[r];
     }
+    xtx_ = Eigen::MatrixXd::Zero(p_, p_);
+    xty_ = Eigen::VectorXd::Zero(p_);
+    for (const Block& b : blocks_) {
+        xtx_ += b.XtX;
+        xty_ += b.Xty;
+        yty_ += b.yty;
+    }
 }
+
+namespace {
+
+// Over a range of groups: S = sum of B'B with B = R^-1 L' [Z'X Z'y] and
+// R R' = M = I + L' Z'Z L, so that (Woodbury, V^-1 = I - Z L M^-1 L' Z')
+//   [X y]' V^-1 [X y] = sum [X y]'[X y] - S,
+// and log|V| = sum log|M|. Q: the number of random effects when it is
+// small and known at compile time (no allocation per group), else Dynamic.
+struct GroupSums {
+    Eigen::MatrixXd S;  // (p + 1) x (p + 1)
+    double logdet = 0;
+};
+
+template <int Q>
+GroupSums group_sums(const MixedCrossproducts& data, const Eigen::MatrixXd& L_, std::size_t from, std::size_t to) {
+    const Eigen::Index p = data.fixed_columns(), q = data.random_columns();
+    using Square = Eigen::Matrix<double, Q, Q>;
+    using Wide = Eigen::Matrix<double, Q, Eigen::Dynamic>;
+    GroupSums s{Eigen::MatrixXd::Zero(p + 1, p + 1)};
+    const Square L = L_, Lt = L_.transpose();
+    Square M(q, q);
+    Wide W(q, p + 1);
+    Eigen::LLT<Square> chol(q);
+    for (std::size_t g = from; g < to; ++g) {
+        const MixedCrossproducts::Block& b = data.blocks()[g];
+        M.noalias() = Lt * (b.ZtZ * L);
+        M.diagonal().array() += 1;
+        chol.compute(M);  // M >= I: always positive definite
+        W.leftCols(p).noalias() = Lt * b.ZtX;
+        W.col(p).noalias() = Lt * b.Zty;
+        chol.matrixL().solveInPlace(W);
+        s.S.noalias() += W.transpose() * W;
+        s.logdet += 2 * chol.matrixLLT().diagonal().array().log().sum();
+    }
+    return s;
+}
+
+GroupSums group_sums_any(const MixedCrossproducts& data, const Eigen::MatrixXd& L, std::size_t from, std::size_t to) {
+    switch (data.random_columns()) {
+        case 1:
+            return group_sums<1>(data, L, from, to);
+        case 2:
+            return group_sums<2>(data, L, from, to);
+        case 3:
+            return group_sums<3>(data, L, from, to);
+        default:
+            return group_sums<Eigen::Dynamic>(data, L, from, to);
+    }
+}
+
+// The sums over all groups, in fixed blocks reduced in order: the same
+// numbers on any number of threads.
+GroupSums all_group_sums(const MixedCrossproducts& data, const Eigen::MatrixXd& L) {
+    constexpr std::size_t kBlock = 2048;
+    const std::size_t G = data.groups(), blocks = (G + kBlock - 1) / kBlock;
+    if (blocks <= 1) return group_sums_any(data, L, 0, G);
+    const Eigen::Index k = data.fixed_columns() + 1;
+    GroupSums total{Eigen::MatrixXd::Zero(k, k)};
+    detail::map_reduce_ordered<GroupSums>(
+        blocks, data.threads,
+        [&](std::size_t i) { return group_sums_any(data, L, i * kBlock, std::min(G, (i + 1) * kBlock)); },
+        [&](std::size_t, GroupSums s) {
+            total.S += s.S;
+            total.logdet += s.logdet;
+        });
+    return total;
+}
+
+}  // namespace
 
 MixedCriterion mixed_criterion(const MixedCrossproducts& data, const Eigen::MatrixXd& L, MixedEstimation estimation) {
     const Eigen::Index p = data.fixed_columns(), q = data.random_columns();
     if (L.rows() != q || L.cols() != q) throw std::invalid_argument("mixed model: L is not q x q");
-    // Per group, with M = I + L' Z'Z L: V^-1 = I - Z L M^-1 L' Z' and log|V| = log|M|.
-    Eigen::MatrixXd xvx = Eigen::MatrixXd::Zero(p, p);
-    Eigen::VectorXd xvy = Eigen::VectorXd::Zero(p);
-    double yvy = 0, logdet = 0;
-    const Eigen::MatrixXd Lt = L.transpose();
-    for (const MixedCrossproducts::Block& b : data.blocks()) {
-        Eigen::MatrixXd M = Eigen::MatrixXd::Identity(q, q);
-        M.noalias() += Lt * b.ZtZ * L;
-        const Eigen::LLT<Eigen::MatrixXd> chol(M);  // M >= I: always positive definite
-        const Eigen::MatrixXd A = Lt * b.ZtX;       // q x p
-        const Eigen::VectorXd c = Lt * b.Zty;       // q
-        const Eigen::MatrixXd MA = chol.solve(A);
-        const Eigen::VectorXd Mc = chol.solve(c);
-        xvx += b.XtX - A.transpose() * MA;
-        xvy += b.Xty - A.transpose() * Mc;
-        yvy += b.yty - c.dot(Mc);
-        logdet += 2 * chol.matrixLLT().diagonal().array().log().sum();
-    }
+    const GroupSums sums = all_group_sums(data, L);
+    const Eigen::MatrixXd xvx = data.xtx() - sums.S.topLeftCorner(p, p);
+    const Eigen::VectorXd xvy = data.xty() - sums.S.col(p).head(p);
+    const double yvy = data.yty() - sums.S(p, p), logdet = sums.logdet;
     // Columns scaled to a unit diagonal first, so a column's units (dollars or thousands of
     // dollars) change neither the collinearity check nor the accuracy.
     const Eigen::VectorXd s = xvx.diagonal().cwiseMax(0).cwiseSqrt().cwiseInverse();

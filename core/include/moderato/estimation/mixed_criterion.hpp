@@ -44,11 +44,22 @@ public:
         double yty = 0;
     };
     const std::vector<Block>& blocks() const { return blocks_; }
+    // The sums over all groups: X'X, X'y, y'y.
+    const Eigen::MatrixXd& xtx() const { return xtx_; }
+    const Eigen::VectorXd& xty() const { return xty_; }
+    double yty() const { return yty_; }
+
+    // Threads for an evaluation (0: all hardware threads); groups are summed
+    // in fixed blocks in order, so the numbers do not depend on it.
+    unsigned threads = 0;
 
 private:
     std::size_t n_ = 0;
     Eigen::Index p_ = 0, q_ = 0;
     std::vector<Block> blocks_;
+    Eigen::MatrixXd xtx_;
+    Eigen::VectorXd xty_;
+    double yty_ = 0;
 };
 
 struct MixedCriterion {
