@@ -397,6 +397,7 @@ const std::vector<SampleCase>& samples() {
         {"turbine-repairs",
          {{"lines-plot", "effect-plot"}, {"lines-plot", "effect-plot", "surface-plot"}},
          kProbeTables},
+        {"warehouse-picking", {{"lines-plot", "effect-plot", "surface-plot"}}, kProbeTables},
     };
     return s;
 }

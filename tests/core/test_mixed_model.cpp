@@ -17,6 +17,7 @@
 #include "common/reference_fixtures.hpp"
 #include "common/table_builder.hpp"
 #include "moderato/estimation/fit.hpp"
+#include "moderato/probing/multilevel_probe.hpp"
 #include "moderato/reading/csv.hpp"
 
 using namespace moderato;
@@ -394,4 +395,27 @@ TEST(MixedModel, WarnsAboutModeratorsGroupsAndMissingIds) {
     auto& codes = few.find("team")->codes;
     for (auto& c : codes) c = c % 12;
     EXPECT_TRUE(contains(fit_model(few, teams_spec(false)).warnings, "only 12 groups of 'team'"));
+}
+
+// A group's own line: the fixed part at the group's climate plus its
+// conditional modes, which for a group-level moderator equals the fit's
+// conditional fitted value of each of the group's rows (computed here from
+// the fitted values). Twelve groups spread evenly over climate.
+TEST(MixedModel, GroupLinesReproduceTheConditionalFit) {
+    const Table t = teams_table();
+    const ModelSpec spec = teams_spec(true);
+    const Design d = build_design(t, spec);
+    const FitResult f = fit_design(d, spec);
+    const auto lines = group_lines(d, f, "hours", "climate", 12);
+    ASSERT_EQ(lines.size(), 12u);
+    for (std::size_t k = 1; k < lines.size(); ++k) EXPECT_LE(lines[k - 1].moderator, lines[k].moderator);
+    for (const auto& line : lines)
+        for (std::size_t i = 0; i < d.group.size(); ++i) {
+            if (d.group_names[d.group[i]] != line.group) continue;
+            const auto r = static_cast<Eigen::Index>(i);
+            const double x = d.X(r, 1), w = line.moderator;
+            const double fixed = f.beta[0] + f.beta[1] * x + f.beta[2] * w + f.beta[3] * x * w;
+            EXPECT_NEAR(fixed + line.intercept_shift + line.slope_shift * x, f.fitted[r], 1e-9 * std::abs(f.fitted[r]));
+        }
+    EXPECT_EQ(group_lines(d, f, "hours", "climate", 100).size(), 45u);
 }

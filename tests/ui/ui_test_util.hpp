@@ -23,7 +23,8 @@ inline QString sampleProject(const QString& name) {
 inline const QStringList& sampleNames() {
     static const QStringList names{QStringLiteral("coffee-discount"),      QStringLiteral("orchard-nitrogen"),
                                    QStringLiteral("volunteer-onboarding"), QStringLiteral("helpdesk-staffing"),
-                                   QStringLiteral("trial-conversion"),     QStringLiteral("turbine-repairs")};
+                                   QStringLiteral("trial-conversion"),     QStringLiteral("turbine-repairs"),
+                                   QStringLiteral("warehouse-picking")};
     return names;
 }
 

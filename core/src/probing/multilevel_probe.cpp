@@ -1,5 +1,6 @@
 #include "moderato/probing/multilevel_probe.hpp"
 
+#include <algorithm>
 #include <cmath>
 
 #include "moderato/estimation/distributions.hpp"
@@ -16,6 +17,33 @@ std::optional<GroupSlopeSpread> group_slope_spread(const FitResult& fit, const s
             return GroupSlopeSpread{std::sqrt(m.covariance(K, K)), dist::normal_quantile(0.5 + fit.level / 2)};
         }
     return std::nullopt;
+}
+
+std::vector<GroupLine> group_lines(const Design& d, const FitResult& fit, const std::string& focal,
+                                   const std::string& moderator, std::size_t most) {
+    std::vector<GroupLine> out;
+    const int mc = d.main_column(moderator);
+    if (!fit.multilevel || mc < 0 || most == 0) return out;
+    const auto& m = *fit.multilevel;
+    std::size_t slope = 0;
+    for (std::size_t k = 1; k < m.terms.size(); ++k)
+        if (m.terms[k] == focal) slope = k;
+    std::vector<double> sum(m.group_effects.size(), 0.0), count(sum.size(), 0.0);
+    for (std::size_t i = 0; i < d.group.size(); ++i) {
+        sum[d.group[i]] += d.X(static_cast<Eigen::Index>(i), mc);
+        count[d.group[i]] += 1;
+    }
+    std::vector<GroupLine> all;
+    for (std::size_t g = 0; g < m.group_effects.size(); ++g) {
+        const GroupEffect& e = m.group_effects[g];
+        all.push_back({e.group, sum[g] / count[g], e.mode[0], slope ? e.mode[static_cast<Eigen::Index>(slope)] : 0.0});
+    }
+    std::stable_sort(all.begin(), all.end(),
+                     [](const GroupLine& a, const GroupLine& b) { return a.moderator < b.moderator; });
+    if (all.size() <= most) return all;
+    const std::size_t steps = std::max<std::size_t>(most - 1, 1);
+    for (std::size_t k = 0; k < most; ++k) out.push_back(all[k * (all.size() - 1) / steps]);
+    return out;
 }
 
 void add_multilevel_notes(const FitResult& fit, ProbeResult& r) {

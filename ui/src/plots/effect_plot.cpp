@@ -160,10 +160,11 @@ void EffectPlot::buildContinuous() {
     plot_->xAxis->setTicker(xTicker);
     plot_->xAxis->setRange(d.axis.first, d.axis.second);
     double lo = 0, hi = 0;
-    for (const auto& c : d.curve) {
-        if (std::isfinite(c.lower)) lo = std::min(lo, c.lower);
-        if (std::isfinite(c.upper)) hi = std::max(hi, c.upper);
-    }
+    for (const auto* points : {&d.curve, &d.groupSpread})
+        for (const auto& c : *points) {
+            if (std::isfinite(c.lower)) lo = std::min(lo, c.lower);
+            if (std::isfinite(c.upper)) hi = std::max(hi, c.upper);
+        }
     const double pad = 0.08 * (hi > lo ? hi - lo : 1.0);
     plot_->yAxis->setRange(lo - pad, hi + pad);
     setAxisTitle(plot_->xAxis, d.moderatorTitle);
@@ -237,6 +238,7 @@ void EffectPlot::drawCurve(bool anySignificant, bool anyNotSignificant) {
     curve->setName(tr("conditional effect"));
     setLineData(curve, d.curve);
     legendSwatch(plot_, d.bandName, estuary::bandBrush(0, greyscale_));
+    if (!d.groupSpread.empty()) drawGroupSpread();
     if (anySignificant) legendSwatch(plot_, tr("region of significance"), estuary::significanceBrush(greyscale_));
     if (anyNotSignificant) legendSwatch(plot_, tr("not significant"), estuary::notSignificantBrush());
     if (d.axis.first < d.observed.first || d.axis.second > d.observed.second)
@@ -249,6 +251,23 @@ void EffectPlot::drawCurve(bool anySignificant, bool anyNotSignificant) {
     zero->point2->setCoords(1, 0);
     zero->setPen(zeroPen);
     zero->setSelectable(false);
+}
+
+// The groups' own slopes: dotted lines at effect ± z × SD, in the ink colour.
+void EffectPlot::drawGroupSpread() {
+    QPen pen(estuary::ink);
+    pen.setWidthF(1.3);
+    pen.setStyle(Qt::DotLine);
+    for (const bool upper : {false, true}) {
+        std::vector<CurvePoint> edge = data_.groupSpread;
+        for (auto& c : edge) c.estimate = upper ? c.upper : c.lower;
+        QCPGraph* g = plot_->addGraph();
+        g->setPen(pen);
+        g->setSelectable(QCP::stNone);
+        setLineData(g, edge);
+        if (!upper) g->setName(data_.groupSpreadName);
+        else g->removeFromLegend();
+    }
 }
 
 // The Johnson–Neyman boundaries inside the axis, as labelled dashed lines.

@@ -46,6 +46,11 @@ struct EffectPlotData {
     std::pair<double, double> observed{0, 1};
     std::pair<double, double> axis{0, 1};
     std::vector<double> rug;  // observed moderator values (decimated)
+    // A multilevel fit with a random slope for the focal predictor: where the
+    // groups' own slopes lie (lower/upper: effect ± z × their SD), drawn as
+    // two dotted lines; `groupSpreadName` is their legend entry.
+    std::vector<CurvePoint> groupSpread;
+    QString groupSpreadName;
     // Groups.
     std::vector<QString> groupNames;   // axis ticks
     std::vector<QString> legendNames;  // legend entries ("shift = day"); empty: the group names
@@ -105,6 +110,7 @@ private:
     void shadeBeyond(double a, double b);
     void drawCurve(bool anySignificant, bool anyNotSignificant);
     void drawBoundaries();
+    void drawGroupSpread();
     void drawBoundaryNotes();
     void drawRug();
     void buildGroups();

@@ -213,6 +213,8 @@ void LinesPlot::fitValueRange() {
         take(p.lower);
         take(p.upper);
     }
+    for (const auto& l : d.groupLines)
+        for (const auto& p : l) take(p.estimate);
     if (d.showPoints && d.points && d.points->rows > 0) {
         take(d.points->yRange.first);
         take(d.points->yRange.second);
@@ -236,8 +238,25 @@ void LinesPlot::fitValueRange() {
     plot_->yAxis->setRange(ylo, yhi);
 }
 
+// Thin, faint lines in the ink colour, one legend entry for them all.
+void LinesPlot::drawGroupLines() {
+    QColor ink = estuary::ink;
+    ink.setAlphaF(0.28f);
+    QPen pen(ink);
+    pen.setWidthF(0.9);
+    for (std::size_t k = 0; k < data_.groupLines.size(); ++k) {
+        QCPGraph* g = plot_->addGraph();
+        g->setPen(pen);
+        g->setSelectable(QCP::stNone);
+        setLineData(g, data_.groupLines[k]);
+        if (k == 0) g->setName(data_.groupLinesName);
+        else g->removeFromLegend();
+    }
+}
+
 void LinesPlot::drawLines() {
     const LinesPlotData& d = data_;
+    if (!d.groupLines.empty()) drawGroupLines();
     // Bands first (under every line), then the lines.
     for (const auto& l : d.lines) addBand(plot_, l.points, estuary::bandBrush(l.series, greyscale_));
     for (const auto& l : d.lines) {

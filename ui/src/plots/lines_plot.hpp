@@ -68,6 +68,11 @@ struct LinesPlotData {
     };
     std::vector<DifferRow> differ;
     QString differName;  // legend entry ("groups differ"); empty: no strip
+    // A multilevel fit: some groups' own fitted lines (the fixed part at the
+    // group's moderator value plus its conditional modes), drawn faintly
+    // under the lines; `groupLinesName` is their legend entry.
+    std::vector<std::vector<CurvePoint>> groupLines;
+    QString groupLinesName;
     std::pair<double, double> xRange{0, 1};
     // Estimates the y axis must also take in (e.g. the slider's line at the ends of its range).
     std::vector<CurvePoint> yExtent;
@@ -138,6 +143,7 @@ private:
     // The y axis: what is drawn and the points, with a margin inside yBounds.
     void fitValueRange();
     void drawLines();
+    void drawGroupLines();
     void drawCrossings();
     void drawDifferStrips();
     void drawDifferRow(const LinesPlotData::DifferRow& row, int index, QCPItemPosition* base, const QBrush& brush,

@@ -21,6 +21,7 @@
 #include "common/inline_work.hpp"
 #include "common/number_text.hpp"
 #include "model/project_document.hpp"
+#include "moderato/probing/multilevel_probe.hpp"
 #include "moderato/reporting/memo.hpp"
 #include "plots/cells_view.hpp"
 #include "plots/effect_plot.hpp"
@@ -651,8 +652,34 @@ void ProbeSection::buildEffectPlot(bool sim, const QString& level) {
         e.observed = engine_.observedRange();
         e.axis = engine_.axisRange();
         e.rug = engine_.rug();
+        if (const auto& spread = engine_.probe().group_slopes) {
+            const double half = spread->critical_value * spread->sd;
+            for (CurvePoint c : engine_.effectCurve(false)) {
+                c.lower = c.estimate - half;
+                c.upper = c.estimate + half;
+                e.groupSpread.push_back(c);
+            }
+            e.groupSpreadName = tr("%1 of groups' own slopes").arg(level);
+        }
     }
     effect_->setData(e);
+}
+
+void ProbeSection::addGroupLines(LinesPlotData& l) {
+    if (!run_->fit.multilevel) return;
+    const auto lines = group_lines(run_->design, run_->fit, engine_.focal(), engine_.moderator(), 20);
+    for (const GroupLine& g : lines) {
+        std::vector<CurvePoint> points = engine_.lineAt(g.moderator);
+        for (CurvePoint& c : points) {
+            c.estimate += g.intercept_shift + g.slope_shift * c.x;
+            c.lower = c.upper = c.estimate;
+        }
+        l.groupLines.push_back(std::move(points));
+    }
+    if (!lines.empty())
+        l.groupLinesName = tr("%1 of %2 groups' own lines")
+                               .arg(static_cast<int>(lines.size()))
+                               .arg(static_cast<int>(run_->fit.multilevel->groups_count));
 }
 
 LinesPlotData ProbeSection::linesPlotData() {
@@ -693,6 +720,7 @@ LinesPlotData ProbeSection::linesPlotData() {
             ++k;
         }
         l.highlightName = tr("at the slider's value");
+        addGroupLines(l);
         for (double m : {engine_.axisRange().first, engine_.axisRange().second})
             for (CurvePoint c : engine_.lineAt(m, 3)) {
                 c.lower = c.upper = c.estimate;  // keep the slider's line in view, not its whole band

@@ -124,6 +124,8 @@ private:
     void syncJitterToggle(const ProbeSettings& ps);
     void buildEffectPlot(bool simultaneous, const QString& level);
     LinesPlotData linesPlotData();
+    // A multilevel fit: up to 20 groups' own lines, spread over the moderator.
+    void addGroupLines(LinesPlotData& l);
     void addCrossings(LinesPlotData& l, const QString& level);
     // The pairs of groups in core's order, as two level names and as one plot label.
     std::vector<std::pair<QString, QString>> pairLevels() const;
