@@ -15,6 +15,13 @@ DIR defaults to tests/reference/fixtures next to this script.  Cases
                    (climate a team-level moderator), random intercept and
                    random slope of hours by team.
   mixed_intercept  the same design with a random intercept only.
+  mixed_grunfeld   open data that ships with statsmodels: Grunfeld's
+                   investment panel (statsmodels.datasets.grunfeld, 11 US
+                   firms, 1935-1954; Grunfeld 1958), written to
+                   mixed_grunfeld.csv; invest ~ 1 + value + capital with a
+                   random intercept and a random slope of value by firm
+                   (REML and ML, full covariance), and a random intercept
+                   alone (REML): statsmodels' fits only.
 
 The data go to mixed_teams.csv (doubles in shortest round-trip form, read
 back and checked bit for bit); each case writes CASE.json with the spec (outcome, fixed-effects
@@ -193,6 +200,42 @@ def intercept_maxima(df):
     return out
 
 
+def grunfeld_case(out_dir):
+    """statsmodels' fits of the Grunfeld panel (open data shipped with statsmodels)."""
+    from statsmodels.datasets import grunfeld
+    raw = grunfeld.load_pandas().data
+    df = pd.DataFrame({"invest": raw.invest, "value": raw.value, "capital": raw.capital, "firm": raw.firm})
+    back = write_csv_roundtrip(df, os.path.join(out_dir, "mixed_grunfeld.csv"))
+    X = np.column_stack([np.ones(len(back)), back.value, back.capital])
+    fits_out = []
+    for estimation, random in (("reml", 2), ("ml", 2), ("reml", 1)):
+        Z = np.column_stack([np.ones(len(back))] + ([back.value] if random == 2 else []))
+        model = MixedLM(back.invest.to_numpy(), X, groups=back.firm.to_numpy(), exog_re=Z)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            r = model.fit(reml=estimation == "reml")
+        psi = np.asarray(r.cov_re) / r.scale
+        xvx = np.zeros((3, 3))
+        for g in np.unique(back.firm):
+            rows = (back.firm == g).to_numpy()
+            V = np.eye(rows.sum()) + Z[rows] @ psi @ Z[rows].T
+            xvx += X[rows].T @ np.linalg.solve(V, X[rows])
+        fits_out.append({"estimation": estimation, "random": ["intercept", "value"][:random],
+                         "converged": bool(r.converged), "criterion": float(r.llf),
+                         "fixed_effects": fl(r.fe_params),
+                         "std_errors_gls": fl(np.sqrt(np.diag(r.scale * np.linalg.inv(xvx)))),
+                         "random_covariance": fl(np.asarray(r.cov_re)), "residual_variance": float(r.scale)})
+    doc = {"case": "mixed_grunfeld", "source": f"{library_source()}; MixedLM.fit", "command": COMMAND,
+           "data": "mixed_grunfeld.csv",
+           "dataset": {"file": "statsmodels/datasets/grunfeld (grunfeld.csv, shipped with statsmodels)",
+                       "origin": "Grunfeld (1958), investment of 11 US firms 1935-1954"},
+           "spec": {"outcome": "invest", "fixed": ["intercept", "value", "capital"], "groups": "firm"},
+           "n": int(len(back)), "groups_count": int(back.firm.nunique()), "fits": fits_out}
+    atomic_write(os.path.join(out_dir, "mixed_grunfeld.json"),
+                 json.dumps(doc, indent=1, ensure_ascii=False, allow_nan=False) + "\n")
+    print(f"  mixed_grunfeld   n={len(back)}  groups={back.firm.nunique()}")
+
+
 def main():
     ap = argparse.ArgumentParser()
     ap.add_argument("--out", default=os.path.join(os.path.dirname(os.path.abspath(__file__)), "fixtures"))
@@ -215,6 +258,7 @@ def main():
         atomic_write(os.path.join(args.out, f"{case}.json"),
                      json.dumps(doc, indent=1, ensure_ascii=False, allow_nan=False) + "\n")
         print(f"  {case:16s} n={len(back)}  groups={back.team.nunique()}  points={len(psis)}")
+    grunfeld_case(args.out)
     return 0
 
 

@@ -126,7 +126,7 @@ MixedFit fit_mixed(const MixedCrossproducts& data, const MixedFitOptions& option
     for (int restart = 0; restart < 20 && out.evaluations < budget; ++restart) {
         double value = 0;
         const Eigen::VectorXd next = nelder_mead(f, theta, step, budget, out.evaluations, value);
-        const bool gained = value < best - 1e-10 * (1 + std::abs(best));
+        const bool gained = value < best - 1e-13 * (1 + std::abs(best));
         if (value <= best) {
             theta = next;
             best = value;
