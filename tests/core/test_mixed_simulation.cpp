@@ -43,8 +43,8 @@ Table draw(std::mt19937_64& rng) {
             g.push_back("g" + std::to_string(k));
         }
     }
-    return make_table({numeric_column("y", y), numeric_column("x", x), numeric_column("w", w),
-                       categorical_column("g", g)});
+    return make_table(
+        {numeric_column("y", y), numeric_column("x", x), numeric_column("w", w), categorical_column("g", g)});
 }
 
 }  // namespace
@@ -70,9 +70,10 @@ TEST(MixedSimulation, CrossLevelIntervalsCoverTheTruth) {
         singular += f.multilevel->singular;
     }
     const auto share = [&](int k) { return static_cast<double>(covered[k]) / reps; };
-    std::printf("coverage of the 95%% interval of x×w over %d replications (50 groups): Satterthwaite %.1f%%, "
-                "between-within %.1f%%, z %.1f%%; singular fits %d\n",
-                reps, 100 * share(0), 100 * share(1), 100 * share(2), singular);
+    std::printf(
+        "coverage of the 95%% interval of x×w over %d replications (50 groups): Satterthwaite %.1f%%, "
+        "between-within %.1f%%, z %.1f%%; singular fits %d\n",
+        reps, 100 * share(0), 100 * share(1), 100 * share(2), singular);
     EXPECT_GE(share(0), 0.935);
     EXPECT_LE(share(0), 0.965);
     EXPECT_GE(share(1), 0.935);
