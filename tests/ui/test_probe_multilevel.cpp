@@ -10,8 +10,10 @@
 #include <cmath>
 
 #include "common/direct_fit.hpp"
+#include "common/figure_caption.hpp"
 #include "moderato/probing/multilevel_probe.hpp"
 #include "probe_window.hpp"
+#include "qstring_print.hpp"
 #include "ui_test_util.hpp"
 
 using namespace moderato;
@@ -51,4 +53,16 @@ TEST(ProbeMultilevel, LinesPlotDrawsTwentyGroupsOwnLines) {
                 b0 + bx * c.x + bw * w + bxw * c.x * w + chosen[g].intercept_shift + chosen[g].slope_shift * c.x;
             EXPECT_NEAR(c.estimate, want, 1e-9 * std::abs(want)) << chosen[g].group;
         }
+}
+
+// Figure captions name a multilevel model, its groups and how it was
+// estimated (the words of core's fit: REML, Satterthwaite df).
+TEST(ProbeMultilevel, CaptionsNameTheGroupsAndTheEstimation) {
+    const test::DirectFit direct =
+        test::direct_fit(test::sampleProject(QStringLiteral("warehouse-picking")).toStdString());
+    const AnalysisRun run = run_analysis(direct.table, direct.analysis);
+    const QString caption = ui::figureCaption(direct.analysis, run);
+    EXPECT_TRUE(caption.startsWith(QStringLiteral("Multilevel linear model of items_per_hour"))) << caption;
+    EXPECT_TRUE(caption.contains(QStringLiteral("60 groups of warehouse"))) << caption;
+    EXPECT_TRUE(caption.contains(QStringLiteral("model-based (REML, Satterthwaite df) SEs"))) << caption;
 }

@@ -8,6 +8,9 @@
 namespace moderato {
 
 std::string se_description(const FitResult& fit, const std::string& clusters) {
+    if (fit.multilevel)
+        return std::string("model-based (") + (fit.multilevel->estimation == MixedEstimation::Reml ? "REML" : "ML") +
+               ", " + df_method_text(fit.multilevel->df) + " df)";
     switch (fit.se) {
         case SeKind::Classical:
             return fit.family == Family::Logistic ? "model-based" : "classical";
