@@ -79,3 +79,14 @@ TEST(MultilevelCli, MultilevelOptionsWithoutGroupsAreRefused) {
     EXPECT_EQ(bad.exit_code, 2);
     EXPECT_NE(bad.err.find("unknown estimation 'bayes'; use reml or ml"), std::string::npos) << bad.err;
 }
+
+// Resampling rows would break up the groups: the bootstrap is refused with a
+// message (it once crashed on the groups of the original rows).
+TEST(MultilevelCli, TheBootstrapIsRefusedForMultilevelModels) {
+    const auto r = run_cli(
+        teams_model({"probe", "--focal", "hours", "--moderator", "climate", "--bootstrap", "200", "--seed", "1"}));
+    EXPECT_TRUE(r.exited);
+    EXPECT_EQ(r.exit_code, 2);
+    EXPECT_NE(r.err.find("the bootstrap is not offered for multilevel models (groups 'team')"), std::string::npos)
+        << r.err;
+}

@@ -343,6 +343,11 @@ namespace {
 void check_request(const Design& d, const ModelSpec& spec, const BootstrapStatistic& statistic,
                    const BootstrapOptions& options) {
     if (!statistic) throw std::invalid_argument("bootstrap: no statistic given");
+    if (spec.multilevel.active() || !d.group.empty())
+        throw InputError("the bootstrap is not offered for multilevel models (groups " +
+                         quoted(spec.multilevel.groups) +
+                         "): resampling rows would break up the groups; the model's own intervals, with their "
+                         "Satterthwaite or between–within degrees of freedom, take the groups into account");
     if (options.replicates < kMinReplicates)
         throw InputError("the bootstrap needs at least " + std::to_string(kMinReplicates) + " replicates, got " +
                          std::to_string(options.replicates) +
