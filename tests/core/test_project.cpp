@@ -329,8 +329,8 @@ TEST(ProjectJson, EqualityNoticesEveryKindOfChange) {
     EXPECT_FALSE(q == p);
 }
 
-// The Groups role and the multilevel settings are written only for a
-// multilevel analysis, so single-level projects keep their bytes.
+// The Groups role and the multilevel settings are written only when set, so
+// single-level projects keep their bytes.
 TEST(ProjectJson, MultilevelSettingsAreWrittenOnlyWithGroups) {
     Project p = full_project();
     const std::string text = project_to_json(p);
@@ -340,6 +340,12 @@ TEST(ProjectJson, MultilevelSettingsAreWrittenOnlyWithGroups) {
     const std::string single = project_to_json(p);
     EXPECT_EQ(single.find("multilevel"), std::string::npos);
     EXPECT_EQ(single.find("\"groups\""), std::string::npos);
+    // Settings kept while the Groups role is empty read back as they were.
+    Project q = full_project();
+    q.analyses.back().multilevel.groups.clear();
+    const std::string kept = project_to_json(q);
+    EXPECT_EQ(kept.find("\"groups\""), std::string::npos);
+    EXPECT_TRUE(project_from_json(kept, "memory.moderato") == q);
 }
 
 // Jitter is on by default; only "off" is written, so projects keep their bytes.

@@ -304,9 +304,14 @@ json analysis_to_json(const Analysis& a) {
     // Written only when there are notes, so projects without them keep their bytes.
     if (!a.memo_notes.empty()) j["memo_notes"] = a.memo_notes;
     if (!a.reference_levels.empty()) j["reference_levels"] = a.reference_levels;
-    if (a.multilevel.active()) {
-        const MultilevelSpec& m = a.multilevel;
-        j["roles"]["groups"] = m.groups;
+    // Written only when set, so single-level projects keep their bytes; the
+    // settings stay when the Groups role is emptied, for when it returns.
+    const MultilevelSpec& m = a.multilevel;
+    if (m.active()) j["roles"]["groups"] = m.groups;
+    MultilevelSpec settings = m;
+    settings.groups.clear();
+    settings.group_effects = false;  // a command-line request, not a project setting
+    if (!(settings == MultilevelSpec{})) {
         j["multilevel"] = json{{"random_slopes", m.random_slopes},
                                {"estimation", word_of(kEstimationWords, m.estimation)},
                                {"random_covariance", word_of(kRandomCovarianceWords, m.covariance)},
