@@ -12,6 +12,7 @@
 #include "common/direct_fit.hpp"
 #include "common/figure_caption.hpp"
 #include "moderato/probing/multilevel_probe.hpp"
+#include "moderato/support/report_text.hpp"
 #include "probe_window.hpp"
 #include "qstring_print.hpp"
 #include "ui_test_util.hpp"
@@ -65,4 +66,17 @@ TEST(ProbeMultilevel, CaptionsNameTheGroupsAndTheEstimation) {
     EXPECT_TRUE(caption.startsWith(QStringLiteral("Multilevel linear model of items_per_hour"))) << caption;
     EXPECT_TRUE(caption.contains(QStringLiteral("60 groups of warehouse"))) << caption;
     EXPECT_TRUE(caption.contains(QStringLiteral("model-based (REML, Satterthwaite df) SEs"))) << caption;
+}
+
+// The side panel's joint test names the multilevel standard errors and
+// writes Satterthwaite's df to four significant digits (format_df).
+TEST(ProbeMultilevel, TheJointTestNamesItsStandardErrorsAndDf) {
+    const QString project = test::sampleProject(QStringLiteral("warehouse-picking"));
+    test::ProbeWindow pw(project);
+    const test::DirectProbe direct = test::direct_probe(project.toStdString());
+    const QString df = QString::fromStdString(format_df(direct.probe.interaction_test->df2));
+    ASSERT_EQ(df.size(), 5) << df;  // e.g. "51.88"
+    const QString text = pw.section->summaryText();
+    EXPECT_TRUE(text.contains(QStringLiteral("with model-based (REML, Satterthwaite df) standard errors"))) << text;
+    EXPECT_TRUE(text.contains(QStringLiteral("F(1, %1) = ").arg(df))) << text;
 }
