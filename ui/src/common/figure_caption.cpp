@@ -11,7 +11,9 @@ QString seDescription(const Analysis& a, const AnalysisRun& run) {
 }
 
 QString figureCaption(const Analysis& a, const AnalysisRun& run) {
-    const QString family = a.family == Family::Logistic ? QStringLiteral("Logistic") : QStringLiteral("Linear");
+    const QString family = a.family == Family::Logistic ? QStringLiteral("Logistic")
+                           : run.fit.multilevel         ? QStringLiteral("Multilevel linear")
+                                                        : QStringLiteral("Linear");
     QString terms =
         QString::fromStdString(a.roles.focal) + QStringLiteral(" × ") + QString::fromStdString(a.roles.moderator);
     if (!a.roles.second_moderator.empty())
@@ -22,6 +24,8 @@ QString figureCaption(const Analysis& a, const AnalysisRun& run) {
                                              : QStringLiteral(" (+%1 controls)").arg(a.roles.controls.size());
     if (!a.roles.weights.empty())
         text += QStringLiteral(", weighted by %1").arg(QString::fromStdString(a.roles.weights));
+    if (run.fit.multilevel)
+        text += QStringLiteral(", in groups of %1").arg(QString::fromStdString(run.fit.multilevel->groups));
     // A three-way model's figures hold the second moderator at one value: say which.
     const QString held = heldValueText(a, run.design);
     if (!held.isEmpty()) text += QStringLiteral(", ") + held;
