@@ -4,6 +4,7 @@
 
 #include <QCoreApplication>
 #include <QDir>
+#include <QEvent>
 #include <QPixmap>
 #include <QString>
 #include <QWidget>
@@ -15,7 +16,10 @@ inline void saveScreenshot(QWidget* widget, const QString& file) {
     const QString dir = qEnvironmentVariable("MODERATO_SCREENSHOT_DIR");
     if (dir.isEmpty()) return;
     QDir().mkpath(dir);
-    QCoreApplication::processEvents();  // let pending layouts settle first
+    // Let pending layouts settle first, and widgets replaced by deleteLater() go.
+    QCoreApplication::sendPostedEvents(nullptr, QEvent::DeferredDelete);
+    QCoreApplication::processEvents();
+    QCoreApplication::processEvents();
     widget->grab().save(QDir(dir).filePath(file));
 }
 

@@ -157,14 +157,41 @@ void names_and_rules(const DiagnosticRules& rules, Diagnostics& d) {
     d.cooks_rule = "Cook's distance > " + number(rules.cooks_numerator) + "/n = " + number(d.cooks_threshold);
 }
 
-// The rows meeting any rule, most influential first.
+// A multilevel fit: conditional residuals over the residual SD; no leverage
+// or Cook's distance (NaN), so the residual rule alone flags rows.
+void multilevel_residuals(const FitResult& fit, Diagnostics& d) {
+    const Eigen::Index n = fit.residuals.size();
+    d.multilevel = true;
+    d.p = fit.rank;
+    d.scale = fit.multilevel->residual_variance;
+    d.pearson = fit.residuals;
+    d.standardised = fit.residuals / std::sqrt(d.scale);
+    d.studentised = d.standardised;
+    d.leverage = Eigen::VectorXd::Constant(n, kNaN);
+    d.cooks_distance = Eigen::VectorXd::Constant(n, kNaN);
+}
+
+void multilevel_names(Diagnostics& d) {
+    d.fitted_name = "fitted value with group effects";
+    d.plot_residual_name = "conditional residual";
+    d.check_residual_name = "standardised conditional residual";
+    d.quantile_residual_name = d.check_residual_name;
+    d.leverage_threshold = d.cooks_threshold = kNaN;
+    d.residual_rule = "|" + d.check_residual_name + "| > " + number(d.rules.residual_limit);
+    d.leverage_rule.clear();
+    d.cooks_rule.clear();
+}
+
+// The rows meeting any rule, most influential first (multilevel: largest |residual| first).
 void flag_rows(const Design& design, Diagnostics& d) {
     for (std::size_t i = 0; i < d.n; ++i) {
         const unsigned flags = diagnostic_flags(d, i);
         if (flags) d.flagged.push_back({i, design.rows.empty() ? i : design.rows[i], flags});
     }
     auto key = [&](const FlaggedRow& r) {
-        const double c = d.cooks_distance[static_cast<Eigen::Index>(r.observation)];
+        const auto i = static_cast<Eigen::Index>(r.observation);
+        if (d.multilevel) return std::fabs(d.check_residual()[i]);
+        const double c = d.cooks_distance[i];
         return std::isnan(c) ? std::numeric_limits<double>::infinity() : c;
     };
     std::stable_sort(d.flagged.begin(), d.flagged.end(),
@@ -191,6 +218,13 @@ Diagnostics diagnostics(const Design& design, const FitResult& fit, const Diagno
     d.fitted = fit.fitted;
     d.residuals = fit.residuals;
 
+    if (fit.multilevel) {
+        multilevel_residuals(fit, d);
+        names_and_rules(rules, d);
+        multilevel_names(d);
+        flag_rows(design, d);
+        return d;
+    }
     std::vector<int> kept;
     const Eigen::MatrixXd XK = estimable_columns(design, fit, kept);
     const Eigen::VectorXd v = working_weights(design, fit, d);

@@ -48,7 +48,7 @@ std::vector<GroupLine> group_lines(const Design& d, const FitResult& fit, const 
 
 void add_multilevel_notes(const FitResult& fit, ProbeResult& r) {
     if (!fit.multilevel || std::isinf(r.df)) return;
-    r.notes.push_back("t tests use " + format_df(r.df) + " df (" + df_method_text(fit.multilevel->df) +
+    r.notes.push_back("t tests use " + format_df(r.df) + " df (" + df_method_text(fit.multilevel->df_used()) +
                       ", those of the product terms) at every value of " + r.moderator);
 }
 

@@ -668,8 +668,12 @@ ModelSpec model_spec(const Analysis& a, const std::map<std::string, std::string>
         if (w.empty()) spec.interactions.push_back({f, m});
         else spec.interactions.push_back({f, m, w});
     }
+    // The multilevel options name the model's columns, so they follow a
+    // centred copy: centring within groups or taking group means of x − c
+    // gives the same within-group deviations, and group means shifted by c.
     spec.multilevel = a.multilevel;
-    for (auto& s : spec.multilevel.random_slopes) s = name(s);
+    for (auto* list : {&spec.multilevel.random_slopes, &spec.multilevel.centre_within, &spec.multilevel.group_means})
+        for (auto& s : *list) s = name(s);
     // A reference level chosen for a column that has since left the model is kept for when it returns.
     for (const auto& [column, level] : a.reference_levels)
         if (std::find(spec.predictors.begin(), spec.predictors.end(), column) != spec.predictors.end())

@@ -4,6 +4,7 @@
 #include <cmath>
 
 #include "moderato/support/report_text.hpp"
+#include "multilevel_tables.hpp"
 
 namespace moderato {
 
@@ -13,7 +14,7 @@ std::string se_description(const FitResult& fit, const std::string& clusters) {
                ", " + df_method_text(fit.multilevel->df) + " df)";
     switch (fit.se) {
         case SeKind::Classical:
-            return fit.family == Family::Logistic ? "model-based" : "classical";
+            return fit.family == Family::Logistic || fit.multilevel ? "model-based" : "classical";
         case SeKind::Cluster:
             return "cluster-robust (" + (clusters.empty() ? std::string() : clusters + ", ") +
                    std::to_string(fit.n_clusters) + " clusters)";
@@ -51,13 +52,20 @@ ExportTable estimates_table(const Analysis& a, const AnalysisRun& run) {
     const std::string lv = level_text(fit.level);
     t.columns = {"Term", "Estimate", "SE", statistic_name(fit), "p", lv + " CI low", lv + " CI high"};
     t.numeric = {false, true, true, true, true, true, true};
+    const bool own_df = fit.multilevel.has_value();  // each term its own df, in the last column
+    if (own_df) {
+        t.columns.push_back("df");
+        t.numeric.push_back(true);
+    }
     for (const auto& c : fit.coefficients) {
         if (c.aliased) {
             t.rows.push_back({text(c.term), text("aliased"), text(""), text(""), text(""), text(""), text("")});
+            if (own_df) t.rows.back().push_back(text(""));
             continue;
         }
         t.rows.push_back({text(c.term), num(c.estimate), num(c.std_error), num(c.statistic), pval(c.p_value),
                           num(c.ci_lower), num(c.ci_upper)});
+        if (own_df) t.rows.back().push_back({format_df(c.df), exact_text(c.df)});
     }
     t.notes.push_back("Standard errors: " + se_description(fit, a.roles.clusters) +
                       "; n = " + format_count(static_cast<long long>(fit.n)) +
@@ -66,6 +74,9 @@ ExportTable estimates_table(const Analysis& a, const AnalysisRun& run) {
                                       : "") +
                       ".");
     if (fit.family == Family::Logistic) t.notes.push_back("Estimates are on the log-odds scale.");
+    if (own_df)
+        t.notes.push_back("Multilevel model: the fixed effects, those of a typical group of " + fit.multilevel->groups +
+                          ". " + detail::df_note(fit));
     if (centred) {
         std::string cols;
         for (const auto& [col, centre] : run.centres)
@@ -78,6 +89,7 @@ ExportTable estimates_table(const Analysis& a, const AnalysisRun& run) {
 
 ExportTable fit_table(const AnalysisRun& run) {
     const FitResult& f = run.fit;
+    if (f.multilevel) return detail::multilevel_fit_table(f);
     ExportTable t;
     t.title = "Fit statistics";
     t.columns = {"Statistic", "Value"};
@@ -116,13 +128,14 @@ ExportTable comparison_table(const Analysis& a, const AnalysisRun& run) {
     for (const auto& d : c.dropped_terms) dropped += (dropped.empty() ? "" : ", ") + d;
     t.title = "With and without the interaction (" + dropped + ")";
     t.columns = {"Test", "Statistic", "df", "p"};
-    t.numeric = {false, true, true, true};  // df "1, 196": numbers too, kept on one line
-    if (f.family == Family::Linear) {
+    t.numeric = {false, true, true, true};             // df "1, 196": numbers too, kept on one line
+    const bool multilevel = f.multilevel.has_value();  // the Wald test alone: no R² change, no LR test
+    if (!multilevel && f.family == Family::Linear) {
         t.rows.push_back({text("R² without the interaction"), num(c.r_squared_reduced), text(""), text("")});
         t.rows.push_back({text("R² with the interaction"), num(f.r_squared), text(""), text("")});
         t.rows.push_back(
             {text("R² change F test (classical)"), num(c.f_statistic), text(df_text(c.df1, c.df2)), pval(c.p_value)});
-    } else {
+    } else if (!multilevel) {
         t.rows.push_back(
             {text("Likelihood-ratio χ²"), num(c.lr_statistic), text(format_sig(c.df1)), pval(c.lr_p_value)});
     }
@@ -133,13 +146,20 @@ ExportTable comparison_table(const Analysis& a, const AnalysisRun& run) {
          num(chi ? w.chi_square : w.statistic), text(df_text(w.df1, w.df2)), pval(w.p_value)});
     const bool linear = f.family == Family::Linear;
     const std::string model_test = linear ? "the R² change F test" : "the likelihood-ratio test";
-    t.notes.push_back(a.se == SeKind::Classical
-                          ? "With " + se_description(f, a.roles.clusters) + " standard errors the test to report is " +
-                                model_test + "."
-                          : "With " + se_description(f, a.roles.clusters) +
-                                " standard errors the test to report is the Wald test; " + model_test +
-                                (linear ? " assumes the same error variance in every row."
-                                        : " assumes the model's variance is right."));
+    if (multilevel)
+        t.notes.push_back(
+            "With the multilevel model's standard errors the test to report is the Wald test" +
+            std::string(f.multilevel->df == FixedEffectDf::Normal
+                            ? " against χ² (which assumes many groups)."
+                            : ", on " + df_method_text(f.multilevel->df_used()) + " degrees of freedom."));
+    else
+        t.notes.push_back(a.se == SeKind::Classical
+                              ? "With " + se_description(f, a.roles.clusters) +
+                                    " standard errors the test to report is " + model_test + "."
+                              : "With " + se_description(f, a.roles.clusters) +
+                                    " standard errors the test to report is the Wald test; " + model_test +
+                                    (linear ? " assumes the same error variance in every row."
+                                            : " assumes the model's variance is right."));
     return t;
 }
 
@@ -257,6 +277,11 @@ std::vector<NamedTable> analysis_tables(const Analysis& a, const AnalysisRun& ru
     std::vector<NamedTable> out;
     out.push_back({"estimates", estimates_table(a, run)});
     out.push_back({"fit-statistics", fit_table(run)});
+    if (run.fit.multilevel) {
+        out.push_back({"variance-components", detail::variance_components_table(*run.fit.multilevel)});
+        if (auto slopes = detail::slope_tests_table(*run.fit.multilevel))
+            out.push_back({"random-slope-tests", std::move(*slopes)});
+    }
     if (run.fit.comparison) out.push_back({"model-comparison", comparison_table(a, run)});
     if (run.probe) out.push_back({"conditional-effects", effects_table(*run.probe, run.fit)});
     if (run.cells) {

@@ -161,8 +161,8 @@ void write_heading(std::ostringstream& o, const FitResult& f, const std::string&
     if (f.se == SeKind::Cluster) o << ", " << f.n_clusters << " clusters";
     o << " · " << level_text(f.level) << " intervals · ";
     if (f.multilevel && f.multilevel->df != FixedEffectDf::Normal)
-        o << "t with " << df_method_text(f.multilevel->df) << " df for each term (probing: " << df_text(f.df_inference)
-          << ")";
+        o << "t with " << df_method_text(f.multilevel->df_used())
+          << " df for each term (probing: " << df_text(f.df_inference) << ")";
     else o << (std::isinf(f.df_inference) ? std::string("z (normal)") : "t with " + df_text(f.df_inference) + " df");
     o << "\n\n";
 }

@@ -8,6 +8,7 @@
 #include <functional>
 #include <nlohmann/json.hpp>
 
+#include "memo_multilevel.hpp"
 #include "moderato/probing/response_scale.hpp"
 #include "moderato/reporting/table_export.hpp"
 #include "moderato/support/report_text.hpp"
@@ -301,6 +302,10 @@ void cell_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
 // other one then named as secondary with its reason. Said once.
 void comparison_sentence(const Analysis& a, const AnalysisRun& run, std::vector<std::string>& out) {
     if (!run.fit.comparison) return;
+    if (run.fit.multilevel) {  // the Wald test with the model's own standard errors; no R²
+        out.push_back(detail::multilevel_comparison_sentence(run));
+        return;
+    }
     const NestedComparison& c = *run.fit.comparison;
     const std::string what = c.dropped_terms.size() == 1 ? "the interaction term" : "the interaction terms";
     const bool linear = run.fit.family == Family::Linear, robust = a.se != SeKind::Classical;
@@ -415,6 +420,7 @@ std::vector<std::string> memo_findings(const Analysis& a, const AnalysisRun& run
             break;
     }
     comparison_sentence(a, run, out);
+    detail::multilevel_sentences(run, out);
     return out;
 }
 
@@ -444,6 +450,7 @@ std::vector<std::string> memo_cautions(const Analysis& a, const AnalysisRun& run
         out.push_back(
             "In a logistic model the product coefficient (log-odds scale) is not the interaction on the "
             "probability scale; the probability-scale statements say how probabilities change.");
+    detail::multilevel_cautions(run, out);
     return out;
 }
 

@@ -1,4 +1,5 @@
 // Writing a memo as one self-contained HTML document or as Markdown.
+#include <algorithm>
 #include <sstream>
 
 #include "moderato/reporting/memo.hpp"
@@ -131,6 +132,21 @@ std::string base64_encode(const std::string& bytes) {
     return out;
 }
 
+namespace {
+
+// The tables shown with the model (the rest follow under "Probe").
+bool model_table(const std::string& key) {
+    return key == "estimates" || key == "fit-statistics" || key == "variance-components" ||
+           key == "random-slope-tests" || key == "model-comparison";
+}
+
+bool has_probe_part(const Memo& m) {
+    return !m.figures.empty() ||
+           std::any_of(m.tables.begin(), m.tables.end(), [](const NamedTable& t) { return !model_table(t.key); });
+}
+
+}  // namespace
+
 std::string memo_to_html(const Memo& m, bool embed_figures) {
     std::string h;
     h += "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n";
@@ -155,15 +171,13 @@ std::string memo_to_html(const Memo& m, bool embed_figures) {
     h += "<h2>Model</h2>\n<p class=\"equation\">" + m.equation_html + "</p>\n";
     h += "<p>Fitted: " + html_escape(m.fitted_text) + "</p>\n";
     for (const auto& t : m.tables)
-        if (t.key == "estimates" || t.key == "fit-statistics" || t.key == "model-comparison")
-            h += table_to_html(t.table) + "\n";
+        if (model_table(t.key)) h += table_to_html(t.table) + "\n";
     // On paper the figures start a page (Qt's printer cannot keep a heading with what follows).
-    if (!m.figures.empty() || m.tables.size() > 3)
+    if (has_probe_part(m))
         h += embed_figures ? "<h2>Probe</h2>\n" : "<h2 style=\"page-break-before:always\">Probe</h2>\n";
     for (std::size_t i = 0; i < m.figures.size(); ++i) h += figure_html(m.figures[i], i + 1, embed_figures);
     for (const auto& t : m.tables)
-        if (t.key != "estimates" && t.key != "fit-statistics" && t.key != "model-comparison")
-            h += table_to_html(t.table) + "\n";
+        if (!model_table(t.key)) h += table_to_html(t.table) + "\n";
     h += "<h2>Cautions</h2>\n<ul class=\"cautions\">\n";
     for (const auto& c : m.cautions) h += "<li>" + sentence_html(c) + "</li>\n";
     h += "</ul>\n";
@@ -187,17 +201,15 @@ std::string memo_to_markdown(const Memo& m) {
     s += "\n## Model\n\n$$\n" + m.equation_latex + "\n$$\n\n";
     s += "Fitted: " + markdown_escape(m.fitted_text) + "\n\n";
     for (const auto& t : m.tables)
-        if (t.key == "estimates" || t.key == "fit-statistics" || t.key == "model-comparison")
-            s += table_to_markdown(t.table) + "\n";
-    if (!m.figures.empty() || m.tables.size() > 3) s += "## Probe\n\n";
+        if (model_table(t.key)) s += table_to_markdown(t.table) + "\n";
+    if (has_probe_part(m)) s += "## Probe\n\n";
     // Each figure with its numbered caption on the line under it, as in the HTML memo.
     for (std::size_t i = 0; i < m.figures.size(); ++i) {
         const std::string title = markdown_escape(m.figures[i].title);
         s += "![" + title + "](" + m.figures[i].file + ")\n\n*Figure " + std::to_string(i + 1) + ". " + title + "*\n\n";
     }
     for (const auto& t : m.tables)
-        if (t.key != "estimates" && t.key != "fit-statistics" && t.key != "model-comparison")
-            s += table_to_markdown(t.table) + "\n";
+        if (!model_table(t.key)) s += table_to_markdown(t.table) + "\n";
     s += "## Cautions\n\n";
     for (const auto& c : m.cautions) s += "- " + markdown_escape(c) + "\n";
     s += "\n## Reproducibility\n\n";

@@ -9,7 +9,8 @@
 namespace moderato::ui {
 
 // "Linear model of y on x × z (+2 controls) · HC3 SEs · 95% intervals · n = 1,200";
-// with a second moderator: "… on x × z × w, w held at 3.2 (mean + 1 SD) · …"
+// with a second moderator: "… on x × z × w, w held at 3.2 (mean + 1 SD) · …";
+// a multilevel fit: "Multilevel linear model of y on x × z, in groups of team · model-based SEs · …"
 QString figureCaption(const Analysis& analysis, const AnalysisRun& run);
 // "HC3" / "classical" / "cluster-robust (shop, 40 clusters)" / "model-based"
 QString seDescription(const Analysis& analysis, const AnalysisRun& run);

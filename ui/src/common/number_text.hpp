@@ -17,6 +17,7 @@ inline QString pClauseText(double p) { return QString::fromStdString(p_clause(p)
 inline QString countText(long long n) { return QString::fromStdString(format_count(n)); }
 inline QString levelText(double level) { return QString::fromStdString(level_text(level)); }
 inline QString statisticText(double df) { return QString::fromStdString(statistic_label(df)); }
+inline QString dfText(double df) { return QString::fromStdString(format_df(df)); }
 inline QString exactText(double x) { return QString::fromStdString(exact_text(x)); }
 inline QString dataText(double x) { return QString::fromStdString(format_data(x)); }
 inline QString tickText(double x, double step) { return QString::fromStdString(format_tick(x, step)); }

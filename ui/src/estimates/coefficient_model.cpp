@@ -21,6 +21,11 @@ void CoefficientModel::setFit(const FitResult* fit, const QStringList& labels) {
     if (fit) {
         rows_ = fit->coefficients;
         logistic_ = fit->family == Family::Logistic;
+        multilevel_ = fit->multilevel.has_value();
+        normalDf_ = multilevel_ && fit->multilevel->df == FixedEffectDf::Normal;
+        dfMethod_ = multilevel_ && fit->multilevel->df_used() == FixedEffectDf::BetweenWithin
+                        ? tr("between\u2013within")
+                        : tr("Satterthwaite");
         level_ = fit->level;
         df_ = fit->df_inference;
         for (std::size_t i = 0; i < rows_.size(); ++i)
@@ -54,7 +59,7 @@ double CoefficientModel::value(const Coefficient& c, int column) const {
         case Upper:
             return c.ci_upper;
         case Vif:
-            return c.vif;
+            return multilevel_ ? c.df : c.vif;
     }
     return std::numeric_limits<double>::quiet_NaN();
 }
@@ -83,8 +88,7 @@ QVariant CoefficientModel::data(const QModelIndex& index, int role) const {
             if (c.aliased) return col == Estimate ? tr("aliased") : QString();
             if (std::isnan(v)) return QString();
             if (col == P) return pValueText(v);
-            if (col == Statistic) return numberText(v);
-            if (col == Vif) return numberText(v);
+            if (col == Df && multilevel_) return dfText(v);
             return numberText(v);
         }
         if (role == Qt::ToolTipRole && !c.aliased && !std::isnan(v)) return exactText(v);
@@ -113,7 +117,7 @@ QVariant CoefficientModel::headerData(int section, Qt::Orientation o, int role) 
             case StdError:
                 return tr("SE");
             case Statistic:
-                return logistic_ ? QStringLiteral("z") : QStringLiteral("t");
+                return logistic_ || normalDf_ ? QStringLiteral("z") : QStringLiteral("t");
             case P:
                 return QStringLiteral("p");
             case Lower:
@@ -121,7 +125,7 @@ QVariant CoefficientModel::headerData(int section, Qt::Orientation o, int role) 
             case Upper:
                 return tr("Upper %1").arg(pct);
             case Vif:
-                return QStringLiteral("VIF");
+                return multilevel_ ? QStringLiteral("df") : QStringLiteral("VIF");
         }
     }
     if (role == Qt::ToolTipRole) {
@@ -131,14 +135,18 @@ QVariant CoefficientModel::headerData(int section, Qt::Orientation o, int role) 
             case StdError:
                 return tr("Standard error");
             case Statistic:
-                return logistic_ ? tr("Estimate / SE, compared with the standard normal distribution")
-                                 : tr("Estimate / SE, compared with the t distribution on %1 df").arg(df_);
+                if (logistic_ || normalDf_) return tr("Estimate / SE, compared with the standard normal distribution");
+                if (multilevel_) return tr("Estimate / SE, compared with the t distribution on the term's own df");
+                return tr("Estimate / SE, compared with the t distribution on %1 df").arg(df_);
             case P:
                 return tr("Two-sided p-value for the coefficient being zero");
             case Lower:
             case Upper:
                 return tr("Bounds of the %1 confidence interval").arg(pct);
             case Vif:
+                if (multilevel_)
+                    return normalDf_ ? tr("Degrees of freedom: none (tests against the normal distribution)")
+                                     : tr("Degrees of freedom of the term's t test (%1)").arg(dfMethod_);
                 return tr(
                     "Variance inflation factor: how much collinearity with the other columns inflates the variance");
         }

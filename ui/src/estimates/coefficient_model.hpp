@@ -1,5 +1,7 @@
 // The coefficient table of a fit: term, estimate, SE, t or z, p, the
-// interval at the fit's level, VIF. The display role holds every digit (so
+// interval at the fit's level, VIF; for a multilevel fit (which has no VIF)
+// the last column holds each term's own degrees of freedom instead, as
+// format_df writes them. The display role holds every digit (so
 // copied text keeps full precision); FormattedRole holds what the table
 // shows (a few significant digits, "< 0.001"), drawn by CoefficientDelegate.
 #pragma once
@@ -17,6 +19,8 @@ class CoefficientModel : public QAbstractTableModel {
     Q_OBJECT
 public:
     enum Col { Term = 0, Estimate, StdError, Statistic, P, Lower, Upper, Vif, ColumnCount };
+    // A multilevel fit's last column: each term's df (where a single-level fit has its VIF).
+    static constexpr int Df = Vif;
     static constexpr int FormattedRole = Qt::UserRole + 1;
     static constexpr int ValueRole = Qt::UserRole + 2;  // the double (NaN where there is none)
     static constexpr int AliasedRole = Qt::UserRole + 3;
@@ -26,6 +30,8 @@ public:
     void setFit(const FitResult* fit, const QStringList& labels = {});
     void clear();
     bool isLogistic() const { return logistic_; }
+    // Whether the last column holds each term's df (a multilevel fit).
+    bool showsDf() const { return multilevel_; }
 
     int rowCount(const QModelIndex& parent = {}) const override;
     int columnCount(const QModelIndex& parent = {}) const override;
@@ -37,6 +43,9 @@ private:
     std::vector<Coefficient> rows_;
     QStringList labels_;
     bool logistic_ = false;
+    bool multilevel_ = false;
+    bool normalDf_ = false;  // multilevel tests against the normal distribution (z)
+    QString dfMethod_;       // "Satterthwaite", "between–within" (multilevel)
     double level_ = 0.95;
     double df_ = 0;
 };

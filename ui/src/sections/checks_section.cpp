@@ -23,6 +23,25 @@
 
 namespace moderato::ui {
 
+namespace {
+// What stands in the influence plot's place for a multilevel fit.
+QLabel* influenceNoteLabel(QWidget* parent) {
+    auto* note = new QLabel(parent);
+    note->setObjectName(QStringLiteral("checks-influence-note"));
+    note->setWordWrap(true);
+    note->setAlignment(Qt::AlignTop | Qt::AlignLeft);
+    note->setTextInteractionFlags(Qt::TextSelectableByMouse);
+    note->setText(
+        ChecksSection::tr("<b>No influence plot for a multilevel fit.</b> Cook's distance and leverage are "
+                          "measures of an ordinary least-squares fit; they do not carry over to a model whose rows "
+                          "share their group's effects, so they are not shown. Rows are flagged by their "
+                          "standardised conditional residual alone; to see whether one group sways the results, "
+                          "fit the model without it."));
+    note->hide();
+    return note;
+}
+}  // namespace
+
 ChecksSection::ChecksSection(ProjectDocument* doc, QWidget* parent)
     : AnalysisSection(doc, parent),
       threshold_(kInlineWorkCells),
@@ -32,6 +51,7 @@ ChecksSection::ChecksSection(ProjectDocument* doc, QWidget* parent)
       residuals_(new DiagnosticPlot(DiagnosticPlot::Residuals, this)),
       quantiles_(new DiagnosticPlot(DiagnosticPlot::Quantiles, this)),
       influence_(new DiagnosticPlot(DiagnosticPlot::Influence, this)),
+      influenceNote_(influenceNoteLabel(this)),
       rules_(new QLabel(this)),
       list_(new QTableView(this)),
       model_(new FlaggedRowsModel(this)),
@@ -60,6 +80,7 @@ ChecksSection::ChecksSection(ProjectDocument* doc, QWidget* parent)
     grid->addWidget(residuals_, 0, 0);
     grid->addWidget(quantiles_, 0, 1);
     grid->addWidget(influence_, 1, 0);
+    grid->addWidget(influenceNote_, 1, 0);  // in the influence plot's place for a multilevel fit
     auto* panel = new QWidget(this);
     auto* side = new QVBoxLayout(panel);
     side->setContentsMargins(0, 0, 0, 0);
@@ -108,7 +129,14 @@ ChecksSection::ChecksSection(ProjectDocument* doc, QWidget* parent)
         connect(p, &DiagnosticPlot::observationClicked, this, &ChecksSection::selectObservation);
 }
 
-QList<FigureSource*> ChecksSection::figures() { return {residuals_, quantiles_, influence_}; }
+QList<FigureSource*> ChecksSection::figures() {
+    if (multilevel()) return {residuals_, quantiles_};  // no influence plot (see influenceNote_)
+    return {residuals_, quantiles_, influence_};
+}
+
+std::shared_ptr<const Diagnostics> ChecksSection::plotted(std::size_t k) const {
+    return k == 2 && diag_ && diag_->multilevel ? nullptr : diag_;
+}
 
 namespace {
 // Whether two runs have the same rows, design and estimates: then their
@@ -258,9 +286,14 @@ void ChecksSection::showDiagnostics(const QString& problem,
     } else {
         DiagnosticPlot* const plots[] = {residuals_, quantiles_, influence_};
         for (std::size_t k = 0; k < 3; ++k)
-            plots[k]->setDiagnostics(diag_, *rows, k < points.size() ? points[k] : nullptr);
+            plots[k]->setDiagnostics(plotted(k), *rows, k < points.size() ? points[k] : nullptr);
         if (staged) Q_EMIT computed();
     }
+    const bool ml = diag_ && diag_->multilevel;
+    influence_->setVisible(!ml);
+    influenceNote_->setVisible(ml);
+    list_->setColumnHidden(FlaggedRowsModel::Leverage, ml);
+    list_->setColumnHidden(FlaggedRowsModel::Cooks, ml);
     model_->setDiagnostics(diag_, run_ ? run_->table : nullptr);
     list_->resizeColumnsToContents();  // sized from at most kListSizingRows rows (set up in the constructor)
     show_->setEnabled(false);
@@ -286,7 +319,7 @@ void ChecksSection::drawPlotLater(std::size_t k, int shown, std::shared_ptr<cons
             return;
         }
         DiagnosticPlot* const plots[] = {residuals_, quantiles_, influence_};
-        plots[k]->setDiagnostics(diag_, *rows, points[k], true);
+        plots[k]->setDiagnostics(plotted(k), *rows, points[k], true);
         // The painting was posted just now, so it comes in the next turn; the
         // next plot one turn after it (events posted during a turn wait for the next).
         QTimer::singleShot(0, this, [=, this] { drawPlotLater(k + 1, shown, rows, points); });
@@ -313,6 +346,7 @@ RowNumbers ChecksSection::rowNumbers(const AnalysisRun& run) {
 }
 
 QString ChecksSection::noteText(const Diagnostics& d) const {
+    if (d.multilevel) return multilevelNoteText(d);
     QStringList note;
     const QString bins =
         tr("The squares are the mean residual in bins of the fitted value, each with its 95% interval: where "
@@ -337,7 +371,28 @@ QString ChecksSection::noteText(const Diagnostics& d) const {
     return note.join(QLatin1Char(' '));
 }
 
+QString ChecksSection::multilevelNoteText(const Diagnostics& d) const {
+    QStringList note;
+    note << tr(
+        "Multilevel fit: the residuals are conditional ones, each row's outcome minus the fixed part and its "
+        "group's predicted effects, against the fitted values with those effects. The squares are the mean "
+        "residual in bins of the fitted value, each with its 95% interval: where an interval misses the zero "
+        "line, the model misses a pattern there. Quantile plot: the conditional residuals divided by the "
+        "residual SD against normal quantiles; points near the line y = x suggest roughly normal errors "
+        "within groups.");
+    for (const auto& n : d.notes) note << QString::fromStdString(n);
+    return note.join(QLatin1Char(' '));
+}
+
+QString ChecksSection::multilevelRulesText(const Diagnostics& d) const {
+    const QString n = countText(static_cast<long long>(d.n));
+    return tr("Rows are flagged by one rule of thumb (common practice, not a test), with %1 rows in the fit: "
+              "standardised conditional residual beyond ±%2. %3 of %1 rows flagged, largest residual first.")
+        .arg(n, numberText(d.rules.residual_limit), countText(static_cast<long long>(d.flagged.size())));
+}
+
 QString ChecksSection::rulesText(const Diagnostics& d) const {
+    if (d.multilevel) return multilevelRulesText(d);
     // The rules core applies (diagnostics.hpp, DiagnosticRules), in words.
     const QString n = countText(static_cast<long long>(d.n));
     const QString residual =

@@ -2,7 +2,9 @@
 // the normal quantile plot, and the influence of each row (Cook's distance
 // and leverage in the order of the data, with the rules that flag rows),
 // each exportable, beside the list of rows that common rules of thumb flag,
-// with their file lines. Selected rows can be shown in the dataset grid.
+// with their file lines. A multilevel fit shows its conditional residuals,
+// and in place of the influence plot (least-squares measures that do not
+// carry over to it) a note that says so. Selected rows can be shown in the dataset grid.
 // Core computes every number (moderato/estimation/diagnostics.hpp); this
 // section draws them and says in words what they show. For more than
 // kInlineWorkCells (common/inline_work.hpp) rows × coefficients the
@@ -54,6 +56,8 @@ public:
     QTableView* flaggedView() const { return list_; }
     QPushButton* showInDatasetButton() const { return show_; }
     QLabel* rulesLabel() const { return rules_; }
+    // The note shown in place of the influence plot for a multilevel fit.
+    QLabel* influenceNote() const { return influenceNote_; }
     // Computes the diagnostics now (they are otherwise computed when the
     // section is first shown); for exporting its figures unseen.
     void ensureComputed();
@@ -92,6 +96,13 @@ private:
     // What the plots show, and the rules that flag rows, in words.
     QString noteText(const Diagnostics& d) const;
     QString rulesText(const Diagnostics& d) const;
+    // A multilevel fit's plots and rules in words.
+    QString multilevelNoteText(const Diagnostics& d) const;
+    QString multilevelRulesText(const Diagnostics& d) const;
+    // What plot k (residuals, quantiles, influence) shows: the diagnostics,
+    // or none for the influence plot of a multilevel fit.
+    std::shared_ptr<const Diagnostics> plotted(std::size_t k) const;
+    bool multilevel() const { return run_ && run_->fit.multilevel.has_value(); }
 
     QString id_;
     std::shared_ptr<const AnalysisRun> run_;
@@ -110,6 +121,7 @@ private:
     DiagnosticPlot* residuals_;
     DiagnosticPlot* quantiles_;
     DiagnosticPlot* influence_;
+    QLabel* influenceNote_;
     QLabel* rules_;
     QTableView* list_;
     FlaggedRowsModel* model_;

@@ -19,6 +19,8 @@
 #include "common/table_clipboard.hpp"
 #include "estimates/coefficient_model.hpp"
 #include "model/project_document.hpp"
+#include "sections/multilevel_fit_text.hpp"
+#include "sections/random_part_view.hpp"
 #include "specify/model_equation.hpp"
 #include "specify/role_edit.hpp"
 #include "specify/section_widgets.hpp"
@@ -93,6 +95,7 @@ EstimatesSection::EstimatesSection(ProjectDocument* doc, QWidget* parent)
       table_(new QTableView(this)),
       model_(new CoefficientModel(this)),
       fit_(wrapped(this)),
+      randomPart_(new RandomPartView(this)),
       comparisonTitle_(sectionHeading(tr("With and without the interaction"), this)),
       comparison_(wrapped(this)),
       warnings_(wrapped(this)),
@@ -109,8 +112,8 @@ EstimatesSection::EstimatesSection(ProjectDocument* doc, QWidget* parent)
     auto* v = new QVBoxLayout(body);
     v->setContentsMargins(6, 0, 6, 6);
     v->setSpacing(6);
-    for (QWidget* w : std::initializer_list<QWidget*>{header_, copy_, toggle_, table_, fit_, comparisonTitle_,
-                                                      comparison_, warnings_, notes_, errorBanner_})
+    for (QWidget* w : std::initializer_list<QWidget*>{header_, copy_, toggle_, table_, fit_, randomPart_,
+                                                      comparisonTitle_, comparison_, warnings_, notes_, errorBanner_})
         w->setParent(body);
 
     errorBanner_->setObjectName(QStringLiteral("estimates-error"));
@@ -160,6 +163,7 @@ EstimatesSection::EstimatesSection(ProjectDocument* doc, QWidget* parent)
     fit_->setObjectName(QStringLiteral("estimates-fit"));
     v->addWidget(sectionHeading(tr("Fit"), body));
     v->addWidget(fit_);
+    v->addWidget(randomPart_);
     comparison_->setObjectName(QStringLiteral("estimates-comparison"));
     v->addWidget(comparisonTitle_);
     v->addWidget(comparison_);
@@ -211,8 +215,8 @@ void EstimatesSection::refresh() {
         model_->clear();
         header_->setText(error_.isEmpty() ? tr("No estimates yet.")
                                           : tr("No estimates: the model could not be fitted."));
-        for (QWidget* w :
-             std::initializer_list<QWidget*>{toggle_, fit_, comparisonTitle_, comparison_, warnings_, notes_})
+        for (QWidget* w : std::initializer_list<QWidget*>{toggle_, fit_, randomPart_, comparisonTitle_, comparison_,
+                                                          warnings_, notes_})
             w->hide();
         copy_->setEnabled(false);
         fitTableHeight();
@@ -231,12 +235,17 @@ void EstimatesSection::refresh() {
     showHeader(*a, main);
     if (canCentre) showCentres(run);
     showFitStatistics(main);
+    randomPart_->setFit(&main);
     showComparison(main);
     showWarningsAndNotes(main, shown);
 }
 
 // What the table is: the model, SE kind, level, reference distribution.
 void EstimatesSection::showHeader(const Analysis& a, const FitResult& main) {
+    if (main.multilevel) {
+        header_->setText(multilevelHeader(a.roles.outcome, main));
+        return;
+    }
     const bool logistic = main.family == Family::Logistic;
     QString se = seLabel(main.se, main.family);
     if (main.se == SeKind::Cluster) se += tr(" (%1 clusters)").arg(main.n_clusters);
@@ -259,6 +268,11 @@ void EstimatesSection::showCentres(const AnalysisRun& run) {
 }
 
 void EstimatesSection::showFitStatistics(const FitResult& main) {
+    fit_->show();
+    if (main.multilevel) {  // no R²
+        fit_->setText(multilevelFitRows(main));
+        return;
+    }
     const bool logistic = main.family == Family::Logistic;
     QString rows;
     rows += row(QStringLiteral("n"),
@@ -288,7 +302,6 @@ void EstimatesSection::showFitStatistics(const FitResult& main) {
     rows += row(QStringLiteral("AIC"), numberText(main.aic));
     rows += row(QStringLiteral("BIC"), numberText(main.bic));
     fit_->setText(QStringLiteral("<table>%1</table>").arg(rows));
-    fit_->show();
 }
 
 // The model with and without its product terms.
@@ -296,7 +309,9 @@ void EstimatesSection::showComparison(const FitResult& main) {
     const bool logistic = main.family == Family::Logistic;
     comparisonTitle_->show();
     comparison_->show();
-    if (main.comparison) {
+    if (main.multilevel) {  // the Wald test with the model's own covariance: no R² change
+        comparison_->setText(multilevelComparison(main));
+    } else if (main.comparison) {
         const NestedComparison& c = *main.comparison;
         QStringList dropped;
         for (const auto& t : c.dropped_terms) dropped << h(t);
@@ -349,6 +364,10 @@ void EstimatesSection::showWarningsAndNotes(const FitResult& main, const FitResu
         notes << tr("VIF above 10: %1. A product term is correlated with its own components; that inflates their "
                     "VIFs without harming the product coefficient, and centring lowers them without changing the fit.")
                      .arg(highVif.join(QStringLiteral(", ")));
+    if (main.multilevel)
+        notes << tr("The coefficients are the fixed effects: those of a typical group of %1; each group's own "
+                    "intercept (and random slopes) vary around them as the random part shows.")
+                     .arg(h(main.multilevel->groups));
     notes << tr(
         "These coefficients describe associations in these data, not causal effects, unless the focal "
         "predictor was randomised.");

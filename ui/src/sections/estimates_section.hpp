@@ -1,7 +1,8 @@
 // The Estimates section: the coefficient table (estimate, SE, t or z, p,
 // interval, VIF; aliased rows marked), fit statistics, the comparison of the
 // model with and without its product terms, and the warnings and notes of
-// the fit. With centring at the mean a toggle shows the centred fit. The
+// the fit. A multilevel fit shows each term's df in place of the VIF, no
+// R², and its random part (RandomPartView). With centring at the mean a toggle shows the centred fit. The
 // table copies as tab-separated text with every digit.
 #pragma once
 
@@ -17,6 +18,7 @@ class QToolButton;
 namespace moderato::ui {
 
 class CoefficientModel;
+class RandomPartView;
 
 class EstimatesSection : public AnalysisSection {
     Q_OBJECT
@@ -33,6 +35,7 @@ public:
     QLabel* headerLabel() const { return header_; }
     QLabel* fitLabel() const { return fit_; }
     QLabel* comparisonLabel() const { return comparison_; }
+    RandomPartView* randomPart() const { return randomPart_; }
     QLabel* warningsLabel() const { return warnings_; }
     QLabel* errorBanner() const { return errorBanner_; }
     // Whether the table shows the centred fit.
@@ -64,6 +67,7 @@ private:
     QTableView* table_;
     CoefficientModel* model_;
     QLabel* fit_;
+    RandomPartView* randomPart_;
     QLabel* comparisonTitle_;
     QLabel* comparison_;
     QLabel* warnings_;

@@ -77,6 +77,7 @@ QVariant FlaggedRowsModel::headerData(int section, Qt::Orientation orientation, 
         case Fitted:
             return d_ && d_->family == Family::Logistic ? tr("fitted probability") : tr("fitted value");
         case Residual:
+            if (d_ && d_->multilevel) return tr("standardised conditional residual");
             return d_ && d_->family == Family::Logistic ? tr("standardised Pearson residual")
                                                         : tr("externally studentised residual");
         case Leverage:

@@ -7,6 +7,7 @@
 #include <QHBoxLayout>
 #include <QHeaderView>
 #include <QLabel>
+#include <QListView>
 #include <QMenu>
 #include <QScrollArea>
 #include <QSignalBlocker>
@@ -21,6 +22,7 @@
 #include "moderato/estimation/design.hpp"
 #include "specify/column_list_model.hpp"
 #include "specify/model_equation.hpp"
+#include "specify/multilevel_panel.hpp"
 #include "specify/role_slot.hpp"
 #include "specify/section_widgets.hpp"
 #include "style/estuary.hpp"
@@ -31,6 +33,8 @@ namespace {
 
 const SeKind kSeKinds[] = {SeKind::Classical, SeKind::HC0, SeKind::HC1,    SeKind::HC2,
                            SeKind::HC3,       SeKind::HC4, SeKind::Cluster};
+// The standard-errors entry shown (and not offered) while a Groups column is chosen.
+constexpr int kMultilevelSe = -1;
 
 QString seTooltip(SeKind s) {
     switch (s) {
@@ -62,6 +66,7 @@ SpecifySection::SpecifySection(ProjectDocument* doc, QWidget* parent)
       columns_(new ColumnListModel(this)),
       columnView_(new QTableView(this)),
       columnsTitle_(sectionHeading(tr("Columns"), this)),
+      multilevel_(nullptr),
       family_(new QComboBox(this)),
       se_(new QComboBox(this)),
       level_(new QDoubleSpinBox(this)),
@@ -157,9 +162,11 @@ void SpecifySection::createRoleSlots(QWidget* right, QVBoxLayout* r) {
     auto* slotHint = mutedLabel(right);
     slotHint->setText(
         tr("The model has the focal predictor, the moderator (and second moderator), their product "
-           "and the controls. Drag a column from one slot to another to move it; between two "
-           "single slots the columns swap."));
+           "and the controls; a Groups column makes it a multilevel model. Drag a column from one slot "
+           "to another to move it; between two single slots the columns swap."));
     r->addWidget(slotHint);
+    multilevel_ = new MultilevelPanel(right);
+    r->addWidget(multilevel_);
 }
 
 // Family, standard errors, confidence level and centring.
@@ -177,6 +184,7 @@ void SpecifySection::createModelOptions(QWidget* right, QVBoxLayout* r) {
         se_->addItem(seKindName(s), static_cast<int>(s));
         se_->setItemData(se_->count() - 1, seTooltip(s), Qt::ToolTipRole);
     }
+    se_->addItem(tr("model-based (multilevel model)"), kMultilevelSe);
     level_->setObjectName(QStringLiteral("specify-level"));
     level_->setRange(0.80, 0.999);
     level_->setDecimals(3);
@@ -253,6 +261,7 @@ void SpecifySection::connectSignals() {
             apply(setFamily(*a, doc_->table(a->dataset).get(), static_cast<Family>(family_->itemData(index).toInt())));
     });
     connect(se_, &QComboBox::activated, this, [this](int index) {
+        if (se_->itemData(index).toInt() == kMultilevelSe) return;
         if (const Analysis* a = current())
             apply(setSeKind(*a, doc_->table(a->dataset).get(), static_cast<SeKind>(se_->itemData(index).toInt())),
                   QStringLiteral("se:") + id_);  // arrow keys through the list: one step
@@ -275,6 +284,8 @@ void SpecifySection::connectSignals() {
                   QStringLiteral("reference:") + id_);
     });
 
+    connectMultilevel();
+
     connect(doc_, &ProjectDocument::analysisChanged, this, [this](const QString& id) {
         if (id != id_) return;
         if (!applying_) {  // undo, redo or another view: an old message no longer applies
@@ -288,6 +299,27 @@ void SpecifySection::connectSignals() {
         if (a && QString::fromStdString(a->dataset) == id) refresh();
     });
     connect(doc_, &ProjectDocument::structureChanged, this, [this] { refresh(); });
+}
+
+// The multilevel choices, each an undoable edit.
+void SpecifySection::connectMultilevel() {
+    const auto column = [this](RoleEdit (*edit)(const Analysis&, const Table*, const std::string&, bool)) {
+        return [this, edit](const QString& name, bool on) {
+            if (const Analysis* a = current()) apply(edit(*a, doc_->table(a->dataset).get(), name.toStdString(), on));
+        };
+    };
+    connect(multilevel_, &MultilevelPanel::randomSlopeToggled, this, column(&setRandomSlope));
+    connect(multilevel_, &MultilevelPanel::centreWithinToggled, this, column(&setCentreWithin));
+    connect(multilevel_, &MultilevelPanel::groupMeansToggled, this, column(&setGroupMeans));
+    connect(multilevel_, &MultilevelPanel::estimationChosen, this, [this](MixedEstimation e) {
+        if (const Analysis* a = current()) apply(setMixedEstimation(*a, doc_->table(a->dataset).get(), e));
+    });
+    connect(multilevel_, &MultilevelPanel::covarianceChosen, this, [this](RandomCovariance c) {
+        if (const Analysis* a = current()) apply(setRandomCovariance(*a, doc_->table(a->dataset).get(), c));
+    });
+    connect(multilevel_, &MultilevelPanel::dfChosen, this, [this](FixedEffectDf d) {
+        if (const Analysis* a = current()) apply(setFixedEffectDf(*a, doc_->table(a->dataset).get(), d));
+    });
 }
 
 const Analysis* SpecifySection::current() const { return id_.isEmpty() ? nullptr : doc_->analysis(id_); }
@@ -353,6 +385,7 @@ void SpecifySection::refresh() {
         rows_->clear();
         message_->hide();
         errorBanner_->hide();
+        multilevel_->showAnalysis(nullptr, nullptr);
         return;
     }
     const auto table = doc_->table(a->dataset);
@@ -368,27 +401,14 @@ void SpecifySection::refresh() {
         slots_[static_cast<std::size_t>(i)]->setContents(roleColumns(*a, static_cast<Role>(i)), choices);
 
     {
-        const QSignalBlocker b1(family_), b2(se_), b3(level_), b4(centring_);
+        const QSignalBlocker b1(family_), b3(level_), b4(centring_);
         family_->setCurrentIndex(family_->findData(static_cast<int>(a->family)));
-        auto* items = qobject_cast<QStandardItemModel*>(se_->model());
-        for (int i = 0; i < se_->count(); ++i) {
-            const auto kind = static_cast<SeKind>(se_->itemData(i).toInt());
-            const bool offered = seOffered(a->family, kind);
-            if (items) items->item(i)->setEnabled(offered);
-            se_->setItemData(i,
-                             offered ? seTooltip(kind)
-                                     : tr("%1 corrects for leverage in a linear model and is not offered for "
-                                          "logistic models; use HC0 or HC1 (sandwich), classical (model-based) "
-                                          "or cluster-robust.")
-                                           .arg(seKindName(kind)),
-                             Qt::ToolTipRole);
-        }
-        se_->setCurrentIndex(se_->findData(static_cast<int>(a->se)));
-        se_->setToolTip(se_->itemData(se_->currentIndex(), Qt::ToolTipRole).toString());
         level_->setValue(a->level);
         centring_->setCurrentIndex(std::max(0, centring_->findData(static_cast<int>(a->centring))));
     }
+    refreshStandardErrors(*a);
     refreshReference(*a, table.get());
+    multilevel_->showAnalysis(a, table);
 
     QStringList lines;
     if (!refusal_.isEmpty()) lines << tr("Not changed: %1").arg(refusal_);
@@ -410,6 +430,36 @@ void SpecifySection::refresh() {
     reading_->setVisible(!eq.reading.isEmpty());
     rows_->setText(run ? rowsUsedText(run->fit) : QString());
     rows_->setVisible(run != nullptr);
+}
+
+// The kinds the family offers; none to choose while a Groups column is
+// chosen (a multilevel model takes its standard errors from the model).
+void SpecifySection::refreshStandardErrors(const Analysis& a) {
+    const QSignalBlocker block(se_);
+    auto* items = qobject_cast<QStandardItemModel*>(se_->model());
+    const bool multilevel = a.multilevel.active();
+    for (int i = 0; i < se_->count(); ++i) {
+        if (se_->itemData(i).toInt() == kMultilevelSe) {
+            if (items) items->item(i)->setEnabled(false);
+            if (auto* list = qobject_cast<QListView*>(se_->view())) list->setRowHidden(i, !multilevel);
+            continue;
+        }
+        const auto kind = static_cast<SeKind>(se_->itemData(i).toInt());
+        const bool offered = seOffered(a.family, kind);
+        if (items) items->item(i)->setEnabled(offered);
+        se_->setItemData(i,
+                         offered ? seTooltip(kind)
+                                 : tr("%1 corrects for leverage in a linear model and is not offered for "
+                                      "logistic models; use HC0 or HC1 (sandwich), classical (model-based) "
+                                      "or cluster-robust.")
+                                       .arg(seKindName(kind)),
+                         Qt::ToolTipRole);
+    }
+    se_->setCurrentIndex(se_->findData(multilevel ? kMultilevelSe : static_cast<int>(a.se)));
+    se_->setEnabled(!multilevel);
+    se_->setToolTip(multilevel ? tr("With Groups the standard errors come from the multilevel model (model-based); "
+                                    "clear Groups to choose others.")
+                               : se_->itemData(se_->currentIndex(), Qt::ToolTipRole).toString());
 }
 
 // The moderator's levels, the model's reference first; the row shows only

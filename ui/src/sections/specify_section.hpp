@@ -1,9 +1,9 @@
 // The Specify section: the dataset's columns on the left, the role slots on
-// the right (filled by drag and drop or pickers), the family, standard-error
-// kind, confidence level and centring, and the model written out as an
-// equation. Each change is one undoable edit of the analysis; the runner
-// refits on its own. Edits that cannot work are refused with a message
-// naming the role and column; run errors show in a banner.
+// the right (filled by drag and drop or pickers), the multilevel choices
+// while a Groups column is chosen, the family, standard-error kind,
+// confidence level and centring, and the model written out as an equation. Each change is one undoable edit of the
+// analysis; the runner refits on its own. Edits that cannot work are refused with a message naming the role and column;
+// run errors show in a banner.
 #pragma once
 
 #include <array>
@@ -22,6 +22,7 @@ class QVBoxLayout;
 namespace moderato::ui {
 
 class ColumnListModel;
+class MultilevelPanel;
 class RoleSlot;
 
 class SpecifySection : public AnalysisSection {
@@ -37,6 +38,8 @@ public:
     QComboBox* seBox() const { return se_; }
     QDoubleSpinBox* levelBox() const { return level_; }
     QComboBox* centringBox() const { return centring_; }
+    // The multilevel choices (shown while a Groups column is chosen).
+    MultilevelPanel* multilevelPanel() const { return multilevel_; }
     // The reference level of a categorical moderator (hidden otherwise).
     QComboBox* referenceBox() const { return reference_; }
     // The inline message (refused edits and problems with the roles); empty when none.
@@ -54,6 +57,7 @@ private:
     QWidget* createSettings(QWidget* parent);
     void createRoleSlots(QWidget* right, QVBoxLayout* r);
     void createModelOptions(QWidget* right, QVBoxLayout* r);
+    void connectMultilevel();
     void createMessages(QVBoxLayout* r);
     void createEquation(QWidget* right, QVBoxLayout* r);
     void connectSignals();
@@ -65,6 +69,7 @@ private:
     void columnCleared(Role role, const QString& column);
     void showColumnMenu(const QPoint& pos);
     void refreshReference(const Analysis& a, const Table* table);
+    void refreshStandardErrors(const Analysis& a);
 
     QString id_;
     std::shared_ptr<const AnalysisRun> run_;
@@ -77,6 +82,7 @@ private:
     QTableView* columnView_;
     QLabel* columnsTitle_;
     std::array<RoleSlot*, kRoleCount> slots_{};
+    MultilevelPanel* multilevel_;
     QComboBox* family_;
     QComboBox* se_;
     QDoubleSpinBox* level_;

@@ -2,6 +2,7 @@
 #include "common/number_text.hpp"
 #include "model/project_document.hpp"
 #include "moderato/estimation/design.hpp"
+#include "specify/multilevel_edit.hpp"
 
 #include <QCoreApplication>
 #include <algorithm>
@@ -32,6 +33,8 @@ auto singleSlot(A& a, Role r) -> decltype(&a.roles.outcome) {
             return &a.roles.weights;
         case Role::Clusters:
             return &a.roles.clusters;
+        case Role::Groups:
+            return &a.multilevel.groups;
         case Role::Controls:
             return nullptr;
     }
@@ -56,6 +59,7 @@ void addNote(QString& note, const QString& more) { note = note.isEmpty() ? more 
 // errors, and cluster-robust errors without one fall back to a sandwich.
 void followClusters(const Analysis& before, Analysis& after, QString& note) {
     if (after.roles.clusters == before.roles.clusters) return;
+    if (!after.multilevel.groups.empty()) return;  // the multilevel model's own standard errors (followGroups)
     if (!after.roles.clusters.empty() && after.se != SeKind::Cluster) {
         after.se = SeKind::Cluster;
         addNote(note, tr("Standard errors are now cluster-robust by %1, so rows of one "
@@ -70,9 +74,12 @@ void followClusters(const Analysis& before, Analysis& after, QString& note) {
     }
 }
 
-RoleEdit checked(const Analysis& before, Analysis after, const Table* table, QString description, QString note = {}) {
+}  // namespace
+
+RoleEdit checkedEdit(const Analysis& before, Analysis after, const Table* table, QString description, QString note) {
     RoleEdit e;
     followClusters(before, after, note);
+    followGroups(before, after, table, note);
     if (after == before) return e;  // nothing to do
     const QStringList old = roleProblems(before, table);
     QStringList added;
@@ -103,8 +110,6 @@ RoleEdit checked(const Analysis& before, Analysis after, const Table* table, QSt
     return e;
 }
 
-}  // namespace
-
 QString roleName(Role r) {
     switch (r) {
         case Role::Outcome:
@@ -121,6 +126,8 @@ QString roleName(Role r) {
             return tr("Weights");
         case Role::Clusters:
             return tr("Clusters");
+        case Role::Groups:
+            return tr("Groups");
     }
     return {};
 }
@@ -254,6 +261,7 @@ QStringList roleProblems(const Analysis& a, const Table* table) {
         out << tr("%1 standard errors are not offered for logistic models; choose classical, HC0, HC1 or "
                   "cluster-robust.")
                    .arg(seKindName(a.se));
+    out << multilevelProblems(a);
     return out;
 }
 
@@ -303,7 +311,7 @@ RoleEdit assignColumn(const Analysis& before, const Table* table, Role target, c
             description = tr("Set %1 to %2").arg(roleName(target), col);
         }
     }
-    return checked(before, std::move(after), table, description);
+    return checkedEdit(before, std::move(after), table, description);
 }
 
 RoleEdit clearRole(const Analysis& before, const Table* table, Role role, const std::string& column) {
@@ -321,7 +329,7 @@ RoleEdit clearRole(const Analysis& before, const Table* table, Role role, const 
         singleSlot(after, role)->clear();
         description = tr("Clear %1").arg(roleName(role));
     }
-    return checked(before, std::move(after), table, description);
+    return checkedEdit(before, std::move(after), table, description);
 }
 
 RoleEdit setFamily(const Analysis& before, const Table* table, Family family) {
@@ -336,7 +344,7 @@ RoleEdit setFamily(const Analysis& before, const Table* table, Family family) {
         note =
             tr("%1 is not offered for logistic models, so the standard errors are now HC0.").arg(seKindName(before.se));
     }
-    return checked(before, std::move(after), table, description, note);
+    return checkedEdit(before, std::move(after), table, description, note);
 }
 
 RoleEdit setSeKind(const Analysis& before, const Table* table, SeKind se) {
@@ -347,7 +355,7 @@ RoleEdit setSeKind(const Analysis& before, const Table* table, SeKind se) {
         note = tr("%1 standard errors do not use the Clusters column %2; rows of one cluster are taken as "
                   "independent.")
                    .arg(seKindName(se), q(before.roles.clusters));
-    return checked(before, std::move(after), table, tr("Set standard errors to %1").arg(seKindName(se)), note);
+    return checkedEdit(before, std::move(after), table, tr("Set standard errors to %1").arg(seKindName(se)), note);
 }
 
 RoleEdit setLevel(const Analysis& before, const Table* table, double level) {
@@ -358,14 +366,14 @@ RoleEdit setLevel(const Analysis& before, const Table* table, double level) {
         e.refusal = tr("The confidence level must be between 0 and 1, e.g. 0.95.");
         return e;
     }
-    return checked(before, std::move(after), table,
-                   tr("Set confidence level to %1").arg(QString::number(level, 'g', 6)));
+    return checkedEdit(before, std::move(after), table,
+                       tr("Set confidence level to %1").arg(QString::number(level, 'g', 6)));
 }
 
 RoleEdit setCentring(const Analysis& before, const Table* table, Centring centring) {
     Analysis after = before;
     after.centring = centring;
-    return checked(before, std::move(after), table, tr("Set centring to %1").arg(plain(to_string(centring))));
+    return checkedEdit(before, std::move(after), table, tr("Set centring to %1").arg(plain(to_string(centring))));
 }
 
 std::vector<std::string> orderedLevels(const Analysis& a, const Table& table, const std::string& column) {
@@ -395,7 +403,7 @@ RoleEdit setReferenceLevel(const Analysis& before, const Table* table, const std
         const auto& name = was[static_cast<std::size_t>(g)];
         after.probe.current = static_cast<double>(std::find(now.begin(), now.end(), name) - now.begin());
     }
-    return checked(before, std::move(after), table, tr("Set reference level of %1 to %2").arg(q(column), q(level)));
+    return checkedEdit(before, std::move(after), table, tr("Set reference level of %1 to %2").arg(q(column), q(level)));
 }
 
 }  // namespace moderato::ui

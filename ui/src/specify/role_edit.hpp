@@ -2,8 +2,10 @@
 // section makes on them: put a column in a role, move it between roles,
 // clear a role; with the checks that refuse an edit that cannot work (the
 // same column in two roles, a categorical Outcome, a logistic Outcome that
-// is not 0/1, cluster-robust errors without a Clusters column) before it
-// reaches the project. No Qt widgets here, so it is easy to test.
+// is not 0/1, cluster-robust errors without a Clusters column, Groups beside
+// weights or clusters) before it reaches the project. The multilevel
+// choices that come with Groups are edited in multilevel_edit.hpp through
+// the same checks. No Qt widgets here, so it is easy to test.
 #pragma once
 
 #include <QString>
@@ -17,8 +19,9 @@
 
 namespace moderato::ui {
 
-enum class Role { Outcome, Focal, Moderator, SecondModerator, Controls, Weights, Clusters };
-inline constexpr int kRoleCount = 7;
+// Groups: the level-2 unit of a multilevel model (Analysis::multilevel.groups).
+enum class Role { Outcome, Focal, Moderator, SecondModerator, Controls, Weights, Clusters, Groups };
+inline constexpr int kRoleCount = 8;
 
 QString roleName(Role r);                  // "Outcome", "Focal predictor", ...
 bool roleTakesSeveral(Role r);             // Controls
@@ -74,5 +77,13 @@ std::vector<std::string> orderedLevels(const Analysis& a, const Table& table, co
 // What cannot work in these settings, each naming the role and the column
 // (empty when nothing the UI can see is wrong; core may still refuse).
 QStringList roleProblems(const Analysis& a, const Table* table);
+
+// Makes `after` an edit of `before`: the standard errors follow the Clusters
+// and Groups columns, the multilevel choices follow the model's predictors
+// (each with a note), and the edit is refused (refusal set) when it brings a
+// problem `before` did not have. Every edit of role_edit and multilevel_edit
+// ends here.
+RoleEdit checkedEdit(const Analysis& before, Analysis after, const Table* table, QString description,
+                     QString note = {});
 
 }  // namespace moderato::ui

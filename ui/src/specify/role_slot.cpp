@@ -38,6 +38,8 @@ QString roleKey(Role r) {
             return QStringLiteral("weights");
         case Role::Clusters:
             return QStringLiteral("clusters");
+        case Role::Groups:
+            return QStringLiteral("groups");
     }
     return {};
 }
@@ -58,6 +60,10 @@ QString roleHint(Role r) {
             return RoleSlot::tr("Optional: positive case weights (weighted least squares).");
         case Role::Clusters:
             return RoleSlot::tr("Optional: groups of rows for cluster-robust standard errors.");
+        case Role::Groups:
+            return RoleSlot::tr(
+                "Optional: the groups rows are nested in (teams, sites); each group gets its own intercept, and "
+                "chosen slopes may differ between groups (a multilevel model).");
     }
     return {};
 }

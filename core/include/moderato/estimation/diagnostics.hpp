@@ -18,6 +18,13 @@
 //   Cook's D       standardised^2 h_i / (p (1 - h_i))
 // A row with leverage 1 (it alone fixes a coefficient) has NaN residual
 // measures and Cook's distance; it is flagged for its leverage.
+//
+// A multilevel fit: the residuals are conditional ones (y minus the fixed
+// part and the row's group effects), and the standardised, studentised and
+// quantile-plot residual is e_i / sigma, sigma the fit's residual SD.
+// Leverage and Cook's distance are least-squares measures that do not carry
+// over to such a fit: they are NaN, and rows are flagged by the residual
+// rule alone, largest |residual| first.
 #pragma once
 
 #include <Eigen/Dense>
@@ -52,6 +59,7 @@ struct FlaggedRow {
 struct Diagnostics {
     Family family = Family::Linear;
     bool weighted = false;
+    bool multilevel = false;  // conditional residuals; no leverage or Cook's distance
     std::size_t n = 0;
     int p = 0;         // rank of the design
     double scale = 1;  // phi: residual variance (linear), 1 (logistic)

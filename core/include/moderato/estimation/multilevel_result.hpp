@@ -56,6 +56,11 @@ struct MultilevelResult {
     // The df of a combination c of the fixed effects under the chosen rule
     // (`fallback` where it has no answer of its own).
     double df_of(const Eigen::VectorXd& c, double fallback) const;
+    // The rule the df came from: `df`, except between–within where
+    // Satterthwaite's df had no answer (a variance at its boundary).
+    FixedEffectDf df_used() const {
+        return df == FixedEffectDf::Satterthwaite && !satterthwaite ? FixedEffectDf::BetweenWithin : df;
+    }
 };
 
 }  // namespace moderato

@@ -1,7 +1,9 @@
 // The tables of an analysis, ready for export and for the memo: estimates,
 // fit statistics, the comparison with the model without the product terms,
 // the effects at chosen moderator values (pick-a-point), and for two
-// categorical predictors the cell table and its contrasts. Display text
+// categorical predictors the cell table and its contrasts; a multilevel
+// analysis adds its variance components and random-slope tests, shows each
+// term's df, and reports no R². Display text
 // follows support/report_text.hpp; the CSV column holds the exact doubles.
 // The effects and the contrasts list each estimate in the house order, as the
 // Probe section does: the value, its interval (low, high), SE, test value, p.
@@ -18,13 +20,15 @@
 namespace moderato {
 
 struct NamedTable {
-    std::string key;  // file stem: "estimates", "fit-statistics", "model-comparison",
-                      // "conditional-effects", "cell-table", "cell-contrasts"
+    std::string key;  // file stem: "estimates", "fit-statistics", "variance-components",
+                      // "random-slope-tests", "model-comparison", "conditional-effects",
+                      // "cell-table", "cell-contrasts"
     ExportTable table;
 };
 
 // "classical", "HC3", "cluster-robust (shop, 40 clusters)", "model-based"
-// (logistic classical); `clusters` names the cluster column (may be empty).
+// (logistic or multilevel classical); `clusters` names the cluster column
+// (may be empty).
 std::string se_description(const FitResult& fit, const std::string& clusters = {});
 
 // "t" for linear models, "z" for logistic ones.
