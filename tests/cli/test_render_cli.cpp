@@ -384,6 +384,9 @@ struct SampleCase {
 };
 
 const std::vector<std::string> kProbeTables{"estimates", "fit-statistics", "model-comparison", "conditional-effects"};
+// A multilevel analysis adds its random part.
+const std::vector<std::string> kMultilevelTables{"estimates",           "fit-statistics",      "model-comparison",
+                                                 "conditional-effects", "variance-components", "random-slope-tests"};
 const std::vector<std::string> kCellTables{"estimates", "fit-statistics", "model-comparison", "cell-table",
                                            "cell-contrasts"};
 
@@ -397,7 +400,7 @@ const std::vector<SampleCase>& samples() {
         {"turbine-repairs",
          {{"lines-plot", "effect-plot"}, {"lines-plot", "effect-plot", "surface-plot"}},
          kProbeTables},
-        {"warehouse-picking", {{"lines-plot", "effect-plot", "surface-plot"}}, kProbeTables},
+        {"warehouse-picking", {{"lines-plot", "effect-plot", "surface-plot"}}, kMultilevelTables},
     };
     return s;
 }

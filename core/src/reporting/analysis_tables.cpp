@@ -11,7 +11,7 @@ namespace moderato {
 std::string se_description(const FitResult& fit, const std::string& clusters) {
     if (fit.multilevel)
         return std::string("model-based (") + (fit.multilevel->estimation == MixedEstimation::Reml ? "REML" : "ML") +
-               ", " + df_method_text(fit.multilevel->df) + " df)";
+               ", " + df_method_text(fit.multilevel->df_used()) + " df)";
     switch (fit.se) {
         case SeKind::Classical:
             return fit.family == Family::Logistic || fit.multilevel ? "model-based" : "classical";

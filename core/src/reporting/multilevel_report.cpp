@@ -79,7 +79,7 @@ void write_multilevel_fields(JsonWriter& w, const FitResult& f) {
     if (!f.multilevel) return;
     const MultilevelResult& m = *f.multilevel;
     w.field("estimation", to_string(m.estimation));
-    w.field("df_method", to_string(m.df));
+    w.field("df_method", to_string(m.df_used()));
     w.key("random_effects").begin_object();
     w.field("groups", m.groups);
     w.field("groups_count", m.groups_count);
