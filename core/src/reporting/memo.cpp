@@ -13,7 +13,11 @@
 #include "moderato/reporting/table_export.hpp"
 #include "moderato/support/report_text.hpp"
 
+#include "support/text_util.hpp"
+
 namespace moderato {
+
+using detail::join_and;
 namespace {
 
 const char* const kMinus = "\xE2\x88\x92";
@@ -73,15 +77,6 @@ std::string region_words(const Clipped& c, const std::string& name) {
     if (c.from_start) return "for " + name + " below " + format_sig(c.hi);
     if (c.to_end) return "for " + name + " above " + format_sig(c.lo);
     return "for " + name + " between " + format_range(c.lo, c.hi);
-}
-
-std::string join_and(const std::vector<std::string>& parts) {
-    std::string out;
-    for (std::size_t i = 0; i < parts.size(); ++i) {
-        if (i) out += i + 1 == parts.size() ? " and " : ", ";
-        out += parts[i];
-    }
-    return out;
 }
 
 std::string effect_of(const ProbeResult& p) {

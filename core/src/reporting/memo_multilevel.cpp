@@ -5,19 +5,11 @@
 
 #include "moderato/support/report_text.hpp"
 #include "multilevel_tables.hpp"
+#include "support/text_util.hpp"
 
 namespace moderato::detail {
 
 namespace {
-
-std::string join_and(const std::vector<std::string>& parts) {
-    std::string out;
-    for (std::size_t i = 0; i < parts.size(); ++i) {
-        if (i) out += i + 1 == parts.size() ? " and " : ", ";
-        out += parts[i];
-    }
-    return out;
-}
 
 std::string count(std::size_t n) { return format_count(static_cast<long long>(n)); }
 

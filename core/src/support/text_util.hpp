@@ -15,6 +15,16 @@ inline std::string join(const std::vector<std::string>& parts, const std::string
     return out;
 }
 
+// "a", "a and b", "a, b and c".
+inline std::string join_and(const std::vector<std::string>& parts) {
+    std::string out;
+    for (std::size_t i = 0; i < parts.size(); ++i) {
+        if (i) out += i + 1 == parts.size() ? " and " : ", ";
+        out += parts[i];
+    }
+    return out;
+}
+
 inline std::string quoted(const std::string& s) { return "'" + s + "'"; }
 
 // Display width of a UTF-8 string (code points).
