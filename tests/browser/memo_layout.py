@@ -126,7 +126,16 @@ def chromium_binary():
 
 
 def run(cmd, **kw):
-    return subprocess.run(cmd, capture_output=True, text=True, timeout=300, **kw)
+    """Runs a command; headless Chromium now and then hangs on a page it
+    renders in a second (seen once in twenty runs, on a fresh machine too),
+    so a run that takes 90 s is stopped and tried again, at most 3 times."""
+    for attempt in range(3):
+        try:
+            return subprocess.run(cmd, capture_output=True, text=True, timeout=90, **kw)
+        except subprocess.TimeoutExpired:
+            print("memo_layout: %s timed out after 90 s (attempt %d of 3)" % (os.path.basename(cmd[0]), attempt + 1),
+                  file=sys.stderr)
+    raise RuntimeError("%s timed out three times: %s" % (cmd[0], " ".join(cmd[1:])))
 
 
 def measure(chromium, memo, width, work):
