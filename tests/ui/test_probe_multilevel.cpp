@@ -28,6 +28,7 @@ TEST(ProbeMultilevel, EffectPlotShowsWhereTheGroupsOwnSlopesLie) {
     const auto& e = pw.section->effectPlot()->data();
     ASSERT_EQ(e.groupSpread.size(), e.curve.size());
     EXPECT_EQ(e.groupSpreadName, QStringLiteral("95% of groups' own slopes"));
+    // 1.959963984540054: the normal 97.5 % quantile (from memory); tau: core's fit (direct_fit, computed here).
     for (std::size_t k = 0; k < e.curve.size(); k += 16) {
         EXPECT_NEAR(e.groupSpread[k].upper - e.curve[k].estimate, 1.959963984540054 * std::sqrt(tau), 1e-9);
         EXPECT_NEAR(e.curve[k].estimate - e.groupSpread[k].lower, 1.959963984540054 * std::sqrt(tau), 1e-9);
@@ -52,6 +53,7 @@ TEST(ProbeMultilevel, LinesPlotDrawsTwentyGroupsOwnLines) {
             const double w = chosen[g].moderator;
             const double want =
                 b0 + bx * c.x + bw * w + bxw * c.x * w + chosen[g].intercept_shift + chosen[g].slope_shift * c.x;
+            // want: the definition applied to core's fit (direct_fit and group_lines, computed here).
             EXPECT_NEAR(c.estimate, want, 1e-9 * std::abs(want)) << chosen[g].group;
         }
 }
