@@ -23,7 +23,6 @@
 #include "model/project_document.hpp"
 #include "moderato/probing/multilevel_probe.hpp"
 #include "moderato/reporting/memo.hpp"
-#include "moderato/support/report_text.hpp"
 #include "plots/cells_view.hpp"
 #include "plots/effect_plot.hpp"
 #include "plots/lines_plot.hpp"
@@ -926,11 +925,9 @@ void ProbeSection::summarizeComparisons(SummaryText& out) {
     if (p.interaction_test) {
         const WaldTest& t = *p.interaction_test;
         out.section(tr("Does the effect of %1 depend on %2?").arg(focal, mod));
-        // Approximate (Satterthwaite) df to four digits, whole ones as they are.
-        const QString df2 = QString::fromStdString(format_df(t.df2));
         const QString stat = std::isinf(t.df2)
                                  ? tr("χ²(%1) = %2").arg(exactText(t.df1), numberText(t.chi_square))
-                                 : tr("F(%1, %2) = %3").arg(exactText(t.df1), df2, numberText(t.statistic));
+                                 : tr("F(%1, %2) = %3").arg(exactText(t.df1), dfText(t.df2), numberText(t.statistic));
         const QString se = run_->fit.multilevel ? seDescription(shown_, *run_) : seKindName(run_->fit.se);
         out.line(tr("Joint test of the interaction with %1 standard errors (the test to report): %2, %3.")
                      .arg(se, stat, pClauseText(t.p_value)));
