@@ -69,7 +69,15 @@ region of significance (Johnson–Neyman), the simultaneous band and crossover p
   --surface K              also write predictions on a K x K grid over both (numeric) predictors
   (a categorical focal predictor with a categorical moderator gives the cell table instead)
   --bootstrap N [--seed S] case (or cluster) bootstrap: percentile and BCa intervals for the
-                           effects, boundaries and crossover point (N >= 100; same numbers on any core count)
+                           effects, boundaries and crossover point (N >= 100; same numbers on any core count);
+                           with --smooth, also the replicates of the smooth curve's band
+  Is the effect a straight line? (numeric focal predictor, moderator with more than two values)
+  --bins K                 the focal predictor's effect in K bins of the moderator (at its quantiles),
+                           and the test that the straight-line effect holds (K >= 2; typical 3)
+  --smooth                 the effect as a smooth curve (kernel-weighted local fits at 50 points);
+                           band: 200 bootstrap replicates unless --bootstrap N says otherwise
+  --bandwidth H            the smooth curve's bandwidth (default: chosen by 5-fold cross-validation)
+  (both also report where the data are thin across the moderator)
 
 power: sample size and power for detecting interaction terms (Cohen's f², noncentral F).
   --predictors K --tested U --alpha A --f2 X (or --r2-full A --r2-reduced B)

@@ -9,15 +9,19 @@
 #include "commands.hpp"
 #include "model_options.hpp"
 #include "moderato/estimation/fit.hpp"
+#include "moderato/probing/binned_effects.hpp"
 #include "moderato/probing/cells.hpp"
+#include "moderato/probing/common_support.hpp"
 #include "moderato/probing/probe.hpp"
 #include "moderato/probing/probe_bootstrap.hpp"
 #include "moderato/probing/response_scale.hpp"
 #include "moderato/probing/scale.hpp"
+#include "moderato/probing/smooth_effects.hpp"
 #include "moderato/reporting/bootstrap_report.hpp"
 #include "moderato/reporting/cells_report.hpp"
 #include "moderato/reporting/fit_report.hpp"
 #include "moderato/reporting/json_writer.hpp"
+#include "moderato/reporting/linearity_report.hpp"
 #include "moderato/reporting/output_json.hpp"
 #include "moderato/reporting/probe_report.hpp"
 #include "moderato/support/error.hpp"
@@ -33,12 +37,24 @@ struct ProbeRequest {
     Averaging averaging = Averaging::Sample;
     std::optional<BootstrapOptions> bootstrap;
     int surface = 0;  // grid size; 0: none
+    int bins = 0;     // 0: no binned estimates
+    std::optional<SmoothOptions> smooth;
+};
+
+// What a probe computes besides the probe itself.
+struct ProbeExtras {
+    std::optional<ProbeBootstrap> bootstrap;
+    std::optional<SurfaceGrid> surface;
+    std::optional<BinnedEffects> binned;
+    std::optional<SmoothEffects> smooth;
+    std::optional<CommonSupport> support;
 };
 
 std::set<std::string> probe_valued() {
     auto valued = model_valued();
-    for (const char* o : {"focal", "moderator", "moderator-values", "moderator-percentiles", "second-moderator",
-                          "focal-at", "scale", "average", "bootstrap", "seed", "surface", "adjust"})
+    for (const char* o :
+         {"focal", "moderator", "moderator-values", "moderator-percentiles", "second-moderator", "focal-at", "scale",
+          "average", "bootstrap", "seed", "surface", "adjust", "bins", "bandwidth"})
         valued.insert(o);
     return valued;
 }
@@ -47,7 +63,7 @@ std::set<std::string> probe_valued() {
 int run_cells(const Arguments& a, const LoadedModel& m, const Design& design, const FitResult& fit, const ProbeSpec& ps,
               const std::string& format) {
     for (const char* o : {"moderator-values", "moderator-percentiles", "second-moderator", "focal-at", "bootstrap",
-                          "surface", "adjust"})
+                          "surface", "adjust", "bins", "smooth", "bandwidth"})
         if (a.has(o))
             throw InputError(std::string("option --") + o +
                              " does not apply when both the focal predictor and the moderator are categorical");
@@ -150,26 +166,65 @@ void read_extras(const Arguments& a, const ModelSpec& spec, ProbeRequest& req) {
     if (auto sz = a.get("surface")) req.surface = static_cast<int>(parse_integer(*sz, "surface", 2, 401));
 }
 
-void print_probe(const Arguments& a, const LoadedModel& m, const FitResult& fit, const ProbeResult& r,
-                 const std::optional<ProbeBootstrap>& pb, const std::optional<SurfaceGrid>& surface,
-                 const std::string& format) {
-    if (format != "json") {
-        std::cout << probe_to_text(r, fit);
-        if (pb) std::cout << probe_bootstrap_to_text(*pb);
+// --bins K, --smooth [--bandwidth H] (replicates and seed from --bootstrap).
+void read_linearity(const Arguments& a, const ModelSpec& spec, ProbeRequest& req) {
+    if (auto k = a.get("bins")) req.bins = static_cast<int>(parse_integer(*k, "bins", 2, 100));
+    if (!a.has("smooth")) {
+        if (a.has("bandwidth")) throw InputError("option --bandwidth goes with --smooth");
         return;
     }
+    auto& o = req.smooth.emplace();
+    if (auto h = a.get("bandwidth")) {
+        o.bandwidth = parse_double(*h, "bandwidth");
+        if (!(o.bandwidth > 0) || !std::isfinite(o.bandwidth))
+            throw InputError("option --bandwidth must be a positive number, got '" + *h + "'");
+    }
+    if (req.bootstrap) {
+        o.replicates = req.bootstrap->replicates;
+        o.seed = req.bootstrap->seed;
+    }
+    o.threads = spec.threads;
+    o.level = spec.level;
+}
+
+ProbeExtras compute_extras(const Design& design, const FitResult& fit, const ModelSpec& spec, const ProbeRequest& req,
+                           const ProbeResult& r) {
+    ProbeExtras x;
+    if (req.bootstrap) x.bootstrap = bootstrap_probe(design, spec, req.spec, r, *req.bootstrap);
+    if (req.surface > 0)
+        x.surface = surface_grid(design, fit, req.spec.focal, req.spec.moderator, req.surface, req.surface);
+    if (req.bins > 0) x.binned = binned_effects(design, fit, spec, req.spec.focal, req.spec.moderator, req.bins);
+    if (req.smooth) x.smooth = smooth_effects(design, fit, req.spec.focal, req.spec.moderator, *req.smooth);
+    if (x.binned || x.smooth) x.support = common_support(design, req.spec.focal, req.spec.moderator);
+    return x;
+}
+
+void print_probe_text(const FitResult& fit, const ProbeResult& r, const ProbeExtras& x) {
+    std::cout << probe_to_text(r, fit);
+    if (x.bootstrap) std::cout << probe_bootstrap_to_text(*x.bootstrap);
+    if (x.binned) std::cout << binned_to_text(*x.binned);
+    if (x.smooth) std::cout << smooth_to_text(*x.smooth);
+    if (x.support) std::cout << common_support_to_text(*x.support);
+}
+
+void print_probe(const Arguments& a, const LoadedModel& m, const FitResult& fit, const ProbeResult& r,
+                 const ProbeExtras& x, const std::string& format) {
+    if (format != "json") return print_probe_text(fit, r, x);
     JsonWriter w = begin_output(a, m.spec);
     w.field("family", to_string(fit.family));
     w.field("standard_errors", standard_errors_name(fit.se));
     w.field("rows_used", fit.n);
     write_probe_fields(w, r);
     w.key("bootstrap");
-    if (pb) write_probe_bootstrap(w, *pb);
+    if (x.bootstrap) write_probe_bootstrap(w, *x.bootstrap);
     else w.null();
-    if (surface) {
+    if (x.surface) {
         w.key("surface");
-        write_surface(w, *surface);
+        write_surface(w, *x.surface);
     }
+    if (x.binned) write_binned(w.key("binned"), *x.binned);
+    if (x.smooth) write_smooth(w.key("smooth"), *x.smooth);
+    if (x.support) write_common_support(w.key("common_support"), *x.support);
     w.end_object();
     std::cout << w.str();
 }
@@ -177,7 +232,9 @@ void print_probe(const Arguments& a, const LoadedModel& m, const FitResult& fit,
 }  // namespace
 
 int run_probe(const std::vector<std::string>& args) {
-    const Arguments a(args, model_flags(), probe_valued(), repeatable_options());
+    auto flags = model_flags();
+    flags.insert("smooth");
+    const Arguments a(args, flags, probe_valued(), repeatable_options());
     if (!a.positional.empty()) throw InputError("unexpected argument '" + a.positional.front() + "'");
     const std::string format = output_format(a);
     LoadedModel m = load_model(a);
@@ -194,15 +251,11 @@ int run_probe(const std::vector<std::string>& args) {
     read_adjustment(a, design, req.spec);
     read_scale(a, m.spec.family, req);
     read_extras(a, m.spec, req);
+    read_linearity(a, m.spec, req);
 
     const ProbeResult r = req.scale == ProbeScale::Outcome ? probe_response(design, fit, req.spec, req.averaging)
                                                            : probe(design, fit, req.spec);
-    std::optional<ProbeBootstrap> pb;
-    if (req.bootstrap) pb = bootstrap_probe(design, m.spec, req.spec, r, *req.bootstrap);
-    std::optional<SurfaceGrid> surface;
-    if (req.surface > 0)
-        surface = surface_grid(design, fit, req.spec.focal, req.spec.moderator, req.surface, req.surface);
-    print_probe(a, m, fit, r, pb, surface, format);
+    print_probe(a, m, fit, r, compute_extras(design, fit, m.spec, req, r), format);
     return 0;
 }
 

@@ -166,7 +166,13 @@ void add_cautions(BinnedEffects& r, const FitResult& binned) {
                              " rest on few rows (the rule: at least 10 rows per estimated coefficient, 40 a bin" +
                              (r.binary_focal ? " and 20 in each group of " + quoted(r.focal) : std::string()) +
                              "); their estimates are imprecise and the test has little power there");
-    if (!r.linear_contradicted)
+    if (r.linear_contradicted)
+        r.cautions.push_back(
+            "The conditional effects, the region of significance and the bands assume that the "
+            "effect of " +
+            r.focal + " changes along a straight line in " + r.moderator +
+            "; the binned estimates say it does not, so read those with the binned estimates");
+    else
         r.cautions.push_back(
             "A test that does not reject is not proof of a straight-line effect: with few rows per bin it has "
             "little power, and bins average the effect over their range");

@@ -155,7 +155,7 @@ void bootstrap_band(const Design& d, const LocalData& L, const std::vector<doubl
         r.points[g].low = quantile_type7(v, tail);
         r.points[g].high = quantile_type7(v, 1.0 - tail);
     }
-    r.notes.push_back("Band: pointwise " + format_sig(100 * o.level) + " % percentile intervals from " +
+    r.notes.push_back("Band: pointwise " + level_text(o.level) + " percentile intervals from " +
                       std::to_string(o.replicates) + " bootstrap replicates (" +
                       (d.cluster.empty() ? std::string("rows") : std::string("whole clusters")) +
                       " drawn with replacement, seed " + std::to_string(o.seed) + ")");
