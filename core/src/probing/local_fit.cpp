@@ -4,6 +4,8 @@
 #include <cmath>
 #include <limits>
 
+#include "support/parallel.hpp"
+
 namespace moderato::detail {
 
 namespace {
@@ -107,7 +109,90 @@ Eigen::VectorXd logistic_fit(const LocalData& L, double z0, double h, const RowS
     return Eigen::VectorXd::Constant(p, kNaN);
 }
 
+constexpr Eigen::Index kRowBlock = 2048;
+
+// Row i's cross-product entries at z0: x_j x_l for j <= l (column-major
+// lower triangle), then x_j y.
+void product_row(const LocalData& L, Eigen::Index i, double z0, Eigen::VectorXd& x, double* out) {
+    local_row(L, i, z0, x);
+    const Eigen::Index p = x.size();
+    Eigen::Index q = 0;
+    for (Eigen::Index l = 0; l < p; ++l)
+        for (Eigen::Index j = l; j < p; ++j) out[q++] = x[j] * x[l];
+    for (Eigen::Index j = 0; j < p; ++j) out[q++] = x[j] * L.y[i];
+}
+
+// The p × R coefficients at one grid point from the summed products S (R × q).
+Eigen::MatrixXd solve_products(const Eigen::MatrixXd& S, Eigen::Index p) {
+    Eigen::MatrixXd out(p, S.rows());
+    Eigen::MatrixXd A(p, p);
+    Eigen::VectorXd g(p);
+    for (Eigen::Index r = 0; r < S.rows(); ++r) {
+        Eigen::Index q = 0;
+        for (Eigen::Index l = 0; l < p; ++l)
+            for (Eigen::Index j = l; j < p; ++j) A(j, l) = S(r, q++);
+        for (Eigen::Index j = 0; j < p; ++j) g[j] = S(r, q++);
+        out.col(r) = solve_spd(A, g);
+    }
+    return out;
+}
+
+// The distinct bandwidths and each column's index among them.
+std::vector<double> distinct(const std::vector<double>& h, std::vector<std::size_t>& index) {
+    std::vector<double> d;
+    for (double v : h) {
+        auto it = std::find(d.begin(), d.end(), v);
+        index.push_back(static_cast<std::size_t>(it - d.begin()));
+        if (it == d.end()) d.push_back(v);
+    }
+    return d;
+}
+
+Eigen::MatrixXd batch_at(const LocalData& L, double z0, const std::vector<double>& bandwidths,
+                         const Eigen::MatrixXd& times) {
+    const Eigen::Index n = L.z.size(), p = L.p(), q = p * (p + 1) / 2 + p, R = times.cols();
+    std::vector<std::size_t> which;
+    const auto hs = distinct(bandwidths, which);
+    Eigen::MatrixXd S = Eigen::MatrixXd::Zero(R, q), W(kRowBlock, R);
+    Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor> P(kRowBlock, q);
+    Eigen::VectorXd x(p), k(static_cast<Eigen::Index>(hs.size()));
+    for (Eigen::Index start = 0; start < n; start += kRowBlock) {
+        const Eigen::Index len = std::min(kRowBlock, n - start);
+        for (Eigen::Index r = 0; r < len; ++r) {
+            const Eigen::Index i = start + r;
+            product_row(L, i, z0, x, P.row(r).data());
+            for (std::size_t b = 0; b < hs.size(); ++b) k[static_cast<Eigen::Index>(b)] = kernel(L, i, z0, hs[b]);
+            for (Eigen::Index c = 0; c < R; ++c) W(r, c) = times(i, c) * k[static_cast<Eigen::Index>(which[c])];
+        }
+        S.noalias() += W.topRows(len).transpose() * P.topRows(len);
+    }
+    return solve_products(S, p);
+}
+
+Eigen::MatrixXd logistic_batch_at(const LocalData& L, double z0, const std::vector<double>& bandwidths,
+                                  const Eigen::MatrixXd& times) {
+    Eigen::MatrixXd out(L.p(), times.cols());
+    for (Eigen::Index r = 0; r < times.cols(); ++r) {
+        RowSet rows;
+        for (Eigen::Index i = 0; i < times.rows(); ++i)
+            if (times(i, r) > 0) rows.add(i, times(i, r));
+        out.col(r) = logistic_fit(L, z0, bandwidths[static_cast<std::size_t>(r)], rows);
+    }
+    return out;
+}
+
 }  // namespace
+
+std::vector<Eigen::MatrixXd> local_fits(const LocalData& L, const std::vector<double>& grid,
+                                        const std::vector<double>& bandwidths, const Eigen::MatrixXd& times,
+                                        unsigned threads) {
+    std::vector<Eigen::MatrixXd> out(grid.size());
+    parallel_for(grid.size(), threads, [&](std::size_t g) {
+        out[g] =
+            L.logistic ? logistic_batch_at(L, grid[g], bandwidths, times) : batch_at(L, grid[g], bandwidths, times);
+    });
+    return out;
+}
 
 LocalData local_data(const Design& d, const LinearityInputs& in, bool logistic) {
     LocalData L;
@@ -141,7 +226,7 @@ Eigen::VectorXd local_fit(const LocalData& L, double z0, double h, const RowSet&
 }
 
 double interpolated_prediction(const LocalData& L, const std::vector<double>& grid,
-                               const std::vector<Eigen::VectorXd>& fits, Eigen::Index i) {
+                               const std::vector<Eigen::MatrixXd>& fits, Eigen::Index column, Eigen::Index i) {
     const double z = L.z[i];
     const auto upper = std::upper_bound(grid.begin(), grid.end(), z);
     const std::size_t k =
@@ -150,7 +235,7 @@ double interpolated_prediction(const LocalData& L, const std::vector<double>& gr
     Eigen::VectorXd x(L.p());
     auto predict = [&](std::size_t g) {
         local_row(L, i, grid[g], x);
-        const double eta = x.dot(fits[g]);
+        const double eta = x.dot(fits[g].col(column));
         return L.logistic ? 1.0 / (1.0 + std::exp(-eta)) : eta;
     };
     if (t == 0) return predict(k);

@@ -43,13 +43,25 @@ struct RowSet {
 
 // The local coefficients at z0 (p entries; all NaN when the local fit is
 // singular or, for logistic models, does not converge). [1] is the effect.
+// Cross-products are summed row by row (the reference path: the full
+// sample's curve).
 Eigen::VectorXd local_fit(const LocalData& L, double z0, double h, const RowSet& rows);
 
-// The prediction for row i (probability for logistic models) from the local
-// fits at the two grid points around its moderator value, interpolated
-// linearly between them.
+// Local linear fits at every grid point for many weightings of the rows at
+// once: times(i, r) is row i's multiplicity in weighting r (a bootstrap
+// draw, a training fold), fitted with bandwidth bandwidths[r]. Per block of
+// rows, the rows' products x_j x_l and x_j y (computed once per grid point)
+// meet the kernel-scaled multiplicities of every weighting in one matrix
+// product; each weighting's sums are then solved as local_fit does.
+// Returns, per grid point, p × R coefficients (NaN columns where singular).
+// Logistic models fit each weighting by Newton's method instead.
+std::vector<Eigen::MatrixXd> local_fits(const LocalData& L, const std::vector<double>& grid,
+                                        const std::vector<double>& bandwidths, const Eigen::MatrixXd& times,
+                                        unsigned threads);
+
+// fits[g].col(column) holds the coefficients at grid point g.
 double interpolated_prediction(const LocalData& L, const std::vector<double>& grid,
-                               const std::vector<Eigen::VectorXd>& fits, Eigen::Index i);
+                               const std::vector<Eigen::MatrixXd>& fits, Eigen::Index column, Eigen::Index i);
 
 // Kish's effective rows of the kernel weights at z0: all rows, rows with
 // D = 0 and with D = 1 (the last two 0 unless D is 0/1).

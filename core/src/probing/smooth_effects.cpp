@@ -49,19 +49,6 @@ std::vector<double> even_grid(double lo, double hi, int points) {
     return g;
 }
 
-// Runs fn(i) for i in [0, count) in waves, reporting progress after each.
-template <class Fn>
-void in_waves(int count, const SmoothOptions& o, int& done, int total, Fn&& fn) {
-    const int wave = std::max(8 * static_cast<int>(detail::resolve_threads(o.threads)), 1);
-    for (int start = 0; start < count; start += wave) {
-        const int len = std::min(wave, count - start);
-        detail::parallel_for(static_cast<std::size_t>(len), o.threads,
-                             [&](std::size_t i) { fn(start + static_cast<int>(i)); });
-        done += len;
-        if (o.progress && !o.progress(done, total)) throw Cancelled();
-    }
-}
-
 // The fold of each row (of each cluster's rows when the model has clusters).
 std::vector<int> fold_of(const Design& d, int folds, std::uint64_t seed) {
     const bool clustered = !d.cluster.empty();
@@ -75,36 +62,50 @@ std::vector<int> fold_of(const Design& d, int folds, std::uint64_t seed) {
     return f;
 }
 
-// Mean squared prediction error of bandwidth h over the folds.
-double cv_score(const LocalData& L, const std::vector<double>& grid, double h, const std::vector<int>& fold,
-                int folds) {
-    double sse = 0;
-    std::size_t count = 0;
-    for (int f = 0; f < folds; ++f) {
-        RowSet train, test;
-        for (std::size_t i = 0; i < fold.size(); ++i)
-            (fold[i] == f ? test : train).add(static_cast<Eigen::Index>(i), 1.0);
-        std::vector<Eigen::VectorXd> fits(grid.size());
-        for (std::size_t g = 0; g < grid.size(); ++g) fits[g] = detail::local_fit(L, grid[g], h, train);
-        for (Eigen::Index i : test.rows) {
-            const double yhat = detail::interpolated_prediction(L, grid, fits, i);
-            if (!std::isfinite(yhat)) return kInf;
-            sse += (L.y[i] - yhat) * (L.y[i] - yhat);
-            ++count;
+// Replicates and folds go in batches of a fixed size (so the sums, and the
+// numbers, do not depend on the thread count) of about 4 million
+// multiplicities each.
+int batch_size(std::size_t n) {
+    return static_cast<int>(std::clamp<std::size_t>(4'000'000 / std::max<std::size_t>(n, 1), 1, 100));
+}
+
+// Mean squared prediction error of candidates first..first+count-1: one
+// batch of local fits with a column of training weights per candidate and
+// fold.
+void cv_scores(const LocalData& L, const std::vector<double>& grid, const std::vector<int>& fold, int folds, int first,
+               int count, unsigned threads, std::vector<BandwidthScore>& scores) {
+    const auto n = static_cast<Eigen::Index>(fold.size());
+    Eigen::MatrixXd train = Eigen::MatrixXd::Ones(n, count * folds);
+    std::vector<double> h;
+    for (int k = 0; k < count; ++k)
+        for (int f = 0; f < folds; ++f) h.push_back(scores[static_cast<std::size_t>(first + k)].bandwidth);
+    for (Eigen::Index i = 0; i < n; ++i)
+        for (int k = 0; k < count; ++k) train(i, k * folds + fold[static_cast<std::size_t>(i)]) = 0;
+    const auto fits = detail::local_fits(L, grid, h, train, threads);
+    for (int k = 0; k < count; ++k) {
+        double sse = 0;
+        for (Eigen::Index i = 0; i < n && std::isfinite(sse); ++i) {
+            const auto column = static_cast<Eigen::Index>(k * folds + fold[static_cast<std::size_t>(i)]);
+            const double e = L.y[i] - detail::interpolated_prediction(L, grid, fits, column, i);
+            sse = std::isfinite(e) ? sse + e * e : kInf;
         }
+        scores[static_cast<std::size_t>(first + k)].score = sse / static_cast<double>(n);
     }
-    return count ? sse / static_cast<double>(count) : kInf;
 }
 
 void choose_bandwidth(const Design& d, const LocalData& L, const std::vector<double>& grid, double sd,
                       const SmoothOptions& o, int& done, int total, SmoothEffects& r) {
     const auto fold = fold_of(d, o.folds, o.seed);
     const double lo = 0.05 * sd, hi = 3.0 * sd;
-    r.scores.resize(static_cast<std::size_t>(o.candidates));
-    in_waves(o.candidates, o, done, total, [&](int k) {
-        const double h = lo * std::pow(hi / lo, static_cast<double>(k) / (o.candidates - 1));
-        r.scores[static_cast<std::size_t>(k)] = {h, cv_score(L, grid, h, fold, o.folds)};
-    });
+    for (int k = 0; k < o.candidates; ++k)
+        r.scores.push_back({lo * std::pow(hi / lo, static_cast<double>(k) / (o.candidates - 1)), kInf});
+    const int batch = std::max(1, batch_size(d.n()) / o.folds);
+    for (int first = 0; first < o.candidates; first += batch) {
+        const int count = std::min(batch, o.candidates - first);
+        cv_scores(L, grid, fold, o.folds, first, count, o.threads, r.scores);
+        done += count;
+        if (o.progress && !o.progress(done, total)) throw Cancelled();
+    }
     const auto best =
         std::min_element(r.scores.begin(), r.scores.end(),
                          [](const BandwidthScore& a, const BandwidthScore& b) { return a.score < b.score; });
@@ -120,38 +121,52 @@ void choose_bandwidth(const Design& d, const LocalData& L, const std::vector<dou
         r.notes.push_back("The chosen bandwidth is the smallest tried: the curve may follow noise");
 }
 
-// The curve at the bandwidth on the rows (with multiplicities).
-std::vector<double> curve(const LocalData& L, const std::vector<double>& grid, double h, const RowSet& rows) {
+// The full sample's curve at the bandwidth (cross-products row by row).
+std::vector<double> curve(const LocalData& L, const std::vector<double>& grid, double h, unsigned threads) {
     std::vector<double> out(grid.size());
-    for (std::size_t g = 0; g < grid.size(); ++g) out[g] = detail::local_fit(L, grid[g], h, rows)[1];
+    const RowSet rows = RowSet::all(static_cast<std::size_t>(L.z.size()));
+    detail::parallel_for(grid.size(), threads,
+                         [&](std::size_t g) { out[g] = detail::local_fit(L, grid[g], h, rows)[1]; });
     return out;
 }
 
-RowSet replicate_rows(const Design& d, const SmoothOptions& o, int r) {
+// Row multiplicities of replicates first..first+count-1 (n × count).
+Eigen::MatrixXd replicate_times(const Design& d, std::uint64_t seed, int first, int count) {
     const bool clustered = !d.cluster.empty();
     const auto units = static_cast<std::uint64_t>(clustered ? d.n_clusters : static_cast<int>(d.n()));
-    const auto counts = detail::draw_counts(units, o.seed, static_cast<std::uint64_t>(r));
-    RowSet rows;
-    for (std::size_t i = 0; i < d.n(); ++i) {
-        const int c = counts[clustered ? static_cast<std::size_t>(d.cluster[i]) : i];
-        if (c > 0) rows.add(static_cast<Eigen::Index>(i), c);
+    Eigen::MatrixXd t(static_cast<Eigen::Index>(d.n()), count);
+    for (int r = 0; r < count; ++r) {
+        const auto counts = detail::draw_counts(units, seed, static_cast<std::uint64_t>(first + r));
+        for (std::size_t i = 0; i < d.n(); ++i)
+            t(static_cast<Eigen::Index>(i), r) = counts[clustered ? static_cast<std::size_t>(d.cluster[i]) : i];
     }
-    return rows;
+    return t;
 }
 
 void bootstrap_band(const Design& d, const LocalData& L, const std::vector<double>& grid, const SmoothOptions& o,
                     int& done, int total, SmoothEffects& r) {
     const auto G = grid.size();
-    std::vector<std::vector<double>> reps(static_cast<std::size_t>(o.replicates));
-    in_waves(o.replicates, o, done, total,
-             [&](int k) { reps[static_cast<std::size_t>(k)] = curve(L, grid, r.bandwidth, replicate_rows(d, o, k)); });
-    for (const auto& rep : reps)
-        if (std::any_of(rep.begin(), rep.end(), [](double v) { return !std::isfinite(v); })) ++r.failed_replicates;
+    const auto R = static_cast<std::size_t>(o.replicates);
+    std::vector<std::vector<double>> values(G, std::vector<double>(R));
+    std::vector<bool> failed(R, false);
+    const int batch = batch_size(d.n());
+    for (int first = 0; first < o.replicates; first += batch) {
+        const int count = std::min(batch, o.replicates - first);
+        const auto fits = detail::local_fits(L, grid, std::vector<double>(static_cast<std::size_t>(count), r.bandwidth),
+                                             replicate_times(d, o.seed, first, count), o.threads);
+        for (std::size_t g = 0; g < G; ++g)
+            for (int k = 0; k < count; ++k) {
+                const double v = fits[g](1, k);
+                values[g][static_cast<std::size_t>(first + k)] = v;
+                if (!std::isfinite(v)) failed[static_cast<std::size_t>(first + k)] = true;
+            }
+        done += count;
+        if (o.progress && !o.progress(done, total)) throw Cancelled();
+    }
+    r.failed_replicates = static_cast<int>(std::count(failed.begin(), failed.end(), true));
     const double tail = (1.0 - o.level) / 2.0;
     for (std::size_t g = 0; g < G; ++g) {
-        std::vector<double> v;
-        for (const auto& rep : reps) v.push_back(rep[g]);
-        v = detail::sorted_finite(v);
+        const auto v = detail::sorted_finite(values[g]);
         r.points[g].low = quantile_type7(v, tail);
         r.points[g].high = quantile_type7(v, 1.0 - tail);
     }
@@ -218,7 +233,7 @@ SmoothEffects smooth_effects(const Design& d, const FitResult& fit, const std::s
     const int total = (cv ? o.candidates : 0) + 1 + o.replicates;
     if (cv) choose_bandwidth(d, L, grid, in.moderator_sd, o, done, total, r);
     else r.bandwidth = o.bandwidth;
-    const auto effects = curve(L, grid, r.bandwidth, RowSet::all(d.n()));
+    const auto effects = curve(L, grid, r.bandwidth, o.threads);
     r.points.resize(grid.size());
     for (std::size_t g = 0; g < grid.size(); ++g) r.points[g] = {grid[g], effects[g]};
     ++done;
