@@ -169,16 +169,89 @@ Eigen::MatrixXd batch_at(const LocalData& L, double z0, const std::vector<double
     return solve_products(S, p);
 }
 
+// Newton's method for every weighting at once, started from the full
+// sample's local fit at its bandwidth: per block of rows, the weights
+// t k μ(1 − μ) meet the rows' products in one matrix product (the
+// information), t k (y − μ) the rows (the score). A weighting that has not
+// converged after kMaxBatchNewton steps gets NaN.
+constexpr int kMaxBatchNewton = 30;
+
+struct BatchSums {
+    Eigen::MatrixXd info, score;  // R × q' (products x_j x_l), R × p
+};
+
+// The multiplicities times the kernel weights of each weighting's bandwidth.
+Eigen::MatrixXd kernel_times(const LocalData& L, double z0, const std::vector<double>& hs,
+                             const std::vector<std::size_t>& which, const Eigen::MatrixXd& times) {
+    Eigen::MatrixXd kt(times.rows(), times.cols());
+    Eigen::VectorXd k(static_cast<Eigen::Index>(hs.size()));
+    for (Eigen::Index i = 0; i < times.rows(); ++i) {
+        for (std::size_t b = 0; b < hs.size(); ++b) k[static_cast<Eigen::Index>(b)] = kernel(L, i, z0, hs[b]);
+        for (Eigen::Index c = 0; c < times.cols(); ++c)
+            kt(i, c) = times(i, c) * k[static_cast<Eigen::Index>(which[static_cast<std::size_t>(c)])];
+    }
+    return kt;
+}
+
+BatchSums logistic_sums(const LocalData& L, double z0, const Eigen::MatrixXd& kt, const Eigen::MatrixXd& B) {
+    const Eigen::Index n = L.z.size(), p = L.p(), q = p * (p + 1) / 2, R = kt.cols();
+    BatchSums s{Eigen::MatrixXd::Zero(R, q), Eigen::MatrixXd::Zero(R, p)};
+    Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor> P(kRowBlock, q + p), X(kRowBlock, p);
+    Eigen::VectorXd x(p);
+    for (Eigen::Index start = 0; start < n; start += kRowBlock) {
+        const Eigen::Index len = std::min(kRowBlock, n - start);
+        for (Eigen::Index r = 0; r < len; ++r) {
+            product_row(L, start + r, z0, x, P.row(r).data());
+            X.row(r) = x.transpose();
+        }
+        const Eigen::ArrayXXd mu = (1.0 + (-(X.topRows(len) * B).array()).exp()).inverse();
+        const auto w = kt.middleRows(start, len).array();
+        const Eigen::MatrixXd W = (w * mu * (1.0 - mu)).matrix();
+        const Eigen::ArrayXXd residual = (-mu).colwise() + L.y.segment(start, len).array();
+        const Eigen::MatrixXd V = (w * residual).matrix();
+        s.info.noalias() += W.transpose() * P.topRows(len).leftCols(q);
+        s.score.noalias() += V.transpose() * X.topRows(len);
+    }
+    return s;
+}
+
 Eigen::MatrixXd logistic_batch_at(const LocalData& L, double z0, const std::vector<double>& bandwidths,
                                   const Eigen::MatrixXd& times) {
-    Eigen::MatrixXd out(L.p(), times.cols());
-    for (Eigen::Index r = 0; r < times.cols(); ++r) {
-        RowSet rows;
-        for (Eigen::Index i = 0; i < times.rows(); ++i)
-            if (times(i, r) > 0) rows.add(i, times(i, r));
-        out.col(r) = logistic_fit(L, z0, bandwidths[static_cast<std::size_t>(r)], rows);
+    const Eigen::Index p = L.p(), R = times.cols();
+    std::vector<std::size_t> which;
+    const auto hs = distinct(bandwidths, which);
+    const RowSet all = RowSet::all(static_cast<std::size_t>(L.z.size()));
+    std::vector<Eigen::VectorXd> starts;
+    for (double h : hs) {
+        Eigen::VectorXd b = logistic_fit(L, z0, h, all);
+        starts.push_back(b.allFinite() ? b : Eigen::VectorXd::Zero(p));
     }
-    return out;
+    Eigen::MatrixXd B(p, R);
+    for (Eigen::Index c = 0; c < R; ++c) B.col(c) = starts[which[static_cast<std::size_t>(c)]];
+    std::vector<bool> done(static_cast<std::size_t>(R), false);
+    Eigen::MatrixXd A(p, p);
+    const Eigen::MatrixXd kt = kernel_times(L, z0, hs, which, times);
+    for (int it = 0; it < kMaxBatchNewton; ++it) {
+        const BatchSums s = logistic_sums(L, z0, kt, B);
+        bool all_done = true;
+        for (Eigen::Index c = 0; c < R; ++c) {
+            if (done[static_cast<std::size_t>(c)]) continue;
+            Eigen::Index q = 0;
+            for (Eigen::Index l = 0; l < p; ++l)
+                for (Eigen::Index j = l; j < p; ++j) A(j, l) = s.info(c, q++);
+            const Eigen::VectorXd step = solve_spd(A, s.score.row(c).transpose());
+            B.col(c) += step;
+            const bool finite = step.allFinite() && B.col(c).cwiseAbs().maxCoeff() < 1e6;
+            if (!finite) B.col(c).setConstant(kNaN);
+            done[static_cast<std::size_t>(c)] =
+                !finite || step.cwiseAbs().maxCoeff() <= 1e-10 * (1 + B.col(c).cwiseAbs().maxCoeff());
+            all_done = all_done && done[static_cast<std::size_t>(c)];
+        }
+        if (all_done) return B;
+    }
+    for (Eigen::Index c = 0; c < R; ++c)
+        if (!done[static_cast<std::size_t>(c)]) B.col(c).setConstant(kNaN);
+    return B;
 }
 
 }  // namespace
