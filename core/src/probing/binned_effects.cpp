@@ -194,6 +194,12 @@ BinnedEffects binned_effects(const Design& d, const FitResult& fit, const ModelS
     r.family = fit.family;
     r.binary_focal = in.binary_focal;
     r.level = fit.level;
+    const std::size_t columns = 4 * static_cast<std::size_t>(std::max(k, 0)) + in.controls.size() + 4;
+    if (d.n() * columns > DesignLimits::max_cells)
+        throw InputError(std::to_string(k) + " bins on " + format_count(static_cast<long long>(d.n())) +
+                         " rows need " + format_count(static_cast<long long>(columns)) +
+                         " design columns, more than Moderato holds in memory (" +
+                         format_count(static_cast<long long>(DesignLimits::max_cells)) + " cells); use fewer bins");
     r.cuts = checked_cuts(sorted, k, moderator);
     std::vector<std::size_t> bin(static_cast<std::size_t>(in.moderator.size()));
     for (Eigen::Index i = 0; i < in.moderator.size(); ++i)
