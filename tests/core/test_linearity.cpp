@@ -207,6 +207,32 @@ TEST(BinnedInput, MoreBinsThanTiedValuesAllowIsRefusedWithTheLimit) {
     EXPECT_EQ(b.bins[0].moderator_value, 1.0);
 }
 
+// A bin without one of the two values of a 0/1 focal predictor, and a bin
+// too small for its four coefficients, are refused naming the bin.
+TEST(BinnedInput, ABinWithoutOneFocalGroupOrTooFewRowsIsRefused) {
+    const std::vector<double> w = spread(200);
+    std::vector<double> y(200), b(200), x(200);
+    for (int i = 0; i < 200; ++i) {
+        b[static_cast<std::size_t>(i)] = i < 70 ? 0 : i % 2;  // the lowest third holds only b = 0
+        x[static_cast<std::size_t>(i)] = std::sin(i);
+        y[static_cast<std::size_t>(i)] = b[static_cast<std::size_t>(i)] * w[static_cast<std::size_t>(i)] + std::cos(i);
+    }
+    ModelSpec s;
+    s.outcome = "y";
+    s.predictors = {"b", "w", "x"};
+    s.interactions = {{"b", "w"}};
+    const Design d = build_design(
+        make_table({numeric_column("y", y), numeric_column("b", b), numeric_column("w", w), numeric_column("x", x)}),
+        s);
+    const FitResult f = fit_design(d, s);
+    const std::string e = input_error_of([&] { binned_effects(d, f, s, "b", "w", 3); });
+    EXPECT_NE(e.find("bin 1 of 'w' (0.000 to 6.600, 67 rows) has no rows with b = 1"), std::string::npos) << e;
+    // 10 rows in 3 bins: 4 coefficients need more than 3 or 4 rows a bin
+    const Small tiny = small_model(spread(10));
+    const std::string et = input_error_of([&] { binned_effects(tiny.d, tiny.f, tiny.s, "x", "w", 3); });
+    EXPECT_NE(et.find("its effect cannot be estimated"), std::string::npos) << et;
+}
+
 TEST(BinnedInput, FewerThanTwoBinsAndZeroBandwidthAreRefused) {
     const Small m = small_model(spread(200));
     EXPECT_NE(input_error_of([&] { binned_effects(m.d, m.f, m.s, "x", "w", 1); }).find("at least 2"),

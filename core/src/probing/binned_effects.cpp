@@ -146,15 +146,29 @@ FitOptions derived_fit_options() {
     return o;
 }
 
+std::string bin_text(const EffectBin& b, std::size_t j, const std::string& moderator) {
+    return "bin " + std::to_string(j + 1) + " of " + quoted(moderator) + " (" +
+           (b.min == b.max ? "every value " + format_sig(b.min) : format_range(b.min, b.max)) + ", " +
+           format_count(static_cast<long long>(b.rows)) + " rows)";
+}
+
+// Before the fit: a 0/1 focal predictor needs both values in every bin.
+void check_groups(const BinnedEffects& r) {
+    if (!r.binary_focal) return;
+    for (std::size_t j = 0; j < r.bins.size(); ++j)
+        if (r.bins[j].rows_zero == 0 || r.bins[j].rows_one == 0)
+            throw InputError(bin_text(r.bins[j], j, r.moderator) + " has no rows with " + r.focal + " = " +
+                             (r.bins[j].rows_zero == 0 ? "0" : "1") + ", so the effect of " + quoted(r.focal) +
+                             " there cannot be estimated; use fewer bins");
+}
+
 void check_estimable(const FitResult& f, const std::vector<EffectBin>& bins, const std::string& moderator) {
     for (std::size_t j = 0; j < bins.size(); ++j)
         for (Eigen::Index q = 0; q < 4; ++q)
             if (std::isnan(f.beta[static_cast<Eigen::Index>(4 * j) + q]))
-                throw InputError("bin " + std::to_string(j + 1) + " of " + quoted(moderator) + " (" +
-                                 (bins[j].min == bins[j].max ? "every value " + format_sig(bins[j].min)
-                                                             : format_range(bins[j].min, bins[j].max)) +
-                                 ", " + format_count(static_cast<long long>(bins[j].rows)) +
-                                 " rows) has too few distinct values to estimate its effect; use fewer bins");
+                throw InputError(bin_text(bins[j], j, moderator) +
+                                 ": its effect cannot be estimated (too few rows, or the focal predictor or the "
+                                 "moderator barely varies in it); use fewer bins");
 }
 
 void add_cautions(BinnedEffects& r, const FitResult& binned) {
@@ -196,8 +210,8 @@ BinnedEffects binned_effects(const Design& d, const FitResult& fit, const ModelS
     r.level = fit.level;
     const std::size_t columns = 4 * static_cast<std::size_t>(std::max(k, 0)) + in.controls.size() + 4;
     if (d.n() * columns > DesignLimits::max_cells)
-        throw InputError(std::to_string(k) + " bins on " + format_count(static_cast<long long>(d.n())) +
-                         " rows need " + format_count(static_cast<long long>(columns)) +
+        throw InputError(std::to_string(k) + " bins on " + format_count(static_cast<long long>(d.n())) + " rows need " +
+                         format_count(static_cast<long long>(columns)) +
                          " design columns, more than Moderato holds in memory (" +
                          format_count(static_cast<long long>(DesignLimits::max_cells)) + " cells); use fewer bins");
     r.cuts = checked_cuts(sorted, k, moderator);
@@ -205,6 +219,7 @@ BinnedEffects binned_effects(const Design& d, const FitResult& fit, const ModelS
     for (Eigen::Index i = 0; i < in.moderator.size(); ++i)
         bin[static_cast<std::size_t>(i)] = bin_of(in.moderator[i], r.cuts);
     describe_bins(in, r.cuts, bin, r.bins);
+    check_groups(r);
 
     const ModelSpec s = detail::derived_spec(spec);
     const FitResult bf = fit_design(binning_design(d, in, bin, r.bins, focal, moderator), s, derived_fit_options());

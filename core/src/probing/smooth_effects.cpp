@@ -242,7 +242,9 @@ SmoothEffects smooth_effects(const Design& d, const FitResult& fit, const std::s
     r.notes.insert(r.notes.begin(),
                    "Bandwidth " + format_sig(r.bandwidth) +
                        (cv ? " chosen by " + std::to_string(o.folds) + "-fold cross-validation over " +
-                                 std::to_string(o.candidates) + " candidates (seed " + std::to_string(o.seed) + ")"
+                                 std::to_string(o.candidates) + " candidates (" +
+                                 (d.cluster.empty() ? std::string() : std::string("whole clusters held out, ")) +
+                                 "seed " + std::to_string(o.seed) + ")"
                            : std::string(" (given)")));
     add_cautions(r);
     return r;
