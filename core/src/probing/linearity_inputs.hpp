@@ -27,7 +27,7 @@ LinearityInputs linearity_inputs(const Design& design, const FitResult& fit, con
                                  const std::string& moderator, const std::string& what);
 
 // A design over the same rows as `design` (outcome, weights, clusters, rows
-// and notes kept) with the given columns, each its own term.
+// and exclusions kept) with the given columns, each its own term.
 Design derived_design(const Design& design, Eigen::MatrixXd X, const std::vector<std::string>& labels, bool intercept);
 
 // The model specification for fitting a derived design: the same family,
