@@ -6,6 +6,7 @@
 #include <random>
 #include <stdexcept>
 
+#include "estimation/resampling.hpp"
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
@@ -16,6 +17,8 @@ namespace moderato {
 
 using detail::join;
 using detail::quoted;
+using detail::replicate_seed;
+using detail::uniform_below;
 
 namespace {
 
@@ -23,33 +26,6 @@ constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 constexpr int kMinReplicates = 100;
 constexpr int kMaxJackknifeGroups = 200;
 constexpr int kMinClusters = 5;
-
-// ---- random streams --------------------------------------------------------
-
-constexpr std::uint64_t kGoldenGamma = 0x9E3779B97F4A7C15ULL;
-
-// The SplitMix64 output function (Steele, Lea & Flood 2014).
-std::uint64_t splitmix64_mix(std::uint64_t z) {
-    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
-    z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
-    return z ^ (z >> 31);
-}
-
-// The (r+1)-th output of a SplitMix64 generator started at `seed`: distinct
-// for distinct r (the mix is a bijection), independent of the thread count.
-std::uint64_t replicate_seed(std::uint64_t seed, std::uint64_t r) {
-    return splitmix64_mix(seed + (r + 1) * kGoldenGamma);
-}
-
-// Uniform integer in [0, n) from raw 64-bit output by rejection: the values
-// at or above 2^64 mod n form a whole number of copies of [0, n).
-std::uint64_t uniform_below(std::mt19937_64& g, std::uint64_t n) {
-    const std::uint64_t threshold = (0 - n) % n;
-    while (true) {
-        const std::uint64_t x = g();
-        if (x >= threshold) return x % n;
-    }
-}
 
 // ---- replicate designs -----------------------------------------------------
 

@@ -41,9 +41,9 @@ struct ThinRule {
 
 // One bin's effect of the focal predictor, at the bin's median.
 struct EffectBin : Inference {
-    double moderator_value = 0;  // the median of the moderator in the bin
+    double moderator_value = 0;   // the median of the moderator in the bin
     double lower = 0, upper = 0;  // the bin's cuts: (lower, upper] (the first bin: [lower, upper])
-    double min = 0, max = 0;     // the moderator's observed values in the bin
+    double min = 0, max = 0;      // the moderator's observed values in the bin
     std::size_t rows = 0;
     // 0/1 focal predictor: rows with focal 0 and with focal 1.
     std::size_t rows_zero = 0, rows_one = 0;

@@ -39,8 +39,8 @@ struct SmoothOptions {
     int points = 50;          // grid points over the observed range, at least 50
     double bandwidth = kNaN;  // NaN: chosen by cross-validation
     int folds = 5;
-    int candidates = 20;  // bandwidths tried: geometric from 0.05 to 3 moderator SDs
-    int replicates = 200;  // bootstrap replicates for the band; 0: no band
+    int candidates = 20;     // bandwidths tried: geometric from 0.05 to 3 moderator SDs
+    int replicates = 200;    // bootstrap replicates for the band; 0: no band
     std::uint64_t seed = 1;  // folds and bootstrap
     double level = 0.95;
     unsigned threads = 0;
@@ -77,7 +77,7 @@ struct SmoothEffects {
     int folds = 0;
     std::vector<BandwidthScore> scores;  // cross-validation only
     std::uint64_t seed = 0;
-    int replicates = 0;       // asked for
+    int replicates = 0;         // asked for
     int failed_replicates = 0;  // with a singular local fit at some point
     double level = 0.95;
     std::vector<SmoothPoint> points;
