@@ -45,7 +45,7 @@ std::string smooth_sentence(const SmoothEffects& s) {
 std::string thin_sentence(const CommonSupport& c) {
     std::vector<std::string> parts;
     for (const Region& r : c.thin) parts.push_back(format_range(r.lo, r.hi));
-    return "The data are thin for " + c.moderator + " from " + join_and(parts) + " (" + c.rule + ").";
+    return "The data are thin for " + c.moderator + " from " + join_and(parts) + "; the rule: " + c.rule + ".";
 }
 
 }  // namespace
@@ -53,7 +53,9 @@ std::string thin_sentence(const CommonSupport& c) {
 void straight_line_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
     if (run.binned) {
         for (std::size_t k = 0; k < run.binned->bins.size(); ++k) out.push_back(bin_sentence(*run.binned, k));
-        out.push_back(linearity_sentence(*run.binned));
+        std::string test = linearity_sentence(*run.binned);
+        if (!test.empty() && test.back() != '.') test += '.';
+        out.push_back(std::move(test));
     }
     if (run.smooth) out.push_back(smooth_sentence(*run.smooth));
     if ((run.binned || run.smooth) && run.support && !run.support->thin.empty())

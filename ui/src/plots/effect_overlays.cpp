@@ -98,8 +98,8 @@ void drawSmooth(QCustomPlot* plot, const EffectOverlays& o, bool greyscale) {
             g->setPen(edge);
             g->setData(k, v, true);
             g->setSelectable(QCP::stNone);
-            if (side < 0) g->setName(o.smoothBandName);
-            else g->removeFromLegend();
+            g->setName(o.smoothBandName);
+            g->removeFromLegend();  // the curve's own entry names its band
         }
     }
     QPen pen(c);

@@ -27,9 +27,9 @@ struct EffectOverlays {
     QString binsName;  // legend entry ("binned estimates (3 bins)")
     // The smooth curve over its grid; lower/upper NaN without a band.
     std::vector<CurvePoint> smooth;
-    std::vector<bool> smoothThin;  // per point of `smooth`
-    QString smoothName, smoothBandName;
-    std::vector<Region> thin;  // thin stretches of the moderator
+    std::vector<bool> smoothThin;        // per point of `smooth`
+    QString smoothName, smoothBandName;  // the band's name stays out of the legend (the curve's says it)
+    std::vector<Region> thin;            // thin stretches of the moderator
     QString thinName;
     // Said on the plot instead of drawing the overlays (e.g. they are on the
     // log-odds scale and the plot shows probabilities); empty: none.

@@ -23,7 +23,10 @@ void addSmooth(const SmoothEffects& s, EffectOverlays& o) {
         o.smooth.push_back(c);
         o.smoothThin.push_back(p.thin);
     }
-    o.smoothName = QObject::tr("smooth curve (bandwidth %1)").arg(numberText(s.bandwidth));
+    // One legend entry for the curve and its band (the band's edges are dotted in its colour).
+    o.smoothName = s.replicates > 0 ? QObject::tr("smooth curve, bandwidth %1 (dotted: %2 band)")
+                                          .arg(numberText(s.bandwidth), levelText(s.level))
+                                    : QObject::tr("smooth curve, bandwidth %1").arg(numberText(s.bandwidth));
     o.smoothBandName = QObject::tr("%1 band of the smooth curve").arg(levelText(s.level));
 }
 

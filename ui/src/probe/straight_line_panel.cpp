@@ -121,7 +121,7 @@ void StraightLinePanel::fill(const Analysis& a, const AnalysisRun& run, bool pro
 void StraightLinePanel::addBinned(const BinnedEffects& b, const QString& se) {
     const LinearityTest& t = b.linearity;
     section(tr("Binned estimates against the straight line"));
-    line(tr("Test of the straight line (%1 SEs): %2, %3").arg(se, testText(t), pClauseText(t.p_value)));
+    line(tr("Test of the straight line, %1 SEs: %2, %3").arg(se, testText(t), pClauseText(t.p_value)));
     line(q(linearity_sentence(b)));
     for (std::size_t k = 0; k < b.bins.size(); ++k) {
         const EffectBin& e = b.bins[k];
@@ -149,7 +149,7 @@ void StraightLinePanel::addSmooth(const SmoothEffects& s) {
     else line(tr("No band: no bootstrap replicates were asked for"));
     if (s.failed_replicates > 0)
         line(tr("%1 replicates had a local fit that could not be computed").arg(countText(s.failed_replicates)));
-    for (const auto& n : s.notes) line(QStringLiteral("• ") + q(n));
+    // (The curve's own notes say the bandwidth and band again in core's words: not repeated.)
     html_ << QStringLiteral("</p>");
 }
 
