@@ -10,7 +10,7 @@ namespace {
 
 void addBins(const BinnedEffects& b, EffectOverlays& o) {
     for (const EffectBin& e : b.bins) o.bins.push_back({e.moderator_value, e.estimate, e.ci_lower, e.ci_upper, e.thin});
-    o.binsName = QObject::tr("binned estimates (%1 bins, %2 CI)").arg(b.bins.size()).arg(levelText(b.level));
+    o.binsName = QObject::tr("binned estimates, %1 CI").arg(levelText(b.level));
 }
 
 void addSmooth(const SmoothEffects& s, EffectOverlays& o) {
@@ -24,9 +24,9 @@ void addSmooth(const SmoothEffects& s, EffectOverlays& o) {
         o.smoothThin.push_back(p.thin);
     }
     // One legend entry for the curve and its band (the band's edges are dotted in its colour).
-    o.smoothName = s.replicates > 0 ? QObject::tr("smooth curve, bandwidth %1 (dotted: %2 band)")
-                                          .arg(numberText(s.bandwidth), levelText(s.level))
-                                    : QObject::tr("smooth curve, bandwidth %1").arg(numberText(s.bandwidth));
+    // Short entries keep a small figure's plot area: the bandwidth is in the caption and the panel.
+    o.smoothName = s.replicates > 0 ? QObject::tr("smooth curve, %1 band dotted").arg(levelText(s.level))
+                                    : QObject::tr("smooth curve");
     o.smoothBandName = QObject::tr("%1 band of the smooth curve").arg(levelText(s.level));
 }
 
@@ -44,7 +44,7 @@ EffectOverlays straightLineOverlays(const AnalysisRun& run, const ProbeSettings&
     if (smooth) addSmooth(*run.smooth, o);
     if (run.support) {
         o.thin = run.support->thin;
-        o.thinName = QObject::tr("few rows of %1").arg(QString::fromStdString(run.support->moderator));
+        o.thinName = QObject::tr("few rows");
     }
     return o;
 }
