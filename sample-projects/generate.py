@@ -151,7 +151,7 @@ def warehouse_picking(rng):
 
 
 def analysis(id_, name, dataset, outcome, focal, moderator, controls=(), family="linear", se="model-based",
-             scale="model", pinned=(), clusters="", groups="", random_slopes=()):
+             scale="model", pinned=(), clusters="", groups="", random_slopes=(), straight_line=False):
     out = {
         "id": id_, "name": name, "dataset": dataset,
         "roles": {"outcome": outcome, "focal": focal, "moderator": moderator, "second_moderator": "",
@@ -162,6 +162,9 @@ def analysis(id_, name, dataset, outcome, focal, moderator, controls=(), family=
         "figure": {"preset": "memo", "width_in": 6.5, "height_in": 4.0, "dpi": 300, "font_family": "DejaVu Sans",
                    "font_pt": 9, "greyscale": False, "caption": True},
     }
+    if straight_line:  # the straight-line check on the Effect plot: binned estimates and the smooth curve
+        out["probe"]["binned_estimates"] = True
+        out["probe"]["smooth_curve"] = True
     if groups:  # a multilevel model: the Groups role and its settings, as the program writes them
         out["roles"]["groups"] = groups
         out["multilevel"] = {"random_slopes": list(random_slopes), "estimation": "reml", "random_covariance": "full",
@@ -214,7 +217,7 @@ def write_projects():
         analysis("experience-site", "experience × site", "visits", "repair_hours", "experience_years", "site",
                  controls=["wind_ms", "turbine_age"], se="cluster-robust", clusters="crew"),
         analysis("experience-wind", "experience × wind", "visits", "repair_hours", "experience_years", "wind_ms",
-                 controls=["site", "turbine_age"], se="cluster-robust", clusters="crew")])
+                 controls=["site", "turbine_age"], se="cluster-robust", clusters="crew", straight_line=True)])
     write_project("warehouse-picking", "pickers.csv", "pickers", [
         analysis("weeks-automation", "weeks on the job × automation", "pickers", "items_per_hour", "weeks_on_job",
                  "automation_pct", controls=["shift"], groups="warehouse", random_slopes=["weeks_on_job"])])

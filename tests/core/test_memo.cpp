@@ -12,12 +12,14 @@
 #include <fstream>
 #include <functional>
 #include <map>
+#include <memory>
 #include <nlohmann/json.hpp>
 #include <regex>
 #include <sstream>
 
 #include "common/reference_fixtures.hpp"
 #include "common/sample_run.hpp"
+#include "common/straight_line_data.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reading/csv.hpp"
@@ -574,4 +576,53 @@ TEST(MemoSentences, ThreeWayFindingsSayWhereTheSecondModeratorIsHeld) {
     probe_analysis(held, a);
     EXPECT_NE(joined(memo_findings(a, held)).find("with w held at 1.500,"), std::string::npos)
         << joined(memo_findings(a, held));
+}
+
+// The straight-line check in the memo, on data whose interaction is exactly
+// a straight line (common/straight_line_data.hpp): each bin's sentence gives
+// the effect at the bin's median, which by construction is 2 + 0.3·median
+// (the medians re-derived here from the binning's definition), beside the
+// straight line's own (the same number); the smooth curve's bandwidth is
+// the one it chose; the cautions say the test is no proof. Off, the memo
+// says nothing of the check.
+TEST(MemoSentences, StraightLineCheckSaysEachBinAndItsCautions) {
+    const test::ExactLine data;
+    auto table = std::make_shared<const Table>(data.table());
+    Analysis a;
+    a.id = a.name = "line";
+    a.dataset = "d";
+    a.roles.outcome = "y";
+    a.roles.focal = "x";
+    a.roles.moderator = "z";
+    const AnalysisRun off = run_analysis(table, a);
+    for (const auto& s : memo_findings(a, off)) EXPECT_EQ(s.find("Bin 1"), std::string::npos) << s;
+    for (const auto& s : memo_cautions(a, off)) EXPECT_EQ(s.find("straight-line check"), std::string::npos) << s;
+
+    a.probe.show_binned = true;
+    a.probe.bins = 4;
+    a.probe.show_smooth = true;
+    a.probe.smooth_replicates = 0;  // no band: the sentence says so
+    const AnalysisRun run = run_analysis(table, a);
+    ASSERT_TRUE(run.binned && run.smooth) << (run.straight_line_notes.empty() ? "" : run.straight_line_notes[0]);
+    const std::vector<std::string> findings = memo_findings(a, run);
+    const auto said = [&](const std::string& text) {
+        return std::any_of(findings.begin(), findings.end(),
+                           [&](const std::string& s) { return s.find(text) != std::string::npos; });
+    };
+    const std::vector<double> medians = test::bin_medians(data.z, 4);  // re-derived (binned_effects.hpp)
+    for (std::size_t k = 0; k < medians.size(); ++k) {
+        const std::string effect = format_sig(test::ExactLine::effect_at(medians[k]));  // by construction
+        const std::string bin = "Bin " + std::to_string(k + 1) + " of z";
+        EXPECT_TRUE(said(bin)) << bin;
+        EXPECT_TRUE(said("at its median " + format_sig(medians[k]) + " the effect of x is " + effect))
+            << bin << " " << effect;
+        EXPECT_TRUE(said("the straight line gives " + effect + " there")) << bin;
+    }
+    EXPECT_TRUE(said(linearity_sentence(*run.binned)));
+    EXPECT_TRUE(said("bandwidth of " + format_sig(run.smooth->bandwidth) + " in units of z"));
+    EXPECT_TRUE(said("it has no band"));
+    const std::vector<std::string> cautions = memo_cautions(a, run);
+    EXPECT_TRUE(std::any_of(cautions.begin(), cautions.end(), [](const std::string& s) {
+        return s.find("not thereby shown to be a straight line") != std::string::npos;
+    }));
 }

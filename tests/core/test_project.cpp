@@ -395,6 +395,51 @@ TEST(ProjectJson, DefaultAdjustmentAndReferenceLevelsAreNotWritten) {
     EXPECT_FALSE(project_from_json(plain, "memory.moderato").analyses[0].probe.extend_to_boundaries);
 }
 
+// The straight-line check's switches (binned estimates, smooth curve) are
+// written only when not at their defaults (ProbeSettings in project.hpp: off,
+// 3 bins, bandwidth by cross-validation, 200 replicates, seed 1), and every
+// one of them survives the round trip and counts in == and same_probe.
+TEST(ProjectJson, StraightLineCheckSettingsRoundTripAndDefaultsAreNotWritten) {
+    Project p = full_project();
+    const std::string plain = project_to_json(p);
+    for (const char* key :
+         {"binned_estimates", "\"bins\"", "smooth_curve", "smooth_bandwidth", "smooth_replicates", "smooth_seed"})
+        EXPECT_EQ(plain.find(key), std::string::npos) << key;
+    ProbeSettings& ps = p.analyses[0].probe;
+    ps.show_binned = true;
+    ps.bins = 5;
+    ps.show_smooth = true;
+    ps.smooth_bandwidth = 0.75;
+    ps.smooth_replicates = 0;
+    ps.smooth_seed = 18446744073709551615ull;  // the largest 64-bit seed survives JSON
+    const std::string text = project_to_json(p);
+    EXPECT_NE(text.find("\"binned_estimates\": true"), std::string::npos);
+    EXPECT_NE(text.find("\"bins\": 5"), std::string::npos);
+    EXPECT_NE(text.find("\"smooth_seed\": 18446744073709551615"), std::string::npos);
+    const Project q = project_from_json(text, "memory.moderato");
+    EXPECT_EQ(q, p);
+    const ProbeSettings& back = q.analyses[0].probe;
+    EXPECT_TRUE(back.show_binned);
+    EXPECT_EQ(back.bins, 5);
+    EXPECT_TRUE(back.show_smooth);
+    EXPECT_EQ(back.smooth_bandwidth, 0.75);
+    EXPECT_EQ(back.smooth_replicates, 0);
+    EXPECT_EQ(back.smooth_seed, 18446744073709551615ull);
+    // Each switch on its own makes a different probe (the run must be probed again).
+    const Analysis base = full_project().analyses[0];
+    const std::vector<std::function<void(ProbeSettings&)>> edits = {
+        [](ProbeSettings& s) { s.show_binned = true; },      [](ProbeSettings& s) { s.bins = 4; },
+        [](ProbeSettings& s) { s.show_smooth = true; },      [](ProbeSettings& s) { s.smooth_bandwidth = 2; },
+        [](ProbeSettings& s) { s.smooth_replicates = 500; }, [](ProbeSettings& s) { s.smooth_seed = 7; }};
+    for (std::size_t k = 0; k < edits.size(); ++k) {
+        Analysis changed = base;
+        edits[k](changed.probe);
+        EXPECT_FALSE(changed.probe == base.probe) << k;
+        EXPECT_FALSE(same_probe(changed, base)) << k;
+        EXPECT_TRUE(same_model(changed, base)) << k;
+    }
+}
+
 TEST(ProjectJson, WritingARecipeValueAndNonFiniteNumbersStaysReadable) {
     Project p = full_project();
     p.analyses[0].probe.pinned.push_back(kNaN);

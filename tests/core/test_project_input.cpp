@@ -136,6 +136,22 @@ TEST(ProjectInput, RecipesFigurePresetsAndNotesOfTheWrongKind) {
         {", \"memo_notes\": 12", "[]", "analyses[0].memo_notes", "expected text"},
         {", \"memo_notes\": [\"a\"]", "[]", "analyses[0].memo_notes", "expected text"},
         {", \"level\": 18446744073709551615", "[]", "analyses[0].level", "must lie strictly between 0 and 1"},
+        // The straight-line check: bins, bandwidth, replicates and seed (ProbeSettings in project.hpp).
+        {", \"probe\": {\"bins\": 1}", "[]", "analyses[0].probe.bins", "must lie between 2 and 50 bins"},
+        {", \"probe\": {\"bins\": 2.5}", "[]", "analyses[0].probe.bins", "expected a whole number"},
+        {", \"probe\": {\"bins\": \"3\"}", "[]", "analyses[0].probe.bins", "expected a number"},
+        {", \"probe\": {\"binned_estimates\": 1}", "[]", "analyses[0].probe.binned_estimates",
+         "expected true or false"},
+        {", \"probe\": {\"smooth_bandwidth\": 0}", "[]", "analyses[0].probe.smooth_bandwidth",
+         "must be a positive number"},
+        {", \"probe\": {\"smooth_bandwidth\": -2}", "[]", "analyses[0].probe.smooth_bandwidth",
+         "must be a positive number"},
+        {", \"probe\": {\"smooth_replicates\": 50}", "[]", "analyses[0].probe.smooth_replicates",
+         "must be 0 (no band) or between 100 and 100,000"},
+        {", \"probe\": {\"smooth_replicates\": -1}", "[]", "analyses[0].probe.smooth_replicates",
+         "must be 0 (no band) or between 100 and 100,000"},
+        {", \"probe\": {\"smooth_seed\": -3}", "[]", "analyses[0].probe.smooth_seed", "expected a whole number"},
+        {", \"probe\": {\"smooth_seed\": 1.5}", "[]", "analyses[0].probe.smooth_seed", "expected a whole number"},
     };
     for (const auto& c : cases) {
         const std::string m =

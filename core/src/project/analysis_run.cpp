@@ -7,6 +7,7 @@
 #include "moderato/probing/response_scale.hpp"
 #include "moderato/reading/derive.hpp"
 #include "moderato/support/error.hpp"
+#include "project/straight_line_check.hpp"
 
 namespace moderato {
 
@@ -56,7 +57,12 @@ ProbeKind probe_kind(const Table& t, const Analysis& a) {
     return grouping(m) ? ProbeKind::Groups : ProbeKind::Continuous;
 }
 
-void probe_analysis(AnalysisRun& run, const Analysis& a) {
+void probe_analysis(AnalysisRun& run, const Analysis& a, const RunProgress& progress) {
+    std::optional<SmoothEffects> previous_smooth = std::move(run.smooth);
+    run.binned.reset();
+    run.smooth.reset();
+    run.support.reset();
+    run.straight_line_notes.clear();
     run.probe.reset();
     run.probe_link.reset();
     run.cells.reset();
@@ -83,6 +89,7 @@ void probe_analysis(AnalysisRun& run, const Analysis& a) {
             if (run.kind == ProbeKind::Continuous && a.roles.second_moderator.empty())
                 run.surface = surface_grid(run.design, run.fit, a.roles.focal, a.roles.moderator);
             run.cautions = run.probe->cautions;
+            if (run.kind == ProbeKind::Continuous) check_straight_line(run, a, std::move(previous_smooth), progress);
             break;
         }
     }
@@ -101,10 +108,18 @@ bool same_probe(const Analysis& a, const Analysis& b) {
     const auto same = [](double x, double y) { return x == y || (std::isnan(x) && std::isnan(y)); };
     return same_model(a, b) && a.probe.pinned == b.probe.pinned && same(a.probe.second_value, b.probe.second_value) &&
            a.probe.scale == b.probe.scale && a.probe.averaging == b.probe.averaging &&
-           a.probe.adjustment == b.probe.adjustment;
+           a.probe.adjustment == b.probe.adjustment && a.probe.show_binned == b.probe.show_binned &&
+           a.probe.bins == b.probe.bins && a.probe.show_smooth == b.probe.show_smooth &&
+           same(a.probe.smooth_bandwidth, b.probe.smooth_bandwidth) &&
+           a.probe.smooth_replicates == b.probe.smooth_replicates && a.probe.smooth_seed == b.probe.smooth_seed;
 }
 
-AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a) {
+bool smooth_work_pending(const AnalysisRun* run, const Analysis& a) {
+    if (!a.probe.show_smooth) return false;
+    return !run || !run->smooth || !smooth_matches(*run->smooth, a);
+}
+
+AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a, const RunProgress& progress) {
     if (!table) throw InputError("analysis " + quoted(a.name) + ": its dataset is not loaded");
     const Table& t = *table;
     AnalysisRun run;
@@ -124,7 +139,7 @@ AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a) 
     run.design = build_design(t, run.spec);
     run.fit = fit_design(run.design, run.spec);
 
-    probe_analysis(run, a);
+    probe_analysis(run, a, progress);
 
     if (a.centring == Centring::Mean) {
         // Centre the numeric (not 0/1) focal predictor and moderators; the fit is the same

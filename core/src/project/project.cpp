@@ -274,6 +274,13 @@ json probe_to_json(const ProbeSettings& p) {
     if (p.adjustment != Adjustment::Holm) j["adjustment"] = word_of(kAdjustmentWords, p.adjustment);
     if (p.extend_to_boundaries) j["extend_to_boundaries"] = true;
     if (!p.jitter) j["jitter"] = false;
+    const ProbeSettings d;
+    if (p.show_binned) j["binned_estimates"] = true;
+    if (p.bins != d.bins) j["bins"] = p.bins;
+    if (p.show_smooth) j["smooth_curve"] = true;
+    if (std::isfinite(p.smooth_bandwidth)) j["smooth_bandwidth"] = p.smooth_bandwidth;
+    if (p.smooth_replicates != d.smooth_replicates) j["smooth_replicates"] = p.smooth_replicates;
+    if (p.smooth_seed != d.smooth_seed) j["smooth_seed"] = p.smooth_seed;
     return j;
 }
 
@@ -400,6 +407,35 @@ Roles read_roles(const Reader& r, const json& j, const std::string& where) {
     return out;
 }
 
+// A whole number in [lo, hi] (or the fallback when absent), naming the key when not.
+double whole_number(const Reader& r, const json& j, const char* key, const std::string& where, double fallback,
+                    double lo, double hi, const std::string& rule) {
+    const double v = r.number(j, key, where, fallback);
+    if (v != std::floor(v)) r.fail(where + "." + key, "expected a whole number");
+    if (!(v >= lo && v <= hi)) r.fail(where + "." + key, rule);
+    return v;
+}
+
+// The straight-line check's switches (binned estimates, smooth curve).
+void read_straight_line_check(const Reader& r, const json& probe, const std::string& pw, ProbeSettings& out) {
+    out.show_binned = r.boolean(probe, "binned_estimates", pw, false);
+    out.bins = static_cast<int>(whole_number(r, probe, "bins", pw, out.bins, 2, 50, "must lie between 2 and 50 bins"));
+    out.show_smooth = r.boolean(probe, "smooth_curve", pw, false);
+    out.smooth_bandwidth = r.number(probe, "smooth_bandwidth", pw, out.smooth_bandwidth);
+    if (!std::isnan(out.smooth_bandwidth) && !(out.smooth_bandwidth > 0 && std::isfinite(out.smooth_bandwidth)))
+        r.fail(pw + ".smooth_bandwidth", "must be a positive number (leave it out to choose it by cross-validation)");
+    const double reps = whole_number(r, probe, "smooth_replicates", pw, out.smooth_replicates, 0, 100000,
+                                     "must be 0 (no band) or between 100 and 100,000 replicates");
+    if (reps > 0 && reps < 100)
+        r.fail(pw + ".smooth_replicates", "must be 0 (no band) or between 100 and 100,000 replicates");
+    out.smooth_replicates = static_cast<int>(reps);
+    const auto seed = probe.find("smooth_seed");
+    if (seed != probe.end()) {
+        if (!seed->is_number_unsigned()) r.fail(pw + ".smooth_seed", "expected a whole number of at least 0");
+        out.smooth_seed = seed->get<std::uint64_t>();
+    }
+}
+
 ProbeSettings read_probe(const Reader& r, const json& j, const std::string& where) {
     const json& probe = r.object(j, "probe", where, false);
     const std::string pw = where + ".probe";
@@ -415,6 +451,7 @@ ProbeSettings read_probe(const Reader& r, const json& j, const std::string& wher
     out.jitter = r.boolean(probe, "jitter", pw, true);
     out.adjustment = r.choice(probe, "adjustment", pw, kAdjustmentWords, std::optional(Adjustment::Holm));
     out.extend_to_boundaries = r.boolean(probe, "extend_to_boundaries", pw, false);
+    read_straight_line_check(r, probe, pw, out);
     return out;
 }
 
@@ -523,7 +560,9 @@ bool ProbeSettings::operator==(const ProbeSettings& o) const {
     return same_number(current, o.current) && pinned == o.pinned && same_number(second_value, o.second_value) &&
            scale == o.scale && averaging == o.averaging && simultaneous_band == o.simultaneous_band &&
            show_points == o.show_points && show_gaps == o.show_gaps && adjustment == o.adjustment &&
-           extend_to_boundaries == o.extend_to_boundaries && jitter == o.jitter;
+           extend_to_boundaries == o.extend_to_boundaries && jitter == o.jitter && show_binned == o.show_binned &&
+           bins == o.bins && show_smooth == o.show_smooth && same_number(smooth_bandwidth, o.smooth_bandwidth) &&
+           smooth_replicates == o.smooth_replicates && smooth_seed == o.smooth_seed;
 }
 
 bool DataSource::operator==(const DataSource& o) const {

@@ -9,6 +9,7 @@
 #include <nlohmann/json.hpp>
 
 #include "memo_multilevel.hpp"
+#include "memo_straight_line.hpp"
 #include "moderato/probing/response_scale.hpp"
 #include "moderato/reporting/table_export.hpp"
 #include "moderato/support/report_text.hpp"
@@ -416,6 +417,7 @@ std::vector<std::string> memo_findings(const Analysis& a, const AnalysisRun& run
     }
     comparison_sentence(a, run, out);
     detail::multilevel_sentences(run, out);
+    if (run.kind == ProbeKind::Continuous) detail::straight_line_sentences(run, out);
     return out;
 }
 
@@ -446,6 +448,7 @@ std::vector<std::string> memo_cautions(const Analysis& a, const AnalysisRun& run
             "In a logistic model the product coefficient (log-odds scale) is not the interaction on the "
             "probability scale; the probability-scale statements say how probabilities change.");
     detail::multilevel_cautions(run, out);
+    detail::straight_line_cautions(run, out);
     return out;
 }
 

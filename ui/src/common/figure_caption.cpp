@@ -1,5 +1,7 @@
 #include "common/figure_caption.hpp"
 
+#include <QStringList>
+
 #include "common/held_value_text.hpp"
 #include "common/number_text.hpp"
 #include "moderato/reporting/analysis_tables.hpp"
@@ -36,6 +38,20 @@ QString figureCaption(const Analysis& a, const AnalysisRun& run) {
                 .arg(seDescription(a, run))
                 .arg(levelText(a.level))
                 .arg(countText(static_cast<long long>(run.fit.n)));
+    return text;
+}
+
+QString figureCaption(const Analysis& a, const AnalysisRun& run, FigurePlot plot) {
+    QString text = figureCaption(a, run);
+    const bool binned = a.probe.show_binned && run.binned, smooth = a.probe.show_smooth && run.smooth;
+    if (plot != FigurePlot::Effect || (!binned && !smooth)) return text;
+    if (a.family == Family::Logistic && a.probe.scale == ProbeScale::Outcome)
+        return text + QStringLiteral(" · straight-line check not drawn (log-odds scale only)");
+    QStringList parts;
+    if (binned) parts << QStringLiteral("binned estimates (%1 bins)").arg(run.binned->bins.size());
+    if (smooth) parts << QStringLiteral("smooth curve (bandwidth %1)").arg(numberText(run.smooth->bandwidth));
+    text += QStringLiteral(" · straight-line check: ") + parts.join(QStringLiteral(", "));
+    if (a.family == Family::Logistic) text += QStringLiteral(", log-odds scale");
     return text;
 }
 

@@ -4,6 +4,8 @@
 #include <QFutureWatcher>
 #include <QPointer>
 #include <QtConcurrent/QtConcurrentRun>
+#include <atomic>
+#include <cmath>
 #include <vector>
 
 #include "common/inline_work.hpp"
@@ -19,17 +21,23 @@ struct Outcome {
     QString error;
 };
 
-// Fits (or only re-probes a cached fit) and turns every failure into a message.
-Outcome compute(const Analysis& a, std::shared_ptr<const Table> table, std::shared_ptr<const AnalysisRun> cached) {
+// Fits (or only re-probes a cached fit) and turns every failure into a
+// message. `stop` set: the long parts (the smooth curve) stop early and the
+// outcome is empty (it is dropped anyway).
+Outcome compute(const Analysis& a, std::shared_ptr<const Table> table, std::shared_ptr<const AnalysisRun> cached,
+                std::shared_ptr<std::atomic<bool>> stop = {}) {
     Outcome out;
+    const RunProgress progress = [stop](int, int) { return !stop || !stop->load(); };
     try {
         if (cached) {
             auto run = std::make_shared<AnalysisRun>(*cached);
-            probe_analysis(*run, a);
+            probe_analysis(*run, a, progress);
             out.run = run;
         } else {
-            out.run = std::make_shared<const AnalysisRun>(run_analysis(table, a));
+            out.run = std::make_shared<const AnalysisRun>(run_analysis(table, a, progress));
         }
+    } catch (const Cancelled&) {
+        return {};
     } catch (const InputError& e) {
         out.error = QString::fromStdString(e.what());
     } catch (const std::exception& e) {
@@ -49,8 +57,10 @@ AnalysisRunner::AnalysisRunner(ProjectDocument* doc, QObject* parent)
         // their results are dropped: they belong to an earlier epoch.
         ++epoch_;
         std::vector<QString> wasBusy;
-        for (const auto& [id, e] : entries_)
+        for (const auto& [id, e] : entries_) {
             if (e.awaited != 0) wasBusy.push_back(id);
+            if (e.stop) e.stop->store(true);
+        }
         entries_.clear();
         for (const QString& id : wasBusy) Q_EMIT busyChanged(id, false);
         for (const auto& a : doc_->project().analyses) refresh(QString::fromStdString(a.id));
@@ -83,7 +93,8 @@ void AnalysisRunner::cancel(const QString& id) {
     Entry& e = it->second;
     e.stopped = true;
     e.awaited = 0;
-    ++e.generation;  // the worker's result no longer matches any request
+    if (e.stop) e.stop->store(true);  // the smooth curve's refits stop early
+    ++e.generation;                   // the worker's result no longer matches any request
     Q_EMIT busyChanged(id, false);
     Q_EMIT resultChanged(id);  // the sections learn that the run on show stays
 }
@@ -118,9 +129,13 @@ void AnalysisRunner::refresh(const QString& id) {
     if (e.valid && e.table == table && same_model(e.settings, a) && e.run) cached = e.run;
     const int generation = ++e.generation;
     const double cells = table ? static_cast<double>(table->rows()) * static_cast<double>(table->cols()) : 0.0;
-    if (cells < threshold_) {
+    // The smooth curve refits the data some hundreds of times (its
+    // cross-validation and bootstrap): never on the UI thread, whatever the size.
+    const bool slow = smooth_work_pending(cached.get(), a) && std::isfinite(threshold_);
+    if (cells < threshold_ && !slow) {
         const Outcome o = compute(a, table, cached);
         const bool wasBusy = e.awaited != 0;
+        if (e.stop) e.stop->store(true);
         e.awaited = 0;  // a worker still running computes outdated settings
         if (wasBusy) Q_EMIT busyChanged(id, false);
         finish(id, generation, a, table, o.run, o.error);
@@ -135,6 +150,9 @@ void AnalysisRunner::startWorker(const QString& id, int generation, const Analys
                                  std::shared_ptr<const Table> table, std::shared_ptr<const AnalysisRun> cached) {
     Entry& e = entries_[id];
     const bool wasBusy = e.awaited != 0;
+    if (e.stop) e.stop->store(true);  // the worker before computes outdated settings
+    auto stop = std::make_shared<std::atomic<bool>>(false);
+    e.stop = stop;
     e.pending = a;
     e.pendingTable = table;
     e.stopped = false;
@@ -153,7 +171,7 @@ void AnalysisRunner::startWorker(const QString& id, int generation, const Analys
                 Q_EMIT busyChanged(id, false);
                 finish(id, generation, a, table, o.run, o.error);
             });
-    watcher->setFuture(QtConcurrent::run([a, table, cached] { return compute(a, table, cached); }));
+    watcher->setFuture(QtConcurrent::run([a, table, cached, stop] { return compute(a, table, cached, stop); }));
 }
 
 void AnalysisRunner::finish(const QString& id, int generation, const Analysis& a, std::shared_ptr<const Table> table,

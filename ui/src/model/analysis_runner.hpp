@@ -5,12 +5,15 @@
 // arrives for settings the user has since changed is dropped (generation
 // counters). A request equal to the one a worker is computing starts no
 // second worker. A change that touches only the probe reuses the cached
-// design and fit. cancel() stops waiting for a worker: its result is dropped
+// design and fit. A smooth curve to compute (the straight-line check, many
+// refits) always goes to a worker, however small the data. cancel() stops
+// waiting for a worker: its result is dropped (its smooth curve stops early)
 // and the run on show stays that of the earlier settings.
 #pragma once
 
 #include <QObject>
 #include <QString>
+#include <atomic>
 #include <map>
 #include <memory>
 
@@ -43,8 +46,8 @@ public:
     // before refresh() returns (the headless renderer relies on that).
     void refresh(const QString& id);
     // Drops the worker's coming result (the worker itself runs to its end:
-    // a fit cannot be interrupted, but it owns what it reads); busy() turns
-    // false at once.
+    // a fit cannot be interrupted, but it owns what it reads; a smooth curve
+    // stops at its next refit); busy() turns false at once.
     void cancel(const QString& id);
 
 Q_SIGNALS:
@@ -63,6 +66,9 @@ private:
         bool stopped = false;  // cancel() dropped the newest request
         Analysis pending;      // what the newest worker computes
         std::shared_ptr<const Table> pendingTable;
+        // Set when the newest worker's result is no longer wanted: its long
+        // parts (the smooth curve) then stop early.
+        std::shared_ptr<std::atomic<bool>> stop;
     };
     void finish(const QString& id, int generation, const Analysis& a, std::shared_ptr<const Table> table,
                 std::shared_ptr<const AnalysisRun> run, const QString& error);

@@ -36,9 +36,9 @@ std::vector<std::pair<QString, QByteArray>> MemoOutput::pngs() const {
 }
 
 std::vector<MemoFigure> memoFigures(const Analysis& a, const AnalysisRun& run, const QList<FigureSource*>& sources) {
-    const QString caption = figureCaption(a, run);
     std::vector<MemoFigure> figures;
     for (FigureSource* f : sources) {
+        const QString caption = figureCaption(a, run, f->figureKind());
         MemoFigure mf;
         mf.title = f->figureName().toStdString();
         mf.file = figureStem(f).toStdString() + ".png";

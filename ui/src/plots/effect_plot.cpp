@@ -165,6 +165,7 @@ void EffectPlot::buildContinuous() {
             if (std::isfinite(c.lower)) lo = std::min(lo, c.lower);
             if (std::isfinite(c.upper)) hi = std::max(hi, c.upper);
         }
+    widenForOverlays(d.overlays, lo, hi);
     const double pad = 0.08 * (hi > lo ? hi - lo : 1.0);
     plot_->yAxis->setRange(lo - pad, hi + pad);
     setAxisTitle(plot_->xAxis, d.moderatorTitle);
@@ -172,6 +173,7 @@ void EffectPlot::buildContinuous() {
 
     const auto [anySignificant, anyNotSignificant] = drawRegions();
     drawCurve(anySignificant, anyNotSignificant);
+    drawEffectOverlays(plot_, d.overlays, greyscale_, font());
     drawBoundaries();
     drawBoundaryNotes();
     if (!d.rug.empty()) drawRug();

@@ -3,7 +3,8 @@
 // boundaries of the region of significance (those beyond the axis written
 // as notes at its edges), the region itself as a tinted strip (not
 // significant: grey hatched), a rug of observed moderator values and
-// "beyond the data" shading outside the observed range. For a
+// "beyond the data" shading outside the observed range, and the straight-line
+// check when it is on (plots/effect_overlays.hpp). For a
 // categorical or 0/1 moderator: the effect in each group with its interval.
 //
 // A draggable handle marks the moderator slider's value. The handle and what
@@ -19,6 +20,7 @@
 
 #include "moderato/probing/probe.hpp"
 #include "moderato/probing/probe_curves.hpp"
+#include "plots/effect_overlays.hpp"
 #include "plots/figure_source.hpp"
 
 class QCustomPlot;
@@ -51,6 +53,8 @@ struct EffectPlotData {
     // two dotted lines; `groupSpreadName` is their legend entry.
     std::vector<CurvePoint> groupSpread;
     QString groupSpreadName;
+    // The straight-line check (binned estimates, smooth curve, thin data).
+    EffectOverlays overlays;
     // Groups.
     std::vector<QString> groupNames;   // axis ticks
     std::vector<QString> legendNames;  // legend entries ("shift = day"); empty: the group names

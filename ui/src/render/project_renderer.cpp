@@ -135,14 +135,14 @@ RenderReport renderProject(const RenderRequest& request) {
         QString folder = slug(a.id);
         for (int k = 2; usedFolders.count(folder); ++k) folder = slug(a.id) + QLatin1Char('-') + QString::number(k);
         usedFolders.insert(folder);
-        const QString caption = figureCaption(a, *run);
         // Each figure is drawn once as PNG: the file and the memo share the bytes.
         const QList<FigureSource*> figures = page.probe()->reportFigures(*run);
         std::vector<MemoFigure> pngs = memoFigures(a, *run, figures);
         for (qsizetype i = 0; i < figures.size(); ++i) {
             const QString stem = folder + QLatin1Char('/') + figureStem(figures[i]);
             out.write(stem + QStringLiteral(".png"), QByteArray::fromStdString(pngs[static_cast<std::size_t>(i)].png));
-            writeFigure(out, stem, figures[i], a.figure, caption, {FigureFormat::Svg, FigureFormat::Pdf});
+            writeFigure(out, stem, figures[i], a.figure, figureCaption(a, *run, figures[i]->figureKind()),
+                        {FigureFormat::Svg, FigureFormat::Pdf});
         }
         for (const NamedTable& t : analysis_tables(a, *run))
             for (const TableFormat tf : kTableFormats)
@@ -162,7 +162,8 @@ RenderReport renderProject(const RenderRequest& request) {
                                        .arg(QString::fromStdString(fe.id), QString::fromLatin1(to_string(fe.plot)));
                 continue;
             }
-            writeFigure(out, QStringLiteral("figures/") + slug(fe.id), f, a.figure, caption);
+            writeFigure(out, QStringLiteral("figures/") + slug(fe.id), f, a.figure,
+                        figureCaption(a, *run, f->figureKind()));
         }
     }
     return report;

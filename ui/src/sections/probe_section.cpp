@@ -32,6 +32,8 @@
 #include "probe/moderator_slider.hpp"
 #include "probe/pinned_table.hpp"
 #include "probe/readout_panel.hpp"
+#include "probe/straight_line_overlays.hpp"
+#include "probe/straight_line_panel.hpp"
 #include "specify/role_edit.hpp"
 #include "style/palette_text.hpp"
 
@@ -82,6 +84,7 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
       held_(new HeldValueControl(this)),
       readout_(new ReadoutPanel(this)),
       pinned_(new PinnedTable(this)),
+      straight_(new StraightLinePanel(this)),
       summary_(new QLabel(this)) {
     auto* outer = new QVBoxLayout(this);
     outer->setContentsMargins(0, 0, 0, 0);
@@ -119,6 +122,7 @@ ProbeSection::ProbeSection(ProjectDocument* doc, QWidget* parent)
 
     connectMoves();
     connectSettings();
+    connectStraightLine();
 }
 
 // The row of choices above the plots: band, data points, scale, averaging,
@@ -235,6 +239,8 @@ QWidget* ProbeSection::createSidePanel(QWidget* split) {
     panelLayout->setSpacing(10);
     panelLayout->addWidget(readout_);
     panelLayout->addWidget(pinned_);
+    panelLayout->addWidget(straight_);
+    straight_->hide();  // until a continuous moderator shows
     summary_->setObjectName(QStringLiteral("probe-summary"));
     summary_->setWordWrap(true);
     summary_->setTextFormat(Qt::RichText);
@@ -321,6 +327,23 @@ void ProbeSection::connectSettings() {
         fillReadoutContext();
     });
     connect(doc_, &ProjectDocument::analysisChanged, this, &ProbeSection::onDocumentChanged);
+}
+
+// The straight-line check's switches, each an undoable edit.
+void ProbeSection::connectStraightLine() {
+    connect(straight_, &StraightLinePanel::binnedToggled, this, [this](bool on) {
+        editSettings([on](ProbeSettings& p) { p.show_binned = on; },
+                     on ? tr("Show the binned estimates") : tr("Hide the binned estimates"));
+    });
+    connect(straight_, &StraightLinePanel::binsChanged, this, [this](int bins) {
+        const Analysis* a = doc_->analysis(id_);
+        if (!a || a->probe.bins == bins) return;
+        editSettings([bins](ProbeSettings& p) { p.bins = bins; }, tr("Use %1 bins").arg(bins));
+    });
+    connect(straight_, &StraightLinePanel::smoothToggled, this, [this](bool on) {
+        editSettings([on](ProbeSettings& p) { p.show_smooth = on; },
+                     on ? tr("Show the smooth curve") : tr("Hide the smooth curve"));
+    });
 }
 
 QSlider* ProbeSection::slider() const { return slider_->slider(); }
@@ -473,6 +496,8 @@ void ProbeSection::rebuild() {
     differ_->setVisible(!run_->probe->crossovers.empty());
     differ_->setText(engine_.groups() ? tr("Where groups differ") : tr("Where lines differ"));
     fillHeldValue();
+    straight_->setVisible(run_->kind == ProbeKind::Continuous && !a->multilevel.active());
+    straight_->setAnalysis(*a, run_.get(), engine_.probability());
 
     if (engine_.groups()) {
         QStringList names;
@@ -652,6 +677,7 @@ void ProbeSection::buildEffectPlot(bool sim, const QString& level) {
         e.observed = engine_.observedRange();
         e.axis = engine_.axisRange();
         e.rug = engine_.rug();
+        e.overlays = straightLineOverlays(*run_, shown_.probe, engine_.probability());
         if (const auto& spread = engine_.probe().group_slopes) {
             const double half = spread->critical_value * spread->sd;
             for (CurvePoint c : engine_.effectCurve(false)) {

@@ -37,6 +37,7 @@ class LinesPlot;
 class ModeratorSlider;
 class PinnedTable;
 class ReadoutPanel;
+class StraightLinePanel;
 class SurfacePlot;
 struct LinesPlotData;
 struct SummaryText;
@@ -74,6 +75,9 @@ public:
     // Widens the Effect plot's moderator axis to the Johnson–Neyman boundaries
     // beyond the data (continuous moderator); off, they are written as notes.
     QCheckBox* extendToggle() const { return extend_; }
+    // The straight-line check: its switches and what it found (continuous
+    // moderator, single-level models).
+    StraightLinePanel* straightLinePanel() const { return straight_; }
     // The value the second moderator is held at (three-way models).
     HeldValueControl* heldValueControl() const { return held_; }
     const ProbeEngine& engine() const { return engine_; }
@@ -112,6 +116,7 @@ private:
     QWidget* createSidePanel(QWidget* split);
     void connectMoves();
     void connectSettings();
+    void connectStraightLine();
     void rebuild();
     // The engine of a big run, in a worker; rebuild() follows.
     void startPrepare();
@@ -200,6 +205,7 @@ private:
     HeldValueControl* held_;
     ReadoutPanel* readout_;
     PinnedTable* pinned_;
+    StraightLinePanel* straight_;
     QLabel* summary_;
 };
 

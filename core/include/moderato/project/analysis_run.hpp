@@ -5,6 +5,7 @@
 // The workbench and the headless renderer both call this.
 #pragma once
 
+#include <functional>
 #include <memory>
 #include <optional>
 #include <string>
@@ -12,8 +13,11 @@
 
 #include "moderato/estimation/design.hpp"
 #include "moderato/estimation/fit.hpp"
+#include "moderato/probing/binned_effects.hpp"
 #include "moderato/probing/cells.hpp"
+#include "moderato/probing/common_support.hpp"
 #include "moderato/probing/probe.hpp"
+#include "moderato/probing/smooth_effects.hpp"
 #include "moderato/project/project.hpp"
 #include "moderato/project/recipes.hpp"
 #include "moderato/reading/table.hpp"
@@ -42,17 +46,38 @@ struct AnalysisRun {
     std::optional<FitResult> centred_fit;
     std::map<std::string, double> centres;  // column -> centre used
     std::vector<std::string> cautions;      // association, extrapolation, multiple testing, ...
+    // The straight-line check (ProbeSettings::show_binned / show_smooth): a
+    // Continuous probe of a numeric focal predictor in a single-level model,
+    // on the model's (log-odds) scale. Where the data are: every Continuous
+    // probe. A check that cannot be computed leaves its result empty and
+    // says why in `straight_line_notes` (the rest of the run stands).
+    std::optional<BinnedEffects> binned;
+    std::optional<SmoothEffects> smooth;
+    std::optional<CommonSupport> support;
+    std::vector<std::string> straight_line_notes;
 };
+
+// Progress of long work (the smooth curve's cross-validation and bootstrap):
+// (done, total); returning false cancels (the call then throws Cancelled).
+using RunProgress = std::function<bool(int done, int total)>;
 
 // Fits and probes. `table` must already hold the derived columns. Throws
 // InputError naming the analysis and the role for a column that is not in
 // the dataset, a missing outcome/focal/moderator, and everything fit_model
 // and probe refuse.
-AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& analysis);
+AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& analysis,
+                         const RunProgress& progress = {});
 
 // Recomputes only the probing part of a run (pinned values, held second
-// moderator, scale) on its cached design and fit.
-void probe_analysis(AnalysisRun& run, const Analysis& analysis);
+// moderator, scale, the straight-line check) on its cached design and fit.
+// A smooth curve already in `run` for the same smooth settings is kept (it
+// depends on the model and those settings only).
+void probe_analysis(AnalysisRun& run, const Analysis& analysis, const RunProgress& progress = {});
+
+// Whether probing `run` again for `analysis` computes a smooth curve anew
+// (switched on, and `run` holds none for the same settings): the slow part,
+// seconds rather than milliseconds, so the workbench never does it on the UI thread.
+bool smooth_work_pending(const AnalysisRun* run, const Analysis& analysis);
 
 // Whether two analyses describe the same model (dataset, roles, family, SE
 // kind, level, centring), so a fit can be reused.

@@ -6,6 +6,7 @@
 #pragma once
 
 #include <cstddef>
+#include <cstdint>
 #include <limits>
 #include <map>
 #include <string>
@@ -112,6 +113,19 @@ struct ProbeSettings {
     // false: the observed range plus a margin, with boundaries beyond it
     // written as notes. Written to the file only when true.
     bool extend_to_boundaries = false;
+    // The straight-line check on the Effect plot (continuous moderator and
+    // numeric focal predictor; not for multilevel models): the binned
+    // estimates with `bins` bins (2 to 50), and the smooth (kernel) curve
+    // with its bandwidth (NaN: chosen by cross-validation; else > 0), the
+    // bootstrap replicates of its band (0: no band, else 100 to 100,000) and
+    // the seed of its folds and bootstrap. Each written to the file only
+    // when not at its default.
+    bool show_binned = false;
+    int bins = 3;
+    bool show_smooth = false;
+    double smooth_bandwidth = std::numeric_limits<double>::quiet_NaN();
+    int smooth_replicates = 200;
+    std::uint64_t smooth_seed = 1;
     bool operator==(const ProbeSettings&) const;
 };
 

@@ -56,7 +56,8 @@ struct Memo {
 // The sentences alone (also used by the workbench's Memo section); a
 // multilevel analysis adds its random part (groups, variances, the
 // intraclass correlation, the random slopes' tests, the df) and never
-// mentions R².
+// mentions R²; the straight-line check, when on, adds its bins, its test,
+// the smooth curve's bandwidth and where the data are thin.
 std::vector<std::string> memo_findings(const Analysis& analysis, const AnalysisRun& run);
 
 // Where the focal predictor's effect differs from zero, as the memo says it
@@ -75,7 +76,8 @@ std::string simultaneous_region_sentence(const Analysis& analysis, const Analysi
 // The cautions: the run's own, then those of the usual list that apply and
 // were not said yet (association, beyond the data, multiple testing, sample
 // size, log-odds vs probability; for a multilevel fit: a typical group, few
-// groups, a singular fit, extrapolation across groups).
+// groups, a singular fit, extrapolation across groups; with the straight-line
+// check: its test's limited power, thin data, its scale).
 std::vector<std::string> memo_cautions(const Analysis& analysis, const AnalysisRun& run);
 
 // Every saved option of the analysis, its dataset's import options and
