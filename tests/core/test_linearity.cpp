@@ -108,6 +108,20 @@ TEST(SmoothStatsmodels, LogitKernelAtFixedBandwidth) { compare_kernel("linearity
 
 // The fixture's data bend (the slope of x is quadratic in w): the test must
 // reject and the sentence must say so (by construction of the data).
+// 25 clusters: the cluster-robust test of 8 terms gets the few-clusters
+// caution (the rule of about 50 clusters, Cameron & Miller 2015).
+TEST(Binned, FewClustersGetACaution) {
+    const Case c = load("linearity_ols", SeKind::Cluster);
+    const BinnedEffects b = binned_effects(c.d, c.f, c.spec, "x", "w", 3);
+    const bool said = std::any_of(b.cautions.begin(), b.cautions.end(), [](const std::string& t) {
+        return t.find("With 25 clusters the cluster-robust test of 8 terms") != std::string::npos;
+    });
+    EXPECT_TRUE(said);
+    const Case plain = load("linearity_ols", SeKind::Classical);
+    const BinnedEffects bp = binned_effects(plain.d, plain.f, plain.spec, "x", "w", 3);
+    for (const auto& t : bp.cautions) EXPECT_EQ(t.find("clusters"), std::string::npos) << t;
+}
+
 TEST(Binned, BendingEffectIsFoundAndSaid) {
     const Case c = load("linearity_ols", SeKind::Classical);
     const BinnedEffects b = binned_effects(c.d, c.f, c.spec, "x", "w", 3);

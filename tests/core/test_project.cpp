@@ -1373,7 +1373,9 @@ TEST(RunAnalysis, ProbeOnlyRerunReusesTheFit) {
     int found = 0;
     for (std::size_t k = 0; k < run.probe->effects.size(); ++k) {
         const EffectPoint& e = run.probe->effects[k];
-        if (k > 0) EXPECT_LT(run.probe->effects[k - 1].moderator_value, e.moderator_value);
+        if (k > 0) {
+            EXPECT_LT(run.probe->effects[k - 1].moderator_value, e.moderator_value);
+        }
         EXPECT_NEAR(e.estimate, b1 + b3 * e.moderator_value, 1e-10);
         found += e.moderator_value == 8.5 || e.moderator_value == 12.25;
     }

@@ -175,8 +175,9 @@ TEST(Probe, PinAddsARowThatUndoRemovesAndRedoRestores) {
     int pinnedRows = 0;
     for (int k = 0; k < 4; ++k) {
         const auto& r = table->rows()[static_cast<std::size_t>(k)];
-        if (k > 0)
+        if (k > 0) {
             EXPECT_LT(table->rows()[static_cast<std::size_t>(k - 1)].point.moderator_value, r.point.moderator_value);
+        }
         pinnedRows += r.pinned;
         if (!r.pinned) continue;
         EXPECT_DOUBLE_EQ(r.point.moderator_value, m);

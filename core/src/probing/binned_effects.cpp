@@ -190,6 +190,11 @@ void add_cautions(BinnedEffects& r, const FitResult& binned) {
         r.cautions.push_back(
             "A test that does not reject is not proof of a straight-line effect: with few rows per bin it has "
             "little power, and bins average the effect over their range");
+    if (r.linearity.covariance == SeKind::Cluster && binned.n_clusters < 50)
+        r.cautions.push_back("With " + std::to_string(binned.n_clusters) + " clusters the cluster-robust test of " +
+                             format_df(r.linearity.df1) +
+                             " terms at once can reject a straight line too often (fewer than about 50 clusters: "
+                             "Cameron & Miller 2015); read a p-value near the threshold with care");
     if (binned.separation)
         r.cautions.push_back("The binned logistic fit shows separation; some bins' estimates are unreliable");
     if (r.family == Family::Logistic) r.notes.push_back("Binned effects are on the model (log-odds) scale");
