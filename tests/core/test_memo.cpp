@@ -623,6 +623,6 @@ TEST(MemoSentences, StraightLineCheckSaysEachBinAndItsCautions) {
     EXPECT_TRUE(said("it has no band"));
     const std::vector<std::string> cautions = memo_cautions(a, run);
     EXPECT_TRUE(std::any_of(cautions.begin(), cautions.end(), [](const std::string& s) {
-        return s.find("not thereby shown to be a straight line") != std::string::npos;
+        return s.find("is not proof of a straight-line effect") != std::string::npos;
     }));
 }

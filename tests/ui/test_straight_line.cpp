@@ -123,7 +123,7 @@ TEST(StraightLineCheck, BinnedEstimatesFollowTheSwitchAndTheBinCount) {
     EXPECT_TRUE(text.contains(pClauseText(run->binned->linearity.p_value))) << text;
     EXPECT_TRUE(text.contains(QString::fromStdString(linearity_sentence(*run->binned)))) << text;
     EXPECT_TRUE(text.contains(QStringLiteral("Rule: "))) << text;
-    EXPECT_TRUE(text.contains(QStringLiteral("not thereby shown to be straight"))) << text;
+    EXPECT_TRUE(text.contains(QStringLiteral("is not proof of a straight-line effect"))) << text;
 
     // Four bins: one step, by the spin box's arrow key.
     t.panel()->binsBox()->setFocus();

@@ -65,12 +65,8 @@ void straight_line_sentences(const AnalysisRun& run, std::vector<std::string>& o
 void straight_line_cautions(const AnalysisRun& run, std::vector<std::string>& out) {
     if (!shown(run)) return;
     for (const std::string& n : run.straight_line_notes) out.push_back(n);
-    if (run.binned) {
-        out.push_back(
-            "The straight-line check's test has little power with few rows per bin: a straight-line effect "
-            "that the binned estimates do not contradict is not thereby shown to be a straight line.");
-        out.insert(out.end(), run.binned->cautions.begin(), run.binned->cautions.end());
-    }
+    // (binned_effects' cautions say that a test which does not reject is no proof, when it does not.)
+    if (run.binned) out.insert(out.end(), run.binned->cautions.begin(), run.binned->cautions.end());
     if (run.smooth) out.insert(out.end(), run.smooth->cautions.begin(), run.smooth->cautions.end());
     const bool thin_bin = run.binned && std::any_of(run.binned->bins.begin(), run.binned->bins.end(),
                                                     [](const EffectBin& b) { return b.thin; });

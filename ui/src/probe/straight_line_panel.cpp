@@ -169,12 +169,9 @@ void StraightLinePanel::addThin(const AnalysisRun& run) {
 void StraightLinePanel::addCautions(const Analysis& a, const AnalysisRun& run, bool probabilityShown) {
     section(tr("Read with care"));
     for (const auto& n : run.straight_line_notes) line(QStringLiteral("• ") + q(n));
-    if (run.binned) {
-        line(
-            tr("• The test has little power with few rows per bin: a straight line it does not contradict is "
-               "not thereby shown to be straight."));
+    // (Core's cautions say that a test which does not reject is no proof, when it does not.)
+    if (run.binned)
         for (const auto& c : run.binned->cautions) line(QStringLiteral("• ") + q(c));
-    }
     if (run.smooth)
         for (const auto& c : run.smooth->cautions) line(QStringLiteral("• ") + q(c));
     if (a.family == Family::Logistic)
