@@ -10,6 +10,7 @@
 
 #include <qcustomplot.h>
 #include <QCheckBox>
+#include <QDoubleSpinBox>
 #include <QScrollArea>
 #include <QSpinBox>
 #include <QTest>
@@ -187,6 +188,35 @@ TEST(StraightLineCheck, SmoothCurveFollowsTheSwitchWithItsBandwidth) {
     t.settle();
     EXPECT_FALSE(graphsNamed(t.section, QStringLiteral("smooth curve")).empty());
     EXPECT_TRUE(t.panel()->smoothToggle()->isChecked());
+}
+
+// The bandwidth box: typing a bandwidth is one undo step, the curve is then
+// fitted at it ("given"), and undo goes back to cross-validation.
+TEST(StraightLineCheck, TypedBandwidthIsUsedAndUndone) {
+    LineWindow t;
+    click(t.panel()->smoothToggle());
+    t.settle();
+    QDoubleSpinBox* box = t.panel()->bandwidthBox();
+    ASSERT_TRUE(box->isEnabled());
+    EXPECT_EQ(box->text(), QStringLiteral("bandwidth by cross-validation"));
+    box->setFocus();
+    box->selectAll();
+    QTest::keyClicks(box, QStringLiteral("1.5"));
+    QTest::keyClick(box, Qt::Key_Return);
+    t.settle();
+    EXPECT_EQ(t.analysis().probe.smooth_bandwidth, 1.5);
+    EXPECT_EQ(t.undo()->undoText(), QStringLiteral("Use bandwidth 1.500"));
+    auto run = t.run();
+    ASSERT_TRUE(run && run->smooth);
+    EXPECT_EQ(run->smooth->bandwidth, 1.5);
+    EXPECT_EQ(run->smooth->method, BandwidthMethod::Given);
+    EXPECT_TRUE(t.panel()->text().contains(QStringLiteral("as given"))) << t.panel()->text();
+    t.undo()->undo();
+    t.settle();
+    EXPECT_TRUE(std::isnan(t.analysis().probe.smooth_bandwidth));
+    run = t.run();
+    ASSERT_TRUE(run && run->smooth);
+    EXPECT_EQ(run->smooth->method, BandwidthMethod::CrossValidation);
 }
 
 // The turbine sample's wind analysis keeps the check on in its project file:

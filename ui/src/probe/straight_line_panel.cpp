@@ -1,6 +1,7 @@
 #include "probe/straight_line_panel.hpp"
 
 #include <QCheckBox>
+#include <QDoubleSpinBox>
 #include <QEvent>
 #include <QHBoxLayout>
 #include <QLabel>
@@ -8,6 +9,7 @@
 #include <QSpinBox>
 #include <QVBoxLayout>
 #include <cmath>
+#include <limits>
 
 #include "common/figure_caption.hpp"
 #include "common/number_text.hpp"
@@ -32,6 +34,7 @@ StraightLinePanel::StraightLinePanel(QWidget* parent)
       binned_(new QCheckBox(tr("Binned estimates"), this)),
       bins_(new QSpinBox(this)),
       smooth_(new QCheckBox(tr("Smooth curve"), this)),
+      bandwidth_(new QDoubleSpinBox(this)),
       intro_(new QLabel(this)),
       body_(new QLabel(this)) {
     setObjectName(QStringLiteral("straight-line-panel"));
@@ -60,7 +63,20 @@ StraightLinePanel::StraightLinePanel(QWidget* parent)
     smooth_->setToolTip(
         tr("A kernel estimate of the effect along the moderator: local straight lines weighted by "
            "distance, the bandwidth chosen by cross-validation, a bootstrap band. Takes a few seconds."));
-    layout->addWidget(smooth_);
+    auto* smoothRow = new QHBoxLayout;
+    smoothRow->addWidget(smooth_);
+    bandwidth_->setObjectName(QStringLiteral("bandwidth-box"));
+    bandwidth_->setRange(0, 1e9);
+    bandwidth_->setDecimals(4);
+    bandwidth_->setPrefix(tr("bandwidth "));
+    bandwidth_->setSpecialValueText(tr("bandwidth by cross-validation"));
+    bandwidth_->setKeyboardTracking(false);  // one step per value the user settles on
+    bandwidth_->setToolTip(
+        tr("In the moderator's units: how far the local lines reach (Gaussian weights). "
+           "0: chosen by 5-fold cross-validation."));
+    smoothRow->addWidget(bandwidth_);
+    smoothRow->addStretch(1);
+    layout->addLayout(smoothRow);
     body_->setObjectName(QStringLiteral("straight-line-text"));
     body_->setWordWrap(true);
     body_->setTextFormat(Qt::RichText);
@@ -69,6 +85,8 @@ StraightLinePanel::StraightLinePanel(QWidget* parent)
     connect(binned_, &QCheckBox::toggled, this, &StraightLinePanel::binnedToggled);
     connect(smooth_, &QCheckBox::toggled, this, &StraightLinePanel::smoothToggled);
     connect(bins_, &QSpinBox::valueChanged, this, &StraightLinePanel::binsChanged);
+    connect(bandwidth_, &QDoubleSpinBox::valueChanged, this,
+            [this](double h) { Q_EMIT bandwidthChanged(h > 0 ? h : std::numeric_limits<double>::quiet_NaN()); });
 }
 
 void StraightLinePanel::changeEvent(QEvent* event) {
@@ -78,12 +96,14 @@ void StraightLinePanel::changeEvent(QEvent* event) {
 
 void StraightLinePanel::setAnalysis(const Analysis& a, const AnalysisRun* run, bool probabilityShown) {
     {
-        const QSignalBlocker b1(binned_), b2(bins_), b3(smooth_);
+        const QSignalBlocker b1(binned_), b2(bins_), b3(smooth_), b4(bandwidth_);
         binned_->setChecked(a.probe.show_binned);
         bins_->setValue(a.probe.bins);
         smooth_->setChecked(a.probe.show_smooth);
+        bandwidth_->setValue(std::isnan(a.probe.smooth_bandwidth) ? 0.0 : a.probe.smooth_bandwidth);
     }
     bins_->setEnabled(a.probe.show_binned);
+    bandwidth_->setEnabled(a.probe.show_smooth);
     html_.clear();
     plain_.clear();
     if (run) fill(a, *run, probabilityShown);
@@ -141,7 +161,7 @@ void StraightLinePanel::addSmooth(const SmoothEffects& s) {
     const QString how =
         s.method == BandwidthMethod::CrossValidation
             ? tr("chosen by %1-fold cross-validation over %2 candidates").arg(s.folds).arg(s.scores.size())
-            : tr("as set in the project");
+            : tr("as given");
     line(tr("Bandwidth %1 (in units of %2), %3").arg(numberText(s.bandwidth), q(s.moderator), how));
     if (s.replicates > 0)
         line(tr("Band: %1 percentile intervals from %2 bootstrap replicates (seed %3)")

@@ -1,5 +1,6 @@
 // The straight-line check in the Probe section's side panel: two switches
-// (the binned estimates with their number of bins, and the smooth curve)
+// (the binned estimates with their number of bins, and the smooth curve
+// with its bandwidth)
 // and what the check found: the test of the straight line with its
 // sentence, the bins, the smooth curve's bandwidth and how it was chosen,
 // where the data are thin (with the rule in words) and the cautions. The
@@ -13,6 +14,7 @@
 #include "moderato/project/analysis_run.hpp"
 
 class QCheckBox;
+class QDoubleSpinBox;
 class QLabel;
 class QSpinBox;
 
@@ -31,6 +33,8 @@ public:
     QCheckBox* binnedToggle() const { return binned_; }
     QSpinBox* binsBox() const { return bins_; }
     QCheckBox* smoothToggle() const { return smooth_; }
+    // The smooth curve's bandwidth; 0 shows "by cross-validation".
+    QDoubleSpinBox* bandwidthBox() const { return bandwidth_; }
     // What the panel says, as plain text (one line a row).
     QString text() const { return plain_.join(QLatin1Char('\n')); }
 
@@ -38,6 +42,8 @@ Q_SIGNALS:
     void binnedToggled(bool on);
     void binsChanged(int bins);
     void smoothToggled(bool on);
+    // NaN: choose it by cross-validation.
+    void bandwidthChanged(double bandwidth);
 
 protected:
     void changeEvent(QEvent* event) override;
@@ -55,6 +61,7 @@ private:
     QCheckBox* binned_;
     QSpinBox* bins_;
     QCheckBox* smooth_;
+    QDoubleSpinBox* bandwidth_;
     QLabel* intro_;
     QLabel* body_;
     QStringList html_, plain_;

@@ -344,6 +344,14 @@ void ProbeSection::connectStraightLine() {
         editSettings([on](ProbeSettings& p) { p.show_smooth = on; },
                      on ? tr("Show the smooth curve") : tr("Hide the smooth curve"));
     });
+    connect(straight_, &StraightLinePanel::bandwidthChanged, this, [this](double h) {
+        const Analysis* a = doc_->analysis(id_);
+        const double old = a ? a->probe.smooth_bandwidth : h;
+        if (!a || old == h || (std::isnan(old) && std::isnan(h))) return;
+        editSettings(
+            [h](ProbeSettings& p) { p.smooth_bandwidth = h; },
+            std::isnan(h) ? tr("Choose the bandwidth by cross-validation") : tr("Use bandwidth %1").arg(numberText(h)));
+    });
 }
 
 QSlider* ProbeSection::slider() const { return slider_->slider(); }
