@@ -10,6 +10,7 @@
 
 #include <qcustomplot.h>
 
+#include <QAction>
 #include <QCheckBox>
 #include <QClipboard>
 #include <QComboBox>
@@ -40,6 +41,8 @@
 #include "moderato/project/project_loader.hpp"
 #include "plots/figure_source.hpp"
 #include "plots/plot_style.hpp"
+#include "probe_window.hpp"
+#include "qstring_print.hpp"
 #include "qt_file_bytes.hpp"
 #include "sample_window.hpp"
 #include "shell/analysis_page.hpp"
@@ -550,6 +553,56 @@ TEST(FigureExportDialog, SettingsAreStoredInTheAnalysisAsOneUndoableEdit) {
     // Exporting again with the same settings adds no step.
     ASSERT_TRUE(again.exportTo(dir.filePath(QStringLiteral("again.png"))));
     EXPECT_EQ(doc.undoStack()->count(), steps + 1);
+}
+
+// Each plot has its own caption: the box follows the figure choice (by
+// keyboard) until the user edits it, and then keeps the user's words.
+TEST(FigureExportDialog, CaptionFollowsTheChosenFigureUntilEdited) {
+    TestFigure lines(QStringLiteral("Lines plot"), FigurePlot::Lines);
+    TestFigure effect(QStringLiteral("Effect plot"), FigurePlot::Effect);
+    FigureExportDialog dialog({&lines, &effect}, nullptr, QString(), QStringLiteral("general"));
+    dialog.setFigureCaptions({QStringLiteral("lines caption"), QStringLiteral("effect caption")});
+    dialog.show();
+    auto* figure = dialog.findChild<QComboBox*>(QStringLiteral("figure-choice"));
+    auto* text = dialog.findChild<QLineEdit*>(QStringLiteral("figure-caption-text"));
+    ASSERT_TRUE(figure && text);
+    EXPECT_EQ(dialog.captionText(), QStringLiteral("lines caption"));
+    QTest::keyClick(figure, Qt::Key_Down);
+    EXPECT_EQ(dialog.captionText(), QStringLiteral("effect caption"));
+    text->setFocus();
+    text->selectAll();
+    QTest::keyClicks(text, QStringLiteral("my words"));
+    QTest::keyClick(figure, Qt::Key_Up);
+    EXPECT_EQ(dialog.currentSource(), &lines);
+    EXPECT_EQ(dialog.captionText(), QStringLiteral("my words"));
+}
+
+// Opened from the workbench on the turbine sample's wind analysis, the
+// Effect plot's caption names the straight-line check saved in the project.
+TEST(FigureExportDialog, EffectPlotCaptionNamesTheStraightLineCheck) {
+    test::SampleWindow win(test::sampleProject(QStringLiteral("turbine-repairs")));
+    win.w.showAnalysis(QStringLiteral("experience-wind"));
+    win.id = QStringLiteral("experience-wind");
+    ASSERT_TRUE(win.waitForRun());
+    win.showSection(AnalysisPage::Probe);
+    QAction* exportAction = nullptr;
+    for (QAction* action : win.w.findChildren<QAction*>())
+        if (action->text() == QStringLiteral("&Export Figure…")) exportAction = action;
+    ASSERT_NE(exportAction, nullptr);
+    exportAction->trigger();
+    for (int i = 0; i < 5; ++i) QCoreApplication::processEvents();
+    auto* dialog = win.w.findChild<FigureExportDialog*>();
+    ASSERT_NE(dialog, nullptr);
+    auto* figure = dialog->findChild<QComboBox*>(QStringLiteral("figure-choice"));
+    ASSERT_NE(figure, nullptr);
+    for (int i = 0; i < figure->count(); ++i)
+        if (figure->itemText(i).startsWith(QStringLiteral("Effect"))) figure->setCurrentIndex(i);
+    EXPECT_TRUE(dialog->captionText().contains(QStringLiteral("straight-line check: binned estimates (3 bins)")))
+        << dialog->captionText();
+    for (int i = 0; i < figure->count(); ++i)
+        if (figure->itemText(i).startsWith(QStringLiteral("Lines"))) figure->setCurrentIndex(i);
+    EXPECT_FALSE(dialog->captionText().contains(QStringLiteral("straight-line"))) << dialog->captionText();
+    dialog->close();
 }
 
 TEST(FigureExportDialog, KeepInProjectAddsAFigureEntryThatCanBeUndone) {

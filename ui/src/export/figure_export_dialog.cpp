@@ -75,8 +75,15 @@ FigureExportDialog::FigureExportDialog(const QList<FigureSource*>& sources, Proj
     if (const auto last = lastPlots().constFind(key); last != lastPlots().constEnd())
         for (int i = 0; i < sources_.size(); ++i)
             if (sources_[i]->figureKind() == *last) figure_->setCurrentIndex(i);
-    connect(figure_, &QComboBox::currentIndexChanged, this, [this, key] {
+    connect(figure_, &QComboBox::currentIndexChanged, this, [this, key](int index) {
         if (FigureSource* s = currentSource()) lastPlots().insert(key, s->figureKind());
+        // The caption follows the figure while it is the previous figure's own.
+        if (index >= 0 && index < captions_.size() && captionFigure_ >= 0 &&
+            captionText_->text() == captions_[captionFigure_]) {
+            captionText_->setText(captions_[index]);
+            captionText_->setCursorPosition(0);
+            captionFigure_ = index;
+        }
     });
     updatePreview();
 }
@@ -286,6 +293,15 @@ FigureSettings FigureExportDialog::settings() const {
 }
 
 FigureFormat FigureExportDialog::format() const { return static_cast<FigureFormat>(format_->currentData().toInt()); }
+
+void FigureExportDialog::setFigureCaptions(const QStringList& captions) {
+    if (captions.size() != sources_.size()) return;
+    captions_ = captions;
+    captionFigure_ = figure_->currentIndex();
+    if (captionFigure_ < 0) return;
+    captionText_->setText(captions_[captionFigure_]);
+    captionText_->setCursorPosition(0);
+}
 
 FigureSource* FigureExportDialog::currentSource() const {
     const int i = figure_->currentIndex();

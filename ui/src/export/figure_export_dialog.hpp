@@ -9,6 +9,7 @@
 
 #include <QDialog>
 #include <QList>
+#include <QStringList>
 
 #include "export/figure_exporter.hpp"
 #include "moderato/project/project.hpp"
@@ -38,6 +39,10 @@ public:
     // Several figures (a section with more than one plot): a combo picks one.
     FigureExportDialog(const QList<FigureSource*>& sources, ProjectDocument* doc, const QString& analysisId,
                        const QString& caption, QWidget* parent = nullptr);
+
+    // One caption per figure, in the figures' order: the caption box shows
+    // the chosen figure's and follows the figure choice until the user edits it.
+    void setFigureCaptions(const QStringList& captions);
 
     // What the dialog shows now.
     FigureSettings settings() const;
@@ -93,6 +98,8 @@ private:
     ProjectDocument* doc_;
     QString analysisId_;
     QString caption_;
+    QStringList captions_;    // per figure; empty: caption_ for all
+    int captionFigure_ = -1;  // the figure whose caption the box shows
     QString lastSavedPath_;
 
     QComboBox* figure_ = nullptr;

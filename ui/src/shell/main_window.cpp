@@ -607,6 +607,11 @@ void MainWindow::exportFigure() {
     const Analysis* a = doc_->analysis(id);
     const QString caption = a && run ? figureCaption(*a, *run) : QString();
     auto* dialog = new FigureExportDialog(figures, doc_, id, caption, this);
+    if (a && run) {  // each plot's own caption (the Effect plot's names the straight-line check)
+        QStringList captions;
+        for (FigureSource* f : figures) captions << figureCaption(*a, *run, f->figureKind());
+        dialog->setFigureCaptions(captions);
+    }
     dialog->setAttribute(Qt::WA_DeleteOnClose);
     // Each save says where the file went (the dialog stays open).
     connect(dialog, &FigureExportDialog::figureSaved, this, [this](const QString& path) {
