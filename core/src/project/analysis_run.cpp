@@ -58,7 +58,7 @@ ProbeKind probe_kind(const Table& t, const Analysis& a) {
 }
 
 void probe_analysis(AnalysisRun& run, const Analysis& a, const RunProgress& progress) {
-    std::optional<SmoothEffects> previous_smooth = std::move(run.smooth);
+    PreviousCheck previous{std::move(run.binned), std::move(run.smooth)};
     run.binned.reset();
     run.smooth.reset();
     run.support.reset();
@@ -89,7 +89,7 @@ void probe_analysis(AnalysisRun& run, const Analysis& a, const RunProgress& prog
             if (run.kind == ProbeKind::Continuous && a.roles.second_moderator.empty())
                 run.surface = surface_grid(run.design, run.fit, a.roles.focal, a.roles.moderator);
             run.cautions = run.probe->cautions;
-            if (run.kind == ProbeKind::Continuous) check_straight_line(run, a, std::move(previous_smooth), progress);
+            if (run.kind == ProbeKind::Continuous) check_straight_line(run, a, std::move(previous), progress);
             break;
         }
     }

@@ -29,7 +29,12 @@ void add_support(AnalysisRun& run, const Analysis& a) {
     }
 }
 
-void add_binned(AnalysisRun& run, const Analysis& a) {
+void add_binned(AnalysisRun& run, const Analysis& a, std::optional<BinnedEffects> previous) {
+    if (previous && static_cast<int>(previous->bins.size()) == a.probe.bins && previous->focal == a.roles.focal &&
+        previous->moderator == a.roles.moderator) {
+        run.binned = std::move(previous);
+        return;
+    }
     try {
         run.binned = binned_effects(run.design, run.fit, run.spec, a.roles.focal, a.roles.moderator, a.probe.bins);
     } catch (const InputError& e) {
@@ -66,8 +71,7 @@ bool smooth_matches(const SmoothEffects& s, const Analysis& a) {
            s.focal == a.roles.focal && s.moderator == a.roles.moderator;
 }
 
-void check_straight_line(AnalysisRun& run, const Analysis& a, std::optional<SmoothEffects> previous,
-                         const RunProgress& progress) {
+void check_straight_line(AnalysisRun& run, const Analysis& a, PreviousCheck previous, const RunProgress& progress) {
     const Column* focal = run.table ? run.table->find(a.roles.focal) : nullptr;
     if (focal && focal->kind == ColumnKind::Numeric) add_support(run, a);
     if (!a.probe.show_binned && !a.probe.show_smooth) return;
@@ -75,8 +79,8 @@ void check_straight_line(AnalysisRun& run, const Analysis& a, std::optional<Smoo
         run.straight_line_notes.push_back(why);
         return;
     }
-    if (a.probe.show_binned) add_binned(run, a);
-    if (a.probe.show_smooth) add_smooth(run, a, std::move(previous), progress);
+    if (a.probe.show_binned) add_binned(run, a, std::move(previous.binned));
+    if (a.probe.show_smooth) add_smooth(run, a, std::move(previous.smooth), progress);
 }
 
 }  // namespace moderato

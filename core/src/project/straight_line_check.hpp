@@ -9,10 +9,17 @@
 
 namespace moderato {
 
+// What a run held before re-probing: kept when computed for the same
+// settings (both depend on the model and their own settings only, so a new
+// pin or scale does not refit them).
+struct PreviousCheck {
+    std::optional<BinnedEffects> binned;
+    std::optional<SmoothEffects> smooth;
+};
+
 // Fills run.support, run.binned, run.smooth and run.straight_line_notes for a
-// Continuous probe. `previous` (the run's smooth curve before re-probing) is
-// kept when it was computed for the same smooth settings.
-void check_straight_line(AnalysisRun& run, const Analysis& analysis, std::optional<SmoothEffects> previous,
+// Continuous probe, reusing `previous` where it matches.
+void check_straight_line(AnalysisRun& run, const Analysis& analysis, PreviousCheck previous,
                          const RunProgress& progress);
 
 // Whether `smooth` was computed for the analysis's smooth settings (bandwidth

@@ -70,8 +70,8 @@ AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& ana
 
 // Recomputes only the probing part of a run (pinned values, held second
 // moderator, scale, the straight-line check) on its cached design and fit.
-// A smooth curve already in `run` for the same smooth settings is kept (it
-// depends on the model and those settings only).
+// Binned estimates and a smooth curve already in `run` for the same settings
+// are kept (they depend on the model and their own settings only).
 void probe_analysis(AnalysisRun& run, const Analysis& analysis, const RunProgress& progress = {});
 
 // Whether probing `run` again for `analysis` computes a smooth curve anew
