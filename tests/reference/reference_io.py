@@ -69,18 +69,26 @@ def write_csv_roundtrip(df, path):
     return back
 
 
-def write_case(out_dir, case, made, fit, *, source, command, base_seed, script, check=None):
+def write_case(out_dir, case, made, fit, *, source, command, base_seed, script, check=None,
+               data_name=None):
     """Writes CASE.csv (the data, read back bit for bit) and CASE.json (how the
     data were made, the spec and what `fit` computed on the data as read
     back); `check(doc, case)` runs before the JSON is written. Returns the
-    fitted body."""
+    fitted body. `data_name` names the CSV instead of CASE.csv when cases
+    share one data file. A `desc` that is a dict describes a shipped dataset
+    and is stored as the "dataset" block (keys starting with "_" left out);
+    a text `desc` says how the data were generated."""
     df, desc, spec = made
-    back = write_csv_roundtrip(df, os.path.join(out_dir, f"{case}.csv"))
+    data_name = data_name or f"{case}.csv"
+    back = write_csv_roundtrip(df, os.path.join(out_dir, data_name))
     body = fit(back, spec)
-    doc = {"case": case, "source": source, "command": command, "data": f"{case}.csv",
-           "dataset": {"generated": desc, "generator": (
-               f"numpy.random.Generator(PCG64(SeedSequence([{base_seed}, case number]))) in {script}")},
-           "spec": spec}
+    if isinstance(desc, dict):
+        dataset = {k: v for k, v in desc.items() if not k.startswith("_")}
+    else:
+        dataset = {"generated": desc, "generator": (
+            f"numpy.random.Generator(PCG64(SeedSequence([{base_seed}, case number]))) in {script}")}
+    doc = {"case": case, "source": source, "command": command, "data": data_name,
+           "dataset": dataset, "spec": spec}
     doc.update(body)
     if check:
         check(doc, case)

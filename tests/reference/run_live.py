@@ -16,7 +16,8 @@ SCRIPTS = {"make_statsmodels_reference.py": None, "make_logit_effects_reference.
            "make_cells_reference.py": None, "make_power_reference.py": "power_reference.json",
            "make_ui_estimates_reference.py": None, "make_diagnostics_reference.py": None,
            "make_prediction_reference.py": None, "make_contrasts_reference.py": None,
-           "make_mixed_reference.py": None, "make_linearity_reference.py": None}
+           "make_mixed_reference.py": None, "make_linearity_reference.py": None,
+           "make_count_reference.py": None}
 
 
 def main():
