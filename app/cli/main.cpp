@@ -22,14 +22,20 @@ Usage:
   moderato-cli render PROJECT --out DIR [--accept-changed-data]
   moderato-cli --help | --version
 
-fit: estimates a linear or logistic model with product (interaction) terms.
+fit: estimates a linear, logistic, probit, Poisson or negative binomial model with
+product (interaction) terms.
   --data FILE              CSV/TSV file (delimiter sniffed)
   --outcome COL            the column to explain
   --predictors A,B,...     main-effect columns (categorical columns are dummy-coded)
   --interaction A,B[,C]    product term; repeatable; lower-order terms are added
   --poly COL=DEGREE        COL, COL^2, ..., COL^DEGREE
   --no-intercept           fit without an intercept
-  --family linear|logistic (default linear)
+  --family linear|logistic|probit|poisson|negative-binomial   (default linear)
+                           logistic, probit: a 0/1 outcome; poisson, negative-binomial: a count
+                           (modelled on the log scale; negative-binomial also estimates the
+                           dispersion alpha)
+  --exposure COL           count models: each row's exposure (time, area, people); the model
+                           is for the rate per unit of COL (offset log COL)
   --se classical|hc0|hc1|hc2|hc3|hc4|cluster   (default classical)
   --cluster COL            cluster-robust standard errors (CR1) by COL
   --weights COL            weighted least squares (positive weights)
@@ -61,8 +67,9 @@ region of significance (Johnson–Neyman), the simultaneous band and crossover p
   --moderator-percentiles 10,50,90   the moderator values at these percentiles of the data
   --second-moderator W[=VALUE]   hold a second moderator at VALUE (default its mean)
   --focal-at VALUE         where a squared focal predictor's effect is taken (default its mean)
-  --scale model|outcome    model: the scale the coefficients live on (log-odds for a logistic model;
-                           the default); outcome: the outcome's own scale (probability)
+  --scale model|outcome    model: the scale the coefficients live on (log-odds, probit, log count;
+                           the default); outcome: the outcome's own scale (probability, expected
+                           count, or rate per unit of the exposure)
   --average sample|values  outcome scale: average over the rows (default) or at the means
   --adjust holm|bonferroni|none   categorical moderator: how the p-values of the pairwise
                            differences between its levels are adjusted (default holm)

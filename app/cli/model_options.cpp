@@ -55,11 +55,11 @@ std::set<std::string> model_flags() {
 }
 std::set<std::string> model_valued() {
     auto s = import_valued();
-    for (const char* o : {"outcome", "predictors",    "interaction",   "poly",       "family",
-                          "se",      "cluster",       "weights",       "level",      "reference",
-                          "centre",  "standardise",   "log",           "log1p",      "test",
-                          "format",  "groups",        "random-slopes", "estimation", "random-covariance",
-                          "df",      "centre-within", "group-means"})
+    for (const char* o :
+         {"outcome", "predictors",    "interaction", "poly",     "family",        "se",          "cluster",
+          "weights", "level",         "reference",   "exposure", "centre",        "standardise", "log",
+          "log1p",   "test",          "format",      "groups",   "random-slopes", "estimation",  "random-covariance",
+          "df",      "centre-within", "group-means"})
         s.insert(o);
     return s;
 }
@@ -166,9 +166,10 @@ void read_terms(const Arguments& args, ModelSpec& s) {
     s.intercept = !args.has("no-intercept");
 }
 
-// --family, --cluster, --weights, --se, --level.
+// --family, --exposure, --cluster, --weights, --se, --level.
 void read_estimation(const Arguments& args, ModelSpec& s) {
     if (auto f = args.get("family")) s.family = parse_family(*f);
+    if (auto e = args.get("exposure")) s.exposure = *e;
     if (auto c = args.get("cluster")) s.cluster = *c;
     if (auto w = args.get("weights")) s.weights = *w;
     if (auto se_text = args.get("se")) {

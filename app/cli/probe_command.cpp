@@ -133,10 +133,10 @@ void read_scale(const Arguments& a, Family family, ProbeRequest& req) {
         throw InputError("option --average must be sample or values, got '" + average + "'");
     req.scale = scale == "outcome" ? ProbeScale::Outcome : ProbeScale::Model;
     req.averaging = average == "values" ? Averaging::AtValues : Averaging::Sample;
-    if (req.scale == ProbeScale::Outcome && family != Family::Logistic)
+    if (req.scale == ProbeScale::Outcome && !generalized(family))
         throw InputError(
-            "--scale outcome applies to logistic models (--family logistic); a linear model's effects "
-            "are already on the outcome's scale");
+            "--scale outcome applies to logistic, probit, poisson and negative-binomial models; a linear model's "
+            "effects are already on the outcome's scale");
 }
 
 // --adjust holm|bonferroni|none: for the pairwise differences between the

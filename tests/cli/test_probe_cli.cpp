@@ -98,8 +98,8 @@ TEST(ProbeCli, RefusalsAreExplained) {
          "categorical, and its effects are given at every level"},
         {{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,loyalty_member",
           "--focal", "discount_pct", "--moderator", "loyalty_member", "--scale", "outcome"},
-         "moderato-cli: --scale outcome applies to logistic models (--family logistic); a linear model's effects "
-         "are already on the outcome's scale"},
+         "moderato-cli: --scale outcome applies to logistic, probit, poisson and negative-binomial models; a linear "
+         "model's effects are already on the outcome's scale"},
         {{"probe", "--data", kData, "--outcome", "weekly_spend", "--interaction", "discount_pct,shop", "--focal",
           "discount_pct", "--moderator", "shop", "--adjust", "Holm"},
          "moderato-cli: option --adjust must be holm, bonferroni or none, got 'Holm'"},

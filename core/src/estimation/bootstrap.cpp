@@ -100,6 +100,10 @@ public:
             r.weights.resize(n);
             for (Eigen::Index i = 0; i < n; ++i) r.weights[i] = d.weights[s.rows[static_cast<std::size_t>(i)]];
         }
+        if (d.offset.size()) {
+            r.offset.resize(n);
+            for (Eigen::Index i = 0; i < n; ++i) r.offset[i] = d.offset[s.rows[static_cast<std::size_t>(i)]];
+        }
         r.cluster = s.cluster;
         r.n_clusters = static_cast<int>(s.cluster_names.size());
         r.cluster_names = s.cluster_names;
@@ -177,9 +181,9 @@ public:
     // Why the fit cannot be used, or empty.
     std::string fit_problem(const FitResult& f) const {
         if (!f.aliased.empty()) return "rank deficient (aliased terms)";
-        if (spec_.family == Family::Logistic) {
-            if (f.separation) return "separation in the logistic fit";
-            if (!f.converged) return "logistic fit did not converge";
+        if (generalized(spec_.family)) {
+            if (f.separation) return std::string("separation in the ") + to_string(spec_.family) + " fit";
+            if (!f.converged) return std::string(to_string(spec_.family)) + " fit did not converge";
         }
         return {};
     }
@@ -198,7 +202,7 @@ private:
             if (constant && (r.intercept || col[0] == 0.0))
                 return "constant column in the resample (" + quoted(c.label) + ")";
         }
-        if (spec_.family == Family::Logistic && (r.y.array() == r.y[0]).all())
+        if (generalized(spec_.family) && (r.y.array() == r.y[0]).all())
             return "outcome takes one value in the resample";
         return {};
     }

@@ -79,4 +79,42 @@ Eigen::MatrixXd sandwich(const Eigen::MatrixXd& X, const std::vector<int>& kept,
     return (cov + cov.transpose()) * 0.5;
 }
 
+Eigen::MatrixXd sandwich_with_extra(const Eigen::MatrixXd& X, const std::vector<int>& kept,
+                                    const Eigen::MatrixXd& bread, const Eigen::VectorXd& score,
+                                    const Eigen::VectorXd& extra_score, SeKind kind, const std::vector<int>& cluster,
+                                    int n_clusters, unsigned threads) {
+    const Eigen::Index n = X.rows(), k = static_cast<Eigen::Index>(kept.size()), m = k + 1;
+    const std::size_t blocks = static_cast<std::size_t>((n + kBlockRows - 1) / kBlockRows);
+    const bool clustered = kind == SeKind::Cluster;
+    Eigen::MatrixXd U = Eigen::MatrixXd::Zero(clustered ? n_clusters : 0, m);  // per-cluster score sums
+    Eigen::MatrixXd meat = Eigen::MatrixXd::Zero(m, m);
+    map_reduce_ordered<Eigen::MatrixXd>(
+        blocks, threads,
+        [&](std::size_t b) {
+            const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlockRows, r1 = std::min(n, r0 + kBlockRows);
+            Eigen::MatrixXd S(r1 - r0, m);  // the rows' scores
+            for (Eigen::Index c = 0; c < k; ++c)
+                S.col(c) = X.col(kept[static_cast<std::size_t>(c)])
+                               .segment(r0, r1 - r0)
+                               .cwiseProduct(score.segment(r0, r1 - r0));
+            S.col(k) = extra_score.segment(r0, r1 - r0);
+            return S;
+        },
+        [&](std::size_t b, Eigen::MatrixXd&& S) {
+            const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlockRows;
+            if (!clustered) meat.selfadjointView<Eigen::Lower>().rankUpdate(S.transpose());
+            else
+                for (Eigen::Index i = 0; i < S.rows(); ++i)
+                    U.row(cluster[static_cast<std::size_t>(r0 + i)]) += S.row(i);
+        });
+    if (clustered) meat.selfadjointView<Eigen::Lower>().rankUpdate(U.transpose());
+    const double nd = static_cast<double>(n), md = static_cast<double>(m), G = n_clusters;
+    const double factor = kind == SeKind::Cluster ? G / (G - 1.0) * (nd - 1.0) / (nd - md)
+                          : kind == SeKind::HC1   ? nd / (nd - md)
+                                                  : 1.0;
+    const Eigen::MatrixXd full = meat.selfadjointView<Eigen::Lower>();
+    Eigen::MatrixXd cov = bread * full * bread.transpose() * factor;
+    return (cov + cov.transpose()) * 0.5;
+}
+
 }  // namespace moderato::detail

@@ -17,4 +17,13 @@ Eigen::MatrixXd sandwich(const Eigen::MatrixXd& X, const std::vector<int>& kept,
                          const Eigen::VectorXd& score, const Eigen::VectorXd& leverage_weight, SeKind kind,
                          const std::vector<int>& cluster, int n_clusters, unsigned threads);
 
+// The same for a model with one parameter beyond the columns (the negative
+// binomial's alpha): `bread` is the (k+1) x (k+1) inverse negative Hessian of
+// (beta_K, extra), row i's score is (score[i] x_iK, extra_score[i]). Kinds
+// HC0, HC1 and Cluster; the small-sample factors count k+1 parameters.
+Eigen::MatrixXd sandwich_with_extra(const Eigen::MatrixXd& X, const std::vector<int>& kept,
+                                    const Eigen::MatrixXd& bread, const Eigen::VectorXd& score,
+                                    const Eigen::VectorXd& extra_score, SeKind kind, const std::vector<int>& cluster,
+                                    int n_clusters, unsigned threads);
+
 }  // namespace moderato::detail

@@ -1,5 +1,7 @@
 #include "moderato/estimation/design.hpp"
 
+#include "estimation/outcome_checks.hpp"
+
 #include <algorithm>
 #include <charconv>
 #include <cmath>
@@ -243,12 +245,6 @@ bool mostly_numbers(const Column& c) {
     return numeric * 2 > c.levels.size() && c.levels.size() > 2;
 }
 
-std::string where(const Table& table, std::size_t row) {
-    std::string s = table.row_location(row);
-    if (!table.source.empty()) s += " of " + table.source;
-    return s;
-}
-
 }  // namespace
 
 std::vector<std::string> sorted_levels(const Column& column) {
@@ -349,6 +345,8 @@ std::vector<std::string> used_columns(const Table& table, const ModelSpec& spec,
                 not_numeric(table, "weights", weights, "choose a numeric weights column or fix that cell"));
         use(spec.weights);
     }
+    detail::check_exposure_column(table, spec);
+    if (!spec.exposure.empty()) use(spec.exposure);
     if (spec.se == SeKind::Cluster && spec.cluster.empty())
         throw InputError("cluster-robust standard errors need a cluster column; name one with --cluster");
     if (!spec.cluster.empty()) {
@@ -552,26 +550,22 @@ void fill_matrix(const Table& table, const LevelMap& cat_map, Design& d) {
     }
 }
 
-// The outcome over the used rows (0 or 1 for a logistic model) and the weights (positive).
+// The outcome over the used rows (checked for the family), the offset and the
+// weights (positive).
 void fill_outcome_and_weights(const Table& table, const ModelSpec& spec, const Column& outcome, Design& d) {
     const std::vector<std::size_t>& rows = d.rows;
     const std::size_t n = rows.size();
     d.y.resize(static_cast<Eigen::Index>(n));
     for (std::size_t i = 0; i < n; ++i) d.y[static_cast<Eigen::Index>(i)] = outcome.numbers[rows[i]];
-    if (spec.family == Family::Logistic)
-        for (std::size_t i = 0; i < n; ++i) {
-            const double v = d.y[static_cast<Eigen::Index>(i)];
-            if (v != 0.0 && v != 1.0)
-                throw InputError("logistic outcome " + quoted(spec.outcome) +
-                                 " must be 0 or 1: " + where(table, rows[i]) + " holds " + exact_text(v));
-        }
+    detail::check_outcome(table, spec, d);
+    detail::fill_offset(table, spec, d);
     if (spec.weights.empty()) return;
     const Column& weights = table.at(spec.weights);
     d.weights.resize(static_cast<Eigen::Index>(n));
     for (std::size_t i = 0; i < n; ++i) {
         const double w = weights.numbers[rows[i]];
         if (!(w > 0))
-            throw InputError("weights " + quoted(spec.weights) + " must be positive: " + where(table, rows[i]) +
+            throw InputError("weights " + quoted(spec.weights) + " must be positive: " + table.row_place(rows[i]) +
                              " holds " + exact_text(w) + "; fix that row or choose another weights column");
         d.weights[static_cast<Eigen::Index>(i)] = w;
     }

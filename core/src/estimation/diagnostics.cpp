@@ -1,5 +1,7 @@
 #include "moderato/estimation/diagnostics.hpp"
 
+#include "estimation/glm_family.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <limits>
@@ -41,19 +43,39 @@ Eigen::MatrixXd estimable_columns(const Design& design, const FitResult& fit, st
     return XK;
 }
 
+// The variance function V(mu) and the working weight (dmu/deta)^2 / V(mu)
+// of a generalized family at the mean mu (alpha: the negative binomial's).
+std::pair<double, double> variance_and_weight(Family f, double mu, double alpha) {
+    switch (f) {
+        case Family::Logistic:
+            return {mu * (1 - mu), mu * (1 - mu)};
+        case Family::Probit: {
+            const double phi = detail::normal_density(dist::normal_quantile(mu)), var = mu * (1 - mu);
+            return {var, phi * phi / var};
+        }
+        case Family::Poisson:
+            return {mu, mu};
+        case Family::NegativeBinomial:
+            return {mu + alpha * mu * mu, mu / (1 + alpha * mu)};
+        case Family::Linear:
+            break;
+    }
+    return {1, 1};
+}
+
 // Working weights v_i (returned) and Pearson residuals (into d).
 Eigen::VectorXd working_weights(const Design& design, const FitResult& fit, Diagnostics& d) {
     const Eigen::Index n = design.X.rows();
-    const bool logistic = fit.family == Family::Logistic;
+    const bool glm = generalized(fit.family);
+    const double alpha = fit.dispersion ? fit.dispersion->alpha : 0.0;
     Eigen::VectorXd v(n);
     d.pearson.resize(n);
     for (Eigen::Index i = 0; i < n; ++i) {
         const double w = weight(design, i);
-        if (logistic) {
-            const double mu = fit.fitted[i];
-            const double var = mu * (1 - mu);
-            v[i] = w * var;
-            d.pearson[i] = std::sqrt(w) * (design.y[i] - mu) / std::sqrt(var);
+        if (glm) {
+            const auto [var, working] = variance_and_weight(fit.family, fit.fitted[i], alpha);
+            v[i] = w * working;
+            d.pearson[i] = std::sqrt(w) * (design.y[i] - fit.fitted[i]) / std::sqrt(var);
         } else {
             v[i] = w;
             d.pearson[i] = std::sqrt(w) * fit.residuals[i];
@@ -84,7 +106,7 @@ void standardised_residuals(Diagnostics& d) {
     const Eigen::Index n = d.pearson.size();
     const double pd = static_cast<double>(d.p);
     const double df = static_cast<double>(n) - pd;
-    if (d.family == Family::Logistic) {
+    if (generalized(d.family)) {
         d.scale = 1.0;
     } else {
         long double ss = 0;
@@ -105,14 +127,23 @@ void standardised_residuals(Diagnostics& d) {
     }
 }
 
-// Logistic: deviance residuals and their standardised form.
+// A row's unit deviance: twice its log-likelihood ratio against the
+// saturated model (the negative binomial's at the fitted alpha).
+double unit_deviance(const FitResult& fit, double y, double mu) {
+    if (binary_outcome(fit.family)) return 2.0 * (ylogy(y, mu) + ylogy(1 - y, 1 - mu));
+    if (fit.family == Family::Poisson) return 2.0 * (ylogy(y, mu) - (y - mu));
+    const double r = 1 / fit.dispersion->alpha;
+    return 2.0 * (ylogy(y, mu) - (y + r) * std::log((y + r) / (mu + r)));
+}
+
+// Generalized families: deviance residuals and their standardised form.
 void deviance_residuals(const Design& design, const FitResult& fit, Diagnostics& d) {
     const Eigen::Index n = design.X.rows();
     d.deviance.resize(n);
     d.standardised_deviance.resize(n);
     for (Eigen::Index i = 0; i < n; ++i) {
         const double y = design.y[i], mu = fit.fitted[i];
-        const double unit = 2.0 * (ylogy(y, mu) + ylogy(1 - y, 1 - mu));
+        const double unit = unit_deviance(fit, y, mu);
         const double sign = y > mu ? 1.0 : (y < mu ? -1.0 : 0.0);
         d.deviance[i] = sign * std::sqrt(weight(design, i) * std::max(0.0, unit));
         const double h = d.leverage[i];
@@ -142,8 +173,10 @@ void studentised_residuals(Diagnostics& d) {
 
 // What each residual is called, and the rules with their thresholds.
 void names_and_rules(const DiagnosticRules& rules, Diagnostics& d) {
-    const bool logistic = d.family == Family::Logistic;
-    d.fitted_name = logistic ? "fitted probability" : "fitted value";
+    const bool logistic = generalized(d.family);
+    d.fitted_name = binary_outcome(d.family)  ? "fitted probability"
+                    : count_outcome(d.family) ? "fitted expected count"
+                                              : "fitted value";
     d.plot_residual_name = logistic ? "Pearson residual" : (d.weighted ? "weighted residual √w·e" : "residual");
     d.check_residual_name = logistic ? "standardised Pearson residual" : "externally studentised residual";
     d.quantile_residual_name = logistic ? "standardised deviance residual" : "externally studentised residual";
@@ -230,7 +263,7 @@ Diagnostics diagnostics(const Design& design, const FitResult& fit, const Diagno
     const Eigen::VectorXd v = working_weights(design, fit, d);
     leverages(XK, v, d);
     standardised_residuals(d);
-    if (fit.family == Family::Logistic) deviance_residuals(design, fit, d);
+    if (generalized(fit.family)) deviance_residuals(design, fit, d);
     else studentised_residuals(d);
     names_and_rules(rules, d);
     flag_rows(design, d);

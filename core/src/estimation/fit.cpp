@@ -6,8 +6,10 @@
 #include <numbers>
 
 #include "estimation/covariance.hpp"
-#include "estimation/logistic_math.hpp"
+#include "estimation/glm_family.hpp"
+#include "estimation/glm_fit.hpp"
 #include "estimation/mixed_model.hpp"
+#include "estimation/overdispersion.hpp"
 #include "estimation/separation.hpp"
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/estimation/least_squares.hpp"
@@ -25,18 +27,7 @@ namespace {
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 constexpr double kInf = std::numeric_limits<double>::infinity();
 
-using detail::expit;
-using detail::log1pexp;
-
 double weight(const Design& d, Eigen::Index i) { return d.weights.size() ? d.weights[i] : 1.0; }
-
-// Bernoulli log-likelihood at linear predictor eta.
-double logistic_loglik(const Design& d, const Eigen::VectorXd& eta) {
-    long double ll = 0;
-    for (Eigen::Index i = 0; i < eta.size(); ++i)
-        ll -= weight(d, i) * (d.y[i] == 1.0 ? log1pexp(-eta[i]) : log1pexp(eta[i]));
-    return static_cast<double>(ll);
-}
 
 Eigen::MatrixXd columns_of(const Eigen::MatrixXd& X, const std::vector<int>& cols) {
     Eigen::MatrixXd out(X.rows(), static_cast<Eigen::Index>(cols.size()));
@@ -51,94 +42,6 @@ Eigen::MatrixXd expand(const Eigen::MatrixXd& Vk, const std::vector<int>& kept, 
         for (std::size_t b = 0; b < kept.size(); ++b)
             V(kept[a], kept[b]) = Vk(static_cast<Eigen::Index>(a), static_cast<Eigen::Index>(b));
     return V;
-}
-
-struct LogisticFit {
-    Eigen::VectorXd beta;
-    LeastSquaresResult factor;  // at the final estimate: (X' V X)^{-1} = A A'
-    Eigen::VectorXd mu;
-    double loglik = 0;
-    int iterations = 0;
-    bool converged = false;
-};
-
-// Newton-Raphson (IRLS) with step halving. Each step solves the weighted least
-// squares problem by QR, so X'VX is never formed.
-LogisticFit fit_logistic(const Design& d, const Eigen::MatrixXd& X, int max_iterations,
-                         const LeastSquaresOptions& lso) {
-    const Eigen::Index n = X.rows(), p = X.cols();
-    const Eigen::VectorXd zero = Eigen::VectorXd::Zero(n);
-    LogisticFit f;
-    f.beta = Eigen::VectorXd::Zero(p);
-    Eigen::VectorXd eta = Eigen::VectorXd::Zero(n);
-    // Start from the usual (y + 1/2) / 2 working values: one weighted LS step.
-    {
-        Eigen::VectorXd z(n), v(n);
-        for (Eigen::Index i = 0; i < n; ++i) {
-            const double mu = (d.y[i] + 0.5) / 2.0;
-            z[i] = std::log(mu / (1 - mu));
-            v[i] = weight(d, i) * mu * (1 - mu);
-        }
-        auto ls = least_squares(X, z, v, lso);
-        f.beta = ls.coef;
-        for (Eigen::Index j = 0; j < p; ++j)
-            if (std::isnan(f.beta[j])) f.beta[j] = 0;
-        eta = X * f.beta;
-    }
-    double ll = logistic_loglik(d, eta);
-    std::vector<int> kept;
-    for (int it = 1; it <= max_iterations; ++it) {
-        f.iterations = it;
-        Eigen::VectorXd v(n), r(n);
-        for (Eigen::Index i = 0; i < n; ++i) {
-            const double mu = expit(eta[i]);
-            v[i] = weight(d, i) * mu * (1 - mu);
-            r[i] = weight(d, i) * (d.y[i] - mu);
-        }
-        auto ls = least_squares(X, zero, v, lso);
-        if (it == 1) kept = ls.kept;
-        // Newton step on the kept columns: A A' X_K' r.
-        const Eigen::Index k = static_cast<Eigen::Index>(kept.size());
-        Eigen::VectorXd g(k);
-        for (Eigen::Index c = 0; c < k; ++c) g[c] = X.col(kept[static_cast<std::size_t>(c)]).dot(r);
-        if (ls.kept != kept) break;  // rank changed while iterating: separation territory
-        const Eigen::VectorXd stepK = ls.inverse_factor * (ls.inverse_factor.transpose() * g);
-        Eigen::VectorXd step = Eigen::VectorXd::Zero(p);
-        for (Eigen::Index c = 0; c < k; ++c) step[kept[static_cast<std::size_t>(c)]] = stepK[c];
-
-        double t = 1.0;
-        Eigen::VectorXd beta_new, eta_new;
-        double ll_new = -kInf;
-        for (int halving = 0; halving < 30; ++halving, t *= 0.5) {
-            beta_new = f.beta + t * step;
-            eta_new = X * beta_new;
-            ll_new = logistic_loglik(d, eta_new);
-            if (ll_new >= ll - 1e-12 * (1 + std::abs(ll))) break;
-        }
-        bool small = true;
-        for (Eigen::Index j = 0; j < p; ++j)
-            if (std::abs(t * step[j]) > 1e-10 * (1 + std::abs(f.beta[j]))) small = false;
-        f.beta = beta_new;
-        eta = eta_new;
-        ll = ll_new;
-        if (small) {
-            f.converged = true;
-            break;
-        }
-    }
-    f.mu.resize(n);
-    Eigen::VectorXd v(n);
-    for (Eigen::Index i = 0; i < n; ++i) {
-        f.mu[i] = expit(eta[i]);
-        v[i] = weight(d, i) * f.mu[i] * (1 - f.mu[i]);
-    }
-    // The covariance factor at the final estimate decides which columns are
-    // estimable (under separation the weights can collapse the rank).
-    f.factor = least_squares(X, zero, v, lso);
-    for (Eigen::Index j = 0; j < p; ++j)
-        if (!std::binary_search(f.factor.kept.begin(), f.factor.kept.end(), static_cast<int>(j))) f.beta[j] = kNaN;
-    f.loglik = ll;
-    return f;
 }
 
 // VIF_j = [(X'WX)^{-1}]_jj * sum_i w_i (x_ij - mean_w(x_j))^2 for models with an intercept.
@@ -272,6 +175,9 @@ struct Solution {
     LeastSquaresResult ls;  // the factor at the estimate: kept columns, (X' W X)^{-1} = A A'
     Eigen::VectorXd score, leverage_weight;
     std::optional<detail::SeparationFinding> separation;
+    // negative binomial: the inverse negative Hessian of (beta_K, alpha) and alpha's per-row score
+    Eigen::MatrixXd joint_inverse;
+    Eigen::VectorXd alpha_score;
 };
 
 // The estimates: least squares (linear), Newton/IRLS (logistic); the rank.
@@ -280,7 +186,7 @@ Solution solve(const Design& d, const ModelSpec& spec, const FitOptions& options
     const Eigen::Index n = d.X.rows();
     Solution s;
     s.score.resize(n);
-    if (spec.family != Family::Logistic) {
+    if (!generalized(spec.family)) {
         s.ls = least_squares(d.X, d.y, d.weights, lso);
         f.beta = s.ls.coef;
         f.residuals = s.ls.residuals;
@@ -288,16 +194,20 @@ Solution solve(const Design& d, const ModelSpec& spec, const FitOptions& options
         for (Eigen::Index i = 0; i < n; ++i) s.score[i] = weight(d, i) * s.ls.residuals[i];
         if (d.weights.size()) s.leverage_weight = d.weights;
     } else {
-        auto lf = fit_logistic(d, d.X, options.max_iterations, lso);
-        s.ls = std::move(lf.factor);
-        f.beta = lf.beta;
-        f.fitted = lf.mu;
-        f.residuals = d.y - lf.mu;
-        for (Eigen::Index i = 0; i < n; ++i) s.score[i] = weight(d, i) * f.residuals[i];
-        f.iterations = lf.iterations;
-        f.converged = lf.converged;
-        f.log_likelihood = lf.loglik;
-        s.separation = detail::find_separation(d, f.beta, f.fitted, lf.converged);
+        if (count_outcome(spec.family)) detail::refuse_zero_cells(d);
+        auto g = detail::fit_glm(d, d.X, spec.family, options.max_iterations, lso);
+        s.ls = std::move(g.factor);
+        s.score = std::move(g.score);
+        s.joint_inverse = std::move(g.joint_inverse);
+        s.alpha_score = std::move(g.alpha_score);
+        f.beta = g.beta;
+        f.fitted = g.mu;
+        f.residuals = d.y - g.mu;
+        f.iterations = g.iterations;
+        f.converged = g.converged;
+        f.log_likelihood = g.loglik;
+        if (spec.family == Family::NegativeBinomial) f.dispersion = Dispersion{g.alpha};
+        if (binary_outcome(spec.family)) s.separation = detail::find_separation(d, f.beta, f.fitted, g.converged);
     }
     f.extended_precision = s.ls.extended_precision;
     f.rank = static_cast<int>(s.ls.kept.size());
@@ -306,13 +216,29 @@ Solution solve(const Design& d, const ModelSpec& spec, const FitOptions& options
     return s;
 }
 
+// The negative binomial's covariance of (beta_K, alpha): the inverse negative
+// Hessian, or a sandwich of the per-row scores of both; returns the beta
+// block and sets alpha's standard error.
+Eigen::MatrixXd negative_binomial_covariance(const Design& d, const ModelSpec& spec, const Solution& s,
+                                             unsigned threads, Dispersion& alpha) {
+    const Eigen::Index k = static_cast<Eigen::Index>(s.ls.kept.size());
+    Eigen::MatrixXd V = s.joint_inverse;
+    if (spec.se != SeKind::Classical)
+        V = detail::sandwich_with_extra(d.X, s.ls.kept, s.joint_inverse, s.score, s.alpha_score, spec.se, d.cluster,
+                                        d.n_clusters, threads);
+    alpha.std_error = std::sqrt(V(k, k));
+    return V.topLeftCorner(k, k);
+}
+
 // Covariance of the kept coefficients (NaN for aliased ones), the inference df
 // and the critical value.
 void covariance(const Design& d, const ModelSpec& spec, const Solution& s, unsigned threads, FitResult& f) {
-    const bool logistic = spec.family == Family::Logistic;
+    const bool glm = generalized(spec.family);
     const Eigen::MatrixXd& A = s.ls.inverse_factor;
     Eigen::MatrixXd Vk;
-    if (!logistic) {
+    if (spec.family == Family::NegativeBinomial) {
+        Vk = negative_binomial_covariance(d, spec, s, threads, *f.dispersion);
+    } else if (!glm) {
         f.rss = s.ls.rss;
         const double sigma2 = s.ls.rss / f.df_residual;
         f.residual_sd = std::sqrt(sigma2);
@@ -320,19 +246,25 @@ void covariance(const Design& d, const ModelSpec& spec, const Solution& s, unsig
     } else if (spec.se == SeKind::Classical) {
         Vk = A * A.transpose();
     }
-    if (spec.se != SeKind::Classical)
+    if (spec.se != SeKind::Classical && spec.family != Family::NegativeBinomial)
         Vk = detail::sandwich(d.X, s.ls.kept, A, s.score, s.leverage_weight, spec.se, d.cluster, d.n_clusters, threads);
     f.covariance = expand(Vk, s.ls.kept, d.X.cols());
-    f.df_inference = logistic ? kInf : (spec.se == SeKind::Cluster ? d.n_clusters - 1.0 : f.df_residual);
+    f.df_inference = glm ? kInf : (spec.se == SeKind::Cluster ? d.n_clusters - 1.0 : f.df_residual);
     f.critical_value = dist::t_quantile(0.5 + spec.level / 2.0, f.df_inference);
+    if (f.dispersion) {
+        Dispersion& a = *f.dispersion;
+        // on the log scale, where the interval stays above zero
+        a.ci_lower = a.alpha * std::exp(-f.critical_value * a.std_error / a.alpha);
+        a.ci_upper = a.alpha * std::exp(f.critical_value * a.std_error / a.alpha);
+    }
 }
 
 void coefficient_table(const Design& d, const Solution& s, const LeastSquaresOptions& lso, FitResult& f) {
     const Eigen::Index n = d.X.rows(), p = d.X.cols();
     const auto vif = variance_inflation(
         d, s.ls.kept,
-        f.family == Family::Logistic ? least_squares(d.X, Eigen::VectorXd::Zero(n), d.weights, lso).inverse_factor
-                                     : s.ls.inverse_factor);
+        generalized(f.family) ? least_squares(d.X, Eigen::VectorXd::Zero(n), d.weights, lso).inverse_factor
+                              : s.ls.inverse_factor);
     for (Eigen::Index j = 0; j < p; ++j) {
         Coefficient c;
         c.term = d.columns[static_cast<std::size_t>(j)].label;
@@ -363,21 +295,56 @@ void linear_statistics(const Design& d, FitResult& f) {
                        0.5 * static_cast<double>(sumlogw);
 }
 
-// Deviances, McFadden's R-squared and the likelihood-ratio test against the
-// intercept-only model (tested: the number of non-intercept columns kept).
-void logistic_statistics(const Design& d, std::size_t tested, FitResult& f) {
+// The intercept-only model's mean and log-likelihood on the same rows (with
+// the offset; without an intercept, the linear predictor is the offset).
+// Binary and Poisson means have closed forms; the negative binomial's null
+// model is fitted with its own alpha.
+double null_loglik(const Design& d, Family family, double alpha, const FitOptions& options,
+                   const LeastSquaresOptions& lso) {
     const Eigen::Index n = d.X.rows();
-    long double sw = 0, swy = 0;
+    const auto offset = [&](Eigen::Index i) { return d.offset.size() ? d.offset[i] : 0.0; };
+    if (family == Family::NegativeBinomial && d.intercept)
+        return detail::fit_glm(d, Eigen::MatrixXd::Ones(n, 1), family, options.max_iterations, lso).loglik;
+    long double sw = 0, swy = 0, swe = 0;
     for (Eigen::Index i = 0; i < n; ++i) {
         sw += weight(d, i);
         swy += weight(d, i) * d.y[i];
+        swe += weight(d, i) * std::exp(offset(i));
     }
-    const double mu0 = d.intercept ? static_cast<double>(swy / sw) : 0.5;
-    long double ll0 = 0;
-    for (Eigen::Index i = 0; i < n; ++i) ll0 += weight(d, i) * (d.y[i] == 1.0 ? std::log(mu0) : std::log1p(-mu0));
-    const double null_ll = static_cast<double>(ll0);
-    f.deviance = -2.0 * f.log_likelihood;
-    f.null_deviance = -2.0 * null_ll;
+    double b0 = 0;
+    if (d.intercept && binary_outcome(family)) {
+        const double mean = static_cast<double>(swy / sw);
+        b0 = family == Family::Probit ? dist::normal_quantile(mean) : std::log(mean / (1 - mean));
+    } else if (d.intercept) {
+        b0 = std::log(static_cast<double>(swy / swe));
+    }
+    long double ll = 0;
+    for (Eigen::Index i = 0; i < n; ++i) ll += weight(d, i) * detail::row_loglik(family, d.y[i], b0 + offset(i), alpha);
+    return static_cast<double>(ll);
+}
+
+// The deviance of a count model: twice the log-likelihood ratio of the
+// saturated model (the negative binomial's at the fitted alpha).
+double count_deviance(const Design& d, const FitResult& f) {
+    const double r = f.dispersion ? 1 / f.dispersion->alpha : 0;
+    long double dev = 0;
+    for (Eigen::Index i = 0; i < d.y.size(); ++i) {
+        const double y = d.y[i], mu = f.fitted[i];
+        const double ylog = y > 0 ? y * std::log(y / mu) : 0.0;
+        dev += weight(d, i) * (f.dispersion ? ylog - (y + r) * std::log((y + r) / (mu + r)) : ylog - (y - mu));
+    }
+    return 2 * static_cast<double>(dev);
+}
+
+// Deviance, McFadden's R-squared and the likelihood-ratio test against the
+// intercept-only model (tested: the number of non-intercept columns kept).
+void glm_statistics(const Design& d, std::size_t tested, const FitOptions& options, const LeastSquaresOptions& lso,
+                    FitResult& f) {
+    const double alpha = f.dispersion ? f.dispersion->alpha : 0.0;
+    const double null_ll = null_loglik(d, f.family, alpha, options, lso);
+    f.deviance = count_outcome(f.family) ? count_deviance(d, f) : -2.0 * f.log_likelihood;
+    f.null_deviance = count_outcome(f.family) ? kNaN : -2.0 * null_ll;
+    f.null_log_likelihood = null_ll;
     f.mcfadden_r2 = 1.0 - f.log_likelihood / null_ll;
     f.lr_statistic = 2.0 * (f.log_likelihood - null_ll);
     f.lr_df = static_cast<double>(tested);
@@ -386,27 +353,29 @@ void logistic_statistics(const Design& d, std::size_t tested, FitResult& f) {
 
 // Fit statistics, information criteria and the overall test of every kept
 // non-intercept column.
-void fit_statistics(const Design& d, const ModelSpec& spec, const std::vector<int>& kept, FitResult& f) {
-    const bool logistic = spec.family == Family::Logistic;
-    const double nd = static_cast<double>(d.X.rows()), kd = static_cast<double>(kept.size());
+void fit_statistics(const Design& d, const ModelSpec& spec, const std::vector<int>& kept, const FitOptions& options,
+                    const LeastSquaresOptions& lso, FitResult& f) {
+    const bool glm = generalized(spec.family);
+    // the negative binomial's alpha is a parameter too
+    const double nd = static_cast<double>(d.X.rows()), kd = static_cast<double>(kept.size() + (f.dispersion ? 1 : 0));
     std::vector<int> tested;  // all kept non-intercept columns
     for (int j : kept)
         if (!(d.intercept && j == 0)) tested.push_back(j);
-    if (!logistic) linear_statistics(d, f);
-    else logistic_statistics(d, tested.size(), f);
+    if (!glm) linear_statistics(d, f);
+    else glm_statistics(d, tested.size(), options, lso, f);
     f.aic = -2.0 * f.log_likelihood + 2.0 * kd;
     f.bic = -2.0 * f.log_likelihood + kd * std::log(nd);
     if (tested.empty()) return;
     std::vector<std::string> labels;
     for (int j : tested) labels.push_back(d.columns[static_cast<std::size_t>(j)].label);
     WaldTest overall = wald_on_columns(f, tested, labels);
-    if (!logistic && spec.se == SeKind::Classical) {
+    if (!glm && spec.se == SeKind::Classical) {
         // The classical F from sums of squares: exact where the Wald form
         // would invert an ill-conditioned covariance block.
         overall.statistic = ((f.tss - f.rss) / overall.df1) / (f.rss / f.df_residual);
         overall.p_value = dist::upper_p_f(overall.statistic, overall.df1, overall.df2);
     }
-    if (!logistic) {
+    if (!glm) {
         f.f_statistic = overall.statistic;
         f.f_df1 = overall.df1;
         f.f_df2 = overall.df2;
@@ -457,10 +426,10 @@ std::optional<NestedComparison> nested_comparison(const Design& d, const FitOpti
         if (std::find(products.begin(), products.end(), static_cast<int>(j)) == products.end())
             reduced_cols.push_back(static_cast<int>(j));
     for (int j : products_kept) cmp.dropped_terms.push_back(d.columns[static_cast<std::size_t>(j)].label);
-    if (f.family != Family::Logistic) {
+    if (!generalized(f.family)) {
         linear_comparison(d, lso, ls, products, reduced_cols, f, cmp);
     } else {
-        auto red = fit_logistic(d, columns_of(d.X, reduced_cols), options.max_iterations, lso);
+        auto red = detail::fit_glm(d, columns_of(d.X, reduced_cols), f.family, options.max_iterations, lso);
         cmp.df1 = static_cast<double>(ls.kept.size() - red.factor.kept.size());
         cmp.lr_statistic = 2.0 * (f.log_likelihood - red.loglik);
         cmp.lr_p_value = dist::upper_p_chi2(cmp.lr_statistic, cmp.df1);
@@ -471,21 +440,22 @@ std::optional<NestedComparison> nested_comparison(const Design& d, const FitOpti
 
 // Warnings a reader must see.
 void add_warnings(const Design& d, const ModelSpec& spec, const Solution& s, FitResult& f) {
-    const bool logistic = spec.family == Family::Logistic;
+    const bool glm = generalized(spec.family);
     for (const auto& a : f.aliased)
         f.warnings.push_back("aliased: " + quoted(a) +
                              " is a linear combination of other columns and was not estimated");
     if (spec.se == SeKind::Cluster && d.n_clusters < 30)
         f.warnings.push_back("only " + std::to_string(d.n_clusters) +
                              " clusters: cluster-robust standard errors are unreliable with fewer than 30");
-    if (logistic && !f.converged && !s.separation)
-        f.warnings.push_back("the logistic fit did not converge in " + std::to_string(f.iterations) +
-                             " iterations; the estimates are not reliable");
+    if (glm && !f.converged && !s.separation)
+        f.warnings.push_back(std::string("the ") + to_string(spec.family) + " fit did not converge in " +
+                             std::to_string(f.iterations) + " iterations; the estimates are not reliable");
     if (s.separation) {
         f.separation = true;
         f.warnings.push_back(s.separation->message);
     }
-    if (!logistic && spec.se != SeKind::Classical && spec.se != SeKind::Cluster) {
+    detail::add_dispersion_warnings(f);
+    if (!glm && spec.se != SeKind::Classical && spec.se != SeKind::Cluster) {
         // leverage of 1 makes HC2-HC4 undefined
         for (const auto& c : f.coefficients)
             if (!c.aliased && !std::isfinite(c.std_error)) {
@@ -499,10 +469,9 @@ void add_warnings(const Design& d, const ModelSpec& spec, const Solution& s, Fit
 }  // namespace
 
 FitResult detail::start_result(const Design& d, const ModelSpec& spec) {
-    if (spec.family == Family::Logistic && (spec.se == SeKind::HC2 || spec.se == SeKind::HC3 || spec.se == SeKind::HC4))
-        throw InputError(std::string(to_string(spec.se)) +
-                         " is not offered for logistic models; use classical (model-based), hc0 or hc1 (sandwich), "
-                         "or cluster");
+    if (generalized(spec.family) && (spec.se == SeKind::HC2 || spec.se == SeKind::HC3 || spec.se == SeKind::HC4))
+        throw InputError(std::string(to_string(spec.se)) + " is not offered for " + to_string(spec.family) +
+                         " models; use classical (model-based), hc0 or hc1 (sandwich), or cluster");
     FitResult f;
     f.family = spec.family;
     f.se = spec.se;
@@ -511,6 +480,8 @@ FitResult detail::start_result(const Design& d, const ModelSpec& spec) {
     f.n_excluded = d.n_excluded;
     f.exclusions = d.exclusions;
     f.notes = d.notes;
+    f.warnings = d.warnings;
+    f.exposure = spec.exposure;
     f.n_clusters = d.n_clusters;
     for (const auto& t : d.terms) f.terms.emplace_back(t.label, t.columns);
     return f;
@@ -526,7 +497,8 @@ FitResult fit_design(const Design& d, const ModelSpec& spec, const FitOptions& o
     const Solution s = solve(d, spec, options, lso, f);
     covariance(d, spec, s, threads, f);
     coefficient_table(d, s, lso, f);
-    fit_statistics(d, spec, s.ls.kept, f);
+    fit_statistics(d, spec, s.ls.kept, options, lso, f);
+    if (spec.family == Family::Poisson) f.overdispersion = detail::overdispersion(d, f);
     if (options.compare_without_products) f.comparison = nested_comparison(d, options, lso, s.ls, f);
     for (const auto& set : spec.wald_tests) f.wald_tests.push_back(wald_test(f, set));
     add_warnings(d, spec, s, f);

@@ -4,7 +4,36 @@
 
 namespace moderato {
 
-const char* to_string(Family f) { return f == Family::Linear ? "linear" : "logistic"; }
+const char* to_string(Family f) {
+    switch (f) {
+        case Family::Linear:
+            return "linear";
+        case Family::Logistic:
+            return "logistic";
+        case Family::Probit:
+            return "probit";
+        case Family::Poisson:
+            return "poisson";
+        case Family::NegativeBinomial:
+            return "negative-binomial";
+    }
+    return "?";
+}
+
+Link link_of(Family f) {
+    switch (f) {
+        case Family::Linear:
+            return Link::Identity;
+        case Family::Logistic:
+            return Link::Logit;
+        case Family::Probit:
+            return Link::Probit;
+        case Family::Poisson:
+        case Family::NegativeBinomial:
+            return Link::Log;
+    }
+    return Link::Identity;
+}
 
 const char* to_string(SeKind s) {
     switch (s) {
@@ -26,6 +55,27 @@ const char* to_string(SeKind s) {
     return "?";
 }
 
+std::string model_scale_text(Family f, bool exposure) {
+    switch (f) {
+        case Family::Logistic:
+            return "log-odds";
+        case Family::Probit:
+            return "probit";
+        case Family::Poisson:
+        case Family::NegativeBinomial:
+            return exposure ? "log rate" : "log expected count";
+        case Family::Linear:
+            break;
+    }
+    return "";
+}
+
+std::string outcome_scale_text(Family f, const std::string& exposure) {
+    if (binary_outcome(f)) return "probability";
+    if (count_outcome(f)) return exposure.empty() ? "expected count" : "rate per unit of " + exposure;
+    return "";
+}
+
 SeKind parse_se_kind(const std::string& text) {
     for (SeKind s :
          {SeKind::Classical, SeKind::HC0, SeKind::HC1, SeKind::HC2, SeKind::HC3, SeKind::HC4, SeKind::Cluster})
@@ -34,9 +84,9 @@ SeKind parse_se_kind(const std::string& text) {
 }
 
 Family parse_family(const std::string& text) {
-    if (text == "linear") return Family::Linear;
-    if (text == "logistic") return Family::Logistic;
-    throw InputError("unknown family '" + text + "'; use linear or logistic");
+    for (Family f : {Family::Linear, Family::Logistic, Family::Probit, Family::Poisson, Family::NegativeBinomial})
+        if (text == to_string(f)) return f;
+    throw InputError("unknown family '" + text + "'; use linear, logistic, probit, poisson or negative-binomial");
 }
 
 const char* to_string(MixedEstimation e) { return e == MixedEstimation::Reml ? "reml" : "ml"; }

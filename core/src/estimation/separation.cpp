@@ -4,6 +4,7 @@
 #include <cmath>
 #include <limits>
 
+#include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
 
@@ -99,6 +100,35 @@ std::optional<SeparationFinding> find_separation(const Design& d, const Eigen::V
                                  quoted(d.columns[static_cast<std::size_t>(worst)].label) +
                                  "; the estimates and standard errors are not reliable"};
     return std::nullopt;
+}
+
+void refuse_zero_cells(const Design& d) {
+    if (!d.intercept) return;
+    for (Eigen::Index j = 0; j < d.X.cols(); ++j) {
+        const auto& column = d.columns[static_cast<std::size_t>(j)];
+        if (column.atoms.empty()) continue;
+        const auto x = d.X.col(j);
+        if (!((x.array() == 0.0) || (x.array() == 1.0)).all()) continue;
+        for (double level : {1.0, 0.0}) {
+            std::size_t rows = 0;
+            bool all_zero = true;
+            for (Eigen::Index i = 0; i < x.size() && all_zero; ++i)
+                if (x[i] == level) {
+                    ++rows;
+                    all_zero = d.y[i] == 0.0;
+                }
+            if (rows == 0 || !all_zero || rows == static_cast<std::size_t>(x.size())) continue;
+            const bool dummy = column.atoms.size() == 1 && !column.atoms.front().level.empty();
+            const std::string which = dummy && level == 1.0
+                                          ? "every row with " + column.label
+                                          : "every row with " + column.label + " = " + exact_text(level);
+            throw InputError("all-zero cell: " + which + " (" + std::to_string(rows) + " rows) has " + d.outcome +
+                             " = 0, so the estimate for " + quoted(column.label) +
+                             " runs off to minus infinity and has no finite value; merge that level with a "
+                             "neighbour, leave those rows out, or drop " +
+                             quoted(column.label) + " from the model");
+        }
+    }
 }
 
 }  // namespace moderato::detail

@@ -21,4 +21,10 @@ struct SeparationFinding {
 std::optional<SeparationFinding> find_separation(const Design& d, const Eigen::VectorXd& beta,
                                                  const Eigen::VectorXd& mu, bool converged);
 
+// Count models: a 0/1 design column (an indicator, a level of a categorical
+// column, a product of such) whose 1-rows, or whose 0-rows, all have a zero
+// count sends an estimate to minus infinity; throws InputError naming the
+// column and the rows.
+void refuse_zero_cells(const Design& d);
+
 }  // namespace moderato::detail

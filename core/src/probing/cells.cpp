@@ -352,6 +352,9 @@ const char* to_string(CellScale scale) { return scale == CellScale::LogOdds ? "l
 
 CellTable cell_table(const Design& d, const FitResult& fit, const std::string& row_factor,
                      const std::string& column_factor, const std::map<std::string, double>& held) {
+    if (fit.family != Family::Linear && fit.family != Family::Logistic)
+        throw InputError("the cell table is offered for linear and logistic models; this is a " +
+                         std::string(to_string(fit.family)) + " model");
     if (!row_factor.empty() && row_factor == column_factor)
         throw InputError("row and column factor are both " + quoted(row_factor) +
                          "; choose two different factors for the cell table");

@@ -33,6 +33,9 @@ void check_column(const Design& d, const std::string& column, const std::string&
 
 LinearityInputs linearity_inputs(const Design& d, const FitResult& fit, const std::string& focal,
                                  const std::string& moderator, const std::string& what) {
+    if (fit.family != Family::Linear && fit.family != Family::Logistic)
+        throw InputError(what + " are offered for linear and logistic models; this is a " +
+                         std::string(to_string(fit.family)) + " model");
     if (fit.multilevel)
         throw InputError(what + " are not available for multilevel models (groups " + quoted(fit.multilevel->groups) +
                          "): they would need a multilevel fit per bin or moderator value");

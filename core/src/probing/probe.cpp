@@ -7,6 +7,7 @@
 
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/probing/multilevel_probe.hpp"
+#include "moderato/probing/response_scale.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
 #include "support/text_util.hpp"
@@ -375,18 +376,19 @@ void refresh_cautions(ProbeResult& r, const FitResult& fit) {
     if (fit.n < 200)
         r.cautions.push_back("With " + std::to_string(fit.n) +
                              " observations, interaction estimates and regions of significance are unstable.");
-    if (fit.family == Family::Logistic && r.scale == ProbeScale::Model)
-        r.cautions.push_back(
-            "On the log-odds scale a product coefficient is not the interaction on the probability "
-            "scale; use the probability scale to describe effects on P(" +
-            r.outcome + " = 1).");
+    if (generalized(fit.family) && r.scale == ProbeScale::Model)
+        r.cautions.push_back("On the " + model_scale_text(fit.family, !fit.exposure.empty()) +
+                             " scale a product coefficient is not the interaction on the " +
+                             outcome_scale_text(fit.family, fit.exposure) + " scale; use the " +
+                             outcome_scale_text(fit.family, fit.exposure) + " scale to describe effects on " +
+                             outcome_scale_words(fit, r.outcome) + ".");
     for (auto& c : multilevel_cautions(fit, r)) r.cautions.push_back(std::move(c));
     if (r.scale == ProbeScale::Outcome)
-        r.cautions.push_back(
-            "On the probability scale an effect depends on the values of every other predictor; "
-            "these effects are " +
-            std::string(r.averaging == Averaging::Sample ? "averaged over the observed rows."
-                                                         : "at the means and reference levels."));
+        r.cautions.push_back("On the " + outcome_scale_text(fit.family, fit.exposure) +
+                             " scale an effect depends on the values of every other predictor; "
+                             "these effects are " +
+                             std::string(r.averaging == Averaging::Sample ? "averaged over the observed rows."
+                                                                          : "at the means and reference levels."));
 }
 
 namespace {
@@ -449,8 +451,8 @@ namespace {
 
 // InputError for a probe the fit or the model cannot answer.
 void check_probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) {
-    if (fit.family == Family::Logistic && (!fit.converged || fit.separation))
-        throw InputError(std::string("the logistic fit ") +
+    if (generalized(fit.family) && (!fit.converged || fit.separation))
+        throw InputError(std::string("the ") + to_string(fit.family) + " fit " +
                          (fit.separation ? "shows separation"
                                          : "did not converge in " + std::to_string(fit.iterations) + " iterations") +
                          ", so its estimates and effects are not reliable and are not probed; " +
@@ -632,6 +634,7 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
 
     const std::map<std::string, double> values = held_values(d, spec, r);
     r.adjustment = spec.adjustment;
+    r.binary_focal = d.is_binary(spec.focal);
     r.interaction_test = interaction_test(d, fit, spec.focal, spec.moderator);
     const CategoricalInfo* cat = d.categorical(spec.moderator);
     r.categorical_moderator = cat != nullptr;
@@ -639,6 +642,10 @@ ProbeResult probe(const Design& d, const FitResult& fit, const ProbeSpec& spec) 
     else probe_numeric(d, fit, spec, values, r);
     r.group_slopes = group_slope_spread(fit, spec.focal);
     add_multilevel_notes(fit, r);
+    if (count_outcome(fit.family))
+        for (const EffectPoint& e : r.effects)
+            r.rate_ratios.push_back(
+                {e.moderator_value, e.level, std::exp(e.estimate), std::exp(e.ci_lower), std::exp(e.ci_upper)});
     refresh_cautions(r, fit);
     return r;
 }

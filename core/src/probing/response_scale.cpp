@@ -6,7 +6,7 @@
 #include <functional>
 #include <limits>
 
-#include "estimation/logistic_math.hpp"
+#include "estimation/glm_family.hpp"
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
@@ -20,9 +20,39 @@ namespace {
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
-using detail::expit;
-double phi(double p) { return p * (1 - p); }                      // dP/deta
-double phi_prime(double p) { return p * (1 - p) * (1 - 2 * p); }  // d2P/deta2
+// The mean as a function of the linear predictor (without any offset: a
+// count model with an exposure is read per unit of exposure) and its first
+// two derivatives.
+struct InverseLink {
+    double (*mean)(double);
+    double (*d1)(double);
+    double (*d2)(double);
+};
+
+double logit_d1(double eta) {
+    const double p = detail::expit(eta);
+    return p * (1 - p);
+}
+double logit_d2(double eta) {
+    const double p = detail::expit(eta);
+    return p * (1 - p) * (1 - 2 * p);
+}
+double probit_d2(double eta) { return -eta * detail::normal_density(eta); }
+double exp_of(double eta) { return std::exp(eta); }
+
+InverseLink inverse_link(Family f) {
+    switch (link_of(f)) {
+        case Link::Logit:
+            return {&detail::expit, &logit_d1, &logit_d2};
+        case Link::Probit:
+            return {&detail::normal_probability, &detail::normal_density, &probit_d2};
+        case Link::Log:
+            return {&exp_of, &exp_of, &exp_of};
+        case Link::Identity:
+            break;
+    }
+    throw InputError("the outcome scale applies to logistic, probit, poisson and negative-binomial models");
+}
 
 int main_column(const Design& d, const std::string& column) { return d.main_column(column); }
 
@@ -93,8 +123,10 @@ Profile profile(const Design& d, const ScaleRequest& r) {
 }
 
 void check_request(const Design& d, const FitResult& fit, const ScaleRequest& r) {
-    if (fit.family != Family::Logistic)
-        throw InputError("the probability scale applies to logistic models; this is a linear model");
+    if (!generalized(fit.family))
+        throw InputError(
+            "the outcome scale applies to logistic, probit, poisson and negative-binomial models; "
+            "this is a linear model");
     if (main_column(d, r.focal) < 0)
         throw InputError("focal predictor " + quoted(r.focal) + " is not a numeric main effect of the model");
     if (!r.moderator.empty() && main_column(d, r.moderator) < 0 && !d.categorical(r.moderator))
@@ -103,12 +135,19 @@ void check_request(const Design& d, const FitResult& fit, const ScaleRequest& r)
 
 }  // namespace
 
+std::string outcome_scale_words(const FitResult& fit, const std::string& outcome) {
+    if (binary_outcome(fit.family)) return "P(" + outcome + " = 1)";
+    if (fit.exposure.empty()) return "the expected count of " + outcome;
+    return "the rate of " + outcome + " per unit of " + fit.exposure;
+}
+
 LevelEffect probability_effect_gradient(const Design& d, const FitResult& fit, const ScaleRequest& request, double m) {
     check_request(d, fit, request);
     Profile pr = profile(d, request);
     pr.overrides[request.moderator] = m;
     const Eigen::VectorXd b = finite(fit.beta);
     const double rows = static_cast<double>(pr.rows);
+    const InverseLink g = inverse_link(fit.family);
     double me = 0;
     Eigen::VectorXd grad = Eigen::VectorXd::Zero(b.size());
     if (d.is_binary(request.focal)) {  // discrete change from 0 to 1
@@ -116,16 +155,16 @@ LevelEffect probability_effect_gradient(const Design& d, const FitResult& fit, c
         o1[request.focal] = 1;
         o0[request.focal] = 0;
         const Eigen::MatrixXd X1 = rows_at(d, o1, {}, pr.rows), X0 = rows_at(d, o0, {}, pr.rows);
-        const Eigen::VectorXd p1 = (X1 * b).unaryExpr(&expit), p0 = (X0 * b).unaryExpr(&expit);
-        me = (p1 - p0).sum() / rows;
-        grad = (X1.transpose() * p1.unaryExpr(&phi) - X0.transpose() * p0.unaryExpr(&phi)) / rows;
-    } else {  // derivative dP/dF = phi(eta) * deta/dF
+        const Eigen::VectorXd e1 = X1 * b, e0 = X0 * b;
+        me = (e1.unaryExpr(g.mean) - e0.unaryExpr(g.mean)).sum() / rows;
+        grad = (X1.transpose() * e1.unaryExpr(g.d1) - X0.transpose() * e0.unaryExpr(g.d1)) / rows;
+    } else {  // derivative dmu/dF = mu'(eta) * deta/dF
         const Eigen::MatrixXd X = rows_at(d, pr.overrides, {}, pr.rows);
         const Eigen::MatrixXd G = rows_at(d, pr.overrides, {request.focal}, pr.rows);
-        const Eigen::VectorXd p = (X * b).unaryExpr(&expit), g = G * b;
-        me = (p.unaryExpr(&phi).array() * g.array()).sum() / rows;
-        grad = (X.transpose() * (p.unaryExpr(&phi_prime).array() * g.array()).matrix() +
-                G.transpose() * p.unaryExpr(&phi)) /
+        const Eigen::VectorXd eta = X * b, slope = G * b;
+        me = (eta.unaryExpr(g.d1).array() * slope.array()).sum() / rows;
+        grad = (X.transpose() * (eta.unaryExpr(g.d2).array() * slope.array()).matrix() +
+                G.transpose() * eta.unaryExpr(g.d1)) /
                rows;
     }
     return {"", me, grad};
@@ -172,12 +211,13 @@ SignificanceRegions probability_regions(const Design& d, const FitResult& fit, c
 InteractionEffect probability_interaction(const Design& d, const FitResult& fit, const ScaleRequest& request) {
     check_request(d, fit, request);
     if (request.moderator.empty() || main_column(d, request.moderator) < 0)
-        throw InputError("the interaction effect on the probability scale needs a numeric (or 0/1) moderator");
+        throw InputError("the interaction effect on the outcome scale needs a numeric (or 0/1) moderator");
     const Profile pr = profile(d, request);
     const bool fb = d.is_binary(request.focal), mb = d.is_binary(request.moderator);
     const std::string& F = request.focal;
     const std::string& M = request.moderator;
     const double rows = static_cast<double>(pr.rows);
+    const InverseLink g = inverse_link(fit.family);
     auto with = [&](std::initializer_list<std::pair<const std::string, double>> extra) {
         auto o = pr.overrides;
         for (const auto& [k, v] : extra) o[k] = v;
@@ -192,8 +232,8 @@ InteractionEffect probability_interaction(const Design& d, const FitResult& fit,
                               X01 = rows_at(d, with({{F, 0}, {M, 1}}), {}, pr.rows),
                               X00 = rows_at(d, with({{F, 0}, {M, 0}}), {}, pr.rows);
         s = [=](const Eigen::VectorXd& b) {
-            return ((X11 * b).unaryExpr(&expit) - (X10 * b).unaryExpr(&expit) - (X01 * b).unaryExpr(&expit) +
-                    (X00 * b).unaryExpr(&expit))
+            return ((X11 * b).unaryExpr(g.mean) - (X10 * b).unaryExpr(g.mean) - (X01 * b).unaryExpr(g.mean) +
+                    (X00 * b).unaryExpr(g.mean))
                        .sum() /
                    rows;
         };
@@ -206,8 +246,8 @@ InteractionEffect probability_interaction(const Design& d, const FitResult& fit,
                               G1 = rows_at(d, with({{B, 1}}), {C}, pr.rows),
                               G0 = rows_at(d, with({{B, 0}}), {C}, pr.rows);
         s = [=](const Eigen::VectorXd& b) {
-            const Eigen::VectorXd p1 = (X1 * b).unaryExpr(&expit), p0 = (X0 * b).unaryExpr(&expit);
-            return ((p1.unaryExpr(&phi).array() * (G1 * b).array()) - (p0.unaryExpr(&phi).array() * (G0 * b).array()))
+            const Eigen::VectorXd e1 = X1 * b, e0 = X0 * b;
+            return ((e1.unaryExpr(g.d1).array() * (G1 * b).array()) - (e0.unaryExpr(g.d1).array() * (G0 * b).array()))
                        .sum() /
                    rows;
         };
@@ -217,9 +257,9 @@ InteractionEffect probability_interaction(const Design& d, const FitResult& fit,
                               GM = rows_at(d, pr.overrides, {M}, pr.rows),
                               GFM = rows_at(d, pr.overrides, {F, M}, pr.rows);
         s = [=](const Eigen::VectorXd& b) {
-            const Eigen::VectorXd p = (X * b).unaryExpr(&expit);
-            return (p.unaryExpr(&phi_prime).array() * (GF * b).array() * (GM * b).array() +
-                    p.unaryExpr(&phi).array() * (GFM * b).array())
+            const Eigen::VectorXd eta = X * b;
+            return (eta.unaryExpr(g.d2).array() * (GF * b).array() * (GM * b).array() +
+                    eta.unaryExpr(g.d1).array() * (GFM * b).array())
                        .sum() /
                    rows;
         };
@@ -279,15 +319,17 @@ ProbeResult probe_response(const Design& d, const FitResult& fit, const ProbeSpe
         for (double b : r.johnson_neyman->boundaries) r.jn_beyond_data.push_back(b < lo || b > hi);
         r.interaction_effect = probability_interaction(d, fit, req);
     }
-    r.notes.push_back(std::string("effects on P(") + d.outcome + " = 1), " +
+    r.notes.push_back("effects on " + outcome_scale_words(fit, d.outcome) + ", " +
                       (averaging == Averaging::Sample ? "averaged over the observations"
                                                       : "at the covariates' means and reference levels") +
                       "; " +
                       (d.is_binary(spec.focal) ? "discrete change of " + spec.focal + " from 0 to 1"
                                                : "derivative with respect to " + spec.focal));
-    r.notes.push_back("no simultaneous band on the probability scale (the effect is not linear in the coefficients)");
-    r.notes.push_back(
-        "crossover points are where the log-odds lines cross, which is where the probability curves cross");
+    r.notes.push_back("no simultaneous band on the " + outcome_scale_text(fit.family, fit.exposure) +
+                      " scale (the effect is not linear in the coefficients)");
+    r.notes.push_back("crossover points are where the " + model_scale_text(fit.family, !fit.exposure.empty()) +
+                      " lines cross, which is where the " + outcome_scale_text(fit.family, fit.exposure) +
+                      " curves cross");
     refresh_cautions(r, fit);
     return r;
 }

@@ -80,7 +80,11 @@ constexpr Word<RandomCovariance> kRandomCovarianceWords[] = {{RandomCovariance::
 constexpr Word<FixedEffectDf> kDfWords[] = {{FixedEffectDf::Satterthwaite, "satterthwaite"},
                                             {FixedEffectDf::BetweenWithin, "between-within"},
                                             {FixedEffectDf::Normal, "z"}};
-constexpr Word<Family> kFamilyWords[] = {{Family::Linear, "linear"}, {Family::Logistic, "logistic"}};
+constexpr Word<Family> kFamilyWords[] = {{Family::Linear, "linear"},
+                                         {Family::Logistic, "logistic"},
+                                         {Family::Probit, "probit"},
+                                         {Family::Poisson, "poisson"},
+                                         {Family::NegativeBinomial, "negative-binomial"}};
 constexpr Word<SeKind> kSeWords[] = {{SeKind::Classical, "model-based"},
                                      {SeKind::HC0, "hc0"},
                                      {SeKind::HC1, "hc1"},

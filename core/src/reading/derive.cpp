@@ -52,12 +52,6 @@ Column numeric_column(const std::string& name, std::size_t rows) {
     return c;
 }
 
-std::string where(const Table& table, std::size_t row) {
-    std::string s = table.row_location(row);
-    if (!table.source.empty()) s += " of " + table.source;
-    return s;
-}
-
 }  // namespace
 
 double centre_value(const Column& x, CentreAt at, double value) {
@@ -112,7 +106,7 @@ Column log_column(const Column& x, const Table& table, const std::string& new_na
     for (std::size_t i = 0; i < x.numbers.size(); ++i) {
         const double d = x.numbers[i];
         if (d <= 0.0)
-            throw InputError("column '" + x.name + "' has the value " + number_text(d) + " at " + where(table, i) +
+            throw InputError("column '" + x.name + "' has the value " + number_text(d) + " at " + table.row_place(i) +
                              ", but log needs values above 0; use log1p for data with zeros, or add a constant "
                              "first");
         out.numbers[i] = std::log(d);  // NaN (missing) stays NaN
@@ -126,7 +120,7 @@ Column log1p_column(const Column& x, const Table& table, const std::string& new_
     for (std::size_t i = 0; i < x.numbers.size(); ++i) {
         const double d = x.numbers[i];
         if (d <= -1.0)
-            throw InputError("column '" + x.name + "' has the value " + number_text(d) + " at " + where(table, i) +
+            throw InputError("column '" + x.name + "' has the value " + number_text(d) + " at " + table.row_place(i) +
                              ", but log1p needs values above -1; add a constant first");
         out.numbers[i] = std::log1p(d);
     }

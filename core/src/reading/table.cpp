@@ -50,4 +50,10 @@ std::string Table::row_location(std::size_t row) const {
     return "row " + std::to_string(row + 1);
 }
 
+std::string Table::row_place(std::size_t row) const {
+    std::string s = row_location(row);
+    if (!source.empty()) s += " of " + source;
+    return s;
+}
+
 }  // namespace moderato

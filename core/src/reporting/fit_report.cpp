@@ -45,6 +45,11 @@ void write_rows(JsonWriter& w, const FitResult& f) {
 
 void write_model(JsonWriter& w, const FitResult& f) {
     w.field("family", to_string(f.family));
+    if (count_outcome(f.family)) {
+        w.key("exposure");
+        if (f.exposure.empty()) w.null();
+        else w.value(f.exposure);
+    }
     w.field("standard_errors", standard_errors_name(f.se));
     if (f.se == SeKind::Cluster) w.field("clusters", f.n_clusters);
     w.field("level", f.level);
@@ -92,9 +97,29 @@ void write_fit_statistics(JsonWriter& w, const FitResult& f) {
     if (linear) return;
     w.field("deviance", f.deviance);
     w.field("null_deviance", f.null_deviance);
+    w.field("null_log_likelihood", f.null_log_likelihood);
     w.field("r2_mcfadden", f.mcfadden_r2);
     w.field("iterations", f.iterations);
     w.field("converged", f.converged);
+    if (f.dispersion) {
+        w.key("dispersion").begin_object();
+        w.field("alpha", f.dispersion->alpha);
+        w.field("se", f.dispersion->std_error);
+        w.field("low", f.dispersion->ci_lower);
+        w.field("high", f.dispersion->ci_upper);
+        w.end_object();
+    }
+    if (f.overdispersion) {
+        const Overdispersion& o = *f.overdispersion;
+        w.key("overdispersion").begin_object();
+        w.field("pearson_chi2", o.pearson_chi2);
+        w.field("df", o.df);
+        w.field("pearson_ratio", o.pearson_ratio);
+        w.field("alpha_estimate", o.alpha_estimate);
+        w.field("test_value", o.test_value);
+        w.field("p", o.p_value);
+        w.end_object();
+    }
 }
 
 // The model without its product terms, on the same rows.
@@ -142,12 +167,27 @@ std::string pad_right(const std::string& s, std::size_t w) {
     return have >= w ? s : s + std::string(w - have, ' ');
 }
 
+std::string model_heading(const FitResult& f, const std::string& outcome) {
+    if (f.multilevel) return "Multilevel linear model of " + outcome;
+    const std::string scale = model_scale_text(f.family, !f.exposure.empty()) + " scale";
+    switch (f.family) {
+        case Family::Linear:
+            break;
+        case Family::Logistic:
+            return "Logistic model of " + outcome + " (probability that " + outcome + " = 1, " + scale + ")";
+        case Family::Probit:
+            return "Probit model of " + outcome + " (probability that " + outcome + " = 1, " + scale + ")";
+        case Family::Poisson:
+        case Family::NegativeBinomial:
+            return std::string(f.family == Family::Poisson ? "Poisson" : "Negative binomial (NB2)") + " model of " +
+                   outcome + " (" + (f.exposure.empty() ? "counts" : "counts per unit of " + f.exposure) + ", " +
+                   scale + ")";
+    }
+    return "Linear model of " + outcome;
+}
+
 void write_heading(std::ostringstream& o, const FitResult& f, const std::string& outcome) {
-    const bool linear = f.family == Family::Linear;
-    o << (f.multilevel ? "Multilevel linear model"
-          : linear     ? "Linear model"
-                       : "Logistic model")
-      << " of " << outcome << (linear ? "" : " (probability that " + outcome + " = 1, log-odds scale)") << "\n";
+    o << model_heading(f, outcome) << "\n";
     const auto count = [](std::size_t k) { return format_count(static_cast<long long>(k)); };
     o << "n = " << count(f.n) << " rows used";
     if (f.n_excluded > 0) {
@@ -219,8 +259,16 @@ void write_fit_statistics_text(std::ostringstream& o, const FitResult& f) {
             o << "All terms: F(" << df_text(f.f_df1) << ", " << df_text(f.f_df2) << ") = " << num(f.f_statistic) << ", "
               << p_clause(f.f_p_value) << "\n";
     } else {
-        o << "deviance " << num(f.deviance) << " · null deviance " << num(f.null_deviance) << " · McFadden R² "
-          << num(f.mcfadden_r2) << "\n";
+        o << "deviance " << num(f.deviance);
+        if (!std::isnan(f.null_deviance)) o << " · null deviance " << num(f.null_deviance);
+        o << " · McFadden R² " << num(f.mcfadden_r2) << "\n";
+        if (f.dispersion)
+            o << "dispersion α " << num(f.dispersion->alpha) << " (SE " << num(f.dispersion->std_error) << "; "
+              << level_text(f.level) << " interval " << format_range(f.dispersion->ci_lower, f.dispersion->ci_upper)
+              << "): variance = mean + α·mean²\n";
+        if (f.overdispersion)
+            o << "overdispersion: Pearson χ²/df " << num(f.overdispersion->pearson_ratio) << " · Cameron & Trivedi z "
+              << num(f.overdispersion->test_value) << ", one-sided " << p_clause(f.overdispersion->p_value) << "\n";
         o << "All terms: likelihood-ratio χ²(" << df_text(f.lr_df) << ") = " << num(f.lr_statistic) << ", "
           << p_clause(f.lr_p_value) << " · " << f.iterations << " iterations" << (f.converged ? "" : " (not converged)")
           << "\n";
@@ -258,7 +306,8 @@ void write_notes_text(std::ostringstream& o, const FitResult& f) {
     }
     o << "\nCaution: regression estimates from observational data are associations, not causal effects.\n";
     if (f.family != Family::Linear)
-        o << "Caution: a product coefficient on the log-odds scale is not the interaction on the probability scale.\n";
+        o << "Caution: a product coefficient on the " << model_scale_text(f.family, !f.exposure.empty())
+          << " scale is not the interaction on the " << outcome_scale_text(f.family, f.exposure) << " scale.\n";
 }
 
 }  // namespace

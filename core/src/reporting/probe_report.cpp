@@ -187,8 +187,10 @@ std::string regions_text(const std::vector<Region>& regions) {
 
 void write_heading(std::ostringstream& o, const ProbeResult& r, const FitResult& fit) {
     const bool outcome = r.scale == ProbeScale::Outcome;
+    const std::string scale =
+        outcome ? outcome_scale_text(fit.family, fit.exposure) : model_scale_text(fit.family, !fit.exposure.empty());
     o << "Effect of " << r.focal << " at chosen values of " << r.moderator
-      << (outcome ? " (probability scale)" : (fit.family == Family::Logistic ? " (log-odds scale)" : "")) << "\n";
+      << (scale.empty() ? std::string() : " (" + scale + " scale)") << "\n";
     o << "Standard errors: " << standard_errors_text(fit.se) << " · " << level_text(r.level) << " intervals · "
       << (std::isinf(r.df) ? std::string("z") : "t with " + format_df(r.df) + " df") << " · n = " << fit.n << "\n";
     if (!r.categorical_moderator)
@@ -199,7 +201,7 @@ void write_heading(std::ostringstream& o, const ProbeResult& r, const FitResult&
 
 // moderator value, effect, interval (low, high), SE, test value, p: the one
 // order of every conditional-effects table of ours.
-void write_effects_table(std::ostringstream& o, const ProbeResult& r) {
+void write_effects_table(std::ostringstream& o, const ProbeResult& r, const FitResult& fit) {
     const std::string first = r.categorical_moderator ? "level of " + r.moderator : r.moderator;
     const int w = static_cast<int>(std::max<std::size_t>(18, first.size()));
     char line[512];
@@ -216,6 +218,14 @@ void write_effects_table(std::ostringstream& o, const ProbeResult& r) {
         beyond |= e.beyond_data;
     }
     if (beyond) o << "  * beyond the data (extrapolation)\n";
+    if (!r.rate_ratios.empty()) {
+        o << "  as rate ratios (the factor on the " << (fit.exposure.empty() ? "expected count" : "rate") << " for "
+          << (r.binary_focal ? r.focal + " 1 against 0" : "one unit more of " + r.focal) << "):";
+        for (const RateRatio& q : r.rate_ratios)
+            o << (&q == &r.rate_ratios.front() ? " " : "; ") << (q.level.empty() ? num(q.moderator_value) : q.level)
+              << ": " << num(q.ratio) << " (" << format_range(q.ci_lower, q.ci_upper) << ")";
+        o << "\n";
+    }
     if (r.group_slopes)
         o << "  groups' own slopes of " << r.focal << ": the effect ± "
           << num(r.group_slopes->critical_value * r.group_slopes->sd) << " holds " << level_text(r.level)
@@ -262,8 +272,9 @@ void write_comparisons_text(std::ostringstream& o, const ProbeResult& r, const F
     if (r.interaction_test)
         o << "\nJoint test that the effect of " << r.focal << " does not depend on " << r.moderator << " ("
           << standard_errors_text(fit.se) << " standard errors"
-          << (r.scale == ProbeScale::Outcome ? ", log-odds scale" : "") << "): " << joint_test_text(*r.interaction_test)
-          << "\n";
+          << (r.scale == ProbeScale::Outcome ? ", " + model_scale_text(fit.family, !fit.exposure.empty()) + " scale"
+                                             : "")
+          << "): " << joint_test_text(*r.interaction_test) << "\n";
     if (r.slope_contrasts.empty()) return;
     o << "\nDifferences in the effect of " << r.focal << " between levels of " << r.moderator
       << " (second minus first)\n";
@@ -281,12 +292,12 @@ void write_comparisons_text(std::ostringstream& o, const ProbeResult& r, const F
     o << "  p-values " << adjustment_text(r.adjustment) << " over " << r.slope_contrasts.size() << " pairs\n";
 }
 
-void write_closing_text(std::ostringstream& o, const ProbeResult& r) {
+void write_closing_text(std::ostringstream& o, const ProbeResult& r, const FitResult& fit) {
     if (r.interaction_effect) {
         const auto& ie = *r.interaction_effect;
-        o << "\nInteraction on the probability scale (" << to_string(ie.kind) << ", Ai & Norton): " << num(ie.estimate)
-          << " (interval " << format_range(ie.ci_lower, ie.ci_upper) << ", SE " << num(ie.std_error) << ", p "
-          << format_p_value(ie.p_value) << ")\n";
+        o << "\nInteraction on the " << outcome_scale_text(fit.family, fit.exposure) << " scale (" << to_string(ie.kind)
+          << ", Ai & Norton): " << num(ie.estimate) << " (interval " << format_range(ie.ci_lower, ie.ci_upper)
+          << ", SE " << num(ie.std_error) << ", p " << format_p_value(ie.p_value) << ")\n";
     }
     if (!r.notes.empty()) {
         o << "\nNotes:\n";
@@ -304,6 +315,19 @@ void write_probe_fields(JsonWriter& w, const ProbeResult& r) {
     write_regions(w, r);
     write_crossings(w, r);
     write_comparisons(w, r);
+    if (!r.rate_ratios.empty()) {
+        w.key("rate_ratios").begin_array();
+        for (const RateRatio& q : r.rate_ratios) {
+            w.begin_object();
+            if (q.level.empty()) w.field("moderator_value", q.moderator_value);
+            else w.field("level", q.level);
+            w.field("ratio", q.ratio);
+            w.field("low", q.ci_lower);
+            w.field("high", q.ci_upper);
+            w.end_object();
+        }
+        w.end_array();
+    }
     if (r.interaction_effect) {
         w.key("interaction_on_outcome_scale").begin_object();
         w.field("kind", to_string(r.interaction_effect->kind));
@@ -317,11 +341,11 @@ void write_probe_fields(JsonWriter& w, const ProbeResult& r) {
 std::string probe_to_text(const ProbeResult& r, const FitResult& fit) {
     std::ostringstream o;
     write_heading(o, r, fit);
-    write_effects_table(o, r);
+    write_effects_table(o, r, fit);
     write_regions_text(o, r);
     write_crossings_text(o, r);
     write_comparisons_text(o, r, fit);
-    write_closing_text(o, r);
+    write_closing_text(o, r, fit);
     return o.str();
 }
 

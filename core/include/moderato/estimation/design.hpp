@@ -84,6 +84,7 @@ struct Design {
     Eigen::MatrixXd X;         // n x p
     Eigen::VectorXd y;         // n
     Eigen::VectorXd weights;   // n, or empty
+    Eigen::VectorXd offset;    // n: log exposure of a count model, or empty
     std::vector<int> cluster;  // n cluster codes 0..G-1, or empty
     int n_clusters = 0;
     std::vector<std::string> cluster_names;  // G
@@ -99,6 +100,7 @@ struct Design {
     std::size_t n_excluded = 0;
     std::vector<Exclusion> exclusions;
     std::vector<std::string> notes;
+    std::vector<std::string> warnings;  // about the data, for the fit's warnings
     std::string outcome;
     // Numeric columns of the model's terms over the used rows.
     std::map<std::string, NumericSummary> summaries;
@@ -125,8 +127,10 @@ struct Design {
     int column_of(const std::vector<Atom>& atoms) const;
 };
 
-// Throws InputError for: unknown columns, non-numeric outcome, logistic
-// outcome not 0/1, a categorical column raised to a power, constant
+// Throws InputError for: unknown columns, non-numeric outcome, a 0/1
+// family's outcome not 0/1, a count family's outcome negative, an outcome
+// that never varies (generalized families), an exposure <= 0 or named for a
+// family without a log link, a categorical column raised to a power, constant
 // predictors (with an intercept), weights <= 0 or non-numeric, a single
 // cluster or group, no complete rows, and n <= p. A multilevel model's
 // centring options are applied first (group_centring.hpp).

@@ -1,17 +1,19 @@
 // Regression diagnostics of a fitted model: leverage, standardised and
 // studentised residuals, Cook's distance, Pearson and deviance residuals for
-// a logistic fit, normal plotting positions for the quantile plot, binned
-// residual means, and the rows that common rules of thumb flag.
+// a generalized fit (logistic, probit, Poisson, negative binomial), normal plotting positions for the quantile plot,
+// binned residual means, and the rows that common rules of thumb flag.
 //
 // Definitions (p = rank of the design, the estimable columns only; w_i the
 // fit's weights, 1 when there are none):
 //   leverage       h_i = v_i x_i' (X' V X)^{-1} x_i with v_i = w_i (linear) or
-//                  w_i mu_i (1 - mu_i) (logistic: the IRLS weights at the
-//                  estimate); computed from the QR factor of V^{1/2} X.
-//   Pearson        linear sqrt(w_i) e_i; logistic sqrt(w_i) (y_i - mu_i) / sqrt(mu_i (1 - mu_i))
-//   deviance       logistic: sign(y_i - mu_i) sqrt(w_i d_i), d_i the unit deviance
+//                  w_i (dmu/deta)^2 / V(mu_i) (generalized: the IRLS weights
+//                  at the estimate; V(mu) = mu (1 - mu) for 0/1 outcomes, mu
+//                  for Poisson, mu + alpha mu^2 for the negative binomial);
+//                  computed from the QR factor of V^{1/2} X.
+//   Pearson        linear sqrt(w_i) e_i; generalized sqrt(w_i) (y_i - mu_i) / sqrt(V(mu_i))
+//   deviance       generalized: sign(y_i - mu_i) sqrt(w_i d_i), d_i the unit deviance
 //   standardised   Pearson / sqrt(phi (1 - h_i)) with phi = sum w e^2 / (n - p)
-//                  (linear) or 1 (logistic) — "internally studentised"
+//                  (linear) or 1 (generalized) — "internally studentised"
 //   studentised    linear only: Pearson / sqrt(s_(i)^2 (1 - h_i)) with the
 //                  variance s_(i)^2 of the fit without row i — "externally
 //                  studentised" (t with n - p - 1 df under the model)
@@ -77,7 +79,7 @@ struct Diagnostics {
     // The residual each plot shows and the rules use, and what it is called.
     // Linear: studentised ("externally studentised residual"); logistic:
     // standardised Pearson residual.
-    const Eigen::VectorXd& check_residual() const { return family == Family::Logistic ? standardised : studentised; }
+    const Eigen::VectorXd& check_residual() const { return generalized(family) ? standardised : studentised; }
     std::string check_residual_name;
     // For the residual-against-fitted plot: linear unweighted: residuals
     // ("residual"); weighted: Pearson ("weighted residual √w·e"); logistic:
@@ -90,7 +92,7 @@ struct Diagnostics {
     // logistic: the standardised deviance residuals (closer to normal than
     // Pearson ones for 0/1 data).
     const Eigen::VectorXd& quantile_residual() const {
-        return family == Family::Logistic ? standardised_deviance : studentised;
+        return generalized(family) ? standardised_deviance : studentised;
     }
     std::string quantile_residual_name;
 

@@ -45,6 +45,26 @@ struct NestedComparison {
     WaldTest wald;
 };
 
+// The negative binomial's dispersion: variance mu + alpha mu^2.
+struct Dispersion {
+    double alpha = std::numeric_limits<double>::quiet_NaN();
+    double std_error = std::numeric_limits<double>::quiet_NaN();  // under the fit's covariance kind
+    double ci_lower = std::numeric_limits<double>::quiet_NaN();   // alpha exp(-+ q se / alpha)
+    double ci_upper = std::numeric_limits<double>::quiet_NaN();
+};
+
+// Whether a Poisson model's counts vary more than it allows: Pearson's
+// chi-square over its residual df, and the Cameron & Trivedi (1990)
+// regression test of Var = mu + alpha mu^2 against alpha = 0 (the t of the
+// no-intercept OLS of ((y - mu)^2 - y) / mu on mu; one-sided p from the
+// normal).
+struct Overdispersion {
+    double pearson_chi2 = 0, df = 0, pearson_ratio = 0;
+    double alpha_estimate = 0;  // the auxiliary regression's coefficient
+    double test_value = 0, p_value = 1;
+    bool evident() const { return p_value < 0.05 || pearson_ratio > 1.5; }
+};
+
 struct FitResult {
     Family family = Family::Linear;
     SeKind se = SeKind::Classical;
@@ -66,12 +86,16 @@ struct FitResult {
     // overall test of all non-intercept terms: F (linear, chosen covariance) or LR chi-square (logistic)
     double f_statistic = 0, f_df1 = 0, f_df2 = 0, f_p_value = 0;
     double log_likelihood = 0, aic = 0, bic = 0;
-    // logistic
-    double deviance = 0, null_deviance = 0, mcfadden_r2 = 0;
+    // generalized families (deviance = -2 log-likelihood for 0/1 outcomes;
+    // a count model's is against the saturated model, and its null deviance NaN)
+    double deviance = 0, null_deviance = 0, mcfadden_r2 = 0, null_log_likelihood = 0;
     double lr_statistic = 0, lr_df = 0, lr_p_value = 0;
     int iterations = 0;
     bool converged = true;
-    bool separation = false;  // (quasi-)complete separation detected
+    bool separation = false;                       // (quasi-)complete separation detected
+    std::string exposure;                          // count models: the exposure column, or empty
+    std::optional<Dispersion> dispersion;          // negative binomial
+    std::optional<Overdispersion> overdispersion;  // Poisson
 
     std::optional<NestedComparison> comparison;
     std::vector<WaldTest> wald_tests;
@@ -82,7 +106,7 @@ struct FitResult {
     // for probing (that of the product terms under the chosen rule).
     std::optional<MultilevelResult> multilevel;
 
-    Eigen::VectorXd fitted;     // linear predictor scale (probabilities for logistic)
+    Eigen::VectorXd fitted;     // the mean: fitted values, probabilities or expected counts (with the exposure)
     Eigen::VectorXd residuals;  // y - fitted (response residuals)
 
     // Model terms before dummy expansion ("x×region") and their columns.

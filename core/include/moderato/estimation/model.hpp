@@ -8,7 +8,12 @@
 
 namespace moderato {
 
-enum class Family { Linear, Logistic };
+// Linear: least squares. Logistic and Probit: a 0/1 outcome. Poisson and
+// NegativeBinomial (NB2, variance mu + alpha mu^2): a count outcome with a
+// log link, optionally per unit of an exposure column.
+enum class Family { Linear, Logistic, Probit, Poisson, NegativeBinomial };
+// How the linear predictor maps to the outcome's mean.
+enum class Link { Identity, Logit, Probit, Log };
 enum class SeKind { Classical, HC0, HC1, HC2, HC3, HC4, Cluster };
 // Multilevel (linear mixed) models: how the variance components are
 // estimated, the shape of the random-effects covariance, and the degrees of
@@ -17,7 +22,20 @@ enum class MixedEstimation { Reml, Ml };
 enum class RandomCovariance { Full, Diagonal };
 enum class FixedEffectDf { Normal, BetweenWithin, Satterthwaite };
 
-const char* to_string(Family f);
+const char* to_string(Family f);  // "linear", "logistic", "probit", "poisson", "negative-binomial"
+Link link_of(Family f);
+// A generalized linear model (every family but Linear): fitted by Newton's
+// method, tested with z, no R-squared.
+inline bool generalized(Family f) { return f != Family::Linear; }
+inline bool binary_outcome(Family f) { return f == Family::Logistic || f == Family::Probit; }
+inline bool count_outcome(Family f) { return f == Family::Poisson || f == Family::NegativeBinomial; }
+// The scale a generalized model's coefficients live on, for readers:
+// "log-odds", "probit", "log expected count" or "log rate" (with an exposure);
+// "" for a linear model.
+std::string model_scale_text(Family f, bool exposure);
+// The outcome's own scale: "probability", "expected count", or "rate per unit
+// of EXPOSURE"; "" for a linear model.
+std::string outcome_scale_text(Family f, const std::string& exposure);
 const char* to_string(SeKind s);  // "classical", "hc0", ..., "cluster"
 // Parse "classical", "hc0".."hc4", "cluster"; InputError otherwise.
 SeKind parse_se_kind(const std::string& text);
@@ -61,8 +79,9 @@ struct ModelSpec {
     bool intercept = true;
     Family family = Family::Linear;
     SeKind se = SeKind::Classical;
-    std::string weights;  // empty: none
-    std::string cluster;  // empty: none (required when se == Cluster)
+    std::string weights;   // empty: none
+    std::string cluster;   // empty: none (required when se == Cluster)
+    std::string exposure;  // count models: rows' exposure (offset log exposure); empty: none
     double level = 0.95;
     std::map<std::string, std::string> reference_levels;  // categorical column -> reference level
     std::vector<std::vector<std::string>> wald_tests;     // sets of term labels to test jointly

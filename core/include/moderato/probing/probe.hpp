@@ -161,15 +161,26 @@ struct GroupSlopeSpread {
     double sd = 0, critical_value = 0;
 };
 
+// A count model's focal effect as a ratio, exp(effect on the log scale): the
+// factor by which the expected count (or rate) changes for one unit more of
+// the focal predictor (from 0 to 1 for a 0/1 one) at a moderator value, with
+// the exponentiated interval.
+struct RateRatio {
+    double moderator_value = 0;
+    std::string level;  // categorical moderator
+    double ratio = 0, ci_lower = 0, ci_upper = 0;
+};
+
 struct ProbeResult {
     std::string outcome, focal, moderator;
-    ProbeScale scale = ProbeScale::Model;                 // Outcome: the probability scale
+    ProbeScale scale = ProbeScale::Model;                 // Outcome: the outcome's own scale
     Averaging averaging = Averaging::Sample;              // outcome scale only
     std::optional<InteractionEffect> interaction_effect;  // outcome scale
     bool categorical_moderator = false;
     // A numeric moderator that takes only the values 0 and 1 among the used
     // rows: its effects at 0 and 1 are reported, no region of significance.
     bool binary_moderator = false;
+    bool binary_focal = false;  // the focal predictor takes only 0 and 1 among the used rows
     double level = 0.95, df = 0, critical_t = 0;
     std::pair<double, double> observed_range{0, 0};  // moderator, used rows
     std::pair<double, double> focal_range{0, 0};
@@ -193,6 +204,7 @@ struct ProbeResult {
     std::vector<std::string> cautions;  // what a reader must not overlook
     EffectFunction effect_function;     // for plots and the slider
     std::optional<GroupSlopeSpread> group_slopes;
+    std::vector<RateRatio> rate_ratios;  // count models, at the effects' moderator values
 };
 
 // Whether a numeric moderator's default values are its percentiles rather

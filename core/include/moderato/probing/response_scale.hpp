@@ -1,9 +1,12 @@
-// Logistic models on the probability scale: conditional marginal effects of
+// Generalized models on the outcome's own scale (the probability of a 0/1
+// outcome; the expected count, or the rate per unit of exposure, of a count):
+// conditional marginal effects of
 // the focal predictor at moderator values (averaged over the sample, or at
 // chosen covariate values) and the interaction effect as a cross-partial
 // derivative or double difference (Ai & Norton 2003), with delta-method
-// standard errors. A product coefficient on the log-odds scale is not the
-// interaction on the probability scale; these are.
+// standard errors. A product coefficient on the log-odds, probit or log scale
+// is not the interaction on the outcome's scale; these are. (The names say
+// "probability" for history; they serve every generalized family.)
 #pragma once
 
 #include <map>
@@ -22,7 +25,9 @@ struct ScaleRequest {
     std::map<std::string, double> values;  // held values (AtValues), and always any second moderator
 };
 
-// The focal predictor's effect on P(y = 1) with the moderator at m: the
+// "P(y = 1)", "the expected count of y" or "the rate of y per unit of E".
+std::string outcome_scale_words(const FitResult& fit, const std::string& outcome);
+// The focal predictor's effect on the outcome's scale with the moderator at m: the
 // derivative for a continuous focal, the discrete change from 0 to 1 for a
 // 0/1 focal. Analytic delta-method standard error.
 EffectPoint probability_effect(const Design& d, const FitResult& fit, const ScaleRequest& request, double m);

@@ -75,6 +75,8 @@ public:
 
     // Human-readable location of a data row: "line 17" (or "row 17").
     std::string row_location(std::size_t row) const;
+    // The same with the source named: "line 17 of visits.csv".
+    std::string row_place(std::size_t row) const;
 };
 
 }  // namespace moderato

@@ -1,0 +1,279 @@
+#include "estimation/glm_fit.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+#include "estimation/glm_family.hpp"
+#include "moderato/estimation/distributions.hpp"
+
+namespace moderato::detail {
+
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+constexpr double kInf = std::numeric_limits<double>::infinity();
+
+double prior(const Design& d, Eigen::Index i) { return d.weights.size() ? d.weights[i] : 1.0; }
+
+Eigen::VectorXd linear_predictor(const Design& d, const Eigen::MatrixXd& X, const Eigen::VectorXd& beta) {
+    Eigen::VectorXd eta = X * beta;
+    if (d.offset.size()) eta += d.offset;
+    return eta;
+}
+
+double total_loglik(const Design& d, Family f, const Eigen::VectorXd& eta, double alpha) {
+    long double ll = 0;
+    for (Eigen::Index i = 0; i < eta.size(); ++i) ll += prior(d, i) * row_loglik(f, d.y[i], eta[i], alpha);
+    return static_cast<double>(ll);
+}
+
+bool is_kept(const std::vector<int>& kept, Eigen::Index j) {
+    return std::binary_search(kept.begin(), kept.end(), static_cast<int>(j));
+}
+
+// Starting values: one weighted least-squares step on the usual working
+// values ((y + 1/2) / 2 for a 0/1 outcome, y + 1/2 for a count).
+Eigen::VectorXd start_beta(const Design& d, const Eigen::MatrixXd& X, Family f, const LeastSquaresOptions& lso) {
+    const Eigen::Index n = X.rows();
+    Eigen::VectorXd z(n), v(n);
+    for (Eigen::Index i = 0; i < n; ++i) {
+        if (binary_outcome(f)) {
+            const double mu = (d.y[i] + 0.5) / 2.0;
+            z[i] = f == Family::Probit ? dist::normal_quantile(mu) : std::log(mu / (1 - mu));
+            v[i] = prior(d, i) * mu * (1 - mu);
+        } else {
+            const double mu = d.y[i] + 0.5;
+            z[i] = std::log(mu) - (d.offset.size() ? d.offset[i] : 0.0);
+            v[i] = prior(d, i) * mu;
+        }
+    }
+    Eigen::VectorXd beta = least_squares(X, z, v, lso).coef;
+    for (Eigen::Index j = 0; j < beta.size(); ++j)
+        if (std::isnan(beta[j])) beta[j] = 0;
+    return beta;
+}
+
+struct State {
+    Eigen::VectorXd beta, eta;
+    double loglik = 0;
+    std::vector<int> kept;
+    bool kept_known = false;
+};
+
+struct Weights {
+    Eigen::VectorXd v, r;  // prior x observed information weight, prior x score
+};
+
+Weights weights_at(const Design& d, Family f, const Eigen::VectorXd& eta, double alpha) {
+    const Eigen::Index n = eta.size();
+    Weights w{Eigen::VectorXd(n), Eigen::VectorXd(n)};
+    for (Eigen::Index i = 0; i < n; ++i) {
+        const RowTerms t = row_terms(f, d.y[i], eta[i], alpha);
+        w.v[i] = prior(d, i) * t.weight;
+        w.r[i] = prior(d, i) * t.score;
+    }
+    return w;
+}
+
+// Newton's method for beta at a fixed alpha, from s.beta, with step halving.
+// Returns the iterations used and whether the last step was negligible.
+std::pair<int, bool> newton_beta(const Design& d, const Eigen::MatrixXd& X, Family f, double alpha, int max_iterations,
+                                 const LeastSquaresOptions& lso, State& s) {
+    const Eigen::Index n = X.rows(), p = X.cols();
+    const Eigen::VectorXd zero = Eigen::VectorXd::Zero(n);
+    for (int it = 1; it <= max_iterations; ++it) {
+        const Weights w = weights_at(d, f, s.eta, alpha);
+        const auto ls = least_squares(X, zero, w.v, lso);
+        if (!s.kept_known) {
+            s.kept = ls.kept;
+            s.kept_known = true;
+        }
+        if (ls.kept != s.kept) return {it, false};  // the rank changed while iterating: separation territory
+        const Eigen::Index k = static_cast<Eigen::Index>(s.kept.size());
+        Eigen::VectorXd g(k);
+        for (Eigen::Index c = 0; c < k; ++c) g[c] = X.col(s.kept[static_cast<std::size_t>(c)]).dot(w.r);
+        const Eigen::VectorXd stepK = ls.inverse_factor * (ls.inverse_factor.transpose() * g);
+        Eigen::VectorXd step = Eigen::VectorXd::Zero(p);
+        for (Eigen::Index c = 0; c < k; ++c) step[s.kept[static_cast<std::size_t>(c)]] = stepK[c];
+        double t = 1.0, ll_new = -kInf;
+        Eigen::VectorXd beta_new, eta_new;
+        for (int halving = 0; halving < 30; ++halving, t *= 0.5) {
+            beta_new = s.beta + t * step;
+            eta_new = linear_predictor(d, X, beta_new);
+            ll_new = total_loglik(d, f, eta_new, alpha);
+            if (ll_new >= s.loglik - 1e-12 * (1 + std::abs(s.loglik))) break;
+        }
+        bool small = true;
+        for (Eigen::Index j = 0; j < p; ++j)
+            if (std::abs(t * step[j]) > 1e-10 * (1 + std::abs(s.beta[j]))) small = false;
+        s.beta = beta_new;
+        s.eta = eta_new;
+        s.loglik = ll_new;
+        if (small) return {it, true};
+    }
+    return {max_iterations, false};
+}
+
+// The mean, the scores and the information factor at the estimate; the
+// factor decides which columns are estimable (under separation the weights
+// can collapse the rank).
+GlmFit finish(const Design& d, const Eigen::MatrixXd& X, Family f, double alpha, const LeastSquaresOptions& lso,
+              const State& s) {
+    GlmFit out;
+    const Eigen::Index n = X.rows();
+    const Weights w = weights_at(d, f, s.eta, alpha);
+    out.factor = least_squares(X, Eigen::VectorXd::Zero(n), w.v, lso);
+    out.beta = s.beta;
+    for (Eigen::Index j = 0; j < out.beta.size(); ++j)
+        if (!is_kept(out.factor.kept, j)) out.beta[j] = kNaN;
+    out.eta = s.eta;
+    out.mu.resize(n);
+    for (Eigen::Index i = 0; i < n; ++i) out.mu[i] = row_terms(f, d.y[i], s.eta[i], alpha).mu;
+    out.score = w.r;
+    out.loglik = s.loglik;
+    out.alpha = alpha;
+    return out;
+}
+
+State start_state(const Design& d, const Eigen::MatrixXd& X, Family f, double alpha, const LeastSquaresOptions& lso) {
+    State s;
+    s.beta = start_beta(d, X, f, lso);
+    s.eta = linear_predictor(d, X, s.beta);
+    s.loglik = total_loglik(d, f, s.eta, alpha);
+    return s;
+}
+
+// alpha's score and curvature summed over the rows; the cross derivatives
+// X_K' (w * d2l/deta dalpha) when `cross` is given.
+struct AlphaSums {
+    double score = 0, curvature = 0;
+    Eigen::VectorXd per_row;  // prior x d loglik_i / d alpha
+    Eigen::VectorXd cross;    // prior x d2 loglik_i / d eta d alpha
+};
+
+AlphaSums alpha_sums(const Design& d, const Eigen::VectorXd& eta, double alpha) {
+    const Eigen::Index n = eta.size();
+    AlphaSums a{0, 0, Eigen::VectorXd(n), Eigen::VectorXd(n)};
+    long double score = 0, curvature = 0;
+    for (Eigen::Index i = 0; i < n; ++i) {
+        const AlphaTerms t = alpha_terms(d.y[i], eta[i], alpha);
+        a.per_row[i] = prior(d, i) * t.score;
+        a.cross[i] = prior(d, i) * t.cross;
+        score += a.per_row[i];
+        curvature += prior(d, i) * t.curvature;
+    }
+    a.score = static_cast<double>(score);
+    a.curvature = static_cast<double>(curvature);
+    return a;
+}
+
+// One Newton step for log alpha at fixed beta, halved until the likelihood
+// does not fall. Returns the change of log alpha.
+double newton_log_alpha(const Design& d, double& alpha, State& s) {
+    const AlphaSums a = alpha_sums(d, s.eta, alpha);
+    const double g = alpha * a.score, h = alpha * alpha * a.curvature + alpha * a.score;  // in theta = log alpha
+    double step = h < 0 ? -g / h : (g > 0 ? 1.0 : -1.0);
+    step = std::clamp(step, -5.0, 5.0);
+    for (int halving = 0; halving < 40; ++halving, step *= 0.5) {
+        const double trial = alpha * std::exp(step);
+        const double ll = total_loglik(d, Family::NegativeBinomial, s.eta, trial);
+        if (ll >= s.loglik - 1e-12 * (1 + std::abs(s.loglik))) {
+            alpha = trial;
+            s.loglik = ll;
+            return step;
+        }
+    }
+    return 0;
+}
+
+// The inverse of the negative Hessian of (beta_K, alpha) from the factor of
+// the beta block, (X_K' V X_K)^{-1} = A A', by the Schur complement of alpha.
+Eigen::MatrixXd joint_inverse(const Eigen::MatrixXd& X, const std::vector<int>& kept, const Eigen::MatrixXd& A,
+                              const AlphaSums& a) {
+    const Eigen::Index k = static_cast<Eigen::Index>(kept.size());
+    Eigen::VectorXd u(k);  // the negative cross block, -X_K' cross
+    for (Eigen::Index c = 0; c < k; ++c) u[c] = -X.col(kept[static_cast<std::size_t>(c)]).dot(a.cross);
+    const Eigen::VectorXd Bu = A * (A.transpose() * u);
+    const double schur = -a.curvature - u.dot(Bu);
+    Eigen::MatrixXd inv(k + 1, k + 1);
+    inv.topLeftCorner(k, k) = A * A.transpose() + Bu * Bu.transpose() / schur;
+    inv.topRightCorner(k, 1) = -Bu / schur;
+    inv.bottomLeftCorner(1, k) = -Bu.transpose() / schur;
+    inv(k, k) = 1 / schur;
+    return inv;
+}
+
+// Joint Newton steps on (beta_K, alpha) from the alternating solution, for
+// the last digits; stops when a step no longer raises the likelihood.
+void polish(const Design& d, const Eigen::MatrixXd& X, const LeastSquaresOptions& lso, double& alpha, State& s) {
+    for (int it = 0; it < 8; ++it) {
+        const GlmFit at = finish(d, X, Family::NegativeBinomial, alpha, lso, s);
+        const AlphaSums a = alpha_sums(d, s.eta, alpha);
+        const std::vector<int>& kept = at.factor.kept;
+        const Eigen::Index k = static_cast<Eigen::Index>(kept.size());
+        Eigen::VectorXd g(k + 1);
+        for (Eigen::Index c = 0; c < k; ++c) g[c] = X.col(kept[static_cast<std::size_t>(c)]).dot(at.score);
+        g[k] = a.score;
+        const Eigen::VectorXd step = joint_inverse(X, kept, at.factor.inverse_factor, a) * g;
+        State trial = s;
+        for (Eigen::Index c = 0; c < k; ++c) trial.beta[kept[static_cast<std::size_t>(c)]] += step[c];
+        const double trial_alpha = alpha + step[k];
+        if (!(trial_alpha > 0)) return;
+        trial.eta = linear_predictor(d, X, trial.beta);
+        trial.loglik = total_loglik(d, Family::NegativeBinomial, trial.eta, trial_alpha);
+        if (!(trial.loglik >= s.loglik)) return;
+        const bool small = std::abs(step[k]) <= 1e-13 * alpha;
+        s = std::move(trial);
+        alpha = trial_alpha;
+        if (small) return;
+    }
+}
+
+// From the Poisson fit and the moment estimate of alpha, alternate Newton for
+// beta at fixed alpha and for log alpha at fixed beta until neither moves,
+// then polish jointly. Iterations count the beta steps.
+GlmFit fit_negative_binomial(const Design& d, const Eigen::MatrixXd& X, int max_iterations,
+                             const LeastSquaresOptions& lso) {
+    State s = start_state(d, X, Family::Poisson, kNaN, lso);
+    auto [iterations, converged] = newton_beta(d, X, Family::Poisson, kNaN, max_iterations, lso, s);
+    long double excess = 0, mu2 = 0;
+    for (Eigen::Index i = 0; i < s.eta.size(); ++i) {
+        const double mu = std::exp(s.eta[i]), e = d.y[i] - mu;
+        excess += prior(d, i) * (e * e - d.y[i]);
+        mu2 += prior(d, i) * mu * mu;
+    }
+    double alpha = std::clamp(static_cast<double>(excess / mu2), 1e-2, 1e2);
+    s.loglik = total_loglik(d, Family::NegativeBinomial, s.eta, alpha);
+    converged = false;
+    for (int outer = 0; outer < max_iterations && !converged; ++outer) {
+        const auto [it, beta_done] = newton_beta(d, X, Family::NegativeBinomial, alpha, max_iterations, lso, s);
+        iterations += it;
+        const double moved = newton_log_alpha(d, alpha, s);
+        converged = beta_done && it == 1 && std::abs(moved) < 1e-10;
+        if (alpha < 1e-10) break;  // at the boundary: no overdispersion
+    }
+    if (alpha >= 1e-10) polish(d, X, lso, alpha, s);
+    GlmFit out = finish(d, X, Family::NegativeBinomial, alpha, lso, s);
+    const AlphaSums a = alpha_sums(d, s.eta, alpha);
+    out.joint_inverse = joint_inverse(X, out.factor.kept, out.factor.inverse_factor, a);
+    out.alpha_score = a.per_row;
+    out.iterations = iterations;
+    out.converged = converged;
+    return out;
+}
+
+}  // namespace
+
+GlmFit fit_glm(const Design& d, const Eigen::MatrixXd& X, Family family, int max_iterations,
+               const LeastSquaresOptions& lso) {
+    if (family == Family::NegativeBinomial) return fit_negative_binomial(d, X, max_iterations, lso);
+    State s = start_state(d, X, family, kNaN, lso);
+    const auto [iterations, converged] = newton_beta(d, X, family, kNaN, max_iterations, lso, s);
+    GlmFit out = finish(d, X, family, kNaN, lso, s);
+    out.iterations = iterations;
+    out.converged = converged;
+    return out;
+}
+
+}  // namespace moderato::detail
