@@ -212,6 +212,11 @@ void print_probe(const Arguments& a, const LoadedModel& m, const FitResult& fit,
     if (format != "json") return print_probe_text(fit, r, x);
     JsonWriter w = begin_output(a, m.spec);
     w.field("family", to_string(fit.family));
+    if (count_outcome(fit.family)) {
+        w.key("exposure");
+        if (fit.exposure.empty()) w.null();
+        else w.value(fit.exposure);
+    }
     w.field("standard_errors", standard_errors_name(fit.se));
     w.field("rows_used", fit.n);
     write_probe_fields(w, r);

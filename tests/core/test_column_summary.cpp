@@ -134,6 +134,26 @@ TEST(ColumnSummary, QuantilesInterpolateBetweenOrderStatistics) {
     EXPECT_TRUE(std::isnan(moderato::quantile_sorted({}, 0.5)));
 }
 
+// Selection gives the same order statistics as sorting (the definition), so
+// the same quantiles to the last bit, with ties, at the ends and for tiny n.
+TEST(ColumnSummary, QuantilesBySelectionEqualSortedOnes) {
+    std::uint64_t state = 20261205;
+    const auto next = [&] {
+        state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+        return static_cast<double>(state >> 40) / 1e3;
+    };
+    const std::vector<double> ps{0.0, 0.1, 0.1, 0.5, 0.9, 0.999, 1.0};
+    for (std::size_t n : {1u, 2u, 3u, 7u, 10u, 101u, 5000u}) {
+        std::vector<double> v(n);
+        for (double& x : v) x = std::floor(next() / 50);  // many ties
+        std::vector<double> sorted = v;
+        std::sort(sorted.begin(), sorted.end());
+        const std::vector<double> got = moderato::quantiles_by_selection(v, ps);
+        for (std::size_t k = 0; k < ps.size(); ++k)
+            EXPECT_EQ(got[k], moderato::quantile_sorted(sorted, ps[k])) << n << " " << ps[k];
+    }
+}
+
 TEST(ColumnSummary, CategoricalColumnCountsEachLevel) {
     Column c;
     c.name = "region";

@@ -117,10 +117,10 @@ NumericSummary numeric_summary(std::vector<double> values) {
     s.sd = n > 1 ? std::sqrt(static_cast<double>(ss / static_cast<long double>(n - 1))) : 0.0;
     const long double m2 = ss / static_cast<long double>(n), m3 = cube / static_cast<long double>(n);
     s.skew = m2 > 0 ? static_cast<double>(m3 / std::pow(m2, 1.5L)) : 0.0;
-    std::sort(values.begin(), values.end());
-    s.p10 = quantile_sorted(values, 0.10);
-    s.p50 = quantile_sorted(values, 0.50);
-    s.p90 = quantile_sorted(values, 0.90);
+    const std::vector<double> q = quantiles_by_selection(values, {0.10, 0.50, 0.90});
+    s.p10 = q[0];
+    s.p50 = q[1];
+    s.p90 = q[2];
     return s;
 }
 

@@ -429,7 +429,7 @@ std::optional<NestedComparison> nested_comparison(const Design& d, const FitOpti
     if (!generalized(f.family)) {
         linear_comparison(d, lso, ls, products, reduced_cols, f, cmp);
     } else {
-        auto red = detail::fit_glm(d, columns_of(d.X, reduced_cols), f.family, options.max_iterations, lso);
+        auto red = detail::fit_glm(d, columns_of(d.X, reduced_cols), f.family, options.max_iterations, lso, false);
         cmp.df1 = static_cast<double>(ls.kept.size() - red.factor.kept.size());
         cmp.lr_statistic = 2.0 * (f.log_likelihood - red.loglik);
         cmp.lr_p_value = dist::upper_p_chi2(cmp.lr_statistic, cmp.df1);

@@ -4,6 +4,7 @@
 // (private to core). The negative binomial (NB2) also has alpha's parts.
 #pragma once
 
+#include <array>
 #include <boost/math/special_functions/digamma.hpp>
 #include <boost/math/special_functions/trigamma.hpp>
 #include <cmath>
@@ -41,6 +42,18 @@ inline double log_normal_probability(double t) {
     if (t > 0) return std::log1p(-0.5 * std::erfc(t / std::numbers::sqrt2));
     if (t > -8) return std::log(normal_probability(t));
     return -0.5 * t * t - 0.5 * std::log(2 * std::numbers::pi) - std::log(mills_ratio(t));
+}
+
+// log(y!) = lgamma(y + 1): from a table for small whole counts (the common
+// case, evaluated on every row at every likelihood evaluation), else lgamma.
+inline double log_factorial(double y) {
+    static const auto table = [] {
+        std::array<double, 256> t{};
+        for (std::size_t k = 1; k < t.size(); ++k) t[k] = t[k - 1] + std::log(static_cast<double>(k));
+        return t;
+    }();
+    if (y >= 0 && y < 256 && y == std::floor(y)) return table[static_cast<std::size_t>(y)];
+    return std::lgamma(y + 1);
 }
 
 // lgamma(y + r) - lgamma(r), by a sum of logs for small whole y (where the
@@ -99,12 +112,12 @@ inline double row_loglik(Family f, double y, double eta, double alpha) {
         case Family::Probit:
             return log_normal_probability((2 * y - 1) * eta);
         case Family::Poisson:
-            return y * eta - std::exp(eta) - std::lgamma(y + 1);
+            return y * eta - std::exp(eta) - log_factorial(y);
         case Family::NegativeBinomial: {
             const double r = 1 / alpha, mu = std::exp(eta);
             // log(1 + alpha mu) without overflow for a large eta
             const double l1 = std::log1p(alpha * mu);
-            return log_rising(r, y) - std::lgamma(y + 1) - r * l1 + y * (std::log(alpha) + eta - l1);
+            return log_rising(r, y) - log_factorial(y) - r * l1 + y * (std::log(alpha) + eta - l1);
         }
         case Family::Linear:
             break;

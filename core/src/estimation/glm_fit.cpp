@@ -6,6 +6,7 @@
 
 #include "estimation/glm_family.hpp"
 #include "moderato/estimation/distributions.hpp"
+#include "support/parallel.hpp"
 
 namespace moderato::detail {
 
@@ -33,8 +34,9 @@ bool is_kept(const std::vector<int>& kept, Eigen::Index j) {
 }
 
 // Starting values: one weighted least-squares step on the usual working
-// values ((y + 1/2) / 2 for a 0/1 outcome, y + 1/2 for a count).
-Eigen::VectorXd start_beta(const Design& d, const Eigen::MatrixXd& X, Family f, const LeastSquaresOptions& lso) {
+// values ((y + 1/2) / 2 for a 0/1 outcome, y + 1/2 for a count); its QR
+// decides which columns are estimable (aliased ones start and stay at 0).
+LeastSquaresResult start_fit(const Design& d, const Eigen::MatrixXd& X, Family f, const LeastSquaresOptions& lso) {
     const Eigen::Index n = X.rows();
     Eigen::VectorXd z(n), v(n);
     for (Eigen::Index i = 0; i < n; ++i) {
@@ -48,17 +50,16 @@ Eigen::VectorXd start_beta(const Design& d, const Eigen::MatrixXd& X, Family f, 
             v[i] = prior(d, i) * mu;
         }
     }
-    Eigen::VectorXd beta = least_squares(X, z, v, lso).coef;
-    for (Eigen::Index j = 0; j < beta.size(); ++j)
-        if (std::isnan(beta[j])) beta[j] = 0;
-    return beta;
+    LeastSquaresResult ls = least_squares(X, z, v, lso);
+    for (Eigen::Index j = 0; j < ls.coef.size(); ++j)
+        if (std::isnan(ls.coef[j])) ls.coef[j] = 0;
+    return ls;
 }
 
 struct State {
     Eigen::VectorXd beta, eta;
     double loglik = 0;
-    std::vector<int> kept;
-    bool kept_known = false;
+    std::vector<int> kept;  // the estimable columns, from the QR of the start
 };
 
 struct Weights {
@@ -76,24 +77,61 @@ Weights weights_at(const Design& d, Family f, const Eigen::VectorXd& eta, double
     return w;
 }
 
+// X_K' diag(v) X_K, summed over blocks of rows in parallel.
+Eigen::MatrixXd weighted_cross_products(const Eigen::MatrixXd& X, const std::vector<int>& kept,
+                                        const Eigen::VectorXd& v, unsigned threads) {
+    constexpr Eigen::Index kBlock = 8192;
+    const Eigen::Index n = X.rows(), k = static_cast<Eigen::Index>(kept.size());
+    Eigen::MatrixXd M = Eigen::MatrixXd::Zero(k, k);
+    map_reduce_ordered<Eigen::MatrixXd>(
+        static_cast<std::size_t>((n + kBlock - 1) / kBlock), threads,
+        [&](std::size_t b) {
+            const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlock, rows = std::min(n, r0 + kBlock) - r0;
+            Eigen::MatrixXd S(rows, k);
+            const Eigen::ArrayXd root = v.segment(r0, rows).array().sqrt();
+            for (Eigen::Index c = 0; c < k; ++c)
+                S.col(c) = X.col(kept[static_cast<std::size_t>(c)]).segment(r0, rows).array() * root;
+            Eigen::MatrixXd part = Eigen::MatrixXd::Zero(k, k);
+            part.selfadjointView<Eigen::Lower>().rankUpdate(S.transpose());
+            return part;
+        },
+        [&](std::size_t, Eigen::MatrixXd&& part) { M += part; });
+    return M.selfadjointView<Eigen::Lower>();
+}
+
+// The Newton step on the kept columns, (X_K' V X_K)^{-1} X_K' r: by the
+// Cholesky factor of the cross-products (fast; the step's own rounding does
+// not move the estimate, which is where the score is zero), or by QR when the
+// cross-products are too ill-conditioned for it. Empty when the rank of
+// V^{1/2} X_K fell (weights collapsing under separation).
+Eigen::VectorXd newton_step(const Eigen::MatrixXd& X, const std::vector<int>& kept, const Weights& w,
+                            const LeastSquaresOptions& lso) {
+    const Eigen::Index k = static_cast<Eigen::Index>(kept.size());
+    Eigen::VectorXd g(k);
+    for (Eigen::Index c = 0; c < k; ++c) g[c] = X.col(kept[static_cast<std::size_t>(c)]).dot(w.r);
+    const Eigen::MatrixXd M = weighted_cross_products(X, kept, w.v, detail::resolve_threads(lso.threads));
+    const Eigen::LLT<Eigen::MatrixXd> llt(M);
+    if (llt.info() == Eigen::Success) {
+        const Eigen::VectorXd d = llt.matrixL().toDenseMatrix().diagonal();
+        if (d.minCoeff() > 1e-7 * d.maxCoeff()) return llt.solve(g);
+    }
+    Eigen::MatrixXd XK(X.rows(), k);
+    for (Eigen::Index c = 0; c < k; ++c) XK.col(c) = X.col(kept[static_cast<std::size_t>(c)]);
+    const auto ls = least_squares(XK, Eigen::VectorXd::Zero(X.rows()), w.v, lso);
+    if (static_cast<Eigen::Index>(ls.kept.size()) != k) return {};
+    return ls.inverse_factor * (ls.inverse_factor.transpose() * g);
+}
+
 // Newton's method for beta at a fixed alpha, from s.beta, with step halving.
 // Returns the iterations used and whether the last step was negligible.
 std::pair<int, bool> newton_beta(const Design& d, const Eigen::MatrixXd& X, Family f, double alpha, int max_iterations,
                                  const LeastSquaresOptions& lso, State& s) {
-    const Eigen::Index n = X.rows(), p = X.cols();
-    const Eigen::VectorXd zero = Eigen::VectorXd::Zero(n);
+    const Eigen::Index p = X.cols();
     for (int it = 1; it <= max_iterations; ++it) {
         const Weights w = weights_at(d, f, s.eta, alpha);
-        const auto ls = least_squares(X, zero, w.v, lso);
-        if (!s.kept_known) {
-            s.kept = ls.kept;
-            s.kept_known = true;
-        }
-        if (ls.kept != s.kept) return {it, false};  // the rank changed while iterating: separation territory
+        const Eigen::VectorXd stepK = newton_step(X, s.kept, w, lso);
+        if (stepK.size() == 0) return {it, false};  // the rank fell while iterating: separation territory
         const Eigen::Index k = static_cast<Eigen::Index>(s.kept.size());
-        Eigen::VectorXd g(k);
-        for (Eigen::Index c = 0; c < k; ++c) g[c] = X.col(s.kept[static_cast<std::size_t>(c)]).dot(w.r);
-        const Eigen::VectorXd stepK = ls.inverse_factor * (ls.inverse_factor.transpose() * g);
         Eigen::VectorXd step = Eigen::VectorXd::Zero(p);
         for (Eigen::Index c = 0; c < k; ++c) step[s.kept[static_cast<std::size_t>(c)]] = stepK[c];
         double t = 1.0, ll_new = -kInf;
@@ -119,11 +157,16 @@ std::pair<int, bool> newton_beta(const Design& d, const Eigen::MatrixXd& X, Fami
 // factor decides which columns are estimable (under separation the weights
 // can collapse the rank).
 GlmFit finish(const Design& d, const Eigen::MatrixXd& X, Family f, double alpha, const LeastSquaresOptions& lso,
-              const State& s) {
+              const State& s, bool factor = true) {
     GlmFit out;
     const Eigen::Index n = X.rows();
     const Weights w = weights_at(d, f, s.eta, alpha);
-    out.factor = least_squares(X, Eigen::VectorXd::Zero(n), w.v, lso);
+    if (factor) {
+        out.factor = least_squares(X, Eigen::VectorXd::Zero(n), w.v, lso);
+    } else {
+        out.factor.kept = s.kept;
+        out.factor.rank = static_cast<int>(s.kept.size());
+    }
     out.beta = s.beta;
     for (Eigen::Index j = 0; j < out.beta.size(); ++j)
         if (!is_kept(out.factor.kept, j)) out.beta[j] = kNaN;
@@ -138,7 +181,9 @@ GlmFit finish(const Design& d, const Eigen::MatrixXd& X, Family f, double alpha,
 
 State start_state(const Design& d, const Eigen::MatrixXd& X, Family f, double alpha, const LeastSquaresOptions& lso) {
     State s;
-    s.beta = start_beta(d, X, f, lso);
+    LeastSquaresResult ls = start_fit(d, X, f, lso);
+    s.beta = std::move(ls.coef);
+    s.kept = std::move(ls.kept);
     s.eta = linear_predictor(d, X, s.beta);
     s.loglik = total_loglik(d, f, s.eta, alpha);
     return s;
@@ -266,11 +311,11 @@ GlmFit fit_negative_binomial(const Design& d, const Eigen::MatrixXd& X, int max_
 }  // namespace
 
 GlmFit fit_glm(const Design& d, const Eigen::MatrixXd& X, Family family, int max_iterations,
-               const LeastSquaresOptions& lso) {
+               const LeastSquaresOptions& lso, bool covariance_factor) {
     if (family == Family::NegativeBinomial) return fit_negative_binomial(d, X, max_iterations, lso);
     State s = start_state(d, X, family, kNaN, lso);
     const auto [iterations, converged] = newton_beta(d, X, family, kNaN, max_iterations, lso, s);
-    GlmFit out = finish(d, X, family, kNaN, lso, s);
+    GlmFit out = finish(d, X, family, kNaN, lso, s, covariance_factor);
     out.iterations = iterations;
     out.converged = converged;
     return out;

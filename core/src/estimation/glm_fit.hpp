@@ -1,6 +1,9 @@
 // Maximum likelihood for the generalized families (private to core): Newton's
-// method with step halving for logistic, probit and Poisson models, each step
-// a weighted least-squares solve by QR so X'WX is never formed; the negative
+// method with step halving for logistic, probit and Poisson models. The start
+// is a weighted least-squares solve by QR (which columns are estimable); the
+// steps solve with the Cholesky factor of X'WX (QR when that is too
+// ill-conditioned); the covariance factor at the estimate is a QR again, so
+// the standard errors never depend on X'WX. The negative
 // binomial alternates Newton steps for beta at fixed alpha with Newton steps
 // for log alpha, then polishes (beta, alpha) jointly.
 #pragma once
@@ -31,8 +34,10 @@ struct GlmFit {
 };
 
 // Fits `family` (not Linear) to the columns X with the design's outcome,
-// weights and offset.
+// weights and offset. Without `covariance_factor` the QR at the estimate is
+// skipped (factor holds only the kept columns; the negative binomial always
+// has it): for fits whose likelihood alone is wanted.
 GlmFit fit_glm(const Design& d, const Eigen::MatrixXd& X, Family family, int max_iterations,
-               const LeastSquaresOptions& lso);
+               const LeastSquaresOptions& lso, bool covariance_factor = true);
 
 }  // namespace moderato::detail

@@ -127,6 +127,29 @@ double quantile_sorted(const std::vector<double>& sorted, double p) {
     return lerp(sorted[lo], sorted[lo + 1], h - static_cast<double>(lo));
 }
 
+std::vector<double> quantiles_by_selection(std::vector<double>& values, const std::vector<double>& ps) {
+    std::vector<double> out;
+    const std::size_t n = values.size();
+    std::size_t start = 0;  // values[0..start) are at most values[start], which is in its sorted place
+    for (const double p : ps) {
+        if (n == 0) {
+            out.push_back(kNaN);
+            continue;
+        }
+        const double h = static_cast<double>(n - 1) * std::clamp(p, 0.0, 1.0);
+        const auto lo = static_cast<std::size_t>(std::floor(h));
+        const auto at = [&](std::size_t k) { return values.begin() + static_cast<std::ptrdiff_t>(k); };
+        if (lo > start || (lo == 0 && start == 0)) std::nth_element(at(start), at(lo), values.end());
+        start = lo;
+        if (lo + 1 >= n) {
+            out.push_back(values[lo]);
+            continue;
+        }
+        out.push_back(lerp(values[lo], *std::min_element(at(lo + 1), values.end()), h - static_cast<double>(lo)));
+    }
+    return out;
+}
+
 Histogram auto_histogram(const std::vector<double>& sorted, std::size_t max_bins) {
     if (sorted.empty()) return {};
     const double iqr = quantile_sorted(sorted, 0.75) - quantile_sorted(sorted, 0.25);

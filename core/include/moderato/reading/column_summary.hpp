@@ -46,6 +46,9 @@ struct ColumnSummary {
 // (Hyndman & Fan 1996, definition 7; numpy.percentile's default "linear").
 // NaN for an empty vector.
 double quantile_sorted(const std::vector<double>& sorted, double p);
+// The same quantiles of unsorted values, found by selection in linear time
+// (no full sort); `values` is reordered. `ps` in ascending order.
+std::vector<double> quantiles_by_selection(std::vector<double>& values, const std::vector<double>& ps);
 
 // Histogram of ascending `sorted` values (no NaN). Bin width: the narrower of
 // the Freedman–Diaconis width 2 IQR n^(-1/3) (Freedman & Diaconis 1981) and
