@@ -409,6 +409,23 @@ void linear_comparison(const Design& d, const LeastSquaresOptions& lso, const Le
     cmp.p_value = dist::upper_p_f(cmp.f_statistic, cmp.df1, cmp.df2);
 }
 
+// Where the model without the products starts: the full fit's estimates of
+// its columns, and its estimable columns known without a QR — when every
+// product column comes after every other column, the full fit's kept ones
+// among them (aliasing is decided in column order). Empty kept otherwise.
+detail::GlmStart reduced_start(const FitResult& f, const std::vector<int>& kept, const std::vector<int>& products,
+                               const std::vector<int>& reduced_cols) {
+    detail::GlmStart s;
+    if (products.front() != static_cast<int>(reduced_cols.size())) return s;
+    s.beta.resize(static_cast<Eigen::Index>(reduced_cols.size()));
+    for (std::size_t c = 0; c < reduced_cols.size(); ++c) {
+        const double b = f.beta[reduced_cols[c]];
+        s.beta[static_cast<Eigen::Index>(c)] = std::isnan(b) ? 0.0 : b;
+        if (std::binary_search(kept.begin(), kept.end(), reduced_cols[c])) s.kept.push_back(static_cast<int>(c));
+    }
+    return s;
+}
+
 // The model without its product terms, fitted on the same rows; none when no
 // product column is estimable.
 std::optional<NestedComparison> nested_comparison(const Design& d, const FitOptions& options,
@@ -429,7 +446,9 @@ std::optional<NestedComparison> nested_comparison(const Design& d, const FitOpti
     if (!generalized(f.family)) {
         linear_comparison(d, lso, ls, products, reduced_cols, f, cmp);
     } else {
-        auto red = detail::fit_glm(d, columns_of(d.X, reduced_cols), f.family, options.max_iterations, lso, false);
+        const detail::GlmStart start = reduced_start(f, ls.kept, products, reduced_cols);
+        auto red = detail::fit_glm(d, columns_of(d.X, reduced_cols), f.family, options.max_iterations, lso, false,
+                                   start.kept.empty() ? nullptr : &start);
         cmp.df1 = static_cast<double>(ls.kept.size() - red.factor.kept.size());
         cmp.lr_statistic = 2.0 * (f.log_likelihood - red.loglik);
         cmp.lr_p_value = dist::upper_p_chi2(cmp.lr_statistic, cmp.df1);

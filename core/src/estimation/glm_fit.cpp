@@ -311,9 +311,17 @@ GlmFit fit_negative_binomial(const Design& d, const Eigen::MatrixXd& X, int max_
 }  // namespace
 
 GlmFit fit_glm(const Design& d, const Eigen::MatrixXd& X, Family family, int max_iterations,
-               const LeastSquaresOptions& lso, bool covariance_factor) {
+               const LeastSquaresOptions& lso, bool covariance_factor, const GlmStart* start) {
     if (family == Family::NegativeBinomial) return fit_negative_binomial(d, X, max_iterations, lso);
-    State s = start_state(d, X, family, kNaN, lso);
+    State s;
+    if (start) {
+        s.beta = start->beta;
+        s.kept = start->kept;
+        s.eta = linear_predictor(d, X, s.beta);
+        s.loglik = total_loglik(d, family, s.eta, kNaN);
+    } else {
+        s = start_state(d, X, family, kNaN, lso);
+    }
     const auto [iterations, converged] = newton_beta(d, X, family, kNaN, max_iterations, lso, s);
     GlmFit out = finish(d, X, family, kNaN, lso, s, covariance_factor);
     out.iterations = iterations;

@@ -33,11 +33,19 @@ struct GlmFit {
     Eigen::VectorXd alpha_score;
 };
 
+// Where Newton's method may start instead of the QR start: coefficients for
+// every column of X (0 for the aliased ones) and the estimable columns.
+struct GlmStart {
+    Eigen::VectorXd beta;
+    std::vector<int> kept;
+};
+
 // Fits `family` (not Linear) to the columns X with the design's outcome,
 // weights and offset. Without `covariance_factor` the QR at the estimate is
 // skipped (factor holds only the kept columns; the negative binomial always
-// has it): for fits whose likelihood alone is wanted.
+// has it): for fits whose likelihood alone is wanted. A `start` skips the QR
+// of the start (not for the negative binomial).
 GlmFit fit_glm(const Design& d, const Eigen::MatrixXd& X, Family family, int max_iterations,
-               const LeastSquaresOptions& lso, bool covariance_factor = true);
+               const LeastSquaresOptions& lso, bool covariance_factor = true, const GlmStart* start = nullptr);
 
 }  // namespace moderato::detail
