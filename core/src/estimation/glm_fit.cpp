@@ -17,15 +17,40 @@ constexpr double kInf = std::numeric_limits<double>::infinity();
 
 double prior(const Design& d, Eigen::Index i) { return d.weights.size() ? d.weights[i] : 1.0; }
 
+// Row loops run over fixed blocks of rows on all threads; sums add the
+// blocks' sums in block order, so a result does not depend on the thread count.
+constexpr Eigen::Index kRowBlock = 32768;
+
+std::size_t row_blocks(Eigen::Index n) { return static_cast<std::size_t>((n + kRowBlock - 1) / kRowBlock); }
+
+template <class Fn>
+void for_row_blocks(Eigen::Index n, Fn&& fn) {
+    parallel_for(row_blocks(n), 0, [&](std::size_t b) {
+        const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kRowBlock;
+        fn(r0, std::min(n, r0 + kRowBlock) - r0);
+    });
+}
+
 Eigen::VectorXd linear_predictor(const Design& d, const Eigen::MatrixXd& X, const Eigen::VectorXd& beta) {
-    Eigen::VectorXd eta = X * beta;
-    if (d.offset.size()) eta += d.offset;
+    Eigen::VectorXd eta(X.rows());
+    for_row_blocks(X.rows(), [&](Eigen::Index r0, Eigen::Index rows) {
+        eta.segment(r0, rows).noalias() = X.middleRows(r0, rows) * beta;
+        if (d.offset.size()) eta.segment(r0, rows) += d.offset.segment(r0, rows);
+    });
     return eta;
 }
 
 double total_loglik(const Design& d, Family f, const Eigen::VectorXd& eta, double alpha) {
     long double ll = 0;
-    for (Eigen::Index i = 0; i < eta.size(); ++i) ll += prior(d, i) * row_loglik(f, d.y[i], eta[i], alpha);
+    map_reduce_ordered<long double>(
+        row_blocks(eta.size()), 0,
+        [&](std::size_t b) {
+            const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kRowBlock, r1 = std::min(eta.size(), r0 + kRowBlock);
+            long double part = 0;
+            for (Eigen::Index i = r0; i < r1; ++i) part += prior(d, i) * row_loglik(f, d.y[i], eta[i], alpha);
+            return part;
+        },
+        [&](std::size_t, long double&& part) { ll += part; });
     return static_cast<double>(ll);
 }
 
@@ -69,34 +94,44 @@ struct Weights {
 Weights weights_at(const Design& d, Family f, const Eigen::VectorXd& eta, double alpha) {
     const Eigen::Index n = eta.size();
     Weights w{Eigen::VectorXd(n), Eigen::VectorXd(n)};
-    for (Eigen::Index i = 0; i < n; ++i) {
-        const RowTerms t = row_terms(f, d.y[i], eta[i], alpha);
-        w.v[i] = prior(d, i) * t.weight;
-        w.r[i] = prior(d, i) * t.score;
-    }
+    for_row_blocks(n, [&](Eigen::Index r0, Eigen::Index rows) {
+        for (Eigen::Index i = r0; i < r0 + rows; ++i) {
+            const RowTerms t = row_terms(f, d.y[i], eta[i], alpha);
+            w.v[i] = prior(d, i) * t.weight;
+            w.r[i] = prior(d, i) * t.score;
+        }
+    });
     return w;
 }
 
-// X_K' diag(v) X_K, summed over blocks of rows in parallel.
-Eigen::MatrixXd weighted_cross_products(const Eigen::MatrixXd& X, const std::vector<int>& kept,
-                                        const Eigen::VectorXd& v, unsigned threads) {
+// X_K' diag(v) X_K (into the lower triangle) and X_K' r, in one pass over
+// blocks of rows in parallel.
+struct CrossProducts {
+    Eigen::MatrixXd M;
+    Eigen::VectorXd g;
+};
+
+CrossProducts weighted_cross_products(const Eigen::MatrixXd& X, const std::vector<int>& kept, const Weights& w,
+                                      unsigned threads) {
     constexpr Eigen::Index kBlock = 8192;
     const Eigen::Index n = X.rows(), k = static_cast<Eigen::Index>(kept.size());
-    Eigen::MatrixXd M = Eigen::MatrixXd::Zero(k, k);
-    map_reduce_ordered<Eigen::MatrixXd>(
+    CrossProducts out{Eigen::MatrixXd::Zero(k, k), Eigen::VectorXd::Zero(k)};
+    map_reduce_ordered<CrossProducts>(
         static_cast<std::size_t>((n + kBlock - 1) / kBlock), threads,
         [&](std::size_t b) {
             const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlock, rows = std::min(n, r0 + kBlock) - r0;
             Eigen::MatrixXd S(rows, k);
-            const Eigen::ArrayXd root = v.segment(r0, rows).array().sqrt();
-            for (Eigen::Index c = 0; c < k; ++c)
-                S.col(c) = X.col(kept[static_cast<std::size_t>(c)]).segment(r0, rows).array() * root;
-            Eigen::MatrixXd part = Eigen::MatrixXd::Zero(k, k);
-            part.selfadjointView<Eigen::Lower>().rankUpdate(S.transpose());
+            for (Eigen::Index c = 0; c < k; ++c) S.col(c) = X.col(kept[static_cast<std::size_t>(c)]).segment(r0, rows);
+            CrossProducts part{Eigen::MatrixXd::Zero(k, k), S.transpose() * w.r.segment(r0, rows)};
+            S = S.array().colwise() * w.v.segment(r0, rows).array().sqrt();
+            part.M.selfadjointView<Eigen::Lower>().rankUpdate(S.transpose());
             return part;
         },
-        [&](std::size_t, Eigen::MatrixXd&& part) { M += part; });
-    return M.selfadjointView<Eigen::Lower>();
+        [&](std::size_t, CrossProducts&& part) {
+            out.M += part.M;
+            out.g += part.g;
+        });
+    return out;
 }
 
 // The Newton step on the kept columns, (X_K' V X_K)^{-1} X_K' r: by the
@@ -107,9 +142,9 @@ Eigen::MatrixXd weighted_cross_products(const Eigen::MatrixXd& X, const std::vec
 Eigen::VectorXd newton_step(const Eigen::MatrixXd& X, const std::vector<int>& kept, const Weights& w,
                             const LeastSquaresOptions& lso) {
     const Eigen::Index k = static_cast<Eigen::Index>(kept.size());
-    Eigen::VectorXd g(k);
-    for (Eigen::Index c = 0; c < k; ++c) g[c] = X.col(kept[static_cast<std::size_t>(c)]).dot(w.r);
-    const Eigen::MatrixXd M = weighted_cross_products(X, kept, w.v, detail::resolve_threads(lso.threads));
+    const CrossProducts cp = weighted_cross_products(X, kept, w, detail::resolve_threads(lso.threads));
+    const Eigen::VectorXd& g = cp.g;
+    const Eigen::MatrixXd M = cp.M.selfadjointView<Eigen::Lower>();
     const Eigen::LLT<Eigen::MatrixXd> llt(M);
     if (llt.info() == Eigen::Success) {
         const Eigen::VectorXd d = llt.matrixL().toDenseMatrix().diagonal();
