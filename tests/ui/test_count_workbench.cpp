@@ -20,7 +20,9 @@
 #include <cmath>
 
 #include "probe/pinned_table.hpp"
+#include "probe/straight_line_panel.hpp"
 #include "probe_window.hpp"
+#include "screenshot.hpp"
 #include "sections/estimates_section.hpp"
 #include "sections/specify_section.hpp"
 #include "specify/role_slot.hpp"
@@ -69,6 +71,7 @@ TEST(CountWorkbench, FamilyChoiceAndExposureSlotAreUndoableEditsWithCoresRefusal
     const QString eq = s->equationLabel()->toolTip();
     EXPECT_TRUE(eq.startsWith(QStringLiteral("log E[complaints] = b₀ + "))) << eq.toStdString();
     EXPECT_TRUE(eq.endsWith(QStringLiteral(" + log(open_hrs)"))) << eq.toStdString();
+    test::saveScreenshot(&win.w, QStringLiteral("count-specify.png"));
 
     // A linear model cannot use an exposure: refused in core's words, nothing changes.
     const Analysis before = win.analysis();
@@ -136,6 +139,7 @@ TEST(CountWorkbench, EstimatesShowDispersionAndPoissonOverdispersion) {
     for (double v : {run->fit.dispersion->alpha, run->fit.dispersion->ci_lower, run->fit.dispersion->ci_upper})
         EXPECT_TRUE(fit.contains(test::fourDigits(v))) << test::fourDigits(v).toStdString();
     EXPECT_FALSE(fit.contains(QStringLiteral("Overdispersion")));
+    test::saveScreenshot(&win.w, QStringLiteral("count-estimates.png"));
 
     // As a Poisson model the counts (drawn with alpha 0.35 by sample-projects/generate.py) are overdispersed:
     // Pearson χ²/df well above 1, and the fit points to the negative binomial.
@@ -169,12 +173,16 @@ TEST(CountWorkbench, ProbeShowsRateRatiosAndTheOutcomesOwnWordsOnEitherScale) {
     QComboBox* scale = s->scaleChoice();
     EXPECT_TRUE(scale->isVisibleTo(s));
     EXPECT_EQ(scale->itemText(0), QStringLiteral("log rate"));
-    EXPECT_EQ(scale->itemText(1), QStringLiteral("rate per open_hrs"));
+    EXPECT_EQ(scale->itemText(1), QStringLiteral("rate"));
+    EXPECT_TRUE(scale->itemData(1, Qt::ToolTipRole).toString().contains(QStringLiteral("complaints per open_hrs")));
     // Axes on the outcome scale: complaints per hour open.
     EXPECT_EQ(s->linesPlot()->figurePlot()->yAxis->label(), QStringLiteral("complaints per open_hrs"));
     EXPECT_TRUE(s->effectPlot()->figurePlot()->yAxis->label().contains(QStringLiteral("complaints per open_hrs")))
         << s->effectPlot()->figurePlot()->yAxis->label().toStdString();
-    EXPECT_GE(s->linesPlot()->figurePlot()->yAxis->range().lower, 0.0);  // a rate is never negative
+    EXPECT_GE(s->linesPlot()->figurePlot()->yAxis->range().lower, 0.0);          // a rate is never negative
+    EXPECT_GE(s->scaleChoice()->width(), s->scaleChoice()->sizeHint().width());  // its words are not cut
+    // The straight-line check serves linear and logistic models only (core refuses the others): not offered.
+    EXPECT_FALSE(s->straightLinePanel()->isVisibleTo(s));
 
     // The rate-ratio columns beside the effects, each against its definition.
     PinnedTableModel* m = s->pinnedTable()->model();
@@ -200,6 +208,7 @@ TEST(CountWorkbench, ProbeShowsRateRatiosAndTheOutcomesOwnWordsOnEitherScale) {
         EXPECT_EQ(m->index(r, hi).data().toString(), test::fourDigits(std::exp(eta + z * se))) << at;
     }
     EXPECT_TRUE(s->pinnedTable()->tsv().contains(QStringLiteral("rate ratio")));
+    test::saveScreenshot(&win.w, QStringLiteral("count-probe.png"));
 
     // The log scale: one step, its own words on the axes, and the ratios stay.
     const int steps = win.undo()->count();

@@ -17,6 +17,9 @@ struct ScaleWords {
     QString outcomeScale;  // "probability", "expected count", "rate per hours"; "" for linear
     QString modelOf;       // "log-odds of y", "probit of P(y = 1)", "log expected y", "log rate of y"; y for linear
     QString outcomeOf;     // "P(y = 1)", "expected y", "y per hours"; y for linear
+    // The scale switch's short entries: modelScale, but "log count" for
+    // "log expected count"; outcomeScale, but "rate" for "rate per hours".
+    QString modelSwitch, outcomeSwitch;
 };
 
 // `exposure`: a count model's exposure column, or empty.

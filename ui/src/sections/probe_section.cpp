@@ -161,6 +161,7 @@ QHBoxLayout* ProbeSection::createControls() {
     controls->addSpacing(8);
     controls->addWidget(scaleLabel_);
     scale_->setObjectName(QStringLiteral("scale-choice"));
+    scale_->setSizeAdjustPolicy(QComboBox::AdjustToContents);  // its entries follow the family's words
     scale_->addItem(tr("log-odds"), static_cast<int>(ProbeScale::Model));
     scale_->addItem(tr("probability"), static_cast<int>(ProbeScale::Outcome));
     scale_->setToolTip(tr("Effects on the scale of the model's coefficients, or on the outcome's own scale"));
@@ -497,8 +498,11 @@ void ProbeSection::rebuild() {
     scaleLabel_->setVisible(generalizedModel);
     scale_->setVisible(generalizedModel);
     const ScaleWords words = engine_.words();
-    scale_->setItemText(0, words.modelScale);
-    scale_->setItemText(1, words.outcomeScale);
+    scale_->setItemText(0, words.modelSwitch);
+    scale_->setItemText(1, words.outcomeSwitch);
+    scale_->setItemData(0, tr("Effects on the %1 scale, the scale of the model's coefficients").arg(words.modelScale),
+                        Qt::ToolTipRole);
+    scale_->setItemData(1, tr("Effects on the outcome's own scale: %1").arg(words.outcomeOf), Qt::ToolTipRole);
     scale_->setCurrentIndex(engine_.probability() ? 1 : 0);
     averaging_->setVisible(generalizedModel && engine_.probability());
     averaging_->setCurrentIndex(ps.averaging == Averaging::AtValues ? 1 : 0);
@@ -513,7 +517,9 @@ void ProbeSection::rebuild() {
     differ_->setVisible(!run_->probe->crossovers.empty());
     differ_->setText(engine_.groups() ? tr("Where groups differ") : tr("Where lines differ"));
     fillHeldValue();
-    straight_->setVisible(run_->kind == ProbeKind::Continuous && !a->multilevel.active());
+    // Core's straight-line check serves linear and logistic models (not yet probit or count models).
+    const bool checkable = a->family == Family::Linear || a->family == Family::Logistic;
+    straight_->setVisible(run_->kind == ProbeKind::Continuous && !a->multilevel.active() && checkable);
     straight_->setAnalysis(*a, run_.get(), engine_.probability());
 
     if (engine_.groups()) {
