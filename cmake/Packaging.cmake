@@ -54,9 +54,10 @@ string(CONCAT CPACK_PACKAGE_DESCRIPTION
   "of a focal predictor depends on a moderator: conditional effects with\n"
   "classical, robust or cluster-robust standard errors, the moderator range\n"
   "where the effect differs from zero (Johnson-Neyman), crossover points,\n"
-  "logistic models on the probability scale, model checks and figures for\n"
-  "memos. The package holds the Qt workbench (moderato), the command-line\n"
-  "program (moderato-cli) and five sample projects.")
+  "logistic, probit and count models on the outcome's own scale, model\n"
+  "checks and figures for memos. The package holds the Qt workbench\n"
+  "(moderato), the command-line program (moderato-cli) and eight sample\n"
+  "projects.")
 set(CPACK_RESOURCE_FILE_LICENSE "${PROJECT_SOURCE_DIR}/LICENSE")
 set(CPACK_STRIP_FILES ON)
 

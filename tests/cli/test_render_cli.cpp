@@ -401,6 +401,7 @@ const std::vector<SampleCase>& samples() {
          {{"lines-plot", "effect-plot"}, {"lines-plot", "effect-plot", "surface-plot"}},
          kProbeTables},
         {"warehouse-picking", {{"lines-plot", "effect-plot", "surface-plot"}}, kMultilevelTables},
+        {"desk-complaints", {{"lines-plot", "effect-plot", "surface-plot"}}, kProbeTables},
     };
     return s;
 }

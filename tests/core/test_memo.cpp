@@ -561,7 +561,7 @@ TEST(MemoSentences, ThreeWayFindingsSayWhereTheSecondModeratorIsHeld) {
     Analysis a;
     a.id = "three";
     a.dataset = "d";
-    a.roles = {"y", "x", "z", "w", {}, "", ""};
+    a.roles = {"y", "x", "z", "w", {}, "", "", ""};
     const AnalysisRun run = run_analysis(std::make_shared<Table>(read_csv_text(csv.str(), "three.csv")), a);
     const auto findings = memo_findings(a, run);
     SCOPED_TRACE(joined(findings));

@@ -182,7 +182,7 @@ Project full_project() {
     a.id = "full";
     a.name = "discount × loyalty — all settings";
     a.dataset = "spend";
-    a.roles = {"y", "x", "z", "w", {"c1", "c2", "région"}, "wt", "site"};
+    a.roles = {"y", "x", "z", "w", {"c1", "c2", "région"}, "wt", "site", ""};
     a.family = Family::Logistic;
     a.se = SeKind::Cluster;
     a.level = 0.9;
@@ -348,6 +348,30 @@ TEST(ProjectJson, MultilevelSettingsAreWrittenOnlyWithGroups) {
     EXPECT_TRUE(project_from_json(kept, "memory.moderato") == q);
 }
 
+// A count model's exposure: written under "roles" only when set (so projects
+// without one keep their bytes), read back equal, counted by ==, and carried
+// into the model specification (docs/user-guide.md, count models).
+TEST(ProjectJson, ExposureRoleIsWrittenOnlyWhenSetAndRoundTrips) {
+    Project p = full_project();
+    const std::string without = project_to_json(p);
+    EXPECT_EQ(without.find("\"exposure\""), std::string::npos);
+    Analysis& a = p.analyses.front();
+    a.family = Family::NegativeBinomial;
+    a.roles.exposure = "open hours (week)";
+    const std::string with = project_to_json(p);
+    EXPECT_NE(with.find("\"exposure\": \"open hours (week)\""), std::string::npos) << with;
+    EXPECT_NE(with.find("\"family\": \"negative-binomial\""), std::string::npos);
+    const Project q = project_from_json(with, "memory.moderato");
+    EXPECT_TRUE(q == p);
+    EXPECT_EQ(q.analyses.front().roles.exposure, "open hours (week)");
+    EXPECT_EQ(project_to_json(q), with);  // the same bytes again
+    Project r = q;
+    r.analyses.front().roles.exposure.clear();
+    EXPECT_FALSE(r == q);
+    EXPECT_EQ(model_spec(q.analyses.front()).exposure, "open hours (week)");
+    EXPECT_EQ(model_spec(r.analyses.front()).exposure, "");
+}
+
 // Jitter is on by default; only "off" is written, so projects keep their bytes.
 TEST(ProjectJson, JitterIsWrittenOnlyWhenOff) {
     Project p = full_project();
@@ -511,7 +535,7 @@ TEST(ProjectJson, SchemaZeroIsMigratedWithANote) {
     })";
     const Project p = project_from_json(old, "old.moderato");
     ASSERT_EQ(p.analyses.size(), 1u);
-    const Roles expected{"y", "x", "z", "w", {"c1", "c2"}, "wt", "g"};
+    const Roles expected{"y", "x", "z", "w", {"c1", "c2"}, "wt", "g", ""};
     EXPECT_EQ(p.analyses[0].roles, expected);
     EXPECT_EQ(p.analyses[0].se, SeKind::Cluster);
     ASSERT_EQ(p.migration_notes.size(), 1u);
@@ -690,6 +714,9 @@ TEST(ProjectJson, WrongTypesNameTheFieldPath) {
         {"\"delimiter\": \",\"", "\"column_kinds\": {\"x\": \"date\"}", "datasets[0].import.column_kinds.x", "numeric"},
         {"\"outcome\": \"y\"", "\"outcome\": 5", "analyses[0].roles.outcome", "expected text"},
         {"\"outcome\": \"y\"", "\"controls\": [\"c\", 3]", "analyses[0].roles.controls[1]", "expected text"},
+        {"\"outcome\": \"y\"", "\"outcome\": \"y\", \"exposure\": 40", "analyses[0].roles.exposure", "expected text"},
+        {"\"outcome\": \"y\"", "\"outcome\": \"y\", \"exposure\": [\"hours\"]", "analyses[0].roles.exposure",
+         "expected text"},
         {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"level\": \"95%\",", "analyses[0].level", "expected a number"},
         {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"level\": 95,", "analyses[0].level", "between 0 and 1"},
         {"\"dataset\": \"d\",", "\"dataset\": \"d\", \"standard_errors\": \"hc9\",", "analyses[0].standard_errors",
@@ -1247,6 +1274,7 @@ TEST(RunAnalysis, ColumnThatNoLongerExistsNamesAnalysisRoleAndColumn) {
         {"Controls", "tenure", [](Analysis& a) { a.roles.controls.push_back("tenure"); }},
         {"Weights", "weight_v2", [](Analysis& a) { a.roles.weights = "weight_v2"; }},
         {"Clusters", "store", [](Analysis& a) { a.roles.clusters = "store"; }},
+        {"Exposure", "open_hours", [](Analysis& a) { a.roles.exposure = "open_hours"; }},
     };
     for (const Case& c : cases) {
         SCOPED_TRACE(c.role);

@@ -24,7 +24,7 @@ inline const QStringList& sampleNames() {
     static const QStringList names{QStringLiteral("coffee-discount"),      QStringLiteral("orchard-nitrogen"),
                                    QStringLiteral("volunteer-onboarding"), QStringLiteral("helpdesk-staffing"),
                                    QStringLiteral("trial-conversion"),     QStringLiteral("turbine-repairs"),
-                                   QStringLiteral("warehouse-picking")};
+                                   QStringLiteral("warehouse-picking"),    QStringLiteral("desk-complaints")};
     return names;
 }
 

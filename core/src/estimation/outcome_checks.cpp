@@ -26,24 +26,37 @@ std::string family_words(Family f) {
     return "linear";
 }
 
-void check_binary(const Table& table, const ModelSpec& spec, const Design& d) {
-    for (Eigen::Index i = 0; i < d.y.size(); ++i)
-        if (d.y[i] != 0.0 && d.y[i] != 1.0)
+// The outcome's values with their table rows: a design's, or a column's present ones.
+struct OutcomeValues {
+    const Eigen::VectorXd& y;
+    const std::vector<std::size_t>& rows;
+};
+
+void check_binary(const Table& table, const ModelSpec& spec, const OutcomeValues& v) {
+    for (Eigen::Index i = 0; i < v.y.size(); ++i)
+        if (v.y[i] != 0.0 && v.y[i] != 1.0)
             throw InputError(family_words(spec.family) + " outcome " + quoted(spec.outcome) + " must be 0 or 1: " +
-                             table.row_place(d.rows[static_cast<std::size_t>(i)]) + " holds " + exact_text(d.y[i]));
+                             table.row_place(v.rows[static_cast<std::size_t>(i)]) + " holds " + exact_text(v.y[i]));
 }
 
-void check_counts(const Table& table, const ModelSpec& spec, Design& d) {
+// Refuses a negative count; returns how many values are not whole, and the first's index.
+std::pair<std::size_t, std::size_t> check_nonnegative(const Table& table, const ModelSpec& spec,
+                                                      const OutcomeValues& o) {
     std::size_t fractional = 0, first = 0;
-    for (Eigen::Index i = 0; i < d.y.size(); ++i) {
-        const double v = d.y[i];
-        const std::size_t row = d.rows[static_cast<std::size_t>(i)];
+    for (Eigen::Index i = 0; i < o.y.size(); ++i) {
+        const double v = o.y[i];
+        const std::size_t row = o.rows[static_cast<std::size_t>(i)];
         if (v < 0)
             throw InputError(family_words(spec.family) + " outcome " + quoted(spec.outcome) +
                              " must be a count (0, 1, 2, ...): " + table.row_place(row) + " holds " + exact_text(v) +
                              "; a count cannot be negative");
         if (v != std::floor(v) && fractional++ == 0) first = static_cast<std::size_t>(i);
     }
+    return {fractional, first};
+}
+
+void check_counts(const Table& table, const ModelSpec& spec, Design& d) {
+    const auto [fractional, first] = check_nonnegative(table, spec, {d.y, d.rows});
     if (fractional == 0) return;
     d.warnings.push_back(
         "outcome " + quoted(spec.outcome) + " is not a whole count in " + std::to_string(fractional) +
@@ -78,7 +91,7 @@ void check_exposure_column(const Table& table, const ModelSpec& spec) {
 }
 
 void check_outcome(const Table& table, const ModelSpec& spec, Design& d) {
-    if (binary_outcome(spec.family)) check_binary(table, spec, d);
+    if (binary_outcome(spec.family)) check_binary(table, spec, {d.y, d.rows});
     if (count_outcome(spec.family)) check_counts(table, spec, d);
     if (generalized(spec.family)) check_not_constant(spec, d);
 }
@@ -98,3 +111,24 @@ void fill_offset(const Table& table, const ModelSpec& spec, Design& d) {
 }
 
 }  // namespace moderato::detail
+
+namespace moderato {
+
+void check_family_columns(const Table& table, const ModelSpec& spec) {
+    detail::check_exposure_column(table, spec);
+    const Column* c = table.find(spec.outcome);
+    if (!c || c->kind != ColumnKind::Numeric || !generalized(spec.family)) return;
+    std::vector<std::size_t> rows;
+    std::vector<double> present;
+    for (std::size_t i = 0; i < c->numbers.size(); ++i)
+        if (!std::isnan(c->numbers[i])) {
+            rows.push_back(i);
+            present.push_back(c->numbers[i]);
+        }
+    const Eigen::VectorXd y =
+        Eigen::Map<const Eigen::VectorXd>(present.data(), static_cast<Eigen::Index>(present.size()));
+    if (binary_outcome(spec.family)) detail::check_binary(table, spec, {y, rows});
+    if (count_outcome(spec.family)) detail::check_nonnegative(table, spec, {y, rows});
+}
+
+}  // namespace moderato

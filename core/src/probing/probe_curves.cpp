@@ -2,9 +2,32 @@
 
 #include <cmath>
 
-#include "estimation/logistic_math.hpp"
+#include "estimation/glm_family.hpp"
 
 namespace moderato {
+
+namespace {
+
+// The mean at eta and its derivative d mean / d eta, by the family's link.
+std::pair<double, double> mean_and_slope(Link link, double eta) {
+    switch (link) {
+        case Link::Logit: {
+            const double p = detail::expit(eta);
+            return {p, p * (1 - p)};
+        }
+        case Link::Probit:
+            return {detail::normal_probability(eta), detail::normal_density(eta)};
+        case Link::Log: {
+            const double mu = std::exp(eta);
+            return {mu, mu};
+        }
+        case Link::Identity:
+            break;
+    }
+    return {eta, 1.0};
+}
+
+}  // namespace
 
 std::vector<CurvePoint> prediction_line(const Design& design, const FitResult& fit, const std::string& focal,
                                         std::map<std::string, double> values, const std::vector<double>& xs,
@@ -12,6 +35,7 @@ std::vector<CurvePoint> prediction_line(const Design& design, const FitResult& f
     const double q = std::isnan(critical_value) ? fit.critical_value : critical_value;
     const Eigen::VectorXd b = fit.beta.unaryExpr([](double v) { return std::isnan(v) ? 0.0 : v; });
     const Eigen::MatrixXd V = fit.covariance.unaryExpr([](double v) { return std::isnan(v) ? 0.0 : v; });
+    const Link link = link_of(fit.family);
     std::vector<CurvePoint> out;
     out.reserve(xs.size());
     for (const double x : xs) {
@@ -22,11 +46,11 @@ std::vector<CurvePoint> prediction_line(const Design& design, const FitResult& f
         CurvePoint c;
         c.x = x;
         if (probability) {
-            const double p = detail::expit(eta);
-            c.estimate = p;
-            c.std_error = p * (1 - p) * se;
-            c.lower = detail::expit(eta - q * se);
-            c.upper = detail::expit(eta + q * se);
+            const auto [mu, slope] = mean_and_slope(link, eta);
+            c.estimate = mu;
+            c.std_error = slope * se;
+            c.lower = mean_and_slope(link, eta - q * se).first;
+            c.upper = mean_and_slope(link, eta + q * se).first;
         } else {
             c.estimate = eta;
             c.std_error = se;

@@ -4,7 +4,7 @@
 #include <cmath>
 #include <numeric>
 
-#include "estimation/logistic_math.hpp"
+#include "estimation/glm_family.hpp"
 #include "moderato/support/error.hpp"
 
 namespace moderato {
@@ -89,8 +89,18 @@ DataRegion data_region(const Design& design, const std::string& x, const std::st
     return convex_hull(xs, zs);
 }
 
-Eigen::MatrixXd surface_probabilities(const SurfaceGrid& grid) {
-    return grid.predicted.unaryExpr([](double v) { return detail::expit(v); });
+Eigen::MatrixXd surface_probabilities(const SurfaceGrid& grid, Family family) {
+    switch (link_of(family)) {
+        case Link::Logit:
+            return grid.predicted.unaryExpr([](double v) { return detail::expit(v); });
+        case Link::Probit:
+            return grid.predicted.unaryExpr([](double v) { return detail::normal_probability(v); });
+        case Link::Log:
+            return grid.predicted.unaryExpr([](double v) { return std::exp(v); });
+        case Link::Identity:
+            break;
+    }
+    return grid.predicted;
 }
 
 }  // namespace moderato

@@ -82,7 +82,7 @@ void probe_analysis(AnalysisRun& run, const Analysis& a, const RunProgress& prog
         case ProbeKind::Continuous: {
             if (run.kind == ProbeKind::Continuous) ps.pinned = a.probe.pinned;
             run.probe = probe(run.design, run.fit, ps);
-            if (a.family == Family::Logistic && a.probe.scale == ProbeScale::Outcome) {
+            if (generalized(a.family) && a.probe.scale == ProbeScale::Outcome) {
                 run.probe_link = run.probe;
                 run.probe = probe_response(run.design, run.fit, ps, a.probe.averaging);
             }
@@ -130,6 +130,7 @@ AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a, 
     for (const auto& c : a.roles.controls) require_column(t, a, "Controls", c);
     require_column(t, a, "Weights", a.roles.weights);
     require_column(t, a, "Clusters", a.roles.clusters);
+    require_column(t, a, "Exposure", a.roles.exposure);
     require_column(t, a, "Groups", a.multilevel.groups);
     if (a.se == SeKind::Cluster && a.roles.clusters.empty())
         throw InputError("analysis " + quoted(a.name) +
@@ -148,8 +149,8 @@ AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a, 
         Table centred;
         centred.source = t.source;
         centred.row_lines = t.row_lines;
-        std::set<std::string> used{a.roles.outcome,          a.roles.focal,   a.roles.moderator,
-                                   a.roles.second_moderator, a.roles.weights, a.roles.clusters};
+        std::set<std::string> used{a.roles.outcome, a.roles.focal,    a.roles.moderator, a.roles.second_moderator,
+                                   a.roles.weights, a.roles.clusters, a.roles.exposure};
         used.insert(a.roles.controls.begin(), a.roles.controls.end());
         used.insert(a.multilevel.groups);
         used.insert(a.multilevel.centre_within.begin(), a.multilevel.centre_within.end());

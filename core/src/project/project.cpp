@@ -319,6 +319,8 @@ json analysis_to_json(const Analysis& a) {
     // settings stay when the Groups role is emptied, for when it returns.
     const MultilevelSpec& m = a.multilevel;
     if (m.active()) j["roles"]["groups"] = m.groups;
+    // Written only when set, so projects without an exposure keep their bytes.
+    if (!a.roles.exposure.empty()) j["roles"]["exposure"] = a.roles.exposure;
     MultilevelSpec settings = m;
     settings.groups.clear();
     settings.group_effects = false;  // a command-line request, not a project setting
@@ -408,6 +410,7 @@ Roles read_roles(const Reader& r, const json& j, const std::string& where) {
     out.controls = r.texts(roles, "controls", rw);
     out.weights = r.text(roles, "weights", rw, false);
     out.clusters = r.text(roles, "clusters", rw, false);
+    out.exposure = r.text(roles, "exposure", rw, false);
     return out;
 }
 
@@ -702,6 +705,7 @@ ModelSpec model_spec(const Analysis& a, const std::map<std::string, std::string>
     spec.level = a.level;
     spec.weights = a.roles.weights;
     spec.cluster = a.roles.clusters;
+    spec.exposure = a.roles.exposure;
     const std::string f = name(a.roles.focal), m = name(a.roles.moderator), w = name(a.roles.second_moderator);
     if (!f.empty()) spec.predictors.push_back(f);
     if (!m.empty()) spec.predictors.push_back(m);

@@ -3,6 +3,7 @@
 #include <cctype>
 #include <cmath>
 
+#include "family_text.hpp"
 #include "moderato/support/report_text.hpp"
 #include "multilevel_tables.hpp"
 
@@ -14,7 +15,7 @@ std::string se_description(const FitResult& fit, const std::string& clusters) {
                ", " + df_method_text(fit.multilevel->df_used()) + " df)";
     switch (fit.se) {
         case SeKind::Classical:
-            return fit.family == Family::Logistic || fit.multilevel ? "model-based" : "classical";
+            return generalized(fit.family) || fit.multilevel ? "model-based" : "classical";
         case SeKind::Cluster:
             return "cluster-robust (" + (clusters.empty() ? std::string() : clusters + ", ") +
                    std::to_string(fit.n_clusters) + " clusters)";
@@ -73,7 +74,12 @@ ExportTable estimates_table(const Analysis& a, const AnalysisRun& run) {
                                             " rows with missing values left out)"
                                       : "") +
                       ".");
-    if (fit.family == Family::Logistic) t.notes.push_back("Estimates are on the log-odds scale.");
+    if (generalized(fit.family))
+        t.notes.push_back("Estimates are on the " + model_scale_text(fit.family, !fit.exposure.empty()) + " scale" +
+                          (count_outcome(fit.family) ? "; exp(estimate) is the factor by which one unit more of a "
+                                                       "term multiplies the " +
+                                                           outcome_scale_text(fit.family, fit.exposure) + "."
+                                                     : "."));
     if (own_df)
         t.notes.push_back("Multilevel model: the fixed effects, those of a typical group of " + fit.multilevel->groups +
                           ". " + detail::df_note(fit));
@@ -85,6 +91,37 @@ ExportTable estimates_table(const Analysis& a, const AnalysisRun& run) {
                           "): lower-order terms are effects at the centre; the fit and the probe are unchanged.");
     }
     return t;
+}
+
+// A count model's dispersion: the negative binomial's alpha with its
+// interval, or a Poisson model's overdispersion statistics.
+void dispersion_rows(const FitResult& f, ExportTable& t) {
+    if (f.dispersion) {
+        const Dispersion& d = *f.dispersion;
+        const std::string lv = level_text(f.level);
+        t.rows.push_back({text("Dispersion α (variance = mean + α·mean²)"), num(d.alpha)});
+        t.rows.push_back({text("SE of α"), num(d.std_error)});
+        t.rows.push_back({text("α " + lv + " CI low"), num(d.ci_lower)});
+        t.rows.push_back({text("α " + lv + " CI high"), num(d.ci_upper)});
+    }
+    if (f.overdispersion) {
+        const Overdispersion& o = *f.overdispersion;
+        t.rows.push_back({text("Pearson χ² / df"), num(o.pearson_ratio)});
+        t.rows.push_back({text("Overdispersion z (Cameron & Trivedi)"), num(o.test_value)});
+        t.rows.push_back({text("p of overdispersion z (one-sided)"), pval(o.p_value)});
+        if (o.evident())
+            t.notes.push_back(
+                "The counts vary more than a Poisson model allows; the negative binomial family allows for it.");
+    }
+}
+
+void generalized_fit_rows(const FitResult& f, ExportTable& t) {
+    t.rows.push_back({text("Deviance"), num(f.deviance)});
+    if (!std::isnan(f.null_deviance)) t.rows.push_back({text("Null deviance"), num(f.null_deviance)});
+    t.rows.push_back({text("McFadden R²"), num(f.mcfadden_r2)});
+    t.rows.push_back({text("LR χ² (" + format_sig(f.lr_df) + ")"), num(f.lr_statistic)});
+    t.rows.push_back({text("p of LR χ²"), pval(f.lr_p_value)});
+    dispersion_rows(f, t);
 }
 
 ExportTable fit_table(const AnalysisRun& run) {
@@ -103,11 +140,7 @@ ExportTable fit_table(const AnalysisRun& run) {
         t.rows.push_back({text("F (" + format_sig(f.f_df1) + ", " + format_sig(f.f_df2) + ")"), num(f.f_statistic)});
         t.rows.push_back({text("p of F"), pval(f.f_p_value)});
     } else {
-        t.rows.push_back({text("Deviance"), num(f.deviance)});
-        t.rows.push_back({text("Null deviance"), num(f.null_deviance)});
-        t.rows.push_back({text("McFadden R²"), num(f.mcfadden_r2)});
-        t.rows.push_back({text("LR χ² (" + format_sig(f.lr_df) + ")"), num(f.lr_statistic)});
-        t.rows.push_back({text("p of LR χ²"), pval(f.lr_p_value)});
+        generalized_fit_rows(f, t);
     }
     t.rows.push_back({text("Log-likelihood"), num(f.log_likelihood)});
     t.rows.push_back({text("AIC"), num(f.aic)});
@@ -166,12 +199,19 @@ ExportTable comparison_table(const Analysis& a, const AnalysisRun& run) {
 ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
     ExportTable t;
     const bool prob = p.scale == ProbeScale::Outcome;
-    t.title = "Effect of " + p.focal + (prob ? " on P(" + p.outcome + " = 1)" : " on " + p.outcome) +
+    const bool ratios = !p.rate_ratios.empty() && p.rate_ratios.size() == p.effects.size();
+    t.title = "Effect of " + p.focal + " on " + detail::effect_target(p, fit) +
               (p.categorical_moderator ? " in each group of " : " at chosen values of ") + p.moderator;
     t.columns = {p.moderator};
     for (auto& c : inference_columns("Effect", p.level, prob ? "z" : statistic_name(fit))) t.columns.push_back(c);
+    t.numeric = {!p.categorical_moderator, true, true, true, true, true, true};
+    if (ratios) {
+        const std::string lv = level_text(p.level);
+        t.columns.insert(t.columns.end(), {"Rate ratio", "RR " + lv + " CI low", "RR " + lv + " CI high"});
+        t.numeric.insert(t.numeric.end(), {true, true, true});
+    }
     t.columns.push_back("Note");
-    t.numeric = {!p.categorical_moderator, true, true, true, true, true, true, false};
+    t.numeric.push_back(false);
     bool beyond = false;
     for (const auto& e : p.effects) {
         ExportCell at = p.categorical_moderator || !e.level.empty()
@@ -184,6 +224,10 @@ ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
         std::vector<ExportCell> row{at};
         for (auto& c : inference_cells(e.estimate, e.ci_lower, e.ci_upper, e.std_error, e.statistic, e.p_value))
             row.push_back(std::move(c));
+        if (ratios) {
+            const RateRatio& r = p.rate_ratios[t.rows.size()];
+            row.insert(row.end(), {num(r.ratio), num(r.ci_lower), num(r.ci_upper)});
+        }
         row.push_back(text(e.beyond_data ? "beyond the data" : ""));
         t.rows.push_back(std::move(row));
     }
@@ -193,9 +237,17 @@ ExportTable effects_table(const ProbeResult& p, const FitResult& fit) {
         t.notes.push_back("Observed " + p.moderator + ": " +
                           format_range(p.observed_range.first, p.observed_range.second) +
                           ". Pointwise intervals; each row is one test.");
-    if (prob)
-        t.notes.push_back(p.averaging == Averaging::AtValues ? "Probability scale, at the means and reference levels."
-                                                             : "Probability scale, averaged over the observed rows.");
+    if (prob) {
+        std::string scale = outcome_scale_text(fit.family, fit.exposure);
+        scale[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(scale[0])));
+        t.notes.push_back(scale + (p.averaging == Averaging::AtValues ? " scale, at the means and reference levels."
+                                                                      : " scale, averaged over the observed rows."));
+    }
+    if (ratios)
+        t.notes.push_back(std::string("Rate ratio: the factor by which ") +
+                          (p.binary_focal ? "moving " + p.focal + " from 0 to 1" : "one unit more of " + p.focal) +
+                          " multiplies the " + (fit.exposure.empty() ? "expected count" : "rate") +
+                          " (exp of the effect on the log scale, with its interval); 1 is no effect.");
     return t;
 }
 
@@ -252,7 +304,7 @@ ExportTable contrasts_table(const CellTable& c, const FitResult& fit) {
 
 }  // namespace
 
-std::string statistic_name(const FitResult& fit) { return fit.family == Family::Logistic ? "z" : "t"; }
+std::string statistic_name(const FitResult& fit) { return generalized(fit.family) ? "z" : "t"; }
 
 std::string moderator_value_label(const ProbeResult& p, const EffectPoint& e) {
     if (!e.level.empty()) return e.level;

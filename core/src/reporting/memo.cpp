@@ -8,6 +8,7 @@
 #include <functional>
 #include <nlohmann/json.hpp>
 
+#include "family_text.hpp"
 #include "memo_multilevel.hpp"
 #include "memo_straight_line.hpp"
 #include "moderato/probing/response_scale.hpp"
@@ -80,9 +81,8 @@ std::string region_words(const Clipped& c, const std::string& name) {
     return "for " + name + " between " + format_range(c.lo, c.hi);
 }
 
-std::string effect_of(const ProbeResult& p) {
-    return "the effect of " + p.focal +
-           (p.scale == ProbeScale::Outcome ? " on P(" + p.outcome + " = 1)" : " on " + p.outcome);
+std::string effect_of(const ProbeResult& p, const FitResult& fit) {
+    return "the effect of " + p.focal + " on " + detail::effect_target(p, fit);
 }
 
 // ", with w held at 3.2" for a three-way model (its effects are conditional on that value).
@@ -128,7 +128,7 @@ std::vector<std::string> region_sentences(const Analysis& a, const AnalysisRun& 
     const auto [lo, hi] = p.observed_range;
     std::vector<std::string> out;
     out.push_back("Among the observed values of " + p.moderator + " (" + format_range(lo, hi) + ")" +
-                  held_clause(a, run) + ", " + effect_of(p) + " " +
+                  held_clause(a, run) + ", " + effect_of(p, run.fit) + " " +
                   significance_clause(a, run, p.johnson_neyman->significant) + " (" + level_text(p.level) +
                   " pointwise intervals).");
     std::vector<std::string> outside;
@@ -147,7 +147,7 @@ std::string simultaneous_region_sentence(const Analysis& a, const AnalysisRun& r
     if (!run.probe || !run.probe->simultaneous) return "";
     const ProbeResult& p = *run.probe;
     return "With the simultaneous band, which keeps the chance of any false region at " + level_text(1 - p.level) +
-           " (critical value " + format_sig(p.simultaneous->critical_value) + "), " + effect_of(p) + " " +
+           " (critical value " + format_sig(p.simultaneous->critical_value) + "), " + effect_of(p, run.fit) + " " +
            significance_clause(a, run, p.simultaneous->significant) + ".";
 }
 
@@ -163,17 +163,17 @@ void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector
             const Coefficient& c = run.fit.coefficients[static_cast<std::size_t>(cols[0])];
             if (!c.aliased)
                 out.push_back("Each one-unit increase in " + p.moderator + " changes the effect of " + p.focal +
-                              (run.fit.family == Family::Logistic ? " on the log-odds of " + p.outcome + " = 1"
-                                                                  : " on " + p.outcome) +
-                              " by " + format_sig(c.estimate) + " (" + ci_text(run.fit.level, c.ci_lower, c.ci_upper) +
-                              ", " + p_clause(c.p_value) + ").");
+                              " on " + detail::model_scale_target(run.fit, p.outcome) + " by " +
+                              format_sig(c.estimate) + " (" + ci_text(run.fit.level, c.ci_lower, c.ci_upper) + ", " +
+                              p_clause(c.p_value) + ").");
         }
     }
     for (auto& s : region_sentences(a, run)) out.push_back(std::move(s));
     if (std::string s = simultaneous_region_sentence(a, run); !s.empty()) out.push_back(std::move(s));
     if (prob && p.interaction_effect) {
         const InteractionEffect& ie = *p.interaction_effect;
-        out.push_back(std::string("On the probability scale the interaction effect (") + to_string(ie.kind) + ", " +
+        out.push_back("On the " + outcome_scale_text(run.fit.family, run.fit.exposure) +
+                      " scale the interaction effect (" + to_string(ie.kind) + ", " +
                       (p.averaging == Averaging::AtValues ? "at the means" : "averaged over the observed rows") +
                       ") is " + format_sig(ie.estimate) + " (" + ci_text(p.level, ie.ci_lower, ie.ci_upper) + ", " +
                       p_clause(ie.p_value) + ").");
@@ -186,24 +186,26 @@ void continuous_sentences(const Analysis& a, const AnalysisRun& run, std::vector
                          p.moderator + " = " + moderator_value_label(p, e) +
                          (e.beyond_data ? ", beyond the data" : ""));
         }
-        std::string s = effect_of(p) + " at chosen values: " + join_and(at) + ".";
+        std::string s = effect_of(p, run.fit) + " at chosen values: " + join_and(at) + ".";
         s[0] = 'T';
         out.push_back(s);
     }
+    detail::rate_ratio_sentence(p, run.fit, out);
 }
 
 // Every pairwise difference of the groups' effects, with the adjusted p;
 // the joint test is said once, in comparison_sentence.
-void pairwise_sentence(const ProbeResult& p, std::vector<std::string>& out) {
+void pairwise_sentence(const ProbeResult& p, const FitResult& fit, std::vector<std::string>& out) {
     if (p.slope_contrasts.size() < 2) return;
     std::vector<std::string> parts;
     for (const auto& c : p.slope_contrasts)
         parts.push_back(c.second + " − " + c.first + " " + format_sig(c.estimate) + " (" +
                         ci_text(p.level, c.ci_lower, c.ci_upper) + ", adjusted " + p_clause(c.p_adjusted) + ")");
-    out.push_back(
-        "Pairwise, the effect of " + p.focal + (p.scale == ProbeScale::Outcome ? " on P(" + p.outcome + " = 1)" : "") +
-        " differs between groups (the second group's minus the first's; p-values " + adjustment_text(p.adjustment) +
-        " over " + std::to_string(p.slope_contrasts.size()) + " pairs): " + join_and(parts) + ".");
+    out.push_back("Pairwise, the effect of " + p.focal +
+                  (p.scale == ProbeScale::Outcome ? " on " + detail::effect_target(p, fit) : "") +
+                  " differs between groups (the second group's minus the first's; p-values " +
+                  adjustment_text(p.adjustment) + " over " + std::to_string(p.slope_contrasts.size()) +
+                  " pairs): " + join_and(parts) + ".");
 }
 
 void group_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
@@ -213,21 +215,19 @@ void group_sentences(const AnalysisRun& run, std::vector<std::string>& out) {
         parts.push_back(format_sig(e.estimate) + " (" + ci_text(p.level, e.ci_lower, e.ci_upper) + ") for " +
                         p.moderator + " = " + moderator_value_label(p, e));
     if (!parts.empty()) {
-        std::string s =
-            (p.scale == ProbeScale::Outcome ? "The effect of " + p.focal + " on P(" + p.outcome + " = 1) is "
-                                            : "The effect of " + p.focal + " on " + p.outcome + " is ") +
-            join_and(parts) + ".";
-        out.push_back(s);
+        out.push_back("The effect of " + p.focal + " on " + detail::effect_target(p, run.fit) + " is " +
+                      join_and(parts) + ".");
     }
+    detail::rate_ratio_sentence(p, run.fit, out);
     const auto cols = product_columns(run.design, p.focal, p.moderator);
     if (cols.size() == 1) {
         const Coefficient& c = run.fit.coefficients[static_cast<std::size_t>(cols[0])];
         if (!c.aliased)
             out.push_back(std::string("The slopes differ by ") + format_sig(c.estimate) +
-                          (run.fit.family == Family::Logistic ? " on the log-odds scale" : "") + " (" +
-                          ci_text(run.fit.level, c.ci_lower, c.ci_upper) + ", " + p_clause(c.p_value) + ").");
+                          detail::model_scale_clause(run.fit) + " (" + ci_text(run.fit.level, c.ci_lower, c.ci_upper) +
+                          ", " + p_clause(c.p_value) + ").");
     } else if (cols.size() > 1) {
-        pairwise_sentence(p, out);
+        pairwise_sentence(p, run.fit, out);
     }
 }
 
@@ -344,18 +344,36 @@ std::string latex_term(const std::string& term) {
     return out;
 }
 
-// The model as an equation in three notations.
+// The left-hand side of the equation in three notations, and that of the
+// fitted equation: E[y] (linear), logit P(y = 1), probit P(y = 1), log E[y].
+struct EquationSide {
+    std::string text, html, latex, fitted;
+};
+
+EquationSide equation_side(const FitResult& f, const std::string& y) {
+    const std::string yh = "<i>" + html_escape(y) + "</i>", yl = "\\text{" + latex_escape(y) + "}";
+    switch (link_of(f.family)) {
+        case Link::Logit:
+        case Link::Probit: {
+            const std::string link = f.family == Family::Probit ? "probit" : "logit";
+            const std::string text = link + " P(" + y + " = 1)";
+            return {text, link + "&nbsp;P(" + yh + " = 1)", "\\operatorname{" + link + "} P(" + yl + " = 1)", text};
+        }
+        case Link::Log:
+            return {"log E[" + y + "]", "log&nbsp;E[" + yh + "]", "\\log \\mathrm{E}[" + yl + "]", "log E[" + y + "]"};
+        case Link::Identity:
+            break;
+    }
+    return {"E[" + y + "]", "E[" + yh + "]", "\\mathrm{E}[" + yl + "]", y};
+}
+
+// The model as an equation in three notations; a count model's exposure as
+// its offset log(E), with coefficient 1.
 void equation(const AnalysisRun& run, Memo& m) {
     const FitResult& f = run.fit;
-    const bool logistic = f.family == Family::Logistic;
-    const std::string y = run.design.outcome;
-    std::string lhs_text = logistic ? "logit P(" + y + " = 1)" : "E[" + y + "]";
-    std::string lhs_html =
-        logistic ? "logit&nbsp;P(<i>" + html_escape(y) + "</i> = 1)" : "E[<i>" + html_escape(y) + "</i>]";
-    std::string lhs_latex = logistic ? "\\operatorname{logit} P(\\text{" + latex_escape(y) + "} = 1)"
-                                     : "\\mathrm{E}[\\text{" + latex_escape(y) + "}]";
-    std::string t = lhs_text + " = ", h = lhs_html + " = ", l = lhs_latex + " = ";
-    std::string fitted = (logistic ? "logit P(" + y + " = 1)" : y) + " \xE2\x89\x88 ";  // ≈
+    const EquationSide side = equation_side(f, run.design.outcome);
+    std::string t = side.text + " = ", h = side.html + " = ", l = side.latex + " = ";
+    std::string fitted = side.fitted + " \xE2\x89\x88 ";  // ≈
     int k = 0;
     for (std::size_t j = 0; j < f.coefficients.size(); ++j) {
         const Coefficient& c = f.coefficients[j];
@@ -372,6 +390,12 @@ void equation(const AnalysisRun& run, Memo& m) {
                       v + (intercept ? "" : "\xC2\xB7" + c.term);
         }
         ++k;
+    }
+    if (!f.exposure.empty()) {
+        t += " + log(" + f.exposure + ")";
+        h += " + log(" + html_escape(f.exposure) + ")";
+        l += " + \\log(\\text{" + latex_escape(f.exposure) + "})";
+        fitted += " + log(" + f.exposure + ")";
     }
     m.equation_text = t;
     m.equation_html = h;
@@ -443,10 +467,7 @@ std::vector<std::string> memo_cautions(const Analysis& a, const AnalysisRun& run
         out.push_back(
             "Interaction estimates need large samples; with n = " + format_count(static_cast<long long>(run.fit.n)) +
             ", treat the boundaries of regions as approximate.");
-    if (a.family == Family::Logistic && !said("log-odds"))
-        out.push_back(
-            "In a logistic model the product coefficient (log-odds scale) is not the interaction on the "
-            "probability scale; the probability-scale statements say how probabilities change.");
+    detail::family_cautions(a, run, out);
     detail::multilevel_cautions(run, out);
     detail::straight_line_cautions(run, out);
     return out;

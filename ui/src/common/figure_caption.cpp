@@ -4,6 +4,7 @@
 
 #include "common/held_value_text.hpp"
 #include "common/number_text.hpp"
+#include "common/scale_words.hpp"
 #include "moderato/reporting/analysis_tables.hpp"
 
 namespace moderato::ui {
@@ -13,9 +14,7 @@ QString seDescription(const Analysis& a, const AnalysisRun& run) {
 }
 
 QString figureCaption(const Analysis& a, const AnalysisRun& run) {
-    const QString family = run.fit.multilevel             ? QStringLiteral("Multilevel linear")
-                           : a.family == Family::Logistic ? QStringLiteral("Logistic")
-                                                          : QStringLiteral("Linear");
+    const QString family = run.fit.multilevel ? QStringLiteral("Multilevel linear") : familyTitle(a.family);
     QString terms =
         QString::fromStdString(a.roles.focal) + QStringLiteral(" × ") + QString::fromStdString(a.roles.moderator);
     if (!a.roles.second_moderator.empty())
@@ -26,6 +25,8 @@ QString figureCaption(const Analysis& a, const AnalysisRun& run) {
                                              : QStringLiteral(" (+%1 controls)").arg(a.roles.controls.size());
     if (!a.roles.weights.empty())
         text += QStringLiteral(", weighted by %1").arg(QString::fromStdString(a.roles.weights));
+    if (!run.fit.exposure.empty())
+        text += QStringLiteral(", per unit of %1 (exposure)").arg(QString::fromStdString(run.fit.exposure));
     if (run.fit.multilevel)
         text += QStringLiteral(", %1 groups of %2")
                     .arg(countText(static_cast<long long>(run.fit.multilevel->groups_count)),
@@ -45,13 +46,14 @@ QString figureCaption(const Analysis& a, const AnalysisRun& run, FigurePlot plot
     QString text = figureCaption(a, run);
     const bool binned = a.probe.show_binned && run.binned, smooth = a.probe.show_smooth && run.smooth;
     if (plot != FigurePlot::Effect || (!binned && !smooth)) return text;
-    if (a.family == Family::Logistic && a.probe.scale == ProbeScale::Outcome)
-        return text + QStringLiteral(" · straight-line check not drawn (log-odds scale only)");
+    const QString model = scaleWords(a.family, run.fit.exposure, QString()).modelScale;
+    if (generalized(a.family) && a.probe.scale == ProbeScale::Outcome)
+        return text + QStringLiteral(" · straight-line check not drawn (%1 scale only)").arg(model);
     QStringList parts;
     if (binned) parts << QStringLiteral("binned estimates (%1 bins)").arg(run.binned->bins.size());
     if (smooth) parts << QStringLiteral("smooth curve (bandwidth %1)").arg(numberText(run.smooth->bandwidth));
     text += QStringLiteral(" · straight-line check: ") + parts.join(QStringLiteral(", "));
-    if (a.family == Family::Logistic) text += QStringLiteral(", log-odds scale");
+    if (generalized(a.family)) text += QStringLiteral(", %1 scale").arg(model);
     return text;
 }
 

@@ -8,6 +8,7 @@
 #include <limits>
 
 #include "common/number_text.hpp"
+#include "common/scale_words.hpp"
 #include "style/palette_text.hpp"
 
 namespace moderato::ui {
@@ -20,7 +21,8 @@ void CoefficientModel::setFit(const FitResult* fit, const QStringList& labels) {
     labels_.clear();
     if (fit) {
         rows_ = fit->coefficients;
-        logistic_ = fit->family == Family::Logistic;
+        logistic_ = generalized(fit->family);
+        scale_ = scaleWords(fit->family, fit->exposure, QString()).modelScale;
         multilevel_ = fit->multilevel.has_value();
         normalDf_ = multilevel_ && fit->multilevel->df == FixedEffectDf::Normal;
         dfMethod_ = multilevel_ && fit->multilevel->df_used() == FixedEffectDf::BetweenWithin
@@ -131,7 +133,8 @@ QVariant CoefficientModel::headerData(int section, Qt::Orientation o, int role) 
     if (role == Qt::ToolTipRole) {
         switch (section) {
             case Estimate:
-                return logistic_ ? tr("Coefficient on the log-odds scale") : tr("Coefficient in units of the outcome");
+                return logistic_ ? tr("Coefficient on the %1 scale").arg(scale_)
+                                 : tr("Coefficient in units of the outcome");
             case StdError:
                 return tr("Standard error");
             case Statistic:

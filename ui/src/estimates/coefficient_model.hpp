@@ -42,7 +42,8 @@ private:
     double value(const Coefficient& c, int column) const;
     std::vector<Coefficient> rows_;
     QStringList labels_;
-    bool logistic_ = false;
+    bool logistic_ = false;  // any generalized family: z tests, coefficients on scale_
+    QString scale_;          // "log-odds", "probit", "log expected count", "log rate"
     bool multilevel_ = false;
     bool normalDf_ = false;  // multilevel tests against the normal distribution (z)
     QString dfMethod_;       // "Satterthwaite", "between–within" (multilevel)

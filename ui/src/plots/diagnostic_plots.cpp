@@ -88,7 +88,7 @@ QString ruleNumber(double v) { return v == std::round(v) ? countText(v) : number
 
 // What the residual axis shows, in words (core's plot_residual).
 QString residualTitle(const Diagnostics& d) {
-    if (d.family == Family::Logistic) return DiagnosticPlot::tr("Pearson residual");
+    if (generalized(d.family)) return QString::fromStdString(d.plot_residual_name);
     if (d.weighted) return DiagnosticPlot::tr("weighted residual (residual × √weight)");
     return DiagnosticPlot::tr("residual (observed − fitted)");
 }
@@ -473,7 +473,7 @@ void DiagnosticPlot::decorateResiduals() {
     setAxisTitle(p.rect->axis(QCPAxis::atBottom), QString::fromStdString(d.fitted_name));
     setAxisTitle(p.rect->axis(QCPAxis::atLeft), residualTitle(d));
     QCPRange xr = padded(p.xlo, p.xhi);
-    if (d.family == Family::Logistic) xr = QCPRange(std::max(-0.02, xr.lower), std::min(1.02, xr.upper));
+    if (binary_outcome(d.family)) xr = QCPRange(std::max(-0.02, xr.lower), std::min(1.02, xr.upper));
 
     // The mean residual in bins of the fitted value, each with the interval
     // of its mean: where an interval misses zero, the model misses a pattern.

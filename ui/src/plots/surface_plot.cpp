@@ -4,6 +4,7 @@
 #include <QVBoxLayout>
 #include <algorithm>
 
+#include "common/scale_words.hpp"
 #include "moderato/support/error.hpp"
 #include "plots/plot_style.hpp"
 #include "style/estuary.hpp"
@@ -142,9 +143,10 @@ QString SurfacePlot::subtitle() const {
     if (!grid_) return {};
     if (compact_) return tr("others at means / reference levels");
     QString what;
-    if (probability_) what = tr("Predicted probability that %1 = 1 (inverse logit of the log-odds)").arg(outcome_);
-    else if (logistic_) what = tr("Predicted log-odds that %1 = 1").arg(outcome_);
-    else what = tr("Predicted %1").arg(outcome_);
+    if (probability_ && family_ == Family::Logistic)
+        what = tr("Predicted probability that %1 = 1 (inverse logit of the log-odds)").arg(outcome_);
+    else if (family_ == Family::Logistic) what = tr("Predicted log-odds that %1 = 1").arg(outcome_);
+    else what = tr("Predicted %1").arg(probability_ ? words_.outcomeOf : words_.modelOf);
     return what + tr("; other predictors at their means or reference levels");
 }
 
@@ -155,10 +157,11 @@ void SurfacePlot::setRun(const Analysis& analysis, const AnalysisRun& run, const
         return;
     }
     grid_ = *run.surface;
-    logistic_ = run.fit.family == Family::Logistic;
-    probability_ = logistic_ && analysis.probe.scale == ProbeScale::Outcome;
-    values_ = probability_ ? surface_probabilities(*grid_) : grid_->predicted;
+    probability_ = generalized(run.fit.family) && analysis.probe.scale == ProbeScale::Outcome;
+    values_ = probability_ ? surface_probabilities(*grid_, run.fit.family) : grid_->predicted;
     outcome_ = QString::fromStdString(analysis.roles.outcome);
+    words_ = scaleWords(run.fit.family, run.fit.exposure, outcome_);
+    family_ = run.fit.family;
     try {
         region_ = region ? *region : data_region(run.design, grid_->x, grid_->z);
     } catch (const InputError&) {
@@ -278,8 +281,9 @@ SurfacePlot::BeyondQuadrants SurfacePlot::drawMap(const SurfaceGrid& g) {
     scale_->setGradient(ramp(greyscale_));
     map_->setInterpolate(true);
     map_->rescaleDataRange(true);
-    scale_->axis()->setLabel(probability_ ? tr("P(%1 = 1)").arg(outcome_)
-                                          : (logistic_ ? tr("log-odds of %1 = 1").arg(outcome_) : outcome_));
+    scale_->axis()->setLabel(
+        probability_ ? words_.outcomeOf
+                     : (family_ == Family::Logistic ? tr("log-odds of %1 = 1").arg(outcome_) : words_.modelOf));
     return q;
 }
 

@@ -11,6 +11,7 @@
 #include <memory>
 #include <optional>
 
+#include "common/scale_words.hpp"
 #include "moderato/probing/surface_view.hpp"
 #include "moderato/project/analysis_run.hpp"
 #include "plots/figure_source.hpp"
@@ -90,7 +91,9 @@ private:
     DataRegion region_;
     std::shared_ptr<const SurfacePoints> points_;  // drawn when the analysis shows data points
     QString outcome_;
-    bool probability_ = false, logistic_ = false, greyscale_ = false;
+    ScaleWords words_;  // the family's scale words for the outcome
+    Family family_ = Family::Linear;
+    bool probability_ = false, greyscale_ = false;
     int beyondCells_ = 0;
     bool replotDue_ = false;
     double exportHeightIn_ = 0;

@@ -24,6 +24,7 @@ void PinnedTableModel::setRows(std::vector<Row> rows, const QString& moderator, 
                                const QString& interval) {
     beginResetModel();
     rows_ = std::move(rows);
+    ratios_ = std::any_of(rows_.begin(), rows_.end(), [](const Row& r) { return r.ratio.has_value(); });
     moderator_ = moderator;
     statistic_ = statistic;
     interval_ = interval;
@@ -33,14 +34,22 @@ void PinnedTableModel::setRows(std::vector<Row> rows, const QString& moderator, 
 int PinnedTableModel::rowCount(const QModelIndex& parent) const {
     return parent.isValid() ? 0 : static_cast<int>(rows_.size());
 }
-int PinnedTableModel::columnCount(const QModelIndex& parent) const { return parent.isValid() ? 0 : ColumnCount; }
+int PinnedTableModel::columnCount(const QModelIndex& parent) const {
+    if (parent.isValid()) return 0;
+    return ratios_ ? ColumnCount : Note + 1;
+}
+
+PinnedTableModel::Column PinnedTableModel::columnAt(int section) const { return static_cast<Column>(section); }
+
+int PinnedTableModel::sectionOf(Column c) const { return c < columnCount() ? static_cast<int>(c) : -1; }
 
 QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
     if (!index.isValid() || index.row() >= static_cast<int>(rows_.size())) return {};
     const Row& r = rows_[static_cast<std::size_t>(index.row())];
     const EffectPoint& e = r.point;
+    const Column column = columnAt(index.column());
     if (role == Qt::DisplayRole) {
-        switch (index.column()) {
+        switch (column) {
             case Value:
                 return r.label;
             case Effect:
@@ -55,16 +64,23 @@ QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
                 return numberText(e.ci_lower);
             case Upper:
                 return numberText(e.ci_upper);
+            case Ratio:
+                return r.ratio ? numberText(r.ratio->ratio) : QString();
+            case RatioLower:
+                return r.ratio ? numberText(r.ratio->ci_lower) : QString();
+            case RatioUpper:
+                return r.ratio ? numberText(r.ratio->ci_upper) : QString();
             case Note:
                 return e.beyond_data ? tr("beyond the data") : QString();
+            case ColumnCount:
+                break;
         }
     }
     if (role == Qt::TextAlignmentRole)
-        return QVariant::fromValue(index.column() == Value || index.column() == Note
-                                       ? Qt::AlignLeft | Qt::AlignVCenter
-                                       : Qt::AlignRight | Qt::AlignVCenter);
+        return QVariant::fromValue(column == Value || column == Note ? Qt::AlignLeft | Qt::AlignVCenter
+                                                                     : Qt::AlignRight | Qt::AlignVCenter);
     // From the palette, so a shaded row stays readable on a dark desktop too.
-    if (role == Qt::ForegroundRole && index.column() == Note) return mutedText(QApplication::palette(), QPalette::Base);
+    if (role == Qt::ForegroundRole && column == Note) return mutedText(QApplication::palette(), QPalette::Base);
     if (role == Qt::BackgroundRole && e.beyond_data) return beyondRowBackground(QApplication::palette());
     if (role == Qt::FontRole && e.beyond_data) {
         QFont f;
@@ -72,6 +88,10 @@ QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
         return f;
     }
     if (role == Qt::ToolTipRole) {
+        if (column >= Ratio && column <= RatioUpper)
+            return tr(
+                "Rate ratio: the factor by which the expected count (or rate) changes for one unit more of the "
+                "focal predictor (0 to 1 for a 0/1 one) here; 1 is no effect.");
         if (e.beyond_data) return tr("This value lies outside the observed range of the moderator: an extrapolation.");
         if (!r.pinned) return tr("Shown until you pin a value of your own");
     }
@@ -81,7 +101,7 @@ QVariant PinnedTableModel::data(const QModelIndex& index, int role) const {
 QVariant PinnedTableModel::headerData(int section, Qt::Orientation orientation, int role) const {
     if (orientation == Qt::Horizontal && role == Qt::ToolTipRole && section == Value) return moderator_;
     if (orientation != Qt::Horizontal || role != Qt::DisplayRole) return {};
-    switch (section) {
+    switch (columnAt(section)) {
         case Value:
             return moderator_;
         case Effect:
@@ -96,8 +116,16 @@ QVariant PinnedTableModel::headerData(int section, Qt::Orientation orientation, 
             return tr("%1 low").arg(interval_);
         case Upper:
             return tr("%1 high").arg(interval_);
+        case Ratio:
+            return tr("rate ratio");
+        case RatioLower:
+            return tr("RR %1 low").arg(interval_);
+        case RatioUpper:
+            return tr("RR %1 high").arg(interval_);
         case Note:
             return tr("note");
+        case ColumnCount:
+            break;
     }
     return {};
 }
@@ -143,7 +171,7 @@ PinnedTable::PinnedTable(QWidget* parent)
     view_->horizontalHeader()->setStretchLastSection(false);
     // On screen a row beyond the data is shaded and in italics (the caption says
     // so); the "beyond the data" column is kept for the copied text.
-    view_->setColumnHidden(PinnedTableModel::Note, true);
+    hideNote();
     view_->setAlternatingRowColors(false);
     view_->setWordWrap(false);
     view_->setFont(small);
@@ -157,12 +185,20 @@ PinnedTable::PinnedTable(QWidget* parent)
     connect(del, &QAction::triggered, this, &PinnedTable::removeSelected);
     connect(remove_, &QToolButton::clicked, this, &PinnedTable::removeSelected);
     connect(copy_, &QToolButton::clicked, this, [this] { QApplication::clipboard()->setText(tsv()); });
+    connect(model_, &QAbstractItemModel::modelReset, this, &PinnedTable::hideNote);
     connect(model_, &QAbstractItemModel::modelReset, this, &PinnedTable::updateButtons);
     connect(model_, &QAbstractItemModel::modelReset, this, &PinnedTable::fitHeight);
     connect(view_->selectionModel(), &QItemSelectionModel::selectionChanged, this, &PinnedTable::updateButtons);
     updateButtons();
     fitHeight();
 }
+
+void PinnedTable::hideNote() {
+    for (int c = 0; c < model_->columnCount(); ++c)
+        view_->setColumnHidden(c, model_->columnAt(c) == PinnedTableModel::Note);
+}
+
+QString PinnedTable::caption() const { return caption_->text(); }
 
 void PinnedTable::setCaption(const QString& text) {
     caption_->setText(text);

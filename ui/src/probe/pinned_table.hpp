@@ -2,12 +2,14 @@
 // value (or, before anything is pinned, at the defaults core chose: mean and
 // ± 1 SD; for groups, every group) in the house order of an estimate, the
 // same as the memo's and the exported tables: moderator value, effect,
-// interval (low, high), SE, test value, p, and a "beyond the data" note.
+// interval (low, high), SE, test value, p, a count model's rate ratio with
+// its interval, and a "beyond the data" note.
 // Pinned rows can be removed; the table copies as tab-separated text.
 #pragma once
 
 #include <QAbstractTableModel>
 #include <QWidget>
+#include <optional>
 #include <vector>
 
 #include "moderato/probing/probe.hpp"
@@ -21,16 +23,23 @@ namespace moderato::ui {
 class PinnedTableModel : public QAbstractTableModel {
     Q_OBJECT
 public:
-    enum Column { Value, Effect, Lower, Upper, SE, Statistic, P, Note, ColumnCount };
+    // The rate-ratio columns are there only while a row has a ratio (count
+    // models); Note is hidden on screen, so they follow p there.
+    enum Column { Value, Effect, Lower, Upper, SE, Statistic, P, Note, Ratio, RatioLower, RatioUpper, ColumnCount };
     struct Row {
         QString label;  // the moderator value as shown ("23.1", "North", "mean − 1 SD: 23.1")
         EffectPoint point;
-        bool pinned = false;  // removable
-        int pinIndex = -1;    // index into ProbeSettings.pinned
+        bool pinned = false;             // removable
+        int pinIndex = -1;               // index into ProbeSettings.pinned
+        std::optional<RateRatio> ratio;  // a count model's exp(effect on the log scale)
     };
     using QAbstractTableModel::QAbstractTableModel;
     void setRows(std::vector<Row> rows, const QString& moderator, const QString& statistic, const QString& interval);
     const std::vector<Row>& rows() const { return rows_; }
+    bool hasRatios() const { return ratios_; }
+    // The column a section shows, and the section of a column (-1: not shown).
+    Column columnAt(int section) const;
+    int sectionOf(Column c) const;
 
     int rowCount(const QModelIndex& parent = {}) const override;
     int columnCount(const QModelIndex& parent = {}) const override;
@@ -40,6 +49,7 @@ public:
 private:
     std::vector<Row> rows_;
     QString moderator_, statistic_, interval_;
+    bool ratios_ = false;
 };
 
 class PinnedTable : public QWidget {
@@ -49,6 +59,7 @@ public:
     PinnedTableModel* model() const { return model_; }
     QTableView* view() const { return view_; }
     void setCaption(const QString& text);
+    QString caption() const;
     // The selection (or everything) as tab-separated text; also put on the clipboard by Copy.
     QString tsv() const;
 
@@ -58,6 +69,7 @@ Q_SIGNALS:
 
 private:
     void removeSelected();
+    void hideNote();  // on screen a row beyond the data is shaded instead
     void updateButtons();
     void fitHeight();
 

@@ -162,6 +162,8 @@ void ProbeEngine::prepareExtras() {
         const std::size_t r = d.rows[i];
         v.x[i] = focalColumn.numbers[r];
         v.y[i] = d.y[static_cast<Eigen::Index>(i)];
+        // On the outcome scale a count model with an exposure draws rates: each row's count per unit of it.
+        if (probability() && d.offset.size() > 0) v.y[i] /= std::exp(d.offset[static_cast<Eigen::Index>(i)]);
         if (cat) {
             const int code = moderatorColumn.codes[r];
             v.group[i] = code >= 0 ? codeToGroup[static_cast<std::size_t>(code)] : 0;

@@ -10,6 +10,7 @@
 #include <utility>
 #include <vector>
 
+#include "common/scale_words.hpp"
 #include "moderato/probing/probe_curves.hpp"
 #include "moderato/probing/response_scale.hpp"
 #include "moderato/probing/surface_view.hpp"
@@ -52,7 +53,12 @@ public:
 
     bool groups() const { return run_->kind == ProbeKind::Groups; }
     bool probability() const { return probe().scale == ProbeScale::Outcome; }
-    bool logistic() const { return run_->fit.family == Family::Logistic; }
+    // A generalized model (logistic, probit, Poisson, negative binomial): two scales to show.
+    bool generalizedModel() const { return generalized(run_->fit.family); }
+    // The family's words for its two scales, with this analysis's outcome.
+    ScaleWords words() const {
+        return scaleWords(run_->fit.family, run_->fit.exposure, QString::fromStdString(outcome()));
+    }
     const std::string& focal() const { return analysis_.roles.focal; }
     const std::string& moderator() const { return analysis_.roles.moderator; }
     const std::string& outcome() const { return analysis_.roles.outcome; }

@@ -17,6 +17,7 @@
 #include "common/background_job.hpp"
 #include "common/inline_work.hpp"
 #include "common/number_text.hpp"
+#include "common/scale_words.hpp"
 #include "model/project_document.hpp"
 #include "plots/diagnostic_plots.hpp"
 #include "sections/flagged_rows_model.hpp"
@@ -345,6 +346,27 @@ RowNumbers ChecksSection::rowNumbers(const AnalysisRun& run) {
     return r;
 }
 
+namespace {
+
+// The IRLS weights of a generalized fit, which its leverage uses.
+QString workingWeights(Family f) {
+    switch (f) {
+        case Family::Logistic:
+            return ChecksSection::tr("p(1 − p)");
+        case Family::Probit:
+            return ChecksSection::tr("φ(η)² / (p(1 − p))");
+        case Family::Poisson:
+            return ChecksSection::tr("μ");
+        case Family::NegativeBinomial:
+            return ChecksSection::tr("μ / (1 + αμ)");
+        case Family::Linear:
+            break;
+    }
+    return {};
+}
+
+}  // namespace
+
 QString ChecksSection::noteText(const Diagnostics& d) const {
     if (d.multilevel) return multilevelNoteText(d);
     QStringList note;
@@ -352,11 +374,15 @@ QString ChecksSection::noteText(const Diagnostics& d) const {
         tr("The squares are the mean residual in bins of the fitted value, each with its 95% interval: where "
            "an interval misses the zero line, the residuals there average away from zero and the model misses a "
            "pattern (with many bins, about one interval in twenty misses zero by chance alone).");
-    if (d.family == Family::Logistic) {
-        note << tr("Logistic fit: Pearson residuals against the fitted probability.") << bins
-             << tr("The quantile plot uses standardised deviance residuals, which for a 0/1 outcome need not "
-                   "follow the line closely: look for isolated points. Leverage uses the fit's working weights "
-                   "p(1 − p).");
+    if (generalized(d.family)) {
+        note << tr("%1 fit: %2s against the %3.")
+                    .arg(familyTitle(d.family), QString::fromStdString(d.plot_residual_name),
+                         QString::fromStdString(d.fitted_name))
+             << bins
+             << tr("The quantile plot uses %1s, which for %2 need not follow the line closely: look for isolated "
+                   "points. Leverage uses the fit's working weights %3.")
+                    .arg(QString::fromStdString(d.quantile_residual_name),
+                         binary_outcome(d.family) ? tr("a 0/1 outcome") : tr("small counts"), workingWeights(d.family));
     } else {
         note << (d.weighted ? tr("Weighted fit: residuals are scaled by the square root of the weight.")
                             : tr("Residuals against fitted values: a funnel shape means the spread changes."))
@@ -396,7 +422,7 @@ QString ChecksSection::rulesText(const Diagnostics& d) const {
     // The rules core applies (diagnostics.hpp, DiagnosticRules), in words.
     const QString n = countText(static_cast<long long>(d.n));
     const QString residual =
-        d.family == Family::Logistic ? tr("standardised Pearson residual") : tr("externally studentised residual");
+        generalized(d.family) ? QString::fromStdString(d.check_residual_name) : tr("externally studentised residual");
     auto multiple = [](double v) { return v == std::round(v) ? countText(static_cast<long long>(v)) : numberText(v); };
     QString rules =
         tr("Rows are flagged by rules of thumb (common practice, not tests), with %1 rows in the fit and %2 "

@@ -16,6 +16,7 @@
 #include <cmath>
 
 #include "common/number_text.hpp"
+#include "common/scale_words.hpp"
 #include "common/table_clipboard.hpp"
 #include "estimates/coefficient_model.hpp"
 #include "model/project_document.hpp"
@@ -42,7 +43,7 @@ QLabel* wrapped(QWidget* parent, bool rich = true) {
 }
 
 QString seLabel(SeKind s, Family f) {
-    if (s == SeKind::Classical && f == Family::Logistic) return EstimatesSection::tr("classical (model-based)");
+    if (s == SeKind::Classical && generalized(f)) return EstimatesSection::tr("classical (model-based)");
     return seKindName(s);
 }
 
@@ -57,6 +58,50 @@ QString testText(double statistic, double df1, double df2, double chiSquare, dou
 
 QString row(const QString& label, const QString& value) {
     return QStringLiteral("<tr><td style=\"padding-right:14px\">%1</td><td>%2</td></tr>").arg(label, value);
+}
+
+// A count model's dispersion: the negative binomial's alpha with its
+// interval, or the Poisson model's overdispersion statistics.
+QString dispersionRows(const FitResult& f) {
+    QString rows;
+    if (f.dispersion) {
+        const Dispersion& d = *f.dispersion;
+        rows += row(EstimatesSection::tr("Dispersion \u03b1"),
+                    EstimatesSection::tr("%1 (SE %2; %3 CI %4): variance = mean + \u03b1\u00b7mean\u00b2")
+                        .arg(numberText(d.alpha), numberText(d.std_error), levelText(f.level),
+                             rangeText(d.ci_lower, d.ci_upper))
+                        .toHtmlEscaped());
+    }
+    if (f.overdispersion) {
+        const Overdispersion& o = *f.overdispersion;
+        rows += row(EstimatesSection::tr("Overdispersion"),
+                    EstimatesSection::tr("Pearson \u03c7\u00b2/df %1 · Cameron & Trivedi z = %2, one-sided %3%4")
+                        .arg(numberText(o.pearson_ratio), numberText(o.test_value), pClauseText(o.p_value),
+                             o.evident() ? EstimatesSection::tr(" — the counts vary more than a Poisson model "
+                                                                "allows; try the negative binomial")
+                                         : QString())
+                        .toHtmlEscaped());
+    }
+    return rows;
+}
+
+// Deviance, McFadden R², the likelihood-ratio test, dispersion and iterations of a generalized model.
+QString generalizedFitRows(const FitResult& main) {
+    QString rows;
+    rows += row(EstimatesSection::tr("Deviance"),
+                std::isnan(main.null_deviance) ? numberText(main.deviance)
+                                               : EstimatesSection::tr("%1 (null model %2)")
+                                                     .arg(numberText(main.deviance), numberText(main.null_deviance)));
+    rows += row(EstimatesSection::tr("McFadden R\u00b2"), numberText(main.mcfadden_r2));
+    if (main.lr_df > 0)
+        rows += row(EstimatesSection::tr("All terms but the intercept"),
+                    EstimatesSection::tr("likelihood ratio %1")
+                        .arg(testText(0, main.lr_df, INFINITY, main.lr_statistic, main.lr_p_value)));
+    rows += dispersionRows(main);
+    rows += row(EstimatesSection::tr("Iterations"),
+                main.converged ? EstimatesSection::tr("%1 (converged)").arg(main.iterations)
+                               : EstimatesSection::tr("%1 (did not converge)").arg(main.iterations));
+    return rows;
 }
 
 // Coefficient labels of the centred fit: the columns' own names with the
@@ -246,14 +291,17 @@ void EstimatesSection::showHeader(const Analysis& a, const FitResult& main) {
         header_->setText(multilevelHeader(a.roles.outcome, main));
         return;
     }
-    const bool logistic = main.family == Family::Logistic;
+    const bool logistic = generalized(main.family);
     QString se = seLabel(main.se, main.family);
     if (main.se == SeKind::Cluster) se += tr(" (%1 clusters)").arg(main.n_clusters);
     const QString dist = logistic ? tr("z (standard normal)") : tr("t on %1 df").arg(main.df_inference);
+    QString scale = scaleWords(main.family, main.exposure, QString()).modelScale;
+    if (!main.exposure.empty()) scale += tr(", per unit of %1").arg(h(main.exposure));
     header_->setText(tr("<b>Coefficients</b> of %1 &nbsp;·&nbsp; %2 model%3 &nbsp;·&nbsp; %4 standard errors "
                         "&nbsp;·&nbsp; %5 confidence intervals &nbsp;·&nbsp; %6")
-                         .arg(h(a.roles.outcome), familyName(main.family), logistic ? tr(" (log-odds)") : QString(),
-                              se.toHtmlEscaped(), levelText(main.level), dist));
+                         .arg(h(a.roles.outcome), familyName(main.family),
+                              logistic ? tr(" (%1)").arg(scale) : QString(), se.toHtmlEscaped(), levelText(main.level),
+                              dist));
 }
 
 void EstimatesSection::showCentres(const AnalysisRun& run) {
@@ -273,7 +321,7 @@ void EstimatesSection::showFitStatistics(const FitResult& main) {
         fit_->setText(multilevelFitRows(main));
         return;
     }
-    const bool logistic = main.family == Family::Logistic;
+    const bool logistic = generalized(main.family);
     QString rows;
     rows += row(QStringLiteral("n"),
                 main.n_excluded ? tr("%1 (%2 rows excluded)").arg(countText(main.n), countText(main.n_excluded))
@@ -288,15 +336,7 @@ void EstimatesSection::showFitStatistics(const FitResult& main) {
                     testText(main.f_statistic, main.f_df1, main.f_df2, main.f_statistic * main.f_df1, main.f_p_value) +
                         tr(" (%1 covariance)").arg(seLabel(main.se, main.family)));
     } else {
-        rows += row(tr("Deviance"),
-                    tr("%1 (null model %2)").arg(numberText(main.deviance), numberText(main.null_deviance)));
-        rows += row(tr("McFadden R\u00b2"), numberText(main.mcfadden_r2));
-        if (main.lr_df > 0)
-            rows += row(
-                tr("All terms but the intercept"),
-                tr("likelihood ratio %1").arg(testText(0, main.lr_df, INFINITY, main.lr_statistic, main.lr_p_value)));
-        rows += row(tr("Iterations"), main.converged ? tr("%1 (converged)").arg(main.iterations)
-                                                     : tr("%1 (did not converge)").arg(main.iterations));
+        rows += generalizedFitRows(main);
     }
     rows += row(tr("Log-likelihood"), numberText(main.log_likelihood));
     rows += row(QStringLiteral("AIC"), numberText(main.aic));
@@ -306,7 +346,7 @@ void EstimatesSection::showFitStatistics(const FitResult& main) {
 
 // The model with and without its product terms.
 void EstimatesSection::showComparison(const FitResult& main) {
-    const bool logistic = main.family == Family::Logistic;
+    const bool logistic = generalized(main.family);
     comparisonTitle_->show();
     comparison_->show();
     if (main.multilevel) {  // the Wald test with the model's own covariance: no R² change

@@ -75,11 +75,11 @@ QVariant FlaggedRowsModel::headerData(int section, Qt::Orientation orientation, 
         case Line:
             return table_ && !table_->row_lines.empty() ? tr("line") : tr("row");
         case Fitted:
-            return d_ && d_->family == Family::Logistic ? tr("fitted probability") : tr("fitted value");
+            return d_ && generalized(d_->family) ? QString::fromStdString(d_->fitted_name) : tr("fitted value");
         case Residual:
             if (d_ && d_->multilevel) return tr("standardised conditional residual");
-            return d_ && d_->family == Family::Logistic ? tr("standardised Pearson residual")
-                                                        : tr("externally studentised residual");
+            return d_ && generalized(d_->family) ? QString::fromStdString(d_->check_residual_name)
+                                                 : tr("externally studentised residual");
         case Leverage:
             return tr("leverage");
         case Cooks:

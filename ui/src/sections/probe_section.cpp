@@ -45,6 +45,12 @@ enum Page { MessagePage = 0, ProbePage = 1, CellsPage = 2 };
 
 QString q(const std::string& s) { return QString::fromStdString(s); }
 
+// "Probability", "Log expected count": a scale's words at the start of a phrase.
+QString capitalized(QString s) {
+    if (!s.isEmpty()) s[0] = s[0].toUpper();
+    return s;
+}
+
 QLabel* plotTitle(QWidget* parent) {
     auto* l = new QLabel(parent);
     l->setTextFormat(Qt::RichText);
@@ -155,9 +161,10 @@ QHBoxLayout* ProbeSection::createControls() {
     controls->addSpacing(8);
     controls->addWidget(scaleLabel_);
     scale_->setObjectName(QStringLiteral("scale-choice"));
+    scale_->setSizeAdjustPolicy(QComboBox::AdjustToContents);  // its entries follow the family's words
     scale_->addItem(tr("log-odds"), static_cast<int>(ProbeScale::Model));
     scale_->addItem(tr("probability"), static_cast<int>(ProbeScale::Outcome));
-    scale_->setToolTip(tr("Effects on the log-odds of the outcome, or on the probability that it is 1"));
+    scale_->setToolTip(tr("Effects on the scale of the model's coefficients, or on the outcome's own scale"));
     controls->addWidget(scale_);
     averaging_->setObjectName(QStringLiteral("averaging-choice"));
     averaging_->addItem(tr("averaged over the rows"), static_cast<int>(Averaging::Sample));
@@ -290,13 +297,12 @@ void ProbeSection::connectSettings() {
     });
     connect(scale_, &QComboBox::activated, this, [this](int i) {
         const auto s = static_cast<ProbeScale>(scale_->itemData(i).toInt());
-        editSettings([s](ProbeSettings& p) { p.scale = s; }, s == ProbeScale::Outcome
-                                                                 ? tr("Probe on the probability scale")
-                                                                 : tr("Probe on the log-odds scale"));
+        editSettings([s](ProbeSettings& p) { p.scale = s; },
+                     tr("Probe on the %1 scale").arg(scale_->itemText(scale_->findData(static_cast<int>(s)))));
     });
     connect(averaging_, &QComboBox::activated, this, [this](int i) {
         const auto s = static_cast<Averaging>(averaging_->itemData(i).toInt());
-        editSettings([s](ProbeSettings& p) { p.averaging = s; }, tr("Change how probability effects are averaged"));
+        editSettings([s](ProbeSettings& p) { p.averaging = s; }, tr("Change how outcome-scale effects are averaged"));
     });
     connect(adjust_, &QComboBox::activated, this, [this](int i) {
         const auto a = static_cast<Adjustment>(adjust_->itemData(i).toInt());
@@ -474,24 +480,31 @@ void ProbeSection::rebuild() {
     pages_->setCurrentIndex(ProbePage);
 
     const ProbeSettings& ps = a->probe;
-    const bool logistic = engine_.logistic();
+    const bool generalizedModel = engine_.generalizedModel();
     band_->setCurrentIndex(simultaneousShown() ? 1 : 0);
     band_->setEnabled(engine_.hasSimultaneous());
     band_->setVisible(!engine_.groups());
     band_->setToolTip(engine_.hasSimultaneous()
                           ? band_->toolTip()
-                          : tr("No simultaneous band here: on the probability scale the effect is not linear in the "
-                               "coefficients"));
+                          : tr("No simultaneous band here: on the %1 scale the effect is not linear in the "
+                               "coefficients")
+                                .arg(engine_.words().outcomeScale));
     points_->setChecked(ps.show_points);
     differ_->setChecked(ps.show_gaps);
     extend_->setChecked(ps.extend_to_boundaries);
     extend_->setVisible(!engine_.groups());
-    points_->setEnabled(!logistic || engine_.probability());
+    points_->setEnabled(!generalizedModel || engine_.probability());
     syncJitterToggle(ps);
-    scaleLabel_->setVisible(logistic);
-    scale_->setVisible(logistic);
+    scaleLabel_->setVisible(generalizedModel);
+    scale_->setVisible(generalizedModel);
+    const ScaleWords words = engine_.words();
+    scale_->setItemText(0, words.modelSwitch);
+    scale_->setItemText(1, words.outcomeSwitch);
+    scale_->setItemData(0, tr("Effects on the %1 scale, the scale of the model's coefficients").arg(words.modelScale),
+                        Qt::ToolTipRole);
+    scale_->setItemData(1, tr("Effects on the outcome's own scale: %1").arg(words.outcomeOf), Qt::ToolTipRole);
     scale_->setCurrentIndex(engine_.probability() ? 1 : 0);
-    averaging_->setVisible(logistic && engine_.probability());
+    averaging_->setVisible(generalizedModel && engine_.probability());
     averaging_->setCurrentIndex(ps.averaging == Averaging::AtValues ? 1 : 0);
     adjust_->setVisible(run_->probe->slope_contrasts.size() > 1);
     adjust_->setCurrentIndex(std::max(0, adjust_->findData(static_cast<int>(ps.adjustment))));
@@ -504,7 +517,9 @@ void ProbeSection::rebuild() {
     differ_->setVisible(!run_->probe->crossovers.empty());
     differ_->setText(engine_.groups() ? tr("Where groups differ") : tr("Where lines differ"));
     fillHeldValue();
-    straight_->setVisible(run_->kind == ProbeKind::Continuous && !a->multilevel.active());
+    // Core's straight-line check serves linear and logistic models (not yet probit or count models).
+    const bool checkable = a->family == Family::Linear || a->family == Family::Logistic;
+    straight_->setVisible(run_->kind == ProbeKind::Continuous && !a->multilevel.active() && checkable);
     straight_->setAnalysis(*a, run_.get(), engine_.probability());
 
     if (engine_.groups()) {
@@ -534,8 +549,8 @@ bool ProbeSection::simultaneousShown() const {
 
 QString ProbeSection::effectTitle() const {
     const QString f = q(engine_.focal()), y = q(engine_.outcome());
-    if (engine_.probability()) return tr("Effect of %1 on P(%2 = 1)").arg(f, y);
-    if (engine_.logistic()) return tr("Effect of %1 on the log-odds of %2").arg(f, y);
+    if (engine_.probability()) return tr("Effect of %1 on %2").arg(f, engine_.words().outcomeOf);
+    if (engine_.generalizedModel()) return tr("Effect of %1 on the %2").arg(f, engine_.words().modelOf);
     return tr("Effect of %1 on %2").arg(f, y);
 }
 
@@ -549,10 +564,8 @@ QString ProbeSection::productCoefficientText() const {
 }
 
 QString ProbeSection::outcomeWhat() const {
-    const QString y = q(engine_.outcome());
-    if (engine_.probability()) return tr("P(%1 = 1)").arg(y);
-    if (engine_.logistic()) return tr("log-odds of %1").arg(y);
-    return y;
+    if (engine_.probability()) return engine_.words().outcomeOf;
+    return engine_.words().modelOf;
 }
 
 QString ProbeSection::heldText() const {
@@ -594,10 +607,12 @@ void ProbeSection::fillReadoutContext() {
     const QString level = levelText(p.level);
     // A logistic model's effects are on one of two scales: say which. A linear model has only its outcome's.
     QString scale;
+    const ScaleWords words = engine_.words();
     if (engine_.probability())
-        scale = p.averaging == Averaging::AtValues ? tr("Probability scale, other predictors at their means")
-                                                   : tr("Probability scale, averaged over the observed rows");
-    else if (engine_.logistic()) scale = tr("Log-odds scale");
+        scale = (p.averaging == Averaging::AtValues ? tr("%1 scale, other predictors at their means")
+                                                    : tr("%1 scale, averaged over the observed rows"))
+                    .arg(capitalized(words.outcomeScale));
+    else if (engine_.generalizedModel()) scale = tr("%1 scale").arg(capitalized(words.modelScale));
     QString statement = tr("%1 SEs · %2 pointwise interval").arg(seDescription(a, *run_), level);
     if (!scale.isEmpty()) statement = tr("%1 · %2").arg(scale, statement);
     const QString held = heldText();
@@ -719,13 +734,10 @@ void ProbeSection::addGroupLines(LinesPlotData& l) {
 LinesPlotData ProbeSection::linesPlotData() {
     const ProbeResult& p = engine_.probe();
     const bool groups = engine_.groups();
-    const QString y = q(engine_.outcome());
     // The lines: one per group, or per pinned (or default) moderator value.
     LinesPlotData l;
     l.focalTitle = q(engine_.focal());
-    l.outcomeTitle = engine_.probability() ? tr("P(%1 = 1)").arg(y)
-                     : engine_.logistic()  ? tr("log-odds of %1").arg(y)
-                                           : y;
+    l.outcomeTitle = engine_.probability() ? engine_.words().outcomeOf : engine_.words().modelOf;
     l.xRange = engine_.focalRange();
     const double xw = l.xRange.second - l.xRange.first;
     // A focal predictor observed only at 0 or above gets no negative margin.
@@ -733,8 +745,10 @@ LinesPlotData ProbeSection::linesPlotData() {
                 l.xRange.second + 0.02 * xw};
     // What the outcome can take: a probability, or a value observed only at 0 or above.
     const Eigen::VectorXd& observedY = run_->design.y;
-    if (engine_.probability()) l.yBounds = {0.0, 1.0};
-    else if (!engine_.logistic() && observedY.size() > 0 && observedY.minCoeff() >= 0) l.yBounds.first = 0.0;
+    const Family family = run_->fit.family;
+    if (engine_.probability() && binary_outcome(family)) l.yBounds = {0.0, 1.0};
+    else if (engine_.probability() && count_outcome(family)) l.yBounds.first = 0.0;
+    else if (!engine_.generalizedModel() && observedY.size() > 0 && observedY.minCoeff() >= 0) l.yBounds.first = 0.0;
     groupLines_.clear();
     const QString mod = q(engine_.moderator());
     if (groups) {
@@ -761,7 +775,7 @@ LinesPlotData ProbeSection::linesPlotData() {
                 l.yExtent.push_back(c);
             }
     }
-    l.showPoints = shown_.probe.show_points && (!engine_.logistic() || engine_.probability());
+    l.showPoints = shown_.probe.show_points && (!engine_.generalizedModel() || engine_.probability());
     if (l.showPoints) {
         l.points = engine_.linesPoints();
         l.jitter = shown_.probe.jitter;
@@ -858,13 +872,13 @@ void ProbeSection::fillTable() {
     if (engine_.groups()) {
         for (std::size_t k = 0; k < p.effects.size(); ++k)
             rows.push_back({q(k < engine_.groupNames().size() ? engine_.groupNames()[k] : p.effects[k].level),
-                            p.effects[k], false, -1});
+                            p.effects[k], false, -1, std::nullopt});
         pinned_->setCaption(tr("The effect of %1 in each group of %2.").arg(q(engine_.focal()), mod));
     } else {
         const auto& pins = shown_.probe.pinned;
         for (const auto& e : p.effects) {
             const int pin = pinIndex(pins, e.moderator_value);
-            rows.push_back({numberText(e.moderator_value), e, pin >= 0, pin});
+            rows.push_back({numberText(e.moderator_value), e, pin >= 0, pin, std::nullopt});
         }
         QString caption = p.points == ProbePoints::Percentiles
                               ? tr("Shown at the 10th, 50th and 90th percentiles of %1 (it is skewed, or mean ± 1 SD "
@@ -882,6 +896,15 @@ void ProbeSection::fillTable() {
                 tr("Shaded rows in italics lie beyond the data (%1 observed from %2).").arg(mod, rangeText(lo, hi));
         }
         pinned_->setCaption(caption);
+    }
+    // A count model's rate ratios, at the same moderator values as the effects (core computes both).
+    if (p.rate_ratios.size() == rows.size()) {
+        for (std::size_t k = 0; k < rows.size(); ++k) rows[k].ratio = p.rate_ratios[k];
+        pinned_->setCaption(pinned_->caption() + QStringLiteral(" ") +
+                            tr("Rate ratio: the factor on the %1 for %2 (1 is no effect).")
+                                .arg(run_->fit.exposure.empty() ? tr("expected count") : tr("rate"),
+                                     p.binary_focal ? tr("%1 from 0 to 1").arg(q(engine_.focal()))
+                                                    : tr("one unit more of %1").arg(q(engine_.focal()))));
     }
     const QString level = levelText(p.level);
     pinned_->model()->setRows(std::move(rows), mod, statisticText(p.df), level);
@@ -924,31 +947,31 @@ void ProbeSection::fillSummary() {
 
 void ProbeSection::summarizeInteraction(SummaryText& out) {
     const ProbeResult& p = engine_.probe();
+    const ScaleWords words = engine_.words();
     const QString mod = q(engine_.moderator());
     if (p.interaction_effect) {
-        // The interaction on the probability scale (Ai & Norton), which is not the product coefficient.
+        // The interaction on the outcome's scale (Ai & Norton), which is not the product coefficient.
         const auto& ie = *p.interaction_effect;
         const QString level = levelText(p.level);
-        out.section(tr("Interaction on the probability scale"));
+        out.section(tr("Interaction on the %1 scale").arg(words.outcomeScale));
         QString kind = QString::fromLatin1(to_string(ie.kind));
         if (!kind.isEmpty()) kind[0] = kind[0].toUpper();
-        out.line(tr("%1 of P(%2 = 1): %3 (SE %4, %5 CI %6, p %7)")
-                     .arg(kind, q(engine_.outcome()), numberText(ie.estimate), numberText(ie.std_error), level,
+        out.line(tr("%1 of %2: %3 (SE %4, %5 CI %6, p %7)")
+                     .arg(kind, words.outcomeOf, numberText(ie.estimate), numberText(ie.std_error), level,
                           rangeText(ie.ci_lower, ie.ci_upper), pValueText(ie.p_value)));
-        out.line(tr("How the effect of %1 on P(%2 = 1) changes with %3, %4 (Ai & Norton). The product coefficient "
-                    "on the log-odds scale%5 is not this: it does not give the size, or even the sign, of the "
-                    "interaction on the probability scale.")
-                     .arg(q(engine_.focal()), q(engine_.outcome()), mod,
+        out.line(tr("How the effect of %1 on %2 changes with %3, %4 (Ai & Norton). The product coefficient "
+                    "on the %5 scale%6 is not this: it does not give the size, or even the sign, of the "
+                    "interaction on the %7 scale.")
+                     .arg(q(engine_.focal()), words.outcomeOf, mod,
                           p.averaging == Averaging::AtValues ? tr("at the means of the other predictors")
                                                              : tr("averaged over the observed rows"),
-                          productCoefficientText()));
+                          words.modelScale, productCoefficientText(), words.outcomeScale));
         out.end();
-    } else if (engine_.logistic()) {
-        out.section(tr("Interaction on the log-odds scale"));
-        out.line(
-            tr("The product coefficient%1 is the interaction on the log-odds scale only; it is not the interaction "
-               "on the probability scale. Choose the probability scale to see that (Ai & Norton).")
-                .arg(productCoefficientText()));
+    } else if (engine_.generalizedModel()) {
+        out.section(tr("Interaction on the %1 scale").arg(words.modelScale));
+        out.line(tr("The product coefficient%1 is the interaction on the %2 scale only; it is not the interaction "
+                    "on the %3 scale. Choose the %3 scale to see that (Ai & Norton).")
+                     .arg(productCoefficientText(), words.modelScale, words.outcomeScale));
         out.end();
     }
 }
@@ -965,7 +988,8 @@ void ProbeSection::summarizeComparisons(SummaryText& out) {
         const QString se = run_->fit.multilevel ? seDescription(shown_, *run_) : seKindName(run_->fit.se);
         out.line(tr("Joint test of the interaction with %1 standard errors (the test to report): %2, %3.")
                      .arg(se, stat, pClauseText(t.p_value)));
-        if (engine_.probability()) out.line(tr("Tested on the log-odds scale, on the model's coefficients."));
+        if (engine_.probability())
+            out.line(tr("Tested on the %1 scale, on the model's coefficients.").arg(engine_.words().modelScale));
         out.end();
     }
     if (p.slope_contrasts.size() < 2) return;
@@ -1033,8 +1057,7 @@ void ProbeSection::summarizeGaps(SummaryText& out) {
     const ProbeResult& p = engine_.probe();
     const QString mod = q(engine_.moderator());
     const QString level = levelText(p.level);
-    const QString y = q(engine_.outcome());
-    const QString predicted = engine_.logistic() ? tr("log-odds of %1").arg(y) : y;
+    const QString predicted = engine_.words().modelOf;
     const bool groups = engine_.groups();
     out.section(groups ? tr("Where the groups differ") : tr("Where the lines differ"));
     const auto pairs = pairLevels();
@@ -1053,7 +1076,8 @@ void ProbeSection::summarizeGaps(SummaryText& out) {
                      .arg(p.crossovers.size())
                      .arg(q(engine_.focal())));
     if (engine_.probability())
-        out.line(tr("Tested on the log-odds scale: where two log-odds differ, the two probabilities differ too."));
+        out.line(tr("Tested on the %1 scale: where the lines differ there, they differ on the %2 scale too.")
+                     .arg(engine_.words().modelScale, engine_.words().outcomeScale));
     out.end();
 }
 

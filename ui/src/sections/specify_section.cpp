@@ -179,6 +179,17 @@ void SpecifySection::createModelOptions(QWidget* right, QVBoxLayout* r) {
     family_->setObjectName(QStringLiteral("specify-family"));
     family_->addItem(tr("linear (numeric outcome)"), static_cast<int>(Family::Linear));
     family_->addItem(tr("logistic (0/1 outcome)"), static_cast<int>(Family::Logistic));
+    family_->addItem(tr("probit (0/1 outcome)"), static_cast<int>(Family::Probit));
+    family_->addItem(tr("Poisson (counts)"), static_cast<int>(Family::Poisson));
+    family_->addItem(tr("negative binomial (counts that vary more)"), static_cast<int>(Family::NegativeBinomial));
+    family_->setItemData(2, tr("A 0/1 outcome through the normal distribution function; close to logistic."),
+                         Qt::ToolTipRole);
+    family_->setItemData(3, tr("Counts (0, 1, 2, ...) whose variance equals their mean; add an Exposure for rates."),
+                         Qt::ToolTipRole);
+    family_->setItemData(4,
+                         tr("Counts whose variance exceeds their mean (variance = mean + α·mean²), the usual case; "
+                            "add an Exposure for rates."),
+                         Qt::ToolTipRole);
     se_->setObjectName(QStringLiteral("specify-se"));
     for (const SeKind s : kSeKinds) {
         se_->addItem(seKindName(s), static_cast<int>(s));
@@ -367,6 +378,7 @@ void SpecifySection::showColumnMenu(const QPoint& pos) {
     QMenu menu(this);
     for (int i = 0; i < kRoleCount; ++i) {
         const Role role = static_cast<Role>(i);
+        if (!roleOffered(*current(), role)) continue;
         const QString text =
             roleTakesSeveral(role) ? tr("Add to %1").arg(roleName(role)) : tr("Use as %1").arg(roleName(role));
         menu.addAction(text, this, [this, role, column] { columnChosen(role, column, -1); });
@@ -397,8 +409,11 @@ void SpecifySection::refresh() {
     std::vector<RoleSlot::Choice> choices;
     if (table)
         for (const Column& c : table->columns) choices.push_back({c.name, columnNature(c), roleOf(*a, c.name)});
-    for (int i = 0; i < kRoleCount; ++i)
-        slots_[static_cast<std::size_t>(i)]->setContents(roleColumns(*a, static_cast<Role>(i)), choices);
+    for (int i = 0; i < kRoleCount; ++i) {
+        const Role role = static_cast<Role>(i);
+        slots_[static_cast<std::size_t>(i)]->setContents(roleColumns(*a, role), choices);
+        slots_[static_cast<std::size_t>(i)]->setVisible(roleOffered(*a, role));
+    }
 
     {
         const QSignalBlocker b1(family_), b3(level_), b4(centring_);

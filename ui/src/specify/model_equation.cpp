@@ -5,6 +5,7 @@
 #include <set>
 
 #include "common/number_text.hpp"
+#include "common/scale_words.hpp"
 #include "moderato/estimation/design.hpp"
 #include "specify/role_edit.hpp"
 
@@ -155,7 +156,6 @@ QString interactionReading(const Analysis& a, const Table* table, const Analysis
     }
     if (two.empty()) return {};
     const QString F = plain(f), M = plain(m), W = plain(w);
-    const bool logistic = a.family == Family::Logistic;
     const ColumnNature fn = natureOf(table, f), mn = natureOf(table, m);
     QString subject;
     if (fn == ColumnNature::Categorical) {
@@ -164,7 +164,8 @@ QString interactionReading(const Analysis& a, const Table* table, const Analysis
     } else {
         subject = tr("the slope of %1").arg(F);
     }
-    if (logistic) subject += tr(" on the log-odds scale");
+    const QString scale = scaleWords(a.family, a.roles.exposure, QString()).modelScale;
+    if (!scale.isEmpty()) subject += tr(" on the %1 scale").arg(scale);
     QString change;
     if (mn == ColumnNature::Categorical)
         change =
@@ -183,12 +184,63 @@ QString interactionReading(const Analysis& a, const Table* table, const Analysis
     return out;
 }
 
+struct Side {
+    QString plain, html;
+};
+
+// The left-hand side: ŷ, logit P(y = 1), probit P(y = 1) or log E[y].
+Side leftSide(Family family, const QString& outcome) {
+    const QString y = outcome.toHtmlEscaped();
+    switch (family) {
+        case Family::Logistic:
+        case Family::Probit: {
+            const QString link = family == Family::Probit ? QStringLiteral("probit") : QStringLiteral("logit");
+            return {QStringLiteral("%1 P(%2 = 1)").arg(link, outcome),
+                    QStringLiteral("%1&nbsp;P(%2&nbsp;=&nbsp;1)").arg(link, y)};
+        }
+        case Family::Poisson:
+        case Family::NegativeBinomial:
+            return {QStringLiteral("log E[%1]").arg(outcome), QStringLiteral("log&nbsp;E[%1]").arg(y)};
+        case Family::Linear:
+            break;
+    }
+    return {QStringLiteral("\u0177"), QStringLiteral("<i>\u0177</i>")};
+}
+
+// What the left-hand side means, in the family's words.
+QString familyLegend(const Analysis& a, const QString& outcome) {
+    switch (a.family) {
+        case Family::Logistic:
+            return tr("logit P = log(P / (1 \u2212 P)), the log-odds that %1 is 1.").arg(outcome);
+        case Family::Probit:
+            return tr("probit P = \u03a6\u207b\u00b9(P), the standard normal quantile of the probability that %1 "
+                      "is 1.")
+                .arg(outcome);
+        case Family::Poisson:
+        case Family::NegativeBinomial: {
+            QString text = a.family == Family::Poisson
+                               ? tr("E[%1] is the expected count of %1 (Poisson: its variance equals its mean).")
+                               : tr("E[%1] is the expected count of %1 (negative binomial: its variance is "
+                                    "E + \u03b1\u00b7E\u00b2).");
+            text = text.arg(outcome);
+            if (!a.roles.exposure.empty())
+                text += QLatin1Char(' ') + tr("log(%1) is the exposure, with coefficient 1: the b's describe the rate "
+                                              "of %2 per unit of %1.")
+                                               .arg(plain(a.roles.exposure), outcome);
+            return text;
+        }
+        case Family::Linear:
+            break;
+    }
+    return tr("\u0177 is the predicted %1.").arg(outcome);
+}
+
 }  // namespace
 
 bool runMatches(const AnalysisRun& run, const Analysis& a) {
     const ModelSpec s = model_spec(a);
     return run.analysis_id == a.id && run.spec.outcome == s.outcome && run.spec.predictors == s.predictors &&
-           run.spec.interactions == s.interactions && run.spec.family == s.family &&
+           run.spec.interactions == s.interactions && run.spec.family == s.family && run.spec.exposure == s.exposure &&
            run.design.columns.size() == run.fit.coefficients.size();
 }
 
@@ -196,16 +248,8 @@ ModelEquation modelEquation(const Analysis& a, const Table* table, const Analysi
     ModelEquation eq;
     if (run && !runMatches(*run, a)) run = nullptr;
     const std::vector<Factors> coefs = run ? runFactors(*run) : expandRoles(a, table);
-    const bool logistic = a.family == Family::Logistic;
     const QString outcome = a.roles.outcome.empty() ? tr("outcome") : plain(a.roles.outcome);
-    QString lhsHtml, lhsPlain;
-    if (logistic) {
-        lhsPlain = QStringLiteral("logit P(%1 = 1)").arg(outcome);
-        lhsHtml = QStringLiteral("logit&nbsp;P(%1&nbsp;=&nbsp;1)").arg(outcome.toHtmlEscaped());
-    } else {
-        lhsPlain = QStringLiteral("\u0177");
-        lhsHtml = QStringLiteral("<i>\u0177</i>");
-    }
+    const Side lhs = leftSide(a.family, outcome);
     QStringList htmlTerms, plainTerms;
     bool hasIndicator = false;
     for (std::size_t i = 0; i < coefs.size(); ++i) {
@@ -232,12 +276,17 @@ ModelEquation modelEquation(const Analysis& a, const Table* table, const Analysi
         htmlTerms << QStringLiteral("<i>%1</i>\u00b7%2").arg(b, html);
         plainTerms << b + QStringLiteral("\u00b7") + r.plain;
     }
-    eq.plain = lhsPlain + QStringLiteral(" = ") + plainTerms.join(QStringLiteral(" + "));
-    eq.html = lhsHtml + QStringLiteral(" = ") + htmlTerms.join(QStringLiteral(" + "));
+    // A count model's exposure: the offset log(E), whose coefficient is 1.
+    if (!a.roles.exposure.empty() && count_outcome(a.family)) {
+        const QString e = plain(a.roles.exposure);
+        plainTerms << QStringLiteral("log(%1)").arg(e);
+        htmlTerms << QStringLiteral("log(%1)").arg(
+            e.toHtmlEscaped().replace(QLatin1Char(' '), QStringLiteral("&nbsp;")));
+    }
+    eq.plain = lhs.plain + QStringLiteral(" = ") + plainTerms.join(QStringLiteral(" + "));
+    eq.html = lhs.html + QStringLiteral(" = ") + htmlTerms.join(QStringLiteral(" + "));
 
-    QStringList legend;
-    if (!logistic) legend << tr("\u0177 is the predicted %1.").arg(outcome);
-    else legend << tr("logit P = log(P / (1 \u2212 P)), the log-odds that %1 is 1.").arg(outcome);
+    QStringList legend{familyLegend(a, outcome)};
     if (hasIndicator) {
         std::set<std::string> cats;
         for (const auto& f : coefs)

@@ -2,6 +2,7 @@
 #include "common/number_text.hpp"
 #include "model/project_document.hpp"
 #include "moderato/estimation/design.hpp"
+#include "moderato/support/error.hpp"
 #include "specify/multilevel_edit.hpp"
 
 #include <QCoreApplication>
@@ -35,6 +36,8 @@ auto singleSlot(A& a, Role r) -> decltype(&a.roles.outcome) {
             return &a.roles.clusters;
         case Role::Groups:
             return &a.multilevel.groups;
+        case Role::Exposure:
+            return &a.roles.exposure;
         case Role::Controls:
             return nullptr;
     }
@@ -48,6 +51,23 @@ void removeFrom(Analysis& a, Role r, const std::string& column) {
     } else if (std::string* s = singleSlot(a, r); s && *s == column) {
         s->clear();
     }
+}
+
+// What core says of the Outcome and Exposure columns for the family: an
+// Outcome the family cannot model (not 0/1, a negative count) or an Exposure
+// it cannot use, in core's own words (the fit would stop with them).
+QStringList familyProblems(const Analysis& a, const Table& table) {
+    if (!generalized(a.family) && a.roles.exposure.empty()) return {};
+    ModelSpec spec;
+    spec.outcome = a.roles.outcome;
+    spec.family = a.family;
+    spec.exposure = table.find(a.roles.exposure) ? a.roles.exposure : std::string();
+    try {
+        check_family_columns(table, spec);
+    } catch (const InputError& e) {
+        return {plain(e.what()) + QLatin1Char('.')};
+    }
+    return {};
 }
 
 // The edit is refused when it brings a problem the analysis did not have
@@ -128,6 +148,8 @@ QString roleName(Role r) {
             return tr("Clusters");
         case Role::Groups:
             return tr("Groups");
+        case Role::Exposure:
+            return tr("Exposure");
     }
     return {};
 }
@@ -199,10 +221,28 @@ QString seKindName(SeKind s) {
     return {};
 }
 
-QString familyName(Family f) { return f == Family::Logistic ? tr("logistic") : tr("linear"); }
+QString familyName(Family f) {
+    switch (f) {
+        case Family::Logistic:
+            return tr("logistic");
+        case Family::Probit:
+            return tr("probit");
+        case Family::Poisson:
+            return tr("Poisson");
+        case Family::NegativeBinomial:
+            return tr("negative binomial");
+        case Family::Linear:
+            break;
+    }
+    return tr("linear");
+}
 
 bool seOffered(Family f, SeKind s) {
-    return f == Family::Linear || (s != SeKind::HC2 && s != SeKind::HC3 && s != SeKind::HC4);
+    return !generalized(f) || (s != SeKind::HC2 && s != SeKind::HC3 && s != SeKind::HC4);
+}
+
+bool roleOffered(const Analysis& a, Role r) {
+    return r != Role::Exposure || count_outcome(a.family) || !a.roles.exposure.empty();
 }
 
 QStringList roleProblems(const Analysis& a, const Table* table) {
@@ -238,17 +278,9 @@ QStringList roleProblems(const Analysis& a, const Table* table) {
             if (y->kind == ColumnKind::Categorical) {
                 out << tr("The Outcome %1 is categorical; the Outcome must be a numeric column.")
                            .arg(q(a.roles.outcome));
-            } else if (a.family == Family::Logistic) {
-                for (std::size_t i = 0; i < y->numbers.size(); ++i) {
-                    const double v = y->numbers[i];
-                    if (v != v || v == 0 || v == 1) continue;
-                    out << tr("A logistic model needs an Outcome of 0s and 1s: %1 holds %2 (%3). Choose a 0/1 "
-                              "Outcome or the linear family.")
-                               .arg(q(a.roles.outcome), dataText(v), plain(table->row_location(i)));
-                    break;
-                }
             }
         }
+        out << familyProblems(a, *table);
         if (const Column* w = table->find(a.roles.weights); w && w->kind == ColumnKind::Categorical)
             out << tr("The Weights column %1 is categorical; weights must be positive numbers.")
                        .arg(q(a.roles.weights));
@@ -258,9 +290,9 @@ QStringList roleProblems(const Analysis& a, const Table* table) {
             "Cluster-robust standard errors need a Clusters column: drop one in the Clusters slot, or "
             "choose another kind of standard error.");
     if (!seOffered(a.family, a.se))
-        out << tr("%1 standard errors are not offered for logistic models; choose classical, HC0, HC1 or "
+        out << tr("%1 standard errors are not offered for %2 models; choose classical, HC0, HC1 or "
                   "cluster-robust.")
-                   .arg(seKindName(a.se));
+                   .arg(seKindName(a.se), familyName(a.family));
     out << multilevelProblems(a);
     return out;
 }
@@ -338,11 +370,11 @@ RoleEdit setFamily(const Analysis& before, const Table* table, Family family) {
     QString description = tr("Set family to %1").arg(familyName(family));
     QString note;
     if (!seOffered(family, before.se)) {
-        // HC2–HC4 are linear-model corrections: the nearest sandwich that logistic models have is HC0.
+        // HC2–HC4 are linear-model corrections: the nearest sandwich that generalized models have is HC0.
         after.se = SeKind::HC0;
         description = tr("Set family to %1 (standard errors %2 → HC0)").arg(familyName(family), seKindName(before.se));
-        note =
-            tr("%1 is not offered for logistic models, so the standard errors are now HC0.").arg(seKindName(before.se));
+        note = tr("%1 is not offered for %2 models, so the standard errors are now HC0.")
+                   .arg(seKindName(before.se), familyName(family));
     }
     return checkedEdit(before, std::move(after), table, description, note);
 }

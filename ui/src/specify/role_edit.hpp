@@ -1,8 +1,9 @@
 // The role slots of an analysis as plain data, and the edits the Specify
 // section makes on them: put a column in a role, move it between roles,
 // clear a role; with the checks that refuse an edit that cannot work (the
-// same column in two roles, a categorical Outcome, a logistic Outcome that
-// is not 0/1, cluster-robust errors without a Clusters column, Groups beside
+// same column in two roles, a categorical Outcome, an Outcome its family
+// cannot model or an Exposure a family cannot use (in core's words),
+// cluster-robust errors without a Clusters column, Groups beside
 // weights or clusters) before it reaches the project. The multilevel
 // choices that come with Groups are edited in multilevel_edit.hpp through
 // the same checks. No Qt widgets here, so it is easy to test.
@@ -20,8 +21,9 @@
 namespace moderato::ui {
 
 // Groups: the level-2 unit of a multilevel model (Analysis::multilevel.groups).
-enum class Role { Outcome, Focal, Moderator, SecondModerator, Controls, Weights, Clusters, Groups };
-inline constexpr int kRoleCount = 8;
+// Exposure: a count model's exposure column (Roles::exposure).
+enum class Role { Outcome, Focal, Moderator, SecondModerator, Controls, Weights, Clusters, Groups, Exposure };
+inline constexpr int kRoleCount = 9;
 
 QString roleName(Role r);                  // "Outcome", "Focal predictor", ...
 bool roleTakesSeveral(Role r);             // Controls
@@ -40,9 +42,12 @@ QString natureName(ColumnNature n);  // "numeric", "categorical", "0/1"
 
 // Display names of the standard-error kinds and families.
 QString seKindName(SeKind s);  // "classical", "HC0".."HC4", "cluster-robust"
-QString familyName(Family f);  // "linear", "logistic"
+QString familyName(Family f);  // "linear", "logistic", "probit", "Poisson", "negative binomial"
 // Whether core offers this SE kind for this family (HC2–HC4: linear only).
 bool seOffered(Family f, SeKind s);
+// Whether the Specify section offers this role for the analysis: Exposure
+// only for count families (or while it still holds a column, to clear it).
+bool roleOffered(const Analysis& a, Role r);
 
 // The result of an edit: the analysis after it and its undo text, or why it
 // was refused (then `after` is unset).

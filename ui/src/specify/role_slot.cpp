@@ -40,6 +40,8 @@ QString roleKey(Role r) {
             return QStringLiteral("clusters");
         case Role::Groups:
             return QStringLiteral("groups");
+        case Role::Exposure:
+            return QStringLiteral("exposure");
     }
     return {};
 }
@@ -47,7 +49,9 @@ QString roleKey(Role r) {
 QString roleHint(Role r) {
     switch (r) {
         case Role::Outcome:
-            return RoleSlot::tr("The column the model explains (numeric; 0/1 for a logistic model).");
+            return RoleSlot::tr(
+                "The column the model explains (numeric; 0/1 for a logistic or probit model, counts for a Poisson or "
+                "negative binomial one).");
         case Role::Focal:
             return RoleSlot::tr("The predictor whose effect may depend on the moderator.");
         case Role::Moderator:
@@ -64,6 +68,10 @@ QString roleHint(Role r) {
             return RoleSlot::tr(
                 "Optional: the groups rows are nested in (teams, sites); each group gets its own intercept, and "
                 "chosen slopes may differ between groups (a multilevel model).");
+        case Role::Exposure:
+            return RoleSlot::tr(
+                "Optional, count models: how much each row had the chance to count (hours open, area, people at "
+                "risk). The model is then for the rate per unit of it: log(exposure) enters with coefficient 1.");
     }
     return {};
 }

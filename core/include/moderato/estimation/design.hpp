@@ -136,6 +136,14 @@ struct Design {
 // centring options are applied first (group_centring.hpp).
 Design build_design(const Table& table, const ModelSpec& spec);
 
+// The outcome and exposure columns against the family, over every row where
+// the outcome is present, before any design is built: the same checks and
+// words as build_design (0 or 1 for logistic and probit outcomes, no negative
+// count for Poisson and negative binomial ones, an exposure only for a count
+// family and only a numeric one). For editors that refuse a choice at once.
+// Throws InputError naming the column and, for a value, its line.
+void check_family_columns(const Table& table, const ModelSpec& spec);
+
 // Sorted levels of a categorical column as the model uses them (numeric-looking
 // levels sort by value, others as text).
 std::vector<std::string> sorted_levels(const Column& column);

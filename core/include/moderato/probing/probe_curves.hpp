@@ -29,9 +29,11 @@ struct CurvePoint {
 // held at `values` (as design_row reads them; typical_values(design, {{moderator, m}})
 // holds the rest at their means and reference levels).
 //   Link scale: x'b, SE sqrt(x'Vx), interval x'b -+ q SE.
-//   probability = true (logistic fits): P = expit(x'b), the interval the
-//   expit of the link-scale interval (so it stays inside 0..1), and the SE by
-//   the delta method, P(1 - P) SE.
+//   probability = true (generalized fits, the outcome's own scale): the mean
+//   g^-1(x'b) by the family's link (expit, Phi, exp: a probability, or an
+//   expected count per unit of any exposure, which x'b leaves out), the
+//   interval the link-scale interval mapped through g^-1 (so it stays inside
+//   0..1, or above 0), and the SE by the delta method, (g^-1)'(x'b) SE.
 // q is `critical_value`, or the fit's (pointwise, at its level) when NaN.
 // Aliased coefficients count as zero.
 std::vector<CurvePoint> prediction_line(const Design& design, const FitResult& fit, const std::string& focal,

@@ -31,8 +31,10 @@ DataRegion convex_hull(const std::vector<double>& x, const std::vector<double>& 
 // column in the design.
 DataRegion data_region(const Design& design, const std::string& x, const std::string& z);
 
-// The grid's predictions (log-odds of a logistic fit) as probabilities:
-// expit of each entry; same shape as grid.predicted.
-Eigen::MatrixXd surface_probabilities(const SurfaceGrid& grid);
+// The grid's predictions (on the model's scale) on the outcome's own scale,
+// by the family's link: expit (logistic) or Phi (probit) of each entry, a
+// probability; exp (Poisson, negative binomial), an expected count per unit
+// of any exposure; unchanged for a linear model. Same shape as grid.predicted.
+Eigen::MatrixXd surface_probabilities(const SurfaceGrid& grid, Family family = Family::Logistic);
 
 }  // namespace moderato

@@ -88,6 +88,7 @@ struct Roles {
     std::vector<std::string> controls;
     std::string weights;   // empty: none
     std::string clusters;  // empty: none
+    std::string exposure;  // count models: each row's exposure (time, area, ...); empty: none
     bool operator==(const Roles&) const = default;
 };
 

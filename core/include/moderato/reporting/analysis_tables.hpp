@@ -3,7 +3,10 @@
 // the effects at chosen moderator values (pick-a-point), and for two
 // categorical predictors the cell table and its contrasts; a multilevel
 // analysis adds its variance components and random-slope tests, shows each
-// term's df, and reports no R². Display text
+// term's df, and reports no R². A generalized model's fit statistics add its
+// deviance and likelihood-ratio test, a negative binomial's dispersion alpha
+// with its interval, a Poisson model's overdispersion statistics; a count
+// model's effects table adds each effect's rate ratio and interval. Display text
 // follows support/report_text.hpp; the CSV column holds the exact doubles.
 // The effects and the contrasts list each estimate in the house order, as the
 // Probe section does: the value, its interval (low, high), SE, test value, p.
@@ -31,7 +34,7 @@ struct NamedTable {
 // (may be empty).
 std::string se_description(const FitResult& fit, const std::string& clusters = {});
 
-// "t" for linear models, "z" for logistic ones.
+// "t" for linear models, "z" for generalized ones (logistic, probit, Poisson, negative binomial).
 std::string statistic_name(const FitResult& fit);
 
 // How a moderator value reads in a table or sentence: "12.5 (mean − 1 SD)",
