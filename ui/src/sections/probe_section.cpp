@@ -480,7 +480,6 @@ void ProbeSection::rebuild() {
     pages_->setCurrentIndex(ProbePage);
 
     const ProbeSettings& ps = a->probe;
-    const bool generalizedModel = engine_.generalizedModel();
     band_->setCurrentIndex(simultaneousShown() ? 1 : 0);
     band_->setEnabled(engine_.hasSimultaneous());
     band_->setVisible(!engine_.groups());
@@ -493,19 +492,9 @@ void ProbeSection::rebuild() {
     differ_->setChecked(ps.show_gaps);
     extend_->setChecked(ps.extend_to_boundaries);
     extend_->setVisible(!engine_.groups());
-    points_->setEnabled(!generalizedModel || engine_.probability());
+    points_->setEnabled(!engine_.generalizedModel() || engine_.probability());
     syncJitterToggle(ps);
-    scaleLabel_->setVisible(generalizedModel);
-    scale_->setVisible(generalizedModel);
-    const ScaleWords words = engine_.words();
-    scale_->setItemText(0, words.modelSwitch);
-    scale_->setItemText(1, words.outcomeSwitch);
-    scale_->setItemData(0, tr("Effects on the %1 scale, the scale of the model's coefficients").arg(words.modelScale),
-                        Qt::ToolTipRole);
-    scale_->setItemData(1, tr("Effects on the outcome's own scale: %1").arg(words.outcomeOf), Qt::ToolTipRole);
-    scale_->setCurrentIndex(engine_.probability() ? 1 : 0);
-    averaging_->setVisible(generalizedModel && engine_.probability());
-    averaging_->setCurrentIndex(ps.averaging == Averaging::AtValues ? 1 : 0);
+    syncScaleChoice(ps);
     adjust_->setVisible(run_->probe->slope_contrasts.size() > 1);
     adjust_->setCurrentIndex(std::max(0, adjust_->findData(static_cast<int>(ps.adjustment))));
     const bool surfaceOk = run_->surface.has_value();
@@ -541,6 +530,22 @@ void ProbeSection::rebuild() {
     fillSummary();
     rebuilding_ = false;
     moveTo(current_, false);
+}
+
+// A generalized model's two scales, in its family's words, and how outcome-scale effects are averaged.
+void ProbeSection::syncScaleChoice(const ProbeSettings& ps) {
+    const bool generalizedModel = engine_.generalizedModel();
+    scaleLabel_->setVisible(generalizedModel);
+    scale_->setVisible(generalizedModel);
+    const ScaleWords words = engine_.words();
+    scale_->setItemText(0, words.modelSwitch);
+    scale_->setItemText(1, words.outcomeSwitch);
+    scale_->setItemData(0, tr("Effects on the %1 scale, the scale of the model's coefficients").arg(words.modelScale),
+                        Qt::ToolTipRole);
+    scale_->setItemData(1, tr("Effects on the outcome's own scale: %1").arg(words.outcomeOf), Qt::ToolTipRole);
+    scale_->setCurrentIndex(engine_.probability() ? 1 : 0);
+    averaging_->setVisible(generalizedModel && engine_.probability());
+    averaging_->setCurrentIndex(ps.averaging == Averaging::AtValues ? 1 : 0);
 }
 
 bool ProbeSection::simultaneousShown() const {

@@ -127,6 +127,7 @@ private:
     // the lines differ.
     void buildPlots();
     void syncJitterToggle(const ProbeSettings& ps);
+    void syncScaleChoice(const ProbeSettings& ps);
     void buildEffectPlot(bool simultaneous, const QString& level);
     LinesPlotData linesPlotData();
     // A multilevel fit: up to 20 groups' own lines, spread over the moderator.
