@@ -1,5 +1,7 @@
 #include "moderato/estimation/model.hpp"
 
+#include "estimation/family_words.hpp"
+
 #include "moderato/support/error.hpp"
 
 namespace moderato {
@@ -74,6 +76,22 @@ std::string outcome_scale_text(Family f, const std::string& exposure) {
     if (binary_outcome(f)) return "probability";
     if (count_outcome(f)) return exposure.empty() ? "expected count" : "rate per unit of " + exposure;
     return "";
+}
+
+std::string detail::family_words(Family f) {
+    switch (f) {
+        case Family::Logistic:
+            return "logistic";
+        case Family::Probit:
+            return "probit";
+        case Family::Poisson:
+            return "Poisson";
+        case Family::NegativeBinomial:
+            return "negative binomial";
+        case Family::Linear:
+            break;
+    }
+    return "linear";
 }
 
 SeKind parse_se_kind(const std::string& text) {

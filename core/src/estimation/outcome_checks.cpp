@@ -1,5 +1,7 @@
 #include "estimation/outcome_checks.hpp"
 
+#include "estimation/family_words.hpp"
+
 #include <cmath>
 
 #include "moderato/support/error.hpp"
@@ -9,22 +11,6 @@
 namespace moderato::detail {
 
 namespace {
-
-std::string family_words(Family f) {
-    switch (f) {
-        case Family::Logistic:
-            return "logistic";
-        case Family::Probit:
-            return "probit";
-        case Family::Poisson:
-            return "Poisson";
-        case Family::NegativeBinomial:
-            return "negative binomial";
-        case Family::Linear:
-            break;
-    }
-    return "linear";
-}
 
 // The outcome's values with their table rows: a design's, or a column's present ones.
 struct OutcomeValues {

@@ -9,22 +9,6 @@
 
 namespace moderato::detail {
 
-std::string family_words(Family f) {
-    switch (f) {
-        case Family::Logistic:
-            return "logistic";
-        case Family::Probit:
-            return "probit";
-        case Family::Poisson:
-            return "Poisson";
-        case Family::NegativeBinomial:
-            return "negative binomial";
-        case Family::Linear:
-            break;
-    }
-    return "linear";
-}
-
 std::string model_scale_target(const FitResult& fit, const std::string& outcome) {
     switch (fit.family) {
         case Family::Logistic:

@@ -8,12 +8,11 @@
 #include <string>
 #include <vector>
 
+#include "estimation/family_words.hpp"
 #include "moderato/project/analysis_run.hpp"
 
 namespace moderato::detail {
 
-// "logistic", "probit", "Poisson", "negative binomial"; "linear".
-std::string family_words(Family f);
 // What a coefficient changes: "the log-odds of y = 1", "the probit of
 // P(y = 1)", "the log expected count of y", "the log rate of y per unit of
 // E"; the outcome's name for a linear model.
