@@ -52,7 +52,7 @@ inline nlohmann::json read_fixture_json(const std::filesystem::path& path) {
 
 // The data and model a statsmodels fixture describes: its CSV (categorical
 // columns declared), outcome, predictors, interactions, family and reference
-// levels, with the standard errors `se` (and the fixture's cluster column
+// levels and exposure, with the standard errors `se` (and the fixture's cluster column
 // for cluster-robust ones).
 struct FixtureModel {
     Table table;
@@ -71,6 +71,7 @@ inline FixtureModel fixture_model(const nlohmann::json& j, const std::filesystem
     spec.predictors = s.at("predictors").get<std::vector<std::string>>();
     spec.interactions = s.at("interactions").get<std::vector<std::vector<std::string>>>();
     spec.family = parse_family(s.at("family").get<std::string>());
+    if (s.contains("exposure") && !s.at("exposure").is_null()) spec.exposure = s.at("exposure").get<std::string>();
     spec.se = se;
     if (se == SeKind::Cluster) spec.cluster = s.at("cluster").get<std::string>();
     return {read_csv((json_path.parent_path() / j.at("data").get<std::string>()).string(), o), std::move(spec)};

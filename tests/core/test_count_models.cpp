@@ -44,15 +44,9 @@ Case load(const std::string& name, SeKind se = SeKind::Classical) {
     const fs::path path = reference_fixture(name + ".json");
     Case c;
     c.j = read_fixture_json(path);
-    const json& s = c.j.at("spec");
-    c.table = read_csv((path.parent_path() / c.j.at("data").get<std::string>()).string());
-    c.spec.outcome = s.at("outcome").get<std::string>();
-    c.spec.predictors = s.at("predictors").get<std::vector<std::string>>();
-    c.spec.interactions = s.at("interactions").get<std::vector<std::vector<std::string>>>();
-    c.spec.family = parse_family(s.at("family").get<std::string>());
-    if (!s.at("exposure").is_null()) c.spec.exposure = s.at("exposure").get<std::string>();
-    c.spec.se = se;
-    if (se == SeKind::Cluster) c.spec.cluster = s.at("cluster").get<std::string>();
+    FixtureModel m = fixture_model(c.j, path, se);
+    c.table = std::move(m.table);
+    c.spec = std::move(m.spec);
     return c;
 }
 
