@@ -15,6 +15,8 @@
 #include <atomic>
 #include <chrono>
 #include <filesystem>
+#include <fstream>
+#include <iterator>
 #include <map>
 #include <optional>
 #include <random>
@@ -219,6 +221,15 @@ private:
     std::vector<std::pair<double, double>> windows_;
 };
 
+// The last `bytes` of a run's error log, for failure messages (the log is
+// in the test's temporary folder, which is gone when the test ends).
+inline std::string log_tail(const fs::path& log, std::size_t bytes = 1500) {
+    std::ifstream in(log, std::ios::binary);
+    const std::string all((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+    if (all.empty()) return "(the log is empty)";
+    return all.size() > bytes ? "..." + all.substr(all.size() - bytes) : all;
+}
+
 template <class AtReady>
 RunResult run_save(const SaveRun& run, double killAfter, AtReady&& atReady, pid_t* pidOut = nullptr,
                    std::vector<std::pair<double, double>>* windows = nullptr) {
@@ -246,8 +257,8 @@ RunResult run_save(const SaveRun& run, double killAfter, AtReady&& atReady, pid_
         r.ok = r.finishedFirst || (WIFSIGNALED(status) && WTERMSIG(status) == SIGKILL);
         r.seconds = killAfter;
         if (!r.ok)
-            r.why =
-                "the run ended by itself with status " + std::to_string(status) + " (see " + run.errLog.string() + ")";
+            r.why = "the run ended by itself with status " + std::to_string(status) + "; the end of " +
+                    run.errLog.string() + ":\n" + log_tail(run.errLog);
         return r;
     }
     const std::string done = run.handshake ? child.readLine(kTimeoutMs) : std::string("done");
@@ -256,7 +267,8 @@ RunResult run_save(const SaveRun& run, double killAfter, AtReady&& atReady, pid_
     r.ok = done == "done" && WIFEXITED(status) && WEXITSTATUS(status) == 0;
     if (watcher) *windows = watcher->stop();
     if (!r.ok)
-        r.why = "the save did not finish (status " + std::to_string(status) + ", see " + run.errLog.string() + ")";
+        r.why = "the save did not finish (status " + std::to_string(status) + "); the end of " + run.errLog.string() +
+                ":\n" + log_tail(run.errLog);
     return r;
 }
 
