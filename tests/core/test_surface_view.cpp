@@ -5,8 +5,14 @@
 // form 1 / (1 + exp(-eta)).
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
+#include <numbers>
+#include <random>
 #include <set>
+#include <string>
+#include <utility>
+#include <vector>
 
 #include "common/table_builder.hpp"
 #include "moderato/probing/surface_view.hpp"
@@ -50,6 +56,70 @@ TEST(SurfaceView, CollinearPointsGiveASegment) {
     EXPECT_EQ(r.x.size(), 2u);
     EXPECT_TRUE(r.contains(1.5, 3));
     EXPECT_FALSE(r.contains(1.5, 3.5));
+}
+
+namespace {
+
+// Andrew's monotone chain on every point, without the prefilter that
+// convex_hull applies (the reference: the same definition of a hull vertex,
+// collinear boundary points left out).
+std::vector<std::pair<double, double>> reference_hull(std::vector<std::pair<double, double>> pts) {
+    std::sort(pts.begin(), pts.end());
+    pts.erase(std::unique(pts.begin(), pts.end()), pts.end());
+    if (pts.size() < 3) return pts;
+    const auto cross = [](const auto& o, const auto& a, const auto& b) {
+        return (a.first - o.first) * (b.second - o.second) - (a.second - o.second) * (b.first - o.first);
+    };
+    std::vector<std::pair<double, double>> h(2 * pts.size());
+    std::size_t k = 0;
+    for (const auto& p : pts) {
+        while (k >= 2 && cross(h[k - 2], h[k - 1], p) <= 0) --k;
+        h[k++] = p;
+    }
+    for (std::size_t i = pts.size() - 1, t = k + 1; i-- > 0;) {
+        while (k >= t && cross(h[k - 2], h[k - 1], pts[i]) <= 0) --k;
+        h[k++] = pts[i];
+    }
+    h.resize(k - 1);
+    return h;
+}
+
+void expect_reference_hull(const std::vector<double>& x, const std::vector<double>& z, const std::string& what) {
+    std::vector<std::pair<double, double>> pts;
+    for (std::size_t i = 0; i < x.size(); ++i) pts.emplace_back(x[i], z[i]);
+    const auto want = reference_hull(pts);
+    const DataRegion r = convex_hull(x, z);
+    ASSERT_EQ(r.x.size(), want.size()) << what;
+    for (std::size_t i = 0; i < want.size(); ++i) {
+        EXPECT_EQ(r.x[i], want[i].first) << what << ", vertex " << i;
+        EXPECT_EQ(r.z[i], want[i].second) << what << ", vertex " << i;
+    }
+}
+
+}  // namespace
+
+TEST(SurfaceView, HullEqualsTheMonotoneChainOnEveryPoint) {
+    // Many points, where the prefilter drops most of them: the same vertices
+    // in the same order as the plain algorithm (reference above).
+    std::mt19937_64 rng(20261205);
+    std::normal_distribution<double> normal;
+    std::uniform_real_distribution<double> unit;
+    std::vector<double> x, z;
+    for (int i = 0; i < 200000; ++i) x.push_back(normal(rng)), z.push_back(3 + 1000 * normal(rng));
+    expect_reference_hull(x, z, "normal cloud, scales 1 and 1000");
+    x.clear(), z.clear();
+    for (int i = 0; i < 100000; ++i) x.push_back(unit(rng)), z.push_back(unit(rng));
+    expect_reference_hull(x, z, "uniform square");
+    x.clear(), z.clear();
+    for (int i = 0; i < 50000; ++i)  // whole numbers: duplicates and collinear boundary points
+        x.push_back(std::floor(30 * unit(rng))), z.push_back(std::floor(30 * unit(rng)));
+    expect_reference_hull(x, z, "30 x 30 grid");
+    x.clear(), z.clear();
+    for (int i = 0; i < 2000; ++i) {  // every point a hull vertex: none may be dropped
+        const double a = 2 * std::numbers::pi * unit(rng);
+        x.push_back(std::cos(a)), z.push_back(std::sin(a));
+    }
+    expect_reference_hull(x, z, "points on a circle");
 }
 
 TEST(SurfaceView, FromTheDesignUsesTheUsedRows) {

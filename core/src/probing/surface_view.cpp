@@ -18,6 +18,51 @@ struct Pt {
 // Twice the signed area of the triangle o, a, b (> 0: counter-clockwise turn).
 double cross(const Pt& o, const Pt& a, const Pt& b) { return (a.x - o.x) * (b.z - o.z) - (a.z - o.z) * (b.x - o.x); }
 
+// The points that maximise x, x + z, z, z - x, -x, -x - z, -z and x - z (the
+// first of equals), in that order: hull vertices met counter-clockwise, with
+// repeats removed.
+std::vector<Pt> extreme_points(const std::vector<Pt>& pts) {
+    static constexpr double dir[8][2] = {{1, 0}, {1, 1}, {0, 1}, {-1, 1}, {-1, 0}, {-1, -1}, {0, -1}, {1, -1}};
+    std::size_t best[8] = {};
+    for (std::size_t i = 1; i < pts.size(); ++i)
+        for (int d = 0; d < 8; ++d) {
+            const Pt& b = pts[best[d]];
+            if (dir[d][0] * pts[i].x + dir[d][1] * pts[i].z > dir[d][0] * b.x + dir[d][1] * b.z) best[d] = i;
+        }
+    std::vector<Pt> out;
+    for (const std::size_t i : best)
+        if (out.empty() || out.back().x != pts[i].x || out.back().z != pts[i].z) out.push_back(pts[i]);
+    while (out.size() > 1 && out.back().x == out.front().x && out.back().z == out.front().z) out.pop_back();
+    return out;
+}
+
+// Akl and Toussaint's (1978) prefilter: a point well inside the polygon of
+// extreme points cannot be a hull vertex, so only the others go on to the
+// sort. "Well inside": farther than 1e-9 of the points' extent from every
+// edge, so that rounding in the test never drops a point the monotone chain
+// would keep. For many points most are dropped, and the sort shrinks with them.
+void drop_inner_points(std::vector<Pt>& pts) {
+    const std::vector<Pt> poly = extreme_points(pts);
+    if (poly.size() < 3) return;
+    double xmin = poly[0].x, xmax = xmin, zmin = poly[0].z, zmax = zmin;
+    for (const Pt& p : poly) {
+        xmin = std::min(xmin, p.x), xmax = std::max(xmax, p.x);
+        zmin = std::min(zmin, p.z), zmax = std::max(zmax, p.z);
+    }
+    const double margin = 1e-9 * std::hypot(xmax - xmin, zmax - zmin);
+    std::vector<double> edge_margin(poly.size());
+    for (std::size_t e = 0; e < poly.size(); ++e) {
+        const Pt &a = poly[e], &b = poly[(e + 1) % poly.size()];
+        edge_margin[e] = margin * std::hypot(b.x - a.x, b.z - a.z);  // cross = |ab| times the distance
+    }
+    const auto inner = [&](const Pt& p) {
+        for (std::size_t e = 0; e < poly.size(); ++e)
+            if (!(cross(poly[e], poly[(e + 1) % poly.size()], p) > edge_margin[e])) return false;
+        return true;
+    };
+    pts.erase(std::remove_if(pts.begin(), pts.end(), inner), pts.end());
+}
+
 }  // namespace
 
 DataRegion convex_hull(const std::vector<double>& x, const std::vector<double>& z) {
@@ -26,6 +71,7 @@ DataRegion convex_hull(const std::vector<double>& x, const std::vector<double>& 
     pts.reserve(n);
     for (std::size_t i = 0; i < n; ++i)
         if (!std::isnan(x[i]) && !std::isnan(z[i])) pts.push_back({x[i], z[i]});
+    drop_inner_points(pts);
     std::sort(pts.begin(), pts.end(), [](const Pt& a, const Pt& b) { return a.x < b.x || (a.x == b.x && a.z < b.z); });
     pts.erase(std::unique(pts.begin(), pts.end(), [](const Pt& a, const Pt& b) { return a.x == b.x && a.z == b.z; }),
               pts.end());

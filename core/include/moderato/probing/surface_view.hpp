@@ -23,7 +23,8 @@ struct DataRegion {
 };
 
 // Convex hull of the pairs (x[i], z[i]), NaN pairs left out (Andrew's
-// monotone chain).
+// monotone chain, after Akl and Toussaint's prefilter drops the points well
+// inside the polygon of eight extreme points).
 DataRegion convex_hull(const std::vector<double>& x, const std::vector<double>& z);
 
 // The hull of two numeric model columns over the rows the model used (the
