@@ -206,6 +206,52 @@ TEST(FitProperties, VifOfTwoPredictors) {
     EXPECT_TRUE(std::isnan(f.coefficients[0].vif));
 }
 
+namespace {
+
+// 1 / (1 - r^2) of two columns (the VIF of either in a model with just these two slopes; definition).
+double two_column_vif(const std::vector<double>& a, const std::vector<double>& b) {
+    const double n = static_cast<double>(a.size());
+    long double ma = 0, mb = 0, sab = 0, saa = 0, sbb = 0;
+    for (std::size_t i = 0; i < a.size(); ++i) ma += a[i], mb += b[i];
+    ma /= n, mb /= n;
+    for (std::size_t i = 0; i < a.size(); ++i) {
+        sab += (a[i] - ma) * (b[i] - mb);
+        saa += (a[i] - ma) * (a[i] - ma);
+        sbb += (b[i] - mb) * (b[i] - mb);
+    }
+    return static_cast<double>(saa * sbb / (saa * sbb - sab * sab));
+}
+
+}  // namespace
+
+// A count model's VIFs describe its predictors, not its working weights:
+// the same as for a linear model of the same columns (definition above),
+// by the centred cross-products and, for a nearly collinear pair, by the
+// least-squares factor they fall back to.
+TEST(FitProperties, VifOfACountModelIsThatOfItsPredictors) {
+    const Sim s = simulate(400, 18);
+    for (const double tie : {0.7, 2e-5}) {
+        std::vector<double> u, k;
+        for (std::size_t i = 0; i < s.x.size(); ++i) {
+            u.push_back(s.x[i] + tie * s.z[i]);
+            k.push_back(std::floor(std::abs(s.y[i])));
+        }
+        Table t = table_of(s);
+        t.columns.push_back(numeric_column("u", u));
+        t.columns.push_back(numeric_column("k", k));
+        ModelSpec spec;
+        spec.outcome = "k";
+        spec.predictors = {"x", "u"};
+        spec.family = Family::Poisson;
+        const FitResult f = fit_model(t, spec);
+        const double want = two_column_vif(s.x, u);
+        const double tol = tie > 0.1 ? 1e-10 : 1e-5;  // r^2 itself keeps fewer digits near 1
+        EXPECT_LT(rel(f.coefficients[1].vif, want), tol) << "tie " << tie << ", VIF " << want;
+        EXPECT_LT(rel(f.coefficients[2].vif, want), tol) << "tie " << tie;
+        EXPECT_TRUE(std::isnan(f.coefficients[0].vif));
+    }
+}
+
 // Closed form: at the maximum-likelihood estimate the score X'(y - p) is zero.
 TEST(FitProperties, LogisticSolvesTheScoreEquations) {
     const Sim s = simulate(3000, 17, true);

@@ -11,6 +11,7 @@
 #include "estimation/mixed_model.hpp"
 #include "estimation/overdispersion.hpp"
 #include "estimation/separation.hpp"
+#include "estimation/variance_inflation.hpp"
 #include "moderato/estimation/distributions.hpp"
 #include "moderato/estimation/least_squares.hpp"
 #include "moderato/support/error.hpp"
@@ -42,28 +43,6 @@ Eigen::MatrixXd expand(const Eigen::MatrixXd& Vk, const std::vector<int>& kept, 
         for (std::size_t b = 0; b < kept.size(); ++b)
             V(kept[a], kept[b]) = Vk(static_cast<Eigen::Index>(a), static_cast<Eigen::Index>(b));
     return V;
-}
-
-// VIF_j = [(X'WX)^{-1}]_jj * sum_i w_i (x_ij - mean_w(x_j))^2 for models with an intercept.
-std::vector<double> variance_inflation(const Design& d, const std::vector<int>& kept, const Eigen::MatrixXd& A) {
-    std::vector<double> vif(d.p(), kNaN);
-    if (!d.intercept || !std::binary_search(kept.begin(), kept.end(), 0)) return vif;
-    const Eigen::Index n = d.X.rows();
-    double sw = 0;
-    for (Eigen::Index i = 0; i < n; ++i) sw += weight(d, i);
-    for (std::size_t a = 0; a < kept.size(); ++a) {
-        const int j = kept[a];
-        if (j == 0) continue;
-        long double mean = 0, ss = 0;
-        for (Eigen::Index i = 0; i < n; ++i) mean += weight(d, i) * d.X(i, j);
-        mean /= sw;
-        for (Eigen::Index i = 0; i < n; ++i) {
-            const long double c = d.X(i, j) - mean;
-            ss += weight(d, i) * c * c;
-        }
-        vif[static_cast<std::size_t>(j)] = A.row(static_cast<Eigen::Index>(a)).squaredNorm() * static_cast<double>(ss);
-    }
-    return vif;
 }
 
 WaldTest wald_on_columns(const FitResult& fit, const std::vector<int>& cols, std::vector<std::string> labels) {
@@ -259,12 +238,20 @@ void covariance(const Design& d, const ModelSpec& spec, const Solution& s, unsig
     }
 }
 
+// VIFs with the prior weights only: a generalized fit's factor carries its
+// working weights, so its VIFs come from the centred cross-products (or,
+// where those are too ill-conditioned, from a least-squares factor of X).
+std::vector<double> inflation(const Design& d, const Solution& s, const LeastSquaresOptions& lso, Family family) {
+    const unsigned threads = detail::resolve_threads(lso.threads);
+    if (!generalized(family)) return detail::variance_inflation(d, s.ls.kept, s.ls.inverse_factor, threads);
+    if (auto vif = detail::variance_inflation_by_cross_products(d, s.ls.kept, threads)) return *vif;
+    const auto ls = least_squares(d.X, Eigen::VectorXd::Zero(d.X.rows()), d.weights, lso);
+    return detail::variance_inflation(d, s.ls.kept, ls.inverse_factor, threads);
+}
+
 void coefficient_table(const Design& d, const Solution& s, const LeastSquaresOptions& lso, FitResult& f) {
-    const Eigen::Index n = d.X.rows(), p = d.X.cols();
-    const auto vif = variance_inflation(
-        d, s.ls.kept,
-        generalized(f.family) ? least_squares(d.X, Eigen::VectorXd::Zero(n), d.weights, lso).inverse_factor
-                              : s.ls.inverse_factor);
+    const Eigen::Index p = d.X.cols();
+    const auto vif = inflation(d, s, lso, f.family);
     for (Eigen::Index j = 0; j < p; ++j) {
         Coefficient c;
         c.term = d.columns[static_cast<std::size_t>(j)].label;
