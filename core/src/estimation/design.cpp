@@ -15,6 +15,7 @@
 #include "moderato/reading/column_summary.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
+#include "support/parallel.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
@@ -650,17 +651,25 @@ void check_estimable(const Table& table, const ModelSpec& spec, const Design& d)
     }
 }
 
-// The summary of every numeric model column over the used rows.
+// The summary of every numeric model column over the used rows, one column
+// per task (each summary is computed as on one thread).
 void summarise(const Table& table, Design& d) {
+    std::vector<const Column*> columns;
     for (const auto& t : d.terms)
         for (const auto& f : t.factors) {
             const Column& c = table.at(f.first);
             if (c.kind != ColumnKind::Numeric || d.summaries.count(f.first)) continue;
-            std::vector<double> values;
-            values.reserve(d.rows.size());
-            for (auto r : d.rows) values.push_back(c.numbers[r]);
-            d.summaries.emplace(f.first, numeric_summary(std::move(values)));
+            d.summaries.emplace(f.first, NumericSummary{});
+            columns.push_back(&c);
         }
+    std::vector<NumericSummary> out(columns.size());
+    detail::parallel_for(columns.size(), 0, [&](std::size_t k) {
+        std::vector<double> values;
+        values.reserve(d.rows.size());
+        for (auto r : d.rows) values.push_back(columns[k]->numbers[r]);
+        out[k] = numeric_summary(std::move(values));
+    });
+    for (std::size_t k = 0; k < columns.size(); ++k) d.summaries[columns[k]->name] = out[k];
 }
 
 // What was done, for the reader: added terms, excluded rows, dummy coding.

@@ -66,11 +66,17 @@ std::string sha256_hex(std::string_view bytes) {
 }
 
 std::string sha256_file(const std::string& path) {
+    const std::atomic<bool> never{false};
+    return sha256_file(path, never);
+}
+
+std::string sha256_file(const std::string& path, const std::atomic<bool>& stop) {
     const FileDescriptor file{::open(path.c_str(), O_RDONLY | O_CLOEXEC)};
     if (file.fd < 0) throw InputError(path + ": cannot be read (" + std::strerror(errno) + ")");
     Sha256 s;
     std::vector<unsigned char> buffer(std::size_t{1} << 20);
     for (;;) {
+        if (stop.load(std::memory_order_relaxed)) return {};
         const ssize_t got = ::read(file.fd, buffer.data(), buffer.size());
         if (got < 0) {
             if (errno == EINTR) continue;

@@ -3,6 +3,7 @@
 // the SHA-256 of each data file so a changed file is noticed.
 #pragma once
 
+#include <atomic>
 #include <string>
 #include <string_view>
 
@@ -12,5 +13,8 @@ namespace moderato {
 // the file when it cannot be read.
 std::string sha256_hex(std::string_view bytes);
 std::string sha256_file(const std::string& path);
+// The same, giving up (with an empty result) once `stop` is set: for a hash
+// computed beside other work that may be cancelled.
+std::string sha256_file(const std::string& path, const std::atomic<bool>& stop);
 
 }  // namespace moderato
