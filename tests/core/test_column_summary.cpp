@@ -143,15 +143,26 @@ TEST(ColumnSummary, QuantilesBySelectionEqualSortedOnes) {
         return static_cast<double>(state >> 40) / 1e3;
     };
     const std::vector<double> ps{0.0, 0.1, 0.1, 0.5, 0.9, 0.999, 1.0};
-    for (std::size_t n : {1u, 2u, 3u, 7u, 10u, 101u, 5000u}) {
+    // Above 32,768 values the selection goes through buckets: ties, a
+    // skewed spread and a range that overflows (back to plain selection).
+    for (std::size_t n : {1u, 2u, 3u, 7u, 10u, 101u, 5000u, 40000u, 100001u}) {
         std::vector<double> v(n);
         for (double& x : v) x = std::floor(next() / 50);  // many ties
+        if (n == 100001u)
+            for (double& x : v) x = std::exp(x / 2000);  // long right tail: most values in a few buckets
         std::vector<double> sorted = v;
         std::sort(sorted.begin(), sorted.end());
         const std::vector<double> got = moderato::quantiles_by_selection(v, ps);
         for (std::size_t k = 0; k < ps.size(); ++k)
             EXPECT_EQ(got[k], moderato::quantile_sorted(sorted, ps[k])) << n << " " << ps[k];
     }
+    std::vector<double> wide(50000, 1.0);
+    wide[7] = -1.5e308;
+    wide[9] = 1.7e308;  // max - min overflows to infinity
+    std::vector<double> sorted = wide;
+    std::sort(sorted.begin(), sorted.end());
+    const std::vector<double> got = moderato::quantiles_by_selection(wide, ps);
+    for (std::size_t k = 0; k < ps.size(); ++k) EXPECT_EQ(got[k], moderato::quantile_sorted(sorted, ps[k])) << ps[k];
 }
 
 TEST(ColumnSummary, CategoricalColumnCountsEachLevel) {

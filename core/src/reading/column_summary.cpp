@@ -1,5 +1,6 @@
 // Column summaries for the dataset view (see column_summary.hpp for the rules).
-// Quantiles come from selection (std::nth_element), not a full sort, so a
+// Quantiles come from selection (std::nth_element; for many values within
+// the few buckets of a counting pass that hold them), not a full sort, so a
 // million-value column is summarised in a few linear passes.
 #include "moderato/reading/column_summary.hpp"
 
@@ -127,7 +128,72 @@ double quantile_sorted(const std::vector<double>& sorted, double p) {
     return lerp(sorted[lo], sorted[lo + 1], h - static_cast<double>(lo));
 }
 
+namespace {
+
+// The order statistics `ranks` (0-based, ascending) of values without NaN,
+// by counting sort into equal-width buckets between the minimum and the
+// maximum: bucket(v) never decreases as v grows, so the k-th smallest value
+// is the (k - values in earlier buckets)-th smallest of its bucket, which is
+// found by selection among that bucket's values only. Two passes over all
+// values (count, then gather the few buckets needed), instead of several
+// rounds of nth_element over most of them. Empty when the buckets cannot be
+// formed (an infinite or overflowing range).
+std::vector<double> order_statistics_by_buckets(const std::vector<double>& values,
+                                                const std::vector<std::size_t>& ranks) {
+    constexpr std::size_t kBuckets = 4096;
+    const auto [lo_it, hi_it] = std::minmax_element(values.begin(), values.end());
+    const double lo = *lo_it, hi = *hi_it;
+    if (lo == hi) return std::vector<double>(ranks.size(), lo);
+    const double scale = static_cast<double>(kBuckets) / (hi - lo);
+    if (!std::isfinite(scale) || !(scale > 0)) return {};
+    const auto bucket = [&](double v) { return std::min(kBuckets - 1, static_cast<std::size_t>((v - lo) * scale)); };
+    std::vector<std::size_t> count(kBuckets + 1, 0);  // count[b + 1]: values in bucket b, then cumulated
+    for (const double v : values) ++count[bucket(v) + 1];
+    for (std::size_t b = 0; b < kBuckets; ++b) count[b + 1] += count[b];
+    std::vector<std::size_t> home;  // bucket of each rank
+    std::vector<std::vector<double>> members(kBuckets);
+    for (const std::size_t k : ranks)
+        home.push_back(static_cast<std::size_t>(std::upper_bound(count.begin(), count.end(), k) - count.begin()) - 1);
+    std::vector<char> wanted(kBuckets, 0);
+    for (const std::size_t b : home) wanted[b] = 1;
+    for (const std::size_t b : home) members[b].reserve(count[b + 1] - count[b]);
+    for (const double v : values)
+        if (const std::size_t b = bucket(v); wanted[b]) members[b].push_back(v);
+    std::vector<double> out;
+    for (std::size_t r = 0; r < ranks.size(); ++r) {
+        std::vector<double>& m = members[home[r]];
+        const auto at = m.begin() + static_cast<std::ptrdiff_t>(ranks[r] - count[home[r]]);
+        std::nth_element(m.begin(), at, m.end());
+        out.push_back(*at);
+    }
+    return out;
+}
+
+// Below this many values plain selection is as quick.
+constexpr std::size_t kBucketsFrom = std::size_t{1} << 15;
+
+}  // namespace
+
 std::vector<double> quantiles_by_selection(std::vector<double>& values, const std::vector<double>& ps) {
+    if (values.size() >= kBucketsFrom) {
+        const std::size_t n = values.size();
+        std::vector<std::size_t> ranks;
+        std::vector<double> fraction;
+        for (const double p : ps) {
+            const double h = static_cast<double>(n - 1) * std::clamp(p, 0.0, 1.0);
+            const auto k = static_cast<std::size_t>(std::floor(h));
+            ranks.push_back(k);
+            ranks.push_back(std::min(k + 1, n - 1));
+            fraction.push_back(h - static_cast<double>(k));
+        }
+        const std::vector<double> x = order_statistics_by_buckets(values, ranks);
+        if (!x.empty()) {
+            std::vector<double> out;
+            for (std::size_t q = 0; q < ps.size(); ++q)
+                out.push_back(ranks[2 * q] + 1 >= n ? x[2 * q] : lerp(x[2 * q], x[2 * q + 1], fraction[q]));
+            return out;
+        }
+    }
     std::vector<double> out;
     const std::size_t n = values.size();
     std::size_t start = 0;  // values[0..start) are at most values[start], which is in its sorted place
