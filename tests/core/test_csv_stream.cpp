@@ -214,3 +214,24 @@ TEST(CsvStream, FileChangedBetweenPasses) {
                   "identity differs); nothing was fitted. Wait until the program writing it has finished, or read a "
                   "copy, and try again");
 }
+
+TEST(CsvStream, ALaterPassSkipsColumnsNotKept) {
+    // The kept columns equal read_csv's (the reference); a skipped one comes as missing cells.
+    const std::string text = straddling_text();
+    const Table want = moderato::read_csv_text(text, "t.csv");
+    CsvStream s = CsvStream::from_text(text, "t.csv", {}, 4);
+    s.set_tuning(blocks_of(13));
+    s.scan([](const Table&) {});
+    const std::vector<std::string> keep{"id", "late"};
+    Table got;
+    s.read(
+        [&](const Table& c) {
+            for (const std::size_t r : c.row_lines) got.row_lines.push_back(r);
+            for (const double v : c.at("note").numbers) EXPECT_TRUE(std::isnan(v));
+            for (const double v : c.at("id").numbers) got.columns.resize(1), got.columns[0].numbers.push_back(v);
+            EXPECT_EQ(c.at("late").levels, want.at("late").levels);
+        },
+        &keep);
+    EXPECT_EQ(got.row_lines, want.row_lines);
+    EXPECT_EQ(got.columns.at(0).numbers, want.at("id").numbers);
+}

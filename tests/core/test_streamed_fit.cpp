@@ -165,6 +165,33 @@ TEST(StreamedFit, NistDatasetsAgreeWithTheInMemoryFit) {
     }
 }
 
+TEST(StreamedFit, FoldedPassesAgreeOnTheDoublePrecisionPath) {
+    // Large problems (n (p + 1)^2 over FitOptions::extended_budget; 0 here)
+    // without a categorical factor fold pass B into pass A; reference: the
+    // in-memory fit on its double-precision path.
+    ASSERT_TRUE(test::nist_available()) << test::nist_missing_message();
+    FitOptions blocked;
+    blocked.extended_budget = 0;
+    for (const std::string name : {"Longley", "Norris", "Pontius", "NoInt1", "Wampler4"}) {
+        const test::NistCase c = test::load_nist(name);
+        ModelSpec spec;
+        spec.outcome = "y";
+        spec.intercept = c.intercept;
+        if (c.degree < 0) spec.predictors = c.predictors;
+        else spec.polynomial["x"] = c.degree;
+        const Table t = read_csv(c.csv.string());
+        for (const SeKind se : {SeKind::Classical, SeKind::HC3}) {
+            spec.se = se;
+            SCOPED_TRACE(name + " " + to_string(se));
+            CsvStream stream(c.csv.string(), {}, 6);
+            stream.set_tuning(blocks_of(40));
+            const FitResult f = fit_streamed(stream, spec, blocked);
+            expect_agree(f, fit_model(t, spec, blocked), {fit_model(reversed(t), spec, blocked)});
+            EXPECT_EQ(f.streamed->passes, streamed_passes(se) - 1);  // streamed_fit.hpp: one pass fewer
+        }
+    }
+}
+
 TEST(StreamedFit, StatsmodelsFixturesAgreeWithTheInMemoryFit) {
     const fs::path dir = test::reference_fixture_dir("ols_binary_continuous.json");
     std::size_t fitted = 0;

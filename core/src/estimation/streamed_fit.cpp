@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <map>
+#include <optional>
 #include <set>
 
 #include "estimation/covariance.hpp"
@@ -74,11 +75,87 @@ struct Facts {
     }
 };
 
+// The design without rows, decided from the schema and pass A's facts, with
+// build_design's checks in its order, and its level map.
+struct Layout {
+    Design d;
+    detail::LevelMap cat_map;
+    std::vector<std::string> used;
+    std::size_t n = 0;
+};
+
+// One chunk's used rows as design rows, outcome and weights.
+struct ChunkRows {
+    std::vector<std::size_t> rows;
+    Eigen::MatrixXd X;
+    Eigen::VectorXd y, w;
+};
+
+void chunk_rows(const Table& chunk, const ModelSpec& spec, const Layout& l, ChunkRows& out) {
+    std::vector<std::size_t> missing_per;
+    out.rows.clear();
+    detail::count_complete(chunk, l.used, missing_per, out.rows);
+    const auto m = static_cast<Eigen::Index>(out.rows.size());
+    out.X.resize(m, static_cast<Eigen::Index>(l.d.columns.size()));
+    detail::fill_rows(chunk, l.cat_map, l.d.columns, out.rows, out.X);
+    const Column& y = chunk.at(spec.outcome);
+    out.y.resize(m);
+    for (Eigen::Index i = 0; i < m; ++i) out.y[i] = y.numbers[out.rows[static_cast<std::size_t>(i)]];
+    out.w.resize(spec.weights.empty() ? 0 : m);
+    if (!spec.weights.empty()) detail::fill_weights(chunk, spec, out.rows, out.w);
+}
+
+// Pass B folded into pass A when the header decides the layout: no term
+// has a categorical factor (whose reference level needs every used row).
+// Given up (and pass B run) when a factor column turns categorical.
+struct EarlyFactor {
+    unsigned threads = 1;
+    bool live = false;
+    Layout l;
+    std::optional<detail::StreamedFactor> factor;
+    LD sum_log_w = 0;
+    std::size_t n = 0;
+    ChunkRows cr;
+
+    bool numeric_factors(const Table& chunk, const std::vector<DesignTerm>& terms) const {
+        for (const auto& t : terms)
+            for (const auto& f : t.factors)
+                if (chunk.at(f.first).kind != ColumnKind::Numeric) return false;
+        return true;
+    }
+    void start(const Table& chunk, const ModelSpec& spec, const std::vector<DesignTerm>& terms) {
+        live = false;
+        if (!numeric_factors(chunk, terms)) return;
+        try {
+            l = Layout{};
+            l.used = detail::used_columns(chunk, spec, detail::outcome_column(chunk, spec), terms);
+            detail::design_columns(chunk, terms, l.cat_map, spec.intercept, l.d);
+        } catch (const InputError&) {
+            return;  // the checks after the pass will say it
+        }
+        factor.emplace(static_cast<Eigen::Index>(l.d.columns.size()), false, threads);
+        sum_log_w = 0;
+        n = 0;
+        live = true;
+    }
+    void add(const Table& chunk, const ModelSpec& spec, const std::vector<DesignTerm>& terms) {
+        if (!live) return;
+        if (!numeric_factors(chunk, terms)) {
+            live = false;
+            return;
+        }
+        chunk_rows(chunk, spec, l, cr);
+        factor->add(cr.X, cr.y, cr.w);
+        for (Eigen::Index i = 0; i < cr.w.size(); ++i) sum_log_w += std::log(static_cast<LD>(cr.w[i]));
+        n += cr.rows.size();
+    }
+};
+
 // Pass A: the schema and the facts.
-Facts scan_facts(CsvStream& stream, const ModelSpec& spec) {
+Facts scan_facts(CsvStream& stream, const ModelSpec& spec, EarlyFactor& early) {
     Facts facts;
     facts.names = model_column_names(spec);
-    bool started = false;
+    bool started = false, early_pending = true;
     stream.scan(
         [&](const Table& chunk) {
             if (!started) {  // the header: names are final, so unknown columns are refused at once
@@ -89,8 +166,12 @@ Facts scan_facts(CsvStream& stream, const ModelSpec& spec) {
                 started = true;
             }
             facts.add(chunk, spec);
+            if (early_pending) early.start(chunk, spec, facts.terms);
+            early_pending = false;
+            early.add(chunk, spec, facts.terms);
         },
         [&] {
+            early_pending = true;
             Facts fresh;
             fresh.names = facts.names;
             fresh.terms = facts.terms;
@@ -98,15 +179,6 @@ Facts scan_facts(CsvStream& stream, const ModelSpec& spec) {
         });
     return facts;
 }
-
-// The design without rows, decided from the schema and pass A's facts, with
-// build_design's checks in its order, and its level map.
-struct Layout {
-    Design d;
-    detail::LevelMap cat_map;
-    std::vector<std::string> used;
-    std::size_t n = 0;
-};
 
 Layout decide_layout(const Table& schema, const ModelSpec& spec, const Facts& facts) {
     Layout l;
@@ -142,25 +214,15 @@ Layout decide_layout(const Table& schema, const ModelSpec& spec, const Facts& fa
     return l;
 }
 
-// One chunk's used rows as design rows, outcome and weights.
-struct ChunkRows {
-    std::vector<std::size_t> rows;
-    Eigen::MatrixXd X;
-    Eigen::VectorXd y, w;
-};
-
-void chunk_rows(const Table& chunk, const ModelSpec& spec, const Layout& l, ChunkRows& out) {
-    std::vector<std::size_t> missing_per;
-    out.rows.clear();
-    detail::count_complete(chunk, l.used, missing_per, out.rows);
-    const auto m = static_cast<Eigen::Index>(out.rows.size());
-    out.X.resize(m, static_cast<Eigen::Index>(l.d.columns.size()));
-    detail::fill_rows(chunk, l.cat_map, l.d.columns, out.rows, out.X);
-    const Column& y = chunk.at(spec.outcome);
-    out.y.resize(m);
-    for (Eigen::Index i = 0; i < m; ++i) out.y[i] = y.numbers[out.rows[static_cast<std::size_t>(i)]];
-    out.w.resize(spec.weights.empty() ? 0 : m);
-    if (!spec.weights.empty()) detail::fill_weights(chunk, spec, out.rows, out.w);
+// The solve on the factor of every used row.
+void finish_sums(detail::StreamedFactor& factor, const FitOptions& options, const Layout& l, detail::StreamedSums& s,
+                 VecL& coef_long) {
+    LeastSquaresOptions lso;
+    lso.extended_budget = options.extended_budget;
+    s.ls = factor.finish(s.n, lso, coef_long);
+    s.factor = factor.factor();
+    s.scales = factor.scales();
+    s.n_clusters = l.d.n_clusters;
 }
 
 // Pass B: the factor, the solve, the sum of log weights.
@@ -172,22 +234,19 @@ detail::StreamedSums factor_pass(CsvStream& stream, const ModelSpec& spec, const
     detail::StreamedFactor factor(p, cells <= options.extended_budget, threads);
     detail::StreamedSums s;
     ChunkRows cr;
-    stream.read([&](const Table& chunk) {
-        chunk_rows(chunk, spec, l, cr);
-        factor.add(cr.X, cr.y, cr.w);
-        for (Eigen::Index i = 0; i < cr.w.size(); ++i) s.sum_log_w += std::log(static_cast<LD>(cr.w[i]));
-        s.n += cr.rows.size();
-    });
+    stream.read(
+        [&](const Table& chunk) {
+            chunk_rows(chunk, spec, l, cr);
+            factor.add(cr.X, cr.y, cr.w);
+            for (Eigen::Index i = 0; i < cr.w.size(); ++i) s.sum_log_w += std::log(static_cast<LD>(cr.w[i]));
+            s.n += cr.rows.size();
+        },
+        &l.used);
     if (s.n != l.n)
         throw InputError(stream.name() +
                          ": the file changed between the passes of a streamed "
                          "read (its complete rows differ); try again");
-    LeastSquaresOptions lso;
-    lso.extended_budget = options.extended_budget;
-    s.ls = factor.finish(s.n, lso, coef_long);
-    s.factor = factor.factor();
-    s.scales = factor.scales();
-    s.n_clusters = l.d.n_clusters;
+    finish_sums(factor, options, l, s, coef_long);
     return s;
 }
 
@@ -205,28 +264,30 @@ void residual_pass(CsvStream& stream, const ModelSpec& spec, const Layout& l, co
     LD rss = 0;
     ChunkRows cr;
     const double nd = static_cast<double>(s.n), kd = static_cast<double>(k);
-    stream.read([&](const Table& chunk) {
-        chunk_rows(chunk, spec, l, cr);
-        const Eigen::Index m = cr.X.rows();
-        Eigen::VectorXd score(m);
-        for (Eigen::Index i = 0; i < m; ++i) {  // least_squares' residuals, in long double
-            LD fit = 0;
-            for (int j : kept) fit += static_cast<LD>(cr.X(i, j)) * coef_long[j];
-            const LD e = static_cast<LD>(cr.y[i]) - fit;
-            const LD w = cr.w.size() ? static_cast<LD>(cr.w[i]) : 1.0L;
-            rss += w * e * e;
-            score[i] = static_cast<double>(w) * static_cast<double>(e);
-        }
-        Eigen::MatrixXd W = detail::projected_rows(cr.X, kept, A, 0, m);
-        if (clustered) {
-            ids.clear();
-            codes.code_rows(chunk, spec.cluster, cr.rows, ids);
-            for (Eigen::Index i = 0; i < m; ++i) U.row(ids[static_cast<std::size_t>(i)]) += W.row(i) * score[i];
-            return;
-        }
-        detail::weigh_rows(W, score.data(), cr.w.size() ? cr.w.data() : nullptr, spec.se, nd, kd);
-        meat.selfadjointView<Eigen::Lower>().rankUpdate(W.transpose());
-    });
+    stream.read(
+        [&](const Table& chunk) {
+            chunk_rows(chunk, spec, l, cr);
+            const Eigen::Index m = cr.X.rows();
+            Eigen::VectorXd score(m);
+            for (Eigen::Index i = 0; i < m; ++i) {  // least_squares' residuals, in long double
+                LD fit = 0;
+                for (int j : kept) fit += static_cast<LD>(cr.X(i, j)) * coef_long[j];
+                const LD e = static_cast<LD>(cr.y[i]) - fit;
+                const LD w = cr.w.size() ? static_cast<LD>(cr.w[i]) : 1.0L;
+                rss += w * e * e;
+                score[i] = static_cast<double>(w) * static_cast<double>(e);
+            }
+            Eigen::MatrixXd W = detail::projected_rows(cr.X, kept, A, 0, m);
+            if (clustered) {
+                ids.clear();
+                codes.code_rows(chunk, spec.cluster, cr.rows, ids);
+                for (Eigen::Index i = 0; i < m; ++i) U.row(ids[static_cast<std::size_t>(i)]) += W.row(i) * score[i];
+                return;
+            }
+            detail::weigh_rows(W, score.data(), cr.w.size() ? cr.w.data() : nullptr, spec.se, nd, kd);
+            meat.selfadjointView<Eigen::Lower>().rankUpdate(W.transpose());
+        },
+        &l.used);
     if (clustered) meat.selfadjointView<Eigen::Lower>().rankUpdate(U.transpose());
     s.residual_rss = true;
     s.rss = static_cast<double>(rss);
@@ -239,10 +300,24 @@ std::size_t streamed_passes(SeKind se) { return se == SeKind::Classical ? 2 : 3;
 
 FitResult fit_streamed(CsvStream& stream, const ModelSpec& spec, const FitOptions& options) {
     refuse_unstreamed(spec, stream.name());
-    const Facts facts = scan_facts(stream, spec);
+    EarlyFactor early;
+    early.threads = detail::resolve_threads(spec.threads);
+    const Facts facts = scan_facts(stream, spec, early);
     const Layout l = decide_layout(stream.schema(), spec, facts);
     VecL coef_long;
-    detail::StreamedSums sums = factor_pass(stream, spec, options, l, coef_long);
+    detail::StreamedSums sums;
+    const double p1 = static_cast<double>(l.d.columns.size() + 1);
+    const bool extended = static_cast<double>(l.n) * p1 * p1 <= options.extended_budget;
+    std::vector<std::string> labels, early_labels;
+    for (const auto& c : l.d.columns) labels.push_back(c.label);
+    for (const auto& c : early.l.d.columns) early_labels.push_back(c.label);
+    if (early.live && !extended && early.n == l.n && labels == early_labels && early.l.used == l.used) {
+        sums.n = early.n;  // pass B was folded into pass A
+        sums.sum_log_w = early.sum_log_w;
+        finish_sums(*early.factor, options, l, sums, coef_long);
+    } else {
+        sums = factor_pass(stream, spec, options, l, coef_long);
+    }
     if (spec.se != SeKind::Classical) residual_pass(stream, spec, l, coef_long, sums);
     FitResult f = detail::streamed_result(l.d, spec, options, sums);
     f.streamed = StreamedFit{stream.passes(), stream.chunk_rows()};

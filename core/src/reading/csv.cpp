@@ -406,6 +406,7 @@ void Reader::take_header(const RecordParse& r, std::size_t header_line, const st
         else if (it != opt_.column_kinds.end())
             modes_[j] = it->second == ColumnKind::Categorical ? Mode::Text : Mode::NumberForced;
         else if (j < text_columns.size() && text_columns[j]) modes_[j] = Mode::Text;
+        if (sink_ && j < sink_->skip_columns.size() && sink_->skip_columns[j]) modes_[j] = Mode::Skip;
     }
     cols_.clear();
     cols_.resize(ncols);

@@ -25,6 +25,7 @@ enum class Mode : std::uint8_t {
     NumberForced,       // numeric by request; a text cell is an error
     NumberTextMissing,  // numeric by request; a text cell is missing (counted)
     Text,               // categorical: every non-missing cell is a level
+    Skip,               // not wanted (a later pass of a streamed read): skipped, stored as missing
 };
 
 // ---------------------------------------------------------------- cells
@@ -211,6 +212,7 @@ struct ChunkSink {
     std::function<void(Table&&)> take;
     std::function<void()> restarted;
     std::vector<char> text_columns;     // columns read as text from the start
+    std::vector<char> skip_columns;     // columns skipped (a later pass: the first pass checked them)
     const FileStamp* expect = nullptr;  // refuse a file whose stamp differs (a later pass)
     FileStamp seen;                     // the stamp of the file read
 };

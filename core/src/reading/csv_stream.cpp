@@ -62,12 +62,14 @@ void add_to_schema(Table& schema, const Table& chunk) {
 
 // A later pass's chunk against the schema: the same kinds, and levels that
 // the first pass found in the same order; the chunk gets all the levels.
-void hold_to_schema(const Table& schema, Table& chunk, std::vector<std::size_t>& checked) {
+void hold_to_schema(const Table& schema, Table& chunk, std::vector<std::size_t>& checked,
+                    const std::vector<char>& skipped) {
     if (chunk.cols() != schema.cols()) changed_between_passes(schema.source, "its columns differ");
     checked.resize(schema.cols(), 0);
     for (std::size_t j = 0; j < schema.cols(); ++j) {
         Column& c = chunk.columns[j];
         const Column& s = schema.columns[j];
+        if (j < skipped.size() && skipped[j]) continue;
         if (c.kind != s.kind || c.name != s.name)
             changed_between_passes(schema.source, "column '" + s.name + "' no longer reads as it did");
         if (c.kind != ColumnKind::Categorical) continue;
@@ -129,17 +131,20 @@ void CsvStream::scan(const CsvChunkFn& fn, const std::function<void()>& restarte
     st.scanned = true;
 }
 
-void CsvStream::read(const CsvChunkFn& fn) {
+void CsvStream::read(const CsvChunkFn& fn, const std::vector<std::string>* keep) {
     State& st = *s_;
     if (!st.scanned) throw InputError(st.path + ": a streamed read must scan the file first");
     csv_detail::ChunkSink sink;
     sink.chunk_rows = st.chunk_rows;
     sink.expect = &st.stamp;
-    for (const Column& c : st.schema.columns) sink.text_columns.push_back(c.kind == ColumnKind::Categorical);
+    for (const Column& c : st.schema.columns) {
+        sink.text_columns.push_back(c.kind == ColumnKind::Categorical);
+        sink.skip_columns.push_back(keep && std::find(keep->begin(), keep->end(), c.name) == keep->end());
+    }
     std::vector<std::size_t> checked;
     std::size_t rows = 0;
     sink.take = [&](Table&& chunk) {
-        hold_to_schema(st.schema, chunk, checked);
+        hold_to_schema(st.schema, chunk, checked, sink.skip_columns);
         rows += chunk.rows();
         fn(chunk);
     };

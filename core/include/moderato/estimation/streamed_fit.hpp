@@ -9,8 +9,11 @@
 // Pass C, only for the sandwich kinds (HC0-HC4, cluster), reads the residuals
 // again: leverages from the inverse factor, the meat or the per-cluster score
 // sums, and the RSS. Classical standard errors take 2 passes (the RSS from
-// the factor), every other kind 3; pass A runs once more when a column meets
-// its first text after numbers (as read_csv does). Each chunk's design rows
+// the factor), every other kind 3; one fewer when no term has a categorical
+// factor and the problem is large enough for least_squares' double-precision
+// path (n (p + 1)^2 over FitOptions::extended_budget): the layout is then
+// known from the header and pass B is folded into pass A. Pass A runs once
+// more when a column meets its first text after numbers (as read_csv does). Each chunk's design rows
 // are made by build_design's own fill_rows, so the results equal fit_model's
 // on the whole table to rounding (1e-9 relative in the tests).
 #pragma once
@@ -23,7 +26,8 @@
 
 namespace moderato {
 
-// Passes over the file a streamed fit with this SE kind takes (no restart).
+// Passes over the file a streamed fit with this SE kind takes (no restart,
+// no folding of pass B into pass A).
 std::size_t streamed_passes(SeKind se);
 
 // Fits the model to the stream's file. The result is fit_model's but for

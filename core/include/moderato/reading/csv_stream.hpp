@@ -8,6 +8,7 @@
 #include <functional>
 #include <memory>
 #include <string>
+#include <vector>
 
 #include "moderato/reading/csv.hpp"
 #include "moderato/reading/table.hpp"
@@ -42,8 +43,10 @@ public:
     // A later pass, after scan(): chunks with the schema's kinds and all of
     // each categorical column's levels. Throws InputError naming the file
     // when it changed since scan() (size, modification time or identity, or
-    // cells that no longer read as the first pass read them).
-    void read(const CsvChunkFn& fn);
+    // cells that no longer read as the first pass read them). With `keep`,
+    // the other columns are skipped (scan() read and checked them; the file
+    // is the same): they come as numeric columns of missing cells.
+    void read(const CsvChunkFn& fn, const std::vector<std::string>* keep = nullptr);
 
     // The columns found by scan(), with no rows: names, kinds, every level,
     // the first cell of text, text_as_missing counts and examples.
