@@ -7,6 +7,7 @@
 
 #include <unistd.h>
 
+#include "moderato/estimation/design.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
 
@@ -84,12 +85,18 @@ StreamChoice choose_streaming(const Arguments& args, const ModelSpec& spec) {
     // The table (8 bytes a cell) and the fit (about 26 bytes a design cell, DesignLimits).
     const FileShape shape = file_shape(args.required("data"));
     c.need_mb = shape.rows * (8.0 * shape.cols + 26.0 * design_columns(spec)) / kMiB;
-    const bool over = c.need_mb > c.budget_mb;
+    // Also past the design's cell limit (DesignLimits), which an in-memory fit refuses.
+    const bool too_many_cells = shape.rows * design_columns(spec) > static_cast<double>(DesignLimits::max_cells);
+    const bool over = c.need_mb > c.budget_mb || too_many_cells;
     const std::string why_not = unstreamable(args, spec);
     if (c.forced && !why_not.empty()) throw InputError("--stream: " + why_not + "; fit without --stream");
     c.stream = c.forced || (over && why_not.empty());
-    const std::string sizes = "an in-memory fit is estimated to need " + format_count(std::llround(c.need_mb)) +
-                              " MB, over the memory budget of " + format_count(std::llround(c.budget_mb)) + " MB";
+    const std::string sizes = too_many_cells && c.need_mb <= c.budget_mb
+                                  ? "the design matrix would hold more than " + format_count(DesignLimits::max_cells) +
+                                        " cells, more than an in-memory fit holds"
+                                  : "an in-memory fit is estimated to need " + format_count(std::llround(c.need_mb)) +
+                                        " MB, over the memory budget of " + format_count(std::llround(c.budget_mb)) +
+                                        " MB";
     if (over && !c.forced) c.note = c.stream ? sizes + ", so the file was streamed" : sizes + ", but " + why_not;
     return c;
 }

@@ -196,7 +196,9 @@ Layout decide_layout(const Table& schema, const ModelSpec& spec, const Facts& fa
     detail::record_exclusions(schema, l.used, missing_per, facts.rows, facts.complete, l.d);
     l.n = facts.complete;
     l.cat_map = detail::categorical_levels(schema, spec, terms, facts.present, l.d);
-    detail::check_design_size(schema, terms, l.cat_map, spec.intercept, l.n);
+    // Columns only: a streamed fit never holds the n x p design, so
+    // DesignLimits' cell limit (set by memory) does not apply.
+    detail::check_design_size(schema, terms, l.cat_map, spec.intercept, 0);
     detail::design_columns(schema, terms, l.cat_map, spec.intercept, l.d);
     if (!spec.cluster.empty()) {
         detail::check_clusters(spec, facts.clusters.names.size(), l.n);
