@@ -323,8 +323,9 @@ FitResult fit_streamed(CsvStream& stream, const ModelSpec& spec, const FitOption
     if (spec.se != SeKind::Classical) residual_pass(stream, spec, l, coef_long, sums);
     FitResult f = detail::streamed_result(l.d, spec, options, sums);
     f.streamed = StreamedFit{stream.passes(), stream.chunk_rows()};
-    f.notes.push_back("fitted by streaming the file: " + std::to_string(stream.passes()) +
-                      " passes in chunks of about " + std::to_string(stream.chunk_rows()) +
+    const std::size_t passes = stream.passes();
+    f.notes.push_back("fitted by streaming the file: " + std::to_string(passes) + (passes == 1 ? " pass" : " passes") +
+                      " in chunks of about " + std::to_string(stream.chunk_rows()) +
                       " rows; fitted values and residuals were not kept");
     return f;
 }
