@@ -46,6 +46,12 @@ product (interaction) terms.
   --log A,B / --log1p A,B  replace columns by log(x) / log(1 + x)
   --test TERM,TERM         joint Wald test of these terms (write products as A*B); repeatable
   --format json|text       output (default text; JSON fields: docs/cli-output.md)
+  --stream                 fit: read the file in chunks, in 2 passes (classical SEs) or 3
+                           (hc0-hc4, cluster; one fewer for a large file without categorical
+                           predictors), holding a chunk rather than the table; linear models
+                           (OLS, WLS) without column transforms; no fitted values kept
+  --memory-budget MB       fit: stream when an in-memory fit is estimated to need more than MB
+                           (default: a quarter of physical memory); the fit's notes say so
 
   Multilevel (linear mixed) models, rows nested in groups:
   --groups COL             a random intercept for each group of COL

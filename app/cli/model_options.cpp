@@ -78,7 +78,7 @@ std::string output_format(const Arguments& args) {
     return f;
 }
 
-Table load_table(const Arguments& args) {
+CsvOptions csv_options(const Arguments& args) {
     CsvOptions o;
     if (auto d = args.get("delimiter")) {
         if (*d == "comma" || *d == ",") o.delimiter = ',';
@@ -98,8 +98,10 @@ Table load_table(const Arguments& args) {
     for (const auto& list : args.all("text-missing"))
         for (const auto& c : split_list(list, "text-missing")) o.text_as_missing.insert(c);
     if (auto t = args.get("threads")) o.threads = static_cast<unsigned>(parse_integer(*t, "threads", 1, 256));
-    return read_csv(args.required("data"), o);
+    return o;
 }
+
+Table load_table(const Arguments& args) { return read_csv(args.required("data"), csv_options(args)); }
 
 namespace {
 
@@ -227,14 +229,20 @@ void read_multilevel(const Arguments& args, ModelSpec& s) {
 
 }  // namespace
 
+ModelSpec read_spec(const Arguments& args) {
+    ModelSpec spec;
+    read_terms(args, spec);
+    read_estimation(args, spec);
+    read_extras(args, spec);
+    read_multilevel(args, spec);
+    return spec;
+}
+
 LoadedModel load_model(const Arguments& args) {
     LoadedModel m;
     m.table = load_table(args);
     apply_transforms(args, m);
-    read_terms(args, m.spec);
-    read_estimation(args, m.spec);
-    read_extras(args, m.spec);
-    read_multilevel(args, m.spec);
+    m.spec = read_spec(args);
     return m;
 }
 

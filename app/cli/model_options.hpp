@@ -20,6 +20,10 @@ std::set<std::string> model_flags();
 std::set<std::string> model_valued();
 std::set<std::string> repeatable_options();
 
+// The import options (--delimiter, --no-header, --missing, --decimal-comma,
+// --categorical, --numeric, --text-missing, --threads).
+CsvOptions csv_options(const Arguments& args);
+
 // Reads --data with the import options (--delimiter, --no-header, --missing,
 // --decimal-comma, --categorical, --numeric, --threads).
 Table load_table(const Arguments& args);
@@ -29,6 +33,10 @@ struct LoadedModel {
     ModelSpec spec;
     std::vector<std::string> notes;  // what the column transforms did
 };
+
+// The specification alone (everything load_model reads but the table and
+// its transforms).
+ModelSpec read_spec(const Arguments& args);
 
 // load_table, then the transforms (--centre, --standardise, --log, --log1p)
 // and the specification (--outcome, --predictors, --interaction, --poly,

@@ -9,8 +9,8 @@ namespace moderato::detail {
 
 namespace {
 constexpr Eigen::Index kBlockRows = 8192;
+}  // namespace
 
-// Rows r0..r1 of X restricted to the kept columns, times A: the rows A' x_i.
 Eigen::MatrixXd projected_rows(const Eigen::MatrixXd& X, const std::vector<int>& kept, const Eigen::MatrixXd& A,
                                Eigen::Index r0, Eigen::Index r1) {
     const Eigen::Index k = static_cast<Eigen::Index>(kept.size());
@@ -18,7 +18,33 @@ Eigen::MatrixXd projected_rows(const Eigen::MatrixXd& X, const std::vector<int>&
     for (Eigen::Index c = 0; c < k; ++c) Xb.col(c) = X.col(kept[static_cast<std::size_t>(c)]).segment(r0, r1 - r0);
     return Xb * A;
 }
-}  // namespace
+
+void weigh_rows(Eigen::MatrixXd& W, const double* score, const double* leverage_weight, SeKind kind, double nd,
+                double kd) {
+    for (Eigen::Index i = 0; i < W.rows(); ++i) {
+        const double r = score[i];
+        double omega = r * r;
+        if (kind == SeKind::HC2 || kind == SeKind::HC3 || kind == SeKind::HC4) {
+            const double h = W.row(i).squaredNorm() * (leverage_weight ? leverage_weight[i] : 1.0);
+            const double one_minus_h = 1.0 - h;
+            if (kind == SeKind::HC2) omega /= one_minus_h;
+            else if (kind == SeKind::HC3) omega /= one_minus_h * one_minus_h;
+            else omega /= std::pow(one_minus_h, std::min(4.0, nd * h / kd));
+        }
+        W.row(i) *= std::sqrt(omega);
+    }
+}
+
+double sandwich_factor(SeKind kind, double nd, double kd, double clusters) {
+    if (kind == SeKind::Cluster) return clusters / (clusters - 1.0) * (nd - 1.0) / (nd - kd);
+    return kind == SeKind::HC1 ? nd / (nd - kd) : 1.0;
+}
+
+Eigen::MatrixXd sandwich_from_meat(const Eigen::MatrixXd& meat_lower, const Eigen::MatrixXd& A, double factor) {
+    const Eigen::MatrixXd full = meat_lower.selfadjointView<Eigen::Lower>();
+    Eigen::MatrixXd cov = A * full * A.transpose() * factor;
+    return (cov + cov.transpose()) * 0.5;
+}
 
 Eigen::MatrixXd sandwich(const Eigen::MatrixXd& X, const std::vector<int>& kept, const Eigen::MatrixXd& A,
                          const Eigen::VectorXd& score, const Eigen::VectorXd& leverage_weight, SeKind kind,
@@ -46,37 +72,23 @@ Eigen::MatrixXd sandwich(const Eigen::MatrixXd& X, const std::vector<int>& kept,
                     U.row(cluster[static_cast<std::size_t>(r0 + i)]) += W.row(i);
             });
         meat.selfadjointView<Eigen::Lower>().rankUpdate(U.transpose());
-        const double G = n_clusters;
-        factor = G / (G - 1.0) * (nd - 1.0) / (nd - kd);
+        factor = sandwich_factor(kind, nd, kd, n_clusters);
     } else {
         map_reduce_ordered<Eigen::MatrixXd>(
             blocks, threads,
             [&](std::size_t b) {
                 const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kBlockRows, r1 = std::min(n, r0 + kBlockRows);
                 Eigen::MatrixXd W = projected_rows(X, kept, A, r0, r1);
-                for (Eigen::Index i = 0; i < W.rows(); ++i) {
-                    const double r = score[r0 + i];
-                    double omega = r * r;
-                    if (kind == SeKind::HC2 || kind == SeKind::HC3 || kind == SeKind::HC4) {
-                        const double h =
-                            W.row(i).squaredNorm() * (leverage_weight.size() ? leverage_weight[r0 + i] : 1.0);
-                        const double one_minus_h = 1.0 - h;
-                        if (kind == SeKind::HC2) omega /= one_minus_h;
-                        else if (kind == SeKind::HC3) omega /= one_minus_h * one_minus_h;
-                        else omega /= std::pow(one_minus_h, std::min(4.0, nd * h / kd));
-                    }
-                    W.row(i) *= std::sqrt(omega);
-                }
+                weigh_rows(W, score.data() + r0, leverage_weight.size() ? leverage_weight.data() + r0 : nullptr, kind,
+                           nd, kd);
                 Eigen::MatrixXd M = Eigen::MatrixXd::Zero(k, k);
                 M.selfadjointView<Eigen::Lower>().rankUpdate(W.transpose());
                 return M;
             },
             [&](std::size_t, Eigen::MatrixXd&& M) { meat += M; });
-        if (kind == SeKind::HC1) factor = nd / (nd - kd);
+        factor = sandwich_factor(kind, nd, kd, n_clusters);
     }
-    const Eigen::MatrixXd full = meat.selfadjointView<Eigen::Lower>();
-    Eigen::MatrixXd cov = A * full * A.transpose() * factor;
-    return (cov + cov.transpose()) * 0.5;
+    return sandwich_from_meat(meat, A, factor);
 }
 
 Eigen::MatrixXd sandwich_with_extra(const Eigen::MatrixXd& X, const std::vector<int>& kept,

@@ -17,6 +17,20 @@ Eigen::MatrixXd sandwich(const Eigen::MatrixXd& X, const std::vector<int>& kept,
                          const Eigen::VectorXd& score, const Eigen::VectorXd& leverage_weight, SeKind kind,
                          const std::vector<int>& cluster, int n_clusters, unsigned threads);
 
+// The pieces of `sandwich`, shared with the streamed fit, which meets the rows
+// chunk by chunk. Rows r0..r1 of X's kept columns times A (the rows A' x_i):
+Eigen::MatrixXd projected_rows(const Eigen::MatrixXd& X, const std::vector<int>& kept, const Eigen::MatrixXd& A,
+                               Eigen::Index r0, Eigen::Index r1);
+// Each row of W = X_K A times sqrt(omega_i) for HC0..HC4 (score[i] the row's
+// score, leverage_weight[i] or 1 (nullptr) its leverage weight; n rows and k
+// kept columns in all), so that the meat is W'W.
+void weigh_rows(Eigen::MatrixXd& W, const double* score, const double* leverage_weight, SeKind kind, double nd,
+                double kd);
+// The small-sample factor: n/(n-k) for HC1, G/(G-1)(n-1)/(n-k) for Cluster, else 1.
+double sandwich_factor(SeKind kind, double nd, double kd, double clusters);
+// A * meat * A' * factor, symmetrised (meat: its lower triangle).
+Eigen::MatrixXd sandwich_from_meat(const Eigen::MatrixXd& meat_lower, const Eigen::MatrixXd& A, double factor);
+
 // The same for a model with one parameter beyond the columns (the negative
 // binomial's alpha): `bread` is the (k+1) x (k+1) inverse negative Hessian of
 // (beta_K, extra), row i's score is (score[i] x_iK, extra_score[i]). Kinds

@@ -1,5 +1,6 @@
 #include "moderato/estimation/design.hpp"
 
+#include "estimation/design_layout.hpp"
 #include "estimation/outcome_checks.hpp"
 
 #include <algorithm>
@@ -262,11 +263,7 @@ std::vector<std::string> sorted_levels(const Column& column) {
     return out;
 }
 
-namespace {
-
-// Categorical column -> its levels among the used rows (reference first) and
-// the level index of each of its codes (-1: a level no used row holds).
-using LevelMap = std::map<std::string, std::pair<std::vector<std::string>, std::vector<int>>>;
+namespace detail {
 
 // 1. Terms, with the lower-order terms of every product, sorted by degree.
 //    `added_notes` says which lower-order terms were added.
@@ -363,13 +360,12 @@ std::vector<std::string> used_columns(const Table& table, const ModelSpec& spec,
 
 // 2. The rows with a value in every used column (listwise deletion); the
 //    exclusions per column go into `d`.
-std::vector<std::size_t> complete_rows(const Table& table, const std::vector<std::string>& used, Design& d) {
+void count_complete(const Table& table, const std::vector<std::string>& used, std::vector<std::size_t>& missing_per,
+                    std::vector<std::size_t>& rows) {
     const std::size_t N = table.rows();
     std::vector<const Column*> cols;
     for (const auto& name : used) cols.push_back(&table.at(name));
-    std::vector<std::size_t> missing_per(cols.size(), 0);
-    std::vector<std::size_t> rows;
-    rows.reserve(N);
+    missing_per.resize(cols.size(), 0);
     for (std::size_t r = 0; r < N; ++r) {
         bool complete = true;
         for (std::size_t c = 0; c < cols.size(); ++c)
@@ -379,24 +375,42 @@ std::vector<std::size_t> complete_rows(const Table& table, const std::vector<std
             }
         if (complete) rows.push_back(r);
     }
-    d.n_excluded = N - rows.size();
-    for (std::size_t c = 0; c < cols.size(); ++c)
+}
+
+void record_exclusions(const Table& table, const std::vector<std::string>& used,
+                       const std::vector<std::size_t>& missing_per, std::size_t table_rows, std::size_t complete,
+                       Design& d) {
+    d.n_excluded = table_rows - complete;
+    for (std::size_t c = 0; c < used.size(); ++c)
         if (missing_per[c] > 0) d.exclusions.push_back({used[c], missing_per[c]});
-    if (rows.empty()) {
+    if (complete == 0) {
         std::vector<std::string> why;
         for (const auto& e : d.exclusions) why.push_back(e.column + ": " + std::to_string(e.rows) + " missing");
         throw InputError("no complete rows: every row" +
                          (table.source.empty() ? std::string() : " of " + table.source) +
                          " misses a value of a model column" + (why.empty() ? "" : " (" + join(why, ", ") + ")"));
     }
+}
+
+}  // namespace detail
+
+namespace {
+
+using detail::LevelMap;
+using detail::LevelsPresent;
+
+std::vector<std::size_t> complete_rows(const Table& table, const std::vector<std::string>& used, Design& d) {
+    std::vector<std::size_t> missing_per, rows;
+    rows.reserve(table.rows());
+    detail::count_complete(table, used, missing_per, rows);
+    detail::record_exclusions(table, used, missing_per, table.rows(), rows.size(), d);
     return rows;
 }
 
 // The levels of one categorical column among the used rows, reference first
 // (the chosen one, else the first in sorted order).
-std::vector<std::string> used_levels(const Column& c, const ModelSpec& spec, const std::vector<std::size_t>& rows) {
-    std::vector<char> present(c.levels.size(), 0);
-    for (auto r : rows) present[static_cast<std::size_t>(c.codes[r])] = 1;
+std::vector<std::string> used_levels(const Column& c, const ModelSpec& spec, std::vector<char> present) {
+    present.resize(c.levels.size(), 0);
     Column only = c;
     only.levels.clear();
     for (std::size_t i = 0; i < c.levels.size(); ++i)
@@ -418,16 +432,30 @@ std::vector<std::string> used_levels(const Column& c, const ModelSpec& spec, con
     return ordered;
 }
 
-// 3. Categorical levels among the used rows (into d.categoricals), and the
-//    check that every reference level given belongs to a categorical model column.
-LevelMap categorical_levels(const Table& table, const ModelSpec& spec, const std::vector<DesignTerm>& terms,
-                            const std::vector<std::size_t>& rows, Design& d) {
+}  // namespace
+
+void detail::mark_levels(const Table& table, const std::vector<DesignTerm>& terms, const std::vector<std::size_t>& rows,
+                         LevelsPresent& present) {
+    for (const auto& t : terms)
+        for (const auto& f : t.factors) {
+            const Column& c = table.at(f.first);
+            if (c.kind != ColumnKind::Categorical) continue;
+            std::vector<char>& held = present[f.first];
+            if (held.size() < c.levels.size()) held.resize(c.levels.size(), 0);
+            for (auto r : rows) held[static_cast<std::size_t>(c.codes[r])] = 1;
+        }
+}
+
+LevelMap detail::categorical_levels(const Table& table, const ModelSpec& spec, const std::vector<DesignTerm>& terms,
+                                    const LevelsPresent& present, Design& d) {
     LevelMap cat_map;
     for (const auto& t : terms)
         for (const auto& f : t.factors) {
             const Column& c = table.at(f.first);
             if (c.kind != ColumnKind::Categorical || cat_map.count(f.first)) continue;
-            std::vector<std::string> ordered = used_levels(c, spec, rows);
+            const auto held = present.find(f.first);
+            std::vector<std::string> ordered =
+                used_levels(c, spec, held == present.end() ? std::vector<char>() : held->second);
             std::unordered_map<std::string_view, int> position;  // linear in the levels, however many
             for (std::size_t i = 0; i < ordered.size(); ++i) position.emplace(ordered[i], static_cast<int>(i));
             std::vector<int> code_to_level(c.levels.size(), -1);
@@ -447,10 +475,23 @@ LevelMap categorical_levels(const Table& table, const ModelSpec& spec, const std
     return cat_map;
 }
 
+namespace {
+
+// 3. Categorical levels among the used rows (into d.categoricals), and the
+//    check that every reference level given belongs to a categorical model column.
+LevelMap categorical_levels(const Table& table, const ModelSpec& spec, const std::vector<DesignTerm>& terms,
+                            const std::vector<std::size_t>& rows, Design& d) {
+    LevelsPresent present;
+    detail::mark_levels(table, terms, rows, present);
+    return detail::categorical_levels(table, spec, terms, present, d);
+}
+
+}  // namespace
+
 // 3b. The size of the design, refused before anything of that size is
 //     allocated (DesignLimits says why the limits are where they are).
-void check_design_size(const Table& table, const std::vector<DesignTerm>& terms, const LevelMap& cat_map,
-                       bool intercept, std::size_t n) {
+void detail::check_design_size(const Table& table, const std::vector<DesignTerm>& terms, const LevelMap& cat_map,
+                               bool intercept, std::size_t n) {
     double p = intercept ? 1.0 : 0.0;  // double: a product of level counts may not fit an integer
     for (const auto& t : terms) {
         double cols = 1.0;
@@ -483,8 +524,8 @@ void check_design_size(const Table& table, const std::vector<DesignTerm>& terms,
 
 // 4. Design columns: the intercept, then each term expanded over the
 //    non-reference levels of its categorical factors.
-void design_columns(const Table& table, const std::vector<DesignTerm>& terms, const LevelMap& cat_map, bool intercept,
-                    Design& d) {
+void detail::design_columns(const Table& table, const std::vector<DesignTerm>& terms, const LevelMap& cat_map,
+                            bool intercept, Design& d) {
     if (intercept) {
         d.terms.push_back({"intercept", {}, 0, false, {0}});
         d.columns.push_back({"intercept", {}, 0});
@@ -524,14 +565,13 @@ void design_columns(const Table& table, const std::vector<DesignTerm>& terms, co
 }
 
 // 5. Numbers: the design matrix over the used rows.
-void fill_matrix(const Table& table, const LevelMap& cat_map, Design& d) {
-    const std::vector<std::size_t>& rows = d.rows;
-    const std::size_t n = rows.size(), p = d.columns.size();
-    d.X.resize(static_cast<Eigen::Index>(n), static_cast<Eigen::Index>(p));
+void detail::fill_rows(const Table& table, const LevelMap& cat_map, const std::vector<DesignColumn>& columns,
+                       const std::vector<std::size_t>& rows, Eigen::MatrixXd& X) {
+    const std::size_t n = rows.size(), p = columns.size();
     for (std::size_t j = 0; j < p; ++j) {
-        auto col = d.X.col(static_cast<Eigen::Index>(j));
+        auto col = X.col(static_cast<Eigen::Index>(j));
         col.setOnes();
-        for (const auto& a : d.columns[j].atoms) {
+        for (const auto& a : columns[j].atoms) {
             const Column& c = table.at(a.column);
             if (c.kind == ColumnKind::Numeric) {
                 const double* v = c.numbers.data();
@@ -551,6 +591,13 @@ void fill_matrix(const Table& table, const LevelMap& cat_map, Design& d) {
     }
 }
 
+namespace {
+
+void fill_matrix(const Table& table, const LevelMap& cat_map, Design& d) {
+    d.X.resize(static_cast<Eigen::Index>(d.rows.size()), static_cast<Eigen::Index>(d.columns.size()));
+    detail::fill_rows(table, cat_map, d.columns, d.rows, d.X);
+}
+
 // The outcome over the used rows (checked for the family), the offset and the
 // weights (positive).
 void fill_outcome_and_weights(const Table& table, const ModelSpec& spec, const Column& outcome, Design& d) {
@@ -561,48 +608,65 @@ void fill_outcome_and_weights(const Table& table, const ModelSpec& spec, const C
     detail::check_outcome(table, spec, d);
     detail::fill_offset(table, spec, d);
     if (spec.weights.empty()) return;
-    const Column& weights = table.at(spec.weights);
     d.weights.resize(static_cast<Eigen::Index>(n));
-    for (std::size_t i = 0; i < n; ++i) {
+    detail::fill_weights(table, spec, rows, d.weights);
+}
+
+}  // namespace
+
+void detail::fill_weights(const Table& table, const ModelSpec& spec, const std::vector<std::size_t>& rows,
+                          Eigen::VectorXd& out) {
+    const Column& weights = table.at(spec.weights);
+    for (std::size_t i = 0; i < rows.size(); ++i) {
         const double w = weights.numbers[rows[i]];
         if (!(w > 0))
             throw InputError("weights " + quoted(spec.weights) + " must be positive: " + table.row_place(rows[i]) +
                              " holds " + exact_text(w) + "; fix that row or choose another weights column");
-        d.weights[static_cast<Eigen::Index>(i)] = w;
+        out[static_cast<Eigen::Index>(i)] = w;
     }
 }
+
+void detail::ClusterCodes::code_rows(const Table& table, const std::string& column,
+                                     const std::vector<std::size_t>& rows, std::vector<int>& out) {
+    const Column& cluster = table.at(column);
+    if (cluster.kind == ColumnKind::Categorical) {
+        if (code_id.size() < cluster.levels.size()) code_id.resize(cluster.levels.size(), -1);
+        for (const std::size_t r : rows) {
+            auto code = static_cast<std::size_t>(cluster.codes[r]);
+            if (code_id[code] < 0) {
+                code_id[code] = static_cast<int>(names.size());
+                names.push_back(cluster.levels[code]);
+            }
+            out.push_back(code_id[code]);
+        }
+    } else {
+        for (const std::size_t r : rows) {
+            const double v = cluster.numbers[r];
+            auto [it, fresh] = num_ids.emplace(v, static_cast<int>(num_ids.size()));
+            if (fresh) names.push_back(exact_text(v));
+            out.push_back(it->second);
+        }
+    }
+}
+
+void detail::check_clusters(const ModelSpec& spec, std::size_t clusters, std::size_t n) {
+    if (clusters < 2)
+        throw InputError(
+            "cluster column " + quoted(spec.cluster) + " has a single cluster among the " + std::to_string(n) +
+            " used rows; cluster-robust standard errors need at least 2 clusters (30 or more to be reliable)");
+}
+
+namespace {
 
 // Cluster codes 0..G-1 in order of first appearance among the used rows, with
 // their names; at least two clusters.
 void fill_clusters(const Table& table, const ModelSpec& spec, Design& d) {
-    const Column& cluster = table.at(spec.cluster);
-    const std::vector<std::size_t>& rows = d.rows;
-    const std::size_t n = rows.size();
-    d.cluster.resize(n);
-    if (cluster.kind == ColumnKind::Categorical) {
-        std::vector<int> code_id(cluster.levels.size(), -1);
-        for (std::size_t i = 0; i < n; ++i) {
-            auto code = static_cast<std::size_t>(cluster.codes[rows[i]]);
-            if (code_id[code] < 0) {
-                code_id[code] = static_cast<int>(d.cluster_names.size());
-                d.cluster_names.push_back(cluster.levels[code]);
-            }
-            d.cluster[i] = code_id[code];
-        }
-    } else {
-        std::map<double, int> num_ids;
-        for (std::size_t i = 0; i < n; ++i) {
-            const double v = cluster.numbers[rows[i]];
-            auto [it, fresh] = num_ids.emplace(v, static_cast<int>(num_ids.size()));
-            if (fresh) d.cluster_names.push_back(exact_text(v));
-            d.cluster[i] = it->second;
-        }
-    }
+    detail::ClusterCodes codes;
+    d.cluster.reserve(d.rows.size());
+    codes.code_rows(table, spec.cluster, d.rows, d.cluster);
+    d.cluster_names = std::move(codes.names);
     d.n_clusters = static_cast<int>(d.cluster_names.size());
-    if (d.n_clusters < 2)
-        throw InputError(
-            "cluster column " + quoted(spec.cluster) + " has a single cluster among the " + std::to_string(n) +
-            " used rows; cluster-robust standard errors need at least 2 clusters (30 or more to be reliable)");
+    detail::check_clusters(spec, d.cluster_names.size(), d.rows.size());
 }
 
 // Each used row's group, for a multilevel model; at least two groups.
@@ -635,21 +699,31 @@ void check_estimable(const Table& table, const ModelSpec& spec, const Design& d)
             const Column& c = table.at(t.factors[0].first);
             if (c.kind != ColumnKind::Numeric) continue;
             auto col = d.X.col(t.columns[0]);
-            if ((col.array() == col[0]).all())
-                throw InputError("predictor " + quoted(t.factors[0].first) + " is constant (every used row holds " +
-                                 exact_text(col[0]) +
-                                 "); it cannot be estimated alongside the intercept — drop it or use --no-intercept");
+            if ((col.array() == col[0]).all()) detail::refuse_constant(t.factors[0].first, col[0]);
         }
-    const std::size_t n = d.rows.size(), p = d.columns.size();
+    detail::check_enough_rows(table, d.columns, d.rows.size());
+}
+
+}  // namespace
+
+void detail::refuse_constant(const std::string& column, double value) {
+    throw InputError("predictor " + quoted(column) + " is constant (every used row holds " + exact_text(value) +
+                     "); it cannot be estimated alongside the intercept — drop it or use --no-intercept");
+}
+
+void detail::check_enough_rows(const Table& table, const std::vector<DesignColumn>& columns, std::size_t n) {
+    const std::size_t p = columns.size();
     if (n <= p) {
         std::vector<std::string> labels;
-        for (const auto& c : d.columns) labels.push_back(c.label);
+        for (const auto& c : columns) labels.push_back(c.label);
         throw InputError("too few rows: " + (table.source.empty() ? std::string() : table.source + " has ") +
                          std::to_string(n) + " complete rows for " + std::to_string(p) + " coefficients (" +
                          join(labels, ", ") +
                          "); the model needs more rows than coefficients — add rows or drop terms");
     }
 }
+
+namespace {
 
 // The summary of every numeric model column over the used rows, one column
 // per task (each summary is computed as on one thread).
@@ -672,8 +746,10 @@ void summarise(const Table& table, Design& d) {
     for (std::size_t k = 0; k < columns.size(); ++k) d.summaries[columns[k]->name] = out[k];
 }
 
+}  // namespace
+
 // What was done, for the reader: added terms, excluded rows, dummy coding.
-void add_notes(const std::vector<std::string>& added_notes, std::size_t table_rows, Design& d) {
+void detail::add_notes(const std::vector<std::string>& added_notes, std::size_t table_rows, Design& d) {
     if (!added_notes.empty()) d.notes.push_back("lower-order terms added: " + join(added_notes, ", "));
     if (d.n_excluded > 0) {
         std::vector<std::string> why;
@@ -685,7 +761,12 @@ void add_notes(const std::vector<std::string>& added_notes, std::size_t table_ro
         d.notes.push_back(quoted(ci.column) + " is dummy-coded with reference level " + quoted(ci.reference));
 }
 
-}  // namespace
+const Column& detail::outcome_column(const Table& table, const ModelSpec& spec) {
+    if (spec.outcome.empty()) throw InputError("no outcome given; choose the column to explain");
+    if (!(spec.level > 0 && spec.level < 1))
+        throw InputError("confidence level " + exact_text(spec.level) + " is not between 0 and 1 (e.g. 0.95)");
+    return column_for(table, spec.outcome, "outcome");
+}
 
 Design build_design(const Table& table, const ModelSpec& spec) {
     if (auto centred = group_centred(table, spec)) {
@@ -693,28 +774,25 @@ Design build_design(const Table& table, const ModelSpec& spec) {
         d.notes.insert(d.notes.begin(), centred->notes.begin(), centred->notes.end());
         return d;
     }
-    if (spec.outcome.empty()) throw InputError("no outcome given; choose the column to explain");
-    if (!(spec.level > 0 && spec.level < 1))
-        throw InputError("confidence level " + exact_text(spec.level) + " is not between 0 and 1 (e.g. 0.95)");
-    const Column& outcome = column_for(table, spec.outcome, "outcome");
+    const Column& outcome = detail::outcome_column(table, spec);
     std::vector<std::string> added_notes;
-    const std::vector<DesignTerm> terms = model_terms(table, spec, added_notes);
-    const std::vector<std::string> used = used_columns(table, spec, outcome, terms);
+    const std::vector<DesignTerm> terms = detail::model_terms(table, spec, added_notes);
+    const std::vector<std::string> used = detail::used_columns(table, spec, outcome, terms);
 
     Design d;
     d.outcome = spec.outcome;
     d.intercept = spec.intercept;
     d.rows = complete_rows(table, used, d);
     const LevelMap cat_map = categorical_levels(table, spec, terms, d.rows, d);
-    check_design_size(table, terms, cat_map, spec.intercept, d.rows.size());
-    design_columns(table, terms, cat_map, spec.intercept, d);
+    detail::check_design_size(table, terms, cat_map, spec.intercept, d.rows.size());
+    detail::design_columns(table, terms, cat_map, spec.intercept, d);
     fill_matrix(table, cat_map, d);
     fill_outcome_and_weights(table, spec, outcome, d);
     if (!spec.cluster.empty()) fill_clusters(table, spec, d);
     if (spec.multilevel.active()) fill_groups(table, spec, d);
     check_estimable(table, spec, d);
     summarise(table, d);
-    add_notes(added_notes, table.rows(), d);
+    detail::add_notes(added_notes, table.rows(), d);
     return d;
 }
 

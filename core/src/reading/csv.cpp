@@ -16,6 +16,7 @@
 #include <system_error>
 #include <thread>
 #include <unordered_map>
+#include <utility>
 
 #include <fcntl.h>
 #include <sys/stat.h>
@@ -41,6 +42,8 @@ public:
     virtual std::size_t read(std::size_t offset, char* dst, std::size_t n) = 0;
     // Throws InputError when the data changed since the source was opened.
     virtual void check_unchanged() const {}
+    // What identifies the data read (streamed reads compare it between passes).
+    virtual FileStamp stamp() const { return {}; }
 };
 
 // A file read through one descriptor. The size, modification time and
@@ -106,6 +109,11 @@ public:
         struct stat named {};
         if (::stat(path_.c_str(), &named) != 0 || named.st_ino != opened_.st_ino || named.st_dev != opened_.st_dev)
             changed("another file took its place");
+    }
+    FileStamp stamp() const override {
+        return {static_cast<long long>(opened_.st_size), static_cast<long long>(opened_.st_mtim.tv_sec),
+                static_cast<long long>(opened_.st_mtim.tv_nsec), static_cast<unsigned long long>(opened_.st_ino),
+                static_cast<unsigned long long>(opened_.st_dev)};
     }
 
 private:
@@ -184,6 +192,7 @@ struct FinalColumn {
     std::string first_text;
     std::size_t text_cells = 0;  // NumberTextMissing
     std::vector<TextCell> text_examples;
+    bool handed_numbers = false;  // a streamed read handed out a number of this column
 };
 
 std::string count_text(std::size_t n) { return format_count(static_cast<long long>(n)); }
@@ -235,6 +244,7 @@ struct Pass {
     std::vector<std::size_t> targets, splits, bounds;
     double rows_per_byte = 0.0;
     bool reserved = false;
+    std::size_t rows_handed = 0;  // rows a streamed read has handed out
 };
 
 // One block in the buffer: b[0, len) holds the carried bytes and those just
@@ -250,8 +260,8 @@ struct Block {
 class Reader {
 public:
     Reader(Source& src, const std::string& name, const CsvOptions& options, const CsvProgress& progress,
-           const detail::CsvTuning& tuning)
-        : src_(src), name_(name), opt_(options), progress_(progress), tuning_(tuning) {
+           const detail::CsvTuning& tuning, ChunkSink* sink = nullptr)
+        : src_(src), name_(name), opt_(options), progress_(progress), tuning_(tuning), sink_(sink) {
         tuning_.block_size = std::max<std::size_t>(tuning_.block_size, 1);
         tuning_.min_piece = std::max<std::size_t>(tuning_.min_piece, 1);
         threads_ = opt_.threads ? opt_.threads : std::max(1u, std::thread::hardware_concurrency());
@@ -284,9 +294,11 @@ public:
                     "without the decimal-comma option, or save it with ';' or tab as the delimiter");
         }
         std::vector<char> text_columns;
+        if (sink_) start_streamed(text_columns);
         for (;;) {
             Table table;
             if (pass(text_columns, table)) return table;
+            if (sink_ && sink_->restarted) sink_->restarted();
         }
     }
 
@@ -331,12 +343,18 @@ private:
     void check_cells(const Pass& ps, const Block& blk) const;
     // Moves the columns read into `out`.
     void build_table(Pass& ps, Table& out);
+    // A streamed read: the file is the one of the earlier passes; the text
+    // columns known from them.
+    void start_streamed(std::vector<char>& text_columns);
+    // Hands the rows held to the sink as one chunk.
+    void hand_out(Pass& ps);
 
     Source& src_;
     const std::string& name_;
     const CsvOptions& opt_;
     const CsvProgress& progress_;
     detail::CsvTuning tuning_;
+    ChunkSink* sink_ = nullptr;
     unsigned threads_ = 1;
     char delim_ = ',';
     std::size_t start_ = 0;
@@ -388,6 +406,7 @@ void Reader::take_header(const RecordParse& r, std::size_t header_line, const st
         else if (it != opt_.column_kinds.end())
             modes_[j] = it->second == ColumnKind::Categorical ? Mode::Text : Mode::NumberForced;
         else if (j < text_columns.size() && text_columns[j]) modes_[j] = Mode::Text;
+        if (sink_ && j < sink_->skip_columns.size() && sink_->skip_columns[j]) modes_[j] = Mode::Skip;
     }
     cols_.clear();
     cols_.resize(ncols);
@@ -418,6 +437,7 @@ bool Reader::pass(std::vector<char>& text_columns, Table& out) {
             check_cells(ps, blk);
             reserve_table(ps, blk);
             line_at_cut = append_pieces(ps, blk);
+            if (sink_ && ps.row_lines.size() >= sink_->chunk_rows) hand_out(ps);
         }
         ps.line0 = line_at_cut;
         if (blk.unterminated) fail_unterminated(ps, blk);
@@ -555,12 +575,14 @@ bool Reader::take_new_text(Pass& ps, const Block& blk, std::vector<char>& text_c
     });
     check_pieces(ps, blk);
     bool again = false;
-    for (const std::size_t j : turned)
+    for (const std::size_t j : turned) {
+        again = again || cols_[j].handed_numbers;
         for (const double v : cols_[j].numbers)
             if (v == v) {  // a number already stored: its text is gone
                 again = true;
                 break;
             }
+    }
     if (again) {
         text_columns.assign(cols_.size(), 0);
         for (std::size_t j = 0; j < cols_.size(); ++j) text_columns[j] = modes_[j] == Mode::Text;
@@ -580,7 +602,7 @@ void Reader::reserve_table(Pass& ps, const Block& blk) {
     std::size_t block_rows = 0;
     for (std::size_t k = 0; k < blk.pieces; ++k) block_rows += ps.pieces[k].row_lines.size();
     ps.rows_per_byte = static_cast<double>(block_rows) / static_cast<double>(blk.cut - blk.data_begin);
-    if (ps.reserved) return;
+    if (ps.reserved || sink_) return;  // a streamed read holds one chunk at a time
     ps.reserved = true;
     const std::size_t cut_offset = ps.offset - (blk.len - blk.cut);
     const std::size_t rest = total_ > cut_offset ? total_ - cut_offset : 0;
@@ -703,9 +725,13 @@ void Reader::build_table(Pass& ps, Table& out) {
     if (!ps.header_done)
         fail(opt_.header ? "the file is empty; expected a header row and data rows"
                          : "the file is empty; expected data rows");
-    if (ps.row_lines.empty())
+    if (ps.row_lines.empty() && ps.rows_handed == 0)
         fail("the file has a header (line " + std::to_string(ps.header_line) +
              ") but no data rows; add data rows below the header");
+    if (sink_) {
+        if (!ps.row_lines.empty()) hand_out(ps);
+        return;
+    }
 
     out.source = name_;
     out.delimiter = delim_;
@@ -734,7 +760,61 @@ void Reader::build_table(Pass& ps, Table& out) {
     }
 }
 
+void Reader::start_streamed(std::vector<char>& text_columns) {
+    text_columns = sink_->text_columns;
+    sink_->seen = src_.stamp();
+    if (sink_->expect && !(*sink_->expect == sink_->seen))
+        fail(
+            "the file changed between the passes of a streamed read (its size, modification time or identity "
+            "differs); nothing was fitted. Wait until the program writing it has finished, or read a copy, and try "
+            "again");
+}
+
+void Reader::hand_out(Pass& ps) {
+    Table chunk;
+    chunk.source = name_;
+    chunk.delimiter = delim_;
+    chunk.row_lines = std::move(ps.row_lines);
+    ps.row_lines = {};
+    ps.rows_handed += chunk.row_lines.size();
+    chunk.columns.resize(cols_.size());
+    for (std::size_t j = 0; j < cols_.size(); ++j) {
+        FinalColumn& fc = cols_[j];
+        Column& c = chunk.columns[j];
+        c.name = names_[j];
+        c.kind_forced = opt_.column_kinds.count(names_[j]) > 0 || opt_.text_as_missing.count(names_[j]) > 0;
+        if (fc.mode == Mode::Text) {
+            c.kind = ColumnKind::Categorical;
+            c.codes = std::move(fc.codes);
+            fc.codes = {};
+            c.levels.assign(fc.store.begin(), fc.store.end());
+            c.first_text_line = fc.first_text_line;
+            c.first_text = fc.first_text;
+        } else {
+            c.kind = ColumnKind::Numeric;
+            c.numbers = std::move(fc.numbers);
+            fc.numbers = {};
+            for (const double v : c.numbers) fc.handed_numbers = fc.handed_numbers || v == v;
+            c.text_as_missing = std::exchange(fc.text_cells, 0);
+            c.text_examples = std::move(fc.text_examples);
+            fc.text_examples = {};
+        }
+    }
+    sink_->take(std::move(chunk));
+}
+
 }  // namespace
+
+void csv_detail::read_csv_chunks(const std::string& path, const std::string* text, const CsvOptions& options,
+                                 const CsvProgress& progress, const detail::CsvTuning& tuning, ChunkSink& sink) {
+    if (text) {
+        TextSource source(*text);
+        Reader(source, path, options, progress, tuning, &sink).read();
+    } else {
+        FileSource source(path);
+        Reader(source, path, options, progress, tuning, &sink).read();
+    }
+}
 
 namespace detail {
 

@@ -6,11 +6,13 @@
 #include <cstddef>
 #include <cstdint>
 #include <deque>
+#include <functional>
 #include <string>
 #include <string_view>
 #include <unordered_map>
 #include <vector>
 
+#include "moderato/reading/csv.hpp"
 #include "moderato/reading/table.hpp"
 
 namespace moderato::csv_detail {
@@ -23,6 +25,7 @@ enum class Mode : std::uint8_t {
     NumberForced,       // numeric by request; a text cell is an error
     NumberTextMissing,  // numeric by request; a text cell is missing (counted)
     Text,               // categorical: every non-missing cell is a level
+    Skip,               // not wanted (a later pass of a streamed read): skipped, stored as missing
 };
 
 // ---------------------------------------------------------------- cells
@@ -187,5 +190,36 @@ void parse_piece(const ParseSetup& setup, const char* begin, const char* end, co
 
 // Describes a column for messages: "column 3 ('age')".
 std::string column_label(const std::vector<std::string>* names, std::size_t j);
+
+// ------------------------------------------------------- streamed reading
+
+// What identifies a file's contents between two reads of it: its size,
+// modification time and identity (all zero for text in memory).
+struct FileStamp {
+    long long size = 0, mtime_sec = 0, mtime_nsec = 0;
+    unsigned long long inode = 0, device = 0;
+    bool operator==(const FileStamp&) const = default;
+};
+
+// A streamed read (csv_stream.cpp): the block driver hands its rows out in
+// chunks instead of keeping them. A chunk is a Table with every column; its
+// categorical codes are the file's (first appearance, stable across chunks)
+// and its levels those found so far. A column that meets text after numbers
+// were handed out makes the driver start the pass again (`restarted`, which
+// may throw to refuse that), exactly when read_csv would read again.
+struct ChunkSink {
+    std::size_t chunk_rows = 65536;  // a chunk is handed out once it holds this many rows
+    std::function<void(Table&&)> take;
+    std::function<void()> restarted;
+    std::vector<char> text_columns;     // columns read as text from the start
+    std::vector<char> skip_columns;     // columns skipped (a later pass: the first pass checked them)
+    const FileStamp* expect = nullptr;  // refuse a file whose stamp differs (a later pass)
+    FileStamp seen;                     // the stamp of the file read
+};
+
+// Reads the file (or text, when `text` is given) through, handing its rows to
+// the sink; throws what read_csv throws.
+void read_csv_chunks(const std::string& path, const std::string* text, const CsvOptions& options,
+                     const CsvProgress& progress, const detail::CsvTuning& tuning, ChunkSink& sink);
 
 }  // namespace moderato::csv_detail

@@ -361,7 +361,10 @@ std::size_t PieceParser::run() {
         out_.row_lines.push_back(line);
         std::size_t j = 0;
         for (;;) {
-            if (j < ncols) {
+            if (j < ncols && out_.cols[j].mode == Mode::Skip) {
+                skip_field(p, line);
+                out_.cols[j].numbers.push_back(std::numeric_limits<double>::quiet_NaN());
+            } else if (j < ncols) {
                 ColumnChunk& col = out_.cols[j];
                 const bool done =
                     fast_numbers_ && col.mode != Mode::Text && p < end_ && *p != '"' && try_fast_number(col, p);

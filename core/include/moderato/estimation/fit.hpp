@@ -65,6 +65,13 @@ struct Overdispersion {
     bool evident() const { return p_value < 0.05 || pearson_ratio > 1.5; }
 };
 
+// How a fit streamed its file (streamed_fit.hpp): passes over the file and
+// the rows of a chunk.
+struct StreamedFit {
+    std::size_t passes = 0;
+    std::size_t chunk_rows = 0;
+};
+
 struct FitResult {
     Family family = Family::Linear;
     SeKind se = SeKind::Classical;
@@ -105,6 +112,8 @@ struct FitResult {
     // Multilevel fits: the random part. df_inference is then the df used
     // for probing (that of the product terms under the chosen rule).
     std::optional<MultilevelResult> multilevel;
+    // A fit streamed from its file: fitted and residuals are then empty.
+    std::optional<StreamedFit> streamed;
 
     Eigen::VectorXd fitted;     // the mean: fitted values, probabilities or expected counts (with the exposure)
     Eigen::VectorXd residuals;  // y - fitted (response residuals)
