@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 #include "support/parallel.hpp"
 
@@ -33,6 +34,14 @@ void weigh_rows(Eigen::MatrixXd& W, const double* score, const double* leverage_
         }
         W.row(i) *= std::sqrt(omega);
     }
+}
+
+Eigen::MatrixXd expand_covariance(const Eigen::MatrixXd& Vk, const std::vector<int>& kept, Eigen::Index p) {
+    Eigen::MatrixXd V = Eigen::MatrixXd::Constant(p, p, std::numeric_limits<double>::quiet_NaN());
+    for (std::size_t a = 0; a < kept.size(); ++a)
+        for (std::size_t b = 0; b < kept.size(); ++b)
+            V(kept[a], kept[b]) = Vk(static_cast<Eigen::Index>(a), static_cast<Eigen::Index>(b));
+    return V;
 }
 
 double sandwich_factor(SeKind kind, double nd, double kd, double clusters) {

@@ -31,6 +31,10 @@ double sandwich_factor(SeKind kind, double nd, double kd, double clusters);
 // A * meat * A' * factor, symmetrised (meat: its lower triangle).
 Eigen::MatrixXd sandwich_from_meat(const Eigen::MatrixXd& meat_lower, const Eigen::MatrixXd& A, double factor);
 
+// The full p x p covariance from the block of the kept columns, NaN in the
+// rows and columns of aliased ones.
+Eigen::MatrixXd expand_covariance(const Eigen::MatrixXd& Vk, const std::vector<int>& kept, Eigen::Index p);
+
 // The same for a model with one parameter beyond the columns (the negative
 // binomial's alpha): `bread` is the (k+1) x (k+1) inverse negative Hessian of
 // (beta_K, extra), row i's score is (score[i] x_iK, extra_score[i]). Kinds

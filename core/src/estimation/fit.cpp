@@ -36,15 +36,6 @@ Eigen::MatrixXd columns_of(const Eigen::MatrixXd& X, const std::vector<int>& col
     return out;
 }
 
-// Full p x p covariance from the kept block (NaN rows/columns for aliased).
-Eigen::MatrixXd expand(const Eigen::MatrixXd& Vk, const std::vector<int>& kept, Eigen::Index p) {
-    Eigen::MatrixXd V = Eigen::MatrixXd::Constant(p, p, kNaN);
-    for (std::size_t a = 0; a < kept.size(); ++a)
-        for (std::size_t b = 0; b < kept.size(); ++b)
-            V(kept[a], kept[b]) = Vk(static_cast<Eigen::Index>(a), static_cast<Eigen::Index>(b));
-    return V;
-}
-
 WaldTest wald_on_columns(const FitResult& fit, const std::vector<int>& cols, std::vector<std::string> labels) {
     WaldTest w;
     w.terms = std::move(labels);
@@ -227,7 +218,7 @@ void covariance(const Design& d, const ModelSpec& spec, const Solution& s, unsig
     }
     if (spec.se != SeKind::Classical && spec.family != Family::NegativeBinomial)
         Vk = detail::sandwich(d.X, s.ls.kept, A, s.score, s.leverage_weight, spec.se, d.cluster, d.n_clusters, threads);
-    f.covariance = expand(Vk, s.ls.kept, d.X.cols());
+    f.covariance = detail::expand_covariance(Vk, s.ls.kept, d.X.cols());
     f.df_inference = glm ? kInf : (spec.se == SeKind::Cluster ? d.n_clusters - 1.0 : f.df_residual);
     f.critical_value = dist::t_quantile(0.5 + spec.level / 2.0, f.df_inference);
     if (f.dispersion) {
@@ -447,12 +438,7 @@ std::optional<NestedComparison> nested_comparison(const Design& d, const FitOpti
 // Warnings a reader must see.
 void add_warnings(const Design& d, const ModelSpec& spec, const Solution& s, FitResult& f) {
     const bool glm = generalized(spec.family);
-    for (const auto& a : f.aliased)
-        f.warnings.push_back("aliased: " + quoted(a) +
-                             " is a linear combination of other columns and was not estimated");
-    if (spec.se == SeKind::Cluster && d.n_clusters < 30)
-        f.warnings.push_back("only " + std::to_string(d.n_clusters) +
-                             " clusters: cluster-robust standard errors are unreliable with fewer than 30");
+    detail::add_column_warnings(spec, d.n_clusters, f);
     if (glm && !f.converged && !s.separation)
         f.warnings.push_back(std::string("the ") + to_string(spec.family) + " fit did not converge in " +
                              std::to_string(f.iterations) + " iterations; the estimates are not reliable");
@@ -461,18 +447,25 @@ void add_warnings(const Design& d, const ModelSpec& spec, const Solution& s, Fit
         f.warnings.push_back(s.separation->message);
     }
     detail::add_dispersion_warnings(f);
-    if (!glm && spec.se != SeKind::Classical && spec.se != SeKind::Cluster) {
-        // leverage of 1 makes HC2-HC4 undefined
-        for (const auto& c : f.coefficients)
-            if (!c.aliased && !std::isfinite(c.std_error)) {
-                f.warnings.push_back("some rows have leverage 1 (a coefficient fitted by a single row); " +
-                                     std::string(to_string(spec.se)) + " standard errors are undefined");
-                break;
-            }
-    }
 }
 
 }  // namespace
+
+void detail::add_column_warnings(const ModelSpec& spec, int n_clusters, FitResult& f) {
+    for (const auto& a : f.aliased)
+        f.warnings.push_back("aliased: " + quoted(a) +
+                             " is a linear combination of other columns and was not estimated");
+    if (spec.se == SeKind::Cluster && n_clusters < 30)
+        f.warnings.push_back("only " + std::to_string(n_clusters) +
+                             " clusters: cluster-robust standard errors are unreliable with fewer than 30");
+    if (generalized(spec.family) || spec.se == SeKind::Classical || spec.se == SeKind::Cluster) return;
+    for (const auto& c : f.coefficients)  // leverage of 1 makes HC2-HC4 undefined
+        if (!c.aliased && !std::isfinite(c.std_error)) {
+            f.warnings.push_back("some rows have leverage 1 (a coefficient fitted by a single row); " +
+                                 std::string(to_string(spec.se)) + " standard errors are undefined");
+            break;
+        }
+}
 
 FitResult detail::start_result(const Design& d, const ModelSpec& spec) {
     if (generalized(spec.family) && (spec.se == SeKind::HC2 || spec.se == SeKind::HC3 || spec.se == SeKind::HC4))

@@ -5,6 +5,7 @@
 #include <limits>
 #include <numbers>
 
+#include "estimation/covariance.hpp"
 #include "estimation/mixed_model.hpp"
 #include "estimation/streamed_factor.hpp"
 #include "moderato/estimation/distributions.hpp"
@@ -15,15 +16,6 @@ namespace moderato::detail {
 namespace {
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-// Full p x p covariance from the kept block (NaN rows/columns for aliased), as fit.cpp.
-Eigen::MatrixXd expand(const Eigen::MatrixXd& Vk, const std::vector<int>& kept, Eigen::Index p) {
-    Eigen::MatrixXd V = Eigen::MatrixXd::Constant(p, p, kNaN);
-    for (std::size_t a = 0; a < kept.size(); ++a)
-        for (std::size_t b = 0; b < kept.size(); ++b)
-            V(kept[a], kept[b]) = Vk(static_cast<Eigen::Index>(a), static_cast<Eigen::Index>(b));
-    return V;
-}
 
 // VIF_j = [(X'WX)^{-1}]_jj * sum_i w_i (x_ij - mean_w(x_j))^2, the sum being
 // the RSS of column j on the intercept, read off the factor.
@@ -52,7 +44,7 @@ void covariance(const Design& d, const ModelSpec& spec, const StreamedSums& s, F
     f.residual_sd = std::sqrt(sigma2);
     const Eigen::MatrixXd Vk =
         spec.se == SeKind::Classical ? Eigen::MatrixXd(sigma2 * (A * A.transpose())) : s.sandwich;
-    f.covariance = expand(Vk, s.ls.kept, static_cast<Eigen::Index>(d.columns.size()));
+    f.covariance = expand_covariance(Vk, s.ls.kept, static_cast<Eigen::Index>(d.columns.size()));
     f.df_inference = spec.se == SeKind::Cluster ? d.n_clusters - 1.0 : f.df_residual;
     f.critical_value = dist::t_quantile(0.5 + spec.level / 2.0, f.df_inference);
 }
@@ -134,23 +126,6 @@ std::optional<NestedComparison> comparison(const Design& d, const StreamedSums& 
     return cmp;
 }
 
-// The warnings fit.cpp gives a linear fit.
-void add_warnings(const ModelSpec& spec, FitResult& f) {
-    for (const auto& a : f.aliased)
-        f.warnings.push_back("aliased: " + quoted(a) +
-                             " is a linear combination of other columns and was not estimated");
-    if (spec.se == SeKind::Cluster && f.n_clusters < 30)
-        f.warnings.push_back("only " + std::to_string(f.n_clusters) +
-                             " clusters: cluster-robust standard errors are unreliable with fewer than 30");
-    if (spec.se == SeKind::Classical || spec.se == SeKind::Cluster) return;
-    for (const auto& c : f.coefficients)  // leverage of 1 makes HC2-HC4 undefined
-        if (!c.aliased && !std::isfinite(c.std_error)) {
-            f.warnings.push_back("some rows have leverage 1 (a coefficient fitted by a single row); " +
-                                 std::string(to_string(spec.se)) + " standard errors are undefined");
-            break;
-        }
-}
-
 }  // namespace
 
 FitResult streamed_result(const Design& d, const ModelSpec& spec, const FitOptions& options, const StreamedSums& s) {
@@ -177,7 +152,7 @@ FitResult streamed_result(const Design& d, const ModelSpec& spec, const FitOptio
     overall_test(d, spec, s, f);
     if (options.compare_without_products) f.comparison = comparison(d, s, f);
     for (const auto& set : spec.wald_tests) f.wald_tests.push_back(wald_test(f, set));
-    add_warnings(spec, f);
+    add_column_warnings(spec, d.n_clusters, f);
     return f;
 }
 

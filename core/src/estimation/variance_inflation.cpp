@@ -11,16 +11,22 @@ namespace {
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
-// The kept columns other than the intercept and their places among the kept.
+// The kept columns other than the intercept, their places among the kept,
+// and their weighted means and centred sums of squares.
 struct Slopes {
     std::vector<int> column, place;
+    Eigen::VectorXd mean, ss;
 };
 
-std::optional<Slopes> slopes_of(const Design& d, const std::vector<int>& kept) {
+void centred_sums(const Design& d, const std::vector<int>& cols, unsigned threads, Eigen::VectorXd& mean,
+                  Eigen::VectorXd& ss);
+
+std::optional<Slopes> slopes_of(const Design& d, const std::vector<int>& kept, unsigned threads) {
     if (!d.intercept || !std::binary_search(kept.begin(), kept.end(), 0)) return std::nullopt;
     Slopes s;
     for (std::size_t a = 0; a < kept.size(); ++a)
         if (kept[a] != 0) s.column.push_back(kept[a]), s.place.push_back(static_cast<int>(a));
+    centred_sums(d, s.column, threads, s.mean, s.ss);
     return s;
 }
 
@@ -76,27 +82,23 @@ Eigen::MatrixXd centred_cross_products(const Design& d, const std::vector<int>& 
 std::vector<double> variance_inflation(const Design& d, const std::vector<int>& kept, const Eigen::MatrixXd& A,
                                        unsigned threads) {
     std::vector<double> vif(d.p(), kNaN);
-    const auto s = slopes_of(d, kept);
+    const auto s = slopes_of(d, kept, threads);
     if (!s) return vif;
-    Eigen::VectorXd mean, ss;
-    centred_sums(d, s->column, threads, mean, ss);
     for (std::size_t c = 0; c < s->column.size(); ++c)
         vif[static_cast<std::size_t>(s->column[c])] =
-            A.row(s->place[c]).squaredNorm() * ss[static_cast<Eigen::Index>(c)];
+            A.row(s->place[c]).squaredNorm() * s->ss[static_cast<Eigen::Index>(c)];
     return vif;
 }
 
 std::optional<std::vector<double>> variance_inflation_by_cross_products(const Design& d, const std::vector<int>& kept,
                                                                         unsigned threads) {
     std::vector<double> vif(d.p(), kNaN);
-    const auto s = slopes_of(d, kept);
+    const auto s = slopes_of(d, kept, threads);
     if (!s) return vif;
-    Eigen::VectorXd mean, ss;
-    centred_sums(d, s->column, threads, mean, ss);
     // The correlation matrix R = D^{-1/2} C D^{-1/2} (D = diag C): VIF_j = [R^{-1}]_jj.
-    const Eigen::VectorXd scale = ss.cwiseSqrt().cwiseInverse();
+    const Eigen::VectorXd scale = s->ss.cwiseSqrt().cwiseInverse();
     const Eigen::MatrixXd R =
-        scale.asDiagonal() * centred_cross_products(d, s->column, mean, threads) * scale.asDiagonal();
+        scale.asDiagonal() * centred_cross_products(d, s->column, s->mean, threads) * scale.asDiagonal();
     const Eigen::LLT<Eigen::MatrixXd> llt(R);
     if (llt.info() != Eigen::Success) return std::nullopt;
     // The smallest pivot of R's Cholesky factor squared bounds 1 / cond(R)
