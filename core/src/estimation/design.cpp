@@ -564,11 +564,12 @@ void detail::design_columns(const Table& table, const std::vector<DesignTerm>& t
     if (d.columns.empty()) throw InputError("the model has no terms: add predictors or keep the intercept");
 }
 
-// 5. Numbers: the design matrix over the used rows.
+// 5. Numbers: the design matrix over the used rows, one column per task
+// once there are enough rows to share (each column is filled as on one thread).
 void detail::fill_rows(const Table& table, const LevelMap& cat_map, const std::vector<DesignColumn>& columns,
                        const std::vector<std::size_t>& rows, Eigen::MatrixXd& X) {
     const std::size_t n = rows.size(), p = columns.size();
-    for (std::size_t j = 0; j < p; ++j) {
+    detail::parallel_for(p, n >= 32768 ? 0 : 1, [&](std::size_t j) {
         auto col = X.col(static_cast<Eigen::Index>(j));
         col.setOnes();
         for (const auto& a : columns[j].atoms) {
@@ -588,7 +589,7 @@ void detail::fill_rows(const Table& table, const LevelMap& cat_map, const std::v
                         col[static_cast<Eigen::Index>(i)] = 0.0;
             }
         }
-    }
+    });
 }
 
 namespace {
