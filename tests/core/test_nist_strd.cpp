@@ -7,6 +7,7 @@
 #include <iostream>
 
 #include "common/nist.hpp"
+#include "common/nist_spec.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/estimation/least_squares.hpp"
 #include "moderato/reading/csv.hpp"
@@ -19,16 +20,6 @@ namespace {
 struct Scores {
     double coef = 15, se = 15, sd = 15, r2 = 15;
 };
-
-// The NIST model as a specification: y on the predictors, or on x, x^2, ... x^d.
-ModelSpec nist_spec(const NistCase& c) {
-    ModelSpec s;
-    s.outcome = "y";
-    s.intercept = c.intercept;
-    if (c.degree < 0) s.predictors = c.predictors;
-    else s.polynomial["x"] = c.degree;
-    return s;
-}
 
 Scores score_core(const NistCase& c) {
     const Table t = read_csv(c.csv.string());

@@ -20,6 +20,7 @@
 
 #include "common/input_error.hpp"
 #include "common/nist.hpp"
+#include "common/nist_spec.hpp"
 #include "common/reference_fixtures.hpp"
 #include "common/temp_dir.hpp"
 #include "common/tolerance.hpp"
@@ -150,11 +151,7 @@ TEST(StreamedFit, NistDatasetsAgreeWithTheInMemoryFit) {
     ASSERT_TRUE(test::nist_available()) << test::nist_missing_message();
     for (const std::string& name : test::nist_datasets()) {
         const test::NistCase c = test::load_nist(name);
-        ModelSpec spec;
-        spec.outcome = "y";
-        spec.intercept = c.intercept;
-        if (c.degree < 0) spec.predictors = c.predictors;
-        else spec.polynomial["x"] = c.degree;
+        ModelSpec spec = test::nist_spec(c);
         const Table t = read_csv(c.csv.string());
         for (const SeKind se : kAllKinds) {
             spec.se = se;
@@ -174,11 +171,7 @@ TEST(StreamedFit, FoldedPassesAgreeOnTheDoublePrecisionPath) {
     blocked.extended_budget = 0;
     for (const std::string name : {"Longley", "Norris", "Pontius", "NoInt1", "Wampler4"}) {
         const test::NistCase c = test::load_nist(name);
-        ModelSpec spec;
-        spec.outcome = "y";
-        spec.intercept = c.intercept;
-        if (c.degree < 0) spec.predictors = c.predictors;
-        else spec.polynomial["x"] = c.degree;
+        ModelSpec spec = test::nist_spec(c);
         const Table t = read_csv(c.csv.string());
         for (const SeKind se : {SeKind::Classical, SeKind::HC3}) {
             spec.se = se;
