@@ -404,6 +404,23 @@ detail::GlmStart reduced_start(const FitResult& f, const std::vector<int>& kept,
     return s;
 }
 
+// The generalized model without the products. With a start from the full
+// fit, on the full design with the products held at 0 (no copy of the
+// design); the negative binomial, which takes no start, on a copy.
+detail::GlmFit reduced_glm(const Design& d, const FitOptions& options, const LeastSquaresOptions& lso,
+                           const FitResult& f, const std::vector<int>& kept, const std::vector<int>& products,
+                           const std::vector<int>& reduced_cols) {
+    const detail::GlmStart start = reduced_start(f, kept, products, reduced_cols);
+    if (start.kept.empty() || f.family == Family::NegativeBinomial)
+        return detail::fit_glm(d, columns_of(d.X, reduced_cols), f.family, options.max_iterations, lso, false,
+                               start.kept.empty() ? nullptr : &start);
+    detail::GlmStart full{Eigen::VectorXd::Zero(d.X.cols()), {}};
+    for (std::size_t c = 0; c < reduced_cols.size(); ++c)
+        full.beta[reduced_cols[c]] = start.beta[static_cast<Eigen::Index>(c)];
+    for (int c : start.kept) full.kept.push_back(reduced_cols[static_cast<std::size_t>(c)]);
+    return detail::fit_glm(d, d.X, f.family, options.max_iterations, lso, false, &full);
+}
+
 // The model without its product terms, fitted on the same rows; none when no
 // product column is estimable.
 std::optional<NestedComparison> nested_comparison(const Design& d, const FitOptions& options,
@@ -424,9 +441,7 @@ std::optional<NestedComparison> nested_comparison(const Design& d, const FitOpti
     if (!generalized(f.family)) {
         linear_comparison(d, lso, ls, products, reduced_cols, f, cmp);
     } else {
-        const detail::GlmStart start = reduced_start(f, ls.kept, products, reduced_cols);
-        auto red = detail::fit_glm(d, columns_of(d.X, reduced_cols), f.family, options.max_iterations, lso, false,
-                                   start.kept.empty() ? nullptr : &start);
+        const detail::GlmFit red = reduced_glm(d, options, lso, f, ls.kept, products, reduced_cols);
         cmp.df1 = static_cast<double>(ls.kept.size() - red.factor.kept.size());
         cmp.lr_statistic = 2.0 * (f.log_likelihood - red.loglik);
         cmp.lr_p_value = dist::upper_p_chi2(cmp.lr_statistic, cmp.df1);

@@ -89,19 +89,55 @@ struct State {
 
 struct Weights {
     Eigen::VectorXd v, r;  // prior x observed information weight, prior x score
+    Eigen::VectorXd mu;    // the mean
 };
 
 Weights weights_at(const Design& d, Family f, const Eigen::VectorXd& eta, double alpha) {
     const Eigen::Index n = eta.size();
-    Weights w{Eigen::VectorXd(n), Eigen::VectorXd(n)};
+    Weights w{Eigen::VectorXd(n), Eigen::VectorXd(n), Eigen::VectorXd(n)};
     for_row_blocks(n, [&](Eigen::Index r0, Eigen::Index rows) {
         for (Eigen::Index i = r0; i < r0 + rows; ++i) {
             const RowTerms t = row_terms(f, d.y[i], eta[i], alpha);
             w.v[i] = prior(d, i) * t.weight;
             w.r[i] = prior(d, i) * t.score;
+            w.mu[i] = t.mu;
         }
     });
     return w;
+}
+
+// The log-likelihood at eta and the weights there, in one pass over the rows
+// (a Poisson row's exp(eta) serves both). The sum is the one total_loglik
+// makes, in the same block order.
+struct Evaluation {
+    double loglik = 0;
+    Weights w;
+};
+
+Evaluation evaluate(const Design& d, Family f, const Eigen::VectorXd& eta, double alpha) {
+    const Eigen::Index n = eta.size();
+    Evaluation e{0, Weights{Eigen::VectorXd(n), Eigen::VectorXd(n), Eigen::VectorXd(n)}};
+    long double ll = 0;
+    map_reduce_ordered<long double>(
+        row_blocks(n), 0,
+        [&](std::size_t b) {
+            const Eigen::Index r0 = static_cast<Eigen::Index>(b) * kRowBlock, r1 = std::min(n, r0 + kRowBlock);
+            long double part = 0;
+            for (Eigen::Index i = r0; i < r1; ++i) {
+                const double y = d.y[i], p = prior(d, i);
+                const RowTerms t = row_terms(f, y, eta[i], alpha);
+                e.w.v[i] = p * t.weight;
+                e.w.r[i] = p * t.score;
+                e.w.mu[i] = t.mu;
+                const double l =
+                    f == Family::Poisson ? y * eta[i] - t.mu - log_factorial(y) : row_loglik(f, y, eta[i], alpha);
+                part += p * l;
+            }
+            return part;
+        },
+        [&](std::size_t, long double&& part) { ll += part; });
+    e.loglik = static_cast<double>(ll);
+    return e;
 }
 
 // X_K' diag(v) X_K (into the lower triangle) and X_K' r, in one pass over
@@ -158,44 +194,51 @@ Eigen::VectorXd newton_step(const Eigen::MatrixXd& X, const std::vector<int>& ke
 }
 
 // Newton's method for beta at a fixed alpha, from s.beta, with step halving.
-// Returns the iterations used and whether the last step was negligible.
+// Returns the iterations used and whether the last step was negligible; the
+// weights at the final s.eta go to `at_end` when given.
 std::pair<int, bool> newton_beta(const Design& d, const Eigen::MatrixXd& X, Family f, double alpha, int max_iterations,
-                                 const LeastSquaresOptions& lso, State& s) {
+                                 const LeastSquaresOptions& lso, State& s, Weights* at_end = nullptr) {
     const Eigen::Index p = X.cols();
+    Weights w = weights_at(d, f, s.eta, alpha);
+    const auto done = [&](int it, bool converged) {
+        if (at_end) *at_end = std::move(w);
+        return std::pair<int, bool>{it, converged};
+    };
     for (int it = 1; it <= max_iterations; ++it) {
-        const Weights w = weights_at(d, f, s.eta, alpha);
         const Eigen::VectorXd stepK = newton_step(X, s.kept, w, lso);
-        if (stepK.size() == 0) return {it, false};  // the rank fell while iterating: separation territory
+        if (stepK.size() == 0) return done(it, false);  // the rank fell while iterating: separation territory
         const Eigen::Index k = static_cast<Eigen::Index>(s.kept.size());
         Eigen::VectorXd step = Eigen::VectorXd::Zero(p);
         for (Eigen::Index c = 0; c < k; ++c) step[s.kept[static_cast<std::size_t>(c)]] = stepK[c];
-        double t = 1.0, ll_new = -kInf;
+        double t = 1.0;
         Eigen::VectorXd beta_new, eta_new;
+        Evaluation e;
         for (int halving = 0; halving < 30; ++halving, t *= 0.5) {
             beta_new = s.beta + t * step;
             eta_new = linear_predictor(d, X, beta_new);
-            ll_new = total_loglik(d, f, eta_new, alpha);
-            if (ll_new >= s.loglik - 1e-12 * (1 + std::abs(s.loglik))) break;
+            e = evaluate(d, f, eta_new, alpha);
+            if (e.loglik >= s.loglik - 1e-12 * (1 + std::abs(s.loglik))) break;
         }
         bool small = true;
         for (Eigen::Index j = 0; j < p; ++j)
             if (std::abs(t * step[j]) > 1e-10 * (1 + std::abs(s.beta[j]))) small = false;
-        s.beta = beta_new;
-        s.eta = eta_new;
-        s.loglik = ll_new;
-        if (small) return {it, true};
+        s.beta = std::move(beta_new);
+        s.eta = std::move(eta_new);
+        s.loglik = e.loglik;
+        w = std::move(e.w);
+        if (small) return done(it, true);
     }
-    return {max_iterations, false};
+    return done(max_iterations, false);
 }
 
 // The mean, the scores and the information factor at the estimate; the
 // factor decides which columns are estimable (under separation the weights
 // can collapse the rank).
 GlmFit finish(const Design& d, const Eigen::MatrixXd& X, Family f, double alpha, const LeastSquaresOptions& lso,
-              const State& s, bool factor = true) {
+              const State& s, bool factor = true, Weights w = {}) {
     GlmFit out;
     const Eigen::Index n = X.rows();
-    const Weights w = weights_at(d, f, s.eta, alpha);
+    if (w.v.size() != n) w = weights_at(d, f, s.eta, alpha);
     if (factor) {
         out.factor = least_squares(X, Eigen::VectorXd::Zero(n), w.v, lso);
     } else {
@@ -206,9 +249,8 @@ GlmFit finish(const Design& d, const Eigen::MatrixXd& X, Family f, double alpha,
     for (Eigen::Index j = 0; j < out.beta.size(); ++j)
         if (!is_kept(out.factor.kept, j)) out.beta[j] = kNaN;
     out.eta = s.eta;
-    out.mu.resize(n);
-    for (Eigen::Index i = 0; i < n; ++i) out.mu[i] = row_terms(f, d.y[i], s.eta[i], alpha).mu;
-    out.score = w.r;
+    out.mu = std::move(w.mu);
+    out.score = std::move(w.r);
     out.loglik = s.loglik;
     out.alpha = alpha;
     return out;
@@ -357,8 +399,9 @@ GlmFit fit_glm(const Design& d, const Eigen::MatrixXd& X, Family family, int max
     } else {
         s = start_state(d, X, family, kNaN, lso);
     }
-    const auto [iterations, converged] = newton_beta(d, X, family, kNaN, max_iterations, lso, s);
-    GlmFit out = finish(d, X, family, kNaN, lso, s, covariance_factor);
+    Weights at_end;
+    const auto [iterations, converged] = newton_beta(d, X, family, kNaN, max_iterations, lso, s, &at_end);
+    GlmFit out = finish(d, X, family, kNaN, lso, s, covariance_factor, std::move(at_end));
     out.iterations = iterations;
     out.converged = converged;
     return out;
