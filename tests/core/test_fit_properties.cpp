@@ -142,6 +142,59 @@ TEST(FitProperties, DoubleAndExtendedPathsAgree) {
     EXPECT_LT(rel(b.rss, a.rss), 1e-12);
 }
 
+// Large problems may take their factor from the cross-products, which square
+// the condition number; that road must be refused where it would lose digits
+// the QR keeps. Here a column nearly repeats another (they differ by 1e-6 of
+// its size), so the condition number is about 1e6: the double-precision QR
+// still carries some 9 digits, the cross-products would carry about 4.
+// Reference: the long double QR of the same problem (common practice:
+// normal-equations error grows with the squared condition number).
+TEST(FitProperties, NearlyAliasedColumnsKeepTheQrAccuracy) {
+    const Sim s = simulate(5000, 16);
+    Eigen::MatrixXd X(5000, 4);
+    Eigen::VectorXd y(5000), w(5000);
+    std::mt19937_64 rng(17);
+    std::normal_distribution<double> N(0, 1);
+    for (Eigen::Index i = 0; i < X.rows(); ++i) {
+        const auto r = static_cast<std::size_t>(i);
+        X.row(i) << 1.0, s.x[r], s.z[r], s.x[r] + 1e-6 * N(rng);
+        y[i] = s.y[r] + 1e-3 * X(i, 3);
+        w[i] = s.w[r];
+    }
+    LeastSquaresOptions ext, dbl;
+    dbl.extended_budget = 0;
+    for (const Eigen::VectorXd& weights : {Eigen::VectorXd(), w}) {
+        const auto a = least_squares(X, y, weights, ext);
+        const auto b = least_squares(X, y, weights, dbl);
+        ASSERT_FALSE(b.extended_precision);
+        ASSERT_EQ(b.kept.size(), 4u);
+        for (Eigen::Index j = 0; j < 4; ++j) EXPECT_LT(rel(b.coef[j], a.coef[j]), 1e-6) << j;
+        const Eigen::MatrixXd Va = a.inverse_factor * a.inverse_factor.transpose();
+        const Eigen::MatrixXd Vb = b.inverse_factor * b.inverse_factor.transpose();
+        for (Eigen::Index j = 0; j < 4; ++j) EXPECT_LT(rel(Vb(j, j), Va(j, j)), 1e-6) << j;
+    }
+}
+
+// The same on a well-conditioned weighted problem, where the large-problem
+// road may use the cross-products: the two answers agree to 1e-11 in the
+// coefficients and in (X'WX)^{-1}, and the weighted RSS to 1e-12
+// (closed form: one least-squares solution).
+TEST(FitProperties, WeightedDoubleAndExtendedPathsAgree) {
+    const Sim s = simulate(5000, 18);
+    const Design d = build_design(table_of(s), base_spec());
+    const Eigen::VectorXd w = Eigen::Map<const Eigen::VectorXd>(s.w.data(), static_cast<Eigen::Index>(s.w.size()));
+    LeastSquaresOptions ext, dbl;
+    dbl.extended_budget = 0;
+    const auto a = least_squares(d.X, d.y, w, ext);
+    const auto b = least_squares(d.X, d.y, w, dbl);
+    ASSERT_FALSE(b.extended_precision);
+    for (Eigen::Index j = 0; j < a.coef.size(); ++j) EXPECT_LT(rel(b.coef[j], a.coef[j]), 1e-11);
+    const Eigen::MatrixXd Va = a.inverse_factor * a.inverse_factor.transpose();
+    const Eigen::MatrixXd Vb = b.inverse_factor * b.inverse_factor.transpose();
+    EXPECT_LT((Vb - Va).cwiseAbs().maxCoeff() / Va.cwiseAbs().maxCoeff(), 1e-11);
+    EXPECT_LT(rel(b.rss, a.rss), 1e-12);
+}
+
 // Closed forms: HC1 = n/(n-k) HC0; CR1 with one row per cluster equals HC1;
 // a one-term Wald F equals t squared; with one product term the R²-change F
 // equals the classical t squared of that term.

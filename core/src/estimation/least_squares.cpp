@@ -5,6 +5,7 @@
 #include <limits>
 #include <numeric>
 
+#include "estimation/gram_factor.hpp"
 #include "estimation/qr_steps.hpp"
 #include "support/parallel.hpp"
 
@@ -30,20 +31,22 @@ struct RootWeight {
 
 std::size_t block_count(Eigen::Index n) { return static_cast<std::size_t>((n + kBlockRows - 1) / kBlockRows); }
 
-// Unit-norm column scaling of the (weighted) design.
-std::vector<double> column_scales(const Eigen::MatrixXd& X, const Eigen::VectorXd& weights) {
+// Unit-norm column scaling of the (weighted) design; one column per task,
+// each summed in row order (the same numbers on any number of threads).
+std::vector<double> column_scales(const Eigen::MatrixXd& X, const Eigen::VectorXd& weights, unsigned threads) {
     const Eigen::Index n = X.rows(), p = X.cols();
     const bool weighted = weights.size() > 0;
     std::vector<double> scale(static_cast<std::size_t>(p), 1.0);
-    for (Eigen::Index j = 0; j < p; ++j) {
+    detail::parallel_for(static_cast<std::size_t>(p), threads, [&](std::size_t column) {
+        const auto j = static_cast<Eigen::Index>(column);
         LD ss = 0;
         for (Eigen::Index i = 0; i < n; ++i) {
             const LD v = static_cast<LD>(X(i, j)) * (weighted ? static_cast<LD>(weights[i]) : 1.0L) * X(i, j);
             ss += v;
         }
         const double s = static_cast<double>(std::sqrt(ss));
-        scale[static_cast<std::size_t>(j)] = s > 0 ? s : 1.0;
-    }
+        scale[column] = s > 0 ? s : 1.0;
+    });
     return scale;
 }
 
@@ -93,12 +96,18 @@ MatL blocked_factor(const Eigen::MatrixXd& X, const Eigen::VectorXd& y, const Ei
 }
 
 // Residuals and the weighted residual sum of squares, accumulated in long
-// double over fixed row blocks (reduced in block order).
+// double over fixed row blocks (reduced in block order). All-zero
+// coefficients (a zero y: callers that want only the factor) leave y itself.
 void residuals(const Eigen::MatrixXd& X, const Eigen::VectorXd& y, const Eigen::VectorXd& weights, const VecL& coefL,
                unsigned threads, LeastSquaresResult& out) {
     const Eigen::Index n = X.rows();
     const bool weighted = weights.size() > 0;
     const std::vector<int>& kept = out.kept;
+    if (y.isZero(0.0) && std::all_of(kept.begin(), kept.end(), [&](int j) { return coefL[j] == 0; })) {
+        out.residuals = y;
+        out.rss = 0;
+        return;
+    }
     out.residuals.resize(n);
     LD rss = 0;
     detail::map_reduce_ordered<LD>(
@@ -127,15 +136,23 @@ LeastSquaresResult least_squares(const Eigen::MatrixXd& X, const Eigen::VectorXd
     const Eigen::Index n = X.rows();
     const Eigen::Index p = X.cols();
     const unsigned threads = detail::resolve_threads(options.threads);
-    const std::vector<double> scale = column_scales(X, weights);
 
     LeastSquaresResult out;
     out.extended_precision =
         static_cast<double>(n) * static_cast<double>(p + 1) * static_cast<double>(p + 1) <= options.extended_budget;
 
-    // 1. R of the scaled, weighted [X | y].
-    MatL Raug =
-        out.extended_precision ? extended_factor(X, y, weights, scale) : blocked_factor(X, y, weights, scale, threads);
+    // 1. R of the scaled, weighted [X | y]: for a large problem from the
+    //    cross-products when they are well enough conditioned, else by QR.
+    std::vector<double> scale;
+    MatL Raug;
+    if (auto gram = out.extended_precision ? std::nullopt : detail::gram_factor(X, y, weights, threads)) {
+        scale = std::move(gram->scale);
+        Raug = std::move(gram->Raug);
+    } else {
+        scale = column_scales(X, weights, threads);
+        Raug = out.extended_precision ? extended_factor(X, y, weights, scale)
+                                      : blocked_factor(X, y, weights, scale, threads);
+    }
     if (Raug.rows() < p + 1) {  // fewer rows than columns + 1: pad with zeros
         MatL padded = MatL::Zero(p + 1, p + 1);
         padded.topRows(Raug.rows()) = Raug;

@@ -1,11 +1,11 @@
-// Weighted least squares by Householder QR with column pivoting.
-//
-// The design is scaled to unit column norms, reduced to the triangular factor
-// R of [X | y] (one Householder QR in 80-bit long double for small problems;
-// for large ones a tall-skinny QR over fixed row blocks in double, blocks on
-// all threads, merged in long double), and the rank is decided by a pivoted
-// QR of that small factor. Columns beyond the numerical rank are reported as
-// aliased, never silently dropped; the kept columns are solved in long double.
+// Weighted least squares: the design is scaled to unit column norms and
+// reduced to the triangular factor R of [X | y]: small problems by one
+// Householder QR in 80-bit long double; large ones from the cross-products
+// (blocks on all threads, summed in long double) when each column keeps 1e-4
+// of its squared norm outside the earlier columns' span, else by a tall-skinny
+// QR over fixed row blocks in double merged in long double. The rank is decided
+// by a pivoted QR of R; columns beyond it are reported as aliased, never
+// silently dropped; the kept columns are solved in long double.
 #pragma once
 
 #include <Eigen/Dense>
