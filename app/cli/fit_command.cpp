@@ -24,7 +24,7 @@ FitResult fit_file(const Arguments& a, ModelSpec& spec) {
         if (!choice.note.empty()) fit.notes.insert(fit.notes.begin(), choice.note);
         return fit;
     }
-    LoadedModel m = load_model(a);
+    LoadedModel m = load_model(a, true);
     spec = m.spec;
     FitResult fit = fit_model(m.table, m.spec);
     fit.notes.insert(fit.notes.begin(), m.notes.begin(), m.notes.end());

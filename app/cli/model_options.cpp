@@ -4,6 +4,7 @@
 #include <cctype>
 #include <cstdio>
 
+#include "moderato/reading/csv_columns.hpp"
 #include "moderato/reading/derive.hpp"
 #include "moderato/reporting/output_json.hpp"
 #include "moderato/support/error.hpp"
@@ -238,9 +239,32 @@ ModelSpec read_spec(const Arguments& args) {
     return spec;
 }
 
-LoadedModel load_model(const Arguments& args) {
+namespace {
+
+// Every column the specification and the column transforms name.
+std::vector<std::string> named_columns(const Arguments& args, const ModelSpec& s) {
+    std::vector<std::string> names{s.outcome, s.weights, s.cluster, s.exposure, s.multilevel.groups};
+    names.insert(names.end(), s.predictors.begin(), s.predictors.end());
+    for (const auto& i : s.interactions) names.insert(names.end(), i.begin(), i.end());
+    for (const auto& [c, degree] : s.polynomial) names.push_back(c);
+    for (const auto& [c, level] : s.reference_levels) names.push_back(c);
+    for (const auto* list : {&s.multilevel.random_slopes, &s.multilevel.centre_within, &s.multilevel.group_means})
+        names.insert(names.end(), list->begin(), list->end());
+    for (const auto& item : args.all("centre")) names.push_back(item.substr(0, item.find('=')));
+    for (const char* option : {"standardise", "log", "log1p"})
+        for (const auto& list : args.all(option))
+            for (const auto& c : split_list(list, option)) names.push_back(c);
+    std::erase(names, std::string());
+    return names;
+}
+
+}  // namespace
+
+LoadedModel load_model(const Arguments& args, bool named_only) {
     LoadedModel m;
-    m.table = load_table(args);
+    m.table = named_only
+                  ? read_csv_columns(args.required("data"), csv_options(args), named_columns(args, read_spec(args)))
+                  : load_table(args);
     apply_transforms(args, m);
     m.spec = read_spec(args);
     return m;

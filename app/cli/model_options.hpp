@@ -41,8 +41,9 @@ ModelSpec read_spec(const Arguments& args);
 // load_table, then the transforms (--centre, --standardise, --log, --log1p)
 // and the specification (--outcome, --predictors, --interaction, --poly,
 // --no-intercept, --family, --se, --cluster, --weights, --level, --reference,
-// --test).
-LoadedModel load_model(const Arguments& args);
+// --test). With `named_only`, only the columns the options name are read
+// (for `fit`, whose output needs no other column).
+LoadedModel load_model(const Arguments& args, bool named_only = false);
 
 // Opens a JSON document with what every model-based output starts with:
 // "output_version" (2), the program version, the data file and the outcome.

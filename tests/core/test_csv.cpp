@@ -21,6 +21,7 @@
 #include "common/input_error.hpp"
 #include "common/temp_dir.hpp"
 #include "moderato/reading/csv.hpp"
+#include "moderato/reading/csv_columns.hpp"
 #include "moderato/reading/table.hpp"
 #include "moderato/support/error.hpp"
 
@@ -569,4 +570,60 @@ TEST(TableLookup, AtFindAndRowLocation) {
     EXPECT_EQ(plain.row_location(1), "row 2");            // closed form: 1-based row without lines
     EXPECT_EQ(plain.columns.back().missing_count(), 1u);  // closed form
     EXPECT_EQ(input_error_of([&] { plain.at("y"); }), "column 'y' not found; columns are: z");
+}
+
+// ------------------------------------------------------------ some columns
+
+// read_csv_columns keeps the named columns exactly as read_csv reads them
+// (reference: read_csv itself, whose results other tests check against
+// RFC 4180 and hand-worked values), across block and piece boundaries.
+TEST(CsvColumns, KeepsTheNamedColumnsAsReadCsvReadsThem) {
+    std::string text = "id,x,label,y,note\n";
+    std::mt19937_64 rng(29);
+    std::uniform_int_distribution<int> digit(0, 9);
+    for (int i = 0; i < 5000; ++i)
+        text += std::to_string(i) + "," + std::to_string(digit(rng)) + ".5,\"lv" + std::to_string(digit(rng)) + "\"," +
+                (i % 97 == 0 ? "NA" : std::to_string(digit(rng))) + ",free \"\"text\"\" " + std::to_string(i) + "\n";
+    TempDir dir("csvcols");
+    const std::string file = dir.write("t.csv", text).string();
+    CsvOptions o;
+    o.threads = 3;
+    const Table all = moderato::read_csv(file, o);
+    const Table some = moderato::read_csv_columns(file, o, {"y", "label"});
+    Table expected;
+    expected.columns = {all.columns[2], all.columns[3]};  // file order, not the order asked
+    expected.row_lines = all.row_lines;
+    expect_same_table(some, expected);
+    EXPECT_EQ(some.source, all.source);
+}
+
+// The columns left out are checked as text, not converted: a broken record
+// (wrong number of fields, text after a closing quote, invalid UTF-8) is
+// refused with read_csv's own message and line, while text in a left-out
+// numeric-looking column is not read.
+TEST(CsvColumns, ChecksLeftOutCellsAsTextWithoutReadingThem) {
+    TempDir dir("csvcols");
+    for (const std::string body : {"1,2,3\n4,5\n", "1,2,3\n4,5,\"x\"y\n", "1,2,3\n4,5,\xC3\x28\n"}) {
+        const std::string bad = dir.write("bad.csv", "a,b,c\n" + body).string();
+        const std::string want = input_error_of([&] { moderato::read_csv(bad, {}); });
+        EXPECT_NE(want.find("line 3"), std::string::npos) << want;
+        EXPECT_EQ(input_error_of([&] { moderato::read_csv_columns(bad, {}, {"a"}); }), want);
+    }
+    const std::string mixed = dir.write("mixed.csv", "a,b\n1,2\n3,oops\n").string();
+    const Table t = moderato::read_csv_columns(mixed, {}, {"a"});
+    ASSERT_EQ(t.cols(), 1u);
+    EXPECT_EQ(t.columns[0].name, "a");
+    EXPECT_EQ(t.columns[0].numbers, (std::vector<double>{1, 3}));
+}
+
+// A name that is not a column: every column is read, so the caller's lookup
+// lists them all when it reports the name (the common practice of naming the
+// available choices in the error).
+TEST(CsvColumns, AnUnknownNameReadsEveryColumn) {
+    TempDir dir("csvcols");
+    const std::string file = dir.write("t.csv", "a,b,c\n1,2,3\n").string();
+    const Table t = moderato::read_csv_columns(file, {}, {"a", "B"});
+    ASSERT_EQ(t.cols(), 3u);
+    const std::string message = input_error_of([&] { t.at("B"); });
+    EXPECT_NE(message.find("a, b, c"), std::string::npos) << message;
 }

@@ -4,6 +4,7 @@
 // appends their chunks in order, so the table is the same for any thread
 // count or block size. The input is only ever opened for reading.
 #include "moderato/reading/csv.hpp"
+#include "moderato/reading/csv_columns.hpp"
 
 #include <algorithm>
 #include <cerrno>
@@ -259,9 +260,10 @@ struct Block {
 
 class Reader {
 public:
+    // `keep`: read only these columns (read_csv_columns); null: all.
     Reader(Source& src, const std::string& name, const CsvOptions& options, const CsvProgress& progress,
-           const detail::CsvTuning& tuning, ChunkSink* sink = nullptr)
-        : src_(src), name_(name), opt_(options), progress_(progress), tuning_(tuning), sink_(sink) {
+           const detail::CsvTuning& tuning, ChunkSink* sink = nullptr, const std::vector<std::string>* keep = nullptr)
+        : src_(src), name_(name), opt_(options), progress_(progress), tuning_(tuning), sink_(sink), keep_(keep) {
         tuning_.block_size = std::max<std::size_t>(tuning_.block_size, 1);
         tuning_.min_piece = std::max<std::size_t>(tuning_.min_piece, 1);
         threads_ = opt_.threads ? opt_.threads : std::max(1u, std::thread::hardware_concurrency());
@@ -340,6 +342,10 @@ private:
     void check_record_length(const Pass& ps, const Block& blk) const;
     // The per-column overrides name columns of the file and do not contradict each other.
     void check_overrides() const;
+    // Columns not in keep_ are dropped, when every kept name is a column
+    // (else all are read, so that the caller's lookup names the missing one
+    // with every column listed).
+    void drop_unwanted();
     void check_cells(const Pass& ps, const Block& blk) const;
     // Moves the columns read into `out`.
     void build_table(Pass& ps, Table& out);
@@ -355,6 +361,7 @@ private:
     const CsvProgress& progress_;
     detail::CsvTuning tuning_;
     ChunkSink* sink_ = nullptr;
+    const std::vector<std::string>* keep_ = nullptr;
     unsigned threads_ = 1;
     char delim_ = ',';
     std::size_t start_ = 0;
@@ -408,9 +415,17 @@ void Reader::take_header(const RecordParse& r, std::size_t header_line, const st
         else if (j < text_columns.size() && text_columns[j]) modes_[j] = Mode::Text;
         if (sink_ && j < sink_->skip_columns.size() && sink_->skip_columns[j]) modes_[j] = Mode::Skip;
     }
+    if (keep_) drop_unwanted();
     cols_.clear();
     cols_.resize(ncols);
     for (std::size_t j = 0; j < ncols; ++j) cols_[j].mode = modes_[j];
+}
+
+void Reader::drop_unwanted() {
+    for (const std::string& name : *keep_)
+        if (std::find(names_.begin(), names_.end(), name) == names_.end()) return;
+    for (std::size_t j = 0; j < names_.size(); ++j)
+        if (std::find(keep_->begin(), keep_->end(), names_[j]) == keep_->end()) modes_[j] = Mode::Drop;
 }
 
 bool Reader::pass(std::vector<char>& text_columns, Table& out) {
@@ -612,7 +627,7 @@ void Reader::reserve_table(Pass& ps, const Block& blk) {
     ps.row_lines.reserve(est);
     for (auto& fc : cols_) {
         if (fc.mode == Mode::Text) fc.codes.reserve(est);
-        else fc.numbers.reserve(est);
+        else if (fc.mode != Mode::Drop) fc.numbers.reserve(est);
     }
 }
 
@@ -641,6 +656,7 @@ std::size_t Reader::append_pieces(Pass& ps, const Block& blk) {
 void Reader::append_column(Pass& ps, const Block& blk, std::size_t j, const std::vector<std::size_t>& piece_line,
                            std::vector<std::int32_t>& remap) {
     FinalColumn& fc = cols_[j];
+    if (fc.mode == Mode::Drop) return;
     for (std::size_t k = 0; k < blk.pieces; ++k) {
         ColumnChunk& ch = ps.pieces[k].cols[j];
         if (fc.mode != Mode::Text) {
@@ -736,10 +752,11 @@ void Reader::build_table(Pass& ps, Table& out) {
     out.source = name_;
     out.delimiter = delim_;
     out.row_lines = std::move(ps.row_lines);
-    out.columns.resize(cols_.size());
+    out.columns.reserve(cols_.size());
     for (std::size_t j = 0; j < cols_.size(); ++j) {
         FinalColumn& fc = cols_[j];
-        Column& c = out.columns[j];
+        if (fc.mode == Mode::Drop) continue;
+        Column& c = out.columns.emplace_back();
         c.name = names_[j];
         c.kind_forced = opt_.column_kinds.count(names_[j]) > 0 || opt_.text_as_missing.count(names_[j]) > 0;
         if (fc.mode == Mode::Text) {
@@ -834,6 +851,12 @@ Table read_csv_text_tuned(const std::string& text, const std::string& name, cons
 
 Table read_csv(const std::string& path, const CsvOptions& options, const CsvProgress& progress) {
     return detail::read_csv_tuned(path, options, progress, detail::CsvTuning{});
+}
+
+Table read_csv_columns(const std::string& path, const CsvOptions& options, const std::vector<std::string>& keep,
+                       const CsvProgress& progress) {
+    FileSource source(path);
+    return Reader(source, path, options, progress, detail::CsvTuning{}, nullptr, &keep).read();
 }
 
 Table read_csv_text(const std::string& text, const std::string& name, const CsvOptions& options) {

@@ -26,6 +26,7 @@ enum class Mode : std::uint8_t {
     NumberTextMissing,  // numeric by request; a text cell is missing (counted)
     Text,               // categorical: every non-missing cell is a level
     Skip,               // not wanted (a later pass of a streamed read): skipped, stored as missing
+    Drop,               // not wanted (read_csv_columns): checked as text (quotes, UTF-8), not stored
 };
 
 // ---------------------------------------------------------------- cells

@@ -288,6 +288,7 @@ PieceParser::Signal PieceParser::general_cell(std::size_t j, const char*& p, std
 PieceParser::Signal PieceParser::handle_value(std::size_t j, std::string_view raw, bool quoted, bool in_scratch,
                                               std::size_t cell_line) {
     ColumnChunk& col = out_.cols[j];
+    if (col.mode == Mode::Drop) return check_utf8(j, raw, cell_line);  // checked as text, not kept
     const std::string_view trimmed = trim_blanks(raw, delim_);
     if (s_.missing->contains(trimmed)) {
         if (col.mode == Mode::Text) col.text.codes.push_back(-1);
@@ -366,8 +367,8 @@ std::size_t PieceParser::run() {
                 out_.cols[j].numbers.push_back(std::numeric_limits<double>::quiet_NaN());
             } else if (j < ncols) {
                 ColumnChunk& col = out_.cols[j];
-                const bool done =
-                    fast_numbers_ && col.mode != Mode::Text && p < end_ && *p != '"' && try_fast_number(col, p);
+                const bool done = fast_numbers_ && col.mode != Mode::Text && col.mode != Mode::Drop && p < end_ &&
+                                  *p != '"' && try_fast_number(col, p);
                 if (!done) {
                     const Signal sig = general_cell(j, p, line);
                     if (sig == Signal::Error) return npos;
@@ -418,7 +419,7 @@ void parse_piece(const ParseSetup& setup, const char* begin, const char* end, co
                 c.text.codes.reserve(setup.expected_rows);
             } else {
                 std::vector<std::int32_t>().swap(c.text.codes);
-                c.numbers.reserve(setup.expected_rows);
+                if (c.mode != Mode::Drop) c.numbers.reserve(setup.expected_rows);
             }
         }
         out.row_lines.clear();
