@@ -294,24 +294,26 @@ std::string residual_rows(const Context& x, const Design& d, const detail::Strea
     return "SELECT " + detail::join(items, ", ") + " FROM (" + x.q.level1(true) + ") AS l1" + x.q.fence_text();
 }
 
-// omega_i of the HC kinds over level 2's columns (as covariance.cpp's weigh_rows).
-std::string omega_sql(SeKind se, std::size_t k, std::size_t n) {
+// sqrt(omega_i) times the sign of the score, over level 2's columns (omega as
+// covariance.cpp's weigh_rows), so the meat is the sum of t t' with t = that
+// times u; the leverage h appears once in it (its square, the outcome of
+// HC3, would repeat it in every aggregate once the planner flattens the SELECTs).
+std::string root_omega_sql(SeKind se, std::size_t k, std::size_t n) {
     std::vector<std::string> squares;
     for (std::size_t a = 0; a < k; ++a) squares.push_back("u" + std::to_string(a) + " * u" + std::to_string(a));
     const std::string h = "(w * (" + detail::join(squares, " + ") + "))";
-    const std::string score2 = "(w * e) * (w * e)";
     switch (se) {
         case SeKind::HC2:
-            return score2 + " / (1 - " + h + ")";
+            return "w * e / sqrt(1 - " + h + ")";
         case SeKind::HC3:
-            return score2 + " / ((1 - " + h + ") * (1 - " + h + "))";
+            return "w * e / (1 - " + h + ")";
         case SeKind::HC4: {
             const std::string ratio =
                 detail::float8_literal(static_cast<double>(n) / static_cast<double>(k)) + " * " + h;
-            return score2 + " / power(1 - " + h + ", CASE WHEN " + ratio + " < 4 THEN " + ratio + " ELSE 4 END)";
+            return "w * e / sqrt(power(1 - " + h + ", CASE WHEN " + ratio + " < 4 THEN " + ratio + " ELSE 4 END))";
         }
         default:
-            return score2;
+            return "w * e";
     }
 }
 
@@ -319,12 +321,12 @@ std::string omega_sql(SeKind se, std::size_t k, std::size_t n) {
 void hc_pass(const Context& x, const Design& d, detail::StreamedSums& s) {
     const auto k = static_cast<std::size_t>(s.ls.kept.size());
     const DesignQuery& q = x.q;
-    std::vector<std::string> items{"w * e * e AS r", omega_sql(x.spec.se, k, s.n) + " AS om"}, aggs{"sum(r)"};
+    std::vector<std::string> items{"w * e * e AS r", root_omega_sql(x.spec.se, k, s.n) + " AS t"}, aggs{"sum(r)"};
     for (std::size_t a = 0; a < k; ++a) items.push_back("u" + std::to_string(a));
     for (std::size_t i = 0; i < q.keys.size(); ++i) items.push_back("k" + std::to_string(i));
     for (std::size_t a = 0; a < k; ++a)
         for (std::size_t b = 0; b <= a; ++b)
-            aggs.push_back("sum(om * u" + std::to_string(a) + " * u" + std::to_string(b) + ")");
+            aggs.push_back("sum((t * u" + std::to_string(a) + ") * (t * u" + std::to_string(b) + "))");
     const PgResult r =
         x.exec("SELECT " + q.key_list() + detail::join(aggs, ", ") + " FROM (SELECT " + detail::join(items, ", ") +
                    " FROM (" + residual_rows(x, d, s, false) + ") AS l2" + q.fence_text() + ") AS l3" + q.group_by(),
@@ -396,6 +398,7 @@ DesignQuery design_query(const PgConnection& c, const std::vector<detail::PgColu
     for (std::size_t i = 0; i < used.size(); ++i) {
         const auto pg = std::find_if(columns.begin(), columns.end(), [&](const auto& p) { return p.name == used[i]; });
         q.values.push_back(detail::value_expression(c, *pg, options));
+        q.simple.push_back(detail::complete_value_expression(c, *pg, options));
         complete.push_back("v" + std::to_string(i) + " IS NOT NULL");
     }
     q.complete = detail::join(complete, " AND ");
@@ -436,8 +439,8 @@ FitResult fit_in_database(const SourceSpec& source, const ModelSpec& spec, const
     detail::design_columns(schema, terms, cat_map, spec.intercept, d);
     for (const auto& col : d.columns)
         if (!col.atoms.empty()) x.q.design.push_back(detail::design_expression(c, col, x.used));
-    x.q.y = x.v(spec.outcome);
-    if (!spec.weights.empty()) x.q.w = x.v(spec.weights);
+    x.q.y = "s" + x.v(spec.outcome).substr(1);
+    if (!spec.weights.empty()) x.q.w = "s" + x.v(spec.weights).substr(1);
     const Means m = means_pass(x, schema);
     check_rows(x, schema, m, notes, d);
     detail::StreamedSums s = solve_from_cross_products(cross_products(x, m), m, d, fit_options);

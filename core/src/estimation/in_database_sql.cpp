@@ -74,12 +74,21 @@ std::string value_expression(const PgConnection& c, const PgColumn& column, cons
     }
 }
 
+std::string complete_value_expression(const PgConnection& c, const PgColumn& column, const CsvOptions& options) {
+    const std::string ref = c.identifier(column.name);
+    const ColumnKind kind = target_kind(column, options);
+    if (kind == ColumnKind::Categorical) return ref + "::text";
+    if (column.value == PgValue::Number) return ref + "::float8";
+    if (column.value == PgValue::Boolean) return "CASE WHEN " + ref + " THEN '1'::float8 ELSE '0'::float8 END";
+    return value_expression(c, column, options);
+}
+
 std::string design_expression(const PgConnection& c, const DesignColumn& column,
                               const std::vector<std::string>& names) {
     std::vector<std::string> factors;
     for (const auto& atom : column.atoms) {
         const auto at = std::find(names.begin(), names.end(), atom.column) - names.begin();
-        const std::string v = "v" + std::to_string(at);
+        const std::string v = "s" + std::to_string(at);
         if (!atom.level.empty()) {
             factors.push_back("CASE WHEN " + v + " = " + c.literal(atom.level) +
                               " THEN '1'::float8 ELSE '0'::float8 END");
@@ -105,6 +114,7 @@ std::string DesignQuery::group_by(const std::string& more) const {
 std::string DesignQuery::level0() const {
     std::vector<std::string> items;
     for (std::size_t i = 0; i < values.size(); ++i) items.push_back(values[i] + " AS v" + std::to_string(i));
+    for (std::size_t i = 0; i < simple.size(); ++i) items.push_back(simple[i] + " AS s" + std::to_string(i));
     for (std::size_t i = 0; i < keys.size(); ++i) items.push_back(keys[i] + " AS k" + std::to_string(i));
     return "SELECT " + join(items, ", ") + " FROM " + from;
 }
@@ -112,6 +122,7 @@ std::string DesignQuery::level0() const {
 std::string DesignQuery::level1(bool complete_only) const {
     std::vector<std::string> items;
     for (std::size_t i = 0; i < values.size(); ++i) items.push_back("v" + std::to_string(i));
+    for (std::size_t i = 0; i < simple.size(); ++i) items.push_back("s" + std::to_string(i));
     for (std::size_t i = 0; i < keys.size(); ++i) items.push_back("k" + std::to_string(i));
     for (std::size_t j = 0; j < design.size(); ++j) items.push_back(design[j] + " AS d" + std::to_string(j + 1));
     items.push_back(y + " AS y");

@@ -22,17 +22,24 @@ std::string float8_literal(double v);
 // NULL and missing tokens give NULL), text for a categorical one.
 std::string value_expression(const PgConnection& c, const PgColumn& column, const CsvOptions& options);
 
+// The same value on a complete row (where value_expression is not NULL):
+// the plain column for numbers and text, so that design expressions over it
+// stay small when the planner flattens the nested SELECTs into each aggregate.
+std::string complete_value_expression(const PgConnection& c, const PgColumn& column, const CsvOptions& options);
+
 // The rows the passes read, as nested SELECTs:
-//   level 0: each model column's value as v0, v1, ... (and the partition key as k0, ...);
+//   level 0: each model column's value as v0, v1, ..., its value on complete
+//            rows as s0, s1, ... (and the partition key as k0, ...);
 //   level 1: the design columns as d1, d2, ... (intercept excluded), y, w.
 struct DesignQuery {
     std::string from;                 // what follows FROM
     std::vector<std::string> values;  // value expressions, one per model column (aliases v<i>)
+    std::vector<std::string> simple;  // complete_value_expression of each (aliases s<i>)
     std::vector<std::string> keys;    // quoted partition key columns; empty: none
     bool fence = true;                // OFFSET 0 after each level (no partition-wise aggregation then)
     std::string complete;             // "v0 IS NOT NULL AND ..."
     std::vector<std::string> design;  // expressions of v<i>, one per non-intercept design column
-    std::string y, w, cluster;        // v<i> of the outcome, weights ("" when none), cluster ("")
+    std::string y, w;                 // s<i> of the outcome and the weights ("" when none)
 
     // "k0, k1, " (or ""), to start a select list.
     std::string key_list() const;
@@ -44,8 +51,8 @@ struct DesignQuery {
     std::string fence_text() const { return fence ? " OFFSET 0" : ""; }
 };
 
-// The expression of one design column over the level-0 aliases; `alias`
-// maps a model column to its v<i>.
+// The expression of one design column over the level-0 aliases s<i> (names[i]
+// is the model column of s<i>); its value on complete rows.
 std::string design_expression(const PgConnection& c, const DesignColumn& column, const std::vector<std::string>& names);
 
 }  // namespace moderato::detail
