@@ -10,9 +10,9 @@
 // is "moderato" with trust authentication on the socket, so a test connects
 // with uri("db") and needs no password (a password test sets one itself).
 //
-// The server programs come from `pg_config --bindir` when it names a folder
-// holding initdb, else /usr/lib/postgresql/15/bin. deps.sh installs them; a
-// missing server is a failure, never a skip.
+// The server programs come from /usr/lib/postgresql/15/bin (or
+// MODERATO_PG_BINDIR). deps.sh installs them; a missing server is a failure,
+// never a skip.
 #pragma once
 
 #include <libpq-fe.h>
@@ -36,22 +36,20 @@
 #include <string>
 #include <vector>
 
-#include "common/shell_command.hpp"
 #include "common/temp_dir.hpp"
 
 extern char** environ;
 
 namespace moderato::test {
 
-// The folder of initdb, pg_ctl and postgres.
+// The folder of initdb, pg_ctl and postgres: MODERATO_PG_BINDIR when set,
+// else PostgreSQL 15's (Debian's postgresql-15, which deps.sh installs).
 inline std::string pg_bindir() {
-    std::string out = run_command("pg_config --bindir 2>/dev/null");
-    while (!out.empty() && (out.back() == '\n' || out.back() == ' ')) out.pop_back();
-    if (!out.empty() && std::filesystem::exists(std::filesystem::path(out) / "initdb")) return out;
-    const std::string fixed = "/usr/lib/postgresql/15/bin";
-    if (std::filesystem::exists(fixed + "/initdb")) return fixed;
-    throw std::runtime_error("PostgreSQL 15's server programs are not installed (no initdb in pg_config --bindir or " +
-                             fixed + "); run ./deps.sh test");
+    const char* env = std::getenv("MODERATO_PG_BINDIR");
+    const std::string dir = env && *env ? env : "/usr/lib/postgresql/15/bin";
+    if (std::filesystem::exists(dir + "/initdb")) return dir;
+    throw std::runtime_error("PostgreSQL's server programs are not installed (no initdb in " + dir +
+                             "); run ./deps.sh test, or set MODERATO_PG_BINDIR");
 }
 
 // Runs argv (argv[0] a path) and waits; as `nobody` when we are root.

@@ -119,23 +119,24 @@ struct Means {
     double min_w = 0;
 };
 
+// One scan, grouped by whether the row is complete (and by the partition
+// key): the condition is then evaluated once a row, not once an aggregate.
 Means means_pass(const Context& x, const Table& schema) {
     const DesignQuery& q = x.q;
-    const std::string ok = " FILTER (WHERE " + q.complete + ")";
-    std::vector<std::string> aggs{"count(*)", "count(*)" + ok, "sum(w)" + ok, "sum(ln(w))" + ok, "min(w)" + ok};
+    std::vector<std::string> aggs{"count(*)", "sum(w)", "sum(ln(w))", "min(w)"};
     for (std::size_t i = 0; i < x.used.size(); ++i) aggs.push_back("count(v" + std::to_string(i) + ")");
-    for (std::size_t j = 0; j < q.design.size(); ++j) aggs.push_back("sum(w * d" + std::to_string(j + 1) + ")" + ok);
-    aggs.push_back("sum(w * y)" + ok);
+    for (std::size_t j = 0; j < q.design.size(); ++j) aggs.push_back("sum(w * d" + std::to_string(j + 1) + ")");
+    aggs.push_back("sum(w * y)");
     std::vector<std::size_t> numeric;
     for (std::size_t i = 0; i < x.used.size(); ++i)
         if (schema.at(x.used[i]).kind == ColumnKind::Numeric) {
             numeric.push_back(i);
-            aggs.push_back("min(v" + std::to_string(i) + ")" + ok);
-            aggs.push_back("max(v" + std::to_string(i) + ")" + ok);
+            aggs.push_back("min(s" + std::to_string(i) + ")");
+            aggs.push_back("max(s" + std::to_string(i) + ")");
         }
-    const PgResult r = x.exec(
-        "SELECT " + q.key_list() + detail::join(aggs, ", ") + " FROM (" + q.level1(false) + ") AS l1" + q.group_by(),
-        "computing the means");
+    const PgResult r = x.exec("SELECT " + q.key_list() + "ok, " + detail::join(aggs, ", ") + " FROM (SELECT *, (" +
+                                  q.complete + ") AS ok FROM (" + q.level1(false) + ") AS l1) AS l2" + q.group_by("ok"),
+                              "computing the means");
     Means m;
     const std::size_t u = x.used.size(), p1 = q.design.size() + 1;
     m.missing_per.assign(u, 0);
@@ -143,28 +144,23 @@ Means means_pass(const Context& x, const Table& schema) {
     m.low.assign(u, INFINITY);
     m.high.assign(u, -INFINITY);
     m.min_w = INFINITY;
-    const int k0 = static_cast<int>(q.keys.size());
+    const int k0 = static_cast<int>(q.keys.size()) + 1;
     for (int g = 0; g < r.rows(); ++g) {
         const auto num = [&](std::size_t i) { return r.number(g, k0 + static_cast<int>(i)); };
         const auto count = static_cast<std::size_t>(num(0));
         m.rows += count;
-        m.complete += static_cast<std::size_t>(num(1));
-        if (num(1) == 0) continue;  // a group without complete rows: its sums are NULL
-        m.sum_w += num(2);
-        m.sum_log_w += num(3);
-        m.min_w = std::min(m.min_w, num(4));
-        for (std::size_t i = 0; i < u; ++i) m.missing_per[i] += count - static_cast<std::size_t>(num(5 + i));
-        for (std::size_t j = 0; j < p1; ++j) m.sums[j] += num(5 + u + j);
+        for (std::size_t i = 0; i < u; ++i) m.missing_per[i] += count - static_cast<std::size_t>(num(4 + i));
+        if (r.text(g, k0 - 1) != "t") continue;  // incomplete rows: counted, not summed
+        m.complete += count;
+        m.sum_w += num(1);
+        m.sum_log_w += num(2);
+        m.min_w = std::min(m.min_w, num(3));
+        for (std::size_t j = 0; j < p1; ++j) m.sums[j] += num(4 + u + j);
         for (std::size_t a = 0; a < numeric.size(); ++a) {
-            m.low[numeric[a]] = std::min(m.low[numeric[a]], num(5 + u + p1 + 2 * a));
-            m.high[numeric[a]] = std::max(m.high[numeric[a]], num(6 + u + p1 + 2 * a));
+            m.low[numeric[a]] = std::min(m.low[numeric[a]], num(4 + u + p1 + 2 * a));
+            m.high[numeric[a]] = std::max(m.high[numeric[a]], num(5 + u + p1 + 2 * a));
         }
     }
-    for (int g = 0; g < r.rows(); ++g)  // groups without complete rows still count their missing cells
-        if (r.number(g, k0 + 1) == 0)
-            for (std::size_t i = 0; i < u; ++i)
-                m.missing_per[i] += static_cast<std::size_t>(r.number(g, k0)) -
-                                    static_cast<std::size_t>(r.number(g, k0 + 5 + static_cast<int>(i)));
     return m;
 }
 

@@ -127,8 +127,8 @@ std::string DesignQuery::level1(bool complete_only) const {
     for (std::size_t j = 0; j < design.size(); ++j) items.push_back(design[j] + " AS d" + std::to_string(j + 1));
     items.push_back(y + " AS y");
     items.push_back((w.empty() ? std::string("'1'::float8") : w) + " AS w");
-    return "SELECT " + join(items, ", ") + " FROM (" + level0() + fence_text() + ") AS l0" +
-           (complete_only ? " WHERE " + complete : std::string()) + fence_text();
+    return "SELECT " + join(items, ", ") + " FROM (" + level0() + ") AS l0" +
+           (complete_only ? " WHERE " + complete : std::string());
 }
 
 }  // namespace moderato::detail

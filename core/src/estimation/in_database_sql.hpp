@@ -36,7 +36,12 @@ struct DesignQuery {
     std::vector<std::string> values;  // value expressions, one per model column (aliases v<i>)
     std::vector<std::string> simple;  // complete_value_expression of each (aliases s<i>)
     std::vector<std::string> keys;    // quoted partition key columns; empty: none
-    bool fence = true;                // OFFSET 0 after each level (no partition-wise aggregation then)
+    // OFFSET 0 after the per-row residual levels of pass 3 (u = A'x used in
+    // k(k+1)/2 sums would otherwise be re-evaluated in each); off for a
+    // partitioned table, whose aggregates must reach the partitions. Levels 0
+    // and 1 are always left to the planner to flatten: they are cheap to
+    // repeat, and flattening keeps parallel aggregation open.
+    bool fence = true;
     std::string complete;             // "v0 IS NOT NULL AND ..."
     std::vector<std::string> design;  // expressions of v<i>, one per non-intercept design column
     std::string y, w;                 // s<i> of the outcome and the weights ("" when none)
