@@ -8,6 +8,7 @@
 #include "moderato/reporting/fit_report.hpp"
 #include "moderato/reporting/json_writer.hpp"
 #include "moderato/support/error.hpp"
+#include "postgres_data.hpp"
 #include "stream_choice.hpp"
 
 namespace moderato::cli {
@@ -16,7 +17,16 @@ namespace {
 
 // The fit of the whole table in memory, or streamed from the file.
 FitResult fit_file(const Arguments& a, ModelSpec& spec) {
-    spec = read_spec(a);  // the specification's errors come before the file is read
+    if (a.has("in-database")) return fit_in_database_option(a, spec);
+    spec = read_spec(a);     // the specification's errors come before the file is read
+    if (postgres_data(a)) {  // a database: read whole (no file to stream)
+        if (a.has("stream")) throw InputError("option --stream is for files; for a database use --in-database");
+        LoadedModel m = load_model(a);
+        spec = m.spec;
+        FitResult fit = fit_model(m.table, m.spec);
+        fit.notes.insert(fit.notes.begin(), m.notes.begin(), m.notes.end());
+        return fit;
+    }
     const StreamChoice choice = choose_streaming(a, spec);
     if (choice.stream) {
         CsvStream stream(a.required("data"), csv_options(a));
@@ -50,6 +60,7 @@ void write_streamed(JsonWriter& w, const FitResult& fit) {
 int run_fit(const std::vector<std::string>& args) {
     auto flags = model_flags();
     flags.insert("stream");
+    flags.insert("in-database");
     auto valued = model_valued();
     valued.insert("memory-budget");
     const Arguments a(args, flags, valued, repeatable_options());

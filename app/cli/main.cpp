@@ -24,7 +24,9 @@ Usage:
 
 fit: estimates a linear, logistic, probit, Poisson or negative binomial model with
 product (interaction) terms.
-  --data FILE              CSV/TSV file (delimiter sniffed)
+  --data FILE              CSV/TSV file (delimiter sniffed), or a PostgreSQL address
+                           (postgresql://... without a password: libpq's ~/.pgpass or PGPASSWORD)
+  --table NAME | --query SQL  the table (or SCHEMA.NAME) or read-only query of a database
   --outcome COL            the column to explain
   --predictors A,B,...     main-effect columns (categorical columns are dummy-coded)
   --interaction A,B[,C]    product term; repeatable; lower-order terms are added
@@ -50,6 +52,9 @@ product (interaction) terms.
                            (hc0-hc4, cluster; one fewer for a large file without categorical
                            predictors), holding a chunk rather than the table; linear models
                            (OLS, WLS) without column transforms; no fitted values kept
+  --in-database            fit: compute a linear model (OLS, WLS; any --se) by aggregate queries in
+                           PostgreSQL, reading only sums (2 queries, 3 for robust SEs, plus one per
+                           categorical predictor); a partitioned table is summed per partition
   --memory-budget MB       fit: stream when an in-memory fit is estimated to need more than MB
                            (default: a quarter of physical memory); the fit's notes say so
 

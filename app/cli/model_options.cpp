@@ -6,9 +6,11 @@
 
 #include "moderato/reading/csv_columns.hpp"
 #include "moderato/reading/derive.hpp"
+#include "moderato/reading/postgres_source.hpp"
 #include "moderato/reporting/output_json.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
+#include "postgres_data.hpp"
 
 namespace moderato::cli {
 
@@ -46,7 +48,9 @@ std::set<std::string> repeatable_options() {
 
 std::set<std::string> import_flags() { return {"no-header", "decimal-comma"}; }
 std::set<std::string> import_valued() {
-    return {"data", "delimiter", "missing", "categorical", "numeric", "text-missing", "threads"};
+    std::set<std::string> s{"data", "delimiter", "missing", "categorical", "numeric", "text-missing", "threads"};
+    s.merge(database_valued());
+    return s;
 }
 std::set<std::string> model_flags() {
     auto s = import_flags();
@@ -102,7 +106,10 @@ CsvOptions csv_options(const Arguments& args) {
     return o;
 }
 
-Table load_table(const Arguments& args) { return read_csv(args.required("data"), csv_options(args)); }
+Table load_table(const Arguments& args) {
+    if (const auto source = postgres_data(args)) return read_postgres(*source, csv_options(args));
+    return read_csv(args.required("data"), csv_options(args));
+}
 
 namespace {
 

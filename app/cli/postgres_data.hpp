@@ -1,0 +1,27 @@
+// `--data postgresql://...` (or postgres://) with `--table NAME` or `--query
+// SQL`: the PostgreSQL source of a command, and `fit --in-database`.
+// The password comes from libpq's password file or its PGPASSWORD variable,
+// never from the command line (a password inside the URI is refused).
+#pragma once
+
+#include <optional>
+
+#include "arguments.hpp"
+#include "moderato/estimation/fit.hpp"
+#include "moderato/reading/data_source.hpp"
+
+namespace moderato::cli {
+
+// The options this adds to every command that takes --data.
+std::set<std::string> database_valued();  // "table", "query"
+
+// The PostgreSQL source of --data, or nothing when --data is not a libpq
+// URI (then --table and --query are refused). Usage errors name the option.
+std::optional<SourceSpec> postgres_data(const Arguments& args);
+
+// `fit --in-database`: the fit computed by aggregate queries in the server.
+// Refuses a source that is not PostgreSQL, the column transforms (--centre,
+// --standardise, --log, --log1p) and --stream, naming the option.
+FitResult fit_in_database_option(const Arguments& args, ModelSpec& spec);
+
+}  // namespace moderato::cli

@@ -1,0 +1,71 @@
+// Reading a PostgreSQL table or query (libpq) into a Table, and the
+// fingerprint a project records of what was read.
+//
+// The source is a SourceSpec of kind PostgreSQL: `location` a libpq URI
+// without a password ("postgresql:///shop?host=/run/pg&user=me"), and either
+// `table` ("name" or "schema.name", taken exactly as written: no case folding;
+// a part in double quotes may hold a dot) or `query` (one SELECT). A password,
+// when the caller has one (a prompt), is passed in and handed to libpq only:
+// it is never stored, logged or put into a message; without one, libpq reads
+// its password file (~/.pgpass or PGPASSFILE) as usual.
+//
+// Everything runs in one REPEATABLE READ, READ ONLY transaction, so a query
+// cannot write and the rows and their fingerprint come from one snapshot.
+// Rows are streamed (COPY (...) TO STDOUT, one row at a time); the progress
+// callback gets rows read and the table's estimated row count (pg_class's
+// reltuples; 0 when unknown, as for a query), and returning false cancels
+// the running COPY on the server (PQcancel) and throws Cancelled.
+//
+// Types (by the result's type OIDs, domains by their base type):
+// - smallint, integer, bigint, real, double precision, numeric: numeric
+//   (NaN is missing; an infinite value is refused naming the column and row);
+// - boolean: numeric 0 (false) / 1 (true);
+// - text, varchar, char (trailing blanks dropped), name and enums: categorical;
+// - date, timestamp, timestamptz: categorical, their ISO 8601 text (a date
+//   as a number needs a choice of origin and unit; make it in a --query,
+//   e.g. "SELECT extract(epoch FROM t) / 86400 AS day, ...");
+// - anything else: refused, naming the column and its type.
+// NULL is missing. CsvOptions apply as read_csv applies them: a value whose
+// text (blanks and tabs trimmed) is a missing token is missing (in a number
+// column, a token that reads as a number is compared as a number, so "-99"
+// also matches a numeric(5,2) value printed "-99.00"); column_kinds
+// force a kind (numbers as categories take their PostgreSQL text; text as
+// numbers must read as numbers in full, as in a CSV file); text_as_missing
+// reads a text column as numbers with its non-numeric cells missing.
+// Categories are coded in order of first appearance; Table::row_lines stays
+// empty, so rows are named "row N" (in the order the server returned them).
+#pragma once
+
+#include <string>
+
+#include "moderato/reading/csv.hpp"
+#include "moderato/reading/data_source.hpp"
+#include "moderato/reading/table.hpp"
+
+namespace moderato {
+
+// "table sales in postgresql:///shop?host=/run/pg" or "query in ...": the
+// source in messages, with any password removed from the address.
+std::string describe_postgres(const SourceSpec& source);
+
+// The address with any password removed (a "user:secret@" part or a
+// "password=" parameter), for messages and for what a project records.
+std::string postgres_location_without_password(const std::string& uri);
+
+// Reads the source. `fingerprint`, when not null, receives
+// postgres_fingerprint's text of the same snapshot. Throws InputError naming
+// the source, and the table or query, column and row where one is at fault;
+// a connection failure gives libpq's message without any password.
+Table read_postgres(const SourceSpec& source, const CsvOptions& options = {}, const CsvProgress& progress = {},
+                    const std::string& password = {}, std::string* fingerprint = nullptr);
+
+// What identifies the rows a source yields, computed in the server in one
+// scan: "pg-md5-sum:<rows>:<checksum>". The checksum is the sum, modulo 2^64,
+// of the first 64 bits (as a signed integer, read big-endian) of the MD5 of
+// each row's text (the row as a record, `row::text`, with the session's
+// float and date output fixed), so it does not depend on the order of the
+// rows, and a changed, added or removed row changes it (unless two changes
+// cancel modulo 2^64, about one chance in 1.8e19). Not a security measure.
+std::string postgres_fingerprint(const SourceSpec& source, const std::string& password = {});
+
+}  // namespace moderato
