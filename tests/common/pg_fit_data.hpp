@@ -86,7 +86,9 @@ inline void expect_same_fit(const FitResult& got, const FitResult& want, double 
     EXPECT_EQ(got.df_inference, want.df_inference);
     EXPECT_EQ(got.n_clusters, want.n_clusters);
     ASSERT_EQ(got.comparison.has_value(), want.comparison.has_value());
-    if (want.comparison) EXPECT_LT(rel(got.comparison->f_statistic, want.comparison->f_statistic), tol);
+    if (want.comparison) {
+        EXPECT_LT(rel(got.comparison->f_statistic, want.comparison->f_statistic), tol);
+    }
 }
 
 }  // namespace moderato::test

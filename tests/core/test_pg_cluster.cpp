@@ -26,7 +26,9 @@ TEST(PgCluster, ListensOnItsSocketOnlyAndStopsWhenDestroyed) {
         struct stat st {};
         ASSERT_EQ(::stat(cluster.data_dir().c_str(), &st), 0);
         EXPECT_NE(st.st_uid, 0u);
-        if (::geteuid() != 0) EXPECT_EQ(st.st_uid, ::geteuid());
+        if (::geteuid() != 0) {
+            EXPECT_EQ(st.st_uid, ::geteuid());
+        }
     }
     EXPECT_FALSE(std::filesystem::exists(socket));
     PGconn* c = PQconnectdb(uri.c_str());
