@@ -62,6 +62,8 @@ public:
     // (empty when the table was not read from a file).
     std::vector<std::size_t> row_lines;
     std::string source;  // file name the table came from, for messages
+    // row_lines hold row numbers of a sheet or a query result, not lines of a text file.
+    bool sheet_rows = false;
     char delimiter = 0;  // the delimiter the text was read with (given or detected); 0: not read from text
 
     std::size_t rows() const { return columns.empty() ? 0 : columns.front().size(); }
@@ -73,6 +75,8 @@ public:
     // Throws InputError naming the column and listing the available ones.
     const Column& at(const std::string& name) const;
 
+    // "line", or "row" where row_lines are a sheet's rows.
+    const char* line_word() const { return sheet_rows ? "row" : "line"; }
     // Human-readable location of a data row: "line 17" (or "row 17").
     std::string row_location(std::size_t row) const;
     // The same with the source named: "line 17 of visits.csv".
