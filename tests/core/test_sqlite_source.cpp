@@ -136,6 +136,7 @@ TEST(SqliteSource, ProgressCountsRowsAndCancels) {
     EXPECT_EQ(read_sqlite(db, "big", "", {}, p).rows(), 10000u);
     EXPECT_EQ(last_total, 10000u);  // the table's count, from the recursive INSERT above
     EXPECT_GT(last_done, 0u);
+    EXPECT_EQ(read_sqlite(db, "big", "", {}, {}, 200).rows(), 200u);  // a preview's first rows
     p.callback = [](std::size_t, std::size_t) { return false; };
     EXPECT_THROW(read_sqlite(db, "big", "", {}, p), Cancelled);
     EXPECT_THROW(read_sqlite(db, "", "SELECT a.v FROM big a, big b ORDER BY a.v * b.v", {}, p), Cancelled);

@@ -101,6 +101,9 @@ TEST(Workbook, OpenpyxlValuesReadBack) {
     EXPECT_EQ(t.row_lines.front(), 2u);  // the header is sheet row 1
     EXPECT_EQ(t.row_location(0), "row 2");
     EXPECT_NE(t.source.find("sheet 'Data'"), std::string::npos);
+    const Table head = read_workbook(kDir + "mixed.xlsx", "", {}, {}, 5);  // a preview's first rows
+    ASSERT_EQ(head.rows(), 5u);
+    EXPECT_EQ(head.at("id").numbers, (std::vector<double>{1, 2, 3, 4, 5}));
 }
 
 TEST(Workbook, SheetsListedAndChosenByName) {

@@ -55,8 +55,8 @@ public:
     void text(std::size_t col, std::string_view s);
     // The text equals one of the missing tokens (after trimming).
     bool is_missing_token(std::string_view s) const;
-    // Rows kept so far (the header included).
-    std::size_t rows() const { return data_rows_ + (have_header_ ? 1 : 0); }
+    // Data rows kept so far (the header not included).
+    std::size_t data_rows() const { return data_rows_; }
     // The table; `row_lines` holds each data row's source row number when
     // `keep_rows`. Throws InputError for an empty source, a header without
     // data, bad names and forced kinds that do not fit.

@@ -87,7 +87,8 @@ std::vector<std::string> list_tables(sqlite3* db, const std::string& path) {
     int rc = 0;
     while ((rc = sqlite3_step(st.get())) == SQLITE_ROW)
         names.emplace_back(reinterpret_cast<const char*>(sqlite3_column_text(st.get(), 0)));
-    if (rc != SQLITE_DONE) fail(path, std::string("its tables cannot be listed (") + sqlite3_errmsg(db) + ")");
+    if (rc != SQLITE_DONE && rc != SQLITE_ROW)
+        fail(path, std::string("its tables cannot be listed (") + sqlite3_errmsg(db) + ")");
     return names;
 }
 
@@ -174,13 +175,14 @@ std::vector<std::string> sqlite_tables(const std::string& path) {
 }
 
 Table read_sqlite(const std::string& path, const std::string& table, const std::string& query,
-                  const CsvOptions& options, const CsvProgress& progress) {
+                  const CsvOptions& options, const CsvProgress& progress, std::size_t max_rows) {
     if (table.empty() == query.empty())
         fail(path, "give exactly one of a table (--table) and a query (--query) to read from the database");
     const Db db = open_database(path);
     const std::string what = table.empty() ? "the query" : "table '" + table + "'";
     const std::string sql = table.empty() ? query : table_sql(db.get(), path, table);
-    Progress prog{&progress, 0, table.empty() ? 0 : count_rows(db.get(), path, sql), false};
+    const bool counted = !table.empty() && max_rows == 0;
+    Progress prog{&progress, 0, counted ? count_rows(db.get(), path, sql) : 0, false};
     const Stmt st = prepare(db.get(), path, sql, what);
     const int ncols = sqlite3_column_count(st.get());
     std::vector<std::string> names;
@@ -201,14 +203,14 @@ Table read_sqlite(const std::string& path, const std::string& table, const std::
     for (int j = 0; j < ncols; ++j) b.text(static_cast<std::size_t>(j), names[static_cast<std::size_t>(j)]);
     sqlite3_progress_handler(db.get(), kProgressSteps, on_progress, &prog);
     int rc = 0;
-    while ((rc = sqlite3_step(st.get())) == SQLITE_ROW) {
+    while ((max_rows == 0 || prog.done < max_rows) && (rc = sqlite3_step(st.get())) == SQLITE_ROW) {
         ++prog.done;
         b.start_row(prog.done);
         for (int j = 0; j < ncols; ++j) take_cell(st.get(), j, b, path, place, prog.done);
         if (prog.done % kRowsPerReport == 0 && on_progress(&prog)) throw Cancelled{};
     }
     if (prog.cancelled || rc == SQLITE_INTERRUPT) throw Cancelled{};
-    if (rc != SQLITE_DONE) fail(path, what + " stopped with an error: " + sqlite3_errmsg(db.get()));
+    if (rc != SQLITE_DONE && rc != SQLITE_ROW) fail(path, what + " stopped with an error: " + sqlite3_errmsg(db.get()));
     if (prog.done == 0) fail(path, what + " returned no rows; there is nothing to read");
     Table t = b.finish(true);
     t.sheet_rows = true;

@@ -108,13 +108,13 @@ std::vector<WorkbookSheet> workbook_sheets(const std::string& path) {
 }
 
 Table read_workbook(const std::string& path, const std::string& sheet, const CsvOptions& options,
-                    const CsvProgress& progress) {
+                    const CsvProgress& progress, std::size_t max_rows) {
     const Archive a(path, path);
     const WorkbookInfo info = read_workbook_info(a);
     const SheetEntry& chosen = choose_sheet(a, info, sheet);
     const std::vector<DateStyle> styles = read_date_styles(a, info.styles_part);
     const std::vector<std::string> shared = read_shared_strings(a, info.shared_strings_part);
-    SheetContext ctx{&a, chosen.name, sheet_label(chosen.name), chosen.part, &shared, &styles, info.date1904};
+    SheetContext ctx{&a, chosen.name, sheet_label(chosen.name), chosen.part, &shared, &styles, info.date1904, max_rows};
     const std::string label = ctx.label;
     cell_detail::CellTableBuilder builder(
         path, "sheet '" + chosen.name + "' of " + path, options,

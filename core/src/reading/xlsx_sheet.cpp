@@ -15,6 +15,8 @@ namespace {
 
 using cell_detail::CellType;
 
+struct EnoughRows {};  // a preview has its rows
+
 // Days since 1970-01-01 of a civil date (H. Hinnant's days_from_civil, from memory).
 long long days_from_civil(long long y, unsigned m, unsigned d) {
     y -= m <= 2;
@@ -53,6 +55,7 @@ public:
             if (row_ == 0) fail_damaged("a row number '" + std::string(r ? r : "") + "'");
             next_col_ = 0;
             b_.start_row(row_);
+            if (ctx_.max_rows && b_.data_rows() >= ctx_.max_rows) throw EnoughRows{};
         } else if (name == "c") {
             start_cell(atts);
         } else if (name == "v" || (name == "t" && in_is_ && phonetic_ == 0)) {
@@ -186,7 +189,10 @@ private:
 void read_sheet_cells(const SheetContext& ctx, cell_detail::CellTableBuilder& builder,
                       const std::function<void(std::size_t, std::size_t)>& progress) {
     SheetHandler h(ctx, builder);
-    ctx.archive->parse(ctx.part, "sheet '" + ctx.sheet + "'", h, progress);
+    try {
+        ctx.archive->parse(ctx.part, "sheet '" + ctx.sheet + "'", h, progress);
+    } catch (const EnoughRows&) {
+    }
 }
 
 }  // namespace moderato::xlsx_detail

@@ -15,6 +15,7 @@
 // total for a query), and a false answer stops a running query too.
 #pragma once
 
+#include <cstddef>
 #include <string>
 #include <vector>
 
@@ -30,8 +31,9 @@ bool is_sqlite_file(const std::string& path);
 std::vector<std::string> sqlite_tables(const std::string& path);
 
 // Exactly one of `table` ("name", or "schema.name" when no table has the
-// whole text as its name) and `query` is non-empty.
+// whole text as its name) and `query` is non-empty. `max_rows` > 0 stops
+// after that many rows (a preview).
 Table read_sqlite(const std::string& path, const std::string& table, const std::string& query,
-                  const CsvOptions& options = {}, const CsvProgress& progress = {});
+                  const CsvOptions& options = {}, const CsvProgress& progress = {}, std::size_t max_rows = 0);
 
 }  // namespace moderato

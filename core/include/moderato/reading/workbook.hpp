@@ -25,6 +25,7 @@
 // archive or XML part; cell problems name the cell ("Sheet1!C7").
 #pragma once
 
+#include <cstddef>
 #include <string>
 #include <vector>
 
@@ -43,8 +44,9 @@ struct WorkbookSheet {
 // The workbook's sheets in their order (only worksheets can be read).
 std::vector<WorkbookSheet> workbook_sheets(const std::string& path);
 
-// Reads one worksheet (`sheet` by name; empty: the first visible worksheet).
+// Reads one worksheet (`sheet` by name; empty: the first visible
+// worksheet); `max_rows` > 0 stops after that many data rows (a preview).
 Table read_workbook(const std::string& path, const std::string& sheet, const CsvOptions& options = {},
-                    const CsvProgress& progress = {});
+                    const CsvProgress& progress = {}, std::size_t max_rows = 0);
 
 }  // namespace moderato
