@@ -45,7 +45,8 @@ std::set<std::string> repeatable_options() {
 
 std::set<std::string> import_flags() { return {"no-header", "decimal-comma"}; }
 std::set<std::string> import_valued() {
-    return {"data", "delimiter", "missing", "categorical", "numeric", "text-missing", "threads"};
+    return {"data",         "delimiter", "missing", "categorical", "numeric",
+            "text-missing", "threads",   "sheet",   "table",       "query"};
 }
 std::set<std::string> model_flags() {
     auto s = import_flags();
@@ -101,7 +102,12 @@ CsvOptions csv_options(const Arguments& args) {
     return o;
 }
 
-Table load_table(const Arguments& args) { return read_csv(args.required("data"), csv_options(args)); }
+SourceSpec source_spec(const Arguments& args) {
+    return parse_source(args.required("data"), args.get("sheet").value_or(""), args.get("table").value_or(""),
+                        args.get("query").value_or(""));
+}
+
+Table load_table(const Arguments& args) { return read_source(source_spec(args), csv_options(args)); }
 
 namespace {
 
