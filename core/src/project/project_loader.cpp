@@ -26,8 +26,9 @@ std::shared_ptr<const Table> load_data_source(const DataSource& source, const st
                                               const CsvProgress& progress, const std::string& moved_to) {
     const std::string file = moved_to.empty() ? resolve_data_path(source, project_path) : moved_to;
     std::error_code ec;
-    if (!std::filesystem::exists(file, ec)) throw MissingDataFile(project_path, source.id, source.path, file);
-    return std::make_shared<const Table>(read_csv(file, source.import, progress));
+    if (source.kind != SourceKind::PostgreSQL && !std::filesystem::exists(file, ec))
+        throw MissingDataFile(project_path, source.id, source.path, file);
+    return std::make_shared<const Table>(read_source(source_spec(source, file), source.import, progress));
 }
 
 std::string changed_data_text(const std::string& file, const std::string& dataset, const std::string& sha_now,
@@ -62,9 +63,13 @@ LoadedProject load_project_data(Project project, const std::string& path, const 
         // The fingerprint is computed while the file is parsed: the parse
         // leaves a core idle in its serial stretches, and both read the same
         // cached pages. (A missing file: the hash fails too and is not read.)
+        // MERGE POINT (#16): a PostgreSQL table has no file to hash; its
+        // fingerprint (rows and checksum) comes from branch src16b.
+        const bool has_file = source.kind != SourceKind::PostgreSQL;
         std::atomic<bool> stop{false};
-        std::future<std::string> hashing =
-            std::async(std::launch::async, [&file, &stop] { return sha256_file(file, stop); });
+        std::future<std::string> hashing = std::async(std::launch::async, [&file, &stop, has_file] {
+            return has_file ? sha256_file(file, stop) : std::string();
+        });
         std::shared_ptr<const Table> table;
         try {
             table = load_data_source(source, path, part, file);
@@ -74,7 +79,7 @@ LoadedProject load_project_data(Project project, const std::string& path, const 
         }
         const std::string hash = hashing.get();
         out.sha256[source.id] = hash;
-        if (!source.sha256.empty() && hash != source.sha256)
+        if (has_file && !source.sha256.empty() && hash != source.sha256)
             out.warnings.push_back("The data changed since the project was saved: " +
                                    changed_data_text(file, source.id, hash, source.sha256) +
                                    ". Every analysis is recomputed from the file as it is now; save the project to "
