@@ -82,8 +82,8 @@ void XMLCALL on_doctype(void* data, const XML_Char*, const XML_Char*, const XML_
 }  // namespace
 
 std::string_view local_name(const char* name) {
-    const char* bar = std::strrchr(name, '|');
-    return bar ? std::string_view(bar + 1) : std::string_view(name);
+    const char* colon = std::strchr(name, ':');
+    return colon ? std::string_view(colon + 1) : std::string_view(name);
 }
 
 const char* attribute(const char** atts, std::string_view local) {
@@ -154,7 +154,7 @@ void Archive::parse(const std::string& part, const std::string& what, XmlHandler
         fail(what + " (" + part + ") is missing from the archive or cannot be unpacked (" + zip_strerror(zip_->z) +
              "); the workbook is damaged");
     std::unique_ptr<zip_file_t, int (*)(zip_file_t*)> file(f, zip_fclose);
-    std::unique_ptr<XML_ParserStruct, void (*)(XML_Parser)> parser(XML_ParserCreateNS(nullptr, '|'), XML_ParserFree);
+    std::unique_ptr<XML_ParserStruct, void (*)(XML_Parser)> parser(XML_ParserCreate(nullptr), XML_ParserFree);
     ParseState st{&handler, parser.get(), nullptr, false};
     XML_SetUserData(parser.get(), &st);
     XML_SetElementHandler(parser.get(), on_start, on_end);

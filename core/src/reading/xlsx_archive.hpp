@@ -14,8 +14,10 @@
 
 namespace moderato::xlsx_detail {
 
-// Element and attribute names without their namespace (expat reports them
-// as "uri|local"; we compare the local part only).
+// Element and attribute names without their prefix ("x:c" is "c"). The
+// parser does no namespace processing (less work a cell on large sheets);
+// the element and attribute names we read do not clash across the
+// namespaces a part uses, so the local part is enough.
 std::string_view local_name(const char* name);
 
 // The value of an attribute (by local name) in expat's attribute list, or nullptr.
