@@ -14,6 +14,7 @@
 #include <QPlainTextEdit>
 #include <QPushButton>
 #include <QRadioButton>
+#include <QTableWidget>
 #include <QTemporaryDir>
 #include <QTest>
 
@@ -64,6 +65,11 @@ TEST(ImportSources, WorkbookOffersItsSheets) {
     EXPECT_EQ(dlg.previewModel()->columnCount(), 6);  // id, x, group, flag, when, stamp
     EXPECT_EQ(dlg.previewModel()->rowCount(), 40);
     EXPECT_TRUE(dlg.message().contains(QStringLiteral("sheet's rows"))) << dlg.message().toStdString();
+    // "group" is text from its first data row on, sheet row 2 (the header is row 1).
+    auto* kinds = child<QTableWidget>(&dlg, "import-column-types");
+    ASSERT_NE(kinds->item(2, 0), nullptr);
+    EXPECT_TRUE(kinds->item(2, 0)->toolTip().endsWith(QStringLiteral(" in row 2")))
+        << kinds->item(2, 0)->toolTip().toStdString();
 
     chooseByKeys(sheets, 1);
     ASSERT_TRUE(test::waitUntil([&] { return dlg.previewTable() && dlg.previewTable()->rows() == 2; }))

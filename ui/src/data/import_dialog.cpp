@@ -71,10 +71,12 @@ QString kindName(ColumnKind k) {
     return k == ColumnKind::Numeric ? ImportDialog::tr("numeric") : ImportDialog::tr("categorical");
 }
 
-// Why "automatic" chose categorical: the first text cell and its line.
-QString kindTip(const Column& c) {
+// Why "automatic" chose categorical: the first text cell and its line (or
+// its row, in a sheet or a query's result).
+QString kindTip(const Table& t, const Column& c) {
     if (c.kind != ColumnKind::Categorical || !c.first_text_line) return {};
-    return ImportDialog::tr("Read as categorical because of “%1” on line %2")
+    return (t.sheet_rows ? ImportDialog::tr("Read as categorical because of “%1” in row %2")
+                         : ImportDialog::tr("Read as categorical because of “%1” on line %2"))
         .arg(QString::fromStdString(c.first_text))
         .arg(c.first_text_line);
 }
@@ -577,7 +579,7 @@ void ImportDialog::rebuildKinds(const Table& base) {
             if (auto* combo = qobject_cast<QComboBox*>(kindsList_->cellWidget(r, 2))) {
                 const Column& c = base.columns[static_cast<std::size_t>(r)];
                 combo->setItemText(0, tr("automatic (%1)").arg(kindName(c.kind)));
-                if (auto* item = kindsList_->item(r, 0)) item->setToolTip(kindTip(c));
+                if (auto* item = kindsList_->item(r, 0)) item->setToolTip(kindTip(base, c));
             }
         return;
     }
@@ -586,7 +588,7 @@ void ImportDialog::rebuildKinds(const Table& base) {
     for (int r = 0; r < static_cast<int>(names.size()); ++r) {
         const Column& c = base.columns[static_cast<std::size_t>(r)];
         auto* item = new QTableWidgetItem(QString::fromStdString(c.name));
-        item->setToolTip(kindTip(c));
+        item->setToolTip(kindTip(base, c));
         kindsList_->setItem(r, 0, item);
         auto* combo = new QComboBox(kindsList_);
         combo->setObjectName(QStringLiteral("import-kind-") + QString::fromStdString(c.name));
