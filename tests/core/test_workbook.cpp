@@ -98,6 +98,9 @@ TEST(Workbook, OpenpyxlValuesReadBack) {
         else EXPECT_EQ(g.levels[static_cast<std::size_t>(g.codes[i])], want["group"][i].get<std::string>());
     }
     EXPECT_TRUE(t.sheet_rows);
+    EXPECT_TRUE(t.at("when").dates);  // written as dates by make_workbooks.py
+    EXPECT_TRUE(t.at("stamp").dates);
+    EXPECT_FALSE(t.at("x").dates);
     EXPECT_EQ(t.row_lines.front(), 2u);  // the header is sheet row 1
     EXPECT_EQ(t.row_location(0), "row 2");
     EXPECT_NE(t.source.find("sheet 'Data'"), std::string::npos);
@@ -239,6 +242,12 @@ TEST(Workbook, CellProblemsNameTheCell) {
     const std::string wide = input_error_of([&] { read_workbook((dir / "wide.xlsx").string(), ""); });
     EXPECT_NE(wide.find("S!C2 holds a value, but its column has no name in the header row (S!C1)"), std::string::npos)
         << wide;
+    // A formula with its saved value reads as the value; one without a value is refused.
+    write_zip(dir / "f.xlsx", workbook_parts(head + "<row r=\"2\"><c r=\"A2\"><f>1+1</f><v>2</v></c></row>"));
+    EXPECT_EQ(read_workbook((dir / "f.xlsx").string(), "").at("x").numbers[0], 2.0);
+    write_zip(dir / "nof.xlsx", workbook_parts(head + "<row r=\"2\"><c r=\"A2\"><f>1+1</f></c></row>"));
+    const std::string formula = input_error_of([&] { read_workbook((dir / "nof.xlsx").string(), ""); });
+    EXPECT_NE(formula.find("S!A2 holds a formula without its computed value"), std::string::npos) << formula;
     write_zip(dir / "sst.xlsx", workbook_parts(head + "<row r=\"2\"><c r=\"A2\" t=\"s\"><v>9</v></c></row>"));
     const std::string sst = input_error_of([&] { read_workbook((dir / "sst.xlsx").string(), ""); });
     EXPECT_NE(sst.find("S!A2 refers to shared string '9'"), std::string::npos) << sst;

@@ -65,6 +65,8 @@ TEST(ImportSources, WorkbookOffersItsSheets) {
     EXPECT_EQ(dlg.previewModel()->columnCount(), 6);  // id, x, group, flag, when, stamp
     EXPECT_EQ(dlg.previewModel()->rowCount(), 40);
     EXPECT_TRUE(dlg.message().contains(QStringLiteral("sheet's rows"))) << dlg.message().toStdString();
+    EXPECT_TRUE(dlg.message().contains(QStringLiteral("dates as days since 1970-01-01: when, stamp")))
+        << dlg.message().toStdString();
     // "group" is text from its first data row on, sheet row 2 (the header is row 1).
     auto* kinds = child<QTableWidget>(&dlg, "import-column-types");
     ASSERT_NE(kinds->item(2, 0), nullptr);

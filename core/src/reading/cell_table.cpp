@@ -263,6 +263,8 @@ void CellTableBuilder::build_column(std::size_t j, Column& out) {
 void CellTableBuilder::build_numeric(std::size_t j, Column& out, bool text_missing) {
     ColBuf& c = cols_[j];
     out.kind = ColumnKind::Numeric;
+    out.dates = std::any_of(c.types.begin(), c.types.end(),
+                            [](CellType t) { return t == CellType::Date || t == CellType::DateTime; });
     for (std::size_t i = 0; i < c.types.size(); ++i) {
         if (c.types[i] != CellType::Text) continue;
         const std::string& text = c.pool[static_cast<std::size_t>(c.text_ids[i])];

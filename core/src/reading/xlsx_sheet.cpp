@@ -58,6 +58,8 @@ public:
             if (ctx_.max_rows && b_.data_rows() >= ctx_.max_rows) throw EnoughRows{};
         } else if (name == "c") {
             start_cell(atts);
+        } else if (name == "f") {
+            formula_ = in_cell_;
         } else if (name == "v" || (name == "t" && in_is_ && phonetic_ == 0)) {
             in_text_ = in_cell_;
         } else if (name == "is") {
@@ -89,6 +91,7 @@ private:
 
     void start_cell(const char** atts) {
         in_cell_ = true;
+        formula_ = false;
         value_.clear();
         const char* r = attribute(atts, "r");
         col_ = r ? column_of(r) : next_col_;
@@ -116,6 +119,11 @@ private:
 
     void end_cell() {
         in_cell_ = false;
+        if (formula_ && value_.empty() && type_ != Type::Inline)
+            fail(
+                "holds a formula without its computed value (the program that saved the workbook did not "
+                "compute it); open the workbook in a spreadsheet program, let it calculate, save it and read it "
+                "again");
         switch (type_) {
             case Type::Number:
                 return number();
@@ -176,7 +184,7 @@ private:
 
     const SheetContext& ctx_;
     cell_detail::CellTableBuilder& b_;
-    bool in_data_ = false, in_cell_ = false, in_text_ = false, in_is_ = false;
+    bool in_data_ = false, in_cell_ = false, in_text_ = false, in_is_ = false, formula_ = false;
     int phonetic_ = 0;
     std::size_t row_ = 0, col_ = 0, next_col_ = 0;
     Type type_ = Type::Number;

@@ -499,6 +499,10 @@ void ImportDialog::showPreview(const std::shared_ptr<const Table>& shown, bool w
                           : tr("Preview of the first %1; Load reads every row"))
                    .arg(rowsText);
     text += QStringLiteral(" · ") + plural(shown->cols(), tr("column"), tr("columns"));
+    QStringList dates;  // numbers that are dates: say what the numbers mean
+    for (const Column& c : shown->columns)
+        if (c.kind == ColumnKind::Numeric && c.dates) dates << QString::fromStdString(c.name);
+    if (!dates.isEmpty()) text += tr(" · dates as days since 1970-01-01: %1").arg(dates.join(QStringLiteral(", ")));
     if (shown->sheet_rows && kind_ == SourceKind::Workbook) text += tr(" · row numbers are the sheet's rows");
     else if (!shown->row_lines.empty() && !shown->sheet_rows) text += tr(" · row numbers are line numbers of the file");
     setMessage(text + QLatin1Char('.'), false);

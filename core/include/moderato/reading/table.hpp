@@ -43,6 +43,9 @@ struct Column {
     std::size_t first_text_line = 0;
     std::string first_text;
     bool kind_forced = false;  // the kind was set by the user, not inferred
+    // A numeric column of dates (a workbook's date cells): days since
+    // 1970-01-01, the time of day as the fraction. Shown so, with a note.
+    bool dates = false;
     // A numeric column whose text cells were read as missing (at the user's
     // request): how many there were and the first kTextExamples of them.
     std::size_t text_as_missing = 0;

@@ -11,9 +11,12 @@
 //   codes with date tokens) is a number: days since 1970-01-01, with the
 //   time of day as the fraction (1900 and 1904 date systems; 1900-02-29,
 //   the 1900 system's day that never was, is refused); a cell shown as a
-//   time of day only keeps its value, the fraction of a day. In a
+//   time of day only keeps its value, the fraction of a day. A numeric
+//   column with date cells has Column::dates set. In a
 //   categorical column these show as ISO 8601 text ("2024-03-01",
 //   "2024-03-01T08:30:00", "08:30:00");
+// - a formula is read by the value the workbook saved with it; a formula
+//   saved without one (by a program that does not calculate) is refused;
 // - an error cell (#N/A, #DIV/0!, ...) is refused, naming the cell, unless
 //   its text is one of the missing tokens (add "#N/A" to read #N/A as missing);
 // - rows without any value are skipped; the first row with one is the
