@@ -6,11 +6,11 @@ set -euo pipefail
 # scripts/check_deps.py (ctest house.deps) fails when the tests use a Python
 # module or a program that no package here (or a required one) provides.
 build_pkgs=(build-essential cmake ninja-build pkg-config libeigen3-dev libboost-math-dev nlohmann-json3-dev
-            libssl-dev libpq-dev qt6-base-dev qt6-svg-dev libqcustomplot-dev fonts-dejavu-core)
+            libssl-dev libpq-dev libzip-dev libexpat1-dev libsqlite3-dev qt6-base-dev qt6-svg-dev libqcustomplot-dev fonts-dejavu-core)
 test_pkgs=(googletest libgtest-dev libgmock-dev libbenchmark-dev python3 python3-statsmodels python3-pandas
            python3-numpy python3-scipy python3-mpmath cmark-gfm xvfb xauth xdotool imagemagick fonts-dejavu-core time
            desktop-file-utils appstream shared-mime-info poppler-utils chromium file clang-format git
-           clang-15 libfuzzer-15-dev postgresql-15)
+           clang-15 libfuzzer-15-dev python3-openpyxl postgresql-15)
 
 want=("${build_pkgs[@]}")
 case "${1:-all}" in

@@ -1,4 +1,4 @@
-// `moderato-cli columns --data FILE`: what the import makes of each column.
+// `moderato-cli columns --data SOURCE`: what the import makes of each column.
 #include <algorithm>
 #include <cmath>
 #include <iostream>
@@ -80,8 +80,8 @@ int run_columns(const std::vector<std::string>& args) {
     w.field("data", a.required("data"));
     w.field("rows", t.rows());
     w.key("columns").begin_array();
-    std::string text =
-        a.required("data") + ": " + std::to_string(t.rows()) + " rows, " + std::to_string(t.cols()) + " columns\n";
+    std::string text = describe_source(source_spec(a)) + ": " + std::to_string(t.rows()) + " rows, " +
+                       std::to_string(t.cols()) + " columns\n";
     for (const auto& c : t.columns) text += write_column(w, t, c);
     w.end_array();
     w.end_object();

@@ -18,15 +18,16 @@ Usage:
   moderato-cli fit --data FILE --outcome COL --predictors A,B [options]
   moderato-cli probe [fit options] --focal A --moderator B [probe options]
   moderato-cli power --predictors K --f2 X (--n N | --power P) [power options]
-  moderato-cli columns --data FILE [import options]
+  moderato-cli columns --data SOURCE [import options]
   moderato-cli render PROJECT --out DIR [--accept-changed-data]
   moderato-cli --help | --version
 
 fit: estimates a linear, logistic, probit, Poisson or negative binomial model with
 product (interaction) terms.
-  --data FILE              CSV/TSV file (delimiter sniffed), or a PostgreSQL address
-                           (postgresql://... without a password: libpq's ~/.pgpass or PGPASSWORD)
-  --table NAME | --query SQL  the table (or SCHEMA.NAME) or read-only query of a database
+  --data SOURCE            a CSV/TSV/TXT file (delimiter sniffed), an .xlsx workbook,
+                           sqlite:PATH (an SQLite database) or a postgresql:// address
+                           without a password (libpq's ~/.pgpass or PGPASSWORD)
+                           (import options below: --sheet, --table, --query)
   --outcome COL            the column to explain
   --predictors A,B,...     main-effect columns (categorical columns are dummy-coded)
   --interaction A,B[,C]    product term; repeatable; lower-order terms are added
@@ -111,6 +112,9 @@ workbench exports. A data file whose SHA-256 differs from the one the project re
 stops the render (exit 2) unless --accept-changed-data is given.
 
 Import options (fit, probe and columns):
+  --sheet NAME             workbooks: the sheet to read (default: the first worksheet)
+  --table NAME             databases: the table or view to read
+  --query SQL              databases: one read-only SELECT to read instead of a table
   --delimiter comma|semicolon|tab|pipe   force the delimiter
   --no-header              the first row holds data; columns are named V1, V2, ...
   --missing TOKENS         extra missing-value tokens (always: empty, NA, NaN, .)

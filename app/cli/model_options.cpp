@@ -6,11 +6,9 @@
 
 #include "moderato/reading/csv_columns.hpp"
 #include "moderato/reading/derive.hpp"
-#include "moderato/reading/postgres_source.hpp"
 #include "moderato/reporting/output_json.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
-#include "postgres_data.hpp"
 
 namespace moderato::cli {
 
@@ -48,9 +46,8 @@ std::set<std::string> repeatable_options() {
 
 std::set<std::string> import_flags() { return {"no-header", "decimal-comma"}; }
 std::set<std::string> import_valued() {
-    std::set<std::string> s{"data", "delimiter", "missing", "categorical", "numeric", "text-missing", "threads"};
-    s.merge(database_valued());
-    return s;
+    return {"data",         "delimiter", "missing", "categorical", "numeric",
+            "text-missing", "threads",   "sheet",   "table",       "query"};
 }
 std::set<std::string> model_flags() {
     auto s = import_flags();
@@ -106,10 +103,12 @@ CsvOptions csv_options(const Arguments& args) {
     return o;
 }
 
-Table load_table(const Arguments& args) {
-    if (const auto source = postgres_data(args)) return read_postgres(*source, csv_options(args));
-    return read_csv(args.required("data"), csv_options(args));
+SourceSpec source_spec(const Arguments& args) {
+    return parse_source(args.required("data"), args.get("sheet").value_or(""), args.get("table").value_or(""),
+                        args.get("query").value_or(""));
 }
+
+Table load_table(const Arguments& args) { return read_source(source_spec(args), csv_options(args)); }
 
 namespace {
 
@@ -269,7 +268,7 @@ std::vector<std::string> named_columns(const Arguments& args, const ModelSpec& s
 
 LoadedModel load_model(const Arguments& args, bool named_only) {
     LoadedModel m;
-    m.table = named_only
+    m.table = named_only && source_spec(args).kind == SourceKind::TextFile
                   ? read_csv_columns(args.required("data"), csv_options(args), named_columns(args, read_spec(args)))
                   : load_table(args);
     apply_transforms(args, m);

@@ -9,6 +9,7 @@
 #include "arguments.hpp"
 #include "moderato/estimation/model.hpp"
 #include "moderato/reading/csv.hpp"
+#include "moderato/reading/data_source.hpp"
 #include "moderato/reading/table.hpp"
 #include "moderato/reporting/json_writer.hpp"
 
@@ -24,7 +25,11 @@ std::set<std::string> repeatable_options();
 // --categorical, --numeric, --text-missing, --threads).
 CsvOptions csv_options(const Arguments& args);
 
-// Reads --data with the import options (--delimiter, --no-header, --missing,
+// Where --data points, with --sheet, --table and --query (data_source.hpp).
+SourceSpec source_spec(const Arguments& args);
+
+// Reads --data (a text file, a workbook's sheet, an SQLite table or query)
+// with the import options (--delimiter, --no-header, --missing,
 // --decimal-comma, --categorical, --numeric, --threads).
 Table load_table(const Arguments& args);
 

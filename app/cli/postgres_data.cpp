@@ -7,25 +7,10 @@
 
 namespace moderato::cli {
 
-std::set<std::string> database_valued() { return {"table", "query"}; }
-
 std::optional<SourceSpec> postgres_data(const Arguments& args) {
-    const std::string data = args.required("data");
-    const auto table = args.get("table"), query = args.get("query");
-    const bool uri = data.rfind("postgresql://", 0) == 0 || data.rfind("postgres://", 0) == 0;
-    if (!uri) {
-        if (table || query)
-            throw InputError(std::string("option --") + (table ? "table" : "query") +
-                             " is for a database given to --data (postgresql://...)");
-        return std::nullopt;
-    }
-    if (postgres_location_without_password(data) != data)
-        throw InputError(
-            "option --data: leave the password out of the address; libpq reads it from ~/.pgpass "
-            "(or PGPASSFILE) or PGPASSWORD");
-    if (table.has_value() == query.has_value())
-        throw InputError("option --data names a database: give --table NAME or --query SQL (one of them)");
-    return SourceSpec{SourceKind::PostgreSQL, data, "", table.value_or(""), query.value_or("")};
+    SourceSpec source = source_spec(args);  // refuses a password in the address, and misfitting options
+    if (source.kind != SourceKind::PostgreSQL) return std::nullopt;
+    return source;
 }
 
 FitResult fit_in_database_option(const Arguments& args, ModelSpec& spec) {

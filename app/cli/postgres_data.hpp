@@ -12,11 +12,8 @@
 
 namespace moderato::cli {
 
-// The options this adds to every command that takes --data.
-std::set<std::string> database_valued();  // "table", "query"
-
-// The PostgreSQL source of --data, or nothing when --data is not a libpq
-// URI (then --table and --query are refused). Usage errors name the option.
+// The PostgreSQL source of --data, or nothing when --data is another kind
+// of source (source_spec: usage errors name the option).
 std::optional<SourceSpec> postgres_data(const Arguments& args);
 
 // `fit --in-database`: the fit computed by aggregate queries in the server.

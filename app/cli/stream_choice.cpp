@@ -7,6 +7,7 @@
 
 #include <unistd.h>
 
+#include "model_options.hpp"
 #include "moderato/estimation/design.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
@@ -82,6 +83,13 @@ StreamChoice choose_streaming(const Arguments& args, const ModelSpec& spec) {
     c.budget_mb = default_memory_budget_mb();
     if (auto b = args.get("memory-budget")) c.budget_mb = parse_double(*b, "memory-budget");
     if (!(c.budget_mb > 0)) throw InputError("option --memory-budget must be a positive number of MB");
+    const SourceSpec source = source_spec(args);
+    if (source.kind != SourceKind::TextFile) {  // only delimited text is read in chunks
+        if (c.forced)
+            throw InputError("--stream: " + describe_source(source) +
+                             " is read whole; streaming reads delimited text files (CSV, TSV) only");
+        return c;
+    }
     // The table (8 bytes a cell) and the fit (about 26 bytes a design cell, DesignLimits).
     const FileShape shape = file_shape(args.required("data"));
     c.need_mb = shape.rows * (8.0 * shape.cols + 26.0 * design_columns(spec)) / kMiB;

@@ -231,9 +231,9 @@ std::string decimal_comma_hint(const std::string& text) {
 }
 
 std::string not_numeric(const Table& table, const std::string& role, const Column& c, const std::string& advice) {
-    return role + " " + quoted(c.name) + " is not numeric: line " + std::to_string(c.first_text_line) +
-           (table.source.empty() ? "" : " of " + table.source) + " holds " + quoted(c.first_text) + "; " + advice +
-           decimal_comma_hint(c.first_text);
+    return role + " " + quoted(c.name) + " is not numeric: " + table.line_word() + " " +
+           std::to_string(c.first_text_line) + (table.source.empty() ? "" : " of " + table.source) + " holds " +
+           quoted(c.first_text) + "; " + advice + decimal_comma_hint(c.first_text);
 }
 
 // A column read as categorical only because a few cells hold text, while

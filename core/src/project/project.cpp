@@ -363,6 +363,32 @@ long long schema_version(const Reader& r, const json& doc, const std::string& na
     return version;
 }
 
+// "source": {"kind": "workbook", "sheet": "..."} / {"kind": "sqlite",
+// "table" or "query": "..."}; absent for a text file.
+json source_place_to_json(const DataSource& d) {
+    json j = {{"kind", to_string(d.kind)}};
+    if (!d.sheet.empty()) j["sheet"] = d.sheet;
+    if (!d.table.empty()) j["table"] = d.table;
+    if (!d.query.empty()) j["query"] = d.query;
+    return j;
+}
+
+void read_source_place(const Reader& r, const json& j, const std::string& where, DataSource& s) {
+    if (j.is_null() || j.empty()) return;
+    const std::string kind = r.text(j, "kind", where, true);
+    if (!source_kind_from_string(kind, s.kind))
+        r.fail(where + ".kind",
+               "unknown source kind \"" + kind + "\" (expected text-file, workbook, sqlite or postgresql)");
+    s.sheet = r.text(j, "sheet", where, false);
+    s.table = r.text(j, "table", where, false);
+    s.query = r.text(j, "query", where, false);
+    const bool database = s.kind == SourceKind::SQLite || s.kind == SourceKind::PostgreSQL;
+    if (!s.sheet.empty() && s.kind != SourceKind::Workbook) r.fail(where + ".sheet", "only a workbook has sheets");
+    if (database && s.table.empty() == s.query.empty())
+        r.fail(where, "a database source needs exactly one of \"table\" and \"query\"");
+    if (!database && (!s.table.empty() || !s.query.empty())) r.fail(where, "only a database has tables and queries");
+}
+
 void read_datasets(const Reader& r, const json& doc, Project& p) {
     const json& datasets = r.array(doc, "datasets", "top level");
     for (std::size_t i = 0; i < datasets.size(); ++i) {
@@ -375,6 +401,7 @@ void read_datasets(const Reader& r, const json& doc, Project& p) {
         s.sha256 = r.text(d, "sha256", where, false);
         s.import = import_from_json(r, r.object(d, "import", where, false), where + ".import");
         s.retyped = kinds_from_json(r, r.object(d, "retyped", where, false), where + ".retyped");
+        read_source_place(r, r.object(d, "source", where, false), where + ".source", s);
         if (p.dataset(s.id)) r.fail(where + ".id", "the id \"" + s.id + "\" is used twice");
         p.datasets.push_back(std::move(s));
     }
@@ -576,7 +603,8 @@ bool DataSource::operator==(const DataSource& o) const {
     return id == o.id && path == o.path && sha256 == o.sha256 && import.delimiter == o.import.delimiter &&
            import.header == o.import.header && import.missing_tokens == o.import.missing_tokens &&
            import.decimal_comma == o.import.decimal_comma && import.column_kinds == o.import.column_kinds &&
-           import.text_as_missing == o.import.text_as_missing && retyped == o.retyped;
+           import.text_as_missing == o.import.text_as_missing && retyped == o.retyped && kind == o.kind &&
+           sheet == o.sheet && table == o.table && query == o.query;
 }
 
 bool Project::operator==(const Project& o) const {
@@ -636,6 +664,7 @@ std::string project_to_json(const Project& p) {
     for (const auto& d : p.datasets) {
         json entry = {{"id", d.id}, {"path", d.path}, {"sha256", d.sha256}, {"import", import_to_json(d.import)}};
         if (!d.retyped.empty()) entry["retyped"] = kinds_to_json(d.retyped);
+        if (d.kind != SourceKind::TextFile) entry["source"] = source_place_to_json(d);
         datasets.push_back(std::move(entry));
     }
     doc["datasets"] = datasets;
@@ -729,9 +758,14 @@ ModelSpec model_spec(const Analysis& a, const std::map<std::string, std::string>
 }
 
 std::string resolve_data_path(const DataSource& source, const std::string& project_path) {
+    if (source.kind == SourceKind::PostgreSQL) return source.path;  // an address, not a file
     const fs::path p(source.path);
     if (p.is_absolute()) return p.lexically_normal().string();
     return (fs::path(project_path).parent_path() / p).lexically_normal().string();
+}
+
+SourceSpec source_spec(const DataSource& source, const std::string& file) {
+    return {source.kind, file, source.sheet, source.table, source.query};
 }
 
 std::string relative_data_path(const std::string& data_path, const std::string& project_path) {

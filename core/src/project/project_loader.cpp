@@ -6,6 +6,7 @@
 #include <future>
 
 #include "moderato/project/analysis_run.hpp"
+#include "moderato/reading/postgres_source.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/sha256.hpp"
 
@@ -26,8 +27,9 @@ std::shared_ptr<const Table> load_data_source(const DataSource& source, const st
                                               const CsvProgress& progress, const std::string& moved_to) {
     const std::string file = moved_to.empty() ? resolve_data_path(source, project_path) : moved_to;
     std::error_code ec;
-    if (!std::filesystem::exists(file, ec)) throw MissingDataFile(project_path, source.id, source.path, file);
-    return std::make_shared<const Table>(read_csv(file, source.import, progress));
+    if (source.kind != SourceKind::PostgreSQL && !std::filesystem::exists(file, ec))
+        throw MissingDataFile(project_path, source.id, source.path, file);
+    return std::make_shared<const Table>(read_source(source_spec(source, file), source.import, progress));
 }
 
 std::string changed_data_text(const std::string& file, const std::string& dataset, const std::string& sha_now,
@@ -62,23 +64,36 @@ LoadedProject load_project_data(Project project, const std::string& path, const 
         // The fingerprint is computed while the file is parsed: the parse
         // leaves a core idle in its serial stretches, and both read the same
         // cached pages. (A missing file: the hash fails too and is not read.)
+        // A PostgreSQL source has no file to hash: its fingerprint (rows and
+        // an order-free checksum) comes from the same snapshot as its rows.
+        const bool has_file = source.kind != SourceKind::PostgreSQL;
+        std::string fingerprint;
         std::atomic<bool> stop{false};
-        std::future<std::string> hashing =
-            std::async(std::launch::async, [&file, &stop] { return sha256_file(file, stop); });
+        std::future<std::string> hashing = std::async(std::launch::async, [&file, &stop, has_file] {
+            return has_file ? sha256_file(file, stop) : std::string();
+        });
         std::shared_ptr<const Table> table;
         try {
-            table = load_data_source(source, path, part, file);
+            table = has_file ? load_data_source(source, path, part, file)
+                             : std::make_shared<const Table>(
+                                   read_postgres(source_spec(source, file), source.import, part, {}, &fingerprint));
         } catch (...) {
             stop = true;  // cancelled or refused: the hash is not needed
             throw;
         }
-        const std::string hash = hashing.get();
+        const std::string hash = has_file ? hashing.get() : fingerprint;
         out.sha256[source.id] = hash;
         if (!source.sha256.empty() && hash != source.sha256)
-            out.warnings.push_back("The data changed since the project was saved: " +
-                                   changed_data_text(file, source.id, hash, source.sha256) +
-                                   ". Every analysis is recomputed from the file as it is now; save the project to "
-                                   "accept the change.");
+            out.warnings.push_back(
+                has_file
+                    ? "The data changed since the project was saved: " +
+                          changed_data_text(file, source.id, hash, source.sha256) +
+                          ". Every analysis is recomputed from the file as it is now; save the project to "
+                          "accept the change."
+                    : "The data changed since the project was saved: " + describe_source(source_spec(source, file)) +
+                          " (dataset '" + source.id + "'): fingerprint " + hash + " now, " + source.sha256 +
+                          " when the project was saved. Every analysis is recomputed from the rows as they "
+                          "are now; save the project to accept the change.");
         out.base[source.id] = table;
         try {
             out.tables[source.id] = dataset_table(table, source, out.project.recipes_for(source.id));

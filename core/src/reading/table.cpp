@@ -46,7 +46,7 @@ const Column& Table::at(const std::string& name) const {
 }
 
 std::string Table::row_location(std::size_t row) const {
-    if (row < row_lines.size()) return "line " + std::to_string(row_lines[row]);
+    if (row < row_lines.size()) return line_word() + (" " + std::to_string(row_lines[row]));
     return "row " + std::to_string(row + 1);
 }
 

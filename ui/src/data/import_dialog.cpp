@@ -26,9 +26,12 @@
 #include "common/background_job.hpp"
 #include "common/number_text.hpp"
 #include "data/csv_head.hpp"
+#include "data/source_choice.hpp"
 #include "data/table_model.hpp"
 #include "data/text_cell_list.hpp"
 #include "moderato/reading/retype.hpp"
+#include "moderato/reading/sqlite_source.hpp"
+#include "moderato/reading/workbook.hpp"
 #include "moderato/support/error.hpp"
 #include "style/estuary.hpp"
 #include "style/palette_text.hpp"
@@ -68,10 +71,12 @@ QString kindName(ColumnKind k) {
     return k == ColumnKind::Numeric ? ImportDialog::tr("numeric") : ImportDialog::tr("categorical");
 }
 
-// Why "automatic" chose categorical: the first text cell and its line.
-QString kindTip(const Column& c) {
+// Why "automatic" chose categorical: the first text cell and its line (or
+// its row, in a sheet or a query's result).
+QString kindTip(const Table& t, const Column& c) {
     if (c.kind != ColumnKind::Categorical || !c.first_text_line) return {};
-    return ImportDialog::tr("Read as categorical because of “%1” on line %2")
+    return (t.sheet_rows ? ImportDialog::tr("Read as categorical because of “%1” in row %2")
+                         : ImportDialog::tr("Read as categorical because of “%1” on line %2"))
         .arg(QString::fromStdString(c.first_text))
         .arg(c.first_text_line);
 }
@@ -96,7 +101,8 @@ QString cellCount(std::size_t n) {
 
 }  // namespace
 
-ImportDialog::ImportDialog(const QString& path, QWidget* parent) : QDialog(parent), path_(path) {
+ImportDialog::ImportDialog(const QString& path, QWidget* parent)
+    : QDialog(parent), path_(path), kind_(sourceKindOfFile(path)) {
     setObjectName(QStringLiteral("import-dialog"));
     setWindowTitle(tr("Import %1").arg(QFileInfo(path).fileName()));
     buildUi();
@@ -107,6 +113,10 @@ void ImportDialog::buildUi() {
     auto* layout = new QVBoxLayout(this);
     layout->addWidget(createFileLabel());
     auto* top = new QHBoxLayout;
+    if (kind_ != SourceKind::TextFile) {
+        sourceChoice_ = new SourceChoice(path_, kind_, this);
+        top->addWidget(sourceChoice_, 3);
+    }
     top->addWidget(createReadingOptions(), 3);
     top->addWidget(createMissingValues(), 2);
     layout->addLayout(top);
@@ -163,6 +173,12 @@ QWidget* ImportDialog::createReadingOptions() {
     decimalRow->addWidget(decimal_, 1);
     decimalRow->addWidget(decimalNote_);
     form->addRow(tr("Decimal mark"), decimalRow);
+    if (kind_ != SourceKind::TextFile) {  // workbooks and databases hold cells, not delimited text
+        form->setRowVisible(delimRow, false);
+        form->setRowVisible(decimalRow, false);
+    }
+    reading->setVisible(kind_ != SourceKind::SQLite);  // a database names its columns
+    reading_ = reading;
     return reading;
 }
 
@@ -281,6 +297,12 @@ void ImportDialog::connectSignals() {
         delete missing_->currentItem();
         schedulePreview();
     });
+    if (sourceChoice_) connect(sourceChoice_, &SourceChoice::changed, this, &ImportDialog::schedulePreview);
+}
+
+SourceSpec ImportDialog::source() const {
+    if (sourceChoice_) return sourceChoice_->spec();
+    return {SourceKind::TextFile, path_.toStdString(), {}, {}, {}};
 }
 
 void ImportDialog::schedulePreview() { previewTimer_->start(); }
@@ -356,6 +378,7 @@ void ImportDialog::refreshPreview() {
         return;
     }
     base.threads = 1;
+    if (kind_ != SourceKind::TextFile) return refreshSourcePreview(base);
     if (!decimalChosen_) base.decimal_comma = false;  // guessed from the file below
     const CsvHead head = readCsvHead(path_.toStdString(), kPreviewRecords, base.delimiter);
     if (!head.error.empty()) {
@@ -416,6 +439,42 @@ std::shared_ptr<const Table> ImportDialog::readPreview(const CsvHead& head, cons
     return std::make_shared<const Table>(read_csv_text(head.text, name, withKinds));
 }
 
+void ImportDialog::refreshSourcePreview(const CsvOptions& base) {
+    QString why = sourceChoice_->error();
+    if (why.isEmpty() && sourceChoice_->incomplete())
+        why = kind_ == SourceKind::Workbook ? tr("The workbook has no worksheet to read.")
+                                            : tr("Choose a table, or write a query.");
+    if (!why.isEmpty()) {
+        previewModel_->setTable(nullptr);
+        setMessage(why, true);
+        loadButton_->setEnabled(false);
+        return;
+    }
+    try {
+        const std::shared_ptr<const Table> shown = readSourcePreview(base);
+        showPreview(shown, shown->rows() < kPreviewRecords - 1);
+    } catch (const InputError& e) {
+        previewModel_->setTable(nullptr);
+        setMessage(QString::fromStdString(e.what()), true);
+        loadButton_->setEnabled(false);
+    }
+}
+
+std::shared_ptr<const Table> ImportDialog::readSourcePreview(const CsvOptions& base) {
+    const SourceSpec s = source();
+    const auto read = [&](const CsvOptions& o) {
+        return std::make_shared<const Table>(
+            s.kind == SourceKind::Workbook ? read_workbook(s.location, s.sheet, o, {}, kPreviewRecords - 1)
+                                           : read_sqlite(s.location, s.table, s.query, o, {}, kPreviewRecords - 1));
+    };
+    auto plain = read(base);
+    rebuildKinds(*plain);
+    plain_ = plain;
+    const CsvOptions withKinds = currentOptions();
+    if (withKinds.column_kinds.empty() && withKinds.text_as_missing.empty()) return plain;
+    return read(withKinds);
+}
+
 void ImportDialog::showPreview(const std::shared_ptr<const Table>& shown, bool wholeFile) {
     previewModel_->setTable(shown);
     preview_->resizeColumnsToContents();
@@ -427,12 +486,25 @@ void ImportDialog::showPreview(const std::shared_ptr<const Table>& shown, bool w
     const auto plural = [](std::size_t n, const QString& one, const QString& many) {
         return countText(static_cast<long long>(n)) + QLatin1Char(' ') + (n == 1 ? one : many);
     };
-    if (wholeFile) text = tr("The whole file: %1").arg(plural(rows, tr("data row"), tr("data rows")));
+    const bool sheet = kind_ == SourceKind::Workbook, text_file = kind_ == SourceKind::TextFile;
+    const QString rowsText = plural(rows, tr("data row"), tr("data rows"));
+    if (wholeFile)
+        text = (text_file ? tr("The whole file: %1")
+                : sheet   ? tr("The whole sheet: %1")
+                          : tr("Every row: %1"))
+                   .arg(rowsText);
     else
-        text =
-            tr("Preview of the first %1; Load reads the whole file").arg(plural(rows, tr("data row"), tr("data rows")));
+        text = (text_file ? tr("Preview of the first %1; Load reads the whole file")
+                : sheet   ? tr("Preview of the first %1; Load reads the whole sheet")
+                          : tr("Preview of the first %1; Load reads every row"))
+                   .arg(rowsText);
     text += QStringLiteral(" · ") + plural(shown->cols(), tr("column"), tr("columns"));
-    if (!shown->row_lines.empty()) text += tr(" · row numbers are line numbers of the file");
+    QStringList dates;  // numbers that are dates: say what the numbers mean
+    for (const Column& c : shown->columns)
+        if (c.kind == ColumnKind::Numeric && c.dates) dates << QString::fromStdString(c.name);
+    if (!dates.isEmpty()) text += tr(" · dates as days since 1970-01-01: %1").arg(dates.join(QStringLiteral(", ")));
+    if (shown->sheet_rows && kind_ == SourceKind::Workbook) text += tr(" · row numbers are the sheet's rows");
+    else if (!shown->row_lines.empty() && !shown->sheet_rows) text += tr(" · row numbers are line numbers of the file");
     setMessage(text + QLatin1Char('.'), false);
     delimiter_->setItemText(
         0, shown->delimiter ? tr("Detect (found: %1)").arg(delimiterText(shown->delimiter)) : tr("Detect"));
@@ -511,7 +583,7 @@ void ImportDialog::rebuildKinds(const Table& base) {
             if (auto* combo = qobject_cast<QComboBox*>(kindsList_->cellWidget(r, 2))) {
                 const Column& c = base.columns[static_cast<std::size_t>(r)];
                 combo->setItemText(0, tr("automatic (%1)").arg(kindName(c.kind)));
-                if (auto* item = kindsList_->item(r, 0)) item->setToolTip(kindTip(c));
+                if (auto* item = kindsList_->item(r, 0)) item->setToolTip(kindTip(base, c));
             }
         return;
     }
@@ -520,7 +592,7 @@ void ImportDialog::rebuildKinds(const Table& base) {
     for (int r = 0; r < static_cast<int>(names.size()); ++r) {
         const Column& c = base.columns[static_cast<std::size_t>(r)];
         auto* item = new QTableWidgetItem(QString::fromStdString(c.name));
-        item->setToolTip(kindTip(c));
+        item->setToolTip(kindTip(base, c));
         kindsList_->setItem(r, 0, item);
         auto* combo = new QComboBox(kindsList_);
         combo->setObjectName(QStringLiteral("import-kind-") + QString::fromStdString(c.name));
@@ -553,8 +625,10 @@ void ImportDialog::startLoad() {
         setMessage(why, true);
         return;
     }
+    if (sourceChoice_ && sourceChoice_->incomplete()) return;
     loadingOptions_ = currentOptions();
-    const std::string file = path_.toStdString();
+    loadingSource_ = source();
+    const SourceSpec file = loadingSource_;
     const CsvOptions o = loadingOptions_;
     auto result = std::make_shared<LoadResult>();
     job_ = new BackgroundJob(this);
@@ -564,7 +638,7 @@ void ImportDialog::startLoad() {
     setMessage(tr("Reading %1…").arg(QFileInfo(path_).fileName()), false);
     job_->start([result, file, o](const BackgroundJob::Progress& progress) {
         try {
-            result->table = std::make_shared<const Table>(read_csv(file, o, CsvProgress{progress}));
+            result->table = std::make_shared<const Table>(read_source(file, o, CsvProgress{progress}));
         } catch (const Cancelled&) {
             result->cancelled = true;
         } catch (const InputError& e) {
@@ -582,6 +656,7 @@ void ImportDialog::setLoading(bool on) {
     for (QWidget* w : std::initializer_list<QWidget*>{delimiter_, otherDelimiter_, header_, decimal_, missing_,
                                                       addMissing_, removeMissing_, kindsList_, textNotes_, loadButton_})
         w->setEnabled(!on);
+    if (sourceChoice_) sourceChoice_->setEnabled(!on);
     if (!on) otherDelimiter_->setEnabled(delimiter_->currentData().toInt() == Other);
     progress_->setValue(0);
     progress_->setVisible(on);

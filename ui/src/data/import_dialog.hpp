@@ -1,5 +1,8 @@
-// Importing a delimited text file: options with a live preview, then the
-// full load in a worker thread with progress and Cancel.
+// Importing a delimited text file, a workbook's sheet or an SQLite table or
+// query: options with a live preview, then the full load in a worker thread
+// with progress and Cancel. A workbook offers its sheets, a database its
+// tables and a query box (SourceChoice); the delimiter and decimal mark are
+// for text files only, the header row for text files and workbooks.
 //
 // The preview reads only the file's first records (core read_csv_text on
 // them) and is read again after every change of an option; a parse error is
@@ -15,11 +18,13 @@
 #include <string>
 
 #include "moderato/reading/csv.hpp"
+#include "moderato/reading/data_source.hpp"
 #include "moderato/reading/table.hpp"
 
 class QCheckBox;
 class QComboBox;
 class QDialogButtonBox;
+class QGroupBox;
 class QLabel;
 class QLineEdit;
 class QListWidget;
@@ -33,6 +38,7 @@ class QVBoxLayout;
 namespace moderato::ui {
 
 class BackgroundJob;
+class SourceChoice;
 class TableModel;
 struct CsvHead;
 
@@ -46,6 +52,10 @@ public:
     explicit ImportDialog(const QString& path, QWidget* parent = nullptr);
 
     QString path() const { return path_; }
+    // Where the table is: the file's kind with the sheet, table or query chosen.
+    SourceSpec source() const;
+    // The sheet/table/query choice (nullptr for a text file).
+    SourceChoice* sourceChoice() const { return sourceChoice_; }
     // The options the table was read with (after Load), else the current ones.
     CsvOptions options() const { return table_ ? options_ : currentOptions(); }
     // The whole table, read when the dialog was accepted.
@@ -89,6 +99,10 @@ private:
     // The preview table of the file's first records, read with `base` (and
     // the decimal mark guessed, the column types applied). Throws InputError.
     std::shared_ptr<const Table> readPreview(const CsvHead& head, const CsvOptions& base);
+    // The preview of a workbook's sheet or a database's table or query (its
+    // first rows). Throws InputError.
+    std::shared_ptr<const Table> readSourcePreview(const CsvOptions& base);
+    void refreshSourcePreview(const CsvOptions& base);
     void showPreview(const std::shared_ptr<const Table>& shown, bool wholeFile);
     void schedulePreview();
     void setMessage(const QString& text, bool error);
@@ -108,6 +122,10 @@ private:
     bool baseOptions(CsvOptions& out, QString& why) const;
 
     QString path_;
+    SourceKind kind_ = SourceKind::TextFile;
+    SourceChoice* sourceChoice_ = nullptr;
+    QGroupBox* reading_ = nullptr;
+    SourceSpec loadingSource_;
     CsvOptions options_;
     std::shared_ptr<const Table> table_;
 

@@ -118,12 +118,17 @@ void ProjectDocument::rebuildTable(const std::string& id) {
 }
 
 std::string ProjectDocument::addDataset(const QString& dataPath, const CsvOptions& import,
-                                        std::shared_ptr<const Table> table, const std::string& sha256) {
+                                        std::shared_ptr<const Table> table, const std::string& sha256,
+                                        const SourceSpec& place) {
     Project after = project_;
     DataSource s;
     s.id = after.unique_id(stem_id(dataPath));
     s.path = QFileInfo(dataPath).absoluteFilePath().toStdString();
     s.import = import;
+    s.kind = place.kind;
+    s.sheet = place.sheet;
+    s.table = place.table;
+    s.query = place.query;
     after.datasets.push_back(s);
     // The id may have belonged to a dataset whose addition was undone: forget
     // everything about that one.

@@ -46,8 +46,10 @@ public:
     // Adds a dataset read from `dataPath` (undoable); returns its id. Also adds
     // a first analysis of it with guessed roles (one undo step for both).
     // `sha256`: of the bytes the table was read from (empty: computed at save).
+    // `place`: where in the file the table is (a workbook's sheet, an SQLite
+    // table or query; its location is not used: `dataPath` is the file).
     std::string addDataset(const QString& dataPath, const CsvOptions& import, std::shared_ptr<const Table> table,
-                           const std::string& sha256 = {});
+                           const std::string& sha256 = {}, const SourceSpec& place = {});
 
     // Edits (each one undo step). `mergeKey` non-empty: consecutive edits with
     // the same key merge into one step (typing, dragging).

@@ -73,7 +73,7 @@ QVariant FlaggedRowsModel::headerData(int section, Qt::Orientation orientation, 
     if (role != Qt::DisplayRole) return {};
     switch (section) {
         case Line:
-            return table_ && !table_->row_lines.empty() ? tr("line") : tr("row");
+            return table_ && !table_->row_lines.empty() && !table_->sheet_rows ? tr("line") : tr("row");
         case Fitted:
             return d_ && generalized(d_->family) ? QString::fromStdString(d_->fitted_name) : tr("fitted value");
         case Residual:

@@ -24,7 +24,8 @@ QString askForMovedDataFile(QWidget* parent, const QString& dataset, const QStri
     QString start = QFileInfo(file).absolutePath();
     while (!QFileInfo::exists(start) && start != QDir::rootPath()) start = QFileInfo(start).absolutePath();
     return QFileDialog::getOpenFileName(parent, QObject::tr("Where is %1?").arg(QFileInfo(file).fileName()), start,
-                                        QObject::tr("Delimited text (*.csv *.tsv *.txt);;All files (*)"));
+                                        QObject::tr("Data (*.csv *.tsv *.txt *.xlsx *.sqlite *.sqlite3 *.db);;All "
+                                                    "files (*)"));
 }
 
 }  // namespace moderato::ui

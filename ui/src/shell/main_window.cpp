@@ -30,6 +30,7 @@
 #include "common/table_clipboard.hpp"
 #include "data/dataset_page.hpp"
 #include "data/import_dialog.hpp"
+#include "data/source_choice.hpp"
 #include "export/figure_export_dialog.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
@@ -212,8 +213,9 @@ void MainWindow::buildMenus() {
         if (!confirmDiscard()) return;
         const QString path = QFileDialog::getOpenFileName(
             this, tr("Open project or data"), QString(),
-            tr("Projects and data (*.moderato *.csv *.tsv *.txt);;Moderato projects (*.moderato);;"
-               "Delimited text (*.csv *.tsv *.txt);;All files (*)"));
+            tr("Projects and data (*.moderato *.csv *.tsv *.txt *.xlsx *.sqlite *.sqlite3 *.db);;Moderato projects "
+               "(*.moderato);;Delimited text (*.csv *.tsv *.txt);;Workbooks (*.xlsx);;SQLite databases (*.sqlite "
+               "*.sqlite3 *.db);;All files (*)"));
         if (!path.isEmpty()) openPath(path);
     });
     recentMenu_ = file->addMenu(tr("Open &Recent"));
@@ -221,8 +223,10 @@ void MainWindow::buildMenus() {
     newAnalysisAction_ = file->addAction(tr("New &Analysis"), QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_N), this,
                                          [this] { newAnalysis(); });
     file->addAction(tr("&Import Data…"), QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_I), this, [this] {
-        const QString path = QFileDialog::getOpenFileName(this, tr("Import data"), QString(),
-                                                          tr("Delimited text (*.csv *.tsv *.txt);;All files (*)"));
+        const QString path = QFileDialog::getOpenFileName(
+            this, tr("Import data"), QString(),
+            tr("Data (*.csv *.tsv *.txt *.xlsx *.sqlite *.sqlite3 *.db);;Delimited text (*.csv *.tsv *.txt);;"
+               "Workbooks (*.xlsx);;SQLite databases (*.sqlite *.sqlite3 *.db);;All files (*)"));
         if (!path.isEmpty()) openPath(path);
     });
     file->addSeparator();
@@ -323,7 +327,7 @@ void MainWindow::openPath(const QString& path) {
     dialog->setAttribute(Qt::WA_DeleteOnClose);
     connect(dialog, &QDialog::accepted, this, [this, dialog, path] {
         if (!dialog->table()) return;
-        const std::string id = doc_->addDataset(path, dialog->options(), dialog->table());
+        const std::string id = doc_->addDataset(path, dialog->options(), dialog->table(), {}, dialog->source());
         showAddedDataset(path, id);
     });
     dialog->open();
@@ -364,7 +368,10 @@ void MainWindow::importData(const QString& path, const CsvOptions& options) {
         path, tr("Reading %1…").arg(QFileInfo(path).fileName()),
         [outcome, file, options](const BackgroundJob::Progress& progress) {
             loadInto(*outcome, [&] {
-                outcome->table = std::make_shared<const Table>(read_csv(file, options, CsvProgress{progress}));
+                // Without the dialog: a text file, or a workbook's first worksheet (a database
+                // needs its table chosen, so read_source refuses it with a message).
+                const SourceSpec source{sourceKindOfFile(QString::fromStdString(file)), file, {}, {}, {}};
+                outcome->table = std::make_shared<const Table>(read_source(source, options, CsvProgress{progress}));
                 outcome->sha256 = sha256_file(file);
             });
         },
@@ -439,7 +446,8 @@ MainWindow::LoadResult MainWindow::addImported(const QString& path, const CsvOpt
         report(tr("Cannot read data"), outcome.error.isEmpty() ? tr("The file could not be read.") : outcome.error);
         return Failed;
     }
-    const std::string id = doc_->addDataset(path, options, outcome.table, outcome.sha256);
+    const SourceSpec place{sourceKindOfFile(path), {}, {}, {}, {}};
+    const std::string id = doc_->addDataset(path, options, outcome.table, outcome.sha256, place);
     showAddedDataset(path, id);
     return Loaded;
 }

@@ -16,6 +16,7 @@
 #include "moderato/probing/multiplicity.hpp"
 #include "moderato/probing/scale.hpp"
 #include "moderato/reading/csv.hpp"
+#include "moderato/reading/data_source.hpp"
 
 namespace moderato {
 
@@ -56,7 +57,12 @@ struct DataSource {
     std::string id;      // stable key, e.g. "spend"
     std::string path;    // relative to the project file ('/' separators), or absolute
     std::string sha256;  // lower-case hex of the file when the project was saved; empty: unknown
-    CsvOptions import;   // delimiter, header, missing tokens, decimal comma, column kinds
+    // Where in the file the table is (saved as "source" only when not a text
+    // file, so projects of text files read and write as before): a workbook's
+    // sheet, an SQLite table or query. Never a password.
+    SourceKind kind = SourceKind::TextFile;
+    std::string sheet, table, query;
+    CsvOptions import;  // delimiter, header, missing tokens, decimal comma, column kinds
     // Kinds changed after import (reading/retype.hpp), applied to the table
     // as read, before the derived columns. Saved only when not empty.
     std::map<std::string, ColumnKind> retyped;
@@ -253,6 +259,10 @@ ModelSpec model_spec(const Analysis& analysis, const std::map<std::string, std::
 
 // The data file of a source resolved against the project file's folder.
 std::string resolve_data_path(const DataSource& source, const std::string& project_path);
+
+// The source to read: its kind, sheet, table or query, with the file at
+// `file` (the resolved path, or where a moved file was found).
+SourceSpec source_spec(const DataSource& source, const std::string& file);
 
 // `path` relative to the project file's folder when it lies inside it or
 // next to it (generic '/' separators), else absolute.

@@ -21,6 +21,11 @@ enum class SourceKind {
     PostgreSQL,  // "postgresql://..." or "postgres://..." (a libpq URI)
 };
 
+// The kind's word in project files: "text-file", "workbook", "sqlite",
+// "postgresql"; and back (false for any other word).
+const char* to_string(SourceKind kind);
+bool source_kind_from_string(const std::string& word, SourceKind& kind);
+
 struct SourceSpec {
     SourceKind kind = SourceKind::TextFile;
     // A file path (TextFile, Workbook, SQLite: the path after "sqlite:") or a
@@ -41,8 +46,9 @@ struct SourceSpec {
 SourceSpec parse_source(const std::string& data, const std::string& sheet, const std::string& table,
                         const std::string& query);
 
-// How a source is named in messages and on screen: the file name, or
-// "table sales in shop.db", "query in postgresql:///shop?host=/run/pg".
+// How a source is named in messages and on screen: the file name,
+// "sheet 'Sales' of book.xlsx", "table 'sales' in shop.db",
+// "query in postgresql:///shop?host=/run/pg".
 std::string describe_source(const SourceSpec& source);
 
 // Reads the whole source into memory. CsvOptions' missing tokens and column

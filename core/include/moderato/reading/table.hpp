@@ -43,6 +43,9 @@ struct Column {
     std::size_t first_text_line = 0;
     std::string first_text;
     bool kind_forced = false;  // the kind was set by the user, not inferred
+    // A numeric column of dates (a workbook's date cells): days since
+    // 1970-01-01, the time of day as the fraction. Shown so, with a note.
+    bool dates = false;
     // A numeric column whose text cells were read as missing (at the user's
     // request): how many there were and the first kTextExamples of them.
     std::size_t text_as_missing = 0;
@@ -62,6 +65,8 @@ public:
     // (empty when the table was not read from a file).
     std::vector<std::size_t> row_lines;
     std::string source;  // file name the table came from, for messages
+    // row_lines hold row numbers of a sheet or a query result, not lines of a text file.
+    bool sheet_rows = false;
     char delimiter = 0;  // the delimiter the text was read with (given or detected); 0: not read from text
 
     std::size_t rows() const { return columns.empty() ? 0 : columns.front().size(); }
@@ -73,6 +78,8 @@ public:
     // Throws InputError naming the column and listing the available ones.
     const Column& at(const std::string& name) const;
 
+    // "line", or "row" where row_lines are a sheet's rows.
+    const char* line_word() const { return sheet_rows ? "row" : "line"; }
     // Human-readable location of a data row: "line 17" (or "row 17").
     std::string row_location(std::size_t row) const;
     // The same with the source named: "line 17 of visits.csv".
