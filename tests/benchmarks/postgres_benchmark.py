@@ -20,7 +20,6 @@ read-and-fit / in-database for time and peak RSS; whether the two agree
 a failing program or disagreeing numbers are errors.
 """
 import argparse
-import json
 import os
 import pwd
 import shutil
@@ -30,6 +29,8 @@ import sys
 import tempfile
 import time
 from pathlib import Path
+
+from process_measure import run
 
 FOCAL = ["x1", "x2", "x3"]
 CONTROLS = ["c1", "c2", "c3", "c4", "c5"]
@@ -88,19 +89,6 @@ class Cluster:
     def stop(self):
         subprocess.run(as_server_user([str(PG_BIN / "pg_ctl"), "-D", str(self.data), "-m", "fast", "-w", "stop"]),
                        stdout=subprocess.DEVNULL)
-
-
-def run(argv, out_dir, label):
-    out_path = Path(out_dir) / (label + ".json")
-    with open(out_path, "w") as out:
-        start = time.perf_counter()
-        proc = subprocess.Popen(argv, stdout=out, stderr=subprocess.PIPE)
-        _, status, usage = os.wait4(proc.pid, 0)
-        wall = time.perf_counter() - start
-        err = proc.stderr.read().decode()
-    if os.waitstatus_to_exitcode(status) != 0:
-        sys.exit("{} failed: {}".format(" ".join(argv), err))
-    return wall, usage.ru_utime + usage.ru_stime, usage.ru_maxrss * 1024, json.loads(out_path.read_text())
 
 
 def agree(a, b):

@@ -14,30 +14,17 @@ program or disagreeing numbers are errors. --skip-memory runs only the
 streamed fit (for tables whose in-memory fit would not fit the machine).
 """
 import argparse
-import json
 import os
 import statistics
 import subprocess
 import sys
 import tempfile
-import time
 from pathlib import Path
+
+from process_measure import run
 
 FOCAL = ["x1", "x2", "x3"]
 CONTROLS = ["c1", "c2", "c3", "c4", "c5"]
-
-
-def run(argv, out_dir, label):
-    out_path = Path(out_dir) / (label + ".json")
-    with open(out_path, "w") as out:
-        start = time.perf_counter()
-        proc = subprocess.Popen(argv, stdout=out, stderr=subprocess.PIPE)
-        _, status, usage = os.wait4(proc.pid, 0)
-        wall = time.perf_counter() - start
-        err = proc.stderr.read().decode()
-    if os.waitstatus_to_exitcode(status) != 0:
-        sys.exit("{} failed: {}".format(" ".join(argv), err))
-    return wall, usage.ru_utime + usage.ru_stime, usage.ru_maxrss * 1024, json.loads(out_path.read_text())
 
 
 def agree(a, b):
