@@ -90,7 +90,8 @@ TEST_F(PostgresCli, RefusalsAreUsageErrors) {
     expect_refusal(run_cli(model(uri, {"--table", "sales", "--in-database", "--family", "logistic"})),
                    "fits in the database are linear");
     expect_refusal(run_cli(model(csv_, {"--in-database"})), "--in-database needs a PostgreSQL source");
-    expect_refusal(run_cli(model(csv_, {"--table", "sales"})), "--table and --query read from sqlite:PATH or a postgresql:// address");
+    expect_refusal(run_cli(model(csv_, {"--table", "sales"})),
+                   "--table and --query read from sqlite:PATH or a postgresql:// address");
     expect_refusal(run_cli(model(uri)), "add --table NAME (a table or view) or --query SQL");
     expect_refusal(run_cli(model(uri, {"--table", "sales", "--in-database", "--centre", "x"})),
                    "--centre changes columns");
