@@ -101,29 +101,6 @@ void check_text_file(const std::string& path) {
 
 }  // namespace
 
-const char* to_string(SourceKind kind) {
-    switch (kind) {
-        case SourceKind::TextFile:
-            return "text-file";
-        case SourceKind::Workbook:
-            return "workbook";
-        case SourceKind::SQLite:
-            return "sqlite";
-        case SourceKind::PostgreSQL:
-            return "postgresql";
-    }
-    return "text-file";
-}
-
-bool source_kind_from_string(const std::string& word, SourceKind& kind) {
-    for (const SourceKind k : {SourceKind::TextFile, SourceKind::Workbook, SourceKind::SQLite, SourceKind::PostgreSQL})
-        if (word == to_string(k)) {
-            kind = k;
-            return true;
-        }
-    return false;
-}
-
 SourceSpec parse_source(const std::string& data, const std::string& sheet, const std::string& table,
                         const std::string& query) {
     if (data.empty())
