@@ -8,7 +8,9 @@
 
 #include "commands.hpp"
 #include "moderato/reading/csv.hpp"
+#include "moderato/reading/postgres_source.hpp"
 #include "moderato/support/error.hpp"
+#include "password_prompt.hpp"
 
 namespace {
 
@@ -26,7 +28,8 @@ fit: estimates a linear, logistic, probit, Poisson or negative binomial model wi
 product (interaction) terms.
   --data SOURCE            a CSV/TSV/TXT file (delimiter sniffed), an .xlsx workbook,
                            sqlite:PATH (an SQLite database) or a postgresql:// address
-                           without a password (libpq's ~/.pgpass or PGPASSWORD)
+                           without a password (libpq's ~/.pgpass or PGPASSWORD, else
+                           asked for at the terminal)
                            (import options below: --sheet, --table, --query)
   --outcome COL            the column to explain
   --predictors A,B,...     main-effect columns (categorical columns are dummy-coded)
@@ -127,6 +130,36 @@ Import options (fit, probe and columns):
 Exit codes: 0 success; 2 bad input or usage (the message names the problem); 1 internal error.
 )";
 
+// Runs one command (its arguments after the command's name).
+int dispatch(const std::string& command, const std::vector<std::string>& rest) {
+    for (const auto& a : rest)
+        if (a == "--help" || a == "-h") {
+            std::cout << kHelp;
+            return 0;
+        }
+    if (command == "fit") return moderato::cli::run_fit(rest);
+    if (command == "columns") return moderato::cli::run_columns(rest);
+    if (command == "describe") {
+        std::cerr << "moderato-cli: the command 'describe' is now called 'columns' (moderato-cli columns --data "
+                     "FILE); see --help\n";
+        return 2;
+    }
+    if (command == "probe") return moderato::cli::run_probe(rest);
+    if (command == "power") return moderato::cli::run_power(rest);
+    if (command == "render") {
+#ifdef MODERATO_HAVE_RENDER
+        return moderato::cli::run_render(rest);
+#else
+        std::cerr << "moderato-cli: render needs the workbench's drawing code; this build was made without it "
+                     "(configure with -DMODERATO_BUILD_GUI=ON)\n";
+        return 2;
+#endif
+    }
+    std::cerr << "moderato-cli: unknown command '" << command
+              << "'; commands are fit, probe, power, columns and render (see --help)\n";
+    return 2;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -147,31 +180,9 @@ int main(int argc, char** argv) {
         }
         const std::string command = args[0];
         const std::vector<std::string> rest(args.begin() + 1, args.end());
-        for (const auto& a : rest)
-            if (a == "--help" || a == "-h") {
-                std::cout << kHelp;
-                return 0;
-            }
-        if (command == "fit") return moderato::cli::run_fit(rest);
-        if (command == "columns") return moderato::cli::run_columns(rest);
-        if (command == "describe") {
-            std::cerr << "moderato-cli: the command 'describe' is now called 'columns' (moderato-cli columns --data "
-                         "FILE); see --help\n";
-            return 2;
-        }
-        if (command == "probe") return moderato::cli::run_probe(rest);
-        if (command == "power") return moderato::cli::run_power(rest);
-        if (command == "render") {
-#ifdef MODERATO_HAVE_RENDER
-            return moderato::cli::run_render(rest);
-#else
-            std::cerr << "moderato-cli: render needs the workbench's drawing code; this build was made without it "
-                         "(configure with -DMODERATO_BUILD_GUI=ON)\n";
-            return 2;
-#endif
-        }
-        std::cerr << "moderato-cli: unknown command '" << command
-                  << "'; commands are fit, probe, power, columns and render (see --help)\n";
+        return moderato::cli::with_typed_passwords([&] { return dispatch(command, rest); });
+    } catch (const moderato::PasswordNeeded& e) {
+        std::cerr << "moderato-cli: " << e.what() << " (there is no terminal here to ask at)\n";
         return 2;
     } catch (const moderato::InputError& e) {
         std::cerr << "moderato-cli: " << e.what() << "\n";

@@ -6,9 +6,11 @@
 
 #include "moderato/reading/csv_columns.hpp"
 #include "moderato/reading/derive.hpp"
+#include "moderato/reading/postgres_source.hpp"
 #include "moderato/reporting/output_json.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/report_text.hpp"
+#include "password_prompt.hpp"
 
 namespace moderato::cli {
 
@@ -108,7 +110,12 @@ SourceSpec source_spec(const Arguments& args) {
                         args.get("query").value_or(""));
 }
 
-Table load_table(const Arguments& args) { return read_source(source_spec(args), csv_options(args)); }
+Table load_table(const Arguments& args) {
+    const SourceSpec source = source_spec(args);
+    if (source.kind == SourceKind::PostgreSQL)
+        return read_postgres(source, csv_options(args), {}, typed_password(source.location));
+    return read_source(source, csv_options(args));
+}
 
 namespace {
 

@@ -4,6 +4,7 @@
 #include "moderato/estimation/in_database_fit.hpp"
 #include "moderato/reading/postgres_source.hpp"
 #include "moderato/support/error.hpp"
+#include "password_prompt.hpp"
 
 namespace moderato::cli {
 
@@ -26,7 +27,7 @@ FitResult fit_in_database_option(const Arguments& args, ModelSpec& spec) {
                              "--query instead, or drop --in-database");
     if (args.has("stream")) throw InputError("options --stream and --in-database do not go together; choose one");
     spec = read_spec(args);
-    return fit_in_database(*source, spec, csv_options(args));
+    return fit_in_database(*source, spec, csv_options(args), typed_password(source->location));
 }
 
 }  // namespace moderato::cli

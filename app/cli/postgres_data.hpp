@@ -1,6 +1,7 @@
 // `--data postgresql://...` (or postgres://) with `--table NAME` or `--query
 // SQL`: the PostgreSQL source of a command, and `fit --in-database`.
 // The password comes from libpq's password file or its PGPASSWORD variable,
+// or is typed at the terminal when the server asks (password_prompt.hpp);
 // never from the command line (a password inside the URI is refused).
 #pragma once
 

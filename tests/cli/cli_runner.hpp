@@ -40,6 +40,7 @@ struct RunOptions {
     std::string cwd;                             // empty: the test's own working directory
     std::chrono::milliseconds timeout{120'000};  // generous: sanitizer builds are slow
     std::vector<std::string> environment;        // "NAME=value" set for the child (over the inherited ones)
+    bool detached = false;                       // a session of its own: no controlling terminal (setsid)
 };
 
 struct RunResult {
@@ -116,6 +117,7 @@ inline RunResult run_process(const std::string& program, const std::vector<std::
         if (in < 0 || out < 0 || err < 0) ::_exit(126);
         if (::dup2(in, 0) < 0 || ::dup2(out, 1) < 0 || ::dup2(err, 2) < 0) ::_exit(126);
         if (cwd && ::chdir(cwd) != 0) ::_exit(126);
+        if (options.detached && ::setsid() < 0) ::_exit(126);
         ::execve(program.c_str(), argv.data(), envp.data());
         ::_exit(127);
     }

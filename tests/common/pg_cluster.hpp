@@ -229,6 +229,25 @@ inline PgCluster& shared_cluster() {
     return cluster;
 }
 
+// A login role on the shared cluster that must give `password` on the socket
+// (scram-sha-256; every other role stays on trust). Idempotent. libpq's
+// password file and PGPASSWORD are set aside for this process and the
+// programs it starts, so the password comes only from where a test gives it.
+inline void require_password(const std::string& role, const std::string& password) {
+    ::unsetenv("PGPASSWORD");
+    ::setenv("PGPASSFILE", "/nonexistent/moderato-test-pgpass", 1);
+    PgCluster& c = shared_cluster();
+    if (c.exec("SELECT count(*) FROM pg_roles WHERE rolname = '" + role + "'") == "0")
+        c.exec("CREATE ROLE " + role + " LOGIN PASSWORD '" + password + "'");
+    const std::filesystem::path hba = c.data_dir() / "pg_hba.conf";
+    std::ifstream in(hba);
+    const std::string old((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+    const std::string line = "local all " + role + " scram-sha-256\n";
+    if (old.find(line) != std::string::npos) return;
+    std::ofstream(hba, std::ios::trunc) << line << old;
+    c.reload();
+}
+
 // A fresh database on the shared cluster, named for the test.
 inline std::string fresh_database(const std::string& name) {
     shared_cluster().exec("DROP DATABASE IF EXISTS " + name);

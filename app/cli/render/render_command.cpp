@@ -7,6 +7,7 @@
 #include <iostream>
 
 #include "../commands.hpp"
+#include "../password_prompt.hpp"
 #include "moderato/support/error.hpp"
 #include "render/project_renderer.hpp"
 #include "shell/app_style.hpp"
@@ -56,6 +57,7 @@ int run_render(const std::vector<std::string>& args) {
     request.projectPath = QString::fromStdString(project);
     request.outDir = QString::fromStdString(out);
     request.acceptChangedData = accept;
+    request.passwords = typed_passwords();
     const moderato::ui::RenderReport report = moderato::ui::renderProject(request);
     for (const QString& w : report.warnings) std::cerr << "moderato-cli: warning: " << w.toStdString() << "\n";
     for (const QString& f : report.files)

@@ -38,12 +38,13 @@ std::string changed_data_text(const std::string& file, const std::string& datase
            " when the project was saved";
 }
 
-LoadedProject load_project(const std::string& path, const CsvProgress& progress, const DataLocations& moved) {
-    return load_project_data(read_project_file(path), path, progress, moved);
+LoadedProject load_project(const std::string& path, const CsvProgress& progress, const DataLocations& moved,
+                           const DatabasePasswords& passwords) {
+    return load_project_data(read_project_file(path), path, progress, moved, passwords);
 }
 
 LoadedProject load_project_data(Project project, const std::string& path, const CsvProgress& progress,
-                                const DataLocations& moved) {
+                                const DataLocations& moved, const DatabasePasswords& passwords) {
     LoadedProject out;
     out.path = path;
     out.project = std::move(project);
@@ -73,10 +74,12 @@ LoadedProject load_project_data(Project project, const std::string& path, const 
             return has_file ? sha256_file(file, stop) : std::string();
         });
         std::shared_ptr<const Table> table;
+        const auto given = passwords.find(file);
+        const std::string password = given != passwords.end() ? given->second : std::string();
         try {
             table = has_file ? load_data_source(source, path, part, file)
-                             : std::make_shared<const Table>(
-                                   read_postgres(source_spec(source, file), source.import, part, {}, &fingerprint));
+                             : std::make_shared<const Table>(read_postgres(source_spec(source, file), source.import,
+                                                                           part, password, &fingerprint));
         } catch (...) {
             stop = true;  // cancelled or refused: the hash is not needed
             throw;

@@ -53,6 +53,7 @@ std::string postgres_location_without_password(const std::string& uri) { return 
 std::string describe_postgres(const SourceSpec& source) {
     const std::string where = strip_password(source.location);
     if (!source.query.empty()) return "query in " + where;
+    if (source.table.empty()) return where;  // the server itself (listing its tables)
     return "table " + source.table + " in " + where;
 }
 
@@ -88,7 +89,7 @@ double PgResult::number(int row, int col) const {
 
 PgConnection::PgConnection(const SourceSpec& source, const std::string& password)
     : source_(source), name_(describe_postgres(source)), secret_(password) {
-    if (source.table.empty() == source.query.empty())
+    if (!source.table.empty() && !source.query.empty())
         throw InputError(name_ + ": give exactly one of a table and a query");
     const std::string uri = source.location;
     std::vector<const char*> keys{"dbname", "fallback_application_name", "connect_timeout"};
@@ -103,8 +104,13 @@ PgConnection::PgConnection(const SourceSpec& source, const std::string& password
     if (!c_) throw InputError(name_ + ": cannot connect (out of memory)");
     if (PQstatus(c_) != CONNECTION_OK) {
         const std::string why = last_error();
+        const bool asks = PQconnectionNeedsPassword(c_) != 0;
         PQfinish(c_);
         c_ = nullptr;
+        if (asks)
+            throw PasswordNeeded(name_ + ": the server asks for a password; give it when asked, or put it in " +
+                                     "the password file (~/.pgpass, or the file PGPASSFILE names)",
+                                 strip_password(source.location));
         throw InputError(name_ + ": cannot connect: " + why);
     }
     exec(
@@ -150,6 +156,7 @@ std::string PgConnection::literal(const std::string& text) const {
 }
 
 std::string PgConnection::from_clause() const {
+    if (source_.table.empty() && source_.query.empty()) throw InputError(name_ + ": give a table or a query to read");
     if (!source_.query.empty()) return "(" + trimmed_query(source_.query) + ") AS moderato_query";
     std::string out;
     for (const auto& part : table_name_parts(source_.table)) out += (out.empty() ? "" : ".") + identifier(part);

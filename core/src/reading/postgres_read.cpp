@@ -171,10 +171,12 @@ std::size_t estimated_rows(const detail::PgConnection& c) {
     throw Cancelled();
 }
 
-void stream_rows(const detail::PgConnection& c, std::vector<ColumnBuilder>& builders, const CsvProgress& progress) {
-    const std::string select =
+void stream_rows(const detail::PgConnection& c, std::vector<ColumnBuilder>& builders, const CsvProgress& progress,
+                 std::size_t max_rows) {
+    std::string select =
         c.source().query.empty() ? "SELECT * FROM " + c.from_clause() : detail::trimmed_query(c.source().query);
-    const std::size_t total = progress.callback ? estimated_rows(c) : 0;
+    if (max_rows) select = "SELECT * FROM (" + select + ") AS moderato_first LIMIT " + std::to_string(max_rows);
+    const std::size_t total = progress.callback && !max_rows ? estimated_rows(c) : 0;
     {
         const detail::PgResult started(PQexec(c.get(), ("COPY (" + select + ") TO STDOUT").c_str()));
         if (PQresultStatus(started.get()) != PGRES_COPY_OUT)
@@ -220,7 +222,7 @@ std::string fingerprint_in(const PgConnection& c);  // postgres_fingerprint.cpp
 }
 
 Table read_postgres(const SourceSpec& source, const CsvOptions& options, const CsvProgress& progress,
-                    const std::string& password, std::string* fingerprint) {
+                    const std::string& password, std::string* fingerprint, std::size_t max_rows) {
     detail::PgConnection c(source, password);
     c.begin_read_only();
     const std::vector<PgColumn> columns = c.describe_columns();
@@ -228,7 +230,7 @@ Table read_postgres(const SourceSpec& source, const CsvOptions& options, const C
     std::vector<ColumnBuilder> builders;
     builders.reserve(columns.size());
     for (const auto& col : columns) builders.emplace_back(col, options, c.name());
-    stream_rows(c, builders, progress);
+    stream_rows(c, builders, progress, max_rows);
     Table t;
     t.source = c.name();
     for (auto& b : builders) t.columns.push_back(b.take());

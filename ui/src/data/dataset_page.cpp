@@ -270,11 +270,10 @@ void DatasetPage::updateHeader() {
         error_->hide();
         return;
     }
-    const QString path = doc_->dataPath(id);
-    QString text = QStringLiteral("<b>%1</b>").arg(QFileInfo(path).fileName().toHtmlEscaped());
+    QString text = QStringLiteral("<b>%1</b>").arg(doc_->dataName(id).toHtmlEscaped());
     if (t) text += tr(" &nbsp;·&nbsp; %1 rows × %2 columns").arg(count(t->rows()), count(t->cols()));
     text += QStringLiteral(" &nbsp;·&nbsp; <span style='color:%1'>%2</span>")
-                .arg(cssColour(mutedText(palette())), QFileInfo(path).absolutePath().toHtmlEscaped());
+                .arg(cssColour(mutedText(palette())), doc_->dataPlace(id).toHtmlEscaped());
     title_->setText(text);
     QString err = doc_->tableError(id);
     if (!t && err.isEmpty()) err = tr("The data of this dataset are not loaded.");

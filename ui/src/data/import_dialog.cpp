@@ -29,6 +29,7 @@
 #include "data/source_choice.hpp"
 #include "data/table_model.hpp"
 #include "data/text_cell_list.hpp"
+#include "moderato/reading/postgres_source.hpp"
 #include "moderato/reading/retype.hpp"
 #include "moderato/reading/sqlite_source.hpp"
 #include "moderato/reading/workbook.hpp"
@@ -109,11 +110,33 @@ ImportDialog::ImportDialog(const QString& path, QWidget* parent)
     refreshPreview();
 }
 
+ImportDialog::ImportDialog(const std::string& location, const std::string& password,
+                           const std::vector<std::string>& tables, QWidget* parent)
+    : QDialog(parent),
+      path_(QString::fromStdString(location)),
+      kind_(SourceKind::PostgreSQL),
+      password_(password),
+      serverTables_(tables) {
+    setObjectName(QStringLiteral("import-dialog"));
+    setWindowTitle(tr("Import from PostgreSQL"));
+    buildUi();
+    refreshPreview();
+}
+
+ImportDialog::~ImportDialog() { password_.assign(password_.size(), '\0'); }
+
+QString ImportDialog::sourceName() const {
+    return kind_ == SourceKind::PostgreSQL ? path_ : QFileInfo(path_).fileName();
+}
+
 void ImportDialog::buildUi() {
     auto* layout = new QVBoxLayout(this);
     layout->addWidget(createFileLabel());
     auto* top = new QHBoxLayout;
-    if (kind_ != SourceKind::TextFile) {
+    if (kind_ == SourceKind::PostgreSQL) {
+        sourceChoice_ = new SourceChoice(path_, serverTables_, this);
+        top->addWidget(sourceChoice_, 3);
+    } else if (kind_ != SourceKind::TextFile) {
         sourceChoice_ = new SourceChoice(path_, kind_, this);
         top->addWidget(sourceChoice_, 3);
     }
@@ -131,9 +154,12 @@ QWidget* ImportDialog::createFileLabel() {
     auto* file = new QLabel(this);
     file->setObjectName(QStringLiteral("import-file"));
     file->setTextFormat(Qt::RichText);
-    file->setText(tr("<b>%1</b> &nbsp;·&nbsp; %2 &nbsp;·&nbsp; %3")
-                      .arg(info.fileName().toHtmlEscaped(), info.absolutePath().toHtmlEscaped(),
-                           QLocale().formattedDataSize(info.size())));
+    if (kind_ == SourceKind::PostgreSQL)
+        file->setText(tr("<b>PostgreSQL</b> &nbsp;·&nbsp; %1").arg(path_.toHtmlEscaped()));
+    else
+        file->setText(tr("<b>%1</b> &nbsp;·&nbsp; %2 &nbsp;·&nbsp; %3")
+                          .arg(info.fileName().toHtmlEscaped(), info.absolutePath().toHtmlEscaped(),
+                               QLocale().formattedDataSize(info.size())));
     file->setTextInteractionFlags(Qt::TextSelectableByMouse);
     return file;
 }
@@ -177,7 +203,8 @@ QWidget* ImportDialog::createReadingOptions() {
         form->setRowVisible(delimRow, false);
         form->setRowVisible(decimalRow, false);
     }
-    reading->setVisible(kind_ != SourceKind::SQLite);  // a database names its columns
+    reading->setVisible(kind_ == SourceKind::TextFile ||
+                        kind_ == SourceKind::Workbook);  // a database names its columns
     reading_ = reading;
     return reading;
 }
@@ -463,9 +490,12 @@ void ImportDialog::refreshSourcePreview(const CsvOptions& base) {
 std::shared_ptr<const Table> ImportDialog::readSourcePreview(const CsvOptions& base) {
     const SourceSpec s = source();
     const auto read = [&](const CsvOptions& o) {
-        return std::make_shared<const Table>(
-            s.kind == SourceKind::Workbook ? read_workbook(s.location, s.sheet, o, {}, kPreviewRecords - 1)
-                                           : read_sqlite(s.location, s.table, s.query, o, {}, kPreviewRecords - 1));
+        constexpr std::size_t rows = kPreviewRecords - 1;
+        if (s.kind == SourceKind::PostgreSQL)
+            return std::make_shared<const Table>(read_postgres(s, o, {}, password_, nullptr, rows));
+        return std::make_shared<const Table>(s.kind == SourceKind::Workbook
+                                                 ? read_workbook(s.location, s.sheet, o, {}, rows)
+                                                 : read_sqlite(s.location, s.table, s.query, o, {}, rows));
     };
     auto plain = read(base);
     rebuildKinds(*plain);
@@ -635,10 +665,13 @@ void ImportDialog::startLoad() {
     connect(job_, &BackgroundJob::progressChanged, progress_, &QProgressBar::setValue);
     connect(job_, &BackgroundJob::finished, this, [this, result](bool cancelled) { loadFinished(*result, cancelled); });
     setLoading(true);
-    setMessage(tr("Reading %1…").arg(QFileInfo(path_).fileName()), false);
-    job_->start([result, file, o](const BackgroundJob::Progress& progress) {
+    setMessage(tr("Reading %1…").arg(sourceName()), false);
+    job_->start([result, file, o, password = password_](const BackgroundJob::Progress& progress) {
         try {
-            result->table = std::make_shared<const Table>(read_source(file, o, CsvProgress{progress}));
+            if (file.kind == SourceKind::PostgreSQL)
+                result->table = std::make_shared<const Table>(
+                    read_postgres(file, o, CsvProgress{progress}, password, &result->fingerprint));
+            else result->table = std::make_shared<const Table>(read_source(file, o, CsvProgress{progress}));
         } catch (const Cancelled&) {
             result->cancelled = true;
         } catch (const InputError& e) {
@@ -676,6 +709,7 @@ void ImportDialog::loadFinished(const LoadResult& r, bool cancelled) {
         return;
     }
     table_ = r.table;
+    fingerprint_ = r.fingerprint;
     options_ = loadingOptions_;
     options_.threads = 0;
     accept();

@@ -16,6 +16,7 @@
 #include <memory>
 #include <set>
 #include <string>
+#include <vector>
 
 #include "moderato/reading/csv.hpp"
 #include "moderato/reading/data_source.hpp"
@@ -50,6 +51,11 @@ public:
 
     // A load still running when the dialog goes is stopped by its job.
     explicit ImportDialog(const QString& path, QWidget* parent = nullptr);
+    // A PostgreSQL server connected to (PostgresDialog): its address, the
+    // password given for this session (empty: the password file), and its tables.
+    ImportDialog(const std::string& location, const std::string& password, const std::vector<std::string>& tables,
+                 QWidget* parent = nullptr);
+    ~ImportDialog() override;
 
     QString path() const { return path_; }
     // Where the table is: the file's kind with the sheet, table or query chosen.
@@ -60,6 +66,8 @@ public:
     CsvOptions options() const { return table_ ? options_ : currentOptions(); }
     // The whole table, read when the dialog was accepted.
     std::shared_ptr<const Table> table() const { return table_; }
+    // What identifies the rows read from a PostgreSQL source (empty for files).
+    const std::string& fingerprint() const { return fingerprint_; }
 
     // The options as the widgets set them now.
     CsvOptions currentOptions() const;
@@ -85,11 +93,14 @@ public Q_SLOTS:
 private:
     struct LoadResult {
         std::shared_ptr<const Table> table;
+        std::string fingerprint;
         QString error;
         bool cancelled = false;
     };
 
     void buildUi();
+    // The file's name, or the server's address, in messages.
+    QString sourceName() const;
     QWidget* createFileLabel();
     QWidget* createReadingOptions();
     QWidget* createMissingValues();
@@ -121,8 +132,11 @@ private:
     // `why`) when the widgets do not give a usable delimiter.
     bool baseOptions(CsvOptions& out, QString& why) const;
 
-    QString path_;
+    QString path_;  // the file, or a PostgreSQL address
     SourceKind kind_ = SourceKind::TextFile;
+    std::string password_;  // PostgreSQL, this session only (wiped when the dialog goes)
+    std::vector<std::string> serverTables_;
+    std::string fingerprint_;
     SourceChoice* sourceChoice_ = nullptr;
     QGroupBox* reading_ = nullptr;
     SourceSpec loadingSource_;

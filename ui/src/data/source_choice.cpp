@@ -45,7 +45,24 @@ void SourceChoice::createWorkbook() {
     connect(sheets_, &QComboBox::currentIndexChanged, this, &SourceChoice::changed);
 }
 
+SourceChoice::SourceChoice(const QString& location, const std::vector<std::string>& tables, QWidget* parent)
+    : QGroupBox(parent), path_(location), kind_(SourceKind::PostgreSQL) {
+    setObjectName(QStringLiteral("import-source"));
+    createDatabaseChoice();
+    for (const std::string& t : tables) tables_->addItem(QString::fromStdString(t));
+    if (tables.empty()) useQuery_->setChecked(true);  // nothing to choose: write a query
+}
+
 void SourceChoice::createDatabase() {
+    createDatabaseChoice();
+    try {
+        for (const std::string& t : sqlite_tables(path_.toStdString())) tables_->addItem(QString::fromStdString(t));
+    } catch (const InputError& e) {
+        error_ = QString::fromStdString(e.what());
+    }
+}
+
+void SourceChoice::createDatabaseChoice() {
     setTitle(tr("Database"));
     auto* form = new QFormLayout(this);
     useTable_ = new QRadioButton(tr("Table"), this);
@@ -62,11 +79,6 @@ void SourceChoice::createDatabase() {
     query_->setMaximumHeight(query_->fontMetrics().lineSpacing() * 4 + 12);
     query_->setEnabled(false);
     form->addRow(useQuery_, query_);
-    try {
-        for (const std::string& t : sqlite_tables(path_.toStdString())) tables_->addItem(QString::fromStdString(t));
-    } catch (const InputError& e) {
-        error_ = QString::fromStdString(e.what());
-    }
     connect(tables_, &QComboBox::currentIndexChanged, this, &SourceChoice::changed);
     connect(useQuery_, &QRadioButton::toggled, this, [this](bool on) {
         query_->setEnabled(on);

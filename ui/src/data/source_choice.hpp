@@ -1,11 +1,14 @@
-// Where in a workbook or an SQLite database the table is: the sheet of a
-// workbook, or a database's table or view, or one read-only query. Part of
-// the import dialog; the sheets and tables are listed when it is made (a
-// file that cannot be listed shows why in `error()`).
+// Where in a workbook or a database the table is: the sheet of a workbook,
+// or a database's table or view, or one read-only query. Part of the import
+// dialog; an SQLite file's sheets and tables are listed when it is made (a
+// file that cannot be listed shows why in `error()`), a PostgreSQL server's
+// when it was connected to.
 #pragma once
 
 #include <QGroupBox>
 #include <QString>
+#include <string>
+#include <vector>
 
 #include "moderato/reading/data_source.hpp"
 
@@ -23,6 +26,9 @@ class SourceChoice : public QGroupBox {
     Q_OBJECT
 public:
     SourceChoice(const QString& path, SourceKind kind, QWidget* parent = nullptr);
+    // A database server's choice (PostgreSQL): `location` its address,
+    // `tables` what it offers (listed when it was connected to).
+    SourceChoice(const QString& location, const std::vector<std::string>& tables, QWidget* parent = nullptr);
 
     // The source as chosen now (location: the file).
     SourceSpec spec() const;
@@ -42,6 +48,7 @@ Q_SIGNALS:
 private:
     void createWorkbook();
     void createDatabase();
+    void createDatabaseChoice();
 
     QString path_;
     SourceKind kind_;

@@ -66,6 +66,21 @@ QString ProjectDocument::dataPath(const std::string& id) const {
     return QString::fromStdString(resolve_data_path(*s, path_.toStdString()));
 }
 
+QString ProjectDocument::dataName(const std::string& id) const {
+    const DataSource* s = project_.dataset(id);
+    if (!s || s->kind != SourceKind::PostgreSQL) return QFileInfo(dataPath(id)).fileName();
+    const QString table = s->query.empty() ? QString::fromStdString(s->table) : tr("query");
+    const QString address = QString::fromStdString(s->path);
+    const QString database = address.section(QLatin1Char('/'), 3).section(QLatin1Char('?'), 0, 0);
+    return database.isEmpty() ? table : tr("%1 in %2").arg(table, database);
+}
+
+QString ProjectDocument::dataPlace(const std::string& id) const {
+    const DataSource* s = project_.dataset(id);
+    if (s && s->kind == SourceKind::PostgreSQL) return QString::fromStdString(s->path);
+    return QFileInfo(dataPath(id)).absolutePath();
+}
+
 void ProjectDocument::adopt(LoadedProject loaded) {
     project_ = std::move(loaded.project);
     path_ = QString::fromStdString(loaded.path);
@@ -122,8 +137,12 @@ std::string ProjectDocument::addDataset(const QString& dataPath, const CsvOption
                                         const SourceSpec& place) {
     Project after = project_;
     DataSource s;
-    s.id = after.unique_id(stem_id(dataPath));
-    s.path = QFileInfo(dataPath).absoluteFilePath().toStdString();
+    const bool server = place.kind == SourceKind::PostgreSQL;  // an address, not a file
+    // A server's dataset is named after its table (the last part), or "query".
+    const QString tableName =
+        QString::fromStdString(place.table).section(QLatin1Char('.'), -1).remove(QLatin1Char('"'));
+    s.id = after.unique_id(stem_id(!server ? dataPath : place.query.empty() ? tableName : QStringLiteral("query")));
+    s.path = server ? dataPath.toStdString() : QFileInfo(dataPath).absoluteFilePath().toStdString();
     s.import = import;
     s.kind = place.kind;
     s.sheet = place.sheet;
@@ -139,7 +158,7 @@ std::string ProjectDocument::addDataset(const QString& dataPath, const CsvOption
     if (!sha256.empty()) readHashes_[s.id] = sha256;
     saved_.erase(s.id);
     absolutePaths_[s.id] = s.path;
-    QString text = tr("Add dataset %1").arg(QFileInfo(dataPath).fileName());
+    QString text = tr("Add dataset %1").arg(server ? QString::fromStdString(s.id) : QFileInfo(dataPath).fileName());
     if (table) {  // a new dataset has no analysis yet: start one, as for the first dataset
         Analysis a = guess_analysis(*table, s.id, after.unique_id("analysis"));
         after.analyses.push_back(a);
@@ -218,6 +237,12 @@ void ProjectDocument::saveAs(const QString& path) {
     for (auto& d : out.datasets) {
         const QString dataFile = dataPath(d.id);
         const std::string file = dataFile.toStdString();
+        if (d.kind == SourceKind::PostgreSQL) {  // an address: kept as it is, with the fingerprint read
+            const auto read = readHashes_.find(d.id);
+            if (read != readHashes_.end()) d.sha256 = read->second;
+            hashes[d.id] = d.sha256;
+            continue;
+        }
         if (QFileInfo(dataFile).absoluteFilePath() == info.absoluteFilePath() ||
             (info.exists() && QFileInfo(dataFile).canonicalFilePath() == info.canonicalFilePath()))
             throw InputError(target + ": this is the data file of dataset '" + d.id +

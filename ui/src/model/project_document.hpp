@@ -35,6 +35,11 @@ public:
     // Why the dataset's derived columns could not be computed (empty: fine).
     QString tableError(const std::string& datasetId) const;
     // Absolute path of a dataset's data file.
+    // How a dataset's source is named on screen: the file's name, or for a
+    // PostgreSQL source its table ("query" for a query) in its database.
+    QString dataName(const std::string& id) const;
+    // Where it is: the file's folder, or the PostgreSQL address.
+    QString dataPlace(const std::string& id) const;
     QString dataPath(const std::string& datasetId) const;
     // SHA-256 of the data bytes the dataset's table was read from (empty: not known yet).
     std::string readHash(const std::string& datasetId) const;

@@ -105,7 +105,7 @@ std::set<QString> checkDataFiles(const LoadedProject& loaded, const RenderReques
 
 RenderReport renderProject(const RenderRequest& request) {
     RenderReport report;
-    LoadedProject loaded = load_project(request.projectPath.toStdString());
+    LoadedProject loaded = load_project(request.projectPath.toStdString(), {}, {}, request.passwords);
     const std::set<QString> dataFiles = checkDataFiles(loaded, request, report);
 
     const QString root = QFileInfo(request.outDir).absoluteFilePath();

@@ -9,12 +9,15 @@
 #include <QString>
 #include <QStringList>
 
+#include "moderato/project/project_loader.hpp"
+
 namespace moderato::ui {
 
 struct RenderRequest {
     QString projectPath;
     QString outDir;
     bool acceptChangedData = false;  // go on when a data file's SHA-256 differs from the recorded one
+    DatabasePasswords passwords;     // for PostgreSQL datasets (in memory only; else the password file)
 };
 
 struct RenderReport {

@@ -11,7 +11,9 @@
 #include <QDropEvent>
 #include <QFileDialog>
 #include <QFileInfo>
+#include <QInputDialog>
 #include <QLabel>
+#include <QLineEdit>
 #include <QMenuBar>
 #include <QMessageBox>
 #include <QMimeData>
@@ -30,12 +32,14 @@
 #include "common/table_clipboard.hpp"
 #include "data/dataset_page.hpp"
 #include "data/import_dialog.hpp"
+#include "data/postgres_dialog.hpp"
 #include "data/source_choice.hpp"
 #include "export/figure_export_dialog.hpp"
 #include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "model/recovery_store.hpp"
 #include "moderato/project/project_loader.hpp"
+#include "moderato/reading/postgres_source.hpp"
 #include "moderato/support/error.hpp"
 #include "moderato/support/file_util.hpp"
 #include "moderato/support/sha256.hpp"
@@ -77,6 +81,10 @@ struct LoadOutcome {
     DataLocations moved;
     std::optional<MissingDataFile> missing;
     std::function<void()> adopted;
+    // PostgreSQL: the passwords this load was given, and the address of a
+    // server that asked for one it was not given.
+    DatabasePasswords passwords;
+    std::string passwordFor;
 };
 
 namespace {
@@ -91,6 +99,9 @@ void loadInto(LoadOutcome& o, Read read) {
         o.cancelled = true;
     } catch (const MissingDataFile& e) {
         o.missing = e;
+        o.error = QString::fromStdString(e.what());
+    } catch (const PasswordNeeded& e) {
+        o.passwordFor = e.location();
         o.error = QString::fromStdString(e.what());
     } catch (const InputError& e) {
         o.error = QString::fromStdString(e.what());
@@ -229,6 +240,8 @@ void MainWindow::buildMenus() {
                "Workbooks (*.xlsx);;SQLite databases (*.sqlite *.sqlite3 *.db);;All files (*)"));
         if (!path.isEmpty()) openPath(path);
     });
+    file->addAction(tr("Connect to &PostgreSQL…"), this, [this] { connectToDatabase(); })
+        ->setObjectName(QStringLiteral("connect-postgres"));
     file->addSeparator();
     file->addAction(tr("&Save"), QKeySequence::Save, this, [this] { save(); });
     file->addAction(tr("Save &As…"), this,
@@ -295,6 +308,7 @@ QString MainWindow::suggestedProjectPath() const {
     if (!doc_->filePath().isEmpty()) return doc_->filePath();
     // Not saved yet: beside the (first) data file, named after it.
     for (const DataSource& d : doc_->project().datasets) {
+        if (d.kind == SourceKind::PostgreSQL) continue;  // an address, not a folder
         const QFileInfo data(doc_->dataPath(d.id));
         if (data.fileName().isEmpty()) continue;
         return QDir(data.absolutePath()).filePath(data.completeBaseName() + QStringLiteral(".moderato"));
@@ -336,13 +350,16 @@ void MainWindow::openPath(const QString& path) {
 void MainWindow::openProject(const QString& path) { openProjectFrom(path, nullptr, {}); }
 
 void MainWindow::openProjectFrom(const QString& path, std::shared_ptr<const Project> project,
-                                 const DataLocations& moved, std::function<void()> adopted) {
+                                 const DataLocations& moved, std::function<void()> adopted,
+                                 const DatabasePasswords& passwords) {
     const std::string file = path.toStdString();
     const std::string folder = path.isEmpty() ? std::string() : QFileInfo(path).absolutePath().toStdString();
     auto outcome = std::make_shared<LoadOutcome>();
     outcome->inMemory = std::move(project);
     outcome->moved = moved;
     outcome->adopted = std::move(adopted);
+    outcome->passwords = passwords;
+    outcome->passwords.insert(passwords_.begin(), passwords_.end());
     const QString name = path.isEmpty() ? tr("Untitled project") : QFileInfo(path).fileName();
     startLoad(
         path, tr("Opening %1…").arg(name),
@@ -354,8 +371,9 @@ void MainWindow::openProjectFrom(const QString& path, std::shared_ptr<const Proj
             loadInto(*outcome, [&] {
                 const CsvProgress p{progress};
                 outcome->project = std::make_shared<LoadedProject>(
-                    outcome->inMemory ? load_project_data(*outcome->inMemory, file, p, outcome->moved)
-                                      : load_project(file, p, outcome->moved));
+                    outcome->inMemory
+                        ? load_project_data(*outcome->inMemory, file, p, outcome->moved, outcome->passwords)
+                        : load_project(file, p, outcome->moved, outcome->passwords));
             });
         },
         [this, path, outcome](bool cancelled) { return adoptProject(path, *outcome, cancelled); });
@@ -416,12 +434,14 @@ MainWindow::LoadResult MainWindow::adoptProject(const QString& path, LoadOutcome
     }
     // A moved data file the user located: opened again with it (that load reports; this result is not emitted).
     if (outcome.missing && locateMissing(path, outcome)) return Cancelled;
+    if (!outcome.passwordFor.empty() && askPassword(path, outcome)) return Cancelled;
     if (!outcome.error.isEmpty() || !outcome.project) {
         report(tr("Cannot open project"),
                outcome.error.isEmpty() ? tr("The project could not be read.") : outcome.error);
         return Failed;
     }
     LoadedProject loaded = std::move(*outcome.project);
+    passwords_.insert(outcome.passwords.begin(), outcome.passwords.end());  // they worked: kept for the session
     const std::vector<std::string> warnings = loaded.warnings;
     doc_->adopt(std::move(loaded));
     if (!outcome.moved.empty()) doc_->relocateData(outcome.moved, tr("Locate data file"));
@@ -468,8 +488,54 @@ bool MainWindow::locateMissing(const QString& path, const LoadOutcome& outcome) 
     DataLocations moved = outcome.moved;
     moved[m.dataset] = file;
     // Opened again with the chosen file; its SHA-256 is checked as for any data file.
-    openProjectFrom(path, outcome.inMemory, moved, outcome.adopted);
+    openProjectFrom(path, outcome.inMemory, moved, outcome.adopted, outcome.passwords);
     return true;
+}
+
+bool MainWindow::askPassword(const QString& path, const LoadOutcome& outcome) {
+    const QString location = QString::fromStdString(outcome.passwordFor);
+    if (outcome.passwords.count(outcome.passwordFor)) return false;  // asked once already: report
+    PasswordAsker ask = passwordAsker_;
+    if (!ask && interactive_)
+        ask = [this](const QString& where) -> std::optional<QString> {
+            bool ok = false;
+            const QString typed = QInputDialog::getText(
+                this, tr("Password"),
+                tr("The PostgreSQL server at %1 asks for a password.\nIt is used while Moderato runs and never "
+                   "saved.")
+                    .arg(where),
+                QLineEdit::Password, QString(), &ok);
+            return ok ? std::optional<QString>(typed) : std::nullopt;
+        };
+    if (!ask) return false;
+    const std::optional<QString> typed = ask(location);
+    if (!typed) return false;
+    DatabasePasswords passwords = outcome.passwords;
+    passwords[outcome.passwordFor] = typed->toStdString();
+    openProjectFrom(path, outcome.inMemory, outcome.moved, outcome.adopted, passwords);
+    return true;
+}
+
+void MainWindow::connectToDatabase() {
+    auto* connection = new PostgresDialog(this);
+    connection->setAttribute(Qt::WA_DeleteOnClose);
+    connect(connection, &QDialog::accepted, this, [this, connection] {
+        const std::string password = connection->password();
+        auto* dialog = new ImportDialog(connection->location(), password, connection->tables(), this);
+        dialog->setAttribute(Qt::WA_DeleteOnClose);
+        connect(dialog, &QDialog::accepted, this, [this, dialog, password] { addServerDataset(*dialog, password); });
+        dialog->open();
+    });
+    connection->open();
+}
+
+void MainWindow::addServerDataset(const ImportDialog& dialog, const std::string& password) {
+    if (!dialog.table()) return;
+    const SourceSpec source = dialog.source();
+    if (!password.empty()) passwords_[source.location] = password;
+    const QString where = QString::fromStdString(source.location);
+    const std::string id = doc_->addDataset(where, dialog.options(), dialog.table(), dialog.fingerprint(), source);
+    showAddedDataset(where, id);
 }
 
 bool MainWindow::save() {
@@ -511,7 +577,8 @@ void MainWindow::showDataset(const QString& id) {
 }
 
 void MainWindow::showAddedDataset(const QString& path, const std::string& id) {
-    addRecent(QFileInfo(path).absoluteFilePath());
+    const DataSource* added = doc_->project().dataset(id);
+    if (!added || added->kind != SourceKind::PostgreSQL) addRecent(QFileInfo(path).absoluteFilePath());
     // Adding a dataset starts an analysis of it (ProjectDocument::addDataset): show that.
     if (!doc_->project().analyses.empty() && doc_->project().analyses.back().dataset == id)
         showAnalysis(QString::fromStdString(doc_->project().analyses.back().id));

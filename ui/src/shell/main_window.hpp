@@ -12,6 +12,7 @@
 #include <QStringList>
 #include <functional>
 #include <memory>
+#include <optional>
 #include <string>
 
 #include "common/background_job.hpp"
@@ -31,6 +32,7 @@ class UserGuide;
 class AnalysisPage;
 class AnalysisRunner;
 class DatasetPage;
+class ImportDialog;
 class ProjectDocument;
 class ProjectSidebar;
 class RecoveryStore;
@@ -60,14 +62,23 @@ public:
     void openProject(const QString& path);
     // The same for a project held in memory (`project`, e.g. recovered edits;
     // null: read `path`), reading datasets listed in `moved` from those files.
-    // `adopted` runs once the document holds it.
+    // `adopted` runs once the document holds it. `passwords`: for PostgreSQL
+    // datasets, besides those given earlier in this session.
     void openProjectFrom(const QString& path, std::shared_ptr<const Project> project, const DataLocations& moved,
-                         std::function<void()> adopted = {});
+                         std::function<void()> adopted = {}, const DatabasePasswords& passwords = {});
     // Asked when a project's data file is missing: the dataset id, the path the
     // project records and the file looked for; returns the chosen file (empty:
     // cancel). Interactive windows ask with a file chooser (shell/locate_data).
     using DataLocator = std::function<QString(const QString& dataset, const QString& recorded, const QString& file)>;
     void setDataLocator(DataLocator locator) { locator_ = std::move(locator); }
+    // Asked when a project's PostgreSQL server wants a password: its address;
+    // returns the password, or nothing to cancel. Interactive windows ask in a
+    // password box. Passwords are kept in memory for this session only.
+    using PasswordAsker = std::function<std::optional<QString>(const QString& location)>;
+    void setPasswordAsker(PasswordAsker asker) { passwordAsker_ = std::move(asker); }
+    // File › Connect to PostgreSQL…: the connection dialog, then the import
+    // dialog for the server's table or query.
+    void connectToDatabase();
     // Reads a data file with these options (no dialog) and adds it as a
     // dataset; asynchronous like openProject().
     void importData(const QString& path, const CsvOptions& options);
@@ -124,6 +135,11 @@ private:
     // A data file was missing: asks for it and opens again with it (true), or
     // leaves things as they are (false: cancelled, or nobody to ask).
     bool locateMissing(const QString& path, const LoadOutcome& outcome);
+    // A PostgreSQL server asked for a password: asks for it and opens again
+    // with it (true), or leaves things as they are (false).
+    bool askPassword(const QString& path, const LoadOutcome& outcome);
+    // Adds what the import dialog read from a PostgreSQL server.
+    void addServerDataset(const ImportDialog& dialog, const std::string& password);
     LoadResult addImported(const QString& path, const CsvOptions& options, const LoadOutcome& outcome, bool cancelled);
     // Asks whether to save unsaved changes. Like the file choosers, this is
     // a question run modally (a loop of its own): its answer decides the
@@ -151,6 +167,8 @@ private:
     AnalysisPage* analysisPage_;
     RecoveryStore* recovery_;
     DataLocator locator_;
+    PasswordAsker passwordAsker_;
+    DatabasePasswords passwords_;  // given this session, by address; never written
     QMenu* recentMenu_ = nullptr;
     QAction* newAnalysisAction_ = nullptr;
     bool interactive_ = true;

@@ -55,8 +55,7 @@ void ProjectSidebar::rebuild() {
         item->setToolTip(0, tip);
         return item;
     };
-    for (const auto& d : p.datasets)
-        add(datasets_, QFileInfo(QString::fromStdString(d.path)).fileName(), "dataset", d.id, doc_->dataPath(d.id));
+    for (const auto& d : p.datasets) add(datasets_, doc_->dataName(d.id), "dataset", d.id, doc_->dataPath(d.id));
     for (const auto& a : p.analyses)
         add(analyses_, QString::fromStdString(a.name), "analysis", a.id,
             tr("Outcome %1; focal %2; moderator %3")

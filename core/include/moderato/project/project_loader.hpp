@@ -35,6 +35,11 @@ public:
 // data file the user located after it moved). Absolute paths.
 using DataLocations = std::map<std::string, std::string>;
 
+// A PostgreSQL address (as the project records it, without a password) ->
+// the password the user gave for it in this session. Held in memory only:
+// never written to a project, a memo or a log.
+using DatabasePasswords = std::map<std::string, std::string>;
+
 // Reads a dataset's file with its import options (from `file` when given,
 // else where the project names it). MissingDataFile when it is not there.
 std::shared_ptr<const Table> load_data_source(const DataSource& source, const std::string& project_path,
@@ -50,12 +55,16 @@ std::string changed_data_text(const std::string& file, const std::string& datase
 // is unreadable), MissingDataFile (a data file is not there); Cancelled when
 // the progress callback says stop. `moved` reads those datasets from other
 // files. A data file whose SHA-256 differs from the recorded one is read and
-// a warning says so. Never writes anything.
-LoadedProject load_project(const std::string& path, const CsvProgress& progress = {}, const DataLocations& moved = {});
+// a warning says so. A PostgreSQL dataset connects with its address's
+// password from `passwords` (else libpq's password file), and throws
+// PasswordNeeded when the server asks for one it was not given. Never
+// writes anything.
+LoadedProject load_project(const std::string& path, const CsvProgress& progress = {}, const DataLocations& moved = {},
+                           const DatabasePasswords& passwords = {});
 
 // The same for a project already in memory (a recovery copy) that belongs to
 // `path` (empty: never saved; its data paths are then absolute).
 LoadedProject load_project_data(Project project, const std::string& path, const CsvProgress& progress = {},
-                                const DataLocations& moved = {});
+                                const DataLocations& moved = {}, const DatabasePasswords& passwords = {});
 
 }  // namespace moderato

@@ -37,12 +37,44 @@
 #pragma once
 
 #include <string>
+#include <utility>
+#include <vector>
 
 #include "moderato/reading/csv.hpp"
 #include "moderato/reading/data_source.hpp"
 #include "moderato/reading/table.hpp"
+#include "moderato/support/error.hpp"
 
 namespace moderato {
+
+// The server asks for a password and none was given (none in the call, the
+// password file or PGPASSWORD): the caller may ask the user and try again.
+// Its message names the server and says where a password can come from;
+// `location` is the address asked for (without a password).
+class PasswordNeeded : public InputError {
+public:
+    PasswordNeeded(const std::string& message, std::string location)
+        : InputError(message), location_(std::move(location)) {}
+    const std::string& location() const { return location_; }
+
+private:
+    std::string location_;
+};
+
+// Where a server is, as a connection dialog asks for it. `host` is a host
+// name or address, or a folder holding the server's Unix socket (it begins
+// with '/'); empty parts are left to libpq's defaults.
+struct PostgresAddress {
+    std::string host;
+    std::string port;
+    std::string database;
+    std::string user;
+};
+
+// The libpq URI of an address: "postgresql:///shop?host=%2Frun%2Fpg&port=5432&user=me"
+// (every part percent-encoded as a query parameter, so a socket folder and
+// a host name are written the same way). Never holds a password.
+std::string postgres_address(const PostgresAddress& address);
 
 // "table sales in postgresql:///shop?host=/run/pg" or "query in ...": the
 // source in messages, with any password removed from the address.
@@ -52,12 +84,21 @@ std::string describe_postgres(const SourceSpec& source);
 // "password=" parameter), for messages and for what a project records.
 std::string postgres_location_without_password(const std::string& uri);
 
+// The tables, views, materialized views, partitioned and foreign tables the
+// user may read at `location` (outside the system schemas), sorted: "name"
+// in the schema "public", "schema.name" elsewhere (a part holding a dot or a
+// double quote is written in double quotes, as `table` takes it). Throws
+// PasswordNeeded or InputError as read_postgres does.
+std::vector<std::string> postgres_tables(const std::string& location, const std::string& password = {});
+
 // Reads the source. `fingerprint`, when not null, receives
-// postgres_fingerprint's text of the same snapshot. Throws InputError naming
+// postgres_fingerprint's text of the same snapshot. `max_rows` (0: all)
+// reads only the first rows the server returns, as for a preview. Throws InputError naming
 // the source, and the table or query, column and row where one is at fault;
-// a connection failure gives libpq's message without any password.
+// a connection failure gives libpq's message without any password, and
+// PasswordNeeded when the server asks for a password that was not given.
 Table read_postgres(const SourceSpec& source, const CsvOptions& options = {}, const CsvProgress& progress = {},
-                    const std::string& password = {}, std::string* fingerprint = nullptr);
+                    const std::string& password = {}, std::string* fingerprint = nullptr, std::size_t max_rows = 0);
 
 // What identifies the rows a source yields, computed in the server in one
 // scan: "pg-md5-sum:<rows>:<checksum>". The checksum is the sum, modulo 2^64,

@@ -1,0 +1,130 @@
+// PostgreSQL in the workbench, against a throwaway cluster on a Unix socket
+// (tests/common/pg_cluster.hpp): the connection dialog typed into as a user
+// would, a server that asks for a password, the import dialog on the
+// server's table, and a project that records the address and the
+// fingerprint but never the password, and asks for it again when opened.
+// Expected values are the rows the test inserts.
+#include <gtest/gtest.h>
+
+#include <QLineEdit>
+#include <QPushButton>
+#include <QSettings>
+#include <QTemporaryDir>
+#include <QTest>
+
+#include "common/file_bytes.hpp"
+#include "common/pg_cluster.hpp"
+#include "data/import_dialog.hpp"
+#include "data/postgres_dialog.hpp"
+#include "data/table_model.hpp"
+#include "model/project_document.hpp"
+#include "moderato/project/project.hpp"
+#include "qstring_print.hpp"
+#include "shell/main_window.hpp"
+#include "ui_test_util.hpp"
+#include "widget_input.hpp"
+
+using namespace moderato;
+using namespace moderato::ui;
+using moderato::test::shared_cluster;
+
+namespace {
+
+constexpr const char* kSecret = "violet-harbour-moth";
+
+class PostgresWorkbench : public ::testing::Test {
+protected:
+    static void SetUpTestSuite() {
+        test::require_password("clerk", kSecret);
+        db_ = test::fresh_database("workbench");
+        shared_cluster().exec(
+            "CREATE TABLE trips (km double precision, stops integer, zone text); GRANT SELECT ON trips TO clerk;"
+            "INSERT INTO trips VALUES (1.5, 2, 'north'), (3.25, 4, 'south'), (8, 1, 'north');",
+            db_);
+    }
+    static std::string location() { return shared_cluster().uri(db_, "clerk"); }
+    static std::string db_;
+};
+std::string PostgresWorkbench::db_;
+
+void type(QLineEdit* field, const std::string& text) {
+    ASSERT_NE(field, nullptr);
+    field->clear();
+    QTest::keyClicks(field, QString::fromStdString(text));
+}
+
+TEST_F(PostgresWorkbench, ConnectsAsksForThePasswordAndListsTables) {
+    PostgresDialog dlg;
+    dlg.show();
+    type(dlg.hostField(), shared_cluster().socket_dir());
+    type(dlg.databaseField(), db_);
+    type(dlg.userField(), "clerk");
+    dlg.passwordField()->clear();
+    QTest::mouseClick(dlg.connectButton(), Qt::LeftButton);
+    ASSERT_TRUE(test::waitUntil([&] { return dlg.connectButton()->isEnabled(); }, 30000));
+    EXPECT_TRUE(dlg.message().contains(QStringLiteral("asks for a password"))) << dlg.message();
+    EXPECT_EQ(dlg.result(), QDialog::Rejected);  // still open
+    type(dlg.passwordField(), kSecret);
+    EXPECT_EQ(dlg.passwordField()->echoMode(), QLineEdit::Password);
+    QTest::mouseClick(dlg.connectButton(), Qt::LeftButton);
+    ASSERT_TRUE(test::waitUntil([&] { return dlg.result() == QDialog::Accepted; }, 30000)) << dlg.message();
+    EXPECT_EQ(dlg.tables(), (std::vector<std::string>{"trips"}));
+    // The fields as one address, each part percent-encoded (a socket folder's '/' as %2F).
+    const QString socket = QString::fromStdString(shared_cluster().socket_dir()).replace(QLatin1Char('/'), "%2F");
+    EXPECT_EQ(QString::fromStdString(dlg.location()),
+              QStringLiteral("postgresql:///%1?host=%2&user=clerk").arg(QString::fromStdString(db_), socket));
+    // The address parts are remembered, the password nowhere in the settings.
+    QSettings settings;
+    EXPECT_EQ(settings.value(QStringLiteral("postgres/database")).toString().toStdString(), db_);
+    for (const QString& key : settings.allKeys())
+        EXPECT_FALSE(settings.value(key).toString().contains(QLatin1String(kSecret))) << key;
+}
+
+TEST_F(PostgresWorkbench, ImportsTheTableAndReopensWithAPasswordAskedFor) {
+    ImportDialog dlg(location(), kSecret, {"trips"});
+    dlg.show();
+    ASSERT_NE(dlg.previewTable(), nullptr) << dlg.message();
+    EXPECT_EQ(dlg.previewModel()->rowCount(), 3);
+    EXPECT_EQ(dlg.previewModel()->columnCount(), 3);
+    QTest::mouseClick(test::child<QPushButton>(&dlg, "import-load"), Qt::LeftButton);
+    ASSERT_TRUE(test::waitUntil([&] { return !dlg.isLoading() && dlg.table(); }, 30000)) << dlg.message();
+    EXPECT_EQ(dlg.fingerprint().rfind("pg-md5-sum:3:", 0), 0u) << dlg.fingerprint();  // three rows
+
+    QTemporaryDir dir;
+    const QString path = dir.filePath(QStringLiteral("trips.moderato"));
+    {
+        ProjectDocument doc;
+        const std::string id = doc.addDataset(QString::fromStdString(location()), dlg.options(), dlg.table(),
+                                              dlg.fingerprint(), dlg.source());
+        EXPECT_EQ(id, "trips");
+        doc.saveAs(path);
+    }
+    const std::string saved = test::read_file(path.toStdString());
+    EXPECT_EQ(saved.find(kSecret), std::string::npos);
+    const Project saved_project = read_project_file(path.toStdString());
+    const DataSource* d = saved_project.dataset("trips");
+    ASSERT_NE(d, nullptr);
+    EXPECT_EQ(d->path, location());
+    EXPECT_EQ(d->sha256, dlg.fingerprint());
+
+    MainWindow w;
+    w.setInteractive(false);
+    QStringList asked;
+    std::optional<QString> answer;  // first: cancel
+    w.setPasswordAsker([&](const QString& where) {
+        asked << where;
+        return answer;
+    });
+    EXPECT_FALSE(test::openProject(w, path));
+    EXPECT_EQ(asked, QStringList{QString::fromStdString(location())});
+    EXPECT_TRUE(w.lastMessage().contains(QStringLiteral("asks for a password"))) << w.lastMessage();
+    answer = QString::fromLatin1(kSecret);
+    ASSERT_TRUE(test::openProject(w, path)) << w.lastMessage();
+    EXPECT_EQ(w.document()->table("trips")->rows(), 3u);
+    // Kept for the session: opening again asks nothing.
+    asked.clear();
+    ASSERT_TRUE(test::openProject(w, path)) << w.lastMessage();
+    EXPECT_TRUE(asked.isEmpty());
+}
+
+}  // namespace
