@@ -42,10 +42,12 @@ protected:
 std::string PostgresServer::db_;
 
 TEST(PostgresAddress, EveryPartIsAQueryParameter) {
-    // From memory (libpq's URI form): a socket folder as host=, every value percent-encoded.
+    // From memory (libpq's URI form, RFC 3986): a socket folder as host=,
+    // values percent-encoded but for the '/', ':' and '@' a query may hold.
     EXPECT_EQ(postgres_address({"/run/pg sock", "5433", "shop", "me"}),
-              "postgresql:///shop?host=%2Frun%2Fpg%20sock&port=5433&user=me");
-    EXPECT_EQ(postgres_address({"db.example", "", "sales&co", ""}), "postgresql:///sales%26co?host=db.example");
+              "postgresql:///shop?host=/run/pg%20sock&port=5433&user=me");
+    EXPECT_EQ(postgres_address({"db.example", "", "sales&co/2", "a=b"}),
+              "postgresql:///sales%26co%2F2?host=db.example&user=a%3Db");
     EXPECT_EQ(postgres_address({"", "", "shop", ""}), "postgresql:///shop");
 }
 

@@ -551,3 +551,18 @@ TEST(DatasetPage, SelectRowsSelectsThemAndScrollsToTheFirst) {
     EXPECT_EQ(sel->selectedRows().size(), 1);
     EXPECT_TRUE(sel->isRowSelected(3, {}));
 }
+
+TEST(GuessAnalysis, PassesOverColumnsThatNameRows) {
+    // Common practice: a row number, an "..._id" and a label per row are not
+    // measurements, so the first guess starts at the first real measure.
+    std::string csv = "row,store_id,label,minutes,distance,remote\n";
+    for (int i = 1; i <= 30; ++i)
+        csv += std::to_string(i) + "," + std::to_string(100 + 7 * i) + ",trip" + std::to_string(i) + "," +
+               std::to_string(20 + i % 9) + "." + std::to_string(i % 10) + "," + std::to_string(i % 13) + "," +
+               std::to_string(i % 2) + "\n";
+    const Table t = read_csv_text(csv, "trips.csv");
+    const Analysis a = guess_analysis(t, "trips", "analysis");
+    EXPECT_EQ(a.roles.outcome, "minutes");
+    EXPECT_EQ(a.roles.focal, "distance");
+    EXPECT_EQ(a.roles.moderator, "remote");
+}

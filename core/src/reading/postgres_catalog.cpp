@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cctype>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "moderato/reading/postgres_source.hpp"
@@ -12,12 +13,13 @@ namespace moderato {
 
 namespace {
 
-// RFC 3986 unreserved characters stay; every other byte becomes %XX.
-std::string percent_encoded(const std::string& text) {
+// RFC 3986 unreserved characters and `keep` stay; every other byte becomes %XX.
+std::string percent_encoded(const std::string& text, std::string_view keep = {}) {
     static const char* hex = "0123456789ABCDEF";
     std::string out;
     for (const unsigned char ch : text) {
-        const bool plain = std::isalnum(ch) || ch == '-' || ch == '.' || ch == '_' || ch == '~';
+        const bool plain = std::isalnum(ch) || ch == '-' || ch == '.' || ch == '_' || ch == '~' ||
+                           keep.find(static_cast<char>(ch)) != std::string_view::npos;
         if (plain) out += static_cast<char>(ch);
         else out += {'%', hex[ch >> 4], hex[ch & 15]};
     }
@@ -39,7 +41,8 @@ std::string postgres_address(const PostgresAddress& address) {
     std::string query;
     const auto add = [&](const char* key, const std::string& value) {
         if (value.empty()) return;
-        query += (query.empty() ? "?" : "&") + std::string(key) + "=" + percent_encoded(value);
+        // '/', ':' and '@' may stand in a URI's query as they are (a socket folder stays readable).
+        query += (query.empty() ? "?" : "&") + std::string(key) + "=" + percent_encoded(value, "/:@");
     };
     add("host", address.host);
     add("port", address.port);

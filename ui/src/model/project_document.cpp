@@ -1,6 +1,8 @@
 #include "model/project_document.hpp"
 
 #include <QFileInfo>
+#include <algorithm>
+#include <cmath>
 #include <set>
 
 #include "model/project_commands.hpp"
@@ -272,12 +274,36 @@ std::string roleBasedName(const Roles& roles) {
     return roles.moderator.empty() ? roles.focal : roles.focal + " × " + roles.moderator;
 }
 
+namespace {
+
+// A column that names rows rather than measuring them: called "id" (or
+// "..._id"), or a categorical column with a level for every row, or whole
+// numbers all different that run from their smallest to their largest.
+bool identifier_like(const Column& c, std::size_t rows) {
+    QString name = QString::fromStdString(c.name).toLower();
+    if (name == QLatin1String("id") || name.endsWith(QLatin1String("_id"))) return true;
+    if (rows < 10) return false;
+    if (c.kind == ColumnKind::Categorical) return c.levels.size() == rows;
+    std::vector<double> v;
+    v.reserve(rows);
+    for (const double x : c.numbers) {
+        if (!std::isfinite(x) || x != std::floor(x)) return false;
+        v.push_back(x);
+    }
+    std::sort(v.begin(), v.end());
+    if (std::adjacent_find(v.begin(), v.end()) != v.end()) return false;
+    return v.back() - v.front() + 1 == static_cast<double>(v.size());
+}
+
+}  // namespace
+
 Analysis guess_analysis(const Table& t, const std::string& datasetId, const std::string& id) {
     Analysis a;
     a.id = id;
     a.dataset = datasetId;
     std::vector<std::string> numeric, grouping;
     for (const auto& c : t.columns) {
+        if (identifier_like(c, t.rows())) continue;
         if (c.kind == ColumnKind::Categorical || zero_one(c)) grouping.push_back(c.name);
         if (c.kind == ColumnKind::Numeric && !zero_one(c)) numeric.push_back(c.name);
     }

@@ -120,7 +120,8 @@ std::string roleBasedName(const Roles& roles);
 
 // Guessed roles for a new analysis on a table: the first numeric column as
 // Outcome, then a numeric Focal predictor and a Moderator (a grouping column
-// when there is one). Empty roles when the table has too few columns.
+// when there is one), passing over columns that name rows (an "id", a level
+// per row, a row number). Empty roles when the table has too few columns.
 Analysis guess_analysis(const Table& table, const std::string& datasetId, const std::string& id);
 
 }  // namespace moderato::ui

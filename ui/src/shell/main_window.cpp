@@ -503,7 +503,7 @@ bool MainWindow::askPassword(const QString& path, const LoadOutcome& outcome) {
                 this, tr("Password"),
                 tr("The PostgreSQL server at %1 asks for a password.\nIt is used while Moderato runs and never "
                    "saved.")
-                    .arg(where),
+                    .arg(QString(where).replace(QLatin1Char('&'), QStringLiteral("&&"))),  // '&' is no shortcut
                 QLineEdit::Password, QString(), &ok);
             return ok ? std::optional<QString>(typed) : std::nullopt;
         };

@@ -71,9 +71,10 @@ struct PostgresAddress {
     std::string user;
 };
 
-// The libpq URI of an address: "postgresql:///shop?host=%2Frun%2Fpg&port=5432&user=me"
-// (every part percent-encoded as a query parameter, so a socket folder and
-// a host name are written the same way). Never holds a password.
+// The libpq URI of an address: "postgresql:///shop?host=/run/pg&port=5432&user=me"
+// (every part a query parameter, so a socket folder and a host name are
+// written the same way; percent-encoded but for '/', ':' and '@', which a
+// query may hold). Never holds a password.
 std::string postgres_address(const PostgresAddress& address);
 
 // "table sales in postgresql:///shop?host=/run/pg" or "query in ...": the
