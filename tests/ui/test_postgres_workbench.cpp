@@ -6,19 +6,24 @@
 // Expected values are the rows the test inserts.
 #include <gtest/gtest.h>
 
+#include <QCheckBox>
 #include <QLineEdit>
 #include <QPushButton>
 #include <QSettings>
 #include <QTemporaryDir>
 #include <QTest>
+#include <algorithm>
+#include <limits>
 
 #include "common/file_bytes.hpp"
 #include "common/pg_cluster.hpp"
 #include "data/import_dialog.hpp"
 #include "data/postgres_dialog.hpp"
 #include "data/table_model.hpp"
+#include "model/analysis_runner.hpp"
 #include "model/project_document.hpp"
 #include "moderato/project/project.hpp"
+#include "moderato/reading/postgres_source.hpp"
 #include "qstring_print.hpp"
 #include "shell/main_window.hpp"
 #include "ui_test_util.hpp"
@@ -122,6 +127,47 @@ TEST_F(PostgresWorkbench, ImportsTheTableAndReopensWithAPasswordAskedFor) {
     asked.clear();
     ASSERT_TRUE(test::openProject(w, path)) << w.lastMessage();
     EXPECT_TRUE(asked.isEmpty());
+}
+
+TEST_F(PostgresWorkbench, FitsInTheDatabaseOverEveryRowAndPlotsASample) {
+    // 250,000 rows made in the server (more than the 200,000 a sample holds).
+    shared_cluster().exec(
+        "CREATE TABLE big AS SELECT g AS id, (g * 7919 % 1000) / 100.0 AS x, (g * 104729 % 997) / 100.0 AS m, "
+        "1 + 0.5 * ((g * 7919 % 1000) / 100.0) - 0.3 * ((g * 104729 % 997) / 100.0) "
+        "+ 0.2 * ((g * 7919 % 1000) / 100.0) * ((g * 104729 % 997) / 100.0) + (g * 31337 % 1001) / 1000.0 AS y "
+        "FROM generate_series(1::bigint, 250000) g",
+        db_);
+    const std::string superuser = shared_cluster().uri(db_);
+    ImportDialog dlg(superuser, {}, {"big", "trips"});
+    dlg.show();
+    ASSERT_NE(dlg.inDatabaseChoice(), nullptr);
+    QTest::mouseClick(dlg.inDatabaseChoice(), Qt::LeftButton, {}, QPoint(6, dlg.inDatabaseChoice()->height() / 2));
+    ASSERT_TRUE(dlg.inDatabase());
+    QTest::mouseClick(test::child<QPushButton>(&dlg, "import-load"), Qt::LeftButton);
+    ASSERT_TRUE(test::waitUntil([&] { return !dlg.isLoading() && dlg.table(); }, 60000)) << dlg.message();
+    EXPECT_EQ(dlg.table()->rows(), kPlotSampleRows);
+
+    ProjectDocument doc;
+    AnalysisRunner runner(&doc);
+    runner.setBackgroundThreshold(std::numeric_limits<double>::infinity());
+    const std::string id = doc.addDataset(QString::fromStdString(superuser), dlg.options(), dlg.table(),
+                                          dlg.fingerprint(), dlg.source(), dlg.inDatabase());
+    ASSERT_TRUE(doc.project().dataset(id)->in_database);
+    Analysis a = doc.project().analyses.back();
+    a.roles.outcome = "y";
+    a.roles.focal = "x";
+    a.roles.moderator = "m";
+    doc.setAnalysis(a, QStringLiteral("roles"));
+    const QString aid = QString::fromStdString(a.id);
+    runner.refresh(aid);
+    ASSERT_TRUE(test::waitUntil([&] { return runner.result(aid) != nullptr; }, 60000)) << runner.error(aid);
+    const auto run = runner.result(aid);
+    EXPECT_EQ(run->fit.n, 250000u);  // every row in the server
+    ASSERT_TRUE(run->sample_fit);
+    EXPECT_EQ(run->sample_fit->n, kPlotSampleRows);
+    EXPECT_TRUE(std::any_of(run->cautions.begin(), run->cautions.end(), [](const std::string& c) {
+        return c.find("random sample of 200,000") != std::string::npos;
+    }));
 }
 
 }  // namespace

@@ -1,12 +1,15 @@
 // From a dataset and an analysis's settings to everything the analysis shows.
 #include "moderato/project/analysis_run.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <set>
 
+#include "moderato/estimation/in_database_fit.hpp"
 #include "moderato/probing/response_scale.hpp"
 #include "moderato/reading/derive.hpp"
 #include "moderato/support/error.hpp"
+#include "moderato/support/report_text.hpp"
 #include "project/straight_line_check.hpp"
 
 namespace moderato {
@@ -57,6 +60,38 @@ ProbeKind probe_kind(const Table& t, const Analysis& a) {
     return grouping(m) ? ProbeKind::Groups : ProbeKind::Continuous;
 }
 
+// Refuses, before anything is read or fitted, a model the database cannot fit.
+void require_server_model(const Analysis& a) {
+    if (a.family != Family::Linear || a.multilevel.active() || !a.roles.exposure.empty())
+        throw InputError("analysis " + quoted(a.name) +
+                         ": a fit in the database is a linear model (least squares, weighted or not) of one "
+                         "level; choose the linear family without groups, or read every row into Moderato "
+                         "(import the table without fitting in the database)");
+}
+
+// The model fitted in the database over every row, and to the sample read
+// for plots (for the checks). Both designs must have the same columns: a
+// level the sample lacks is named.
+void fit_in_server(AnalysisRun& run, const Analysis& a, const ServerFit& server) {
+    run.sample_fit = fit_design(run.design, run.spec);
+    run.fit = fit_in_database(server.source, run.spec, server.options, server.password);
+    const auto& all = run.fit.coefficients;
+    const auto& sample = run.sample_fit->coefficients;
+    for (std::size_t j = 0; j < std::max(all.size(), sample.size()); ++j)
+        if (j >= all.size() || j >= sample.size() || all[j].term != sample[j].term)
+            throw InputError("analysis " + quoted(a.name) + ": the model's term " +
+                             quoted(j < all.size() ? all[j].term : sample[j].term) +
+                             " is in the database's rows but not in the sample read for plots (a rare level?); "
+                             "merge rare levels in a query, or read every row");
+}
+
+// What a fit in the database says about the rows behind its plots.
+std::string sample_caution(const AnalysisRun& run) {
+    return "Estimates use all " + format_count(static_cast<long long>(run.fit.n)) +
+           " complete rows in the database; the plots' points and the model checks use a random sample of " +
+           format_count(static_cast<long long>(run.sample_fit->n)) + " of them.";
+}
+
 void probe_analysis(AnalysisRun& run, const Analysis& a, const RunProgress& progress) {
     PreviousCheck previous{std::move(run.binned), std::move(run.smooth)};
     run.binned.reset();
@@ -97,6 +132,15 @@ void probe_analysis(AnalysisRun& run, const Analysis& a, const RunProgress& prog
         run.cautions.push_back(
             "These are associations in observational data, not causal effects, unless the focal "
             "predictor was randomised.");
+    if (run.sample_fit) {
+        run.cautions.push_back(sample_caution(run));
+        if (a.centring == Centring::Mean)
+            run.cautions.push_back("Coefficients at centred predictors are not shown for a fit in the database.");
+        if (a.probe.show_binned || a.probe.show_smooth)
+            run.straight_line_notes.push_back("The straight-line check uses the sample of " +
+                                              format_count(static_cast<long long>(run.sample_fit->n)) +
+                                              " rows read for plots.");
+    }
 }
 
 bool same_model(const Analysis& a, const Analysis& b) {
@@ -119,7 +163,8 @@ bool smooth_work_pending(const AnalysisRun* run, const Analysis& a) {
     return !run || !run->smooth || !smooth_matches(*run->smooth, a);
 }
 
-AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a, const RunProgress& progress) {
+AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a, const RunProgress& progress,
+                         const ServerFit* server) {
     if (!table) throw InputError("analysis " + quoted(a.name) + ": its dataset is not loaded");
     const Table& t = *table;
     AnalysisRun run;
@@ -136,13 +181,15 @@ AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& a, 
         throw InputError("analysis " + quoted(a.name) +
                          ": cluster-robust standard errors need a Clusters column; drop one in the Clusters slot");
 
+    if (server) require_server_model(a);
     run.spec = model_spec(a);
     run.design = build_design(t, run.spec);
-    run.fit = fit_design(run.design, run.spec);
+    if (server) fit_in_server(run, a, *server);
+    else run.fit = fit_design(run.design, run.spec);
 
     probe_analysis(run, a, progress);
 
-    if (a.centring == Centring::Mean) {
+    if (a.centring == Centring::Mean && !server) {
         // Centre the numeric (not 0/1) focal predictor and moderators; the fit is the same
         // model, only the lower-order coefficients change meaning.
         // Only the model's columns (not a copy of the whole table), plus the centred copies.

@@ -370,6 +370,7 @@ json source_place_to_json(const DataSource& d) {
     if (!d.sheet.empty()) j["sheet"] = d.sheet;
     if (!d.table.empty()) j["table"] = d.table;
     if (!d.query.empty()) j["query"] = d.query;
+    if (d.in_database) j["fits"] = "in-database";
     return j;
 }
 
@@ -387,6 +388,12 @@ void read_source_place(const Reader& r, const json& j, const std::string& where,
     if (database && s.table.empty() == s.query.empty())
         r.fail(where, "a database source needs exactly one of \"table\" and \"query\"");
     if (!database && (!s.table.empty() || !s.query.empty())) r.fail(where, "only a database has tables and queries");
+    const std::string fits = r.text(j, "fits", where, false);
+    if (!fits.empty() && fits != "in-database")
+        r.fail(where + ".fits", "unknown value \"" + fits + "\" (expected in-database, or no \"fits\")");
+    s.in_database = !fits.empty();
+    if (s.in_database && s.kind != SourceKind::PostgreSQL)
+        r.fail(where + ".fits", "only a PostgreSQL source fits in the database");
 }
 
 void read_datasets(const Reader& r, const json& doc, Project& p) {
@@ -604,7 +611,7 @@ bool DataSource::operator==(const DataSource& o) const {
            import.header == o.import.header && import.missing_tokens == o.import.missing_tokens &&
            import.decimal_comma == o.import.decimal_comma && import.column_kinds == o.import.column_kinds &&
            import.text_as_missing == o.import.text_as_missing && retyped == o.retyped && kind == o.kind &&
-           sheet == o.sheet && table == o.table && query == o.query;
+           sheet == o.sheet && table == o.table && query == o.query && in_database == o.in_database;
 }
 
 bool Project::operator==(const Project& o) const {

@@ -38,6 +38,20 @@ std::string changed_data_text(const std::string& file, const std::string& datase
            " when the project was saved";
 }
 
+namespace {
+
+// A PostgreSQL dataset's rows: all of them, or the sample for plots when
+// its fits run in the database.
+Table read_server(const DataSource& source, const std::string& address, const CsvProgress& progress,
+                  const std::string& password, std::string& fingerprint) {
+    const SourceSpec spec = source_spec(source, address);
+    if (!source.in_database) return read_postgres(spec, source.import, progress, password, &fingerprint);
+    std::size_t total = 0;
+    return read_postgres_sample(spec, kPlotSampleRows, &total, source.import, progress, password, &fingerprint);
+}
+
+}  // namespace
+
 LoadedProject load_project(const std::string& path, const CsvProgress& progress, const DataLocations& moved,
                            const DatabasePasswords& passwords) {
     return load_project_data(read_project_file(path), path, progress, moved, passwords);
@@ -78,8 +92,7 @@ LoadedProject load_project_data(Project project, const std::string& path, const 
         const std::string password = given != passwords.end() ? given->second : std::string();
         try {
             table = has_file ? load_data_source(source, path, part, file)
-                             : std::make_shared<const Table>(read_postgres(source_spec(source, file), source.import,
-                                                                           part, password, &fingerprint));
+                             : std::make_shared<const Table>(read_server(source, file, part, password, fingerprint));
         } catch (...) {
             stop = true;  // cancelled or refused: the hash is not needed
             throw;

@@ -2,6 +2,7 @@
 // into a Table, with the type mapping and CsvOptions of postgres_source.hpp.
 #include <libpq-fe.h>
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <unordered_map>
@@ -171,12 +172,36 @@ std::size_t estimated_rows(const detail::PgConnection& c) {
     throw Cancelled();
 }
 
+// Which rows to read: all (rows 0), the first `rows`, or a sample of `rows`.
+struct RowChoice {
+    std::size_t rows = 0;
+    bool sample = false;
+};
+
+// The rows a source yields: SELECT * FROM the table, or the query.
+std::string source_select(const detail::PgConnection& c) {
+    return c.source().query.empty() ? "SELECT * FROM " + c.from_clause() : detail::trimmed_query(c.source().query);
+}
+
+// The SELECT that yields the chosen rows; `total` (the source's row count)
+// is counted for a sample only. A sample of a source with more rows than
+// asked for is the rows whose MD5 of their text comes first: the same rows
+// for the same data, whatever order the server returns them in.
+std::string chosen_select(const detail::PgConnection& c, RowChoice choice, std::size_t& total) {
+    const std::string select = source_select(c);
+    if (!choice.rows) return select;
+    const std::string limit = " LIMIT " + std::to_string(choice.rows);
+    if (!choice.sample) return "SELECT * FROM (" + select + ") AS moderato_first" + limit;
+    const detail::PgResult n = c.exec("SELECT count(*) FROM (" + select + ") AS moderato_count", "counting the rows");
+    total = static_cast<std::size_t>(n.number(0, 0));
+    if (total <= choice.rows) return select;
+    return "SELECT moderato_sample.* FROM (" + select + ") AS moderato_sample ORDER BY md5(moderato_sample::text)" +
+           limit;
+}
+
 void stream_rows(const detail::PgConnection& c, std::vector<ColumnBuilder>& builders, const CsvProgress& progress,
-                 std::size_t max_rows) {
-    std::string select =
-        c.source().query.empty() ? "SELECT * FROM " + c.from_clause() : detail::trimmed_query(c.source().query);
-    if (max_rows) select = "SELECT * FROM (" + select + ") AS moderato_first LIMIT " + std::to_string(max_rows);
-    const std::size_t total = progress.callback && !max_rows ? estimated_rows(c) : 0;
+                 const std::string& select, std::size_t expected) {
+    const std::size_t total = expected ? expected : progress.callback ? estimated_rows(c) : 0;
     {
         const detail::PgResult started(PQexec(c.get(), ("COPY (" + select + ") TO STDOUT").c_str()));
         if (PQresultStatus(started.get()) != PGRES_COPY_OUT)
@@ -221,8 +246,10 @@ namespace detail {
 std::string fingerprint_in(const PgConnection& c);  // postgres_fingerprint.cpp
 }
 
-Table read_postgres(const SourceSpec& source, const CsvOptions& options, const CsvProgress& progress,
-                    const std::string& password, std::string* fingerprint, std::size_t max_rows) {
+namespace {
+
+Table read_rows(const SourceSpec& source, const CsvOptions& options, const CsvProgress& progress,
+                const std::string& password, std::string* fingerprint, RowChoice choice, std::size_t* total) {
     detail::PgConnection c(source, password);
     c.begin_read_only();
     const std::vector<PgColumn> columns = c.describe_columns();
@@ -230,7 +257,10 @@ Table read_postgres(const SourceSpec& source, const CsvOptions& options, const C
     std::vector<ColumnBuilder> builders;
     builders.reserve(columns.size());
     for (const auto& col : columns) builders.emplace_back(col, options, c.name());
-    stream_rows(c, builders, progress, max_rows);
+    std::size_t count = 0;
+    const std::string select = chosen_select(c, choice, count);
+    if (total) *total = count;
+    stream_rows(c, builders, progress, select, choice.rows ? std::min(choice.rows, count) : 0);
     Table t;
     t.source = c.name();
     for (auto& b : builders) t.columns.push_back(b.take());
@@ -238,6 +268,18 @@ Table read_postgres(const SourceSpec& source, const CsvOptions& options, const C
     if (fingerprint) *fingerprint = detail::fingerprint_in(c);
     c.exec("COMMIT", "ending the read-only transaction");
     return t;
+}
+
+}  // namespace
+
+Table read_postgres(const SourceSpec& source, const CsvOptions& options, const CsvProgress& progress,
+                    const std::string& password, std::string* fingerprint, std::size_t max_rows) {
+    return read_rows(source, options, progress, password, fingerprint, {max_rows, false}, nullptr);
+}
+
+Table read_postgres_sample(const SourceSpec& source, std::size_t rows, std::size_t* total, const CsvOptions& options,
+                           const CsvProgress& progress, const std::string& password, std::string* fingerprint) {
+    return read_rows(source, options, progress, password, fingerprint, {rows, true}, total);
 }
 
 }  // namespace moderato

@@ -272,6 +272,7 @@ void DatasetPage::updateHeader() {
     }
     QString text = QStringLiteral("<b>%1</b>").arg(doc_->dataName(id).toHtmlEscaped());
     if (t) text += tr(" &nbsp;·&nbsp; %1 rows × %2 columns").arg(count(t->rows()), count(t->cols()));
+    if (t && s->in_database) text += tr(" &nbsp;·&nbsp; a random sample: fits use every row in the database");
     text += QStringLiteral(" &nbsp;·&nbsp; <span style='color:%1'>%2</span>")
                 .arg(cssColour(mutedText(palette())), doc_->dataPlace(id).toHtmlEscaped());
     title_->setText(text);

@@ -125,6 +125,8 @@ ImportDialog::ImportDialog(const std::string& location, const std::string& passw
 
 ImportDialog::~ImportDialog() { password_.assign(password_.size(), '\0'); }
 
+bool ImportDialog::inDatabase() const { return inDatabase_ && inDatabase_->isChecked(); }
+
 QString ImportDialog::sourceName() const {
     return kind_ == SourceKind::PostgreSQL ? path_ : QFileInfo(path_).fileName();
 }
@@ -143,6 +145,17 @@ void ImportDialog::buildUi() {
     top->addWidget(createReadingOptions(), 3);
     top->addWidget(createMissingValues(), 2);
     layout->addLayout(top);
+    if (kind_ == SourceKind::PostgreSQL) {
+        inDatabase_ = new QCheckBox(tr("Fit linear models inside the database, over every row; read a random "
+                                       "sample of at most %1 rows for plots and checks")
+                                        .arg(countText(static_cast<long long>(kPlotSampleRows))),
+                                    this);
+        inDatabase_->setObjectName(QStringLiteral("import-in-database"));
+        inDatabase_->setToolTip(
+            tr("For tables too large to copy: only sums come back from the server. The "
+               "sample is the same each time for the same rows."));
+        layout->addWidget(inDatabase_);
+    }
     layout->addWidget(createPreview(), 1);
     createFooter(layout);
     connectSignals();
@@ -666,9 +679,14 @@ void ImportDialog::startLoad() {
     connect(job_, &BackgroundJob::finished, this, [this, result](bool cancelled) { loadFinished(*result, cancelled); });
     setLoading(true);
     setMessage(tr("Reading %1…").arg(sourceName()), false);
-    job_->start([result, file, o, password = password_](const BackgroundJob::Progress& progress) {
+    const bool sample = inDatabase();
+    job_->start([result, file, o, sample, password = password_](const BackgroundJob::Progress& progress) {
         try {
-            if (file.kind == SourceKind::PostgreSQL)
+            std::size_t total = 0;
+            if (file.kind == SourceKind::PostgreSQL && sample)
+                result->table = std::make_shared<const Table>(read_postgres_sample(
+                    file, kPlotSampleRows, &total, o, CsvProgress{progress}, password, &result->fingerprint));
+            else if (file.kind == SourceKind::PostgreSQL)
                 result->table = std::make_shared<const Table>(
                     read_postgres(file, o, CsvProgress{progress}, password, &result->fingerprint));
             else result->table = std::make_shared<const Table>(read_source(file, o, CsvProgress{progress}));
@@ -690,6 +708,7 @@ void ImportDialog::setLoading(bool on) {
                                                       addMissing_, removeMissing_, kindsList_, textNotes_, loadButton_})
         w->setEnabled(!on);
     if (sourceChoice_) sourceChoice_->setEnabled(!on);
+    if (inDatabase_) inDatabase_->setEnabled(!on);
     if (!on) otherDelimiter_->setEnabled(delimiter_->currentData().toInt() == Other);
     progress_->setValue(0);
     progress_->setVisible(on);

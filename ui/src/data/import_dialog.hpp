@@ -66,6 +66,9 @@ public:
     CsvOptions options() const { return table_ ? options_ : currentOptions(); }
     // The whole table, read when the dialog was accepted.
     std::shared_ptr<const Table> table() const { return table_; }
+    // PostgreSQL: fits run in the server, and the table read is a sample.
+    bool inDatabase() const;
+    QCheckBox* inDatabaseChoice() const { return inDatabase_; }
     // What identifies the rows read from a PostgreSQL source (empty for files).
     const std::string& fingerprint() const { return fingerprint_; }
 
@@ -138,6 +141,7 @@ private:
     std::vector<std::string> serverTables_;
     std::string fingerprint_;
     SourceChoice* sourceChoice_ = nullptr;
+    QCheckBox* inDatabase_ = nullptr;  // PostgreSQL only
     QGroupBox* reading_ = nullptr;
     SourceSpec loadingSource_;
     CsvOptions options_;

@@ -25,7 +25,7 @@ struct Outcome {
 // message. `stop` set: the long parts (the smooth curve) stop early and the
 // outcome is empty (it is dropped anyway).
 Outcome compute(const Analysis& a, std::shared_ptr<const Table> table, std::shared_ptr<const AnalysisRun> cached,
-                std::shared_ptr<std::atomic<bool>> stop = {}) {
+                std::shared_ptr<const ServerFit> server, std::shared_ptr<std::atomic<bool>> stop = {}) {
     Outcome out;
     const RunProgress progress = [stop](int, int) { return !stop || !stop->load(); };
     try {
@@ -34,7 +34,7 @@ Outcome compute(const Analysis& a, std::shared_ptr<const Table> table, std::shar
             probe_analysis(*run, a, progress);
             out.run = run;
         } else {
-            out.run = std::make_shared<const AnalysisRun>(run_analysis(table, a, progress));
+            out.run = std::make_shared<const AnalysisRun>(run_analysis(table, a, progress, server.get()));
         }
     } catch (const Cancelled&) {
         return {};
@@ -132,8 +132,11 @@ void AnalysisRunner::refresh(const QString& id) {
     // The smooth curve refits the data some hundreds of times (its
     // cross-validation and bootstrap): never on the UI thread, whatever the size.
     const bool slow = smooth_work_pending(cached.get(), a) && std::isfinite(threshold_);
-    if (cells < threshold_ && !slow) {
-        const Outcome o = compute(a, table, cached);
+    // A fit in the database waits for the server: never on the UI thread either.
+    std::shared_ptr<const ServerFit> server = doc_->serverFit(a.dataset);
+    const bool remote = server && !cached && std::isfinite(threshold_);
+    if (cells < threshold_ && !slow && !remote) {
+        const Outcome o = compute(a, table, cached, server);
         const bool wasBusy = e.awaited != 0;
         if (e.stop) e.stop->store(true);
         e.awaited = 0;  // a worker still running computes outdated settings
@@ -143,11 +146,12 @@ void AnalysisRunner::refresh(const QString& id) {
     }
     // Big data: fit, or re-probe the cached fit (the probe scans the rows
     // too, e.g. averaging over the sample on the probability scale), in a worker.
-    startWorker(id, generation, a, std::move(table), std::move(cached));
+    startWorker(id, generation, a, std::move(table), std::move(cached), std::move(server));
 }
 
 void AnalysisRunner::startWorker(const QString& id, int generation, const Analysis& a,
-                                 std::shared_ptr<const Table> table, std::shared_ptr<const AnalysisRun> cached) {
+                                 std::shared_ptr<const Table> table, std::shared_ptr<const AnalysisRun> cached,
+                                 std::shared_ptr<const ServerFit> server) {
     Entry& e = entries_[id];
     const bool wasBusy = e.awaited != 0;
     if (e.stop) e.stop->store(true);  // the worker before computes outdated settings
@@ -171,7 +175,8 @@ void AnalysisRunner::startWorker(const QString& id, int generation, const Analys
                 Q_EMIT busyChanged(id, false);
                 finish(id, generation, a, table, o.run, o.error);
             });
-    watcher->setFuture(QtConcurrent::run([a, table, cached, stop] { return compute(a, table, cached, stop); }));
+    watcher->setFuture(
+        QtConcurrent::run([a, table, cached, server, stop] { return compute(a, table, cached, server, stop); }));
 }
 
 void AnalysisRunner::finish(const QString& id, int generation, const Analysis& a, std::shared_ptr<const Table> table,

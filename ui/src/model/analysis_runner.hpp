@@ -74,7 +74,7 @@ private:
                 std::shared_ptr<const AnalysisRun> run, const QString& error);
     // Runs compute() in a worker for `generation`.
     void startWorker(const QString& id, int generation, const Analysis& a, std::shared_ptr<const Table> table,
-                     std::shared_ptr<const AnalysisRun> cached);
+                     std::shared_ptr<const AnalysisRun> cached, std::shared_ptr<const ServerFit> server);
 
     ProjectDocument* doc_;
     std::map<QString, Entry> entries_;

@@ -77,6 +77,15 @@ QString ProjectDocument::dataName(const std::string& id) const {
     return database.isEmpty() ? table : tr("%1 in %2").arg(table, database);
 }
 
+std::shared_ptr<const ServerFit> ProjectDocument::serverFit(const std::string& id) const {
+    const DataSource* s = project_.dataset(id);
+    if (!s || !s->in_database) return nullptr;
+    const std::string where = dataPath(id).toStdString();
+    const auto given = passwords_.find(where);
+    return std::make_shared<const ServerFit>(
+        ServerFit{source_spec(*s, where), s->import, given != passwords_.end() ? given->second : std::string()});
+}
+
 QString ProjectDocument::dataPlace(const std::string& id) const {
     const DataSource* s = project_.dataset(id);
     if (s && s->kind == SourceKind::PostgreSQL) return QString::fromStdString(s->path);
@@ -136,7 +145,7 @@ void ProjectDocument::rebuildTable(const std::string& id) {
 
 std::string ProjectDocument::addDataset(const QString& dataPath, const CsvOptions& import,
                                         std::shared_ptr<const Table> table, const std::string& sha256,
-                                        const SourceSpec& place) {
+                                        const SourceSpec& place, bool inDatabase) {
     Project after = project_;
     DataSource s;
     const bool server = place.kind == SourceKind::PostgreSQL;  // an address, not a file
@@ -150,6 +159,7 @@ std::string ProjectDocument::addDataset(const QString& dataPath, const CsvOption
     s.sheet = place.sheet;
     s.table = place.table;
     s.query = place.query;
+    s.in_database = server && inDatabase;
     after.datasets.push_back(s);
     // The id may have belonged to a dataset whose addition was undone: forget
     // everything about that one.

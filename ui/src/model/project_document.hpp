@@ -15,6 +15,10 @@
 #include "moderato/project/project_loader.hpp"
 #include "moderato/reading/table.hpp"
 
+namespace moderato {
+struct ServerFit;
+}
+
 namespace moderato::ui {
 
 class ProjectDocument : public QObject {
@@ -35,6 +39,12 @@ public:
     // Why the dataset's derived columns could not be computed (empty: fine).
     QString tableError(const std::string& datasetId) const;
     // Absolute path of a dataset's data file.
+    // Passwords given this session for PostgreSQL addresses (never saved).
+    void setPassword(const std::string& location, const std::string& password) { passwords_[location] = password; }
+    // Where a dataset's fits run in the database (its source, import options
+    // and password); nullptr for every dataset read into Moderato.
+    std::shared_ptr<const ServerFit> serverFit(const std::string& datasetId) const;
+
     // How a dataset's source is named on screen: the file's name, or for a
     // PostgreSQL source its table ("query" for a query) in its database.
     QString dataName(const std::string& id) const;
@@ -53,8 +63,10 @@ public:
     // `sha256`: of the bytes the table was read from (empty: computed at save).
     // `place`: where in the file the table is (a workbook's sheet, an SQLite
     // table or query; its location is not used: `dataPath` is the file).
+    // `inDatabase`: a PostgreSQL dataset whose fits run in the server (`table`
+    // is then the sample read for plots).
     std::string addDataset(const QString& dataPath, const CsvOptions& import, std::shared_ptr<const Table> table,
-                           const std::string& sha256 = {}, const SourceSpec& place = {});
+                           const std::string& sha256 = {}, const SourceSpec& place = {}, bool inDatabase = false);
 
     // Edits (each one undo step). `mergeKey` non-empty: consecutive edits with
     // the same key merge into one step (typing, dragging).
@@ -105,6 +117,7 @@ private:
     std::map<std::string, std::shared_ptr<const Table>> base_, tables_;
     std::map<std::string, std::string> tableErrors_;
     std::map<std::string, std::string> absolutePaths_;  // dataset id -> absolute data path (unsaved projects)
+    std::map<std::string, std::string> passwords_;      // PostgreSQL address -> password, this session only
     std::map<std::string, std::string> readHashes_;     // dataset id -> SHA-256 of the bytes read at open
     struct Saved {
         std::string path, sha256;

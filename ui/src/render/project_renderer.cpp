@@ -113,6 +113,7 @@ RenderReport renderProject(const RenderRequest& request) {
     Writer out(root, dataFiles, report);
 
     ProjectDocument doc;
+    for (const auto& [where, secret] : request.passwords) doc.setPassword(where, secret);  // fits in the database
     doc.adopt(std::move(loaded));
     AnalysisRunner runner(&doc);
     // Every fit on this thread, in order: showAnalysis() has the run (or its

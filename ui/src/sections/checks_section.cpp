@@ -198,7 +198,8 @@ void ChecksSection::ensureComputed() {
     QString problem;
     if (run_) {
         try {
-            diag_ = std::make_shared<const Diagnostics>(moderato::diagnostics(run_->design, run_->fit));
+            diag_ = std::make_shared<const Diagnostics>(
+                moderato::diagnostics(run_->design, run_->sample_fit ? *run_->sample_fit : run_->fit));
         } catch (const std::exception& e) {
             problem = tr("The checks could not be computed: %1").arg(QString::fromUtf8(e.what()));
         }
@@ -241,7 +242,8 @@ void ChecksSection::startWorker() {
         tr("Computing the checks of %1 rows…").arg(countText(static_cast<long long>(run_->design.X.rows()))));
     job_->start([run = run_, outcome](const BackgroundJob::Progress&) {
         try {
-            outcome->diag = std::make_shared<const Diagnostics>(moderato::diagnostics(run->design, run->fit));
+            outcome->diag = std::make_shared<const Diagnostics>(
+                moderato::diagnostics(run->design, run->sample_fit ? *run->sample_fit : run->fit));
             outcome->rows = std::make_shared<const RowNumbers>(rowNumbers(*run));
             for (auto kind : {DiagnosticPlot::Residuals, DiagnosticPlot::Quantiles, DiagnosticPlot::Influence})
                 outcome->points.push_back(std::make_shared<const DiagnosticPoints>(

@@ -442,6 +442,7 @@ MainWindow::LoadResult MainWindow::adoptProject(const QString& path, LoadOutcome
     }
     LoadedProject loaded = std::move(*outcome.project);
     passwords_.insert(outcome.passwords.begin(), outcome.passwords.end());  // they worked: kept for the session
+    for (const auto& [where, secret] : passwords_) doc_->setPassword(where, secret);
     const std::vector<std::string> warnings = loaded.warnings;
     doc_->adopt(std::move(loaded));
     if (!outcome.moved.empty()) doc_->relocateData(outcome.moved, tr("Locate data file"));
@@ -532,9 +533,13 @@ void MainWindow::connectToDatabase() {
 void MainWindow::addServerDataset(const ImportDialog& dialog, const std::string& password) {
     if (!dialog.table()) return;
     const SourceSpec source = dialog.source();
-    if (!password.empty()) passwords_[source.location] = password;
+    if (!password.empty()) {
+        passwords_[source.location] = password;
+        doc_->setPassword(source.location, password);
+    }
     const QString where = QString::fromStdString(source.location);
-    const std::string id = doc_->addDataset(where, dialog.options(), dialog.table(), dialog.fingerprint(), source);
+    const std::string id =
+        doc_->addDataset(where, dialog.options(), dialog.table(), dialog.fingerprint(), source, dialog.inDatabase());
     showAddedDataset(where, id);
 }
 

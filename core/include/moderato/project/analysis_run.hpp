@@ -55,6 +55,20 @@ struct AnalysisRun {
     std::optional<SmoothEffects> smooth;
     std::optional<CommonSupport> support;
     std::vector<std::string> straight_line_notes;
+    // A fit in the database (ServerFit): `fit` is over every row there
+    // (fit.n), `table` and `design` are the sample read for plots, and
+    // `sample_fit` is the same model fitted to the sample, for the model
+    // checks; empty for every other fit.
+    std::optional<FitResult> sample_fit;
+};
+
+// Where an analysis's linear model is fitted inside PostgreSQL (a dataset
+// whose fits run in the database): the source, its import options and the
+// password given this session (empty: the password file).
+struct ServerFit {
+    SourceSpec source;
+    CsvOptions options;
+    std::string password;
 };
 
 // Progress of long work (the smooth curve's cross-validation and bootstrap):
@@ -64,9 +78,11 @@ using RunProgress = std::function<bool(int done, int total)>;
 // Fits and probes. `table` must already hold the derived columns. Throws
 // InputError naming the analysis and the role for a column that is not in
 // the dataset, a missing outcome/focal/moderator, and everything fit_model
-// and probe refuse.
-AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& analysis,
-                         const RunProgress& progress = {});
+// and probe refuse. With `server`, the model is fitted in the database
+// (linear, single-level models only; `table` is then the sample), and the
+// centred coefficient table is left out.
+AnalysisRun run_analysis(std::shared_ptr<const Table> table, const Analysis& analysis, const RunProgress& progress = {},
+                         const ServerFit* server = nullptr);
 
 // Recomputes only the probing part of a run (pinned values, held second
 // moderator, scale, the straight-line check) on its cached design and fit.

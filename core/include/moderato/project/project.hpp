@@ -66,6 +66,10 @@ struct DataSource {
     // Kinds changed after import (reading/retype.hpp), applied to the table
     // as read, before the derived columns. Saved only when not empty.
     std::map<std::string, ColumnKind> retyped;
+    // PostgreSQL only: linear fits run inside the server over every row, and
+    // the table read is a reproducible sample (kPlotSampleRows) for plots
+    // and checks. Saved as "fits": "in-database" in "source".
+    bool in_database = false;
     // Every saved field (CsvOptions::threads is not saved and not compared).
     bool operator==(const DataSource&) const;
 };

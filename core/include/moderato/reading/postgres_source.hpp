@@ -101,6 +101,18 @@ std::vector<std::string> postgres_tables(const std::string& location, const std:
 Table read_postgres(const SourceSpec& source, const CsvOptions& options = {}, const CsvProgress& progress = {},
                     const std::string& password = {}, std::string* fingerprint = nullptr, std::size_t max_rows = 0);
 
+// Rows read for the plots and checks of a fit computed in the database.
+inline constexpr std::size_t kPlotSampleRows = 200'000;
+
+// A reproducible random sample of at most `rows` rows of the source: every
+// row when there are no more, else the `rows` rows whose MD5 of their text
+// (`row::text`, as the fingerprint) comes first, so the same data give the
+// same sample with no seed to keep. `total` (not null) receives the
+// source's row count, counted in the same snapshot. Otherwise as read_postgres.
+Table read_postgres_sample(const SourceSpec& source, std::size_t rows, std::size_t* total,
+                           const CsvOptions& options = {}, const CsvProgress& progress = {},
+                           const std::string& password = {}, std::string* fingerprint = nullptr);
+
 // What identifies the rows a source yields, computed in the server in one
 // scan: "pg-md5-sum:<rows>:<checksum>". The checksum is the sum, modulo 2^64,
 // of the first 64 bits (as a signed integer, read big-endian) of the MD5 of
