@@ -143,6 +143,9 @@ TEST_F(PostgresWorkbench, FitsInTheDatabaseOverEveryRowAndPlotsASample) {
     ASSERT_NE(dlg.inDatabaseChoice(), nullptr);
     QTest::mouseClick(dlg.inDatabaseChoice(), Qt::LeftButton, {}, QPoint(6, dlg.inDatabaseChoice()->height() / 2));
     ASSERT_TRUE(dlg.inDatabase());
+    EXPECT_TRUE(test::waitUntil([&] {
+        return dlg.message().contains(QStringLiteral("random sample of at most 200,000"));
+    })) << dlg.message();
     QTest::mouseClick(test::child<QPushButton>(&dlg, "import-load"), Qt::LeftButton);
     ASSERT_TRUE(test::waitUntil([&] { return !dlg.isLoading() && dlg.table(); }, 60000)) << dlg.message();
     EXPECT_EQ(dlg.table()->rows(), kPlotSampleRows);

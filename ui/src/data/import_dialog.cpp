@@ -155,6 +155,8 @@ void ImportDialog::buildUi() {
             tr("For tables too large to copy: only sums come back from the server. The "
                "sample is the same each time for the same rows."));
         layout->addWidget(inDatabase_);
+        connect(inDatabase_, &QCheckBox::toggled, this,
+                &ImportDialog::schedulePreview);  // the message says what Load reads
     }
     layout->addWidget(createPreview(), 1);
     createFooter(layout);
@@ -536,6 +538,9 @@ void ImportDialog::showPreview(const std::shared_ptr<const Table>& shown, bool w
                 : sheet   ? tr("The whole sheet: %1")
                           : tr("Every row: %1"))
                    .arg(rowsText);
+    else if (inDatabase())
+        text = tr("Preview of the first %1; Load reads a random sample of at most %2 rows")
+                   .arg(rowsText, countText(static_cast<long long>(kPlotSampleRows)));
     else
         text = (text_file ? tr("Preview of the first %1; Load reads the whole file")
                 : sheet   ? tr("Preview of the first %1; Load reads the whole sheet")

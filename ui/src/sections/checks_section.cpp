@@ -305,7 +305,14 @@ void ChecksSection::showDiagnostics(const QString& problem,
         rules_->clear();
         return;
     }
-    note_->setText(noteText(*diag_));
+    QString note = noteText(*diag_);
+    if (run_ && run_->sample_fit)  // a fit in the database: the checks see the sample only
+        note = tr("These checks use the random sample of %1 rows read for plots; the estimates use all %2 rows "
+                  "in the database.")
+                   .arg(countText(static_cast<long long>(run_->sample_fit->n)),
+                        countText(static_cast<long long>(run_->fit.n))) +
+               QLatin1Char(' ') + note;
+    note_->setText(note);
     rules_->setText(rulesText(*diag_));
 }
 
