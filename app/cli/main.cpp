@@ -56,9 +56,11 @@ product (interaction) terms.
                            (hc0-hc4, cluster; one fewer for a large file without categorical
                            predictors), holding a chunk rather than the table; linear models
                            (OLS, WLS) without column transforms; no fitted values kept
-  --in-database            fit: compute a linear model (OLS, WLS; any --se) by aggregate queries in
-                           PostgreSQL, reading only sums (2 queries, 3 for robust SEs, plus one per
-                           categorical predictor); a partitioned table is summed per partition
+  --in-database            fit, probe: compute a linear model (OLS, WLS; any --se) by aggregate
+                           queries in PostgreSQL, reading only sums (2 queries, 3 for robust SEs, plus
+                           one per categorical predictor); a partitioned table is summed per
+                           partition. probe takes its moderator values from a random sample of at
+                           most 200,000 rows (the same rows each time)
   --memory-budget MB       fit: stream when an in-memory fit is estimated to need more than MB
                            (default: a quarter of physical memory); the fit's notes say so
 

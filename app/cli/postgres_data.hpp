@@ -6,8 +6,11 @@
 #pragma once
 
 #include <optional>
+#include <string>
 
 #include "arguments.hpp"
+#include "model_options.hpp"
+#include "moderato/estimation/design.hpp"
 #include "moderato/estimation/fit.hpp"
 #include "moderato/reading/data_source.hpp"
 
@@ -21,5 +24,12 @@ std::optional<SourceSpec> postgres_data(const Arguments& args);
 // Refuses a source that is not PostgreSQL, the column transforms (--centre,
 // --standardise, --log, --log1p) and --stream, naming the option.
 FitResult fit_in_database_option(const Arguments& args, ModelSpec& spec);
+
+// `probe --in-database`: the same fit, and in `m.table` a reproducible
+// random sample of at most kPlotSampleRows rows (read_postgres_sample) for
+// the design the probe takes its moderator values and summaries from, in
+// `design`. `note` says which rows each part used when the sample is not
+// every row; a term the sample lacks (a rare level) is refused by name.
+FitResult probe_in_database_option(const Arguments& args, LoadedModel& m, Design& design, std::string& note);
 
 }  // namespace moderato::cli

@@ -25,6 +25,7 @@
 #include "moderato/reporting/output_json.hpp"
 #include "moderato/reporting/probe_report.hpp"
 #include "moderato/support/error.hpp"
+#include "postgres_data.hpp"
 
 namespace moderato::cli {
 
@@ -239,12 +240,21 @@ void print_probe(const Arguments& a, const LoadedModel& m, const FitResult& fit,
 int run_probe(const std::vector<std::string>& args) {
     auto flags = model_flags();
     flags.insert("smooth");
+    flags.insert("in-database");
     const Arguments a(args, flags, probe_valued(), repeatable_options());
     if (!a.positional.empty()) throw InputError("unexpected argument '" + a.positional.front() + "'");
     const std::string format = output_format(a);
-    LoadedModel m = load_model(a);
-    const Design design = build_design(m.table, m.spec);
-    FitResult fit = fit_design(design, m.spec);
+    LoadedModel m;
+    Design design;
+    FitResult fit;
+    std::string sampled;  // a fit in the database: which rows each part used
+    if (a.has("in-database")) {
+        fit = probe_in_database_option(a, m, design, sampled);
+    } else {
+        m = load_model(a);
+        design = build_design(m.table, m.spec);
+        fit = fit_design(design, m.spec);
+    }
 
     ProbeRequest req;
     req.spec.focal = a.required("focal");
@@ -258,8 +268,9 @@ int run_probe(const std::vector<std::string>& args) {
     read_extras(a, m.spec, req);
     read_linearity(a, m.spec, req);
 
-    const ProbeResult r = req.scale == ProbeScale::Outcome ? probe_response(design, fit, req.spec, req.averaging)
-                                                           : probe(design, fit, req.spec);
+    ProbeResult r = req.scale == ProbeScale::Outcome ? probe_response(design, fit, req.spec, req.averaging)
+                                                     : probe(design, fit, req.spec);
+    if (!sampled.empty()) r.notes.insert(r.notes.begin(), sampled);
     print_probe(a, m, fit, r, compute_extras(design, fit, m.spec, req, r), format);
     return 0;
 }

@@ -81,6 +81,42 @@ TEST_F(PostgresCli, FitsATableAQueryAndInTheDatabase) {
     EXPECT_NE(cols.out.find("g"), std::string::npos) << cols.out;
 }
 
+// Every number of `got` within `tol` relative (or absolute below 1) of `want`,
+// every other value equal; the "data" field (where the rows came from) skipped.
+void expect_same_json(const nlohmann::json& got, const nlohmann::json& want, double tol, const std::string& at) {
+    if (want.is_number() && got.is_number()) {
+        const double a = got.get<double>(), b = want.get<double>();
+        EXPECT_LE(std::abs(a - b), tol * std::max(1.0, std::abs(b))) << at;
+    } else if (want.is_object() && got.is_object()) {
+        EXPECT_EQ(got.size(), want.size()) << at;
+        for (const auto& [key, value] : want.items())
+            if (key != "data") expect_same_json(got.value(key, nlohmann::json()), value, tol, at + "." + key);
+    } else if (want.is_array() && got.is_array()) {
+        ASSERT_EQ(got.size(), want.size()) << at;
+        for (std::size_t i = 0; i < want.size(); ++i)
+            expect_same_json(got[i], want[i], tol, at + "[" + std::to_string(i) + "]");
+    } else {
+        EXPECT_EQ(got, want) << at;
+    }
+}
+
+TEST_F(PostgresCli, ProbesAFitInTheDatabase) {
+    const auto probe = [](const std::string& data, std::vector<std::string> extra) {
+        std::vector<std::string> a{
+            "probe", "--data", data,  "--outcome", "y", "--predictors", "x,m,g", "--interaction", "x,m", "--weights",
+            "w",     "--se",   "hc3", "--focal",   "x", "--moderator",  "m",     "--format",      "json"};
+        a.insert(a.end(), extra.begin(), extra.end());
+        return run_cli(a);
+    };
+    // Reference: the same rows as a CSV file, probed by the CLI's own fit.
+    const auto want = moderato::test::json_output(probe(csv_, {}));
+    const auto got =
+        moderato::test::json_output(probe(shared_cluster().uri(db_), {"--table", "sales", "--in-database"}));
+    // 300 rows: the sample is every row, so the moderator values are the same and
+    // every number (effects, Johnson-Neyman boundaries, tests) agrees to the fit's 1e-9.
+    expect_same_json(got, want, 1e-8, "probe");
+}
+
 TEST_F(PostgresCli, RefusalsAreUsageErrors) {
     const std::string uri = shared_cluster().uri(db_);
     const auto expect_refusal = [](const moderato::test::RunResult& r, const std::string& words) {
