@@ -16,7 +16,7 @@ cd "$(dirname "$0")/.."
 seconds="${1:-60}"
 [ $# -gt 0 ] && shift
 targets=("$@")
-[ ${#targets[@]} -eq 0 ] && targets=(fuzz_csv fuzz_project fuzz_recipe fuzz_writers)
+[ ${#targets[@]} -eq 0 ] && targets=(fuzz_csv fuzz_project fuzz_recipe fuzz_writers fuzz_workbook)
 build="${FUZZ_BUILD_DIR:-build-fuzz}"
 cxx="${FUZZ_CXX:-clang++-15}"
 command -v "$cxx" >/dev/null || { echo "fuzz.sh: $cxx not found (./deps.sh test installs clang-15)" >&2; exit 1; }

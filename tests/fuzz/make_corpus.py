@@ -97,13 +97,36 @@ def writer_seeds() -> None:
         write("fuzz_writers", f"strings-{i}.bin", t + bytes([i, 3, 3]))
 
 
+WORKBOOK_PARTS = ("xl/workbook.xml", "xl/_rels/workbook.xml.rels", "xl/worksheets/sheet1.xml",
+                  "xl/sharedStrings.xml", "xl/styles.xml")
+
+
+def workbook_seeds() -> None:
+    """The parts fuzz_workbook zips, from the test workbooks (tests/data/workbooks):
+    each workbook's parts in fuzz_workbook.cpp's order, a part that is missing
+    left empty, a sheet cut to MAX bytes at a row's end."""
+    import zipfile
+    for book in sorted((ROOT / "tests" / "data" / "workbooks").glob("*.xlsx")):
+        with zipfile.ZipFile(book) as z:
+            names = set(z.namelist())
+            parts = []
+            for name in WORKBOOK_PARTS:
+                data = z.read(name) if name in names else b""
+                if name.endswith("sheet1.xml") and len(data) > MAX:
+                    end = data.rfind(b"</row>", 0, MAX)
+                    data = data[: end + 6] + b"</sheetData></worksheet>" if end > 0 else data[:MAX]
+                parts.append(data)
+        write("fuzz_workbook", book.stem + ".parts", b"\n@@part@@\n".join(parts))
+
+
 def main() -> None:
-    for target in ("fuzz_csv", "fuzz_project", "fuzz_recipe", "fuzz_writers"):
+    for target in ("fuzz_csv", "fuzz_project", "fuzz_recipe", "fuzz_writers", "fuzz_workbook"):
         clear(target)
     csv_seeds()
     project_seeds()
     recipe_seeds()
     writer_seeds()
+    workbook_seeds()
     total = sum(f.stat().st_size for f in OUT.rglob("*") if f.is_file())
     print(f"seed corpus: {sum(1 for f in OUT.rglob('*') if f.is_file())} files, {total} bytes")
 
