@@ -11,6 +11,7 @@
 #include "moderato/reading/sqlite_source.hpp"
 #include "moderato/reading/workbook.hpp"
 #include "moderato/support/error.hpp"
+#include "reading/postgres_uri.hpp"
 
 namespace moderato {
 
@@ -25,46 +26,6 @@ std::string lower_extension(const std::string& path) {
     std::string ext = path.substr(dot);
     for (char& c : ext) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
     return ext;
-}
-
-int hex_value(char c) {
-    if (c >= '0' && c <= '9') return c - '0';
-    if (c >= 'a' && c <= 'f') return c - 'a' + 10;
-    if (c >= 'A' && c <= 'F') return c - 'A' + 10;
-    return -1;
-}
-
-std::string percent_decoded(std::string_view s) {
-    std::string out;
-    for (std::size_t i = 0; i < s.size(); ++i) {
-        if (s[i] == '%' && i + 2 < s.size() && hex_value(s[i + 1]) >= 0 && hex_value(s[i + 2]) >= 0) {
-            out += static_cast<char>(hex_value(s[i + 1]) * 16 + hex_value(s[i + 2]));
-            i += 2;
-        } else {
-            out += s[i];
-        }
-    }
-    return out;
-}
-
-// A libpq URI carries a password as "user:secret@host" or "?password=...".
-bool uri_has_password(const std::string& uri) {
-    const std::size_t start = uri.find("://") + 3;
-    const std::size_t end = std::min(uri.find_first_of("/?#", start), uri.size());
-    const std::string_view authority(uri.data() + start, end - start);
-    const auto at = authority.rfind('@');
-    if (at != std::string_view::npos && authority.substr(0, at).find(':') != std::string_view::npos) return true;
-    const auto q = uri.find('?');
-    if (q == std::string::npos) return false;
-    std::size_t b = q + 1;
-    while (b <= uri.size()) {
-        const std::size_t e = std::min(uri.find_first_of("&#", b), uri.size());
-        const std::string_view pair(uri.data() + b, e - b);
-        if (percent_decoded(pair.substr(0, pair.find('='))) == "password") return true;
-        if (e >= uri.size() || uri[e] == '#') break;
-        b = e + 1;
-    }
-    return false;
 }
 
 [[noreturn]] void option_error(const std::string& message) { throw InputError(message); }
@@ -115,7 +76,7 @@ SourceSpec parse_source(const std::string& data, const std::string& sheet, const
         if (s.location.empty()) option_error("--data sqlite:PATH: the database file's path is missing after 'sqlite:'");
     } else if (starts_with(data, "postgresql://") || starts_with(data, "postgres://")) {
         s.kind = SourceKind::PostgreSQL;
-        if (uri_has_password(data))
+        if (detail::uri_has_password(data))
             option_error(
                 "--data: the postgresql:// address holds a password; leave it out of the address (it "
                 "would be seen in the process list and the shell's history) and keep it in the password "

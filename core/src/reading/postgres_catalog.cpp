@@ -8,23 +8,11 @@
 
 #include "moderato/reading/postgres_source.hpp"
 #include "reading/postgres_connection.hpp"
+#include "reading/postgres_uri.hpp"
 
 namespace moderato {
 
 namespace {
-
-// RFC 3986 unreserved characters and `keep` stay; every other byte becomes %XX.
-std::string percent_encoded(const std::string& text, std::string_view keep = {}) {
-    static const char* hex = "0123456789ABCDEF";
-    std::string out;
-    for (const unsigned char ch : text) {
-        const bool plain = std::isalnum(ch) || ch == '-' || ch == '.' || ch == '_' || ch == '~' ||
-                           keep.find(static_cast<char>(ch)) != std::string_view::npos;
-        if (plain) out += static_cast<char>(ch);
-        else out += {'%', hex[ch >> 4], hex[ch & 15]};
-    }
-    return out;
-}
 
 // A part of a table's name as `table` takes it: in double quotes (inner
 // quotes doubled) when it holds a dot or a double quote.
@@ -42,12 +30,12 @@ std::string postgres_address(const PostgresAddress& address) {
     const auto add = [&](const char* key, const std::string& value) {
         if (value.empty()) return;
         // '/', ':' and '@' may stand in a URI's query as they are (a socket folder stays readable).
-        query += (query.empty() ? "?" : "&") + std::string(key) + "=" + percent_encoded(value, "/:@");
+        query += (query.empty() ? "?" : "&") + std::string(key) + "=" + detail::percent_encoded(value, "/:@");
     };
     add("host", address.host);
     add("port", address.port);
     add("user", address.user);
-    return "postgresql:///" + percent_encoded(address.database) + query;
+    return "postgresql:///" + detail::percent_encoded(address.database) + query;
 }
 
 std::vector<std::string> postgres_tables(const std::string& location, const std::string& password) {

@@ -6,38 +6,16 @@
 #include <cmath>
 #include <limits>
 #include <map>
+#include <optional>
 
 #include "moderato/reading/postgres_source.hpp"
 #include "moderato/support/error.hpp"
+#include "reading/postgres_uri.hpp"
 #include "support/text_util.hpp"
 
 namespace moderato {
 
 namespace {
-
-// Removes "password=..." parameters (up to the next '&' or end) and a
-// "user:secret@" part of a URI.
-std::string strip_password(std::string uri) {
-    for (std::size_t at; (at = uri.find("password=")) != std::string::npos;) {
-        std::size_t start = at;
-        if (start > 0 && (uri[start - 1] == '&' || uri[start - 1] == '?')) --start;
-        const std::size_t end = uri.find('&', at);
-        const bool first = uri[start] == '?';
-        uri.erase(start, end == std::string::npos ? std::string::npos : end - start + (first ? 1 : 0));
-        if (first && end != std::string::npos) uri.insert(start, "?");
-    }
-    const std::size_t scheme = uri.find("://");
-    if (scheme != std::string::npos) {
-        const std::size_t host_start = scheme + 3;
-        const std::size_t slash = uri.find('/', host_start);
-        const std::size_t at = uri.rfind('@', slash == std::string::npos ? uri.size() : slash);
-        if (at != std::string::npos && at >= host_start) {
-            const std::size_t colon = uri.find(':', host_start);
-            if (colon != std::string::npos && colon < at) uri.erase(colon, at - colon);
-        }
-    }
-    return uri;
-}
 
 std::string scrub(std::string text, const std::string& secret) {
     if (!secret.empty())
@@ -48,10 +26,10 @@ std::string scrub(std::string text, const std::string& secret) {
 
 }  // namespace
 
-std::string postgres_location_without_password(const std::string& uri) { return strip_password(uri); }
+std::string postgres_location_without_password(const std::string& uri) { return detail::uri_without_password(uri); }
 
 std::string describe_postgres(const SourceSpec& source) {
-    const std::string where = strip_password(source.location);
+    const std::string where = detail::uri_without_password(source.location);
     if (!source.query.empty()) return "query in " + where;
     if (source.table.empty()) return where;  // the server itself (listing its tables)
     return "table " + source.table + " in " + where;
@@ -110,7 +88,7 @@ PgConnection::PgConnection(const SourceSpec& source, const std::string& password
         if (asks)
             throw PasswordNeeded(name_ + ": the server asks for a password; give it when asked, or put it in " +
                                      "the password file (~/.pgpass, or the file PGPASSFILE names)",
-                                 strip_password(source.location));
+                                 detail::uri_without_password(source.location));
         throw InputError(name_ + ": cannot connect: " + why);
     }
     exec(
@@ -165,7 +143,8 @@ std::string PgConnection::from_clause() const {
 
 namespace {
 
-PgValue value_of(unsigned oid, char typtype) {
+// How a column of this type is read; nothing for a type Moderato does not read.
+std::optional<PgValue> value_of(unsigned oid, char typtype) {
     switch (oid) {
         case 20:
         case 21:
@@ -187,7 +166,8 @@ PgValue value_of(unsigned oid, char typtype) {
         case 1184:
             return PgValue::DateTime;
         default:
-            return typtype == 'e' ? PgValue::Text : static_cast<PgValue>(-1);
+            if (typtype == 'e') return PgValue::Text;
+            return std::nullopt;
     }
 }
 
@@ -225,12 +205,12 @@ std::vector<PgColumn> PgConnection::describe_columns() const {
     for (auto& c : cols) {
         c.type_name = types[c.oid].first;
         const auto v = value_of(base.count(c.oid) ? base[c.oid] : c.oid, types[c.oid].second);
-        if (static_cast<int>(v) < 0)
+        if (!v)
             throw InputError(name_ + ": column " + detail::quoted(c.name) + " has type " + c.type_name +
                              ", which Moderato does not read (numbers, booleans, text, enums, dates and timestamps "
                              "are read); convert it in a query, e.g. CAST(" +
                              c.name + " AS text)");
-        c.value = v;
+        c.value = *v;
     }
     std::map<std::string, int> seen;
     for (const auto& c : cols)
