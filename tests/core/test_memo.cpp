@@ -381,6 +381,27 @@ TEST(MemoRender, UserStringsAreEscapedAndTheHtmlIsSelfContained) {
     EXPECT_NE(md.find("](lines-plot.png)"), std::string::npos);
 }
 
+TEST(MemoRender, FooterOfAFitInTheDatabaseNamesItsSourceAndRows) {
+    SampleRun s = run_sample("coffee-discount");
+    // As a fit in the database leaves it (analysis_run.hpp): the full fit over
+    // more rows than the sample behind the plots, and the sample's own fit.
+    s.run.sample_fit = s.run.fit;
+    s.run.fit.n = 400000;
+    MemoContext ctx;
+    ctx.data_file = "postgresql:///shop?host=/run/pg";
+    ctx.data_sha256 = "pg-md5-sum:400000:42";
+    ctx.recorded_sha256 = ctx.data_sha256;
+    const Memo memo = build_memo(s.loaded.project, s.analysis, s.run, ctx);
+    std::map<std::string, std::string> footer(memo.footer.begin(), memo.footer.end());
+    EXPECT_EQ(footer["data source"], ctx.data_file);
+    EXPECT_EQ(footer["data fingerprint"], ctx.data_sha256);
+    EXPECT_EQ(footer["data fingerprint as saved"], "matches");
+    EXPECT_EQ(footer.count("data SHA-256"), 0u);
+    EXPECT_EQ(footer["rows used"],
+              "every complete row in the database (400,000); plots and checks: a random sample of " +
+                  format_count(static_cast<long long>(s.run.sample_fit->n)));
+}
+
 TEST(MemoRender, FooterStatesChecksumVersionAndEveryOption) {
     const SampleRun s = run_sample("coffee-discount");
     MemoContext ctx;

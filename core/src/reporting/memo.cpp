@@ -486,6 +486,20 @@ std::vector<std::pair<std::string, std::string>> analysis_options(const Project&
     return out;
 }
 
+namespace {
+
+// "1,200 of 1,250", or for a fit in the database "every complete row in the
+// database (400,000); plots and checks: a random sample of 200,000".
+std::string rows_used(const AnalysisRun& run) {
+    const auto count = [](std::size_t n) { return format_count(static_cast<long long>(n)); };
+    if (run.sample_fit)
+        return "every complete row in the database (" + count(run.fit.n) + "); plots and checks: a random sample of " +
+               count(run.sample_fit->n);
+    return count(run.fit.n) + " of " + count(run.table ? run.table->rows() : 0);
+}
+
+}  // namespace
+
 Memo build_memo(const Project& project, const Analysis& a, const AnalysisRun& run, const MemoContext& ctx,
                 std::vector<MemoFigure> figures) {
     Memo m;
@@ -499,15 +513,18 @@ Memo build_memo(const Project& project, const Analysis& a, const AnalysisRun& ru
     m.cautions = memo_cautions(a, run);
     m.footer.emplace_back("software", ctx.software);
     m.footer.emplace_back("project file", ctx.project_file);
-    m.footer.emplace_back("data file", ctx.data_file);
-    m.footer.emplace_back("data SHA-256", ctx.data_sha256);
+    // A PostgreSQL source has an address and a fingerprint (rows and an
+    // order-free checksum, "pg-md5-sum:..."), not a file and its SHA-256.
+    const bool server = ctx.data_sha256.rfind("pg-md5-sum:", 0) == 0;
+    const std::string hash = server ? "data fingerprint" : "data SHA-256";
+    m.footer.emplace_back(server ? "data source" : "data file", ctx.data_file);
+    m.footer.emplace_back(hash, ctx.data_sha256);
     if (!ctx.recorded_sha256.empty())
-        m.footer.emplace_back("data SHA-256 as saved",
+        m.footer.emplace_back(hash + " as saved",
                               ctx.recorded_sha256 == ctx.data_sha256
                                   ? "matches"
                                   : ctx.recorded_sha256 + " (differs: the data changed after the project was saved)");
-    m.footer.emplace_back("rows used", format_count(static_cast<long long>(run.fit.n)) + " of " +
-                                           format_count(static_cast<long long>(run.table ? run.table->rows() : 0)));
+    m.footer.emplace_back("rows used", rows_used(run));
     for (auto& kv : analysis_options(project, a)) m.footer.push_back(std::move(kv));
     return m;
 }
