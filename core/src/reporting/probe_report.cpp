@@ -192,7 +192,8 @@ void write_heading(std::ostringstream& o, const ProbeResult& r, const FitResult&
     o << "Effect of " << r.focal << " at chosen values of " << r.moderator
       << (scale.empty() ? std::string() : " (" + scale + " scale)") << "\n";
     o << "Standard errors: " << standard_errors_text(fit.se) << " · " << level_text(r.level) << " intervals · "
-      << (std::isinf(r.df) ? std::string("z") : "t with " + format_df(r.df) + " df") << " · n = " << fit.n << "\n";
+      << (std::isinf(r.df) ? std::string("z") : "t with " + format_df(r.df) + " df")
+      << " · n = " << format_count(static_cast<long long>(fit.n)) << "\n";
     if (!r.categorical_moderator)
         o << r.moderator << " observed from " << format_range(r.observed_range.first, r.observed_range.second)
           << " (mean " << num(r.moderator_mean) << ", SD " << num(r.moderator_sd) << ")\n";
