@@ -202,23 +202,24 @@ void refuse_no_complete(const Context& x, const Table& schema) {
     throw InputError(schema.source + ": no complete rows");
 }
 
-// Pass 2: the weighted cross-products of z = [1, d - mean, y - mean].
+// Pass 2: the weighted cross-products of z = [1, d - mean, y - mean], as
+// sums of s_a s_b with s = sqrt(w) z.
 MatL cross_products(const Context& x, const Means& m) {
     const DesignQuery& q = x.q;
     const std::size_t p1 = q.design.size() + 1, nz = p1 + 1;
-    std::vector<std::string> z{"'1'::float8"}, items;
+    // Each z_a is scaled by sqrt(w) once a row (s_a), so an aggregate is one
+    // product s_a s_b rather than w z_a z_b.
+    std::vector<std::string> items{"sqrt(w) AS s0"};
     for (std::size_t j = 0; j < p1; ++j) {
         const std::string col = j + 1 < p1 ? "d" + std::to_string(j + 1) : "y";
         const double mean = static_cast<double>(m.sums[j] / m.sum_w);
-        items.push_back("(" + col + " - " + detail::float8_literal(mean) + ") AS z" + std::to_string(j + 1));
-        z.push_back("z" + std::to_string(j + 1));
+        items.push_back("sqrt(w) * (" + col + " - " + detail::float8_literal(mean) + ") AS s" + std::to_string(j + 1));
     }
     for (std::size_t i = 0; i < q.keys.size(); ++i) items.push_back("k" + std::to_string(i));
-    items.push_back("w");
     std::vector<std::string> aggs;
     for (std::size_t a = 0; a < nz; ++a)
         for (std::size_t b = a; b < nz; ++b)
-            aggs.push_back("sum(w" + (a ? " * " + z[a] : std::string()) + (b ? " * " + z[b] : std::string()) + ")");
+            aggs.push_back("sum(s" + std::to_string(a) + " * s" + std::to_string(b) + ")");
     const PgResult r =
         x.exec("SELECT " + q.key_list() + detail::join(aggs, ", ") + " FROM (SELECT " + detail::join(items, ", ") +
                    " FROM (" + q.level1(true) + ") AS l1" + q.fence_text() + ") AS l2" + q.group_by(),
