@@ -3,6 +3,7 @@
 #include <QFileInfo>
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <set>
 
 #include "model/project_commands.hpp"
@@ -294,15 +295,23 @@ bool identifier_like(const Column& c, std::size_t rows) {
     if (name == QLatin1String("id") || name.endsWith(QLatin1String("_id"))) return true;
     if (rows < 10) return false;
     if (c.kind == ColumnKind::Categorical) return c.levels.size() == rows;
-    std::vector<double> v;
-    v.reserve(rows);
+    // One pass for whole numbers and their range (most measures stop at their
+    // first fraction), then one to see each value once: no sort, since this
+    // runs on the UI thread when a dataset is added.
+    double lo = std::numeric_limits<double>::infinity(), hi = -lo;
     for (const double x : c.numbers) {
         if (!std::isfinite(x) || x != std::floor(x)) return false;
-        v.push_back(x);
+        lo = std::min(lo, x);
+        hi = std::max(hi, x);
     }
-    std::sort(v.begin(), v.end());
-    if (std::adjacent_find(v.begin(), v.end()) != v.end()) return false;
-    return v.back() - v.front() + 1 == static_cast<double>(v.size());
+    if (hi - lo + 1 != static_cast<double>(rows)) return false;
+    std::vector<bool> seen(rows, false);
+    for (const double x : c.numbers) {
+        const auto k = static_cast<std::size_t>(x - lo);
+        if (seen[k]) return false;
+        seen[k] = true;
+    }
+    return true;
 }
 
 }  // namespace

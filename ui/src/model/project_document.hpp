@@ -41,6 +41,7 @@ public:
     // Absolute path of a dataset's data file.
     // Passwords given this session for PostgreSQL addresses (never saved).
     void setPassword(const std::string& location, const std::string& password) { passwords_[location] = password; }
+    const DatabasePasswords& passwords() const { return passwords_; }
     // Where a dataset's fits run in the database (its source, import options
     // and password); nullptr for every dataset read into Moderato.
     std::shared_ptr<const ServerFit> serverFit(const std::string& datasetId) const;
@@ -117,7 +118,7 @@ private:
     std::map<std::string, std::shared_ptr<const Table>> base_, tables_;
     std::map<std::string, std::string> tableErrors_;
     std::map<std::string, std::string> absolutePaths_;  // dataset id -> absolute data path (unsaved projects)
-    std::map<std::string, std::string> passwords_;      // PostgreSQL address -> password, this session only
+    DatabasePasswords passwords_;                       // PostgreSQL address -> password, this session only
     std::map<std::string, std::string> readHashes_;     // dataset id -> SHA-256 of the bytes read at open
     struct Saved {
         std::string path, sha256;

@@ -359,7 +359,7 @@ void MainWindow::openProjectFrom(const QString& path, std::shared_ptr<const Proj
     outcome->moved = moved;
     outcome->adopted = std::move(adopted);
     outcome->passwords = passwords;
-    outcome->passwords.insert(passwords_.begin(), passwords_.end());
+    outcome->passwords.insert(doc_->passwords().begin(), doc_->passwords().end());
     const QString name = path.isEmpty() ? tr("Untitled project") : QFileInfo(path).fileName();
     startLoad(
         path, tr("Opening %1…").arg(name),
@@ -441,8 +441,7 @@ MainWindow::LoadResult MainWindow::adoptProject(const QString& path, LoadOutcome
         return Failed;
     }
     LoadedProject loaded = std::move(*outcome.project);
-    passwords_.insert(outcome.passwords.begin(), outcome.passwords.end());  // they worked: kept for the session
-    for (const auto& [where, secret] : passwords_) doc_->setPassword(where, secret);
+    for (const auto& [where, secret] : outcome.passwords) doc_->setPassword(where, secret);  // they worked: kept
     const std::vector<std::string> warnings = loaded.warnings;
     doc_->adopt(std::move(loaded));
     if (!outcome.moved.empty()) doc_->relocateData(outcome.moved, tr("Locate data file"));
@@ -533,10 +532,7 @@ void MainWindow::connectToDatabase() {
 void MainWindow::addServerDataset(const ImportDialog& dialog, const std::string& password) {
     if (!dialog.table()) return;
     const SourceSpec source = dialog.source();
-    if (!password.empty()) {
-        passwords_[source.location] = password;
-        doc_->setPassword(source.location, password);
-    }
+    if (!password.empty()) doc_->setPassword(source.location, password);
     const QString where = QString::fromStdString(source.location);
     const std::string id =
         doc_->addDataset(where, dialog.options(), dialog.table(), dialog.fingerprint(), source, dialog.inDatabase());

@@ -168,7 +168,6 @@ private:
     RecoveryStore* recovery_;
     DataLocator locator_;
     PasswordAsker passwordAsker_;
-    DatabasePasswords passwords_;  // given this session, by address; never written
     QMenu* recentMenu_ = nullptr;
     QAction* newAnalysisAction_ = nullptr;
     bool interactive_ = true;
